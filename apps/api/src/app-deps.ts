@@ -1,0 +1,16 @@
+import type { Logger } from 'pino';
+import type { AuthSettings } from './auth/auth-service';
+import type { Config } from './config';
+import type { Db } from './db/client';
+import type { Mailer } from './mail/mailer';
+
+/** What route handlers are given: the database, settings and outside services. */
+export interface AppDeps {
+  db: Db;
+  config: Config;
+  auth: AuthSettings;
+  mailer: Mailer;
+  log: Logger;
+  /** Runs a query against the database to prove it answers (for /api/health). */
+  ping: () => Promise<void>;
+}

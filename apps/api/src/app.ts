@@ -1,0 +1,105 @@
+import { randomUUID } from 'node:crypto';
+import { existsSync } from 'node:fs';
+import path from 'node:path';
+import cookieParser from 'cookie-parser';
+import express, { type Express } from 'express';
+import helmet from 'helmet';
+import { pinoHttp } from 'pino-http';
+import type { AppDeps } from './app-deps';
+import { bearerAuthenticator } from './auth/access-tokens';
+import { authRoutes } from './auth/auth-routes';
+import { depotsRoutes } from './depots/depots-routes';
+import { outboxRoutes } from './dev/outbox-routes';
+import { apiNotFound, errorHandler } from './http/error-handler';
+import { ApiRoutes, type RegisteredRoute } from './http/route';
+import { newOpenApiRegistry, openApiDocument } from './openapi/document';
+import { usersRoutes } from './users/users-routes';
+import { z } from 'zod';
+
+const REQUEST_ID = /^[\w.-]{1,64}$/;
+
+export interface BuiltApp {
+  app: Express;
+  routes: RegisteredRoute[];
+}
+
+export function createApp(deps: AppDeps): BuiltApp {
+  const app = express();
+  app.disable('x-powered-by');
+  app.set('trust proxy', 'loopback');
+  app.use(
+    helmet({
+      contentSecurityPolicy: {
+        directives: {
+          'default-src': ["'self'"],
+          'style-src': ["'self'", "'unsafe-inline'"],
+          'img-src': ["'self'", 'data:'],
+          'font-src': ["'self'", 'data:'],
+          'connect-src': ["'self'"],
+          // Plain http on loopback in development: asking browsers to upgrade would break it.
+          'upgrade-insecure-requests': deps.config.PUBLIC_URL?.startsWith('https:') ? [] : null,
+        },
+      },
+      strictTransportSecurity: deps.config.PUBLIC_URL?.startsWith('https:') ?? false,
+    }),
+  );
+  app.use(
+    pinoHttp({
+      logger: deps.log,
+      genReqId: (req, res) => {
+        const incoming = req.headers['x-request-id'];
+        const id = typeof incoming === 'string' && REQUEST_ID.test(incoming) ? incoming : randomUUID();
+        res.setHeader('X-Request-Id', id);
+        return id;
+      },
+      autoLogging: { ignore: (req) => req.url === '/api/health' },
+      serializers: {
+        req: (req) => ({ id: req.id, method: req.method, url: req.url }),
+        res: (res) => ({ statusCode: res.statusCode }),
+      },
+    }),
+  );
+
+  const router = express.Router();
+  router.use(express.json({ limit: '1mb', strict: true }));
+  router.use(cookieParser());
+  const openapi = newOpenApiRegistry();
+  const api = new ApiRoutes(router, openapi, bearerAuthenticator(deps.db, deps.config.JWT_SECRET));
+
+  api.add(
+    { method: 'get', path: '/health', summary: 'Answers 200 when the API and its database work', tag: 'system',
+      access: 'public', response: z.object({ status: z.literal('ok') }) },
+    async ({ res }) => {
+      try {
+        await deps.ping();
+      } catch {
+        res.status(503).json({ error: { code: 'internal', message: 'The database does not answer' } });
+        return;
+      }
+      return { status: 'ok' as const };
+    },
+  );
+  authRoutes(api, deps);
+  usersRoutes(api, deps);
+  depotsRoutes(api, deps);
+  outboxRoutes(api, deps);
+
+  const document = openApiDocument(openapi);
+  router.get('/openapi.json', (_req, res) => {
+    res.json(document);
+  });
+  router.use(apiNotFound);
+  app.use('/api', router);
+
+  const webDist = deps.config.WEB_DIST;
+  if (webDist && existsSync(path.join(webDist, 'index.html'))) {
+    app.use(express.static(webDist, { index: false, maxAge: '1h' }));
+    // Every other path is a client route: the app decides what to show.
+    app.get('/{*splat}', (_req, res) => {
+      res.setHeader('Cache-Control', 'no-cache');
+      res.sendFile(path.join(webDist, 'index.html'));
+    });
+  }
+  app.use(errorHandler);
+  return { app, routes: api.registered };
+}

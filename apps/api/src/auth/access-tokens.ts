@@ -1,0 +1,66 @@
+import jwt from 'jsonwebtoken';
+import { ExtractJwt, Strategy as JwtStrategy } from 'passport-jwt';
+import passport from 'passport';
+import type { NextFunction, Request, Response } from 'express';
+import { and, eq } from 'drizzle-orm';
+import type { Db } from '../db/client';
+import { users } from '../db/schema';
+import { DomainError } from '../http/errors';
+import type { AuthUser } from './auth-user';
+
+const ISSUER = 'nightyard';
+const AUDIENCE = 'nightyard-api';
+
+export function signAccessToken(secret: string, seconds: number, user: { id: string; organisationId: string }): string {
+  return jwt.sign({ org: user.organisationId }, secret, {
+    subject: user.id,
+    expiresIn: seconds,
+    issuer: ISSUER,
+    audience: AUDIENCE,
+    algorithm: 'HS256',
+  });
+}
+
+/**
+ * Express middleware that accepts a Bearer access token. The user is re-read on every request so
+ * a deactivation or a change of roles takes effect at once, not when the token expires.
+ */
+export function bearerAuthenticator(db: Db, secret: string) {
+  const strategy = new JwtStrategy(
+    {
+      jwtFromRequest: ExtractJwt.fromAuthHeaderAsBearerToken(),
+      secretOrKey: secret,
+      issuer: ISSUER,
+      audience: AUDIENCE,
+      algorithms: ['HS256'],
+    },
+    (payload: { sub?: string; org?: string }, done: (err: unknown, user?: AuthUser | false) => void) => {
+      if (!payload.sub || !payload.org) return done(null, false);
+      db.select({
+        id: users.id, organisationId: users.organisationId, email: users.email, name: users.name, roles: users.roles,
+      })
+        .from(users)
+        .where(and(eq(users.id, payload.sub), eq(users.organisationId, payload.org), eq(users.status, 'active')))
+        .then(([row]) => done(null, row ?? false), (err) => done(err));
+    },
+  );
+  const instance = new passport.Passport();
+  instance.use('jwt', strategy);
+
+  return (req: Request, res: Response, next: NextFunction) => {
+    instance.authenticate('jwt', { session: false }, (err: unknown, user: AuthUser | false, info?: Error) => {
+      if (err) return next(err);
+      if (!user) {
+        const message =
+          info?.name === 'TokenExpiredError'
+            ? 'Your session token has expired: refresh it or sign in again'
+            : info?.message === 'No auth token'
+              ? 'Sign in first: send an access token as "Authorization: Bearer ..."'
+              : 'The access token is not valid: sign in again';
+        return next(new DomainError('unauthenticated', message, undefined, { 'WWW-Authenticate': 'Bearer' }));
+      }
+      req.user = user;
+      next();
+    })(req, res, next);
+  };
+}

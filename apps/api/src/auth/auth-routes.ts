@@ -1,0 +1,74 @@
+import type { Request, Response } from 'express';
+import { z } from 'zod';
+import {
+  ROLES, actionTokenInfoSchema, forgotPasswordRequestSchema, loginRequestSchema, meResponseSchema,
+  setPasswordRequestSchema, tokenResponseSchema,
+} from '@nightyard/contracts';
+import type { AppDeps } from '../app-deps';
+import type { ApiRoutes } from '../http/route';
+import * as auth from './auth-service';
+
+export const REFRESH_COOKIE = 'ny_refresh';
+const COOKIE_PATH = '/api/auth';
+
+function setRefreshCookie(req: Request, res: Response, token: string, expires: Date) {
+  res.cookie(REFRESH_COOKIE, token, { httpOnly: true, sameSite: 'strict', secure: req.secure, path: COOKIE_PATH, expires });
+}
+
+const messageSchema = z.object({ message: z.string() });
+
+export function authRoutes(api: ApiRoutes, { db, auth: settings, mailer }: AppDeps) {
+  api.add(
+    { method: 'post', path: '/auth/login', summary: 'Sign in with e-mail and password', tag: 'auth', access: 'public',
+      body: loginRequestSchema, response: tokenResponseSchema },
+    async ({ body, req, res }) => {
+      const issued = await auth.login(db, settings, body.email, body.password, req.ip ?? 'unknown');
+      setRefreshCookie(req, res, issued.refreshToken, issued.refreshExpiresAt);
+      return issued.response;
+    },
+  );
+
+  api.add(
+    { method: 'post', path: '/auth/refresh', summary: 'Swap the refresh cookie for a new access token', tag: 'auth',
+      access: 'public', response: tokenResponseSchema },
+    async ({ req, res }) => {
+      const issued = await auth.refresh(db, settings, req.cookies?.[REFRESH_COOKIE]);
+      setRefreshCookie(req, res, issued.refreshToken, issued.refreshExpiresAt);
+      return issued.response;
+    },
+  );
+
+  api.add(
+    { method: 'post', path: '/auth/logout', summary: 'Sign out: end this session', tag: 'auth', access: 'public', status: 204 },
+    async ({ req, res }) => {
+      await auth.logout(db, req.cookies?.[REFRESH_COOKIE]);
+      res.clearCookie(REFRESH_COOKIE, { path: COOKIE_PATH });
+    },
+  );
+
+  api.add(
+    { method: 'get', path: '/auth/me', summary: 'The signed-in user', tag: 'auth', access: ROLES, response: meResponseSchema },
+    async ({ user }) => ({ user: await auth.me(db, user.id) }),
+  );
+
+  api.add(
+    { method: 'post', path: '/auth/forgot', summary: 'Send a password reset link if the account exists', tag: 'auth',
+      access: 'public', body: forgotPasswordRequestSchema, response: messageSchema, status: 202 },
+    async ({ body }) => {
+      await auth.forgotPassword(db, settings, mailer, body.email);
+      return { message: 'If an account exists for that address, a link to reset the password is on its way.' };
+    },
+  );
+
+  api.add(
+    { method: 'get', path: '/auth/action-tokens/:token', summary: 'Who an invitation or reset link is for', tag: 'auth',
+      access: 'public', params: z.strictObject({ token: z.string().min(20).max(200) }), response: actionTokenInfoSchema },
+    async ({ params }) => auth.actionTokenInfo(db, params.token),
+  );
+
+  api.add(
+    { method: 'post', path: '/auth/set-password', summary: 'Choose a password from an invitation or reset link',
+      tag: 'auth', access: 'public', body: setPasswordRequestSchema, status: 204 },
+    async ({ body }) => auth.setPassword(db, body.token, body.password),
+  );
+}

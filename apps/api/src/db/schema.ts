@@ -1,0 +1,187 @@
+import { sql } from 'drizzle-orm';
+import {
+  boolean, date, doublePrecision, index, integer, jsonb, pgEnum, pgTable, text, timestamp,
+  uniqueIndex, uuid,
+} from 'drizzle-orm/pg-core';
+import type { Role } from '@nightyard/contracts';
+
+const id = () => uuid('id').primaryKey().default(sql`gen_random_uuid()`);
+const createdAt = () => timestamp('created_at', { withTimezone: true }).notNull().defaultNow();
+const orgRef = () =>
+  uuid('organisation_id').notNull().references(() => organisations.id, { onDelete: 'cascade' });
+
+export const organisations = pgTable('organisations', {
+  id: id(),
+  name: text('name').notNull(),
+  createdAt: createdAt(),
+});
+
+export const userStatus = pgEnum('user_status', ['active', 'invited', 'deactivated']);
+
+export const users = pgTable(
+  'users',
+  {
+    id: id(),
+    organisationId: orgRef(),
+    email: text('email').notNull(),
+    name: text('name').notNull(),
+    passwordHash: text('password_hash'),
+    roles: text('roles').array().$type<Role[]>().notNull(),
+    status: userStatus('status').notNull().default('invited'),
+    createdAt: createdAt(),
+    lastSignInAt: timestamp('last_sign_in_at', { withTimezone: true }),
+  },
+  (t) => [uniqueIndex('users_email_key').on(t.email), index('users_org_idx').on(t.organisationId)],
+);
+
+/** Refresh tokens rotate: each use replaces the token; a reused old token revokes its family. */
+export const refreshTokens = pgTable(
+  'refresh_tokens',
+  {
+    id: id(),
+    userId: uuid('user_id').notNull().references(() => users.id, { onDelete: 'cascade' }),
+    familyId: uuid('family_id').notNull(),
+    tokenHash: text('token_hash').notNull(),
+    expiresAt: timestamp('expires_at', { withTimezone: true }).notNull(),
+    usedAt: timestamp('used_at', { withTimezone: true }),
+    revokedAt: timestamp('revoked_at', { withTimezone: true }),
+    createdAt: createdAt(),
+  },
+  (t) => [uniqueIndex('refresh_tokens_hash_key').on(t.tokenHash), index('refresh_tokens_family_idx').on(t.familyId)],
+);
+
+export const actionTokenPurpose = pgEnum('action_token_purpose', ['invite', 'reset']);
+
+/** Single-use links sent by e-mail: invitations and password resets. Only the hash is stored. */
+export const actionTokens = pgTable(
+  'action_tokens',
+  {
+    id: id(),
+    userId: uuid('user_id').notNull().references(() => users.id, { onDelete: 'cascade' }),
+    purpose: actionTokenPurpose('purpose').notNull(),
+    tokenHash: text('token_hash').notNull(),
+    expiresAt: timestamp('expires_at', { withTimezone: true }).notNull(),
+    usedAt: timestamp('used_at', { withTimezone: true }),
+    createdAt: createdAt(),
+  },
+  (t) => [uniqueIndex('action_tokens_hash_key').on(t.tokenHash)],
+);
+
+export const loginAttempts = pgTable(
+  'login_attempts',
+  {
+    id: id(),
+    email: text('email').notNull(),
+    ip: text('ip').notNull(),
+    succeeded: boolean('succeeded').notNull(),
+    at: createdAt(),
+  },
+  (t) => [index('login_attempts_email_idx').on(t.email, t.at), index('login_attempts_ip_idx').on(t.ip, t.at)],
+);
+
+export const depots = pgTable(
+  'depots',
+  {
+    id: id(),
+    organisationId: orgRef(),
+    name: text('name').notNull(),
+    timezone: text('timezone').notNull(),
+    serviceLimitKw: doublePrecision('service_limit_kw').notNull(),
+    /** 24 values, kW by local hour; a flat load repeats one value. */
+    otherLoadKw: jsonb('other_load_kw').$type<number[]>().notNull(),
+    billingStartDay: integer('billing_start_day').notNull().default(1),
+    createdAt: createdAt(),
+  },
+  (t) => [index('depots_org_idx').on(t.organisationId)],
+);
+
+export const powerCabinets = pgTable('power_cabinets', {
+  id: id(),
+  organisationId: orgRef(),
+  depotId: uuid('depot_id').notNull().references(() => depots.id, { onDelete: 'cascade' }),
+  label: text('label').notNull(),
+  limitKw: doublePrecision('limit_kw').notNull(),
+  createdAt: createdAt(),
+});
+
+export const chargerStatus = pgEnum('charger_status', ['in_service', 'out_of_service']);
+
+export const chargers = pgTable(
+  'chargers',
+  {
+    id: id(),
+    organisationId: orgRef(),
+    depotId: uuid('depot_id').notNull().references(() => depots.id, { onDelete: 'cascade' }),
+    cabinetId: uuid('cabinet_id').references(() => powerCabinets.id, { onDelete: 'set null' }),
+    label: text('label').notNull(),
+    maxKw: doublePrecision('max_kw').notNull(),
+    connector: text('connector').notNull(),
+    status: chargerStatus('status').notNull().default('in_service'),
+    statusReason: text('status_reason'),
+    statusSince: timestamp('status_since', { withTimezone: true }),
+    createdAt: createdAt(),
+  },
+  (t) => [uniqueIndex('chargers_depot_label_key').on(t.depotId, t.label)],
+);
+
+export const busStatus = pgEnum('bus_status', ['active', 'out_of_service', 'retired']);
+
+export const buses = pgTable(
+  'buses',
+  {
+    id: id(),
+    organisationId: orgRef(),
+    depotId: uuid('depot_id').notNull().references(() => depots.id, { onDelete: 'cascade' }),
+    number: text('number').notNull(),
+    usableKwh: doublePrecision('usable_kwh').notNull(),
+    maxChargeKw: doublePrecision('max_charge_kw').notNull(),
+    connector: text('connector').notNull(),
+    kwhPerMile: doublePrecision('kwh_per_mile').notNull(),
+    ceilingPct: doublePrecision('ceiling_pct').notNull().default(90),
+    reservePct: doublePrecision('reserve_pct').notNull().default(15),
+    taperStartPct: doublePrecision('taper_start_pct'),
+    status: busStatus('status').notNull().default('active'),
+    createdAt: createdAt(),
+  },
+  (t) => [uniqueIndex('buses_depot_number_key').on(t.depotId, t.number)],
+);
+
+/** A rate plan's tariff document (seasons, time-of-use periods, charges), validated by zod. */
+export const ratePlans = pgTable('rate_plans', {
+  id: id(),
+  organisationId: orgRef(),
+  name: text('name').notNull(),
+  currency: text('currency').notNull(),
+  definition: jsonb('definition').$type<Record<string, unknown>>().notNull(),
+  createdAt: createdAt(),
+});
+
+export const depotRatePlans = pgTable(
+  'depot_rate_plans',
+  {
+    id: id(),
+    organisationId: orgRef(),
+    depotId: uuid('depot_id').notNull().references(() => depots.id, { onDelete: 'cascade' }),
+    ratePlanId: uuid('rate_plan_id').notNull().references(() => ratePlans.id, { onDelete: 'restrict' }),
+    effectiveFrom: date('effective_from').notNull(),
+  },
+  (t) => [uniqueIndex('depot_rate_plans_key').on(t.depotId, t.effectiveFrom)],
+);
+
+/** One run of a bus on a service day: it leaves the depot at pull-out and returns at pull-in. */
+export const runs = pgTable(
+  'runs',
+  {
+    id: id(),
+    organisationId: orgRef(),
+    depotId: uuid('depot_id').notNull().references(() => depots.id, { onDelete: 'cascade' }),
+    busId: uuid('bus_id').notNull().references(() => buses.id, { onDelete: 'cascade' }),
+    serviceDate: date('service_date').notNull(),
+    pullOut: timestamp('pull_out', { withTimezone: true }).notNull(),
+    pullIn: timestamp('pull_in', { withTimezone: true }).notNull(),
+    miles: doublePrecision('miles'),
+    kwh: doublePrecision('kwh'),
+    createdAt: createdAt(),
+  },
+  (t) => [index('runs_depot_date_idx').on(t.depotId, t.serviceDate), index('runs_bus_idx').on(t.busId)],
+);

@@ -1,0 +1,76 @@
+import { and, asc, desc, eq, gte, lte, sql } from 'drizzle-orm';
+import { DateTime } from 'luxon';
+import type { DepotSummary } from '@nightyard/contracts';
+import type { Db } from '../db/client';
+import { buses, chargers, depotRatePlans, depots, ratePlans, runs } from '../db/schema';
+import type { AuthUser } from '../auth/auth-user';
+
+/** Each depot of the caller's organisation with counts and the next service day's pull-outs. */
+export async function listDepotSummaries(db: Db, caller: AuthUser, now = new Date()): Promise<DepotSummary[]> {
+  const rows = await db.select().from(depots).where(eq(depots.organisationId, caller.organisationId)).orderBy(asc(depots.name));
+  return Promise.all(rows.map((d) => summarise(db, d, now)));
+}
+
+async function summarise(db: Db, d: typeof depots.$inferSelect, now: Date): Promise<DepotSummary> {
+  const today = DateTime.fromJSDate(now, { zone: d.timezone }).toISODate()!;
+  const [counts] = await db
+    .select({
+      chargers: sql<number>`(select count(*)::int from ${chargers} where ${chargers.depotId} = ${d.id})`,
+      inService: sql<number>`(select count(*)::int from ${chargers} where ${chargers.depotId} = ${d.id} and ${chargers.status} = 'in_service')`,
+      buses: sql<number>`(select count(*)::int from ${buses} where ${buses.depotId} = ${d.id} and ${buses.status} <> 'retired')`,
+    })
+    .from(depots)
+    .where(eq(depots.id, d.id));
+  const [plan] = await db
+    .select({ name: ratePlans.name })
+    .from(depotRatePlans)
+    .innerJoin(ratePlans, eq(ratePlans.id, depotRatePlans.ratePlanId))
+    .where(and(eq(depotRatePlans.depotId, d.id), lte(depotRatePlans.effectiveFrom, today)))
+    .orderBy(desc(depotRatePlans.effectiveFrom))
+    .limit(1);
+  // The next service day is the first one after today that has runs: tonight's charging serves it.
+  const [next] = await db
+    .select({ date: runs.serviceDate })
+    .from(runs)
+    .where(and(eq(runs.depotId, d.id), gte(runs.serviceDate, DateTime.fromISO(today).plus({ days: 1 }).toISODate()!)))
+    .orderBy(asc(runs.serviceDate))
+    .limit(1);
+  let nextServiceDay: DepotSummary['nextServiceDay'] = null;
+  if (next) {
+    const local = (t: Date | null) => (t ? DateTime.fromJSDate(t, { zone: d.timezone }).toFormat('HH:mm') : null);
+    const [day] = await db
+      .select({
+        first: sql<Date | null>`min(${runs.pullOut})`.mapWith((v) => (v ? new Date(v) : null)),
+        buses: sql<number>`count(distinct ${runs.busId})::int`,
+      })
+      .from(runs)
+      .where(and(eq(runs.depotId, d.id), eq(runs.serviceDate, next.date)));
+    // Only the first run of each bus leaves from the night's charging.
+    const [lastFirst] = await db.execute<{ last: Date | null }>(sql`
+      select max(first_out) as last from (
+        select min(${runs.pullOut}) as first_out from ${runs}
+        where ${runs.depotId} = ${d.id} and ${runs.serviceDate} = ${next.date} group by ${runs.busId}) f`).then((r) => r.rows);
+    const [todayIn] = await db
+      .select({ last: sql<Date | null>`max(${runs.pullIn})`.mapWith((v) => (v ? new Date(v) : null)) })
+      .from(runs)
+      .where(and(eq(runs.depotId, d.id), eq(runs.serviceDate, today)));
+    nextServiceDay = {
+      date: next.date,
+      firstPullOut: local(day?.first ?? null),
+      lastPullOut: local(lastFirst?.last ? new Date(lastFirst.last) : null),
+      busesOut: day?.buses ?? 0,
+      lastPullInToday: local(todayIn?.last ?? null),
+    };
+  }
+  return {
+    id: d.id,
+    name: d.name,
+    timezone: d.timezone,
+    serviceLimitKw: d.serviceLimitKw,
+    chargerCount: counts?.chargers ?? 0,
+    chargersInService: counts?.inService ?? 0,
+    busCount: counts?.buses ?? 0,
+    ratePlanName: plan?.name ?? null,
+    nextServiceDay,
+  };
+}

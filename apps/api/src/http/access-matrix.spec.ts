@@ -1,0 +1,72 @@
+import { beforeAll, describe, expect, it } from 'vitest';
+import { ROLES, type Role } from '@nightyard/contracts';
+import { createOrganisation, createTestApp, type TestUser } from '../testing/test-app';
+
+const app = createTestApp();
+
+/**
+ * Who may call what, written out by hand from the product brief, so that a route whose declared
+ * roles drift from it fails here. Every registered route must appear.
+ */
+const EXPECTED: Record<string, 'public' | readonly Role[]> = {
+  'GET /health': 'public',
+  'POST /auth/login': 'public',
+  'POST /auth/refresh': 'public',
+  'POST /auth/logout': 'public',
+  'GET /auth/me': ROLES,
+  'POST /auth/forgot': 'public',
+  'GET /auth/action-tokens/:token': 'public',
+  'POST /auth/set-password': 'public',
+  'GET /users': ['admin'],
+  'POST /users/invite': ['admin'],
+  'PATCH /users/:id': ['admin'],
+  'GET /depots': ROLES,
+  'GET /dev/outbox': ['admin'],
+};
+
+const samplePath = (p: string) =>
+  p.replace(':id', '00000000-0000-4000-8000-000000000000').replace(':token', 'x'.repeat(43));
+
+let people: Record<Role, TestUser>;
+beforeAll(async () => {
+  const org = await createOrganisation(app, Object.fromEntries(ROLES.map((r) => [r, [r]])) as Record<Role, Role[]>);
+  people = org.users as Record<Role, TestUser>;
+});
+
+describe('access matrix', () => {
+  it('lists every registered route', () => {
+    const registered = app.routes.map((r) => `${r.method.toUpperCase()} ${r.path}`).sort();
+    expect(registered).toEqual(Object.keys(EXPECTED).sort());
+    for (const r of app.routes) {
+      const expected = EXPECTED[`${r.method.toUpperCase()} ${r.path}`];
+      expect(r.access === 'public' ? 'public' : [...r.access].sort(), r.path).toEqual(
+        expected === 'public' ? 'public' : [...expected!].sort(),
+      );
+    }
+  });
+
+  const protectedRoutes = Object.entries(EXPECTED).filter(([, access]) => access !== 'public');
+
+  it.each(protectedRoutes)('%s needs a signed-in caller', async (route) => {
+    const [method, path] = route.split(' ') as [string, string];
+    const res = await app.request()[method.toLowerCase() as 'get'](`/api${samplePath(path)}`).send({});
+    expect(res.status).toBe(401);
+    expect(res.body.error.code).toBe('unauthenticated');
+  });
+
+  for (const role of ROLES) {
+    it.each(protectedRoutes)(`%s as ${role}`, async (route, access) => {
+      const [method, path] = route.split(' ') as [string, string];
+      const res = await app.request()[method.toLowerCase() as 'get'](`/api${samplePath(path)}`)
+        .set('Authorization', `Bearer ${people[role].token}`)
+        .send({});
+      if ((access as readonly Role[]).includes(role)) {
+        // Allowed: whatever the outcome of this empty request, it is not a refusal of the role.
+        expect([401, 403]).not.toContain(res.status);
+      } else {
+        expect(res.status).toBe(403);
+        expect(res.body.error).toEqual({ code: 'forbidden', message: 'Your role does not allow this' });
+      }
+    });
+  }
+});

@@ -1,0 +1,116 @@
+import type { OpenAPIRegistry } from '@asteasolutions/zod-to-openapi';
+import type { NextFunction, Request, Response, Router } from 'express';
+import { z, type ZodObject, type ZodType } from 'zod';
+import { errorBodySchema, hasAnyRole, type Role } from '@nightyard/contracts';
+import { forbidden, unauthenticated } from './errors';
+import { parseOrThrow } from './validate';
+import type { AuthUser } from '../auth/auth-user';
+
+type Method = 'get' | 'post' | 'patch' | 'put' | 'delete';
+
+/** `public` routes need no sign-in; every other route names the roles that may call it. */
+export type Access = 'public' | readonly Role[];
+
+export interface RouteSpec<B extends ZodType, Q extends ZodType, P extends ZodType, R extends ZodType> {
+  method: Method;
+  /** Express-style path below /api, e.g. `/users/:id`. */
+  path: string;
+  summary: string;
+  tag: string;
+  access: Access;
+  body?: B;
+  query?: Q;
+  params?: P;
+  response?: R;
+  /** Success status; 204 sends no body. */
+  status?: number;
+}
+
+export interface RouteContext<B, Q, P> {
+  body: B;
+  query: Q;
+  params: P;
+  /** The signed-in caller; always set on routes that are not public. */
+  user: AuthUser;
+  req: Request;
+  res: Response;
+}
+
+export interface RegisteredRoute {
+  method: Method;
+  path: string;
+  access: Access;
+  summary: string;
+}
+
+type Out<T> = T extends ZodType ? z.output<T> : undefined;
+
+/**
+ * Registers routes on an Express router, each with its zod schemas and roles, and describes
+ * them in the OpenAPI registry from the same schemas. Handlers receive parsed input only.
+ */
+export class ApiRoutes {
+  readonly registered: RegisteredRoute[] = [];
+
+  constructor(
+    private readonly router: Router,
+    private readonly openapi: OpenAPIRegistry,
+    private readonly authenticate: (req: Request, res: Response, next: NextFunction) => void,
+  ) {}
+
+  add<B extends ZodType = never, Q extends ZodType = never, P extends ZodType = never, R extends ZodType = never>(
+    spec: RouteSpec<B, Q, P, R>,
+    handler: (ctx: RouteContext<Out<B>, Out<Q>, Out<P>>) => Promise<Out<R> | void> | Out<R> | void,
+  ): void {
+    const status = spec.status ?? 200;
+    const run = async (req: Request, res: Response) => {
+      const user = req.user as AuthUser | undefined;
+      if (spec.access !== 'public') {
+        if (!user) throw unauthenticated();
+        if (!hasAnyRole(user.roles, spec.access)) throw forbidden();
+      }
+      const params = (spec.params ? parseOrThrow(spec.params, req.params, 'params') : undefined) as Out<P>;
+      const query = (spec.query ? parseOrThrow(spec.query, req.query ?? {}, 'query') : undefined) as Out<Q>;
+      const body = (spec.body ? parseOrThrow(spec.body, req.body ?? {}, 'body') : undefined) as Out<B>;
+      const result = await handler({ body, query, params, user: user as AuthUser, req, res });
+      if (res.headersSent) return;
+      if (status === 204) res.status(204).end();
+      else res.status(status).json(spec.response ? spec.response.parse(result) : result);
+    };
+    const chain = spec.access === 'public' ? [run] : [this.authenticate, run];
+    this.router[spec.method](spec.path, ...chain);
+    this.registered.push({ method: spec.method, path: spec.path, access: spec.access, summary: spec.summary });
+    this.describe(spec, status);
+  }
+
+  private describe(spec: RouteSpec<ZodType, ZodType, ZodType, ZodType>, status: number): void {
+    const openapiPath = '/api' + spec.path.replace(/:(\w+)/g, '{$1}');
+    const errorContent = { 'application/json': { schema: errorBodySchema } };
+    this.openapi.registerPath({
+      method: spec.method,
+      path: openapiPath,
+      summary: spec.summary,
+      tags: [spec.tag],
+      description:
+        spec.access === 'public' ? 'No sign-in needed.' : `Roles allowed: ${spec.access.join(', ')}.`,
+      security: spec.access === 'public' ? [] : [{ bearerAuth: [] }],
+      request: {
+        params: spec.params as ZodObject | undefined,
+        query: spec.query as ZodObject | undefined,
+        body: spec.body ? { content: { 'application/json': { schema: spec.body } } } : undefined,
+      },
+      responses: {
+        [status]: spec.response
+          ? { description: 'Success', content: { 'application/json': { schema: spec.response } } }
+          : { description: 'Success' },
+        400: { description: 'The input is not valid; `fields` says what to fix', content: errorContent },
+        ...(spec.access === 'public'
+          ? {}
+          : {
+              401: { description: 'Not signed in, or the token expired', content: errorContent },
+              403: { description: 'The caller\'s roles do not allow this', content: errorContent },
+            }),
+      },
+    });
+  }
+}

@@ -1,0 +1,71 @@
+import path from 'node:path';
+import { pino } from 'pino';
+import { sql } from 'drizzle-orm';
+import { createApp } from './app';
+import { loadConfig } from './config';
+import { createDb, createPool } from './db/client';
+import { applyMigrations } from './db/migrate';
+import { smtpMailer } from './mail/mailer';
+import { isEmpty, seedDemo } from '../../../tools/demo/seed';
+import { DEMO_PASSWORD, demoUsers } from '../../../tools/demo/demo-depot';
+
+const config = loadConfig();
+const log = pino({ level: config.LOG_LEVEL, base: { service: 'nightyard-api' } });
+// Paths come from the environment or the working directory, never from this file's location,
+// so the same code runs from source (tsx) and from the bundle in dist/.
+const migrationsDir = config.MIGRATIONS_DIR ?? path.resolve('drizzle');
+const webDist = config.WEB_DIST ?? path.resolve('dist/web/browser');
+const publicBase = config.PUBLIC_URL ?? `http://localhost:${config.PORT}`;
+
+const pool = createPool(config.DATABASE_URL);
+const db = createDb(pool);
+
+await applyMigrations(db, migrationsDir);
+log.info({ migrationsDir }, 'migrations applied');
+if (config.SEED_DEMO === 'if-empty' && (await isEmpty(db))) {
+  await seedDemo(db);
+  log.info('demo data seeded');
+}
+
+const { app } = createApp({
+  db,
+  config: { ...config, WEB_DIST: webDist },
+  log,
+  mailer: smtpMailer({ host: config.SMTP_HOST, port: config.SMTP_PORT, from: config.MAIL_FROM }, log),
+  ping: async () => {
+    await db.execute(sql`select 1`);
+  },
+  auth: {
+    jwtSecret: config.JWT_SECRET,
+    accessTokenSeconds: config.ACCESS_TOKEN_SECONDS,
+    refreshTokenDays: config.REFRESH_TOKEN_DAYS,
+    resetMinutes: config.RESET_MINUTES,
+    throttle: {
+      perAccount: config.LOGIN_MAX_FAILURES_PER_ACCOUNT,
+      perAddress: config.LOGIN_MAX_FAILURES_PER_ADDRESS,
+      windowMinutes: config.LOGIN_WINDOW_MINUTES,
+    },
+    publicUrl: (p) => new URL(p, publicBase).toString(),
+  },
+});
+
+const server = app.listen(config.PORT, '127.0.0.1', () => {
+  const lines = [
+    '',
+    `Nightyard is running at ${publicBase}`,
+    '',
+    `Demo sign-ins (password: ${DEMO_PASSWORD}):`,
+    ...demoUsers.map((u) => `  ${u.email.padEnd(36)} ${u.roles.join(' + ')}`),
+    '',
+  ];
+  if (config.NODE_ENV !== 'test') console.log(lines.join('\n'));
+  log.info({ port: config.PORT }, 'listening');
+});
+
+const shutdown = (signal: string) => {
+  log.info({ signal }, 'shutting down');
+  server.close(() => pool.end().then(() => process.exit(0)));
+  setTimeout(() => process.exit(0), 5000).unref();
+};
+process.on('SIGTERM', () => shutdown('SIGTERM'));
+process.on('SIGINT', () => shutdown('SIGINT'));

@@ -1,0 +1,79 @@
+import { randomUUID } from 'node:crypto';
+import { pino } from 'pino';
+import { sql } from 'drizzle-orm';
+import supertest from 'supertest';
+import { afterAll } from 'vitest';
+import type { Role } from '@nightyard/contracts';
+import type { AppDeps } from '../app-deps';
+import { createApp } from '../app';
+import { loadConfig } from '../config';
+import { createDb, createPool, type Db } from '../db/client';
+import { organisations, users } from '../db/schema';
+import { hashPassword } from '../auth/secrets';
+import { smtpMailer } from '../mail/mailer';
+import { TEST_DATABASE_URL, TEST_FAKE_MAIL_URL, TEST_SMTP_PORT } from './test-env';
+
+export const TEST_PASSWORD = 'correct-horse-battery';
+let passwordHash: Promise<string> | undefined;
+
+/** An app wired to the real test database and the fake mail server, closed after the file. */
+export function createTestApp(overrides: Partial<AppDeps> = {}) {
+  const pool = createPool(TEST_DATABASE_URL);
+  const db = createDb(pool);
+  afterAll(() => pool.end());
+  const config = loadConfig({
+    NODE_ENV: 'test', DATABASE_URL: TEST_DATABASE_URL, SMTP_PORT: String(TEST_SMTP_PORT), FAKE_MAIL_URL: TEST_FAKE_MAIL_URL,
+  });
+  const log = pino({ level: 'silent' });
+  const deps: AppDeps = {
+    db,
+    config,
+    log,
+    mailer: smtpMailer({ host: '127.0.0.1', port: TEST_SMTP_PORT, from: 'Nightyard <test@nightyard.example>' }, log),
+    ping: async () => {
+      await db.execute(sql`select 1`);
+    },
+    auth: {
+      jwtSecret: config.JWT_SECRET,
+      accessTokenSeconds: 900,
+      refreshTokenDays: 14,
+      resetMinutes: 60,
+      throttle: { perAccount: 5, perAddress: 20, windowMinutes: 15 },
+      publicUrl: (p) => new URL(p, 'http://nightyard.test').toString(),
+    },
+    ...overrides,
+  };
+  const built = createApp(deps);
+  return { ...built, db, deps, request: () => supertest(built.app) };
+}
+
+export interface TestUser {
+  id: string;
+  email: string;
+  roles: Role[];
+  token: string;
+}
+
+/** A fresh organisation with one active user per role set given; every e-mail is unique. */
+export async function createOrganisation(
+  app: ReturnType<typeof createTestApp>,
+  people: Record<string, Role[]>,
+): Promise<{ organisationId: string; users: Record<string, TestUser> }> {
+  passwordHash ??= hashPassword(TEST_PASSWORD);
+  const hash = await passwordHash;
+  const tag = randomUUID().slice(0, 8);
+  const [org] = await app.db.insert(organisations).values({ name: `Test district ${tag}` }).returning();
+  const out: Record<string, TestUser> = {};
+  for (const [key, roles] of Object.entries(people)) {
+    const email = `${key}-${tag}@test.nightyard.example`;
+    const [u] = await app.db
+      .insert(users)
+      .values({ organisationId: org!.id, email, name: `${key} ${tag}`, roles, passwordHash: hash, status: 'active' })
+      .returning();
+    const res = await app.request().post('/api/auth/login').send({ email, password: TEST_PASSWORD }).expect(200);
+    out[key] = { id: u!.id, email, roles, token: res.body.accessToken };
+  }
+  return { organisationId: org!.id, users: out };
+}
+
+export type { Db };

@@ -1,0 +1,26 @@
+import { z } from 'zod';
+import { inviteUserRequestSchema, updateUserRequestSchema, userIdParamsSchema, userListSchema, userSchema } from '@nightyard/contracts';
+import type { AppDeps } from '../app-deps';
+import type { ApiRoutes } from '../http/route';
+import { inviteUser, listUsers, updateUser } from './users-service';
+
+export function usersRoutes(api: ApiRoutes, { db, mailer, config, auth }: AppDeps) {
+  const invite = { inviteHours: config.INVITE_HOURS, publicUrl: auth.publicUrl };
+
+  api.add(
+    { method: 'get', path: '/users', summary: 'People of the organisation', tag: 'people', access: ['admin'], response: userListSchema },
+    async ({ user }) => ({ users: await listUsers(db, user) }),
+  );
+
+  api.add(
+    { method: 'post', path: '/users/invite', summary: 'Invite someone by e-mail', tag: 'people', access: ['admin'],
+      body: inviteUserRequestSchema, response: z.object({ user: userSchema }), status: 201 },
+    async ({ user, body }) => ({ user: await inviteUser(db, mailer, invite, user, body) }),
+  );
+
+  api.add(
+    { method: 'patch', path: '/users/:id', summary: 'Change a person\'s name or roles, deactivate or reactivate', tag: 'people',
+      access: ['admin'], params: userIdParamsSchema, body: updateUserRequestSchema, response: z.object({ user: userSchema }) },
+    async ({ user, params, body }) => ({ user: await updateUser(db, user, params.id, body) }),
+  );
+}

@@ -1,0 +1,97 @@
+import { and, asc, eq, isNull, ne, sql } from 'drizzle-orm';
+import type { InviteUserRequest, UpdateUserRequest, User } from '@nightyard/contracts';
+import type { Db } from '../db/client';
+import { organisations, refreshTokens, users } from '../db/schema';
+import { DomainError, conflict, notFound } from '../http/errors';
+import type { AuthUser } from '../auth/auth-user';
+import { createActionToken } from '../auth/auth-service';
+import type { Mailer } from '../mail/mailer';
+import { invitationMail } from '../mail/templates';
+
+type UserRow = typeof users.$inferSelect;
+
+const toUser = (u: UserRow): User => ({
+  id: u.id,
+  email: u.email,
+  name: u.name,
+  roles: u.roles,
+  status: u.status,
+  createdAt: u.createdAt.toISOString(),
+  lastSignInAt: u.lastSignInAt?.toISOString() ?? null,
+});
+
+export async function listUsers(db: Db, caller: AuthUser): Promise<User[]> {
+  const rows = await db.select().from(users).where(eq(users.organisationId, caller.organisationId)).orderBy(asc(users.name));
+  return rows.map(toUser);
+}
+
+export interface InviteSettings {
+  inviteHours: number;
+  publicUrl: (path: string) => string;
+}
+
+/** Creates an invited account (or re-sends a pending invitation) and e-mails the link. */
+export async function inviteUser(db: Db, mailer: Mailer, s: InviteSettings, caller: AuthUser, req: InviteUserRequest): Promise<User> {
+  const [existing] = await db.select().from(users).where(eq(users.email, req.email));
+  if (existing && (existing.organisationId !== caller.organisationId || existing.status !== 'invited')) {
+    throw new DomainError('conflict', 'Someone already has an account with this e-mail', { email: 'Already in use' });
+  }
+  const user =
+    existing
+      ? (await db.update(users).set({ name: req.name, roles: req.roles }).where(eq(users.id, existing.id)).returning())[0]!
+      : (await db.insert(users).values({ organisationId: caller.organisationId, email: req.email, name: req.name, roles: req.roles, status: 'invited' }).returning())[0]!;
+  const token = await createActionToken(db, user.id, 'invite', s.inviteHours * 3_600_000);
+  const [org] = await db.select({ name: organisations.name }).from(organisations).where(eq(organisations.id, caller.organisationId));
+  await mailer.send(
+    invitationMail({
+      to: user.email, name: user.name, inviter: caller.name, organisation: org?.name ?? '',
+      link: s.publicUrl(`/set-password?token=${token}`), hours: s.inviteHours,
+    }),
+  );
+  return toUser(user);
+}
+
+async function activeAdminsOtherThan(db: Db, organisationId: string, userId: string): Promise<number> {
+  const [row] = await db
+    .select({ n: sql<number>`count(*)::int` })
+    .from(users)
+    .where(
+      and(
+        eq(users.organisationId, organisationId),
+        ne(users.id, userId),
+        eq(users.status, 'active'),
+        sql`'admin' = any(${users.roles})`,
+      ),
+    );
+  return row?.n ?? 0;
+}
+
+export async function updateUser(db: Db, caller: AuthUser, id: string, req: UpdateUserRequest): Promise<User> {
+  return db.transaction(async (tx) => {
+    const [user] = await tx
+      .select()
+      .from(users)
+      .where(and(eq(users.id, id), eq(users.organisationId, caller.organisationId)))
+      .for('update');
+    if (!user) throw notFound('That user');
+    // Serialise admin changes per organisation so two admins cannot remove each other at once.
+    await tx.execute(sql`select pg_advisory_xact_lock(hashtext(${caller.organisationId}))`);
+    const losesAdmin =
+      user.roles.includes('admin') && user.status === 'active' &&
+      ((req.roles && !req.roles.includes('admin')) || req.active === false);
+    if (losesAdmin && (await activeAdminsOtherThan(tx as unknown as Db, caller.organisationId, id)) === 0) {
+      throw conflict('The organisation needs at least one active administrator: give someone else the admin role first');
+    }
+    const status =
+      req.active === undefined ? user.status : req.active ? (user.passwordHash ? 'active' : 'invited') : 'deactivated';
+    const [updated] = await tx
+      .update(users)
+      .set({ name: req.name ?? user.name, roles: req.roles ?? user.roles, status })
+      .where(eq(users.id, id))
+      .returning();
+    if (status === 'deactivated') {
+      await tx.update(refreshTokens).set({ revokedAt: new Date() }).where(and(eq(refreshTokens.userId, id), isNull(refreshTokens.revokedAt)));
+    }
+    return toUser(updated!);
+  });
+}

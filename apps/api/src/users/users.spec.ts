@@ -1,0 +1,116 @@
+import { eq } from 'drizzle-orm';
+import { beforeAll, describe, expect, it } from 'vitest';
+import { actionTokens, users } from '../db/schema';
+import { linkToken, mailFor } from '../testing/mail';
+import { createOrganisation, createTestApp, type TestUser } from '../testing/test-app';
+
+const app = createTestApp();
+let admin: TestUser;
+let organisationId: string;
+
+beforeAll(async () => {
+  const org = await createOrganisation(app, { admin: ['admin'], yard: ['yard'] });
+  admin = org.users.admin!;
+  organisationId = org.organisationId;
+});
+
+const auth = (u: TestUser) => ({ Authorization: `Bearer ${u.token}` });
+const unique = (name: string) => `${name}-${Date.now()}-${Math.random().toString(36).slice(2, 7)}@test.nightyard.example`;
+
+describe('invitations', () => {
+  it('e-mails a link that sets a password, after which the person signs in with their roles', async () => {
+    const email = unique('newhire');
+    const invited = await app.request().post('/api/users/invite').set(auth(admin))
+      .send({ email, name: 'Noor Haddad', roles: ['yard', 'supervisor'] }).expect(201);
+    expect(invited.body.user.status).toBe('invited');
+
+    const [mail] = await mailFor(email);
+    expect(mail!.subject).toMatch(/invited to Nightyard/);
+    const token = linkToken(mail!.text);
+    expect(mail!.text).toContain('http://nightyard.test/set-password?token=');
+
+    const info = await app.request().get(`/api/auth/action-tokens/${token}`).expect(200);
+    expect(info.body).toMatchObject({ email, name: 'Noor Haddad', purpose: 'invite' });
+
+    // An invited account cannot sign in before it has a password.
+    await app.request().post('/api/auth/login').send({ email, password: 'a-fresh-password-1' }).expect(401);
+    await app.request().post('/api/auth/set-password').send({ token, password: 'a-fresh-password-1' }).expect(204);
+    const login = await app.request().post('/api/auth/login').send({ email, password: 'a-fresh-password-1' }).expect(200);
+    expect(login.body.user.roles).toEqual(['yard', 'supervisor']);
+    // The link works once.
+    await app.request().post('/api/auth/set-password').send({ token, password: 'another-password-2' }).expect(404);
+  });
+
+  it('refuses an e-mail that already has an account, and saves nothing', async () => {
+    const before = await app.db.select().from(users).where(eq(users.organisationId, organisationId));
+    const res = await app.request().post('/api/users/invite').set(auth(admin))
+      .send({ email: admin.email, name: 'Someone', roles: ['yard'] }).expect(409);
+    expect(res.body.error.fields).toEqual({ email: 'Already in use' });
+    const after = await app.db.select().from(users).where(eq(users.organisationId, organisationId));
+    expect(after).toHaveLength(before.length);
+  });
+
+  it('an expired link says so and sets nothing', async () => {
+    const email = unique('late');
+    await app.request().post('/api/users/invite').set(auth(admin)).send({ email, name: 'Late', roles: ['finance'] }).expect(201);
+    const token = linkToken((await mailFor(email))[0]!.text);
+    const [u] = await app.db.select().from(users).where(eq(users.email, email));
+    await app.db.update(actionTokens).set({ expiresAt: new Date(Date.now() - 1000) }).where(eq(actionTokens.userId, u!.id));
+    const res = await app.request().post('/api/auth/set-password').send({ token, password: 'a-fresh-password-1' }).expect(410);
+    expect(res.body.error.message).toMatch(/expired/);
+    const [still] = await app.db.select().from(users).where(eq(users.id, u!.id));
+    expect(still!.passwordHash).toBeNull();
+  });
+
+  it('rejects a short password with a field message', async () => {
+    const res = await app.request().post('/api/auth/set-password').send({ token: 'x'.repeat(43), password: 'short' }).expect(400);
+    expect(res.body.error.fields.password).toMatch(/at least 12/);
+  });
+});
+
+describe('roles and deactivation', () => {
+  it('changes roles; the next request sees them', async () => {
+    const { users: p } = await createOrganisation(app, { boss: ['admin'], worker: ['yard'] });
+    await app.request().get('/api/users').set(auth(p.worker!)).expect(403);
+    const res = await app.request().patch(`/api/users/${p.worker!.id}`).set(auth(p.boss!)).send({ roles: ['yard', 'admin'] }).expect(200);
+    expect(res.body.user.roles).toEqual(['yard', 'admin']);
+    await app.request().get('/api/users').set(auth(p.worker!)).expect(200);
+  });
+
+  it('keeps at least one active administrator', async () => {
+    const { users: p } = await createOrganisation(app, { only: ['admin'] });
+    const res = await app.request().patch(`/api/users/${p.only!.id}`).set(auth(p.only!)).send({ active: false }).expect(409);
+    expect(res.body.error.message).toMatch(/at least one active administrator/);
+    await app.request().patch(`/api/users/${p.only!.id}`).set(auth(p.only!)).send({ roles: ['finance'] }).expect(409);
+    const [still] = await app.db.select().from(users).where(eq(users.id, p.only!.id));
+    expect(still!.roles).toEqual(['admin']);
+  });
+
+  it('deactivates and reactivates', async () => {
+    const { users: p } = await createOrganisation(app, { boss: ['admin'], temp: ['finance'] });
+    const off = await app.request().patch(`/api/users/${p.temp!.id}`).set(auth(p.boss!)).send({ active: false }).expect(200);
+    expect(off.body.user.status).toBe('deactivated');
+    await app.request().get('/api/depots').set(auth(p.temp!)).expect(401);
+    const on = await app.request().patch(`/api/users/${p.temp!.id}`).set(auth(p.boss!)).send({ active: true }).expect(200);
+    expect(on.body.user.status).toBe('active');
+    await app.request().get('/api/depots').set(auth(p.temp!)).expect(200);
+  });
+});
+
+describe('forgot password', () => {
+  it('sends a reset link to an existing account and answers the same for an unknown one', async () => {
+    const { users: p } = await createOrganisation(app, { forgetful: ['yard'] });
+    const known = await app.request().post('/api/auth/forgot').send({ email: p.forgetful!.email }).expect(202);
+    const unknownEmail = unique('ghost');
+    const unknown = await app.request().post('/api/auth/forgot').send({ email: unknownEmail }).expect(202);
+    expect(unknown.body).toEqual(known.body);
+    const [mail] = await mailFor(p.forgetful!.email);
+    expect(mail!.subject).toBe('Reset your Nightyard password');
+    const token = linkToken(mail!.text);
+    const info = await app.request().get(`/api/auth/action-tokens/${token}`).expect(200);
+    expect(info.body.purpose).toBe('reset');
+    await app.request().post('/api/auth/set-password').send({ token, password: 'brand-new-password-9' }).expect(204);
+    await app.request().post('/api/auth/login').send({ email: p.forgetful!.email, password: 'brand-new-password-9' }).expect(200);
+    expect(await mailFor(unknownEmail, 1, 300)).toHaveLength(0);
+  });
+});

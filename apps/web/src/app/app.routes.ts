@@ -1,0 +1,61 @@
+import type { Routes } from '@angular/router';
+import { homeRedirectGuard, roleGuard, signedInGuard, signedOutGuard } from './auth/auth-guards';
+
+/** The placeholder sections that later work fills in. Tonight and People have their own pages. */
+const sectionPage = () => import('./sections/section-page').then((m) => m.SectionPage);
+
+export const routes: Routes = [
+  {
+    path: 'sign-in',
+    title: 'Sign in',
+    canActivate: [signedOutGuard],
+    loadComponent: () => import('./auth/sign-in-page').then((m) => m.SignInPage),
+  },
+  {
+    path: 'forgot-password',
+    title: 'Forgot password',
+    loadComponent: () => import('./auth/forgot-password-page').then((m) => m.ForgotPasswordPage),
+  },
+  {
+    path: 'set-password',
+    title: 'Set password',
+    loadComponent: () => import('./auth/set-password-page').then((m) => m.SetPasswordPage),
+  },
+  {
+    path: '',
+    canActivate: [signedInGuard],
+    loadComponent: () => import('./shell/shell').then((m) => m.Shell),
+    children: [
+      { path: '', pathMatch: 'full', canActivate: [homeRedirectGuard], children: [] },
+      {
+        path: 'tonight',
+        title: 'Tonight',
+        data: { section: 'tonight' },
+        canActivate: [roleGuard],
+        loadComponent: () => import('./tonight/tonight-page').then((m) => m.TonightPage),
+      },
+      { path: 'yard', title: 'Yard', data: { section: 'yard' }, canActivate: [roleGuard], loadComponent: sectionPage },
+      { path: 'plans', title: 'Plans', data: { section: 'plans' }, canActivate: [roleGuard], loadComponent: sectionPage },
+      { path: 'fleet', title: 'Fleet', data: { section: 'fleet' }, canActivate: [roleGuard], loadComponent: sectionPage },
+      { path: 'depot', title: 'Depot', data: { section: 'depot' }, canActivate: [roleGuard], loadComponent: sectionPage },
+      { path: 'rates', title: 'Rates', data: { section: 'rates' }, canActivate: [roleGuard], loadComponent: sectionPage },
+      { path: 'costs', title: 'Costs', data: { section: 'costs' }, canActivate: [roleGuard], loadComponent: sectionPage },
+      {
+        path: 'people',
+        data: { section: 'people' },
+        canActivate: [roleGuard],
+        loadChildren: () => import('./people/people.routes').then((m) => m.peopleRoutes),
+      },
+      {
+        path: 'not-available',
+        title: 'Not available for your role',
+        loadComponent: () => import('./not-found/not-available-page').then((m) => m.NotAvailablePage),
+      },
+      {
+        path: '**',
+        title: 'Page not found',
+        loadComponent: () => import('./not-found/not-found-page').then((m) => m.NotFoundPage),
+      },
+    ],
+  },
+];

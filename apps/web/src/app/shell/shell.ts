@@ -1,0 +1,103 @@
+import { BreakpointObserver } from '@angular/cdk/layout';
+import {
+  ChangeDetectionStrategy,
+  Component,
+  DOCUMENT,
+  DestroyRef,
+  computed,
+  inject,
+  linkedSignal,
+} from '@angular/core';
+import { toSignal } from '@angular/core/rxjs-interop';
+import { MatButtonModule } from '@angular/material/button';
+import { MatIconModule } from '@angular/material/icon';
+import { MatListModule } from '@angular/material/list';
+import { MatMenuModule } from '@angular/material/menu';
+import { MatSidenavModule } from '@angular/material/sidenav';
+import { MatToolbarModule } from '@angular/material/toolbar';
+import { NavigationEnd, Router, RouterLink, RouterLinkActive, RouterOutlet } from '@angular/router';
+import { ROLE_LABELS } from '@nightyard/contracts';
+import { filter, map } from 'rxjs';
+import { AuthStore } from '../auth/auth-store';
+import { ThemeStore, type ThemeChoice } from '../core/theme-store';
+import { DepotStore } from '../depots/depot-store';
+
+/** Phones: the navigation becomes a drawer. */
+export const PHONE_QUERY = '(max-width: 600px)';
+
+interface ThemeOption {
+  value: ThemeChoice;
+  label: string;
+  icon: string;
+}
+
+@Component({
+  selector: 'ny-shell',
+  imports: [
+    MatButtonModule,
+    MatIconModule,
+    MatListModule,
+    MatMenuModule,
+    MatSidenavModule,
+    MatToolbarModule,
+    RouterLink,
+    RouterLinkActive,
+    RouterOutlet,
+  ],
+  templateUrl: './shell.html',
+  styleUrl: './shell.scss',
+  changeDetection: ChangeDetectionStrategy.OnPush,
+  host: {
+    '[class.ny-phone]': 'phone()',
+    '[class.ny-yard]': 'yardStaff()',
+  },
+})
+export class Shell {
+  private readonly auth = inject(AuthStore);
+  private readonly depots = inject(DepotStore);
+  private readonly router = inject(Router);
+  private readonly document = inject(DOCUMENT);
+  protected readonly theme = inject(ThemeStore);
+
+  protected readonly phone = toSignal(
+    inject(BreakpointObserver).observe(PHONE_QUERY).pipe(map((r) => r.matches)),
+    { initialValue: false },
+  );
+  /** Open beside the page on a laptop, closed (a drawer) on a phone; reset when the width class changes. */
+  protected readonly navOpen = linkedSignal(() => !this.phone());
+
+  protected readonly user = this.auth.user;
+  protected readonly sections = this.auth.sections;
+  protected readonly roleNames = computed(() => this.auth.roles().map((r) => ROLE_LABELS[r]).join(', '));
+  protected readonly yardStaff = computed(() => this.auth.roles().includes('yard'));
+  protected readonly depot = this.depots.current;
+
+  protected readonly themeOptions: readonly ThemeOption[] = [
+    { value: 'device', label: 'Match device', icon: 'contrast' },
+    { value: 'light', label: 'Light', icon: 'light_mode' },
+    { value: 'dark', label: 'Dark', icon: 'dark_mode' },
+  ];
+
+  constructor() {
+    void this.depots.load();
+
+    // After each in-app navigation: close the drawer on a phone and move focus to the page.
+    const sub = this.router.events
+      .pipe(filter((e): e is NavigationEnd => e instanceof NavigationEnd))
+      .subscribe(() => {
+        if (this.phone()) this.navOpen.set(false);
+        queueMicrotask(() => this.document.getElementById('main')?.focus({ preventScroll: true }));
+      });
+    inject(DestroyRef).onDestroy(() => sub.unsubscribe());
+  }
+
+  protected toggleNav(): void {
+    this.navOpen.update((open) => !open);
+  }
+
+  protected async signOut(): Promise<void> {
+    await this.auth.signOut();
+    this.depots.reset();
+    await this.router.navigate(['/sign-in']);
+  }
+}

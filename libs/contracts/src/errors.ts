@@ -1,0 +1,17 @@
+import { z } from 'zod';
+
+/** Every API error has this body; `fields` maps a field path to what is wrong with it. */
+export const errorBodySchema = z.object({
+  error: z.object({
+    code: z.string(),
+    message: z.string(),
+    fields: z.record(z.string(), z.string()).optional(),
+  }),
+});
+export type ErrorBody = z.infer<typeof errorBodySchema>;
+
+export const ERROR_CODES = [
+  'bad_request', 'validation_failed', 'unauthenticated', 'forbidden', 'not_found', 'conflict',
+  'too_many_requests', 'payload_too_large', 'token_expired', 'internal',
+] as const;
+export type ErrorCode = (typeof ERROR_CODES)[number];

@@ -1,0 +1,6 @@
+export * from './roles';
+export * from './sections';
+export * from './errors';
+export * from './auth';
+export * from './users';
+export * from './depots';

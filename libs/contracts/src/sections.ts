@@ -1,0 +1,58 @@
+import type { Role } from './roles';
+
+/** The product's sections, who may open each, and which role lands where after sign-in. */
+export type SectionKey = 'tonight' | 'yard' | 'plans' | 'fleet' | 'depot' | 'rates' | 'costs' | 'people';
+
+export interface Section {
+  key: SectionKey;
+  label: string;
+  path: string;
+  icon: string;
+  roles: readonly Role[];
+  purpose: string;
+}
+
+export const SECTIONS: readonly Section[] = [
+  { key: 'tonight', label: 'Tonight', path: '/tonight', icon: 'nights_stay',
+    roles: ['admin', 'facilities', 'supervisor', 'yard', 'finance'],
+    purpose: 'The night ahead at a glance: buses due in, chargers, pull-outs in the morning.' },
+  { key: 'yard', label: 'Yard', path: '/yard', icon: 'ev_station',
+    roles: ['yard', 'supervisor', 'admin'],
+    purpose: 'Tonight\'s published plan charger by charger: connect, disconnect, report what differs.' },
+  { key: 'plans', label: 'Plans', path: '/plans', icon: 'event_note',
+    roles: ['supervisor', 'admin', 'facilities', 'finance'],
+    purpose: 'Generate, review, compare and publish the plug-in plan for the night.' },
+  { key: 'fleet', label: 'Fleet', path: '/fleet', icon: 'directions_bus',
+    roles: ['supervisor', 'admin', 'facilities', 'finance'],
+    purpose: 'Buses, their batteries and each service day\'s runs.' },
+  { key: 'depot', label: 'Depot', path: '/depot', icon: 'electrical_services',
+    roles: ['facilities', 'admin', 'supervisor', 'yard', 'finance'],
+    purpose: 'Chargers, power cabinets, the service limit and the depot\'s other load.' },
+  { key: 'rates', label: 'Rates', path: '/rates', icon: 'price_change',
+    roles: ['facilities', 'admin', 'supervisor', 'yard', 'finance'],
+    purpose: 'The utility rate plan: time-of-use prices, demand charges, fixed charges.' },
+  { key: 'costs', label: 'Costs', path: '/costs', icon: 'payments',
+    roles: ['finance', 'admin', 'supervisor', 'facilities'],
+    purpose: 'Projected and actual electricity cost per night and month, against unmanaged charging.' },
+  { key: 'people', label: 'People', path: '/people', icon: 'group',
+    roles: ['admin'],
+    purpose: 'Who may sign in, with which roles; invitations and deactivation.' },
+];
+
+/** Where a role starts its day. A user with several roles lands on the first that matches. */
+const HOME_ORDER: readonly [Role, SectionKey][] = [
+  ['supervisor', 'plans'],
+  ['yard', 'yard'],
+  ['facilities', 'depot'],
+  ['finance', 'costs'],
+  ['admin', 'tonight'],
+];
+
+export function homeSection(roles: readonly Role[]): Section {
+  const key = HOME_ORDER.find(([role]) => roles.includes(role))?.[1] ?? 'tonight';
+  return SECTIONS.find((s) => s.key === key)!;
+}
+
+export function sectionsFor(roles: readonly Role[]): Section[] {
+  return SECTIONS.filter((s) => s.roles.some((r) => roles.includes(r)));
+}

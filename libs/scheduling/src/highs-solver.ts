@@ -1,0 +1,174 @@
+import loadHighs, { type Highs, type Model } from 'highs';
+
+/** A linear program in sparse row form (CSR), minimised. */
+export interface Lp {
+  numCols: number;
+  numRows: number;
+  colCost: Float64Array;
+  colLower: Float64Array;
+  colUpper: Float64Array;
+  rowLower: Float64Array;
+  rowUpper: Float64Array;
+  starts: Int32Array;
+  indices: Int32Array;
+  values: Float64Array;
+  offset?: number;
+  maximize?: boolean;
+}
+
+export type LpStatus = 'optimal' | 'infeasible' | 'unbounded' | 'limit' | 'error';
+
+export interface LpResult {
+  status: LpStatus;
+  /** Objective value; meaningful only when status is optimal. */
+  objective: number;
+  x: Float64Array;
+  rowDual: Float64Array;
+  iterations: number;
+  ms: number;
+}
+
+const INF = Infinity;
+let loading: Promise<Highs> | null = null;
+let loaded: Highs | null = null;
+
+function statusOf(highs: Highs, code: number): LpStatus {
+  const s = highs.constants;
+  void s;
+  if (code === 7) return 'optimal';
+  if (code === 8) return 'infeasible';
+  if (code === 9 || code === 10) return 'unbounded';
+  if (code >= 11 && code <= 17) return 'limit';
+  return 'error';
+}
+
+function modelData(highs: Highs, lp: Lp) {
+  const fix = (a: Float64Array) => a.map((v) => (v === INF ? highs.infinity : v === -INF ? -highs.infinity : v));
+  return {
+    numCols: lp.numCols,
+    numRows: lp.numRows,
+    sense: lp.maximize ? highs.constants.objectiveSense.maximize : highs.constants.objectiveSense.minimize,
+    offset: lp.offset ?? 0,
+    colCost: lp.colCost,
+    colLower: fix(lp.colLower),
+    colUpper: fix(lp.colUpper),
+    rowLower: fix(lp.rowLower),
+    rowUpper: fix(lp.rowUpper),
+    matrix: { format: 'csr' as const, numRows: lp.numRows, numCols: lp.numCols, starts: lp.starts, indices: lp.indices, values: lp.values },
+  };
+}
+
+/**
+ * A model kept alive in HiGHS so that small changes (window bounds, cabinet membership) are
+ * re-solved from the previous basis: a few milliseconds instead of a fresh solve.
+ */
+export class LiveLp {
+  private model: Model & { dispose(): void };
+  constructor(
+    private readonly highs: Highs,
+    lp: Lp,
+  ) {
+    this.model = highs.createModel(modelData(highs, lp));
+    this.model.options.set({ output_flag: false });
+  }
+  setColBounds(cols: number[], lower: number[], upper: number[]): void {
+    if (cols.length === 0) return;
+    this.model.changeColsBounds(cols, lower, upper);
+  }
+  setCoefficient(row: number, col: number, value: number): void {
+    this.model.changeCoefficient(row, col, value);
+  }
+  setRowBounds(row: number, lower: number, upper: number): void {
+    const inf = this.highs.infinity;
+    this.model.changeRowBounds(row, lower === -INF ? -inf : lower, upper === INF ? inf : upper);
+  }
+  solve(): LpResult {
+    const t0 = performance.now();
+    const run = this.model.run();
+    const status = statusOf(this.highs, run.modelStatus);
+    const sol = status === 'optimal' ? this.model.getSolution() : null;
+    return {
+      status,
+      objective: status === 'optimal' ? this.model.getObjectiveValue() : NaN,
+      x: sol ? sol.colValue : new Float64Array(0),
+      rowDual: sol ? sol.rowDual : new Float64Array(0),
+      iterations: Number(this.model.info.get('simplex_iteration_count')),
+      ms: performance.now() - t0,
+    };
+  }
+  dispose(): void {
+    this.model.dispose();
+  }
+}
+
+export class Solver {
+  constructor(readonly highs: Highs) {}
+  /** Solves one LP and frees its memory in HiGHS (wasm memory is not garbage-collected). */
+  solve(lp: Lp): LpResult {
+    const live = new LiveLp(this.highs, lp);
+    try {
+      return live.solve();
+    } finally {
+      live.dispose();
+    }
+  }
+  open(lp: Lp): LiveLp {
+    return new LiveLp(this.highs, lp);
+  }
+}
+
+/** Builds an Lp from rows given as (indices, values) lists. */
+export function lpFromRows(
+  cols: { cost: number; lower: number; upper: number }[],
+  rows: { indices: number[]; values: number[]; lower: number; upper: number }[],
+  options: { maximize?: boolean; offset?: number } = {},
+): Lp {
+  const nnz = rows.reduce((a, r) => a + r.indices.length, 0);
+  const starts = new Int32Array(rows.length + 1);
+  const indices = new Int32Array(nnz);
+  const values = new Float64Array(nnz);
+  let k = 0;
+  rows.forEach((r, i) => {
+    starts[i] = k;
+    for (let j = 0; j < r.indices.length; j++) {
+      indices[k] = r.indices[j]!;
+      values[k++] = r.values[j]!;
+    }
+  });
+  starts[rows.length] = k;
+  return {
+    numCols: cols.length,
+    numRows: rows.length,
+    colCost: Float64Array.from(cols.map((c) => c.cost)),
+    colLower: Float64Array.from(cols.map((c) => c.lower)),
+    colUpper: Float64Array.from(cols.map((c) => c.upper)),
+    rowLower: Float64Array.from(rows.map((r) => r.lower)),
+    rowUpper: Float64Array.from(rows.map((r) => r.upper)),
+    starts,
+    indices,
+    values,
+    ...options,
+  };
+}
+
+let solverInstance: Solver | null = null;
+
+/** Loads HiGHS once per process and warms it with a small solve (the first solve is slow). */
+export async function loadSolver(): Promise<Solver> {
+  if (solverInstance) return solverInstance;
+  loading ??= loadHighs();
+  loaded = await loading;
+  const solver = new Solver(loaded);
+  // Warm-up: a small LP of the same shape as the engine's (sums and bounds).
+  const n = 40;
+  const cols = Array.from({ length: n }, (_, i) => ({ cost: 1 + (i % 7), lower: 0, upper: 10 }));
+  const rows = Array.from({ length: 10 }, (_, r) => ({
+    indices: Array.from({ length: 4 }, (_, j) => r * 4 + j),
+    values: [1, 1, 1, 1],
+    lower: 5 + r,
+    upper: INF,
+  }));
+  solver.solve(lpFromRows(cols, rows));
+  solverInstance = solver;
+  return solver;
+}

@@ -1,0 +1,172 @@
+import { localToMillis, type Scenario } from './scenario.js';
+import { buildSlots, type Slot } from './slots.js';
+import { tariffOf, type Tariff } from './tariff.js';
+
+/** One stay of a bus at the depot, in slot indices: charging is possible in slots [a, d). */
+export interface Stay {
+  bus: number;
+  /** Position among the bus's stays. */
+  k: number;
+  /** Global index among all stays (a "job" for the charger assignment). */
+  id: number;
+  arriveMs: number;
+  departMs: number;
+  a: number;
+  d: number;
+  departMinKwh: number;
+  /** Battery energy the bus must hold at this departure: departMin, and for a run to another
+   *  stay also the run's energy plus the reserve, since the reserve holds while at the depot. */
+  requiredKwh: number;
+  runKwh: number;
+  /** Energy consumed by runs before this stay (kWh). */
+  runsBeforeKwh: number;
+}
+
+export interface Bus {
+  id: string;
+  index: number;
+  usableKwh: number;
+  maxKw: number;
+  arrivalKwh: number;
+  /** Ceiling on battery energy; never below the arrival energy (charging cannot discharge). */
+  ceilingKwh: number;
+  reserveKwh: number;
+  taperFromKwh: number | null;
+  stays: Stay[];
+  /** Slots where the bus is at the depot for the whole slot, in time order. */
+  slots: number[];
+}
+
+export interface Charger {
+  id: string;
+  index: number;
+  maxKw: number;
+  cabinet: number;
+  /** Per slot: can the charger be used? (all true today; re-planning will mark faults). */
+  available: Uint8Array;
+}
+
+export interface Cabinet {
+  id: string;
+  limitKw: number;
+  chargers: number[];
+  /** A cabinet whose chargers together cannot exceed its limit never binds. */
+  binding: boolean;
+}
+
+/** The scenario in solver terms: indices, slots, effective limits. Pure data. */
+export interface Problem {
+  scenario: Scenario;
+  zone: string;
+  slots: Slot[];
+  T: number;
+  slotHours: number;
+  eta: number;
+  buses: Bus[];
+  stays: Stay[];
+  chargers: Charger[];
+  cabinets: Cabinet[];
+  tariff: Tariff;
+  /** Cost per kWh of shortfall: above any marginal cost of delivering energy. */
+  shortfallPenalty: number;
+  /** Number of buses at the depot per slot. */
+  present: Int32Array;
+}
+
+export function prepareProblem(scenario: Scenario): Problem {
+  const slots = buildSlots(scenario);
+  const T = slots.length;
+  const slotMs = scenario.slotMinutes * 60_000;
+  const slotHours = scenario.slotMinutes / 60;
+  const startMs = slots[0]?.startMs ?? localToMillis(scenario.start, scenario.timezone)!;
+  const eta = scenario.efficiency;
+  const cabinetIndex = new Map(scenario.cabinets.map((c, i) => [c.id, i]));
+  const chargers: Charger[] = scenario.chargers.map((c, index) => ({
+    id: c.id,
+    index,
+    maxKw: c.maxKw,
+    cabinet: c.cabinet === undefined ? -1 : cabinetIndex.get(c.cabinet)!,
+    available: new Uint8Array(T).fill(1),
+  }));
+  const cabinets: Cabinet[] = scenario.cabinets.map((c, g) => {
+    const members = chargers.filter((ch) => ch.cabinet === g).map((ch) => ch.index);
+    const sum = members.reduce((acc, i) => acc + chargers[i]!.maxKw, 0);
+    return { id: c.id, limitKw: c.limitKw, chargers: members, binding: sum > c.limitKw + 1e-9 };
+  });
+  const stays: Stay[] = [];
+  const present = new Int32Array(T);
+  const buses: Bus[] = scenario.buses.map((b, index) => {
+    const ceiling = Math.max(b.ceilingKwh ?? b.usableKwh, b.arrivalKwh);
+    let runsBefore = 0;
+    const busStays: Stay[] = [];
+    const busSlots: number[] = [];
+    b.stays.forEach((s, k) => {
+      const arriveMs = localToMillis(s.arrive, scenario.timezone)!;
+      const departMs = localToMillis(s.depart, scenario.timezone)!;
+      const a = Math.max(0, Math.ceil((arriveMs - startMs) / slotMs));
+      const d = Math.min(T, Math.floor((departMs - startMs) / slotMs));
+      const last = k === b.stays.length - 1;
+      const required = last ? s.departMinKwh : Math.max(s.departMinKwh, s.runKwh + b.reserveKwh);
+      const stay: Stay = {
+        bus: index,
+        k,
+        id: stays.length,
+        arriveMs,
+        departMs,
+        a,
+        d: Math.max(a, d),
+        departMinKwh: s.departMinKwh,
+        requiredKwh: required,
+        runKwh: s.runKwh,
+        runsBeforeKwh: runsBefore,
+      };
+      runsBefore += s.runKwh;
+      stays.push(stay);
+      busStays.push(stay);
+      for (let t = stay.a; t < stay.d; t++) {
+        busSlots.push(t);
+        present[t]!++;
+      }
+    });
+    return {
+      id: b.id,
+      index,
+      usableKwh: b.usableKwh,
+      maxKw: b.maxKw,
+      arrivalKwh: b.arrivalKwh,
+      ceilingKwh: ceiling,
+      reserveKwh: b.reserveKwh,
+      taperFromKwh: b.taperFromKwh ?? null,
+      stays: busStays,
+      slots: busSlots,
+    };
+  });
+  const tariff = tariffOf(scenario);
+  // Delivering one kWh to a battery costs at most (price + every demand rate spread over one
+  // slot) / efficiency; a penalty well above that makes the LP serve every kWh it can.
+  const maxPrice = Math.max(scenario.tariff.offPeakPrice, ...scenario.tariff.periods.map((p) => p.price));
+  const rates = scenario.tariff.facilityDemandCharge + scenario.tariff.periods.reduce((a, p) => a + p.demandCharge, 0);
+  const shortfallPenalty = Math.max(10, (20 * (maxPrice + rates / slotHours)) / eta);
+  return {
+    scenario,
+    zone: scenario.timezone,
+    slots,
+    T,
+    slotHours,
+    eta,
+    buses,
+    stays,
+    chargers,
+    cabinets,
+    tariff,
+    shortfallPenalty,
+    present,
+  };
+}
+
+/** A plug map: for each bus and slot, the charger it is on (-1: not plugged). */
+export type PlugMap = Int32Array[];
+
+export function emptyPlugMap(problem: Problem): PlugMap {
+  return problem.buses.map(() => new Int32Array(problem.T).fill(-1));
+}

@@ -1,0 +1,25 @@
+// Bundles the API, the worker and the local fake mail server into dist/ with esbuild.
+// npm packages stay external: they are installed beside the bundle in node_modules.
+import { build } from 'esbuild';
+import { existsSync } from 'node:fs';
+
+const entryPoints = {
+  main: 'apps/api/src/main.ts',
+  'fake-mail': 'tools/fake-mail.ts',
+};
+if (existsSync('apps/api/src/worker.ts')) entryPoints.worker = 'apps/api/src/worker.ts';
+
+await build({
+  entryPoints,
+  outdir: 'dist/api',
+  outExtension: { '.js': '.mjs' },
+  bundle: true,
+  platform: 'node',
+  format: 'esm',
+  target: 'node20',
+  packages: 'external',
+  sourcemap: true,
+  tsconfig: 'tsconfig.json',
+  logLevel: 'warning',
+});
+console.log('API bundled into dist/api');

@@ -1,0 +1,104 @@
+// The demo scenario: an invented school district, depot, utility and fleet. Nothing here
+// describes a real organisation; figures are plausible for the trade, not measured.
+
+export const DEMO_PASSWORD = 'nightyard-demo';
+
+export const demoOrganisation = { name: 'Tallgrass Valley School District' };
+
+export const demoUsers = [
+  { email: 'admin@demo.nightyard.example', name: 'Avery Lindqvist', roles: ['admin'] },
+  { email: 'facilities@demo.nightyard.example', name: 'Marisol Okafor', roles: ['facilities'] },
+  { email: 'supervisor@demo.nightyard.example', name: 'Desmond Hale', roles: ['supervisor'] },
+  { email: 'yard@demo.nightyard.example', name: 'Rosa Villanueva', roles: ['yard'] },
+  { email: 'finance@demo.nightyard.example', name: 'Priya Castellano', roles: ['finance'] },
+  { email: 'lead@demo.nightyard.example', name: 'Tomasz Greer', roles: ['supervisor', 'yard'] },
+] as const;
+
+export const demoDepot = {
+  name: 'Orchard Lane Depot',
+  timezone: 'America/Chicago',
+  serviceLimitKw: 450,
+  // Office, workshop and yard lighting: higher by day, lower at night (kW for hours 0-23).
+  otherLoadProfileKw: [
+    22, 22, 22, 22, 22, 24, 30, 38, 44, 46, 46, 46, 46, 46, 46, 44, 40, 34, 28, 26, 24, 24, 22, 22,
+  ],
+  billingStartDay: 1,
+};
+
+export const demoCabinets = [{ label: 'Cabinet A', limitKw: 150 }];
+
+const CCS1 = 'SAE J1772 CCS1';
+
+export const demoChargers = [
+  { label: 'C1', maxKw: 60, connector: CCS1, cabinet: null },
+  { label: 'C2', maxKw: 60, connector: CCS1, cabinet: null },
+  { label: 'C3', maxKw: 60, connector: CCS1, cabinet: null },
+  { label: 'C4', maxKw: 60, connector: CCS1, cabinet: null },
+  { label: 'C5', maxKw: 30, connector: CCS1, cabinet: null },
+  { label: 'C6', maxKw: 30, connector: CCS1, cabinet: null },
+  { label: 'C7', maxKw: 30, connector: CCS1, cabinet: null },
+  { label: 'C8', maxKw: 30, connector: CCS1, cabinet: null },
+  { label: 'D1', maxKw: 120, connector: CCS1, cabinet: 'Cabinet A' },
+  { label: 'D2', maxKw: 120, connector: CCS1, cabinet: 'Cabinet A' },
+] as const;
+
+/** 24 buses: sixteen large (196 kWh usable) and eight smaller (155 kWh). */
+export const demoBuses = Array.from({ length: 24 }, (_, i) => {
+  const large = i < 16;
+  return {
+    number: String(201 + i),
+    usableKwh: large ? 196 : 155,
+    maxChargeKw: large ? 80 : 60,
+    connector: CCS1,
+    kwhPerMile: large ? 1.28 : 1.12,
+    ceilingPct: 90,
+    reservePct: 15,
+    taperStartPct: 85,
+  };
+});
+
+export const demoRatePlan = {
+  name: 'Tallgrass Power & Light: Commercial TOU (invented)',
+  currency: 'USD',
+  facilityDemandCharge: 7.5,
+  fixedMonthly: 45,
+  seasons: [
+    {
+      name: 'Summer',
+      months: [6, 7, 8, 9],
+      offPeakPrice: 0.075,
+      periods: [
+        { name: 'on-peak', price: 0.24, demandCharge: 16, windows: [{ days: [1, 2, 3, 4, 5], from: '15:00', to: '20:00' }] },
+        { name: 'mid-peak', price: 0.13, demandCharge: 0, windows: [{ days: [1, 2, 3, 4, 5], from: '08:00', to: '15:00' }] },
+      ],
+    },
+    {
+      name: 'Winter',
+      months: [10, 11, 12, 1, 2, 3, 4, 5],
+      offPeakPrice: 0.068,
+      periods: [
+        { name: 'on-peak', price: 0.18, demandCharge: 9, windows: [{ days: [1, 2, 3, 4, 5], from: '16:00', to: '20:00' }] },
+        { name: 'mid-peak', price: 0.11, demandCharge: 0, windows: [{ days: [1, 2, 3, 4, 5], from: '07:00', to: '16:00' }] },
+      ],
+    },
+  ],
+};
+
+/**
+ * A school day's runs for bus index i (0-23): a morning run, a midday layover at the depot and an
+ * afternoon run. Deterministic so every seed gives the same week. Times are local wall-clock.
+ */
+export function demoRunsForBus(i: number): { pullOut: string; pullIn: string; miles: number }[] {
+  const stagger = (i * 7) % 50; // minutes, spreads pull-outs over 06:00-06:50
+  const morningOut = 6 * 60 + stagger;
+  const morningMiles = 24 + ((i * 13) % 19); // 24-42 miles
+  const morningIn = morningOut + 110 + (i % 4) * 10;
+  const afternoonOut = 13 * 60 + 55 + ((i * 11) % 40);
+  const afternoonMiles = 26 + ((i * 17) % 21);
+  const afternoonIn = afternoonOut + 120 + (i % 5) * 12; // pull-ins 15:55-17:35, into the on-peak
+  const hhmm = (m: number) => `${String(Math.floor(m / 60)).padStart(2, '0')}:${String(m % 60).padStart(2, '0')}`;
+  return [
+    { pullOut: hhmm(morningOut), pullIn: hhmm(morningIn), miles: morningMiles },
+    { pullOut: hhmm(afternoonOut), pullIn: hhmm(afternoonIn), miles: afternoonMiles },
+  ];
+}
