@@ -1,3 +1,5 @@
+import type { RatePlanDefinition } from '@nightyard/contracts';
+
 // The demo scenario: an invented school district, depot, utility and fleet. Nothing here
 // describes a real organisation; figures are plausible for the trade, not measured.
 
@@ -59,30 +61,36 @@ export const demoBuses = Array.from({ length: 24 }, (_, i) => {
 
 export const demoRatePlan = {
   name: 'Tallgrass Power & Light: Commercial TOU (invented)',
-  currency: 'USD',
-  facilityDemandCharge: 7.5,
-  fixedMonthly: 45,
-  seasons: [
-    {
-      name: 'Summer',
-      months: [6, 7, 8, 9],
-      offPeakPrice: 0.075,
-      periods: [
-        { name: 'on-peak', price: 0.24, demandCharge: 16, windows: [{ days: [1, 2, 3, 4, 5], from: '15:00', to: '20:00' }] },
-        { name: 'mid-peak', price: 0.13, demandCharge: 0, windows: [{ days: [1, 2, 3, 4, 5], from: '08:00', to: '15:00' }] },
-      ],
-    },
-    {
-      name: 'Winter',
-      months: [10, 11, 12, 1, 2, 3, 4, 5],
-      offPeakPrice: 0.068,
-      periods: [
-        { name: 'on-peak', price: 0.18, demandCharge: 9, windows: [{ days: [1, 2, 3, 4, 5], from: '16:00', to: '20:00' }] },
-        { name: 'mid-peak', price: 0.11, demandCharge: 0, windows: [{ days: [1, 2, 3, 4, 5], from: '07:00', to: '16:00' }] },
-      ],
-    },
-  ],
-};
+  definition: {
+    currency: 'USD',
+    seasons: [
+      {
+        name: 'Summer',
+        fromMonth: 6,
+        toMonth: 9,
+        offPeakPrice: 0.075,
+        facilityDemandCharge: 7.5,
+        periods: [
+          { name: 'on-peak', price: 0.24, demandCharge: 16, windows: [{ dayTypes: ['weekday'], from: '15:00', to: '20:00' }] },
+          { name: 'mid-peak', price: 0.13, demandCharge: 0, windows: [{ dayTypes: ['weekday'], from: '08:00', to: '15:00' }] },
+        ],
+      },
+      {
+        name: 'Winter',
+        fromMonth: 10,
+        toMonth: 5,
+        offPeakPrice: 0.068,
+        facilityDemandCharge: 7.5,
+        periods: [
+          { name: 'on-peak', price: 0.18, demandCharge: 9, windows: [{ dayTypes: ['weekday'], from: '16:00', to: '20:00' }] },
+          { name: 'mid-peak', price: 0.11, demandCharge: 0, windows: [{ dayTypes: ['weekday'], from: '07:00', to: '16:00' }] },
+        ],
+      },
+    ],
+    fixedCharges: [{ name: 'Customer charge', amount: 45, per: 'month' }],
+    holidays: ['2026-12-25', '2027-01-01', '2027-05-31', '2027-07-05', '2027-09-06', '2027-11-25', '2027-12-24'],
+  },
+} satisfies { name: string; definition: RatePlanDefinition };
 
 /**
  * A school day's runs for bus index i (0-23): a morning run, a midday layover at the depot and an

@@ -48,7 +48,7 @@ export async function seedDemo(db: Db, now = new Date()): Promise<void> {
     );
     const [plan] = await tx
       .insert(ratePlans)
-      .values({ organisationId, name: demoRatePlan.name, currency: demoRatePlan.currency, definition: demoRatePlan })
+      .values({ organisationId, name: demoRatePlan.name, currency: demoRatePlan.definition.currency, definition: demoRatePlan.definition })
       .returning();
     const today = DateTime.fromJSDate(now, { zone: demoDepot.timezone }).startOf('day');
     await tx.insert(depotRatePlans).values({

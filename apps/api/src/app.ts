@@ -9,6 +9,9 @@ import type { AppDeps } from './app-deps';
 import { bearerAuthenticator } from './auth/access-tokens';
 import { authRoutes } from './auth/auth-routes';
 import { depotsRoutes } from './depots/depots-routes';
+import { depotSetupRoutes } from './depots/depot-setup-routes';
+import { ratesRoutes } from './rates/rates-routes';
+import { scenarioRoutes } from './scenarios/scenario-routes';
 import { outboxRoutes } from './dev/outbox-routes';
 import { apiNotFound, errorHandler } from './http/error-handler';
 import { ApiRoutes, type RegisteredRoute } from './http/route';
@@ -82,6 +85,9 @@ export function createApp(deps: AppDeps): BuiltApp {
   authRoutes(api, deps);
   usersRoutes(api, deps);
   depotsRoutes(api, deps);
+  depotSetupRoutes(api, deps);
+  ratesRoutes(api, deps);
+  scenarioRoutes(api, deps);
   outboxRoutes(api, deps);
 
   const document = openApiDocument(openapi);

@@ -20,6 +20,13 @@ export interface AssignmentHints {
   energy: Float64Array;
   /** Weight of each slot for charging (the lower bound's site load): where cheap time is. */
   weight: Float64Array;
+  /** Grid kW per bus per slot in the lower bound: when each stay would like to charge. */
+  power: Float64Array[];
+  /** Energy-weighted mean slot of each stay's charging in the lower bound (service order). */
+  centre: Float64Array;
+  /** How stage 1 orders a charger's stays and places hand-overs (variants are compared). */
+  order?: 'departure' | 'best';
+  handover?: 'share' | 'least-cut';
 }
 
 export function cloneAssignment(a: Assignment): Assignment {
@@ -35,12 +42,13 @@ export function usablePower(problem: Problem, stay: Stay, charger: number): numb
   return Math.min(problem.buses[stay.bus]!.maxKw, problem.chargers[charger]!.maxKw);
 }
 
-/** Stays on a charger are served in order of departure (then arrival). */
-export function sortSequence(problem: Problem, seq: number[]): void {
+/** Stays on a charger are served in the order the lower bound charges them (then departure). */
+export function sortSequence(problem: Problem, hints: AssignmentHints, seq: number[], by: 'centre' | 'departure' = 'centre'): void {
   seq.sort((x, y) => {
     const a = problem.stays[x]!;
     const b = problem.stays[y]!;
-    return a.d - b.d || a.a - b.a || a.id - b.id;
+    const key = by === 'centre' ? hints.centre[x]! - hints.centre[y]! : 0;
+    return key || a.d - b.d || a.a - b.a || a.id - b.id;
   });
 }
 
@@ -50,7 +58,6 @@ export function sortSequence(problem: Problem, seq: number[]): void {
  */
 export function layoutCharger(problem: Problem, hints: AssignmentHints, assignment: Assignment, charger: number): void {
   const seq = assignment.sequence[charger]!;
-  sortSequence(problem, seq);
   const w = hints.weight;
   const T = problem.T;
   const prefix = new Float64Array(T + 1);
@@ -77,10 +84,94 @@ export function layoutCharger(problem: Problem, hints: AssignmentHints, assignme
     const lo = Math.max(start, Math.min(next.a, s.d));
     const hi = Math.min(Math.max(s.d, next.a), Math.max(next.d - 1, lo));
     h = Math.min(Math.max(h, lo), hi);
+    if (hints.handover !== 'share') {
+    // Prefer the hand-over that cuts least of the two stays' charging in the lower bound.
+    const pa = hints.power[s.bus]!;
+    const pb = hints.power[next.bus]!;
+    let lost = 0;
+    for (let t = lo; t < Math.min(s.d, T); t++) lost += pa[t]!;
+    let bestLost = Infinity;
+    let bestH = h;
+    for (let x = lo; x <= hi; x++) {
+      const score = lost + 1e-6 * Math.abs(x - h);
+      if (score < bestLost - 1e-12) {
+        bestLost = score;
+        bestH = x;
+      }
+      if (x < s.d) lost -= pa[x]!;
+      if (x >= next.a) lost += pb[x]!;
+    }
+    h = bestH;
+    }
     assignment.from[s.id] = Math.min(start, s.d);
     assignment.to[s.id] = Math.max(Math.min(h, s.d), assignment.from[s.id]!);
     start = Math.max(h, next.a);
   }
+}
+
+/** How badly a charger's windows serve its stays: energy that cannot fit, then lower-bound
+ *  charging left outside the windows. */
+function layoutScore(problem: Problem, hints: AssignmentHints, assignment: Assignment, charger: number): number {
+  const dt = problem.slotHours;
+  let score = 0;
+  for (const id of assignment.sequence[charger]!) {
+    const stay = problem.stays[id]!;
+    const from = assignment.from[id]!;
+    const to = assignment.to[id]!;
+    const cap = usablePower(problem, stay, charger) * dt * Math.max(0, to - from);
+    score += 1000 * Math.max(0, hints.energy[id]! - cap);
+    const p = hints.power[stay.bus]!;
+    for (let t = stay.a; t < stay.d; t++) if (t < from || t >= to) score += p[t]! * dt;
+  }
+  return score;
+}
+
+function permutations(xs: number[]): number[][] {
+  if (xs.length <= 1) return [xs.slice()];
+  const out: number[][] = [];
+  xs.forEach((x, i) => {
+    for (const rest of permutations([...xs.slice(0, i), ...xs.slice(i + 1)])) out.push([x, ...rest]);
+  });
+  return out;
+}
+
+/**
+ * Orders a charger's stays and places the hand-overs: every order for a few stays, a handful
+ * of natural orders for more; the one whose windows fit the stays' energy best wins.
+ */
+export function arrangeCharger(problem: Problem, hints: AssignmentHints, assignment: Assignment, charger: number): void {
+  const seq = assignment.sequence[charger]!;
+  if (hints.order !== 'best') {
+    sortSequence(problem, hints, seq, 'departure');
+    layoutCharger(problem, hints, assignment, charger);
+    return;
+  }
+  if (seq.length <= 1) {
+    layoutCharger(problem, hints, assignment, charger);
+    return;
+  }
+  const st = problem.stays;
+  const candidates =
+    seq.length <= 4
+      ? permutations(seq)
+      : [
+          seq.slice().sort((x, y) => hints.centre[x]! - hints.centre[y]! || x - y),
+          seq.slice().sort((x, y) => st[x]!.d - st[y]!.d || st[x]!.a - st[y]!.a || x - y),
+          seq.slice().sort((x, y) => st[x]!.a - st[y]!.a || st[x]!.d - st[y]!.d || x - y),
+        ];
+  let best: number[] = candidates[0]!;
+  let bestScore = Infinity;
+  for (const order of candidates) {
+    assignment.sequence[charger] = order;
+    layoutCharger(problem, hints, assignment, charger);
+    const score = layoutScore(problem, hints, assignment, charger);
+    if (score < bestScore - 1e-9) {
+      bestScore = score;
+      best = order;
+    }
+  }
+  assignment.sequence[charger] = best;
+  layoutCharger(problem, hints, assignment, charger);
 }
 
 export function plugMapOf(problem: Problem, assignment: Assignment): PlugMap {
@@ -123,7 +214,7 @@ export function initialAssignment(problem: Problem, hints: AssignmentHints): Ass
       const fits = start + need <= job.d ? 0 : 1;
       const shortBy = Math.max(0, start + need - job.d) * power;
       const powerFit = power >= problem.buses[job.bus]!.maxKw - 1e-9 ? c.maxKw : 1e6 - power;
-      const key = [fits, fits ? shortBy : 0, start, powerFit, c.index];
+      const key = [fits, fits ? shortBy : 0, start, assignment.sequence[c.index]!.length, powerFit, c.index];
       if (best < 0 || lexLess(key, bestKey)) {
         best = c.index;
         bestKey = key;
@@ -136,7 +227,7 @@ export function initialAssignment(problem: Problem, hints: AssignmentHints): Ass
     assignment.chargerOf[job.id] = best;
     assignment.sequence[best]!.push(job.id);
   }
-  for (const c of problem.chargers) layoutCharger(problem, hints, assignment, c.index);
+  for (const c of problem.chargers) arrangeCharger(problem, hints, assignment, c.index);
   return assignment;
 }
 

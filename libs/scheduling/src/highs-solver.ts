@@ -33,8 +33,7 @@ let loading: Promise<Highs> | null = null;
 let loaded: Highs | null = null;
 
 function statusOf(highs: Highs, code: number): LpStatus {
-  const s = highs.constants;
-  void s;
+  void highs;
   if (code === 7) return 'optimal';
   if (code === 8) return 'infeasible';
   if (code === 9 || code === 10) return 'unbounded';
@@ -73,7 +72,16 @@ export class LiveLp {
   }
   setColBounds(cols: number[], lower: number[], upper: number[]): void {
     if (cols.length === 0) return;
-    this.model.changeColsBounds(cols, lower, upper);
+    // HiGHS wants a strictly increasing set; the last change of a column wins.
+    const byCol = new Map<number, number>();
+    cols.forEach((c, i) => byCol.set(c, i));
+    const order = [...byCol.keys()].sort((a, b) => a - b);
+    const inf = this.highs.infinity;
+    this.model.changeColsBounds(
+      { kind: 'set', indices: order },
+      order.map((c) => lower[byCol.get(c)!]!),
+      order.map((c) => (upper[byCol.get(c)!]! === INF ? inf : upper[byCol.get(c)!]!)),
+    );
   }
   setCoefficient(row: number, col: number, value: number): void {
     this.model.changeCoefficient(row, col, value);
@@ -82,8 +90,12 @@ export class LiveLp {
     const inf = this.highs.infinity;
     this.model.changeRowBounds(row, lower === -INF ? -inf : lower, upper === INF ? inf : upper);
   }
+  private solved = false;
   solve(): LpResult {
     const t0 = performance.now();
+    // After the first solve, presolve would throw the basis away: re-solve from the basis.
+    if (this.solved) this.model.options.set({ presolve: 'off' });
+    this.solved = true;
     const run = this.model.run();
     const status = statusOf(this.highs, run.modelStatus);
     const sol = status === 'optimal' ? this.model.getSolution() : null;

@@ -16,6 +16,34 @@ export interface ModelOptions {
   cabinetsUnlimited?: boolean;
   /** Tiny preference for earlier energy so equal-cost plans come out the same way every time. */
   tieBreak?: boolean;
+  /**
+   * Write every taper and ceiling row. By default rows are left out where the battery never
+   * needs to be that full (see `energyNeedCap`); the caller checks the solution and rebuilds
+   * with all rows in the rare case it overfilled a battery.
+   */
+  allRows?: boolean;
+}
+
+/**
+ * Most energy a bus needs to hold during each stay: its arrival energy or a later departure's
+ * requirement (after the runs in between). With a positive cost on every kWh, an optimal plan
+ * never fills a battery above this, so taper and ceiling rows above it cannot bind; in the
+ * lower bound, leaving rows out can only lower the bound, which keeps it valid.
+ */
+export function energyNeedCap(problem: Problem, b: number): number[] {
+  const bus = problem.buses[b]!;
+  const caps: number[] = [];
+  let arrivalUpper = bus.arrivalKwh;
+  bus.stays.forEach((stay, j) => {
+    let cap = arrivalUpper;
+    for (let k = j; k < bus.stays.length; k++) {
+      const later = bus.stays[k]!;
+      cap = Math.max(cap, later.requiredKwh + later.runsBeforeKwh - stay.runsBeforeKwh);
+    }
+    caps.push(cap);
+    arrivalUpper = cap - stay.runKwh;
+  });
+  return caps;
 }
 
 export interface ChargeModel {
@@ -170,6 +198,7 @@ export function buildChargeModel(problem: Problem, options: ModelOptions): Charg
     const idx: number[] = [];
     const val: number[] = [];
     let maxDelivered = 0;
+    const needCap = energyNeedCap(problem, bus.index);
     for (const stay of bus.stays) {
       for (let t = stay.a; t < stay.d; t++) {
         idx.push(pCol[bus.index]![t]!);
@@ -185,7 +214,8 @@ export function buildChargeModel(problem: Problem, options: ModelOptions): Charg
         departRow[stay.id] = rows.add([...idx, s], [...val, 1], need, Infinity);
       }
       const room = bus.ceilingKwh - base;
-      if (maxDelivered > room + 1e-9) rows.add([...idx], [...val], -Infinity, room);
+      const needed = options.allRows || needCap[stay.k]! > bus.ceilingKwh - 1e-9;
+      if (needed && maxDelivered > room + 1e-9) rows.add([...idx], [...val], -Infinity, room);
     }
   }
 
@@ -197,6 +227,8 @@ export function buildChargeModel(problem: Problem, options: ModelOptions): Charg
     const m = bus.maxKw / (Q - bus.taperFromKwh);
     const stayOf = new Int32Array(T).fill(-1);
     for (const s of bus.stays) for (let t = s.a; t < s.d; t++) stayOf[t] = s.k;
+    const needCap = energyNeedCap(problem, bus.index);
+    if (!options.allRows && needCap.every((c) => c <= bus.taperFromKwh! + 1e-9)) continue;
     const u = bus.slots;
     let prevC = -1;
     for (let i = 0; i < u.length; i++) {

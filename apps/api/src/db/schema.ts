@@ -185,3 +185,28 @@ export const runs = pgTable(
   },
   (t) => [index('runs_depot_date_idx').on(t.depotId, t.serviceDate), index('runs_bus_idx').on(t.busId)],
 );
+
+/** Times the utility asks the site to stay under a lower limit. */
+export const loadReductionWindows = pgTable(
+  'load_reduction_windows',
+  {
+    id: id(),
+    organisationId: orgRef(),
+    depotId: uuid('depot_id').notNull().references(() => depots.id, { onDelete: 'cascade' }),
+    startsAt: timestamp('starts_at', { withTimezone: true }).notNull(),
+    endsAt: timestamp('ends_at', { withTimezone: true }).notNull(),
+    limitKw: doublePrecision('limit_kw').notNull(),
+    note: text('note').notNull().default(''),
+  },
+  (t) => [index('load_reduction_depot_idx').on(t.depotId, t.startsAt)],
+);
+
+/** The current billing period's highest 15-minute demands so far, facility and per period. */
+export const billingPeaks = pgTable('billing_peaks', {
+  depotId: uuid('depot_id').primaryKey().references(() => depots.id, { onDelete: 'cascade' }),
+  organisationId: orgRef(),
+  billingPeriodStart: date('billing_period_start').notNull(),
+  facilityKw: doublePrecision('facility_kw').notNull(),
+  periodsKw: jsonb('periods_kw').$type<Record<string, number>>().notNull(),
+  updatedAt: timestamp('updated_at', { withTimezone: true }).notNull().defaultNow(),
+});

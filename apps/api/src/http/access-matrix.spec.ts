@@ -8,6 +8,9 @@ const app = createTestApp();
  * Who may call what, written out by hand from the product brief, so that a route whose declared
  * roles drift from it fails here. Every registered route must appear.
  */
+// Facilities describe the depot and its tariff; admins may too; everyone else reads.
+const EDIT_DEPOT = ['facilities', 'admin'] as const;
+
 const EXPECTED: Record<string, 'public' | readonly Role[]> = {
   'GET /health': 'public',
   'POST /auth/login': 'public',
@@ -22,10 +25,34 @@ const EXPECTED: Record<string, 'public' | readonly Role[]> = {
   'PATCH /users/:id': ['admin'],
   'GET /depots': ROLES,
   'GET /dev/outbox': ['admin'],
+  'GET /depots/:depotId': ROLES,
+  'PUT /depots/:depotId': EDIT_DEPOT,
+  'POST /depots/:depotId/chargers': EDIT_DEPOT,
+  'PUT /depots/:depotId/chargers/:id': EDIT_DEPOT,
+  'DELETE /depots/:depotId/chargers/:id': EDIT_DEPOT,
+  'POST /depots/:depotId/cabinets': EDIT_DEPOT,
+  'PUT /depots/:depotId/cabinets/:id': EDIT_DEPOT,
+  'DELETE /depots/:depotId/cabinets/:id': EDIT_DEPOT,
+  'PUT /depots/:depotId/load-reduction-windows': EDIT_DEPOT,
+  'PUT /depots/:depotId/peaks-so-far': EDIT_DEPOT,
+  'POST /depots/:depotId/rate-plans': EDIT_DEPOT,
+  'DELETE /depots/:depotId/rate-plans/:effectiveFrom': EDIT_DEPOT,
+  'GET /depots/:depotId/scenario-base': ['supervisor', 'facilities', 'admin'],
+  'GET /rate-plans': ROLES,
+  'GET /rate-plans/:id': ROLES,
+  'POST /rate-plans': EDIT_DEPOT,
+  'PUT /rate-plans/:id': EDIT_DEPOT,
+  'DELETE /rate-plans/:id': EDIT_DEPOT,
+  'GET /rate-plans/:id/preview': ROLES,
+  'POST /rate-plans/import-urdb': EDIT_DEPOT,
 };
 
 const samplePath = (p: string) =>
-  p.replace(':id', '00000000-0000-4000-8000-000000000000').replace(':token', 'x'.repeat(43));
+  p
+    .replace(':id', '00000000-0000-4000-8000-000000000000')
+    .replace(':depotId', '00000000-0000-4000-8000-000000000001')
+    .replace(':effectiveFrom', '2026-01-01')
+    .replace(':token', 'x'.repeat(43));
 
 let people: Record<Role, TestUser>;
 beforeAll(async () => {

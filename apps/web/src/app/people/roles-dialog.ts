@@ -61,7 +61,8 @@ export class RolesDialog {
     } catch (err) {
       const p = toApiProblem(err);
       const rest = applyFieldErrors(this.form, p.fields);
-      this.problem.set(rest.length > 0 || Object.keys(p.fields).length === 0 ? [p.message, ...rest].join(' ') : null);
+      if (Object.keys(p.fields).length === 0) this.problem.set(p.message);
+      else if (rest.length > 0) this.problem.set(rest.join(' '));
     } finally {
       this.busy.set(false);
     }

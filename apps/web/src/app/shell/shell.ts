@@ -1,4 +1,3 @@
-import { BreakpointObserver } from '@angular/cdk/layout';
 import {
   ChangeDetectionStrategy,
   Component,
@@ -8,7 +7,6 @@ import {
   inject,
   linkedSignal,
 } from '@angular/core';
-import { toSignal } from '@angular/core/rxjs-interop';
 import { MatButtonModule } from '@angular/material/button';
 import { MatIconModule } from '@angular/material/icon';
 import { MatListModule } from '@angular/material/list';
@@ -17,13 +15,11 @@ import { MatSidenavModule } from '@angular/material/sidenav';
 import { MatToolbarModule } from '@angular/material/toolbar';
 import { NavigationEnd, Router, RouterLink, RouterLinkActive, RouterOutlet } from '@angular/router';
 import { ROLE_LABELS } from '@nightyard/contracts';
-import { filter, map } from 'rxjs';
+import { filter } from 'rxjs';
 import { AuthStore } from '../auth/auth-store';
+import { injectIsPhone } from '../core/layout';
 import { ThemeStore, type ThemeChoice } from '../core/theme-store';
 import { DepotStore } from '../depots/depot-store';
-
-/** Phones: the navigation becomes a drawer. */
-export const PHONE_QUERY = '(max-width: 600px)';
 
 interface ThemeOption {
   value: ThemeChoice;
@@ -59,10 +55,7 @@ export class Shell {
   private readonly document = inject(DOCUMENT);
   protected readonly theme = inject(ThemeStore);
 
-  protected readonly phone = toSignal(
-    inject(BreakpointObserver).observe(PHONE_QUERY).pipe(map((r) => r.matches)),
-    { initialValue: false },
-  );
+  protected readonly phone = injectIsPhone();
   /** Open beside the page on a laptop, closed (a drawer) on a phone; reset when the width class changes. */
   protected readonly navOpen = linkedSignal(() => !this.phone());
 

@@ -1,0 +1,118 @@
+import { eq } from 'drizzle-orm';
+import { beforeAll, describe, expect, it } from 'vitest';
+import { parseScenario } from '@nightyard/scheduling';
+import { chargers, loadReductionWindows } from '../db/schema';
+import { createDepot } from '../testing/depot-fixture';
+import { createOrganisation, createTestApp, type TestUser } from '../testing/test-app';
+
+const app = createTestApp();
+let fac: TestUser;
+let fin: TestUser;
+let depot: Awaited<ReturnType<typeof createDepot>>;
+let other: Awaited<ReturnType<typeof createDepot>>;
+let otherFac: TestUser;
+
+beforeAll(async () => {
+  const org = await createOrganisation(app, { fac: ['facilities'], fin: ['finance'], sup: ['supervisor'] });
+  fac = org.users.fac!;
+  fin = org.users.fin!;
+  depot = await createDepot(app.db, org.organisationId, 'Depot one');
+  const org2 = await createOrganisation(app, { fac: ['facilities'] });
+  otherFac = org2.users.fac!;
+  other = await createDepot(app.db, org2.organisationId, 'Depot elsewhere');
+});
+
+const as = (u: TestUser) => ({ Authorization: `Bearer ${u.token}` });
+const base = () => `/api/depots/${depot.depot.id}`;
+const charger = (over: Record<string, unknown> = {}) => ({ label: 'D', maxKw: 150, connector: 'SAE J3105 pantograph', cabinetId: null, ...over });
+
+describe('depot', () => {
+  it('every role reads the depot with chargers, cabinets and rate plans', async () => {
+    const res = await app.request().get(base()).set(as(fin)).expect(200);
+    expect(res.body.depot.chargers.map((c: { label: string }) => c.label)).toEqual(['A', 'B', 'C']);
+    expect(res.body.depot.cabinets).toEqual([expect.objectContaining({ label: 'P1', limitKw: 120, chargerCount: 2 })]);
+    expect(res.body.depot.ratePlans).toEqual([expect.objectContaining({ name: 'Test TOU', effectiveFrom: '2026-01-01' })]);
+  });
+
+  it('finance cannot change it', async () => {
+    await app.request().post(`${base()}/chargers`).set(as(fin)).send(charger()).expect(403);
+  });
+
+  it('facilities adds a charger to a cabinet and puts it out of service with a reason', async () => {
+    const add = await app.request().post(`${base()}/chargers`).set(as(fac)).send(charger({ label: 'E', cabinetId: depot.cabinet.id })).expect(201);
+    expect(add.body.charger).toMatchObject({ label: 'E', cabinetLabel: 'P1', status: 'in_service' });
+    const missing = await app.request().put(`${base()}/chargers/${add.body.charger.id}`).set(as(fac))
+      .send(charger({ label: 'E', status: 'out_of_service' })).expect(400);
+    expect(missing.body.error.fields.statusReason).toBe('Say why the charger is out of service');
+    const out = await app.request().put(`${base()}/chargers/${add.body.charger.id}`).set(as(fac))
+      .send(charger({ label: 'E', status: 'out_of_service', statusReason: 'Cable damaged' })).expect(200);
+    expect(out.body.charger).toMatchObject({ status: 'out_of_service', statusReason: 'Cable damaged' });
+    expect(out.body.charger.statusSince).toBeTruthy();
+  });
+
+  it('refuses a cabinet of another depot, a negative limit, a duplicate label; nothing is saved', async () => {
+    const before = (await app.db.select().from(chargers).where(eq(chargers.depotId, depot.depot.id))).length;
+    const foreign = await app.request().post(`${base()}/chargers`).set(as(fac)).send(charger({ label: 'X', cabinetId: other.cabinet.id })).expect(400);
+    expect(foreign.body.error.fields.cabinetId).toBe('Choose a cabinet of this depot');
+    const negative = await app.request().post(`${base()}/chargers`).set(as(fac)).send(charger({ label: 'Y', maxKw: -5 })).expect(400);
+    expect(negative.body.error.fields.maxKw).toMatch(/cannot be negative/);
+    const dup = await app.request().post(`${base()}/chargers`).set(as(fac)).send(charger({ label: 'A' })).expect(409);
+    expect(dup.body.error.fields.label).toBe('Already used in this depot');
+    const after = (await app.db.select().from(chargers).where(eq(chargers.depotId, depot.depot.id))).length;
+    expect(after).toBe(before);
+  });
+
+  it('settings: a 24-hour other-load profile, a bad time zone and a zero limit', async () => {
+    const ok = { name: 'Depot one', timezone: 'America/Chicago', serviceLimitKw: 320, otherLoadKw: Array(24).fill(25), billingStartDay: 5 };
+    const res = await app.request().put(base()).set(as(fac)).send(ok).expect(200);
+    expect(res.body.depot.serviceLimitKw).toBe(320);
+    const bad = await app.request().put(base()).set(as(fac)).send({ ...ok, timezone: 'Mars/Olympus', serviceLimitKw: 0, otherLoadKw: [1, 2] }).expect(400);
+    expect(Object.keys(bad.body.error.fields).sort()).toEqual(['otherLoadKw', 'serviceLimitKw', 'timezone']);
+  });
+
+  it('load-reduction windows are saved all together or not at all', async () => {
+    const windows = [
+      { start: '2026-12-10T17:00', end: '2026-12-10T19:00', limitKw: 150, note: 'Utility event' },
+      { start: '2026-12-10T18:30', end: '2026-12-10T20:00', limitKw: 100 },
+    ];
+    const bad = await app.request().put(`${base()}/load-reduction-windows`).set(as(fac)).send({ windows }).expect(400);
+    expect(bad.body.error.fields['[1].start']).toMatch(/Overlaps/);
+    expect(await app.db.select().from(loadReductionWindows).where(eq(loadReductionWindows.depotId, depot.depot.id))).toHaveLength(0);
+    const good = await app.request().put(`${base()}/load-reduction-windows`).set(as(fac))
+      .send({ windows: [windows[0], { ...windows[1], start: '2026-12-10T19:00' }] }).expect(200);
+    expect(good.body.windows.map((w: { start: string }) => w.start)).toEqual(['2026-12-10T17:00', '2026-12-10T19:00']);
+  });
+
+  it('another organisation\'s facilities user sees "not found" and changes nothing', async () => {
+    await app.request().get(base()).set(as(otherFac)).expect(404);
+    await app.request().post(`${base()}/chargers`).set(as(otherFac)).send(charger({ label: 'Z' })).expect(404);
+    await app.request().put(`/api/depots/${depot.depot.id}/chargers/${depot.chargers[0]!.id}`).set(as(otherFac)).send(charger({ label: 'A' })).expect(404);
+  });
+});
+
+describe('scenario base', () => {
+  it('builds the site and tariff part that the engine accepts, leaving out chargers out of service', async () => {
+    const sup = (await createOrganisation(app, { s: ['supervisor'] })).users.s!;
+    void sup;
+    const res = await app.request().get(`${base()}/scenario-base`).query({ start: '2026-12-09T12:00', end: '2026-12-10T09:00' })
+      .set(as(fac)).expect(200);
+    const { scenario, notes } = res.body;
+    expect(scenario.chargers.map((c: { id: string }) => c.id)).toEqual(expect.arrayContaining(['A', 'B', 'C']));
+    expect(scenario.chargers.map((c: { id: string }) => c.id)).not.toContain('E');
+    expect(notes.join(' ')).toMatch(/Charger E is out of service \(Cable damaged\)/);
+    expect(scenario.tariff.periods).toEqual([
+      { name: 'on-peak', price: 0.27, demandCharge: 9.5, windows: [{ days: [3], from: '16:00', to: '21:00' }] },
+    ]);
+    // The engine's own validator (libs/scheduling) accepts it once buses are added.
+    const parsed = parseScenario({
+      ...scenario,
+      buses: [{ id: '1', usableKwh: 200, maxKw: 60, arrivalKwh: 50, stays: [{ arrive: '2026-12-09T16:00', depart: '2026-12-10T06:00', departMinKwh: 150 }] }],
+    });
+    expect(parsed.ok ? [] : parsed.problems).toEqual([]);
+  });
+
+  it('says which date has no rate plan', async () => {
+    const res = await app.request().get(`${base()}/scenario-base`).query({ start: '2025-06-01T12:00', end: '2025-06-02T09:00' }).set(as(fac)).expect(400);
+    expect(res.body.error.message).toMatch(/No rate plan applies to Depot one on 2025-06-01/);
+  });
+});

@@ -1,0 +1,118 @@
+import { readFileSync } from 'node:fs';
+import { describe, expect, it } from 'vitest';
+import { DomainError } from '../http/errors';
+import { previewDay } from './rate-preview';
+import { importUrdb } from './urdb-import';
+
+// Hand-written records of an invented utility, following the OpenEI URDB field definitions:
+// energyratestructure[period][tier] with $/kWh = rate + adj, 12 x 24 weekday/weekend schedules of
+// zero-based period indices, flatdemandstructure with flatdemandmonths, fixedchargefirstmeter.
+const fixture = (name: string) => JSON.parse(readFileSync(new URL(`./fixtures/${name}`, import.meta.url), 'utf8'));
+const summerWinter = fixture('urdb-summer-winter-evening-peak.json');
+
+function hourlyPrices(def: Parameters<typeof previewDay>[0], date: string) {
+  const preview = previewDay(def, date, 'America/Chicago');
+  const prices: number[] = [];
+  for (const i of preview.intervals) {
+    const from = Number(i.start.slice(11, 13));
+    const to = i.end.slice(0, 10) === date ? Number(i.end.slice(11, 13)) : 24;
+    for (let h = from; h < to; h++) prices[h] = i.price;
+  }
+  return { preview, prices };
+}
+
+describe('URDB import: summer/winter plan with an evening on-peak', () => {
+  const result = importUrdb(summerWinter);
+
+  it('maps two seasons, the flat demand charge and the monthly fixed charge', () => {
+    expect(result.name).toBe('Prairie Wind Electric Cooperative (invented): General Service TOU with Demand (invented)');
+    const seasons = result.definition.seasons.map((s) => [s.fromMonth, s.toMonth, s.facilityDemandCharge]);
+    expect(seasons).toEqual(expect.arrayContaining([[6, 9, 14.25], [10, 5, 9.8]]));
+    expect(result.definition.fixedCharges).toEqual([{ name: 'Fixed charge', amount: 35, per: 'month' }]);
+  });
+
+  it('prices every hour of a summer weekday as the schedule says (rate + adj)', () => {
+    const { preview, prices } = hourlyPrices(result.definition, '2027-07-14');
+    expect(preview.dayType).toBe('weekday');
+    for (let h = 0; h < 24; h++) {
+      const schedulePeriod = summerWinter.energyweekdayschedule[6][h];
+      const tier = summerWinter.energyratestructure[schedulePeriod][0];
+      expect(prices[h], `hour ${h}`).toBeCloseTo(tier.rate + (tier.adj ?? 0), 10);
+    }
+    expect(preview.facilityDemandCharge).toBe(14.25);
+  });
+
+  it('prices every hour of a summer weekend and a winter weekday', () => {
+    for (const [date, month, weekend] of [['2027-07-17', 6, true], ['2027-01-13', 0, false], ['2027-01-16', 0, true]] as const) {
+      const { prices } = hourlyPrices(result.definition, date);
+      const schedule = weekend ? summerWinter.energyweekendschedule : summerWinter.energyweekdayschedule;
+      for (let h = 0; h < 24; h++) {
+        const tier = summerWinter.energyratestructure[schedule[month][h]][0];
+        expect(prices[h], `${date} hour ${h}`).toBeCloseTo(tier.rate + (tier.adj ?? 0), 10);
+      }
+    }
+  });
+
+  it('says what it simplified', () => {
+    expect(result.notes.join(' ')).toMatch(/holidays use the weekend hours/);
+  });
+});
+
+describe('URDB import: tiers, TOU demand, yearly fixed charge, API envelope', () => {
+  const result = importUrdb(fixture('urdb-tiered-tou-demand.json'));
+
+  it('uses the first tier and says so', () => {
+    expect(result.notes.join(' ')).toMatch(/Energy period 0 has 2 tiers.*first tier's price \(0\.08\)/);
+    const { prices } = hourlyPrices(result.definition, '2027-07-14');
+    expect(prices[3]).toBeCloseTo(0.08, 10);
+  });
+
+  it('carries the on-peak demand charge and spreads the yearly fixed charge', () => {
+    const summer = result.definition.seasons.find((s) => s.fromMonth === 6)!;
+    const onPeak = summer.periods.find((p) => p.demandCharge > 0)!;
+    expect(onPeak.demandCharge).toBe(6.5);
+    expect(onPeak.windows).toEqual([{ dayTypes: ['weekday'], from: '16:00', to: '21:00' }]);
+    expect(result.definition.fixedCharges[0]!.amount).toBe(50);
+    expect(result.notes.join(' ')).toMatch(/coincident demand charges/);
+  });
+});
+
+describe('URDB import: bad records name the field', () => {
+  const bad = (mutate: (r: Record<string, unknown>) => void) => {
+    const r = structuredClone(summerWinter);
+    mutate(r);
+    try {
+      importUrdb(r);
+    } catch (e) {
+      expect(e).toBeInstanceOf(DomainError);
+      return (e as DomainError).fields!;
+    }
+    throw new Error('expected a rejection');
+  };
+
+  it('a schedule with 11 months', () => {
+    expect(bad((r) => (r.energyweekdayschedule as unknown[]).pop())).toEqual({ energyweekdayschedule: 'A schedule has 12 months' });
+  });
+  it('a month with 23 hours', () => {
+    expect(bad((r) => (r.energyweekendschedule as number[][])[3]!.pop())['energyweekendschedule[3]']).toMatch(/24 hourly entries/);
+  });
+  it('an index missing from its structure', () => {
+    expect(bad((r) => ((r.energyweekdayschedule as number[][])[0]![5] = 7))['energyweekdayschedule[0][5]']).toMatch(/Period 7 is not in energyratestructure/);
+  });
+  it('flatdemandmonths with 11 entries', () => {
+    expect(bad((r) => (r.flatdemandmonths as number[]).pop()).flatdemandmonths).toMatch(/12 entries/);
+  });
+  it('a tier without max before the last', () => {
+    const f = bad((r) => ((r.energyratestructure as unknown[][])[0] = [{ rate: 0.1 }, { rate: 0.2 }]));
+    expect(f['energyratestructure[0][0].max']).toBe('Every tier but the last needs a max');
+  });
+  it('no energy prices at all', () => {
+    expect(bad((r) => delete r.energyratestructure).energyratestructure).toMatch(/Required/);
+  });
+  it('an unsupported unit', () => {
+    expect(bad((r) => ((r.energyratestructure as { unit: string }[][])[1]![0]!.unit = 'kWh daily'))['energyratestructure[1][0].unit']).toMatch(/only kWh/);
+  });
+  it('not an object at all', () => {
+    expect(() => importUrdb('hello')).toThrow(DomainError);
+  });
+});

@@ -1,0 +1,271 @@
+import { z } from 'zod';
+import {
+  ratePlanDefinitionSchema, type RatePlanDefinition, type Season, type TouPeriod, type TouWindow, type UrdbImportResult,
+} from '@nightyard/contracts';
+import { DomainError } from '../http/errors';
+import { issuePath } from '../http/validate';
+
+// Field meanings follow the OpenEI Utility Rate Database (URDB) documentation; the structural
+// rules (12 x 24 schedules, 12 flat-demand months, indices present, `max` on every tier but the
+// last) are the ones NREL's REopt applies to URDB records.
+
+const tierSchema = z.looseObject({
+  rate: z.number().optional(),
+  adj: z.number().optional(),
+  max: z.number().optional(),
+  unit: z.string().optional(),
+  sell: z.number().optional(),
+});
+const structureSchema = z.array(z.array(tierSchema).min(1, 'A period needs at least one tier'));
+const scheduleSchema = z
+  .array(z.array(z.number().int().min(0, 'Period indices start at 0'), { error: 'Each month is a list of 24 period indices' }).length(24, 'Each month needs 24 hourly entries (hours 0-23)'))
+  .length(12, 'A schedule has 12 months');
+
+const recordSchema = z.looseObject({
+  name: z.string().optional(),
+  utility: z.string().optional(),
+  label: z.string().optional(),
+  energyratestructure: structureSchema.optional(),
+  energyweekdayschedule: scheduleSchema.optional(),
+  energyweekendschedule: scheduleSchema.optional(),
+  demandratestructure: structureSchema.optional(),
+  demandweekdayschedule: scheduleSchema.optional(),
+  demandweekendschedule: scheduleSchema.optional(),
+  flatdemandstructure: structureSchema.optional(),
+  flatdemandmonths: z.array(z.number().int().min(0)).length(12, 'flatdemandmonths needs 12 entries, one per month').optional(),
+  fixedchargefirstmeter: z.number().min(0).optional(),
+  fixedchargeunits: z.string().optional(),
+  demandunits: z.string().optional(),
+  flatdemandunit: z.string().optional(),
+});
+type UrdbRecord = z.infer<typeof recordSchema>;
+type Tier = z.infer<typeof tierSchema>;
+
+const IGNORED_FIELDS: Record<string, string> = {
+  coincidentratestructure: 'coincident demand charges',
+  demandratchetpercentage: 'demand ratchets',
+  energyattrs: 'energy attributes',
+  demandattrs: 'demand attributes',
+  fueladjustmentsmonthly: 'monthly fuel adjustments',
+  mincharge: 'the minimum charge',
+  annualmincharge: 'the annual minimum charge',
+  fixedchargeeaaddl: 'additional meter charges',
+  lookbackpercent: 'demand look-back',
+};
+
+const MONTHS = ['Jan', 'Feb', 'Mar', 'Apr', 'May', 'Jun', 'Jul', 'Aug', 'Sep', 'Oct', 'Nov', 'Dec'];
+
+function fail(fields: Record<string, string>): never {
+  const names = Object.keys(fields);
+  throw new DomainError('validation_failed', `This URDB record cannot be imported: check ${names.slice(0, 5).join(', ')}${names.length > 5 ? ', ...' : ''}`, fields);
+}
+
+/** Accepts one record or the API's `{ items: [record] }` envelope. */
+function unwrap(input: unknown): unknown {
+  if (input && typeof input === 'object' && 'items' in input && Array.isArray((input as { items: unknown[] }).items)) {
+    const items = (input as { items: unknown[] }).items;
+    if (items.length !== 1) fail({ items: `The file holds ${items.length} rate records: export just the one to import` });
+    return items[0];
+  }
+  return input;
+}
+
+/** $/unit of a period: the first tier's rate plus adjustment; notes when other tiers were ignored. */
+function periodRate(tiers: Tier[], what: string, notes: string[]): number {
+  const first = tiers[0]!;
+  const rate = (first.rate ?? 0) + (first.adj ?? 0);
+  if (tiers.length > 1) {
+    notes.push(`${what} has ${tiers.length} tiers; tiered prices are not supported, so the first tier's price (${rate}) applies to all use.`);
+  }
+  return rate;
+}
+
+function checkStructure(rec: UrdbRecord, structureKey: 'energyratestructure' | 'demandratestructure' | 'flatdemandstructure', errors: Record<string, string>) {
+  const structure = rec[structureKey];
+  structure?.forEach((tiers, p) =>
+    tiers.forEach((t, i) => {
+      if (i < tiers.length - 1 && t.max === undefined) errors[`${structureKey}[${p}][${i}].max`] = 'Every tier but the last needs a max';
+      if (t.rate === undefined && t.adj === undefined) errors[`${structureKey}[${p}][${i}].rate`] = 'A tier needs a rate';
+      if (structureKey === 'energyratestructure' && t.unit !== undefined && t.unit !== 'kWh') {
+        errors[`${structureKey}[${p}][${i}].unit`] = `Unit "${t.unit}" is not supported: only kWh prices can be imported`;
+      }
+    }),
+  );
+}
+
+function checkIndices(rec: UrdbRecord, scheduleKey: keyof UrdbRecord, structureKey: keyof UrdbRecord, errors: Record<string, string>) {
+  const schedule = rec[scheduleKey] as number[][] | undefined;
+  const structure = rec[structureKey] as unknown[] | undefined;
+  if (!schedule) return;
+  if (!structure) {
+    errors[String(structureKey)] ??= `${String(scheduleKey)} is given but ${String(structureKey)} is missing`;
+    return;
+  }
+  schedule.forEach((row, m) =>
+    row.forEach((idx, h) => {
+      if (idx >= structure.length) {
+        errors[`${String(scheduleKey)}[${m}][${h}]`] ??= `Period ${idx} is not in ${String(structureKey)} (it has periods 0-${structure.length - 1})`;
+      }
+    }),
+  );
+}
+
+interface HourKey {
+  e: number;
+  d: number | null;
+}
+const keyOf = (k: HourKey) => `${k.e}/${k.d ?? '-'}`;
+
+/** Maps a URDB record to a Nightyard rate plan, with notes on everything that was simplified. */
+export function importUrdb(input: unknown): UrdbImportResult {
+  const parsed = recordSchema.safeParse(unwrap(input));
+  if (!parsed.success) {
+    const fields: Record<string, string> = {};
+    for (const i of parsed.error.issues) fields[issuePath(i.path) || 'record'] ??= i.message;
+    fail(fields);
+  }
+  const rec = parsed.data;
+  const errors: Record<string, string> = {};
+  if (!rec.energyratestructure || !rec.energyweekdayschedule || !rec.energyweekendschedule) {
+    for (const k of ['energyratestructure', 'energyweekdayschedule', 'energyweekendschedule'] as const) {
+      if (!rec[k]) errors[k] = 'Required: Nightyard plans against time-of-use energy prices';
+    }
+  }
+  if (rec.demandratestructure && (!rec.demandweekdayschedule || !rec.demandweekendschedule)) {
+    errors.demandweekdayschedule = 'demandratestructure needs both demand schedules';
+  }
+  if (rec.flatdemandstructure && !rec.flatdemandmonths) errors.flatdemandmonths = 'flatdemandstructure needs flatdemandmonths';
+  if (rec.demandunits && rec.demandunits !== 'kW') errors.demandunits = `Demand in "${rec.demandunits}" is not supported: only kW`;
+  if (rec.flatdemandunit && rec.flatdemandunit !== 'kW') errors.flatdemandunit = `Flat demand in "${rec.flatdemandunit}" is not supported: only kW`;
+  checkStructure(rec, 'energyratestructure', errors);
+  checkStructure(rec, 'demandratestructure', errors);
+  checkStructure(rec, 'flatdemandstructure', errors);
+  checkIndices(rec, 'energyweekdayschedule', 'energyratestructure', errors);
+  checkIndices(rec, 'energyweekendschedule', 'energyratestructure', errors);
+  checkIndices(rec, 'demandweekdayschedule', 'demandratestructure', errors);
+  checkIndices(rec, 'demandweekendschedule', 'demandratestructure', errors);
+  rec.flatdemandmonths?.forEach((idx, m) => {
+    if (!rec.flatdemandstructure || idx >= rec.flatdemandstructure.length) {
+      errors[`flatdemandmonths[${m}]`] = `Period ${idx} is not in flatdemandstructure`;
+    }
+  });
+  let fixed: RatePlanDefinition['fixedCharges'] = [];
+  if (rec.fixedchargefirstmeter !== undefined && rec.fixedchargefirstmeter > 0) {
+    const units = rec.fixedchargeunits ?? '$/month';
+    if (units === '$/day') fixed = [{ name: 'Fixed charge', amount: rec.fixedchargefirstmeter, per: 'day' }];
+    else if (units === '$/month') fixed = [{ name: 'Fixed charge', amount: rec.fixedchargefirstmeter, per: 'month' }];
+    else if (units === '$/year') fixed = [{ name: 'Fixed charge (yearly, spread over months)', amount: Math.round((rec.fixedchargefirstmeter / 12) * 100) / 100, per: 'month' }];
+    else errors.fixedchargeunits = `"${units}" is not supported: use $/day, $/month or $/year`;
+  }
+  if (Object.keys(errors).length) fail(errors);
+
+  const notes: string[] = [];
+  const energyPrice = rec.energyratestructure!.map((t, i) => periodRate(t, `Energy period ${i}`, notes));
+  const demandPrice = (rec.demandratestructure ?? []).map((t, i) => periodRate(t, `Demand period ${i}`, notes));
+  const flatPrice = (rec.flatdemandstructure ?? []).map((t, i) => periodRate(t, `Flat demand period ${i}`, notes));
+  if (fixed[0]?.name.includes('yearly')) notes.push(`The yearly fixed charge of ${rec.fixedchargefirstmeter} is spread as ${fixed[0].amount} a month.`);
+  for (const [field, what] of Object.entries(IGNORED_FIELDS)) {
+    if (field in rec && rec[field] !== null && rec[field] !== undefined) notes.push(`Not supported, left out: ${what} (${field}).`);
+  }
+  if (rec.energyratestructure!.some((tiers) => tiers.some((t) => t.sell !== undefined && t.sell !== 0))) {
+    notes.push('Sell (export) prices are left out: depots do not export energy.');
+  }
+  notes.push('URDB has no holiday schedule: holidays use the weekend hours (common practice).');
+
+  const hourKey = (m: number, h: number, weekend: boolean): HourKey => ({
+    e: (weekend ? rec.energyweekendschedule! : rec.energyweekdayschedule!)[m]![h]!,
+    d: rec.demandratestructure ? (weekend ? rec.demandweekendschedule! : rec.demandweekdayschedule!)[m]![h]! : null,
+  });
+  const monthSignature = (m: number) =>
+    JSON.stringify([
+      Array.from({ length: 24 }, (_, h) => keyOf(hourKey(m, h, false))),
+      Array.from({ length: 24 }, (_, h) => keyOf(hourKey(m, h, true))),
+      rec.flatdemandmonths?.[m] ?? null,
+    ]);
+
+  // Runs of consecutive months (cyclically) with the same hours and prices become seasons.
+  const sig = Array.from({ length: 12 }, (_, m) => monthSignature(m));
+  let first = 0;
+  while (first < 12 && sig[(first + 11) % 12] === sig[first]) first++;
+  if (first === 12) first = 0;
+  const ranges: [number, number][] = [];
+  for (let i = 0; i < 12; ) {
+    const start = (first + i) % 12;
+    let len = 1;
+    while (i + len < 12 && sig[(start + len) % 12] === sig[start]) len++;
+    ranges.push([start, (start + len - 1) % 12]);
+    i += len;
+  }
+
+  const seasons: Season[] = ranges.map(([from, to]) => buildSeason(from, to));
+
+  function buildSeason(from: number, to: number): Season {
+    const hours = new Map<string, { key: HourKey; count: number }>();
+    for (const weekend of [false, true]) {
+      for (let h = 0; h < 24; h++) {
+        const k = hourKey(from, h, weekend);
+        const entry = hours.get(keyOf(k)) ?? { key: k, count: 0 };
+        entry.count += weekend ? 2 : 5;
+        hours.set(keyOf(k), entry);
+      }
+    }
+    const price = (k: HourKey) => energyPrice[k.e]!;
+    const demand = (k: HourKey) => (k.d === null ? 0 : demandPrice[k.d]!);
+    // The most common hours become off-peak, if they carry no demand charge of their own.
+    const byCount = [...hours.values()].sort((a, b) => b.count - a.count || price(a.key) - price(b.key));
+    const offPeak = byCount.find((x) => demand(x.key) === 0)?.key ?? null;
+    const named = [...hours.values()].map((x) => x.key).filter((k) => !offPeak || keyOf(k) !== keyOf(offPeak));
+    named.sort((a, b) => price(b) - price(a) || demand(b) - demand(a));
+    const names = periodNames(named.length, offPeak !== null);
+    const periods: TouPeriod[] = named.map((k, i) => ({
+      name: names[i]!,
+      price: price(k),
+      demandCharge: demand(k),
+      windows: windowsFor(from, k),
+    }));
+    const flatIdx = rec.flatdemandmonths?.[from];
+    const label = from === to ? MONTHS[from]! : `${MONTHS[from]}-${MONTHS[to]}`;
+    return {
+      name: ranges.length === 1 ? 'All year' : label,
+      fromMonth: from + 1,
+      toMonth: to + 1,
+      offPeakPrice: offPeak ? price(offPeak) : Math.min(...named.map(price)),
+      facilityDemandCharge: flatIdx === undefined ? 0 : flatPrice[flatIdx]!,
+      periods,
+    };
+  }
+
+  function windowsFor(month: number, k: HourKey): TouWindow[] {
+    const runs = (weekend: boolean) => {
+      const out: [number, number][] = [];
+      for (let h = 0; h < 24; h++) {
+        if (keyOf(hourKey(month, h, weekend)) !== keyOf(k)) continue;
+        const last = out.at(-1);
+        if (last && last[1] === h) last[1] = h + 1;
+        else out.push([h, h + 1]);
+      }
+      return out;
+    };
+    const hhmm = (h: number) => `${String(h).padStart(2, '0')}:00`;
+    const weekday = runs(false);
+    const weekend = runs(true);
+    const same = JSON.stringify(weekday) === JSON.stringify(weekend);
+    const toWindows = (r: [number, number][], dayTypes: TouWindow['dayTypes']) =>
+      r.map(([a, b]) => ({ dayTypes, from: hhmm(a), to: hhmm(b) }));
+    return same
+      ? toWindows(weekday, ['weekday', 'weekend', 'holiday'])
+      : [...toWindows(weekday, ['weekday']), ...toWindows(weekend, ['weekend', 'holiday'])];
+  }
+
+  const definition = ratePlanDefinitionSchema.parse({ currency: 'USD', seasons, fixedCharges: fixed, holidays: [] });
+  const name = [rec.utility, rec.name].filter(Boolean).join(': ') || 'Imported URDB rate';
+  return { name, definition, notes };
+}
+
+function periodNames(n: number, hasOffPeak: boolean): string[] {
+  if (n === 0) return [];
+  if (n === 1) return [hasOffPeak ? 'on-peak' : 'all hours'];
+  if (n === 2) return hasOffPeak ? ['on-peak', 'mid-peak'] : ['on-peak', 'off-peak'];
+  if (n === 3 && !hasOffPeak) return ['on-peak', 'mid-peak', 'off-peak'];
+  return Array.from({ length: n }, (_, i) => (i === 0 ? 'on-peak' : `period ${i + 1}`));
+}

@@ -1,0 +1,178 @@
+import { and, desc, eq, gt, lt, lte } from 'drizzle-orm';
+import { DateTime } from 'luxon';
+import { ratePlanDefinitionSchema, type RatePlanDefinition } from '@nightyard/contracts';
+import type { ScenarioInput } from '@nightyard/scheduling';
+import type { Db } from '../db/client';
+import { billingPeaks, chargers, depotRatePlans, loadReductionWindows, powerCabinets, ratePlans } from '../db/schema';
+import { DomainError } from '../http/errors';
+import type { AuthUser } from '../auth/auth-user';
+import { depotOf } from '../depots/depot-access';
+import { pricedSlots, seasonOf, type PricedSlot } from '../rates/tariff-calendar';
+
+/** Grid-to-battery efficiency of DC charging: about 0.90-0.95 (common practice). */
+export const DEFAULT_EFFICIENCY = 0.92;
+const MAX_HORIZON_DAYS = 7;
+
+export type ScenarioBase = Omit<ScenarioInput, 'buses'>;
+export interface ScenarioBaseResult {
+  scenario: ScenarioBase;
+  /** Where the depot's data had to be simplified to fit the scenario format. */
+  notes: string[];
+}
+
+const LOCAL = "yyyy-MM-dd'T'HH:mm";
+
+/**
+ * The site and tariff part of a scenario file for a depot over [start, end), from its chargers,
+ * power cabinets, limits, rate plan and the billing period's peaks so far.
+ */
+export async function buildScenarioBase(db: Db, caller: AuthUser, depotId: string, start: string, end: string): Promise<ScenarioBaseResult> {
+  const depot = await depotOf(db, caller, depotId);
+  const zone = depot.timezone;
+  const from = DateTime.fromISO(start, { zone });
+  const to = DateTime.fromISO(end, { zone });
+  if (!from.isValid || !to.isValid) throw new DomainError('validation_failed', 'Check the horizon', { start: 'Write local times as YYYY-MM-DDTHH:mm' });
+  if (to <= from) throw new DomainError('validation_failed', 'The horizon must end after it starts', { end: 'Must be after start' });
+  if (to.diff(from, 'days').days > MAX_HORIZON_DAYS) {
+    throw new DomainError('validation_failed', `Plan at most ${MAX_HORIZON_DAYS} days at a time`, { end: `At most ${MAX_HORIZON_DAYS} days after start` });
+  }
+  const notes: string[] = [];
+
+  const [assignment] = await db
+    .select({ definition: ratePlans.definition, name: ratePlans.name })
+    .from(depotRatePlans)
+    .innerJoin(ratePlans, eq(ratePlans.id, depotRatePlans.ratePlanId))
+    .where(and(eq(depotRatePlans.depotId, depotId), lte(depotRatePlans.effectiveFrom, from.toISODate()!)))
+    .orderBy(desc(depotRatePlans.effectiveFrom))
+    .limit(1);
+  if (!assignment) {
+    throw new DomainError('validation_failed', `No rate plan applies to ${depot.name} on ${from.toISODate()}: assign one under Rates`);
+  }
+  const definition = ratePlanDefinitionSchema.parse(assignment.definition);
+  const tariff = tariffFor(definition, from, to);
+
+  const [peaks] = await db.select().from(billingPeaks).where(eq(billingPeaks.depotId, depotId));
+  const peaksSoFarKw: Record<string, number> = {};
+  if (peaks) {
+    const periodStart = DateTime.fromISO(peaks.billingPeriodStart, { zone });
+    if (from >= periodStart && from < periodStart.plus({ months: 1 })) {
+      peaksSoFarKw.facility = peaks.facilityKw;
+      for (const p of tariff.periods) {
+        const kw = peaks.periodsKw[tariff.originalName.get(p.name)!];
+        if (kw !== undefined) peaksSoFarKw[p.name] = kw;
+      }
+    } else {
+      notes.push(`The peaks so far are for the billing period from ${peaks.billingPeriodStart}, not this night's: no peaks so far are assumed.`);
+    }
+  }
+
+  const cabs = await db.select().from(powerCabinets).where(eq(powerCabinets.depotId, depotId));
+  const chs = await db.select().from(chargers).where(eq(chargers.depotId, depotId));
+  const inService = chs.filter((c) => c.status === 'in_service');
+  for (const c of chs.filter((c) => c.status === 'out_of_service')) {
+    notes.push(`Charger ${c.label} is out of service${c.statusReason ? ` (${c.statusReason})` : ''} and is left out.`);
+  }
+  if (!inService.length) throw new DomainError('validation_failed', `${depot.name} has no charger in service`);
+  const cabinetLabel = new Map(cabs.map((c) => [c.id, c.label]));
+  const usedCabinets = new Set(inService.map((c) => c.cabinetId).filter((id): id is string => id !== null));
+
+  // The format has one site limit and one other-load figure: take the safe side of both.
+  let limitKw = depot.serviceLimitKw;
+  const reductions = await db
+    .select()
+    .from(loadReductionWindows)
+    .where(and(eq(loadReductionWindows.depotId, depotId), lt(loadReductionWindows.startsAt, to.toJSDate()), gt(loadReductionWindows.endsAt, from.toJSDate())));
+  for (const r of reductions) {
+    if (r.limitKw < limitKw) limitKw = r.limitKw;
+    const at = (d: Date) => DateTime.fromJSDate(d, { zone }).toFormat('ccc HH:mm');
+    notes.push(`Load-reduction window ${at(r.startsAt)}-${at(r.endsAt)} at ${r.limitKw} kW: the limit of the whole horizon is lowered to it.`);
+  }
+  const hours = new Set<number>();
+  for (let t = from; t < to; t = t.plus({ hours: 1 })) hours.add(t.hour);
+  const profile = depot.otherLoadKw;
+  const loads = [...hours].map((h) => (profile.length === 1 ? profile[0]! : profile[h]!));
+  const otherLoadKw = Math.max(...loads);
+  if (Math.min(...loads) !== otherLoadKw) {
+    notes.push(`The depot's other load varies from ${Math.min(...loads)} to ${otherLoadKw} kW over the horizon; its highest value is used throughout.`);
+  }
+
+  return {
+    scenario: {
+      version: 1,
+      timezone: zone,
+      start: from.toFormat(LOCAL),
+      end: to.toFormat(LOCAL),
+      slotMinutes: 15,
+      efficiency: DEFAULT_EFFICIENCY,
+      site: { limitKw, otherLoadKw },
+      cabinets: cabs.filter((c) => usedCabinets.has(c.id)).map((c) => ({ id: c.label, limitKw: c.limitKw })),
+      chargers: inService.map((c) => ({
+        id: c.label,
+        maxKw: c.maxKw,
+        ...(c.cabinetId ? { cabinet: cabinetLabel.get(c.cabinetId)! } : {}),
+      })),
+      tariff: {
+        currency: definition.currency,
+        offPeakPrice: tariff.offPeakPrice,
+        periods: tariff.periods,
+        facilityDemandCharge: tariff.facilityDemandCharge,
+        peaksSoFarKw,
+      },
+    },
+    notes,
+  };
+}
+
+type ScenarioPeriod = NonNullable<ScenarioBase['tariff']['periods']>[number];
+
+/**
+ * Writes the rate plan's periods over the horizon as scenario windows. The horizon spans at most
+ * a week, so each weekday number stands for one date and holidays and season changes stay exact.
+ */
+export function tariffFor(def: RatePlanDefinition, from: DateTime, to: DateTime) {
+  const main = seasonOf(def, from.month);
+  const slots = pricedSlots(def, from, to);
+  const seasons = new Set(slots.map((s) => s.season));
+  // Same period name with other prices in another season: keep them apart.
+  const clash = new Set<string>();
+  const seen = new Map<string, string>();
+  for (const s of slots) {
+    const sig = `${s.price}/${s.demandCharge}`;
+    if (seen.has(s.period) && seen.get(s.period) !== sig) clash.add(s.period);
+    seen.set(s.period, sig);
+  }
+  const label = (s: PricedSlot) => (clash.has(s.period) || (s.offPeak && seasons.size > 1) ? `${s.period} (${s.season})` : s.period);
+  const implicit = (s: PricedSlot) => s.offPeak && s.season === main.name;
+
+  const periods = new Map<string, ScenarioPeriod & { windows: { days: number[]; from: string; to: string }[] }>();
+  const originalName = new Map<string, string>();
+  let i = 0;
+  while (i < slots.length) {
+    const s = slots[i]!;
+    const day = s.start.toISODate();
+    let j = i + 1;
+    while (j < slots.length && slots[j]!.start.toISODate() === day && label(slots[j]!) === label(s) && implicit(slots[j]!) === implicit(s)) j++;
+    if (!implicit(s)) {
+      const name = label(s);
+      const endAt = slots[j - 1]!.start.plus({ minutes: 15 });
+      const window = {
+        days: [s.start.weekday],
+        from: s.start.toFormat('HH:mm'),
+        to: endAt.toISODate() !== day ? '24:00' : endAt.toFormat('HH:mm'),
+      };
+      const period = periods.get(name) ?? { name, price: s.price, demandCharge: s.demandCharge, windows: [] };
+      const same = period.windows.find((w) => w.from === window.from && w.to === window.to);
+      if (same) same.days.push(...window.days);
+      else period.windows.push(window);
+      periods.set(name, period);
+      originalName.set(name, s.period);
+    }
+    i = j;
+  }
+  return {
+    offPeakPrice: main.offPeakPrice,
+    facilityDemandCharge: main.facilityDemandCharge,
+    periods: [...periods.values()],
+    originalName,
+  };
+}

@@ -1,0 +1,56 @@
+import type { DepotSummary, Role, SessionUser, TokenResponse, User } from '@nightyard/contracts';
+
+/** Test data for unit tests (client side only; HTTP is faked with HttpTestingController). */
+export function sessionUser(roles: Role[], overrides: Partial<SessionUser> = {}): SessionUser {
+  return {
+    id: '00000000-0000-4000-8000-000000000001',
+    email: 'ada@example.org',
+    name: 'Ada Okafor',
+    roles,
+    organisation: { id: '00000000-0000-4000-8000-0000000000aa', name: 'Test District' },
+    ...overrides,
+  };
+}
+
+export function tokenResponse(roles: Role[], accessToken = 'token-1'): TokenResponse {
+  return { accessToken, expiresInSeconds: 900, user: sessionUser(roles) };
+}
+
+export function user(overrides: Partial<User> = {}): User {
+  return {
+    id: '00000000-0000-4000-8000-000000000002',
+    email: 'sam@example.org',
+    name: 'Sam Reyes',
+    roles: ['yard'],
+    status: 'active',
+    createdAt: '2026-11-01T10:00:00.000Z',
+    lastSignInAt: null,
+    ...overrides,
+  };
+}
+
+export function depot(overrides: Partial<DepotSummary> = {}): DepotSummary {
+  return {
+    id: '00000000-0000-4000-8000-0000000000d1',
+    name: 'North Depot',
+    timezone: 'America/Chicago',
+    serviceLimitKw: 500,
+    chargerCount: 6,
+    chargersInService: 5,
+    busCount: 12,
+    ratePlanName: 'Commercial TOU',
+    nextServiceDay: {
+      date: '2026-12-03',
+      firstPullOut: '05:40',
+      lastPullOut: '07:10',
+      busesOut: 11,
+      lastPullInToday: '17:30',
+    },
+    ...overrides,
+  };
+}
+
+/** Lets promise chains (HTTP -> promise -> next request) run. */
+export async function settle(): Promise<void> {
+  for (let i = 0; i < 10; i++) await Promise.resolve();
+}

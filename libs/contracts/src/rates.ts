@@ -1,0 +1,185 @@
+import { z } from 'zod';
+import { isTimeZone } from './depot-setup';
+
+/** Local wall-clock time `HH:mm`; `24:00` is the end of the day. */
+export const clockTimeSchema = z
+  .string()
+  .regex(/^(([01]\d|2[0-3]):[0-5]\d|24:00)$/, 'Write the time as HH:mm, 00:00 to 24:00');
+
+export const DAY_TYPES = ['weekday', 'weekend', 'holiday'] as const;
+export const dayTypeSchema = z.enum(DAY_TYPES);
+export type DayType = z.infer<typeof dayTypeSchema>;
+
+const money = (what: string) => z.number({ error: `Enter ${what} as a number` }).min(0, `${what} cannot be negative`).max(1_000_000);
+
+/**
+ * A time-of-use window. It belongs to the day it starts on; a `to` earlier than `from` runs past
+ * midnight into the next day.
+ */
+export const touWindowSchema = z
+  .strictObject({
+    dayTypes: z.array(dayTypeSchema).min(1, 'Choose at least one day type').refine((d) => new Set(d).size === d.length, 'Each day type once'),
+    from: clockTimeSchema,
+    to: clockTimeSchema,
+  })
+  .refine((w) => w.from !== w.to, { message: 'A window needs an end different from its start', path: ['to'] })
+  .refine((w) => w.from !== '24:00', { message: 'A window cannot start at 24:00', path: ['from'] });
+export type TouWindow = z.infer<typeof touWindowSchema>;
+
+export const touPeriodSchema = z.strictObject({
+  name: z.string().trim().min(1, 'Name the period, e.g. on-peak').max(60),
+  /** Energy price per kWh. */
+  price: money('The energy price'),
+  /** Demand charge per kW on the highest 15-minute demand inside this period's windows. */
+  demandCharge: money('The demand charge').default(0),
+  windows: z.array(touWindowSchema).min(1, 'A period needs at least one window'),
+});
+export type TouPeriod = z.infer<typeof touPeriodSchema>;
+
+const month = z.number().int().min(1, 'Months are 1 (January) to 12 (December)').max(12, 'Months are 1 (January) to 12 (December)');
+
+export const seasonSchema = z.strictObject({
+  name: z.string().trim().min(1, 'Name the season').max(60),
+  /** First and last month of the season; a range may wrap past December (10 to 5). */
+  fromMonth: month,
+  toMonth: month,
+  /** Price of every hour outside the periods' windows. */
+  offPeakPrice: money('The off-peak price'),
+  /** Demand charge per kW on the highest 15-minute demand of the billing period, at any hour. */
+  facilityDemandCharge: money('The facility demand charge').default(0),
+  periods: z.array(touPeriodSchema),
+});
+export type Season = z.infer<typeof seasonSchema>;
+
+export const fixedChargeSchema = z.strictObject({
+  name: z.string().trim().min(1).max(80),
+  amount: money('The fixed charge'),
+  per: z.enum(['day', 'month']),
+});
+
+export const ratePlanDefinitionSchema = z
+  .strictObject({
+    currency: z.string().regex(/^[A-Z]{3}$/, 'Use a three-letter currency code such as USD'),
+    seasons: z.array(seasonSchema).min(1, 'A rate plan needs at least one season'),
+    fixedCharges: z.array(fixedChargeSchema).default([]),
+    /** Dates priced as holidays (ISO `YYYY-MM-DD`). */
+    holidays: z.array(z.iso.date('Write dates as YYYY-MM-DD')).default([]),
+  })
+  .superRefine((plan, ctx) => {
+    checkSeasonsCoverYear(plan.seasons, ctx);
+    plan.seasons.forEach((s, i) => checkWindowsDoNotOverlap(s, i, ctx));
+  });
+export type RatePlanDefinition = z.infer<typeof ratePlanDefinitionSchema>;
+
+export function seasonMonths(s: { fromMonth: number; toMonth: number }): number[] {
+  const out: number[] = [];
+  for (let m = s.fromMonth; ; m = (m % 12) + 1) {
+    out.push(m);
+    if (m === s.toMonth) return out;
+  }
+}
+
+const MONTH_NAMES = ['January', 'February', 'March', 'April', 'May', 'June', 'July', 'August', 'September', 'October', 'November', 'December'];
+
+function checkSeasonsCoverYear(seasons: Season[], ctx: z.RefinementCtx) {
+  const owner = new Map<number, number>();
+  seasons.forEach((s, i) => {
+    for (const m of seasonMonths(s)) {
+      if (owner.has(m)) {
+        ctx.addIssue({ code: 'custom', path: ['seasons', i, 'fromMonth'], message: `${MONTH_NAMES[m - 1]} is already in season "${seasons[owner.get(m)!]!.name}"` });
+      } else owner.set(m, i);
+    }
+  });
+  const missing = MONTH_NAMES.filter((_, m) => !owner.has(m + 1));
+  if (missing.length && owner.size) {
+    ctx.addIssue({ code: 'custom', path: ['seasons'], message: `No season covers ${missing.join(', ')}` });
+  }
+}
+
+const minutes = (t: string) => Number(t.slice(0, 2)) * 60 + Number(t.slice(3));
+const clock = (m: number) => `${String(Math.floor(m / 60) % 24).padStart(2, '0')}:${String(m % 60).padStart(2, '0')}`;
+
+/** Minute ranges a window covers, measured from the start of its own day (may exceed 1440). */
+export function windowMinutes(w: { from: string; to: string }): [number, number] {
+  const from = minutes(w.from);
+  let to = minutes(w.to);
+  if (to <= from) to += 1440;
+  return [from, to];
+}
+
+function checkWindowsDoNotOverlap(season: Season, si: number, ctx: z.RefinementCtx) {
+  // Two windows of one day type clash when their minute ranges meet, also across midnight.
+  for (const dayType of DAY_TYPES) {
+    const taken: { range: [number, number]; where: string }[] = [];
+    season.periods.forEach((p, pi) =>
+      p.windows.forEach((w, wi) => {
+        if (!w.dayTypes.includes(dayType)) return;
+        const [a, b] = windowMinutes(w);
+        for (const t of taken) {
+          for (const shift of [-1440, 0, 1440]) {
+            const lo = Math.max(a, t.range[0] + shift);
+            const hi = Math.min(b, t.range[1] + shift);
+            if (lo < hi) {
+              ctx.addIssue({
+                code: 'custom',
+                path: ['seasons', si, 'periods', pi, 'windows', wi],
+                message: `Overlaps ${t.where} on ${dayType}s from ${clock(lo)} to ${clock(hi)}`,
+              });
+              return;
+            }
+          }
+        }
+        taken.push({ range: [a, b], where: `"${p.name}" ${w.from}-${w.to}` });
+      }),
+    );
+  }
+}
+
+export const ratePlanSchema = z.object({
+  id: z.uuid(),
+  name: z.string(),
+  definition: ratePlanDefinitionSchema,
+  createdAt: z.iso.datetime({ offset: true }),
+});
+export type RatePlan = z.infer<typeof ratePlanSchema>;
+
+export const saveRatePlanSchema = z.strictObject({
+  name: z.string().trim().min(1, 'Name the rate plan').max(120),
+  definition: ratePlanDefinitionSchema,
+});
+export type SaveRatePlan = z.infer<typeof saveRatePlanSchema>;
+
+export const assignRatePlanSchema = z.strictObject({
+  ratePlanId: z.uuid('Choose a rate plan'),
+  effectiveFrom: z.iso.date('Write the date as YYYY-MM-DD'),
+});
+
+export const previewQuerySchema = z.strictObject({
+  date: z.iso.date('Write the date as YYYY-MM-DD'),
+  timezone: z.string().refine(isTimeZone, 'Choose an IANA time zone such as America/Chicago').optional(),
+});
+
+/** One hour (or part, on clock-change days) of a previewed day. */
+export const previewIntervalSchema = z.object({
+  start: z.string(),
+  end: z.string(),
+  period: z.string(),
+  price: z.number(),
+  demandCharge: z.number(),
+});
+export const ratePreviewSchema = z.object({
+  date: z.string(),
+  dayType: dayTypeSchema,
+  season: z.string(),
+  currency: z.string(),
+  facilityDemandCharge: z.number(),
+  intervals: z.array(previewIntervalSchema),
+});
+export type RatePreview = z.infer<typeof ratePreviewSchema>;
+
+export const urdbImportResultSchema = z.object({
+  name: z.string(),
+  definition: ratePlanDefinitionSchema,
+  notes: z.array(z.string()),
+});
+export type UrdbImportResult = z.infer<typeof urdbImportResultSchema>;

@@ -1,0 +1,16 @@
+import { parseScenario, planScenario, loadSolver, prepareProblem, solveLowerBound, costLoad } from '@nightyard/scheduling';
+import { generateDepot } from '/work/main/tools/bench/generate.ts';
+const solver = await loadSolver();
+const n = Number(process.argv[2] ?? 50);
+const parsed = parseScenario(generateDepot({ buses: n, seed: n }));
+if (!parsed.ok) throw 0;
+const problem = prepareProblem(parsed.scenario);
+const lb = solveLowerBound(problem, solver);
+const load = new Float64Array(problem.T);
+for (const p of lb.power) for (let t = 0; t < problem.T; t++) load[t] += p[t];
+const c = costLoad(problem.slots, load, problem.tariff, 0.25);
+const plan = await planScenario(parsed.scenario, { timeBudgetMs: 850 });
+console.log('LB', c.energy.toFixed(2), c.demand.toFixed(2), JSON.stringify(c.demandParts.map(d => [d.name, d.peakKw.toFixed(1), d.cost.toFixed(1)])));
+const pl = costLoad(problem.slots, plan.slots.map((s) => s.loadKw - problem.slots[0].otherKw), problem.tariff, 0.25);
+console.log('PL', pl.energy.toFixed(2), pl.demand.toFixed(2), JSON.stringify(pl.demandParts.map(d => [d.name, d.peakKw.toFixed(1), d.cost.toFixed(1)])));
+console.log(Array.from(load).map((v, t) => `${problem.slots[t].start.slice(11,16)} ${v.toFixed(0)} ${(plan.slots[t].loadKw - problem.slots[t].otherKw).toFixed(0)} ${problem.present[t]}`).filter((_, t) => t % 2 == 0).join('\n'));

@@ -1,0 +1,11 @@
+export { scenarioSchema, parseScenario, localToMillis, formatPath, type Scenario, type ScenarioInput, type Problem as ScenarioProblem, type ParseResult } from './scenario.js';
+export { buildSlots, periodAt, isoAt, type Slot } from './slots.js';
+export { costLoad, tariffOf, type Cost, type CostSlot, type Tariff } from './tariff.js';
+export { loadSolver, lpFromRows, Solver, LiveLp, type Lp, type LpResult, type LpStatus } from './highs-solver.js';
+export { prepareProblem, emptyPlugMap, type Problem, type Bus, type Stay, type Charger, type Cabinet, type PlugMap } from './problem.js';
+export { buildChargeModel, topChargerPower, type ChargeModel, type ModelOptions } from './lp-model.js';
+export { solveLowerBound, type LowerBound } from './lower-bound.js';
+export { initialAssignment, plugMapOf, type Assignment, type AssignmentHints } from './assignment.js';
+export { unmanagedBaseline, acceptance, type Baseline } from './baseline.js';
+export { explainShortfalls, soloShortfall, type ShortReason } from './explain.js';
+export { planScenario, planProblem, defaultTimeBudgetMs, type Plan, type PlanOptions, type PlanSession, type PlanBus, type PlanCost } from './plan.js';

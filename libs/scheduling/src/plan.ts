@@ -1,0 +1,289 @@
+import { initialAssignment, plugMapOf, type AssignmentHints } from './assignment.js';
+import { unmanagedBaseline } from './baseline.js';
+import { explainShortfalls, type ShortReason } from './explain.js';
+import { loadSolver, type Solver } from './highs-solver.js';
+import { AssignedModel, localSearch } from './local-search.js';
+import { solveLowerBound } from './lower-bound.js';
+import { powerFrom } from './lp-model.js';
+import { prepareProblem, type Problem } from './problem.js';
+import type { Scenario } from './scenario.js';
+import { isoAt } from './slots.js';
+import { costLoad } from './tariff.js';
+
+export interface PlanCost {
+  energy: number;
+  demand: number;
+  total: number;
+}
+
+export interface PlanSession {
+  bus: string;
+  charger: string;
+  start: string;
+  end: string;
+  kwh: number;
+  kw: number[];
+}
+
+export interface PlanBus {
+  id: string;
+  departures: { at: string; kwh: number }[];
+  shortfallKwh: number;
+  reason: ShortReason | null;
+}
+
+/** The plan output of the scenario format, plus `savings` and `stats`. */
+export interface Plan {
+  status: 'optimal' | 'feasible' | 'short';
+  cost: PlanCost;
+  baseline: PlanCost & { peakKw: number; exceedsSiteLimit: boolean };
+  lowerBound: number;
+  gap: number;
+  solveMs: number;
+  slots: { start: string; loadKw: number; price: number; limitKw: number }[];
+  sessions: PlanSession[];
+  buses: PlanBus[];
+  savings: {
+    energy: number;
+    demand: number;
+    total: number;
+    /** Share of the baseline's total saved (0-1). */
+    share: number;
+    peakKw: number;
+    baselinePeakKw: number;
+    /** Share of the baseline's peak cut (0-1). */
+    peakCut: number;
+  };
+  stats: {
+    buses: number;
+    chargers: number;
+    slots: number;
+    plugIns: number;
+    lpColumns: number;
+    lpRows: number;
+    lowerBoundMs: number;
+    localSearchMoves: number;
+    localSearchAccepted: number;
+    simplexIterations: number;
+    /** kWh short summed over departures, in the plan and at best (lower-bound relaxation). */
+    shortfallKwh: number;
+    unavoidableShortfallKwh: number;
+  };
+}
+
+export interface PlanOptions {
+  /** Wall-clock budget for the whole call (ms); local search stops when it runs out. */
+  timeBudgetMs?: number;
+  /** Upper limit on local-search moves (keeps a run reproducible when the budget is ample). */
+  maxMoves?: number;
+}
+
+const round = (v: number, digits = 6) => {
+  const f = 10 ** digits;
+  const r = Math.round(v * f) / f;
+  return Object.is(r, -0) ? 0 : r;
+};
+
+export function defaultTimeBudgetMs(buses: number): number {
+  return buses <= 200 ? 850 : 2600;
+}
+
+/** The engine: plans a scenario (see the scenario format) and returns the plan. */
+export async function planScenario(scenario: Scenario, options: PlanOptions = {}): Promise<Plan> {
+  const solver = await loadSolver();
+  const t0 = performance.now();
+  const problem = prepareProblem(scenario);
+  return planProblem(problem, solver, options, t0);
+}
+
+/**
+ * Plans a prepared problem. Re-planning (later) prepares a Problem with chargers marked
+ * unavailable or arrival energies fixed, and calls this.
+ */
+export function planProblem(problem: Problem, solver: Solver, options: PlanOptions = {}, t0 = performance.now()): Plan {
+  const budget = options.timeBudgetMs ?? defaultTimeBudgetMs(problem.buses.length);
+  const deadline = t0 + budget;
+  const { T, slotHours: dt } = problem;
+
+  const lb = solveLowerBound(problem, solver);
+  const hints: AssignmentHints = {
+    energy: new Float64Array(problem.stays.length),
+    weight: new Float64Array(T),
+    power: lb.power,
+    centre: new Float64Array(problem.stays.length),
+    order: 'departure',
+    handover: 'share',
+  };
+  for (const stay of problem.stays) {
+    let e = 0;
+    let m = 0;
+    for (let t = stay.a; t < stay.d; t++) {
+      e += lb.power[stay.bus]![t]! * dt;
+      m += lb.power[stay.bus]![t]! * dt * (t + 0.5);
+    }
+    hints.energy[stay.id] = e;
+    hints.centre[stay.id] = e > 1e-9 ? m / e : (stay.a + stay.d) / 2;
+  }
+  for (const p of lb.power) for (let t = 0; t < T; t++) hints.weight[t] = hints.weight[t]! + p[t]!;
+
+  // Stage 1 variants (service order by departure, or the best of every order per charger);
+  // the LP of each decides which one local search starts from.
+  let start = initialAssignment(problem, hints);
+  const live = new AssignedModel(problem, solver, start);
+  let search;
+  try {
+    let first = live.solve();
+    if (first.status !== 'optimal') throw new Error(`plan LP ended ${first.status}; the model should always be solvable`);
+    const other = initialAssignment(problem, { ...hints, order: 'best' });
+    live.update(other, problem.buses.map((b) => b.index));
+    const second = live.solve();
+    if (second.status === 'optimal' && second.objective < first.objective) {
+      start = other;
+      first = second;
+    } else {
+      live.update(start, problem.buses.map((b) => b.index));
+    }
+    search = localSearch(problem, hints, live, start, first, {
+      deadline,
+      maxMoves: options.maxMoves ?? 100_000,
+      // The tie-break adds at most 1e-7 of the energy cost: closer than this is optimal.
+      target: lb.penalisedObjective * (1 + 5e-7) + 1e-9,
+    });
+  } finally {
+    live.dispose();
+  }
+  const assignment = search.assignment;
+  const plug = plugMapOf(problem, assignment);
+  const power = powerFrom(problem, live.model, search.result.x).map((row) => row.map((v) => round(v)));
+  const plan = assemblePlan(problem, solver, plug, power, lb.penalisedObjective, lb.shortfallKwh);
+  plan.stats.lpColumns = live.model.lp.numCols;
+  plan.stats.lpRows = live.model.lp.numRows;
+  plan.stats.lowerBoundMs = round(lb.ms, 1);
+  plan.stats.localSearchMoves = search.moves;
+  plan.stats.localSearchAccepted = search.accepted;
+  plan.stats.simplexIterations = search.iterations + lb.iterations;
+  plan.solveMs = round(performance.now() - t0, 1);
+  return plan;
+}
+
+function assemblePlan(
+  problem: Problem,
+  solver: Solver,
+  plug: Int32Array[],
+  power: Float64Array[],
+  lbPenalised: number,
+  lbShortfall: number,
+): Plan {
+  const { T, slotHours: dt, eta, zone } = problem;
+  const charging = new Float64Array(T);
+  for (const row of power) for (let t = 0; t < T; t++) charging[t] = charging[t]! + row[t]!;
+  const cost = costLoad(problem.slots, charging, problem.tariff, dt);
+
+  // Sessions: one per continuous plug-in, trimmed to the slots with power (nobody needs to
+  // plug a bus in before its power starts or leave it after it ends).
+  const sessions: PlanSession[] = [];
+  let plugIns = 0;
+  for (const bus of problem.buses) {
+    const row = plug[bus.index]!;
+    const p = power[bus.index]!;
+    let t = 0;
+    while (t < T) {
+      const c = row[t]!;
+      if (c < 0) {
+        t++;
+        continue;
+      }
+      let u = t;
+      while (u < T && row[u] === c && !(u > t && problem.slots[u]!.startMs !== problem.slots[u - 1]!.endMs)) u++;
+      let first = t;
+      let last = u - 1;
+      while (first <= last && p[first]! <= 0) first++;
+      while (last >= first && p[last]! <= 0) last--;
+      if (first <= last) {
+        const kw = Array.from(p.subarray(first, last + 1));
+        sessions.push({
+          bus: bus.id,
+          charger: problem.chargers[c]!.id,
+          start: problem.slots[first]!.start,
+          end: isoAt(problem.slots[last]!.endMs, zone),
+          kwh: round(kw.reduce((a, v) => a + v * dt, 0)),
+          kw,
+        });
+        plugIns++;
+      }
+      t = u;
+    }
+  }
+  sessions.sort((x, y) => (x.charger < y.charger ? -1 : x.charger > y.charger ? 1 : x.start < y.start ? -1 : x.start > y.start ? 1 : 0));
+
+  // Energy at each departure follows from the power delivered.
+  const shortByBus = new Float64Array(problem.buses.length);
+  let totalShort = 0;
+  const busOut: PlanBus[] = problem.buses.map((bus) => {
+    let e = bus.arrivalKwh;
+    const departures: PlanBus['departures'] = [];
+    for (const stay of bus.stays) {
+      for (let t = stay.a; t < stay.d; t++) e += eta * dt * power[bus.index]![t]!;
+      departures.push({ at: isoAt(stay.departMs, zone), kwh: round(e) });
+      const short = Math.max(0, stay.requiredKwh - e);
+      if (short > 1e-4) {
+        shortByBus[bus.index] = Math.max(shortByBus[bus.index]!, short);
+        totalShort += short;
+      }
+      e -= stay.runKwh;
+    }
+    return { id: bus.id, departures, shortfallKwh: round(shortByBus[bus.index]!), reason: null };
+  });
+  if (totalShort > 0) {
+    const reasons = explainShortfalls(problem, solver, plug, shortByBus);
+    busOut.forEach((b, i) => (b.reason = shortByBus[i]! > 1e-4 ? (reasons[i] ?? 'charger') : null));
+  }
+
+  const baseline = unmanagedBaseline(problem);
+  // Valid for every plan at most as short as this one: cost + M x short >= relaxation optimum.
+  const lowerBound = Math.max(0, lbPenalised - problem.shortfallPenalty * Math.max(totalShort, lbShortfall));
+  const total = cost.total;
+  const gap = total > 1e-9 ? Math.max(0, (total - lowerBound) / total) : 0;
+  const status: Plan['status'] = totalShort > 1e-4 ? 'short' : gap <= 1e-6 ? 'optimal' : 'feasible';
+  return {
+    status,
+    cost: { energy: round(cost.energy), demand: round(cost.demand), total: round(cost.total) },
+    baseline: {
+      energy: round(baseline.cost.energy),
+      demand: round(baseline.cost.demand),
+      total: round(baseline.cost.total),
+      peakKw: round(baseline.peakKw),
+      exceedsSiteLimit: baseline.exceedsSiteLimit,
+    },
+    // Solver tolerance can put the bound a hair above the plan; anything larger stays visible.
+    lowerBound: round(lowerBound > total && lowerBound - total <= 1e-7 * Math.max(1, total) ? total : lowerBound),
+    gap: round(gap, 9),
+    solveMs: 0,
+    slots: problem.slots.map((s, t) => ({ start: s.start, loadKw: round(charging[t]! + s.otherKw), price: s.price, limitKw: s.limitKw })),
+    sessions,
+    buses: busOut,
+    savings: {
+      energy: round(baseline.cost.energy - cost.energy),
+      demand: round(baseline.cost.demand - cost.demand),
+      total: round(baseline.cost.total - cost.total),
+      share: baseline.cost.total > 0 ? round((baseline.cost.total - cost.total) / baseline.cost.total, 6) : 0,
+      peakKw: round(cost.peakKw),
+      baselinePeakKw: round(baseline.peakKw),
+      peakCut: baseline.peakKw > 0 ? round((baseline.peakKw - cost.peakKw) / baseline.peakKw, 6) : 0,
+    },
+    stats: {
+      buses: problem.buses.length,
+      chargers: problem.chargers.length,
+      slots: T,
+      plugIns,
+      lpColumns: 0,
+      lpRows: 0,
+      lowerBoundMs: 0,
+      localSearchMoves: 0,
+      localSearchAccepted: 0,
+      simplexIterations: 0,
+      shortfallKwh: round(totalShort),
+      unavoidableShortfallKwh: round(lbShortfall),
+    },
+  };
+}
