@@ -1,5 +1,5 @@
 import { expect, test } from '@playwright/test';
-import { demo, expectAccessible, latestMailTo, signIn } from './support';
+import { demo, expectAccessible, latestMailTo, signIn, signInAs } from './support';
 
 // Where each demo account starts its day (libs/contracts sections.ts: homeSection).
 const HOMES: [string, string, string][] = [
@@ -85,7 +85,7 @@ test('an invitation e-mail arrives and its link sets a password that then signs 
 });
 
 test('the outbox shows what the fake mail server caught', async ({ page }) => {
-  await signIn(page, demo('admin'));
+  await signInAs(page, demo('admin'));
   await page.goto('/people/outbox');
   await expect(page.getByRole('heading', { level: 1, name: 'Outbox' })).toBeVisible();
   await expectAccessible(page);

@@ -12,6 +12,12 @@ export async function signIn(page: Page, email: string, password = DEMO_PASSWORD
   await page.getByRole('button', { name: 'Sign in' }).click();
 }
 
+/** Signs in and waits until the app has moved on to the user's home. */
+export async function signInAs(page: Page, email: string, password = DEMO_PASSWORD): Promise<void> {
+  await signIn(page, email, password);
+  await expect(page).not.toHaveURL(/\/sign-in/);
+}
+
 /** Fails on any serious or critical accessibility violation on the page as it is now. */
 export async function expectAccessible(page: Page): Promise<void> {
   const results = await new AxeBuilder({ page }).withTags(['wcag2a', 'wcag2aa', 'wcag21a', 'wcag21aa']).analyze();

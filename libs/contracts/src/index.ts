@@ -6,3 +6,4 @@ export * from './users';
 export * from './depots';
 export * from './rates';
 export * from './depot-setup';
+export * from './fleet';

@@ -81,8 +81,19 @@ export function layoutCharger(problem: Problem, hints: AssignmentHints, assignme
     // Earliest hand-over whose weighted time covers this stay's share.
     let h = start;
     while (h < T && cap(start, h) < target) h++;
-    const lo = Math.max(start, Math.min(next.a, s.d));
-    const hi = Math.min(Math.max(s.d, next.a), Math.max(next.d - 1, lo));
+    let lo = Math.max(start, Math.min(next.a, s.d));
+    let hi = Math.min(Math.max(s.d, next.a), Math.max(next.d - 1, lo));
+    if (hints.handover !== 'share') {
+      // Leave each of the two stays the slots it needs at full power, where that is possible.
+      const needA = Math.ceil(hints.energy[s.id]! / (usablePower(problem, s, charger) * problem.slotHours) - 1e-9);
+      const needB = Math.ceil(hints.energy[next.id]! / (usablePower(problem, next, charger) * problem.slotHours) - 1e-9);
+      const lo2 = Math.max(lo, start + needA);
+      const hi2 = Math.min(hi, next.d - needB);
+      if (lo2 <= hi2) {
+        lo = lo2;
+        hi = hi2;
+      }
+    }
     h = Math.min(Math.max(h, lo), hi);
     if (hints.handover !== 'share') {
     // Prefer the hand-over that cuts least of the two stays' charging in the lower bound.

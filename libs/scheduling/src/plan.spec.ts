@@ -89,7 +89,10 @@ describe('shortfall reasons, each produced on purpose', () => {
 
   it('charger: two buses, one charger, overlapping short stays', async () => {
     const p = await plan(night([bus('B1', '13T18:00', '13T20:00', 200), bus('B2', '13T18:00', '13T20:00', 200)]));
-    expect(p.buses.filter((b) => b.reason === 'charger')).toHaveLength(1);
+    // Which of the two is short is a tie; every short bus is short for lack of charger time.
+    const short = p.buses.filter((b) => b.shortfallKwh > 0);
+    expect(short.length).toBeGreaterThan(0);
+    expect(short.every((b) => b.reason === 'charger')).toBe(true);
   });
 
   it('taper: without the taper the bus would fill in time', async () => {
@@ -108,7 +111,9 @@ describe('shortfall reasons, each produced on purpose', () => {
         ],
       }),
     );
-    expect(p.buses.map((b) => b.reason)).toEqual(['cabinet', 'cabinet']);
+    const short = p.buses.filter((b) => b.shortfallKwh > 0);
+    expect(short.length).toBeGreaterThan(0);
+    expect(short.every((b) => b.reason === 'cabinet')).toBe(true);
     expect(p.buses[0]!.shortfallKwh + p.buses[1]!.shortfallKwh).toBeCloseTo(200 - 120, 6);
   });
 
@@ -122,7 +127,10 @@ describe('shortfall reasons, each produced on purpose', () => {
         ],
       }),
     );
-    expect(p.buses.map((b) => b.reason)).toEqual(['site', 'site']);
+    const short = p.buses.filter((b) => b.shortfallKwh > 0);
+    expect(short.length).toBeGreaterThan(0);
+    expect(short.every((b) => b.reason === 'site')).toBe(true);
+    expect(short.reduce((a, b) => a + b.shortfallKwh, 0)).toBeCloseTo(200 - 120, 6);
   });
 });
 

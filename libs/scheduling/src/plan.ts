@@ -4,7 +4,7 @@ import { explainShortfalls, type ShortReason } from './explain.js';
 import { loadSolver, type Solver } from './highs-solver.js';
 import { AssignedModel, localSearch } from './local-search.js';
 import { solveLowerBound } from './lower-bound.js';
-import { powerFrom } from './lp-model.js';
+import { buildChargeModel, powerFrom } from './lp-model.js';
 import { prepareProblem, type Problem } from './problem.js';
 import type { Scenario } from './scenario.js';
 import { isoAt } from './slots.js';
@@ -134,14 +134,26 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
   try {
     let first = live.solve();
     if (first.status !== 'optimal') throw new Error(`plan LP ended ${first.status}; the model should always be solvable`);
-    const other = initialAssignment(problem, { ...hints, order: 'best' });
-    live.update(other, problem.buses.map((b) => b.index));
-    const second = live.solve();
-    if (second.status === 'optimal' && second.objective < first.objective) {
-      start = other;
-      first = second;
-    } else {
-      live.update(start, problem.buses.map((b) => b.index));
+    const all = problem.buses.map((b) => b.index);
+    let current = start;
+    for (const variant of [
+      { order: 'best', handover: 'share' },
+      { order: 'departure', handover: 'least-cut' },
+      { order: 'best', handover: 'least-cut' },
+    ] as const) {
+      if (performance.now() > deadline) break;
+      const other = initialAssignment(problem, { ...hints, ...variant });
+      live.update(other, all);
+      current = other;
+      const res = live.solve();
+      if (res.status === 'optimal' && res.objective < first.objective) {
+        start = other;
+        first = res;
+      }
+    }
+    if (current !== start) {
+      live.update(start, all);
+      first = live.solve();
     }
     search = localSearch(problem, hints, live, start, first, {
       deadline,
@@ -154,7 +166,16 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
   }
   const assignment = search.assignment;
   const plug = plugMapOf(problem, assignment);
-  const power = powerFrom(problem, live.model, search.result.x).map((row) => row.map((v) => round(v)));
+  let power = powerFrom(problem, live.model, search.result.x);
+  if (overfills(problem, power)) {
+    // The model left out taper/ceiling rows a battery was not expected to reach; it reached
+    // one (zero prices, solver tolerance): solve this assignment again with every row.
+    const full = buildChargeModel(problem, { mode: 'assigned', plug, tieBreak: true, allRows: true });
+    const res = solver.solve(full.lp);
+    if (res.status !== 'optimal') throw new Error(`plan LP ended ${res.status}`);
+    power = powerFrom(problem, full, res.x);
+  }
+  power = power.map((row) => row.map((v) => round(v)));
   const plan = assemblePlan(problem, solver, plug, power, lb.penalisedObjective, lb.shortfallKwh);
   plan.stats.lpColumns = live.model.lp.numCols;
   plan.stats.lpRows = live.model.lp.numRows;
@@ -164,6 +185,27 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
   plan.stats.simplexIterations = search.iterations + lb.iterations;
   plan.solveMs = round(performance.now() - t0, 1);
   return plan;
+}
+
+/** Does any battery go above its ceiling or draw more than its taper allows? */
+export function overfills(problem: Problem, power: Float64Array[]): boolean {
+  const { eta, slotHours: dt } = problem;
+  for (const bus of problem.buses) {
+    let e = bus.arrivalKwh;
+    for (const stay of bus.stays) {
+      for (let t = stay.a; t < stay.d; t++) {
+        const p = power[bus.index]![t]!;
+        if (p > 0 && bus.taperFromKwh !== null && e > bus.taperFromKwh) {
+          const cap = (bus.maxKw * (bus.usableKwh - e)) / (bus.usableKwh - bus.taperFromKwh);
+          if (p > cap + 1e-6) return true;
+        }
+        e += eta * dt * p;
+        if (p > 0 && e > bus.ceilingKwh + 1e-6) return true;
+      }
+      e -= stay.runKwh;
+    }
+  }
+  return false;
 }
 
 function assemblePlan(

@@ -1,6 +1,6 @@
 import { sql } from 'drizzle-orm';
 import {
-  boolean, date, doublePrecision, index, integer, jsonb, pgEnum, pgTable, text, timestamp,
+  boolean, date, doublePrecision, index, integer, jsonb, pgEnum, pgTable, primaryKey, text, timestamp,
   uniqueIndex, uuid,
 } from 'drizzle-orm/pg-core';
 import type { Role } from '@nightyard/contracts';
@@ -90,6 +90,8 @@ export const depots = pgTable(
     /** 24 values, kW by local hour; a flat load repeats one value. */
     otherLoadKw: jsonb('other_load_kw').$type<number[]>().notNull(),
     billingStartDay: integer('billing_start_day').notNull().default(1),
+    coldWeatherFactors: jsonb('cold_weather_factors').$type<{ belowF: number; factor: number }[]>().notNull()
+      .default([{ belowF: 50, factor: 1.1 }, { belowF: 32, factor: 1.25 }, { belowF: 14, factor: 1.4 }]),
     createdAt: createdAt(),
   },
   (t) => [index('depots_org_idx').on(t.organisationId)],
@@ -168,6 +170,20 @@ export const depotRatePlans = pgTable(
   (t) => [uniqueIndex('depot_rate_plans_key').on(t.depotId, t.effectiveFrom)],
 );
 
+export const socSource = pgEnum('soc_source', ['typed', 'uploaded', 'estimated']);
+
+/** A service day's conditions: the forecast low sets the cold-weather factor. */
+export const serviceDays = pgTable(
+  'service_days',
+  {
+    organisationId: orgRef(),
+    depotId: uuid('depot_id').notNull().references(() => depots.id, { onDelete: 'cascade' }),
+    serviceDate: date('service_date').notNull(),
+    forecastLowF: doublePrecision('forecast_low_f'),
+  },
+  (t) => [primaryKey({ columns: [t.depotId, t.serviceDate] })],
+);
+
 /** One run of a bus on a service day: it leaves the depot at pull-out and returns at pull-in. */
 export const runs = pgTable(
   'runs',
@@ -181,6 +197,9 @@ export const runs = pgTable(
     pullIn: timestamp('pull_in', { withTimezone: true }).notNull(),
     miles: doublePrecision('miles'),
     kwh: doublePrecision('kwh'),
+    /** State of charge when the bus pulls in from this run. */
+    arrivalSocPct: doublePrecision('arrival_soc_pct'),
+    arrivalSocSource: socSource('arrival_soc_source'),
     createdAt: createdAt(),
   },
   (t) => [index('runs_depot_date_idx').on(t.depotId, t.serviceDate), index('runs_bus_idx').on(t.busId)],

@@ -1,4 +1,4 @@
-import { ChangeDetectionStrategy, Component, ElementRef, computed, inject, input, signal, viewChild } from '@angular/core';
+import { ChangeDetectionStrategy, Component, ElementRef, computed, inject, input, signal } from '@angular/core';
 import { FormControl, FormGroup, ReactiveFormsModule, Validators } from '@angular/forms';
 import { MatButtonModule } from '@angular/material/button';
 import { MatFormFieldModule } from '@angular/material/form-field';
@@ -51,7 +51,6 @@ export class SignInPage {
   protected readonly showPassword = signal(false);
   protected readonly busy = signal(false);
   protected readonly problem = signal<string | null>(null);
-  private readonly problemBox = viewChild<ElementRef<HTMLElement>>('problemBox');
 
   protected async submit(): Promise<void> {
     this.problem.set(null);

@@ -2,11 +2,11 @@ import {
   ChangeDetectionStrategy,
   Component,
   DOCUMENT,
-  DestroyRef,
   computed,
   inject,
   linkedSignal,
 } from '@angular/core';
+import { takeUntilDestroyed } from '@angular/core/rxjs-interop';
 import { MatButtonModule } from '@angular/material/button';
 import { MatIconModule } from '@angular/material/icon';
 import { MatListModule } from '@angular/material/list';
@@ -75,13 +75,15 @@ export class Shell {
     void this.depots.load();
 
     // After each in-app navigation: close the drawer on a phone and move focus to the page.
-    const sub = this.router.events
-      .pipe(filter((e): e is NavigationEnd => e instanceof NavigationEnd))
+    this.router.events
+      .pipe(
+        filter((e): e is NavigationEnd => e instanceof NavigationEnd),
+        takeUntilDestroyed(),
+      )
       .subscribe(() => {
         if (this.phone()) this.navOpen.set(false);
         queueMicrotask(() => this.document.getElementById('main')?.focus({ preventScroll: true }));
       });
-    inject(DestroyRef).onDestroy(() => sub.unsubscribe());
   }
 
   protected toggleNav(): void {
