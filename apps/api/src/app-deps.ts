@@ -2,6 +2,7 @@ import type { Logger } from 'pino';
 import type { AuthSettings } from './auth/auth-service';
 import type { Config } from './config';
 import type { Db } from './db/client';
+import type { JobQueue } from './jobs/job-queue';
 import type { Mailer } from './mail/mailer';
 
 /** What route handlers are given: the database, settings and outside services. */
@@ -10,6 +11,7 @@ export interface AppDeps {
   config: Config;
   auth: AuthSettings;
   mailer: Mailer;
+  jobs: JobQueue;
   log: Logger;
   /** Runs a query against the database to prove it answers (for /api/health). */
   ping: () => Promise<void>;

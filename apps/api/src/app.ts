@@ -12,6 +12,8 @@ import { depotsRoutes } from './depots/depots-routes';
 import { depotSetupRoutes } from './depots/depot-setup-routes';
 import { ratesRoutes } from './rates/rates-routes';
 import { scenarioRoutes } from './scenarios/scenario-routes';
+import { fleetRoutes } from './fleet/fleet-routes';
+import { plansRoutes } from './plans/plans-routes';
 import { outboxRoutes } from './dev/outbox-routes';
 import { apiNotFound, errorHandler } from './http/error-handler';
 import { ApiRoutes, type RegisteredRoute } from './http/route';
@@ -88,6 +90,8 @@ export function createApp(deps: AppDeps): BuiltApp {
   depotSetupRoutes(api, deps);
   ratesRoutes(api, deps);
   scenarioRoutes(api, deps);
+  fleetRoutes(api, deps);
+  plansRoutes(api, deps);
   outboxRoutes(api, deps);
 
   const document = openApiDocument(openapi);

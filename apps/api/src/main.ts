@@ -6,6 +6,9 @@ import { loadConfig } from './config';
 import { createDb, createPool } from './db/client';
 import { applyMigrations } from './db/migrate';
 import { smtpMailer } from './mail/mailer';
+import { startJobQueue } from './jobs/job-queue';
+import { runPlanJob } from './plans/plan-runner';
+import { loadSolver } from '@nightyard/scheduling';
 import { isEmpty, seedDemo } from '../../../tools/demo/seed';
 import { DEMO_PASSWORD, demoUsers } from '../../../tools/demo/demo-depot';
 
@@ -27,8 +30,13 @@ if (config.SEED_DEMO === 'if-empty' && (await isEmpty(db))) {
   log.info('demo data seeded');
 }
 
+// The engine's solver loads once and is warmed before the first plan is asked for.
+await loadSolver();
+const jobs = await startJobQueue({ databaseUrl: config.DATABASE_URL, log, work: (id) => runPlanJob(db, log, id) });
+
 const { app } = createApp({
   db,
+  jobs,
   config: { ...config, WEB_DIST: webDist },
   log,
   mailer: smtpMailer({ host: config.SMTP_HOST, port: config.SMTP_PORT, from: config.MAIL_FROM }, log),
@@ -64,7 +72,7 @@ const server = app.listen(config.PORT, '127.0.0.1', () => {
 
 const shutdown = (signal: string) => {
   log.info({ signal }, 'shutting down');
-  server.close(() => pool.end().then(() => process.exit(0)));
+  server.close(() => jobs.stop().then(() => pool.end()).then(() => process.exit(0)));
   setTimeout(() => process.exit(0), 5000).unref();
 };
 process.on('SIGTERM', () => shutdown('SIGTERM'));

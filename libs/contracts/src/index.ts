@@ -7,3 +7,4 @@ export * from './depots';
 export * from './rates';
 export * from './depot-setup';
 export * from './fleet';
+export * from './plans';

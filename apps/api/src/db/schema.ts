@@ -229,3 +229,41 @@ export const billingPeaks = pgTable('billing_peaks', {
   periodsKw: jsonb('periods_kw').$type<Record<string, number>>().notNull(),
   updatedAt: timestamp('updated_at', { withTimezone: true }).notNull().defaultNow(),
 });
+
+export const planState = pgEnum('plan_state', ['draft', 'published', 'superseded']);
+export const planJobStatus = pgEnum('plan_job_status', ['queued', 'running', 'done', 'failed']);
+export const planKind = pgEnum('plan_kind', ['generated', 'what-if', 'revision']);
+
+/**
+ * A charging plan for one depot's night (service date = the day whose evening it starts).
+ * `scenario` is the engine's input as it was; `result` the engine's plan. Published plans are
+ * never changed: a new version supersedes them.
+ */
+export const plans = pgTable(
+  'plans',
+  {
+    id: id(),
+    organisationId: orgRef(),
+    depotId: uuid('depot_id').notNull().references(() => depots.id, { onDelete: 'cascade' }),
+    serviceDate: date('service_date').notNull(),
+    version: integer('version').notNull(),
+    kind: planKind('kind').notNull().default('generated'),
+    state: planState('state').notNull().default('draft'),
+    status: planJobStatus('status').notNull().default('queued'),
+    stage: text('stage').notNull().default('Waiting for a worker'),
+    error: text('error'),
+    includesMidday: boolean('includes_midday').notNull().default(true),
+    scenario: jsonb('scenario').$type<Record<string, unknown>>().notNull(),
+    notes: jsonb('notes').$type<string[]>().notNull().default([]),
+    result: jsonb('result').$type<Record<string, unknown>>(),
+    createdBy: uuid('created_by').references(() => users.id, { onDelete: 'set null' }),
+    createdAt: createdAt(),
+    publishedAt: timestamp('published_at', { withTimezone: true }),
+    publishedBy: uuid('published_by').references(() => users.id, { onDelete: 'set null' }),
+  },
+  (t) => [
+    uniqueIndex('plans_depot_date_version_key').on(t.depotId, t.serviceDate, t.version),
+    // At most one published plan per depot and night: the database settles a publishing race.
+    uniqueIndex('plans_one_published_key').on(t.depotId, t.serviceDate).where(sql`${t.state} = 'published'`),
+  ],
+);

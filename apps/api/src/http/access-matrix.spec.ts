@@ -11,6 +11,10 @@ const app = createTestApp();
 // Facilities describe the depot and its tariff; admins may too; everyone else reads.
 const EDIT_DEPOT = ['facilities', 'admin'] as const;
 
+// Supervisors keep the fleet and the plans; admins may too. The office roles read the days.
+const FLEET = ['supervisor', 'admin'] as const;
+const OFFICE = ['supervisor', 'admin', 'facilities', 'finance'] as const;
+
 const EXPECTED: Record<string, 'public' | readonly Role[]> = {
   'GET /health': 'public',
   'POST /auth/login': 'public',
@@ -45,6 +49,23 @@ const EXPECTED: Record<string, 'public' | readonly Role[]> = {
   'DELETE /rate-plans/:id': EDIT_DEPOT,
   'GET /rate-plans/:id/preview': ROLES,
   'POST /rate-plans/import-urdb': EDIT_DEPOT,
+  'GET /depots/:depotId/buses': ROLES,
+  'POST /depots/:depotId/buses': FLEET,
+  'PUT /depots/:depotId/buses/:id': FLEET,
+  'GET /depots/:depotId/cold-weather': OFFICE,
+  'PUT /depots/:depotId/cold-weather': FLEET,
+  'GET /depots/:depotId/service-days/:date': OFFICE,
+  'PUT /depots/:depotId/service-days/:date': FLEET,
+  'POST /depots/:depotId/service-days/:date/copy': FLEET,
+  'POST /depots/:depotId/service-days/:date/csv': FLEET,
+  'GET /depots/:depotId/service-days/:date/csv-template': OFFICE,
+  'GET /depots/:depotId/plans': ROLES,
+  'POST /depots/:depotId/plans': FLEET,
+  'POST /depots/:depotId/plans/what-if': FLEET,
+  'GET /plans/:id': ROLES,
+  'GET /plans/:id/scenario': FLEET,
+  'GET /plans/:id/compare': ROLES,
+  'POST /plans/:id/publish': FLEET,
 };
 
 const samplePath = (p: string) =>
@@ -52,6 +73,7 @@ const samplePath = (p: string) =>
     .replace(':id', '00000000-0000-4000-8000-000000000000')
     .replace(':depotId', '00000000-0000-4000-8000-000000000001')
     .replace(':effectiveFrom', '2026-01-01')
+    .replace(':date', '2026-12-09')
     .replace(':token', 'x'.repeat(43));
 
 let people: Record<Role, TestUser>;

@@ -31,3 +31,27 @@ export function resetMail(p: { to: string; name: string; link: string; minutes: 
     ].join('\n'),
   };
 }
+
+export function planPublishedMail(p: {
+  to: string; name: string; depot: string; night: string; version: number; publishedBy: string; buses: number; sessions: number;
+  currency: string; cost: number; baseline: number; short: string[]; link: string;
+}): OutgoingMail {
+  const money = (v: number) => new Intl.NumberFormat('en-US', { style: 'currency', currency: p.currency }).format(v);
+  return {
+    to: p.to,
+    subject: `Charging plan published: ${p.depot}, night of ${p.night} (version ${p.version})`,
+    text: [
+      `Hello ${p.name},`,
+      '',
+      `${p.publishedBy} published version ${p.version} of the charging plan for ${p.depot}, the night of ${p.night}.`,
+      '',
+      `Buses: ${p.buses}; plug-ins: ${p.sessions}.`,
+      `Projected electricity cost: ${money(p.cost)} (unmanaged charging: ${money(p.baseline)}).`,
+      p.short.length ? `Buses that cannot be fully charged: ${p.short.join('; ')}.` : 'Every bus gets the energy its runs need.',
+      '',
+      `Open the plan: ${p.link}`,
+      '',
+      'The plan is advisory: the people on site decide. Only trained and authorised staff connect or disconnect chargers.',
+    ].join('\n'),
+  };
+}

@@ -11,6 +11,8 @@ import { createDb, createPool, type Db } from '../db/client';
 import { organisations, users } from '../db/schema';
 import { hashPassword } from '../auth/secrets';
 import { smtpMailer } from '../mail/mailer';
+import { startJobQueue, type JobQueue } from '../jobs/job-queue';
+import { runPlanJob } from '../plans/plan-runner';
 import { TEST_DATABASE_URL, TEST_FAKE_MAIL_URL, TEST_SMTP_PORT } from './test-env';
 
 export const TEST_PASSWORD = 'correct-horse-battery';
@@ -25,8 +27,21 @@ export function createTestApp(overrides: Partial<AppDeps> = {}) {
     NODE_ENV: 'test', DATABASE_URL: TEST_DATABASE_URL, SMTP_PORT: String(TEST_SMTP_PORT), FAKE_MAIL_URL: TEST_FAKE_MAIL_URL,
   });
   const log = pino({ level: 'silent' });
+  // Real pg-boss on the test database, started only by the tests that queue work.
+  let queue: Promise<JobQueue> | undefined;
+  const jobs: JobQueue = {
+    async enqueuePlan(planId) {
+      queue ??= startJobQueue({ databaseUrl: TEST_DATABASE_URL, log, work: (id) => runPlanJob(db, log, id) });
+      await (await queue).enqueuePlan(planId);
+    },
+    async stop() {
+      if (queue) await (await queue).stop();
+    },
+  };
+  afterAll(() => jobs.stop(), 20_000);
   const deps: AppDeps = {
     db,
+    jobs,
     config,
     log,
     mailer: smtpMailer({ host: '127.0.0.1', port: TEST_SMTP_PORT, from: 'Nightyard <test@nightyard.example>' }, log),

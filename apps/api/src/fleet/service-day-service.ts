@@ -1,0 +1,142 @@
+import { and, asc, eq, inArray } from 'drizzle-orm';
+import { DateTime } from 'luxon';
+import {
+  coldWeatherFactor, type RunInput, type ServiceDay, type ServiceDayInput,
+} from '@nightyard/contracts';
+import type { Db } from '../db/client';
+import { buses, runs, serviceDays } from '../db/schema';
+import { DomainError } from '../http/errors';
+import type { AuthUser } from '../auth/auth-user';
+import { depotOf } from '../depots/depot-access';
+
+const LOCAL = "yyyy-MM-dd'T'HH:mm";
+type DepotRow = Awaited<ReturnType<typeof depotOf>>;
+type BusRow = typeof buses.$inferSelect;
+
+/** kWh a run uses: its measured energy, or miles x consumption x the day's cold-weather factor. */
+export function runEnergyKwh(run: { kwh: number | null; miles: number | null }, bus: { kwhPerMile: number }, factor: number): number {
+  if (run.kwh !== null) return run.kwh;
+  return Math.round((run.miles ?? 0) * bus.kwhPerMile * factor * 100) / 100;
+}
+
+export async function getServiceDay(db: Db, caller: AuthUser, depotId: string, date: string): Promise<ServiceDay> {
+  const depot = await depotOf(db, caller, depotId);
+  const [day] = await db.select().from(serviceDays).where(and(eq(serviceDays.depotId, depotId), eq(serviceDays.serviceDate, date)));
+  const forecastLowF = day?.forecastLowF ?? null;
+  const factor = coldWeatherFactor(depot.coldWeatherFactors, forecastLowF);
+  const rows = await db
+    .select({ run: runs, bus: buses })
+    .from(runs)
+    .innerJoin(buses, eq(buses.id, runs.busId))
+    .where(and(eq(runs.depotId, depotId), eq(runs.serviceDate, date)))
+    .orderBy(asc(buses.number), asc(runs.pullOut));
+  const local = (d: Date) => DateTime.fromJSDate(d, { zone: depot.timezone }).toFormat(LOCAL);
+  // Without a reading, a bus is assumed to leave at its ceiling in the morning and to get no
+  // charge between runs: the estimate errs towards needing more energy, not less.
+  const soc = new Map<string, number>();
+  const out = rows.map(({ run, bus }) => {
+    const energyKwh = runEnergyKwh(run, bus, factor);
+    const before = soc.get(bus.id) ?? bus.ceilingPct;
+    const estimated = Math.max(0, Math.round((before - (energyKwh / bus.usableKwh) * 100) * 10) / 10);
+    soc.set(bus.id, run.arrivalSocPct ?? estimated);
+    return {
+      id: run.id, busId: bus.id, busNumber: bus.number, pullOut: local(run.pullOut), pullIn: local(run.pullIn),
+      miles: run.miles, kwh: run.kwh, energyKwh, arrivalSocPct: run.arrivalSocPct, arrivalSocSource: run.arrivalSocSource,
+      estimatedArrivalSocPct: estimated,
+    };
+  });
+  return { date, forecastLowF, coldWeatherFactor: factor, runs: out };
+}
+
+export interface RowProblem {
+  /** Index into the runs given (for CSV: the file's line number is added by the caller). */
+  index: number;
+  field: string;
+  message: string;
+}
+
+/** Checks that need the database and the runs together: unknown buses, overlaps, impossible times. */
+function checkRuns(depot: DepotRow, date: string, input: RunInput[], fleet: Map<string, BusRow>): RowProblem[] {
+  const problems: RowProblem[] = [];
+  const at = (t: string) => DateTime.fromISO(t, { zone: depot.timezone });
+  const byBus = new Map<string, { i: number; from: number; to: number }[]>();
+  input.forEach((r, i) => {
+    if (!fleet.has(r.busNumber)) {
+      problems.push({ index: i, field: 'bus', message: `Bus ${r.busNumber} is not in this depot's fleet` });
+      return;
+    }
+    const out = at(r.pullOut);
+    const back = at(r.pullIn);
+    if (out.toFormat(LOCAL) !== r.pullOut) problems.push({ index: i, field: 'pullOut', message: `${r.pullOut} does not exist at the depot (clock change)` });
+    if (out.toISODate() !== date) problems.push({ index: i, field: 'pullOut', message: `The pull-out must be on ${date}` });
+    if (back.diff(out, 'hours').hours > 24) problems.push({ index: i, field: 'pullIn', message: 'A run lasts at most 24 hours' });
+    const list = byBus.get(r.busNumber) ?? [];
+    list.push({ i, from: out.toMillis(), to: back.toMillis() });
+    byBus.set(r.busNumber, list);
+  });
+  for (const [bus, list] of byBus) {
+    list.sort((a, b) => a.from - b.from);
+    for (let k = 1; k < list.length; k++) {
+      if (list[k]!.from < list[k - 1]!.to) {
+        problems.push({ index: list[k]!.i, field: 'pullOut', message: `Bus ${bus} is still on another run then (row ${list[k - 1]!.i + 1})` });
+      }
+    }
+  }
+  return problems.sort((a, b) => a.index - b.index);
+}
+
+/** Replaces a service day's runs as a whole: every row is saved, or none. */
+export async function replaceServiceDay(
+  db: Db, caller: AuthUser, depotId: string, date: string, input: ServiceDayInput,
+  source: 'typed' | 'uploaded', label: (index: number, field: string) => string = (i, f) => `runs[${i}].${f === 'bus' ? 'busNumber' : f}`,
+): Promise<ServiceDay> {
+  const depot = await depotOf(db, caller, depotId);
+  const fleetRows = await db.select().from(buses).where(eq(buses.depotId, depotId));
+  const fleet = new Map(fleetRows.map((b) => [b.number, b]));
+  const problems = checkRuns(depot, date, input.runs, fleet);
+  if (problems.length) {
+    const fields: Record<string, string> = {};
+    for (const p of problems) fields[label(p.index, p.field)] ??= p.message;
+    throw new DomainError('validation_failed', `${problems.length} ${problems.length === 1 ? 'row needs' : 'rows need'} fixing; nothing was saved`, fields);
+  }
+  const at = (t: string) => DateTime.fromISO(t, { zone: depot.timezone }).toJSDate();
+  await db.transaction(async (tx) => {
+    await tx.delete(runs).where(and(eq(runs.depotId, depotId), eq(runs.serviceDate, date)));
+    await tx
+      .insert(serviceDays)
+      .values({ organisationId: caller.organisationId, depotId, serviceDate: date, forecastLowF: input.forecastLowF })
+      .onConflictDoUpdate({ target: [serviceDays.depotId, serviceDays.serviceDate], set: { forecastLowF: input.forecastLowF } });
+    if (input.runs.length) {
+      await tx.insert(runs).values(
+        input.runs.map((r) => ({
+          organisationId: caller.organisationId, depotId, busId: fleet.get(r.busNumber)!.id, serviceDate: date,
+          pullOut: at(r.pullOut), pullIn: at(r.pullIn), miles: r.miles, kwh: r.kwh,
+          arrivalSocPct: r.arrivalSocPct, arrivalSocSource: r.arrivalSocPct === null ? null : source,
+        })),
+      );
+    }
+  });
+  return getServiceDay(db, caller, depotId, date);
+}
+
+/** Copies another day's runs to `date` at the same wall-clock times (readings are not copied). */
+export async function copyServiceDay(db: Db, caller: AuthUser, depotId: string, date: string, fromDate: string, replace: boolean): Promise<ServiceDay> {
+  const existing = await getServiceDay(db, caller, depotId, date);
+  if (existing.runs.length && !replace) {
+    throw new DomainError('conflict', `${date} already has ${existing.runs.length} runs: choose to replace them`);
+  }
+  const source = await getServiceDay(db, caller, depotId, fromDate);
+  if (!source.runs.length) throw new DomainError('validation_failed', `${fromDate} has no runs to copy`, { fromDate: 'No runs on that day' });
+  const shift = (t: string) => {
+    const days = DateTime.fromISO(date).diff(DateTime.fromISO(fromDate), 'days').days;
+    return DateTime.fromISO(t).plus({ days }).toFormat(LOCAL);
+  };
+  return replaceServiceDay(db, caller, depotId, date, {
+    forecastLowF: existing.forecastLowF,
+    runs: source.runs.map((r) => ({ busNumber: r.busNumber, pullOut: shift(r.pullOut), pullIn: shift(r.pullIn), miles: r.miles, kwh: r.kwh, arrivalSocPct: null })),
+  }, 'typed');
+}
+
+export async function busesByIds(db: Db, ids: string[]) {
+  return ids.length ? db.select().from(buses).where(inArray(buses.id, ids)) : [];
+}

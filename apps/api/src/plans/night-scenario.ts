@@ -1,0 +1,138 @@
+import { and, asc, eq, gt } from 'drizzle-orm';
+import { DateTime } from 'luxon';
+import { coldWeatherFactor } from '@nightyard/contracts';
+import type { ScenarioInput } from '@nightyard/scheduling';
+import type { Db } from '../db/client';
+import { buses, runs, serviceDays } from '../db/schema';
+import { DomainError } from '../http/errors';
+import type { AuthUser } from '../auth/auth-user';
+import { depotOf } from '../depots/depot-access';
+import { runEnergyKwh } from '../fleet/service-day-service';
+import { buildScenarioBase } from '../scenarios/scenario-base';
+
+const LOCAL = "yyyy-MM-dd'T'HH:mm";
+type Bus = ScenarioInput['buses'][number];
+type Stay = Bus['stays'][number];
+
+const round = (v: number) => Math.round(v * 100) / 100;
+const quarter = (t: DateTime, up: boolean) => {
+  const m = t.minute % 15;
+  const down = t.set({ minute: t.minute - m, second: 0, millisecond: 0 });
+  return up && (m > 0 || t.second > 0) ? down.plus({ minutes: 15 }) : down;
+};
+
+/**
+ * The engine's scenario for the night after `serviceDate`: from the day's first pull-in (or its
+ * last, without the midday layover) to the next service day's last first pull-out. Each bus stays
+ * between its runs; it must leave with its next run's energy plus its reserve.
+ */
+export async function buildNightScenario(db: Db, caller: AuthUser, depotId: string, serviceDate: string, includeMidday: boolean) {
+  const depot = await depotOf(db, caller, depotId);
+  const zone = depot.timezone;
+  const [next] = await db
+    .select({ date: runs.serviceDate })
+    .from(runs)
+    .where(and(eq(runs.depotId, depotId), gt(runs.serviceDate, serviceDate)))
+    .orderBy(asc(runs.serviceDate))
+    .limit(1);
+  if (!next) throw new DomainError('validation_failed', `No runs after ${serviceDate}: enter the next service day's runs under Fleet first`, { serviceDate: 'No next service day' });
+  const dayRows = await db
+    .select({ run: runs, bus: buses })
+    .from(runs)
+    .innerJoin(buses, eq(buses.id, runs.busId))
+    .where(and(eq(runs.depotId, depotId), eq(runs.serviceDate, serviceDate)))
+    .orderBy(asc(runs.pullOut));
+  const nextRows = await db
+    .select({ run: runs, bus: buses })
+    .from(runs)
+    .innerJoin(buses, eq(buses.id, runs.busId))
+    .where(and(eq(runs.depotId, depotId), eq(runs.serviceDate, next.date)))
+    .orderBy(asc(runs.pullOut));
+  const lows = await db.select().from(serviceDays).where(eq(serviceDays.depotId, depotId));
+  const factorOn = (date: string) =>
+    coldWeatherFactor(depot.coldWeatherFactors, lows.find((d) => d.serviceDate === date)?.forecastLowF ?? null);
+  const todayFactor = factorOn(serviceDate);
+  const nextFactor = factorOn(next.date);
+
+  const notes: string[] = [];
+  const at = (d: Date) => DateTime.fromJSDate(d, { zone });
+  const firstOut = new Map<string, (typeof nextRows)[number]>();
+  for (const r of nextRows) if (!firstOut.has(r.bus.id)) firstOut.set(r.bus.id, r);
+  if (!firstOut.size) throw new DomainError('validation_failed', `No runs on ${next.date}`);
+
+  const dayStart = DateTime.fromISO(serviceDate, { zone }).startOf('day');
+  const pullIns = dayRows.map((r) => at(r.run.pullIn));
+  const lastPullIns = [...new Map(dayRows.map((r) => [r.bus.id, at(r.run.pullIn)])).values()];
+  const earliest = (l: DateTime[]) => l.reduce((a, b) => (b < a ? b : a));
+  const latest = (l: DateTime[]) => l.reduce((a, b) => (b > a ? b : a));
+  const from = includeMidday ? pullIns : lastPullIns;
+  const start = quarter(from.length ? earliest(from) : dayStart.set({ hour: 12 }), false);
+  const end = quarter(latest([...firstOut.values()].map((r) => at(r.run.pullOut))), true);
+
+  const base = await buildScenarioBase(db, caller, depotId, start.toFormat(LOCAL), end.toFormat(LOCAL));
+  notes.push(...base.notes);
+
+  const scenarioBuses: Bus[] = [];
+  for (const [busId, n1] of firstOut) {
+    const bus = n1.bus;
+    if (bus.status !== 'active') {
+      notes.push(`Bus ${bus.number} is ${bus.status.replace(/_/g, ' ')} and is left out.`);
+      continue;
+    }
+    const today = dayRows.filter((r) => r.bus.id === busId);
+    const usable = bus.usableKwh;
+    const reserve = round((bus.reservePct / 100) * usable);
+    const ceiling = round((bus.ceilingPct / 100) * usable);
+    const stays: Stay[] = [];
+    // Stays between the day's runs (midday layovers), then the night until the next pull-out.
+    const legs = today.map((r, k) => ({ arrive: at(r.run.pullIn), depart: today[k + 1] ? at(today[k + 1]!.run.pullOut) : at(n1.run.pullOut),
+      nextRun: today[k + 1] ?? n1, nextFactor: today[k + 1] ? todayFactor : nextFactor, arrivedFrom: r }));
+    const usedLegs = legs.filter((l) => l.depart > start && (includeMidday || l.nextRun === n1));
+    let arrivalKwh: number;
+    if (!usedLegs.length) {
+      // Off duty today: it waits at the depot from the start of the horizon.
+      arrivalKwh = ceiling;
+      notes.push(`Bus ${bus.number} has no runs on ${serviceDate}; it is assumed at its ceiling (${bus.ceilingPct} %).`);
+      const need = runEnergyKwh(n1.run, bus, nextFactor);
+      stays.push({ arrive: start.toFormat(LOCAL), depart: at(n1.run.pullOut).toFormat(LOCAL), departMinKwh: round(Math.min(usable, need + reserve)) });
+    } else {
+      const first = usedLegs[0]!.arrivedFrom.run;
+      const soc = first.arrivalSocPct ?? estimateArrivalSoc(today, first.id, bus, todayFactor);
+      if (first.arrivalSocPct === null) notes.push(`Bus ${bus.number}: no state of charge was entered for its ${at(first.pullIn).toFormat('HH:mm')} pull-in; ${soc} % is estimated from miles.`);
+      arrivalKwh = round((soc / 100) * usable);
+      usedLegs.forEach((l, k) => {
+        const need = runEnergyKwh(l.nextRun.run, bus, l.nextFactor);
+        const arrive = l.arrive > start ? l.arrive : start;
+        stays.push({
+          arrive: arrive.toFormat(LOCAL),
+          depart: l.depart.toFormat(LOCAL),
+          departMinKwh: round(Math.min(ceiling, need + reserve)),
+          ...(k < usedLegs.length - 1 ? { runKwh: need } : {}),
+        });
+        if (need + reserve > ceiling) notes.push(`Bus ${bus.number}: its ${l.depart.toFormat('HH:mm')} run needs ${round(need + reserve)} kWh with reserve, above its ceiling (${ceiling} kWh).`);
+      });
+    }
+    scenarioBuses.push({
+      id: bus.number, usableKwh: usable, maxKw: bus.maxChargeKw, arrivalKwh: Math.min(arrivalKwh, usable),
+      ceilingKwh: ceiling, reserveKwh: reserve,
+      ...(bus.taperStartPct !== null ? { taperFromKwh: round((bus.taperStartPct / 100) * usable) } : {}),
+      stays,
+    });
+  }
+  if (!scenarioBuses.length) throw new DomainError('validation_failed', 'No active bus has a run to plan for');
+  const scenario: ScenarioInput = { ...base.scenario, buses: scenarioBuses } as ScenarioInput;
+  return { scenario, notes, nextServiceDate: next.date };
+}
+
+/** Arrival state of charge from the morning ceiling less the runs' energy (see service day). */
+function estimateArrivalSoc(
+  today: { run: { id: string; kwh: number | null; miles: number | null; arrivalSocPct: number | null } }[],
+  runId: string, bus: { ceilingPct: number; usableKwh: number; kwhPerMile: number }, factor: number,
+): number {
+  let soc = bus.ceilingPct;
+  for (const { run } of today) {
+    soc = run.arrivalSocPct ?? Math.max(0, soc - (runEnergyKwh(run, bus, factor) / bus.usableKwh) * 100);
+    if (run.id === runId) return Math.round(soc * 10) / 10;
+  }
+  return Math.round(soc * 10) / 10;
+}

@@ -1,0 +1,55 @@
+import { z } from 'zod';
+import {
+  ROLES, depotIdParamsSchema, generatePlanSchema, planComparisonSchema, planDetailSchema, planIdParamsSchema,
+  planSummarySchema, publishPlanSchema,
+} from '@nightyard/contracts';
+import type { AppDeps } from '../app-deps';
+import type { ApiRoutes } from '../http/route';
+import * as plans from './plans-service';
+
+/** Supervisors generate and publish plans (admins may too); every role reads them. */
+const PLANNERS = ['supervisor', 'admin'] as const;
+const planBody = z.object({ plan: planSummarySchema });
+
+export function plansRoutes(api: ApiRoutes, { db, jobs, mailer, auth }: AppDeps) {
+  api.add(
+    { method: 'get', path: '/depots/:depotId/plans', summary: 'Plan versions of the depot, newest first', tag: 'plans', access: ROLES,
+      params: depotIdParamsSchema, query: z.strictObject({ serviceDate: z.iso.date().optional() }),
+      response: z.object({ plans: z.array(planSummarySchema) }) },
+    async ({ user, params, query }) => ({ plans: await plans.listPlans(db, user, params.depotId, query.serviceDate) }),
+  );
+  api.add(
+    { method: 'post', path: '/depots/:depotId/plans', summary: 'Generate a plan for a night in the background', tag: 'plans',
+      access: PLANNERS, params: depotIdParamsSchema, body: generatePlanSchema, response: planBody, status: 202 },
+    async ({ user, params, body }) => ({ plan: await plans.generatePlan(db, jobs, user, params.depotId, body.serviceDate, body.includeMidday) }),
+  );
+  api.add(
+    { method: 'post', path: '/depots/:depotId/plans/what-if', summary: 'Plan an uploaded scenario file as a what-if draft', tag: 'plans',
+      access: PLANNERS, params: depotIdParamsSchema, body: z.unknown(), response: planBody, status: 202 },
+    async ({ user, params, body }) => ({ plan: await plans.createWhatIf(db, jobs, user, params.depotId, body) }),
+  );
+  api.add(
+    { method: 'get', path: '/plans/:id', summary: 'A plan with its result', tag: 'plans', access: ROLES,
+      params: planIdParamsSchema, response: z.object({ plan: planDetailSchema }) },
+    async ({ user, params }) => ({ plan: await plans.getPlan(db, user, params.id) }),
+  );
+  api.add(
+    { method: 'get', path: '/plans/:id/scenario', summary: 'Download the plan\'s scenario file (its input snapshot)', tag: 'plans',
+      access: PLANNERS, params: planIdParamsSchema },
+    async ({ user, params, res }) => {
+      const file = await plans.planScenarioFile(db, user, params.id);
+      res.setHeader('Content-Disposition', `attachment; filename="${file.name}"`);
+      res.json(file.scenario);
+    },
+  );
+  api.add(
+    { method: 'get', path: '/plans/:id/compare', summary: 'Which buses moved against another version', tag: 'plans', access: ROLES,
+      params: planIdParamsSchema, query: z.strictObject({ with: z.uuid('Not a plan id') }), response: planComparisonSchema },
+    async ({ user, params, query }) => plans.comparePlans(db, user, params.id, query.with),
+  );
+  api.add(
+    { method: 'post', path: '/plans/:id/publish', summary: 'Publish a finished draft to the yard', tag: 'plans', access: PLANNERS,
+      params: planIdParamsSchema, body: publishPlanSchema, response: planBody },
+    async ({ user, params, body }) => ({ plan: await plans.publishPlan(db, mailer, user, params.id, body.expectedPublishedId, auth.publicUrl) }),
+  );
+}

@@ -1,0 +1,211 @@
+import { aliasedTable, and, desc, eq, sql } from 'drizzle-orm';
+import { DateTime } from 'luxon';
+import {
+  planResultSchema, type PlanComparison, type PlanDetail, type PlanResult, type PlanSummary,
+} from '@nightyard/contracts';
+import { parseScenario, type ScenarioInput } from '@nightyard/scheduling';
+import type { Db } from '../db/client';
+import { depots, plans, users } from '../db/schema';
+import { DomainError, conflict, notFound } from '../http/errors';
+import type { AuthUser } from '../auth/auth-user';
+import { depotOf } from '../depots/depot-access';
+import type { JobQueue } from '../jobs/job-queue';
+import type { Mailer } from '../mail/mailer';
+import { planPublishedMail } from '../mail/templates';
+import { buildNightScenario } from './night-scenario';
+
+type PlanRow = typeof plans.$inferSelect;
+const creator = aliasedTable(users, 'creator');
+const publisher = aliasedTable(users, 'publisher');
+
+const resultOf = (row: PlanRow): PlanResult | null => (row.result ? planResultSchema.parse(row.result) : null);
+
+function toSummary(row: PlanRow, createdBy: string | null, publishedBy: string | null): PlanSummary {
+  const result = resultOf(row);
+  return {
+    id: row.id, depotId: row.depotId, serviceDate: row.serviceDate, version: row.version, kind: row.kind, state: row.state,
+    status: row.status, stage: row.stage, error: row.error, includesMidday: row.includesMidday,
+    createdAt: row.createdAt.toISOString(), createdBy, publishedAt: row.publishedAt?.toISOString() ?? null, publishedBy,
+    totalCost: result?.cost.total ?? null,
+    shortBuses: result ? result.buses.filter((b) => b.shortfallKwh > 1e-6).length : null,
+  };
+}
+
+async function loadPlan(db: Db, caller: AuthUser, id: string) {
+  const [row] = await db
+    .select({ plan: plans, createdBy: creator.name, publishedBy: publisher.name })
+    .from(plans)
+    .leftJoin(creator, eq(creator.id, plans.createdBy))
+    .leftJoin(publisher, eq(publisher.id, plans.publishedBy))
+    .where(and(eq(plans.id, id), eq(plans.organisationId, caller.organisationId)));
+  if (!row) throw notFound('That plan');
+  return row;
+}
+
+/** Stores a new draft version for the night and queues the engine run. */
+async function storeDraft(
+  db: Db, jobs: JobQueue, caller: AuthUser, depotId: string, serviceDate: string,
+  values: { kind: PlanRow['kind']; includesMidday: boolean; scenario: ScenarioInput; notes: string[] },
+): Promise<PlanSummary> {
+  const row = await db.transaction(async (tx) => {
+    // Versions count up per night; the depot row lock keeps two requests from taking one number.
+    await tx.select({ id: depots.id }).from(depots).where(eq(depots.id, depotId)).for('update');
+    const [last] = await tx
+      .select({ v: sql<number>`coalesce(max(${plans.version}), 0)::int` })
+      .from(plans)
+      .where(and(eq(plans.depotId, depotId), eq(plans.serviceDate, serviceDate)));
+    const [created] = await tx
+      .insert(plans)
+      .values({
+        organisationId: caller.organisationId, depotId, serviceDate, version: (last?.v ?? 0) + 1, kind: values.kind,
+        includesMidday: values.includesMidday, scenario: values.scenario as unknown as Record<string, unknown>,
+        notes: values.notes, createdBy: caller.id,
+      })
+      .returning();
+    return created!;
+  });
+  await jobs.enqueuePlan(row.id);
+  return toSummary(row, caller.name, null);
+}
+
+export async function generatePlan(
+  db: Db, jobs: JobQueue, caller: AuthUser, depotId: string, serviceDate: string, includeMidday: boolean,
+): Promise<PlanSummary> {
+  const { scenario, notes } = await buildNightScenario(db, caller, depotId, serviceDate, includeMidday);
+  const parsed = parseScenario(scenario);
+  if (!parsed.ok) {
+    throw new DomainError('validation_failed', 'The day\'s data does not make a plannable night',
+      Object.fromEntries(parsed.problems.map((p) => [p.path, p.message])));
+  }
+  return storeDraft(db, jobs, caller, depotId, serviceDate, { kind: 'generated', includesMidday: includeMidday, scenario, notes });
+}
+
+/** A what-if draft from an uploaded scenario file; its night is the day its horizon starts. */
+export async function createWhatIf(db: Db, jobs: JobQueue, caller: AuthUser, depotId: string, file: unknown): Promise<PlanSummary> {
+  const depot = await depotOf(db, caller, depotId);
+  const parsed = parseScenario(file);
+  if (!parsed.ok) {
+    throw new DomainError('validation_failed', `The scenario file has ${parsed.problems.length} problem(s); nothing was saved`,
+      Object.fromEntries(parsed.problems.map((p) => [p.path, p.message])));
+  }
+  if (parsed.scenario.timezone !== depot.timezone) {
+    throw new DomainError('validation_failed', `The file is for ${parsed.scenario.timezone}; ${depot.name} is in ${depot.timezone}`, { timezone: `Must be ${depot.timezone}` });
+  }
+  const serviceDate = parsed.scenario.start.slice(0, 10);
+  return storeDraft(db, jobs, caller, depotId, serviceDate, {
+    kind: 'what-if', includesMidday: true, scenario: file as ScenarioInput, notes: ['Uploaded scenario file (what-if).'],
+  });
+}
+
+export async function listPlans(db: Db, caller: AuthUser, depotId: string, serviceDate?: string): Promise<PlanSummary[]> {
+  await depotOf(db, caller, depotId);
+  const rows = await db
+    .select({ plan: plans, createdBy: creator.name, publishedBy: publisher.name })
+    .from(plans)
+    .leftJoin(creator, eq(creator.id, plans.createdBy))
+    .leftJoin(publisher, eq(publisher.id, plans.publishedBy))
+    .where(and(eq(plans.depotId, depotId), serviceDate ? eq(plans.serviceDate, serviceDate) : undefined))
+    .orderBy(desc(plans.serviceDate), desc(plans.version))
+    .limit(200);
+  return rows.map((r) => toSummary(r.plan, r.createdBy, r.publishedBy));
+}
+
+export async function getPlan(db: Db, caller: AuthUser, id: string): Promise<PlanDetail> {
+  const { plan, createdBy, publishedBy } = await loadPlan(db, caller, id);
+  const scenario = plan.scenario as unknown as ScenarioInput;
+  return {
+    ...toSummary(plan, createdBy, publishedBy),
+    timezone: scenario.timezone,
+    currency: scenario.tariff.currency ?? 'USD',
+    notes: plan.notes,
+    result: resultOf(plan),
+    busCapacityKwh: Object.fromEntries(scenario.buses.map((b) => [b.id, b.usableKwh])),
+  };
+}
+
+export async function planScenarioFile(db: Db, caller: AuthUser, id: string): Promise<{ name: string; scenario: unknown }> {
+  const { plan } = await loadPlan(db, caller, id);
+  return { name: `scenario-${plan.serviceDate}-v${plan.version}.json`, scenario: plan.scenario };
+}
+
+/**
+ * Publishes a finished draft, superseding the night's published plan. The caller names the
+ * published plan they reviewed against; if another was published meanwhile, they get a conflict.
+ */
+export async function publishPlan(
+  db: Db, mailer: Mailer, caller: AuthUser, id: string, expectedPublishedId: string | null, link: (path: string) => string,
+): Promise<PlanSummary> {
+  const published = await db.transaction(async (tx) => {
+    const [plan] = await tx.select().from(plans).where(and(eq(plans.id, id), eq(plans.organisationId, caller.organisationId)));
+    if (!plan) throw notFound('That plan');
+    await tx.select({ id: depots.id }).from(depots).where(eq(depots.id, plan.depotId)).for('update');
+    const [fresh] = await tx.select().from(plans).where(eq(plans.id, id));
+    if (fresh!.state !== 'draft') throw conflict(`Version ${fresh!.version} is already ${fresh!.state}: a published plan never changes`);
+    if (fresh!.status !== 'done') throw conflict('The plan is not finished yet: wait until it has been generated');
+    const [current] = await tx
+      .select({ id: plans.id, version: plans.version, at: plans.publishedAt, by: users.name })
+      .from(plans)
+      .leftJoin(users, eq(users.id, plans.publishedBy))
+      .where(and(eq(plans.depotId, plan.depotId), eq(plans.serviceDate, plan.serviceDate), eq(plans.state, 'published')));
+    if ((current?.id ?? null) !== expectedPublishedId) {
+      throw conflict(
+        current
+          ? `Version ${current.version} was published by ${current.by ?? 'someone'} at ${current.at?.toISOString().slice(11, 16)} UTC while you were reviewing: compare with it, then publish again`
+          : 'The plan you reviewed against is no longer published: reload and compare again',
+      );
+    }
+    if (current) await tx.update(plans).set({ state: 'superseded' }).where(eq(plans.id, current.id));
+    const [row] = await tx
+      .update(plans)
+      .set({ state: 'published', publishedAt: new Date(), publishedBy: caller.id })
+      .where(eq(plans.id, id))
+      .returning();
+    return row!;
+  });
+  await notifyPublished(db, mailer, caller, published, link).catch(() => undefined);
+  return toSummary(published, null, caller.name);
+}
+
+async function notifyPublished(db: Db, mailer: Mailer, caller: AuthUser, plan: PlanRow, link: (path: string) => string) {
+  const [depot] = await db.select().from(depots).where(eq(depots.id, plan.depotId));
+  const recipients = await db
+    .select({ email: users.email, name: users.name })
+    .from(users)
+    .where(and(eq(users.organisationId, plan.organisationId), eq(users.status, 'active'),
+      sql`${users.roles} && array['yard','supervisor']::text[]`));
+  const result = resultOf(plan)!;
+  const scenario = plan.scenario as unknown as ScenarioInput;
+  const short = result.buses.filter((b) => b.shortfallKwh > 1e-6);
+  for (const r of recipients) {
+    await mailer.send(planPublishedMail({
+      to: r.email, name: r.name, depot: depot!.name, night: DateTime.fromISO(plan.serviceDate).toFormat('cccc d LLLL yyyy'),
+      version: plan.version, publishedBy: caller.name, buses: scenario.buses.length, sessions: result.sessions.length,
+      currency: scenario.tariff.currency ?? 'USD', cost: result.cost.total, baseline: result.baseline.total,
+      short: short.map((b) => `${b.id} (${b.shortfallKwh.toFixed(1)} kWh short: ${b.reason})`), link: link(`/plans/${plan.id}`),
+    }));
+  }
+}
+
+/** Which buses changed charger or plug-in times between two versions. */
+export async function comparePlans(db: Db, caller: AuthUser, id: string, otherId: string): Promise<PlanComparison> {
+  const [a, b] = await Promise.all([loadPlan(db, caller, otherId), loadPlan(db, caller, id)]);
+  const ra = resultOf(a.plan);
+  const rb = resultOf(b.plan);
+  if (!ra || !rb) throw conflict('Both plans must be finished to compare them');
+  const zone = (b.plan.scenario as unknown as ScenarioInput).timezone;
+  const describe = (r: PlanResult, bus: string) =>
+    r.sessions
+      .filter((s) => s.bus === bus)
+      .map((s) => `${s.charger} ${DateTime.fromISO(s.start, { zone }).toFormat('HH:mm')}-${DateTime.fromISO(s.end, { zone }).toFormat('HH:mm')}`)
+      .join(', ') || 'not plugged in';
+  const busIds = [...new Set([...ra.buses.map((x) => x.id), ...rb.buses.map((x) => x.id)])].sort();
+  const moved = busIds
+    .map((bus) => ({ bus, before: describe(ra, bus), after: describe(rb, bus) }))
+    .filter((m) => m.before !== m.after);
+  return {
+    from: { id: a.plan.id, version: a.plan.version },
+    to: { id: b.plan.id, version: b.plan.version },
+    moved,
+    costChange: rb.cost.total - ra.cost.total,
+  };
+}

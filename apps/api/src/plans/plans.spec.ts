@@ -1,0 +1,137 @@
+import { eq } from 'drizzle-orm';
+import { beforeAll, describe, expect, it } from 'vitest';
+import { plans } from '../db/schema';
+import { createDepot } from '../testing/depot-fixture';
+import { addBuses, dayRuns } from '../testing/fleet-fixture';
+import { mailFor } from '../testing/mail';
+import { createOrganisation, createTestApp, type TestUser } from '../testing/test-app';
+
+const app = createTestApp();
+let sup: TestUser;
+let sup2: TestUser;
+let yard: TestUser;
+let fin: TestUser;
+let depotId: string;
+const as = (u: TestUser) => ({ Authorization: `Bearer ${u.token}` });
+const NUMBERS = ['11', '12', '13', '14'];
+
+async function finished(id: string, who = sup) {
+  for (let i = 0; i < 200; i++) {
+    const res = await app.request().get(`/api/plans/${id}`).set(as(who)).expect(200);
+    if (res.body.plan.status === 'done' || res.body.plan.status === 'failed') return res.body.plan;
+    await new Promise((r) => setTimeout(r, 100));
+  }
+  throw new Error('plan did not finish');
+}
+
+beforeAll(async () => {
+  const org = await createOrganisation(app, { sup: ['supervisor'], sup2: ['supervisor'], yard: ['yard'], fin: ['finance'] });
+  ({ sup, sup2, yard, fin } = org.users as Record<string, TestUser>);
+  depotId = (await createDepot(app.db, org.organisationId)).depot.id;
+  await addBuses(app.db, org.organisationId, depotId, NUMBERS);
+  // Wednesday and Thursday: the plan covers Wednesday's midday layover and night.
+  await app.request().put(`/api/depots/${depotId}/service-days/2026-12-09`).set(as(sup))
+    .send({ forecastLowF: 25, runs: dayRuns('2026-12-09', NUMBERS, (i) => 40 + i * 5) }).expect(200);
+  await app.request().put(`/api/depots/${depotId}/service-days/2026-12-10`).set(as(sup))
+    .send({ forecastLowF: 25, runs: dayRuns('2026-12-10', NUMBERS) }).expect(200);
+});
+
+describe('plans', () => {
+  let first: { id: string };
+
+  it('generates a plan through the pg-boss queue and stores it with its input snapshot', async () => {
+    const res = await app.request().post(`/api/depots/${depotId}/plans`).set(as(sup)).send({ serviceDate: '2026-12-09' }).expect(202);
+    expect(res.body.plan).toMatchObject({ version: 1, state: 'draft', status: 'queued' });
+    const plan = await finished(res.body.plan.id);
+    expect(plan.status).toBe('done');
+    first = plan;
+    const [row] = await app.db.select().from(plans).where(eq(plans.id, plan.id));
+    const scenario = row!.scenario as { buses: { id: string; stays: { arrive: string; depart: string }[] }[] };
+    expect(scenario.buses.map((b) => b.id)).toEqual(NUMBERS);
+    // Midday layover and night: two stays per bus.
+    expect(scenario.buses[0]!.stays.map((s) => [s.arrive, s.depart])).toEqual([
+      ['2026-12-09T08:40', '2026-12-09T14:10'],
+      ['2026-12-09T16:20', '2026-12-10T06:10'],
+    ]);
+    expect(plan.result.sessions.length).toBeGreaterThan(0);
+    expect(plan.result.cost.total).toBeLessThanOrEqual(plan.result.baseline.total);
+    // Every bus leaves in the morning with at least its first run plus its reserve.
+    for (const bus of scenario.buses as unknown as { id: string; stays: { departMinKwh: number }[] }[]) {
+      const out = plan.result.buses.find((b: { id: string }) => b.id === bus.id);
+      expect(out.departures.at(-1).kwh + out.shortfallKwh).toBeGreaterThanOrEqual(bus.stays.at(-1)!.departMinKwh - 1e-6);
+    }
+  });
+
+  it('the scenario file downloads and comes back as a what-if draft', async () => {
+    const file = await app.request().get(`/api/plans/${first.id}/scenario`).set(as(sup)).expect(200);
+    expect(file.headers['content-disposition']).toMatch(/scenario-2026-12-09-v1\.json/);
+    const whatIf = await app.request().post(`/api/depots/${depotId}/plans/what-if`).set(as(sup))
+      .send({ ...file.body, site: { ...file.body.site, limitKw: 90 } }).expect(202);
+    const plan = await finished(whatIf.body.plan.id);
+    expect(plan.kind).toBe('what-if');
+    expect(plan.version).toBe(2);
+  });
+
+  it('a scenario file of another version is refused with its field, nothing saved', async () => {
+    const file = await app.request().get(`/api/plans/${first.id}/scenario`).set(as(sup)).expect(200);
+    const before = (await app.db.select().from(plans).where(eq(plans.depotId, depotId))).length;
+    const res = await app.request().post(`/api/depots/${depotId}/plans/what-if`).set(as(sup)).send({ ...file.body, version: 2 }).expect(400);
+    expect(res.body.error.fields.version).toBe('must be 1');
+    expect((await app.db.select().from(plans).where(eq(plans.depotId, depotId))).length).toBe(before);
+  });
+
+  it('publishes: the yard and supervisors get an e-mail with the summary and a link; the plan never changes', async () => {
+    const res = await app.request().post(`/api/plans/${first.id}/publish`).set(as(sup)).send({ expectedPublishedId: null }).expect(200);
+    expect(res.body.plan.state).toBe('published');
+    const [mail] = await mailFor(yard.email);
+    expect(mail!.subject).toMatch(/Charging plan published: Test depot, night of Wednesday 9 December 2026 \(version 1\)/);
+    expect(mail!.text).toContain(`http://nightyard.test/plans/${first.id}`);
+    expect(mail!.text).toMatch(/Projected electricity cost: \$[\d,.]+ \(unmanaged charging: \$[\d,.]+\)/);
+    expect(await mailFor(sup2.email)).toHaveLength(1);
+    expect(await mailFor(fin.email, 1, 300)).toHaveLength(0);
+    const again = await app.request().post(`/api/plans/${first.id}/publish`).set(as(sup)).send({ expectedPublishedId: null }).expect(409);
+    expect(again.body.error.message).toMatch(/already published/);
+  });
+
+  it('two supervisors publishing at once: exactly one wins, the other gets a clear conflict', async () => {
+    const a = await app.request().post(`/api/depots/${depotId}/plans`).set(as(sup)).send({ serviceDate: '2026-12-09', includeMidday: false }).expect(202);
+    const b = await app.request().post(`/api/depots/${depotId}/plans`).set(as(sup2)).send({ serviceDate: '2026-12-09' }).expect(202);
+    await finished(a.body.plan.id);
+    await finished(b.body.plan.id);
+    const results = await Promise.all([
+      app.request().post(`/api/plans/${a.body.plan.id}/publish`).set(as(sup)).send({ expectedPublishedId: first.id }),
+      app.request().post(`/api/plans/${b.body.plan.id}/publish`).set(as(sup2)).send({ expectedPublishedId: first.id }),
+    ]);
+    expect(results.map((r) => r.status).sort()).toEqual([200, 409]);
+    const loser = results.find((r) => r.status === 409)!;
+    expect(loser.body.error.message).toMatch(/Version \d was published by .* while you were reviewing/);
+    const published = await app.db.select().from(plans).where(eq(plans.depotId, depotId));
+    expect(published.filter((p) => p.state === 'published')).toHaveLength(1);
+    expect(published.find((p) => p.id === first.id)!.state).toBe('superseded');
+    // The versions are kept and listed.
+    const list = await app.request().get(`/api/depots/${depotId}/plans`).query({ serviceDate: '2026-12-09' }).set(as(fin)).expect(200);
+    expect(list.body.plans.map((p: { version: number }) => p.version)).toEqual([4, 3, 2, 1]);
+  });
+
+  it('compares two versions and lists the buses that moved', async () => {
+    const list = await app.request().get(`/api/depots/${depotId}/plans`).set(as(sup)).expect(200);
+    const [v4, v3] = list.body.plans;
+    const res = await app.request().get(`/api/plans/${v4.id}/compare`).query({ with: v3.id }).set(as(sup)).expect(200);
+    expect(res.body.from.version).toBe(3);
+    expect(res.body.to.version).toBe(4);
+    for (const m of res.body.moved) expect(m.before).not.toBe(m.after);
+  });
+
+  it('roles and isolation', async () => {
+    await app.request().post(`/api/depots/${depotId}/plans`).set(as(yard)).send({ serviceDate: '2026-12-09' }).expect(403);
+    await app.request().post(`/api/plans/${first.id}/publish`).set(as(fin)).send({ expectedPublishedId: null }).expect(403);
+    const outsider = (await createOrganisation(app, { s: ['supervisor'] })).users.s!;
+    await app.request().get(`/api/plans/${first.id}`).set(as(outsider)).expect(404);
+    await app.request().post(`/api/depots/${depotId}/plans`).set(as(outsider)).send({ serviceDate: '2026-12-09' }).expect(404);
+  });
+
+  it('a night without a next service day is refused with what to do', async () => {
+    const res = await app.request().post(`/api/depots/${depotId}/plans`).set(as(sup)).send({ serviceDate: '2026-12-10' }).expect(400);
+    expect(res.body.error.message).toMatch(/No runs after 2026-12-10: enter the next service day's runs under Fleet first/);
+  });
+});

@@ -1,0 +1,24 @@
+import { pino } from 'pino';
+import { loadConfig } from './config';
+import { createDb, createPool } from './db/client';
+import { startJobQueue } from './jobs/job-queue';
+import { runPlanJob } from './plans/plan-runner';
+import { loadSolver } from '@nightyard/scheduling';
+
+// `npm run worker`: an extra process that takes plan jobs from the queue in PostgreSQL. Run as
+// many as the machines allow; each job is worked once.
+const config = loadConfig();
+const log = pino({ level: config.LOG_LEVEL, base: { service: 'nightyard-worker' } });
+const pool = createPool(config.DATABASE_URL);
+const db = createDb(pool);
+await loadSolver();
+const jobs = await startJobQueue({ databaseUrl: config.DATABASE_URL, log, work: (id) => runPlanJob(db, log, id) });
+log.info('worker waiting for plan jobs');
+
+const stop = async () => {
+  await jobs.stop();
+  await pool.end();
+  process.exit(0);
+};
+process.on('SIGTERM', stop);
+process.on('SIGINT', stop);

@@ -1,0 +1,80 @@
+import { z } from 'zod';
+
+export const planStateSchema = z.enum(['draft', 'published', 'superseded']);
+export type PlanState = z.infer<typeof planStateSchema>;
+export const planJobStatusSchema = z.enum(['queued', 'running', 'done', 'failed']);
+export const planKindSchema = z.enum(['generated', 'what-if', 'revision']);
+
+export const generatePlanSchema = z.strictObject({
+  serviceDate: z.iso.date('Write the date as YYYY-MM-DD'),
+  /** Also plan the midday layover between the day's morning and afternoon runs. */
+  includeMidday: z.boolean().default(true),
+});
+
+export const publishPlanSchema = z.strictObject({
+  /** The published plan the supervisor reviewed against (null: none was published). */
+  expectedPublishedId: z.uuid().nullable(),
+});
+
+/** The engine's plan output (see the scenario format), kept loose here: the engine defines it. */
+export const planResultSchema = z.looseObject({
+  status: z.enum(['optimal', 'feasible', 'short']),
+  cost: z.object({ energy: z.number(), demand: z.number(), total: z.number() }),
+  baseline: z.looseObject({ energy: z.number(), demand: z.number(), total: z.number(), peakKw: z.number(), exceedsSiteLimit: z.boolean() }),
+  lowerBound: z.number(),
+  gap: z.number(),
+  solveMs: z.number(),
+  slots: z.array(z.object({ start: z.string(), loadKw: z.number(), price: z.number(), limitKw: z.number() })),
+  sessions: z.array(z.object({ bus: z.string(), charger: z.string(), start: z.string(), end: z.string(), kwh: z.number(), kw: z.array(z.number()) })),
+  buses: z.array(z.object({
+    id: z.string(),
+    departures: z.array(z.object({ at: z.string(), kwh: z.number() })),
+    shortfallKwh: z.number(),
+    reason: z.string().nullable(),
+  })),
+});
+export type PlanResult = z.infer<typeof planResultSchema>;
+
+export const planSummarySchema = z.object({
+  id: z.uuid(),
+  depotId: z.uuid(),
+  serviceDate: z.iso.date(),
+  version: z.number().int(),
+  kind: planKindSchema,
+  state: planStateSchema,
+  status: planJobStatusSchema,
+  stage: z.string(),
+  error: z.string().nullable(),
+  includesMidday: z.boolean(),
+  createdAt: z.iso.datetime({ offset: true }),
+  createdBy: z.string().nullable(),
+  publishedAt: z.iso.datetime({ offset: true }).nullable(),
+  publishedBy: z.string().nullable(),
+  totalCost: z.number().nullable(),
+  shortBuses: z.number().int().nullable(),
+});
+export type PlanSummary = z.infer<typeof planSummarySchema>;
+
+export const planDetailSchema = planSummarySchema.extend({
+  timezone: z.string(),
+  currency: z.string(),
+  notes: z.array(z.string()),
+  result: planResultSchema.nullable(),
+  /** Bus number -> battery size, to show states of charge. */
+  busCapacityKwh: z.record(z.string(), z.number()),
+});
+export type PlanDetail = z.infer<typeof planDetailSchema>;
+
+export const planComparisonSchema = z.object({
+  from: z.object({ id: z.uuid(), version: z.number().int() }),
+  to: z.object({ id: z.uuid(), version: z.number().int() }),
+  moved: z.array(z.object({
+    bus: z.string(),
+    before: z.string(),
+    after: z.string(),
+  })),
+  costChange: z.number().nullable(),
+});
+export type PlanComparison = z.infer<typeof planComparisonSchema>;
+
+export const planIdParamsSchema = z.strictObject({ id: z.uuid('Not a plan id') });
