@@ -96,7 +96,7 @@ export const demoRatePlan = {
  * A school day's runs for bus index i (0-23): a morning run, a midday layover at the depot and an
  * afternoon run. Deterministic so every seed gives the same week. Times are local wall-clock.
  */
-export function demoRunsForBus(i: number): { pullOut: string; pullIn: string; miles: number }[] {
+export function demoRunsForBus(i: number): { pullOut: string; pullIn: string; miles: number; arrivalSocPct?: number }[] {
   const stagger = (i * 7) % 50; // minutes, spreads pull-outs over 06:00-06:50
   const morningOut = 6 * 60 + stagger;
   const morningMiles = 24 + ((i * 13) % 19); // 24-42 miles
@@ -107,6 +107,11 @@ export function demoRunsForBus(i: number): { pullOut: string; pullIn: string; mi
   const hhmm = (m: number) => `${String(Math.floor(m / 60)).padStart(2, '0')}:${String(m % 60).padStart(2, '0')}`;
   return [
     { pullOut: hhmm(morningOut), pullIn: hhmm(morningIn), miles: morningMiles },
-    { pullOut: hhmm(afternoonOut), pullIn: hhmm(afternoonIn), miles: afternoonMiles },
+    { pullOut: hhmm(afternoonOut), pullIn: hhmm(afternoonIn), miles: afternoonMiles, arrivalSocPct: 28 + ((i * 19) % 33) },
   ];
+}
+
+/** An invented early-winter week: forecast lows (°F) by day offset from today. */
+export function demoForecastLowF(dayOffset: number): number {
+  return [31, 27, 22, 35, 40, 18, 25, 29, 33][(dayOffset + 1) % 9]!;
 }

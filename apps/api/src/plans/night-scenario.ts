@@ -24,7 +24,8 @@ const quarter = (t: DateTime, up: boolean) => {
 /**
  * The engine's scenario for the night after `serviceDate`: from the day's first pull-in (or its
  * last, without the midday layover) to the next service day's last first pull-out. Each bus stays
- * between its runs; it must leave with its next run's energy plus its reserve.
+ * between its runs; it must leave with the energy of what it drives before its next charge plus
+ * its reserve, capped at its ceiling.
  */
 export async function buildNightScenario(db: Db, caller: AuthUser, depotId: string, serviceDate: string, includeMidday: boolean) {
   const depot = await depotOf(db, caller, depotId);
@@ -88,12 +89,17 @@ export async function buildNightScenario(db: Db, caller: AuthUser, depotId: stri
     const legs = today.map((r, k) => ({ arrive: at(r.run.pullIn), depart: today[k + 1] ? at(today[k + 1]!.run.pullOut) : at(n1.run.pullOut),
       nextRun: today[k + 1] ?? n1, nextFactor: today[k + 1] ? todayFactor : nextFactor, arrivedFrom: r }));
     const usedLegs = legs.filter((l) => l.depart > start && (includeMidday || l.nextRun === n1));
+    // Overnight the bus takes on the whole next day's runs: a midday top-up is welcome but not
+    // counted on. Between runs it needs the next run only.
+    const nextDay = nextRows.filter((r) => r.bus.id === busId).reduce((sum, r) => sum + runEnergyKwh(r.run, bus, nextFactor), 0);
+    const legNeed = (overnight: boolean, run: (typeof dayRows)[number]['run']) =>
+      overnight ? round(nextDay) : runEnergyKwh(run, bus, todayFactor);
     let arrivalKwh: number;
     if (!usedLegs.length) {
       // Off duty today: it waits at the depot from the start of the horizon.
       arrivalKwh = ceiling;
       notes.push(`Bus ${bus.number} has no runs on ${serviceDate}; it is assumed at its ceiling (${bus.ceilingPct} %).`);
-      const need = runEnergyKwh(n1.run, bus, nextFactor);
+      const need = legNeed(true, n1.run);
       stays.push({ arrive: start.toFormat(LOCAL), depart: at(n1.run.pullOut).toFormat(LOCAL), departMinKwh: round(Math.min(usable, need + reserve)) });
     } else {
       const first = usedLegs[0]!.arrivedFrom.run;
@@ -101,15 +107,17 @@ export async function buildNightScenario(db: Db, caller: AuthUser, depotId: stri
       if (first.arrivalSocPct === null) notes.push(`Bus ${bus.number}: no state of charge was entered for its ${at(first.pullIn).toFormat('HH:mm')} pull-in; ${soc} % is estimated from miles.`);
       arrivalKwh = round((soc / 100) * usable);
       usedLegs.forEach((l, k) => {
-        const need = runEnergyKwh(l.nextRun.run, bus, l.nextFactor);
+        const need = legNeed(l.nextRun === n1, l.nextRun.run);
         const arrive = l.arrive > start ? l.arrive : start;
         stays.push({
           arrive: arrive.toFormat(LOCAL),
           depart: l.depart.toFormat(LOCAL),
           departMinKwh: round(Math.min(ceiling, need + reserve)),
-          ...(k < usedLegs.length - 1 ? { runKwh: need } : {}),
+          ...(k < usedLegs.length - 1 ? { runKwh: runEnergyKwh(l.nextRun.run, bus, l.nextFactor) } : {}),
         });
-        if (need + reserve > ceiling) notes.push(`Bus ${bus.number}: its ${l.depart.toFormat('HH:mm')} run needs ${round(need + reserve)} kWh with reserve, above its ceiling (${ceiling} kWh).`);
+        if (need + reserve > ceiling) {
+          notes.push(`Bus ${bus.number} needs ${round(need + reserve)} kWh with reserve for what follows its ${l.depart.toFormat('HH:mm')} pull-out, above its ceiling (${ceiling} kWh): it leaves at the ceiling and relies on the midday layover.`);
+        }
       });
     }
     scenarioBuses.push({
