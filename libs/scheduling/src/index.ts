@@ -9,3 +9,7 @@ export { initialAssignment, plugMapOf, type Assignment, type AssignmentHints } f
 export { unmanagedBaseline, acceptance, type Baseline } from './baseline.js';
 export { explainShortfalls, soloShortfall, type ShortReason } from './explain.js';
 export { planScenario, planProblem, defaultTimeBudgetMs, type Plan, type PlanOptions, type PlanSession, type PlanBus, type PlanCost } from './plan.js';
+// Rate plans and bills (shared by the engine's users: API, costs, tests).
+export { dayTypeOf, seasonOf, periodAt as ratePlanPeriodAt, pricedSlots, daySlots, SLOT_MINUTES, type PricedSlot } from './bill/rate-calendar.js';
+export { previewDay } from './bill/rate-preview.js';
+export { computeBill, nightMarginalCost, peaksOf, type Bill, type BillLine, type BillOptions, type IntervalDemand } from './bill/bill.js';

@@ -6,7 +6,7 @@ import {
 import type { AppDeps } from '../app-deps';
 import { depots } from '../db/schema';
 import type { ApiRoutes } from '../http/route';
-import { previewDay } from './rate-preview';
+import { previewDay } from '@nightyard/scheduling';
 import * as plans from './rate-plans-service';
 import { importUrdb } from './urdb-import';
 

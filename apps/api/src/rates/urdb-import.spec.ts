@@ -1,7 +1,7 @@
 import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
 import { DomainError } from '../http/errors';
-import { previewDay } from './rate-preview';
+import { previewDay } from '@nightyard/scheduling';
 import { importUrdb } from './urdb-import';
 
 // Hand-written records of an invented utility, following the OpenEI URDB field definitions:

@@ -7,7 +7,7 @@ import { billingPeaks, chargers, depotRatePlans, loadReductionWindows, powerCabi
 import { DomainError } from '../http/errors';
 import type { AuthUser } from '../auth/auth-user';
 import { depotOf } from '../depots/depot-access';
-import { pricedSlots, seasonOf, type PricedSlot } from '../rates/tariff-calendar';
+import { pricedSlots, seasonOf, type PricedSlot } from '@nightyard/scheduling';
 
 /** Grid-to-battery efficiency of DC charging: about 0.90-0.95 (common practice). */
 export const DEFAULT_EFFICIENCY = 0.92;

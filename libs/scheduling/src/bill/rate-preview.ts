@@ -1,6 +1,6 @@
 import { DateTime } from 'luxon';
 import type { RatePlanDefinition, RatePreview } from '@nightyard/contracts';
-import { dayTypeOf, daySlots, seasonOf } from './tariff-calendar';
+import { dayTypeOf, daySlots, seasonOf } from './rate-calendar';
 
 /** A day's price bands: runs of slots with the same period, in local times with offsets. */
 export function previewDay(def: RatePlanDefinition, isoDate: string, zone: string): RatePreview {

@@ -1,7 +1,7 @@
 import { DateTime } from 'luxon';
 import { describe, expect, it } from 'vitest';
 import { ratePlanDefinitionSchema } from '@nightyard/contracts';
-import { daySlots, periodAt } from './tariff-calendar';
+import { daySlots, periodAt } from './rate-calendar';
 import { previewDay } from './rate-preview';
 
 const plan = ratePlanDefinitionSchema.parse({

@@ -1,0 +1,89 @@
+import { DateTime } from 'luxon';
+import { describe, expect, it } from 'vitest';
+import { ratePlanDefinitionSchema } from '@nightyard/contracts';
+import { computeBill, nightMarginalCost, type IntervalDemand } from './bill.js';
+
+const ZONE = 'America/Chicago';
+const series = (startIso: string, minutes: number, kwhs: number[]): IntervalDemand[] => {
+  const t0 = DateTime.fromISO(startIso, { zone: ZONE }).toMillis();
+  return kwhs.map((kwh, i) => ({ startMs: t0 + i * minutes * 60_000, kwh }));
+};
+
+describe('bill engine against published worked examples', () => {
+  it('Energy Management Handbook (Turner and Doty), 18.5.1 "Calculation of a monthly bill": $1,624.72', () => {
+    // June commercial bill: 17,588 kWh at $0.09444 with a fuel adjustment of -$0.017192/kWh,
+    // 30 kW billing demand costing $262.34, customer charge $3.74. The demand rate is the
+    // handbook's $262.34 / 30 kW; energy and adjustment are one flat price here.
+    const def = ratePlanDefinitionSchema.parse({
+      currency: 'USD',
+      seasons: [{ name: 'All year', fromMonth: 1, toMonth: 12, offPeakPrice: 0.09444 - 0.017192, facilityDemandCharge: 262.34 / 30, periods: [] }],
+      fixedCharges: [{ name: 'Customer charge', amount: 3.74, per: 'month' }],
+    });
+    // 30 June days of 15-minute intervals: one interval at 30 kW (7.5 kWh), the rest share the remainder.
+    const n = 30 * 96;
+    const rest = (17_588 - 7.5) / (n - 1);
+    const kwhs = Array.from({ length: n }, (_, i) => (i === 500 ? 7.5 : rest));
+    const bill = computeBill(def, series('2026-06-01T00:00', 15, kwhs), { zone: ZONE, intervalMinutes: 15, days: 30 });
+    expect(bill.kwh).toBeCloseTo(17_588, 6);
+    expect(bill.energyTotal).toBeCloseTo(1_661.01 - 302.37, 1);
+    expect(bill.demand[0]!.quantity).toBeCloseTo(30, 9);
+    expect(bill.demandTotal).toBe(262.34);
+    expect(bill.fixedTotal).toBe(3.74);
+    expect(bill.total).toBe(1_624.72);
+  });
+
+  it('demand from interval data: 150 kWh in 30 minutes is 300 kW; at $12.50/kW-month, $3,750 (common practice)', () => {
+    const def = ratePlanDefinitionSchema.parse({
+      currency: 'USD',
+      seasons: [{ name: 'All year', fromMonth: 1, toMonth: 12, offPeakPrice: 0, facilityDemandCharge: 12.5, periods: [] }],
+    });
+    const bill = computeBill(def, series('2026-03-02T10:00', 30, [100, 150, 120]), { zone: ZONE, intervalMinutes: 30, days: 31 });
+    expect(bill.demand[0]!.quantity).toBe(300);
+    expect(bill.demandTotal).toBe(3_750);
+  });
+});
+
+describe('bill engine', () => {
+  const tou = ratePlanDefinitionSchema.parse({
+    currency: 'USD',
+    seasons: [{
+      name: 'Winter', fromMonth: 1, toMonth: 12, offPeakPrice: 0.07, facilityDemandCharge: 7.5,
+      periods: [{ name: 'on-peak', price: 0.18, demandCharge: 9, windows: [{ dayTypes: ['weekday'], from: '16:00', to: '20:00' }] }],
+    }],
+    fixedCharges: [{ name: 'Meter', amount: 1.5, per: 'day' }],
+  });
+
+  it('splits energy by period and charges the period peak inside its windows only', () => {
+    // Wednesday 15:00-17:00 in 15-minute steps: 15:00-16:00 off-peak at 100 kW, 16:00-17:00 on-peak at 40 kW.
+    const kwhs = [25, 25, 25, 25, 10, 10, 10, 10];
+    const bill = computeBill(tou, series('2026-12-02T15:00', 15, kwhs), { zone: ZONE, intervalMinutes: 15, days: 31 });
+    expect(bill.energy).toEqual([
+      { name: 'Energy, off-peak', quantity: 100, unit: 'kWh', rate: 0.07, amount: 7 },
+      { name: 'Energy, on-peak', quantity: 40, unit: 'kWh', rate: 0.18, amount: 7.2 },
+    ]);
+    expect(bill.demand.map((d) => [d.name, d.quantity, d.amount])).toEqual([
+      ['Facility demand', 100, 750],
+      ['Demand, on-peak', 40, 360],
+    ]);
+    expect(bill.fixed).toEqual([{ name: 'Meter', quantity: 31, unit: 'day', rate: 1.5, amount: 46.5 }]);
+    expect(bill.total).toBe(7 + 7.2 + 750 + 360 + 46.5);
+  });
+
+  it('a night below the peaks so far adds no demand cost; above them only the increase', () => {
+    const night = series('2026-12-02T21:00', 15, [20, 30, 30, 20]);
+    const below = nightMarginalCost(tou, night, { zone: ZONE, intervalMinutes: 15, peaksSoFarKw: { facility: 150 } });
+    expect(below.demandTotal).toBe(0);
+    expect(below.fixedTotal).toBe(0);
+    expect(below.energyTotal).toBeCloseTo(100 * 0.07, 9);
+    const above = nightMarginalCost(tou, night, { zone: ZONE, intervalMinutes: 15, peaksSoFarKw: { facility: 100 } });
+    expect(above.demandTotal).toBe(20 * 7.5);
+  });
+
+  it('a 25-hour clock-change day has 100 intervals and each is priced by its own local time', () => {
+    const t0 = DateTime.fromISO('2026-11-01T00:00', { zone: ZONE }).toMillis();
+    const day = Array.from({ length: 100 }, (_, i) => ({ startMs: t0 + i * 900_000, kwh: 1 }));
+    const bill = computeBill(tou, day, { zone: ZONE, intervalMinutes: 15, days: 1 });
+    // Sunday: no on-peak; 100 kWh all off-peak.
+    expect(bill.energy).toEqual([{ name: 'Energy, off-peak', quantity: 100, unit: 'kWh', rate: 0.07, amount: 7 }]);
+  });
+});
