@@ -14,6 +14,7 @@ import { ratesRoutes } from './rates/rates-routes';
 import { scenarioRoutes } from './scenarios/scenario-routes';
 import { fleetRoutes } from './fleet/fleet-routes';
 import { plansRoutes } from './plans/plans-routes';
+import { costsRoutes } from './costs/costs-routes';
 import { outboxRoutes } from './dev/outbox-routes';
 import { apiNotFound, errorHandler } from './http/error-handler';
 import { ApiRoutes, type RegisteredRoute } from './http/route';
@@ -66,6 +67,8 @@ export function createApp(deps: AppDeps): BuiltApp {
   );
 
   const router = express.Router();
+  // Interval-data files arrive as JSON strings; everything else is small.
+  router.use('/depots/:depotId/meter-data', express.json({ limit: '25mb', strict: true }));
   router.use(express.json({ limit: '1mb', strict: true }));
   router.use(cookieParser());
   const openapi = newOpenApiRegistry();
@@ -92,6 +95,7 @@ export function createApp(deps: AppDeps): BuiltApp {
   scenarioRoutes(api, deps);
   fleetRoutes(api, deps);
   plansRoutes(api, deps);
+  costsRoutes(api, deps);
   outboxRoutes(api, deps);
 
   const document = openApiDocument(openapi);

@@ -8,3 +8,4 @@ export * from './rates';
 export * from './depot-setup';
 export * from './fleet';
 export * from './plans';
+export * from './costs';

@@ -267,3 +267,31 @@ export const plans = pgTable(
     uniqueIndex('plans_one_published_key').on(t.depotId, t.serviceDate).where(sql`${t.state} = 'published'`),
   ],
 );
+
+/** Utility interval meter data (actual site demand), one row per interval. */
+export const meterIntervals = pgTable(
+  'meter_intervals',
+  {
+    organisationId: orgRef(),
+    depotId: uuid('depot_id').notNull().references(() => depots.id, { onDelete: 'cascade' }),
+    startsAt: timestamp('starts_at', { withTimezone: true }).notNull(),
+    minutes: integer('minutes').notNull(),
+    kwh: doublePrecision('kwh').notNull(),
+    importId: uuid('import_id').notNull(),
+  },
+  (t) => [primaryKey({ columns: [t.depotId, t.startsAt] })],
+);
+
+export const meterImports = pgTable('meter_imports', {
+  id: id(),
+  organisationId: orgRef(),
+  depotId: uuid('depot_id').notNull().references(() => depots.id, { onDelete: 'cascade' }),
+  fileName: text('file_name').notNull(),
+  format: text('format').notNull(),
+  billingPeriodStart: date('billing_period_start').notNull(),
+  intervals: integer('intervals').notNull(),
+  duplicates: integer('duplicates').notNull(),
+  gaps: jsonb('gaps').$type<{ from: string; to: string }[]>().notNull(),
+  importedBy: uuid('imported_by').references(() => users.id, { onDelete: 'set null' }),
+  createdAt: createdAt(),
+});

@@ -27,8 +27,12 @@ export const csvField = (field: string) => FIELD_FOR[field] ?? field;
  */
 export function parseRunsCsv(text: string, date: string): { runs: RunInput[]; lines: number[] } {
   let records: string[][];
+  let lineOf: number[];
   try {
-    records = parse(text.replace(/^\uFEFF/, ''), { skip_empty_lines: true, trim: true, relax_column_count: true });
+    const parsed = parse(text.replace(/^\uFEFF/, ''), { skip_empty_lines: true, trim: true, relax_column_count: true, info: true }) as unknown as
+      { record: string[]; info: { lines: number } }[];
+    records = parsed.map((p) => p.record);
+    lineOf = parsed.map((p) => p.info.lines);
   } catch (e) {
     throw new DomainError('validation_failed', `The file is not readable CSV: ${(e as Error).message}`, { file: 'Not valid CSV' });
   }
@@ -38,8 +42,9 @@ export function parseRunsCsv(text: string, date: string): { runs: RunInput[]; li
   const unknown = columns.filter((c) => !(RUN_COLUMNS as readonly string[]).includes(c));
   if (missing.length || unknown.length) {
     const fields: Record<string, string> = {};
-    for (const c of missing) fields[`line 1.${c}`] = `Column "${c}" is missing: start from the template`;
-    for (const c of unknown) fields[`line 1.${c}`] = `Unknown column "${c}": the columns are ${RUN_COLUMNS.join(', ')}`;
+    const at = lineOf[0] ?? 1;
+    for (const c of missing) fields[`line ${at}.${c}`] = `Column "${c}" is missing: start from the template`;
+    for (const c of unknown) fields[`line ${at}.${c}`] = `Unknown column "${c}": the columns are ${RUN_COLUMNS.join(', ')}`;
     throw new DomainError('validation_failed', 'The header line does not match the template', fields);
   }
   const col = (row: string[], name: string) => row[columns.indexOf(name)]?.trim() ?? '';
@@ -47,7 +52,7 @@ export function parseRunsCsv(text: string, date: string): { runs: RunInput[]; li
   const runs: RunInput[] = [];
   const lines: number[] = [];
   rows.forEach((row, k) => {
-    const line = k + 2;
+    const line = lineOf[k + 1]!;
     const time = (v: string, base: string) => {
       if (/^\d{1,2}:\d{2}$/.test(v)) return `${base}T${v.padStart(5, '0')}`;
       if (/^\d{4}-\d{2}-\d{2}[ T]\d{2}:\d{2}$/.test(v)) return v.replace(' ', 'T');

@@ -14,6 +14,8 @@ const EDIT_DEPOT = ['facilities', 'admin'] as const;
 // Supervisors keep the fleet and the plans; admins may too. The office roles read the days.
 const FLEET = ['supervisor', 'admin'] as const;
 const OFFICE = ['supervisor', 'admin', 'facilities', 'finance'] as const;
+// Finance reviews costs with admins; supervisors and facilities read them.
+const COSTS = ['finance', 'admin', 'supervisor', 'facilities'] as const;
 
 const EXPECTED: Record<string, 'public' | readonly Role[]> = {
   'GET /health': 'public',
@@ -66,6 +68,9 @@ const EXPECTED: Record<string, 'public' | readonly Role[]> = {
   'GET /plans/:id/scenario': FLEET,
   'GET /plans/:id/compare': ROLES,
   'POST /plans/:id/publish': FLEET,
+  'GET /plans/:id/costs': COSTS,
+  'GET /depots/:depotId/costs/month': COSTS,
+  'POST /depots/:depotId/meter-data': ['finance', 'admin'],
 };
 
 const samplePath = (p: string) =>

@@ -26,7 +26,7 @@ export function createTestApp(overrides: Partial<AppDeps> = {}) {
   const config = loadConfig({
     NODE_ENV: 'test', DATABASE_URL: TEST_DATABASE_URL, SMTP_PORT: String(TEST_SMTP_PORT), FAKE_MAIL_URL: TEST_FAKE_MAIL_URL,
   });
-  const log = pino({ level: 'silent' });
+  const log = pino({ level: process.env.TEST_LOG ?? 'silent' });
   // Real pg-boss on the test database, started only by the tests that queue work.
   let queue: Promise<JobQueue> | undefined;
   const jobs: JobQueue = {

@@ -1,0 +1,35 @@
+import { z } from 'zod';
+import {
+  depotIdParamsSchema, meterImportRequestSchema, meterImportResultSchema, monthCostsSchema, planCostsSchema, planIdParamsSchema,
+} from '@nightyard/contracts';
+import type { AppDeps } from '../app-deps';
+import type { ApiRoutes } from '../http/route';
+import { DIESEL_BUS_MPG, monthCosts, planCosts } from './costs-service';
+import { importMeterData } from './meter-import';
+
+/** Finance and admins own the costs; supervisors and facilities read them. */
+const COST_READERS = ['finance', 'admin', 'supervisor', 'facilities'] as const;
+const COST_EDITORS = ['finance', 'admin'] as const;
+
+export function costsRoutes(api: ApiRoutes, { db }: AppDeps) {
+  api.add(
+    { method: 'get', path: '/plans/:id/costs', summary: 'A plan\'s projected cost, savings, per bus and per mile', tag: 'costs',
+      access: COST_READERS, params: planIdParamsSchema, response: planCostsSchema },
+    async ({ user, params }) => planCosts(db, user, params.id),
+  );
+  api.add(
+    { method: 'get', path: '/depots/:depotId/costs/month', summary: 'The billing period holding a date: projected and to date, peaks, nights',
+      tag: 'costs', access: COST_READERS, params: depotIdParamsSchema,
+      query: z.strictObject({
+        date: z.iso.date('Write the date as YYYY-MM-DD'),
+        dieselMpg: z.coerce.number().min(1, 'At least 1 mpg').max(30, 'At most 30 mpg').default(DIESEL_BUS_MPG),
+      }),
+      response: monthCostsSchema },
+    async ({ user, params, query }) => monthCosts(db, user, params.depotId, query.date, new Date(), query.dieselMpg),
+  );
+  api.add(
+    { method: 'post', path: '/depots/:depotId/meter-data', summary: 'Import utility interval data (Green Button XML or CSV), all or nothing',
+      tag: 'costs', access: COST_EDITORS, params: depotIdParamsSchema, body: meterImportRequestSchema, response: meterImportResultSchema, status: 201 },
+    async ({ user, params, body }) => importMeterData(db, user, params.depotId, body),
+  );
+}

@@ -1,0 +1,218 @@
+import { and, asc, eq, gte, lt, lte } from 'drizzle-orm';
+import { DateTime } from 'luxon';
+import { planResultSchema, type MonthCosts, type PlanCosts, type PlanResult } from '@nightyard/contracts';
+import { computeBill, ratePlanPeriodAt, type IntervalDemand } from '@nightyard/scheduling';
+import type { Db } from '../db/client';
+import { billingPeaks, buses, meterIntervals, plans, runs } from '../db/schema';
+import { notFound } from '../http/errors';
+import type { AuthUser } from '../auth/auth-user';
+import { depotOf } from '../depots/depot-access';
+import { billingPeriodOf, ratePlanOn } from './billing-period';
+
+const SLOT_MS = 15 * 60_000;
+const round2 = (v: number) => Math.round(v * 100) / 100;
+
+/**
+ * Tailpipe CO2 of diesel: about 10,180 g per gallon burned (US EPA; value from memory). A diesel
+ * school bus does about 7 miles per gallon (assumption; common practice for full-size buses).
+ */
+export const DIESEL_CO2_KG_PER_GALLON = 10.18;
+export const DIESEL_BUS_MPG = 7;
+const EMISSIONS_SOURCE =
+  'Diesel avoided = miles / 7 mpg (assumed for a full-size diesel school bus). CO2 = 10,180 g per gallon of diesel (US EPA figure). Tailpipe only: the electricity\'s own emissions are not subtracted.';
+
+/** Miles each bus drives on the first service day after `serviceDate` (what the night charged for). */
+async function nextDayMiles(db: Db, depotId: string, serviceDate: string, kwhPerMile: Map<string, number>) {
+  const [next] = await db
+    .select({ date: runs.serviceDate })
+    .from(runs)
+    .where(and(eq(runs.depotId, depotId), gte(runs.serviceDate, DateTime.fromISO(serviceDate).plus({ days: 1 }).toISODate()!)))
+    .orderBy(asc(runs.serviceDate))
+    .limit(1);
+  const miles = new Map<string, number>();
+  if (!next) return miles;
+  const rows = await db
+    .select({ number: buses.number, miles: runs.miles, kwh: runs.kwh })
+    .from(runs)
+    .innerJoin(buses, eq(buses.id, runs.busId))
+    .where(and(eq(runs.depotId, depotId), eq(runs.serviceDate, next.date)));
+  for (const r of rows) {
+    const m = r.miles ?? (r.kwh !== null ? r.kwh / (kwhPerMile.get(r.number) ?? 1) : 0);
+    miles.set(r.number, (miles.get(r.number) ?? 0) + m);
+  }
+  return miles;
+}
+
+/** A plan's cost per bus and per mile: energy by the bus's own sessions, demand shared by kWh. */
+export async function planCosts(db: Db, caller: AuthUser, planId: string): Promise<PlanCosts> {
+  const [plan] = await db.select().from(plans).where(and(eq(plans.id, planId), eq(plans.organisationId, caller.organisationId)));
+  if (!plan) throw notFound('That plan');
+  if (!plan.result) throw notFound('The plan\'s result (it is not finished)');
+  const result = planResultSchema.parse(plan.result);
+  const scenario = plan.scenario as { tariff: { currency?: string } };
+  const fleet = await db.select().from(buses).where(eq(buses.depotId, plan.depotId));
+  const miles = await nextDayMiles(db, plan.depotId, plan.serviceDate, new Map(fleet.map((b) => [b.number, b.kwhPerMile])));
+  const priceAt = new Map(result.slots.map((s) => [Date.parse(s.start), s.price]));
+  const perBus = new Map<string, { kwh: number; energy: number }>();
+  for (const s of result.sessions) {
+    const t0 = Date.parse(s.start);
+    const acc = perBus.get(s.bus) ?? { kwh: 0, energy: 0 };
+    s.kw.forEach((kw, k) => {
+      acc.kwh += kw * 0.25;
+      acc.energy += kw * 0.25 * (priceAt.get(t0 + k * SLOT_MS) ?? 0);
+    });
+    perBus.set(s.bus, acc);
+  }
+  const totalKwh = [...perBus.values()].reduce((a, b) => a + b.kwh, 0);
+  const totalMiles = [...miles.values()].reduce((a, b) => a + b, 0);
+  const rows = result.buses.map((b) => {
+    const use = perBus.get(b.id) ?? { kwh: 0, energy: 0 };
+    const cost = use.energy + (totalKwh > 0 ? (result.cost.demand * use.kwh) / totalKwh : 0);
+    const m = miles.get(b.id) ?? 0;
+    return { bus: b.id, kwh: round2(use.kwh), cost: round2(cost), miles: round2(m), costPerMile: m > 0 ? round2(cost / m) : null };
+  });
+  return {
+    planId, serviceDate: plan.serviceDate, currency: scenario.tariff.currency ?? 'USD',
+    energy: round2(result.cost.energy), demand: round2(result.cost.demand), total: round2(result.cost.total),
+    baseline: { energy: round2(result.baseline.energy), demand: round2(result.baseline.demand), total: round2(result.baseline.total) },
+    savings: round2(result.baseline.total - result.cost.total),
+    savingsShare: result.baseline.total > 0 ? (result.baseline.total - result.cost.total) / result.baseline.total : 0,
+    chargingKwh: round2(totalKwh), miles: round2(totalMiles), costPerMile: totalMiles > 0 ? round2(result.cost.total / totalMiles) : null,
+    perBus: rows.sort((a, b) => a.bus.localeCompare(b.bus, undefined, { numeric: true })),
+  };
+}
+
+/**
+ * The billing period's costs: every 15-minute interval takes the metered value where one was
+ * imported, else the published plan's site load, else the depot's building load alone.
+ */
+export async function monthCosts(db: Db, caller: AuthUser, depotId: string, date: string, now = new Date(), mpg = DIESEL_BUS_MPG): Promise<MonthCosts> {
+  const depot = await depotOf(db, caller, depotId);
+  const zone = depot.timezone;
+  const period = billingPeriodOf(date, depot.billingStartDay, zone);
+  const rate = await ratePlanOn(db, depot, period.start.toISODate()!);
+  const fromMs = period.start.toMillis();
+  const toMs = period.end.toMillis();
+
+  const published = await db
+    .select()
+    .from(plans)
+    .where(and(eq(plans.depotId, depotId), eq(plans.state, 'published'),
+      gte(plans.serviceDate, period.start.minus({ days: 4 }).toISODate()!), lt(plans.serviceDate, period.end.toISODate()!)))
+    .orderBy(asc(plans.serviceDate));
+  const actual = await db
+    .select()
+    .from(meterIntervals)
+    .where(and(eq(meterIntervals.depotId, depotId), gte(meterIntervals.startsAt, period.start.toJSDate()), lt(meterIntervals.startsAt, period.end.toJSDate())));
+
+  const actualKwh = new Map<number, number>();
+  for (const a of actual) {
+    // Longer meter intervals are spread evenly over their quarter hours.
+    const parts = a.minutes / 15;
+    for (let k = 0; k < parts; k++) actualKwh.set(a.startsAt.getTime() + k * SLOT_MS, a.kwh / parts);
+  }
+  const plannedKw = new Map<number, number>();
+  const nights: MonthCosts['nights'] = [];
+  for (const p of published) {
+    const result: PlanResult = planResultSchema.parse(p.result);
+    let projectedEnergy = 0;
+    let projectedPeak = 0;
+    let actualEnergy = 0;
+    let actualPeak = 0;
+    let covered = 0;
+    for (const s of result.slots) {
+      const t = Date.parse(s.start);
+      if (t < fromMs || t >= toMs) continue;
+      plannedKw.set(t, s.loadKw);
+      projectedEnergy += s.loadKw * 0.25 * s.price;
+      projectedPeak = Math.max(projectedPeak, s.loadKw);
+      const a = actualKwh.get(t);
+      if (a !== undefined) {
+        covered++;
+        actualEnergy += a * s.price;
+        actualPeak = Math.max(actualPeak, a * 4);
+      }
+    }
+    if (!result.slots.some((s) => Date.parse(s.start) >= fromMs && Date.parse(s.start) < toMs)) continue;
+    const inPeriod = result.slots.filter((s) => Date.parse(s.start) >= fromMs && Date.parse(s.start) < toMs).length;
+    nights.push({
+      date: p.serviceDate, planId: p.id, version: p.version, planCost: round2(result.cost.total), baselineCost: round2(result.baseline.total),
+      projectedSiteEnergyCost: round2(projectedEnergy), actualSiteEnergyCost: covered ? round2(actualEnergy) : null,
+      projectedPeakKw: round2(projectedPeak), actualPeakKw: covered ? round2(actualPeak) : null,
+      actualCoverage: inPeriod ? covered / inPeriod : 0,
+    });
+  }
+
+  const profile = depot.otherLoadKw;
+  const series: (IntervalDemand & { source: 'actual' | 'planned' | 'building' })[] = [];
+  for (let t = fromMs; t < toMs; t += SLOT_MS) {
+    const a = actualKwh.get(t);
+    if (a !== undefined) series.push({ startMs: t, kwh: a, source: 'actual' });
+    else if (plannedKw.has(t)) series.push({ startMs: t, kwh: plannedKw.get(t)! * 0.25, source: 'planned' });
+    else {
+      const hour = DateTime.fromMillis(t, { zone }).hour;
+      series.push({ startMs: t, kwh: (profile.length === 1 ? profile[0]! : profile[hour]!) * 0.25, source: 'building' });
+    }
+  }
+  const nowMs = now.getTime();
+  const toDate = series.filter((s) => s.startMs < nowMs);
+  const elapsedDays = Math.min(period.days, Math.max(0, Math.ceil((Math.min(nowMs, toMs) - fromMs) / 86_400_000)));
+  const projected = computeBill(rate.definition, series, { zone, intervalMinutes: 15, days: period.days });
+  const monthToDate = computeBill(rate.definition, toDate, { zone, intervalMinutes: 15, days: elapsedDays });
+
+  // Peaks so far: the highest of what was metered or planned up to now, and what was entered by hand.
+  const [entered] = await db.select().from(billingPeaks).where(eq(billingPeaks.depotId, depotId));
+  const enteredApplies = entered && entered.billingPeriodStart === period.start.toISODate();
+  let facility: MonthCosts['peaks']['facility'] = { kw: 0, at: null, source: 'planned' };
+  for (const s of toDate) {
+    if (s.source === 'building') continue;
+    const kw = s.kwh * 4;
+    if (kw > facility.kw) facility = { kw: round2(kw), at: new Date(s.startMs).toISOString(), source: s.source === 'actual' ? 'actual' : 'planned' };
+  }
+  if (enteredApplies && entered.facilityKw > facility.kw) facility = { kw: entered.facilityKw, at: null, source: 'entered' };
+  const periodPeaks = new Map<string, { kw: number; at: string | null }>();
+  for (const s of toDate) {
+    const p = ratePlanPeriodAt(rate.definition, DateTime.fromMillis(s.startMs, { zone }));
+    if (p.offPeak || p.demandCharge <= 0) continue;
+    const kw = s.kwh * 4;
+    if (kw > (periodPeaks.get(p.period)?.kw ?? 0)) periodPeaks.set(p.period, { kw: round2(kw), at: new Date(s.startMs).toISOString() });
+  }
+  for (const [name, kw] of Object.entries(enteredApplies ? entered.periodsKw : {})) {
+    if (kw > (periodPeaks.get(name)?.kw ?? 0)) periodPeaks.set(name, { kw, at: null });
+  }
+
+  // School nights in the period so far and ahead that have no published plan.
+  const planned = new Set(published.map((p) => p.serviceDate));
+  const days = await db
+    .selectDistinct({ date: runs.serviceDate })
+    .from(runs)
+    .where(and(eq(runs.depotId, depotId), gte(runs.serviceDate, period.start.toISODate()!), lt(runs.serviceDate, period.end.toISODate()!)));
+  const today = DateTime.fromJSDate(now, { zone }).toISODate()!;
+  const milesRows = await db
+    .select({ miles: runs.miles, kwh: runs.kwh, kwhPerMile: buses.kwhPerMile })
+    .from(runs)
+    .innerJoin(buses, eq(buses.id, runs.busId))
+    .where(and(eq(runs.depotId, depotId), gte(runs.serviceDate, period.start.toISODate()!), lt(runs.serviceDate, period.end.toISODate()!),
+      lte(runs.serviceDate, today)));
+  const miles = milesRows.reduce((sum, r) => sum + (r.miles ?? (r.kwh ?? 0) / r.kwhPerMile), 0);
+  const gallons = miles / mpg;
+  return {
+    currency: rate.definition.currency,
+    period: { start: period.start.toISODate()!, end: period.end.toISODate()!, days: period.days },
+    ratePlanName: rate.name,
+    projected,
+    monthToDate,
+    savingsVsUnmanaged: round2(nights.reduce((a, n) => a + n.baselineCost - n.planCost, 0)),
+    peaks: { facility, periods: [...periodPeaks].map(([name, p]) => ({ name, ...p })) },
+    nights,
+    sources: {
+      actualIntervals: series.filter((s) => s.source === 'actual').length,
+      plannedNights: nights.length,
+      schoolNightsWithoutPlan: days.filter((d) => !planned.has(d.date)).length,
+    },
+    emissions: {
+      miles: round2(miles), dieselMpg: mpg, dieselGallonsAvoided: round2(gallons), co2KgAvoided: round2(gallons * DIESEL_CO2_KG_PER_GALLON),
+      source: EMISSIONS_SOURCE,
+    },
+  };
+}

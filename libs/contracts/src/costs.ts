@@ -1,0 +1,98 @@
+import { z } from 'zod';
+
+export const billLineSchema = z.object({
+  name: z.string(),
+  quantity: z.number(),
+  unit: z.enum(['kWh', 'kW', 'day', 'month']),
+  rate: z.number(),
+  amount: z.number(),
+});
+export const billSchema = z.object({
+  currency: z.string(),
+  energy: z.array(billLineSchema),
+  demand: z.array(billLineSchema.extend({ peakAt: z.number().nullable() })),
+  fixed: z.array(billLineSchema),
+  energyTotal: z.number(),
+  demandTotal: z.number(),
+  fixedTotal: z.number(),
+  total: z.number(),
+  kwh: z.number(),
+});
+export type BillView = z.infer<typeof billSchema>;
+
+export const planCostsSchema = z.object({
+  planId: z.uuid(),
+  serviceDate: z.string(),
+  currency: z.string(),
+  energy: z.number(),
+  demand: z.number(),
+  total: z.number(),
+  baseline: z.object({ energy: z.number(), demand: z.number(), total: z.number() }),
+  savings: z.number(),
+  savingsShare: z.number(),
+  chargingKwh: z.number(),
+  miles: z.number(),
+  costPerMile: z.number().nullable(),
+  perBus: z.array(z.object({ bus: z.string(), kwh: z.number(), cost: z.number(), miles: z.number(), costPerMile: z.number().nullable() })),
+});
+export type PlanCosts = z.infer<typeof planCostsSchema>;
+
+export const emissionsSchema = z.object({
+  miles: z.number(),
+  dieselMpg: z.number(),
+  dieselGallonsAvoided: z.number(),
+  co2KgAvoided: z.number(),
+  source: z.string(),
+});
+
+export const monthCostsSchema = z.object({
+  currency: z.string(),
+  period: z.object({ start: z.string(), end: z.string(), days: z.number() }),
+  ratePlanName: z.string(),
+  /** The whole billing period: actual intervals where imported, published plans, building load elsewhere. */
+  projected: billSchema,
+  /** From the period's start to now, from the same sources. */
+  monthToDate: billSchema,
+  /** Sum over the period's published nights of what unmanaged charging would have cost more. */
+  savingsVsUnmanaged: z.number(),
+  peaks: z.object({
+    facility: z.object({ kw: z.number(), at: z.string().nullable(), source: z.enum(['actual', 'entered', 'planned']) }),
+    periods: z.array(z.object({ name: z.string(), kw: z.number(), at: z.string().nullable() })),
+  }),
+  nights: z.array(z.object({
+    date: z.string(),
+    planId: z.uuid(),
+    version: z.number(),
+    /** The plan's own cost: charging energy plus demand above the peaks so far. */
+    planCost: z.number(),
+    baselineCost: z.number(),
+    /** Site energy (charging and building) over the plan's hours, as planned and as metered. */
+    projectedSiteEnergyCost: z.number(),
+    actualSiteEnergyCost: z.number().nullable(),
+    projectedPeakKw: z.number(),
+    actualPeakKw: z.number().nullable(),
+    /** Share of the night's intervals with metered data (0-1). */
+    actualCoverage: z.number(),
+  })),
+  sources: z.object({ actualIntervals: z.number(), plannedNights: z.number(), schoolNightsWithoutPlan: z.number() }),
+  emissions: emissionsSchema,
+});
+export type MonthCosts = z.infer<typeof monthCostsSchema>;
+
+export const meterImportRequestSchema = z.strictObject({
+  fileName: z.string().min(1).max(200),
+  content: z.string().min(1, 'The file is empty').max(20_000_000, 'The file is too large (20 MB at most)'),
+  billingPeriodStart: z.iso.date('Write the date as YYYY-MM-DD'),
+});
+
+export const meterImportResultSchema = z.object({
+  id: z.uuid(),
+  format: z.string(),
+  intervals: z.number().int(),
+  minutes: z.number(),
+  duplicates: z.number().int(),
+  gaps: z.array(z.object({ from: z.string(), to: z.string() })),
+  kwh: z.number(),
+  peaks: z.object({ facilityKw: z.number(), periods: z.record(z.string(), z.number()) }),
+});
+export type MeterImportResult = z.infer<typeof meterImportResultSchema>;
