@@ -6,6 +6,7 @@ import { existsSync } from 'node:fs';
 const entryPoints = {
   main: 'apps/api/src/main.ts',
   'fake-mail': 'tools/fake-mail.ts',
+  'station-simulator': 'tools/station-simulator.ts',
 };
 if (existsSync('apps/api/src/worker.ts')) entryPoints.worker = 'apps/api/src/worker.ts';
 

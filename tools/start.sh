@@ -41,4 +41,8 @@ export FAKE_MAIL_URL=${FAKE_MAIL_URL:-http://127.0.0.1:$MAIL_HTTP_PORT}
 export NODE_ENV=${NODE_ENV:-development}
 node --enable-source-maps dist/api/main.mjs &
 pids+=($!)
+# Simulated chargers for the demo depot, once the API answers.
+wait_for_http "http://127.0.0.1:$PORT/api/health" 120
+NIGHTYARD_OCPP_URL="ws://127.0.0.1:$PORT/ocpp" node dist/api/station-simulator.mjs &
+pids+=($!)
 wait -n "${pids[@]}"

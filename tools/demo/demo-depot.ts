@@ -44,6 +44,10 @@ export const demoChargers = [
   { label: 'D2', maxKw: 120, connector: CCS1, cabinet: 'Cabinet A' },
 ] as const;
 
+/** Every demo charger uses this OCPP basic-auth password (security profile 1); invented. */
+export const DEMO_CHARGER_PASSWORD = 'orchard-lane-demo-charger';
+export const demoChargerIdentity = (label: string) => `OLD-${label}`;
+
 /** 24 buses: sixteen large (196 kWh usable) and eight smaller (155 kWh). */
 export const demoBuses = Array.from({ length: 24 }, (_, i) => {
   const large = i < 16;

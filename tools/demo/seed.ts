@@ -8,7 +8,7 @@ import {
 } from '../../apps/api/src/db/schema';
 import { hashPassword } from '../../apps/api/src/auth/secrets';
 import {
-  DEMO_PASSWORD, demoBuses, demoCabinets, demoChargers, demoDepot, demoForecastLowF, demoOrganisation, demoRatePlan,
+  DEMO_CHARGER_PASSWORD, DEMO_PASSWORD, demoBuses, demoChargerIdentity, demoCabinets, demoChargers, demoDepot, demoForecastLowF, demoOrganisation, demoRatePlan,
   demoRunsForBus, demoUsers,
 } from './demo-depot';
 
@@ -42,9 +42,11 @@ export async function seedDemo(db: Db, now = new Date()): Promise<void> {
       .insert(powerCabinets)
       .values(demoCabinets.map((c) => ({ organisationId, depotId, label: c.label, limitKw: c.limitKw })))
       .returning();
+    const chargerPasswordHash = await hashPassword(DEMO_CHARGER_PASSWORD);
     await tx.insert(chargers).values(
       demoChargers.map((c) => ({
         organisationId, depotId, label: c.label, maxKw: c.maxKw, connector: c.connector,
+        ocppIdentity: demoChargerIdentity(c.label), ocppPasswordHash: chargerPasswordHash,
         cabinetId: c.cabinet ? cabinets.find((k) => k.label === c.cabinet)!.id : null,
       })),
     );

@@ -13,6 +13,8 @@ export interface AppDeps {
   mailer: Mailer;
   jobs: JobQueue;
   log: Logger;
+  /** Told when a plan is published or revised (the OCPP central system sends it to chargers). */
+  onPlanPublished?: (planId: string) => void;
   /** Runs a query against the database to prove it answers (for /api/health). */
   ping: () => Promise<void>;
 }

@@ -15,6 +15,7 @@ import { scenarioRoutes } from './scenarios/scenario-routes';
 import { fleetRoutes } from './fleet/fleet-routes';
 import { plansRoutes } from './plans/plans-routes';
 import { costsRoutes } from './costs/costs-routes';
+import { ocppRoutes } from './ocpp/ocpp-routes';
 import { outboxRoutes } from './dev/outbox-routes';
 import { apiNotFound, errorHandler } from './http/error-handler';
 import { ApiRoutes, type RegisteredRoute } from './http/route';
@@ -96,6 +97,7 @@ export function createApp(deps: AppDeps): BuiltApp {
   fleetRoutes(api, deps);
   plansRoutes(api, deps);
   costsRoutes(api, deps);
+  ocppRoutes(api, deps);
   outboxRoutes(api, deps);
 
   const document = openApiDocument(openapi);

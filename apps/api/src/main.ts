@@ -9,6 +9,7 @@ import { smtpMailer } from './mail/mailer';
 import { startJobQueue } from './jobs/job-queue';
 import { runPlanJob } from './plans/plan-runner';
 import { loadSolver } from '@nightyard/scheduling';
+import { CentralSystem } from './ocpp/central-system';
 import { isEmpty, seedDemo } from '../../../tools/demo/seed';
 import { DEMO_PASSWORD, demoUsers } from '../../../tools/demo/demo-depot';
 
@@ -34,9 +35,12 @@ if (config.SEED_DEMO === 'if-empty' && (await isEmpty(db))) {
 await loadSolver();
 const jobs = await startJobQueue({ databaseUrl: config.DATABASE_URL, log, work: (id) => runPlanJob(db, log, id) });
 
+const central = new CentralSystem(db, log);
+
 const { app } = createApp({
   db,
   jobs,
+  onPlanPublished: (planId) => void central.sendPlan(planId).catch((err) => log.error({ err }, 'profiles not sent')),
   config: { ...config, WEB_DIST: webDist },
   log,
   mailer: smtpMailer({ host: config.SMTP_HOST, port: config.SMTP_PORT, from: config.MAIL_FROM }, log),
@@ -70,8 +74,15 @@ const server = app.listen(config.PORT, '127.0.0.1', () => {
   log.info({ port: config.PORT }, 'listening');
 });
 
+// Chargers connect to ws://host:PORT/ocpp/<identity> (OCPP-J); everything else is not upgraded.
+server.on('upgrade', (req, socket, head) => {
+  if (req.url?.startsWith('/ocpp/')) void central.handleUpgrade(req, socket as import('node:net').Socket, head);
+  else socket.destroy();
+});
+
 const shutdown = (signal: string) => {
   log.info({ signal }, 'shutting down');
+  void central.close();
   server.close(() => jobs.stop().then(() => pool.end()).then(() => process.exit(0)));
   setTimeout(() => process.exit(0), 5000).unref();
 };

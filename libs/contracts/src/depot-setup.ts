@@ -60,6 +60,14 @@ export const chargerSchema = z.object({
   status: chargerStatusSchema,
   statusReason: z.string().nullable(),
   statusSince: z.iso.datetime({ offset: true }).nullable(),
+  /** OCPP charge point identity, when the charger is connected to Nightyard. */
+  ocppIdentity: z.string().nullable(),
+  /** What the charger itself last reported over OCPP. */
+  live: z.object({
+    status: z.enum(['available', 'charging', 'faulted', 'offline']),
+    powerKw: z.number().nullable(),
+    seenAt: z.iso.datetime({ offset: true }).nullable(),
+  }).nullable(),
 });
 export type Charger = z.infer<typeof chargerSchema>;
 

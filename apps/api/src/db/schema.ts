@@ -121,9 +121,19 @@ export const chargers = pgTable(
     status: chargerStatus('status').notNull().default('in_service'),
     statusReason: text('status_reason'),
     statusSince: timestamp('status_since', { withTimezone: true }),
+    /** OCPP charge point identity and connector / EVSE of this dispenser. */
+    ocppIdentity: text('ocpp_identity'),
+    ocppPasswordHash: text('ocpp_password_hash'),
+    connectorId: integer('connector_id').notNull().default(1),
+    evseId: integer('evse_id').notNull().default(1),
+    /** What the charger last told the central system (OCPP StatusNotification, MeterValues). */
+    liveStatus: text('live_status'),
+    livePowerW: doublePrecision('live_power_w'),
+    liveSeenAt: timestamp('live_seen_at', { withTimezone: true }),
+    liveConnected: boolean('live_connected').notNull().default(false),
     createdAt: createdAt(),
   },
-  (t) => [uniqueIndex('chargers_depot_label_key').on(t.depotId, t.label)],
+  (t) => [uniqueIndex('chargers_depot_label_key').on(t.depotId, t.label), uniqueIndex('chargers_ocpp_identity_key').on(t.ocppIdentity)],
 );
 
 export const busStatus = pgEnum('bus_status', ['active', 'out_of_service', 'retired']);

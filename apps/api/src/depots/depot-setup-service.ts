@@ -56,6 +56,14 @@ async function listChargers(db: Db, depotId: string): Promise<Charger[]> {
 const toCharger = (c: ChargerRow, cabinetLabel: string | null): Charger => ({
   id: c.id, label: c.label, maxKw: c.maxKw, connector: c.connector, cabinetId: c.cabinetId, cabinetLabel,
   status: c.status, statusReason: c.statusReason, statusSince: c.statusSince?.toISOString() ?? null,
+  ocppIdentity: c.ocppIdentity,
+  live: c.ocppIdentity
+    ? {
+        status: c.liveConnected ? ((c.liveStatus ?? 'available') as 'available' | 'charging' | 'faulted' | 'offline') : 'offline',
+        powerKw: c.liveConnected && c.livePowerW !== null ? Math.round(c.livePowerW / 100) / 10 : null,
+        seenAt: c.liveSeenAt?.toISOString() ?? null,
+      }
+    : null,
 });
 
 export async function updateDepotSettings(db: Db, caller: AuthUser, depotId: string, s: DepotSettings): Promise<void> {

@@ -71,6 +71,8 @@ const EXPECTED: Record<string, 'public' | readonly Role[]> = {
   'GET /plans/:id/costs': COSTS,
   'GET /depots/:depotId/costs/month': COSTS,
   'POST /depots/:depotId/meter-data': ['finance', 'admin'],
+  'GET /plans/:id/ocpp': ['supervisor', 'admin', 'facilities'],
+  'PUT /depots/:depotId/chargers/:id/ocpp': EDIT_DEPOT,
 };
 
 const samplePath = (p: string) =>

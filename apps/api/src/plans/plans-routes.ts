@@ -11,7 +11,8 @@ import * as plans from './plans-service';
 const PLANNERS = ['supervisor', 'admin'] as const;
 const planBody = z.object({ plan: planSummarySchema });
 
-export function plansRoutes(api: ApiRoutes, { db, jobs, mailer, auth }: AppDeps) {
+export function plansRoutes(api: ApiRoutes, deps: AppDeps) {
+  const { db, jobs, mailer, auth } = deps;
   api.add(
     { method: 'get', path: '/depots/:depotId/plans', summary: 'Plan versions of the depot, newest first', tag: 'plans', access: ROLES,
       params: depotIdParamsSchema, query: z.strictObject({ serviceDate: z.iso.date().optional() }),
@@ -50,6 +51,10 @@ export function plansRoutes(api: ApiRoutes, { db, jobs, mailer, auth }: AppDeps)
   api.add(
     { method: 'post', path: '/plans/:id/publish', summary: 'Publish a finished draft to the yard', tag: 'plans', access: PLANNERS,
       params: planIdParamsSchema, body: publishPlanSchema, response: planBody },
-    async ({ user, params, body }) => ({ plan: await plans.publishPlan(db, mailer, user, params.id, body.expectedPublishedId, auth.publicUrl) }),
+    async ({ user, params, body }) => {
+      const plan = await plans.publishPlan(db, mailer, user, params.id, body.expectedPublishedId, auth.publicUrl);
+      deps.onPlanPublished?.(plan.id);
+      return { plan };
+    },
   );
 }

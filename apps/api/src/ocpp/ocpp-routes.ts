@@ -1,0 +1,56 @@
+import { and, asc, eq } from 'drizzle-orm';
+import { z } from 'zod';
+import { depotItemParamsSchema, planIdParamsSchema, planResultSchema } from '@nightyard/contracts';
+import type { AppDeps } from '../app-deps';
+import { chargers, plans } from '../db/schema';
+import { DomainError, conflict, notFound } from '../http/errors';
+import type { ApiRoutes } from '../http/route';
+import { hashPassword } from '../auth/secrets';
+import { depotOf } from '../depots/depot-access';
+import { chargingProfiles } from './charging-profiles';
+
+const exportSchema = z.array(z.object({
+  chargerId: z.string(),
+  connectorId: z.number().int().optional(),
+  evseId: z.number().int().optional(),
+  payload: z.record(z.string(), z.unknown()),
+}));
+
+export function ocppRoutes(api: ApiRoutes, { db }: AppDeps) {
+  api.add(
+    { method: 'get', path: '/plans/:id/ocpp', summary: 'The plan as OCPP SetChargingProfile payloads, one per charger', tag: 'ocpp',
+      access: ['supervisor', 'admin', 'facilities'], params: planIdParamsSchema,
+      query: z.strictObject({ version: z.enum(['1.6', '2.0.1'], 'Choose version 1.6 or 2.0.1') }), response: exportSchema },
+    async ({ user, params, query }) => {
+      const [plan] = await db.select().from(plans).where(and(eq(plans.id, params.id), eq(plans.organisationId, user.organisationId)));
+      if (!plan) throw notFound('That plan');
+      if (plan.state === 'draft' || !plan.result) throw conflict('Only a published plan is handed to chargers: publish it first');
+      const list = await db.select().from(chargers).where(eq(chargers.depotId, plan.depotId)).orderBy(asc(chargers.label));
+      const used = new Set(planResultSchema.parse(plan.result).sessions.map((s) => s.charger));
+      const refs = list.filter((c) => used.has(c.label) || c.status === 'in_service')
+        .map((c) => ({ label: c.label, connectorId: c.connectorId, evseId: c.evseId }));
+      return chargingProfiles(planResultSchema.parse(plan.result), plan.serviceDate, refs, query.version);
+    },
+  );
+  api.add(
+    { method: 'put', path: '/depots/:depotId/chargers/:id/ocpp', summary: 'Set the charger\'s OCPP identity, password and connector / EVSE',
+      tag: 'ocpp', access: ['facilities', 'admin'], params: depotItemParamsSchema,
+      body: z.strictObject({
+        identity: z.string().regex(/^[A-Za-z0-9*\-_=:+|@.]{1,48}$/, 'Use 1-48 letters, digits or *-_=:+|@. (OCPP identity rules)'),
+        password: z.string().min(16, 'Use at least 16 characters').max(40, 'OCPP limits the password to 40 characters'),
+        connectorId: z.number().int().min(1).default(1),
+        evseId: z.number().int().min(1).default(1),
+      }),
+      status: 204 },
+    async ({ user, params, body }) => {
+      await depotOf(db, user, params.depotId);
+      const [taken] = await db.select({ id: chargers.id }).from(chargers).where(eq(chargers.ocppIdentity, body.identity));
+      if (taken && taken.id !== params.id) throw new DomainError('conflict', 'Another charger has that identity', { identity: 'Already in use' });
+      const done = await db.update(chargers)
+        .set({ ocppIdentity: body.identity, ocppPasswordHash: await hashPassword(body.password), connectorId: body.connectorId, evseId: body.evseId })
+        .where(and(eq(chargers.id, params.id), eq(chargers.depotId, params.depotId)))
+        .returning({ id: chargers.id });
+      if (!done.length) throw notFound('That charger');
+    },
+  );
+}

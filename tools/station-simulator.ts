@@ -1,0 +1,132 @@
+// A local stand-in for the depot's chargers: each simulated station connects to Nightyard's OCPP
+// central system, accepts charging profiles and reports meter values that follow them, so the
+// demo shows live chargers. `npm start` runs it for the demo depot.
+//   NIGHTYARD_OCPP_URL (default ws://127.0.0.1:3000/ocpp)
+import { RPCClient } from 'ocpp-rpc';
+import { DEMO_CHARGER_PASSWORD, demoChargerIdentity, demoChargers } from './demo/demo-depot';
+
+type Protocol = 'ocpp1.6' | 'ocpp2.0.1';
+
+interface Schedule {
+  startMs: number;
+  durationS: number;
+  periods: { startPeriod: number; limit: number }[];
+}
+
+export interface StationOptions {
+  url: string;
+  identity: string;
+  password: string;
+  protocol: Protocol;
+  /** The station's clock; tests move it into the plan's night. */
+  clock?: () => Date;
+  meterIntervalMs?: number;
+}
+
+export class SimulatedStation {
+  readonly client: InstanceType<typeof RPCClient>;
+  readonly received: Record<string, unknown>[] = [];
+  private schedule: Schedule | null = null;
+  private timer: NodeJS.Timeout | undefined;
+  private lastStatus = '';
+  private readonly clock: () => Date;
+
+  constructor(private readonly opts: StationOptions) {
+    this.clock = opts.clock ?? (() => new Date());
+    this.client = new RPCClient({
+      endpoint: opts.url, identity: opts.identity, password: opts.password, protocols: [opts.protocol],
+      strictMode: true, reconnect: true, maxReconnects: Infinity, backoff: { initialDelay: 500, maxDelay: 10_000, factor: 2, randomisationFactor: 0.2 },
+    } as ConstructorParameters<typeof RPCClient>[0]);
+    this.client.handle('SetChargingProfile', async ({ params }) => {
+      this.received.push(params ?? {});
+      this.schedule = scheduleOf(params ?? {}, opts.protocol);
+      setTimeout(() => void this.report(), 10);
+      return { status: 'Accepted' };
+    });
+    this.client.handle('ClearChargingProfile', async () => {
+      this.schedule = null;
+      return { status: 'Accepted' };
+    });
+  }
+
+  /** The limit in force now under the received profile (W); none means no plan: 0. */
+  limitW(at = this.clock()): number {
+    const s = this.schedule;
+    if (!s) return 0;
+    const offset = (at.getTime() - s.startMs) / 1000;
+    if (offset < 0 || offset >= s.durationS) return 0;
+    let limit = 0;
+    for (const p of s.periods) if (p.startPeriod <= offset) limit = p.limit;
+    return limit;
+  }
+
+  async start(): Promise<void> {
+    await this.client.connect();
+    const v16 = this.opts.protocol === 'ocpp1.6';
+    await this.client.call('BootNotification', v16
+      ? { chargePointVendor: 'Nightyard simulator', chargePointModel: 'Depot DC' }
+      : { reason: 'PowerUp', chargingStation: { vendorName: 'Nightyard simulator', model: 'Depot DC' } });
+    await this.report();
+    this.timer = setInterval(() => void this.report().catch(() => undefined), this.opts.meterIntervalMs ?? 15_000);
+  }
+
+  /** Status when it changes, then the power the profile allows now. */
+  async report(): Promise<void> {
+    const w = this.limitW();
+    const v16 = this.opts.protocol === 'ocpp1.6';
+    const timestamp = this.clock().toISOString();
+    const status = w > 0 ? (v16 ? 'Charging' : 'Occupied') : 'Available';
+    if (status !== this.lastStatus) {
+      await this.client.call('StatusNotification', v16
+        ? { connectorId: 1, errorCode: 'NoError', status }
+        : { timestamp, connectorStatus: status, evseId: 1, connectorId: 1 });
+      this.lastStatus = status;
+    }
+    await this.client.call('MeterValues', v16
+      ? { connectorId: 1, meterValue: [{ timestamp, sampledValue: [{ value: String(w), measurand: 'Power.Active.Import', unit: 'W' }] }] }
+      : { evseId: 1, meterValue: [{ timestamp, sampledValue: [{ value: w, measurand: 'Power.Active.Import', unitOfMeasure: { unit: 'W' } }] }] });
+  }
+
+  async fault(): Promise<void> {
+    const v16 = this.opts.protocol === 'ocpp1.6';
+    await this.client.call('StatusNotification', v16
+      ? { connectorId: 1, errorCode: 'GroundFailure', status: 'Faulted' }
+      : { timestamp: this.clock().toISOString(), connectorStatus: 'Faulted', evseId: 1, connectorId: 1 });
+    this.lastStatus = 'Faulted';
+  }
+
+  async stop(): Promise<void> {
+    clearInterval(this.timer);
+    await this.client.close({ force: true });
+  }
+}
+
+function scheduleOf(params: Record<string, unknown>, protocol: Protocol): Schedule {
+  const schedule = (protocol === 'ocpp1.6'
+    ? (params.csChargingProfiles as { chargingSchedule: Record<string, unknown> }).chargingSchedule
+    : (params.chargingProfile as { chargingSchedule: Record<string, unknown>[] }).chargingSchedule[0]!) as {
+    startSchedule: string; duration: number; chargingSchedulePeriod: { startPeriod: number; limit: number }[];
+  };
+  return { startMs: Date.parse(schedule.startSchedule), durationS: schedule.duration, periods: schedule.chargingSchedulePeriod };
+}
+
+async function main() {
+  const url = process.env.NIGHTYARD_OCPP_URL ?? 'ws://127.0.0.1:3000/ocpp';
+  const stations = demoChargers.map((c, i) => new SimulatedStation({
+    url, identity: demoChargerIdentity(c.label), password: DEMO_CHARGER_PASSWORD,
+    // The shared-cabinet dispensers speak OCPP 2.0.1; the others 1.6.
+    protocol: c.cabinet ? 'ocpp2.0.1' : 'ocpp1.6', meterIntervalMs: 15_000 + i * 250,
+  }));
+  await Promise.all(stations.map((s) => s.start().catch((err: Error) => console.error(`station ${s.client.identity}: ${err.message}`))));
+  console.log(`station simulator: ${stations.length} chargers connected to ${url}`);
+  // Lets a supervisor process (the browser tests' web server list) know the stations are up.
+  if (process.env.SIMULATOR_HEALTH_PORT) {
+    const { createServer } = await import('node:http');
+    createServer((_req, res) => res.writeHead(200).end('ok')).listen(Number(process.env.SIMULATOR_HEALTH_PORT), '127.0.0.1');
+  }
+  const stop = () => Promise.all(stations.map((s) => s.stop())).finally(() => process.exit(0));
+  process.on('SIGTERM', stop);
+  process.on('SIGINT', stop);
+}
+
+if (process.argv[1]?.includes('station-simulator')) void main();
