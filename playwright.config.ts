@@ -25,7 +25,7 @@ export default defineConfig({
     trace: 'off',
     screenshot: 'only-on-failure',
   },
-  webServer: {
+  webServer: [{
     command: 'node --enable-source-maps dist/api/main.mjs',
     url: `http://localhost:${port}/api/health`,
     reuseExistingServer: false,
@@ -41,5 +41,14 @@ export default defineConfig({
       FAKE_MAIL_URL: process.env.FAKE_MAIL_URL ?? 'http://127.0.0.1:2581',
       PUBLIC_URL: `http://localhost:${port}`,
     },
-  },
+  }, {
+    // The demo depot's chargers, simulated, so the pages show live OCPP states.
+    command: 'node dist/api/station-simulator.mjs',
+    url: `http://127.0.0.1:${port + 1}/`,
+    reuseExistingServer: false,
+    timeout: 60_000,
+    stdout: 'ignore',
+    stderr: 'pipe',
+    env: { NIGHTYARD_OCPP_URL: `ws://127.0.0.1:${port}/ocpp`, SIMULATOR_HEALTH_PORT: String(port + 1) },
+  }],
 });

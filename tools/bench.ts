@@ -1,7 +1,9 @@
 // `npm run bench`: the scheduling engine on generated depots (seeded), 96 slots, chargers =
 // buses / 2. Per size: engine time (median of 3, model build included), cost, lower bound, gap,
-// savings against unmanaged charging, peak cut. Then one 50-bus LP solved by HiGHS and by
-// javascript-lp-solver (in a worker thread, ended after 120 s) for the speed ratio.
+// savings against unmanaged charging, peak cut, why the search stopped and whether the three
+// runs gave the same plan. BENCH_SIZES=25,50 picks sizes; BENCH_SEEDS=5 adds four more seeds per
+// size (one run each). Then one 50-bus LP solved by HiGHS and by javascript-lp-solver (in a
+// worker thread, ended after BENCH_JSLP_LIMIT_MS, default 120 s) for the speed ratio.
 import { Worker } from 'node:worker_threads';
 import {
   buildChargeModel,
@@ -19,13 +21,14 @@ import { generateDepot } from '../libs/scheduling/src/testing/generate-depot.js'
 
 const SIZES = (process.env['BENCH_SIZES'] ?? '25,50,100,200,500').split(',').map(Number);
 const RUNS = 3;
+const SEEDS = Number(process.env['BENCH_SEEDS'] ?? 1);
 const JS_LIMIT_MS = Number(process.env['BENCH_JSLP_LIMIT_MS'] ?? 120_000);
 
 const median = (xs: number[]) => xs.slice().sort((a, b) => a - b)[Math.floor(xs.length / 2)]!;
 const pad = (s: string | number, n: number) => String(s).padStart(n);
 
-function scenarioOf(buses: number) {
-  const parsed = parseScenario(generateDepot({ buses, seed: 1000 + buses }));
+function scenarioOf(buses: number, seed = 1000 + buses) {
+  const parsed = parseScenario(generateDepot({ buses, seed }));
   if (!parsed.ok) throw new Error(JSON.stringify(parsed.problems.slice(0, 5)));
   return parsed.scenario;
 }
@@ -69,19 +72,25 @@ function runJsLp(model: unknown): Promise<{ ms: number; feasible?: boolean; resu
   });
 }
 
+/** Same sessions, powers and costs: the plan a yard timeline would show. */
+const fingerprint = (p: Plan) => JSON.stringify([p.sessions, p.cost]);
+
 async function main() {
   const solver = await loadSolver();
   console.log('Nightyard scheduling engine benchmark (96 slots, chargers = buses / 2, seeded)');
-  console.log(['buses', 'chargers', 'time ms', 'cost $', 'bound $', 'gap %', 'savings %', 'peak cut %', 'plug-ins', 'LS moves'].map((h, i) => pad(h, i < 2 ? 8 : 11)).join(''));
+  const head = ['buses', 'chargers', 'time ms', 'cost $', 'bound $', 'gap %', 'savings %', 'peak cut %', 'plug-ins', 'LS moves', 'stopped', 'same x3'];
+  console.log(head.map((h, i) => pad(h, i < 2 ? 8 : 11)).join('') + '  construction');
   const gaps: number[] = [];
   for (const n of SIZES) {
     const scenario = scenarioOf(n);
     const times: number[] = [];
+    const prints = new Set<string>();
     let plan: Plan | null = null;
     for (let r = 0; r < RUNS; r++) {
       const t0 = performance.now();
       plan = await planScenario(scenario);
       times.push(performance.now() - t0);
+      prints.add(fingerprint(plan));
     }
     const p = plan!;
     gaps.push(p.gap);
@@ -97,10 +106,29 @@ async function main() {
         pad((p.savings.peakCut * 100).toFixed(1), 11),
         pad(p.stats.plugIns, 11),
         pad(p.stats.localSearchMoves, 11),
-      ].join('') + (p.status === 'short' ? '  (short!)' : ''),
+        pad(p.stats.stoppedBy, 11),
+        pad(prints.size === 1 ? 'yes' : 'NO', 11),
+      ].join('') + `  ${p.stats.construction}` + (p.status === 'short' ? '  (short!)' : ''),
     );
   }
   console.log(`median gap: ${(median(gaps) * 100).toFixed(3)} %`);
+
+  // More seeds per size (BENCH_SEEDS > 1): one run each, gap and time only.
+  if (SEEDS > 1) {
+    console.log(`\nOther seeds (${SEEDS - 1} per size, one run each): gap % median / max, time ms median / max`);
+    for (const n of SIZES) {
+      const g: number[] = [];
+      const ms: number[] = [];
+      for (let k = 1; k < SEEDS; k++) {
+        const scenario = scenarioOf(n, 1000 + n + 7919 * k);
+        const t0 = performance.now();
+        const p = await planScenario(scenario);
+        ms.push(performance.now() - t0);
+        g.push(p.gap);
+      }
+      console.log(`${pad(n, 8)}  gap ${(median(g) * 100).toFixed(3)} / ${(Math.max(...g) * 100).toFixed(3)}   time ${median(ms).toFixed(0)} / ${Math.max(...ms).toFixed(0)}`);
+    }
+  }
 
   // Speed ratio on one 50-bus stage-2 LP (the first assignment of the two-stage method).
   const problem = prepareProblem(scenarioOf(50));

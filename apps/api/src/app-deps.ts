@@ -15,6 +15,8 @@ export interface AppDeps {
   log: Logger;
   /** Told when a plan is published or revised (the OCPP central system sends it to chargers). */
   onPlanPublished?: (planId: string) => void;
+  /** The time now (tests move it into the night they plan). */
+  clock?: () => Date;
   /** Runs a query against the database to prove it answers (for /api/health). */
   ping: () => Promise<void>;
 }

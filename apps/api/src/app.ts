@@ -16,6 +16,7 @@ import { fleetRoutes } from './fleet/fleet-routes';
 import { plansRoutes } from './plans/plans-routes';
 import { costsRoutes } from './costs/costs-routes';
 import { ocppRoutes } from './ocpp/ocpp-routes';
+import { yardRoutes } from './yard/yard-routes';
 import { outboxRoutes } from './dev/outbox-routes';
 import { apiNotFound, errorHandler } from './http/error-handler';
 import { ApiRoutes, type RegisteredRoute } from './http/route';
@@ -98,6 +99,7 @@ export function createApp(deps: AppDeps): BuiltApp {
   plansRoutes(api, deps);
   costsRoutes(api, deps);
   ocppRoutes(api, deps);
+  yardRoutes(api, deps);
   outboxRoutes(api, deps);
 
   const document = openApiDocument(openapi);

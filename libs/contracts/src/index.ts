@@ -9,3 +9,4 @@ export * from './depot-setup';
 export * from './fleet';
 export * from './plans';
 export * from './costs';
+export * from './yard';

@@ -23,7 +23,7 @@ export function soloShortfall(problem: Problem, b: number, powerCap: number, tap
 }
 
 function strongest(problem: Problem): number {
-  return Math.max(0, ...problem.chargers.map((c) => c.maxKw));
+  return Math.max(0, ...problem.chargers.filter((c) => c.available.some((a) => a === 1)).map((c) => c.maxKw));
 }
 
 /**

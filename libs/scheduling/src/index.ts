@@ -8,8 +8,12 @@ export { solveLowerBound, type LowerBound } from './lower-bound.js';
 export { initialAssignment, plugMapOf, type Assignment, type AssignmentHints } from './assignment.js';
 export { unmanagedBaseline, acceptance, type Baseline } from './baseline.js';
 export { explainShortfalls, soloShortfall, type ShortReason } from './explain.js';
-export { planScenario, planProblem, defaultTimeBudgetMs, type Plan, type PlanOptions, type PlanSession, type PlanBus, type PlanCost } from './plan.js';
+export { planScenario, planProblem, defaultTimeBudgetMs, defaultMoves, type Plan, type PlanOptions, type PlanSession, type PlanBus, type PlanCost } from './plan.js';
 // Rate plans and bills (shared by the engine's users: API, costs, tests).
 export { dayTypeOf, seasonOf, periodAt as ratePlanPeriodAt, pricedSlots, daySlots, SLOT_MINUTES, type PricedSlot } from './bill/rate-calendar.js';
 export { previewDay } from './bill/rate-preview.js';
 export { computeBill, nightMarginalCost, peaksOf, type Bill, type BillLine, type BillOptions, type IntervalDemand } from './bill/bill.js';
+/** Re-planning at a cut-off `now` (energy per bus, buses plugged in, chargers out of service,
+ *  late buses): `replan(scenario, state, options?)` plans the rest of the horizon. */
+export { replan, deriveScenario, ReplanStateError, type ReplanState, type Replan } from './replan.js';
+export { sweepAssignment, type SweepInput } from './sweep.js';

@@ -1,4 +1,4 @@
-import { arrangeCharger, cloneAssignment, plugMapOf, usablePower, type Assignment, type AssignmentHints } from './assignment.js';
+import { arrangeCharger, cloneAssignment, layoutCharger, plugMapOf, usablePower, type Assignment, type AssignmentHints } from './assignment.js';
 import type { LiveLp, LpResult, Solver } from './highs-solver.js';
 import { buildChargeModel, plugUpper, type ChargeModel } from './lp-model.js';
 import type { PlugMap, Problem } from './problem.js';
@@ -77,6 +77,8 @@ export interface SearchResult {
   accepted: number;
   iterations: number;
   lpMs: number;
+  /** The search ended on the deadline (safety net), not on its move budget or the bound. */
+  timedOut?: boolean;
 }
 
 /**
@@ -99,8 +101,13 @@ export function localSearch(
   let iterations = first.iterations;
   let lpMs = first.ms;
   const random = rng(12345);
-  const jobs = problem.stays.filter((s) => best.chargerOf[s.id]! >= 0 || hints.energy[s.id]! > 1e-6).map((s) => s.id);
   const C = problem.chargers.length;
+  // Re-planning: a charger that holds a stay already plugged in is left as it is.
+  const locked = new Uint8Array(C);
+  if (problem.pinned) for (const s of problem.stays) if (problem.pinned[s.id]! >= 0) locked[problem.pinned[s.id]!] = 1;
+  const jobs = problem.stays
+    .filter((s) => (best.chargerOf[s.id]! >= 0 || hints.energy[s.id]! > 1e-6) && !(best.chargerOf[s.id]! >= 0 && locked[best.chargerOf[s.id]!]))
+    .map((s) => s.id);
   if (jobs.length === 0 || C === 0) return { assignment: best, result: bestResult, moves, accepted, iterations, lpMs };
 
   const dualOf = (res: LpResult) => {
@@ -134,24 +141,36 @@ export function localSearch(
     const cj = trial.chargerOf[j]!;
     const touched = new Set<number>();
     const extra: number[] = [];
-    const kind = random();
-    if (kind < 0.45 || cj < 0) {
+    // Moves: relocate, swap, shift a hand-over, or swap two neighbours in a charger's service
+    // order (with one charger only the last two make sense).
+    let kind = random();
+    if (C === 1) kind = 0.85 + 0.15 * kind;
+    if (kind >= 0.95 && cj >= 0) {
+      const seq = trial.sequence[cj]!;
+      const i = seq.indexOf(j);
+      const k = random() < 0.5 ? i + 1 : i - 1;
+      if (k < 0 || k >= seq.length) continue;
+      seq[i] = seq[k]!;
+      seq[k] = j;
+      layoutCharger(problem, hints, trial, cj);
+      for (const s of seq) extra.push(problem.stays[s]!.bus);
+    } else if (kind < 0.45 || cj < 0) {
       // Relocate j to another charger.
       let c = Math.floor(random() * C);
       if (c === cj) c = (c + 1) % C;
-      if (usablePower(problem, problem.stays[j]!, c) <= 0) continue;
+      if (c === cj || locked[c] || usablePower(problem, problem.stays[j]!, c) <= 0) continue;
       if (cj >= 0) trial.sequence[cj] = trial.sequence[cj]!.filter((x) => x !== j);
       trial.sequence[c]!.push(j);
       trial.chargerOf[j] = c;
       if (cj >= 0) touched.add(cj);
       touched.add(c);
-    } else if (kind < 0.85) {
+    } else if (kind < 0.8) {
       // Swap j with a stay on another charger that is at the depot at the same time.
       let other = -1;
       for (let tries = 0; tries < 8 && other < 0; tries++) {
         const o = jobs[Math.floor(random() * jobs.length)]!;
         const co = trial.chargerOf[o]!;
-        if (co >= 0 && co !== cj && overlaps(j, o)) other = o;
+        if (co >= 0 && co !== cj && !locked[co] && overlaps(j, o)) other = o;
       }
       if (other < 0) continue;
       const co = trial.chargerOf[other]!;
@@ -201,5 +220,6 @@ export function localSearch(
       lp.update(best, buses);
     }
   }
-  return { assignment: best, result: bestResult, moves, accepted, iterations, lpMs };
+  const timedOut = moves < limits.maxMoves && bestResult.objective > limits.target && performance.now() >= limits.deadline;
+  return { assignment: best, result: bestResult, moves, accepted, iterations, lpMs, timedOut };
 }

@@ -138,7 +138,10 @@ function writeLp(s: any): WrittenLp {
       pending = st.runKwh ?? 0;
     });
   }
-  const other = s.site.otherLoadKw;
+  // Format extensions, read here on their own: other load by local hour, limit windows.
+  const otherAt = (t: number): number => (s.site.otherLoadByHourKw ? s.site.otherLoadByHourKw[wk(t).hour] : s.site.otherLoadKw);
+  const limitAt = (t: number): number =>
+    (s.site.limitWindows ?? []).reduce((lim: number, w: any) => (ms(w.from) < slotStart(t) + 900_000 && ms(w.to) > slotStart(t) ? Math.min(lim, w.limitKw) : lim), s.site.limitKw);
   const df = v('D_facility');
   const dk = v('D_onpeak');
   rows.push({ name: 'df0', terms: [[df, 1]], op: '>=', rhs: s.tariff.peaksSoFarKw.facility });
@@ -149,8 +152,12 @@ function writeLp(s: any): WrittenLp {
     const k = period(t);
     const price = k < 0 ? s.tariff.offPeakPrice : s.tariff.periods[k].price;
     for (const [p] of load[t]!) objective.push([p, price * dt]);
+    const other = otherAt(t);
+    // The other load alone sets a floor under both peaks, charging or not.
+    rows.push({ name: `facOther_${t}`, terms: [[df, 1]], op: '>=', rhs: other });
+    if (k === 0) rows.push({ name: `onpOther_${t}`, terms: [[dk, 1]], op: '>=', rhs: other });
     if (load[t]!.length === 0) continue;
-    rows.push({ name: `site_${t}`, terms: load[t]!, op: '<=', rhs: s.site.limitKw - other });
+    rows.push({ name: `site_${t}`, terms: load[t]!, op: '<=', rhs: limitAt(t) - other });
     rows.push({ name: `cab_${t}`, terms: load[t]!, op: '<=', rhs: s.cabinets[0].limitKw });
     rows.push({ name: `fac_${t}`, terms: [...load[t]!, [df, -1]], op: '<=', rhs: -other });
     if (k === 0) rows.push({ name: `onp_${t}`, terms: [...load[t]!, [dk, -1]], op: '<=', rhs: -other });
@@ -211,6 +218,25 @@ describe('engine optimum against independent solvers', () => {
     const optimum = await solveWithGlpk(writeLp(input));
     expect(plan.status).toBe('optimal');
     expect(Math.abs(plan.cost.total - optimum) / optimum).toBeLessThan(1e-6);
+  });
+
+  it('glpk.js: other load by hour and a load-reduction window (format extensions)', async () => {
+    const input: any = smallDepot(15, 4, { start: '2026-01-13T12:00', end: '2026-01-14T09:00' });
+    // Busy evening in the workshop, quiet night; the utility asks for 45 kW from 01:00 to 03:10.
+    input.site.otherLoadByHourKw = [20, 20, 20, 20, 20, 30, 40, 40, 40, 40, 40, 40, 40, 40, 40, 40, 90, 110, 120, 100, 60, 40, 30, 20];
+    input.site.limitWindows = [{ from: '2026-01-14T01:00', to: '2026-01-14T03:10', limitKw: 45 }];
+    const plan = await enginePlan(input);
+    const optimum = await solveWithGlpk(writeLp(input));
+    expect(plan.status).toBe('optimal');
+    expect(Math.abs(plan.cost.total - optimum) / optimum).toBeLessThan(1e-6);
+    // 03:00-03:15 is touched by the window, so it holds there too.
+    expect(plan.slots.find((x) => x.start.startsWith('2026-01-14T03:00'))!.limitKw).toBe(45);
+    expect(plan.slots.find((x) => x.start.startsWith('2026-01-14T03:15'))!.limitKw).toBe(input.site.limitKw);
+    // Both extensions bind: without them the optimum is lower.
+    const plain = await enginePlan({ ...input, site: { limitKw: input.site.limitKw, otherLoadKw: input.site.otherLoadKw } });
+    expect(plain.cost.total).toBeLessThan(plan.cost.total - 1);
+    const noWindow = await enginePlan({ ...input, site: { ...input.site, limitWindows: undefined } });
+    expect(noWindow.cost.total).toBeLessThan(plan.cost.total - 1e-3);
   });
 
   const jsCases: [number, number][] = [

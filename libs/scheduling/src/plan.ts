@@ -1,4 +1,4 @@
-import { initialAssignment, plugMapOf, type AssignmentHints } from './assignment.js';
+import { initialAssignment, plugMapOf, type Assignment, type AssignmentHints } from './assignment.js';
 import { unmanagedBaseline } from './baseline.js';
 import { explainShortfalls, type ShortReason } from './explain.js';
 import { loadSolver, type Solver } from './highs-solver.js';
@@ -9,6 +9,8 @@ import { prepareProblem, type Problem } from './problem.js';
 import type { Scenario } from './scenario.js';
 import { isoAt } from './slots.js';
 import { costLoad } from './tariff.js';
+import { sweepAssignment } from './sweep.js';
+import { rebalanced, sharedChargerPower } from './rebalance.js';
 
 export interface PlanCost {
   energy: number;
@@ -64,6 +66,13 @@ export interface Plan {
     lowerBoundMs: number;
     localSearchMoves: number;
     localSearchAccepted: number;
+    /** Stage-1 construction the plan comes from (e.g. sweep-strong-deadline). */
+    construction: string;
+    /**
+     * Why the search ended: it reached the bound, used its move budget (both reproducible), or
+     * hit the time safety net (the plan may then differ from run to run).
+     */
+    stoppedBy: 'bound' | 'moves' | 'time';
     simplexIterations: number;
     /** kWh short summed over departures, in the plan and at best (lower-bound relaxation). */
     shortfallKwh: number;
@@ -72,9 +81,13 @@ export interface Plan {
 }
 
 export interface PlanOptions {
-  /** Wall-clock budget for the whole call (ms); local search stops when it runs out. */
+  /**
+   * Safety net on wall-clock time for the whole call (ms). The search normally ends on its move
+   * budget long before this, so the plan does not depend on how busy the machine is; only if the
+   * net is reached does the search stop early (and the plan may then differ between runs).
+   */
   timeBudgetMs?: number;
-  /** Upper limit on local-search moves (keeps a run reproducible when the budget is ample). */
+  /** Local-search moves (default `defaultMoves(problem)`, derived from the problem's size). */
   maxMoves?: number;
 }
 
@@ -84,8 +97,22 @@ const round = (v: number, digits = 6) => {
   return Object.is(r, -0) ? 0 : r;
 };
 
+/**
+ * The safety net (ms): far above what a plan takes on an idle machine (about 0.1-0.5 s up to 200
+ * buses, 1 s at 500), so that a busy machine still ends on the move budget and gives the same
+ * plan; it only bounds a pathological case.
+ */
 export function defaultTimeBudgetMs(buses: number): number {
-  return buses <= 200 ? 850 : 2600;
+  return Math.max(5000, 12 * buses);
+}
+
+/**
+ * Local-search moves when the construction does not reach the bound: about as many as one
+ * idle core re-solves in a few hundred milliseconds (a move re-solves an LP whose size grows with
+ * the stays), and at least a dozen.
+ */
+export function defaultMoves(problem: Problem): number {
+  return Math.max(12, Math.min(120, Math.round(6000 / (25 + problem.stays.length))));
 }
 
 /** The engine: plans a scenario (see the scenario format) and returns the plan. */
@@ -126,9 +153,35 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
   }
   for (const p of lb.power) for (let t = 0; t < T; t++) hints.weight[t] = hints.weight[t]! + p[t]!;
 
-  // Stage 1 variants (service order by departure, or the best of every order per charger);
-  // the LP of each decides which one local search starts from.
-  let start = initialAssignment(problem, hints);
+  // Stage 1 candidates, best first: the sweep that follows the relaxation's load (see sweep.ts
+  // for its variants), then the sequencing heuristic's variants. Each is solved by the LP; the search stops as soon as a candidate reaches the
+  // bound. Every candidate is tried whatever the clock says (only the safety-net deadline stops
+  // early), so the same scenario gives the same plan on a busy or an idle machine.
+  const load = new Float64Array(T);
+  for (const p of lb.power) for (let t = 0; t < T; t++) load[t] = load[t]! + p[t]!;
+  // The tie-break adds at most 1e-7 of the energy cost: closer than this is optimal.
+  const target = lb.penalisedObjective * (1 + 5e-7) + 1e-9;
+  const candidates: [string, () => Assignment][] = [
+    ['sweep-strong-deadline', () => sweepAssignment(problem, { load, energy: hints.energy, pick: 'strong', order: 'deadline' })],
+    ['sweep-strong-deadline-reserve', () => sweepAssignment(problem, { load, energy: hints.energy, pick: 'strong', order: 'deadline', reserve: { power: lb.power, above: 0.5 } })],
+    ['sweep-strong-slack', () => sweepAssignment(problem, { load, energy: hints.energy, pick: 'strong', order: 'slack' })],
+    ['sweep-fit-deadline', () => sweepAssignment(problem, { load, energy: hints.energy, pick: 'fit', order: 'deadline' })],
+    ['sweep-fit-slack', () => sweepAssignment(problem, { load, energy: hints.energy, pick: 'fit', order: 'slack' })],
+  ];
+  // The sequencing heuristic (better where chargers are scarce) knows nothing of stays already
+  // plugged in, so it is left out when re-planning with such stays.
+  if (!problem.pinned?.some((c) => c >= 0)) {
+    candidates.push(
+      ['sequence-departure-share', () => initialAssignment(problem, hints)],
+      ['sequence-best-share', () => initialAssignment(problem, { ...hints, order: 'best', handover: 'share' })],
+      ['sequence-departure-least-cut', () => initialAssignment(problem, { ...hints, order: 'departure', handover: 'least-cut' })],
+      ['sequence-best-least-cut', () => initialAssignment(problem, { ...hints, order: 'best', handover: 'least-cut' })],
+    );
+  }
+  let start = candidates[0]![1]();
+  let construction = candidates[0]![0];
+  let timedOut = false;
+  const maxMoves = options.maxMoves ?? defaultMoves(problem);
   const live = new AssignedModel(problem, solver, start);
   let search;
   try {
@@ -136,34 +189,47 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
     if (first.status !== 'optimal') throw new Error(`plan LP ended ${first.status}; the model should always be solvable`);
     const all = problem.buses.map((b) => b.index);
     let current = start;
-    for (const variant of [
-      { order: 'best', handover: 'share' },
-      { order: 'departure', handover: 'least-cut' },
-      { order: 'best', handover: 'least-cut' },
-    ] as const) {
-      if (performance.now() > deadline) break;
-      const other = initialAssignment(problem, { ...hints, ...variant });
+    for (let i = 1; i < candidates.length && first.objective > target; i++) {
+      if (performance.now() > deadline) {
+        timedOut = true;
+        break;
+      }
+      const other = candidates[i]![1]();
       live.update(other, all);
       current = other;
       const res = live.solve();
-      if (res.status === 'optimal' && res.objective < first.objective) {
+      if (res.status === 'optimal' && res.objective < first.objective - 1e-9 * Math.max(1, Math.abs(first.objective))) {
         start = other;
         first = res;
+        construction = candidates[i]![0];
+      }
+    }
+    // Not at the bound: place each charger's hand-overs together (see rebalance.ts).
+    if (first.objective > target && performance.now() > deadline) timedOut = true;
+    else if (first.objective > target) {
+      const power = sharedChargerPower(problem, solver, start);
+      if (power) {
+        const other = rebalanced(problem, hints, start, power);
+        live.update(other, all);
+        current = other;
+        const res = live.solve();
+        if (res.status === 'optimal' && res.objective < first.objective - 1e-9 * Math.max(1, Math.abs(first.objective))) {
+          start = other;
+          first = res;
+          construction += '+rebalance';
+        }
       }
     }
     if (current !== start) {
       live.update(start, all);
       first = live.solve();
     }
-    search = localSearch(problem, hints, live, start, first, {
-      deadline,
-      maxMoves: options.maxMoves ?? 100_000,
-      // The tie-break adds at most 1e-7 of the energy cost: closer than this is optimal.
-      target: lb.penalisedObjective * (1 + 5e-7) + 1e-9,
-    });
+    search = localSearch(problem, hints, live, start, first, { deadline, maxMoves, target });
   } finally {
     live.dispose();
   }
+  const stoppedBy: Plan['stats']['stoppedBy'] =
+    search.result.objective <= target ? 'bound' : timedOut || search.timedOut ? 'time' : 'moves';
   const assignment = search.assignment;
   const plug = plugMapOf(problem, assignment);
   let power = powerFrom(problem, live.model, search.result.x);
@@ -182,6 +248,8 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
   plan.stats.lowerBoundMs = round(lb.ms, 1);
   plan.stats.localSearchMoves = search.moves;
   plan.stats.localSearchAccepted = search.accepted;
+  plan.stats.construction = construction;
+  plan.stats.stoppedBy = stoppedBy;
   plan.stats.simplexIterations = search.iterations + lb.iterations;
   plan.solveMs = round(performance.now() - t0, 1);
   return plan;
@@ -323,6 +391,8 @@ function assemblePlan(
       lowerBoundMs: 0,
       localSearchMoves: 0,
       localSearchAccepted: 0,
+      construction: '',
+      stoppedBy: 'bound',
       simplexIterations: 0,
       shortfallKwh: round(totalShort),
       unavoidableShortfallKwh: round(lbShortfall),

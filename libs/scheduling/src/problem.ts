@@ -71,6 +71,11 @@ export interface Problem {
   shortfallPenalty: number;
   /** Number of buses at the depot per slot. */
   present: Int32Array;
+  /**
+   * Re-planning: per stay, the charger it is already plugged into at the horizon's start (-1:
+   * none). Such a stay keeps that charger from its first slot on. Absent: nothing pinned.
+   */
+  pinned?: Int32Array;
 }
 
 export function prepareProblem(scenario: Scenario): Problem {

@@ -21,6 +21,12 @@ const windowSchema = z.strictObject({
   to: clock,
 });
 
+const limitWindowSchema = z.strictObject({
+  from: localTime,
+  to: localTime,
+  limitKw: kw,
+});
+
 const periodSchema = z.strictObject({
   name: id,
   price: kwh,
@@ -57,7 +63,14 @@ export const scenarioSchema = z.strictObject({
     .refine((m) => m > 0 && 60 % m === 0, 'must divide the hour (e.g. 15)')
     .default(15),
   efficiency: z.number().gt(0, 'must be above 0').max(1, 'must be at most 1').default(1),
-  site: z.strictObject({ limitKw: kw, otherLoadKw: kwh.default(0) }),
+  site: z.strictObject({
+    limitKw: kw,
+    otherLoadKw: kwh.default(0),
+    /** Format extension: the other load by local hour of day (0-23); overrides otherLoadKw. */
+    otherLoadByHourKw: z.array(kwh).length(24, 'must list 24 values (kW), one per local hour 0-23').optional(),
+    /** Format extension: the utility's load-reduction requests, a lower site limit inside each. */
+    limitWindows: z.array(limitWindowSchema).optional(),
+  }),
   cabinets: z.array(z.strictObject({ id, limitKw: kw })).default([]),
   chargers: z.array(z.strictObject({ id, maxKw: kw, cabinet: id.optional() })).min(1, 'must list at least one charger'),
   tariff: z.strictObject({
@@ -122,6 +135,35 @@ export function localToMillis(local: string, zone: string): number | null {
   return best;
 }
 
+/** The depot's other load (kW) in the slot that starts at `ms`: by local hour if given. */
+export function otherLoadAt(s: Scenario, ms: number): number {
+  const byHour = s.site.otherLoadByHourKw;
+  if (!byHour) return s.site.otherLoadKw;
+  return byHour[DateTime.fromMillis(ms, { zone: s.timezone }).hour]!;
+}
+
+/**
+ * The site limit (kW) of the slot [ms, ms + slotMs): site.limitKw, lowered by every limit window
+ * that overlaps the slot (a window that starts or ends inside a slot holds for the whole slot,
+ * since demand is the slot's average). A window above site.limitKw does not raise it.
+ */
+export function siteLimitAt(s: Scenario, ms: number, slotMs: number, windows = limitWindowsMs(s)): number {
+  let limit = s.site.limitKw;
+  for (const w of windows) if (w.from < ms + slotMs && w.to > ms) limit = Math.min(limit, w.limitKw);
+  return limit;
+}
+
+/** The limit windows in absolute time (windows whose times do not exist are left out). */
+export function limitWindowsMs(s: Scenario): { from: number; to: number; limitKw: number }[] {
+  const out: { from: number; to: number; limitKw: number }[] = [];
+  for (const w of s.site.limitWindows ?? []) {
+    const from = localToMillis(w.from, s.timezone);
+    const to = localToMillis(w.to, s.timezone);
+    if (from !== null && to !== null) out.push({ from, to, limitKw: w.limitKw });
+  }
+  return out;
+}
+
 function minutesOf(clockText: string): number {
   const [h, m] = clockText.split(':').map(Number);
   return h! * 60 + m!;
@@ -163,6 +205,33 @@ function checkScenario(s: Scenario): Problem[] {
     add('end', `must be a whole number of ${s.slotMinutes}-minute slots after start`);
   }
   if (s.site.otherLoadKw > s.site.limitKw) add('site.otherLoadKw', 'must not exceed site.limitKw (the other load alone would break the service limit)');
+  s.site.otherLoadByHourKw?.forEach((kw, h) => {
+    if (kw > s.site.limitKw) add(`site.otherLoadByHourKw[${h}]`, 'must not exceed site.limitKw (the other load alone would break the service limit)');
+  });
+  s.site.limitWindows?.forEach((w, i) => {
+    const path = `site.limitWindows[${i}]`;
+    const from = checkTime(`${path}.from`, w.from);
+    const to = checkTime(`${path}.to`, w.to);
+    if (from === null || to === null) return;
+    if (to <= from) {
+      add(`${path}.to`, 'must be after from');
+      return;
+    }
+    if (startMs === null || endMs === null || endMs <= startMs) return;
+    if (to <= startMs || from >= endMs) {
+      add(path, `lies outside the horizon (${s.start} to ${s.end}): a window must be inside it or overlap it`);
+      return;
+    }
+    // The other load alone must fit under the lowered limit in every slot the window touches.
+    for (let ms = startMs; ms < endMs; ms += slotMs) {
+      if (ms >= to || ms + slotMs <= from) continue;
+      const other = otherLoadAt(s, ms);
+      if (other > w.limitKw) {
+        add(`${path}.limitKw`, `must not be below the other load in the window (${other} kW at ${DateTime.fromMillis(ms, { zone }).toFormat("yyyy-MM-dd'T'HH:mm")})`);
+        break;
+      }
+    }
+  });
 
   const cabinetIds = new Set<string>();
   s.cabinets.forEach((c, i) => {

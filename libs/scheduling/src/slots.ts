@@ -1,5 +1,5 @@
 import { DateTime } from 'luxon';
-import { localToMillis, type Scenario } from './scenario.js';
+import { limitWindowsMs, localToMillis, otherLoadAt, siteLimitAt, type Scenario } from './scenario.js';
 
 /** One demand interval of the horizon. Times are absolute; `start` carries the local offset. */
 export interface Slot {
@@ -54,6 +54,7 @@ export function buildSlots(scenario: Scenario): Slot[] {
   if (startMs === null || endMs === null) throw new Error('scenario start/end do not exist in its time zone');
   const slotMs = scenario.slotMinutes * 60_000;
   const slots: Slot[] = [];
+  const windows = limitWindowsMs(scenario);
   for (let ms = startMs, i = 0; ms < endMs; ms += slotMs, i++) {
     const dt = DateTime.fromMillis(ms, { zone });
     const minuteOfDay = dt.hour * 60 + dt.minute;
@@ -68,8 +69,8 @@ export function buildSlots(scenario: Scenario): Slot[] {
       period,
       periodName: period < 0 ? 'off-peak' : scenario.tariff.periods[period]!.name,
       price: period < 0 ? scenario.tariff.offPeakPrice : scenario.tariff.periods[period]!.price,
-      otherKw: scenario.site.otherLoadKw,
-      limitKw: scenario.site.limitKw,
+      otherKw: otherLoadAt(scenario, ms),
+      limitKw: siteLimitAt(scenario, ms, slotMs, windows),
     });
   }
   return slots;

@@ -266,6 +266,8 @@ export const plans = pgTable(
     scenario: jsonb('scenario').$type<Record<string, unknown>>().notNull(),
     notes: jsonb('notes').$type<string[]>().notNull().default([]),
     result: jsonb('result').$type<Record<string, unknown>>(),
+    /** For a revision: what the yard reported so far tonight, applied to the night's scenario. */
+    replanState: jsonb('replan_state').$type<{ outOfService: string[]; lateArrivals: Record<string, string>; absent: string[] }>(),
     createdBy: uuid('created_by').references(() => users.id, { onDelete: 'set null' }),
     createdAt: createdAt(),
     publishedAt: timestamp('published_at', { withTimezone: true }),
@@ -305,3 +307,54 @@ export const meterImports = pgTable('meter_imports', {
   importedBy: uuid('imported_by').references(() => users.id, { onDelete: 'set null' }),
   createdAt: createdAt(),
 });
+
+/**
+ * A yard step done: a bus connected to or disconnected from a charger. Keyed by night and step,
+ * so a step kept by a revision stays done, and the same confirmation sent twice is stored once.
+ */
+export const yardConfirmations = pgTable(
+  'yard_confirmations',
+  {
+    id: id(),
+    organisationId: orgRef(),
+    depotId: uuid('depot_id').notNull().references(() => depots.id, { onDelete: 'cascade' }),
+    serviceDate: date('service_date').notNull(),
+    stepKey: text('step_key').notNull(),
+    planId: uuid('plan_id').notNull().references(() => plans.id, { onDelete: 'cascade' }),
+    confirmedBy: uuid('confirmed_by').references(() => users.id, { onDelete: 'set null' }),
+    confirmedAt: timestamp('confirmed_at', { withTimezone: true }).notNull().defaultNow(),
+  },
+  (t) => [uniqueIndex('yard_confirmations_step_key').on(t.depotId, t.serviceDate, t.stepKey)],
+);
+
+export const yardReportKind = pgEnum('yard_report_kind', ['bus_late', 'bus_absent', 'charger_out', 'soc_reading']);
+
+/** What the yard reported as different from the plan, and the revision it led to. */
+export const yardReports = pgTable('yard_reports', {
+  id: id(),
+  organisationId: orgRef(),
+  depotId: uuid('depot_id').notNull().references(() => depots.id, { onDelete: 'cascade' }),
+  serviceDate: date('service_date').notNull(),
+  kind: yardReportKind('kind').notNull(),
+  bus: text('bus'),
+  charger: text('charger'),
+  expectedAt: timestamp('expected_at', { withTimezone: true }),
+  socPct: doublePrecision('soc_pct'),
+  reason: text('reason'),
+  planId: uuid('plan_id').notNull().references(() => plans.id, { onDelete: 'cascade' }),
+  revisionId: uuid('revision_id').references(() => plans.id, { onDelete: 'set null' }),
+  reportedBy: uuid('reported_by').references(() => users.id, { onDelete: 'set null' }),
+  reportedAt: timestamp('reported_at', { withTimezone: true }).notNull().defaultNow(),
+});
+
+/** The high-voltage cautions, acknowledged once per person and shift (night). */
+export const shiftAcknowledgements = pgTable(
+  'shift_acknowledgements',
+  {
+    userId: uuid('user_id').notNull().references(() => users.id, { onDelete: 'cascade' }),
+    depotId: uuid('depot_id').notNull().references(() => depots.id, { onDelete: 'cascade' }),
+    serviceDate: date('service_date').notNull(),
+    acknowledgedAt: timestamp('acknowledged_at', { withTimezone: true }).notNull().defaultNow(),
+  },
+  (t) => [primaryKey({ columns: [t.userId, t.depotId, t.serviceDate] })],
+);

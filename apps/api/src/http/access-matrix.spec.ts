@@ -16,6 +16,8 @@ const FLEET = ['supervisor', 'admin'] as const;
 const OFFICE = ['supervisor', 'admin', 'facilities', 'finance'] as const;
 // Finance reviews costs with admins; supervisors and facilities read them.
 const COSTS = ['finance', 'admin', 'supervisor', 'facilities'] as const;
+// The yard carries out the night; supervisors and admins may act for them.
+const YARD = ['yard', 'supervisor', 'admin'] as const;
 
 const EXPECTED: Record<string, 'public' | readonly Role[]> = {
   'GET /health': 'public',
@@ -73,6 +75,10 @@ const EXPECTED: Record<string, 'public' | readonly Role[]> = {
   'POST /depots/:depotId/meter-data': ['finance', 'admin'],
   'GET /plans/:id/ocpp': ['supervisor', 'admin', 'facilities'],
   'PUT /depots/:depotId/chargers/:id/ocpp': EDIT_DEPOT,
+  'GET /depots/:depotId/tonight': YARD,
+  'POST /depots/:depotId/tonight/acknowledge': YARD,
+  'POST /yard/confirmations': YARD,
+  'POST /depots/:depotId/tonight/reports': YARD,
 };
 
 const samplePath = (p: string) =>

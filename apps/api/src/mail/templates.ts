@@ -55,3 +55,23 @@ export function planPublishedMail(p: {
     ].join('\n'),
   };
 }
+
+export function planRevisedMail(p: {
+  to: string; name: string; depot: string; version: number; at: string; reportedBy: string; what: string; moved: string[]; link: string;
+}): OutgoingMail {
+  return {
+    to: p.to,
+    subject: `Plan revised at ${p.at}: ${p.depot} (version ${p.version})`,
+    text: [
+      `Hello ${p.name},`,
+      '',
+      `${p.reportedBy} reported ${p.what}. The rest of the night was planned again and published as version ${p.version}.`,
+      '',
+      p.moved.length ? `Changed: ${p.moved.join('; ')}.` : 'No bus changed charger or times.',
+      '',
+      `Open the yard view: ${p.link}`,
+      '',
+      'The plan is advisory: the people on site decide. Only trained and authorised staff connect or disconnect chargers.',
+    ].join('\n'),
+  };
+}

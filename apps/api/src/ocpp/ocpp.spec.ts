@@ -17,7 +17,7 @@ import { CentralSystem } from './central-system';
 import { chargingProfiles } from './charging-profiles';
 
 // The official OCPP 1.6 and 2.0.1 JSON schemas, as ocpp-rpc applies them in strict mode.
-const validators = standardValidators as { subprotocol: string; validate(id: string, params: unknown): boolean }[];
+const validators = standardValidators as unknown as { subprotocol: string; validate(id: string, params: unknown): boolean }[];
 const validate = (protocol: 'ocpp1.6' | 'ocpp2.0.1', payload: unknown) =>
   validators.find((v) => v.subprotocol === protocol)!.validate('urn:SetChargingProfile.req', payload);
 

@@ -60,8 +60,17 @@ export function checkPlan(scenario: Json, plan: Json, options: CheckOptions = {}
   const startMs = localMs(scenario.start, zone);
   const endMs = localMs(scenario.end, zone);
   const T = Math.round((endMs - startMs) / slotMs);
-  const other: number = scenario.site.otherLoadKw ?? 0;
-  const siteLimit: number = scenario.site.limitKw;
+  // Other load and site limit per slot: otherLoadByHourKw (by the local hour of the slot's
+  // start) overrides otherLoadKw; each limit window lowers the limit in every slot it touches.
+  const byHour: number[] | undefined = scenario.site.otherLoadByHourKw;
+  const otherAt = (t: number): number => (byHour ? byHour[DateTime.fromMillis(startMs + t * slotMs, { zone }).hour]! : (scenario.site.otherLoadKw ?? 0));
+  const windows = (scenario.site.limitWindows ?? []).map((w: Json) => ({ from: localMs(w.from, zone), to: localMs(w.to, zone), kw: w.limitKw as number }));
+  const limitAt = (t: number): number => {
+    let limit: number = scenario.site.limitKw;
+    const a = startMs + t * slotMs;
+    for (const w of windows) if (w.from < a + slotMs && w.to > a) limit = Math.min(limit, w.kw);
+    return limit;
+  };
   const periods: Json[] = scenario.tariff.periods ?? [];
 
   if (plan.slots.length !== T) fail(`plan has ${plan.slots.length} slots, the horizon has ${T}`);
@@ -114,8 +123,10 @@ export function checkPlan(scenario: Json, plan: Json, options: CheckOptions = {}
   const charging = new Float64Array(T);
   for (const p of power.values()) for (let t = 0; t < T; t++) charging[t] += p[t]!;
   for (let t = 0; t < T && t < plan.slots.length; t++) {
-    const load = charging[t]! + other;
+    const load = charging[t]! + otherAt(t);
+    const siteLimit = limitAt(t);
     if (Math.abs(plan.slots[t].loadKw - load) > TOL * Math.max(1, load)) fail(`slot ${t}: loadKw ${plan.slots[t].loadKw}, sessions give ${load}`);
+    if (Math.abs(plan.slots[t].limitKw - siteLimit) > 1e-9) fail(`slot ${t}: limitKw ${plan.slots[t].limitKw}, the scenario gives ${siteLimit}`);
     if (load > siteLimit + TOL * Math.max(1, siteLimit)) fail(`slot ${t}: site load ${load} above the limit ${siteLimit}`);
     for (const cab of scenario.cabinets ?? []) {
       let sum = 0;
@@ -181,7 +192,7 @@ export function checkPlan(scenario: Json, plan: Json, options: CheckOptions = {}
     const price = k < 0 ? scenario.tariff.offPeakPrice : periods[k].price;
     if (plan.slots[t] && Math.abs(plan.slots[t].price - price) > 1e-12) fail(`slot ${t}: price ${plan.slots[t].price}, tariff says ${price}`);
     energy += price * charging[t]! * dtH;
-    const load = charging[t]! + other;
+    const load = charging[t]! + otherAt(t);
     peak = Math.max(peak, load);
     if (k >= 0) periodPeak[k] = Math.max(periodPeak[k]!, load);
   }

@@ -1,0 +1,161 @@
+import { eq } from 'drizzle-orm';
+import { DateTime } from 'luxon';
+import { beforeAll, describe, expect, it } from 'vitest';
+import type { PlanResult } from '@nightyard/contracts';
+import { plans } from '../db/schema';
+import { createDepot } from '../testing/depot-fixture';
+import { addBuses, dayRuns } from '../testing/fleet-fixture';
+import { mailFor } from '../testing/mail';
+import { createOrganisation, createTestApp, type TestUser } from '../testing/test-app';
+
+const ZONE = 'America/Chicago';
+let clock = DateTime.fromISO('2026-12-09T23:00', { zone: ZONE }).toJSDate();
+const app = createTestApp({ clock: () => clock });
+let yard: TestUser;
+let sup: TestUser;
+let depotId: string;
+let otherDepotBus: string;
+const as = (u: TestUser) => ({ Authorization: `Bearer ${u.token}` });
+const NUMBERS = ['41', '42', '43', '44'];
+
+async function tonight() {
+  return (await app.request().get(`/api/depots/${depotId}/tonight`).set(as(yard)).expect(200)).body;
+}
+
+beforeAll(async () => {
+  const org = await createOrganisation(app, { yard: ['yard'], sup: ['supervisor'] });
+  ({ yard, sup } = org.users as Record<string, TestUser>);
+  depotId = (await createDepot(app.db, org.organisationId)).depot.id;
+  await addBuses(app.db, org.organisationId, depotId, NUMBERS);
+  for (const date of ['2026-12-09', '2026-12-10']) {
+    // Low arrivals: every bus needs a long charge, so all three chargers work through the night.
+    await app.request().put(`/api/depots/${depotId}/service-days/${date}`).set(as(sup)).send({ runs: dayRuns(date, NUMBERS, () => 16) }).expect(200);
+  }
+  const gen = await app.request().post(`/api/depots/${depotId}/plans`).set(as(sup)).send({ serviceDate: '2026-12-09', includeMidday: false }).expect(202);
+  for (let i = 0; i < 100; i++) {
+    if ((await app.request().get(`/api/plans/${gen.body.plan.id}`).set(as(sup))).body.plan.status === 'done') break;
+    await new Promise((r) => setTimeout(r, 100));
+  }
+  await app.request().post(`/api/plans/${gen.body.plan.id}/publish`).set(as(sup)).send({ expectedPublishedId: null }).expect(200);
+  const other = await createOrganisation(app, { s: ['supervisor'] });
+  otherDepotBus = (await addBuses(app.db, other.organisationId, (await createDepot(app.db, other.organisationId)).depot.id, ['99']))[0]!.number;
+});
+
+describe('yard: tonight and confirmations', () => {
+  it('lists connect and disconnect steps of the published plan, marks overdue ones', async () => {
+    const t = await tonight();
+    expect(t.plan.state).toBe('published');
+    expect(t.acknowledged).toBe(false);
+    const connects = t.steps.filter((s: { action: string }) => s.action === 'connect');
+    expect(connects.length).toBe(t.plan.result.sessions.length);
+    for (const s of t.steps) expect(s.status).toBe(Date.parse(s.at) + 600_000 < clock.getTime() ? 'overdue' : 'upcoming');
+  });
+
+  it('a confirmation sent twice is stored once', async () => {
+    const t = await tonight();
+    const step = t.steps.find((s: { action: string; at: string }) => s.action === 'connect' && Date.parse(s.at) < clock.getTime());
+    const body = { planId: t.plan.id, stepKey: step.key };
+    const [a, b] = await Promise.all([
+      app.request().post('/api/yard/confirmations').set(as(yard)).send(body),
+      app.request().post('/api/yard/confirmations').set(as(yard)).send(body),
+    ]);
+    expect(a.status).toBe(200);
+    expect(b.status).toBe(200);
+    expect(a.body).toEqual(b.body);
+    const again = await app.request().post('/api/yard/confirmations').set(as(yard)).send(body).expect(200);
+    expect(again.body.confirmedAt).toBe(a.body.confirmedAt);
+    const after = await tonight();
+    expect(after.steps.find((s: { key: string }) => s.key === step.key).status).toBe('done');
+  });
+
+  it('acknowledging the cautions holds for the shift', async () => {
+    await app.request().post(`/api/depots/${depotId}/tonight/acknowledge`).set(as(yard)).expect(204);
+    await app.request().post(`/api/depots/${depotId}/tonight/acknowledge`).set(as(yard)).expect(204);
+    expect((await tonight()).acknowledged).toBe(true);
+  });
+});
+
+describe('yard: reports re-plan the rest of the night', () => {
+  it('charger out of service at 23:00: no session uses it after 23:00; energy delivered before stays counted', async () => {
+    const before = await tonight();
+    const prev: PlanResult = before.plan.result;
+    const cut = clock.getTime();
+    const charger = prev.sessions.find((s) => Date.parse(s.end) > cut && s.kw.some((k) => k > 0))!.charger;
+    const res = await app.request().post(`/api/depots/${depotId}/tonight/reports`).set(as(yard))
+      .send({ planId: before.plan.id, kind: 'charger_out', charger, reason: 'Connector latch broken' }).expect(201);
+    expect(res.body.revision).toMatchObject({ kind: 'revision', state: 'published', version: 2 });
+    const [row] = await app.db.select().from(plans).where(eq(plans.id, res.body.revision.id));
+    const next = row!.result as unknown as PlanResult;
+    for (const s of next.sessions.filter((x) => x.charger === charger)) {
+      expect(Date.parse(s.end)).toBeLessThanOrEqual(cut);
+    }
+    // Energy delivered before 23:00 is the previous plan's, slot by slot.
+    const deliveredBefore = (r: PlanResult) => {
+      const out: Record<string, number> = {};
+      for (const s of r.sessions) s.kw.forEach((kw, k) => {
+        if (Date.parse(s.start) + k * 900_000 < cut) out[s.bus] = (out[s.bus] ?? 0) + kw * 0.25;
+      });
+      return out;
+    };
+    const a = deliveredBefore(prev);
+    const b = deliveredBefore(next);
+    for (const bus of Object.keys(a)) expect(b[bus] ?? 0).toBeCloseTo(a[bus]!, 6);
+    // The old version is superseded; the charger is out of service in the Depot.
+    const depot = await app.request().get(`/api/depots/${depotId}`).set(as(yard)).expect(200);
+    expect(depot.body.depot.chargers.find((c: { label: string }) => c.label === charger)).toMatchObject({ status: 'out_of_service', statusReason: 'Connector latch broken' });
+    const [mail] = await mailFor(yard.email);
+    expect(mail!.subject).toMatch(/Plan revised at 23:00: Test depot \(version 2\)/);
+  });
+
+  it('a late bus: its sessions move after its new time', async () => {
+    clock = DateTime.fromISO('2026-12-09T23:30', { zone: ZONE }).toJSDate();
+    const before = await tonight();
+    const prev: PlanResult = before.plan.result;
+    const cut = clock.getTime();
+    // A bus with charging still to come after the cut-off.
+    const bus = prev.sessions.find((s) => Date.parse(s.end) > cut)!.bus;
+    const res = await app.request().post(`/api/depots/${depotId}/tonight/reports`).set(as(yard))
+      .send({ planId: before.plan.id, kind: 'bus_late', bus, expectedAt: '2026-12-10T01:30' }).expect(201);
+    const [row] = await app.db.select().from(plans).where(eq(plans.id, res.body.revision.id));
+    const next = row!.result as unknown as PlanResult;
+    const newTime = DateTime.fromISO('2026-12-10T01:30', { zone: ZONE }).toMillis();
+    for (const s of next.sessions.filter((x) => x.bus === bus && Date.parse(x.end) > cut)) {
+      expect(Date.parse(s.start)).toBeGreaterThanOrEqual(newTime);
+    }
+  });
+
+  it('bad reports change nothing: a superseded plan, a state of charge over 100 %, a bus of another depot', async () => {
+    const count = async () => (await app.db.select().from(plans).where(eq(plans.depotId, depotId))).length;
+    const n = await count();
+    const current = await tonight();
+    const [first] = await app.db.select().from(plans).where(eq(plans.depotId, depotId)).orderBy(plans.version).limit(1);
+    const stale = await app.request().post(`/api/depots/${depotId}/tonight/reports`).set(as(yard))
+      .send({ planId: first!.id, kind: 'soc_reading', bus: '41', socPct: 50 }).expect(409);
+    expect(stale.body.error.message).toMatch(/replaced by version 3: reload/);
+    const soc = await app.request().post(`/api/depots/${depotId}/tonight/reports`).set(as(yard))
+      .send({ planId: current.plan.id, kind: 'soc_reading', bus: '41', socPct: 120 }).expect(400);
+    expect(soc.body.error.fields.socPct).toBe('A state of charge is 0 to 100 %');
+    const foreign = await app.request().post(`/api/depots/${depotId}/tonight/reports`).set(as(yard))
+      .send({ planId: current.plan.id, kind: 'bus_absent', bus: otherDepotBus }).expect(400);
+    expect(foreign.body.error.message).toMatch(/Bus 99 is not in tonight's plan/);
+    const oldStep = await app.request().post('/api/yard/confirmations').set(as(yard)).send({ planId: first!.id, stepKey: 'x' }).expect(409);
+    expect(oldStep.body.error.message).toMatch(/replaced by version 3/);
+    expect(await count()).toBe(n);
+  });
+
+  it('a measured state of charge re-plans from the reading', async () => {
+    clock = DateTime.fromISO('2026-12-09T23:45', { zone: ZONE }).toJSDate();
+    const current = await tonight();
+    const res = await app.request().post(`/api/depots/${depotId}/tonight/reports`).set(as(yard))
+      .send({ planId: current.plan.id, kind: 'soc_reading', bus: '42', socPct: 88 }).expect(201);
+    expect(res.body.revision.version).toBe(4);
+    expect(res.body.replanMs).toBeGreaterThan(0);
+    const after = await tonight();
+    expect(after.reports.map((r: { kind: string }) => r.kind)).toEqual(['soc_reading', 'bus_late', 'charger_out']);
+  });
+
+  it('roles', async () => {
+    const fin = (await createOrganisation(app, { f: ['finance'] })).users.f!;
+    await app.request().get(`/api/depots/${depotId}/tonight`).set(as(fin)).expect(403);
+  });
+});

@@ -1,0 +1,117 @@
+import { describe, expect, it } from 'vitest';
+import { planScenario, type Plan } from './plan.js';
+import { replan, ReplanStateError, type Replan, type ReplanState } from './replan.js';
+import { parseScenario, type Scenario } from './scenario.js';
+import { generateDepot } from './testing/generate-depot.js';
+import { checkPlan } from './testing/plan-checker.js';
+
+// Re-planning at a cut-off: frozen slots before it, the depot's state folded into a scenario
+// that starts there, and the plan of that scenario checked by the independent checker.
+
+const options = { timeBudgetMs: 5000, maxMoves: 30 };
+const at = (local: string) => Date.parse(`${local}:00-06:00`); // January in America/Chicago
+
+function depot(buses = 12, seed = 3): Scenario {
+  const parsed = parseScenario(generateDepot({ buses, seed }));
+  if (!parsed.ok) throw new Error(JSON.stringify(parsed.problems));
+  return parsed.scenario;
+}
+
+async function planOf(s: Scenario): Promise<Plan> {
+  const p = await planScenario(s, options);
+  expect(checkPlan(s, p)).toEqual([]);
+  return p;
+}
+
+async function replanOf(s: Scenario, state: ReplanState): Promise<Replan> {
+  const r = await replan(s, state, options);
+  expect(checkPlan(r.replan.scenario, r)).toEqual([]);
+  return r;
+}
+
+describe('replan', () => {
+  it('after a charger is reported out of service at 23:00, no session uses it and what it delivered stays counted', async () => {
+    const s = depot();
+    const before = await planOf(s);
+    const cut = at('2026-01-14T23:00');
+    const running = before.sessions.find((x) => Date.parse(x.start) < cut && Date.parse(x.end) > cut);
+    expect(running, 'a session runs over 23:00').toBeDefined();
+    const { bus, charger } = running!;
+
+    const r = await replanOf(s, { now: '2026-01-14T23:00', previous: before, outOfService: [charger] });
+    expect(r.slots[0]!.start).toBe('2026-01-14T23:00:00.000-06:00');
+    expect(r.sessions.every((x) => x.charger !== charger)).toBe(true);
+    expect(r.sessions.every((x) => Date.parse(x.start) >= cut)).toBe(true);
+
+    // Energy delivered before 23:00 (on the failed charger and elsewhere) is the bus's energy now.
+    const b = s.buses.find((x) => x.id === bus)!;
+    const deliveredKwh = before.sessions.filter((x) => x.bus === bus).reduce((a, x) => a + x.kw.reduce((k, v, i) => k + (Date.parse(x.start) + i * 900_000 < cut ? v * 0.25 : 0), 0), 0);
+    expect(deliveredKwh).toBeGreaterThan(0);
+    const now = r.replan.scenario.buses.find((x) => x.id === bus)!;
+    expect(now.arrivalKwh).toBeCloseTo(b.arrivalKwh + s.efficiency * deliveredKwh, 4);
+    expect(now.stays[0]!.arrive).toBe('2026-01-14T23:00');
+    // The frozen part is kept, cut at 23:00, and the bus is still served on another charger.
+    const kept = r.replan.kept.find((x) => x.bus === bus && x.charger === charger)!;
+    expect(Date.parse(kept.end)).toBe(cut);
+    expect(r.buses.find((x) => x.id === bus)!.shortfallKwh).toBe(0);
+    expect(r.status).not.toBe('short');
+    // What the frozen slots drew is a peak so far: the re-plan pays only for new peaks.
+    const frozenPeak = Math.max(...before.slots.filter((x) => Date.parse(x.start) < cut).map((x) => x.loadKw));
+    expect(r.replan.scenario.tariff.peaksSoFarKw['facility']).toBeGreaterThanOrEqual(frozenPeak - 1e-6);
+    expect(r.cost.total).toBeGreaterThanOrEqual(r.lowerBound - 1e-6);
+  });
+
+  it("moves a late bus's sessions after its new arrival time", async () => {
+    const s = depot();
+    const before = await planOf(s);
+    const late = s.buses[0]!;
+    expect(before.sessions.some((x) => x.bus === late.id)).toBe(true);
+    const r = await replanOf(s, { now: '2026-01-14T19:00', previous: before, lateArrivals: { [late.id]: '2026-01-14T22:30' } });
+    const mine = r.sessions.filter((x) => x.bus === late.id);
+    expect(mine.length).toBeGreaterThan(0);
+    for (const x of mine) expect(Date.parse(x.start)).toBeGreaterThanOrEqual(at('2026-01-14T22:30'));
+    expect(r.replan.scenario.buses[0]!.stays[0]!.arrive).toBe('2026-01-14T22:30');
+    // It charged nothing before 19:00 in the frozen part (it was not there).
+    expect(r.replan.kept.some((x) => x.bus === late.id)).toBe(false);
+    expect(r.replan.scenario.buses[0]!.arrivalKwh).toBe(late.arrivalKwh);
+  });
+
+  it('keeps a bus on the charger it is plugged into, and takes reported energies as they are', async () => {
+    const s = depot();
+    const bus = s.buses.find((b) => Date.parse(`${b.stays[0]!.arrive}:00-06:00`) <= at('2026-01-14T21:00'))!;
+    const charger = s.chargers[s.chargers.length - 1]!.id;
+    const r = await replanOf(s, { now: '2026-01-14T21:00', plugged: { [bus.id]: charger }, energyKwh: { [bus.id]: bus.arrivalKwh + 5 } });
+    expect(r.replan.scenario.buses.find((b) => b.id === bus.id)!.arrivalKwh).toBe(bus.arrivalKwh + 5);
+    const first = r.sessions.filter((x) => x.bus === bus.id).sort((x, y) => Date.parse(x.start) - Date.parse(y.start))[0]!;
+    expect(first.charger).toBe(charger);
+    // Nobody else is on that charger before the plugged bus leaves it.
+    const others = r.sessions.filter((x) => x.charger === charger && x.bus !== bus.id);
+    for (const x of others) expect(Date.parse(x.start)).toBeGreaterThanOrEqual(Date.parse(first.end));
+  });
+
+  it('is reproducible and plans the same depot the same way from the start', async () => {
+    const s = depot(8, 5);
+    const a = await replan(s, { now: s.start }, options);
+    const b = await planScenario(s, options);
+    expect(a.sessions).toEqual(b.sessions);
+    expect(a.cost).toEqual(b.cost);
+  });
+
+  it('rejects a state that does not fit the scenario, with field paths', async () => {
+    const s = depot();
+    const problemsOf = async (state: ReplanState) => {
+      try {
+        await replan(s, state, options);
+      } catch (e) {
+        expect(e).toBeInstanceOf(ReplanStateError);
+        return (e as ReplanStateError).problems.map((p) => p.path);
+      }
+      return [];
+    };
+    expect(await problemsOf({ now: '2026-01-16T01:00' })).toEqual(['state.now']);
+    expect(await problemsOf({ now: '2026-01-14T23:00', outOfService: ['C999'], energyKwh: { B999: 10 } })).toEqual(['state.energyKwh.B999', 'state.outOfService[0]']);
+    expect(await problemsOf({ now: '2026-01-14T23:00', lateArrivals: { B001: '2026-01-15T11:00' } })).toEqual(['state.lateArrivals.B001']);
+    const [c1, c2] = s.chargers;
+    expect(await problemsOf({ now: '2026-01-14T23:00', outOfService: [c1!.id], plugged: { B001: c1!.id, B002: c2!.id, B003: c2!.id } })).toEqual(['state.plugged.B001', 'state.plugged.B003']);
+  });
+});

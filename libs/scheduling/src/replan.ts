@@ -1,0 +1,245 @@
+import { DateTime } from 'luxon';
+import { loadSolver } from './highs-solver.js';
+import { planProblem, type Plan, type PlanOptions, type PlanSession } from './plan.js';
+import { prepareProblem } from './problem.js';
+import { formatPath, localToMillis, parseScenario, type Problem as ScenarioProblem, type Scenario } from './scenario.js';
+import { buildSlots } from './slots.js';
+
+// Re-planning during the night. At a cut-off instant `now` the depot reports what has happened:
+// each bus's battery energy, which buses are on which charger, chargers out of service, buses
+// running late. Slots before `now` are frozen (nothing is decided there); the engine plans the
+// rest as a scenario of its own that starts at `now` (a valid version 1 file, returned with the
+// plan so it can be exported or checked), with:
+// - each bus's energy at `now` as its arrival energy (stays that ended before `now` dropped,
+//   the stay in progress starting at `now`, a late bus's stay starting at its new time);
+// - the billing period's peaks so far raised to what the frozen slots already drew (other load
+//   plus the previous plan's charging there), so only new peaks cost;
+// - chargers out of service unavailable for the whole re-plan, and buses already plugged in
+//   kept on their charger from `now` on (until the plan unplugs them).
+
+/** What the depot reports at the cut-off. Bus and charger ids are the scenario's. */
+export interface ReplanState {
+  /**
+   * Cut-off: local wall-clock time `YYYY-MM-DDTHH:mm` in the scenario's zone. A time inside a
+   * slot freezes that slot too (the re-plan starts at the next slot boundary).
+   */
+  now: string;
+  /**
+   * Battery energy (kWh) per bus at the cut-off (for a bus away from the depot: at its next
+   * arrival). A bus not listed: the energy the previous plan gives it at the cut-off, or without
+   * one, the scenario's arrival energy less the runs already driven (nothing charged).
+   */
+  energyKwh?: Record<string, number>;
+  /** Buses on a charger at the cut-off (bus id to charger id): they keep it from the cut-off. */
+  plugged?: Record<string, string>;
+  /** Chargers out of service from the cut-off on. */
+  outOfService?: string[];
+  /** Buses running late: bus id to the new local arrival time of the stay they are coming to. */
+  lateArrivals?: Record<string, string>;
+  /**
+   * The plan being carried out. Its sessions before the cut-off count as delivered (energy and
+   * demand) unless a bus's own figure says otherwise; a late bus's sessions there are dropped.
+   */
+  previous?: Plan;
+}
+
+/** A re-plan: the plan from the cut-off on, what it was made from, what was kept before it. */
+export interface Replan extends Plan {
+  replan: {
+    /** First slot of the re-plan (ISO with offset). */
+    from: string;
+    /** The scenario from the cut-off on, with the reported state folded in. */
+    scenario: Scenario;
+    /** Chargers unavailable in the re-plan. */
+    outOfService: string[];
+    /** Buses kept on the charger they were on (bus id to charger id). */
+    plugged: Record<string, string>;
+    /** The previous plan's sessions before the cut-off, cut there (late buses left out). */
+    kept: PlanSession[];
+  };
+}
+
+export class ReplanStateError extends Error {
+  constructor(readonly problems: ScenarioProblem[]) {
+    super(`re-plan state rejected: ${problems.map((p) => `${p.path}: ${p.message}`).join('; ')}`);
+  }
+}
+
+const round = (v: number) => Math.round(v * 1e6) / 1e6;
+
+/**
+ * Re-plans a scenario from a cut-off instant with what the depot reports (see ReplanState).
+ * Throws ReplanStateError (with field paths under `state.`) on a state that does not fit the
+ * scenario.
+ */
+export async function replan(scenario: Scenario, state: ReplanState, options: PlanOptions = {}): Promise<Replan> {
+  const solver = await loadSolver();
+  const t0 = performance.now();
+  const { derived, outOfService, plugged, kept } = deriveScenario(scenario, state);
+  const problem = prepareProblem(derived);
+  const index = new Map(problem.chargers.map((c) => [c.id, c.index]));
+  for (const id of outOfService) problem.chargers[index.get(id)!]!.available.fill(0);
+  const pinned = new Int32Array(problem.stays.length).fill(-1);
+  for (const [busId, chargerId] of Object.entries(plugged)) {
+    const bus = problem.buses.find((b) => b.id === busId)!;
+    pinned[bus.stays[0]!.id] = index.get(chargerId)!;
+  }
+  problem.pinned = pinned;
+  const plan = planProblem(problem, solver, options, t0);
+  return { ...plan, replan: { from: problem.slots[0]!.start, scenario: derived, outOfService, plugged, kept } };
+}
+
+/** The scenario from the cut-off on (exported for tests and for exporting a re-plan's input). */
+export function deriveScenario(scenario: Scenario, state: ReplanState) {
+  const problems: ScenarioProblem[] = [];
+  const add = (path: (string | number)[], message: string) => problems.push({ path: formatPath(['state', ...path]), message });
+  const zone = scenario.timezone;
+  const slotMs = scenario.slotMinutes * 60_000;
+  const slots = buildSlots(scenario);
+  const startMs = slots[0]!.startMs;
+  const endMs = slots[slots.length - 1]!.endMs;
+  const local = (ms: number) => DateTime.fromMillis(ms, { zone }).toFormat("yyyy-MM-dd'T'HH:mm");
+  const fail = () => new ReplanStateError(problems);
+
+  const nowMs = localToMillis(state.now, zone);
+  if (nowMs === null) {
+    add(['now'], `${state.now} is not a local time YYYY-MM-DDTHH:mm that exists in ${zone}`);
+    throw fail();
+  }
+  if (nowMs < startMs || nowMs >= endMs) {
+    add(['now'], `must be inside the horizon (${scenario.start} to ${scenario.end}, end excluded)`);
+    throw fail();
+  }
+  const cut = Math.ceil((nowMs - startMs) / slotMs);
+  if (cut >= slots.length) {
+    add(['now'], 'leaves no whole slot to plan before the end');
+    throw fail();
+  }
+  const cutMs = startMs + cut * slotMs;
+  const cutText = local(cutMs);
+  if (localToMillis(cutText, zone) !== cutMs) {
+    add(['now'], 'falls in the second run of a repeated hour (clock change): the format cannot name that start');
+    throw fail();
+  }
+
+  const busIds = new Set(scenario.buses.map((b) => b.id));
+  const chargerIds = new Set(scenario.chargers.map((c) => c.id));
+  for (const id of Object.keys(state.energyKwh ?? {})) if (!busIds.has(id)) add(['energyKwh', id], 'is not a bus of the scenario');
+  for (const id of Object.keys(state.lateArrivals ?? {})) if (!busIds.has(id)) add(['lateArrivals', id], 'is not a bus of the scenario');
+  const outOfService = [...new Set(state.outOfService ?? [])];
+  (state.outOfService ?? []).forEach((id, i) => {
+    if (!chargerIds.has(id)) add(['outOfService', i], `${id} is not a charger of the scenario`);
+  });
+  for (const [id, kwh] of Object.entries(state.energyKwh ?? {})) if (!(Number.isFinite(kwh) && kwh >= 0)) add(['energyKwh', id], 'must be a number of kWh, 0 or more');
+
+  // What the previous plan delivered before the cut (grid kW per bus per slot). A late bus was
+  // not at the depot for the stay it is late for: its sessions from that stay's planned arrival
+  // did not happen.
+  const late = new Set(Object.keys(state.lateArrivals ?? {}));
+  const lateFrom = new Map<string, number>();
+  for (const b of scenario.buses) {
+    if (!late.has(b.id)) continue;
+    const st = b.stays.find((x) => localToMillis(x.depart, zone)! > cutMs);
+    if (st) lateFrom.set(b.id, localToMillis(st.arrive, zone)!);
+  }
+  const before = new Map<string, Float64Array>();
+  const kept: PlanSession[] = [];
+  if (state.previous) {
+    for (const s of state.previous.sessions) {
+      if (!busIds.has(s.bus)) continue;
+      if (lateFrom.has(s.bus) && Date.parse(s.end) > lateFrom.get(s.bus)!) continue;
+      const first = Math.round((Date.parse(s.start) - startMs) / slotMs);
+      if (first >= cut) continue;
+      const row = before.get(s.bus) ?? new Float64Array(slots.length);
+      before.set(s.bus, row);
+      const kw = s.kw.slice(0, cut - first);
+      kw.forEach((v, i) => (row[first + i] = row[first + i]! + v));
+      const endMs = startMs + (first + kw.length) * slotMs;
+      kept.push({ ...s, end: DateTime.fromMillis(endMs, { zone }).toISO()!, kw, kwh: round(kw.reduce((a, v) => a + (v * slotMs) / 3_600_000, 0)) });
+    }
+  }
+
+  const derived: Scenario = structuredClone(scenario);
+  derived.start = cutText;
+  const dtH = scenario.slotMinutes / 60;
+  const buses: Scenario['buses'] = [];
+  scenario.buses.forEach((b) => {
+    const stays: Scenario['buses'][number]['stays'] = [];
+    // Energy at the cut from the scenario and the previous plan's frozen charging.
+    let e = b.arrivalKwh;
+    let current: number | null = null;
+    b.stays.forEach((st, k) => {
+      const arrive = localToMillis(st.arrive, zone)!;
+      const depart = localToMillis(st.depart, zone)!;
+      if (depart <= cutMs) {
+        const row = before.get(b.id);
+        if (row) for (let t = 0; t < cut; t++) if (slots[t]!.startMs >= arrive && slots[t]!.endMs <= depart) e += scenario.efficiency * dtH * row[t]!;
+        e -= st.runKwh;
+        return;
+      }
+      if (current === null) {
+        current = k;
+        const row = before.get(b.id);
+        if (row) for (let t = 0; t < cut; t++) if (slots[t]!.startMs >= arrive && slots[t]!.endMs <= depart) e += scenario.efficiency * dtH * row[t]!;
+      }
+      stays.push({ ...st, arrive: arrive < cutMs ? cutText : st.arrive });
+    });
+    if (stays.length === 0) {
+      if (state.lateArrivals?.[b.id] !== undefined) add(['lateArrivals', b.id], 'the bus has no stay left after now');
+      if (state.plugged?.[b.id] !== undefined) add(['plugged', b.id], 'the bus has left the depot for good before now');
+      return;
+    }
+    const lateText = state.lateArrivals?.[b.id];
+    if (lateText !== undefined) {
+      const ms = localToMillis(lateText, zone);
+      const depart = localToMillis(stays[0]!.depart, zone)!;
+      if (ms === null) add(['lateArrivals', b.id], `${lateText} is not a local time YYYY-MM-DDTHH:mm that exists in ${zone}`);
+      else if (ms >= depart) add(['lateArrivals', b.id], `must be before the stay's departure ${stays[0]!.depart}`);
+      else stays[0] = { ...stays[0]!, arrive: ms <= cutMs ? cutText : lateText };
+    }
+    const given = state.energyKwh?.[b.id];
+    const energy = Math.min(b.usableKwh, Math.max(0, given ?? e));
+    buses.push({ ...b, arrivalKwh: round(energy), stays });
+  });
+
+  const plugged: Record<string, string> = {};
+  const takenBy = new Map<string, string>();
+  for (const [busId, chargerId] of Object.entries(state.plugged ?? {})) {
+    const bus = buses.find((b) => b.id === busId);
+    if (!busIds.has(busId)) add(['plugged', busId], 'is not a bus of the scenario');
+    else if (!chargerIds.has(chargerId)) add(['plugged', busId], `${chargerId} is not a charger of the scenario`);
+    else if (!bus) continue;
+    else if (late.has(busId)) add(['plugged', busId], 'a late bus cannot be plugged in already');
+    else if (localToMillis(bus.stays[0]!.arrive, zone)! > cutMs) add(['plugged', busId], 'the bus is not at the depot now');
+    else if (takenBy.has(chargerId)) add(['plugged', busId], `${chargerId} already holds ${takenBy.get(chargerId)}`);
+    else if (outOfService.includes(chargerId)) add(['plugged', busId], `${chargerId} is out of service: the bus is taken to another charger`);
+    else {
+      takenBy.set(chargerId, busId);
+      plugged[busId] = chargerId;
+    }
+  }
+  if (buses.length === 0) add(['now'], 'every bus has left the depot for good: nothing to plan');
+  if (problems.length) throw fail();
+
+  // Peaks already drawn in the frozen slots count as peaks so far.
+  const peaks = { ...scenario.tariff.peaksSoFarKw };
+  for (let t = 0; t < cut; t++) {
+    let load = slots[t]!.otherKw;
+    for (const row of before.values()) load += row[t]!;
+    peaks['facility'] = Math.max(peaks['facility'] ?? 0, round(load));
+    if (slots[t]!.period >= 0) {
+      const name = scenario.tariff.periods[slots[t]!.period]!.name;
+      peaks[name] = Math.max(peaks[name] ?? 0, round(load));
+    }
+  }
+  derived.tariff = { ...scenario.tariff, peaksSoFarKw: peaks };
+  derived.buses = buses;
+  if (scenario.site.limitWindows) {
+    derived.site = { ...scenario.site, limitWindows: scenario.site.limitWindows.filter((w) => localToMillis(w.to, zone)! > cutMs) };
+  }
+  const parsed = parseScenario(derived);
+  if (!parsed.ok) {
+    throw new ReplanStateError(parsed.problems.map((p) => ({ path: `(re-plan scenario) ${p.path}`, message: p.message })));
+  }
+  return { derived: parsed.scenario, outOfService, plugged, kept };
+}
