@@ -111,6 +111,16 @@ describe('scenario base', () => {
     expect(parsed.ok ? [] : parsed.problems).toEqual([]);
   });
 
+  it('carries the hourly other load and the load-reduction windows into the scenario', async () => {
+    const res = await app.request().get(`${base()}/scenario-base`).query({ start: '2026-12-10T12:00', end: '2026-12-11T09:00' })
+      .set(as(fac)).expect(200);
+    expect(res.body.scenario.site.otherLoadByHourKw).toHaveLength(24);
+    expect(res.body.scenario.site.limitWindows).toEqual([
+      { from: '2026-12-10T17:00', to: '2026-12-10T19:00', limitKw: 150 },
+      { from: '2026-12-10T19:00', to: '2026-12-10T20:00', limitKw: 100 },
+    ]);
+  });
+
   it('says which date has no rate plan', async () => {
     const res = await app.request().get(`${base()}/scenario-base`).query({ start: '2025-06-01T12:00', end: '2025-06-02T09:00' }).set(as(fac)).expect(400);
     expect(res.body.error.message).toMatch(/No rate plan applies to Depot one on 2025-06-01/);

@@ -76,26 +76,19 @@ export async function buildScenarioBase(db: Db, caller: AuthUser, depotId: strin
   const cabinetLabel = new Map(cabs.map((c) => [c.id, c.label]));
   const usedCabinets = new Set(inService.map((c) => c.cabinetId).filter((id): id is string => id !== null));
 
-  // The format has one site limit and one other-load figure: take the safe side of both.
-  let limitKw = depot.serviceLimitKw;
+  // Load-reduction windows lower the site limit only while they last (scenario extension).
+  const limitKw = depot.serviceLimitKw;
   const reductions = await db
     .select()
     .from(loadReductionWindows)
     .where(and(eq(loadReductionWindows.depotId, depotId), lt(loadReductionWindows.startsAt, to.toJSDate()), gt(loadReductionWindows.endsAt, from.toJSDate())));
-  for (const r of reductions) {
-    if (r.limitKw < limitKw) limitKw = r.limitKw;
-    const at = (d: Date) => DateTime.fromJSDate(d, { zone }).toFormat('ccc HH:mm');
-    notes.push(`Load-reduction window ${at(r.startsAt)}-${at(r.endsAt)} at ${r.limitKw} kW: the limit of the whole horizon is lowered to it.`);
-  }
-  const hours = new Set<number>();
-  for (let t = from; t < to; t = t.plus({ hours: 1 })) hours.add(t.hour);
+  const limitWindows = reductions.map((r) => {
+    const a = DateTime.fromJSDate(r.startsAt, { zone });
+    const b = DateTime.fromJSDate(r.endsAt, { zone });
+    return { from: (a < from ? from : a).toFormat(LOCAL), to: (b > to ? to : b).toFormat(LOCAL), limitKw: r.limitKw };
+  });
   const profile = depot.otherLoadKw;
-  const loads = [...hours].map((h) => (profile.length === 1 ? profile[0]! : profile[h]!));
-  const otherLoadKw = Math.max(...loads);
-  if (Math.min(...loads) !== otherLoadKw) {
-    notes.push(`The depot's other load varies from ${Math.min(...loads)} to ${otherLoadKw} kW over the horizon; its highest value is used throughout.`);
-  }
-
+  const hourly = profile.length === 24 ? profile : null;
   return {
     scenario: {
       version: 1,
@@ -104,7 +97,12 @@ export async function buildScenarioBase(db: Db, caller: AuthUser, depotId: strin
       end: to.toFormat(LOCAL),
       slotMinutes: 15,
       efficiency: DEFAULT_EFFICIENCY,
-      site: { limitKw, otherLoadKw },
+      site: {
+        limitKw,
+        otherLoadKw: hourly ? Math.max(...hourly) : profile[0]!,
+        ...(hourly ? { otherLoadByHourKw: hourly } : {}),
+        ...(limitWindows.length ? { limitWindows } : {}),
+      },
       cabinets: cabs.filter((c) => usedCabinets.has(c.id)).map((c) => ({ id: c.label, limitKw: c.limitKw })),
       chargers: inService.map((c) => ({
         id: c.label,
