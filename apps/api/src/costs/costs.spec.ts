@@ -4,6 +4,7 @@ import { beforeAll, describe, expect, it } from 'vitest';
 import { billingPeaks, meterIntervals } from '../db/schema';
 import { createDepot } from '../testing/depot-fixture';
 import { addBuses, dayRuns } from '../testing/fleet-fixture';
+import { publishedPlan } from '../testing/plan-fixture';
 import { createOrganisation, createTestApp, type TestUser } from '../testing/test-app';
 
 const app = createTestApp();
@@ -24,14 +25,7 @@ beforeAll(async () => {
   for (const date of ['2026-12-02', '2026-12-03']) {
     await app.request().put(`/api/depots/${depotId}/service-days/${date}`).set(as(sup)).send({ forecastLowF: 30, runs: dayRuns(date, NUMBERS, () => 35) }).expect(200);
   }
-  const gen = await app.request().post(`/api/depots/${depotId}/plans`).set(as(sup)).send({ serviceDate: '2026-12-02', includeMidday: false }).expect(202);
-  planId = gen.body.plan.id;
-  for (let i = 0; i < 100; i++) {
-    const res = await app.request().get(`/api/plans/${planId}`).set(as(sup));
-    if (res.body.plan.status === 'done') break;
-    await new Promise((r) => setTimeout(r, 100));
-  }
-  await app.request().post(`/api/plans/${planId}/publish`).set(as(sup)).send({ expectedPublishedId: null }).expect(200);
+  planId = await publishedPlan(app, sup, depotId, '2026-12-02');
 });
 
 describe('costs', () => {

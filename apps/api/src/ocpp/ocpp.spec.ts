@@ -11,6 +11,7 @@ import { planResultSchema } from '@nightyard/contracts';
 import { chargers } from '../db/schema';
 import { createDepot } from '../testing/depot-fixture';
 import { addBuses, dayRuns } from '../testing/fleet-fixture';
+import { generatedPlan } from '../testing/plan-fixture';
 import { createOrganisation, createTestApp, type TestUser } from '../testing/test-app';
 import { SimulatedStation } from '../../../../tools/station-simulator';
 import { CentralSystem } from './central-system';
@@ -80,12 +81,7 @@ describe('OCPP central system with the station simulator', () => {
       await app.request().put(`/api/depots/${depotId}/chargers/${c.id}/ocpp`).set(as(fac))
         .send({ identity: `T-${c.label}-${depotId.slice(0, 8)}`, password: 'test-charger-password' }).expect(204);
     }
-    const gen = await app.request().post(`/api/depots/${depotId}/plans`).set(as(sup)).send({ serviceDate: '2026-12-09', includeMidday: false }).expect(202);
-    planId = gen.body.plan.id;
-    for (let i = 0; i < 100; i++) {
-      if ((await app.request().get(`/api/plans/${planId}`).set(as(sup))).body.plan.status === 'done') break;
-      await new Promise((r) => setTimeout(r, 100));
-    }
+    planId = (await generatedPlan(app, sup, depotId, '2026-12-09')).id;
   });
 
   afterAll(async () => {

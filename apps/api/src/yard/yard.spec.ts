@@ -6,6 +6,7 @@ import { plans } from '../db/schema';
 import { createDepot } from '../testing/depot-fixture';
 import { addBuses, dayRuns } from '../testing/fleet-fixture';
 import { mailFor } from '../testing/mail';
+import { publishedPlan } from '../testing/plan-fixture';
 import { createOrganisation, createTestApp, type TestUser } from '../testing/test-app';
 
 const ZONE = 'America/Chicago';
@@ -31,12 +32,7 @@ beforeAll(async () => {
     // Low arrivals: every bus needs a long charge, so all three chargers work through the night.
     await app.request().put(`/api/depots/${depotId}/service-days/${date}`).set(as(sup)).send({ runs: dayRuns(date, NUMBERS, () => 16) }).expect(200);
   }
-  const gen = await app.request().post(`/api/depots/${depotId}/plans`).set(as(sup)).send({ serviceDate: '2026-12-09', includeMidday: false }).expect(202);
-  for (let i = 0; i < 100; i++) {
-    if ((await app.request().get(`/api/plans/${gen.body.plan.id}`).set(as(sup))).body.plan.status === 'done') break;
-    await new Promise((r) => setTimeout(r, 100));
-  }
-  await app.request().post(`/api/plans/${gen.body.plan.id}/publish`).set(as(sup)).send({ expectedPublishedId: null }).expect(200);
+  await publishedPlan(app, sup, depotId, '2026-12-09');
   const other = await createOrganisation(app, { s: ['supervisor'] });
   otherDepotBus = (await addBuses(app.db, other.organisationId, (await createDepot(app.db, other.organisationId)).depot.id, ['99']))[0]!.number;
 });
