@@ -1,7 +1,8 @@
 import { z } from 'zod';
+import { lower } from './text';
 
 const kw = (what: string) =>
-  z.number({ error: `Enter ${what} in kW` }).min(0, `${what} cannot be negative`).max(100_000, `${what} looks too large`);
+  z.number({ error: `Enter ${lower(what)} in kW` }).min(0, `${what} cannot be negative`).max(100_000, `${what} looks too large`);
 
 export const CONNECTOR_STANDARDS = ['SAE J1772 CCS1', 'SAE J3105 pantograph', 'SAE J3068', 'CCS2', 'CHAdeMO', 'Other'] as const;
 

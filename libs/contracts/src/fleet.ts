@@ -1,9 +1,10 @@
 import { z } from 'zod';
+import { lower } from './text';
 import { localDateTimeSchema } from './depot-setup';
 
 const positive = (what: string, max: number) =>
-  z.number({ error: `Enter ${what} as a number` }).gt(0, `${what} must be above 0`).max(max, `${what} looks too large (at most ${max})`);
-const pct = (what: string) => z.number({ error: `Enter ${what} as a number` }).min(0, `${what} is 0 to 100 %`).max(100, `${what} is 0 to 100 %`);
+  z.number({ error: `Enter ${lower(what)} as a number` }).gt(0, `${what} must be above 0`).max(max, `${what} looks too large (at most ${max})`);
+const pct = (what: string) => z.number({ error: `Enter ${lower(what)} as a number` }).min(0, `${what} is 0 to 100 %`).max(100, `${what} is 0 to 100 %`);
 
 export const busStatusSchema = z.enum(['active', 'out_of_service', 'retired']);
 

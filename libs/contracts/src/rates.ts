@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { lower } from './text';
 import { isTimeZone } from './depot-setup';
 
 /** Local wall-clock time `HH:mm`; `24:00` is the end of the day. */
@@ -10,7 +11,7 @@ export const DAY_TYPES = ['weekday', 'weekend', 'holiday'] as const;
 export const dayTypeSchema = z.enum(DAY_TYPES);
 export type DayType = z.infer<typeof dayTypeSchema>;
 
-const money = (what: string) => z.number({ error: `Enter ${what} as a number` }).min(0, `${what} cannot be negative`).max(1_000_000);
+const money = (what: string) => z.number({ error: `Enter ${lower(what)} as a number` }).min(0, `${what} cannot be negative`).max(1_000_000);
 
 /**
  * A time-of-use window. It belongs to the day it starts on; a `to` earlier than `from` runs past
