@@ -85,6 +85,14 @@ describe('service day', () => {
     const good = ['bus,pull_out,pull_in,miles,kwh,arrival_soc_pct', '11,06:10,08:30,31,,', '12,14:00,16:30,,40,52'].join('\n');
     const ok = await app.request().post(`${day('2026-12-10')}/csv`).set(as(sup)).send({ csv: good }).expect(200);
     expect(ok.body.runs.map((r: { arrivalSocSource: string | null }) => r.arrivalSocSource)).toEqual([null, 'uploaded']);
+    // Saving the day again keeps an unchanged uploaded reading as uploaded; a changed one is typed.
+    const rows = ok.body.runs.map((r: { busNumber: string; pullOut: string; pullIn: string; miles: number | null; kwh: number | null; arrivalSocPct: number | null }) =>
+      ({ busNumber: r.busNumber, pullOut: r.pullOut, pullIn: r.pullIn, miles: r.miles, kwh: r.kwh, arrivalSocPct: r.arrivalSocPct }));
+    const same = await app.request().put(day('2026-12-10')).set(as(sup)).send({ runs: rows }).expect(200);
+    expect(same.body.runs[1].arrivalSocSource).toBe('uploaded');
+    rows[1].arrivalSocPct = 50;
+    const changed = await app.request().put(day('2026-12-10')).set(as(sup)).send({ runs: rows }).expect(200);
+    expect(changed.body.runs[1].arrivalSocSource).toBe('typed');
   });
 
   it('a header that does not match the template', async () => {

@@ -100,6 +100,13 @@ export async function replaceServiceDay(
     throw new DomainError('validation_failed', `${problems.length} ${problems.length === 1 ? 'row needs' : 'rows need'} fixing; nothing was saved`, fields);
   }
   const at = (t: string) => DateTime.fromISO(t, { zone: depot.timezone }).toJSDate();
+  // A reading that comes back unchanged keeps where it came from (typed or uploaded).
+  const before = await db.select().from(runs).where(and(eq(runs.depotId, depotId), eq(runs.serviceDate, date)));
+  const sourceOf = (r: RunInput) => {
+    if (r.arrivalSocPct === null) return null;
+    const same = before.find((b) => b.busId === fleet.get(r.busNumber)!.id && b.pullOut.getTime() === at(r.pullOut).getTime());
+    return same && same.arrivalSocPct === r.arrivalSocPct && same.arrivalSocSource ? same.arrivalSocSource : source;
+  };
   await db.transaction(async (tx) => {
     await tx.delete(runs).where(and(eq(runs.depotId, depotId), eq(runs.serviceDate, date)));
     await tx
@@ -111,7 +118,7 @@ export async function replaceServiceDay(
         input.runs.map((r) => ({
           organisationId: caller.organisationId, depotId, busId: fleet.get(r.busNumber)!.id, serviceDate: date,
           pullOut: at(r.pullOut), pullIn: at(r.pullIn), miles: r.miles, kwh: r.kwh,
-          arrivalSocPct: r.arrivalSocPct, arrivalSocSource: r.arrivalSocPct === null ? null : source,
+          arrivalSocPct: r.arrivalSocPct, arrivalSocSource: sourceOf(r),
         })),
       );
     }

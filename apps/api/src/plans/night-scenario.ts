@@ -88,7 +88,12 @@ export async function buildNightScenario(db: Db, caller: AuthUser, depotId: stri
     // Stays between the day's runs (midday layovers), then the night until the next pull-out.
     const legs = today.map((r, k) => ({ arrive: at(r.run.pullIn), depart: today[k + 1] ? at(today[k + 1]!.run.pullOut) : at(n1.run.pullOut),
       nextRun: today[k + 1] ?? n1, nextFactor: today[k + 1] ? todayFactor : nextFactor, arrivedFrom: r }));
-    const usedLegs = legs.filter((l) => l.depart > start && (includeMidday || l.nextRun === n1));
+    // A reading at the day's last pull-in means the afternoon has happened: plan from there.
+    const lastRead = today.at(-1)?.run.arrivalSocPct !== null && today.at(-1) !== undefined;
+    const usedLegs = legs.filter((l) => l.depart > start && (includeMidday && !lastRead ? true : l.nextRun === n1));
+    if (includeMidday && lastRead && legs.length > 1) {
+      notes.push(`Bus ${bus.number} has a reading at its last pull-in: it is planned from there, without the midday layover.`);
+    }
     // Overnight the bus takes on the whole next day's runs: a midday top-up is welcome but not
     // counted on. Between runs it needs the next run only.
     const nextDay = nextRows.filter((r) => r.bus.id === busId).reduce((sum, r) => sum + runEnergyKwh(r.run, bus, nextFactor), 0);

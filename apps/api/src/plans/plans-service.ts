@@ -163,7 +163,8 @@ export async function publishPlan(
     return row!;
   });
   await notifyPublished(db, mailer, caller, published, link).catch(() => undefined);
-  return toSummary(published, null, caller.name);
+  const { plan, createdBy, publishedBy } = await loadPlan(db, caller, published.id);
+  return toSummary(plan, createdBy, publishedBy);
 }
 
 async function notifyPublished(db: Db, mailer: Mailer, caller: AuthUser, plan: PlanRow, link: (path: string) => string) {

@@ -31,7 +31,7 @@ beforeAll(async () => {
   await addBuses(app.db, org.organisationId, depotId, NUMBERS);
   // Wednesday and Thursday: the plan covers Wednesday's midday layover and night.
   await app.request().put(`/api/depots/${depotId}/service-days/2026-12-09`).set(as(sup))
-    .send({ forecastLowF: 25, runs: dayRuns('2026-12-09', NUMBERS, (i) => 40 + i * 5) }).expect(200);
+    .send({ forecastLowF: 25, runs: dayRuns('2026-12-09', NUMBERS) }).expect(200);
   await app.request().put(`/api/depots/${depotId}/service-days/2026-12-10`).set(as(sup))
     .send({ forecastLowF: 25, runs: dayRuns('2026-12-10', NUMBERS) }).expect(200);
 });
@@ -130,8 +130,22 @@ describe('plans', () => {
     await app.request().post(`/api/depots/${depotId}/plans`).set(as(outsider)).send({ serviceDate: '2026-12-09' }).expect(404);
   });
 
+  it('a reading at the last pull-in starts the plan there, without the midday layover', async () => {
+    await app.request().put(`/api/depots/${depotId}/service-days/2026-12-16`).set(as(sup))
+      .send({ runs: dayRuns('2026-12-16', NUMBERS, (i) => 40 + i * 5) }).expect(200);
+    await app.request().put(`/api/depots/${depotId}/service-days/2026-12-17`).set(as(sup))
+      .send({ runs: dayRuns('2026-12-17', NUMBERS) }).expect(200);
+    const res = await app.request().post(`/api/depots/${depotId}/plans`).set(as(sup)).send({ serviceDate: '2026-12-16' }).expect(202);
+    const [row] = await app.db.select().from(plans).where(eq(plans.id, res.body.plan.id));
+    const scenario = row!.scenario as { buses: { id: string; arrivalKwh: number; stays: { arrive: string }[] }[] };
+    // Bus 11 (196 kWh) read 40 % at its 16:20 pull-in.
+    expect(scenario.buses[0]!.stays.map((s) => s.arrive)).toEqual(['2026-12-16T16:20']);
+    expect(scenario.buses[0]!.arrivalKwh).toBeCloseTo(0.4 * 196, 6);
+    expect(row!.notes.join(' ')).toMatch(/Bus 11 has a reading at its last pull-in/);
+  });
+
   it('a night without a next service day is refused with what to do', async () => {
-    const res = await app.request().post(`/api/depots/${depotId}/plans`).set(as(sup)).send({ serviceDate: '2026-12-10' }).expect(400);
-    expect(res.body.error.message).toMatch(/No runs after 2026-12-10: enter the next service day's runs under Fleet first/);
+    const res = await app.request().post(`/api/depots/${depotId}/plans`).set(as(sup)).send({ serviceDate: '2026-12-17' }).expect(400);
+    expect(res.body.error.message).toMatch(/No runs after 2026-12-17: enter the next service day's runs under Fleet first/);
   });
 });
