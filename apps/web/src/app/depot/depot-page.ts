@@ -1,0 +1,171 @@
+import { ChangeDetectionStrategy, Component, inject, signal } from '@angular/core';
+import { MatButtonModule } from '@angular/material/button';
+import { MatDialog } from '@angular/material/dialog';
+import { MatIconModule } from '@angular/material/icon';
+import { MatProgressBarModule } from '@angular/material/progress-bar';
+import { MatSnackBar } from '@angular/material/snack-bar';
+import type { Cabinet, Charger, DepotDetail } from '@nightyard/contracts';
+import { toApiProblem } from '../core/api-error';
+import { DepotStore } from '../depots/depot-store';
+import { ConfirmDialog, type ConfirmData } from '../people/confirm-dialog';
+import { SectionIntro } from '../sections/section-intro';
+import { injectCanEditSetup } from '../shared/setup-editors';
+import { CabinetDialog, type CabinetDialogData } from './cabinet-dialog';
+import { CabinetPanel } from './cabinet-panel';
+import { ChargerDialog, type ChargerDialogData } from './charger-dialog';
+import { ChargerTable } from './charger-table';
+import { DepotApi } from './depot-api';
+import { DepotSettingsPanel } from './depot-settings-panel';
+import { LoadReductionWindowsPanel } from './load-reduction-windows-panel';
+import { PeaksSoFarPanel } from './peaks-so-far-panel';
+
+type LoadState = 'loading' | 'loaded' | 'failed' | 'none';
+
+/** The Depot section: what the plans work against. Facilities and admin edit; everyone reads. */
+@Component({
+  selector: 'ny-depot-page',
+  imports: [
+    CabinetPanel,
+    ChargerTable,
+    DepotSettingsPanel,
+    LoadReductionWindowsPanel,
+    MatButtonModule,
+    MatIconModule,
+    MatProgressBarModule,
+    PeaksSoFarPanel,
+    SectionIntro,
+  ],
+  templateUrl: './depot-page.html',
+  styleUrls: ['../shared/panel.scss', './depot-page.scss'],
+  changeDetection: ChangeDetectionStrategy.OnPush,
+  host: { class: 'ny-page' },
+})
+export class DepotPage {
+  private readonly store = inject(DepotStore);
+  private readonly api = inject(DepotApi);
+  private readonly dialog = inject(MatDialog);
+  private readonly snackBar = inject(MatSnackBar);
+
+  protected readonly canEdit = injectCanEditSetup();
+  protected readonly state = signal<LoadState>('loading');
+  protected readonly problem = signal<string | null>(null);
+  protected readonly depot = signal<DepotDetail | null>(null);
+
+  constructor() {
+    void this.load();
+  }
+
+  protected async load(): Promise<void> {
+    this.state.set('loading');
+    this.problem.set(null);
+    try {
+      await this.store.load();
+      if (this.store.state() === 'failed') throw new Error(this.store.error() ?? '');
+      const current = this.store.current();
+      if (!current) {
+        this.state.set('none');
+        return;
+      }
+      this.depot.set(await this.api.detail(current.id));
+      this.state.set('loaded');
+    } catch (err) {
+      this.problem.set(err instanceof Error && err.message ? err.message : toApiProblem(err).message);
+      this.state.set('failed');
+    }
+  }
+
+  /** After a change: the depot as the API now has it, and the shell's summary too. */
+  private async refresh(): Promise<void> {
+    const d = this.depot();
+    if (!d) return;
+    try {
+      this.depot.set(await this.api.detail(d.id));
+    } catch (err) {
+      this.snackBar.open(toApiProblem(err).message, 'OK');
+    }
+    void this.store.load(true);
+  }
+
+  protected onSettingsSaved(detail: DepotDetail): void {
+    this.depot.set(detail);
+    void this.store.load(true);
+  }
+
+  protected onWindowsSaved(windows: DepotDetail['loadReductionWindows']): void {
+    this.depot.update((d) => (d ? { ...d, loadReductionWindows: windows } : d));
+  }
+
+  protected onPeaksSaved(peaks: DepotDetail['peaksSoFar']): void {
+    this.depot.update((d) => (d ? { ...d, peaksSoFar: peaks } : d));
+  }
+
+  protected openCharger(charger?: Charger): void {
+    const d = this.depot();
+    if (!d) return;
+    const data: ChargerDialogData = { depotId: d.id, charger, cabinets: d.cabinets, chargers: d.chargers };
+    this.dialog
+      .open<ChargerDialog, ChargerDialogData, Charger>(ChargerDialog, { data, width: '560px', maxWidth: '95vw', autoFocus: 'first-tabbable' })
+      .afterClosed()
+      .subscribe((saved) => {
+        if (!saved) return;
+        this.snackBar.open(charger ? `Charger ${saved.label} saved` : `Charger ${saved.label} added`, 'OK');
+        void this.refresh();
+      });
+  }
+
+  protected removeCharger(charger: Charger): void {
+    const d = this.depot();
+    if (!d) return;
+    this.confirm({
+      title: `Remove charger ${charger.label}?`,
+      message: `Plans stop using ${charger.label} from now on. To take it out for a while, mark it out of service instead.`,
+      confirm: 'Remove',
+    }, async () => {
+      await this.api.removeCharger(d.id, charger.id);
+      this.snackBar.open(`Charger ${charger.label} removed`, 'OK');
+    });
+  }
+
+  protected openCabinet(cabinet?: Cabinet): void {
+    const d = this.depot();
+    if (!d) return;
+    this.dialog
+      .open<CabinetDialog, CabinetDialogData, Cabinet>(CabinetDialog, { data: { depotId: d.id, cabinet }, width: '480px', maxWidth: '95vw' })
+      .afterClosed()
+      .subscribe((saved) => {
+        if (!saved) return;
+        this.snackBar.open(cabinet ? `Power cabinet ${saved.label} saved` : `Power cabinet ${saved.label} added`, 'OK');
+        void this.refresh();
+      });
+  }
+
+  protected removeCabinet(cabinet: Cabinet): void {
+    const d = this.depot();
+    if (!d) return;
+    this.confirm({
+      title: `Remove power cabinet ${cabinet.label}?`,
+      message: cabinet.chargerCount > 0
+        ? `${cabinet.chargerCount} chargers are on ${cabinet.label}. Move them to another cabinet first, or the removal is refused.`
+        : `${cabinet.label} has no chargers on it.`,
+      confirm: 'Remove',
+    }, async () => {
+      await this.api.removeCabinet(d.id, cabinet.id);
+      this.snackBar.open(`Power cabinet ${cabinet.label} removed`, 'OK');
+    });
+  }
+
+  private confirm(data: ConfirmData, action: () => Promise<void>): void {
+    this.dialog
+      .open<ConfirmDialog, ConfirmData, boolean>(ConfirmDialog, { data, width: '440px', maxWidth: '95vw' })
+      .afterClosed()
+      .subscribe(async (yes) => {
+        if (!yes) return;
+        try {
+          await action();
+          await this.refresh();
+        } catch (err) {
+          this.snackBar.open(toApiProblem(err).message, 'OK', { duration: 10_000, politeness: 'assertive' });
+        }
+      });
+  }
+}

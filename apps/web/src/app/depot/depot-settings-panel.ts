@@ -1,0 +1,140 @@
+import { ChangeDetectionStrategy, Component, computed, inject, input, output, signal } from '@angular/core';
+import { FormArray, FormControl, FormGroup, ReactiveFormsModule } from '@angular/forms';
+import { MatAutocompleteModule } from '@angular/material/autocomplete';
+import { MatButtonModule } from '@angular/material/button';
+import { MatFormFieldModule } from '@angular/material/form-field';
+import { MatIconModule } from '@angular/material/icon';
+import { MatInputModule } from '@angular/material/input';
+import { MatProgressBarModule } from '@angular/material/progress-bar';
+import { MatRadioModule } from '@angular/material/radio';
+import { MatSnackBar } from '@angular/material/snack-bar';
+import { depotSettingsSchema, type DepotDetail, type DepotSettings } from '@nightyard/contracts';
+import { startWith } from 'rxjs';
+import { toApiProblem } from '../core/api-error';
+import { applyServerErrors, errorText, zodValidator } from '../shared/form-paths';
+import { ProblemSummary, type ProblemItem } from '../shared/problem-summary';
+import { DepotApi } from './depot-api';
+import { HOUR_LABELS, formatKw, timeZones } from './depot-setup-format';
+
+const shape = depotSettingsSchema.shape;
+const loadControl = (kw: number | null) =>
+  new FormControl<number | null>(kw, zodValidator(shape.otherLoadKw.element, 'Enter the other load in kW (0 if none)'));
+
+function settingsForm(d: DepotDetail) {
+  return new FormGroup({
+    name: new FormControl(d.name, { nonNullable: true, validators: zodValidator(shape.name, 'Name the depot') }),
+    timezone: new FormControl(d.timezone, {
+      nonNullable: true,
+      validators: zodValidator(shape.timezone, 'Choose an IANA time zone such as America/Chicago'),
+    }),
+    serviceLimitKw: new FormControl<number | null>(d.serviceLimitKw, zodValidator(shape.serviceLimitKw, 'Enter the service limit in kW')),
+    billingStartDay: new FormControl<number | null>(d.billingStartDay, zodValidator(shape.billingStartDay, 'Enter a day from 1 to 28')),
+    otherLoadMode: new FormControl<'flat' | 'profile'>(d.otherLoadKw.length === 24 ? 'profile' : 'flat', { nonNullable: true }),
+    otherLoadKw: new FormArray(d.otherLoadKw.map((kw) => loadControl(kw))),
+  });
+}
+type SettingsForm = ReturnType<typeof settingsForm>;
+
+/** The depot's own settings: name, time zone, service limit, other load, billing period start. */
+@Component({
+  selector: 'ny-depot-settings-panel',
+  imports: [
+    MatAutocompleteModule,
+    MatButtonModule,
+    MatFormFieldModule,
+    MatIconModule,
+    MatInputModule,
+    MatProgressBarModule,
+    MatRadioModule,
+    ProblemSummary,
+    ReactiveFormsModule,
+  ],
+  templateUrl: './depot-settings-panel.html',
+  styleUrls: ['../shared/panel.scss', './depot-settings-panel.scss'],
+  changeDetection: ChangeDetectionStrategy.OnPush,
+})
+export class DepotSettingsPanel {
+  private readonly api = inject(DepotApi);
+  private readonly snackBar = inject(MatSnackBar);
+
+  readonly depot = input.required<DepotDetail>();
+  readonly canEdit = input(false);
+  readonly saved = output<DepotDetail>();
+
+  protected readonly hours = HOUR_LABELS;
+  protected readonly kw = formatKw;
+  protected readonly error = errorText;
+  protected readonly form = signal<SettingsForm | null>(null);
+  protected readonly busy = signal(false);
+  protected readonly problem = signal<string | null>(null);
+  protected readonly problemItems = signal<ProblemItem[]>([]);
+
+  protected readonly otherLoad = computed(() => {
+    const load = this.depot().otherLoadKw;
+    if (load.length !== 24) return { flat: true, text: formatKw(load[0] ?? 0) };
+    return { flat: false, text: `Hourly profile, ${formatKw(Math.min(...load))} to ${formatKw(Math.max(...load))}` };
+  });
+
+  private readonly allZones = timeZones();
+  private readonly zoneQuery = signal('');
+  protected readonly zoneOptions = computed(() => {
+    const q = this.zoneQuery().trim().toLowerCase().replace(/\s+/g, '_');
+    return (q ? this.allZones.filter((z) => z.toLowerCase().includes(q)) : this.allZones).slice(0, 60);
+  });
+
+  protected edit(): void {
+    const form = settingsForm(this.depot());
+    form.controls.timezone.valueChanges.pipe(startWith(form.controls.timezone.value)).subscribe((v) => this.zoneQuery.set(v));
+    this.problem.set(null);
+    this.problemItems.set([]);
+    this.form.set(form);
+  }
+
+  protected cancel(): void {
+    this.form.set(null);
+    this.problem.set(null);
+    this.problemItems.set([]);
+  }
+
+  /** Flat to profile repeats the value for every hour; profile to flat keeps the highest hour. */
+  protected setMode(form: SettingsForm, mode: 'flat' | 'profile'): void {
+    const values = form.controls.otherLoadKw.getRawValue().filter((v): v is number => typeof v === 'number');
+    const arr = form.controls.otherLoadKw;
+    arr.clear();
+    if (mode === 'flat') arr.push(loadControl(values.length ? Math.max(...values) : 0));
+    else for (let h = 0; h < 24; h++) arr.push(loadControl(values[0] ?? 0));
+  }
+
+  protected async save(form: SettingsForm): Promise<void> {
+    this.problem.set(null);
+    this.problemItems.set([]);
+    if (form.invalid) {
+      form.markAllAsTouched();
+      this.problem.set('Check the fields marked in red.');
+      return;
+    }
+    const v = form.getRawValue();
+    const body: DepotSettings = {
+      name: v.name.trim(),
+      timezone: v.timezone.trim(),
+      serviceLimitKw: v.serviceLimitKw ?? 0,
+      billingStartDay: v.billingStartDay ?? 1,
+      otherLoadKw: v.otherLoadKw.map((kw) => kw ?? 0),
+    };
+    this.busy.set(true);
+    try {
+      const depot = await this.api.saveSettings(this.depot().id, body);
+      this.form.set(null);
+      this.saved.emit(depot);
+      this.snackBar.open('Depot settings saved', 'OK');
+    } catch (err) {
+      const p = toApiProblem(err);
+      const rest = applyServerErrors(form, p.fields);
+      this.problem.set(p.message);
+      this.problemItems.set(rest.map((r) => ({ where: r.path, message: r.message })));
+    } finally {
+      this.busy.set(false);
+    }
+  }
+}
+

@@ -1,0 +1,108 @@
+import { ChangeDetectionStrategy, Component, input } from '@angular/core';
+import { MatIconModule } from '@angular/material/icon';
+import { num, type BusPlanRow } from './plan-format';
+
+/** The plan bus by bus: short buses first, with how much and why in plain words. */
+@Component({
+  selector: 'ny-bus-plan-table',
+  imports: [MatIconModule],
+  changeDetection: ChangeDetectionStrategy.OnPush,
+  template: `
+    <div class="table-scroll" role="region" aria-label="Buses in the plan" tabindex="0">
+      <table class="buses">
+        <caption class="ny-visually-hidden">Each bus: charger, plug-in and unplug times, energy, state of charge at departure, shortfall and why (short buses first)</caption>
+        <thead>
+          <tr>
+            <th scope="col">Bus</th>
+            <th scope="col">Charger</th>
+            <th scope="col">Plug in</th>
+            <th scope="col">Unplug</th>
+            <th scope="col" class="num">kWh</th>
+            <th scope="col">Departs (SOC)</th>
+            <th scope="col" class="num">Short kWh</th>
+            <th scope="col">Why short</th>
+          </tr>
+        </thead>
+        <tbody>
+          @for (r of rows(); track r.bus) {
+            <tr [class.short]="r.short">
+              <th scope="row">
+                @if (r.short) {
+                  <mat-icon class="warn" aria-hidden="true">warning</mat-icon>
+                }
+                {{ r.bus }}
+              </th>
+              <td>
+                @for (s of r.sessions; track $index) {
+                  <span class="line">{{ s.charger }}</span>
+                } @empty {
+                  <span class="none">Not plugged in</span>
+                }
+              </td>
+              <td>
+                @for (s of r.sessions; track $index) {
+                  <span class="line">{{ s.plugIn }}</span>
+                }
+              </td>
+              <td>
+                @for (s of r.sessions; track $index) {
+                  <span class="line">{{ s.unplug }}</span>
+                }
+              </td>
+              <td class="num">
+                @for (s of r.sessions; track $index) {
+                  <span class="line">{{ num(s.kwh) }}</span>
+                }
+                @if (r.sessions.length > 1) {
+                  <span class="line total">{{ num(r.kwh) }}</span>
+                }
+              </td>
+              <td>
+                @for (d of r.departures; track $index) {
+                  <span class="line">{{ d.at }}@if (d.socPct !== null) { ({{ num(d.socPct, 0) }} %)}</span>
+                }
+              </td>
+              <td class="num">{{ r.short ? num(r.shortfallKwh) : '–' }}</td>
+              <td>
+                @if (r.short) {
+                  <span class="reason">{{ r.reason }}</span>
+                  <span class="detail">{{ r.reasonDetail }}</span>
+                } @else {
+                  <span class="ok">Leaves with its energy</span>
+                }
+              </td>
+            </tr>
+          } @empty {
+            <tr><td colspan="8">No buses in this plan.</td></tr>
+          }
+        </tbody>
+      </table>
+    </div>
+  `,
+  styles: `
+    :host { display: block; }
+    .table-scroll {
+      overflow-x: auto;
+      border: 1px solid var(--mat-sys-outline-variant);
+      border-radius: var(--mat-sys-corner-small);
+      background: var(--mat-sys-surface);
+    }
+    .buses { width: 100%; min-width: 860px; border-collapse: collapse; font: var(--mat-sys-body-medium); }
+    th, td { padding: 6px 12px; border-bottom: 1px solid var(--mat-sys-outline-variant); text-align: start; vertical-align: top; }
+    thead th { font: var(--mat-sys-title-small); white-space: nowrap; }
+    tbody th { font-weight: 600; white-space: nowrap; }
+    tr.short { background: color-mix(in srgb, var(--mat-sys-error) 8%, transparent); }
+    .warn { color: var(--mat-sys-error); font-size: 18px; width: 18px; height: 18px; vertical-align: -3px; }
+    .reason { font-weight: 600; color: var(--mat-sys-error); }
+    .detail { display: block; max-width: 34ch; font: var(--mat-sys-body-small); color: var(--mat-sys-on-surface-variant); }
+    .ok { color: var(--mat-sys-on-surface-variant); }
+    .num { text-align: end; font-variant-numeric: tabular-nums; white-space: nowrap; }
+    .line { display: block; white-space: nowrap; }
+    .total { border-top: 1px solid var(--mat-sys-outline-variant); font-weight: 600; }
+    .none { color: var(--mat-sys-on-surface-variant); }
+  `,
+})
+export class BusPlanTable {
+  readonly rows = input.required<readonly BusPlanRow[]>();
+  protected readonly num = num;
+}

@@ -1,0 +1,60 @@
+import { TestBed } from '@angular/core/testing';
+import { ChargerTimeline } from './charger-timeline';
+import { planResult } from './plan-fixtures';
+
+describe('ChargerTimeline', () => {
+  async function render() {
+    const fixture = TestBed.createComponent(ChargerTimeline);
+    fixture.componentRef.setInput('result', planResult());
+    fixture.componentRef.setInput('timezone', 'America/Chicago');
+    fixture.componentRef.setInput('chargers', [
+      { id: 'C2', maxKw: 30 },
+      { id: 'C10', maxKw: 120 },
+      { id: 'C1', maxKw: 60 },
+    ]);
+    await fixture.whenStable();
+    fixture.detectChanges();
+    return fixture.nativeElement as HTMLElement;
+  }
+
+  it('draws one row per charger, idle ones too, in charger order', async () => {
+    const el = await render();
+    expect([...el.querySelectorAll('.label .charger')].map((c) => c.textContent?.trim())).toEqual(['C1', 'C2', 'C10']);
+    expect(el.querySelectorAll('.track')[2]!.querySelectorAll('.bar').length).toBe(0);
+  });
+
+  it('places each bar in proportion to its time across the night, labelled by bus', async () => {
+    const el = await render();
+    const bars = [...el.querySelectorAll<HTMLElement>('.bar')].map((b) => ({
+      bus: b.textContent?.trim(),
+      left: parseFloat(b.style.left),
+      width: parseFloat(b.style.width),
+    }));
+    // The hour 18:00-19:00: 201 the first half hour, 203 the last quarter, 205 the second half hour.
+    expect(bars).toEqual([
+      { bus: '201', left: 0, width: 50 },
+      { bus: '203', left: 75, width: 25 },
+      { bus: '205', left: 50, width: 50 },
+    ]);
+    const tracks = el.querySelectorAll('.track');
+    expect(tracks[0]!.textContent).toContain('201');
+    expect(tracks[1]!.textContent).toContain('205');
+  });
+
+  it('marks short buses, shades the price bands and lists every plug-in in a table', async () => {
+    const el = await render();
+    expect([...el.querySelectorAll('.bar.short')].map((b) => b.textContent?.trim())).toEqual(['203', '205']);
+    const bands = [...el.querySelectorAll<HTMLElement>('.bands .band')].map((b) => [b.dataset['level'], parseFloat(b.style.left), parseFloat(b.style.width)]);
+    expect(bands).toEqual([
+      ['high', 0, 50],
+      ['low', 50, 50],
+    ]);
+    const rows = [...el.querySelectorAll('table.alt tbody tr')].map((r) => [...r.querySelectorAll('td')].map((td) => td.textContent?.trim()));
+    expect(rows.map((r) => r.slice(0, 4))).toEqual([
+      ['C1', '201', 'Thu 18:00', 'Thu 18:30'],
+      ['C1', '203 (short)', 'Thu 18:45', 'Thu 19:00'],
+      ['C2', '205 (short)', 'Thu 18:30', 'Thu 19:00'],
+    ]);
+    expect(el.querySelector('[role="img"]')?.getAttribute('aria-label')).toContain('3 plug-ins on 3 chargers');
+  });
+});

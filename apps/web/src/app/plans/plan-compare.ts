@@ -1,0 +1,128 @@
+import { ChangeDetectionStrategy, Component, computed, effect, inject, input, linkedSignal, signal, untracked } from '@angular/core';
+import { MatFormFieldModule } from '@angular/material/form-field';
+import { MatProgressBarModule } from '@angular/material/progress-bar';
+import { MatSelectModule } from '@angular/material/select';
+import type { PlanComparison, PlanDetail, PlanSummary } from '@nightyard/contracts';
+import { toApiProblem } from '../core/api-error';
+import { money, previousVersion } from './plan-format';
+import { PlansApi } from './plans-api';
+
+/** Which buses moved (charger or times) between this version and another of the same night. */
+@Component({
+  selector: 'ny-plan-compare',
+  imports: [MatFormFieldModule, MatProgressBarModule, MatSelectModule],
+  changeDetection: ChangeDetectionStrategy.OnPush,
+  template: `
+    @if (candidates().length) {
+      <mat-form-field appearance="outline" subscriptSizing="dynamic" class="ny-dense pick">
+        <mat-label>Compare with</mat-label>
+        <mat-select [value]="chosen()" (valueChange)="chosen.set($event)">
+          @for (c of candidates(); track c.id) {
+            <mat-option [value]="c.id">Version {{ c.version }} ({{ c.state }})</mat-option>
+          }
+        </mat-select>
+      </mat-form-field>
+      @if (loading()) {
+        <mat-progress-bar mode="indeterminate" aria-label="Comparing the versions" />
+      }
+      <div aria-live="polite">
+        @if (problem(); as p) {
+          <p class="ny-form-error">{{ p }}</p>
+        }
+        @if (comparison(); as c) {
+          <p class="change">{{ sentence(c) }}</p>
+        }
+      </div>
+      @if (comparison(); as c) {
+        @if (c.moved.length) {
+          <div class="table-scroll" role="region" aria-label="Buses that moved" tabindex="0">
+            <table>
+              <caption class="ny-visually-hidden">Buses whose charger or times differ between version {{ c.from.version }} and version {{ c.to.version }}</caption>
+              <thead>
+                <tr>
+                  <th scope="col">Bus</th>
+                  <th scope="col">Version {{ c.from.version }}</th>
+                  <th scope="col">Version {{ c.to.version }}</th>
+                </tr>
+              </thead>
+              <tbody>
+                @for (m of c.moved; track m.bus) {
+                  <tr><th scope="row">{{ m.bus }}</th><td>{{ m.before }}</td><td>{{ m.after }}</td></tr>
+                }
+              </tbody>
+            </table>
+          </div>
+        }
+      }
+    } @else {
+      <p class="empty">No other finished version of this night to compare with yet.</p>
+    }
+  `,
+  styles: `
+    :host { display: block; }
+    .pick { width: 260px; max-width: 100%; }
+    .change { margin: 8px 0; font: var(--mat-sys-body-large); }
+    .empty { margin: 0; color: var(--mat-sys-on-surface-variant); font: var(--mat-sys-body-medium); }
+    .table-scroll { overflow-x: auto; max-height: 360px; overflow-y: auto; border: 1px solid var(--mat-sys-outline-variant); border-radius: var(--mat-sys-corner-small); }
+    table { width: 100%; border-collapse: collapse; font: var(--mat-sys-body-medium); }
+    th, td { padding: 4px 12px; border-bottom: 1px solid var(--mat-sys-outline-variant); text-align: start; }
+    thead th { font-weight: 600; white-space: nowrap; }
+  `,
+})
+export class PlanCompare {
+  private readonly api = inject(PlansApi);
+
+  readonly plan = input.required<PlanDetail>();
+  readonly versions = input.required<readonly PlanSummary[]>();
+  /** A version to compare with first (e.g. the one just published by someone else). */
+  readonly preferred = input<string | null>(null);
+
+  protected readonly candidates = computed(() =>
+    this.versions().filter((v) => v.id !== this.plan().id && v.status === 'done').sort((a, b) => b.version - a.version),
+  );
+  protected readonly chosen = linkedSignal<string | null>(() => {
+    const preferred = this.preferred();
+    const list = this.candidates();
+    if (preferred && list.some((c) => c.id === preferred)) return preferred;
+    return previousVersion(this.versions(), this.plan())?.id ?? list[0]?.id ?? null;
+  });
+  protected readonly comparison = signal<PlanComparison | null>(null);
+  protected readonly loading = signal(false);
+  protected readonly problem = signal<string | null>(null);
+  private seq = 0;
+
+  constructor() {
+    effect(() => {
+      const plan = this.plan();
+      const other = this.chosen();
+      untracked(() => void this.load(plan, other));
+    });
+  }
+
+  private async load(plan: PlanDetail, other: string | null): Promise<void> {
+    const seq = ++this.seq;
+    this.comparison.set(null);
+    this.problem.set(null);
+    if (!other || plan.status !== 'done') return;
+    this.loading.set(true);
+    try {
+      const c = await this.api.compare(plan.id, other);
+      if (seq === this.seq) this.comparison.set(c);
+    } catch (err) {
+      if (seq === this.seq) this.problem.set(toApiProblem(err).message);
+    } finally {
+      if (seq === this.seq) this.loading.set(false);
+    }
+  }
+
+  protected sentence(c: PlanComparison): string {
+    const moved = c.moved.length === 0 ? 'no bus moved' : `${c.moved.length} ${c.moved.length === 1 ? 'bus' : 'buses'} moved`;
+    if (c.costChange === null) return `Against version ${c.from.version}: ${moved}.`;
+    const currency = this.plan().currency;
+    const cost =
+      Math.abs(c.costChange) < 0.005
+        ? 'the cost is the same'
+        : `the cost is ${money(Math.abs(c.costChange), currency)} ${c.costChange > 0 ? 'higher' : 'lower'}`;
+    return `Against version ${c.from.version}: ${moved}, ${cost}.`;
+  }
+}

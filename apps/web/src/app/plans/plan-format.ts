@@ -1,0 +1,233 @@
+import type { PlanDetail, PlanResult, PlanState, PlanSummary } from '@nightyard/contracts';
+
+/** What stops a short bus, in plain words (the engine's `reason` codes). */
+export const REASON_TEXT: Record<string, { label: string; detail: string }> = {
+  dwell: { label: 'Dwell too short', detail: 'It is not parked long enough to take the energy it needs.' },
+  charger: { label: 'Charger too weak', detail: 'The chargers it can use give too little power for the time it is parked.' },
+  cabinet: { label: 'Power cabinet limit', detail: 'The power cabinet shared by its chargers has no more power to give.' },
+  site: { label: 'Site service limit', detail: "The depot's service limit leaves no more power for it." },
+  taper: { label: 'Battery taper', detail: 'Near full, its battery takes power only slowly.' },
+};
+
+export function reasonText(reason: string | null): string {
+  if (!reason) return 'Not enough energy';
+  return REASON_TEXT[reason]?.label ?? reason;
+}
+
+export function reasonDetail(reason: string | null): string {
+  return (reason && REASON_TEXT[reason]?.detail) || '';
+}
+
+export const STATE_LABELS: Record<PlanState, string> = {
+  draft: 'Draft',
+  published: 'Published',
+  superseded: 'Superseded',
+};
+
+export const KIND_LABELS: Record<PlanSummary['kind'], string> = {
+  generated: 'Generated',
+  'what-if': 'What-if',
+  revision: 'Revision',
+};
+
+const collator = new Intl.Collator(undefined, { numeric: true, sensitivity: 'base' });
+export const naturalCompare = (a: string, b: string) => collator.compare(a, b);
+
+/** Shortfalls below this are rounding, not a short bus (as the API counts them). */
+export const SHORT_KWH = 1e-6;
+
+/** "16:15" at the depot. */
+export function clock(iso: string, timeZone: string): string {
+  const d = new Date(iso);
+  if (Number.isNaN(d.getTime())) return iso;
+  try {
+    return new Intl.DateTimeFormat('en-GB', { hour: '2-digit', minute: '2-digit', hourCycle: 'h23', timeZone }).format(d);
+  } catch {
+    return new Intl.DateTimeFormat('en-GB', { hour: '2-digit', minute: '2-digit', hourCycle: 'h23' }).format(d);
+  }
+}
+
+/** "Wed 16:15" at the depot (plans span two days). */
+export function dayClock(iso: string, timeZone: string): string {
+  const d = new Date(iso);
+  if (Number.isNaN(d.getTime())) return iso;
+  try {
+    return new Intl.DateTimeFormat('en-GB', { weekday: 'short', hour: '2-digit', minute: '2-digit', hourCycle: 'h23', timeZone }).format(d);
+  } catch {
+    return d.toISOString();
+  }
+}
+
+/** "2 Dec, 15:02" in the viewer's zone (when a version was made). */
+export function when(iso: string): string {
+  const d = new Date(iso);
+  if (Number.isNaN(d.getTime())) return iso;
+  return new Intl.DateTimeFormat(undefined, { day: 'numeric', month: 'short', hour: '2-digit', minute: '2-digit' }).format(d);
+}
+
+export function money(value: number, currency: string, digits = 2): string {
+  try {
+    return new Intl.NumberFormat(undefined, { style: 'currency', currency, maximumFractionDigits: digits, minimumFractionDigits: digits }).format(value);
+  } catch {
+    return `${value.toFixed(digits)} ${currency}`;
+  }
+}
+
+export function num(value: number, digits = 1): string {
+  return new Intl.NumberFormat(undefined, { maximumFractionDigits: digits }).format(value);
+}
+
+export function pct(share: number, digits = 1): string {
+  return `${num(share * 100, digits)} %`;
+}
+
+/** One bus of the plan as the per-bus table shows it. */
+export interface BusPlanRow {
+  bus: string;
+  chargers: string;
+  /** Each plug-in of the bus: charger, when at the depot, energy. */
+  sessions: { charger: string; plugIn: string; unplug: string; kwh: number }[];
+  kwh: number;
+  /** Each departure: when, and the state of charge then. */
+  departures: { at: string; socPct: number | null }[];
+  shortfallKwh: number;
+  short: boolean;
+  reason: string;
+  reasonDetail: string;
+}
+
+/** The plan's buses, short ones first (largest shortfall first), then by bus number. */
+export function busRows(plan: Pick<PlanDetail, 'result' | 'timezone' | 'busCapacityKwh'>): BusPlanRow[] {
+  const result = plan.result;
+  if (!result) return [];
+  const tz = plan.timezone;
+  return result.buses
+    .map((b) => {
+      const sessions = result.sessions.filter((s) => s.bus === b.id).sort((x, y) => x.start.localeCompare(y.start));
+      const capacity = plan.busCapacityKwh[b.id];
+      const short = b.shortfallKwh > SHORT_KWH;
+      return {
+        bus: b.id,
+        chargers: [...new Set(sessions.map((s) => s.charger))].join(', ') || '–',
+        sessions: sessions.map((s) => ({ charger: s.charger, plugIn: dayClock(s.start, tz), unplug: dayClock(s.end, tz), kwh: s.kwh })),
+        kwh: sessions.reduce((sum, s) => sum + s.kwh, 0),
+        departures: b.departures.map((d) => ({ at: dayClock(d.at, tz), socPct: capacity ? (d.kwh / capacity) * 100 : null })),
+        shortfallKwh: b.shortfallKwh,
+        short,
+        reason: short ? reasonText(b.reason) : '',
+        reasonDetail: short ? reasonDetail(b.reason) : '',
+      };
+    })
+    .sort((a, b) => Number(b.short) - Number(a.short) || (a.short ? b.shortfallKwh - a.shortfallKwh : 0) || naturalCompare(a.bus, b.bus));
+}
+
+/** The horizon the plan covers, in epoch ms: first slot start to the end of the last slot. */
+export function horizonOf(result: Pick<PlanResult, 'slots'>): { start: number; end: number; slotMs: number } {
+  const starts = result.slots.map((s) => Date.parse(s.start));
+  const slotMs = starts.length > 1 ? starts[1]! - starts[0]! : 15 * 60_000;
+  const start = starts[0] ?? 0;
+  const end = (starts.at(-1) ?? start) + slotMs;
+  return { start, end, slotMs };
+}
+
+/** Where a span [from, to) sits on the horizon, in % of its width (clamped to it). */
+export function spanPct(from: number, to: number, h: { start: number; end: number }): { left: number; width: number } {
+  const total = h.end - h.start || 1;
+  const a = Math.min(Math.max(from, h.start), h.end);
+  const b = Math.min(Math.max(to, h.start), h.end);
+  return { left: ((a - h.start) / total) * 100, width: (Math.max(0, b - a) / total) * 100 };
+}
+
+export type PriceLevel = 'low' | 'mid' | 'high';
+
+/** Runs of slots at one price, with where the price ranks among the night's prices. */
+export interface PriceBand {
+  start: number;
+  end: number;
+  price: number;
+  level: PriceLevel;
+}
+
+export function priceBands(result: Pick<PlanResult, 'slots'>): PriceBand[] {
+  const h = horizonOf(result);
+  const prices = [...new Set(result.slots.map((s) => s.price))].sort((a, b) => a - b);
+  const level = (p: number): PriceLevel =>
+    prices.length < 2 || p === prices[0] ? 'low' : p === prices.at(-1) ? 'high' : 'mid';
+  const bands: PriceBand[] = [];
+  for (const s of result.slots) {
+    const t = Date.parse(s.start);
+    const last = bands.at(-1);
+    if (last && last.price === s.price && last.end === t) last.end = t + h.slotMs;
+    else bands.push({ start: t, end: t + h.slotMs, price: s.price, level: level(s.price) });
+  }
+  return bands;
+}
+
+/** Hour marks on the horizon (local hours at the depot), every `step` hours. */
+export function hourTicks(result: Pick<PlanResult, 'slots'>, timeZone: string): { at: number; label: string }[] {
+  const h = horizonOf(result);
+  const hours = (h.end - h.start) / 3_600_000;
+  const step = hours > 16 ? 3 : hours > 8 ? 2 : 1;
+  const ticks: { at: number; label: string }[] = [];
+  for (const s of result.slots) {
+    const label = clock(s.start, timeZone);
+    const [hh, mm] = label.split(':').map(Number);
+    if (mm === 0 && (hh ?? 0) % step === 0) ticks.push({ at: Date.parse(s.start), label });
+  }
+  return ticks;
+}
+
+/** The figures of the summary cards. */
+export interface PlanFigures {
+  cost: number;
+  energyCost: number;
+  demandCost: number;
+  baseline: number;
+  savings: number;
+  savingsShare: number;
+  peakKw: number;
+  limitKw: number;
+  baselinePeakKw: number;
+  baselineOverLimit: boolean;
+  lowerBound: number;
+  gap: number;
+  /** False when the engine proved no useful bound (e.g. 0 while buses are short). */
+  boundProven: boolean;
+  shortBuses: number;
+  shortKwh: number;
+}
+
+export function planFigures(result: PlanResult): PlanFigures {
+  const baseline = result.baseline.total;
+  const savings = baseline - result.cost.total;
+  const short = result.buses.filter((b) => b.shortfallKwh > SHORT_KWH);
+  return {
+    cost: result.cost.total,
+    energyCost: result.cost.energy,
+    demandCost: result.cost.demand,
+    baseline,
+    savings,
+    savingsShare: baseline > 0 ? savings / baseline : 0,
+    peakKw: Math.max(0, ...result.slots.map((s) => s.loadKw)),
+    limitKw: Math.min(...result.slots.map((s) => s.limitKw)),
+    baselinePeakKw: result.baseline.peakKw,
+    baselineOverLimit: result.baseline.exceedsSiteLimit,
+    lowerBound: result.lowerBound,
+    gap: result.gap,
+    boundProven: result.lowerBound > 0 && result.gap < 0.999,
+    shortBuses: short.length,
+    shortKwh: short.reduce((s, b) => s + b.shortfallKwh, 0),
+  };
+}
+
+/** The version shown when none is chosen: the published one, else the newest. */
+export function defaultVersion(plans: readonly PlanSummary[]): PlanSummary | null {
+  return plans.find((p) => p.state === 'published') ?? [...plans].sort((a, b) => b.version - a.version)[0] ?? null;
+}
+
+/** The version to compare with by default: the closest older finished version, else the published one. */
+export function previousVersion(plans: readonly PlanSummary[], current: PlanSummary): PlanSummary | null {
+  const done = plans.filter((p) => p.id !== current.id && p.status === 'done');
+  const older = done.filter((p) => p.version < current.version).sort((a, b) => b.version - a.version)[0];
+  return older ?? done.find((p) => p.state === 'published') ?? null;
+}

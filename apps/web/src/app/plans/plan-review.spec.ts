@@ -1,0 +1,67 @@
+import { provideHttpClient } from '@angular/common/http';
+import { HttpTestingController, provideHttpClientTesting } from '@angular/common/http/testing';
+import { TestBed } from '@angular/core/testing';
+import type { PlanResult } from '@nightyard/contracts';
+import { busRows, reasonText } from './plan-format';
+import { PLAN_IDS, planDetail, planSummary } from './plan-fixtures';
+import { PlanReview } from './plan-review';
+
+describe('plan review', () => {
+  it('sorts short buses first, the largest shortfall first, then by bus number', () => {
+    const rows = busRows(planDetail());
+    expect(rows.map((r) => [r.bus, r.short, r.reason])).toEqual([
+      ['203', true, 'Site service limit'],
+      ['205', true, 'Dwell too short'],
+      ['201', false, ''],
+    ]);
+    expect(rows[1]!.departures).toEqual([{ at: 'Fri 06:10', socPct: (98 / 155) * 100 }]);
+    expect(rows[0]!.chargers).toBe('C1');
+  });
+
+  it('words every engine reason plainly', () => {
+    expect(['dwell', 'charger', 'cabinet', 'site', 'taper', null].map(reasonText)).toEqual([
+      'Dwell too short',
+      'Charger too weak',
+      'Power cabinet limit',
+      'Site service limit',
+      'Battery taper',
+      'Not enough energy',
+    ]);
+  });
+
+  it('shows the short buses first with their reasons, and the figures', async () => {
+    TestBed.configureTestingModule({ providers: [provideHttpClient(), provideHttpClientTesting()] });
+    const mock = TestBed.inject(HttpTestingController);
+    const fixture = TestBed.createComponent(PlanReview);
+    fixture.componentRef.setInput('plan', planDetail() as ReturnType<typeof planDetail> & { result: PlanResult });
+    fixture.componentRef.setInput('versions', [planSummary(), planSummary({ id: PLAN_IDS.published, version: 1, state: 'published' })]);
+    await fixture.whenStable();
+    fixture.detectChanges();
+    const el = fixture.nativeElement as HTMLElement;
+
+    const rows = [...el.querySelectorAll('ny-bus-plan-table tbody tr')].map((r) =>
+      [...r.querySelectorAll('th, td')].map((c) => c.textContent?.replace(/\s+/g, ' ').trim()).join(' | '),
+    );
+    expect(rows[0]).toMatch(/^warning 203 \| C1 \| .* \| 30 \| Site service limit/);
+    expect(rows[1]).toMatch(/^warning 205 \| C2 \| .* \| 12\.5 \| Dwell too short/);
+    expect(rows[2]).toContain('Leaves with its energy');
+    expect(el.querySelector('.short-banner')?.textContent).toContain('2 buses leave');
+    const cards = [...el.querySelectorAll('.card')].map((c) => c.textContent?.replace(/\s+/g, ' ').trim());
+    expect(cards[0]).toContain('$100.00');
+    expect(cards[0]).toContain('saves 75 %');
+    expect(cards[1]).toContain('120 kW');
+    expect(cards[1]).toContain('Service limit 150 kW');
+    expect(cards[3]).toContain('2');
+
+    mock.expectOne(`/api/plans/${PLAN_IDS.draft}/compare?with=${PLAN_IDS.published}`).flush({
+      from: { id: PLAN_IDS.published, version: 1 },
+      to: { id: PLAN_IDS.draft, version: 2 },
+      moved: [{ bus: '205', before: 'C2 17:00-18:00', after: 'C2 18:30-19:00' }],
+      costChange: -12.5,
+    });
+    await fixture.whenStable();
+    fixture.detectChanges();
+    expect(el.querySelector('ny-plan-compare')?.textContent).toContain('Against version 1: 1 bus moved, the cost is $12.50 lower.');
+    mock.verify();
+  });
+});

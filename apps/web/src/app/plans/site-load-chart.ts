@@ -1,0 +1,202 @@
+import {
+  ChangeDetectionStrategy,
+  Component,
+  DestroyRef,
+  ElementRef,
+  computed,
+  inject,
+  input,
+  signal,
+  viewChild,
+} from '@angular/core';
+import type { PlanResult } from '@nightyard/contracts';
+import {
+  BarController,
+  BarElement,
+  CategoryScale,
+  Legend,
+  LineController,
+  LineElement,
+  LinearScale,
+  PointElement,
+  Tooltip,
+  type ChartConfiguration,
+  type ChartData,
+} from 'chart.js';
+import { BaseChartDirective, provideCharts } from 'ng2-charts';
+import { ThemeStore } from '../core/theme-store';
+import { clock, money, num } from './plan-format';
+
+type Colors = Record<'load' | 'limit' | 'price' | 'text' | 'grid', string>;
+const FALLBACK: Colors = { load: '#0d6b5e', limit: '#ba1a1a', price: '#c78a12', text: '#444', grid: '#ccc' };
+
+/** The hours of the night: average and highest load, the limit and the price, for the table. */
+export function hourlyLoad(result: Pick<PlanResult, 'slots'>, timeZone: string) {
+  const hours: { hour: string; loads: number[]; limit: number; prices: Set<number> }[] = [];
+  for (const s of result.slots) {
+    const hour = `${clock(s.start, timeZone).slice(0, 2)}:00`;
+    let h = hours.at(-1);
+    if (!h || h.hour !== hour) {
+      h = { hour, loads: [], limit: s.limitKw, prices: new Set() };
+      hours.push(h);
+    }
+    h.loads.push(s.loadKw);
+    h.limit = Math.min(h.limit, s.limitKw);
+    h.prices.add(s.price);
+  }
+  return hours.map((h) => ({
+    hour: h.hour,
+    averageKw: h.loads.reduce((a, b) => a + b, 0) / h.loads.length,
+    highestKw: Math.max(...h.loads),
+    limitKw: h.limit,
+    prices: [...h.prices],
+  }));
+}
+
+/** The site's load through the night against its service limit, with the price as a second axis. */
+@Component({
+  selector: 'ny-site-load-chart',
+  imports: [BaseChartDirective],
+  providers: [
+    provideCharts({
+      registerables: [BarController, BarElement, LineController, LineElement, PointElement, CategoryScale, LinearScale, Legend, Tooltip],
+    }),
+  ],
+  changeDetection: ChangeDetectionStrategy.OnPush,
+  templateUrl: './site-load-chart.html',
+  styleUrl: './site-load-chart.scss',
+})
+export class SiteLoadChart {
+  private readonly theme = inject(ThemeStore);
+
+  readonly result = input.required<PlanResult>();
+  readonly timezone = input.required<string>();
+  readonly currency = input('USD');
+
+  private readonly probes = viewChild<ElementRef<HTMLElement>>('probes');
+  /** Bumped when the device switches light/dark, so the colours are read again. */
+  private readonly schemeTick = signal(0);
+
+  constructor() {
+    const media = typeof matchMedia === 'function' ? matchMedia('(prefers-color-scheme: dark)') : null;
+    const bump = () => this.schemeTick.update((n) => n + 1);
+    media?.addEventListener?.('change', bump);
+    inject(DestroyRef).onDestroy(() => media?.removeEventListener?.('change', bump));
+  }
+
+  /** Canvas cannot use CSS variables: read the theme's colours from styled probes. */
+  private readonly colors = computed<Colors>(() => {
+    this.theme.choice();
+    this.schemeTick();
+    const host = this.probes()?.nativeElement;
+    if (!host || typeof getComputedStyle !== 'function') return FALLBACK;
+    const read = (name: keyof Colors) => {
+      const el = host.querySelector<HTMLElement>(`[data-color="${name}"]`);
+      return (el && getComputedStyle(el).color) || FALLBACK[name];
+    };
+    return { load: read('load'), limit: read('limit'), price: read('price'), text: read('text'), grid: read('grid') };
+  });
+
+  protected readonly data = computed<ChartData<'bar' | 'line', number[], string>>(() => {
+    const r = this.result();
+    const c = this.colors();
+    return {
+      labels: r.slots.map((s) => clock(s.start, this.timezone())),
+      datasets: [
+        {
+          type: 'line',
+          label: `Price (${this.currency()} per kWh)`,
+          data: r.slots.map((s) => s.price),
+          yAxisID: 'price',
+          borderColor: c.price,
+          backgroundColor: c.price,
+          borderWidth: 2,
+          stepped: true,
+          pointRadius: 0,
+          order: 0,
+        },
+        {
+          type: 'line',
+          label: 'Service limit (kW)',
+          data: r.slots.map((s) => s.limitKw),
+          yAxisID: 'kw',
+          borderColor: c.limit,
+          backgroundColor: c.limit,
+          borderWidth: 2,
+          borderDash: [6, 4],
+          stepped: true,
+          pointRadius: 0,
+          order: 1,
+        },
+        {
+          type: 'bar',
+          label: 'Site load (kW)',
+          data: r.slots.map((s) => s.loadKw),
+          yAxisID: 'kw',
+          backgroundColor: c.load,
+          barPercentage: 1,
+          categoryPercentage: 0.9,
+          order: 2,
+        },
+      ],
+    };
+  });
+
+  protected readonly options = computed<ChartConfiguration<'bar' | 'line'>['options']>(() => {
+    const c = this.colors();
+    const currency = this.currency();
+    return {
+      responsive: true,
+      maintainAspectRatio: false,
+      animation: false,
+      interaction: { mode: 'index', intersect: false },
+      plugins: {
+        legend: { position: 'bottom', labels: { color: c.text, boxWidth: 14 } },
+        tooltip: {
+          callbacks: {
+            label: (ctx) =>
+              ctx.dataset.yAxisID === 'price'
+                ? `Price: ${money(Number(ctx.parsed.y), currency, 3)}/kWh`
+                : `${ctx.dataset.label}: ${num(Number(ctx.parsed.y))}`,
+          },
+        },
+      },
+      scales: {
+        x: { ticks: { color: c.text, maxTicksLimit: 12, maxRotation: 0 }, grid: { display: false } },
+        kw: {
+          type: 'linear',
+          position: 'left',
+          beginAtZero: true,
+          title: { display: true, text: 'kW', color: c.text },
+          ticks: { color: c.text },
+          grid: { color: c.grid },
+        },
+        price: {
+          type: 'linear',
+          position: 'right',
+          beginAtZero: true,
+          title: { display: true, text: `${currency}/kWh`, color: c.text },
+          ticks: { color: c.text },
+          grid: { drawOnChartArea: false },
+        },
+      },
+    };
+  });
+
+  protected readonly summary = computed(() => {
+    const slots = this.result().slots;
+    const peak = Math.max(0, ...slots.map((s) => s.loadKw));
+    const limit = Math.min(...slots.map((s) => s.limitKw));
+    return `Site load through the night: highest ${num(peak)} kW against a service limit of ${num(limit)} kW. The same figures are in the table below, hour by hour.`;
+  });
+
+  protected readonly hours = computed(() =>
+    hourlyLoad(this.result(), this.timezone()).map((h) => ({
+      ...h,
+      average: num(h.averageKw),
+      highest: num(h.highestKw),
+      limit: num(h.limitKw),
+      price: h.prices.map((p) => money(p, this.currency(), 3)).join(' / '),
+    })),
+  );
+}

@@ -1,0 +1,145 @@
+import { ChangeDetectionStrategy, Component, computed, effect, inject, input, signal, untracked } from '@angular/core';
+import { MatButtonModule } from '@angular/material/button';
+import { MatDialog } from '@angular/material/dialog';
+import { MatIconModule } from '@angular/material/icon';
+import { MatProgressBarModule } from '@angular/material/progress-bar';
+import { MatSnackBar } from '@angular/material/snack-bar';
+import { Router, RouterLink } from '@angular/router';
+import type { RatePlan } from '@nightyard/contracts';
+import { toApiProblem } from '../core/api-error';
+import { DepotStore } from '../depots/depot-store';
+import { ConfirmDialog, type ConfirmData } from '../people/confirm-dialog';
+import { injectCanEditSetup } from '../shared/setup-editors';
+import { RatePlanSummary } from './rate-plan-summary';
+import { RatePreviewPanel } from './rate-preview-panel';
+import { RatesApi } from './rates-api';
+
+/** One rate plan: a day's prices (chart and table) and the plan itself, read by every role. */
+@Component({
+  selector: 'ny-rate-plan-page',
+  imports: [MatButtonModule, MatIconModule, MatProgressBarModule, RatePlanSummary, RatePreviewPanel, RouterLink],
+  changeDetection: ChangeDetectionStrategy.OnPush,
+  host: { class: 'ny-page' },
+  template: `
+    <nav class="crumbs" aria-label="Breadcrumb">
+      <a routerLink="/rates">Rates</a>
+      <mat-icon aria-hidden="true">chevron_right</mat-icon>
+      <span aria-current="page">{{ plan()?.name ?? 'Rate plan' }}</span>
+    </nav>
+
+    @if (loading()) {
+      <mat-progress-bar mode="indeterminate" aria-label="Loading the rate plan" />
+    }
+    @if (problem(); as p) {
+      <div class="problem" role="alert">
+        <p>The rate plan could not be loaded. {{ p }}</p>
+        <button mat-stroked-button type="button" (click)="load(id())">Try again</button>
+      </div>
+    }
+
+    @if (plan(); as p) {
+      <div class="ny-page-header">
+        <div>
+          <h1>{{ p.name }}</h1>
+          <p class="ny-lead">{{ seasonCount() }} · prices in {{ p.definition.currency }}</p>
+        </div>
+        @if (canEdit()) {
+          <div class="actions">
+            <a mat-stroked-button [routerLink]="['/rates', p.id, 'edit']"><mat-icon>edit</mat-icon>Edit rate plan</a>
+            <button mat-button type="button" (click)="remove(p)"><mat-icon>delete</mat-icon>Delete</button>
+          </div>
+        }
+      </div>
+
+      <div class="ny-stack">
+        <section class="panel" aria-labelledby="plan-preview-heading">
+          <h2 id="plan-preview-heading">Preview a day</h2>
+          <p class="hint">The price of each hour and where demand charges apply, at the depot's clock.</p>
+          @if (depotReady()) {
+            <ny-rate-preview-panel [planId]="p.id" [timezone]="timezone()" [initialDate]="date() ?? null" />
+          }
+        </section>
+
+        <section class="panel" aria-labelledby="plan-definition-heading">
+          <h2 id="plan-definition-heading">The plan</h2>
+          <ny-rate-plan-summary [definition]="p.definition" />
+        </section>
+      </div>
+    }
+  `,
+  styleUrl: '../shared/panel.scss',
+  styles: `
+    :host { display: block; }
+    .crumbs { display: flex; align-items: center; gap: 4px; margin-bottom: 8px; font: var(--mat-sys-label-large); }
+    .crumbs mat-icon { font-size: 18px; width: 18px; height: 18px; color: var(--mat-sys-on-surface-variant); }
+    .crumbs span { overflow: hidden; text-overflow: ellipsis; white-space: nowrap; min-width: 0; }
+    h1 { overflow-wrap: anywhere; }
+    h2 { margin-bottom: 4px; }
+    .actions { display: flex; flex-wrap: wrap; gap: 8px; }
+    .problem { display: flex; flex-wrap: wrap; align-items: center; gap: 8px 16px; color: var(--mat-sys-error); }
+  `,
+})
+export class RatePlanPage {
+  private readonly api = inject(RatesApi);
+  private readonly depots = inject(DepotStore);
+  private readonly dialog = inject(MatDialog);
+  private readonly snackBar = inject(MatSnackBar);
+  private readonly router = inject(Router);
+
+  /** Route parameter. */
+  readonly id = input.required<string>();
+  /** Query parameter: the day to preview first (YYYY-MM-DD). */
+  readonly date = input<string>();
+
+  protected readonly canEdit = injectCanEditSetup();
+  protected readonly plan = signal<RatePlan | null>(null);
+  protected readonly loading = signal(true);
+  protected readonly problem = signal<string | null>(null);
+  protected readonly depotReady = computed(() => ['loaded', 'failed'].includes(this.depots.state()));
+  protected readonly timezone = computed(() => this.depots.current()?.timezone ?? 'UTC');
+  protected readonly seasonCount = computed(() => {
+    const n = this.plan()?.definition.seasons.length ?? 0;
+    return n === 1 ? '1 season' : `${n} seasons`;
+  });
+
+  constructor() {
+    void this.depots.load();
+    effect(() => {
+      const id = this.id();
+      untracked(() => void this.load(id));
+    });
+  }
+
+  protected async load(id: string): Promise<void> {
+    this.loading.set(true);
+    this.problem.set(null);
+    try {
+      this.plan.set(await this.api.get(id));
+    } catch (err) {
+      this.problem.set(toApiProblem(err).message);
+    } finally {
+      this.loading.set(false);
+    }
+  }
+
+  protected remove(plan: RatePlan): void {
+    const data: ConfirmData = {
+      title: `Delete ${plan.name}?`,
+      message: 'Only a plan no depot is billed under can be deleted. This cannot be undone.',
+      confirm: 'Delete',
+    };
+    this.dialog
+      .open<ConfirmDialog, ConfirmData, boolean>(ConfirmDialog, { data, width: '440px', maxWidth: '95vw' })
+      .afterClosed()
+      .subscribe(async (yes) => {
+        if (!yes) return;
+        try {
+          await this.api.remove(plan.id);
+          this.snackBar.open(`Rate plan "${plan.name}" deleted`, 'OK');
+          await this.router.navigate(['/rates']);
+        } catch (err) {
+          this.snackBar.open(toApiProblem(err).message, 'OK', { duration: 10_000, politeness: 'assertive' });
+        }
+      });
+  }
+}

@@ -1,0 +1,132 @@
+import { expect, test, type Page } from '@playwright/test';
+import { demo, expectAccessible, latestMailTo, signInAs } from './support';
+
+// A fleet supervisor uploads a day's runs, generates the night's plan, reviews it and publishes it.
+// The demo depot (Orchard Lane, America/Chicago) has runs on weekdays from yesterday to a week ahead.
+// The e2e database is shared by every test file of a run: this file is the only one that writes runs
+// or plans, and it uses a night no other test reads (the next weekday at least two days ahead).
+
+const ZONE = 'America/Chicago';
+const COLUMNS = 'bus,pull_out,pull_in,miles,kwh,arrival_soc_pct';
+
+/** The first weekday (Mon-Fri) at least `ahead` days after today at the depot, as YYYY-MM-DD. */
+function weekdayAhead(ahead: number): string {
+  const today = new Intl.DateTimeFormat('en-CA', { timeZone: ZONE, year: 'numeric', month: '2-digit', day: '2-digit' }).format(new Date());
+  const day = new Date(`${today}T12:00:00Z`);
+  day.setUTCDate(day.getUTCDate() + ahead);
+  while (day.getUTCDay() === 0 || day.getUTCDay() === 6) day.setUTCDate(day.getUTCDate() + 1);
+  return day.toISOString().slice(0, 10);
+}
+
+/**
+ * The day's runs for the 24 demo buses (201-224): a morning and an afternoon run each. Buses 203 and
+ * 205 come back at dawn (a pull-in earlier than the pull-out is the next morning) nearly empty after
+ * a long afternoon: they cannot take the energy of their morning runs in the half hour left.
+ */
+function runsCsv(): string {
+  const lines = [COLUMNS];
+  for (let i = 0; i < 24; i++) {
+    const bus = 201 + i;
+    const mm = String((i * 2) % 60).padStart(2, '0');
+    lines.push(`${bus},06:${mm},08:${mm},30,,`);
+    if (bus === 203) lines.push(`${bus},14:10,05:30,,150,10`);
+    else if (bus === 205) lines.push(`${bus},14:20,05:45,,140,12`);
+    else lines.push(`${bus},14:${mm},16:${mm},28,,${i < 6 ? 15 + i * 2 : 40 + (i % 5) * 5}`);
+  }
+  return `${lines.join('\n')}\n`;
+}
+
+async function uploadCsv(page: Page, name: string, csv: string): Promise<void> {
+  await page.getByLabel('Runs CSV file').setInputFiles({ name, mimeType: 'text/csv', buffer: Buffer.from(csv) });
+}
+
+test('a supervisor uploads the runs, generates the night, reviews the short buses and publishes', async ({ page }) => {
+  test.setTimeout(180_000);
+  const night = weekdayAhead(2);
+
+  await signInAs(page, demo('supervisor'));
+  await page.getByRole('navigation', { name: 'Sections' }).getByRole('link', { name: 'Fleet' }).click();
+  await expect(page.getByRole('heading', { level: 1, name: 'Fleet' })).toBeVisible();
+  await expect(page.getByRole('cell', { name: '224', exact: true })).toBeVisible();
+  await expectAccessible(page);
+
+  // Fleet > Service day, on the night's date.
+  await page.getByRole('tab', { name: 'Service day' }).click();
+  await page.getByRole('textbox', { name: 'Service day' }).fill(night);
+  await expect(page).toHaveURL(new RegExp(`date=${night}`));
+  const runs = page.getByRole('table', { name: 'Runs of the day' }).locator('tbody tr');
+  await expect(runs).toHaveCount(48);
+  await expect(page.getByRole('cell', { name: 'Uploaded' })).toHaveCount(0);
+  await expectAccessible(page);
+
+  // A bad file: every bad line is named with its line number and column, and nothing is saved.
+  await uploadCsv(page, 'bad-runs.csv', `${COLUMNS}\n999,14:10,16:40,30,,40\n201,14:05,16:30,30,,120\n`);
+  const lines = page.getByRole('list', { name: 'Lines to fix' });
+  await expect(page.getByText('bad-runs.csv: 1 line needs fixing; nothing was saved')).toBeVisible();
+  await expect(lines.getByRole('listitem')).toHaveText([/^Line 3, column arrival_soc_pct: .*0 to 100 %/]);
+  // The fleet check runs once every line reads well: the unknown bus is named then.
+  await uploadCsv(page, 'bad-runs.csv', `${COLUMNS}\n999,14:10,16:40,30,,40\n201,14:05,16:30,30,,38\n`);
+  await expect(lines.getByRole('listitem')).toHaveText([/^Line 2, column bus: Bus 999 is not in this depot's fleet/]);
+  await expect(runs).toHaveCount(48);
+  await expect(page.getByRole('cell', { name: 'Uploaded' })).toHaveCount(0);
+  await expectAccessible(page);
+
+  // The real file: saved as a whole, the arrival states of charge marked as uploaded.
+  await uploadCsv(page, 'runs.csv', runsCsv());
+  await expect(page.getByText('48 runs uploaded from runs.csv')).toBeVisible();
+  await expect(lines).toHaveCount(0);
+  await expect(page.getByRole('cell', { name: 'Uploaded' })).toHaveCount(24);
+  await expect(page.getByLabel('Pull-in, row 6', { exact: true })).toHaveValue('05:30');
+  await expect(page.getByText('next day', { exact: true })).toHaveCount(2);
+
+  // Plans for that night: generate, watch the progress, review.
+  await page.getByRole('navigation', { name: 'Sections' }).getByRole('link', { name: 'Plans' }).click();
+  await expect(page.getByRole('heading', { level: 1, name: 'Plans' })).toBeVisible();
+  await page.getByLabel('Night of').fill(night);
+  await expect(page).toHaveURL(new RegExp(`date=${night}`));
+  await expect(page.getByText('No plan for this night yet.')).toBeVisible();
+  await expectAccessible(page);
+  await page.getByRole('button', { name: 'Generate plan' }).click();
+  await expect(page.getByRole('heading', { level: 2, name: /^Version 1 Draft/ })).toBeVisible();
+  await expect(page.getByRole('heading', { name: 'Charger timeline' })).toBeVisible({ timeout: 90_000 });
+
+  const timeline = page.getByRole('region', { name: 'Charger timeline' });
+  await expect(timeline.getByRole('img')).toHaveAttribute('aria-label', /plug-ins on 10 chargers/);
+  await expect(timeline.locator('[data-bus="203"]').first()).toBeVisible();
+
+  // Short buses first, with the reason in words.
+  const banner = page.getByRole('note', { name: 'Short buses' });
+  await expect(banner).toContainText('Bus 203');
+  await expect(banner).toContainText('Bus 205');
+  const rows = page.getByRole('region', { name: 'Buses in the plan' }).locator('tbody tr');
+  await expect(rows).toHaveCount(24);
+  const reasons = /Dwell too short|Charger too weak|Power cabinet limit|Site service limit|Battery taper/;
+  for (const i of [0, 1]) {
+    await expect(rows.nth(i).getByRole('rowheader')).toHaveText(/20[35]/);
+    await expect(rows.nth(i)).toContainText(reasons);
+  }
+  await expect(rows.nth(2)).toContainText('Leaves with its energy');
+  await expectAccessible(page);
+
+  // Publish, after the dialog says what publishing means.
+  await page.getByRole('button', { name: 'Publish', exact: true }).click();
+  const dialog = page.getByRole('dialog', { name: 'Publish version 1?' });
+  await expect(dialog).toContainText('A published plan cannot be changed');
+  await expect(dialog).toContainText('yard staff and fleet supervisors');
+  await expectAccessible(page);
+  await dialog.getByRole('button', { name: 'Publish plan' }).click();
+  await expect(page.getByRole('heading', { level: 2, name: /^Version 1 Published/ })).toBeVisible();
+  await expect(page.getByRole('button', { name: 'Publish', exact: true })).toHaveCount(0);
+  await expect(page.getByText('This plan is published and never changes.')).toBeVisible();
+
+  const mail = await latestMailTo('yard@demo.nightyard.example');
+  expect(mail.subject).toContain('Charging plan published');
+  expect(mail.subject).toContain('Orchard Lane Depot');
+  expect(mail.text).toContain('203');
+
+  // The link in the e-mail opens that version.
+  const link = /http\S+\/plans\/[\w-]+/.exec(mail.text)![0];
+  await page.goto(new URL(link).pathname);
+  await expect(page).toHaveURL(new RegExp(`date=${night}`));
+  await expect(page.getByRole('heading', { level: 2, name: /^Version 1 Published/ })).toBeVisible();
+});
