@@ -43,6 +43,6 @@ node --enable-source-maps dist/api/main.mjs &
 pids+=($!)
 # Simulated chargers for the demo depot, once the API answers.
 wait_for_http "http://127.0.0.1:$PORT/api/health" 120
-NIGHTYARD_OCPP_URL="ws://127.0.0.1:$PORT/ocpp" node dist/api/station-simulator.mjs &
+NIGHTYARD_OCPP_URL="ws://127.0.0.1:$PORT/ocpp" SIMULATOR_HEALTH_PORT=$((PORT + 1)) node dist/api/station-simulator.mjs &
 pids+=($!)
 wait -n "${pids[@]}"

@@ -120,9 +120,19 @@ async function main() {
   await Promise.all(stations.map((s) => s.start().catch((err: Error) => console.error(`station ${s.client.identity}: ${err.message}`))));
   console.log(`station simulator: ${stations.length} chargers connected to ${url}`);
   // Lets a supervisor process (the browser tests' web server list) know the stations are up.
+  // POST /fault/<label> makes that charger report a fault, to show the yard's re-plan offer.
   if (process.env.SIMULATOR_HEALTH_PORT) {
     const { createServer } = await import('node:http');
-    createServer((_req, res) => res.writeHead(200).end('ok')).listen(Number(process.env.SIMULATOR_HEALTH_PORT), '127.0.0.1');
+    createServer((req, res) => {
+      const label = /^\/fault\/([\w-]+)$/.exec(req.url ?? '')?.[1];
+      if (req.method === 'POST' && label) {
+        const station = stations.find((s) => s.client.identity === demoChargerIdentity(label));
+        if (!station) return void res.writeHead(404).end('unknown charger');
+        void station.fault().then(() => res.writeHead(204).end(), () => res.writeHead(502).end());
+        return;
+      }
+      res.writeHead(200).end('ok');
+    }).listen(Number(process.env.SIMULATOR_HEALTH_PORT), '127.0.0.1');
   }
   const stop = () => Promise.all(stations.map((s) => s.stop())).finally(() => process.exit(0));
   process.on('SIGTERM', stop);

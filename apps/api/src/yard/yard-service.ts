@@ -123,6 +123,8 @@ export async function reportProblem(
   const zone = depot.timezone;
   const h = horizonOf(previous);
   if (now.getTime() >= h.to) throw conflict('This plan has ended: there is nothing left to re-plan');
+  // Reported before the night has started: the whole night is planned again.
+  const cutAt = new Date(Math.max(now.getTime(), h.from));
 
   const state = { outOfService: [...(plan.replanState?.outOfService ?? [])], lateArrivals: { ...(plan.replanState?.lateArrivals ?? {}) }, absent: [...(plan.replanState?.absent ?? [])] };
   const energyKwh: Record<string, number> = {};
@@ -139,7 +141,7 @@ export async function reportProblem(
     }
     case 'bus_late': {
       const at = DateTime.fromISO(report.expectedAt, { zone });
-      if (at.toMillis() <= now.getTime()) throw new DomainError('validation_failed', 'The new arrival time must be later than now', { expectedAt: 'In the past' });
+      if (at.toMillis() <= cutAt.getTime()) throw new DomainError('validation_failed', 'The new arrival time must be later than now', { expectedAt: 'In the past' });
       state.lateArrivals[report.bus] = report.expectedAt;
       break;
     }
@@ -156,9 +158,9 @@ export async function reportProblem(
   // Connected buses stay where they are, unless their charger has just failed.
   const confirmations = await confirmationsOf(db, depotId, plan.serviceDate);
   const plugged: Record<string, string> = {};
-  for (const step of yardSteps(previous, now, confirmations)) {
+  for (const step of yardSteps(previous, cutAt, confirmations)) {
     const done = confirmations.has(step.key);
-    if (step.action === 'connect' && done && Date.parse(step.at) <= now.getTime()) plugged[step.bus] = step.charger;
+    if (step.action === 'connect' && done && Date.parse(step.at) <= cutAt.getTime()) plugged[step.bus] = step.charger;
     if (step.action === 'disconnect' && done && plugged[step.bus] === step.charger) delete plugged[step.bus];
   }
   for (const [bus, charger] of Object.entries(plugged)) {
@@ -172,7 +174,7 @@ export async function reportProblem(
     sessions: previous.sessions.filter((s) => !absent.has(s.bus)),
     buses: previous.buses.filter((b) => !absent.has(b.id)),
   } as unknown as Plan;
-  const cutoff = DateTime.fromJSDate(now, { zone });
+  const cutoff = DateTime.fromJSDate(cutAt, { zone });
   const t0 = performance.now();
   let next;
   try {

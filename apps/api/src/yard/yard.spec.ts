@@ -150,6 +150,22 @@ describe('yard: reports re-plan the rest of the night', () => {
     expect(after.reports.map((r: { kind: string }) => r.kind)).toEqual(['soc_reading', 'bus_late', 'charger_out']);
   });
 
+  it('a report before the night starts re-plans the whole night', async () => {
+    const org = await createOrganisation(app, { y: ['yard'], s: ['supervisor'] });
+    const depot = (await createDepot(app.db, org.organisationId)).depot.id;
+    await addBuses(app.db, org.organisationId, depot, ['61', '62']);
+    for (const date of ['2026-12-21', '2026-12-22']) {
+      await app.request().put(`/api/depots/${depot}/service-days/${date}`).set(as(org.users.s!)).send({ runs: dayRuns(date, ['61', '62'], () => 20) }).expect(200);
+    }
+    await publishedPlan(app, org.users.s!, depot, '2026-12-21');
+    const t = (await app.request().get(`/api/depots/${depot}/tonight`).set(as(org.users.y!)).expect(200)).body;
+    expect(Date.parse(t.plan.result.slots[0].start)).toBeGreaterThan(clock.getTime());
+    const res = await app.request().post(`/api/depots/${depot}/tonight/reports`).set(as(org.users.y!))
+      .send({ planId: t.plan.id, kind: 'charger_out', charger: 'A', reason: 'Cable worn' }).expect(201);
+    const [row] = await app.db.select().from(plans).where(eq(plans.id, res.body.revision.id));
+    expect((row!.result as unknown as PlanResult).sessions.filter((s) => s.charger === 'A')).toEqual([]);
+  });
+
   it('roles', async () => {
     const fin = (await createOrganisation(app, { f: ['finance'] })).users.f!;
     await app.request().get(`/api/depots/${depotId}/tonight`).set(as(fin)).expect(403);

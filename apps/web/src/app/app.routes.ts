@@ -34,7 +34,13 @@ export const routes: Routes = [
         canActivate: [roleGuard],
         loadComponent: () => import('./tonight/tonight-page').then((m) => m.TonightPage),
       },
-      { path: 'yard', title: 'Yard', data: { section: 'yard' }, canActivate: [roleGuard], loadComponent: sectionPage },
+      {
+        path: 'yard',
+        title: 'Yard',
+        data: { section: 'yard' },
+        canActivate: [roleGuard],
+        loadComponent: () => import('./yard/yard-page').then((m) => m.YardPage),
+      },
       {
         path: 'plans',
         title: 'Plans',

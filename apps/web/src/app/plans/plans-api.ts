@@ -43,6 +43,13 @@ export class PlansApi {
     return firstValueFrom(this.http.get(`/api/plans/${encodeURIComponent(id)}/scenario`, { responseType: 'blob' }));
   }
 
+  /** The plan as OCPP SetChargingProfile payloads, one per charger (published plans only). */
+  ocppProfiles(id: string, version: '1.6' | '2.0.1'): Promise<Blob> {
+    return firstValueFrom(
+      this.http.get(`/api/plans/${encodeURIComponent(id)}/ocpp`, { params: { version }, responseType: 'blob' }),
+    );
+  }
+
   compare(id: string, withId: string): Promise<PlanComparison> {
     return firstValueFrom(
       this.http.get<PlanComparison>(`/api/plans/${encodeURIComponent(id)}/compare`, { params: { with: withId } }),

@@ -308,6 +308,17 @@ export class PlansPage {
     }
   }
 
+  /** Charging profiles for a charging-station management system to enforce the plan. */
+  protected async downloadOcpp(plan: PlanSummary, version: '1.6' | '2.0.1'): Promise<void> {
+    this.clearProblems();
+    try {
+      const blob = await this.api.ocppProfiles(plan.id, version);
+      this.saveFile(blob, `ocpp-${version}-profiles-${plan.serviceDate}-v${plan.version}.json`);
+    } catch (err) {
+      this.problem.set(toApiProblem(err).message);
+    }
+  }
+
   protected async publish(plan: PlanSummary): Promise<void> {
     if (this.busy()) return;
     const current = this.published();

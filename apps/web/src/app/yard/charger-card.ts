@@ -1,0 +1,100 @@
+import { ChangeDetectionStrategy, Component, computed, input, output } from '@angular/core';
+import { MatButtonModule } from '@angular/material/button';
+import { MatIconModule } from '@angular/material/icon';
+import { NightTrack } from './night-track';
+import type { ReportPreset } from './report-dialog';
+import { clock, kwh, relative, type Horizon, type StepView } from './yard-format';
+import type { ChargerView } from './yard-store';
+
+const STATE_TEXT = { done: 'Done', saving: 'Saving…', overdue: 'Overdue', upcoming: 'Upcoming' } as const;
+const STATE_ICON = { done: 'check_circle', saving: 'cloud_upload', overdue: 'warning', upcoming: 'schedule' } as const;
+
+/** A charger as the yard works it: live state, the next step in big type, the night, all steps. */
+@Component({
+  selector: 'ny-charger-card',
+  imports: [MatButtonModule, MatIconModule, NightTrack],
+  templateUrl: './charger-card.html',
+  styleUrl: './charger-card.scss',
+  changeDetection: ChangeDetectionStrategy.OnPush,
+  host: {
+    role: 'region',
+    '[attr.aria-labelledby]': 'headingId()',
+    '[attr.data-charger]': 'view().label',
+    '[class.out]': 'view().outOfService',
+  },
+})
+export class ChargerCard {
+  readonly view = input.required<ChargerView>();
+  readonly horizon = input.required<Horizon>();
+  readonly now = input.required<number>();
+  readonly timezone = input.required<string>();
+
+  readonly confirm = output<StepView>();
+  readonly report = output<ReportPreset>();
+
+  protected readonly stateText = STATE_TEXT;
+  protected readonly stateIcon = STATE_ICON;
+  protected readonly headingId = computed(() => `ny-charger-${this.view().label.replace(/[^\w-]/g, '_')}`);
+
+  protected readonly next = computed(() => {
+    const v = this.view().next;
+    if (!v) return null;
+    const at = Date.parse(v.step.at);
+    return {
+      view: v,
+      overdue: v.state === 'overdue',
+      when: v.state === 'overdue' ? `Overdue: due ${v.time}, ${relative(at, this.now())}` : `Next, ${relative(at, this.now())}`,
+      energy: v.step.action === 'connect' ? `${kwh(v.step.kwh)} planned for this plug-in` : `After ${kwh(v.step.kwh)} planned`,
+      button: v.step.action === 'connect' ? 'Confirm connected' : 'Confirm disconnected',
+      label: `${v.step.action === 'connect' ? 'Confirm connected' : 'Confirm disconnected'}: bus ${v.step.bus} ${v.step.action === 'connect' ? 'to' : 'from'} charger ${v.step.charger}`,
+    };
+  });
+
+  /** The last step confirmed on this charger, with whether the server has it yet. */
+  protected readonly lastDone = computed(() => {
+    const done = this.view().steps.filter((s) => s.state === 'done' || s.state === 'saving');
+    const last = done.filter((s) => s.outbox).at(-1) ?? done.at(-1);
+    if (!last) return null;
+    const box = last.outbox;
+    let status: string;
+    let icon: string;
+    if (box?.state === 'saving') {
+      status = box.message ?? 'Saving…';
+      icon = box.retrying ? 'sync_problem' : 'cloud_upload';
+    } else {
+      status = last.doneNote ? `Saved. ${last.doneNote}` : 'Saved';
+      icon = 'cloud_done';
+    }
+    return { title: last.title, status, icon, saving: box?.state === 'saving' };
+  });
+
+  protected readonly failed = computed(() =>
+    this.view().steps.filter((s) => s.outbox?.state === 'failed').map((s) => ({ key: s.step.key, title: s.title, message: s.outbox?.state === 'failed' ? s.outbox.message : '' })),
+  );
+
+  protected readonly counts = computed(() => {
+    const steps = this.view().steps;
+    return {
+      total: steps.length,
+      done: steps.filter((s) => s.state === 'done' || s.state === 'saving').length,
+      overdue: steps.filter((s) => s.state === 'overdue').length,
+    };
+  });
+
+  protected readonly live = computed(() => this.view().live);
+  protected readonly maxKw = computed(() => this.view().charger?.maxKw ?? null);
+
+  protected reportFault(): void {
+    const v = this.view();
+    this.report.emit({
+      kind: 'charger_out',
+      charger: v.label,
+      reason: `The charger reported a fault${v.charger?.live?.seenAt ? ` at ${clock(v.charger.live.seenAt, this.timezone())}` : ''}`,
+    });
+  }
+
+  protected reportProblem(): void {
+    const v = this.view();
+    this.report.emit({ charger: v.label, bus: v.next?.step.bus });
+  }
+}

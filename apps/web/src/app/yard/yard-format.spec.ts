@@ -1,0 +1,81 @@
+import { at, step, tonight, ZONE } from './yard-fixtures';
+import {
+  expectedAtFor,
+  horizonOf,
+  hourTicks,
+  isNightAt,
+  liveView,
+  nextSteps,
+  nowLinePct,
+  revisionNotice,
+  stepViews,
+} from './yard-format';
+
+describe('yard format', () => {
+  const now = Date.parse(at('22:30'));
+
+  it('picks per charger the first step by time that is not done', () => {
+    const views = stepViews(tonight().steps, now, ZONE);
+    const next = nextSteps(views);
+    expect(next.get('C1')?.sentence).toBe('Disconnect bus 201 from charger C1 at 23:00');
+    expect(next.get('C2')?.sentence).toBe('Connect bus 203 to charger C2 at 22:00');
+    expect(next.get('C2')?.state).toBe('overdue');
+  });
+
+  it('skips a step being saved and puts a disconnect before a connect at the same time', () => {
+    const steps = [
+      step({ action: 'connect', bus: '202', charger: 'C1', at: at('23:00') }),
+      step({ action: 'disconnect', bus: '201', charger: 'C1', at: at('23:00') }),
+      step({ action: 'disconnect', bus: '202', charger: 'C1', at: at('02:00') }),
+    ];
+    const views = stepViews(steps, now, ZONE, (key) => (key.startsWith('disconnect|201') ? { state: 'saving', retrying: false, message: null } : null));
+    expect(views.map((v) => v.step.action + v.step.bus)).toEqual(['disconnect201', 'connect202', 'disconnect202']);
+    expect(views[0]!.state).toBe('saving');
+    expect(nextSteps(views).get('C1')?.title).toBe('Connect bus 202 to charger C1');
+  });
+
+  it('marks steps overdue ten minutes after their time, and done with who and when', () => {
+    const views = stepViews(tonight().steps, now, ZONE);
+    expect(views.find((v) => v.step.bus === '201' && v.step.action === 'connect')).toMatchObject({ state: 'done', doneNote: 'Done 21:02 by Kofi Brandt' });
+    const upcoming = step({ action: 'connect', bus: '9', charger: 'C9', at: at('22:25') });
+    expect(stepViews([upcoming], now, ZONE)[0]!.state).toBe('upcoming');
+    expect(stepViews([upcoming], Date.parse(at('22:36')), ZONE)[0]!.state).toBe('overdue');
+  });
+
+  it('puts the now-line where now falls across the night, and none outside it', () => {
+    const h = horizonOf(tonight().plan!.result!)!;
+    expect(new Date(h.start).toISOString()).toBe(at('18:00'));
+    expect(new Date(h.end).toISOString()).toBe(at('07:00'));
+    // 18:00 to 07:00 is 13 h; 22:30 is 4.5 h in.
+    expect(nowLinePct(now, h)).toBeCloseTo((4.5 / 13) * 100, 6);
+    expect(nowLinePct(Date.parse(at('17:00')), h)).toBeNull();
+    expect(nowLinePct(h.end, h)).toBe(100);
+    expect(hourTicks(h, ZONE, 3).map((t) => t.label)).toEqual(['18:00', '21:00', '00:00', '03:00', '06:00']);
+  });
+
+  it('turns a late bus time into the next time the depot clock reads it', () => {
+    expect(expectedAtFor('23:40', now, ZONE)).toBe('2026-12-01T23:40');
+    expect(expectedAtFor('01:15', now, ZONE)).toBe('2026-12-02T01:15');
+    expect(expectedAtFor('22:30', now, ZONE)).toBe('2026-12-02T22:30');
+  });
+
+  it('is night at the depot from 18:00 to 07:00', () => {
+    expect(isNightAt(now, ZONE)).toBe(true);
+    expect(isNightAt(Date.parse('2026-12-01T18:00:00Z'), ZONE)).toBe(false); // 12:00 in Chicago
+  });
+
+  it('says what a revision changed, from the plan notes', () => {
+    const plan = tonight().plan!;
+    const revised = { ...plan, version: 3, kind: 'revision' as const, publishedBy: 'Kofi Brandt', notes: ['x', 'Revised at 23:05: charger C1 out of service (cable cut).'] };
+    expect(revisionNotice(revised, ZONE)).toBe('Plan revised at 23:05 (version 3): charger C1 out of service (cable cut). Reported by Kofi Brandt.');
+    expect(revisionNotice({ ...plan, version: 2 }, ZONE)).toBe('A new plan was published at 10:00 (version 2) by Sam Reyes. Check your next steps.');
+  });
+
+  it('describes a charger\'s live state with an icon and words', () => {
+    expect(liveView({ live: { status: 'faulted', powerKw: null, seenAt: at('22:29') }, status: 'in_service', statusReason: null }, ZONE)).toEqual({
+      icon: 'report', text: 'Faulted (at 22:29)', tone: 'fault', faulted: true,
+    });
+    expect(liveView({ live: { status: 'charging', powerKw: 42.25, seenAt: null }, status: 'in_service', statusReason: null }, ZONE).text).toBe('Charging at 42.3 kW');
+    expect(liveView(null, ZONE).text).toBe('No live report');
+  });
+});

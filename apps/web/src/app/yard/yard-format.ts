@@ -1,0 +1,270 @@
+import type { Charger, PlanDetail, PlanResult, Tonight, YardStep } from '@nightyard/contracts';
+
+/** Times, the night's span, steps and chargers as the yard reads them. Pure functions only. */
+
+/** A step is late this long after its time with nobody confirming it (as the API counts it). */
+export const OVERDUE_AFTER_MS = 10 * 60_000;
+const SLOT_MS = 15 * 60_000;
+
+const collator = new Intl.Collator(undefined, { numeric: true, sensitivity: 'base' });
+/** C2 before C10; bus 9 before bus 10. */
+export const naturalCompare = (a: string, b: string) => collator.compare(a, b);
+
+const formatters = new Map<string, Intl.DateTimeFormat>();
+function formatter(timeZone: string, kind: 'clock' | 'day' | 'parts'): Intl.DateTimeFormat {
+  const key = `${kind}|${timeZone}`;
+  let f = formatters.get(key);
+  if (!f) {
+    const options: Intl.DateTimeFormatOptions =
+      kind === 'clock'
+        ? { hour: '2-digit', minute: '2-digit', hourCycle: 'h23', timeZone }
+        : kind === 'day'
+          ? { weekday: 'short', day: 'numeric', month: 'short', timeZone }
+          : { year: 'numeric', month: '2-digit', day: '2-digit', hour: '2-digit', minute: '2-digit', hourCycle: 'h23', timeZone };
+    try {
+      f = new Intl.DateTimeFormat(kind === 'parts' ? 'en-CA' : undefined, options);
+    } catch {
+      f = new Intl.DateTimeFormat(kind === 'parts' ? 'en-CA' : undefined, { ...options, timeZone: 'UTC' });
+    }
+    formatters.set(key, f);
+  }
+  return f;
+}
+
+const toMs = (at: string | number | Date) => (typeof at === 'number' ? at : new Date(at).getTime());
+
+/** "21:30" at the depot. */
+export function clock(at: string | number | Date, timeZone: string): string {
+  return formatter(timeZone, 'clock').format(toMs(at));
+}
+
+/** "Tue 1 Dec" at the depot. */
+export function day(at: string | number | Date, timeZone: string): string {
+  return formatter(timeZone, 'day').format(toMs(at));
+}
+
+/** The depot's wall clock at an instant: `{ date: 'YYYY-MM-DD', time: 'HH:mm', hour }`. */
+export function localParts(at: string | number | Date, timeZone: string): { date: string; time: string; hour: number } {
+  const parts = Object.fromEntries(formatter(timeZone, 'parts').formatToParts(toMs(at)).map((p) => [p.type, p.value]));
+  const hour = Number(parts['hour']) % 24;
+  const hh = String(hour).padStart(2, '0');
+  return { date: `${parts['year']}-${parts['month']}-${parts['day']}`, time: `${hh}:${parts['minute']}`, hour };
+}
+
+/** "in 25 min", "in 2 h 5 min", "15 min ago". */
+export function relative(atMs: number, nowMs: number): string {
+  const minutes = Math.round((atMs - nowMs) / 60_000);
+  const abs = Math.abs(minutes);
+  const text = abs < 60 ? `${abs} min` : `${Math.floor(abs / 60)} h${abs % 60 ? ` ${abs % 60} min` : ''}`;
+  if (abs === 0) return 'now';
+  return minutes > 0 ? `in ${text}` : `${text} ago`;
+}
+
+export function kwh(value: number): string {
+  return `${new Intl.NumberFormat(undefined, { maximumFractionDigits: 1 }).format(value)} kWh`;
+}
+
+/**
+ * The local date-time the API wants for a late bus (`YYYY-MM-DDTHH:mm`): the next time the depot's
+ * clock reads `time` after now (later today, or else tomorrow morning).
+ */
+export function expectedAtFor(time: string, nowMs: number, timeZone: string): string {
+  const now = localParts(nowMs, timeZone);
+  if (time > now.time) return `${now.date}T${time}`;
+  const [y, m, d] = now.date.split('-').map(Number) as [number, number, number];
+  const next = new Date(Date.UTC(y, m - 1, d + 1)).toISOString().slice(0, 10);
+  return `${next}T${time}`;
+}
+
+/** Night colours: from 18:00 to 07:00 at the depot. */
+export function isNightAt(nowMs: number, timeZone: string): boolean {
+  const { hour } = localParts(nowMs, timeZone);
+  return hour >= 18 || hour < 7;
+}
+
+// ---------------------------------------------------------------------------------------------
+// The night's span and positions on a timeline
+
+export interface Horizon {
+  start: number;
+  end: number;
+}
+
+export function horizonOf(result: PlanResult): Horizon | null {
+  const first = result.slots[0];
+  const last = result.slots.at(-1);
+  if (!first || !last) return null;
+  return { start: Date.parse(first.start), end: Date.parse(last.start) + SLOT_MS };
+}
+
+/** Where an instant sits across the night, 0-100 (clamped). */
+export function pct(ms: number, h: Horizon): number {
+  if (h.end <= h.start) return 0;
+  return Math.min(100, Math.max(0, ((ms - h.start) / (h.end - h.start)) * 100));
+}
+
+/** The now-line's position, or null when now is outside the night. */
+export function nowLinePct(nowMs: number, h: Horizon): number | null {
+  if (nowMs < h.start || nowMs > h.end) return null;
+  return pct(nowMs, h);
+}
+
+export interface Tick {
+  at: number;
+  left: number;
+  label: string;
+}
+
+/** Whole local hours across the night, every `every` hours (local hour divisible by it). */
+export function hourTicks(h: Horizon, timeZone: string, every = 3): Tick[] {
+  const ticks: Tick[] = [];
+  for (let t = Math.ceil(h.start / SLOT_MS) * SLOT_MS; t <= h.end; t += SLOT_MS) {
+    const local = localParts(t, timeZone);
+    if (local.time.endsWith(':00') && local.hour % every === 0) ticks.push({ at: t, left: pct(t, h), label: local.time });
+  }
+  return ticks;
+}
+
+// ---------------------------------------------------------------------------------------------
+// Steps
+
+/** What the client knows of a confirmation it has queued (see ConfirmationOutbox). */
+export type OutboxState =
+  | { state: 'saving'; retrying: boolean; message: string | null }
+  | { state: 'saved'; confirmedAt: string; confirmedBy: string | null }
+  | { state: 'failed'; message: string };
+
+export type StepState = 'done' | 'saving' | 'overdue' | 'upcoming';
+
+export interface StepView {
+  step: YardStep;
+  state: StepState;
+  time: string;
+  /** "Connect bus 214 to charger C3" */
+  title: string;
+  /** "Connect bus 214 to charger C3 at 21:30" */
+  sentence: string;
+  caution: string;
+  /** "Done 21:32 by Sam Reyes" */
+  doneNote: string | null;
+  outbox: OutboxState | null;
+}
+
+export const CONNECT_CAUTION = 'High voltage: trained and authorised staff only. Inspect the connector and cable before use.';
+export const DISCONNECT_CAUTION =
+  'High voltage: trained and authorised staff only. Follow the charger maker\'s instructions; tag out and report any damage.';
+
+export function stepTitle(step: Pick<YardStep, 'action' | 'bus' | 'charger'>): string {
+  return step.action === 'connect'
+    ? `Connect bus ${step.bus} to charger ${step.charger}`
+    : `Disconnect bus ${step.bus} from charger ${step.charger}`;
+}
+
+/** A step's state now: confirmed (or confirmed here and being saved), overdue or upcoming. */
+export function stepState(step: YardStep, nowMs: number, outbox: OutboxState | null): StepState {
+  if (step.status === 'done' || step.confirmedAt) return 'done';
+  if (outbox?.state === 'saved') return 'done';
+  if (outbox?.state === 'saving') return 'saving';
+  return Date.parse(step.at) + OVERDUE_AFTER_MS < nowMs ? 'overdue' : 'upcoming';
+}
+
+export function stepViews(
+  steps: readonly YardStep[],
+  nowMs: number,
+  timeZone: string,
+  outbox: (key: string) => OutboxState | null = () => null,
+): StepView[] {
+  return [...steps]
+    .sort((a, b) => Date.parse(a.at) - Date.parse(b.at) || (a.action === b.action ? 0 : a.action === 'disconnect' ? -1 : 1))
+    .map((step) => {
+      const box = outbox(step.key);
+      const state = stepState(step, nowMs, box);
+      const time = clock(step.at, timeZone);
+      const title = stepTitle(step);
+      const confirmedAt = step.confirmedAt ?? (box?.state === 'saved' ? box.confirmedAt : null);
+      const confirmedBy = step.confirmedBy ?? (box?.state === 'saved' ? box.confirmedBy : null);
+      return {
+        step,
+        state,
+        time,
+        title,
+        sentence: `${title} at ${time}`,
+        caution: step.action === 'connect' ? CONNECT_CAUTION : DISCONNECT_CAUTION,
+        doneNote: confirmedAt ? `Done ${clock(confirmedAt, timeZone)}${confirmedBy ? ` by ${confirmedBy}` : ''}` : null,
+        outbox: box,
+      };
+    });
+}
+
+/** The next step of each charger: its first step by time that is not done (or being saved). */
+export function nextSteps(views: readonly StepView[]): Map<string, StepView> {
+  const next = new Map<string, StepView>();
+  for (const v of views) {
+    if (v.state === 'done' || v.state === 'saving') continue;
+    if (!next.has(v.step.charger)) next.set(v.step.charger, v);
+  }
+  return next;
+}
+
+// ---------------------------------------------------------------------------------------------
+// Chargers
+
+export type LiveTone = 'ok' | 'busy' | 'fault' | 'off' | 'unknown';
+
+export interface LiveView {
+  icon: string;
+  text: string;
+  tone: LiveTone;
+  faulted: boolean;
+}
+
+export function liveView(charger: Pick<Charger, 'live' | 'status' | 'statusReason'> | null, timeZone: string): LiveView {
+  const live = charger?.live ?? null;
+  const seen = live?.seenAt ? ` (at ${clock(live.seenAt, timeZone)})` : '';
+  if (!live) return { icon: 'help', text: 'No live report', tone: 'unknown', faulted: false };
+  switch (live.status) {
+    case 'charging':
+      return {
+        icon: 'bolt',
+        text: `Charging${live.powerKw !== null ? ` at ${new Intl.NumberFormat(undefined, { maximumFractionDigits: 1 }).format(live.powerKw)} kW` : ''}${seen}`,
+        tone: 'busy',
+        faulted: false,
+      };
+    case 'available':
+      return { icon: 'power', text: `Available${seen}`, tone: 'ok', faulted: false };
+    case 'faulted':
+      return { icon: 'report', text: `Faulted${seen}`, tone: 'fault', faulted: true };
+    default:
+      return { icon: 'cloud_off', text: `Offline${seen}`, tone: 'off', faulted: false };
+  }
+}
+
+// ---------------------------------------------------------------------------------------------
+// Revisions
+
+/** "Plan revised at 23:05 (version 3): charger C3 out of service (cable damaged)" */
+export function revisionNotice(plan: Pick<PlanDetail, 'version' | 'kind' | 'notes' | 'publishedAt' | 'publishedBy'>, timeZone: string): string {
+  const note = [...plan.notes].reverse().find((n) => n.startsWith('Revised at '));
+  const match = note ? /^Revised at (\d{1,2}:\d{2}): (.*?)\.?$/.exec(note) : null;
+  if (plan.kind === 'revision' && match) {
+    return `Plan revised at ${match[1]} (version ${plan.version}): ${match[2]}${plan.publishedBy ? `. Reported by ${plan.publishedBy}` : ''}.`;
+  }
+  const at = plan.publishedAt ? ` at ${clock(plan.publishedAt, timeZone)}` : '';
+  return `A new plan was published${at} (version ${plan.version})${plan.publishedBy ? ` by ${plan.publishedBy}` : ''}. Check your next steps.`;
+}
+
+const REPORT_KINDS: Record<string, string> = {
+  bus_late: 'Bus late',
+  bus_absent: 'Bus absent',
+  charger_out: 'Charger out of service',
+  soc_reading: 'State of charge reading',
+};
+
+export function reportLine(r: Tonight['reports'][number], timeZone: string): string {
+  const what = REPORT_KINDS[r.kind] ?? r.kind;
+  const subject = r.charger ? `charger ${r.charger}` : r.bus ? `bus ${r.bus}` : '';
+  const reason = r.reason ? `: ${r.reason}` : '';
+  const by = r.reportedBy ? ` by ${r.reportedBy}` : '';
+  const version = r.revisionVersion !== null ? ` (version ${r.revisionVersion})` : '';
+  return `${clock(r.reportedAt, timeZone)} ${what}, ${subject}${reason}${by}${version}`;
+}

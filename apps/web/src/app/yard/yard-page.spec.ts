@@ -1,0 +1,136 @@
+import { provideHttpClient } from '@angular/common/http';
+import { HttpTestingController, provideHttpClientTesting } from '@angular/common/http/testing';
+import { computed, signal } from '@angular/core';
+import { ComponentFixture, TestBed } from '@angular/core/testing';
+import { MatDialog } from '@angular/material/dialog';
+import { provideRouter } from '@angular/router';
+import type { Tonight } from '@nightyard/contracts';
+import { AuthStore } from '../auth/auth-store';
+import { DepotStore } from '../depots/depot-store';
+import { depot, settle } from '../testing/fixtures';
+import { OUTBOX_STORAGE_KEY } from './confirmation-outbox';
+import { DEPOT_ID, at, charger, plan, tonight } from './yard-fixtures';
+import { YardPage } from './yard-page';
+import { YardStore } from './yard-store';
+
+describe('YardPage', () => {
+  let fixture: ComponentFixture<YardPage>;
+  let el: HTMLElement;
+  let mock: HttpTestingController;
+  const open = vi.fn();
+
+  async function render(): Promise<void> {
+    await settle();
+    await fixture.whenStable();
+    fixture.detectChanges();
+  }
+
+  function answer(t: Tonight, chargers = [charger('C1'), charger('C2'), charger('C3')]): void {
+    mock.expectOne(`/api/depots/${DEPOT_ID}/tonight`).flush(t);
+    mock.expectOne(`/api/depots/${DEPOT_ID}`).flush({ depot: { id: DEPOT_ID, chargers } });
+  }
+
+  async function start(t: Tonight = tonight(), chargers?: ReturnType<typeof charger>[]): Promise<void> {
+    const current = signal(depot({ id: DEPOT_ID }));
+    TestBed.configureTestingModule({
+      providers: [
+        provideRouter([]),
+        provideHttpClient(),
+        provideHttpClientTesting(),
+        { provide: MatDialog, useValue: { open } },
+        { provide: AuthStore, useValue: { user: signal({ id: 'user-1' }) } },
+        { provide: DepotStore, useValue: { load: () => Promise.resolve(), state: signal('loaded'), current: computed(() => current()) } },
+      ],
+    });
+    mock = TestBed.inject(HttpTestingController);
+    fixture = TestBed.createComponent(YardPage);
+    el = fixture.nativeElement;
+    await render();
+    answer(t, chargers);
+    await render();
+  }
+
+  const card = (label: string) => el.querySelector<HTMLElement>(`ny-charger-card[data-charger="${label}"]`)!;
+  const text = (node: Element | null) => node?.textContent?.replace(/\s+/g, ' ').trim() ?? '';
+
+  beforeEach(() => localStorage.clear());
+  afterEach(() => {
+    mock.verify();
+    document.documentElement.style.colorScheme = '';
+  });
+
+  it('shows each charger\'s next step in big type, overdue ones marked in words, done ones greyed', async () => {
+    await start();
+    expect(text(el.querySelector('h1'))).toBe('Yard');
+    expect(text(card('C1').querySelector('.next .sentence'))).toBe('Disconnect bus 201 from charger C1 at 23:00');
+    const c2 = card('C2').querySelector('.next')!;
+    expect(c2.classList.contains('overdue')).toBe(true);
+    expect(text(c2.querySelector('.when'))).toContain('Overdue: due 22:00');
+    expect(text(c2)).toContain('High voltage: trained and authorised staff only');
+    expect(text(card('C3'))).toContain('No bus is planned on C3 tonight');
+    const done = card('C1').querySelector('li[data-state="done"]')!;
+    expect(text(done)).toContain('Done 21:02 by Kofi Brandt');
+    expect(card('C1').querySelectorAll('li[data-state="upcoming"]')).toHaveLength(3);
+    expect(text(card('C2').querySelector('li[data-state="overdue"]'))).toContain('Overdue');
+    expect(text(el.querySelector('.status-bar'))).toContain('1 overdue');
+    // 22:30 at the depot and the theme menu on "Match device": night colours.
+    expect(document.documentElement.style.colorScheme).toBe('dark');
+  });
+
+  it('asks for the cautions at the start of a shift before showing the steps', async () => {
+    await start(tonight({ acknowledged: false }));
+    expect(text(el)).toContain('Only trained and authorised staff connect or disconnect chargers.');
+    expect(text(el)).toContain('NFPA 70 / NEC Article 625, NFPA 70E, OSHA');
+    expect(text(el)).toContain('The plan is advisory: the people on site decide.');
+    expect(el.querySelector('ny-charger-card')).toBeNull();
+    [...el.querySelectorAll('button')].find((b) => text(b).includes('I have read the cautions'))!.click();
+    mock.expectOne({ method: 'POST', url: `/api/depots/${DEPOT_ID}/tonight/acknowledge` }).flush(null, { status: 204, statusText: 'No Content' });
+    await render();
+    expect(el.querySelector('ny-charger-card')).not.toBeNull();
+  });
+
+  it('confirms the next step through the outbox: saving, then saved, then the next one', async () => {
+    await start();
+    const button = card('C1').querySelector<HTMLButtonElement>('.next button')!;
+    expect(button.getAttribute('aria-label')).toBe('Confirm disconnected: bus 201 from charger C1');
+    button.click();
+    await render();
+    expect(JSON.parse(localStorage.getItem(OUTBOX_STORAGE_KEY)!)).toHaveLength(1);
+    expect(text(card('C1').querySelector('.last-done'))).toContain('Disconnect bus 201 from charger C1: Saving…');
+    expect(text(card('C1').querySelector('.next .sentence'))).toBe('Connect bus 202 to charger C1 at 23:30');
+    const req = mock.expectOne('/api/yard/confirmations');
+    req.flush({ stepKey: req.request.body.stepKey, confirmedAt: at('22:31'), confirmedBy: 'Kofi Brandt' });
+    await render();
+    expect(text(card('C1').querySelector('.last-done'))).toContain('Saved. Done 22:31 by Kofi Brandt');
+    // A confirmation reloads tonight.
+    answer(tonight());
+    await render();
+  });
+
+  it('tells the yard in the app when the plan changes version', async () => {
+    await start();
+    expect(el.querySelector('.notice')).toBeNull();
+    void fixture.debugElement.injector.get(YardStore).load();
+    const revised = plan({
+      version: 2, kind: 'revision', publishedBy: 'Kofi Brandt',
+      notes: ['Revised at 22:40: charger C2 out of service (cable cut).'],
+    });
+    answer(tonight({ plan: revised, now: at('22:41') }));
+    await render();
+    expect(text(el.querySelector('.notice'))).toContain('Plan revised at 22:40 (version 2): charger C2 out of service (cable cut). Reported by Kofi Brandt.');
+    expect(text(el.querySelector('.status-bar'))).toContain('Plan version 2 (revised)');
+  });
+
+  it('offers a prefilled out-of-service report when a charger reports a fault', async () => {
+    open.mockReturnValue({ afterClosed: () => ({ subscribe: () => undefined }) });
+    await start(tonight(), [charger('C1', { live: { status: 'faulted', powerKw: null, seenAt: at('22:20') } }), charger('C2')]);
+    expect(text(card('C1').querySelector('.live'))).toContain('Faulted (at 22:20)');
+    [...card('C1').querySelectorAll('button')].find((b) => text(b) === 'build Report charger out of service')!.click();
+    expect(open.mock.calls[0]![1].data.preset).toEqual({ kind: 'charger_out', charger: 'C1', reason: 'The charger reported a fault at 22:20' });
+  });
+
+  it('says plainly when there is no plan', async () => {
+    await start(tonight({ plan: null, steps: [] }));
+    expect(text(el)).toContain('There is no published plan for tonight or a later night at North Depot');
+  });
+});

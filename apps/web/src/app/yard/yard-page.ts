@@ -1,0 +1,143 @@
+import {
+  ChangeDetectionStrategy,
+  Component,
+  DOCUMENT,
+  DestroyRef,
+  computed,
+  effect,
+  inject,
+  signal,
+  untracked,
+} from '@angular/core';
+import { MatButtonModule } from '@angular/material/button';
+import { MatDialog } from '@angular/material/dialog';
+import { MatIconModule } from '@angular/material/icon';
+import { MatMenuModule } from '@angular/material/menu';
+import { MatProgressBarModule } from '@angular/material/progress-bar';
+import { injectIsPhone } from '../core/layout';
+import { ThemeStore } from '../core/theme-store';
+import { DepotStore } from '../depots/depot-store';
+import { SectionIntro } from '../sections/section-intro';
+import { ChargerCard } from './charger-card';
+import { ReportDialog, type ReportDialogData, type ReportOutcome, type ReportPreset } from './report-dialog';
+import { RunSheets, type RunSheetChoice } from './run-sheets';
+import { ShiftCautions } from './shift-cautions';
+import { clock, day, isNightAt, relative, reportLine } from './yard-format';
+import { YardStore } from './yard-store';
+
+/**
+ * The Yard section: tonight's published plan at the depot, charger by charger, for the people who
+ * plug the buses in (phone first, dark at night, big targets), with the shift's cautions, the
+ * report flow and printable run sheets.
+ */
+@Component({
+  selector: 'ny-yard-page',
+  imports: [
+    ChargerCard,
+    MatButtonModule,
+    MatIconModule,
+    MatMenuModule,
+    MatProgressBarModule,
+    RunSheets,
+    SectionIntro,
+    ShiftCautions,
+  ],
+  providers: [YardStore],
+  templateUrl: './yard-page.html',
+  styleUrl: './yard-page.scss',
+  changeDetection: ChangeDetectionStrategy.OnPush,
+  host: { class: 'ny-page' },
+})
+export class YardPage {
+  protected readonly store = inject(YardStore);
+  private readonly depots = inject(DepotStore);
+  private readonly dialog = inject(MatDialog);
+  private readonly theme = inject(ThemeStore);
+  private readonly document = inject(DOCUMENT);
+  private readonly phone = injectIsPhone();
+
+  protected readonly depotState = this.depots.state;
+  protected readonly depot = this.depots.current;
+  protected readonly printChoice = signal<RunSheetChoice>({ charger: null, perPage: false });
+
+  protected readonly tz = this.store.timezone;
+  protected readonly nowClock = computed(() => clock(this.store.now(), this.tz()));
+  protected readonly overdue = computed(() => this.store.steps().filter((s) => s.state === 'overdue').length);
+  protected readonly startsAt = computed(() => {
+    const h = this.store.horizon();
+    if (!h || !this.store.upcoming()) return null;
+    return `${day(h.start, this.tz())} at ${clock(h.start, this.tz())}, ${relative(h.start, this.store.now())}`;
+  });
+  protected readonly nightSpan = computed(() => {
+    const h = this.store.horizon();
+    return h ? `${day(h.start, this.tz())} ${clock(h.start, this.tz())} to ${day(h.end, this.tz())} ${clock(h.end, this.tz())}` : '';
+  });
+  protected readonly reports = computed(() => (this.store.tonight()?.reports ?? []).map((r) => reportLine(r, this.tz())));
+  protected readonly chargerLabels = computed(() => this.store.chargerViews().map((c) => c.label));
+
+  constructor() {
+    void this.depots.load();
+    effect(() => {
+      const depot = this.depots.current();
+      if (depot) untracked(() => void this.store.start(depot.id));
+    });
+
+    // Night colours for the yard: with the theme menu on "Match device", the page is dark from
+    // 18:00 to 07:00 at the depot; a pinned Light or Dark choice always wins.
+    const root = this.document.documentElement;
+    effect(() => {
+      const night = this.theme.choice() === 'device' && isNightAt(this.store.now(), this.tz());
+      root.style.colorScheme = night ? 'dark' : '';
+    });
+
+    const view = this.document.defaultView;
+    const afterPrint = () => this.printChoice.set({ charger: null, perPage: false });
+    view?.addEventListener('afterprint', afterPrint);
+    inject(DestroyRef).onDestroy(() => {
+      root.style.colorScheme = '';
+      view?.removeEventListener('afterprint', afterPrint);
+    });
+  }
+
+  protected openReport(preset?: ReportPreset): void {
+    const plan = this.store.plan();
+    const depotId = this.store.depotId();
+    if (!plan || !depotId) return;
+    const phone = this.phone();
+    const data: ReportDialogData = {
+      depotId,
+      planId: plan.id,
+      timezone: this.tz(),
+      now: this.store.now(),
+      buses: this.store.buses(),
+      chargers: this.chargerLabels(),
+      nightStart: this.store.horizon()?.start,
+      preset,
+    };
+    this.dialog
+      .open<ReportDialog, ReportDialogData, ReportOutcome>(ReportDialog, {
+        data,
+        width: phone ? '100vw' : '560px',
+        maxWidth: '100vw',
+        height: phone ? '100dvh' : undefined,
+        maxHeight: '100dvh',
+        autoFocus: 'first-tabbable',
+      })
+      .afterClosed()
+      .subscribe((outcome) => {
+        if (!outcome) return;
+        if ('result' in outcome) void this.store.reported(outcome.result);
+        else void this.store.load();
+      });
+  }
+
+  protected reloadDepot(): void {
+    void this.depots.load(true);
+  }
+
+  protected print(choice: RunSheetChoice): void {
+    this.printChoice.set(choice);
+    // Let the sheets render the choice before the browser's print dialog freezes the page.
+    setTimeout(() => this.document.defaultView?.print(), 50);
+  }
+}

@@ -1,0 +1,271 @@
+import { DOCUMENT, DestroyRef, Injectable, computed, inject, signal } from '@angular/core';
+import type { Charger, PlanResult, Tonight, YardReportResult } from '@nightyard/contracts';
+import { toApiProblem } from '../core/api-error';
+import { ConfirmationOutbox } from './confirmation-outbox';
+import { YardApi } from './yard-api';
+import {
+  horizonOf,
+  liveView,
+  naturalCompare,
+  nextSteps,
+  revisionNotice,
+  stepViews,
+  type Horizon,
+  type LiveView,
+  type StepView,
+} from './yard-format';
+
+/** How often the page asks for tonight again, so a revision made by someone else shows up. */
+export const POLL_MS = 20_000;
+/** How often the now-line and overdue states move on between polls. */
+const TICK_MS = 15_000;
+const SEEN_KEY = 'nightyard.yard.seen';
+
+export interface ChargerView {
+  label: string;
+  charger: Charger | null;
+  live: LiveView;
+  outOfService: boolean;
+  statusReason: string | null;
+  sessions: PlanResult['sessions'];
+  steps: StepView[];
+  next: StepView | null;
+}
+
+export interface Notice {
+  text: string;
+  moved: string[];
+  version: number;
+}
+
+interface Seen {
+  depotId: string;
+  serviceDate: string;
+  version: number;
+}
+
+/**
+ * Tonight at one depot for the Yard page: the plan, steps and chargers, the clock (the server's),
+ * polling, the shift's acknowledgement and the notice shown when the plan changes version.
+ */
+@Injectable()
+export class YardStore {
+  private readonly api = inject(YardApi);
+  private readonly outbox = inject(ConfirmationOutbox);
+  private readonly document = inject(DOCUMENT);
+  private readonly storage: Storage | null = this.document.defaultView?.localStorage ?? null;
+
+  readonly depotId = signal<string | null>(null);
+  readonly tonight = signal<Tonight | null>(null);
+  readonly chargers = signal<readonly Charger[]>([]);
+  readonly state = signal<'idle' | 'loading' | 'loaded' | 'failed'>('idle');
+  readonly error = signal<string | null>(null);
+  /** A message about the last action (a confirmation refused, a reload that failed). */
+  readonly problem = signal<string | null>(null);
+  readonly notice = signal<Notice | null>(null);
+  readonly acknowledging = signal(false);
+
+  /** Server time minus this device's time, so a wrong phone clock does not move the now-line. */
+  private readonly offsetMs = signal(0);
+  private readonly tick = signal(Date.now());
+  readonly now = computed(() => this.tick() + this.offsetMs());
+
+  readonly timezone = computed(() => this.tonight()?.depot.timezone ?? 'UTC');
+  readonly plan = computed(() => this.tonight()?.plan ?? null);
+  readonly horizon = computed<Horizon | null>(() => {
+    const result = this.plan()?.result;
+    return result ? horizonOf(result) : null;
+  });
+  /** Before the night's first slot: the page says when it starts. */
+  readonly upcoming = computed(() => {
+    const h = this.horizon();
+    return h !== null && this.now() < h.start;
+  });
+  readonly acknowledged = computed(() => this.tonight()?.acknowledged ?? false);
+
+  readonly steps = computed<StepView[]>(() => {
+    const t = this.tonight();
+    if (!t) return [];
+    return stepViews(t.steps, this.now(), t.depot.timezone, (key) => this.outbox.stateOf(key));
+  });
+
+  readonly chargerViews = computed<ChargerView[]>(() => {
+    const t = this.tonight();
+    if (!t?.plan) return [];
+    const tz = t.depot.timezone;
+    const sessions = t.plan.result?.sessions ?? [];
+    const byLabel = new Map(this.chargers().map((c) => [c.label, c]));
+    const labels = [...new Set([...byLabel.keys(), ...sessions.map((s) => s.charger)])].sort(naturalCompare);
+    const steps = this.steps();
+    const next = nextSteps(steps);
+    return labels.map((label) => {
+      const charger = byLabel.get(label) ?? null;
+      return {
+        label,
+        charger,
+        live: liveView(charger, tz),
+        outOfService: charger?.status === 'out_of_service',
+        statusReason: charger?.statusReason ?? null,
+        sessions: sessions.filter((s) => s.charger === label),
+        steps: steps.filter((s) => s.step.charger === label),
+        next: next.get(label) ?? null,
+      };
+    });
+  });
+
+  /** Buses of tonight's plan (for the report form). */
+  readonly buses = computed(() => {
+    const plan = this.plan();
+    if (!plan) return [];
+    return [...new Set([...Object.keys(plan.busCapacityKwh), ...(plan.result?.sessions ?? []).map((s) => s.bus)])].sort(naturalCompare);
+  });
+
+  private pending: Promise<void> | null = null;
+  private again = false;
+
+  constructor() {
+    const ticker = setInterval(() => this.tick.set(Date.now()), TICK_MS);
+    const poller = setInterval(() => void this.load(), POLL_MS);
+    const visible = () => {
+      if (this.document.visibilityState === 'visible') {
+        void this.load();
+        this.outbox.flush();
+      }
+    };
+    this.document.addEventListener('visibilitychange', visible);
+    const off = this.outbox.onSettled((outcome) => {
+      if ('failed' in outcome) this.problem.set(`Step not confirmed. ${outcome.failed.message}`);
+      void this.load();
+    });
+    inject(DestroyRef).onDestroy(() => {
+      clearInterval(ticker);
+      clearInterval(poller);
+      this.document.removeEventListener('visibilitychange', visible);
+      off();
+    });
+  }
+
+  /** Starts on a depot: loads tonight and sends any confirmation still waiting on this device. */
+  start(depotId: string): Promise<void> {
+    if (this.depotId() !== depotId) {
+      this.depotId.set(depotId);
+      this.tonight.set(null);
+      this.state.set('idle');
+    }
+    this.outbox.flush();
+    return this.load();
+  }
+
+  /** Loads tonight and the chargers' live states; calls made meanwhile run once more after it. */
+  load(): Promise<void> {
+    const depotId = this.depotId();
+    if (!depotId) return Promise.resolve();
+    if (this.pending) {
+      this.again = true;
+      return this.pending;
+    }
+    if (!this.tonight()) this.state.set('loading');
+    this.pending = this.fetch(depotId).finally(() => {
+      this.pending = null;
+      if (this.again) {
+        this.again = false;
+        void this.load();
+      }
+    });
+    return this.pending;
+  }
+
+  async acknowledge(): Promise<void> {
+    const depotId = this.depotId();
+    if (!depotId || this.acknowledging()) return;
+    this.acknowledging.set(true);
+    this.problem.set(null);
+    try {
+      await this.api.acknowledge(depotId);
+      this.tonight.update((t) => (t ? { ...t, acknowledged: true } : t));
+    } catch (err) {
+      this.problem.set(`The cautions could not be recorded. ${toApiProblem(err).message}`);
+    } finally {
+      this.acknowledging.set(false);
+    }
+  }
+
+  confirm(step: StepView): void {
+    const plan = this.plan();
+    if (!plan) return;
+    this.problem.set(null);
+    this.outbox.clear(step.step.key);
+    this.outbox.confirm(plan.id, step.step.key);
+  }
+
+  /** After a report: the revision's notice (with what moved) and the new timeline. */
+  async reported(result: YardReportResult): Promise<void> {
+    this.notice.set({ text: `Plan revised (version ${result.revision.version}).`, moved: movedLines(result), version: result.revision.version });
+    await this.load();
+  }
+
+  dismissNotice(): void {
+    this.notice.set(null);
+  }
+
+  private async fetch(depotId: string): Promise<void> {
+    const sentAt = Date.now();
+    const [tonight, depot] = await Promise.allSettled([this.api.tonight(depotId), this.api.depot(depotId)]);
+    if (depot.status === 'fulfilled') this.chargers.set(depot.value.chargers);
+    if (tonight.status === 'rejected') {
+      const message = toApiProblem(tonight.reason).message;
+      if (this.tonight()) this.problem.set(`Could not refresh tonight's plan. ${message}`);
+      else {
+        this.error.set(message);
+        this.state.set('failed');
+      }
+      return;
+    }
+    const t = tonight.value;
+    const receivedAt = Date.now();
+    this.offsetMs.set(Date.parse(t.now) - Math.round((sentAt + receivedAt) / 2));
+    this.tick.set(receivedAt);
+    this.noticeIfRevised(t);
+    this.tonight.set(t);
+    this.error.set(null);
+    this.state.set('loaded');
+  }
+
+  /** A plan of the same night with a higher version than last seen (here or before a reload). */
+  private noticeIfRevised(t: Tonight): void {
+    const plan = t.plan;
+    if (!plan) return;
+    const before = this.tonight()?.plan;
+    const seen = before ? { depotId: t.depot.id, serviceDate: before.serviceDate, version: before.version } : this.readSeen();
+    if (seen && seen.depotId === t.depot.id && seen.serviceDate === plan.serviceDate && plan.version > seen.version) {
+      const mine = this.notice();
+      this.notice.set({
+        text: revisionNotice(plan, t.depot.timezone),
+        moved: mine && mine.version === plan.version ? mine.moved : [],
+        version: plan.version,
+      });
+    }
+    this.writeSeen({ depotId: t.depot.id, serviceDate: plan.serviceDate, version: plan.version });
+  }
+
+  private readSeen(): Seen | null {
+    try {
+      const raw = JSON.parse(this.storage?.getItem(SEEN_KEY) ?? 'null') as Seen | null;
+      return raw && typeof raw.version === 'number' ? raw : null;
+    } catch {
+      return null;
+    }
+  }
+
+  private writeSeen(seen: Seen): void {
+    try {
+      this.storage?.setItem(SEEN_KEY, JSON.stringify(seen));
+    } catch {
+      // Without storage the notice still shows for revisions seen while the page is open.
+    }
+  }
+}
+
+export function movedLines(result: YardReportResult): string[] {
+  return result.moved.map((m) => `Bus ${m.bus}: ${m.before} → ${m.after}`);
+}
