@@ -69,7 +69,13 @@ export const routes: Routes = [
         canActivate: [roleGuard],
         loadChildren: () => import('./rates/rates.routes').then((m) => m.ratesRoutes),
       },
-      { path: 'costs', title: 'Costs', data: { section: 'costs' }, canActivate: [roleGuard], loadComponent: sectionPage },
+      {
+        path: 'costs',
+        title: 'Costs',
+        data: { section: 'costs' },
+        canActivate: [roleGuard],
+        loadChildren: () => import('./costs/costs.routes').then((m) => m.costsRoutes),
+      },
       {
         path: 'people',
         data: { section: 'people' },

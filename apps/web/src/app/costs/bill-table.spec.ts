@@ -1,0 +1,65 @@
+import { TestBed } from '@angular/core/testing';
+import { bill } from './costs-fixtures';
+import { BillTable } from './bill-table';
+
+describe('BillTable', () => {
+  async function render(b = bill()) {
+    const fixture = TestBed.createComponent(BillTable);
+    fixture.componentRef.setInput('bill', b);
+    fixture.componentRef.setInput('timezone', 'America/Chicago');
+    fixture.componentRef.setInput('caption', 'Projected bill, December 2026');
+    fixture.componentRef.setInput('fileName', 'costs-bill-projected-2026-12.csv');
+    await fixture.whenStable();
+    fixture.detectChanges();
+    return fixture.nativeElement as HTMLElement;
+  }
+
+  const text = (el: Element | null | undefined) => el?.textContent?.replace(/\s+/g, ' ').trim() ?? '';
+  const cells = (tr: Element | null) => [...(tr?.children ?? [])].map((c) => text(c)).filter(Boolean).join(' ');
+  const rowOf = (el: HTMLElement, label: string) =>
+    [...el.querySelectorAll('tr')].find((tr) => text(tr.querySelector('th')).startsWith(label));
+
+  it('lists energy by period, demand with its peak and when, fixed charges, and each total', async () => {
+    const el = await render();
+    const heads = [...el.querySelectorAll('tr.section-head th')].map(text);
+    expect(heads).toEqual(['Energy', 'Demand', 'Fixed charges']);
+
+    const onPeak = rowOf(el, 'Energy, on-peak')!;
+    expect([...onPeak.querySelectorAll('td')].map(text)).toEqual(['1,501 kWh at $0.18 per kWh', '$0.18 per kWh', '$270.09']);
+
+    const facility = rowOf(el, 'Facility demand')!;
+    expect(text(facility.querySelector('th'))).toMatch(/^Facility demand peak set /);
+    expect(text(facility.querySelector('.peak-at'))).toMatch(/^peak set .*2.*17:15$/);
+    expect([...facility.querySelectorAll('td')].map(text)).toEqual(['185 kW at $7.50 per kW', '$7.50 per kW', '$1,387.50']);
+
+    expect(text(rowOf(el, 'Customer charge'))).toContain('31 days');
+    expect([...el.querySelectorAll('tr.subtotal')].map(cells)).toEqual([
+      'Energy total, 13,501 kWh $1,086.09',
+      'Demand total $1,819.50',
+      'Fixed charges total $46.50',
+    ]);
+    expect(cells(el.querySelector('tfoot tr.grand-total'))).toBe('Total $2,952.09');
+  });
+
+  it('says so when the rate plan has no demand or fixed charge', async () => {
+    const el = await render(bill({ demand: [], fixed: [], demandTotal: 0, fixedTotal: 0, total: 1086.09 }));
+    expect(el.textContent).toContain('No demand charge in this rate plan');
+    expect(el.textContent).toContain('No fixed charges in this rate plan');
+    expect(cells(el.querySelector('tr.grand-total'))).toBe('Total $1,086.09');
+  });
+
+  it('exports the lines and the total with amounts as plain numbers', async () => {
+    const el = await render();
+    const blobs: Blob[] = [];
+    const create = vi.spyOn(URL, 'createObjectURL').mockImplementation((b) => (blobs.push(b as Blob), 'blob:x'));
+    const click = vi.spyOn(HTMLAnchorElement.prototype, 'click').mockImplementation(() => undefined);
+    el.querySelector<HTMLButtonElement>('ny-csv-export-button button')!.click();
+    const lines = (await blobs[0]!.text()).split('\r\n');
+    expect(lines[0]).toBe('Section,Charge,Quantity,Unit,Rate (USD),Amount (USD),Peak set at (depot time)');
+    expect(lines[1]).toBe('Energy,"Energy, off-peak",12000,kWh,0.068,816,');
+    expect(lines[3]).toBe('Demand,Facility demand,185,kW,7.5,1387.5,2026-12-02 17:15');
+    expect(lines[6]).toBe('Total,Bill total,13500.5,kWh,,2952.09,');
+    create.mockRestore();
+    click.mockRestore();
+  });
+});

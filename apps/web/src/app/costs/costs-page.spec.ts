@@ -1,0 +1,167 @@
+import { provideHttpClient } from '@angular/common/http';
+import { HttpTestingController, provideHttpClientTesting } from '@angular/common/http/testing';
+import { ComponentFixture, TestBed } from '@angular/core/testing';
+import { provideRouter } from '@angular/router';
+import type { MonthCosts, Role } from '@nightyard/contracts';
+import { AuthStore } from '../auth/auth-store';
+import { depot, settle, tokenResponse } from '../testing/fixtures';
+import { monthCosts } from './costs-fixtures';
+import { CostsPage } from './costs-page';
+
+describe('CostsPage', () => {
+  let fixture: ComponentFixture<CostsPage>;
+  let el: HTMLElement;
+  let mock: HttpTestingController;
+  const DEPOT = depot();
+  const MONTH_URL = `/api/depots/${DEPOT.id}/costs/month`;
+
+  beforeEach(() => {
+    TestBed.configureTestingModule({ providers: [provideRouter([]), provideHttpClient(), provideHttpClientTesting()] });
+    mock = TestBed.inject(HttpTestingController);
+  });
+
+  afterEach(() => mock.verify());
+
+  async function refresh() {
+    await settle();
+    await fixture.whenStable();
+    fixture.detectChanges();
+  }
+
+  async function render(roles: Role[], month: MonthCosts | 'no-rate-plan' = monthCosts(), date = '2026-12-02') {
+    const auth = TestBed.inject(AuthStore);
+    const signingIn = auth.signIn('ada@example.org', 'pw');
+    mock.expectOne('/api/auth/login').flush(tokenResponse(roles));
+    await signingIn;
+    fixture = TestBed.createComponent(CostsPage);
+    fixture.componentRef.setInput('date', date);
+    el = fixture.nativeElement;
+    await refresh();
+    mock.expectOne('/api/depots').flush({ depots: [DEPOT] });
+    await refresh();
+    const req = mock.expectOne((r) => r.url === MONTH_URL);
+    expect(req.request.params.get('date')).toBe(date);
+    if (month === 'no-rate-plan') {
+      req.flush(
+        { error: { code: 'validation_failed', message: `No rate plan applies to North Depot on ${date}: assign one under Rates`, fields: { date: 'No rate plan' } } },
+        { status: 400, statusText: 'Bad Request' },
+      );
+    } else {
+      req.flush(month);
+    }
+    await refresh();
+  }
+
+  const text = (e: Element | null) => e?.textContent?.replace(/\s+/g, ' ').trim() ?? '';
+  const cells = (tr: Element | null) => [...(tr?.children ?? [])].map((c) => text(c)).filter(Boolean).join(' ');
+  const card = (label: string) => [...el.querySelectorAll('.cards .card')].find((c) => text(c.querySelector('.card-label')) === label);
+
+  it('shows the projected bill, month to date, savings and the facility peak so far', async () => {
+    await render(['finance']);
+    expect(text(el.querySelector('.period-title'))).toBe('December 2026');
+    expect(text(card('Projected bill for the period')?.querySelector('.card-value') ?? null)).toBe('$2,952.09');
+    expect(text(card('Month to date')?.querySelector('.card-value') ?? null)).toBe('$190.25');
+    const savings = card('Savings against unmanaged charging')!;
+    expect(text(savings.querySelector('.card-value'))).toBe('$312.40');
+    expect(text(savings)).toContain('2 published nights: plans $230.50 against $542.90 unmanaged.');
+    const peak = card('Facility peak so far')!;
+    expect(text(peak.querySelector('.card-value'))).toBe('185 kW');
+    expect(text(peak)).toContain('from meter data');
+    expect(text(peak)).toContain('Period peak: on-peak 48 kW');
+  });
+
+  it('says where the projection comes from and how many school nights have no plan', async () => {
+    await render(['finance']);
+    const sources = text(el.querySelector('.sources'));
+    expect(sources).toContain("meter data where it was imported (96 metered 15-minute intervals)");
+    expect(sources).toContain('site load of the published plans (2 published plans)');
+    expect(sources).toContain("depot's building load");
+    expect(sources).toContain('3 school nights have no published plan yet');
+  });
+
+  it('renders the projected bill with its total, and the bill to date on demand', async () => {
+    await render(['finance']);
+    expect(cells(el.querySelector('ny-bill-table tr.grand-total'))).toBe('Total $2,952.09');
+    const toDate = [...el.querySelectorAll<HTMLButtonElement>('mat-button-toggle button')].find((b) => text(b) === 'To date')!;
+    toDate.click();
+    await refresh();
+    expect(text(el.querySelector('#costs-bill-heading'))).toBe('Bill to date');
+    expect(cells(el.querySelector('ny-bill-table tr.grand-total'))).toBe('Total $190.25');
+  });
+
+  it('lists the nights with links to their costs per bus', async () => {
+    await render(['finance']);
+    const rows = [...el.querySelectorAll('ny-nights-table tbody tr')];
+    expect(rows).toHaveLength(2);
+    const link = rows[0]!.querySelector('a')!;
+    expect(link.getAttribute('href')).toBe('/costs/nights/00000000-0000-4000-8000-0000000000a1');
+    expect(text(link)).toMatch(/Dec.*costs per bus and per mile/);
+    expect(text(rows[0]!)).toContain('+$3.50');
+    expect(text(rows[1]!)).toContain('none');
+  });
+
+  it('compares metered with projected only for a night metered in full', async () => {
+    const base = monthCosts();
+    const partly = { ...base.nights[0]!, actualSiteEnergyCost: 20.54, actualCoverage: 0.377, actualPeakKw: 72 };
+    await render(['finance'], monthCosts({ nights: [partly, base.nights[1]!] }));
+    const row = el.querySelector('ny-nights-table tbody tr')!;
+    const cellsOf = [...row.children].map(text);
+    expect(cellsOf[5]).toBe('$20.54 part of the night');
+    expect(cellsOf[6]).toBe('—');
+    expect(cellsOf[9]).toBe('37.7 %');
+    const metered = [...el.querySelectorAll<HTMLButtonElement>('ny-nights-chart mat-button-toggle button')].find((b) => text(b) === 'Projected and metered')!;
+    metered.click();
+    await refresh();
+    const canvas = el.querySelector('ny-nights-chart canvas')!;
+    expect(canvas.getAttribute('aria-label')).toBe('Bar chart: site energy cost of each night, projected and metered');
+    expect(text(el.querySelector(`#${canvas.getAttribute('aria-describedby')}`))).toContain(
+      'Meter data covers 1 of 2 nights (1 only in part: their metered bar is part of the night). No night is metered in full yet.',
+    );
+  });
+
+  it('shows the diesel and CO2 avoided with the source text word for word', async () => {
+    await render(['finance']);
+    const card = el.querySelector('ny-emissions-card')!;
+    expect(text(card)).toContain('343 gallons');
+    expect(text(card)).toContain('3.49 tonnes');
+    expect(text(card.querySelector('.source-text'))).toBe(monthCosts().emissions.source);
+  });
+
+  it('gives finance the meter data upload', async () => {
+    await render(['finance']);
+    expect(el.querySelector('ny-meter-import-panel input[type="file"]')).not.toBeNull();
+    expect(el.textContent).not.toContain('You can read the costs.');
+  });
+
+  it('is read-only for supervisors and facilities: no upload control', async () => {
+    await render(['supervisor', 'facilities']);
+    expect(el.querySelector('ny-meter-import-panel')).toBeNull();
+    expect(el.querySelector('input[type="file"]')).toBeNull();
+    expect(el.querySelector('#costs-import-heading')).toBeNull();
+    expect(text(el.querySelector('.sources'))).toContain("You can read the costs. Finance and administrators import the utility's meter data.");
+    // The figures themselves are there.
+    expect(text(card('Savings against unmanaged charging')?.querySelector('.card-value') ?? null)).toBe('$312.40');
+  });
+
+  it('gives the nights chart a description and a table alternative', async () => {
+    await render(['finance']);
+    const canvas = el.querySelector('ny-nights-chart canvas')!;
+    expect(canvas.getAttribute('role')).toBe('img');
+    expect(canvas.getAttribute('aria-label')).toBe('Bar chart: plan cost and unmanaged charging cost of each night');
+    const summary = el.querySelector(`#${canvas.getAttribute('aria-describedby')}`)!;
+    expect(text(summary)).toContain('The plans cost $230.50 in all, against $542.90 for unmanaged charging: $312.40 saved.');
+    const alt = el.querySelector('ny-nights-chart details')!;
+    expect(text(alt.querySelector('summary'))).toBe('The chart as a table');
+    const rows = [...alt.querySelectorAll('tbody tr')].map((r) => [...r.children].map(text));
+    expect(rows).toHaveLength(2);
+    expect(rows[0]!.slice(1)).toEqual(['$120.50', '$290.10', '$98.20', '$101.70']);
+    expect(rows[1]!.slice(1)).toEqual(['$110.00', '$252.80', '$90.00', '—']);
+  });
+
+  it('says clearly when the month has no rate plan, and keeps the period controls', async () => {
+    await render(['finance'], 'no-rate-plan', '2020-01-15');
+    expect(text(el.querySelector('[role="alert"]'))).toContain('No rate plan applies to North Depot on 2020-01-15: assign one under Rates');
+    expect(el.querySelector('button[aria-label="Previous billing period"]')).not.toBeNull();
+    expect(el.querySelector('.cards')).toBeNull();
+  });
+});

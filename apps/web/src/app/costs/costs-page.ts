@@ -1,0 +1,237 @@
+import { ChangeDetectionStrategy, Component, computed, effect, inject, input, signal, untracked } from '@angular/core';
+import { MatButtonModule } from '@angular/material/button';
+import { MatButtonToggleModule } from '@angular/material/button-toggle';
+import { MatFormFieldModule } from '@angular/material/form-field';
+import { MatIconModule } from '@angular/material/icon';
+import { MatProgressBarModule } from '@angular/material/progress-bar';
+import { MatSelectModule } from '@angular/material/select';
+import { ActivatedRoute, Router, RouterLink } from '@angular/router';
+import { hasAnyRole, type MonthCosts, type Role } from '@nightyard/contracts';
+import { AuthStore } from '../auth/auth-store';
+import { toApiProblem } from '../core/api-error';
+import { DepotStore } from '../depots/depot-store';
+import { SectionIntro } from '../sections/section-intro';
+import { BillTable } from './bill-table';
+import { CostsApi } from './costs-api';
+import { addDays, addMonths, instantAt, kw, kwh, mediumDay, money, monthKey, periodLabel, todayAt } from './costs-format';
+import { EmissionsCard } from './emissions-card';
+import { MeterImportPanel } from './meter-import-panel';
+import { NightsChart } from './nights-chart';
+import { NightsTable } from './nights-table';
+
+/** Who may import meter data (the API's editors); finance, admin, supervisors and facilities read. */
+export const COST_EDITORS: readonly Role[] = ['finance', 'admin'];
+
+const ISO_DATE = /^\d{4}-\d{2}-\d{2}$/;
+
+const PEAK_SOURCE: Record<MonthCosts['peaks']['facility']['source'], string> = {
+  actual: 'from meter data',
+  planned: 'in a published plan',
+  entered: 'entered under Depot (peaks so far)',
+};
+
+/**
+ * The Costs section: one billing period's projected bill, month to date, savings against
+ * unmanaged charging, peaks so far, the nights (chart and table), diesel and CO2 avoided, and
+ * the import of the utility's interval data.
+ */
+@Component({
+  selector: 'ny-costs-page',
+  imports: [
+    BillTable,
+    EmissionsCard,
+    MatButtonModule,
+    MatButtonToggleModule,
+    MatFormFieldModule,
+    MatIconModule,
+    MatProgressBarModule,
+    MatSelectModule,
+    MeterImportPanel,
+    NightsChart,
+    NightsTable,
+    RouterLink,
+    SectionIntro,
+  ],
+  templateUrl: './costs-page.html',
+  styleUrls: ['./costs-panels.scss', './costs-page.scss'],
+  changeDetection: ChangeDetectionStrategy.OnPush,
+  host: { class: 'ny-page' },
+})
+export class CostsPage {
+  private readonly api = inject(CostsApi);
+  private readonly auth = inject(AuthStore);
+  private readonly router = inject(Router);
+  private readonly route = inject(ActivatedRoute);
+  protected readonly depots = inject(DepotStore);
+
+  /** `?date=YYYY-MM-DD`: a day of the billing period to show (default: today at the depot). */
+  readonly date = input<string>();
+
+  protected readonly canImport = computed(() => hasAnyRole(this.auth.roles(), COST_EDITORS));
+  protected readonly depot = this.depots.current;
+  protected readonly timezone = computed(() => this.depot()?.timezone ?? 'UTC');
+  protected readonly today = computed(() => todayAt(this.timezone()));
+  /** The day asked for: the address's date, else today at the depot. */
+  protected readonly requested = computed(() => {
+    const d = this.date();
+    return d && ISO_DATE.test(d) ? d : this.today();
+  });
+
+  protected readonly month = signal<MonthCosts | null>(null);
+  protected readonly loading = signal(false);
+  protected readonly problem = signal<string | null>(null);
+  /** The first day of a billing period seen, so the selector can list the periods around today. */
+  private readonly anchor = signal<string | null>(null);
+  protected readonly billView = signal<'projected' | 'toDate'>('projected');
+  private seq = 0;
+
+  protected readonly periodName = computed(() => {
+    const m = this.month();
+    return m ? periodLabel(m.period.start, m.period.end) : '';
+  });
+
+  /** The billing periods to choose from: a year back from the one holding today, and the next one. */
+  protected readonly periods = computed(() => {
+    const anchor = this.anchor();
+    if (!anchor) return [];
+    const today = this.today();
+    let current = anchor;
+    for (let i = 0; i < 240 && current > today; i++) current = addMonths(current, -1);
+    for (let i = 0; i < 240 && addMonths(current, 1) <= today; i++) current = addMonths(current, 1);
+    const starts = Array.from({ length: 14 }, (_, k) => addMonths(current, 1 - k));
+    const shown = this.month()?.period.start;
+    if (shown && !starts.includes(shown)) starts.push(shown);
+    return starts
+      .sort((a, b) => b.localeCompare(a))
+      .map((start) => ({ start, label: `${periodLabel(start, addMonths(start, 1))}${start === current ? ' (current)' : ''}` }));
+  });
+
+  protected readonly periodFacts = computed(() => {
+    const m = this.month();
+    if (!m) return null;
+    const today = this.today();
+    const state = today < m.period.start ? 'future' : today >= m.period.end ? 'past' : 'current';
+    return {
+      from: mediumDay(m.period.start),
+      to: mediumDay(addDays(m.period.end, -1)),
+      days: m.period.days,
+      state,
+    };
+  });
+
+  protected readonly cards = computed(() => {
+    const m = this.month();
+    const facts = this.periodFacts();
+    if (!m || !facts) return null;
+    const c = m.currency;
+    const tz = this.timezone();
+    const plan = m.nights.reduce((a, n) => a + n.planCost, 0);
+    const baseline = m.nights.reduce((a, n) => a + n.baselineCost, 0);
+    const facility = m.peaks.facility;
+    const facilityAt = instantAt(facility.at, tz);
+    return {
+      projected: money(m.projected.total, c),
+      projectedParts: `Energy ${money(m.projected.energyTotal, c)}, demand ${money(m.projected.demandTotal, c)}, fixed ${money(m.projected.fixedTotal, c)}`,
+      toDate: money(m.monthToDate.total, c),
+      toDateNote:
+        facts.state === 'future'
+          ? 'The period has not started.'
+          : facts.state === 'past'
+            ? `The whole period, ${kwh(m.monthToDate.kwh)}.`
+            : `From ${facts.from} to now, ${kwh(m.monthToDate.kwh)}.`,
+      savings: money(m.savingsVsUnmanaged, c),
+      savingsPositive: m.savingsVsUnmanaged > 0,
+      savingsNote: m.nights.length
+        ? `${m.nights.length === 1 ? '1 published night' : `${m.nights.length} published nights`}: plans ${money(plan, c)} against ${money(baseline, c)} unmanaged.`
+        : 'No published plan in this period yet.',
+      peak: kw(facility.kw),
+      peakNote:
+        facility.kw > 0
+          ? `${facilityAt ? `Set ${facilityAt}, ` : ''}${PEAK_SOURCE[facility.source]}.`
+          : 'No peak recorded yet.',
+      periodPeaks: m.peaks.periods.map((p) => {
+        const at = instantAt(p.at, tz);
+        return `${p.name} ${kw(p.kw)}${at ? `, set ${at}` : ''}`;
+      }),
+    };
+  });
+
+  protected readonly sources = computed(() => {
+    const m = this.month();
+    if (!m) return null;
+    const s = m.sources;
+    return {
+      intervals:
+        s.actualIntervals === 0
+          ? 'none imported yet'
+          : s.actualIntervals === 1
+            ? '1 metered 15-minute interval'
+            : `${s.actualIntervals.toLocaleString()} metered 15-minute intervals`,
+      nights: s.plannedNights === 0 ? 'none yet' : s.plannedNights === 1 ? '1 published plan' : `${s.plannedNights} published plans`,
+      missing: s.schoolNightsWithoutPlan,
+    };
+  });
+
+  protected readonly bill = computed(() => {
+    const m = this.month();
+    if (!m) return null;
+    const toDate = this.billView() === 'toDate';
+    const key = monthKey(m.period.start);
+    return {
+      bill: toDate ? m.monthToDate : m.projected,
+      caption: `${toDate ? 'Bill to date' : 'Projected bill'}, ${this.periodName()}`,
+      fileName: `costs-bill-${toDate ? 'to-date' : 'projected'}-${key}.csv`,
+    };
+  });
+
+  constructor() {
+    void this.depots.load();
+    effect(() => {
+      const depot = this.depot();
+      const date = this.requested();
+      if (!depot) return;
+      untracked(() => void this.load(depot.id, date));
+    });
+  }
+
+  protected async load(depotId: string, date: string): Promise<void> {
+    const seq = ++this.seq;
+    this.loading.set(true);
+    this.problem.set(null);
+    try {
+      const month = await this.api.month(depotId, date);
+      if (seq !== this.seq) return;
+      this.month.set(month);
+      if (!this.anchor()) this.anchor.set(month.period.start);
+    } catch (err) {
+      if (seq !== this.seq) return;
+      this.month.set(null);
+      this.problem.set(toApiProblem(err).message);
+    } finally {
+      if (seq === this.seq) this.loading.set(false);
+    }
+  }
+
+  protected reload(): void {
+    const depot = this.depot();
+    if (depot) void this.load(depot.id, this.requested());
+  }
+
+  protected choosePeriod(start: string): void {
+    this.go(start);
+  }
+
+  protected previous(): void {
+    const m = this.month();
+    this.go(m ? addDays(m.period.start, -1) : addMonths(this.requested(), -1));
+  }
+
+  protected next(): void {
+    const m = this.month();
+    this.go(m ? m.period.end : addMonths(this.requested(), 1));
+  }
+
+  private go(date: string): void {
+    void this.router.navigate([], { relativeTo: this.route, queryParams: { date }, queryParamsHandling: 'merge' });
+  }
+}

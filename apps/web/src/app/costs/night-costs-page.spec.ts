@@ -1,0 +1,36 @@
+import { provideHttpClient } from '@angular/common/http';
+import { HttpTestingController, provideHttpClientTesting } from '@angular/common/http/testing';
+import { TestBed } from '@angular/core/testing';
+import { provideRouter } from '@angular/router';
+import { settle } from '../testing/fixtures';
+import { planCosts } from './costs-fixtures';
+import { NightCostsPage } from './night-costs-page';
+
+describe('NightCostsPage', () => {
+  it('shows the night against unmanaged charging and the cost per bus and per mile', async () => {
+    TestBed.configureTestingModule({ providers: [provideRouter([]), provideHttpClient(), provideHttpClientTesting()] });
+    const mock = TestBed.inject(HttpTestingController);
+    const fixture = TestBed.createComponent(NightCostsPage);
+    fixture.componentRef.setInput('planId', '00000000-0000-4000-8000-0000000000a1');
+    await fixture.whenStable();
+    mock.expectOne('/api/plans/00000000-0000-4000-8000-0000000000a1/costs').flush(planCosts());
+    await settle();
+    await fixture.whenStable();
+    fixture.detectChanges();
+    const el = fixture.nativeElement as HTMLElement;
+    const text = (e: Element | null) => e?.textContent?.replace(/\s+/g, ' ').trim() ?? '';
+
+    expect(text(el.querySelector('h1'))).toMatch(/^Night of Tuesday/);
+    expect(text(el.querySelector('.savings .card-value'))).toBe('$169.60');
+    expect(text(el.querySelector('.savings'))).toContain('58.5 % of the unmanaged cost');
+    const rows = [...el.querySelectorAll('table.buses tbody tr')].map((r) => [...r.children].map(text));
+    expect(rows).toEqual([
+      ['201', '80 kWh', '$70.20', '58', '$1.21'],
+      ['202', '60.5 kWh', '$50.30', '58', '$0.87'],
+      ['203', '0 kWh', '$0.00', '0', '—'],
+    ]);
+    expect([...el.querySelectorAll('table.buses tfoot td')].map(text)).toEqual(['140.5 kWh', '$120.50', '116', '$1.04']);
+    expect(el.querySelector('a[href^="/plans"]')?.getAttribute('href')).toBe('/plans?plan=00000000-0000-4000-8000-0000000000a1');
+    mock.verify();
+  });
+});

@@ -1,0 +1,116 @@
+import { ChangeDetectionStrategy, Component, computed, effect, inject, input, signal, untracked } from '@angular/core';
+import { MatButtonModule } from '@angular/material/button';
+import { MatIconModule } from '@angular/material/icon';
+import { MatProgressBarModule } from '@angular/material/progress-bar';
+import { RouterLink } from '@angular/router';
+import type { PlanCosts } from '@nightyard/contracts';
+import { toApiProblem } from '../core/api-error';
+import { CostsApi } from './costs-api';
+import { cents, kwh, longDay, money, num, percent } from './costs-format';
+import { CsvExportButton } from './csv-export-button';
+import type { CsvTable } from './csv';
+
+/** One published night's projected cost: against unmanaged charging, per bus and per mile. */
+@Component({
+  selector: 'ny-night-costs-page',
+  imports: [CsvExportButton, MatButtonModule, MatIconModule, MatProgressBarModule, RouterLink],
+  templateUrl: './night-costs-page.html',
+  styleUrls: ['./costs-panels.scss', './costs-table.scss', './night-costs-page.scss'],
+  changeDetection: ChangeDetectionStrategy.OnPush,
+  host: { class: 'ny-page' },
+})
+export class NightCostsPage {
+  private readonly api = inject(CostsApi);
+
+  /** The plan (route parameter). */
+  readonly planId = input.required<string>();
+
+  protected readonly costs = signal<PlanCosts | null>(null);
+  protected readonly loading = signal(false);
+  protected readonly problem = signal<string | null>(null);
+  private seq = 0;
+
+  protected readonly night = computed(() => {
+    const p = this.costs();
+    return p ? longDay(p.serviceDate) : null;
+  });
+
+  protected readonly facts = computed(() => {
+    const p = this.costs();
+    if (!p) return null;
+    const c = p.currency;
+    return {
+      total: money(p.total, c),
+      parts: `Energy ${money(p.energy, c)}, demand ${money(p.demand, c)}`,
+      baseline: money(p.baseline.total, c),
+      baselineParts: `Energy ${money(p.baseline.energy, c)}, demand ${money(p.baseline.demand, c)}`,
+      savings: money(p.savings, c),
+      savingsShare: percent(p.savingsShare),
+      savingsPositive: p.savings > 0,
+      charging: kwh(p.chargingKwh),
+      miles: `${num(p.miles, 0)} miles`,
+      perMile: p.costPerMile === null ? 'No miles' : money(p.costPerMile, c),
+    };
+  });
+
+  protected readonly rows = computed(() => {
+    const p = this.costs();
+    if (!p) return [];
+    const c = p.currency;
+    return p.perBus.map((b) => ({
+      bus: b.bus,
+      kwh: num(b.kwh, 1),
+      cost: money(b.cost, c),
+      miles: num(b.miles, 1),
+      perMile: b.costPerMile === null ? '—' : money(b.costPerMile, c),
+    }));
+  });
+
+  protected readonly totals = computed(() => {
+    const p = this.costs();
+    if (!p) return null;
+    const c = p.currency;
+    const cost = p.perBus.reduce((a, b) => a + b.cost, 0);
+    return {
+      kwh: num(p.chargingKwh, 1),
+      cost: money(cost, c),
+      miles: num(p.miles, 1),
+      perMile: p.costPerMile === null ? '—' : money(p.costPerMile, c),
+    };
+  });
+
+  protected readonly csv = computed<CsvTable>(() => {
+    const p = this.costs();
+    const c = p?.currency ?? 'USD';
+    return {
+      header: ['Bus', 'Charging (kWh)', `Cost (${c})`, 'Miles next service day', `Cost per mile (${c})`],
+      rows: (p?.perBus ?? []).map((b) => [b.bus, b.kwh, cents(b.cost), b.miles, b.costPerMile === null ? null : cents(b.costPerMile)]),
+    };
+  });
+
+  protected readonly fileName = computed(() => `costs-night-${this.costs()?.serviceDate ?? 'plan'}-buses.csv`);
+
+  constructor() {
+    effect(() => {
+      const id = this.planId();
+      untracked(() => void this.load(id));
+    });
+  }
+
+  protected async load(id: string): Promise<void> {
+    const seq = ++this.seq;
+    this.loading.set(true);
+    this.problem.set(null);
+    try {
+      const costs = await this.api.plan(id);
+      if (seq === this.seq) this.costs.set(costs);
+    } catch (err) {
+      if (seq === this.seq) {
+        this.costs.set(null);
+        this.problem.set(toApiProblem(err).message);
+      }
+    } finally {
+      if (seq === this.seq) this.loading.set(false);
+    }
+  }
+}

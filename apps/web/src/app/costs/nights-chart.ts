@@ -1,0 +1,195 @@
+import {
+  ChangeDetectionStrategy,
+  Component,
+  DestroyRef,
+  ElementRef,
+  computed,
+  inject,
+  input,
+  signal,
+  viewChild,
+} from '@angular/core';
+import { MatButtonToggleModule } from '@angular/material/button-toggle';
+import type { MonthCosts } from '@nightyard/contracts';
+import { BarController, BarElement, CategoryScale, Legend, LinearScale, Tooltip, type ChartData, type ChartOptions } from 'chart.js';
+import { BaseChartDirective, provideCharts } from 'ng2-charts';
+import { ThemeStore } from '../core/theme-store';
+import { cents, fullyMetered, money, monthKey, shortDay, wholeMoney } from './costs-format';
+import { CsvExportButton } from './csv-export-button';
+import type { CsvTable } from './csv';
+
+/** Which pair of figures the chart compares. */
+export type NightsView = 'savings' | 'metered';
+
+type Colours = Record<'plan' | 'baseline' | 'projected' | 'metered' | 'text' | 'grid', string>;
+const FALLBACK: Colours = { plan: '#0d6b5e', baseline: '#c78a12', projected: '#4a635e', metered: '#c78a12', text: '#3f4946', grid: '#bfc9c5' };
+
+let nextId = 0;
+
+/**
+ * The nights of a billing period as grouped bars: plan cost against unmanaged charging, or the
+ * site's energy cost as projected against as metered. Described in words for screen readers, with
+ * the same figures as a table under it.
+ */
+@Component({
+  selector: 'ny-nights-chart',
+  imports: [BaseChartDirective, CsvExportButton, MatButtonToggleModule],
+  providers: [provideCharts({ registerables: [BarController, BarElement, CategoryScale, LinearScale, Legend, Tooltip] })],
+  changeDetection: ChangeDetectionStrategy.OnPush,
+  templateUrl: './nights-chart.html',
+  styleUrls: ['./costs-table.scss', './nights-chart.scss'],
+})
+export class NightsChart {
+  private readonly theme = inject(ThemeStore);
+
+  readonly month = input.required<MonthCosts>();
+
+  protected readonly id = `ny-nights-chart-${nextId++}`;
+  protected readonly view = signal<NightsView>('savings');
+  private readonly probes = viewChild<ElementRef<HTMLElement>>('probes');
+  /** Bumped when the device switches light/dark, so the colours are read again. */
+  private readonly schemeTick = signal(0);
+
+  constructor() {
+    const media = typeof matchMedia === 'function' ? matchMedia('(prefers-color-scheme: dark)') : null;
+    const bump = () => this.schemeTick.update((n) => n + 1);
+    media?.addEventListener?.('change', bump);
+    inject(DestroyRef).onDestroy(() => media?.removeEventListener?.('change', bump));
+  }
+
+  /** A canvas cannot use CSS variables: the theme's colours are read from styled probes. */
+  private readonly colours = computed<Colours>(() => {
+    this.theme.choice();
+    this.schemeTick();
+    const host = this.probes()?.nativeElement;
+    if (!host || typeof getComputedStyle !== 'function') return FALLBACK;
+    const read = (name: keyof Colours) => {
+      const el = host.querySelector<HTMLElement>(`[data-colour="${name}"]`);
+      const value = el ? getComputedStyle(el).color : '';
+      return value && value !== 'rgba(0, 0, 0, 0)' ? value : FALLBACK[name];
+    };
+    return {
+      plan: read('plan'), baseline: read('baseline'), projected: read('projected'), metered: read('metered'), text: read('text'), grid: read('grid'),
+    };
+  });
+
+  protected readonly currency = computed(() => this.month().currency);
+  protected readonly nights = computed(() => this.month().nights);
+
+  /** The two series of the chosen view. */
+  private readonly series = computed(() => {
+    const nights = this.nights();
+    const c = this.colours();
+    return this.view() === 'savings'
+      ? [
+          { label: 'Plan cost', colour: c.plan, data: nights.map((n) => n.planCost) },
+          { label: 'Unmanaged charging', colour: c.baseline, data: nights.map((n) => n.baselineCost) },
+        ]
+      : [
+          { label: 'Site energy, projected', colour: c.projected, data: nights.map((n) => n.projectedSiteEnergyCost) },
+          { label: 'Site energy, metered', colour: c.metered, data: nights.map((n) => n.actualSiteEnergyCost) },
+        ];
+  });
+
+  protected readonly data = computed<ChartData<'bar', (number | null)[], string>>(() => {
+    // A few nights: keep each night's two bars side by side rather than spread over the width.
+    const categoryPercentage = Math.min(0.8, Math.max(0.12, this.nights().length * 0.1));
+    return {
+      labels: this.nights().map((n) => shortDay(n.date)),
+      datasets: this.series().map((s) => ({
+        label: s.label,
+        data: s.data,
+        backgroundColor: s.colour,
+        borderColor: s.colour,
+        borderWidth: 0,
+        categoryPercentage,
+        barPercentage: 0.9,
+        maxBarThickness: 40,
+      })),
+    };
+  });
+
+  protected readonly options = computed<ChartOptions<'bar'>>(() => {
+    const c = this.colours();
+    const currency = this.currency();
+    return {
+      responsive: true,
+      maintainAspectRatio: false,
+      animation: false,
+      interaction: { mode: 'index', intersect: false },
+      plugins: {
+        legend: { position: 'bottom', labels: { color: c.text, boxWidth: 14 } },
+        tooltip: {
+          callbacks: {
+            label: (ctx) => `${ctx.dataset.label}: ${ctx.raw === null ? 'no meter data' : money(Number(ctx.raw), currency)}`,
+          },
+        },
+      },
+      scales: {
+        x: { ticks: { color: c.text, maxRotation: 0, autoSkip: true, autoSkipPadding: 8 }, grid: { display: false } },
+        y: {
+          beginAtZero: true,
+          title: { display: true, text: currency, color: c.text },
+          ticks: { color: c.text, callback: (v) => wholeMoney(Number(v), currency) },
+          grid: { color: c.grid },
+        },
+      },
+    };
+  });
+
+  protected readonly label = computed(() =>
+    this.view() === 'savings'
+      ? 'Bar chart: plan cost and unmanaged charging cost of each night'
+      : 'Bar chart: site energy cost of each night, projected and metered',
+  );
+
+  /** The chart in words: the canvas's description. */
+  protected readonly summary = computed(() => {
+    const nights = this.nights();
+    const c = this.currency();
+    const count = nights.length === 1 ? '1 night' : `${nights.length} nights`;
+    if (this.view() === 'savings') {
+      const plan = nights.reduce((a, n) => a + n.planCost, 0);
+      const baseline = nights.reduce((a, n) => a + n.baselineCost, 0);
+      return `${count} with a published plan. The plans cost ${money(plan, c)} in all, against ${money(baseline, c)} for unmanaged charging: ${money(baseline - plan, c)} saved. Each night's figures are in the table under the chart.`;
+    }
+    const metered = nights.filter((n) => n.actualSiteEnergyCost !== null);
+    if (!metered.length) return `${count} with a published plan; no meter data covers any of them yet, so only the projected site energy cost is shown.`;
+    const full = metered.filter(fullyMetered);
+    const partial = metered.length - full.length;
+    const cover = `Meter data covers ${metered.length} of ${count}${partial ? ` (${partial} only in part: their metered bar is part of the night)` : ''}.`;
+    if (!full.length) return `${cover} No night is metered in full yet. Each night's figures are in the table under the chart.`;
+    const actual = full.reduce((a, n) => a + (n.actualSiteEnergyCost ?? 0), 0);
+    const projected = full.reduce((a, n) => a + n.projectedSiteEnergyCost, 0);
+    return `${cover} On the ${full.length === 1 ? 'night' : `${full.length} nights`} metered in full, the site's energy cost ${money(actual, c)} metered against ${money(projected, c)} projected. Each night's figures are in the table under the chart.`;
+  });
+
+  protected readonly rows = computed(() => {
+    const c = this.currency();
+    return this.nights().map((n) => ({
+      key: n.planId,
+      day: shortDay(n.date),
+      plan: money(n.planCost, c),
+      baseline: money(n.baselineCost, c),
+      projected: money(n.projectedSiteEnergyCost, c),
+      metered:
+        n.actualSiteEnergyCost === null ? '—' : `${money(n.actualSiteEnergyCost, c)}${fullyMetered(n) ? '' : ' (part of the night)'}`,
+    }));
+  });
+
+  protected readonly fileName = computed(() => `costs-nights-chart-${monthKey(this.month().period.start)}.csv`);
+  protected readonly csv = computed<CsvTable>(() => {
+    const c = this.currency();
+    return {
+      header: ['Night', `Plan cost (${c})`, `Unmanaged charging cost (${c})`, `Site energy projected (${c})`, `Site energy metered (${c})`],
+      rows: this.nights().map((n) => [
+        n.date, cents(n.planCost), cents(n.baselineCost), cents(n.projectedSiteEnergyCost),
+        n.actualSiteEnergyCost === null ? null : cents(n.actualSiteEnergyCost),
+      ]),
+    };
+  });
+
+  protected choose(view: NightsView): void {
+    this.view.set(view);
+  }
+}

@@ -1,0 +1,143 @@
+import fs from 'node:fs';
+import path from 'node:path';
+import { expect, test, type Page } from '@playwright/test';
+import { demo, expectAccessible, signInAs } from './support';
+
+// Costs (issue 7): a finance user opens the billing period, sees the savings against unmanaged
+// charging and the diesel and CO2 avoided, exports the nights as CSV, tries a meter file for
+// another period, and opens a night's cost per bus. The e2e database is shared by every spec of a
+// run and not reset: nothing here depends on exact totals.
+
+const ZONE = 'America/Chicago';
+/** Invented Green Button CSV for the evening of 2026-12-02 at the demo depot. */
+const FIXTURE = path.resolve('apps/api/src/costs/fixtures/green-button-evening.csv');
+const FIXTURE_DAY = '2026-12-02';
+
+/** Today at the depot, YYYY-MM-DD. */
+function today(): string {
+  return new Intl.DateTimeFormat('en-CA', { timeZone: ZONE, year: 'numeric', month: '2-digit', day: '2-digit' }).format(new Date());
+}
+
+function addDays(iso: string, days: number): string {
+  const d = new Date(`${iso}T12:00:00Z`);
+  d.setUTCDate(d.getUTCDate() + days);
+  return d.toISOString().slice(0, 10);
+}
+
+function cardValue(page: Page, label: string) {
+  return page
+    .getByRole('list', { name: 'The billing period at a glance' })
+    .getByRole('listitem')
+    .filter({ hasText: label })
+    .locator('.card-value');
+}
+
+/** "$1,234.56" -> 1234.56 */
+const amount = (text: string | null) => Number((text ?? '').replace(/[^0-9.-]/g, ''));
+
+test('finance opens the month, sees the savings, exports the nights and reads a night per bus', async ({ page }) => {
+  test.setTimeout(120_000);
+  await signInAs(page, demo('finance'));
+
+  await test.step('the billing period at a glance', async () => {
+    await expect(page).toHaveURL(/\/costs$/);
+    await expect(page.getByRole('heading', { level: 1, name: 'Costs' })).toBeVisible();
+    await expect(cardValue(page, 'Projected bill for the period')).toHaveText(/\$[\d,]+\.\d\d/);
+    const savings = cardValue(page, 'Savings against unmanaged charging');
+    await expect(savings).toHaveText(/\$[\d,]+\.\d\d/);
+    expect(amount(await savings.textContent())).toBeGreaterThan(0);
+    await expect(cardValue(page, 'Facility peak so far')).toHaveText(/\d kW$/);
+    // Where the projection comes from, and the diesel and CO2 avoided with their source named.
+    await expect(page.getByText(/The projected bill takes each 15-minute interval/)).toBeVisible();
+    const emissions = page.getByRole('region', { name: 'Diesel and CO2 avoided' });
+    await expect(emissions.getByText('Diesel avoided', { exact: true })).toBeVisible();
+    const source = emissions.locator('p').filter({ hasText: /^Source:/ });
+    await expect(source).toContainText(/Diesel avoided = miles \/ \d+ mpg/);
+    await expect(source).toContainText('US EPA');
+    await expect(page.getByRole('img', { name: /plan cost and unmanaged charging cost of each night/ })).toBeVisible();
+    await expect(page.getByRole('table', { name: /^Projected bill/ }).getByRole('row', { name: /^Total/ })).toBeVisible();
+    await expectAccessible(page);
+  });
+
+  await test.step('the nights table exports as CSV', async () => {
+    const nights = page.getByRole('region', { name: 'Nights of the billing period' });
+    await expect(nights.getByRole('row')).not.toHaveCount(0);
+    const downloading = page.waitForEvent('download');
+    await page.getByRole('button', { name: 'Export CSV of the nights', exact: true }).click();
+    const download = await downloading;
+    expect(download.suggestedFilename()).toMatch(/^costs-nights-\d{4}-\d{2}\.csv$/);
+    const lines = fs.readFileSync(await download.path(), 'utf8').trimEnd().split('\r\n');
+    expect(lines[0]).toBe(
+      'Night,Plan version,Plan cost (USD),Unmanaged charging cost (USD),Saving (USD),Projected site energy cost (USD),' +
+        'Metered site energy cost (USD),Metered minus projected (USD),Projected peak (kW),Metered peak (kW),Metered share of the night (%)',
+    );
+    expect(lines.length).toBeGreaterThan(1);
+    expect(lines[1]).toMatch(/^\d{4}-\d{2}-\d{2},\d+,-?\d+(\.\d+)?,-?\d+(\.\d+)?,-?\d+(\.\d+)?,/);
+  });
+
+  await test.step('a meter file for another billing period is refused and nothing changes', async () => {
+    const projected = await cardValue(page, 'Projected bill for the period').textContent();
+    const toDate = await cardValue(page, 'Month to date').textContent();
+    // The fixture moved 40 days back: always in an earlier billing period than today's.
+    const earlier = addDays(today(), -40);
+    const csv = fs.readFileSync(FIXTURE, 'utf8').replaceAll(FIXTURE_DAY, earlier);
+    await page.getByLabel('Meter data file (Green Button XML or CSV)').setInputFiles({
+      name: 'green-button-earlier.csv', mimeType: 'text/csv', buffer: Buffer.from(csv),
+    });
+    await expect(page.getByText(/green-button-earlier\.csv was not imported\. \d+ readings lie outside the billing period/)).toBeVisible();
+    await expect(page.getByText(/Nothing was imported\.$/)).toBeVisible();
+    await expect(page.getByText(/imported: \d+ intervals?/)).toHaveCount(0);
+    await expect(cardValue(page, 'Projected bill for the period')).toHaveText(projected ?? '');
+    await expect(cardValue(page, 'Month to date')).toHaveText(toDate ?? '');
+    await expectAccessible(page);
+  });
+
+  // The demo depot bills from the 1st: the fixture's own day is in the period shown only in its month.
+  if (today().slice(0, 7) === FIXTURE_DAY.slice(0, 7)) {
+    await test.step('the fixture for this billing period is imported with its gaps and duplicates reported', async () => {
+      await page.getByLabel('Meter data file (Green Button XML or CSV)').setInputFiles(FIXTURE);
+      await expect(page.getByText(/green-button-evening\.csv imported: 8 intervals of 15 minutes \(Green Button CSV\)/)).toBeVisible();
+      await expect(page.getByText('No duplicate readings.')).toBeVisible();
+      await expect(page.getByText('No gaps in the readings.')).toBeVisible();
+      await expect(page.getByText(/Peaks so far in the billing period now: facility \d/)).toBeVisible();
+      await expectAccessible(page);
+    });
+  }
+
+  await test.step("a night's cost per bus and per mile", async () => {
+    await page.getByRole('region', { name: 'Nights of the billing period' }).getByRole('link').first().click();
+    await expect(page).toHaveURL(/\/costs\/nights\/[0-9a-f-]{36}$/);
+    await expect(page.getByRole('heading', { level: 1, name: /^Night of / })).toBeVisible();
+    const buses = page.getByRole('table', { name: /^Cost per bus on the night of/ });
+    await expect(buses.getByRole('row').nth(1)).toBeVisible();
+    expect(await buses.locator('tbody tr').count()).toBeGreaterThan(0);
+    await expect(page.getByRole('list', { name: 'The night at a glance' }).getByText('Cost per mile')).toBeVisible();
+    const downloading = page.waitForEvent('download');
+    await page.getByRole('button', { name: 'Export CSV of the cost per bus', exact: true }).click();
+    const lines = fs.readFileSync(await (await downloading).path(), 'utf8').trimEnd().split('\r\n');
+    expect(lines[0]).toBe('Bus,Charging (kWh),Cost (USD),Miles next service day,Cost per mile (USD)');
+    expect(lines.length).toBeGreaterThan(1);
+    await expectAccessible(page);
+    await page.getByRole('navigation', { name: 'Breadcrumb' }).getByRole('link', { name: 'Costs' }).click();
+    await expect(page.getByRole('heading', { level: 1, name: 'Costs' })).toBeVisible();
+  });
+});
+
+test('a supervisor reads the costs without the meter data upload', async ({ page }) => {
+  await signInAs(page, demo('supervisor'));
+  await page.getByRole('navigation', { name: 'Sections' }).getByRole('link', { name: 'Costs' }).click();
+  await expect(page.getByRole('heading', { level: 1, name: 'Costs' })).toBeVisible();
+  await expect(cardValue(page, 'Savings against unmanaged charging')).toHaveText(/\$[\d,]+\.\d\d/);
+  await expect(page.getByText("You can read the costs. Finance and administrators import the utility's meter data.")).toBeVisible();
+  await expect(page.getByLabel('Meter data file (Green Button XML or CSV)')).toHaveCount(0);
+  await expect(page.getByRole('heading', { name: 'Import meter data' })).toHaveCount(0);
+  await expectAccessible(page);
+
+  // The billing period before: its own figures, chosen by the address.
+  const title = page.locator('.period-title');
+  const current = await title.textContent();
+  await page.getByRole('button', { name: 'Previous billing period' }).click();
+  await expect(page).toHaveURL(/\/costs\?date=\d{4}-\d{2}-\d{2}$/);
+  await expect(title).not.toHaveText(current ?? '');
+  await expect(cardValue(page, 'Projected bill for the period')).toHaveText(/\$[\d,]+\.\d\d/);
+});
