@@ -80,7 +80,11 @@ server.on('upgrade', (req, socket, head) => {
   else socket.destroy();
 });
 
+let stopping = false;
 const shutdown = (signal: string) => {
+  // Ctrl-C reaches this process and `npm start`'s clean-up alike: stop once.
+  if (stopping) return;
+  stopping = true;
   log.info({ signal }, 'shutting down');
   void central.close();
   server.close(() => jobs.stop().then(() => pool.end()).then(() => process.exit(0)));

@@ -15,7 +15,10 @@ await loadSolver();
 const jobs = await startJobQueue({ databaseUrl: config.DATABASE_URL, log, work: (id) => runPlanJob(db, log, id) });
 log.info('worker waiting for plan jobs');
 
+let stopping = false;
 const stop = async () => {
+  if (stopping) return;
+  stopping = true;
   await jobs.stop();
   await pool.end();
   process.exit(0);
