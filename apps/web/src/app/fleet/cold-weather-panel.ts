@@ -9,7 +9,7 @@ import { applyFieldErrors, toApiProblem } from '../core/api-error';
 import { messageOf, numberIn } from './bus-form';
 import { FleetApi } from './fleet-api';
 import { fmt2 } from './fleet-format';
-import { ProblemList } from './problem-list';
+import { ProblemSummary } from '../shared/problem-summary';
 
 function bandRow(band: { belowF: number | null; factor: number | null } = { belowF: null, factor: null }) {
   return new FormGroup({
@@ -21,7 +21,7 @@ function bandRow(band: { belowF: number | null; factor: number | null } = { belo
 /** The table of cold-weather factors on energy per mile: read by all, changed by fleet editors. */
 @Component({
   selector: 'ny-cold-weather-panel',
-  imports: [MatButtonModule, MatFormFieldModule, MatIconModule, MatInputModule, ProblemList, ReactiveFormsModule],
+  imports: [MatButtonModule, MatFormFieldModule, MatIconModule, MatInputModule, ProblemSummary, ReactiveFormsModule],
   templateUrl: './cold-weather-panel.html',
   styleUrl: './cold-weather-panel.scss',
   changeDetection: ChangeDetectionStrategy.OnPush,

@@ -1,5 +1,5 @@
 import type { AbstractControl } from '@angular/forms';
-import type { ProblemItem } from './problem-list';
+import type { ProblemItem } from '../shared/problem-summary';
 
 /** `runs[3].pullIn` -> ['runs', 3, 'pullIn']. */
 export function pathSegments(path: string): (string | number)[] {

@@ -82,14 +82,14 @@ describe('ServiceDayPage', () => {
     await uploading;
     await fixture.whenStable();
     fixture.detectChanges();
-    const list = el.querySelector('ny-problem-list ul[aria-label="Lines to fix"]');
+    const list = el.querySelector('ny-problem-summary ul[aria-label="Lines to fix"]');
     const items = [...list!.querySelectorAll('li')].map((li) => li.textContent?.replace(/\s+/g, ' ').trim());
     expect(items).toEqual([
       'Line 2, column arrival_soc_pct: The state of charge on arrival is 0 to 100 %',
       "Line 3, column bus: Bus 999 is not in this depot's fleet",
     ]);
-    expect(el.querySelector('ny-problem-list')?.textContent).toContain('runs.csv: 2 lines need fixing; nothing was saved');
-    expect(el.querySelector('ny-problem-list [aria-live="assertive"]')).not.toBeNull();
+    expect(el.querySelector('ny-problem-summary')?.textContent).toContain('runs.csv: 2 lines need fixing; nothing was saved');
+    expect(el.querySelector('ny-problem-summary [aria-live="assertive"]')).not.toBeNull();
     // Nothing was saved: the table still shows the day's two runs.
     expect(el.querySelectorAll('table.runs tbody tr').length).toBe(2);
   });

@@ -35,7 +35,7 @@ import { FleetApi } from './fleet-api';
 import { injectCanEditFleet } from './fleet-editors';
 import { SOC_SOURCE_LABELS, addDays, clockOf, csvProblems, fmt1, isIsoDate, todayIn } from './fleet-format';
 import { FleetTabs } from './fleet-tabs';
-import { ProblemList, type ProblemItem } from './problem-list';
+import { ProblemSummary, type ProblemItem } from '../shared/problem-summary';
 import { pullInNextDay, pullInText, runInputOf, runRow, serviceDayForm, socSourceText, type RunRow } from './run-rows';
 
 const FIELD_NAMES: Record<string, string> = {
@@ -68,7 +68,7 @@ export function previousWeekday(date: string): string {
     MatInputModule,
     MatProgressBarModule,
     MatSelectModule,
-    ProblemList,
+    ProblemSummary,
     ReactiveFormsModule,
     SectionIntro,
   ],

@@ -16,7 +16,7 @@ import { DepotStore } from '../depots/depot-store';
 import { injectSaveFile, readFileText } from '../fleet/download';
 import { injectCanEditFleet } from '../fleet/fleet-editors';
 import { addDays, isIsoDate, todayIn } from '../fleet/fleet-format';
-import { ProblemList, type ProblemItem } from '../fleet/problem-list';
+import { ProblemSummary, type ProblemItem } from '../shared/problem-summary';
 import { ConfirmDialog, type ConfirmData } from '../people/confirm-dialog';
 import { SectionIntro } from '../sections/section-intro';
 import type { TimelineCharger } from './charger-timeline';
@@ -40,7 +40,7 @@ type Reviewable = PlanDetail & { result: PlanResult };
     MatInputModule,
     MatProgressBarModule,
     PlanReview,
-    ProblemList,
+    ProblemSummary,
     RouterLink,
     SectionIntro,
   ],

@@ -1,15 +1,15 @@
 import { ChangeDetectionStrategy, Component, input } from '@angular/core';
 import { MatIconModule } from '@angular/material/icon';
 
-/** One line of the summary: where (a row or field, in words) and what to fix. */
+/** One line of a problem list: where (a line, row or field, in words) and what to fix. */
 export interface ProblemItem {
   where: string;
   message: string;
 }
 
 /**
- * What went wrong with a save, read out as it appears (aria-live): the API's message and the
- * field messages that no visible control shows, each naming its row or field.
+ * What went wrong with a save or an upload, read out as it appears (aria-live): the API's message
+ * and the problems no visible control shows, each naming where. Used across sections.
  */
 @Component({
   selector: 'ny-problem-summary',
@@ -25,7 +25,7 @@ export interface ProblemItem {
               <p class="message">{{ message() }}</p>
             }
             @if (items().length) {
-              <ul>
+              <ul [attr.aria-label]="label()">
                 @for (item of items(); track $index) {
                   <li>
                     @if (item.where) {
@@ -56,10 +56,12 @@ export interface ProblemItem {
     mat-icon { flex: none; }
     .body { min-width: 0; overflow-wrap: anywhere; }
     .message { margin: 2px 0; font-weight: 600; }
-    ul { margin: 4px 0 0; padding-inline-start: 20px; }
+    ul { margin: 4px 0 0; padding-inline-start: 20px; max-height: 320px; overflow-y: auto; }
   `,
 })
 export class ProblemSummary {
   readonly message = input<string | null>(null);
   readonly items = input<readonly ProblemItem[]>([]);
+  /** The list's accessible name, e.g. "Lines to fix". */
+  readonly label = input('Problems to fix');
 }
