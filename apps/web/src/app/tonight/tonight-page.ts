@@ -1,16 +1,171 @@
-import { ChangeDetectionStrategy, Component } from '@angular/core';
+import { ChangeDetectionStrategy, Component, computed, effect, inject, signal, untracked } from '@angular/core';
+import { MatButtonModule } from '@angular/material/button';
+import { MatCardModule } from '@angular/material/card';
+import { MatIconModule } from '@angular/material/icon';
+import { MatProgressBarModule } from '@angular/material/progress-bar';
+import { RouterLink } from '@angular/router';
+import { SECTIONS, hasAnyRole, type DepotDetail, type PlanDetail, type Role } from '@nightyard/contracts';
+import { AuthStore } from '../auth/auth-store';
+import { toApiProblem } from '../core/api-error';
 import { CurrentDepot } from '../depots/current-depot';
+import { formatServiceDay } from '../depots/depot-format';
+import { DepotStore } from '../depots/depot-store';
+import { money, naturalCompare, num, when } from '../plans/plan-format';
+import { PlansApi } from '../plans/plans-api';
 import { SectionIntro } from '../sections/section-intro';
+import { NIGHTS_BACK, candidateNights, liveCounts, liveStateOf, LIVE_STATES, peakLoad, shortBuses, todayIn } from './tonight-format';
 
-/** The night ahead at a glance. For now: the depot's summary, shown large. */
+type LoadState = 'idle' | 'loading' | 'loaded' | 'failed';
+
+/** Who may generate and publish plans (the API's planners). */
+const PLANNERS: readonly Role[] = ['supervisor', 'admin'];
+const PLAN_READERS = SECTIONS.find((s) => s.key === 'plans')?.roles ?? [];
+
+/**
+ * The night ahead at a glance: the depot's summary, tonight's published plan (buses, plug-ins,
+ * cost against unmanaged charging, peak load, short buses) and the chargers' live states.
+ */
 @Component({
   selector: 'ny-tonight-page',
-  imports: [CurrentDepot, SectionIntro],
+  imports: [CurrentDepot, MatButtonModule, MatCardModule, MatIconModule, MatProgressBarModule, RouterLink, SectionIntro],
+  templateUrl: './tonight-page.html',
+  styleUrl: './tonight-page.scss',
   changeDetection: ChangeDetectionStrategy.OnPush,
   host: { class: 'ny-page' },
-  template: `
-    <ny-section-intro section="tonight" />
-    <ny-current-depot [prominent]="true" />
-  `,
 })
-export class TonightPage {}
+export class TonightPage {
+  private readonly depots = inject(DepotStore);
+  private readonly api = inject(PlansApi);
+  private readonly auth = inject(AuthStore);
+
+  /** The published plan of tonight (null: none in the nights looked at). */
+  protected readonly plan = signal<PlanDetail | null>(null);
+  protected readonly planState = signal<LoadState>('idle');
+  protected readonly planError = signal<string | null>(null);
+  protected readonly detail = signal<DepotDetail | null>(null);
+  protected readonly detailState = signal<LoadState>('idle');
+  protected readonly detailError = signal<string | null>(null);
+  protected readonly nightsBack = NIGHTS_BACK;
+
+  protected readonly canOpenPlans = computed(() => hasAnyRole(this.auth.roles(), PLAN_READERS));
+  protected readonly canGenerate = computed(() => hasAnyRole(this.auth.roles(), PLANNERS));
+  protected readonly hasDepot = computed(() => this.depots.current() !== null);
+
+  protected readonly night = computed(() => {
+    const p = this.plan();
+    if (!p) return null;
+    const r = p.result;
+    const short = shortBuses(p);
+    const peak = peakLoad(p);
+    const saving = r ? r.baseline.total - r.cost.total : null;
+    return {
+      id: p.id,
+      date: p.serviceDate,
+      day: formatServiceDay(p.serviceDate),
+      version: p.version,
+      published: p.publishedAt ? `${when(p.publishedAt)}${p.publishedBy ? ` by ${p.publishedBy}` : ''}` : null,
+      hasResult: r !== null,
+      buses: r?.buses.length ?? 0,
+      plugIns: r?.sessions.length ?? 0,
+      busesPluggedIn: r ? new Set(r.sessions.map((s) => s.bus)).size : 0,
+      cost: r ? money(r.cost.total, p.currency) : null,
+      baseline: r ? money(r.baseline.total, p.currency) : null,
+      saving: saving === null ? null : money(Math.abs(saving), p.currency),
+      saves: saving !== null && saving >= 0,
+      savingPct: saving !== null && r && r.baseline.total > 0 ? num((saving / r.baseline.total) * 100, 0) : null,
+      peak: peak
+        ? {
+            ...peak,
+            peakText: `${num(peak.peakKw)} kW`,
+            limitText: `${num(peak.limitKw)} kW`,
+            share: peak.limitKw > 0 ? Math.min(100, (peak.peakKw / peak.limitKw) * 100) : 0,
+            sharePct: peak.limitKw > 0 ? num((peak.peakKw / peak.limitKw) * 100, 0) : null,
+          }
+        : null,
+      baselinePeak: r ? `${num(r.baseline.peakKw)} kW` : null,
+      baselineOver: r?.baseline.exceedsSiteLimit ?? false,
+      short,
+      shortKwh: short.map((s) => `${num(s.shortfallKwh)} kWh`),
+    };
+  });
+
+  protected readonly chargers = computed(() =>
+    [...(this.detail()?.chargers ?? [])]
+      .sort((a, b) => naturalCompare(a.label, b.label))
+      .map((c) => {
+        const state = liveStateOf(c);
+        const info = LIVE_STATES.find((s) => s.state === state)!;
+        return {
+          id: c.id,
+          label: c.label,
+          state,
+          stateLabel: info.label,
+          icon: info.icon,
+          power: state === 'charging' && c.live?.powerKw != null ? `${num(c.live.powerKw)} kW` : null,
+          outOfService: c.status !== 'in_service',
+        };
+      }),
+  );
+  protected readonly counts = computed(() => liveCounts(this.detail()?.chargers ?? []));
+  protected readonly faulted = computed(() => this.chargers().filter((c) => c.state === 'faulted').length);
+
+  private run = 0;
+
+  constructor() {
+    void this.depots.load();
+    effect(() => {
+      const depot = this.depots.current();
+      if (depot) untracked(() => this.load(depot.id, depot.timezone));
+    });
+  }
+
+  protected reload(): void {
+    const depot = this.depots.current();
+    if (depot) this.load(depot.id, depot.timezone);
+  }
+
+  private load(depotId: string, timeZone: string): void {
+    const run = ++this.run;
+    void this.loadPlan(run, depotId, timeZone);
+    void this.loadChargers(run, depotId);
+  }
+
+  /** Walks back from today to the first night with a published plan, then reads that plan. */
+  private async loadPlan(run: number, depotId: string, timeZone: string): Promise<void> {
+    this.planState.set('loading');
+    this.planError.set(null);
+    try {
+      let found: PlanDetail | null = null;
+      for (const date of candidateNights(todayIn(timeZone))) {
+        const published = (await this.api.list(depotId, date)).find((p) => p.state === 'published');
+        if (run !== this.run) return;
+        if (published) {
+          found = await this.api.plan(published.id);
+          break;
+        }
+      }
+      if (run !== this.run) return;
+      this.plan.set(found);
+      this.planState.set('loaded');
+    } catch (err) {
+      if (run !== this.run) return;
+      this.planError.set(toApiProblem(err).message);
+      this.planState.set('failed');
+    }
+  }
+
+  private async loadChargers(run: number, depotId: string): Promise<void> {
+    this.detailState.set('loading');
+    this.detailError.set(null);
+    try {
+      const detail = await this.api.depot(depotId);
+      if (run !== this.run) return;
+      this.detail.set(detail);
+      this.detailState.set('loaded');
+    } catch (err) {
+      if (run !== this.run) return;
+      this.detailError.set(toApiProblem(err).message);
+      this.detailState.set('failed');
+    }
+  }
+}

@@ -1,0 +1,205 @@
+import { provideHttpClient } from '@angular/common/http';
+import { HttpTestingController, provideHttpClientTesting } from '@angular/common/http/testing';
+import { computed, signal } from '@angular/core';
+import { ComponentFixture, TestBed } from '@angular/core/testing';
+import { provideRouter } from '@angular/router';
+import type { Charger, PlanDetail, PlanSummary, Role } from '@nightyard/contracts';
+import { AuthStore } from '../auth/auth-store';
+import { DepotStore } from '../depots/depot-store';
+import { DEPOT_ID } from '../fleet/fleet-fixtures';
+import { PLAN_IDS, planDetail, planSummary } from '../plans/plan-fixtures';
+import { depot, settle } from '../testing/fixtures';
+import { charger } from '../yard/yard-fixtures';
+import { TonightPage } from './tonight-page';
+
+describe('TonightPage', () => {
+  let fixture: ComponentFixture<TonightPage>;
+  let el: HTMLElement;
+  let mock: HttpTestingController;
+
+  const text = (node: Element | null) => node?.textContent?.replace(/\s+/g, ' ').trim() ?? '';
+  /** The words a screen reader gets: the text without the (aria-hidden) icons. */
+  const words = (node: Element | null) => {
+    const copy = node?.cloneNode(true) as Element | undefined;
+    copy?.querySelectorAll('mat-icon').forEach((i) => i.remove());
+    return text(copy ?? null);
+  };
+  const fact = (name: string) => text(el.querySelector(`[data-fact="${name}"]`));
+
+  async function render(): Promise<void> {
+    await settle();
+    await fixture.whenStable();
+    fixture.detectChanges();
+    await settle();
+  }
+
+  async function start(roles: Role[] = ['admin']): Promise<void> {
+    const current = signal(depot({ id: DEPOT_ID, name: 'Orchard Lane Depot', timezone: 'America/Chicago' }));
+    TestBed.configureTestingModule({
+      providers: [
+        provideRouter([]),
+        provideHttpClient(),
+        provideHttpClientTesting(),
+        { provide: AuthStore, useValue: { roles: signal(roles) } },
+        {
+          provide: DepotStore,
+          useValue: { load: () => Promise.resolve(), state: signal('loaded'), error: signal(null), current: computed(() => current()) },
+        },
+      ],
+    });
+    mock = TestBed.inject(HttpTestingController);
+    fixture = TestBed.createComponent(TonightPage);
+    el = fixture.nativeElement;
+    await render();
+  }
+
+  /** Answers the plan list of one night (the page asks night by night, newest first). */
+  async function night(date: string, plans: PlanSummary[]): Promise<void> {
+    mock.expectOne((r) => r.url === `/api/depots/${DEPOT_ID}/plans` && r.params.get('serviceDate') === date).flush({ plans });
+    await render();
+  }
+
+  async function chargers(list: Charger[]): Promise<void> {
+    mock.expectOne(`/api/depots/${DEPOT_ID}`).flush({ depot: { id: DEPOT_ID, chargers: list } });
+    await render();
+  }
+
+  async function detail(plan: PlanDetail): Promise<void> {
+    mock.expectOne(`/api/plans/${plan.id}`).flush({ plan });
+    await render();
+  }
+
+  beforeEach(() => {
+    vi.useFakeTimers({ toFake: ['Date'] });
+    // 22:00 on Tuesday 1 December at the depot (America/Chicago, UTC-6): still "today" there.
+    vi.setSystemTime(new Date('2026-12-02T04:00:00Z'));
+  });
+  afterEach(() => {
+    mock.verify();
+    vi.useRealTimers();
+  });
+
+  it('walks back from today to the latest night with a published plan and shows it', async () => {
+    await start();
+    expect(text(el.querySelector('h1'))).toBe('Tonight');
+    expect(text(el)).toContain('Orchard Lane Depot');
+    await chargers([charger('C1')]);
+    await night('2026-12-01', [planSummary({ serviceDate: '2026-12-01', state: 'draft' })]);
+    await night('2026-11-30', []);
+    const published = planDetail({
+      id: PLAN_IDS.published,
+      serviceDate: '2026-11-29',
+      version: 3,
+      state: 'published',
+      publishedAt: '2026-11-29T21:00:00.000Z',
+      publishedBy: 'Desmond Hale',
+    });
+    await night('2026-11-29', [
+      planSummary({ id: PLAN_IDS.draft, serviceDate: '2026-11-29', version: 4, state: 'draft' }),
+      planSummary({ id: PLAN_IDS.published, serviceDate: '2026-11-29', version: 3, state: 'published' }),
+    ]);
+    await detail(published);
+    mock.expectNone((r) => r.url.endsWith('/plans'));
+
+    expect(fact('night')).toContain('29');
+    expect(fact('night')).toContain('November');
+    expect(fact('version')).toBe('3');
+    expect(fact('buses')).toBe('3');
+    expect(fact('plug-ins')).toBe('3');
+    expect(fact('cost')).toContain('100.00');
+    expect(fact('baseline')).toContain('400.00');
+    expect(fact('saving')).toContain('300.00');
+    expect(fact('saving')).toContain('75 % less');
+    expect(fact('peak')).toContain('120 kW of 150 kW limit');
+    const link = el.querySelector<HTMLAnchorElement>('a[href^="/plans"]')!;
+    expect(text(link)).toBe('Open version 3 in Plans');
+    expect(link.getAttribute('href')).toBe(`/plans?date=2026-11-29&plan=${PLAN_IDS.published}`);
+    const headings = [...el.querySelectorAll('h2')].map((h) => text(h));
+    expect(headings).toEqual(expect.arrayContaining(["Tonight's plan", 'Cost and peak load', 'Short buses', 'Chargers right now']));
+  });
+
+  it('lists the short buses with their reasons in words, largest shortfall first', async () => {
+    await start();
+    await chargers([]);
+    await night('2026-12-01', [planSummary({ id: PLAN_IDS.published, serviceDate: '2026-12-01', state: 'published' })]);
+    await detail(planDetail({ id: PLAN_IDS.published, serviceDate: '2026-12-01', state: 'published' }));
+    expect(fact('short-count')).toBe('2 buses short');
+    const items = [...el.querySelectorAll('.short-list li')].map((li) => words(li));
+    expect(items).toEqual(['Bus 203: Site service limit, 30 kWh short', 'Bus 205: Dwell too short, 12.5 kWh short']);
+  });
+
+  it('counts the chargers by live state and marks faulted ones with an icon and a word', async () => {
+    await start();
+    await chargers([
+      charger('C1', { live: { status: 'charging', powerKw: 42.5, seenAt: null } }),
+      charger('C10', { live: { status: 'available', powerKw: 0, seenAt: null } }),
+      charger('C2', { live: { status: 'faulted', powerKw: null, seenAt: null } }),
+      charger('C3', { live: { status: 'charging', powerKw: 60, seenAt: null } }),
+      charger('C4', { live: { status: 'offline', powerKw: null, seenAt: null }, status: 'out_of_service' }),
+      charger('C5', { live: null }),
+    ]);
+    for (const date of ['2026-12-01', '2026-11-30', '2026-11-29', '2026-11-28', '2026-11-27']) await night(date, []);
+
+    const count = (state: string) => words(el.querySelector(`.counts li[data-state="${state}"]`));
+    expect(count('charging')).toBe('2 Charging');
+    expect(count('available')).toBe('1 Available');
+    expect(count('faulted')).toBe('1 Faulted');
+    expect(count('offline')).toBe('1 Offline');
+    expect(count('unknown')).toBe('1 No reading');
+    expect(el.querySelector('.counts li[data-state="faulted"]')!.classList.contains('faulted')).toBe(true);
+
+    const labels = [...el.querySelectorAll('.charger-list li')].map((li) => li.getAttribute('data-charger'));
+    expect(labels).toEqual(['C1', 'C2', 'C3', 'C4', 'C5', 'C10']);
+    const c = (label: string) => el.querySelector(`.charger-list li[data-charger="${label}"]`)!;
+    expect(words(c('C1'))).toBe('C1 Charging, 42.5 kW');
+    expect(words(c('C2'))).toBe('C2 Faulted');
+    expect(c('C2').querySelector('mat-icon')?.textContent?.trim()).toBe('error');
+    expect(c('C2').classList.contains('faulted')).toBe(true);
+    expect(words(c('C4'))).toBe('C4 Offline, out of service');
+  });
+
+  it('says plainly when no plan is published, with a link to Plans for those who can generate', async () => {
+    await start(['admin']);
+    await chargers([]);
+    for (const date of ['2026-12-01', '2026-11-30', '2026-11-29', '2026-11-28', '2026-11-27']) await night(date, []);
+    mock.expectNone((r) => r.url.includes('/plans'));
+    expect(text(el.querySelector('#ny-tonight-none'))).toBe('No published plan');
+    expect(fact('no-plan')).toContain('No plan has been published for tonight or the 4 nights before');
+    const link = el.querySelector<HTMLAnchorElement>('a[href="/plans"]')!;
+    expect(text(link)).toBe('Generate a plan in Plans');
+  });
+
+  it('offers no Plans link to roles that cannot generate', async () => {
+    await start(['yard']);
+    await chargers([]);
+    for (const date of ['2026-12-01', '2026-11-30', '2026-11-29', '2026-11-28', '2026-11-27']) await night(date, []);
+    expect(fact('no-plan')).toContain('No plan has been published');
+    expect(el.querySelector('a[href^="/plans"]')).toBeNull();
+  });
+
+  it('offers the plan link only to roles that can open Plans', async () => {
+    await start(['yard']);
+    await chargers([]);
+    await night('2026-12-01', [planSummary({ id: PLAN_IDS.published, serviceDate: '2026-12-01', state: 'published' })]);
+    await detail(planDetail({ id: PLAN_IDS.published, serviceDate: '2026-12-01', state: 'published' }));
+    expect(fact('version')).toBe('2');
+    expect(el.querySelector('a[href^="/plans"]')).toBeNull();
+  });
+
+  it('shows a problem with a retry when the plans cannot be loaded', async () => {
+    await start();
+    await chargers([]);
+    mock
+      .expectOne((r) => r.url === `/api/depots/${DEPOT_ID}/plans`)
+      .flush({ title: 'Server error' }, { status: 500, statusText: 'Server Error' });
+    await render();
+    expect(text(el.querySelector('[role="alert"]'))).toContain("Tonight's plan could not be loaded");
+    el.querySelector<HTMLButtonElement>('[role="alert"] button')!.click();
+    await render();
+    mock.expectOne(`/api/depots/${DEPOT_ID}`).flush({ depot: { id: DEPOT_ID, chargers: [] } });
+    await night('2026-12-01', [planSummary({ id: PLAN_IDS.published, serviceDate: '2026-12-01', state: 'published' })]);
+    await detail(planDetail({ id: PLAN_IDS.published, serviceDate: '2026-12-01', state: 'published' }));
+    expect(el.querySelector('[role="alert"]')).toBeNull();
+    expect(fact('version')).toBe('2');
+  });
+});
