@@ -1,9 +1,6 @@
 import type { Routes } from '@angular/router';
 import { homeRedirectGuard, roleGuard, signedInGuard, signedOutGuard } from './auth/auth-guards';
 
-/** The placeholder sections that later work fills in. Tonight and People have their own pages. */
-const sectionPage = () => import('./sections/section-page').then((m) => m.SectionPage);
-
 export const routes: Routes = [
   {
     path: 'sign-in',
