@@ -1,10 +1,8 @@
 import {
   ChangeDetectionStrategy,
   Component,
-  DestroyRef,
   ElementRef,
   computed,
-  inject,
   input,
   signal,
   viewChild,
@@ -13,7 +11,7 @@ import { MatButtonToggleModule } from '@angular/material/button-toggle';
 import type { MonthCosts } from '@nightyard/contracts';
 import { BarController, BarElement, CategoryScale, Legend, LinearScale, Tooltip, type ChartData, type ChartOptions } from 'chart.js';
 import { BaseChartDirective, provideCharts } from 'ng2-charts';
-import { ThemeStore } from '../core/theme-store';
+import { injectThemeColours } from '../shared/theme-colours';
 import { cents, fullyMetered, money, monthKey, shortDay, wholeMoney } from './costs-format';
 import { CsvExportButton } from './csv-export-button';
 import type { CsvTable } from './csv';
@@ -40,38 +38,13 @@ let nextId = 0;
   styleUrls: ['./costs-table.scss', './nights-chart.scss'],
 })
 export class NightsChart {
-  private readonly theme = inject(ThemeStore);
-
   readonly month = input.required<MonthCosts>();
 
   protected readonly id = `ny-nights-chart-${nextId++}`;
   protected readonly view = signal<NightsView>('savings');
   private readonly probes = viewChild<ElementRef<HTMLElement>>('probes');
-  /** Bumped when the device switches light/dark, so the colours are read again. */
-  private readonly schemeTick = signal(0);
-
-  constructor() {
-    const media = typeof matchMedia === 'function' ? matchMedia('(prefers-color-scheme: dark)') : null;
-    const bump = () => this.schemeTick.update((n) => n + 1);
-    media?.addEventListener?.('change', bump);
-    inject(DestroyRef).onDestroy(() => media?.removeEventListener?.('change', bump));
-  }
-
   /** A canvas cannot use CSS variables: the theme's colours are read from styled probes. */
-  private readonly colours = computed<Colours>(() => {
-    this.theme.choice();
-    this.schemeTick();
-    const host = this.probes()?.nativeElement;
-    if (!host || typeof getComputedStyle !== 'function') return FALLBACK;
-    const read = (name: keyof Colours) => {
-      const el = host.querySelector<HTMLElement>(`[data-colour="${name}"]`);
-      const value = el ? getComputedStyle(el).color : '';
-      return value && value !== 'rgba(0, 0, 0, 0)' ? value : FALLBACK[name];
-    };
-    return {
-      plan: read('plan'), baseline: read('baseline'), projected: read('projected'), metered: read('metered'), text: read('text'), grid: read('grid'),
-    };
-  });
+  private readonly colours = injectThemeColours<keyof Colours>(this.probes, FALLBACK);
 
   protected readonly currency = computed(() => this.month().currency);
   protected readonly nights = computed(() => this.month().nights);

@@ -36,7 +36,7 @@ interface Bar {
   selector: 'ny-charger-timeline',
   changeDetection: ChangeDetectionStrategy.OnPush,
   templateUrl: './charger-timeline.html',
-  styleUrl: './charger-timeline.scss',
+  styleUrls: ['./table-alternative.scss', './charger-timeline.scss'],
 })
 export class ChargerTimeline {
   readonly result = input.required<PlanResult>();

@@ -1,12 +1,9 @@
 import {
   ChangeDetectionStrategy,
   Component,
-  DestroyRef,
   ElementRef,
   computed,
-  inject,
   input,
-  signal,
   viewChild,
 } from '@angular/core';
 import type { PlanResult } from '@nightyard/contracts';
@@ -24,7 +21,7 @@ import {
   type ChartData,
 } from 'chart.js';
 import { BaseChartDirective, provideCharts } from 'ng2-charts';
-import { ThemeStore } from '../core/theme-store';
+import { injectThemeColours } from '../shared/theme-colours';
 import { clock, money, num } from './plan-format';
 
 type Colors = Record<'load' | 'limit' | 'price' | 'text' | 'grid', string>;
@@ -64,38 +61,16 @@ export function hourlyLoad(result: Pick<PlanResult, 'slots'>, timeZone: string) 
   ],
   changeDetection: ChangeDetectionStrategy.OnPush,
   templateUrl: './site-load-chart.html',
-  styleUrl: './site-load-chart.scss',
+  styleUrls: ['./table-alternative.scss', './site-load-chart.scss'],
 })
 export class SiteLoadChart {
-  private readonly theme = inject(ThemeStore);
-
   readonly result = input.required<PlanResult>();
   readonly timezone = input.required<string>();
   readonly currency = input('USD');
 
   private readonly probes = viewChild<ElementRef<HTMLElement>>('probes');
-  /** Bumped when the device switches light/dark, so the colours are read again. */
-  private readonly schemeTick = signal(0);
-
-  constructor() {
-    const media = typeof matchMedia === 'function' ? matchMedia('(prefers-color-scheme: dark)') : null;
-    const bump = () => this.schemeTick.update((n) => n + 1);
-    media?.addEventListener?.('change', bump);
-    inject(DestroyRef).onDestroy(() => media?.removeEventListener?.('change', bump));
-  }
-
   /** Canvas cannot use CSS variables: read the theme's colours from styled probes. */
-  private readonly colors = computed<Colors>(() => {
-    this.theme.choice();
-    this.schemeTick();
-    const host = this.probes()?.nativeElement;
-    if (!host || typeof getComputedStyle !== 'function') return FALLBACK;
-    const read = (name: keyof Colors) => {
-      const el = host.querySelector<HTMLElement>(`[data-color="${name}"]`);
-      return (el && getComputedStyle(el).color) || FALLBACK[name];
-    };
-    return { load: read('load'), limit: read('limit'), price: read('price'), text: read('text'), grid: read('grid') };
-  });
+  private readonly colors = injectThemeColours<keyof Colors>(this.probes, FALLBACK, 'data-color');
 
   protected readonly data = computed<ChartData<'bar' | 'line', number[], string>>(() => {
     const r = this.result();
