@@ -13,6 +13,7 @@ import type { JobQueue } from '../jobs/job-queue';
 import type { Mailer } from '../mail/mailer';
 import { planPublishedMail } from '../mail/templates';
 import { buildNightScenario } from './night-scenario';
+import { nightStaff } from './night-staff';
 
 type PlanRow = typeof plans.$inferSelect;
 const creator = aliasedTable(users, 'creator');
@@ -169,11 +170,7 @@ export async function publishPlan(
 
 async function notifyPublished(db: Db, mailer: Mailer, caller: AuthUser, plan: PlanRow, link: (path: string) => string) {
   const [depot] = await db.select().from(depots).where(eq(depots.id, plan.depotId));
-  const recipients = await db
-    .select({ email: users.email, name: users.name })
-    .from(users)
-    .where(and(eq(users.organisationId, plan.organisationId), eq(users.status, 'active'),
-      sql`${users.roles} && array['yard','supervisor']::text[]`));
+  const recipients = await nightStaff(db, plan.organisationId);
   const result = resultOf(plan)!;
   const scenario = plan.scenario as unknown as ScenarioInput;
   const short = result.buses.filter((b) => b.shortfallKwh > 1e-6);

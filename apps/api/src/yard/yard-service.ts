@@ -3,7 +3,7 @@ import { DateTime } from 'luxon';
 import {
   planResultSchema, type PlanResult, type Tonight, type YardReport, type YardReportResult,
 } from '@nightyard/contracts';
-import { parseScenario, replan, ReplanStateError, type Plan, type ScenarioInput } from '@nightyard/scheduling';
+import { parseScenario, replan, ReplanStateError, type Plan } from '@nightyard/scheduling';
 import type { Db } from '../db/client';
 import { chargers, depots, plans, shiftAcknowledgements, users, yardConfirmations, yardReports } from '../db/schema';
 import { DomainError, conflict, notFound } from '../http/errors';
@@ -11,6 +11,7 @@ import type { AuthUser } from '../auth/auth-user';
 import { depotOf } from '../depots/depot-access';
 import type { Mailer } from '../mail/mailer';
 import { planRevisedMail } from '../mail/templates';
+import { nightStaff } from '../plans/night-staff';
 import { comparePlans, getPlan } from '../plans/plans-service';
 import { mergeSessions, yardSteps } from './yard-steps';
 
@@ -234,8 +235,7 @@ export async function reportProblem(
 
   const { moved } = await comparePlans(db, caller, revision.id, plan.id);
   deps.onPlanPublished?.(revision.id);
-  const recipients = await db.select({ email: users.email, name: users.name }).from(users).where(and(
-    eq(users.organisationId, caller.organisationId), eq(users.status, 'active'), sql`${users.roles} && array['yard','supervisor']::text[]`));
+  const recipients = await nightStaff(db, caller.organisationId);
   let notified = 0;
   for (const r of recipients) {
     await deps.mailer.send(planRevisedMail({
