@@ -4,6 +4,7 @@ import type { Config } from './config';
 import type { Db } from './db/client';
 import type { JobQueue } from './jobs/job-queue';
 import type { Mailer } from './mail/mailer';
+import type { Clock } from './time/clock';
 
 /** What route handlers are given: the database, settings and outside services. */
 export interface AppDeps {
@@ -15,8 +16,8 @@ export interface AppDeps {
   log: Logger;
   /** Told when a plan is published or revised (the OCPP central system sends it to chargers). */
   onPlanPublished?: (planId: string) => void;
-  /** The time now (tests move it into the night they plan). */
-  clock?: () => Date;
+  /** The only source of "now" (tests and development can stand it at a fixed instant). */
+  clock: Clock;
   /** Runs a query against the database to prove it answers (for /api/health). */
   ping: () => Promise<void>;
 }

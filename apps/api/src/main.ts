@@ -10,10 +10,12 @@ import { startJobQueue } from './jobs/job-queue';
 import { runPlanJob } from './plans/plan-runner';
 import { loadSolver } from '@nightyard/scheduling';
 import { CentralSystem } from './ocpp/central-system';
+import { clockFromEnv } from './time/clock';
 import { isEmpty, seedDemo } from '../../../tools/demo/seed';
 import { DEMO_PASSWORD, demoUsers } from '../../../tools/demo/demo-depot';
 
 const config = loadConfig();
+const clock = clockFromEnv();
 const log = pino({ level: config.LOG_LEVEL, base: { service: 'nightyard-api' } });
 // Paths come from the environment or the working directory, never from this file's location,
 // so the same code runs from source (tsx) and from the bundle in dist/.
@@ -39,6 +41,7 @@ const central = new CentralSystem(db, log);
 
 const { app } = createApp({
   db,
+  clock,
   jobs,
   onPlanPublished: (planId) => void central.sendPlan(planId).catch((err) => log.error({ err }, 'profiles not sent')),
   config: { ...config, WEB_DIST: webDist },

@@ -13,6 +13,7 @@ import { hashPassword } from '../auth/secrets';
 import { smtpMailer } from '../mail/mailer';
 import { startJobQueue, type JobQueue } from '../jobs/job-queue';
 import { runPlanJob } from '../plans/plan-runner';
+import { systemClock } from '../time/clock';
 import { TEST_DATABASE_URL, TEST_FAKE_MAIL_URL, TEST_SMTP_PORT } from './test-env';
 
 export const TEST_PASSWORD = 'correct-horse-battery';
@@ -41,6 +42,7 @@ export function createTestApp(overrides: Partial<AppDeps> = {}) {
   afterAll(() => jobs.stop(), 20_000);
   const deps: AppDeps = {
     db,
+    clock: systemClock,
     jobs,
     config,
     log,

@@ -10,7 +10,7 @@ const YARD = ['yard', 'supervisor', 'admin'] as const;
 
 export function yardRoutes(api: ApiRoutes, deps: AppDeps) {
   const { db } = deps;
-  const now = () => deps.clock?.() ?? new Date();
+  const now = deps.clock;
   api.add(
     { method: 'get', path: '/depots/:depotId/tonight', summary: 'Tonight\'s published plan as yard steps, with reports so far',
       tag: 'yard', access: YARD, params: depotIdParamsSchema, response: tonightSchema },
