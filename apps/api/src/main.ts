@@ -10,12 +10,14 @@ import { startJobQueue } from './jobs/job-queue';
 import { runPlanJob } from './plans/plan-runner';
 import { loadSolver } from '@nightyard/scheduling';
 import { CentralSystem } from './ocpp/central-system';
-import { clockFromEnv } from './time/clock';
+import { adjustableClock, clockFromEnv } from './time/clock';
 import { isEmpty, seedDemo } from '../../../tools/demo/seed';
 import { DEMO_PASSWORD, demoUsers } from '../../../tools/demo/demo-depot';
 
 const config = loadConfig();
-const clock = clockFromEnv();
+// The browser tests move the clock from spec to spec; nothing else can (see dev/test-control-routes).
+const testControl = config.NODE_ENV === 'test' && process.env.NIGHTYARD_TEST_CONTROL === '1' ? adjustableClock(clockFromEnv()) : null;
+const clock = testControl?.clock ?? clockFromEnv();
 const log = pino({ level: config.LOG_LEVEL, base: { service: 'nightyard-api' } });
 // Paths come from the environment or the working directory, never from this file's location,
 // so the same code runs from source (tsx) and from the bundle in dist/.
@@ -29,7 +31,7 @@ const db = createDb(pool);
 await applyMigrations(db, migrationsDir);
 log.info({ migrationsDir }, 'migrations applied');
 if (config.SEED_DEMO === 'if-empty' && (await isEmpty(db))) {
-  await seedDemo(db);
+  await seedDemo(db, clock());
   log.info('demo data seeded');
 }
 
@@ -37,11 +39,12 @@ if (config.SEED_DEMO === 'if-empty' && (await isEmpty(db))) {
 await loadSolver();
 const jobs = await startJobQueue({ databaseUrl: config.DATABASE_URL, log, work: (id) => runPlanJob(db, log, id) });
 
-const central = new CentralSystem(db, log);
+const central = new CentralSystem(db, log, clock);
 
 const { app } = createApp({
   db,
   clock,
+  ...(testControl ? { testControl: { setClock: testControl.set } } : {}),
   jobs,
   onPlanPublished: (planId) => void central.sendPlan(planId).catch((err) => log.error({ err }, 'profiles not sent')),
   config: { ...config, WEB_DIST: webDist },

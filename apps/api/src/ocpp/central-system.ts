@@ -4,8 +4,10 @@ import type { Socket } from 'node:net';
 import { RPCServer, createRPCError } from 'ocpp-rpc';
 import type { Logger } from 'pino';
 import { planResultSchema } from '@nightyard/contracts';
+import type { Clock } from '../time/clock';
+import { nightOfDepot } from '../night/depot-night';
 import type { Db } from '../db/client';
-import { chargers, plans } from '../db/schema';
+import { chargers, depots, plans } from '../db/schema';
 import { checkPassword } from '../auth/secrets';
 import { chargingProfiles, type OcppVersion } from './charging-profiles';
 
@@ -59,7 +61,7 @@ export class CentralSystem {
   readonly server: InstanceType<typeof RPCServer>;
   private readonly connected = new Map<string, RpcClient>();
 
-  constructor(private readonly db: Db, private readonly log: Logger) {
+  constructor(private readonly db: Db, private readonly log: Logger, private readonly clock: Clock) {
     this.server = new RPCServer({ protocols: ['ocpp1.6', 'ocpp2.0.1'], strictMode: true, pingIntervalMs: 30_000 });
     this.server.auth((accept, reject, handshake) => {
       this.authenticate(handshake.identity, handshake.password)
@@ -83,9 +85,10 @@ export class CentralSystem {
   private attach(client: RpcClient) {
     const { chargerId } = client.session;
     this.connected.set(chargerId, client);
-    const now = () => new Date().toISOString();
+    // Stations set their clocks from these answers (BootNotification, Heartbeat): the API's clock.
+    const now = () => this.clock().toISOString();
     const set = (values: Partial<typeof chargers.$inferInsert>) =>
-      this.db.update(chargers).set({ ...values, liveSeenAt: new Date() }).where(eq(chargers.id, chargerId)).catch((err) => this.log.error({ err }, 'live status not stored'));
+      this.db.update(chargers).set({ ...values, liveSeenAt: this.clock() }).where(eq(chargers.id, chargerId)).catch((err) => this.log.error({ err }, 'live status not stored'));
     void set({ liveConnected: true, liveStatus: 'available' });
     this.log.info({ identity: client.identity, protocol: client.protocol }, 'charger connected');
 
@@ -152,17 +155,17 @@ export class CentralSystem {
     return sent;
   }
 
-  /** On (re)connection: the depot's newest published plan that has not ended. */
+  /** On (re)connection: tonight's published plan (the night in force, else the next one). */
   private async sendCurrentPlan(chargerId: string) {
     const [c] = await this.db.select().from(chargers).where(eq(chargers.id, chargerId));
     if (!c) return;
-    const [latest] = await this.db
+    const [depot] = await this.db.select({ id: depots.id, timezone: depots.timezone }).from(depots).where(eq(depots.id, c.depotId));
+    const { tonight } = await nightOfDepot(this.db, depot!, this.clock());
+    const [published] = await this.db
       .select()
       .from(plans)
-      .where(and(eq(plans.depotId, c.depotId), eq(plans.state, 'published')))
-      .orderBy(desc(plans.serviceDate))
-      .limit(1);
-    if (latest) await this.sendPlan(latest.id, chargerId);
+      .where(and(eq(plans.depotId, c.depotId), eq(plans.serviceDate, tonight.serviceDate), eq(plans.state, 'published')));
+    if (published) await this.sendPlan(published.id, chargerId);
   }
 
   async close(): Promise<void> {

@@ -31,7 +31,7 @@ export interface InviteSettings {
 }
 
 /** Creates an invited account (or re-sends a pending invitation) and e-mails the link. */
-export async function inviteUser(db: Db, mailer: Mailer, s: InviteSettings, caller: AuthUser, req: InviteUserRequest): Promise<User> {
+export async function inviteUser(db: Db, mailer: Mailer, s: InviteSettings, caller: AuthUser, req: InviteUserRequest, now: Date): Promise<User> {
   const [existing] = await db.select().from(users).where(eq(users.email, req.email));
   if (existing && (existing.organisationId !== caller.organisationId || existing.status !== 'invited')) {
     throw new DomainError('conflict', 'Someone already has an account with this e-mail', { email: 'Already in use' });
@@ -40,7 +40,7 @@ export async function inviteUser(db: Db, mailer: Mailer, s: InviteSettings, call
     existing
       ? (await db.update(users).set({ name: req.name, roles: req.roles }).where(eq(users.id, existing.id)).returning())[0]!
       : (await db.insert(users).values({ organisationId: caller.organisationId, email: req.email, name: req.name, roles: req.roles, status: 'invited' }).returning())[0]!;
-  const token = await createActionToken(db, user.id, 'invite', s.inviteHours * 3_600_000);
+  const token = await createActionToken(db, user.id, 'invite', s.inviteHours * 3_600_000, now);
   const [org] = await db.select({ name: organisations.name }).from(organisations).where(eq(organisations.id, caller.organisationId));
   await mailer.send(
     invitationMail({
@@ -66,7 +66,7 @@ async function activeAdminsOtherThan(db: Db, organisationId: string, userId: str
   return row?.n ?? 0;
 }
 
-export async function updateUser(db: Db, caller: AuthUser, id: string, req: UpdateUserRequest): Promise<User> {
+export async function updateUser(db: Db, caller: AuthUser, id: string, req: UpdateUserRequest, now: Date): Promise<User> {
   return db.transaction(async (tx) => {
     const [user] = await tx
       .select()
@@ -90,7 +90,7 @@ export async function updateUser(db: Db, caller: AuthUser, id: string, req: Upda
       .where(eq(users.id, id))
       .returning();
     if (status === 'deactivated') {
-      await tx.update(refreshTokens).set({ revokedAt: new Date() }).where(and(eq(refreshTokens.userId, id), isNull(refreshTokens.revokedAt)));
+      await tx.update(refreshTokens).set({ revokedAt: now }).where(and(eq(refreshTokens.userId, id), isNull(refreshTokens.revokedAt)));
     }
     return toUser(updated!);
   });
