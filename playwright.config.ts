@@ -22,6 +22,9 @@ export default defineConfig({
         '--disable-background-networking', '--disable-component-update', '--disable-sync',
       ],
     },
+    // The depot's zone, whatever the machine's: what the pages show is then the same on any machine.
+    timezoneId: 'America/Chicago',
+    locale: 'en-US',
     trace: 'off',
     screenshot: 'only-on-failure',
   },
@@ -40,6 +43,9 @@ export default defineConfig({
       SMTP_PORT: process.env.SMTP_PORT ?? '2526',
       FAKE_MAIL_URL: process.env.FAKE_MAIL_URL ?? 'http://127.0.0.1:2581',
       PUBLIC_URL: `http://localhost:${port}`,
+      // Each spec stands the clock at its own instant and seeds a district of its own (e2e/support.ts).
+      NIGHTYARD_TEST_CONTROL: '1',
+      SEED_DEMO: 'never',
     },
   }, {
     // The demo depot's chargers, simulated, so the pages show live OCPP states.
@@ -49,6 +55,6 @@ export default defineConfig({
     timeout: 60_000,
     stdout: 'ignore',
     stderr: 'pipe',
-    env: { NIGHTYARD_OCPP_URL: `ws://127.0.0.1:${port}/ocpp`, SIMULATOR_HEALTH_PORT: String(port + 1) },
+    env: { NIGHTYARD_OCPP_URL: `ws://127.0.0.1:${port}/ocpp`, SIMULATOR_HEALTH_PORT: String(port + 1), SIMULATOR_STATIONS: 'none' },
   }],
 });

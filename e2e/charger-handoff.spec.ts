@@ -1,10 +1,18 @@
 import { expect, test } from '@playwright/test';
-import { demo, expectAccessible, signInAs } from './support';
+import { AT, districtAt, expectAccessible, pageAtApiTime, signInAs, type District } from './support';
 
-// The browser tests run the station simulator for the demo depot's ten chargers (see
-// playwright.config.ts): they connect over OCPP-J and report their state.
+// The charger simulator (see playwright.config.ts) takes this file's district's ten chargers: they
+// connect over OCPP-J, set their clocks from the API's answers and report their state. Just after midnight on a Wednesday.
+let district: District;
+test.beforeAll(async () => {
+  district = await districtAt(AT.wednesdayAfterMidnight, { stations: true });
+});
+test.beforeEach(async ({ page }) => {
+  await pageAtApiTime(page);
+});
+
 test('the Depot shows the live state each charger reports over OCPP', async ({ page }) => {
-  await signInAs(page, demo('facilities'));
+  await signInAs(page, district.emails.facilities);
   await page.goto('/depot');
   await expect(page.getByRole('heading', { level: 1, name: 'Depot' })).toBeVisible();
   // Every simulated charger reports; reload until all ten have been seen.
@@ -12,16 +20,20 @@ test('the Depot shows the live state each charger reports over OCPP', async ({ p
     await page.reload();
     await expect(page.getByText(/Reports (available|charging|faulted)/)).toHaveCount(10, { timeout: 2000 });
   }).toPass({ timeout: 30_000 });
+  // 00:02 is inside Tuesday's published night: chargers draw power as the profiles say, which
+  // they can only do if their clocks are the API's.
+  await expect(async () => {
+    await page.reload();
+    await expect(page.getByText(/Reports charging/).first()).toBeVisible({ timeout: 2000 });
+  }).toPass({ timeout: 40_000 });
   await expectAccessible(page);
 });
 
 test('the published plan downloads as OCPP charging profiles', async ({ page }) => {
-  await signInAs(page, demo('supervisor'));
-  // The demo's published night: the latest school day up to today at the depot.
-  const day = new Date(new Date().toLocaleString('en-US', { timeZone: 'America/Chicago' }));
-  while (day.getDay() === 0 || day.getDay() === 6) day.setDate(day.getDate() - 1);
-  const iso = `${day.getFullYear()}-${String(day.getMonth() + 1).padStart(2, '0')}-${String(day.getDate()).padStart(2, '0')}`;
-  await page.goto(`/plans?date=${iso}`);
+  await signInAs(page, district.emails.supervisor);
+  // Tuesday's night, in force now.
+  expect(district.publishedNights[0]).toBe('2026-12-08');
+  await page.goto(`/plans?date=${district.publishedNights[0]}`);
   await expect(page.getByText(/Published/).first()).toBeVisible();
   const download = page.waitForEvent('download');
   await page.getByRole('button', { name: /OCPP 1\.6/ }).first().click();

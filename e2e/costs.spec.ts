@@ -1,28 +1,26 @@
 import fs from 'node:fs';
 import path from 'node:path';
 import { expect, test, type Page } from '@playwright/test';
-import { demo, expectAccessible, signInAs } from './support';
+import { AT, districtAt, expectAccessible, pageAtApiTime, signInAs, type District } from './support';
 
-// Costs (issue 7): a finance user opens the billing period, sees the savings against unmanaged
-// charging and the diesel and CO2 avoided, exports the nights as CSV, tries a meter file for
-// another period, and opens a night's cost per bus. The e2e database is shared by every spec of a
-// run and not reset: nothing here depends on exact totals.
+// Costs: a finance user opens the billing period, sees the savings against unmanaged charging and
+// the diesel and CO2 avoided, exports the nights as CSV, tries a meter file for another period,
+// imports one for this period, and opens a night's cost per bus. A district of this file's own on a
+// Wednesday afternoon in December 2026 (the depot bills from the 1st).
 
-const ZONE = 'America/Chicago';
-/** Invented Green Button CSV for the evening of 2026-12-02 at the demo depot. */
+/** Invented Green Button CSV for the evening of 2026-12-02 at the demo depot: in the period, before now. */
 const FIXTURE = path.resolve('apps/api/src/costs/fixtures/green-button-evening.csv');
 const FIXTURE_DAY = '2026-12-02';
+/** The same readings 40 days earlier: in November's billing period. */
+const EARLIER_DAY = '2026-10-23';
 
-/** Today at the depot, YYYY-MM-DD. */
-function today(): string {
-  return new Intl.DateTimeFormat('en-CA', { timeZone: ZONE, year: 'numeric', month: '2-digit', day: '2-digit' }).format(new Date());
-}
-
-function addDays(iso: string, days: number): string {
-  const d = new Date(`${iso}T12:00:00Z`);
-  d.setUTCDate(d.getUTCDate() + days);
-  return d.toISOString().slice(0, 10);
-}
+let district: District;
+test.beforeAll(async () => {
+  district = await districtAt(AT.weekdayAfternoon);
+});
+test.beforeEach(async ({ page }) => {
+  await pageAtApiTime(page);
+});
 
 function cardValue(page: Page, label: string) {
   return page
@@ -37,7 +35,7 @@ const amount = (text: string | null) => Number((text ?? '').replace(/[^0-9.-]/g,
 
 test('finance opens the month, sees the savings, exports the nights and reads a night per bus', async ({ page }) => {
   test.setTimeout(120_000);
-  await signInAs(page, demo('finance'));
+  await signInAs(page, district.emails.finance)
 
   await test.step('the billing period at a glance', async () => {
     await expect(page).toHaveURL(/\/costs$/);
@@ -78,9 +76,7 @@ test('finance opens the month, sees the savings, exports the nights and reads a 
   await test.step('a meter file for another billing period is refused and nothing changes', async () => {
     const projected = await cardValue(page, 'Projected bill for the period').textContent();
     const toDate = await cardValue(page, 'Month to date').textContent();
-    // The fixture moved 40 days back: always in an earlier billing period than today's.
-    const earlier = addDays(today(), -40);
-    const csv = fs.readFileSync(FIXTURE, 'utf8').replaceAll(FIXTURE_DAY, earlier);
+    const csv = fs.readFileSync(FIXTURE, 'utf8').replaceAll(FIXTURE_DAY, EARLIER_DAY);
     await page.getByLabel('Meter data file (Green Button XML or CSV)').setInputFiles({
       name: 'green-button-earlier.csv', mimeType: 'text/csv', buffer: Buffer.from(csv),
     });
@@ -92,17 +88,14 @@ test('finance opens the month, sees the savings, exports the nights and reads a 
     await expectAccessible(page);
   });
 
-  // The demo depot bills from the 1st: the fixture's own day is in the period shown only in its month.
-  if (today().slice(0, 7) === FIXTURE_DAY.slice(0, 7)) {
-    await test.step('the fixture for this billing period is imported with its gaps and duplicates reported', async () => {
-      await page.getByLabel('Meter data file (Green Button XML or CSV)').setInputFiles(FIXTURE);
-      await expect(page.getByText(/green-button-evening\.csv imported: 8 intervals of 15 minutes \(Green Button CSV\)/)).toBeVisible();
-      await expect(page.getByText('No duplicate readings.')).toBeVisible();
-      await expect(page.getByText('No gaps in the readings.')).toBeVisible();
-      await expect(page.getByText(/Peaks so far in the billing period now: facility \d/)).toBeVisible();
-      await expectAccessible(page);
-    });
-  }
+  await test.step('the fixture for this billing period is imported with its gaps and duplicates reported', async () => {
+    await page.getByLabel('Meter data file (Green Button XML or CSV)').setInputFiles(FIXTURE);
+    await expect(page.getByText(/green-button-evening\.csv imported: 8 intervals of 15 minutes \(Green Button CSV\)/)).toBeVisible();
+    await expect(page.getByText('No duplicate readings.')).toBeVisible();
+    await expect(page.getByText('No gaps in the readings.')).toBeVisible();
+    await expect(page.getByText(/Peaks so far in the billing period now: facility \d/)).toBeVisible();
+    await expectAccessible(page);
+  });
 
   await test.step("a night's cost per bus and per mile", async () => {
     await page.getByRole('region', { name: 'Nights of the billing period' }).getByRole('link').first().click();
@@ -124,7 +117,7 @@ test('finance opens the month, sees the savings, exports the nights and reads a 
 });
 
 test('a supervisor reads the costs without the meter data upload', async ({ page }) => {
-  await signInAs(page, demo('supervisor'));
+  await signInAs(page, district.emails.supervisor);
   await page.getByRole('navigation', { name: 'Sections' }).getByRole('link', { name: 'Costs' }).click();
   await expect(page.getByRole('heading', { level: 1, name: 'Costs' })).toBeVisible();
   await expect(cardValue(page, 'Savings against unmanaged charging')).toHaveText(/\$[\d,]+\.\d\d/);

@@ -1,9 +1,9 @@
 import path from 'node:path';
 import { expect, test, type Page } from '@playwright/test';
-import { demo, expectAccessible, signInAs } from './support';
+import { AT, districtAt, expectAccessible, pageAtApiTime, signInAs } from './support';
 
-// Depot and Rates (issue 4): a facilities manager sets the depot up, a finance user reads it.
-// The e2e database is shared by every spec of a run and not reset, so names carry a suffix of their own.
+// Depot and Rates: a facilities manager sets the depot up, a finance user reads it, in a district of
+// the test's own on a weekday afternoon.
 const URDB_FILE = path.resolve('apps/api/src/rates/fixtures/urdb-summer-winter-evening-peak.json');
 
 async function openSection(page: Page, name: string): Promise<void> {
@@ -33,12 +33,13 @@ async function previewSummerWeekday(page: Page): Promise<void> {
 
 test('facilities adds a charger to a cabinet and imports a URDB rate; finance reads both', async ({ page }) => {
   test.setTimeout(120_000);
-  const run = Date.now().toString(36).slice(-6);
-  const charger = `D3-${run}`;
-  const planName = `Prairie Wind evening peak ${run}`;
+  const district = await districtAt(AT.weekdayAfternoon);
+  await pageAtApiTime(page);
+  const charger = 'D3';
+  const planName = 'Prairie Wind evening peak';
 
   await test.step('facilities adds a charger to Cabinet A', async () => {
-    await signInAs(page, demo('facilities'));
+    await signInAs(page, district.emails.facilities);
     await openSection(page, 'Depot');
     await expect(page.getByText('Orchard Lane Depot').first()).toBeVisible();
     await expect(page.getByRole('cell', { name: 'D1', exact: true })).toBeVisible();
@@ -91,7 +92,7 @@ test('facilities adds a charger to a cabinet and imports a URDB rate; finance re
     await page.getByRole('button', { name: 'Account menu' }).click();
     await page.getByRole('menuitem', { name: 'Sign out' }).click();
     await expect(page).toHaveURL(/\/sign-in/);
-    await signInAs(page, demo('finance'));
+    await signInAs(page, district.emails.finance);
 
     await openSection(page, 'Depot');
     await expect(page.getByRole('cell', { name: charger, exact: true })).toBeVisible();

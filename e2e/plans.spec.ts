@@ -1,22 +1,11 @@
 import { expect, test, type Page } from '@playwright/test';
-import { demo, expectAccessible, latestMailTo, signInAs } from './support';
+import { AT, districtAt, expectAccessible, latestMailTo, pageAtApiTime, signInAs, type District } from './support';
 
-// A fleet supervisor uploads a day's runs, generates the night's plan, reviews it and publishes it.
-// The demo depot (Orchard Lane, America/Chicago) has runs on weekdays from yesterday to a week ahead.
-// The e2e database is shared by every test file of a run: this file is the only one that writes runs
-// or plans, and it uses a night no other test reads (the next weekday at least two days ahead).
+// A fleet supervisor uploads a day's runs, generates the night's plan, reviews it and publishes it;
+// and, just after midnight, plans a night already under way. Each test seeds a district of its own
+// at a fixed instant (the demo depot, Orchard Lane, is in America/Chicago).
 
-const ZONE = 'America/Chicago';
 const COLUMNS = 'bus,pull_out,pull_in,miles,kwh,arrival_soc_pct';
-
-/** The first weekday (Mon-Fri) at least `ahead` days after today at the depot, as YYYY-MM-DD. */
-function weekdayAhead(ahead: number): string {
-  const today = new Intl.DateTimeFormat('en-CA', { timeZone: ZONE, year: 'numeric', month: '2-digit', day: '2-digit' }).format(new Date());
-  const day = new Date(`${today}T12:00:00Z`);
-  day.setUTCDate(day.getUTCDate() + ahead);
-  while (day.getUTCDay() === 0 || day.getUTCDay() === 6) day.setUTCDate(day.getUTCDate() + 1);
-  return day.toISOString().slice(0, 10);
-}
 
 /**
  * The day's runs for the 24 demo buses (201-224): a morning and an afternoon run each. Buses 203 and
@@ -42,9 +31,13 @@ async function uploadCsv(page: Page, name: string, csv: string): Promise<void> {
 
 test('a supervisor uploads the runs, generates the night, reviews the short buses and publishes', async ({ page }) => {
   test.setTimeout(180_000);
-  const night = weekdayAhead(2);
+  // Wednesday afternoon; the night planned is next Monday's (its runs end on Tuesday morning), which
+  // has no plan yet: the seed published only tonight's and tomorrow night's.
+  const district: District = await districtAt(AT.weekdayAfternoon);
+  const night = '2026-12-14';
+  await pageAtApiTime(page);
 
-  await signInAs(page, demo('supervisor'));
+  await signInAs(page, district.emails.supervisor);
   await page.getByRole('navigation', { name: 'Sections' }).getByRole('link', { name: 'Fleet' }).click();
   await expect(page.getByRole('heading', { level: 1, name: 'Fleet' })).toBeVisible();
   await expect(page.getByRole('cell', { name: '224', exact: true })).toBeVisible();
@@ -119,7 +112,7 @@ test('a supervisor uploads the runs, generates the night, reviews the short buse
   await expect(page.getByRole('button', { name: 'Publish', exact: true })).toHaveCount(0);
   await expect(page.getByText('This plan is published and never changes.')).toBeVisible();
 
-  const mail = await latestMailTo('yard@demo.nightyard.example');
+  const mail = await latestMailTo(district.emails.yard);
   expect(mail.subject).toContain('Charging plan published');
   expect(mail.subject).toContain('Orchard Lane Depot');
   expect(mail.text).toContain('203');
@@ -129,4 +122,24 @@ test('a supervisor uploads the runs, generates the night, reviews the short buse
   await page.goto(new URL(link).pathname);
   await expect(page).toHaveURL(new RegExp(`date=${night}`));
   await expect(page.getByRole('heading', { level: 2, name: /^Version 1 Published/ })).toBeVisible();
+});
+
+test('just after midnight the supervisor plans the night under way: it starts now and the review says so', async ({ page }) => {
+  test.setTimeout(120_000);
+  // Wednesday 00:02: Tuesday's night is under way, published before it began and followed by the yard since.
+  const district = await districtAt(AT.wednesdayAfterMidnight);
+  await pageAtApiTime(page);
+  await signInAs(page, district.emails.supervisor);
+  await expect(page).toHaveURL(/\/plans/);
+  // The default night is the one in progress, not the coming evening's.
+  await expect(page.getByLabel('Night of')).toHaveValue('2026-12-08');
+  await expect(page.getByRole('heading', { level: 2, name: /^Version 1 Published/ })).toBeVisible();
+
+  await page.getByRole('button', { name: 'Generate plan' }).click();
+  await expect(page.getByRole('heading', { level: 2, name: /^Version 2 Draft/ })).toBeVisible();
+  await expect(page.getByRole('heading', { name: 'Charger timeline' })).toBeVisible({ timeout: 90_000 });
+  const note = page.getByRole('note', { name: 'Planned from' });
+  await expect(note).toContainText(/it plans from 00:\d\d on/);
+  await expect(note).toContainText('nothing is placed in the past');
+  await expectAccessible(page);
 });

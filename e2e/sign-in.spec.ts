@@ -1,8 +1,18 @@
+import { randomUUID } from 'node:crypto';
 import { expect, test } from '@playwright/test';
-import { demo, expectAccessible, latestMailTo, signIn, signInAs } from './support';
+import { AT, districtAt, expectAccessible, latestMailTo, pageAtApiTime, signIn, signInAs, type District } from './support';
+
+// A weekday afternoon at a demo district of this file's own.
+let district: District;
+test.beforeAll(async () => {
+  district = await districtAt(AT.weekdayAfternoon);
+});
+test.beforeEach(async ({ page }) => {
+  await pageAtApiTime(page);
+});
 
 // Where each demo account starts its day (libs/contracts sections.ts: homeSection).
-const HOMES: [string, string, string][] = [
+const HOMES: [keyof District['emails'], string, string][] = [
   ['admin', '/tonight', 'Tonight'],
   ['facilities', '/depot', 'Depot'],
   ['supervisor', '/plans', 'Plans'],
@@ -19,7 +29,7 @@ test('the sign-in page is accessible', async ({ page }) => {
 
 for (const [role, path, heading] of HOMES) {
   test(`${role} signs in and lands on ${heading}`, async ({ page }) => {
-    await signIn(page, demo(role));
+    await signIn(page, district.emails[role]);
     await expect(page).toHaveURL(new RegExp(`${path}$`));
     await expect(page.getByRole('heading', { level: 1, name: heading })).toBeVisible();
     await expect(page.getByText('Orchard Lane Depot').first()).toBeVisible();
@@ -28,7 +38,7 @@ for (const [role, path, heading] of HOMES) {
 }
 
 test('a wrong password shows an error and stays on sign-in', async ({ page }) => {
-  await signIn(page, demo('finance'), 'not-the-password');
+  await signIn(page, district.emails.finance, 'not-the-password');
   await expect(page.getByText('E-mail or password is not right')).toBeVisible();
   await expect(page).toHaveURL(/\/sign-in/);
 });
@@ -41,7 +51,7 @@ test('inline validation explains what to fix before sending', async ({ page }) =
 });
 
 test('a yard user does not see People and cannot open it', async ({ page }) => {
-  await signIn(page, demo('yard'));
+  await signIn(page, district.emails.yard);
   await expect(page).toHaveURL(/\/yard$/);
   const nav = page.getByRole('navigation', { name: 'Sections' });
   await expect(nav.getByRole('link', { name: 'Yard' })).toBeVisible();
@@ -52,8 +62,8 @@ test('a yard user does not see People and cannot open it', async ({ page }) => {
 });
 
 test('an invitation e-mail arrives and its link sets a password that then signs in', async ({ page }) => {
-  const email = `new.yard.${Date.now()}@demo.nightyard.example`;
-  await signIn(page, demo('admin'));
+  const email = `new.yard.${randomUUID().slice(0, 8)}@${district.tag}.demo.nightyard.example`;
+  await signIn(page, district.emails.admin);
   await page.getByRole('navigation', { name: 'Sections' }).getByRole('link', { name: 'People' }).click();
   await expect(page.getByRole('heading', { level: 1, name: 'People' })).toBeVisible();
   await expectAccessible(page);
@@ -85,7 +95,7 @@ test('an invitation e-mail arrives and its link sets a password that then signs 
 });
 
 test('the outbox shows what the fake mail server caught', async ({ page }) => {
-  await signInAs(page, demo('admin'));
+  await signInAs(page, district.emails.admin);
   await page.goto('/people/outbox');
   await expect(page.getByRole('heading', { level: 1, name: 'Outbox' })).toBeVisible();
   await expectAccessible(page);

@@ -1,9 +1,76 @@
+import { randomUUID } from 'node:crypto';
 import AxeBuilder from '@axe-core/playwright';
 import { expect, type Page } from '@playwright/test';
 
 export const DEMO_PASSWORD = 'nightyard-demo';
-export const demo = (role: string) => `${role}@demo.nightyard.example`;
 const FAKE_MAIL_URL = process.env.FAKE_MAIL_URL ?? 'http://127.0.0.1:2581';
+const PORT = Number(process.env.E2E_PORT ?? 3100);
+const API = `http://127.0.0.1:${PORT}`;
+const SIMULATOR = `http://127.0.0.1:${PORT + 1}`;
+
+/**
+ * The instants the browser journeys stand at (the depot is in America/Chicago). Tests never run at
+ * whatever time the machine has: the API, the charger simulator and the page all follow these.
+ */
+export const AT = {
+  /** Wednesday afternoon: the buses are out on their afternoon runs; tonight is Wednesday's. */
+  weekdayAfternoon: '2026-12-09T15:00:00-06:00',
+  /** Just after midnight on a Wednesday: Tuesday's night is under way. */
+  wednesdayAfterMidnight: '2026-12-09T00:02:00-06:00',
+  /** Friday night: the night runs to Monday's pull-outs. */
+  fridayNight: '2026-12-11T22:00:00-06:00',
+  /** Autumn clock change, the first 01:30 (still CDT): a 25-hour Sunday inside Friday's night. */
+  autumnClockChange: '2026-11-01T01:30:00-05:00',
+  /** Spring clock change, 03:30 CDT just after the missing hour. */
+  springClockChange: '2027-03-14T03:30:00-05:00',
+} as const;
+
+/** A demo district of a test's own: its people's sign-ins, depot and charger identities. */
+export interface District {
+  tag: string;
+  organisationId: string;
+  depotId: string;
+  emails: Record<'admin' | 'facilities' | 'supervisor' | 'yard' | 'finance' | 'lead', string>;
+  chargerIdentities: Record<string, string>;
+  publishedNights: string[];
+  /** The API's time when the district was ready (ISO). */
+  now: string;
+}
+
+async function post(url: string, body: unknown): Promise<Response> {
+  const res = await fetch(url, { method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify(body) });
+  if (!res.ok) throw new Error(`${url} answered ${res.status}: ${await res.text()}`);
+  return res;
+}
+
+/**
+ * Stands the API's clock at `at` and seeds a fresh demo district there (the night in progress and
+ * the next one published). With `stations`, the charger simulator swaps to this district's chargers;
+ * they set their clocks from the API's answers, as OCPP stations do.
+ */
+export async function districtAt(at: string, options: { stations?: boolean } = {}): Promise<District> {
+  await post(`${API}/api/testing/clock`, { at });
+  const tag = `e2e-${randomUUID().slice(0, 8)}`;
+  const district = (await (await post(`${API}/api/testing/demo`, { tag })).json()) as Omit<District, 'tag'>;
+  if (options.stations) {
+    const res = await fetch(`${SIMULATOR}/stations?tag=${tag}`, { method: 'PUT' });
+    if (!res.ok) throw new Error(`The charger simulator answered ${res.status}`);
+  }
+  return { ...district, tag };
+}
+
+/** The API's time now (its clock runs on from the instant a test stood it at). */
+export async function apiNow(): Promise<Date> {
+  const res = await fetch(`${API}/api/health`);
+  return new Date(Number(res.headers.get('x-server-time')));
+}
+
+/** Puts the page's clock (Playwright's) at the API's time, so page and server agree. */
+export async function pageAtApiTime(page: Page): Promise<Date> {
+  const now = await apiNow();
+  await page.clock.install({ time: now });
+  return now;
+}
 
 export async function signIn(page: Page, email: string, password = DEMO_PASSWORD): Promise<void> {
   await page.goto('/sign-in');

@@ -1,9 +1,9 @@
 import { expect, test, type Locator, type Page } from '@playwright/test';
-import { demo, expectAccessible, signInAs } from './support';
+import { AT, apiNow, districtAt, expectAccessible, pageAtApiTime, signInAs } from './support';
 
-// Night yard staff on a phone: the demo depot (Orchard Lane) has a published plan for the current
-// night, or (by day) for the night ahead. The e2e database is shared by the run's test files and not
-// reset between them, so nothing here assumes a plan version or which steps are already done.
+// Night yard staff on a phone, at fixed instants of the demo depot's week (America/Chicago): each
+// test seeds a district of its own whose night in progress was published and followed by the crew
+// until ten minutes before.
 
 test.use({ viewport: { width: 390, height: 844 } });
 
@@ -13,35 +13,38 @@ function parseKey(key: string) {
   return { action, bus, charger, start: Date.parse(start) };
 }
 
-/** A charger in service with a plug-in that starts at least 20 minutes from now. */
+/** A charger in service with a plug-in that starts at least 20 minutes after the API's now. */
 async function chargerWithLaterSession(page: Page): Promise<{ charger: string; bus: string; start: number }> {
   const keys = await page
     .locator('ny-charger-card:not(.out) li[data-step^="connect|"]')
     .evaluateAll((items) => items.map((li) => li.getAttribute('data-step') ?? ''));
-  const later = keys.map(parseKey).filter((k) => k.start > Date.now() + 20 * 60_000);
-  test.skip(later.length === 0, 'No plug-in is left later tonight (the night is nearly over).');
+  const now = (await apiNow()).getTime();
+  const later = keys.map(parseKey).filter((k) => k.start > now + 20 * 60_000);
+  expect(later.length, 'plug-ins later tonight').toBeGreaterThan(0);
   return later[0]!;
 }
 
 const card = (page: Page, charger: string): Locator => page.locator(`ny-charger-card[data-charger="${charger}"]`);
 
 test('a yard user sees the next step, confirms it, reports a charger out of service and sees the revised timeline', async ({ page }) => {
-  await signInAs(page, demo('yard'));
+  // Wednesday 00:02: Tuesday's night is under way, with plug-ins still to come until dawn.
+  const district = await districtAt(AT.wednesdayAfterMidnight);
+  await pageAtApiTime(page);
+  await signInAs(page, district.emails.yard);
   await expect(page).toHaveURL(/\/yard$/);
   await expect(page.getByRole('heading', { level: 1, name: 'Yard' })).toBeVisible();
 
-  // The cautions at the start of the shift (once per shift: an earlier test of the run may have
-  // acknowledged them already, then they are one tap away).
+  // The cautions at the start of the shift, before any step.
   const main = page.getByRole('main');
   const start = page.getByRole('button', { name: 'I have read the cautions: start my shift' });
-  const reminder = main.getByText('High-voltage cautions (acknowledged for this shift)');
-  await expect(start.or(reminder)).toBeVisible();
-  if (await reminder.isVisible()) await reminder.click();
+  await expect(start).toBeVisible();
   await expect(main.getByText('Only trained and authorised staff connect or disconnect chargers.')).toBeVisible();
   await expect(main.getByText(/NFPA 70 \/ NEC Article 625, NFPA 70E, OSHA/)).toBeVisible();
   await expect(main.getByText('The plan is advisory: the people on site decide.')).toBeVisible();
   await expectAccessible(page);
-  if (await start.isVisible()) await start.click();
+  await start.click();
+  // The night in progress, live: the clock of the page is the depot's, just after midnight.
+  await expect(page.getByRole('region', { name: 'Plan status' })).toContainText(/Now 00:0\d/);
 
   // The next step on a charger, in words, with its caution, and a big Confirm button.
   const next = page.getByRole('region', { name: /^Next step on charger / }).first();
@@ -70,21 +73,6 @@ test('a yard user sees the next step, confirms it, reports a charger out of serv
   expect(dropped).toBe(true);
   await page.unroute('**/api/yard/confirmations');
   await expect(card(page, chargerOfStep).locator('.next .sentence')).not.toHaveText(sentence);
-
-  // By day the plan shown is the night ahead: the API re-plans only once the night has started, and
-  // the yard is told so (nothing changes). At night the report re-plans the rest of the night.
-  const upcoming = await page.getByText(/The night starts /).isVisible();
-  if (upcoming) {
-    await page.getByRole('button', { name: 'Report a problem', exact: true }).click();
-    const early = page.getByRole('dialog', { name: 'Report a problem' });
-    await early.getByRole('combobox', { name: 'Charger' }).click();
-    await page.getByRole('option').first().click();
-    await early.getByLabel('What is wrong with the charger').fill('Connector latch broken (e2e)');
-    await early.getByRole('button', { name: 'Send report' }).click();
-    await expect(early.getByText(/The night has not started yet/)).toBeVisible({ timeout: 15_000 });
-    await expect(early.getByText('Nothing was changed.')).toBeVisible();
-    test.skip(true, 'The plan shown has not started yet (daytime): the night\'s re-planning is checked at night.');
-  }
 
   // Report a charger out of service that still has a plug-in later tonight.
   const target = await chargerWithLaterSession(page);
@@ -119,21 +107,21 @@ test('a yard user sees the next step, confirms it, reports a charger out of serv
   const starts = await revised
     .locator('.bar[data-start]')
     .evaluateAll((bars) => bars.map((b) => Date.parse(b.getAttribute('data-start') ?? '')));
-  expect(starts.filter((s) => s > Date.now())).toEqual([]);
+  const after = (await apiNow()).getTime();
+  expect(starts.filter((s) => s > after)).toEqual([]);
   await expect(revised.locator('li[data-step^="connect|"][data-state="upcoming"]')).toHaveCount(0);
   await expect(page.getByRole('heading', { name: 'Reported tonight' })).toBeVisible();
 
   await expectAccessible(page);
 });
 
-test('a print of the run sheets shows only the sheets, with the cautions and an initials column', async ({ page }) => {
-  await signInAs(page, demo('yard'));
+test('a print of the run sheets on a Friday night shows only the sheets, with the cautions and an initials column', async ({ page }) => {
+  const district = await districtAt(AT.fridayNight);
+  await pageAtApiTime(page);
+  await signInAs(page, district.emails.yard);
   await expect(page).toHaveURL(/\/yard$/);
-  const start = page.getByRole('button', { name: 'I have read the cautions: start my shift' });
-  const print = page.getByRole('button', { name: 'Print run sheets' });
-  await expect(start.or(print)).toBeVisible();
-  if (await start.isVisible()) await start.click();
-  await expect(print).toBeVisible();
+  await page.getByRole('button', { name: 'I have read the cautions: start my shift' }).click();
+  await expect(page.getByRole('button', { name: 'Print run sheets' })).toBeVisible();
   await page.emulateMedia({ media: 'print' });
   const sheets = page.locator('.ny-run-sheets');
   await expect(sheets).toBeVisible();
@@ -142,3 +130,21 @@ test('a print of the run sheets shows only the sheets, with the cautions and an 
   await expect(sheets.getByText('Only trained and authorised staff connect or disconnect chargers.').first()).toBeVisible();
   await expect(page.getByRole('heading', { level: 1, name: 'Yard' })).toBeHidden();
 });
+
+for (const [name, at, clock] of [
+  ['the autumn clock change (the first 01:30)', AT.autumnClockChange, /Now 01:3\d/],
+  ['the spring clock change (03:30, after the missing hour)', AT.springClockChange, /Now 03:3\d/],
+] as const) {
+  test(`at ${name} the yard shows Friday's night in progress, charger by charger`, async ({ page }) => {
+    const district = await districtAt(at);
+    expect(district.publishedNights[0]).toMatch(/^(2026-10-30|2027-03-12)$/);
+    await pageAtApiTime(page);
+    await signInAs(page, district.emails.yard);
+    await page.getByRole('button', { name: 'I have read the cautions: start my shift' }).click();
+    const status = page.getByRole('region', { name: 'Plan status' });
+    await expect(status).toContainText(clock);
+    await expect(status).toContainText('Plan version 1');
+    await expect(page.locator('ny-charger-card')).toHaveCount(10);
+    await expectAccessible(page);
+  });
+}

@@ -62,6 +62,11 @@ export const planDetailSchema = planSummarySchema.extend({
   result: planResultSchema.nullable(),
   /** Bus number -> battery size, to show states of charge. */
   busCapacityKwh: z.record(z.string(), z.number()),
+  /**
+   * Set when the plan was made while its night was under way: the local time (YYYY-MM-DDTHH:mm)
+   * it plans from. Before it, the night stands as the published plan said (see the notes).
+   */
+  plannedFrom: z.string().nullable().default(null),
 });
 export type PlanDetail = z.infer<typeof planDetailSchema>;
 

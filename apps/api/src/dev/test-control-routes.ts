@@ -28,7 +28,8 @@ export function testControlRouter(db: Db, clock: Clock, control: TestControl): R
   router.post('/demo', async (req, res) => {
     const body = demoBody.safeParse(req.body);
     if (!body.success) throw new DomainError('validation_failed', 'Send { "tag": "..." }: lower-case letters, digits and dashes');
-    res.status(201).json(await seedDemo(db, clock(), body.data.tag));
+    const seeded = await seedDemo(db, clock(), body.data.tag);
+    res.status(201).json({ ...seeded, now: clock().toISOString() });
   });
   return router;
 }

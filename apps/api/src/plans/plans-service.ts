@@ -139,6 +139,7 @@ export async function getPlan(db: Db, caller: AuthUser, id: string): Promise<Pla
     notes: plan.notes,
     result: resultOf(plan),
     busCapacityKwh: Object.fromEntries(scenario.buses.map((b) => [b.id, b.usableKwh])),
+    plannedFrom: plan.replanState?.from ?? null,
   };
 }
 

@@ -66,6 +66,7 @@ export function planDetail(overrides: Partial<PlanDetail> = {}): PlanDetail {
     notes: ['Bus 205: no state of charge was entered for its 16:30 pull-in; 40 % is estimated from miles.'],
     result: planResult(),
     busCapacityKwh: { '201': 196, '203': 196, '205': 155 },
+    plannedFrom: null,
     ...overrides,
   };
 }

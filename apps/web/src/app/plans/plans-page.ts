@@ -372,6 +372,6 @@ export class PlansPage {
 
 /** The summary part of a plan in full (the list keeps summaries). */
 function toSummary(d: PlanDetail): PlanSummary {
-  const { timezone: _t, currency: _c, notes: _n, result: _r, busCapacityKwh: _b, ...summary } = d;
+  const { timezone: _t, currency: _c, notes: _n, result: _r, busCapacityKwh: _b, plannedFrom: _f, ...summary } = d;
   return summary;
 }

@@ -55,6 +55,7 @@ export function plan(overrides: Partial<PlanDetail> = {}): PlanDetail {
     currency: 'USD',
     notes: [],
     busCapacityKwh: { '201': 200, '202': 200, '203': 200 },
+    plannedFrom: null,
     result: {
       status: 'optimal',
       cost: { energy: 100, demand: 20, total: 120 },
