@@ -69,6 +69,11 @@ export function createApp(deps: AppDeps): BuiltApp {
   );
 
   const router = express.Router();
+  // API answers carry tokens and organisation data: no browser or proxy may keep them.
+  router.use((_req, res, next) => {
+    res.setHeader('Cache-Control', 'no-store');
+    next();
+  });
   // Interval-data files arrive as JSON strings; everything else is small.
   router.use('/depots/:depotId/meter-data', express.json({ limit: '25mb', strict: true }));
   router.use(express.json({ limit: '1mb', strict: true }));
@@ -83,7 +88,7 @@ export function createApp(deps: AppDeps): BuiltApp {
       try {
         await deps.ping();
       } catch {
-        res.status(503).json({ error: { code: 'internal', message: 'The database does not answer' } });
+        res.status(503).json({ error: { code: 'unavailable', message: 'The database does not answer' } });
         return;
       }
       return { status: 'ok' as const };
