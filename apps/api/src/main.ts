@@ -8,7 +8,7 @@ import { createDb, createPool } from './db/client';
 import { applyMigrations } from './db/migrate';
 import { smtpMailer } from './mail/mailer';
 import { startJobQueue } from './jobs/job-queue';
-import { runPlanJob } from './plans/plan-runner';
+import { recoverInterruptedPlans, runPlanJob } from './plans/plan-runner';
 import { loadSolver } from '@nightyard/scheduling';
 import { CentralSystem } from './ocpp/central-system';
 import { clockFromEnv } from './time/clock';
@@ -38,7 +38,12 @@ if (wantsDemoSeed(config) && (await isEmpty(db))) {
 
 // The engine's solver loads once and is warmed before the first plan is asked for.
 await loadSolver();
-const jobs = await startJobQueue({ databaseUrl: config.DATABASE_URL, log, work: (id) => runPlanJob(db, log, id) });
+const jobs = await startJobQueue({
+  databaseUrl: config.DATABASE_URL,
+  log,
+  work: (id) => runPlanJob(db, log, id),
+  recover: (queue) => recoverInterruptedPlans(db, log, queue),
+});
 
 const central = new CentralSystem(db, log, clock);
 
