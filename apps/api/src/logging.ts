@@ -14,6 +14,8 @@ export function scrubError(err: unknown, depth = 0): unknown {
     out[key] = e[key];
   }
   if (typeof e.message === 'string') out.message = e.message.replace(/\nparams: [\s\S]*$/, '\nparams: [redacted]');
+  // PostgreSQL's detail repeats the offending key's value ("Key (token_hash)=(...) already exists").
+  if (typeof e.detail === 'string') out.detail = e.detail.replace(/\)=\(.*\)/s, ')=([redacted])');
   if (typeof e.stack === 'string') out.stack = e.stack.replace(/\nparams: [\s\S]*?(\n\s+at |$)/, '\nparams: [redacted]$1');
   if (e.cause !== undefined) out.cause = scrubError(e.cause, depth + 1);
   return out;

@@ -145,7 +145,8 @@ export class CentralSystem {
     // after the peer left) would otherwise be thrown as unhandled 'error' events.
     socket.on('error', (err) => this.log.debug({ err }, 'charger socket error'));
     try {
-      const identity = decodeURIComponent(new URL(req.url ?? '/', 'http://localhost').pathname.split('/').pop() ?? '');
+      // The identity exactly as ocpp-rpc will read it (which throws on malformed percent-encoding).
+      const identity = decodeURIComponent(new URL(`http://localhost${req.url || '/'}`).pathname.split('/').pop() ?? '');
       if (!identity) throw new URIError('no identity');
     } catch {
       refuseUpgrade(socket, 400, 'The address must be /ocpp/<charger identity>, percent-encoded as UTF-8');
