@@ -59,9 +59,17 @@ export function powerFromMeterValues(meterValue: unknown): number | null {
 export const OCPP_PROTOCOLS = ['ocpp1.6', 'ocpp2.0.1'] as const;
 /** Largest WebSocket message taken; OCPP messages are a few kB (a long profile stays far below). */
 export const MAX_FRAME_BYTES = 64 * 1024;
-/** Wrong passwords allowed per charger identity and per remote address in the window. */
-export const AUTH_FAILURE_LIMIT = 10;
-export const AUTH_FAILURE_WINDOW_MS = 5 * 60_000;
+/**
+ * Wrong passwords allowed in the window per charger identity and per client address. The address
+ * limit is higher: a depot's chargers often reach us through one NAT or cellular router, and one
+ * misconfigured charger must not lock out the others.
+ */
+export interface AuthFailureLimits {
+  perIdentity: number;
+  perAddress: number;
+  windowMs: number;
+}
+export const DEFAULT_AUTH_FAILURE_LIMITS: AuthFailureLimits = { perIdentity: 10, perAddress: 50, windowMs: 5 * 60_000 };
 const MAX_OCPP_INTEGER = 2 ** 31 - 1;
 const WRONG_CREDENTIALS = 'Unknown charger identity or wrong password';
 
@@ -72,6 +80,18 @@ export function refuseUpgrade(socket: Duplex, status: 400 | 401 | 404 | 500 | 50
     socket.write(`HTTP/1.1 ${status} ${reason}\r\nConnection: close\r\nContent-Type: text/plain\r\nContent-Length: ${Buffer.byteLength(message)}\r\n\r\n${message}`);
   }
   socket.destroy();
+}
+
+/**
+ * The charger's address for the throttle. Behind the reverse proxy on this machine (the only one
+ * trusted, as for the HTTP API) it is the last X-Forwarded-For entry, the one the proxy added.
+ */
+function clientAddress(req: IncomingMessage): string {
+  const peer = req.socket.remoteAddress ?? 'unknown';
+  const forwarded = req.headers['x-forwarded-for'];
+  const loopback = peer === '127.0.0.1' || peer === '::1' || peer === '::ffff:127.0.0.1';
+  if (!loopback || typeof forwarded !== 'string') return peer;
+  return forwarded.split(',').pop()?.trim() || peer;
 }
 
 /** Connector and EVSE ids are 32-bit in OCPP and in the database; a larger one is a protocol error. */
@@ -99,9 +119,14 @@ export class CentralSystem {
   private readonly failuresByIdentity: FailureThrottle;
   private readonly failuresByAddress: FailureThrottle;
 
-  constructor(private readonly db: Db, private readonly log: Logger, private readonly clock: Clock = systemClock) {
-    this.failuresByIdentity = new FailureThrottle(AUTH_FAILURE_LIMIT, AUTH_FAILURE_WINDOW_MS, clock);
-    this.failuresByAddress = new FailureThrottle(AUTH_FAILURE_LIMIT, AUTH_FAILURE_WINDOW_MS, clock);
+  constructor(
+    private readonly db: Db,
+    private readonly log: Logger,
+    private readonly clock: Clock = systemClock,
+    limits: AuthFailureLimits = DEFAULT_AUTH_FAILURE_LIMITS,
+  ) {
+    this.failuresByIdentity = new FailureThrottle(limits.perIdentity, limits.windowMs, clock);
+    this.failuresByAddress = new FailureThrottle(limits.perAddress, limits.windowMs, clock);
     this.server = new RPCServer({
       protocols: [...OCPP_PROTOCOLS], strictMode: true, pingIntervalMs: 30_000,
       // Bad messages answer with the protocol's error code and a plain text, never a stack.
@@ -114,7 +139,7 @@ export class CentralSystem {
         return;
       }
       const identity = handshake.identity;
-      const address = handshake.remoteAddress ?? 'unknown';
+      const address = clientAddress(handshake.request as IncomingMessage);
       if (this.failuresByIdentity.blocked(identity) || this.failuresByAddress.blocked(address)) {
         reject(401, WRONG_CREDENTIALS);
         return;

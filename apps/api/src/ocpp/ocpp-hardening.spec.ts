@@ -7,7 +7,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { chargers } from '../db/schema';
 import { createDepot } from '../testing/depot-fixture';
 import { createOrganisation, createTestApp, type TestUser } from '../testing/test-app';
-import { AUTH_FAILURE_LIMIT, AUTH_FAILURE_WINDOW_MS, CentralSystem, MAX_FRAME_BYTES } from './central-system';
+import { CentralSystem, DEFAULT_AUTH_FAILURE_LIMITS, MAX_FRAME_BYTES } from './central-system';
 import { LiveStateWriter, type LiveValues } from './live-state-writer';
 
 const PASSWORD = 'hardening-charger-password';
@@ -41,7 +41,8 @@ describe('OCPP central system under hostile input', () => {
   const app = createTestApp();
   // A clock the tests move: the password throttle's window passes without waiting.
   let now = Date.parse('2026-12-09T06:00:00Z');
-  const central = new CentralSystem(app.db, pino({ level: 'silent' }), () => new Date(now));
+  const limits = { perIdentity: 10, perAddress: 14, windowMs: DEFAULT_AUTH_FAILURE_LIMITS.windowMs };
+  const central = new CentralSystem(app.db, pino({ level: 'silent' }), () => new Date(now), limits);
   let server: Server;
   let port: number;
   let url: string;
@@ -142,23 +143,31 @@ describe('OCPP central system under hostile input', () => {
     await c.close({ force: true });
   });
 
-  // Last: it locks this process's central system out for 127.0.0.1 until the clock moves on.
-  it(`after ${AUTH_FAILURE_LIMIT} wrong passwords the identity and the address are refused at once, even with the right password`, async () => {
-    for (let i = 0; i < AUTH_FAILURE_LIMIT; i++) {
-      expect(await rawUpgrade(port, `/ocpp/${identities[0]}`, { Authorization: basic(identities[0]!, `wrong-password-${i}`), 'Sec-WebSocket-Protocol': 'ocpp1.6' }))
-        .toBe('HTTP/1.1 401 Unauthorized');
+  it('the default limits: 10 wrong passwords per identity, more per address (chargers share a NAT)', () => {
+    expect(DEFAULT_AUTH_FAILURE_LIMITS).toEqual({ perIdentity: 10, perAddress: 50, windowMs: 5 * 60_000 });
+  });
+
+  it('too many wrong passwords: the identity, then the address, are refused at once even with the right password', async () => {
+    const upgrade = (identity: string, password: string, forwardedFor: string) =>
+      rawUpgrade(port, `/ocpp/${identity}`, { Authorization: basic(identity, password), 'Sec-WebSocket-Protocol': 'ocpp1.6', 'X-Forwarded-For': forwardedFor });
+    for (let i = 0; i < limits.perIdentity; i++) {
+      expect(await upgrade(identities[0]!, `wrong-password-${i}`, '192.0.2.1')).toBe('HTTP/1.1 401 Unauthorized');
     }
     const started = performance.now();
-    expect(await rawUpgrade(port, `/ocpp/${identities[0]}`, { Authorization: basic(identities[0]!, PASSWORD), 'Sec-WebSocket-Protocol': 'ocpp1.6' }))
-      .toBe('HTTP/1.1 401 Unauthorized');
+    // From another address too: the identity itself is blocked.
+    expect(await upgrade(identities[0]!, PASSWORD, '192.0.2.2')).toBe('HTTP/1.1 401 Unauthorized');
     // Refused before any database read or bcrypt comparison.
     expect(performance.now() - started).toBeLessThan(500);
-    // The address is blocked too: another charger's right password from here is refused.
-    expect(await rawUpgrade(port, `/ocpp/${identities[1]}`, { Authorization: basic(identities[1]!, PASSWORD), 'Sec-WebSocket-Protocol': 'ocpp1.6' }))
-      .toBe('HTTP/1.1 401 Unauthorized');
-    now += AUTH_FAILURE_WINDOW_MS + 1000;
-    expect(await rawUpgrade(port, `/ocpp/${identities[0]}`, { Authorization: basic(identities[0]!, PASSWORD), 'Sec-WebSocket-Protocol': 'ocpp1.6' }))
-      .toBe('HTTP/1.1 101 Switching Protocols');
+    // The address has room for a few more failures; another charger from it still gets in.
+    expect(await upgrade(identities[1]!, PASSWORD, '192.0.2.1')).toBe('HTTP/1.1 101 Switching Protocols');
+    for (let i = limits.perIdentity; i < limits.perAddress; i++) {
+      expect(await upgrade(`UNKNOWN-${i}`, 'whatever-password', '192.0.2.1')).toBe('HTTP/1.1 401 Unauthorized');
+    }
+    expect(await upgrade(identities[1]!, PASSWORD, '192.0.2.1')).toBe('HTTP/1.1 401 Unauthorized');
+    // Other addresses are not affected; and once the window has passed, the blocked ones get in.
+    expect(await upgrade(identities[1]!, PASSWORD, '192.0.2.3')).toBe('HTTP/1.1 101 Switching Protocols');
+    now += limits.windowMs + 1000;
+    expect(await upgrade(identities[0]!, PASSWORD, '192.0.2.1')).toBe('HTTP/1.1 101 Switching Protocols');
   });
 });
 
