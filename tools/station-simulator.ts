@@ -18,7 +18,11 @@ export interface StationOptions {
   identity: string;
   password: string;
   protocol: Protocol;
-  /** The station's clock; tests move it into the plan's night. */
+  /**
+   * The station's clock; tests move it into the plan's night. Without one the station keeps the
+   * central system's time, as OCPP stations do: from the currentTime of each BootNotification
+   * and Heartbeat answer (so it follows the API's clock wherever that stands).
+   */
   clock?: () => Date;
   meterIntervalMs?: number;
 }
@@ -30,9 +34,13 @@ export class SimulatedStation {
   private timer: NodeJS.Timeout | undefined;
   private lastStatus = '';
   private readonly clock: () => Date;
+  /** Central system time minus this machine's, learnt from its answers. */
+  private offsetMs = 0;
+  private heartbeat: NodeJS.Timeout | undefined;
 
   constructor(private readonly opts: StationOptions) {
-    this.clock = opts.clock ?? (() => new Date());
+    // eslint-disable-next-line no-restricted-syntax -- the station's own clock, set from the central system's time
+    this.clock = opts.clock ?? (() => new Date(Date.now() + this.offsetMs));
     this.client = new RPCClient({
       endpoint: opts.url, identity: opts.identity, password: opts.password, protocols: [opts.protocol],
       strictMode: true, reconnect: true, maxReconnects: Infinity, backoff: { initialDelay: 500, maxDelay: 10_000, factor: 2, randomisationFactor: 0.2 },
@@ -63,9 +71,12 @@ export class SimulatedStation {
   async start(): Promise<void> {
     await this.client.connect();
     const v16 = this.opts.protocol === 'ocpp1.6';
-    await this.client.call('BootNotification', v16
+    const boot = await this.client.call('BootNotification', v16
       ? { chargePointVendor: 'Nightyard simulator', chargePointModel: 'Depot DC' }
-      : { reason: 'PowerUp', chargingStation: { vendorName: 'Nightyard simulator', model: 'Depot DC' } });
+      : { reason: 'PowerUp', chargingStation: { vendorName: 'Nightyard simulator', model: 'Depot DC' } }) as { currentTime?: string; interval?: number };
+    this.setTime(boot.currentTime);
+    this.heartbeat = setInterval(() => void this.client.call('Heartbeat', {})
+      .then((r) => this.setTime((r as { currentTime?: string }).currentTime), () => undefined), Math.max(5, boot.interval ?? 30) * 1000);
     await this.report();
     this.timer = setInterval(() => void this.report().catch(() => undefined), this.opts.meterIntervalMs ?? 15_000);
   }
@@ -95,8 +106,16 @@ export class SimulatedStation {
     this.lastStatus = 'Faulted';
   }
 
+  /** Keeps the central system's time (OCPP's currentTime), unless the station was given a clock. */
+  private setTime(currentTime: string | undefined): void {
+    const t = currentTime ? Date.parse(currentTime) : NaN;
+    // eslint-disable-next-line no-restricted-syntax -- measuring this machine's clock against the central system's
+    if (Number.isFinite(t)) this.offsetMs = t - Date.now();
+  }
+
   async stop(): Promise<void> {
     clearInterval(this.timer);
+    clearInterval(this.heartbeat);
     await this.client.close({ force: true });
   }
 }
@@ -110,25 +129,46 @@ function scheduleOf(params: Record<string, unknown>, protocol: Protocol): Schedu
   return { startMs: Date.parse(schedule.startSchedule), durationS: schedule.duration, periods: schedule.chargingSchedulePeriod };
 }
 
-async function main() {
-  const url = process.env.NIGHTYARD_OCPP_URL ?? 'ws://127.0.0.1:3000/ocpp';
-  const stations = demoChargers.map((c, i) => new SimulatedStation({
-    url, identity: demoChargerIdentity(c.label), password: DEMO_CHARGER_PASSWORD,
+/** The demo depot's chargers (of a tagged test district, with a tag), as simulated stations. */
+function demoStations(url: string, tag?: string): SimulatedStation[] {
+  return demoChargers.map((c, i) => new SimulatedStation({
+    url, identity: demoChargerIdentity(c.label, tag), password: DEMO_CHARGER_PASSWORD,
     // The shared-cabinet dispensers speak OCPP 2.0.1; the others 1.6.
     protocol: c.cabinet ? 'ocpp2.0.1' : 'ocpp1.6', meterIntervalMs: 15_000 + i * 250,
   }));
+}
+
+async function startAll(stations: SimulatedStation[], url: string): Promise<void> {
   await Promise.all(stations.map((s) => s.start().catch((err: Error) => console.error(`station ${s.client.identity}: ${err.message}`))));
   console.log(`station simulator: ${stations.length} chargers connected to ${url}`);
-  // Lets a supervisor process (the browser tests' web server list) know the stations are up.
-  // POST /fault/<label> makes that charger report a fault, to show the yard's re-plan offer.
+}
+
+async function main() {
+  const url = process.env.NIGHTYARD_OCPP_URL ?? 'ws://127.0.0.1:3000/ocpp';
+  // The browser tests start it empty and ask for each test district's chargers in turn.
+  let stations = process.env.SIMULATOR_STATIONS === 'none' ? [] : demoStations(url);
+  await startAll(stations, url);
+  // Lets a supervisor process (the browser tests' web server list) know the simulator is up.
+  // POST /fault/<label or identity> makes that charger report a fault, to show the yard's re-plan
+  // offer; PUT /stations?tag=<tag> swaps the stations for a tagged test district's chargers.
   if (process.env.SIMULATOR_HEALTH_PORT) {
     const { createServer } = await import('node:http');
     createServer((req, res) => {
-      const label = /^\/fault\/([\w-]+)$/.exec(req.url ?? '')?.[1];
+      const address = new URL(req.url ?? '/', 'http://simulator');
+      const label = /^\/fault\/([\w-]+)$/.exec(address.pathname)?.[1];
       if (req.method === 'POST' && label) {
-        const station = stations.find((s) => s.client.identity === demoChargerIdentity(label));
+        const station = stations.find((s) => s.client.identity === label || s.client.identity?.endsWith(`-${label}`));
         if (!station) return void res.writeHead(404).end('unknown charger');
         void station.fault().then(() => res.writeHead(204).end(), () => res.writeHead(502).end());
+        return;
+      }
+      if (req.method === 'PUT' && address.pathname === '/stations') {
+        const tag = address.searchParams.get('tag') ?? undefined;
+        const old = stations;
+        stations = demoStations(url, tag);
+        void Promise.all(old.map((s) => s.stop().catch(() => undefined)))
+          .then(() => startAll(stations, url))
+          .then(() => res.writeHead(204).end(), () => res.writeHead(502).end());
         return;
       }
       res.writeHead(200).end('ok');

@@ -46,7 +46,7 @@ export const demoChargers = [
 
 /** Every demo charger uses this OCPP basic-auth password (security profile 1); invented. */
 export const DEMO_CHARGER_PASSWORD = 'orchard-lane-demo-charger';
-export const demoChargerIdentity = (label: string) => `OLD-${label}`;
+export const demoChargerIdentity = (label: string, tag?: string) => (tag ? `OLD-${tag}-${label}` : `OLD-${label}`);
 
 /** 24 buses: sixteen large (196 kWh usable) and eight smaller (155 kWh). */
 export const demoBuses = Array.from({ length: 24 }, (_, i) => {

@@ -5,6 +5,7 @@ import type { Db } from './db/client';
 import type { JobQueue } from './jobs/job-queue';
 import type { Mailer } from './mail/mailer';
 import type { Clock } from './time/clock';
+import type { TestControl } from './dev/test-control-routes';
 
 /** What route handlers are given: the database, settings and outside services. */
 export interface AppDeps {
@@ -18,6 +19,8 @@ export interface AppDeps {
   onPlanPublished?: (planId: string) => void;
   /** The only source of "now" (tests and development can stand it at a fixed instant). */
   clock: Clock;
+  /** Browser tests only (NODE_ENV=test with NIGHTYARD_TEST_CONTROL=1): move the clock, seed a district. */
+  testControl?: TestControl;
   /** Runs a query against the database to prove it answers (for /api/health). */
   ping: () => Promise<void>;
 }

@@ -18,6 +18,7 @@ import { costsRoutes } from './costs/costs-routes';
 import { ocppRoutes } from './ocpp/ocpp-routes';
 import { yardRoutes } from './yard/yard-routes';
 import { outboxRoutes } from './dev/outbox-routes';
+import { testControlRouter } from './dev/test-control-routes';
 import { apiNotFound, errorHandler } from './http/error-handler';
 import { ApiRoutes, type RegisteredRoute } from './http/route';
 import { newOpenApiRegistry, openApiDocument } from './openapi/document';
@@ -69,9 +70,11 @@ export function createApp(deps: AppDeps): BuiltApp {
   );
 
   const router = express.Router();
-  // API answers carry tokens and organisation data: no browser or proxy may keep them.
   router.use((_req, res, next) => {
+    // API answers carry tokens and organisation data: no browser or proxy may keep them.
     res.setHeader('Cache-Control', 'no-store');
+    // The client's clock follows the API's (tests and development may stand it at a fixed instant).
+    res.setHeader('X-Server-Time', String(deps.clock().getTime()));
     next();
   });
   // Interval-data files arrive as JSON strings; everything else is small.
@@ -79,7 +82,7 @@ export function createApp(deps: AppDeps): BuiltApp {
   router.use(express.json({ limit: '1mb', strict: true }));
   router.use(cookieParser());
   const openapi = newOpenApiRegistry();
-  const api = new ApiRoutes(router, openapi, bearerAuthenticator(deps.db, deps.config.JWT_SECRET));
+  const api = new ApiRoutes(router, openapi, bearerAuthenticator(deps.db, deps.config.JWT_SECRET, deps.clock));
 
   api.add(
     { method: 'get', path: '/health', summary: 'Answers 200 when the API and its database work', tag: 'system',
@@ -106,6 +109,7 @@ export function createApp(deps: AppDeps): BuiltApp {
   ocppRoutes(api, deps);
   yardRoutes(api, deps);
   outboxRoutes(api, deps);
+  if (deps.testControl && deps.config.NODE_ENV === 'test') router.use('/testing', testControlRouter(deps.db, deps.clock, deps.testControl));
 
   const document = openApiDocument(openapi);
   router.get('/openapi.json', (_req, res) => {

@@ -11,12 +11,14 @@ import { startJobQueue } from './jobs/job-queue';
 import { recoverInterruptedPlans, runPlanJob } from './plans/plan-runner';
 import { loadSolver } from '@nightyard/scheduling';
 import { CentralSystem } from './ocpp/central-system';
-import { clockFromEnv } from './time/clock';
+import { adjustableClock, clockFromEnv } from './time/clock';
 import { isEmpty, seedDemo } from '../../../tools/demo/seed';
 import { DEMO_PASSWORD, demoUsers } from '../../../tools/demo/demo-depot';
 
 const config = loadConfig();
-const clock = clockFromEnv();
+// The browser tests move the clock from spec to spec; nothing else can (see dev/test-control-routes).
+const testControl = config.NODE_ENV === 'test' && process.env.NIGHTYARD_TEST_CONTROL === '1' ? adjustableClock(clockFromEnv()) : null;
+const clock = testControl?.clock ?? clockFromEnv();
 const log = createLogger({ level: config.LOG_LEVEL, service: 'nightyard-api' });
 installProcessGuards(log);
 // Paths come from the environment or the working directory, never from this file's location,
@@ -32,7 +34,7 @@ await applyMigrations(db, migrationsDir);
 log.info({ migrationsDir }, 'migrations applied');
 // Production seeds nothing unless SEED_DEMO=always says so (see config.ts).
 if (wantsDemoSeed(config) && (await isEmpty(db))) {
-  await seedDemo(db);
+  await seedDemo(db, clock());
   log.info('demo data seeded');
 }
 
@@ -50,6 +52,7 @@ const central = new CentralSystem(db, log, clock);
 const { app } = createApp({
   db,
   clock,
+  ...(testControl ? { testControl: { setClock: testControl.set } } : {}),
   jobs,
   onPlanPublished: (planId) => void central.sendPlan(planId).catch((err) => log.error({ err }, 'profiles not sent')),
   config: { ...config, WEB_DIST: webDist },

@@ -28,7 +28,7 @@ describe('PostgreSQL restarts under a running API', () => {
   // Registered before the app's own clean-up so the cluster stops last (after hooks run in reverse).
   afterAll(() => cluster.stop());
   const app = createTestApp({}, cluster.url);
-  const central = new CentralSystem(app.db, silent);
+  const central = new CentralSystem(app.db, silent, app.deps.clock);
   let server: Server;
   let sup: TestUser;
   let fac: TestUser;

@@ -10,3 +10,4 @@ export * from './fleet';
 export * from './plans';
 export * from './costs';
 export * from './yard';
+export * from './night';

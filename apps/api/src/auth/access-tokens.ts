@@ -7,12 +7,14 @@ import type { Db } from '../db/client';
 import { users } from '../db/schema';
 import { DomainError } from '../http/errors';
 import type { AuthUser } from './auth-user';
+import type { Clock } from '../time/clock';
 
 const ISSUER = 'nightyard';
 const AUDIENCE = 'nightyard-api';
 
-export function signAccessToken(secret: string, seconds: number, user: { id: string; organisationId: string }): string {
-  return jwt.sign({ org: user.organisationId }, secret, {
+export function signAccessToken(secret: string, seconds: number, user: { id: string; organisationId: string }, now: Date): string {
+  // iat from the API's clock: jsonwebtoken then counts the expiry from it, not from the machine's clock.
+  return jwt.sign({ org: user.organisationId, iat: Math.floor(now.getTime() / 1000) }, secret, {
     subject: user.id,
     expiresIn: seconds,
     issuer: ISSUER,
@@ -25,7 +27,7 @@ export function signAccessToken(secret: string, seconds: number, user: { id: str
  * Express middleware that accepts a Bearer access token. The user is re-read on every request so
  * a deactivation or a change of roles takes effect at once, not when the token expires.
  */
-export function bearerAuthenticator(db: Db, secret: string) {
+export function bearerAuthenticator(db: Db, secret: string, clock: Clock) {
   const strategy = new JwtStrategy(
     {
       jwtFromRequest: ExtractJwt.fromAuthHeaderAsBearerToken(),
@@ -44,6 +46,10 @@ export function bearerAuthenticator(db: Db, secret: string) {
         .then(([row]) => done(null, row ?? false), (err) => done(err));
     },
   );
+  // passport-jwt copies its verify options once; jsonwebtoken reads clockTimestamp at each verify.
+  // A getter makes expiry follow the API's clock (tests and development may stand it elsewhere).
+  const verifyOptions = (strategy as unknown as { _verifOpts: Record<string, unknown> })._verifOpts;
+  Object.defineProperty(verifyOptions, 'clockTimestamp', { get: () => Math.floor(clock().getTime() / 1000), enumerable: true });
   const instance = new passport.Passport();
   instance.use('jwt', strategy);
 

@@ -22,7 +22,7 @@ export function authRoutes(api: ApiRoutes, { db, auth: settings, mailer, log, cl
     { method: 'post', path: '/auth/login', summary: 'Sign in with e-mail and password', tag: 'auth', access: 'public',
       body: loginRequestSchema, response: tokenResponseSchema },
     async ({ body, req, res }) => {
-      const issued = await auth.login(db, settings, body.email, body.password, req.ip ?? 'unknown');
+      const issued = await auth.login(db, settings, body.email, body.password, req.ip ?? 'unknown', clock());
       setRefreshCookie(req, res, issued.refreshToken, issued.refreshExpiresAt);
       return issued.response;
     },
@@ -32,7 +32,7 @@ export function authRoutes(api: ApiRoutes, { db, auth: settings, mailer, log, cl
     { method: 'post', path: '/auth/refresh', summary: 'Swap the refresh cookie for a new access token', tag: 'auth',
       access: 'public', response: tokenResponseSchema },
     async ({ req, res }) => {
-      const issued = await auth.refresh(db, settings, req.cookies?.[REFRESH_COOKIE]);
+      const issued = await auth.refresh(db, settings, req.cookies?.[REFRESH_COOKIE], clock());
       setRefreshCookie(req, res, issued.refreshToken, issued.refreshExpiresAt);
       return issued.response;
     },
@@ -41,7 +41,7 @@ export function authRoutes(api: ApiRoutes, { db, auth: settings, mailer, log, cl
   api.add(
     { method: 'post', path: '/auth/logout', summary: 'Sign out: end this session', tag: 'auth', access: 'public', status: 204 },
     async ({ req, res }) => {
-      await auth.logout(db, req.cookies?.[REFRESH_COOKIE]);
+      await auth.logout(db, req.cookies?.[REFRESH_COOKIE], clock());
       res.clearCookie(REFRESH_COOKIE, { path: COOKIE_PATH });
     },
   );
@@ -63,12 +63,12 @@ export function authRoutes(api: ApiRoutes, { db, auth: settings, mailer, log, cl
   api.add(
     { method: 'get', path: '/auth/action-tokens/:token', summary: 'Who an invitation or reset link is for', tag: 'auth',
       access: 'public', params: z.strictObject({ token: z.string().min(20).max(200) }), response: actionTokenInfoSchema },
-    async ({ params }) => auth.actionTokenInfo(db, params.token),
+    async ({ params }) => auth.actionTokenInfo(db, params.token, clock()),
   );
 
   api.add(
     { method: 'post', path: '/auth/set-password', summary: 'Choose a password from an invitation or reset link',
       tag: 'auth', access: 'public', body: setPasswordRequestSchema, status: 204 },
-    async ({ body }) => auth.setPassword(db, body.token, body.password),
+    async ({ body }) => auth.setPassword(db, body.token, body.password, clock()),
   );
 }

@@ -42,52 +42,52 @@ async function sessionUser(db: Db, userId: string): Promise<SessionUser> {
   return { id: row.id, email: row.email, name: row.name, roles: row.roles, organisation: { id: row.orgId, name: row.orgName } };
 }
 
-async function issue(db: Db, s: AuthSettings, userId: string, familyId: string): Promise<IssuedTokens> {
+async function issue(db: Db, s: AuthSettings, userId: string, familyId: string, now: Date): Promise<IssuedTokens> {
   const user = await sessionUser(db, userId);
   const { token, hash } = newOpaqueToken();
-  const refreshExpiresAt = new Date(Date.now() + s.refreshTokenDays * 86_400_000);
+  const refreshExpiresAt = new Date(now.getTime() + s.refreshTokenDays * 86_400_000);
   await db.insert(refreshTokens).values({ userId, familyId, tokenHash: hash, expiresAt: refreshExpiresAt });
-  const accessToken = signAccessToken(s.jwtSecret, s.accessTokenSeconds, { id: user.id, organisationId: user.organisation.id });
+  const accessToken = signAccessToken(s.jwtSecret, s.accessTokenSeconds, { id: user.id, organisationId: user.organisation.id }, now);
   return { response: { accessToken, expiresInSeconds: s.accessTokenSeconds, user }, refreshToken: token, refreshExpiresAt };
 }
 
 const WRONG_CREDENTIALS = 'E-mail or password is not right';
 
-export async function login(db: Db, s: AuthSettings, email: string, password: string, ip: string): Promise<IssuedTokens> {
-  await assertLoginAllowed(db, s.throttle, email, ip);
+export async function login(db: Db, s: AuthSettings, email: string, password: string, ip: string, now: Date): Promise<IssuedTokens> {
+  await assertLoginAllowed(db, s.throttle, email, ip, now);
   const [user] = await db.select().from(users).where(eq(users.email, email));
   const ok = await checkPassword(password, user?.passwordHash ?? DUMMY_HASH);
   if (!user || !ok || !user.passwordHash) {
-    await recordLoginAttempt(db, email, ip, false);
+    await recordLoginAttempt(db, email, ip, false, now);
     throw new DomainError('unauthenticated', WRONG_CREDENTIALS);
   }
   if (user.status !== 'active') {
-    await recordLoginAttempt(db, email, ip, false);
+    await recordLoginAttempt(db, email, ip, false, now);
     throw new DomainError('unauthenticated', 'This account is deactivated: ask your administrator');
   }
-  await recordLoginAttempt(db, email, ip, true);
-  await db.update(users).set({ lastSignInAt: new Date() }).where(eq(users.id, user.id));
-  return issue(db, s, user.id, randomUUID());
+  await recordLoginAttempt(db, email, ip, true, now);
+  await db.update(users).set({ lastSignInAt: now }).where(eq(users.id, user.id));
+  return issue(db, s, user.id, randomUUID(), now);
 }
 
 /**
  * Swaps a refresh token for a new pair. A token used twice means it was copied: the whole family
  * (every token descended from that sign-in) is revoked, signing out the thief and the owner.
  */
-export async function refresh(db: Db, s: AuthSettings, token: string | undefined): Promise<IssuedTokens> {
+export async function refresh(db: Db, s: AuthSettings, token: string | undefined, now: Date): Promise<IssuedTokens> {
   if (!token) throw unauthenticated('No session: sign in');
   const outcome = await db.transaction(async (tx) => {
     const [row] = await tx.select().from(refreshTokens).where(eq(refreshTokens.tokenHash, hashToken(token))).for('update');
-    if (!row || row.revokedAt || row.expiresAt < new Date()) return 'ended' as const;
+    if (!row || row.revokedAt || row.expiresAt < now) return 'ended' as const;
     if (row.usedAt) {
       // Committed before the caller is refused: a rollback would leave the copied session alive.
-      await tx.update(refreshTokens).set({ revokedAt: new Date() }).where(eq(refreshTokens.familyId, row.familyId));
+      await tx.update(refreshTokens).set({ revokedAt: now }).where(eq(refreshTokens.familyId, row.familyId));
       return 'replayed' as const;
     }
     const [user] = await tx.select({ status: users.status }).from(users).where(eq(users.id, row.userId));
     if (user?.status !== 'active') return 'inactive' as const;
-    await tx.update(refreshTokens).set({ usedAt: new Date() }).where(eq(refreshTokens.id, row.id));
-    return issue(tx as unknown as Db, s, row.userId, row.familyId);
+    await tx.update(refreshTokens).set({ usedAt: now }).where(eq(refreshTokens.id, row.id));
+    return issue(tx as unknown as Db, s, row.userId, row.familyId, now);
   });
   if (outcome === 'ended') throw unauthenticated('Your session has ended: sign in again');
   if (outcome === 'replayed') throw unauthenticated('This session was used elsewhere and has been ended: sign in again');
@@ -95,10 +95,10 @@ export async function refresh(db: Db, s: AuthSettings, token: string | undefined
   return outcome;
 }
 
-export async function logout(db: Db, token: string | undefined): Promise<void> {
+export async function logout(db: Db, token: string | undefined, now: Date): Promise<void> {
   if (!token) return;
   const [row] = await db.select().from(refreshTokens).where(eq(refreshTokens.tokenHash, hashToken(token)));
-  if (row) await db.update(refreshTokens).set({ revokedAt: new Date() }).where(eq(refreshTokens.familyId, row.familyId));
+  if (row) await db.update(refreshTokens).set({ revokedAt: now }).where(eq(refreshTokens.familyId, row.familyId));
 }
 
 export async function me(db: Db, userId: string): Promise<SessionUser> {
@@ -106,13 +106,13 @@ export async function me(db: Db, userId: string): Promise<SessionUser> {
 }
 
 /** Creates a single-use link token for the user; returns the raw token to put in the link. */
-export async function createActionToken(db: Db, userId: string, purpose: 'invite' | 'reset', validMs: number): Promise<string> {
+export async function createActionToken(db: Db, userId: string, purpose: 'invite' | 'reset', validMs: number, now: Date): Promise<string> {
   const { token, hash } = newOpaqueToken();
   await db
     .update(actionTokens)
-    .set({ usedAt: new Date() })
+    .set({ usedAt: now })
     .where(and(eq(actionTokens.userId, userId), eq(actionTokens.purpose, purpose), isNull(actionTokens.usedAt)));
-  await db.insert(actionTokens).values({ userId, purpose, tokenHash: hash, expiresAt: new Date(Date.now() + validMs) });
+  await db.insert(actionTokens).values({ userId, purpose, tokenHash: hash, expiresAt: new Date(now.getTime() + validMs) });
   return token;
 }
 
@@ -141,7 +141,7 @@ async function deliverReset(db: Db, s: AuthSettings, mailer: Mailer, user: { id:
   );
 }
 
-async function findActionToken(db: Db, token: string) {
+async function findActionToken(db: Db, token: string, now: Date) {
   const [row] = await db
     .select({ token: actionTokens, user: users })
     .from(actionTokens)
@@ -150,30 +150,30 @@ async function findActionToken(db: Db, token: string) {
   if (!row || row.token.usedAt || row.user.status === 'deactivated') {
     throw new DomainError('not_found', 'This link is not valid or was already used: ask for a new one');
   }
-  if (row.token.expiresAt < new Date()) {
+  if (row.token.expiresAt < now) {
     throw new DomainError('token_expired', 'This link has expired: ask for a new one');
   }
   return row;
 }
 
-export async function actionTokenInfo(db: Db, token: string): Promise<ActionTokenInfo> {
-  const { token: t, user } = await findActionToken(db, token);
+export async function actionTokenInfo(db: Db, token: string, now: Date): Promise<ActionTokenInfo> {
+  const { token: t, user } = await findActionToken(db, token, now);
   return { email: user.email, name: user.name, purpose: t.purpose, expiresAt: t.expiresAt.toISOString() };
 }
 
 /** Sets the password from an invitation or reset link; activates an invited account. */
-export async function setPassword(db: Db, token: string, password: string): Promise<void> {
-  const { token: t, user } = await findActionToken(db, token);
+export async function setPassword(db: Db, token: string, password: string, now: Date): Promise<void> {
+  const { token: t, user } = await findActionToken(db, token, now);
   const passwordHash = await hashPassword(password);
   await db.transaction(async (tx) => {
     const used = await tx
       .update(actionTokens)
-      .set({ usedAt: new Date() })
+      .set({ usedAt: now })
       .where(and(eq(actionTokens.id, t.id), isNull(actionTokens.usedAt)))
       .returning({ id: actionTokens.id });
     if (used.length === 0) throw new DomainError('not_found', 'This link was already used: ask for a new one');
     await tx.update(users).set({ passwordHash, status: 'active' }).where(eq(users.id, user.id));
     // A new password ends every existing session of the account.
-    await tx.update(refreshTokens).set({ revokedAt: new Date() }).where(and(eq(refreshTokens.userId, user.id), isNull(refreshTokens.revokedAt)));
+    await tx.update(refreshTokens).set({ revokedAt: now }).where(and(eq(refreshTokens.userId, user.id), isNull(refreshTokens.revokedAt)));
   });
 }

@@ -86,7 +86,7 @@ export async function planCosts(db: Db, caller: AuthUser, planId: string): Promi
  * The billing period's costs: every 15-minute interval takes the metered value where one was
  * imported, else the published plan's site load, else the depot's building load alone.
  */
-export async function monthCosts(db: Db, caller: AuthUser, depotId: string, date: string, now = new Date(), mpg = DIESEL_BUS_MPG): Promise<MonthCosts> {
+export async function monthCosts(db: Db, caller: AuthUser, depotId: string, date: string, now: Date, mpg = DIESEL_BUS_MPG): Promise<MonthCosts> {
   const depot = await depotOf(db, caller, depotId);
   const zone = depot.timezone;
   const period = billingPeriodOf(date, depot.billingStartDay, zone);

@@ -15,7 +15,7 @@ import { checkIntervals, parseGreenButtonCsv, parseGreenButtonXml } from './gree
  * it replaces earlier readings of the same intervals and raises the period's peaks so far.
  */
 export async function importMeterData(
-  db: Db, caller: AuthUser, depotId: string, req: { fileName: string; content: string; billingPeriodStart: string },
+  db: Db, caller: AuthUser, depotId: string, req: { fileName: string; content: string; billingPeriodStart: string }, now: Date,
 ): Promise<MeterImportResult> {
   const depot = await depotOf(db, caller, depotId);
   const zone = depot.timezone;
@@ -54,7 +54,7 @@ export async function importMeterData(
     const periods: Record<string, number> = { ...(same ? existing!.periodsKw : {}) };
     for (const [name, p] of Object.entries(measured.periods)) periods[name] = Math.max(periods[name] ?? 0, p.kw);
     const facilityKw = Math.max(same ? existing!.facilityKw : 0, measured.facility.kw);
-    const values = { organisationId: caller.organisationId, billingPeriodStart: req.billingPeriodStart, facilityKw, periodsKw: periods, updatedAt: new Date() };
+    const values = { organisationId: caller.organisationId, billingPeriodStart: req.billingPeriodStart, facilityKw, periodsKw: periods, updatedAt: now };
     await tx.insert(billingPeaks).values({ depotId, ...values }).onConflictDoUpdate({ target: billingPeaks.depotId, set: values });
     return { id: imp!.id, facilityKw, periods };
   });

@@ -280,8 +280,14 @@ export const plans = pgTable(
     scenario: jsonb('scenario').$type<Record<string, unknown>>().notNull(),
     notes: jsonb('notes').$type<string[]>().notNull().default([]),
     result: jsonb('result').$type<Record<string, unknown>>(),
-    /** For a revision: what the yard reported so far tonight, applied to the night's scenario. */
-    replanState: jsonb('replan_state').$type<{ outOfService: string[]; lateArrivals: Record<string, string>; absent: string[] }>(),
+    /**
+     * For a revision: what the yard reported so far tonight, applied to the night's scenario. For a
+     * plan made while its night was under way: where it starts and what it keeps (see PlanFrom).
+     */
+    replanState: jsonb('replan_state').$type<{
+      outOfService?: string[]; lateArrivals?: Record<string, string>; absent?: string[];
+      from?: string; previousPlanId?: string | null; plugged?: Record<string, string>;
+    }>(),
     createdBy: uuid('created_by').references(() => users.id, { onDelete: 'set null' }),
     createdAt: createdAt(),
     publishedAt: timestamp('published_at', { withTimezone: true }),

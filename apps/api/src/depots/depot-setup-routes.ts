@@ -11,7 +11,7 @@ import * as setup from './depot-setup-service';
 
 const EDITORS = ['facilities', 'admin'] as const;
 
-export function depotSetupRoutes(api: ApiRoutes, { db }: AppDeps) {
+export function depotSetupRoutes(api: ApiRoutes, { db, clock }: AppDeps) {
   api.add(
     { method: 'get', path: '/depots/:depotId', summary: 'A depot with its chargers, cabinets, limits and rate plans', tag: 'depots',
       access: ROLES, params: depotIdParamsSchema, response: z.object({ depot: depotDetailSchema }) },
@@ -28,12 +28,12 @@ export function depotSetupRoutes(api: ApiRoutes, { db }: AppDeps) {
   api.add(
     { method: 'post', path: '/depots/:depotId/chargers', summary: 'Add a charger', tag: 'depots', access: EDITORS,
       params: depotIdParamsSchema, body: chargerInputSchema, response: z.object({ charger: chargerSchema }), status: 201 },
-    async ({ user, params, body }) => ({ charger: await setup.createCharger(db, user, params.depotId, body) }),
+    async ({ user, params, body }) => ({ charger: await setup.createCharger(db, user, params.depotId, body, clock()) }),
   );
   api.add(
     { method: 'put', path: '/depots/:depotId/chargers/:id', summary: 'Change a charger, or put it in or out of service', tag: 'depots',
       access: EDITORS, params: depotItemParamsSchema, body: chargerInputSchema, response: z.object({ charger: chargerSchema }) },
-    async ({ user, params, body }) => ({ charger: await setup.updateCharger(db, user, params.depotId, params.id, body) }),
+    async ({ user, params, body }) => ({ charger: await setup.updateCharger(db, user, params.depotId, params.id, body, clock()) }),
   );
   api.add(
     { method: 'delete', path: '/depots/:depotId/chargers/:id', summary: 'Remove a charger', tag: 'depots', access: EDITORS,
@@ -65,7 +65,7 @@ export function depotSetupRoutes(api: ApiRoutes, { db }: AppDeps) {
   api.add(
     { method: 'put', path: '/depots/:depotId/peaks-so-far', summary: 'Set the billing period\'s peaks so far', tag: 'depots',
       access: EDITORS, params: depotIdParamsSchema, body: peaksSoFarSchema, response: z.object({ peaksSoFar: peaksSoFarSchema }) },
-    async ({ user, params, body }) => ({ peaksSoFar: await setup.savePeaksSoFar(db, user, params.depotId, body) }),
+    async ({ user, params, body }) => ({ peaksSoFar: await setup.savePeaksSoFar(db, user, params.depotId, body, clock()) }),
   );
   api.add(
     { method: 'post', path: '/depots/:depotId/rate-plans', summary: 'Bill the depot under a rate plan from a date', tag: 'rates',

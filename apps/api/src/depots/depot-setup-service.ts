@@ -85,24 +85,24 @@ function uniqueLabel(err: unknown, what: string): never {
   throw err;
 }
 
-export async function createCharger(db: Db, caller: AuthUser, depotId: string, input: ChargerInput): Promise<Charger> {
+export async function createCharger(db: Db, caller: AuthUser, depotId: string, input: ChargerInput, now: Date): Promise<Charger> {
   await depotOf(db, caller, depotId);
   const cabinetLabel = await cabinetOfDepot(db, depotId, input.cabinetId);
   const [row] = await db
     .insert(chargers)
-    .values({ ...input, organisationId: caller.organisationId, depotId, statusSince: input.status === 'out_of_service' ? new Date() : null })
+    .values({ ...input, organisationId: caller.organisationId, depotId, statusSince: input.status === 'out_of_service' ? now : null })
     .returning()
     .catch((e) => uniqueLabel(e, 'charger'));
   return toCharger(row!, cabinetLabel);
 }
 
-export async function updateCharger(db: Db, caller: AuthUser, depotId: string, id: string, input: ChargerInput): Promise<Charger> {
+export async function updateCharger(db: Db, caller: AuthUser, depotId: string, id: string, input: ChargerInput, now: Date): Promise<Charger> {
   await depotOf(db, caller, depotId);
   const [existing] = await db.select().from(chargers).where(and(eq(chargers.id, id), eq(chargers.depotId, depotId)));
   if (!existing) throw notFound('That charger');
   const cabinetLabel = await cabinetOfDepot(db, depotId, input.cabinetId);
   // "Since when" moves only when the status itself changes.
-  const statusSince = existing.status === input.status ? existing.statusSince : new Date();
+  const statusSince = existing.status === input.status ? existing.statusSince : now;
   const [row] = await db
     .update(chargers)
     .set({ ...input, statusReason: input.status === 'in_service' ? null : input.statusReason, statusSince })
@@ -169,9 +169,9 @@ export async function replaceLoadReductionWindows(
   return (await depotDetail(db, caller, depotId)).loadReductionWindows;
 }
 
-export async function savePeaksSoFar(db: Db, caller: AuthUser, depotId: string, p: PeaksSoFar): Promise<PeaksSoFar> {
+export async function savePeaksSoFar(db: Db, caller: AuthUser, depotId: string, p: PeaksSoFar, now: Date): Promise<PeaksSoFar> {
   await depotOf(db, caller, depotId);
-  const values = { organisationId: caller.organisationId, billingPeriodStart: p.billingPeriodStart, facilityKw: p.facilityKw, periodsKw: p.periods, updatedAt: new Date() };
+  const values = { organisationId: caller.organisationId, billingPeriodStart: p.billingPeriodStart, facilityKw: p.facilityKw, periodsKw: p.periods, updatedAt: now };
   await db.insert(billingPeaks).values({ depotId, ...values }).onConflictDoUpdate({ target: billingPeaks.depotId, set: values });
   return p;
 }

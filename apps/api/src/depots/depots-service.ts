@@ -4,9 +4,10 @@ import type { DepotSummary } from '@nightyard/contracts';
 import type { Db } from '../db/client';
 import { buses, chargers, depotRatePlans, depots, ratePlans, runs } from '../db/schema';
 import type { AuthUser } from '../auth/auth-user';
+import { nightOfDepot } from '../night/depot-night';
 
 /** Each depot of the caller's organisation with counts and the next service day's pull-outs. */
-export async function listDepotSummaries(db: Db, caller: AuthUser, now = new Date()): Promise<DepotSummary[]> {
+export async function listDepotSummaries(db: Db, caller: AuthUser, now: Date): Promise<DepotSummary[]> {
   const rows = await db.select().from(depots).where(eq(depots.organisationId, caller.organisationId)).orderBy(asc(depots.name));
   return Promise.all(rows.map((d) => summarise(db, d, now)));
 }
@@ -28,13 +29,9 @@ async function summarise(db: Db, d: typeof depots.$inferSelect, now: Date): Prom
     .where(and(eq(depotRatePlans.depotId, d.id), lte(depotRatePlans.effectiveFrom, today)))
     .orderBy(desc(depotRatePlans.effectiveFrom))
     .limit(1);
-  // The next service day is the first one after today that has runs: tonight's charging serves it.
-  const [next] = await db
-    .select({ date: runs.serviceDate })
-    .from(runs)
-    .where(and(eq(runs.depotId, d.id), gte(runs.serviceDate, DateTime.fromISO(today).plus({ days: 1 }).toISODate()!)))
-    .orderBy(asc(runs.serviceDate))
-    .limit(1);
+  // Tonight's charging serves the service day that ends tonight (the one night model decides which).
+  const { tonight } = await nightOfDepot(db, d, now);
+  const next = tonight.fromRuns ? { date: tonight.nextServiceDate } : null;
   let nextServiceDay: DepotSummary['nextServiceDay'] = null;
   if (next) {
     const local = (t: Date | null) => (t ? DateTime.fromJSDate(t, { zone: d.timezone }).toFormat('HH:mm') : null);
@@ -53,7 +50,7 @@ async function summarise(db: Db, d: typeof depots.$inferSelect, now: Date): Prom
     const [todayIn] = await db
       .select({ last: sql<Date | null>`max(${runs.pullIn})`.mapWith((v) => (v ? new Date(v) : null)) })
       .from(runs)
-      .where(and(eq(runs.depotId, d.id), eq(runs.serviceDate, today)));
+      .where(and(eq(runs.depotId, d.id), eq(runs.serviceDate, tonight.serviceDate)));
     nextServiceDay = {
       date: next.date,
       firstPullOut: local(day?.first ?? null),

@@ -32,6 +32,7 @@ const EXPECTED: Record<string, 'public' | readonly Role[]> = {
   'POST /users/invite': ['admin'],
   'PATCH /users/:id': ['admin'],
   'GET /depots': ROLES,
+  'GET /depots/:depotId/night': ROLES,
   'GET /dev/outbox': ['admin'],
   'GET /depots/:depotId': ROLES,
   'PUT /depots/:depotId': EDIT_DEPOT,

@@ -4,10 +4,11 @@ import type { Duplex } from 'node:stream';
 import { RPCServer, createRPCError } from 'ocpp-rpc';
 import type { Logger } from 'pino';
 import { planResultSchema } from '@nightyard/contracts';
+import type { Clock } from '../time/clock';
+import { nightOfDepot } from '../night/depot-night';
 import type { Db } from '../db/client';
-import { chargers, plans } from '../db/schema';
+import { chargers, depots, plans } from '../db/schema';
 import { DUMMY_HASH, checkPassword } from '../auth/secrets';
-import { systemClock, type Clock } from '../time/clock';
 import { chargingProfiles, type OcppVersion } from './charging-profiles';
 import { FailureThrottle } from './failure-throttle';
 import { LiveStateWriter } from './live-state-writer';
@@ -122,7 +123,7 @@ export class CentralSystem {
   constructor(
     private readonly db: Db,
     private readonly log: Logger,
-    private readonly clock: Clock = systemClock,
+    private readonly clock: Clock,
     limits: AuthFailureLimits = DEFAULT_AUTH_FAILURE_LIMITS,
   ) {
     this.failuresByIdentity = new FailureThrottle(limits.perIdentity, limits.windowMs, clock);
@@ -226,6 +227,7 @@ export class CentralSystem {
     this.connected.set(chargerId, client);
     // The charger reconnected: its older connection is stale (often half-open) and is ended.
     if (older) void older.close({ code: 1000, reason: 'Replaced by a newer connection', force: true }).catch(() => undefined);
+    // Stations set their clocks from these answers (BootNotification, Heartbeat): the API's clock.
     const now = () => this.clock().toISOString();
     const live = this.writerFor(chargerId);
     live.set({ liveConnected: true, liveStatus: 'available' });
@@ -312,17 +314,17 @@ export class CentralSystem {
     return sent;
   }
 
-  /** On (re)connection: the depot's newest published plan that has not ended. */
+  /** On (re)connection: tonight's published plan (the night in force, else the next one). */
   private async sendCurrentPlan(chargerId: string) {
     const [c] = await this.db.select().from(chargers).where(eq(chargers.id, chargerId));
     if (!c) return;
-    const [latest] = await this.db
+    const [depot] = await this.db.select({ id: depots.id, timezone: depots.timezone }).from(depots).where(eq(depots.id, c.depotId));
+    const { tonight } = await nightOfDepot(this.db, depot!, this.clock());
+    const [published] = await this.db
       .select()
       .from(plans)
-      .where(and(eq(plans.depotId, c.depotId), eq(plans.state, 'published')))
-      .orderBy(desc(plans.serviceDate))
-      .limit(1);
-    if (latest) await this.sendPlan(latest.id, chargerId);
+      .where(and(eq(plans.depotId, c.depotId), eq(plans.serviceDate, tonight.serviceDate), eq(plans.state, 'published')));
+    if (published) await this.sendPlan(published.id, chargerId);
   }
 
   async close(): Promise<void> {

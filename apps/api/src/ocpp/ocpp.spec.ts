@@ -53,7 +53,7 @@ describe('OCPP charging profiles of the demo plan validate against the official 
 
 describe('OCPP central system with the station simulator', () => {
   const app = createTestApp();
-  const central = new CentralSystem(app.db, pino({ level: 'silent' }));
+  const central = new CentralSystem(app.db, pino({ level: 'silent' }), app.deps.clock);
   let server: Server;
   let url: string;
   let sup: TestUser;

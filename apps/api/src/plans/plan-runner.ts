@@ -4,7 +4,15 @@ import { parseScenario, planScenario } from '@nightyard/scheduling';
 import type { Db } from '../db/client';
 import { plans } from '../db/schema';
 import { isDatabaseUnavailable } from '../db/unavailable';
+import { planResultSchema, type PlanResult } from '@nightyard/contracts';
+import { planFromCutOff } from './night-in-progress';
 import { withPlanLock } from './plan-lock';
+
+async function previousResult(db: Db, id: string | null): Promise<PlanResult | null> {
+  if (!id) return null;
+  const [row] = await db.select({ result: plans.result }).from(plans).where(eq(plans.id, id));
+  return row?.result ? planResultSchema.parse(row.result) : null;
+}
 
 /** Engine runs a plan gets: one more after a run cut short (a killed or restarted worker). */
 export const MAX_PLAN_ATTEMPTS = 2;
@@ -30,7 +38,11 @@ export async function runPlanJob(db: Db, log: Logger, planId: string): Promise<v
     try {
       const parsed = parseScenario(plan.scenario);
       if (!parsed.ok) throw new Error(`The stored scenario is not valid: ${parsed.problems.map((p) => `${p.path}: ${p.message}`).join('; ')}`);
-      const result = await planScenario(parsed.scenario);
+      const from = plan.replanState?.from;
+      const result = from
+        ? await planFromCutOff(parsed.scenario, { from, previousPlanId: plan.replanState?.previousPlanId ?? null, plugged: plan.replanState?.plugged ?? {} },
+          await previousResult(db, plan.replanState?.previousPlanId ?? null))
+        : await planScenario(parsed.scenario);
       await db.update(plans).set({ status: 'done', stage: 'Done', result: result as unknown as Record<string, unknown> }).where(eq(plans.id, planId));
       log.info({ planId, ms: result.solveMs, status: result.status, attempt: plan.attempts }, 'plan generated');
     } catch (err) {

@@ -22,7 +22,7 @@ export function plansRoutes(api: ApiRoutes, deps: AppDeps) {
   api.add(
     { method: 'post', path: '/depots/:depotId/plans', summary: 'Generate a plan for a night in the background', tag: 'plans',
       access: PLANNERS, params: depotIdParamsSchema, body: generatePlanSchema, response: planBody, status: 202 },
-    async ({ user, params, body }) => ({ plan: await plans.generatePlan(db, jobs, user, params.depotId, body.serviceDate, body.includeMidday) }),
+    async ({ user, params, body }) => ({ plan: await plans.generatePlan(db, jobs, user, params.depotId, body.serviceDate, body.includeMidday, deps.clock()) }),
   );
   api.add(
     { method: 'post', path: '/depots/:depotId/plans/what-if', summary: 'Plan an uploaded scenario file as a what-if draft', tag: 'plans',
@@ -52,7 +52,7 @@ export function plansRoutes(api: ApiRoutes, deps: AppDeps) {
     { method: 'post', path: '/plans/:id/publish', summary: 'Publish a finished draft to the yard', tag: 'plans', access: PLANNERS,
       params: planIdParamsSchema, body: publishPlanSchema, response: planBody },
     async ({ user, params, body }) => {
-      const plan = await plans.publishPlan(db, mailer, user, params.id, body.expectedPublishedId, auth.publicUrl);
+      const plan = await plans.publishPlan(db, mailer, user, params.id, body.expectedPublishedId, auth.publicUrl, deps.clock());
       deps.onPlanPublished?.(plan.id);
       return { plan };
     },

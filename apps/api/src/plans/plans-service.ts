@@ -14,6 +14,8 @@ import type { Mailer } from '../mail/mailer';
 import { planPublishedMail } from '../mail/templates';
 import { buildNightScenario } from './night-scenario';
 import { nightStaff } from './night-staff';
+import { cutOffAt, type PlanFrom } from './night-in-progress';
+import { confirmedPlugged } from '../yard/yard-service';
 
 type PlanRow = typeof plans.$inferSelect;
 const creator = aliasedTable(users, 'creator');
@@ -46,7 +48,7 @@ async function loadPlan(db: Db, caller: AuthUser, id: string) {
 /** Stores a new draft version for the night and queues the engine run. */
 async function storeDraft(
   db: Db, jobs: JobQueue, caller: AuthUser, depotId: string, serviceDate: string,
-  values: { kind: PlanRow['kind']; includesMidday: boolean; scenario: ScenarioInput; notes: string[] },
+  values: { kind: PlanRow['kind']; includesMidday: boolean; scenario: ScenarioInput; notes: string[]; planFrom?: PlanFrom },
 ): Promise<PlanSummary> {
   const row = await db.transaction(async (tx) => {
     // Versions count up per night; the depot row lock keeps two requests from taking one number.
@@ -60,7 +62,7 @@ async function storeDraft(
       .values({
         organisationId: caller.organisationId, depotId, serviceDate, version: (last?.v ?? 0) + 1, kind: values.kind,
         includesMidday: values.includesMidday, scenario: values.scenario as unknown as Record<string, unknown>,
-        notes: values.notes, createdBy: caller.id,
+        notes: values.notes, createdBy: caller.id, ...(values.planFrom ? { replanState: values.planFrom } : {}),
       })
       .returning();
     return created!;
@@ -69,8 +71,13 @@ async function storeDraft(
   return toSummary(row, caller.name, null);
 }
 
+/**
+ * Queues a plan for the night after `serviceDate`. A night already under way is planned from now
+ * on: what the published plan said before now stands (or, with none, the buses as they came in),
+ * buses the yard confirmed on a charger stay there, and the notes say so.
+ */
 export async function generatePlan(
-  db: Db, jobs: JobQueue, caller: AuthUser, depotId: string, serviceDate: string, includeMidday: boolean,
+  db: Db, jobs: JobQueue, caller: AuthUser, depotId: string, serviceDate: string, includeMidday: boolean, now: Date,
 ): Promise<PlanSummary> {
   const { scenario, notes } = await buildNightScenario(db, caller, depotId, serviceDate, includeMidday);
   const parsed = parseScenario(scenario);
@@ -78,7 +85,18 @@ export async function generatePlan(
     throw new DomainError('validation_failed', 'The day\'s data does not make a plannable night',
       Object.fromEntries(parsed.problems.map((p) => [p.path, p.message])));
   }
-  return storeDraft(db, jobs, caller, depotId, serviceDate, { kind: 'generated', includesMidday: includeMidday, scenario, notes });
+  const from = cutOffAt(parsed.scenario, now);
+  let planFrom: PlanFrom | undefined;
+  if (from) {
+    const [followed] = await db.select().from(plans).where(and(eq(plans.depotId, depotId), eq(plans.serviceDate, serviceDate), eq(plans.state, 'published')));
+    const result = followed ? resultOf(followed) : null;
+    const plugged = followed && result ? await confirmedPlugged(db, depotId, serviceDate, result, now) : {};
+    planFrom = { from, previousPlanId: result ? followed!.id : null, plugged };
+    notes.unshift(result
+      ? `The night was under way at ${from.slice(11)}: this plan starts then; before it, version ${followed!.version} stands as published${Object.keys(plugged).length ? `, and the ${Object.keys(plugged).length} buses confirmed on a charger stay there` : ''}.`
+      : `The night was under way at ${from.slice(11)} with no published plan: this plan starts then and takes each bus as it arrived (no charging before then).`);
+  }
+  return storeDraft(db, jobs, caller, depotId, serviceDate, { kind: 'generated', includesMidday: includeMidday, scenario, notes, ...(planFrom ? { planFrom } : {}) });
 }
 
 /** A what-if draft from an uploaded scenario file; its night is the day its horizon starts. */
@@ -134,12 +152,12 @@ export async function planScenarioFile(db: Db, caller: AuthUser, id: string): Pr
  * published plan they reviewed against; if another was published meanwhile, they get a conflict.
  */
 export async function publishPlan(
-  db: Db, mailer: Mailer, caller: AuthUser, id: string, expectedPublishedId: string | null, link: (path: string) => string,
+  db: Db, mailer: Mailer, caller: AuthUser, id: string, expectedPublishedId: string | null, link: (path: string) => string, now: Date,
 ): Promise<PlanSummary> {
   const published = await db.transaction(async (tx) => {
     const [plan] = await tx.select().from(plans).where(and(eq(plans.id, id), eq(plans.organisationId, caller.organisationId)));
     if (!plan) throw notFound('That plan');
-    await tx.select({ id: depots.id }).from(depots).where(eq(depots.id, plan.depotId)).for('update');
+    const [depot] = await tx.select({ id: depots.id, timezone: depots.timezone }).from(depots).where(eq(depots.id, plan.depotId)).for('update');
     const [fresh] = await tx.select().from(plans).where(eq(plans.id, id));
     if (fresh!.state !== 'draft') throw conflict(`Version ${fresh!.version} is already ${fresh!.state}: a published plan never changes`);
     if (fresh!.status !== 'done') throw conflict('The plan is not finished yet: wait until it has been generated');
@@ -151,14 +169,14 @@ export async function publishPlan(
     if ((current?.id ?? null) !== expectedPublishedId) {
       throw conflict(
         current
-          ? `Version ${current.version} was published by ${current.by ?? 'someone'} at ${current.at?.toISOString().slice(11, 16)} UTC while you were reviewing: compare with it, then publish again`
+          ? `Version ${current.version} was published by ${current.by ?? 'someone'} at ${current.at ? DateTime.fromJSDate(current.at, { zone: depot!.timezone }).toFormat('HH:mm') : '?'} (depot time) while you were reviewing: compare with it, then publish again`
           : 'The plan you reviewed against is no longer published: reload and compare again',
       );
     }
     if (current) await tx.update(plans).set({ state: 'superseded' }).where(eq(plans.id, current.id));
     const [row] = await tx
       .update(plans)
-      .set({ state: 'published', publishedAt: new Date(), publishedBy: caller.id })
+      .set({ state: 'published', publishedAt: now, publishedBy: caller.id })
       .where(eq(plans.id, id))
       .returning();
     return row!;

@@ -1,3 +1,4 @@
+import { vi } from 'vitest';
 import type { TestUser, createTestApp } from './test-app';
 
 type App = ReturnType<typeof createTestApp>;
@@ -6,12 +7,11 @@ type App = ReturnType<typeof createTestApp>;
 export async function generatedPlan(app: App, user: TestUser, depotId: string, serviceDate: string, includeMidday = false) {
   const res = await app.request().post(`/api/depots/${depotId}/plans`).set({ Authorization: `Bearer ${user.token}` })
     .send({ serviceDate, includeMidday }).expect(202);
-  for (let i = 0; i < 300; i++) {
+  return vi.waitFor(async () => {
     const plan = (await app.request().get(`/api/plans/${res.body.plan.id}`).set({ Authorization: `Bearer ${user.token}` }).expect(200)).body.plan;
-    if (plan.status === 'done' || plan.status === 'failed') return plan;
-    await new Promise((r) => setTimeout(r, 100));
-  }
-  throw new Error('The plan did not finish in 30 s');
+    if (plan.status !== 'done' && plan.status !== 'failed') throw new Error(`The plan is still ${plan.status}`);
+    return plan;
+  }, { timeout: 30_000, interval: 100 });
 }
 
 /** Generates and publishes a night's plan; returns its id. */

@@ -93,4 +93,15 @@ export async function createOrganisation(
   return { organisationId: org!.id, users: out };
 }
 
+/**
+ * Signs the users in again, at the app's clock: after a test moves its clock past the access
+ * tokens' life (15 minutes), the API refuses the old ones as a real one would.
+ */
+export async function signInAgain(app: ReturnType<typeof createTestApp>, ...people: TestUser[]): Promise<void> {
+  for (const u of people) {
+    const res = await app.request().post('/api/auth/login').send({ email: u.email, password: TEST_PASSWORD }).expect(200);
+    u.token = res.body.accessToken;
+  }
+}
+
 export type { Db };

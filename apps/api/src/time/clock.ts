@@ -41,3 +41,9 @@ export function clockFromEnv(env: NodeJS.ProcessEnv = process.env): Clock {
   }
   return clockFrom(new Date(t));
 }
+
+/** A clock the browser tests can move (NODE_ENV=test only): it runs on from each instant set. */
+export function adjustableClock(start: Clock): { clock: Clock; set(at: Date): void } {
+  let current = start;
+  return { clock: () => current(), set: (at) => (current = clockFrom(at)) };
+}

@@ -4,7 +4,7 @@ import type { AppDeps } from '../app-deps';
 import type { ApiRoutes } from '../http/route';
 import { inviteUser, listUsers, updateUser } from './users-service';
 
-export function usersRoutes(api: ApiRoutes, { db, mailer, config, auth }: AppDeps) {
+export function usersRoutes(api: ApiRoutes, { db, mailer, config, auth, clock }: AppDeps) {
   const invite = { inviteHours: config.INVITE_HOURS, publicUrl: auth.publicUrl };
 
   api.add(
@@ -15,12 +15,12 @@ export function usersRoutes(api: ApiRoutes, { db, mailer, config, auth }: AppDep
   api.add(
     { method: 'post', path: '/users/invite', summary: 'Invite someone by e-mail', tag: 'people', access: ['admin'],
       body: inviteUserRequestSchema, response: z.object({ user: userSchema }), status: 201 },
-    async ({ user, body }) => ({ user: await inviteUser(db, mailer, invite, user, body) }),
+    async ({ user, body }) => ({ user: await inviteUser(db, mailer, invite, user, body, clock()) }),
   );
 
   api.add(
     { method: 'patch', path: '/users/:id', summary: 'Change a person\'s name or roles, deactivate or reactivate', tag: 'people',
       access: ['admin'], params: userIdParamsSchema, body: updateUserRequestSchema, response: z.object({ user: userSchema }) },
-    async ({ user, params, body }) => ({ user: await updateUser(db, user, params.id, body) }),
+    async ({ user, params, body }) => ({ user: await updateUser(db, user, params.id, body, clock()) }),
   );
 }

@@ -34,7 +34,7 @@ const cannotInvite = () =>
   new DomainError('conflict', 'That e-mail address cannot be invited: use another address for this person', { email: 'Cannot be invited' });
 
 /** Creates an invited account (or re-sends a pending invitation) and e-mails the link. */
-export async function inviteUser(db: Db, mailer: Mailer, s: InviteSettings, caller: AuthUser, req: InviteUserRequest): Promise<User> {
+export async function inviteUser(db: Db, mailer: Mailer, s: InviteSettings, caller: AuthUser, req: InviteUserRequest, now: Date): Promise<User> {
   const [existing] = await db.select().from(users).where(eq(users.email, req.email));
   if (existing && existing.organisationId === caller.organisationId && existing.status !== 'invited') {
     throw new DomainError('conflict', 'Someone in your organisation already has an account with this e-mail', { email: 'Already in use' });
@@ -52,7 +52,7 @@ export async function inviteUser(db: Db, mailer: Mailer, s: InviteSettings, call
             if ((err as { cause?: { code?: string } }).cause?.code === '23505' || (err as { code?: string }).code === '23505') throw cannotInvite();
             throw err;
           }))[0]!;
-  const token = await createActionToken(db, user.id, 'invite', s.inviteHours * 3_600_000);
+  const token = await createActionToken(db, user.id, 'invite', s.inviteHours * 3_600_000, now);
   const [org] = await db.select({ name: organisations.name }).from(organisations).where(eq(organisations.id, caller.organisationId));
   await mailer.send(
     invitationMail({
@@ -78,7 +78,7 @@ async function activeAdminsOtherThan(db: Db, organisationId: string, userId: str
   return row?.n ?? 0;
 }
 
-export async function updateUser(db: Db, caller: AuthUser, id: string, req: UpdateUserRequest): Promise<User> {
+export async function updateUser(db: Db, caller: AuthUser, id: string, req: UpdateUserRequest, now: Date): Promise<User> {
   return db.transaction(async (tx) => {
     const [user] = await tx
       .select()
@@ -102,7 +102,7 @@ export async function updateUser(db: Db, caller: AuthUser, id: string, req: Upda
       .where(eq(users.id, id))
       .returning();
     if (status === 'deactivated') {
-      await tx.update(refreshTokens).set({ revokedAt: new Date() }).where(and(eq(refreshTokens.userId, id), isNull(refreshTokens.revokedAt)));
+      await tx.update(refreshTokens).set({ revokedAt: now }).where(and(eq(refreshTokens.userId, id), isNull(refreshTokens.revokedAt)));
     }
     return toUser(updated!);
   });

@@ -13,7 +13,9 @@ import type { Mailer } from '../mail/mailer';
 import { planRevisedMail } from '../mail/templates';
 import { nightStaff } from '../plans/night-staff';
 import { comparePlans, getPlan } from '../plans/plans-service';
-import { mergeSessions, yardSteps } from './yard-steps';
+import { yardSteps } from './yard-steps';
+import { mergeReplan } from '../plans/night-in-progress';
+import { nightOfDepot } from '../night/depot-night';
 
 type PlanRow = typeof plans.$inferSelect;
 const confirmer = aliasedTable(users, 'confirmer');
@@ -21,18 +23,12 @@ const LOCAL = "yyyy-MM-dd'T'HH:mm";
 
 const horizonOf = (r: PlanResult) => ({ from: Date.parse(r.slots[0]!.start), to: Date.parse(r.slots.at(-1)!.start) + 15 * 60_000 });
 
-/** The published plan in force now, or else the next one to start. */
-async function tonightsPlan(db: Db, depotId: string, now: Date): Promise<PlanRow | null> {
-  const rows = await db.select().from(plans).where(and(eq(plans.depotId, depotId), eq(plans.state, 'published'))).orderBy(desc(plans.serviceDate)).limit(14);
-  const t = now.getTime();
-  let upcoming: PlanRow | null = null;
-  for (const p of rows) {
-    if (!p.result) continue;
-    const h = horizonOf(planResultSchema.parse(p.result));
-    if (h.from <= t && t < h.to) return p;
-    if (h.from > t && (!upcoming || h.from < horizonOf(planResultSchema.parse(upcoming.result)).from)) upcoming = p;
-  }
-  return upcoming;
+/** The published plan of tonight (the night in force, else the next one), as the night model says. */
+async function tonightsPlan(db: Db, depot: { id: string; timezone: string }, now: Date): Promise<PlanRow | null> {
+  const { tonight } = await nightOfDepot(db, depot, now);
+  const [plan] = await db.select().from(plans).where(and(
+    eq(plans.depotId, depot.id), eq(plans.serviceDate, tonight.serviceDate), eq(plans.state, 'published')));
+  return plan?.result ? plan : null;
 }
 
 async function confirmationsOf(db: Db, depotId: string, serviceDate: string) {
@@ -44,9 +40,21 @@ async function confirmationsOf(db: Db, depotId: string, serviceDate: string) {
   return new Map(rows.map((r) => [r.key, { at: r.at, by: r.by }]));
 }
 
+/** Buses the yard confirmed on a charger (and not yet off it) at `cutAt`, per the plan followed. */
+export async function confirmedPlugged(db: Db, depotId: string, serviceDate: string, followed: PlanResult, cutAt: Date): Promise<Record<string, string>> {
+  const confirmations = await confirmationsOf(db, depotId, serviceDate);
+  const plugged: Record<string, string> = {};
+  for (const step of yardSteps(followed, cutAt, confirmations)) {
+    const done = confirmations.has(step.key);
+    if (step.action === 'connect' && done && Date.parse(step.at) <= cutAt.getTime()) plugged[step.bus] = step.charger;
+    if (step.action === 'disconnect' && done && plugged[step.bus] === step.charger) delete plugged[step.bus];
+  }
+  return plugged;
+}
+
 export async function tonight(db: Db, caller: AuthUser, depotId: string, now: Date): Promise<Tonight> {
   const depot = await depotOf(db, caller, depotId);
-  const plan = await tonightsPlan(db, depotId, now);
+  const plan = await tonightsPlan(db, depot, now);
   const base = { depot: { id: depot.id, name: depot.name, timezone: depot.timezone }, now: now.toISOString() };
   if (!plan) return { ...base, plan: null, steps: [], acknowledged: false, reports: [] };
   const result = planResultSchema.parse(plan.result);
@@ -98,8 +106,7 @@ export async function confirmStep(db: Db, caller: AuthUser, planId: string, key:
 }
 
 export async function acknowledgeShift(db: Db, caller: AuthUser, depotId: string, now: Date): Promise<void> {
-  await depotOf(db, caller, depotId);
-  const plan = await tonightsPlan(db, depotId, now);
+  const plan = await tonightsPlan(db, await depotOf(db, caller, depotId), now);
   if (!plan) throw conflict('There is no plan for tonight to start a shift on');
   await db.insert(shiftAcknowledgements).values({ userId: caller.id, depotId, serviceDate: plan.serviceDate }).onConflictDoNothing();
 }
@@ -157,13 +164,7 @@ export async function reportProblem(
   }
 
   // Connected buses stay where they are, unless their charger has just failed.
-  const confirmations = await confirmationsOf(db, depotId, plan.serviceDate);
-  const plugged: Record<string, string> = {};
-  for (const step of yardSteps(previous, cutAt, confirmations)) {
-    const done = confirmations.has(step.key);
-    if (step.action === 'connect' && done && Date.parse(step.at) <= cutAt.getTime()) plugged[step.bus] = step.charger;
-    if (step.action === 'disconnect' && done && plugged[step.bus] === step.charger) delete plugged[step.bus];
-  }
+  const plugged = await confirmedPlugged(db, depotId, plan.serviceDate, previous, cutAt);
   for (const [bus, charger] of Object.entries(plugged)) {
     if (state.outOfService.includes(charger) || state.absent.includes(bus) || state.lateArrivals[bus]) delete plugged[bus];
   }
@@ -192,14 +193,7 @@ export async function reportProblem(
   const replanMs = Math.round(performance.now() - t0);
 
   // The night as a whole: what was kept before the cut-off, then the re-plan.
-  const firstNew = Date.parse(next.replan.from);
-  const newLoad = new Map(next.slots.map((s) => [Date.parse(s.start), s.loadKw]));
-  const merged = {
-    ...next,
-    slots: previous.slots.map((s) => (Date.parse(s.start) >= firstNew ? { ...s, loadKw: newLoad.get(Date.parse(s.start)) ?? s.loadKw } : s)),
-    sessions: mergeSessions(next.replan.kept, next.sessions),
-    replan: { from: next.replan.from, outOfService: next.replan.outOfService, plugged: next.replan.plugged },
-  };
+  const merged = mergeReplan(previous, next);
   const describe = {
     charger_out: () => `charger ${'charger' in report ? report.charger : ''} out of service${'reason' in report && report.reason ? ` (${report.reason})` : ''}`,
     bus_late: () => `bus ${'bus' in report ? report.bus : ''} late, expected ${'expectedAt' in report ? report.expectedAt.slice(11) : ''}`,

@@ -7,10 +7,11 @@ import { createDepot } from '../testing/depot-fixture';
 import { addBuses, dayRuns } from '../testing/fleet-fixture';
 import { mailFor } from '../testing/mail';
 import { publishedPlan } from '../testing/plan-fixture';
-import { createOrganisation, createTestApp, type TestUser } from '../testing/test-app';
+import { createOrganisation, createTestApp, signInAgain, type TestUser } from '../testing/test-app';
 
 const ZONE = 'America/Chicago';
-let clock = DateTime.fromISO('2026-12-09T23:00', { zone: ZONE }).toJSDate();
+// The plan is made and published in the afternoon; the yard's night is then looked at from 23:00.
+let clock = DateTime.fromISO('2026-12-09T13:00', { zone: ZONE }).toJSDate();
 const app = createTestApp({ clock: () => clock });
 let yard: TestUser;
 let sup: TestUser;
@@ -33,6 +34,8 @@ beforeAll(async () => {
     await app.request().put(`/api/depots/${depotId}/service-days/${date}`).set(as(sup)).send({ runs: dayRuns(date, NUMBERS, () => 16) }).expect(200);
   }
   await publishedPlan(app, sup, depotId, '2026-12-09');
+  clock = DateTime.fromISO('2026-12-09T23:00', { zone: ZONE }).toJSDate();
+  await signInAgain(app, yard, sup);
   const other = await createOrganisation(app, { s: ['supervisor'] });
   otherDepotBus = (await addBuses(app.db, other.organisationId, (await createDepot(app.db, other.organisationId)).depot.id, ['99']))[0]!.number;
 });
@@ -105,6 +108,7 @@ describe('yard: reports re-plan the rest of the night', () => {
 
   it('a late bus: its sessions move after its new time', async () => {
     clock = DateTime.fromISO('2026-12-09T23:30', { zone: ZONE }).toJSDate();
+    await signInAgain(app, yard, sup);
     const before = await tonight();
     const prev: PlanResult = before.plan.result;
     const cut = clock.getTime();
@@ -141,6 +145,7 @@ describe('yard: reports re-plan the rest of the night', () => {
 
   it('a measured state of charge re-plans from the reading', async () => {
     clock = DateTime.fromISO('2026-12-09T23:45', { zone: ZONE }).toJSDate();
+    await signInAgain(app, yard, sup);
     const current = await tonight();
     const res = await app.request().post(`/api/depots/${depotId}/tonight/reports`).set(as(yard))
       .send({ planId: current.plan.id, kind: 'soc_reading', bus: '42', socPct: 88 }).expect(201);
