@@ -70,8 +70,10 @@ export function createApp(deps: AppDeps): BuiltApp {
   );
 
   const router = express.Router();
-  // The client's clock follows the API's (tests and development may stand it at a fixed instant).
   router.use((_req, res, next) => {
+    // API answers carry tokens and organisation data: no browser or proxy may keep them.
+    res.setHeader('Cache-Control', 'no-store');
+    // The client's clock follows the API's (tests and development may stand it at a fixed instant).
     res.setHeader('X-Server-Time', String(deps.clock().getTime()));
     next();
   });
@@ -89,7 +91,7 @@ export function createApp(deps: AppDeps): BuiltApp {
       try {
         await deps.ping();
       } catch {
-        res.status(503).json({ error: { code: 'internal', message: 'The database does not answer' } });
+        res.status(503).json({ error: { code: 'unavailable', message: 'The database does not answer' } });
         return;
       }
       return { status: 'ok' as const };

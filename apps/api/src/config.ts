@@ -18,14 +18,18 @@ const configSchema = z.object({
   FAKE_MAIL_URL: z.string().url().optional(),
   WEB_DIST: z.string().optional(),
   MIGRATIONS_DIR: z.string().optional(),
-  SEED_DEMO: z.enum(['if-empty', 'never']).default('if-empty'),
+  /**
+   * Demo district and accounts on an empty database: `if-empty` (the default outside production),
+   * `never` (the default in production), `always` (seed an empty database even in production).
+   */
+  SEED_DEMO: z.enum(['if-empty', 'never', 'always']).optional(),
   LOG_LEVEL: z.enum(['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent']).default('info'),
   LOGIN_MAX_FAILURES_PER_ACCOUNT: z.coerce.number().int().min(1).default(5),
   LOGIN_MAX_FAILURES_PER_ADDRESS: z.coerce.number().int().min(1).default(20),
   LOGIN_WINDOW_MINUTES: z.coerce.number().int().min(1).default(15),
 });
 
-export type Config = z.infer<typeof configSchema>;
+export type Config = Omit<z.infer<typeof configSchema>, 'SEED_DEMO'> & { SEED_DEMO: 'if-empty' | 'never' | 'always' };
 
 export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
   const parsed = configSchema.safeParse(env);
@@ -36,5 +40,14 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
   if (parsed.data.NODE_ENV === 'production' && parsed.data.JWT_SECRET.startsWith('development-only')) {
     throw new Error('Configuration is not valid:\n  JWT_SECRET: set a long random secret in production');
   }
-  return parsed.data;
+  const production = parsed.data.NODE_ENV === 'production';
+  if (production && parsed.data.SEED_DEMO === 'if-empty') {
+    throw new Error('Configuration is not valid:\n  SEED_DEMO: production never gets the demo accounts by default; set SEED_DEMO=always to seed an empty database on purpose');
+  }
+  return { ...parsed.data, SEED_DEMO: parsed.data.SEED_DEMO ?? (production ? 'never' : 'if-empty') };
+}
+
+/** Whether an empty database gets the demo district and its well-known demo passwords. */
+export function wantsDemoSeed(config: Pick<Config, 'SEED_DEMO'>): boolean {
+  return config.SEED_DEMO !== 'never';
 }

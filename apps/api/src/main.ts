@@ -1,13 +1,14 @@
 import path from 'node:path';
-import { pino } from 'pino';
 import { sql } from 'drizzle-orm';
 import { createApp } from './app';
-import { loadConfig } from './config';
+import { loadConfig, wantsDemoSeed } from './config';
+import { createLogger } from './logging';
+import { installProcessGuards } from './process-guards';
 import { createDb, createPool } from './db/client';
 import { applyMigrations } from './db/migrate';
 import { smtpMailer } from './mail/mailer';
 import { startJobQueue } from './jobs/job-queue';
-import { runPlanJob } from './plans/plan-runner';
+import { recoverInterruptedPlans, runPlanJob } from './plans/plan-runner';
 import { loadSolver } from '@nightyard/scheduling';
 import { CentralSystem } from './ocpp/central-system';
 import { adjustableClock, clockFromEnv } from './time/clock';
@@ -18,26 +19,33 @@ const config = loadConfig();
 // The browser tests move the clock from spec to spec; nothing else can (see dev/test-control-routes).
 const testControl = config.NODE_ENV === 'test' && process.env.NIGHTYARD_TEST_CONTROL === '1' ? adjustableClock(clockFromEnv()) : null;
 const clock = testControl?.clock ?? clockFromEnv();
-const log = pino({ level: config.LOG_LEVEL, base: { service: 'nightyard-api' } });
+const log = createLogger({ level: config.LOG_LEVEL, service: 'nightyard-api' });
+installProcessGuards(log);
 // Paths come from the environment or the working directory, never from this file's location,
 // so the same code runs from source (tsx) and from the bundle in dist/.
 const migrationsDir = config.MIGRATIONS_DIR ?? path.resolve('drizzle');
 const webDist = config.WEB_DIST ?? path.resolve('dist/web/browser');
 const publicBase = config.PUBLIC_URL ?? `http://localhost:${config.PORT}`;
 
-const pool = createPool(config.DATABASE_URL);
+const pool = createPool(config.DATABASE_URL, log);
 const db = createDb(pool);
 
 await applyMigrations(db, migrationsDir);
 log.info({ migrationsDir }, 'migrations applied');
-if (config.SEED_DEMO === 'if-empty' && (await isEmpty(db))) {
+// Production seeds nothing unless SEED_DEMO=always says so (see config.ts).
+if (wantsDemoSeed(config) && (await isEmpty(db))) {
   await seedDemo(db, clock());
   log.info('demo data seeded');
 }
 
 // The engine's solver loads once and is warmed before the first plan is asked for.
 await loadSolver();
-const jobs = await startJobQueue({ databaseUrl: config.DATABASE_URL, log, work: (id) => runPlanJob(db, log, id) });
+const jobs = await startJobQueue({
+  databaseUrl: config.DATABASE_URL,
+  log,
+  work: (id) => runPlanJob(db, log, id),
+  recover: (queue) => recoverInterruptedPlans(db, log, queue),
+});
 
 const central = new CentralSystem(db, log, clock);
 
@@ -72,19 +80,16 @@ const server = app.listen(config.PORT, '127.0.0.1', () => {
     '',
     `Nightyard is running at ${publicBase}`,
     '',
-    `Demo sign-ins (password: ${DEMO_PASSWORD}):`,
-    ...demoUsers.map((u) => `  ${u.email.padEnd(36)} ${u.roles.join(' + ')}`),
-    '',
+    ...(wantsDemoSeed(config)
+      ? [`Demo sign-ins (password: ${DEMO_PASSWORD}):`, ...demoUsers.map((u) => `  ${u.email.padEnd(36)} ${u.roles.join(' + ')}`), '']
+      : []),
   ];
   if (config.NODE_ENV !== 'test') console.log(lines.join('\n'));
   log.info({ port: config.PORT }, 'listening');
 });
 
-// Chargers connect to ws://host:PORT/ocpp/<identity> (OCPP-J); everything else is not upgraded.
-server.on('upgrade', (req, socket, head) => {
-  if (req.url?.startsWith('/ocpp/')) void central.handleUpgrade(req, socket as import('node:net').Socket, head);
-  else socket.destroy();
-});
+// Chargers connect to ws://host:PORT/ocpp/<identity> (OCPP-J); everything else is refused.
+central.attachTo(server);
 
 let stopping = false;
 const shutdown = (signal: string) => {

@@ -1,18 +1,25 @@
-import { pino } from 'pino';
 import { loadConfig } from './config';
+import { createLogger } from './logging';
+import { installProcessGuards } from './process-guards';
 import { createDb, createPool } from './db/client';
 import { startJobQueue } from './jobs/job-queue';
-import { runPlanJob } from './plans/plan-runner';
+import { recoverInterruptedPlans, runPlanJob } from './plans/plan-runner';
 import { loadSolver } from '@nightyard/scheduling';
 
 // `npm run worker`: an extra process that takes plan jobs from the queue in PostgreSQL. Run as
 // many as the machines allow; each job is worked once.
 const config = loadConfig();
-const log = pino({ level: config.LOG_LEVEL, base: { service: 'nightyard-worker' } });
-const pool = createPool(config.DATABASE_URL);
+const log = createLogger({ level: config.LOG_LEVEL, service: 'nightyard-worker' });
+installProcessGuards(log);
+const pool = createPool(config.DATABASE_URL, log);
 const db = createDb(pool);
 await loadSolver();
-const jobs = await startJobQueue({ databaseUrl: config.DATABASE_URL, log, work: (id) => runPlanJob(db, log, id) });
+const jobs = await startJobQueue({
+  databaseUrl: config.DATABASE_URL,
+  log,
+  work: (id) => runPlanJob(db, log, id),
+  recover: (queue) => recoverInterruptedPlans(db, log, queue),
+});
 log.info('worker waiting for plan jobs');
 
 let stopping = false;

@@ -17,7 +17,7 @@ function setRefreshCookie(req: Request, res: Response, token: string, expires: D
 
 const messageSchema = z.object({ message: z.string() });
 
-export function authRoutes(api: ApiRoutes, { db, auth: settings, mailer, clock }: AppDeps) {
+export function authRoutes(api: ApiRoutes, { db, auth: settings, mailer, log, clock }: AppDeps) {
   api.add(
     { method: 'post', path: '/auth/login', summary: 'Sign in with e-mail and password', tag: 'auth', access: 'public',
       body: loginRequestSchema, response: tokenResponseSchema },
@@ -54,8 +54,8 @@ export function authRoutes(api: ApiRoutes, { db, auth: settings, mailer, clock }
   api.add(
     { method: 'post', path: '/auth/forgot', summary: 'Send a password reset link if the account exists', tag: 'auth',
       access: 'public', body: forgotPasswordRequestSchema, response: messageSchema, status: 202 },
-    async ({ body }) => {
-      await auth.forgotPassword(db, settings, mailer, body.email, clock());
+    async ({ body, req }) => {
+      await auth.forgotPassword(db, settings, mailer, log, body.email, req.ip ?? 'unknown', clock());
       return { message: 'If an account exists for that address, a link to reset the password is on its way.' };
     },
   );

@@ -7,7 +7,9 @@ import { DomainError, unauthenticated } from '../http/errors';
 import type { Mailer } from '../mail/mailer';
 import { resetMail } from '../mail/templates';
 import { signAccessToken } from './access-tokens';
+import type { Logger } from 'pino';
 import { assertLoginAllowed, recordLoginAttempt, type ThrottleLimits } from './login-throttle';
+import { DEFAULT_RESET_LIMITS, takeResetSlot, type ResetLimits } from './reset-throttle';
 import { DUMMY_HASH, checkPassword, hashPassword, hashToken, newOpaqueToken } from './secrets';
 
 export interface AuthSettings {
@@ -16,6 +18,8 @@ export interface AuthSettings {
   refreshTokenDays: number;
   resetMinutes: number;
   throttle: ThrottleLimits;
+  /** Password-reset throttle; the defaults (5 an hour per account, 20 per 15 minutes per client) otherwise. */
+  resetThrottle?: ResetLimits;
   publicUrl: (path: string) => string;
 }
 
@@ -112,11 +116,26 @@ export async function createActionToken(db: Db, userId: string, purpose: 'invite
   return token;
 }
 
-/** Always answers the same way, so the form cannot be used to learn who has an account. */
-export async function forgotPassword(db: Db, s: AuthSettings, mailer: Mailer, email: string, now: Date): Promise<void> {
+/**
+ * Always answers the same way, in about the same time, so the form cannot be used to learn who
+ * has an account: the same reads and the same token work happen for every address, and the
+ * token is stored and the e-mail sent after the answer, off the request path. Beyond the
+ * throttle (per account and per client address) nothing is sent, and the answer is unchanged.
+ */
+export async function forgotPassword(db: Db, s: AuthSettings, mailer: Mailer, log: Logger, email: string, ip: string, now: Date): Promise<void> {
+  const allowed = await takeResetSlot(db, s.resetThrottle ?? DEFAULT_RESET_LIMITS, email, ip, now);
   const [user] = await db.select().from(users).where(eq(users.email, email));
-  if (!user || user.status !== 'active') return;
-  const token = await createActionToken(db, user.id, 'reset', s.resetMinutes * 60_000, now);
+  const { token, hash } = newOpaqueToken();
+  if (!allowed || !user || user.status !== 'active') return;
+  void deliverReset(db, s, mailer, user, token, hash, now).catch((err: unknown) => log.error({ err, userId: user.id }, 'password reset e-mail not sent'));
+}
+
+async function deliverReset(db: Db, s: AuthSettings, mailer: Mailer, user: { id: string; email: string; name: string }, token: string, hash: string, now: Date) {
+  await db
+    .update(actionTokens)
+    .set({ usedAt: now })
+    .where(and(eq(actionTokens.userId, user.id), eq(actionTokens.purpose, 'reset'), isNull(actionTokens.usedAt)));
+  await db.insert(actionTokens).values({ userId: user.id, purpose: 'reset', tokenHash: hash, expiresAt: new Date(now.getTime() + s.resetMinutes * 60_000) });
   await mailer.send(
     resetMail({ to: user.email, name: user.name, link: s.publicUrl(`/set-password?token=${token}`), minutes: s.resetMinutes }),
   );

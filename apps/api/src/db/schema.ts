@@ -79,6 +79,18 @@ export const loginAttempts = pgTable(
   (t) => [index('login_attempts_email_idx').on(t.email, t.at), index('login_attempts_ip_idx').on(t.ip, t.at)],
 );
 
+/** Password-reset requests, counted per account address and per client address (throttle). */
+export const passwordResetRequests = pgTable(
+  'password_reset_requests',
+  {
+    id: id(),
+    email: text('email').notNull(),
+    ip: text('ip').notNull(),
+    at: createdAt(),
+  },
+  (t) => [index('password_reset_requests_email_idx').on(t.email, t.at), index('password_reset_requests_ip_idx').on(t.ip, t.at)],
+);
+
 export const depots = pgTable(
   'depots',
   {
@@ -262,6 +274,8 @@ export const plans = pgTable(
     status: planJobStatus('status').notNull().default('queued'),
     stage: text('stage').notNull().default('Waiting for a worker'),
     error: text('error'),
+    /** Engine runs started for this plan; a run cut short (process killed) is retried once. */
+    attempts: integer('attempts').notNull().default(0),
     includesMidday: boolean('includes_midday').notNull().default(true),
     scenario: jsonb('scenario').$type<Record<string, unknown>>().notNull(),
     notes: jsonb('notes').$type<string[]>().notNull().default([]),

@@ -134,7 +134,10 @@ export async function updateCabinet(db: Db, caller: AuthUser, depotId: string, i
 
 export async function deleteCabinet(db: Db, caller: AuthUser, depotId: string, id: string): Promise<void> {
   await depotOf(db, caller, depotId);
-  const [n] = await db.select({ n: sql<number>`count(*)::int` }).from(chargers).where(eq(chargers.cabinetId, id));
+  // Another depot's (or organisation's) cabinet is "not found" before anything is said about it.
+  const [cab] = await db.select({ id: powerCabinets.id }).from(powerCabinets).where(and(eq(powerCabinets.id, id), eq(powerCabinets.depotId, depotId)));
+  if (!cab) throw notFound('That power cabinet');
+  const [n] = await db.select({ n: sql<number>`count(*)::int` }).from(chargers).where(and(eq(chargers.cabinetId, id), eq(chargers.depotId, depotId)));
   if ((n?.n ?? 0) > 0) throw new DomainError('conflict', `${n!.n} chargers are on this cabinet: move them first`);
   const gone = await db.delete(powerCabinets).where(and(eq(powerCabinets.id, id), eq(powerCabinets.depotId, depotId))).returning({ id: powerCabinets.id });
   if (!gone.length) throw notFound('That power cabinet');

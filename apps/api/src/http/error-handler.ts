@@ -1,6 +1,11 @@
 import type { ErrorRequestHandler, RequestHandler } from 'express';
 import type { ErrorBody } from '@nightyard/contracts';
+import { isDatabaseUnavailable } from '../db/unavailable';
+import { scrubError } from '../logging';
 import { DomainError, STATUS_BY_CODE } from './errors';
+
+/** Seconds a caller is asked to wait while the database is away. */
+const RETRY_AFTER_SECONDS = 5;
 
 /** Turns every failure into `{ error: { code, message, fields? } }`; never sends a stack trace. */
 export const errorHandler: ErrorRequestHandler = (err, req, res, _next) => {
@@ -26,7 +31,14 @@ export const errorHandler: ErrorRequestHandler = (err, req, res, _next) => {
     res.status(415).json(body('bad_request', 'Send the body as UTF-8 JSON'));
     return;
   }
-  req.log?.error({ err }, 'unhandled error');
+  if (isDatabaseUnavailable(err)) {
+    req.log?.warn({ err: scrubError(err) }, 'database unavailable');
+    res.setHeader('Retry-After', String(RETRY_AFTER_SECONDS));
+    res.status(503).json(body('unavailable', 'The database is not reachable just now: nothing was changed; try again in a few seconds'));
+    return;
+  }
+  // Scrubbed here too, whatever logger the app was given: a failed query's values may be secrets.
+  req.log?.error({ err: scrubError(err) }, 'unhandled error');
   res.status(500).json(body('internal', 'Something went wrong on our side; the request was not carried out'));
 };
 

@@ -23,6 +23,8 @@ export const STATUS_BY_CODE: Record<ErrorCode, number> = {
   payload_too_large: 413,
   too_many_requests: 429,
   internal: 500,
+  /** A service the API needs (the database) is away for a moment; the caller may retry. */
+  unavailable: 503,
 };
 
 export const notFound = (what: string) => new DomainError('not_found', `${what} was not found`);

@@ -1,6 +1,6 @@
 import { and, desc, eq, isNotNull } from 'drizzle-orm';
-import type { IncomingMessage } from 'node:http';
-import type { Socket } from 'node:net';
+import type { IncomingMessage, Server } from 'node:http';
+import type { Duplex } from 'node:stream';
 import { RPCServer, createRPCError } from 'ocpp-rpc';
 import type { Logger } from 'pino';
 import { planResultSchema } from '@nightyard/contracts';
@@ -8,8 +8,10 @@ import type { Clock } from '../time/clock';
 import { nightOfDepot } from '../night/depot-night';
 import type { Db } from '../db/client';
 import { chargers, depots, plans } from '../db/schema';
-import { checkPassword } from '../auth/secrets';
+import { DUMMY_HASH, checkPassword } from '../auth/secrets';
 import { chargingProfiles, type OcppVersion } from './charging-profiles';
+import { FailureThrottle } from './failure-throttle';
+import { LiveStateWriter } from './live-state-writer';
 
 type RpcClient = {
   identity: string;
@@ -17,6 +19,7 @@ type RpcClient = {
   session: { chargerId: string; depotId: string };
   handle(method: string, handler: (args: { params: Record<string, unknown> }) => unknown): void;
   call(method: string, params: unknown): Promise<unknown>;
+  close(opts?: { code?: number; reason?: string; force?: boolean }): Promise<unknown>;
   on(event: 'close', listener: () => void): void;
 };
 
@@ -52,79 +55,235 @@ export function powerFromMeterValues(meterValue: unknown): number | null {
   return null;
 }
 
+
+/** Subprotocols spoken; a connection must offer one so every message is schema-checked. */
+export const OCPP_PROTOCOLS = ['ocpp1.6', 'ocpp2.0.1'] as const;
+/** Largest WebSocket message taken; OCPP messages are a few kB (a long profile stays far below). */
+export const MAX_FRAME_BYTES = 64 * 1024;
+/**
+ * Wrong passwords allowed in the window per charger identity and per client address. The address
+ * limit is higher: a depot's chargers often reach us through one NAT or cellular router, and one
+ * misconfigured charger must not lock out the others.
+ */
+export interface AuthFailureLimits {
+  perIdentity: number;
+  perAddress: number;
+  windowMs: number;
+}
+export const DEFAULT_AUTH_FAILURE_LIMITS: AuthFailureLimits = { perIdentity: 10, perAddress: 50, windowMs: 5 * 60_000 };
+const MAX_OCPP_INTEGER = 2 ** 31 - 1;
+const WRONG_CREDENTIALS = 'Unknown charger identity or wrong password';
+
+/** Writes a plain HTTP refusal on a socket that asked for an upgrade, and closes it. */
+export function refuseUpgrade(socket: Duplex, status: 400 | 401 | 404 | 500 | 503, message: string): void {
+  const reason = { 400: 'Bad Request', 401: 'Unauthorized', 404: 'Not Found', 500: 'Internal Server Error', 503: 'Service Unavailable' }[status];
+  if (socket.writable) {
+    socket.write(`HTTP/1.1 ${status} ${reason}\r\nConnection: close\r\nContent-Type: text/plain\r\nContent-Length: ${Buffer.byteLength(message)}\r\n\r\n${message}`);
+  }
+  socket.destroy();
+}
+
+/**
+ * The charger's address for the throttle. Behind the reverse proxy on this machine (the only one
+ * trusted, as for the HTTP API) it is the last X-Forwarded-For entry, the one the proxy added.
+ */
+function clientAddress(req: IncomingMessage): string {
+  const peer = req.socket.remoteAddress ?? 'unknown';
+  const forwarded = req.headers['x-forwarded-for'];
+  const loopback = peer === '127.0.0.1' || peer === '::1' || peer === '::ffff:127.0.0.1';
+  if (!loopback || typeof forwarded !== 'string') return peer;
+  return forwarded.split(',').pop()?.trim() || peer;
+}
+
+/** Connector and EVSE ids are 32-bit in OCPP and in the database; a larger one is a protocol error. */
+function assertIdsInRange(params: Record<string, unknown> | undefined) {
+  const evse = params?.evse as Record<string, unknown> | undefined;
+  const ids = [['connectorId', params?.connectorId], ['evseId', params?.evseId], ['evse.id', evse?.id], ['evse.connectorId', evse?.connectorId]] as const;
+  for (const [name, value] of ids) {
+    if (typeof value === 'number' && (value > MAX_OCPP_INTEGER || value < 0)) {
+      throw createRPCError('PropertyConstraintViolation', `${name} must be between 0 and ${MAX_OCPP_INTEGER}`);
+    }
+  }
+}
+
 /**
  * The OCPP-J central system: chargers connect over WebSocket (security profile 1: HTTP basic auth
  * with a per-charger password), report their state, and receive the published plan as charging
- * profiles. Messages are checked against the official schemas (strict mode).
+ * profiles. Messages are checked against the official schemas (strict mode; a subprotocol is
+ * required so that always applies).
  */
 export class CentralSystem {
   readonly server: InstanceType<typeof RPCServer>;
+  /** The current connection of each charger: a reconnect replaces it, the older one's close is ignored. */
   private readonly connected = new Map<string, RpcClient>();
+  private readonly writers = new Map<string, LiveStateWriter>();
+  private readonly failuresByIdentity: FailureThrottle;
+  private readonly failuresByAddress: FailureThrottle;
 
-  constructor(private readonly db: Db, private readonly log: Logger, private readonly clock: Clock) {
-    this.server = new RPCServer({ protocols: ['ocpp1.6', 'ocpp2.0.1'], strictMode: true, pingIntervalMs: 30_000 });
+  constructor(
+    private readonly db: Db,
+    private readonly log: Logger,
+    private readonly clock: Clock,
+    limits: AuthFailureLimits = DEFAULT_AUTH_FAILURE_LIMITS,
+  ) {
+    this.failuresByIdentity = new FailureThrottle(limits.perIdentity, limits.windowMs, clock);
+    this.failuresByAddress = new FailureThrottle(limits.perAddress, limits.windowMs, clock);
+    this.server = new RPCServer({
+      protocols: [...OCPP_PROTOCOLS], strictMode: true, pingIntervalMs: 30_000,
+      // Bad messages answer with the protocol's error code and a plain text, never a stack.
+      respondWithDetailedErrors: false,
+      wssOptions: { maxPayload: MAX_FRAME_BYTES },
+    });
     this.server.auth((accept, reject, handshake) => {
-      this.authenticate(handshake.identity, handshake.password)
-        .then((session) => (session ? accept(session) : reject(401, 'Unknown charger identity or wrong password')))
-        .catch(() => reject(500, 'Authentication failed'));
+      if (!OCPP_PROTOCOLS.some((p) => handshake.protocols.has(p))) {
+        reject(400, `Offer the WebSocket subprotocol ${OCPP_PROTOCOLS.join(' or ')}`);
+        return;
+      }
+      const identity = handshake.identity;
+      const address = clientAddress(handshake.request as IncomingMessage);
+      if (this.failuresByIdentity.blocked(identity) || this.failuresByAddress.blocked(address)) {
+        reject(401, WRONG_CREDENTIALS);
+        return;
+      }
+      this.authenticate(identity, handshake.password)
+        .then((session) => {
+          if (session) return accept(session);
+          this.failuresByIdentity.fail(identity);
+          this.failuresByAddress.fail(address);
+          reject(401, WRONG_CREDENTIALS);
+        })
+        .catch((err: unknown) => {
+          this.log.warn({ err }, 'charger sign-in could not be checked');
+          reject(503, 'The central system cannot check credentials just now: retry');
+        });
     });
     this.server.on('client', (client: unknown) => this.attach(client as RpcClient));
+    this.server.on('error', (err: unknown) => this.log.warn({ err }, 'OCPP server error'));
   }
 
-  get handleUpgrade(): (req: IncomingMessage, socket: Socket, head: Buffer) => Promise<void> {
-    return this.server.handleUpgrade;
+  /**
+   * Takes a WebSocket upgrade for /ocpp/<identity>. Never throws and never leaves a promise
+   * unhandled: whatever fails (a malformed address, the library, the database) ends in an HTTP
+   * error on the socket and the socket closed.
+   */
+  readonly handleUpgrade = (req: IncomingMessage, socket: Duplex, head: Buffer): void => {
+    // Errors on the raw socket before the library attaches its own listener (a reset, a write
+    // after the peer left) would otherwise be thrown as unhandled 'error' events.
+    socket.on('error', (err) => this.log.debug({ err }, 'charger socket error'));
+    try {
+      // The identity exactly as ocpp-rpc will read it (which throws on malformed percent-encoding).
+      const identity = decodeURIComponent(new URL(`http://localhost${req.url || '/'}`).pathname.split('/').pop() ?? '');
+      if (!identity) throw new URIError('no identity');
+    } catch {
+      refuseUpgrade(socket, 400, 'The address must be /ocpp/<charger identity>, percent-encoded as UTF-8');
+      return;
+    }
+    this.server.handleUpgrade(req, socket as never, head).catch((err: unknown) => {
+      this.log.error({ err }, 'OCPP upgrade failed');
+      refuseUpgrade(socket, 500, 'The connection could not be set up');
+    });
+  };
+
+  /** Routes an HTTP server's upgrade requests: /ocpp/<identity> here, anything else refused. */
+  attachTo(server: Server): void {
+    server.on('upgrade', (req: IncomingMessage, socket: Duplex, head: Buffer) => {
+      if (req.url?.startsWith('/ocpp/')) this.handleUpgrade(req, socket, head);
+      else refuseUpgrade(socket, 404, 'Only /ocpp/<charger identity> takes WebSocket connections');
+    });
   }
 
   private async authenticate(identity: string, password: Buffer | undefined) {
     const [c] = await this.db.select().from(chargers).where(eq(chargers.ocppIdentity, identity));
-    if (!c?.ocppPasswordHash || !password) return null;
-    if (!(await checkPassword(password.toString('utf8'), c.ocppPasswordHash))) return null;
+    // One bcrypt comparison whether or not the identity exists: timing does not tell which do.
+    const ok = await checkPassword(password?.toString('utf8') ?? '', c?.ocppPasswordHash ?? DUMMY_HASH);
+    if (!c?.ocppPasswordHash || !password || !ok) return null;
     return { chargerId: c.id, depotId: c.depotId };
+  }
+
+  private writerFor(chargerId: string): LiveStateWriter {
+    let writer = this.writers.get(chargerId);
+    if (!writer) {
+      writer = new LiveStateWriter(
+        (values) =>
+          this.db.update(chargers).set({ ...values, liveSeenAt: this.clock() }).where(eq(chargers.id, chargerId)).then(
+            () => undefined,
+            (err: unknown) => this.log.warn({ err, chargerId }, 'live status not stored'),
+          ),
+        this.clock,
+      );
+      this.writers.set(chargerId, writer);
+    }
+    return writer;
+  }
+
+  /** Resolves once every charger's pending live-state write has been made (tests, shutdown). */
+  async settled(): Promise<void> {
+    await Promise.all([...this.writers.values()].map((w) => w.settled()));
   }
 
   private attach(client: RpcClient) {
     const { chargerId } = client.session;
+    const older = this.connected.get(chargerId);
     this.connected.set(chargerId, client);
+    // The charger reconnected: its older connection is stale (often half-open) and is ended.
+    if (older) void older.close({ code: 1000, reason: 'Replaced by a newer connection', force: true }).catch(() => undefined);
     // Stations set their clocks from these answers (BootNotification, Heartbeat): the API's clock.
     const now = () => this.clock().toISOString();
-    const set = (values: Partial<typeof chargers.$inferInsert>) =>
-      this.db.update(chargers).set({ ...values, liveSeenAt: this.clock() }).where(eq(chargers.id, chargerId)).catch((err) => this.log.error({ err }, 'live status not stored'));
-    void set({ liveConnected: true, liveStatus: 'available' });
+    const live = this.writerFor(chargerId);
+    live.set({ liveConnected: true, liveStatus: 'available' });
     this.log.info({ identity: client.identity, protocol: client.protocol }, 'charger connected');
 
-    client.handle('BootNotification', () => {
+    // Every handler: ids checked first; an unexpected failure is logged and answered with the
+    // protocol's InternalError and a fixed text (never the error's own message or stack).
+    const on = (method: string, handler: (args: { params: Record<string, unknown> }) => unknown) =>
+      client.handle(method, async (call) => {
+        assertIdsInRange(call.params);
+        try {
+          return await handler(call);
+        } catch (err) {
+          if ((err as { rpcErrorCode?: string }).rpcErrorCode) throw err;
+          this.log.error({ err, method, identity: client.identity }, 'OCPP message handler failed');
+          throw createRPCError('InternalError', 'The central system could not handle this message');
+        }
+      });
+
+    on('BootNotification', () => {
       // Send the night's profile once the charger has been told it is accepted.
-      setTimeout(() => void this.sendCurrentPlan(chargerId), 50);
+      setTimeout(() => {
+        this.sendCurrentPlan(chargerId).catch((err: unknown) => this.log.warn({ err, chargerId }, 'current plan not sent'));
+      }, 50);
       return { status: 'Accepted', currentTime: now(), interval: 30 };
     });
-    client.handle('Heartbeat', () => {
-      void set({});
+    on('Heartbeat', () => {
+      live.touch();
       return { currentTime: now() };
     });
-    client.handle('StatusNotification', ({ params }) => {
+    on('StatusNotification', ({ params }) => {
       const status = (params.status ?? params.connectorStatus) as string;
-      void set({ liveStatus: liveStatusOf(status) });
+      live.set({ liveStatus: liveStatusOf(status) });
       return {};
     });
-    client.handle('MeterValues', ({ params }) => {
+    on('MeterValues', ({ params }) => {
       const w = powerFromMeterValues(params.meterValue);
-      if (w !== null) void set({ livePowerW: w });
+      if (w !== null) live.set({ livePowerW: w });
       return {};
     });
-    client.handle('Authorize', () => (client.protocol === 'ocpp1.6' ? { idTagInfo: { status: 'Accepted' } } : { idTokenInfo: { status: 'Accepted' } }));
-    client.handle('StartTransaction', () => ({ transactionId: Math.floor(Math.random() * 2 ** 31), idTagInfo: { status: 'Accepted' } }));
-    client.handle('StopTransaction', () => ({}));
-    client.handle('TransactionEvent', ({ params }) => {
+    on('Authorize', () => (client.protocol === 'ocpp1.6' ? { idTagInfo: { status: 'Accepted' } } : { idTokenInfo: { status: 'Accepted' } }));
+    on('StartTransaction', () => ({ transactionId: Math.floor(Math.random() * 2 ** 31), idTagInfo: { status: 'Accepted' } }));
+    on('StopTransaction', () => ({}));
+    on('TransactionEvent', ({ params }) => {
       const w = powerFromMeterValues(params.meterValue);
-      if (w !== null) void set({ livePowerW: w });
+      if (w !== null) live.set({ livePowerW: w });
       return {};
     });
-    client.handle('DataTransfer', () => {
+    on('DataTransfer', () => {
       throw createRPCError('NotSupported', 'This central system takes no vendor data');
     });
     client.on('close', () => {
-      if (this.connected.get(chargerId) === client) this.connected.delete(chargerId);
-      void set({ liveConnected: false, liveStatus: 'offline', livePowerW: null });
+      // Only the current connection's end takes the charger offline, not a replaced one's.
+      if (this.connected.get(chargerId) !== client) return;
+      this.connected.delete(chargerId);
+      live.set({ liveConnected: false, liveStatus: 'offline', livePowerW: null });
     });
   }
 

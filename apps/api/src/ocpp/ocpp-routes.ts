@@ -38,14 +38,23 @@ export function ocppRoutes(api: ApiRoutes, { db }: AppDeps) {
       body: z.strictObject({
         identity: z.string().regex(/^[A-Za-z0-9*\-_=:+|@.]{1,48}$/, 'Use 1-48 letters, digits or *-_=:+|@. (OCPP identity rules)'),
         password: z.string().min(16, 'Use at least 16 characters').max(40, 'OCPP limits the password to 40 characters'),
-        connectorId: z.number().int().min(1).default(1),
-        evseId: z.number().int().min(1).default(1),
+        // OCPP ids are 32-bit integers (and so is the column).
+        connectorId: z.number().int().min(1).max(2 ** 31 - 1, 'Use a connector id up to 2147483647').default(1),
+        evseId: z.number().int().min(1).max(2 ** 31 - 1, 'Use an EVSE id up to 2147483647').default(1),
       }),
       status: 204 },
     async ({ user, params, body }) => {
       await depotOf(db, user, params.depotId);
-      const [taken] = await db.select({ id: chargers.id }).from(chargers).where(eq(chargers.ocppIdentity, body.identity));
-      if (taken && taken.id !== params.id) throw new DomainError('conflict', 'Another charger has that identity', { identity: 'Already in use' });
+      const [taken] = await db.select({ id: chargers.id, label: chargers.label, organisationId: chargers.organisationId }).from(chargers)
+        .where(eq(chargers.ocppIdentity, body.identity));
+      if (taken && taken.id !== params.id) {
+        // Identities are unique across the service (they are the chargers' addresses); one used by
+        // another organisation is refused without saying so.
+        if (taken.organisationId === user.organisationId) {
+          throw new DomainError('conflict', `Charger ${taken.label} of your organisation already has that identity`, { identity: 'Already in use' });
+        }
+        throw new DomainError('conflict', 'That OCPP identity cannot be used: choose another', { identity: 'Cannot be used' });
+      }
       const done = await db.update(chargers)
         .set({ ocppIdentity: body.identity, ocppPasswordHash: await hashPassword(body.password), connectorId: body.connectorId, evseId: body.evseId })
         .where(and(eq(chargers.id, params.id), eq(chargers.depotId, params.depotId)))

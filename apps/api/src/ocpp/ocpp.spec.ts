@@ -66,7 +66,7 @@ describe('OCPP central system with the station simulator', () => {
   beforeAll(async () => {
     app.deps.onPlanPublished = (id) => void central.sendPlan(id);
     server = app.app.listen(0, '127.0.0.1');
-    server.on('upgrade', (req, socket, head) => void central.handleUpgrade(req, socket as never, head));
+    central.attachTo(server);
     await new Promise((r) => server.once('listening', r));
     url = `ws://127.0.0.1:${(server.address() as AddressInfo).port}/ocpp`;
     const org = await createOrganisation(app, { sup: ['supervisor'], fac: ['facilities'] });

@@ -20,19 +20,19 @@ export const TEST_PASSWORD = 'correct-horse-battery';
 let passwordHash: Promise<string> | undefined;
 
 /** An app wired to the real test database and the fake mail server, closed after the file. */
-export function createTestApp(overrides: Partial<AppDeps> = {}) {
-  const pool = createPool(TEST_DATABASE_URL);
+export function createTestApp(overrides: Partial<AppDeps> = {}, databaseUrl = TEST_DATABASE_URL) {
+  const pool = createPool(databaseUrl);
   const db = createDb(pool);
   afterAll(() => pool.end());
   const config = loadConfig({
-    NODE_ENV: 'test', DATABASE_URL: TEST_DATABASE_URL, SMTP_PORT: String(TEST_SMTP_PORT), FAKE_MAIL_URL: TEST_FAKE_MAIL_URL,
+    NODE_ENV: 'test', DATABASE_URL: databaseUrl, SMTP_PORT: String(TEST_SMTP_PORT), FAKE_MAIL_URL: TEST_FAKE_MAIL_URL,
   });
   const log = pino({ level: process.env.TEST_LOG ?? 'silent' });
   // Real pg-boss on the test database, started only by the tests that queue work.
   let queue: Promise<JobQueue> | undefined;
   const jobs: JobQueue = {
     async enqueuePlan(planId) {
-      queue ??= startJobQueue({ databaseUrl: TEST_DATABASE_URL, log, work: (id) => runPlanJob(db, log, id) });
+      queue ??= startJobQueue({ databaseUrl, log, work: (id) => runPlanJob(db, log, id) });
       await (await queue).enqueuePlan(planId);
     },
     async stop() {

@@ -30,16 +30,28 @@ export interface InviteSettings {
   publicUrl: (path: string) => string;
 }
 
+const cannotInvite = () =>
+  new DomainError('conflict', 'That e-mail address cannot be invited: use another address for this person', { email: 'Cannot be invited' });
+
 /** Creates an invited account (or re-sends a pending invitation) and e-mails the link. */
 export async function inviteUser(db: Db, mailer: Mailer, s: InviteSettings, caller: AuthUser, req: InviteUserRequest, now: Date): Promise<User> {
   const [existing] = await db.select().from(users).where(eq(users.email, req.email));
-  if (existing && (existing.organisationId !== caller.organisationId || existing.status !== 'invited')) {
-    throw new DomainError('conflict', 'Someone already has an account with this e-mail', { email: 'Already in use' });
+  if (existing && existing.organisationId === caller.organisationId && existing.status !== 'invited') {
+    throw new DomainError('conflict', 'Someone in your organisation already has an account with this e-mail', { email: 'Already in use' });
   }
+  // E-mail addresses are unique across the service (they sign in without naming an organisation);
+  // an address used elsewhere is refused without saying where or by whom.
+  if (existing && existing.organisationId !== caller.organisationId) throw cannotInvite();
   const user =
     existing
       ? (await db.update(users).set({ name: req.name, roles: req.roles }).where(eq(users.id, existing.id)).returning())[0]!
-      : (await db.insert(users).values({ organisationId: caller.organisationId, email: req.email, name: req.name, roles: req.roles, status: 'invited' }).returning())[0]!;
+      : (await db.insert(users).values({ organisationId: caller.organisationId, email: req.email, name: req.name, roles: req.roles, status: 'invited' })
+          .returning()
+          .catch((err: unknown) => {
+            // Taken between the check and the insert (a race with another invitation).
+            if ((err as { cause?: { code?: string } }).cause?.code === '23505' || (err as { code?: string }).code === '23505') throw cannotInvite();
+            throw err;
+          }))[0]!;
   const token = await createActionToken(db, user.id, 'invite', s.inviteHours * 3_600_000, now);
   const [org] = await db.select({ name: organisations.name }).from(organisations).where(eq(organisations.id, caller.organisationId));
   await mailer.send(
