@@ -20,6 +20,7 @@ import { yardRoutes } from './yard/yard-routes';
 import { outboxRoutes } from './dev/outbox-routes';
 import { apiNotFound, errorHandler } from './http/error-handler';
 import { ApiRoutes, type RegisteredRoute } from './http/route';
+import { idempotencyStore } from './http/idempotency';
 import { newOpenApiRegistry, openApiDocument } from './openapi/document';
 import { usersRoutes } from './users/users-routes';
 import { z } from 'zod';
@@ -74,7 +75,7 @@ export function createApp(deps: AppDeps): BuiltApp {
   router.use(express.json({ limit: '1mb', strict: true }));
   router.use(cookieParser());
   const openapi = newOpenApiRegistry();
-  const api = new ApiRoutes(router, openapi, bearerAuthenticator(deps.db, deps.config.JWT_SECRET));
+  const api = new ApiRoutes(router, openapi, bearerAuthenticator(deps.db, deps.config.JWT_SECRET), idempotencyStore(deps.db, deps.clock));
 
   api.add(
     { method: 'get', path: '/health', summary: 'Answers 200 when the API and its database work', tag: 'system',

@@ -1,6 +1,7 @@
 import type { ErrorRequestHandler, RequestHandler } from 'express';
 import type { ErrorBody } from '@nightyard/contracts';
 import { DomainError, STATUS_BY_CODE } from './errors';
+import { databaseErrorCode } from './database-errors';
 
 /** Turns every failure into `{ error: { code, message, fields? } }`; never sends a stack trace. */
 export const errorHandler: ErrorRequestHandler = (err, req, res, _next) => {
@@ -24,6 +25,17 @@ export const errorHandler: ErrorRequestHandler = (err, req, res, _next) => {
   }
   if (type === 'encoding.unsupported' || type === 'charset.unsupported') {
     res.status(415).json(body('bad_request', 'Send the body as UTF-8 JSON'));
+    return;
+  }
+  // Express cannot decode a path parameter with malformed percent-encoding (%E0%A4%A, %ED%A0%80).
+  if (err instanceof URIError) {
+    res.status(400).json(body('bad_request', 'The address holds malformed percent-encoding: check the link'));
+    return;
+  }
+  // A change made at the same moment took the same unique key: the request is refused whole.
+  const pgCode = databaseErrorCode(err);
+  if (pgCode === '23505') {
+    res.status(409).json(body('conflict', 'This conflicts with a change saved at the same moment: reload and try again'));
     return;
   }
   req.log?.error({ err }, 'unhandled error');

@@ -2,6 +2,7 @@ import { and, asc, eq, isNull, ne, sql } from 'drizzle-orm';
 import type { InviteUserRequest, UpdateUserRequest, User } from '@nightyard/contracts';
 import type { Db } from '../db/client';
 import { organisations, refreshTokens, users } from '../db/schema';
+import { lockTarget } from '../db/locks';
 import { DomainError, conflict, notFound } from '../http/errors';
 import type { AuthUser } from '../auth/auth-user';
 import { createActionToken } from '../auth/auth-service';
@@ -32,15 +33,20 @@ export interface InviteSettings {
 
 /** Creates an invited account (or re-sends a pending invitation) and e-mails the link. */
 export async function inviteUser(db: Db, mailer: Mailer, s: InviteSettings, caller: AuthUser, req: InviteUserRequest): Promise<User> {
-  const [existing] = await db.select().from(users).where(eq(users.email, req.email));
-  if (existing && (existing.organisationId !== caller.organisationId || existing.status !== 'invited')) {
-    throw new DomainError('conflict', 'Someone already has an account with this e-mail', { email: 'Already in use' });
-  }
-  const user =
-    existing
-      ? (await db.update(users).set({ name: req.name, roles: req.roles }).where(eq(users.id, existing.id)).returning())[0]!
-      : (await db.insert(users).values({ organisationId: caller.organisationId, email: req.email, name: req.name, roles: req.roles, status: 'invited' }).returning())[0]!;
-  const token = await createActionToken(db, user.id, 'invite', s.inviteHours * 3_600_000);
+  const { user, token } = await db.transaction(async (tx) => {
+    // Invitations to one address wait for each other, so the same invitation sent twice at once
+    // creates one account (the second re-sends the invitation) instead of a unique violation.
+    await lockTarget(tx, 'invite', req.email);
+    const [existing] = await tx.select().from(users).where(eq(users.email, req.email));
+    if (existing && (existing.organisationId !== caller.organisationId || existing.status !== 'invited')) {
+      throw new DomainError('conflict', 'Someone already has an account with this e-mail', { email: 'Already in use' });
+    }
+    const row =
+      existing
+        ? (await tx.update(users).set({ name: req.name, roles: req.roles }).where(eq(users.id, existing.id)).returning())[0]!
+        : (await tx.insert(users).values({ organisationId: caller.organisationId, email: req.email, name: req.name, roles: req.roles, status: 'invited' }).returning())[0]!;
+    return { user: row, token: await createActionToken(tx as unknown as Db, row.id, 'invite', s.inviteHours * 3_600_000) };
+  });
   const [org] = await db.select({ name: organisations.name }).from(organisations).where(eq(organisations.id, caller.organisationId));
   await mailer.send(
     invitationMail({
