@@ -81,6 +81,10 @@ export type RatePlanDefinition = z.infer<typeof ratePlanDefinitionSchema>;
 
 export function seasonMonths(s: { fromMonth: number; toMonth: number }): number[] {
   const out: number[] = [];
+  // The plan's own checks may run beside a month already refused (13, 1.5): walk none then,
+  // rather than round the year for ever.
+  const isMonth = (m: number) => Number.isInteger(m) && m >= 1 && m <= 12;
+  if (!isMonth(s.fromMonth) || !isMonth(s.toMonth)) return out;
   for (let m = s.fromMonth; ; m = (m % 12) + 1) {
     out.push(m);
     if (m === s.toMonth) return out;
