@@ -141,7 +141,7 @@ function expectStorable(value: unknown, key = ''): void {
   }
 }
 
-const schemas = Object.entries(contracts).filter((e): e is [string, z.ZodType] => e[1] instanceof z.ZodType);
+const schemas = Object.entries(contracts as Record<string, unknown>).filter((e): e is [string, z.ZodType] => e[1] instanceof z.ZodType);
 
 describe('request contracts under fuzzing', () => {
   it('every exported schema is either fuzzed as a request or listed as an answer', () => {

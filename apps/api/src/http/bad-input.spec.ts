@@ -226,6 +226,16 @@ describe('bad input gets a 4xx that says what is wrong, and writes nothing', () 
     expect(res.body.error.code).toBe('conflict');
   });
 
+  it('a value the database cannot store answers 400, never 500', async () => {
+    const tiny = express();
+    tiny.get('/range', () => {
+      throw Object.assign(new Error('Failed query'), { cause: Object.assign(new Error('integer out of range'), { code: '22003' }) });
+    });
+    tiny.use(errorHandler);
+    const res = await supertest(tiny).get('/range').expect(400);
+    expect(res.body.error.code).toBe('bad_request');
+  });
+
   it('the server keeps serving after all of the above', async () => {
     await app.request().get('/api/health').expect(200, { status: 'ok' });
   });

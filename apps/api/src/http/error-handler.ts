@@ -38,6 +38,13 @@ export const errorHandler: ErrorRequestHandler = (err, req, res, _next) => {
     res.status(409).json(body('conflict', 'This conflicts with a change saved at the same moment: reload and try again'));
     return;
   }
+  // Class 22 (data exception): a value the contracts should have refused reached the database,
+  // e.g. a number beyond a column's range. The statement failed, so it is the caller's 400.
+  if (pgCode?.startsWith('22')) {
+    req.log?.warn({ err }, 'data exception: a contract let a value through');
+    res.status(400).json(body('bad_request', 'A value in the request cannot be stored (out of range or not valid text): check the numbers and text sent'));
+    return;
+  }
   req.log?.error({ err }, 'unhandled error');
   res.status(500).json(body('internal', 'Something went wrong on our side; the request was not carried out'));
 };
