@@ -1,5 +1,5 @@
 import { createHash } from 'node:crypto';
-import { and, eq, lt } from 'drizzle-orm';
+import { and, eq, isNull, lt } from 'drizzle-orm';
 import type { Db } from '../db/client';
 import { idempotencyKeys } from '../db/schema';
 import type { Clock } from '../time/clock';
@@ -7,6 +7,8 @@ import { DomainError, conflict } from './errors';
 
 /** How long an answer is kept for retries. */
 export const IDEMPOTENCY_TTL_MS = 24 * 3_600_000;
+/** A claim still without an answer after this long was left by a process that stopped. */
+const ABANDONED_MS = 5 * 60_000;
 /** Visible ASCII, as clients send UUIDs or random tokens. */
 const KEY = /^[\x21-\x7E]{1,255}$/;
 
@@ -96,6 +98,10 @@ export function idempotencyStore(db: Db, clock: Clock, waitMs = 30_000, pollMs =
         if (!seen) continue; // the first attempt failed and let go of the key: try to claim it
         if (seen.route !== req.route || seen.requestHash !== req.requestHash) throw reused();
         if (seen.status !== null) return { status: seen.status, body: seen.response, replayed: true };
+        if (now.getTime() - seen.createdAt.getTime() > ABANDONED_MS) {
+          await db.delete(idempotencyKeys).where(and(eq(idempotencyKeys.id, seen.id), isNull(idempotencyKeys.status)));
+          continue;
+        }
         if (performance.now() - started > waitMs) {
           throw conflict('A request with this Idempotency-Key is still being carried out: ask again in a moment');
         }

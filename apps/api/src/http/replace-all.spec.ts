@@ -1,6 +1,7 @@
 import { and, eq } from 'drizzle-orm';
 import { beforeAll, describe, expect, it } from 'vitest';
-import { billingPeaks, loadReductionWindows, meterIntervals, runs, users } from '../db/schema';
+import { billingPeaks, idempotencyKeys, loadReductionWindows, meterIntervals, runs, users } from '../db/schema';
+import { requestHash } from './idempotency';
 import { createDepot } from '../testing/depot-fixture';
 import { addBuses, dayRuns } from '../testing/fleet-fixture';
 import { mailFor } from '../testing/mail';
@@ -15,6 +16,7 @@ const TIMES = 10;
 let boss: TestUser;
 let organisationId: string;
 const as = (u: TestUser) => ({ Authorization: `Bearer ${u.token}` });
+const key = () => `k-${Math.random().toString(36).slice(2)}`;
 const all = <T>(n: number, send: (i: number) => PromiseLike<T>) => Promise.all(Array.from({ length: n }, (_, i) => send(i)));
 
 beforeAll(async () => {
@@ -157,7 +159,7 @@ describe('meter data', () => {
 
 describe('invitations', () => {
   it('the same invitation 10 times at once makes one account and answers 201 each time', async () => {
-    const email = `race-${Date.now()}@test.nightyard.example`;
+    const email = `race-${key()}@test.nightyard.example`;
     const answers = await all(TIMES, () =>
       app.request().post('/api/users/invite').set(as(boss)).send({ email, name: 'Race', roles: ['yard'] }));
     expect(answers.map((x) => x.status)).toEqual(Array(TIMES).fill(201));
@@ -166,7 +168,7 @@ describe('invitations', () => {
   });
 
   it('two different invitations to one address at once leave one of them', async () => {
-    const email = `race2-${Date.now()}@test.nightyard.example`;
+    const email = `race2-${key()}@test.nightyard.example`;
     const answers = await all(TIMES, (i) =>
       app.request().post('/api/users/invite').set(as(boss)).send({ email, name: i % 2 ? 'Ann' : 'Bea', roles: i % 2 ? ['yard'] : ['finance'] }));
     expect(answers.map((x) => x.status)).toEqual(Array(TIMES).fill(201));
@@ -178,7 +180,6 @@ describe('invitations', () => {
 
 describe('Idempotency-Key', () => {
   const date = '2026-12-10';
-  const key = () => `k-${Math.random().toString(36).slice(2)}`;
 
   it('10 repeats with one key at once: the write is done once, every answer is the first one', async () => {
     const depotId = await newDepot();
@@ -219,7 +220,7 @@ describe('Idempotency-Key', () => {
   });
 
   it('an invitation retried with its key sends one e-mail', async () => {
-    const email = `idem-${Date.now()}@test.nightyard.example`;
+    const email = `idem-${key()}@test.nightyard.example`;
     const k = key();
     const send = () => app.request().post('/api/users/invite').set(as(boss)).set('Idempotency-Key', k).send({ email, name: 'Once', roles: ['yard'] });
     const first = await send().expect(201);
@@ -227,6 +228,21 @@ describe('Idempotency-Key', () => {
     expect(again.body).toEqual(first.body);
     expect(again.headers['idempotent-replayed']).toBe('true');
     expect(await mailFor(email)).toHaveLength(1);
+  });
+
+  it('a key left without an answer by a stopped process is taken over after five minutes', async () => {
+    const depotId = await newDepot();
+    const k = key();
+    const path = `/api/depots/${depotId}/service-days/${date}`;
+    const body = { runs: dayRuns(date, ['31']) };
+    await app.db.insert(idempotencyKeys).values({
+      userId: boss.id, key: k, route: 'PUT /depots/:depotId/service-days/:date', requestHash: requestHash('PUT', path, body),
+      createdAt: new Date(app.deps.clock().getTime() - 6 * 60_000),
+    });
+    await app.request().put(path).set(as(boss)).set('Idempotency-Key', k).send(body).expect(200);
+    expect(await storedRuns(depotId, date)).toEqual(runLines(body.runs));
+    const [row] = await app.db.select().from(idempotencyKeys).where(and(eq(idempotencyKeys.userId, boss.id), eq(idempotencyKeys.key, k)));
+    expect(row!.status).toBe(200);
   });
 
   it('a malformed key is refused before anything is written', async () => {
