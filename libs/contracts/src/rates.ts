@@ -17,8 +17,8 @@ const money = (what: string, max: number, unit: string) =>
     .min(0, `${what} cannot be negative`)
     .max(max, `${what} looks too large (at most ${max.toLocaleString('en-US')} ${unit})`);
 /** Physical ranges: an energy price above $100/kWh or a demand charge above $10,000/kW is a typo. */
-const energyPrice = (what: string) => money(what, 100, 'a kWh');
-const demandCharge = (what: string) => money(what, 10_000, 'a kW');
+const energyPrice = (what: string) => money(what, 100, 'per kWh');
+const demandCharge = (what: string) => money(what, 10_000, 'per kW');
 
 /**
  * A time-of-use window. It belongs to the day it starts on; a `to` earlier than `from` runs past
@@ -61,7 +61,7 @@ export type Season = z.infer<typeof seasonSchema>;
 
 export const fixedChargeSchema = z.strictObject({
   name: text('The charge name').trim().min(1, 'Name the charge').max(80),
-  amount: money('The fixed charge', 1_000_000, 'a day or month'),
+  amount: money('The fixed charge', 1_000_000, 'per day or month'),
   per: z.enum(['day', 'month']),
 });
 
