@@ -17,10 +17,6 @@ const outOfRange = `Use a date in the years ${FIRST_YEAR} to ${LAST_YEAR}`;
 export const isoDate = (message = 'Write the date as YYYY-MM-DD') =>
   z.iso.date(message).refine(yearInRange, outOfRange);
 
-/** An instant with an offset (ISO 8601) in the accepted years. */
-export const isoInstant = (message = 'Write the time as an ISO instant with an offset') =>
-  z.iso.datetime({ offset: true, message }).refine(yearInRange, outOfRange);
-
 /** Wall-clock time at the depot, `YYYY-MM-DDTHH:mm`, in the accepted years. */
 export const localDateTimeSchema = z
   .string()

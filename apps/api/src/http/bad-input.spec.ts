@@ -146,6 +146,9 @@ describe('bad input gets a 4xx that says what is wrong, and writes nothing', () 
     const win = await app.request().put(`/api/depots/${depotId}/load-reduction-windows`).set(as(boss))
       .send({ windows: [{ start: '9999-12-31T16:00', end: '9999-12-31T19:00', limitKw: 100 }] }).expect(400);
     expect(win.body.error.fields['windows[0].start']).toMatch(/2000 to 2100/);
+    const feb30 = await app.request().put(`/api/depots/${depotId}/load-reduction-windows`).set(as(boss))
+      .send({ windows: [{ start: '2026-02-30T16:00', end: '2026-02-30T19:00', limitKw: 100 }] }).expect(400);
+    expect(feb30.body.error.fields['windows[0].start']).toBe('That day does not exist');
     const plan = await app.request().post(`/api/depots/${depotId}/rate-plans`).set(as(boss))
       .send({ ratePlanId: '00000000-0000-4000-8000-000000000000', effectiveFrom: '0000-01-01' }).expect(400);
     expect(plan.body.error.fields.effectiveFrom).toMatch(/2000 to 2100/);
