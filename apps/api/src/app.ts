@@ -21,6 +21,7 @@ import { outboxRoutes } from './dev/outbox-routes';
 import { testControlRouter } from './dev/test-control-routes';
 import { apiNotFound, errorHandler } from './http/error-handler';
 import { ApiRoutes, type RegisteredRoute } from './http/route';
+import { idempotencyStore } from './http/idempotency';
 import { newOpenApiRegistry, openApiDocument } from './openapi/document';
 import { usersRoutes } from './users/users-routes';
 import { z } from 'zod';
@@ -82,7 +83,7 @@ export function createApp(deps: AppDeps): BuiltApp {
   router.use(express.json({ limit: '1mb', strict: true }));
   router.use(cookieParser());
   const openapi = newOpenApiRegistry();
-  const api = new ApiRoutes(router, openapi, bearerAuthenticator(deps.db, deps.config.JWT_SECRET, deps.clock));
+  const api = new ApiRoutes(router, openapi, bearerAuthenticator(deps.db, deps.config.JWT_SECRET, deps.clock), idempotencyStore(deps.db, deps.clock));
 
   api.add(
     { method: 'get', path: '/health', summary: 'Answers 200 when the API and its database work', tag: 'system',

@@ -1,23 +1,22 @@
 import { z } from 'zod';
 import { roleSchema } from './roles';
+import { text } from './text';
 
 export const PASSWORD_MIN_LENGTH = 12;
 
-export const emailSchema = z
-  .string()
+export const emailSchema = text('The e-mail address')
   .trim()
   .toLowerCase()
   .max(254, 'An e-mail address has at most 254 characters')
   .pipe(z.email('Enter an e-mail address such as name@example.org'));
 
-export const passwordSchema = z
-  .string()
+export const passwordSchema = text('The password')
   .min(PASSWORD_MIN_LENGTH, `Use at least ${PASSWORD_MIN_LENGTH} characters`)
   .max(200, 'Use at most 200 characters');
 
 export const loginRequestSchema = z.strictObject({
   email: emailSchema,
-  password: z.string().min(1, 'Enter your password').max(200),
+  password: text('The password').min(1, 'Enter your password').max(200),
 });
 export type LoginRequest = z.infer<typeof loginRequestSchema>;
 
@@ -47,7 +46,7 @@ export const meResponseSchema = z.object({ user: sessionUserSchema });
 export const forgotPasswordRequestSchema = z.strictObject({ email: emailSchema });
 
 export const setPasswordRequestSchema = z.strictObject({
-  token: z.string().min(20, 'The link is incomplete').max(200),
+  token: text('The link').min(20, 'The link is incomplete').max(200),
   password: passwordSchema,
 });
 export type SetPasswordRequest = z.infer<typeof setPasswordRequestSchema>;

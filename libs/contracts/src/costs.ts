@@ -1,4 +1,6 @@
 import { z } from 'zod';
+import { isoDate } from './dates';
+import { text } from './text';
 
 export const billLineSchema = z.object({
   name: z.string(),
@@ -80,9 +82,9 @@ export const monthCostsSchema = z.object({
 export type MonthCosts = z.infer<typeof monthCostsSchema>;
 
 export const meterImportRequestSchema = z.strictObject({
-  fileName: z.string().min(1).max(200),
-  content: z.string().min(1, 'The file is empty').max(20_000_000, 'The file is too large (20 MB at most)'),
-  billingPeriodStart: z.iso.date('Write the date as YYYY-MM-DD'),
+  fileName: text('The file name').trim().min(1, 'Name the file').max(200),
+  content: text('The file').min(1, 'The file is empty').max(20_000_000, 'The file is too large (20 MB at most)'),
+  billingPeriodStart: isoDate(),
 });
 
 export const meterImportResultSchema = z.object({

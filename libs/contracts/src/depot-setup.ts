@@ -1,18 +1,25 @@
 import { z } from 'zod';
-import { lower } from './text';
+import { lower, text } from './text';
+import { isoDate, localDateTimeSchema } from './dates';
+
+export { localDateTimeSchema };
+
+/** The largest power any depot figure may have: 100 MW is far above a bus depot's connection. */
+export const MAX_KW = 100_000;
 
 const kw = (what: string) =>
-  z.number({ error: `Enter ${lower(what)} in kW` }).min(0, `${what} cannot be negative`).max(100_000, `${what} looks too large`);
+  z.number({ error: `Enter ${lower(what)} in kW` }).min(0, `${what} cannot be negative`).max(MAX_KW, `${what} looks too large (at most ${MAX_KW.toLocaleString('en-US')} kW)`);
 
 export const CONNECTOR_STANDARDS = ['SAE J1772 CCS1', 'SAE J3105 pantograph', 'SAE J3068', 'CCS2', 'CHAdeMO', 'Other'] as const;
 
 export const depotSettingsSchema = z.strictObject({
-  name: z.string().trim().min(1, 'Name the depot').max(120),
-  timezone: z.string().refine(isTimeZone, 'Choose an IANA time zone such as America/Chicago'),
+  name: text('The depot name').trim().min(1, 'Name the depot').max(120),
+  timezone: text('The time zone').max(64).refine(isTimeZone, 'Choose an IANA time zone such as America/Chicago'),
   serviceLimitKw: kw('The service limit').refine((v) => v > 0, 'The service limit must be above 0 kW'),
   /** One value (flat) or 24 values (kW for each local hour). */
   otherLoadKw: z
     .array(kw('The other load'))
+    .max(24, 'Give one flat value or 24 hourly values')
     .refine((a) => a.length === 1 || a.length === 24, 'Give one flat value or 24 hourly values'),
   billingStartDay: z.number().int().min(1, 'Day 1 to 28').max(28, 'Day 1 to 28, so every month has it'),
 });
@@ -28,7 +35,7 @@ export function isTimeZone(tz: string): boolean {
 }
 
 export const cabinetInputSchema = z.strictObject({
-  label: z.string().trim().min(1, 'Label the cabinet').max(40),
+  label: text('The cabinet label').trim().min(1, 'Label the cabinet').max(40),
   limitKw: kw('The cabinet limit').refine((v) => v > 0, 'The cabinet limit must be above 0 kW'),
 });
 export const cabinetSchema = cabinetInputSchema.extend({ id: z.uuid(), chargerCount: z.number().int() });
@@ -38,12 +45,12 @@ export const chargerStatusSchema = z.enum(['in_service', 'out_of_service']);
 
 export const chargerInputSchema = z
   .strictObject({
-    label: z.string().trim().min(1, 'Label the charger').max(40),
+    label: text('The charger label').trim().min(1, 'Label the charger').max(40),
     maxKw: kw('The charger\'s maximum').refine((v) => v > 0, 'The maximum must be above 0 kW'),
-    connector: z.string().trim().min(1, 'Choose the connector standard').max(60),
+    connector: text('The connector').trim().min(1, 'Choose the connector standard').max(60),
     cabinetId: z.uuid('Choose a cabinet of this depot').nullable().default(null),
     status: chargerStatusSchema.default('in_service'),
-    statusReason: z.string().trim().max(300).nullable().default(null),
+    statusReason: text('The reason').trim().max(300).nullable().default(null),
   })
   .refine((c) => c.status === 'in_service' || (c.statusReason ?? '').length > 0, {
     message: 'Say why the charger is out of service',
@@ -72,17 +79,12 @@ export const chargerSchema = z.object({
 });
 export type Charger = z.infer<typeof chargerSchema>;
 
-/** Wall-clock time at the depot, `YYYY-MM-DDTHH:mm`. */
-export const localDateTimeSchema = z
-  .string()
-  .regex(/^\d{4}-\d{2}-\d{2}T([01]\d|2[0-3]):[0-5]\d$/, 'Write the local time at the depot as YYYY-MM-DDTHH:mm');
-
 export const loadReductionWindowInputSchema = z
   .strictObject({
     start: localDateTimeSchema,
     end: localDateTimeSchema,
     limitKw: kw('The reduced limit'),
-    note: z.string().trim().max(300).default(''),
+    note: text('The note').trim().max(300).default(''),
   })
   .refine((w) => w.end > w.start, { message: 'The end must be after the start', path: ['end'] });
 export const loadReductionWindowSchema = z.object({
@@ -96,9 +98,11 @@ export type LoadReductionWindow = z.infer<typeof loadReductionWindowSchema>;
 
 /** The billing period's highest 15-minute demands so far: a plan below them adds no demand cost. */
 export const peaksSoFarSchema = z.strictObject({
-  billingPeriodStart: z.iso.date('Write the date as YYYY-MM-DD'),
+  billingPeriodStart: isoDate(),
   facilityKw: kw('The facility peak'),
-  periods: z.record(z.string().min(1).max(60), kw('A period peak')).default({}),
+  periods: z.record(text('The period name').min(1).max(60), kw('A period peak'))
+    .refine((p) => Object.keys(p).length <= 20, 'At most 20 periods')
+    .default({}),
 });
 export type PeaksSoFar = z.infer<typeof peaksSoFarSchema>;
 

@@ -1,6 +1,6 @@
 import { z } from 'zod';
-import { lower } from './text';
-import { localDateTimeSchema } from './depot-setup';
+import { lower, text } from './text';
+import { isoDate, localDateTimeSchema } from './dates';
 
 const positive = (what: string, max: number) =>
   z.number({ error: `Enter ${lower(what)} as a number` }).gt(0, `${what} must be above 0`).max(max, `${what} looks too large (at most ${max})`);
@@ -10,10 +10,10 @@ export const busStatusSchema = z.enum(['active', 'out_of_service', 'retired']);
 
 export const busInputSchema = z
   .strictObject({
-    number: z.string().trim().min(1, 'Enter the bus number').max(20),
+    number: text('The bus number').trim().min(1, 'Enter the bus number').max(20),
     usableKwh: positive('The usable energy', 2000),
     maxChargeKw: positive('The maximum charge power', 2000),
-    connector: z.string().trim().min(1, 'Choose the connector standard').max(60),
+    connector: text('The connector').trim().min(1, 'Choose the connector standard').max(60),
     kwhPerMile: positive('The consumption', 20),
     ceilingPct: pct('The departure ceiling').default(90),
     reservePct: pct('The reserve').default(15),
@@ -66,7 +66,7 @@ export const socSourceSchema = z.enum(['typed', 'uploaded', 'estimated']);
 
 export const runInputSchema = z
   .strictObject({
-    busNumber: z.string().trim().min(1, 'Enter the bus number'),
+    busNumber: text('The bus number').trim().min(1, 'Enter the bus number').max(20),
     pullOut: localDateTimeSchema,
     pullIn: localDateTimeSchema,
     miles: z.number().min(0, 'Miles cannot be negative').max(1000).nullable().default(null),
@@ -77,9 +77,15 @@ export const runInputSchema = z
   .refine((r) => r.miles !== null || r.kwh !== null, { message: 'Give the run\'s miles or its energy (kWh)', path: ['miles'] });
 export type RunInput = z.infer<typeof runInputSchema>;
 
+/** Most runs one service day may hold (typed or uploaded): far above any depot's day. */
+export const MAX_RUNS_PER_DAY = 5000;
+
+export const forecastLowFSchema = z.number({ error: 'Enter the forecast low in °F' })
+  .min(-80, 'The forecast low is -80 to 130 °F').max(130, 'The forecast low is -80 to 130 °F');
+
 export const serviceDayInputSchema = z.strictObject({
-  forecastLowF: z.number().min(-80).max(130).nullable().default(null),
-  runs: z.array(runInputSchema).max(5000),
+  forecastLowF: forecastLowFSchema.nullable().default(null),
+  runs: z.array(runInputSchema).max(MAX_RUNS_PER_DAY, `A day holds at most ${MAX_RUNS_PER_DAY} runs`),
 });
 export type ServiceDayInput = z.infer<typeof serviceDayInputSchema>;
 
@@ -109,16 +115,16 @@ export type ServiceDay = z.infer<typeof serviceDaySchema>;
 
 export const serviceDayParamsSchema = z.strictObject({
   depotId: z.uuid('Not a depot id'),
-  date: z.iso.date('Write the date as YYYY-MM-DD'),
+  date: isoDate(),
 });
 
 export const copyServiceDaySchema = z.strictObject({
-  fromDate: z.iso.date('Write the date as YYYY-MM-DD'),
+  fromDate: isoDate(),
   replace: z.boolean().default(false),
 });
 
 export const csvUploadSchema = z.strictObject({
-  csv: z.string().min(1, 'The file is empty').max(2_000_000, 'The file is too large (2 MB at most)'),
+  csv: text('The file').min(1, 'The file is empty').max(2_000_000, 'The file is too large (2 MB at most)'),
 });
 
 export const csvRowErrorSchema = z.object({ line: z.number().int(), field: z.string(), message: z.string() });

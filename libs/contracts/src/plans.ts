@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { isoDate } from './dates';
 
 export const planStateSchema = z.enum(['draft', 'published', 'superseded']);
 export type PlanState = z.infer<typeof planStateSchema>;
@@ -6,7 +7,7 @@ export const planJobStatusSchema = z.enum(['queued', 'running', 'done', 'failed'
 export const planKindSchema = z.enum(['generated', 'what-if', 'revision']);
 
 export const generatePlanSchema = z.strictObject({
-  serviceDate: z.iso.date('Write the date as YYYY-MM-DD'),
+  serviceDate: isoDate(),
   /** Also plan the midday layover between the day's morning and afternoon runs. */
   includeMidday: z.boolean().default(true),
 });

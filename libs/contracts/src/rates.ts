@@ -1,6 +1,7 @@
 import { z } from 'zod';
-import { lower } from './text';
+import { lower, text } from './text';
 import { isTimeZone } from './depot-setup';
+import { isoDate } from './dates';
 
 /** Local wall-clock time `HH:mm`; `24:00` is the end of the day. */
 export const clockTimeSchema = z
@@ -11,7 +12,13 @@ export const DAY_TYPES = ['weekday', 'weekend', 'holiday'] as const;
 export const dayTypeSchema = z.enum(DAY_TYPES);
 export type DayType = z.infer<typeof dayTypeSchema>;
 
-const money = (what: string) => z.number({ error: `Enter ${lower(what)} as a number` }).min(0, `${what} cannot be negative`).max(1_000_000);
+const money = (what: string, max: number, unit: string) =>
+  z.number({ error: `Enter ${lower(what)} as a number` })
+    .min(0, `${what} cannot be negative`)
+    .max(max, `${what} looks too large (at most ${max.toLocaleString('en-US')} ${unit})`);
+/** Physical ranges: an energy price above $100/kWh or a demand charge above $10,000/kW is a typo. */
+const energyPrice = (what: string) => money(what, 100, 'per kWh');
+const demandCharge = (what: string) => money(what, 10_000, 'per kW');
 
 /**
  * A time-of-use window. It belongs to the day it starts on; a `to` earlier than `from` runs past
@@ -28,43 +35,43 @@ export const touWindowSchema = z
 export type TouWindow = z.infer<typeof touWindowSchema>;
 
 export const touPeriodSchema = z.strictObject({
-  name: z.string().trim().min(1, 'Name the period, e.g. on-peak').max(60),
+  name: text('The period name').trim().min(1, 'Name the period, e.g. on-peak').max(60),
   /** Energy price per kWh. */
-  price: money('The energy price'),
+  price: energyPrice('The energy price'),
   /** Demand charge per kW on the highest 15-minute demand inside this period's windows. */
-  demandCharge: money('The demand charge').default(0),
-  windows: z.array(touWindowSchema).min(1, 'A period needs at least one window'),
+  demandCharge: demandCharge('The demand charge').default(0),
+  windows: z.array(touWindowSchema).min(1, 'A period needs at least one window').max(48),
 });
 export type TouPeriod = z.infer<typeof touPeriodSchema>;
 
 const month = z.number().int().min(1, 'Months are 1 (January) to 12 (December)').max(12, 'Months are 1 (January) to 12 (December)');
 
 export const seasonSchema = z.strictObject({
-  name: z.string().trim().min(1, 'Name the season').max(60),
+  name: text('The season name').trim().min(1, 'Name the season').max(60),
   /** First and last month of the season; a range may wrap past December (10 to 5). */
   fromMonth: month,
   toMonth: month,
   /** Price of every hour outside the periods' windows. */
-  offPeakPrice: money('The off-peak price'),
+  offPeakPrice: energyPrice('The off-peak price'),
   /** Demand charge per kW on the highest 15-minute demand of the billing period, at any hour. */
-  facilityDemandCharge: money('The facility demand charge').default(0),
-  periods: z.array(touPeriodSchema),
+  facilityDemandCharge: demandCharge('The facility demand charge').default(0),
+  periods: z.array(touPeriodSchema).max(24),
 });
 export type Season = z.infer<typeof seasonSchema>;
 
 export const fixedChargeSchema = z.strictObject({
-  name: z.string().trim().min(1).max(80),
-  amount: money('The fixed charge'),
+  name: text('The charge name').trim().min(1, 'Name the charge').max(80),
+  amount: money('The fixed charge', 1_000_000, 'per day or month'),
   per: z.enum(['day', 'month']),
 });
 
 export const ratePlanDefinitionSchema = z
   .strictObject({
-    currency: z.string().regex(/^[A-Z]{3}$/, 'Use a three-letter currency code such as USD'),
-    seasons: z.array(seasonSchema).min(1, 'A rate plan needs at least one season'),
-    fixedCharges: z.array(fixedChargeSchema).default([]),
+    currency: text('The currency').regex(/^[A-Z]{3}$/, 'Use a three-letter currency code such as USD'),
+    seasons: z.array(seasonSchema).min(1, 'A rate plan needs at least one season').max(12),
+    fixedCharges: z.array(fixedChargeSchema).max(20).default([]),
     /** Dates priced as holidays (ISO `YYYY-MM-DD`). */
-    holidays: z.array(z.iso.date('Write dates as YYYY-MM-DD')).default([]),
+    holidays: z.array(isoDate('Write dates as YYYY-MM-DD')).max(400).default([]),
   })
   .superRefine((plan, ctx) => {
     checkSeasonsCoverYear(plan.seasons, ctx);
@@ -74,6 +81,10 @@ export type RatePlanDefinition = z.infer<typeof ratePlanDefinitionSchema>;
 
 export function seasonMonths(s: { fromMonth: number; toMonth: number }): number[] {
   const out: number[] = [];
+  // The plan's own checks may run beside a month already refused (13, 1.5): walk none then,
+  // rather than round the year for ever.
+  const isMonth = (m: number) => Number.isInteger(m) && m >= 1 && m <= 12;
+  if (!isMonth(s.fromMonth) || !isMonth(s.toMonth)) return out;
   for (let m = s.fromMonth; ; m = (m % 12) + 1) {
     out.push(m);
     if (m === s.toMonth) return out;
@@ -145,19 +156,19 @@ export const ratePlanSchema = z.object({
 export type RatePlan = z.infer<typeof ratePlanSchema>;
 
 export const saveRatePlanSchema = z.strictObject({
-  name: z.string().trim().min(1, 'Name the rate plan').max(120),
+  name: text('The rate plan name').trim().min(1, 'Name the rate plan').max(120),
   definition: ratePlanDefinitionSchema,
 });
 export type SaveRatePlan = z.infer<typeof saveRatePlanSchema>;
 
 export const assignRatePlanSchema = z.strictObject({
   ratePlanId: z.uuid('Choose a rate plan'),
-  effectiveFrom: z.iso.date('Write the date as YYYY-MM-DD'),
+  effectiveFrom: isoDate(),
 });
 
 export const previewQuerySchema = z.strictObject({
-  date: z.iso.date('Write the date as YYYY-MM-DD'),
-  timezone: z.string().refine(isTimeZone, 'Choose an IANA time zone such as America/Chicago').optional(),
+  date: isoDate(),
+  timezone: text('The time zone').max(64).refine(isTimeZone, 'Choose an IANA time zone such as America/Chicago').optional(),
 });
 
 /** One hour (or part, on clock-change days) of a previewed day. */

@@ -1,6 +1,7 @@
 import { z } from 'zod';
 import { emailSchema, userStatusSchema } from './auth';
 import { roleSchema } from './roles';
+import { text } from './text';
 
 export const userSchema = z.object({
   id: z.uuid(),
@@ -18,18 +19,19 @@ export const userListSchema = z.object({ users: z.array(userSchema) });
 const rolesInput = z
   .array(roleSchema)
   .min(1, 'Choose at least one role')
+  .max(5, 'Each role once')
   .refine((r) => new Set(r).size === r.length, 'Each role once');
 
 export const inviteUserRequestSchema = z.strictObject({
   email: emailSchema,
-  name: z.string().trim().min(1, 'Enter the person\'s name').max(120),
+  name: text('The name').trim().min(1, 'Enter the person\'s name').max(120),
   roles: rolesInput,
 });
 export type InviteUserRequest = z.infer<typeof inviteUserRequestSchema>;
 
 export const updateUserRequestSchema = z
   .strictObject({
-    name: z.string().trim().min(1).max(120).optional(),
+    name: text('The name').trim().min(1, 'Enter the person\'s name').max(120).optional(),
     roles: rolesInput.optional(),
     active: z.boolean().optional(),
   })

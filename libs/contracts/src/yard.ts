@@ -1,5 +1,6 @@
 import { z } from 'zod';
-import { localDateTimeSchema } from './depot-setup';
+import { localDateTimeSchema } from './dates';
+import { text } from './text';
 import { planDetailSchema, planSummarySchema } from './plans';
 
 export const yardStepSchema = z.object({
@@ -33,7 +34,7 @@ export type Tonight = z.infer<typeof tonightSchema>;
 
 export const confirmStepSchema = z.strictObject({
   planId: z.uuid('Not a plan id'),
-  stepKey: z.string().min(1).max(200),
+  stepKey: text('The step').min(1, 'Choose the step').max(200),
 });
 
 export const yardConfirmationSchema = z.object({
@@ -43,13 +44,13 @@ export const yardConfirmationSchema = z.object({
 });
 
 const planRef = { planId: z.uuid('Not a plan id') };
-const busRef = z.string().trim().min(1, 'Choose the bus').max(20);
+const busRef = text('The bus').trim().min(1, 'Choose the bus').max(20);
 
 export const yardReportSchema = z.discriminatedUnion('kind', [
   z.strictObject({ ...planRef, kind: z.literal('bus_late'), bus: busRef, expectedAt: localDateTimeSchema }),
-  z.strictObject({ ...planRef, kind: z.literal('bus_absent'), bus: busRef, reason: z.string().trim().max(300).default('') }),
-  z.strictObject({ ...planRef, kind: z.literal('charger_out'), charger: z.string().trim().min(1, 'Choose the charger').max(40),
-    reason: z.string().trim().min(1, 'Say what is wrong with the charger').max(300) }),
+  z.strictObject({ ...planRef, kind: z.literal('bus_absent'), bus: busRef, reason: text('The reason').trim().max(300).default('') }),
+  z.strictObject({ ...planRef, kind: z.literal('charger_out'), charger: text('The charger').trim().min(1, 'Choose the charger').max(40),
+    reason: text('The reason').trim().min(1, 'Say what is wrong with the charger').max(300) }),
   z.strictObject({ ...planRef, kind: z.literal('soc_reading'), bus: busRef,
     socPct: z.number({ error: 'Enter the state of charge in %' }).min(0, 'A state of charge is 0 to 100 %').max(100, 'A state of charge is 0 to 100 %') }),
 ], { error: 'Choose what to report: bus_late, bus_absent, charger_out or soc_reading' });

@@ -2,7 +2,7 @@ import type { Request, Response } from 'express';
 import { z } from 'zod';
 import {
   ROLES, actionTokenInfoSchema, forgotPasswordRequestSchema, loginRequestSchema, meResponseSchema,
-  setPasswordRequestSchema, tokenResponseSchema,
+  setPasswordRequestSchema, text, tokenResponseSchema,
 } from '@nightyard/contracts';
 import type { AppDeps } from '../app-deps';
 import type { ApiRoutes } from '../http/route';
@@ -62,7 +62,7 @@ export function authRoutes(api: ApiRoutes, { db, auth: settings, mailer, log, cl
 
   api.add(
     { method: 'get', path: '/auth/action-tokens/:token', summary: 'Who an invitation or reset link is for', tag: 'auth',
-      access: 'public', params: z.strictObject({ token: z.string().min(20).max(200) }), response: actionTokenInfoSchema },
+      access: 'public', params: z.strictObject({ token: text('The link').min(20, 'The link is incomplete').max(200) }), response: actionTokenInfoSchema },
     async ({ params }) => auth.actionTokenInfo(db, params.token, clock()),
   );
 

@@ -1,6 +1,6 @@
 import { z } from 'zod';
 import {
-  depotIdParamsSchema, meterImportRequestSchema, meterImportResultSchema, monthCostsSchema, planCostsSchema, planIdParamsSchema,
+  depotIdParamsSchema, isoDate, meterImportRequestSchema, meterImportResultSchema, monthCostsSchema, planCostsSchema, planIdParamsSchema,
 } from '@nightyard/contracts';
 import type { AppDeps } from '../app-deps';
 import type { ApiRoutes } from '../http/route';
@@ -21,7 +21,7 @@ export function costsRoutes(api: ApiRoutes, { db, clock }: AppDeps) {
     { method: 'get', path: '/depots/:depotId/costs/month', summary: 'The billing period holding a date: projected and to date, peaks, nights',
       tag: 'costs', access: COST_READERS, params: depotIdParamsSchema,
       query: z.strictObject({
-        date: z.iso.date('Write the date as YYYY-MM-DD'),
+        date: isoDate(),
         dieselMpg: z.coerce.number().min(1, 'At least 1 mpg').max(30, 'At most 30 mpg').default(DIESEL_BUS_MPG),
       }),
       response: monthCostsSchema },
@@ -29,7 +29,8 @@ export function costsRoutes(api: ApiRoutes, { db, clock }: AppDeps) {
   );
   api.add(
     { method: 'post', path: '/depots/:depotId/meter-data', summary: 'Import utility interval data (Green Button XML or CSV), all or nothing',
-      tag: 'costs', access: COST_EDITORS, params: depotIdParamsSchema, body: meterImportRequestSchema, response: meterImportResultSchema, status: 201 },
+      tag: 'costs', access: COST_EDITORS, params: depotIdParamsSchema, body: meterImportRequestSchema, response: meterImportResultSchema, status: 201,
+      idempotent: true },
     async ({ user, params, body }) => importMeterData(db, user, params.depotId, body, clock()),
   );
 }

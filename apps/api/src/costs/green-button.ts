@@ -1,6 +1,7 @@
 import { parse as parseCsv } from 'csv-parse/sync';
 import { XMLParser } from 'fast-xml-parser';
 import { DateTime } from 'luxon';
+import { FIRST_YEAR, LAST_YEAR, MAX_KW } from '@nightyard/contracts';
 import { DomainError } from '../http/errors';
 
 /** One metered interval: start (epoch ms), length and energy drawn from the grid. */
@@ -17,6 +18,29 @@ export interface MeterFile {
 
 /** ESPI unit-of-measure codes (Green Button): 72 = Wh, 38 = W. */
 const UOM_WH = 72;
+/** ESPI powers of ten run from pico (-12) to tera (12). */
+const MAX_POWER_OF_TEN = 12;
+const FIRST_MS = Date.UTC(FIRST_YEAR, 0, 1);
+const END_MS = Date.UTC(LAST_YEAR + 1, 0, 1);
+
+/**
+ * Why an interval's energy cannot be right, or null: it must be a finite amount of 0 kWh or
+ * more whose average power stays within what any depot connection could draw (MAX_KW).
+ */
+export function energyProblem(kwh: number, minutes: number): string | null {
+  if (!Number.isFinite(kwh)) return 'The energy is not a finite number';
+  if (kwh < 0) return `${kwh} kWh is negative: import the energy drawn from the grid`;
+  const kw = (kwh * 60) / minutes;
+  if (kw > MAX_KW) return `${kwh} kWh in ${minutes} minutes is ${Math.round(kw).toLocaleString('en-US')} kW on average, above ${MAX_KW.toLocaleString('en-US')} kW: check the unit and multiplier`;
+  return null;
+}
+
+/** Why an interval's start and length cannot be right, or null. */
+function timeProblem(startMs: number, minutes: number): string | null {
+  if (!Number.isFinite(startMs) || startMs < FIRST_MS || startMs >= END_MS) return `The start must lie in the years ${FIRST_YEAR} to ${LAST_YEAR}`;
+  if (!Number.isFinite(minutes) || minutes <= 0 || minutes > 1440) return 'The length must be above 0 and at most one day';
+  return null;
+}
 
 function fail(message: string, fields: Record<string, string>): never {
   throw new DomainError('validation_failed', message, fields);
@@ -55,6 +79,11 @@ export function parseGreenButtonXml(text: string): MeterFile {
   const power = Number(rt.powerOfTenMultiplier ?? 0);
   if (uom !== UOM_WH) fail(`Unit ${rt.uom} is not supported: the readings must be energy in Wh (uom 72)`, { 'ReadingType.uom': `Unsupported unit ${rt.uom}` });
   if (!Number.isInteger(power)) fail('powerOfTenMultiplier must be a whole number', { 'ReadingType.powerOfTenMultiplier': 'Not an integer' });
+  if (Math.abs(power) > MAX_POWER_OF_TEN) {
+    fail(`powerOfTenMultiplier ${power} is out of range: ESPI uses -${MAX_POWER_OF_TEN} to ${MAX_POWER_OF_TEN}`, {
+      'ReadingType.powerOfTenMultiplier': `Use -${MAX_POWER_OF_TEN} to ${MAX_POWER_OF_TEN}`,
+    });
+  }
   const scale = 10 ** power / 1000; // Wh -> kWh
   const intervals: MeterInterval[] = [];
   const fields: Record<string, string> = {};
@@ -68,7 +97,14 @@ export function parseGreenButtonXml(text: string): MeterFile {
       const duration = Number(period?.duration);
       if (!Number.isInteger(value)) fields[`IntervalReading[${n}].value`] = `"${reading.value}" is not an integer`;
       else if (!Number.isFinite(start) || !Number.isFinite(duration) || duration <= 0) fields[`IntervalReading[${n}].timePeriod`] = 'Needs start and duration in seconds';
-      else intervals.push({ startMs: start * 1000, minutes: duration / 60, kwh: value * scale });
+      else {
+        const interval = { startMs: start * 1000, minutes: duration / 60, kwh: value * scale };
+        const when = timeProblem(interval.startMs, interval.minutes);
+        const energy = when ? null : energyProblem(interval.kwh, interval.minutes);
+        if (when) fields[`IntervalReading[${n}].timePeriod`] = when;
+        else if (energy) fields[`IntervalReading[${n}].value`] = `${new Date(interval.startMs).toISOString()}: ${energy}`;
+        else intervals.push(interval);
+      }
     }
   }
   if (Object.keys(fields).length) fail('Some readings are not valid; nothing was imported', fields);
@@ -121,7 +157,18 @@ export function parseGreenButtonCsv(text: string, zone: string): MeterFile {
     // END TIME is the interval's last minute (00:00-00:14) or its end (00:00-00:15).
     let end = endRaw.minute % 5 === 4 ? endRaw.plus({ minutes: 1 }) : endRaw;
     if (end <= start) end = end.plus({ days: 1 });
-    intervals.push({ startMs: start.toMillis(), minutes: end.diff(start, 'minutes').minutes, kwh: usage * factor });
+    const interval = { startMs: start.toMillis(), minutes: end.diff(start, 'minutes').minutes, kwh: usage * factor };
+    const when = timeProblem(interval.startMs, interval.minutes);
+    if (when) {
+      fields[`line ${line}.DATE`] ??= when;
+      return;
+    }
+    const energy = energyProblem(interval.kwh, interval.minutes);
+    if (energy) {
+      fields[`line ${line}.USAGE`] ??= `${get('DATE')} ${get('START TIME')}: ${energy}`;
+      return;
+    }
+    intervals.push(interval);
   });
   if (Object.keys(fields).length) fail('Some lines are not valid; nothing was imported', fields);
   return { format: 'green-button-csv', intervals };

@@ -4,6 +4,7 @@ import type { MeterImportResult } from '@nightyard/contracts';
 import { peaksOf } from '@nightyard/scheduling';
 import type { Db } from '../db/client';
 import { billingPeaks, meterImports, meterIntervals } from '../db/schema';
+import { lockTarget } from '../db/locks';
 import { DomainError } from '../http/errors';
 import type { AuthUser } from '../auth/auth-user';
 import { depotOf } from '../depots/depot-access';
@@ -33,6 +34,9 @@ export async function importMeterData(
   const measured = peaksOf(rate.definition, checked.intervals, { zone, intervalMinutes: checked.minutes });
 
   const result = await db.transaction(async (tx) => {
+    // One import at a time per depot: concurrent imports of overlapping intervals would each
+    // delete nothing and then clash on the same interval keys; peaks are raised from what is read.
+    await lockTarget(tx, 'billing-peaks', depotId);
     const [imp] = await tx
       .insert(meterImports)
       .values({

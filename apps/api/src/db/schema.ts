@@ -378,3 +378,25 @@ export const shiftAcknowledgements = pgTable(
   },
   (t) => [primaryKey({ columns: [t.userId, t.depotId, t.serviceDate] })],
 );
+
+/**
+ * Answers to writes sent with an `Idempotency-Key` header, kept 24 hours: a retry with the same
+ * key and body gets the stored answer instead of doing the write again. `status` is null while
+ * the first request is still being carried out.
+ */
+export const idempotencyKeys = pgTable(
+  'idempotency_keys',
+  {
+    id: id(),
+    userId: uuid('user_id').notNull().references(() => users.id, { onDelete: 'cascade' }),
+    key: text('key').notNull(),
+    /** Method and route pattern, e.g. `PUT /depots/:depotId/service-days/:date`. */
+    route: text('route').notNull(),
+    /** SHA-256 of the method, the path with its parameters and the canonical JSON body. */
+    requestHash: text('request_hash').notNull(),
+    status: integer('status'),
+    response: jsonb('response'),
+    createdAt: timestamp('created_at', { withTimezone: true }).notNull(),
+  },
+  (t) => [uniqueIndex('idempotency_keys_user_key').on(t.userId, t.key), index('idempotency_keys_created_idx').on(t.createdAt)],
+);

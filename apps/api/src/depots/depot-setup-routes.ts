@@ -1,7 +1,7 @@
 import { z } from 'zod';
 import {
   ROLES, assignRatePlanSchema, cabinetInputSchema, cabinetSchema, chargerInputSchema, chargerSchema, depotDetailSchema,
-  depotIdParamsSchema, depotItemParamsSchema, depotSettingsSchema, loadReductionWindowInputSchema,
+  depotIdParamsSchema, depotItemParamsSchema, depotSettingsSchema, isoDate, loadReductionWindowInputSchema,
   loadReductionWindowSchema, peaksSoFarSchema,
 } from '@nightyard/contracts';
 import type { AppDeps } from '../app-deps';
@@ -59,22 +59,23 @@ export function depotSetupRoutes(api: ApiRoutes, { db, clock }: AppDeps) {
     { method: 'put', path: '/depots/:depotId/load-reduction-windows', summary: 'Replace the load-reduction windows (all or none)',
       tag: 'depots', access: EDITORS, params: depotIdParamsSchema,
       body: z.strictObject({ windows: z.array(loadReductionWindowInputSchema).max(500) }),
-      response: z.object({ windows: z.array(loadReductionWindowSchema) }) },
+      response: z.object({ windows: z.array(loadReductionWindowSchema) }), idempotent: true },
     async ({ user, params, body }) => ({ windows: await setup.replaceLoadReductionWindows(db, user, params.depotId, body.windows) }),
   );
   api.add(
     { method: 'put', path: '/depots/:depotId/peaks-so-far', summary: 'Set the billing period\'s peaks so far', tag: 'depots',
-      access: EDITORS, params: depotIdParamsSchema, body: peaksSoFarSchema, response: z.object({ peaksSoFar: peaksSoFarSchema }) },
+      access: EDITORS, params: depotIdParamsSchema, body: peaksSoFarSchema, response: z.object({ peaksSoFar: peaksSoFarSchema }),
+      idempotent: true },
     async ({ user, params, body }) => ({ peaksSoFar: await setup.savePeaksSoFar(db, user, params.depotId, body, clock()) }),
   );
   api.add(
     { method: 'post', path: '/depots/:depotId/rate-plans', summary: 'Bill the depot under a rate plan from a date', tag: 'rates',
-      access: EDITORS, params: depotIdParamsSchema, body: assignRatePlanSchema, status: 204 },
+      access: EDITORS, params: depotIdParamsSchema, body: assignRatePlanSchema, status: 204, idempotent: true },
     async ({ user, params, body }) => assignRatePlan(db, user, params.depotId, body.ratePlanId, body.effectiveFrom),
   );
   api.add(
     { method: 'delete', path: '/depots/:depotId/rate-plans/:effectiveFrom', summary: 'Remove a rate plan assignment', tag: 'rates',
-      access: EDITORS, params: z.strictObject({ depotId: z.uuid('Not a depot id'), effectiveFrom: z.iso.date('Write the date as YYYY-MM-DD') }),
+      access: EDITORS, params: z.strictObject({ depotId: z.uuid('Not a depot id'), effectiveFrom: isoDate() }),
       status: 204 },
     async ({ user, params }) => unassignRatePlan(db, user, params.depotId, params.effectiveFrom),
   );

@@ -8,6 +8,7 @@ import {
   billingPeaks, chargers, depotRatePlans, depots, loadReductionWindows, powerCabinets, ratePlans,
 } from '../db/schema';
 import { DomainError, notFound } from '../http/errors';
+import { lockTarget } from '../db/locks';
 import type { AuthUser } from '../auth/auth-user';
 import { depotOf } from './depot-access';
 
@@ -147,18 +148,21 @@ export async function deleteCabinet(db: Db, caller: AuthUser, depotId: string, i
 export async function replaceLoadReductionWindows(
   db: Db, caller: AuthUser, depotId: string, windows: { start: string; end: string; limitKw: number; note: string }[],
 ): Promise<LoadReductionWindow[]> {
-  const depot = await depotOf(db, caller, depotId);
-  const at = (local: string) => DateTime.fromISO(local, { zone: depot.timezone });
-  const fields: Record<string, string> = {};
-  const sorted = windows.map((w, i) => ({ ...w, i, s: at(w.start), e: at(w.end) })).sort((a, b) => a.s.toMillis() - b.s.toMillis());
-  for (let k = 1; k < sorted.length; k++) {
-    if (sorted[k]!.s < sorted[k - 1]!.e) fields[`[${sorted[k]!.i}].start`] = `Overlaps the window starting ${sorted[k - 1]!.start}`;
-  }
-  windows.forEach((w, i) => {
-    if (w.limitKw > depot.serviceLimitKw) fields[`[${i}].limitKw`] = `Above the service limit (${depot.serviceLimitKw} kW): a reduced limit must be lower`;
-  });
-  if (Object.keys(fields).length) throw new DomainError('validation_failed', 'Check the load-reduction windows', fields);
+  await depotOf(db, caller, depotId);
   await db.transaction(async (tx) => {
+    // One writer per depot; the service limit is read again under the lock.
+    await lockTarget(tx, 'load-reduction-windows', depotId);
+    const depot = await depotOf(tx as unknown as Db, caller, depotId);
+    const at = (local: string) => DateTime.fromISO(local, { zone: depot.timezone });
+    const fields: Record<string, string> = {};
+    const sorted = windows.map((w, i) => ({ ...w, i, s: at(w.start), e: at(w.end) })).sort((a, b) => a.s.toMillis() - b.s.toMillis());
+    for (let k = 1; k < sorted.length; k++) {
+      if (sorted[k]!.s < sorted[k - 1]!.e) fields[`[${sorted[k]!.i}].start`] = `Overlaps the window starting ${sorted[k - 1]!.start}`;
+    }
+    windows.forEach((w, i) => {
+      if (w.limitKw > depot.serviceLimitKw) fields[`[${i}].limitKw`] = `Above the service limit (${depot.serviceLimitKw} kW): a reduced limit must be lower`;
+    });
+    if (Object.keys(fields).length) throw new DomainError('validation_failed', 'Check the load-reduction windows', fields);
     await tx.delete(loadReductionWindows).where(eq(loadReductionWindows.depotId, depotId));
     if (sorted.length) {
       await tx.insert(loadReductionWindows).values(
@@ -172,6 +176,10 @@ export async function replaceLoadReductionWindows(
 export async function savePeaksSoFar(db: Db, caller: AuthUser, depotId: string, p: PeaksSoFar, now: Date): Promise<PeaksSoFar> {
   await depotOf(db, caller, depotId);
   const values = { organisationId: caller.organisationId, billingPeriodStart: p.billingPeriodStart, facilityKw: p.facilityKw, periodsKw: p.periods, updatedAt: now };
-  await db.insert(billingPeaks).values({ depotId, ...values }).onConflictDoUpdate({ target: billingPeaks.depotId, set: values });
+  await db.transaction(async (tx) => {
+    // Meter-data imports raise the same row from what they read: they share this lock.
+    await lockTarget(tx, 'billing-peaks', depotId);
+    await tx.insert(billingPeaks).values({ depotId, ...values }).onConflictDoUpdate({ target: billingPeaks.depotId, set: values });
+  });
   return p;
 }

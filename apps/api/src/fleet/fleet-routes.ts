@@ -1,7 +1,7 @@
 import { z } from 'zod';
 import {
   busInputSchema, busSchema, copyServiceDaySchema, csvUploadSchema, depotIdParamsSchema, depotItemParamsSchema,
-  serviceDayInputSchema, serviceDayParamsSchema, serviceDaySchema, coldWeatherTableSchema, ROLES,
+  serviceDayInputSchema, serviceDayParamsSchema, serviceDaySchema, coldWeatherTableSchema, forecastLowFSchema, ROLES,
 } from '@nightyard/contracts';
 import { eq } from 'drizzle-orm';
 import type { AppDeps } from '../app-deps';
@@ -39,7 +39,7 @@ export function fleetRoutes(api: ApiRoutes, { db }: AppDeps) {
   );
   api.add(
     { method: 'put', path: '/depots/:depotId/cold-weather', summary: 'Change the cold-weather factors', tag: 'fleet',
-      access: FLEET_EDITORS, params: depotIdParamsSchema, body: z.strictObject({ bands: coldWeatherTableSchema }),
+      access: FLEET_EDITORS, params: depotIdParamsSchema, body: z.strictObject({ bands: coldWeatherTableSchema }), idempotent: true,
       response: z.object({ bands: coldWeatherTableSchema }) },
     async ({ user, params, body }) => {
       await depotOf(db, user, params.depotId);
@@ -54,18 +54,21 @@ export function fleetRoutes(api: ApiRoutes, { db }: AppDeps) {
   );
   api.add(
     { method: 'put', path: '/depots/:depotId/service-days/:date', summary: 'Replace a service day\'s runs (all rows or none)',
-      tag: 'fleet', access: FLEET_EDITORS, params: serviceDayParamsSchema, body: serviceDayInputSchema, response: serviceDaySchema },
+      tag: 'fleet', access: FLEET_EDITORS, params: serviceDayParamsSchema, body: serviceDayInputSchema, response: serviceDaySchema,
+      idempotent: true },
     async ({ user, params, body }) => replaceServiceDay(db, user, params.depotId, params.date, body, 'typed'),
   );
   api.add(
     { method: 'post', path: '/depots/:depotId/service-days/:date/copy', summary: 'Copy the runs of a previous day',
-      tag: 'fleet', access: FLEET_EDITORS, params: serviceDayParamsSchema, body: copyServiceDaySchema, response: serviceDaySchema },
+      tag: 'fleet', access: FLEET_EDITORS, params: serviceDayParamsSchema, body: copyServiceDaySchema, response: serviceDaySchema,
+      idempotent: true },
     async ({ user, params, body }) => copyServiceDay(db, user, params.depotId, params.date, body.fromDate, body.replace),
   );
   api.add(
     { method: 'post', path: '/depots/:depotId/service-days/:date/csv', summary: 'Upload a day\'s runs as CSV (all rows or none)',
       tag: 'fleet', access: FLEET_EDITORS, params: serviceDayParamsSchema,
-      body: csvUploadSchema.extend({ forecastLowF: z.number().min(-80).max(130).nullable().default(null) }), response: serviceDaySchema },
+      body: csvUploadSchema.extend({ forecastLowF: forecastLowFSchema.nullable().default(null) }), response: serviceDaySchema,
+      idempotent: true },
     async ({ user, params, body }) => {
       const { runs, lines } = parseRunsCsv(body.csv, params.date);
       return replaceServiceDay(db, user, params.depotId, params.date, { forecastLowF: body.forecastLowF, runs }, 'uploaded',

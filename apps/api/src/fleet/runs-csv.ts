@@ -1,5 +1,5 @@
 import { parse } from 'csv-parse/sync';
-import { runInputSchema, type RunInput } from '@nightyard/contracts';
+import { MAX_RUNS_PER_DAY, runInputSchema, type RunInput } from '@nightyard/contracts';
 import { DomainError } from '../http/errors';
 import { issuePath } from '../http/validate';
 
@@ -46,6 +46,11 @@ export function parseRunsCsv(text: string, date: string): { runs: RunInput[]; li
     for (const c of missing) fields[`line ${at}.${c}`] = `Column "${c}" is missing: start from the template`;
     for (const c of unknown) fields[`line ${at}.${c}`] = `Unknown column "${c}": the columns are ${RUN_COLUMNS.join(', ')}`;
     throw new DomainError('validation_failed', 'The header line does not match the template', fields);
+  }
+  if (rows.length > MAX_RUNS_PER_DAY) {
+    throw new DomainError('payload_too_large', `The file has ${rows.length} runs; a service day holds at most ${MAX_RUNS_PER_DAY}: nothing was saved`, {
+      file: `At most ${MAX_RUNS_PER_DAY} rows below the header`,
+    });
   }
   const col = (row: string[], name: string) => row[columns.indexOf(name)]?.trim() ?? '';
   const fields: Record<string, string> = {};

@@ -5,6 +5,7 @@ import {
 } from '@nightyard/contracts';
 import type { Db } from '../db/client';
 import { buses, runs, serviceDays } from '../db/schema';
+import { lockTarget } from '../db/locks';
 import { DomainError } from '../http/errors';
 import type { AuthUser } from '../auth/auth-user';
 import { depotOf } from '../depots/depot-access';
@@ -85,37 +86,46 @@ function checkRuns(depot: DepotRow, date: string, input: RunInput[], fleet: Map<
   return problems.sort((a, b) => a.index - b.index);
 }
 
+/** Rows per INSERT: PostgreSQL takes at most 65,535 parameters in one statement. */
+const INSERT_CHUNK = 1000;
+
 /** Replaces a service day's runs as a whole: every row is saved, or none. */
 export async function replaceServiceDay(
   db: Db, caller: AuthUser, depotId: string, date: string, input: ServiceDayInput,
   source: 'typed' | 'uploaded', label: (index: number, field: string) => string = (i, f) => `runs[${i}].${f === 'bus' ? 'busNumber' : f}`,
+  /** Checked under the lock, against the runs stored then (copying refuses to overwrite unasked). */
+  precondition?: (existingRuns: number) => void,
 ): Promise<ServiceDay> {
   const depot = await depotOf(db, caller, depotId);
-  const fleetRows = await db.select().from(buses).where(eq(buses.depotId, depotId));
-  const fleet = new Map(fleetRows.map((b) => [b.number, b]));
-  const problems = checkRuns(depot, date, input.runs, fleet);
-  if (problems.length) {
-    const fields: Record<string, string> = {};
-    for (const p of problems) fields[label(p.index, p.field)] ??= p.message;
-    throw new DomainError('validation_failed', `${problems.length} ${problems.length === 1 ? 'row needs' : 'rows need'} fixing; nothing was saved`, fields);
-  }
   const at = (t: string) => DateTime.fromISO(t, { zone: depot.timezone }).toJSDate();
-  // A reading that comes back unchanged keeps where it came from (typed or uploaded).
-  const before = await db.select().from(runs).where(and(eq(runs.depotId, depotId), eq(runs.serviceDate, date)));
-  const sourceOf = (r: RunInput) => {
-    if (r.arrivalSocPct === null) return null;
-    const same = before.find((b) => b.busId === fleet.get(r.busNumber)!.id && b.pullOut.getTime() === at(r.pullOut).getTime());
-    return same && same.arrivalSocPct === r.arrivalSocPct && same.arrivalSocSource ? same.arrivalSocSource : source;
-  };
   await db.transaction(async (tx) => {
+    // One writer per depot and day: concurrent uploads would otherwise each delete nothing and
+    // all insert. Everything read from the database is read again under the lock.
+    await lockTarget(tx, 'service-day', depotId, date);
+    const fleetRows = await tx.select().from(buses).where(eq(buses.depotId, depotId));
+    const fleet = new Map(fleetRows.map((b) => [b.number, b]));
+    const problems = checkRuns(depot, date, input.runs, fleet);
+    if (problems.length) {
+      const fields: Record<string, string> = {};
+      for (const p of problems) fields[label(p.index, p.field)] ??= p.message;
+      throw new DomainError('validation_failed', `${problems.length} ${problems.length === 1 ? 'row needs' : 'rows need'} fixing; nothing was saved`, fields);
+    }
+    // A reading that comes back unchanged keeps where it came from (typed or uploaded).
+    const before = await tx.select().from(runs).where(and(eq(runs.depotId, depotId), eq(runs.serviceDate, date)));
+    precondition?.(before.length);
+    const sourceOf = (r: RunInput) => {
+      if (r.arrivalSocPct === null) return null;
+      const same = before.find((b) => b.busId === fleet.get(r.busNumber)!.id && b.pullOut.getTime() === at(r.pullOut).getTime());
+      return same && same.arrivalSocPct === r.arrivalSocPct && same.arrivalSocSource ? same.arrivalSocSource : source;
+    };
     await tx.delete(runs).where(and(eq(runs.depotId, depotId), eq(runs.serviceDate, date)));
     await tx
       .insert(serviceDays)
       .values({ organisationId: caller.organisationId, depotId, serviceDate: date, forecastLowF: input.forecastLowF })
       .onConflictDoUpdate({ target: [serviceDays.depotId, serviceDays.serviceDate], set: { forecastLowF: input.forecastLowF } });
-    if (input.runs.length) {
+    for (let k = 0; k < input.runs.length; k += INSERT_CHUNK) {
       await tx.insert(runs).values(
-        input.runs.map((r) => ({
+        input.runs.slice(k, k + INSERT_CHUNK).map((r) => ({
           organisationId: caller.organisationId, depotId, busId: fleet.get(r.busNumber)!.id, serviceDate: date,
           pullOut: at(r.pullOut), pullIn: at(r.pullIn), miles: r.miles, kwh: r.kwh,
           arrivalSocPct: r.arrivalSocPct, arrivalSocSource: sourceOf(r),
@@ -129,9 +139,10 @@ export async function replaceServiceDay(
 /** Copies another day's runs to `date` at the same wall-clock times (readings are not copied). */
 export async function copyServiceDay(db: Db, caller: AuthUser, depotId: string, date: string, fromDate: string, replace: boolean): Promise<ServiceDay> {
   const existing = await getServiceDay(db, caller, depotId, date);
-  if (existing.runs.length && !replace) {
-    throw new DomainError('conflict', `${date} already has ${existing.runs.length} runs: choose to replace them`);
-  }
+  const refuseOverwrite = (runsThere: number) => {
+    if (runsThere && !replace) throw new DomainError('conflict', `${date} already has ${runsThere} runs: choose to replace them`);
+  };
+  refuseOverwrite(existing.runs.length);
   const source = await getServiceDay(db, caller, depotId, fromDate);
   if (!source.runs.length) throw new DomainError('validation_failed', `${fromDate} has no runs to copy`, { fromDate: 'No runs on that day' });
   const shift = (t: string) => {
@@ -141,7 +152,7 @@ export async function copyServiceDay(db: Db, caller: AuthUser, depotId: string, 
   return replaceServiceDay(db, caller, depotId, date, {
     forecastLowF: existing.forecastLowF,
     runs: source.runs.map((r) => ({ busNumber: r.busNumber, pullOut: shift(r.pullOut), pullIn: shift(r.pullIn), miles: r.miles, kwh: r.kwh, arrivalSocPct: null })),
-  }, 'typed');
+  }, 'typed', undefined, refuseOverwrite);
 }
 
 export async function busesByIds(db: Db, ids: string[]) {

@@ -3,6 +3,7 @@ import type { NextFunction, Request, Response, Router } from 'express';
 import { z, type ZodObject, type ZodType } from 'zod';
 import { errorBodySchema, hasAnyRole, type Role } from '@nightyard/contracts';
 import { forbidden, unauthenticated } from './errors';
+import { idempotencyKeyOf, requestHash, type IdempotencyStore } from './idempotency';
 import { parseOrThrow } from './validate';
 import type { AuthUser } from '../auth/auth-user';
 
@@ -24,6 +25,11 @@ export interface RouteSpec<B extends ZodType, Q extends ZodType, P extends ZodTy
   response?: R;
   /** Success status; 204 sends no body. */
   status?: number;
+  /**
+   * Accept an `Idempotency-Key` header: a repeat with the same key and body gets the first
+   * answer without the write being done again (for replace-all writes, imports, invitations).
+   */
+  idempotent?: boolean;
 }
 
 export interface RouteContext<B, Q, P> {
@@ -56,6 +62,7 @@ export class ApiRoutes {
     private readonly router: Router,
     private readonly openapi: OpenAPIRegistry,
     private readonly authenticate: (req: Request, res: Response, next: NextFunction) => void,
+    private readonly idempotency?: IdempotencyStore,
   ) {}
 
   add<B extends ZodType = never, Q extends ZodType = never, P extends ZodType = never, R extends ZodType = never>(
@@ -63,6 +70,10 @@ export class ApiRoutes {
     handler: (ctx: RouteContext<Out<B>, Out<Q>, Out<P>>) => Promise<Out<R> | void> | Out<R> | void,
   ): void {
     const status = spec.status ?? 200;
+    if (spec.idempotent && (spec.access === 'public' || !this.idempotency)) {
+      throw new Error(`${spec.method.toUpperCase()} ${spec.path}: idempotent routes need a signed-in caller and an idempotency store`);
+    }
+    const routeName = `${spec.method.toUpperCase()} ${spec.path}`;
     const run = async (req: Request, res: Response) => {
       const user = req.user as AuthUser | undefined;
       if (spec.access !== 'public') {
@@ -72,10 +83,23 @@ export class ApiRoutes {
       const params = (spec.params ? parseOrThrow(spec.params, req.params, 'params') : undefined) as Out<P>;
       const query = (spec.query ? parseOrThrow(spec.query, req.query ?? {}, 'query') : undefined) as Out<Q>;
       const body = (spec.body ? parseOrThrow(spec.body, req.body ?? {}, 'body') : undefined) as Out<B>;
-      const result = await handler({ body, query, params, user: user as AuthUser, req, res });
+      const key = spec.idempotent ? idempotencyKeyOf(req.headers['idempotency-key']) : undefined;
+      const execute = async () => {
+        const result = await handler({ body, query, params, user: user as AuthUser, req, res });
+        return { status, body: status === 204 ? null : spec.response ? spec.response.parse(result) : result };
+      };
+      let answer: { status: number; body: unknown };
+      if (key) {
+        const hash = requestHash(req.method, req.originalUrl, req.body);
+        const kept = await this.idempotency!.run({ userId: (user as AuthUser).id, key, route: routeName, requestHash: hash }, execute);
+        if (kept.replayed) res.setHeader('Idempotent-Replayed', 'true');
+        answer = kept;
+      } else {
+        answer = await execute();
+      }
       if (res.headersSent) return;
-      if (status === 204) res.status(204).end();
-      else res.status(status).json(spec.response ? spec.response.parse(result) : result);
+      if (answer.status === 204) res.status(204).end();
+      else res.status(answer.status).json(answer.body);
     };
     const chain = spec.access === 'public' ? [run] : [this.authenticate, run];
     this.router[spec.method](spec.path, ...chain);
@@ -98,12 +122,23 @@ export class ApiRoutes {
         params: spec.params as ZodObject | undefined,
         query: spec.query as ZodObject | undefined,
         body: spec.body ? { content: { 'application/json': { schema: spec.body } } } : undefined,
+        headers: spec.idempotent
+          ? z.object({
+              'Idempotency-Key': z.string().optional().describe('Send the same key to retry safely: a repeat gets the first answer for 24 hours'),
+            })
+          : undefined,
       },
       responses: {
         [status]: spec.response
           ? { description: 'Success', content: { 'application/json': { schema: spec.response } } }
           : { description: 'Success' },
         400: { description: 'The input is not valid; `fields` says what to fix', content: errorContent },
+        ...(spec.idempotent
+          ? {
+              409: { description: 'Conflicts with a change saved at the same moment, or the first request with this key is still running', content: errorContent },
+              422: { description: 'The Idempotency-Key was used for a different request', content: errorContent },
+            }
+          : {}),
         ...(spec.access === 'public'
           ? {}
           : {

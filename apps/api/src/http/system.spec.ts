@@ -35,5 +35,9 @@ describe('OpenAPI document', () => {
     }
     const login = res.body.paths['/api/auth/login'].post;
     expect(login.requestBody.content['application/json'].schema.required).toEqual(['email', 'password']);
+    // Replace-all writes document the Idempotency-Key header and its 422.
+    const upload = res.body.paths['/api/depots/{depotId}/service-days/{date}/csv'].post;
+    expect(upload.parameters).toContainEqual(expect.objectContaining({ in: 'header', name: 'Idempotency-Key' }));
+    expect(Object.keys(upload.responses)).toEqual(expect.arrayContaining(['409', '422']));
   });
 });

@@ -1,6 +1,6 @@
 import { z } from 'zod';
 import {
-  ROLES, depotIdParamsSchema, generatePlanSchema, planComparisonSchema, planDetailSchema, planIdParamsSchema,
+  ROLES, depotIdParamsSchema, isoDate, generatePlanSchema, planComparisonSchema, planDetailSchema, planIdParamsSchema,
   planSummarySchema, publishPlanSchema,
 } from '@nightyard/contracts';
 import type { AppDeps } from '../app-deps';
@@ -15,7 +15,7 @@ export function plansRoutes(api: ApiRoutes, deps: AppDeps) {
   const { db, jobs, mailer, auth } = deps;
   api.add(
     { method: 'get', path: '/depots/:depotId/plans', summary: 'Plan versions of the depot, newest first', tag: 'plans', access: ROLES,
-      params: depotIdParamsSchema, query: z.strictObject({ serviceDate: z.iso.date().optional() }),
+      params: depotIdParamsSchema, query: z.strictObject({ serviceDate: isoDate().optional() }),
       response: z.object({ plans: z.array(planSummarySchema) }) },
     async ({ user, params, query }) => ({ plans: await plans.listPlans(db, user, params.depotId, query.serviceDate) }),
   );

@@ -1,6 +1,6 @@
 import { z } from 'zod';
 import {
-  ratePlanDefinitionSchema, type RatePlanDefinition, type Season, type TouPeriod, type TouWindow, type UrdbImportResult,
+  ratePlanDefinitionSchema, text, type RatePlanDefinition, type Season, type TouPeriod, type TouWindow, type UrdbImportResult,
 } from '@nightyard/contracts';
 import { DomainError } from '../http/errors';
 import { issuePath } from '../http/validate';
@@ -9,37 +9,45 @@ import { issuePath } from '../http/validate';
 // rules (12 x 24 schedules, 12 flat-demand months, indices present, `max` on every tier but the
 // last) are the ones NREL's REopt applies to URDB records.
 
-const tierSchema = z.looseObject({
-  rate: z.number().optional(),
-  adj: z.number().optional(),
-  max: z.number().optional(),
-  unit: z.string().optional(),
-  sell: z.number().optional(),
+/** A price in the physical range of its unit ($/kWh for energy, $/kW for demand). */
+const price = (lo: number, hi: number, unit: string) =>
+  z.number({ error: `Give the price in ${unit} as a number` })
+    .min(lo, `Prices are ${lo} to ${hi.toLocaleString('en-US')} ${unit}`)
+    .max(hi, `Prices are ${lo} to ${hi.toLocaleString('en-US')} ${unit}`);
+const tierSchema = (lo: number, hi: number, unit: string) => z.looseObject({
+  rate: price(lo, hi, unit).optional(),
+  adj: price(-hi, hi, unit).optional(),
+  max: z.number().min(0, 'A tier limit cannot be negative').max(1e9, 'A tier limit looks too large').optional(),
+  unit: text('The unit').max(20).optional(),
+  sell: price(-hi, hi, unit).optional(),
 });
-const structureSchema = z.array(z.array(tierSchema).min(1, 'A period needs at least one tier'));
+const structureSchema = (lo: number, hi: number, unit: string) =>
+  z.array(z.array(tierSchema(lo, hi, unit)).min(1, 'A period needs at least one tier').max(20)).max(100);
+const energyStructure = structureSchema(-10, 100, '$/kWh');
+const demandStructure = structureSchema(0, 10_000, '$/kW');
 const scheduleSchema = z
   .array(z.array(z.number().int().min(0, 'Period indices start at 0'), { error: 'Each month is a list of 24 period indices' }).length(24, 'Each month needs 24 hourly entries (hours 0-23)'))
   .length(12, 'A schedule has 12 months');
 
 const recordSchema = z.looseObject({
-  name: z.string().optional(),
-  utility: z.string().optional(),
-  label: z.string().optional(),
-  energyratestructure: structureSchema.optional(),
+  name: text('The name').max(200).optional(),
+  utility: text('The utility').max(200).optional(),
+  label: text('The label').max(200).optional(),
+  energyratestructure: energyStructure.optional(),
   energyweekdayschedule: scheduleSchema.optional(),
   energyweekendschedule: scheduleSchema.optional(),
-  demandratestructure: structureSchema.optional(),
+  demandratestructure: demandStructure.optional(),
   demandweekdayschedule: scheduleSchema.optional(),
   demandweekendschedule: scheduleSchema.optional(),
-  flatdemandstructure: structureSchema.optional(),
+  flatdemandstructure: demandStructure.optional(),
   flatdemandmonths: z.array(z.number().int().min(0)).length(12, 'flatdemandmonths needs 12 entries, one per month').optional(),
-  fixedchargefirstmeter: z.number().min(0).optional(),
-  fixedchargeunits: z.string().optional(),
-  demandunits: z.string().optional(),
-  flatdemandunit: z.string().optional(),
+  fixedchargefirstmeter: z.number().min(0, 'A fixed charge cannot be negative').max(10_000_000, 'The fixed charge looks too large').optional(),
+  fixedchargeunits: text('The unit').max(20).optional(),
+  demandunits: text('The unit').max(20).optional(),
+  flatdemandunit: text('The unit').max(20).optional(),
 });
 type UrdbRecord = z.infer<typeof recordSchema>;
-type Tier = z.infer<typeof tierSchema>;
+type Tier = z.infer<ReturnType<typeof tierSchema>>;
 
 const IGNORED_FIELDS: Record<string, string> = {
   coincidentratestructure: 'coincident demand charges',
@@ -86,6 +94,9 @@ function checkStructure(rec: UrdbRecord, structureKey: 'energyratestructure' | '
     tiers.forEach((t, i) => {
       if (i < tiers.length - 1 && t.max === undefined) errors[`${structureKey}[${p}][${i}].max`] = 'Every tier but the last needs a max';
       if (t.rate === undefined && t.adj === undefined) errors[`${structureKey}[${p}][${i}].rate`] = 'A tier needs a rate';
+      else if (i === 0 && (t.rate ?? 0) + (t.adj ?? 0) < 0) {
+        errors[`${structureKey}[${p}][${i}].rate`] = `The price with its adjustment is ${(t.rate ?? 0) + (t.adj ?? 0)}: Nightyard needs prices of 0 or more`;
+      }
       if (structureKey === 'energyratestructure' && t.unit !== undefined && t.unit !== 'kWh') {
         errors[`${structureKey}[${p}][${i}].unit`] = `Unit "${t.unit}" is not supported: only kWh prices can be imported`;
       }
@@ -257,7 +268,14 @@ export function importUrdb(input: unknown): UrdbImportResult {
       : [...toWindows(weekday, ['weekday']), ...toWindows(weekend, ['weekend', 'holiday'])];
   }
 
-  const definition = ratePlanDefinitionSchema.parse({ currency: 'USD', seasons, fixedCharges: fixed, holidays: [] });
+  // What the record maps to must still be a valid plan (e.g. a yearly charge within range).
+  const mapped = ratePlanDefinitionSchema.safeParse({ currency: 'USD', seasons, fixedCharges: fixed, holidays: [] });
+  if (!mapped.success) {
+    const fields: Record<string, string> = {};
+    for (const i of mapped.error.issues) fields[`plan.${issuePath(i.path)}`] ??= i.message;
+    fail(fields);
+  }
+  const definition = mapped.data;
   const name = [rec.utility, rec.name].filter(Boolean).join(': ') || 'Imported URDB rate';
   return { name, definition, notes };
 }

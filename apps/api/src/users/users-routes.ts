@@ -14,7 +14,7 @@ export function usersRoutes(api: ApiRoutes, { db, mailer, config, auth, clock }:
 
   api.add(
     { method: 'post', path: '/users/invite', summary: 'Invite someone by e-mail', tag: 'people', access: ['admin'],
-      body: inviteUserRequestSchema, response: z.object({ user: userSchema }), status: 201 },
+      body: inviteUserRequestSchema, response: z.object({ user: userSchema }), status: 201, idempotent: true },
     async ({ user, body }) => ({ user: await inviteUser(db, mailer, invite, user, body, clock()) }),
   );
 

@@ -2,6 +2,7 @@ import { and, asc, eq, isNull, ne, sql } from 'drizzle-orm';
 import type { InviteUserRequest, UpdateUserRequest, User } from '@nightyard/contracts';
 import type { Db } from '../db/client';
 import { organisations, refreshTokens, users } from '../db/schema';
+import { lockTarget } from '../db/locks';
 import { DomainError, conflict, notFound } from '../http/errors';
 import type { AuthUser } from '../auth/auth-user';
 import { createActionToken } from '../auth/auth-service';
@@ -35,24 +36,23 @@ const cannotInvite = () =>
 
 /** Creates an invited account (or re-sends a pending invitation) and e-mails the link. */
 export async function inviteUser(db: Db, mailer: Mailer, s: InviteSettings, caller: AuthUser, req: InviteUserRequest, now: Date): Promise<User> {
-  const [existing] = await db.select().from(users).where(eq(users.email, req.email));
-  if (existing && existing.organisationId === caller.organisationId && existing.status !== 'invited') {
-    throw new DomainError('conflict', 'Someone in your organisation already has an account with this e-mail', { email: 'Already in use' });
-  }
-  // E-mail addresses are unique across the service (they sign in without naming an organisation);
-  // an address used elsewhere is refused without saying where or by whom.
-  if (existing && existing.organisationId !== caller.organisationId) throw cannotInvite();
-  const user =
-    existing
-      ? (await db.update(users).set({ name: req.name, roles: req.roles }).where(eq(users.id, existing.id)).returning())[0]!
-      : (await db.insert(users).values({ organisationId: caller.organisationId, email: req.email, name: req.name, roles: req.roles, status: 'invited' })
-          .returning()
-          .catch((err: unknown) => {
-            // Taken between the check and the insert (a race with another invitation).
-            if ((err as { cause?: { code?: string } }).cause?.code === '23505' || (err as { code?: string }).code === '23505') throw cannotInvite();
-            throw err;
-          }))[0]!;
-  const token = await createActionToken(db, user.id, 'invite', s.inviteHours * 3_600_000, now);
+  const { user, token } = await db.transaction(async (tx) => {
+    // Invitations to one address wait for each other, so the same invitation sent twice at once
+    // creates one account (the second re-sends the invitation) instead of a unique violation.
+    await lockTarget(tx, 'invite', req.email);
+    const [existing] = await tx.select().from(users).where(eq(users.email, req.email));
+    if (existing && existing.organisationId === caller.organisationId && existing.status !== 'invited') {
+      throw new DomainError('conflict', 'Someone in your organisation already has an account with this e-mail', { email: 'Already in use' });
+    }
+    // E-mail addresses are unique across the service (they sign in without naming an organisation);
+    // an address used elsewhere is refused without saying where or by whom.
+    if (existing && existing.organisationId !== caller.organisationId) throw cannotInvite();
+    const row =
+      existing
+        ? (await tx.update(users).set({ name: req.name, roles: req.roles }).where(eq(users.id, existing.id)).returning())[0]!
+        : (await tx.insert(users).values({ organisationId: caller.organisationId, email: req.email, name: req.name, roles: req.roles, status: 'invited' }).returning())[0]!;
+    return { user: row, token: await createActionToken(tx as unknown as Db, row.id, 'invite', s.inviteHours * 3_600_000, now) };
+  });
   const [org] = await db.select({ name: organisations.name }).from(organisations).where(eq(organisations.id, caller.organisationId));
   await mailer.send(
     invitationMail({

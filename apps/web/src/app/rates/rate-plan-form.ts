@@ -3,6 +3,7 @@ import {
   DAY_TYPES,
   clockTimeSchema,
   fixedChargeSchema,
+  isoDate,
   ratePlanDefinitionSchema,
   saveRatePlanSchema,
   seasonSchema,
@@ -58,13 +59,11 @@ export function windowGroup(w?: TouWindow) {
 }
 export type WindowGroup = ReturnType<typeof windowGroup>;
 
-const money = (what: string) => z.number().min(0, `${what} cannot be negative`).max(1_000_000, `${what} looks too large`);
-
 export function periodGroup(p?: TouPeriod) {
   return new FormGroup({
     name: new FormControl(p?.name ?? '', { nonNullable: true, validators: zodValidator(period.name, 'Name the period, e.g. on-peak') }),
-    price: new FormControl<number | null>(p?.price ?? null, zodValidator(money('The energy price'), 'Enter the energy price per kWh')),
-    demandCharge: new FormControl<number | null>(p?.demandCharge ?? 0, zodValidator(money('The demand charge'), 'Enter the demand charge per kW (0 if none)')),
+    price: new FormControl<number | null>(p?.price ?? null, zodValidator(period.price, 'Enter the energy price per kWh')),
+    demandCharge: new FormControl<number | null>(p?.demandCharge ?? 0, zodValidator(period.demandCharge, 'Enter the demand charge per kW (0 if none)')),
     windows: new FormArray((p?.windows ?? [undefined]).map((w) => windowGroup(w))),
   });
 }
@@ -75,10 +74,10 @@ export function seasonGroup(s?: Season) {
     name: new FormControl(s?.name ?? '', { nonNullable: true, validators: zodValidator(season.name, 'Name the season') }),
     fromMonth: new FormControl<number>(s?.fromMonth ?? 1, { nonNullable: true }),
     toMonth: new FormControl<number>(s?.toMonth ?? 12, { nonNullable: true }),
-    offPeakPrice: new FormControl<number | null>(s?.offPeakPrice ?? null, zodValidator(money('The off-peak price'), 'Enter the off-peak price per kWh')),
+    offPeakPrice: new FormControl<number | null>(s?.offPeakPrice ?? null, zodValidator(season.offPeakPrice, 'Enter the off-peak price per kWh')),
     facilityDemandCharge: new FormControl<number | null>(
       s?.facilityDemandCharge ?? 0,
-      zodValidator(money('The facility demand charge'), 'Enter the facility demand charge per kW (0 if none)'),
+      zodValidator(season.facilityDemandCharge, 'Enter the facility demand charge per kW (0 if none)'),
     ),
     periods: new FormArray((s?.periods ?? []).map((p) => periodGroup(p))),
   });
@@ -88,14 +87,14 @@ export type SeasonGroup = ReturnType<typeof seasonGroup>;
 export function fixedChargeGroup(f?: RatePlanDefinition['fixedCharges'][number]) {
   return new FormGroup({
     name: new FormControl(f?.name ?? '', { nonNullable: true, validators: zodValidator(fixed.name, 'Name the charge, e.g. customer charge') }),
-    amount: new FormControl<number | null>(f?.amount ?? null, zodValidator(money('The fixed charge'), 'Enter the amount')),
+    amount: new FormControl<number | null>(f?.amount ?? null, zodValidator(fixed.amount, 'Enter the amount')),
     per: new FormControl<'day' | 'month'>(f?.per ?? 'month', { nonNullable: true }),
   });
 }
 export type FixedChargeGroup = ReturnType<typeof fixedChargeGroup>;
 
 export function holidayControl(date = '') {
-  return new FormControl(date, { nonNullable: true, validators: zodValidator(z.iso.date('Write dates as YYYY-MM-DD'), 'Enter the date') });
+  return new FormControl(date, { nonNullable: true, validators: zodValidator(isoDate('Write dates as YYYY-MM-DD'), 'Enter the date') });
 }
 
 /** A new plan starts with one all-year season and no periods (every hour off-peak). */
