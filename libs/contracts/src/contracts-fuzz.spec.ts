@@ -68,7 +68,7 @@ const NOT_REQUESTS = new Set([
   'planStateSchema', 'planJobStatusSchema', 'planKindSchema', 'planResultSchema', 'planSummarySchema', 'planDetailSchema',
   'planComparisonSchema', 'billLineSchema', 'billSchema', 'planCostsSchema', 'emissionsSchema', 'monthCostsSchema',
   'meterImportResultSchema', 'yardStepSchema', 'tonightSchema', 'yardConfirmationSchema', 'yardReportResultSchema',
-  'emailSchema', 'passwordSchema',
+  'emailSchema', 'passwordSchema', 'serviceNightSchema', 'depotNightSchema',
 ]);
 
 const nastyString = fc.oneof(
