@@ -15,6 +15,7 @@ import { toApiProblem } from '../core/api-error';
 import { applyServerErrors, errorText } from '../shared/form-paths';
 import { ProblemSummary, type ProblemItem } from '../shared/problem-summary';
 import { injectCanEditSetup } from '../shared/setup-editors';
+import { ClockTimeInput } from '../shared/clock-time-input';
 import { DAY_TYPE_LABELS, MONTH_NAMES, windowEndNote } from './rate-format';
 import {
   checkDefinition,
@@ -82,6 +83,7 @@ function where(path: string): string {
 @Component({
   selector: 'ny-rate-plan-editor-page',
   imports: [
+    ClockTimeInput,
     MatAutocompleteModule,
     MatButtonModule,
     MatCheckboxModule,
