@@ -116,6 +116,13 @@ export class TonightPage {
   protected readonly faulted = computed(() => this.chargers().filter((c) => c.state === 'faulted').length);
 
   private run = 0;
+  /** Tonight's service date at the depot, as the server says. */
+  private readonly tonightDate = computed(() => {
+    const depot = this.depots.current();
+    return depot ? this.nights.tonightOf(depot) : null;
+  });
+  /** The night the page last looked from. */
+  private loadedFor: string | null = null;
 
   constructor() {
     void this.depots.load();
@@ -130,14 +137,6 @@ export class TonightPage {
       if (depot && tonight && this.loadedFor && tonight !== this.loadedFor) untracked(() => this.load(depot));
     });
   }
-
-  /** Tonight's service date at the depot, as the server says. */
-  private readonly tonightDate = computed(() => {
-    const depot = this.depots.current();
-    return depot ? this.nights.tonightOf(depot) : null;
-  });
-  /** The night the page last looked from. */
-  private loadedFor: string | null = null;
 
   protected reload(): void {
     const depot = this.depots.current();
