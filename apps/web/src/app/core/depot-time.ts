@@ -62,6 +62,7 @@ export function dateTimeAt(at: Instant, timeZone: string): string {
 export function depotParts(at: Instant, timeZone: string): { date: string; time: string; hour: number } {
   const options: Intl.DateTimeFormatOptions = { year: 'numeric', month: '2-digit', day: '2-digit', ...CLOCK_OPTIONS };
   const ms = toMs(at);
+  if (Number.isNaN(ms)) return { date: '', time: '', hour: 0 };
   const parts = Object.fromEntries(formatter('parts', 'en-CA', options, timeZone).formatToParts(ms).map((p) => [p.type, p.value]));
   const hour = Number(parts['hour']) % 24;
   return { date: `${parts['year']}-${parts['month']}-${parts['day']}`, time: `${String(hour).padStart(2, '0')}:${parts['minute']}`, hour };

@@ -70,7 +70,12 @@ export class NightStore {
       .then(
         (body) => {
           // The contract's object itself; read a `{ night }` envelope too, as other routes answer.
-          const night = 'tonight' in body ? body : body.night;
+          const night = body && 'tonight' in body ? body : body?.night;
+          if (!night?.tonight) {
+            this.error.set('The server did not say which night it is.');
+            this.state.set('failed');
+            return;
+          }
           this.answer.set({ depotId: depot.id, night });
           this.state.set('loaded');
         },
