@@ -24,7 +24,6 @@ import { NightsTable } from './nights-table';
 /** Who may import meter data (the API's editors); finance, admin, supervisors and facilities read. */
 export const COST_EDITORS: readonly Role[] = ['finance', 'admin'];
 
-
 const PEAK_SOURCE: Record<MonthCosts['peaks']['facility']['source'], string> = {
   actual: 'from meter data',
   planned: 'in a published plan',

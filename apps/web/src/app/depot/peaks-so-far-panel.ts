@@ -9,10 +9,10 @@ import { MatSnackBar } from '@angular/material/snack-bar';
 import { peaksSoFarSchema, type PeaksSoFar } from '@nightyard/contracts';
 import { z } from 'zod';
 import { toApiProblem } from '../core/api-error';
+import { Clock } from '../core/clock';
 import { applyServerErrors, errorText, zodValidator } from '../shared/form-paths';
 import { ProblemSummary, type ProblemItem } from '../shared/problem-summary';
 import { DepotApi } from './depot-api';
-import { Clock } from '../core/clock';
 import { formatDate, formatKw } from './depot-setup-format';
 
 const shape = peaksSoFarSchema.shape;
@@ -51,10 +51,9 @@ export function billingPeriodStart(today: string, day: number): string {
 export class PeaksSoFarPanel {
   private readonly api = inject(DepotApi);
   private readonly snackBar = inject(MatSnackBar);
-
-  readonly depotId = input.required<string>();
   private readonly clock = inject(Clock);
 
+  readonly depotId = input.required<string>();
   readonly peaks = input.required<PeaksSoFar | null>();
   readonly billingStartDay = input(1);
   readonly timezone = input('UTC');

@@ -13,12 +13,12 @@ import { ROLE_LABELS, type User } from '@nightyard/contracts';
 import { AuthStore } from '../auth/auth-store';
 import { toApiProblem } from '../core/api-error';
 import { injectIsPhone } from '../core/layout';
+import { VIEWER_TIME_ZONE } from '../core/depot-time-note';
+import { DepotStore } from '../depots/depot-store';
 import { SectionIntro } from '../sections/section-intro';
 import { ConfirmDialog, type ConfirmData } from './confirm-dialog';
 import { InviteDialog } from './invite-dialog';
 import { PeopleApi } from './people-api';
-import { VIEWER_TIME_ZONE } from '../core/depot-time-note';
-import { DepotStore } from '../depots/depot-store';
 import { STATUS_ICONS, STATUS_LABELS, formatWhen } from './people-format';
 import { RolesDialog } from './roles-dialog';
 

@@ -12,10 +12,10 @@ import { MatSnackBar } from '@angular/material/snack-bar';
 import { Router, RouterLink } from '@angular/router';
 import { DAY_TYPES, type RatePlan, type RatePlanDefinition } from '@nightyard/contracts';
 import { toApiProblem } from '../core/api-error';
+import { ClockTimeInput } from '../shared/clock-time-input';
 import { applyServerErrors, errorText } from '../shared/form-paths';
 import { ProblemSummary, type ProblemItem } from '../shared/problem-summary';
 import { injectCanEditSetup } from '../shared/setup-editors';
-import { ClockTimeInput } from '../shared/clock-time-input';
 import { DAY_TYPE_LABELS, MONTH_NAMES, windowEndNote } from './rate-format';
 import {
   checkDefinition,
