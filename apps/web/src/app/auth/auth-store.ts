@@ -9,6 +9,7 @@ import {
   type TokenResponse,
 } from '@nightyard/contracts';
 import { firstValueFrom } from 'rxjs';
+import { Clock } from '../core/clock';
 
 interface Session {
   accessToken: string;
@@ -26,6 +27,7 @@ const REFRESH_AHEAD_MS = 60_000;
 @Injectable({ providedIn: 'root' })
 export class AuthStore {
   private readonly http = inject(HttpClient);
+  private readonly clock = inject(Clock);
   private readonly session = signal<Session | null>(null);
 
   readonly user = computed(() => this.session()?.user ?? null);
@@ -114,7 +116,7 @@ export class AuthStore {
 
   private accept(res: TokenResponse): void {
     const lifetimeMs = Math.max(0, res.expiresInSeconds * 1000);
-    this.session.set({ accessToken: res.accessToken, user: res.user, expiresAt: Date.now() + lifetimeMs });
+    this.session.set({ accessToken: res.accessToken, user: res.user, expiresAt: this.clock.nowMs() + lifetimeMs });
     this.restoring = Promise.resolve(true);
     clearTimeout(this.refreshTimer);
     if (lifetimeMs > 0) {

@@ -1,4 +1,7 @@
 import type { MonthCosts } from '@nightyard/contracts';
+import { addDays, dayTimeAt, depotStamp } from '../core/depot-time';
+
+export { addDays };
 
 /** Formatting for the Costs section: amounts in the rate plan's currency, kW, dates at the depot. */
 
@@ -43,14 +46,6 @@ function parseDate(iso: string): Date | null {
 
 function isoOf(d: Date): string {
   return d.toISOString().slice(0, 10);
-}
-
-/** A calendar date plus `days` (no time-zone shift). */
-export function addDays(iso: string, days: number): string {
-  const d = parseDate(iso);
-  if (!d) return iso;
-  d.setUTCDate(d.getUTCDate() + days);
-  return isoOf(d);
 }
 
 /** A calendar date `months` on, the day kept (or the month's last day when it has fewer). */
@@ -108,32 +103,13 @@ export function monthKey(start: string): string {
 
 /** An instant (ISO string or epoch ms) at the depot: "Wed 2 Dec, 17:15". */
 export function instantAt(value: string | number | null, timeZone: string): string | null {
-  if (value === null) return null;
-  const at = new Date(value);
-  if (Number.isNaN(at.getTime())) return String(value);
-  const options: Intl.DateTimeFormatOptions = { weekday: 'short', day: 'numeric', month: 'short', hour: '2-digit', minute: '2-digit', hourCycle: 'h23' };
-  try {
-    return new Intl.DateTimeFormat(undefined, { ...options, timeZone }).format(at);
-  } catch {
-    return new Intl.DateTimeFormat(undefined, options).format(at);
-  }
+  return value === null ? null : dayTimeAt(value, timeZone);
 }
 
 /** An instant at the depot as `YYYY-MM-DD HH:mm`, for CSV files (machines read it back). */
 export function instantCsv(value: string | number | null, timeZone: string): string {
   if (value === null) return '';
-  const at = new Date(value);
-  if (Number.isNaN(at.getTime())) return String(value);
-  try {
-    const parts = Object.fromEntries(
-      new Intl.DateTimeFormat('en-CA', { year: 'numeric', month: '2-digit', day: '2-digit', hour: '2-digit', minute: '2-digit', hourCycle: 'h23', timeZone })
-        .formatToParts(at)
-        .map((p) => [p.type, p.value]),
-    );
-    return `${parts['year']}-${parts['month']}-${parts['day']} ${parts['hour']}:${parts['minute']}`;
-  } catch {
-    return at.toISOString();
-  }
+  return Number.isNaN(new Date(value).getTime()) ? String(value) : depotStamp(value, timeZone);
 }
 
 /** A local wall-clock time `YYYY-MM-DDTHH:mm` (as the import reports gaps) as "Wed 2 Dec, 22:00". */
@@ -144,15 +120,6 @@ export function localTime(local: string): string {
   return new Intl.DateTimeFormat(undefined, {
     weekday: 'short', day: 'numeric', month: 'short', hour: '2-digit', minute: '2-digit', hourCycle: 'h23', timeZone: 'UTC',
   }).format(at);
-}
-
-/** Today's date at the depot as `YYYY-MM-DD`. */
-export function todayAt(timeZone: string, now = new Date()): string {
-  try {
-    return new Intl.DateTimeFormat('en-CA', { timeZone, year: 'numeric', month: '2-digit', day: '2-digit' }).format(now);
-  } catch {
-    return now.toISOString().slice(0, 10);
-  }
 }
 
 /** Rounds money for a CSV cell (plain number, cents). */

@@ -9,11 +9,13 @@ import { ActivatedRoute, Router, RouterLink } from '@angular/router';
 import { hasAnyRole, type MonthCosts, type Role } from '@nightyard/contracts';
 import { AuthStore } from '../auth/auth-store';
 import { toApiProblem } from '../core/api-error';
+import { Clock } from '../core/clock';
+import { ISO_DATE } from '../core/depot-time';
 import { DepotStore } from '../depots/depot-store';
 import { SectionIntro } from '../sections/section-intro';
 import { BillTable } from './bill-table';
 import { CostsApi } from './costs-api';
-import { addDays, addMonths, instantAt, kw, kwh, mediumDay, money, monthKey, periodLabel, todayAt } from './costs-format';
+import { addDays, addMonths, instantAt, kw, kwh, mediumDay, money, monthKey, periodLabel } from './costs-format';
 import { EmissionsCard } from './emissions-card';
 import { MeterImportPanel } from './meter-import-panel';
 import { NightsChart } from './nights-chart';
@@ -21,8 +23,6 @@ import { NightsTable } from './nights-table';
 
 /** Who may import meter data (the API's editors); finance, admin, supervisors and facilities read. */
 export const COST_EDITORS: readonly Role[] = ['finance', 'admin'];
-
-const ISO_DATE = /^\d{4}-\d{2}-\d{2}$/;
 
 const PEAK_SOURCE: Record<MonthCosts['peaks']['facility']['source'], string> = {
   actual: 'from meter data',
@@ -63,6 +63,7 @@ export class CostsPage {
   private readonly router = inject(Router);
   private readonly route = inject(ActivatedRoute);
   protected readonly depots = inject(DepotStore);
+  private readonly clock = inject(Clock);
 
   /** `?date=YYYY-MM-DD`: a day of the billing period to show (default: today at the depot). */
   readonly date = input<string>();
@@ -70,7 +71,7 @@ export class CostsPage {
   protected readonly canImport = computed(() => hasAnyRole(this.auth.roles(), COST_EDITORS));
   protected readonly depot = this.depots.current;
   protected readonly timezone = computed(() => this.depot()?.timezone ?? 'UTC');
-  protected readonly today = computed(() => todayAt(this.timezone()));
+  protected readonly today = computed(() => this.clock.todayAt(this.timezone()));
   /** The day asked for: the address's date, else today at the depot. */
   protected readonly requested = computed(() => {
     const d = this.date();

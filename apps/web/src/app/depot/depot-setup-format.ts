@@ -1,3 +1,4 @@
+import { dateTimeAt } from '../core/depot-time';
 import { formatKw } from '../depots/depot-format';
 
 export { formatKw };
@@ -7,15 +8,7 @@ export const HOUR_LABELS: readonly string[] = Array.from({ length: 24 }, (_, h) 
 
 /** An instant (ISO with offset) as a date and time at the depot. */
 export function formatInstant(iso: string | null, timeZone: string): string | null {
-  if (!iso) return null;
-  const at = new Date(iso);
-  if (Number.isNaN(at.getTime())) return iso;
-  const options: Intl.DateTimeFormatOptions = { day: 'numeric', month: 'short', year: 'numeric', hour: '2-digit', minute: '2-digit', hourCycle: 'h23' };
-  try {
-    return new Intl.DateTimeFormat(undefined, { ...options, timeZone }).format(at);
-  } catch {
-    return new Intl.DateTimeFormat(undefined, options).format(at);
-  }
+  return iso ? dateTimeAt(iso, timeZone) : null;
 }
 
 /** A local wall-clock time `YYYY-MM-DDTHH:mm` as "Wed 3 Dec 2026, 16:00" (no time-zone shift). */
@@ -42,15 +35,6 @@ export function formatDate(isoDate: string): string {
   return new Intl.DateTimeFormat(undefined, { day: 'numeric', month: 'short', year: 'numeric', timeZone: 'UTC' }).format(
     new Date(Date.UTC(y, m - 1, d)),
   );
-}
-
-/** Today's date at the depot as `YYYY-MM-DD`. */
-export function todayAt(timeZone: string, now = new Date()): string {
-  try {
-    return new Intl.DateTimeFormat('en-CA', { timeZone, year: 'numeric', month: '2-digit', day: '2-digit' }).format(now);
-  } catch {
-    return now.toISOString().slice(0, 10);
-  }
 }
 
 /** Every IANA zone the browser knows, UTC included. */

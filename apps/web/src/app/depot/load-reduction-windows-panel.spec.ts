@@ -45,6 +45,13 @@ describe('LoadReductionWindowsPanel', () => {
     input.dispatchEvent(new Event('blur'));
   }
 
+  /** Types a local date-time into a window's date and 24-hour time fields. */
+  function typeWhen(row: Element, label: 'Start' | 'End', local: string) {
+    const [date, time] = local.split('T') as [string, string];
+    type(field(row, `${label} date`), date);
+    type(field(row, `${label} time`), time);
+  }
+
   const rows = () => [...el.querySelectorAll('fieldset.window-row')];
   const errorsOf = (row: Element) => [...row.querySelectorAll('mat-error')].map((e) => e.textContent?.trim());
 
@@ -54,8 +61,8 @@ describe('LoadReductionWindowsPanel', () => {
     await refresh();
     button('Add a window').click();
     await refresh();
-    type(field(rows()[1]!, 'Start'), '2026-12-11T16:00');
-    type(field(rows()[1]!, 'End'), '2026-12-11T18:00');
+    typeWhen(rows()[1]!, 'Start', '2026-12-11T16:00');
+    typeWhen(rows()[1]!, 'End', '2026-12-11T18:00');
     type(field(rows()[1]!, 'Reduced limit'), '250');
     button('Save windows').click();
     await refresh();
@@ -83,8 +90,8 @@ describe('LoadReductionWindowsPanel', () => {
     await refresh();
     button('Add a window').click();
     await refresh();
-    type(field(rows()[1]!, 'Start'), '2026-12-10T18:00');
-    type(field(rows()[1]!, 'End'), '2026-12-10T20:00');
+    typeWhen(rows()[1]!, 'Start', '2026-12-10T18:00');
+    typeWhen(rows()[1]!, 'End', '2026-12-10T20:00');
     type(field(rows()[1]!, 'Reduced limit'), '500');
     button('Save windows').click();
     await refresh();
@@ -93,5 +100,27 @@ describe('LoadReductionWindowsPanel', () => {
       'Overlaps the window starting 2026-12-10T16:00',
       'Above the service limit (450 kW): a reduced limit must be lower',
     ]);
+  });
+
+  it('takes times as HH:mm, 24-hour, and says how to write them', async () => {
+    button('Edit windows').click();
+    await refresh();
+    const row = rows()[0]!;
+    expect(field(row, 'Start date').value).toBe('2026-12-10');
+    expect(field(row, 'Start time').value).toBe('16:00');
+    expect(field(row, 'Start time').type).toBe('text');
+    type(field(row, 'End time'), '7 PM');
+    await refresh();
+    expect(errorsOf(row)).toEqual(['Write the time as HH:mm, 24-hour (for example 21:30)']);
+    type(field(row, 'End time'), '1930');
+    await refresh();
+    expect(field(row, 'End time').value).toBe('19:30');
+    expect(errorsOf(row)).toEqual([]);
+    button('Save windows').click();
+    await refresh();
+    const req = mock.expectOne(`/api/depots/${DEPOT_ID}/load-reduction-windows`);
+    expect(req.request.body.windows[0]).toMatchObject({ start: '2026-12-10T16:00', end: '2026-12-10T19:30' });
+    req.flush({ windows: [] });
+    await refresh();
   });
 });

@@ -10,6 +10,7 @@ import { MatTableModule } from '@angular/material/table';
 import { loadReductionWindowInputSchema, localDateTimeSchema, type LoadReductionWindow } from '@nightyard/contracts';
 import { toApiProblem } from '../core/api-error';
 import { applyServerErrors, errorText, zodValidator } from '../shared/form-paths';
+import { LocalDateTimeField } from '../shared/local-date-time-field';
 import { ProblemSummary, type ProblemItem } from '../shared/problem-summary';
 import { DepotApi, type LoadReductionWindowInput } from './depot-api';
 import { formatKw, formatLocal } from './depot-setup-format';
@@ -47,6 +48,7 @@ type WindowsForm = FormGroup<{ windows: FormArray<WindowGroup> }>;
 @Component({
   selector: 'ny-load-reduction-windows-panel',
   imports: [
+    LocalDateTimeField,
     MatButtonModule,
     MatFormFieldModule,
     MatIconModule,

@@ -1,4 +1,4 @@
-import { ChangeDetectionStrategy, Component, computed, inject, input, output, signal } from '@angular/core';
+import { ChangeDetectionStrategy, Component, computed, inject, input, output, signal, untracked } from '@angular/core';
 import { FormArray, FormControl, FormGroup, ReactiveFormsModule } from '@angular/forms';
 import { MatButtonModule } from '@angular/material/button';
 import { MatFormFieldModule } from '@angular/material/form-field';
@@ -9,10 +9,11 @@ import { MatSnackBar } from '@angular/material/snack-bar';
 import { peaksSoFarSchema, type PeaksSoFar } from '@nightyard/contracts';
 import { z } from 'zod';
 import { toApiProblem } from '../core/api-error';
+import { Clock } from '../core/clock';
 import { applyServerErrors, errorText, zodValidator } from '../shared/form-paths';
 import { ProblemSummary, type ProblemItem } from '../shared/problem-summary';
 import { DepotApi } from './depot-api';
-import { formatDate, formatKw, todayAt } from './depot-setup-format';
+import { formatDate, formatKw } from './depot-setup-format';
 
 const shape = peaksSoFarSchema.shape;
 const periodKw = z.number().min(0, 'A period peak cannot be negative').max(100_000, 'A period peak looks too large');
@@ -50,6 +51,7 @@ export function billingPeriodStart(today: string, day: number): string {
 export class PeaksSoFarPanel {
   private readonly api = inject(DepotApi);
   private readonly snackBar = inject(MatSnackBar);
+  private readonly clock = inject(Clock);
 
   readonly depotId = input.required<string>();
   readonly peaks = input.required<PeaksSoFar | null>();
@@ -69,7 +71,7 @@ export class PeaksSoFarPanel {
   protected readonly problemItems = signal<ProblemItem[]>([]);
 
   private buildForm(p: PeaksSoFar | null) {
-    const start = p?.billingPeriodStart ?? billingPeriodStart(todayAt(this.timezone()), this.billingStartDay());
+    const start = p?.billingPeriodStart ?? billingPeriodStart(untracked(() => this.clock.todayAt(this.timezone())), this.billingStartDay());
     return new FormGroup({
       billingPeriodStart: new FormControl(start, { nonNullable: true, validators: zodValidator(shape.billingPeriodStart, 'Enter the date the billing period started') }),
       facilityKw: new FormControl<number | null>(p?.facilityKw ?? null, zodValidator(shape.facilityKw, 'Enter the facility peak in kW (0 if none yet)')),

@@ -1,3 +1,5 @@
+import { timeAt } from '../core/depot-time';
+
 const CLOCK = /^(\d{1,2}):(\d{2})(?::\d{2})?$/;
 
 /** A pull-out time as the API gives it: a wall-clock "HH:MM" in the depot, or an ISO instant. */
@@ -5,13 +7,7 @@ export function formatClock(value: string | null, timeZone: string): string | nu
   if (!value) return null;
   const clock = CLOCK.exec(value);
   if (clock) return `${clock[1]!.padStart(2, '0')}:${clock[2]}`;
-  const at = new Date(value);
-  if (Number.isNaN(at.getTime())) return value;
-  try {
-    return new Intl.DateTimeFormat(undefined, { hour: '2-digit', minute: '2-digit', hourCycle: 'h23', timeZone }).format(at);
-  } catch {
-    return new Intl.DateTimeFormat(undefined, { hour: '2-digit', minute: '2-digit', hourCycle: 'h23' }).format(at);
-  }
+  return timeAt(value, timeZone);
 }
 
 /** A calendar date "YYYY-MM-DD" as "Tuesday, 1 December 2026" (no time-zone shift). */

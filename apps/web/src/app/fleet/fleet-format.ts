@@ -1,27 +1,5 @@
 import type { BusInput } from '@nightyard/contracts';
 
-/** Today's date (YYYY-MM-DD) at the depot. */
-export function todayIn(timeZone: string, now = new Date()): string {
-  try {
-    return new Intl.DateTimeFormat('en-CA', { timeZone, year: 'numeric', month: '2-digit', day: '2-digit' }).format(now);
-  } catch {
-    return new Intl.DateTimeFormat('en-CA', { year: 'numeric', month: '2-digit', day: '2-digit' }).format(now);
-  }
-}
-
-/** A calendar date moved by whole days (no time-zone shift). */
-export function addDays(isoDate: string, days: number): string {
-  const d = new Date(`${isoDate}T00:00:00Z`);
-  d.setUTCDate(d.getUTCDate() + days);
-  return d.toISOString().slice(0, 10);
-}
-
-export const ISO_DATE = /^\d{4}-\d{2}-\d{2}$/;
-
-export function isIsoDate(value: unknown): value is string {
-  return typeof value === 'string' && ISO_DATE.test(value) && !Number.isNaN(new Date(`${value}T00:00:00Z`).getTime());
-}
-
 /** "2026-12-03T06:10" -> "06:10". */
 export function clockOf(local: string): string {
   return local.slice(11, 16);

@@ -1,7 +1,9 @@
 import { FormArray, FormControl, FormGroup, type ValidatorFn } from '@angular/forms';
 import type { Run, RunInput } from '@nightyard/contracts';
 import { numberIn } from './bus-form';
-import { addDays, clockOf, dateOf } from './fleet-format';
+import { CLOCK_TIME as CLOCK, addDays } from '../core/depot-time';
+import { clockTimeValidator } from '../shared/clock-time-input';
+import { clockOf, dateOf } from './fleet-format';
 
 /** What a row shows beside its inputs: where its state of charge came from, as saved. */
 export interface RunMeta {
@@ -13,13 +15,8 @@ export interface RunMeta {
   energyKwh: number | null;
 }
 
-const CLOCK = /^([01]\d|2[0-3]):[0-5]\d$/;
-
-const clock = (what: string): ValidatorFn => (c) => {
-  const v = typeof c.value === 'string' ? c.value.trim() : '';
-  if (!v) return { message: `Enter the ${what}` };
-  return CLOCK.test(v.slice(0, 5)) ? null : { message: `Write the ${what} as HH:mm` };
-};
+const clock = (what: string): ValidatorFn =>
+  clockTimeValidator(`Enter the ${what}`, 'message', `Write the ${what} as HH:mm, 24-hour (for example 21:30)`);
 
 /** Miles or kWh: at least one of the two (the message goes on miles, as the API puts it). */
 const milesOrKwh: ValidatorFn = (c) => {

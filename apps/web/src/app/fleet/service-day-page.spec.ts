@@ -4,7 +4,8 @@ import { ComponentFixture, TestBed } from '@angular/core/testing';
 import { MatDialog } from '@angular/material/dialog';
 import { provideRouter } from '@angular/router';
 import type { Role } from '@nightyard/contracts';
-import { settle } from '../testing/fixtures';
+import { Clock } from '../core/clock';
+import { depotNight, settle } from '../testing/fixtures';
 import { DEPOT_ID, bus, run, serviceDay, signedInAs } from './fleet-fixtures';
 import { describePath } from './field-paths';
 import { csvProblems } from './fleet-format';
@@ -118,6 +119,44 @@ describe('ServiceDayPage', () => {
     expect(rows[0]).toContain('06:10');
     expect(rows[0]).toContain('Estimated');
     expect(rows[1]).toContain('Uploaded');
+  });
+
+  it("opens on tonight's service day as the server says, not the depot's calendar date", async () => {
+    TestBed.configureTestingModule({
+      providers: [provideRouter([]), provideHttpClient(), provideHttpClientTesting(), { provide: MatDialog, useValue: { open: vi.fn() } }],
+    });
+    mock = TestBed.inject(HttpTestingController);
+    // 02:00 on Thursday 3 December at the depot: the night of Wednesday 2 December is under way.
+    const now = '2026-12-03T08:00:00.000Z';
+    TestBed.inject(Clock).setServerTime(Date.parse(now));
+    await signedInAs(mock, ['supervisor']);
+    fixture = TestBed.createComponent(ServiceDayPage);
+    el = fixture.nativeElement;
+    await fixture.whenStable();
+    mock.expectNone((r) => r.url.includes('/service-days/'));
+    mock.expectOne(`/api/depots/${DEPOT_ID}/night`).flush(depotNight('2026-12-02', now));
+    await settle();
+    await fixture.whenStable();
+    mock.expectOne(`/api/depots/${DEPOT_ID}/service-days/2026-12-02`).flush(serviceDay({ date: '2026-12-02', runs: [] }));
+    mock.expectOne(`/api/depots/${DEPOT_ID}/buses`).flush({ buses: [bus()] });
+    mock.expectOne(`/api/depots/${DEPOT_ID}/cold-weather`).flush({ bands: [] });
+    await settle();
+    await fixture.whenStable();
+    fixture.detectChanges();
+    expect(el.querySelector<HTMLInputElement>('input[type="date"]')?.value).toBe('2026-12-02');
+    mock.verify();
+  });
+
+  it('takes pull-out and pull-in as HH:mm, 24-hour, in text fields', async () => {
+    await render(['supervisor']);
+    const pullOut = el.querySelector<HTMLInputElement>('input[aria-label="Pull-out, row 1"]')!;
+    expect(pullOut.type).toBe('text');
+    expect(pullOut.value).toBe('06:10');
+    const row = runRow({ busNumber: '201', pullOut: '2026-12-03T14:05', pullIn: '2026-12-04T05:30', miles: 30 });
+    row.controls.pullOut.setValue('2:05 PM');
+    expect(row.controls.pullOut.errors).toEqual({ message: 'Write the pull-out time as HH:mm, 24-hour (for example 21:30)' });
+    row.controls.pullOut.setValue('14:05');
+    expect(row.controls.pullOut.errors).toBeNull();
   });
 });
 

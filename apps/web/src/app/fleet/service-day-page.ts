@@ -24,8 +24,11 @@ import { coldWeatherFactor, type Bus, type ColdWeatherTable, type ServiceDay } f
 import { firstValueFrom, startWith } from 'rxjs';
 import { toApiProblem } from '../core/api-error';
 import { formatServiceDay } from '../depots/depot-format';
+import { addDays, isIsoDate } from '../core/depot-time';
 import { DepotStore } from '../depots/depot-store';
+import { NightStore } from '../depots/night-store';
 import { ConfirmDialog, type ConfirmData } from '../people/confirm-dialog';
+import { ClockTimeInput } from '../shared/clock-time-input';
 import { SectionIntro } from '../sections/section-intro';
 import { messageOf } from './bus-form';
 import { ColdWeatherPanel } from './cold-weather-panel';
@@ -33,7 +36,7 @@ import { injectSaveFile, readFileText } from './download';
 import { applyPathErrors } from './field-paths';
 import { FleetApi } from './fleet-api';
 import { injectCanEditFleet } from './fleet-editors';
-import { SOC_SOURCE_LABELS, addDays, clockOf, csvProblems, fmt1, isIsoDate, todayIn } from './fleet-format';
+import { SOC_SOURCE_LABELS, clockOf, csvProblems, fmt1 } from './fleet-format';
 import { FleetTabs } from './fleet-tabs';
 import { ProblemSummary, type ProblemItem } from '../shared/problem-summary';
 import { pullInNextDay, pullInText, runInputOf, runRow, serviceDayForm, socSourceText, type RunRow } from './run-rows';
@@ -60,6 +63,7 @@ export function previousWeekday(date: string): string {
 @Component({
   selector: 'ny-service-day-page',
   imports: [
+    ClockTimeInput,
     ColdWeatherPanel,
     FleetTabs,
     MatButtonModule,
@@ -80,6 +84,7 @@ export function previousWeekday(date: string): string {
 export class ServiceDayPage {
   private readonly api = inject(FleetApi);
   private readonly depots = inject(DepotStore);
+  private readonly nights = inject(NightStore);
   private readonly router = inject(Router);
   private readonly route = inject(ActivatedRoute);
   private readonly dialog = inject(MatDialog);
@@ -87,14 +92,17 @@ export class ServiceDayPage {
   private readonly host = inject<ElementRef<HTMLElement>>(ElementRef);
   private readonly saveFile = injectSaveFile();
 
-  /** The `date` query parameter (YYYY-MM-DD); today at the depot without it. */
+  /** The `date` query parameter (YYYY-MM-DD); without it, tonight's service day as the server says. */
   readonly date = input<string>();
 
   protected readonly canEdit = injectCanEditFleet();
   protected readonly depot = this.depots.current;
+  /** The service day shown; '' until the server has said which night it is (the page shows progress). */
   protected readonly day = computed(() => {
     const d = this.date();
-    return isIsoDate(d) ? d : todayIn(this.depot()?.timezone ?? 'UTC');
+    if (isIsoDate(d)) return d;
+    const depot = this.depot();
+    return (depot && this.nights.tonightOf(depot)) ?? '';
   });
   protected readonly dayText = computed(() => formatServiceDay(this.day()));
 
@@ -142,6 +150,10 @@ export class ServiceDayPage {
           this.loading.set(false);
           this.loadProblem.set(this.depots.error() ?? 'No depot has been set up for your organisation yet.');
         }
+        return;
+      }
+      if (!day) {
+        untracked(() => void this.nights.load(depot));
         return;
       }
       untracked(() => void this.load(depot.id, day));

@@ -6,6 +6,8 @@ import { MatProgressBarModule } from '@angular/material/progress-bar';
 import { RouterLink } from '@angular/router';
 import type { OutboxMessage } from '@nightyard/contracts';
 import { toApiProblem } from '../core/api-error';
+import { DepotTimeNote, VIEWER_TIME_ZONE } from '../core/depot-time-note';
+import { DepotStore } from '../depots/depot-store';
 import { PeopleApi } from './people-api';
 import { formatWhen } from './people-format';
 import { textWithLinks, type TextPart } from './text-with-links';
@@ -19,7 +21,7 @@ interface ShownMessage {
 /** Development only: the e-mails the local fake mail server caught. */
 @Component({
   selector: 'ny-outbox-page',
-  imports: [MatButtonModule, MatExpansionModule, MatIconModule, MatProgressBarModule, RouterLink],
+  imports: [DepotTimeNote, MatButtonModule, MatExpansionModule, MatIconModule, MatProgressBarModule, RouterLink],
   templateUrl: './outbox-page.html',
   styleUrl: './outbox-page.scss',
   changeDetection: ChangeDetectionStrategy.OnPush,
@@ -27,6 +29,10 @@ interface ShownMessage {
 })
 export class OutboxPage {
   private readonly api = inject(PeopleApi);
+  private readonly depots = inject(DepotStore);
+  private readonly viewerZone = inject(VIEWER_TIME_ZONE);
+  /** Times at the depot, as everywhere (the shell has loaded the depots). */
+  protected readonly zone = computed(() => this.depots.current()?.timezone ?? this.viewerZone);
 
   protected readonly messages = signal<OutboxMessage[]>([]);
   protected readonly state = signal<'loading' | 'loaded' | 'absent' | 'failed'>('loading');
@@ -34,7 +40,7 @@ export class OutboxPage {
   protected readonly shown = computed<ShownMessage[]>(() =>
     this.messages().map((message) => ({
       message,
-      when: formatWhen(message.receivedAt) ?? message.receivedAt,
+      when: formatWhen(message.receivedAt, this.zone()) ?? message.receivedAt,
       parts: textWithLinks(message.text),
     })),
   );

@@ -1,4 +1,5 @@
 import type { UserStatus } from '@nightyard/contracts';
+import { dateTimeAt } from '../core/depot-time';
 
 export const STATUS_LABELS: Record<UserStatus, string> = {
   active: 'Active',
@@ -12,11 +13,7 @@ export const STATUS_ICONS: Record<UserStatus, string> = {
   deactivated: 'block',
 };
 
-const WHEN = new Intl.DateTimeFormat(undefined, { dateStyle: 'medium', timeStyle: 'short' });
-
-/** An ISO instant in the viewer's own time zone. */
-export function formatWhen(iso: string | null): string | null {
-  if (!iso) return null;
-  const at = new Date(iso);
-  return Number.isNaN(at.getTime()) ? iso : WHEN.format(at);
+/** An ISO instant at the depot ("Dec 2, 2026, 15:42"). */
+export function formatWhen(iso: string | null, timeZone: string): string | null {
+  return iso ? dateTimeAt(iso, timeZone) : null;
 }

@@ -13,6 +13,8 @@ import { ROLE_LABELS, type User } from '@nightyard/contracts';
 import { AuthStore } from '../auth/auth-store';
 import { toApiProblem } from '../core/api-error';
 import { injectIsPhone } from '../core/layout';
+import { VIEWER_TIME_ZONE } from '../core/depot-time-note';
+import { DepotStore } from '../depots/depot-store';
 import { SectionIntro } from '../sections/section-intro';
 import { ConfirmDialog, type ConfirmData } from './confirm-dialog';
 import { InviteDialog } from './invite-dialog';
@@ -52,6 +54,8 @@ export class PeoplePage {
   private readonly dialog = inject(MatDialog);
   private readonly snackBar = inject(MatSnackBar);
   private readonly auth = inject(AuthStore);
+  private readonly depots = inject(DepotStore);
+  private readonly viewerZone = inject(VIEWER_TIME_ZONE);
 
   /** Phones get a list of people instead of the wide table. */
   protected readonly phone = injectIsPhone();
@@ -61,18 +65,20 @@ export class PeoplePage {
   protected readonly loading = signal(true);
   protected readonly problem = signal<string | null>(null);
   /** Table rows, sorted by name, with display text worked out once. */
-  protected readonly rows = computed<PersonRow[]>(() =>
-    [...this.users()]
+  protected readonly rows = computed<PersonRow[]>(() => {
+    // Times at the depot, as everywhere (the shell has loaded the depots).
+    const zone = this.depots.current()?.timezone ?? this.viewerZone;
+    return [...this.users()]
       .sort((a, b) => a.name.localeCompare(b.name))
       .map((user) => ({
         user,
         roleNames: user.roles.map((r) => ROLE_LABELS[r]),
         statusLabel: STATUS_LABELS[user.status],
         statusIcon: STATUS_ICONS[user.status],
-        lastSignIn: formatWhen(user.lastSignInAt) ?? 'Never',
+        lastSignIn: formatWhen(user.lastSignInAt, zone) ?? 'Never',
         isMe: user.id === this.auth.user()?.id,
-      })),
-  );
+      }));
+  });
 
   constructor() {
     void this.load();

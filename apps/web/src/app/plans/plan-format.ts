@@ -1,4 +1,5 @@
 import type { PlanDetail, PlanResult, PlanState, PlanSummary } from '@nightyard/contracts';
+import { dayTimeAt, timeAt, weekdayTimeAt } from '../core/depot-time';
 
 /** What stops a short bus, in plain words (the engine's `reason` codes). */
 export const REASON_TEXT: Record<string, { label: string; detail: string }> = {
@@ -38,31 +39,17 @@ export const SHORT_KWH = 1e-6;
 
 /** "16:15" at the depot. */
 export function clock(iso: string, timeZone: string): string {
-  const d = new Date(iso);
-  if (Number.isNaN(d.getTime())) return iso;
-  try {
-    return new Intl.DateTimeFormat('en-GB', { hour: '2-digit', minute: '2-digit', hourCycle: 'h23', timeZone }).format(d);
-  } catch {
-    return new Intl.DateTimeFormat('en-GB', { hour: '2-digit', minute: '2-digit', hourCycle: 'h23' }).format(d);
-  }
+  return timeAt(iso, timeZone);
 }
 
 /** "Wed 16:15" at the depot (plans span two days). */
 export function dayClock(iso: string, timeZone: string): string {
-  const d = new Date(iso);
-  if (Number.isNaN(d.getTime())) return iso;
-  try {
-    return new Intl.DateTimeFormat('en-GB', { weekday: 'short', hour: '2-digit', minute: '2-digit', hourCycle: 'h23', timeZone }).format(d);
-  } catch {
-    return d.toISOString();
-  }
+  return weekdayTimeAt(iso, timeZone);
 }
 
-/** "2 Dec, 15:02" in the viewer's zone (when a version was made). */
-export function when(iso: string): string {
-  const d = new Date(iso);
-  if (Number.isNaN(d.getTime())) return iso;
-  return new Intl.DateTimeFormat(undefined, { day: 'numeric', month: 'short', hour: '2-digit', minute: '2-digit' }).format(d);
+/** "Wed, Dec 2, 15:02" at the depot (when a version was made or published). */
+export function when(iso: string, timeZone: string): string {
+  return dayTimeAt(iso, timeZone);
 }
 
 export function money(value: number, currency: string, digits = 2): string {

@@ -6,7 +6,8 @@ import { provideRouter } from '@angular/router';
 import type { DepotDetail, Role } from '@nightyard/contracts';
 import { of } from 'rxjs';
 import { DEPOT_ID, signedInAs } from '../fleet/fleet-fixtures';
-import { settle } from '../testing/fixtures';
+import { Clock } from '../core/clock';
+import { depotNight, settle } from '../testing/fixtures';
 import { PLAN_IDS, planDetail, planSummary } from './plan-fixtures';
 import { PlansPage } from './plans-page';
 
@@ -106,5 +107,38 @@ describe('PlansPage', () => {
     for (const label of ['Generate plan', 'Publish', 'Upload what-if', 'Download scenario']) expect(button(label)).toBeNull();
     expect(el.querySelector('input[type="file"]')).toBeNull();
     expect(el.querySelector('ny-bus-plan-table')).not.toBeNull();
+  });
+
+  it("opens on tonight as the server says: after midnight that is the night before the depot's date", async () => {
+    TestBed.configureTestingModule({
+      providers: [provideRouter([]), provideHttpClient(), provideHttpClientTesting(), { provide: MatDialog, useValue: { open } }],
+    });
+    mock = TestBed.inject(HttpTestingController);
+    // 01:30 on Wednesday 2 December at the depot (America/Chicago), whatever this machine's clock says.
+    const now = '2026-12-02T07:30:00.000Z';
+    TestBed.inject(Clock).setServerTime(Date.parse(now));
+    await signedInAs(mock, ['supervisor']);
+    fixture = TestBed.createComponent(PlansPage);
+    el = fixture.nativeElement;
+    await fixture.whenStable();
+    mock.expectNone((r) => r.url.endsWith('/plans'));
+    mock.expectOne(`/api/depots/${DEPOT_ID}/night`).flush(depotNight('2026-12-01', now));
+    await settle();
+    await fixture.whenStable();
+    mock.expectOne(`/api/depots/${DEPOT_ID}/plans?serviceDate=2026-12-01`).flush({ plans: [] });
+    mock.expectOne(`/api/depots/${DEPOT_ID}`).flush({ depot: { id: DEPOT_ID, chargers: [] } as unknown as DepotDetail });
+    await settle();
+    await fixture.whenStable();
+    fixture.detectChanges();
+    expect(el.querySelector<HTMLInputElement>('input[type="date"]')?.value).toBe('2026-12-01');
+    expect(el.textContent).toContain('December 1');
+  });
+
+  it('shows when versions were made and published at the depot, 24-hour', async () => {
+    await render(['supervisor']);
+    // Made at 20:00 UTC: 14:00 in Chicago.
+    const meta = el.querySelector('.review-header .meta')?.textContent?.replace(/\s+/g, ' ') ?? '';
+    expect(meta).toMatch(/Generated.*14:00 ·/);
+    expect(el.textContent).not.toMatch(/\d{1,2}:\d{2}\s?(AM|PM)/);
   });
 });

@@ -13,9 +13,10 @@ import { firstValueFrom } from 'rxjs';
 import { toApiProblem } from '../core/api-error';
 import { formatServiceDay } from '../depots/depot-format';
 import { DepotStore } from '../depots/depot-store';
+import { NightStore } from '../depots/night-store';
 import { injectSaveFile, readFileText } from '../fleet/download';
 import { injectCanEditFleet } from '../fleet/fleet-editors';
-import { addDays, isIsoDate, todayIn } from '../fleet/fleet-format';
+import { addDays, isIsoDate } from '../core/depot-time';
 import { ProblemSummary, type ProblemItem } from '../shared/problem-summary';
 import { ConfirmDialog, type ConfirmData } from '../people/confirm-dialog';
 import { SectionIntro } from '../sections/section-intro';
@@ -52,6 +53,7 @@ type Reviewable = PlanDetail & { result: PlanResult };
 export class PlansPage {
   private readonly api = inject(PlansApi);
   private readonly depots = inject(DepotStore);
+  private readonly nights = inject(NightStore);
   private readonly router = inject(Router);
   private readonly route = inject(ActivatedRoute);
   private readonly dialog = inject(MatDialog);
@@ -69,14 +71,19 @@ export class PlansPage {
   protected readonly when = when;
   protected readonly money = money;
 
-  /** The night looked at; null while the night of a version opened by id is looked up. */
+  /**
+   * The night looked at: the one asked for, else tonight as the server says; null while the night
+   * of a version opened by id (or tonight) is looked up.
+   */
   protected readonly night = computed(() => {
     const d = this.date();
     if (isIsoDate(d)) return d;
     if (this.plan()) return null;
     const depot = this.depot();
-    return depot ? todayIn(depot.timezone) : null;
+    return depot ? this.nights.tonightOf(depot) : null;
   });
+  /** Plan times are the depot's. */
+  protected readonly tz = computed(() => this.detail()?.timezone ?? this.depot()?.timezone ?? 'UTC');
   protected readonly nightText = computed(() => {
     const n = this.night();
     return n ? formatServiceDay(n) : '';
@@ -124,6 +131,11 @@ export class PlansPage {
     effect(() => {
       const p = this.plan();
       if (p && !isIsoDate(this.date())) untracked(() => void this.openById(p));
+    });
+    // Tonight at the depot, the night shown when none is asked for.
+    effect(() => {
+      const depot = this.depot();
+      if (depot && !isIsoDate(this.date()) && !this.plan()) untracked(() => void this.nights.load(depot));
     });
     // The night's versions.
     effect(() => {

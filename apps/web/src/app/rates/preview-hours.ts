@@ -1,4 +1,5 @@
 import type { RatePreview } from '@nightyard/contracts';
+import { timeAt, zoneName } from '../core/depot-time';
 
 /** The part of an hour at one price (an hour has several parts when a window starts mid-hour). */
 export interface HourPart {
@@ -22,24 +23,6 @@ export interface PreviewHour {
 }
 
 const HOUR = 3_600_000;
-
-function clockIn(timeZone: string): (ms: number) => string {
-  try {
-    const f = new Intl.DateTimeFormat('en-GB', { hour: '2-digit', minute: '2-digit', hourCycle: 'h23', timeZone });
-    return (ms) => f.format(ms);
-  } catch {
-    return (ms) => new Date(ms).toISOString().slice(11, 16);
-  }
-}
-
-function zoneNameIn(timeZone: string): (ms: number) => string {
-  try {
-    const f = new Intl.DateTimeFormat('en-US', { timeZone, timeZoneName: 'short' });
-    return (ms) => f.formatToParts(ms).find((p) => p.type === 'timeZoneName')?.value ?? '';
-  } catch {
-    return () => '';
-  }
-}
 
 /** Minutes ahead of UTC at an instant in the zone (from the zone's "GMT-05:00" name). */
 function offsetIn(timeZone: string): (ms: number) => number {
@@ -65,8 +48,8 @@ export function previewHours(preview: RatePreview, timeZone: string): PreviewHou
   if (!runs.length) return [];
   const dayStart = runs[0]!.s;
   const dayEnd = runs.at(-1)!.e;
-  const clock = clockIn(timeZone);
-  const zone = zoneNameIn(timeZone);
+  const clock = (ms: number) => timeAt(ms, timeZone);
+  const zone = (ms: number) => zoneName(timeZone, ms);
   const offset = offsetIn(timeZone);
   // The end of an hour as the clock on the wall reads it; when the clocks go back, the end of
   // the first 01:00 hour is read on the clock it started on (02:00 CDT, not 01:00 CST).

@@ -12,6 +12,7 @@ import { MatSnackBar } from '@angular/material/snack-bar';
 import { Router, RouterLink } from '@angular/router';
 import { DAY_TYPES, type RatePlan, type RatePlanDefinition } from '@nightyard/contracts';
 import { toApiProblem } from '../core/api-error';
+import { ClockTimeInput } from '../shared/clock-time-input';
 import { applyServerErrors, errorText } from '../shared/form-paths';
 import { ProblemSummary, type ProblemItem } from '../shared/problem-summary';
 import { injectCanEditSetup } from '../shared/setup-editors';
@@ -82,6 +83,7 @@ function where(path: string): string {
 @Component({
   selector: 'ny-rate-plan-editor-page',
   imports: [
+    ClockTimeInput,
     MatAutocompleteModule,
     MatButtonModule,
     MatCheckboxModule,

@@ -7,16 +7,11 @@ import { MatInputModule } from '@angular/material/input';
 import { MatProgressBarModule } from '@angular/material/progress-bar';
 import type { RatePreview } from '@nightyard/contracts';
 import { toApiProblem } from '../core/api-error';
-import { todayAt } from '../depot/depot-setup-format';
+import { Clock } from '../core/clock';
+import { ISO_DATE, addDays as shift } from '../core/depot-time';
 import { RateDay } from './rate-day';
 import { RatesApi } from './rates-api';
 
-const ISO_DATE = /^\d{4}-\d{2}-\d{2}$/;
-
-function shift(date: string, days: number): string {
-  const [y, m, d] = date.split('-').map(Number) as [number, number, number];
-  return new Date(Date.UTC(y, m - 1, d + days)).toISOString().slice(0, 10);
-}
 
 /** Pick a day, see its prices: the chart, its words and the hourly table. */
 @Component({
@@ -53,6 +48,7 @@ function shift(date: string, days: number): string {
 })
 export class RatePreviewPanel {
   private readonly api = inject(RatesApi);
+  private readonly clock = inject(Clock);
 
   readonly planId = input.required<string>();
   readonly timezone = input.required<string>();
@@ -68,7 +64,7 @@ export class RatePreviewPanel {
   constructor() {
     effect(() => {
       const zone = this.timezone();
-      const first = this.initialDate() ?? todayAt(zone);
+      const first = this.initialDate() ?? untracked(() => this.clock.todayAt(zone));
       this.planId();
       untracked(() => {
         this.date.setValue(first, { emitEvent: false });

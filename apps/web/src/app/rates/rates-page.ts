@@ -12,7 +12,8 @@ import { Router, RouterLink } from '@angular/router';
 import { assignRatePlanSchema, type DepotDetail, type RatePlan } from '@nightyard/contracts';
 import { toApiProblem } from '../core/api-error';
 import { DepotApi } from '../depot/depot-api';
-import { formatDate, todayAt } from '../depot/depot-setup-format';
+import { Clock } from '../core/clock';
+import { formatDate } from '../depot/depot-setup-format';
 import { DepotStore } from '../depots/depot-store';
 import { ConfirmDialog, type ConfirmData } from '../people/confirm-dialog';
 import { SectionIntro } from '../sections/section-intro';
@@ -52,6 +53,7 @@ export class RatesPage {
   private readonly api = inject(RatesApi);
   private readonly depotApi = inject(DepotApi);
   private readonly depots = inject(DepotStore);
+  private readonly clock = inject(Clock);
   private readonly draft = inject(UrdbDraft);
   private readonly router = inject(Router);
   private readonly dialog = inject(MatDialog);
@@ -80,7 +82,7 @@ export class RatesPage {
     }),
   });
 
-  private readonly today = computed(() => todayAt(this.depot()?.timezone ?? 'UTC'));
+  private readonly today = computed(() => this.clock.todayAt(this.depot()?.timezone ?? 'UTC'));
   /** The depot's assignments, newest first, with the one in force today marked. */
   protected readonly assignments = computed(() => {
     const list = this.depot()?.ratePlans ?? [];

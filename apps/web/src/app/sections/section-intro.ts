@@ -1,15 +1,21 @@
 import { ChangeDetectionStrategy, Component, computed, input } from '@angular/core';
 import { SECTIONS, type SectionKey } from '@nightyard/contracts';
+import { DepotTimeNote } from '../core/depot-time-note';
 
-/** A section page's heading (the section's label) and its purpose from SECTIONS. */
+/**
+ * A section page's heading (the section's label) and its purpose from SECTIONS, with the note
+ * that times are the depot's when the viewer is in another zone.
+ */
 @Component({
   selector: 'ny-section-intro',
+  imports: [DepotTimeNote],
   changeDetection: ChangeDetectionStrategy.OnPush,
   template: `
     <div class="ny-page-header">
       <div>
         <h1>{{ info().label }}</h1>
         <p class="ny-lead">{{ info().purpose }}</p>
+        <ny-depot-time-note />
       </div>
       <ng-content />
     </div>

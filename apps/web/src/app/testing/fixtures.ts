@@ -1,4 +1,4 @@
-import type { DepotSummary, Role, SessionUser, TokenResponse, User } from '@nightyard/contracts';
+import type { DepotNight, DepotSummary, Role, SessionUser, ServiceNight, TokenResponse, User } from '@nightyard/contracts';
 
 /** Test data for unit tests (client side only; HTTP is faked with HttpTestingController). */
 export function sessionUser(roles: Role[], overrides: Partial<SessionUser> = {}): SessionUser {
@@ -53,4 +53,20 @@ export function depot(overrides: Partial<DepotSummary> = {}): DepotSummary {
 /** Lets promise chains (HTTP -> promise -> next request) run. */
 export async function settle(): Promise<void> {
   for (let i = 0; i < 10; i++) await Promise.resolve();
+}
+
+/**
+ * The API's answer to GET /api/depots/:id/night for a depot in America/Chicago (UTC-6 in
+ * winter), `tonight` being the night of `serviceDate`: from 14:00 that day to 06:30 the next.
+ */
+export function depotNight(serviceDate: string, now: string, overrides: Partial<DepotNight> = {}): DepotNight {
+  const night = (date: string): ServiceNight => {
+    const next = new Date(`${date}T00:00:00Z`);
+    next.setUTCDate(next.getUTCDate() + 1);
+    const nextDate = next.toISOString().slice(0, 10);
+    return { serviceDate: date, nextServiceDate: nextDate, start: `${date}T14:00:00-06:00`, end: `${nextDate}T06:30:00-06:00`, fromRuns: true };
+  };
+  const tonight = night(serviceDate);
+  const inForce = Date.parse(now) >= Date.parse(tonight.start) ? tonight : null;
+  return { now, timezone: 'America/Chicago', inForce, next: inForce ? night(tonight.nextServiceDate) : tonight, tonight, ...overrides };
 }

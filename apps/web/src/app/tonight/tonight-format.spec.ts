@@ -1,13 +1,8 @@
 import { planDetail, planResult } from '../plans/plan-fixtures';
-import { candidateNights, liveCounts, peakLoad, shortBuses, todayIn } from './tonight-format';
+import { candidateNights, liveCounts, peakLoad, shortBuses } from './tonight-format';
 
 describe('tonight-format', () => {
-  it('takes today at the depot, not in UTC', () => {
-    expect(todayIn('America/Chicago', new Date('2026-12-02T04:00:00Z'))).toBe('2026-12-01');
-    expect(todayIn('Europe/Berlin', new Date('2026-12-01T23:30:00Z'))).toBe('2026-12-02');
-  });
-
-  it('tries today, then up to 4 nights back, across month ends', () => {
+  it('tries tonight, then up to 4 nights back, across month ends', () => {
     expect(candidateNights('2026-12-02')).toEqual(['2026-12-02', '2026-12-01', '2026-11-30', '2026-11-29', '2026-11-28']);
   });
 

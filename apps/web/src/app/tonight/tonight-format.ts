@@ -1,29 +1,13 @@
 import type { Charger, PlanDetail } from '@nightyard/contracts';
+import { addDays } from '../core/depot-time';
 import { SHORT_KWH, naturalCompare, reasonText } from '../plans/plan-format';
 
-/** How many nights before today the page looks back for a published plan. */
+/** How many nights before tonight the page looks back for a published plan. */
 export const NIGHTS_BACK = 4;
 
-/** Today's date (YYYY-MM-DD) at the depot. */
-export function todayIn(timeZone: string, now = new Date()): string {
-  const parts = { year: 'numeric', month: '2-digit', day: '2-digit' } as const;
-  try {
-    return new Intl.DateTimeFormat('en-CA', { timeZone, ...parts }).format(now);
-  } catch {
-    return new Intl.DateTimeFormat('en-CA', parts).format(now);
-  }
-}
-
-/** A calendar date moved by whole days (no time-zone shift). */
-export function addDays(isoDate: string, days: number): string {
-  const d = new Date(`${isoDate}T00:00:00Z`);
-  d.setUTCDate(d.getUTCDate() + days);
-  return d.toISOString().slice(0, 10);
-}
-
-/** The nights to try, newest first: today, then up to `back` days before. */
-export function candidateNights(today: string, back = NIGHTS_BACK): string[] {
-  return Array.from({ length: back + 1 }, (_, i) => addDays(today, -i));
+/** The nights to try, newest first: tonight, then up to `back` nights before. */
+export function candidateNights(tonight: string, back = NIGHTS_BACK): string[] {
+  return Array.from({ length: back + 1 }, (_, i) => addDays(tonight, -i));
 }
 
 export interface ShortBus {

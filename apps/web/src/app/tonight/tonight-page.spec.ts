@@ -8,7 +8,8 @@ import { AuthStore } from '../auth/auth-store';
 import { DepotStore } from '../depots/depot-store';
 import { DEPOT_ID } from '../fleet/fleet-fixtures';
 import { PLAN_IDS, planDetail, planSummary } from '../plans/plan-fixtures';
-import { depot, settle } from '../testing/fixtures';
+import { Clock } from '../core/clock';
+import { depot, depotNight, settle } from '../testing/fixtures';
 import { charger } from '../yard/yard-fixtures';
 import { TonightPage } from './tonight-page';
 
@@ -33,6 +34,11 @@ describe('TonightPage', () => {
     await settle();
   }
 
+  /** The server's time: 22:00 on Tuesday 1 December at the depot (America/Chicago, UTC-6). */
+  let serverNow = '2026-12-02T04:00:00.000Z';
+  /** Tonight as the server says (the night endpoint). */
+  let tonight = '2026-12-01';
+
   async function start(roles: Role[] = ['admin']): Promise<void> {
     const current = signal(depot({ id: DEPOT_ID, name: 'Orchard Lane Depot', timezone: 'America/Chicago' }));
     TestBed.configureTestingModule({
@@ -48,8 +54,11 @@ describe('TonightPage', () => {
       ],
     });
     mock = TestBed.inject(HttpTestingController);
+    TestBed.inject(Clock).setServerTime(Date.parse(serverNow));
     fixture = TestBed.createComponent(TonightPage);
     el = fixture.nativeElement;
+    await render();
+    mock.expectOne(`/api/depots/${DEPOT_ID}/night`).flush(depotNight(tonight, serverNow));
     await render();
   }
 
@@ -70,13 +79,33 @@ describe('TonightPage', () => {
   }
 
   beforeEach(() => {
-    vi.useFakeTimers({ toFake: ['Date'] });
-    // 22:00 on Tuesday 1 December at the depot (America/Chicago, UTC-6): still "today" there.
-    vi.setSystemTime(new Date('2026-12-02T04:00:00Z'));
+    serverNow = '2026-12-02T04:00:00.000Z';
+    tonight = '2026-12-01';
   });
-  afterEach(() => {
-    mock.verify();
-    vi.useRealTimers();
+  afterEach(() => mock.verify());
+
+  it("looks from the server's tonight after midnight, not from the depot's calendar date", async () => {
+    // 01:30 on Wednesday 2 December at the depot: the night of Tuesday 1 December is still under way.
+    serverNow = '2026-12-02T07:30:00.000Z';
+    await start();
+    await chargers([]);
+    await night('2026-12-01', [planSummary({ id: PLAN_IDS.published, serviceDate: '2026-12-01', state: 'published' })]);
+    await detail(planDetail({ id: PLAN_IDS.published, serviceDate: '2026-12-01', state: 'published' }));
+    expect(fact('night')).toContain('1');
+    expect(fact('night')).toContain('December');
+    expect(el.querySelector('[data-fact="not-tonight"]')).toBeNull();
+  });
+
+  it('says when the plan shown is of an earlier night than tonight', async () => {
+    tonight = '2026-12-02';
+    serverNow = '2026-12-02T21:00:00.000Z';
+    await start();
+    await chargers([]);
+    await night('2026-12-02', []);
+    await night('2026-12-01', [planSummary({ id: PLAN_IDS.published, serviceDate: '2026-12-01', state: 'published' })]);
+    await detail(planDetail({ id: PLAN_IDS.published, serviceDate: '2026-12-01', state: 'published' }));
+    expect(fact('not-tonight')).toContain('No plan is published for tonight');
+    expect(fact('not-tonight')).toContain('2');
   });
 
   it('walks back from today to the latest night with a published plan and shows it', async () => {
@@ -104,6 +133,9 @@ describe('TonightPage', () => {
     expect(fact('night')).toContain('29');
     expect(fact('night')).toContain('November');
     expect(fact('version')).toBe('3');
+    // Published at 21:00 UTC: 15:00 at the depot, 24-hour, whatever the browser's zone.
+    expect(fact('published')).toMatch(/15:00 by Desmond Hale$/);
+    expect(fact('not-tonight')).toContain('No plan is published for tonight');
     expect(fact('buses')).toBe('3');
     expect(fact('plug-ins')).toBe('3');
     expect(fact('cost')).toContain('100.00');

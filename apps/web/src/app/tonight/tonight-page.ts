@@ -10,10 +10,11 @@ import { toApiProblem } from '../core/api-error';
 import { CurrentDepot } from '../depots/current-depot';
 import { formatServiceDay } from '../depots/depot-format';
 import { DepotStore } from '../depots/depot-store';
+import { NightStore, type NightDepot } from '../depots/night-store';
 import { money, naturalCompare, num, when } from '../plans/plan-format';
 import { PlansApi } from '../plans/plans-api';
 import { SectionIntro } from '../sections/section-intro';
-import { NIGHTS_BACK, candidateNights, liveCounts, liveStateOf, LIVE_STATES, peakLoad, shortBuses, todayIn } from './tonight-format';
+import { NIGHTS_BACK, candidateNights, liveCounts, liveStateOf, LIVE_STATES, peakLoad, shortBuses } from './tonight-format';
 
 type LoadState = 'idle' | 'loading' | 'loaded' | 'failed';
 
@@ -37,6 +38,7 @@ export class TonightPage {
   private readonly depots = inject(DepotStore);
   private readonly api = inject(PlansApi);
   private readonly auth = inject(AuthStore);
+  private readonly nights = inject(NightStore);
 
   /** The published plan of tonight (null: none in the nights looked at). */
   protected readonly plan = signal<PlanDetail | null>(null);
@@ -46,6 +48,8 @@ export class TonightPage {
   protected readonly detailState = signal<LoadState>('idle');
   protected readonly detailError = signal<string | null>(null);
   protected readonly nightsBack = NIGHTS_BACK;
+  /** The night the page looked from (the server's "tonight"). */
+  protected readonly tonight = signal<string | null>(null);
 
   protected readonly canOpenPlans = computed(() => hasAnyRole(this.auth.roles(), PLAN_READERS));
   protected readonly canGenerate = computed(() => hasAnyRole(this.auth.roles(), PLANNERS));
@@ -62,8 +66,10 @@ export class TonightPage {
       id: p.id,
       date: p.serviceDate,
       day: formatServiceDay(p.serviceDate),
+      /** Set when the plan shown is of an earlier night: none is published for tonight yet. */
+      tonightDay: this.tonight() && this.tonight() !== p.serviceDate ? formatServiceDay(this.tonight()!) : null,
       version: p.version,
-      published: p.publishedAt ? `${when(p.publishedAt)}${p.publishedBy ? ` by ${p.publishedBy}` : ''}` : null,
+      published: p.publishedAt ? `${when(p.publishedAt, p.timezone)}${p.publishedBy ? ` by ${p.publishedBy}` : ''}` : null,
       hasResult: r !== null,
       buses: r?.buses.length ?? 0,
       plugIns: r?.sessions.length ?? 0,
@@ -110,33 +116,57 @@ export class TonightPage {
   protected readonly faulted = computed(() => this.chargers().filter((c) => c.state === 'faulted').length);
 
   private run = 0;
+  /** Tonight's service date at the depot, as the server says. */
+  private readonly tonightDate = computed(() => {
+    const depot = this.depots.current();
+    return depot ? this.nights.tonightOf(depot) : null;
+  });
+  /** The night the page last looked from. */
+  private loadedFor: string | null = null;
 
   constructor() {
     void this.depots.load();
     effect(() => {
       const depot = this.depots.current();
-      if (depot) untracked(() => this.load(depot.id, depot.timezone));
+      if (depot) untracked(() => this.load(depot));
+    });
+    // When tonight's night is over, the server names the next one: look again.
+    effect(() => {
+      const tonight = this.tonightDate();
+      const depot = this.depots.current();
+      if (depot && tonight && this.loadedFor && tonight !== this.loadedFor) untracked(() => this.load(depot));
     });
   }
 
   protected reload(): void {
     const depot = this.depots.current();
-    if (depot) this.load(depot.id, depot.timezone);
+    if (depot) this.load(depot);
   }
 
-  private load(depotId: string, timeZone: string): void {
+  private load(depot: NightDepot): void {
     const run = ++this.run;
-    void this.loadPlan(run, depotId, timeZone);
-    void this.loadChargers(run, depotId);
+    void this.loadPlan(run, depot);
+    void this.loadChargers(run, depot.id);
   }
 
-  /** Walks back from today to the first night with a published plan, then reads that plan. */
-  private async loadPlan(run: number, depotId: string, timeZone: string): Promise<void> {
+  /** Walks back from tonight (the server's) to the first night with a published plan, then reads it. */
+  private async loadPlan(run: number, depot: NightDepot): Promise<void> {
+    const depotId = depot.id;
     this.planState.set('loading');
     this.planError.set(null);
     try {
+      await this.nights.load(depot);
+      const tonight = this.nights.tonightOf(depot);
+      if (run !== this.run) return;
+      if (!tonight) {
+        this.planError.set(this.nights.error() ?? 'Which night it is at the depot could not be found out.');
+        this.planState.set('failed');
+        return;
+      }
+      this.loadedFor = tonight;
+      this.tonight.set(tonight);
       let found: PlanDetail | null = null;
-      for (const date of candidateNights(todayIn(timeZone))) {
+      for (const date of candidateNights(tonight)) {
         const published = (await this.api.list(depotId, date)).find((p) => p.state === 'published');
         if (run !== this.run) return;
         if (published) {

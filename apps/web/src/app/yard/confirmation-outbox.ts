@@ -1,6 +1,7 @@
 import { DOCUMENT, DestroyRef, Injectable, computed, inject, signal } from '@angular/core';
 import { AuthStore } from '../auth/auth-store';
 import { toApiProblem } from '../core/api-error';
+import { Clock } from '../core/clock';
 import { YardApi, type YardConfirmation } from './yard-api';
 import type { OutboxState } from './yard-format';
 
@@ -34,6 +35,7 @@ const id = (e: Pick<OutboxEntry, 'planId' | 'stepKey'>) => `${e.planId}|${e.step
 export class ConfirmationOutbox {
   private readonly api = inject(YardApi);
   private readonly auth = inject(AuthStore);
+  private readonly clock = inject(Clock);
   private readonly window = inject(DOCUMENT).defaultView;
   private readonly storage: Storage | null = this.window?.localStorage ?? null;
 
@@ -73,7 +75,7 @@ export class ConfirmationOutbox {
     const userId = this.auth.user()?.id;
     if (!userId) return;
     if (!this.entries().some((e) => id(e) === id({ planId, stepKey }))) {
-      this.entries.update((list) => [...list, { planId, stepKey, userId, queuedAt: new Date().toISOString() }]);
+      this.entries.update((list) => [...list, { planId, stepKey, userId, queuedAt: this.clock.now().toISOString() }]);
       this.write();
     }
     this.setState(stepKey, { state: 'saving', retrying: false, message: null });

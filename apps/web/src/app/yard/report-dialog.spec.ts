@@ -101,6 +101,27 @@ describe('ReportDialog', () => {
     expect(el.textContent).toContain('Nothing was changed');
   });
 
+  it('takes the late bus time as HH:mm, 24-hour: a 12-hour time is refused, digits become HH:mm', async () => {
+    await open({ kind: 'bus_late', bus: '203' });
+    const input = el.querySelector<HTMLInputElement>('input[formcontrolname="expectedTime"]')!;
+    expect(input.type).toBe('text');
+    input.value = '11:40 PM';
+    input.dispatchEvent(new Event('input'));
+    input.dispatchEvent(new Event('blur'));
+    await submit();
+    expect(errors()).toContain('Write the time as HH:mm, 24-hour (for example 21:30)');
+    mock.expectNone(`/api/depots/${DEPOT_ID}/tonight/reports`);
+    input.value = '2340';
+    input.dispatchEvent(new Event('input'));
+    input.dispatchEvent(new Event('blur'));
+    await render();
+    expect(input.value).toBe('23:40');
+    expect(el.textContent).toContain('Today, 23:40 at the depot');
+    await submit();
+    const req = mock.expectOne(`/api/depots/${DEPOT_ID}/tonight/reports`);
+    expect(req.request.body).toMatchObject({ kind: 'bus_late', expectedAt: '2026-12-01T23:40' });
+  });
+
   it('says so when the plan was revised meanwhile and offers a reload', async () => {
     await open({ kind: 'bus_absent', bus: '201' });
     await submit();

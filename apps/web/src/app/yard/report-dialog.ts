@@ -12,6 +12,8 @@ import { MatSelectModule } from '@angular/material/select';
 import { yardReportSchema, type YardReportResult } from '@nightyard/contracts';
 import type { ZodType } from 'zod';
 import { applyFieldErrors, toApiProblem } from '../core/api-error';
+import { CLOCK_TIME } from '../core/depot-time';
+import { ClockTimeInput, clockTimeValidator } from '../shared/clock-time-input';
 import { YardApi, type YardReportRequest } from './yard-api';
 import { day, clock, expectedAtFor } from './yard-format';
 import { movedLines } from './yard-store';
@@ -66,9 +68,7 @@ function contract(kind: ReportKind, field: string, empty?: string): ValidatorFn 
   };
 }
 
-const TIME = /^([01]\d|2[0-3]):[0-5]\d$/;
-const timeValidator: ValidatorFn = (c) =>
-  !c.value ? { contract: 'Enter the time the bus is now expected' } : TIME.test(String(c.value)) ? null : { contract: 'Enter a time such as 23:40' };
+const timeValidator = clockTimeValidator('Enter the time the bus is now expected', 'contract');
 
 /** Which controls each kind of report uses (the others are disabled). */
 const FIELDS: Record<ReportKind, readonly string[]> = {
@@ -85,6 +85,7 @@ const FIELDS: Record<ReportKind, readonly string[]> = {
 @Component({
   selector: 'ny-report-dialog',
   imports: [
+    ClockTimeInput,
     MatButtonModule,
     MatDialogModule,
     MatFormFieldModule,
@@ -128,7 +129,7 @@ export class ReportDialog {
   /** "Tue 1 Dec 23:40 at the depot" under the time field. */
   protected readonly expectedHint = computed(() => {
     const time = this.expectedTime();
-    if (!time || !TIME.test(time)) return 'Depot time; after midnight means tomorrow morning';
+    if (!time || !CLOCK_TIME.test(time)) return 'Depot time; after midnight means tomorrow morning';
     const at = expectedAtFor(time, this.data.now, this.data.timezone);
     const [date] = at.split('T');
     const sameDay = date === expectedAtFor('23:59', this.data.now, this.data.timezone).split('T')[0];

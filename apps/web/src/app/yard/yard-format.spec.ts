@@ -59,9 +59,13 @@ describe('yard format', () => {
     expect(expectedAtFor('22:30', now, ZONE)).toBe('2026-12-02T22:30');
   });
 
-  it('is night at the depot from 18:00 to 07:00', () => {
-    expect(isNightAt(now, ZONE)).toBe(true);
-    expect(isNightAt(Date.parse('2026-12-01T18:00:00Z'), ZONE)).toBe(false); // 12:00 in Chicago
+  it("is night while the server's night (tonight's plan) is under way, not by the clock on the wall", () => {
+    const h = horizonOf(tonight().plan!.result!)!;
+    expect(isNightAt(h.start, h)).toBe(true);
+    expect(isNightAt(h.end - 1, h)).toBe(true);
+    expect(isNightAt(h.start - 1, h)).toBe(false);
+    expect(isNightAt(h.end, h)).toBe(false);
+    expect(isNightAt(now, null)).toBe(false);
   });
 
   it('says what a revision changed, from the plan notes', () => {

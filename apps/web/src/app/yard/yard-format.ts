@@ -1,4 +1,5 @@
 import type { Charger, PlanDetail, PlanResult, Tonight, YardStep } from '@nightyard/contracts';
+import { addDays, dayAt, depotParts, timeAt } from '../core/depot-time';
 
 /** Times, the night's span, steps and chargers as the yard reads them. Pure functions only. */
 
@@ -10,46 +11,12 @@ const collator = new Intl.Collator(undefined, { numeric: true, sensitivity: 'bas
 /** C2 before C10; bus 9 before bus 10. */
 export const naturalCompare = (a: string, b: string) => collator.compare(a, b);
 
-const formatters = new Map<string, Intl.DateTimeFormat>();
-function formatter(timeZone: string, kind: 'clock' | 'day' | 'parts'): Intl.DateTimeFormat {
-  const key = `${kind}|${timeZone}`;
-  let f = formatters.get(key);
-  if (!f) {
-    const options: Intl.DateTimeFormatOptions =
-      kind === 'clock'
-        ? { hour: '2-digit', minute: '2-digit', hourCycle: 'h23', timeZone }
-        : kind === 'day'
-          ? { weekday: 'short', day: 'numeric', month: 'short', timeZone }
-          : { year: 'numeric', month: '2-digit', day: '2-digit', hour: '2-digit', minute: '2-digit', hourCycle: 'h23', timeZone };
-    try {
-      f = new Intl.DateTimeFormat(kind === 'parts' ? 'en-CA' : undefined, options);
-    } catch {
-      f = new Intl.DateTimeFormat(kind === 'parts' ? 'en-CA' : undefined, { ...options, timeZone: 'UTC' });
-    }
-    formatters.set(key, f);
-  }
-  return f;
-}
-
-const toMs = (at: string | number | Date) => (typeof at === 'number' ? at : new Date(at).getTime());
-
 /** "21:30" at the depot. */
-export function clock(at: string | number | Date, timeZone: string): string {
-  return formatter(timeZone, 'clock').format(toMs(at));
-}
-
-/** "Tue 1 Dec" at the depot. */
-export function day(at: string | number | Date, timeZone: string): string {
-  return formatter(timeZone, 'day').format(toMs(at));
-}
-
+export const clock = timeAt;
+/** "Tue, Dec 1" at the depot. */
+export const day = dayAt;
 /** The depot's wall clock at an instant: `{ date: 'YYYY-MM-DD', time: 'HH:mm', hour }`. */
-export function localParts(at: string | number | Date, timeZone: string): { date: string; time: string; hour: number } {
-  const parts = Object.fromEntries(formatter(timeZone, 'parts').formatToParts(toMs(at)).map((p) => [p.type, p.value]));
-  const hour = Number(parts['hour']) % 24;
-  const hh = String(hour).padStart(2, '0');
-  return { date: `${parts['year']}-${parts['month']}-${parts['day']}`, time: `${hh}:${parts['minute']}`, hour };
-}
+export const localParts = depotParts;
 
 /** "in 25 min", "in 2 h 5 min", "15 min ago". */
 export function relative(atMs: number, nowMs: number): string {
@@ -71,15 +38,12 @@ export function kwh(value: number): string {
 export function expectedAtFor(time: string, nowMs: number, timeZone: string): string {
   const now = localParts(nowMs, timeZone);
   if (time > now.time) return `${now.date}T${time}`;
-  const [y, m, d] = now.date.split('-').map(Number) as [number, number, number];
-  const next = new Date(Date.UTC(y, m - 1, d + 1)).toISOString().slice(0, 10);
-  return `${next}T${time}`;
+  return `${addDays(now.date, 1)}T${time}`;
 }
 
-/** Night colours: from 18:00 to 07:00 at the depot. */
-export function isNightAt(nowMs: number, timeZone: string): boolean {
-  const { hour } = localParts(nowMs, timeZone);
-  return hour >= 18 || hour < 7;
+/** Night colours while the night is under way: from its first slot to its last (the server's night). */
+export function isNightAt(nowMs: number, night: Horizon | null): boolean {
+  return night !== null && nowMs >= night.start && nowMs < night.end;
 }
 
 // ---------------------------------------------------------------------------------------------

@@ -77,6 +77,26 @@ describe('YardPage', () => {
     expect(document.documentElement.style.colorScheme).toBe('dark');
   });
 
+  it("takes now from the server and keeps day colours before the server's night starts", async () => {
+    // 17:00 at the depot, whatever this machine's clock says; tonight's plan starts at 18:00.
+    await start(tonight({ now: at('17:00') }));
+    expect(text(el.querySelector('.status-bar'))).toContain('Now 17:00');
+    expect(text(el.querySelector('.night'))).toContain('The night starts');
+    expect(document.documentElement.style.colorScheme).toBe('');
+  });
+
+  it("darkens for the server's night (from its first pull-in), not from a fixed hour", async () => {
+    // Tonight's first pull-in is at 15:00; at 16:00 the night is under way.
+    const base = plan();
+    const slots = [];
+    for (let t = Date.parse(at('15:00')); t < Date.parse(at('07:00')); t += 15 * 60_000) {
+      slots.push({ start: new Date(t).toISOString(), loadKw: 0, price: 0.1, limitKw: 400 });
+    }
+    await start(tonight({ now: at('16:00'), plan: { ...base, result: { ...base.result!, slots } } }));
+    expect(text(el.querySelector('.status-bar'))).toContain('Now 16:00');
+    expect(document.documentElement.style.colorScheme).toBe('dark');
+  });
+
   it('asks for the cautions at the start of a shift before showing the steps', async () => {
     await start(tonight({ acknowledged: false }));
     expect(text(el)).toContain('Only trained and authorised staff connect or disconnect chargers.');

@@ -82,11 +82,11 @@ export class YardPage {
       if (depot) untracked(() => void this.store.start(depot.id));
     });
 
-    // Night colours for the yard: with the theme menu on "Match device", the page is dark from
-    // 18:00 to 07:00 at the depot; a pinned Light or Dark choice always wins.
+    // Night colours for the yard: with the theme menu on "Match device", the page is dark while
+    // tonight's plan (the server's night) is under way; a pinned Light or Dark choice always wins.
     const root = this.document.documentElement;
     effect(() => {
-      const night = this.theme.choice() === 'device' && isNightAt(this.store.now(), this.tz());
+      const night = this.theme.choice() === 'device' && isNightAt(this.store.now(), this.store.horizon());
       root.style.colorScheme = night ? 'dark' : '';
     });
 

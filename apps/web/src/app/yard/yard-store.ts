@@ -1,6 +1,7 @@
 import { DOCUMENT, DestroyRef, Injectable, computed, inject, signal } from '@angular/core';
 import type { Charger, PlanResult, Tonight, YardReportResult } from '@nightyard/contracts';
 import { toApiProblem } from '../core/api-error';
+import { Clock } from '../core/clock';
 import { ConfirmationOutbox } from './confirmation-outbox';
 import { YardApi } from './yard-api';
 import {
@@ -65,10 +66,15 @@ export class YardStore {
   readonly notice = signal<Notice | null>(null);
   readonly acknowledging = signal(false);
 
-  /** Server time minus this device's time, so a wrong phone clock does not move the now-line. */
-  private readonly offsetMs = signal(0);
-  private readonly tick = signal(Date.now());
-  readonly now = computed(() => this.tick() + this.offsetMs());
+  /** The app's clock follows the server's, so a wrong phone clock does not move the now-line. */
+  private readonly clock = inject(Clock);
+  /** The yard moves on more often than the app's clock ticks. */
+  private readonly beat = signal(0);
+  readonly now = computed(() => {
+    this.beat();
+    this.clock.tick();
+    return this.clock.nowMs();
+  });
 
   readonly timezone = computed(() => this.tonight()?.depot.timezone ?? 'UTC');
   readonly plan = computed(() => this.tonight()?.plan ?? null);
@@ -124,7 +130,7 @@ export class YardStore {
   private again = false;
 
   constructor() {
-    const ticker = setInterval(() => this.tick.set(Date.now()), TICK_MS);
+    const ticker = setInterval(() => this.beat.update((n) => n + 1), TICK_MS);
     const poller = setInterval(() => void this.load(), POLL_MS);
     const visible = () => {
       if (this.document.visibilityState === 'visible') {
@@ -209,7 +215,7 @@ export class YardStore {
   }
 
   private async fetch(depotId: string): Promise<void> {
-    const sentAt = Date.now();
+    const sentAt = performance.now();
     const [tonight, depot] = await Promise.allSettled([this.api.tonight(depotId), this.api.depot(depotId)]);
     if (depot.status === 'fulfilled') this.chargers.set(depot.value.chargers);
     if (tonight.status === 'rejected') {
@@ -222,9 +228,9 @@ export class YardStore {
       return;
     }
     const t = tonight.value;
-    const receivedAt = Date.now();
-    this.offsetMs.set(Date.parse(t.now) - Math.round((sentAt + receivedAt) / 2));
-    this.tick.set(receivedAt);
+    // The answer's own "now" sets the clock too (the same server's time as its header).
+    this.clock.setServerTime(Date.parse(t.now), performance.now() - sentAt);
+    this.beat.update((n) => n + 1);
     this.noticeIfRevised(t);
     this.tonight.set(t);
     this.error.set(null);
