@@ -37,6 +37,7 @@ const smtp = new SMTPServer({
           subject: mail.subject ?? '',
           text: mail.text ?? '',
           html: typeof mail.html === 'string' ? mail.html : null,
+          // The stand-in mail server's own receipt time, as a real one would stamp it (not the API's clock).
           receivedAt: new Date().toISOString(),
         });
         messages.length = Math.min(messages.length, LIMIT);

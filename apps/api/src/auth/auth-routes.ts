@@ -11,8 +11,14 @@ import * as auth from './auth-service';
 export const REFRESH_COOKIE = 'ny_refresh';
 const COOKIE_PATH = '/api/auth';
 
-function setRefreshCookie(req: Request, res: Response, token: string, expires: Date) {
-  res.cookie(REFRESH_COOKIE, token, { httpOnly: true, sameSite: 'strict', secure: req.secure, path: COOKIE_PATH, expires });
+/**
+ * The cookie lives as long as its token, counted as Max-Age (relative): the browser judges it by its
+ * own clock, which need not be the API's (development and tests stand the API at other instants).
+ */
+function setRefreshCookie(req: Request, res: Response, token: string, expires: Date, now: Date) {
+  res.cookie(REFRESH_COOKIE, token, {
+    httpOnly: true, sameSite: 'strict', secure: req.secure, path: COOKIE_PATH, maxAge: Math.max(0, expires.getTime() - now.getTime()),
+  });
 }
 
 const messageSchema = z.object({ message: z.string() });
@@ -23,7 +29,7 @@ export function authRoutes(api: ApiRoutes, { db, auth: settings, mailer, log, cl
       body: loginRequestSchema, response: tokenResponseSchema },
     async ({ body, req, res }) => {
       const issued = await auth.login(db, settings, body.email, body.password, req.ip ?? 'unknown', clock());
-      setRefreshCookie(req, res, issued.refreshToken, issued.refreshExpiresAt);
+      setRefreshCookie(req, res, issued.refreshToken, issued.refreshExpiresAt, clock());
       return issued.response;
     },
   );
@@ -33,7 +39,7 @@ export function authRoutes(api: ApiRoutes, { db, auth: settings, mailer, log, cl
       access: 'public', response: tokenResponseSchema },
     async ({ req, res }) => {
       const issued = await auth.refresh(db, settings, req.cookies?.[REFRESH_COOKIE], clock());
-      setRefreshCookie(req, res, issued.refreshToken, issued.refreshExpiresAt);
+      setRefreshCookie(req, res, issued.refreshToken, issued.refreshExpiresAt, clock());
       return issued.response;
     },
   );

@@ -13,7 +13,13 @@ import { hashPassword } from '../auth/secrets';
 import { smtpMailer } from '../mail/mailer';
 import { startJobQueue, type JobQueue } from '../jobs/job-queue';
 import { runPlanJob } from '../plans/plan-runner';
-import { systemClock } from '../time/clock';
+import { clockFrom } from '../time/clock';
+
+/**
+ * Where the API's clock starts in tests that do not stand it elsewhere: a weekday afternoon at the
+ * test depots (America/Chicago) before the nights the tests plan, never the machine's date.
+ */
+export const TEST_START = new Date('2026-12-01T15:00:00-06:00');
 import { TEST_DATABASE_URL, TEST_FAKE_MAIL_URL, TEST_SMTP_PORT } from './test-env';
 
 export const TEST_PASSWORD = 'correct-horse-battery';
@@ -42,7 +48,7 @@ export function createTestApp(overrides: Partial<AppDeps> = {}, databaseUrl = TE
   afterAll(() => jobs.stop(), 20_000);
   const deps: AppDeps = {
     db,
-    clock: systemClock,
+    clock: clockFrom(TEST_START),
     jobs,
     config,
     log,

@@ -55,7 +55,7 @@ describe('invitations', () => {
     await app.request().post('/api/users/invite').set(auth(admin)).send({ email, name: 'Late', roles: ['finance'] }).expect(201);
     const token = linkToken((await mailFor(email))[0]!.text);
     const [u] = await app.db.select().from(users).where(eq(users.email, email));
-    await app.db.update(actionTokens).set({ expiresAt: new Date(Date.now() - 1000) }).where(eq(actionTokens.userId, u!.id));
+    await app.db.update(actionTokens).set({ expiresAt: new Date(app.deps.clock().getTime() - 1000) }).where(eq(actionTokens.userId, u!.id));
     const res = await app.request().post('/api/auth/set-password').send({ token, password: 'a-fresh-password-1' }).expect(410);
     expect(res.body.error.message).toMatch(/expired/);
     const [still] = await app.db.select().from(users).where(eq(users.id, u!.id));
