@@ -19,6 +19,7 @@ import { ocppRoutes } from './ocpp/ocpp-routes';
 import { yardRoutes } from './yard/yard-routes';
 import { outboxRoutes } from './dev/outbox-routes';
 import { apiNotFound, errorHandler } from './http/error-handler';
+import { JSON_BODY_LIMIT_BYTES, METER_BODY_LIMIT_BYTES, RUNS_CSV_BODY_LIMIT_BYTES } from './http/limits';
 import { ApiRoutes, type RegisteredRoute } from './http/route';
 import { newOpenApiRegistry, openApiDocument } from './openapi/document';
 import { usersRoutes } from './users/users-routes';
@@ -69,9 +70,11 @@ export function createApp(deps: AppDeps): BuiltApp {
   );
 
   const router = express.Router();
-  // Interval-data files arrive as JSON strings; everything else is small.
-  router.use('/depots/:depotId/meter-data', express.json({ limit: '25mb', strict: true }));
-  router.use(express.json({ limit: '1mb', strict: true }));
+  // Interval-data and runs files arrive as JSON strings; everything else is small. A larger body
+  // is refused before it is read (413 naming the limit).
+  router.use('/depots/:depotId/meter-data', express.json({ limit: METER_BODY_LIMIT_BYTES, strict: true }));
+  router.use('/depots/:depotId/service-days/:date/csv', express.json({ limit: RUNS_CSV_BODY_LIMIT_BYTES, strict: true }));
+  router.use(express.json({ limit: JSON_BODY_LIMIT_BYTES, strict: true }));
   router.use(cookieParser());
   const openapi = newOpenApiRegistry();
   const api = new ApiRoutes(router, openapi, bearerAuthenticator(deps.db, deps.config.JWT_SECRET));

@@ -8,7 +8,7 @@ import { applyMigrations } from './db/migrate';
 import { smtpMailer } from './mail/mailer';
 import { startJobQueue } from './jobs/job-queue';
 import { runPlanJob } from './plans/plan-runner';
-import { loadSolver } from '@nightyard/scheduling';
+import { startWorkPool, stopWorkPool, warmWorkPool } from './workers/pool';
 import { CentralSystem } from './ocpp/central-system';
 import { clockFromEnv } from './time/clock';
 import { isEmpty, seedDemo } from '../../../tools/demo/seed';
@@ -33,8 +33,10 @@ if (config.SEED_DEMO === 'if-empty' && (await isEmpty(db))) {
   log.info('demo data seeded');
 }
 
-// The engine's solver loads once and is warmed before the first plan is asked for.
-await loadSolver();
+// The engine, file parses and password hashing run in worker threads; the engine thread loads
+// and warms its solver before the first plan is asked for.
+startWorkPool({ onError: (err) => log.error({ err }, 'worker thread failed') });
+await warmWorkPool();
 const jobs = await startJobQueue({ databaseUrl: config.DATABASE_URL, log, work: (id) => runPlanJob(db, log, id) });
 
 const central = new CentralSystem(db, log);
@@ -90,7 +92,7 @@ const shutdown = (signal: string) => {
   stopping = true;
   log.info({ signal }, 'shutting down');
   void central.close();
-  server.close(() => jobs.stop().then(() => pool.end()).then(() => process.exit(0)));
+  server.close(() => jobs.stop().then(() => Promise.all([pool.end(), stopWorkPool()])).then(() => process.exit(0)));
   setTimeout(() => process.exit(0), 5000).unref();
 };
 process.on('SIGTERM', () => shutdown('SIGTERM'));

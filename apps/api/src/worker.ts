@@ -3,7 +3,7 @@ import { loadConfig } from './config';
 import { createDb, createPool } from './db/client';
 import { startJobQueue } from './jobs/job-queue';
 import { runPlanJob } from './plans/plan-runner';
-import { loadSolver } from '@nightyard/scheduling';
+import { startWorkPool, stopWorkPool, warmWorkPool } from './workers/pool';
 
 // `npm run worker`: an extra process that takes plan jobs from the queue in PostgreSQL. Run as
 // many as the machines allow; each job is worked once.
@@ -11,7 +11,8 @@ const config = loadConfig();
 const log = pino({ level: config.LOG_LEVEL, base: { service: 'nightyard-worker' } });
 const pool = createPool(config.DATABASE_URL);
 const db = createDb(pool);
-await loadSolver();
+startWorkPool({ onError: (err) => log.error({ err }, 'worker thread failed') });
+await warmWorkPool();
 const jobs = await startJobQueue({ databaseUrl: config.DATABASE_URL, log, work: (id) => runPlanJob(db, log, id) });
 log.info('worker waiting for plan jobs');
 
@@ -20,7 +21,7 @@ const stop = async () => {
   if (stopping) return;
   stopping = true;
   await jobs.stop();
-  await pool.end();
+  await Promise.all([pool.end(), stopWorkPool()]);
   process.exit(0);
 };
 process.on('SIGTERM', stop);

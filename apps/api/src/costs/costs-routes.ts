@@ -11,7 +11,7 @@ import { importMeterData } from './meter-import';
 const COST_READERS = ['finance', 'admin', 'supervisor', 'facilities'] as const;
 const COST_EDITORS = ['finance', 'admin'] as const;
 
-export function costsRoutes(api: ApiRoutes, { db }: AppDeps) {
+export function costsRoutes(api: ApiRoutes, { db, clock }: AppDeps) {
   api.add(
     { method: 'get', path: '/plans/:id/costs', summary: 'A plan\'s projected cost, savings, per bus and per mile', tag: 'costs',
       access: COST_READERS, params: planIdParamsSchema, response: planCostsSchema },
@@ -25,7 +25,7 @@ export function costsRoutes(api: ApiRoutes, { db }: AppDeps) {
         dieselMpg: z.coerce.number().min(1, 'At least 1 mpg').max(30, 'At most 30 mpg').default(DIESEL_BUS_MPG),
       }),
       response: monthCostsSchema },
-    async ({ user, params, query }) => monthCosts(db, user, params.depotId, query.date, new Date(), query.dieselMpg),
+    async ({ user, params, query }) => monthCosts(db, user, params.depotId, query.date, clock(), query.dieselMpg),
   );
   api.add(
     { method: 'post', path: '/depots/:depotId/meter-data', summary: 'Import utility interval data (Green Button XML or CSV), all or nothing',

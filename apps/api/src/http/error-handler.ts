@@ -1,6 +1,7 @@
 import type { ErrorRequestHandler, RequestHandler } from 'express';
 import type { ErrorBody } from '@nightyard/contracts';
 import { DomainError, STATUS_BY_CODE } from './errors';
+import { formatBytes } from './limits';
 
 /** Turns every failure into `{ error: { code, message, fields? } }`; never sends a stack trace. */
 export const errorHandler: ErrorRequestHandler = (err, req, res, _next) => {
@@ -19,7 +20,9 @@ export const errorHandler: ErrorRequestHandler = (err, req, res, _next) => {
     return;
   }
   if (type === 'entity.too.large') {
-    res.status(413).json(body('payload_too_large', 'The request body is too large'));
+    const limit = (err as { limit?: number }).limit;
+    const message = limit ? `The request is larger than ${formatBytes(limit)}: send at most ${formatBytes(limit)}` : 'The request body is too large';
+    res.status(413).json(body('payload_too_large', message));
     return;
   }
   if (type === 'encoding.unsupported' || type === 'charset.unsupported') {

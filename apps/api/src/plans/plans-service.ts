@@ -3,10 +3,11 @@ import { DateTime } from 'luxon';
 import {
   planResultSchema, type PlanComparison, type PlanDetail, type PlanResult, type PlanSummary,
 } from '@nightyard/contracts';
-import { parseScenario, type ScenarioInput } from '@nightyard/scheduling';
+import { localToMillis, parseScenario, type Scenario, type ScenarioInput } from '@nightyard/scheduling';
 import type { Db } from '../db/client';
 import { depots, plans, users } from '../db/schema';
 import { DomainError, conflict, notFound } from '../http/errors';
+import { MAX_WHAT_IF_BUS_SLOTS, formatCount } from '../http/limits';
 import type { AuthUser } from '../auth/auth-user';
 import { depotOf } from '../depots/depot-access';
 import type { JobQueue } from '../jobs/job-queue';
@@ -81,6 +82,18 @@ export async function generatePlan(
   return storeDraft(db, jobs, caller, depotId, serviceDate, { kind: 'generated', includesMidday: includeMidday, scenario, notes });
 }
 
+/** The engine's work grows with buses x slots: a what-if larger than the limit is refused before it is queued. */
+function refuseLargeScenario(scenario: Scenario): void {
+  const horizonMs = (localToMillis(scenario.end, scenario.timezone) ?? 0) - (localToMillis(scenario.start, scenario.timezone) ?? 0);
+  const slots = Math.round(horizonMs / (scenario.slotMinutes * 60_000));
+  const size = scenario.buses.length * slots;
+  if (size > MAX_WHAT_IF_BUS_SLOTS) {
+    throw new DomainError('payload_too_large',
+      `The scenario has ${formatCount(scenario.buses.length)} buses x ${formatCount(slots)} slots = ${formatCount(size)}; at most ${formatCount(MAX_WHAT_IF_BUS_SLOTS)} bus-slots are planned at once: use longer slots, a shorter horizon or fewer buses`,
+      { buses: `Buses x slots at most ${formatCount(MAX_WHAT_IF_BUS_SLOTS)}` });
+  }
+}
+
 /** A what-if draft from an uploaded scenario file; its night is the day its horizon starts. */
 export async function createWhatIf(db: Db, jobs: JobQueue, caller: AuthUser, depotId: string, file: unknown): Promise<PlanSummary> {
   const depot = await depotOf(db, caller, depotId);
@@ -89,6 +102,7 @@ export async function createWhatIf(db: Db, jobs: JobQueue, caller: AuthUser, dep
     throw new DomainError('validation_failed', `The scenario file has ${parsed.problems.length} problem(s); nothing was saved`,
       Object.fromEntries(parsed.problems.map((p) => [p.path, p.message])));
   }
+  refuseLargeScenario(parsed.scenario);
   if (parsed.scenario.timezone !== depot.timezone) {
     throw new DomainError('validation_failed', `The file is for ${parsed.scenario.timezone}; ${depot.name} is in ${depot.timezone}`, { timezone: `Must be ${depot.timezone}` });
   }

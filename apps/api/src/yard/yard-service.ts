@@ -3,7 +3,7 @@ import { DateTime } from 'luxon';
 import {
   planResultSchema, type PlanResult, type Tonight, type YardReport, type YardReportResult,
 } from '@nightyard/contracts';
-import { parseScenario, replan, ReplanStateError, type Plan } from '@nightyard/scheduling';
+import { parseScenario, ReplanStateError, type Plan } from '@nightyard/scheduling';
 import type { Db } from '../db/client';
 import { chargers, depots, plans, shiftAcknowledgements, users, yardConfirmations, yardReports } from '../db/schema';
 import { DomainError, conflict, notFound } from '../http/errors';
@@ -13,6 +13,7 @@ import type { Mailer } from '../mail/mailer';
 import { planRevisedMail } from '../mail/templates';
 import { nightStaff } from '../plans/night-staff';
 import { comparePlans, getPlan } from '../plans/plans-service';
+import { runInPool } from '../workers/pool';
 import { mergeSessions, yardSteps } from './yard-steps';
 
 type PlanRow = typeof plans.$inferSelect;
@@ -179,10 +180,10 @@ export async function reportProblem(
   const t0 = performance.now();
   let next;
   try {
-    next = await replan(kept, {
+    next = await runInPool({ kind: 'replan', scenario: kept, state: {
       now: cutoff.toFormat(LOCAL), energyKwh, plugged, outOfService: state.outOfService,
       lateArrivals: Object.fromEntries(Object.entries(state.lateArrivals).filter(([b]) => !absent.has(b))), previous: previousPlan,
-    });
+    } });
   } catch (err) {
     if (err instanceof ReplanStateError) {
       throw new DomainError('validation_failed', 'The report does not fit tonight\'s plan', Object.fromEntries(err.problems.map((p) => [p.path, p.message])));
