@@ -102,6 +102,7 @@ interface PeriodBase {
 
 /** One per process; exported so tests can compare against a fresh computation. */
 export const monthCostsCache = new MonthCostsCache<PeriodBase>();
+export const newMonthCostsCache = () => new MonthCostsCache<PeriodBase>();
 
 async function periodBase(db: Db, depot: Depot, period: Period): Promise<PeriodBase> {
   const zone = depot.timezone;

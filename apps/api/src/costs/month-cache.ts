@@ -9,12 +9,19 @@ import type { Db } from '../db/client';
  */
 export class MonthCostsCache<T> {
   private readonly entries = new Map<string, { version: string; value: T }>();
+  /** Counted for tests and the bench. */
+  hits = 0;
+  misses = 0;
 
   constructor(private readonly maxEntries = 200) {}
 
   get(key: string, version: string): T | undefined {
     const hit = this.entries.get(key);
-    if (!hit || hit.version !== version) return undefined;
+    if (!hit || hit.version !== version) {
+      this.misses++;
+      return undefined;
+    }
+    this.hits++;
     // Most recently used last, so the oldest is dropped first.
     this.entries.delete(key);
     this.entries.set(key, hit);
