@@ -1,3 +1,4 @@
+import { createSecretKey } from 'node:crypto';
 import jwt from 'jsonwebtoken';
 import { ExtractJwt, Strategy as JwtStrategy } from 'passport-jwt';
 import passport from 'passport';
@@ -29,7 +30,9 @@ export function bearerAuthenticator(db: Db, secret: string) {
   const strategy = new JwtStrategy(
     {
       jwtFromRequest: ExtractJwt.fromAuthHeaderAsBearerToken(),
-      secretOrKey: secret,
+      // A key object, not the string: jsonwebtoken otherwise tries (and fails) to read the string
+      // as a public key on every request before taking it as a secret, about a millisecond each.
+      secretOrKey: createSecretKey(Buffer.from(secret)) as unknown as Buffer,
       issuer: ISSUER,
       audience: AUDIENCE,
       algorithms: ['HS256'],
