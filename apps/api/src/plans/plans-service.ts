@@ -22,8 +22,10 @@ const publisher = aliasedTable(users, 'publisher');
 
 const resultOf = (row: PlanRow): PlanResult | null => (row.result ? planResultSchema.parse(row.result) : null);
 
-function toSummary(row: PlanRow, createdBy: string | null, publishedBy: string | null): PlanSummary {
-  const result = resultOf(row);
+/** A plan row without its large documents (the engine's input and result). */
+export type PlanMeta = Omit<PlanRow, 'scenario' | 'result' | 'replanState'>;
+
+function toSummary(row: PlanMeta, createdBy: string | null, publishedBy: string | null, result: PlanResult | null): PlanSummary {
   return {
     id: row.id, depotId: row.depotId, serviceDate: row.serviceDate, version: row.version, kind: row.kind, state: row.state,
     status: row.status, stage: row.stage, error: row.error, includesMidday: row.includesMidday,
@@ -67,7 +69,7 @@ async function storeDraft(
     return created!;
   });
   await jobs.enqueuePlan(row.id);
-  return toSummary(row, caller.name, null);
+  return toSummary(row, caller.name, null, resultOf(row));
 }
 
 export async function generatePlan(
@@ -122,18 +124,24 @@ export async function listPlans(db: Db, caller: AuthUser, depotId: string, servi
     .where(and(eq(plans.depotId, depotId), serviceDate ? eq(plans.serviceDate, serviceDate) : undefined))
     .orderBy(desc(plans.serviceDate), desc(plans.version))
     .limit(200);
-  return rows.map((r) => toSummary(r.plan, r.createdBy, r.publishedBy));
+  return rows.map((r) => toSummary(r.plan, r.createdBy, r.publishedBy, resultOf(r.plan)));
 }
 
 export async function getPlan(db: Db, caller: AuthUser, id: string): Promise<PlanDetail> {
   const { plan, createdBy, publishedBy } = await loadPlan(db, caller, id);
-  const scenario = plan.scenario as unknown as ScenarioInput;
+  return planDetailOf(plan, createdBy, publishedBy, resultOf(plan), plan.scenario as unknown as ScenarioInput);
+}
+
+/** A plan with its result, from a row and its documents already read (and the result parsed). */
+export function planDetailOf(
+  plan: PlanMeta, createdBy: string | null, publishedBy: string | null, result: PlanResult | null, scenario: ScenarioInput,
+): PlanDetail {
   return {
-    ...toSummary(plan, createdBy, publishedBy),
+    ...toSummary(plan, createdBy, publishedBy, result),
     timezone: scenario.timezone,
     currency: scenario.tariff.currency ?? 'USD',
     notes: plan.notes,
-    result: resultOf(plan),
+    result,
     busCapacityKwh: Object.fromEntries(scenario.buses.map((b) => [b.id, b.usableKwh])),
   };
 }
@@ -179,7 +187,7 @@ export async function publishPlan(
   });
   await notifyPublished(db, mailer, caller, published, link).catch(() => undefined);
   const { plan, createdBy, publishedBy } = await loadPlan(db, caller, published.id);
-  return toSummary(plan, createdBy, publishedBy);
+  return toSummary(plan, createdBy, publishedBy, resultOf(plan));
 }
 
 async function notifyPublished(db: Db, mailer: Mailer, caller: AuthUser, plan: PlanRow, link: (path: string) => string) {

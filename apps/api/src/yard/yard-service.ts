@@ -1,9 +1,9 @@
-import { aliasedTable, and, desc, eq, sql } from 'drizzle-orm';
+import { aliasedTable, and, desc, eq, getTableColumns, sql } from 'drizzle-orm';
 import { DateTime } from 'luxon';
 import {
   planResultSchema, type PlanResult, type Tonight, type YardReport, type YardReportResult,
 } from '@nightyard/contracts';
-import { parseScenario, ReplanStateError, type Plan } from '@nightyard/scheduling';
+import { parseScenario, ReplanStateError, type Plan, type ScenarioInput } from '@nightyard/scheduling';
 import type { Db } from '../db/client';
 import { chargers, depots, plans, shiftAcknowledgements, users, yardConfirmations, yardReports } from '../db/schema';
 import { DomainError, conflict, notFound } from '../http/errors';
@@ -12,7 +12,7 @@ import { depotOf } from '../depots/depot-access';
 import type { Mailer } from '../mail/mailer';
 import { planRevisedMail } from '../mail/templates';
 import { nightStaff } from '../plans/night-staff';
-import { comparePlans, getPlan } from '../plans/plans-service';
+import { comparePlans, planDetailOf } from '../plans/plans-service';
 import { runInPool } from '../workers/pool';
 import { mergeSessions, yardSteps } from './yard-steps';
 
@@ -22,18 +22,48 @@ const LOCAL = "yyyy-MM-dd'T'HH:mm";
 
 const horizonOf = (r: PlanResult) => ({ from: Date.parse(r.slots[0]!.start), to: Date.parse(r.slots.at(-1)!.start) + 15 * 60_000 });
 
-/** The published plan in force now, or else the next one to start. */
-async function tonightsPlan(db: Db, depotId: string, now: Date): Promise<PlanRow | null> {
-  const rows = await db.select().from(plans).where(and(eq(plans.depotId, depotId), eq(plans.state, 'published'))).orderBy(desc(plans.serviceDate)).limit(14);
+const creator = aliasedTable(users, 'creator');
+const publisher = aliasedTable(users, 'publisher');
+const { scenario: _scenario, result: _result, replanState: _replanState, ...planMeta } = getTableColumns(plans);
+
+/**
+ * The published plan in force now, or else the next one to start. Its documents stay in the
+ * database: the horizon comes from the result's first and last slot, read there.
+ */
+async function tonightsPlan(db: Db, depotId: string, now: Date) {
+  const rows = await db
+    .select({
+      plan: planMeta, createdBy: creator.name, publishedBy: publisher.name,
+      first: sql<string | null>`${plans.result}->'slots'->0->>'start'`, last: sql<string | null>`${plans.result}->'slots'->-1->>'start'`,
+    })
+    .from(plans)
+    .leftJoin(creator, eq(creator.id, plans.createdBy))
+    .leftJoin(publisher, eq(publisher.id, plans.publishedBy))
+    .where(and(eq(plans.depotId, depotId), eq(plans.state, 'published')))
+    .orderBy(desc(plans.serviceDate))
+    .limit(14);
   const t = now.getTime();
-  let upcoming: PlanRow | null = null;
-  for (const p of rows) {
-    if (!p.result) continue;
-    const h = horizonOf(planResultSchema.parse(p.result));
-    if (h.from <= t && t < h.to) return p;
-    if (h.from > t && (!upcoming || h.from < horizonOf(planResultSchema.parse(upcoming.result)).from)) upcoming = p;
+  let upcoming: { row: (typeof rows)[number]; from: number } | null = null;
+  for (const row of rows) {
+    if (row.first === null || row.last === null) continue;
+    const h = { from: Date.parse(row.first), to: Date.parse(row.last) + 15 * 60_000 };
+    if (h.from <= t && t < h.to) return row;
+    if (h.from > t && (!upcoming || h.from < upcoming.from)) upcoming = { row, from: h.from };
   }
-  return upcoming;
+  return upcoming?.row ?? null;
+}
+
+/** A published plan's result and scenario never change (a revision is a new plan): kept parsed, by plan id. */
+const publishedDocuments = new Map<string, { result: PlanResult; scenario: ScenarioInput }>();
+
+async function documentsOf(db: Db, planId: string) {
+  const known = publishedDocuments.get(planId);
+  if (known) return known;
+  const [row] = await db.select({ result: plans.result, scenario: plans.scenario }).from(plans).where(eq(plans.id, planId));
+  const documents = { result: planResultSchema.parse(row!.result), scenario: row!.scenario as unknown as ScenarioInput };
+  publishedDocuments.set(planId, documents);
+  if (publishedDocuments.size > 50) publishedDocuments.delete(publishedDocuments.keys().next().value!);
+  return documents;
 }
 
 async function confirmationsOf(db: Db, depotId: string, serviceDate: string) {
@@ -47,25 +77,29 @@ async function confirmationsOf(db: Db, depotId: string, serviceDate: string) {
 
 export async function tonight(db: Db, caller: AuthUser, depotId: string, now: Date): Promise<Tonight> {
   const depot = await depotOf(db, caller, depotId);
-  const plan = await tonightsPlan(db, depotId, now);
+  const found = await tonightsPlan(db, depotId, now);
   const base = { depot: { id: depot.id, name: depot.name, timezone: depot.timezone }, now: now.toISOString() };
-  if (!plan) return { ...base, plan: null, steps: [], acknowledged: false, reports: [] };
-  const result = planResultSchema.parse(plan.result);
-  const [ack] = await db.select().from(shiftAcknowledgements).where(and(
-    eq(shiftAcknowledgements.userId, caller.id), eq(shiftAcknowledgements.depotId, depotId), eq(shiftAcknowledgements.serviceDate, plan.serviceDate)));
+  if (!found) return { ...base, plan: null, steps: [], acknowledged: false, reports: [] };
+  const { plan, createdBy, publishedBy } = found;
   const reporter = aliasedTable(users, 'reporter');
   const revision = aliasedTable(plans, 'revision');
-  const reports = await db
-    .select({ r: yardReports, by: reporter.name, version: revision.version })
-    .from(yardReports)
-    .leftJoin(reporter, eq(reporter.id, yardReports.reportedBy))
-    .leftJoin(revision, eq(revision.id, yardReports.revisionId))
-    .where(and(eq(yardReports.depotId, depotId), eq(yardReports.serviceDate, plan.serviceDate)))
-    .orderBy(desc(yardReports.reportedAt));
+  const [documents, [ack], reports, confirmations] = await Promise.all([
+    documentsOf(db, plan.id),
+    db.select().from(shiftAcknowledgements).where(and(
+      eq(shiftAcknowledgements.userId, caller.id), eq(shiftAcknowledgements.depotId, depotId), eq(shiftAcknowledgements.serviceDate, plan.serviceDate))),
+    db
+      .select({ r: yardReports, by: reporter.name, version: revision.version })
+      .from(yardReports)
+      .leftJoin(reporter, eq(reporter.id, yardReports.reportedBy))
+      .leftJoin(revision, eq(revision.id, yardReports.revisionId))
+      .where(and(eq(yardReports.depotId, depotId), eq(yardReports.serviceDate, plan.serviceDate)))
+      .orderBy(desc(yardReports.reportedAt)),
+    confirmationsOf(db, depotId, plan.serviceDate),
+  ]);
   return {
     ...base,
-    plan: await getPlan(db, caller, plan.id),
-    steps: yardSteps(result, now, await confirmationsOf(db, depotId, plan.serviceDate)),
+    plan: planDetailOf(plan, createdBy, publishedBy, documents.result, documents.scenario),
+    steps: yardSteps(documents.result, now, confirmations),
     acknowledged: Boolean(ack),
     reports: reports.map(({ r, by, version }) => ({
       kind: r.kind, bus: r.bus, charger: r.charger, reason: r.reason, reportedAt: r.reportedAt.toISOString(), reportedBy: by, revisionVersion: version,
@@ -100,9 +134,9 @@ export async function confirmStep(db: Db, caller: AuthUser, planId: string, key:
 
 export async function acknowledgeShift(db: Db, caller: AuthUser, depotId: string, now: Date): Promise<void> {
   await depotOf(db, caller, depotId);
-  const plan = await tonightsPlan(db, depotId, now);
-  if (!plan) throw conflict('There is no plan for tonight to start a shift on');
-  await db.insert(shiftAcknowledgements).values({ userId: caller.id, depotId, serviceDate: plan.serviceDate }).onConflictDoNothing();
+  const found = await tonightsPlan(db, depotId, now);
+  if (!found) throw conflict('There is no plan for tonight to start a shift on');
+  await db.insert(shiftAcknowledgements).values({ userId: caller.id, depotId, serviceDate: found.plan.serviceDate }).onConflictDoNothing();
 }
 
 /**
