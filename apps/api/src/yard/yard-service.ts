@@ -1,4 +1,4 @@
-import { aliasedTable, and, desc, eq, getTableColumns, sql } from 'drizzle-orm';
+import { aliasedTable, and, desc, eq, getTableColumns, inArray, sql } from 'drizzle-orm';
 import { DateTime } from 'luxon';
 import {
   planResultSchema, type PlanResult, type Tonight, type YardReport, type YardReportResult,
@@ -26,27 +26,40 @@ const creator = aliasedTable(users, 'creator');
 const publisher = aliasedTable(users, 'publisher');
 const { scenario: _scenario, result: _result, replanState: _replanState, ...planMeta } = getTableColumns(plans);
 
+/** Published plans' horizons (from their results, which never change), by plan id. */
+const horizons = new Map<string, { from: number; to: number }>();
+
 /**
- * The published plan in force now, or else the next one to start. Its documents stay in the
- * database: the horizon comes from the result's first and last slot, read there.
+ * The published plan in force now, or else the next one to start. The rows are read without
+ * their documents; each plan's horizon is read from its result once and then remembered.
  */
 async function tonightsPlan(db: Db, depotId: string, now: Date) {
   const rows = await db
-    .select({
-      plan: planMeta, createdBy: creator.name, publishedBy: publisher.name,
-      first: sql<string | null>`${plans.result}->'slots'->0->>'start'`, last: sql<string | null>`${plans.result}->'slots'->-1->>'start'`,
-    })
+    .select({ plan: planMeta, createdBy: creator.name, publishedBy: publisher.name })
     .from(plans)
     .leftJoin(creator, eq(creator.id, plans.createdBy))
     .leftJoin(publisher, eq(publisher.id, plans.publishedBy))
     .where(and(eq(plans.depotId, depotId), eq(plans.state, 'published')))
     .orderBy(desc(plans.serviceDate))
     .limit(14);
+  const unknown = rows.map((r) => r.plan.id).filter((id) => !horizons.has(id));
+  if (unknown.length) {
+    const found = await db
+      .select({ id: plans.id, first: sql<string | null>`${plans.result}->'slots'->0->>'start'`, last: sql<string | null>`${plans.result}->'slots'->-1->>'start'` })
+      .from(plans)
+      .where(inArray(plans.id, unknown));
+    for (const f of found) {
+      // A published plan always has its result; without one it is skipped (and asked again next time).
+      if (f.first === null || f.last === null) continue;
+      horizons.set(f.id, { from: Date.parse(f.first), to: Date.parse(f.last) + 15 * 60_000 });
+      if (horizons.size > 5000) horizons.delete(horizons.keys().next().value!);
+    }
+  }
   const t = now.getTime();
   let upcoming: { row: (typeof rows)[number]; from: number } | null = null;
   for (const row of rows) {
-    if (row.first === null || row.last === null) continue;
-    const h = { from: Date.parse(row.first), to: Date.parse(row.last) + 15 * 60_000 };
+    const h = horizons.get(row.plan.id);
+    if (!h) continue;
     if (h.from <= t && t < h.to) return row;
     if (h.from > t && (!upcoming || h.from < upcoming.from)) upcoming = { row, from: h.from };
   }
