@@ -1,4 +1,4 @@
-import { and, asc, eq, gte, lt, lte } from 'drizzle-orm';
+import { and, asc, eq, gte, lt } from 'drizzle-orm';
 import { DateTime } from 'luxon';
 import { planResultSchema, type MonthCosts, type PlanCosts, type PlanResult, type RatePlanDefinition } from '@nightyard/contracts';
 import { computeBill, ratePlanPeriodAt, type Bill, type IntervalDemand } from '@nightyard/scheduling';
@@ -230,35 +230,33 @@ export async function monthCosts(
   const periodStart = period.start.toISODate()!;
   const periodEnd = period.end.toISODate()!;
 
-  let base: PeriodBase | undefined;
-  let version: string | undefined;
+  // Runs change without a version to compare, and the miles count up to today: both are read
+  // each time, in one query (school days of the period, and each run's miles), beside the version.
+  const [periodRuns, version] = await Promise.all([
+    db
+      .select({ date: runs.serviceDate, miles: runs.miles, kwh: runs.kwh, kwhPerMile: buses.kwhPerMile })
+      .from(runs)
+      .innerJoin(buses, eq(buses.id, runs.busId))
+      .where(and(eq(runs.depotId, depotId), gte(runs.serviceDate, periodStart), lt(runs.serviceDate, periodEnd)))
+      .orderBy(asc(runs.serviceDate), asc(runs.id)),
+    cache
+      ? monthInputsVersion(db, depot, {
+        plansFrom: period.start.minus({ days: 4 }).toISODate()!, plansTo: periodEnd, periodStart,
+        fromAt: period.start.toJSDate(), toAt: period.end.toJSDate(),
+      })
+      : undefined,
+  ]);
   const key = `${depot.id}|${periodStart}`;
-  if (cache) {
-    version = await monthInputsVersion(db, depot, {
-      plansFrom: period.start.minus({ days: 4 }).toISODate()!, plansTo: periodEnd, periodStart,
-      fromAt: period.start.toJSDate(), toAt: period.end.toJSDate(),
-    });
-    base = cache.get(key, version);
-  }
+  let base = cache && version ? cache.get(key, version) : undefined;
   if (!base) {
     base = await periodBase(db, depot, period);
     if (cache && version) cache.set(key, version, base);
   }
   const { monthToDate, peaks } = soFarOf(base, depot, period, now.getTime());
 
-  // Runs change without a version to compare, and the miles count up to today: both are read each time.
-  const days = await db
-    .selectDistinct({ date: runs.serviceDate })
-    .from(runs)
-    .where(and(eq(runs.depotId, depotId), gte(runs.serviceDate, periodStart), lt(runs.serviceDate, periodEnd)));
   const today = DateTime.fromJSDate(now, { zone }).toISODate()!;
-  const milesRows = await db
-    .select({ miles: runs.miles, kwh: runs.kwh, kwhPerMile: buses.kwhPerMile })
-    .from(runs)
-    .innerJoin(buses, eq(buses.id, runs.busId))
-    .where(and(eq(runs.depotId, depotId), gte(runs.serviceDate, periodStart), lt(runs.serviceDate, periodEnd),
-      lte(runs.serviceDate, today)));
-  const miles = milesRows.reduce((sum, r) => sum + (r.miles ?? (r.kwh ?? 0) / r.kwhPerMile), 0);
+  const days = [...new Set(periodRuns.map((r) => r.date))];
+  const miles = periodRuns.filter((r) => r.date <= today).reduce((sum, r) => sum + (r.miles ?? (r.kwh ?? 0) / r.kwhPerMile), 0);
   const gallons = miles / mpg;
   return {
     currency: base.rate.definition.currency,
@@ -272,7 +270,7 @@ export async function monthCosts(
     sources: {
       actualIntervals: base.series.filter((s) => s.source === 'actual').length,
       plannedNights: base.nights.length,
-      schoolNightsWithoutPlan: days.filter((d) => !base.plannedDates.has(d.date)).length,
+      schoolNightsWithoutPlan: days.filter((d) => !base.plannedDates.has(d)).length,
     },
     emissions: {
       miles: round2(miles), dieselMpg: mpg, dieselGallonsAvoided: round2(gallons), co2KgAvoided: round2(gallons * DIESEL_CO2_KG_PER_GALLON),

@@ -1,3 +1,5 @@
+import { readlinkSync } from 'node:fs';
+import { setPriority } from 'node:os';
 import bcrypt from 'bcryptjs';
 import type { RatePlanDefinition } from '@nightyard/contracts';
 import {
@@ -58,14 +60,35 @@ function filledLines(text: string): number {
   return filled ? n + 1 : n;
 }
 
+let yielding = false;
+
+/**
+ * An engine thread gives way to the request thread: on a machine with few cores a solve would
+ * otherwise take CPU time that requests wait for. Linux keeps a nice value per thread, so this
+ * thread alone is lowered (elsewhere it runs at normal priority).
+ */
+function yieldToRequests(): void {
+  if (yielding) return;
+  yielding = true;
+  try {
+    const tid = Number(readlinkSync('/proc/thread-self').split('/').pop());
+    if (Number.isInteger(tid) && tid > 0) setPriority(tid, 10);
+  } catch {
+    // No /proc/thread-self: not Linux.
+  }
+}
+
 async function perform(task: PoolTask): Promise<unknown> {
   switch (task.kind) {
     case 'warm':
+      yieldToRequests();
       await loadSolver();
       return null;
     case 'plan':
+      yieldToRequests();
       return planScenario(task.scenario);
     case 'replan':
+      yieldToRequests();
       return replan(task.scenario, task.state);
     case 'runs-csv': {
       const rows = filledLines(task.text) - 1;

@@ -89,8 +89,8 @@ async function confirmationsOf(db: Db, depotId: string, serviceDate: string) {
 }
 
 export async function tonight(db: Db, caller: AuthUser, depotId: string, now: Date): Promise<Tonight> {
-  const depot = await depotOf(db, caller, depotId);
-  const found = await tonightsPlan(db, depotId, now);
+  // The depot check and the plan's look-up at once: nothing is returned unless the depot is the caller's.
+  const [depot, found] = await Promise.all([depotOf(db, caller, depotId), tonightsPlan(db, depotId, now)]);
   const base = { depot: { id: depot.id, name: depot.name, timezone: depot.timezone }, now: now.toISOString() };
   if (!found) return { ...base, plan: null, steps: [], acknowledged: false, reports: [] };
   const { plan, createdBy, publishedBy } = found;
