@@ -35,7 +35,10 @@ if (config.SEED_DEMO === 'if-empty' && (await isEmpty(db))) {
 
 // The engine, file parses and password hashing run in worker threads; the engine thread loads
 // and warms its solver before the first plan is asked for.
-startWorkPool({ onError: (err) => log.error({ err }, 'worker thread failed') });
+startWorkPool({
+  engineThreads: config.ENGINE_THREADS, quickThreads: config.QUICK_THREADS,
+  onError: (err) => log.error({ err }, 'worker thread failed'),
+});
 await warmWorkPool();
 const jobs = await startJobQueue({ databaseUrl: config.DATABASE_URL, log, work: (id) => runPlanJob(db, log, id) });
 

@@ -11,7 +11,10 @@ const config = loadConfig();
 const log = pino({ level: config.LOG_LEVEL, base: { service: 'nightyard-worker' } });
 const pool = createPool(config.DATABASE_URL);
 const db = createDb(pool);
-startWorkPool({ onError: (err) => log.error({ err }, 'worker thread failed') });
+startWorkPool({
+  engineThreads: config.ENGINE_THREADS, quickThreads: config.QUICK_THREADS,
+  onError: (err) => log.error({ err }, 'worker thread failed'),
+});
 await warmWorkPool();
 const jobs = await startJobQueue({ databaseUrl: config.DATABASE_URL, log, work: (id) => runPlanJob(db, log, id) });
 log.info('worker waiting for plan jobs');

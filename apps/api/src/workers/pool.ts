@@ -8,7 +8,9 @@ import type { PoolOutputs, PoolReply, PoolTask } from './pool-worker';
  * solve never makes a sign-in wait:
  * - engine: plans and re-plans (HiGHS loads once per thread); ENGINE_THREADS, default 1;
  * - quick: password hashing and file parses; QUICK_THREADS, default 1.
- * The pool starts on first use; threads that sit idle do not keep the process alive.
+ * On a 2-core machine that leaves a core for the request thread and the database. The API and the
+ * job worker start the pool with their settings; elsewhere (tests, the seed) the first task
+ * starts it with one thread a lane. Threads that sit idle do not keep the process alive.
  */
 export interface WorkPoolOptions {
   engineThreads?: number;
@@ -28,21 +30,13 @@ function workerFile(): string {
   return new URL(fromSource ? './pool-worker-source.mjs' : './pool-worker.mjs', import.meta.url).href;
 }
 
-function threadsFromEnv(name: string, fallback: number): number {
-  const raw = process.env[name];
-  if (raw === undefined || raw === '') return fallback;
-  const n = Number(raw);
-  if (!Number.isInteger(n) || n < 1 || n > 16) throw new Error(`${name} must be a whole number of threads from 1 to 16, not "${raw}"`);
-  return n;
-}
-
 let lanes: Record<Lane, Piscina> | null = null;
 
 /** Starts the pool with these settings (main.ts does, with its logger); otherwise the first task does. */
 export function startWorkPool(options: WorkPoolOptions = {}): void {
   if (lanes) return;
   const filename = workerFile();
-  const lane = (name: Lane, threads: number) => {
+  const lane = (threads: number) => {
     const pool = new Piscina({
       filename, minThreads: 1, maxThreads: threads,
       // Keep extra threads a while: starting one costs module loading (and HiGHS for the engine).
@@ -52,8 +46,8 @@ export function startWorkPool(options: WorkPoolOptions = {}): void {
     return pool;
   };
   lanes = {
-    engine: lane('engine', options.engineThreads ?? threadsFromEnv('ENGINE_THREADS', 1)),
-    quick: lane('quick', options.quickThreads ?? threadsFromEnv('QUICK_THREADS', 1)),
+    engine: lane(options.engineThreads ?? 1),
+    quick: lane(options.quickThreads ?? 1),
   };
 }
 
