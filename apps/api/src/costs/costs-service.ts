@@ -1,4 +1,4 @@
-import { and, asc, eq, gte, lt } from 'drizzle-orm';
+import { and, asc, eq, gte, lt, lte, sql } from 'drizzle-orm';
 import { DateTime } from 'luxon';
 import { planResultSchema, type MonthCosts, type PlanCosts, type PlanResult, type RatePlanDefinition } from '@nightyard/contracts';
 import { computeBill, ratePlanPeriodAt, type Bill, type IntervalDemand } from '@nightyard/scheduling';
@@ -231,14 +231,20 @@ export async function monthCosts(
   const periodEnd = period.end.toISODate()!;
 
   // Runs change without a version to compare, and the miles count up to today: both are read
-  // each time, in one query (school days of the period, and each run's miles), beside the version.
-  const [periodRuns, version] = await Promise.all([
+  // each time, beside the version.
+  const today = DateTime.fromJSDate(now, { zone }).toISODate()!;
+  const [days, milesRows, version] = await Promise.all([
     db
-      .select({ date: runs.serviceDate, miles: runs.miles, kwh: runs.kwh, kwhPerMile: buses.kwhPerMile })
+      .selectDistinct({ date: runs.serviceDate })
+      .from(runs)
+      .where(and(eq(runs.depotId, depotId), gte(runs.serviceDate, periodStart), lt(runs.serviceDate, periodEnd))),
+    // Miles as driven, else the energy used over the bus's kWh per mile.
+    db
+      .select({ miles: sql<number>`coalesce(sum(coalesce(${runs.miles}, coalesce(${runs.kwh}, 0) / ${buses.kwhPerMile})), 0)`.mapWith(Number) })
       .from(runs)
       .innerJoin(buses, eq(buses.id, runs.busId))
-      .where(and(eq(runs.depotId, depotId), gte(runs.serviceDate, periodStart), lt(runs.serviceDate, periodEnd)))
-      .orderBy(asc(runs.serviceDate), asc(runs.id)),
+      .where(and(eq(runs.depotId, depotId), gte(runs.serviceDate, periodStart), lt(runs.serviceDate, periodEnd),
+        lte(runs.serviceDate, today))),
     cache
       ? monthInputsVersion(db, depot, {
         plansFrom: period.start.minus({ days: 4 }).toISODate()!, plansTo: periodEnd, periodStart,
@@ -254,9 +260,7 @@ export async function monthCosts(
   }
   const { monthToDate, peaks } = soFarOf(base, depot, period, now.getTime());
 
-  const today = DateTime.fromJSDate(now, { zone }).toISODate()!;
-  const days = [...new Set(periodRuns.map((r) => r.date))];
-  const miles = periodRuns.filter((r) => r.date <= today).reduce((sum, r) => sum + (r.miles ?? (r.kwh ?? 0) / r.kwhPerMile), 0);
+  const miles = milesRows[0]?.miles ?? 0;
   const gallons = miles / mpg;
   return {
     currency: base.rate.definition.currency,
@@ -270,7 +274,7 @@ export async function monthCosts(
     sources: {
       actualIntervals: base.series.filter((s) => s.source === 'actual').length,
       plannedNights: base.nights.length,
-      schoolNightsWithoutPlan: days.filter((d) => !base.plannedDates.has(d)).length,
+      schoolNightsWithoutPlan: days.filter((d) => !base.plannedDates.has(d.date)).length,
     },
     emissions: {
       miles: round2(miles), dieselMpg: mpg, dieselGallonsAvoided: round2(gallons), co2KgAvoided: round2(gallons * DIESEL_CO2_KG_PER_GALLON),
