@@ -2,7 +2,7 @@ import { readFileSync } from 'node:fs';
 import { eq } from 'drizzle-orm';
 import { beforeAll, describe, expect, it } from 'vitest';
 import type { AuthUser } from '../auth/auth-user';
-import { depots, users } from '../db/schema';
+import { depots, ratePlans, users } from '../db/schema';
 import { createDepot } from '../testing/depot-fixture';
 import { addBuses, dayRuns } from '../testing/fleet-fixture';
 import { publishedPlan } from '../testing/plan-fixture';
@@ -21,13 +21,16 @@ let fin: TestUser;
 let sup: TestUser;
 let caller: AuthUser;
 let depotId: string;
+let ratePlanId: string;
 
 beforeAll(async () => {
   const org = await createOrganisation(app, { fin: ['finance'], sup: ['supervisor'] });
   ({ fin, sup } = org.users as Record<string, TestUser>);
   const [row] = await app.db.select().from(users).where(eq(users.id, fin.id));
   caller = { id: row!.id, organisationId: row!.organisationId, email: row!.email, name: row!.name, roles: row!.roles };
-  depotId = (await createDepot(app.db, org.organisationId)).depot.id;
+  const created = await createDepot(app.db, org.organisationId);
+  depotId = created.depot.id;
+  ratePlanId = created.ratePlan.id;
   await addBuses(app.db, org.organisationId, depotId, NUMBERS);
   for (const date of ['2026-12-02', '2026-12-03', '2026-12-04']) {
     await app.request().put(`/api/depots/${depotId}/service-days/${date}`).set(as(sup)).send({ forecastLowF: 30, runs: dayRuns(date, NUMBERS, () => 35) }).expect(200);
@@ -79,6 +82,17 @@ describe('the costs month cache', () => {
     expect(after.nights.map((n: { planId: string }) => n.planId)).toContain(planId);
     expect(after.nights).toHaveLength(before.nights.length + 1);
     expect(after.projected).not.toEqual(before.projected);
+    expect(after).toEqual(await uncached());
+  });
+
+  it('changes when the rate plan\'s prices are edited', async () => {
+    const before = await month();
+    const [plan] = await app.db.select().from(ratePlans).where(eq(ratePlans.id, ratePlanId));
+    const definition = plan!.definition as { seasons: { offPeakPrice: number }[] };
+    const dearer = { ...definition, seasons: definition.seasons.map((season) => ({ ...season, offPeakPrice: season.offPeakPrice * 2 })) };
+    await app.db.update(ratePlans).set({ definition: dearer }).where(eq(ratePlans.id, ratePlanId));
+    const after = await month();
+    expect(after.projected.energyTotal).toBeGreaterThan(before.projected.energyTotal);
     expect(after).toEqual(await uncached());
   });
 
