@@ -5,6 +5,7 @@ import {
 } from '@nightyard/contracts';
 import { parseScenario, ReplanStateError, type Plan, type ScenarioInput } from '@nightyard/scheduling';
 import type { Db } from '../db/client';
+import { prepared } from '../db/prepared';
 import { chargers, depots, plans, shiftAcknowledgements, users, yardConfirmations, yardReports } from '../db/schema';
 import { DomainError, conflict, notFound } from '../http/errors';
 import type { AuthUser } from '../auth/auth-user';
@@ -26,6 +27,16 @@ const creator = aliasedTable(users, 'creator');
 const publisher = aliasedTable(users, 'publisher');
 const { scenario: _scenario, result: _result, replanState: _replanState, ...planMeta } = getTableColumns(plans);
 
+const publishedPlansQuery = (db: Db, name: string) => db
+  .select({ plan: planMeta, createdBy: creator.name, publishedBy: publisher.name })
+  .from(plans)
+  .leftJoin(creator, eq(creator.id, plans.createdBy))
+  .leftJoin(publisher, eq(publisher.id, plans.publishedBy))
+  .where(and(eq(plans.depotId, sql.placeholder('depotId')), eq(plans.state, 'published')))
+  .orderBy(desc(plans.serviceDate))
+  .limit(14)
+  .prepare(name);
+
 /** Published plans' horizons (from their results, which never change), by plan id. */
 const horizons = new Map<string, { from: number; to: number }>();
 
@@ -34,14 +45,7 @@ const horizons = new Map<string, { from: number; to: number }>();
  * their documents; each plan's horizon is read from its result once and then remembered.
  */
 async function tonightsPlan(db: Db, depotId: string, now: Date) {
-  const rows = await db
-    .select({ plan: planMeta, createdBy: creator.name, publishedBy: publisher.name })
-    .from(plans)
-    .leftJoin(creator, eq(creator.id, plans.createdBy))
-    .leftJoin(publisher, eq(publisher.id, plans.publishedBy))
-    .where(and(eq(plans.depotId, depotId), eq(plans.state, 'published')))
-    .orderBy(desc(plans.serviceDate))
-    .limit(14);
+  const rows = await prepared(db, 'tonight_published_plans', publishedPlansQuery).execute({ depotId });
   const unknown = rows.map((r) => r.plan.id).filter((id) => !horizons.has(id));
   if (unknown.length) {
     const found = await db
@@ -79,12 +83,15 @@ async function documentsOf(db: Db, planId: string) {
   return documents;
 }
 
+const confirmationsQuery = (db: Db, name: string) => db
+  .select({ key: yardConfirmations.stepKey, at: yardConfirmations.confirmedAt, by: confirmer.name })
+  .from(yardConfirmations)
+  .leftJoin(confirmer, eq(confirmer.id, yardConfirmations.confirmedBy))
+  .where(and(eq(yardConfirmations.depotId, sql.placeholder('depotId')), eq(yardConfirmations.serviceDate, sql.placeholder('serviceDate'))))
+  .prepare(name);
+
 async function confirmationsOf(db: Db, depotId: string, serviceDate: string) {
-  const rows = await db
-    .select({ key: yardConfirmations.stepKey, at: yardConfirmations.confirmedAt, by: confirmer.name })
-    .from(yardConfirmations)
-    .leftJoin(confirmer, eq(confirmer.id, yardConfirmations.confirmedBy))
-    .where(and(eq(yardConfirmations.depotId, depotId), eq(yardConfirmations.serviceDate, serviceDate)));
+  const rows = await prepared(db, 'yard_confirmations_of_night', confirmationsQuery).execute({ depotId, serviceDate });
   return new Map(rows.map((r) => [r.key, { at: r.at, by: r.by }]));
 }
 
