@@ -7,6 +7,7 @@ import { billingPeaks, buses, meterIntervals, plans, runs } from '../db/schema';
 import { notFound } from '../http/errors';
 import type { AuthUser } from '../auth/auth-user';
 import { depotOf } from '../depots/depot-access';
+import { prepared } from '../db/prepared';
 import { billingPeriodOf, ratePlanOn } from './billing-period';
 import { MonthCostsCache, monthInputsVersion } from './month-cache';
 
@@ -214,6 +215,21 @@ function soFarOf(base: PeriodBase, depot: Depot, period: Period, nowMs: number) 
   return value;
 }
 
+const schoolDaysQuery = (db: Db, name: string) => db
+  .selectDistinct({ date: runs.serviceDate })
+  .from(runs)
+  .where(and(eq(runs.depotId, sql.placeholder('depotId')), gte(runs.serviceDate, sql.placeholder('from')), lt(runs.serviceDate, sql.placeholder('to'))))
+  .prepare(name);
+
+/** Miles as driven, else the energy used over the bus's kWh per mile. */
+const milesQuery = (db: Db, name: string) => db
+  .select({ miles: sql<number>`coalesce(sum(coalesce(${runs.miles}, coalesce(${runs.kwh}, 0) / ${buses.kwhPerMile})), 0)`.mapWith(Number) })
+  .from(runs)
+  .innerJoin(buses, eq(buses.id, runs.busId))
+  .where(and(eq(runs.depotId, sql.placeholder('depotId')), gte(runs.serviceDate, sql.placeholder('from')), lt(runs.serviceDate, sql.placeholder('to')),
+    lte(runs.serviceDate, sql.placeholder('today'))))
+  .prepare(name);
+
 /**
  * The billing period's costs: every 15-minute interval takes the metered value where one was
  * imported, else the published plan's site load, else the depot's building load alone. The bills
@@ -234,17 +250,8 @@ export async function monthCosts(
   // each time, beside the version.
   const today = DateTime.fromJSDate(now, { zone }).toISODate()!;
   const [days, milesRows, version] = await Promise.all([
-    db
-      .selectDistinct({ date: runs.serviceDate })
-      .from(runs)
-      .where(and(eq(runs.depotId, depotId), gte(runs.serviceDate, periodStart), lt(runs.serviceDate, periodEnd))),
-    // Miles as driven, else the energy used over the bus's kWh per mile.
-    db
-      .select({ miles: sql<number>`coalesce(sum(coalesce(${runs.miles}, coalesce(${runs.kwh}, 0) / ${buses.kwhPerMile})), 0)`.mapWith(Number) })
-      .from(runs)
-      .innerJoin(buses, eq(buses.id, runs.busId))
-      .where(and(eq(runs.depotId, depotId), gte(runs.serviceDate, periodStart), lt(runs.serviceDate, periodEnd),
-        lte(runs.serviceDate, today))),
+    prepared(db, 'month_school_days', schoolDaysQuery).execute({ depotId, from: periodStart, to: periodEnd }),
+    prepared(db, 'month_miles_to_date', milesQuery).execute({ depotId, from: periodStart, to: periodEnd, today }),
     cache
       ? monthInputsVersion(db, depot, {
         plansFrom: period.start.minus({ days: 4 }).toISODate()!, plansTo: periodEnd, periodStart,

@@ -95,25 +95,35 @@ async function confirmationsOf(db: Db, depotId: string, serviceDate: string) {
   return new Map(rows.map((r) => [r.key, { at: r.at, by: r.by }]));
 }
 
+const acknowledgementQuery = (db: Db, name: string) => db
+  .select({ userId: shiftAcknowledgements.userId })
+  .from(shiftAcknowledgements)
+  .where(and(eq(shiftAcknowledgements.userId, sql.placeholder('userId')), eq(shiftAcknowledgements.depotId, sql.placeholder('depotId')),
+    eq(shiftAcknowledgements.serviceDate, sql.placeholder('serviceDate'))))
+  .prepare(name);
+
+const reporter = aliasedTable(users, 'reporter');
+const revisionPlan = aliasedTable(plans, 'revision');
+const reportsQuery = (db: Db, name: string) => db
+  .select({ r: yardReports, by: reporter.name, version: revisionPlan.version })
+  .from(yardReports)
+  .leftJoin(reporter, eq(reporter.id, yardReports.reportedBy))
+  .leftJoin(revisionPlan, eq(revisionPlan.id, yardReports.revisionId))
+  .where(and(eq(yardReports.depotId, sql.placeholder('depotId')), eq(yardReports.serviceDate, sql.placeholder('serviceDate'))))
+  .orderBy(desc(yardReports.reportedAt))
+  .prepare(name);
+
 export async function tonight(db: Db, caller: AuthUser, depotId: string, now: Date): Promise<Tonight> {
   // The depot check and the plan's look-up at once: nothing is returned unless the depot is the caller's.
   const [depot, found] = await Promise.all([depotOf(db, caller, depotId), tonightsPlan(db, depotId, now)]);
   const base = { depot: { id: depot.id, name: depot.name, timezone: depot.timezone }, now: now.toISOString() };
   if (!found) return { ...base, plan: null, steps: [], acknowledged: false, reports: [] };
   const { plan, createdBy, publishedBy } = found;
-  const reporter = aliasedTable(users, 'reporter');
-  const revision = aliasedTable(plans, 'revision');
+  const night = { depotId, serviceDate: plan.serviceDate };
   const [documents, [ack], reports, confirmations] = await Promise.all([
     documentsOf(db, plan.id),
-    db.select().from(shiftAcknowledgements).where(and(
-      eq(shiftAcknowledgements.userId, caller.id), eq(shiftAcknowledgements.depotId, depotId), eq(shiftAcknowledgements.serviceDate, plan.serviceDate))),
-    db
-      .select({ r: yardReports, by: reporter.name, version: revision.version })
-      .from(yardReports)
-      .leftJoin(reporter, eq(reporter.id, yardReports.reportedBy))
-      .leftJoin(revision, eq(revision.id, yardReports.revisionId))
-      .where(and(eq(yardReports.depotId, depotId), eq(yardReports.serviceDate, plan.serviceDate)))
-      .orderBy(desc(yardReports.reportedAt)),
+    prepared(db, 'shift_acknowledgement', acknowledgementQuery).execute({ ...night, userId: caller.id }),
+    prepared(db, 'yard_reports_of_night', reportsQuery).execute(night),
     confirmationsOf(db, depotId, plan.serviceDate),
   ]);
   return {
