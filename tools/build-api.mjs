@@ -1,4 +1,4 @@
-// Bundles the API, the worker and the local fake mail server into dist/ with esbuild.
+// Bundles the API, the job worker, the worker threads' entry and the local fake mail server into dist/ with esbuild.
 // npm packages stay external: they are installed beside the bundle in node_modules.
 import { build } from 'esbuild';
 import { existsSync } from 'node:fs';
@@ -7,6 +7,8 @@ const entryPoints = {
   main: 'apps/api/src/main.ts',
   'fake-mail': 'tools/fake-mail.ts',
   'station-simulator': 'tools/station-simulator.ts',
+  // The worker threads' entry (apps/api/src/workers/pool.ts loads it from beside main.mjs).
+  'pool-worker': 'apps/api/src/workers/pool-worker.ts',
 };
 if (existsSync('apps/api/src/worker.ts')) entryPoints.worker = 'apps/api/src/worker.ts';
 

@@ -1,6 +1,7 @@
 import { DateTime } from 'luxon';
 import { eq, sql } from 'drizzle-orm';
-import { parseScenario, planScenario } from '@nightyard/scheduling';
+import { parseScenario } from '@nightyard/scheduling';
+import { runInPool } from '../../apps/api/src/workers/pool';
 import { buildNightScenario } from '../../apps/api/src/plans/night-scenario';
 import type { Db } from '../../apps/api/src/db/client';
 import {
@@ -138,7 +139,7 @@ async function publishDemoNights(db: Db, organisationId: string, depotId: string
     const { scenario, notes } = await buildNightScenario(db, caller, depotId, n.serviceDate, false);
     const parsed = parseScenario(scenario);
     if (!parsed.ok) throw new Error(`Demo scenario is not valid: ${JSON.stringify(parsed.problems)}`);
-    const result = await planScenario(parsed.scenario);
+    const result = await runInPool({ kind: 'plan', scenario: parsed.scenario });
     const underWay = n === night.inForce;
     const publishedAt = underWay ? new Date(Math.min(now.getTime(), Date.parse(n.start)) - 30 * 60_000) : now;
     const [row] = await db.insert(plans).values({

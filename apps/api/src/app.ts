@@ -20,6 +20,7 @@ import { yardRoutes } from './yard/yard-routes';
 import { outboxRoutes } from './dev/outbox-routes';
 import { testControlRouter } from './dev/test-control-routes';
 import { apiNotFound, errorHandler } from './http/error-handler';
+import { JSON_BODY_LIMIT_BYTES, METER_BODY_LIMIT_BYTES, RUNS_CSV_BODY_LIMIT_BYTES } from './http/limits';
 import { ApiRoutes, type RegisteredRoute } from './http/route';
 import { idempotencyStore } from './http/idempotency';
 import { newOpenApiRegistry, openApiDocument } from './openapi/document';
@@ -78,9 +79,11 @@ export function createApp(deps: AppDeps): BuiltApp {
     res.setHeader('X-Server-Time', String(deps.clock().getTime()));
     next();
   });
-  // Interval-data files arrive as JSON strings; everything else is small.
-  router.use('/depots/:depotId/meter-data', express.json({ limit: '25mb', strict: true }));
-  router.use(express.json({ limit: '1mb', strict: true }));
+  // Interval-data and runs files arrive as JSON strings; everything else is small. A larger body
+  // is refused before it is read (413 naming the limit).
+  router.use('/depots/:depotId/meter-data', express.json({ limit: METER_BODY_LIMIT_BYTES, strict: true }));
+  router.use('/depots/:depotId/service-days/:date/csv', express.json({ limit: RUNS_CSV_BODY_LIMIT_BYTES, strict: true }));
+  router.use(express.json({ limit: JSON_BODY_LIMIT_BYTES, strict: true }));
   router.use(cookieParser());
   const openapi = newOpenApiRegistry();
   const api = new ApiRoutes(router, openapi, bearerAuthenticator(deps.db, deps.config.JWT_SECRET, deps.clock), idempotencyStore(deps.db, deps.clock));

@@ -27,6 +27,9 @@ const configSchema = z.object({
   LOGIN_MAX_FAILURES_PER_ACCOUNT: z.coerce.number().int().min(1).default(5),
   LOGIN_MAX_FAILURES_PER_ADDRESS: z.coerce.number().int().min(1).default(20),
   LOGIN_WINDOW_MINUTES: z.coerce.number().int().min(1).default(15),
+  /** Worker threads for plans and re-plans (each solves one at a time), and for hashing and file parses. */
+  ENGINE_THREADS: z.coerce.number().int().min(1).max(16).default(1),
+  QUICK_THREADS: z.coerce.number().int().min(1).max(16).default(1),
 });
 
 export type Config = Omit<z.infer<typeof configSchema>, 'SEED_DEMO'> & { SEED_DEMO: 'if-empty' | 'never' | 'always' };

@@ -9,7 +9,7 @@ import { applyMigrations } from './db/migrate';
 import { smtpMailer } from './mail/mailer';
 import { startJobQueue } from './jobs/job-queue';
 import { recoverInterruptedPlans, runPlanJob } from './plans/plan-runner';
-import { loadSolver } from '@nightyard/scheduling';
+import { startWorkPool, stopWorkPool, warmWorkPool } from './workers/pool';
 import { CentralSystem } from './ocpp/central-system';
 import { adjustableClock, clockFromEnv } from './time/clock';
 import { isEmpty, seedDemo } from '../../../tools/demo/seed';
@@ -38,8 +38,13 @@ if (wantsDemoSeed(config) && (await isEmpty(db))) {
   log.info('demo data seeded');
 }
 
-// The engine's solver loads once and is warmed before the first plan is asked for.
-await loadSolver();
+// The engine, file parses and password hashing run in worker threads; the engine thread loads
+// and warms its solver before the first plan is asked for.
+startWorkPool({
+  engineThreads: config.ENGINE_THREADS, quickThreads: config.QUICK_THREADS,
+  onError: (err) => log.error({ err }, 'worker thread failed'),
+});
+await warmWorkPool();
 const jobs = await startJobQueue({
   databaseUrl: config.DATABASE_URL,
   log,
@@ -98,7 +103,7 @@ const shutdown = (signal: string) => {
   stopping = true;
   log.info({ signal }, 'shutting down');
   void central.close();
-  server.close(() => jobs.stop().then(() => pool.end()).then(() => process.exit(0)));
+  server.close(() => jobs.stop().then(() => Promise.all([pool.end(), stopWorkPool()])).then(() => process.exit(0)));
   setTimeout(() => process.exit(0), 5000).unref();
 };
 process.on('SIGTERM', () => shutdown('SIGTERM'));

@@ -4,7 +4,7 @@ import { installProcessGuards } from './process-guards';
 import { createDb, createPool } from './db/client';
 import { startJobQueue } from './jobs/job-queue';
 import { recoverInterruptedPlans, runPlanJob } from './plans/plan-runner';
-import { loadSolver } from '@nightyard/scheduling';
+import { startWorkPool, stopWorkPool, warmWorkPool } from './workers/pool';
 
 // `npm run worker`: an extra process that takes plan jobs from the queue in PostgreSQL. Run as
 // many as the machines allow; each job is worked once.
@@ -13,7 +13,11 @@ const log = createLogger({ level: config.LOG_LEVEL, service: 'nightyard-worker' 
 installProcessGuards(log);
 const pool = createPool(config.DATABASE_URL, log);
 const db = createDb(pool);
-await loadSolver();
+startWorkPool({
+  engineThreads: config.ENGINE_THREADS, quickThreads: config.QUICK_THREADS,
+  onError: (err) => log.error({ err }, 'worker thread failed'),
+});
+await warmWorkPool();
 const jobs = await startJobQueue({
   databaseUrl: config.DATABASE_URL,
   log,
@@ -27,7 +31,7 @@ const stop = async () => {
   if (stopping) return;
   stopping = true;
   await jobs.stop();
-  await pool.end();
+  await Promise.all([pool.end(), stopWorkPool()]);
   process.exit(0);
 };
 process.on('SIGTERM', stop);

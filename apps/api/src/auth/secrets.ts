@@ -1,10 +1,13 @@
 import { createHash, randomBytes } from 'node:crypto';
 import bcrypt from 'bcryptjs';
+import { runInPool } from '../workers/pool';
 
 const BCRYPT_ROUNDS = 10;
 
-export const hashPassword = (password: string) => bcrypt.hash(password, BCRYPT_ROUNDS);
-export const checkPassword = (password: string, hash: string) => bcrypt.compare(password, hash);
+// bcrypt takes tens of milliseconds of CPU on purpose: it runs in the worker pool, so twenty
+// sign-ins at once do not queue every other request behind them.
+export const hashPassword = (password: string) => runInPool({ kind: 'hash-password', password, rounds: BCRYPT_ROUNDS });
+export const checkPassword = (password: string, hash: string) => runInPool({ kind: 'check-password', password, hash });
 
 /** A hash that costs as much to compare as a real one, so unknown e-mails take as long as known. */
 export const DUMMY_HASH = bcrypt.hashSync('not-a-real-password-ever', BCRYPT_ROUNDS);

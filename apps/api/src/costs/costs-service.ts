@@ -1,13 +1,15 @@
-import { and, asc, eq, gte, lt, lte } from 'drizzle-orm';
+import { and, asc, eq, gte, lt, lte, sql } from 'drizzle-orm';
 import { DateTime } from 'luxon';
-import { planResultSchema, type MonthCosts, type PlanCosts, type PlanResult } from '@nightyard/contracts';
-import { computeBill, ratePlanPeriodAt, type IntervalDemand } from '@nightyard/scheduling';
+import { planResultSchema, type MonthCosts, type PlanCosts, type PlanResult, type RatePlanDefinition } from '@nightyard/contracts';
+import { computeBill, ratePlanPeriodAt, type Bill, type IntervalDemand } from '@nightyard/scheduling';
 import type { Db } from '../db/client';
 import { billingPeaks, buses, meterIntervals, plans, runs } from '../db/schema';
 import { notFound } from '../http/errors';
 import type { AuthUser } from '../auth/auth-user';
 import { depotOf } from '../depots/depot-access';
+import { prepared } from '../db/prepared';
 import { billingPeriodOf, ratePlanOn } from './billing-period';
+import { MonthCostsCache, monthInputsVersion } from './month-cache';
 
 const SLOT_MS = 15 * 60_000;
 const round2 = (v: number) => Math.round(v * 100) / 100;
@@ -82,14 +84,29 @@ export async function planCosts(db: Db, caller: AuthUser, planId: string): Promi
   };
 }
 
-/**
- * The billing period's costs: every 15-minute interval takes the metered value where one was
- * imported, else the published plan's site load, else the depot's building load alone.
- */
-export async function monthCosts(db: Db, caller: AuthUser, depotId: string, date: string, now: Date, mpg = DIESEL_BUS_MPG): Promise<MonthCosts> {
-  const depot = await depotOf(db, caller, depotId);
+type Depot = Awaited<ReturnType<typeof depotOf>>;
+type Period = ReturnType<typeof billingPeriodOf>;
+type SourcedInterval = IntervalDemand & { source: 'actual' | 'planned' | 'building' };
+type Peaks = MonthCosts['peaks'];
+
+/** What a billing period's costs are, whatever the time now: built from the rows the cache versions. */
+interface PeriodBase {
+  rate: { name: string; definition: RatePlanDefinition };
+  series: SourcedInterval[];
+  nights: MonthCosts['nights'];
+  plannedDates: Set<string>;
+  projected: Bill;
+  entered: (typeof billingPeaks.$inferSelect) | undefined;
+  /** Month to date and peaks so far, by how much of the period has passed (see `soFarKey`). */
+  soFar: Map<string, { monthToDate: Bill; peaks: Peaks }>;
+}
+
+/** One per process; exported so tests can compare against a fresh computation. */
+export const monthCostsCache = new MonthCostsCache<PeriodBase>();
+export const newMonthCostsCache = () => new MonthCostsCache<PeriodBase>();
+
+async function periodBase(db: Db, depot: Depot, period: Period): Promise<PeriodBase> {
   const zone = depot.timezone;
-  const period = billingPeriodOf(date, depot.billingStartDay, zone);
   const rate = await ratePlanOn(db, depot, period.start.toISODate()!);
   const fromMs = period.start.toMillis();
   const toMs = period.end.toMillis();
@@ -97,13 +114,13 @@ export async function monthCosts(db: Db, caller: AuthUser, depotId: string, date
   const published = await db
     .select()
     .from(plans)
-    .where(and(eq(plans.depotId, depotId), eq(plans.state, 'published'),
+    .where(and(eq(plans.depotId, depot.id), eq(plans.state, 'published'),
       gte(plans.serviceDate, period.start.minus({ days: 4 }).toISODate()!), lt(plans.serviceDate, period.end.toISODate()!)))
     .orderBy(asc(plans.serviceDate));
   const actual = await db
     .select()
     .from(meterIntervals)
-    .where(and(eq(meterIntervals.depotId, depotId), gte(meterIntervals.startsAt, period.start.toJSDate()), lt(meterIntervals.startsAt, period.end.toJSDate())));
+    .where(and(eq(meterIntervals.depotId, depot.id), gte(meterIntervals.startsAt, period.start.toJSDate()), lt(meterIntervals.startsAt, period.end.toJSDate())));
 
   const actualKwh = new Map<number, number>();
   for (const a of actual) {
@@ -144,7 +161,7 @@ export async function monthCosts(db: Db, caller: AuthUser, depotId: string, date
   }
 
   const profile = depot.otherLoadKw;
-  const series: (IntervalDemand & { source: 'actual' | 'planned' | 'building' })[] = [];
+  const series: SourcedInterval[] = [];
   for (let t = fromMs; t < toMs; t += SLOT_MS) {
     const a = actualKwh.get(t);
     if (a !== undefined) series.push({ startMs: t, kwh: a, source: 'actual' });
@@ -154,16 +171,27 @@ export async function monthCosts(db: Db, caller: AuthUser, depotId: string, date
       series.push({ startMs: t, kwh: (profile.length === 1 ? profile[0]! : profile[hour]!) * 0.25, source: 'building' });
     }
   }
-  const nowMs = now.getTime();
-  const toDate = series.filter((s) => s.startMs < nowMs);
-  const elapsedDays = Math.min(period.days, Math.max(0, Math.ceil((Math.min(nowMs, toMs) - fromMs) / 86_400_000)));
   const projected = computeBill(rate.definition, series, { zone, intervalMinutes: 15, days: period.days });
-  const monthToDate = computeBill(rate.definition, toDate, { zone, intervalMinutes: 15, days: elapsedDays });
+  const [entered] = await db.select().from(billingPeaks).where(eq(billingPeaks.depotId, depot.id));
+  return { rate, series, nights, plannedDates: new Set(published.map((p) => p.serviceDate)), projected, entered, soFar: new Map() };
+}
 
+/** The month to date and its peaks: they change only when another interval has passed or another day begun. */
+function soFarOf(base: PeriodBase, depot: Depot, period: Period, nowMs: number) {
+  const zone = depot.timezone;
+  const fromMs = period.start.toMillis();
+  const toMs = period.end.toMillis();
+  const toDate = base.series.filter((s) => s.startMs < nowMs);
+  const elapsedDays = Math.min(period.days, Math.max(0, Math.ceil((Math.min(nowMs, toMs) - fromMs) / 86_400_000)));
+  const key = `${toDate.length}:${elapsedDays}`;
+  const known = base.soFar.get(key);
+  if (known) return known;
+
+  const { rate, entered } = base;
+  const monthToDate = computeBill(rate.definition, toDate, { zone, intervalMinutes: 15, days: elapsedDays });
   // Peaks so far: the highest of what was metered or planned up to now, and what was entered by hand.
-  const [entered] = await db.select().from(billingPeaks).where(eq(billingPeaks.depotId, depotId));
   const enteredApplies = entered && entered.billingPeriodStart === period.start.toISODate();
-  let facility: MonthCosts['peaks']['facility'] = { kw: 0, at: null, source: 'planned' };
+  let facility: Peaks['facility'] = { kw: 0, at: null, source: 'planned' };
   for (const s of toDate) {
     if (s.source === 'building') continue;
     const kw = s.kwh * 4;
@@ -180,35 +208,80 @@ export async function monthCosts(db: Db, caller: AuthUser, depotId: string, date
   for (const [name, kw] of Object.entries(enteredApplies ? entered.periodsKw : {})) {
     if (kw > (periodPeaks.get(name)?.kw ?? 0)) periodPeaks.set(name, { kw, at: null });
   }
+  const value = { monthToDate, peaks: { facility, periods: [...periodPeaks].map(([name, p]) => ({ name, ...p })) } };
+  // Only the latest few moments are asked for again.
+  if (base.soFar.size >= 4) base.soFar.delete(base.soFar.keys().next().value!);
+  base.soFar.set(key, value);
+  return value;
+}
 
-  // School nights in the period so far and ahead that have no published plan.
-  const planned = new Set(published.map((p) => p.serviceDate));
-  const days = await db
-    .selectDistinct({ date: runs.serviceDate })
-    .from(runs)
-    .where(and(eq(runs.depotId, depotId), gte(runs.serviceDate, period.start.toISODate()!), lt(runs.serviceDate, period.end.toISODate()!)));
+const schoolDaysQuery = (db: Db, name: string) => db
+  .selectDistinct({ date: runs.serviceDate })
+  .from(runs)
+  .where(and(eq(runs.depotId, sql.placeholder('depotId')), gte(runs.serviceDate, sql.placeholder('from')), lt(runs.serviceDate, sql.placeholder('to'))))
+  .prepare(name);
+
+/** Miles as driven, else the energy used over the bus's kWh per mile. */
+const milesQuery = (db: Db, name: string) => db
+  .select({ miles: sql<number>`coalesce(sum(coalesce(${runs.miles}, coalesce(${runs.kwh}, 0) / ${buses.kwhPerMile})), 0)`.mapWith(Number) })
+  .from(runs)
+  .innerJoin(buses, eq(buses.id, runs.busId))
+  .where(and(eq(runs.depotId, sql.placeholder('depotId')), gte(runs.serviceDate, sql.placeholder('from')), lt(runs.serviceDate, sql.placeholder('to')),
+    lte(runs.serviceDate, sql.placeholder('today'))))
+  .prepare(name);
+
+/**
+ * The billing period's costs: every 15-minute interval takes the metered value where one was
+ * imported, else the published plan's site load, else the depot's building load alone. The bills
+ * are remembered per depot and period until one of the rows they come from changes (`cache`
+ * null computes afresh).
+ */
+export async function monthCosts(
+  db: Db, caller: AuthUser, depotId: string, date: string, now: Date, mpg = DIESEL_BUS_MPG,
+  cache: MonthCostsCache<PeriodBase> | null = monthCostsCache,
+): Promise<MonthCosts> {
+  const depot = await depotOf(db, caller, depotId);
+  const zone = depot.timezone;
+  const period = billingPeriodOf(date, depot.billingStartDay, zone);
+  const periodStart = period.start.toISODate()!;
+  const periodEnd = period.end.toISODate()!;
+
+  // Runs change without a version to compare, and the miles count up to today: both are read
+  // each time, beside the version.
   const today = DateTime.fromJSDate(now, { zone }).toISODate()!;
-  const milesRows = await db
-    .select({ miles: runs.miles, kwh: runs.kwh, kwhPerMile: buses.kwhPerMile })
-    .from(runs)
-    .innerJoin(buses, eq(buses.id, runs.busId))
-    .where(and(eq(runs.depotId, depotId), gte(runs.serviceDate, period.start.toISODate()!), lt(runs.serviceDate, period.end.toISODate()!),
-      lte(runs.serviceDate, today)));
-  const miles = milesRows.reduce((sum, r) => sum + (r.miles ?? (r.kwh ?? 0) / r.kwhPerMile), 0);
+  const [days, milesRows, version] = await Promise.all([
+    prepared(db, 'month_school_days', schoolDaysQuery).execute({ depotId, from: periodStart, to: periodEnd }),
+    prepared(db, 'month_miles_to_date', milesQuery).execute({ depotId, from: periodStart, to: periodEnd, today }),
+    cache
+      ? monthInputsVersion(db, depot, {
+        plansFrom: period.start.minus({ days: 4 }).toISODate()!, plansTo: periodEnd, periodStart,
+        fromAt: period.start.toJSDate(), toAt: period.end.toJSDate(),
+      })
+      : undefined,
+  ]);
+  const key = `${depot.id}|${periodStart}`;
+  let base = cache && version ? cache.get(key, version) : undefined;
+  if (!base) {
+    base = await periodBase(db, depot, period);
+    if (cache && version) cache.set(key, version, base);
+  }
+  const { monthToDate, peaks } = soFarOf(base, depot, period, now.getTime());
+
+  const miles = milesRows[0]?.miles ?? 0;
   const gallons = miles / mpg;
   return {
-    currency: rate.definition.currency,
-    period: { start: period.start.toISODate()!, end: period.end.toISODate()!, days: period.days },
-    ratePlanName: rate.name,
-    projected,
+    currency: base.rate.definition.currency,
+    period: { start: periodStart, end: periodEnd, days: period.days },
+    ratePlanName: base.rate.name,
+    projected: base.projected,
     monthToDate,
-    savingsVsUnmanaged: round2(nights.reduce((a, n) => a + n.baselineCost - n.planCost, 0)),
-    peaks: { facility, periods: [...periodPeaks].map(([name, p]) => ({ name, ...p })) },
-    nights,
+    savingsVsUnmanaged: round2(base.nights.reduce((a, n) => a + n.baselineCost - n.planCost, 0)),
+    peaks,
+    nights: base.nights,
     sources: {
-      actualIntervals: series.filter((s) => s.source === 'actual').length,
-      plannedNights: nights.length,
-      schoolNightsWithoutPlan: days.filter((d) => !planned.has(d.date)).length,
+      actualIntervals: base.series.filter((s) => s.source === 'actual').length,
+      plannedNights: base.nights.length,
+      schoolNightsWithoutPlan: days.filter((d) => !base.plannedDates.has(d.date)).length,
     },
     emissions: {
       miles: round2(miles), dieselMpg: mpg, dieselGallonsAvoided: round2(gallons), co2KgAvoided: round2(gallons * DIESEL_CO2_KG_PER_GALLON),

@@ -1,7 +1,6 @@
 import { and, eq, gte, lt } from 'drizzle-orm';
 import { DateTime } from 'luxon';
 import type { MeterImportResult } from '@nightyard/contracts';
-import { peaksOf } from '@nightyard/scheduling';
 import type { Db } from '../db/client';
 import { billingPeaks, meterImports, meterIntervals } from '../db/schema';
 import { lockTarget } from '../db/locks';
@@ -9,7 +8,8 @@ import { DomainError } from '../http/errors';
 import type { AuthUser } from '../auth/auth-user';
 import { depotOf } from '../depots/depot-access';
 import { billingPeriodOf, ratePlanOn } from './billing-period';
-import { checkIntervals, parseGreenButtonCsv, parseGreenButtonXml } from './green-button';
+import { MAX_METER_FILE_BYTES, refuseLargerThan } from '../http/limits';
+import { runInPool } from '../workers/pool';
 
 /**
  * Imports a billing period's utility interval data (Green Button XML or CSV), all or nothing:
@@ -18,6 +18,7 @@ import { checkIntervals, parseGreenButtonCsv, parseGreenButtonXml } from './gree
 export async function importMeterData(
   db: Db, caller: AuthUser, depotId: string, req: { fileName: string; content: string; billingPeriodStart: string }, now: Date,
 ): Promise<MeterImportResult> {
+  refuseLargerThan(req.content, MAX_METER_FILE_BYTES, 'The meter file', 'content');
   const depot = await depotOf(db, caller, depotId);
   const zone = depot.timezone;
   const period = billingPeriodOf(req.billingPeriodStart, depot.billingStartDay, zone);
@@ -27,11 +28,13 @@ export async function importMeterData(
     });
   }
   const rate = await ratePlanOn(db, depot, req.billingPeriodStart);
-  const file = req.content.trimStart().startsWith('<') ? parseGreenButtonXml(req.content) : parseGreenButtonCsv(req.content, zone);
-  const checked = checkIntervals(file, period.start.toMillis(), period.end.toMillis(), zone);
+  // Reading, checking and measuring a month of readings runs in a worker thread.
+  const { format, checked, measured } = await runInPool({
+    kind: 'meter-file', content: req.content, zone, periodStartMs: period.start.toMillis(), periodEndMs: period.end.toMillis(), rate: rate.definition,
+  });
+  const file = { format };
   const local = (ms: number) => DateTime.fromMillis(ms, { zone }).toFormat("yyyy-MM-dd'T'HH:mm");
   const gaps = checked.gaps.map((g) => ({ from: local(g.fromMs), to: local(g.toMs) }));
-  const measured = peaksOf(rate.definition, checked.intervals, { zone, intervalMinutes: checked.minutes });
 
   const result = await db.transaction(async (tx) => {
     // One import at a time per depot: concurrent imports of overlapping intervals would each

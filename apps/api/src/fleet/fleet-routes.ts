@@ -9,7 +9,9 @@ import { depots } from '../db/schema';
 import type { ApiRoutes } from '../http/route';
 import { depotOf } from '../depots/depot-access';
 import { createBus, listBuses, updateBus } from './buses-service';
-import { csvField, parseRunsCsv, runsCsvTemplate } from './runs-csv';
+import { MAX_RUNS_CSV_BYTES, refuseLargerThan } from '../http/limits';
+import { runInPool } from '../workers/pool';
+import { csvField, runsCsvTemplate } from './runs-csv';
 import { copyServiceDay, getServiceDay, replaceServiceDay } from './service-day-service';
 
 /** Supervisors keep the fleet and the runs; admins may too. Facilities and finance read. */
@@ -70,7 +72,8 @@ export function fleetRoutes(api: ApiRoutes, { db }: AppDeps) {
       body: csvUploadSchema.extend({ forecastLowF: forecastLowFSchema.nullable().default(null) }), response: serviceDaySchema,
       idempotent: true },
     async ({ user, params, body }) => {
-      const { runs, lines } = parseRunsCsv(body.csv, params.date);
+      refuseLargerThan(body.csv, MAX_RUNS_CSV_BYTES, 'The runs file', 'csv');
+      const { runs, lines } = await runInPool({ kind: 'runs-csv', text: body.csv, date: params.date });
       return replaceServiceDay(db, user, params.depotId, params.date, { forecastLowF: body.forecastLowF, runs }, 'uploaded',
         (i, field) => `line ${lines[i]}.${csvField(field)}`);
     },

@@ -4,6 +4,7 @@ import { isDatabaseUnavailable } from '../db/unavailable';
 import { scrubError } from '../logging';
 import { DomainError, STATUS_BY_CODE } from './errors';
 import { databaseErrorCode } from './database-errors';
+import { formatBytes } from './limits';
 
 /** Seconds a caller is asked to wait while the database is away. */
 const RETRY_AFTER_SECONDS = 5;
@@ -25,7 +26,9 @@ export const errorHandler: ErrorRequestHandler = (err, req, res, _next) => {
     return;
   }
   if (type === 'entity.too.large') {
-    res.status(413).json(body('payload_too_large', 'The request body is too large'));
+    const limit = (err as { limit?: number }).limit;
+    const message = limit ? `The request is larger than ${formatBytes(limit)}: send at most ${formatBytes(limit)}` : 'The request body is too large';
+    res.status(413).json(body('payload_too_large', message));
     return;
   }
   if (type === 'encoding.unsupported' || type === 'charset.unsupported') {

@@ -1,6 +1,7 @@
 import { DateTime } from 'luxon';
 import type { PlanResult } from '@nightyard/contracts';
-import { localToMillis, replan, type Plan, type Replan, type Scenario } from '@nightyard/scheduling';
+import { localToMillis, type Plan, type Replan, type Scenario } from '@nightyard/scheduling';
+import { runInPool } from '../workers/pool';
 import { DomainError } from '../http/errors';
 import { mergeSessions } from '../yard/yard-steps';
 
@@ -36,7 +37,8 @@ export function cutOffAt(scenario: Scenario, now: Date): string | null {
 
 /** Plans the rest of a night from its cut-off: the engine's re-plan, with the past merged back in. */
 export async function planFromCutOff(scenario: Scenario, at: PlanFrom, previous: PlanResult | null): Promise<PlanResult> {
-  const next = await replan(scenario, { now: at.from, plugged: at.plugged, ...(previous ? { previous: previous as unknown as Plan } : {}) });
+  // The engine runs in a worker thread, like every plan.
+  const next = await runInPool({ kind: 'replan', scenario, state: { now: at.from, plugged: at.plugged, ...(previous ? { previous: previous as unknown as Plan } : {}) } });
   return mergeReplan(previous, next);
 }
 

@@ -1,12 +1,13 @@
 import { and, eq, inArray, sql } from 'drizzle-orm';
 import type { Logger } from 'pino';
-import { parseScenario, planScenario } from '@nightyard/scheduling';
+import { parseScenario } from '@nightyard/scheduling';
 import type { Db } from '../db/client';
 import { plans } from '../db/schema';
 import { isDatabaseUnavailable } from '../db/unavailable';
 import { planResultSchema, type PlanResult } from '@nightyard/contracts';
 import { planFromCutOff } from './night-in-progress';
 import { withPlanLock } from './plan-lock';
+import { runInPool } from '../workers/pool';
 
 async function previousResult(db: Db, id: string | null): Promise<PlanResult | null> {
   if (!id) return null;
@@ -39,10 +40,11 @@ export async function runPlanJob(db: Db, log: Logger, planId: string): Promise<v
       const parsed = parseScenario(plan.scenario);
       if (!parsed.ok) throw new Error(`The stored scenario is not valid: ${parsed.problems.map((p) => `${p.path}: ${p.message}`).join('; ')}`);
       const from = plan.replanState?.from;
+      // The engine runs in a worker thread: the API keeps answering while it solves.
       const result = from
         ? await planFromCutOff(parsed.scenario, { from, previousPlanId: plan.replanState?.previousPlanId ?? null, plugged: plan.replanState?.plugged ?? {} },
           await previousResult(db, plan.replanState?.previousPlanId ?? null))
-        : await planScenario(parsed.scenario);
+        : await runInPool({ kind: 'plan', scenario: parsed.scenario });
       await db.update(plans).set({ status: 'done', stage: 'Done', result: result as unknown as Record<string, unknown> }).where(eq(plans.id, planId));
       log.info({ planId, ms: result.solveMs, status: result.status, attempt: plan.attempts }, 'plan generated');
     } catch (err) {

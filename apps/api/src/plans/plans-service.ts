@@ -3,10 +3,11 @@ import { DateTime } from 'luxon';
 import {
   planResultSchema, type PlanComparison, type PlanDetail, type PlanResult, type PlanSummary,
 } from '@nightyard/contracts';
-import { parseScenario, type ScenarioInput } from '@nightyard/scheduling';
+import { localToMillis, parseScenario, type Scenario, type ScenarioInput } from '@nightyard/scheduling';
 import type { Db } from '../db/client';
 import { depots, plans, users } from '../db/schema';
 import { DomainError, conflict, notFound } from '../http/errors';
+import { MAX_WHAT_IF_BUS_SLOTS, formatCount } from '../http/limits';
 import type { AuthUser } from '../auth/auth-user';
 import { depotOf } from '../depots/depot-access';
 import type { JobQueue } from '../jobs/job-queue';
@@ -23,8 +24,10 @@ const publisher = aliasedTable(users, 'publisher');
 
 const resultOf = (row: PlanRow): PlanResult | null => (row.result ? planResultSchema.parse(row.result) : null);
 
-function toSummary(row: PlanRow, createdBy: string | null, publishedBy: string | null): PlanSummary {
-  const result = resultOf(row);
+/** A plan row without its large documents (the engine's input and result). */
+export type PlanMeta = Omit<PlanRow, 'scenario' | 'result' | 'replanState'>;
+
+function toSummary(row: PlanMeta, createdBy: string | null, publishedBy: string | null, result: PlanResult | null): PlanSummary {
   return {
     id: row.id, depotId: row.depotId, serviceDate: row.serviceDate, version: row.version, kind: row.kind, state: row.state,
     status: row.status, stage: row.stage, error: row.error, includesMidday: row.includesMidday,
@@ -68,7 +71,7 @@ async function storeDraft(
     return created!;
   });
   await jobs.enqueuePlan(row.id);
-  return toSummary(row, caller.name, null);
+  return toSummary(row, caller.name, null, resultOf(row));
 }
 
 /**
@@ -99,6 +102,18 @@ export async function generatePlan(
   return storeDraft(db, jobs, caller, depotId, serviceDate, { kind: 'generated', includesMidday: includeMidday, scenario, notes, ...(planFrom ? { planFrom } : {}) });
 }
 
+/** The engine's work grows with buses x slots: a what-if larger than the limit is refused before it is queued. */
+function refuseLargeScenario(scenario: Scenario): void {
+  const horizonMs = (localToMillis(scenario.end, scenario.timezone) ?? 0) - (localToMillis(scenario.start, scenario.timezone) ?? 0);
+  const slots = Math.round(horizonMs / (scenario.slotMinutes * 60_000));
+  const size = scenario.buses.length * slots;
+  if (size > MAX_WHAT_IF_BUS_SLOTS) {
+    throw new DomainError('payload_too_large',
+      `The scenario has ${formatCount(scenario.buses.length)} buses x ${formatCount(slots)} slots = ${formatCount(size)}; at most ${formatCount(MAX_WHAT_IF_BUS_SLOTS)} bus-slots are planned at once: use longer slots, a shorter horizon or fewer buses`,
+      { buses: `Buses x slots at most ${formatCount(MAX_WHAT_IF_BUS_SLOTS)}` });
+  }
+}
+
 /** A what-if draft from an uploaded scenario file; its night is the day its horizon starts. */
 export async function createWhatIf(db: Db, jobs: JobQueue, caller: AuthUser, depotId: string, file: unknown): Promise<PlanSummary> {
   const depot = await depotOf(db, caller, depotId);
@@ -107,6 +122,7 @@ export async function createWhatIf(db: Db, jobs: JobQueue, caller: AuthUser, dep
     throw new DomainError('validation_failed', `The scenario file has ${parsed.problems.length} problem(s); nothing was saved`,
       Object.fromEntries(parsed.problems.map((p) => [p.path, p.message])));
   }
+  refuseLargeScenario(parsed.scenario);
   if (parsed.scenario.timezone !== depot.timezone) {
     throw new DomainError('validation_failed', `The file is for ${parsed.scenario.timezone}; ${depot.name} is in ${depot.timezone}`, { timezone: `Must be ${depot.timezone}` });
   }
@@ -126,20 +142,27 @@ export async function listPlans(db: Db, caller: AuthUser, depotId: string, servi
     .where(and(eq(plans.depotId, depotId), serviceDate ? eq(plans.serviceDate, serviceDate) : undefined))
     .orderBy(desc(plans.serviceDate), desc(plans.version))
     .limit(200);
-  return rows.map((r) => toSummary(r.plan, r.createdBy, r.publishedBy));
+  return rows.map((r) => toSummary(r.plan, r.createdBy, r.publishedBy, resultOf(r.plan)));
 }
 
 export async function getPlan(db: Db, caller: AuthUser, id: string): Promise<PlanDetail> {
   const { plan, createdBy, publishedBy } = await loadPlan(db, caller, id);
-  const scenario = plan.scenario as unknown as ScenarioInput;
+  return planDetailOf(plan, createdBy, publishedBy, resultOf(plan), plan.scenario as unknown as ScenarioInput, plan.replanState?.from ?? null);
+}
+
+/** A plan with its result, from a row and its documents already read (and the result parsed). */
+export function planDetailOf(
+  plan: PlanMeta, createdBy: string | null, publishedBy: string | null, result: PlanResult | null, scenario: ScenarioInput,
+  plannedFrom: string | null = null,
+): PlanDetail {
   return {
-    ...toSummary(plan, createdBy, publishedBy),
+    ...toSummary(plan, createdBy, publishedBy, result),
     timezone: scenario.timezone,
     currency: scenario.tariff.currency ?? 'USD',
     notes: plan.notes,
-    result: resultOf(plan),
+    result,
     busCapacityKwh: Object.fromEntries(scenario.buses.map((b) => [b.id, b.usableKwh])),
-    plannedFrom: plan.replanState?.from ?? null,
+    plannedFrom,
   };
 }
 
@@ -184,7 +207,7 @@ export async function publishPlan(
   });
   await notifyPublished(db, mailer, caller, published, link).catch(() => undefined);
   const { plan, createdBy, publishedBy } = await loadPlan(db, caller, published.id);
-  return toSummary(plan, createdBy, publishedBy);
+  return toSummary(plan, createdBy, publishedBy, resultOf(plan));
 }
 
 async function notifyPublished(db: Db, mailer: Mailer, caller: AuthUser, plan: PlanRow, link: (path: string) => string) {

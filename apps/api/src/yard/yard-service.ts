@@ -1,10 +1,11 @@
-import { aliasedTable, and, desc, eq, sql } from 'drizzle-orm';
+import { aliasedTable, and, desc, eq, getTableColumns, inArray, sql } from 'drizzle-orm';
 import { DateTime } from 'luxon';
 import {
   planResultSchema, type PlanResult, type Tonight, type YardReport, type YardReportResult,
 } from '@nightyard/contracts';
-import { parseScenario, replan, ReplanStateError, type Plan } from '@nightyard/scheduling';
+import { parseScenario, ReplanStateError, type Plan, type ScenarioInput } from '@nightyard/scheduling';
 import type { Db } from '../db/client';
+import { prepared } from '../db/prepared';
 import { chargers, depots, plans, shiftAcknowledgements, users, yardConfirmations, yardReports } from '../db/schema';
 import { DomainError, conflict, notFound } from '../http/errors';
 import type { AuthUser } from '../auth/auth-user';
@@ -12,7 +13,8 @@ import { depotOf } from '../depots/depot-access';
 import type { Mailer } from '../mail/mailer';
 import { planRevisedMail } from '../mail/templates';
 import { nightStaff } from '../plans/night-staff';
-import { comparePlans, getPlan } from '../plans/plans-service';
+import { comparePlans, planDetailOf } from '../plans/plans-service';
+import { runInPool } from '../workers/pool';
 import { yardSteps } from './yard-steps';
 import { mergeReplan } from '../plans/night-in-progress';
 import { nightOfDepot } from '../night/depot-night';
@@ -23,20 +25,52 @@ const LOCAL = "yyyy-MM-dd'T'HH:mm";
 
 const horizonOf = (r: PlanResult) => ({ from: Date.parse(r.slots[0]!.start), to: Date.parse(r.slots.at(-1)!.start) + 15 * 60_000 });
 
-/** The published plan of tonight (the night in force, else the next one), as the night model says. */
-async function tonightsPlan(db: Db, depot: { id: string; timezone: string }, now: Date): Promise<PlanRow | null> {
+const creator = aliasedTable(users, 'creator');
+const publisher = aliasedTable(users, 'publisher');
+const { scenario: _scenario, result: _result, replanState: _replanState, ...planMeta } = getTableColumns(plans);
+
+const publishedPlanQuery = (db: Db, name: string) => db
+  .select({ plan: planMeta, createdBy: creator.name, publishedBy: publisher.name })
+  .from(plans)
+  .leftJoin(creator, eq(creator.id, plans.createdBy))
+  .leftJoin(publisher, eq(publisher.id, plans.publishedBy))
+  .where(and(eq(plans.depotId, sql.placeholder('depotId')), eq(plans.serviceDate, sql.placeholder('serviceDate')), eq(plans.state, 'published')))
+  .prepare(name);
+
+/**
+ * The published plan of tonight (the night in force, else the next one), as the night model says.
+ * The row is read without its documents (they are read once the caller is known to own the depot).
+ */
+async function tonightsPlan(db: Db, depotId: string, now: Date) {
+  const [depot] = await db.select({ id: depots.id, timezone: depots.timezone }).from(depots).where(eq(depots.id, depotId));
+  if (!depot) return null;
   const { tonight } = await nightOfDepot(db, depot, now);
-  const [plan] = await db.select().from(plans).where(and(
-    eq(plans.depotId, depot.id), eq(plans.serviceDate, tonight.serviceDate), eq(plans.state, 'published')));
-  return plan?.result ? plan : null;
+  const [row] = await prepared(db, 'tonight_published_plan', publishedPlanQuery).execute({ depotId, serviceDate: tonight.serviceDate });
+  return row ?? null;
 }
 
+/** A published plan's result and scenario never change (a revision is a new plan): kept parsed, by plan id. */
+const publishedDocuments = new Map<string, { result: PlanResult; scenario: ScenarioInput }>();
+
+async function documentsOf(db: Db, planId: string) {
+  const known = publishedDocuments.get(planId);
+  if (known) return known;
+  const [row] = await db.select({ result: plans.result, scenario: plans.scenario }).from(plans).where(eq(plans.id, planId));
+  const documents = { result: planResultSchema.parse(row!.result), scenario: row!.scenario as unknown as ScenarioInput };
+  publishedDocuments.set(planId, documents);
+  if (publishedDocuments.size > 50) publishedDocuments.delete(publishedDocuments.keys().next().value!);
+  return documents;
+}
+
+const confirmationsQuery = (db: Db, name: string) => db
+  .select({ key: yardConfirmations.stepKey, at: yardConfirmations.confirmedAt, by: confirmer.name })
+  .from(yardConfirmations)
+  .leftJoin(confirmer, eq(confirmer.id, yardConfirmations.confirmedBy))
+  .where(and(eq(yardConfirmations.depotId, sql.placeholder('depotId')), eq(yardConfirmations.serviceDate, sql.placeholder('serviceDate'))))
+  .prepare(name);
+
 async function confirmationsOf(db: Db, depotId: string, serviceDate: string) {
-  const rows = await db
-    .select({ key: yardConfirmations.stepKey, at: yardConfirmations.confirmedAt, by: confirmer.name })
-    .from(yardConfirmations)
-    .leftJoin(confirmer, eq(confirmer.id, yardConfirmations.confirmedBy))
-    .where(and(eq(yardConfirmations.depotId, depotId), eq(yardConfirmations.serviceDate, serviceDate)));
+  const rows = await prepared(db, 'yard_confirmations_of_night', confirmationsQuery).execute({ depotId, serviceDate });
   return new Map(rows.map((r) => [r.key, { at: r.at, by: r.by }]));
 }
 
@@ -52,27 +86,41 @@ export async function confirmedPlugged(db: Db, depotId: string, serviceDate: str
   return plugged;
 }
 
+const acknowledgementQuery = (db: Db, name: string) => db
+  .select({ userId: shiftAcknowledgements.userId })
+  .from(shiftAcknowledgements)
+  .where(and(eq(shiftAcknowledgements.userId, sql.placeholder('userId')), eq(shiftAcknowledgements.depotId, sql.placeholder('depotId')),
+    eq(shiftAcknowledgements.serviceDate, sql.placeholder('serviceDate'))))
+  .prepare(name);
+
+const reporter = aliasedTable(users, 'reporter');
+const revisionPlan = aliasedTable(plans, 'revision');
+const reportsQuery = (db: Db, name: string) => db
+  .select({ r: yardReports, by: reporter.name, version: revisionPlan.version })
+  .from(yardReports)
+  .leftJoin(reporter, eq(reporter.id, yardReports.reportedBy))
+  .leftJoin(revisionPlan, eq(revisionPlan.id, yardReports.revisionId))
+  .where(and(eq(yardReports.depotId, sql.placeholder('depotId')), eq(yardReports.serviceDate, sql.placeholder('serviceDate'))))
+  .orderBy(desc(yardReports.reportedAt))
+  .prepare(name);
+
 export async function tonight(db: Db, caller: AuthUser, depotId: string, now: Date): Promise<Tonight> {
-  const depot = await depotOf(db, caller, depotId);
-  const plan = await tonightsPlan(db, depot, now);
+  // The depot check and the plan's look-up at once: nothing is returned unless the depot is the caller's.
+  const [depot, found] = await Promise.all([depotOf(db, caller, depotId), tonightsPlan(db, depotId, now)]);
   const base = { depot: { id: depot.id, name: depot.name, timezone: depot.timezone }, now: now.toISOString() };
-  if (!plan) return { ...base, plan: null, steps: [], acknowledged: false, reports: [] };
-  const result = planResultSchema.parse(plan.result);
-  const [ack] = await db.select().from(shiftAcknowledgements).where(and(
-    eq(shiftAcknowledgements.userId, caller.id), eq(shiftAcknowledgements.depotId, depotId), eq(shiftAcknowledgements.serviceDate, plan.serviceDate)));
-  const reporter = aliasedTable(users, 'reporter');
-  const revision = aliasedTable(plans, 'revision');
-  const reports = await db
-    .select({ r: yardReports, by: reporter.name, version: revision.version })
-    .from(yardReports)
-    .leftJoin(reporter, eq(reporter.id, yardReports.reportedBy))
-    .leftJoin(revision, eq(revision.id, yardReports.revisionId))
-    .where(and(eq(yardReports.depotId, depotId), eq(yardReports.serviceDate, plan.serviceDate)))
-    .orderBy(desc(yardReports.reportedAt));
+  if (!found) return { ...base, plan: null, steps: [], acknowledged: false, reports: [] };
+  const { plan, createdBy, publishedBy } = found;
+  const night = { depotId, serviceDate: plan.serviceDate };
+  const [documents, [ack], reports, confirmations] = await Promise.all([
+    documentsOf(db, plan.id),
+    prepared(db, 'shift_acknowledgement', acknowledgementQuery).execute({ ...night, userId: caller.id }),
+    prepared(db, 'yard_reports_of_night', reportsQuery).execute(night),
+    confirmationsOf(db, depotId, plan.serviceDate),
+  ]);
   return {
     ...base,
-    plan: await getPlan(db, caller, plan.id),
-    steps: yardSteps(result, now, await confirmationsOf(db, depotId, plan.serviceDate)),
+    plan: planDetailOf(plan, createdBy, publishedBy, documents.result, documents.scenario),
+    steps: yardSteps(documents.result, now, confirmations),
     acknowledged: Boolean(ack),
     reports: reports.map(({ r, by, version }) => ({
       kind: r.kind, bus: r.bus, charger: r.charger, reason: r.reason, reportedAt: r.reportedAt.toISOString(), reportedBy: by, revisionVersion: version,
@@ -106,9 +154,10 @@ export async function confirmStep(db: Db, caller: AuthUser, planId: string, key:
 }
 
 export async function acknowledgeShift(db: Db, caller: AuthUser, depotId: string, now: Date): Promise<void> {
-  const plan = await tonightsPlan(db, await depotOf(db, caller, depotId), now);
-  if (!plan) throw conflict('There is no plan for tonight to start a shift on');
-  await db.insert(shiftAcknowledgements).values({ userId: caller.id, depotId, serviceDate: plan.serviceDate }).onConflictDoNothing();
+  await depotOf(db, caller, depotId);
+  const found = await tonightsPlan(db, depotId, now);
+  if (!found) throw conflict('There is no plan for tonight to start a shift on');
+  await db.insert(shiftAcknowledgements).values({ userId: caller.id, depotId, serviceDate: found.plan.serviceDate }).onConflictDoNothing();
 }
 
 /**
@@ -180,10 +229,10 @@ export async function reportProblem(
   const t0 = performance.now();
   let next;
   try {
-    next = await replan(kept, {
+    next = await runInPool({ kind: 'replan', scenario: kept, state: {
       now: cutoff.toFormat(LOCAL), energyKwh, plugged, outOfService: state.outOfService,
       lateArrivals: Object.fromEntries(Object.entries(state.lateArrivals).filter(([b]) => !absent.has(b))), previous: previousPlan,
-    });
+    } });
   } catch (err) {
     if (err instanceof ReplanStateError) {
       throw new DomainError('validation_failed', 'The report does not fit tonight\'s plan', Object.fromEntries(err.problems.map((p) => [p.path, p.message])));
