@@ -6,14 +6,16 @@ import { depots, ratePlans, users } from '../db/schema';
 import { createDepot } from '../testing/depot-fixture';
 import { addBuses, dayRuns } from '../testing/fleet-fixture';
 import { publishedPlan } from '../testing/plan-fixture';
-import { createOrganisation, createTestApp, type TestUser } from '../testing/test-app';
+import { createOrganisation, createTestApp, signInAgain, type TestUser } from '../testing/test-app';
 import { fixedClock } from '../time/clock';
 import { monthCosts, monthCostsCache, newMonthCostsCache } from './costs-service';
 
 // The costs month is remembered per depot and billing period; these tests prove the remembered
 // answer is the one a fresh computation gives, and that it changes as soon as an input does.
 const NOW = new Date('2026-12-04T18:00:00Z');
-const app = createTestApp({ clock: fixedClock(NOW) });
+// The night of Dec 2 is planned and published that afternoon; the month is then read on Dec 4.
+let clock = fixedClock('2026-12-02T12:00:00-06:00');
+const app = createTestApp({ clock: () => clock() });
 const fixture = (name: string) => readFileSync(new URL(`./fixtures/${name}`, import.meta.url), 'utf8');
 const as = (u: TestUser) => ({ Authorization: `Bearer ${u.token}` });
 const NUMBERS = ['31', '32', '33'];
@@ -36,6 +38,8 @@ beforeAll(async () => {
     await app.request().put(`/api/depots/${depotId}/service-days/${date}`).set(as(sup)).send({ forecastLowF: 30, runs: dayRuns(date, NUMBERS, () => 35) }).expect(200);
   }
   await publishedPlan(app, sup, depotId, '2026-12-02');
+  clock = fixedClock(NOW);
+  await signInAgain(app, fin, sup);
 });
 
 const month = async () => (await app.request().get(`/api/depots/${depotId}/costs/month`).query({ date: '2026-12-10' }).set(as(fin)).expect(200)).body;
@@ -77,7 +81,12 @@ describe('the costs month cache', () => {
 
   it('changes as soon as another night is published', async () => {
     const before = await month();
+    // Published on the afternoon of Dec 3, before its night began; read again on Dec 4.
+    clock = fixedClock('2026-12-03T12:00:00-06:00');
+    await signInAgain(app, sup);
     const planId = await publishedPlan(app, sup, depotId, '2026-12-03');
+    clock = fixedClock(NOW);
+    await signInAgain(app, fin, sup);
     const after = await month();
     expect(after.nights.map((n: { planId: string }) => n.planId)).toContain(planId);
     expect(after.nights).toHaveLength(before.nights.length + 1);
