@@ -7,9 +7,8 @@ import { installProcessGuards } from './process-guards';
 import { createDb, createPool } from './db/client';
 import { applyMigrations } from './db/migrate';
 import { smtpMailer } from './mail/mailer';
-import { startJobQueue } from './jobs/job-queue';
-import { recoverInterruptedPlans, runPlanJob } from './plans/plan-runner';
-import { startWorkPool, stopWorkPool, warmWorkPool } from './workers/pool';
+import { startPlanWork } from './plans/plan-work';
+import { stopWorkPool } from './workers/pool';
 import { CentralSystem } from './ocpp/central-system';
 import { adjustableClock, clockFromEnv } from './time/clock';
 import { isEmpty, seedDemo } from '../../../tools/demo/seed';
@@ -38,19 +37,8 @@ if (wantsDemoSeed(config) && (await isEmpty(db))) {
   log.info('demo data seeded');
 }
 
-// The engine, file parses and password hashing run in worker threads; the engine thread loads
-// and warms its solver before the first plan is asked for.
-startWorkPool({
-  engineThreads: config.ENGINE_THREADS, quickThreads: config.QUICK_THREADS,
-  onError: (err) => log.error({ err }, 'worker thread failed'),
-});
-await warmWorkPool();
-const jobs = await startJobQueue({
-  databaseUrl: config.DATABASE_URL,
-  log,
-  work: (id) => runPlanJob(db, log, id),
-  recover: (queue) => recoverInterruptedPlans(db, log, queue),
-});
+// The engine, file parses and password hashing run in worker threads.
+const jobs = await startPlanWork(config, db, log);
 
 const central = new CentralSystem(db, log, clock);
 

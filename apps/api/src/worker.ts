@@ -2,9 +2,8 @@ import { loadConfig } from './config';
 import { createLogger } from './logging';
 import { installProcessGuards } from './process-guards';
 import { createDb, createPool } from './db/client';
-import { startJobQueue } from './jobs/job-queue';
-import { recoverInterruptedPlans, runPlanJob } from './plans/plan-runner';
-import { startWorkPool, stopWorkPool, warmWorkPool } from './workers/pool';
+import { startPlanWork } from './plans/plan-work';
+import { stopWorkPool } from './workers/pool';
 
 // `npm run worker`: an extra process that takes plan jobs from the queue in PostgreSQL. Run as
 // many as the machines allow; each job is worked once.
@@ -13,17 +12,7 @@ const log = createLogger({ level: config.LOG_LEVEL, service: 'nightyard-worker' 
 installProcessGuards(log);
 const pool = createPool(config.DATABASE_URL, log);
 const db = createDb(pool);
-startWorkPool({
-  engineThreads: config.ENGINE_THREADS, quickThreads: config.QUICK_THREADS,
-  onError: (err) => log.error({ err }, 'worker thread failed'),
-});
-await warmWorkPool();
-const jobs = await startJobQueue({
-  databaseUrl: config.DATABASE_URL,
-  log,
-  work: (id) => runPlanJob(db, log, id),
-  recover: (queue) => recoverInterruptedPlans(db, log, queue),
-});
+const jobs = await startPlanWork(config, db, log);
 log.info('worker waiting for plan jobs');
 
 let stopping = false;

@@ -17,4 +17,7 @@ export { computeBill, nightMarginalCost, peaksOf, type Bill, type BillLine, type
  *  late buses): `replan(scenario, state, options?)` plans the rest of the horizon. */
 export { replan, deriveScenario, ReplanStateError, type ReplanState, type Replan } from './replan.js';
 export { sweepAssignment, type SweepInput } from './sweep.js';
-export { serviceNights, nightAt, serviceDayAt, calendarNight, type ServiceNight, type RunTimes, type NightAt } from './night/service-night.js';
+export {
+  serviceNights, serviceDayTimes, nightsOfDays, nightAt, nightAtDays, serviceDayAt, calendarNight,
+  type ServiceNight, type RunTimes, type ServiceDayTimes, type NightAt,
+} from './night/service-night.js';

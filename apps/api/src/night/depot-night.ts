@@ -1,9 +1,9 @@
-import { and, between, eq } from 'drizzle-orm';
+import { sql } from 'drizzle-orm';
 import { DateTime } from 'luxon';
 import type { DepotNight } from '@nightyard/contracts';
-import { nightAt } from '@nightyard/scheduling';
+import { nightAtDays } from '@nightyard/scheduling';
 import type { Db } from '../db/client';
-import { buses, runs } from '../db/schema';
+import { runs } from '../db/schema';
 import type { AuthUser } from '../auth/auth-user';
 import { depotOf } from '../depots/depot-access';
 
@@ -16,15 +16,21 @@ const WINDOW_DAYS = 21;
  */
 export async function nightOfDepot(db: Db, depot: { id: string; timezone: string }, now: Date): Promise<DepotNight> {
   const today = DateTime.fromJSDate(now, { zone: depot.timezone }).startOf('day');
-  const rows = await db
-    .select({ serviceDate: runs.serviceDate, bus: buses.number, pullOut: runs.pullOut, pullIn: runs.pullIn })
-    .from(runs)
-    .innerJoin(buses, eq(buses.id, runs.busId))
-    .where(and(
-      eq(runs.depotId, depot.id),
-      between(runs.serviceDate, today.minus({ days: WINDOW_DAYS }).toISODate()!, today.plus({ days: WINDOW_DAYS }).toISODate()!),
-    ));
-  const night = nightAt(rows, depot.timezone, now);
+  // Summed up in the database: one row per service day (first pull-in, last bus's first pull-out).
+  const { rows } = await db.execute<{ service_date: string; first_in: Date; last_first_out: Date }>(sql`
+    select service_date::text as service_date, min(first_in) as first_in, max(first_out) as last_first_out
+    from (
+      select ${runs.serviceDate} as service_date, min(${runs.pullIn}) as first_in, min(${runs.pullOut}) as first_out
+      from ${runs}
+      where ${runs.depotId} = ${depot.id}
+        and ${runs.serviceDate} between ${today.minus({ days: WINDOW_DAYS }).toISODate()!} and ${today.plus({ days: WINDOW_DAYS }).toISODate()!}
+      group by ${runs.serviceDate}, ${runs.busId}
+    ) per_bus
+    group by service_date`);
+  const night = nightAtDays(
+    rows.map((r) => ({ serviceDate: r.service_date, firstPullIn: new Date(r.first_in), lastFirstPullOut: new Date(r.last_first_out) })),
+    depot.timezone, now,
+  );
   return { now: DateTime.fromJSDate(now, { zone: depot.timezone }).toISO()!, timezone: depot.timezone, ...night };
 }
 

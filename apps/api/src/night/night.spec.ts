@@ -5,7 +5,7 @@ import type { PlanResult } from '@nightyard/contracts';
 import { plans } from '../db/schema';
 import { createDepot } from '../testing/depot-fixture';
 import { addBuses, dayRuns } from '../testing/fleet-fixture';
-import { generatedPlan, publishedPlan } from '../testing/plan-fixture';
+import { deliveredBefore, generatedPlan, publishedPlan } from '../testing/plan-fixture';
 import { createOrganisation, createTestApp, signInAgain, type TestUser } from '../testing/test-app';
 
 // Each test stands the API's clock at a fixed instant of the depot's week, never at the machine's time.
@@ -107,15 +107,8 @@ describe('a plan for a night already under way', () => {
     const before = first!.result as unknown as PlanResult;
     const after = second!.result as unknown as PlanResult;
     const cut = at('2026-12-09T00:15').getTime();
-    const deliveredBefore = (r: PlanResult) => {
-      const out: Record<string, number> = {};
-      for (const s of r.sessions) s.kw.forEach((kw, k) => {
-        if (Date.parse(s.start) + k * 900_000 < cut) out[s.bus] = (out[s.bus] ?? 0) + kw * 0.25;
-      });
-      return out;
-    };
-    const a = deliveredBefore(before);
-    const b = deliveredBefore(after);
+    const a = deliveredBefore(before, cut);
+    const b = deliveredBefore(after, cut);
     for (const bus of NUMBERS) expect(b[bus] ?? 0).toBeCloseTo(a[bus] ?? 0, 6);
     // Every session either comes from the published plan before the cut-off or starts after it.
     const kept = new Set(before.sessions.map((s) => `${s.bus} ${s.charger} ${Date.parse(s.start)}`));

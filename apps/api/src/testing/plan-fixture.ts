@@ -21,3 +21,14 @@ export async function publishedPlan(app: App, user: TestUser, depotId: string, s
     .send({ expectedPublishedId: null }).expect(200);
   return plan.id;
 }
+
+/** Energy (kWh) each bus takes from the plan's sessions before `cut` (ms). */
+export function deliveredBefore(result: { sessions: { bus: string; start: string; kw: number[] }[] }, cut: number): Record<string, number> {
+  const out: Record<string, number> = {};
+  for (const s of result.sessions) {
+    s.kw.forEach((kw, k) => {
+      if (Date.parse(s.start) + k * 900_000 < cut) out[s.bus] = (out[s.bus] ?? 0) + kw * 0.25;
+    });
+  }
+  return out;
+}

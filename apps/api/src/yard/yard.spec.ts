@@ -6,7 +6,7 @@ import { plans } from '../db/schema';
 import { createDepot } from '../testing/depot-fixture';
 import { addBuses, dayRuns } from '../testing/fleet-fixture';
 import { mailFor } from '../testing/mail';
-import { publishedPlan } from '../testing/plan-fixture';
+import { deliveredBefore, publishedPlan } from '../testing/plan-fixture';
 import { createOrganisation, createTestApp, signInAgain, type TestUser } from '../testing/test-app';
 
 const ZONE = 'America/Chicago';
@@ -89,15 +89,8 @@ describe('yard: reports re-plan the rest of the night', () => {
       expect(Date.parse(s.end)).toBeLessThanOrEqual(cut);
     }
     // Energy delivered before 23:00 is the previous plan's, slot by slot.
-    const deliveredBefore = (r: PlanResult) => {
-      const out: Record<string, number> = {};
-      for (const s of r.sessions) s.kw.forEach((kw, k) => {
-        if (Date.parse(s.start) + k * 900_000 < cut) out[s.bus] = (out[s.bus] ?? 0) + kw * 0.25;
-      });
-      return out;
-    };
-    const a = deliveredBefore(prev);
-    const b = deliveredBefore(next);
+    const a = deliveredBefore(prev, cut);
+    const b = deliveredBefore(next, cut);
     for (const bus of Object.keys(a)) expect(b[bus] ?? 0).toBeCloseTo(a[bus]!, 6);
     // The old version is superseded; the charger is out of service in the Depot.
     const depot = await app.request().get(`/api/depots/${depotId}`).set(as(yard)).expect(200);

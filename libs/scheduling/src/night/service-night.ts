@@ -29,6 +29,13 @@ export interface RunTimes {
   pullIn: Date | string;
 }
 
+/** What the model needs of a service day: its first pull-in and its last bus's first pull-out. */
+export interface ServiceDayTimes {
+  serviceDate: string;
+  firstPullIn: Date | string;
+  lastFirstPullOut: Date | string;
+}
+
 export interface NightAt {
   /** The night under way at the instant, if any. */
   inForce: ServiceNight | null;
@@ -51,11 +58,8 @@ export function calendarNight(date: string, zone: string): ServiceNight {
   return { serviceDate: date, nextServiceDate: end.toISODate()!, start: start.toISO({ suppressMilliseconds: true })!, end: end.toISO({ suppressMilliseconds: true })!, fromRuns: false };
 }
 
-/**
- * The nights the runs describe, in order: one per service day that has a next service day. The
- * last service day's night is open-ended: it ends at noon after it, marked as an estimate.
- */
-export function serviceNights(runs: readonly RunTimes[], zone: string): ServiceNight[] {
+/** Each service day's first pull-in and last first pull-out, from its runs. */
+export function serviceDayTimes(runs: readonly RunTimes[]): ServiceDayTimes[] {
   const days = new Map<string, { firstIn: number; firstOut: Map<string, number> }>();
   for (const r of runs) {
     const day = days.get(r.serviceDate) ?? { firstIn: Infinity, firstOut: new Map<string, number>() };
@@ -63,17 +67,32 @@ export function serviceNights(runs: readonly RunTimes[], zone: string): ServiceN
     day.firstOut.set(r.bus, Math.min(day.firstOut.get(r.bus) ?? Infinity, ms(r.pullOut)));
     days.set(r.serviceDate, day);
   }
-  const dates = [...days.keys()].sort();
-  return dates.map((date, k) => {
-    const day = days.get(date)!;
-    const nextDate = dates[k + 1];
-    if (!nextDate) {
-      const cal = calendarNight(date, zone);
-      return { ...cal, start: iso(day.firstIn, zone), end: iso(Math.max(Date.parse(cal.end), day.firstIn + 3_600_000), zone) };
+  return [...days].map(([serviceDate, d]) => ({
+    serviceDate, firstPullIn: new Date(d.firstIn), lastFirstPullOut: new Date(Math.max(...d.firstOut.values())),
+  }));
+}
+
+/**
+ * The nights the service days describe, in order: one per service day that has a next service
+ * day. The last service day's night is open-ended: it ends at noon after it, marked as an estimate.
+ */
+export function nightsOfDays(serviceDays: readonly ServiceDayTimes[], zone: string): ServiceNight[] {
+  const days = [...serviceDays].sort((a, b) => a.serviceDate.localeCompare(b.serviceDate));
+  return days.map((day, k) => {
+    const firstIn = ms(day.firstPullIn);
+    const next = days[k + 1];
+    if (!next) {
+      const cal = calendarNight(day.serviceDate, zone);
+      return { ...cal, start: iso(firstIn, zone), end: iso(Math.max(Date.parse(cal.end), firstIn + 3_600_000), zone) };
     }
-    const lastOut = Math.max(...days.get(nextDate)!.firstOut.values());
-    return { serviceDate: date, nextServiceDate: nextDate, start: iso(day.firstIn, zone), end: iso(Math.max(lastOut, day.firstIn), zone), fromRuns: true };
+    const lastOut = ms(next.lastFirstPullOut);
+    return { serviceDate: day.serviceDate, nextServiceDate: next.serviceDate, start: iso(firstIn, zone), end: iso(Math.max(lastOut, firstIn), zone), fromRuns: true };
   });
+}
+
+/** The nights the runs describe (see nightsOfDays). */
+export function serviceNights(runs: readonly RunTimes[], zone: string): ServiceNight[] {
+  return nightsOfDays(serviceDayTimes(runs), zone);
 }
 
 /**
@@ -83,8 +102,13 @@ export function serviceNights(runs: readonly RunTimes[], zone: string): ServiceN
  * night stays in force until its last pull-out.
  */
 export function nightAt(runs: readonly RunTimes[], zone: string, now: Date): NightAt {
+  return nightAtDays(serviceDayTimes(runs), zone, now);
+}
+
+/** nightAt from each service day's times (what a database can sum up for it). */
+export function nightAtDays(serviceDays: readonly ServiceDayTimes[], zone: string, now: Date): NightAt {
   const t = now.getTime();
-  const nights = serviceNights(runs, zone);
+  const nights = nightsOfDays(serviceDays, zone);
   const last = nights.at(-1);
   if (!nights.some((n) => Date.parse(n.start) > t)) {
     // Fill from the end of what the runs say (or from yesterday) with calendar nights past `now`.
