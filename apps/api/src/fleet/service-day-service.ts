@@ -9,6 +9,7 @@ import { lockTarget } from '../db/locks';
 import { DomainError } from '../http/errors';
 import type { AuthUser } from '../auth/auth-user';
 import { depotOf } from '../depots/depot-access';
+import { forgetServiceDays } from '../night/depot-night';
 
 const LOCAL = "yyyy-MM-dd'T'HH:mm";
 type DepotRow = Awaited<ReturnType<typeof depotOf>>;
@@ -133,6 +134,8 @@ export async function replaceServiceDay(
       );
     }
   });
+  // Which night it is may have changed with the runs.
+  forgetServiceDays(depotId);
   return getServiceDay(db, caller, depotId, date);
 }
 

@@ -1,7 +1,7 @@
 import { sql } from 'drizzle-orm';
 import { DateTime } from 'luxon';
 import type { DepotNight } from '@nightyard/contracts';
-import { nightAtDays } from '@nightyard/scheduling';
+import { nightAtDays, type ServiceDayTimes } from '@nightyard/scheduling';
 import type { Db } from '../db/client';
 import { runs } from '../db/schema';
 import type { AuthUser } from '../auth/auth-user';
@@ -16,22 +16,41 @@ const WINDOW_DAYS = 21;
  */
 export async function nightOfDepot(db: Db, depot: { id: string; timezone: string }, now: Date): Promise<DepotNight> {
   const today = DateTime.fromJSDate(now, { zone: depot.timezone }).startOf('day');
+  const key = today.toISODate()!;
+  let days = serviceDaysCache.get(depot.id);
+  if (days?.key !== key) {
+    days = { key, days: await serviceDaysAround(db, depot.id, today) };
+    serviceDaysCache.set(depot.id, days);
+  }
+  const night = nightAtDays(days.days, depot.timezone, now);
+  return { now: DateTime.fromJSDate(now, { zone: depot.timezone }).toISO()!, timezone: depot.timezone, ...night };
+}
+
+/**
+ * Each depot's service-day times around a date, remembered: Tonight and the Yard ask on every
+ * request, and the runs change only through the service day's one write (which forgets them).
+ * One API process serves requests; the job workers never ask.
+ */
+const serviceDaysCache = new Map<string, { key: string; days: ServiceDayTimes[] }>();
+
+/** After a depot's runs change. */
+export function forgetServiceDays(depotId: string): void {
+  serviceDaysCache.delete(depotId);
+}
+
+async function serviceDaysAround(db: Db, depotId: string, today: DateTime): Promise<ServiceDayTimes[]> {
   // Summed up in the database: one row per service day (first pull-in, last bus's first pull-out).
   const { rows } = await db.execute<{ service_date: string; first_in: Date; last_first_out: Date }>(sql`
     select service_date::text as service_date, min(first_in) as first_in, max(first_out) as last_first_out
     from (
       select ${runs.serviceDate} as service_date, min(${runs.pullIn}) as first_in, min(${runs.pullOut}) as first_out
       from ${runs}
-      where ${runs.depotId} = ${depot.id}
+      where ${runs.depotId} = ${depotId}
         and ${runs.serviceDate} between ${today.minus({ days: WINDOW_DAYS }).toISODate()!} and ${today.plus({ days: WINDOW_DAYS }).toISODate()!}
       group by ${runs.serviceDate}, ${runs.busId}
     ) per_bus
     group by service_date`);
-  const night = nightAtDays(
-    rows.map((r) => ({ serviceDate: r.service_date, firstPullIn: new Date(r.first_in), lastFirstPullOut: new Date(r.last_first_out) })),
-    depot.timezone, now,
-  );
-  return { now: DateTime.fromJSDate(now, { zone: depot.timezone }).toISO()!, timezone: depot.timezone, ...night };
+  return rows.map((r) => ({ serviceDate: r.service_date, firstPullIn: new Date(r.first_in), lastFirstPullOut: new Date(r.last_first_out) }));
 }
 
 export async function depotNight(db: Db, caller: AuthUser, depotId: string, now: Date): Promise<DepotNight> {
