@@ -4,6 +4,7 @@ import { z } from 'zod';
 import * as contracts from './index';
 import { FIRST_YEAR, LAST_YEAR } from './dates';
 import { textProblem } from './text';
+import { leafPaths, setAt } from './testing/json-paths';
 
 // Property-based fuzzing of every request schema: whatever JSON arrives, parsing answers
 // success or failure (it never throws), and whatever is accepted is finite, NUL-free,
@@ -91,25 +92,6 @@ const { json } = fc.letrec((tie) => ({
     fc.dictionary(fc.oneof(nastyString, fc.constantFrom('name', 'runs', 'windows', 'periods')), tie('json'), { maxKeys: 4 })),
 }));
 
-type Path = (string | number)[];
-function leafPaths(value: unknown, at: Path = []): Path[] {
-  if (Array.isArray(value)) return [at, ...value.flatMap((v, i) => leafPaths(v, [...at, i]))];
-  if (value && typeof value === 'object') return [at, ...Object.entries(value).flatMap(([k, v]) => leafPaths(v, [...at, k]))];
-  return [at];
-}
-function setAt(value: unknown, path: Path, leaf: unknown): unknown {
-  if (!path.length) return leaf;
-  const copy = structuredClone(value) as Record<string | number, unknown>;
-  let node: unknown = copy;
-  for (const p of path.slice(0, -1)) {
-    // An earlier change may have replaced a parent with a plain value: then this one is moot.
-    if (!node || typeof node !== 'object') return copy;
-    node = (node as Record<string | number, unknown>)[p];
-  }
-  if (!node || typeof node !== 'object') return copy;
-  (node as Record<string | number, unknown>)[path.at(-1)!] = leaf;
-  return copy;
-}
 
 /** A valid request with one to three values swapped for nasty ones. */
 const mutated = (sample: unknown) => {

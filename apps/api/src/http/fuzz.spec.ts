@@ -5,6 +5,7 @@ import {
   billingPeaks, buses, chargers, depotRatePlans, depots, idempotencyKeys, loadReductionWindows, meterImports, meterIntervals,
   powerCabinets, ratePlans, runs, serviceDays, users,
 } from '../db/schema';
+import { leafPaths, setAt } from '../../../../libs/contracts/src/testing/json-paths';
 import { createDepot } from '../testing/depot-fixture';
 import { addBuses, dayRuns } from '../testing/fleet-fixture';
 import { createOrganisation, createTestApp, type TestUser } from '../testing/test-app';
@@ -90,23 +91,6 @@ const nasty = fc.oneof(
 /** Path segments that are never a valid id or date: bad percent-encoding, years out of range. */
 const badSegment = fc.constantFrom('%ED%A0%80', '%E0%A4%A', '%00', '%FF%FE', 'not-a-uuid', '0000-01-01', '9999-12-31', '2026-13-01', uuid);
 
-type Pathed = (string | number)[];
-function leafPaths(value: unknown, at: Pathed = []): Pathed[] {
-  if (Array.isArray(value)) return [at, ...value.flatMap((v, i) => leafPaths(v, [...at, i]))];
-  if (value && typeof value === 'object') return [at, ...Object.entries(value).flatMap(([k, v]) => leafPaths(v, [...at, k]))];
-  return [at];
-}
-function setAt(value: unknown, path: Pathed, leaf: unknown): unknown {
-  if (!path.length) return leaf;
-  const copy = structuredClone(value) as Record<string | number, unknown>;
-  let node: unknown = copy;
-  for (const p of path.slice(0, -1)) {
-    if (!node || typeof node !== 'object') return copy;
-    node = (node as Record<string | number, unknown>)[p];
-  }
-  if (node && typeof node === 'object') (node as Record<string | number, unknown>)[path.at(-1)!] = leaf;
-  return copy;
-}
 
 /** A valid body with a poisoned leaf (placed last, so nothing overwrites it) and up to two other nasty values. */
 const poisonedBody = (body: unknown) => {
