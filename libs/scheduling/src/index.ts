@@ -18,6 +18,6 @@ export { computeBill, nightMarginalCost, peaksOf, type Bill, type BillLine, type
 export { replan, deriveScenario, ReplanStateError, type ReplanState, type Replan } from './replan.js';
 export { sweepAssignment, type SweepInput } from './sweep.js';
 export {
-  serviceNights, serviceDayTimes, nightsOfDays, nightAt, nightAtDays, serviceDayAt, calendarNight,
+  serviceNights, serviceDayTimes, nightsOfDays, nightAt, nightAtDays, nightAmong, serviceDayAt, calendarNight,
   type ServiceNight, type RunTimes, type ServiceDayTimes, type NightAt,
 } from './night/service-night.js';

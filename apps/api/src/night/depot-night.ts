@@ -1,7 +1,7 @@
 import { sql } from 'drizzle-orm';
 import { DateTime } from 'luxon';
 import type { DepotNight } from '@nightyard/contracts';
-import { nightAtDays, type ServiceDayTimes } from '@nightyard/scheduling';
+import { nightAmong, nightsOfDays, type ServiceDayTimes, type ServiceNight } from '@nightyard/scheduling';
 import type { Db } from '../db/client';
 import { runs } from '../db/schema';
 import type { AuthUser } from '../auth/auth-user';
@@ -15,23 +15,25 @@ const WINDOW_DAYS = 21;
  * scheduling library). Every "tonight" in the API comes from here.
  */
 export async function nightOfDepot(db: Db, depot: { id: string; timezone: string }, now: Date): Promise<DepotNight> {
-  const today = DateTime.fromJSDate(now, { zone: depot.timezone }).startOf('day');
-  const key = today.toISODate()!;
-  let days = serviceDaysCache.get(depot.id);
-  if (days?.key !== key) {
-    days = { key, days: await serviceDaysAround(db, depot.id, today) };
-    serviceDaysCache.set(depot.id, days);
+  const local = DateTime.fromJSDate(now, { zone: depot.timezone });
+  const key = `${local.toISODate()!} ${depot.timezone}`;
+  let known = serviceDaysCache.get(depot.id);
+  if (known?.key !== key) {
+    const days = await serviceDaysAround(db, depot.id, local.startOf('day'));
+    known = { key, nights: nightsOfDays(days, depot.timezone) };
+    serviceDaysCache.set(depot.id, known);
   }
-  const night = nightAtDays(days.days, depot.timezone, now);
-  return { now: DateTime.fromJSDate(now, { zone: depot.timezone }).toISO()!, timezone: depot.timezone, ...night };
+  const night = nightAmong(known.nights, depot.timezone, now);
+  return { now: local.toISO()!, timezone: depot.timezone, ...night };
 }
 
 /**
- * Each depot's service-day times around a date, remembered: Tonight and the Yard ask on every
- * request, and the runs change only through the service day's one write (which forgets them).
+ * Each depot's nights around a date (worked out from its service-day times), remembered per local
+ * date and zone: Tonight and the Yard ask on every request, and the runs change only through the
+ * service day's one write (which forgets them).
  * One API process serves requests; the job workers never ask.
  */
-const serviceDaysCache = new Map<string, { key: string; days: ServiceDayTimes[] }>();
+const serviceDaysCache = new Map<string, { key: string; nights: ServiceNight[] }>();
 
 /** After a depot's runs change. */
 export function forgetServiceDays(depotId: string): void {

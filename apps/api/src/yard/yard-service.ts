@@ -1,4 +1,4 @@
-import { aliasedTable, and, desc, eq, getTableColumns, inArray, sql } from 'drizzle-orm';
+import { aliasedTable, and, eq, getTableColumns, sql } from 'drizzle-orm';
 import { DateTime } from 'luxon';
 import {
   planResultSchema, type PlanResult, type Tonight, type YardReport, type YardReportResult,
@@ -18,6 +18,7 @@ import { runInPool } from '../workers/pool';
 import { yardSteps } from './yard-steps';
 import { mergeReplan } from '../plans/night-in-progress';
 import { nightOfDepot } from '../night/depot-night';
+import { publishedNight } from './tonight-query';
 
 type PlanRow = typeof plans.$inferSelect;
 const confirmer = aliasedTable(users, 'confirmer');
@@ -86,45 +87,22 @@ export async function confirmedPlugged(db: Db, depotId: string, serviceDate: str
   return plugged;
 }
 
-const acknowledgementQuery = (db: Db, name: string) => db
-  .select({ userId: shiftAcknowledgements.userId })
-  .from(shiftAcknowledgements)
-  .where(and(eq(shiftAcknowledgements.userId, sql.placeholder('userId')), eq(shiftAcknowledgements.depotId, sql.placeholder('depotId')),
-    eq(shiftAcknowledgements.serviceDate, sql.placeholder('serviceDate'))))
-  .prepare(name);
-
-const reporter = aliasedTable(users, 'reporter');
-const revisionPlan = aliasedTable(plans, 'revision');
-const reportsQuery = (db: Db, name: string) => db
-  .select({ r: yardReports, by: reporter.name, version: revisionPlan.version })
-  .from(yardReports)
-  .leftJoin(reporter, eq(reporter.id, yardReports.reportedBy))
-  .leftJoin(revisionPlan, eq(revisionPlan.id, yardReports.revisionId))
-  .where(and(eq(yardReports.depotId, sql.placeholder('depotId')), eq(yardReports.serviceDate, sql.placeholder('serviceDate'))))
-  .orderBy(desc(yardReports.reportedAt))
-  .prepare(name);
-
 export async function tonight(db: Db, caller: AuthUser, depotId: string, now: Date): Promise<Tonight> {
-  // The depot check and the plan's look-up at once: nothing is returned unless the depot is the caller's.
-  const [depot, found] = await Promise.all([depotOf(db, caller, depotId), tonightsPlan(db, depotId, now)]);
+  // Three round trips at most (the caller's depot, the night's run times when not remembered, the
+  // night itself): the Yard and Tonight ask on every load and refresh.
+  const depot = await depotOf(db, caller, depotId);
   const base = { depot: { id: depot.id, name: depot.name, timezone: depot.timezone }, now: now.toISOString() };
+  const { tonight: night } = await nightOfDepot(db, depot, now);
+  const found = await publishedNight(db, { depotId, serviceDate: night.serviceDate }, caller.id);
   if (!found) return { ...base, plan: null, steps: [], acknowledged: false, reports: [] };
-  const { plan, createdBy, publishedBy } = found;
-  const night = { depotId, serviceDate: plan.serviceDate };
-  const [documents, [ack], reports, confirmations] = await Promise.all([
-    documentsOf(db, plan.id),
-    prepared(db, 'shift_acknowledgement', acknowledgementQuery).execute({ ...night, userId: caller.id }),
-    prepared(db, 'yard_reports_of_night', reportsQuery).execute(night),
-    confirmationsOf(db, depotId, plan.serviceDate),
-  ]);
+  const { plan, createdBy, publishedBy, acknowledged, reports, confirmations } = found;
+  const documents = await documentsOf(db, plan.id);
   return {
     ...base,
     plan: planDetailOf(plan, createdBy, publishedBy, documents.result, documents.scenario),
     steps: yardSteps(documents.result, now, confirmations),
-    acknowledged: Boolean(ack),
-    reports: reports.map(({ r, by, version }) => ({
-      kind: r.kind, bus: r.bus, charger: r.charger, reason: r.reason, reportedAt: r.reportedAt.toISOString(), reportedBy: by, revisionVersion: version,
-    })),
+    acknowledged,
+    reports,
   };
 }
 

@@ -1,6 +1,6 @@
 import { DateTime } from 'luxon';
 import { describe, expect, it } from 'vitest';
-import { calendarNight, nightAt, serviceDayAt, serviceNights, type RunTimes } from './service-night';
+import { calendarNight, nightAmong, nightAt, nightsOfDays, serviceDayAt, serviceDayTimes, serviceNights, type RunTimes } from './service-night';
 
 const ZONE = 'America/Chicago';
 const at = (local: string) => DateTime.fromISO(local, { zone: ZONE }).toJSDate();
@@ -112,6 +112,17 @@ describe('service night', () => {
     const n = nightAt(runs, ZONE, at('2026-12-01T15:00'));
     expect(n.inForce).toBeNull();
     expect(n.next.serviceDate).toBe('2026-12-07');
+  });
+
+  it('the nights worked out once answer every instant alike, and are not changed by the asking', () => {
+    // The API keeps a depot's nights for the day and asks them at each request.
+    const short = schoolRuns('2026-12-07', '2026-12-09');
+    const nights = nightsOfDays(serviceDayTimes(short), ZONE);
+    const before = structuredClone(nights);
+    for (const t of ['2026-12-08T15:00', '2026-12-09T00:02', '2026-12-09T20:00', '2026-12-20T09:00']) {
+      expect(nightAmong(nights, ZONE, at(t))).toEqual(nightAt(short, ZONE, at(t)));
+    }
+    expect(nights).toEqual(before);
   });
 
   it('gives the same answer in any zone the machine runs in (instants, not wall clocks)', () => {

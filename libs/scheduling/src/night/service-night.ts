@@ -107,8 +107,13 @@ export function nightAt(runs: readonly RunTimes[], zone: string, now: Date): Nig
 
 /** nightAt from each service day's times (what a database can sum up for it). */
 export function nightAtDays(serviceDays: readonly ServiceDayTimes[], zone: string, now: Date): NightAt {
+  return nightAmong(nightsOfDays(serviceDays, zone), zone, now);
+}
+
+/** As `nightAtDays`, from the nights of the service days already worked out (`nightsOfDays`). */
+export function nightAmong(nightsOfRuns: readonly ServiceNight[], zone: string, now: Date): NightAt {
   const t = now.getTime();
-  const nights = nightsOfDays(serviceDays, zone);
+  const nights = nightsOfRuns.slice();
   const last = nights.at(-1);
   if (!nights.some((n) => Date.parse(n.start) > t)) {
     // Fill from the end of what the runs say (or from yesterday) with calendar nights past `now`.
