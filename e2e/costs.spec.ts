@@ -3,7 +3,7 @@ import path from 'node:path';
 import { expect, test, type Page } from '@playwright/test';
 import { AT, districtAt, expectAccessible, pageAtApiTime, signInAs, type District } from './support';
 
-// Costs: a finance user opens the billing period, sees the savings against unmanaged charging and
+// Costs: a finance user opens the billing period, sees the savings against the baselines and
 // the diesel and CO2 avoided, exports the nights as CSV, tries a meter file for another period,
 // imports one for this period, and opens a night's cost per bus. A district of this file's own on a
 // Wednesday afternoon in December 2026 (the depot bills from the 1st).
@@ -41,7 +41,7 @@ test('finance opens the month, sees the savings, exports the nights and reads a 
     await expect(page).toHaveURL(/\/costs$/);
     await expect(page.getByRole('heading', { level: 1, name: 'Costs' })).toBeVisible();
     await expect(cardValue(page, 'Projected bill for the period')).toHaveText(/\$[\d,]+\.\d\d/);
-    const savings = cardValue(page, 'Savings against unmanaged charging');
+    const savings = cardValue(page, 'Savings against the baselines');
     await expect(savings).toHaveText(/\$[\d,]+\.\d\d/);
     expect(amount(await savings.textContent())).toBeGreaterThan(0);
     await expect(cardValue(page, 'Facility peak so far')).toHaveText(/\d kW$/);
@@ -52,7 +52,7 @@ test('finance opens the month, sees the savings, exports the nights and reads a 
     const source = emissions.locator('p').filter({ hasText: /^Source:/ });
     await expect(source).toContainText(/Diesel avoided = miles \/ \d+ mpg/);
     await expect(source).toContainText('US EPA');
-    await expect(page.getByRole('img', { name: /plan cost and unmanaged charging cost of each night/ })).toBeVisible();
+    await expect(page.getByRole('img', { name: /charging energy cost of each night, planned and under its baseline/ })).toBeVisible();
     await expect(page.getByRole('table', { name: /^Projected bill/ }).getByRole('row', { name: /^Total/ })).toBeVisible();
     await expectAccessible(page);
   });
@@ -66,11 +66,12 @@ test('finance opens the month, sees the savings, exports the nights and reads a 
     expect(download.suggestedFilename()).toMatch(/^costs-nights-\d{4}-\d{2}\.csv$/);
     const lines = fs.readFileSync(await download.path(), 'utf8').trimEnd().split('\r\n');
     expect(lines[0]).toBe(
-      'Night,Plan version,Plan cost (USD),Unmanaged charging cost (USD),Saving (USD),Projected site energy cost (USD),' +
-        'Metered site energy cost (USD),Metered minus projected (USD),Projected peak (kW),Metered peak (kW),Metered share of the night (%)',
+      'Night,Plan version,"Charging energy, planned (USD)",Baseline,"Charging energy, baseline (USD)",Energy saving (USD),' +
+        'Projected site energy cost (USD),Metered site energy cost (USD),Metered minus projected (USD),Projected peak (kW),' +
+        'Baseline peak (kW),Metered peak (kW),Metered share of the night (%)',
     );
     expect(lines.length).toBeGreaterThan(1);
-    expect(lines[1]).toMatch(/^\d{4}-\d{2}-\d{2},\d+,-?\d+(\.\d+)?,-?\d+(\.\d+)?,-?\d+(\.\d+)?,/);
+    expect(lines[1]).toMatch(/^\d{4}-\d{2}-\d{2},\d+,-?\d+(\.\d+)?,(Charge on arrival|Timer),-?\d+(\.\d+)?,-?\d+(\.\d+)?,/);
   });
 
   await test.step('a meter file for another billing period is refused and nothing changes', async () => {
@@ -120,7 +121,7 @@ test('a supervisor reads the costs without the meter data upload', async ({ page
   await signInAs(page, district.emails.supervisor);
   await page.getByRole('navigation', { name: 'Sections' }).getByRole('link', { name: 'Costs' }).click();
   await expect(page.getByRole('heading', { level: 1, name: 'Costs' })).toBeVisible();
-  await expect(cardValue(page, 'Savings against unmanaged charging')).toHaveText(/\$[\d,]+\.\d\d/);
+  await expect(cardValue(page, 'Savings against the baselines')).toHaveText(/\$[\d,]+\.\d\d/);
   await expect(page.getByText("You can read the costs. Finance and administrators import the utility's meter data.")).toBeVisible();
   await expect(page.getByLabel('Meter data file (Green Button XML or CSV)')).toHaveCount(0);
   await expect(page.getByRole('heading', { name: 'Import meter data' })).toHaveCount(0);

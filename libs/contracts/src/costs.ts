@@ -29,7 +29,14 @@ export const planCostsSchema = z.object({
   energy: z.number(),
   demand: z.number(),
   total: z.number(),
-  baseline: z.object({ energy: z.number(), demand: z.number(), total: z.number() }),
+  /** The baseline the saving is counted against (kind null: a plan made before the baselines). */
+  baseline: z.object({
+    kind: z.enum(['arrival', 'timer']).nullable(), energy: z.number(), demand: z.number(), total: z.number(), peakKw: z.number(),
+    /** kWh it leaves undelivered against the plan (valued at the plan's average price, in `total`). */
+    shortfallKwh: z.number(),
+  }),
+  /** The other baseline, shown beside it. */
+  otherBaseline: z.object({ kind: z.enum(['arrival', 'timer']), total: z.number(), peakKw: z.number(), shortfallKwh: z.number() }).nullable(),
   savings: z.number(),
   savingsShare: z.number(),
   chargingKwh: z.number(),
@@ -55,8 +62,21 @@ export const monthCostsSchema = z.object({
   projected: billSchema,
   /** From the period's start to now, from the same sources. */
   monthToDate: billSchema,
-  /** Sum over the period's published nights of what unmanaged charging would have cost more. */
-  savingsVsUnmanaged: z.number(),
+  /**
+   * The period's saving: its bill with each published night charged as its baseline would
+   * (the cheaper of charge on arrival and timer that delivers the plan's energy) minus its bill
+   * with the plans, each with its own peaks (demand is billed once a period, never per night).
+   * Both bills are on planned loads, so metering does not tilt the comparison.
+   */
+  savings: z.object({
+    total: z.number(),
+    planBill: z.number(),
+    baselineBill: z.number(),
+    /** Published nights compared (plans made before the baselines existed are left out). */
+    nightsCompared: z.number(),
+    planPeakKw: z.number(),
+    baselinePeakKw: z.number(),
+  }),
   peaks: z.object({
     facility: z.object({ kw: z.number(), at: z.string().nullable(), source: z.enum(['actual', 'entered', 'planned']) }),
     periods: z.array(z.object({ name: z.string(), kw: z.number(), at: z.string().nullable() })),
@@ -65,9 +85,12 @@ export const monthCostsSchema = z.object({
     date: z.string(),
     planId: z.uuid(),
     version: z.number(),
-    /** The plan's own cost: charging energy plus demand above the peaks so far. */
-    planCost: z.number(),
-    baselineCost: z.number(),
+    /** The night's charging energy cost under the plan and under its baseline (demand is the period's, see `savings`). */
+    planEnergyCost: z.number(),
+    baselineEnergyCost: z.number().nullable(),
+    baselineKind: z.enum(['arrival', 'timer']).nullable(),
+    /** Highest site load of the night under the baseline (the plan's is `projectedPeakKw`). */
+    baselinePeakKw: z.number().nullable(),
     /** Site energy (charging and building) over the plan's hours, as planned and as metered. */
     projectedSiteEnergyCost: z.number(),
     actualSiteEnergyCost: z.number().nullable(),

@@ -17,11 +17,33 @@ export const publishPlanSchema = z.strictObject({
   expectedPublishedId: z.uuid().nullable(),
 });
 
+export const baselineKindSchema = z.enum(['arrival', 'timer']);
+export type BaselineKind = z.infer<typeof baselineKindSchema>;
+
+/** The baselines' names on every screen, e-mail and export ("Unmanaged charging": plans made before them). */
+export function baselineName(kind: string | null | undefined): string {
+  return kind === 'arrival' ? 'Charge on arrival' : kind === 'timer' ? 'Timer' : 'Unmanaged charging';
+}
+
+/**
+ * What a baseline (charge on arrival, timer) would cost. `kind`, `shortfallKwh` and
+ * `shortfallCost` are absent from plans made before both baselines existed.
+ */
+const baselineCostSchema = z.looseObject({
+  kind: baselineKindSchema.optional(),
+  energy: z.number(), demand: z.number(), total: z.number(), peakKw: z.number(), exceedsSiteLimit: z.boolean(),
+  shortfallKwh: z.number().optional(),
+  shortfallCost: z.number().optional(),
+});
+const baselineWithLoadSchema = baselineCostSchema.extend({ chargingKw: z.array(z.number()) });
+
 /** The engine's plan output (see the scenario format), kept loose here: the engine defines it. */
 export const planResultSchema = z.looseObject({
   status: z.enum(['optimal', 'feasible', 'short']),
   cost: z.object({ energy: z.number(), demand: z.number(), total: z.number() }),
-  baseline: z.looseObject({ energy: z.number(), demand: z.number(), total: z.number(), peakKw: z.number(), exceedsSiteLimit: z.boolean() }),
+  /** The baseline savings are reported against: the cheaper of the two that deliver the plan's energy. */
+  baseline: baselineCostSchema,
+  baselines: z.object({ arrival: baselineWithLoadSchema, timer: baselineWithLoadSchema }).optional(),
   lowerBound: z.number(),
   gap: z.number(),
   solveMs: z.number(),

@@ -33,7 +33,7 @@ export const SECTIONS: readonly Section[] = [
     purpose: 'The utility rate plan: time-of-use prices, demand charges, fixed charges.' },
   { key: 'costs', label: 'Costs', path: '/costs', icon: 'payments',
     roles: ['finance', 'admin', 'supervisor', 'facilities'],
-    purpose: 'Projected and actual electricity cost per night and month, against unmanaged charging.' },
+    purpose: 'Projected and actual electricity cost per night and month, against charging on arrival or on a timer.' },
   { key: 'people', label: 'People', path: '/people', icon: 'group',
     roles: ['admin'],
     purpose: 'Who may sign in, with which roles; invitations and deactivation.' },

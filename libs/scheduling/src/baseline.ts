@@ -1,16 +1,19 @@
 import { costLoad, type Cost } from './tariff.js';
-import { prepareProblem, type Problem } from './problem.js';
-import type { Scenario } from './scenario.js';
+import type { Problem } from './problem.js';
 
 export interface Baseline {
+  kind: BaselineKind;
+  /** Charger efficiency (battery kWh per grid kWh), as in the problem. */
+  eta: number;
   cost: Cost;
   /** Site charging load per slot (kW). */
   chargingKw: Float64Array;
   /** Grid kW per bus per slot. */
   power: Float64Array[];
   peakKw: number;
+  /** Never true when the building's load leaves room for charging; kept as a check. */
   exceedsSiteLimit: boolean;
-  /** kWh below the required departure energy, summed over buses (unmanaged charging may fail). */
+  /** kWh below the plan's departure energy, summed over stays (a baseline may not keep up). */
   shortfallKwh: number;
 }
 
@@ -25,14 +28,23 @@ export function acceptance(problem: Problem, b: number, e: number, powerCap: num
   return Math.max(0, p);
 }
 
+export type BaselineKind = 'arrival' | 'timer';
+
 /**
- * Unmanaged charging: a bus is plugged into the first free charger when it pulls in and charges
- * at full power until it reaches its ceiling (then it is unplugged and the charger goes to the
- * bus that has waited longest) or leaves. A cabinet over its limit shares power in proportion.
- * The site limit is not enforced: the baseline reports whether it would have been exceeded.
+ * What the depot would do without a plan, inside the same physical limits as the plan (service
+ * limit net of the building's load, cabinets, chargers: a main breaker or a charger's own load
+ * sharing would enforce them) and aiming at the same departure energy the plan delivers:
+ * - arrival ("charge on arrival"): a bus is plugged into the first free charger when it pulls in
+ *   and charges at the most the limits allow until it holds the plan's departure energy or
+ *   leaves; a bus that finds no free charger waits, and a charger whose bus is done goes to the
+ *   bus that has waited longest;
+ * - timer: the same, but a stay's charging starts no earlier than the cheapest window of that
+ *   stay opens (its first slot at the lowest price between arrival and departure) - the one
+ *   setting a depot timer offers.
+ * When limits bind, power is shared in proportion to what each bus would take (cabinet first,
+ * then the site). `targetKwh[bus][stay]` is the plan's battery energy at each departure.
  */
-export function unmanagedBaseline(input: Scenario | Problem): Baseline {
-  const problem = 'slots' in input && 'buses' in input && 'stays' in input ? (input as Problem) : prepareProblem(input as Scenario);
+export function limitedBaseline(problem: Problem, targetKwh: readonly (readonly number[])[], kind: BaselineKind): Baseline {
   const { T, slotHours: dt, eta } = problem;
   const energy = problem.buses.map((b) => b.arrivalKwh);
   const power = problem.buses.map(() => new Float64Array(T));
@@ -41,17 +53,21 @@ export function unmanagedBaseline(input: Scenario | Problem): Baseline {
   const queue: number[] = [];
   const charging = new Float64Array(T);
   let shortfall = 0;
-  const starts = problem.stays.slice().sort((x, y) => x.a - y.a || x.arriveMs - y.arriveMs || x.bus - y.bus);
+  const opensAt = problem.stays.map((stay) => (kind === 'timer' ? cheapestWindowOpens(problem, stay.a, stay.d) : stay.a));
+  const starts = problem.stays.slice().sort((x, y) => opensAt[x.id]! - opensAt[y.id]! || x.arriveMs - y.arriveMs || x.bus - y.bus);
   let next = 0;
+  // Most a bus takes in a slot: its own acceptance, capped at what is left to its target.
+  const wants = (b: number, cap: number) => {
+    const k = stayOf[b]!;
+    const left = (targetKwh[b]?.[k] ?? 0) - energy[b]!;
+    return left <= 1e-9 ? 0 : Math.min(acceptance(problem, b, energy[b]!, cap, true), left / (eta * dt));
+  };
   for (let t = 0; t < T; t++) {
-    // Departures: the stay's last whole slot has passed.
     for (const bus of problem.buses) {
       const k = stayOf[bus.index]!;
-      if (k < 0) continue;
-      const stay = bus.stays[k]!;
-      if (t >= stay.d) leave(bus.index);
+      if (k >= 0 && t >= bus.stays[k]!.d) leave(bus.index);
     }
-    while (next < starts.length && starts[next]!.a <= t) {
+    while (next < starts.length && opensAt[starts[next]!.id]! <= t) {
       const stay = starts[next++]!;
       if (stay.d <= t) {
         depart(stay.bus, stay.k);
@@ -60,16 +76,15 @@ export function unmanagedBaseline(input: Scenario | Problem): Baseline {
       stayOf[stay.bus] = stay.k;
       queue.push(stay.bus);
     }
-    // Full buses give their charger up; waiting buses take free chargers in charger order.
     for (let c = 0; c < occupant.length; c++) {
       const b = occupant[c]!;
-      if (b >= 0 && acceptance(problem, b, energy[b]!, problem.chargers[c]!.maxKw, true) <= 1e-9) occupant[c] = -1;
+      if (b >= 0 && wants(b, problem.chargers[c]!.maxKw) <= 1e-9) occupant[c] = -1;
     }
     for (let c = 0; c < occupant.length && queue.length; c++) {
       if (occupant[c]! >= 0 || !problem.chargers[c]!.available[t]) continue;
       while (queue.length) {
         const b = queue.shift()!;
-        if (acceptance(problem, b, energy[b]!, problem.chargers[c]!.maxKw, true) <= 1e-9) continue;
+        if (wants(b, problem.chargers[c]!.maxKw) <= 1e-9) continue;
         occupant[c] = b;
         break;
       }
@@ -77,12 +92,15 @@ export function unmanagedBaseline(input: Scenario | Problem): Baseline {
     const want = new Float64Array(occupant.length);
     for (let c = 0; c < occupant.length; c++) {
       const b = occupant[c]!;
-      if (b >= 0 && problem.chargers[c]!.available[t]) want[c] = acceptance(problem, b, energy[b]!, problem.chargers[c]!.maxKw, true);
+      if (b >= 0 && problem.chargers[c]!.available[t]) want[c] = wants(b, problem.chargers[c]!.maxKw);
     }
     for (const cab of problem.cabinets) {
       const sum = cab.chargers.reduce((a, c) => a + want[c]!, 0);
       if (sum > cab.limitKw) for (const c of cab.chargers) want[c] = (want[c]! * cab.limitKw) / sum;
     }
+    const site = Math.max(0, problem.slots[t]!.limitKw - problem.slots[t]!.otherKw);
+    const total = want.reduce((a, w) => a + w, 0);
+    if (total > site) for (let c = 0; c < want.length; c++) want[c] = (want[c]! * site) / total;
     for (let c = 0; c < occupant.length; c++) {
       const b = occupant[c]!;
       if (b < 0) continue;
@@ -103,12 +121,20 @@ export function unmanagedBaseline(input: Scenario | Problem): Baseline {
   }
   function depart(b: number, k: number) {
     const stay = problem.buses[b]!.stays[k]!;
-    shortfall += Math.max(0, stay.requiredKwh - energy[b]!);
+    // Short of the plan's departure energy (a stay that never reached the queue counts too).
+    shortfall += Math.max(0, (targetKwh[b]?.[k] ?? 0) - energy[b]!);
     energy[b] = energy[b]! - stay.runKwh;
   }
 
   const cost = costLoad(problem.slots, charging, problem.tariff, dt);
   let exceeds = false;
   for (let t = 0; t < T; t++) if (charging[t]! + problem.slots[t]!.otherKw > problem.slots[t]!.limitKw + 1e-6) exceeds = true;
-  return { cost, chargingKw: charging, power, peakKw: cost.peakKw, exceedsSiteLimit: exceeds, shortfallKwh: shortfall };
+  return { kind, eta, cost, chargingKw: charging, power, peakKw: cost.peakKw, exceedsSiteLimit: exceeds, shortfallKwh: shortfall };
+}
+
+/** The first slot of [a, d) at the lowest price in it (a when the stay has no slot). */
+function cheapestWindowOpens(problem: Problem, a: number, d: number): number {
+  let best = a;
+  for (let t = a + 1; t < d; t++) if (problem.slots[t]!.price < problem.slots[best]!.price - 1e-12) best = t;
+  return best;
 }

@@ -1,6 +1,5 @@
 import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
-import { unmanagedBaseline } from './baseline.js';
 import { planScenario, type Plan } from './plan.js';
 import { parseScenario, type ScenarioInput } from './scenario.js';
 import { buildSlots } from './slots.js';
@@ -132,8 +131,9 @@ describe('format extensions: plans', () => {
       expect(s.loadKw).toBeLessThanOrEqual(s.limitKw + 1e-6);
     }
     expect(p.status).toBe('optimal');
-    // The unmanaged baseline ignores the window but says it would break it.
-    expect(p.baseline.exceedsSiteLimit).toBe(true);
+    // Both baselines keep to the window too (a main breaker would make them).
+    expect(p.baselines.arrival.exceedsSiteLimit).toBe(false);
+    expect(p.baselines.timer.exceedsSiteLimit).toBe(false);
   });
 
   it('names the site as the reason when a window leaves too little power', async () => {
@@ -144,15 +144,5 @@ describe('format extensions: plans', () => {
     const short = p.buses.filter((b) => b.shortfallKwh > 0);
     expect(short.every((b) => b.reason === 'site')).toBe(true);
     expect(p.buses.reduce((a, b) => a + b.shortfallKwh, 0)).toBeCloseTo(80, 4);
-  });
-
-  it('the baseline reports exceedsSiteLimit against the per-slot limit only', () => {
-    const inWindow = parseScenario(night({ limitWindows: [{ from: '2026-01-13T22:00', to: '2026-01-13T23:00', limitKw: 150 }] }));
-    const outside = parseScenario(night({ limitWindows: [{ from: '2026-01-14T07:00', to: '2026-01-14T08:00', limitKw: 150 }] }));
-    if (!inWindow.ok || !outside.ok) throw new Error('bad scenario');
-    // Unmanaged, both buses draw 100 kW from 22:00: 200 kW, above 150 only inside the window.
-    expect(unmanagedBaseline(inWindow.scenario).exceedsSiteLimit).toBe(true);
-    expect(unmanagedBaseline(outside.scenario).exceedsSiteLimit).toBe(false);
-    expect(unmanagedBaseline(inWindow.scenario).peakKw).toBeCloseTo(200, 9);
   });
 });

@@ -6,9 +6,9 @@ export { prepareProblem, emptyPlugMap, type Problem, type Bus, type Stay, type C
 export { buildChargeModel, topChargerPower, type ChargeModel, type ModelOptions } from './lp-model.js';
 export { solveLowerBound, type LowerBound } from './lower-bound.js';
 export { initialAssignment, plugMapOf, type Assignment, type AssignmentHints } from './assignment.js';
-export { unmanagedBaseline, acceptance, type Baseline } from './baseline.js';
+export { limitedBaseline, acceptance, type Baseline, type BaselineKind } from './baseline.js';
 export { explainShortfalls, soloShortfall, type ShortReason } from './explain.js';
-export { planScenario, planProblem, defaultTimeBudgetMs, defaultMoves, type Plan, type PlanOptions, type PlanSession, type PlanBus, type PlanCost } from './plan.js';
+export { planScenario, planProblem, defaultTimeBudgetMs, defaultMoves, type Plan, type PlanOptions, type PlanSession, type PlanBus, type PlanCost, type BaselineCost, referenceBaseline } from './plan.js';
 // Rate plans and bills (shared by the engine's users: API, costs, tests).
 export { dayTypeOf, seasonOf, periodAt as ratePlanPeriodAt, pricedSlots, daySlots, SLOT_MINUTES, type PricedSlot } from './bill/rate-calendar.js';
 export { previewDay } from './bill/rate-preview.js';

@@ -1,5 +1,5 @@
 import { initialAssignment, plugMapOf, type Assignment, type AssignmentHints } from './assignment.js';
-import { unmanagedBaseline } from './baseline.js';
+import { limitedBaseline, type Baseline, type BaselineKind } from './baseline.js';
 import { explainShortfalls, type ShortReason } from './explain.js';
 import { loadSolver, type Solver } from './highs-solver.js';
 import { AssignedModel, localSearch } from './local-search.js';
@@ -34,11 +34,27 @@ export interface PlanBus {
   reason: ShortReason | null;
 }
 
+export interface BaselineCost extends PlanCost {
+  kind: BaselineKind;
+  peakKw: number;
+  exceedsSiteLimit: boolean;
+  /** kWh the baseline leaves undelivered against the plan's departure energy. */
+  shortfallKwh: number;
+  /**
+   * What the undelivered kWh would cost at the plan's own average price per kWh, added to
+   * `total` so a baseline that delivers less never looks cheaper for it (0 when it keeps up).
+   */
+  shortfallCost: number;
+}
+
 /** The plan output of the scenario format, plus `savings` and `stats`. */
 export interface Plan {
   status: 'optimal' | 'feasible' | 'short';
   cost: PlanCost;
-  baseline: PlanCost & { peakKw: number; exceedsSiteLimit: boolean };
+  /** The baseline savings are reported against: the cheaper of the two that deliver the plan's energy. */
+  baseline: BaselineCost;
+  /** Both baselines, for showing the other beside the one compared with, with their charging kW per slot. */
+  baselines: Record<BaselineKind, BaselineCost & { chargingKw: number[] }>;
   lowerBound: number;
   gap: number;
   solveMs: number;
@@ -329,11 +345,13 @@ function assemblePlan(
   // Energy at each departure follows from the power delivered.
   const shortByBus = new Float64Array(problem.buses.length);
   let totalShort = 0;
+  const departureKwh: number[][] = problem.buses.map(() => []);
   const busOut: PlanBus[] = problem.buses.map((bus) => {
     let e = bus.arrivalKwh;
     const departures: PlanBus['departures'] = [];
     for (const stay of bus.stays) {
       for (let t = stay.a; t < stay.d; t++) e += eta * dt * power[bus.index]![t]!;
+      departureKwh[bus.index]!.push(e);
       departures.push({ at: isoAt(stay.departMs, zone), kwh: round(e) });
       const short = Math.max(0, stay.requiredKwh - e);
       if (short > 1e-4) {
@@ -349,7 +367,12 @@ function assemblePlan(
     busOut.forEach((b, i) => (b.reason = shortByBus[i]! > 1e-4 ? (reasons[i] ?? 'charger') : null));
   }
 
-  const baseline = unmanagedBaseline(problem);
+  let deliveredKwh = 0;
+  for (let t = 0; t < T; t++) deliveredKwh += charging[t]! * dt;
+  const arrival = limitedBaseline(problem, departureKwh, 'arrival');
+  const timer = limitedBaseline(problem, departureKwh, 'timer');
+  const baselines = { arrival: baselineCost(arrival, cost.energy, deliveredKwh), timer: baselineCost(timer, cost.energy, deliveredKwh) };
+  const baseline = referenceBaseline(baselines);
   // Valid for every plan at most as short as this one: cost + M x short >= relaxation optimum.
   const lowerBound = Math.max(0, lbPenalised - problem.shortfallPenalty * Math.max(totalShort, lbShortfall));
   const total = cost.total;
@@ -358,12 +381,10 @@ function assemblePlan(
   return {
     status,
     cost: { energy: round(cost.energy), demand: round(cost.demand), total: round(cost.total) },
-    baseline: {
-      energy: round(baseline.cost.energy),
-      demand: round(baseline.cost.demand),
-      total: round(baseline.cost.total),
-      peakKw: round(baseline.peakKw),
-      exceedsSiteLimit: baseline.exceedsSiteLimit,
+    baseline: roundedBaseline(baseline),
+    baselines: {
+      arrival: { ...roundedBaseline(baselines.arrival), chargingKw: Array.from(arrival.chargingKw, (kw) => round(kw, 3)) },
+      timer: { ...roundedBaseline(baselines.timer), chargingKw: Array.from(timer.chargingKw, (kw) => round(kw, 3)) },
     },
     // Solver tolerance can put the bound a hair above the plan; anything larger stays visible.
     lowerBound: round(lowerBound > total && lowerBound - total <= 1e-7 * Math.max(1, total) ? total : lowerBound),
@@ -373,10 +394,10 @@ function assemblePlan(
     sessions,
     buses: busOut,
     savings: {
-      energy: round(baseline.cost.energy - cost.energy),
-      demand: round(baseline.cost.demand - cost.demand),
-      total: round(baseline.cost.total - cost.total),
-      share: baseline.cost.total > 0 ? round((baseline.cost.total - cost.total) / baseline.cost.total, 6) : 0,
+      energy: round(baseline.energy - cost.energy),
+      demand: round(baseline.demand - cost.demand),
+      total: round(baseline.total - cost.total),
+      share: baseline.total > 0 ? round((baseline.total - cost.total) / baseline.total, 6) : 0,
       peakKw: round(cost.peakKw),
       baselinePeakKw: round(baseline.peakKw),
       peakCut: baseline.peakKw > 0 ? round((baseline.peakKw - cost.peakKw) / baseline.peakKw, 6) : 0,
@@ -397,5 +418,35 @@ function assemblePlan(
       shortfallKwh: round(totalShort),
       unavoidableShortfallKwh: round(lbShortfall),
     },
+  };
+}
+
+/** A baseline's cost, its undelivered energy valued at the plan's average price per grid kWh. */
+function baselineCost(b: Baseline, planEnergyCost: number, planGridKwh: number): BaselineCost {
+  const shortfallCost = planGridKwh > 0 ? (b.shortfallKwh / b.eta) * (planEnergyCost / planGridKwh) : 0;
+  return {
+    kind: b.kind, energy: b.cost.energy, demand: b.cost.demand, total: b.cost.total + shortfallCost,
+    peakKw: b.peakKw, exceedsSiteLimit: b.exceedsSiteLimit, shortfallKwh: b.shortfallKwh, shortfallCost,
+  };
+}
+
+/** Below this a baseline counts as delivering the plan's energy (float round-off, not kWh). */
+const KEEPS_UP_KWH = 0.05;
+
+/**
+ * The baseline savings are reported against: the cheaper of those that deliver the plan's
+ * departure energy; when neither does, the one that falls least short.
+ */
+export function referenceBaseline(b: Record<BaselineKind, BaselineCost>): BaselineCost {
+  const both = [b.arrival, b.timer];
+  const keepUp = both.filter((x) => x.shortfallKwh <= KEEPS_UP_KWH);
+  if (keepUp.length) return keepUp.reduce((x, y) => (y.total < x.total ? y : x));
+  return both.reduce((x, y) => (y.shortfallKwh < x.shortfallKwh ? y : x));
+}
+
+function roundedBaseline(b: BaselineCost): BaselineCost {
+  return {
+    ...b, energy: round(b.energy), demand: round(b.demand), total: round(b.total), peakKw: round(b.peakKw),
+    shortfallKwh: round(b.shortfallKwh), shortfallCost: round(b.shortfallCost),
   };
 }

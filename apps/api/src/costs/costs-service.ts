@@ -71,16 +71,22 @@ export async function planCosts(db: Db, caller: AuthUser, planId: string): Promi
     const use = perBus.get(b.id) ?? { kwh: 0, energy: 0 };
     const cost = use.energy + (totalKwh > 0 ? (result.cost.demand * use.kwh) / totalKwh : 0);
     const m = miles.get(b.id) ?? 0;
-    return { bus: b.id, kwh: round2(use.kwh), cost: round2(cost), miles: round2(m), costPerMile: m > 0 ? round2(cost / m) : null };
+    return { bus: b.id, kwh: use.kwh, cost, miles: m, costPerMile: m > 0 ? cost / m : null, unrounded: cost };
   });
+  // One set of numbers: the night's total is the sum of its buses' unrounded costs, and per mile divides that.
+  const total = rows.reduce((a, r) => a + r.unrounded, 0);
+  const base = result.baseline;
+  const otherKind = base.kind === 'arrival' ? 'timer' : base.kind === 'timer' ? 'arrival' : null;
+  const other = otherKind && result.baselines ? result.baselines[otherKind] : null;
   return {
     planId, serviceDate: plan.serviceDate, currency: scenario.tariff.currency ?? 'USD',
-    energy: round2(result.cost.energy), demand: round2(result.cost.demand), total: round2(result.cost.total),
-    baseline: { energy: round2(result.baseline.energy), demand: round2(result.baseline.demand), total: round2(result.baseline.total) },
-    savings: round2(result.baseline.total - result.cost.total),
-    savingsShare: result.baseline.total > 0 ? (result.baseline.total - result.cost.total) / result.baseline.total : 0,
-    chargingKwh: round2(totalKwh), miles: round2(totalMiles), costPerMile: totalMiles > 0 ? round2(result.cost.total / totalMiles) : null,
-    perBus: rows.sort((a, b) => a.bus.localeCompare(b.bus, undefined, { numeric: true })),
+    energy: result.cost.energy, demand: result.cost.demand, total,
+    baseline: { kind: base.kind ?? null, energy: base.energy, demand: base.demand, total: base.total, peakKw: base.peakKw, shortfallKwh: base.shortfallKwh ?? 0 },
+    otherBaseline: other && otherKind ? { kind: otherKind, total: other.total, peakKw: other.peakKw, shortfallKwh: other.shortfallKwh ?? 0 } : null,
+    savings: base.total - total,
+    savingsShare: base.total > 0 ? (base.total - total) / base.total : 0,
+    chargingKwh: totalKwh, miles: totalMiles, costPerMile: totalMiles > 0 ? total / totalMiles : null,
+    perBus: rows.map(({ unrounded: _, ...r }) => r).sort((a, b) => a.bus.localeCompare(b.bus, undefined, { numeric: true })),
   };
 }
 
@@ -89,11 +95,44 @@ type Period = ReturnType<typeof billingPeriodOf>;
 type SourcedInterval = IntervalDemand & { source: 'actual' | 'planned' | 'building' };
 type Peaks = MonthCosts['peaks'];
 
+/**
+ * A published night inside a billing period, as its plan and as its baseline (the one its plan
+ * reports savings against) would charge: the baseline's site load per interval is the plan's
+ * minus the plan's charging plus the baseline's. Plans made before the baselines existed have
+ * none (`kind` null) and count as charged the same.
+ */
+function comparedNight(result: PlanResult, fromMs: number, toMs: number) {
+  const planCharging = new Map<number, number>();
+  for (const s of result.sessions) {
+    const t0 = Date.parse(s.start);
+    s.kw.forEach((kw, k) => planCharging.set(t0 + k * SLOT_MS, (planCharging.get(t0 + k * SLOT_MS) ?? 0) + kw));
+  }
+  const kind = result.baselines && result.baseline.kind ? result.baseline.kind : null;
+  const charging = kind ? result.baselines![kind].chargingKw : null;
+  const baselineKw = new Map<number, number>();
+  let planEnergy = 0;
+  let baselineEnergy = 0;
+  let baselinePeak = 0;
+  result.slots.forEach((s, i) => {
+    const t = Date.parse(s.start);
+    if (t < fromMs || t >= toMs) return;
+    const planKw = planCharging.get(t) ?? 0;
+    planEnergy += planKw * 0.25 * s.price;
+    if (!charging) return;
+    const kw = s.loadKw - planKw + (charging[i] ?? 0);
+    baselineKw.set(t, kw);
+    baselineEnergy += (charging[i] ?? 0) * 0.25 * s.price;
+    baselinePeak = Math.max(baselinePeak, kw);
+  });
+  return { kind, baselineKw, planEnergy, baselineEnergy, baselinePeak };
+}
+
 /** What a billing period's costs are, whatever the time now: built from the rows the cache versions. */
 interface PeriodBase {
   rate: { name: string; definition: RatePlanDefinition };
   series: SourcedInterval[];
   nights: MonthCosts['nights'];
+  savings: MonthCosts['savings'];
   plannedDates: Set<string>;
   projected: Bill;
   entered: (typeof billingPeaks.$inferSelect) | undefined;
@@ -129,9 +168,15 @@ async function periodBase(db: Db, depot: Depot, period: Period): Promise<PeriodB
     for (let k = 0; k < parts; k++) actualKwh.set(a.startsAt.getTime() + k * SLOT_MS, a.kwh / parts);
   }
   const plannedKw = new Map<number, number>();
+  // The same site load with the night charged as its baseline would (nights compared only).
+  const baselineKw = new Map<number, number>();
+  let nightsCompared = 0;
   const nights: MonthCosts['nights'] = [];
   for (const p of published) {
     const result: PlanResult = planResultSchema.parse(p.result);
+    const compared = comparedNight(result, fromMs, toMs);
+    for (const [t, kw] of compared.baselineKw) baselineKw.set(t, kw);
+    if (compared.kind) nightsCompared++;
     let projectedEnergy = 0;
     let projectedPeak = 0;
     let actualEnergy = 0;
@@ -153,7 +198,9 @@ async function periodBase(db: Db, depot: Depot, period: Period): Promise<PeriodB
     if (!result.slots.some((s) => Date.parse(s.start) >= fromMs && Date.parse(s.start) < toMs)) continue;
     const inPeriod = result.slots.filter((s) => Date.parse(s.start) >= fromMs && Date.parse(s.start) < toMs).length;
     nights.push({
-      date: p.serviceDate, planId: p.id, version: p.version, planCost: round2(result.cost.total), baselineCost: round2(result.baseline.total),
+      date: p.serviceDate, planId: p.id, version: p.version,
+      planEnergyCost: compared.planEnergy, baselineEnergyCost: compared.kind ? compared.baselineEnergy : null,
+      baselineKind: compared.kind, baselinePeakKw: compared.kind ? round2(compared.baselinePeak) : null,
       projectedSiteEnergyCost: round2(projectedEnergy), actualSiteEnergyCost: covered ? round2(actualEnergy) : null,
       projectedPeakKw: round2(projectedPeak), actualPeakKw: covered ? round2(actualPeak) : null,
       actualCoverage: inPeriod ? covered / inPeriod : 0,
@@ -161,19 +208,29 @@ async function periodBase(db: Db, depot: Depot, period: Period): Promise<PeriodB
   }
 
   const profile = depot.otherLoadKw;
+  const buildingKwh = (t: number) => (profile.length === 1 ? profile[0]! : profile[DateTime.fromMillis(t, { zone }).hour]!) * 0.25;
   const series: SourcedInterval[] = [];
   for (let t = fromMs; t < toMs; t += SLOT_MS) {
     const a = actualKwh.get(t);
     if (a !== undefined) series.push({ startMs: t, kwh: a, source: 'actual' });
     else if (plannedKw.has(t)) series.push({ startMs: t, kwh: plannedKw.get(t)! * 0.25, source: 'planned' });
-    else {
-      const hour = DateTime.fromMillis(t, { zone }).hour;
-      series.push({ startMs: t, kwh: (profile.length === 1 ? profile[0]! : profile[hour]!) * 0.25, source: 'building' });
-    }
+    else series.push({ startMs: t, kwh: buildingKwh(t), source: 'building' });
   }
-  const projected = computeBill(rate.definition, series, { zone, intervalMinutes: 15, days: period.days });
+  const billOptions = { zone, intervalMinutes: 15, days: period.days };
+  const projected = computeBill(rate.definition, series, billOptions);
+  // The saving: the period billed on planned loads twice, once with the plans and once with the
+  // baselines, each with its own peaks. Metered intervals are left out of both on purpose.
+  const onPlans = series.map(({ startMs }) => ({ startMs, kwh: plannedKw.has(startMs) ? plannedKw.get(startMs)! * 0.25 : buildingKwh(startMs) }));
+  const onBaselines = onPlans.map((s) => ({ startMs: s.startMs, kwh: baselineKw.has(s.startMs) ? baselineKw.get(s.startMs)! * 0.25 : s.kwh }));
+  const planBill = computeBill(rate.definition, onPlans, billOptions);
+  const baselineBill = computeBill(rate.definition, onBaselines, billOptions);
+  const peakOf = (xs: { kwh: number }[]) => xs.reduce((a, x) => Math.max(a, x.kwh * 4), 0);
+  const savings: MonthCosts['savings'] = {
+    total: baselineBill.total - planBill.total, planBill: planBill.total, baselineBill: baselineBill.total, nightsCompared,
+    planPeakKw: round2(peakOf(onPlans)), baselinePeakKw: round2(peakOf(onBaselines)),
+  };
   const [entered] = await db.select().from(billingPeaks).where(eq(billingPeaks.depotId, depot.id));
-  return { rate, series, nights, plannedDates: new Set(published.map((p) => p.serviceDate)), projected, entered, soFar: new Map() };
+  return { rate, series, nights, savings, plannedDates: new Set(published.map((p) => p.serviceDate)), projected, entered, soFar: new Map() };
 }
 
 /** The month to date and its peaks: they change only when another interval has passed or another day begun. */
@@ -275,7 +332,7 @@ export async function monthCosts(
     ratePlanName: base.rate.name,
     projected: base.projected,
     monthToDate,
-    savingsVsUnmanaged: round2(base.nights.reduce((a, n) => a + n.baselineCost - n.planCost, 0)),
+    savings: base.savings,
     peaks,
     nights: base.nights,
     sources: {

@@ -35,7 +35,12 @@ describe('costs', () => {
     expect(c.total).toBeCloseTo(c.energy + c.demand, 2);
     expect(c.savings).toBeCloseTo(c.baseline.total - c.total, 2);
     expect(c.perBus.map((b: { bus: string }) => b.bus)).toEqual(NUMBERS);
-    expect(c.perBus.reduce((a: number, b: { cost: number }) => a + b.cost, 0)).toBeCloseTo(c.total, 1);
+    // One set of numbers: the buses' costs add up to the night's total, and per mile divides it.
+    expect(c.perBus.reduce((a: number, b: { cost: number }) => a + b.cost, 0)).toBeCloseTo(c.total, 9);
+    expect(['arrival', 'timer']).toContain(c.baseline.kind);
+    expect(c.otherBaseline.kind).not.toBe(c.baseline.kind);
+    // The reference is the cheaper of the two when both deliver the plan's energy.
+    if (c.baseline.shortfallKwh === 0 && c.otherBaseline.shortfallKwh === 0) expect(c.baseline.total).toBeLessThanOrEqual(c.otherBaseline.total);
     // Next day's miles from the runs: (30 + 28) + (31 + 29) + (32 + 30).
     expect(c.miles).toBe(180);
     expect(c.costPerMile).toBeCloseTo(c.total / 180, 2);
@@ -63,6 +68,11 @@ describe('costs', () => {
     expect(night.planId).toBe(planId);
     expect(night.actualCoverage).toBeGreaterThan(0);
     expect(night.actualSiteEnergyCost).not.toBeNull();
+    // Demand is billed once a period: the saving is one bill minus the other, never above the baseline's bill.
+    expect(m.savings.nightsCompared).toBe(1);
+    expect(m.savings.total).toBeCloseTo(m.savings.baselineBill - m.savings.planBill, 9);
+    expect(m.savings.total).toBeLessThanOrEqual(m.savings.baselineBill);
+    expect(['arrival', 'timer']).toContain(night.baselineKind);
     expect(m.emissions.source).toMatch(/10,180 g per gallon/);
     expect(m.emissions.co2KgAvoided).toBeCloseTo(m.emissions.dieselGallonsAvoided * 10.18, 1);
   });

@@ -34,7 +34,7 @@ export function resetMail(p: { to: string; name: string; link: string; minutes: 
 
 export function planPublishedMail(p: {
   to: string; name: string; depot: string; night: string; version: number; publishedBy: string; buses: number; sessions: number;
-  currency: string; cost: number; baseline: number; short: string[]; link: string;
+  currency: string; cost: number; baseline: number; baselineName: string; short: string[]; link: string;
 }): OutgoingMail {
   const money = (v: number) => new Intl.NumberFormat('en-US', { style: 'currency', currency: p.currency }).format(v);
   return {
@@ -46,7 +46,7 @@ export function planPublishedMail(p: {
       `${p.publishedBy} published version ${p.version} of the charging plan for ${p.depot}, the night of ${p.night}.`,
       '',
       `Buses: ${p.buses}; plug-ins: ${p.sessions}.`,
-      `Projected electricity cost: ${money(p.cost)} (unmanaged charging: ${money(p.baseline)}).`,
+      `Projected electricity cost: ${money(p.cost)} (${p.baselineName.toLowerCase()}, within the same limits: ${money(p.baseline)}).`,
       p.short.length ? `Buses that cannot be fully charged: ${p.short.join('; ')}.` : 'Every bus gets the energy its runs need.',
       '',
       `Open the plan: ${p.link}`,

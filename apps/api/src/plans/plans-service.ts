@@ -1,7 +1,7 @@
 import { aliasedTable, and, desc, eq, sql } from 'drizzle-orm';
 import { DateTime } from 'luxon';
 import {
-  planResultSchema, type PlanComparison, type PlanDetail, type PlanResult, type PlanSummary,
+  baselineName, planResultSchema, type PlanComparison, type PlanDetail, type PlanResult, type PlanSummary,
 } from '@nightyard/contracts';
 import { localToMillis, parseScenario, type Scenario, type ScenarioInput } from '@nightyard/scheduling';
 import type { Db } from '../db/client';
@@ -220,7 +220,7 @@ async function notifyPublished(db: Db, mailer: Mailer, caller: AuthUser, plan: P
     await mailer.send(planPublishedMail({
       to: r.email, name: r.name, depot: depot!.name, night: DateTime.fromISO(plan.serviceDate).toFormat('cccc d LLLL yyyy'),
       version: plan.version, publishedBy: caller.name, buses: scenario.buses.length, sessions: result.sessions.length,
-      currency: scenario.tariff.currency ?? 'USD', cost: result.cost.total, baseline: result.baseline.total,
+      currency: scenario.tariff.currency ?? 'USD', cost: result.cost.total, baseline: result.baseline.total, baselineName: baselineName(result.baseline.kind),
       short: short.map((b) => `${b.id} (${b.shortfallKwh.toFixed(1)} kWh short: ${b.reason})`), link: link(`/plans/${plan.id}`),
     }));
   }

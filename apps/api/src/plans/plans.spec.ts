@@ -86,7 +86,7 @@ describe('plans', () => {
     const [mail] = await mailFor(yard.email);
     expect(mail!.subject).toMatch(/Charging plan published: Test depot, night of Wednesday 9 December 2026 \(version 1\)/);
     expect(mail!.text).toContain(`http://nightyard.test/plans/${first.id}`);
-    expect(mail!.text).toMatch(/Projected electricity cost: \$[\d,.]+ \(unmanaged charging: \$[\d,.]+\)/);
+    expect(mail!.text).toMatch(/Projected electricity cost: \$[\d,.]+ \((charge on arrival|timer), within the same limits: \$[\d,.]+\)/);
     expect(await mailFor(sup2.email)).toHaveLength(1);
     expect(await mailFor(fin.email, 1, 300)).toHaveLength(0);
     const again = await app.request().post(`/api/plans/${first.id}/publish`).set(as(sup)).send({ expectedPublishedId: null }).expect(409);

@@ -212,6 +212,6 @@ export function checkPlan(scenario: Json, plan: Json, options: CheckOptions = {}
   if (Math.abs(gap - plan.gap) > 1e-6) fail(`gap ${plan.gap}, recomputed ${gap}`);
   const anyShort = plan.buses.some((b: Json) => b.shortfallKwh > 1e-3);
   if (anyShort !== (plan.status === 'short')) fail(`status ${plan.status} but shortfall ${anyShort}`);
-  for (const key of ['energy', 'demand', 'total', 'peakKw', 'exceedsSiteLimit']) if (!(key in plan.baseline)) fail(`baseline lacks ${key}`);
+  for (const key of ['kind', 'energy', 'demand', 'total', 'peakKw', 'exceedsSiteLimit', 'shortfallKwh', 'shortfallCost']) if (!(key in plan.baseline)) fail(`baseline lacks ${key}`);
   return errors;
 }

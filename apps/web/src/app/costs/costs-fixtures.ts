@@ -29,18 +29,18 @@ export function monthCosts(overrides: Partial<MonthCosts> = {}): MonthCosts {
     ratePlanName: 'Invented Electric TOU',
     projected: bill(),
     monthToDate: bill({ total: 190.25, energyTotal: 143.75, demandTotal: 0, fixedTotal: 46.5, kwh: 1_200 }),
-    savingsVsUnmanaged: 312.4,
+    savings: { total: 312.4, planBill: 4_100.25, baselineBill: 4_412.65, nightsCompared: 2, planPeakKw: 185, baselinePeakKw: 410 },
     peaks: {
       facility: { kw: 185, at: '2026-12-02T23:15:00.000Z', source: 'actual' },
       periods: [{ name: 'on-peak', kw: 48, at: null }],
     },
     nights: [
       {
-        date: '2026-12-01', planId: '00000000-0000-4000-8000-0000000000a1', version: 1, planCost: 120.5, baselineCost: 290.1,
+        date: '2026-12-01', planId: '00000000-0000-4000-8000-0000000000a1', version: 1, planEnergyCost: 100.5, baselineEnergyCost: 150.1, baselineKind: 'timer', baselinePeakKw: 410,
         projectedSiteEnergyCost: 98.2, actualSiteEnergyCost: 101.7, projectedPeakKw: 160, actualPeakKw: 171.2, actualCoverage: 1,
       },
       {
-        date: '2026-12-02', planId: '00000000-0000-4000-8000-0000000000a2', version: 2, planCost: 110, baselineCost: 252.8,
+        date: '2026-12-02', planId: '00000000-0000-4000-8000-0000000000a2', version: 2, planEnergyCost: 90, baselineEnergyCost: 130.2, baselineKind: 'arrival', baselinePeakKw: 380,
         projectedSiteEnergyCost: 90, actualSiteEnergyCost: null, projectedPeakKw: 150, actualPeakKw: null, actualCoverage: 0,
       },
     ],
@@ -61,7 +61,8 @@ export function planCosts(overrides: Partial<PlanCosts> = {}): PlanCosts {
     energy: 100.5,
     demand: 20,
     total: 120.5,
-    baseline: { energy: 150.1, demand: 140, total: 290.1 },
+    baseline: { kind: 'timer', energy: 150.1, demand: 140, total: 290.1, peakKw: 410, shortfallKwh: 0 },
+    otherBaseline: { kind: 'arrival', total: 310.4, peakKw: 420, shortfallKwh: 0 },
     savings: 169.6,
     savingsShare: 0.5846,
     chargingKwh: 140.5,

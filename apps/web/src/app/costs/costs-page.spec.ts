@@ -61,9 +61,11 @@ describe('CostsPage', () => {
     expect(text(el.querySelector('.period-title'))).toBe('December 2026');
     expect(text(card('Projected bill for the period')?.querySelector('.card-value') ?? null)).toBe('$2,952.09');
     expect(text(card('Month to date')?.querySelector('.card-value') ?? null)).toBe('$190.25');
-    const savings = card('Savings against unmanaged charging')!;
+    const savings = card('Savings against the baselines')!;
     expect(text(savings.querySelector('.card-value'))).toBe('$312.40');
-    expect(text(savings)).toContain('2 published nights: plans $230.50 against $542.90 unmanaged.');
+    expect(text(savings)).toContain(
+      "2 published nights compared. The period's bill with the plans $4,100.25 (peak 185 kW) against $4,412.65 with each night's baseline (peak 410 kW), on planned loads.",
+    );
     const peak = card('Facility peak so far')!;
     expect(text(peak.querySelector('.card-value'))).toBe('185 kW');
     expect(text(peak)).toContain('from meter data');
@@ -140,16 +142,16 @@ describe('CostsPage', () => {
     expect(el.querySelector('#costs-import-heading')).toBeNull();
     expect(text(el.querySelector('.sources'))).toContain("You can read the costs. Finance and administrators import the utility's meter data.");
     // The figures themselves are there.
-    expect(text(card('Savings against unmanaged charging')?.querySelector('.card-value') ?? null)).toBe('$312.40');
+    expect(text(card('Savings against the baselines')?.querySelector('.card-value') ?? null)).toBe('$312.40');
   });
 
   it('gives the nights chart a description and a table alternative', async () => {
     await render(['finance']);
     const canvas = el.querySelector('ny-nights-chart canvas')!;
     expect(canvas.getAttribute('role')).toBe('img');
-    expect(canvas.getAttribute('aria-label')).toBe('Bar chart: plan cost and unmanaged charging cost of each night');
+    expect(canvas.getAttribute('aria-label')).toBe('Bar chart: charging energy cost of each night, planned and under its baseline');
     const summary = el.querySelector(`#${canvas.getAttribute('aria-describedby')}`)!;
-    expect(text(summary)).toContain('The plans cost $230.50 in all, against $542.90 for unmanaged charging: $312.40 saved.');
+    expect(text(summary)).toContain("Their charging energy costs $190.50 planned, against $280.30 under each night's baseline: $89.80 saved on energy");
     const alt = el.querySelector('ny-nights-chart details')!;
     expect(text(alt.querySelector('summary'))).toBe('The chart as a table');
     const rows = [...alt.querySelectorAll('tbody tr')].map((r) => [...r.children].map(text));

@@ -32,7 +32,7 @@ const PEAK_SOURCE: Record<MonthCosts['peaks']['facility']['source'], string> = {
 
 /**
  * The Costs section: one billing period's projected bill, month to date, savings against
- * unmanaged charging, peaks so far, the nights (chart and table), diesel and CO2 avoided, and
+ * the baselines (charge on arrival, timer), peaks so far, the nights (chart and table), diesel and CO2 avoided, and
  * the import of the utility's interval data.
  */
 @Component({
@@ -126,8 +126,7 @@ export class CostsPage {
     if (!m || !facts) return null;
     const c = m.currency;
     const tz = this.timezone();
-    const plan = m.nights.reduce((a, n) => a + n.planCost, 0);
-    const baseline = m.nights.reduce((a, n) => a + n.baselineCost, 0);
+    const saved = m.savings;
     const facility = m.peaks.facility;
     const facilityAt = instantAt(facility.at, tz);
     return {
@@ -140,11 +139,13 @@ export class CostsPage {
           : facts.state === 'past'
             ? `The whole period, ${kwh(m.monthToDate.kwh)}.`
             : `From ${facts.from} to now, ${kwh(m.monthToDate.kwh)}.`,
-      savings: money(m.savingsVsUnmanaged, c),
-      savingsPositive: m.savingsVsUnmanaged > 0,
-      savingsNote: m.nights.length
-        ? `${m.nights.length === 1 ? '1 published night' : `${m.nights.length} published nights`}: plans ${money(plan, c)} against ${money(baseline, c)} unmanaged.`
-        : 'No published plan in this period yet.',
+      savings: money(saved.total, c),
+      savingsPositive: saved.total > 0,
+      savingsNote: saved.nightsCompared
+        ? `${saved.nightsCompared === 1 ? '1 published night' : `${saved.nightsCompared} published nights`} compared. ` +
+          `The period's bill with the plans ${money(saved.planBill, c)} (peak ${kw(saved.planPeakKw)}) against ` +
+          `${money(saved.baselineBill, c)} with each night's baseline (peak ${kw(saved.baselinePeakKw)}), on planned loads.`
+        : 'No published plan in this period to compare yet.',
       peak: kw(facility.kw),
       peakNote:
         facility.kw > 0

@@ -7,7 +7,7 @@ import { planCosts } from './costs-fixtures';
 import { NightCostsPage } from './night-costs-page';
 
 describe('NightCostsPage', () => {
-  it('shows the night against unmanaged charging and the cost per bus and per mile', async () => {
+  it('shows the night against its baseline (and the other beside it) and the cost per bus and per mile', async () => {
     TestBed.configureTestingModule({ providers: [provideRouter([]), provideHttpClient(), provideHttpClientTesting()] });
     const mock = TestBed.inject(HttpTestingController);
     const fixture = TestBed.createComponent(NightCostsPage);
@@ -22,7 +22,9 @@ describe('NightCostsPage', () => {
 
     expect(text(el.querySelector('h1'))).toMatch(/^Night of Tuesday/);
     expect(text(el.querySelector('.savings .card-value'))).toBe('$169.60');
-    expect(text(el.querySelector('.savings'))).toContain('58.5 % of the unmanaged cost');
+    expect(text(el.querySelector('.savings'))).toContain("58.5 % of the baseline's cost");
+    expect(text(el.querySelector('.cards'))).toContain('Baseline: timer');
+    expect(text(el.querySelector('.cards'))).toContain('Charge on arrival: $310.40, peak 420 kW');
     const rows = [...el.querySelectorAll('table.buses tbody tr')].map((r) => [...r.children].map(text));
     expect(rows).toEqual([
       ['201', '80 kWh', '$70.20', '58', '$1.21'],

@@ -5,12 +5,13 @@ import { MatProgressBarModule } from '@angular/material/progress-bar';
 import { RouterLink } from '@angular/router';
 import type { PlanCosts } from '@nightyard/contracts';
 import { toApiProblem } from '../core/api-error';
+import { baselineName } from '../plans/plan-format';
 import { CostsApi } from './costs-api';
 import { cents, kwh, longDay, money, num, percent } from './costs-format';
 import { CsvExportButton } from './csv-export-button';
 import type { CsvTable } from './csv';
 
-/** One published night's projected cost: against unmanaged charging, per bus and per mile. */
+/** One published night's projected cost: against its baseline, per bus and per mile. */
 @Component({
   selector: 'ny-night-costs-page',
   imports: [CsvExportButton, MatButtonModule, MatIconModule, MatProgressBarModule, RouterLink],
@@ -42,8 +43,11 @@ export class NightCostsPage {
     return {
       total: money(p.total, c),
       parts: `Energy ${money(p.energy, c)}, demand ${money(p.demand, c)}`,
+      baselineName: baselineName(p.baseline.kind),
       baseline: money(p.baseline.total, c),
-      baselineParts: `Energy ${money(p.baseline.energy, c)}, demand ${money(p.baseline.demand, c)}`,
+      baselineParts: `Energy ${money(p.baseline.energy, c)}, demand ${money(p.baseline.demand, c)}, peak ${num(p.baseline.peakKw, 0)} kW` +
+        (p.baseline.shortfallKwh > 0.05 ? `; ${num(p.baseline.shortfallKwh, 0)} kWh it would not deliver, counted at the plan's average price` : ''),
+      otherBaseline: p.otherBaseline ? `${baselineName(p.otherBaseline.kind)}: ${money(p.otherBaseline.total, c)}, peak ${num(p.otherBaseline.peakKw, 0)} kW` : null,
       savings: money(p.savings, c),
       savingsShare: percent(p.savingsShare),
       savingsPositive: p.savings > 0,

@@ -25,7 +25,7 @@ const FALLBACK: Colours = { plan: '#0d6b5e', baseline: '#c78a12', projected: '#4
 let nextId = 0;
 
 /**
- * The nights of a billing period as grouped bars: plan cost against unmanaged charging, or the
+ * The nights of a billing period as grouped bars: charging energy cost planned and under the night's baseline, or the
  * site's energy cost as projected against as metered. Described in words for screen readers, with
  * the same figures as a table under it.
  */
@@ -55,8 +55,8 @@ export class NightsChart {
     const c = this.colours();
     return this.view() === 'savings'
       ? [
-          { label: 'Plan cost', colour: c.plan, data: nights.map((n) => n.planCost) },
-          { label: 'Unmanaged charging', colour: c.baseline, data: nights.map((n) => n.baselineCost) },
+          { label: 'Charging energy, planned', colour: c.plan, data: nights.map((n) => n.planEnergyCost) },
+          { label: 'Charging energy, baseline', colour: c.baseline, data: nights.map((n) => n.baselineEnergyCost) },
         ]
       : [
           { label: 'Site energy, projected', colour: c.projected, data: nights.map((n) => n.projectedSiteEnergyCost) },
@@ -112,7 +112,7 @@ export class NightsChart {
 
   protected readonly label = computed(() =>
     this.view() === 'savings'
-      ? 'Bar chart: plan cost and unmanaged charging cost of each night'
+      ? 'Bar chart: charging energy cost of each night, planned and under its baseline'
       : 'Bar chart: site energy cost of each night, projected and metered',
   );
 
@@ -122,9 +122,10 @@ export class NightsChart {
     const c = this.currency();
     const count = nights.length === 1 ? '1 night' : `${nights.length} nights`;
     if (this.view() === 'savings') {
-      const plan = nights.reduce((a, n) => a + n.planCost, 0);
-      const baseline = nights.reduce((a, n) => a + n.baselineCost, 0);
-      return `${count} with a published plan. The plans cost ${money(plan, c)} in all, against ${money(baseline, c)} for unmanaged charging: ${money(baseline - plan, c)} saved. Each night's figures are in the table under the chart.`;
+      const compared = nights.filter((n) => n.baselineEnergyCost !== null);
+      const plan = compared.reduce((a, n) => a + n.planEnergyCost, 0);
+      const baseline = compared.reduce((a, n) => a + n.baselineEnergyCost!, 0);
+      return `${count} with a published plan. Their charging energy costs ${money(plan, c)} planned, against ${money(baseline, c)} under each night's baseline: ${money(baseline - plan, c)} saved on energy (demand is billed on the period's peak, see the savings card). Each night's figures are in the table under the chart.`;
     }
     const metered = nights.filter((n) => n.actualSiteEnergyCost !== null);
     if (!metered.length) return `${count} with a published plan; no meter data covers any of them yet, so only the projected site energy cost is shown.`;
@@ -142,8 +143,8 @@ export class NightsChart {
     return this.nights().map((n) => ({
       key: n.planId,
       day: shortDay(n.date),
-      plan: money(n.planCost, c),
-      baseline: money(n.baselineCost, c),
+      plan: money(n.planEnergyCost, c),
+      baseline: n.baselineEnergyCost === null ? '—' : money(n.baselineEnergyCost, c),
       projected: money(n.projectedSiteEnergyCost, c),
       metered:
         n.actualSiteEnergyCost === null ? '—' : `${money(n.actualSiteEnergyCost, c)}${fullyMetered(n) ? '' : ' (part of the night)'}`,
@@ -154,9 +155,9 @@ export class NightsChart {
   protected readonly csv = computed<CsvTable>(() => {
     const c = this.currency();
     return {
-      header: ['Night', `Plan cost (${c})`, `Unmanaged charging cost (${c})`, `Site energy projected (${c})`, `Site energy metered (${c})`],
+      header: ['Night', `Charging energy, planned (${c})`, `Charging energy, baseline (${c})`, `Site energy projected (${c})`, `Site energy metered (${c})`],
       rows: this.nights().map((n) => [
-        n.date, cents(n.planCost), cents(n.baselineCost), cents(n.projectedSiteEnergyCost),
+        n.date, cents(n.planEnergyCost), n.baselineEnergyCost === null ? null : cents(n.baselineEnergyCost), cents(n.projectedSiteEnergyCost),
         n.actualSiteEnergyCost === null ? null : cents(n.actualSiteEnergyCost),
       ]),
     };

@@ -1,6 +1,7 @@
 import { ChangeDetectionStrategy, Component, computed, input } from '@angular/core';
 import { RouterLink } from '@angular/router';
 import type { MonthCosts } from '@nightyard/contracts';
+import { baselineName } from '../plans/plan-format';
 import { cents, fullyMetered, kw, money, monthKey, percent, shortDay, signedMoney } from './costs-format';
 import { CsvExportButton } from './csv-export-button';
 import type { CsvTable } from './csv';
@@ -9,7 +10,8 @@ import type { CsvTable } from './csv';
 const SAME = 0.005;
 
 /**
- * The billing period's published nights: what each plan costs against unmanaged charging, and the
+ * The billing period's published nights: each plan's charging energy cost against its baseline's
+ * (demand is the period's, shown on the savings card), and the
  * site's energy cost over the plan's hours as projected and as metered. Each night links to its
  * costs per bus and per mile.
  */
@@ -29,17 +31,19 @@ export class NightsTable {
   protected readonly rows = computed(() => {
     const c = this.currency();
     return this.month().nights.map((n) => {
-      const saving = n.baselineCost - n.planCost;
+      const saving = n.baselineEnergyCost === null ? null : n.baselineEnergyCost - n.planEnergyCost;
       const diff = fullyMetered(n) ? n.actualSiteEnergyCost! - n.projectedSiteEnergyCost : null;
       return {
         planId: n.planId,
         date: n.date,
         day: shortDay(n.date),
         version: n.version,
-        planCost: money(n.planCost, c),
-        baselineCost: money(n.baselineCost, c),
-        saving: money(saving, c),
-        savingClass: saving > SAME ? 'saving' : saving < -SAME ? 'over' : '',
+        planEnergy: money(n.planEnergyCost, c),
+        baselineEnergy: n.baselineEnergyCost === null ? null : money(n.baselineEnergyCost, c),
+        baselineName: n.baselineKind ? baselineName(n.baselineKind).toLowerCase() : null,
+        saving: saving === null ? null : money(saving, c),
+        savingClass: saving === null ? '' : saving > SAME ? 'saving' : saving < -SAME ? 'over' : '',
+        baselinePeak: n.baselinePeakKw === null ? null : kw(n.baselinePeakKw),
         projected: money(n.projectedSiteEnergyCost, c),
         actual: n.actualSiteEnergyCost === null ? null : money(n.actualSiteEnergyCost, c),
         partial: n.actualSiteEnergyCost !== null && !fullyMetered(n),
@@ -56,12 +60,14 @@ export class NightsTable {
     const nights = this.month().nights;
     const c = this.currency();
     const sum = (f: (n: MonthCosts['nights'][number]) => number) => nights.reduce((a, n) => a + f(n), 0);
-    const plan = sum((n) => n.planCost);
-    const baseline = sum((n) => n.baselineCost);
+    // Totals from the unrounded figures; the saving over the nights that have a baseline.
+    const compared = nights.filter((n) => n.baselineEnergyCost !== null);
+    const plan = sum((n) => n.planEnergyCost);
+    const baseline = compared.reduce((a, n) => a + n.baselineEnergyCost!, 0);
     return {
-      planCost: money(plan, c),
-      baselineCost: money(baseline, c),
-      saving: money(baseline - plan, c),
+      planEnergy: money(plan, c),
+      baselineEnergy: money(baseline, c),
+      saving: money(baseline - compared.reduce((a, n) => a + n.planEnergyCost, 0), c),
       projected: money(sum((n) => n.projectedSiteEnergyCost), c),
     };
   });
@@ -70,15 +76,17 @@ export class NightsTable {
     const c = this.currency();
     return {
       header: [
-        'Night', 'Plan version', `Plan cost (${c})`, `Unmanaged charging cost (${c})`, `Saving (${c})`,
+        'Night', 'Plan version', `Charging energy, planned (${c})`, 'Baseline', `Charging energy, baseline (${c})`, `Energy saving (${c})`,
         `Projected site energy cost (${c})`, `Metered site energy cost (${c})`, `Metered minus projected (${c})`,
-        'Projected peak (kW)', 'Metered peak (kW)', 'Metered share of the night (%)',
+        'Projected peak (kW)', 'Baseline peak (kW)', 'Metered peak (kW)', 'Metered share of the night (%)',
       ],
       rows: this.month().nights.map((n) => [
-        n.date, n.version, cents(n.planCost), cents(n.baselineCost), cents(n.baselineCost - n.planCost),
+        n.date, n.version, cents(n.planEnergyCost), n.baselineKind ? baselineName(n.baselineKind) : null,
+        n.baselineEnergyCost === null ? null : cents(n.baselineEnergyCost),
+        n.baselineEnergyCost === null ? null : cents(n.baselineEnergyCost - n.planEnergyCost),
         cents(n.projectedSiteEnergyCost), n.actualSiteEnergyCost === null ? null : cents(n.actualSiteEnergyCost),
         fullyMetered(n) ? cents(n.actualSiteEnergyCost! - n.projectedSiteEnergyCost) : null,
-        n.projectedPeakKw, n.actualPeakKw, Math.round(n.actualCoverage * 1000) / 10,
+        n.projectedPeakKw, n.baselinePeakKw, n.actualPeakKw, Math.round(n.actualCoverage * 1000) / 10,
       ]),
     };
   });

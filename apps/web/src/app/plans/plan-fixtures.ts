@@ -12,7 +12,7 @@ export function planResult(overrides: Partial<PlanResult> = {}): PlanResult {
   return {
     status: 'short',
     cost: { energy: 10, demand: 90, total: 100 },
-    baseline: { energy: 20, demand: 380, total: 400, peakKw: 190, exceedsSiteLimit: true },
+    baseline: { kind: 'arrival', energy: 20, demand: 380, total: 400, peakKw: 190, exceedsSiteLimit: false, shortfallKwh: 0, shortfallCost: 0 },
     lowerBound: 99,
     gap: 0.01,
     solveMs: 12,

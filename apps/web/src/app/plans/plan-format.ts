@@ -1,4 +1,4 @@
-import type { PlanDetail, PlanResult, PlanState, PlanSummary } from '@nightyard/contracts';
+import { baselineName, type PlanDetail, type PlanResult, type PlanState, type PlanSummary } from '@nightyard/contracts';
 import { dayTimeAt, timeAt, weekdayTimeAt } from '../core/depot-time';
 
 /** What stops a short bus, in plain words (the engine's `reason` codes). */
@@ -164,18 +164,53 @@ export function hourTicks(result: Pick<PlanResult, 'slots'>, timeZone: string): 
   return ticks;
 }
 
+export { baselineName };
+
+/**
+ * A night against its baseline the way the costs are billed: the energy saving of the night and
+ * its peak beside the baseline's (demand is billed once a billing period, so a night does not
+ * claim a demand saving of its own). A baseline that delivers less carries its shortfall, valued
+ * at the plan's average price, in its energy.
+ */
+export interface NightComparison {
+  baselineName: string;
+  /** The other baseline, shown beside it. */
+  otherName: string | null;
+  otherEnergy: number | null;
+  planEnergy: number;
+  baselineEnergy: number;
+  energySaving: number;
+  energySavingShare: number;
+  baselinePeakKw: number;
+  baselineShortKwh: number;
+}
+
+export function nightComparison(result: PlanResult): NightComparison {
+  const base = result.baseline;
+  const baselineEnergy = base.energy + (base.shortfallCost ?? 0);
+  const otherKind = base.kind === 'arrival' ? 'timer' : base.kind === 'timer' ? 'arrival' : null;
+  const other = otherKind && result.baselines ? result.baselines[otherKind] : null;
+  const energySaving = baselineEnergy - result.cost.energy;
+  return {
+    baselineName: baselineName(base.kind),
+    otherName: other ? baselineName(otherKind) : null,
+    otherEnergy: other ? other.energy + (other.shortfallCost ?? 0) : null,
+    planEnergy: result.cost.energy,
+    baselineEnergy,
+    energySaving,
+    energySavingShare: baselineEnergy > 0 ? energySaving / baselineEnergy : 0,
+    baselinePeakKw: base.peakKw,
+    baselineShortKwh: base.shortfallKwh ?? 0,
+  };
+}
+
 /** The figures of the summary cards. */
-export interface PlanFigures {
+export interface PlanFigures extends NightComparison {
   cost: number;
   energyCost: number;
   demandCost: number;
-  baseline: number;
-  savings: number;
-  savingsShare: number;
   peakKw: number;
   limitKw: number;
-  baselinePeakKw: number;
-  baselineOverLimit: boolean;
   lowerBound: number;
   gap: number;
   /** False when the engine proved no useful bound (e.g. 0 while buses are short). */
@@ -185,20 +220,14 @@ export interface PlanFigures {
 }
 
 export function planFigures(result: PlanResult): PlanFigures {
-  const baseline = result.baseline.total;
-  const savings = baseline - result.cost.total;
   const short = result.buses.filter((b) => b.shortfallKwh > SHORT_KWH);
   return {
+    ...nightComparison(result),
     cost: result.cost.total,
     energyCost: result.cost.energy,
     demandCost: result.cost.demand,
-    baseline,
-    savings,
-    savingsShare: baseline > 0 ? savings / baseline : 0,
     peakKw: Math.max(0, ...result.slots.map((s) => s.loadKw)),
     limitKw: Math.min(...result.slots.map((s) => s.limitKw)),
-    baselinePeakKw: result.baseline.peakKw,
-    baselineOverLimit: result.baseline.exceedsSiteLimit,
     lowerBound: result.lowerBound,
     gap: result.gap,
     boundProven: result.lowerBound > 0 && result.gap < 0.999,

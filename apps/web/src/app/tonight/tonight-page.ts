@@ -11,7 +11,7 @@ import { CurrentDepot } from '../depots/current-depot';
 import { formatServiceDay } from '../depots/depot-format';
 import { DepotStore } from '../depots/depot-store';
 import { NightStore, type NightDepot } from '../depots/night-store';
-import { money, naturalCompare, num, when } from '../plans/plan-format';
+import { money, naturalCompare, nightComparison, num, when } from '../plans/plan-format';
 import { PlansApi } from '../plans/plans-api';
 import { SectionIntro } from '../sections/section-intro';
 import { NIGHTS_BACK, candidateNights, liveCounts, liveStateOf, LIVE_STATES, peakLoad, shortBuses } from './tonight-format';
@@ -24,7 +24,7 @@ const PLAN_READERS = SECTIONS.find((s) => s.key === 'plans')?.roles ?? [];
 
 /**
  * The night ahead at a glance: the depot's summary, tonight's published plan (buses, plug-ins,
- * cost against unmanaged charging, peak load, short buses) and the chargers' live states.
+ * energy cost against the cheaper baseline, peak load, short buses) and the chargers' live states.
  */
 @Component({
   selector: 'ny-tonight-page',
@@ -61,7 +61,7 @@ export class TonightPage {
     const r = p.result;
     const short = shortBuses(p);
     const peak = peakLoad(p);
-    const saving = r ? r.baseline.total - r.cost.total : null;
+    const versus = r ? nightComparison(r) : null;
     return {
       id: p.id,
       date: p.serviceDate,
@@ -75,10 +75,14 @@ export class TonightPage {
       plugIns: r?.sessions.length ?? 0,
       busesPluggedIn: r ? new Set(r.sessions.map((s) => s.bus)).size : 0,
       cost: r ? money(r.cost.total, p.currency) : null,
-      baseline: r ? money(r.baseline.total, p.currency) : null,
-      saving: saving === null ? null : money(Math.abs(saving), p.currency),
-      saves: saving !== null && saving >= 0,
-      savingPct: saving !== null && r && r.baseline.total > 0 ? num((saving / r.baseline.total) * 100, 0) : null,
+      energy: versus ? money(versus.planEnergy, p.currency) : null,
+      baselineName: versus?.baselineName ?? null,
+      baseline: versus ? money(versus.baselineEnergy, p.currency) : null,
+      other: versus?.otherName ? `${versus.otherName}: ${money(versus.otherEnergy!, p.currency)}` : null,
+      baselineShort: versus && versus.baselineShortKwh > 0.05 ? `${num(versus.baselineShortKwh)} kWh` : null,
+      saving: versus ? money(Math.abs(versus.energySaving), p.currency) : null,
+      saves: versus !== null && versus.energySaving >= 0,
+      savingPct: versus && versus.baselineEnergy > 0 ? num(versus.energySavingShare * 100, 0) : null,
       peak: peak
         ? {
             ...peak,
@@ -89,7 +93,6 @@ export class TonightPage {
           }
         : null,
       baselinePeak: r ? `${num(r.baseline.peakKw)} kW` : null,
-      baselineOver: r?.baseline.exceedsSiteLimit ?? false,
       short,
       shortKwh: short.map((s) => `${num(s.shortfallKwh)} kWh`),
     };

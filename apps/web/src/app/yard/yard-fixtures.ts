@@ -59,7 +59,7 @@ export function plan(overrides: Partial<PlanDetail> = {}): PlanDetail {
     result: {
       status: 'optimal',
       cost: { energy: 100, demand: 20, total: 120 },
-      baseline: { energy: 150, demand: 80, total: 230, peakKw: 300, exceedsSiteLimit: false },
+      baseline: { kind: 'timer', energy: 150, demand: 80, total: 230, peakKw: 300, exceedsSiteLimit: false, shortfallKwh: 0, shortfallCost: 0 },
       lowerBound: 120,
       gap: 0,
       solveMs: 100,
