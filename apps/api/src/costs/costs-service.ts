@@ -278,13 +278,13 @@ const schoolDaysQuery = (db: Db, name: string) => db
   .where(and(eq(runs.depotId, sql.placeholder('depotId')), gte(runs.serviceDate, sql.placeholder('from')), lt(runs.serviceDate, sql.placeholder('to'))))
   .prepare(name);
 
-/** Miles as driven, else the energy used over the bus's kWh per mile. */
+/** Miles as driven (runs back at the depot by now), else the energy used over the bus's kWh per mile. */
 const milesQuery = (db: Db, name: string) => db
   .select({ miles: sql<number>`coalesce(sum(coalesce(${runs.miles}, coalesce(${runs.kwh}, 0) / ${buses.kwhPerMile})), 0)`.mapWith(Number) })
   .from(runs)
   .innerJoin(buses, eq(buses.id, runs.busId))
   .where(and(eq(runs.depotId, sql.placeholder('depotId')), gte(runs.serviceDate, sql.placeholder('from')), lt(runs.serviceDate, sql.placeholder('to')),
-    lte(runs.serviceDate, sql.placeholder('today'))))
+    lte(runs.pullIn, sql.placeholder('now'))))
   .prepare(name);
 
 /**
@@ -303,12 +303,11 @@ export async function monthCosts(
   const periodStart = period.start.toISODate()!;
   const periodEnd = period.end.toISODate()!;
 
-  // Runs change without a version to compare, and the miles count up to today: both are read
-  // each time, beside the version.
-  const today = DateTime.fromJSDate(now, { zone }).toISODate()!;
+  // Runs change without a version to compare, and the miles count the runs driven by now: both
+  // are read each time, beside the version.
   const [days, milesRows, version] = await Promise.all([
     prepared(db, 'month_school_days', schoolDaysQuery).execute({ depotId, from: periodStart, to: periodEnd }),
-    prepared(db, 'month_miles_to_date', milesQuery).execute({ depotId, from: periodStart, to: periodEnd, today }),
+    prepared(db, 'month_miles_driven', milesQuery).execute({ depotId, from: periodStart, to: periodEnd, now: now.toISOString() }),
     cache
       ? monthInputsVersion(db, depot, {
         plansFrom: period.start.minus({ days: 4 }).toISODate()!, plansTo: periodEnd, periodStart,

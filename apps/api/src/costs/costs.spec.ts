@@ -5,9 +5,11 @@ import { billingPeaks, meterIntervals } from '../db/schema';
 import { createDepot } from '../testing/depot-fixture';
 import { addBuses, dayRuns } from '../testing/fleet-fixture';
 import { publishedPlan } from '../testing/plan-fixture';
-import { createOrganisation, createTestApp, type TestUser } from '../testing/test-app';
+import { createOrganisation, createTestApp, signInAgain, TEST_START, type TestUser } from '../testing/test-app';
 
-const app = createTestApp();
+// Plans are published before their night; the meter files are imported the afternoon after it.
+let now = TEST_START;
+const app = createTestApp({ clock: () => now });
 const fixture = (name: string) => readFileSync(new URL(`./fixtures/${name}`, import.meta.url), 'utf8');
 let fin: TestUser;
 let sup: TestUser;
@@ -26,6 +28,8 @@ beforeAll(async () => {
     await app.request().put(`/api/depots/${depotId}/service-days/${date}`).set(as(sup)).send({ forecastLowF: 30, runs: dayRuns(date, NUMBERS, () => 35) }).expect(200);
   }
   planId = await publishedPlan(app, sup, depotId, '2026-12-02');
+  now = new Date('2026-12-03T15:00:00-06:00');
+  await signInAgain(app, fin, sup, yard);
 });
 
 describe('costs', () => {
@@ -73,6 +77,9 @@ describe('costs', () => {
     expect(m.savings.total).toBeCloseTo(m.savings.baselineBill - m.savings.planBill, 9);
     expect(m.savings.total).toBeLessThanOrEqual(m.savings.baselineBill);
     expect(['arrival', 'timer']).toContain(night.baselineKind);
+    // Only runs driven by now (Thursday 15:00): Wednesday's 180 miles and Thursday morning's 93,
+    // not Thursday afternoon's, still to come.
+    expect(m.emissions.miles).toBe(180 + 93);
     expect(m.emissions.source).toMatch(/10,180 g per gallon/);
     expect(m.emissions.co2KgAvoided).toBeCloseTo(m.emissions.dieselGallonsAvoided * 10.18, 1);
   });

@@ -6,6 +6,8 @@ import { checkIntervals, parseGreenButtonCsv, parseGreenButtonXml } from './gree
 
 const fixture = (name: string) => readFileSync(new URL(`./fixtures/${name}`, import.meta.url), 'utf8');
 const ZONE = 'America/Chicago';
+/** The readings' night is over: the files were exported the next afternoon. */
+const AFTER = DateTime.fromISO('2026-12-03T15:00', { zone: ZONE }).toMillis();
 const period = [DateTime.fromISO('2026-12-01', { zone: ZONE }).toMillis(), DateTime.fromISO('2027-01-01', { zone: ZONE }).toMillis()] as const;
 
 function fields(fn: () => unknown): Record<string, string> {
@@ -30,7 +32,7 @@ describe('Green Button XML (ESPI)', () => {
   });
 
   it('reports the duplicate and the gap', () => {
-    const checked = checkIntervals(file, ...period, ZONE);
+    const checked = checkIntervals(file, ...period, ZONE, AFTER);
     expect(checked.duplicates).toBe(1);
     expect(checked.intervals).toHaveLength(23);
     expect(checked.gaps.map((g) => [DateTime.fromMillis(g.fromMs, { zone: ZONE }).toFormat('HH:mm'), DateTime.fromMillis(g.toMs, { zone: ZONE }).toFormat('HH:mm')])).toEqual([['02:15', '02:30']]);
@@ -54,14 +56,25 @@ describe('Green Button CSV', () => {
   it('refuses mixed interval lengths, unknown units and readings outside the period', () => {
     const text = fixture('green-button-evening.csv');
     const mixed = parseGreenButtonCsv(text.replace('22:15,22:29', '22:15,22:59'), ZONE);
-    expect(fields(() => checkIntervals(mixed, ...period, ZONE)).message).toMatch(/mixes interval lengths \(15, 45 minutes\)/);
+    expect(fields(() => checkIntervals(mixed, ...period, ZONE, AFTER)).message).toMatch(/mixes interval lengths \(15, 45 minutes\)/);
     expect(fields(() => parseGreenButtonCsv(text.replace('7.50,kWh', '7.50,therms'), ZONE))['line 7.UNITS']).toMatch(/"therms" is not supported/);
     const november = [DateTime.fromISO('2026-11-01', { zone: ZONE }).toMillis(), DateTime.fromISO('2026-12-01', { zone: ZONE }).toMillis()] as const;
-    expect(fields(() => checkIntervals(parseGreenButtonCsv(text, ZONE), ...november, ZONE)).message).toMatch(/8 readings lie outside the billing period/);
+    expect(fields(() => checkIntervals(parseGreenButtonCsv(text, ZONE), ...november, ZONE, AFTER)).message).toMatch(/8 readings lie outside the billing period/);
+  });
+
+  it('refuses readings of intervals that have not ended yet, naming one', () => {
+    // Common practice: a meter reports an interval once it has closed. 22:00-22:15 ends at 22:15.
+    const file = parseGreenButtonCsv(fixture('green-button-evening.csv'), ZONE);
+    const at2210 = DateTime.fromISO('2026-12-02T22:10', { zone: ZONE }).toMillis();
+    const err = fields(() => checkIntervals(file, ...period, ZONE, at2210));
+    expect(err.message).toMatch(/8 readings end after now \(2026-12-02 22:10\), e.g. the interval from 2026-12-02 22:00/);
+    expect(err.intervals).toBe('Readings in the future');
+    const at2400 = DateTime.fromISO('2026-12-03T00:00', { zone: ZONE }).toMillis();
+    expect(checkIntervals(file, ...period, ZONE, at2400).intervals).toHaveLength(8);
   });
 
   it('refuses the same interval twice with two different readings', () => {
     const text = fixture('green-button-evening.csv') + 'Electric usage,2026-12-02,22:00,22:14,9.00,kWh,$0.61,\n';
-    expect(fields(() => checkIntervals(parseGreenButtonCsv(text, ZONE), ...period, ZONE))['2026-12-02 22:00']).toMatch(/Two different readings/);
+    expect(fields(() => checkIntervals(parseGreenButtonCsv(text, ZONE), ...period, ZONE, AFTER))['2026-12-02 22:00']).toMatch(/Two different readings/);
   });
 });

@@ -181,8 +181,8 @@ export interface IntervalCheck {
   gaps: { fromMs: number; toMs: number }[];
 }
 
-/** Uniform length, inside the billing period, duplicates merged (same value) or refused. */
-export function checkIntervals(file: MeterFile, periodStartMs: number, periodEndMs: number, zone: string): IntervalCheck {
+/** Uniform length, inside the billing period, none ending after now, duplicates merged (same value) or refused. */
+export function checkIntervals(file: MeterFile, periodStartMs: number, periodEndMs: number, zone: string, nowMs: number): IntervalCheck {
   const lengths = [...new Set(file.intervals.map((i) => i.minutes))];
   if (!file.intervals.length) fail('The file has no readings', { file: 'Empty' });
   if (lengths.length > 1) fail(`The file mixes interval lengths (${lengths.join(', ')} minutes): export one length`, { intervals: 'Mixed lengths' });
@@ -192,6 +192,13 @@ export function checkIntervals(file: MeterFile, periodStartMs: number, periodEnd
   const outside = file.intervals.filter((i) => i.startMs < periodStartMs || i.startMs + minutes * 60_000 > periodEndMs);
   if (outside.length) {
     fail(`${outside.length} readings lie outside the billing period ${local(periodStartMs)} to ${local(periodEndMs)}, e.g. ${local(outside[0]!.startMs)}`, { intervals: 'Outside the billing period' });
+  }
+  // A meter cannot have read an interval that has not ended yet: the file is mislabelled (zone,
+  // date) or not a meter's.
+  const future = file.intervals.filter((i) => i.startMs + minutes * 60_000 > nowMs);
+  if (future.length) {
+    fail(`${future.length} readings end after now (${local(nowMs)}), e.g. the interval from ${local(future[0]!.startMs)}: a meter only reads intervals that have passed; check the file's dates and time zone`,
+      { intervals: 'Readings in the future' });
   }
   const byStart = new Map<number, MeterInterval>();
   let duplicates = 0;

@@ -30,7 +30,7 @@ export async function importMeterData(
   const rate = await ratePlanOn(db, depot, req.billingPeriodStart);
   // Reading, checking and measuring a month of readings runs in a worker thread.
   const { format, checked, measured } = await runInPool({
-    kind: 'meter-file', content: req.content, zone, periodStartMs: period.start.toMillis(), periodEndMs: period.end.toMillis(), rate: rate.definition,
+    kind: 'meter-file', content: req.content, zone, periodStartMs: period.start.toMillis(), periodEndMs: period.end.toMillis(), nowMs: now.getTime(), rate: rate.definition,
   });
   const file = { format };
   const local = (ms: number) => DateTime.fromMillis(ms, { zone }).toFormat("yyyy-MM-dd'T'HH:mm");

@@ -129,9 +129,10 @@ describe('peaks so far', () => {
 describe('meter data', () => {
   const file = (kwh: number) =>
     ['TYPE,DATE,START TIME,END TIME,USAGE,UNITS', ...Array.from({ length: 8 }, (_, k) => {
-      const m = (22 * 60 + k * 15);
+      // The small hours of the period's first day: read before the test clock's afternoon.
+      const m = (1 * 60 + k * 15);
       const hhmm = (t: number) => `${String(Math.floor(t / 60)).padStart(2, '0')}:${String(t % 60).padStart(2, '0')}`;
-      return `Electric usage,2026-12-02,${hhmm(m)},${hhmm(m + 14)},${kwh},kWh`;
+      return `Electric usage,2026-12-01,${hhmm(m)},${hhmm(m + 14)},${kwh},kWh`;
     })].join('\n');
   const send = (depotId: string, kwh: number) =>
     app.request().post(`/api/depots/${depotId}/meter-data`).set(as(boss)).send({ fileName: 'night.csv', content: file(kwh), billingPeriodStart: '2026-12-01' });

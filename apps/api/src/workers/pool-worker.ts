@@ -20,7 +20,7 @@ export type PoolTask =
   | { kind: 'plan'; scenario: Scenario }
   | { kind: 'replan'; scenario: Scenario; state: ReplanState }
   | { kind: 'runs-csv'; text: string; date: string }
-  | { kind: 'meter-file'; content: string; zone: string; periodStartMs: number; periodEndMs: number; rate: RatePlanDefinition }
+  | { kind: 'meter-file'; content: string; zone: string; periodStartMs: number; periodEndMs: number; nowMs: number; rate: RatePlanDefinition }
   | { kind: 'hash-password'; password: string; rounds: number }
   | { kind: 'check-password'; password: string; hash: string };
 
@@ -100,7 +100,7 @@ async function perform(task: PoolTask): Promise<unknown> {
     }
     case 'meter-file': {
       const file = task.content.trimStart().startsWith('<') ? parseGreenButtonXml(task.content) : parseGreenButtonCsv(task.content, task.zone);
-      const checked = checkIntervals(file, task.periodStartMs, task.periodEndMs, task.zone);
+      const checked = checkIntervals(file, task.periodStartMs, task.periodEndMs, task.zone, task.nowMs);
       const measured = peaksOf(task.rate, checked.intervals, { zone: task.zone, intervalMinutes: checked.minutes });
       return { format: file.format, checked, measured } satisfies MeterFileReading;
     }

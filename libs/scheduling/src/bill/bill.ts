@@ -58,9 +58,9 @@ export function computeBill(def: RatePlanDefinition, intervals: readonly Interva
   const periodPeak = new Map<string, { kw: number; at: number | null; rate: number }>();
   let facility = { kw: 0, at: null as number | null, rate: 0 };
   let kwhTotal = 0;
+  const classify = classifier(def, opts.zone);
   for (const i of intervals) {
-    const local = DateTime.fromMillis(i.startMs, { zone: opts.zone });
-    const p = periodAt(def, local);
+    const { p, season } = classify(i.startMs);
     const kw = i.kwh / hours;
     kwhTotal += i.kwh;
     const e = energy.get(p.period) ?? { kwh: 0, amount: 0, rate: p.price, rates: new Set<number>() };
@@ -68,7 +68,6 @@ export function computeBill(def: RatePlanDefinition, intervals: readonly Interva
     e.amount += i.kwh * p.price;
     e.rates.add(p.price);
     energy.set(p.period, e);
-    const season = seasonOf(def, local.month);
     if (kw > facility.kw) facility = { kw, at: i.startMs, rate: season.facilityDemandCharge };
     if (!p.offPeak && p.demandCharge > 0) {
       const cur = periodPeak.get(p.period) ?? { kw: 0, at: null, rate: p.demandCharge };
@@ -117,6 +116,32 @@ export function computeBill(def: RatePlanDefinition, intervals: readonly Interva
     fixedTotal,
     total: cents(energyTotal + demandTotal + fixedTotal),
     kwh: kwhTotal,
+  };
+}
+
+/**
+ * Which period and season an interval falls in, remembered per rate plan and zone: a billing
+ * period is billed several ways over the same ~3,000 intervals (projected, to date, with the
+ * plans, with the baselines), and the zone arithmetic is most of a bill's work.
+ */
+const classified = new WeakMap<RatePlanDefinition, Map<string, Map<number, { p: ReturnType<typeof periodAt>; season: ReturnType<typeof seasonOf> }>>>();
+const MAX_REMEMBERED = 20_000;
+
+function classifier(def: RatePlanDefinition, zone: string) {
+  let byZone = classified.get(def);
+  if (!byZone) classified.set(def, (byZone = new Map()));
+  let known = byZone.get(zone);
+  if (!known) byZone.set(zone, (known = new Map()));
+  const memo = known;
+  return (startMs: number) => {
+    let hit = memo.get(startMs);
+    if (!hit) {
+      const local = DateTime.fromMillis(startMs, { zone });
+      hit = { p: periodAt(def, local), season: seasonOf(def, local.month) };
+      if (memo.size >= MAX_REMEMBERED) memo.clear();
+      memo.set(startMs, hit);
+    }
+    return hit;
   };
 }
 

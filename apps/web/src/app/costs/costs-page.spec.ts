@@ -110,7 +110,7 @@ describe('CostsPage', () => {
     const cellsOf = [...row.children].map(text);
     expect(cellsOf[5]).toBe('$20.54 part of the night');
     expect(cellsOf[6]).toBe('—');
-    expect(cellsOf[9]).toBe('37.7 %');
+    expect(cellsOf[10]).toBe('37.7 %');
     const metered = [...el.querySelectorAll<HTMLButtonElement>('ny-nights-chart mat-button-toggle button')].find((b) => text(b) === 'Projected and metered')!;
     metered.click();
     await refresh();
@@ -156,8 +156,8 @@ describe('CostsPage', () => {
     expect(text(alt.querySelector('summary'))).toBe('The chart as a table');
     const rows = [...alt.querySelectorAll('tbody tr')].map((r) => [...r.children].map(text));
     expect(rows).toHaveLength(2);
-    expect(rows[0]!.slice(1)).toEqual(['$120.50', '$290.10', '$98.20', '$101.70']);
-    expect(rows[1]!.slice(1)).toEqual(['$110.00', '$252.80', '$90.00', '—']);
+    expect(rows[0]!.slice(1)).toEqual(['$100.50', '$150.10', '$98.20', '$101.70']);
+    expect(rows[1]!.slice(1)).toEqual(['$90.00', '$130.20', '$90.00', '—']);
   });
 
   it('says clearly when the month has no rate plan, and keeps the period controls', async () => {

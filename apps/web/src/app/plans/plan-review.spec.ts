@@ -48,7 +48,8 @@ describe('plan review', () => {
     expect(el.querySelector('.short-banner')?.textContent).toContain('2 buses leave');
     const cards = [...el.querySelectorAll('.card')].map((c) => c.textContent?.replace(/\s+/g, ' ').trim());
     expect(cards[0]).toContain('$100.00');
-    expect(cards[0]).toContain('saves 75 %');
+    // Against the baseline on energy: $10 planned, $20 charging on arrival.
+    expect(cards[0]).toContain('Energy saving $10.00 (50 %) against charge on arrival $20.00');
     expect(cards[1]).toContain('120 kW');
     expect(cards[1]).toContain('Service limit 150 kW');
     expect(cards[3]).toContain('2');

@@ -139,9 +139,11 @@ describe('TonightPage', () => {
     expect(fact('buses')).toBe('3');
     expect(fact('plug-ins')).toBe('3');
     expect(fact('cost')).toContain('100.00');
-    expect(fact('baseline')).toContain('400.00');
-    expect(fact('saving')).toContain('300.00');
-    expect(fact('saving')).toContain('75 % less');
+    // The night on energy against its baseline (demand is the month's): $10 planned, $20 on arrival.
+    expect(fact('energy')).toContain('10.00');
+    expect(fact('baseline')).toContain('20.00');
+    expect(fact('saving')).toContain('10.00');
+    expect(fact('saving')).toContain('50 % less');
     expect(fact('peak')).toContain('120 kW of 150 kW limit');
     const link = el.querySelector<HTMLAnchorElement>('a[href^="/plans"]')!;
     expect(text(link)).toBe('Open version 3 in Plans');
