@@ -1,6 +1,6 @@
 // `npm run bench`: the scheduling engine on generated depots (seeded), 96 slots, chargers =
 // buses / 2. Per size: engine time (median of 3, model build included), cost, lower bound, gap,
-// savings against unmanaged charging, peak cut, why the search stopped and whether the three
+// savings against the cheaper baseline (charge on arrival or timer, within the limits), peak cut, why the search stopped and whether the three
 // runs gave the same plan. BENCH_SIZES=25,50 picks sizes; BENCH_SEEDS=5 adds four more seeds per
 // size (one run each). Then one 50-bus LP solved by HiGHS and by javascript-lp-solver (in a
 // worker thread, ended after BENCH_JSLP_LIMIT_MS, default 120 s) for the speed ratio.

@@ -60,6 +60,14 @@ export const monthCostsSchema = z.object({
   ratePlanName: z.string(),
   /** The whole billing period: actual intervals where imported, published plans, building load elsewhere. */
   projected: billSchema,
+  /**
+   * The projected bill's range while some nights are forecast (null when none is): the bill with
+   * those nights charged in their cheapest intervals and spread evenly over the night. The
+   * projected bill itself takes the even spread.
+   */
+  projectedRange: z.object({ low: z.number(), high: z.number() }).nullable(),
+  /** Nights without a published plan, forecast from the service calendar. */
+  forecast: z.array(z.object({ date: z.string(), needKwh: z.number(), basis: z.enum(['runs', 'typical-weekday']) })),
   /** From the period's start to now, from the same sources. */
   monthToDate: billSchema,
   /**
@@ -99,7 +107,7 @@ export const monthCostsSchema = z.object({
     /** Share of the night's intervals with metered data (0-1). */
     actualCoverage: z.number(),
   })),
-  sources: z.object({ actualIntervals: z.number(), plannedNights: z.number(), schoolNightsWithoutPlan: z.number() }),
+  sources: z.object({ actualIntervals: z.number(), plannedNights: z.number(), forecastNights: z.number(), schoolNightsWithoutPlan: z.number() }),
   emissions: emissionsSchema,
 });
 export type MonthCosts = z.infer<typeof monthCostsSchema>;

@@ -10,6 +10,7 @@ import { depotOf } from '../depots/depot-access';
 import { prepared } from '../db/prepared';
 import { billingPeriodOf, ratePlanOn } from './billing-period';
 import { MonthCostsCache, monthInputsVersion } from './month-cache';
+import { forecastNights } from './month-forecast';
 
 const SLOT_MS = 15 * 60_000;
 const round2 = (v: number) => Math.round(v * 100) / 100;
@@ -92,7 +93,7 @@ export async function planCosts(db: Db, caller: AuthUser, planId: string): Promi
 
 type Depot = Awaited<ReturnType<typeof depotOf>>;
 type Period = ReturnType<typeof billingPeriodOf>;
-type SourcedInterval = IntervalDemand & { source: 'actual' | 'planned' | 'building' };
+type SourcedInterval = IntervalDemand & { source: 'actual' | 'planned' | 'forecast' | 'building' };
 type Peaks = MonthCosts['peaks'];
 
 /**
@@ -133,6 +134,8 @@ interface PeriodBase {
   series: SourcedInterval[];
   nights: MonthCosts['nights'];
   savings: MonthCosts['savings'];
+  forecast: MonthCosts['forecast'];
+  projectedRange: MonthCosts['projectedRange'];
   plannedDates: Set<string>;
   projected: Bill;
   entered: (typeof billingPeaks.$inferSelect) | undefined;
@@ -209,15 +212,30 @@ async function periodBase(db: Db, depot: Depot, period: Period): Promise<PeriodB
 
   const profile = depot.otherLoadKw;
   const buildingKwh = (t: number) => (profile.length === 1 ? profile[0]! : profile[DateTime.fromMillis(t, { zone }).hour]!) * 0.25;
-  const series: SourcedInterval[] = [];
-  for (let t = fromMs; t < toMs; t += SLOT_MS) {
-    const a = actualKwh.get(t);
-    if (a !== undefined) series.push({ startMs: t, kwh: a, source: 'actual' });
-    else if (plannedKw.has(t)) series.push({ startMs: t, kwh: plannedKw.get(t)! * 0.25, source: 'planned' });
-    else series.push({ startMs: t, kwh: buildingKwh(t), source: 'building' });
-  }
+  const plannedDates = new Set(published.map((p) => p.serviceDate));
+  const forecast = await forecastNights(db, depot, period, rate.definition, plannedDates);
+  // Charging kW of the forecast nights, each shape; a planned or metered interval stays as it is.
+  const forecastKw = (shape: 'even' | 'cheapest') => {
+    const kw = new Map<number, number>();
+    for (const n of forecast) for (const [t, v] of n[shape]) if (!plannedKw.has(t)) kw.set(t, (kw.get(t) ?? 0) + v);
+    return kw;
+  };
+  const seriesWith = (charging: Map<number, number>): SourcedInterval[] => {
+    const series: SourcedInterval[] = [];
+    for (let t = fromMs; t < toMs; t += SLOT_MS) {
+      const a = actualKwh.get(t);
+      if (a !== undefined) series.push({ startMs: t, kwh: a, source: 'actual' });
+      else if (plannedKw.has(t)) series.push({ startMs: t, kwh: plannedKw.get(t)! * 0.25, source: 'planned' });
+      else if (charging.has(t)) series.push({ startMs: t, kwh: buildingKwh(t) + charging.get(t)! * 0.25, source: 'forecast' });
+      else series.push({ startMs: t, kwh: buildingKwh(t), source: 'building' });
+    }
+    return series;
+  };
+  const series = seriesWith(forecastKw('even'));
   const billOptions = { zone, intervalMinutes: 15, days: period.days };
   const projected = computeBill(rate.definition, series, billOptions);
+  const cheapest = forecast.length ? computeBill(rate.definition, seriesWith(forecastKw('cheapest')), billOptions).total : projected.total;
+  const projectedRange = forecast.length ? { low: Math.min(cheapest, projected.total), high: Math.max(cheapest, projected.total) } : null;
   // The saving: the period billed on planned loads twice, once with the plans and once with the
   // baselines, each with its own peaks. Metered intervals are left out of both on purpose.
   const onPlans = series.map(({ startMs }) => ({ startMs, kwh: plannedKw.has(startMs) ? plannedKw.get(startMs)! * 0.25 : buildingKwh(startMs) }));
@@ -230,7 +248,10 @@ async function periodBase(db: Db, depot: Depot, period: Period): Promise<PeriodB
     planPeakKw: round2(peakOf(onPlans)), baselinePeakKw: round2(peakOf(onBaselines)),
   };
   const [entered] = await db.select().from(billingPeaks).where(eq(billingPeaks.depotId, depot.id));
-  return { rate, series, nights, savings, plannedDates: new Set(published.map((p) => p.serviceDate)), projected, entered, soFar: new Map() };
+  return {
+    rate, series, nights, savings, plannedDates, projected, projectedRange, entered, soFar: new Map(),
+    forecast: forecast.map((n) => ({ date: n.date, needKwh: n.needKwh, basis: n.basis })),
+  };
 }
 
 /** The month to date and its peaks: they change only when another interval has passed or another day begun. */
@@ -250,7 +271,7 @@ function soFarOf(base: PeriodBase, depot: Depot, period: Period, nowMs: number) 
   const enteredApplies = entered && entered.billingPeriodStart === period.start.toISODate();
   let facility: Peaks['facility'] = { kw: 0, at: null, source: 'planned' };
   for (const s of toDate) {
-    if (s.source === 'building') continue;
+    if (s.source === 'building' || s.source === 'forecast') continue;
     const kw = s.kwh * 4;
     if (kw > facility.kw) facility = { kw: round2(kw), at: new Date(s.startMs).toISOString(), source: s.source === 'actual' ? 'actual' : 'planned' };
   }
@@ -330,6 +351,8 @@ export async function monthCosts(
     period: { start: periodStart, end: periodEnd, days: period.days },
     ratePlanName: base.rate.name,
     projected: base.projected,
+    projectedRange: base.projectedRange,
+    forecast: base.forecast,
     monthToDate,
     savings: base.savings,
     peaks,
@@ -337,6 +360,7 @@ export async function monthCosts(
     sources: {
       actualIntervals: base.series.filter((s) => s.source === 'actual').length,
       plannedNights: base.nights.length,
+      forecastNights: base.forecast.length,
       schoolNightsWithoutPlan: days.filter((d) => !base.plannedDates.has(d.date)).length,
     },
     emissions: {

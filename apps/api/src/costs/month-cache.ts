@@ -42,7 +42,7 @@ export class MonthCostsCache<T> {
 /**
  * The version of everything a period's costs are computed from, in one query: the published
  * plans of its nights (a published plan never changes; a revision is a new row), the meter
- * readings and imports, the peaks entered or measured so far, the rate plan that applies (its
+ * readings and imports, the runs (the forecast's service calendar), the peaks entered or measured so far, the rate plan that applies (its
  * row's xmin changes with every update of its definition), and the depot's own settings.
  * A named statement: PostgreSQL plans it once per connection, not on every request.
  */
@@ -57,6 +57,8 @@ const VERSION_QUERY = {
       (select count(*) || ':' || coalesce(max(created_at)::text, '') from meter_imports where depot_id = $1),
       coalesce((select billing_period_start || ':' || facility_kw || ':' || periods_kw::text || ':' || updated_at from billing_peaks
         where depot_id = $1), '-'),
+      (select count(*) || ':' || coalesce(max(created_at)::text, '') from runs
+        where depot_id = $1 and service_date >= ($2::date - 24) and service_date < ($3::date + 7)),
       coalesce((select r.id || ':' || r.xmin || ':' || d.effective_from || ':' || d.xmin from depot_rate_plans d
         join rate_plans r on r.id = d.rate_plan_id
         where d.depot_id = $1 and d.effective_from <= $6 order by d.effective_from desc limit 1), '-')
@@ -65,7 +67,7 @@ const VERSION_QUERY = {
 
 export async function monthInputsVersion(
   db: Db,
-  depot: { id: string; timezone: string; billingStartDay: number; otherLoadKw: number[] },
+  depot: { id: string; timezone: string; billingStartDay: number; otherLoadKw: number[]; serviceLimitKw: number },
   window: { plansFrom: string; plansTo: string; periodStart: string; fromAt: Date; toAt: Date },
 ): Promise<string> {
   // Drizzle keeps the pg pool it was made with as $client; a named statement is a pg feature.
@@ -75,5 +77,5 @@ export async function monthInputsVersion(
     values: [depot.id, window.plansFrom, window.plansTo, window.fromAt.toISOString(), window.toAt.toISOString(), window.periodStart],
   });
   const row = result.rows[0];
-  return `${depot.timezone}|${depot.billingStartDay}|${JSON.stringify(depot.otherLoadKw)}|${row?.v ?? ''}`;
+  return `${depot.timezone}|${depot.billingStartDay}|${depot.serviceLimitKw}|${JSON.stringify(depot.otherLoadKw)}|${row?.v ?? ''}`;
 }

@@ -28,6 +28,8 @@ export function monthCosts(overrides: Partial<MonthCosts> = {}): MonthCosts {
     period: { start: '2026-12-01', end: '2027-01-01', days: 31 },
     ratePlanName: 'Invented Electric TOU',
     projected: bill(),
+    projectedRange: null,
+    forecast: [],
     monthToDate: bill({ total: 190.25, energyTotal: 143.75, demandTotal: 0, fixedTotal: 46.5, kwh: 1_200 }),
     savings: { total: 312.4, planBill: 4_100.25, baselineBill: 4_412.65, nightsCompared: 2, planPeakKw: 185, baselinePeakKw: 410 },
     peaks: {
@@ -44,7 +46,7 @@ export function monthCosts(overrides: Partial<MonthCosts> = {}): MonthCosts {
         projectedSiteEnergyCost: 90, actualSiteEnergyCost: null, projectedPeakKw: 150, actualPeakKw: null, actualCoverage: 0,
       },
     ],
-    sources: { actualIntervals: 96, plannedNights: 2, schoolNightsWithoutPlan: 3 },
+    sources: { actualIntervals: 96, plannedNights: 2, forecastNights: 0, schoolNightsWithoutPlan: 3 },
     emissions: {
       miles: 2_400, dieselMpg: 7, dieselGallonsAvoided: 342.86, co2KgAvoided: 3490.29,
       source: 'Diesel avoided = miles / 7 mpg (assumed for a full-size diesel school bus). CO2 = 10,180 g per gallon of diesel (US EPA figure).',

@@ -81,6 +81,22 @@ describe('CostsPage', () => {
     expect(sources).toContain('3 school nights have no published plan yet');
   });
 
+  it('gives the projected bill a range while nights are forecast, and says how they are forecast', async () => {
+    const forecast = [
+      { date: '2026-12-09', needKwh: 210, basis: 'runs' as const },
+      { date: '2026-12-14', needKwh: 205, basis: 'typical-weekday' as const },
+    ];
+    await render(['finance'], monthCosts({
+      forecast, projectedRange: { low: 2_801.5, high: 2_952.09 },
+      sources: { actualIntervals: 96, plannedNights: 2, forecastNights: 2, schoolNightsWithoutPlan: 1 },
+    }));
+    expect(text(card('Projected bill for the period') ?? null)).toContain('2 nights are forecast: between $2,801.50 and $2,952.09.');
+    const sources = text(el.querySelector('.sources'));
+    expect(sources).toContain('2 nights are forecast:');
+    expect(sources).toContain('the latest entered day of the same weekday');
+    expect(sources).not.toContain('no published plan yet');
+  });
+
   it('renders the projected bill with its total, and the bill to date on demand', async () => {
     await render(['finance']);
     expect(cells(el.querySelector('ny-bill-table tr.grand-total'))).toBe('Total $2,952.09');

@@ -132,6 +132,9 @@ export class CostsPage {
     return {
       projected: money(m.projected.total, c),
       projectedParts: `Energy ${money(m.projected.energyTotal, c)}, demand ${money(m.projected.demandTotal, c)}, fixed ${money(m.projected.fixedTotal, c)}`,
+      projectedRange: m.projectedRange
+        ? `${m.forecast.length === 1 ? '1 night is' : `${m.forecast.length} nights are`} forecast: between ${money(m.projectedRange.low, c)} and ${money(m.projectedRange.high, c)}.`
+        : null,
       toDate: money(m.monthToDate.total, c),
       toDateNote:
         facts.state === 'future'
@@ -171,6 +174,8 @@ export class CostsPage {
             : `${s.actualIntervals.toLocaleString()} metered 15-minute intervals`,
       nights: s.plannedNights === 0 ? 'none yet' : s.plannedNights === 1 ? '1 published plan' : `${s.plannedNights} published plans`,
       missing: s.schoolNightsWithoutPlan,
+      forecast: s.forecastNights,
+      typical: m.forecast.some((n) => n.basis === 'typical-weekday'),
     };
   });
 
