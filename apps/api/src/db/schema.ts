@@ -1,6 +1,6 @@
 import { sql } from 'drizzle-orm';
 import {
-  boolean, check, date, doublePrecision, index, integer, jsonb, pgEnum, pgTable, primaryKey, text, timestamp,
+  boolean, date, doublePrecision, index, integer, jsonb, pgEnum, pgTable, primaryKey, text, timestamp,
   uniqueIndex, uuid,
 } from 'drizzle-orm/pg-core';
 import type { Role } from '@nightyard/contracts';
@@ -297,8 +297,6 @@ export const plans = pgTable(
     uniqueIndex('plans_depot_date_version_key').on(t.depotId, t.serviceDate, t.version),
     // At most one published plan per depot and night: the database settles a publishing race.
     uniqueIndex('plans_one_published_key').on(t.depotId, t.serviceDate).where(sql`${t.state} = 'published'`),
-    // A what-if is a study: the database refuses to mark one published (or superseded).
-    check('plans_what_if_never_published', sql`${t.kind} <> 'what-if' or ${t.state} = 'draft'`),
   ],
 );
 

@@ -1,1 +1,0 @@
-ALTER TABLE "plans" ADD CONSTRAINT "plans_what_if_never_published" CHECK ("plans"."kind" <> 'what-if' or "plans"."state" = 'draft');
