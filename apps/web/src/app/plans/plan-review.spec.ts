@@ -54,8 +54,8 @@ describe('plan review', () => {
     expect(cards[3]).toContain('2');
 
     mock.expectOne(`/api/plans/${PLAN_IDS.draft}/compare?with=${PLAN_IDS.published}`).flush({
-      from: { id: PLAN_IDS.published, version: 1 },
-      to: { id: PLAN_IDS.draft, version: 2 },
+      from: { id: PLAN_IDS.published, version: 1, kind: 'generated' },
+      to: { id: PLAN_IDS.draft, version: 2, kind: 'generated' },
       moved: [{ bus: '205', before: 'C2 17:00-18:00', after: 'C2 18:30-19:00' }],
       costChange: -12.5,
     });
