@@ -4,7 +4,14 @@ import { isoDate } from './dates';
 export const planStateSchema = z.enum(['draft', 'published', 'superseded']);
 export type PlanState = z.infer<typeof planStateSchema>;
 export const planJobStatusSchema = z.enum(['queued', 'running', 'done', 'failed']);
-export const planKindSchema = z.enum(['generated', 'what-if', 'revision']);
+/**
+ * How a version came about. A `what-if` is a study planned from an uploaded scenario file: it is
+ * never published, e-mailed or sent to chargers; adopting it makes a normal draft re-checked
+ * against the depot as it is then.
+ */
+export const planKindSchema = z.enum(['generated', 'what-if', 'revision'])
+  .describe('generated: from the depot\'s data; revision: re-planned from the yard\'s reports; what-if: a study from an uploaded scenario file, never published (adopt it instead)');
+export type PlanKind = z.infer<typeof planKindSchema>;
 
 export const generatePlanSchema = z.strictObject({
   serviceDate: isoDate(),
@@ -94,8 +101,8 @@ export const planDetailSchema = planSummarySchema.extend({
 export type PlanDetail = z.infer<typeof planDetailSchema>;
 
 export const planComparisonSchema = z.object({
-  from: z.object({ id: z.uuid(), version: z.number().int() }),
-  to: z.object({ id: z.uuid(), version: z.number().int() }),
+  from: z.object({ id: z.uuid(), version: z.number().int(), kind: planKindSchema }),
+  to: z.object({ id: z.uuid(), version: z.number().int(), kind: planKindSchema }),
   moved: z.array(z.object({
     bus: z.string(),
     before: z.string(),
@@ -106,3 +113,23 @@ export const planComparisonSchema = z.object({
 export type PlanComparison = z.infer<typeof planComparisonSchema>;
 
 export const planIdParamsSchema = z.strictObject({ id: z.uuid('Not a plan id') });
+
+/**
+ * What adopting a what-if would change: the study re-checked against the depot as it is now
+ * (chargers in service, service limit, rate plan, buses, runs). Each difference is one sentence.
+ */
+export const whatIfAdoptionSchema = z.object({
+  whatIf: z.object({ id: z.uuid(), version: z.number().int() }),
+  serviceDate: z.iso.date(),
+  /** The study's choice carried into the draft: plan the midday layover too. */
+  includesMidday: z.boolean(),
+  differences: z.array(z.string()),
+});
+export type WhatIfAdoption = z.infer<typeof whatIfAdoptionSchema>;
+
+export const adoptedPlanSchema = z.object({
+  /** The new draft (a normal plan, generated from the depot as it is now). */
+  plan: planSummarySchema,
+  adoption: whatIfAdoptionSchema,
+});
+export type AdoptedPlan = z.infer<typeof adoptedPlanSchema>;

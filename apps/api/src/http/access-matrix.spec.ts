@@ -71,6 +71,8 @@ const EXPECTED: Record<string, 'public' | readonly Role[]> = {
   'GET /plans/:id/scenario': FLEET,
   'GET /plans/:id/compare': ROLES,
   'POST /plans/:id/publish': FLEET,
+  'GET /plans/:id/adoption': FLEET,
+  'POST /plans/:id/adopt': FLEET,
   'GET /plans/:id/costs': COSTS,
   'GET /depots/:depotId/costs/month': COSTS,
   'POST /depots/:depotId/meter-data': ['finance', 'admin'],

@@ -1,11 +1,12 @@
 import { z } from 'zod';
 import {
-  ROLES, depotIdParamsSchema, isoDate, generatePlanSchema, planComparisonSchema, planDetailSchema, planIdParamsSchema,
-  planSummarySchema, publishPlanSchema,
+  ROLES, adoptedPlanSchema, depotIdParamsSchema, isoDate, generatePlanSchema, planComparisonSchema, planDetailSchema, planIdParamsSchema,
+  planSummarySchema, publishPlanSchema, whatIfAdoptionSchema,
 } from '@nightyard/contracts';
 import type { AppDeps } from '../app-deps';
 import type { ApiRoutes } from '../http/route';
 import * as plans from './plans-service';
+import { adoptWhatIf, whatIfAdoption } from './what-if-adoption';
 
 /** Supervisors generate and publish plans (admins may too); every role reads them. */
 const PLANNERS = ['supervisor', 'admin'] as const;
@@ -25,7 +26,7 @@ export function plansRoutes(api: ApiRoutes, deps: AppDeps) {
     async ({ user, params, body }) => ({ plan: await plans.generatePlan(db, jobs, user, params.depotId, body.serviceDate, body.includeMidday, deps.clock()) }),
   );
   api.add(
-    { method: 'post', path: '/depots/:depotId/plans/what-if', summary: 'Plan an uploaded scenario file as a what-if draft', tag: 'plans',
+    { method: 'post', path: '/depots/:depotId/plans/what-if', summary: 'Plan an uploaded scenario file as a what-if (a study: never published; adopt it instead)', tag: 'plans',
       access: PLANNERS, params: depotIdParamsSchema, body: z.unknown(), response: planBody, status: 202 },
     async ({ user, params, body }) => ({ plan: await plans.createWhatIf(db, jobs, user, params.depotId, body) }),
   );
@@ -49,7 +50,17 @@ export function plansRoutes(api: ApiRoutes, deps: AppDeps) {
     async ({ user, params, query }) => plans.comparePlans(db, user, params.id, query.with),
   );
   api.add(
-    { method: 'post', path: '/plans/:id/publish', summary: 'Publish a finished draft to the yard', tag: 'plans', access: PLANNERS,
+    { method: 'get', path: '/plans/:id/adoption', summary: 'What adopting a what-if would change: the study re-checked against the depot now',
+      tag: 'plans', access: PLANNERS, params: planIdParamsSchema, response: whatIfAdoptionSchema },
+    async ({ user, params }) => whatIfAdoption(db, user, params.id, deps.clock()),
+  );
+  api.add(
+    { method: 'post', path: '/plans/:id/adopt', summary: 'Adopt a what-if: a new draft generated from the depot as it is now, with the differences',
+      tag: 'plans', access: PLANNERS, params: planIdParamsSchema, response: adoptedPlanSchema, status: 202 },
+    async ({ user, params }) => adoptWhatIf(db, jobs, user, params.id, deps.clock()),
+  );
+  api.add(
+    { method: 'post', path: '/plans/:id/publish', summary: 'Publish a finished draft to the yard (a what-if is refused with 409: adopt it)', tag: 'plans', access: PLANNERS,
       params: planIdParamsSchema, body: publishPlanSchema, response: planBody },
     async ({ user, params, body }) => {
       const plan = await plans.publishPlan(db, mailer, user, params.id, body.expectedPublishedId, auth.publicUrl, deps.clock());

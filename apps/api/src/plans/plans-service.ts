@@ -49,7 +49,7 @@ async function loadPlan(db: Db, caller: AuthUser, id: string) {
 }
 
 /** Stores a new draft version for the night and queues the engine run. */
-async function storeDraft(
+export async function storeDraft(
   db: Db, jobs: JobQueue, caller: AuthUser, depotId: string, serviceDate: string,
   values: { kind: PlanRow['kind']; includesMidday: boolean; scenario: ScenarioInput; notes: string[]; planFrom?: PlanFrom },
 ): Promise<PlanSummary> {
@@ -82,6 +82,14 @@ async function storeDraft(
 export async function generatePlan(
   db: Db, jobs: JobQueue, caller: AuthUser, depotId: string, serviceDate: string, includeMidday: boolean, now: Date,
 ): Promise<PlanSummary> {
+  const night = await prepareNight(db, caller, depotId, serviceDate, includeMidday, now);
+  return storeDraft(db, jobs, caller, depotId, serviceDate, { kind: 'generated', ...night });
+}
+
+/** A night's scenario from the depot's data as it is now, with where a night under way starts. */
+export async function prepareNight(
+  db: Db, caller: AuthUser, depotId: string, serviceDate: string, includeMidday: boolean, now: Date,
+): Promise<{ includesMidday: boolean; scenario: ScenarioInput; notes: string[]; planFrom?: PlanFrom }> {
   const { scenario, notes } = await buildNightScenario(db, caller, depotId, serviceDate, includeMidday);
   const parsed = parseScenario(scenario);
   if (!parsed.ok) {
@@ -99,7 +107,7 @@ export async function generatePlan(
       ? `The night was under way at ${from.slice(11)}: this plan starts then; before it, version ${followed!.version} stands as published${Object.keys(plugged).length ? `, and the ${Object.keys(plugged).length} buses confirmed on a charger stay there` : ''}.`
       : `The night was under way at ${from.slice(11)} with no published plan: this plan starts then and takes each bus as it arrived (no charging before then).`);
   }
-  return storeDraft(db, jobs, caller, depotId, serviceDate, { kind: 'generated', includesMidday: includeMidday, scenario, notes, ...(planFrom ? { planFrom } : {}) });
+  return { includesMidday: includeMidday, scenario, notes, ...(planFrom ? { planFrom } : {}) };
 }
 
 /** The engine's work grows with buses x slots: a what-if larger than the limit is refused before it is queued. */
@@ -128,7 +136,7 @@ export async function createWhatIf(db: Db, jobs: JobQueue, caller: AuthUser, dep
   }
   const serviceDate = parsed.scenario.start.slice(0, 10);
   return storeDraft(db, jobs, caller, depotId, serviceDate, {
-    kind: 'what-if', includesMidday: true, scenario: file as ScenarioInput, notes: ['Uploaded scenario file (what-if).'],
+    kind: 'what-if', includesMidday: true, scenario: file as ScenarioInput, notes: ['What-if: a study from an uploaded scenario file. It is never published; adopt it to make a draft from the depot as it is now.'],
   });
 }
 
@@ -171,6 +179,11 @@ export async function planScenarioFile(db: Db, caller: AuthUser, id: string): Pr
   return { name: `scenario-${plan.serviceDate}-v${plan.version}.json`, scenario: plan.scenario };
 }
 
+/** Why a what-if is never published, and what to do instead. */
+export const WHAT_IF_NOT_PUBLISHED = (version: number) =>
+  `Version ${version} is a what-if, a study from an uploaded scenario file: it is never published, e-mailed or sent to chargers. ` +
+  'Adopt it to make a draft re-checked against the depot as it is now, then publish that draft';
+
 /**
  * Publishes a finished draft, superseding the night's published plan. The caller names the
  * published plan they reviewed against; if another was published meanwhile, they get a conflict.
@@ -183,6 +196,7 @@ export async function publishPlan(
     if (!plan) throw notFound('That plan');
     const [depot] = await tx.select({ id: depots.id, timezone: depots.timezone }).from(depots).where(eq(depots.id, plan.depotId)).for('update');
     const [fresh] = await tx.select().from(plans).where(eq(plans.id, id));
+    if (fresh!.kind === 'what-if') throw conflict(WHAT_IF_NOT_PUBLISHED(fresh!.version));
     if (fresh!.state !== 'draft') throw conflict(`Version ${fresh!.version} is already ${fresh!.state}: a published plan never changes`);
     if (fresh!.status !== 'done') throw conflict('The plan is not finished yet: wait until it has been generated');
     const [current] = await tx
@@ -243,8 +257,8 @@ export async function comparePlans(db: Db, caller: AuthUser, id: string, otherId
     .map((bus) => ({ bus, before: describe(ra, bus), after: describe(rb, bus) }))
     .filter((m) => m.before !== m.after);
   return {
-    from: { id: a.plan.id, version: a.plan.version },
-    to: { id: b.plan.id, version: b.plan.version },
+    from: { id: a.plan.id, version: a.plan.version, kind: a.plan.kind },
+    to: { id: b.plan.id, version: b.plan.version, kind: b.plan.kind },
     moved,
     costChange: rb.cost.total - ra.cost.total,
   };

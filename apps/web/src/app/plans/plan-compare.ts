@@ -4,7 +4,7 @@ import { MatProgressBarModule } from '@angular/material/progress-bar';
 import { MatSelectModule } from '@angular/material/select';
 import type { PlanComparison, PlanDetail, PlanSummary } from '@nightyard/contracts';
 import { toApiProblem } from '../core/api-error';
-import { money, previousVersion } from './plan-format';
+import { money, previousVersion, versionLabel, versionName } from './plan-format';
 import { PlansApi } from './plans-api';
 
 /** Which buses moved (charger or times) between this version and another of the same night. */
@@ -18,7 +18,7 @@ import { PlansApi } from './plans-api';
         <mat-label>Compare with</mat-label>
         <mat-select [value]="chosen()" (valueChange)="chosen.set($event)">
           @for (c of candidates(); track c.id) {
-            <mat-option [value]="c.id">Version {{ c.version }} ({{ c.state }})</mat-option>
+            <mat-option [value]="c.id">Version {{ c.version }} ({{ versionLabel(c).toLowerCase() }})</mat-option>
           }
         </mat-select>
       </mat-form-field>
@@ -37,12 +37,12 @@ import { PlansApi } from './plans-api';
         @if (c.moved.length) {
           <div class="table-scroll" role="region" aria-label="Buses that moved" tabindex="0">
             <table>
-              <caption class="ny-visually-hidden">Buses whose charger or times differ between version {{ c.from.version }} and version {{ c.to.version }}</caption>
+              <caption class="ny-visually-hidden">Buses whose charger or times differ between {{ versionName(c.from).toLowerCase() }} and {{ versionName(c.to).toLowerCase() }}</caption>
               <thead>
                 <tr>
                   <th scope="col">Bus</th>
-                  <th scope="col">Version {{ c.from.version }}</th>
-                  <th scope="col">Version {{ c.to.version }}</th>
+                  <th scope="col">{{ versionName(c.from) }}</th>
+                  <th scope="col">{{ versionName(c.to) }}</th>
                 </tr>
               </thead>
               <tbody>
@@ -71,6 +71,8 @@ import { PlansApi } from './plans-api';
 })
 export class PlanCompare {
   private readonly api = inject(PlansApi);
+  protected readonly versionLabel = versionLabel;
+  protected readonly versionName = versionName;
 
   readonly plan = input.required<PlanDetail>();
   readonly versions = input.required<readonly PlanSummary[]>();
@@ -117,12 +119,13 @@ export class PlanCompare {
 
   protected sentence(c: PlanComparison): string {
     const moved = c.moved.length === 0 ? 'no bus moved' : `${c.moved.length} ${c.moved.length === 1 ? 'bus' : 'buses'} moved`;
-    if (c.costChange === null) return `Against version ${c.from.version}: ${moved}.`;
+    const against = `Against ${versionName(c.from).toLowerCase()}`;
+    if (c.costChange === null) return `${against}: ${moved}.`;
     const currency = this.plan().currency;
     const cost =
       Math.abs(c.costChange) < 0.005
         ? 'the cost is the same'
         : `the cost is ${money(Math.abs(c.costChange), currency)} ${c.costChange > 0 ? 'higher' : 'lower'}`;
-    return `Against version ${c.from.version}: ${moved}, ${cost}.`;
+    return `${against}: ${moved}, ${cost}.`;
   }
 }

@@ -31,6 +31,19 @@ export const KIND_LABELS: Record<PlanSummary['kind'], string> = {
   revision: 'Revision',
 };
 
+/**
+ * The label beside a version's number: a what-if is a study, never a draft to publish, so it reads
+ * "What-if" whatever its state; other versions read their state.
+ */
+export function versionLabel(plan: Pick<PlanSummary, 'kind' | 'state'>): string {
+  return plan.kind === 'what-if' ? KIND_LABELS['what-if'] : STATE_LABELS[plan.state];
+}
+
+/** "Version 3" or "What-if version 3". */
+export function versionName(plan: Pick<PlanSummary, 'kind' | 'version'>): string {
+  return plan.kind === 'what-if' ? `What-if version ${plan.version}` : `Version ${plan.version}`;
+}
+
 const collator = new Intl.Collator(undefined, { numeric: true, sensitivity: 'base' });
 export const naturalCompare = (a: string, b: string) => collator.compare(a, b);
 

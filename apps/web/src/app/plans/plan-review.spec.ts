@@ -55,14 +55,37 @@ describe('plan review', () => {
     expect(cards[3]).toContain('2');
 
     mock.expectOne(`/api/plans/${PLAN_IDS.draft}/compare?with=${PLAN_IDS.published}`).flush({
-      from: { id: PLAN_IDS.published, version: 1 },
-      to: { id: PLAN_IDS.draft, version: 2 },
+      from: { id: PLAN_IDS.published, version: 1, kind: 'generated' },
+      to: { id: PLAN_IDS.draft, version: 2, kind: 'generated' },
       moved: [{ bus: '205', before: 'C2 17:00-18:00', after: 'C2 18:30-19:00' }],
       costChange: -12.5,
     });
     await fixture.whenStable();
     fixture.detectChanges();
     expect(el.querySelector('ny-plan-compare')?.textContent).toContain('Against version 1: 1 bus moved, the cost is $12.50 lower.');
+    mock.verify();
+  });
+
+  it('names a what-if as such when comparing with it', async () => {
+    TestBed.configureTestingModule({ providers: [provideHttpClient(), provideHttpClientTesting()] });
+    const mock = TestBed.inject(HttpTestingController);
+    const fixture = TestBed.createComponent(PlanReview);
+    const whatIf = '00000000-0000-4000-8000-0000000000f3';
+    fixture.componentRef.setInput('plan', planDetail({ version: 4 }) as ReturnType<typeof planDetail> & { result: PlanResult });
+    fixture.componentRef.setInput('versions', [planSummary({ version: 4 }), planSummary({ id: whatIf, version: 3, kind: 'what-if' })]);
+    await fixture.whenStable();
+    fixture.detectChanges();
+    mock.expectOne(`/api/plans/${PLAN_IDS.draft}/compare?with=${whatIf}`).flush({
+      from: { id: whatIf, version: 3, kind: 'what-if' },
+      to: { id: PLAN_IDS.draft, version: 4, kind: 'generated' },
+      moved: [{ bus: '205', before: 'C3 17:00-18:00', after: 'C2 18:30-19:00' }],
+      costChange: 12.5,
+    });
+    await fixture.whenStable();
+    fixture.detectChanges();
+    const compare = fixture.nativeElement.querySelector('ny-plan-compare') as HTMLElement;
+    expect(compare.textContent).toContain('Against what-if version 3: 1 bus moved, the cost is $12.50 higher.');
+    expect([...compare.querySelectorAll('thead th')].map((th) => th.textContent?.trim())).toEqual(['Bus', 'What-if version 3', 'Version 4']);
     mock.verify();
   });
 });

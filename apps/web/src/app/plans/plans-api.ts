@@ -1,6 +1,6 @@
 import { HttpClient } from '@angular/common/http';
 import { Injectable, inject } from '@angular/core';
-import type { DepotDetail, PlanComparison, PlanDetail, PlanSummary } from '@nightyard/contracts';
+import type { AdoptedPlan, DepotDetail, PlanComparison, PlanDetail, PlanSummary, WhatIfAdoption } from '@nightyard/contracts';
 import { firstValueFrom, map } from 'rxjs';
 
 /** Plan versions of a depot's nights: generate, read, compare, publish, what-if. */
@@ -63,6 +63,16 @@ export class PlansApi {
         .post<{ plan: PlanSummary }>(`/api/plans/${encodeURIComponent(id)}/publish`, { expectedPublishedId })
         .pipe(map((r) => r.plan)),
     );
+  }
+
+  /** What adopting a what-if would change (its study re-checked against the depot now); 409 when it cannot be adopted. */
+  adoption(id: string): Promise<WhatIfAdoption> {
+    return firstValueFrom(this.http.get<WhatIfAdoption>(`/api/plans/${encodeURIComponent(id)}/adoption`));
+  }
+
+  /** Adopts a what-if: a new normal draft generated from the depot as it is now (202). */
+  adopt(id: string): Promise<AdoptedPlan> {
+    return firstValueFrom(this.http.post<AdoptedPlan>(`/api/plans/${encodeURIComponent(id)}/adopt`, {}));
   }
 
   /** The depot's chargers (to show idle ones on the timeline too). */

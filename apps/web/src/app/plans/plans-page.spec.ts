@@ -9,6 +9,7 @@ import { DEPOT_ID, signedInAs } from '../fleet/fleet-fixtures';
 import { Clock } from '../core/clock';
 import { depotNight, settle } from '../testing/fixtures';
 import { PLAN_IDS, planDetail, planSummary } from './plan-fixtures';
+import { AdoptDialog } from './adopt-dialog';
 import { PlansPage } from './plans-page';
 
 describe('PlansPage', () => {
@@ -17,7 +18,10 @@ describe('PlansPage', () => {
   let mock: HttpTestingController;
   const open = vi.fn();
 
-  async function render(roles: Role[]) {
+  const WHAT_IF_ID = '00000000-0000-4000-8000-0000000000f3';
+  const whatIf = { id: WHAT_IF_ID, version: 3, kind: 'what-if' as const, createdAt: '2026-12-03T21:00:00.000Z' };
+
+  async function render(roles: Role[], chosen: 'draft' | 'what-if' = 'draft') {
     open.mockReset();
     TestBed.configureTestingModule({
       providers: [provideRouter([]), provideHttpClient(), provideHttpClientTesting(), { provide: MatDialog, useValue: { open } }],
@@ -26,23 +30,28 @@ describe('PlansPage', () => {
     await signedInAs(mock, roles);
     fixture = TestBed.createComponent(PlansPage);
     fixture.componentRef.setInput('date', '2026-12-03');
-    fixture.componentRef.setInput('plan', PLAN_IDS.draft);
+    const selected = chosen === 'draft' ? PLAN_IDS.draft : WHAT_IF_ID;
+    fixture.componentRef.setInput('plan', selected);
     el = fixture.nativeElement;
     await fixture.whenStable();
     mock.expectOne(`/api/depots/${DEPOT_ID}/plans?serviceDate=2026-12-03`).flush({
-      plans: [planSummary(), planSummary({ id: PLAN_IDS.published, version: 1, state: 'published', publishedAt: '2026-12-03T19:00:00.000Z' })],
+      plans: [
+        ...(chosen === 'what-if' ? [planSummary(whatIf)] : []),
+        planSummary(),
+        planSummary({ id: PLAN_IDS.published, version: 1, state: 'published', publishedAt: '2026-12-03T19:00:00.000Z' }),
+      ],
     });
     mock.expectOne(`/api/depots/${DEPOT_ID}`).flush({
       depot: { id: DEPOT_ID, chargers: [{ label: 'C1', maxKw: 60, status: 'in_service' }, { label: 'C2', maxKw: 30, status: 'in_service' }] } as DepotDetail,
     });
     await settle();
     await fixture.whenStable();
-    mock.expectOne(`/api/plans/${PLAN_IDS.draft}`).flush({ plan: planDetail() });
+    mock.expectOne(`/api/plans/${selected}`).flush({ plan: chosen === 'draft' ? planDetail() : planDetail(whatIf) });
     await settle();
     await fixture.whenStable();
     fixture.detectChanges();
     for (const req of mock.match((r) => r.url.endsWith('/compare'))) {
-      req.flush({ from: { id: PLAN_IDS.published, version: 1 }, to: { id: PLAN_IDS.draft, version: 2 }, moved: [], costChange: 0 });
+      req.flush({ from: { id: PLAN_IDS.published, version: 1, kind: 'generated' }, to: { id: selected, version: 2, kind: 'generated' }, moved: [], costChange: 0 });
     }
     await fixture.whenStable();
     fixture.detectChanges();
@@ -107,6 +116,65 @@ describe('PlansPage', () => {
     for (const label of ['Generate plan', 'Publish', 'Upload what-if', 'Download scenario']) expect(button(label)).toBeNull();
     expect(el.querySelector('input[type="file"]')).toBeNull();
     expect(el.querySelector('ny-bus-plan-table')).not.toBeNull();
+  });
+
+  it('labels a what-if as such in the versions and the review: no Publish, Adopt instead', async () => {
+    await render(['supervisor'], 'what-if');
+    const labels = [...el.querySelectorAll('.version-list .state')].map((x) => x.textContent?.trim());
+    expect(labels).toEqual(['What-if', 'Draft', 'Published']);
+    expect(el.querySelector('#review-heading')?.textContent?.replace(/\s+/g, ' ').trim()).toBe('Version 3 What-if');
+    expect(el.querySelector('.study[role="note"]')?.textContent).toContain('never published, e-mailed or sent to chargers');
+    expect(button('Publish')).toBeNull();
+    expect(button('Adopt')).not.toBeNull();
+  });
+
+  it('adopts a what-if: lists the differences before, then opens the new draft with them', async () => {
+    await render(['supervisor'], 'what-if');
+    const differences = ['Service limit in the study 150 kW, depot now 400 kW', 'Charger C3 out of service now: left out'];
+    const adoption = { whatIf: { id: WHAT_IF_ID, version: 3 }, serviceDate: '2026-12-03', includesMidday: true, differences };
+    open.mockReturnValue({ afterClosed: () => of(true) });
+    button('Adopt')!.click();
+    await settle();
+    mock.expectOne(`/api/plans/${WHAT_IF_ID}/adoption`).flush(adoption);
+    await settle();
+    const [component, config] = open.mock.calls[0]!;
+    expect(component).toBe(AdoptDialog);
+    expect(config.data.adoption.differences).toEqual(differences);
+    const req = mock.expectOne(`/api/plans/${WHAT_IF_ID}/adopt`);
+    expect(req.request.method).toBe('POST');
+    const draft = planSummary({ id: '00000000-0000-4000-8000-0000000000f4', version: 4, status: 'queued', stage: 'Waiting for a worker', totalCost: null, shortBuses: null });
+    req.flush({ plan: draft, adoption });
+    await settle();
+    fixture.componentRef.setInput('plan', draft.id);
+    await fixture.whenStable();
+    mock.expectOne(`/api/plans/${draft.id}`).flush({ plan: planDetail({ ...draft, result: null }) });
+    await settle();
+    fixture.detectChanges();
+    expect(el.querySelector('#review-heading')?.textContent?.replace(/\s+/g, ' ').trim()).toBe('Version 4 Draft');
+    const banner = el.querySelector('.study[aria-label="Adopted from a what-if"]')?.textContent ?? '';
+    expect(banner).toContain('Adopted from what-if version 3, re-checked against the depot as it is now: 2 differences');
+    expect(banner).toContain('Charger C3 out of service now');
+  });
+
+  it('shows why a what-if cannot be adopted, and asks nothing', async () => {
+    await render(['supervisor'], 'what-if');
+    button('Adopt')!.click();
+    await settle();
+    mock.expectOne(`/api/plans/${WHAT_IF_ID}/adoption`).flush(
+      { error: { code: 'conflict', message: 'The night of Thursday 3 December 2026 has ended: what-if version 3 can no longer be adopted.' } },
+      { status: 409, statusText: 'Conflict' },
+    );
+    await settle();
+    fixture.detectChanges();
+    expect(open).not.toHaveBeenCalled();
+    mock.expectNone(`/api/plans/${WHAT_IF_ID}/adopt`);
+    expect(el.querySelector('ny-problem-summary')?.textContent).toContain('Not adopted. The night of Thursday 3 December 2026 has ended');
+  });
+
+  it('shows finance the what-if label but no Adopt', async () => {
+    await render(['finance'], 'what-if');
+    expect(el.querySelector('.review-header .state')?.textContent?.trim()).toBe('What-if');
+    expect(button('Adopt')).toBeNull();
   });
 
   it("opens on tonight as the server says: after midnight that is the night before the depot's date", async () => {

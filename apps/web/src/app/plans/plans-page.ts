@@ -8,7 +8,7 @@ import { MatInputModule } from '@angular/material/input';
 import { MatProgressBarModule } from '@angular/material/progress-bar';
 import { MatSnackBar } from '@angular/material/snack-bar';
 import { ActivatedRoute, Router, RouterLink } from '@angular/router';
-import type { PlanDetail, PlanResult, PlanSummary } from '@nightyard/contracts';
+import type { AdoptedPlan, PlanDetail, PlanResult, PlanSummary } from '@nightyard/contracts';
 import { firstValueFrom } from 'rxjs';
 import { toApiProblem } from '../core/api-error';
 import { formatServiceDay } from '../depots/depot-format';
@@ -21,7 +21,8 @@ import { ProblemSummary, type ProblemItem } from '../shared/problem-summary';
 import { ConfirmDialog, type ConfirmData } from '../people/confirm-dialog';
 import { SectionIntro } from '../sections/section-intro';
 import type { TimelineCharger } from './charger-timeline';
-import { KIND_LABELS, STATE_LABELS, defaultVersion, money, when } from './plan-format';
+import { AdoptDialog, type AdoptData } from './adopt-dialog';
+import { KIND_LABELS, defaultVersion, money, versionLabel, when } from './plan-format';
 import { PlanReview } from './plan-review';
 import { PlansApi } from './plans-api';
 
@@ -66,8 +67,8 @@ export class PlansPage {
 
   protected readonly canPlan = injectCanEditFleet();
   protected readonly depot = this.depots.current;
-  protected readonly stateLabels = STATE_LABELS;
   protected readonly kindLabels = KIND_LABELS;
+  protected readonly versionLabel = versionLabel;
   protected readonly when = when;
   protected readonly money = money;
 
@@ -115,6 +116,8 @@ export class PlansPage {
   protected readonly problems = signal<ProblemItem[]>([]);
   protected readonly conflict = signal<string | null>(null);
   protected readonly comparePreferred = signal<string | null>(null);
+  /** The what-if just adopted and what differed, shown above the new draft it made. */
+  protected readonly adopted = signal<AdoptedPlan | null>(null);
   protected readonly announcement = signal('');
 
   private readonly watching = new Set<string>();
@@ -359,6 +362,45 @@ export class PlansPage {
       const p = toApiProblem(err);
       if (p.status === 409) this.conflict.set(p.message);
       else this.problem.set(p.message);
+    } finally {
+      this.busy.set(null);
+    }
+  }
+
+  protected adoptedSentence(a: AdoptedPlan): string {
+    const n = a.adoption.differences.length;
+    return `Adopted from what-if version ${a.adoption.whatIf.version}, re-checked against the depot as it is now: ` +
+      (n === 0 ? 'nothing differed from the study.' : `${n === 1 ? '1 difference' : `${n} differences`} from the study, the depot's data used.`);
+  }
+
+  /**
+   * Adopts a what-if: re-checks the study against the depot now, lists what differs in a dialog,
+   * then makes a new normal draft and opens it. A refusal (night ended, cannot be re-checked) is
+   * shown as the API words it.
+   */
+  protected async adopt(plan: PlanSummary): Promise<void> {
+    if (this.busy()) return;
+    this.clearProblems();
+    this.conflict.set(null);
+    this.busy.set(`Re-checking what-if version ${plan.version} against the depot`);
+    try {
+      const adoption = await this.api.adoption(plan.id);
+      const data: AdoptData = { adoption, night: formatServiceDay(plan.serviceDate), depot: this.depot()?.name ?? 'the depot' };
+      this.busy.set(null);
+      const yes = await firstValueFrom(
+        this.dialog.open<AdoptDialog, AdoptData, boolean>(AdoptDialog, { data, width: '560px', maxWidth: '95vw' }).afterClosed(),
+      );
+      if (!yes) return;
+      this.busy.set(`Adopting what-if version ${plan.version}`);
+      const done = await this.api.adopt(plan.id);
+      this.adopted.set(done);
+      this.versions.update((list) => [done.plan, ...list.filter((v) => v.id !== done.plan.id)]);
+      this.announcement.set(`Version ${done.plan.version}, adopted from what-if version ${plan.version}, is being generated.`);
+      this.snackBar.open(`What-if version ${plan.version} adopted as draft version ${done.plan.version}`, 'OK');
+      this.navigate({ date: done.plan.serviceDate, plan: done.plan.id });
+      this.watch(done.plan.id);
+    } catch (err) {
+      this.problem.set(`Not adopted. ${toApiProblem(err).message}`);
     } finally {
       this.busy.set(null);
     }
