@@ -36,6 +36,7 @@ describe('charging profiles are bound to their night (central system and station
   const app = createTestApp({ clock: () => now });
   const central = new CentralSystem(app.db, pino({ level: 'silent' }), () => now);
   let server: Server;
+  let url: string;
   let sup: TestUser;
   let fac: TestUser;
   let depotId: string;
@@ -70,7 +71,7 @@ describe('charging profiles are bound to their night (central system and station
     }
     now = chargingInstant(plan['2026-12-09']!.result);
     await signInAgain(app, sup, fac);
-    const url = `ws://127.0.0.1:${(server.address() as AddressInfo).port}/ocpp`;
+    url = `ws://127.0.0.1:${(server.address() as AddressInfo).port}/ocpp`;
     for (const c of depot.chargers) {
       stations.push(new SimulatedStation({ url, identity: `N-${c.label}-${depotId.slice(0, 8)}`, password: 'test-charger-password',
         protocol: c.label === 'C' ? 'ocpp2.0.1' : 'ocpp1.6', clock: () => now, meterIntervalMs: 200 }));
@@ -162,5 +163,29 @@ describe('charging profiles are bound to their night (central system and station
     expect(stations.map((s) => s.limitW())).toEqual(stations.map((s) => plannedW(plan['2026-12-10']!.result, label(s), now)));
     const [row] = await app.db.select().from(chargers).where(and(eq(chargers.depotId, depotId), eq(chargers.label, 'A')));
     expect(row!.liveConnected).toBe(true);
+  });
+
+  it('a charger that boots gets tonight\'s profile, then the next night\'s', async () => {
+    const old = stations[0]!;
+    await old.stop();
+    const fresh = new SimulatedStation({ url, identity: old.client.identity!, password: 'test-charger-password', protocol: 'ocpp1.6', clock: () => now, meterIntervalMs: 200 });
+    stations[0] = fresh;
+    await fresh.start();
+    await expect.poll(() => fresh.received.length, { timeout: 5000 }).toBe(2);
+    expect(fresh.received.map((r) => (r.csChargingProfiles as { chargingProfileId: number }).chargingProfileId)).toEqual([20261210, 20261211]);
+    expect(fresh.limitW()).toBe(plannedW(plan['2026-12-10']!.result, 'A', now));
+  });
+
+  it('the download carries the same binding: id, stack level and validity of its night', async () => {
+    await signInAgain(app, sup);
+    for (const [date, version] of [['2026-12-10', '1.6'], ['2026-12-11', '2.0.1']] as const) {
+      const res = await app.request().get(`/api/plans/${plan[date]!.id}/ocpp`).query({ version }).set(as(sup)).expect(200);
+      const station = stations.find((s) => label(s) === (version === '1.6' ? 'A' : 'C'))!;
+      const held = station.profiles.profiles.find((p) => p.id === Number(date.replace(/-/g, '')))!;
+      const exported = res.body.find((e: { chargerId: string }) => e.chargerId === label(station)).payload;
+      const profile = version === '1.6' ? exported.csChargingProfiles : exported.chargingProfile;
+      expect(profile.stackLevel).toBe(held.stackLevel);
+      expect([Date.parse(profile.validFrom), Date.parse(profile.validTo)]).toEqual([held.validFromMs, held.validToMs]);
+    }
   });
 });
