@@ -19,7 +19,7 @@ type RpcClient = {
   protocol?: string;
   session: { chargerId: string; depotId: string };
   handle(method: string, handler: (args: { params: Record<string, unknown> }) => unknown): void;
-  call(method: string, params: unknown): Promise<unknown>;
+  call(method: string, params: unknown, options?: { callTimeoutMs?: number }): Promise<unknown>;
   close(opts?: { code?: number; reason?: string; force?: boolean }): Promise<unknown>;
   on(event: 'close', listener: () => void): void;
 };
@@ -73,6 +73,8 @@ export interface AuthFailureLimits {
 }
 export const DEFAULT_AUTH_FAILURE_LIMITS: AuthFailureLimits = { perIdentity: 10, perAddress: 50, windowMs: 5 * 60_000 };
 const MAX_OCPP_INTEGER = 2 ** 31 - 1;
+/** How long a charger has to answer a SetChargingProfile: a silent one must not hold up its depot's sends. */
+const PROFILE_CALL_TIMEOUT_MS = 15_000;
 const WRONG_CREDENTIALS = 'Unknown charger identity or wrong password';
 
 /** Writes a plain HTTP refusal on a socket that asked for an upgrade, and closes it. */
@@ -124,6 +126,8 @@ export class CentralSystem {
   private readonly sentTo = new WeakMap<RpcClient, string>();
   /** Per depot: its profile sends, one after another (and tonight's before the next night's, always). */
   private readonly sending = new Map<string, Promise<unknown>>();
+  /** Chargers whose heartbeat check is queued: a further heartbeat meanwhile adds none. */
+  private readonly checking = new Set<string>();
 
   constructor(
     private readonly db: Db,
@@ -263,7 +267,12 @@ export class CentralSystem {
     on('Heartbeat', () => {
       live.touch();
       // A night that has just become the next one (a plan published further ahead) goes out now.
-      this.sendNights(client.session.depotId, chargerId).catch((err: unknown) => this.log.warn({ err, chargerId }, 'profiles not brought up to date'));
+      if (!this.checking.has(chargerId)) {
+        this.checking.add(chargerId);
+        this.sendNights(client.session.depotId, chargerId)
+          .catch((err: unknown) => this.log.warn({ err, chargerId }, 'profiles not brought up to date'))
+          .finally(() => this.checking.delete(chargerId));
+      }
       return { currentTime: now() };
     });
     on('StatusNotification', ({ params }) => {
@@ -365,7 +374,7 @@ export class CentralSystem {
   private async sendProfile(client: RpcClient, c: typeof chargers.$inferSelect, planId: string, result: PlanResult, night: ProfileNight, version: OcppVersion) {
     const [profile] = chargingProfiles(result, night, [{ label: c.label, connectorId: c.connectorId, evseId: c.evseId }], version);
     try {
-      const reply = (await client.call('SetChargingProfile', profile!.payload)) as { status?: string };
+      const reply = (await client.call('SetChargingProfile', profile!.payload, { callTimeoutMs: PROFILE_CALL_TIMEOUT_MS })) as { status?: string };
       this.log.info({ charger: c.label, status: reply?.status, planId, night: night.serviceDate }, 'charging profile sent');
       return reply?.status === 'Accepted';
     } catch (err) {
