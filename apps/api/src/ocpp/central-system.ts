@@ -359,14 +359,16 @@ export class CentralSystem {
     let sent = 0;
     await Promise.all(targets.map(async (c) => {
       const client = this.connected.get(c.id);
-      if (!client || this.sentTo.get(client) === signature) return;
+      // The charger's connector / EVSE is part of what it was sent (facilities may change it).
+      const sentKey = `${signature}|${c.connectorId}|${c.evseId}`;
+      if (!client || this.sentTo.get(client) === sentKey) return;
       const version: OcppVersion = client.protocol === 'ocpp2.0.1' ? '2.0.1' : '1.6';
       let all = true;
       for (const n of nights) {
         if (await this.sendProfile(client, c, n.planId, await resultOf(n.planId), n.night, version)) sent++;
         else all = false;
       }
-      if (all) this.sentTo.set(client, signature);
+      if (all) this.sentTo.set(client, sentKey);
     }));
     return sent;
   }
