@@ -126,6 +126,8 @@ export class CentralSystem {
   private readonly sentTo = new WeakMap<RpcClient, string>();
   /** Per depot: its profile sends, one after another (and tonight's before the next night's, always). */
   private readonly sending = new Map<string, Promise<unknown>>();
+  /** Per depot: the send waiting for its turn, and for which chargers. */
+  private readonly waiting = new Map<string, { targets: Set<string> | 'all'; done: Promise<number> }>();
   /** Chargers whose heartbeat check is queued: a further heartbeat meanwhile adds none. */
   private readonly checking = new Set<string>();
 
@@ -327,12 +329,25 @@ export class CentralSystem {
    * never overtaken by an older one. Returns the number of profiles sent.
    */
   sendNights(depotId: string, onlyChargerId?: string): Promise<number> {
-    return this.inTurn(depotId, () => this.sendNightsNow(depotId, onlyChargerId));
+    // Requests while one waits its turn join it (ten chargers booting at once make one send).
+    const waiting = this.waiting.get(depotId);
+    if (waiting) {
+      if (!onlyChargerId) waiting.targets = 'all';
+      else if (waiting.targets !== 'all') waiting.targets.add(onlyChargerId);
+      return waiting.done;
+    }
+    const entry: { targets: Set<string> | 'all'; done: Promise<number> } = { targets: onlyChargerId ? new Set([onlyChargerId]) : 'all', done: Promise.resolve(0) };
+    this.waiting.set(depotId, entry);
+    entry.done = this.inTurn(depotId, () => {
+      this.waiting.delete(depotId);
+      return this.sendNightsNow(depotId, entry.targets);
+    });
+    return entry.done;
   }
 
-  private async sendNightsNow(depotId: string, onlyChargerId?: string): Promise<number> {
+  private async sendNightsNow(depotId: string, only: Set<string> | 'all'): Promise<number> {
     const targets = (await this.db.select().from(chargers).where(and(eq(chargers.depotId, depotId), isNotNull(chargers.ocppIdentity))))
-      .filter((c) => (!onlyChargerId || c.id === onlyChargerId) && this.connected.has(c.id));
+      .filter((c) => (only === 'all' || only.has(c.id)) && this.connected.has(c.id));
     if (!targets.length) return 0;
     const [depot] = await this.db.select({ id: depots.id, timezone: depots.timezone }).from(depots).where(eq(depots.id, depotId));
     if (!depot) return 0;
