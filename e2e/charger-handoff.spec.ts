@@ -41,4 +41,10 @@ test('the published plan downloads as OCPP charging profiles', async ({ page }) 
   const body = JSON.parse(await (await file.createReadStream()).toArray().then((c) => Buffer.concat(c).toString('utf8')));
   expect(body).toHaveLength(10);
   expect(body[0].payload.csChargingProfiles.chargingSchedule.chargingRateUnit).toBe('W');
+  // Bound to Tuesday's night: its id, and valid now (the night in force), not before or after it.
+  const profile = body[0].payload.csChargingProfiles;
+  expect(profile.chargingProfileId).toBe(20261208);
+  expect(Date.parse(profile.validFrom)).toBeLessThanOrEqual(Date.parse(AT.wednesdayAfterMidnight));
+  expect(Date.parse(profile.validTo)).toBeGreaterThan(Date.parse(AT.wednesdayAfterMidnight));
+  expect(Date.parse(profile.validTo) - Date.parse(profile.validFrom)).toBeLessThan(24 * 3_600_000);
 });

@@ -4,14 +4,7 @@
 //   NIGHTYARD_OCPP_URL (default ws://127.0.0.1:3000/ocpp)
 import { RPCClient } from 'ocpp-rpc';
 import { DEMO_CHARGER_PASSWORD, demoChargerIdentity, demoChargers } from './demo/demo-depot';
-
-type Protocol = 'ocpp1.6' | 'ocpp2.0.1';
-
-interface Schedule {
-  startMs: number;
-  durationS: number;
-  periods: { startPeriod: number; limit: number }[];
-}
+import { ProfileStore, profileOf, type Protocol } from './station-profiles';
 
 export interface StationOptions {
   url: string;
@@ -30,7 +23,8 @@ export interface StationOptions {
 export class SimulatedStation {
   readonly client: InstanceType<typeof RPCClient>;
   readonly received: Record<string, unknown>[] = [];
-  private schedule: Schedule | null = null;
+  /** The charging profiles held, with their stack levels and validity (station-profiles.ts). */
+  readonly profiles: ProfileStore;
   private timer: NodeJS.Timeout | undefined;
   private lastStatus = '';
   private readonly clock: () => Date;
@@ -45,27 +39,19 @@ export class SimulatedStation {
       endpoint: opts.url, identity: opts.identity, password: opts.password, protocols: [opts.protocol],
       strictMode: true, reconnect: true, maxReconnects: Infinity, backoff: { initialDelay: 500, maxDelay: 10_000, factor: 2, randomisationFactor: 0.2 },
     } as ConstructorParameters<typeof RPCClient>[0]);
+    this.profiles = new ProfileStore(opts.protocol);
     this.client.handle('SetChargingProfile', async ({ params }) => {
       this.received.push(params ?? {});
-      this.schedule = scheduleOf(params ?? {}, opts.protocol);
-      setTimeout(() => void this.report(), 10);
-      return { status: 'Accepted' };
+      const status = this.profiles.set(profileOf(params ?? {}, opts.protocol));
+      setTimeout(() => void this.report().catch(() => undefined), 10);
+      return { status };
     });
-    this.client.handle('ClearChargingProfile', async () => {
-      this.schedule = null;
-      return { status: 'Accepted' };
-    });
+    this.client.handle('ClearChargingProfile', async ({ params }) => ({ status: this.profiles.clear(params ?? {}) }));
   }
 
-  /** The limit in force now under the received profile (W); none means no plan: 0. */
+  /** The limit in force at `at` under the profiles held (W): the highest valid stack level's; none means no plan: 0. */
   limitW(at = this.clock()): number {
-    const s = this.schedule;
-    if (!s) return 0;
-    const offset = (at.getTime() - s.startMs) / 1000;
-    if (offset < 0 || offset >= s.durationS) return 0;
-    let limit = 0;
-    for (const p of s.periods) if (p.startPeriod <= offset) limit = p.limit;
-    return limit;
+    return this.profiles.limitW(at);
   }
 
   async start(): Promise<void> {
@@ -118,15 +104,6 @@ export class SimulatedStation {
     clearInterval(this.heartbeat);
     await this.client.close({ force: true });
   }
-}
-
-function scheduleOf(params: Record<string, unknown>, protocol: Protocol): Schedule {
-  const schedule = (protocol === 'ocpp1.6'
-    ? (params.csChargingProfiles as { chargingSchedule: Record<string, unknown> }).chargingSchedule
-    : (params.chargingProfile as { chargingSchedule: Record<string, unknown>[] }).chargingSchedule[0]!) as {
-    startSchedule: string; duration: number; chargingSchedulePeriod: { startPeriod: number; limit: number }[];
-  };
-  return { startMs: Date.parse(schedule.startSchedule), durationS: schedule.duration, periods: schedule.chargingSchedulePeriod };
 }
 
 /** The demo depot's chargers (of a tagged test district, with a tag), as simulated stations. */

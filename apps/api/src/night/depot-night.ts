@@ -40,7 +40,7 @@ export function forgetServiceDays(depotId: string): void {
   serviceDaysCache.delete(depotId);
 }
 
-async function serviceDaysAround(db: Db, depotId: string, today: DateTime): Promise<ServiceDayTimes[]> {
+export async function serviceDaysAround(db: Db, depotId: string, today: DateTime): Promise<ServiceDayTimes[]> {
   // Summed up in the database: one row per service day (first pull-in, last bus's first pull-out).
   const { rows } = await db.execute<{ service_date: string; first_in: Date; last_first_out: Date }>(sql`
     select service_date::text as service_date, min(first_in) as first_in, max(first_out) as last_first_out

@@ -1,15 +1,16 @@
-import { and, desc, eq, isNotNull } from 'drizzle-orm';
+import { and, eq, inArray, isNotNull } from 'drizzle-orm';
 import type { IncomingMessage, Server } from 'node:http';
 import type { Duplex } from 'node:stream';
 import { RPCServer, createRPCError } from 'ocpp-rpc';
 import type { Logger } from 'pino';
-import { planResultSchema } from '@nightyard/contracts';
+import { planResultSchema, type PlanResult } from '@nightyard/contracts';
 import type { Clock } from '../time/clock';
 import { nightOfDepot } from '../night/depot-night';
 import type { Db } from '../db/client';
 import { chargers, depots, plans } from '../db/schema';
 import { DUMMY_HASH, checkPassword } from '../auth/secrets';
-import { chargingProfiles, type OcppVersion } from './charging-profiles';
+import { chargingProfiles, type OcppVersion, type ProfileNight } from './charging-profiles';
+import { profileNightsOf } from './profile-nights';
 import { FailureThrottle } from './failure-throttle';
 import { LiveStateWriter } from './live-state-writer';
 
@@ -18,7 +19,7 @@ type RpcClient = {
   protocol?: string;
   session: { chargerId: string; depotId: string };
   handle(method: string, handler: (args: { params: Record<string, unknown> }) => unknown): void;
-  call(method: string, params: unknown): Promise<unknown>;
+  call(method: string, params: unknown, options?: { callTimeoutMs?: number }): Promise<unknown>;
   close(opts?: { code?: number; reason?: string; force?: boolean }): Promise<unknown>;
   on(event: 'close', listener: () => void): void;
 };
@@ -72,6 +73,8 @@ export interface AuthFailureLimits {
 }
 export const DEFAULT_AUTH_FAILURE_LIMITS: AuthFailureLimits = { perIdentity: 10, perAddress: 50, windowMs: 5 * 60_000 };
 const MAX_OCPP_INTEGER = 2 ** 31 - 1;
+/** How long a charger has to answer a SetChargingProfile: a silent one must not hold up its depot's sends. */
+const PROFILE_CALL_TIMEOUT_MS = 15_000;
 const WRONG_CREDENTIALS = 'Unknown charger identity or wrong password';
 
 /** Writes a plain HTTP refusal on a socket that asked for an upgrade, and closes it. */
@@ -119,6 +122,14 @@ export class CentralSystem {
   private readonly writers = new Map<string, LiveStateWriter>();
   private readonly failuresByIdentity: FailureThrottle;
   private readonly failuresByAddress: FailureThrottle;
+  /** Per connection: what it was last sent (tonight's and the next night's plans and bindings). */
+  private readonly sentTo = new WeakMap<RpcClient, string>();
+  /** Per depot: its profile sends, one after another (and tonight's before the next night's, always). */
+  private readonly sending = new Map<string, Promise<unknown>>();
+  /** Per depot: the send waiting for its turn, and for which chargers. */
+  private readonly waiting = new Map<string, { targets: Set<string> | 'all'; done: Promise<number> }>();
+  /** Chargers whose heartbeat check is queued: a further heartbeat meanwhile adds none. */
+  private readonly checking = new Set<string>();
 
   constructor(
     private readonly db: Db,
@@ -248,14 +259,22 @@ export class CentralSystem {
       });
 
     on('BootNotification', () => {
-      // Send the night's profile once the charger has been told it is accepted.
+      // Send tonight's and the next night's profiles once the charger has been told it is accepted.
+      this.sentTo.delete(client);
       setTimeout(() => {
-        this.sendCurrentPlan(chargerId).catch((err: unknown) => this.log.warn({ err, chargerId }, 'current plan not sent'));
+        this.sendNights(client.session.depotId, chargerId).catch((err: unknown) => this.log.warn({ err, chargerId }, 'current plan not sent'));
       }, 50);
       return { status: 'Accepted', currentTime: now(), interval: 30 };
     });
     on('Heartbeat', () => {
       live.touch();
+      // A night that has just become the next one (a plan published further ahead) goes out now.
+      if (!this.checking.has(chargerId)) {
+        this.checking.add(chargerId);
+        this.sendNights(client.session.depotId, chargerId)
+          .catch((err: unknown) => this.log.warn({ err, chargerId }, 'profiles not brought up to date'))
+          .finally(() => this.checking.delete(chargerId));
+      }
       return { currentTime: now() };
     });
     on('StatusNotification', ({ params }) => {
@@ -291,40 +310,105 @@ export class CentralSystem {
     return this.connected.has(chargerId);
   }
 
-  /** Sends a published plan's profiles to its depot's connected chargers (or just one). */
-  async sendPlan(planId: string, onlyChargerId?: string): Promise<number> {
-    const [plan] = await this.db.select().from(plans).where(eq(plans.id, planId));
-    if (!plan?.result || plan.state !== 'published') return 0;
-    const result = planResultSchema.parse(plan.result);
-    const list = await this.db.select().from(chargers).where(and(eq(chargers.depotId, plan.depotId), isNotNull(chargers.ocppIdentity)));
-    let sent = 0;
-    for (const c of list) {
-      const client = this.connected.get(c.id);
-      if (!client || (onlyChargerId && c.id !== onlyChargerId)) continue;
-      const version: OcppVersion = client.protocol === 'ocpp2.0.1' ? '2.0.1' : '1.6';
-      const [profile] = chargingProfiles(result, plan.serviceDate, [{ label: c.label, connectorId: c.connectorId, evseId: c.evseId }], version);
-      try {
-        const reply = (await client.call('SetChargingProfile', profile!.payload)) as { status?: string };
-        this.log.info({ charger: c.label, status: reply?.status, planId }, 'charging profile sent');
-        sent++;
-      } catch (err) {
-        this.log.warn({ err, charger: c.label }, 'charging profile refused');
-      }
+  /**
+   * After a plan is published (a new night or a revision): its depot's chargers get tonight's and
+   * the next night's profiles. A plan for a night further ahead waits on the central system until
+   * its night is the next one (the chargers' heartbeats bring it then): a charger holds at most
+   * those two nights of ours, whose stack levels always differ (see ProfileNight).
+   */
+  async sendPlan(planId: string): Promise<number> {
+    const [plan] = await this.db.select({ depotId: plans.depotId, state: plans.state }).from(plans).where(eq(plans.id, planId));
+    if (!plan || plan.state !== 'published') return 0;
+    return this.sendNights(plan.depotId);
+  }
+
+  /**
+   * Tonight's (the night in force, else the next one) and the next night's published profiles, to
+   * the depot's connected chargers (or one), tonight's first; a connection that already has
+   * exactly these is skipped. One depot's sends run one after another, so a revision's profile is
+   * never overtaken by an older one. Returns the number of profiles sent.
+   */
+  sendNights(depotId: string, onlyChargerId?: string): Promise<number> {
+    // Requests while one waits its turn join it (ten chargers booting at once make one send).
+    const waiting = this.waiting.get(depotId);
+    if (waiting) {
+      if (!onlyChargerId) waiting.targets = 'all';
+      else if (waiting.targets !== 'all') waiting.targets.add(onlyChargerId);
+      return waiting.done;
     }
+    const entry: { targets: Set<string> | 'all'; done: Promise<number> } = { targets: onlyChargerId ? new Set([onlyChargerId]) : 'all', done: Promise.resolve(0) };
+    this.waiting.set(depotId, entry);
+    entry.done = this.inTurn(depotId, () => {
+      this.waiting.delete(depotId);
+      return this.sendNightsNow(depotId, entry.targets);
+    });
+    return entry.done;
+  }
+
+  private async sendNightsNow(depotId: string, only: Set<string> | 'all'): Promise<number> {
+    const targets = (await this.db.select().from(chargers).where(and(eq(chargers.depotId, depotId), isNotNull(chargers.ocppIdentity))))
+      .filter((c) => (only === 'all' || only.has(c.id)) && this.connected.has(c.id));
+    if (!targets.length) return 0;
+    const [depot] = await this.db.select({ id: depots.id, timezone: depots.timezone }).from(depots).where(eq(depots.id, depotId));
+    if (!depot) return 0;
+    const { tonight } = await nightOfDepot(this.db, depot, this.clock());
+    const dates = [tonight.serviceDate, tonight.nextServiceDate];
+    const published = await this.db.select({ id: plans.id, serviceDate: plans.serviceDate }).from(plans)
+      .where(and(eq(plans.depotId, depotId), inArray(plans.serviceDate, dates), eq(plans.state, 'published'), isNotNull(plans.result)));
+    const bindings = await profileNightsOf(this.db, depot, dates);
+    const nights = dates.flatMap((date, k) => {
+      const plan = published.find((p) => p.serviceDate === date);
+      return plan ? [{ planId: plan.id, night: bindings[k]! }] : [];
+    });
+    const signature = JSON.stringify(nights);
+    // Results are read only when some connection needs them (heartbeats mostly find none does).
+    const results = new Map<string, Promise<PlanResult>>();
+    const resultOf = (planId: string) => {
+      let r = results.get(planId);
+      if (!r) {
+        r = this.db.select({ result: plans.result }).from(plans).where(eq(plans.id, planId)).then(([p]) => planResultSchema.parse(p!.result));
+        results.set(planId, r);
+      }
+      return r;
+    };
+    let sent = 0;
+    await Promise.all(targets.map(async (c) => {
+      const client = this.connected.get(c.id);
+      // The charger's connector / EVSE is part of what it was sent (facilities may change it).
+      const sentKey = `${signature}|${c.connectorId}|${c.evseId}`;
+      if (!client || this.sentTo.get(client) === sentKey) return;
+      const version: OcppVersion = client.protocol === 'ocpp2.0.1' ? '2.0.1' : '1.6';
+      let all = true;
+      for (const n of nights) {
+        if (await this.sendProfile(client, c, n.planId, await resultOf(n.planId), n.night, version)) sent++;
+        else all = false;
+      }
+      if (all) this.sentTo.set(client, sentKey);
+    }));
     return sent;
   }
 
-  /** On (re)connection: tonight's published plan (the night in force, else the next one). */
-  private async sendCurrentPlan(chargerId: string) {
-    const [c] = await this.db.select().from(chargers).where(eq(chargers.id, chargerId));
-    if (!c) return;
-    const [depot] = await this.db.select({ id: depots.id, timezone: depots.timezone }).from(depots).where(eq(depots.id, c.depotId));
-    const { tonight } = await nightOfDepot(this.db, depot!, this.clock());
-    const [published] = await this.db
-      .select()
-      .from(plans)
-      .where(and(eq(plans.depotId, c.depotId), eq(plans.serviceDate, tonight.serviceDate), eq(plans.state, 'published')));
-    if (published) await this.sendPlan(published.id, chargerId);
+  private async sendProfile(client: RpcClient, c: typeof chargers.$inferSelect, planId: string, result: PlanResult, night: ProfileNight, version: OcppVersion) {
+    const [profile] = chargingProfiles(result, night, [{ label: c.label, connectorId: c.connectorId, evseId: c.evseId }], version);
+    try {
+      const reply = (await client.call('SetChargingProfile', profile!.payload, { callTimeoutMs: PROFILE_CALL_TIMEOUT_MS })) as { status?: string };
+      this.log.info({ charger: c.label, status: reply?.status, planId, night: night.serviceDate }, 'charging profile sent');
+      return reply?.status === 'Accepted';
+    } catch (err) {
+      this.log.warn({ err, charger: c.label }, 'charging profile refused');
+      return false;
+    }
+  }
+
+  /** Runs `work` after the depot's earlier sends have finished. */
+  private inTurn<T>(depotId: string, work: () => Promise<T>): Promise<T> {
+    const next = (this.sending.get(depotId) ?? Promise.resolve()).then(work, work);
+    const tail = next.then(() => undefined, () => undefined);
+    this.sending.set(depotId, tail);
+    void tail.then(() => {
+      if (this.sending.get(depotId) === tail) this.sending.delete(depotId);
+    });
+    return next;
   }
 
   async close(): Promise<void> {

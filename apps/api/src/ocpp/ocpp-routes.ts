@@ -2,12 +2,13 @@ import { and, asc, eq } from 'drizzle-orm';
 import { z } from 'zod';
 import { depotItemParamsSchema, planIdParamsSchema, planResultSchema } from '@nightyard/contracts';
 import type { AppDeps } from '../app-deps';
-import { chargers, plans } from '../db/schema';
+import { chargers, depots, plans } from '../db/schema';
 import { DomainError, conflict, notFound } from '../http/errors';
 import type { ApiRoutes } from '../http/route';
 import { hashPassword } from '../auth/secrets';
 import { depotOf } from '../depots/depot-access';
 import { chargingProfiles } from './charging-profiles';
+import { profileNightsOf } from './profile-nights';
 
 const exportSchema = z.array(z.object({
   chargerId: z.string(),
@@ -29,7 +30,10 @@ export function ocppRoutes(api: ApiRoutes, { db }: AppDeps) {
       const used = new Set(planResultSchema.parse(plan.result).sessions.map((s) => s.charger));
       const refs = list.filter((c) => used.has(c.label) || c.status === 'in_service')
         .map((c) => ({ label: c.label, connectorId: c.connectorId, evseId: c.evseId }));
-      return chargingProfiles(planResultSchema.parse(plan.result), plan.serviceDate, refs, query.version);
+      const [depot] = await db.select({ id: depots.id, timezone: depots.timezone }).from(depots).where(eq(depots.id, plan.depotId));
+      // Bound to the plan's night: its id, stack level and validity (see ProfileNight).
+      const [night] = await profileNightsOf(db, depot!, [plan.serviceDate]);
+      return chargingProfiles(planResultSchema.parse(plan.result), night!, refs, query.version);
     },
   );
   api.add(

@@ -15,7 +15,7 @@ import { generatedPlan } from '../testing/plan-fixture';
 import { createOrganisation, createTestApp, type TestUser } from '../testing/test-app';
 import { SimulatedStation } from '../../../../tools/station-simulator';
 import { CentralSystem } from './central-system';
-import { chargingProfiles } from './charging-profiles';
+import { chargingProfiles, profileNightOf } from './charging-profiles';
 
 // The official OCPP 1.6 and 2.0.1 JSON schemas, as ocpp-rpc applies them in strict mode.
 const validators = standardValidators as unknown as { subprotocol: string; validate(id: string, params: unknown): boolean }[];
@@ -30,7 +30,7 @@ describe('OCPP charging profiles of the demo plan validate against the official 
     const result = planResultSchema.parse(await planScenario(parsed.scenario));
     const refs = parsed.scenario.chargers.map((c) => ({ label: c.id, connectorId: 1, evseId: 1 }));
     for (const [version, protocol] of [['1.6', 'ocpp1.6'], ['2.0.1', 'ocpp2.0.1']] as const) {
-      const exported = chargingProfiles(result, '2026-12-02', refs, version);
+      const exported = chargingProfiles(result, profileNightOf([], 'America/Chicago', '2026-12-02'), refs, version);
       expect(exported).toHaveLength(refs.length);
       for (const e of exported) {
         expect(validate(protocol, e.payload)).toBe(true);

@@ -1,0 +1,12 @@
+import { DateTime } from 'luxon';
+import type { Db } from '../db/client';
+import { serviceDaysAround } from '../night/depot-night';
+import { profileNightOf, type ProfileNight } from './charging-profiles';
+
+/** How each of `serviceDates` binds its profiles (ids, stack levels, validity), from the depot's runs. */
+export async function profileNightsOf(db: Db, depot: { id: string; timezone: string }, serviceDates: string[]): Promise<ProfileNight[]> {
+  if (!serviceDates.length) return [];
+  const sorted = [...serviceDates].sort();
+  const days = await serviceDaysAround(db, depot.id, DateTime.fromISO(sorted[0]!, { zone: depot.timezone }).startOf('day'));
+  return serviceDates.map((d) => profileNightOf(days, depot.timezone, d));
+}
