@@ -7,6 +7,7 @@ import { AuthStore } from '../auth/auth-store';
 import { depot, settle, tokenResponse } from '../testing/fixtures';
 import { DEPOT_ID, depotDetail } from '../shared/setup-fixtures';
 import { DepotPage } from './depot-page';
+import { FakeLiveTransport, provideFakeLive } from '../testing/live-fake';
 
 describe('DepotPage', () => {
   let fixture: ComponentFixture<DepotPage>;
@@ -14,7 +15,7 @@ describe('DepotPage', () => {
   let mock: HttpTestingController;
 
   beforeEach(() => {
-    TestBed.configureTestingModule({ providers: [provideRouter([]), provideHttpClient(), provideHttpClientTesting()] });
+    TestBed.configureTestingModule({ providers: [provideRouter([]), provideHttpClient(), provideHttpClientTesting(), provideFakeLive()] });
     mock = TestBed.inject(HttpTestingController);
   });
 

@@ -8,6 +8,7 @@ import type { Tonight } from '@nightyard/contracts';
 import { AuthStore } from '../auth/auth-store';
 import { DepotStore } from '../depots/depot-store';
 import { depot, settle } from '../testing/fixtures';
+import { FakeLiveTransport, provideFakeLive } from '../testing/live-fake';
 import { OUTBOX_STORAGE_KEY } from './confirmation-outbox';
 import { DEPOT_ID, at, charger, plan, tonight } from './yard-fixtures';
 import { YardPage } from './yard-page';
@@ -37,6 +38,7 @@ describe('YardPage', () => {
         provideRouter([]),
         provideHttpClient(),
         provideHttpClientTesting(),
+        provideFakeLive(),
         { provide: MatDialog, useValue: { open } },
         { provide: AuthStore, useValue: { user: signal({ id: 'user-1' }) } },
         { provide: DepotStore, useValue: { load: () => Promise.resolve(), state: signal('loaded'), current: computed(() => current()) } },
