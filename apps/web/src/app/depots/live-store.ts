@@ -162,7 +162,11 @@ export class LiveStore {
     if (e.users === 0) return;
     e.depot.connection.set('waiting');
     const delay = reconnectDelay(e.attempt++, this.random);
-    e.retry = setTimeout(() => this.connect(e), delay);
+    e.retry = setTimeout(() => {
+      e.retry = null;
+      // No page watches any more (it may come back while the stream lingers: it connects then).
+      if (e.users > 0) this.connect(e);
+    }, delay);
   }
 
   private release(e: Entry): void {

@@ -151,6 +151,29 @@ describe('YardPage', () => {
     expect(open.mock.calls[0]![1].data.preset).toEqual({ kind: 'charger_out', charger: 'C1', reason: 'The charger reported a fault at 22:20' });
   });
 
+  it('shows a fault pushed over the live stream at once and offers the report from it', async () => {
+    open.mockReturnValue({ afterClosed: () => ({ subscribe: () => undefined }) });
+    await start();
+    expect(el.querySelector('[data-fault]')).toBeNull();
+    TestBed.inject(FakeLiveTransport).last.events.next({
+      type: 'charger', at: at('22:31'),
+      charger: { chargerId: 'charger-C2', label: 'C2', status: 'faulted', powerKw: null, seenAt: at('22:31') },
+    });
+    await render();
+    expect(text(card('C2').querySelector('.live'))).toContain('Faulted (at 22:31)');
+    const notice = el.querySelector<HTMLElement>('[data-fault="C2"]')!;
+    expect(text(notice)).toContain('Charger C2 reports a fault (since 22:31, depot time)');
+    notice.querySelector('button')!.click();
+    expect(open.mock.calls.at(-1)![1].data.preset).toEqual({ kind: 'charger_out', charger: 'C2', reason: 'The charger reported a fault at 22:31' });
+  });
+
+  it('asks for the cautions first when a fault arrives before the shift has acknowledged them', async () => {
+    await start(tonight({ acknowledged: false }), [charger('C1', { live: { status: 'faulted', powerKw: null, seenAt: at('22:20') } })]);
+    const notice = el.querySelector('[data-fault="C1"]')!;
+    expect(text(notice)).toContain('Acknowledge the shift\'s cautions below, then report it out of service');
+    expect(notice.querySelector('button')).toBeNull();
+  });
+
   it('says plainly when there is no plan', async () => {
     await start(tonight({ plan: null, steps: [] }));
     expect(text(el)).toContain('There is no published plan for tonight or a later night at North Depot');
