@@ -228,7 +228,10 @@ export class YardStore {
 
   /** After a report: the revision's notice (with what moved) and the new timeline. */
   async reported(result: YardReportResult): Promise<void> {
-    this.notice.set({ text: `Plan revised (version ${result.revision.version}).`, moved: movedLines(result), version: result.revision.version });
+    const version = result.revision.version;
+    // The live stream may have brought the revision (and its notice) in before this answer.
+    const heard = this.notice();
+    this.notice.set({ text: heard?.version === version ? heard.text : `Plan revised (version ${version}).`, moved: movedLines(result), version });
     await this.load();
   }
 
