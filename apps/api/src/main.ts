@@ -97,6 +97,7 @@ const shutdown = (signal: string) => {
   stopping = true;
   log.info({ signal }, 'shutting down');
   void central.close();
+  live.endStreams();
   server.close(() => jobs.stop().then(() => Promise.all([pool.end(), stopWorkPool()])).then(() => process.exit(0)));
   setTimeout(() => process.exit(0), 5000).unref();
 };

@@ -25,6 +25,8 @@ export const DEFAULT_LIVE_TIMING: LiveStreamTiming = { heartbeatMs: 15_000, maxM
 export class LiveBus {
   private readonly byDepot = new Map<string, Set<LiveListener>>();
   private readonly streamsByUser = new Map<string, number>();
+  /** How to end each open stream (shutdown). */
+  private readonly enders = new Set<() => void>();
 
   constructor(
     private readonly log?: Logger,
@@ -64,6 +66,17 @@ export class LiveBus {
         this.log?.warn({ err, depotId, type: event.type }, 'live listener failed');
       }
     }
+  }
+
+  /** Registers how to end a stream; call the answer once it has ended. */
+  trackStream(end: () => void): () => void {
+    this.enders.add(end);
+    return () => this.enders.delete(end);
+  }
+
+  /** Ends every open stream (on shutdown, so the HTTP server can close; clients reconnect elsewhere). */
+  endStreams(): void {
+    for (const end of [...this.enders]) end();
   }
 
   /** Open listeners (of one depot, or of all). */

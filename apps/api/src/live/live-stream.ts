@@ -30,6 +30,7 @@ export async function streamLive(opts: {
   let queue: LiveEvent[] | null = [];
   let closed = false;
   const timers: NodeJS.Timeout[] = [];
+  const untrack = bus.trackStream(() => close());
   const off = bus.subscribe(depotId, (event) => {
     if (queue) queue.push(event);
     else write(sseMessage(event));
@@ -38,6 +39,7 @@ export async function streamLive(opts: {
   const close = (end = true) => {
     if (closed) return;
     closed = true;
+    untrack();
     off();
     bus.closeStream(userId);
     for (const t of timers) clearTimeout(t);

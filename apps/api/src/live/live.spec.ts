@@ -213,6 +213,12 @@ describe('live stream of a depot (Server-Sent Events)', () => {
     // The server ends each stream after its lifetime (4 s here); the client then opens a new one.
     await expect.poll(() => streams[1]!.ended, { timeout: 6000 }).toBe(true);
     await app.request().get('/api/health').expect(200);
+    // On shutdown every stream is ended, so the server can close.
+    const last = await open(`/depots/${depotId}/live`, fac);
+    await expect.poll(() => last.of('snapshot').length).toBe(1);
+    live.endStreams();
+    await expect.poll(() => last.ended).toBe(true);
+    await expect.poll(() => live.listenerCount()).toBe(0);
   });
 
   it('is described in the OpenAPI document as an event stream', async () => {
