@@ -203,8 +203,10 @@ describe('TonightPage', () => {
       type: 'charger' as const, at: '2026-12-02T04:00:05.000Z',
       charger: { chargerId: 'charger-C2', label: 'C2', status, powerKw: null, seenAt: '2026-12-02T04:00:05.000Z' },
     });
+    expect(fact('live')).toBe('As the chargers last reported');
     live.last.events.next(state('faulted'));
     await render();
+    expect(fact('live')).toBe('Live: changes show as the chargers report them');
     const notice = el.querySelector('[data-fault="C2"]')!;
     expect(notice.getAttribute('role')).toBe('alert');
     expect(words(notice)).toContain('Charger C2 reports a fault (since 22:00, depot time)');

@@ -109,6 +109,17 @@ export class TonightPage {
     return this.live()?.withLive(list) ?? list;
   });
   protected readonly timezone = computed(() => this.detail()?.timezone ?? this.depots.current()?.timezone ?? 'UTC');
+  /** Whether what the chargers card shows follows them as they report. */
+  protected readonly liveNote = computed(() => {
+    switch (this.live()?.connection()) {
+      case 'open':
+        return 'Live: changes show as the chargers report them';
+      case 'waiting':
+        return 'As the chargers last reported: live updates reconnecting';
+      default:
+        return 'As the chargers last reported';
+    }
+  });
   protected readonly faultCount = computed(() => faultsOf(this.liveChargers(), this.timezone()).length);
 
   protected readonly chargers = computed(() =>
