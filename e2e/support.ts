@@ -104,3 +104,18 @@ export async function latestMailTo(address: string): Promise<{ subject: string; 
     .toBe(true);
   return found!;
 }
+
+async function simulator(method: 'POST' | 'DELETE', path: string): Promise<void> {
+  const res = await fetch(`${SIMULATOR}${path}`, { method });
+  if (!res.ok) throw new Error(`The charger simulator answered ${res.status} to ${method} ${path}`);
+}
+
+/** The simulated charger (of the district the simulator has) reports a fault; it stays until cleared. */
+export async function faultCharger(label: string): Promise<void> {
+  await simulator('POST', `/fault/${encodeURIComponent(label)}`);
+}
+
+/** The simulated charger's fault is fixed: it reports its state as its profile says again. */
+export async function clearCharger(label: string): Promise<void> {
+  await simulator('POST', `/clear/${encodeURIComponent(label)}`);
+}

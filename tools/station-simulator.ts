@@ -27,6 +27,8 @@ export class SimulatedStation {
   readonly profiles: ProfileStore;
   private timer: NodeJS.Timeout | undefined;
   private lastStatus = '';
+  /** A reported fault stands until `clear()`, as a real one does until someone fixes it. */
+  private faulted = false;
   private readonly clock: () => Date;
   /** Central system time minus this machine's, learnt from its answers. */
   private offsetMs = 0;
@@ -67,15 +69,15 @@ export class SimulatedStation {
     this.timer = setInterval(() => void this.report().catch(() => undefined), this.opts.meterIntervalMs ?? 15_000);
   }
 
-  /** Status when it changes, then the power the profile allows now. */
+  /** Status when it changes, then the power the profile allows now (none while faulted). */
   async report(): Promise<void> {
-    const w = this.limitW();
+    const w = this.faulted ? 0 : this.limitW();
     const v16 = this.opts.protocol === 'ocpp1.6';
     const timestamp = this.clock().toISOString();
-    const status = w > 0 ? (v16 ? 'Charging' : 'Occupied') : 'Available';
+    const status = this.faulted ? 'Faulted' : w > 0 ? (v16 ? 'Charging' : 'Occupied') : 'Available';
     if (status !== this.lastStatus) {
       await this.client.call('StatusNotification', v16
-        ? { connectorId: 1, errorCode: 'NoError', status }
+        ? { connectorId: 1, errorCode: this.faulted ? 'GroundFailure' : 'NoError', status }
         : { timestamp, connectorStatus: status, evseId: 1, connectorId: 1 });
       this.lastStatus = status;
     }
@@ -84,12 +86,20 @@ export class SimulatedStation {
       : { evseId: 1, meterValue: [{ timestamp, sampledValue: [{ value: w, measurand: 'Power.Active.Import', unitOfMeasure: { unit: 'W' } }] }] });
   }
 
+  /** Reports a fault; it stays (the station draws nothing and keeps saying so) until `clear()`. */
   async fault(): Promise<void> {
-    const v16 = this.opts.protocol === 'ocpp1.6';
-    await this.client.call('StatusNotification', v16
-      ? { connectorId: 1, errorCode: 'GroundFailure', status: 'Faulted' }
-      : { timestamp: this.clock().toISOString(), connectorStatus: 'Faulted', evseId: 1, connectorId: 1 });
-    this.lastStatus = 'Faulted';
+    this.faulted = true;
+    await this.report();
+  }
+
+  /** The fault is fixed: the station reports its status and power as the profile says again. */
+  async clear(): Promise<void> {
+    this.faulted = false;
+    await this.report();
+  }
+
+  get isFaulted(): boolean {
+    return this.faulted;
   }
 
   /** Keeps the central system's time (OCPP's currentTime), unless the station was given a clock. */
@@ -127,16 +137,18 @@ async function main() {
   await startAll(stations, url);
   // Lets a supervisor process (the browser tests' web server list) know the simulator is up.
   // POST /fault/<label or identity> makes that charger report a fault, to show the yard's re-plan
-  // offer; PUT /stations?tag=<tag> swaps the stations for a tagged test district's chargers.
+  // offer; the fault stays until POST /clear/<label or identity> (or DELETE /fault/<...>).
+  // PUT /stations?tag=<tag> swaps the stations for a tagged test district's chargers.
   if (process.env.SIMULATOR_HEALTH_PORT) {
     const { createServer } = await import('node:http');
     createServer((req, res) => {
       const address = new URL(req.url ?? '/', 'http://simulator');
-      const label = /^\/fault\/([\w-]+)$/.exec(address.pathname)?.[1];
-      if (req.method === 'POST' && label) {
+      const [, action, label] = /^\/(fault|clear)\/([\w-]+)$/.exec(address.pathname) ?? [];
+      const clearing = (req.method === 'POST' && action === 'clear') || (req.method === 'DELETE' && action === 'fault');
+      if (label && ((req.method === 'POST' && action === 'fault') || clearing)) {
         const station = stations.find((s) => s.client.identity === label || s.client.identity?.endsWith(`-${label}`));
         if (!station) return void res.writeHead(404).end('unknown charger');
-        void station.fault().then(() => res.writeHead(204).end(), () => res.writeHead(502).end());
+        void (clearing ? station.clear() : station.fault()).then(() => res.writeHead(204).end(), () => res.writeHead(502).end());
         return;
       }
       if (req.method === 'PUT' && address.pathname === '/stations') {

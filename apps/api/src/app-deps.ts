@@ -5,6 +5,7 @@ import type { Db } from './db/client';
 import type { JobQueue } from './jobs/job-queue';
 import type { Mailer } from './mail/mailer';
 import type { Clock } from './time/clock';
+import type { LiveBus } from './live/live-bus';
 import type { TestControl } from './dev/test-control-routes';
 
 /** What route handlers are given: the database, settings and outside services. */
@@ -17,6 +18,8 @@ export interface AppDeps {
   log: Logger;
   /** Told when a plan is published or revised (the OCPP central system sends it to chargers). */
   onPlanPublished?: (planId: string) => void;
+  /** Live events by depot, streamed to the pages (fed by the OCPP central system, publish and report). */
+  live: LiveBus;
   /** The only source of "now" (tests and development can stand it at a fixed instant). */
   clock: Clock;
   /** Browser tests only (NODE_ENV=test with NIGHTYARD_TEST_CONTROL=1): move the clock, seed a district. */

@@ -17,6 +17,7 @@ import { plansRoutes } from './plans/plans-routes';
 import { costsRoutes } from './costs/costs-routes';
 import { ocppRoutes } from './ocpp/ocpp-routes';
 import { yardRoutes } from './yard/yard-routes';
+import { liveRoutes } from './live/live-routes';
 import { outboxRoutes } from './dev/outbox-routes';
 import { testControlRouter } from './dev/test-control-routes';
 import { apiNotFound, errorHandler } from './http/error-handler';
@@ -112,6 +113,7 @@ export function createApp(deps: AppDeps): BuiltApp {
   costsRoutes(api, deps);
   ocppRoutes(api, deps);
   yardRoutes(api, deps);
+  liveRoutes(api, deps);
   outboxRoutes(api, deps);
   if (deps.testControl && deps.config.NODE_ENV === 'test') router.use('/testing', testControlRouter(deps.db, deps.clock, deps.testControl));
 

@@ -10,6 +10,8 @@ import { smtpMailer } from './mail/mailer';
 import { startPlanWork } from './plans/plan-work';
 import { stopWorkPool } from './workers/pool';
 import { CentralSystem } from './ocpp/central-system';
+import { LiveBus } from './live/live-bus';
+import { feedChargerStates } from './live/live-feeds';
 import { adjustableClock, clockFromEnv } from './time/clock';
 import { isEmpty, seedDemo } from '../../../tools/demo/seed';
 import { DEMO_PASSWORD, demoUsers } from '../../../tools/demo/demo-depot';
@@ -41,10 +43,14 @@ if (wantsDemoSeed(config) && (await isEmpty(db))) {
 const jobs = await startPlanWork(config, db, log);
 
 const central = new CentralSystem(db, log, clock);
+// Live events for the pages: charger states from the central system; publish and report add theirs.
+const live = new LiveBus(log);
+feedChargerStates(central, live, clock);
 
 const { app } = createApp({
   db,
   clock,
+  live,
   ...(testControl ? { testControl: { setClock: testControl.set } } : {}),
   jobs,
   onPlanPublished: (planId) => void central.sendPlan(planId).catch((err) => log.error({ err }, 'profiles not sent')),
@@ -91,6 +97,7 @@ const shutdown = (signal: string) => {
   stopping = true;
   log.info({ signal }, 'shutting down');
   void central.close();
+  live.endStreams();
   server.close(() => jobs.stop().then(() => Promise.all([pool.end(), stopWorkPool()])).then(() => process.exit(0)));
   setTimeout(() => process.exit(0), 5000).unref();
 };

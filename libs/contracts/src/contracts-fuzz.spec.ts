@@ -69,7 +69,7 @@ const NOT_REQUESTS = new Set([
   'planStateSchema', 'planJobStatusSchema', 'planKindSchema', 'planResultSchema', 'planSummarySchema', 'planDetailSchema',
   'planComparisonSchema', 'whatIfAdoptionSchema', 'adoptedPlanSchema', 'billLineSchema', 'billSchema', 'planCostsSchema', 'emissionsSchema', 'monthCostsSchema',
   'meterImportResultSchema', 'yardStepSchema', 'tonightSchema', 'yardConfirmationSchema', 'yardReportResultSchema',
-  'emailSchema', 'passwordSchema', 'serviceNightSchema', 'depotNightSchema',
+  'emailSchema', 'passwordSchema', 'serviceNightSchema', 'depotNightSchema', 'liveChargerSchema', 'liveEventSchema',
 ]);
 
 const nastyString = fc.oneof(

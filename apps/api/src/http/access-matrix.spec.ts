@@ -82,6 +82,8 @@ const EXPECTED: Record<string, 'public' | readonly Role[]> = {
   'POST /depots/:depotId/tonight/acknowledge': YARD,
   'POST /yard/confirmations': YARD,
   'POST /depots/:depotId/tonight/reports': YARD,
+  // Charger states, publications and reports: what Tonight and Depot show every role.
+  'GET /depots/:depotId/live': ROLES,
 };
 
 const samplePath = (p: string) =>

@@ -23,6 +23,11 @@ export interface RouteSpec<B extends ZodType, Q extends ZodType, P extends ZodTy
   query?: Q;
   params?: P;
   response?: R;
+  /**
+   * The route answers with Server-Sent Events (`text/event-stream`) whose `data:` lines hold this
+   * schema's JSON; the handler writes the stream itself.
+   */
+  eventStream?: ZodType;
   /** Success status; 204 sends no body. */
   status?: number;
   /**
@@ -97,7 +102,7 @@ export class ApiRoutes {
       } else {
         answer = await execute();
       }
-      if (res.headersSent) return;
+      if (res.headersSent || res.writableEnded) return;
       if (answer.status === 204) res.status(204).end();
       else res.status(answer.status).json(answer.body);
     };
@@ -129,9 +134,11 @@ export class ApiRoutes {
           : undefined,
       },
       responses: {
-        [status]: spec.response
-          ? { description: 'Success', content: { 'application/json': { schema: spec.response } } }
-          : { description: 'Success' },
+        [status]: spec.eventStream
+          ? { description: 'A stream of Server-Sent Events; each `data:` line is one of these', content: { 'text/event-stream': { schema: spec.eventStream } } }
+          : spec.response
+            ? { description: 'Success', content: { 'application/json': { schema: spec.response } } }
+            : { description: 'Success' },
         400: { description: 'The input is not valid; `fields` says what to fix', content: errorContent },
         ...(spec.idempotent
           ? {

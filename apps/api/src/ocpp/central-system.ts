@@ -12,12 +12,17 @@ import { DUMMY_HASH, checkPassword } from '../auth/secrets';
 import { chargingProfiles, type OcppVersion, type ProfileNight } from './charging-profiles';
 import { profileNightsOf } from './profile-nights';
 import { FailureThrottle } from './failure-throttle';
-import { LiveStateWriter } from './live-state-writer';
+import { LiveStateWriter, type LiveValues } from './live-state-writer';
+import type { LiveCharger } from '@nightyard/contracts';
+import { liveChargerOf } from '../live/live-charger';
+
+/** Told of a charger's new live state (status or power changed), once it is stored. */
+export type LiveChangeListener = (depotId: string, charger: LiveCharger) => void;
 
 type RpcClient = {
   identity: string;
   protocol?: string;
-  session: { chargerId: string; depotId: string };
+  session: { chargerId: string; depotId: string; label: string };
   handle(method: string, handler: (args: { params: Record<string, unknown> }) => unknown): void;
   call(method: string, params: unknown, options?: { callTimeoutMs?: number }): Promise<unknown>;
   close(opts?: { code?: number; reason?: string; force?: boolean }): Promise<unknown>;
@@ -130,6 +135,7 @@ export class CentralSystem {
   private readonly waiting = new Map<string, { targets: Set<string> | 'all'; done: Promise<number> }>();
   /** Chargers whose heartbeat check is queued: a further heartbeat meanwhile adds none. */
   private readonly checking = new Set<string>();
+  private readonly liveListeners = new Set<LiveChangeListener>();
 
   constructor(
     private readonly db: Db,
@@ -208,18 +214,42 @@ export class CentralSystem {
     // One bcrypt comparison whether or not the identity exists: timing does not tell which do.
     const ok = await checkPassword(password?.toString('utf8') ?? '', c?.ocppPasswordHash ?? DUMMY_HASH);
     if (!c?.ocppPasswordHash || !password || !ok) return null;
-    return { chargerId: c.id, depotId: c.depotId };
+    return { chargerId: c.id, depotId: c.depotId, label: c.label };
   }
 
-  private writerFor(chargerId: string): LiveStateWriter {
+  /** Listens to chargers' live state changes (the live streams); call the answer to stop. */
+  onLiveChange(listener: LiveChangeListener): () => void {
+    this.liveListeners.add(listener);
+    return () => this.liveListeners.delete(listener);
+  }
+
+  private writerFor(session: RpcClient['session']): LiveStateWriter {
+    const { chargerId, depotId, label } = session;
     let writer = this.writers.get(chargerId);
     if (!writer) {
+      // What this charger last said, and what the live streams were last told.
+      const state: Required<LiveValues> = { liveConnected: false, liveStatus: 'offline', livePowerW: null };
+      let told: LiveCharger | null = null;
       writer = new LiveStateWriter(
-        (values) =>
-          this.db.update(chargers).set({ ...values, liveSeenAt: this.clock() }).where(eq(chargers.id, chargerId)).then(
+        async (values) => {
+          const seenAt = this.clock();
+          Object.assign(state, values);
+          await this.db.update(chargers).set({ ...values, liveSeenAt: seenAt }).where(eq(chargers.id, chargerId)).then(
             () => undefined,
             (err: unknown) => this.log.warn({ err, chargerId }, 'live status not stored'),
-          ),
+          );
+          // Pushed even when the write failed: the yard must hear of a fault whatever the database does.
+          const now = liveChargerOf({ id: chargerId, label, ...state, liveSeenAt: seenAt });
+          if (told && told.status === now.status && told.powerKw === now.powerKw) return;
+          told = now;
+          for (const listener of this.liveListeners) {
+            try {
+              listener(depotId, now);
+            } catch (err) {
+              this.log.warn({ err, chargerId }, 'live change listener failed');
+            }
+          }
+        },
         this.clock,
       );
       this.writers.set(chargerId, writer);
@@ -240,7 +270,7 @@ export class CentralSystem {
     if (older) void older.close({ code: 1000, reason: 'Replaced by a newer connection', force: true }).catch(() => undefined);
     // Stations set their clocks from these answers (BootNotification, Heartbeat): the API's clock.
     const now = () => this.clock().toISOString();
-    const live = this.writerFor(chargerId);
+    const live = this.writerFor(client.session);
     live.set({ liveConnected: true, liveStatus: 'available' });
     this.log.info({ identity: client.identity, protocol: client.protocol }, 'charger connected');
 

@@ -7,6 +7,7 @@ import type { AppDeps } from '../app-deps';
 import type { ApiRoutes } from '../http/route';
 import * as plans from './plans-service';
 import { adoptWhatIf, whatIfAdoption } from './what-if-adoption';
+import { announcePlan } from '../live/live-feeds';
 
 /** Supervisors generate and publish plans (admins may too); every role reads them. */
 const PLANNERS = ['supervisor', 'admin'] as const;
@@ -65,6 +66,7 @@ export function plansRoutes(api: ApiRoutes, deps: AppDeps) {
     async ({ user, params, body }) => {
       const plan = await plans.publishPlan(db, mailer, user, params.id, body.expectedPublishedId, auth.publicUrl, deps.clock());
       deps.onPlanPublished?.(plan.id);
+      announcePlan(deps.live, plan, 'published', deps.clock());
       return { plan };
     },
   );

@@ -14,6 +14,7 @@ import { smtpMailer } from '../mail/mailer';
 import { startJobQueue, type JobQueue } from '../jobs/job-queue';
 import { runPlanJob } from '../plans/plan-runner';
 import { clockFrom } from '../time/clock';
+import { LiveBus } from '../live/live-bus';
 
 /**
  * Where the API's clock starts in tests that do not stand it elsewhere: a weekday afternoon at the
@@ -49,6 +50,7 @@ export function createTestApp(overrides: Partial<AppDeps> = {}, databaseUrl = TE
   const deps: AppDeps = {
     db,
     clock: clockFrom(TEST_START),
+    live: new LiveBus(),
     jobs,
     config,
     log,

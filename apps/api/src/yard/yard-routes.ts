@@ -3,6 +3,7 @@ import {
 } from '@nightyard/contracts';
 import type { AppDeps } from '../app-deps';
 import type { ApiRoutes } from '../http/route';
+import { announcePlan, announceReport } from '../live/live-feeds';
 import { acknowledgeShift, confirmStep, reportProblem, tonight } from './yard-service';
 
 /** The yard carries out the plan; supervisors (and admins) may act for them. */
@@ -29,8 +30,14 @@ export function yardRoutes(api: ApiRoutes, deps: AppDeps) {
   api.add(
     { method: 'post', path: '/depots/:depotId/tonight/reports', summary: 'Report what differs; the rest of the night is re-planned and published',
       tag: 'yard', access: YARD, params: depotIdParamsSchema, body: yardReportSchema, response: yardReportResultSchema, status: 201 },
-    async ({ user, params, body }) =>
-      reportProblem({ db, mailer: deps.mailer, publicUrl: deps.auth.publicUrl, onPlanPublished: (id) => deps.onPlanPublished?.(id) },
-        user, params.depotId, body, now()),
+    async ({ user, params, body }) => {
+      const result = await reportProblem(
+        { db, mailer: deps.mailer, publicUrl: deps.auth.publicUrl, onPlanPublished: (id) => deps.onPlanPublished?.(id) },
+        user, params.depotId, body, now(),
+      );
+      announceReport(deps.live, params.depotId, user.name, body, now());
+      announcePlan(deps.live, result.revision, 'revised', now());
+      return result;
+    },
   );
 }

@@ -7,6 +7,7 @@ import { AuthStore } from '../auth/auth-store';
 import { depot, settle, tokenResponse } from '../testing/fixtures';
 import { DEPOT_ID, depotDetail } from '../shared/setup-fixtures';
 import { DepotPage } from './depot-page';
+import { FakeLiveTransport, provideFakeLive } from '../testing/live-fake';
 
 describe('DepotPage', () => {
   let fixture: ComponentFixture<DepotPage>;
@@ -14,13 +15,13 @@ describe('DepotPage', () => {
   let mock: HttpTestingController;
 
   beforeEach(() => {
-    TestBed.configureTestingModule({ providers: [provideRouter([]), provideHttpClient(), provideHttpClientTesting()] });
+    TestBed.configureTestingModule({ providers: [provideRouter([]), provideHttpClient(), provideHttpClientTesting(), provideFakeLive()] });
     mock = TestBed.inject(HttpTestingController);
   });
 
   afterEach(() => mock.verify());
 
-  async function render(roles: Role[]) {
+  async function render(roles: Role[], detail = depotDetail()) {
     const store = TestBed.inject(AuthStore);
     const signingIn = store.signIn('ada@example.org', 'pw');
     mock.expectOne('/api/auth/login').flush(tokenResponse(roles));
@@ -29,7 +30,7 @@ describe('DepotPage', () => {
     el = fixture.nativeElement;
     mock.expectOne('/api/depots').flush({ depots: [depot({ id: DEPOT_ID })] });
     await settle();
-    mock.expectOne(`/api/depots/${DEPOT_ID}`).flush({ depot: depotDetail() });
+    mock.expectOne(`/api/depots/${DEPOT_ID}`).flush({ depot: detail });
     await settle();
     await fixture.whenStable();
     fixture.detectChanges();
@@ -57,5 +58,21 @@ describe('DepotPage', () => {
     expect(el.textContent).toContain('You can read the depot\'s set-up.');
     expect(buttons().filter((b) => /Edit|Add|Remove/.test(b))).toEqual([]);
     expect(el.querySelector('form')).toBeNull();
+  });
+
+  it('shows a charger fault pushed over the live stream in the table and above it, with the way to the re-plan', async () => {
+    const detail = depotDetail();
+    await render(['facilities', 'supervisor'], detail);
+    const d1 = detail.chargers.find((c) => c.label === 'D1')!;
+    TestBed.inject(FakeLiveTransport).last.events.next({
+      type: 'charger', at: '2026-12-02T04:00:00.000Z',
+      charger: { chargerId: d1.id, label: 'D1', status: 'faulted', powerKw: null, seenAt: '2026-12-02T04:00:00.000Z' },
+    });
+    await settle();
+    fixture.detectChanges();
+    const notice = el.querySelector('[data-fault="D1"]')!;
+    expect(notice.textContent).toContain('Charger D1 reports a fault');
+    expect(notice.querySelector('a')?.getAttribute('href')).toBe('/yard?fault=D1');
+    expect(el.textContent).toContain('Reports faulted');
   });
 });

@@ -1,4 +1,4 @@
-import { ChangeDetectionStrategy, Component, inject, signal } from '@angular/core';
+import { ChangeDetectionStrategy, Component, DestroyRef, Injector, computed, inject, signal, type EffectRef } from '@angular/core';
 import { MatButtonModule } from '@angular/material/button';
 import { MatDialog } from '@angular/material/dialog';
 import { MatIconModule } from '@angular/material/icon';
@@ -6,7 +6,9 @@ import { MatProgressBarModule } from '@angular/material/progress-bar';
 import { MatSnackBar } from '@angular/material/snack-bar';
 import type { Cabinet, Charger, DepotDetail } from '@nightyard/contracts';
 import { toApiProblem } from '../core/api-error';
+import { ChargerFaults, faultsOf } from '../depots/charger-faults';
 import { DepotStore } from '../depots/depot-store';
+import { LiveStore, reloadOnLive, type LiveDepot } from '../depots/live-store';
 import { ConfirmDialog, type ConfirmData } from '../people/confirm-dialog';
 import { SectionIntro } from '../sections/section-intro';
 import { injectCanEditSetup } from '../shared/setup-editors';
@@ -26,6 +28,7 @@ type LoadState = 'loading' | 'loaded' | 'failed' | 'none';
   selector: 'ny-depot-page',
   imports: [
     CabinetPanel,
+    ChargerFaults,
     ChargerTable,
     DepotSettingsPanel,
     LoadReductionWindowsPanel,
@@ -50,9 +53,29 @@ export class DepotPage {
   protected readonly state = signal<LoadState>('loading');
   protected readonly problem = signal<string | null>(null);
   protected readonly depot = signal<DepotDetail | null>(null);
+  private readonly liveStore = inject(LiveStore);
+  private readonly destroyRef = inject(DestroyRef);
+  private readonly injector = inject(Injector);
+  /** The depot's live stream: each charger's state as it changes. */
+  private readonly live = signal<LiveDepot | null>(null);
+  private liveReload: EffectRef | null = null;
+  protected readonly chargers = computed(() => {
+    const list = this.depot()?.chargers ?? [];
+    return this.live()?.withLive(list) ?? list;
+  });
+  protected readonly faultCount = computed(() => faultsOf(this.chargers(), this.depot()?.timezone ?? 'UTC').length);
 
   constructor() {
     void this.load();
+  }
+
+  /** Follows the depot's live stream (a revision may take a charger out of service: reload then). */
+  private follow(depotId: string): void {
+    if (this.live()?.depotId === depotId) return;
+    const live = this.liveStore.watch(depotId, this.destroyRef);
+    this.live.set(live);
+    this.liveReload?.destroy();
+    this.liveReload = reloadOnLive(live, () => void this.refresh(false), this.injector);
   }
 
   protected async load(): Promise<void> {
@@ -68,6 +91,7 @@ export class DepotPage {
       }
       this.depot.set(await this.api.detail(current.id));
       this.state.set('loaded');
+      this.follow(current.id);
     } catch (err) {
       this.problem.set(err instanceof Error && err.message ? err.message : toApiProblem(err).message);
       this.state.set('failed');
@@ -75,7 +99,7 @@ export class DepotPage {
   }
 
   /** After a change: the depot as the API now has it, and the shell's summary too. */
-  private async refresh(): Promise<void> {
+  private async refresh(summary = true): Promise<void> {
     const d = this.depot();
     if (!d) return;
     try {
@@ -83,7 +107,7 @@ export class DepotPage {
     } catch (err) {
       this.snackBar.open(toApiProblem(err).message, 'OK');
     }
-    void this.store.load(true);
+    if (summary) void this.store.load(true);
   }
 
   protected onSettingsSaved(detail: DepotDetail): void {

@@ -10,6 +10,7 @@ import { DEPOT_ID } from '../fleet/fleet-fixtures';
 import { PLAN_IDS, planDetail, planSummary } from '../plans/plan-fixtures';
 import { Clock } from '../core/clock';
 import { depot, depotNight, settle } from '../testing/fixtures';
+import { FakeLiveTransport, provideFakeLive } from '../testing/live-fake';
 import { charger } from '../yard/yard-fixtures';
 import { TonightPage } from './tonight-page';
 
@@ -46,6 +47,7 @@ describe('TonightPage', () => {
         provideRouter([]),
         provideHttpClient(),
         provideHttpClientTesting(),
+        provideFakeLive(),
         { provide: AuthStore, useValue: { roles: signal(roles) } },
         {
           provide: DepotStore,
@@ -190,6 +192,52 @@ describe('TonightPage', () => {
     expect(c('C2').querySelector('mat-icon')?.textContent?.trim()).toBe('error');
     expect(c('C2').classList.contains('faulted')).toBe(true);
     expect(words(c('C4'))).toBe('C4 Offline, out of service');
+  });
+
+  it('shows a fault pushed over the live stream at once, with the way to the re-plan, and drops it when cleared', async () => {
+    await start(['supervisor']);
+    await chargers([charger('C1'), charger('C2')]);
+    for (const date of ['2026-12-01', '2026-11-30', '2026-11-29', '2026-11-28', '2026-11-27']) await night(date, []);
+    const live = TestBed.inject(FakeLiveTransport);
+    expect(live.last.depotId).toBe(DEPOT_ID);
+    expect(el.querySelector('ny-charger-faults')).toBeNull();
+    const state = (status: 'faulted' | 'available') => ({
+      type: 'charger' as const, at: '2026-12-02T04:00:05.000Z',
+      charger: { chargerId: 'charger-C2', label: 'C2', status, powerKw: null, seenAt: '2026-12-02T04:00:05.000Z' },
+    });
+    expect(fact('live')).toBe('As the chargers last reported');
+    live.last.events.next(state('faulted'));
+    await render();
+    expect(fact('live')).toBe('Live: changes show as the chargers report them');
+    const notice = el.querySelector('[data-fault="C2"]')!;
+    expect(notice.getAttribute('role')).toBe('alert');
+    expect(words(notice)).toContain('Charger C2 reports a fault (since 22:00, depot time)');
+    const link = notice.querySelector('a')!;
+    expect(words(link)).toBe('Re-plan without charger C2');
+    expect(link.getAttribute('href')).toBe('/yard?fault=C2');
+    expect(words(el.querySelector('.counts li[data-state="faulted"]'))).toBe('1 Faulted');
+    live.last.events.next(state('available'));
+    await render();
+    expect(el.querySelector('[data-fault]')).toBeNull();
+  });
+
+  it('tells roles that cannot re-plan whom to tell, and reloads when a revision is published', async () => {
+    await start(['finance']);
+    await chargers([charger('C2', { live: { status: 'faulted', powerKw: null, seenAt: null } })]);
+    for (const date of ['2026-12-01', '2026-11-30', '2026-11-29', '2026-11-28', '2026-11-27']) await night(date, []);
+    const notice = el.querySelector('[data-fault="C2"]')!;
+    expect(notice.querySelector('a')).toBeNull();
+    expect(words(notice)).toContain('Tell the yard staff or the supervisor');
+    const live = TestBed.inject(FakeLiveTransport);
+    live.last.events.next({ type: 'snapshot', at: '2026-12-02T04:00:00.000Z', chargers: [] });
+    live.last.events.next({ type: 'plan', at: '2026-12-02T04:01:00.000Z', planId: PLAN_IDS.published, serviceDate: '2026-12-01', version: 2, kind: 'revised' });
+    await render();
+    await chargers([charger('C2', { status: 'out_of_service', live: { status: 'faulted', powerKw: null, seenAt: null } })]);
+    await night('2026-12-01', [planSummary({ id: PLAN_IDS.published, serviceDate: '2026-12-01', state: 'published', version: 2 })]);
+    await detail(planDetail({ id: PLAN_IDS.published, serviceDate: '2026-12-01', state: 'published', version: 2 }));
+    expect(fact('version')).toBe('2');
+    // Out of service now: the night was re-planned without it, no more call to act.
+    expect(el.querySelector('[data-fault]')).toBeNull();
   });
 
   it('says plainly when no plan is published, with a link to Plans for those who can generate', async () => {

@@ -1,4 +1,4 @@
-import { ChangeDetectionStrategy, Component, computed, effect, inject, signal, untracked } from '@angular/core';
+import { ChangeDetectionStrategy, Component, DestroyRef, Injector, computed, effect, inject, signal, untracked, type EffectRef } from '@angular/core';
 import { MatButtonModule } from '@angular/material/button';
 import { MatCardModule } from '@angular/material/card';
 import { MatIconModule } from '@angular/material/icon';
@@ -7,9 +7,11 @@ import { RouterLink } from '@angular/router';
 import { SECTIONS, hasAnyRole, type DepotDetail, type PlanDetail, type Role } from '@nightyard/contracts';
 import { AuthStore } from '../auth/auth-store';
 import { toApiProblem } from '../core/api-error';
+import { ChargerFaults, faultsOf } from '../depots/charger-faults';
 import { CurrentDepot } from '../depots/current-depot';
 import { formatServiceDay } from '../depots/depot-format';
 import { DepotStore } from '../depots/depot-store';
+import { LiveStore, reloadOnLive, type LiveDepot } from '../depots/live-store';
 import { NightStore, type NightDepot } from '../depots/night-store';
 import { money, naturalCompare, nightComparison, num, when } from '../plans/plan-format';
 import { PlansApi } from '../plans/plans-api';
@@ -28,7 +30,7 @@ const PLAN_READERS = SECTIONS.find((s) => s.key === 'plans')?.roles ?? [];
  */
 @Component({
   selector: 'ny-tonight-page',
-  imports: [CurrentDepot, MatButtonModule, MatCardModule, MatIconModule, MatProgressBarModule, RouterLink, SectionIntro],
+  imports: [ChargerFaults, CurrentDepot, MatButtonModule, MatCardModule, MatIconModule, MatProgressBarModule, RouterLink, SectionIntro],
   templateUrl: './tonight-page.html',
   styleUrl: './tonight-page.scss',
   changeDetection: ChangeDetectionStrategy.OnPush,
@@ -39,6 +41,12 @@ export class TonightPage {
   private readonly api = inject(PlansApi);
   private readonly auth = inject(AuthStore);
   private readonly nights = inject(NightStore);
+  private readonly liveStore = inject(LiveStore);
+  private readonly destroyRef = inject(DestroyRef);
+  private readonly injector = inject(Injector);
+  /** The depot's live stream: charger states as they change, publications and revisions. */
+  protected readonly live = signal<LiveDepot | null>(null);
+  private liveReload: EffectRef | null = null;
 
   /** The published plan of tonight (null: none in the nights looked at). */
   protected readonly plan = signal<PlanDetail | null>(null);
@@ -98,8 +106,27 @@ export class TonightPage {
     };
   });
 
+  /** The chargers as loaded, with the live state the stream has said since. */
+  protected readonly liveChargers = computed(() => {
+    const list = this.detail()?.chargers ?? [];
+    return this.live()?.withLive(list) ?? list;
+  });
+  protected readonly timezone = computed(() => this.detail()?.timezone ?? this.depots.current()?.timezone ?? 'UTC');
+  /** Whether what the chargers card shows follows them as they report. */
+  protected readonly liveNote = computed(() => {
+    switch (this.live()?.connection()) {
+      case 'open':
+        return 'Live: changes show as the chargers report them';
+      case 'waiting':
+        return 'As the chargers last reported: live updates reconnecting';
+      default:
+        return 'As the chargers last reported';
+    }
+  });
+  protected readonly faultCount = computed(() => faultsOf(this.liveChargers(), this.timezone()).length);
+
   protected readonly chargers = computed(() =>
-    [...(this.detail()?.chargers ?? [])]
+    [...this.liveChargers()]
       .sort((a, b) => naturalCompare(a.label, b.label))
       .map((c) => {
         const state = liveStateOf(c);
@@ -115,7 +142,7 @@ export class TonightPage {
         };
       }),
   );
-  protected readonly counts = computed(() => liveCounts(this.detail()?.chargers ?? []));
+  protected readonly counts = computed(() => liveCounts(this.liveChargers()));
   protected readonly faulted = computed(() => this.chargers().filter((c) => c.state === 'faulted').length);
 
   private run = 0;
@@ -147,6 +174,12 @@ export class TonightPage {
   }
 
   private load(depot: NightDepot): void {
+    if (this.live()?.depotId !== depot.id) {
+      const live = this.liveStore.watch(depot.id, this.destroyRef);
+      this.live.set(live);
+      this.liveReload?.destroy();
+      this.liveReload = reloadOnLive(live, () => this.reload(), this.injector);
+    }
     const run = ++this.run;
     void this.loadPlan(run, depot);
     void this.loadChargers(run, depot.id);

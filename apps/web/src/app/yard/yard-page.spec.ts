@@ -8,6 +8,7 @@ import type { Tonight } from '@nightyard/contracts';
 import { AuthStore } from '../auth/auth-store';
 import { DepotStore } from '../depots/depot-store';
 import { depot, settle } from '../testing/fixtures';
+import { FakeLiveTransport, provideFakeLive } from '../testing/live-fake';
 import { OUTBOX_STORAGE_KEY } from './confirmation-outbox';
 import { DEPOT_ID, at, charger, plan, tonight } from './yard-fixtures';
 import { YardPage } from './yard-page';
@@ -37,6 +38,7 @@ describe('YardPage', () => {
         provideRouter([]),
         provideHttpClient(),
         provideHttpClientTesting(),
+        provideFakeLive(),
         { provide: MatDialog, useValue: { open } },
         { provide: AuthStore, useValue: { user: signal({ id: 'user-1' }) } },
         { provide: DepotStore, useValue: { load: () => Promise.resolve(), state: signal('loaded'), current: computed(() => current()) } },
@@ -147,6 +149,29 @@ describe('YardPage', () => {
     expect(text(card('C1').querySelector('.live'))).toContain('Faulted (at 22:20)');
     [...card('C1').querySelectorAll('button')].find((b) => text(b) === 'build Report charger out of service')!.click();
     expect(open.mock.calls[0]![1].data.preset).toEqual({ kind: 'charger_out', charger: 'C1', reason: 'The charger reported a fault at 22:20' });
+  });
+
+  it('shows a fault pushed over the live stream at once and offers the report from it', async () => {
+    open.mockReturnValue({ afterClosed: () => ({ subscribe: () => undefined }) });
+    await start();
+    expect(el.querySelector('[data-fault]')).toBeNull();
+    TestBed.inject(FakeLiveTransport).last.events.next({
+      type: 'charger', at: at('22:31'),
+      charger: { chargerId: 'charger-C2', label: 'C2', status: 'faulted', powerKw: null, seenAt: at('22:31') },
+    });
+    await render();
+    expect(text(card('C2').querySelector('.live'))).toContain('Faulted (at 22:31)');
+    const notice = el.querySelector<HTMLElement>('[data-fault="C2"]')!;
+    expect(text(notice)).toContain('Charger C2 reports a fault (since 22:31, depot time)');
+    notice.querySelector('button')!.click();
+    expect(open.mock.calls.at(-1)![1].data.preset).toEqual({ kind: 'charger_out', charger: 'C2', reason: 'The charger reported a fault at 22:31' });
+  });
+
+  it('asks for the cautions first when a fault arrives before the shift has acknowledged them', async () => {
+    await start(tonight({ acknowledged: false }), [charger('C1', { live: { status: 'faulted', powerKw: null, seenAt: at('22:20') } })]);
+    const notice = el.querySelector('[data-fault="C1"]')!;
+    expect(text(notice)).toContain('Acknowledge the shift\'s cautions below, then report it out of service');
+    expect(notice.querySelector('button')).toBeNull();
   });
 
   it('says plainly when there is no plan', async () => {

@@ -6,6 +6,7 @@ import {
   computed,
   effect,
   inject,
+  input,
   signal,
   untracked,
 } from '@angular/core';
@@ -16,6 +17,7 @@ import { MatMenuModule } from '@angular/material/menu';
 import { MatProgressBarModule } from '@angular/material/progress-bar';
 import { injectIsPhone } from '../core/layout';
 import { ThemeStore } from '../core/theme-store';
+import { ChargerFaults, faultsOf } from '../depots/charger-faults';
 import { DepotStore } from '../depots/depot-store';
 import { SectionIntro } from '../sections/section-intro';
 import { ChargerCard } from './charger-card';
@@ -34,6 +36,7 @@ import { YardStore } from './yard-store';
   selector: 'ny-yard-page',
   imports: [
     ChargerCard,
+    ChargerFaults,
     MatButtonModule,
     MatIconModule,
     MatMenuModule,
@@ -74,12 +77,25 @@ export class YardPage {
   });
   protected readonly reports = computed(() => (this.store.tonight()?.reports ?? []).map((r) => reportLine(r, this.tz())));
   protected readonly chargerLabels = computed(() => this.store.chargerViews().map((c) => c.label));
+  protected readonly faults = computed(() => faultsOf(this.store.liveChargers(), this.tz()));
+  /** `?fault=<label>` (from the fault notice on Tonight or Depot): the report form opens for it. */
+  readonly fault = input<string>();
+  private faultOffered = false;
 
   constructor() {
     void this.depots.load();
     effect(() => {
       const depot = this.depots.current();
       if (depot) untracked(() => void this.store.start(depot.id));
+    });
+
+    effect(() => {
+      const label = this.fault();
+      const faulted = label && this.store.acknowledged() && this.faults().some((f) => f.label === label);
+      if (faulted && !this.faultOffered) {
+        this.faultOffered = true;
+        untracked(() => this.reportFault(label));
+      }
     });
 
     // Night colours for the yard: with the theme menu on "Match device", the page is dark while
@@ -129,6 +145,12 @@ export class YardPage {
         if ('result' in outcome) void this.store.reported(outcome.result);
         else void this.store.load();
       });
+  }
+
+  /** A charger reports a fault: the report form, ready to take it out of service. */
+  protected reportFault(label: string): void {
+    const since = this.faults().find((f) => f.label === label)?.since;
+    this.openReport({ kind: 'charger_out', charger: label, reason: `The charger reported a fault${since ? ` at ${since}` : ''}` });
   }
 
   protected reloadDepot(): void {

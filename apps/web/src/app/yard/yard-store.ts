@@ -1,7 +1,8 @@
-import { DOCUMENT, DestroyRef, Injectable, computed, inject, signal } from '@angular/core';
+import { DOCUMENT, DestroyRef, Injectable, Injector, computed, inject, signal, type EffectRef } from '@angular/core';
 import type { Charger, PlanResult, Tonight, YardReportResult } from '@nightyard/contracts';
 import { toApiProblem } from '../core/api-error';
 import { Clock } from '../core/clock';
+import { LiveStore, reloadOnLive, type LiveDepot } from '../depots/live-store';
 import { ConfirmationOutbox } from './confirmation-outbox';
 import { YardApi } from './yard-api';
 import {
@@ -16,8 +17,13 @@ import {
   type StepView,
 } from './yard-format';
 
-/** How often the page asks for tonight again, so a revision made by someone else shows up. */
+/**
+ * How often the page asks for tonight again (steps confirmed on other devices). Charger states,
+ * publications and revisions arrive over the live stream; while it is open only every
+ * `LIVE_POLL_EVERY`th poll is made.
+ */
 export const POLL_MS = 20_000;
+export const LIVE_POLL_EVERY = 3;
 /** How often the now-line and overdue states move on between polls. */
 const TICK_MS = 15_000;
 const SEEN_KEY = 'nightyard.yard.seen';
@@ -59,6 +65,10 @@ export class YardStore {
   readonly depotId = signal<string | null>(null);
   readonly tonight = signal<Tonight | null>(null);
   readonly chargers = signal<readonly Charger[]>([]);
+  /** The depot's live stream (charger states as they change, publications, revisions). */
+  readonly live = signal<LiveDepot | null>(null);
+  /** The chargers as loaded, with the live state the stream has said since. */
+  readonly liveChargers = computed(() => this.live()?.withLive(this.chargers()) ?? this.chargers());
   readonly state = signal<'idle' | 'loading' | 'loaded' | 'failed'>('idle');
   readonly error = signal<string | null>(null);
   /** A message about the last action (a confirmation refused, a reload that failed). */
@@ -100,7 +110,7 @@ export class YardStore {
     if (!t?.plan) return [];
     const tz = t.depot.timezone;
     const sessions = t.plan.result?.sessions ?? [];
-    const byLabel = new Map(this.chargers().map((c) => [c.label, c]));
+    const byLabel = new Map(this.liveChargers().map((c) => [c.label, c]));
     const labels = [...new Set([...byLabel.keys(), ...sessions.map((s) => s.charger)])].sort(naturalCompare);
     const steps = this.steps();
     const next = nextSteps(steps);
@@ -128,10 +138,18 @@ export class YardStore {
 
   private pending: Promise<void> | null = null;
   private again = false;
+  private readonly liveStore = inject(LiveStore);
+  private readonly destroyRef = inject(DestroyRef);
+  private readonly injector = inject(Injector);
+  private liveReload: EffectRef | null = null;
+  private polls = 0;
 
   constructor() {
     const ticker = setInterval(() => this.beat.update((n) => n + 1), TICK_MS);
-    const poller = setInterval(() => void this.load(), POLL_MS);
+    const poller = setInterval(() => {
+      if (this.live()?.connection() === 'open' && ++this.polls % LIVE_POLL_EVERY !== 0) return;
+      void this.load();
+    }, POLL_MS);
     const visible = () => {
       if (this.document.visibilityState === 'visible') {
         void this.load();
@@ -157,6 +175,10 @@ export class YardStore {
       this.depotId.set(depotId);
       this.tonight.set(null);
       this.state.set('idle');
+      const live = this.liveStore.watch(depotId, this.destroyRef);
+      this.live.set(live);
+      this.liveReload?.destroy();
+      this.liveReload = reloadOnLive(live, () => void this.load(), this.injector);
     }
     this.outbox.flush();
     return this.load();
@@ -206,7 +228,10 @@ export class YardStore {
 
   /** After a report: the revision's notice (with what moved) and the new timeline. */
   async reported(result: YardReportResult): Promise<void> {
-    this.notice.set({ text: `Plan revised (version ${result.revision.version}).`, moved: movedLines(result), version: result.revision.version });
+    const version = result.revision.version;
+    // The live stream may have brought the revision (and its notice) in before this answer.
+    const heard = this.notice();
+    this.notice.set({ text: heard?.version === version ? heard.text : `Plan revised (version ${version}).`, moved: movedLines(result), version });
     await this.load();
   }
 
