@@ -80,6 +80,7 @@ const EXPECTED: Record<string, 'public' | readonly Role[]> = {
   'POST /depots/:depotId/tonight/acknowledge': YARD,
   'POST /yard/confirmations': YARD,
   'POST /depots/:depotId/tonight/reports': YARD,
+  'POST /depots/:depotId/tonight/missed': YARD,
 };
 
 const samplePath = (p: string) =>
