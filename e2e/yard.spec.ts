@@ -47,7 +47,7 @@ test('a yard user sees the next step, confirms it, reports a charger out of serv
   await expect(page.getByRole('region', { name: 'Plan status' })).toContainText(/Now 00:0\d/);
 
   // The next step on a charger, in words, with its caution, and a big Confirm button.
-  const next = page.getByRole('region', { name: /^Next step on charger / }).first();
+  const next = page.getByRole('region', { name: /^Step due now or next on charger / }).first();
   await expect(next).toBeVisible();
   const sentence = (await next.locator('.sentence').textContent())!.trim();
   expect(sentence).toMatch(/^(Connect bus \S+ to|Disconnect bus \S+ from) charger \S+ at \d\d:\d\d$/);
