@@ -248,6 +248,7 @@ const REPORT_KINDS: Record<string, string> = {
   bus_absent: 'Bus absent',
   charger_out: 'Charger out of service',
   soc_reading: 'State of charge reading',
+  step_missed: 'Step that did not happen',
 };
 
 export function reportLine(r: Tonight['reports'][number], timeZone: string): string {
