@@ -156,4 +156,34 @@ describe('yard steps: overdue steps confirmed with their real time, or that did 
     await post({ planId: t.plan.id, stepKey: step.key }).expect(409);
     expect(await planCount()).toBe(n + 1);
   });
+
+  it('a disconnect that did not happen keeps the bus on its charger: the re-plan may not give the charger to another bus before it', async () => {
+    await moveTo('2026-12-10T00:40');
+    const t = await tonight();
+    const step = t.steps.find((s) => s.status === 'overdue' && s.action === 'disconnect' && s.reason === null
+      && !t.steps.some((o) => o.charger === s.charger && o.action === 'connect' && o.status === 'done' && Date.parse(o.at) >= Date.parse(s.at)));
+    expect(step, 'an overdue disconnect').toBeDefined();
+    const res = await app.request().post(`/api/depots/${depotId}/tonight/missed`).set(as(yard)).send({ planId: t.plan.id, stepKey: step!.key }).expect(201);
+    expect(res.body.revision.version).toBe(t.plan.version + 1);
+    const after = await tonight();
+    expect(after.steps.find((s) => s.key === step!.key)?.status).toBe('missed');
+    // From the re-plan's first slot, nobody else is plugged into that charger while the bus is on it.
+    const from = Date.parse((after.plan.result as unknown as { replan: { from: string } }).replan.from);
+    const others = after.plan.result.sessions.filter((s) => s.charger === step!.charger && s.bus !== step!.bus && Date.parse(s.end) > from);
+    const mine = after.plan.result.sessions.filter((s) => s.charger === step!.charger && s.bus === step!.bus && Date.parse(s.start) === from);
+    if (mine.length) {
+      for (const o of others) expect(Date.parse(o.start)).toBeGreaterThanOrEqual(Date.parse(mine[0]!.end));
+      expect(after.steps.find((s) => s.action === 'connect' && s.bus === step!.bus && Date.parse(s.at) === from)!.text)
+        .toBe(`Keep bus ${step!.bus} on charger ${step!.charger} (it was not unplugged)`);
+    } else {
+      // No more charging for it there: it is to come off the charger now, before any other bus goes on.
+      const off = after.steps.find((s) => s.key === `${step!.key}|late`)!;
+      expect(off).toMatchObject({ action: 'disconnect', status: 'upcoming', at: clock.toISOString(), reason: 'Not unplugged at its time' });
+      expect(off.text).toBe(`Disconnect bus ${step!.bus} from charger ${step!.charger} (it was not unplugged at its time)`);
+      for (const o of others) expect(Date.parse(o.start)).toBeGreaterThanOrEqual(clock.getTime());
+      await app.request().post(`/api/depots/${depotId}/tonight/missed`).set(as(yard)).send({ planId: after.plan.id, stepKey: off.key }).expect(409);
+      await app.request().post('/api/yard/confirmations').set(as(yard)).send({ planId: after.plan.id, stepKey: off.key }).expect(200);
+      expect((await tonight()).steps.find((s) => s.key === off.key)!.status).toBe('done');
+    }
+  });
 });

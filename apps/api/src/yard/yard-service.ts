@@ -15,7 +15,7 @@ import { planRevisedMail } from '../mail/templates';
 import { nightStaff } from '../plans/night-staff';
 import { comparePlans, planDetailOf } from '../plans/plans-service';
 import { runInPool } from '../workers/pool';
-import { stepsDueSoon, yardSteps, type StepConfirmation, type StepContext } from './yard-steps';
+import { LATE, stepsDueSoon, yardSteps, type StepConfirmation, type StepContext } from './yard-steps';
 import { mergeReplan, stopSessions, type SessionStop } from '../plans/night-in-progress';
 import { nightOfDepot } from '../night/depot-night';
 
@@ -99,7 +99,10 @@ export async function confirmedPlugged(db: Db, depotId: string, serviceDate: str
   }
   // A disconnect that did not happen: the bus is still on its charger.
   for (const [key, c] of confirmations) {
-    if (c.outcome !== 'missed' || !key.startsWith('disconnect|')) continue;
+    if (c.outcome !== 'missed' || !key.startsWith('disconnect|') || key.endsWith(LATE)) continue;
+    // Taken off it since (the late disconnect confirmed before the cut-off).
+    const off = confirmations.get(key + LATE);
+    if (off && off.outcome !== 'missed' && off.at.getTime() <= cutAt.getTime()) continue;
     const [, bus, charger] = key.split('|') as [string, string, string];
     const laterElsewhere = followed.sessions.some((s) => s.bus === bus && s.charger !== charger && Date.parse(s.start) <= cutAt.getTime() && Date.parse(s.start) > c.at.getTime());
     if (!laterElsewhere && !Object.values(plugged).includes(charger)) plugged[bus] = charger;
@@ -170,10 +173,11 @@ async function publishedPlanOf(db: Db, caller: AuthUser, planId: string): Promis
 export async function confirmStep(db: Db, caller: AuthUser, planId: string, key: string, now: Date, at?: string) {
   const plan = await publishedPlanOf(db, caller, planId);
   const result = planResultSchema.parse(plan.result);
-  if (!yardSteps(result, now, new Map()).some((s) => s.key === key)) throw notFound('That step (it is not in this plan)');
+  const confirmations = await confirmationsOf(db, plan.depotId, plan.serviceDate);
+  if (!yardSteps(result, now, confirmations).some((s) => s.key === key)) throw notFound('That step (it is not in this plan)');
   const [depot] = await db.select({ timezone: depots.timezone }).from(depots).where(eq(depots.id, plan.depotId));
   const doneAt = at === undefined ? now : realTime(at, now, depot!.timezone, horizonOf(result).from);
-  const existing = (await confirmationsOf(db, plan.depotId, plan.serviceDate)).get(key);
+  const existing = confirmations.get(key);
   if (existing?.outcome === 'missed') throw conflict('That step was reported as not done: the night was re-planned from it');
   await db
     .insert(yardConfirmations)
@@ -238,6 +242,7 @@ export async function missedStep(deps: PublishDeps, caller: AuthUser, depotId: s
   if (!step) throw notFound('That step (it is not in this plan)');
   if (step.status === 'done') throw conflict('That step is already confirmed as done');
   if (step.status === 'missed') throw conflict('That step is already reported as not done');
+  if (key.endsWith(LATE)) throw conflict('The bus is already taken as still on the charger: confirm it when it is unplugged');
   if (Date.parse(step.at) > now.getTime()) {
     throw new DomainError('validation_failed', 'That step is not due yet: only a step whose time has come can be reported as not done', { stepKey: 'Not due yet' });
   }

@@ -8,6 +8,7 @@ export const stepKey = (action: 'connect' | 'disconnect', bus: string, charger: 
 export const OVERDUE_AFTER_MS = 10 * 60_000;
 /** A bus unplugged by a report is "moved" when its next plug-in is this close; else it waits. */
 const MOVE_WITHIN_MS = 30 * 60_000;
+const SLOT_MS = 15 * 60_000;
 
 export interface StepConfirmation {
   at: Date;
@@ -43,12 +44,17 @@ export function yardSteps(
   for (const s of result.sessions) byBus.set(s.bus, [...(byBus.get(s.bus) ?? []), s]);
   for (const list of byBus.values()) list.sort((a, b) => Date.parse(a.start) - Date.parse(b.start));
   // A disconnect that did not happen leaves the bus on its charger: its next plug-in there is a "keep".
-  const stillOn = new Set<string>();
+  // (A plug-in there within a slot of when that was said, that is; a later one is a new plug-in.)
+  const stillOn = new Map<string, number>();
   for (const [key, c] of confirmations) {
-    if (c.outcome !== 'missed' || !key.startsWith('disconnect|')) continue;
+    if (c.outcome !== 'missed' || !key.startsWith('disconnect|') || key.endsWith(LATE)) continue;
     const [, bus, charger] = key.split('|');
-    stillOn.add(`${bus}|${charger}`);
+    stillOn.set(`${bus}|${charger}`, c.at.getTime());
   }
+  const continues = (bus: string, charger: string, start: string) => {
+    const since = stillOn.get(`${bus}|${charger}`);
+    return since !== undefined && Math.abs(Date.parse(start) - since) <= SLOT_MS;
+  };
 
   for (const s of result.sessions) {
     const kwh = Math.round(s.kw.reduce((a, b) => a + b * 0.25, 0) * 10) / 10;
@@ -62,8 +68,7 @@ export function yardSteps(
       let reason: string | null = null;
       let moveTo: YardStep['moveTo'] = null;
       if (action === 'connect') {
-        const before = byBus.get(s.bus)!.filter((x) => Date.parse(x.start) < Date.parse(s.start)).at(-1);
-        if (stillOn.has(`${s.bus}|${s.charger}`) && before?.charger === s.charger) text = `Keep bus ${s.bus} on charger ${s.charger} (it was not unplugged)`;
+        if (continues(s.bus, s.charger, s.start)) text = `Keep bus ${s.bus} on charger ${s.charger} (it was not unplugged)`;
       }
       if (action === 'disconnect' && out) {
         reason = `Charger ${s.charger} out of service${out.reason ? ` (${out.reason})` : ''}`;
@@ -85,8 +90,27 @@ export function yardSteps(
       });
     }
   }
+  // A disconnect that did not happen, with no charging planned for the bus there afterwards: the
+  // bus is still on the charger and must come off it, from the time that was reported.
+  for (const [key, c] of confirmations) {
+    if (c.outcome !== 'missed' || !key.startsWith('disconnect|') || key.endsWith(LATE)) continue;
+    const [, bus, charger] = key.split('|') as [string, string, string];
+    if ((byBus.get(bus) ?? []).some((x) => x.charger === charger && continues(bus, charger, x.start))) continue;
+    const late = key + LATE;
+    const done = confirmations.get(late);
+    steps.push({
+      key: late, action: 'disconnect', bus, charger, at: c.at.toISOString(), kwh: 0,
+      status: done ? 'done' : c.at.getTime() + OVERDUE_AFTER_MS < now.getTime() ? 'overdue' : 'upcoming',
+      confirmedAt: done?.at.toISOString() ?? null, confirmedBy: done?.by ?? null,
+      text: `Disconnect bus ${bus} from charger ${charger} (it was not unplugged at its time)`,
+      reason: 'Not unplugged at its time', moveTo: null,
+    });
+  }
   return steps.sort((a, b) => Date.parse(a.at) - Date.parse(b.at) || (a.action === 'disconnect' ? -1 : 1));
 }
+
+/** The key suffix of the disconnect that follows one that did not happen. */
+export const LATE = '|late';
 
 /** Steps due now or within the next `withinMs` (not overdue, not done), in time order. */
 export function stepsDueSoon(steps: readonly YardStep[], now: Date, withinMs = 60 * 60_000): YardStep[] {
