@@ -27,6 +27,8 @@ async function chargerWithLaterSession(page: Page): Promise<{ charger: string; b
 const card = (page: Page, charger: string): Locator => page.locator(`ny-charger-card[data-charger="${charger}"]`);
 
 test('a yard user sees the next step, confirms it, reports a charger out of service and sees the revised timeline', async ({ page }) => {
+  // A re-plan of the demo district and two accessibility checks of a long page (the next hour, overdue lists).
+  test.setTimeout(90_000);
   // Wednesday 00:02: Tuesday's night is under way, with plug-ins still to come until dawn.
   const district = await districtAt(AT.wednesdayAfterMidnight);
   await pageAtApiTime(page);
