@@ -55,6 +55,7 @@ const REQUESTS: Record<string, unknown> = {
   planIdParamsSchema: { id: uuid },
   meterImportRequestSchema: { fileName: 'night.xml', content: '<feed/>', billingPeriodStart: '2026-12-01' },
   confirmStepSchema: { planId: uuid, stepKey: 'connect|11|A|2026-12-07T22:00' },
+  missedStepSchema: { planId: uuid, stepKey: 'connect|11|A|2026-12-07T22:00' },
   yardReportSchema: { planId: uuid, kind: 'soc_reading', bus: '11', socPct: 40 },
 };
 

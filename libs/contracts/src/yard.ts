@@ -12,9 +12,20 @@ export const yardStepSchema = z.object({
   at: z.string(),
   /** Planned energy of the session (kWh into the bus's battery, grid side). */
   kwh: z.number(),
-  status: z.enum(['done', 'overdue', 'upcoming']),
+  /** `missed`: the yard said it did not happen (the night was re-planned from that). */
+  status: z.enum(['done', 'overdue', 'upcoming', 'missed']),
   confirmedAt: z.string().nullable(),
   confirmedBy: z.string().nullable(),
+  /**
+   * What to do, in words, as the card, the run sheet and the e-mail all say it: "Connect bus 214
+   * to charger C3", or after a report "Unplug bus 218 from charger C3 now (out of service), then
+   * move it to charger C5 at 23:15".
+   */
+  text: z.string(),
+  /** Why the step is not the plan's own (a charger reported out of service), else null. */
+  reason: z.string().nullable(),
+  /** After an unplug forced by a report: where the bus goes next (null charger: wait, none is free). */
+  moveTo: z.object({ charger: z.string().nullable(), at: z.string().nullable() }).nullable(),
 });
 export type YardStep = z.infer<typeof yardStepSchema>;
 
@@ -32,10 +43,21 @@ export const tonightSchema = z.object({
 });
 export type Tonight = z.infer<typeof tonightSchema>;
 
+const clockTime = text('The time').trim().regex(/^([01]\d|2[0-3]):[0-5]\d$/, 'Enter the time as HH:mm (00:00 to 23:59)');
+
 export const confirmStepSchema = z.strictObject({
   planId: z.uuid('Not a plan id'),
   stepKey: text('The step').min(1, 'Choose the step').max(200),
+  /** When it really happened, depot time `HH:mm` (the last such time up to now); absent: now. */
+  at: clockTime.optional(),
 });
+
+/** A step that did not happen: the rest of the night is re-planned from it, like a report. */
+export const missedStepSchema = z.strictObject({
+  planId: z.uuid('Not a plan id'),
+  stepKey: text('The step').min(1, 'Choose the step').max(200),
+});
+export type MissedStep = z.infer<typeof missedStepSchema>;
 
 export const yardConfirmationSchema = z.object({
   stepKey: z.string(),

@@ -342,12 +342,15 @@ export const yardConfirmations = pgTable(
     stepKey: text('step_key').notNull(),
     planId: uuid('plan_id').notNull().references(() => plans.id, { onDelete: 'cascade' }),
     confirmedBy: uuid('confirmed_by').references(() => users.id, { onDelete: 'set null' }),
+    /** When it happened (the time the yard gave, else when confirmed). */
     confirmedAt: timestamp('confirmed_at', { withTimezone: true }).notNull().defaultNow(),
+    /** `missed`: the yard said the step did not happen, and the night was re-planned from that. */
+    outcome: text('outcome', { enum: ['done', 'missed'] }).notNull().default('done'),
   },
   (t) => [uniqueIndex('yard_confirmations_step_key').on(t.depotId, t.serviceDate, t.stepKey)],
 );
 
-export const yardReportKind = pgEnum('yard_report_kind', ['bus_late', 'bus_absent', 'charger_out', 'soc_reading']);
+export const yardReportKind = pgEnum('yard_report_kind', ['bus_late', 'bus_absent', 'charger_out', 'soc_reading', 'step_missed']);
 
 /** What the yard reported as different from the plan, and the revision it led to. */
 export const yardReports = pgTable('yard_reports', {

@@ -84,6 +84,7 @@ const EXPECTED: Record<string, 'public' | readonly Role[]> = {
   'POST /depots/:depotId/tonight/reports': YARD,
   // Charger states, publications and reports: what Tonight and Depot show every role.
   'GET /depots/:depotId/live': ROLES,
+  'POST /depots/:depotId/tonight/missed': YARD,
 };
 
 const samplePath = (p: string) =>

@@ -57,7 +57,9 @@ export function planPublishedMail(p: {
 }
 
 export function planRevisedMail(p: {
-  to: string; name: string; depot: string; version: number; at: string; reportedBy: string; what: string; moved: string[]; link: string;
+  to: string; name: string; depot: string; version: number; at: string; reportedBy: string; what: string; moved: string[];
+  /** The yard's steps due in the next hour, as the yard page words them ("23:07 Unplug bus 218 ..."). */
+  steps?: string[]; link: string;
 }): OutgoingMail {
   return {
     to: p.to,
@@ -69,6 +71,7 @@ export function planRevisedMail(p: {
       '',
       p.moved.length ? `Changed: ${p.moved.join('; ')}.` : 'No bus changed charger or times.',
       '',
+      ...(p.steps?.length ? ['Steps in the next hour:', ...p.steps.map((s) => `- ${s}`), ''] : []),
       `Open the yard view: ${p.link}`,
       '',
       'The plan is advisory: the people on site decide. Only trained and authorised staff connect or disconnect chargers.',

@@ -51,7 +51,75 @@ export function mergeReplan(previous: PlanResult | null, next: Replan): PlanResu
   return {
     ...result,
     slots: previous.slots.map((s) => (Date.parse(s.start) >= firstNew ? { ...s, loadKw: newLoad.get(Date.parse(s.start)) ?? s.loadKw } : s)),
-    sessions: mergeSessions(next.replan.kept as PlanResult['sessions'], next.sessions as unknown as PlanResult['sessions']),
+    sessions: mergeSessions(keptAsBefore(previous, next.replan.kept as PlanResult['sessions']), next.sessions as unknown as PlanResult['sessions']),
     replan: { from: next.replan.from, outOfService: next.replan.outOfService, plugged: next.replan.plugged },
   } as PlanResult;
+}
+
+/**
+ * The engine gives a kept session the end of its last whole slot; a session the previous plan
+ * stopped inside a slot (see `stopSessions`) keeps that earlier end, so a later re-plan does not
+ * put the bus back on the charger until the slot's end.
+ */
+function keptAsBefore(previous: PlanResult, kept: PlanResult['sessions']): PlanResult['sessions'] {
+  return kept.map((k) => {
+    const was = previous.sessions.find((s) => s.bus === k.bus && s.charger === k.charger && Date.parse(s.start) === Date.parse(k.start));
+    return was && Date.parse(was.end) < Date.parse(k.end) ? { ...k, end: was.end } : k;
+  });
+}
+
+/** Sessions to stop: on `charger` (of `bus` only, when given; of the session starting `start`, when given) from `at` on. */
+export interface SessionStop {
+  charger: string;
+  bus?: string;
+  start?: string;
+  at: Date;
+}
+
+/**
+ * The plan followed, with charging stopped at an instant: a charger reported out of service at
+ * 23:07 delivers nothing after 23:07; a connect that did not happen delivered nothing at all.
+ *
+ * Why not a partial first slot in the re-plan: the engine's model is whole 15-minute slots (prices,
+ * peaks, charger profiles), and a shorter first slot would change every part of it for at most
+ * 14 minutes of charging, which moving a bus to another charger takes anyway. So the current
+ * slot's remainder is no-charge on the stopped charger: the session ends at the instant itself and
+ * its last slot's kW is that slot's average (energy delivered before the instant only). The
+ * engine, handed this plan as the one followed, then counts exactly that energy into the bus and
+ * the peaks, and plans the bus (elsewhere) from the next slot boundary.
+ */
+export function stopSessions(previous: PlanResult, stops: readonly SessionStop[], zone: string, slotMinutes = 15): PlanResult {
+  if (!stops.length) return previous;
+  const slotMs = slotMinutes * 60_000;
+  const removed = new Map<number, number>();
+  const sessions: PlanResult['sessions'] = [];
+  for (const s of previous.sessions) {
+    const start = Date.parse(s.start);
+    const stop = stops.find((x) => x.charger === s.charger && (x.bus === undefined || x.bus === s.bus)
+      && (x.start === undefined || Date.parse(x.start) === start) && x.at.getTime() < Date.parse(s.end));
+    if (!stop) {
+      sessions.push(s);
+      continue;
+    }
+    const at = Math.max(stop.at.getTime(), start);
+    const kw = s.kw.map((v, k) => {
+      const from = start + k * slotMs;
+      const share = Math.min(1, Math.max(0, (at - from) / slotMs));
+      const kept = v * share;
+      removed.set(from, (removed.get(from) ?? 0) + v - kept);
+      return kept;
+    });
+    const whole = Math.ceil((at - start) / slotMs);
+    if (whole === 0) continue;
+    const cut = kw.slice(0, whole);
+    sessions.push({ ...s, end: DateTime.fromMillis(at, { zone }).toISO()!, kw: cut, kwh: Math.round(cut.reduce((a, v) => a + v * slotMinutes / 60, 0) * 1e6) / 1e6 });
+  }
+  return {
+    ...previous,
+    sessions,
+    slots: previous.slots.map((sl) => {
+      const less = removed.get(Date.parse(sl.start));
+      return less ? { ...sl, loadKw: Math.max(0, Math.round((sl.loadKw - less) * 1e6) / 1e6) } : sl;
+    }),
+  };
 }

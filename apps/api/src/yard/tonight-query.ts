@@ -43,8 +43,8 @@ const tonightQuery = (db: Db, name: string) => db
       left join ${users} reporter on reporter.id = r.reported_by
       left join ${plans} revision on revision.id = r.revision_id
       where r.depot_id = ${depotId} and r.service_date = ${serviceDate}), '[]'::json)`,
-    confirmations: sql<{ key: string; at: string; by: string | null }[]>`coalesce((
-      select json_agg(json_build_object('key', c.step_key, 'at', c.confirmed_at, 'by', confirmer.name))
+    confirmations: sql<{ key: string; at: string; by: string | null; outcome: 'done' | 'missed' }[]>`coalesce((
+      select json_agg(json_build_object('key', c.step_key, 'at', c.confirmed_at, 'by', confirmer.name, 'outcome', c.outcome))
       from ${yardConfirmations} c
       left join ${users} confirmer on confirmer.id = c.confirmed_by
       where c.depot_id = ${depotId} and c.service_date = ${serviceDate}), '[]'::json)`,
@@ -62,7 +62,7 @@ export async function publishedNight(db: Db, night: { depotId: string; serviceDa
   return {
     ...row,
     // JSON carries instants as text: the same instants as Dates, as the other queries give them.
-    confirmations: new Map(row.confirmations.map((c) => [c.key, { at: new Date(c.at), by: c.by }])),
+    confirmations: new Map(row.confirmations.map((c) => [c.key, { at: new Date(c.at), by: c.by, outcome: c.outcome }])),
     reports: row.reports.map((r) => ({ ...r, reportedAt: new Date(r.reportedAt).toISOString() })),
   };
 }

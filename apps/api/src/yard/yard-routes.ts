@@ -1,10 +1,10 @@
 import {
-  confirmStepSchema, depotIdParamsSchema, tonightSchema, yardConfirmationSchema, yardReportResultSchema, yardReportSchema,
+  confirmStepSchema, depotIdParamsSchema, missedStepSchema, tonightSchema, yardConfirmationSchema, yardReportResultSchema, yardReportSchema,
 } from '@nightyard/contracts';
 import type { AppDeps } from '../app-deps';
 import type { ApiRoutes } from '../http/route';
 import { announcePlan, announceReport } from '../live/live-feeds';
-import { acknowledgeShift, confirmStep, reportProblem, tonight } from './yard-service';
+import { acknowledgeShift, confirmStep, missedStep, reportProblem, tonight } from './yard-service';
 
 /** The yard carries out the plan; supervisors (and admins) may act for them. */
 const YARD = ['yard', 'supervisor', 'admin'] as const;
@@ -23,9 +23,16 @@ export function yardRoutes(api: ApiRoutes, deps: AppDeps) {
     async ({ user, params }) => acknowledgeShift(db, user, params.depotId, now()),
   );
   api.add(
-    { method: 'post', path: '/yard/confirmations', summary: 'Confirm a connect or disconnect step (safe to repeat)', tag: 'yard',
+    { method: 'post', path: '/yard/confirmations', summary: 'Confirm a connect or disconnect step, at the time it happened (safe to repeat)', tag: 'yard',
       access: YARD, body: confirmStepSchema, response: yardConfirmationSchema },
-    async ({ user, body }) => confirmStep(db, user, body.planId, body.stepKey, now()),
+    async ({ user, body }) => confirmStep(db, user, body.planId, body.stepKey, now(), body.at),
+  );
+  api.add(
+    { method: 'post', path: '/depots/:depotId/tonight/missed', summary: 'A step that did not happen: the rest of the night is re-planned and published',
+      tag: 'yard', access: YARD, params: depotIdParamsSchema, body: missedStepSchema, response: yardReportResultSchema, status: 201 },
+    async ({ user, params, body }) =>
+      missedStep({ db, mailer: deps.mailer, publicUrl: deps.auth.publicUrl, onPlanPublished: (id) => deps.onPlanPublished?.(id) },
+        user, params.depotId, body.planId, body.stepKey, now()),
   );
   api.add(
     { method: 'post', path: '/depots/:depotId/tonight/reports', summary: 'Report what differs; the rest of the night is re-planned and published',

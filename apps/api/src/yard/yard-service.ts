@@ -1,7 +1,7 @@
 import { aliasedTable, and, eq, getTableColumns, sql } from 'drizzle-orm';
 import { DateTime } from 'luxon';
 import {
-  planResultSchema, type PlanResult, type Tonight, type YardReport, type YardReportResult,
+  planResultSchema, type PlanResult, type Tonight, type YardReport, type YardReportResult, type YardStep,
 } from '@nightyard/contracts';
 import { parseScenario, ReplanStateError, type Plan, type ScenarioInput } from '@nightyard/scheduling';
 import type { Db } from '../db/client';
@@ -15,8 +15,8 @@ import { planRevisedMail } from '../mail/templates';
 import { nightStaff } from '../plans/night-staff';
 import { comparePlans, planDetailOf } from '../plans/plans-service';
 import { runInPool } from '../workers/pool';
-import { yardSteps } from './yard-steps';
-import { mergeReplan } from '../plans/night-in-progress';
+import { LATE, stepsDueSoon, yardSteps, type StepConfirmation, type StepContext } from './yard-steps';
+import { mergeReplan, stopSessions, type SessionStop } from '../plans/night-in-progress';
 import { nightOfDepot } from '../night/depot-night';
 import { publishedNight } from './tonight-query';
 
@@ -64,15 +64,27 @@ async function documentsOf(db: Db, planId: string) {
 }
 
 const confirmationsQuery = (db: Db, name: string) => db
-  .select({ key: yardConfirmations.stepKey, at: yardConfirmations.confirmedAt, by: confirmer.name })
+  .select({ key: yardConfirmations.stepKey, at: yardConfirmations.confirmedAt, by: confirmer.name, outcome: yardConfirmations.outcome })
   .from(yardConfirmations)
   .leftJoin(confirmer, eq(confirmer.id, yardConfirmations.confirmedBy))
   .where(and(eq(yardConfirmations.depotId, sql.placeholder('depotId')), eq(yardConfirmations.serviceDate, sql.placeholder('serviceDate'))))
   .prepare(name);
 
-async function confirmationsOf(db: Db, depotId: string, serviceDate: string) {
+async function confirmationsOf(db: Db, depotId: string, serviceDate: string): Promise<Map<string, StepConfirmation>> {
   const rows = await prepared(db, 'yard_confirmations_of_night', confirmationsQuery).execute({ depotId, serviceDate });
-  return new Map(rows.map((r) => [r.key, { at: r.at, by: r.by }]));
+  return new Map(rows.map((r) => [r.key, { at: r.at, by: r.by, outcome: r.outcome }]));
+}
+
+const chargersOutQuery = (db: Db, name: string) => db
+  .select({ charger: yardReports.charger, at: yardReports.reportedAt, reason: yardReports.reason })
+  .from(yardReports)
+  .where(and(eq(yardReports.depotId, sql.placeholder('depotId')), eq(yardReports.serviceDate, sql.placeholder('serviceDate')), eq(yardReports.kind, 'charger_out')))
+  .prepare(name);
+
+/** What the steps of a night are derived from besides the plan and the confirmations. */
+async function stepContextOf(db: Db, depotId: string, serviceDate: string, zone: string): Promise<StepContext> {
+  const rows = await prepared(db, 'yard_chargers_out_of_night', chargersOutQuery).execute({ depotId, serviceDate });
+  return { zone, chargersOut: rows.filter((r) => r.charger).map((r) => ({ charger: r.charger!, at: r.at, reason: r.reason })) };
 }
 
 /** Buses the yard confirmed on a charger (and not yet off it) at `cutAt`, per the plan followed. */
@@ -80,9 +92,21 @@ export async function confirmedPlugged(db: Db, depotId: string, serviceDate: str
   const confirmations = await confirmationsOf(db, depotId, serviceDate);
   const plugged: Record<string, string> = {};
   for (const step of yardSteps(followed, cutAt, confirmations)) {
-    const done = confirmations.has(step.key);
-    if (step.action === 'connect' && done && Date.parse(step.at) <= cutAt.getTime()) plugged[step.bus] = step.charger;
-    if (step.action === 'disconnect' && done && plugged[step.bus] === step.charger) delete plugged[step.bus];
+    const done = confirmations.get(step.key);
+    // Counted at the time it really happened (the yard may give it when confirming late).
+    if (!done || done.outcome === 'missed' || done.at.getTime() > cutAt.getTime()) continue;
+    if (step.action === 'connect') plugged[step.bus] = step.charger;
+    if (step.action === 'disconnect' && plugged[step.bus] === step.charger) delete plugged[step.bus];
+  }
+  // A disconnect that did not happen: the bus is still on its charger.
+  for (const [key, c] of confirmations) {
+    if (c.outcome !== 'missed' || !key.startsWith('disconnect|') || key.endsWith(LATE)) continue;
+    // Taken off it since (the late disconnect confirmed before the cut-off).
+    const off = confirmations.get(key + LATE);
+    if (off && off.outcome !== 'missed' && off.at.getTime() <= cutAt.getTime()) continue;
+    const [, bus, charger] = key.split('|') as [string, string, string];
+    const laterElsewhere = followed.sessions.some((s) => s.bus === bus && s.charger !== charger && Date.parse(s.start) <= cutAt.getTime() && Date.parse(s.start) > c.at.getTime());
+    if (!laterElsewhere && !Object.values(plugged).includes(charger)) plugged[bus] = charger;
   }
   return plugged;
 }
@@ -97,10 +121,15 @@ export async function tonight(db: Db, caller: AuthUser, depotId: string, now: Da
   if (!found) return { ...base, plan: null, steps: [], acknowledged: false, reports: [] };
   const { plan, createdBy, publishedBy, acknowledged, reports, confirmations } = found;
   const documents = await documentsOf(db, plan.id);
+  // The chargers reported out tonight, from the same reports: the steps stop on them at that instant.
+  const chargersOut = reports
+    .filter((r) => r.kind === 'charger_out' && r.charger)
+    .map((r) => ({ charger: r.charger!, at: new Date(r.reportedAt), reason: r.reason }))
+    .sort((x, y) => x.at.getTime() - y.at.getTime());
   return {
     ...base,
     plan: planDetailOf(plan, createdBy, publishedBy, documents.result, documents.scenario),
-    steps: yardSteps(documents.result, now, confirmations),
+    steps: yardSteps(documents.result, now, confirmations, { zone: depot.timezone, chargersOut }),
     acknowledged,
     reports,
   };
@@ -118,17 +147,42 @@ async function publishedPlanOf(db: Db, caller: AuthUser, planId: string): Promis
   return plan;
 }
 
-/** Confirms a step once: sending the same confirmation again returns the first one. */
-export async function confirmStep(db: Db, caller: AuthUser, planId: string, key: string, now: Date) {
+/**
+ * Confirms a step once: sending the same confirmation again returns the first one. `at` (depot
+ * time HH:mm) is when it really happened, for a step confirmed late: the last such time up to now,
+ * not before the night began.
+ */
+export async function confirmStep(db: Db, caller: AuthUser, planId: string, key: string, now: Date, at?: string) {
   const plan = await publishedPlanOf(db, caller, planId);
   const result = planResultSchema.parse(plan.result);
-  if (!yardSteps(result, now, new Map()).some((s) => s.key === key)) throw notFound('That step (it is not in this plan)');
+  const confirmations = await confirmationsOf(db, plan.depotId, plan.serviceDate);
+  if (!yardSteps(result, now, confirmations).some((s) => s.key === key)) throw notFound('That step (it is not in this plan)');
+  const [depot] = await db.select({ timezone: depots.timezone }).from(depots).where(eq(depots.id, plan.depotId));
+  const doneAt = at === undefined ? now : realTime(at, now, depot!.timezone, horizonOf(result).from);
+  const existing = confirmations.get(key);
+  if (existing?.outcome === 'missed') throw conflict('That step was reported as not done: the night was re-planned from it');
   await db
     .insert(yardConfirmations)
-    .values({ organisationId: caller.organisationId, depotId: plan.depotId, serviceDate: plan.serviceDate, stepKey: key, planId, confirmedBy: caller.id, confirmedAt: now })
+    .values({ organisationId: caller.organisationId, depotId: plan.depotId, serviceDate: plan.serviceDate, stepKey: key, planId, confirmedBy: caller.id, confirmedAt: doneAt })
     .onConflictDoNothing();
   const done = (await confirmationsOf(db, plan.depotId, plan.serviceDate)).get(key)!;
   return { stepKey: key, confirmedAt: done.at.toISOString(), confirmedBy: done.by };
+}
+
+/** "23:40" at the depot as the last such instant up to now; refused before the night's start. */
+function realTime(at: string, now: Date, zone: string, nightStart: number): Date {
+  const [hour, minute] = at.split(':').map(Number) as [number, number];
+  const local = DateTime.fromJSDate(now, { zone });
+  let t = local.set({ hour, minute, second: 0, millisecond: 0 });
+  if (t.toMillis() > now.getTime() && t.toMillis() - now.getTime() < 60 * 60_000) {
+    throw new DomainError('validation_failed', `${at} is later than now (${local.toFormat('HH:mm')}): give the time it happened`, { at: 'Later than now' });
+  }
+  if (t.toMillis() > now.getTime()) t = t.minus({ days: 1 });
+  if (t.toMillis() < nightStart) {
+    throw new DomainError('validation_failed', `${at} is before tonight's plan began (${DateTime.fromMillis(nightStart, { zone }).toFormat('HH:mm')}): give the time it happened`,
+      { at: 'Before the night began' });
+  }
+  return t.toJSDate();
 }
 
 export async function acknowledgeShift(db: Db, caller: AuthUser, depotId: string, now: Date): Promise<void> {
@@ -138,15 +192,46 @@ export async function acknowledgeShift(db: Db, caller: AuthUser, depotId: string
   await db.insert(shiftAcknowledgements).values({ userId: caller.id, depotId, serviceDate: found.plan.serviceDate }).onConflictDoNothing();
 }
 
+
+interface PublishDeps { db: Db; mailer: Mailer; publicUrl: (p: string) => string; onPlanPublished?: (id: string) => void }
+
+/** What a report or a step that did not happen changes in the night, before the re-plan. */
+type Change = YardReport | { kind: 'step_missed'; planId: string; step: YardStep };
+
 /**
  * Applies what the yard reports to the rest of the night: the engine re-plans from now with the
  * energy delivered so far, the buses already connected kept where they are, and the problem
  * applied; the result is published at once as a revision and everyone on the night is told.
+ *
+ * The cut-off is the instant of the report, not the end of its slot: a charger reported out at
+ * 23:07 charges nobody after 23:07 (see `stopSessions` for why the current slot's remainder is
+ * no-charge rather than a partial first slot of the re-plan).
  */
-export async function reportProblem(
-  deps: { db: Db; mailer: Mailer; publicUrl: (p: string) => string; onPlanPublished?: (id: string) => void },
-  caller: AuthUser, depotId: string, report: YardReport, now: Date,
-): Promise<YardReportResult> {
+export function reportProblem(deps: PublishDeps, caller: AuthUser, depotId: string, report: YardReport, now: Date): Promise<YardReportResult> {
+  return replanAndPublish(deps, caller, depotId, report, now);
+}
+
+/**
+ * A step that did not happen, re-planned like a report: a connect that did not happen leaves the
+ * bus unplugged (nothing was delivered on that session); a disconnect that did not happen leaves
+ * the bus on its charger. The step is marked `missed` in the same transaction as the revision.
+ */
+export async function missedStep(deps: PublishDeps, caller: AuthUser, depotId: string, planId: string, key: string, now: Date): Promise<YardReportResult> {
+  const plan = await publishedPlanOf(deps.db, caller, planId);
+  if (plan.depotId !== depotId) throw notFound('That plan (it is for another depot)');
+  const confirmations = await confirmationsOf(deps.db, depotId, plan.serviceDate);
+  const step = yardSteps(planResultSchema.parse(plan.result), now, confirmations).find((s) => s.key === key);
+  if (!step) throw notFound('That step (it is not in this plan)');
+  if (step.status === 'done') throw conflict('That step is already confirmed as done');
+  if (step.status === 'missed') throw conflict('That step is already reported as not done');
+  if (key.endsWith(LATE)) throw conflict('The bus is already taken as still on the charger: confirm it when it is unplugged');
+  if (Date.parse(step.at) > now.getTime()) {
+    throw new DomainError('validation_failed', 'That step is not due yet: only a step whose time has come can be reported as not done', { stepKey: 'Not due yet' });
+  }
+  return replanAndPublish(deps, caller, depotId, { kind: 'step_missed', planId, step }, now);
+}
+
+async function replanAndPublish(deps: PublishDeps, caller: AuthUser, depotId: string, report: Change, now: Date): Promise<YardReportResult> {
   const { db } = deps;
   const depot = await depotOf(db, caller, depotId);
   const plan = await publishedPlanOf(db, caller, report.planId);
@@ -154,15 +239,17 @@ export async function reportProblem(
   const parsed = parseScenario(plan.scenario);
   if (!parsed.ok) throw new DomainError('internal', 'The plan\'s scenario is no longer valid');
   const scenario = parsed.scenario;
-  const previous = planResultSchema.parse(plan.result);
+  const followed = planResultSchema.parse(plan.result);
   const zone = depot.timezone;
-  const h = horizonOf(previous);
+  const h = horizonOf(followed);
   if (now.getTime() >= h.to) throw conflict('This plan has ended: there is nothing left to re-plan');
   // Reported before the night has started: the whole night is planned again.
   const cutAt = new Date(Math.max(now.getTime(), h.from));
 
   const state = { outOfService: [...(plan.replanState?.outOfService ?? [])], lateArrivals: { ...(plan.replanState?.lateArrivals ?? {}) }, absent: [...(plan.replanState?.absent ?? [])] };
   const energyKwh: Record<string, number> = {};
+  const stops: SessionStop[] = [];
+  const extraPlugged: Record<string, string> = {};
   const busIds = new Set(scenario.buses.map((b) => b.id));
   if ('bus' in report && !busIds.has(report.bus)) {
     throw new DomainError('validation_failed', `Bus ${report.bus} is not in tonight's plan for ${depot.name}`, { bus: 'Not in tonight\'s plan' });
@@ -172,6 +259,8 @@ export async function reportProblem(
       const [c] = await db.select().from(chargers).where(and(eq(chargers.depotId, depotId), eq(chargers.label, report.charger)));
       if (!c) throw new DomainError('validation_failed', `Charger ${report.charger} is not at ${depot.name}`, { charger: 'Not at this depot' });
       if (!state.outOfService.includes(report.charger)) state.outOfService.push(report.charger);
+      // Nothing charges on it from this instant, the rest of the current slot included.
+      stops.push({ charger: report.charger, at: cutAt });
       break;
     }
     case 'bus_late': {
@@ -188,14 +277,31 @@ export async function reportProblem(
       energyKwh[report.bus] = Math.round((report.socPct / 100) * bus.usableKwh * 100) / 100;
       break;
     }
+    case 'step_missed': {
+      const session = followed.sessions.find((s) => s.bus === report.step.bus && s.charger === report.step.charger
+        && Date.parse(report.step.action === 'connect' ? s.start : s.end) === Date.parse(report.step.at));
+      // A connect that did not happen: nothing was delivered on that session, and the bus is not on the charger.
+      if (report.step.action === 'connect' && session) stops.push({ charger: session.charger, bus: session.bus, start: session.start, at: new Date(session.start) });
+      // A disconnect that did not happen: the bus is still on its charger.
+      if (report.step.action === 'disconnect') extraPlugged[report.step.bus] = report.step.charger;
+      break;
+    }
   }
 
   // Connected buses stay where they are, unless their charger has just failed.
-  const plugged = await confirmedPlugged(db, depotId, plan.serviceDate, previous, cutAt);
+  const plugged = { ...(await confirmedPlugged(db, depotId, plan.serviceDate, followed, cutAt)), ...extraPlugged };
   for (const [bus, charger] of Object.entries(plugged)) {
-    if (state.outOfService.includes(charger) || state.absent.includes(bus) || state.lateArrivals[bus]) delete plugged[bus];
+    const stopped = stops.some((x) => x.charger === charger && (x.bus === undefined || x.bus === bus));
+    if (stopped || state.outOfService.includes(charger) || state.absent.includes(bus) || state.lateArrivals[bus]) delete plugged[bus];
+  }
+  for (const [bus, charger] of Object.entries(extraPlugged)) {
+    const other = Object.entries(plugged).find(([b, c]) => c === charger && b !== bus);
+    if (other) {
+      throw new DomainError('validation_failed', `Bus ${other[0]} is confirmed on charger ${charger}: bus ${bus} cannot still be on it`, { stepKey: 'Charger taken' });
+    }
   }
 
+  const previous = stopSessions(followed, stops, zone, scenario.slotMinutes);
   const absent = new Set(state.absent);
   const kept = { ...scenario, buses: scenario.buses.filter((b) => !absent.has(b.id)) };
   const previousPlan = {
@@ -221,12 +327,14 @@ export async function reportProblem(
 
   // The night as a whole: what was kept before the cut-off, then the re-plan.
   const merged = mergeReplan(previous, next);
-  const describe = {
-    charger_out: () => `charger ${'charger' in report ? report.charger : ''} out of service${'reason' in report && report.reason ? ` (${report.reason})` : ''}`,
-    bus_late: () => `bus ${'bus' in report ? report.bus : ''} late, expected ${'expectedAt' in report ? report.expectedAt.slice(11) : ''}`,
-    bus_absent: () => `bus ${'bus' in report ? report.bus : ''} absent tonight`,
-    soc_reading: () => `bus ${'bus' in report ? report.bus : ''} measured at ${'socPct' in report ? report.socPct : ''} %`,
-  }[report.kind]();
+  const describe = report.kind === 'step_missed'
+    ? `"${report.step.text}" (due ${DateTime.fromISO(report.step.at, { zone }).toFormat('HH:mm')}) did not happen`
+    : {
+      charger_out: () => `charger ${'charger' in report ? report.charger : ''} out of service${'reason' in report && report.reason ? ` (${report.reason})` : ''}`,
+      bus_late: () => `bus ${'bus' in report ? report.bus : ''} late, expected ${'expectedAt' in report ? report.expectedAt.slice(11) : ''}`,
+      bus_absent: () => `bus ${'bus' in report ? report.bus : ''} absent tonight`,
+      soc_reading: () => `bus ${'bus' in report ? report.bus : ''} measured at ${'socPct' in report ? report.socPct : ''} %`,
+    }[report.kind]();
 
   const revision = await db.transaction(async (tx) => {
     await tx.select({ id: depots.id }).from(depots).where(eq(depots.id, depotId)).for('update');
@@ -244,11 +352,21 @@ export async function reportProblem(
       await tx.update(chargers).set({ status: 'out_of_service', statusReason: report.reason, statusSince: now })
         .where(and(eq(chargers.depotId, depotId), eq(chargers.label, report.charger)));
     }
+    if (report.kind === 'step_missed') {
+      const inserted = await tx.insert(yardConfirmations).values({
+        organisationId: caller.organisationId, depotId, serviceDate: plan.serviceDate, stepKey: report.step.key, planId: plan.id,
+        confirmedBy: caller.id, confirmedAt: now, outcome: 'missed',
+      }).onConflictDoNothing().returning({ id: yardConfirmations.id });
+      if (!inserted.length) throw conflict('That step was confirmed meanwhile: reload');
+    }
     await tx.insert(yardReports).values({
       organisationId: caller.organisationId, depotId, serviceDate: plan.serviceDate, kind: report.kind,
-      bus: 'bus' in report ? report.bus : null, charger: 'charger' in report ? report.charger : null,
+      bus: report.kind === 'step_missed' ? report.step.bus : 'bus' in report ? report.bus : null,
+      charger: report.kind === 'step_missed' ? report.step.charger : 'charger' in report ? report.charger : null,
       expectedAt: report.kind === 'bus_late' ? DateTime.fromISO(report.expectedAt, { zone }).toJSDate() : null,
-      socPct: report.kind === 'soc_reading' ? report.socPct : null, reason: 'reason' in report ? report.reason || null : null,
+      socPct: report.kind === 'soc_reading' ? report.socPct : null,
+      reason: report.kind === 'step_missed' ? `${report.step.text} (due ${DateTime.fromISO(report.step.at, { zone }).toFormat('HH:mm')}) did not happen`
+        : 'reason' in report ? report.reason || null : null,
       planId: plan.id, revisionId: row!.id, reportedBy: caller.id, reportedAt: now,
     });
     return row!;
@@ -256,12 +374,16 @@ export async function reportProblem(
 
   const { moved } = await comparePlans(db, caller, revision.id, plan.id);
   deps.onPlanPublished?.(revision.id);
+  // The e-mail names the steps exactly as the yard page does: the same derivation, at the same instant.
+  const [confirmations, context] = await Promise.all([confirmationsOf(db, depotId, plan.serviceDate), stepContextOf(db, depotId, plan.serviceDate, zone)]);
+  const soon = stepsDueSoon(yardSteps(merged, now, confirmations, context), now)
+    .map((s) => `${DateTime.fromISO(s.at, { zone }).toFormat('HH:mm')} ${s.text}`);
   const recipients = await nightStaff(db, caller.organisationId);
   let notified = 0;
   for (const r of recipients) {
     await deps.mailer.send(planRevisedMail({
       to: r.email, name: r.name, depot: depot.name, version: revision.version, at: cutoff.toFormat('HH:mm'), reportedBy: caller.name,
-      what: describe, moved: moved.map((m) => `${m.bus}: ${m.after}`), link: deps.publicUrl('/yard'),
+      what: describe, moved: moved.map((m) => `${m.bus}: ${m.after}`), steps: soon, link: deps.publicUrl('/yard'),
     })).then(() => notified++, () => undefined);
   }
   return {

@@ -2,17 +2,21 @@ import { ChangeDetectionStrategy, Component, computed, input, output } from '@an
 import { MatButtonModule } from '@angular/material/button';
 import { MatIconModule } from '@angular/material/icon';
 import { NightTrack } from './night-track';
+import { OverdueStep, type ConfirmAt } from './overdue-step';
 import type { ReportPreset } from './report-dialog';
-import { clock, kwh, relative, type Horizon, type StepView } from './yard-format';
+import { clock, dueText, kwh, type Horizon, type StepView } from './yard-format';
 import type { ChargerView } from './yard-store';
 
-const STATE_TEXT = { done: 'Done', saving: 'Saving…', overdue: 'Overdue', upcoming: 'Upcoming' } as const;
-const STATE_ICON = { done: 'check_circle', saving: 'cloud_upload', overdue: 'warning', upcoming: 'schedule' } as const;
+const STATE_TEXT = { done: 'Done', saving: 'Saving…', overdue: 'Overdue', upcoming: 'Upcoming', missed: 'Did not happen' } as const;
+const STATE_ICON = { done: 'check_circle', saving: 'cloud_upload', overdue: 'warning', upcoming: 'schedule', missed: 'block' } as const;
 
-/** A charger as the yard works it: live state, the next step in big type, the night, all steps. */
+/**
+ * A charger as the yard works it: live state, the step due now (or next) in big type, the overdue
+ * steps apart (each confirmed with its real time or said not to have happened), the night, all steps.
+ */
 @Component({
   selector: 'ny-charger-card',
-  imports: [MatButtonModule, MatIconModule, NightTrack],
+  imports: [MatButtonModule, MatIconModule, NightTrack, OverdueStep],
   templateUrl: './charger-card.html',
   styleUrl: './charger-card.scss',
   changeDetection: ChangeDetectionStrategy.OnPush,
@@ -28,8 +32,12 @@ export class ChargerCard {
   readonly horizon = input.required<Horizon>();
   readonly now = input.required<number>();
   readonly timezone = input.required<string>();
+  /** Steps being reported as not done (the server is re-planning). */
+  readonly missing = input<ReadonlySet<string>>(new Set());
 
   readonly confirm = output<StepView>();
+  readonly confirmAt = output<ConfirmAt>();
+  readonly missed = output<StepView>();
   readonly report = output<ReportPreset>();
 
   protected readonly stateText = STATE_TEXT;
@@ -39,11 +47,10 @@ export class ChargerCard {
   protected readonly next = computed(() => {
     const v = this.view().next;
     if (!v) return null;
-    const at = Date.parse(v.step.at);
     return {
       view: v,
-      overdue: v.state === 'overdue',
-      when: v.state === 'overdue' ? `Overdue: due ${v.time}, ${relative(at, this.now())}` : `Next, ${relative(at, this.now())}`,
+      urgent: v.reason !== null,
+      when: dueText(v, this.now()),
       energy: v.step.action === 'connect' ? `${kwh(v.step.kwh)} planned for this plug-in` : `After ${kwh(v.step.kwh)} planned`,
       button: v.step.action === 'connect' ? 'Confirm connected' : 'Confirm disconnected',
       label: `${v.step.action === 'connect' ? 'Confirm connected' : 'Confirm disconnected'}: bus ${v.step.bus} ${v.step.action === 'connect' ? 'to' : 'from'} charger ${v.step.charger}`,
@@ -78,6 +85,7 @@ export class ChargerCard {
       total: steps.length,
       done: steps.filter((s) => s.state === 'done' || s.state === 'saving').length,
       overdue: steps.filter((s) => s.state === 'overdue').length,
+      missed: steps.filter((s) => s.state === 'missed').length,
     };
   });
 

@@ -12,6 +12,8 @@ export interface OutboxEntry {
   /** Who confirmed: another person signing in on the same tablet does not send it as theirs. */
   userId: string;
   queuedAt: string;
+  /** When it really happened, depot time `HH:mm`, for a step confirmed late (absent: when sent). */
+  at?: string;
 }
 
 export type OutboxOutcome =
@@ -70,12 +72,13 @@ export class ConfirmationOutbox {
     return () => this.listeners.delete(listener);
   }
 
-  /** Queues a confirmation and sends it at once. */
-  confirm(planId: string, stepKey: string): void {
+  /** Queues a confirmation (with the time it happened, for a late one) and sends it at once. */
+  confirm(planId: string, stepKey: string, at?: string): void {
     const userId = this.auth.user()?.id;
     if (!userId) return;
     if (!this.entries().some((e) => id(e) === id({ planId, stepKey }))) {
-      this.entries.update((list) => [...list, { planId, stepKey, userId, queuedAt: this.clock.now().toISOString() }]);
+      const entry: OutboxEntry = { planId, stepKey, userId, queuedAt: this.clock.now().toISOString(), ...(at ? { at } : {}) };
+      this.entries.update((list) => [...list, entry]);
       this.write();
     }
     this.setState(stepKey, { state: 'saving', retrying: false, message: null });
@@ -102,7 +105,7 @@ export class ConfirmationOutbox {
   private async send(entry: OutboxEntry): Promise<void> {
     this.inFlight.add(id(entry));
     try {
-      const saved = await this.api.confirm(entry.planId, entry.stepKey);
+      const saved = await this.api.confirm(entry.planId, entry.stepKey, entry.at);
       this.attempts = 0;
       this.remove(entry);
       this.setState(entry.stepKey, { state: 'saved', confirmedAt: saved.confirmedAt, confirmedBy: saved.confirmedBy });

@@ -24,6 +24,7 @@ import { clock, hourTicks, nowLinePct, pct, type Horizon } from './yard-format';
           [style.width.%]="b.width"
           [attr.data-session]="b.bus"
           [attr.data-start]="b.start"
+          [attr.data-end]="b.end"
           [attr.title]="b.title"
           >{{ b.width < 9 ? '' : b.bus }}</span
         >
@@ -140,6 +141,7 @@ export class NightTrack {
         key: `${s.bus}|${s.start}|${i}`,
         bus: s.bus,
         start: s.start,
+        end: s.end,
         left,
         width: Math.max(0.6, pct(end, h) - left),
         past: end <= this.now(),

@@ -61,7 +61,7 @@ export interface RunSheetChoice {
                 <tr>
                   <th scope="col">Time</th>
                   <th scope="col">Bus</th>
-                  <th scope="col">Action</th>
+                  <th scope="col">Step</th>
                   <th scope="col" class="ny-rs-num">kWh</th>
                   <th scope="col">Done at</th>
                   <th scope="col" class="ny-rs-sign">Initials</th>
@@ -198,9 +198,10 @@ export class RunSheets {
           key: s.step.key,
           time: s.time,
           bus: s.step.bus,
-          action: s.step.action === 'connect' ? 'Connect' : 'Disconnect',
+          // The server's words for the step (an unplug forced by a report says where the bus goes).
+          action: s.title,
           kwh: s.step.action === 'connect' ? new Intl.NumberFormat(undefined, { maximumFractionDigits: 1 }).format(s.step.kwh) : '',
-          done: s.doneNote ? s.doneNote.replace(/^Done /, '') : '',
+          done: s.state === 'missed' ? 'Did not happen' : s.doneNote ? s.doneNote.replace(/^Done /, '') : '',
         })),
       }));
   });

@@ -32,8 +32,16 @@ export class YardApi {
     ).then(() => undefined);
   }
 
-  confirm(planId: string, stepKey: string): Promise<YardConfirmation> {
-    return firstValueFrom(this.http.post<YardConfirmation>('/api/yard/confirmations', { planId, stepKey }));
+  /** `at`: when it really happened (depot time HH:mm), for a step confirmed late. */
+  confirm(planId: string, stepKey: string, at?: string): Promise<YardConfirmation> {
+    return firstValueFrom(this.http.post<YardConfirmation>('/api/yard/confirmations', at ? { planId, stepKey, at } : { planId, stepKey }));
+  }
+
+  /** A step that did not happen: the server re-plans the rest of the night and publishes it. */
+  missed(depotId: string, planId: string, stepKey: string): Promise<YardReportResult> {
+    return firstValueFrom(
+      this.http.post<YardReportResult>(`/api/depots/${encodeURIComponent(depotId)}/tonight/missed`, { planId, stepKey }),
+    );
   }
 
   report(depotId: string, body: YardReportRequest | YardReport): Promise<YardReportResult> {

@@ -19,6 +19,11 @@ export function step(overrides: Partial<YardStep> & Pick<YardStep, 'action' | 'b
     status: 'upcoming',
     confirmedAt: null,
     confirmedBy: null,
+    text: overrides.action === 'connect'
+      ? `Connect bus ${overrides.bus} to charger ${overrides.charger}`
+      : `Disconnect bus ${overrides.bus} from charger ${overrides.charger}`,
+    reason: null,
+    moveTo: null,
     ...overrides,
   };
 }

@@ -4,8 +4,11 @@ import {
   horizonOf,
   hourTicks,
   isNightAt,
+  dueText,
   liveView,
+  nextHour,
   nextSteps,
+  overdueSteps,
   nowLinePct,
   revisionNotice,
   stepViews,
@@ -14,12 +17,41 @@ import {
 describe('yard format', () => {
   const now = Date.parse(at('22:30'));
 
-  it('picks per charger the first step by time that is not done', () => {
+  it('picks per charger the step due now or next; an overdue step waits in its own list and never hides it', () => {
     const views = stepViews(tonight().steps, now, ZONE);
     const next = nextSteps(views);
     expect(next.get('C1')?.sentence).toBe('Disconnect bus 201 from charger C1 at 23:00');
-    expect(next.get('C2')?.sentence).toBe('Connect bus 203 to charger C2 at 22:00');
-    expect(next.get('C2')?.state).toBe('overdue');
+    expect(next.get('C2')?.sentence).toBe('Disconnect bus 203 from charger C2 at 05:00');
+    expect(overdueSteps(views.filter((v) => v.step.charger === 'C2')).map((v) => v.title)).toEqual(['Connect bus 203 to charger C2']);
+    expect(dueText(next.get('C1')!, now)).toBe('Next, in 30 min (23:00)');
+  });
+
+  it('takes the words of a step from the server: an unplug forced by a report is due now and says where the bus goes', () => {
+    const text = 'Unplug bus 218 from charger C3 now (out of service), then move it to charger C5 for 22:45';
+    const steps = [
+      step({ action: 'disconnect', bus: '218', charger: 'C3', at: at('22:27'), text, reason: 'Charger C3 out of service (cable cut)', moveTo: { charger: 'C5', at: at('22:45') } }),
+      step({ action: 'connect', bus: '218', charger: 'C5', at: at('22:45') }),
+      step({ action: 'connect', bus: '203', charger: 'C2', at: at('21:00'), status: 'missed' }),
+    ];
+    const views = stepViews(steps, now, ZONE);
+    const unplug = nextSteps(views).get('C3')!;
+    expect(unplug).toMatchObject({ title: text, sentence: `${text} (reported 22:27)`, reason: 'Charger C3 out of service (cable cut)' });
+    expect(dueText(unplug, now)).toBe('Due now (22:27)');
+    expect(views.find((v) => v.step.bus === '203')!.state).toBe('missed');
+    expect(overdueSteps(views)).toEqual([]);
+  });
+
+  it('lists the next hour across chargers in time order: due now and up to 60 minutes ahead, not overdue, not done', () => {
+    const views = stepViews([
+      ...tonight().steps,
+      step({ action: 'connect', bus: '204', charger: 'C3', at: at('22:30') }),
+      step({ action: 'connect', bus: '205', charger: 'C2', at: at('23:31') }),
+    ], now, ZONE);
+    expect(nextHour(views, now).map((v) => `${v.time} ${v.title}`)).toEqual([
+      '22:30 Connect bus 204 to charger C3',
+      '23:00 Disconnect bus 201 from charger C1',
+      '23:30 Connect bus 202 to charger C1',
+    ]);
   });
 
   it('skips a step being saved and puts a disconnect before a connect at the same time', () => {

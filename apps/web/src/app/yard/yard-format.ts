@@ -98,16 +98,18 @@ export type OutboxState =
   | { state: 'saved'; confirmedAt: string; confirmedBy: string | null }
   | { state: 'failed'; message: string };
 
-export type StepState = 'done' | 'saving' | 'overdue' | 'upcoming';
+export type StepState = 'done' | 'saving' | 'overdue' | 'upcoming' | 'missed';
 
 export interface StepView {
   step: YardStep;
   state: StepState;
   time: string;
-  /** "Connect bus 214 to charger C3" */
+  /** The server's words for it: "Connect bus 214 to charger C3", "Unplug bus 218 from charger C3 now (…)" */
   title: string;
   /** "Connect bus 214 to charger C3 at 21:30" */
   sentence: string;
+  /** Why the plan changed it ("Charger C3 out of service (cable cut)"), else null. */
+  reason: string | null;
   caution: string;
   /** "Done 21:32 by Sam Reyes" */
   doneNote: string | null;
@@ -118,7 +120,8 @@ export const CONNECT_CAUTION = 'High voltage: trained and authorised staff only.
 export const DISCONNECT_CAUTION =
   'High voltage: trained and authorised staff only. Follow the charger maker\'s instructions; tag out and report any damage.';
 
-export function stepTitle(step: Pick<YardStep, 'action' | 'bus' | 'charger'>): string {
+export function stepTitle(step: Pick<YardStep, 'action' | 'bus' | 'charger'> & { text?: string }): string {
+  if (step.text) return step.text;
   return step.action === 'connect'
     ? `Connect bus ${step.bus} to charger ${step.charger}`
     : `Disconnect bus ${step.bus} from charger ${step.charger}`;
@@ -126,6 +129,7 @@ export function stepTitle(step: Pick<YardStep, 'action' | 'bus' | 'charger'>): s
 
 /** A step's state now: confirmed (or confirmed here and being saved), overdue or upcoming. */
 export function stepState(step: YardStep, nowMs: number, outbox: OutboxState | null): StepState {
+  if (step.status === 'missed') return 'missed';
   if (step.status === 'done' || step.confirmedAt) return 'done';
   if (outbox?.state === 'saved') return 'done';
   if (outbox?.state === 'saving') return 'saving';
@@ -152,7 +156,9 @@ export function stepViews(
         state,
         time,
         title,
-        sentence: `${title} at ${time}`,
+        // An unplug forced by a report says "now" itself; its time is when the report was made.
+        sentence: step.reason ? `${title} (reported ${time})` : `${title} at ${time}`,
+        reason: step.reason ?? null,
         caution: step.action === 'connect' ? CONNECT_CAUTION : DISCONNECT_CAUTION,
         doneNote: confirmedAt ? `Done ${clock(confirmedAt, timeZone)}${confirmedBy ? ` by ${confirmedBy}` : ''}` : null,
         outbox: box,
@@ -160,14 +166,34 @@ export function stepViews(
     });
 }
 
-/** The next step of each charger: its first step by time that is not done (or being saved). */
+/**
+ * The step due now (or next) of each charger: its first step by time still to do that is not
+ * overdue. Overdue steps wait in their own list (see `overdueSteps`), so a step missed hours ago
+ * never hides what to do now.
+ */
 export function nextSteps(views: readonly StepView[]): Map<string, StepView> {
   const next = new Map<string, StepView>();
   for (const v of views) {
-    if (v.state === 'done' || v.state === 'saving') continue;
+    if (v.state !== 'upcoming') continue;
     if (!next.has(v.step.charger)) next.set(v.step.charger, v);
   }
   return next;
+}
+
+/** Overdue steps, oldest first: each is confirmed with the time it happened, or said not to have happened. */
+export function overdueSteps(views: readonly StepView[]): StepView[] {
+  return views.filter((v) => v.state === 'overdue');
+}
+
+/** Across all chargers, the steps due from now to `withinMs` ahead (an unplug due now included), in time order. */
+export function nextHour(views: readonly StepView[], nowMs: number, withinMs = 60 * 60_000): StepView[] {
+  return views.filter((v) => v.state === 'upcoming' && Date.parse(v.step.at) <= nowMs + withinMs);
+}
+
+/** "Due now (23:07)", "Next, in 25 min (23:30)". */
+export function dueText(view: StepView, nowMs: number): string {
+  const at = Date.parse(view.step.at);
+  return at <= nowMs ? `Due now (${view.time})` : `Next, ${relative(at, nowMs)} (${view.time})`;
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -222,6 +248,7 @@ const REPORT_KINDS: Record<string, string> = {
   bus_absent: 'Bus absent',
   charger_out: 'Charger out of service',
   soc_reading: 'State of charge reading',
+  step_missed: 'Step that did not happen',
 };
 
 export function reportLine(r: Tonight['reports'][number], timeZone: string): string {

@@ -10,7 +10,7 @@ import { DepotStore } from '../depots/depot-store';
 import { depot, settle } from '../testing/fixtures';
 import { FakeLiveTransport, provideFakeLive } from '../testing/live-fake';
 import { OUTBOX_STORAGE_KEY } from './confirmation-outbox';
-import { DEPOT_ID, at, charger, plan, tonight } from './yard-fixtures';
+import { DEPOT_ID, PLAN_ID, at, charger, plan, step, tonight } from './yard-fixtures';
 import { YardPage } from './yard-page';
 import { YardStore } from './yard-store';
 
@@ -61,14 +61,21 @@ describe('YardPage', () => {
     document.documentElement.style.colorScheme = '';
   });
 
-  it('shows each charger\'s next step in big type, overdue ones marked in words, done ones greyed', async () => {
+  it('shows each charger\'s step due now or next in big type, overdue ones apart, done ones greyed', async () => {
     await start();
     expect(text(el.querySelector('h1'))).toBe('Yard');
     expect(text(card('C1').querySelector('.next .sentence'))).toBe('Disconnect bus 201 from charger C1 at 23:00');
+    expect(text(card('C1').querySelector('.next .when'))).toContain('Next, in 30 min (23:00)');
+    // C2's 22:00 plug-in is overdue: it waits in its own list; the card leads with what is next.
     const c2 = card('C2').querySelector('.next')!;
-    expect(c2.classList.contains('overdue')).toBe(true);
-    expect(text(c2.querySelector('.when'))).toContain('Overdue: due 22:00');
+    expect(text(c2.querySelector('.sentence'))).toBe('Disconnect bus 203 from charger C2 at 05:00');
     expect(text(c2)).toContain('High voltage: trained and authorised staff only');
+    const overdue = card('C2').querySelector('.overdue-list')!;
+    expect(text(overdue.querySelector('h3'))).toBe('warning Overdue on C2: 1');
+    expect(text(overdue.querySelector('ny-overdue-step'))).toContain('Connect bus 203 to charger C2');
+    expect(text(overdue.querySelector('ny-overdue-step'))).toContain('Due 22:00, 30 min ago');
+    expect(text(overdue)).toContain('High voltage: trained and authorised staff only');
+    expect(card('C1').querySelector('.overdue-list')).toBeNull();
     expect(text(card('C3'))).toContain('No bus is planned on C3 tonight');
     const done = card('C1').querySelector('li[data-state="done"]')!;
     expect(text(done)).toContain('Done 21:02 by Kofi Brandt');
@@ -172,6 +179,84 @@ describe('YardPage', () => {
     const notice = el.querySelector('[data-fault="C1"]')!;
     expect(text(notice)).toContain('Acknowledge the shift\'s cautions below, then report it out of service');
     expect(notice.querySelector('button')).toBeNull();
+  });
+
+  it('confirms an overdue step with the time it happened; a time that is not HH:mm is refused in place', async () => {
+    await start();
+    const item = card('C2').querySelector('ny-overdue-step')!;
+    const input = item.querySelector<HTMLInputElement>('input')!;
+    expect(item.querySelector('label')?.textContent).toContain('Done at (depot time)');
+    expect(input.value).toBe('22:00');
+    const confirm = [...item.querySelectorAll('button')].find((b) => text(b) === 'check Confirm done')!;
+    input.value = '25:00';
+    input.dispatchEvent(new Event('input'));
+    confirm.click();
+    await render();
+    expect(text(item.querySelector('mat-error'))).toContain('HH:mm');
+    mock.expectNone('/api/yard/confirmations');
+    input.value = '22:04';
+    input.dispatchEvent(new Event('input'));
+    confirm.click();
+    await render();
+    const req = mock.expectOne('/api/yard/confirmations');
+    expect(req.request.body).toEqual({ planId: PLAN_ID, stepKey: `connect|203|C2|${at('22:00')}`, at: '22:04' });
+    req.flush({ stepKey: req.request.body.stepKey, confirmedAt: at('22:04'), confirmedBy: 'Kofi Brandt' });
+    await render();
+    answer(tonight());
+    await render();
+  });
+
+  it('a step that did not happen is asked once more, then re-planned and published: the notice says so', async () => {
+    await start();
+    const item = () => card('C2').querySelector('ny-overdue-step')!;
+    [...item().querySelectorAll('button')].find((b) => text(b) === 'block Did not happen')!.click();
+    await render();
+    expect(text(item().querySelector('.ask'))).toContain('Bus 203 is taken as not plugged in, and the rest of the night is re-planned.');
+    [...item().querySelectorAll('button')].find((b) => text(b) === 'Yes, it did not happen')!.click();
+    await render();
+    const req = mock.expectOne({ method: 'POST', url: `/api/depots/${DEPOT_ID}/tonight/missed` });
+    expect(req.request.body).toEqual({ planId: PLAN_ID, stepKey: `connect|203|C2|${at('22:00')}` });
+    req.flush({ revision: { version: 2 }, moved: [{ bus: '203', before: 'C2 22:00', after: 'C2 22:45' }], replanMs: 40, notified: 2 });
+    await render();
+    const revised = plan({ version: 2, kind: 'revision', notes: ['Revised at 22:30: "Connect bus 203 to charger C2" (due 22:00) did not happen.'] });
+    answer(tonight({ plan: revised, steps: tonight().steps.filter((s) => s.bus !== '203') }));
+    await render();
+    expect(text(el.querySelector('.notice'))).toContain('Plan revised at 22:30 (version 2): "Connect bus 203 to charger C2" (due 22:00) did not happen.');
+    expect(text(el.querySelector('.notice'))).toContain('Bus 203: C2 22:00 → C2 22:45');
+    expect(card('C2').querySelector('.overdue-list')).toBeNull();
+  });
+
+  it('lists the next hour across all chargers in time order, with the cautions', async () => {
+    await start(tonight({ steps: [...tonight().steps, step({ action: 'connect', bus: '204', charger: 'C3', at: at('22:40') })] }));
+    const region = el.querySelector('ny-next-hour')!;
+    expect(region.getAttribute('role')).toBe('region');
+    expect(text(region.querySelector('h2'))).toBe('Next hour, all chargers');
+    const items = [...region.querySelectorAll('li')].map((li) => `${text(li.querySelector('.time'))} ${text(li.querySelector('.title'))}`);
+    // Up to 23:30 (an hour from 22:30); the overdue 22:00 plug-in is in C2's own list, not here.
+    expect(items).toEqual(['22:40 Connect bus 204 to charger C3', '23:00 Disconnect bus 201 from charger C1', '23:30 Connect bus 202 to charger C1']);
+    expect(text(region)).toContain('High voltage: trained and authorised staff only');
+  });
+
+  it('after a charger is reported out, its card, the next hour and the run sheet all say to unplug the bus now', async () => {
+    const words = 'Unplug bus 201 from charger C1 now (out of service), then move it to charger C3 for 22:45';
+    const steps = [
+      step({ action: 'connect', bus: '201', charger: 'C1', at: at('21:00'), status: 'done', confirmedAt: at('21:02'), confirmedBy: 'Kofi Brandt' }),
+      step({ action: 'disconnect', bus: '201', charger: 'C1', at: at('22:27'), text: words, reason: 'Charger C1 out of service (cable cut)', moveTo: { charger: 'C3', at: at('22:45') } }),
+      step({ action: 'connect', bus: '201', charger: 'C3', at: at('22:45') }),
+    ];
+    await start(tonight({ steps }), [charger('C1', { status: 'out_of_service', statusReason: 'cable cut' }), charger('C2'), charger('C3')]);
+    const c1 = card('C1');
+    expect(text(c1.querySelector('.out-note'))).toBe('block Out of service: cable cut. Unplug the bus on it (below); nothing else is planned on it.');
+    expect(c1.querySelector('.next')!.classList.contains('urgent')).toBe(true);
+    expect(text(c1.querySelector('.next .when'))).toContain('Due now (22:27)');
+    expect(text(c1.querySelector('.next .reason'))).toBe('Charger C1 out of service (cable cut)');
+    expect(text(c1.querySelector('.next .sentence'))).toBe(`${words} (reported 22:27)`);
+    // Nothing is to be plugged into C1 any more (its 21:00 plug-in stays in the history, done).
+    expect(c1.querySelectorAll('li[data-step^="connect|"]:not([data-state="done"])')).toHaveLength(0);
+    expect(text(el.querySelector('ny-next-hour li'))).toContain(words);
+    await render();
+    const sheet = document.querySelector('.ny-run-sheets')!;
+    expect(text(sheet)).toContain(words);
   });
 
   it('says plainly when there is no plan', async () => {

@@ -21,6 +21,7 @@ import { ChargerFaults, faultsOf } from '../depots/charger-faults';
 import { DepotStore } from '../depots/depot-store';
 import { SectionIntro } from '../sections/section-intro';
 import { ChargerCard } from './charger-card';
+import { NextHour } from './next-hour';
 import { ReportDialog, type ReportDialogData, type ReportOutcome, type ReportPreset } from './report-dialog';
 import { RunSheets, type RunSheetChoice } from './run-sheets';
 import { ShiftCautions } from './shift-cautions';
@@ -41,6 +42,7 @@ import { YardStore } from './yard-store';
     MatIconModule,
     MatMenuModule,
     MatProgressBarModule,
+    NextHour,
     RunSheets,
     SectionIntro,
     ShiftCautions,

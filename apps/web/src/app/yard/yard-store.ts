@@ -9,7 +9,9 @@ import {
   horizonOf,
   liveView,
   naturalCompare,
+  nextHour,
   nextSteps,
+  overdueSteps,
   revisionNotice,
   stepViews,
   type Horizon,
@@ -36,7 +38,10 @@ export interface ChargerView {
   statusReason: string | null;
   sessions: PlanResult['sessions'];
   steps: StepView[];
+  /** The step due now, or the next one (never an overdue one). */
   next: StepView | null;
+  /** Overdue steps, oldest first, each to confirm with its real time or mark as not done. */
+  overdue: StepView[];
 }
 
 export interface Notice {
@@ -125,9 +130,16 @@ export class YardStore {
         sessions: sessions.filter((s) => s.charger === label),
         steps: steps.filter((s) => s.step.charger === label),
         next: next.get(label) ?? null,
+        overdue: overdueSteps(steps.filter((s) => s.step.charger === label)),
       };
     });
   });
+
+  /** Steps across all chargers due in the next hour, in time order (for a crew of one or two). */
+  readonly nextHour = computed(() => nextHour(this.steps(), this.now()));
+
+  /** Steps being reported as not done (the server re-plans meanwhile). */
+  readonly missing = signal<ReadonlySet<string>>(new Set());
 
   /** Buses of tonight's plan (for the report form). */
   readonly buses = computed(() => {
@@ -218,12 +230,32 @@ export class YardStore {
     }
   }
 
-  confirm(step: StepView): void {
+  /** Confirms a step now, or (overdue) at the depot time `at` it really happened. */
+  confirm(step: StepView, at?: string): void {
     const plan = this.plan();
     if (!plan) return;
     this.problem.set(null);
     this.outbox.clear(step.step.key);
-    this.outbox.confirm(plan.id, step.step.key);
+    this.outbox.confirm(plan.id, step.step.key, at);
+  }
+
+  /** A step that did not happen: the server re-plans and publishes; the notice says what moved. */
+  async missed(step: StepView): Promise<void> {
+    const plan = this.plan();
+    const depotId = this.depotId();
+    const key = step.step.key;
+    if (!plan || !depotId || this.missing().has(key)) return;
+    this.problem.set(null);
+    this.missing.update((s) => new Set([...s, key]));
+    try {
+      const result = await this.api.missed(depotId, plan.id, key);
+      await this.reported(result);
+    } catch (err) {
+      this.problem.set(`Not re-planned: ${step.title}. ${toApiProblem(err).message}`);
+      void this.load();
+    } finally {
+      this.missing.update((s) => new Set([...s].filter((k) => k !== key)));
+    }
   }
 
   /** After a report: the revision's notice (with what moved) and the new timeline. */
