@@ -13,3 +13,4 @@ export * from './plans';
 export * from './costs';
 export * from './yard';
 export * from './night';
+export * from './page-links';
