@@ -1,5 +1,5 @@
 import { HttpClient } from '@angular/common/http';
-import { DOCUMENT, DestroyRef, Injectable, Injector, computed, effect, inject, signal, untracked } from '@angular/core';
+import { DOCUMENT, DestroyRef, Injectable, Injector, computed, inject, signal } from '@angular/core';
 import { Router } from '@angular/router';
 import {
   homeSection,
@@ -24,6 +24,8 @@ interface Session {
 
 /** Refresh this long before the access token runs out. */
 export const REFRESH_AHEAD_MS = 60_000;
+/** How often the expiry is checked besides the timer. */
+const WATCH_MS = 15_000;
 /** Tabs spread their refreshes over this much, so one tab's new token reaches the others first. */
 const SPREAD_MS = 5_000;
 
@@ -72,16 +74,15 @@ export class AuthStore {
       if (m.kind === 'tokens') this.accept(m.tokens);
       else if (this.signedIn()) this.endSession();
     });
-    // The server's clock moved (a device waking up, a test standing the API elsewhere): count again.
-    effect(() => {
-      this.clock.offsetMs();
-      untracked(() => this.schedule());
-    });
+    // A watch besides the timer: the server's clock may jump (a test standing the API elsewhere)
+    // and a sleeping device's timer runs late; either way the token's expiry is counted again.
+    const watch = setInterval(() => this.refreshIfDue(), WATCH_MS);
     const view = inject(DOCUMENT).defaultView;
     const onVisible = () => this.refreshIfDue();
     view?.addEventListener('visibilitychange', onVisible);
     inject(DestroyRef).onDestroy(() => {
       clearTimeout(this.refreshTimer);
+      clearInterval(watch);
       stopListening();
       view?.removeEventListener('visibilitychange', onVisible);
     });
