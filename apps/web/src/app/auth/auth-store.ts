@@ -20,6 +20,8 @@ interface Session {
   user: SessionUser;
   /** When the access token runs out, on the server's clock (ms since the epoch). */
   expiresAt: number;
+  /** When to renew it: counted once, when the token arrives. */
+  refreshAt: number;
 }
 
 /** Refresh this long before the access token runs out. */
@@ -190,17 +192,17 @@ export class AuthStore {
   private accept(res: TokenResponse): void {
     // The token's own expiry, on the server's clock; the lifetime it came with where it has none.
     const expiresAt = tokenExpiry(res.accessToken) ?? this.clock.nowMs() + Math.max(0, res.expiresInSeconds * 1000);
-    this.session.set({ accessToken: res.accessToken, user: res.user, expiresAt });
+    this.session.set({ accessToken: res.accessToken, user: res.user, expiresAt, refreshAt: this.refreshAt(expiresAt) });
     this.generation++;
     this.restoring = Promise.resolve(true);
     this.schedule();
   }
 
   /** When to refresh: a minute ahead (a quarter of the life left, if that is shorter), spread per tab. */
-  private refreshAt(s: Session): number {
-    const life = s.expiresAt - this.clock.nowMs();
+  private refreshAt(expiresAt: number): number {
+    const life = expiresAt - this.clock.nowMs();
     const ahead = life > 2 * REFRESH_AHEAD_MS ? REFRESH_AHEAD_MS + this.spread : Math.ceil(life * 0.25);
-    return s.expiresAt - ahead;
+    return expiresAt - ahead;
   }
 
   private due(): boolean {
@@ -212,7 +214,7 @@ export class AuthStore {
     clearTimeout(this.refreshTimer);
     const s = this.session();
     if (!s) return;
-    const delay = Math.max(0, this.refreshAt(s) - this.clock.nowMs());
+    const delay = Math.max(0, s.refreshAt - this.clock.nowMs());
     this.refreshTimer = setTimeout(() => this.refreshIfDue(), delay);
   }
 
@@ -220,7 +222,7 @@ export class AuthStore {
   private refreshIfDue(): void {
     const s = this.session();
     if (!s) return;
-    if (this.clock.nowMs() < this.refreshAt(s)) {
+    if (this.clock.nowMs() < s.refreshAt) {
       this.schedule();
       return;
     }
