@@ -41,4 +41,8 @@ describe('paths and sections', () => {
     expect(canOpen(['yard'], '/yard?night=2026-12-09')).toBe(true);
     expect(canOpen(['yard'], '/somewhere')).toBe(true);
   });
+
+  it('invitation and reset links (set-password) open for every role', () => {
+    for (const role of ROLES) expect(canOpen([role], '/set-password?token=abc')).toBe(true);
+  });
 });
