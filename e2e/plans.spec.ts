@@ -117,9 +117,12 @@ test('a supervisor uploads the runs, generates the night, reviews the short buse
   expect(mail.subject).toContain('Orchard Lane Depot');
   expect(mail.text).toContain('203');
 
-  // The link in the e-mail opens that version.
-  const link = /http\S+\/plans\/[\w-]+/.exec(mail.text)![0];
-  await page.goto(new URL(link).pathname);
+  // Each recipient's link opens a page of their own: the yard's the Yard at that night, the
+  // supervisor's that version's review.
+  expect(mail.text).toContain(`/yard?night=${night}`);
+  const own = await latestMailTo(district.emails.supervisor);
+  const link = new URL(/Review the plan: (http\S+)/.exec(own.text)![1]!);
+  await page.goto(link.pathname + link.search);
   await expect(page).toHaveURL(new RegExp(`date=${night}`));
   await expect(page.getByRole('heading', { level: 2, name: /^Version 1 Published/ })).toBeVisible();
 });

@@ -14,3 +14,4 @@ export * from './costs';
 export * from './yard';
 export * from './night';
 export * from './live';
+export * from './page-links';

@@ -17,6 +17,11 @@ export interface AuthSettings {
   accessTokenSeconds: number;
   refreshTokenDays: number;
   resetMinutes: number;
+  /**
+   * How long a just-rotated refresh token may be presented again and still be honoured (tabs and
+   * devices that refreshed at the same moment); REFRESH_GRACE_SECONDS (30) otherwise.
+   */
+  refreshGraceSeconds?: number;
   throttle: ThrottleLimits;
   /** Password-reset throttle; the defaults (5 an hour per account, 20 per 15 minutes per client) otherwise. */
   resetThrottle?: ResetLimits;
@@ -70,23 +75,32 @@ export async function login(db: Db, s: AuthSettings, email: string, password: st
   return issue(db, s, user.id, randomUUID(), now);
 }
 
+/** Seconds after a rotation during which the rotated token still refreshes the same session. */
+export const REFRESH_GRACE_SECONDS = 30;
+
 /**
  * Swaps a refresh token for a new pair. A token used twice means it was copied: the whole family
  * (every token descended from that sign-in) is revoked, signing out the thief and the owner.
+ * Except within the grace window just after its rotation: several tabs (or a retried request)
+ * that refresh at once all present the same cookie, and each then joins the one session (a new
+ * token of the same family) instead of ending it. Replay after the window still ends the family.
  */
 export async function refresh(db: Db, s: AuthSettings, token: string | undefined, now: Date): Promise<IssuedTokens> {
   if (!token) throw unauthenticated('No session: sign in');
   const outcome = await db.transaction(async (tx) => {
     const [row] = await tx.select().from(refreshTokens).where(eq(refreshTokens.tokenHash, hashToken(token))).for('update');
     if (!row || row.revokedAt || row.expiresAt < now) return 'ended' as const;
-    if (row.usedAt) {
+    const graceMs = (s.refreshGraceSeconds ?? REFRESH_GRACE_SECONDS) * 1000;
+    const sinceUse = row.usedAt ? now.getTime() - row.usedAt.getTime() : null;
+    if (sinceUse !== null && !(sinceUse >= 0 && sinceUse <= graceMs)) {
       // Committed before the caller is refused: a rollback would leave the copied session alive.
       await tx.update(refreshTokens).set({ revokedAt: now }).where(eq(refreshTokens.familyId, row.familyId));
       return 'replayed' as const;
     }
     const [user] = await tx.select({ status: users.status }).from(users).where(eq(users.id, row.userId));
     if (user?.status !== 'active') return 'inactive' as const;
-    await tx.update(refreshTokens).set({ usedAt: now }).where(eq(refreshTokens.id, row.id));
+    // Within the grace window the token stays marked with its first use: the window never stretches.
+    if (sinceUse === null) await tx.update(refreshTokens).set({ usedAt: now }).where(eq(refreshTokens.id, row.id));
     return issue(tx as unknown as Db, s, row.userId, row.familyId, now);
   });
   if (outcome === 'ended') throw unauthenticated('Your session has ended: sign in again');

@@ -2,9 +2,12 @@ import jwt from 'jsonwebtoken';
 import { eq } from 'drizzle-orm';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { refreshTokens, users } from '../db/schema';
-import { TEST_PASSWORD, createOrganisation, createTestApp, type TestUser } from '../testing/test-app';
+import { TEST_PASSWORD, TEST_START, createOrganisation, createTestApp, type TestUser } from '../testing/test-app';
+import { REFRESH_GRACE_SECONDS } from './auth-service';
 
-const app = createTestApp();
+/** The API's clock in this file: stopped, moved by hand. */
+let at = TEST_START.getTime();
+const app = createTestApp({ clock: () => new Date(at) });
 
 function refreshCookie(res: { headers: Record<string, unknown> }): string {
   const cookies = res.headers['set-cookie'] as string[] | undefined;
@@ -41,17 +44,56 @@ describe('sign-in', () => {
     expect(unknown.body.error).toEqual(wrong.body.error);
   });
 
-  it('rotates the refresh token and ends the whole session when an old one is replayed', async () => {
+  it('rotates the refresh token and ends the whole session when an old one is replayed after the grace window', async () => {
+    at = TEST_START.getTime();
     const login = await app.request().post('/api/auth/login').send({ email: people.sup!.email, password: TEST_PASSWORD }).expect(200);
     const first = refreshCookie(login);
     const r1 = await app.request().post('/api/auth/refresh').set('Cookie', first).expect(200);
     const second = refreshCookie(r1);
     expect(second).not.toBe(first);
     expect(r1.body.accessToken).toBeTruthy();
-    // Replaying the used token is treated as theft: both it and its successor stop working.
+    // Replaying the used token later is treated as theft: both it and its successor stop working.
+    at += (REFRESH_GRACE_SECONDS + 1) * 1000;
     const replay = await app.request().post('/api/auth/refresh').set('Cookie', first).expect(401);
     expect(replay.body.error.message).toMatch(/used elsewhere/);
     await app.request().post('/api/auth/refresh').set('Cookie', second).expect(401);
+  });
+
+  it('lets tabs that refresh at once with the same cookie share the session within the grace window', async () => {
+    at = Date.parse('2026-12-02T23:59:50-06:00');
+    const login = await app.request().post('/api/auth/login').send({ email: people.sup!.email, password: TEST_PASSWORD }).expect(200);
+    const old = refreshCookie(login);
+    // Two tabs, one cookie: the first rotates it, the second arrives 20 s later with the same one.
+    const tabA = await app.request().post('/api/auth/refresh').set('Cookie', old).expect(200);
+    at += 20_000;
+    const tabB = await app.request().post('/api/auth/refresh').set('Cookie', old).expect(200);
+    expect(tabB.body.user.id).toBe(tabA.body.user.id);
+    for (const tab of [tabA, tabB]) {
+      await app.request().get('/api/auth/me').set('Authorization', `Bearer ${tab.body.accessToken}`).expect(200);
+      // Each tab's new cookie carries the session on.
+      const next = await app.request().post('/api/auth/refresh').set('Cookie', refreshCookie(tab)).expect(200);
+      await app.request().get('/api/auth/me').set('Authorization', `Bearer ${next.body.accessToken}`).expect(200);
+    }
+    const family = await app.db.select().from(refreshTokens).where(eq(refreshTokens.userId, people.sup!.id));
+    expect(family.filter((t) => t.revokedAt && t.revokedAt.getTime() >= at)).toHaveLength(0);
+
+    // The window counts from the first rotation, not from the last presentation: 31 s after it, the
+    // same old cookie is a replay and ends the whole family, the tabs' new tokens with it.
+    at = Date.parse('2026-12-02T23:59:50-06:00') + (REFRESH_GRACE_SECONDS + 1) * 1000;
+    const replay = await app.request().post('/api/auth/refresh').set('Cookie', old).expect(401);
+    expect(replay.body.error.message).toMatch(/used elsewhere/);
+    await app.request().post('/api/auth/refresh').set('Cookie', refreshCookie(tabB)).expect(401);
+    await app.request().post('/api/auth/refresh').set('Cookie', refreshCookie(tabA)).expect(401);
+  });
+
+  it('does not reopen a revoked session within the grace window', async () => {
+    at = Date.parse('2026-12-03T08:00:00-06:00');
+    const login = await app.request().post('/api/auth/login').send({ email: people.sup!.email, password: TEST_PASSWORD }).expect(200);
+    const old = refreshCookie(login);
+    const r1 = await app.request().post('/api/auth/refresh').set('Cookie', old).expect(200);
+    await app.request().post('/api/auth/logout').set('Cookie', refreshCookie(r1)).expect(204);
+    at += 5_000;
+    await app.request().post('/api/auth/refresh').set('Cookie', old).expect(401);
   });
 
   it('signs out: the refresh cookie no longer works', async () => {

@@ -1,5 +1,11 @@
 import type { OutgoingMail } from './mailer';
 
+/** A link in a mail: the address (built for its recipient) and the words before it. */
+export interface MailLink {
+  label: string;
+  url: string;
+}
+
 export function invitationMail(p: { to: string; name: string; inviter: string; organisation: string; link: string; hours: number }): OutgoingMail {
   return {
     to: p.to,
@@ -34,7 +40,7 @@ export function resetMail(p: { to: string; name: string; link: string; minutes: 
 
 export function planPublishedMail(p: {
   to: string; name: string; depot: string; night: string; version: number; publishedBy: string; buses: number; sessions: number;
-  currency: string; cost: number; baseline: number; baselineName: string; short: string[]; link: string;
+  currency: string; cost: number; baseline: number; baselineName: string; short: string[]; link: MailLink;
 }): OutgoingMail {
   const money = (v: number) => new Intl.NumberFormat('en-US', { style: 'currency', currency: p.currency }).format(v);
   return {
@@ -49,7 +55,7 @@ export function planPublishedMail(p: {
       `Projected electricity cost: ${money(p.cost)} (${p.baselineName.toLowerCase()}, within the same limits: ${money(p.baseline)}).`,
       p.short.length ? `Buses that cannot be fully charged: ${p.short.join('; ')}.` : 'Every bus gets the energy its runs need.',
       '',
-      `Open the plan: ${p.link}`,
+      `${p.link.label}: ${p.link.url}`,
       '',
       'The plan is advisory: the people on site decide. Only trained and authorised staff connect or disconnect chargers.',
     ].join('\n'),
@@ -59,7 +65,7 @@ export function planPublishedMail(p: {
 export function planRevisedMail(p: {
   to: string; name: string; depot: string; version: number; at: string; reportedBy: string; what: string; moved: string[];
   /** The yard's steps due in the next hour, as the yard page words them ("23:07 Unplug bus 218 ..."). */
-  steps?: string[]; link: string;
+  steps?: string[]; link: MailLink;
 }): OutgoingMail {
   return {
     to: p.to,
@@ -72,7 +78,7 @@ export function planRevisedMail(p: {
       p.moved.length ? `Changed: ${p.moved.join('; ')}.` : 'No bus changed charger or times.',
       '',
       ...(p.steps?.length ? ['Steps in the next hour:', ...p.steps.map((s) => `- ${s}`), ''] : []),
-      `Open the yard view: ${p.link}`,
+      `${p.link.label}: ${p.link.url}`,
       '',
       'The plan is advisory: the people on site decide. Only trained and authorised staff connect or disconnect chargers.',
     ].join('\n'),

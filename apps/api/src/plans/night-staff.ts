@@ -5,7 +5,7 @@ import { users } from '../db/schema';
 /** Who is told when a night's plan is published or revised: the active yard staff and supervisors. */
 export function nightStaff(db: Db, organisationId: string) {
   return db
-    .select({ email: users.email, name: users.name })
+    .select({ email: users.email, name: users.name, roles: users.roles })
     .from(users)
     .where(and(eq(users.organisationId, organisationId), eq(users.status, 'active'),
       sql`${users.roles} && array['yard','supervisor']::text[]`));

@@ -12,6 +12,7 @@ import type { AuthUser } from '../auth/auth-user';
 import { depotOf } from '../depots/depot-access';
 import type { JobQueue } from '../jobs/job-queue';
 import type { Mailer } from '../mail/mailer';
+import { nightMailLink } from '../mail/links';
 import { planPublishedMail } from '../mail/templates';
 import { buildNightScenario } from './night-scenario';
 import { nightStaff } from './night-staff';
@@ -235,7 +236,7 @@ async function notifyPublished(db: Db, mailer: Mailer, caller: AuthUser, plan: P
       to: r.email, name: r.name, depot: depot!.name, night: DateTime.fromISO(plan.serviceDate).toFormat('cccc d LLLL yyyy'),
       version: plan.version, publishedBy: caller.name, buses: scenario.buses.length, sessions: result.sessions.length,
       currency: scenario.tariff.currency ?? 'USD', cost: result.cost.total, baseline: result.baseline.total, baselineName: baselineName(result.baseline.kind),
-      short: short.map((b) => `${b.id} (${b.shortfallKwh.toFixed(1)} kWh short: ${b.reason})`), link: link(`/plans/${plan.id}`),
+      short: short.map((b) => `${b.id} (${b.shortfallKwh.toFixed(1)} kWh short: ${b.reason})`), link: nightMailLink(r.roles, { planId: plan.id, serviceDate: plan.serviceDate }, link),
     }));
   }
 }

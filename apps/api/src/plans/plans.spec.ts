@@ -11,6 +11,8 @@ let sup: TestUser;
 let sup2: TestUser;
 let yard: TestUser;
 let fin: TestUser;
+let yardFin: TestUser;
+let supYard: TestUser;
 let depotId: string;
 const as = (u: TestUser) => ({ Authorization: `Bearer ${u.token}` });
 const NUMBERS = ['11', '12', '13', '14'];
@@ -25,8 +27,10 @@ async function finished(id: string, who = sup) {
 }
 
 beforeAll(async () => {
-  const org = await createOrganisation(app, { sup: ['supervisor'], sup2: ['supervisor'], yard: ['yard'], fin: ['finance'] });
-  ({ sup, sup2, yard, fin } = org.users as Record<string, TestUser>);
+  const org = await createOrganisation(app, {
+    sup: ['supervisor'], sup2: ['supervisor'], yard: ['yard'], fin: ['finance'], yardfin: ['finance', 'yard'], supyard: ['yard', 'supervisor'],
+  });
+  ({ sup, sup2, yard, fin, yardfin: yardFin, supyard: supYard } = org.users as Record<string, TestUser>);
   depotId = (await createDepot(app.db, org.organisationId)).depot.id;
   await addBuses(app.db, org.organisationId, depotId, NUMBERS);
   // Wednesday and Thursday: the plan covers Wednesday's midday layover and night.
@@ -85,9 +89,15 @@ describe('plans', () => {
     expect(res.body.plan.state).toBe('published');
     const [mail] = await mailFor(yard.email);
     expect(mail!.subject).toMatch(/Charging plan published: Test depot, night of Wednesday 9 December 2026 \(version 1\)/);
-    expect(mail!.text).toContain(`http://nightyard.test/plans/${first.id}`);
+    // Built per recipient: yard staff get the Yard at that night (Plans is not theirs to open).
+    expect(mail!.text).toContain('Open the yard view for that night: http://nightyard.test/yard?night=2026-12-09');
+    expect(mail!.text).not.toContain('/plans');
     expect(mail!.text).toMatch(/Projected electricity cost: \$[\d,.]+ \((charge on arrival|timer), within the same limits: \$[\d,.]+\)/);
-    expect(await mailFor(sup2.email)).toHaveLength(1);
+    const [supMail] = await mailFor(sup2.email);
+    expect(supMail!.text).toContain(`Review the plan: http://nightyard.test/plans?date=2026-12-09&plan=${first.id}`);
+    // Several roles: the first of supervisor, yard, facilities, finance, admin decides, as for the home page.
+    expect((await mailFor(supYard.email))[0]!.text).toContain(`http://nightyard.test/plans?date=2026-12-09&plan=${first.id}`);
+    expect((await mailFor(yardFin.email))[0]!.text).toContain('http://nightyard.test/yard?night=2026-12-09');
     expect(await mailFor(fin.email, 1, 300)).toHaveLength(0);
     const again = await app.request().post(`/api/plans/${first.id}/publish`).set(as(sup)).send({ expectedPublishedId: null }).expect(409);
     expect(again.body.error.message).toMatch(/already published/);

@@ -11,6 +11,7 @@ import { DomainError, conflict, notFound } from '../http/errors';
 import type { AuthUser } from '../auth/auth-user';
 import { depotOf } from '../depots/depot-access';
 import type { Mailer } from '../mail/mailer';
+import { nightMailLink } from '../mail/links';
 import { planRevisedMail } from '../mail/templates';
 import { nightStaff } from '../plans/night-staff';
 import { comparePlans, planDetailOf } from '../plans/plans-service';
@@ -383,7 +384,7 @@ async function replanAndPublish(deps: PublishDeps, caller: AuthUser, depotId: st
   for (const r of recipients) {
     await deps.mailer.send(planRevisedMail({
       to: r.email, name: r.name, depot: depot.name, version: revision.version, at: cutoff.toFormat('HH:mm'), reportedBy: caller.name,
-      what: describe, moved: moved.map((m) => `${m.bus}: ${m.after}`), steps: soon, link: deps.publicUrl('/yard'),
+      what: describe, moved: moved.map((m) => `${m.bus}: ${m.after}`), steps: soon, link: nightMailLink(r.roles, { planId: revision.id, serviceDate: revision.serviceDate }, deps.publicUrl),
     })).then(() => notified++, () => undefined);
   }
   return {

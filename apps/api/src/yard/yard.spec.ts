@@ -97,6 +97,12 @@ describe('yard: reports re-plan the rest of the night', () => {
     expect(depot.body.depot.chargers.find((c: { label: string }) => c.label === charger)).toMatchObject({ status: 'out_of_service', statusReason: 'Connector latch broken' });
     const [mail] = await mailFor(yard.email);
     expect(mail!.subject).toMatch(/Plan revised at 23:00: Test depot \(version 2\)/);
+    // Each recipient's link opens a page their role can use: the Yard at that night, the review.
+    expect(mail!.text).toContain('Open the yard view for that night: http://nightyard.test/yard?night=2026-12-09');
+    const [supMail] = await mailFor(sup.email, 2);
+    expect(supMail!.subject).toMatch(/Plan revised at 23:00/);
+    expect(supMail!.text).toContain(`Review the plan: http://nightyard.test/plans?date=2026-12-09&plan=${res.body.revision.id}`);
+    expect(supMail!.text).not.toContain('/yard');
   });
 
   it('a late bus: its sessions move after its new time', async () => {

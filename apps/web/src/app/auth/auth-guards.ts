@@ -2,14 +2,14 @@ import { inject } from '@angular/core';
 import { RedirectCommand, Router, type CanActivateFn } from '@angular/router';
 import { SECTIONS, hasAnyRole, type SectionKey } from '@nightyard/contracts';
 import { AuthStore } from './auth-store';
-import { safeReturnUrl } from './return-url';
+import { landingUrl, returnUrlFrom } from './return-url';
 
 /** Pages behind sign-in. Picks up an existing session (refresh cookie) on the first visit. */
 export const signedInGuard: CanActivateFn = async (_route, state) => {
   const store = inject(AuthStore);
   const router = inject(Router);
   if (await store.restore()) return true;
-  const returnUrl = state.url && state.url !== '/' ? state.url : undefined;
+  const returnUrl = returnUrlFrom(state.url);
   return router.createUrlTree(['/sign-in'], { queryParams: returnUrl ? { returnUrl } : {} });
 };
 
@@ -18,7 +18,7 @@ export const signedOutGuard: CanActivateFn = async (route) => {
   const store = inject(AuthStore);
   const router = inject(Router);
   if (!(await store.restore())) return true;
-  const target = safeReturnUrl(route.queryParamMap.get('returnUrl')) ?? store.home().path;
+  const target = landingUrl(route.queryParamMap.get('returnUrl'), store.roles(), store.home().path);
   return router.parseUrl(target);
 };
 

@@ -1,6 +1,5 @@
 import { HttpErrorResponse, type HttpInterceptorFn, type HttpRequest } from '@angular/common/http';
 import { inject } from '@angular/core';
-import { Router } from '@angular/router';
 import { catchError, from, switchMap, throwError } from 'rxjs';
 import { AuthStore } from './auth-store';
 
@@ -27,13 +26,13 @@ function withBearer<T>(req: HttpRequest<T>, token: string | null): HttpRequest<T
 
 /**
  * Adds `Authorization: Bearer` to API calls. On a 401 it refreshes once and retries; when the
- * refresh fails too, it sends the person to sign in and comes back afterwards.
+ * refresh fails too, the session has ended: AuthStore keeps the unsaved input of the forms on
+ * screen and sends the person to sign in, to come back to this page afterwards.
  */
 export const authInterceptor: HttpInterceptorFn = (req, next) => {
   if (!isApi(req.url) || isPublicAuth(req.url)) return next(req);
 
   const store = inject(AuthStore);
-  const router = inject(Router);
 
   return next(withBearer(req, store.accessToken())).pipe(
     catchError((err: unknown) => {
@@ -43,9 +42,7 @@ export const authInterceptor: HttpInterceptorFn = (req, next) => {
       return from(store.refresh()).pipe(
         switchMap((refreshed) => {
           if (refreshed) return next(withBearer(req, store.accessToken()));
-          const current = router.url;
-          const returnUrl = current && current !== '/' && !current.startsWith('/sign-in') ? current : undefined;
-          void router.navigate(['/sign-in'], { queryParams: returnUrl ? { returnUrl } : {} });
+          store.endSession();
           return throwError(() => err);
         }),
       );

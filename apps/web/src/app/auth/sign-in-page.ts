@@ -9,7 +9,7 @@ import { Router, RouterLink } from '@angular/router';
 import { applyFieldErrors, toApiProblem } from '../core/api-error';
 import { AuthFrame } from './auth-frame';
 import { AuthStore } from './auth-store';
-import { safeReturnUrl } from './return-url';
+import { landingUrl } from './return-url';
 
 export const WRONG_CREDENTIALS = 'E-mail or password is not right. Check both and try again.';
 
@@ -63,7 +63,8 @@ export class SignInPage {
     this.busy.set(true);
     try {
       await this.auth.signIn(email.trim(), password);
-      const target = safeReturnUrl(this.returnUrl()) ?? this.auth.home().path;
+      // A return URL this person's roles cannot open (a link meant for someone else) leads home.
+      const target = landingUrl(this.returnUrl(), this.auth.roles(), this.auth.home().path);
       await this.router.navigateByUrl(target);
     } catch (err) {
       const p = toApiProblem(err);

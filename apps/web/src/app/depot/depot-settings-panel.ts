@@ -1,4 +1,4 @@
-import { ChangeDetectionStrategy, Component, computed, inject, input, output, signal } from '@angular/core';
+import { ChangeDetectionStrategy, Component, DestroyRef, computed, inject, input, output, signal, type OnInit } from '@angular/core';
 import { FormArray, FormControl, FormGroup, ReactiveFormsModule } from '@angular/forms';
 import { MatAutocompleteModule } from '@angular/material/autocomplete';
 import { MatButtonModule } from '@angular/material/button';
@@ -11,11 +11,14 @@ import { MatSnackBar } from '@angular/material/snack-bar';
 import { depotSettingsSchema, type DepotDetail, type DepotSettings } from '@nightyard/contracts';
 import { startWith } from 'rxjs';
 import { toApiProblem } from '../core/api-error';
+import { FormDrafts } from '../core/form-drafts';
 import { applyServerErrors, errorText, zodValidator } from '../shared/form-paths';
 import { ProblemSummary, type ProblemItem } from '../shared/problem-summary';
 import { DepotApi } from './depot-api';
 import { HOUR_LABELS, formatKw, timeZones } from './depot-setup-format';
 
+/** The name its unsaved input is kept under when the session ends (FormDrafts). */
+const DRAFT = 'depot-settings';
 const shape = depotSettingsSchema.shape;
 const loadControl = (kw: number | null) =>
   new FormControl<number | null>(kw, zodValidator(shape.otherLoadKw.element, 'Enter the other load in kW (0 if none)'));
@@ -53,9 +56,11 @@ type SettingsForm = ReturnType<typeof settingsForm>;
   styleUrls: ['../shared/panel.scss', './depot-settings-panel.scss'],
   changeDetection: ChangeDetectionStrategy.OnPush,
 })
-export class DepotSettingsPanel {
+export class DepotSettingsPanel implements OnInit {
   private readonly api = inject(DepotApi);
   private readonly snackBar = inject(MatSnackBar);
+  private readonly drafts = inject(FormDrafts);
+  private readonly destroyRef = inject(DestroyRef);
 
   readonly depot = input.required<DepotDetail>();
   readonly canEdit = input(false);
@@ -82,15 +87,22 @@ export class DepotSettingsPanel {
     return (q ? this.allZones.filter((z) => z.toLowerCase().includes(q)) : this.allZones).slice(0, 60);
   });
 
+  /** Input left unsaved when the session ended opens the editor again, with that input. */
+  ngOnInit(): void {
+    if (this.canEdit() && this.drafts.has(DRAFT)) this.edit();
+  }
+
   protected edit(): void {
     const form = settingsForm(this.depot());
     form.controls.timezone.valueChanges.pipe(startWith(form.controls.timezone.value)).subscribe((v) => this.zoneQuery.set(v));
+    this.drafts.register(DRAFT, form, this.destroyRef);
     this.problem.set(null);
     this.problemItems.set([]);
     this.form.set(form);
   }
 
   protected cancel(): void {
+    this.drafts.forget(DRAFT);
     this.form.set(null);
     this.problem.set(null);
     this.problemItems.set([]);
@@ -124,6 +136,7 @@ export class DepotSettingsPanel {
     this.busy.set(true);
     try {
       const depot = await this.api.saveSettings(this.depot().id, body);
+      this.drafts.forget(DRAFT);
       this.form.set(null);
       this.saved.emit(depot);
       this.snackBar.open('Depot settings saved', 'OK');

@@ -31,7 +31,7 @@ describe('YardPage', () => {
     mock.expectOne(`/api/depots/${DEPOT_ID}`).flush({ depot: { id: DEPOT_ID, chargers } });
   }
 
-  async function start(t: Tonight = tonight(), chargers?: ReturnType<typeof charger>[]): Promise<void> {
+  async function start(t: Tonight = tonight(), chargers?: ReturnType<typeof charger>[], night?: string): Promise<void> {
     const current = signal(depot({ id: DEPOT_ID }));
     TestBed.configureTestingModule({
       providers: [
@@ -46,6 +46,7 @@ describe('YardPage', () => {
     });
     mock = TestBed.inject(HttpTestingController);
     fixture = TestBed.createComponent(YardPage);
+    if (night) fixture.componentRef.setInput('night', night);
     el = fixture.nativeElement;
     await render();
     answer(t, chargers);
@@ -84,6 +85,18 @@ describe('YardPage', () => {
     expect(text(el.querySelector('.status-bar'))).toContain('1 overdue');
     // 22:30 at the depot and the theme menu on "Match device": night colours.
     expect(document.documentElement.style.colorScheme).toBe('dark');
+  });
+
+  it('an e-mail link for tonight shows tonight as usual; one for another night says what is shown instead', async () => {
+    const t = tonight();
+    await start(t, undefined, t.plan!.serviceDate);
+    expect(el.querySelector('.linked-night')).toBeNull();
+    fixture.componentRef.setInput('night', '2099-01-01');
+    await render();
+    expect(text(el.querySelector('.linked-night'))).toMatch(/^The link was for the night of Thursday 1 January: its steps show here when that night begins/);
+    fixture.componentRef.setInput('night', '2000-01-03');
+    await render();
+    expect(text(el.querySelector('.linked-night'))).toBe("The night of Monday 3 January is over: this is tonight's plan.");
   });
 
   it("takes now from the server and keeps day colours before the server's night starts", async () => {

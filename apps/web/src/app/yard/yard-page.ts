@@ -15,6 +15,7 @@ import { MatDialog } from '@angular/material/dialog';
 import { MatIconModule } from '@angular/material/icon';
 import { MatMenuModule } from '@angular/material/menu';
 import { MatProgressBarModule } from '@angular/material/progress-bar';
+import { isIsoDate } from '../core/depot-time';
 import { injectIsPhone } from '../core/layout';
 import { ThemeStore } from '../core/theme-store';
 import { ChargerFaults, faultsOf } from '../depots/charger-faults';
@@ -61,6 +62,9 @@ export class YardPage {
   private readonly document = inject(DOCUMENT);
   private readonly phone = injectIsPhone();
 
+  /** Query parameter `night` (`YYYY-MM-DD`): the night an e-mail link was about. */
+  readonly night = input<string>();
+
   protected readonly depotState = this.depots.state;
   protected readonly depot = this.depots.current;
   protected readonly printChoice = signal<RunSheetChoice>({ charger: null, perPage: false });
@@ -76,6 +80,17 @@ export class YardPage {
   protected readonly nightSpan = computed(() => {
     const h = this.store.horizon();
     return h ? `${day(h.start, this.tz())} ${clock(h.start, this.tz())} to ${day(h.end, this.tz())} ${clock(h.end, this.tz())}` : '';
+  });
+  /** When a link names another night than the one shown here, what the page shows instead. */
+  protected readonly linkedNightNote = computed(() => {
+    const night = this.night();
+    if (this.store.state() !== 'loaded' || !night || !isIsoDate(night)) return null;
+    const shown = this.store.plan()?.serviceDate ?? null;
+    if (shown === night) return null;
+    const named = new Intl.DateTimeFormat('en-GB', { weekday: 'long', day: 'numeric', month: 'long', timeZone: 'UTC' })
+      .format(Date.parse(`${night}T12:00:00Z`));
+    if (shown && night < shown) return `The night of ${named} is over: this is tonight's plan.`;
+    return `The link was for the night of ${named}: its steps show here when that night begins. Until then this is tonight's plan.`;
   });
   protected readonly reports = computed(() => (this.store.tonight()?.reports ?? []).map((r) => reportLine(r, this.tz())));
   protected readonly chargerLabels = computed(() => this.store.chargerViews().map((c) => c.label));
