@@ -68,7 +68,7 @@ const NOT_REQUESTS = new Set([
   'chargerSchema', 'localDateTimeSchema', 'loadReductionWindowSchema', 'depotDetailSchema', 'busStatusSchema', 'busSchema',
   'coldWeatherBandSchema', 'socSourceSchema', 'runSchema', 'serviceDaySchema', 'csvRowErrorSchema', 'forecastLowFSchema',
   'planStateSchema', 'planJobStatusSchema', 'planKindSchema', 'planResultSchema', 'planSummarySchema', 'planDetailSchema',
-  'planComparisonSchema', 'whatIfAdoptionSchema', 'adoptedPlanSchema', 'billLineSchema', 'billSchema', 'planCostsSchema', 'emissionsSchema', 'monthCostsSchema',
+  'planComparisonSchema', 'baselineKindSchema', 'whatIfAdoptionSchema', 'adoptedPlanSchema', 'billLineSchema', 'billSchema', 'planCostsSchema', 'emissionsSchema', 'monthCostsSchema',
   'meterImportResultSchema', 'yardStepSchema', 'tonightSchema', 'yardConfirmationSchema', 'yardReportResultSchema',
   'emailSchema', 'passwordSchema', 'serviceNightSchema', 'depotNightSchema', 'liveChargerSchema', 'liveEventSchema',
 ]);

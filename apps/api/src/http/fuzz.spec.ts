@@ -34,7 +34,7 @@ beforeAll(async () => {
     .send({ windows: [{ start: '2026-12-08T16:00', end: '2026-12-08T19:00', limitKw: 100 }] }).expect(200);
   await app.request().put(`/api/depots/${depotId}/peaks-so-far`).set(as).send({ billingPeriodStart: '2026-12-01', facilityKw: 80 }).expect(200);
   await app.request().post(`/api/depots/${depotId}/meter-data`).set(as)
-    .send({ fileName: 'n.csv', content: 'TYPE,DATE,START TIME,END TIME,USAGE,UNITS\nElectric usage,2026-12-02,22:00,22:14,7.5,kWh', billingPeriodStart: '2026-12-01' })
+    .send({ fileName: 'n.csv', content: 'TYPE,DATE,START TIME,END TIME,USAGE,UNITS\nElectric usage,2026-12-01,02:00,02:14,7.5,kWh', billingPeriodStart: '2026-12-01' })
     .expect(201);
 });
 
