@@ -39,6 +39,12 @@ export DATABASE_URL=postgres://postgres@127.0.0.1:$PGPORT/nightyard_test
 export E2E_DATABASE_URL=postgres://postgres@127.0.0.1:$PGPORT/nightyard_e2e
 export NG_CLI_ANALYTICS=false
 
+# The production web build the browser tests need runs beside the API tests: those mostly wait
+# on PostgreSQL, one file at a time, so the second core is free for it.
+build_web_if_stale > .test-data/web-build.log 2>&1 &
+web_build=$!
+pids+=($web_build)
+
 echo "== Libraries and API (Vitest, PostgreSQL on 127.0.0.1:$PGPORT)"
 npx vitest run
 
@@ -46,7 +52,12 @@ echo "== Web unit tests (ng test)"
 npx ng test --watch=false
 
 echo "== Browser tests (Playwright, Debian's Chromium)"
-build_web_if_stale
+if ! wait "$web_build"; then
+  cat .test-data/web-build.log
+  echo "The web build failed." >&2
+  exit 1
+fi
+cat .test-data/web-build.log
 npx playwright test
 
 echo "All test suites passed."
