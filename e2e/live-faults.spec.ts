@@ -1,5 +1,5 @@
 import { expect, test, type Browser, type Page } from '@playwright/test';
-import { AT, clearCharger, districtAt, expectAccessible, faultCharger, pageAtApiTime, signInAs, type District } from './support';
+import { AT, chargerReports, clearCharger, districtAt, expectAccessible, faultCharger, pageAtApiTime, signInAs, type District } from './support';
 
 // Live state is pushed: a charger fault reported by the simulator over OCPP reaches Tonight, Yard
 // and Depot while they are open (no reload, no waiting for a poll), stays while the charger says
@@ -46,8 +46,9 @@ test('a fault shows on Tonight, Yard and Depot within 5 s, stays while the charg
   await expect(yard.locator(`ny-charger-card[data-charger="${label}"] .live`)).toContainText('Faulted');
   await expectAccessible(tonight);
 
-  // The simulator keeps reporting (meter values every 15 s): the fault stands.
-  await tonight.waitForTimeout(20_000);
+  // The simulator keeps reporting (meter values every 15 s): after its next report the fault still stands.
+  const reported = await chargerReports(label);
+  await expect.poll(() => chargerReports(label), { timeout: 30_000, intervals: [1000] }).toBeGreaterThan(reported);
   for (const page of [tonight, depot, yard]) await expect(fault(page, label)).toBeVisible();
 
   await clearCharger(label);

@@ -115,6 +115,13 @@ export async function faultCharger(label: string): Promise<void> {
   await simulator('POST', `/fault/${encodeURIComponent(label)}`);
 }
 
+/** How many meter reports the simulated charger has sent so far. */
+export async function chargerReports(label: string): Promise<number> {
+  const res = await fetch(`${SIMULATOR}/reports/${encodeURIComponent(label)}`);
+  if (!res.ok) throw new Error(`The charger simulator answered ${res.status} to GET /reports/${label}`);
+  return ((await res.json()) as { reports: number }).reports;
+}
+
 /** The simulated charger's fault is fixed: it reports its state as its profile says again. */
 export async function clearCharger(label: string): Promise<void> {
   await simulator('POST', `/clear/${encodeURIComponent(label)}`);

@@ -29,6 +29,8 @@ export class SimulatedStation {
   private lastStatus = '';
   /** A reported fault stands until `clear()`, as a real one does until someone fixes it. */
   private faulted = false;
+  /** Meter reports sent so far: tests wait for the next one rather than for a fixed time. */
+  reports = 0;
   private readonly clock: () => Date;
   /** Central system time minus this machine's, learnt from its answers. */
   private offsetMs = 0;
@@ -84,6 +86,7 @@ export class SimulatedStation {
     await this.client.call('MeterValues', v16
       ? { connectorId: 1, meterValue: [{ timestamp, sampledValue: [{ value: String(w), measurand: 'Power.Active.Import', unit: 'W' }] }] }
       : { evseId: 1, meterValue: [{ timestamp, sampledValue: [{ value: w, measurand: 'Power.Active.Import', unitOfMeasure: { unit: 'W' } }] }] });
+    this.reports++;
   }
 
   /** Reports a fault; it stays (the station draws nothing and keeps saying so) until `clear()`. */
@@ -143,10 +146,15 @@ async function main() {
     const { createServer } = await import('node:http');
     createServer((req, res) => {
       const address = new URL(req.url ?? '/', 'http://simulator');
-      const [, action, label] = /^\/(fault|clear)\/([\w-]+)$/.exec(address.pathname) ?? [];
+      const [, action, label] = /^\/(fault|clear|reports)\/([\w-]+)$/.exec(address.pathname) ?? [];
+      const find = () => stations.find((s) => s.client.identity === label || s.client.identity?.endsWith(`-${label}`));
+      if (label && req.method === 'GET' && action === 'reports') {
+        const station = find();
+        return void (station ? res.writeHead(200, { 'content-type': 'application/json' }).end(JSON.stringify({ reports: station.reports })) : res.writeHead(404).end('unknown charger'));
+      }
       const clearing = (req.method === 'POST' && action === 'clear') || (req.method === 'DELETE' && action === 'fault');
       if (label && ((req.method === 'POST' && action === 'fault') || clearing)) {
-        const station = stations.find((s) => s.client.identity === label || s.client.identity?.endsWith(`-${label}`));
+        const station = find();
         if (!station) return void res.writeHead(404).end('unknown charger');
         void (clearing ? station.clear() : station.fault()).then(() => res.writeHead(204).end(), () => res.writeHead(502).end());
         return;
