@@ -10,7 +10,7 @@ import { depotOf } from '../depots/depot-access';
 import { prepared } from '../db/prepared';
 import { billingPeriodOf, ratePlanOn } from './billing-period';
 import { MonthCostsCache, monthInputsVersion } from './month-cache';
-import { forecastNights } from './month-forecast';
+import { buildingKwAt, forecastNights } from './month-forecast';
 
 const SLOT_MS = 15 * 60_000;
 const round2 = (v: number) => Math.round(v * 100) / 100;
@@ -210,8 +210,7 @@ async function periodBase(db: Db, depot: Depot, period: Period): Promise<PeriodB
     });
   }
 
-  const profile = depot.otherLoadKw;
-  const buildingKwh = (t: number) => (profile.length === 1 ? profile[0]! : profile[DateTime.fromMillis(t, { zone }).hour]!) * 0.25;
+  const buildingKwh = (t: number) => buildingKwAt(depot.otherLoadKw, t, zone) * 0.25;
   const plannedDates = new Set(published.map((p) => p.serviceDate));
   const forecast = await forecastNights(db, depot, period, rate.definition, plannedDates);
   // Charging kW of the forecast nights, each shape; a planned or metered interval stays as it is.

@@ -9,6 +9,11 @@ const SLOT_MS = 15 * 60_000;
 /** Grid kWh per battery kWh: a charger's losses (about 8%: common practice for DC depot chargers). */
 const CHARGER_EFFICIENCY = 0.92;
 
+/** The building's own load (kW) at an instant: one flat value, or 24 by local hour. */
+export function buildingKwAt(profile: readonly number[], t: number, zone: string): number {
+  return profile.length === 1 ? profile[0]! : profile[DateTime.fromMillis(t, { zone }).hour]!;
+}
+
 /** A service day as its runs give it: when the last bus is home and the first leaves, and the energy driven. */
 interface ServiceDay {
   date: string;
@@ -78,10 +83,6 @@ export async function forecastNights(
     const shift = local.diff(DateTime.fromISO(like.date, { zone }), 'days').days * 86_400_000;
     return { day: { date, lastPullInMs: like.lastPullInMs + shift, firstPullOutMs: like.firstPullOutMs + shift, kwh: like.kwh }, basis: 'typical-weekday' };
   };
-  const building = (t: number) => {
-    const p = depot.otherLoadKw;
-    return p.length === 1 ? p[0]! : p[DateTime.fromMillis(t, { zone }).hour]!;
-  };
 
   const nights: ForecastNight[] = [];
   for (let d = period.start; d < period.end; d = d.plus({ days: 1 })) {
@@ -98,7 +99,7 @@ export async function forecastNights(
     if (to <= from) continue;
     const slots: { t: number; price: number; roomKw: number }[] = [];
     for (let t = from; t < to; t += SLOT_MS) {
-      slots.push({ t, price: ratePlanPeriodAt(rate, DateTime.fromMillis(t, { zone })).price, roomKw: Math.max(0, depot.serviceLimitKw - building(t)) });
+      slots.push({ t, price: ratePlanPeriodAt(rate, DateTime.fromMillis(t, { zone })).price, roomKw: Math.max(0, depot.serviceLimitKw - buildingKwAt(depot.otherLoadKw, t, zone)) });
     }
     const gridKwh = next.day.kwh / CHARGER_EFFICIENCY;
     nights.push({
