@@ -1,4 +1,4 @@
-import { and, asc, eq, gte, lt, lte, sql } from 'drizzle-orm';
+import { and, asc, eq, gte, lt, sql } from 'drizzle-orm';
 import { DateTime } from 'luxon';
 import { planResultSchema, type MonthCosts, type PlanCosts, type PlanResult, type RatePlanDefinition } from '@nightyard/contracts';
 import { computeBill, ratePlanPeriodAt, type Bill, type IntervalDemand } from '@nightyard/scheduling';
@@ -9,7 +9,8 @@ import type { AuthUser } from '../auth/auth-user';
 import { depotOf } from '../depots/depot-access';
 import { prepared } from '../db/prepared';
 import { billingPeriodOf, ratePlanOn } from './billing-period';
-import { MonthCostsCache, monthInputsVersion } from './month-cache';
+import { MonthCostsCache, monthInputs } from './month-cache';
+import { guessDepot, rememberDepot } from '../depots/depot-guess';
 import { buildingKwAt, forecastNights } from './month-forecast';
 
 const SLOT_MS = 15 * 60_000;
@@ -292,20 +293,25 @@ function soFarOf(base: PeriodBase, depot: Depot, period: Period, nowMs: number) 
   return value;
 }
 
-const schoolDaysQuery = (db: Db, name: string) => db
-  .selectDistinct({ date: runs.serviceDate })
-  .from(runs)
-  .where(and(eq(runs.depotId, sql.placeholder('depotId')), gte(runs.serviceDate, sql.placeholder('from')), lt(runs.serviceDate, sql.placeholder('to'))))
-  .prepare(name);
-
-/** Miles as driven (runs back at the depot by now), else the energy used over the bus's kWh per mile. */
-const milesQuery = (db: Db, name: string) => db
-  .select({ miles: sql<number>`coalesce(sum(coalesce(${runs.miles}, coalesce(${runs.kwh}, 0) / ${buses.kwhPerMile})), 0)`.mapWith(Number) })
-  .from(runs)
-  .innerJoin(buses, eq(buses.id, runs.busId))
-  .where(and(eq(runs.depotId, sql.placeholder('depotId')), gte(runs.serviceDate, sql.placeholder('from')), lt(runs.serviceDate, sql.placeholder('to')),
-    lte(runs.pullIn, sql.placeholder('now'))))
-  .prepare(name);
+/**
+ * The caller's depot, its billing period holding `date` and that period's inputs, in one round
+ * trip: the period is guessed from the depot as last read and checked against the row the query
+ * returns (a depot whose zone or billing day changed is asked again, with the right period).
+ */
+async function monthInputsOf(db: Db, caller: AuthUser, depotId: string, date: string, now: Date) {
+  let guess: { timezone: string; billingStartDay: number } = guessDepot(depotId) ?? await depotOf(db, caller, depotId);
+  for (;;) {
+    const period = billingPeriodOf(date, guess.billingStartDay, guess.timezone);
+    const found = await monthInputs(db, caller.organisationId, depotId, {
+      plansFrom: period.start.minus({ days: 4 }).toISODate()!, periodStart: period.start.toISODate()!, periodEnd: period.end.toISODate()!,
+      fromAt: period.start.toJSDate(), toAt: period.end.toJSDate(), now,
+    });
+    if (!found) throw notFound('That depot');
+    rememberDepot(found.depot);
+    if (found.depot.timezone === guess.timezone && found.depot.billingStartDay === guess.billingStartDay) return { ...found, period };
+    guess = found.depot;
+  }
+}
 
 /**
  * The billing period's costs: every 15-minute interval takes the metered value where one was
@@ -317,24 +323,11 @@ export async function monthCosts(
   db: Db, caller: AuthUser, depotId: string, date: string, now: Date, mpg = DIESEL_BUS_MPG,
   cache: MonthCostsCache<PeriodBase> | null = monthCostsCache,
 ): Promise<MonthCosts> {
-  const depot = await depotOf(db, caller, depotId);
-  const zone = depot.timezone;
-  const period = billingPeriodOf(date, depot.billingStartDay, zone);
+  const inputs = await monthInputsOf(db, caller, depotId, date, now);
+  const { depot, period, serviceDays, miles } = inputs;
   const periodStart = period.start.toISODate()!;
   const periodEnd = period.end.toISODate()!;
-
-  // Runs change without a version to compare, and the miles count the runs driven by now: both
-  // are read each time, beside the version.
-  const [days, milesRows, version] = await Promise.all([
-    prepared(db, 'month_school_days', schoolDaysQuery).execute({ depotId, from: periodStart, to: periodEnd }),
-    prepared(db, 'month_miles_driven', milesQuery).execute({ depotId, from: periodStart, to: periodEnd, now: now.toISOString() }),
-    cache
-      ? monthInputsVersion(db, depot, {
-        plansFrom: period.start.minus({ days: 4 }).toISODate()!, plansTo: periodEnd, periodStart,
-        fromAt: period.start.toJSDate(), toAt: period.end.toJSDate(),
-      })
-      : undefined,
-  ]);
+  const version = cache ? inputs.version : undefined;
   const key = `${depot.id}|${periodStart}`;
   let base = cache && version ? cache.get(key, version) : undefined;
   if (!base) {
@@ -343,7 +336,6 @@ export async function monthCosts(
   }
   const { monthToDate, peaks } = soFarOf(base, depot, period, now.getTime());
 
-  const miles = milesRows[0]?.miles ?? 0;
   const gallons = miles / mpg;
   return {
     currency: base.rate.definition.currency,
@@ -360,7 +352,7 @@ export async function monthCosts(
       actualIntervals: base.series.filter((s) => s.source === 'actual').length,
       plannedNights: base.nights.length,
       forecastNights: base.forecast.length,
-      schoolNightsWithoutPlan: days.filter((d) => !base.plannedDates.has(d.date)).length,
+      schoolNightsWithoutPlan: serviceDays.filter((d) => !base.plannedDates.has(d)).length,
     },
     emissions: {
       miles: round2(miles), dieselMpg: mpg, dieselGallonsAvoided: round2(gallons), co2KgAvoided: round2(gallons * DIESEL_CO2_KG_PER_GALLON),

@@ -1,5 +1,7 @@
-import type { Pool } from 'pg';
+import { and, eq, getTableColumns, sql } from 'drizzle-orm';
 import type { Db } from '../db/client';
+import { prepared } from '../db/prepared';
+import { depots } from '../db/schema';
 
 /**
  * Remembers the heavy part of a billing period's costs (the bills over ~3,000 intervals) per
@@ -39,43 +41,76 @@ export class MonthCostsCache<T> {
   }
 }
 
-/**
- * The version of everything a period's costs are computed from, in one query: the published
- * plans of its nights (a published plan never changes; a revision is a new row), the meter
- * readings and imports, the runs (the forecast's service calendar), the peaks entered or measured so far, the rate plan that applies (its
- * row's xmin changes with every update of its definition), and the depot's own settings.
- * A named statement: PostgreSQL plans it once per connection, not on every request.
- */
-const VERSION_QUERY = {
-  name: 'month-costs-inputs-version',
-  text: `
-    select concat_ws('|',
-      coalesce((select string_agg(id::text, ',' order by id) from plans
-        where depot_id = $1 and state = 'published' and service_date >= $2 and service_date < $3), '-'),
-      (select count(*) || ':' || coalesce(sum(kwh), 0) || ':' || coalesce(sum(minutes), 0) from meter_intervals
-        where depot_id = $1 and starts_at >= $4 and starts_at < $5),
-      (select count(*) || ':' || coalesce(max(created_at)::text, '') from meter_imports where depot_id = $1),
-      coalesce((select billing_period_start || ':' || facility_kw || ':' || periods_kw::text || ':' || updated_at from billing_peaks
-        where depot_id = $1), '-'),
-      (select count(*) || ':' || coalesce(max(created_at)::text, '') from runs
-        where depot_id = $1 and service_date >= ($2::date - 24) and service_date < ($3::date + 7)),
-      coalesce((select r.id || ':' || r.xmin || ':' || d.effective_from || ':' || d.xmin from depot_rate_plans d
-        join rate_plans r on r.id = d.rate_plan_id
-        where d.depot_id = $1 and d.effective_from <= $6 order by d.effective_from desc limit 1), '-')
-    ) as v`,
-};
+const p = (name: string) => sql.placeholder(name);
+// Qualified by hand: in a one-table select Drizzle writes a column bare, and inside the
+// subqueries below a bare "id" would be the subquery's own.
+const depotIdColumn = sql.raw('"depots"."id"');
 
-export async function monthInputsVersion(
-  db: Db,
-  depot: { id: string; timezone: string; billingStartDay: number; otherLoadKw: number[]; serviceLimitKw: number },
-  window: { plansFrom: string; plansTo: string; periodStart: string; fromAt: Date; toAt: Date },
-): Promise<string> {
-  // Drizzle keeps the pg pool it was made with as $client; a named statement is a pg feature.
-  const client = (db as unknown as { $client: Pool }).$client;
-  const result = await client.query<{ v: string | null }>({
-    ...VERSION_QUERY,
-    values: [depot.id, window.plansFrom, window.plansTo, window.fromAt.toISOString(), window.toAt.toISOString(), window.periodStart],
+/**
+ * The version of everything a period's costs are computed from: the published plans of its
+ * nights (a published plan never changes; a revision is a new row), the meter readings and
+ * imports, the runs (the forecast's service calendar), the peaks entered or measured so far, the
+ * rate plan that applies (its row's xmin changes with every update of its definition); the
+ * depot's own settings are added from its row.
+ */
+const inputsVersion = sql<string>`concat_ws('|',
+  coalesce((select string_agg(id::text, ',' order by id) from plans
+    where depot_id = ${depotIdColumn} and state = 'published' and service_date >= ${p('plansFrom')} and service_date < ${p('periodEnd')}), '-'),
+  (select count(*) || ':' || coalesce(sum(kwh), 0) || ':' || coalesce(sum(minutes), 0) from meter_intervals
+    where depot_id = ${depotIdColumn} and starts_at >= ${p('fromAt')} and starts_at < ${p('toAt')}),
+  (select count(*) || ':' || coalesce(max(created_at)::text, '') from meter_imports where depot_id = ${depotIdColumn}),
+  coalesce((select billing_period_start || ':' || facility_kw || ':' || periods_kw::text || ':' || updated_at from billing_peaks
+    where depot_id = ${depotIdColumn}), '-'),
+  (select count(*) || ':' || coalesce(max(created_at)::text, '') from runs
+    where depot_id = ${depotIdColumn} and service_date >= (${p('plansFrom')}::date - 24) and service_date < (${p('periodEnd')}::date + 7)),
+  coalesce((select r.id || ':' || r.xmin || ':' || d.effective_from || ':' || d.xmin from depot_rate_plans d
+    join rate_plans r on r.id = d.rate_plan_id
+    where d.depot_id = ${depotIdColumn} and d.effective_from <= ${p('periodStart')} order by d.effective_from desc limit 1), '-'))`;
+
+/**
+ * Everything a costs-month request reads before its (remembered) bills, in one round trip: the
+ * caller's depot, the inputs' version, the period's service days, and the miles driven by now
+ * (as driven, else the energy used over the bus's kWh per mile). The hottest finance page asks
+ * on every load; each extra query is a round trip and a write to the database's socket.
+ * A named statement: PostgreSQL plans it once per connection.
+ */
+const monthInputsQuery = (db: Db, name: string) => db
+  .select({
+    depot: getTableColumns(depots),
+    version: inputsVersion,
+    serviceDays: sql<string[]>`coalesce((select array_agg(distinct r.service_date::text) from runs r
+      where r.depot_id = ${depotIdColumn} and r.service_date >= ${p('periodStart')} and r.service_date < ${p('periodEnd')}), '{}'::text[])`,
+    miles: sql<number>`(select coalesce(sum(coalesce(r.miles, coalesce(r.kwh, 0) / b.kwh_per_mile)), 0) from runs r
+      join buses b on b.id = r.bus_id
+      where r.depot_id = ${depotIdColumn} and r.service_date >= ${p('periodStart')} and r.service_date < ${p('periodEnd')}
+        and r.pull_in <= ${p('now')})`.mapWith(Number),
+  })
+  .from(depots)
+  .where(and(eq(depots.id, p('depotId')), eq(depots.organisationId, p('organisationId'))))
+  .prepare(name);
+
+export interface MonthInputsWindow {
+  /** Four days before the period: a night that began then may still fall in it. */
+  plansFrom: string;
+  periodStart: string;
+  periodEnd: string;
+  fromAt: Date;
+  toAt: Date;
+  now: Date;
+}
+
+/** The caller's depot with the period's inputs, or null when the depot is not theirs. */
+export async function monthInputs(db: Db, organisationId: string, depotId: string, window: MonthInputsWindow) {
+  const [row] = await prepared(db, 'month_costs_inputs', monthInputsQuery).execute({
+    depotId, organisationId, plansFrom: window.plansFrom, periodStart: window.periodStart, periodEnd: window.periodEnd,
+    fromAt: window.fromAt.toISOString(), toAt: window.toAt.toISOString(), now: window.now.toISOString(),
   });
-  const row = result.rows[0];
-  return `${depot.timezone}|${depot.billingStartDay}|${depot.serviceLimitKw}|${JSON.stringify(depot.otherLoadKw)}|${row?.v ?? ''}`;
+  if (!row) return null;
+  const { depot } = row;
+  return {
+    depot,
+    version: `${depot.timezone}|${depot.billingStartDay}|${depot.serviceLimitKw}|${JSON.stringify(depot.otherLoadKw)}|${row.version}`,
+    serviceDays: row.serviceDays,
+    miles: row.miles,
+  };
 }

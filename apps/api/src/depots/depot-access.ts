@@ -3,6 +3,7 @@ import type { Db } from '../db/client';
 import { prepared } from '../db/prepared';
 import { depots } from '../db/schema';
 import { notFound } from '../http/errors';
+import { rememberDepot } from './depot-guess';
 import type { AuthUser } from '../auth/auth-user';
 
 // Nearly every depot route asks this first.
@@ -16,5 +17,6 @@ const depotQuery = (db: Db, name: string) => db
 export async function depotOf(db: Db, caller: AuthUser, depotId: string) {
   const [depot] = await prepared(db, 'depot_of', depotQuery).execute({ depotId, organisationId: caller.organisationId });
   if (!depot) throw notFound('That depot');
+  rememberDepot(depot);
   return depot;
 }

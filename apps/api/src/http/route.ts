@@ -5,6 +5,7 @@ import { errorBodySchema, hasAnyRole, type Role } from '@nightyard/contracts';
 import { forbidden, unauthenticated } from './errors';
 import { idempotencyKeyOf, requestHash, type IdempotencyStore } from './idempotency';
 import { parseOrThrow } from './validate';
+import { isChecked } from './checked-answer';
 import type { AuthUser } from '../auth/auth-user';
 
 type Method = 'get' | 'post' | 'patch' | 'put' | 'delete';
@@ -91,7 +92,7 @@ export class ApiRoutes {
       const key = spec.idempotent ? idempotencyKeyOf(req.headers['idempotency-key']) : undefined;
       const execute = async () => {
         const result = await handler({ body, query, params, user: user as AuthUser, req, res });
-        return { status, body: status === 204 ? null : spec.response ? spec.response.parse(result) : result };
+        return { status, body: status === 204 ? null : spec.response && !isChecked(result) ? spec.response.parse(result) : result };
       };
       let answer: { status: number; body: unknown };
       if (key) {

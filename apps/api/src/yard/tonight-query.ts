@@ -2,7 +2,7 @@ import { aliasedTable, and, eq, getTableColumns, sql } from 'drizzle-orm';
 import type { Tonight } from '@nightyard/contracts';
 import type { Db } from '../db/client';
 import { prepared } from '../db/prepared';
-import { plans, shiftAcknowledgements, users, yardConfirmations, yardReports } from '../db/schema';
+import { depots, plans, shiftAcknowledgements, users, yardConfirmations, yardReports } from '../db/schema';
 
 const creator = aliasedTable(users, 'creator');
 const publisher = aliasedTable(users, 'publisher');
@@ -22,12 +22,14 @@ interface ReportRow {
 }
 
 /**
- * Tonight's published plan with everything the yard sees beside it (the caller's shift
- * acknowledgement, the night's reports and confirmations) in one round trip: the Yard asks on
- * every page load and refresh, and each extra query is a write to the database's socket.
+ * The caller's depot and its night's published plan with everything the yard sees beside it (the
+ * caller's shift acknowledgement, the night's reports and confirmations) in one round trip: the
+ * Yard asks on every page load and refresh, and each extra query is a write to the database's
+ * socket. The plan columns are null when none is published.
  */
 const tonightQuery = (db: Db, name: string) => db
   .select({
+    depot: getTableColumns(depots),
     plan: planMeta,
     createdBy: creator.name,
     publishedBy: publisher.name,
@@ -49,20 +51,30 @@ const tonightQuery = (db: Db, name: string) => db
       left join ${users} confirmer on confirmer.id = c.confirmed_by
       where c.depot_id = ${depotId} and c.service_date = ${serviceDate}), '[]'::json)`,
   })
-  .from(plans)
+  .from(depots)
+  .leftJoin(plans, and(eq(plans.depotId, depots.id), eq(plans.serviceDate, serviceDate), eq(plans.state, 'published')))
   .leftJoin(creator, eq(creator.id, plans.createdBy))
   .leftJoin(publisher, eq(publisher.id, plans.publishedBy))
-  .where(and(eq(plans.depotId, depotId), eq(plans.serviceDate, serviceDate), eq(plans.state, 'published')))
+  .where(and(eq(depots.id, depotId), eq(depots.organisationId, sql.placeholder('organisationId'))))
   .prepare(name);
 
-/** The published plan of a depot's night with the yard's side of it, or null when none is published. */
-export async function publishedNight(db: Db, night: { depotId: string; serviceDate: string }, userId: string) {
-  const [row] = await prepared(db, 'tonight_published_night', tonightQuery).execute({ ...night, userId });
+/**
+ * The caller's depot (null when it is not theirs) with the published plan of one of its nights
+ * and the yard's side of it (plan null when none is published).
+ */
+export async function publishedNight(db: Db, night: { depotId: string; serviceDate: string }, caller: { id: string; organisationId: string }) {
+  const [row] = await prepared(db, 'tonight_published_night', tonightQuery)
+    .execute({ ...night, userId: caller.id, organisationId: caller.organisationId });
   if (!row) return null;
-  return {
-    ...row,
-    // JSON carries instants as text: the same instants as Dates, as the other queries give them.
-    confirmations: new Map(row.confirmations.map((c) => [c.key, { at: new Date(c.at), by: c.by, outcome: c.outcome }])),
-    reports: row.reports.map((r) => ({ ...r, reportedAt: new Date(r.reportedAt).toISOString() })),
-  };
+  const found = row.plan
+    ? {
+      plan: row.plan, createdBy: row.createdBy, publishedBy: row.publishedBy, acknowledged: row.acknowledged,
+      /** What the yard has said of the night so far, as read: equal stamps, equal steps. */
+      stamp: JSON.stringify([row.reports, row.confirmations]),
+      // JSON carries instants as text: the same instants as Dates, as the other queries give them.
+      confirmations: new Map(row.confirmations.map((c) => [c.key, { at: new Date(c.at), by: c.by, outcome: c.outcome }])),
+      reports: row.reports.map((r) => ({ ...r, reportedAt: new Date(r.reportedAt).toISOString() })),
+    }
+    : null;
+  return { depot: row.depot, night: found };
 }

@@ -1,7 +1,7 @@
 import { aliasedTable, and, eq, getTableColumns, sql } from 'drizzle-orm';
 import { DateTime } from 'luxon';
 import {
-  planResultSchema, type PlanResult, type Tonight, type YardReport, type YardReportResult, type YardStep,
+  planResultSchema, tonightSchema, type PlanResult, type Tonight, type YardReport, type YardReportResult, type YardStep,
 } from '@nightyard/contracts';
 import { parseScenario, ReplanStateError, type Plan, type ScenarioInput } from '@nightyard/scheduling';
 import type { Db } from '../db/client';
@@ -10,13 +10,15 @@ import { chargers, depots, plans, shiftAcknowledgements, users, yardConfirmation
 import { DomainError, conflict, notFound } from '../http/errors';
 import type { AuthUser } from '../auth/auth-user';
 import { depotOf } from '../depots/depot-access';
+import { guessDepot, rememberDepot } from '../depots/depot-guess';
+import { markChecked } from '../http/checked-answer';
 import type { Mailer } from '../mail/mailer';
 import { nightMailLink } from '../mail/links';
 import { planRevisedMail } from '../mail/templates';
 import { nightStaff } from '../plans/night-staff';
 import { comparePlans, planDetailOf } from '../plans/plans-service';
 import { runInPool } from '../workers/pool';
-import { LATE, stepsDueSoon, yardSteps, type StepConfirmation, type StepContext } from './yard-steps';
+import { LATE, OVERDUE_AFTER_MS, stepsDueSoon, yardSteps, type StepConfirmation, type StepContext } from './yard-steps';
 import { mergeReplan, stopSessions, type SessionStop } from '../plans/night-in-progress';
 import { nightOfDepot } from '../night/depot-night';
 import { publishedNight } from './tonight-query';
@@ -113,13 +115,50 @@ export async function confirmedPlugged(db: Db, depotId: string, serviceDate: str
 }
 
 export async function tonight(db: Db, caller: AuthUser, depotId: string, now: Date): Promise<Tonight> {
-  // Three round trips at most (the caller's depot, the night's run times when not remembered, the
-  // night itself): the Yard and Tonight ask on every load and refresh.
-  const depot = await depotOf(db, caller, depotId);
+  // One round trip when the depot's zone is known (the depot with the night's plan, checked
+  // against the zone guessed), two on the first ask: the Yard and Tonight ask on every load and
+  // refresh. The night's run times are remembered per depot and day.
+  let zone = guessDepot(depotId)?.timezone ?? (await depotOf(db, caller, depotId)).timezone;
+  for (;;) {
+    const { tonight: night } = await nightOfDepot(db, { id: depotId, timezone: zone }, now);
+    const answer = await publishedNight(db, { depotId, serviceDate: night.serviceDate }, caller);
+    if (!answer) throw notFound('That depot');
+    rememberDepot(answer.depot);
+    if (answer.depot.timezone === zone) return tonightOf(db, answer.depot, answer.night, now);
+    zone = answer.depot.timezone;
+  }
+}
+
+type NightFound = NonNullable<Awaited<ReturnType<typeof publishedNight>>>['night'];
+
+/**
+ * Tonight's answers as last computed, per depot and acknowledgement. Steps depend on the instant
+ * only through "overdue" (ten minutes past a step's time), so an answer holds, with only its
+ * instant renewed, from when it was computed until the next upcoming step turns overdue, while
+ * the plan, the depot's name and zone and what the yard has said (reports, confirmations) are
+ * as they were. Each request still reads those from the database, so nothing here goes stale.
+ */
+const tonightAnswers = new Map<string, { key: string; fromMs: number; untilMs: number; answer: Tonight }>();
+const MAX_TONIGHT_ANSWERS = 200;
+
+async function tonightOf(db: Db, depot: { id: string; name: string; timezone: string }, found: NightFound, now: Date): Promise<Tonight> {
   const base = { depot: { id: depot.id, name: depot.name, timezone: depot.timezone }, now: now.toISOString() };
-  const { tonight: night } = await nightOfDepot(db, depot, now);
-  const found = await publishedNight(db, { depotId, serviceDate: night.serviceDate }, caller.id);
   if (!found) return { ...base, plan: null, steps: [], acknowledged: false, reports: [] };
+  const slot = `${depot.id}|${found.acknowledged}`;
+  const key = `${found.plan.id}|${depot.name}|${depot.timezone}|${found.stamp}`;
+  const nowMs = now.getTime();
+  const known = tonightAnswers.get(slot);
+  if (known && known.key === key && known.fromMs <= nowMs && nowMs < known.untilMs) return markChecked({ ...known.answer, now: base.now });
+
+  const answer = tonightSchema.parse(await computeTonight(db, base, depot.timezone, found));
+  const untilMs = Math.min(Infinity, ...answer.steps.filter((s) => s.status === 'upcoming').map((s) => Date.parse(s.at) + OVERDUE_AFTER_MS));
+  tonightAnswers.delete(slot);
+  tonightAnswers.set(slot, { key, fromMs: nowMs, untilMs, answer });
+  while (tonightAnswers.size > MAX_TONIGHT_ANSWERS) tonightAnswers.delete(tonightAnswers.keys().next().value!);
+  return markChecked(answer);
+}
+
+async function computeTonight(db: Db, base: Pick<Tonight, 'depot' | 'now'>, zone: string, found: NonNullable<NightFound>): Promise<Tonight> {
   const { plan, createdBy, publishedBy, acknowledged, reports, confirmations } = found;
   const documents = await documentsOf(db, plan.id);
   // The chargers reported out tonight, from the same reports: the steps stop on them at that instant.
@@ -130,7 +169,7 @@ export async function tonight(db: Db, caller: AuthUser, depotId: string, now: Da
   return {
     ...base,
     plan: planDetailOf(plan, createdBy, publishedBy, documents.result, documents.scenario),
-    steps: yardSteps(documents.result, now, confirmations, { zone: depot.timezone, chargersOut }),
+    steps: yardSteps(documents.result, new Date(base.now), confirmations, { zone, chargersOut }),
     acknowledged,
     reports,
   };

@@ -1,0 +1,22 @@
+import type { depots } from '../db/schema';
+
+type DepotRow = typeof depots.$inferSelect;
+
+/**
+ * The depot rows last read, per id, for the hottest routes (Tonight, the costs month) to guess
+ * the depot's zone and billing day before their one query. The guess only shapes the query: the
+ * same query reads the depot itself (scoped to the caller's organisation), and the route checks
+ * the row against its guess and asks again when they differ, so nothing here can go stale.
+ */
+const lastSeen = new Map<string, DepotRow>();
+const MAX_DEPOTS = 500;
+
+export function rememberDepot(depot: DepotRow): void {
+  lastSeen.delete(depot.id);
+  lastSeen.set(depot.id, depot);
+  while (lastSeen.size > MAX_DEPOTS) lastSeen.delete(lastSeen.keys().next().value!);
+}
+
+export function guessDepot(depotId: string): DepotRow | undefined {
+  return lastSeen.get(depotId);
+}
