@@ -38,6 +38,8 @@ export interface BuiltApp {
 export function createApp(deps: AppDeps): BuiltApp {
   const app = express();
   app.disable('x-powered-by');
+  // API answers are never kept (no-store): an ETag would only cost a hash of every body.
+  app.disable('etag');
   app.set('trust proxy', 'loopback');
   app.use(
     helmet({

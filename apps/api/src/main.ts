@@ -2,6 +2,7 @@ import path from 'node:path';
 import { sql } from 'drizzle-orm';
 import { createApp } from './app';
 import { loadConfig, wantsDemoSeed } from './config';
+import { pino } from 'pino';
 import { createLogger } from './logging';
 import { installProcessGuards } from './process-guards';
 import { createDb, createPool } from './db/client';
@@ -20,7 +21,9 @@ const config = loadConfig();
 // The browser tests move the clock from spec to spec; nothing else can (see dev/test-control-routes).
 const testControl = config.NODE_ENV === 'test' && process.env.NIGHTYARD_TEST_CONTROL === '1' ? adjustableClock(clockFromEnv()) : null;
 const clock = testControl?.clock ?? clockFromEnv();
-const log = createLogger({ level: config.LOG_LEVEL, service: 'nightyard-api' });
+// Written off the request thread (a log line per request is a write to stdout); pino flushes
+// what is left when the process exits, the fatal line of an uncaught exception included.
+const log = createLogger({ level: config.LOG_LEVEL, service: 'nightyard-api' }, pino.destination({ dest: 1, sync: false }));
 installProcessGuards(log);
 // Paths come from the environment or the working directory, never from this file's location,
 // so the same code runs from source (tsx) and from the bundle in dist/.

@@ -133,6 +133,7 @@ function comparedNight(result: PlanResult, fromMs: number, toMs: number) {
 interface PeriodBase {
   rate: { name: string; definition: RatePlanDefinition };
   series: SourcedInterval[];
+  actualIntervals: number;
   nights: MonthCosts['nights'];
   savings: MonthCosts['savings'];
   forecast: MonthCosts['forecast'];
@@ -146,6 +147,7 @@ interface PeriodBase {
 
 /** One per process; exported so tests can compare against a fresh computation. */
 export const monthCostsCache = new MonthCostsCache<PeriodBase>();
+const periodsComputing = new Map<string, Promise<PeriodBase>>();
 export const newMonthCostsCache = () => new MonthCostsCache<PeriodBase>();
 
 async function periodBase(db: Db, depot: Depot, period: Period): Promise<PeriodBase> {
@@ -249,21 +251,35 @@ async function periodBase(db: Db, depot: Depot, period: Period): Promise<PeriodB
   };
   const [entered] = await db.select().from(billingPeaks).where(eq(billingPeaks.depotId, depot.id));
   return {
-    rate, series, nights, savings, plannedDates, projected, projectedRange, entered, soFar: new Map(),
+    rate, series, actualIntervals: series.filter((s) => s.source === 'actual').length, nights, savings, plannedDates, projected, projectedRange, entered, soFar: new Map(),
     forecast: forecast.map((n) => ({ date: n.date, needKwh: n.needKwh, basis: n.basis })),
   };
 }
 
 /** The month to date and its peaks: they change only when another interval has passed or another day begun. */
+/** How many intervals of a time-ordered series start before `ms`. */
+function sortedIndex(series: readonly { startMs: number }[], ms: number): number {
+  let lo = 0;
+  let hi = series.length;
+  while (lo < hi) {
+    const mid = (lo + hi) >> 1;
+    if (series[mid]!.startMs < ms) lo = mid + 1;
+    else hi = mid;
+  }
+  return lo;
+}
+
 function soFarOf(base: PeriodBase, depot: Depot, period: Period, nowMs: number) {
   const zone = depot.timezone;
   const fromMs = period.start.toMillis();
   const toMs = period.end.toMillis();
-  const toDate = base.series.filter((s) => s.startMs < nowMs);
+  // The series runs in time order: the intervals begun by now are a prefix of it.
+  const begun = sortedIndex(base.series, nowMs);
   const elapsedDays = Math.min(period.days, Math.max(0, Math.ceil((Math.min(nowMs, toMs) - fromMs) / 86_400_000)));
-  const key = `${toDate.length}:${elapsedDays}`;
+  const key = `${begun}:${elapsedDays}`;
   const known = base.soFar.get(key);
   if (known) return known;
+  const toDate = base.series.slice(0, begun);
 
   const { rate, entered } = base;
   const monthToDate = computeBill(rate.definition, toDate, { zone, intervalMinutes: 15, days: elapsedDays });
@@ -331,8 +347,18 @@ export async function monthCosts(
   const key = `${depot.id}|${periodStart}`;
   let base = cache && version ? cache.get(key, version) : undefined;
   if (!base) {
-    base = await periodBase(db, depot, period);
-    if (cache && version) cache.set(key, version, base);
+    // Requests that miss together share one computation (a page opened by many at once).
+    const pendingKey = `${key}|${version ?? ''}`;
+    let pending = cache && version ? periodsComputing.get(pendingKey) : undefined;
+    if (!pending) {
+      pending = periodBase(db, depot, period);
+      if (cache && version) {
+        periodsComputing.set(pendingKey, pending);
+        pending.then((value) => cache.set(key, version, value), () => undefined)
+          .finally(() => periodsComputing.delete(pendingKey));
+      }
+    }
+    base = await pending;
   }
   const { monthToDate, peaks } = soFarOf(base, depot, period, now.getTime());
 
@@ -349,7 +375,7 @@ export async function monthCosts(
     peaks,
     nights: base.nights,
     sources: {
-      actualIntervals: base.series.filter((s) => s.source === 'actual').length,
+      actualIntervals: base.actualIntervals,
       plannedNights: base.nights.length,
       forecastNights: base.forecast.length,
       schoolNightsWithoutPlan: serviceDays.filter((d) => !base.plannedDates.has(d)).length,

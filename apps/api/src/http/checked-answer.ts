@@ -13,3 +13,16 @@ export function markChecked<T extends object>(answer: T): T {
 export function isChecked(answer: unknown): boolean {
   return typeof answer === 'object' && answer !== null && checked.has(answer);
 }
+
+/** JSON texts of checked answers, written once when remembered and sent as they are. */
+const texts = new WeakMap<object, string>();
+
+/** A checked answer whose JSON text is known already (it must be the answer's JSON.stringify). */
+export function markCheckedText<T extends object>(answer: T, text: string): T {
+  texts.set(answer, text);
+  return markChecked(answer);
+}
+
+export function checkedTextOf(answer: unknown): string | undefined {
+  return typeof answer === 'object' && answer !== null ? texts.get(answer) : undefined;
+}

@@ -5,7 +5,7 @@ import { errorBodySchema, hasAnyRole, type Role } from '@nightyard/contracts';
 import { forbidden, unauthenticated } from './errors';
 import { idempotencyKeyOf, requestHash, type IdempotencyStore } from './idempotency';
 import { parseOrThrow } from './validate';
-import { isChecked } from './checked-answer';
+import { checkedTextOf, isChecked } from './checked-answer';
 import type { AuthUser } from '../auth/auth-user';
 
 type Method = 'get' | 'post' | 'patch' | 'put' | 'delete';
@@ -105,7 +105,11 @@ export class ApiRoutes {
       }
       if (res.headersSent || res.writableEnded) return;
       if (answer.status === 204) res.status(204).end();
-      else res.status(answer.status).json(answer.body);
+      else {
+        const text = checkedTextOf(answer.body);
+        if (text === undefined) res.status(answer.status).json(answer.body);
+        else res.status(answer.status).type('json').send(text);
+      }
     };
     const chain = spec.access === 'public' ? [run] : [this.authenticate, run];
     this.router[spec.method](spec.path, ...chain);

@@ -11,7 +11,7 @@ import { DomainError, conflict, notFound } from '../http/errors';
 import type { AuthUser } from '../auth/auth-user';
 import { depotOf } from '../depots/depot-access';
 import { guessDepot, rememberDepot } from '../depots/depot-guess';
-import { markChecked } from '../http/checked-answer';
+import { markCheckedText } from '../http/checked-answer';
 import type { Mailer } from '../mail/mailer';
 import { nightMailLink } from '../mail/links';
 import { planRevisedMail } from '../mail/templates';
@@ -138,7 +138,7 @@ type NightFound = NonNullable<Awaited<ReturnType<typeof publishedNight>>>['night
  * the plan, the depot's name and zone and what the yard has said (reports, confirmations) are
  * as they were. Each request still reads those from the database, so nothing here goes stale.
  */
-const tonightAnswers = new Map<string, { key: string; fromMs: number; untilMs: number; answer: Tonight }>();
+const tonightAnswers = new Map<string, { key: string; fromMs: number; untilMs: number; answer: Tonight; text: { before: string; after: string } }>();
 const MAX_TONIGHT_ANSWERS = 200;
 
 async function tonightOf(db: Db, depot: { id: string; name: string; timezone: string }, found: NightFound, now: Date): Promise<Tonight> {
@@ -148,14 +148,22 @@ async function tonightOf(db: Db, depot: { id: string; name: string; timezone: st
   const key = `${found.plan.id}|${depot.name}|${depot.timezone}|${found.stamp}`;
   const nowMs = now.getTime();
   const known = tonightAnswers.get(slot);
-  if (known && known.key === key && known.fromMs <= nowMs && nowMs < known.untilMs) return markChecked({ ...known.answer, now: base.now });
+  if (known && known.key === key && known.fromMs <= nowMs && nowMs < known.untilMs) {
+    // The remembered JSON text with the instant put in (an ISO instant needs no escaping).
+    return markCheckedText({ ...known.answer, now: base.now }, `${known.text.before}${base.now}${known.text.after}`);
+  }
 
   const answer = tonightSchema.parse(await computeTonight(db, base, depot.timezone, found));
   const untilMs = Math.min(Infinity, ...answer.steps.filter((s) => s.status === 'upcoming').map((s) => Date.parse(s.at) + OVERDUE_AFTER_MS));
+  const json = JSON.stringify(answer);
+  // The answer's first key after the depot (whose text, escaped, cannot hold this).
+  const nowAt = json.indexOf(`"now":"${answer.now}"`) + '"now":"'.length;
+  if (nowAt < '"now":"'.length) throw new Error('Tonight\'s answer has no instant');
+  const text = { before: json.slice(0, nowAt), after: json.slice(nowAt + answer.now.length) };
   tonightAnswers.delete(slot);
-  tonightAnswers.set(slot, { key, fromMs: nowMs, untilMs, answer });
+  tonightAnswers.set(slot, { key, fromMs: nowMs, untilMs, answer, text });
   while (tonightAnswers.size > MAX_TONIGHT_ANSWERS) tonightAnswers.delete(tonightAnswers.keys().next().value!);
-  return markChecked(answer);
+  return markCheckedText(answer, json);
 }
 
 async function computeTonight(db: Db, base: Pick<Tonight, 'depot' | 'now'>, zone: string, found: NonNullable<NightFound>): Promise<Tonight> {
