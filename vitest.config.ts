@@ -10,6 +10,8 @@ const alias = {
 export default defineConfig({
   resolve: { alias },
   test: {
+    // Two files at a time; each API test worker has its own copy of the database (testing/test-env.ts).
+    maxWorkers: 2,
     projects: [
       {
         resolve: { alias },
@@ -27,8 +29,10 @@ export default defineConfig({
           environment: 'node',
           include: ['apps/api/**/*.spec.ts', 'tools/**/*.spec.ts'],
           globalSetup: ['apps/api/src/testing/global-setup.ts'],
-          // One database for the run: files share it, so they run one at a time.
-          fileParallelism: false,
+          // A worker keeps its modules from file to file: importing the API afresh for each file cost
+          // more than the tests themselves. Files own their data (their own organisation) and nothing
+          // is mocked, so what a module remembers (keyed by id) cannot leak between them.
+          isolate: false,
           testTimeout: 30_000,
           hookTimeout: 60_000,
         },

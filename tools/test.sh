@@ -40,7 +40,7 @@ export E2E_DATABASE_URL=postgres://postgres@127.0.0.1:$PGPORT/nightyard_e2e
 export NG_CLI_ANALYTICS=false
 
 # The production web build the browser tests need runs beside the API tests: those mostly wait
-# on PostgreSQL, one file at a time, so the second core is free for it.
+# on PostgreSQL (two files at a time, each worker on its own copy of the database).
 build_web_if_stale > .test-data/web-build.log 2>&1 &
 web_build=$!
 pids+=($web_build)

@@ -40,7 +40,10 @@ async function serviceDaysAround(db: Db, depotId: string, from: string, to: stri
     .select({ date: runs.serviceDate, pullOut: runs.pullOut, pullIn: runs.pullIn, miles: runs.miles, kwh: runs.kwh, perMile: buses.kwhPerMile })
     .from(runs)
     .innerJoin(buses, eq(buses.id, runs.busId))
-    .where(and(eq(runs.depotId, depotId), gte(runs.serviceDate, from), lt(runs.serviceDate, to)));
+    .where(and(eq(runs.depotId, depotId), gte(runs.serviceDate, from), lt(runs.serviceDate, to)))
+    // In a fixed order: the energy is a sum of fractions, and a sum in another order can differ
+    // in its last digit from one computation to the next.
+    .orderBy(runs.serviceDate, runs.id);
   const days = new Map<string, ServiceDay>();
   for (const r of rows) {
     const d = days.get(r.date) ?? { date: r.date, lastPullInMs: 0, firstPullOutMs: Infinity, kwh: 0 };
