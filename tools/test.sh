@@ -41,7 +41,10 @@ export NG_CLI_ANALYTICS=false
 
 # The production web build the browser tests need runs beside the API tests: those mostly wait
 # on PostgreSQL (two files at a time, each worker on its own copy of the database).
-build_web_if_stale > .test-data/web-build.log 2>&1 &
+# The types of the API, the engine, the tools and the browser tests are checked after it (the
+# web app's are checked by its build).
+{ build_web_if_stale && echo "== Types (tsc)" && npx tsc -p apps/api/tsconfig.json && npx tsc -p libs/scheduling/tsconfig.json \
+  && npx tsc -p tsconfig.checks.json; } > .test-data/web-build.log 2>&1 &
 web_build=$!
 pids+=($web_build)
 
@@ -54,7 +57,7 @@ npx ng test --watch=false
 echo "== Browser tests (Playwright, Debian's Chromium)"
 if ! wait "$web_build"; then
   cat .test-data/web-build.log
-  echo "The web build failed." >&2
+  echo "The web build or the type check failed." >&2
   exit 1
 fi
 cat .test-data/web-build.log
