@@ -1,4 +1,5 @@
 import { arrangeCharger, cloneAssignment, layoutCharger, plugMapOf, usablePower, type Assignment, type AssignmentHints } from './assignment.js';
+import { fitCrew } from './crew.js';
 import type { LiveLp, LpResult, Solver } from './highs-solver.js';
 import { buildChargeModel, plugUpper, type ChargeModel } from './lp-model.js';
 import type { PlugMap, Problem } from './problem.js';
@@ -204,6 +205,11 @@ export function localSearch(
     }
     for (const c of touched) arrangeCharger(problem, hints, trial, c);
     const buses = new Set<number>();
+    if (problem.yard) {
+      // Crew room is shared by the whole yard: a change on one charger can move hand-overs on any.
+      fitCrew(problem, trial);
+      for (const b of problem.buses) buses.add(b.index);
+    }
     for (const c of touched) for (const s of trial.sequence[c]!) buses.add(problem.stays[s]!.bus);
     buses.add(problem.stays[j]!.bus);
     for (const b of extra) buses.add(b);

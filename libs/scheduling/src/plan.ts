@@ -1,5 +1,6 @@
 import { initialAssignment, plugMapOf, type Assignment, type AssignmentHints } from './assignment.js';
 import { limitedBaseline, type Baseline, type BaselineKind } from './baseline.js';
+import { endIsFree, fitCrew, startIsFree, type Move } from './crew.js';
 import { explainShortfalls, type ShortReason } from './explain.js';
 import { loadSolver, type Solver } from './highs-solver.js';
 import { AssignedModel, localSearch } from './local-search.js';
@@ -25,6 +26,9 @@ export interface PlanSession {
   end: string;
   kwh: number;
   kw: number[];
+  /** Who plugs the bus in and who unplugs it: its driver on pulling in or out, or the crew. */
+  startMove: Move;
+  endMove: Move;
 }
 
 export interface PlanBus {
@@ -60,6 +64,8 @@ export interface Plan {
   solveMs: number;
   slots: { start: string; loadKw: number; price: number; limitKw: number }[];
   sessions: PlanSession[];
+  /** Plug-ins and unplugs the yard crew does (the sessions' `crew` ends within the horizon). */
+  crewMoves: number;
   buses: PlanBus[];
   savings: {
     energy: number;
@@ -194,6 +200,11 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
       ['sequence-best-least-cut', () => initialAssignment(problem, { ...hints, order: 'best', handover: 'least-cut' })],
     );
   }
+  // Every candidate is made one the yard crew can carry out before the LP judges it.
+  for (const cand of candidates) {
+    const make = cand[1];
+    cand[1] = () => fitCrew(problem, make());
+  }
   let start = candidates[0]![1]();
   let construction = candidates[0]![0];
   let timedOut = false;
@@ -225,7 +236,7 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
     else if (first.objective > target) {
       const power = sharedChargerPower(problem, solver, start);
       if (power) {
-        const other = rebalanced(problem, hints, start, power);
+        const other = fitCrew(problem, rebalanced(problem, hints, start, power));
         live.update(other, all);
         current = other;
         const res = live.solve();
@@ -305,10 +316,13 @@ function assemblePlan(
   for (const row of power) for (let t = 0; t < T; t++) charging[t] = charging[t]! + row[t]!;
   const cost = costLoad(problem.slots, charging, problem.tariff, dt);
 
-  // Sessions: one per continuous plug-in, trimmed to the slots with power (nobody needs to
-  // plug a bus in before its power starts or leave it after it ends).
+  // Sessions: one per continuous plug-in. Without crew rules each is trimmed to the slots with
+  // power (nobody needs to plug a bus in before its power starts or leave it after it ends);
+  // with them the plug-in and unplug stay where the crew was planned to make them, and a
+  // session without power is left out (one walk fewer).
   const sessions: PlanSession[] = [];
   let plugIns = 0;
+  let crewMoves = 0;
   for (const bus of problem.buses) {
     const row = plug[bus.index]!;
     const p = power[bus.index]!;
@@ -323,10 +337,21 @@ function assemblePlan(
       while (u < T && row[u] === c && !(u > t && problem.slots[u]!.startMs !== problem.slots[u - 1]!.endMs)) u++;
       let first = t;
       let last = u - 1;
-      while (first <= last && p[first]! <= 0) first++;
-      while (last >= first && p[last]! <= 0) last--;
+      if (problem.yard) {
+        let any = false;
+        for (let x = first; x <= last; x++) if (p[x]! > 0) any = true;
+        if (!any) last = first - 1;
+      } else {
+        while (first <= last && p[first]! <= 0) first++;
+        while (last >= first && p[last]! <= 0) last--;
+      }
       if (first <= last) {
         const kw = Array.from(p.subarray(first, last + 1));
+        const stay = bus.stays.find((st) => st.a <= first && first < st.d)!;
+        const startMove: Move = startIsFree(problem, stay, first) ? 'driver' : 'crew';
+        const endMove: Move = endIsFree(problem, stay, last + 1) ? 'driver' : 'crew';
+        if (startMove === 'crew') crewMoves++;
+        if (endMove === 'crew' && last + 1 < T) crewMoves++;
         sessions.push({
           bus: bus.id,
           charger: problem.chargers[c]!.id,
@@ -334,6 +359,8 @@ function assemblePlan(
           end: isoAt(problem.slots[last]!.endMs, zone),
           kwh: round(kw.reduce((a, v) => a + v * dt, 0)),
           kw,
+          startMove,
+          endMove,
         });
         plugIns++;
       }
@@ -392,6 +419,7 @@ function assemblePlan(
     solveMs: 0,
     slots: problem.slots.map((s, t) => ({ start: s.start, loadKw: round(charging[t]! + s.otherKw), price: s.price, limitKw: s.limitKw })),
     sessions,
+    crewMoves,
     buses: busOut,
     savings: {
       energy: round(baseline.energy - cost.energy),

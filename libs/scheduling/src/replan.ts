@@ -85,6 +85,18 @@ export async function replan(scenario: Scenario, state: ReplanState, options: Pl
     pinned[bus.stays[0]!.id] = index.get(chargerId)!;
   }
   problem.pinned = pinned;
+  // A bus that was at the depot before the cut-off and is not on a charger: plugging it in at
+  // the cut-off is a crew move, not its driver's on pulling in.
+  const arrivedEarlier = new Uint8Array(problem.stays.length);
+  const cutMs = problem.slots[0]!.startMs;
+  for (const bus of problem.buses) {
+    const original = scenario.buses.find((b) => b.id === bus.id)!;
+    const stay = bus.stays[0]!;
+    const before = original.stays.some((st) => localToMillis(st.arrive, scenario.timezone)! < cutMs && localToMillis(st.depart, scenario.timezone)! > cutMs);
+    const late = state.lateArrivals?.[bus.id] !== undefined && localToMillis(state.lateArrivals[bus.id]!, scenario.timezone)! >= cutMs;
+    if (before && !late && stay.arriveMs <= cutMs) arrivedEarlier[stay.id] = 1;
+  }
+  problem.arrivedEarlier = arrivedEarlier;
   const plan = planProblem(problem, solver, options, t0);
   return { ...plan, replan: { from: problem.slots[0]!.start, scenario: derived, outOfService, plugged, kept } };
 }

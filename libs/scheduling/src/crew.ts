@@ -1,0 +1,153 @@
+import type { Assignment } from './assignment.js';
+import type { Problem, Stay } from './problem.js';
+
+// The yard crew (scenario extension `yard`): every plug-in and unplug is a person walking to a
+// bus. A session lasts at least the minimum plug-in (or the whole stay when the stay is
+// shorter); with drivers plugging in, a session that starts in the stay's first slot or ends
+// with the stay needs no crew at that end; every other plug-in or unplug is a crew move, allowed
+// only in slots inside a crew window and at most so many per slot. A move at time T counts in the
+// slot that starts at T (an unplug at the end of slot t-1 counts in slot t).
+
+export type Move = 'driver' | 'crew';
+
+/** Is a plug-in of this stay at slot f done without the crew? */
+export function startIsFree(problem: Problem, stay: Stay, f: number): boolean {
+  if (f !== stay.a) return false;
+  if (problem.pinned && problem.pinned[stay.id]! >= 0) return true; // already on its charger
+  if (problem.arrivedEarlier?.[stay.id]) return false;
+  return problem.yard ? problem.yard.driversPlugIn : true;
+}
+
+/** Is an unplug of this stay at slot t (the end of slot t-1) done without the crew? */
+export function endIsFree(problem: Problem, stay: Stay, t: number): boolean {
+  if (t >= problem.T) return true; // after the horizon: not part of this plan
+  if (t !== stay.d) return false;
+  return problem.yard ? problem.yard.driversPlugIn : true;
+}
+
+/** Shortest window a stay may get, in slots (the whole stay when it is shorter than the minimum). */
+export function minWindow(problem: Problem, stay: Stay): number {
+  const len = stay.d - stay.a;
+  const min = problem.yard?.minSlots ?? 0;
+  return Math.max(1, len < min ? len : min);
+}
+
+/**
+ * Makes an assignment one the crew can carry out: each charger's hand-overs moved to the nearest
+ * slot where the crew has room for the moves they need and both sessions keep the minimum
+ * length; a stay whose hand-over fits nowhere is taken off that charger (the search may place it
+ * elsewhere). Capacity is taken charger by charger, in charger order, so the result is the same
+ * for the same input. Changes the assignment in place and returns it.
+ */
+export function fitCrew(problem: Problem, assignment: Assignment): Assignment {
+  const yard = problem.yard;
+  if (!yard) return assignment;
+  const { T } = problem;
+  const stays = problem.stays;
+  const used = new Int32Array(T + 1);
+  const room = (t: number): number => (t >= T || !yard.capacity ? Infinity : yard.capacity[t]! - used[t]!);
+  const take = (t: number) => {
+    if (t < T) used[t]!++;
+  };
+  const drop = (id: number) => {
+    assignment.chargerOf[id] = -1;
+    assignment.from[id] = 0;
+    assignment.to[id] = 0;
+  };
+  for (const charger of problem.chargers) {
+    const c = charger.index;
+    const kept: number[] = [];
+    let cur = -1;
+    for (const id of assignment.sequence[c]!) {
+      const s = stays[id]!;
+      const pinned = problem.pinned !== undefined && problem.pinned[id]! >= 0;
+      if (s.d <= s.a || (!pinned && assignment.to[id]! <= assignment.from[id]!) || !charger.available[Math.min(Math.max(assignment.from[id]!, s.a), T - 1)]) {
+        drop(id);
+        continue;
+      }
+      const minS = minWindow(problem, s);
+      if (cur < 0) {
+        // First session on the charger: the plug-in nearest the proposed one that the crew can do.
+        const wanted = assignment.from[id]!;
+        let best = -1;
+        for (let f = s.a; f <= s.d - minS; f++) {
+          if (!startIsFree(problem, s, f) && room(f) < 1) continue;
+          if (best < 0 || Math.abs(f - wanted) < Math.abs(best - wanted)) best = f;
+        }
+        if (best < 0) {
+          drop(id);
+          continue;
+        }
+        if (!startIsFree(problem, s, best)) take(best);
+        assignment.from[id] = best;
+        cur = id;
+        kept.push(id);
+        continue;
+      }
+      // Hand-over from the current stay p to s at slot h: p unplugged at min(h, p.d), s plugged
+      // in at max(h, s.a).
+      const p = stays[cur]!;
+      const fromP = assignment.from[cur]!;
+      const lo = Math.max(fromP + minWindow(problem, p), Math.min(p.d, s.a));
+      const hi = s.d - minS;
+      const wanted = assignment.to[cur]!;
+      let best = -1;
+      let bestKey = Infinity;
+      for (let h = lo; h <= hi; h++) {
+        const toP = Math.min(h, p.d);
+        const fromS = Math.max(h, s.a);
+        if (toP < fromP + minWindow(problem, p)) continue;
+        const unplug = endIsFree(problem, p, toP) ? 0 : 1;
+        const plug = startIsFree(problem, s, fromS) ? 0 : 1;
+        if (unplug && plug && toP === fromS) {
+          if (room(toP) < 2) continue;
+        } else {
+          if (unplug && room(toP) < 1) continue;
+          if (plug && room(fromS) < 1) continue;
+        }
+        const key = Math.abs(h - wanted) * 4 + unplug + plug;
+        if (key < bestKey) {
+          bestKey = key;
+          best = h;
+        }
+      }
+      if (best < 0 || pinned) {
+        // A stay already on its charger is never moved off it; it is first on the charger anyway.
+        if (pinned) {
+          cur = id;
+          kept.push(id);
+        } else drop(id);
+        continue;
+      }
+      const toP = Math.min(best, p.d);
+      const fromS = Math.max(best, s.a);
+      if (!endIsFree(problem, p, toP)) take(toP);
+      if (!startIsFree(problem, s, fromS)) take(fromS);
+      assignment.to[cur] = toP;
+      assignment.from[id] = fromS;
+      cur = id;
+      kept.push(id);
+    }
+    if (cur >= 0) {
+      // The last session ends with the stay if the driver unplugs; otherwise where the crew can.
+      const p = stays[cur]!;
+      const fromP = assignment.from[cur]!;
+      let best = -1;
+      for (let t = p.d; t >= fromP + minWindow(problem, p); t--) {
+        if (endIsFree(problem, p, t) || room(t) >= 1) {
+          best = t;
+          break;
+        }
+      }
+      if (best < 0) {
+        drop(cur);
+        kept.pop();
+      } else {
+        if (!endIsFree(problem, p, best)) take(best);
+        assignment.to[cur] = best;
+      }
+    }
+    assignment.sequence[c] = kept;
+  }
+  return assignment;
+}
