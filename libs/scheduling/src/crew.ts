@@ -39,115 +39,194 @@ export function minWindow(problem: Problem, stay: Stay): number {
  * elsewhere). Capacity is taken charger by charger, in charger order, so the result is the same
  * for the same input. Changes the assignment in place and returns it.
  */
-export function fitCrew(problem: Problem, assignment: Assignment): Assignment {
+export function fitCrew(problem: Problem, assignment: Assignment, energy?: Float64Array): Assignment {
   const yard = problem.yard;
   if (!yard) return assignment;
+  const used = new Int32Array(problem.T + 1);
+  const dropped: number[] = [];
+  const taken: number[][] = problem.chargers.map(() => []);
+  for (const charger of problem.chargers) {
+    const res = fitCharger(problem, assignment, charger.index, assignment.sequence[charger.index]!, used, false, energy);
+    taken[charger.index] = res.taken;
+    for (const id of res.dropped) dropped.push(id);
+  }
+  // A stay that fitted nowhere on its charger: another charger may take it where the crew has
+  // room (tried on the chargers with the fewest stays first, every place in their order).
+  for (const id of dropped) {
+    const stay = problem.stays[id]!;
+    if (problem.pinned && problem.pinned[id]! >= 0) continue;
+    const order = problem.chargers
+      .filter((c) => c.available[Math.min(stay.a, problem.T - 1)])
+      .map((c) => c.index)
+      .sort((x, y) => assignment.sequence[x]!.length - assignment.sequence[y]!.length || problem.chargers[y]!.maxKw - problem.chargers[x]!.maxKw || x - y);
+    let placed = false;
+    for (const c of order.slice(0, 12)) {
+      const seq = assignment.sequence[c]!;
+      for (const t of taken[c]!) used[t]!--;
+      for (let pos = 0; pos <= seq.length && !placed; pos++) {
+        if (seq.some((x) => problem.pinned && problem.pinned[x]! >= 0) && pos === 0) continue;
+        const trial = [...seq.slice(0, pos), id, ...seq.slice(pos)];
+        const saved = trial.map((x) => [assignment.from[x]!, assignment.to[x]!, assignment.chargerOf[x]!] as const);
+        assignment.from[id] = stay.a;
+        assignment.to[id] = stay.d;
+        const res = fitCharger(problem, assignment, c, trial, used, true, energy);
+        if (res.dropped.length === 0) {
+          for (const t of res.taken) used[t]!++;
+          taken[c] = res.taken;
+          assignment.chargerOf[id] = c;
+          placed = true;
+        } else {
+          trial.forEach((x, i) => {
+            assignment.from[x] = saved[i]![0];
+            assignment.to[x] = saved[i]![1];
+            assignment.chargerOf[x] = saved[i]![2];
+          });
+        }
+      }
+      if (placed) break;
+      for (const t of taken[c]!) used[t]!++;
+    }
+    if (!placed) {
+      assignment.chargerOf[id] = -1;
+      assignment.from[id] = 0;
+      assignment.to[id] = 0;
+    }
+  }
+  return assignment;
+}
+
+/**
+ * Fits one charger's stays, in order, to the crew's room (`used`: moves already taken per slot).
+ * Without `dryRun` it takes the moves into `used` and writes the charger's sequence; with it,
+ * only the windows are written and the caller decides. Returns the stays left out and the slots
+ * of the moves taken.
+ */
+function fitCharger(
+  problem: Problem, assignment: Assignment, c: number, sequence: number[], used: Int32Array, dryRun = false, energy?: Float64Array,
+): { dropped: number[]; taken: number[] } {
+  const yard = problem.yard!;
   const { T } = problem;
   const stays = problem.stays;
-  const used = new Int32Array(T + 1);
-  const room = (t: number): number => (t >= T || !yard.capacity ? Infinity : yard.capacity[t]! - used[t]!);
+  const charger = problem.chargers[c]!;
+  const local = new Int32Array(T + 1);
+  const taken: number[] = [];
+  const dropped: number[] = [];
+  const room = (t: number): number => (t >= T || !yard.capacity ? Infinity : yard.capacity[t]! - used[t]! - local[t]!);
   const take = (t: number) => {
-    if (t < T) used[t]!++;
+    if (t >= T) return;
+    local[t]!++;
+    taken.push(t);
   };
   const drop = (id: number) => {
+    dropped.push(id);
+    if (dryRun) return;
     assignment.chargerOf[id] = -1;
     assignment.from[id] = 0;
     assignment.to[id] = 0;
   };
-  for (const charger of problem.chargers) {
-    const c = charger.index;
-    const kept: number[] = [];
-    let cur = -1;
-    for (const id of assignment.sequence[c]!) {
-      const s = stays[id]!;
-      const pinned = problem.pinned !== undefined && problem.pinned[id]! >= 0;
-      if (s.d <= s.a || (!pinned && assignment.to[id]! <= assignment.from[id]!) || !charger.available[Math.min(Math.max(assignment.from[id]!, s.a), T - 1)]) {
+  const kept: number[] = [];
+  let cur = -1;
+  for (const id of sequence) {
+    const s = stays[id]!;
+    const pinned = problem.pinned !== undefined && problem.pinned[id]! >= 0;
+    if (s.d <= s.a || (!pinned && assignment.to[id]! <= assignment.from[id]!) || !charger.available[Math.min(Math.max(assignment.from[id]!, s.a), T - 1)]) {
+      drop(id);
+      continue;
+    }
+    const minS = minWindow(problem, s);
+    if (cur < 0) {
+      // First session on the charger: the plug-in nearest the proposed one that the crew can do.
+      const wanted = assignment.from[id]!;
+      let best = -1;
+      for (let f = s.a; f <= s.d - minS; f++) {
+        if (!startIsFree(problem, s, f) && room(f) < 1) continue;
+        if (best < 0 || Math.abs(f - wanted) < Math.abs(best - wanted)) best = f;
+      }
+      if (best < 0) {
         drop(id);
         continue;
       }
-      const minS = minWindow(problem, s);
-      if (cur < 0) {
-        // First session on the charger: the plug-in nearest the proposed one that the crew can do.
-        const wanted = assignment.from[id]!;
-        let best = -1;
-        for (let f = s.a; f <= s.d - minS; f++) {
-          if (!startIsFree(problem, s, f) && room(f) < 1) continue;
-          if (best < 0 || Math.abs(f - wanted) < Math.abs(best - wanted)) best = f;
-        }
-        if (best < 0) {
-          drop(id);
-          continue;
-        }
-        if (!startIsFree(problem, s, best)) take(best);
-        assignment.from[id] = best;
-        cur = id;
-        kept.push(id);
-        continue;
-      }
-      // Hand-over from the current stay p to s at slot h: p unplugged at min(h, p.d), s plugged
-      // in at max(h, s.a).
-      const p = stays[cur]!;
-      const fromP = assignment.from[cur]!;
-      const lo = Math.max(fromP + minWindow(problem, p), Math.min(p.d, s.a));
-      const hi = s.d - minS;
-      const wanted = assignment.to[cur]!;
-      let best = -1;
-      let bestKey = Infinity;
-      for (let h = lo; h <= hi; h++) {
-        const toP = Math.min(h, p.d);
-        const fromS = Math.max(h, s.a);
-        if (toP < fromP + minWindow(problem, p)) continue;
-        const unplug = endIsFree(problem, p, toP) ? 0 : 1;
-        const plug = startIsFree(problem, s, fromS) ? 0 : 1;
-        if (unplug && plug && toP === fromS) {
-          if (room(toP) < 2) continue;
-        } else {
-          if (unplug && room(toP) < 1) continue;
-          if (plug && room(fromS) < 1) continue;
-        }
-        const key = Math.abs(h - wanted) * 4 + unplug + plug;
-        if (key < bestKey) {
-          bestKey = key;
-          best = h;
-        }
-      }
-      if (best < 0 || pinned) {
-        // A stay already on its charger is never moved off it; it is first on the charger anyway.
-        if (pinned) {
-          cur = id;
-          kept.push(id);
-        } else drop(id);
-        continue;
-      }
-      const toP = Math.min(best, p.d);
-      const fromS = Math.max(best, s.a);
-      if (!endIsFree(problem, p, toP)) take(toP);
-      if (!startIsFree(problem, s, fromS)) take(fromS);
-      assignment.to[cur] = toP;
-      assignment.from[id] = fromS;
+      if (!startIsFree(problem, s, best)) take(best);
+      assignment.from[id] = best;
       cur = id;
       kept.push(id);
+      continue;
     }
-    if (cur >= 0) {
-      // The last session ends with the stay if the driver unplugs; otherwise where the crew can.
-      const p = stays[cur]!;
-      const fromP = assignment.from[cur]!;
-      let best = -1;
-      for (let t = p.d; t >= fromP + minWindow(problem, p); t--) {
-        if (endIsFree(problem, p, t) || room(t) >= 1) {
-          best = t;
-          break;
-        }
-      }
-      if (best < 0) {
-        drop(cur);
-        kept.pop();
+    // Hand-over from the current stay p to s at slot h: p unplugged at min(h, p.d), s plugged
+    // in at max(h, s.a).
+    const p = stays[cur]!;
+    const fromP = assignment.from[cur]!;
+    const lo = Math.max(fromP + minWindow(problem, p), Math.min(p.d, s.a));
+    const hi = s.d - minS;
+    const wanted = assignment.to[cur]!;
+    let best = -1;
+    let bestKey = Infinity;
+    for (let h = lo; h <= hi; h++) {
+      const toP = Math.min(h, p.d);
+      const fromS = Math.max(h, s.a);
+      if (toP < fromP + minWindow(problem, p)) continue;
+      const unplug = endIsFree(problem, p, toP) ? 0 : 1;
+      const plug = startIsFree(problem, s, fromS) ? 0 : 1;
+      if (unplug && plug && toP === fromS) {
+        if (room(toP) < 2) continue;
       } else {
-        if (!endIsFree(problem, p, best)) take(best);
-        assignment.to[cur] = best;
+        if (unplug && room(toP) < 1) continue;
+        if (plug && room(fromS) < 1) continue;
+      }
+      // First the energy the two windows cannot hold at full power (when the grid kWh each stay
+      // wants is known), then closeness to the proposed hand-over, then fewer moves.
+      let lack = 0;
+      if (energy) {
+        const slotKwh = (x: Stay) => Math.min(problem.buses[x.bus]!.maxKw, charger.maxKw) * problem.slotHours;
+        lack = Math.max(0, energy[p.id]! - slotKwh(p) * (toP - fromP)) + Math.max(0, energy[s.id]! - slotKwh(s) * (s.d - fromS));
+      }
+      const key = Math.round(lack * 100) * 1000 + Math.abs(h - wanted) * 4 + unplug + plug;
+      if (key < bestKey) {
+        bestKey = key;
+        best = h;
       }
     }
+    if (best < 0 || pinned) {
+      // A stay already on its charger is never moved off it; it is first on the charger anyway.
+      if (pinned) {
+        cur = id;
+        kept.push(id);
+      } else drop(id);
+      continue;
+    }
+    const toP = Math.min(best, p.d);
+    const fromS = Math.max(best, s.a);
+    if (!endIsFree(problem, p, toP)) take(toP);
+    if (!startIsFree(problem, s, fromS)) take(fromS);
+    assignment.to[cur] = toP;
+    assignment.from[id] = fromS;
+    cur = id;
+    kept.push(id);
+  }
+  if (cur >= 0) {
+    // The last session ends with the stay if the driver unplugs; otherwise where the crew can.
+    const p = stays[cur]!;
+    const fromP = assignment.from[cur]!;
+    let best = -1;
+    for (let t = p.d; t >= fromP + minWindow(problem, p); t--) {
+      if (endIsFree(problem, p, t) || room(t) >= 1) {
+        best = t;
+        break;
+      }
+    }
+    if (best < 0) {
+      drop(cur);
+      kept.pop();
+    } else {
+      if (!endIsFree(problem, p, best)) take(best);
+      assignment.to[cur] = best;
+    }
+  }
+  if (!dryRun) {
+    for (const t of taken) used[t]!++;
+    assignment.sequence[c] = kept;
+  } else if (dropped.length === 0) {
     assignment.sequence[c] = kept;
   }
-  return assignment;
+  return { dropped, taken };
 }

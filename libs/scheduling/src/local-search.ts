@@ -207,7 +207,7 @@ export function localSearch(
     const buses = new Set<number>();
     if (problem.yard) {
       // Crew room is shared by the whole yard: a change on one charger can move hand-overs on any.
-      fitCrew(problem, trial);
+      fitCrew(problem, trial, hints.energy);
       for (const b of problem.buses) buses.add(b.index);
     }
     for (const c of touched) for (const s of trial.sequence[c]!) buses.add(problem.stays[s]!.bus);

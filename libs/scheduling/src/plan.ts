@@ -203,7 +203,7 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
   // Every candidate is made one the yard crew can carry out before the LP judges it.
   for (const cand of candidates) {
     const make = cand[1];
-    cand[1] = () => fitCrew(problem, make());
+    cand[1] = () => fitCrew(problem, make(), hints.energy);
   }
   let start = candidates[0]![1]();
   let construction = candidates[0]![0];
@@ -236,7 +236,7 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
     else if (first.objective > target) {
       const power = sharedChargerPower(problem, solver, start);
       if (power) {
-        const other = fitCrew(problem, rebalanced(problem, hints, start, power));
+        const other = fitCrew(problem, rebalanced(problem, hints, start, power), hints.energy);
         live.update(other, all);
         current = other;
         const res = live.solve();
