@@ -80,7 +80,11 @@ for (const [n, c] of quick ? [[40, 10]] : [[40, 10], [40, 20], [100, 25]]) {
     const busiest = [...new Set(plan.sessions.map((s) => s.charger))]
       .map((ch) => ({ ch, n: new Set(plan.sessions.filter((s) => s.charger === ch && Date.parse(s.end) > nowMs).map((s) => s.bus)).size }))
       .sort((x, y) => y.n - x.n || (x.ch < y.ch ? -1 : 1))[0]!;
-    const r = await replan(scenario, { now, outOfService: [busiest.ch], previous: plan });
+    // Buses on a charger at the cut-off stay plugged in (as the yard reports them).
+    const plugged = Object.fromEntries(
+      plan.sessions.filter((s) => s.charger !== busiest.ch && Date.parse(s.start) < nowMs && Date.parse(s.end) > nowMs).map((s) => [s.bus, s.charger]),
+    );
+    const r = await replan(scenario, { now, outOfService: [busiest.ch], previous: plan, plugged });
     const m = movedBuses(plan, r, nowMs);
     moved.push(m.length);
     console.log(`${String(n).padStart(5)}  ${String(c).padStart(8)}  ${String(seed).padStart(4)}  ${busiest.ch.padEnd(6)}  ${String(busiest.n).padStart(11)}  ${String(m.length).padStart(5)}  ${busiest.n + 1}`);

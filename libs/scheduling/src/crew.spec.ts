@@ -1,5 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { planScenario } from './plan.js';
+import { replan } from './replan.js';
 import { parseScenario, type ScenarioInput } from './scenario.js';
 import { generateDepot } from './testing/generate-depot.js';
 import { checkPlan } from './testing/plan-checker.js';
@@ -67,5 +68,37 @@ describe('the yard crew', () => {
     const [a, b] = [await plan(input), await plan(input)];
     expect(b.sessions).toEqual(a.sessions);
     expect(b.cost).toEqual(a.cost);
+  });
+
+  it('trades cost for fewer crew moves only within the tolerance, and says so', async () => {
+    for (const seed of [1, 2, 3]) {
+      const input = { ...generateDepot({ buses: 14, chargers: 4, seed }), yard: { ...yard, costTolerancePercent: 2, costToleranceAmount: 20 } };
+      const p = await plan(input);
+      expect(checkPlan(input, p)).toEqual([]);
+      if (p.crewTrade) {
+        expect(p.crewTrade.fewerMoves).toBeGreaterThan(0);
+        expect(p.crewTrade.extraCost).toBeLessThanOrEqual(Math.max(0.02 * p.cost.total, 20) + 1e-6);
+      }
+    }
+  });
+
+  it('a re-plan after a charger fails keeps the rest of the night and says which buses moved and why', async () => {
+    const input = { ...generateDepot({ buses: 12, chargers: 6, seed: 5 }), yard };
+    const parsed = parseScenario(input);
+    if (!parsed.ok) throw new Error('bad scenario');
+    const before = await planScenario(parsed.scenario);
+    const cutMs = Date.parse('2026-01-14T22:00:00-06:00');
+    const failed = before.sessions.find((s) => Date.parse(s.end) > cutMs)!.charger;
+    const plugged = Object.fromEntries(
+      before.sessions.filter((s) => s.charger !== failed && Date.parse(s.start) < cutMs && Date.parse(s.end) > cutMs).map((s) => [s.bus, s.charger]),
+    );
+    const r = await replan(parsed.scenario, { now: '2026-01-14T22:00', outOfService: [failed], previous: before, plugged });
+    expect(checkPlan(r.replan.scenario, r, { plugged })).toEqual([]);
+    expect(r.replan.moved.reasons[0]).toMatch(new RegExp(`^charger ${failed} out of service: \\d+ bus`));
+    const onIt = new Set(before.sessions.filter((s) => s.charger === failed && Date.parse(s.end) > cutMs).map((s) => s.bus));
+    // Kept where it could be: the buses on the failed charger, and few others.
+    expect(r.replan.moved.buses.length).toBeLessThanOrEqual(onIt.size + 4);
+    const again = await replan(parsed.scenario, { now: '2026-01-14T22:00', outOfService: [failed], previous: before, plugged });
+    expect(again.sessions).toEqual(r.sessions);
   });
 });

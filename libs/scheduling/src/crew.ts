@@ -27,6 +27,8 @@ export function endIsFree(problem: Problem, stay: Stay, t: number): boolean {
 
 /** Shortest window a stay may get, in slots (the whole stay when it is shorter than the minimum). */
 export function minWindow(problem: Problem, stay: Stay): number {
+  // Already plugged in at a re-plan's start: its plug-in was earlier, the minimum is behind it.
+  if (problem.pinned && problem.pinned[stay.id]! >= 0) return 1;
   const len = stay.d - stay.a;
   const min = problem.yard?.minSlots ?? 0;
   return Math.max(1, len < min ? len : min);
@@ -39,14 +41,14 @@ export function minWindow(problem: Problem, stay: Stay): number {
  * elsewhere). Capacity is taken charger by charger, in charger order, so the result is the same
  * for the same input. Changes the assignment in place and returns it.
  */
-export function fitCrew(problem: Problem, assignment: Assignment, energy?: Float64Array): Assignment {
+export function fitCrew(problem: Problem, assignment: Assignment, energy?: Float64Array, fewerMoves = false): Assignment {
   const yard = problem.yard;
   if (!yard) return assignment;
   const used = new Int32Array(problem.T + 1);
   const dropped: number[] = [];
   const taken: number[][] = problem.chargers.map(() => []);
   for (const charger of problem.chargers) {
-    const res = fitCharger(problem, assignment, charger.index, assignment.sequence[charger.index]!, used, false, energy);
+    const res = fitCharger(problem, assignment, charger.index, assignment.sequence[charger.index]!, used, false, energy, fewerMoves);
     taken[charger.index] = res.taken;
     for (const id of res.dropped) dropped.push(id);
   }
@@ -69,7 +71,7 @@ export function fitCrew(problem: Problem, assignment: Assignment, energy?: Float
         const saved = trial.map((x) => [assignment.from[x]!, assignment.to[x]!, assignment.chargerOf[x]!] as const);
         assignment.from[id] = stay.a;
         assignment.to[id] = stay.d;
-        const res = fitCharger(problem, assignment, c, trial, used, true, energy);
+        const res = fitCharger(problem, assignment, c, trial, used, true, energy, fewerMoves);
         if (res.dropped.length === 0) {
           for (const t of res.taken) used[t]!++;
           taken[c] = res.taken;
@@ -103,6 +105,7 @@ export function fitCrew(problem: Problem, assignment: Assignment, energy?: Float
  */
 function fitCharger(
   problem: Problem, assignment: Assignment, c: number, sequence: number[], used: Int32Array, dryRun = false, energy?: Float64Array,
+  fewerMoves = false,
 ): { dropped: number[]; taken: number[] } {
   const yard = problem.yard!;
   const { T } = problem;
@@ -124,8 +127,39 @@ function fitCharger(
     assignment.from[id] = 0;
     assignment.to[id] = 0;
   };
+  // A stay already plugged in at a re-plan's start stays first on its charger, from its first slot.
+  if (problem.pinned) {
+    const pin = problem.pinned;
+    sequence = [...sequence.filter((x) => pin[x]! === c), ...sequence.filter((x) => pin[x]! !== c)];
+    for (const x of sequence) if (pin[x]! === c) assignment.from[x] = problem.stays[x]!.a;
+  }
   const kept: number[] = [];
   let cur = -1;
+  /** First slot the charger is free again after the sessions placed so far. */
+  let freeFrom = 0;
+  /**
+   * Ends the current session on its own: at the proposed unplug if the crew can make it there
+   * (or the driver does), else the nearest slot that works; the stay is left out if none does.
+   */
+  const closeEnd = (): boolean => {
+    const p = stays[cur]!;
+    const fromP = assignment.from[cur]!;
+    const wanted = Math.min(p.d, Math.max(assignment.to[cur]!, fromP + minWindow(problem, p)));
+    let best = -1;
+    for (let t = fromP + minWindow(problem, p); t <= p.d; t++) {
+      if (!endIsFree(problem, p, t) && room(t) < 1) continue;
+      if (best < 0 || Math.abs(t - wanted) < Math.abs(best - wanted) || (Math.abs(t - wanted) === Math.abs(best - wanted) && endIsFree(problem, p, t))) best = t;
+    }
+    if (best < 0) {
+      drop(cur);
+      kept.pop();
+      return false;
+    }
+    if (!endIsFree(problem, p, best)) take(best);
+    assignment.to[cur] = best;
+    freeFrom = best;
+    return true;
+  };
   for (const id of sequence) {
     const s = stays[id]!;
     const pinned = problem.pinned !== undefined && problem.pinned[id]! >= 0;
@@ -134,11 +168,18 @@ function fitCharger(
       continue;
     }
     const minS = minWindow(problem, s);
+    if (cur >= 0 && assignment.from[id]! > assignment.to[cur]!) {
+      // The charger stands idle between the two (as proposed): end the current session on its
+      // own, then start this one as if first.
+      closeEnd();
+      cur = -1;
+    }
     if (cur < 0) {
-      // First session on the charger: the plug-in nearest the proposed one that the crew can do.
+      // First session on the charger (or after an idle stretch): the plug-in nearest the proposed
+      // one that the crew can do, after the charger is free.
       const wanted = assignment.from[id]!;
       let best = -1;
-      for (let f = s.a; f <= s.d - minS; f++) {
+      for (let f = Math.max(s.a, freeFrom); f <= s.d - minS; f++) {
         if (!startIsFree(problem, s, f) && room(f) < 1) continue;
         if (best < 0 || Math.abs(f - wanted) < Math.abs(best - wanted)) best = f;
       }
@@ -180,7 +221,9 @@ function fitCharger(
         const slotKwh = (x: Stay) => Math.min(problem.buses[x.bus]!.maxKw, charger.maxKw) * problem.slotHours;
         lack = Math.max(0, energy[p.id]! - slotKwh(p) * (toP - fromP)) + Math.max(0, energy[s.id]! - slotKwh(s) * (s.d - fromS));
       }
-      const key = Math.round(lack * 100) * 1000 + Math.abs(h - wanted) * 4 + unplug + plug;
+      // Asked for fewer moves: a hand-over at a pull-in or pull-out (one move, not two) comes
+      // before closeness to the proposed slot.
+      const key = Math.round(lack * 100) * 1000 + (fewerMoves ? (unplug + plug) * 500 + Math.abs(h - wanted) : Math.abs(h - wanted) * 4 + unplug + plug);
       if (key < bestKey) {
         bestKey = key;
         best = h;
@@ -203,25 +246,7 @@ function fitCharger(
     cur = id;
     kept.push(id);
   }
-  if (cur >= 0) {
-    // The last session ends with the stay if the driver unplugs; otherwise where the crew can.
-    const p = stays[cur]!;
-    const fromP = assignment.from[cur]!;
-    let best = -1;
-    for (let t = p.d; t >= fromP + minWindow(problem, p); t--) {
-      if (endIsFree(problem, p, t) || room(t) >= 1) {
-        best = t;
-        break;
-      }
-    }
-    if (best < 0) {
-      drop(cur);
-      kept.pop();
-    } else {
-      if (!endIsFree(problem, p, best)) take(best);
-      assignment.to[cur] = best;
-    }
-  }
+  if (cur >= 0) closeEnd();
   if (!dryRun) {
     for (const t of taken) used[t]!++;
     assignment.sequence[c] = kept;
@@ -229,4 +254,18 @@ function fitCharger(
     assignment.sequence[c] = kept;
   }
   return { dropped, taken };
+}
+
+/** Crew moves an assignment asks for (its windows as they stand, within the horizon). */
+export function countCrewMoves(problem: Problem, assignment: Assignment): number {
+  let n = 0;
+  for (const stay of problem.stays) {
+    const c = assignment.chargerOf[stay.id]!;
+    const from = assignment.from[stay.id]!;
+    const to = assignment.to[stay.id]!;
+    if (c < 0 || to <= from) continue;
+    if (!startIsFree(problem, stay, from)) n++;
+    if (!endIsFree(problem, stay, to)) n++;
+  }
+  return n;
 }

@@ -93,7 +93,7 @@ export function localSearch(
   lp: AssignedModel,
   start: Assignment,
   first: LpResult,
-  limits: { deadline: number; maxMoves: number; target: number },
+  limits: { deadline: number; maxMoves: number; target: number; /** Smallest gain (currency) worth a change; default any. */ minGain?: number },
 ): SearchResult {
   let best = cloneAssignment(start);
   let bestResult = first;
@@ -217,7 +217,7 @@ export function localSearch(
     const res = lp.solve();
     iterations += res.iterations;
     lpMs += res.ms;
-    if (res.status === 'optimal' && res.objective < bestResult.objective - 1e-9 * Math.max(1, Math.abs(bestResult.objective))) {
+    if (res.status === 'optimal' && res.objective < bestResult.objective - Math.max(limits.minGain ?? 0, 1e-9 * Math.max(1, Math.abs(bestResult.objective)))) {
       best = trial;
       bestResult = res;
       duals = dualOf(res);

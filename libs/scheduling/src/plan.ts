@@ -1,8 +1,9 @@
-import { initialAssignment, plugMapOf, type Assignment, type AssignmentHints } from './assignment.js';
+import { cloneAssignment, initialAssignment, plugMapOf, type Assignment, type AssignmentHints } from './assignment.js';
 import { limitedBaseline, type Baseline, type BaselineKind } from './baseline.js';
-import { endIsFree, fitCrew, startIsFree, type Move } from './crew.js';
+import { countCrewMoves, endIsFree, fitCrew, startIsFree, type Move } from './crew.js';
+import { keptAssignment } from './stable.js';
 import { explainShortfalls, type ShortReason } from './explain.js';
-import { loadSolver, type Solver } from './highs-solver.js';
+import { loadSolver, type LpResult, type Solver } from './highs-solver.js';
 import { AssignedModel, localSearch } from './local-search.js';
 import { solveLowerBound } from './lower-bound.js';
 import { buildChargeModel, powerFrom } from './lp-model.js';
@@ -66,6 +67,13 @@ export interface Plan {
   sessions: PlanSession[];
   /** Plug-ins and unplugs the yard crew does (the sessions' `crew` ends within the horizon). */
   crewMoves: number;
+  /**
+   * Crew moves saved against the cheapest plan found, and what they cost (within the depot's
+   * tolerance): "2 fewer moves for $1.80". Null: the cheapest plan is the one with fewest moves.
+   */
+  crewTrade: { fewerMoves: number; extraCost: number } | null;
+  /** Re-planning: the plan being carried out was kept wherever it could be, for this much more. */
+  keptPrevious: { extraCost: number } | null;
   buses: PlanBus[];
   savings: {
     energy: number;
@@ -211,6 +219,7 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
   const maxMoves = options.maxMoves ?? defaultMoves(problem);
   const live = new AssignedModel(problem, solver, start);
   let search;
+  let chosen!: Chosen;
   try {
     let first = live.solve();
     if (first.status !== 'optimal') throw new Error(`plan LP ended ${first.status}; the model should always be solvable`);
@@ -252,14 +261,15 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
       first = live.solve();
     }
     search = localSearch(problem, hints, live, start, first, { deadline, maxMoves, target });
+    chosen = preferStableAndFewerMoves(problem, hints, live, search.assignment, search.result, { deadline, maxMoves, target });
   } finally {
     live.dispose();
   }
   const stoppedBy: Plan['stats']['stoppedBy'] =
     search.result.objective <= target ? 'bound' : timedOut || search.timedOut ? 'time' : 'moves';
-  const assignment = search.assignment;
+  const assignment = chosen.assignment;
   const plug = plugMapOf(problem, assignment);
-  let power = powerFrom(problem, live.model, search.result.x);
+  let power = powerFrom(problem, live.model, chosen.result.x);
   if (overfills(problem, power)) {
     // The model left out taper/ceiling rows a battery was not expected to reach; it reached
     // one (zero prices, solver tolerance): solve this assignment again with every row.
@@ -270,6 +280,8 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
   }
   power = power.map((row) => row.map((v) => round(v)));
   const plan = assemblePlan(problem, solver, plug, power, lb.penalisedObjective, lb.shortfallKwh);
+  plan.crewTrade = chosen.crewTrade;
+  plan.keptPrevious = chosen.keptPrevious;
   plan.stats.lpColumns = live.model.lp.numCols;
   plan.stats.lpRows = live.model.lp.numRows;
   plan.stats.lowerBoundMs = round(lb.ms, 1);
@@ -280,6 +292,60 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
   plan.stats.simplexIterations = search.iterations + lb.iterations;
   plan.solveMs = round(performance.now() - t0, 1);
   return plan;
+}
+
+interface Chosen {
+  assignment: Assignment;
+  result: LpResult;
+  crewTrade: Plan['crewTrade'];
+  keptPrevious: Plan['keptPrevious'];
+}
+
+/**
+ * Among plans within the cost tolerance of the cheapest found (max(share x cost, amount)):
+ * when re-planning, the plan being carried out, kept wherever it still can be (see stable.ts);
+ * with crew rules, the same hand-overs moved to pull-ins and pull-outs where that saves moves.
+ */
+function preferStableAndFewerMoves(
+  problem: Problem, hints: AssignmentHints, live: AssignedModel, cheapest: Assignment, result: LpResult,
+  limits: { deadline: number; maxMoves: number; target: number },
+): Chosen {
+  const all = problem.buses.map((b) => b.index);
+  const base = result.objective;
+  const limit = base + Math.max(problem.tolerance.share * Math.abs(base), problem.tolerance.amount);
+  let chosen: Chosen = { assignment: cheapest, result, crewTrade: null, keptPrevious: null };
+  const kept = keptAssignment(problem, hints.energy);
+  if (kept) {
+    // The plan being carried out, with places found for the stays it must move; then only
+    // changes that each save a tenth of the tolerance's amount (so a bus is not moved for cents).
+    live.update(kept, all);
+    const first = live.solve();
+    if (first.status === 'optimal') {
+      const minGain = problem.tolerance.amount / 10;
+      const search = first.objective <= limit ? { assignment: kept, result: first } : localSearch(problem, hints, live, kept, first, { ...limits, minGain });
+      if (search.result.objective <= limit) {
+        chosen = { assignment: search.assignment, result: search.result, crewTrade: null, keptPrevious: { extraCost: round(Math.max(0, search.result.objective - base), 2) } };
+      }
+    }
+  }
+  if (problem.yard && !chosen.keptPrevious) {
+    const movesBefore = countCrewMoves(problem, cheapest);
+    const fewer = fitCrew(problem, cloneAssignment(chosen.assignment), hints.energy, true);
+    const movesAfter = countCrewMoves(problem, fewer);
+    const reference = chosen.keptPrevious ? countCrewMoves(problem, chosen.assignment) : movesBefore;
+    if (movesAfter < reference) {
+      live.update(fewer, all);
+      const res = live.solve();
+      if (res.status === 'optimal' && res.objective <= limit) {
+        chosen = { ...chosen, assignment: fewer, result: res };
+      }
+    }
+    const movesChosen = countCrewMoves(problem, chosen.assignment);
+    if (movesChosen < movesBefore) {
+      chosen.crewTrade = { fewerMoves: movesBefore - movesChosen, extraCost: round(Math.max(0, chosen.result.objective - base), 2) };
+    }
+  }
+  return chosen;
 }
 
 /** Does any battery go above its ceiling or draw more than its taper allows? */
@@ -420,6 +486,8 @@ function assemblePlan(
     slots: problem.slots.map((s, t) => ({ start: s.start, loadKw: round(charging[t]! + s.otherKw), price: s.price, limitKw: s.limitKw })),
     sessions,
     crewMoves,
+    crewTrade: null,
+    keptPrevious: null,
     buses: busOut,
     savings: {
       energy: round(baseline.energy - cost.energy),

@@ -83,6 +83,13 @@ export interface Problem {
    * plug-in at their first slot is not the driver's on pulling in. Absent: none.
    */
   arrivedEarlier?: Uint8Array;
+  /**
+   * Re-planning: per stay, the charger and window the plan being carried out gives it from the
+   * cut-off on (charger -1: none). A re-plan keeps these where it can (see `keptAssignment`).
+   */
+  previous?: { chargerOf: Int32Array; from: Int32Array; to: Int32Array };
+  /** Cost a plan may add to make fewer crew moves or move fewer buses: max(share x cost, amount). */
+  tolerance: { share: number; amount: number };
 }
 
 /** The crew rules in slot terms. */
@@ -197,6 +204,10 @@ export function prepareProblem(scenario: Scenario): Problem {
     shortfallPenalty,
     present,
     yard,
+    tolerance: {
+      share: (scenario.yard?.costTolerancePercent ?? 0.5) / 100,
+      amount: scenario.yard?.costToleranceAmount ?? 5,
+    },
   };
 }
 

@@ -63,6 +63,13 @@ export const yardSchema = z.strictObject({
   minPlugInMinutes: z.number().int('must be a whole number of minutes').nonnegative('must be 0 or more').default(0),
   driversPlugIn: z.boolean().default(true),
   crew: z.array(crewWindowSchema).optional(),
+  /**
+   * Format extension: how much dearer (per cent of the night's cost, or amount in the tariff's
+   * currency, whichever is larger) a plan may be to make fewer crew moves or, when re-planning,
+   * to move fewer buses. Defaults: 0.5 % or 5.
+   */
+  costTolerancePercent: z.number().min(0, 'must be 0 or more').max(10, 'must be at most 10').default(0.5),
+  costToleranceAmount: z.number().min(0, 'must be 0 or more').max(1000, 'must be at most 1000').default(5),
 });
 
 export const scenarioSchema = z.strictObject({

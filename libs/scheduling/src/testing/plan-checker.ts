@@ -47,6 +47,8 @@ function periodIndex(periods: Json[], ms: number, zone: string): number {
 export interface CheckOptions {
   /** Reported costs must equal the recomputation within this relative tolerance. */
   costTolerance?: number;
+  /** Re-plans: buses already on a charger at the start (their plug-in, and its minimum, was earlier). */
+  plugged?: Record<string, string>;
 }
 
 export function checkPlan(scenario: Json, plan: Json, options: CheckOptions = {}): string[] {
@@ -182,7 +184,7 @@ export function checkPlan(scenario: Json, plan: Json, options: CheckOptions = {}
     if (out.reason !== null && !['dwell', 'charger', 'cabinet', 'site', 'taper'].includes(out.reason)) fail(`bus ${bus.id}: unknown reason ${out.reason}`);
   }
 
-  checkCrew(scenario, plan, { startMs, endMs, slotMs, zone, fail });
+  checkCrew(scenario, plan, { startMs, endMs, slotMs, zone, fail, plugged: options.plugged ?? {} });
 
   // Costs from the slots and the tariff.
   let energy = 0;
@@ -222,8 +224,10 @@ export function checkPlan(scenario: Json, plan: Json, options: CheckOptions = {}
  * The yard crew (scenario extension `yard`): minimum plug-in, who makes each move, crew moves
  * only inside crew windows and at most movesPerSlot in one slot, and the reported count.
  */
-function checkCrew(scenario: Json, plan: Json, h: { startMs: number; endMs: number; slotMs: number; zone: string; fail: (m: string) => void }): void {
-  const { startMs, endMs, slotMs, zone, fail } = h;
+function checkCrew(
+  scenario: Json, plan: Json, h: { startMs: number; endMs: number; slotMs: number; zone: string; fail: (m: string) => void; plugged: Record<string, string> },
+): void {
+  const { startMs, endMs, slotMs, zone, fail, plugged } = h;
   const yard = scenario.yard;
   const drivers: boolean = yard ? (yard.driversPlugIn ?? true) : true;
   const minMs = (yard?.minPlugInMinutes ?? 0) * 60_000;
@@ -250,10 +254,11 @@ function checkCrew(scenario: Json, plan: Json, h: { startMs: number; endMs: numb
     const first = Math.max(startMs, startMs + Math.ceil((localMs(stay.arrive, zone) - startMs) / slotMs) * slotMs);
     const last = Math.min(endMs, startMs + Math.floor((localMs(stay.depart, zone) - startMs) / slotMs) * slotMs);
     const what = `session ${i} (${s.bus} on ${s.charger})`;
-    if (yard && b - a < minMs && !(a === first && b === last)) fail(`${what}: ${(b - a) / 60_000} min plugged in, below the minimum ${yard.minPlugInMinutes} min and not the whole stay`);
+    const continued = a === startMs && plugged[s.bus] === s.charger;
+    if (yard && b - a < minMs && !(a === first && b === last) && !continued) fail(`${what}: ${(b - a) / 60_000} min plugged in, below the minimum ${yard.minPlugInMinutes} min and not the whole stay`);
     if (s.startMove !== 'driver' && s.startMove !== 'crew') fail(`${what}: startMove ${s.startMove}`);
     if (s.endMove !== 'driver' && s.endMove !== 'crew') fail(`${what}: endMove ${s.endMove}`);
-    if (s.startMove === 'driver' && !(drivers && a === first)) fail(`${what}: plug-in at ${s.start} marked driver, but it is not at pull-in`);
+    if (s.startMove === 'driver' && !(drivers && a === first) && !continued) fail(`${what}: plug-in at ${s.start} marked driver, but it is not at pull-in`);
     if (s.endMove === 'driver' && !((drivers && b === last) || b >= endMs)) fail(`${what}: unplug at ${s.end} marked driver, but it is not at pull-out`);
     if (s.startMove !== 'driver') crewMove(a, `${what} plug-in`);
     if (s.endMove !== 'driver') crewMove(b, `${what} unplug`);
