@@ -63,6 +63,10 @@ export const planResultSchema = z.looseObject({
   })),
   /** Plug-ins and unplugs the yard crew makes (absent in older plans). */
   crewMoves: z.number().optional(),
+  /** Crew moves saved against the cheapest plan found, and their cost (within the depot's tolerance). */
+  crewTrade: z.object({ fewerMoves: z.number(), extraCost: z.number() }).nullable().optional(),
+  /** A re-plan: the buses it moved from the cut-off on, and why, in words. */
+  replan: z.looseObject({ moved: z.object({ buses: z.array(z.string()), reasons: z.array(z.string()) }).optional() }).optional(),
   buses: z.array(z.object({
     id: z.string(),
     departures: z.array(z.object({ at: z.string(), kwh: z.number() })),
