@@ -20,8 +20,14 @@ export const yardCrewSchema = z.strictObject({
   driversPlugIn: z.boolean(),
   /** No shift listed: the crew can make moves at any hour, as many as needed. */
   shifts: z.array(crewShiftSchema).max(6, 'At most 6 shifts'),
+  /**
+   * How much dearer a plan may be to make fewer crew moves or, in a re-plan, to move fewer buses:
+   * this share of the night's cost or this amount, whichever is larger.
+   */
+  costTolerancePercent: z.number({ error: 'Enter the tolerance in per cent' }).min(0, 'Cannot be negative').max(10, 'At most 10 %').default(0.5),
+  costToleranceAmount: z.number({ error: 'Enter the tolerance as an amount' }).min(0, 'Cannot be negative').max(1000, 'At most 1,000 a night').default(5),
 });
 export type YardCrew = z.infer<typeof yardCrewSchema>;
 
 /** What a depot that has not set its crew plans with: no minimum, drivers plug in, moves any time. */
-export const DEFAULT_YARD_CREW: YardCrew = { minPlugInMinutes: 0, driversPlugIn: true, shifts: [] };
+export const DEFAULT_YARD_CREW: YardCrew = { minPlugInMinutes: 0, driversPlugIn: true, shifts: [], costTolerancePercent: 0.5, costToleranceAmount: 5 };

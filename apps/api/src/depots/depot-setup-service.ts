@@ -40,7 +40,7 @@ export async function depotDetail(db: Db, caller: AuthUser, depotId: string): Pr
     chargers: chs,
     loadReductionWindows: windows.map((w) => ({ id: w.id, start: local(w.startsAt), end: local(w.endsAt), limitKw: w.limitKw, note: w.note })),
     peaksSoFar: peaks ? { billingPeriodStart: peaks.billingPeriodStart, facilityKw: peaks.facilityKw, periods: peaks.periodsKw } : null,
-    yardCrew: depot.yardCrew ?? null,
+    yardCrew: depot.yardCrew ? { costTolerancePercent: 0.5, costToleranceAmount: 5, ...depot.yardCrew } : null,
     ratePlans: plans,
   };
 }

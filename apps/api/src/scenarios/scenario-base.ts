@@ -128,7 +128,7 @@ export async function buildScenarioBase(db: Db, caller: AuthUser, depotId: strin
  * shift that ends at or before its start runs past midnight), cut to the horizon. No shift
  * listed: the crew can make moves at any hour (the scenario's `crew` is left out).
  */
-export function yardFor(crew: YardCrew, from: DateTime, to: DateTime): NonNullable<ScenarioInput['yard']> {
+export function yardFor(crew: Omit<YardCrew, 'costTolerancePercent' | 'costToleranceAmount'> & Partial<YardCrew>, from: DateTime, to: DateTime): NonNullable<ScenarioInput['yard']> {
   const windows: { from: string; to: string; movesPerSlot: number }[] = [];
   for (let day = from.startOf('day').minus({ days: 1 }); day < to; day = day.plus({ days: 1 })) {
     for (const shift of crew.shifts) {
@@ -147,6 +147,8 @@ export function yardFor(crew: YardCrew, from: DateTime, to: DateTime): NonNullab
     minPlugInMinutes: crew.minPlugInMinutes,
     driversPlugIn: crew.driversPlugIn,
     ...(crew.shifts.length ? { crew: windows } : {}),
+    costTolerancePercent: crew.costTolerancePercent ?? 0.5,
+    costToleranceAmount: crew.costToleranceAmount ?? 5,
   };
 }
 

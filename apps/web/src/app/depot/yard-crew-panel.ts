@@ -30,6 +30,8 @@ function crewForm(c: YardCrew) {
     minPlugInMinutes: new FormControl<number | null>(c.minPlugInMinutes, zodValidator(yardCrewSchema.shape.minPlugInMinutes, 'Enter 0 to 240 minutes')),
     driversPlugIn: new FormControl(c.driversPlugIn, { nonNullable: true }),
     shifts: new FormArray(c.shifts.map((s) => shiftGroup(s))),
+    costTolerancePercent: new FormControl<number | null>(c.costTolerancePercent, zodValidator(yardCrewSchema.shape.costTolerancePercent, 'Enter 0 to 10 %')),
+    costToleranceAmount: new FormControl<number | null>(c.costToleranceAmount, zodValidator(yardCrewSchema.shape.costToleranceAmount, 'Enter 0 to 1,000')),
   });
 }
 type CrewForm = ReturnType<typeof crewForm>;
@@ -99,6 +101,26 @@ type CrewForm = ReturnType<typeof crewForm>;
               <button mat-stroked-button type="button" (click)="f.controls.shifts.push(newShift())"><mat-icon>add</mat-icon>Add shift</button>
             }
           </fieldset>
+          <fieldset>
+            <legend>Fewer moves and steadier re-plans</legend>
+            <p class="hint">
+              A plan may cost this much more than the cheapest found to need fewer crew moves, or, when the night is planned
+              again, to move fewer buses: the per cent of the night's cost or the amount, whichever is larger.
+            </p>
+            <div class="form-grid">
+              <mat-form-field appearance="outline">
+                <mat-label>Cost tolerance, share of the night</mat-label>
+                <input matInput type="number" min="0" max="10" step="0.1" formControlName="costTolerancePercent" />
+                <span matTextSuffix>%</span>
+                <mat-error>{{ error(f.controls.costTolerancePercent) }}</mat-error>
+              </mat-form-field>
+              <mat-form-field appearance="outline">
+                <mat-label>Cost tolerance, amount a night</mat-label>
+                <input matInput type="number" min="0" max="1000" step="1" formControlName="costToleranceAmount" />
+                <mat-error>{{ error(f.controls.costToleranceAmount) }}</mat-error>
+              </mat-form-field>
+            </div>
+          </fieldset>
           <ny-problem-summary [message]="problem()" [items]="problemItems()" />
           @if (busy()) {
             <mat-progress-bar mode="indeterminate" aria-label="Saving the yard crew" />
@@ -121,6 +143,10 @@ type CrewForm = ReturnType<typeof crewForm>;
           <div class="wide">
             <dt>Crew shifts</dt>
             <dd>{{ shiftsText() }}</dd>
+          </div>
+          <div class="wide">
+            <dt>Cost tolerance for fewer moves</dt>
+            <dd>{{ crew().costTolerancePercent }} % of the night's cost or {{ crew().costToleranceAmount }}, whichever is larger</dd>
           </div>
         </dl>
       }
@@ -173,6 +199,8 @@ export class YardCrewPanel {
       minPlugInMinutes: v.minPlugInMinutes ?? 0,
       driversPlugIn: v.driversPlugIn,
       shifts: v.shifts.map((s) => ({ from: s.from, to: s.to, movesPerSlot: s.movesPerSlot ?? 1 })),
+      costTolerancePercent: v.costTolerancePercent ?? 0.5,
+      costToleranceAmount: v.costToleranceAmount ?? 5,
     };
     this.busy.set(true);
     try {
