@@ -62,7 +62,7 @@ export function fitCrew(problem: Problem, assignment: Assignment, energy?: Float
       .map((c) => c.index)
       .sort((x, y) => assignment.sequence[x]!.length - assignment.sequence[y]!.length || problem.chargers[y]!.maxKw - problem.chargers[x]!.maxKw || x - y);
     let placed = false;
-    for (const c of order.slice(0, 12)) {
+    for (const c of order.slice(0, 40)) {
       const seq = assignment.sequence[c]!;
       for (const t of taken[c]!) used[t]!--;
       for (let pos = 0; pos <= seq.length && !placed; pos++) {
@@ -218,7 +218,8 @@ function fitCharger(
       // wants is known), then closeness to the proposed hand-over, then fewer moves.
       let lack = 0;
       if (energy) {
-        const slotKwh = (x: Stay) => Math.min(problem.buses[x.bus]!.maxKw, charger.maxKw) * problem.slotHours;
+        // At 85 % of full power: the taper near the top of the battery takes the rest.
+        const slotKwh = (x: Stay) => 0.85 * Math.min(problem.buses[x.bus]!.maxKw, charger.maxKw) * problem.slotHours;
         lack = Math.max(0, energy[p.id]! - slotKwh(p) * (toP - fromP)) + Math.max(0, energy[s.id]! - slotKwh(s) * (s.d - fromS));
       }
       // Asked for fewer moves: a hand-over at a pull-in or pull-out (one move, not two) comes
