@@ -25,6 +25,15 @@ export const demoDepot = {
     22, 22, 22, 22, 22, 24, 30, 38, 44, 46, 46, 46, 46, 46, 46, 44, 40, 34, 28, 26, 24, 24, 22, 22,
   ],
   billingStartDay: 1,
+  // As many depots staff it: an evening crew and an early-morning crew, no one from 23:30 to 04:30.
+  yardCrew: {
+    minPlugInMinutes: 45,
+    driversPlugIn: true,
+    shifts: [
+      { from: '15:00', to: '23:30', movesPerSlot: 3 },
+      { from: '04:30', to: '07:00', movesPerSlot: 2 },
+    ],
+  },
 };
 
 export const demoCabinets = [{ label: 'Cabinet A', limitKw: 150 }];

@@ -57,7 +57,7 @@ export async function seedDemo(db: Db, now: Date, tag?: string): Promise<SeededD
       .insert(depots)
       .values({
         organisationId, name: demoDepot.name, timezone: zone, serviceLimitKw: demoDepot.serviceLimitKw,
-        otherLoadKw: demoDepot.otherLoadProfileKw, billingStartDay: demoDepot.billingStartDay,
+        otherLoadKw: demoDepot.otherLoadProfileKw, billingStartDay: demoDepot.billingStartDay, yardCrew: demoDepot.yardCrew,
       })
       .returning();
     const depotId = depot!.id;

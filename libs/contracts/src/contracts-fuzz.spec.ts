@@ -57,6 +57,8 @@ const REQUESTS: Record<string, unknown> = {
   confirmStepSchema: { planId: uuid, stepKey: 'connect|11|A|2026-12-07T22:00' },
   missedStepSchema: { planId: uuid, stepKey: 'connect|11|A|2026-12-07T22:00' },
   yardReportSchema: { planId: uuid, kind: 'soc_reading', bus: '11', socPct: 40 },
+  crewShiftSchema: { from: '15:00', to: '23:30', movesPerSlot: 3 },
+  yardCrewSchema: { minPlugInMinutes: 45, driversPlugIn: true, shifts: [{ from: '15:00', to: '23:30', movesPerSlot: 3 }] },
 };
 
 /** Schemas of answers and stored documents: not request input, so not fuzzed here. */

@@ -1,6 +1,7 @@
 import { z } from 'zod';
 import { lower, text } from './text';
 import { isoDate, localDateTimeSchema } from './dates';
+import { yardCrewSchema } from './yard-crew';
 
 export { localDateTimeSchema };
 
@@ -112,6 +113,8 @@ export const depotDetailSchema = depotSettingsSchema.extend({
   chargers: z.array(chargerSchema),
   loadReductionWindows: z.array(loadReductionWindowSchema),
   peaksSoFar: peaksSoFarSchema.nullable(),
+  /** The yard crew plans keep to (null: not set; plans then assume drivers plug in and no minimum). */
+  yardCrew: yardCrewSchema.nullable(),
   ratePlans: z.array(z.object({ ratePlanId: z.uuid(), name: z.string(), effectiveFrom: z.string() })),
 });
 export type DepotDetail = z.infer<typeof depotDetailSchema>;

@@ -8,6 +8,7 @@ export * from './users';
 export * from './depots';
 export * from './rates';
 export * from './depot-setup';
+export * from './yard-crew';
 export * from './fleet';
 export * from './plans';
 export * from './costs';

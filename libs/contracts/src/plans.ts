@@ -55,7 +55,18 @@ export const planResultSchema = z.looseObject({
   gap: z.number(),
   solveMs: z.number(),
   slots: z.array(z.object({ start: z.string(), loadKw: z.number(), price: z.number(), limitKw: z.number() })),
-  sessions: z.array(z.object({ bus: z.string(), charger: z.string(), start: z.string(), end: z.string(), kwh: z.number(), kw: z.array(z.number()) })),
+  sessions: z.array(z.object({
+    bus: z.string(), charger: z.string(), start: z.string(), end: z.string(), kwh: z.number(), kw: z.array(z.number()),
+    /** Who plugs in and who unplugs: the driver on pulling in or out, or the yard crew (absent in older plans). */
+    startMove: z.enum(['driver', 'crew']).optional(),
+    endMove: z.enum(['driver', 'crew']).optional(),
+  })),
+  /** Plug-ins and unplugs the yard crew makes (absent in older plans). */
+  crewMoves: z.number().optional(),
+  /** Crew moves saved against the cheapest plan found, and their cost (within the depot's tolerance). */
+  crewTrade: z.object({ fewerMoves: z.number(), extraCost: z.number() }).nullable().optional(),
+  /** A re-plan: the buses it moved from the cut-off on, and why, in words. */
+  replan: z.looseObject({ moved: z.object({ buses: z.array(z.string()), reasons: z.array(z.string()) }).optional() }).optional(),
   buses: z.array(z.object({
     id: z.string(),
     departures: z.array(z.object({ at: z.string(), kwh: z.number() })),

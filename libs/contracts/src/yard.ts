@@ -7,6 +7,11 @@ export const yardStepSchema = z.object({
   /** Stable across revisions of the night: `connect|bus|charger|start`. */
   key: z.string(),
   action: z.enum(['connect', 'disconnect']),
+  /**
+   * Who makes the move: the bus's `driver` (plugging in on pulling in, unplugging on pulling out)
+   * or the yard `crew`. Absent for plans made before the crew rules: count it as the crew's.
+   */
+  by: z.enum(['crew', 'driver']).optional(),
   bus: z.string(),
   charger: z.string(),
   at: z.string(),

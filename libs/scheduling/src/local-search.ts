@@ -1,4 +1,5 @@
 import { arrangeCharger, cloneAssignment, layoutCharger, plugMapOf, usablePower, type Assignment, type AssignmentHints } from './assignment.js';
+import { fitCrew } from './crew.js';
 import type { LiveLp, LpResult, Solver } from './highs-solver.js';
 import { buildChargeModel, plugUpper, type ChargeModel } from './lp-model.js';
 import type { PlugMap, Problem } from './problem.js';
@@ -92,7 +93,7 @@ export function localSearch(
   lp: AssignedModel,
   start: Assignment,
   first: LpResult,
-  limits: { deadline: number; maxMoves: number; target: number },
+  limits: { deadline: number; maxMoves: number; target: number; /** Smallest gain (currency) worth a change; default any. */ minGain?: number },
 ): SearchResult {
   let best = cloneAssignment(start);
   let bestResult = first;
@@ -204,6 +205,11 @@ export function localSearch(
     }
     for (const c of touched) arrangeCharger(problem, hints, trial, c);
     const buses = new Set<number>();
+    if (problem.yard) {
+      // Crew room is shared by the whole yard: a change on one charger can move hand-overs on any.
+      fitCrew(problem, trial, hints.energy);
+      for (const b of problem.buses) buses.add(b.index);
+    }
     for (const c of touched) for (const s of trial.sequence[c]!) buses.add(problem.stays[s]!.bus);
     buses.add(problem.stays[j]!.bus);
     for (const b of extra) buses.add(b);
@@ -211,7 +217,7 @@ export function localSearch(
     const res = lp.solve();
     iterations += res.iterations;
     lpMs += res.ms;
-    if (res.status === 'optimal' && res.objective < bestResult.objective - 1e-9 * Math.max(1, Math.abs(bestResult.objective))) {
+    if (res.status === 'optimal' && res.objective < bestResult.objective - Math.max(limits.minGain ?? 0, 1e-9 * Math.max(1, Math.abs(bestResult.objective)))) {
       best = trial;
       bestResult = res;
       duals = dualOf(res);

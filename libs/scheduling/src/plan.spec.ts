@@ -232,4 +232,20 @@ describe('npm run plan', () => {
     expect(out.stderr).toContain('chargers[0].maxKw');
     expect(out.stdout).toBe('');
   });
+
+  it('writes the whole plan to a slow reader and ends on its own', async () => {
+    // 160 buses: a plan document well above a pipe's 64 KB buffer, read by a reader that only
+    // starts after two seconds (the shell's `| (sleep 2; cat)`), through `npm run plan`.
+    const file = '/tmp/nightyard-slow-reader-scenario.json';
+    writeFileSync(file, JSON.stringify(generateDepot({ buses: 160, seed: 3 })));
+    const root = new URL('../../..', import.meta.url).pathname;
+    const out = await new Promise<{ code: number; stdout: string }>((resolve) =>
+      execFile('sh', ['-c', `npm run -s plan -- ${file} | (sleep 2; cat)`], { cwd: root, timeout: 60_000, maxBuffer: 1 << 26 }, (error, stdout) =>
+        resolve({ code: error ? ((error as any).code ?? 1) : 0, stdout }),
+      ),
+    );
+    expect(out.code).toBe(0);
+    expect(out.stdout.length).toBeGreaterThan(65_536);
+    expect(JSON.parse(out.stdout).sessions.length).toBeGreaterThan(0);
+  });
 });

@@ -1,7 +1,9 @@
-import { initialAssignment, plugMapOf, type Assignment, type AssignmentHints } from './assignment.js';
+import { cloneAssignment, initialAssignment, plugMapOf, type Assignment, type AssignmentHints } from './assignment.js';
 import { limitedBaseline, type Baseline, type BaselineKind } from './baseline.js';
+import { countCrewMoves, endIsFree, fitCrew, startIsFree, type Move } from './crew.js';
+import { keptAssignment } from './stable.js';
 import { explainShortfalls, type ShortReason } from './explain.js';
-import { loadSolver, type Solver } from './highs-solver.js';
+import { loadSolver, type LpResult, type Solver } from './highs-solver.js';
 import { AssignedModel, localSearch } from './local-search.js';
 import { solveLowerBound } from './lower-bound.js';
 import { buildChargeModel, powerFrom } from './lp-model.js';
@@ -25,6 +27,9 @@ export interface PlanSession {
   end: string;
   kwh: number;
   kw: number[];
+  /** Who plugs the bus in and who unplugs it: its driver on pulling in or out, or the crew. */
+  startMove: Move;
+  endMove: Move;
 }
 
 export interface PlanBus {
@@ -60,6 +65,15 @@ export interface Plan {
   solveMs: number;
   slots: { start: string; loadKw: number; price: number; limitKw: number }[];
   sessions: PlanSession[];
+  /** Plug-ins and unplugs the yard crew does (the sessions' `crew` ends within the horizon). */
+  crewMoves: number;
+  /**
+   * Crew moves saved against the cheapest plan found, and what they cost (within the depot's
+   * tolerance): "2 fewer moves for $1.80". Null: the cheapest plan is the one with fewest moves.
+   */
+  crewTrade: { fewerMoves: number; extraCost: number } | null;
+  /** Re-planning: the plan being carried out was kept wherever it could be, for this much more. */
+  keptPrevious: { extraCost: number } | null;
   buses: PlanBus[];
   savings: {
     energy: number;
@@ -194,12 +208,18 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
       ['sequence-best-least-cut', () => initialAssignment(problem, { ...hints, order: 'best', handover: 'least-cut' })],
     );
   }
+  // Every candidate is made one the yard crew can carry out before the LP judges it.
+  for (const cand of candidates) {
+    const make = cand[1];
+    cand[1] = () => fitCrew(problem, make(), hints.energy);
+  }
   let start = candidates[0]![1]();
   let construction = candidates[0]![0];
   let timedOut = false;
   const maxMoves = options.maxMoves ?? defaultMoves(problem);
   const live = new AssignedModel(problem, solver, start);
   let search;
+  let chosen!: Chosen;
   try {
     let first = live.solve();
     if (first.status !== 'optimal') throw new Error(`plan LP ended ${first.status}; the model should always be solvable`);
@@ -225,7 +245,7 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
     else if (first.objective > target) {
       const power = sharedChargerPower(problem, solver, start);
       if (power) {
-        const other = rebalanced(problem, hints, start, power);
+        const other = fitCrew(problem, rebalanced(problem, hints, start, power), hints.energy);
         live.update(other, all);
         current = other;
         const res = live.solve();
@@ -241,14 +261,15 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
       first = live.solve();
     }
     search = localSearch(problem, hints, live, start, first, { deadline, maxMoves, target });
+    chosen = preferStableAndFewerMoves(problem, hints, live, search.assignment, search.result, { deadline, maxMoves, target });
   } finally {
     live.dispose();
   }
   const stoppedBy: Plan['stats']['stoppedBy'] =
     search.result.objective <= target ? 'bound' : timedOut || search.timedOut ? 'time' : 'moves';
-  const assignment = search.assignment;
+  const assignment = chosen.assignment;
   const plug = plugMapOf(problem, assignment);
-  let power = powerFrom(problem, live.model, search.result.x);
+  let power = powerFrom(problem, live.model, chosen.result.x);
   if (overfills(problem, power)) {
     // The model left out taper/ceiling rows a battery was not expected to reach; it reached
     // one (zero prices, solver tolerance): solve this assignment again with every row.
@@ -259,6 +280,8 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
   }
   power = power.map((row) => row.map((v) => round(v)));
   const plan = assemblePlan(problem, solver, plug, power, lb.penalisedObjective, lb.shortfallKwh);
+  plan.crewTrade = chosen.crewTrade;
+  plan.keptPrevious = chosen.keptPrevious;
   plan.stats.lpColumns = live.model.lp.numCols;
   plan.stats.lpRows = live.model.lp.numRows;
   plan.stats.lowerBoundMs = round(lb.ms, 1);
@@ -269,6 +292,60 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
   plan.stats.simplexIterations = search.iterations + lb.iterations;
   plan.solveMs = round(performance.now() - t0, 1);
   return plan;
+}
+
+interface Chosen {
+  assignment: Assignment;
+  result: LpResult;
+  crewTrade: Plan['crewTrade'];
+  keptPrevious: Plan['keptPrevious'];
+}
+
+/**
+ * Among plans within the cost tolerance of the cheapest found (max(share x cost, amount)):
+ * when re-planning, the plan being carried out, kept wherever it still can be (see stable.ts);
+ * with crew rules, the same hand-overs moved to pull-ins and pull-outs where that saves moves.
+ */
+function preferStableAndFewerMoves(
+  problem: Problem, hints: AssignmentHints, live: AssignedModel, cheapest: Assignment, result: LpResult,
+  limits: { deadline: number; maxMoves: number; target: number },
+): Chosen {
+  const all = problem.buses.map((b) => b.index);
+  const base = result.objective;
+  const limit = base + Math.max(problem.tolerance.share * Math.abs(base), problem.tolerance.amount);
+  let chosen: Chosen = { assignment: cheapest, result, crewTrade: null, keptPrevious: null };
+  const kept = keptAssignment(problem, hints.energy);
+  if (kept) {
+    // The plan being carried out, with places found for the stays it must move; then only
+    // changes that each save a tenth of the tolerance's amount (so a bus is not moved for cents).
+    live.update(kept, all);
+    const first = live.solve();
+    if (first.status === 'optimal') {
+      const minGain = problem.tolerance.amount / 10;
+      const search = first.objective <= limit ? { assignment: kept, result: first } : localSearch(problem, hints, live, kept, first, { ...limits, minGain });
+      if (search.result.objective <= limit) {
+        chosen = { assignment: search.assignment, result: search.result, crewTrade: null, keptPrevious: { extraCost: round(Math.max(0, search.result.objective - base), 2) } };
+      }
+    }
+  }
+  if (problem.yard && !chosen.keptPrevious) {
+    const movesBefore = countCrewMoves(problem, cheapest);
+    const fewer = fitCrew(problem, cloneAssignment(chosen.assignment), hints.energy, true);
+    const movesAfter = countCrewMoves(problem, fewer);
+    const reference = chosen.keptPrevious ? countCrewMoves(problem, chosen.assignment) : movesBefore;
+    if (movesAfter < reference) {
+      live.update(fewer, all);
+      const res = live.solve();
+      if (res.status === 'optimal' && res.objective <= limit) {
+        chosen = { ...chosen, assignment: fewer, result: res };
+      }
+    }
+    const movesChosen = countCrewMoves(problem, chosen.assignment);
+    if (movesChosen < movesBefore) {
+      chosen.crewTrade = { fewerMoves: movesBefore - movesChosen, extraCost: round(Math.max(0, chosen.result.objective - base), 2) };
+    }
+  }
+  return chosen;
 }
 
 /** Does any battery go above its ceiling or draw more than its taper allows? */
@@ -305,10 +382,13 @@ function assemblePlan(
   for (const row of power) for (let t = 0; t < T; t++) charging[t] = charging[t]! + row[t]!;
   const cost = costLoad(problem.slots, charging, problem.tariff, dt);
 
-  // Sessions: one per continuous plug-in, trimmed to the slots with power (nobody needs to
-  // plug a bus in before its power starts or leave it after it ends).
+  // Sessions: one per continuous plug-in. Without crew rules each is trimmed to the slots with
+  // power (nobody needs to plug a bus in before its power starts or leave it after it ends);
+  // with them the plug-in and unplug stay where the crew was planned to make them, and a
+  // session without power is left out (one walk fewer).
   const sessions: PlanSession[] = [];
   let plugIns = 0;
+  let crewMoves = 0;
   for (const bus of problem.buses) {
     const row = plug[bus.index]!;
     const p = power[bus.index]!;
@@ -323,10 +403,21 @@ function assemblePlan(
       while (u < T && row[u] === c && !(u > t && problem.slots[u]!.startMs !== problem.slots[u - 1]!.endMs)) u++;
       let first = t;
       let last = u - 1;
-      while (first <= last && p[first]! <= 0) first++;
-      while (last >= first && p[last]! <= 0) last--;
+      if (problem.yard) {
+        let any = false;
+        for (let x = first; x <= last; x++) if (p[x]! > 0) any = true;
+        if (!any) last = first - 1;
+      } else {
+        while (first <= last && p[first]! <= 0) first++;
+        while (last >= first && p[last]! <= 0) last--;
+      }
       if (first <= last) {
         const kw = Array.from(p.subarray(first, last + 1));
+        const stay = bus.stays.find((st) => st.a <= first && first < st.d)!;
+        const startMove: Move = startIsFree(problem, stay, first) ? 'driver' : 'crew';
+        const endMove: Move = endIsFree(problem, stay, last + 1) ? 'driver' : 'crew';
+        if (startMove === 'crew') crewMoves++;
+        if (endMove === 'crew' && last + 1 < T) crewMoves++;
         sessions.push({
           bus: bus.id,
           charger: problem.chargers[c]!.id,
@@ -334,6 +425,8 @@ function assemblePlan(
           end: isoAt(problem.slots[last]!.endMs, zone),
           kwh: round(kw.reduce((a, v) => a + v * dt, 0)),
           kw,
+          startMove,
+          endMove,
         });
         plugIns++;
       }
@@ -392,6 +485,9 @@ function assemblePlan(
     solveMs: 0,
     slots: problem.slots.map((s, t) => ({ start: s.start, loadKw: round(charging[t]! + s.otherKw), price: s.price, limitKw: s.limitKw })),
     sessions,
+    crewMoves,
+    crewTrade: null,
+    keptPrevious: null,
     buses: busOut,
     savings: {
       energy: round(baseline.energy - cost.energy),

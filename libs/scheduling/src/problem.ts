@@ -76,6 +76,29 @@ export interface Problem {
    * none). Such a stay keeps that charger from its first slot on. Absent: nothing pinned.
    */
   pinned?: Int32Array;
+  /** The yard crew's rules (see crew.ts); absent: no minimum plug-in, moves unlimited. */
+  yard: YardRules | null;
+  /**
+   * Re-planning: stays whose bus was already at the depot before the horizon's start, so a
+   * plug-in at their first slot is not the driver's on pulling in. Absent: none.
+   */
+  arrivedEarlier?: Uint8Array;
+  /**
+   * Re-planning: per stay, the charger and window the plan being carried out gives it from the
+   * cut-off on (charger -1: none). A re-plan keeps these where it can (see `keptAssignment`).
+   */
+  previous?: { chargerOf: Int32Array; from: Int32Array; to: Int32Array };
+  /** Cost a plan may add to make fewer crew moves or move fewer buses: max(share x cost, amount). */
+  tolerance: { share: number; amount: number };
+}
+
+/** The crew rules in slot terms. */
+export interface YardRules {
+  /** Shortest session in slots (a stay shorter than this is plugged for the whole stay). */
+  minSlots: number;
+  driversPlugIn: boolean;
+  /** Crew moves allowed per slot; null: unlimited (no crew windows given). */
+  capacity: Int32Array | null;
 }
 
 export function prepareProblem(scenario: Scenario): Problem {
@@ -147,6 +170,20 @@ export function prepareProblem(scenario: Scenario): Problem {
     };
   });
   const tariff = tariffOf(scenario);
+  let yard: YardRules | null = null;
+  if (scenario.yard) {
+    const y = scenario.yard;
+    let capacity: Int32Array | null = null;
+    if (y.crew) {
+      capacity = new Int32Array(T);
+      const windows = y.crew.map((w) => ({ from: localToMillis(w.from, scenario.timezone)!, to: localToMillis(w.to, scenario.timezone)!, moves: w.movesPerSlot }));
+      // A slot takes moves if it lies wholly inside a crew window; overlapping windows add up.
+      slots.forEach((s, t) => {
+        for (const w of windows) if (w.from <= s.startMs && s.endMs <= w.to) capacity![t] = capacity![t]! + w.moves;
+      });
+    }
+    yard = { minSlots: Math.ceil(y.minPlugInMinutes / scenario.slotMinutes - 1e-9), driversPlugIn: y.driversPlugIn, capacity };
+  }
   // Delivering one kWh to a battery costs at most (price + every demand rate spread over one
   // slot) / efficiency; a penalty well above that makes the LP serve every kWh it can.
   const maxPrice = Math.max(scenario.tariff.offPeakPrice, ...scenario.tariff.periods.map((p) => p.price));
@@ -166,6 +203,11 @@ export function prepareProblem(scenario: Scenario): Problem {
     tariff,
     shortfallPenalty,
     present,
+    yard,
+    tolerance: {
+      share: (scenario.yard?.costTolerancePercent ?? 0.5) / 100,
+      amount: scenario.yard?.costToleranceAmount ?? 5,
+    },
   };
 }
 

@@ -56,6 +56,11 @@ export interface Replan extends Plan {
     plugged: Record<string, string>;
     /** The previous plan's sessions before the cut-off, cut there (late buses left out). */
     kept: PlanSession[];
+    /**
+     * Buses whose charging from the cut-off on differs from the plan being carried out (another
+     * charger or other times), and why, in words ("charger C3 out of service: 4 buses on it").
+     */
+    moved: { buses: string[]; reasons: string[] };
   };
 }
 
@@ -85,8 +90,22 @@ export async function replan(scenario: Scenario, state: ReplanState, options: Pl
     pinned[bus.stays[0]!.id] = index.get(chargerId)!;
   }
   problem.pinned = pinned;
+  // A bus that was at the depot before the cut-off and is not on a charger: plugging it in at
+  // the cut-off is a crew move, not its driver's on pulling in.
+  const arrivedEarlier = new Uint8Array(problem.stays.length);
+  const cutMs = problem.slots[0]!.startMs;
+  for (const bus of problem.buses) {
+    const original = scenario.buses.find((b) => b.id === bus.id)!;
+    const stay = bus.stays[0]!;
+    const before = original.stays.some((st) => localToMillis(st.arrive, scenario.timezone)! < cutMs && localToMillis(st.depart, scenario.timezone)! > cutMs);
+    const late = state.lateArrivals?.[bus.id] !== undefined && localToMillis(state.lateArrivals[bus.id]!, scenario.timezone)! >= cutMs;
+    if (before && !late && stay.arriveMs <= cutMs) arrivedEarlier[stay.id] = 1;
+  }
+  problem.arrivedEarlier = arrivedEarlier;
+  if (state.previous) problem.previous = previousWindows(problem, state.previous);
   const plan = planProblem(problem, solver, options, t0);
-  return { ...plan, replan: { from: problem.slots[0]!.start, scenario: derived, outOfService, plugged, kept } };
+  const moved = state.previous ? movedBuses(problem, state.previous, plan, state, outOfService) : { buses: [], reasons: [] };
+  return { ...plan, replan: { from: problem.slots[0]!.start, scenario: derived, outOfService, plugged, kept, moved } };
 }
 
 /** The scenario from the cut-off on (exported for tests and for exporting a re-plan's input). */
@@ -242,4 +261,58 @@ export function deriveScenario(scenario: Scenario, state: ReplanState) {
     throw new ReplanStateError(parsed.problems.map((p) => ({ path: `(re-plan scenario) ${p.path}`, message: p.message })));
   }
   return { derived: parsed.scenario, outOfService, plugged, kept };
+}
+
+/** The previous plan's charger and window of each stay, from the cut-off on. */
+function previousWindows(problem: ReturnType<typeof prepareProblem>, previous: Plan) {
+  const n = problem.stays.length;
+  const chargerOf = new Int32Array(n).fill(-1);
+  const from = new Int32Array(n);
+  const to = new Int32Array(n);
+  const slotMs = problem.slots[0]!.endMs - problem.slots[0]!.startMs;
+  const startMs = problem.slots[0]!.startMs;
+  const chargerIndex = new Map(problem.chargers.map((c) => [c.id, c.index]));
+  const busIndex = new Map(problem.buses.map((b) => [b.id, b]));
+  for (const s of previous.sessions) {
+    const bus = busIndex.get(s.bus);
+    const c = chargerIndex.get(s.charger);
+    if (!bus || c === undefined) continue;
+    const a = Math.max(0, Math.round((Date.parse(s.start) - startMs) / slotMs));
+    const b = Math.min(problem.T, Math.round((Date.parse(s.end) - startMs) / slotMs));
+    if (b <= a) continue;
+    const stay = bus.stays.find((st) => st.a < b && a < st.d);
+    if (!stay) continue;
+    // One window per stay: the longest session of the stay from the cut-off on.
+    if (chargerOf[stay.id]! >= 0 && to[stay.id]! - from[stay.id]! >= b - a) continue;
+    chargerOf[stay.id] = c;
+    from[stay.id] = Math.max(a, stay.a);
+    to[stay.id] = Math.min(b, stay.d);
+  }
+  return { chargerOf, from, to };
+}
+
+/** Buses whose sessions from the cut-off on differ from the previous plan's, and why. */
+function movedBuses(problem: ReturnType<typeof prepareProblem>, previous: Plan, plan: Plan, state: ReplanState, outOfService: string[]) {
+  const cutMs = problem.slots[0]!.startMs;
+  const key = (p: Plan, bus: string) =>
+    p.sessions
+      .filter((s) => s.bus === bus && Date.parse(s.end) > cutMs)
+      .map((s) => `${s.charger}@${Math.max(Date.parse(s.start), cutMs)}-${Date.parse(s.end)}`)
+      .join(',');
+  const buses = problem.buses.map((b) => b.id).filter((id) => key(previous, id) !== key(plan, id)).sort();
+  const reasons: string[] = [];
+  for (const c of outOfService) {
+    const on = new Set(previous.sessions.filter((s) => s.charger === c && Date.parse(s.end) > cutMs).map((s) => s.bus));
+    reasons.push(`charger ${c} out of service: ${on.size} ${on.size === 1 ? 'bus was' : 'buses were'} planned on it`);
+  }
+  const late = Object.keys(state.lateArrivals ?? {});
+  if (late.length) reasons.push(`${late.length === 1 ? 'bus' : 'buses'} ${late.join(', ')} running late`);
+  const reported = Object.keys(state.energyKwh ?? {});
+  if (reported.length) reasons.push(`battery levels reported for ${reported.length} ${reported.length === 1 ? 'bus' : 'buses'}`);
+  const forced = new Set<string>();
+  for (const c of outOfService) for (const s of previous.sessions) if (s.charger === c && Date.parse(s.end) > cutMs) forced.add(s.bus);
+  for (const b of late) forced.add(b);
+  const others = buses.filter((b) => !forced.has(b)).length;
+  if (others > 0) reasons.push(`${others} other ${others === 1 ? 'bus' : 'buses'} moved to make room or to keep the cost down`);
+  return { buses, reasons };
 }

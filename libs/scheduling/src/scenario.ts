@@ -52,6 +52,26 @@ const busSchema = z.strictObject({
   stays: z.array(staySchema).min(1, 'must list at least one stay at the depot'),
 });
 
+const crewWindowSchema = z.strictObject({
+  from: localTime,
+  to: localTime,
+  movesPerSlot: z.number().int('must be a whole number of moves').positive('must be 1 or more'),
+});
+
+/** Extension: the yard crew (who plugs buses in and out, and when). */
+export const yardSchema = z.strictObject({
+  minPlugInMinutes: z.number().int('must be a whole number of minutes').nonnegative('must be 0 or more').default(0),
+  driversPlugIn: z.boolean().default(true),
+  crew: z.array(crewWindowSchema).optional(),
+  /**
+   * Format extension: how much dearer (per cent of the night's cost, or amount in the tariff's
+   * currency, whichever is larger) a plan may be to make fewer crew moves or, when re-planning,
+   * to move fewer buses. Defaults: 0.5 % or 5.
+   */
+  costTolerancePercent: z.number().min(0, 'must be 0 or more').max(10, 'must be at most 10').default(0.5),
+  costToleranceAmount: z.number().min(0, 'must be 0 or more').max(1000, 'must be at most 1000').default(5),
+});
+
 export const scenarioSchema = z.strictObject({
   version: z.literal(1, 'must be 1'),
   timezone: z.string().refine((s) => IANAZone.isValidZone(s), 'must be an IANA time zone such as America/Chicago'),
@@ -81,6 +101,7 @@ export const scenarioSchema = z.strictObject({
     peaksSoFarKw: z.record(z.string(), kwh).default({}),
   }),
   buses: z.array(busSchema).min(1, 'must list at least one bus'),
+  yard: yardSchema.optional(),
 });
 
 export type Scenario = z.output<typeof scenarioSchema>;
@@ -273,6 +294,13 @@ function checkScenario(s: Scenario): Problem[] {
   for (const key of Object.keys(s.tariff.peaksSoFarKw)) {
     if (key !== 'facility' && !periodNames.has(key)) add(`tariff.peaksSoFarKw.${key}`, 'must be "facility" or the name of a period');
   }
+
+  s.yard?.crew?.forEach((w, i) => {
+    const path = `yard.crew[${i}]`;
+    const from = checkTime(`${path}.from`, w.from);
+    const to = checkTime(`${path}.to`, w.to);
+    if (from !== null && to !== null && to <= from) add(`${path}.to`, 'must be after from');
+  });
 
   const busIds = new Set<string>();
   s.buses.forEach((b, i) => {

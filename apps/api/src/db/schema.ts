@@ -104,6 +104,11 @@ export const depots = pgTable(
     billingStartDay: integer('billing_start_day').notNull().default(1),
     coldWeatherFactors: jsonb('cold_weather_factors').$type<{ belowF: number; factor: number }[]>().notNull()
       .default([{ belowF: 50, factor: 1.1 }, { belowF: 32, factor: 1.25 }, { belowF: 14, factor: 1.4 }]),
+    /** The yard crew plans keep to (contracts' YardCrew); null: not set. */
+    yardCrew: jsonb('yard_crew').$type<{
+      minPlugInMinutes: number; driversPlugIn: boolean; shifts: { from: string; to: string; movesPerSlot: number }[];
+      costTolerancePercent?: number; costToleranceAmount?: number;
+    }>(),
     createdAt: createdAt(),
   },
   (t) => [index('depots_org_idx').on(t.organisationId)],

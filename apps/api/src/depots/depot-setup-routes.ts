@@ -2,7 +2,7 @@ import { z } from 'zod';
 import {
   ROLES, assignRatePlanSchema, cabinetInputSchema, cabinetSchema, chargerInputSchema, chargerSchema, depotDetailSchema,
   depotIdParamsSchema, depotItemParamsSchema, depotSettingsSchema, isoDate, loadReductionWindowInputSchema,
-  loadReductionWindowSchema, peaksSoFarSchema,
+  loadReductionWindowSchema, peaksSoFarSchema, yardCrewSchema,
 } from '@nightyard/contracts';
 import type { AppDeps } from '../app-deps';
 import type { ApiRoutes } from '../http/route';
@@ -67,6 +67,12 @@ export function depotSetupRoutes(api: ApiRoutes, { db, clock }: AppDeps) {
       access: EDITORS, params: depotIdParamsSchema, body: peaksSoFarSchema, response: z.object({ peaksSoFar: peaksSoFarSchema }),
       idempotent: true },
     async ({ user, params, body }) => ({ peaksSoFar: await setup.savePeaksSoFar(db, user, params.depotId, body, clock()) }),
+  );
+  api.add(
+    { method: 'put', path: '/depots/:depotId/yard-crew', summary: 'Set the yard crew plans keep to: minimum plug-in, driver moves, crew shifts',
+      tag: 'depots', access: EDITORS, params: depotIdParamsSchema, body: yardCrewSchema, response: z.object({ yardCrew: yardCrewSchema }),
+      idempotent: true },
+    async ({ user, params, body }) => ({ yardCrew: await setup.saveYardCrew(db, user, params.depotId, body) }),
   );
   api.add(
     { method: 'post', path: '/depots/:depotId/rate-plans', summary: 'Bill the depot under a rate plan from a date', tag: 'rates',

@@ -1,7 +1,7 @@
 import { and, asc, eq, sql } from 'drizzle-orm';
 import { DateTime } from 'luxon';
 import type {
-  Cabinet, Charger, ChargerInput, DepotDetail, DepotSettings, LoadReductionWindow, PeaksSoFar,
+  Cabinet, Charger, ChargerInput, DepotDetail, DepotSettings, LoadReductionWindow, PeaksSoFar, YardCrew,
 } from '@nightyard/contracts';
 import type { Db } from '../db/client';
 import {
@@ -40,6 +40,7 @@ export async function depotDetail(db: Db, caller: AuthUser, depotId: string): Pr
     chargers: chs,
     loadReductionWindows: windows.map((w) => ({ id: w.id, start: local(w.startsAt), end: local(w.endsAt), limitKw: w.limitKw, note: w.note })),
     peaksSoFar: peaks ? { billingPeriodStart: peaks.billingPeriodStart, facilityKw: peaks.facilityKw, periods: peaks.periodsKw } : null,
+    yardCrew: depot.yardCrew ? { costTolerancePercent: 0.5, costToleranceAmount: 5, ...depot.yardCrew } : null,
     ratePlans: plans,
   };
 }
@@ -70,6 +71,12 @@ const toCharger = (c: ChargerRow, cabinetLabel: string | null): Charger => ({
 export async function updateDepotSettings(db: Db, caller: AuthUser, depotId: string, s: DepotSettings): Promise<void> {
   await depotOf(db, caller, depotId);
   await db.update(depots).set(s).where(eq(depots.id, depotId));
+}
+
+export async function saveYardCrew(db: Db, caller: AuthUser, depotId: string, crew: YardCrew): Promise<YardCrew> {
+  await depotOf(db, caller, depotId);
+  await db.update(depots).set({ yardCrew: crew }).where(eq(depots.id, depotId));
+  return crew;
 }
 
 async function cabinetOfDepot(db: Db, depotId: string, cabinetId: string | null): Promise<string | null> {

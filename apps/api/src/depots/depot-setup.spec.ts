@@ -121,6 +121,36 @@ describe('scenario base', () => {
     ]);
   });
 
+  it('carries the yard crew into the scenario: minimum plug-in, driver moves and each shift as dated crew windows', async () => {
+    const yardCrew = { minPlugInMinutes: 45, driversPlugIn: true, shifts: [{ from: '15:00', to: '23:30', movesPerSlot: 3 }, { from: '04:30', to: '07:00', movesPerSlot: 2 }] };
+    await app.request().put(`${base()}/yard-crew`).set(as(fin)).send(yardCrew).expect(403);
+    const bad = await app.request().put(`${base()}/yard-crew`).set(as(fac)).send({ ...yardCrew, minPlugInMinutes: -5, shifts: [{ from: '25:00', to: '07:00', movesPerSlot: 0 }] }).expect(400);
+    expect(Object.keys(bad.body.error.fields ?? {})).toEqual(expect.arrayContaining(['minPlugInMinutes', 'shifts[0].from', 'shifts[0].movesPerSlot']));
+    const saved = await app.request().put(`${base()}/yard-crew`).set(as(fac)).send(yardCrew).expect(200);
+    const withDefaults = { ...yardCrew, costTolerancePercent: 0.5, costToleranceAmount: 5 };
+    expect(saved.body.yardCrew).toEqual(withDefaults);
+    expect((await app.request().get(base()).set(as(fin)).expect(200)).body.depot.yardCrew).toEqual(withDefaults);
+    const res = await app.request().get(`${base()}/scenario-base`).query({ start: '2026-12-09T12:00', end: '2026-12-10T09:00' }).set(as(fac)).expect(200);
+    expect(res.body.scenario.yard).toEqual({
+      minPlugInMinutes: 45,
+      driversPlugIn: true,
+      crew: [
+        { from: '2026-12-09T15:00', to: '2026-12-09T23:30', movesPerSlot: 3 },
+        { from: '2026-12-10T04:30', to: '2026-12-10T07:00', movesPerSlot: 2 },
+      ],
+      costTolerancePercent: 0.5,
+      costToleranceAmount: 5,
+    });
+    const parsed = parseScenario({
+      ...res.body.scenario,
+      buses: [{ id: '1', usableKwh: 200, maxKw: 60, arrivalKwh: 50, stays: [{ arrive: '2026-12-09T16:00', depart: '2026-12-10T06:00', departMinKwh: 150 }] }],
+    });
+    expect(parsed.ok ? [] : parsed.problems).toEqual([]);
+    await app.request().put(`${base()}/yard-crew`).set(as(fac)).send({ ...yardCrew, shifts: [], costTolerancePercent: 1, costToleranceAmount: 12 }).expect(200);
+    const any = await app.request().get(`${base()}/scenario-base`).query({ start: '2026-12-09T12:00', end: '2026-12-10T09:00' }).set(as(fac)).expect(200);
+    expect(any.body.scenario.yard).toEqual({ minPlugInMinutes: 45, driversPlugIn: true, costTolerancePercent: 1, costToleranceAmount: 12 });
+  });
+
   it('says which date has no rate plan', async () => {
     const res = await app.request().get(`${base()}/scenario-base`).query({ start: '2025-06-01T12:00', end: '2025-06-02T09:00' }).set(as(fac)).expect(400);
     expect(res.body.error.message).toMatch(/No rate plan applies to Depot one on 2025-06-01/);

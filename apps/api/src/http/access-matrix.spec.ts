@@ -44,6 +44,7 @@ const EXPECTED: Record<string, 'public' | readonly Role[]> = {
   'DELETE /depots/:depotId/cabinets/:id': EDIT_DEPOT,
   'PUT /depots/:depotId/load-reduction-windows': EDIT_DEPOT,
   'PUT /depots/:depotId/peaks-so-far': EDIT_DEPOT,
+  'PUT /depots/:depotId/yard-crew': EDIT_DEPOT,
   'POST /depots/:depotId/rate-plans': EDIT_DEPOT,
   'DELETE /depots/:depotId/rate-plans/:effectiveFrom': EDIT_DEPOT,
   'GET /depots/:depotId/scenario-base': ['supervisor', 'facilities', 'admin'],

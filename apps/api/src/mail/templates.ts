@@ -66,6 +66,8 @@ export function planRevisedMail(p: {
   to: string; name: string; depot: string; version: number; at: string; reportedBy: string; what: string; moved: string[];
   /** The yard's steps due in the next hour, as the yard page words them ("23:07 Unplug bus 218 ..."). */
   steps?: string[]; link: MailLink;
+  /** How many buses the re-plan moved and why, in words (the engine's reasons). */
+  why?: { buses: number; reasons: string[] };
 }): OutgoingMail {
   return {
     to: p.to,
@@ -77,6 +79,9 @@ export function planRevisedMail(p: {
       '',
       p.moved.length ? `Changed: ${p.moved.join('; ')}.` : 'No bus changed charger or times.',
       '',
+      ...(p.why && p.why.reasons.length
+        ? [`${p.why.buses} ${p.why.buses === 1 ? 'bus' : 'buses'} moved from the cut-off on, because: ${p.why.reasons.join('; ')}.`, '']
+        : []),
       ...(p.steps?.length ? ['Steps in the next hour:', ...p.steps.map((s) => `- ${s}`), ''] : []),
       `${p.link.label}: ${p.link.url}`,
       '',

@@ -1,6 +1,6 @@
 import { and, desc, eq, gt, lt, lte } from 'drizzle-orm';
 import { DateTime } from 'luxon';
-import { ratePlanDefinitionSchema, type RatePlanDefinition } from '@nightyard/contracts';
+import { ratePlanDefinitionSchema, type RatePlanDefinition, type YardCrew } from '@nightyard/contracts';
 import type { ScenarioInput } from '@nightyard/scheduling';
 import type { Db } from '../db/client';
 import { billingPeaks, chargers, depotRatePlans, loadReductionWindows, powerCabinets, ratePlans } from '../db/schema';
@@ -87,6 +87,7 @@ export async function buildScenarioBase(db: Db, caller: AuthUser, depotId: strin
     const b = DateTime.fromJSDate(r.endsAt, { zone });
     return { from: (a < from ? from : a).toFormat(LOCAL), to: (b > to ? to : b).toFormat(LOCAL), limitKw: r.limitKw };
   });
+  const yard = depot.yardCrew ? yardFor(depot.yardCrew, from, to) : null;
   const profile = depot.otherLoadKw;
   const hourly = profile.length === 24 ? profile : null;
   return {
@@ -116,8 +117,38 @@ export async function buildScenarioBase(db: Db, caller: AuthUser, depotId: strin
         facilityDemandCharge: tariff.facilityDemandCharge,
         peaksSoFarKw,
       },
+      ...(yard ? { yard } : {}),
     },
     notes,
+  };
+}
+
+/**
+ * The depot's yard crew over the horizon: each daily shift written as dated crew windows (a
+ * shift that ends at or before its start runs past midnight), cut to the horizon. No shift
+ * listed: the crew can make moves at any hour (the scenario's `crew` is left out).
+ */
+export function yardFor(crew: Omit<YardCrew, 'costTolerancePercent' | 'costToleranceAmount'> & Partial<YardCrew>, from: DateTime, to: DateTime): NonNullable<ScenarioInput['yard']> {
+  const windows: { from: string; to: string; movesPerSlot: number }[] = [];
+  for (let day = from.startOf('day').minus({ days: 1 }); day < to; day = day.plus({ days: 1 })) {
+    for (const shift of crew.shifts) {
+      const [fh, fm] = shift.from.split(':').map(Number);
+      const [th, tm] = shift.to.split(':').map(Number);
+      const a = day.set({ hour: fh!, minute: fm! });
+      let b = day.set({ hour: th!, minute: tm! });
+      if (b <= a) b = b.plus({ days: 1 });
+      const x = a < from ? from : a;
+      const y = b > to ? to : b;
+      if (y > x) windows.push({ from: x.toFormat(LOCAL), to: y.toFormat(LOCAL), movesPerSlot: shift.movesPerSlot });
+    }
+  }
+  windows.sort((p, q) => (p.from < q.from ? -1 : p.from > q.from ? 1 : 0));
+  return {
+    minPlugInMinutes: crew.minPlugInMinutes,
+    driversPlugIn: crew.driversPlugIn,
+    ...(crew.shifts.length ? { crew: windows } : {}),
+    costTolerancePercent: crew.costTolerancePercent ?? 0.5,
+    costToleranceAmount: crew.costToleranceAmount ?? 5,
   };
 }
 

@@ -53,6 +53,12 @@ async function tonightsPlan(db: Db, depotId: string, now: Date) {
   return row ?? null;
 }
 
+/** The re-plan's count of moved buses and its reasons (absent from results of older engines). */
+function movedWhy(next: unknown): { buses: number; reasons: string[] } | undefined {
+  const moved = (next as { replan?: { moved?: { buses: string[]; reasons: string[] } } } | null)?.replan?.moved;
+  return moved ? { buses: moved.buses.length, reasons: moved.reasons } : undefined;
+}
+
 /** A published plan's result and scenario never change (a revision is a new plan): kept parsed, by plan id. */
 const publishedDocuments = new Map<string, { result: PlanResult; scenario: ScenarioInput }>();
 
@@ -431,7 +437,7 @@ async function replanAndPublish(deps: PublishDeps, caller: AuthUser, depotId: st
   for (const r of recipients) {
     await deps.mailer.send(planRevisedMail({
       to: r.email, name: r.name, depot: depot.name, version: revision.version, at: cutoff.toFormat('HH:mm'), reportedBy: caller.name,
-      what: describe, moved: moved.map((m) => `${m.bus}: ${m.after}`), steps: soon, link: nightMailLink(r.roles, { planId: revision.id, serviceDate: revision.serviceDate }, deps.publicUrl),
+      what: describe, moved: moved.map((m) => `${m.bus}: ${m.after}`), steps: soon, why: movedWhy(next), link: nightMailLink(r.roles, { planId: revision.id, serviceDate: revision.serviceDate }, deps.publicUrl),
     })).then(() => notified++, () => undefined);
   }
   return {

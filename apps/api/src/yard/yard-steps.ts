@@ -81,8 +81,10 @@ export function yardSteps(
             : `then wait: no charger is free for it until ${hhmm(following.start, context.zone)} (charger ${following.charger})`;
         text = `Unplug bus ${s.bus} from charger ${s.charger} now (out of service), ${then}`;
       }
+      // A forced unplug (charger out) is always the crew's; otherwise the plan says who.
+      const by = out && action === 'disconnect' ? 'crew' : ((action === 'connect' ? s.startMove : s.endMove) ?? 'crew');
       steps.push({
-        key, action, bus: s.bus, charger: s.charger, at, kwh,
+        key, action, by, bus: s.bus, charger: s.charger, at, kwh,
         status: done ? (done.outcome === 'missed' ? 'missed' : 'done') : Date.parse(at) + OVERDUE_AFTER_MS < now.getTime() ? 'overdue' : 'upcoming',
         confirmedAt: done && done.outcome !== 'missed' ? done.at.toISOString() : null,
         confirmedBy: done?.by ?? null,
@@ -99,7 +101,7 @@ export function yardSteps(
     const late = key + LATE;
     const done = confirmations.get(late);
     steps.push({
-      key: late, action: 'disconnect', bus, charger, at: c.at.toISOString(), kwh: 0,
+      key: late, action: 'disconnect', by: 'crew', bus, charger, at: c.at.toISOString(), kwh: 0,
       status: done ? 'done' : c.at.getTime() + OVERDUE_AFTER_MS < now.getTime() ? 'overdue' : 'upcoming',
       confirmedAt: done?.at.toISOString() ?? null, confirmedBy: done?.by ?? null,
       text: `Disconnect bus ${bus} from charger ${charger} (it was not unplugged at its time)`,
@@ -124,6 +126,7 @@ export function mergeSessions(kept: PlanResult['sessions'], next: PlanResult['se
     const join = out.find((k) => k.bus === s.bus && k.charger === s.charger && Date.parse(k.end) === Date.parse(s.start));
     if (join) {
       join.end = s.end;
+      if (s.endMove) join.endMove = s.endMove;
       join.kw.push(...s.kw);
       join.kwh = Math.round((join.kwh + s.kwh) * 1e6) / 1e6;
     } else out.push({ ...s, kw: [...s.kw] });

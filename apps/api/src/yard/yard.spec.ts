@@ -97,6 +97,8 @@ describe('yard: reports re-plan the rest of the night', () => {
     expect(depot.body.depot.chargers.find((c: { label: string }) => c.label === charger)).toMatchObject({ status: 'out_of_service', statusReason: 'Connector latch broken' });
     const [mail] = await mailFor(yard.email);
     expect(mail!.subject).toMatch(/Plan revised at 23:00: Test depot \(version 2\)/);
+    // How many buses moved, and why, as the engine counts them.
+    expect(mail!.text).toMatch(new RegExp(`\\d+ bus(es)? moved from the cut-off on, because: charger ${charger} out of service: \\d+ bus`));
     // Each recipient's link opens a page their role can use: the Yard at that night, the review.
     expect(mail!.text).toContain('Open the yard view for that night: http://nightyard.test/yard?night=2026-12-09');
     const [supMail] = await mailFor(sup.email, 2);

@@ -27,10 +27,14 @@ async function main(): Promise<number> {
   return 0;
 }
 
+// The exit code is set, not forced: the process ends once standard output has drained, so a
+// slow reader (a pipe that takes 64 KB at a time) still gets the whole document.
 main().then(
-  (code) => process.exit(code),
+  (code) => {
+    process.exitCode = code;
+  },
   (error) => {
     process.stderr.write(`plan failed: ${(error as Error).stack ?? error}\n`);
-    process.exit(1);
+    process.exitCode = 1;
   },
 );

@@ -47,6 +47,8 @@ function periodIndex(periods: Json[], ms: number, zone: string): number {
 export interface CheckOptions {
   /** Reported costs must equal the recomputation within this relative tolerance. */
   costTolerance?: number;
+  /** Re-plans: buses already on a charger at the start (their plug-in, and its minimum, was earlier). */
+  plugged?: Record<string, string>;
 }
 
 export function checkPlan(scenario: Json, plan: Json, options: CheckOptions = {}): string[] {
@@ -182,6 +184,8 @@ export function checkPlan(scenario: Json, plan: Json, options: CheckOptions = {}
     if (out.reason !== null && !['dwell', 'charger', 'cabinet', 'site', 'taper'].includes(out.reason)) fail(`bus ${bus.id}: unknown reason ${out.reason}`);
   }
 
+  checkCrew(scenario, plan, { startMs, endMs, slotMs, zone, fail, plugged: options.plugged ?? {} });
+
   // Costs from the slots and the tariff.
   let energy = 0;
   let peak = 0;
@@ -214,4 +218,56 @@ export function checkPlan(scenario: Json, plan: Json, options: CheckOptions = {}
   if (anyShort !== (plan.status === 'short')) fail(`status ${plan.status} but shortfall ${anyShort}`);
   for (const key of ['kind', 'energy', 'demand', 'total', 'peakKw', 'exceedsSiteLimit', 'shortfallKwh', 'shortfallCost']) if (!(key in plan.baseline)) fail(`baseline lacks ${key}`);
   return errors;
+}
+
+/**
+ * The yard crew (scenario extension `yard`): minimum plug-in, who makes each move, crew moves
+ * only inside crew windows and at most movesPerSlot in one slot, and the reported count.
+ */
+function checkCrew(
+  scenario: Json, plan: Json, h: { startMs: number; endMs: number; slotMs: number; zone: string; fail: (m: string) => void; plugged: Record<string, string> },
+): void {
+  const { startMs, endMs, slotMs, zone, fail, plugged } = h;
+  const yard = scenario.yard;
+  const drivers: boolean = yard ? (yard.driversPlugIn ?? true) : true;
+  const minMs = (yard?.minPlugInMinutes ?? 0) * 60_000;
+  const crew = (yard?.crew as Json[] | undefined)?.map((w) => ({ from: localMs(w.from, zone), to: localMs(w.to, zone), moves: w.movesPerSlot as number }));
+  const movesAt = new Map<number, number>();
+  let count = 0;
+  const crewMove = (ms: number, what: string) => {
+    if (ms >= endMs) return; // after the horizon: not part of the plan
+    count++;
+    movesAt.set(ms, (movesAt.get(ms) ?? 0) + 1);
+    if (crew) {
+      const room = Math.max(0, ...crew.filter((w) => w.from <= ms && ms + slotMs <= w.to).map((w) => w.moves));
+      if (room === 0) fail(`${what}: crew move at ${new Date(ms).toISOString()} outside every crew window`);
+    }
+  };
+  for (const [i, s] of (plan.sessions as Json[]).entries()) {
+    const a = Date.parse(s.start);
+    const b = Date.parse(s.end);
+    const bus = scenario.buses.find((x: Json) => x.id === s.bus);
+    if (!bus) continue;
+    const stay = bus.stays.find((st: Json) => localMs(st.arrive, zone) <= a && b <= localMs(st.depart, zone));
+    if (!stay) continue;
+    // The whole slots of the stay inside the horizon.
+    const first = Math.max(startMs, startMs + Math.ceil((localMs(stay.arrive, zone) - startMs) / slotMs) * slotMs);
+    const last = Math.min(endMs, startMs + Math.floor((localMs(stay.depart, zone) - startMs) / slotMs) * slotMs);
+    const what = `session ${i} (${s.bus} on ${s.charger})`;
+    const continued = a === startMs && plugged[s.bus] === s.charger;
+    if (yard && b - a < minMs && !(a === first && b === last) && !continued) fail(`${what}: ${(b - a) / 60_000} min plugged in, below the minimum ${yard.minPlugInMinutes} min and not the whole stay`);
+    if (s.startMove !== 'driver' && s.startMove !== 'crew') fail(`${what}: startMove ${s.startMove}`);
+    if (s.endMove !== 'driver' && s.endMove !== 'crew') fail(`${what}: endMove ${s.endMove}`);
+    if (s.startMove === 'driver' && !(drivers && a === first) && !continued) fail(`${what}: plug-in at ${s.start} marked driver, but it is not at pull-in`);
+    if (s.endMove === 'driver' && !((drivers && b === last) || b >= endMs)) fail(`${what}: unplug at ${s.end} marked driver, but it is not at pull-out`);
+    if (s.startMove !== 'driver') crewMove(a, `${what} plug-in`);
+    if (s.endMove !== 'driver') crewMove(b, `${what} unplug`);
+  }
+  if (crew) {
+    for (const [ms, n] of movesAt) {
+      const room = Math.max(0, ...crew.filter((w) => w.from <= ms && ms + slotMs <= w.to).map((w) => w.moves));
+      if (n > room) fail(`${n} crew moves in the slot at ${new Date(ms).toISOString()}, the crew can make ${room}`);
+    }
+  }
+  if (plan.crewMoves !== count) fail(`crewMoves ${plan.crewMoves}, the sessions give ${count}`);
 }

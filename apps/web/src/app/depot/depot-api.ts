@@ -8,6 +8,7 @@ import type {
   DepotSettings,
   LoadReductionWindow,
   PeaksSoFar,
+  YardCrew,
 } from '@nightyard/contracts';
 import { firstValueFrom, map } from 'rxjs';
 
@@ -81,5 +82,9 @@ export class DepotApi {
     return firstValueFrom(
       this.http.put<{ peaksSoFar: PeaksSoFar }>(this.url(depotId, 'peaks-so-far'), body).pipe(map((r) => r.peaksSoFar)),
     );
+  }
+
+  saveYardCrew(depotId: string, body: YardCrew): Promise<YardCrew> {
+    return firstValueFrom(this.http.put<{ yardCrew: YardCrew }>(this.url(depotId, 'yard-crew'), body).pipe(map((r) => r.yardCrew)));
   }
 }

@@ -20,6 +20,7 @@ import { DepotApi } from './depot-api';
 import { DepotSettingsPanel } from './depot-settings-panel';
 import { LoadReductionWindowsPanel } from './load-reduction-windows-panel';
 import { PeaksSoFarPanel } from './peaks-so-far-panel';
+import { YardCrewPanel } from './yard-crew-panel';
 
 type LoadState = 'loading' | 'loaded' | 'failed' | 'none';
 
@@ -36,6 +37,7 @@ type LoadState = 'loading' | 'loaded' | 'failed' | 'none';
     MatIconModule,
     MatProgressBarModule,
     PeaksSoFarPanel,
+    YardCrewPanel,
     SectionIntro,
   ],
   templateUrl: './depot-page.html',
@@ -121,6 +123,10 @@ export class DepotPage {
 
   protected onPeaksSaved(peaks: DepotDetail['peaksSoFar']): void {
     this.depot.update((d) => (d ? { ...d, peaksSoFar: peaks } : d));
+  }
+
+  protected onYardCrewSaved(yardCrew: DepotDetail['yardCrew']): void {
+    this.depot.update((d) => (d ? { ...d, yardCrew } : d));
   }
 
   protected openCharger(charger?: Charger): void {

@@ -3,6 +3,7 @@ import { MatIconModule } from '@angular/material/icon';
 import type { PlanDetail, PlanResult, PlanSummary } from '@nightyard/contracts';
 import { BusPlanTable } from './bus-plan-table';
 import { ChargerTimeline, type TimelineCharger } from './charger-timeline';
+import { CrewMovesNote } from './crew-moves-note';
 import { PlanCompare } from './plan-compare';
 import { busRows, money, num, pct, planFigures } from './plan-format';
 import { SiteLoadChart } from './site-load-chart';
@@ -10,7 +11,7 @@ import { SiteLoadChart } from './site-load-chart';
 /** A finished plan: the figures, the charger timeline, the buses, the site load, the comparison. */
 @Component({
   selector: 'ny-plan-review',
-  imports: [BusPlanTable, ChargerTimeline, MatIconModule, PlanCompare, SiteLoadChart],
+  imports: [BusPlanTable, ChargerTimeline, CrewMovesNote, MatIconModule, PlanCompare, SiteLoadChart],
   templateUrl: './plan-review.html',
   styleUrl: './plan-review.scss',
   changeDetection: ChangeDetectionStrategy.OnPush,

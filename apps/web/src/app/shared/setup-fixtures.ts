@@ -47,6 +47,7 @@ export function depotDetail(overrides: Partial<DepotDetail> = {}): DepotDetail {
     ],
     loadReductionWindows: [{ id: '00000000-0000-4000-8000-0000000000e1', start: '2026-12-10T16:00', end: '2026-12-10T19:00', limitKw: 300, note: 'Utility event' }],
     peaksSoFar: { billingPeriodStart: '2026-12-01', facilityKw: 212, periods: { 'on-peak': 180 } },
+    yardCrew: { minPlugInMinutes: 45, driversPlugIn: true, shifts: [{ from: '15:00', to: '23:30', movesPerSlot: 3 }, { from: '04:30', to: '07:00', movesPerSlot: 2 }], costTolerancePercent: 0.5, costToleranceAmount: 5 },
     ratePlans: [{ ratePlanId: '00000000-0000-4000-8000-0000000000f1', name: 'Commercial TOU', effectiveFrom: '2026-06-01' }],
     ...overrides,
   };

@@ -14,7 +14,7 @@ import {
   type TemplateRef,
 } from '@angular/core';
 import { ADVISORY, HIGH_VOLTAGE_WARNING, SAFETY_CAUTIONS } from './safety';
-import { clock, day, type StepView } from './yard-format';
+import { clock, day, moveBy, type StepView } from './yard-format';
 import type { ChargerView } from './yard-store';
 
 /** Which run sheets to print: the whole depot, or one charger. */
@@ -62,6 +62,7 @@ export interface RunSheetChoice {
                   <th scope="col">Time</th>
                   <th scope="col">Bus</th>
                   <th scope="col">Step</th>
+                  <th scope="col">By</th>
                   <th scope="col" class="ny-rs-num">kWh</th>
                   <th scope="col">Done at</th>
                   <th scope="col" class="ny-rs-sign">Initials</th>
@@ -73,12 +74,13 @@ export interface RunSheetChoice {
                     <td>{{ row.time }}</td>
                     <td>{{ row.bus }}</td>
                     <td>{{ row.action }}</td>
+                    <td>{{ row.by }}</td>
                     <td class="ny-rs-num">{{ row.kwh }}</td>
                     <td>{{ row.done }}</td>
                     <td class="ny-rs-sign"></td>
                   </tr>
                 } @empty {
-                  <tr><td colspan="6">No bus is planned on this charger tonight.</td></tr>
+                  <tr><td colspan="7">No bus is planned on this charger tonight.</td></tr>
                 }
               </tbody>
             </table>
@@ -200,6 +202,8 @@ export class RunSheets {
           bus: s.step.bus,
           // The server's words for the step (an unplug forced by a report says where the bus goes).
           action: s.title,
+          // Who makes the move: the driver on pulling in or out, or the yard crew.
+          by: moveBy(s.step),
           kwh: s.step.action === 'connect' ? new Intl.NumberFormat(undefined, { maximumFractionDigits: 1 }).format(s.step.kwh) : '',
           done: s.state === 'missed' ? 'Did not happen' : s.doneNote ? s.doneNote.replace(/^Done /, '') : '',
         })),

@@ -127,6 +127,12 @@ export function stepTitle(step: Pick<YardStep, 'action' | 'bus' | 'charger'> & {
     : `Disconnect bus ${step.bus} from charger ${step.charger}`;
 }
 
+/** Who makes a step, in the run sheet's words: "Crew", "Driver, on pulling in" or "Driver, on pulling out". */
+export function moveBy(step: Pick<YardStep, 'action' | 'by'>): string {
+  if (step.by !== 'driver') return 'Crew';
+  return step.action === 'connect' ? 'Driver, on pulling in' : 'Driver, on pulling out';
+}
+
 /** A step's state now: confirmed (or confirmed here and being saved), overdue or upcoming. */
 export function stepState(step: YardStep, nowMs: number, outbox: OutboxState | null): StepState {
   if (step.status === 'missed') return 'missed';

@@ -1,0 +1,58 @@
+import { provideHttpClient } from '@angular/common/http';
+import { HttpTestingController, provideHttpClientTesting } from '@angular/common/http/testing';
+import { ComponentFixture, TestBed } from '@angular/core/testing';
+import { DEPOT_ID, depotDetail } from '../shared/setup-fixtures';
+import { settle } from '../testing/fixtures';
+import { YardCrewPanel } from './yard-crew-panel';
+
+describe('YardCrewPanel', () => {
+  let fixture: ComponentFixture<YardCrewPanel>;
+  let el: HTMLElement;
+  let mock: HttpTestingController;
+
+  beforeEach(async () => {
+    TestBed.configureTestingModule({ providers: [provideHttpClient(), provideHttpClientTesting()] });
+    mock = TestBed.inject(HttpTestingController);
+    fixture = TestBed.createComponent(YardCrewPanel);
+    fixture.componentRef.setInput('depotId', DEPOT_ID);
+    fixture.componentRef.setInput('yardCrew', depotDetail().yardCrew);
+    fixture.componentRef.setInput('canEdit', true);
+    el = fixture.nativeElement;
+    await refresh();
+  });
+
+  afterEach(() => mock.verify());
+
+  async function refresh() {
+    await settle();
+    await fixture.whenStable();
+    fixture.detectChanges();
+  }
+
+  const button = (text: string) => [...el.querySelectorAll('button')].find((b) => b.textContent?.replace(/\s+/g, ' ').trim().endsWith(text))!;
+  function field(label: string): HTMLInputElement {
+    const l = [...el.querySelectorAll('label')].find((x) => x.textContent?.trim() === label)!;
+    return el.querySelector<HTMLInputElement>(`#${l.getAttribute('for')}`)!;
+  }
+
+  it('shows the crew in the same terms as the plans, then saves a changed shift', async () => {
+    const text = el.textContent!.replace(/\s+/g, ' ');
+    expect(text).toContain('45 min');
+    expect(text).toContain('Drivers plug in on pulling in and unplug on pulling out');
+    expect(text).toContain('15:00-23:30, 3 moves per 15 min; 04:30-07:00, 2 moves per 15 min');
+    button('Edit yard crew').click();
+    await refresh();
+    const to = field('Shift 1 to');
+    to.value = '23:00';
+    to.dispatchEvent(new Event('input'));
+    await refresh();
+    button('Save yard crew').click();
+    await refresh();
+    const req = mock.expectOne(`/api/depots/${DEPOT_ID}/yard-crew`);
+    expect(req.request.method).toBe('PUT');
+    expect(req.request.body.shifts[0]).toEqual({ from: '15:00', to: '23:00', movesPerSlot: 3 });
+    expect(req.request.body.costTolerancePercent).toBe(0.5);
+    req.flush({ yardCrew: req.request.body });
+    await refresh();
+  });
+});

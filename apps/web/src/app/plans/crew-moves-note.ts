@@ -1,0 +1,57 @@
+import { ChangeDetectionStrategy, Component, computed, input } from '@angular/core';
+import type { PlanResult } from '@nightyard/contracts';
+import { money } from './plan-format';
+
+/**
+ * What the plan asks of the yard crew, in a line or two: its crew moves, what fewer moves cost
+ * ("2 fewer moves for $1.80"), and for a re-plan how many buses moved and why.
+ */
+@Component({
+  selector: 'ny-crew-moves-note',
+  template: `
+    @if (lines().length) {
+      <ul class="crew-moves-note" aria-label="Yard crew">
+        @for (line of lines(); track line) {
+          <li>{{ line }}</li>
+        }
+      </ul>
+    }
+  `,
+  styles: `
+    .crew-moves-note {
+      margin: 0 0 12px;
+      padding-left: 20px;
+      color: var(--mat-sys-on-surface-variant);
+    }
+  `,
+  changeDetection: ChangeDetectionStrategy.OnPush,
+})
+export class CrewMovesNote {
+  readonly result = input.required<PlanResult>();
+  readonly currency = input('USD');
+
+  protected readonly lines = computed(() => crewMovesLines(this.result(), this.currency()));
+}
+
+/** The note's lines (empty for plans made before the crew rules). */
+export function crewMovesLines(r: PlanResult, currency: string): string[] {
+  const out: string[] = [];
+  if (typeof r.crewMoves === 'number') {
+    const drivers = r.sessions.filter((s) => s.startMove === 'driver').length + r.sessions.filter((s) => s.endMove === 'driver').length;
+    out.push(`${r.crewMoves} crew ${r.crewMoves === 1 ? 'move' : 'moves'}; ${drivers} plug-ins and unplugs by drivers on pulling in or out.`);
+  }
+  if (r.crewTrade && r.crewTrade.fewerMoves > 0) {
+    const n = r.crewTrade.fewerMoves;
+    out.push(
+      r.crewTrade.extraCost > 0.005
+        ? `${n} fewer ${n === 1 ? 'move' : 'moves'} for ${money(r.crewTrade.extraCost, currency)} than the cheapest plan found.`
+        : `${n} fewer ${n === 1 ? 'move' : 'moves'} than the cheapest plan found, at the same cost.`,
+    );
+  }
+  const moved = r.replan?.moved;
+  if (moved) {
+    const n = moved.buses.length;
+    out.push(`Re-plan: ${n} ${n === 1 ? 'bus' : 'buses'} moved${n ? ` (${moved.buses.join(', ')})` : ''}${moved.reasons.length ? ` because ${moved.reasons.join('; ')}` : ''}.`);
+  }
+  return out;
+}

@@ -1,0 +1,1 @@
+ALTER TABLE "depots" ADD COLUMN "yard_crew" jsonb;

@@ -1,0 +1,104 @@
+import { describe, expect, it } from 'vitest';
+import { planScenario } from './plan.js';
+import { replan } from './replan.js';
+import { parseScenario, type ScenarioInput } from './scenario.js';
+import { generateDepot } from './testing/generate-depot.js';
+import { checkPlan } from './testing/plan-checker.js';
+
+const yard = {
+  minPlugInMinutes: 45,
+  driversPlugIn: true,
+  crew: [
+    { from: '2026-01-14T15:00', to: '2026-01-14T23:30', movesPerSlot: 3 },
+    { from: '2026-01-15T04:30', to: '2026-01-15T07:00', movesPerSlot: 2 },
+  ],
+};
+
+async function plan(input: ScenarioInput) {
+  const parsed = parseScenario(input);
+  if (!parsed.ok) throw new Error(JSON.stringify(parsed.problems));
+  return planScenario(parsed.scenario);
+}
+
+describe('the yard crew', () => {
+  it('reads the yard settings and names a bad crew window', () => {
+    const bad = parseScenario({ ...generateDepot({ buses: 2, seed: 1 }), yard: { ...yard, crew: [{ from: '2026-01-14T23:00', to: '2026-01-14T22:00', movesPerSlot: 0 }] } });
+    expect(bad.ok).toBe(false);
+    if (!bad.ok) expect(bad.problems.map((p) => p.path)).toEqual(expect.arrayContaining(['yard.crew[0].movesPerSlot']));
+    const later = parseScenario({ ...generateDepot({ buses: 2, seed: 1 }), yard: { ...yard, crew: [{ from: '2026-01-14T23:00', to: '2026-01-14T22:00', movesPerSlot: 1 }] } });
+    expect(later.ok).toBe(false);
+    if (!later.ok) expect(later.problems[0]!.path).toBe('yard.crew[0].to');
+  });
+
+  it('a bus alone on its charger is plugged in and out by its driver: no crew move', async () => {
+    const p = await plan({ ...generateDepot({ buses: 4, chargers: 4, seed: 2 }), yard });
+    expect(checkPlan({ ...generateDepot({ buses: 4, chargers: 4, seed: 2 }), yard }, p)).toEqual([]);
+    expect(p.crewMoves).toBe(0);
+    for (const s of p.sessions) expect([s.startMove, s.endMove]).toEqual(['driver', 'driver']);
+  });
+
+  it.each([1, 2, 3, 4, 5, 6])('keeps every crew rule on a depot with 3-4 buses per charger (seed %i)', async (seed) => {
+    const input = { ...generateDepot({ buses: 14, chargers: 4, seed }), yard };
+    const p = await plan(input);
+    expect(checkPlan(input, p)).toEqual([]);
+    for (const s of p.sessions) {
+      const minutes = (Date.parse(s.end) - Date.parse(s.start)) / 60_000;
+      expect(minutes).toBeGreaterThanOrEqual(45);
+    }
+    // No one in the yard from 23:30 to 04:30: no move there.
+    for (const s of p.sessions) {
+      for (const [move, at] of [[s.startMove, s.start], [s.endMove, s.end]] as const) {
+        if (move !== 'crew') continue;
+        const ms = Date.parse(at);
+        expect(ms < Date.parse('2026-01-14T23:30:00-06:00') || ms >= Date.parse('2026-01-15T04:30:00-06:00')).toBe(true);
+      }
+    }
+  });
+
+  it('without crew windows moves are unlimited, but each is still named and counted', async () => {
+    const input = { ...generateDepot({ buses: 10, chargers: 3, seed: 7 }), yard: { minPlugInMinutes: 60, driversPlugIn: false } };
+    const p = await plan(input);
+    expect(checkPlan(input, p)).toEqual([]);
+    expect(p.crewMoves).toBeGreaterThan(0);
+    expect(p.sessions.every((s) => s.startMove === 'crew')).toBe(true);
+  });
+
+  it('gives the same plan for the same inputs', async () => {
+    const input = { ...generateDepot({ buses: 20, chargers: 6, seed: 11 }), yard };
+    const [a, b] = [await plan(input), await plan(input)];
+    expect(b.sessions).toEqual(a.sessions);
+    expect(b.cost).toEqual(a.cost);
+  });
+
+  it('trades cost for fewer crew moves only within the tolerance, and says so', async () => {
+    for (const seed of [1, 2, 3]) {
+      const input = { ...generateDepot({ buses: 14, chargers: 4, seed }), yard: { ...yard, costTolerancePercent: 2, costToleranceAmount: 20 } };
+      const p = await plan(input);
+      expect(checkPlan(input, p)).toEqual([]);
+      if (p.crewTrade) {
+        expect(p.crewTrade.fewerMoves).toBeGreaterThan(0);
+        expect(p.crewTrade.extraCost).toBeLessThanOrEqual(Math.max(0.02 * p.cost.total, 20) + 1e-6);
+      }
+    }
+  });
+
+  it('a re-plan after a charger fails keeps the rest of the night and says which buses moved and why', async () => {
+    const input = { ...generateDepot({ buses: 12, chargers: 6, seed: 5 }), yard };
+    const parsed = parseScenario(input);
+    if (!parsed.ok) throw new Error('bad scenario');
+    const before = await planScenario(parsed.scenario);
+    const cutMs = Date.parse('2026-01-14T22:00:00-06:00');
+    const failed = before.sessions.find((s) => Date.parse(s.end) > cutMs)!.charger;
+    const plugged = Object.fromEntries(
+      before.sessions.filter((s) => s.charger !== failed && Date.parse(s.start) < cutMs && Date.parse(s.end) > cutMs).map((s) => [s.bus, s.charger]),
+    );
+    const r = await replan(parsed.scenario, { now: '2026-01-14T22:00', outOfService: [failed], previous: before, plugged });
+    expect(checkPlan(r.replan.scenario, r, { plugged })).toEqual([]);
+    expect(r.replan.moved.reasons[0]).toMatch(new RegExp(`^charger ${failed} out of service: \\d+ bus`));
+    const onIt = new Set(before.sessions.filter((s) => s.charger === failed && Date.parse(s.end) > cutMs).map((s) => s.bus));
+    // Kept where it could be: the buses on the failed charger, and few others.
+    expect(r.replan.moved.buses.length).toBeLessThanOrEqual(onIt.size + 4);
+    const again = await replan(parsed.scenario, { now: '2026-01-14T22:00', outOfService: [failed], previous: before, plugged });
+    expect(again.sessions).toEqual(r.sessions);
+  });
+});

@@ -1,0 +1,93 @@
+// The yard crew benchmark: plans with crew rules (45-minute minimum plug-in, drivers plug in on
+// pulling in and unplug on pulling out, an evening crew 15:00-23:30 and an early-morning crew
+// 04:30-07:00, no one between), at 200/500/1,000 buses and on depots short of chargers:
+// solve time and what stopped the search, crew moves per bus, the shortest plug-in, buses moved
+// by a re-plan after one charger fails, and whether two runs give the same plan.
+//   npx tsx tools/bench/crew.ts [--quick]
+import { DateTime } from 'luxon';
+import { loadSolver, parseScenario, planScenario, replan, type Plan, type ScenarioInput } from '@nightyard/scheduling';
+import { generateDepot } from '../../libs/scheduling/src/testing/generate-depot.js';
+import { checkPlan } from '../../libs/scheduling/src/testing/plan-checker.js';
+
+const quick = process.argv.includes('--quick');
+const crewFor = (scenario: ScenarioInput, movesEvening: number, movesMorning: number) => ({
+  minPlugInMinutes: 45,
+  driversPlugIn: true,
+  crew: [
+    { from: '2026-01-14T15:00', to: '2026-01-14T23:30', movesPerSlot: movesEvening },
+    { from: '2026-01-15T04:30', to: '2026-01-15T07:00', movesPerSlot: movesMorning },
+  ],
+  ...(scenario ? {} : {}),
+});
+const withCrew = (input: ScenarioInput, scale = 1): ScenarioInput => ({ ...input, yard: crewFor(input, Math.max(3, Math.ceil(3 * scale)), Math.max(2, Math.ceil(2 * scale))) });
+const parse = (input: ScenarioInput) => {
+  const parsed = parseScenario(input);
+  if (!parsed.ok) throw new Error(JSON.stringify(parsed.problems));
+  return parsed.scenario;
+};
+const minutes = (s: { start: string; end: string }) => (Date.parse(s.end) - Date.parse(s.start)) / 60_000;
+const median = (xs: number[]) => xs.slice().sort((a, b) => a - b)[Math.floor(xs.length / 2)] ?? NaN;
+const pct = (x: number) => `${(x * 100).toFixed(2)} %`;
+
+/** Buses whose sessions differ between two plans (from the cut-off on). */
+function movedBuses(before: Plan, after: Plan, fromMs: number): string[] {
+  const key = (p: Plan, bus: string) =>
+    p.sessions.filter((s) => s.bus === bus && Date.parse(s.end) > fromMs).map((s) => `${s.charger}@${Math.max(Date.parse(s.start), fromMs)}-${s.end}`).join(',');
+  const buses = new Set([...before.sessions, ...after.sessions].map((s) => s.bus));
+  return [...buses].filter((b) => key(before, b) !== key(after, b)).sort();
+}
+
+await loadSolver();
+console.log('Plans with the yard crew (45-min minimum, drivers at pull-in/out, crew 15:00-23:30 and 04:30-07:00)');
+console.log('buses  chargers  solve ms  stopped  status    gap      crew moves/bus  shortest plug-in  checker  same plan twice');
+const sizes = quick ? [200] : [200, 500, 1000];
+for (const n of sizes) {
+  const input = withCrew(generateDepot({ buses: n, seed: 42 }), n / 40);
+  const scenario = parse(input);
+  const a = await planScenario(scenario);
+  const b = await planScenario(scenario);
+  const errors = checkPlan(input, a);
+  const same = JSON.stringify(a.sessions) === JSON.stringify(b.sessions) && a.cost.total === b.cost.total;
+  console.log(
+    `${String(n).padStart(5)}  ${String(scenario.chargers.length).padStart(8)}  ${String(Math.round(Math.min(a.solveMs, b.solveMs))).padStart(8)}  ${a.stats.stoppedBy.padEnd(7)}  ${a.status.padEnd(8)}  ${pct(a.gap).padStart(7)}  ${(a.crewMoves / n).toFixed(2).padStart(14)}  ${String(Math.min(...a.sessions.map(minutes))).padStart(13)} min  ${errors.length ? `${errors.length} errors` : 'ok'.padEnd(7)}  ${same ? 'yes' : 'NO'}`,
+  );
+}
+
+console.log('\nDepots short of chargers (3-6 buses per charger), with the crew: cost against the lower bound');
+console.log('buses  chargers  seed  status    cost       bound      gap       crew moves  shortest  solve ms');
+const scarce: [number, number][] = quick ? [[12, 3], [40, 10]] : [[8, 2], [12, 3], [15, 3], [40, 10], [100, 20], [200, 40]];
+for (const [n, c] of scarce) {
+  for (const seed of quick ? [1] : [1, 2, 3]) {
+    const input = withCrew(generateDepot({ buses: n, chargers: c, seed }), n / 40);
+    const p = await planScenario(parse(input));
+    const errors = checkPlan(input, p);
+    console.log(
+      `${String(n).padStart(5)}  ${String(c).padStart(8)}  ${String(seed).padStart(4)}  ${p.status.padEnd(8)}  ${p.cost.total.toFixed(2).padStart(9)}  ${p.lowerBound.toFixed(2).padStart(9)}  ${pct(p.gap).padStart(8)}  ${String(p.crewMoves).padStart(10)}  ${String(Math.min(...p.sessions.map(minutes))).padStart(5)} min  ${String(Math.round(p.solveMs)).padStart(8)}${errors.length ? `  ${errors.length} checker errors` : ''}`,
+    );
+  }
+}
+
+console.log('\nRe-plan after one charger fails at 22:00 (with the crew): buses moved');
+console.log('buses  chargers  seed  failed  buses on it  moved  allowed (on it + 1 per freed charger)');
+const moved: number[] = [];
+for (const [n, c] of quick ? [[40, 10]] : [[40, 10], [40, 20], [100, 25]]) {
+  for (const seed of quick ? [1] : [1, 2, 3]) {
+    const input = withCrew(generateDepot({ buses: n, chargers: c, seed }), n / 40);
+    const scenario = parse(input);
+    const plan = await planScenario(scenario);
+    const now = '2026-01-14T22:00';
+    const nowMs = DateTime.fromISO(now, { zone: scenario.timezone }).toMillis();
+    const busiest = [...new Set(plan.sessions.map((s) => s.charger))]
+      .map((ch) => ({ ch, n: new Set(plan.sessions.filter((s) => s.charger === ch && Date.parse(s.end) > nowMs).map((s) => s.bus)).size }))
+      .sort((x, y) => y.n - x.n || (x.ch < y.ch ? -1 : 1))[0]!;
+    // Buses on a charger at the cut-off stay plugged in (as the yard reports them).
+    const plugged = Object.fromEntries(
+      plan.sessions.filter((s) => s.charger !== busiest.ch && Date.parse(s.start) < nowMs && Date.parse(s.end) > nowMs).map((s) => [s.bus, s.charger]),
+    );
+    const r = await replan(scenario, { now, outOfService: [busiest.ch], previous: plan, plugged });
+    const m = movedBuses(plan, r, nowMs);
+    moved.push(m.length);
+    console.log(`${String(n).padStart(5)}  ${String(c).padStart(8)}  ${String(seed).padStart(4)}  ${busiest.ch.padEnd(6)}  ${String(busiest.n).padStart(11)}  ${String(m.length).padStart(5)}  ${busiest.n + 1}`);
+  }
+}
+console.log(`median buses moved: ${median(moved)}`);
