@@ -7,7 +7,10 @@ export const billLineSchema = z.object({
   quantity: z.number(),
   unit: z.enum(['kWh', 'kW', 'day', 'month']),
   rate: z.number(),
+  /** Full precision: shown rounded with `footedCents`, so a table's lines add up to its total. */
   amount: z.number(),
+  /** Where the quantity comes from when not simply the intervals (a demand ratchet, a peak entered in Depot). */
+  note: z.string().optional(),
 });
 export const billSchema = z.object({
   currency: z.string(),
@@ -86,7 +89,7 @@ export const monthCostsSchema = z.object({
     baselinePeakKw: z.number(),
   }),
   peaks: z.object({
-    facility: z.object({ kw: z.number(), at: z.string().nullable(), source: z.enum(['actual', 'entered', 'planned']) }),
+    facility: z.object({ kw: z.number(), at: z.string().nullable(), source: z.enum(['actual', 'entered', 'planned', 'forecast', 'building']) }),
     periods: z.array(z.object({ name: z.string(), kw: z.number(), at: z.string().nullable() })),
   }),
   nights: z.array(z.object({

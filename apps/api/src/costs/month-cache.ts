@@ -42,7 +42,8 @@ export class MonthCostsCache<T> {
 /**
  * The version of everything a period's costs are computed from, in one query: the published
  * plans of its nights (a published plan never changes; a revision is a new row), the meter
- * readings and imports, the runs (the forecast's service calendar), the peaks entered or measured so far, the rate plan that applies (its
+ * readings and imports, the runs (the forecast's service calendar), the peaks entered or measured so far, the earlier published plans (a demand ratchet looks back at
+ * their peaks), the rate plan that applies (its
  * row's xmin changes with every update of its definition), and the depot's own settings.
  * A named statement: PostgreSQL plans it once per connection, not on every request.
  */
@@ -55,6 +56,8 @@ const VERSION_QUERY = {
       (select count(*) || ':' || coalesce(sum(kwh), 0) || ':' || coalesce(sum(minutes), 0) from meter_intervals
         where depot_id = $1 and starts_at >= $4 and starts_at < $5),
       (select count(*) || ':' || coalesce(max(created_at)::text, '') from meter_imports where depot_id = $1),
+      (select count(*) || ':' || coalesce(max(published_at)::text, '') from plans
+        where depot_id = $1 and state = 'published' and service_date < $2),
       coalesce((select billing_period_start || ':' || facility_kw || ':' || periods_kw::text || ':' || updated_at from billing_peaks
         where depot_id = $1), '-'),
       (select count(*) || ':' || coalesce(max(created_at)::text, '') from runs

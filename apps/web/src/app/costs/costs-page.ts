@@ -28,6 +28,8 @@ const PEAK_SOURCE: Record<MonthCosts['peaks']['facility']['source'], string> = {
   actual: 'from meter data',
   planned: 'in a published plan',
   entered: 'entered under Depot (peaks so far)',
+  forecast: 'in the forecast of a night without a published plan',
+  building: 'by the building\'s own load (no charging then)',
 };
 
 /**
