@@ -1,4 +1,4 @@
-import type { MonthCosts } from '@nightyard/contracts';
+import { toCents, type MonthCosts } from '@nightyard/contracts';
 import { addDays, dayTimeAt, depotStamp } from '../core/depot-time';
 
 export { addDays };
@@ -124,7 +124,7 @@ export function localTime(local: string): string {
 
 /** Rounds money for a CSV cell (plain number, cents). */
 export function cents(value: number): number {
-  return Math.round(value * 100) / 100;
+  return toCents(value);
 }
 
 /** An amount with its sign: "+$1.20", "−$0.50", "$0.00". */

@@ -3,7 +3,7 @@ import { MatButtonModule } from '@angular/material/button';
 import { MatIconModule } from '@angular/material/icon';
 import { MatProgressBarModule } from '@angular/material/progress-bar';
 import { RouterLink } from '@angular/router';
-import type { PlanCosts } from '@nightyard/contracts';
+import { footedCents, toCents, type PlanCosts } from '@nightyard/contracts';
 import { toApiProblem } from '../core/api-error';
 import { baselineName } from '../plans/plan-format';
 import { CostsApi } from './costs-api';
@@ -61,10 +61,12 @@ export class NightCostsPage {
     const p = this.costs();
     if (!p) return [];
     const c = p.currency;
-    return p.perBus.map((b) => ({
+    // The buses' costs foot to the night's total to the cent (footedCents, the one rounding rule).
+    const shown = footedCents(p.perBus.map((b) => b.cost), toCents(p.total));
+    return p.perBus.map((b, i) => ({
       bus: b.bus,
       kwh: num(b.kwh, 1),
-      cost: money(b.cost, c),
+      cost: money(shown[i]!, c),
       miles: num(b.miles, 1),
       perMile: b.costPerMile === null ? '—' : money(b.costPerMile, c),
     }));
@@ -74,10 +76,10 @@ export class NightCostsPage {
     const p = this.costs();
     if (!p) return null;
     const c = p.currency;
-    const cost = p.perBus.reduce((a, b) => a + b.cost, 0);
+    // The same figure as the card: the night's total is the sum of its buses' unrounded costs.
     return {
       kwh: num(p.chargingKwh, 1),
-      cost: money(cost, c),
+      cost: money(toCents(p.total), c),
       miles: num(p.miles, 1),
       perMile: p.costPerMile === null ? '—' : money(p.costPerMile, c),
     };
@@ -88,7 +90,10 @@ export class NightCostsPage {
     const c = p?.currency ?? 'USD';
     return {
       header: ['Bus', 'Charging (kWh)', `Cost (${c})`, 'Miles next service day', `Cost per mile (${c})`],
-      rows: (p?.perBus ?? []).map((b) => [b.bus, b.kwh, cents(b.cost), b.miles, b.costPerMile === null ? null : cents(b.costPerMile)]),
+      rows: (() => {
+        const shown = footedCents((p?.perBus ?? []).map((b) => b.cost), toCents(p?.total ?? 0));
+        return (p?.perBus ?? []).map((b, i) => [b.bus, b.kwh, shown[i]!, b.miles, b.costPerMile === null ? null : cents(b.costPerMile)]);
+      })(),
     };
   });
 
