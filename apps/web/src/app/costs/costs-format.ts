@@ -15,7 +15,8 @@ function currencyFormat(currency: string, min: number, max: number): Intl.Number
 
 /** An amount of money ("$1,234.56"). */
 export function money(value: number, currency: string): string {
-  return currencyFormat(currency, 2, 2).format(value);
+  // Rounded by the one rule first (`toCents`), so a figure reads the same on every page.
+  return currencyFormat(currency, 2, 2).format(toCents(value));
 }
 
 /** A unit price: enough digits for tariffs quoted to a tenth of a cent ("$0.0685"). */
