@@ -80,13 +80,20 @@ export async function planCosts(db: Db, caller: AuthUser, planId: string): Promi
   const base = result.baseline;
   const otherKind = base.kind === 'arrival' ? 'timer' : base.kind === 'timer' ? 'arrival' : null;
   const other = otherKind && result.baselines ? result.baselines[otherKind] : null;
+  // A night's saving is its charging energy against the baseline's (a shortfall valued at the
+  // plan's price, in the baseline's figure): demand is billed once a billing period, so the
+  // period's saving is the month's (costs/month), never a night's marginal demand.
+  const baselineEnergy = base.total - base.demand;
+  const energySaving = baselineEnergy - result.cost.energy;
   return {
     planId, serviceDate: plan.serviceDate, currency: scenario.tariff.currency ?? 'USD',
-    energy: result.cost.energy, demand: result.cost.demand, total,
+    energy: result.cost.energy, demand: result.cost.demand, total, peakKw: result.slots.reduce((a, s) => Math.max(a, s.loadKw), 0),
     baseline: { kind: base.kind ?? null, energy: base.energy, demand: base.demand, total: base.total, peakKw: base.peakKw, shortfallKwh: base.shortfallKwh ?? 0 },
-    otherBaseline: other && otherKind ? { kind: otherKind, total: other.total, peakKw: other.peakKw, shortfallKwh: other.shortfallKwh ?? 0 } : null,
-    savings: base.total - total,
-    savingsShare: base.total > 0 ? (base.total - total) / base.total : 0,
+    otherBaseline: other && otherKind
+      ? { kind: otherKind, total: other.total, energy: other.total - other.demand, peakKw: other.peakKw, shortfallKwh: other.shortfallKwh ?? 0 }
+      : null,
+    savings: energySaving,
+    savingsShare: baselineEnergy > 0 ? energySaving / baselineEnergy : 0,
     chargingKwh: totalKwh, miles: totalMiles, costPerMile: totalMiles > 0 ? total / totalMiles : null,
     perBus: rows.map(({ unrounded: _, ...r }) => r).sort((a, b) => a.bus.localeCompare(b.bus, undefined, { numeric: true })),
   };

@@ -44,13 +44,15 @@ export class NightCostsPage {
       total: money(p.total, c),
       parts: `Energy ${money(p.energy, c)}, demand ${money(p.demand, c)}`,
       baselineName: baselineName(p.baseline.kind),
-      baseline: money(p.baseline.total, c),
-      baselineParts: `Energy ${money(p.baseline.energy, c)}, demand ${money(p.baseline.demand, c)}, peak ${num(p.baseline.peakKw, 0)} kW` +
+      // The night against its baseline on charging energy; demand is the period's (see Costs).
+      baseline: money(p.baseline.total - p.baseline.demand, c),
+      baselineParts: `Charging energy, peak ${num(p.baseline.peakKw, 0)} kW` +
         (p.baseline.shortfallKwh > 0.05 ? `; ${num(p.baseline.shortfallKwh, 0)} kWh it would not deliver, counted at the plan's average price` : ''),
-      otherBaseline: p.otherBaseline ? `${baselineName(p.otherBaseline.kind)}: ${money(p.otherBaseline.total, c)}, peak ${num(p.otherBaseline.peakKw, 0)} kW` : null,
+      otherBaseline: p.otherBaseline ? `${baselineName(p.otherBaseline.kind)}: ${money(p.otherBaseline.energy, c)}, peak ${num(p.otherBaseline.peakKw, 0)} kW` : null,
       savings: money(p.savings, c),
       savingsShare: percent(p.savingsShare),
       savingsPositive: p.savings > 0,
+      peaks: `The plan's peak ${num(p.peakKw, 0)} kW against the baseline's ${num(p.baseline.peakKw, 0)} kW`,
       charging: kwh(p.chargingKwh),
       miles: `${num(p.miles, 0)} miles`,
       perMile: p.costPerMile === null ? 'No miles' : money(p.costPerMile, c),
