@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { footedCents, toCents } from './money';
+import { footedCents, shownSum, toCents } from './money';
 
 describe('one rounding rule', () => {
   it('rounds half away from zero, also for binary fractions', () => {
@@ -30,5 +30,10 @@ describe('one rounding rule', () => {
       expect(Math.round(shown.reduce((a, b) => a + b, 0) * 100)).toBe(Math.round(toCents(sum) * 100));
       shown.forEach((s, i) => expect(Math.abs(s - values[i]!)).toBeLessThan(0.01 + 1e-9));
     }
+  });
+
+  it('totals figures as shown: 95.468 + 136.783 shows 95.47 + 136.78 = 232.25', () => {
+    expect(shownSum([95.468304, 136.783392, null])).toBe(232.25);
+    expect(shownSum([0.005, 0.005, 0.005])).toBe(0.03);
   });
 });

@@ -1,13 +1,19 @@
 /**
  * One rounding rule for every figure of money: compute in full precision, round only to show.
  *
- * A total is the sum of the unrounded figures, rounded once. Rounding each line on its own can
- * leave the printed lines a cent or two away from the printed total; an analyst adding up the
- * column would then find a difference nobody can explain. So the lines of a table are shown
- * with the rounding remainder allocated (largest remainder method): each shown line is its own
- * value rounded down or up to the cent, never more than one cent from it, and the shown lines
- * add up exactly to the shown total. The same rule as splitting an invoice's total over its
- * lines (common practice in accounting).
+ * 1. A figure that stands on its own (a bill's total, a night's cost, a night's energy under its
+ *    baseline) is its unrounded value rounded once (`toCents`), so it reads the same on every page
+ *    (Tonight, Plans, Costs); a total is the sum of the unrounded values, rounded once.
+ * 2. A table of the parts of such a figure (a bill's lines under its total, the buses under the
+ *    night's cost) shows the parts with the rounding remainder allocated (`footedCents`, largest
+ *    remainder method): each part within a cent of its own value, and the parts add up exactly to
+ *    the figure shown everywhere else. Rounding each part alone could leave the column a cent or
+ *    two off its total, a difference nobody could explain (splitting an invoice's total over its
+ *    lines this way is common practice in accounting).
+ * 3. A table of figures that stand on their own (the nights of a period, each also on Tonight and
+ *    Plans) shows each as it is shown everywhere and totals what it shows (`shownSum`): the column
+ *    adds up, and its total is within half a cent a line of the unrounded sum. A night's figure
+ *    changing by a cent between pages would be the worse surprise.
  */
 export function toCents(value: number): number {
   // Through the cents as an integer, with a tolerance for binary fractions (1.005 -> 1.01).
@@ -34,4 +40,9 @@ export function footedCents(values: readonly number[], total?: number): number[]
     left -= step;
   }
   return cents.map((c) => c / 100);
+}
+
+/** The sum of the figures as shown (each rounded by `toCents`), exact to the cent. */
+export function shownSum(values: readonly (number | null)[]): number {
+  return values.reduce<number>((a, v) => a + Math.round(toCents(v ?? 0) * 100), 0) / 100;
 }

@@ -1,6 +1,6 @@
 import { ChangeDetectionStrategy, Component, computed, input } from '@angular/core';
 import { RouterLink } from '@angular/router';
-import { footedCents, type MonthCosts } from '@nightyard/contracts';
+import { shownSum, toCents, type MonthCosts } from '@nightyard/contracts';
 import { baselineName } from '../plans/plan-format';
 import { cents, fullyMetered, kw, money, monthKey, percent, shortDay, signedMoney } from './costs-format';
 import { CsvExportButton } from './csv-export-button';
@@ -29,21 +29,18 @@ export class NightsTable {
   protected readonly fileName = computed(() => `costs-nights-${monthKey(this.month().period.start)}.csv`);
 
   /**
-   * The money columns as shown: each column's cents foot to its total (footedCents, the one
-   * rounding rule); a night's saving is its shown baseline minus its shown plan, so rows and
-   * columns both add up.
+   * The money columns as shown: each night's figures are rounded on their own, as on Tonight,
+   * Plans and the night's page, and each column's total is the sum of what it shows (`shownSum`,
+   * rule 3 of the one rounding rule); a night's saving is its shown baseline minus its shown plan,
+   * so rows and columns both add up.
    */
   private readonly shown = computed(() => {
     const nights = this.month().nights;
-    const plan = footedCents(nights.map((n) => n.planEnergyCost));
-    const comparedIdx = nights.flatMap((n, i) => (n.baselineEnergyCost === null ? [] : [i]));
-    const baselineCompared = footedCents(comparedIdx.map((i) => nights[i]!.baselineEnergyCost!));
-    const baseline = nights.map(() => null as number | null);
-    comparedIdx.forEach((i, k) => (baseline[i] = baselineCompared[k]!));
+    const plan = nights.map((n) => toCents(n.planEnergyCost));
+    const baseline = nights.map((n) => (n.baselineEnergyCost === null ? null : toCents(n.baselineEnergyCost)));
     const saving = nights.map((_, i) => (baseline[i] === null ? null : Math.round((baseline[i]! - plan[i]!) * 100) / 100));
-    const projected = footedCents(nights.map((n) => n.projectedSiteEnergyCost));
-    const sum = (xs: (number | null)[]) => Math.round(xs.reduce<number>((a, b) => a + (b ?? 0), 0) * 100) / 100;
-    return { plan, baseline, saving, projected, totals: { plan: sum(plan), baseline: sum(baseline), saving: sum(saving), projected: sum(projected) } };
+    const projected = nights.map((n) => toCents(n.projectedSiteEnergyCost));
+    return { plan, baseline, saving, projected, totals: { plan: shownSum(plan), baseline: shownSum(baseline), saving: shownSum(saving), projected: shownSum(projected) } };
   });
 
   protected readonly rows = computed(() => {
@@ -77,7 +74,7 @@ export class NightsTable {
 
   protected readonly totals = computed(() => {
     const c = this.currency();
-    // Each column's total is its unrounded sum rounded once; the shown lines foot to it.
+    // Each column's total is the sum of the nights as shown.
     const t = this.shown().totals;
     return { planEnergy: money(t.plan, c), baselineEnergy: money(t.baseline, c), saving: money(t.saving, c), projected: money(t.projected, c) };
   });
