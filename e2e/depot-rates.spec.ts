@@ -27,6 +27,8 @@ async function previewSummerWeekday(page: Page): Promise<void> {
     await expect(hourRow(page, hour)).toContainText('0.2854');
   }
   await expect(hourRow(page, '21:00–22:00')).toContainText('0.0912');
+  // The facility demand charge applies at every hour, on-peak as off-peak (this rate has no period demand charge).
+  for (const hour of ['03:00–04:00', '16:00–17:00']) await expect(hourRow(page, hour)).toContainText('$14.25 facility');
   await expect(page.getByRole('table', { name: /Price of each hour/ }).getByRole('row')).toHaveCount(25); // header + 24 hours
   await expect(page.getByRole('img', { name: /price per kWh for each hour/ })).toBeVisible();
 }
@@ -81,6 +83,14 @@ test('facilities adds a charger to a cabinet and imports a URDB rate; finance re
     await expect(summerPeak.getByLabel('To')).toHaveValue('21:00');
     await expectAccessible(page);
 
+    // Tiered energy, a demand ratchet and a minimum bill, entered through labelled controls.
+    await page.getByRole('button', { name: 'Add energy block to season 1' }).click();
+    await page.getByRole('group', { name: 'Season 1, energy block 1' }).getByLabel('Block 1 ends at').fill('20000');
+    await page.getByRole('group', { name: 'Season 1, energy block 2' }).getByLabel('Block 2 price change').fill('-0.01');
+    await page.getByLabel('Ratchet percentage').fill('80');
+    await page.getByRole('group', { name: 'Minimum bill' }).getByLabel('Minimum bill', { exact: true }).fill('250');
+    await expectAccessible(page);
+
     await name.fill(planName);
     await page.getByRole('button', { name: 'Save rate plan' }).click();
     await expect(page.getByRole('heading', { level: 1, name: planName })).toBeVisible();
@@ -112,6 +122,8 @@ test('facilities adds a charger to a cabinet and imports a URDB rate; finance re
     await expect(page.getByRole('heading', { level: 1, name: planName })).toBeVisible();
     await expect(page.getByRole('link', { name: 'Edit rate plan' })).toHaveCount(0);
     await expect(page.getByRole('button', { name: 'Delete' })).toHaveCount(0);
+    await expect(page.getByText(/billed at least 80 % of the highest of the previous 11 months/)).toBeVisible();
+    await expect(page.getByText('above 20,000 kWh −$0.01 per kWh', { exact: false })).toBeVisible();
     await previewSummerWeekday(page);
     await expectAccessible(page);
   });

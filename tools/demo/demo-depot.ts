@@ -87,6 +87,7 @@ export const demoRatePlan = {
           { name: 'on-peak', price: 0.24, demandCharge: 16, windows: [{ dayTypes: ['weekday'], from: '15:00', to: '20:00' }] },
           { name: 'mid-peak', price: 0.13, demandCharge: 0, windows: [{ dayTypes: ['weekday'], from: '08:00', to: '15:00' }] },
         ],
+        energyBlocks: [],
       },
       {
         name: 'Winter',
@@ -98,10 +99,13 @@ export const demoRatePlan = {
           { name: 'on-peak', price: 0.18, demandCharge: 9, windows: [{ dayTypes: ['weekday'], from: '16:00', to: '20:00' }] },
           { name: 'mid-peak', price: 0.11, demandCharge: 0, windows: [{ dayTypes: ['weekday'], from: '07:00', to: '16:00' }] },
         ],
+        energyBlocks: [],
       },
     ],
     fixedCharges: [{ name: 'Customer charge', amount: 45, per: 'month' }],
     holidays: ['2026-12-25', '2027-01-01', '2027-05-31', '2027-07-05', '2027-09-06', '2027-11-25', '2027-12-24'],
+    demandRatchet: null,
+    minimumCharge: null,
   },
 } satisfies { name: string; definition: RatePlanDefinition };
 

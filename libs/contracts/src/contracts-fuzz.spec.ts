@@ -66,6 +66,7 @@ const NOT_REQUESTS = new Set([
   'errorBodySchema', 'roleSchema', 'sectionSchema', 'organisationSchema', 'userStatusSchema', 'sessionUserSchema', 'tokenResponseSchema',
   'meResponseSchema', 'actionTokenInfoSchema', 'userSchema', 'userListSchema', 'outboxMessageSchema', 'outboxSchema', 'depotSummarySchema',
   'depotListSchema', 'clockTimeSchema', 'dayTypeSchema', 'touWindowSchema', 'touPeriodSchema', 'seasonSchema', 'fixedChargeSchema',
+  'energyBlockSchema', 'demandRatchetSchema', 'minimumChargeSchema',
   'ratePlanSchema', 'previewIntervalSchema', 'ratePreviewSchema', 'urdbImportResultSchema', 'cabinetSchema', 'chargerStatusSchema',
   'chargerSchema', 'localDateTimeSchema', 'loadReductionWindowSchema', 'depotDetailSchema', 'busStatusSchema', 'busSchema',
   'coldWeatherBandSchema', 'socSourceSchema', 'runSchema', 'serviceDaySchema', 'csvRowErrorSchema', 'forecastLowFSchema',

@@ -7,7 +7,10 @@ export const billLineSchema = z.object({
   quantity: z.number(),
   unit: z.enum(['kWh', 'kW', 'day', 'month']),
   rate: z.number(),
+  /** Full precision: shown rounded with `footedCents`, so a table's lines add up to its total. */
   amount: z.number(),
+  /** Where the quantity comes from when not simply the intervals (a demand ratchet, a peak entered in Depot). */
+  note: z.string().optional(),
 });
 export const billSchema = z.object({
   currency: z.string(),
@@ -35,9 +38,17 @@ export const planCostsSchema = z.object({
     /** kWh it leaves undelivered against the plan (valued at the plan's average price, in `total`). */
     shortfallKwh: z.number(),
   }),
-  /** The other baseline, shown beside it. */
-  otherBaseline: z.object({ kind: z.enum(['arrival', 'timer']), total: z.number(), peakKw: z.number(), shortfallKwh: z.number() }).nullable(),
+  /** The other baseline, shown beside it (`energy`: its charging energy, a shortfall valued as in `baseline`). */
+  otherBaseline: z.object({ kind: z.enum(['arrival', 'timer']), total: z.number(), energy: z.number(), peakKw: z.number(), shortfallKwh: z.number() }).nullable(),
+  /** The plan's highest site load of the night. */
+  peakKw: z.number(),
+  /**
+   * The night's charging energy saving against its baseline (baseline energy with its shortfall
+   * valued, minus the plan's energy). Demand is billed once a period: the period's saving is in
+   * the month's costs, never a night's marginal demand.
+   */
   savings: z.number(),
+  /** `savings` as a share of the baseline's charging energy. */
   savingsShare: z.number(),
   chargingKwh: z.number(),
   miles: z.number(),
@@ -86,7 +97,7 @@ export const monthCostsSchema = z.object({
     baselinePeakKw: z.number(),
   }),
   peaks: z.object({
-    facility: z.object({ kw: z.number(), at: z.string().nullable(), source: z.enum(['actual', 'entered', 'planned']) }),
+    facility: z.object({ kw: z.number(), at: z.string().nullable(), source: z.enum(['actual', 'entered', 'planned', 'forecast', 'building']) }),
     periods: z.array(z.object({ name: z.string(), kw: z.number(), at: z.string().nullable() })),
   }),
   nights: z.array(z.object({

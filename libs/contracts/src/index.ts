@@ -16,3 +16,4 @@ export * from './yard';
 export * from './night';
 export * from './live';
 export * from './page-links';
+export * from './money';

@@ -46,6 +46,31 @@ export type TouPeriod = z.infer<typeof touPeriodSchema>;
 
 const month = z.number().int().min(1, 'Months are 1 (January) to 12 (December)').max(12, 'Months are 1 (January) to 12 (December)');
 
+/**
+ * A block of the billing period's energy (tiered energy): the kWh of the period from the previous
+ * block's end up to `uptoKwh` (null: every kWh above) cost `adder` per kWh more than the
+ * time-of-use price (negative for a declining block). Blocks are consumed in time order.
+ */
+export const energyBlockSchema = z.strictObject({
+  uptoKwh: z.number({ error: 'Enter the block\'s end in kWh as a number' })
+    .positive('A block ends above 0 kWh').max(100_000_000, 'A block ends at most at 100,000,000 kWh a month').nullable(),
+  adder: z.number({ error: 'Enter the block\'s price change as a number' })
+    .min(-100, 'A block\'s price change is at least -$100 per kWh').max(100, 'A block\'s price change is at most $100 per kWh'),
+});
+export type EnergyBlock = z.infer<typeof energyBlockSchema>;
+
+const energyBlocksSchema = z.array(energyBlockSchema).max(12, 'At most 12 energy blocks').superRefine((blocks, ctx) => {
+  blocks.forEach((b, i) => {
+    const last = i === blocks.length - 1;
+    if (!last && b.uptoKwh === null) ctx.addIssue({ code: 'custom', path: [i, 'uptoKwh'], message: 'Only the last block can be open-ended' });
+    if (last && b.uptoKwh !== null) ctx.addIssue({ code: 'custom', path: [i, 'uptoKwh'], message: 'The last block covers every kWh above the one before: leave its end empty' });
+    const prev = blocks[i - 1]?.uptoKwh;
+    if (i > 0 && prev != null && b.uptoKwh !== null && b.uptoKwh <= prev) {
+      ctx.addIssue({ code: 'custom', path: [i, 'uptoKwh'], message: `Each block ends above the previous one (${prev} kWh)` });
+    }
+  });
+});
+
 export const seasonSchema = z.strictObject({
   name: text('The season name').trim().min(1, 'Name the season').max(60),
   /** First and last month of the season; a range may wrap past December (10 to 5). */
@@ -56,12 +81,30 @@ export const seasonSchema = z.strictObject({
   /** Demand charge per kW on the highest 15-minute demand of the billing period, at any hour. */
   facilityDemandCharge: demandCharge('The facility demand charge').default(0),
   periods: z.array(touPeriodSchema).max(24),
+  /** Tiered energy: monthly kWh blocks with a price change each (empty: one price per period). */
+  energyBlocks: energyBlocksSchema.default([]),
 });
 export type Season = z.infer<typeof seasonSchema>;
 
 export const fixedChargeSchema = z.strictObject({
   name: text('The charge name').trim().min(1, 'Name the charge').max(80),
   amount: money('The fixed charge', 1_000_000, 'per day or month'),
+  per: z.enum(['day', 'month']),
+});
+
+/**
+ * A demand ratchet: the facility demand billed is at least `percent` of the highest facility
+ * demand of the previous `months` billing periods.
+ */
+export const demandRatchetSchema = z.strictObject({
+  percent: z.number({ error: 'Enter the ratchet percentage as a number' }).gt(0, 'The ratchet is above 0 %').max(100, 'The ratchet is at most 100 %'),
+  months: z.number({ error: 'Enter the ratchet\'s months as a number' }).int('Whole months').min(1, 'At least 1 previous month').max(36, 'At most 36 previous months'),
+});
+export type DemandRatchet = z.infer<typeof demandRatchetSchema>;
+
+/** A minimum bill: a period's bill is at least this much (per month, or per day of the period). */
+export const minimumChargeSchema = z.strictObject({
+  amount: money('The minimum bill', 1_000_000, 'per day or month'),
   per: z.enum(['day', 'month']),
 });
 
@@ -72,6 +115,8 @@ export const ratePlanDefinitionSchema = z
     fixedCharges: z.array(fixedChargeSchema).max(20).default([]),
     /** Dates priced as holidays (ISO `YYYY-MM-DD`). */
     holidays: z.array(isoDate('Write dates as YYYY-MM-DD')).max(400).default([]),
+    demandRatchet: demandRatchetSchema.nullable().default(null),
+    minimumCharge: minimumChargeSchema.nullable().default(null),
   })
   .superRefine((plan, ctx) => {
     checkSeasonsCoverYear(plan.seasons, ctx);

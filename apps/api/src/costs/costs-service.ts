@@ -2,6 +2,7 @@ import { and, asc, eq, gte, lt, sql } from 'drizzle-orm';
 import { DateTime } from 'luxon';
 import { planResultSchema, type MonthCosts, type PlanCosts, type PlanResult, type RatePlanDefinition } from '@nightyard/contracts';
 import { computeBill, ratePlanPeriodAt, type Bill, type IntervalDemand } from '@nightyard/scheduling';
+import type { Pool } from 'pg';
 import type { Db } from '../db/client';
 import { billingPeaks, buses, meterIntervals, plans, runs } from '../db/schema';
 import { notFound } from '../http/errors';
@@ -80,13 +81,20 @@ export async function planCosts(db: Db, caller: AuthUser, planId: string): Promi
   const base = result.baseline;
   const otherKind = base.kind === 'arrival' ? 'timer' : base.kind === 'timer' ? 'arrival' : null;
   const other = otherKind && result.baselines ? result.baselines[otherKind] : null;
+  // A night's saving is its charging energy against the baseline's (a shortfall valued at the
+  // plan's price, in the baseline's figure): demand is billed once a billing period, so the
+  // period's saving is the month's (costs/month), never a night's marginal demand.
+  const baselineEnergy = base.total - base.demand;
+  const energySaving = baselineEnergy - result.cost.energy;
   return {
     planId, serviceDate: plan.serviceDate, currency: scenario.tariff.currency ?? 'USD',
-    energy: result.cost.energy, demand: result.cost.demand, total,
+    energy: result.cost.energy, demand: result.cost.demand, total, peakKw: result.slots.reduce((a, s) => Math.max(a, s.loadKw), 0),
     baseline: { kind: base.kind ?? null, energy: base.energy, demand: base.demand, total: base.total, peakKw: base.peakKw, shortfallKwh: base.shortfallKwh ?? 0 },
-    otherBaseline: other && otherKind ? { kind: otherKind, total: other.total, peakKw: other.peakKw, shortfallKwh: other.shortfallKwh ?? 0 } : null,
-    savings: base.total - total,
-    savingsShare: base.total > 0 ? (base.total - total) / base.total : 0,
+    otherBaseline: other && otherKind
+      ? { kind: otherKind, total: other.total, energy: other.total - other.demand, peakKw: other.peakKw, shortfallKwh: other.shortfallKwh ?? 0 }
+      : null,
+    savings: energySaving,
+    savingsShare: baselineEnergy > 0 ? energySaving / baselineEnergy : 0,
     chargingKwh: totalKwh, miles: totalMiles, costPerMile: totalMiles > 0 ? total / totalMiles : null,
     perBus: rows.map(({ unrounded: _, ...r }) => r).sort((a, b) => a.bus.localeCompare(b.bus, undefined, { numeric: true })),
   };
@@ -129,6 +137,36 @@ function comparedNight(result: PlanResult, fromMs: number, toMs: number) {
   return { kind, baselineKw, planEnergy, baselineEnergy, baselinePeak };
 }
 
+/**
+ * The highest facility demand of the `months` billing periods before `period`, for a demand
+ * ratchet: from the meter readings, the published plans' site load and the peaks entered in
+ * Depot for those periods, at least the building's own highest hourly load. Null when none of
+ * those months has any data.
+ */
+export async function ratchetBaseOf(db: Db, depot: Depot, period: Period, months: number): Promise<{ kw: number; source: string } | null> {
+  const from = period.start.minus({ months });
+  const client = (db as unknown as { $client: Pool }).$client;
+  const { rows } = await client.query<{ metered: number | null; planned: number | null }>(
+    `select
+       (select max(kwh * 60.0 / minutes) from meter_intervals where depot_id = $1 and starts_at >= $2 and starts_at < $3) as metered,
+       (select max((s->>'loadKw')::float8) from plans p, jsonb_array_elements(p.result->'slots') s
+         where p.depot_id = $1 and p.state = 'published' and p.service_date >= $4 and p.service_date < $5
+           and (s->>'start')::timestamptz >= $2 and (s->>'start')::timestamptz < $3) as planned`,
+    [depot.id, from.toJSDate(), period.start.toJSDate(), from.minus({ days: 4 }).toISODate(), period.start.toISODate()],
+  );
+  const metered = rows[0]?.metered === null || rows[0]?.metered === undefined ? 0 : Number(rows[0].metered);
+  const planned = rows[0]?.planned === null || rows[0]?.planned === undefined ? 0 : Number(rows[0].planned);
+  const [entered] = await db.select().from(billingPeaks).where(eq(billingPeaks.depotId, depot.id));
+  const enteredKw = entered && entered.billingPeriodStart >= from.toISODate()! && entered.billingPeriodStart < period.start.toISODate()! ? entered.facilityKw : 0;
+  const candidates: [number, string][] = [
+    [metered, 'meter readings'], [planned, 'published plans'], [enteredKw, `peaks entered in Depot for the period from ${entered?.billingPeriodStart}`],
+  ];
+  const best = candidates.reduce((a, b) => (b[0] > a[0] ? b : a));
+  if (best[0] <= 0) return null;
+  const building = Math.max(0, ...depot.otherLoadKw);
+  return building > best[0] ? { kw: building, source: 'the building\'s own load' } : { kw: best[0], source: `from ${best[1]}` };
+}
+
 /** What a billing period's costs are, whatever the time now: built from the rows the cache versions. */
 interface PeriodBase {
   rate: { name: string; definition: RatePlanDefinition };
@@ -141,6 +179,8 @@ interface PeriodBase {
   plannedDates: Set<string>;
   projected: Bill;
   entered: (typeof billingPeaks.$inferSelect) | undefined;
+  recordedPeaksKw: { facility: number; periods: Record<string, number> } | undefined;
+  ratchetBase: { kw: number; source: string } | null;
   /** Month to date and peaks so far, by how much of the period has passed (see `soFarKey`). */
   soFar: Map<string, { monthToDate: Bill; peaks: Peaks }>;
 }
@@ -207,13 +247,20 @@ async function periodBase(db: Db, depot: Depot, period: Period): Promise<PeriodB
       date: p.serviceDate, planId: p.id, version: p.version,
       planEnergyCost: compared.planEnergy, baselineEnergyCost: compared.kind ? compared.baselineEnergy : null,
       baselineKind: compared.kind, baselinePeakKw: compared.kind ? round2(compared.baselinePeak) : null,
-      projectedSiteEnergyCost: round2(projectedEnergy), actualSiteEnergyCost: covered ? round2(actualEnergy) : null,
+      projectedSiteEnergyCost: projectedEnergy, actualSiteEnergyCost: covered ? actualEnergy : null,
       projectedPeakKw: round2(projectedPeak), actualPeakKw: covered ? round2(actualPeak) : null,
       actualCoverage: inPeriod ? covered / inPeriod : 0,
     });
   }
 
   const buildingKwh = (t: number) => buildingKwAt(depot.otherLoadKw, t, zone) * 0.25;
+  // Peaks the utility's meter recorded earlier in this period, entered in Depot: every bill of the
+  // period bills at least these (the card of peaks so far shows the same figures).
+  const [entered] = await db.select().from(billingPeaks).where(eq(billingPeaks.depotId, depot.id));
+  const recordedPeaksKw = entered && entered.billingPeriodStart === period.start.toISODate()
+    ? { facility: entered.facilityKw, periods: entered.periodsKw }
+    : undefined;
+  const ratchetBase = rate.definition.demandRatchet ? await ratchetBaseOf(db, depot, period, rate.definition.demandRatchet.months) : null;
   const plannedDates = new Set(published.map((p) => p.serviceDate));
   const forecast = await forecastNights(db, depot, period, rate.definition, plannedDates);
   // Charging kW of the forecast nights, each shape; a planned or metered interval stays as it is.
@@ -234,7 +281,7 @@ async function periodBase(db: Db, depot: Depot, period: Period): Promise<PeriodB
     return series;
   };
   const series = seriesWith(forecastKw('even'));
-  const billOptions = { zone, intervalMinutes: 15, days: period.days };
+  const billOptions = { zone, intervalMinutes: 15, days: period.days, recordedPeaksKw, ratchetBase };
   const projected = computeBill(rate.definition, series, billOptions);
   const cheapest = forecast.length ? computeBill(rate.definition, seriesWith(forecastKw('cheapest')), billOptions).total : projected.total;
   const projectedRange = forecast.length ? { low: Math.min(cheapest, projected.total), high: Math.max(cheapest, projected.total) } : null;
@@ -249,9 +296,9 @@ async function periodBase(db: Db, depot: Depot, period: Period): Promise<PeriodB
     total: baselineBill.total - planBill.total, planBill: planBill.total, baselineBill: baselineBill.total, nightsCompared,
     planPeakKw: round2(peakOf(onPlans)), baselinePeakKw: round2(peakOf(onBaselines)),
   };
-  const [entered] = await db.select().from(billingPeaks).where(eq(billingPeaks.depotId, depot.id));
   return {
-    rate, series, actualIntervals: series.filter((s) => s.source === 'actual').length, nights, savings, plannedDates, projected, projectedRange, entered, soFar: new Map(),
+    rate, series, actualIntervals: series.filter((s) => s.source === 'actual').length, recordedPeaksKw, ratchetBase, nights, savings, plannedDates,
+    projected, projectedRange, entered, soFar: new Map(),
     forecast: forecast.map((n) => ({ date: n.date, needKwh: n.needKwh, basis: n.basis })),
   };
 }
@@ -281,25 +328,25 @@ function soFarOf(base: PeriodBase, depot: Depot, period: Period, nowMs: number) 
   if (known) return known;
   const toDate = base.series.slice(0, begun);
 
-  const { rate, entered } = base;
-  const monthToDate = computeBill(rate.definition, toDate, { zone, intervalMinutes: 15, days: elapsedDays });
-  // Peaks so far: the highest of what was metered or planned up to now, and what was entered by hand.
-  const enteredApplies = entered && entered.billingPeriodStart === period.start.toISODate();
+  const { rate, recordedPeaksKw, ratchetBase } = base;
+  const monthToDate = computeBill(rate.definition, toDate, { zone, intervalMinutes: 15, days: elapsedDays, recordedPeaksKw, ratchetBase });
+  // Peaks so far: the highest of every interval the bill counts up to now (metered, planned,
+  // forecast or the building alone) and what was entered by hand, the same figures the bill uses.
+  const SOURCE = { actual: 'actual', planned: 'planned', forecast: 'forecast', building: 'building' } as const;
   let facility: Peaks['facility'] = { kw: 0, at: null, source: 'planned' };
   for (const s of toDate) {
-    if (s.source === 'building' || s.source === 'forecast') continue;
     const kw = s.kwh * 4;
-    if (kw > facility.kw) facility = { kw: round2(kw), at: new Date(s.startMs).toISOString(), source: s.source === 'actual' ? 'actual' : 'planned' };
+    if (kw > facility.kw) facility = { kw, at: new Date(s.startMs).toISOString(), source: SOURCE[s.source] };
   }
-  if (enteredApplies && entered.facilityKw > facility.kw) facility = { kw: entered.facilityKw, at: null, source: 'entered' };
+  if ((recordedPeaksKw?.facility ?? 0) > facility.kw) facility = { kw: recordedPeaksKw!.facility, at: null, source: 'entered' };
   const periodPeaks = new Map<string, { kw: number; at: string | null }>();
   for (const s of toDate) {
     const p = ratePlanPeriodAt(rate.definition, DateTime.fromMillis(s.startMs, { zone }));
     if (p.offPeak || p.demandCharge <= 0) continue;
     const kw = s.kwh * 4;
-    if (kw > (periodPeaks.get(p.period)?.kw ?? 0)) periodPeaks.set(p.period, { kw: round2(kw), at: new Date(s.startMs).toISOString() });
+    if (kw > (periodPeaks.get(p.period)?.kw ?? 0)) periodPeaks.set(p.period, { kw, at: new Date(s.startMs).toISOString() });
   }
-  for (const [name, kw] of Object.entries(enteredApplies ? entered.periodsKw : {})) {
+  for (const [name, kw] of Object.entries(recordedPeaksKw?.periods ?? {})) {
     if (kw > (periodPeaks.get(name)?.kw ?? 0)) periodPeaks.set(name, { kw, at: null });
   }
   const value = { monthToDate, peaks: { facility, periods: [...periodPeaks].map(([name, p]) => ({ name, ...p })) } };

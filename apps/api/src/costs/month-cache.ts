@@ -49,8 +49,8 @@ const depotIdColumn = sql.raw('"depots"."id"');
 /**
  * The version of everything a period's costs are computed from: the published plans of its
  * nights (a published plan never changes; a revision is a new row), the meter readings and
- * imports, the runs (the forecast's service calendar), the peaks entered or measured so far, the
- * rate plan that applies (its row's xmin changes with every update of its definition); the
+ * imports, the earlier published plans (a demand ratchet looks back at their peaks), the runs
+ * (the forecast's service calendar), the peaks entered or measured so far, the rate plan that applies (its row's xmin changes with every update of its definition); the
  * depot's own settings are added from its row.
  */
 const inputsVersion = sql<string>`concat_ws('|',
@@ -59,6 +59,8 @@ const inputsVersion = sql<string>`concat_ws('|',
   (select count(*) || ':' || coalesce(sum(kwh), 0) || ':' || coalesce(sum(minutes), 0) from meter_intervals
     where depot_id = ${depotIdColumn} and starts_at >= ${p('fromAt')} and starts_at < ${p('toAt')}),
   (select count(*) || ':' || coalesce(max(created_at)::text, '') from meter_imports where depot_id = ${depotIdColumn}),
+  (select count(*) || ':' || coalesce(max(published_at)::text, '') from plans
+    where depot_id = ${depotIdColumn} and state = 'published' and service_date < ${p('plansFrom')}),
   coalesce((select billing_period_start || ':' || facility_kw || ':' || periods_kw::text || ':' || updated_at from billing_peaks
     where depot_id = ${depotIdColumn}), '-'),
   (select count(*) || ':' || coalesce(max(created_at)::text, '') from runs

@@ -116,3 +116,51 @@ describe('URDB import: bad records name the field', () => {
     expect(() => importUrdb('hello')).toThrow(DomainError);
   });
 });
+
+describe('URDB import: tiered energy, demand ratchet and minimum charge', () => {
+  // A flat invented rate: every hour period 0, two energy tiers (first 1,000 kWh at $0.10, the rest
+  // at $0.085), an 80 % ratchet over 11 months, a $25/month minimum.
+  const flat = Array.from({ length: 12 }, () => Array.from({ length: 24 }, () => 0));
+  const record = {
+    utility: 'Bluestem Rural Power (invented)', name: 'Small General Service (invented)',
+    energyratestructure: [[{ max: 1000, rate: 0.095, adj: 0.005, unit: 'kWh' }, { rate: 0.08, adj: 0.005, unit: 'kWh' }]],
+    energyweekdayschedule: flat, energyweekendschedule: flat,
+    flatdemandstructure: [[{ rate: 8 }]], flatdemandmonths: Array.from({ length: 12 }, () => 0),
+    demandratchetpercentage: Array.from({ length: 12 }, () => 0.8), lookbackrange: 11, demandwindow: 15,
+    mincharge: 25, minchargeunits: '$/month', fixedchargefirstmeter: 12, fixedchargeunits: '$/month',
+  };
+
+  it('imports the tiers as monthly kWh blocks on the first tier\'s price', () => {
+    const result = importUrdb(record);
+    const season = result.definition.seasons[0]!;
+    expect(season.offPeakPrice).toBeCloseTo(0.1, 10);
+    expect(season.energyBlocks).toEqual([{ uptoKwh: 1000, adder: 0 }, { uptoKwh: null, adder: -0.015 }]);
+    expect(result.notes.join(' ')).toMatch(/2 monthly kWh blocks/);
+    expect(result.notes.join(' ')).not.toMatch(/first tier's price \(/);
+  });
+
+  it('imports the ratchet (fractions read as percentages) and the minimum charge', () => {
+    const result = importUrdb(record);
+    expect(result.definition.demandRatchet).toEqual({ percent: 80, months: 11 });
+    expect(result.definition.minimumCharge).toEqual({ amount: 25, per: 'month' });
+    expect(result.definition.fixedCharges).toEqual([{ name: 'Fixed charge', amount: 12, per: 'month' }]);
+    expect(result.notes.join(' ')).not.toMatch(/ratchet|minimum/i);
+  });
+
+  it('a ratchet that varies by month applies its highest value and says so', () => {
+    const result = importUrdb({ ...record, demandratchetpercentage: [80, 80, 80, 80, 80, 90, 90, 90, 90, 80, 80, 80], lookbackrange: undefined });
+    expect(result.definition.demandRatchet).toEqual({ percent: 90, months: 11 });
+    expect(result.notes.join(' ')).toMatch(/varies by month.*90 %/);
+    expect(result.notes.join(' ')).toMatch(/previous 11 months \(common practice\)/);
+  });
+
+  it('tiers that differ between periods keep the first tier\'s price and say so', () => {
+    const two = flat.map((m) => m.map((_, h) => (h >= 16 && h < 20 ? 1 : 0)));
+    const result = importUrdb({
+      ...record, energyweekdayschedule: two, energyweekendschedule: flat,
+      energyratestructure: [record.energyratestructure[0], [{ max: 500, rate: 0.2 }, { rate: 0.25 }]],
+    });
+    expect(result.definition.seasons[0]!.energyBlocks).toEqual([]);
+    expect(result.notes.join(' ')).toMatch(/tiers differ between periods/);
+  });
+});

@@ -43,6 +43,12 @@ const recordSchema = z.looseObject({
   flatdemandmonths: z.array(z.number().int().min(0)).length(12, 'flatdemandmonths needs 12 entries, one per month').optional(),
   fixedchargefirstmeter: z.number().min(0, 'A fixed charge cannot be negative').max(10_000_000, 'The fixed charge looks too large').optional(),
   fixedchargeunits: text('The unit').max(20).optional(),
+  mincharge: z.number().min(0, 'A minimum charge cannot be negative').max(10_000_000, 'The minimum charge looks too large').optional(),
+  minchargeunits: text('The unit').max(20).optional(),
+  demandratchetpercentage: z.array(z.number().min(0, 'A ratchet percentage cannot be negative').max(100, 'A ratchet percentage is at most 100'))
+    .length(12, 'demandratchetpercentage needs 12 entries, one per month').optional(),
+  lookbackrange: z.number().int().min(0).max(36, 'A look-back of at most 36 months').optional(),
+  demandwindow: z.number().min(1).max(1440).optional(),
   demandunits: text('The unit').max(20).optional(),
   flatdemandunit: text('The unit').max(20).optional(),
 });
@@ -51,11 +57,9 @@ type Tier = z.infer<ReturnType<typeof tierSchema>>;
 
 const IGNORED_FIELDS: Record<string, string> = {
   coincidentratestructure: 'coincident demand charges',
-  demandratchetpercentage: 'demand ratchets',
   energyattrs: 'energy attributes',
   demandattrs: 'demand attributes',
   fueladjustmentsmonthly: 'monthly fuel adjustments',
-  mincharge: 'the minimum charge',
   annualmincharge: 'the annual minimum charge',
   fixedchargeeaaddl: 'additional meter charges',
   lookbackpercent: 'demand look-back',
@@ -78,11 +82,13 @@ function unwrap(input: unknown): unknown {
   return input;
 }
 
+const tierPrice = (t: Tier) => (t.rate ?? 0) + (t.adj ?? 0);
+
 /** $/unit of a period: the first tier's rate plus adjustment; notes when other tiers were ignored. */
-function periodRate(tiers: Tier[], what: string, notes: string[]): number {
+function periodRate(tiers: Tier[], what: string, notes: string[], tiersImported = false): number {
   const first = tiers[0]!;
-  const rate = (first.rate ?? 0) + (first.adj ?? 0);
-  if (tiers.length > 1) {
+  const rate = tierPrice(first);
+  if (tiers.length > 1 && !tiersImported) {
     notes.push(`${what} has ${tiers.length} tiers; tiered prices are not supported, so the first tier's price (${rate}) applies to all use.`);
   }
   return rate;
@@ -171,7 +177,22 @@ export function importUrdb(input: unknown): UrdbImportResult {
   if (Object.keys(errors).length) fail(errors);
 
   const notes: string[] = [];
-  const energyPrice = rec.energyratestructure!.map((t, i) => periodRate(t, `Energy period ${i}`, notes));
+  const energyBlocks = energyBlocksOf(rec.energyratestructure!, notes);
+  const energyPrice = rec.energyratestructure!.map((t, i) => periodRate(t, `Energy period ${i}`, notes, energyBlocks !== null));
+  const demandRatchet = ratchetOf(rec, notes);
+  let minimumCharge: RatePlanDefinition['minimumCharge'] = null;
+  if (rec.mincharge !== undefined && rec.mincharge > 0) {
+    const units = rec.minchargeunits ?? '$/month';
+    if (units === '$/month') minimumCharge = { amount: rec.mincharge, per: 'month' };
+    else if (units === '$/day') minimumCharge = { amount: rec.mincharge, per: 'day' };
+    else if (units === '$/year') {
+      minimumCharge = { amount: Math.round((rec.mincharge / 12) * 100) / 100, per: 'month' };
+      notes.push(`The yearly minimum charge of ${rec.mincharge} is applied as ${minimumCharge.amount} a month.`);
+    } else notes.push(`Not supported, left out: a minimum charge in "${units}" (mincharge).`);
+  }
+  if (rec.demandwindow !== undefined && rec.demandwindow !== 15) {
+    notes.push(`The record measures demand over ${rec.demandwindow} minutes; Nightyard bills the highest 15-minute demand.`);
+  }
   const demandPrice = (rec.demandratestructure ?? []).map((t, i) => periodRate(t, `Demand period ${i}`, notes));
   const flatPrice = (rec.flatdemandstructure ?? []).map((t, i) => periodRate(t, `Flat demand period ${i}`, notes));
   if (fixed[0]?.name.includes('yearly')) notes.push(`The yearly fixed charge of ${rec.fixedchargefirstmeter} is spread as ${fixed[0].amount} a month.`);
@@ -243,6 +264,7 @@ export function importUrdb(input: unknown): UrdbImportResult {
       offPeakPrice: offPeak ? price(offPeak) : Math.min(...named.map(price)),
       facilityDemandCharge: flatIdx === undefined ? 0 : flatPrice[flatIdx]!,
       periods,
+      energyBlocks: energyBlocks ?? [],
     };
   }
 
@@ -269,7 +291,7 @@ export function importUrdb(input: unknown): UrdbImportResult {
   }
 
   // What the record maps to must still be a valid plan (e.g. a yearly charge within range).
-  const mapped = ratePlanDefinitionSchema.safeParse({ currency: 'USD', seasons, fixedCharges: fixed, holidays: [] });
+  const mapped = ratePlanDefinitionSchema.safeParse({ currency: 'USD', seasons, fixedCharges: fixed, holidays: [], demandRatchet, minimumCharge });
   if (!mapped.success) {
     const fields: Record<string, string> = {};
     for (const i of mapped.error.issues) fields[`plan.${issuePath(i.path)}`] ??= i.message;
@@ -278,6 +300,47 @@ export function importUrdb(input: unknown): UrdbImportResult {
   const definition = mapped.data;
   const name = [rec.utility, rec.name].filter(Boolean).join(': ') || 'Imported URDB rate';
   return { name, definition, notes };
+}
+
+/**
+ * Energy tiers as monthly kWh blocks: URDB gives each period its own tiers, each with `max` (the
+ * tier's upper kWh limit in the month) and `rate` + `adj`. Nightyard's blocks are one set of limits
+ * with a price change on top of each period's first-tier price, so they import when every period
+ * has the same limits and the same changes (a flat or a uniformly tiered rate); otherwise the first
+ * tier's price applies and a note says so. Null when no period has more than one tier.
+ */
+function energyBlocksOf(structure: Tier[][], notes: string[]): { uptoKwh: number | null; adder: number }[] | null {
+  if (!structure.some((tiers) => tiers.length > 1)) return null;
+  const shape = (tiers: Tier[]) => tiers.map((t, i) => ({
+    uptoKwh: i === tiers.length - 1 ? null : t.max!,
+    adder: Math.round((tierPrice(t) - tierPrice(tiers[0]!)) * 1e9) / 1e9,
+  }));
+  const first = JSON.stringify(shape(structure[0]!));
+  if (structure.some((tiers) => JSON.stringify(shape(tiers)) !== first) || structure[0]!.some((t) => t.unit !== undefined && t.unit !== 'kWh')) {
+    notes.push('The energy tiers differ between periods: they are not imported, each period\'s first tier\'s price applies to all use.');
+    return null;
+  }
+  const blocks = shape(structure[0]!);
+  notes.push(`Energy tiers imported as ${blocks.length} monthly kWh blocks, each priced as a change on the period's first-tier price.`);
+  return blocks;
+}
+
+/**
+ * URDB's demand ratchet: `demandratchetpercentage` holds 12 values, one per month (fractions
+ * such as 0.8 or percentages such as 80; both are read, from memory of records seen), and
+ * `lookbackrange` the months looked back over. Nightyard keeps one percentage: the highest.
+ */
+function ratchetOf(rec: UrdbRecord, notes: string[]): RatePlanDefinition['demandRatchet'] {
+  const values = rec.demandratchetpercentage;
+  if (!values || values.every((v) => v === 0)) return null;
+  const asPercent = values.map((v) => (values.every((x) => x <= 1) ? v * 100 : v));
+  const percent = Math.max(...asPercent);
+  if (asPercent.some((v) => v !== percent)) {
+    notes.push(`The demand ratchet varies by month (${asPercent.join(', ')} %): Nightyard applies the highest, ${percent} %, in every month.`);
+  }
+  const months = rec.lookbackrange && rec.lookbackrange > 0 ? rec.lookbackrange : 11;
+  if (!rec.lookbackrange) notes.push('The record gives no look-back range: the ratchet looks back over the previous 11 months (common practice).');
+  return { percent: Math.round(percent * 1e6) / 1e6, months };
 }
 
 function periodNames(n: number, hasOffPeak: boolean): string[] {

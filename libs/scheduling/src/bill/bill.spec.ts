@@ -1,6 +1,6 @@
 import { DateTime } from 'luxon';
 import { describe, expect, it } from 'vitest';
-import { ratePlanDefinitionSchema } from '@nightyard/contracts';
+import { ratePlanDefinitionSchema, toCents } from '@nightyard/contracts';
 import { computeBill, nightMarginalCost, type IntervalDemand } from './bill.js';
 
 const ZONE = 'America/Chicago';
@@ -27,9 +27,10 @@ describe('bill engine against published worked examples', () => {
     expect(bill.kwh).toBeCloseTo(17_588, 6);
     expect(bill.energyTotal).toBeCloseTo(1_661.01 - 302.37, 1);
     expect(bill.demand[0]!.quantity).toBeCloseTo(30, 9);
-    expect(bill.demandTotal).toBe(262.34);
-    expect(bill.fixedTotal).toBe(3.74);
-    expect(bill.total).toBe(1_624.72);
+    expect(toCents(bill.demandTotal)).toBe(262.34);
+    expect(toCents(bill.fixedTotal)).toBe(3.74);
+    // Full precision throughout, rounded once to show: $1,624.7178 -> $1,624.72.
+    expect(toCents(bill.total)).toBe(1_624.72);
   });
 
   it('demand from interval data: 150 kWh in 30 minutes is 300 kW; at $12.50/kW-month, $3,750 (common practice)', () => {
@@ -57,7 +58,7 @@ describe('bill engine', () => {
     // Wednesday 15:00-17:00 in 15-minute steps: 15:00-16:00 off-peak at 100 kW, 16:00-17:00 on-peak at 40 kW.
     const kwhs = [25, 25, 25, 25, 10, 10, 10, 10];
     const bill = computeBill(tou, series('2026-12-02T15:00', 15, kwhs), { zone: ZONE, intervalMinutes: 15, days: 31 });
-    expect(bill.energy).toEqual([
+    expect(bill.energy.map((l) => ({ ...l, amount: toCents(l.amount) }))).toEqual([
       { name: 'Energy, off-peak', quantity: 100, unit: 'kWh', rate: 0.07, amount: 7 },
       { name: 'Energy, on-peak', quantity: 40, unit: 'kWh', rate: 0.18, amount: 7.2 },
     ]);
@@ -66,7 +67,7 @@ describe('bill engine', () => {
       ['Demand, on-peak', 40, 360],
     ]);
     expect(bill.fixed).toEqual([{ name: 'Meter', quantity: 31, unit: 'day', rate: 1.5, amount: 46.5 }]);
-    expect(bill.total).toBe(7 + 7.2 + 750 + 360 + 46.5);
+    expect(bill.total).toBeCloseTo(7 + 7.2 + 750 + 360 + 46.5, 9);
   });
 
   it('a night below the peaks so far adds no demand cost; above them only the increase', () => {
@@ -84,6 +85,106 @@ describe('bill engine', () => {
     const day = Array.from({ length: 100 }, (_, i) => ({ startMs: t0 + i * 900_000, kwh: 1 }));
     const bill = computeBill(tou, day, { zone: ZONE, intervalMinutes: 15, days: 1 });
     // Sunday: no on-peak; 100 kWh all off-peak.
-    expect(bill.energy).toEqual([{ name: 'Energy, off-peak', quantity: 100, unit: 'kWh', rate: 0.07, amount: 7 }]);
+    expect(bill.energy.map((l) => ({ ...l, amount: toCents(l.amount) }))).toEqual([{ name: 'Energy, off-peak', quantity: 100, unit: 'kWh', rate: 0.07, amount: 7 }]);
+  });
+});
+
+describe('tiered energy, demand ratchets and minimum bills', () => {
+  // Source: "Calculated Minimum Charges", Oracle Utilities Customer Care and Billing 2.9 user guide,
+  // https://docs.oracle.com/en/industries/energy-water/ccb/2.9.0.0.0/ccb-user-guides/CCB_29000/C1_BP14Rates_Calculated_Minimum_Charges.html
+  // Its example rate: first 300 kWh at $0.0382, remaining kWh at $0.0673, minimum charge $0.15 per
+  // day (its state and county taxes are left out). The bills below are worked by hand from it.
+  const blocked = ratePlanDefinitionSchema.parse({
+    currency: 'USD',
+    seasons: [{
+      name: 'All year', fromMonth: 1, toMonth: 12, offPeakPrice: 0.0382, periods: [],
+      energyBlocks: [{ uptoKwh: 300, adder: 0 }, { uptoKwh: null, adder: 0.0673 - 0.0382 }],
+    }],
+    minimumCharge: { amount: 0.15, per: 'day' },
+  });
+  const month = (totalKwh: number) => {
+    const n = 30 * 96;
+    return series('2026-06-01T00:00', 15, Array.from({ length: n }, () => totalKwh / n));
+  };
+
+  it('1,000 kWh in a 30-day month: 300 x $0.0382 + 700 x $0.0673 = $11.46 + $47.11 = $58.57, above the $4.50 minimum', () => {
+    const bill = computeBill(blocked, month(1_000), { zone: ZONE, intervalMinutes: 15, days: 30 });
+    const first = bill.energy.find((l) => l.name === 'Energy, off-peak')!;
+    const block = bill.energy.find((l) => l.name === 'Energy above 300 kWh')!;
+    expect(first.quantity).toBeCloseTo(1_000, 6);
+    expect(block.quantity).toBeCloseTo(700, 6);
+    expect(toCents(first.amount)).toBe(38.2);
+    expect(toCents(block.amount)).toBe(20.37);
+    expect(toCents(bill.energyTotal)).toBe(58.57);
+    expect(bill.fixed).toEqual([]);
+    expect(toCents(bill.total)).toBe(58.57);
+  });
+
+  it('100 kWh in a 30-day month: $3.82 of energy is topped up to the minimum of 30 x $0.15 = $4.50', () => {
+    const bill = computeBill(blocked, month(100), { zone: ZONE, intervalMinutes: 15, days: 30 });
+    expect(toCents(bill.energyTotal)).toBe(3.82);
+    expect(bill.fixed.map((l) => [l.name, toCents(l.amount)])).toEqual([['Minimum bill top-up', 0.68]]);
+    expect(toCents(bill.total)).toBe(4.5);
+  });
+
+  it('a night alone (no fixed charges) is never topped up to the minimum', () => {
+    const bill = computeBill(blocked, month(100), { zone: ZONE, intervalMinutes: 15, days: 30, withoutFixed: true });
+    expect(bill.fixed).toEqual([]);
+  });
+
+  it('blocks count from the kWh already used earlier in the period', () => {
+    const bill = computeBill(blocked, series('2026-06-10T00:00', 15, [50, 50]), { zone: ZONE, intervalMinutes: 15, days: 30, kwhBefore: 250, withoutFixed: true });
+    expect(bill.energy.find((l) => l.name === 'Energy above 300 kWh')!.quantity).toBeCloseTo(50, 9);
+  });
+
+  // Source: "What is a demand ratchet?", Pacific Northwest National Laboratory, FEMP FAQ,
+  // https://feds.pnnl.gov/faq/what-demand-ratchet: "A typical demand ratchet uses 80% of the peak
+  // demand occurring during the previous 11 months ... a peak demand of 1,000 kW ... you will be
+  // billed for a minimum of 800 kW during the next 11 months".
+  const ratcheted = ratePlanDefinitionSchema.parse({
+    currency: 'USD',
+    seasons: [{ name: 'All year', fromMonth: 1, toMonth: 12, offPeakPrice: 0.05, facilityDemandCharge: 10, periods: [] }],
+    demandRatchet: { percent: 80, months: 11 },
+  });
+
+  it('PNNL ratchet example: after a 1,000 kW peak a month peaking at 500 kW is billed on 800 kW ($8,000 at $10/kW)', () => {
+    const bill = computeBill(ratcheted, series('2026-06-01T00:00', 15, [125, 50]), {
+      zone: ZONE, intervalMinutes: 15, days: 30, ratchetBase: { kw: 1_000, source: 'from meter readings' },
+    });
+    const facility = bill.demand[0]!;
+    expect(facility.quantity).toBe(800);
+    expect(facility.amount).toBe(8_000);
+    expect(facility.note).toContain('80 % of 1000 kW');
+    expect(facility.note).toContain('from meter readings');
+  });
+
+  it('a month above the ratchet is billed on its own peak', () => {
+    const bill = computeBill(ratcheted, series('2026-06-01T00:00', 15, [225]), {
+      zone: ZONE, intervalMinutes: 15, days: 30, ratchetBase: { kw: 1_000, source: 'from meter readings' },
+    });
+    expect(bill.demand[0]!.quantity).toBe(900);
+    expect(bill.demand[0]!.note).toBeUndefined();
+  });
+});
+
+describe('peaks recorded earlier in the period (entered in Depot)', () => {
+  const tou = ratePlanDefinitionSchema.parse({
+    currency: 'USD',
+    seasons: [{
+      name: 'Winter', fromMonth: 1, toMonth: 12, offPeakPrice: 0.07, facilityDemandCharge: 7.5,
+      periods: [{ name: 'on-peak', price: 0.18, demandCharge: 9, windows: [{ dayTypes: ['weekday'], from: '16:00', to: '20:00' }] }],
+    }],
+  });
+
+  it('an on-peak peak of 48 kW entered bills 48 kW although the intervals reach only 40 kW', () => {
+    const bill = computeBill(tou, series('2026-12-02T16:00', 15, [10, 10]), {
+      zone: ZONE, intervalMinutes: 15, days: 31, recordedPeaksKw: { facility: 30, periods: { 'on-peak': 48 } },
+    });
+    const onPeak = bill.demand.find((d) => d.name === 'Demand, on-peak')!;
+    expect(onPeak.quantity).toBe(48);
+    expect(onPeak.amount).toBe(48 * 9);
+    expect(onPeak.note).toContain('entered in Depot');
+    // The facility peak of the intervals (40 kW) is above the 30 kW entered: it stands.
+    expect(bill.demand[0]!.quantity).toBe(40);
   });
 });

@@ -55,11 +55,31 @@ describe('BillTable', () => {
     const click = vi.spyOn(HTMLAnchorElement.prototype, 'click').mockImplementation(() => undefined);
     el.querySelector<HTMLButtonElement>('ny-csv-export-button button')!.click();
     const lines = (await blobs[0]!.text()).split('\r\n');
-    expect(lines[0]).toBe('Section,Charge,Quantity,Unit,Rate (USD),Amount (USD),Peak set at (depot time)');
-    expect(lines[1]).toBe('Energy,"Energy, off-peak",12000,kWh,0.068,816,');
-    expect(lines[3]).toBe('Demand,Facility demand,185,kW,7.5,1387.5,2026-12-02 17:15');
-    expect(lines[6]).toBe('Total,Bill total,13500.5,kWh,,2952.09,');
+    expect(lines[0]).toBe('Section,Charge,Quantity,Unit,Rate (USD),Amount (USD),Peak set at (depot time),Note');
+    expect(lines[1]).toBe('Energy,"Energy, off-peak",12000,kWh,0.068,816,,');
+    expect(lines[3]).toBe('Demand,Facility demand,185,kW,7.5,1387.5,2026-12-02 17:15,');
+    expect(lines[6]).toBe('Total,Bill total,13500.5,kWh,,2952.09,,');
     create.mockRestore();
     click.mockRestore();
+  });
+
+  it('shows full-precision amounts so the lines add up to the shown total to the cent (one rounding rule)', async () => {
+    // Three thirds of a dollar each rounded alone would show $0.33 three times beside a $1.00 total.
+    const third = 1 / 3;
+    const line = (name: string) => ({ name, quantity: 1, unit: 'kWh' as const, rate: third, amount: third });
+    const el = await render(bill({
+      energy: [line('Energy, a'), line('Energy, b'), line('Energy, c')], demand: [], fixed: [],
+      energyTotal: 1, demandTotal: 0, fixedTotal: 0, total: 1, kwh: 3,
+    }));
+    const amounts = ['Energy, a', 'Energy, b', 'Energy, c'].map((n) => text([...rowOf(el, n)!.querySelectorAll('td')].at(-1)));
+    expect(amounts).toEqual(['$0.34', '$0.33', '$0.33']);
+    expect(cells(el.querySelector('tfoot tr.grand-total'))).toBe('Total $1.00');
+  });
+
+  it('shows where a billed demand comes from when it is not the intervals\' own peak', async () => {
+    const b = bill();
+    b.demand[0] = { ...b.demand[0]!, peakAt: null, note: 'Demand ratchet: 80 % of 400 kW, the highest demand of the previous 11 months (from meter readings)' };
+    const el = await render(b);
+    expect(text(rowOf(el, 'Facility demand'))).toContain('Demand ratchet: 80 % of 400 kW');
   });
 });

@@ -1,6 +1,6 @@
 import { ChangeDetectionStrategy, Component, computed, input } from '@angular/core';
-import type { BillView } from '@nightyard/contracts';
-import { cents, instantAt, instantCsv, kw, kwh, money, num, unitPrice } from './costs-format';
+import { footedCents, toCents, type BillView } from '@nightyard/contracts';
+import { instantAt, instantCsv, kw, kwh, money, num, unitPrice } from './costs-format';
 import { CsvExportButton } from './csv-export-button';
 import type { CsvTable } from './csv';
 
@@ -41,57 +41,71 @@ export class BillTable {
     const b = this.bill();
     const c = b.currency;
     const tz = this.timezone();
-    const line = (l: BillView['energy'][number], peakAt: number | null = null) => ({
+    // One rounding rule: the bill is computed in full precision; the total is shown rounded once,
+    // the section totals add up to it and each section's lines to its total (footedCents).
+    const [energyShown, demandShown, fixedShown] = footedCents([b.energyTotal, b.demandTotal, b.fixedTotal], toCents(b.total));
+    const shown = {
+      energy: footedCents(b.energy.map((l) => l.amount), energyShown),
+      demand: footedCents(b.demand.map((l) => l.amount), demandShown),
+      fixed: footedCents(b.fixed.map((l) => l.amount), fixedShown),
+    };
+    const line = (l: BillView['energy'][number], amount: number, peakAt: number | null = null) => ({
       name: l.name,
       quantity: quantityText(l.quantity, l.unit),
       rate: `${unitPrice(l.rate, c)} per ${l.unit}`,
-      amount: money(l.amount, c),
+      amount: money(amount, c),
       peakAt: instantAt(peakAt, tz),
+      note: l.note ?? null,
     });
     return [
       {
         key: 'energy',
         title: 'Energy',
         empty: 'No energy used',
-        lines: b.energy.map((l) => line(l)),
-        total: money(b.energyTotal, c),
+        lines: b.energy.map((l, i) => line(l, shown.energy[i]!)),
+        total: money(energyShown!, c),
         totalLabel: `Energy total, ${kwh(b.kwh)}`,
       },
       {
         key: 'demand',
         title: 'Demand',
         empty: 'No demand charge in this rate plan',
-        lines: b.demand.map((l) => line(l, l.peakAt)),
-        total: money(b.demandTotal, c),
+        lines: b.demand.map((l, i) => line(l, shown.demand[i]!, l.peakAt)),
+        total: money(demandShown!, c),
         totalLabel: 'Demand total',
       },
       {
         key: 'fixed',
         title: 'Fixed charges',
         empty: 'No fixed charges in this rate plan',
-        lines: b.fixed.map((l) => line(l)),
-        total: money(b.fixedTotal, c),
+        lines: b.fixed.map((l, i) => line(l, shown.fixed[i]!)),
+        total: money(fixedShown!, c),
         totalLabel: 'Fixed charges total',
       },
     ];
   });
 
-  protected readonly total = computed(() => money(this.bill().total, this.currency()));
+  protected readonly total = computed(() => money(toCents(this.bill().total), this.currency()));
 
   protected readonly csv = computed<CsvTable>(() => {
     const b = this.bill();
     const c = b.currency;
     const tz = this.timezone();
-    const row = (section: string, l: BillView['energy'][number], peakAt: number | null = null) => [
-      section, l.name, Number(l.quantity.toFixed(3)), l.unit, l.rate, cents(l.amount), instantCsv(peakAt, tz),
+    // The same footed cents as the table, so the export adds up as the page does.
+    const [energyShown, demandShown, fixedShown] = footedCents([b.energyTotal, b.demandTotal, b.fixedTotal], toCents(b.total));
+    const energy = footedCents(b.energy.map((l) => l.amount), energyShown);
+    const demand = footedCents(b.demand.map((l) => l.amount), demandShown);
+    const fixed = footedCents(b.fixed.map((l) => l.amount), fixedShown);
+    const row = (section: string, l: BillView['energy'][number], amount: number, peakAt: number | null = null) => [
+      section, l.name, Number(l.quantity.toFixed(3)), l.unit, l.rate, amount, instantCsv(peakAt, tz), l.note ?? null,
     ];
     return {
-      header: ['Section', 'Charge', 'Quantity', 'Unit', `Rate (${c})`, `Amount (${c})`, 'Peak set at (depot time)'],
+      header: ['Section', 'Charge', 'Quantity', 'Unit', `Rate (${c})`, `Amount (${c})`, 'Peak set at (depot time)', 'Note'],
       rows: [
-        ...b.energy.map((l) => row('Energy', l)),
-        ...b.demand.map((l) => row('Demand', l, l.peakAt)),
-        ...b.fixed.map((l) => row('Fixed', l)),
-        ['Total', 'Bill total', Number(b.kwh.toFixed(3)), 'kWh', null, cents(b.total), null],
+        ...b.energy.map((l, i) => row('Energy', l, energy[i]!)),
+        ...b.demand.map((l, i) => row('Demand', l, demand[i]!, l.peakAt)),
+        ...b.fixed.map((l, i) => row('Fixed', l, fixed[i]!)),
+        ['Total', 'Bill total', Number(b.kwh.toFixed(3)), 'kWh', null, toCents(b.total), null, null],
       ],
     };
   });

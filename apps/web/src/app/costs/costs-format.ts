@@ -1,4 +1,4 @@
-import type { MonthCosts } from '@nightyard/contracts';
+import { toCents, type MonthCosts } from '@nightyard/contracts';
 import { addDays, dayTimeAt, depotStamp } from '../core/depot-time';
 
 export { addDays };
@@ -15,7 +15,8 @@ function currencyFormat(currency: string, min: number, max: number): Intl.Number
 
 /** An amount of money ("$1,234.56"). */
 export function money(value: number, currency: string): string {
-  return currencyFormat(currency, 2, 2).format(value);
+  // Rounded by the one rule first (`toCents`), so a figure reads the same on every page.
+  return currencyFormat(currency, 2, 2).format(toCents(value));
 }
 
 /** A unit price: enough digits for tariffs quoted to a tenth of a cent ("$0.0685"). */
@@ -124,7 +125,7 @@ export function localTime(local: string): string {
 
 /** Rounds money for a CSV cell (plain number, cents). */
 export function cents(value: number): number {
-  return Math.round(value * 100) / 100;
+  return toCents(value);
 }
 
 /** An amount with its sign: "+$1.20", "−$0.50", "$0.00". */

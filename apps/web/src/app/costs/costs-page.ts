@@ -6,7 +6,7 @@ import { MatIconModule } from '@angular/material/icon';
 import { MatProgressBarModule } from '@angular/material/progress-bar';
 import { MatSelectModule } from '@angular/material/select';
 import { ActivatedRoute, Router, RouterLink } from '@angular/router';
-import { hasAnyRole, type MonthCosts, type Role } from '@nightyard/contracts';
+import { footedCents, hasAnyRole, toCents, type MonthCosts, type Role } from '@nightyard/contracts';
 import { AuthStore } from '../auth/auth-store';
 import { toApiProblem } from '../core/api-error';
 import { Clock } from '../core/clock';
@@ -28,6 +28,8 @@ const PEAK_SOURCE: Record<MonthCosts['peaks']['facility']['source'], string> = {
   actual: 'from meter data',
   planned: 'in a published plan',
   entered: 'entered under Depot (peaks so far)',
+  forecast: 'in the forecast of a night without a published plan',
+  building: 'by the building\'s own load (no charging then)',
 };
 
 /**
@@ -130,8 +132,12 @@ export class CostsPage {
     const facility = m.peaks.facility;
     const facilityAt = instantAt(facility.at, tz);
     return {
-      projected: money(m.projected.total, c),
-      projectedParts: `Energy ${money(m.projected.energyTotal, c)}, demand ${money(m.projected.demandTotal, c)}, fixed ${money(m.projected.fixedTotal, c)}`,
+      projected: money(toCents(m.projected.total), c),
+      projectedParts: (() => {
+        // The parts add up to the total shown (footedCents, the one rounding rule).
+        const [e, d, f] = footedCents([m.projected.energyTotal, m.projected.demandTotal, m.projected.fixedTotal], toCents(m.projected.total));
+        return `Energy ${money(e!, c)}, demand ${money(d!, c)}, fixed ${money(f!, c)}`;
+      })(),
       projectedRange: m.projectedRange
         ? `${m.forecast.length === 1 ? '1 night is' : `${m.forecast.length} nights are`} forecast: between ${money(m.projectedRange.low, c)} and ${money(m.projectedRange.high, c)}.`
         : null,

@@ -21,10 +21,13 @@ describe('NightCostsPage', () => {
     const text = (e: Element | null) => e?.textContent?.replace(/\s+/g, ' ').trim() ?? '';
 
     expect(text(el.querySelector('h1'))).toMatch(/^Night of Tuesday/);
-    expect(text(el.querySelector('.savings .card-value'))).toBe('$169.60');
-    expect(text(el.querySelector('.savings'))).toContain("58.5 % of the baseline's cost");
-    expect(text(el.querySelector('.cards'))).toContain('Baseline: timer');
-    expect(text(el.querySelector('.cards'))).toContain('Charge on arrival: $310.40, peak 420 kW');
+    // A night's saving is on charging energy ($150.10 - $100.50); demand is the period's.
+    expect(text(el.querySelector('.savings .card-value'))).toBe('$49.60');
+    expect(text(el.querySelector('.savings'))).toContain("33 % of the baseline's charging energy");
+    expect(text(el.querySelector('.savings'))).toContain("The plan's peak 185 kW against the baseline's 410 kW");
+    expect(text(el.querySelector('.savings'))).toContain('Demand is billed once a billing period');
+    expect(text(el.querySelector('.cards'))).toMatch(/Baseline: timer\s*\$150\.10/);
+    expect(text(el.querySelector('.cards'))).toContain('Charge on arrival: $160.40, peak 420 kW');
     const rows = [...el.querySelectorAll('table.buses tbody tr')].map((r) => [...r.children].map(text));
     expect(rows).toEqual([
       ['201', '80 kWh', '$70.20', '58', '$1.21'],

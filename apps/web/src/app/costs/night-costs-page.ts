@@ -3,7 +3,7 @@ import { MatButtonModule } from '@angular/material/button';
 import { MatIconModule } from '@angular/material/icon';
 import { MatProgressBarModule } from '@angular/material/progress-bar';
 import { RouterLink } from '@angular/router';
-import type { PlanCosts } from '@nightyard/contracts';
+import { footedCents, toCents, type PlanCosts } from '@nightyard/contracts';
 import { toApiProblem } from '../core/api-error';
 import { baselineName } from '../plans/plan-format';
 import { CostsApi } from './costs-api';
@@ -44,13 +44,15 @@ export class NightCostsPage {
       total: money(p.total, c),
       parts: `Energy ${money(p.energy, c)}, demand ${money(p.demand, c)}`,
       baselineName: baselineName(p.baseline.kind),
-      baseline: money(p.baseline.total, c),
-      baselineParts: `Energy ${money(p.baseline.energy, c)}, demand ${money(p.baseline.demand, c)}, peak ${num(p.baseline.peakKw, 0)} kW` +
+      // The night against its baseline on charging energy; demand is the period's (see Costs).
+      baseline: money(p.baseline.total - p.baseline.demand, c),
+      baselineParts: `Charging energy, peak ${num(p.baseline.peakKw, 0)} kW` +
         (p.baseline.shortfallKwh > 0.05 ? `; ${num(p.baseline.shortfallKwh, 0)} kWh it would not deliver, counted at the plan's average price` : ''),
-      otherBaseline: p.otherBaseline ? `${baselineName(p.otherBaseline.kind)}: ${money(p.otherBaseline.total, c)}, peak ${num(p.otherBaseline.peakKw, 0)} kW` : null,
+      otherBaseline: p.otherBaseline ? `${baselineName(p.otherBaseline.kind)}: ${money(p.otherBaseline.energy, c)}, peak ${num(p.otherBaseline.peakKw, 0)} kW` : null,
       savings: money(p.savings, c),
       savingsShare: percent(p.savingsShare),
       savingsPositive: p.savings > 0,
+      peaks: `The plan's peak ${num(p.peakKw, 0)} kW against the baseline's ${num(p.baseline.peakKw, 0)} kW`,
       charging: kwh(p.chargingKwh),
       miles: `${num(p.miles, 0)} miles`,
       perMile: p.costPerMile === null ? 'No miles' : money(p.costPerMile, c),
@@ -61,10 +63,12 @@ export class NightCostsPage {
     const p = this.costs();
     if (!p) return [];
     const c = p.currency;
-    return p.perBus.map((b) => ({
+    // The buses' costs foot to the night's total to the cent (footedCents, the one rounding rule).
+    const shown = footedCents(p.perBus.map((b) => b.cost), toCents(p.total));
+    return p.perBus.map((b, i) => ({
       bus: b.bus,
       kwh: num(b.kwh, 1),
-      cost: money(b.cost, c),
+      cost: money(shown[i]!, c),
       miles: num(b.miles, 1),
       perMile: b.costPerMile === null ? '—' : money(b.costPerMile, c),
     }));
@@ -74,10 +78,10 @@ export class NightCostsPage {
     const p = this.costs();
     if (!p) return null;
     const c = p.currency;
-    const cost = p.perBus.reduce((a, b) => a + b.cost, 0);
+    // The same figure as the card: the night's total is the sum of its buses' unrounded costs.
     return {
       kwh: num(p.chargingKwh, 1),
-      cost: money(cost, c),
+      cost: money(toCents(p.total), c),
       miles: num(p.miles, 1),
       perMile: p.costPerMile === null ? '—' : money(p.costPerMile, c),
     };
@@ -88,7 +92,10 @@ export class NightCostsPage {
     const c = p?.currency ?? 'USD';
     return {
       header: ['Bus', 'Charging (kWh)', `Cost (${c})`, 'Miles next service day', `Cost per mile (${c})`],
-      rows: (p?.perBus ?? []).map((b) => [b.bus, b.kwh, cents(b.cost), b.miles, b.costPerMile === null ? null : cents(b.costPerMile)]),
+      rows: (() => {
+        const shown = footedCents((p?.perBus ?? []).map((b) => b.cost), toCents(p?.total ?? 0));
+        return (p?.perBus ?? []).map((b, i) => [b.bus, b.kwh, shown[i]!, b.miles, b.costPerMile === null ? null : cents(b.costPerMile)]);
+      })(),
     };
   });
 

@@ -8,7 +8,7 @@ import {
   viewChild,
 } from '@angular/core';
 import { MatButtonToggleModule } from '@angular/material/button-toggle';
-import type { MonthCosts } from '@nightyard/contracts';
+import { shownSum, type MonthCosts } from '@nightyard/contracts';
 import { BarController, BarElement, CategoryScale, Legend, LinearScale, Tooltip, type ChartData, type ChartOptions } from 'chart.js';
 import { BaseChartDirective, provideCharts } from 'ng2-charts';
 import { injectThemeColours } from '../shared/theme-colours';
@@ -123,8 +123,9 @@ export class NightsChart {
     const count = nights.length === 1 ? '1 night' : `${nights.length} nights`;
     if (this.view() === 'savings') {
       const compared = nights.filter((n) => n.baselineEnergyCost !== null);
-      const plan = compared.reduce((a, n) => a + n.planEnergyCost, 0);
-      const baseline = compared.reduce((a, n) => a + n.baselineEnergyCost!, 0);
+      // The nights as the table shows them (each rounded as on every page), totalled as shown.
+      const plan = shownSum(compared.map((n) => n.planEnergyCost));
+      const baseline = shownSum(compared.map((n) => n.baselineEnergyCost));
       return `${count} with a published plan. Their charging energy costs ${money(plan, c)} planned, against ${money(baseline, c)} under each night's baseline: ${money(baseline - plan, c)} saved on energy (demand is billed on the period's peak, see the savings card). Each night's figures are in the table under the chart.`;
     }
     const metered = nights.filter((n) => n.actualSiteEnergyCost !== null);

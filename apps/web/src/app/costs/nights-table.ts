@@ -1,6 +1,6 @@
 import { ChangeDetectionStrategy, Component, computed, input } from '@angular/core';
 import { RouterLink } from '@angular/router';
-import type { MonthCosts } from '@nightyard/contracts';
+import { shownSum, toCents, type MonthCosts } from '@nightyard/contracts';
 import { baselineName } from '../plans/plan-format';
 import { cents, fullyMetered, kw, money, monthKey, percent, shortDay, signedMoney } from './costs-format';
 import { CsvExportButton } from './csv-export-button';
@@ -28,23 +28,39 @@ export class NightsTable {
   protected readonly currency = computed(() => this.month().currency);
   protected readonly fileName = computed(() => `costs-nights-${monthKey(this.month().period.start)}.csv`);
 
+  /**
+   * The money columns as shown: each night's figures are rounded on their own, as on Tonight,
+   * Plans and the night's page, and each column's total is the sum of what it shows (`shownSum`,
+   * rule 3 of the one rounding rule); a night's saving is its shown baseline minus its shown plan,
+   * so rows and columns both add up.
+   */
+  private readonly shown = computed(() => {
+    const nights = this.month().nights;
+    const plan = nights.map((n) => toCents(n.planEnergyCost));
+    const baseline = nights.map((n) => (n.baselineEnergyCost === null ? null : toCents(n.baselineEnergyCost)));
+    const saving = nights.map((_, i) => (baseline[i] === null ? null : Math.round((baseline[i]! - plan[i]!) * 100) / 100));
+    const projected = nights.map((n) => toCents(n.projectedSiteEnergyCost));
+    return { plan, baseline, saving, projected, totals: { plan: shownSum(plan), baseline: shownSum(baseline), saving: shownSum(saving), projected: shownSum(projected) } };
+  });
+
   protected readonly rows = computed(() => {
     const c = this.currency();
-    return this.month().nights.map((n) => {
-      const saving = n.baselineEnergyCost === null ? null : n.baselineEnergyCost - n.planEnergyCost;
+    const shown = this.shown();
+    return this.month().nights.map((n, i) => {
+      const saving = shown.saving[i] ?? null;
       const diff = fullyMetered(n) ? n.actualSiteEnergyCost! - n.projectedSiteEnergyCost : null;
       return {
         planId: n.planId,
         date: n.date,
         day: shortDay(n.date),
         version: n.version,
-        planEnergy: money(n.planEnergyCost, c),
-        baselineEnergy: n.baselineEnergyCost === null ? null : money(n.baselineEnergyCost, c),
+        planEnergy: money(shown.plan[i]!, c),
+        baselineEnergy: shown.baseline[i] === null ? null : money(shown.baseline[i]!, c),
         baselineName: n.baselineKind ? baselineName(n.baselineKind).toLowerCase() : null,
         saving: saving === null ? null : money(saving, c),
         savingClass: saving === null ? '' : saving > SAME ? 'saving' : saving < -SAME ? 'over' : '',
         baselinePeak: n.baselinePeakKw === null ? null : kw(n.baselinePeakKw),
-        projected: money(n.projectedSiteEnergyCost, c),
+        projected: money(shown.projected[i]!, c),
         actual: n.actualSiteEnergyCost === null ? null : money(n.actualSiteEnergyCost, c),
         partial: n.actualSiteEnergyCost !== null && !fullyMetered(n),
         diff: diff === null ? null : signedMoney(cents(diff), c),
@@ -57,19 +73,10 @@ export class NightsTable {
   });
 
   protected readonly totals = computed(() => {
-    const nights = this.month().nights;
     const c = this.currency();
-    const sum = (f: (n: MonthCosts['nights'][number]) => number) => nights.reduce((a, n) => a + f(n), 0);
-    // Totals from the unrounded figures; the saving over the nights that have a baseline.
-    const compared = nights.filter((n) => n.baselineEnergyCost !== null);
-    const plan = sum((n) => n.planEnergyCost);
-    const baseline = compared.reduce((a, n) => a + n.baselineEnergyCost!, 0);
-    return {
-      planEnergy: money(plan, c),
-      baselineEnergy: money(baseline, c),
-      saving: money(baseline - compared.reduce((a, n) => a + n.planEnergyCost, 0), c),
-      projected: money(sum((n) => n.projectedSiteEnergyCost), c),
-    };
+    // Each column's total is the sum of the nights as shown.
+    const t = this.shown().totals;
+    return { planEnergy: money(t.plan, c), baselineEnergy: money(t.baseline, c), saving: money(t.saving, c), projected: money(t.projected, c) };
   });
 
   protected readonly csv = computed<CsvTable>(() => {
@@ -80,11 +87,11 @@ export class NightsTable {
         `Projected site energy cost (${c})`, `Metered site energy cost (${c})`, `Metered minus projected (${c})`,
         'Projected peak (kW)', 'Baseline peak (kW)', 'Metered peak (kW)', 'Metered share of the night (%)',
       ],
-      rows: this.month().nights.map((n) => [
-        n.date, n.version, cents(n.planEnergyCost), n.baselineKind ? baselineName(n.baselineKind) : null,
-        n.baselineEnergyCost === null ? null : cents(n.baselineEnergyCost),
-        n.baselineEnergyCost === null ? null : cents(n.baselineEnergyCost - n.planEnergyCost),
-        cents(n.projectedSiteEnergyCost), n.actualSiteEnergyCost === null ? null : cents(n.actualSiteEnergyCost),
+      rows: this.month().nights.map((n, i) => [
+        n.date, n.version, this.shown().plan[i]!, n.baselineKind ? baselineName(n.baselineKind) : null,
+        this.shown().baseline[i] ?? null,
+        this.shown().saving[i] ?? null,
+        this.shown().projected[i]!, n.actualSiteEnergyCost === null ? null : cents(n.actualSiteEnergyCost),
         fullyMetered(n) ? cents(n.actualSiteEnergyCost! - n.projectedSiteEnergyCost) : null,
         n.projectedPeakKw, n.baselinePeakKw, n.actualPeakKw, Math.round(n.actualCoverage * 1000) / 10,
       ]),

@@ -1,4 +1,4 @@
-import { baselineName, type PlanDetail, type PlanResult, type PlanState, type PlanSummary } from '@nightyard/contracts';
+import { baselineName, toCents, type PlanDetail, type PlanResult, type PlanState, type PlanSummary } from '@nightyard/contracts';
 import { dayTimeAt, timeAt, weekdayTimeAt } from '../core/depot-time';
 
 /** What stops a short bus, in plain words (the engine's `reason` codes). */
@@ -65,7 +65,9 @@ export function when(iso: string, timeZone: string): string {
   return dayTimeAt(iso, timeZone);
 }
 
+/** An amount of money; whole cents go through the one rounding rule (`toCents`), as on Costs. */
 export function money(value: number, currency: string, digits = 2): string {
+  if (digits === 2) value = toCents(value);
   try {
     return new Intl.NumberFormat(undefined, { style: 'currency', currency, maximumFractionDigits: digits, minimumFractionDigits: digits }).format(value);
   } catch {

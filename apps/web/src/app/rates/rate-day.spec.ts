@@ -24,10 +24,11 @@ describe('RateDay', () => {
     await render(weekdayPreview());
     const r = rows();
     expect(r).toHaveLength(24);
-    expect(r[0]).toEqual(['00:00–01:00', 'off-peak', '$0.068', '—']);
-    expect(r[7]).toEqual(['07:00–08:00', 'mid-peak', '$0.11', '—']);
-    expect(r[16]).toEqual(['16:00–17:00', 'on-peak', '$0.18', '$9.00']);
-    expect(r[23]).toEqual(['23:00–24:00', 'off-peak', '$0.068', '—']);
+    // The facility demand charge applies at every hour, the on-peak one on top inside its window.
+    expect(r[0]).toEqual(['00:00–01:00', 'off-peak', '$0.068', '$7.50 facility']);
+    expect(r[7]).toEqual(['07:00–08:00', 'mid-peak', '$0.11', '$7.50 facility']);
+    expect(r[16]).toEqual(['16:00–17:00', 'on-peak', '$0.18', '$7.50 facility + $9.00 on-peak']);
+    expect(r[23]).toEqual(['23:00–24:00', 'off-peak', '$0.068', '$7.50 facility']);
     expect(el.querySelector('table.hours thead')?.textContent).toContain('Price per kWh');
     expect(el.querySelectorAll('table.hours tbody th[scope="row"]')).toHaveLength(24);
   });

@@ -60,14 +60,24 @@ export class RateDay {
   protected readonly demandBands = computed(() => this.bands().filter((b) => b.demandText));
   protected readonly rows = computed(() => {
     const c = this.preview().currency;
+    const facility = this.preview().facilityDemandCharge;
+    // The facility demand charge applies at every hour (the period's highest 15 minutes, whenever
+    // they fall); a period's own demand charge is added on top inside its windows.
+    const demandText = (period: string, charge: number) => {
+      const parts = [
+        ...(facility > 0 ? [`${formatMoney(facility, c)} facility`] : []),
+        ...(charge > 0 ? [`${formatMoney(charge, c)} ${period}`] : []),
+      ];
+      return parts.length ? parts.join(' + ') : '—';
+    };
     return this.hours().map((h) => ({
       label: h.label,
       parts: h.parts.map((p) => ({
         when: h.parts.length > 1 ? `from ${p.from}` : '',
         period: p.period,
         price: formatPrice(p.price, c),
-        demand: p.demandCharge > 0 ? formatMoney(p.demandCharge, c) : '—',
-        hasDemand: p.demandCharge > 0,
+        demand: demandText(p.period, p.demandCharge),
+        hasDemand: p.demandCharge > 0 || facility > 0,
       })),
     }));
   });

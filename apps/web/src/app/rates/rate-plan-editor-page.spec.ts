@@ -121,10 +121,13 @@ describe('RatePlanEditorPage', () => {
                 ],
               },
             ],
+            energyBlocks: [],
           },
         ],
         fixedCharges: [],
         holidays: [],
+        demandRatchet: null,
+        minimumCharge: null,
       },
     });
 
@@ -157,10 +160,13 @@ describe('RatePlanEditorPage', () => {
           offPeakPrice: 0.05,
           facilityDemandCharge: 0,
           periods: [{ name: 'p', price: 0.2, demandCharge: 0, windows: [{ dayTypes: ['weekday'], from: '16:00', to: '20:00' }, { dayTypes: ['weekday', 'weekend'], from: '19:00', to: '21:00' }] }],
+          energyBlocks: [],
         },
       ],
       fixedCharges: [],
       holidays: [],
+      demandRatchet: null,
+      minimumCharge: null,
     });
     expect(form.valid).toBe(true);
     checkDefinition(form);
@@ -171,6 +177,30 @@ describe('RatePlanEditorPage', () => {
   it('round-trips an existing plan unchanged', () => {
     const plan = ratePlan();
     expect(definitionOf(ratePlanForm(plan.name, plan.definition))).toEqual(plan.definition);
+  });
+
+  it('round-trips energy blocks, a demand ratchet and a minimum bill', () => {
+    const base = ratePlan().definition;
+    const def = {
+      ...base,
+      seasons: base.seasons.map((s, i) => (i === 0 ? { ...s, energyBlocks: [{ uptoKwh: 1000, adder: 0 }, { uptoKwh: null, adder: -0.015 }] } : s)),
+      demandRatchet: { percent: 80, months: 11 },
+      minimumCharge: { amount: 25, per: 'month' as const },
+    };
+    const form = ratePlanForm('Tiered', def);
+    expect(form.valid).toBe(true);
+    expect(definitionOf(form)).toEqual(def);
+    expect(checkDefinition(form)).toEqual([]);
+  });
+
+  it('labels the block, ratchet and minimum bill controls and names a block that is not last but open-ended', async () => {
+    await render(['facilities']);
+    button('Add energy block to season 1').click();
+    await refresh();
+    for (const label of ['Block 1 ends at', 'Block 1 price change', 'Block 2 ends at', 'Ratchet percentage', 'Minimum bill']) {
+      expect(field(el, label)).toBeTruthy();
+    }
+    expect(el.textContent).toContain('from the meter readings imported under Costs, the published plans and the peaks entered under Depot');
   });
 
   it('opens an imported URDB plan for review, with its notes', async () => {

@@ -21,6 +21,7 @@ import {
   checkDefinition,
   definitionOf,
   describePath,
+  energyBlockGroup,
   fixedChargeGroup,
   holidayControl,
   periodGroup,
@@ -55,6 +56,11 @@ const FIELD_WORDS: Record<string, string> = {
   seasons: 'seasons',
   fixedCharges: 'fixed charges',
   holidays: 'holidays',
+  energyBlocks: 'energy blocks',
+  uptoKwh: 'block end',
+  adder: 'price change',
+  percent: 'ratchet percentage',
+  months: 'ratchet months',
 };
 
 /** Every control with an error, deepest first in document order, as `{ path, message }`. */
@@ -208,6 +214,13 @@ export class RatePlanEditorPage {
 
   protected removeWindow(p: PeriodGroup, i: number): void {
     p.controls.windows.removeAt(i);
+  }
+
+  protected addEnergyBlock(s: SeasonGroup): void {
+    // The last block stays open-ended: the one before it gets an end.
+    const blocks = s.controls.energyBlocks;
+    if (!blocks.length) blocks.push(energyBlockGroup({ uptoKwh: null, adder: 0 }));
+    blocks.push(energyBlockGroup({ uptoKwh: null, adder: 0 }));
   }
 
   protected addFixedCharge(f: RatePlanForm): void {

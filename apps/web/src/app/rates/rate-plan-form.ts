@@ -2,7 +2,10 @@ import { FormArray, FormControl, FormGroup, type ValidatorFn } from '@angular/fo
 import {
   DAY_TYPES,
   clockTimeSchema,
+  demandRatchetSchema,
+  energyBlockSchema,
   fixedChargeSchema,
+  minimumChargeSchema,
   isoDate,
   ratePlanDefinitionSchema,
   saveRatePlanSchema,
@@ -23,6 +26,9 @@ import { applyServerErrors, zodValidator, type FieldProblem } from '../shared/fo
 const season = seasonSchema.shape;
 const period = touPeriodSchema.shape;
 const fixed = fixedChargeSchema.shape;
+const block = energyBlockSchema.shape;
+const ratchet = demandRatchetSchema.shape;
+const minimum = minimumChargeSchema.shape;
 
 const atLeastOneDay: ValidatorFn = (group) =>
   Object.values(group.value as Record<string, boolean>).some(Boolean) ? null : { zod: 'Choose at least one day type' };
@@ -80,9 +86,19 @@ export function seasonGroup(s?: Season) {
       zodValidator(season.facilityDemandCharge, 'Enter the facility demand charge per kW (0 if none)'),
     ),
     periods: new FormArray((s?.periods ?? []).map((p) => periodGroup(p))),
+    energyBlocks: new FormArray((s?.energyBlocks ?? []).map((b) => energyBlockGroup(b))),
   });
 }
 export type SeasonGroup = ReturnType<typeof seasonGroup>;
+
+/** One block of tiered energy: where it ends (empty on the last block) and its price change per kWh. */
+export function energyBlockGroup(b?: Season['energyBlocks'][number]) {
+  return new FormGroup({
+    uptoKwh: new FormControl<number | null>(b?.uptoKwh ?? null, zodValidator(block.uptoKwh.unwrap())),
+    adder: new FormControl<number | null>(b?.adder ?? 0, zodValidator(block.adder, 'Enter the price change per kWh (0 for the first block)')),
+  });
+}
+export type EnergyBlockGroup = ReturnType<typeof energyBlockGroup>;
 
 export function fixedChargeGroup(f?: RatePlanDefinition['fixedCharges'][number]) {
   return new FormGroup({
@@ -100,9 +116,11 @@ export function holidayControl(date = '') {
 /** A new plan starts with one all-year season and no periods (every hour off-peak). */
 export const BLANK_DEFINITION: RatePlanDefinition = {
   currency: 'USD',
-  seasons: [{ name: 'All year', fromMonth: 1, toMonth: 12, offPeakPrice: 0, facilityDemandCharge: 0, periods: [] }],
+  seasons: [{ name: 'All year', fromMonth: 1, toMonth: 12, offPeakPrice: 0, facilityDemandCharge: 0, periods: [], energyBlocks: [] }],
   fixedCharges: [],
   holidays: [],
+  demandRatchet: null,
+  minimumCharge: null,
 };
 
 export function ratePlanForm(name: string, def: RatePlanDefinition = BLANK_DEFINITION) {
@@ -115,6 +133,15 @@ export function ratePlanForm(name: string, def: RatePlanDefinition = BLANK_DEFIN
     seasons: new FormArray(def.seasons.map((s) => seasonGroup(s))),
     fixedCharges: new FormArray(def.fixedCharges.map((f) => fixedChargeGroup(f))),
     holidays: new FormArray(def.holidays.map((d) => holidayControl(d))),
+    // An empty percentage or amount: no ratchet, no minimum bill.
+    demandRatchet: new FormGroup({
+      percent: new FormControl<number | null>(def.demandRatchet?.percent ?? null, zodValidator(ratchet.percent)),
+      months: new FormControl<number | null>(def.demandRatchet?.months ?? 11, zodValidator(ratchet.months)),
+    }),
+    minimumCharge: new FormGroup({
+      amount: new FormControl<number | null>(def.minimumCharge?.amount ?? null, zodValidator(minimum.amount)),
+      per: new FormControl<'day' | 'month'>(def.minimumCharge?.per ?? 'month', { nonNullable: true }),
+    }),
   });
 }
 export type RatePlanForm = ReturnType<typeof ratePlanForm>;
@@ -140,9 +167,15 @@ export function definitionOf(form: RatePlanForm): RatePlanDefinition {
           to: w.to.trim(),
         })),
       })),
+      energyBlocks: s.energyBlocks.map((b, i) => ({
+        uptoKwh: i === s.energyBlocks.length - 1 && b.uptoKwh === null ? null : (b.uptoKwh ?? 0),
+        adder: b.adder ?? 0,
+      })),
     })),
     fixedCharges: v.fixedCharges.map((f) => ({ name: f.name.trim(), amount: f.amount ?? 0, per: f.per })),
     holidays: v.holidays.map((d) => d.trim()),
+    demandRatchet: v.demandRatchet.percent === null ? null : { percent: v.demandRatchet.percent, months: v.demandRatchet.months ?? 11 },
+    minimumCharge: v.minimumCharge.amount === null ? null : { amount: v.minimumCharge.amount, per: v.minimumCharge.per },
   };
 }
 
@@ -167,8 +200,10 @@ export function checkDefinition(form: RatePlanForm): FieldProblem[] {
 /** Which rows a field path is in, in words ("Season 1, period 2, window 1"); empty for plan-level fields. */
 export function describePath(path: string): string {
   const words: string[] = [];
-  const re = /(seasons|periods|windows|fixedCharges|holidays)\[(\d+)\]/g;
-  const names: Record<string, string> = { seasons: 'Season', periods: 'period', windows: 'window', fixedCharges: 'Fixed charge', holidays: 'Holiday' };
+  const re = /(seasons|periods|windows|fixedCharges|holidays|energyBlocks)\[(\d+)\]/g;
+  const names: Record<string, string> = {
+    seasons: 'Season', periods: 'period', windows: 'window', fixedCharges: 'Fixed charge', holidays: 'Holiday', energyBlocks: 'energy block',
+  };
   for (const m of path.matchAll(re)) words.push(`${names[m[1]!]} ${Number(m[2]) + 1}`);
   return words.join(', ');
 }

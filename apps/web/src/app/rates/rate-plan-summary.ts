@@ -23,6 +23,14 @@ import { describeWindow, formatMoney, formatPrice, monthRange } from './rate-for
           }
         </dd>
       </div>
+      <div>
+        <dt>Demand ratchet</dt>
+        <dd>{{ ratchet() }}</dd>
+      </div>
+      <div>
+        <dt>Minimum bill</dt>
+        <dd>{{ minimum() }}</dd>
+      </div>
       <div class="wide">
         <dt>Holidays (priced as holidays)</dt>
         <dd>
@@ -42,6 +50,14 @@ import { describeWindow, formatMoney, formatPrice, monthRange } from './rate-for
           Off-peak (every hour outside the periods below): <strong>{{ s.offPeak }}</strong> per kWh.
           Facility demand charge: <strong>{{ s.facility }}</strong> per kW on the billing period's highest 15 minutes.
         </p>
+        @if (s.blocks.length) {
+          <p class="season-facts">
+            Tiered energy, the billing period's kWh in time order:
+            @for (b of s.blocks; track $index; let last = $last) {
+              {{ b }}{{ last ? '.' : ';' }}
+            }
+          </p>
+        }
         @if (s.periods.length) {
           <div class="table-scroll" role="region" [attr.aria-label]="'Time-of-use periods, ' + s.name" tabindex="0">
             <table class="plain">
@@ -95,6 +111,16 @@ export class RatePlanSummary {
     const c = this.definition().currency;
     return this.definition().fixedCharges.map((f) => `${f.name}: ${formatMoney(f.amount, c)} per ${f.per}`);
   });
+  protected readonly ratchet = computed(() => {
+    const r = this.definition().demandRatchet;
+    return r
+      ? `Facility demand billed at least ${r.percent} % of the highest of the previous ${r.months} months (from meter readings, published plans and peaks entered under Depot)`
+      : 'None';
+  });
+  protected readonly minimum = computed(() => {
+    const m = this.definition().minimumCharge;
+    return m ? `${formatMoney(m.amount, this.definition().currency)} per ${m.per}` : 'None';
+  });
   protected readonly holidays = computed(() => this.definition().holidays.map(formatDate));
   protected readonly seasons = computed(() => {
     const c = this.definition().currency;
@@ -103,6 +129,12 @@ export class RatePlanSummary {
       months: monthRange(s.fromMonth, s.toMonth),
       offPeak: formatPrice(s.offPeakPrice, c),
       facility: formatMoney(s.facilityDemandCharge, c),
+      blocks: (s.energyBlocks ?? []).map((b, i, all) => {
+        const from = i === 0 ? 0 : (all[i - 1]!.uptoKwh ?? 0);
+        const range = b.uptoKwh === null ? `above ${from.toLocaleString('en-US')} kWh` : `${from.toLocaleString('en-US')} to ${b.uptoKwh.toLocaleString('en-US')} kWh`;
+        const change = b.adder === 0 ? 'at the time-of-use price' : `${b.adder > 0 ? '+' : '−'}${formatPrice(Math.abs(b.adder), c)} per kWh`;
+        return `${range} ${change}`;
+      }),
       periods: s.periods.map((p) => ({
         name: p.name,
         price: formatPrice(p.price, c),

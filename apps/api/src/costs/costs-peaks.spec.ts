@@ -1,0 +1,69 @@
+import { eq } from 'drizzle-orm';
+import { beforeAll, describe, expect, it } from 'vitest';
+import { billingPeaks, meterImports, meterIntervals, ratePlans } from '../db/schema';
+import { createDepot } from '../testing/depot-fixture';
+import { createOrganisation, createTestApp, signInAgain, TEST_START, type TestUser } from '../testing/test-app';
+import { newMonthCostsCache, monthCosts } from './costs-service';
+
+// The peaks the bill uses are the peaks the page shows: the building's own load counts, peaks
+// entered in Depot raise what is billed, and a demand ratchet reads the earlier months' peaks.
+let now = TEST_START;
+const app = createTestApp({ clock: () => now });
+let fin: TestUser;
+let organisationId: string;
+const as = (u: TestUser) => ({ Authorization: `Bearer ${u.token}` });
+type Line = { name: string; quantity: number; amount: number; note?: string };
+const line = (lines: Line[], name: string) => lines.find((l) => l.name === name)!;
+
+beforeAll(async () => {
+  const org = await createOrganisation(app, { fin: ['finance'] });
+  fin = org.users.fin!;
+  organisationId = org.organisationId;
+  now = new Date('2026-12-09T00:02:00-06:00');
+  await signInAgain(app, fin);
+});
+
+describe('peaks so far and the bill', () => {
+  it('November without plans: the building\'s 20 kW is the peak shown and the peak billed (not "0 kW" beside $240 of demand)', async () => {
+    const { depot } = await createDepot(app.db, organisationId, 'Peaks depot A');
+    const m = (await app.request().get(`/api/depots/${depot.id}/costs/month`).query({ date: '2026-11-10' }).set(as(fin)).expect(200)).body;
+    const facility = line(m.monthToDate.demand, 'Facility demand');
+    expect(facility.quantity).toBeCloseTo(20, 9);
+    expect(facility.amount).toBeCloseTo(20 * 12, 9);
+    expect(m.peaks.facility).toMatchObject({ kw: 20, source: 'building' });
+  });
+
+  it('peaks entered in Depot for this period are billed: on-peak 48 kW entered, 48 kW billed and shown', async () => {
+    const { depot } = await createDepot(app.db, organisationId, 'Peaks depot B');
+    await app.db.insert(billingPeaks).values({ organisationId, depotId: depot.id, billingPeriodStart: '2026-12-01', facilityKw: 60, periodsKw: { 'on-peak': 48 } });
+    const m = (await app.request().get(`/api/depots/${depot.id}/costs/month`).query({ date: '2026-12-10' }).set(as(fin)).expect(200)).body;
+    for (const bill of [m.projected, m.monthToDate]) {
+      expect(line(bill.demand, 'Demand, on-peak').quantity).toBe(48);
+      expect(line(bill.demand, 'Demand, on-peak').note).toMatch(/entered in Depot/);
+      expect(line(bill.demand, 'Facility demand').quantity).toBe(60);
+    }
+    expect(m.peaks.facility).toMatchObject({ kw: 60, source: 'entered' });
+    expect(m.peaks.periods).toEqual([{ name: 'on-peak', kw: 48, at: null }]);
+    // A period other than the one entered for is not raised.
+    const nov = (await app.request().get(`/api/depots/${depot.id}/costs/month`).query({ date: '2026-11-10' }).set(as(fin)).expect(200)).body;
+    expect(line(nov.projected.demand, 'Facility demand').quantity).toBeCloseTo(20, 9);
+  });
+
+  it('a demand ratchet bills 80 % of November\'s metered 400 kW in December, and says where the figure comes from', async () => {
+    const { depot, ratePlan } = await createDepot(app.db, organisationId, 'Peaks depot C');
+    await app.db.update(ratePlans).set({ definition: { ...ratePlan.definition, demandRatchet: { percent: 80, months: 11 } } }).where(eq(ratePlans.id, ratePlan.id));
+    const [imp] = await app.db.insert(meterImports).values({
+      organisationId, depotId: depot.id, fileName: 'nov.csv', format: 'csv', billingPeriodStart: '2026-11-01', intervals: 1, duplicates: 0, gaps: [],
+    }).returning();
+    await app.db.insert(meterIntervals).values({ organisationId, depotId: depot.id, startsAt: new Date('2026-11-10T14:00:00-06:00'), minutes: 15, kwh: 100, importId: imp!.id });
+    const m = (await app.request().get(`/api/depots/${depot.id}/costs/month`).query({ date: '2026-12-10' }).set(as(fin)).expect(200)).body;
+    const facility = line(m.projected.demand, 'Facility demand');
+    expect(facility.quantity).toBeCloseTo(320, 9);
+    expect(facility.amount).toBeCloseTo(320 * 12, 9);
+    expect(facility.note).toMatch(/80 % of 400 kW.*previous 11 months.*meter readings/);
+    // The cache answers the same as a fresh computation.
+    const caller = { id: fin.id, organisationId, email: fin.email, name: 'Finance', roles: fin.roles };
+    const fresh = await monthCosts(app.db, caller, depot.id, '2026-12-10', now, undefined, newMonthCostsCache());
+    expect(fresh.projected.total).toBeCloseTo(m.projected.total, 9);
+  });
+});

@@ -1,0 +1,31 @@
+import { TestBed } from '@angular/core/testing';
+import { provideRouter } from '@angular/router';
+import { monthCosts } from './costs-fixtures';
+import { NightsTable } from './nights-table';
+
+describe('NightsTable', () => {
+  it('shows each night as every page does and totals what it shows, so rows and columns add up', async () => {
+    TestBed.configureTestingModule({ providers: [provideRouter([])] });
+    const base = monthCosts();
+    // Unrounded figures as the API sends them (the demo's two December nights).
+    const nights = [
+      { ...base.nights[0]!, planEnergyCost: 95.468304, baselineEnergyCost: 95.468304 },
+      { ...base.nights[1]!, planEnergyCost: 136.783392, baselineEnergyCost: 129.615392 },
+    ];
+    const fixture = TestBed.createComponent(NightsTable);
+    fixture.componentRef.setInput('month', monthCosts({ nights }));
+    await fixture.whenStable();
+    fixture.detectChanges();
+    const el = fixture.nativeElement as HTMLElement;
+    const text = (e: Element | null) => e?.textContent?.replace(/\s+/g, ' ').trim() ?? '';
+    const rows = [...el.querySelectorAll('tbody tr')].map((r) => text(r));
+    // $129.615392 shows as $129.62, as on the night's own page, Tonight and Plans.
+    expect(rows[1]).toContain('$136.78');
+    expect(rows[1]).toContain('$129.62');
+    expect(rows[1]).toContain('-$7.16');
+    const foot = text(el.querySelector('tfoot'));
+    expect(foot).toContain('$232.25');
+    expect(foot).toContain('$225.09');
+    expect(foot).toContain('-$7.16');
+  });
+});
