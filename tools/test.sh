@@ -43,7 +43,7 @@ export NG_CLI_ANALYTICS=false
 # on PostgreSQL (two files at a time, each worker on its own copy of the database).
 # The types of the API, the engine, the tools and the browser tests are checked after it (the
 # web app's are checked by its build).
-{ build_web_if_stale && echo "== Types (tsc)" && npx tsc -p apps/api/tsconfig.json && npx tsc -p libs/scheduling/tsconfig.json \
+{ build_web_if_stale && node tools/initial-size.mjs && echo "== Types (tsc)" && npx tsc -p apps/api/tsconfig.json && npx tsc -p libs/scheduling/tsconfig.json \
   && npx tsc -p tsconfig.checks.json; } > .test-data/web-build.log 2>&1 &
 web_build=$!
 pids+=($web_build)

@@ -1,5 +1,5 @@
 import { z } from 'zod';
-import { roleSchema } from './roles';
+import { roleSchema } from './role-schema';
 import { text } from './text';
 
 export const PASSWORD_MIN_LENGTH = 12;

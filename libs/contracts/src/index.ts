@@ -1,4 +1,5 @@
 export * from './roles';
+export * from './role-schema';
 export * from './sections';
 export * from './errors';
 export * from './text';

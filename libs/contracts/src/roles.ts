@@ -1,8 +1,7 @@
-import { z } from 'zod';
-
 export const ROLES = ['admin', 'facilities', 'supervisor', 'yard', 'finance'] as const;
-export const roleSchema = z.enum(ROLES);
-export type Role = z.infer<typeof roleSchema>;
+// Plain values, no schema: the web app's first download (the shell, its guards) needs roles but
+// not zod; the schema is in role-schema.ts.
+export type Role = (typeof ROLES)[number];
 
 export const ROLE_LABELS: Record<Role, string> = {
   admin: 'Administrator',

@@ -1,6 +1,6 @@
 import { z } from 'zod';
 import { emailSchema, userStatusSchema } from './auth';
-import { roleSchema } from './roles';
+import { roleSchema } from './role-schema';
 import { text } from './text';
 
 export const userSchema = z.object({

@@ -1,6 +1,8 @@
 import { inject } from '@angular/core';
 import { RedirectCommand, Router, type CanActivateFn } from '@angular/router';
-import { SECTIONS, hasAnyRole, type SectionKey } from '@nightyard/contracts';
+// Plain modules of the contracts, not the index: guards are in the first download (see auth-store).
+import { hasAnyRole } from '@nightyard/contracts/roles';
+import { SECTIONS, type SectionKey } from '@nightyard/contracts/sections';
 import { AuthStore } from './auth-store';
 import { landingUrl, returnUrlFrom } from './return-url';
 

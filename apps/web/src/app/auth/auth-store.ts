@@ -1,17 +1,13 @@
 import { HttpClient } from '@angular/common/http';
 import { DOCUMENT, DestroyRef, Injectable, Injector, computed, inject, signal } from '@angular/core';
 import { Router } from '@angular/router';
-import {
-  homeSection,
-  sectionsFor,
-  type ActionTokenInfo,
-  type Role,
-  type SessionUser,
-  type TokenResponse,
-} from '@nightyard/contracts';
+// The first download holds this store: plain modules of the contracts only, never the index (it
+// brings zod and every schema, which only the sections need).
+import type { ActionTokenInfo, Role, SessionUser, TokenResponse } from '@nightyard/contracts';
+import { homeSection, sectionsFor } from '@nightyard/contracts/sections';
 import { firstValueFrom } from 'rxjs';
 import { Clock } from '../core/clock';
-import { FormDrafts } from '../core/form-drafts';
+import { SessionEnd } from '../core/session-end';
 import { AuthTabs } from './auth-tabs';
 import { returnUrlFrom } from './return-url';
 
@@ -162,7 +158,7 @@ export class AuthStore {
   endSession(): void {
     this.clear();
     const router = this.injector.get(Router);
-    this.injector.get(FormDrafts).keepAll();
+    this.injector.get(SessionEnd).notify();
     const returnUrl = returnUrlFrom(router.url);
     if (router.url.startsWith('/sign-in')) return;
     void router.navigate(['/sign-in'], { queryParams: returnUrl ? { returnUrl } : {} });

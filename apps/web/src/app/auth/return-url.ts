@@ -1,4 +1,6 @@
-import { canOpen, type Role } from '@nightyard/contracts';
+// A plain module of the contracts, not the index: this is in the first download (see auth-store).
+import { canOpen } from '@nightyard/contracts/page-links';
+import type { Role } from '@nightyard/contracts';
 
 /** Only same-site paths are followed after sign-in (no `//evil.example` or `https://...`). */
 export function safeReturnUrl(value: string | null | undefined): string | null {

@@ -1,6 +1,7 @@
 import { DestroyRef, Injectable, inject } from '@angular/core';
 import { FormArray, FormControl, FormGroup, type AbstractControl } from '@angular/forms';
 import { Router } from '@angular/router';
+import { SessionEnd } from './session-end';
 
 const PREFIX = 'nightyard.draft:';
 
@@ -20,6 +21,11 @@ function pageOf(url: string): string {
 export class FormDrafts {
   private readonly router = inject(Router);
   private readonly open = new Map<string, { page: string; form: AbstractControl }>();
+
+  constructor() {
+    // Made with the first form that registers, and kept for the app's life (a root service).
+    inject(SessionEnd).listen(() => this.keepAll());
+  }
 
   /**
    * Registers the form under `name` on the current page until `destroyRef` ends; when a draft of
