@@ -19,7 +19,7 @@ export const BUS_STATUS_LABELS: Record<BusInput['status'], string> = {
 export const SOC_SOURCE_LABELS = {
   typed: 'Typed',
   uploaded: 'Uploaded',
-  estimated: 'Estimated',
+  estimated: "Estimated from the runs' energy",
 } as const;
 
 const number1 = new Intl.NumberFormat(undefined, { maximumFractionDigits: 1 });

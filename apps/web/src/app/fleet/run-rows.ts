@@ -83,7 +83,9 @@ export function socSourceText(row: RunRow): string {
   const { meta, arrivalSocPct } = row.getRawValue();
   const soc = arrivalSocPct === null || (arrivalSocPct as unknown) === '' ? null : Number(arrivalSocPct);
   if (soc === null) {
-    return meta.estimatedSocPct === null || meta.id === null ? 'Estimated when saved' : `Estimated ${formatPct(meta.estimatedSocPct)}`;
+    return meta.estimatedSocPct === null || meta.id === null
+      ? 'Estimated from the runs when saved'
+      : `Estimated ${formatPct(meta.estimatedSocPct)} from the runs' energy`;
   }
   if (meta.id !== null && meta.savedSocPct === soc && meta.source) return meta.source === 'uploaded' ? 'Uploaded' : 'Typed';
   return 'Typed (not saved yet)';
