@@ -183,6 +183,7 @@ async function periodBase(db: Db, depot: Depot, period: Period): Promise<PeriodB
     let projectedEnergy = 0;
     let projectedPeak = 0;
     let actualEnergy = 0;
+    let projectedMetered = 0;
     let actualPeak = 0;
     let covered = 0;
     for (const s of result.slots) {
@@ -195,6 +196,7 @@ async function periodBase(db: Db, depot: Depot, period: Period): Promise<PeriodB
       if (a !== undefined) {
         covered++;
         actualEnergy += a * s.price;
+        projectedMetered += s.loadKw * 0.25 * s.price;
         actualPeak = Math.max(actualPeak, a * 4);
       }
     }
@@ -205,6 +207,7 @@ async function periodBase(db: Db, depot: Depot, period: Period): Promise<PeriodB
       planEnergyCost: compared.planEnergy, baselineEnergyCost: compared.kind ? compared.baselineEnergy : null,
       baselineKind: compared.kind, baselinePeakKw: compared.kind ? round2(compared.baselinePeak) : null,
       projectedSiteEnergyCost: round2(projectedEnergy), actualSiteEnergyCost: covered ? round2(actualEnergy) : null,
+      projectedMeteredSiteEnergyCost: covered ? round2(projectedMetered) : null,
       projectedPeakKw: round2(projectedPeak), actualPeakKw: covered ? round2(actualPeak) : null,
       actualCoverage: inPeriod ? covered / inPeriod : 0,
     });
