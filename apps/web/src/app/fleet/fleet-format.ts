@@ -19,7 +19,7 @@ export const BUS_STATUS_LABELS: Record<BusInput['status'], string> = {
 export const SOC_SOURCE_LABELS = {
   typed: 'Typed',
   uploaded: 'Uploaded',
-  estimated: "Estimated from the runs' energy",
+  estimated: 'Estimated',
 } as const;
 
 const number1 = new Intl.NumberFormat(undefined, { maximumFractionDigits: 1 });

@@ -102,7 +102,7 @@ describe('ServiceDayPage', () => {
     expect(el.querySelector('input[aria-label="Runs CSV file"]')).not.toBeNull();
     // The saved sources of the states of charge: estimated (none entered), uploaded.
     const sources = [...el.querySelectorAll('td.source')].map((td) => td.textContent?.replace('SOC source', '').trim());
-    expect(sources).toEqual(["Estimated 52.1 % from the runs' energy", 'Uploaded']);
+    expect(sources).toEqual(['Estimated 52.1 %', 'Uploaded']);
   });
 
   it('shows the runs read-only to finance, without any edit control', async () => {
