@@ -52,17 +52,22 @@ test('a supervisor uploads the runs, generates the night, reviews the short buse
   await expect(page.getByRole('cell', { name: 'Uploaded' })).toHaveCount(0);
   await expectAccessible(page);
 
-  // A bad file: every bad line is named with its line number and column, and nothing is saved.
-  await uploadCsv(page, 'bad-runs.csv', `${COLUMNS}\n999,14:10,16:40,30,,40\n201,14:05,16:30,30,,120\n`);
+  // A bad file: every problem is named at once, line and column, format errors and unknown buses
+  // together, and nothing is saved.
+  await uploadCsv(page, 'bad-runs.csv', `${COLUMNS}\n999,14:10,16:40,30,,40\n201,14:05,16:30,30,,120\n202,14:10,25:00,30,,40\n`);
   const lines = page.getByRole('list', { name: 'Lines to fix' });
-  await expect(page.getByText('bad-runs.csv: 1 line needs fixing; nothing was saved')).toBeVisible();
-  await expect(lines.getByRole('listitem')).toHaveText([/^Line 3, column arrival_soc_pct: .*0 to 100 %/]);
-  // The fleet check runs once every line reads well: the unknown bus is named then.
-  await uploadCsv(page, 'bad-runs.csv', `${COLUMNS}\n999,14:10,16:40,30,,40\n201,14:05,16:30,30,,38\n`);
-  await expect(lines.getByRole('listitem')).toHaveText([/^Line 2, column bus: Bus 999 is not in this depot's fleet/]);
+  await expect(page.getByText('bad-runs.csv: 3 lines need fixing; nothing was saved')).toBeVisible();
+  await expect(lines.getByRole('listitem')).toHaveText([
+    /^Line 2, column bus: Bus 999 is not in this depot's fleet/,
+    /^Line 3, column arrival_soc_pct: .*0 to 100 %/,
+    /^Line 4, column pull_in: "25:00" is not a time of day: use HH:mm/,
+  ]);
   await expect(runs).toHaveCount(48);
   await expect(page.getByRole('cell', { name: 'Uploaded' })).toHaveCount(0);
   await expectAccessible(page);
+  // A spreadsheet saved with semicolons is answered with one plain sentence.
+  await uploadCsv(page, 'semicolons.csv', `${COLUMNS.replaceAll(',', ';')}\n201;14:05;16:30;30;;38\n`);
+  await expect(page.getByText(/separates its columns with semicolons: save it as CSV with commas/)).toBeVisible();
 
   // The real file: saved as a whole, the arrival states of charge marked as uploaded.
   await uploadCsv(page, 'runs.csv', runsCsv());

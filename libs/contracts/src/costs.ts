@@ -113,6 +113,11 @@ export const monthCostsSchema = z.object({
     /** Site energy (charging and building) over the plan's hours, as planned and as metered. */
     projectedSiteEnergyCost: z.number(),
     actualSiteEnergyCost: z.number().nullable(),
+    /**
+     * The projected site energy over the intervals that have meter data only, to set beside
+     * `actualSiteEnergyCost` on a partly metered night (null without meter data).
+     */
+    projectedMeteredSiteEnergyCost: z.number().nullable().default(null),
     projectedPeakKw: z.number(),
     actualPeakKw: z.number().nullable(),
     /** Share of the night's intervals with metered data (0-1). */

@@ -52,10 +52,17 @@ export const chargerInputSchema = z
     cabinetId: z.uuid('Choose a cabinet of this depot').nullable().default(null),
     status: chargerStatusSchema.default('in_service'),
     statusReason: text('The reason').trim().max(300).nullable().default(null),
+    /** Out of service from / until (depot time, either open); none: until put back in service. */
+    outFrom: localDateTimeSchema.nullable().default(null),
+    outUntil: localDateTimeSchema.nullable().default(null),
   })
   .refine((c) => c.status === 'in_service' || (c.statusReason ?? '').length > 0, {
     message: 'Say why the charger is out of service',
     path: ['statusReason'],
+  })
+  .refine((c) => !c.outFrom || !c.outUntil || c.outUntil > c.outFrom, {
+    message: 'The end of the period must be after its start',
+    path: ['outUntil'],
   });
 export type ChargerInput = z.infer<typeof chargerInputSchema>;
 
@@ -69,6 +76,9 @@ export const chargerSchema = z.object({
   status: chargerStatusSchema,
   statusReason: z.string().nullable(),
   statusSince: z.iso.datetime({ offset: true }).nullable(),
+  /** The out-of-service period in depot time (YYYY-MM-DDTHH:mm), either end open. */
+  outFrom: z.string().nullable(),
+  outUntil: z.string().nullable(),
   /** OCPP charge point identity, when the charger is connected to Nightyard. */
   ocppIdentity: z.string().nullable(),
   /** What the charger itself last reported over OCPP. */

@@ -35,10 +35,17 @@ export function authRoutes(api: ApiRoutes, { db, auth: settings, mailer, log, cl
   );
 
   api.add(
-    { method: 'post', path: '/auth/refresh', summary: 'Swap the refresh cookie for a new access token', tag: 'auth',
+    { method: 'post', path: '/auth/refresh', summary: 'Swap the refresh cookie for a new access token (204 without a cookie: no session to restore)', tag: 'auth',
       access: 'public', response: tokenResponseSchema },
     async ({ req, res }) => {
-      const issued = await auth.refresh(db, settings, req.cookies?.[REFRESH_COOKIE], clock());
+      const cookie: unknown = req.cookies?.[REFRESH_COOKIE];
+      // No cookie at all is not a failure but "no session here": the sign-in page's probe on every
+      // load answers quietly instead of with a 401 in the browser's console.
+      if (typeof cookie !== 'string' || cookie === '') {
+        res.status(204).end();
+        return;
+      }
+      const issued = await auth.refresh(db, settings, cookie, clock());
       setRefreshCookie(req, res, issued.refreshToken, issued.refreshExpiresAt, clock());
       return issued.response;
     },

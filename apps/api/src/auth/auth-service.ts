@@ -161,7 +161,10 @@ async function findActionToken(db: Db, token: string, now: Date) {
     .from(actionTokens)
     .innerJoin(users, eq(users.id, actionTokens.userId))
     .where(eq(actionTokens.tokenHash, hashToken(token)));
-  if (!row || row.token.usedAt || row.user.status === 'deactivated') {
+  if (row && !row.token.usedAt && row.user.status === 'deactivated') {
+    throw new DomainError('forbidden', 'This account has been deactivated, so its link no longer works: ask your administrator');
+  }
+  if (!row || row.token.usedAt) {
     throw new DomainError('not_found', 'This link is not valid or was already used: ask for a new one');
   }
   if (row.token.expiresAt < now) {

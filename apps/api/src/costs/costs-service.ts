@@ -226,6 +226,7 @@ async function periodBase(db: Db, depot: Depot, period: Period): Promise<PeriodB
     let projectedEnergy = 0;
     let projectedPeak = 0;
     let actualEnergy = 0;
+    let projectedMetered = 0;
     let actualPeak = 0;
     let covered = 0;
     for (const s of result.slots) {
@@ -238,6 +239,7 @@ async function periodBase(db: Db, depot: Depot, period: Period): Promise<PeriodB
       if (a !== undefined) {
         covered++;
         actualEnergy += a * s.price;
+        projectedMetered += s.loadKw * 0.25 * s.price;
         actualPeak = Math.max(actualPeak, a * 4);
       }
     }
@@ -248,6 +250,7 @@ async function periodBase(db: Db, depot: Depot, period: Period): Promise<PeriodB
       planEnergyCost: compared.planEnergy, baselineEnergyCost: compared.kind ? compared.baselineEnergy : null,
       baselineKind: compared.kind, baselinePeakKw: compared.kind ? round2(compared.baselinePeak) : null,
       projectedSiteEnergyCost: projectedEnergy, actualSiteEnergyCost: covered ? actualEnergy : null,
+      projectedMeteredSiteEnergyCost: covered ? projectedMetered : null,
       projectedPeakKw: round2(projectedPeak), actualPeakKw: covered ? round2(actualPeak) : null,
       actualCoverage: inPeriod ? covered / inPeriod : 0,
     });

@@ -74,6 +74,10 @@ describe('costs', () => {
     expect(night.planId).toBe(planId);
     expect(night.actualCoverage).toBeGreaterThan(0);
     expect(night.actualSiteEnergyCost).not.toBeNull();
+    // A partly metered night is set against the projection over its metered intervals only.
+    expect(night.actualCoverage).toBeLessThan(1);
+    expect(night.projectedMeteredSiteEnergyCost).toBeGreaterThan(0);
+    expect(night.projectedMeteredSiteEnergyCost).toBeLessThan(night.projectedSiteEnergyCost);
     // Demand is billed once a period: the saving is one bill minus the other, never above the baseline's bill.
     expect(m.savings.nightsCompared).toBe(1);
     expect(m.savings.total).toBeCloseTo(m.savings.baselineBill - m.savings.planBill, 9);

@@ -138,6 +138,12 @@ export const chargers = pgTable(
     status: chargerStatus('status').notNull().default('in_service'),
     statusReason: text('status_reason'),
     statusSince: timestamp('status_since', { withTimezone: true }),
+    /**
+     * The period an out-of-service charger is out (either end open). Both null: out until it is
+     * put back in service. Outside its period the charger counts as in service.
+     */
+    outFrom: timestamp('out_from', { withTimezone: true }),
+    outUntil: timestamp('out_until', { withTimezone: true }),
     /** OCPP charge point identity and connector / EVSE of this dispenser. */
     ocppIdentity: text('ocpp_identity'),
     ocppPasswordHash: text('ocpp_password_hash'),

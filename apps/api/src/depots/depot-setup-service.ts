@@ -18,7 +18,7 @@ export async function depotDetail(db: Db, caller: AuthUser, depotId: string): Pr
   const depot = await depotOf(db, caller, depotId);
   const [cabs, chs, windows, [peaks], plans] = await Promise.all([
     db.select().from(powerCabinets).where(eq(powerCabinets.depotId, depotId)).orderBy(asc(powerCabinets.label)),
-    listChargers(db, depotId),
+    listChargers(db, depotId, depot.timezone),
     db.select().from(loadReductionWindows).where(eq(loadReductionWindows.depotId, depotId)).orderBy(asc(loadReductionWindows.startsAt)),
     db.select().from(billingPeaks).where(eq(billingPeaks.depotId, depotId)),
     db
@@ -45,19 +45,35 @@ export async function depotDetail(db: Db, caller: AuthUser, depotId: string): Pr
   };
 }
 
-async function listChargers(db: Db, depotId: string): Promise<Charger[]> {
+async function listChargers(db: Db, depotId: string, zone: string): Promise<Charger[]> {
   const rows = await db
     .select({ c: chargers, cabinetLabel: powerCabinets.label })
     .from(chargers)
     .leftJoin(powerCabinets, eq(powerCabinets.id, chargers.cabinetId))
     .where(eq(chargers.depotId, depotId))
     .orderBy(asc(chargers.label));
-  return rows.map(({ c, cabinetLabel }) => toCharger(c, cabinetLabel));
+  return rows.map(({ c, cabinetLabel }) => toCharger(c, cabinetLabel, zone));
 }
 
-const toCharger = (c: ChargerRow, cabinetLabel: string | null): Charger => ({
+const LOCAL = "yyyy-MM-dd'T'HH:mm";
+const toLocal = (d: Date | null, zone: string) => (d ? DateTime.fromJSDate(d, { zone }).toFormat(LOCAL) : null);
+const fromLocal = (s: string | null, zone: string) => (s ? DateTime.fromFormat(s, LOCAL, { zone }).toJSDate() : null);
+
+/** The charger's columns from its input: the out-of-service period only while it is out. */
+function chargerColumns(input: ChargerInput, zone: string) {
+  const out = input.status === 'out_of_service';
+  return {
+    ...input,
+    statusReason: out ? input.statusReason : null,
+    outFrom: out ? fromLocal(input.outFrom, zone) : null,
+    outUntil: out ? fromLocal(input.outUntil, zone) : null,
+  };
+}
+
+const toCharger = (c: ChargerRow, cabinetLabel: string | null, zone: string): Charger => ({
   id: c.id, label: c.label, maxKw: c.maxKw, connector: c.connector, cabinetId: c.cabinetId, cabinetLabel,
   status: c.status, statusReason: c.statusReason, statusSince: c.statusSince?.toISOString() ?? null,
+  outFrom: toLocal(c.outFrom, zone), outUntil: toLocal(c.outUntil, zone),
   ocppIdentity: c.ocppIdentity,
   live: c.ocppIdentity
     ? {
@@ -94,18 +110,18 @@ function uniqueLabel(err: unknown, what: string): never {
 }
 
 export async function createCharger(db: Db, caller: AuthUser, depotId: string, input: ChargerInput, now: Date): Promise<Charger> {
-  await depotOf(db, caller, depotId);
+  const depot = await depotOf(db, caller, depotId);
   const cabinetLabel = await cabinetOfDepot(db, depotId, input.cabinetId);
   const [row] = await db
     .insert(chargers)
-    .values({ ...input, organisationId: caller.organisationId, depotId, statusSince: input.status === 'out_of_service' ? now : null })
+    .values({ ...chargerColumns(input, depot.timezone), organisationId: caller.organisationId, depotId, statusSince: input.status === 'out_of_service' ? now : null })
     .returning()
     .catch((e) => uniqueLabel(e, 'charger'));
-  return toCharger(row!, cabinetLabel);
+  return toCharger(row!, cabinetLabel, depot.timezone);
 }
 
 export async function updateCharger(db: Db, caller: AuthUser, depotId: string, id: string, input: ChargerInput, now: Date): Promise<Charger> {
-  await depotOf(db, caller, depotId);
+  const depot = await depotOf(db, caller, depotId);
   const [existing] = await db.select().from(chargers).where(and(eq(chargers.id, id), eq(chargers.depotId, depotId)));
   if (!existing) throw notFound('That charger');
   const cabinetLabel = await cabinetOfDepot(db, depotId, input.cabinetId);
@@ -113,11 +129,11 @@ export async function updateCharger(db: Db, caller: AuthUser, depotId: string, i
   const statusSince = existing.status === input.status ? existing.statusSince : now;
   const [row] = await db
     .update(chargers)
-    .set({ ...input, statusReason: input.status === 'in_service' ? null : input.statusReason, statusSince })
+    .set({ ...chargerColumns(input, depot.timezone), statusSince })
     .where(eq(chargers.id, id))
     .returning()
     .catch((e) => uniqueLabel(e, 'charger'));
-  return toCharger(row!, cabinetLabel);
+  return toCharger(row!, cabinetLabel, depot.timezone);
 }
 
 export async function deleteCharger(db: Db, caller: AuthUser, depotId: string, id: string): Promise<void> {

@@ -83,6 +83,34 @@ describe('depot', () => {
     expect(good.body.windows.map((w: { start: string }) => w.start)).toEqual(['2026-12-10T17:00', '2026-12-10T19:00']);
   });
 
+  it('a charger out of service for a period is left out only of the nights that period touches', async () => {
+    const add = await app.request().post(`${base()}/chargers`).set(as(fac)).send(charger({ label: 'F' })).expect(201);
+    const id = add.body.charger.id;
+    const bad = await app.request().put(`${base()}/chargers/${id}`).set(as(fac)).send(charger({
+      label: 'F', status: 'out_of_service', statusReason: 'Inspection', outFrom: '2026-12-20T06:00', outUntil: '2026-12-20T05:00',
+    })).expect(400);
+    expect(bad.body.error.fields.outUntil).toBe('The end of the period must be after its start');
+    const out = await app.request().put(`${base()}/chargers/${id}`).set(as(fac)).send(charger({
+      label: 'F', status: 'out_of_service', statusReason: 'Inspection', outFrom: '2026-12-20T06:00', outUntil: '2026-12-21T18:00',
+    })).expect(200);
+    expect(out.body.charger).toMatchObject({ status: 'out_of_service', outFrom: '2026-12-20T06:00', outUntil: '2026-12-21T18:00' });
+    const scenarioOf = async (start: string, end: string) =>
+      (await app.request().get(`${base()}/scenario-base`).query({ start, end }).set(as(fac)).expect(200)).body as {
+        scenario: { chargers: { id: string }[] }; notes: string[];
+      };
+    // The night before the period: F plans as in service.
+    const before = await scenarioOf('2026-12-18T15:00', '2026-12-19T07:00');
+    expect(before.scenario.chargers.map((c) => c.id)).toContain('F');
+    // A night inside it: left out, and the note says for how long.
+    const inside = await scenarioOf('2026-12-20T15:00', '2026-12-21T07:00');
+    expect(inside.scenario.chargers.map((c) => c.id)).not.toContain('F');
+    expect(inside.notes.join(' ')).toMatch(/Charger F is out of service from .* until .* \(Inspection\) and is left out for the night/);
+    // Back in service: the period is cleared.
+    const back = await app.request().put(`${base()}/chargers/${id}`).set(as(fac)).send(charger({ label: 'F', outFrom: '2026-12-20T06:00' })).expect(200);
+    expect(back.body.charger).toMatchObject({ status: 'in_service', outFrom: null, outUntil: null });
+    await app.request().delete(`${base()}/chargers/${id}`).set(as(fac)).expect(204);
+  });
+
   it('another organisation\'s facilities user sees "not found" and changes nothing', async () => {
     await app.request().get(base()).set(as(otherFac)).expect(404);
     await app.request().post(`${base()}/chargers`).set(as(otherFac)).send(charger({ label: 'Z' })).expect(404);

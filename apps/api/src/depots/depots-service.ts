@@ -17,7 +17,8 @@ async function summarise(db: Db, d: typeof depots.$inferSelect, now: Date): Prom
   const [counts] = await db
     .select({
       chargers: sql<number>`(select count(*)::int from ${chargers} where ${chargers.depotId} = ${d.id})`,
-      inService: sql<number>`(select count(*)::int from ${chargers} where ${chargers.depotId} = ${d.id} and ${chargers.status} = 'in_service')`,
+      // Out of service for a period: in service outside it.
+      inService: sql<number>`(select count(*)::int from ${chargers} where ${chargers.depotId} = ${d.id} and (${chargers.status} = 'in_service' or ${chargers.outFrom} > ${now.toISOString()}::timestamptz or ${chargers.outUntil} <= ${now.toISOString()}::timestamptz))`,
       buses: sql<number>`(select count(*)::int from ${buses} where ${buses.depotId} = ${d.id} and ${buses.status} <> 'retired')`,
     })
     .from(depots)

@@ -73,9 +73,10 @@ export function fleetRoutes(api: ApiRoutes, { db }: AppDeps) {
       idempotent: true },
     async ({ user, params, body }) => {
       refuseLargerThan(body.csv, MAX_RUNS_CSV_BYTES, 'The runs file', 'csv');
-      const { runs, lines } = await runInPool({ kind: 'runs-csv', text: body.csv, date: params.date });
+      const { runs, lines, problems } = await runInPool({ kind: 'runs-csv', text: body.csv, date: params.date });
+      // The file's own problems and the fleet's (unknown buses, overlaps) are named together.
       return replaceServiceDay(db, user, params.depotId, params.date, { forecastLowF: body.forecastLowF, runs }, 'uploaded',
-        (i, field) => `line ${lines[i]}.${csvField(field)}`);
+        (i, field) => `line ${lines[i]}.${csvField(field)}`, undefined, { earlier: problems, rowName: (i) => `line ${lines[i]}` });
     },
   );
   api.add(

@@ -72,11 +72,30 @@ describe('service day', () => {
     expect(template.text.split('\r\n')[0]).toBe('bus,pull_out,pull_in,miles,kwh,arrival_soc_pct');
     const bad = ['bus,pull_out,pull_in,miles,kwh,arrival_soc_pct', '11,06:10,08:30,31,,', '99,06:20,08:40,30,,', '12,06:30,08:50,,,', '13,14:00,13:00,20,,40', '14,07:00,09:00,abc,,'].join('\n');
     const res = await app.request().post(`${day('2026-12-10')}/csv`).set(as(sup)).send({ csv: bad }).expect(400);
-    expect(res.body.error.fields).toMatchObject({
+    // One pass: the format errors and the unknown bus of line 3 together, named line and column.
+    expect(res.body.error.fields).toEqual({
+      'line 3.bus': 'Bus 99 is not in this depot\'s fleet',
       'line 4.miles': 'Give the run\'s miles or its energy (kWh)',
       'line 6.miles': '"abc" is not a number',
     });
+    expect(res.body.error.message).toBe('3 lines need fixing; nothing was saved');
     expect(await runCount('2026-12-10')).toBe(0);
+    // A time past 23:59 is named in the format the file uses; a row with both miles and kWh is refused.
+    const times = ['bus,pull_out,pull_in,miles,kwh,arrival_soc_pct', '11,06:10,25:00,31,,', '12,06:20,08:40,30,40,'].join('\n');
+    const res3 = await app.request().post(`${day('2026-12-10')}/csv`).set(as(sup)).send({ csv: times }).expect(400);
+    expect(res3.body.error.fields).toEqual({
+      'line 2.pull_in': '"25:00" is not a time of day: use HH:mm, 00:00 to 23:59 (e.g. 06:10)',
+      'line 3.kwh': 'Give the run\'s miles or its kWh, not both: leave one of the two empty',
+    });
+    // A file saved with semicolons: one plain answer, not an error per column.
+    const semi = ['bus;pull_out;pull_in;miles;kwh;arrival_soc_pct', '11;06:10;08:30;31;;'].join('\n');
+    const res4 = await app.request().post(`${day('2026-12-10')}/csv`).set(as(sup)).send({ csv: semi }).expect(400);
+    expect(res4.body.error.message).toMatch(/separates its columns with semicolons: save it as CSV with commas/);
+    expect(Object.keys(res4.body.error.fields)).toEqual(['file']);
+    // Overlapping runs name the other run by its line too.
+    const overlap = ['bus,pull_out,pull_in,miles,kwh,arrival_soc_pct', '11,06:10,08:30,31,,', '11,07:00,09:00,30,,'].join('\n');
+    const res5 = await app.request().post(`${day('2026-12-10')}/csv`).set(as(sup)).send({ csv: overlap }).expect(400);
+    expect(res5.body.error.fields['line 3.pull_out']).toBe('Bus 11 is still on another run then (line 2)');
     // Line 5's pull-in before its pull-out is read as the next morning; line 3's bus is unknown.
     const unknownBus = ['bus,pull_out,pull_in,miles,kwh,arrival_soc_pct', '11,06:10,08:30,31,,', '99,06:20,08:40,30,,'].join('\n');
     const res2 = await app.request().post(`${day('2026-12-10')}/csv`).set(as(sup)).send({ csv: unknownBus }).expect(400);

@@ -58,7 +58,9 @@ export interface RowProblem {
 }
 
 /** Checks that need the database and the runs together: unknown buses, overlaps, impossible times. */
-function checkRuns(depot: DepotRow, date: string, input: RunInput[], fleet: Map<string, BusRow>): RowProblem[] {
+function checkRuns(
+  depot: DepotRow, date: string, input: RunInput[], fleet: Map<string, BusRow>, rowName: (index: number) => string = (i) => `row ${i + 1}`,
+): RowProblem[] {
   const problems: RowProblem[] = [];
   const at = (t: string) => DateTime.fromISO(t, { zone: depot.timezone });
   const byBus = new Map<string, { i: number; from: number; to: number }[]>();
@@ -80,7 +82,7 @@ function checkRuns(depot: DepotRow, date: string, input: RunInput[], fleet: Map<
     list.sort((a, b) => a.from - b.from);
     for (let k = 1; k < list.length; k++) {
       if (list[k]!.from < list[k - 1]!.to) {
-        problems.push({ index: list[k]!.i, field: 'pullOut', message: `Bus ${bus} is still on another run then (row ${list[k - 1]!.i + 1})` });
+        problems.push({ index: list[k]!.i, field: 'pullOut', message: `Bus ${bus} is still on another run then (${rowName(list[k - 1]!.i)})` });
       }
     }
   }
@@ -96,6 +98,11 @@ export async function replaceServiceDay(
   source: 'typed' | 'uploaded', label: (index: number, field: string) => string = (i, f) => `runs[${i}].${f === 'bus' ? 'busNumber' : f}`,
   /** Checked under the lock, against the runs stored then (copying refuses to overwrite unasked). */
   precondition?: (existingRuns: number) => void,
+  /**
+   * An uploaded file's own problems (`earlier`, already named), reported together with these
+   * checks so one upload lists everything; `rowName` names another row in a message ("line 7").
+   */
+  file?: { earlier: Record<string, string>; rowName: (index: number) => string },
 ): Promise<ServiceDay> {
   const depot = await depotOf(db, caller, depotId);
   const at = (t: string) => DateTime.fromISO(t, { zone: depot.timezone }).toJSDate();
@@ -105,10 +112,15 @@ export async function replaceServiceDay(
     await lockTarget(tx, 'service-day', depotId, date);
     const fleetRows = await tx.select().from(buses).where(eq(buses.depotId, depotId));
     const fleet = new Map(fleetRows.map((b) => [b.number, b]));
-    const problems = checkRuns(depot, date, input.runs, fleet);
-    if (problems.length) {
-      const fields: Record<string, string> = {};
+    const problems = checkRuns(depot, date, input.runs, fleet, file?.rowName);
+    const earlier = file?.earlier ?? {};
+    if (problems.length || Object.keys(earlier).length) {
+      const fields: Record<string, string> = { ...earlier };
       for (const p of problems) fields[label(p.index, p.field)] ??= p.message;
+      if (file) {
+        const bad = new Set(Object.keys(fields).map((f) => f.split('.')[0]));
+        throw new DomainError('validation_failed', `${bad.size} ${bad.size === 1 ? 'line needs' : 'lines need'} fixing; nothing was saved`, fields);
+      }
       throw new DomainError('validation_failed', `${problems.length} ${problems.length === 1 ? 'row needs' : 'rows need'} fixing; nothing was saved`, fields);
     }
     // A reading that comes back unchanged keeps where it came from (typed or uploaded).

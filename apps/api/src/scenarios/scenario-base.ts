@@ -4,6 +4,7 @@ import { ratePlanDefinitionSchema, type RatePlanDefinition, type YardCrew } from
 import type { ScenarioInput } from '@nightyard/scheduling';
 import type { Db } from '../db/client';
 import { billingPeaks, chargers, depotRatePlans, loadReductionWindows, powerCabinets, ratePlans } from '../db/schema';
+import { outDuring } from '../depots/charger-out';
 import { DomainError } from '../http/errors';
 import type { AuthUser } from '../auth/auth-user';
 import { depotOf } from '../depots/depot-access';
@@ -68,9 +69,14 @@ export async function buildScenarioBase(db: Db, caller: AuthUser, depotId: strin
 
   const cabs = await db.select().from(powerCabinets).where(eq(powerCabinets.depotId, depotId));
   const chs = await db.select().from(chargers).where(eq(chargers.depotId, depotId));
-  const inService = chs.filter((c) => c.status === 'in_service');
-  for (const c of chs.filter((c) => c.status === 'out_of_service')) {
-    notes.push(`Charger ${c.label} is out of service${c.statusReason ? ` (${c.statusReason})` : ''} and is left out.`);
+  // A charger out of service for a period is left out of the nights that period touches only.
+  const isOut = (c: (typeof chs)[number]) => outDuring(c, from.toJSDate(), to.toJSDate());
+  const inService = chs.filter((c) => !isOut(c));
+  for (const c of chs.filter(isOut)) {
+    const period = c.outFrom || c.outUntil
+      ? ` ${[c.outFrom ? `from ${DateTime.fromJSDate(c.outFrom, { zone }).toFormat('ccc HH:mm')}` : '', c.outUntil ? `until ${DateTime.fromJSDate(c.outUntil, { zone }).toFormat('ccc HH:mm')}` : ''].filter(Boolean).join(' ')}`
+      : '';
+    notes.push(`Charger ${c.label} is out of service${period}${c.statusReason ? ` (${c.statusReason})` : ''} and is left out${period ? ' for the night' : ''}.`);
   }
   if (!inService.length) throw new DomainError('validation_failed', `${depot.name} has no charger in service`);
   const cabinetLabel = new Map(cabs.map((c) => [c.id, c.label]));

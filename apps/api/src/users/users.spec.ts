@@ -62,6 +62,16 @@ describe('invitations', () => {
     expect(still!.passwordHash).toBeNull();
   });
 
+  it('the link of a deactivated invitee says the account is deactivated, not that the link is broken', async () => {
+    const email = unique('gone');
+    const invited = await app.request().post('/api/users/invite').set(auth(admin)).send({ email, name: 'Gone', roles: ['yard'] }).expect(201);
+    const token = linkToken((await mailFor(email))[0]!.text);
+    await app.request().patch(`/api/users/${invited.body.user.id}`).set(auth(admin)).send({ active: false }).expect(200);
+    const info = await app.request().get(`/api/auth/action-tokens/${token}`).expect(403);
+    expect(info.body.error.message).toMatch(/deactivated/);
+    await app.request().post('/api/auth/set-password').send({ token, password: 'a-fresh-password-1' }).expect(403);
+  });
+
   it('rejects a short password with a field message', async () => {
     const res = await app.request().post('/api/auth/set-password').send({ token: 'x'.repeat(43), password: 'short' }).expect(400);
     expect(res.body.error.fields.password).toMatch(/at least 12/);

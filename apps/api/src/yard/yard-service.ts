@@ -403,7 +403,7 @@ async function replanAndPublish(deps: PublishDeps, caller: AuthUser, depotId: st
       replanState: state, createdBy: caller.id, publishedBy: caller.id, publishedAt: now,
     }).returning();
     if (report.kind === 'charger_out') {
-      await tx.update(chargers).set({ status: 'out_of_service', statusReason: report.reason, statusSince: now })
+      await tx.update(chargers).set({ status: 'out_of_service', statusReason: report.reason, statusSince: now, outFrom: null, outUntil: null })
         .where(and(eq(chargers.depotId, depotId), eq(chargers.label, report.charger)));
     }
     if (report.kind === 'step_missed') {

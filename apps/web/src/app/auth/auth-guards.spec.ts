@@ -77,6 +77,15 @@ describe('route guards', () => {
     expect(TestBed.inject(Router).serializeUrl(tree)).toBe('/sign-in?returnUrl=%2Fpeople%2Foutbox');
   });
 
+  it('takes a quiet 204 (no refresh cookie) as nobody signed in', async () => {
+    const result = TestBed.runInInjectionContext(() =>
+      signedInGuard({} as ActivatedRouteSnapshot, { url: '/tonight' } as RouterStateSnapshot),
+    ) as Promise<UrlTree>;
+    mock.expectOne('/api/auth/refresh').flush(null, { status: 204, statusText: 'No Content' });
+    const tree = await result;
+    expect(TestBed.inject(Router).serializeUrl(tree)).toBe('/sign-in?returnUrl=%2Ftonight');
+  });
+
   it('lets a visitor in when the refresh cookie still holds a session', async () => {
     const result = TestBed.runInInjectionContext(() =>
       signedInGuard({} as ActivatedRouteSnapshot, { url: '/tonight' } as RouterStateSnapshot),

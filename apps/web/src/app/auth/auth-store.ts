@@ -107,7 +107,12 @@ export class AuthStore {
       .exclusive(async () => {
         if (this.generation !== seen && this.signedIn()) return true;
         try {
-          const res = await firstValueFrom(this.http.post<TokenResponse>('/api/auth/refresh', null));
+          // 204 (no body): there is no refresh cookie, so no session to restore.
+          const res = await firstValueFrom(this.http.post<TokenResponse | null>('/api/auth/refresh', null));
+          if (!res) {
+            this.clear();
+            return false;
+          }
           this.accept(res);
           this.tabs.tell({ kind: 'tokens', tokens: res });
           return true;

@@ -115,4 +115,14 @@ describe('SetPasswordPage', () => {
     expect([...el.querySelectorAll('a')].some((a) => a.getAttribute('href') === '/forgot-password')).toBe(true);
     expect(el.querySelector('input')).toBeNull();
   });
+
+  it('the link of a deactivated account says so, not that the link was copied in part', async () => {
+    await open((req) =>
+      req.flush({ error: { code: 'forbidden', message: 'Deactivated' } }, { status: 403, statusText: 'Forbidden' }),
+    );
+    const said = el.querySelector('[role="alert"]')?.textContent ?? '';
+    expect(said).toContain('This account has been deactivated');
+    expect(said).not.toContain('copied only in part');
+    expect(el.querySelector('input')).toBeNull();
+  });
 });

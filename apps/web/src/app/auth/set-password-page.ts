@@ -119,7 +119,7 @@ export class SetPasswordPage implements OnInit {
       const p = toApiProblem(err);
       if (p.status === 400 && p.fields['password']) {
         this.form.controls.password.setErrors({ server: p.fields['password'] });
-      } else if (p.status === 404 || p.status === 410 || p.code === 'token_expired') {
+      } else if (p.status === 403 || p.status === 404 || p.status === 410 || p.code === 'token_expired') {
         this.link.set(this.linkProblem(err));
       } else {
         this.problem.set(p.message);
@@ -133,6 +133,12 @@ export class SetPasswordPage implements OnInit {
     const p = toApiProblem(err);
     if (p.status === 410 || p.code === 'token_expired') {
       return { kind: 'expired', message: 'This link has expired. Links work for a limited time, and each works once.' };
+    }
+    if (p.status === 403) {
+      return {
+        kind: 'invalid',
+        message: 'This account has been deactivated, so its link no longer works. Ask your administrator to reactivate it and send a new link.',
+      };
     }
     if (p.status === 404 || p.status === 400) {
       return { kind: 'invalid', message: 'This link is not valid. It may have been used already, or copied only in part.' };

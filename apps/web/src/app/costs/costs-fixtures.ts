@@ -39,11 +39,11 @@ export function monthCosts(overrides: Partial<MonthCosts> = {}): MonthCosts {
     nights: [
       {
         date: '2026-12-01', planId: '00000000-0000-4000-8000-0000000000a1', version: 1, planEnergyCost: 100.5, baselineEnergyCost: 150.1, baselineKind: 'timer', baselinePeakKw: 410,
-        projectedSiteEnergyCost: 98.2, actualSiteEnergyCost: 101.7, projectedPeakKw: 160, actualPeakKw: 171.2, actualCoverage: 1,
+        projectedSiteEnergyCost: 98.2, actualSiteEnergyCost: 101.7, projectedMeteredSiteEnergyCost: 98.2, projectedPeakKw: 160, actualPeakKw: 171.2, actualCoverage: 1,
       },
       {
         date: '2026-12-02', planId: '00000000-0000-4000-8000-0000000000a2', version: 2, planEnergyCost: 90, baselineEnergyCost: 130.2, baselineKind: 'arrival', baselinePeakKw: 380,
-        projectedSiteEnergyCost: 90, actualSiteEnergyCost: null, projectedPeakKw: 150, actualPeakKw: null, actualCoverage: 0,
+        projectedSiteEnergyCost: 90, actualSiteEnergyCost: null, projectedMeteredSiteEnergyCost: null, projectedPeakKw: 150, actualPeakKw: null, actualCoverage: 0,
       },
     ],
     sources: { actualIntervals: 96, plannedNights: 2, forecastNights: 0, schoolNightsWithoutPlan: 3 },

@@ -118,14 +118,14 @@ describe('CostsPage', () => {
     expect(text(rows[1]!)).toContain('none');
   });
 
-  it('compares metered with projected only for a night metered in full', async () => {
+  it('compares a partly metered night over its metered intervals only', async () => {
     const base = monthCosts();
-    const partly = { ...base.nights[0]!, actualSiteEnergyCost: 20.54, actualCoverage: 0.377, actualPeakKw: 72 };
+    const partly = { ...base.nights[0]!, actualSiteEnergyCost: 20.54, actualCoverage: 0.377, actualPeakKw: 72, projectedMeteredSiteEnergyCost: 19.04 };
     await render(['finance'], monthCosts({ nights: [partly, base.nights[1]!] }));
     const row = el.querySelector('ny-nights-table tbody tr')!;
     const cellsOf = [...row.children].map(text);
     expect(cellsOf[5]).toBe('$20.54 part of the night');
-    expect(cellsOf[6]).toBe('—');
+    expect(cellsOf[6]).toBe('+$1.50 metered part only');
     expect(cellsOf[10]).toBe('37.7 %');
     const metered = [...el.querySelectorAll<HTMLButtonElement>('ny-nights-chart mat-button-toggle button')].find((b) => text(b) === 'Projected and metered')!;
     metered.click();
@@ -133,7 +133,7 @@ describe('CostsPage', () => {
     const canvas = el.querySelector('ny-nights-chart canvas')!;
     expect(canvas.getAttribute('aria-label')).toBe('Bar chart: site energy cost of each night, projected and metered');
     expect(text(el.querySelector(`#${canvas.getAttribute('aria-describedby')}`))).toContain(
-      'Meter data covers 1 of 2 nights (1 only in part: their metered bar is part of the night). No night is metered in full yet.',
+      'Meter data covers 1 of 2 nights (1 only in part: both bars of such a night cover its metered intervals only). Over the metered intervals, the site\'s energy cost $20.54 metered against $19.04 projected.',
     );
   });
 
@@ -172,8 +172,8 @@ describe('CostsPage', () => {
     expect(text(alt.querySelector('summary'))).toBe('The chart as a table');
     const rows = [...alt.querySelectorAll('tbody tr')].map((r) => [...r.children].map(text));
     expect(rows).toHaveLength(2);
-    expect(rows[0]!.slice(1)).toEqual(['$100.50', '$150.10', '$98.20', '$101.70']);
-    expect(rows[1]!.slice(1)).toEqual(['$90.00', '$130.20', '$90.00', '—']);
+    expect(rows[0]!.slice(1)).toEqual(['$100.50', '$150.10', '$98.20', '—', '$101.70']);
+    expect(rows[1]!.slice(1)).toEqual(['$90.00', '$130.20', '$90.00', '—', '—']);
   });
 
   it('says clearly when the month has no rate plan, and keeps the period controls', async () => {

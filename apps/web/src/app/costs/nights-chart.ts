@@ -16,6 +16,16 @@ import { cents, fullyMetered, money, monthKey, shortDay, wholeMoney } from './co
 import { CsvExportButton } from './csv-export-button';
 import type { CsvTable } from './csv';
 
+/**
+ * The projected site energy to set beside the metered one: over the metered intervals alone on a
+ * partly metered night (plans made before that figure existed: the whole night), the whole
+ * night otherwise.
+ */
+export function projectedAgainstMeter(n: MonthCosts['nights'][number]): number | null {
+  if (n.actualSiteEnergyCost === null) return n.projectedSiteEnergyCost;
+  return fullyMetered(n) ? n.projectedSiteEnergyCost : (n.projectedMeteredSiteEnergyCost ?? n.projectedSiteEnergyCost);
+}
+
 /** Which pair of figures the chart compares. */
 export type NightsView = 'savings' | 'metered';
 
@@ -59,7 +69,8 @@ export class NightsChart {
           { label: 'Charging energy, baseline', colour: c.baseline, data: nights.map((n) => n.baselineEnergyCost) },
         ]
       : [
-          { label: 'Site energy, projected', colour: c.projected, data: nights.map((n) => n.projectedSiteEnergyCost) },
+          // A partly metered night is compared over its metered intervals only.
+          { label: 'Site energy, projected (over the metered intervals)', colour: c.projected, data: nights.map(projectedAgainstMeter) },
           { label: 'Site energy, metered', colour: c.metered, data: nights.map((n) => n.actualSiteEnergyCost) },
         ];
   });
@@ -132,11 +143,10 @@ export class NightsChart {
     if (!metered.length) return `${count} with a published plan; no meter data covers any of them yet, so only the projected site energy cost is shown.`;
     const full = metered.filter(fullyMetered);
     const partial = metered.length - full.length;
-    const cover = `Meter data covers ${metered.length} of ${count}${partial ? ` (${partial} only in part: their metered bar is part of the night)` : ''}.`;
-    if (!full.length) return `${cover} No night is metered in full yet. Each night's figures are in the table under the chart.`;
-    const actual = full.reduce((a, n) => a + (n.actualSiteEnergyCost ?? 0), 0);
-    const projected = full.reduce((a, n) => a + n.projectedSiteEnergyCost, 0);
-    return `${cover} On the ${full.length === 1 ? 'night' : `${full.length} nights`} metered in full, the site's energy cost ${money(actual, c)} metered against ${money(projected, c)} projected. Each night's figures are in the table under the chart.`;
+    const cover = `Meter data covers ${metered.length} of ${count}${partial ? ` (${partial} only in part: both bars of such a night cover its metered intervals only)` : ''}.`;
+    const actual = metered.reduce((a, n) => a + (n.actualSiteEnergyCost ?? 0), 0);
+    const projected = metered.reduce((a, n) => a + (projectedAgainstMeter(n) ?? 0), 0);
+    return `${cover} Over the metered intervals, the site's energy cost ${money(actual, c)} metered against ${money(projected, c)} projected. Each night's figures are in the table under the chart.`;
   });
 
   protected readonly rows = computed(() => {
@@ -147,6 +157,7 @@ export class NightsChart {
       plan: money(n.planEnergyCost, c),
       baseline: n.baselineEnergyCost === null ? '—' : money(n.baselineEnergyCost, c),
       projected: money(n.projectedSiteEnergyCost, c),
+      projectedMetered: n.actualSiteEnergyCost === null || fullyMetered(n) ? '—' : money(projectedAgainstMeter(n)!, c),
       metered:
         n.actualSiteEnergyCost === null ? '—' : `${money(n.actualSiteEnergyCost, c)}${fullyMetered(n) ? '' : ' (part of the night)'}`,
     }));

@@ -48,7 +48,10 @@ export class NightsTable {
     const shown = this.shown();
     return this.month().nights.map((n, i) => {
       const saving = shown.saving[i] ?? null;
-      const diff = fullyMetered(n) ? n.actualSiteEnergyCost! - n.projectedSiteEnergyCost : null;
+      // A partly metered night is compared over its metered intervals only.
+      const partial = n.actualSiteEnergyCost !== null && !fullyMetered(n);
+      const against = fullyMetered(n) ? n.projectedSiteEnergyCost : partial ? n.projectedMeteredSiteEnergyCost : null;
+      const diff = against === null || n.actualSiteEnergyCost === null ? null : n.actualSiteEnergyCost - against;
       return {
         planId: n.planId,
         date: n.date,
@@ -62,7 +65,7 @@ export class NightsTable {
         baselinePeak: n.baselinePeakKw === null ? null : kw(n.baselinePeakKw),
         projected: money(shown.projected[i]!, c),
         actual: n.actualSiteEnergyCost === null ? null : money(n.actualSiteEnergyCost, c),
-        partial: n.actualSiteEnergyCost !== null && !fullyMetered(n),
+        partial,
         diff: diff === null ? null : signedMoney(cents(diff), c),
         diffClass: diff === null ? '' : diff > SAME ? 'over' : diff < -SAME ? 'saving' : '',
         projectedPeak: kw(n.projectedPeakKw),

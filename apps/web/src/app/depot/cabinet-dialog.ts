@@ -8,6 +8,7 @@ import { MatProgressBarModule } from '@angular/material/progress-bar';
 import { cabinetInputSchema, type Cabinet } from '@nightyard/contracts';
 import { toApiProblem } from '../core/api-error';
 import { applyServerErrors, errorText, zodValidator } from '../shared/form-paths';
+import { guardDiscard } from '../shared/discard-guard';
 import { ProblemSummary, type ProblemItem } from '../shared/problem-summary';
 import { DepotApi } from './depot-api';
 
@@ -77,6 +78,10 @@ export class CabinetDialog {
   protected readonly busy = signal(false);
   protected readonly problem = signal<string | null>(null);
   protected readonly problemItems = signal<ProblemItem[]>([]);
+
+  constructor() {
+    guardDiscard(this.form, 'the changes to this power cabinet');
+  }
 
   protected async submit(): Promise<void> {
     this.problem.set(null);

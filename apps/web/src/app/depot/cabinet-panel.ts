@@ -3,6 +3,7 @@ import { MatButtonModule } from '@angular/material/button';
 import { MatIconModule } from '@angular/material/icon';
 import { MatTableModule } from '@angular/material/table';
 import type { Cabinet, Charger } from '@nightyard/contracts';
+import { injectIsPhone } from '../core/layout';
 import { formatKw } from './depot-setup-format';
 
 /** Power cabinets: the kW limit their chargers share. */
@@ -20,6 +21,28 @@ import { formatKw } from './depot-setup-format';
       <p class="hint">Chargers on one power cabinet share its limit: plans keep their total under it.</p>
       @if (rows().length === 0) {
         <p class="empty">No power cabinets: every charger draws straight from the site service.</p>
+      } @else if (phone()) {
+        <ul class="cabinet-list" aria-label="Power cabinets">
+          @for (r of rows(); track r.cabinet.id) {
+            <li>
+              <div class="main">
+                <span class="label">{{ r.cabinet.label }}</span>
+                <span class="meta">Shared limit {{ kw(r.cabinet.limitKw) }}</span>
+                <span class="meta">{{ r.labels ? 'Chargers: ' + r.labels + ' (' + kw(r.sum) + ' together)' : 'No chargers yet' }}</span>
+              </div>
+              @if (canEdit()) {
+                <div class="row-actions">
+                  <button mat-icon-button type="button" [attr.aria-label]="'Edit power cabinet ' + r.cabinet.label" (click)="edit.emit(r.cabinet)">
+                    <mat-icon>edit</mat-icon>
+                  </button>
+                  <button mat-icon-button type="button" [attr.aria-label]="'Remove power cabinet ' + r.cabinet.label" (click)="remove.emit(r.cabinet)">
+                    <mat-icon>delete</mat-icon>
+                  </button>
+                </div>
+              }
+            </li>
+          }
+        </ul>
       } @else {
         <div class="table-scroll" role="region" aria-label="Power cabinets table" tabindex="0">
           <table mat-table [dataSource]="rows()" class="cabinets">
@@ -63,6 +86,16 @@ import { formatKw } from './depot-setup-format';
     .cabinets { width: 100%; min-width: 560px; }
     .label { font-weight: 600; }
     .row-actions { width: 96px; text-align: end; white-space: nowrap; }
+    .cabinet-list {
+      margin: 0; padding: 0; list-style: none;
+      border: 1px solid var(--mat-sys-outline-variant);
+      border-radius: var(--mat-sys-corner-small);
+    }
+    .cabinet-list li { display: flex; align-items: flex-start; gap: 8px; padding: 10px 4px 10px 12px; }
+    .cabinet-list li + li { border-top: 1px solid var(--mat-sys-outline-variant); }
+    .cabinet-list .main { display: flex; flex: 1 1 auto; flex-direction: column; gap: 2px; min-width: 0; }
+    .cabinet-list .meta { color: var(--mat-sys-on-surface-variant); font: var(--mat-sys-body-medium); }
+    .cabinet-list .row-actions { width: auto; flex: none; }
   `,
   changeDetection: ChangeDetectionStrategy.OnPush,
 })
@@ -75,6 +108,7 @@ export class CabinetPanel {
   readonly remove = output<Cabinet>();
 
   protected readonly kw = formatKw;
+  protected readonly phone = injectIsPhone();
   protected readonly columns = computed(() =>
     this.canEdit() ? ['label', 'limit', 'chargers', 'sum', 'actions'] : ['label', 'limit', 'chargers', 'sum'],
   );

@@ -1,7 +1,8 @@
 import { provideHttpClient } from '@angular/common/http';
 import { HttpTestingController, provideHttpClientTesting } from '@angular/common/http/testing';
 import { ComponentFixture, TestBed } from '@angular/core/testing';
-import { MAT_DIALOG_DATA, MatDialogRef } from '@angular/material/dialog';
+import { MAT_DIALOG_DATA, MatDialog, MatDialogRef } from '@angular/material/dialog';
+import { Subject, of } from 'rxjs';
 import { settle } from '../testing/fixtures';
 import { ChargerDialog, chargerForm, chargerInput, type ChargerDialogData } from './charger-dialog';
 import { CABINET_ID, DEPOT_ID, charger, depotDetail } from '../shared/setup-fixtures';
@@ -38,6 +39,7 @@ describe('charger form', () => {
     form.controls.status.setValue('in_service');
     expect(chargerInput(form)).toEqual({
       label: 'C1', maxKw: 60, connector: 'SAE J1772 CCS1', cabinetId: null, status: 'in_service', statusReason: null,
+      outFrom: null, outUntil: null,
     });
   });
 });
@@ -47,16 +49,18 @@ describe('ChargerDialog', () => {
   let el: HTMLElement;
   let mock: HttpTestingController;
   const close = vi.fn();
+  let keys = new Subject<KeyboardEvent>();
   const detail = depotDetail();
 
   beforeEach(async () => {
     close.mockReset();
+    keys = new Subject<KeyboardEvent>();
     const data: ChargerDialogData = { depotId: DEPOT_ID, cabinets: detail.cabinets, chargers: detail.chargers };
     TestBed.configureTestingModule({
       providers: [
         provideHttpClient(),
         provideHttpClientTesting(),
-        { provide: MatDialogRef, useValue: { close } },
+        { provide: MatDialogRef, useValue: { close, keydownEvents: () => keys, backdropClick: () => new Subject<MouseEvent>() } },
         { provide: MAT_DIALOG_DATA, useValue: data },
       ],
     });
@@ -95,7 +99,7 @@ describe('ChargerDialog', () => {
     radio('Out of service').click();
     await fixture.whenStable();
     fixture.detectChanges();
-    expect(el.textContent).toContain('Plans leave this charger out from the moment you save.');
+    expect(el.textContent).toContain('Plans leave this charger out for any night its period touches.');
     await save();
     expect(el.textContent).toContain('Say why the charger is out of service');
     mock.expectNone(`/api/depots/${DEPOT_ID}/chargers`);
@@ -107,6 +111,33 @@ describe('ChargerDialog', () => {
     req.flush({ charger: charger({ label: 'D3' }) }, { status: 201, statusText: 'Created' });
     await settle();
     expect(close).toHaveBeenCalled();
+  });
+
+  it('questions a charger above the service, and sets its OCPP identity and password after saving', async () => {
+    // The dialog opened from a depot with a 450 kW service.
+    (fixture.componentInstance as unknown as { data: ChargerDialogData }).data.serviceLimitKw = 450;
+    type(input('Label'), 'D4');
+    type(input('Maximum power'), '5000');
+    type(input('OCPP identity'), 'OLD-D4');
+    await save();
+    expect(el.textContent).toContain("is above the depot's 450 kW service");
+    expect(el.textContent).toContain('Enter the password the charger will use');
+    mock.expectNone(`/api/depots/${DEPOT_ID}/chargers`);
+    type(input('OCPP password'), 'a-long-charger-secret');
+    el.querySelector<HTMLInputElement>('ny-plausible-confirm input[type="checkbox"]')!.click();
+    await fixture.whenStable();
+    await save();
+    const req = mock.expectOne(`/api/depots/${DEPOT_ID}/chargers`);
+    expect(req.request.body).toMatchObject({ label: 'D4', maxKw: 5000 });
+    const saved = charger({ label: 'D4', maxKw: 5000 });
+    req.flush({ charger: saved }, { status: 201, statusText: 'Created' });
+    await settle();
+    const ocpp = mock.expectOne(`/api/depots/${DEPOT_ID}/chargers/${saved.id}/ocpp`);
+    expect(ocpp.request.method).toBe('PUT');
+    expect(ocpp.request.body).toEqual({ identity: 'OLD-D4', password: 'a-long-charger-secret' });
+    ocpp.flush(null, { status: 204, statusText: 'No Content' });
+    await settle();
+    expect(close).toHaveBeenCalledWith({ ...saved, ocppIdentity: 'OLD-D4' });
   });
 
   it('shows the API\'s cabinet error on the cabinet field', async () => {

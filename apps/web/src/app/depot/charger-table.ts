@@ -12,6 +12,13 @@ import { injectIsPhone } from '../core/layout';
 import { formatInstant, formatKw } from './depot-setup-format';
 
 export type ChargerSortKey = 'label' | 'maxKw' | 'connector' | 'cabinet' | 'status';
+/** "from Dec 10 06:00 until Dec 12 18:00" (depot time), or null without a period. */
+export function outPeriod(c: Pick<Charger, 'outFrom' | 'outUntil'>): string | null {
+  const show = (local: string) => `${local.slice(0, 10)} ${local.slice(11, 16)}`;
+  const parts = [c.outFrom ? `from ${show(c.outFrom)}` : '', c.outUntil ? `until ${show(c.outUntil)}` : ''].filter(Boolean);
+  return parts.length ? parts.join(' ') : null;
+}
+
 export type StatusFilter = 'all' | 'in_service' | 'out_of_service';
 
 export interface ChargerView {
@@ -95,7 +102,12 @@ export class ChargerTable {
       status: this.status(),
       sort: this.sort().active as ChargerSortKey,
       direction: this.sort().direction,
-    }).map((charger) => ({ charger, since: formatInstant(charger.statusSince, this.timezone()), live: liveText(charger) })),
+    }).map((charger) => ({
+      charger,
+      since: formatInstant(charger.statusSince, this.timezone()),
+      period: outPeriod(charger),
+      live: liveText(charger),
+    })),
   );
   protected readonly countText = computed(() => {
     const shown = this.rows().length;

@@ -49,6 +49,11 @@ export class DepotApi {
     );
   }
 
+  /** The charger's OCPP identity and password (the charger connects with them). */
+  setOcpp(depotId: string, id: string, body: { identity: string; password: string }): Promise<void> {
+    return firstValueFrom(this.http.put<void>(`${this.url(depotId, 'chargers', id)}/ocpp`, body));
+  }
+
   removeCharger(depotId: string, id: string): Promise<void> {
     return firstValueFrom(this.http.delete<void>(this.url(depotId, 'chargers', id)));
   }

@@ -132,7 +132,7 @@ export class DepotPage {
   protected openCharger(charger?: Charger): void {
     const d = this.depot();
     if (!d) return;
-    const data: ChargerDialogData = { depotId: d.id, charger, cabinets: d.cabinets, chargers: d.chargers };
+    const data: ChargerDialogData = { depotId: d.id, charger, cabinets: d.cabinets, chargers: d.chargers, serviceLimitKw: d.serviceLimitKw };
     this.dialog
       .open<ChargerDialog, ChargerDialogData, Charger>(ChargerDialog, { data, width: '560px', maxWidth: '95vw', autoFocus: 'first-tabbable' })
       .afterClosed()
@@ -172,11 +172,19 @@ export class DepotPage {
   protected removeCabinet(cabinet: Cabinet): void {
     const d = this.depot();
     if (!d) return;
+    // A cabinet with chargers on it cannot go (the server refuses): say so, and offer no Remove.
+    const on = d.chargers.filter((c) => c.cabinetId === cabinet.id).map((c) => c.label);
+    if (on.length) {
+      this.confirm({
+        title: `Power cabinet ${cabinet.label} cannot be removed yet`,
+        message: `${on.length === 1 ? `Charger ${on[0]} is` : `Chargers ${on.join(', ')} are`} on ${cabinet.label}. Move ${on.length === 1 ? 'it' : 'them'} to another cabinet, or to no cabinet, under Chargers first; then remove the cabinet.`,
+        confirm: null,
+      }, async () => undefined);
+      return;
+    }
     this.confirm({
       title: `Remove power cabinet ${cabinet.label}?`,
-      message: cabinet.chargerCount > 0
-        ? `${cabinet.chargerCount} chargers are on ${cabinet.label}. Move them to another cabinet first, or the removal is refused.`
-        : `${cabinet.label} has no chargers on it.`,
+      message: `${cabinet.label} has no chargers on it. Plans stop counting its limit from now on.`,
       confirm: 'Remove',
     }, async () => {
       await this.api.removeCabinet(d.id, cabinet.id);

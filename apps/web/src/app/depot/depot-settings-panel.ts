@@ -13,12 +13,25 @@ import { startWith } from 'rxjs';
 import { toApiProblem } from '../core/api-error';
 import { FormDrafts } from '../core/form-drafts';
 import { applyServerErrors, errorText, zodValidator } from '../shared/form-paths';
+import { PlausibleConfirm } from '../shared/plausible-confirm';
 import { ProblemSummary, type ProblemItem } from '../shared/problem-summary';
 import { DepotApi } from './depot-api';
 import { HOUR_LABELS, formatKw, timeZones } from './depot-setup-format';
 
 /** The name its unsaved input is kept under when the session ends (FormDrafts). */
 const DRAFT = 'depot-settings';
+/** A bus depot's connection above this is most likely a typing slip (kW). */
+export const PLAUSIBLE_SERVICE_KW = 50_000;
+
+/** Why a service limit is unlikely, or null: above 50 MW, or below the largest charger. */
+export function serviceLimitWarning(kw: number | null, largestChargerKw: number): string | null {
+  if (kw === null || !(kw > 0)) return null;
+  if (kw > PLAUSIBLE_SERVICE_KW) {
+    return `${formatKw(kw)} is above 50 MW, far more than a bus depot's connection: check the figure (kW, not W).`;
+  }
+  if (largestChargerKw > kw) return `${formatKw(kw)} is below the depot's largest charger (${formatKw(largestChargerKw)}). Check the figure.`;
+  return null;
+}
 const shape = depotSettingsSchema.shape;
 const loadControl = (kw: number | null) =>
   new FormControl<number | null>(kw, zodValidator(shape.otherLoadKw.element, 'Enter the other load in kW (0 if none)'));
@@ -49,6 +62,7 @@ type SettingsForm = ReturnType<typeof settingsForm>;
     MatInputModule,
     MatProgressBarModule,
     MatRadioModule,
+    PlausibleConfirm,
     ProblemSummary,
     ReactiveFormsModule,
   ],
@@ -73,6 +87,12 @@ export class DepotSettingsPanel implements OnInit {
   protected readonly busy = signal(false);
   protected readonly problem = signal<string | null>(null);
   protected readonly problemItems = signal<ProblemItem[]>([]);
+  private readonly limitKw = signal<number | null>(null);
+  protected readonly limitWarning = computed(() =>
+    serviceLimitWarning(this.limitKw(), Math.max(0, ...this.depot().chargers.map((c) => c.maxKw))),
+  );
+  protected readonly limitConfirmed = signal(false);
+  protected readonly limitMissing = signal(false);
 
   protected readonly otherLoad = computed(() => {
     const load = this.depot().otherLoadKw;
@@ -95,6 +115,11 @@ export class DepotSettingsPanel implements OnInit {
   protected edit(): void {
     const form = settingsForm(this.depot());
     form.controls.timezone.valueChanges.pipe(startWith(form.controls.timezone.value)).subscribe((v) => this.zoneQuery.set(v));
+    form.controls.serviceLimitKw.valueChanges.pipe(startWith(form.controls.serviceLimitKw.value)).subscribe((v) => {
+      this.limitKw.set(v);
+      this.limitConfirmed.set(false);
+      this.limitMissing.set(false);
+    });
     this.drafts.register(DRAFT, form, this.destroyRef);
     this.problem.set(null);
     this.problemItems.set([]);
@@ -123,6 +148,10 @@ export class DepotSettingsPanel implements OnInit {
     if (form.invalid) {
       form.markAllAsTouched();
       this.problem.set('Check the fields marked in red.');
+      return;
+    }
+    if (this.limitWarning() && !this.limitConfirmed()) {
+      this.limitMissing.set(true);
       return;
     }
     const v = form.getRawValue();

@@ -1,7 +1,8 @@
 import { provideHttpClient } from '@angular/common/http';
 import { HttpTestingController, provideHttpClientTesting } from '@angular/common/http/testing';
 import { ComponentFixture, TestBed } from '@angular/core/testing';
-import { MAT_DIALOG_DATA, MatDialogRef } from '@angular/material/dialog';
+import { MAT_DIALOG_DATA, MatDialog, MatDialogRef } from '@angular/material/dialog';
+import { Subject, of } from 'rxjs';
 import { settle } from '../testing/fixtures';
 import { BusDialog, type BusDialogData } from './bus-dialog';
 import { DEPOT_ID, bus } from './fleet-fixtures';
@@ -11,14 +12,16 @@ describe('BusDialog', () => {
   let el: HTMLElement;
   let mock: HttpTestingController;
   const close = vi.fn();
+  let keys = new Subject<KeyboardEvent>();
 
   async function open(data: Partial<BusDialogData> = {}) {
     close.mockReset();
+    keys = new Subject<KeyboardEvent>();
     TestBed.configureTestingModule({
       providers: [
         provideHttpClient(),
         provideHttpClientTesting(),
-        { provide: MatDialogRef, useValue: { close } },
+        { provide: MatDialogRef, useValue: { close, keydownEvents: () => keys, backdropClick: () => new Subject<MouseEvent>() } },
         { provide: MAT_DIALOG_DATA, useValue: { depotId: DEPOT_ID, bus: null, connectors: [], ...data } },
       ],
     });
@@ -80,6 +83,42 @@ describe('BusDialog', () => {
       'Taper must start below 100 %',
     ]);
     mock.expectNone(`/api/depots/${DEPOT_ID}/buses`);
+  });
+
+  it('questions an unlikely consumption and saves it only once confirmed', async () => {
+    await open();
+    type(input('Bus number'), '231');
+    type(input('Usable battery energy'), '196');
+    type(input('Maximum charge power'), '80');
+    type(input('Connector standard'), 'SAE J1772 CCS1');
+    type(input('Consumption'), '15');
+    fixture.detectChanges();
+    expect(el.textContent).toContain('15 kWh per mile is more than a bus uses');
+    await submit('Add bus');
+    mock.expectNone(`/api/depots/${DEPOT_ID}/buses`);
+    expect(el.textContent).toContain('Confirm the figure, or correct it, to save.');
+    el.querySelector<HTMLInputElement>('ny-plausible-confirm input[type="checkbox"]')!.click();
+    await fixture.whenStable();
+    await submit('Add bus');
+    const req = mock.expectOne(`/api/depots/${DEPOT_ID}/buses`);
+    expect(req.request.body.kwhPerMile).toBe(15);
+    req.flush({ bus: bus({ number: '231' }) }, { status: 201, statusText: 'Created' });
+    await settle();
+  });
+
+  it('closes on Esc without edits, and asks first when there are edits', async () => {
+    await open();
+    const ask = vi.spyOn(fixture.debugElement.injector.get(MatDialog), 'open').mockReturnValue({ afterClosed: () => of(false) } as never);
+    keys.next(new KeyboardEvent('keydown', { key: 'Escape' }));
+    await settle();
+    expect(ask).not.toHaveBeenCalled();
+    expect(close).toHaveBeenCalledTimes(1);
+    close.mockReset();
+    type(input('Bus number'), '232');
+    keys.next(new KeyboardEvent('keydown', { key: 'Escape' }));
+    await settle();
+    expect(ask).toHaveBeenCalledTimes(1);
+    expect(close).not.toHaveBeenCalled();
   });
 
   it('adds a valid bus and closes with it', async () => {

@@ -10,7 +10,9 @@ import { MatProgressBarModule } from '@angular/material/progress-bar';
 import { MatSelectModule } from '@angular/material/select';
 import type { Bus } from '@nightyard/contracts';
 import { applyFieldErrors, toApiProblem } from '../core/api-error';
-import { CONNECTOR_SUGGESTIONS, busForm, busInputOf, messageOf } from './bus-form';
+import { guardDiscard } from '../shared/discard-guard';
+import { PlausibleConfirm } from '../shared/plausible-confirm';
+import { CONNECTOR_SUGGESTIONS, busForm, busInputOf, consumptionWarning, messageOf } from './bus-form';
 import { FleetApi } from './fleet-api';
 import { BUS_STATUS_LABELS } from './fleet-format';
 
@@ -33,6 +35,7 @@ export interface BusDialogData {
     MatInputModule,
     MatProgressBarModule,
     MatSelectModule,
+    PlausibleConfirm,
     ReactiveFormsModule,
   ],
   templateUrl: './bus-dialog.html',
@@ -61,7 +64,19 @@ export class BusDialog {
     return all.filter((c) => !q || c.toLowerCase().includes(q));
   });
 
+  private readonly kwhPerMile = toSignal(this.form.controls.kwhPerMile.valueChanges, {
+    initialValue: this.form.controls.kwhPerMile.value,
+  });
+  protected readonly consumptionWarning = computed(() => consumptionWarning(this.kwhPerMile()));
+  protected readonly consumptionConfirmed = signal(false);
+  protected readonly consumptionMissing = signal(false);
+
   constructor() {
+    guardDiscard(this.form, 'the changes to this bus');
+    this.form.controls.kwhPerMile.valueChanges.pipe(takeUntilDestroyed()).subscribe(() => {
+      this.consumptionConfirmed.set(false);
+      this.consumptionMissing.set(false);
+    });
     // The reserve is checked against the ceiling: look again when the ceiling changes.
     this.form.controls.ceilingPct.valueChanges
       .pipe(takeUntilDestroyed(inject(DestroyRef)))
@@ -73,6 +88,11 @@ export class BusDialog {
     if (this.form.invalid) {
       this.form.markAllAsTouched();
       queueMicrotask(() => this.host.nativeElement.querySelector<HTMLElement>('input.ng-invalid, mat-select.ng-invalid')?.focus());
+      return;
+    }
+    if (this.consumptionWarning() && !this.consumptionConfirmed()) {
+      this.consumptionMissing.set(true);
+      queueMicrotask(() => this.host.nativeElement.querySelector<HTMLElement>('ny-plausible-confirm input')?.focus());
       return;
     }
     this.busy.set(true);

@@ -88,3 +88,18 @@ export const CONNECTOR_SUGGESTIONS = [
   'CHAdeMO',
   'SAE J3105 pantograph',
 ];
+
+/** Battery-electric buses use about 0.5 to 5 kWh a mile (common practice); outside it, likely a slip. */
+export const PLAUSIBLE_KWH_PER_MILE = { min: 0.5, max: 5 } as const;
+
+/** Why a consumption figure is unlikely, or null. */
+export function consumptionWarning(value: unknown): string | null {
+  const v = typeof value === 'number' ? value : typeof value === 'string' && value.trim() ? Number(value) : NaN;
+  if (!Number.isFinite(v) || v <= 0) return null;
+  const shown = new Intl.NumberFormat(undefined, { maximumFractionDigits: 2 }).format(v);
+  if (v > PLAUSIBLE_KWH_PER_MILE.max) {
+    return `${shown} kWh per mile is more than a bus uses (about 1 to 3, at most 5 in deep cold): check the figure (kWh per mile, not per km or per 100 miles).`;
+  }
+  if (v < PLAUSIBLE_KWH_PER_MILE.min) return `${shown} kWh per mile is less than a bus uses (about 1 to 3): check the figure.`;
+  return null;
+}

@@ -83,6 +83,7 @@ export function socSourceText(row: RunRow): string {
   const { meta, arrivalSocPct } = row.getRawValue();
   const soc = arrivalSocPct === null || (arrivalSocPct as unknown) === '' ? null : Number(arrivalSocPct);
   if (soc === null) {
+    // The paragraph above the table says what an estimate is based on.
     return meta.estimatedSocPct === null || meta.id === null ? 'Estimated when saved' : `Estimated ${formatPct(meta.estimatedSocPct)}`;
   }
   if (meta.id !== null && meta.savedSocPct === soc && meta.source) return meta.source === 'uploaded' ? 'Uploaded' : 'Typed';

@@ -5,7 +5,8 @@ import { MAT_DIALOG_DATA, MatDialogModule } from '@angular/material/dialog';
 export interface ConfirmData {
   title: string;
   message: string;
-  confirm: string;
+  /** The confirming button; null when the step cannot be taken (the dialog then only explains). */
+  confirm: string | null;
 }
 
 /** Asks before a consequential change. Closes with true when confirmed. */
@@ -19,8 +20,10 @@ export interface ConfirmData {
       <p>{{ data.message }}</p>
     </mat-dialog-content>
     <mat-dialog-actions align="end">
-      <button mat-button type="button" [mat-dialog-close]="false" cdkFocusInitial>Cancel</button>
-      <button mat-flat-button type="button" [mat-dialog-close]="true">{{ data.confirm }}</button>
+      <button mat-button type="button" [mat-dialog-close]="false" cdkFocusInitial>{{ data.confirm ? 'Cancel' : 'Close' }}</button>
+      @if (data.confirm) {
+        <button mat-flat-button type="button" [mat-dialog-close]="true">{{ data.confirm }}</button>
+      }
     </mat-dialog-actions>
   `,
 })

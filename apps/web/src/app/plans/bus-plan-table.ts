@@ -8,7 +8,7 @@ import { num, type BusPlanRow } from './plan-format';
   imports: [MatIconModule],
   changeDetection: ChangeDetectionStrategy.OnPush,
   template: `
-    <div class="table-scroll" role="region" aria-label="Buses in the plan" tabindex="0">
+    <div class="table-scroll wide-only" role="region" aria-label="Buses in the plan" tabindex="0">
       <table class="buses">
         <caption class="ny-visually-hidden">Each bus: charger, plug-in and unplug times, energy, state of charge at departure, shortfall and why (short buses first)</caption>
         <thead>
@@ -67,6 +67,8 @@ import { num, type BusPlanRow } from './plan-format';
                 @if (r.short) {
                   <span class="reason">{{ r.reason }}</span>
                   <span class="detail">{{ r.reasonDetail }}</span>
+                } @else if (topUps().includes(r.bus)) {
+                  <span class="ok">Leaves at its ceiling; tops up at the midday layover</span>
                 } @else {
                   <span class="ok">Leaves with its energy</span>
                 }
@@ -78,6 +80,45 @@ import { num, type BusPlanRow } from './plan-format';
         </tbody>
       </table>
     </div>
+    <ul class="cards" aria-label="Buses in the plan, one card each">
+      @for (r of rows(); track r.bus) {
+        <li class="bus-card" [class.short]="r.short">
+          <span class="bus-name">
+            @if (r.short) {
+              <mat-icon class="warn" aria-hidden="true">warning</mat-icon>
+            }
+            Bus {{ r.bus }}
+          </span>
+          <dl>
+            <dt>Plug-ins</dt>
+            <dd>
+              @for (s of r.sessions; track $index) {
+                <span class="line">{{ s.charger }} {{ s.plugIn }}–{{ s.unplug }}</span>
+              } @empty {
+                <span class="none">Not plugged in</span>
+              }
+            </dd>
+            <dt>kWh</dt>
+            <dd class="num">{{ num(r.kwh) }}</dd>
+            <dt>Departs (SOC)</dt>
+            <dd>
+              @for (d of r.departures; track $index) {
+                <span class="line">{{ d.at }}@if (d.socPct !== null) { ({{ num(d.socPct, 0) }} %)}</span>
+              }
+            </dd>
+            <dt>Short kWh</dt>
+            <dd class="num">{{ r.short ? num(r.shortfallKwh) : '–' }}</dd>
+            @if (r.short) {
+              <dt>Why short</dt>
+              <dd><span class="reason">{{ r.reason }}</span> <span class="detail">{{ r.reasonDetail }}</span></dd>
+            } @else if (topUps().includes(r.bus)) {
+              <dt>Note</dt>
+              <dd>Leaves at its ceiling; tops up at the midday layover</dd>
+            }
+          </dl>
+        </li>
+      }
+    </ul>
   `,
   styles: `
     :host { display: block; }
@@ -100,9 +141,29 @@ import { num, type BusPlanRow } from './plan-format';
     .line { display: block; white-space: nowrap; }
     .total { border-top: 1px solid var(--mat-sys-outline-variant); font-weight: 600; }
     .none { color: var(--mat-sys-on-surface-variant); }
+    .cards { display: none; margin: 0; padding: 0; list-style: none; }
+    @media (max-width: 599.98px) {
+      .wide-only { display: none; }
+      .cards { display: flex; flex-direction: column; gap: 8px; }
+    }
+    .bus-card {
+      padding: 8px 12px;
+      border: 1px solid var(--mat-sys-outline-variant);
+      border-radius: var(--mat-sys-corner-small);
+      background: var(--mat-sys-surface);
+      font: var(--mat-sys-body-medium);
+    }
+    .bus-card.short { background: color-mix(in srgb, var(--mat-sys-error) 8%, var(--mat-sys-surface)); }
+    .bus-name { font: var(--mat-sys-title-small); }
+    dl { display: grid; grid-template-columns: max-content 1fr; gap: 2px 12px; margin: 4px 0 0; }
+    dt { color: var(--mat-sys-on-surface-variant); }
+    dd { margin: 0; }
+    dd.num { text-align: start; }
   `,
 })
 export class BusPlanTable {
   readonly rows = input.required<readonly BusPlanRow[]>();
+  /** Buses that leave at their ceiling and top up at the next midday layover. */
+  readonly topUps = input<readonly string[]>([]);
   protected readonly num = num;
 }

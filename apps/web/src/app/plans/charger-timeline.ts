@@ -1,17 +1,18 @@
-import { ChangeDetectionStrategy, Component, computed, input } from '@angular/core';
-import type { PlanResult } from '@nightyard/contracts';
 import {
-  SHORT_KWH,
-  clock,
-  dayClock,
-  horizonOf,
-  hourTicks,
-  money,
-  naturalCompare,
-  num,
-  priceBands,
-  spanPct,
-} from './plan-format';
+  ChangeDetectionStrategy,
+  Component,
+  DestroyRef,
+  ElementRef,
+  afterNextRender,
+  computed,
+  inject,
+  input,
+  signal,
+  viewChild,
+} from '@angular/core';
+import type { PlanResult } from '@nightyard/contracts';
+import { SHORT_KWH, clock, dayClock, horizonOf, money, naturalCompare, num, priceBands } from './plan-format';
+import { axisTicks, placeSpan, timelineSegments } from './timeline-scale';
 
 /** A charger the depot has (so an idle one still gets its row). */
 export interface TimelineCharger {
@@ -25,12 +26,21 @@ interface Bar {
   left: number;
   width: number;
   short: boolean;
+  /** False when the bar is too narrow for its bus number: the tooltip and the table carry it. */
+  labelled: boolean;
   title: string;
+  time: string;
+  kwh: string;
 }
+
+/** The track's width until it is measured (the grid's minimum). */
+const MIN_TRACK_PX = 640;
 
 /**
  * One row per charger across the night at the depot; each plug-in is a bar labelled by its bus,
- * over the night's price bands. The same sessions are listed in a table below the picture.
+ * over the night's price bands. Empty spans of two hours or more are collapsed so the width goes to
+ * the hours with plug-ins; a bar too narrow for its label carries it in a tooltip and in the table
+ * below. On a phone the same plug-ins read as a list per charger.
  */
 @Component({
   selector: 'ny-charger-timeline',
@@ -44,15 +54,52 @@ export class ChargerTimeline {
   readonly currency = input('USD');
   readonly chargers = input<readonly TimelineCharger[]>([]);
 
+  private readonly axis = viewChild<ElementRef<HTMLElement>>('axis');
+  /** The track's width in px, measured, so labels and ticks are placed for the space they have. */
+  protected readonly trackPx = signal(MIN_TRACK_PX);
+
+  constructor() {
+    const destroyRef = inject(DestroyRef);
+    afterNextRender(() => {
+      const el = this.axis()?.nativeElement;
+      if (!el || typeof ResizeObserver === 'undefined') return;
+      const ro = new ResizeObserver(() => {
+        const w = el.getBoundingClientRect().width;
+        if (w > 0) this.trackPx.set(w);
+      });
+      ro.observe(el);
+      destroyRef.onDestroy(() => ro.disconnect());
+    });
+  }
+
   private readonly horizon = computed(() => horizonOf(this.result()));
   private readonly shortBuses = computed(
     () => new Set(this.result().buses.filter((b) => b.shortfallKwh > SHORT_KWH).map((b) => b.id)),
   );
 
+  protected readonly segments = computed(() =>
+    timelineSegments(
+      this.horizon(),
+      this.result().sessions.map((s) => [Date.parse(s.start), Date.parse(s.end)] as const),
+    ),
+  );
+
+  /** The collapsed spans, named by their hours. */
+  protected readonly gaps = computed(() => {
+    const tz = this.timezone();
+    return this.segments()
+      .filter((s) => s.collapsed)
+      .map((s) => ({
+        ...s,
+        text: `${clock(new Date(s.start).toISOString(), tz)}–${clock(new Date(s.end).toISOString(), tz)} no plug-in (shortened)`,
+      }));
+  });
+
   protected readonly rows = computed(() => {
     const r = this.result();
-    const h = this.horizon();
     const tz = this.timezone();
+    const segs = this.segments();
+    const px = this.trackPx();
     const kw = new Map(this.chargers().map((c) => [c.id, c.maxKw]));
     const ids = [...new Set([...this.chargers().map((c) => c.id), ...r.sessions.map((s) => s.charger)])].sort(naturalCompare);
     return ids.map((id) => ({
@@ -60,26 +107,34 @@ export class ChargerTimeline {
       maxKw: kw.get(id) ?? null,
       bars: r.sessions
         .filter((s) => s.charger === id)
+        .sort((a, b) => a.start.localeCompare(b.start))
         .map((s, i): Bar => {
-          const span = spanPct(Date.parse(s.start), Date.parse(s.end), h);
+          const span = placeSpan(segs, Date.parse(s.start), Date.parse(s.end));
           const short = this.shortBuses().has(s.bus);
+          const time = `${clock(s.start, tz)}–${clock(s.end, tz)}`;
           return {
             key: `${s.bus}-${s.start}-${i}`,
             bus: s.bus,
             ...span,
             short,
-            title: `Bus ${s.bus} on ${id}, ${clock(s.start, tz)}–${clock(s.end, tz)}, ${num(s.kwh)} kWh${short ? ' (leaves short)' : ''}`,
+            labelled: (span.width / 100) * px >= s.bus.length * 8 + 10,
+            title: `Bus ${s.bus} on ${id}, ${time}, ${num(s.kwh)} kWh${short ? ' (leaves short)' : ''}`,
+            time,
+            kwh: num(s.kwh),
           };
         }),
     }));
   });
 
+  /** Plug-ins too short to carry their bus number on the picture. */
+  protected readonly unlabelled = computed(() => this.rows().reduce((n, r) => n + r.bars.filter((b) => !b.labelled).length, 0));
+
   protected readonly ticks = computed(() =>
-    hourTicks(this.result(), this.timezone()).map((t) => ({ ...t, left: spanPct(t.at, t.at, this.horizon()).left })),
+    axisTicks(this.segments(), this.timezone(), this.trackPx()),
   );
 
   protected readonly bands = computed(() =>
-    priceBands(this.result()).map((b) => ({ ...b, ...spanPct(b.start, b.end, this.horizon()) })),
+    priceBands(this.result()).map((b) => ({ ...b, ...placeSpan(this.segments(), b.start, b.end) })),
   );
 
   protected readonly legend = computed(() => {
@@ -95,7 +150,8 @@ export class ChargerTimeline {
     const r = this.result();
     const h = this.horizon();
     const tz = this.timezone();
-    return `Charger timeline: ${r.sessions.length} plug-ins on ${this.rows().length} chargers from ${dayClock(new Date(h.start).toISOString(), tz)} to ${dayClock(new Date(h.end).toISOString(), tz)}. The same plug-ins are listed in the table below.`;
+    const gaps = this.gaps().length ? ` Hours without a plug-in are shortened: ${this.gaps().map((g) => g.text.replace(' no plug-in (shortened)', '')).join(', ')}.` : '';
+    return `Charger timeline: ${r.sessions.length} plug-ins on ${this.rows().length} chargers from ${dayClock(new Date(h.start).toISOString(), tz)} to ${dayClock(new Date(h.end).toISOString(), tz)}.${gaps} The same plug-ins are listed in the table below.`;
   });
 
   protected readonly sessions = computed(() => {

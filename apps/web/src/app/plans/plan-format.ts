@@ -262,3 +262,103 @@ export function previousVersion(plans: readonly PlanSummary[], current: PlanSumm
   const older = done.filter((p) => p.version < current.version).sort((a, b) => b.version - a.version)[0];
   return older ?? done.find((p) => p.state === 'published') ?? null;
 }
+
+/** A stretch of the night where the slots' limit is below the service limit (a load-reduction window). */
+export interface LoweredLimit {
+  from: string;
+  to: string;
+  limitKw: number;
+}
+
+/**
+ * The service limit (the slots' highest limit) and the load-reduction windows that lower it,
+ * merged into runs of equal limit, in depot time.
+ */
+export function limitWindows(result: Pick<PlanResult, 'slots'>, timeZone: string): { serviceKw: number; lowered: LoweredLimit[] } {
+  const h = horizonOf(result);
+  const serviceKw = Math.max(0, ...result.slots.map((s) => s.limitKw));
+  const runs: { start: number; end: number; limitKw: number }[] = [];
+  for (const s of result.slots) {
+    if (s.limitKw >= serviceKw - 1e-9) continue;
+    const t = Date.parse(s.start);
+    const last = runs.at(-1);
+    if (last && last.end === t && last.limitKw === s.limitKw) last.end = t + h.slotMs;
+    else runs.push({ start: t, end: t + h.slotMs, limitKw: s.limitKw });
+  }
+  return {
+    serviceKw,
+    lowered: runs.map((r) => ({
+      from: clock(new Date(r.start).toISOString(), timeZone),
+      to: clock(new Date(r.end).toISOString(), timeZone),
+      limitKw: r.limitKw,
+    })),
+  };
+}
+
+const BUS_NOTE = /^Bus (\S+?)(:)? (.*)$/;
+
+/** "201, 202 and 203". */
+export function listOf(items: readonly string[]): string {
+  return items.length < 2 ? (items[0] ?? '') : `${items.slice(0, -1).join(', ')} and ${items.at(-1)}`;
+}
+
+/**
+ * The plan's notes with the ones that say the same of several buses said once: "Bus 201: no state
+ * of charge was entered for its 15:30 pull-in; 62 % is estimated from miles." for twelve buses
+ * reads as one line naming the twelve. Other notes stay as they are, in their order.
+ */
+export function groupedNotes(notes: readonly string[]): string[] {
+  const groups = new Map<string, { first: string; buses: string[]; rest: string[] }>();
+  const order: (string | { key: string })[] = [];
+  for (const n of notes) {
+    const m = BUS_NOTE.exec(n);
+    if (!m) {
+      order.push(n);
+      continue;
+    }
+    const rest = m[3]!;
+    const key = rest.replace(/\d+(?:[.:,]\d+)*/g, '#');
+    const g = groups.get(key);
+    if (g) {
+      g.buses.push(m[1]!);
+      g.rest.push(rest);
+    } else {
+      groups.set(key, { first: n, buses: [m[1]!], rest: [rest] });
+      order.push({ key });
+    }
+  }
+  return order.map((o) => {
+    if (typeof o === 'string') return o;
+    const g = groups.get(o.key)!;
+    if (g.buses.length === 1) return g.first;
+    const buses = [...g.buses].sort(naturalCompare);
+    const rest = g.rest[0]!;
+    if (/^no state of charge was entered/.test(rest)) {
+      return `Buses ${listOf(buses)}: no state of charge was entered at their pull-in; their arrival charge is estimated from the miles of their runs.`;
+    }
+    if (/^has no runs on (\S+); it is assumed at its ceiling/.test(rest)) {
+      const day = /^has no runs on (\S+);/.exec(rest)![1];
+      return `Buses ${listOf(buses)} have no runs on ${day}; they are assumed at their ceiling.`;
+    }
+    if (/^has a reading at its last pull-in/.test(rest)) {
+      return `Buses ${listOf(buses)} have a reading at their last pull-in: they are planned from there, without the midday layover.`;
+    }
+    if (/^needs .* relies on the midday layover/.test(rest)) {
+      return `Buses ${listOf(buses)} need more than a full battery (with reserve) for the runs that follow their pull-out: they leave at their ceiling and top up at the midday layover.`;
+    }
+    return `Buses ${listOf(buses)}, each: ${rest}`;
+  });
+}
+
+/**
+ * Buses whose next day needs more than a full battery: they leave at their ceiling (so they are
+ * not short tonight) and count on the next day's midday layover to finish their runs.
+ */
+export function middayTopUpBuses(notes: readonly string[]): string[] {
+  const out = new Set<string>();
+  for (const n of notes) {
+    const m = /^Bus (\S+) needs .* midday layover/.exec(n);
+    if (m) out.add(m[1]!);
+  }
+  return [...out].sort(naturalCompare);
+}

@@ -5,7 +5,7 @@ import { BusPlanTable } from './bus-plan-table';
 import { ChargerTimeline, type TimelineCharger } from './charger-timeline';
 import { CrewMovesNote } from './crew-moves-note';
 import { PlanCompare } from './plan-compare';
-import { busRows, money, num, pct, planFigures } from './plan-format';
+import { busRows, groupedNotes, limitWindows, listOf, middayTopUpBuses, money, num, pct, planFigures } from './plan-format';
 import { SiteLoadChart } from './site-load-chart';
 
 /** A finished plan: the figures, the charger timeline, the buses, the site load, the comparison. */
@@ -25,8 +25,16 @@ export class PlanReview {
   protected readonly money = money;
   protected readonly num = num;
   protected readonly pct = pct;
+  protected readonly listOf = listOf;
 
   protected readonly figures = computed(() => planFigures(this.plan().result));
   protected readonly rows = computed(() => busRows(this.plan()));
   protected readonly shortRows = computed(() => this.rows().filter((r) => r.short));
+  protected readonly limits = computed(() => limitWindows(this.plan().result, this.plan().timezone));
+  protected readonly notes = computed(() => groupedNotes(this.plan().notes));
+  /** Buses that leave at their ceiling and count on the next midday layover (not short tonight). */
+  protected readonly topUps = computed(() => {
+    const inPlan = new Set(this.plan().result.buses.map((b) => b.id));
+    return middayTopUpBuses(this.plan().notes).filter((b) => inPlan.has(b) && !this.shortRows().some((r) => r.bus === b));
+  });
 }

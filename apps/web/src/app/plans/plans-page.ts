@@ -1,4 +1,4 @@
-import { ChangeDetectionStrategy, Component, DestroyRef, computed, effect, inject, input, signal, untracked } from '@angular/core';
+import { ChangeDetectionStrategy, Component, DestroyRef, computed, effect, inject, input, linkedSignal, signal, untracked } from '@angular/core';
 import { MatButtonModule } from '@angular/material/button';
 import { MatCheckboxModule } from '@angular/material/checkbox';
 import { MatDialog } from '@angular/material/dialog';
@@ -110,7 +110,10 @@ export class PlansPage {
   /** Plan summaries carry no currency: the one of the plan in view (USD until one is loaded). */
   protected readonly currency = computed(() => this.detail()?.currency ?? 'USD');
 
-  protected readonly includeMidday = signal(true);
+  /** Follows the night's published version (else its newest), so a night-only night stays night-only. */
+  protected readonly includeMidday = linkedSignal(
+    () => defaultVersion(this.versions().filter((v) => v.kind !== 'what-if'))?.includesMidday ?? true,
+  );
   protected readonly busy = signal<string | null>(null);
   protected readonly problem = signal<string | null>(null);
   protected readonly problems = signal<ProblemItem[]>([]);

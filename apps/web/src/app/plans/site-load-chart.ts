@@ -50,6 +50,18 @@ export function hourlyLoad(result: Pick<PlanResult, 'slots'>, timeZone: string) 
   }));
 }
 
+/**
+ * The axis label of slot `index`: its time when it starts a whole hour that falls on the step
+ * (1, 2, 3, 4 or 6 hours, the smallest that leaves 48 px between labels), else none.
+ */
+export function hourLabel(labels: readonly string[], index: number, widthPx: number): string | null {
+  const label = labels[index];
+  if (!label || !label.endsWith(':00')) return null;
+  const pxPerHour = (widthPx / Math.max(labels.length, 1)) * 4;
+  const step = [1, 2, 3, 4, 6].find((n) => n * pxPerHour >= 48) ?? 6;
+  return Number(label.slice(0, 2)) % step === 0 ? label : null;
+}
+
 /** The site's load through the night against its service limit, with the price as a second axis. */
 @Component({
   selector: 'ny-site-load-chart',
@@ -120,6 +132,7 @@ export class SiteLoadChart {
   protected readonly options = computed<ChartConfiguration<'bar' | 'line'>['options']>(() => {
     const c = this.colors();
     const currency = this.currency();
+    const labels = this.result().slots.map((s) => clock(s.start, this.timezone()));
     return {
       responsive: true,
       maintainAspectRatio: false,
@@ -137,7 +150,18 @@ export class SiteLoadChart {
         },
       },
       scales: {
-        x: { ticks: { color: c.text, maxTicksLimit: 12, maxRotation: 0 }, grid: { display: false } },
+        // Labels on whole hours only, every 1, 2, 3, 4 or 6 hours as the chart's width allows.
+        x: {
+          ticks: {
+            color: c.text,
+            autoSkip: false,
+            maxRotation: 0,
+            callback(this: { width: number }, _value: unknown, index: number): string | null {
+              return hourLabel(labels, index, this.width);
+            },
+          },
+          grid: { display: false },
+        },
         kw: {
           type: 'linear',
           position: 'left',

@@ -89,7 +89,14 @@ describe('RatesPage', () => {
     await render(['facilities']);
     await upload('broken.json', '{"label": ');
     mock.expectNone('/api/rate-plans/import-urdb');
-    expect(el.querySelector('ny-problem-summary')?.textContent).toContain('broken.json is not a JSON file');
+    expect(el.querySelector('ny-problem-summary')?.textContent).toContain('broken.json is not JSON.');
+
+    // A picture chosen by mistake: said plainly, none of its bytes echoed.
+    await upload('meter.png', '\u0089PNG\r\n\u001a\n\u0000\u0000\u0000\rIHDR');
+    mock.expectNone('/api/rate-plans/import-urdb');
+    const said = el.querySelector('ny-problem-summary')?.textContent ?? '';
+    expect(said).toContain('meter.png is not a text file (it looks like a picture or another binary file)');
+    expect(said).not.toContain('IHDR');
 
     await upload('bad.json', '{"label":"x"}');
     mock.expectOne('/api/rate-plans/import-urdb').flush(

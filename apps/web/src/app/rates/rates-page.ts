@@ -30,6 +30,22 @@ const MAX_FILE_BYTES = 1_000_000;
 type Assignment = DepotDetail['ratePlans'][number];
 
 /** The Rates section: the depot's rate plan over time, every rate plan, URDB import. */
+/**
+ * Why a chosen file cannot be a URDB rate record, in words and without echoing its content (a
+ * picture or a spreadsheet would otherwise show as garbled characters), or null when it is JSON.
+ */
+export function urdbFileProblem(name: string, text: string): string | null {
+  try {
+    JSON.parse(text);
+    return null;
+  } catch {
+    const binary = /[\u0000-\u0008\u000E-\u001F\u007F-\u009F\uFFFD]/.test(text.slice(0, 2048));
+    return binary
+      ? `${name} is not a text file (it looks like a picture or another binary file). Choose the JSON file of one rate record exported from the URDB. Nothing was saved.`
+      : `${name} is not JSON. Choose the JSON file of one rate record exported from the URDB (not a web page or a spreadsheet). Nothing was saved.`;
+  }
+}
+
 @Component({
   selector: 'ny-rates-page',
   imports: [
@@ -148,10 +164,9 @@ export class RatesPage {
     this.importing.set(true);
     try {
       const text = await file.text();
-      try {
-        JSON.parse(text);
-      } catch (err) {
-        this.importProblem.set(`${file.name} is not a JSON file (${err instanceof Error ? err.message : 'unreadable'}). Nothing was saved.`);
+      const notJson = urdbFileProblem(file.name, text);
+      if (notJson) {
+        this.importProblem.set(notJson);
         return;
       }
       const result = await this.api.importUrdb(text);

@@ -7,7 +7,9 @@ import { RouterLink } from '@angular/router';
 import { SECTIONS, hasAnyRole, type DepotDetail, type PlanDetail, type Role } from '@nightyard/contracts';
 import { AuthStore } from '../auth/auth-store';
 import { toApiProblem } from '../core/api-error';
+import { Clock } from '../core/clock';
 import { ChargerFaults, faultsOf } from '../depots/charger-faults';
+import { outAt } from '../depots/charger-out';
 import { CurrentDepot } from '../depots/current-depot';
 import { formatServiceDay } from '../depots/depot-format';
 import { DepotStore } from '../depots/depot-store';
@@ -44,6 +46,7 @@ export class TonightPage {
   private readonly liveStore = inject(LiveStore);
   private readonly destroyRef = inject(DestroyRef);
   private readonly injector = inject(Injector);
+  private readonly clock = inject(Clock);
   /** The depot's live stream: charger states as they change, publications and revisions. */
   protected readonly live = signal<LiveDepot | null>(null);
   private liveReload: EffectRef | null = null;
@@ -138,7 +141,7 @@ export class TonightPage {
           stateLabel: info.label,
           icon: info.icon,
           power: state === 'charging' && c.live?.powerKw != null ? `${num(c.live.powerKw)} kW` : null,
-          outOfService: c.status !== 'in_service',
+          outOfService: outAt(c, new Date(this.clock.tick()), this.timezone()),
         };
       }),
   );

@@ -107,6 +107,8 @@ export function charger(label: string, overrides: Partial<Charger> = {}): Charge
     status: 'in_service',
     statusReason: null,
     statusSince: null,
+    outFrom: null,
+    outUntil: null,
     ocppIdentity: `OLD-${label}`,
     live: { status: 'available', powerKw: 0, seenAt: at('22:29') },
     ...overrides,
