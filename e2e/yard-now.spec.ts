@@ -1,7 +1,8 @@
 import { expect, test, type Page } from '@playwright/test';
 import { AT, apiNow, districtAt, expectAccessible, latestMailTo, pageAtApiTime, signInAs } from './support';
 
-// A yard crew on a phone an hour after it stopped confirming: the cards lead with what to do now,
+// The early-morning crew on a phone, not having confirmed its first steps (the demo depot has
+// nobody in the yard from 23:30 to 04:30, and the district's evening steps are confirmed): the cards lead with what to do now,
 // the overdue steps wait apart (confirmed with the time they happened, or said not to have
 // happened), the next hour across chargers, and a charger reported out in the middle of a slot.
 
@@ -20,12 +21,12 @@ test('the yard card shows the step due now, overdue steps apart, the next hour, 
   // Two re-plans of the demo district and two accessibility checks of a long page.
   test.setTimeout(120_000);
   const district = await districtAt(AT.wednesdayAfterMidnight);
-  // Nobody confirmed anything for an hour: the steps from 23:52 to 00:57 are overdue at 01:07.
-  await apiClockAt('2026-12-09T01:07:00-06:00');
+  // Nobody confirmed anything since the crew came in at 04:30: the steps to 04:57 are overdue at 05:07.
+  await apiClockAt('2026-12-09T05:07:00-06:00');
   await pageAtApiTime(page);
   await signInAs(page, district.emails.yard);
   await page.getByRole('button', { name: 'I have read the cautions: start my shift' }).click();
-  await expect(page.getByRole('region', { name: 'Plan status' })).toContainText(/Now 01:0\d/);
+  await expect(page.getByRole('region', { name: 'Plan status' })).toContainText(/Now 05:0\d/);
 
   // The next hour across all chargers, in time order, due now to an hour ahead, with the cautions.
   const nextHour = page.getByRole('region', { name: 'Next hour, all chargers' });
@@ -34,7 +35,7 @@ test('the yard card shows the step due now, overdue steps apart, the next hour, 
   expect(times.length).toBeGreaterThan(0);
   expect([...times].sort()).toEqual(times);
   // Due now: a step becomes overdue ten minutes after its time.
-  for (const t of times) expect(t >= '00:57' && t <= '02:07').toBe(true);
+  for (const t of times) expect(t >= '04:57' && t <= '06:07').toBe(true);
   await expect(nextHour.getByText(/High voltage: trained and authorised staff only/).first()).toBeVisible();
 
   // Overdue steps wait apart; the card still leads with the step due now or next.
