@@ -112,7 +112,10 @@ test('depot and fleet forms question unlikely figures and ask before discarding 
   await page.setViewportSize(PHONE);
   const cabinets = page.getByRole('list', { name: 'Power cabinets' });
   await expect(cabinets).toBeVisible();
-  await expect(cabinets.getByRole('button', { name: 'Edit power cabinet Cabinet A' })).toBeInViewport();
+  // Scrolled to (the list is below the fold on a phone), its actions are inside the screen's width.
+  const edit = cabinets.getByRole('button', { name: 'Edit power cabinet Cabinet A' });
+  await edit.scrollIntoViewIfNeeded();
+  await expect(edit).toBeInViewport();
   await expectAccessible(page);
 
   // Fleet: 15 kWh a mile is questioned beside the field.
