@@ -7,6 +7,7 @@ import type { Mailer } from './mail/mailer';
 import type { Clock } from './time/clock';
 import type { LiveBus } from './live/live-bus';
 import type { TestControl } from './dev/test-control-routes';
+import type { KnownUsers } from './auth/known-users';
 
 /** What route handlers are given: the database, settings and outside services. */
 export interface AppDeps {
@@ -24,6 +25,8 @@ export interface AppDeps {
   clock: Clock;
   /** Browser tests only (NODE_ENV=test with NIGHTYARD_TEST_CONTROL=1): move the clock, seed a district. */
   testControl?: TestControl;
+  /** Signed-in users kept between requests while the database reports their changes (absent: read per request). */
+  knownUsers?: KnownUsers;
   /** Runs a query against the database to prove it answers (for /api/health). */
   ping: () => Promise<void>;
 }

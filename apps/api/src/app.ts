@@ -89,7 +89,7 @@ export function createApp(deps: AppDeps): BuiltApp {
   router.use(express.json({ limit: JSON_BODY_LIMIT_BYTES, strict: true }));
   router.use(cookieParser());
   const openapi = newOpenApiRegistry();
-  const api = new ApiRoutes(router, openapi, bearerAuthenticator(deps.db, deps.config.JWT_SECRET, deps.clock), idempotencyStore(deps.db, deps.clock));
+  const api = new ApiRoutes(router, openapi, bearerAuthenticator(deps.db, deps.config.JWT_SECRET, deps.clock, deps.knownUsers), idempotencyStore(deps.db, deps.clock));
 
   api.add(
     { method: 'get', path: '/health', summary: 'Answers 200 when the API and its database work', tag: 'system',

@@ -1,6 +1,7 @@
 import path from 'node:path';
 import { sql } from 'drizzle-orm';
 import { createApp } from './app';
+import { KnownUsers } from './auth/known-users';
 import { loadConfig, wantsDemoSeed } from './config';
 import { pino } from 'pino';
 import { createLogger } from './logging';
@@ -50,8 +51,13 @@ const central = new CentralSystem(db, log, clock);
 const live = new LiveBus(log);
 feedChargerStates(central, live, clock);
 
+// Requests take their signed-in user from here while the database reports every change to users.
+const knownUsers = new KnownUsers(config.DATABASE_URL, log);
+await knownUsers.start();
+
 const { app } = createApp({
   db,
+  knownUsers,
   clock,
   live,
   ...(testControl ? { testControl: { setClock: testControl.set } } : {}),
@@ -101,7 +107,7 @@ const shutdown = (signal: string) => {
   log.info({ signal }, 'shutting down');
   void central.close();
   live.endStreams();
-  server.close(() => jobs.stop().then(() => Promise.all([pool.end(), stopWorkPool()])).then(() => process.exit(0)));
+  server.close(() => jobs.stop().then(() => Promise.all([knownUsers.close(), pool.end(), stopWorkPool()])).then(() => process.exit(0)));
   setTimeout(() => process.exit(0), 5000).unref();
 };
 process.on('SIGTERM', () => shutdown('SIGTERM'));

@@ -16,6 +16,7 @@ import { addBuses, dayRuns } from './testing/fleet-fixture';
 import { generatedPlan } from './testing/plan-fixture';
 import { createOrganisation, createTestApp, type TestUser } from './testing/test-app';
 import { TEST_DATABASE_URL } from './testing/test-env';
+import { KnownUsers } from './auth/known-users';
 import { ThrowawayCluster, freePort } from './testing/throwaway-cluster';
 
 const silent = pino({ level: 'silent' });
@@ -27,7 +28,10 @@ describe('PostgreSQL restarts under a running API', () => {
   const cluster = new ThrowawayCluster(clusterPort);
   // Registered before the app's own clean-up so the cluster stops last (after hooks run in reverse).
   afterAll(() => cluster.stop());
-  const app = createTestApp({}, cluster.url);
+  // As main.ts runs it: signed-in users kept while the database reports their changes.
+  const known = new KnownUsers(cluster.url, silent);
+  afterAll(() => known.close());
+  const app = createTestApp({ knownUsers: known }, cluster.url);
   const central = new CentralSystem(app.db, silent, app.deps.clock);
   let server: Server;
   let sup: TestUser;
@@ -37,6 +41,7 @@ describe('PostgreSQL restarts under a running API', () => {
 
   beforeAll(async () => {
     await cluster.setUp();
+    await known.start();
     server = app.app.listen(0, '127.0.0.1');
     central.attachTo(server);
     await new Promise((r) => server.once('listening', r));
@@ -66,6 +71,8 @@ describe('PostgreSQL restarts under a running API', () => {
     const station = new RPCClient({ endpoint: url, identity, password: 'resilience-charger-pw', protocols: ['ocpp1.6'], reconnect: false } as never);
     await station.connect();
 
+    await app.request().get(`/api/depots/${depotId}`).set(as(sup)).expect(200);
+    expect(known.isListening).toBe(true);
     await cluster.stop();
 
     const down = await app.request().get(`/api/depots/${depotId}`).set(as(sup));
@@ -81,6 +88,8 @@ describe('PostgreSQL restarts under a running API', () => {
     await cluster.start();
 
     await expect.poll(async () => (await app.request().get(`/api/depots/${depotId}`).set(as(sup))).status, { timeout: 15_000, interval: 200 }).toBe(200);
+    // Signed-in users are kept again once their change notifications resume.
+    await expect.poll(() => known.isListening, { timeout: 15_000, interval: 200 }).toBe(true);
     const [depot] = await app.db.select().from(depots).where(eq(depots.id, depotId));
     expect(depot?.name).toBe('Test depot');
     const kept = await app.request().get(`/api/plans/${before.id}`).set(as(sup)).expect(200);

@@ -9,6 +9,7 @@ import { users } from '../db/schema';
 import { DomainError } from '../http/errors';
 import type { AuthUser } from './auth-user';
 import type { Clock } from '../time/clock';
+import type { KnownUsers } from './known-users';
 
 const ISSUER = 'nightyard';
 const AUDIENCE = 'nightyard-api';
@@ -25,10 +26,11 @@ export function signAccessToken(secret: string, seconds: number, user: { id: str
 }
 
 /**
- * Express middleware that accepts a Bearer access token. The user is re-read on every request so
- * a deactivation or a change of roles takes effect at once, not when the token expires.
+ * Express middleware that accepts a Bearer access token. The user is re-read on every request, or
+ * taken from `known` (which forgets a user the moment they change), so a deactivation or a change
+ * of roles takes effect at once, not when the token expires.
  */
-export function bearerAuthenticator(db: Db, secret: string, clock: Clock) {
+export function bearerAuthenticator(db: Db, secret: string, clock: Clock, known?: KnownUsers) {
   // Every signed-in request reads its user: a named statement, planned once per connection.
   const activeUser = db
     .select({ id: users.id, organisationId: users.organisationId, email: users.email, name: users.name, roles: users.roles })
@@ -47,8 +49,13 @@ export function bearerAuthenticator(db: Db, secret: string, clock: Clock) {
     },
     (payload: { sub?: string; org?: string }, done: (err: unknown, user?: AuthUser | false) => void) => {
       if (!payload.sub || !payload.org) return done(null, false);
-      activeUser.execute({ id: payload.sub, organisationId: payload.org })
-        .then(([row]) => done(null, row ?? false), (err) => done(err));
+      const remembered = known?.get(payload.sub, payload.org);
+      if (remembered) return done(null, remembered);
+      const mark = known?.mark() ?? 0;
+      activeUser.execute({ id: payload.sub, organisationId: payload.org }).then(([row]) => {
+        if (row) known?.keep(row, mark);
+        done(null, row ?? false);
+      }, (err) => done(err));
     },
   );
   // passport-jwt copies its verify options once; jsonwebtoken reads clockTimestamp at each verify.

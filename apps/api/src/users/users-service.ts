@@ -6,6 +6,7 @@ import { lockTarget } from '../db/locks';
 import { DomainError, conflict, notFound } from '../http/errors';
 import type { AuthUser } from '../auth/auth-user';
 import { createActionToken } from '../auth/auth-service';
+import { forgetUser } from '../auth/known-users';
 import type { Mailer } from '../mail/mailer';
 import { invitationMail } from '../mail/templates';
 
@@ -79,7 +80,7 @@ async function activeAdminsOtherThan(db: Db, organisationId: string, userId: str
 }
 
 export async function updateUser(db: Db, caller: AuthUser, id: string, req: UpdateUserRequest, now: Date): Promise<User> {
-  return db.transaction(async (tx) => {
+  const updated = await db.transaction(async (tx) => {
     const [user] = await tx
       .select()
       .from(users)
@@ -106,4 +107,7 @@ export async function updateUser(db: Db, caller: AuthUser, id: string, req: Upda
     }
     return toUser(updated!);
   });
+  // Committed: the next request of this user must see the change (see known-users.ts).
+  forgetUser(id);
+  return updated;
 }
