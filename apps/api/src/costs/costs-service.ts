@@ -1,15 +1,16 @@
 import { and, asc, eq, gte, lt, sql } from 'drizzle-orm';
 import { DateTime } from 'luxon';
-import { planResultSchema, type MonthCosts, type PlanCosts, type PlanResult, type RatePlanDefinition } from '@nightyard/contracts';
+import { monthCostsSchema, planResultSchema, type MonthCosts, type PlanCosts, type PlanResult, type RatePlanDefinition } from '@nightyard/contracts';
 import { computeBill, ratePlanPeriodAt, type Bill, type IntervalDemand } from '@nightyard/scheduling';
 import type { Pool } from 'pg';
 import type { Db } from '../db/client';
 import { billingPeaks, buses, meterIntervals, plans, runs } from '../db/schema';
 import { notFound } from '../http/errors';
+import { markChecked, markCheckedText } from '../http/checked-answer';
 import type { AuthUser } from '../auth/auth-user';
 import { depotOf } from '../depots/depot-access';
 import { prepared } from '../db/prepared';
-import { billingPeriodOf, ratePlanOn } from './billing-period';
+import { billingPeriodOf, ratePlanOn, type BillingPeriod } from './billing-period';
 import { MonthCostsCache, monthInputs } from './month-cache';
 import { guessDepot, rememberDepot } from '../depots/depot-guess';
 import { buildingKwAt, forecastNights } from './month-forecast';
@@ -359,6 +360,20 @@ function soFarOf(base: PeriodBase, depot: Depot, period: Period, nowMs: number) 
   return value;
 }
 
+/** A period's dates and instants as the inputs' query takes them, worked out once per period (luxon's zone arithmetic is dear). */
+const boundsOfPeriods = new WeakMap<BillingPeriod, { plansFrom: string; periodStart: string; periodEnd: string; fromAt: Date; toAt: Date }>();
+function periodBounds(period: BillingPeriod) {
+  let bounds = boundsOfPeriods.get(period);
+  if (!bounds) {
+    bounds = {
+      plansFrom: period.start.minus({ days: 4 }).toISODate()!, periodStart: period.start.toISODate()!, periodEnd: period.end.toISODate()!,
+      fromAt: period.start.toJSDate(), toAt: period.end.toJSDate(),
+    };
+    boundsOfPeriods.set(period, bounds);
+  }
+  return bounds;
+}
+
 /**
  * The caller's depot, its billing period holding `date` and that period's inputs, in one round
  * trip: the period is guessed from the depot as last read and checked against the row the query
@@ -368,10 +383,7 @@ async function monthInputsOf(db: Db, caller: AuthUser, depotId: string, date: st
   let guess: { timezone: string; billingStartDay: number } = guessDepot(depotId) ?? await depotOf(db, caller, depotId);
   for (;;) {
     const period = billingPeriodOf(date, guess.billingStartDay, guess.timezone);
-    const found = await monthInputs(db, caller.organisationId, depotId, {
-      plansFrom: period.start.minus({ days: 4 }).toISODate()!, periodStart: period.start.toISODate()!, periodEnd: period.end.toISODate()!,
-      fromAt: period.start.toJSDate(), toAt: period.end.toJSDate(), now,
-    });
+    const found = await monthInputs(db, caller.organisationId, depotId, { ...periodBounds(period), now });
     if (!found) throw notFound('That depot');
     rememberDepot(found.depot);
     if (found.depot.timezone === guess.timezone && found.depot.billingStartDay === guess.billingStartDay) return { ...found, period };
@@ -391,8 +403,7 @@ export async function monthCosts(
 ): Promise<MonthCosts> {
   const inputs = await monthInputsOf(db, caller, depotId, date, now);
   const { depot, period, serviceDays, miles } = inputs;
-  const periodStart = period.start.toISODate()!;
-  const periodEnd = period.end.toISODate()!;
+  const { periodStart, periodEnd } = periodBounds(period);
   const version = cache ? inputs.version : undefined;
   const key = `${depot.id}|${periodStart}`;
   let base = cache && version ? cache.get(key, version) : undefined;
@@ -410,10 +421,17 @@ export async function monthCosts(
     }
     base = await pending;
   }
-  const { monthToDate, peaks } = soFarOf(base, depot, period, now.getTime());
-
+  const soFar = soFarOf(base, depot, period, now.getTime());
+  const withoutPlan = serviceDays.filter((d) => !base.plannedDates.has(d)).length;
+  // The same inputs give the same answer: sent again as the bytes it was, not built, checked and
+  // written out once more (finance and Tonight's cards ask for it on every page load).
+  const kept = monthAnswers.get(key);
+  if (kept && kept.base === base && kept.soFar === soFar && kept.miles === miles && kept.mpg === mpg && kept.withoutPlan === withoutPlan) {
+    return markCheckedText(kept.answer, kept.text);
+  }
+  const { monthToDate, peaks } = soFar;
   const gallons = miles / mpg;
-  return {
+  const answer = monthCostsSchema.parse({
     currency: base.rate.definition.currency,
     period: { start: periodStart, end: periodEnd, days: period.days },
     ratePlanName: base.rate.name,
@@ -428,11 +446,25 @@ export async function monthCosts(
       actualIntervals: base.actualIntervals,
       plannedNights: base.nights.length,
       forecastNights: base.forecast.length,
-      schoolNightsWithoutPlan: serviceDays.filter((d) => !base.plannedDates.has(d)).length,
+      schoolNightsWithoutPlan: withoutPlan,
     },
     emissions: {
       miles: round2(miles), dieselMpg: mpg, dieselGallonsAvoided: round2(gallons), co2KgAvoided: round2(gallons * DIESEL_CO2_KG_PER_GALLON),
       source: EMISSIONS_SOURCE,
     },
-  };
+  } satisfies MonthCosts);
+  if (cache) {
+    const text = Buffer.from(JSON.stringify(answer));
+    monthAnswers.delete(key);
+    monthAnswers.set(key, { base, soFar, miles, mpg, withoutPlan, answer, text });
+    while (monthAnswers.size > MAX_MONTH_ANSWERS) monthAnswers.delete(monthAnswers.keys().next().value!);
+    return markCheckedText(answer, text);
+  }
+  return markChecked(answer);
 }
+
+/** The last answer per depot and period, with what it was made from (compared by identity). */
+const monthAnswers = new Map<string, {
+  base: PeriodBase; soFar: ReturnType<typeof soFarOf>; miles: number; mpg: number; withoutPlan: number; answer: MonthCosts; text: Buffer;
+}>();
+const MAX_MONTH_ANSWERS = 200;

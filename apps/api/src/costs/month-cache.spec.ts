@@ -55,6 +55,12 @@ describe('the costs month cache', () => {
     expect(second).toEqual(first);
     expect(first).toEqual(await uncached());
     expect(first.nights).toHaveLength(1);
+    // The answer kept as bytes is the answer of its own inputs only: another fuel economy asked for
+    // in between gives its own figures, and asking as before gives the first answer again.
+    const other = (await app.request().get(`/api/depots/${depotId}/costs/month`).query({ date: '2026-12-10', dieselMpg: 5 }).set(as(fin)).expect(200)).body;
+    expect(other.emissions.dieselMpg).toBe(5);
+    expect(other.emissions.dieselGallonsAvoided).toBeGreaterThan(first.emissions.dieselGallonsAvoided);
+    expect(await month()).toEqual(first);
   });
 
   it('gives the fresh answer at every moment of the period, however the moments are asked for', async () => {

@@ -14,15 +14,18 @@ export function isChecked(answer: unknown): boolean {
   return typeof answer === 'object' && answer !== null && checked.has(answer);
 }
 
-/** JSON texts of checked answers, written once when remembered and sent as they are. */
-const texts = new WeakMap<object, string>();
+/**
+ * JSON texts of checked answers, written once when remembered and sent as they are: a string, or
+ * UTF-8 bytes (a remembered answer keeps its bytes, so it is not encoded again per request).
+ */
+const texts = new WeakMap<object, string | Buffer>();
 
 /** A checked answer whose JSON text is known already (it must be the answer's JSON.stringify). */
-export function markCheckedText<T extends object>(answer: T, text: string): T {
+export function markCheckedText<T extends object>(answer: T, text: string | Buffer): T {
   texts.set(answer, text);
   return markChecked(answer);
 }
 
-export function checkedTextOf(answer: unknown): string | undefined {
+export function checkedTextOf(answer: unknown): string | Buffer | undefined {
   return typeof answer === 'object' && answer !== null ? texts.get(answer) : undefined;
 }

@@ -144,7 +144,7 @@ type NightFound = NonNullable<Awaited<ReturnType<typeof publishedNight>>>['night
  * the plan, the depot's name and zone and what the yard has said (reports, confirmations) are
  * as they were. Each request still reads those from the database, so nothing here goes stale.
  */
-const tonightAnswers = new Map<string, { key: string; fromMs: number; untilMs: number; answer: Tonight; text: { before: string; after: string } }>();
+const tonightAnswers = new Map<string, { key: string; fromMs: number; untilMs: number; answer: Tonight; text: { before: Buffer; after: Buffer } }>();
 const MAX_TONIGHT_ANSWERS = 200;
 
 async function tonightOf(db: Db, depot: { id: string; name: string; timezone: string }, found: NightFound, now: Date): Promise<Tonight> {
@@ -156,7 +156,12 @@ async function tonightOf(db: Db, depot: { id: string; name: string; timezone: st
   const known = tonightAnswers.get(slot);
   if (known && known.key === key && known.fromMs <= nowMs && nowMs < known.untilMs) {
     // The remembered JSON text with the instant put in (an ISO instant needs no escaping).
-    return markCheckedText({ ...known.answer, now: base.now }, `${known.text.before}${base.now}${known.text.after}`);
+    const { before, after } = known.text;
+    const text = Buffer.allocUnsafe(before.length + base.now.length + after.length);
+    before.copy(text);
+    text.write(base.now, before.length, 'latin1');
+    after.copy(text, before.length + base.now.length);
+    return markCheckedText({ ...known.answer, now: base.now }, text);
   }
 
   const answer = tonightSchema.parse(await computeTonight(db, base, depot.timezone, found));
@@ -165,7 +170,7 @@ async function tonightOf(db: Db, depot: { id: string; name: string; timezone: st
   // The answer's first key after the depot (whose text, escaped, cannot hold this).
   const nowAt = json.indexOf(`"now":"${answer.now}"`) + '"now":"'.length;
   if (nowAt < '"now":"'.length) throw new Error('Tonight\'s answer has no instant');
-  const text = { before: json.slice(0, nowAt), after: json.slice(nowAt + answer.now.length) };
+  const text = { before: Buffer.from(json.slice(0, nowAt)), after: Buffer.from(json.slice(nowAt + answer.now.length)) };
   tonightAnswers.delete(slot);
   tonightAnswers.set(slot, { key, fromMs: nowMs, untilMs, answer, text });
   while (tonightAnswers.size > MAX_TONIGHT_ANSWERS) tonightAnswers.delete(tonightAnswers.keys().next().value!);
