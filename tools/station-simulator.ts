@@ -31,6 +31,7 @@ export class SimulatedStation {
   private faulted = false;
   /** Meter reports sent so far: tests wait for the next one rather than for a fixed time. */
   reports = 0;
+  private transactions = 0;
   private readonly clock: () => Date;
   /** Central system time minus this machine's, learnt from its answers. */
   private offsetMs = 0;
@@ -89,6 +90,26 @@ export class SimulatedStation {
     this.reports++;
   }
 
+  /**
+   * A bus is plugged in: the transaction starts and the station reports the battery's state of
+   * charge as the bus gave it at that moment (measurand SoC, context Transaction.Begin).
+   */
+  async plugIn(socPct: number): Promise<void> {
+    const v16 = this.opts.protocol === 'ocpp1.6';
+    const timestamp = this.clock().toISOString();
+    if (v16) {
+      const { transactionId } = await this.client.call('StartTransaction', { connectorId: 1, idTag: 'DEPOT', meterStart: 0, timestamp }) as { transactionId: number };
+      await this.client.call('MeterValues', { connectorId: 1, transactionId, meterValue: [{ timestamp, sampledValue: [
+        { value: String(socPct), context: 'Transaction.Begin', measurand: 'SoC', location: 'EV', unit: 'Percent' }] }] });
+    } else {
+      await this.client.call('TransactionEvent', {
+        eventType: 'Started', timestamp, triggerReason: 'CablePluggedIn', seqNo: 0,
+        transactionInfo: { transactionId: `${this.opts.identity}-${++this.transactions}` }, evse: { id: 1, connectorId: 1 },
+        meterValue: [{ timestamp, sampledValue: [{ value: socPct, context: 'Transaction.Begin', measurand: 'SoC', location: 'EV', unitOfMeasure: { unit: 'Percent' } }] }],
+      });
+    }
+  }
+
   /** Reports a fault; it stays (the station draws nothing and keeps saying so) until `clear()`. */
   async fault(): Promise<void> {
     this.faulted = true;
@@ -142,15 +163,24 @@ async function main() {
   // POST /fault/<label or identity> makes that charger report a fault, to show the yard's re-plan
   // offer; the fault stays until POST /clear/<label or identity> (or DELETE /fault/<...>).
   // PUT /stations?tag=<tag> swaps the stations for a tagged test district's chargers.
+  // POST /plug/<label or identity>?soc=<%> plugs a bus in: the charger reports its state of charge.
   if (process.env.SIMULATOR_HEALTH_PORT) {
     const { createServer } = await import('node:http');
     createServer((req, res) => {
       const address = new URL(req.url ?? '/', 'http://simulator');
-      const [, action, label] = /^\/(fault|clear|reports)\/([\w-]+)$/.exec(address.pathname) ?? [];
+      const [, action, label] = /^\/(fault|clear|reports|plug)\/([\w-]+)$/.exec(address.pathname) ?? [];
       const find = () => stations.find((s) => s.client.identity === label || s.client.identity?.endsWith(`-${label}`));
       if (label && req.method === 'GET' && action === 'reports') {
         const station = find();
         return void (station ? res.writeHead(200, { 'content-type': 'application/json' }).end(JSON.stringify({ reports: station.reports })) : res.writeHead(404).end('unknown charger'));
+      }
+      if (label && req.method === 'POST' && action === 'plug') {
+        const station = find();
+        const soc = Number(address.searchParams.get('soc'));
+        if (!station) return void res.writeHead(404).end('unknown charger');
+        if (!(soc >= 0 && soc <= 100)) return void res.writeHead(400).end('give the state of charge as ?soc=0 to 100');
+        void station.plugIn(soc).then(() => res.writeHead(204).end(), () => res.writeHead(502).end());
+        return;
       }
       const clearing = (req.method === 'POST' && action === 'clear') || (req.method === 'DELETE' && action === 'fault');
       if (label && ((req.method === 'POST' && action === 'fault') || clearing)) {

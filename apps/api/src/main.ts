@@ -2,6 +2,8 @@ import path from 'node:path';
 import { sql } from 'drizzle-orm';
 import { createApp } from './app';
 import { KnownUsers } from './auth/known-users';
+import { takeChargerReading } from './yard/charger-readings';
+import { announcePlan, announceReport } from './live/live-feeds';
 import { loadConfig, wantsDemoSeed } from './config';
 import { pino } from 'pino';
 import { createLogger } from './logging';
@@ -55,6 +57,10 @@ feedChargerStates(central, live, clock);
 const knownUsers = new KnownUsers(config.DATABASE_URL, log);
 await knownUsers.start();
 
+const mailer = smtpMailer({ host: config.SMTP_HOST, port: config.SMTP_PORT, from: config.MAIL_FROM }, log);
+const publicUrl = (p: string) => new URL(p, publicBase).toString();
+const onPlanPublished = (planId: string) => void central.sendPlan(planId).catch((err: unknown) => log.error({ err }, 'profiles not sent'));
+
 const { app } = createApp({
   db,
   knownUsers,
@@ -62,10 +68,10 @@ const { app } = createApp({
   live,
   ...(testControl ? { testControl: { setClock: testControl.set } } : {}),
   jobs,
-  onPlanPublished: (planId) => void central.sendPlan(planId).catch((err) => log.error({ err }, 'profiles not sent')),
+  onPlanPublished,
   config: { ...config, WEB_DIST: webDist },
   log,
-  mailer: smtpMailer({ host: config.SMTP_HOST, port: config.SMTP_PORT, from: config.MAIL_FROM }, log),
+  mailer,
   ping: async () => {
     await db.execute(sql`select 1`);
   },
@@ -79,8 +85,19 @@ const { app } = createApp({
       perAddress: config.LOGIN_MAX_FAILURES_PER_ADDRESS,
       windowMinutes: config.LOGIN_WINDOW_MINUTES,
     },
-    publicUrl: (p) => new URL(p, publicBase).toString(),
+    publicUrl,
   },
+});
+
+// A bus's state of charge read by its charger at plug-in: its arrival reading, and a re-plan when
+// it is far from what the plan took (yard/charger-readings.ts).
+central.onSocReading(async (reading) => {
+  const outcome = await takeChargerReading({ db, mailer, publicUrl, onPlanPublished }, reading);
+  log.info({ ...reading, outcome: outcome.taken ? { ...outcome, revised: outcome.revised?.revision.version ?? null } : outcome }, 'state of charge read at plug-in');
+  if (outcome.taken && outcome.revised) {
+    announceReport(live, reading.depotId, `charger ${reading.charger}`, { kind: 'soc_reading', planId: outcome.revised.revision.id, bus: outcome.bus, socPct: outcome.socPct }, clock());
+    announcePlan(live, outcome.revised.revision, 'revised', clock());
+  }
 });
 
 const server = app.listen(config.PORT, '127.0.0.1', () => {

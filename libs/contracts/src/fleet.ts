@@ -62,7 +62,7 @@ export function coldWeatherFactor(table: ColdWeatherTable, lowF: number | null):
   return bands.find((b) => lowF < b.belowF)?.factor ?? 1;
 }
 
-export const socSourceSchema = z.enum(['typed', 'uploaded', 'estimated']);
+export const socSourceSchema = z.enum(['typed', 'uploaded', 'estimated', 'charger']);
 
 export const runInputSchema = z
   .strictObject({

@@ -203,7 +203,8 @@ export const depotRatePlans = pgTable(
   (t) => [uniqueIndex('depot_rate_plans_key').on(t.depotId, t.effectiveFrom)],
 );
 
-export const socSource = pgEnum('soc_source', ['typed', 'uploaded', 'estimated']);
+/** Where an arrival reading came from: typed in, uploaded with the runs, estimated from miles, or read by the charger at plug-in. */
+export const socSource = pgEnum('soc_source', ['typed', 'uploaded', 'estimated', 'charger']);
 
 /** A service day's conditions: the forecast low sets the cold-weather factor. */
 export const serviceDays = pgTable(

@@ -14,7 +14,7 @@ const depotQuery = (db: Db, name: string) => db
   .prepare(name);
 
 /** The caller's depot or "not found": a depot of another organisation does not exist for them. */
-export async function depotOf(db: Db, caller: AuthUser, depotId: string) {
+export async function depotOf(db: Db, caller: Pick<AuthUser, 'organisationId'>, depotId: string) {
   const [depot] = await prepared(db, 'depot_of', depotQuery).execute({ depotId, organisationId: caller.organisationId });
   if (!depot) throw notFound('That depot');
   rememberDepot(depot);

@@ -61,6 +61,31 @@ export function powerFromMeterValues(meterValue: unknown): number | null {
   return null;
 }
 
+/**
+ * The battery's state of charge in % from a MeterValues sample list (measurand `SoC`, in 1.6 and
+ * 2.0.1 shapes), with whether the sample was taken as the transaction began (the reading at
+ * plug-in); null when no sample is a state of charge in the physical range.
+ */
+export function socFromMeterValues(meterValue: unknown): { pct: number; atBegin: boolean } | null {
+  for (const mv of (meterValue as { sampledValue?: Record<string, unknown>[] }[] | undefined) ?? []) {
+    for (const sv of mv.sampledValue ?? []) {
+      if (sv.measurand !== 'SoC') continue;
+      const pct = Number(sv.value);
+      if (Number.isFinite(pct) && pct >= 0 && pct <= 100) return { pct, atBegin: sv.context === 'Transaction.Begin' };
+    }
+  }
+  return null;
+}
+
+/** A state of charge a charger read from the bus at plug-in. */
+export interface ChargerSocReading {
+  depotId: string;
+  chargerId: string;
+  charger: string;
+  socPct: number;
+  at: Date;
+}
+export type SocReadingListener = (reading: ChargerSocReading) => Promise<void>;
 
 /** Subprotocols spoken; a connection must offer one so every message is schema-checked. */
 export const OCPP_PROTOCOLS = ['ocpp1.6', 'ocpp2.0.1'] as const;
@@ -135,7 +160,13 @@ export class CentralSystem {
   private readonly waiting = new Map<string, { targets: Set<string> | 'all'; done: Promise<number> }>();
   /** Chargers whose heartbeat check is queued: a further heartbeat meanwhile adds none. */
   private readonly checking = new Set<string>();
+  /** Connections whose plug-in began and whose state of charge has not been read yet. */
+  private readonly awaitingSoc = new WeakSet<RpcClient>();
+  /** Readings are taken one after another, in the order the chargers sent them. */
+  private socWork: Promise<void> = Promise.resolve();
   private readonly liveListeners = new Set<LiveChangeListener>();
+  /** Told of each state of charge read at plug-in (the yard's arrival reading and re-plan). */
+  private socListener: SocReadingListener | null = null;
 
   constructor(
     private readonly db: Db,
@@ -215,6 +246,33 @@ export class CentralSystem {
     const ok = await checkPassword(password?.toString('utf8') ?? '', c?.ocppPasswordHash ?? DUMMY_HASH);
     if (!c?.ocppPasswordHash || !password || !ok) return null;
     return { chargerId: c.id, depotId: c.depotId, label: c.label };
+  }
+
+  /** Hears each plug-in's state of charge reading (one listener; main wires it to the yard). */
+  onSocReading(listener: SocReadingListener): void {
+    this.socListener = listener;
+  }
+
+  /**
+   * A plug-in's first state of charge reading: the sample taken as the transaction began, or the
+   * first one after it started. Later samples of the same plug-in are charging progress, not news.
+   */
+  private socSample(client: RpcClient, meterValue: unknown, started: boolean): void {
+    const soc = socFromMeterValues(meterValue);
+    if (started) this.awaitingSoc.add(client);
+    if (!soc || !(soc.atBegin || this.awaitingSoc.has(client))) return;
+    this.awaitingSoc.delete(client);
+    const listener = this.socListener;
+    if (!listener) return;
+    const { chargerId, depotId, label } = client.session;
+    const reading = { depotId, chargerId, charger: label, socPct: soc.pct, at: this.clock() };
+    // The charger's message is answered at once; the reading (and any re-plan) follows on its own.
+    this.socWork = this.socWork.then(() => listener(reading)).catch((err: unknown) => this.log.warn({ err, chargerId }, 'state of charge reading not taken'));
+  }
+
+  /** Resolves once every reading heard so far has been taken (tests, shutdown). */
+  async socSettled(): Promise<void> {
+    await this.socWork;
   }
 
   /** Listens to chargers' live state changes (the live streams); call the answer to stop. */
@@ -315,14 +373,19 @@ export class CentralSystem {
     on('MeterValues', ({ params }) => {
       const w = powerFromMeterValues(params.meterValue);
       if (w !== null) live.set({ livePowerW: w });
+      this.socSample(client, params.meterValue, false);
       return {};
     });
     on('Authorize', () => (client.protocol === 'ocpp1.6' ? { idTagInfo: { status: 'Accepted' } } : { idTokenInfo: { status: 'Accepted' } }));
-    on('StartTransaction', () => ({ transactionId: Math.floor(Math.random() * 2 ** 31), idTagInfo: { status: 'Accepted' } }));
+    on('StartTransaction', () => {
+      this.awaitingSoc.add(client);
+      return { transactionId: Math.floor(Math.random() * 2 ** 31), idTagInfo: { status: 'Accepted' } };
+    });
     on('StopTransaction', () => ({}));
     on('TransactionEvent', ({ params }) => {
       const w = powerFromMeterValues(params.meterValue);
       if (w !== null) live.set({ livePowerW: w });
+      this.socSample(client, params.meterValue, params.eventType === 'Started');
       return {};
     });
     on('DataTransfer', () => {

@@ -38,7 +38,7 @@ function toSummary(row: PlanMeta, createdBy: string | null, publishedBy: string 
   };
 }
 
-async function loadPlan(db: Db, caller: AuthUser, id: string) {
+async function loadPlan(db: Db, caller: Pick<AuthUser, 'organisationId'>, id: string) {
   const [row] = await db
     .select({ plan: plans, createdBy: creator.name, publishedBy: publisher.name })
     .from(plans)
@@ -242,7 +242,7 @@ async function notifyPublished(db: Db, mailer: Mailer, caller: AuthUser, plan: P
 }
 
 /** Which buses changed charger or plug-in times between two versions. */
-export async function comparePlans(db: Db, caller: AuthUser, id: string, otherId: string): Promise<PlanComparison> {
+export async function comparePlans(db: Db, caller: Pick<AuthUser, 'organisationId'>, id: string, otherId: string): Promise<PlanComparison> {
   const [a, b] = await Promise.all([loadPlan(db, caller, otherId), loadPlan(db, caller, id)]);
   const ra = resultOf(a.plan);
   const rb = resultOf(b.plan);

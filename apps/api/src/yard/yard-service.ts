@@ -194,7 +194,7 @@ async function computeTonight(db: Db, base: Pick<Tonight, 'depot' | 'now'>, zone
   };
 }
 
-async function publishedPlanOf(db: Db, caller: AuthUser, planId: string): Promise<PlanRow> {
+async function publishedPlanOf(db: Db, caller: Pick<AuthUser, 'organisationId'>, planId: string): Promise<PlanRow> {
   const [plan] = await db.select().from(plans).where(and(eq(plans.id, planId), eq(plans.organisationId, caller.organisationId)));
   if (!plan) throw notFound('That plan');
   if (plan.state !== 'published') {
@@ -252,10 +252,17 @@ export async function acknowledgeShift(db: Db, caller: AuthUser, depotId: string
 }
 
 
-interface PublishDeps { db: Db; mailer: Mailer; publicUrl: (p: string) => string; onPlanPublished?: (id: string) => void }
+export interface PublishDeps { db: Db; mailer: Mailer; publicUrl: (p: string) => string; onPlanPublished?: (id: string) => void }
 
-/** What a report or a step that did not happen changes in the night, before the re-plan. */
-type Change = YardReport | { kind: 'step_missed'; planId: string; step: YardStep };
+/**
+ * What a report or a step that did not happen changes in the night, before the re-plan. A
+ * charger's state of charge reading comes with a reason in words (what it read and when).
+ */
+type Change = YardReport | { kind: 'step_missed'; planId: string; step: YardStep }
+  | (Extract<YardReport, { kind: 'soc_reading' }> & { reason: string });
+
+/** Who reports: a signed-in person, or a charger (no person; `name` says which, as in "charger D2"). */
+export type Reporter = Pick<AuthUser, 'organisationId' | 'name'> & { id: string | null };
 
 /**
  * Applies what the yard reports to the rest of the night: the engine re-plans from now with the
@@ -290,7 +297,7 @@ export async function missedStep(deps: PublishDeps, caller: AuthUser, depotId: s
   return replanAndPublish(deps, caller, depotId, { kind: 'step_missed', planId, step }, now);
 }
 
-async function replanAndPublish(deps: PublishDeps, caller: AuthUser, depotId: string, report: Change, now: Date): Promise<YardReportResult> {
+export async function replanAndPublish(deps: PublishDeps, caller: Reporter, depotId: string, report: Change, now: Date): Promise<YardReportResult> {
   const { db } = deps;
   const depot = await depotOf(db, caller, depotId);
   const plan = await publishedPlanOf(db, caller, report.planId);

@@ -20,6 +20,7 @@ export const SOC_SOURCE_LABELS = {
   typed: 'Typed',
   uploaded: 'Uploaded',
   estimated: 'Estimated',
+  charger: 'Read by charger',
 } as const;
 
 const number1 = new Intl.NumberFormat(undefined, { maximumFractionDigits: 1 });

@@ -3,7 +3,7 @@ import type { Run, RunInput } from '@nightyard/contracts';
 import { numberIn } from './bus-form';
 import { CLOCK_TIME as CLOCK, addDays } from '../core/depot-time';
 import { clockTimeValidator } from '../shared/clock-time-input';
-import { clockOf, dateOf } from './fleet-format';
+import { SOC_SOURCE_LABELS, clockOf, dateOf } from './fleet-format';
 
 /** What a row shows beside its inputs: where its state of charge came from, as saved. */
 export interface RunMeta {
@@ -86,7 +86,7 @@ export function socSourceText(row: RunRow): string {
     // The paragraph above the table says what an estimate is based on.
     return meta.estimatedSocPct === null || meta.id === null ? 'Estimated when saved' : `Estimated ${formatPct(meta.estimatedSocPct)}`;
   }
-  if (meta.id !== null && meta.savedSocPct === soc && meta.source) return meta.source === 'uploaded' ? 'Uploaded' : 'Typed';
+  if (meta.id !== null && meta.savedSocPct === soc && meta.source) return meta.source === 'estimated' ? 'Typed' : SOC_SOURCE_LABELS[meta.source];
   return 'Typed (not saved yet)';
 }
 

@@ -1,0 +1,1 @@
+ALTER TYPE "public"."soc_source" ADD VALUE 'charger';
