@@ -118,7 +118,7 @@ describe('state of charge read by the charger at plug-in (central system and sta
     expect(revised.notes.at(-1)).toMatch(new RegExp(`bus ${session.bus} measured at 12 %`));
     const [report] = await app.db.select().from(yardReports).where(eq(yardReports.revisionId, revised.id));
     expect(report).toMatchObject({ kind: 'soc_reading', bus: session.bus, socPct: 12, reportedBy: null });
-    expect(report!.reason).toMatch(new RegExp(`Read by charger ${session.charger} at plug-in .*the plan took 40 %`));
+    expect(report!.reason).toMatch(new RegExp(`^Charger ${session.charger} read 12 % at plug-in \\(\\d\\d:\\d\\d\\); the plan took 40 %$`));
     expect(await arrivalOf(session.bus)).toEqual({ pct: 12, source: 'charger' });
     // The re-plan starts the bus from 12 %: it gets more energy than the plan gave it from 40 %.
     const energyOf = (r: PlanResult) => r.sessions.filter((s) => s.bus === session.bus).reduce((sum, s) => sum + s.kwh, 0);

@@ -67,7 +67,7 @@ export async function takeChargerReading(
       depot.id,
       {
         kind: 'soc_reading', planId: plan.id, bus: bus.id, socPct: reading.socPct,
-        reason: `Read by charger ${reading.charger} at plug-in (${DateTime.fromJSDate(reading.at, { zone }).toFormat('HH:mm')}); the plan took ${plannedPct} %`,
+        reason: `Charger ${reading.charger} read ${reading.socPct} % at plug-in (${DateTime.fromJSDate(reading.at, { zone }).toFormat('HH:mm')}); the plan took ${plannedPct} %`,
       },
       reading.at,
     );
