@@ -1,20 +1,20 @@
 import { DateTime } from 'luxon';
 import { eq, sql } from 'drizzle-orm';
 import { parseScenario } from '@nightyard/scheduling';
-import { runInPool } from '../../apps/api/src/workers/pool';
-import { buildNightScenario } from '../../apps/api/src/plans/night-scenario';
-import type { Db } from '../../apps/api/src/db/client';
+import { runInPool } from '../workers/pool';
+import { buildNightScenario } from '../plans/night-scenario';
+import type { Db } from '../db/client';
 import {
   billingPeaks, buses, chargers, depotRatePlans, depots, organisations, plans, powerCabinets, ratePlans, runs, serviceDays, users, yardConfirmations,
-} from '../../apps/api/src/db/schema';
-import { hashPassword } from '../../apps/api/src/auth/secrets';
-import { nightOfDepot } from '../../apps/api/src/night/depot-night';
-import { yardSteps } from '../../apps/api/src/yard/yard-steps';
+} from '../db/schema';
+import { hashPassword } from '../auth/secrets';
+import { nightOfDepot } from '../night/depot-night';
+import { yardSteps } from '../yard/yard-steps';
 import type { PlanResult } from '@nightyard/contracts';
 import {
   DEMO_CHARGER_PASSWORD, DEMO_PASSWORD, demoBuses, demoChargerIdentity, demoCabinets, demoChargers, demoDepot, demoForecastLowF, demoOrganisation, demoRatePlan,
   demoRunsForBus, demoUsers,
-} from './demo-depot';
+} from '@nightyard/demo';
 
 /** True when no organisation exists yet: a new database. */
 export async function isEmpty(db: Db): Promise<boolean> {

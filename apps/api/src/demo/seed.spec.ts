@@ -3,9 +3,9 @@ import { and, eq } from 'drizzle-orm';
 import { DateTime } from 'luxon';
 import { afterAll, describe, expect, it } from 'vitest';
 import { parseScenario } from '@nightyard/scheduling';
-import { createDb, createPool } from '../../apps/api/src/db/client';
-import { buses, chargers, plans, runs, users, yardConfirmations } from '../../apps/api/src/db/schema';
-import { TEST_DATABASE_URL } from '../../apps/api/src/testing/test-env';
+import { createDb, createPool } from '../db/client';
+import { buses, chargers, plans, runs, users, yardConfirmations } from '../db/schema';
+import { TEST_DATABASE_URL } from '../testing/test-env';
 import { seedDemo } from './seed';
 
 const ZONE = 'America/Chicago';
