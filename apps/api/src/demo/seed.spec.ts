@@ -36,7 +36,7 @@ describe('demo seed', () => {
     for (const plan of published) {
       expect(plan.status).toBe('done');
       expect(parseScenario(plan.scenario).ok).toBe(true);
-      const result = plan.result as { buses: { shortfallKwh: number }[]; sessions: unknown[] };
+      const result = plan.result!;
       expect(result.buses).toHaveLength(24);
       expect(result.sessions.length).toBeGreaterThanOrEqual(24);
       expect(plan.publishedAt!.getTime()).toBeLessThanOrEqual(at('2026-12-01T15:00').getTime());

@@ -144,12 +144,12 @@ async function publishDemoNights(db: Db, organisationId: string, depotId: string
     const publishedAt = underWay ? new Date(Math.min(now.getTime(), Date.parse(n.start)) - 30 * 60_000) : now;
     const [row] = await db.insert(plans).values({
       organisationId, depotId, serviceDate: n.serviceDate, version: 1, kind: 'generated', state: 'published',
-      status: 'done', stage: 'Done', includesMidday: false, scenario: scenario as unknown as Record<string, unknown>, notes,
-      result: result as unknown as Record<string, unknown>, createdBy: caller.id, createdAt: publishedAt, publishedBy: caller.id, publishedAt,
+      status: 'done', stage: 'Done', includesMidday: false, scenario, notes,
+      result, createdBy: caller.id, createdAt: publishedAt, publishedBy: caller.id, publishedAt,
     }).returning({ id: plans.id });
     if (underWay) {
       // The crew kept up until ten minutes ago.
-      const due = yardSteps(result as unknown as PlanResult, now, new Map()).filter((s) => Date.parse(s.at) <= now.getTime() - 10 * 60_000);
+      const due = yardSteps(result, now, new Map()).filter((s) => Date.parse(s.at) <= now.getTime() - 10 * 60_000);
       if (due.length) {
         await db.insert(yardConfirmations).values(due.map((s) => ({
           organisationId, depotId, serviceDate: n.serviceDate, stepKey: s.key, planId: row!.id,

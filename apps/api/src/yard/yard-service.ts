@@ -66,7 +66,7 @@ async function documentsOf(db: Db, planId: string) {
   const known = publishedDocuments.get(planId);
   if (known) return known;
   const [row] = await db.select({ result: plans.result, scenario: plans.scenario }).from(plans).where(eq(plans.id, planId));
-  const documents = { result: planResultSchema.parse(row!.result), scenario: row!.scenario as unknown as ScenarioInput };
+  const documents = { result: planResultSchema.parse(row!.result), scenario: row!.scenario };
   publishedDocuments.set(planId, documents);
   if (publishedDocuments.size > 50) publishedDocuments.delete(publishedDocuments.keys().next().value!);
   return documents;
@@ -362,7 +362,7 @@ async function replanAndPublish(deps: PublishDeps, caller: AuthUser, depotId: st
     ...previous,
     sessions: previous.sessions.filter((s) => !absent.has(s.bus)),
     buses: previous.buses.filter((b) => !absent.has(b.id)),
-  } as unknown as Plan;
+  } as Plan; // the stored result is the engine's whole plan (see planFromCutOff)
   const cutoff = DateTime.fromJSDate(cutAt, { zone });
   const t0 = performance.now();
   let next;
@@ -399,7 +399,7 @@ async function replanAndPublish(deps: PublishDeps, caller: AuthUser, depotId: st
     const [row] = await tx.insert(plans).values({
       organisationId: caller.organisationId, depotId, serviceDate: plan.serviceDate, version: (last?.v ?? 0) + 1, kind: 'revision',
       state: 'published', status: 'done', stage: 'Done', includesMidday: plan.includesMidday, scenario: plan.scenario,
-      notes: [...plan.notes, `Revised at ${cutoff.toFormat('HH:mm')}: ${describe}.`], result: merged as unknown as Record<string, unknown>,
+      notes: [...plan.notes, `Revised at ${cutoff.toFormat('HH:mm')}: ${describe}.`], result: merged,
       replanState: state, createdBy: caller.id, publishedBy: caller.id, publishedAt: now,
     }).returning();
     if (report.kind === 'charger_out') {
