@@ -2,6 +2,7 @@ import { aliasedTable, and, eq, getTableColumns, sql } from 'drizzle-orm';
 import { DateTime } from 'luxon';
 import {
   planResultSchema, tonightSchema, type PlanResult, type Tonight, type YardReport, type YardReportResult, type YardStep,
+  horizonOf,
 } from '@nightyard/contracts';
 import { parseScenario, ReplanStateError, type Plan, type ScenarioInput } from '@nightyard/scheduling';
 import type { Db } from '../db/client';
@@ -27,7 +28,6 @@ type PlanRow = typeof plans.$inferSelect;
 const confirmer = aliasedTable(users, 'confirmer');
 const LOCAL = "yyyy-MM-dd'T'HH:mm";
 
-const horizonOf = (r: PlanResult) => ({ from: Date.parse(r.slots[0]!.start), to: Date.parse(r.slots.at(-1)!.start) + 15 * 60_000 });
 
 const creator = aliasedTable(users, 'creator');
 const publisher = aliasedTable(users, 'publisher');
@@ -212,7 +212,7 @@ export async function confirmStep(db: Db, caller: AuthUser, planId: string, key:
   const confirmations = await confirmationsOf(db, plan.depotId, plan.serviceDate);
   if (!yardSteps(result, now, confirmations).some((s) => s.key === key)) throw notFound('That step (it is not in this plan)');
   const [depot] = await db.select({ timezone: depots.timezone }).from(depots).where(eq(depots.id, plan.depotId));
-  const doneAt = at === undefined ? now : realTime(at, now, depot!.timezone, horizonOf(result).from);
+  const doneAt = at === undefined ? now : realTime(at, now, depot!.timezone, horizonOf(result)!.start);
   const existing = confirmations.get(key);
   if (existing?.outcome === 'missed') throw conflict('That step was reported as not done: the night was re-planned from it');
   await db
@@ -295,10 +295,10 @@ async function replanAndPublish(deps: PublishDeps, caller: AuthUser, depotId: st
   const scenario = parsed.scenario;
   const followed = planResultSchema.parse(plan.result);
   const zone = depot.timezone;
-  const h = horizonOf(followed);
-  if (now.getTime() >= h.to) throw conflict('This plan has ended: there is nothing left to re-plan');
+  const h = horizonOf(followed)!;
+  if (now.getTime() >= h.end) throw conflict('This plan has ended: there is nothing left to re-plan');
   // Reported before the night has started: the whole night is planned again.
-  const cutAt = new Date(Math.max(now.getTime(), h.from));
+  const cutAt = new Date(Math.max(now.getTime(), h.start));
 
   const state = { outOfService: [...(plan.replanState?.outOfService ?? [])], lateArrivals: { ...(plan.replanState?.lateArrivals ?? {}) }, absent: [...(plan.replanState?.absent ?? [])] };
   const energyKwh: Record<string, number> = {};

@@ -2,7 +2,7 @@ import { ChangeDetectionStrategy, Component, InjectionToken, computed, inject, i
 import { MatIconModule } from '@angular/material/icon';
 import { DepotStore } from '../depots/depot-store';
 import { Clock } from './clock';
-import { viewerTimeZone, zoneNote } from './depot-time';
+import { viewerTimeZone, zoneNote } from '@nightyard/contracts/depot-time';
 
 /** The viewer's own time zone (the browser's); tests give one explicitly. */
 export const VIEWER_TIME_ZONE = new InjectionToken<string>('VIEWER_TIME_ZONE', { factory: viewerTimeZone });

@@ -11,7 +11,7 @@ import { DepotStore } from '../depots/depot-store';
 import { LiveStore, reloadOnLive, type LiveDepot } from '../depots/live-store';
 import { ConfirmDialog, type ConfirmData } from '../people/confirm-dialog';
 import { SectionIntro } from '../sections/section-intro';
-import { injectCanEditSetup } from '../shared/setup-editors';
+import { injectCanEditSetup } from '../auth/role-checks';
 import { CabinetDialog, type CabinetDialogData } from './cabinet-dialog';
 import { CabinetPanel } from './cabinet-panel';
 import { ChargerDialog, type ChargerDialogData } from './charger-dialog';

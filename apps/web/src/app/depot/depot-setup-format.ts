@@ -1,4 +1,4 @@
-import { dateTimeAt } from '../core/depot-time';
+import { dateTimeAt } from '@nightyard/contracts/depot-time';
 import { formatKw } from '../depots/depot-format';
 
 export { formatKw };

@@ -15,7 +15,7 @@ import { DepotStore } from '../depots/depot-store';
 import { SectionIntro } from '../sections/section-intro';
 import { BusDialog, type BusDialogData } from './bus-dialog';
 import { FleetApi } from './fleet-api';
-import { injectCanEditFleet } from './fleet-editors';
+import { injectCanEditFleet } from '../auth/role-checks';
 import { BUS_STATUS_LABELS, fmt1, fmt2 } from './fleet-format';
 import { FleetTabs } from './fleet-tabs';
 

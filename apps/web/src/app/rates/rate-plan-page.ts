@@ -9,7 +9,7 @@ import type { RatePlan } from '@nightyard/contracts';
 import { toApiProblem } from '../core/api-error';
 import { DepotStore } from '../depots/depot-store';
 import { ConfirmDialog, type ConfirmData } from '../people/confirm-dialog';
-import { injectCanEditSetup } from '../shared/setup-editors';
+import { injectCanEditSetup } from '../auth/role-checks';
 import { RatePlanSummary } from './rate-plan-summary';
 import { RatePreviewPanel } from './rate-preview-panel';
 import { RatesApi } from './rates-api';

@@ -4,7 +4,7 @@ import { MatCardModule } from '@angular/material/card';
 import { MatIconModule } from '@angular/material/icon';
 import { MatProgressBarModule } from '@angular/material/progress-bar';
 import { RouterLink } from '@angular/router';
-import { SECTIONS, hasAnyRole, type DepotDetail, type PlanDetail, type Role } from '@nightyard/contracts';
+import { PLANNERS, PLAN_READERS, hasAnyRole, type DepotDetail, type PlanDetail } from '@nightyard/contracts';
 import { AuthStore } from '../auth/auth-store';
 import { toApiProblem } from '../core/api-error';
 import { Clock } from '../core/clock';
@@ -23,8 +23,6 @@ import { NIGHTS_BACK, candidateNights, liveCounts, liveStateOf, LIVE_STATES, pea
 type LoadState = 'idle' | 'loading' | 'loaded' | 'failed';
 
 /** Who may generate and publish plans (the API's planners). */
-const PLANNERS: readonly Role[] = ['supervisor', 'admin'];
-const PLAN_READERS = SECTIONS.find((s) => s.key === 'plans')?.roles ?? [];
 
 /**
  * The night ahead at a glance: the depot's summary, tonight's published plan (buses, plug-ins,

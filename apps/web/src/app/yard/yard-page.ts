@@ -15,7 +15,7 @@ import { MatDialog } from '@angular/material/dialog';
 import { MatIconModule } from '@angular/material/icon';
 import { MatMenuModule } from '@angular/material/menu';
 import { MatProgressBarModule } from '@angular/material/progress-bar';
-import { isIsoDate } from '../core/depot-time';
+import { isIsoDate } from '@nightyard/contracts/depot-time';
 import { injectIsPhone } from '../core/layout';
 import { ThemeStore } from '../core/theme-store';
 import { ChargerFaults, faultsOf } from '../depots/charger-faults';

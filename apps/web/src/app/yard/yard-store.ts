@@ -5,8 +5,8 @@ import { Clock } from '../core/clock';
 import { LiveStore, reloadOnLive, type LiveDepot } from '../depots/live-store';
 import { ConfirmationOutbox } from './confirmation-outbox';
 import { YardApi } from './yard-api';
+import { horizonOf } from '@nightyard/contracts/plan-horizon';
 import {
-  horizonOf,
   liveView,
   naturalCompare,
   nextHour,
