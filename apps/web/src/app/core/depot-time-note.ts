@@ -1,6 +1,6 @@
 import { ChangeDetectionStrategy, Component, InjectionToken, computed, inject, input } from '@angular/core';
 import { MatIconModule } from '@angular/material/icon';
-import { DepotStore } from '../depots/depot-store';
+import { DepotListStore } from '../depot-state/depot-list-store';
 import { Clock } from './clock';
 import { viewerTimeZone, zoneNote } from '@nightyard/contracts/depot-time';
 
@@ -38,7 +38,7 @@ export const VIEWER_TIME_ZONE = new InjectionToken<string>('VIEWER_TIME_ZONE', {
   `,
 })
 export class DepotTimeNote {
-  private readonly depots = inject(DepotStore);
+  private readonly depots = inject(DepotListStore);
   private readonly clock = inject(Clock);
   private readonly viewerZone = inject(VIEWER_TIME_ZONE);
 

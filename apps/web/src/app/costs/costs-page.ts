@@ -11,7 +11,7 @@ import { AuthStore } from '../auth/auth-store';
 import { toApiProblem } from '../core/api-error';
 import { Clock } from '../core/clock';
 import { ISO_DATE } from '@nightyard/contracts/depot-time';
-import { DepotStore } from '../depots/depot-store';
+import { DepotListStore } from '../depot-state/depot-list-store';
 import { SectionIntro } from '../sections/section-intro';
 import { BillTable } from './bill-table';
 import { CostsApi } from './costs-api';
@@ -64,7 +64,7 @@ export class CostsPage {
   private readonly auth = inject(AuthStore);
   private readonly router = inject(Router);
   private readonly route = inject(ActivatedRoute);
-  protected readonly depots = inject(DepotStore);
+  protected readonly depots = inject(DepotListStore);
   private readonly clock = inject(Clock);
 
   /** `?date=YYYY-MM-DD`: a day of the billing period to show (default: today at the depot). */

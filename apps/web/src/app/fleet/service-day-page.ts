@@ -23,10 +23,10 @@ import { ActivatedRoute, Router } from '@angular/router';
 import { coldWeatherFactor, type Bus, type ColdWeatherTable, type ServiceDay } from '@nightyard/contracts';
 import { firstValueFrom, startWith } from 'rxjs';
 import { toApiProblem } from '../core/api-error';
-import { formatServiceDay } from '../depots/depot-format';
+import { formatServiceDay } from '../depot-state/depot-format';
 import { addDays, isIsoDate } from '@nightyard/contracts/depot-time';
-import { DepotStore } from '../depots/depot-store';
-import { NightStore } from '../depots/night-store';
+import { DepotListStore } from '../depot-state/depot-list-store';
+import { NightStore } from '../depot-state/night-store';
 import { ConfirmDialog, type ConfirmData } from '../people/confirm-dialog';
 import { ClockTimeInput } from '../shared/clock-time-input';
 import { SectionIntro } from '../sections/section-intro';
@@ -83,7 +83,7 @@ export function previousWeekday(date: string): string {
 })
 export class ServiceDayPage {
   private readonly api = inject(FleetApi);
-  private readonly depots = inject(DepotStore);
+  private readonly depots = inject(DepotListStore);
   private readonly nights = inject(NightStore);
   private readonly router = inject(Router);
   private readonly route = inject(ActivatedRoute);

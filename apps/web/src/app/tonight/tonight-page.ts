@@ -8,13 +8,13 @@ import { PLANNERS, PLAN_READERS, hasAnyRole, type DepotDetail, type PlanDetail }
 import { AuthStore } from '../auth/auth-store';
 import { toApiProblem } from '../core/api-error';
 import { Clock } from '../core/clock';
-import { ChargerFaults, faultsOf } from '../depots/charger-faults';
-import { outAt } from '../depots/charger-out';
-import { CurrentDepot } from '../depots/current-depot';
-import { formatServiceDay } from '../depots/depot-format';
-import { DepotStore } from '../depots/depot-store';
-import { LiveStore, reloadOnLive, type LiveDepot } from '../depots/live-store';
-import { NightStore, type NightDepot } from '../depots/night-store';
+import { ChargerFaults, faultsOf } from '../depot-state/charger-faults';
+import { outAt } from '../depot-state/charger-out';
+import { CurrentDepot } from '../depot-state/current-depot';
+import { formatServiceDay } from '../depot-state/depot-format';
+import { DepotListStore } from '../depot-state/depot-list-store';
+import { LiveStore, reloadOnLive, type LiveDepot } from '../depot-state/live-store';
+import { NightStore, type NightDepot } from '../depot-state/night-store';
 import { money, naturalCompare, nightComparison, num, when } from '../plans/plan-format';
 import { PlansApi } from '../plans/plans-api';
 import { SectionIntro } from '../sections/section-intro';
@@ -37,7 +37,7 @@ type LoadState = 'idle' | 'loading' | 'loaded' | 'failed';
   host: { class: 'ny-page' },
 })
 export class TonightPage {
-  private readonly depots = inject(DepotStore);
+  private readonly depots = inject(DepotListStore);
   private readonly api = inject(PlansApi);
   private readonly auth = inject(AuthStore);
   private readonly nights = inject(NightStore);
