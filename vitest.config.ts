@@ -5,6 +5,7 @@ import { defineConfig } from 'vitest/config';
 const alias = {
   '@nightyard/contracts': fileURLToPath(new URL('./libs/contracts/src/index.ts', import.meta.url)),
   '@nightyard/scheduling': fileURLToPath(new URL('./libs/scheduling/src/index.ts', import.meta.url)),
+  '@nightyard/demo': fileURLToPath(new URL('./libs/demo/src/index.ts', import.meta.url)),
 };
 
 export default defineConfig({

@@ -3,7 +3,7 @@
 // demo shows live chargers. `npm start` runs it for the demo depot.
 //   NIGHTYARD_OCPP_URL (default ws://127.0.0.1:3000/ocpp)
 import { RPCClient } from 'ocpp-rpc';
-import { DEMO_CHARGER_PASSWORD, demoChargerIdentity, demoChargers } from './demo/demo-depot';
+import { DEMO_CHARGER_PASSWORD, demoChargerIdentity, demoChargers } from '@nightyard/demo';
 import { ProfileStore, profileOf, type Protocol } from './station-profiles';
 
 export interface StationOptions {

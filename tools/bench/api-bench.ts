@@ -15,8 +15,8 @@ import { createDb, createPool } from '../../apps/api/src/db/client';
 import { applyMigrations } from '../../apps/api/src/db/migrate';
 import { clockFromEnv } from '../../apps/api/src/time/clock';
 import { stopWorkPool } from '../../apps/api/src/workers/pool';
-import { DEMO_PASSWORD } from '../demo/demo-depot';
-import { seedDemo } from '../demo/seed';
+import { DEMO_PASSWORD } from '@nightyard/demo';
+import { seedDemo } from '../../apps/api/src/demo/seed';
 
 const PGPORT = Number(process.env.TEST_PGPORT ?? 5434);
 const PORT = Number(process.env.BENCH_PORT ?? 3190);

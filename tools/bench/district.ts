@@ -42,11 +42,11 @@ async function freshDatabase(): Promise<void> {
 /** The district: one depot per night to plan, sizes spread evenly from MIN to MAX buses. */
 async function district(db: Db) {
   const [org] = await db.insert(organisations).values({ name: 'Bench district (invented)' }).returning();
-  const nights: { depotId: string; buses: number; scenario: Record<string, unknown> }[] = [];
+  const nights: { depotId: string; buses: number; scenario: ReturnType<typeof generateDepot> }[] = [];
   for (let i = 0; i < DEPOTS; i++) {
     const buses = Math.round(MIN_BUSES + ((MAX_BUSES - MIN_BUSES) * i) / Math.max(1, DEPOTS - 1));
     const { depot } = await createDepot(db, org!.id, `Bench depot ${i + 1}`);
-    nights.push({ depotId: depot.id, buses, scenario: generateDepot({ buses, seed: 100 + i }) as unknown as Record<string, unknown> });
+    nights.push({ depotId: depot.id, buses, scenario: generateDepot({ buses, seed: 100 + i }) });
   }
   return { organisationId: org!.id, nights };
 }

@@ -17,8 +17,8 @@ import { CentralSystem } from './ocpp/central-system';
 import { LiveBus } from './live/live-bus';
 import { feedChargerStates } from './live/live-feeds';
 import { adjustableClock, clockFromEnv } from './time/clock';
-import { isEmpty, seedDemo } from '../../../tools/demo/seed';
-import { DEMO_PASSWORD, demoUsers } from '../../../tools/demo/demo-depot';
+import { isEmpty, seedDemo } from './demo/seed';
+import { DEMO_PASSWORD, demoUsers } from '@nightyard/demo';
 
 const config = loadConfig();
 // The browser tests move the clock from spec to spec; nothing else can (see dev/test-control-routes).

@@ -127,7 +127,7 @@ describe('a worker process killed in the middle of a plan job', () => {
   let version = 0;
   const insertPlan = async (values: Partial<typeof plans.$inferInsert> = {}) => {
     // A large invented depot, so the engine run lasts long enough to be cut short.
-    const scenario = generateDepot({ buses: 150, seed: 7 }) as unknown as Record<string, unknown>;
+    const scenario = generateDepot({ buses: 150, seed: 7 });
     const [row] = await app.db.insert(plans).values({ organisationId, depotId, serviceDate: '2026-12-16', version: ++version, scenario, ...values }).returning();
     return row!;
   };
@@ -160,7 +160,7 @@ describe('a worker process killed in the middle of a plan job', () => {
     await expect.poll(async () => (await planRow(plan.id)).status, { timeout: 45_000, interval: 200 }).toBe('done');
     const done = await planRow(plan.id);
     expect(done.attempts).toBe(2);
-    expect((done.result as { sessions: unknown[] }).sessions.length).toBeGreaterThan(0);
+    expect(done.result!.sessions.length).toBeGreaterThan(0);
     // Stopped here so its recovery sweep cannot touch the next test's plans.
     const stopped = new Promise((r) => second.once('exit', r));
     second.kill('SIGTERM');

@@ -65,8 +65,17 @@ export const planResultSchema = z.looseObject({
   crewMoves: z.number().optional(),
   /** Crew moves saved against the cheapest plan found, and their cost (within the depot's tolerance). */
   crewTrade: z.object({ fewerMoves: z.number(), extraCost: z.number() }).nullable().optional(),
-  /** A re-plan: the buses it moved from the cut-off on, and why, in words. */
-  replan: z.looseObject({ moved: z.object({ buses: z.array(z.string()), reasons: z.array(z.string()) }).optional() }).optional(),
+  /**
+   * A re-plan or a plan made while its night was under way: where it starts (local cut-off), the
+   * chargers out of service, the buses kept where they were, and the buses it moved from the
+   * cut-off on and why, in words.
+   */
+  replan: z.looseObject({
+    from: z.string().optional(),
+    outOfService: z.array(z.string()).optional(),
+    plugged: z.record(z.string(), z.string()).optional(),
+    moved: z.object({ buses: z.array(z.string()), reasons: z.array(z.string()) }).optional(),
+  }).optional(),
   buses: z.array(z.object({
     id: z.string(),
     departures: z.array(z.object({ at: z.string(), kwh: z.number() })),
@@ -74,7 +83,15 @@ export const planResultSchema = z.looseObject({
     reason: z.string().nullable(),
   })),
 });
-export type PlanResult = z.infer<typeof planResultSchema>;
+/**
+ * A stored plan as the API and the web read it: the schema's fields without the loose objects'
+ * index signatures, so the engine's `Plan` is assignable to it and a field the engine renames or
+ * drops is a compile error where a plan is stored (the schema still checks it at run time).
+ */
+export type PlanResult = KnownFields<z.infer<typeof planResultSchema>>;
+type KnownFields<T> = T extends readonly (infer U)[]
+  ? KnownFields<U>[]
+  : T extends object ? { [K in keyof T as string extends K ? never : K]: KnownFields<T[K]> } : T;
 
 export const planSummarySchema = z.object({
   id: z.uuid(),

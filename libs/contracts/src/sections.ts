@@ -1,4 +1,4 @@
-import type { Role } from './roles';
+import { ADMINS, COST_READERS, EVERY_ROLE, PLAN_READERS, YARD_CREW, type Role } from './roles';
 
 /** The product's sections, who may open each, and which role lands where after sign-in. */
 export type SectionKey = 'tonight' | 'yard' | 'plans' | 'fleet' | 'depot' | 'rates' | 'costs' | 'people';
@@ -14,28 +14,28 @@ export interface Section {
 
 export const SECTIONS: readonly Section[] = [
   { key: 'tonight', label: 'Tonight', path: '/tonight', icon: 'nights_stay',
-    roles: ['admin', 'facilities', 'supervisor', 'yard', 'finance'],
+    roles: EVERY_ROLE,
     purpose: 'The night ahead at a glance: buses due in, chargers, pull-outs in the morning.' },
   { key: 'yard', label: 'Yard', path: '/yard', icon: 'ev_station',
-    roles: ['yard', 'supervisor', 'admin'],
+    roles: YARD_CREW,
     purpose: 'Tonight\'s published plan charger by charger: connect, disconnect, report what differs.' },
   { key: 'plans', label: 'Plans', path: '/plans', icon: 'event_note',
-    roles: ['supervisor', 'admin', 'facilities', 'finance'],
+    roles: PLAN_READERS,
     purpose: 'Generate, review, compare and publish the plug-in plan for the night.' },
   { key: 'fleet', label: 'Fleet', path: '/fleet', icon: 'directions_bus',
-    roles: ['supervisor', 'admin', 'facilities', 'finance'],
+    roles: PLAN_READERS,
     purpose: 'Buses, their batteries and each service day\'s runs.' },
   { key: 'depot', label: 'Depot', path: '/depot', icon: 'electrical_services',
-    roles: ['facilities', 'admin', 'supervisor', 'yard', 'finance'],
+    roles: EVERY_ROLE,
     purpose: 'Chargers, power cabinets, the service limit and the depot\'s other load.' },
   { key: 'rates', label: 'Rates', path: '/rates', icon: 'price_change',
-    roles: ['facilities', 'admin', 'supervisor', 'yard', 'finance'],
+    roles: EVERY_ROLE,
     purpose: 'The utility rate plan: time-of-use prices, demand charges, fixed charges.' },
   { key: 'costs', label: 'Costs', path: '/costs', icon: 'payments',
-    roles: ['finance', 'admin', 'supervisor', 'facilities'],
+    roles: COST_READERS,
     purpose: 'Projected and actual electricity cost per night and month, against charging on arrival or on a timer.' },
   { key: 'people', label: 'People', path: '/people', icon: 'group',
-    roles: ['admin'],
+    roles: ADMINS,
     purpose: 'Who may sign in, with which roles; invitations and deactivation.' },
 ];
 

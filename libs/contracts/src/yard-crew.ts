@@ -28,6 +28,8 @@ export const yardCrewSchema = z.strictObject({
   costToleranceAmount: z.number({ error: 'Enter the tolerance as an amount' }).min(0, 'Cannot be negative').max(1000, 'At most 1,000 a night').default(5),
 });
 export type YardCrew = z.infer<typeof yardCrewSchema>;
+/** A yard crew as stored: rows written before the cost tolerance existed lack it (the schema's defaults fill it in). */
+export type StoredYardCrew = z.input<typeof yardCrewSchema>;
 
 /** What a depot that has not set its crew plans with: no minimum, drivers plug in, moves any time. */
 export const DEFAULT_YARD_CREW: YardCrew = { minPlugInMinutes: 0, driversPlugIn: true, shifts: [], costTolerancePercent: 0.5, costToleranceAmount: 5 };

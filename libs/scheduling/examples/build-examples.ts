@@ -1,7 +1,7 @@
 // Writes the example scenarios beside the engine. Run: npx tsx libs/scheduling/examples/build-examples.ts
-// The demo depot is derived from the invented demo data in tools/demo (read only here).
+// The demo depot is derived from the invented demo data in libs/demo (read only here).
 import { writeFileSync } from 'node:fs';
-import { demoBuses, demoCabinets, demoChargers, demoDepot, demoRatePlan, demoRunsForBus } from '../../../tools/demo/demo-depot.js';
+import { demoBuses, demoCabinets, demoChargers, demoDepot, demoRatePlan, demoRunsForBus } from '@nightyard/demo';
 
 const dir = new URL('.', import.meta.url);
 const write = (name: string, data: unknown) => writeFileSync(new URL(name, dir), `${JSON.stringify(data, null, 2)}\n`);

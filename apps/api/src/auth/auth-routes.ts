@@ -1,8 +1,8 @@
 import type { Request, Response } from 'express';
 import { z } from 'zod';
 import {
-  ROLES, actionTokenInfoSchema, forgotPasswordRequestSchema, loginRequestSchema, meResponseSchema,
-  setPasswordRequestSchema, text, tokenResponseSchema,
+  actionTokenInfoSchema, forgotPasswordRequestSchema, loginRequestSchema, meResponseSchema,
+  setPasswordRequestSchema, text, tokenResponseSchema, EVERY_ROLE,
 } from '@nightyard/contracts';
 import type { AppDeps } from '../app-deps';
 import type { ApiRoutes } from '../http/route';
@@ -60,7 +60,7 @@ export function authRoutes(api: ApiRoutes, { db, auth: settings, mailer, log, cl
   );
 
   api.add(
-    { method: 'get', path: '/auth/me', summary: 'The signed-in user', tag: 'auth', access: ROLES, response: meResponseSchema },
+    { method: 'get', path: '/auth/me', summary: 'The signed-in user', tag: 'auth', access: EVERY_ROLE, response: meResponseSchema },
     async ({ user }) => ({ user: await auth.me(db, user.id) }),
   );
 

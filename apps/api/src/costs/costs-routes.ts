@@ -1,6 +1,6 @@
 import { z } from 'zod';
 import {
-  depotIdParamsSchema, isoDate, meterImportRequestSchema, meterImportResultSchema, monthCostsSchema, planCostsSchema, planIdParamsSchema,
+  depotIdParamsSchema, isoDate, meterImportRequestSchema, meterImportResultSchema, monthCostsSchema, planCostsSchema, planIdParamsSchema, COST_EDITORS, COST_READERS,
 } from '@nightyard/contracts';
 import type { AppDeps } from '../app-deps';
 import type { ApiRoutes } from '../http/route';
@@ -8,8 +8,6 @@ import { DIESEL_BUS_MPG, monthCosts, planCosts } from './costs-service';
 import { importMeterData } from './meter-import';
 
 /** Finance and admins own the costs; supervisors and facilities read them. */
-const COST_READERS = ['finance', 'admin', 'supervisor', 'facilities'] as const;
-const COST_EDITORS = ['finance', 'admin'] as const;
 
 export function costsRoutes(api: ApiRoutes, { db, clock }: AppDeps) {
   api.add(

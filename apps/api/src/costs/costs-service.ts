@@ -55,7 +55,7 @@ export async function planCosts(db: Db, caller: AuthUser, planId: string): Promi
   if (!plan) throw notFound('That plan');
   if (!plan.result) throw notFound('The plan\'s result (it is not finished)');
   const result = planResultSchema.parse(plan.result);
-  const scenario = plan.scenario as { tariff: { currency?: string } };
+  const scenario = plan.scenario;
   const fleet = await db.select().from(buses).where(eq(buses.depotId, plan.depotId));
   const miles = await nextDayMiles(db, plan.depotId, plan.serviceDate, new Map(fleet.map((b) => [b.number, b.kwhPerMile])));
   const priceAt = new Map(result.slots.map((s) => [Date.parse(s.start), s.price]));

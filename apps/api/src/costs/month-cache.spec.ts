@@ -103,7 +103,7 @@ describe('the costs month cache', () => {
   it('changes when the rate plan\'s prices are edited', async () => {
     const before = await month();
     const [plan] = await app.db.select().from(ratePlans).where(eq(ratePlans.id, ratePlanId));
-    const definition = plan!.definition as { seasons: { offPeakPrice: number }[] };
+    const definition = plan!.definition;
     const dearer = { ...definition, seasons: definition.seasons.map((season) => ({ ...season, offPeakPrice: season.offPeakPrice * 2 })) };
     await app.db.update(ratePlans).set({ definition: dearer }).where(eq(ratePlans.id, ratePlanId));
     const after = await month();

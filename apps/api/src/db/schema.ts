@@ -3,7 +3,10 @@ import {
   boolean, date, doublePrecision, index, integer, jsonb, pgEnum, pgTable, primaryKey, text, timestamp,
   uniqueIndex, uuid,
 } from 'drizzle-orm/pg-core';
-import type { Role } from '@nightyard/contracts';
+import type {
+  ColdWeatherTable, MeterImportResult, PeaksSoFar, PlanResult, RatePlanDefinition, Role, StoredYardCrew,
+} from '@nightyard/contracts';
+import type { ScenarioInput } from '@nightyard/scheduling';
 
 const id = () => uuid('id').primaryKey().default(sql`gen_random_uuid()`);
 const createdAt = () => timestamp('created_at', { withTimezone: true }).notNull().defaultNow();
@@ -102,13 +105,10 @@ export const depots = pgTable(
     /** 24 values, kW by local hour; a flat load repeats one value. */
     otherLoadKw: jsonb('other_load_kw').$type<number[]>().notNull(),
     billingStartDay: integer('billing_start_day').notNull().default(1),
-    coldWeatherFactors: jsonb('cold_weather_factors').$type<{ belowF: number; factor: number }[]>().notNull()
+    coldWeatherFactors: jsonb('cold_weather_factors').$type<ColdWeatherTable>().notNull()
       .default([{ belowF: 50, factor: 1.1 }, { belowF: 32, factor: 1.25 }, { belowF: 14, factor: 1.4 }]),
-    /** The yard crew plans keep to (contracts' YardCrew); null: not set. */
-    yardCrew: jsonb('yard_crew').$type<{
-      minPlugInMinutes: number; driversPlugIn: boolean; shifts: { from: string; to: string; movesPerSlot: number }[];
-      costTolerancePercent?: number; costToleranceAmount?: number;
-    }>(),
+    /** The yard crew plans keep to (rows written before the cost tolerance lack it); null: not set. */
+    yardCrew: jsonb('yard_crew').$type<StoredYardCrew>(),
     createdAt: createdAt(),
   },
   (t) => [index('depots_org_idx').on(t.organisationId)],
@@ -187,7 +187,7 @@ export const ratePlans = pgTable('rate_plans', {
   organisationId: orgRef(),
   name: text('name').notNull(),
   currency: text('currency').notNull(),
-  definition: jsonb('definition').$type<Record<string, unknown>>().notNull(),
+  definition: jsonb('definition').$type<RatePlanDefinition>().notNull(),
   createdAt: createdAt(),
 });
 
@@ -260,7 +260,7 @@ export const billingPeaks = pgTable('billing_peaks', {
   organisationId: orgRef(),
   billingPeriodStart: date('billing_period_start').notNull(),
   facilityKw: doublePrecision('facility_kw').notNull(),
-  periodsKw: jsonb('periods_kw').$type<Record<string, number>>().notNull(),
+  periodsKw: jsonb('periods_kw').$type<PeaksSoFar['periods']>().notNull(),
   updatedAt: timestamp('updated_at', { withTimezone: true }).notNull().defaultNow(),
 });
 
@@ -289,9 +289,9 @@ export const plans = pgTable(
     /** Engine runs started for this plan; a run cut short (process killed) is retried once. */
     attempts: integer('attempts').notNull().default(0),
     includesMidday: boolean('includes_midday').notNull().default(true),
-    scenario: jsonb('scenario').$type<Record<string, unknown>>().notNull(),
+    scenario: jsonb('scenario').$type<ScenarioInput>().notNull(),
     notes: jsonb('notes').$type<string[]>().notNull().default([]),
-    result: jsonb('result').$type<Record<string, unknown>>(),
+    result: jsonb('result').$type<PlanResult>(),
     /**
      * For a revision: what the yard reported so far tonight, applied to the night's scenario. For a
      * plan made while its night was under way: where it starts and what it keeps (see PlanFrom).
@@ -335,7 +335,7 @@ export const meterImports = pgTable('meter_imports', {
   billingPeriodStart: date('billing_period_start').notNull(),
   intervals: integer('intervals').notNull(),
   duplicates: integer('duplicates').notNull(),
-  gaps: jsonb('gaps').$type<{ from: string; to: string }[]>().notNull(),
+  gaps: jsonb('gaps').$type<MeterImportResult['gaps']>().notNull(),
   importedBy: uuid('imported_by').references(() => users.id, { onDelete: 'set null' }),
   createdAt: createdAt(),
 });
@@ -410,7 +410,7 @@ export const idempotencyKeys = pgTable(
     /** SHA-256 of the method, the path with its parameters and the canonical JSON body. */
     requestHash: text('request_hash').notNull(),
     status: integer('status'),
-    response: jsonb('response'),
+    response: jsonb('response').$type<unknown>(),
     createdAt: timestamp('created_at', { withTimezone: true }).notNull(),
   },
   (t) => [uniqueIndex('idempotency_keys_user_key').on(t.userId, t.key), index('idempotency_keys_created_idx').on(t.createdAt)],

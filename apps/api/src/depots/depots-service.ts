@@ -1,6 +1,6 @@
 import { and, asc, desc, eq, gte, lte, sql } from 'drizzle-orm';
 import { DateTime } from 'luxon';
-import type { DepotSummary } from '@nightyard/contracts';
+import { depotDate, type DepotSummary } from '@nightyard/contracts';
 import type { Db } from '../db/client';
 import { buses, chargers, depotRatePlans, depots, ratePlans, runs } from '../db/schema';
 import type { AuthUser } from '../auth/auth-user';
@@ -13,7 +13,7 @@ export async function listDepotSummaries(db: Db, caller: AuthUser, now: Date): P
 }
 
 async function summarise(db: Db, d: typeof depots.$inferSelect, now: Date): Promise<DepotSummary> {
-  const today = DateTime.fromJSDate(now, { zone: d.timezone }).toISODate()!;
+  const today = depotDate(now, d.timezone);
   const [counts] = await db
     .select({
       chargers: sql<number>`(select count(*)::int from ${chargers} where ${chargers.depotId} = ${d.id})`,
@@ -48,7 +48,7 @@ async function summarise(db: Db, d: typeof depots.$inferSelect, now: Date): Prom
       select max(first_out) as last from (
         select min(${runs.pullOut}) as first_out from ${runs}
         where ${runs.depotId} = ${d.id} and ${runs.serviceDate} = ${next.date} group by ${runs.busId}) f`).then((r) => r.rows);
-    const [todayIn] = await db
+    const [pullIns] = await db
       .select({ last: sql<Date | null>`max(${runs.pullIn})`.mapWith((v) => (v ? new Date(v) : null)) })
       .from(runs)
       .where(and(eq(runs.depotId, d.id), eq(runs.serviceDate, tonight.serviceDate)));
@@ -57,7 +57,7 @@ async function summarise(db: Db, d: typeof depots.$inferSelect, now: Date): Prom
       firstPullOut: local(day?.first ?? null),
       lastPullOut: local(lastFirst?.last ? new Date(lastFirst.last) : null),
       busesOut: day?.buses ?? 0,
-      lastPullInToday: local(todayIn?.last ?? null),
+      lastPullInToday: local(pullIns?.last ?? null),
     };
   }
   return {

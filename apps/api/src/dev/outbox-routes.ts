@@ -1,5 +1,5 @@
 import { eq } from 'drizzle-orm';
-import { outboxSchema } from '@nightyard/contracts';
+import { outboxSchema, ADMINS } from '@nightyard/contracts';
 import type { AppDeps } from '../app-deps';
 import { users } from '../db/schema';
 import { DomainError, notFound } from '../http/errors';
@@ -13,7 +13,7 @@ import type { ApiRoutes } from '../http/route';
 export function outboxRoutes(api: ApiRoutes, { config, db }: AppDeps) {
   api.add(
     { method: 'get', path: '/dev/outbox', summary: 'Messages caught by the local fake mail server (development only)',
-      tag: 'development', access: ['admin'], response: outboxSchema },
+      tag: 'development', access: ADMINS, response: outboxSchema },
     async ({ user }) => {
       if (config.NODE_ENV === 'production' || !config.FAKE_MAIL_URL) throw notFound('The outbox (there is no local mail server here)');
       const res = await fetch(new URL('/messages', config.FAKE_MAIL_URL)).catch(() => null);

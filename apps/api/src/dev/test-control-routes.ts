@@ -3,7 +3,7 @@ import { z } from 'zod';
 import type { Db } from '../db/client';
 import type { Clock } from '../time/clock';
 import { DomainError } from '../http/errors';
-import { seedDemo } from '../../../../tools/demo/seed';
+import { seedDemo } from '../demo/seed';
 
 /** What the browser tests may do to a test API (never mounted outside NODE_ENV=test). */
 export interface TestControl {

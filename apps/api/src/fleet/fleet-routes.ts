@@ -1,7 +1,7 @@
 import { z } from 'zod';
 import {
   busInputSchema, busSchema, copyServiceDaySchema, csvUploadSchema, depotIdParamsSchema, depotItemParamsSchema,
-  serviceDayInputSchema, serviceDayParamsSchema, serviceDaySchema, coldWeatherTableSchema, forecastLowFSchema, ROLES,
+  serviceDayInputSchema, serviceDayParamsSchema, serviceDaySchema, coldWeatherTableSchema, forecastLowFSchema, EVERY_ROLE, FLEET_EDITORS, PLAN_READERS,
 } from '@nightyard/contracts';
 import { eq } from 'drizzle-orm';
 import type { AppDeps } from '../app-deps';
@@ -15,12 +15,10 @@ import { csvField, runsCsvTemplate } from './runs-csv';
 import { copyServiceDay, getServiceDay, replaceServiceDay } from './service-day-service';
 
 /** Supervisors keep the fleet and the runs; admins may too. Facilities and finance read. */
-const FLEET_EDITORS = ['supervisor', 'admin'] as const;
-const FLEET_READERS = ['supervisor', 'admin', 'facilities', 'finance'] as const;
 
 export function fleetRoutes(api: ApiRoutes, { db }: AppDeps) {
   api.add(
-    { method: 'get', path: '/depots/:depotId/buses', summary: 'The depot\'s buses', tag: 'fleet', access: ROLES,
+    { method: 'get', path: '/depots/:depotId/buses', summary: 'The depot\'s buses', tag: 'fleet', access: EVERY_ROLE,
       params: depotIdParamsSchema, response: z.object({ buses: z.array(busSchema) }) },
     async ({ user, params }) => ({ buses: await listBuses(db, user, params.depotId) }),
   );
@@ -36,7 +34,7 @@ export function fleetRoutes(api: ApiRoutes, { db }: AppDeps) {
   );
   api.add(
     { method: 'get', path: '/depots/:depotId/cold-weather', summary: 'The cold-weather factors on energy per mile', tag: 'fleet',
-      access: FLEET_READERS, params: depotIdParamsSchema, response: z.object({ bands: coldWeatherTableSchema }) },
+      access: PLAN_READERS, params: depotIdParamsSchema, response: z.object({ bands: coldWeatherTableSchema }) },
     async ({ user, params }) => ({ bands: (await depotOf(db, user, params.depotId)).coldWeatherFactors }),
   );
   api.add(
@@ -51,7 +49,7 @@ export function fleetRoutes(api: ApiRoutes, { db }: AppDeps) {
   );
   api.add(
     { method: 'get', path: '/depots/:depotId/service-days/:date', summary: 'A service day\'s runs and arrival states of charge',
-      tag: 'fleet', access: FLEET_READERS, params: serviceDayParamsSchema, response: serviceDaySchema },
+      tag: 'fleet', access: PLAN_READERS, params: serviceDayParamsSchema, response: serviceDaySchema },
     async ({ user, params }) => getServiceDay(db, user, params.depotId, params.date),
   );
   api.add(
@@ -81,7 +79,7 @@ export function fleetRoutes(api: ApiRoutes, { db }: AppDeps) {
   );
   api.add(
     { method: 'get', path: '/depots/:depotId/service-days/:date/csv-template', summary: 'A CSV template for a day\'s runs',
-      tag: 'fleet', access: FLEET_READERS, params: serviceDayParamsSchema },
+      tag: 'fleet', access: PLAN_READERS, params: serviceDayParamsSchema },
     async ({ user, params, res }) => {
       await depotOf(db, user, params.depotId);
       res.setHeader('Content-Type', 'text/csv; charset=utf-8');

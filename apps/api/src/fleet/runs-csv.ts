@@ -1,7 +1,6 @@
 import { parse } from 'csv-parse/sync';
-import { MAX_RUNS_PER_DAY, runInputSchema, type RunInput } from '@nightyard/contracts';
+import { MAX_RUNS_PER_DAY, fieldPath, runInputSchema, type RunInput } from '@nightyard/contracts';
 import { DomainError } from '../http/errors';
-import { issuePath } from '../http/validate';
 
 /** Columns of a service day's runs file; the template lists them with two example rows. */
 export const RUN_COLUMNS = ['bus', 'pull_out', 'pull_in', 'miles', 'kwh', 'arrival_soc_pct'] as const;
@@ -120,7 +119,7 @@ export function parseRunsCsv(text: string, date: string): { runs: RunInput[]; li
     const before = Object.keys(fields).some((f) => f.startsWith(`line ${line}.`));
     if (!parsed.success) {
       for (const issue of parsed.error.issues) {
-        const field = csvField(issuePath(issue.path));
+        const field = csvField(fieldPath(issue.path));
         // A time already named in the file's own format keeps that message.
         if ((field === 'pull_out' && !pullOut) || (field === 'pull_in' && !pullIn)) continue;
         fields[at(field)] ??= issue.message;

@@ -1,15 +1,7 @@
 import type { ZodType, z } from 'zod';
+import { fieldPath } from '@nightyard/contracts';
 import { DomainError } from './errors';
 
-/** `buses[3].stays[0].depart` style path for one zod issue. */
-export function issuePath(path: readonly PropertyKey[]): string {
-  let out = '';
-  for (const p of path) {
-    if (typeof p === 'number') out += `[${p}]`;
-    else out += out ? `.${String(p)}` : String(p);
-  }
-  return out;
-}
 
 /** Parses `value` or throws a validation error naming each field (for `where`: body, query...). */
 export function parseOrThrow<S extends ZodType>(schema: S, value: unknown, where: string): z.output<S> {
@@ -19,12 +11,12 @@ export function parseOrThrow<S extends ZodType>(schema: S, value: unknown, where
   for (const issue of result.error.issues) {
     if (issue.code === 'unrecognized_keys') {
       for (const key of issue.keys) {
-        const path = issuePath([...issue.path, key]);
+        const path = fieldPath([...issue.path, key]);
         fields[path || where] = `Unknown field "${key}": remove it`;
       }
       continue;
     }
-    const path = issuePath(issue.path) || where;
+    const path = fieldPath(issue.path) || where;
     fields[path] ??= issue.code === 'invalid_type' && issue.input === undefined ? 'Required' : issue.message;
   }
   const names = Object.keys(fields);

@@ -1,5 +1,5 @@
 import { and, asc, eq, isNotNull } from 'drizzle-orm';
-import { ROLES, depotIdParamsSchema, liveEventSchema, type LiveEvent } from '@nightyard/contracts';
+import { depotIdParamsSchema, liveEventSchema, type LiveEvent, EVERY_ROLE } from '@nightyard/contracts';
 import type { AppDeps } from '../app-deps';
 import { chargers } from '../db/schema';
 import { depotOf } from '../depots/depot-access';
@@ -13,7 +13,7 @@ export function liveRoutes(api: ApiRoutes, deps: AppDeps) {
   api.add(
     { method: 'get', path: '/depots/:depotId/live',
       summary: 'The depot\'s live events as Server-Sent Events: a snapshot of the chargers, then charger states, plan publications and revisions, yard reports',
-      tag: 'live', access: ROLES, params: depotIdParamsSchema, eventStream: liveEventSchema },
+      tag: 'live', access: EVERY_ROLE, params: depotIdParamsSchema, eventStream: liveEventSchema },
     async ({ user, params, res }) => {
       await depotOf(db, user, params.depotId);
       if (!live.openStream(user.id)) {

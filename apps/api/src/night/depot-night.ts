@@ -1,6 +1,6 @@
 import { sql } from 'drizzle-orm';
 import { DateTime } from 'luxon';
-import type { DepotNight } from '@nightyard/contracts';
+import { addDays, depotDate, type DepotNight } from '@nightyard/contracts';
 import { nightAmong, nightsOfDays, type ServiceDayTimes, type ServiceNight } from '@nightyard/scheduling';
 import type { Db } from '../db/client';
 import { runs } from '../db/schema';
@@ -15,16 +15,16 @@ const WINDOW_DAYS = 21;
  * scheduling library). Every "tonight" in the API comes from here.
  */
 export async function nightOfDepot(db: Db, depot: { id: string; timezone: string }, now: Date): Promise<DepotNight> {
-  const local = DateTime.fromJSDate(now, { zone: depot.timezone });
-  const key = `${local.toISODate()!} ${depot.timezone}`;
+  const today = depotDate(now, depot.timezone);
+  const key = `${today} ${depot.timezone}`;
   let known = serviceDaysCache.get(depot.id);
   if (known?.key !== key) {
-    const days = await serviceDaysAround(db, depot.id, local.startOf('day'));
+    const days = await serviceDaysAround(db, depot.id, today);
     known = { key, nights: nightsOfDays(days, depot.timezone) };
     serviceDaysCache.set(depot.id, known);
   }
   const night = nightAmong(known.nights, depot.timezone, now);
-  return { now: local.toISO()!, timezone: depot.timezone, ...night };
+  return { now: DateTime.fromJSDate(now, { zone: depot.timezone }).toISO()!, timezone: depot.timezone, ...night };
 }
 
 /**
@@ -40,7 +40,7 @@ export function forgetServiceDays(depotId: string): void {
   serviceDaysCache.delete(depotId);
 }
 
-export async function serviceDaysAround(db: Db, depotId: string, today: DateTime): Promise<ServiceDayTimes[]> {
+export async function serviceDaysAround(db: Db, depotId: string, today: string): Promise<ServiceDayTimes[]> {
   // Summed up in the database: one row per service day (first pull-in, last bus's first pull-out).
   const { rows } = await db.execute<{ service_date: string; first_in: Date; last_first_out: Date }>(sql`
     select service_date::text as service_date, min(first_in) as first_in, max(first_out) as last_first_out
@@ -48,7 +48,7 @@ export async function serviceDaysAround(db: Db, depotId: string, today: DateTime
       select ${runs.serviceDate} as service_date, min(${runs.pullIn}) as first_in, min(${runs.pullOut}) as first_out
       from ${runs}
       where ${runs.depotId} = ${depotId}
-        and ${runs.serviceDate} between ${today.minus({ days: WINDOW_DAYS }).toISODate()!} and ${today.plus({ days: WINDOW_DAYS }).toISODate()!}
+        and ${runs.serviceDate} between ${addDays(today, -WINDOW_DAYS)} and ${addDays(today, WINDOW_DAYS)}
       group by ${runs.serviceDate}, ${runs.busId}
     ) per_bus
     group by service_date`);

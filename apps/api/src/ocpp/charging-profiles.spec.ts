@@ -1,6 +1,6 @@
 import standardValidators from 'ocpp-rpc/lib/standard-validators.js';
 import { describe, expect, it } from 'vitest';
-import type { PlanResult } from '@nightyard/contracts';
+import { addDays, type PlanResult } from '@nightyard/contracts';
 import type { ServiceDayTimes } from '@nightyard/scheduling';
 import { chargingProfiles, profileNightOf, stackLevelOf } from './charging-profiles';
 
@@ -9,7 +9,6 @@ const validate = (protocol: 'ocpp1.6' | 'ocpp2.0.1', payload: unknown) =>
   validators.find((v) => v.subprotocol === protocol)!.validate('urn:SetChargingProfile.req', payload);
 
 const ZONE = 'America/Chicago';
-const addDays = (date: string, n: number) => new Date(Date.parse(`${date}T00:00:00Z`) + n * 86_400_000).toISOString().slice(0, 10);
 /** A school day at the depot: first pull-in 08:40, last bus's first pull-out 06:15 (CST, -06:00). */
 const day = (date: string, firstIn = '08:40', lastOut = '06:15'): ServiceDayTimes => ({
   serviceDate: date, firstPullIn: `${date}T${firstIn}:00-06:00`, lastFirstPullOut: `${date}T${lastOut}:00-06:00`,

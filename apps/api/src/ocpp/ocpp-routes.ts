@@ -1,6 +1,6 @@
 import { and, asc, eq } from 'drizzle-orm';
 import { z } from 'zod';
-import { depotItemParamsSchema, planIdParamsSchema, planResultSchema } from '@nightyard/contracts';
+import { depotItemParamsSchema, planIdParamsSchema, planResultSchema, SCENARIO_READERS, SETUP_EDITORS } from '@nightyard/contracts';
 import type { AppDeps } from '../app-deps';
 import { chargers, depots, plans } from '../db/schema';
 import { DomainError, conflict, notFound } from '../http/errors';
@@ -20,7 +20,7 @@ const exportSchema = z.array(z.object({
 export function ocppRoutes(api: ApiRoutes, { db }: AppDeps) {
   api.add(
     { method: 'get', path: '/plans/:id/ocpp', summary: 'The plan as OCPP SetChargingProfile payloads, one per charger', tag: 'ocpp',
-      access: ['supervisor', 'admin', 'facilities'], params: planIdParamsSchema,
+      access: SCENARIO_READERS, params: planIdParamsSchema,
       query: z.strictObject({ version: z.enum(['1.6', '2.0.1'], 'Choose version 1.6 or 2.0.1') }), response: exportSchema },
     async ({ user, params, query }) => {
       const [plan] = await db.select().from(plans).where(and(eq(plans.id, params.id), eq(plans.organisationId, user.organisationId)));
@@ -38,7 +38,7 @@ export function ocppRoutes(api: ApiRoutes, { db }: AppDeps) {
   );
   api.add(
     { method: 'put', path: '/depots/:depotId/chargers/:id/ocpp', summary: 'Set the charger\'s OCPP identity, password and connector / EVSE',
-      tag: 'ocpp', access: ['facilities', 'admin'], params: depotItemParamsSchema,
+      tag: 'ocpp', access: SETUP_EDITORS, params: depotItemParamsSchema,
       body: z.strictObject({
         identity: z.string().regex(/^[A-Za-z0-9*\-_=:+|@.]{1,48}$/, 'Use 1-48 letters, digits or *-_=:+|@. (OCPP identity rules)'),
         password: z.string().min(16, 'Use at least 16 characters').max(40, 'OCPP limits the password to 40 characters'),

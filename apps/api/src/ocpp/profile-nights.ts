@@ -1,4 +1,3 @@
-import { DateTime } from 'luxon';
 import type { Db } from '../db/client';
 import { serviceDaysAround } from '../night/depot-night';
 import { profileNightOf, type ProfileNight } from './charging-profiles';
@@ -7,6 +6,6 @@ import { profileNightOf, type ProfileNight } from './charging-profiles';
 export async function profileNightsOf(db: Db, depot: { id: string; timezone: string }, serviceDates: string[]): Promise<ProfileNight[]> {
   if (!serviceDates.length) return [];
   const sorted = [...serviceDates].sort();
-  const days = await serviceDaysAround(db, depot.id, DateTime.fromISO(sorted[0]!, { zone: depot.timezone }).startOf('day'));
+  const days = await serviceDaysAround(db, depot.id, sorted[0]!);
   return serviceDates.map((d) => profileNightOf(days, depot.timezone, d));
 }

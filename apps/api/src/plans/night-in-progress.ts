@@ -37,23 +37,24 @@ export function cutOffAt(scenario: Scenario, now: Date): string | null {
 
 /** Plans the rest of a night from its cut-off: the engine's re-plan, with the past merged back in. */
 export async function planFromCutOff(scenario: Scenario, at: PlanFrom, previous: PlanResult | null): Promise<PlanResult> {
-  // The engine runs in a worker thread, like every plan.
-  const next = await runInPool({ kind: 'replan', scenario, state: { now: at.from, plugged: at.plugged, ...(previous ? { previous: previous as unknown as Plan } : {}) } });
+  // The engine runs in a worker thread, like every plan. A stored result is the engine's whole
+  // plan (the contract reads only some of its fields; the row keeps them all).
+  const next = await runInPool({ kind: 'replan', scenario, state: { now: at.from, plugged: at.plugged, ...(previous ? { previous: previous as Plan } : {}) } });
   return mergeReplan(previous, next);
 }
 
 /** The night as a whole: what stood before the re-plan's first slot, then the re-plan. */
 export function mergeReplan(previous: PlanResult | null, next: Replan): PlanResult {
-  const result = next as unknown as PlanResult;
-  if (!previous) return { ...result, replan: { from: next.replan.from, outOfService: next.replan.outOfService, plugged: next.replan.plugged } } as PlanResult;
+  const result: PlanResult = next;
+  if (!previous) return { ...result, replan: { from: next.replan.from, outOfService: next.replan.outOfService, plugged: next.replan.plugged } };
   const firstNew = Date.parse(next.replan.from);
   const newLoad = new Map(next.slots.map((s) => [Date.parse(s.start), s.loadKw]));
   return {
     ...result,
     slots: previous.slots.map((s) => (Date.parse(s.start) >= firstNew ? { ...s, loadKw: newLoad.get(Date.parse(s.start)) ?? s.loadKw } : s)),
-    sessions: mergeSessions(keptAsBefore(previous, next.replan.kept as PlanResult['sessions']), next.sessions as unknown as PlanResult['sessions']),
+    sessions: mergeSessions(keptAsBefore(previous, next.replan.kept as PlanResult['sessions']), next.sessions),
     replan: { from: next.replan.from, outOfService: next.replan.outOfService, plugged: next.replan.plugged },
-  } as PlanResult;
+  };
 }
 
 /**

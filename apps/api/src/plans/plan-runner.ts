@@ -45,7 +45,7 @@ export async function runPlanJob(db: Db, log: Logger, planId: string): Promise<v
         ? await planFromCutOff(parsed.scenario, { from, previousPlanId: plan.replanState?.previousPlanId ?? null, plugged: plan.replanState?.plugged ?? {} },
           await previousResult(db, plan.replanState?.previousPlanId ?? null))
         : await runInPool({ kind: 'plan', scenario: parsed.scenario });
-      await db.update(plans).set({ status: 'done', stage: 'Done', result: result as unknown as Record<string, unknown> }).where(eq(plans.id, planId));
+      await db.update(plans).set({ status: 'done', stage: 'Done', result }).where(eq(plans.id, planId));
       log.info({ planId, ms: result.solveMs, status: result.status, attempt: plan.attempts }, 'plan generated');
     } catch (err) {
       // The database went away mid-run: not the plan's fault. The job fails, pg-boss retries it

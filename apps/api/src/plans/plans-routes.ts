@@ -1,7 +1,7 @@
 import { z } from 'zod';
 import {
-  ROLES, adoptedPlanSchema, depotIdParamsSchema, isoDate, generatePlanSchema, planComparisonSchema, planDetailSchema, planIdParamsSchema,
-  planSummarySchema, publishPlanSchema, whatIfAdoptionSchema,
+  adoptedPlanSchema, depotIdParamsSchema, isoDate, generatePlanSchema, planComparisonSchema, planDetailSchema, planIdParamsSchema,
+  planSummarySchema, publishPlanSchema, whatIfAdoptionSchema, EVERY_ROLE, PLANNERS,
 } from '@nightyard/contracts';
 import type { AppDeps } from '../app-deps';
 import type { ApiRoutes } from '../http/route';
@@ -10,13 +10,12 @@ import { adoptWhatIf, whatIfAdoption } from './what-if-adoption';
 import { announcePlan } from '../live/live-feeds';
 
 /** Supervisors generate and publish plans (admins may too); every role reads them. */
-const PLANNERS = ['supervisor', 'admin'] as const;
 const planBody = z.object({ plan: planSummarySchema });
 
 export function plansRoutes(api: ApiRoutes, deps: AppDeps) {
   const { db, jobs, mailer, auth } = deps;
   api.add(
-    { method: 'get', path: '/depots/:depotId/plans', summary: 'Plan versions of the depot, newest first', tag: 'plans', access: ROLES,
+    { method: 'get', path: '/depots/:depotId/plans', summary: 'Plan versions of the depot, newest first', tag: 'plans', access: EVERY_ROLE,
       params: depotIdParamsSchema, query: z.strictObject({ serviceDate: isoDate().optional() }),
       response: z.object({ plans: z.array(planSummarySchema) }) },
     async ({ user, params, query }) => ({ plans: await plans.listPlans(db, user, params.depotId, query.serviceDate) }),
@@ -32,7 +31,7 @@ export function plansRoutes(api: ApiRoutes, deps: AppDeps) {
     async ({ user, params, body }) => ({ plan: await plans.createWhatIf(db, jobs, user, params.depotId, body) }),
   );
   api.add(
-    { method: 'get', path: '/plans/:id', summary: 'A plan with its result', tag: 'plans', access: ROLES,
+    { method: 'get', path: '/plans/:id', summary: 'A plan with its result', tag: 'plans', access: EVERY_ROLE,
       params: planIdParamsSchema, response: z.object({ plan: planDetailSchema }) },
     async ({ user, params }) => ({ plan: await plans.getPlan(db, user, params.id) }),
   );
@@ -46,7 +45,7 @@ export function plansRoutes(api: ApiRoutes, deps: AppDeps) {
     },
   );
   api.add(
-    { method: 'get', path: '/plans/:id/compare', summary: 'Which buses moved against another version', tag: 'plans', access: ROLES,
+    { method: 'get', path: '/plans/:id/compare', summary: 'Which buses moved against another version', tag: 'plans', access: EVERY_ROLE,
       params: planIdParamsSchema, query: z.strictObject({ with: z.uuid('Not a plan id') }), response: planComparisonSchema },
     async ({ user, params, query }) => plans.comparePlans(db, user, params.id, query.with),
   );

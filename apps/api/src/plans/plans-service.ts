@@ -65,7 +65,7 @@ export async function storeDraft(
       .insert(plans)
       .values({
         organisationId: caller.organisationId, depotId, serviceDate, version: (last?.v ?? 0) + 1, kind: values.kind,
-        includesMidday: values.includesMidday, scenario: values.scenario as unknown as Record<string, unknown>,
+        includesMidday: values.includesMidday, scenario: values.scenario,
         notes: values.notes, createdBy: caller.id, ...(values.planFrom ? { replanState: values.planFrom } : {}),
       })
       .returning();
@@ -156,7 +156,7 @@ export async function listPlans(db: Db, caller: AuthUser, depotId: string, servi
 
 export async function getPlan(db: Db, caller: AuthUser, id: string): Promise<PlanDetail> {
   const { plan, createdBy, publishedBy } = await loadPlan(db, caller, id);
-  return planDetailOf(plan, createdBy, publishedBy, resultOf(plan), plan.scenario as unknown as ScenarioInput, plan.replanState?.from ?? null);
+  return planDetailOf(plan, createdBy, publishedBy, resultOf(plan), plan.scenario, plan.replanState?.from ?? null);
 }
 
 /** A plan with its result, from a row and its documents already read (and the result parsed). */
@@ -229,7 +229,7 @@ async function notifyPublished(db: Db, mailer: Mailer, caller: AuthUser, plan: P
   const [depot] = await db.select().from(depots).where(eq(depots.id, plan.depotId));
   const recipients = await nightStaff(db, plan.organisationId);
   const result = resultOf(plan)!;
-  const scenario = plan.scenario as unknown as ScenarioInput;
+  const scenario = plan.scenario;
   const short = result.buses.filter((b) => b.shortfallKwh > 1e-6);
   for (const r of recipients) {
     await mailer.send(planPublishedMail({
@@ -247,7 +247,7 @@ export async function comparePlans(db: Db, caller: Pick<AuthUser, 'organisationI
   const ra = resultOf(a.plan);
   const rb = resultOf(b.plan);
   if (!ra || !rb) throw conflict('Both plans must be finished to compare them');
-  const zone = (b.plan.scenario as unknown as ScenarioInput).timezone;
+  const zone = b.plan.scenario.timezone;
   const describe = (r: PlanResult, bus: string) =>
     r.sessions
       .filter((s) => s.bus === bus)

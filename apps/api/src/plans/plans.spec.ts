@@ -50,7 +50,7 @@ describe('plans', () => {
     expect(plan.status).toBe('done');
     first = plan;
     const [row] = await app.db.select().from(plans).where(eq(plans.id, plan.id));
-    const scenario = row!.scenario as { buses: { id: string; stays: { arrive: string; depart: string }[] }[] };
+    const scenario = row!.scenario;
     expect(scenario.buses.map((b) => b.id)).toEqual(NUMBERS);
     // Midday layover and night: two stays per bus.
     expect(scenario.buses[0]!.stays.map((s) => [s.arrive, s.depart])).toEqual([
@@ -60,7 +60,7 @@ describe('plans', () => {
     expect(plan.result.sessions.length).toBeGreaterThan(0);
     expect(plan.result.cost.total).toBeLessThanOrEqual(plan.result.baseline.total);
     // Every bus leaves in the morning with at least its first run plus its reserve.
-    for (const bus of scenario.buses as unknown as { id: string; stays: { departMinKwh: number }[] }[]) {
+    for (const bus of scenario.buses) {
       const out = plan.result.buses.find((b: { id: string }) => b.id === bus.id);
       expect(out.departures.at(-1).kwh + out.shortfallKwh).toBeGreaterThanOrEqual(bus.stays.at(-1)!.departMinKwh - 1e-6);
     }
@@ -147,7 +147,7 @@ describe('plans', () => {
       .send({ runs: dayRuns('2026-12-17', NUMBERS) }).expect(200);
     const res = await app.request().post(`/api/depots/${depotId}/plans`).set(as(sup)).send({ serviceDate: '2026-12-16' }).expect(202);
     const [row] = await app.db.select().from(plans).where(eq(plans.id, res.body.plan.id));
-    const scenario = row!.scenario as { buses: { id: string; arrivalKwh: number; stays: { arrive: string }[] }[] };
+    const scenario = row!.scenario;
     // Bus 11 (196 kWh) read 40 % at its 16:20 pull-in.
     expect(scenario.buses[0]!.stays.map((s) => s.arrive)).toEqual(['2026-12-16T16:20']);
     expect(scenario.buses[0]!.arrivalKwh).toBeCloseTo(0.4 * 196, 6);

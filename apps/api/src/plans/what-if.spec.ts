@@ -114,7 +114,7 @@ describe('what-if plans are studies', () => {
       'Differs from the study: Charger C out of service now (cable damaged): left out.',
     ]);
     const [row] = await app.db.select().from(plans).where(eq(plans.id, draft.id));
-    const scenario = row!.scenario as { site: { limitKw: number }; chargers: { id: string }[]; tariff: { offPeakPrice: number } };
+    const scenario = row!.scenario;
     expect(scenario.site.limitKw).toBe(400);
     expect(scenario.chargers.map((c) => c.id)).toEqual(['A', 'B']);
     expect(scenario.tariff.offPeakPrice).toBe(0.09);

@@ -1,49 +1,48 @@
 import { eq } from 'drizzle-orm';
 import { z } from 'zod';
 import {
-  ROLES, previewQuerySchema, ratePlanSchema, ratePreviewSchema, saveRatePlanSchema, urdbImportResultSchema,
+  previewQuerySchema, ratePlanSchema, ratePreviewSchema, saveRatePlanSchema, urdbImportResultSchema, EVERY_ROLE, SETUP_EDITORS,
 } from '@nightyard/contracts';
 import type { AppDeps } from '../app-deps';
 import { depots } from '../db/schema';
 import type { ApiRoutes } from '../http/route';
 import { previewDay } from '@nightyard/scheduling';
-import * as plans from './rate-plans-service';
+import * as ratePlanService from './rate-plans-service';
 import { importUrdb } from './urdb-import';
 
-const EDITORS = ['facilities', 'admin'] as const;
 const idParams = z.strictObject({ id: z.uuid('Not a rate plan id') });
 const planBody = z.object({ ratePlan: ratePlanSchema });
 
 export function ratesRoutes(api: ApiRoutes, { db }: AppDeps) {
   api.add(
-    { method: 'get', path: '/rate-plans', summary: 'The organisation\'s rate plans', tag: 'rates', access: ROLES,
+    { method: 'get', path: '/rate-plans', summary: 'The organisation\'s rate plans', tag: 'rates', access: EVERY_ROLE,
       response: z.object({ ratePlans: z.array(ratePlanSchema) }) },
-    async ({ user }) => ({ ratePlans: await plans.listRatePlans(db, user) }),
+    async ({ user }) => ({ ratePlans: await ratePlanService.listRatePlans(db, user) }),
   );
   api.add(
-    { method: 'get', path: '/rate-plans/:id', summary: 'One rate plan', tag: 'rates', access: ROLES, params: idParams, response: planBody },
-    async ({ user, params }) => ({ ratePlan: await plans.getRatePlan(db, user, params.id) }),
+    { method: 'get', path: '/rate-plans/:id', summary: 'One rate plan', tag: 'rates', access: EVERY_ROLE, params: idParams, response: planBody },
+    async ({ user, params }) => ({ ratePlan: await ratePlanService.getRatePlan(db, user, params.id) }),
   );
   api.add(
-    { method: 'post', path: '/rate-plans', summary: 'Save a new rate plan', tag: 'rates', access: EDITORS,
+    { method: 'post', path: '/rate-plans', summary: 'Save a new rate plan', tag: 'rates', access: SETUP_EDITORS,
       body: saveRatePlanSchema, response: planBody, status: 201 },
-    async ({ user, body }) => ({ ratePlan: await plans.createRatePlan(db, user, body) }),
+    async ({ user, body }) => ({ ratePlan: await ratePlanService.createRatePlan(db, user, body) }),
   );
   api.add(
-    { method: 'put', path: '/rate-plans/:id', summary: 'Replace a rate plan', tag: 'rates', access: EDITORS,
+    { method: 'put', path: '/rate-plans/:id', summary: 'Replace a rate plan', tag: 'rates', access: SETUP_EDITORS,
       params: idParams, body: saveRatePlanSchema, response: planBody },
-    async ({ user, params, body }) => ({ ratePlan: await plans.updateRatePlan(db, user, params.id, body) }),
+    async ({ user, params, body }) => ({ ratePlan: await ratePlanService.updateRatePlan(db, user, params.id, body) }),
   );
   api.add(
-    { method: 'delete', path: '/rate-plans/:id', summary: 'Delete a rate plan no depot uses', tag: 'rates', access: EDITORS,
+    { method: 'delete', path: '/rate-plans/:id', summary: 'Delete a rate plan no depot uses', tag: 'rates', access: SETUP_EDITORS,
       params: idParams, status: 204 },
-    async ({ user, params }) => plans.deleteRatePlan(db, user, params.id),
+    async ({ user, params }) => ratePlanService.deleteRatePlan(db, user, params.id),
   );
   api.add(
     { method: 'get', path: '/rate-plans/:id/preview', summary: 'Prices and demand-charge periods of one day', tag: 'rates',
-      access: ROLES, params: idParams, query: previewQuerySchema, response: ratePreviewSchema },
+      access: EVERY_ROLE, params: idParams, query: previewQuerySchema, response: ratePreviewSchema },
     async ({ user, params, query }) => {
-      const plan = await plans.getRatePlan(db, user, params.id);
+      const plan = await ratePlanService.getRatePlan(db, user, params.id);
       const [depot] = await db.select({ tz: depots.timezone }).from(depots).where(eq(depots.organisationId, user.organisationId)).limit(1);
       // Clock changes depend on the zone: the depot's unless the caller names one.
       return previewDay(plan.definition, query.date, query.timezone ?? depot?.tz ?? 'UTC');
@@ -51,7 +50,7 @@ export function ratesRoutes(api: ApiRoutes, { db }: AppDeps) {
   );
   api.add(
     { method: 'post', path: '/rate-plans/import-urdb', summary: 'Map an OpenEI URDB rate record to a rate plan for review (saves nothing)',
-      tag: 'rates', access: EDITORS, body: z.unknown(), response: urdbImportResultSchema },
+      tag: 'rates', access: SETUP_EDITORS, body: z.unknown(), response: urdbImportResultSchema },
     async ({ body }) => importUrdb(body),
   );
 }

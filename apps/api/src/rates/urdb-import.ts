@@ -1,9 +1,9 @@
 import { z } from 'zod';
 import {
   ratePlanDefinitionSchema, text, type RatePlanDefinition, type Season, type TouPeriod, type TouWindow, type UrdbImportResult,
+  fieldPath,
 } from '@nightyard/contracts';
 import { DomainError } from '../http/errors';
-import { issuePath } from '../http/validate';
 
 // Field meanings follow the OpenEI Utility Rate Database (URDB) documentation; the structural
 // rules (12 x 24 schedules, 12 flat-demand months, indices present, `max` on every tier but the
@@ -138,7 +138,7 @@ export function importUrdb(input: unknown): UrdbImportResult {
   const parsed = recordSchema.safeParse(unwrap(input));
   if (!parsed.success) {
     const fields: Record<string, string> = {};
-    for (const i of parsed.error.issues) fields[issuePath(i.path) || 'record'] ??= i.message;
+    for (const i of parsed.error.issues) fields[fieldPath(i.path) || 'record'] ??= i.message;
     fail(fields);
   }
   const rec = parsed.data;
@@ -294,7 +294,7 @@ export function importUrdb(input: unknown): UrdbImportResult {
   const mapped = ratePlanDefinitionSchema.safeParse({ currency: 'USD', seasons, fixedCharges: fixed, holidays: [], demandRatchet, minimumCharge });
   if (!mapped.success) {
     const fields: Record<string, string> = {};
-    for (const i of mapped.error.issues) fields[`plan.${issuePath(i.path)}`] ??= i.message;
+    for (const i of mapped.error.issues) fields[`plan.${fieldPath(i.path)}`] ??= i.message;
     fail(fields);
   }
   const definition = mapped.data;

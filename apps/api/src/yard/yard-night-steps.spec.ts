@@ -168,7 +168,7 @@ describe('yard steps: overdue steps confirmed with their real time, or that did 
     const after = await tonight();
     expect(after.steps.find((s) => s.key === step!.key)?.status).toBe('missed');
     // From the re-plan's first slot, nobody else is plugged into that charger while the bus is on it.
-    const from = Date.parse((after.plan.result as unknown as { replan: { from: string } }).replan.from);
+    const from = Date.parse(after.plan.result.replan!.from!);
     const others = after.plan.result.sessions.filter((s) => s.charger === step!.charger && s.bus !== step!.bus && Date.parse(s.end) > from);
     const mine = after.plan.result.sessions.filter((s) => s.charger === step!.charger && s.bus === step!.bus && Date.parse(s.start) === from);
     if (mine.length) {

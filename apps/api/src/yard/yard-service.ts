@@ -2,6 +2,7 @@ import { aliasedTable, and, eq, getTableColumns, sql } from 'drizzle-orm';
 import { DateTime } from 'luxon';
 import {
   planResultSchema, tonightSchema, type PlanResult, type Tonight, type YardReport, type YardReportResult, type YardStep,
+  horizonOf,
 } from '@nightyard/contracts';
 import { parseScenario, ReplanStateError, type Plan, type ScenarioInput } from '@nightyard/scheduling';
 import type { Db } from '../db/client';
@@ -27,7 +28,6 @@ type PlanRow = typeof plans.$inferSelect;
 const confirmer = aliasedTable(users, 'confirmer');
 const LOCAL = "yyyy-MM-dd'T'HH:mm";
 
-const horizonOf = (r: PlanResult) => ({ from: Date.parse(r.slots[0]!.start), to: Date.parse(r.slots.at(-1)!.start) + 15 * 60_000 });
 
 const creator = aliasedTable(users, 'creator');
 const publisher = aliasedTable(users, 'publisher');
@@ -66,7 +66,7 @@ async function documentsOf(db: Db, planId: string) {
   const known = publishedDocuments.get(planId);
   if (known) return known;
   const [row] = await db.select({ result: plans.result, scenario: plans.scenario }).from(plans).where(eq(plans.id, planId));
-  const documents = { result: planResultSchema.parse(row!.result), scenario: row!.scenario as unknown as ScenarioInput };
+  const documents = { result: planResultSchema.parse(row!.result), scenario: row!.scenario };
   publishedDocuments.set(planId, documents);
   if (publishedDocuments.size > 50) publishedDocuments.delete(publishedDocuments.keys().next().value!);
   return documents;
@@ -217,7 +217,7 @@ export async function confirmStep(db: Db, caller: AuthUser, planId: string, key:
   const confirmations = await confirmationsOf(db, plan.depotId, plan.serviceDate);
   if (!yardSteps(result, now, confirmations).some((s) => s.key === key)) throw notFound('That step (it is not in this plan)');
   const [depot] = await db.select({ timezone: depots.timezone }).from(depots).where(eq(depots.id, plan.depotId));
-  const doneAt = at === undefined ? now : realTime(at, now, depot!.timezone, horizonOf(result).from);
+  const doneAt = at === undefined ? now : realTime(at, now, depot!.timezone, horizonOf(result)!.start);
   const existing = confirmations.get(key);
   if (existing?.outcome === 'missed') throw conflict('That step was reported as not done: the night was re-planned from it');
   await db
@@ -307,10 +307,10 @@ export async function replanAndPublish(deps: PublishDeps, caller: Reporter, depo
   const scenario = parsed.scenario;
   const followed = planResultSchema.parse(plan.result);
   const zone = depot.timezone;
-  const h = horizonOf(followed);
-  if (now.getTime() >= h.to) throw conflict('This plan has ended: there is nothing left to re-plan');
+  const h = horizonOf(followed)!;
+  if (now.getTime() >= h.end) throw conflict('This plan has ended: there is nothing left to re-plan');
   // Reported before the night has started: the whole night is planned again.
-  const cutAt = new Date(Math.max(now.getTime(), h.from));
+  const cutAt = new Date(Math.max(now.getTime(), h.start));
 
   const state = { outOfService: [...(plan.replanState?.outOfService ?? [])], lateArrivals: { ...(plan.replanState?.lateArrivals ?? {}) }, absent: [...(plan.replanState?.absent ?? [])] };
   const energyKwh: Record<string, number> = {};
@@ -374,7 +374,7 @@ export async function replanAndPublish(deps: PublishDeps, caller: Reporter, depo
     ...previous,
     sessions: previous.sessions.filter((s) => !absent.has(s.bus)),
     buses: previous.buses.filter((b) => !absent.has(b.id)),
-  } as unknown as Plan;
+  } as Plan; // the stored result is the engine's whole plan (see planFromCutOff)
   const cutoff = DateTime.fromJSDate(cutAt, { zone });
   const t0 = performance.now();
   let next;
@@ -411,7 +411,7 @@ export async function replanAndPublish(deps: PublishDeps, caller: Reporter, depo
     const [row] = await tx.insert(plans).values({
       organisationId: caller.organisationId, depotId, serviceDate: plan.serviceDate, version: (last?.v ?? 0) + 1, kind: 'revision',
       state: 'published', status: 'done', stage: 'Done', includesMidday: plan.includesMidday, scenario: plan.scenario,
-      notes: [...plan.notes, `Revised at ${cutoff.toFormat('HH:mm')}: ${describe}.`], result: merged as unknown as Record<string, unknown>,
+      notes: [...plan.notes, `Revised at ${cutoff.toFormat('HH:mm')}: ${describe}.`], result: merged,
       replanState: state, createdBy: caller.id, publishedBy: caller.id, publishedAt: now,
     }).returning();
     if (report.kind === 'charger_out') {

@@ -84,7 +84,7 @@ describe('yard: reports re-plan the rest of the night', () => {
       .send({ planId: before.plan.id, kind: 'charger_out', charger, reason: 'Connector latch broken' }).expect(201);
     expect(res.body.revision).toMatchObject({ kind: 'revision', state: 'published', version: 2 });
     const [row] = await app.db.select().from(plans).where(eq(plans.id, res.body.revision.id));
-    const next = row!.result as unknown as PlanResult;
+    const next = row!.result!;
     for (const s of next.sessions.filter((x) => x.charger === charger)) {
       expect(Date.parse(s.end)).toBeLessThanOrEqual(cut);
     }
@@ -118,7 +118,7 @@ describe('yard: reports re-plan the rest of the night', () => {
     const res = await app.request().post(`/api/depots/${depotId}/tonight/reports`).set(as(yard))
       .send({ planId: before.plan.id, kind: 'bus_late', bus, expectedAt: '2026-12-10T01:30' }).expect(201);
     const [row] = await app.db.select().from(plans).where(eq(plans.id, res.body.revision.id));
-    const next = row!.result as unknown as PlanResult;
+    const next = row!.result!;
     const newTime = DateTime.fromISO('2026-12-10T01:30', { zone: ZONE }).toMillis();
     for (const s of next.sessions.filter((x) => x.bus === bus && Date.parse(x.end) > cut)) {
       expect(Date.parse(s.start)).toBeGreaterThanOrEqual(newTime);
@@ -169,7 +169,7 @@ describe('yard: reports re-plan the rest of the night', () => {
     const res = await app.request().post(`/api/depots/${depot}/tonight/reports`).set(as(org.users.y!))
       .send({ planId: t.plan.id, kind: 'charger_out', charger: 'A', reason: 'Cable worn' }).expect(201);
     const [row] = await app.db.select().from(plans).where(eq(plans.id, res.body.revision.id));
-    expect((row!.result as unknown as PlanResult).sessions.filter((s) => s.charger === 'A')).toEqual([]);
+    expect((row!.result!).sessions.filter((s) => s.charger === 'A')).toEqual([]);
   });
 
   it('roles', async () => {

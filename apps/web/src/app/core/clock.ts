@@ -1,5 +1,5 @@
 import { DestroyRef, Injectable, computed, inject, signal } from '@angular/core';
-import { depotDate } from './depot-time';
+import { depotDate } from '@nightyard/contracts/depot-time';
 
 /** How often `tick` moves on: often enough for "now" lines and overdue states, cheap on phones. */
 export const CLOCK_TICK_MS = 30_000;

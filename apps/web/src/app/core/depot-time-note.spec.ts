@@ -1,6 +1,6 @@
 import { signal } from '@angular/core';
 import { TestBed } from '@angular/core/testing';
-import { DepotStore } from '../depots/depot-store';
+import { DepotListStore } from '../depot-state/depot-list-store';
 import { depot } from '../testing/fixtures';
 import { Clock } from './clock';
 import { DepotTimeNote, VIEWER_TIME_ZONE } from './depot-time-note';
@@ -10,7 +10,7 @@ describe('DepotTimeNote', () => {
     TestBed.configureTestingModule({
       providers: [
         { provide: VIEWER_TIME_ZONE, useValue: viewerZone },
-        { provide: DepotStore, useValue: { current: signal(depot({ timezone: depotZone })) } },
+        { provide: DepotListStore, useValue: { current: signal(depot({ timezone: depotZone })) } },
       ],
     });
     // Winter at the depot, whatever this machine's date.

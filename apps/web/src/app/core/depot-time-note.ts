@@ -1,8 +1,8 @@
 import { ChangeDetectionStrategy, Component, InjectionToken, computed, inject, input } from '@angular/core';
 import { MatIconModule } from '@angular/material/icon';
-import { DepotStore } from '../depots/depot-store';
+import { DepotListStore } from '../depot-state/depot-list-store';
 import { Clock } from './clock';
-import { viewerTimeZone, zoneNote } from './depot-time';
+import { viewerTimeZone, zoneNote } from '@nightyard/contracts/depot-time';
 
 /** The viewer's own time zone (the browser's); tests give one explicitly. */
 export const VIEWER_TIME_ZONE = new InjectionToken<string>('VIEWER_TIME_ZONE', { factory: viewerTimeZone });
@@ -38,7 +38,7 @@ export const VIEWER_TIME_ZONE = new InjectionToken<string>('VIEWER_TIME_ZONE', {
   `,
 })
 export class DepotTimeNote {
-  private readonly depots = inject(DepotStore);
+  private readonly depots = inject(DepotListStore);
   private readonly clock = inject(Clock);
   private readonly viewerZone = inject(VIEWER_TIME_ZONE);
 

@@ -1,7 +1,5 @@
 import { toCents, type MonthCosts } from '@nightyard/contracts';
-import { addDays, dayTimeAt, depotStamp } from '../core/depot-time';
-
-export { addDays };
+import { addDays, dayTimeAt, depotStamp } from '@nightyard/contracts/depot-time';
 
 /** Formatting for the Costs section: amounts in the rate plan's currency, kW, dates at the depot. */
 

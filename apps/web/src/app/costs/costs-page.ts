@@ -6,23 +6,23 @@ import { MatIconModule } from '@angular/material/icon';
 import { MatProgressBarModule } from '@angular/material/progress-bar';
 import { MatSelectModule } from '@angular/material/select';
 import { ActivatedRoute, Router, RouterLink } from '@angular/router';
-import { footedCents, hasAnyRole, toCents, type MonthCosts, type Role } from '@nightyard/contracts';
+import { COST_EDITORS, footedCents, hasAnyRole, toCents, type MonthCosts } from '@nightyard/contracts';
 import { AuthStore } from '../auth/auth-store';
 import { toApiProblem } from '../core/api-error';
 import { Clock } from '../core/clock';
-import { ISO_DATE } from '../core/depot-time';
-import { DepotStore } from '../depots/depot-store';
+import { ISO_DATE } from '@nightyard/contracts/depot-time';
+import { DepotListStore } from '../depot-state/depot-list-store';
 import { SectionIntro } from '../sections/section-intro';
 import { BillTable } from './bill-table';
 import { CostsApi } from './costs-api';
-import { addDays, addMonths, instantAt, kw, kwh, mediumDay, money, monthKey, periodLabel } from './costs-format';
+import { addDays } from '@nightyard/contracts/depot-time';
+import { addMonths, instantAt, kw, kwh, mediumDay, money, monthKey, periodLabel } from './costs-format';
 import { EmissionsCard } from './emissions-card';
 import { MeterImportPanel } from './meter-import-panel';
 import { NightsChart } from './nights-chart';
 import { NightsTable } from './nights-table';
 
 /** Who may import meter data (the API's editors); finance, admin, supervisors and facilities read. */
-export const COST_EDITORS: readonly Role[] = ['finance', 'admin'];
 
 const PEAK_SOURCE: Record<MonthCosts['peaks']['facility']['source'], string> = {
   actual: 'from meter data',
@@ -64,7 +64,7 @@ export class CostsPage {
   private readonly auth = inject(AuthStore);
   private readonly router = inject(Router);
   private readonly route = inject(ActivatedRoute);
-  protected readonly depots = inject(DepotStore);
+  protected readonly depots = inject(DepotListStore);
   private readonly clock = inject(Clock);
 
   /** `?date=YYYY-MM-DD`: a day of the billing period to show (default: today at the depot). */

@@ -1,5 +1,4 @@
-import { DOCUMENT } from '@angular/common';
-import { inject } from '@angular/core';
+import { injectSaveFile } from '../core/save-file';
 
 /** A CSV cell: text, a plain number (no grouping, no currency sign) or empty. */
 export type CsvValue = string | number | null | undefined;
@@ -38,18 +37,8 @@ export function buildCsv(table: CsvTable): string {
   return `${lines.join('\r\n')}\r\n`;
 }
 
-/** Returns a function that saves text as a CSV file through a Blob. Call in an injection context. */
+/** Returns a function that saves text as a CSV file. Call in an injection context. */
 export function injectSaveCsv(): (fileName: string, text: string) => void {
-  const document = inject(DOCUMENT);
-  return (fileName, text) => {
-    const url = URL.createObjectURL(new Blob([text], { type: 'text/csv;charset=utf-8' }));
-    const a = document.createElement('a');
-    a.href = url;
-    a.download = fileName;
-    a.hidden = true;
-    document.body.appendChild(a);
-    a.click();
-    a.remove();
-    setTimeout(() => URL.revokeObjectURL(url), 1000);
-  };
+  const save = injectSaveFile();
+  return (fileName, text) => save(new Blob([text], { type: 'text/csv;charset=utf-8' }), fileName);
 }

@@ -6,12 +6,12 @@ import { MatProgressBarModule } from '@angular/material/progress-bar';
 import { MatSnackBar } from '@angular/material/snack-bar';
 import type { Cabinet, Charger, DepotDetail } from '@nightyard/contracts';
 import { toApiProblem } from '../core/api-error';
-import { ChargerFaults, faultsOf } from '../depots/charger-faults';
-import { DepotStore } from '../depots/depot-store';
-import { LiveStore, reloadOnLive, type LiveDepot } from '../depots/live-store';
+import { ChargerFaults, faultsOf } from '../depot-state/charger-faults';
+import { DepotListStore } from '../depot-state/depot-list-store';
+import { LiveStore, reloadOnLive, type LiveDepot } from '../depot-state/live-store';
 import { ConfirmDialog, type ConfirmData } from '../people/confirm-dialog';
 import { SectionIntro } from '../sections/section-intro';
-import { injectCanEditSetup } from '../shared/setup-editors';
+import { injectCanEditSetup } from '../auth/role-checks';
 import { CabinetDialog, type CabinetDialogData } from './cabinet-dialog';
 import { CabinetPanel } from './cabinet-panel';
 import { ChargerDialog, type ChargerDialogData } from './charger-dialog';
@@ -46,7 +46,7 @@ type LoadState = 'loading' | 'loaded' | 'failed' | 'none';
   host: { class: 'ny-page' },
 })
 export class DepotPage {
-  private readonly store = inject(DepotStore);
+  private readonly store = inject(DepotListStore);
   private readonly api = inject(DepotApi);
   private readonly dialog = inject(MatDialog);
   private readonly snackBar = inject(MatSnackBar);

@@ -1,5 +1,5 @@
-import { dateTimeAt } from '../core/depot-time';
-import { formatKw } from '../depots/depot-format';
+import { dateTimeAt } from '@nightyard/contracts/depot-time';
+import { formatKw } from '../depot-state/depot-format';
 
 export { formatKw };
 

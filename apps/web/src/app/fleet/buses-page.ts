@@ -11,11 +11,11 @@ import { MatTableModule } from '@angular/material/table';
 import type { Bus } from '@nightyard/contracts';
 import { toApiProblem } from '../core/api-error';
 import { injectIsPhone } from '../core/layout';
-import { DepotStore } from '../depots/depot-store';
+import { DepotListStore } from '../depot-state/depot-list-store';
 import { SectionIntro } from '../sections/section-intro';
 import { BusDialog, type BusDialogData } from './bus-dialog';
 import { FleetApi } from './fleet-api';
-import { injectCanEditFleet } from './fleet-editors';
+import { injectCanEditFleet } from '../auth/role-checks';
 import { BUS_STATUS_LABELS, fmt1, fmt2 } from './fleet-format';
 import { FleetTabs } from './fleet-tabs';
 
@@ -66,7 +66,7 @@ export function sortBuses(buses: readonly Bus[], sort: Sort): Bus[] {
 })
 export class BusesPage {
   private readonly api = inject(FleetApi);
-  private readonly depots = inject(DepotStore);
+  private readonly depots = inject(DepotListStore);
   private readonly dialog = inject(MatDialog);
   private readonly snackBar = inject(MatSnackBar);
 

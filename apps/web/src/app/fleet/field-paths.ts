@@ -1,18 +1,10 @@
 import type { AbstractControl } from '@angular/forms';
+import { fieldPathSegments } from '@nightyard/contracts/field-path';
 import type { ProblemItem } from '../shared/problem-summary';
-
-/** `runs[3].pullIn` -> ['runs', 3, 'pullIn']. */
-export function pathSegments(path: string): (string | number)[] {
-  const out: (string | number)[] = [];
-  for (const part of path.match(/[^.[\]]+|\[\d+\]/g) ?? []) {
-    out.push(part.startsWith('[') ? Number(part.slice(1, -1)) : part);
-  }
-  return out;
-}
 
 /** "runs[3].pullIn" -> "Row 4, pull-in"; other paths as given. */
 export function describePath(path: string, names: Record<string, string> = {}): string {
-  let seg = pathSegments(path);
+  let seg = fieldPathSegments(path);
   // "runs[3].pullIn": the table is the runs, so "Row 4, pull-in".
   if (seg[0] === 'runs' && typeof seg[1] === 'number') seg = seg.slice(1);
   const text = seg.map((s) => (typeof s === 'number' ? `row ${s + 1}` : (names[s] ?? s))).join(', ');
@@ -30,7 +22,7 @@ export function applyPathErrors(
 ): ProblemItem[] {
   const leftOver: ProblemItem[] = [];
   for (const [path, message] of Object.entries(fields)) {
-    const seg = pathSegments(path);
+    const seg = fieldPathSegments(path);
     const control = seg.length ? root.get(seg) : null;
     if (control) {
       control.setErrors({ ...(control.errors ?? {}), server: message });

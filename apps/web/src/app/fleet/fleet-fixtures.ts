@@ -2,7 +2,7 @@ import type { HttpTestingController } from '@angular/common/http/testing';
 import { TestBed } from '@angular/core/testing';
 import type { Bus, Role, Run, ServiceDay } from '@nightyard/contracts';
 import { AuthStore } from '../auth/auth-store';
-import { DepotStore } from '../depots/depot-store';
+import { DepotListStore } from '../depot-state/depot-list-store';
 import { depot, tokenResponse } from '../testing/fixtures';
 
 /** Test data and set-up for the Fleet and Plans specs (client side; HTTP faked). */
@@ -51,7 +51,7 @@ export async function signedInAs(mock: HttpTestingController, roles: Role[]): Pr
   const signingIn = auth.signIn('ada@example.org', 'pw');
   mock.expectOne('/api/auth/login').flush(tokenResponse(roles));
   await signingIn;
-  const loading = TestBed.inject(DepotStore).load();
+  const loading = TestBed.inject(DepotListStore).load();
   mock.expectOne('/api/depots').flush({ depots: [depot()] });
   await loading;
 }

@@ -1,7 +1,7 @@
 import { FormArray, FormControl, FormGroup, type ValidatorFn } from '@angular/forms';
 import type { Run, RunInput } from '@nightyard/contracts';
 import { numberIn } from './bus-form';
-import { CLOCK_TIME as CLOCK, addDays } from '../core/depot-time';
+import { CLOCK_TIME as CLOCK, addDays } from '@nightyard/contracts/depot-time';
 import { clockTimeValidator } from '../shared/clock-time-input';
 import { SOC_SOURCE_LABELS, clockOf, dateOf } from './fleet-format';
 

@@ -23,19 +23,19 @@ import { ActivatedRoute, Router } from '@angular/router';
 import { coldWeatherFactor, type Bus, type ColdWeatherTable, type ServiceDay } from '@nightyard/contracts';
 import { firstValueFrom, startWith } from 'rxjs';
 import { toApiProblem } from '../core/api-error';
-import { formatServiceDay } from '../depots/depot-format';
-import { addDays, isIsoDate } from '../core/depot-time';
-import { DepotStore } from '../depots/depot-store';
-import { NightStore } from '../depots/night-store';
+import { formatServiceDay } from '../depot-state/depot-format';
+import { addDays, isIsoDate } from '@nightyard/contracts/depot-time';
+import { DepotListStore } from '../depot-state/depot-list-store';
+import { NightStore } from '../depot-state/night-store';
 import { ConfirmDialog, type ConfirmData } from '../people/confirm-dialog';
 import { ClockTimeInput } from '../shared/clock-time-input';
 import { SectionIntro } from '../sections/section-intro';
 import { messageOf } from './bus-form';
 import { ColdWeatherPanel } from './cold-weather-panel';
-import { injectSaveFile, readFileText } from './download';
+import { injectSaveFile, readFileText } from '../core/save-file';
 import { applyPathErrors } from './field-paths';
 import { FleetApi } from './fleet-api';
-import { injectCanEditFleet } from './fleet-editors';
+import { injectCanEditFleet } from '../auth/role-checks';
 import { SOC_SOURCE_LABELS, clockOf, csvProblems, fmt1 } from './fleet-format';
 import { FleetTabs } from './fleet-tabs';
 import { ProblemSummary, type ProblemItem } from '../shared/problem-summary';
@@ -83,7 +83,7 @@ export function previousWeekday(date: string): string {
 })
 export class ServiceDayPage {
   private readonly api = inject(FleetApi);
-  private readonly depots = inject(DepotStore);
+  private readonly depots = inject(DepotListStore);
   private readonly nights = inject(NightStore);
   private readonly router = inject(Router);
   private readonly route = inject(ActivatedRoute);

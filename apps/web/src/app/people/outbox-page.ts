@@ -7,7 +7,7 @@ import { RouterLink } from '@angular/router';
 import type { OutboxMessage } from '@nightyard/contracts';
 import { toApiProblem } from '../core/api-error';
 import { DepotTimeNote, VIEWER_TIME_ZONE } from '../core/depot-time-note';
-import { DepotStore } from '../depots/depot-store';
+import { DepotListStore } from '../depot-state/depot-list-store';
 import { PeopleApi } from './people-api';
 import { formatWhen } from './people-format';
 import { textWithLinks, type TextPart } from './text-with-links';
@@ -29,7 +29,7 @@ interface ShownMessage {
 })
 export class OutboxPage {
   private readonly api = inject(PeopleApi);
-  private readonly depots = inject(DepotStore);
+  private readonly depots = inject(DepotListStore);
   private readonly viewerZone = inject(VIEWER_TIME_ZONE);
   /** Times at the depot, as everywhere (the shell has loaded the depots). */
   protected readonly zone = computed(() => this.depots.current()?.timezone ?? this.viewerZone);

@@ -1,5 +1,5 @@
 import type { UserStatus } from '@nightyard/contracts';
-import { dateTimeAt } from '../core/depot-time';
+import { dateTimeAt } from '@nightyard/contracts/depot-time';
 
 export const STATUS_LABELS: Record<UserStatus, string> = {
   active: 'Active',

@@ -14,7 +14,7 @@ import { AuthStore } from '../auth/auth-store';
 import { toApiProblem } from '../core/api-error';
 import { injectIsPhone } from '../core/layout';
 import { VIEWER_TIME_ZONE } from '../core/depot-time-note';
-import { DepotStore } from '../depots/depot-store';
+import { DepotListStore } from '../depot-state/depot-list-store';
 import { SectionIntro } from '../sections/section-intro';
 import { ConfirmDialog, type ConfirmData } from './confirm-dialog';
 import { InviteDialog } from './invite-dialog';
@@ -54,7 +54,7 @@ export class PeoplePage {
   private readonly dialog = inject(MatDialog);
   private readonly snackBar = inject(MatSnackBar);
   private readonly auth = inject(AuthStore);
-  private readonly depots = inject(DepotStore);
+  private readonly depots = inject(DepotListStore);
   private readonly viewerZone = inject(VIEWER_TIME_ZONE);
 
   /** Phones get a list of people instead of the wide table. */

@@ -11,7 +11,8 @@ import {
   viewChild,
 } from '@angular/core';
 import type { PlanResult } from '@nightyard/contracts';
-import { SHORT_KWH, clock, dayClock, horizonOf, money, naturalCompare, num, priceBands } from './plan-format';
+import { horizonOf } from '@nightyard/contracts/plan-horizon';
+import { NO_HORIZON, SHORT_KWH, clock, dayClock, money, naturalCompare, num, priceBands } from './plan-format';
 import { axisTicks, placeSpan, timelineSegments } from './timeline-scale';
 
 /** A charger the depot has (so an idle one still gets its row). */
@@ -72,7 +73,7 @@ export class ChargerTimeline {
     });
   }
 
-  private readonly horizon = computed(() => horizonOf(this.result()));
+  private readonly horizon = computed(() => horizonOf(this.result()) ?? NO_HORIZON);
   private readonly shortBuses = computed(
     () => new Set(this.result().buses.filter((b) => b.shortfallKwh > SHORT_KWH).map((b) => b.id)),
   );

@@ -1,5 +1,6 @@
 import { baselineName, toCents, type PlanDetail, type PlanResult, type PlanState, type PlanSummary } from '@nightyard/contracts';
-import { dayTimeAt, timeAt, weekdayTimeAt } from '../core/depot-time';
+import { dayTimeAt, timeAt, weekdayTimeAt } from '@nightyard/contracts/depot-time';
+import { horizonOf, type PlanHorizon } from '@nightyard/contracts/plan-horizon';
 
 /** What stops a short bus, in plain words (the engine's `reason` codes). */
 export const REASON_TEXT: Record<string, { label: string; detail: string }> = {
@@ -123,14 +124,8 @@ export function busRows(plan: Pick<PlanDetail, 'result' | 'timezone' | 'busCapac
     .sort((a, b) => Number(b.short) - Number(a.short) || (a.short ? b.shortfallKwh - a.shortfallKwh : 0) || naturalCompare(a.bus, b.bus));
 }
 
-/** The horizon the plan covers, in epoch ms: first slot start to the end of the last slot. */
-export function horizonOf(result: Pick<PlanResult, 'slots'>): { start: number; end: number; slotMs: number } {
-  const starts = result.slots.map((s) => Date.parse(s.start));
-  const slotMs = starts.length > 1 ? starts[1]! - starts[0]! : 15 * 60_000;
-  const start = starts[0] ?? 0;
-  const end = (starts.at(-1) ?? start) + slotMs;
-  return { start, end, slotMs };
-}
+/** What a plan without slots is drawn on (`horizonOf(result) ?? NO_HORIZON`): one empty quarter hour. */
+export const NO_HORIZON: PlanHorizon = { start: 0, end: 15 * 60_000, slotMs: 15 * 60_000 };
 
 /** Where a span [from, to) sits on the horizon, in % of its width (clamped to it). */
 export function spanPct(from: number, to: number, h: { start: number; end: number }): { left: number; width: number } {
@@ -151,7 +146,7 @@ export interface PriceBand {
 }
 
 export function priceBands(result: Pick<PlanResult, 'slots'>): PriceBand[] {
-  const h = horizonOf(result);
+  const h = horizonOf(result) ?? NO_HORIZON;
   const prices = [...new Set(result.slots.map((s) => s.price))].sort((a, b) => a - b);
   const level = (p: number): PriceLevel =>
     prices.length < 2 || p === prices[0] ? 'low' : p === prices.at(-1) ? 'high' : 'mid';
@@ -167,7 +162,7 @@ export function priceBands(result: Pick<PlanResult, 'slots'>): PriceBand[] {
 
 /** Hour marks on the horizon (local hours at the depot), every `step` hours. */
 export function hourTicks(result: Pick<PlanResult, 'slots'>, timeZone: string): { at: number; label: string }[] {
-  const h = horizonOf(result);
+  const h = horizonOf(result) ?? NO_HORIZON;
   const hours = (h.end - h.start) / 3_600_000;
   const step = hours > 16 ? 3 : hours > 8 ? 2 : 1;
   const ticks: { at: number; label: string }[] = [];
@@ -275,7 +270,7 @@ export interface LoweredLimit {
  * merged into runs of equal limit, in depot time.
  */
 export function limitWindows(result: Pick<PlanResult, 'slots'>, timeZone: string): { serviceKw: number; lowered: LoweredLimit[] } {
-  const h = horizonOf(result);
+  const h = horizonOf(result) ?? NO_HORIZON;
   const serviceKw = Math.max(0, ...result.slots.map((s) => s.limitKw));
   const runs: { start: number; end: number; limitKw: number }[] = [];
   for (const s of result.slots) {

@@ -11,12 +11,12 @@ import { ActivatedRoute, Router, RouterLink } from '@angular/router';
 import type { AdoptedPlan, PlanDetail, PlanResult, PlanSummary } from '@nightyard/contracts';
 import { firstValueFrom } from 'rxjs';
 import { toApiProblem } from '../core/api-error';
-import { formatServiceDay } from '../depots/depot-format';
-import { DepotStore } from '../depots/depot-store';
-import { NightStore } from '../depots/night-store';
-import { injectSaveFile, readFileText } from '../fleet/download';
-import { injectCanEditFleet } from '../fleet/fleet-editors';
-import { addDays, isIsoDate } from '../core/depot-time';
+import { formatServiceDay } from '../depot-state/depot-format';
+import { DepotListStore } from '../depot-state/depot-list-store';
+import { NightStore } from '../depot-state/night-store';
+import { injectSaveFile, readFileText } from '../core/save-file';
+import { injectCanEditFleet } from '../auth/role-checks';
+import { addDays, isIsoDate } from '@nightyard/contracts/depot-time';
 import { ProblemSummary, type ProblemItem } from '../shared/problem-summary';
 import { ConfirmDialog, type ConfirmData } from '../people/confirm-dialog';
 import { SectionIntro } from '../sections/section-intro';
@@ -53,7 +53,7 @@ type Reviewable = PlanDetail & { result: PlanResult };
 })
 export class PlansPage {
   private readonly api = inject(PlansApi);
-  private readonly depots = inject(DepotStore);
+  private readonly depots = inject(DepotListStore);
   private readonly nights = inject(NightStore);
   private readonly router = inject(Router);
   private readonly route = inject(ActivatedRoute);

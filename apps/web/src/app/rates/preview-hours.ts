@@ -1,5 +1,5 @@
 import type { RatePreview } from '@nightyard/contracts';
-import { timeAt, zoneName } from '../core/depot-time';
+import { timeAt, zoneName } from '@nightyard/contracts/depot-time';
 
 /** The part of an hour at one price (an hour has several parts when a window starts mid-hour). */
 export interface HourPart {

@@ -1,6 +1,6 @@
 import { ChangeDetectionStrategy, Component, computed, input } from '@angular/core';
 import type { RatePreview } from '@nightyard/contracts';
-import { formatServiceDay } from '../depots/depot-format';
+import { formatServiceDay } from '../depot-state/depot-format';
 import { PriceChart } from './price-chart';
 import { previewHours, type PreviewHour } from './preview-hours';
 import { formatMoney, formatPrice } from './rate-format';

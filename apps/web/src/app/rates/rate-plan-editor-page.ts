@@ -15,7 +15,7 @@ import { toApiProblem } from '../core/api-error';
 import { ClockTimeInput } from '../shared/clock-time-input';
 import { applyServerErrors, errorText } from '../shared/form-paths';
 import { ProblemSummary, type ProblemItem } from '../shared/problem-summary';
-import { injectCanEditSetup } from '../shared/setup-editors';
+import { injectCanEditSetup } from '../auth/role-checks';
 import { DAY_TYPE_LABELS, MONTH_NAMES, windowEndNote } from './rate-format';
 import {
   checkDefinition,

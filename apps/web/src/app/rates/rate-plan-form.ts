@@ -16,6 +16,7 @@ import {
   type Season,
   type TouPeriod,
   type TouWindow,
+  fieldPath,
 } from '@nightyard/contracts';
 import { z } from 'zod';
 import { applyServerErrors, zodValidator, type FieldProblem } from '../shared/form-paths';
@@ -179,12 +180,6 @@ export function definitionOf(form: RatePlanForm): RatePlanDefinition {
   };
 }
 
-function pathOf(path: readonly PropertyKey[]): string {
-  let out = '';
-  for (const p of path) out += typeof p === 'number' ? `[${p}]` : out ? `.${String(p)}` : String(p);
-  return out;
-}
-
 /**
  * The contract's whole-plan checks (seasons cover the year once, windows of a day type do not
  * overlap), run before sending: their messages land on the same controls the API's would.
@@ -193,7 +188,7 @@ export function checkDefinition(form: RatePlanForm): FieldProblem[] {
   const result = ratePlanDefinitionSchema.safeParse(definitionOf(form));
   if (result.success) return [];
   const fields: Record<string, string> = {};
-  for (const issue of result.error.issues) fields[pathOf(issue.path) || 'seasons'] ??= issue.message;
+  for (const issue of result.error.issues) fields[fieldPath(issue.path) || 'seasons'] ??= issue.message;
   return applyServerErrors(form, fields);
 }
 

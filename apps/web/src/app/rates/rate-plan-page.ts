@@ -7,9 +7,9 @@ import { MatSnackBar } from '@angular/material/snack-bar';
 import { Router, RouterLink } from '@angular/router';
 import type { RatePlan } from '@nightyard/contracts';
 import { toApiProblem } from '../core/api-error';
-import { DepotStore } from '../depots/depot-store';
+import { DepotListStore } from '../depot-state/depot-list-store';
 import { ConfirmDialog, type ConfirmData } from '../people/confirm-dialog';
-import { injectCanEditSetup } from '../shared/setup-editors';
+import { injectCanEditSetup } from '../auth/role-checks';
 import { RatePlanSummary } from './rate-plan-summary';
 import { RatePreviewPanel } from './rate-preview-panel';
 import { RatesApi } from './rates-api';
@@ -82,7 +82,7 @@ import { RatesApi } from './rates-api';
 })
 export class RatePlanPage {
   private readonly api = inject(RatesApi);
-  private readonly depots = inject(DepotStore);
+  private readonly depots = inject(DepotListStore);
   private readonly dialog = inject(MatDialog);
   private readonly snackBar = inject(MatSnackBar);
   private readonly router = inject(Router);

@@ -8,7 +8,7 @@ import { MatProgressBarModule } from '@angular/material/progress-bar';
 import type { RatePreview } from '@nightyard/contracts';
 import { toApiProblem } from '../core/api-error';
 import { Clock } from '../core/clock';
-import { ISO_DATE, addDays as shift } from '../core/depot-time';
+import { ISO_DATE, addDays as shift } from '@nightyard/contracts/depot-time';
 import { RateDay } from './rate-day';
 import { RatesApi } from './rates-api';
 

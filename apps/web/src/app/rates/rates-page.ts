@@ -14,12 +14,12 @@ import { toApiProblem } from '../core/api-error';
 import { DepotApi } from '../depot/depot-api';
 import { Clock } from '../core/clock';
 import { formatDate } from '../depot/depot-setup-format';
-import { DepotStore } from '../depots/depot-store';
+import { DepotListStore } from '../depot-state/depot-list-store';
 import { ConfirmDialog, type ConfirmData } from '../people/confirm-dialog';
 import { SectionIntro } from '../sections/section-intro';
 import { applyServerErrors, errorText, zodValidator } from '../shared/form-paths';
 import { ProblemSummary, type ProblemItem } from '../shared/problem-summary';
-import { injectCanEditSetup } from '../shared/setup-editors';
+import { injectCanEditSetup } from '../auth/role-checks';
 import { monthRange } from './rate-format';
 import { RatesApi } from './rates-api';
 import { UrdbDraft } from './urdb-draft';
@@ -68,7 +68,7 @@ export function urdbFileProblem(name: string, text: string): string | null {
 export class RatesPage {
   private readonly api = inject(RatesApi);
   private readonly depotApi = inject(DepotApi);
-  private readonly depots = inject(DepotStore);
+  private readonly depots = inject(DepotListStore);
   private readonly clock = inject(Clock);
   private readonly draft = inject(UrdbDraft);
   private readonly router = inject(Router);

@@ -1,6 +1,6 @@
 import { Directive, inject } from '@angular/core';
 import { NgControl, type ValidatorFn } from '@angular/forms';
-import { CLOCK_TIME, CLOCK_TIME_MESSAGE, normaliseClockTime } from '../core/depot-time';
+import { CLOCK_TIME, CLOCK_TIME_MESSAGE, normaliseClockTime } from '@nightyard/contracts/depot-time';
 
 /**
  * A time of day typed as `HH:mm`, 24-hour, in a plain text field (the browser's own time field

@@ -1,19 +1,11 @@
 import type { AbstractControl, ValidatorFn } from '@angular/forms';
 import type { ZodType } from 'zod';
+import { fieldPathSegments } from '@nightyard/contracts/field-path';
 
 /** A field message from the API that no visible control shows. */
 export interface FieldProblem {
   path: string;
   message: string;
-}
-
-/** `definition.seasons[0].periods[1].windows[0]` or `[1].start` as control path segments. */
-export function pathSegments(path: string): (string | number)[] {
-  const out: (string | number)[] = [];
-  for (const part of path.match(/[^.[\]]+|\[\d+\]/g) ?? []) {
-    out.push(part.startsWith('[') ? Number(part.slice(1, -1)) : part);
-  }
-  return out;
 }
 
 /**
@@ -28,7 +20,7 @@ export function applyServerErrors(
 ): FieldProblem[] {
   const leftOver: FieldProblem[] = [];
   for (const [path, message] of Object.entries(fields)) {
-    let segments = pathSegments(path);
+    let segments = fieldPathSegments(path);
     if (prefix && segments[0] === prefix) segments = segments.slice(1);
     const control = segments.length ? root.get(segments) : null;
     if (control) {

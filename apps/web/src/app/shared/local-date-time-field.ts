@@ -4,7 +4,7 @@ import { FormControl, NgControl, ReactiveFormsModule, type ControlValueAccessor 
 import type { ErrorStateMatcher } from '@angular/material/core';
 import { MatFormFieldModule } from '@angular/material/form-field';
 import { MatInputModule } from '@angular/material/input';
-import { CLOCK_TIME, CLOCK_TIME_MESSAGE, ISO_DATE } from '../core/depot-time';
+import { CLOCK_TIME, CLOCK_TIME_MESSAGE, ISO_DATE } from '@nightyard/contracts/depot-time';
 import { ClockTimeInput } from './clock-time-input';
 import { errorText } from './form-paths';
 

@@ -19,7 +19,7 @@ import { filter } from 'rxjs';
 import { AuthStore } from '../auth/auth-store';
 import { injectIsPhone } from '../core/layout';
 import { ThemeStore, type ThemeChoice } from '../core/theme-store';
-import { DepotStore } from '../depots/depot-store';
+import { DepotListStore } from '../depot-state/depot-list-store';
 
 interface ThemeOption {
   value: ThemeChoice;
@@ -50,7 +50,7 @@ interface ThemeOption {
 })
 export class Shell {
   private readonly auth = inject(AuthStore);
-  private readonly depots = inject(DepotStore);
+  private readonly depots = inject(DepotListStore);
   private readonly router = inject(Router);
   private readonly document = inject(DOCUMENT);
   protected readonly theme = inject(ThemeStore);

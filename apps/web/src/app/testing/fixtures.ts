@@ -1,4 +1,5 @@
 import type { DepotNight, DepotSummary, Role, SessionUser, ServiceNight, TokenResponse, User } from '@nightyard/contracts';
+import { addDays } from '@nightyard/contracts/depot-time';
 
 /** Test data for unit tests (client side only; HTTP is faked with HttpTestingController). */
 export function sessionUser(roles: Role[], overrides: Partial<SessionUser> = {}): SessionUser {
@@ -61,9 +62,7 @@ export async function settle(): Promise<void> {
  */
 export function depotNight(serviceDate: string, now: string, overrides: Partial<DepotNight> = {}): DepotNight {
   const night = (date: string): ServiceNight => {
-    const next = new Date(`${date}T00:00:00Z`);
-    next.setUTCDate(next.getUTCDate() + 1);
-    const nextDate = next.toISOString().slice(0, 10);
+    const nextDate = addDays(date, 1);
     return { serviceDate: date, nextServiceDate: nextDate, start: `${date}T14:00:00-06:00`, end: `${nextDate}T06:30:00-06:00`, fromRuns: true };
   };
   const tonight = night(serviceDate);

@@ -1,7 +1,7 @@
 import { Injectable, type Provider } from '@angular/core';
 import type { LiveEvent } from '@nightyard/contracts';
 import { Observable, Subject } from 'rxjs';
-import { LiveTransport } from '../depots/live-transport';
+import { LiveTransport } from '../depot-state/live-transport';
 
 export interface FakeStream {
   depotId: string;

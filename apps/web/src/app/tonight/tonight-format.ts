@@ -1,5 +1,5 @@
 import type { Charger, PlanDetail } from '@nightyard/contracts';
-import { addDays } from '../core/depot-time';
+import { addDays } from '@nightyard/contracts/depot-time';
 import { SHORT_KWH, naturalCompare, reasonText } from '../plans/plan-format';
 
 /** How many nights before tonight the page looks back for a published plan. */

@@ -5,7 +5,7 @@ import { ComponentFixture, TestBed } from '@angular/core/testing';
 import { provideRouter } from '@angular/router';
 import type { Charger, PlanDetail, PlanSummary, Role } from '@nightyard/contracts';
 import { AuthStore } from '../auth/auth-store';
-import { DepotStore } from '../depots/depot-store';
+import { DepotListStore } from '../depot-state/depot-list-store';
 import { DEPOT_ID } from '../fleet/fleet-fixtures';
 import { PLAN_IDS, planDetail, planSummary } from '../plans/plan-fixtures';
 import { Clock } from '../core/clock';
@@ -50,7 +50,7 @@ describe('TonightPage', () => {
         provideFakeLive(),
         { provide: AuthStore, useValue: { roles: signal(roles) } },
         {
-          provide: DepotStore,
+          provide: DepotListStore,
           useValue: { load: () => Promise.resolve(), state: signal('loaded'), error: signal(null), current: computed(() => current()) },
         },
       ],

@@ -4,17 +4,17 @@ import { MatCardModule } from '@angular/material/card';
 import { MatIconModule } from '@angular/material/icon';
 import { MatProgressBarModule } from '@angular/material/progress-bar';
 import { RouterLink } from '@angular/router';
-import { SECTIONS, hasAnyRole, type DepotDetail, type PlanDetail, type Role } from '@nightyard/contracts';
+import { PLANNERS, PLAN_READERS, hasAnyRole, type DepotDetail, type PlanDetail } from '@nightyard/contracts';
 import { AuthStore } from '../auth/auth-store';
 import { toApiProblem } from '../core/api-error';
 import { Clock } from '../core/clock';
-import { ChargerFaults, faultsOf } from '../depots/charger-faults';
-import { outAt } from '../depots/charger-out';
-import { CurrentDepot } from '../depots/current-depot';
-import { formatServiceDay } from '../depots/depot-format';
-import { DepotStore } from '../depots/depot-store';
-import { LiveStore, reloadOnLive, type LiveDepot } from '../depots/live-store';
-import { NightStore, type NightDepot } from '../depots/night-store';
+import { ChargerFaults, faultsOf } from '../depot-state/charger-faults';
+import { outAt } from '../depot-state/charger-out';
+import { CurrentDepot } from '../depot-state/current-depot';
+import { formatServiceDay } from '../depot-state/depot-format';
+import { DepotListStore } from '../depot-state/depot-list-store';
+import { LiveStore, reloadOnLive, type LiveDepot } from '../depot-state/live-store';
+import { NightStore, type NightDepot } from '../depot-state/night-store';
 import { money, naturalCompare, nightComparison, num, when } from '../plans/plan-format';
 import { PlansApi } from '../plans/plans-api';
 import { SectionIntro } from '../sections/section-intro';
@@ -23,8 +23,6 @@ import { NIGHTS_BACK, candidateNights, liveCounts, liveStateOf, LIVE_STATES, pea
 type LoadState = 'idle' | 'loading' | 'loaded' | 'failed';
 
 /** Who may generate and publish plans (the API's planners). */
-const PLANNERS: readonly Role[] = ['supervisor', 'admin'];
-const PLAN_READERS = SECTIONS.find((s) => s.key === 'plans')?.roles ?? [];
 
 /**
  * The night ahead at a glance: the depot's summary, tonight's published plan (buses, plug-ins,
@@ -39,7 +37,7 @@ const PLAN_READERS = SECTIONS.find((s) => s.key === 'plans')?.roles ?? [];
   host: { class: 'ny-page' },
 })
 export class TonightPage {
-  private readonly depots = inject(DepotStore);
+  private readonly depots = inject(DepotListStore);
   private readonly api = inject(PlansApi);
   private readonly auth = inject(AuthStore);
   private readonly nights = inject(NightStore);

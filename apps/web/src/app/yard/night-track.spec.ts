@@ -1,7 +1,7 @@
 import { TestBed } from '@angular/core/testing';
 import { NightTrack } from './night-track';
 import { ZONE, at, plan } from './yard-fixtures';
-import { horizonOf } from './yard-format';
+import { horizonOf } from '@nightyard/contracts/plan-horizon';
 
 describe('NightTrack', () => {
   async function render(now: string) {

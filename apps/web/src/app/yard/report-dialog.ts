@@ -12,7 +12,7 @@ import { MatSelectModule } from '@angular/material/select';
 import { yardReportSchema, type YardReportResult } from '@nightyard/contracts';
 import type { ZodType } from 'zod';
 import { applyFieldErrors, toApiProblem } from '../core/api-error';
-import { CLOCK_TIME } from '../core/depot-time';
+import { CLOCK_TIME } from '@nightyard/contracts/depot-time';
 import { ClockTimeInput, clockTimeValidator } from '../shared/clock-time-input';
 import { YardApi, type YardReportRequest } from './yard-api';
 import { day, clock, expectedAtFor } from './yard-format';

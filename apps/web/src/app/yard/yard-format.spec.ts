@@ -1,7 +1,7 @@
+import { horizonOf } from '@nightyard/contracts/plan-horizon';
 import { at, step, tonight, ZONE } from './yard-fixtures';
 import {
   expectedAtFor,
-  horizonOf,
   hourTicks,
   isNightAt,
   dueText,

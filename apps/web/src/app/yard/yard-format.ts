@@ -1,5 +1,5 @@
 import type { Charger, PlanDetail, PlanResult, Tonight, YardStep } from '@nightyard/contracts';
-import { addDays, dayAt, depotParts, timeAt } from '../core/depot-time';
+import { addDays, dayAt, depotParts, timeAt } from '@nightyard/contracts/depot-time';
 
 /** Times, the night's span, steps and chargers as the yard reads them. Pure functions only. */
 
@@ -52,13 +52,6 @@ export function isNightAt(nowMs: number, night: Horizon | null): boolean {
 export interface Horizon {
   start: number;
   end: number;
-}
-
-export function horizonOf(result: PlanResult): Horizon | null {
-  const first = result.slots[0];
-  const last = result.slots.at(-1);
-  if (!first || !last) return null;
-  return { start: Date.parse(first.start), end: Date.parse(last.start) + SLOT_MS };
 }
 
 /** Where an instant sits across the night, 0-100 (clamped). */

@@ -6,7 +6,7 @@ import { MatDialog } from '@angular/material/dialog';
 import { provideRouter } from '@angular/router';
 import type { Tonight } from '@nightyard/contracts';
 import { AuthStore } from '../auth/auth-store';
-import { DepotStore } from '../depots/depot-store';
+import { DepotListStore } from '../depot-state/depot-list-store';
 import { depot, settle } from '../testing/fixtures';
 import { FakeLiveTransport, provideFakeLive } from '../testing/live-fake';
 import { OUTBOX_STORAGE_KEY } from './confirmation-outbox';
@@ -41,7 +41,7 @@ describe('YardPage', () => {
         provideFakeLive(),
         { provide: MatDialog, useValue: { open } },
         { provide: AuthStore, useValue: { user: signal({ id: 'user-1' }) } },
-        { provide: DepotStore, useValue: { load: () => Promise.resolve(), state: signal('loaded'), current: computed(() => current()) } },
+        { provide: DepotListStore, useValue: { load: () => Promise.resolve(), state: signal('loaded'), current: computed(() => current()) } },
       ],
     });
     mock = TestBed.inject(HttpTestingController);

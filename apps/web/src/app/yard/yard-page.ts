@@ -15,11 +15,11 @@ import { MatDialog } from '@angular/material/dialog';
 import { MatIconModule } from '@angular/material/icon';
 import { MatMenuModule } from '@angular/material/menu';
 import { MatProgressBarModule } from '@angular/material/progress-bar';
-import { isIsoDate } from '../core/depot-time';
+import { isIsoDate } from '@nightyard/contracts/depot-time';
 import { injectIsPhone } from '../core/layout';
 import { ThemeStore } from '../core/theme-store';
-import { ChargerFaults, faultsOf } from '../depots/charger-faults';
-import { DepotStore } from '../depots/depot-store';
+import { ChargerFaults, faultsOf } from '../depot-state/charger-faults';
+import { DepotListStore } from '../depot-state/depot-list-store';
 import { SectionIntro } from '../sections/section-intro';
 import { ChargerCard } from './charger-card';
 import { NextHour } from './next-hour';
@@ -56,7 +56,7 @@ import { YardStore } from './yard-store';
 })
 export class YardPage {
   protected readonly store = inject(YardStore);
-  private readonly depots = inject(DepotStore);
+  private readonly depots = inject(DepotListStore);
   private readonly dialog = inject(MatDialog);
   private readonly theme = inject(ThemeStore);
   private readonly document = inject(DOCUMENT);

@@ -2,11 +2,11 @@ import { DOCUMENT, DestroyRef, Injectable, Injector, computed, inject, signal, t
 import type { Charger, PlanResult, Tonight, YardReportResult } from '@nightyard/contracts';
 import { toApiProblem } from '../core/api-error';
 import { Clock } from '../core/clock';
-import { LiveStore, reloadOnLive, type LiveDepot } from '../depots/live-store';
+import { LiveStore, reloadOnLive, type LiveDepot } from '../depot-state/live-store';
 import { ConfirmationOutbox } from './confirmation-outbox';
 import { YardApi } from './yard-api';
+import { horizonOf } from '@nightyard/contracts/plan-horizon';
 import {
-  horizonOf,
   liveView,
   naturalCompare,
   nextHour,

@@ -1,5 +1,5 @@
 import type { Charger } from '@nightyard/contracts';
-import { depotParts } from '../core/depot-time';
+import { depotParts } from '@nightyard/contracts/depot-time';
 
 /**
  * Is the charger out of service at this instant? One out for a period (depot time, either end

@@ -1,20 +1,20 @@
 import { DateTime } from 'luxon';
 import { eq, sql } from 'drizzle-orm';
 import { parseScenario } from '@nightyard/scheduling';
-import { runInPool } from '../../apps/api/src/workers/pool';
-import { buildNightScenario } from '../../apps/api/src/plans/night-scenario';
-import type { Db } from '../../apps/api/src/db/client';
+import { runInPool } from '../workers/pool';
+import { buildNightScenario } from '../plans/night-scenario';
+import type { Db } from '../db/client';
 import {
   billingPeaks, buses, chargers, depotRatePlans, depots, organisations, plans, powerCabinets, ratePlans, runs, serviceDays, users, yardConfirmations,
-} from '../../apps/api/src/db/schema';
-import { hashPassword } from '../../apps/api/src/auth/secrets';
-import { nightOfDepot } from '../../apps/api/src/night/depot-night';
-import { yardSteps } from '../../apps/api/src/yard/yard-steps';
+} from '../db/schema';
+import { hashPassword } from '../auth/secrets';
+import { nightOfDepot } from '../night/depot-night';
+import { yardSteps } from '../yard/yard-steps';
 import type { PlanResult } from '@nightyard/contracts';
 import {
   DEMO_CHARGER_PASSWORD, DEMO_PASSWORD, demoBuses, demoChargerIdentity, demoCabinets, demoChargers, demoDepot, demoForecastLowF, demoOrganisation, demoRatePlan,
   demoRunsForBus, demoUsers,
-} from './demo-depot';
+} from '@nightyard/demo';
 
 /** True when no organisation exists yet: a new database. */
 export async function isEmpty(db: Db): Promise<boolean> {
@@ -144,12 +144,12 @@ async function publishDemoNights(db: Db, organisationId: string, depotId: string
     const publishedAt = underWay ? new Date(Math.min(now.getTime(), Date.parse(n.start)) - 30 * 60_000) : now;
     const [row] = await db.insert(plans).values({
       organisationId, depotId, serviceDate: n.serviceDate, version: 1, kind: 'generated', state: 'published',
-      status: 'done', stage: 'Done', includesMidday: false, scenario: scenario as unknown as Record<string, unknown>, notes,
-      result: result as unknown as Record<string, unknown>, createdBy: caller.id, createdAt: publishedAt, publishedBy: caller.id, publishedAt,
+      status: 'done', stage: 'Done', includesMidday: false, scenario, notes,
+      result, createdBy: caller.id, createdAt: publishedAt, publishedBy: caller.id, publishedAt,
     }).returning({ id: plans.id });
     if (underWay) {
       // The crew kept up until ten minutes ago.
-      const due = yardSteps(result as unknown as PlanResult, now, new Map()).filter((s) => Date.parse(s.at) <= now.getTime() - 10 * 60_000);
+      const due = yardSteps(result, now, new Map()).filter((s) => Date.parse(s.at) <= now.getTime() - 10 * 60_000);
       if (due.length) {
         await db.insert(yardConfirmations).values(due.map((s) => ({
           organisationId, depotId, serviceDate: n.serviceDate, stepKey: s.key, planId: row!.id,

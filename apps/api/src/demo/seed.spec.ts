@@ -3,9 +3,9 @@ import { and, eq } from 'drizzle-orm';
 import { DateTime } from 'luxon';
 import { afterAll, describe, expect, it } from 'vitest';
 import { parseScenario } from '@nightyard/scheduling';
-import { createDb, createPool } from '../../apps/api/src/db/client';
-import { buses, chargers, plans, runs, users, yardConfirmations } from '../../apps/api/src/db/schema';
-import { TEST_DATABASE_URL } from '../../apps/api/src/testing/test-env';
+import { createDb, createPool } from '../db/client';
+import { buses, chargers, plans, runs, users, yardConfirmations } from '../db/schema';
+import { TEST_DATABASE_URL } from '../testing/test-env';
 import { seedDemo } from './seed';
 
 const ZONE = 'America/Chicago';
@@ -36,7 +36,7 @@ describe('demo seed', () => {
     for (const plan of published) {
       expect(plan.status).toBe('done');
       expect(parseScenario(plan.scenario).ok).toBe(true);
-      const result = plan.result as { buses: { shortfallKwh: number }[]; sessions: unknown[] };
+      const result = plan.result!;
       expect(result.buses).toHaveLength(24);
       expect(result.sessions.length).toBeGreaterThanOrEqual(24);
       expect(plan.publishedAt!.getTime()).toBeLessThanOrEqual(at('2026-12-01T15:00').getTime());

@@ -4,7 +4,7 @@ import type { DepotNight, DepotSummary } from '@nightyard/contracts';
 import { firstValueFrom } from 'rxjs';
 import { toApiProblem } from '../core/api-error';
 import { Clock } from '../core/clock';
-import { depotDate } from '../core/depot-time';
+import { depotDate } from '@nightyard/contracts/depot-time';
 
 type LoadState = 'idle' | 'loading' | 'loaded' | 'failed';
 export type NightDepot = Pick<DepotSummary, 'id' | 'timezone'>;

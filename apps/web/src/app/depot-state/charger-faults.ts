@@ -2,12 +2,10 @@ import { ChangeDetectionStrategy, Component, computed, inject, input, output } f
 import { MatButtonModule } from '@angular/material/button';
 import { MatIconModule } from '@angular/material/icon';
 import { RouterLink } from '@angular/router';
-import { SECTIONS, hasAnyRole, type Charger } from '@nightyard/contracts';
+import { YARD_CREW, hasAnyRole, type Charger } from '@nightyard/contracts';
 import { AuthStore } from '../auth/auth-store';
-import { timeAt } from '../core/depot-time';
+import { timeAt } from '@nightyard/contracts/depot-time';
 
-/** Who may report a charger out of service in Yard, which re-plans the night. */
-const REPLANNERS = SECTIONS.find((s) => s.key === 'yard')?.roles ?? [];
 
 export interface ChargerFault {
   label: string;
@@ -81,5 +79,5 @@ export class ChargerFaults {
   readonly replan = output<string>();
 
   protected readonly faults = computed(() => faultsOf(this.chargers(), this.timezone()));
-  protected readonly canReplan = computed(() => hasAnyRole(this.auth.roles(), REPLANNERS));
+  protected readonly canReplan = computed(() => hasAnyRole(this.auth.roles(), YARD_CREW));
 }

@@ -1,7 +1,7 @@
 import { ChangeDetectionStrategy, Component, inject, input } from '@angular/core';
 import { MatButtonModule } from '@angular/material/button';
 import { MatProgressBarModule } from '@angular/material/progress-bar';
-import { DepotStore } from './depot-store';
+import { DepotListStore } from './depot-list-store';
 import { DepotSummaryCard } from './depot-summary-card';
 
 /** The current depot's summary card, with its loading, failure and empty states. */
@@ -36,7 +36,7 @@ import { DepotSummaryCard } from './depot-summary-card';
   `,
 })
 export class CurrentDepot {
-  protected readonly store = inject(DepotStore);
+  protected readonly store = inject(DepotListStore);
   readonly prominent = input(false);
 
   constructor() {

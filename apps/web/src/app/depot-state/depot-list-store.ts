@@ -8,7 +8,7 @@ type LoadState = 'idle' | 'loading' | 'loaded' | 'failed';
 
 /** The organisation's depots (GET /api/depots), loaded once per session. */
 @Injectable({ providedIn: 'root' })
-export class DepotStore {
+export class DepotListStore {
   private readonly http = inject(HttpClient);
 
   readonly depots = signal<readonly DepotSummary[]>([]);

@@ -2,8 +2,9 @@ import { DOCUMENT } from '@angular/common';
 import { inject } from '@angular/core';
 
 /**
- * Returns a function that saves a Blob as a file (API downloads need the bearer token, so they
- * are fetched first and then handed to the browser). Shared with the Plans section.
+ * Returns a function that saves a Blob as a file: API downloads (they need the bearer token, so
+ * they are fetched first and then handed to the browser) and files made in the page (CSV). Call
+ * in an injection context.
  */
 export function injectSaveFile(): (blob: Blob, fileName: string) => void {
   const document = inject(DOCUMENT);

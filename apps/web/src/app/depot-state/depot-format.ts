@@ -1,4 +1,4 @@
-import { timeAt } from '../core/depot-time';
+import { timeAt } from '@nightyard/contracts/depot-time';
 
 const CLOCK = /^(\d{1,2}):(\d{2})(?::\d{2})?$/;
 

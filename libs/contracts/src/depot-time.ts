@@ -1,7 +1,9 @@
 /**
- * Time at the depot: every instant the app shows is written on the depot's wall clock (its IANA
- * zone), 24-hour, whatever zone the browser is in; every "today" is the depot's date. Pure
- * functions: "now" comes from the Clock service and is passed in.
+ * Time at the depot, one module for the API, the web app and the night model: every instant shown
+ * is written on the depot's wall clock (its IANA zone), 24-hour, whatever zone the reader is in;
+ * every "today" is the depot's date (`depotDate(now, zone)`); calendar dates move with `addDays`.
+ * Pure functions on Intl (no zod, no luxon: the web app's first download may import it): "now"
+ * comes from the API's `deps.clock` or the web app's `Clock` and is passed in.
  */
 
 export type Instant = string | number | Date;
