@@ -20,10 +20,14 @@ test('a yard user follows the link of a revised-plan e-mail and lands on the Yar
   const token = await apiToken(district.emails.yard);
   const auth = { authorization: `Bearer ${token}`, 'content-type': 'application/json' };
   const tonight = (await (await fetch(`${API}/api/depots/${district.depotId}/tonight`, { headers: auth })).json()) as {
-    plan: { id: string; serviceDate: string; result: { sessions: { charger: string; end: string; kw: number[] }[] } };
+    plan: { id: string; serviceDate: string };
+  };
+  // The whole plan, with each plug-in's power (Tonight gives the yard the plug-ins only).
+  const { plan } = (await (await fetch(`${API}/api/plans/${tonight.plan.id}`, { headers: auth })).json()) as {
+    plan: { result: { sessions: { charger: string; end: string; kw: number[] }[] } };
   };
   const now = (await apiNow()).getTime();
-  const charger = tonight.plan.result.sessions.find((s) => Date.parse(s.end) > now + 20 * 60_000 && s.kw.some((k) => k > 0))!.charger;
+  const charger = plan.result.sessions.find((s) => Date.parse(s.end) > now + 20 * 60_000 && s.kw.some((k) => k > 0))!.charger;
   const report = await fetch(`${API}/api/depots/${district.depotId}/tonight/reports`, {
     method: 'POST', headers: auth, body: JSON.stringify({ planId: tonight.plan.id, kind: 'charger_out', charger, reason: 'Latch broken (e2e)' }),
   });

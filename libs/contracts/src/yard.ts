@@ -34,10 +34,33 @@ export const yardStepSchema = z.object({
 });
 export type YardStep = z.infer<typeof yardStepSchema>;
 
+/** A plug-in as the yard sees it: which bus, which charger, from when to when, and how much energy. */
+export const yardSessionSchema = z.object({
+  bus: z.string(), charger: z.string(), start: z.string(), end: z.string(), kwh: z.number(),
+  startMove: z.enum(['driver', 'crew']).optional(),
+  endMove: z.enum(['driver', 'crew']).optional(),
+});
+export type YardSession = z.infer<typeof yardSessionSchema>;
+
+/**
+ * Tonight's plan as the yard uses it: the plan's facts and its plug-ins, without what only the
+ * office reads (the power of every quarter hour, the site load, prices, baselines, every note).
+ * The Yard asks for it on every load and refresh, often over a phone's connection; the whole plan
+ * is at /plans/{id}.
+ */
+export const tonightPlanSchema = planDetailSchema.omit({ result: true, notes: true }).extend({
+  /** The span the plan covers (epoch ms), null while it has no result. */
+  horizon: z.object({ start: z.number(), end: z.number(), slotMs: z.number() }).nullable(),
+  sessions: z.array(yardSessionSchema),
+  /** The newest "Revised at HH:mm: ..." note, null for a plan never revised. */
+  revisionNote: z.string().nullable(),
+});
+export type TonightPlan = z.infer<typeof tonightPlanSchema>;
+
 export const tonightSchema = z.object({
   depot: z.object({ id: z.uuid(), name: z.string(), timezone: z.string() }),
   now: z.string(),
-  plan: planDetailSchema.nullable(),
+  plan: tonightPlanSchema.nullable(),
   steps: z.array(yardStepSchema),
   /** Has the caller acknowledged the high-voltage cautions for this night? */
   acknowledged: z.boolean(),

@@ -1,7 +1,7 @@
 import { aliasedTable, and, eq, getTableColumns, sql } from 'drizzle-orm';
 import { DateTime } from 'luxon';
 import {
-  planResultSchema, tonightSchema, type PlanResult, type Tonight, type YardReport, type YardReportResult, type YardStep,
+  planResultSchema, tonightSchema, type PlanDetail, type PlanResult, type Tonight, type TonightPlan, type YardReport, type YardReportResult, type YardStep,
   horizonOf,
 } from '@nightyard/contracts';
 import { parseScenario, ReplanStateError, type Plan, type ScenarioInput } from '@nightyard/scheduling';
@@ -187,10 +187,21 @@ async function computeTonight(db: Db, base: Pick<Tonight, 'depot' | 'now'>, zone
     .sort((x, y) => x.at.getTime() - y.at.getTime());
   return {
     ...base,
-    plan: planDetailOf(plan, createdBy, publishedBy, documents.result, documents.scenario),
+    plan: tonightPlanOf(planDetailOf(plan, createdBy, publishedBy, documents.result, documents.scenario)),
     steps: yardSteps(documents.result, new Date(base.now), confirmations, { zone, chargersOut }),
     acknowledged,
     reports,
+  };
+}
+
+/** The plan as the yard uses it (see tonightPlanSchema). */
+function tonightPlanOf(detail: PlanDetail): TonightPlan {
+  const { result, notes, ...facts } = detail;
+  return {
+    ...facts,
+    horizon: result ? horizonOf(result) : null,
+    sessions: (result?.sessions ?? []).map(({ kw: _kw, ...session }) => session),
+    revisionNote: notes.findLast((n) => n.startsWith('Revised at ')) ?? null,
   };
 }
 

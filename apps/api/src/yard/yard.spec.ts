@@ -18,6 +18,8 @@ let sup: TestUser;
 let depotId: string;
 let otherDepotBus: string;
 const as = (u: TestUser) => ({ Authorization: `Bearer ${u.token}` });
+/** A plan's whole result (Tonight gives the yard its plug-ins only). */
+const planResult = async (id: string): Promise<PlanResult> => (await app.request().get(`/api/plans/${id}`).set(as(yard)).expect(200)).body.plan.result;
 const NUMBERS = ['41', '42', '43', '44'];
 
 async function tonight() {
@@ -46,7 +48,12 @@ describe('yard: tonight and confirmations', () => {
     expect(t.plan.state).toBe('published');
     expect(t.acknowledged).toBe(false);
     const connects = t.steps.filter((s: { action: string }) => s.action === 'connect');
-    expect(connects.length).toBe(t.plan.result.sessions.length);
+    expect(connects.length).toBe(t.plan.sessions.length);
+    // The yard gets the plug-ins without their quarter-hour power, and none of the office's figures.
+    expect(t.plan.sessions.length).toBe((await planResult(t.plan.id)).sessions.length);
+    expect(t.plan.sessions[0]).not.toHaveProperty('kw');
+    expect(t.plan).not.toHaveProperty('result');
+    expect(t.plan).not.toHaveProperty('notes');
     for (const s of t.steps) expect(s.status).toBe(Date.parse(s.at) + 600_000 < clock.getTime() ? 'overdue' : 'upcoming');
   });
 
@@ -77,12 +84,14 @@ describe('yard: tonight and confirmations', () => {
 describe('yard: reports re-plan the rest of the night', () => {
   it('charger out of service at 23:00: no session uses it after 23:00; energy delivered before stays counted', async () => {
     const before = await tonight();
-    const prev: PlanResult = before.plan.result;
+    const prev = await planResult(before.plan.id);
     const cut = clock.getTime();
     const charger = prev.sessions.find((s) => Date.parse(s.end) > cut && s.kw.some((k) => k > 0))!.charger;
     const res = await app.request().post(`/api/depots/${depotId}/tonight/reports`).set(as(yard))
       .send({ planId: before.plan.id, kind: 'charger_out', charger, reason: 'Connector latch broken' }).expect(201);
     expect(res.body.revision).toMatchObject({ kind: 'revision', state: 'published', version: 2 });
+    expect(before.plan.revisionNote).toBeNull();
+    expect((await tonight()).plan.revisionNote).toBe(`Revised at 23:00: charger ${charger} out of service (Connector latch broken).`);
     const [row] = await app.db.select().from(plans).where(eq(plans.id, res.body.revision.id));
     const next = row!.result!;
     for (const s of next.sessions.filter((x) => x.charger === charger)) {
@@ -111,7 +120,7 @@ describe('yard: reports re-plan the rest of the night', () => {
     clock = DateTime.fromISO('2026-12-09T23:30', { zone: ZONE }).toJSDate();
     await signInAgain(app, yard, sup);
     const before = await tonight();
-    const prev: PlanResult = before.plan.result;
+    const prev = await planResult(before.plan.id);
     const cut = clock.getTime();
     // A bus with charging still to come after the cut-off.
     const bus = prev.sessions.find((s) => Date.parse(s.end) > cut)!.bus;
@@ -165,7 +174,8 @@ describe('yard: reports re-plan the rest of the night', () => {
     }
     await publishedPlan(app, org.users.s!, depot, '2026-12-21');
     const t = (await app.request().get(`/api/depots/${depot}/tonight`).set(as(org.users.y!)).expect(200)).body;
-    expect(Date.parse(t.plan.result.slots[0].start)).toBeGreaterThan(clock.getTime());
+    expect(t.plan.horizon.start).toBeGreaterThan(clock.getTime());
+    expect(t.plan.horizon.start).toBe(Date.parse((await app.request().get(`/api/plans/${t.plan.id}`).set(as(org.users.y!)).expect(200)).body.plan.result.slots[0]!.start));
     const res = await app.request().post(`/api/depots/${depot}/tonight/reports`).set(as(org.users.y!))
       .send({ planId: t.plan.id, kind: 'charger_out', charger: 'A', reason: 'Cable worn' }).expect(201);
     const [row] = await app.db.select().from(plans).where(eq(plans.id, res.body.revision.id));

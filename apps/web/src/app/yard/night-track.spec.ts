@@ -1,15 +1,14 @@
 import { TestBed } from '@angular/core/testing';
 import { NightTrack } from './night-track';
 import { ZONE, at, plan } from './yard-fixtures';
-import { horizonOf } from '@nightyard/contracts/plan-horizon';
 
 describe('NightTrack', () => {
   async function render(now: string) {
     const fixture = TestBed.createComponent(NightTrack);
-    const result = plan().result!;
+    const tonightsPlan = plan();
     fixture.componentRef.setInput('charger', 'C1');
-    fixture.componentRef.setInput('sessions', result.sessions.filter((s) => s.charger === 'C1'));
-    fixture.componentRef.setInput('horizon', horizonOf(result));
+    fixture.componentRef.setInput('sessions', tonightsPlan.sessions.filter((s) => s.charger === 'C1'));
+    fixture.componentRef.setInput('horizon', tonightsPlan.horizon);
     fixture.componentRef.setInput('now', Date.parse(now));
     fixture.componentRef.setInput('timezone', ZONE);
     await fixture.whenStable();

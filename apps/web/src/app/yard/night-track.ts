@@ -1,5 +1,5 @@
 import { ChangeDetectionStrategy, Component, computed, input } from '@angular/core';
-import type { PlanResult } from '@nightyard/contracts';
+import type { YardSession } from '@nightyard/contracts';
 import { clock, hourTicks, nowLinePct, pct, type Horizon } from './yard-format';
 
 /**
@@ -121,7 +121,7 @@ import { clock, hourTicks, nowLinePct, pct, type Horizon } from './yard-format';
 })
 export class NightTrack {
   readonly charger = input.required<string>();
-  readonly sessions = input.required<PlanResult['sessions']>();
+  readonly sessions = input.required<readonly YardSession[]>();
   readonly horizon = input.required<Horizon>();
   readonly now = input.required<number>();
   readonly timezone = input.required<string>();

@@ -1,4 +1,4 @@
-import type { Charger, PlanDetail, Tonight, YardStep } from '@nightyard/contracts';
+import type { Charger, Tonight, TonightPlan, YardStep } from '@nightyard/contracts';
 
 /** Test data for the Yard unit tests: a night at a depot in America/Chicago (UTC-6 in December). */
 export const ZONE = 'America/Chicago';
@@ -29,16 +29,12 @@ export function step(overrides: Partial<YardStep> & Pick<YardStep, 'action' | 'b
 }
 
 const sessions = [
-  { bus: '201', charger: 'C1', start: at('21:00'), end: at('23:00'), kwh: 80, kw: [] as number[] },
-  { bus: '202', charger: 'C1', start: at('23:30'), end: at('02:00'), kwh: 60, kw: [] as number[] },
-  { bus: '203', charger: 'C2', start: at('22:00'), end: at('05:00'), kwh: 90, kw: [] as number[] },
+  { bus: '201', charger: 'C1', start: at('21:00'), end: at('23:00'), kwh: 80 },
+  { bus: '202', charger: 'C1', start: at('23:30'), end: at('02:00'), kwh: 60 },
+  { bus: '203', charger: 'C2', start: at('22:00'), end: at('05:00'), kwh: 90 },
 ];
 
-export function plan(overrides: Partial<PlanDetail> = {}): PlanDetail {
-  const slots = [];
-  for (let t = Date.parse(at('18:00')); t < Date.parse(at('07:00')); t += 15 * 60_000) {
-    slots.push({ start: new Date(t).toISOString(), loadKw: 0, price: 0.1, limitKw: 400 });
-  }
+export function plan(overrides: Partial<TonightPlan> = {}): TonightPlan {
   return {
     id: PLAN_ID,
     depotId: DEPOT_ID,
@@ -58,20 +54,12 @@ export function plan(overrides: Partial<PlanDetail> = {}): PlanDetail {
     shortBuses: 0,
     timezone: ZONE,
     currency: 'USD',
-    notes: [],
     busCapacityKwh: { '201': 200, '202': 200, '203': 200 },
     plannedFrom: null,
-    result: {
-      status: 'optimal',
-      cost: { energy: 100, demand: 20, total: 120 },
-      baseline: { kind: 'timer', energy: 150, demand: 80, total: 230, peakKw: 300, exceedsSiteLimit: false, shortfallKwh: 0, shortfallCost: 0 },
-      lowerBound: 120,
-      gap: 0,
-      solveMs: 100,
-      slots,
-      sessions,
-      buses: [],
-    },
+    // 18:00 to 07:00 in quarter hours.
+    horizon: { start: Date.parse(at('18:00')), end: Date.parse(at('07:00')), slotMs: 15 * 60_000 },
+    sessions,
+    revisionNote: null,
     ...overrides,
   };
 }

@@ -1,4 +1,3 @@
-import { horizonOf } from '@nightyard/contracts/plan-horizon';
 import { at, step, tonight, ZONE } from './yard-fixtures';
 import {
   expectedAtFor,
@@ -75,7 +74,7 @@ describe('yard format', () => {
   });
 
   it('puts the now-line where now falls across the night, and none outside it', () => {
-    const h = horizonOf(tonight().plan!.result!)!;
+    const h = tonight().plan!.horizon!;
     expect(new Date(h.start).toISOString()).toBe(at('18:00'));
     expect(new Date(h.end).toISOString()).toBe(at('07:00'));
     // 18:00 to 07:00 is 13 h; 22:30 is 4.5 h in.
@@ -92,7 +91,7 @@ describe('yard format', () => {
   });
 
   it("is night while the server's night (tonight's plan) is under way, not by the clock on the wall", () => {
-    const h = horizonOf(tonight().plan!.result!)!;
+    const h = tonight().plan!.horizon!;
     expect(isNightAt(h.start, h)).toBe(true);
     expect(isNightAt(h.end - 1, h)).toBe(true);
     expect(isNightAt(h.start - 1, h)).toBe(false);
@@ -100,9 +99,9 @@ describe('yard format', () => {
     expect(isNightAt(now, null)).toBe(false);
   });
 
-  it('says what a revision changed, from the plan notes', () => {
+  it('says what a revision changed, from the plan\'s revision note', () => {
     const plan = tonight().plan!;
-    const revised = { ...plan, version: 3, kind: 'revision' as const, publishedBy: 'Kofi Brandt', notes: ['x', 'Revised at 23:05: charger C1 out of service (cable cut).'] };
+    const revised = { ...plan, version: 3, kind: 'revision' as const, publishedBy: 'Kofi Brandt', revisionNote: 'Revised at 23:05: charger C1 out of service (cable cut).' };
     expect(revisionNotice(revised, ZONE)).toBe('Plan revised at 23:05 (version 3): charger C1 out of service (cable cut). Reported by Kofi Brandt.');
     expect(revisionNotice({ ...plan, version: 2 }, ZONE)).toBe('A new plan was published at 10:00 (version 2) by Sam Reyes. Check your next steps.');
   });

@@ -1,4 +1,4 @@
-import type { Charger, PlanDetail, PlanResult, Tonight, YardStep } from '@nightyard/contracts';
+import type { Charger, PlanResult, Tonight, TonightPlan, YardStep } from '@nightyard/contracts';
 import { addDays, dayAt, depotParts, timeAt } from '@nightyard/contracts/depot-time';
 
 /** Times, the night's span, steps and chargers as the yard reads them. Pure functions only. */
@@ -232,8 +232,8 @@ export function liveView(charger: Pick<Charger, 'live' | 'status' | 'statusReaso
 // Revisions
 
 /** "Plan revised at 23:05 (version 3): charger C3 out of service (cable damaged)" */
-export function revisionNotice(plan: Pick<PlanDetail, 'version' | 'kind' | 'notes' | 'publishedAt' | 'publishedBy'>, timeZone: string): string {
-  const note = [...plan.notes].reverse().find((n) => n.startsWith('Revised at '));
+export function revisionNotice(plan: Pick<TonightPlan, 'version' | 'kind' | 'revisionNote' | 'publishedAt' | 'publishedBy'>, timeZone: string): string {
+  const note = plan.revisionNote;
   const match = note ? /^Revised at (\d{1,2}:\d{2}): (.*?)\.?$/.exec(note) : null;
   if (plan.kind === 'revision' && match) {
     return `Plan revised at ${match[1]} (version ${plan.version}): ${match[2]}${plan.publishedBy ? `. Reported by ${plan.publishedBy}` : ''}.`;

@@ -109,12 +109,8 @@ describe('YardPage', () => {
 
   it("darkens for the server's night (from its first pull-in), not from a fixed hour", async () => {
     // Tonight's first pull-in is at 15:00; at 16:00 the night is under way.
-    const base = plan();
-    const slots = [];
-    for (let t = Date.parse(at('15:00')); t < Date.parse(at('07:00')); t += 15 * 60_000) {
-      slots.push({ start: new Date(t).toISOString(), loadKw: 0, price: 0.1, limitKw: 400 });
-    }
-    await start(tonight({ now: at('16:00'), plan: { ...base, result: { ...base.result!, slots } } }));
+    const horizon = { start: Date.parse(at('15:00')), end: Date.parse(at('07:00')), slotMs: 15 * 60_000 };
+    await start(tonight({ now: at('16:00'), plan: plan({ horizon }) }));
     expect(text(el.querySelector('.status-bar'))).toContain('Now 16:00');
     expect(document.documentElement.style.colorScheme).toBe('dark');
   });
@@ -155,7 +151,7 @@ describe('YardPage', () => {
     void fixture.debugElement.injector.get(YardStore).load();
     const revised = plan({
       version: 2, kind: 'revision', publishedBy: 'Kofi Brandt',
-      notes: ['Revised at 22:40: charger C2 out of service (cable cut).'],
+      revisionNote: 'Revised at 22:40: charger C2 out of service (cable cut).',
     });
     answer(tonight({ plan: revised, now: at('22:41') }));
     await render();
@@ -231,7 +227,7 @@ describe('YardPage', () => {
     expect(req.request.body).toEqual({ planId: PLAN_ID, stepKey: `connect|203|C2|${at('22:00')}` });
     req.flush({ revision: { version: 2 }, moved: [{ bus: '203', before: 'C2 22:00', after: 'C2 22:45' }], replanMs: 40, notified: 2 });
     await render();
-    const revised = plan({ version: 2, kind: 'revision', notes: ['Revised at 22:30: "Connect bus 203 to charger C2" (due 22:00) did not happen.'] });
+    const revised = plan({ version: 2, kind: 'revision', revisionNote: 'Revised at 22:30: "Connect bus 203 to charger C2" (due 22:00) did not happen.' });
     answer(tonight({ plan: revised, steps: tonight().steps.filter((s) => s.bus !== '203') }));
     await render();
     expect(text(el.querySelector('.notice'))).toContain('Plan revised at 22:30 (version 2): "Connect bus 203 to charger C2" (due 22:00) did not happen.');

@@ -1,11 +1,10 @@
 import { DOCUMENT, DestroyRef, Injectable, Injector, computed, inject, signal, type EffectRef } from '@angular/core';
-import type { Charger, PlanResult, Tonight, YardReportResult } from '@nightyard/contracts';
+import type { Charger, Tonight, YardReportResult, YardSession } from '@nightyard/contracts';
 import { toApiProblem } from '../core/api-error';
 import { Clock } from '../core/clock';
 import { LiveStore, reloadOnLive, type LiveDepot } from '../depot-state/live-store';
 import { ConfirmationOutbox } from './confirmation-outbox';
 import { YardApi } from './yard-api';
-import { horizonOf } from '@nightyard/contracts/plan-horizon';
 import {
   liveView,
   naturalCompare,
@@ -36,7 +35,7 @@ export interface ChargerView {
   live: LiveView;
   outOfService: boolean;
   statusReason: string | null;
-  sessions: PlanResult['sessions'];
+  sessions: YardSession[];
   steps: StepView[];
   /** The step due now, or the next one (never an overdue one). */
   next: StepView | null;
@@ -94,8 +93,7 @@ export class YardStore {
   readonly timezone = computed(() => this.tonight()?.depot.timezone ?? 'UTC');
   readonly plan = computed(() => this.tonight()?.plan ?? null);
   readonly horizon = computed<Horizon | null>(() => {
-    const result = this.plan()?.result;
-    return result ? horizonOf(result) : null;
+    return this.plan()?.horizon ?? null;
   });
   /** Before the night's first slot: the page says when it starts. */
   readonly upcoming = computed(() => {
@@ -114,7 +112,7 @@ export class YardStore {
     const t = this.tonight();
     if (!t?.plan) return [];
     const tz = t.depot.timezone;
-    const sessions = t.plan.result?.sessions ?? [];
+    const sessions = t.plan.sessions;
     const byLabel = new Map(this.liveChargers().map((c) => [c.label, c]));
     const labels = [...new Set([...byLabel.keys(), ...sessions.map((s) => s.charger)])].sort(naturalCompare);
     const steps = this.steps();
@@ -145,7 +143,7 @@ export class YardStore {
   readonly buses = computed(() => {
     const plan = this.plan();
     if (!plan) return [];
-    return [...new Set([...Object.keys(plan.busCapacityKwh), ...(plan.result?.sessions ?? []).map((s) => s.bus)])].sort(naturalCompare);
+    return [...new Set([...Object.keys(plan.busCapacityKwh), ...plan.sessions.map((s) => s.bus)])].sort(naturalCompare);
   });
 
   private pending: Promise<void> | null = null;
