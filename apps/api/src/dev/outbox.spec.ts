@@ -3,6 +3,7 @@ import { createOrganisation, createTestApp } from '../testing/test-app';
 import { mailFor } from '../testing/mail';
 
 const app = createTestApp();
+// eslint-disable-next-line no-restricted-syntax -- the time only makes the address unique
 const unique = (name: string) => `${name}-${Date.now()}-${Math.random().toString(36).slice(2, 7)}@test.nightyard.example`;
 
 describe('the development outbox', () => {

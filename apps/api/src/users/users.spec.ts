@@ -15,6 +15,7 @@ beforeAll(async () => {
 });
 
 const auth = (u: TestUser) => ({ Authorization: `Bearer ${u.token}` });
+// eslint-disable-next-line no-restricted-syntax -- the time only makes the address unique
 const unique = (name: string) => `${name}-${Date.now()}-${Math.random().toString(36).slice(2, 7)}@test.nightyard.example`;
 
 describe('invitations', () => {
