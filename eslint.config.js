@@ -5,6 +5,7 @@
 // that could disagree with it.
 // A rule is switched off only for an area where it is wrong there (with the reason beside it);
 // a single line is excused with `// eslint-disable-next-line rule-name -- the reason`.
+import comments from '@eslint-community/eslint-plugin-eslint-comments/configs';
 import js from '@eslint/js';
 import angular from 'angular-eslint';
 import prettier from 'eslint-config-prettier';
@@ -26,6 +27,16 @@ export default defineConfig(
   ]),
   {
     linterOptions: { reportUnusedDisableDirectives: 'error' },
+  },
+  {
+    // Every disable names its rules and says why (`-- the reason`).
+    extends: [comments.recommended],
+    rules: {
+      '@eslint-community/eslint-comments/require-description': 'error',
+      '@eslint-community/eslint-comments/no-unlimited-disable': 'error',
+      // A file-wide disable at the top (with its reason) is fine: that file is the exception.
+      '@eslint-community/eslint-comments/disable-enable-pair': ['error', { allowWholeFile: true }],
+    },
   },
   {
     files: ['**/*.{ts,js,mjs}'],
