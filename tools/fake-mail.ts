@@ -38,6 +38,7 @@ const smtp = new SMTPServer({
           text: mail.text ?? '',
           html: typeof mail.html === 'string' ? mail.html : null,
           // The stand-in mail server's own receipt time, as a real one would stamp it (not the API's clock).
+          // eslint-disable-next-line no-restricted-syntax -- see the line above
           receivedAt: new Date().toISOString(),
         });
         messages.length = Math.min(messages.length, LIMIT);

@@ -1,6 +1,6 @@
 #!/usr/bin/env bash
 # npm test: a throwaway PostgreSQL cluster and fake mail server, then every test:
-# libraries and API (Vitest, real database), web unit tests (ng test), browser tests (Playwright).
+# lint and format check, libraries and API (Vitest, real database), web unit tests (ng test), browser tests (Playwright).
 set -euo pipefail
 cd "$(dirname "$0")/.."
 source tools/lib.sh
@@ -25,6 +25,19 @@ trap cleanup INT TERM EXIT
 
 tools/pg.sh stop "$TEST_DIR/pg"
 rm -rf "$TEST_DIR"
+mkdir -p "$TEST_DIR"
+
+# Lint (and the format check) run beside the cluster's start-up and the API build; the suites
+# start once they pass.
+{
+  echo "== Lint (eslint)"
+  npm run -s lint
+  # enabled after the one-off format commit
+  # echo "== Format (prettier --check)" && npm run -s format:check
+} > "$TEST_DIR/lint.log" 2>&1 &
+lint=$!
+pids+=($lint)
+
 tools/pg.sh start "$TEST_DIR/pg" "$PGPORT" fast
 tools/pg.sh createdb "$PGPORT" nightyard_test
 tools/pg.sh createdb "$PGPORT" nightyard_e2e
@@ -47,6 +60,13 @@ export NG_CLI_ANALYTICS=false
   && npx tsc -p tsconfig.checks.json; } > .test-data/web-build.log 2>&1 &
 web_build=$!
 pids+=($web_build)
+
+if ! wait "$lint"; then
+  cat "$TEST_DIR/lint.log"
+  echo "Lint or format check failed: fix the code (npm run lint, npm run format), see DEVELOPERS.md." >&2
+  exit 1
+fi
+cat "$TEST_DIR/lint.log"
 
 echo "== Libraries and API (Vitest, PostgreSQL on 127.0.0.1:$PGPORT)"
 npx vitest run

@@ -28,7 +28,6 @@ const CLUSTER = `postgres://postgres@127.0.0.1:${PGPORT}`;
 const DATABASE_URL = `${CLUSTER}/${DB_NAME}`;
 const silent = pino({ level: 'silent' });
 const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms));
-// eslint-disable-next-line no-restricted-syntax -- a bench measures elapsed real time
 const elapsed = (from: number) => (performance.now() - from) / 1000;
 
 async function freshDatabase(): Promise<void> {
@@ -69,7 +68,6 @@ async function round(db: Db, d: Awaited<ReturnType<typeof district>>, workers: n
       organisationId: d.organisationId, depotId: n.depotId, serviceDate: '2026-12-09', version, scenario: n.scenario,
     }))).returning({ id: plans.id });
     const ids = rows.map((r) => r.id);
-    // eslint-disable-next-line no-restricted-syntax -- a bench measures elapsed real time
     const start = performance.now();
     for (const id of ids) await queue.enqueuePlan(id);
     for (;;) {

@@ -10,6 +10,7 @@
 // charger per bus in a slot the bus's power is capped by that charger; cabinets are left out
 // (use a depot without them: generateDepot is called with cabinets: false).
 import { buildChargeModel, emptyPlugMap, loadSolver, parseScenario, planScenario, prepareProblem } from '@nightyard/scheduling';
+import type { Model } from 'highs';
 import { generateDepot } from '../../libs/scheduling/src/testing/generate-depot.js';
 
 const [buses, chargers, seed, limit] = process.argv.slice(2).map(Number);
@@ -93,7 +94,7 @@ const milp = highs.createModel({
   rowLower: Float64Array.from(rowLower.map(inf)),
   rowUpper: Float64Array.from(rowUpper.map(inf)),
   matrix: { format: 'csr', numRows: rowLower.length, numCols: cost.length, starts: Int32Array.from(starts), indices: Int32Array.from(indices), values: Float64Array.from(values) },
-} as never) as any;
+} as never) as Model & { dispose(): void };
 milp.options.set({ output_flag: false, time_limit: limit ?? 240, mip_rel_gap: 1e-7 });
 for (const c of integer) milp.changeColIntegrality(c, 1);
 const t0 = performance.now();

@@ -16,9 +16,9 @@ for (const n of sizes) {
   const gaps: number[] = [];
   for (let seed = 1; seed <= seeds; seed++) {
     const ratio = variant === 'third' ? 3 : 2;
-    const input: any = generateDepot({ buses: n, seed: 77 * seed + n, chargers: Math.max(1, Math.floor(n / ratio)), cabinets: variant !== 'nocab' });
-    if (variant === 'tight') input.site.limitKw = Math.round(input.site.otherLoadKw + 25 * n);
-    if (variant === 'tighter') input.site.limitKw = Math.round(input.site.otherLoadKw + 14 * n);
+    const input = generateDepot({ buses: n, seed: 77 * seed + n, chargers: Math.max(1, Math.floor(n / ratio)), cabinets: variant !== 'nocab' });
+    if (variant === 'tight') input.site.limitKw = Math.round(input.site.otherLoadKw! + 25 * n);
+    if (variant === 'tighter') input.site.limitKw = Math.round(input.site.otherLoadKw! + 14 * n);
     const parsed = parseScenario(input);
     if (!parsed.ok) throw new Error(JSON.stringify(parsed.problems));
     const t0 = performance.now();

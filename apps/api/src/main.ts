@@ -109,6 +109,7 @@ const server = app.listen(config.PORT, '127.0.0.1', () => {
       ? [`Demo sign-ins (password: ${DEMO_PASSWORD}):`, ...demoUsers.map((u) => `  ${u.email.padEnd(36)} ${u.roles.join(' + ')}`), '']
       : []),
   ];
+  // eslint-disable-next-line no-console -- the start-up banner is for the person at the terminal, not for the log
   if (config.NODE_ENV !== 'test') console.log(lines.join('\n'));
   log.info({ port: config.PORT }, 'listening');
 });

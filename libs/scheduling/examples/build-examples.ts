@@ -7,7 +7,7 @@ const dir = new URL('.', import.meta.url);
 const write = (name: string, data: unknown) => writeFileSync(new URL(name, dir), `${JSON.stringify(data, null, 2)}\n`);
 
 // The demo rate plan's shape belongs to the product (it may change); read it loosely.
-type Loose = any; // eslint-disable-line @typescript-eslint/no-explicit-any
+type Loose = any; // eslint-disable-line @typescript-eslint/no-explicit-any -- read loosely, as said above
 const ratePlan: Loose = demoRatePlan;
 const definition: Loose = ratePlan.definition ?? ratePlan;
 const winter: Loose = definition.seasons.find((s: Loose) => s.name === 'Winter');

@@ -4,6 +4,7 @@ import { planScenario, type Plan } from './plan.js';
 import { parseScenario, type ScenarioInput } from './scenario.js';
 import { buildSlots } from './slots.js';
 import { checkPlan } from './testing/plan-checker.js';
+import type { RawJson } from './testing/raw-json.js';
 
 // Format extensions of scenario version 1: site.otherLoadByHourKw (kW by local hour, overrides
 // otherLoadKw) and site.limitWindows (load-reduction requests: a lower site limit inside each
@@ -11,7 +12,7 @@ import { checkPlan } from './testing/plan-checker.js';
 
 const small = () => JSON.parse(readFileSync(new URL('../examples/small-depot.json', import.meta.url), 'utf8'));
 
-function problemsOf(mutate: (s: any) => void) {
+function problemsOf(mutate: (s: RawJson) => void) {
   const s = small();
   mutate(s);
   const r = parseScenario(s);
@@ -52,7 +53,7 @@ const hourly = (base: number, over: Record<number, number>) => Array.from({ leng
 const kwAt = (p: Plan, local: string) => p.slots.find((s) => s.start.startsWith(local))!;
 
 describe('format extensions: validation', () => {
-  const cases: [string, (s: any) => void, string, RegExp][] = [
+  const cases: [string, (s: RawJson) => void, string, RegExp][] = [
     ['23 hourly values', (s) => (s.site.otherLoadByHourKw = hourly(20, {}).slice(1)), 'site.otherLoadByHourKw', /24 values/],
     ['a negative hourly value', (s) => (s.site.otherLoadByHourKw = hourly(20, { 3: -1 })), 'site.otherLoadByHourKw[3]', /0 or more/],
     ['an hourly value above the limit', (s) => (s.site.otherLoadByHourKw = hourly(20, { 18: 450 })), 'site.otherLoadByHourKw[18]', /must not exceed site.limitKw/],
@@ -81,7 +82,7 @@ describe('format extensions: slots', () => {
     const s = small();
     s.start = '2026-10-31T12:00';
     s.end = '2026-11-01T09:00';
-    s.buses.forEach((b: any) => (b.stays = [{ arrive: '2026-10-31T17:00', depart: '2026-11-01T06:00', departMinKwh: b.stays[0].departMinKwh }]));
+    s.buses.forEach((b: RawJson) => (b.stays = [{ arrive: '2026-10-31T17:00', depart: '2026-11-01T06:00', departMinKwh: b.stays[0].departMinKwh }]));
     s.site.otherLoadByHourKw = Array.from({ length: 24 }, (_, h) => 10 + h);
     const r = parseScenario(s);
     if (!r.ok) throw new Error(JSON.stringify(r.problems));

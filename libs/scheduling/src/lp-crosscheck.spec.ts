@@ -1,10 +1,11 @@
 import GLPK from 'glpk.js/node';
-import solverJs from 'javascript-lp-solver';
+import solverJs, { type SolveResult } from 'javascript-lp-solver';
 import { DateTime } from 'luxon';
 import { describe, expect, it } from 'vitest';
 import { planScenario } from './plan.js';
 import { parseScenario, type ScenarioInput } from './scenario.js';
 import { checkPlan } from './testing/plan-checker.js';
+import type { RawJson } from './testing/raw-json.js';
 
 // Small depots (2-6 buses, a charger each, all chargers in one cabinet so any assignment meets
 // the same limits): the charging LP is written out here from the scenario, independently of
@@ -82,7 +83,7 @@ function smallDepot(seed: number, buses: number, opts: { start: string; end: str
 }
 
 /** The LP of the scheduling brief, written directly from the scenario JSON. */
-function writeLp(s: any): WrittenLp {
+function writeLp(s: RawJson): WrittenLp {
   const zone = s.timezone;
   const ms = (x: string) => DateTime.fromISO(x, { zone }).toMillis();
   const start = ms(s.start);
@@ -110,7 +111,7 @@ function writeLp(s: any): WrittenLp {
     let prevE: string | null = null;
     let prevP: string | null = null;
     let pending = 0; // run energy to take off at the next arrival
-    b.stays.forEach((st: any, k: number) => {
+    b.stays.forEach((st: RawJson, k: number) => {
       const a = ms(st.arrive);
       const d = ms(st.depart);
       const usable: number[] = [];
@@ -141,7 +142,7 @@ function writeLp(s: any): WrittenLp {
   // Format extensions, read here on their own: other load by local hour, limit windows.
   const otherAt = (t: number): number => (s.site.otherLoadByHourKw ? s.site.otherLoadByHourKw[wk(t).hour] : s.site.otherLoadKw);
   const limitAt = (t: number): number =>
-    (s.site.limitWindows ?? []).reduce((lim: number, w: any) => (ms(w.from) < slotStart(t) + 900_000 && ms(w.to) > slotStart(t) ? Math.min(lim, w.limitKw) : lim), s.site.limitKw);
+    (s.site.limitWindows ?? []).reduce((lim: number, w: RawJson) => (ms(w.from) < slotStart(t) + 900_000 && ms(w.to) > slotStart(t) ? Math.min(lim, w.limitKw) : lim), s.site.limitKw);
   const df = v('D_facility');
   const dk = v('D_onpeak');
   rows.push({ name: 'df0', terms: [[df, 1]], op: '>=', rhs: s.tariff.peaksSoFarKw.facility });
@@ -190,7 +191,7 @@ function solveWithJsLp(lp: WrittenLp): number {
     constraints[r.name] = r.op === '<=' ? { max: r.rhs } : r.op === '>=' ? { min: r.rhs } : { equal: r.rhs };
     for (const [name, coef] of r.terms) variables[name]![r.name] = (variables[name]![r.name] ?? 0) + coef;
   }
-  const res = (solverJs as any).Solve({ optimize: 'cost', opType: 'min', constraints, variables });
+  const res = solverJs.Solve({ optimize: 'cost', opType: 'min', constraints, variables }) as SolveResult;
   // Pitfall: an infeasible model comes back as feasible: false with result 0.
   expect(res.feasible).toBe(true);
   expect(res.bounded).not.toBe(false);
@@ -221,7 +222,7 @@ describe('engine optimum against independent solvers', () => {
   });
 
   it('glpk.js: other load by hour and a load-reduction window (format extensions)', async () => {
-    const input: any = smallDepot(15, 4, { start: '2026-01-13T12:00', end: '2026-01-14T09:00' });
+    const input = smallDepot(15, 4, { start: '2026-01-13T12:00', end: '2026-01-14T09:00' });
     // Busy evening in the workshop, quiet night; the utility asks for 45 kW from 01:00 to 03:10.
     input.site.otherLoadByHourKw = [20, 20, 20, 20, 20, 30, 40, 40, 40, 40, 40, 40, 40, 40, 40, 40, 90, 110, 120, 100, 60, 40, 30, 20];
     input.site.limitWindows = [{ from: '2026-01-14T01:00', to: '2026-01-14T03:10', limitKw: 45 }];

@@ -6,7 +6,7 @@ import { parseScenario, type ScenarioInput } from './scenario.js';
 import { generateDepot } from './testing/generate-depot.js';
 import { checkPlan } from './testing/plan-checker.js';
 
-const example = (name: string): any => JSON.parse(readFileSync(new URL(`../examples/${name}.json`, import.meta.url), 'utf8'));
+const example = (name: string): ScenarioInput => JSON.parse(readFileSync(new URL(`../examples/${name}.json`, import.meta.url), 'utf8'));
 
 async function plan(input: ScenarioInput, options = { timeBudgetMs: 1500, maxMoves: 60 }): Promise<Plan> {
   const parsed = parseScenario(input);
@@ -17,7 +17,7 @@ async function plan(input: ScenarioInput, options = { timeBudgetMs: 1500, maxMov
 }
 
 /** A one-night scenario around a few buses, for the cases built on purpose. */
-function night(buses: any[], over: Partial<Record<string, any>> = {}): ScenarioInput {
+function night(buses: ScenarioInput['buses'], over: Partial<ScenarioInput> = {}): ScenarioInput {
   return {
     version: 1,
     timezone: 'America/Chicago',
@@ -68,7 +68,7 @@ describe('randomised depots', () => {
   it.each([1, 2, 3, 4, 5, 6])('seed %i: plan passes the checker', async (seed) => {
     const buses = 4 + ((seed * 7) % 17);
     const input = generateDepot({ buses, seed, chargers: Math.max(1, Math.floor(buses / (1 + (seed % 3)))) });
-    if (seed % 2 === 0) (input.site as any).limitKw = Math.round((input.site as any).otherLoadKw + 25 * buses); // tight site
+    if (seed % 2 === 0) input.site.limitKw = Math.round(input.site.otherLoadKw! + 25 * buses); // tight site
     const p = await plan(input);
     expect(p.gap).toBeGreaterThanOrEqual(0);
   });
@@ -214,7 +214,7 @@ describe('npm run plan', () => {
   const cli = (file: string) =>
     new Promise<{ code: number; stdout: string; stderr: string }>((resolve) => {
       execFile('npx', ['tsx', new URL('./cli/plan.ts', import.meta.url).pathname, file], { timeout: 60_000 }, (error, stdout, stderr) =>
-        resolve({ code: error ? ((error as any).code ?? 1) : 0, stdout, stderr }),
+        resolve({ code: error ? (typeof error.code === 'number' ? error.code : 1) : 0, stdout, stderr }),
       );
     });
 
@@ -241,7 +241,7 @@ describe('npm run plan', () => {
     const root = new URL('../../..', import.meta.url).pathname;
     const out = await new Promise<{ code: number; stdout: string }>((resolve) =>
       execFile('sh', ['-c', `npm run -s plan -- ${file} | (sleep 2; cat)`], { cwd: root, timeout: 60_000, maxBuffer: 1 << 26 }, (error, stdout) =>
-        resolve({ code: error ? ((error as any).code ?? 1) : 0, stdout }),
+        resolve({ code: error ? (typeof error.code === 'number' ? error.code : 1) : 0, stdout }),
       ),
     );
     expect(out.code).toBe(0);

@@ -1,10 +1,11 @@
 import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
 import { parseScenario } from './scenario.js';
+import type { RawJson } from './testing/raw-json.js';
 
 const small = () => JSON.parse(readFileSync(new URL('../examples/small-depot.json', import.meta.url), 'utf8'));
 
-function problemsOf(mutate: (s: any) => void) {
+function problemsOf(mutate: (s: RawJson) => void) {
   const s = small();
   mutate(s);
   const r = parseScenario(s);
@@ -20,7 +21,7 @@ describe('scenario validation', () => {
   });
 
   // Each rule of the format, broken on purpose: [what, mutation, expected path, message part].
-  const cases: [string, (s: any) => void, string, RegExp][] = [
+  const cases: [string, (s: RawJson) => void, string, RegExp][] = [
     ['version', (s) => (s.version = 2), 'version', /must be 1/],
     ['unknown field', (s) => (s.colour = 'red'), 'colour', /unknown field/],
     ['unknown nested field', (s) => (s.buses[1].soc = 3), 'buses[1].soc', /unknown field/],
@@ -70,7 +71,7 @@ describe('scenario validation', () => {
     const problems = problemsOf((s) => {
       s.start = '2026-03-07T12:00';
       s.end = '2026-03-08T12:00';
-      s.buses.forEach((b: any) => (b.stays = [{ arrive: '2026-03-07T16:00', depart: '2026-03-08T02:30', departMinKwh: 60 }]));
+      s.buses.forEach((b: RawJson) => (b.stays = [{ arrive: '2026-03-07T16:00', depart: '2026-03-08T02:30', departMinKwh: 60 }]));
     });
     expect(problems.some((p) => p.path === 'buses[0].stays[0].depart' && /does not exist/.test(p.message))).toBe(true);
   });

@@ -3,9 +3,10 @@ import { describe, expect, it } from 'vitest';
 import { localToMillis, parseScenario, type Scenario } from './scenario.js';
 import { buildSlots } from './slots.js';
 import { costLoad, tariffOf } from './tariff.js';
+import type { RawJson } from './testing/raw-json.js';
 
-const base = (): any => JSON.parse(readFileSync(new URL('../examples/small-depot.json', import.meta.url), 'utf8'));
-const scenario = (mutate: (s: any) => void): Scenario => {
+const base = (): RawJson => JSON.parse(readFileSync(new URL('../examples/small-depot.json', import.meta.url), 'utf8'));
+const scenario = (mutate: (s: RawJson) => void): Scenario => {
   const s = base();
   mutate(s);
   const r = parseScenario(s);
@@ -16,7 +17,7 @@ const night = (start: string, end: string, stay: [string, string]) =>
   scenario((s) => {
     s.start = start;
     s.end = end;
-    s.buses.forEach((b: any) => (b.stays = [{ arrive: stay[0], depart: stay[1], departMinKwh: 100 }]));
+    s.buses.forEach((b: RawJson) => (b.stays = [{ arrive: stay[0], depart: stay[1], departMinKwh: 100 }]));
   });
 
 describe('slots in the depot time zone', () => {
@@ -55,7 +56,7 @@ describe('slots in the depot time zone', () => {
       x.end = '2026-01-17T12:00';
       x.tariff.periods = [{ name: 'night', price: 0.05, demandCharge: 0, windows: [{ days: [5], from: '22:00', to: '06:00' }] }];
       x.tariff.peaksSoFarKw = {};
-      x.buses.forEach((b: any) => (b.stays = [{ arrive: '2026-01-16T16:00', depart: '2026-01-17T06:00', departMinKwh: 100 }]));
+      x.buses.forEach((b: RawJson) => (b.stays = [{ arrive: '2026-01-16T16:00', depart: '2026-01-17T06:00', departMinKwh: 100 }]));
     });
     const slots = buildSlots(s);
     const at = (hhmm: string, day: string) => slots.find((x) => x.start.startsWith(`${day}T${hhmm}`))!;

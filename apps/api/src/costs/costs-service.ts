@@ -1,4 +1,4 @@
-import { and, asc, eq, gte, lt, sql } from 'drizzle-orm';
+import { and, asc, eq, gte, lt } from 'drizzle-orm';
 import { DateTime } from 'luxon';
 import { monthCostsSchema, planResultSchema, type MonthCosts, type PlanCosts, type PlanResult, type RatePlanDefinition } from '@nightyard/contracts';
 import { computeBill, ratePlanPeriodAt, type Bill, type IntervalDemand } from '@nightyard/scheduling';
@@ -9,7 +9,6 @@ import { notFound } from '../http/errors';
 import { markChecked, markCheckedText } from '../http/checked-answer';
 import type { AuthUser } from '../auth/auth-user';
 import { depotOf } from '../depots/depot-access';
-import { prepared } from '../db/prepared';
 import { billingPeriodOf, ratePlanOn, type BillingPeriod } from './billing-period';
 import { MonthCostsCache, monthInputs } from './month-cache';
 import { guessDepot, rememberDepot } from '../depots/depot-guess';

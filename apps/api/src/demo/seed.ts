@@ -10,7 +10,6 @@ import {
 import { hashPassword } from '../auth/secrets';
 import { nightOfDepot } from '../night/depot-night';
 import { yardSteps } from '../yard/yard-steps';
-import type { PlanResult } from '@nightyard/contracts';
 import {
   DEMO_CHARGER_PASSWORD, DEMO_PASSWORD, demoBuses, demoChargerIdentity, demoCabinets, demoChargers, demoDepot, demoForecastLowF, demoOrganisation, demoRatePlan,
   demoRunsForBus, demoUsers,

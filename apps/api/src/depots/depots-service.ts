@@ -1,4 +1,4 @@
-import { and, asc, desc, eq, gte, lte, sql } from 'drizzle-orm';
+import { and, asc, desc, eq, lte, sql } from 'drizzle-orm';
 import { DateTime } from 'luxon';
 import { depotDate, type DepotSummary } from '@nightyard/contracts';
 import type { Db } from '../db/client';

@@ -1,9 +1,10 @@
+import { randomUUID } from 'node:crypto';
 import { describe, expect, it } from 'vitest';
 import { createOrganisation, createTestApp } from '../testing/test-app';
 import { mailFor } from '../testing/mail';
 
 const app = createTestApp();
-const unique = (name: string) => `${name}-${Date.now()}-${Math.random().toString(36).slice(2, 7)}@test.nightyard.example`;
+const unique = (name: string) => `${name}-${randomUUID()}@test.nightyard.example`;
 
 describe('the development outbox', () => {
   it('shows an admin only mail addressed to people of their own organisation', async () => {

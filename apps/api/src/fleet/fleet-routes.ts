@@ -84,7 +84,7 @@ export function fleetRoutes(api: ApiRoutes, { db }: AppDeps) {
       await depotOf(db, user, params.depotId);
       res.setHeader('Content-Type', 'text/csv; charset=utf-8');
       res.setHeader('Content-Disposition', `attachment; filename="runs-${params.date}.csv"`);
-      res.send(runsCsvTemplate(params.date));
+      res.send(runsCsvTemplate());
     },
   );
 }

@@ -5,7 +5,7 @@ import { DomainError } from '../http/errors';
 /** Columns of a service day's runs file; the template lists them with two example rows. */
 export const RUN_COLUMNS = ['bus', 'pull_out', 'pull_in', 'miles', 'kwh', 'arrival_soc_pct'] as const;
 
-export function runsCsvTemplate(date: string): string {
+export function runsCsvTemplate(): string {
   return [
     RUN_COLUMNS.join(','),
     `201,06:10,08:25,31.5,,`,

@@ -1,6 +1,7 @@
 // A process with the API's last-resort handlers, for process-guards.spec.ts:
 //   reject: a promise nobody catches (logged; the process carries on and exits 0 by itself)
 //   throw:  an exception thrown from a timer (logged as fatal; the process exits 1)
+/* eslint-disable no-console -- process-guards.spec.ts reads this process's plain standard output */
 import { createLogger } from '../logging';
 import { installProcessGuards } from '../process-guards';
 

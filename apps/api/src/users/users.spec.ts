@@ -1,3 +1,4 @@
+import { randomUUID } from 'node:crypto';
 import { eq } from 'drizzle-orm';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { actionTokens, users } from '../db/schema';
@@ -15,7 +16,7 @@ beforeAll(async () => {
 });
 
 const auth = (u: TestUser) => ({ Authorization: `Bearer ${u.token}` });
-const unique = (name: string) => `${name}-${Date.now()}-${Math.random().toString(36).slice(2, 7)}@test.nightyard.example`;
+const unique = (name: string) => `${name}-${randomUUID()}@test.nightyard.example`;
 
 describe('invitations', () => {
   it('e-mails a link that sets a password, after which the person signs in with their roles', async () => {

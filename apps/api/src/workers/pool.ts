@@ -42,6 +42,7 @@ export function startWorkPool(options: WorkPoolOptions = {}): void {
       // Keep extra threads a while: starting one costs module loading (and HiGHS for the engine).
       idleTimeout: 60_000,
     });
+    // eslint-disable-next-line no-console -- the fallback when started without main.ts's logger (tests, scripts)
     pool.on('error', (err) => (options.onError ?? ((e) => console.error('worker pool error', e)))(err));
     return pool;
   };

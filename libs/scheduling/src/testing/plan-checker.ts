@@ -4,7 +4,7 @@ import { DateTime } from 'luxon';
 // scenario JSON and the plan JSON as plain data (its own time parsing, its own tariff lookup)
 // and lists every violated rule of the scenario format. It imports nothing from the engine.
 
-type Json = any; // eslint-disable-line @typescript-eslint/no-explicit-any
+type Json = any; // eslint-disable-line @typescript-eslint/no-explicit-any -- plain data on purpose: the checker reads JSON without the engine's types
 
 const TOL = 1e-4;
 

@@ -1,3 +1,4 @@
+/* eslint-disable no-restricted-syntax -- the web app's one clock: the only place that reads the device's time */
 import { DestroyRef, Injectable, computed, inject, signal } from '@angular/core';
 import { depotDate } from '@nightyard/contracts/depot-time';
 

@@ -1,8 +1,8 @@
 import { provideHttpClient } from '@angular/common/http';
 import { HttpTestingController, provideHttpClientTesting } from '@angular/common/http/testing';
 import { ComponentFixture, TestBed } from '@angular/core/testing';
-import { MAT_DIALOG_DATA, MatDialog, MatDialogRef } from '@angular/material/dialog';
-import { Subject, of } from 'rxjs';
+import { MAT_DIALOG_DATA, MatDialogRef } from '@angular/material/dialog';
+import { Subject } from 'rxjs';
 import { settle } from '../testing/fixtures';
 import { ChargerDialog, chargerForm, chargerInput, type ChargerDialogData } from './charger-dialog';
 import { CABINET_ID, DEPOT_ID, charger, depotDetail } from '../shared/setup-fixtures';

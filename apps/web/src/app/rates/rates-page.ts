@@ -39,6 +39,7 @@ export function urdbFileProblem(name: string, text: string): string | null {
     JSON.parse(text);
     return null;
   } catch {
+    // eslint-disable-next-line no-control-regex -- control characters are what tell a binary file from text
     const binary = /[\u0000-\u0008\u000E-\u001F\u007F-\u009F\uFFFD]/.test(text.slice(0, 2048));
     return binary
       ? `${name} is not a text file (it looks like a picture or another binary file). Choose the JSON file of one rate record exported from the URDB. Nothing was saved.`

@@ -1,4 +1,4 @@
-import type { Charger, PlanResult, Tonight, TonightPlan, YardStep } from '@nightyard/contracts';
+import type { Charger, Tonight, TonightPlan, YardStep } from '@nightyard/contracts';
 import { addDays, dayAt, depotParts, timeAt } from '@nightyard/contracts/depot-time';
 
 /** Times, the night's span, steps and chargers as the yard reads them. Pure functions only. */
