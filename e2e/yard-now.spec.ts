@@ -73,7 +73,7 @@ test('the yard card shows the step due now, overdue steps apart, the next hour, 
   await expect(page.locator('.notice')).toContainText(/version 2/, { timeout: 20_000 });
   await expect(page.getByRole('region', { name: 'Plan status' })).toContainText('Plan version 2 (revised)');
   await expect(page.locator(`ny-overdue-step[data-step="${missedKey}"]`)).toHaveCount(0);
-  await expect(page.locator('.reports')).toContainText(`Connect bus ${bus}`);
+  await expect(page.locator('.reports')).toContainText(`Plug in bus ${bus}`);
   await page.locator('.notice').getByRole('button', { name: 'Got it' }).click();
 
   // A charger with a bus on it now is reported out in the middle of a slot.

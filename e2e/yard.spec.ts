@@ -52,9 +52,9 @@ test('a yard user sees the next step, confirms it, reports a charger out of serv
   const next = page.getByRole('region', { name: /^Step due now or next on charger / }).first();
   await expect(next).toBeVisible();
   const sentence = (await next.locator('.sentence').textContent())!.trim();
-  expect(sentence).toMatch(/^(Connect bus \S+ to|Disconnect bus \S+ from) charger \S+ at \d\d:\d\d$/);
+  expect(sentence).toMatch(/^(Plug in bus \S+ at|Unplug bus \S+ from) charger \S+ at \d\d:\d\d$/);
   await expect(next.getByText(/High voltage: trained and authorised staff only/)).toBeVisible();
-  const confirm = next.getByRole('button', { name: /^Confirm (connected|disconnected)/ });
+  const confirm = next.getByRole('button', { name: /^Confirm (plugged in|unplugged)/ });
   const box = await confirm.boundingBox();
   expect(box!.height).toBeGreaterThanOrEqual(48);
   const chargerOfStep = /charger (\S+) at/.exec(sentence)![1]!;

@@ -17,11 +17,13 @@ export const busInputSchema = z
     kwhPerMile: positive('The consumption', 20),
     ceilingPct: pct('The departure ceiling').default(90),
     reservePct: pct('The reserve').default(15),
-    taperStartPct: pct('The taper start').nullable().default(null),
+    /** Taper from: the state of charge (%) above which the battery takes power only slowly. */
+    taperStartPct: z.number({ error: 'Enter taper from as a % state of charge' })
+      .min(0, 'Taper from is 0 to 100 % state of charge').max(100, 'Taper from is 0 to 100 % state of charge').nullable().default(null),
     status: busStatusSchema.default('active'),
   })
   .refine((b) => b.reservePct < b.ceilingPct, { message: 'The reserve must be below the departure ceiling', path: ['reservePct'] })
-  .refine((b) => b.taperStartPct === null || b.taperStartPct < 100, { message: 'Taper must start below 100 %', path: ['taperStartPct'] });
+  .refine((b) => b.taperStartPct === null || b.taperStartPct < 100, { message: 'Taper from must be below 100 % state of charge', path: ['taperStartPct'] });
 export type BusInput = z.infer<typeof busInputSchema>;
 
 export const busSchema = z.object({

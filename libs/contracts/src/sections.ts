@@ -18,7 +18,7 @@ export const SECTIONS: readonly Section[] = [
     purpose: 'The night ahead at a glance: buses due in, chargers, pull-outs in the morning.' },
   { key: 'yard', label: 'Yard', path: '/yard', icon: 'ev_station',
     roles: YARD_CREW,
-    purpose: 'Tonight\'s published plan charger by charger: connect, disconnect, report what differs.' },
+    purpose: 'Tonight\'s published plan charger by charger: plug in, unplug, report what differs.' },
   { key: 'plans', label: 'Plans', path: '/plans', icon: 'event_note',
     roles: PLAN_READERS,
     purpose: 'Generate, review, compare and publish the plug-in plan for the night.' },

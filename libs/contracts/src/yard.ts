@@ -22,8 +22,8 @@ export const yardStepSchema = z.object({
   confirmedAt: z.string().nullable(),
   confirmedBy: z.string().nullable(),
   /**
-   * What to do, in words, as the card, the run sheet and the e-mail all say it: "Connect bus 214
-   * to charger C3", or after a report "Unplug bus 218 from charger C3 now (out of service), then
+   * What to do, in words, as the card, the run sheet and the e-mail all say it: "Plug in bus 214
+   * at charger C3", or after a report "Unplug bus 218 from charger C3 now (out of service), then
    * move it to charger C5 at 23:15".
    */
   text: z.string(),

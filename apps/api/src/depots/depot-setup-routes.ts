@@ -17,7 +17,7 @@ export function depotSetupRoutes(api: ApiRoutes, { db, clock }: AppDeps) {
     async ({ user, params }) => ({ depot: await setup.depotDetail(db, user, params.depotId) }),
   );
   api.add(
-    { method: 'put', path: '/depots/:depotId', summary: 'Change the depot\'s settings', tag: 'depots', access: SETUP_EDITORS,
+    { method: 'put', path: '/depots/:depotId', summary: 'Edit the depot\'s settings', tag: 'depots', access: SETUP_EDITORS,
       params: depotIdParamsSchema, body: depotSettingsSchema, response: z.object({ depot: depotDetailSchema }) },
     async ({ user, params, body }) => {
       await setup.updateDepotSettings(db, user, params.depotId, body);
@@ -30,7 +30,7 @@ export function depotSetupRoutes(api: ApiRoutes, { db, clock }: AppDeps) {
     async ({ user, params, body }) => ({ charger: await setup.createCharger(db, user, params.depotId, body, clock()) }),
   );
   api.add(
-    { method: 'put', path: '/depots/:depotId/chargers/:id', summary: 'Change a charger, or put it in or out of service', tag: 'depots',
+    { method: 'put', path: '/depots/:depotId/chargers/:id', summary: 'Edit a charger, or put it in or out of service', tag: 'depots',
       access: SETUP_EDITORS, params: depotItemParamsSchema, body: chargerInputSchema, response: z.object({ charger: chargerSchema }) },
     async ({ user, params, body }) => ({ charger: await setup.updateCharger(db, user, params.depotId, params.id, body, clock()) }),
   );
@@ -45,7 +45,7 @@ export function depotSetupRoutes(api: ApiRoutes, { db, clock }: AppDeps) {
     async ({ user, params, body }) => ({ cabinet: await setup.createCabinet(db, user, params.depotId, body) }),
   );
   api.add(
-    { method: 'put', path: '/depots/:depotId/cabinets/:id', summary: 'Change a power cabinet', tag: 'depots', access: SETUP_EDITORS,
+    { method: 'put', path: '/depots/:depotId/cabinets/:id', summary: 'Edit a power cabinet', tag: 'depots', access: SETUP_EDITORS,
       params: depotItemParamsSchema, body: cabinetInputSchema, response: z.object({ cabinet: cabinetSchema }) },
     async ({ user, params, body }) => ({ cabinet: await setup.updateCabinet(db, user, params.depotId, params.id, body) }),
   );

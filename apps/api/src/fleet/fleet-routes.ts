@@ -28,7 +28,7 @@ export function fleetRoutes(api: ApiRoutes, { db }: AppDeps) {
     async ({ user, params, body }) => ({ bus: await createBus(db, user, params.depotId, body) }),
   );
   api.add(
-    { method: 'put', path: '/depots/:depotId/buses/:id', summary: 'Change a bus', tag: 'fleet', access: FLEET_EDITORS,
+    { method: 'put', path: '/depots/:depotId/buses/:id', summary: 'Edit a bus', tag: 'fleet', access: FLEET_EDITORS,
       params: depotItemParamsSchema, body: busInputSchema, response: z.object({ bus: busSchema }) },
     async ({ user, params, body }) => ({ bus: await updateBus(db, user, params.depotId, params.id, body) }),
   );
@@ -38,7 +38,7 @@ export function fleetRoutes(api: ApiRoutes, { db }: AppDeps) {
     async ({ user, params }) => ({ bands: (await depotOf(db, user, params.depotId)).coldWeatherFactors }),
   );
   api.add(
-    { method: 'put', path: '/depots/:depotId/cold-weather', summary: 'Change the cold-weather factors', tag: 'fleet',
+    { method: 'put', path: '/depots/:depotId/cold-weather', summary: 'Edit the cold-weather factors', tag: 'fleet',
       access: FLEET_EDITORS, params: depotIdParamsSchema, body: z.strictObject({ bands: coldWeatherTableSchema }), idempotent: true,
       response: z.object({ bands: coldWeatherTableSchema }) },
     async ({ user, params, body }) => {

@@ -7,7 +7,7 @@ import { createDepot } from '../testing/depot-fixture';
 import { addBuses, dayRuns } from '../testing/fleet-fixture';
 import { generatedPlan } from '../testing/plan-fixture';
 import { createOrganisation, createTestApp, type TestUser } from '../testing/test-app';
-import { SimulatedStation } from '../../../../tools/station-simulator';
+import { SimulatedStation } from '../ocpp/simulated-station';
 import { CentralSystem } from '../ocpp/central-system';
 import { LiveBus } from './live-bus';
 import { feedChargerStates } from './live-feeds';

@@ -9,7 +9,7 @@ import { createDepot } from '../testing/depot-fixture';
 import { addBuses, dayRuns } from '../testing/fleet-fixture';
 import { generatedPlan } from '../testing/plan-fixture';
 import { TEST_START, createOrganisation, createTestApp, signInAgain, type TestUser } from '../testing/test-app';
-import { SimulatedStation } from '../../../../tools/station-simulator';
+import { SimulatedStation } from './simulated-station';
 import { CentralSystem } from './central-system';
 
 /** The power (W) a plan gives a charger at an instant: its session's quarter hour, else 0. */

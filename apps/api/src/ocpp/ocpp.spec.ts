@@ -13,7 +13,7 @@ import { createDepot } from '../testing/depot-fixture';
 import { addBuses, dayRuns } from '../testing/fleet-fixture';
 import { generatedPlan } from '../testing/plan-fixture';
 import { createOrganisation, createTestApp, type TestUser } from '../testing/test-app';
-import { SimulatedStation } from '../../../../tools/station-simulator';
+import { SimulatedStation } from './simulated-station';
 import { CentralSystem } from './central-system';
 import { chargingProfiles, profileNightOf } from './charging-profiles';
 

@@ -34,7 +34,7 @@ export function ratesRoutes(api: ApiRoutes, { db }: AppDeps) {
     async ({ user, params, body }) => ({ ratePlan: await ratePlanService.updateRatePlan(db, user, params.id, body) }),
   );
   api.add(
-    { method: 'delete', path: '/rate-plans/:id', summary: 'Delete a rate plan no depot uses', tag: 'rates', access: SETUP_EDITORS,
+    { method: 'delete', path: '/rate-plans/:id', summary: 'Remove a rate plan no depot uses', tag: 'rates', access: SETUP_EDITORS,
       params: idParams, status: 204 },
     async ({ user, params }) => ratePlanService.deleteRatePlan(db, user, params.id),
   );

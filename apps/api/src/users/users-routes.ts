@@ -19,7 +19,7 @@ export function usersRoutes(api: ApiRoutes, { db, mailer, config, auth, clock }:
   );
 
   api.add(
-    { method: 'patch', path: '/users/:id', summary: 'Change a person\'s name or roles, deactivate or reactivate', tag: 'people',
+    { method: 'patch', path: '/users/:id', summary: 'Edit a person\'s name or roles, deactivate or reactivate', tag: 'people',
       access: ADMINS, params: userIdParamsSchema, body: updateUserRequestSchema, response: z.object({ user: userSchema }) },
     async ({ user, params, body }) => ({ user: await updateUser(db, user, params.id, body, clock()) }),
   );

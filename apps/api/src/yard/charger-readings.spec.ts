@@ -10,7 +10,7 @@ import { createDepot } from '../testing/depot-fixture';
 import { addBuses, dayRuns } from '../testing/fleet-fixture';
 import { publishedPlan } from '../testing/plan-fixture';
 import { TEST_START, createOrganisation, createTestApp, signInAgain, type TestUser } from '../testing/test-app';
-import { SimulatedStation } from '../../../../tools/station-simulator';
+import { SimulatedStation } from '../ocpp/simulated-station';
 import { SOC_REPLAN_POINTS, takeChargerReading, type ChargerReadingOutcome } from './charger-readings';
 
 // The charger reads the bus's state of charge as it is plugged in (OCPP measurand SoC): the

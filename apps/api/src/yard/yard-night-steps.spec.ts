@@ -89,7 +89,7 @@ describe('yard steps: a charger reported out inside a slot', () => {
     const due = after.steps.filter((s) => s.status === 'upcoming' && Date.parse(s.at) <= cut + 3_600_000).map((s) => `${hhmm(s.at)} ${s.text}`);
     expect(listed).toEqual(due);
     expect(listed).toContain(`23:07 ${unplug.text}`);
-    expect(mail!.text).not.toMatch(new RegExp(`Connect bus \\S+ to charger ${charger}\\b`));
+    expect(mail!.text).not.toMatch(new RegExp(`Plug in bus \\S+ at charger ${charger}\\b`));
   });
 
   it('a later re-plan keeps the stop at 23:07 (the bus is not put back on the charger until the slot ends)', async () => {
@@ -151,7 +151,7 @@ describe('yard steps: overdue steps confirmed with their real time, or that did 
     expect(after.plan.sessions.some((s) => s.bus === step.bus && s.charger === step.charger && s.start === step.at)).toBe(false);
     expect(after.steps.some((s) => s.key === step.key && s.status !== 'missed')).toBe(false);
     expect(after.reports[0]).toMatchObject({ kind: 'step_missed' });
-    expect(after.reports[0]!.reason).toContain(`Connect bus ${step.bus} to charger ${step.charger} (due ${hhmm(step.at)}) did not happen`);
+    expect(after.reports[0]!.reason).toContain(`Plug in bus ${step.bus} at charger ${step.charger} (due ${hhmm(step.at)}) did not happen`);
     // No step is created in the past.
     for (const s of after.steps.filter((x) => !t.steps.some((y) => y.key === x.key))) expect(Date.parse(s.at)).toBeGreaterThanOrEqual(clock.getTime());
     // Twice: the step is no longer in the plan in force (and the old plan is superseded).
@@ -182,7 +182,7 @@ describe('yard steps: overdue steps confirmed with their real time, or that did 
       // No more charging for it there: it is to come off the charger now, before any other bus goes on.
       const off = after.steps.find((s) => s.key === `${step!.key}|late`)!;
       expect(off).toMatchObject({ action: 'disconnect', status: 'upcoming', at: clock.toISOString(), reason: 'Not unplugged at its time' });
-      expect(off.text).toBe(`Disconnect bus ${step!.bus} from charger ${step!.charger} (it was not unplugged at its time)`);
+      expect(off.text).toBe(`Unplug bus ${step!.bus} from charger ${step!.charger} (it was not unplugged at its time)`);
       for (const o of others) expect(Date.parse(o.start)).toBeGreaterThanOrEqual(clock.getTime());
       await app.request().post(`/api/depots/${depotId}/tonight/missed`).set(as(yard)).send({ planId: after.plan.id, stepKey: off.key }).expect(409);
       await app.request().post('/api/yard/confirmations').set(as(yard)).send({ planId: after.plan.id, stepKey: off.key }).expect(200);

@@ -22,7 +22,7 @@ export function yardRoutes(api: ApiRoutes, deps: AppDeps) {
     async ({ user, params }) => acknowledgeShift(db, user, params.depotId, now()),
   );
   api.add(
-    { method: 'post', path: '/yard/confirmations', summary: 'Confirm a connect or disconnect step, at the time it happened (safe to repeat)', tag: 'yard',
+    { method: 'post', path: '/yard/confirmations', summary: 'Confirm a plug-in or unplug step, at the time it happened (safe to repeat)', tag: 'yard',
       access: YARD_CREW, body: confirmStepSchema, response: yardConfirmationSchema },
     async ({ user, body }) => confirmStep(db, user, body.planId, body.stepKey, now(), body.at),
   );

@@ -54,8 +54,8 @@ async function tonightsPlan(db: Db, depotId: string, now: Date) {
 }
 
 /** The re-plan's count of moved buses and its reasons (absent from results of older engines). */
-function movedWhy(next: unknown): { buses: number; reasons: string[] } | undefined {
-  const moved = (next as { replan?: { moved?: { buses: string[]; reasons: string[] } } } | null)?.replan?.moved;
+function movedWhy(next: Pick<PlanResult, 'replan'>): { buses: number; reasons: string[] } | undefined {
+  const moved = next.replan?.moved;
   return moved ? { buses: moved.buses.length, reasons: moved.reasons } : undefined;
 }
 

@@ -64,7 +64,7 @@ export function yardSteps(
       const key = stepKey(action, s.bus, s.charger, s.start);
       const at = action === 'connect' ? s.start : s.end;
       const done = confirmations.get(key);
-      let text = action === 'connect' ? `Connect bus ${s.bus} to charger ${s.charger}` : `Disconnect bus ${s.bus} from charger ${s.charger}`;
+      let text = action === 'connect' ? `Plug in bus ${s.bus} at charger ${s.charger}` : `Unplug bus ${s.bus} from charger ${s.charger}`;
       let reason: string | null = null;
       let moveTo: YardStep['moveTo'] = null;
       if (action === 'connect') {
@@ -104,7 +104,7 @@ export function yardSteps(
       key: late, action: 'disconnect', by: 'crew', bus, charger, at: c.at.toISOString(), kwh: 0,
       status: done ? 'done' : c.at.getTime() + OVERDUE_AFTER_MS < now.getTime() ? 'overdue' : 'upcoming',
       confirmedAt: done?.at.toISOString() ?? null, confirmedBy: done?.by ?? null,
-      text: `Disconnect bus ${bus} from charger ${charger} (it was not unplugged at its time)`,
+      text: `Unplug bus ${bus} from charger ${charger} (it was not unplugged at its time)`,
       reason: 'Not unplugged at its time', moveTo: null,
     });
   }

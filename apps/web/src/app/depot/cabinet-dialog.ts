@@ -33,7 +33,7 @@ const shape = cabinetInputSchema.shape;
     ReactiveFormsModule,
   ],
   template: `
-    <h2 mat-dialog-title>{{ data.cabinet ? 'Change power cabinet ' + data.cabinet.label : 'Add a power cabinet' }}</h2>
+    <h2 mat-dialog-title>{{ data.cabinet ? 'Edit power cabinet ' + data.cabinet.label : 'Add a power cabinet' }}</h2>
     <form [formGroup]="form" (ngSubmit)="submit()" novalidate>
       <mat-dialog-content>
         <p class="intro">The chargers on one cabinet share its limit: together they never draw more.</p>

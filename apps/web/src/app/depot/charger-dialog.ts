@@ -145,7 +145,7 @@ export class ChargerDialog {
   protected readonly busy = signal(false);
   protected readonly problem = signal<string | null>(null);
   protected readonly problemItems = signal<ProblemItem[]>([]);
-  protected readonly title = this.data.charger ? `Change charger ${this.data.charger.label}` : 'Add a charger';
+  protected readonly title = this.data.charger ? `Edit charger ${this.data.charger.label}` : 'Add a charger';
 
   protected readonly connectors: readonly string[] = (CONNECTOR_STANDARDS as readonly string[]).includes(this.form.controls.connector.value)
     ? CONNECTOR_STANDARDS

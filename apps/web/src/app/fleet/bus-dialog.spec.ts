@@ -74,13 +74,13 @@ describe('BusDialog', () => {
     type(input('Consumption'), '1.3');
     type(input('Departure ceiling'), '80');
     type(input('Reserve'), '85');
-    type(input('Taper start'), '100');
+    type(input('Taper from'), '100');
     await submit('Add bus');
     expect(errors()).toEqual([
       'The usable energy must be above 0',
       'The maximum charge power looks too large (at most 2000)',
       'The reserve must be below the departure ceiling',
-      'Taper must start below 100 %',
+      'Taper from must be below 100 % state of charge',
     ]);
     mock.expectNone(`/api/depots/${DEPOT_ID}/buses`);
   });

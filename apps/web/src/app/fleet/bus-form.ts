@@ -36,7 +36,7 @@ const reserveBelowCeiling: ValidatorFn = (control) => {
 };
 
 const taperBelowFull: ValidatorFn = (control) =>
-  control.value !== null && control.value !== '' && Number(control.value) >= 100 ? { message: 'Taper must start below 100 %' } : null;
+  control.value !== null && control.value !== '' && Number(control.value) >= 100 ? { message: 'Taper from must be below 100 % state of charge' } : null;
 
 export function busForm(bus: Bus | null) {
   const num = (value: number | null, ...validators: ValidatorFn[]) => new FormControl<number | null>(value, { validators });
@@ -49,7 +49,7 @@ export function busForm(bus: Bus | null) {
     kwhPerMile: num(bus?.kwhPerMile ?? null, numberIn('The consumption', 0, 20, { above: true, required: 'Enter the consumption in kWh per mile' })),
     ceilingPct: num(bus?.ceilingPct ?? 90, numberIn('The departure ceiling', 0, 100, { required: 'Enter the departure ceiling in %' })),
     reservePct: num(bus?.reservePct ?? 15, numberIn('The reserve', 0, 100, { required: 'Enter the reserve in %' }), reserveBelowCeiling),
-    taperStartPct: num(bus?.taperStartPct ?? null, numberIn('The taper start', 0, 100), taperBelowFull),
+    taperStartPct: num(bus?.taperStartPct ?? null, numberIn('Taper from', 0, 100), taperBelowFull),
   });
 }
 export type BusForm = ReturnType<typeof busForm>;

@@ -43,7 +43,7 @@ describe('BusesPage', () => {
     await render(['supervisor']);
     expect(numbers()).toEqual(['201', '202', '1001']);
     expect([...el.querySelectorAll('button')].some((b) => b.textContent?.includes('Add bus'))).toBe(true);
-    expect(el.querySelectorAll('button[aria-label^="Change bus"]').length).toBe(3);
+    expect(el.querySelectorAll('button[aria-label^="Edit bus"]').length).toBe(3);
     expect(el.textContent).toContain('3 buses, 2 in service');
   });
 
@@ -62,6 +62,6 @@ describe('BusesPage', () => {
     expect(numbers()).toEqual(['201', '202', '1001']);
     expect(el.textContent).toContain('You can read the fleet');
     expect([...el.querySelectorAll('button')].some((b) => b.textContent?.includes('Add bus'))).toBe(false);
-    expect(el.querySelectorAll('button[aria-label^="Change bus"]').length).toBe(0);
+    expect(el.querySelectorAll('button[aria-label^="Edit bus"]').length).toBe(0);
   });
 });

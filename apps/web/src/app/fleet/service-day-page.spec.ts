@@ -109,7 +109,7 @@ describe('ServiceDayPage', () => {
     await render(['finance']);
     expect(el.textContent).toContain('You can read the runs');
     const labels = buttons();
-    for (const hidden of ['Upload CSV', 'Download template', 'Copy runs', 'Add run', 'Save runs', 'Change factors']) {
+    for (const hidden of ['Upload CSV', 'Download template', 'Copy runs', 'Add run', 'Save runs', 'Edit factors']) {
       expect(labels.some((l) => l?.includes(hidden))).toBe(false);
     }
     expect(el.querySelector('input[type="file"]')).toBeNull();

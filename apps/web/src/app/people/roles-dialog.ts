@@ -9,7 +9,7 @@ import { PeopleApi } from './people-api';
 import { RoleCheckboxes } from './role-checkboxes';
 import { chosenRoles, roleGroup } from './role-form';
 
-/** Change one person's roles. Closes with the updated user. */
+/** Edits one person's roles. Closes with the updated user. */
 @Component({
   selector: 'ny-roles-dialog',
   imports: [MatButtonModule, MatDialogModule, MatProgressBarModule, ReactiveFormsModule, RoleCheckboxes],

@@ -46,7 +46,7 @@ import { RatesApi } from './rates-api';
         @if (canEdit()) {
           <div class="actions">
             <a mat-stroked-button [routerLink]="['/rates', p.id, 'edit']"><mat-icon>edit</mat-icon>Edit rate plan</a>
-            <button mat-button type="button" (click)="remove(p)"><mat-icon>delete</mat-icon>Delete</button>
+            <button mat-button type="button" (click)="remove(p)"><mat-icon>delete</mat-icon>Remove</button>
           </div>
         }
       </div>
@@ -125,9 +125,9 @@ export class RatePlanPage {
 
   protected remove(plan: RatePlan): void {
     const data: ConfirmData = {
-      title: `Delete ${plan.name}?`,
+      title: `Remove ${plan.name}?`,
       message: 'Only a plan no depot is billed under can be deleted. This cannot be undone.',
-      confirm: 'Delete',
+      confirm: 'Remove',
     };
     this.dialog
       .open<ConfirmDialog, ConfirmData, boolean>(ConfirmDialog, { data, width: '440px', maxWidth: '95vw' })

@@ -58,7 +58,7 @@ describe('RatesPage', () => {
     expect(el.querySelector('form')).toBeNull();
     expect(el.textContent).not.toContain('New rate plan');
     expect(el.querySelector('[aria-label^="Edit "]')).toBeNull();
-    expect(el.querySelector('[aria-label^="Delete "]')).toBeNull();
+    expect(el.querySelector('[aria-label^="Remove "]')).toBeNull();
     expect(el.querySelector('[aria-label^="Remove the rate plan"]')).toBeNull();
     expect(el.querySelector('[aria-label="Preview Commercial TOU"]')).not.toBeNull();
   });

@@ -227,9 +227,9 @@ export class RatesPage {
   protected removePlan(plan: RatePlan): void {
     this.confirm(
       {
-        title: `Delete ${plan.name}?`,
+        title: `Remove ${plan.name}?`,
         message: 'Only a plan no depot is billed under can be deleted. This cannot be undone.',
-        confirm: 'Delete',
+        confirm: 'Remove',
       },
       async () => {
         await this.api.remove(plan.id);

@@ -52,8 +52,8 @@ export class ChargerCard {
       urgent: v.reason !== null,
       when: dueText(v, this.now()),
       energy: v.step.action === 'connect' ? `${kwh(v.step.kwh)} planned for this plug-in` : `After ${kwh(v.step.kwh)} planned`,
-      button: v.step.action === 'connect' ? 'Confirm connected' : 'Confirm disconnected',
-      label: `${v.step.action === 'connect' ? 'Confirm connected' : 'Confirm disconnected'}: bus ${v.step.bus} ${v.step.action === 'connect' ? 'to' : 'from'} charger ${v.step.charger}`,
+      button: v.step.action === 'connect' ? 'Confirm plugged in' : 'Confirm unplugged',
+      label: `${v.step.action === 'connect' ? 'Confirm plugged in' : 'Confirm unplugged'}: bus ${v.step.bus} ${v.step.action === 'connect' ? 'at' : 'from'} charger ${v.step.charger}`,
     };
   });
 

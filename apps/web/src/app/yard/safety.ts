@@ -1,6 +1,6 @@
 /**
  * The high-voltage cautions of the product brief (Safety), shown at the start of every shift, on the
- * run sheets and, shortened, beside every connect and disconnect step.
+ * run sheets and, shortened, beside every plug-in and unplug step.
  */
 export const HIGH_VOLTAGE_WARNING = 'DC chargers and the buses\' high-voltage systems can kill.';
 

@@ -20,8 +20,8 @@ export function step(overrides: Partial<YardStep> & Pick<YardStep, 'action' | 'b
     confirmedAt: null,
     confirmedBy: null,
     text: overrides.action === 'connect'
-      ? `Connect bus ${overrides.bus} to charger ${overrides.charger}`
-      : `Disconnect bus ${overrides.bus} from charger ${overrides.charger}`,
+      ? `Plug in bus ${overrides.bus} at charger ${overrides.charger}`
+      : `Unplug bus ${overrides.bus} from charger ${overrides.charger}`,
     reason: null,
     moveTo: null,
     ...overrides,
@@ -64,7 +64,7 @@ export function plan(overrides: Partial<TonightPlan> = {}): TonightPlan {
   };
 }
 
-/** Tonight at 22:30: bus 201's connect (21:00) is confirmed, its disconnect (23:00) is next on C1. */
+/** Tonight at 22:30: bus 201's plug-in (21:00) is confirmed, its unplug (23:00) is next on C1. */
 export function tonight(overrides: Partial<Tonight> = {}): Tonight {
   return {
     depot: { id: DEPOT_ID, name: 'North Depot', timezone: ZONE },

@@ -19,9 +19,9 @@ describe('yard format', () => {
   it('picks per charger the step due now or next; an overdue step waits in its own list and never hides it', () => {
     const views = stepViews(tonight().steps, now, ZONE);
     const next = nextSteps(views);
-    expect(next.get('C1')?.sentence).toBe('Disconnect bus 201 from charger C1 at 23:00');
-    expect(next.get('C2')?.sentence).toBe('Disconnect bus 203 from charger C2 at 05:00');
-    expect(overdueSteps(views.filter((v) => v.step.charger === 'C2')).map((v) => v.title)).toEqual(['Connect bus 203 to charger C2']);
+    expect(next.get('C1')?.sentence).toBe('Unplug bus 201 from charger C1 at 23:00');
+    expect(next.get('C2')?.sentence).toBe('Unplug bus 203 from charger C2 at 05:00');
+    expect(overdueSteps(views.filter((v) => v.step.charger === 'C2')).map((v) => v.title)).toEqual(['Plug in bus 203 at charger C2']);
     expect(dueText(next.get('C1')!, now)).toBe('Next, in 30 min (23:00)');
   });
 
@@ -47,13 +47,13 @@ describe('yard format', () => {
       step({ action: 'connect', bus: '205', charger: 'C2', at: at('23:31') }),
     ], now, ZONE);
     expect(nextHour(views, now).map((v) => `${v.time} ${v.title}`)).toEqual([
-      '22:30 Connect bus 204 to charger C3',
-      '23:00 Disconnect bus 201 from charger C1',
-      '23:30 Connect bus 202 to charger C1',
+      '22:30 Plug in bus 204 at charger C3',
+      '23:00 Unplug bus 201 from charger C1',
+      '23:30 Plug in bus 202 at charger C1',
     ]);
   });
 
-  it('skips a step being saved and puts a disconnect before a connect at the same time', () => {
+  it('skips a step being saved and puts an unplug before a plug-in at the same time', () => {
     const steps = [
       step({ action: 'connect', bus: '202', charger: 'C1', at: at('23:00') }),
       step({ action: 'disconnect', bus: '201', charger: 'C1', at: at('23:00') }),
@@ -62,7 +62,7 @@ describe('yard format', () => {
     const views = stepViews(steps, now, ZONE, (key) => (key.startsWith('disconnect|201') ? { state: 'saving', retrying: false, message: null } : null));
     expect(views.map((v) => v.step.action + v.step.bus)).toEqual(['disconnect201', 'connect202', 'disconnect202']);
     expect(views[0]!.state).toBe('saving');
-    expect(nextSteps(views).get('C1')?.title).toBe('Connect bus 202 to charger C1');
+    expect(nextSteps(views).get('C1')?.title).toBe('Plug in bus 202 at charger C1');
   });
 
   it('marks steps overdue ten minutes after their time, and done with who and when', () => {

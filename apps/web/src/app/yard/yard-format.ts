@@ -97,9 +97,9 @@ export interface StepView {
   step: YardStep;
   state: StepState;
   time: string;
-  /** The server's words for it: "Connect bus 214 to charger C3", "Unplug bus 218 from charger C3 now (…)" */
+  /** The server's words for it: "Plug in bus 214 at charger C3", "Unplug bus 218 from charger C3 now (…)" */
   title: string;
-  /** "Connect bus 214 to charger C3 at 21:30" */
+  /** "Plug in bus 214 at charger C3 at 21:30" */
   sentence: string;
   /** Why the plan changed it ("Charger C3 out of service (cable cut)"), else null. */
   reason: string | null;
@@ -116,8 +116,8 @@ export const DISCONNECT_CAUTION =
 export function stepTitle(step: Pick<YardStep, 'action' | 'bus' | 'charger'> & { text?: string }): string {
   if (step.text) return step.text;
   return step.action === 'connect'
-    ? `Connect bus ${step.bus} to charger ${step.charger}`
-    : `Disconnect bus ${step.bus} from charger ${step.charger}`;
+    ? `Plug in bus ${step.bus} at charger ${step.charger}`
+    : `Unplug bus ${step.bus} from charger ${step.charger}`;
 }
 
 /** Who makes a step, in the run sheet's words: "Crew", "Driver, on pulling in" or "Driver, on pulling out". */

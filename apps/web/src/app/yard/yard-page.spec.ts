@@ -65,15 +65,15 @@ describe('YardPage', () => {
   it('shows each charger\'s step due now or next in big type, overdue ones apart, done ones greyed', async () => {
     await start();
     expect(text(el.querySelector('h1'))).toBe('Yard');
-    expect(text(card('C1').querySelector('.next .sentence'))).toBe('Disconnect bus 201 from charger C1 at 23:00');
+    expect(text(card('C1').querySelector('.next .sentence'))).toBe('Unplug bus 201 from charger C1 at 23:00');
     expect(text(card('C1').querySelector('.next .when'))).toContain('Next, in 30 min (23:00)');
     // C2's 22:00 plug-in is overdue: it waits in its own list; the card leads with what is next.
     const c2 = card('C2').querySelector('.next')!;
-    expect(text(c2.querySelector('.sentence'))).toBe('Disconnect bus 203 from charger C2 at 05:00');
+    expect(text(c2.querySelector('.sentence'))).toBe('Unplug bus 203 from charger C2 at 05:00');
     expect(text(c2)).toContain('High voltage: trained and authorised staff only');
     const overdue = card('C2').querySelector('.overdue-list')!;
     expect(text(overdue.querySelector('h3'))).toBe('warning Overdue on C2: 1');
-    expect(text(overdue.querySelector('ny-overdue-step'))).toContain('Connect bus 203 to charger C2');
+    expect(text(overdue.querySelector('ny-overdue-step'))).toContain('Plug in bus 203 at charger C2');
     expect(text(overdue.querySelector('ny-overdue-step'))).toContain('Due 22:00, 30 min ago');
     expect(text(overdue)).toContain('High voltage: trained and authorised staff only');
     expect(card('C1').querySelector('.overdue-list')).toBeNull();
@@ -130,12 +130,12 @@ describe('YardPage', () => {
   it('confirms the next step through the outbox: saving, then saved, then the next one', async () => {
     await start();
     const button = card('C1').querySelector<HTMLButtonElement>('.next button')!;
-    expect(button.getAttribute('aria-label')).toBe('Confirm disconnected: bus 201 from charger C1');
+    expect(button.getAttribute('aria-label')).toBe('Confirm unplugged: bus 201 from charger C1');
     button.click();
     await render();
     expect(JSON.parse(localStorage.getItem(OUTBOX_STORAGE_KEY)!)).toHaveLength(1);
-    expect(text(card('C1').querySelector('.last-done'))).toContain('Disconnect bus 201 from charger C1: Saving…');
-    expect(text(card('C1').querySelector('.next .sentence'))).toBe('Connect bus 202 to charger C1 at 23:30');
+    expect(text(card('C1').querySelector('.last-done'))).toContain('Unplug bus 201 from charger C1: Saving…');
+    expect(text(card('C1').querySelector('.next .sentence'))).toBe('Plug in bus 202 at charger C1 at 23:30');
     const req = mock.expectOne('/api/yard/confirmations');
     req.flush({ stepKey: req.request.body.stepKey, confirmedAt: at('22:31'), confirmedBy: 'Kofi Brandt' });
     await render();
@@ -227,10 +227,10 @@ describe('YardPage', () => {
     expect(req.request.body).toEqual({ planId: PLAN_ID, stepKey: `connect|203|C2|${at('22:00')}` });
     req.flush({ revision: { version: 2 }, moved: [{ bus: '203', before: 'C2 22:00', after: 'C2 22:45' }], replanMs: 40, notified: 2 });
     await render();
-    const revised = plan({ version: 2, kind: 'revision', revisionNote: 'Revised at 22:30: "Connect bus 203 to charger C2" (due 22:00) did not happen.' });
+    const revised = plan({ version: 2, kind: 'revision', revisionNote: 'Revised at 22:30: "Plug in bus 203 at charger C2" (due 22:00) did not happen.' });
     answer(tonight({ plan: revised, steps: tonight().steps.filter((s) => s.bus !== '203') }));
     await render();
-    expect(text(el.querySelector('.notice'))).toContain('Plan revised at 22:30 (version 2): "Connect bus 203 to charger C2" (due 22:00) did not happen.');
+    expect(text(el.querySelector('.notice'))).toContain('Plan revised at 22:30 (version 2): "Plug in bus 203 at charger C2" (due 22:00) did not happen.');
     expect(text(el.querySelector('.notice'))).toContain('Bus 203: C2 22:00 → C2 22:45');
     expect(card('C2').querySelector('.overdue-list')).toBeNull();
   });
@@ -242,7 +242,7 @@ describe('YardPage', () => {
     expect(text(region.querySelector('h2'))).toBe('Next hour, all chargers');
     const items = [...region.querySelectorAll('li')].map((li) => `${text(li.querySelector('.time'))} ${text(li.querySelector('.title'))}`);
     // Up to 23:30 (an hour from 22:30); the overdue 22:00 plug-in is in C2's own list, not here.
-    expect(items).toEqual(['22:40 Connect bus 204 to charger C3', '23:00 Disconnect bus 201 from charger C1', '23:30 Connect bus 202 to charger C1']);
+    expect(items).toEqual(['22:40 Plug in bus 204 at charger C3', '23:00 Unplug bus 201 from charger C1', '23:30 Plug in bus 202 at charger C1']);
     expect(text(region)).toContain('High voltage: trained and authorised staff only');
   });
 
