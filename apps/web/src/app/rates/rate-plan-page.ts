@@ -1,4 +1,4 @@
-import { ChangeDetectionStrategy, Component, computed, effect, inject, input, signal, untracked } from '@angular/core';
+import { ChangeDetectionStrategy, Component, computed, inject, input, resource } from '@angular/core';
 import { MatButtonModule } from '@angular/material/button';
 import { MatDialog } from '@angular/material/dialog';
 import { MatIconModule } from '@angular/material/icon';
@@ -33,7 +33,7 @@ import { RatesApi } from './rates-api';
     @if (problem(); as p) {
       <div class="problem" role="alert">
         <p>The rate plan could not be loaded. {{ p }}</p>
-        <button mat-stroked-button type="button" (click)="load(id())">Try again</button>
+        <button mat-stroked-button type="button" (click)="reload()">Try again</button>
       </div>
     }
 
@@ -93,9 +93,13 @@ export class RatePlanPage {
   readonly date = input<string>();
 
   protected readonly canEdit = injectCanEditSetup();
-  protected readonly plan = signal<RatePlan | null>(null);
-  protected readonly loading = signal(true);
-  protected readonly problem = signal<string | null>(null);
+  private readonly loaded = resource({ params: () => this.id(), loader: ({ params: id }) => this.api.get(id) });
+  protected readonly plan = computed(() => (this.loaded.hasValue() ? this.loaded.value() : null));
+  protected readonly loading = this.loaded.isLoading;
+  protected readonly problem = computed(() => {
+    const err = this.loaded.error();
+    return err ? toApiProblem(err).message : null;
+  });
   protected readonly depotReady = computed(() => ['loaded', 'failed'].includes(this.depots.state()));
   protected readonly timezone = computed(() => this.depots.current()?.timezone ?? 'UTC');
   protected readonly seasonCount = computed(() => {
@@ -105,22 +109,10 @@ export class RatePlanPage {
 
   constructor() {
     void this.depots.load();
-    effect(() => {
-      const id = this.id();
-      untracked(() => void this.load(id));
-    });
   }
 
-  protected async load(id: string): Promise<void> {
-    this.loading.set(true);
-    this.problem.set(null);
-    try {
-      this.plan.set(await this.api.get(id));
-    } catch (err) {
-      this.problem.set(toApiProblem(err).message);
-    } finally {
-      this.loading.set(false);
-    }
+  protected reload(): void {
+    this.loaded.reload();
   }
 
   protected remove(plan: RatePlan): void {

@@ -37,7 +37,8 @@ describe('RatesPage', () => {
 
   async function refresh() {
     await settle();
-    await fixture.whenStable();
+    TestBed.tick(); // not whenStable: it would wait for the unanswered request
+    await settle();
     fixture.detectChanges();
   }
 
