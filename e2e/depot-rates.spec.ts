@@ -121,7 +121,7 @@ test('facilities adds a charger to a cabinet and imports a URDB rate; finance re
     await page.getByRole('link', { name: planName, exact: true }).click();
     await expect(page.getByRole('heading', { level: 1, name: planName })).toBeVisible();
     await expect(page.getByRole('link', { name: 'Edit rate plan' })).toHaveCount(0);
-    await expect(page.getByRole('button', { name: 'Delete' })).toHaveCount(0);
+    await expect(page.getByRole('button', { name: 'Remove' })).toHaveCount(0);
     await expect(page.getByText(/billed at least 80 % of the highest of the previous 11 months/)).toBeVisible();
     await expect(page.getByText('above 20,000 kWh −$0.01 per kWh', { exact: false })).toBeVisible();
     await previewSummerWeekday(page);

@@ -46,7 +46,7 @@ import { RatesApi } from './rates-api';
         @if (canEdit()) {
           <div class="actions">
             <a mat-stroked-button [routerLink]="['/rates', p.id, 'edit']"><mat-icon>edit</mat-icon>Edit rate plan</a>
-            <button mat-button type="button" (click)="remove(p)"><mat-icon>delete</mat-icon>Delete</button>
+            <button mat-button type="button" (click)="remove(p)"><mat-icon>delete</mat-icon>Remove</button>
           </div>
         }
       </div>
@@ -117,9 +117,9 @@ export class RatePlanPage {
 
   protected remove(plan: RatePlan): void {
     const data: ConfirmData = {
-      title: `Delete ${plan.name}?`,
-      message: 'Only a plan no depot is billed under can be deleted. This cannot be undone.',
-      confirm: 'Delete',
+      title: `Remove ${plan.name}?`,
+      message: 'Only a plan no depot is billed under can be removed. This cannot be undone.',
+      confirm: 'Remove',
     };
     this.dialog
       .open<ConfirmDialog, ConfirmData, boolean>(ConfirmDialog, { data, width: '440px', maxWidth: '95vw' })
@@ -128,7 +128,7 @@ export class RatePlanPage {
         if (!yes) return;
         try {
           await this.api.remove(plan.id);
-          this.snackBar.open(`Rate plan "${plan.name}" deleted`, 'OK');
+          this.snackBar.open(`Rate plan "${plan.name}" removed`, 'OK');
           await this.router.navigate(['/rates']);
         } catch (err) {
           this.snackBar.open(toApiProblem(err).message, 'OK', { duration: 10_000, politeness: 'assertive' });
