@@ -5,5 +5,5 @@ export const ratesRoutes: Routes = [
   { path: '', title: 'Rates', loadComponent: () => import('./rates-page').then((m) => m.RatesPage) },
   { path: 'new', title: 'New rate plan', loadComponent: () => import('./rate-plan-editor-page').then((m) => m.RatePlanEditorPage) },
   { path: ':id', title: 'Rate plan', loadComponent: () => import('./rate-plan-page').then((m) => m.RatePlanPage) },
-  { path: ':id/edit', title: 'Change rate plan', loadComponent: () => import('./rate-plan-editor-page').then((m) => m.RatePlanEditorPage) },
+  { path: ':id/edit', title: 'Edit rate plan', loadComponent: () => import('./rate-plan-editor-page').then((m) => m.RatePlanEditorPage) },
 ];
