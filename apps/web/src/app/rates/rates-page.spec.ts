@@ -37,8 +37,7 @@ describe('RatesPage', () => {
 
   async function refresh() {
     await settle();
-    TestBed.tick(); // not whenStable: it would wait for the unanswered request
-    await settle();
+    await fixture.whenStable();
     fixture.detectChanges();
   }
 
