@@ -24,8 +24,9 @@ function isErrorBody(value: unknown): value is ErrorBody {
   );
 }
 
-/** Turns anything thrown by HttpClient into `{ status, code, message, fields }`. */
+/** Turns anything thrown by HttpClient into `{ status, code, message, fields }` (also as a resource's error, which wraps it). */
 export function toApiProblem(err: unknown): ApiProblem {
+  if (err instanceof Error && err.cause instanceof HttpErrorResponse) return toApiProblem(err.cause);
   if (err instanceof HttpErrorResponse) {
     if (isErrorBody(err.error)) {
       return {

@@ -24,7 +24,8 @@ describe('CostsPage', () => {
 
   async function refresh() {
     await settle();
-    await fixture.whenStable();
+    TestBed.tick(); // not whenStable: it would wait for the unanswered request
+    await settle();
     fixture.detectChanges();
   }
 

@@ -1,4 +1,4 @@
-import { ChangeDetectionStrategy, Component, computed, effect, inject, input, signal, untracked } from '@angular/core';
+import { ChangeDetectionStrategy, Component, computed, inject, input, linkedSignal, resource, signal } from '@angular/core';
 import { MatButtonModule } from '@angular/material/button';
 import { MatButtonToggleModule } from '@angular/material/button-toggle';
 import { MatFormFieldModule } from '@angular/material/form-field';
@@ -80,13 +80,30 @@ export class CostsPage {
     return d && ISO_DATE.test(d) ? d : this.today();
   });
 
-  protected readonly month = signal<MonthCosts | null>(null);
-  protected readonly loading = signal(false);
-  protected readonly problem = signal<string | null>(null);
+  private readonly loaded = resource({
+    params: () => {
+      const depotId = this.depot()?.id;
+      const date = this.requested();
+      return depotId ? { depotId, date } : undefined;
+    },
+    loader: ({ params }) => this.api.month(params.depotId, params.date),
+  });
+  /** The period shown: kept while the next one loads, none after a failure. */
+  protected readonly month = linkedSignal<{ status: string; value: MonthCosts | undefined }, MonthCosts | null>({
+    source: () => ({ status: this.loaded.status(), value: this.loaded.hasValue() ? this.loaded.value() : undefined }),
+    computation: (s, previous) => s.value ?? (s.status === 'error' ? null : (previous?.value ?? null)),
+  });
+  protected readonly loading = this.loaded.isLoading;
+  protected readonly problem = computed(() => {
+    const err = this.loaded.error();
+    return err ? toApiProblem(err).message : null;
+  });
   /** The first day of a billing period seen, so the selector can list the periods around today. */
-  private readonly anchor = signal<string | null>(null);
+  private readonly anchor = linkedSignal<MonthCosts | null, string | null>({
+    source: this.month,
+    computation: (m, previous) => previous?.value ?? m?.period.start ?? null,
+  });
   protected readonly billView = signal<'projected' | 'toDate'>('projected');
-  private seq = 0;
 
   protected readonly periodName = computed(() => {
     const m = this.month();
@@ -199,36 +216,12 @@ export class CostsPage {
 
   constructor() {
     void this.depots.load();
-    effect(() => {
-      const depot = this.depot();
-      const date = this.requested();
-      if (!depot) return;
-      untracked(() => void this.load(depot.id, date));
-    });
-  }
-
-  protected async load(depotId: string, date: string): Promise<void> {
-    const seq = ++this.seq;
-    this.loading.set(true);
-    this.problem.set(null);
-    try {
-      const month = await this.api.month(depotId, date);
-      if (seq !== this.seq) return;
-      this.month.set(month);
-      if (!this.anchor()) this.anchor.set(month.period.start);
-    } catch (err) {
-      if (seq !== this.seq) return;
-      this.month.set(null);
-      this.problem.set(toApiProblem(err).message);
-    } finally {
-      if (seq === this.seq) this.loading.set(false);
-    }
   }
 
   protected reload(): void {
-    const depot = this.depot();
-    if (depot) void this.load(depot.id, this.requested());
+    this.loaded.reload();
   }
+
 
   protected choosePeriod(start: string): void {
     this.go(start);

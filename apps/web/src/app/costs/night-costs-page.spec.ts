@@ -12,10 +12,12 @@ describe('NightCostsPage', () => {
     const mock = TestBed.inject(HttpTestingController);
     const fixture = TestBed.createComponent(NightCostsPage);
     fixture.componentRef.setInput('planId', '00000000-0000-4000-8000-0000000000a1');
-    await fixture.whenStable();
+    TestBed.tick(); // not whenStable: it would wait for the unanswered request
+    await settle();
     mock.expectOne('/api/plans/00000000-0000-4000-8000-0000000000a1/costs').flush(planCosts());
     await settle();
-    await fixture.whenStable();
+    TestBed.tick(); // not whenStable: it would wait for the unanswered request
+    await settle();
     fixture.detectChanges();
     const el = fixture.nativeElement as HTMLElement;
     const text = (e: Element | null) => e?.textContent?.replace(/\s+/g, ' ').trim() ?? '';

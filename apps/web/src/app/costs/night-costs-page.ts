@@ -1,4 +1,4 @@
-import { ChangeDetectionStrategy, Component, computed, effect, inject, input, signal, untracked } from '@angular/core';
+import { ChangeDetectionStrategy, Component, computed, inject, input, resource } from '@angular/core';
 import { MatButtonModule } from '@angular/material/button';
 import { MatIconModule } from '@angular/material/icon';
 import { MatProgressBarModule } from '@angular/material/progress-bar';
@@ -26,10 +26,13 @@ export class NightCostsPage {
   /** The plan (route parameter). */
   readonly planId = input.required<string>();
 
-  protected readonly costs = signal<PlanCosts | null>(null);
-  protected readonly loading = signal(false);
-  protected readonly problem = signal<string | null>(null);
-  private seq = 0;
+  private readonly loaded = resource({ params: () => this.planId(), loader: ({ params: id }) => this.api.plan(id) });
+  protected readonly costs = computed<PlanCosts | null>(() => (this.loaded.hasValue() ? (this.loaded.value() ?? null) : null));
+  protected readonly loading = this.loaded.isLoading;
+  protected readonly problem = computed(() => {
+    const err = this.loaded.error();
+    return err ? toApiProblem(err).message : null;
+  });
 
   protected readonly night = computed(() => {
     const p = this.costs();
@@ -101,27 +104,7 @@ export class NightCostsPage {
 
   protected readonly fileName = computed(() => `costs-night-${this.costs()?.serviceDate ?? 'plan'}-buses.csv`);
 
-  constructor() {
-    effect(() => {
-      const id = this.planId();
-      untracked(() => void this.load(id));
-    });
-  }
-
-  protected async load(id: string): Promise<void> {
-    const seq = ++this.seq;
-    this.loading.set(true);
-    this.problem.set(null);
-    try {
-      const costs = await this.api.plan(id);
-      if (seq === this.seq) this.costs.set(costs);
-    } catch (err) {
-      if (seq === this.seq) {
-        this.costs.set(null);
-        this.problem.set(toApiProblem(err).message);
-      }
-    } finally {
-      if (seq === this.seq) this.loading.set(false);
-    }
+  protected load(): void {
+    this.loaded.reload();
   }
 }

@@ -28,7 +28,7 @@ describe('ServiceDayPage', () => {
     fixture = TestBed.createComponent(ServiceDayPage);
     fixture.componentRef.setInput('date', '2026-12-03');
     el = fixture.nativeElement;
-    await fixture.whenStable();
+    await stable();
     mock.expectOne(DAY).flush(
       serviceDay({
         runs: [
@@ -40,11 +40,19 @@ describe('ServiceDayPage', () => {
     mock.expectOne(`/api/depots/${DEPOT_ID}/buses`).flush({ buses: [bus(), bus({ id: '00000000-0000-4000-8000-0000000000b2', number: '202' })] });
     mock.expectOne(`/api/depots/${DEPOT_ID}/cold-weather`).flush({ bands: [{ belowF: 32, factor: 1.25 }] });
     await settle();
-    await fixture.whenStable();
+    await stable();
     fixture.detectChanges();
   }
 
   afterEach(() => mock.verify());
+
+  /** Runs change detection and the resources' loaders; never waits for an unanswered request (whenStable would). */
+  async function stable() {
+    TestBed.tick();
+    await settle();
+    TestBed.tick();
+    await settle();
+  }
 
   /** Button labels without their icon's ligature. */
   const buttons = () =>
@@ -81,7 +89,7 @@ describe('ServiceDayPage', () => {
       { status: 400, statusText: 'Bad Request' },
     );
     await uploading;
-    await fixture.whenStable();
+    await stable();
     fixture.detectChanges();
     const list = el.querySelector('ny-problem-summary ul[aria-label="Lines to fix"]');
     const items = [...list!.querySelectorAll('li')].map((li) => li.textContent?.replace(/\s+/g, ' ').trim());
@@ -132,16 +140,16 @@ describe('ServiceDayPage', () => {
     await signedInAs(mock, ['supervisor']);
     fixture = TestBed.createComponent(ServiceDayPage);
     el = fixture.nativeElement;
-    await fixture.whenStable();
+    await stable();
     mock.expectNone((r) => r.url.includes('/service-days/'));
     mock.expectOne(`/api/depots/${DEPOT_ID}/night`).flush(depotNight('2026-12-02', now));
     await settle();
-    await fixture.whenStable();
+    await stable();
     mock.expectOne(`/api/depots/${DEPOT_ID}/service-days/2026-12-02`).flush(serviceDay({ date: '2026-12-02', runs: [] }));
     mock.expectOne(`/api/depots/${DEPOT_ID}/buses`).flush({ buses: [bus()] });
     mock.expectOne(`/api/depots/${DEPOT_ID}/cold-weather`).flush({ bands: [] });
     await settle();
-    await fixture.whenStable();
+    await stable();
     fixture.detectChanges();
     expect(el.querySelector<HTMLInputElement>('input[type="date"]')?.value).toBe('2026-12-02');
     mock.verify();

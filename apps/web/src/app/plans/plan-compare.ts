@@ -1,4 +1,4 @@
-import { ChangeDetectionStrategy, Component, computed, effect, inject, input, linkedSignal, signal, untracked } from '@angular/core';
+import { ChangeDetectionStrategy, Component, computed, inject, input, linkedSignal, resource } from '@angular/core';
 import { MatFormFieldModule } from '@angular/material/form-field';
 import { MatProgressBarModule } from '@angular/material/progress-bar';
 import { MatSelectModule } from '@angular/material/select';
@@ -88,34 +88,25 @@ export class PlanCompare {
     if (preferred && list.some((c) => c.id === preferred)) return preferred;
     return previousVersion(this.versions(), this.plan())?.id ?? list[0]?.id ?? null;
   });
-  protected readonly comparison = signal<PlanComparison | null>(null);
-  protected readonly loading = signal(false);
-  protected readonly problem = signal<string | null>(null);
-  private seq = 0;
-
-  constructor() {
-    effect(() => {
-      const plan = this.plan();
-      const other = this.chosen();
-      untracked(() => void this.load(plan, other));
-    });
-  }
-
-  private async load(plan: PlanDetail, other: string | null): Promise<void> {
-    const seq = ++this.seq;
-    this.comparison.set(null);
-    this.problem.set(null);
-    if (!other || plan.status !== 'done') return;
-    this.loading.set(true);
-    try {
-      const c = await this.api.compare(plan.id, other);
-      if (seq === this.seq) this.comparison.set(c);
-    } catch (err) {
-      if (seq === this.seq) this.problem.set(toApiProblem(err).message);
-    } finally {
-      if (seq === this.seq) this.loading.set(false);
-    }
-  }
+  /** The comparison with the chosen version, asked again only when either version changes. */
+  private readonly pair = computed(() => {
+    const plan = this.plan();
+    const other = this.chosen();
+    return other && plan.status === 'done' ? `${plan.id} ${other}` : undefined;
+  });
+  private readonly compared = resource({
+    params: () => this.pair(),
+    loader: ({ params }) => {
+      const [id, other] = params.split(' ') as [string, string];
+      return this.api.compare(id, other);
+    },
+  });
+  protected readonly comparison = computed<PlanComparison | null>(() => (this.compared.hasValue() ? (this.compared.value() ?? null) : null));
+  protected readonly loading = this.compared.isLoading;
+  protected readonly problem = computed(() => {
+    const err = this.compared.error();
+    return err ? toApiProblem(err).message : null;
+  });
 
   protected sentence(c: PlanComparison): string {
     const moved = c.moved.length === 0 ? 'no bus moved' : `${c.moved.length} ${c.moved.length === 1 ? 'bus' : 'buses'} moved`;

@@ -1,6 +1,7 @@
 import { provideHttpClient } from '@angular/common/http';
 import { HttpTestingController, provideHttpClientTesting } from '@angular/common/http/testing';
 import { TestBed } from '@angular/core/testing';
+import { settle } from '../testing/fixtures';
 import type { PlanResult } from '@nightyard/contracts';
 import { busRows, reasonText } from './plan-format';
 import { PLAN_IDS, planDetail, planSummary } from './plan-fixtures';
@@ -35,7 +36,8 @@ describe('plan review', () => {
     const fixture = TestBed.createComponent(PlanReview);
     fixture.componentRef.setInput('plan', planDetail() as ReturnType<typeof planDetail> & { result: PlanResult });
     fixture.componentRef.setInput('versions', [planSummary(), planSummary({ id: PLAN_IDS.published, version: 1, state: 'published' })]);
-    await fixture.whenStable();
+    TestBed.tick(); // not whenStable: it would wait for the unanswered request
+    await settle();
     fixture.detectChanges();
     const el = fixture.nativeElement as HTMLElement;
 
@@ -60,7 +62,8 @@ describe('plan review', () => {
       moved: [{ bus: '205', before: 'C2 17:00-18:00', after: 'C2 18:30-19:00' }],
       costChange: -12.5,
     });
-    await fixture.whenStable();
+    TestBed.tick(); // not whenStable: it would wait for the unanswered request
+    await settle();
     fixture.detectChanges();
     expect(el.querySelector('ny-plan-compare')?.textContent).toContain('Against version 1: 1 bus moved, the cost is $12.50 lower.');
     mock.verify();
@@ -73,7 +76,8 @@ describe('plan review', () => {
     const whatIf = '00000000-0000-4000-8000-0000000000f3';
     fixture.componentRef.setInput('plan', planDetail({ version: 4 }) as ReturnType<typeof planDetail> & { result: PlanResult });
     fixture.componentRef.setInput('versions', [planSummary({ version: 4 }), planSummary({ id: whatIf, version: 3, kind: 'what-if' })]);
-    await fixture.whenStable();
+    TestBed.tick(); // not whenStable: it would wait for the unanswered request
+    await settle();
     fixture.detectChanges();
     mock.expectOne(`/api/plans/${PLAN_IDS.draft}/compare?with=${whatIf}`).flush({
       from: { id: whatIf, version: 3, kind: 'what-if' },
@@ -81,7 +85,8 @@ describe('plan review', () => {
       moved: [{ bus: '205', before: 'C3 17:00-18:00', after: 'C2 18:30-19:00' }],
       costChange: 12.5,
     });
-    await fixture.whenStable();
+    TestBed.tick(); // not whenStable: it would wait for the unanswered request
+    await settle();
     fixture.detectChanges();
     const compare = fixture.nativeElement.querySelector('ny-plan-compare') as HTMLElement;
     expect(compare.textContent).toContain('Against what-if version 3: 1 bus moved, the cost is $12.50 higher.');

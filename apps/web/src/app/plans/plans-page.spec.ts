@@ -33,7 +33,7 @@ describe('PlansPage', () => {
     const selected = chosen === 'draft' ? PLAN_IDS.draft : WHAT_IF_ID;
     fixture.componentRef.setInput('plan', selected);
     el = fixture.nativeElement;
-    await fixture.whenStable();
+    await stable();
     mock.expectOne(`/api/depots/${DEPOT_ID}/plans?serviceDate=2026-12-03`).flush({
       plans: [
         ...(chosen === 'what-if' ? [planSummary(whatIf)] : []),
@@ -45,19 +45,27 @@ describe('PlansPage', () => {
       depot: { id: DEPOT_ID, chargers: [{ label: 'C1', maxKw: 60, status: 'in_service' }, { label: 'C2', maxKw: 30, status: 'in_service' }] } as DepotDetail,
     });
     await settle();
-    await fixture.whenStable();
+    await stable();
     mock.expectOne(`/api/plans/${selected}`).flush({ plan: chosen === 'draft' ? planDetail() : planDetail(whatIf) });
     await settle();
-    await fixture.whenStable();
+    await stable();
     fixture.detectChanges();
     for (const req of mock.match((r) => r.url.endsWith('/compare'))) {
       req.flush({ from: { id: PLAN_IDS.published, version: 1, kind: 'generated' }, to: { id: selected, version: 2, kind: 'generated' }, moved: [], costChange: 0 });
     }
-    await fixture.whenStable();
+    await stable();
     fixture.detectChanges();
   }
 
   afterEach(() => mock.verify());
+
+  /** Runs change detection and the resources' loaders; never waits for an unanswered request (whenStable would). */
+  async function stable() {
+    TestBed.tick();
+    await settle();
+    TestBed.tick();
+    await settle();
+  }
 
   const button = (label: string) =>
     [...el.querySelectorAll('button')].find((b) => b.textContent?.replace(/\s+/g, ' ').trim().endsWith(label)) ?? null;
@@ -94,7 +102,7 @@ describe('PlansPage', () => {
       { status: 409, statusText: 'Conflict' },
     );
     await settle();
-    await fixture.whenStable();
+    await stable();
     fixture.detectChanges();
     const alert = el.querySelector('.conflict[role="alert"]');
     expect(alert?.textContent).toContain('Not published: someone else published a plan for this night.');
@@ -146,7 +154,7 @@ describe('PlansPage', () => {
     req.flush({ plan: draft, adoption });
     await settle();
     fixture.componentRef.setInput('plan', draft.id);
-    await fixture.whenStable();
+    await stable();
     mock.expectOne(`/api/plans/${draft.id}`).flush({ plan: planDetail({ ...draft, result: null }) });
     await settle();
     fixture.detectChanges();
@@ -188,15 +196,15 @@ describe('PlansPage', () => {
     await signedInAs(mock, ['supervisor']);
     fixture = TestBed.createComponent(PlansPage);
     el = fixture.nativeElement;
-    await fixture.whenStable();
+    await stable();
     mock.expectNone((r) => r.url.endsWith('/plans'));
     mock.expectOne(`/api/depots/${DEPOT_ID}/night`).flush(depotNight('2026-12-01', now));
     await settle();
-    await fixture.whenStable();
+    await stable();
     mock.expectOne(`/api/depots/${DEPOT_ID}/plans?serviceDate=2026-12-01`).flush({ plans: [] });
     mock.expectOne(`/api/depots/${DEPOT_ID}`).flush({ depot: { id: DEPOT_ID, chargers: [] } as unknown as DepotDetail });
     await settle();
-    await fixture.whenStable();
+    await stable();
     fixture.detectChanges();
     expect(el.querySelector<HTMLInputElement>('input[type="date"]')?.value).toBe('2026-12-01');
     expect(el.textContent).toContain('December 1');

@@ -30,9 +30,11 @@ describe('RatePlanEditorPage', () => {
     await refresh();
   }
 
+  /** Runs change detection and the resources' loaders; never waits for an unanswered request (whenStable would). */
   async function refresh() {
     await settle();
-    await fixture.whenStable();
+    TestBed.tick();
+    await settle();
     fixture.detectChanges();
   }
 

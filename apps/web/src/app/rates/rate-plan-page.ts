@@ -1,4 +1,4 @@
-import { ChangeDetectionStrategy, Component, computed, effect, inject, input, signal, untracked } from '@angular/core';
+import { ChangeDetectionStrategy, Component, computed, inject, input, resource } from '@angular/core';
 import { MatButtonModule } from '@angular/material/button';
 import { MatDialog } from '@angular/material/dialog';
 import { MatIconModule } from '@angular/material/icon';
@@ -33,7 +33,7 @@ import { RatesApi } from './rates-api';
     @if (problem(); as p) {
       <div class="problem" role="alert">
         <p>The rate plan could not be loaded. {{ p }}</p>
-        <button mat-stroked-button type="button" (click)="load(id())">Try again</button>
+        <button mat-stroked-button type="button" (click)="reload()">Try again</button>
       </div>
     }
 
@@ -93,9 +93,13 @@ export class RatePlanPage {
   readonly date = input<string>();
 
   protected readonly canEdit = injectCanEditSetup();
-  protected readonly plan = signal<RatePlan | null>(null);
-  protected readonly loading = signal(true);
-  protected readonly problem = signal<string | null>(null);
+  private readonly loaded = resource({ params: () => this.id(), loader: ({ params: id }) => this.api.get(id) });
+  protected readonly plan = computed(() => (this.loaded.hasValue() ? this.loaded.value() : null));
+  protected readonly loading = this.loaded.isLoading;
+  protected readonly problem = computed(() => {
+    const err = this.loaded.error();
+    return err ? toApiProblem(err).message : null;
+  });
   protected readonly depotReady = computed(() => ['loaded', 'failed'].includes(this.depots.state()));
   protected readonly timezone = computed(() => this.depots.current()?.timezone ?? 'UTC');
   protected readonly seasonCount = computed(() => {
@@ -105,28 +109,16 @@ export class RatePlanPage {
 
   constructor() {
     void this.depots.load();
-    effect(() => {
-      const id = this.id();
-      untracked(() => void this.load(id));
-    });
   }
 
-  protected async load(id: string): Promise<void> {
-    this.loading.set(true);
-    this.problem.set(null);
-    try {
-      this.plan.set(await this.api.get(id));
-    } catch (err) {
-      this.problem.set(toApiProblem(err).message);
-    } finally {
-      this.loading.set(false);
-    }
+  protected reload(): void {
+    this.loaded.reload();
   }
 
   protected remove(plan: RatePlan): void {
     const data: ConfirmData = {
       title: `Remove ${plan.name}?`,
-      message: 'Only a plan no depot is billed under can be deleted. This cannot be undone.',
+      message: 'Only a plan no depot is billed under can be removed. This cannot be undone.',
       confirm: 'Remove',
     };
     this.dialog
@@ -136,7 +128,7 @@ export class RatePlanPage {
         if (!yes) return;
         try {
           await this.api.remove(plan.id);
-          this.snackBar.open(`Rate plan "${plan.name}" deleted`, 'OK');
+          this.snackBar.open(`Rate plan "${plan.name}" removed`, 'OK');
           await this.router.navigate(['/rates']);
         } catch (err) {
           this.snackBar.open(toApiProblem(err).message, 'OK', { duration: 10_000, politeness: 'assertive' });

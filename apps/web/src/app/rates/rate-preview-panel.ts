@@ -1,5 +1,4 @@
-import { ChangeDetectionStrategy, Component, effect, inject, input, signal, untracked } from '@angular/core';
-import { FormControl, ReactiveFormsModule } from '@angular/forms';
+import { ChangeDetectionStrategy, Component, computed, inject, input, linkedSignal, resource, untracked } from '@angular/core';
 import { MatButtonModule } from '@angular/material/button';
 import { MatFormFieldModule } from '@angular/material/form-field';
 import { MatIconModule } from '@angular/material/icon';
@@ -16,14 +15,14 @@ import { RatesApi } from './rates-api';
 /** Pick a day, see its prices: the chart, its words and the hourly table. */
 @Component({
   selector: 'ny-rate-preview-panel',
-  imports: [MatButtonModule, MatFormFieldModule, MatIconModule, MatInputModule, MatProgressBarModule, RateDay, ReactiveFormsModule],
+  imports: [MatButtonModule, MatFormFieldModule, MatIconModule, MatInputModule, MatProgressBarModule, RateDay],
   changeDetection: ChangeDetectionStrategy.OnPush,
   template: `
     <div class="pick ny-dense">
       <button mat-icon-button type="button" aria-label="Previous day" (click)="step(-1)"><mat-icon>chevron_left</mat-icon></button>
       <mat-form-field appearance="outline" subscriptSizing="dynamic">
         <mat-label>Day to preview</mat-label>
-        <input matInput type="date" [formControl]="date" />
+        <input matInput type="date" #dayInput [value]="day()" (input)="day.set(dayInput.value)" />
       </mat-form-field>
       <button mat-icon-button type="button" aria-label="Next day" (click)="step(1)"><mat-icon>chevron_right</mat-icon></button>
       <span class="tz">Clock times at the depot ({{ timezone() }})</span>
@@ -55,41 +54,28 @@ export class RatePreviewPanel {
   /** The day shown first; today at the depot when absent. */
   readonly initialDate = input<string | null>(null);
 
-  protected readonly date = new FormControl('', { nonNullable: true });
-  protected readonly preview = signal<RatePreview | null>(null);
-  protected readonly busy = signal(false);
-  protected readonly problem = signal<string | null>(null);
-  private requestNo = 0;
-
-  constructor() {
-    effect(() => {
-      const zone = this.timezone();
-      const first = this.initialDate() ?? untracked(() => this.clock.todayAt(zone));
-      this.planId();
-      untracked(() => {
-        this.date.setValue(first, { emitEvent: false });
-        void this.load(first);
-      });
-    });
-    this.date.valueChanges.subscribe((d) => void this.load(d));
-  }
+  /** The day picked; back to the first day when the plan or the zone changes. */
+  protected readonly day = linkedSignal(() => {
+    const zone = this.timezone();
+    this.planId();
+    return this.initialDate() ?? untracked(() => this.clock.todayAt(zone));
+  });
+  private readonly loaded = resource({
+    params: () => (ISO_DATE.test(this.day()) ? { planId: this.planId(), date: this.day(), timezone: this.timezone() } : undefined),
+    loader: ({ params }) => this.api.preview(params.planId, params.date, params.timezone),
+  });
+  /** The last preview loaded (kept while the next loads, or when a day is half typed). */
+  protected readonly preview = linkedSignal<RatePreview | undefined, RatePreview | null>({
+    source: () => (this.loaded.hasValue() ? this.loaded.value() : undefined),
+    computation: (p, previous) => p ?? previous?.value ?? null,
+  });
+  protected readonly busy = this.loaded.isLoading;
+  protected readonly problem = computed(() => {
+    const err = this.loaded.error();
+    return err ? toApiProblem(err).message : null;
+  });
 
   protected step(days: number): void {
-    if (ISO_DATE.test(this.date.value)) this.date.setValue(shift(this.date.value, days));
-  }
-
-  private async load(date: string): Promise<void> {
-    if (!ISO_DATE.test(date)) return;
-    const no = ++this.requestNo;
-    this.busy.set(true);
-    this.problem.set(null);
-    try {
-      const preview = await this.api.preview(this.planId(), date, this.timezone());
-      if (no === this.requestNo) this.preview.set(preview);
-    } catch (err) {
-      if (no === this.requestNo) this.problem.set(toApiProblem(err).message);
-    } finally {
-      if (no === this.requestNo) this.busy.set(false);
-    }
+    if (ISO_DATE.test(this.day())) this.day.set(shift(this.day(), days));
   }
 }
