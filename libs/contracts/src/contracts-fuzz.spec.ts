@@ -72,7 +72,7 @@ const NOT_REQUESTS = new Set([
   'coldWeatherBandSchema', 'socSourceSchema', 'runSchema', 'serviceDaySchema', 'csvRowErrorSchema', 'forecastLowFSchema',
   'planStateSchema', 'planJobStatusSchema', 'planKindSchema', 'planResultSchema', 'planSummarySchema', 'planDetailSchema',
   'planComparisonSchema', 'baselineKindSchema', 'whatIfAdoptionSchema', 'adoptedPlanSchema', 'billLineSchema', 'billSchema', 'planCostsSchema', 'emissionsSchema', 'monthCostsSchema',
-  'meterImportResultSchema', 'yardStepSchema', 'tonightSchema', 'yardConfirmationSchema', 'yardReportResultSchema',
+  'meterImportResultSchema', 'yardStepSchema', 'yardSessionSchema', 'tonightPlanSchema', 'tonightSchema', 'yardConfirmationSchema', 'yardReportResultSchema',
   'emailSchema', 'passwordSchema', 'serviceNightSchema', 'depotNightSchema', 'liveChargerSchema', 'liveEventSchema',
 ]);
 
