@@ -15,16 +15,23 @@ const WINDOW_DAYS = 21;
  * scheduling library). Every "tonight" in the API comes from here.
  */
 export async function nightOfDepot(db: Db, depot: { id: string; timezone: string }, now: Date): Promise<DepotNight> {
-  const today = depotDate(now, depot.timezone);
-  const key = `${today} ${depot.timezone}`;
+  const zone = depot.timezone;
+  const t = now.getTime();
   let known = serviceDaysCache.get(depot.id);
-  if (known?.key !== key) {
+  // The depot's date is worked out (zone arithmetic, dear on every request) only when `now` has left the remembered day.
+  if (!known || known.zone !== zone || t < known.dayStartMs || t >= known.dayEndMs) {
+    const today = depotDate(now, zone);
+    const day = DateTime.fromISO(today, { zone });
     const days = await serviceDaysAround(db, depot.id, today);
-    known = { key, nights: nightsOfDays(days, depot.timezone) };
+    known = { zone, dayStartMs: day.toMillis(), dayEndMs: day.plus({ days: 1 }).toMillis(), nights: nightsOfDays(days, zone) };
     serviceDaysCache.set(depot.id, known);
   }
-  const night = nightAmong(known.nights, depot.timezone, now);
-  return { now: DateTime.fromJSDate(now, { zone: depot.timezone }).toISO()!, timezone: depot.timezone, ...night };
+  const night = nightAmong(known.nights, zone, now);
+  // The depot-time instant is written out only when read (most callers want the night alone).
+  return Object.defineProperty({ timezone: zone, ...night }, 'now', {
+    enumerable: true,
+    get: () => DateTime.fromJSDate(now, { zone }).toISO()!,
+  }) as DepotNight;
 }
 
 /**
@@ -33,7 +40,7 @@ export async function nightOfDepot(db: Db, depot: { id: string; timezone: string
  * service day's one write (which forgets them).
  * One API process serves requests; the job workers never ask.
  */
-const serviceDaysCache = new Map<string, { key: string; nights: ServiceNight[] }>();
+const serviceDaysCache = new Map<string, { zone: string; dayStartMs: number; dayEndMs: number; nights: ServiceNight[] }>();
 
 /** After a depot's runs change. */
 export function forgetServiceDays(depotId: string): void {
