@@ -77,6 +77,9 @@ export function socFromMeterValues(meterValue: unknown): { pct: number; atBegin:
   return null;
 }
 
+/** A charger's plug-in readings closer together than this are one plug-in: only the first is taken. */
+export const SOC_READING_GAP_MS = 5 * 60_000;
+
 /** A state of charge a charger read from the bus at plug-in. */
 export interface ChargerSocReading {
   depotId: string;
@@ -162,6 +165,8 @@ export class CentralSystem {
   private readonly checking = new Set<string>();
   /** Connections whose plug-in began and whose state of charge has not been read yet. */
   private readonly awaitingSoc = new WeakSet<RpcClient>();
+  /** When each charger's last plug-in reading was taken (epoch ms, the API's clock). */
+  private readonly lastSocAt = new Map<string, number>();
   /** Readings are taken one after another, in the order the chargers sent them. */
   private socWork: Promise<void> = Promise.resolve();
   private readonly liveListeners = new Set<LiveChangeListener>();
@@ -265,7 +270,13 @@ export class CentralSystem {
     const listener = this.socListener;
     if (!listener) return;
     const { chargerId, depotId, label } = client.session;
-    const reading = { depotId, chargerId, charger: label, socPct: soc.pct, at: this.clock() };
+    const at = this.clock();
+    // One reading per plug-in: a charger repeating Transaction.Begin samples (a fault, a replay)
+    // must not re-plan the night and mail the staff again and again.
+    const last = this.lastSocAt.get(chargerId);
+    if (last !== undefined && at.getTime() - last < SOC_READING_GAP_MS) return;
+    this.lastSocAt.set(chargerId, at.getTime());
+    const reading = { depotId, chargerId, charger: label, socPct: soc.pct, at };
     // The charger's message is answered at once; the reading (and any re-plan) follows on its own.
     this.socWork = this.socWork.then(() => listener(reading)).catch((err: unknown) => this.log.warn({ err, chargerId }, 'state of charge reading not taken'));
   }
