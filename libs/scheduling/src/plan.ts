@@ -5,6 +5,7 @@ import { keptAssignment } from './stable.js';
 import { explainShortfalls, type ShortReason } from './explain.js';
 import { loadSolver, type LpResult, type Solver } from './highs-solver.js';
 import { AssignedModel, localSearch } from './local-search.js';
+import { defaultLnsLimits, pairSearch } from './lns.js';
 import { solveLowerBound } from './lower-bound.js';
 import { buildChargeModel, powerFrom } from './lp-model.js';
 import { prepareProblem, type Problem } from './problem.js';
@@ -98,6 +99,8 @@ export interface Plan {
     localSearchAccepted: number;
     /** Stage-1 construction the plan comes from (e.g. sweep-strong-deadline). */
     construction: string;
+    /** Large-neighbourhood search: pairs of chargers re-split, splits laid out, LP solves, improvements kept. */
+    lns: { neighbourhoods: number; accepted: number; lpSolves: number; splits: number };
     /**
      * Why the search ended: it reached the bound, used its move budget (both reproducible), or
      * hit the time safety net (the plan may then differ from run to run).
@@ -119,6 +122,11 @@ export interface PlanOptions {
   timeBudgetMs?: number;
   /** Local-search moves (default `defaultMoves(problem)`, derived from the problem's size). */
   maxMoves?: number;
+  /**
+   * Large-neighbourhood search over whole charger sequences (see lns.ts) when the local search
+   * ends above the bound; default on. Off only to measure what it adds.
+   */
+  lns?: boolean;
 }
 
 const round = (v: number, digits = 6) => {
@@ -220,6 +228,7 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
   const live = new AssignedModel(problem, solver, start);
   let search;
   let chosen!: Chosen;
+  let lnsStats = { neighbourhoods: 0, accepted: 0, lpSolves: 0, splits: 0 };
   try {
     let first = live.solve();
     if (first.status !== 'optimal') throw new Error(`plan LP ended ${first.status}; the model should always be solvable`);
@@ -261,6 +270,11 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
       first = live.solve();
     }
     search = localSearch(problem, hints, live, start, first, { deadline, maxMoves, target });
+    if (options.lns !== false && search.result.objective > target && !search.timedOut) {
+      const lns = pairSearch(problem, hints, live, search.assignment, search.result, defaultLnsLimits(problem, deadline, target));
+      lnsStats = { neighbourhoods: lns.neighbourhoods, accepted: lns.accepted, lpSolves: lns.moves, splits: lns.splits };
+      search = { ...search, assignment: lns.assignment, result: lns.result, iterations: search.iterations + lns.iterations, timedOut: lns.timedOut };
+    }
     chosen = preferStableAndFewerMoves(problem, hints, live, search.assignment, search.result, { deadline, maxMoves, target });
   } finally {
     live.dispose();
@@ -288,6 +302,7 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
   plan.stats.localSearchMoves = search.moves;
   plan.stats.localSearchAccepted = search.accepted;
   plan.stats.construction = construction;
+  plan.stats.lns = lnsStats;
   plan.stats.stoppedBy = stoppedBy;
   plan.stats.simplexIterations = search.iterations + lb.iterations;
   plan.solveMs = round(performance.now() - t0, 1);
@@ -509,6 +524,7 @@ function assemblePlan(
       localSearchMoves: 0,
       localSearchAccepted: 0,
       construction: '',
+      lns: { neighbourhoods: 0, accepted: 0, lpSolves: 0, splits: 0 },
       stoppedBy: 'bound',
       simplexIterations: 0,
       shortfallKwh: round(totalShort),
