@@ -59,15 +59,15 @@ export function exactSize(problem: Problem, stays?: number[], chargers?: number[
   let n = 0;
   for (const id of ss) {
     const s = problem.stays[id]!;
-    n += (s.d - s.a) * cs.length * perSlot;
+    n += (s.departSlot - s.arriveSlot) * cs.length * perSlot;
   }
   return n;
 }
 
 export function solveExact(problem: Problem, solver: Solver, options: ExactOptions = {}): ExactResult {
   const t0 = performance.now();
-  const { T } = problem;
-  const freeStays = options.stays ?? problem.stays.filter((s) => s.d > s.a).map((s) => s.id);
+  const { slotCount: T } = problem;
+  const freeStays = options.stays ?? problem.stays.filter((s) => s.departSlot > s.arriveSlot).map((s) => s.id);
   const freeSet = new Set(freeStays);
   const chargers = options.chargers ?? problem.chargers.map((c) => c.index);
   const fixed = options.fixed;
@@ -136,8 +136,8 @@ export function solveExact(problem: Problem, solver: Solver, options: ExactOptio
     const m = minWindow(problem, s);
     const perCharger: Int32Array[] = [];
     const startsOfStay: number[] = [];
-    const xsBySlot: number[][] = Array.from({ length: s.d - s.a }, () => []);
-    const powerTerms: { idx: number[]; val: number[] }[] = Array.from({ length: s.d - s.a }, () => ({ idx: [], val: [] }));
+    const xsBySlot: number[][] = Array.from({ length: s.departSlot - s.arriveSlot }, () => []);
+    const powerTerms: { idx: number[]; val: number[] }[] = Array.from({ length: s.departSlot - s.arriveSlot }, () => ({ idx: [], val: [] }));
     let widest = 0;
     for (const c of chargers) {
       const xs = new Int32Array(T).fill(-1);
@@ -148,29 +148,29 @@ export function solveExact(problem: Problem, solver: Solver, options: ExactOptio
       if (cap <= 0) continue;
       widest = Math.max(widest, cap);
       const g = bindingCab(c);
-      for (let t = s.a; t < s.d; t++) if (ch.available[t]) xs[t] = bin();
-      for (let t = s.a; t < s.d; t++) {
+      for (let t = s.arriveSlot; t < s.departSlot; t++) if (ch.available[t]) xs[t] = bin();
+      for (let t = s.arriveSlot; t < s.departSlot; t++) {
         const x = xs[t]!;
         if (x < 0) continue;
-        xsBySlot[t - s.a]!.push(x);
+        xsBySlot[t - s.arriveSlot]!.push(x);
         const k = key(c, t);
         if (!onCharger.has(k)) onCharger.set(k, []);
         onCharger.get(k)!.push(x);
         if (g >= 0) {
           const q = col(0, 0, cap, false);
           row([q, x], [1, -cap], -Infinity, 0);
-          powerTerms[t - s.a]!.idx.push(q);
-          powerTerms[t - s.a]!.val.push(-1);
+          powerTerms[t - s.arriveSlot]!.idx.push(q);
+          powerTerms[t - s.arriveSlot]!.val.push(-1);
           const gk = g * (T + 1) + t;
           if (!cabTerms.has(gk)) cabTerms.set(gk, []);
           cabTerms.get(gk)!.push(q);
         } else {
-          powerTerms[t - s.a]!.idx.push(x);
-          powerTerms[t - s.a]!.val.push(-cap);
+          powerTerms[t - s.arriveSlot]!.idx.push(x);
+          powerTerms[t - s.arriveSlot]!.val.push(-cap);
         }
         // A plug-in at t: allowed if the window [t, t+m) fits and the move can be made.
         let y = -1;
-        const fits = t + m <= s.d && (pinnedTo < 0 || t === s.a);
+        const fits = t + m <= s.departSlot && (pinnedTo < 0 || t === s.arriveSlot);
         let whole = fits;
         for (let u = t; u < t + m && whole; u++) if (!ch.available[u]) whole = false;
         const free = startIsFree(problem, s, t);
@@ -195,7 +195,7 @@ export function solveExact(problem: Problem, solver: Solver, options: ExactOptio
           }
         }
         // Contiguity: x[t] <= x[t-1] + y[t].
-        const prev = t > s.a ? xs[t - 1]! : -1;
+        const prev = t > s.arriveSlot ? xs[t - 1]! : -1;
         const idx = [x];
         const val = [1];
         if (prev >= 0) {
@@ -222,16 +222,16 @@ export function solveExact(problem: Problem, solver: Solver, options: ExactOptio
         }
       }
       // Unplug at the stay's end, when that is a crew move (drivers do not unplug).
-      if (s.d < T && !endIsFree(problem, s, s.d) && capacity && xs[s.d - 1]! >= 0) moveCols[s.d]!.push(xs[s.d - 1]!);
+      if (s.departSlot < T && !endIsFree(problem, s, s.departSlot) && capacity && xs[s.departSlot - 1]! >= 0) moveCols[s.departSlot]!.push(xs[s.departSlot - 1]!);
     }
     if (startsOfStay.length) row(startsOfStay, startsOfStay.map(() => 1), -Infinity, 1);
-    for (let t = s.a; t < s.d; t++) {
-      const xs = xsBySlot[t - s.a]!;
+    for (let t = s.arriveSlot; t < s.departSlot; t++) {
+      const xs = xsBySlot[t - s.arriveSlot]!;
       if (xs.length > 1) row(xs, xs.map(() => 1), -Infinity, 1);
       const pc = model.pCol[s.bus]![t]!;
       if (pc < 0) continue;
       upper[pc] = Math.min(bus.maxKw, widest);
-      const pt = powerTerms[t - s.a]!;
+      const pt = powerTerms[t - s.arriveSlot]!;
       row([pc, ...pt.idx], [1, ...pt.val], -Infinity, 0);
     }
     xCol.set(id, perCharger);
@@ -313,7 +313,7 @@ export function solveExact(problem: Problem, solver: Solver, options: ExactOptio
         for (const ch of chargers) {
           const xs = perCharger[ch];
           if (!xs) continue;
-          for (let t = s.a; t < s.d; t++) {
+          for (let t = s.arriveSlot; t < s.departSlot; t++) {
             if (xs[t]! < 0) continue;
             idx.push(xs[t]!);
             val.push(ch === c && t >= from && t < to ? 1 : 0);
@@ -371,7 +371,7 @@ export function solveExact(problem: Problem, solver: Solver, options: ExactOptio
           if (!xs) continue;
           let first = -1;
           let last = -1;
-          for (let t = s.a; t < s.d; t++) {
+          for (let t = s.arriveSlot; t < s.departSlot; t++) {
             if (xs[t]! >= 0 && x[xs[t]!]! > 0.5) {
               if (first < 0) first = t;
               last = t;

@@ -28,6 +28,8 @@ export interface LnsLimits {
   shortlist: number;
   /** Splits laid out in all (a budget on work). */
   maxSplits: number;
+  /** LP solves in all. */
+  maxLpSolves: number;
 }
 
 export interface LnsResult extends SearchResult {
@@ -36,7 +38,12 @@ export interface LnsResult extends SearchResult {
 }
 
 export function defaultLnsLimits(problem: Problem, deadline: number, target: number): LnsLimits {
-  return { deadline, target, maxStays: 12, evaluate: 3, shortlist: 24, passes: 3, maxSplits: Math.max(2000, 40_000 - 100 * problem.stays.length) };
+  const n = problem.stays.length;
+  return {
+    deadline, target, maxStays: 12, evaluate: 3, shortlist: 24, passes: 3,
+    maxSplits: Math.max(2000, 40_000 - 100 * n),
+    maxLpSolves: Math.max(24, Math.min(150, Math.round(9000 / (25 + n)))),
+  };
 }
 
 /** How badly an assignment's windows on some chargers hold their stays' energy (lower is better). */
@@ -57,7 +64,7 @@ function splitScore(problem: Problem, hints: AssignmentHints, a: Assignment, sta
     score += 1000 * Math.max(0, need - kw * dt * Math.max(0, to - from));
     // The relaxation's charging left outside the window (it would have to move to dearer slots).
     const p = hints.power[stay.bus]!;
-    for (let t = stay.a; t < stay.d; t++) if (t < from || t >= to) score += p[t]! * dt;
+    for (let t = stay.arriveSlot; t < stay.departSlot; t++) if (t < from || t >= to) score += p[t]! * dt;
   }
   return score;
 }
@@ -87,7 +94,15 @@ export function pairSearch(
   const pairs: [number, number][] = [];
   for (let i = 0; i < usable.length; i++) for (let j = i + 1; j < usable.length; j++) pairs.push([usable[i]!, usable[j]!]);
   const kw = (c: number) => problem.chargers[c]!.maxKw;
-  pairs.sort((p, q) => Math.abs(kw(q[0]) - kw(q[1])) - Math.abs(kw(p[0]) - kw(p[1])) || p[0] - q[0] || p[1] - q[1]);
+  // Chargers whose stays are dearest at the margin (the LP's departure duals) first.
+  const dear = new Float64Array(C);
+  for (const s of problem.stays) {
+    const c = start.chargerOf[s.id]!;
+    const r = lp.model.departRow[s.id]!;
+    if (c >= 0 && r >= 0 && first.rowDual.length) dear[c] = Math.max(dear[c]!, Math.round(Math.abs(first.rowDual[r]!) * 1e4) / 1e4);
+  }
+  const pairKey = (p: [number, number]) => Math.max(dear[p[0]]!, dear[p[1]]!);
+  pairs.sort((p, q) => pairKey(q) - pairKey(p) || Math.abs(kw(q[0]) - kw(q[1])) - Math.abs(kw(p[0]) - kw(p[1])) || p[0] - q[0] || p[1] - q[1]);
   const all = problem.buses.map((b) => b.index);
   const arrangeHints: AssignmentHints = { ...hints, order: 'best', handover: 'least-cut' };
   const quickHints: AssignmentHints = { ...hints, order: 'departure', handover: 'least-cut' };
@@ -102,9 +117,10 @@ export function pairSearch(
         timedOut = true;
         break;
       }
-      const unplaced = problem.stays.filter((s) => best.chargerOf[s.id]! < 0 && hints.energy[s.id]! > 1e-6 && s.d > s.a).map((s) => s.id);
+      const unplaced = problem.stays.filter((s) => best.chargerOf[s.id]! < 0 && hints.energy[s.id]! > 1e-6 && s.departSlot > s.arriveSlot).map((s) => s.id);
       const union = [...best.sequence[c1]!, ...best.sequence[c2]!, ...unplaced];
       if (union.length === 0 || union.length > limits.maxStays) continue;
+      if (moves + limits.evaluate > limits.maxLpSolves) break;
       if (splits + (1 << union.length) > limits.maxSplits) continue;
       neighbourhoods++;
       const scored: { score: number; trial: Assignment; mask: number }[] = [];

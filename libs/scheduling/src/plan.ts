@@ -2,7 +2,8 @@ import { cloneAssignment, initialAssignment, plugMapOf, type Assignment, type As
 import { limitedBaseline, type Baseline, type BaselineKind } from './baseline.js';
 import { countCrewMoves, endIsFree, fitCrew, startIsFree, type Move } from './crew.js';
 import { keptAssignment } from './stable.js';
-import { explainShortfalls, type ShortReason } from './explain.js';
+import { describeShortfall, explainShortfalls, soloShortfall, type ShortReason } from './explain.js';
+import { exactSize, solveExact } from './exact.js';
 import { loadSolver, type LpResult, type Solver } from './highs-solver.js';
 import { AssignedModel, localSearch } from './local-search.js';
 import { defaultLnsLimits, pairSearch } from './lns.js';
@@ -38,6 +39,9 @@ export interface PlanBus {
   departures: { at: string; kwh: number }[];
   shortfallKwh: number;
   reason: ShortReason | null;
+  /** The cause in words for the plan review (null when the bus is served), and whether it is proven. */
+  cause: string | null;
+  causeProven: boolean | null;
 }
 
 export interface BaselineCost extends PlanCost {
@@ -101,6 +105,8 @@ export interface Plan {
     construction: string;
     /** Large-neighbourhood search: pairs of chargers re-split, splits laid out, LP solves, improvements kept. */
     lns: { neighbourhoods: number; accepted: number; lpSolves: number; splits: number };
+    /** The exact MILP, when it was run (a short plan on a small depot): its end, nodes, size, time. */
+    exact: { status: string; nodes: number; binaries: number; ms: number } | null;
     /**
      * Why the search ended: it reached the bound, used its move budget (both reproducible), or
      * hit the time safety net (the plan may then differ from run to run).
@@ -127,7 +133,18 @@ export interface PlanOptions {
    * ends above the bound; default on. Off only to measure what it adds.
    */
   lns?: boolean;
+  /**
+   * When a plan leaves a bus short on a small depot, solve the exact assignment MILP (HiGHS, node
+   * limit, a few seconds at most) to serve it or prove the shortfall necessary; default on.
+   */
+  exact?: boolean;
 }
+
+/** Largest exact model tried when a plan is short (binaries), its node limit and time cap. */
+/** Depots up to this many stays get the large-neighbourhood search (beyond, it costs more time than it gains). */
+export const LNS_MAX_STAYS = 250;
+
+export const EXACT_LIMITS = { binaries: 6000, nodes: 60, ms: 3000 };
 
 const round = (v: number, digits = 6) => {
   const f = 10 ** digits;
@@ -141,7 +158,7 @@ const round = (v: number, digits = 6) => {
  * plan; it only bounds a pathological case.
  */
 export function defaultTimeBudgetMs(buses: number): number {
-  return Math.max(5000, 12 * buses);
+  return Math.max(12_000, 12 * buses);
 }
 
 /**
@@ -168,7 +185,7 @@ export async function planScenario(scenario: Scenario, options: PlanOptions = {}
 export function planProblem(problem: Problem, solver: Solver, options: PlanOptions = {}, t0 = performance.now()): Plan {
   const budget = options.timeBudgetMs ?? defaultTimeBudgetMs(problem.buses.length);
   const deadline = t0 + budget;
-  const { T, slotHours: dt } = problem;
+  const { slotCount: T, slotHours: dt } = problem;
 
   const lb = solveLowerBound(problem, solver);
   const hints: AssignmentHints = {
@@ -182,12 +199,12 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
   for (const stay of problem.stays) {
     let e = 0;
     let m = 0;
-    for (let t = stay.a; t < stay.d; t++) {
+    for (let t = stay.arriveSlot; t < stay.departSlot; t++) {
       e += lb.power[stay.bus]![t]! * dt;
       m += lb.power[stay.bus]![t]! * dt * (t + 0.5);
     }
     hints.energy[stay.id] = e;
-    hints.centre[stay.id] = e > 1e-9 ? m / e : (stay.a + stay.d) / 2;
+    hints.centre[stay.id] = e > 1e-9 ? m / e : (stay.arriveSlot + stay.departSlot) / 2;
   }
   for (const p of lb.power) for (let t = 0; t < T; t++) hints.weight[t] = hints.weight[t]! + p[t]!;
 
@@ -229,6 +246,9 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
   let search;
   let chosen!: Chosen;
   let lnsStats = { neighbourhoods: 0, accepted: 0, lpSolves: 0, splits: 0 };
+  let exactStats: Plan['stats']['exact'] = null;
+  let exactBound = -Infinity;
+  let exactProven = false;
   try {
     let first = live.solve();
     if (first.status !== 'optimal') throw new Error(`plan LP ended ${first.status}; the model should always be solvable`);
@@ -269,13 +289,45 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
       live.update(start, all);
       first = live.solve();
     }
-    search = localSearch(problem, hints, live, start, first, { deadline, maxMoves, target });
-    if (options.lns !== false && search.result.objective > target && !search.timedOut) {
-      const lns = pairSearch(problem, hints, live, search.assignment, search.result, defaultLnsLimits(problem, deadline, target));
+    // Whole sequences first (large-neighbourhood search over pairs of chargers), then single
+    // stays and hand-overs (local search) from there.
+    let lnsIterations = 0;
+    if (options.lns !== false && first.objective > target && problem.stays.length <= LNS_MAX_STAYS && performance.now() < deadline) {
+      const lns = pairSearch(problem, hints, live, start, first, defaultLnsLimits(problem, deadline, target));
       lnsStats = { neighbourhoods: lns.neighbourhoods, accepted: lns.accepted, lpSolves: lns.moves, splits: lns.splits };
-      search = { ...search, assignment: lns.assignment, result: lns.result, iterations: search.iterations + lns.iterations, timedOut: lns.timedOut };
+      lnsIterations = lns.iterations;
+      if (lns.accepted > 0) construction += '+lns';
+      start = lns.assignment;
+      first = lns.result;
+      if (lns.timedOut) timedOut = true;
     }
+    search = localSearch(problem, hints, live, start, first, { deadline, maxMoves, target });
+    search.iterations += lnsIterations;
     chosen = preferStableAndFewerMoves(problem, hints, live, search.assignment, search.result, { deadline, maxMoves, target });
+    // Full service first: a bus may stay short only if no assignment serves it. On a small depot
+    // the exact MILP either finds one that does or proves the shortfall necessary.
+    const shortNow = shortfallIn(problem, live, chosen.result);
+    if (shortNow > 1e-3 && options.exact !== false && !problem.pinned?.some((c) => c >= 0)) {
+      const binaries = exactSize(problem);
+      if (binaries <= EXACT_LIMITS.binaries && performance.now() < deadline) {
+        const ex = solveExact(problem, solver, {
+          start: chosen.assignment,
+          maxNodes: EXACT_LIMITS.nodes,
+          timeLimitMs: Math.max(1, Math.min(EXACT_LIMITS.ms, deadline - performance.now())),
+        });
+        exactStats = { status: ex.status, nodes: ex.nodes, binaries: ex.binaries, ms: round(ex.ms, 1) };
+        if (Number.isFinite(ex.bound)) exactBound = ex.bound;
+        if (ex.assignment && ex.objective < chosen.result.objective - 1e-6 * Math.max(1, Math.abs(chosen.result.objective))) {
+          live.update(ex.assignment, all);
+          const res = live.solve();
+          if (res.status === 'optimal' && res.objective < chosen.result.objective - 1e-9 * Math.max(1, Math.abs(chosen.result.objective))) {
+            chosen = { assignment: ex.assignment, result: res, crewTrade: null, keptPrevious: chosen.keptPrevious };
+            construction += '+exact';
+          } else live.update(chosen.assignment, all);
+        }
+        if (ex.status === 'optimal') exactProven = true;
+      }
+    }
   } finally {
     live.dispose();
   }
@@ -293,7 +345,8 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
     power = powerFrom(problem, full, res.x);
   }
   power = power.map((row) => row.map((v) => round(v)));
-  const plan = assemblePlan(problem, solver, plug, power, lb.penalisedObjective, lb.shortfallKwh);
+  const plan = assemblePlan(problem, solver, plug, power, Math.max(lb.penalisedObjective, exactBound), lb.shortfallKwh, exactProven);
+  plan.stats.exact = exactStats;
   plan.crewTrade = chosen.crewTrade;
   plan.keptPrevious = chosen.keptPrevious;
   plan.stats.lpColumns = live.model.lp.numCols;
@@ -363,13 +416,23 @@ function preferStableAndFewerMoves(
   return chosen;
 }
 
+/** kWh short in an LP solution of the live model (summed over departures). */
+function shortfallIn(problem: Problem, live: AssignedModel, result: LpResult): number {
+  let short = 0;
+  for (const stay of problem.stays) {
+    const c = live.model.shortCol[stay.id]!;
+    if (c >= 0 && result.x.length) short += result.x[c]!;
+  }
+  return short;
+}
+
 /** Does any battery go above its ceiling or draw more than its taper allows? */
 export function overfills(problem: Problem, power: Float64Array[]): boolean {
   const { eta, slotHours: dt } = problem;
   for (const bus of problem.buses) {
     let e = bus.arrivalKwh;
     for (const stay of bus.stays) {
-      for (let t = stay.a; t < stay.d; t++) {
+      for (let t = stay.arriveSlot; t < stay.departSlot; t++) {
         const p = power[bus.index]![t]!;
         if (p > 0 && bus.taperFromKwh !== null && e > bus.taperFromKwh) {
           const cap = (bus.maxKw * (bus.usableKwh - e)) / (bus.usableKwh - bus.taperFromKwh);
@@ -391,8 +454,9 @@ function assemblePlan(
   power: Float64Array[],
   lbPenalised: number,
   lbShortfall: number,
+  exactProven = false,
 ): Plan {
-  const { T, slotHours: dt, eta, zone } = problem;
+  const { slotCount: T, slotHours: dt, eta, zone } = problem;
   const charging = new Float64Array(T);
   for (const row of power) for (let t = 0; t < T; t++) charging[t] = charging[t]! + row[t]!;
   const cost = costLoad(problem.slots, charging, problem.tariff, dt);
@@ -428,7 +492,7 @@ function assemblePlan(
       }
       if (first <= last) {
         const kw = Array.from(p.subarray(first, last + 1));
-        const stay = bus.stays.find((st) => st.a <= first && first < st.d)!;
+        const stay = bus.stays.find((st) => st.arriveSlot <= first && first < st.departSlot)!;
         const startMove: Move = startIsFree(problem, stay, first) ? 'driver' : 'crew';
         const endMove: Move = endIsFree(problem, stay, last + 1) ? 'driver' : 'crew';
         if (startMove === 'crew') crewMoves++;
@@ -458,7 +522,7 @@ function assemblePlan(
     let e = bus.arrivalKwh;
     const departures: PlanBus['departures'] = [];
     for (const stay of bus.stays) {
-      for (let t = stay.a; t < stay.d; t++) e += eta * dt * power[bus.index]![t]!;
+      for (let t = stay.arriveSlot; t < stay.departSlot; t++) e += eta * dt * power[bus.index]![t]!;
       departureKwh[bus.index]!.push(e);
       departures.push({ at: isoAt(stay.departMs, zone), kwh: round(e) });
       const short = Math.max(0, stay.requiredKwh - e);
@@ -468,11 +532,21 @@ function assemblePlan(
       }
       e -= stay.runKwh;
     }
-    return { id: bus.id, departures, shortfallKwh: round(shortByBus[bus.index]!), reason: null };
+    return { id: bus.id, departures, shortfallKwh: round(shortByBus[bus.index]!), reason: null, cause: null, causeProven: null };
   });
   if (totalShort > 0) {
     const reasons = explainShortfalls(problem, solver, plug, shortByBus);
-    busOut.forEach((b, i) => (b.reason = shortByBus[i]! > 1e-4 ? (reasons[i] ?? 'charger') : null));
+    const strongest = Math.max(0, ...problem.chargers.filter((c) => c.available.some((a) => a === 1)).map((c) => c.maxKw));
+    busOut.forEach((b, i) => {
+      b.reason = shortByBus[i]! > 1e-4 ? (reasons[i] ?? 'charger') : null;
+      if (!b.reason) return;
+      // Proven: the bus's own limits (alone on the strongest charger it is still short), the
+      // exact model's optimum, or the relaxation being as short in total as this plan.
+      const own = soloShortfall(problem, i, strongest, true) > 1e-3;
+      const proven = own || exactProven || lbShortfall >= totalShort - 1e-3;
+      b.cause = describeShortfall(problem, i, b.reason, shortByBus[i]!, proven);
+      b.causeProven = proven;
+    });
   }
 
   let deliveredKwh = 0;
@@ -525,6 +599,7 @@ function assemblePlan(
       localSearchAccepted: 0,
       construction: '',
       lns: { neighbourhoods: 0, accepted: 0, lpSolves: 0, splits: 0 },
+      exact: null,
       stoppedBy: 'bound',
       simplexIterations: 0,
       shortfallKwh: round(totalShort),
