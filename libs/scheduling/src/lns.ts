@@ -20,8 +20,9 @@ export interface LnsLimits {
   target: number;
   /** Largest number of stays freed at once (2^n splits are laid out). */
   maxStays: number;
-  /** LP solves per neighbourhood (the best-laid-out splits). */
+  /** LP solves per neighbourhood (the best-laid-out splits), and more with hand-overs at pull-ins and pull-outs (crew). */
   evaluate: number;
+  evaluateAtEnds: number;
   /** Passes over all pairs. */
   passes: number;
   /** Splits laid out again with the best order and the crew's rules, per neighbourhood. */
@@ -40,7 +41,7 @@ export interface LnsResult extends SearchResult {
 export function defaultLnsLimits(problem: Problem, deadline: number, target: number): LnsLimits {
   const n = problem.stays.length;
   return {
-    deadline, target, maxStays: 12, evaluate: 3, shortlist: 24, passes: 3,
+    deadline, target, maxStays: 12, evaluate: 3, evaluateAtEnds: problem.yard ? 2 : 0, shortlist: 24, passes: 3,
     maxSplits: Math.max(2000, 40_000 - 100 * n),
     maxLpSolves: Math.max(24, Math.min(150, Math.round(9000 / (25 + n)))),
   };
@@ -120,7 +121,7 @@ export function pairSearch(
       const unplaced = problem.stays.filter((s) => best.chargerOf[s.id]! < 0 && hints.energy[s.id]! > 1e-6 && s.departSlot > s.arriveSlot).map((s) => s.id);
       const union = [...best.sequence[c1]!, ...best.sequence[c2]!, ...unplaced];
       if (union.length === 0 || union.length > limits.maxStays) continue;
-      if (moves + limits.evaluate > limits.maxLpSolves) break;
+      if (moves + 2 * (limits.evaluate + limits.evaluateAtEnds) > limits.maxLpSolves) break;
       if (splits + (1 << union.length) > limits.maxSplits) continue;
       neighbourhoods++;
       const scored: { score: number; trial: Assignment; mask: number }[] = [];
@@ -145,14 +146,26 @@ export function pairSearch(
         quick.push({ score: splitScore(problem, hints, split(mask, quickHints), union), mask });
       }
       quick.sort((x, y) => x.score - y.score || x.mask - y.mask);
-      for (const { mask } of quick.slice(0, limits.shortlist)) {
+      for (const { mask } of quick.slice(0, limits.shortlist * (union.length <= 8 ? 2 : 1))) {
         const trial = split(mask, arrangeHints);
-        if (problem.yard) fitCrew(problem, trial, hints.energy);
+        if (problem.yard) {
+          // Hand-overs placed two ways: nearest the proposed slot, or at pull-ins and pull-outs
+          // first (fewer moves, and often room for a stay the first way leaves out).
+          const other = cloneAssignment(trial);
+          fitCrew(problem, trial, hints.energy);
+          fitCrew(problem, other, hints.energy, true);
+          scored.push({ score: splitScore(problem, hints, other, union), trial: other, mask: mask + (1 << union.length) });
+        }
         scored.push({ score: splitScore(problem, hints, trial, union), trial, mask });
       }
       scored.sort((x, y) => x.score - y.score || x.mask - y.mask);
+      // The best-laid-out splits of each way of placing hand-overs go to the LP.
+      // Small neighbourhoods: twice as many (an LP solve is cheap there).
+      const extra = union.length <= 8 ? 2 : 1;
+      const nearest = scored.filter((x) => x.mask < 1 << union.length).slice(0, limits.evaluate * extra);
+      const atEnds = scored.filter((x) => x.mask >= 1 << union.length).slice(0, limits.evaluateAtEnds * extra);
       let improved: { trial: Assignment; res: LpResult } | null = null;
-      for (const cand of scored.slice(0, limits.evaluate)) {
+      for (const cand of [...nearest, ...atEnds]) {
         moves++;
         lp.update(cand.trial, all);
         const res = lp.solve();

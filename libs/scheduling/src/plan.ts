@@ -289,20 +289,32 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
       live.update(start, all);
       first = live.solve();
     }
-    // Whole sequences first (large-neighbourhood search over pairs of chargers), then single
-    // stays and hand-overs (local search) from there.
-    let lnsIterations = 0;
-    if (options.lns !== false && first.objective > target && problem.stays.length <= LNS_MAX_STAYS && performance.now() < deadline) {
-      const lns = pairSearch(problem, hints, live, start, first, defaultLnsLimits(problem, deadline, target));
-      lnsStats = { neighbourhoods: lns.neighbourhoods, accepted: lns.accepted, lpSolves: lns.moves, splits: lns.splits };
-      lnsIterations = lns.iterations;
-      if (lns.accepted > 0) construction += '+lns';
-      start = lns.assignment;
-      first = lns.result;
-      if (lns.timedOut) timedOut = true;
-    }
+    // Single stays and hand-overs (local search), then whole sequences (large-neighbourhood
+    // search over pairs of chargers), then single moves again from what that found. Each step
+    // keeps only improvements, so the plan is never worse than the local search alone.
     search = localSearch(problem, hints, live, start, first, { deadline, maxMoves, target });
-    search.iterations += lnsIterations;
+    if (options.lns !== false && search.result.objective > target && !search.timedOut && problem.stays.length <= LNS_MAX_STAYS) {
+      const lns = pairSearch(problem, hints, live, search.assignment, search.result, defaultLnsLimits(problem, deadline, target));
+      lnsStats = { neighbourhoods: lns.neighbourhoods, accepted: lns.accepted, lpSolves: lns.moves, splits: lns.splits };
+      if (lns.accepted > 0) {
+        construction += '+lns';
+        const again = lns.timedOut || lns.result.objective <= target
+          ? null
+          : localSearch(problem, hints, live, lns.assignment, lns.result, { deadline, maxMoves: Math.ceil(maxMoves / 2), target });
+        const best = again && again.result.objective < lns.result.objective ? again : lns;
+        search = {
+          ...search,
+          assignment: best.assignment,
+          result: best.result,
+          moves: search.moves + (again?.moves ?? 0),
+          accepted: search.accepted + (again?.accepted ?? 0),
+          iterations: search.iterations + lns.iterations + (again?.iterations ?? 0),
+          timedOut: lns.timedOut || again?.timedOut,
+        };
+        live.update(search.assignment, all);
+        search.result = live.solve();
+      }
+    }
     chosen = preferStableAndFewerMoves(problem, hints, live, search.assignment, search.result, { deadline, maxMoves, target });
     // Full service first: a bus may stay short only if no assignment serves it. On a small depot
     // the exact MILP either finds one that does or proves the shortfall necessary.
