@@ -49,6 +49,8 @@ export interface ExactResult {
   nodes: number;
   binaries: number;
   ms: number;
+  /** HiGHS stopped on the time cap (the safety net), not on its node limit or an optimum. */
+  timeLimited: boolean;
 }
 
 /** Number of binaries the exact model of a whole depot would have (to decide whether to try it). */
@@ -325,14 +327,12 @@ export function solveExact(problem: Problem, solver: Solver, options: ExactOptio
         val.push(start.chargerOf[y.stay] === y.c && start.from[y.stay] === y.t && start.to[y.stay]! > y.t ? 1 : 0);
       }
       try {
-        const r = milp.setSolution({ indices: Int32Array.from(idx), values: Float64Array.from(val) } as never);
-        if (process.env.EXACT_DEBUG) console.log("setSolution", JSON.stringify(r));
+        milp.setSolution({ indices: Int32Array.from(idx), values: Float64Array.from(val) } as never);
       } catch {
         // A start HiGHS cannot read is only a lost hint.
       }
     }
     const run = milp.run();
-    if (process.env.EXACT_DEBUG) console.log("exact", run.modelStatus, ["mip_node_count","mip_primal_bound","mip_dual_bound","primal_solution_status"].map((n) => { try { return n + "=" + milp.info.get(n); } catch (e) { return n + "=?"; } }).join(" "));
     const code = run.modelStatus as number;
     const info = (name: string) => {
       try {
@@ -402,6 +402,7 @@ export function solveExact(problem: Problem, solver: Solver, options: ExactOptio
       nodes,
       binaries,
       ms: performance.now() - t0,
+      timeLimited: code === 13,
     };
   } finally {
     milp.dispose();

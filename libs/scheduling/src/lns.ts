@@ -43,7 +43,7 @@ export function defaultLnsLimits(problem: Problem, deadline: number, target: num
   return {
     deadline, target, maxStays: 12, evaluate: 3, evaluateAtEnds: problem.yard ? 2 : 0, shortlist: 24, passes: 3,
     maxSplits: Math.max(2000, 40_000 - 100 * n),
-    maxLpSolves: Math.max(24, Math.min(150, Math.round(9000 / (25 + n)))),
+    maxLpSolves: Math.max(12, Math.min(150, Math.round(3000 / (25 + n)))),
   };
 }
 

@@ -142,9 +142,9 @@ export interface PlanOptions {
 
 /** Largest exact model tried when a plan is short (binaries), its node limit and time cap. */
 /** Depots up to this many stays get the large-neighbourhood search (beyond, it costs more time than it gains). */
-export const LNS_MAX_STAYS = 250;
+export const LNS_MAX_STAYS = 120;
 
-export const EXACT_LIMITS = { binaries: 6000, nodes: 60, ms: 3000 };
+export const EXACT_LIMITS = { binaries: 6000, nodes: 30, ms: 3000 };
 
 const round = (v: number, digits = 6) => {
   const f = 10 ** digits;
@@ -327,9 +327,10 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
           maxNodes: EXACT_LIMITS.nodes,
           timeLimitMs: Math.max(1, Math.min(EXACT_LIMITS.ms, deadline - performance.now())),
         });
-        exactStats = { status: ex.status, nodes: ex.nodes, binaries: ex.binaries, ms: round(ex.ms, 1) };
-        if (Number.isFinite(ex.bound)) exactBound = ex.bound;
-        if (ex.assignment && ex.objective < chosen.result.objective - 1e-6 * Math.max(1, Math.abs(chosen.result.objective))) {
+        exactStats = { status: ex.timeLimited ? 'time' : ex.status, nodes: ex.nodes, binaries: ex.binaries, ms: round(ex.ms, 1) };
+        // Stopped by the clock, its answer would depend on the machine's load: left unused.
+        if (!ex.timeLimited && Number.isFinite(ex.bound)) exactBound = ex.bound;
+        if (!ex.timeLimited && ex.assignment && ex.objective < chosen.result.objective - 1e-6 * Math.max(1, Math.abs(chosen.result.objective))) {
           live.update(ex.assignment, all);
           const res = live.solve();
           if (res.status === 'optimal' && res.objective < chosen.result.objective - 1e-9 * Math.max(1, Math.abs(chosen.result.objective))) {
@@ -337,7 +338,7 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
             construction += '+exact';
           } else live.update(chosen.assignment, all);
         }
-        if (ex.status === 'optimal') exactProven = true;
+        if (!ex.timeLimited && ex.status === 'optimal') exactProven = true;
       }
     }
   } finally {
