@@ -43,7 +43,7 @@ const solver = await loadSolver();
 const load = () => loadavg().map((x) => x.toFixed(2)).join(' ');
 console.log(`load average at start: ${load()} (2 shared cores: times are inflated by other work; node counts, LP solves and iterations are not)`);
 console.log('Plans with the yard crew (45-min minimum, drivers at pull-in/out, crew 15:00-23:30 and 04:30-07:00)');
-console.log('buses  chargers  solve ms  stopped  status    gap      crew moves/bus  shortest plug-in  checker  same plan twice  LP iterations  load');
+console.log('buses  chargers  solve ms  stopped (2 runs)  status    gap      crew moves/bus  shortest plug-in  checker  same plan twice  LP iterations  load');
 const sizes = quick ? [200] : [200, 500, 1000];
 for (const n of sizes) {
   const input = withCrew(generateDepot({ buses: n, seed: 42 }), n / 40);
@@ -53,7 +53,7 @@ for (const n of sizes) {
   const errors = checkPlan(input, a);
   const same = JSON.stringify(a.sessions) === JSON.stringify(b.sessions) && a.cost.total === b.cost.total;
   console.log(
-    `${String(n).padStart(5)}  ${String(scenario.chargers.length).padStart(8)}  ${String(Math.round(Math.min(a.solveMs, b.solveMs))).padStart(8)}  ${a.stats.stoppedBy.padEnd(7)}  ${a.status.padEnd(8)}  ${pct(a.gap).padStart(7)}  ${(a.crewMoves / n).toFixed(2).padStart(14)}  ${String(Math.min(...a.sessions.map(minutes))).padStart(13)} min  ${errors.length ? `${errors.length} errors` : 'ok'.padEnd(7)}  ${same ? 'yes' : 'NO '}  ${String(a.stats.simplexIterations).padStart(13)}  ${load()}`,
+    `${String(n).padStart(5)}  ${String(scenario.chargers.length).padStart(8)}  ${String(Math.round(Math.min(a.solveMs, b.solveMs))).padStart(8)}  ${`${a.stats.stoppedBy}/${b.stats.stoppedBy}`.padEnd(11)}  ${a.status.padEnd(8)}  ${pct(a.gap).padStart(7)}  ${(a.crewMoves / n).toFixed(2).padStart(14)}  ${String(Math.min(...a.sessions.map(minutes))).padStart(13)} min  ${errors.length ? `${errors.length} errors` : 'ok'.padEnd(7)}  ${same ? 'yes' : 'NO '}  ${String(a.stats.simplexIterations).padStart(13)}  ${load()}`,
   );
 }
 
@@ -109,6 +109,7 @@ for (const [n, c] of scarce) {
 console.log('\nRe-plan after one charger fails at 22:00 (with the crew): buses moved');
 console.log('buses  chargers  seed  failed  buses on it  moved  allowed (on it + 1 per freed charger)');
 const moved: number[] = [];
+const allowed: number[] = [];
 for (const [n, c] of quick ? [[40, 10]] : [[40, 10], [40, 20], [100, 25]]) {
   for (const seed of quick ? [1] : [1, 2, 3]) {
     const input = withCrew(generateDepot({ buses: n, chargers: c, seed }), n / 40);
@@ -126,7 +127,8 @@ for (const [n, c] of quick ? [[40, 10]] : [[40, 10], [40, 20], [100, 25]]) {
     const r = await replan(scenario, { now, outOfService: [busiest.ch], previous: plan, plugged });
     const m = movedBuses(plan, r, nowMs);
     moved.push(m.length);
+    allowed.push(busiest.n + 1);
     console.log(`${String(n).padStart(5)}  ${String(c).padStart(8)}  ${String(seed).padStart(4)}  ${busiest.ch.padEnd(6)}  ${String(busiest.n).padStart(11)}  ${String(m.length).padStart(5)}  ${busiest.n + 1}`);
   }
 }
-console.log(`median buses moved: ${median(moved)}`);
+console.log(`median buses moved: ${median(moved)}; median allowed (buses on the failed charger + 1): ${median(allowed)}`);
