@@ -88,8 +88,11 @@ export function pairSearch(
   let splits = 0;
   let timedOut = false;
   const C = problem.chargers.length;
+  // Re-planning: a charger holding a stay already plugged in is left as it is (re-splitting
+  // them was measured to move more buses in re-plans, for little).
+  const pin = problem.pinned;
   const locked = new Uint8Array(C);
-  if (problem.pinned) for (const s of problem.stays) if (problem.pinned[s.id]! >= 0) locked[problem.pinned[s.id]!] = 1;
+  if (pin) for (const s of problem.stays) if (pin[s.id]! >= 0) locked[pin[s.id]!] = 1;
   const usable = problem.chargers.filter((c) => !locked[c.index] && c.available.some((v) => v === 1)).map((c) => c.index);
   // Strongest with weakest first: where exchanging whole sequences changes most.
   const pairs: [number, number][] = [];
@@ -118,8 +121,16 @@ export function pairSearch(
         timedOut = true;
         break;
       }
-      const unplaced = problem.stays.filter((s) => best.chargerOf[s.id]! < 0 && hints.energy[s.id]! > 1e-6 && s.departSlot > s.arriveSlot).map((s) => s.id);
-      const union = [...best.sequence[c1]!, ...best.sequence[c2]!, ...unplaced];
+      // Stays no charger holds: the two that need most come along (present while either charger is).
+      const unplaced = problem.stays
+        .filter((s) => best.chargerOf[s.id]! < 0 && hints.energy[s.id]! > 1e-6 && s.departSlot > s.arriveSlot && (!pin || pin[s.id]! < 0))
+        .sort((x, y) => hints.energy[y.id]! - hints.energy[x.id]! || x.id - y.id)
+        .slice(0, 2)
+        .map((s) => s.id);
+      const all2 = [...best.sequence[c1]!, ...best.sequence[c2]!, ...unplaced];
+      // Stays plugged in at a re-plan's start stay where they are; the rest are split.
+      const fixedOn = all2.filter((id) => pin && pin[id]! >= 0);
+      const union = all2.filter((id) => !(pin && pin[id]! >= 0));
       if (union.length === 0 || union.length > limits.maxStays) continue;
       if (moves + 2 * (limits.evaluate + limits.evaluateAtEnds) > limits.maxLpSolves) break;
       if (splits + (1 << union.length) > limits.maxSplits) continue;
@@ -129,8 +140,8 @@ export function pairSearch(
       // best service order and the crew's rules, the best of those to the LP.
       const split = (mask: number, hintsFor: AssignmentHints): Assignment => {
         const trial = cloneAssignment(best);
-        trial.sequence[c1] = [];
-        trial.sequence[c2] = [];
+        trial.sequence[c1] = fixedOn.filter((id) => pin![id] === c1);
+        trial.sequence[c2] = fixedOn.filter((id) => pin![id] === c2);
         union.forEach((id, i) => {
           const c = mask & (1 << i) ? c2 : c1;
           trial.chargerOf[id] = c;

@@ -403,7 +403,13 @@ function preferStableAndFewerMoves(
     const first = live.solve();
     if (first.status === 'optimal') {
       const minGain = problem.tolerance.amount / 10;
-      const search = first.objective <= limit ? { assignment: kept, result: first } : localSearch(problem, hints, live, kept, first, { ...limits, minGain });
+      let search = first.objective <= limit ? { assignment: kept, result: first } : localSearch(problem, hints, live, kept, first, { ...limits, minGain });
+      if (search.result.objective > limit && problem.stays.length <= LNS_MAX_STAYS && performance.now() < limits.deadline) {
+        // Still too dear: re-split pairs of chargers (dearest stays first), which moves only the
+        // buses of the chargers it changes, before giving up on the plan being carried out.
+        const lns = pairSearch(problem, hints, live, search.assignment, search.result, { ...defaultLnsLimits(problem, limits.deadline, limit), passes: 2 });
+        if (lns.result.objective < search.result.objective) search = { assignment: lns.assignment, result: lns.result };
+      }
       if (search.result.objective <= limit) {
         chosen = { assignment: search.assignment, result: search.result, crewTrade: null, keptPrevious: { extraCost: round(Math.max(0, search.result.objective - base), 2) } };
       }
