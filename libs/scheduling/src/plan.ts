@@ -144,6 +144,9 @@ export interface PlanOptions {
 /** Depots up to this many stays get the large-neighbourhood search (beyond, it costs more time than it gains). */
 export const LNS_MAX_STAYS = 120;
 
+/** Above this many stays with crew windows, only the construction candidates that win there are tried. */
+export const LARGE_CREW_STAYS = 150;
+
 export const EXACT_LIMITS = { binaries: 6000, nodes: 30, ms: 3000 };
 
 const round = (v: number, digits = 6) => {
@@ -232,6 +235,15 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
       ['sequence-departure-least-cut', () => initialAssignment(problem, { ...hints, order: 'departure', handover: 'least-cut' })],
       ['sequence-best-least-cut', () => initialAssignment(problem, { ...hints, order: 'best', handover: 'least-cut' })],
     );
+  }
+  // Large depots with crew windows: each candidate costs a large LP re-solve (about a second
+  // at 500 buses), and there the sequencing heuristic's plans win (measured at 200-1,000 buses);
+  // only those and the first sweep are tried.
+  if (problem.yard?.capacity && problem.stays.length > LARGE_CREW_STAYS) {
+    const keep = new Set(['sequence-departure-share', 'sequence-best-share', 'sweep-strong-deadline']);
+    const kept = candidates.filter(([name]) => keep.has(name));
+    kept.sort((x, y) => (x[0].startsWith('sequence') ? 0 : 1) - (y[0].startsWith('sequence') ? 0 : 1));
+    if (kept.length) candidates.splice(0, candidates.length, ...kept);
   }
   // Every candidate is made one the yard crew can carry out before the LP judges it.
   for (const cand of candidates) {
