@@ -135,14 +135,14 @@ async function main() {
   const lb = solveLowerBound(problem, solver);
   const energy = new Float64Array(problem.stays.length);
   const centre = new Float64Array(problem.stays.length);
-  const weight = new Float64Array(problem.T);
+  const weight = new Float64Array(problem.slotCount);
   for (const s of problem.stays) {
     let e = 0;
-    for (let t = s.a; t < s.d; t++) e += lb.power[s.bus]![t]! * problem.slotHours;
+    for (let t = s.arriveSlot; t < s.departSlot; t++) e += lb.power[s.bus]![t]! * problem.slotHours;
     energy[s.id] = e;
-    centre[s.id] = (s.a + s.d) / 2;
+    centre[s.id] = (s.arriveSlot + s.departSlot) / 2;
   }
-  for (const row of lb.power) for (let t = 0; t < problem.T; t++) weight[t] = weight[t]! + row[t]!;
+  for (const row of lb.power) for (let t = 0; t < problem.slotCount; t++) weight[t] = weight[t]! + row[t]!;
   const assignment = initialAssignment(problem, { energy, weight, power: lb.power, centre, order: 'departure', handover: 'share' });
   const model = buildChargeModel(problem, { mode: 'assigned', plug: plugMapOf(problem, assignment) });
   const highsTimes: number[] = [];

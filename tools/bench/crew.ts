@@ -4,8 +4,10 @@
 // solve time and what stopped the search, crew moves per bus, the shortest plug-in, buses moved
 // by a re-plan after one charger fails, and whether two runs give the same plan.
 //   npx tsx tools/bench/crew.ts [--quick]
+import { loadavg } from 'node:os';
 import { DateTime } from 'luxon';
-import { loadSolver, parseScenario, planScenario, replan, type Plan, type ScenarioInput } from '@nightyard/scheduling';
+import { loadSolver, parseScenario, planScenario, prepareProblem, replan, type Plan, type ScenarioInput } from '@nightyard/scheduling';
+import { solveExact } from '../../libs/scheduling/src/exact.js';
 import { generateDepot } from '../../libs/scheduling/src/testing/generate-depot.js';
 import { checkPlan } from '../../libs/scheduling/src/testing/plan-checker.js';
 
@@ -29,6 +31,25 @@ const minutes = (s: { start: string; end: string }) => (Date.parse(s.end) - Date
 const median = (xs: number[]) => xs.slice().sort((a, b) => a - b)[Math.floor(xs.length / 2)] ?? NaN;
 const pct = (x: number) => `${(x * 100).toFixed(2)} %`;
 
+/** A plan's sessions as an assignment of the exact model (one session per stay). */
+function assignmentOf(problem: ReturnType<typeof prepareProblem>, plan: Plan) {
+  const n = problem.stays.length;
+  const out = { chargerOf: new Int32Array(n).fill(-1), from: new Int32Array(n), to: new Int32Array(n), sequence: problem.chargers.map((): number[] => []) };
+  const t0 = problem.slots[0]!.startMs;
+  const slotMs = problem.slots[0]!.endMs - t0;
+  for (const s of plan.sessions) {
+    const bus = problem.buses.find((b) => b.id === s.bus)!;
+    const from = Math.round((Date.parse(s.start) - t0) / slotMs);
+    const stay = bus.stays.find((st) => st.arriveSlot <= from && from < st.departSlot)!;
+    const c = problem.chargers.findIndex((ch) => ch.id === s.charger);
+    out.chargerOf[stay.id] = c;
+    out.from[stay.id] = from;
+    out.to[stay.id] = Math.round((Date.parse(s.end) - t0) / slotMs);
+    out.sequence[c]!.push(stay.id);
+  }
+  return out;
+}
+
 /** Buses whose sessions differ between two plans (from the cut-off on). */
 function movedBuses(before: Plan, after: Plan, fromMs: number): string[] {
   const key = (p: Plan, bus: string) =>
@@ -37,10 +58,14 @@ function movedBuses(before: Plan, after: Plan, fromMs: number): string[] {
   return [...buses].filter((b) => key(before, b) !== key(after, b)).sort();
 }
 
-await loadSolver();
+const solver = await loadSolver();
+const load = () => loadavg().map((x) => x.toFixed(2)).join(' ');
+console.log(`load average at start: ${load()} (2 shared cores: times are inflated by other work; node counts, LP solves and iterations are not)`);
 console.log('Plans with the yard crew (45-min minimum, drivers at pull-in/out, crew 15:00-23:30 and 04:30-07:00)');
-console.log('buses  chargers  solve ms  stopped  status    gap      crew moves/bus  shortest plug-in  checker  same plan twice');
-const sizes = quick ? [200] : [200, 500, 1000];
+console.log('buses  chargers  solve ms  stopped (2 runs)  status    gap      crew moves/bus  shortest plug-in  checker  same plan twice  LP iterations  load');
+// BENCH_SECTIONS picks sections (size,small,scarce,replan); default all.
+const sections = new Set((process.env.BENCH_SECTIONS ?? 'size,small,scarce,replan').split(','));
+const sizes = !sections.has('size') ? [] : quick ? [200] : [200, 500, 1000];
 for (const n of sizes) {
   const input = withCrew(generateDepot({ buses: n, seed: 42 }), n / 40);
   const scenario = parse(input);
@@ -49,20 +74,59 @@ for (const n of sizes) {
   const errors = checkPlan(input, a);
   const same = JSON.stringify(a.sessions) === JSON.stringify(b.sessions) && a.cost.total === b.cost.total;
   console.log(
-    `${String(n).padStart(5)}  ${String(scenario.chargers.length).padStart(8)}  ${String(Math.round(Math.min(a.solveMs, b.solveMs))).padStart(8)}  ${a.stats.stoppedBy.padEnd(7)}  ${a.status.padEnd(8)}  ${pct(a.gap).padStart(7)}  ${(a.crewMoves / n).toFixed(2).padStart(14)}  ${String(Math.min(...a.sessions.map(minutes))).padStart(13)} min  ${errors.length ? `${errors.length} errors` : 'ok'.padEnd(7)}  ${same ? 'yes' : 'NO'}`,
+    `${String(n).padStart(5)}  ${String(scenario.chargers.length).padStart(8)}  ${String(Math.round(Math.min(a.solveMs, b.solveMs))).padStart(8)}  ${`${a.stats.stoppedBy}/${b.stats.stoppedBy}`.padEnd(11)}  ${a.status.padEnd(8)}  ${pct(a.gap).padStart(7)}  ${(a.crewMoves / n).toFixed(2).padStart(14)}  ${String(Math.min(...a.sessions.map(minutes))).padStart(13)} min  ${errors.length ? `${errors.length} errors` : 'ok'.padEnd(7)}  ${same ? 'yes' : 'NO '}  ${String(a.stats.simplexIterations).padStart(13)}  ${load()}`,
   );
 }
 
+// Small depots short of chargers: the plan (with and without the large-neighbourhood search)
+// against the exact optimum of the same plan space (one plug-in per stay), solved by the MILP.
+console.log('\nSmall depots short of chargers: plan against the exact MILP optimum (penalised cost: cost + shortfall penalty)');
+console.log('crew  buses  chargers  seed  plan        no LNS      exact       MILP      gap      gap no LNS  same twice  solve ms  load');
+const gaps: number[] = [];
+const gapsNoLns: number[] = [];
+const small: [number, number, number][] = quick ? [[8, 2, 3]] : [[6, 2, 1], [7, 2, 2], [8, 2, 3], [9, 3, 4], [10, 3, 5], [12, 3, 6], [6, 2, 7], [8, 2, 8], [10, 2, 9], [12, 3, 10]];
+const exactSeconds = Number(process.env.BENCH_EXACT_S ?? 60);
+for (const crew of sections.has('small') ? [false, true] : []) {
+  for (const [n, c, seed] of small) {
+    const input = crew ? withCrew(generateDepot({ buses: n, chargers: c, seed })) : generateDepot({ buses: n, chargers: c, seed });
+    const scenario = parse(input);
+    const problem = prepareProblem(scenario);
+    const penalised = (p: Plan) => p.cost.total + problem.shortfallPenalty * p.stats.shortfallKwh;
+    const p = await planScenario(scenario);
+    const again = await planScenario(scenario);
+    const off = await planScenario(scenario, { lns: false });
+    const errors = checkPlan(input, p);
+    // Started from the better of the two plans: HiGHS proves it or beats it.
+    const ex = solveExact(problem, solver, { maxNodes: 1e9, timeLimitMs: exactSeconds * 1000, start: assignmentOf(problem, penalised(p) <= penalised(off) ? p : off) });
+    const best = Math.min(Number.isFinite(ex.objective) ? ex.objective : Infinity, penalised(p), penalised(off));
+    // Proven: the MILP's optimum, or a plan at the lower bound (the bound is below every plan).
+    const proven = ex.status === 'optimal' || p.gap <= 1e-6;
+    const reference = ex.status === 'optimal' ? ex.objective : best;
+    const gap = (penalised(p) - reference) / penalised(p);
+    const gapOff = (penalised(off) - reference) / penalised(off);
+    if (proven) {
+      gaps.push(Math.max(0, gap));
+      gapsNoLns.push(Math.max(0, gapOff));
+    }
+    const same = JSON.stringify(p.sessions) === JSON.stringify(again.sessions);
+    console.log(
+      `${crew ? 'yes ' : 'no  '}  ${String(n).padStart(5)}  ${String(c).padStart(8)}  ${String(seed).padStart(4)}  ${penalised(p).toFixed(2).padStart(10)}  ${penalised(off).toFixed(2).padStart(10)}  ${(Number.isFinite(ex.objective) ? ex.objective.toFixed(2) : '-').padStart(10)}  ${(p.gap <= 1e-6 ? 'at bound' : ex.status).padEnd(8)}  ${pct(Math.max(0, gap)).padStart(7)}  ${pct(Math.max(0, gapOff)).padStart(10)}  ${same ? 'yes' : 'NO '}         ${String(Math.round(p.solveMs)).padStart(8)}  ${load()}${errors.length ? `  ${errors.length} checker errors` : ''}`,
+    );
+  }
+}
+console.log(`best MILP solutions not proven optimal are the reference elsewhere (a plan above it is behind a known plan)`);
+console.log(`gap to the exact optimum (depots where it is proven: MILP optimum or plan at the lower bound): median ${pct(median(gaps))}, worst ${pct(Math.max(0, ...gaps))} (${gaps.length} depots); without the large-neighbourhood search: median ${pct(median(gapsNoLns))}, worst ${pct(Math.max(0, ...gapsNoLns))}`);
+
 console.log('\nDepots short of chargers (3-6 buses per charger), with the crew: cost against the lower bound');
-console.log('buses  chargers  seed  status    cost       bound      gap       crew moves  shortest  solve ms');
-const scarce: [number, number][] = quick ? [[12, 3], [40, 10]] : [[8, 2], [12, 3], [15, 3], [40, 10], [100, 20], [200, 40]];
+console.log('buses  chargers  seed  status    cost       bound      gap       crew moves  moves/bus  shortest  solve ms  LNS (pairs/kept)  load');
+const scarce: [number, number][] = !sections.has('scarce') ? [] : quick ? [[12, 3], [40, 10]] : [[8, 2], [12, 3], [15, 3], [40, 10], [100, 20], [200, 40]];
 for (const [n, c] of scarce) {
   for (const seed of quick ? [1] : [1, 2, 3]) {
     const input = withCrew(generateDepot({ buses: n, chargers: c, seed }), n / 40);
     const p = await planScenario(parse(input));
     const errors = checkPlan(input, p);
     console.log(
-      `${String(n).padStart(5)}  ${String(c).padStart(8)}  ${String(seed).padStart(4)}  ${p.status.padEnd(8)}  ${p.cost.total.toFixed(2).padStart(9)}  ${p.lowerBound.toFixed(2).padStart(9)}  ${pct(p.gap).padStart(8)}  ${String(p.crewMoves).padStart(10)}  ${String(Math.min(...p.sessions.map(minutes))).padStart(5)} min  ${String(Math.round(p.solveMs)).padStart(8)}${errors.length ? `  ${errors.length} checker errors` : ''}`,
+      `${String(n).padStart(5)}  ${String(c).padStart(8)}  ${String(seed).padStart(4)}  ${p.status.padEnd(8)}  ${p.cost.total.toFixed(2).padStart(9)}  ${p.lowerBound.toFixed(2).padStart(9)}  ${pct(p.gap).padStart(8)}  ${String(p.crewMoves).padStart(10)}  ${(p.crewMoves / n).toFixed(2).padStart(9)}  ${String(Math.min(...p.sessions.map(minutes))).padStart(5)} min  ${String(Math.round(p.solveMs)).padStart(8)}  ${`${p.stats.lns.neighbourhoods}/${p.stats.lns.accepted}`.padStart(16)}  ${load()}${errors.length ? `  ${errors.length} checker errors` : ''}`,
     );
   }
 }
@@ -70,7 +134,8 @@ for (const [n, c] of scarce) {
 console.log('\nRe-plan after one charger fails at 22:00 (with the crew): buses moved');
 console.log('buses  chargers  seed  failed  buses on it  moved  allowed (on it + 1 per freed charger)');
 const moved: number[] = [];
-for (const [n, c] of quick ? [[40, 10]] : [[40, 10], [40, 20], [100, 25]]) {
+const allowed: number[] = [];
+for (const [n, c] of !sections.has('replan') ? [] : quick ? [[40, 10]] : [[40, 10], [40, 20], [100, 25]]) {
   for (const seed of quick ? [1] : [1, 2, 3]) {
     const input = withCrew(generateDepot({ buses: n, chargers: c, seed }), n / 40);
     const scenario = parse(input);
@@ -87,7 +152,8 @@ for (const [n, c] of quick ? [[40, 10]] : [[40, 10], [40, 20], [100, 25]]) {
     const r = await replan(scenario, { now, outOfService: [busiest.ch], previous: plan, plugged });
     const m = movedBuses(plan, r, nowMs);
     moved.push(m.length);
+    allowed.push(busiest.n + 1);
     console.log(`${String(n).padStart(5)}  ${String(c).padStart(8)}  ${String(seed).padStart(4)}  ${busiest.ch.padEnd(6)}  ${String(busiest.n).padStart(11)}  ${String(m.length).padStart(5)}  ${busiest.n + 1}`);
   }
 }
-console.log(`median buses moved: ${median(moved)}`);
+console.log(`median buses moved: ${median(moved)}; median allowed (buses on the failed charger + 1): ${median(allowed)}`);

@@ -52,11 +52,11 @@ const row = (idx: number[], val: number[], lo: number, hi: number) => {
   rowUpper.push(hi);
 };
 const C = problem.chargers.length;
-const x = problem.buses.map(() => problem.chargers.map(() => new Int32Array(problem.T).fill(-1)));
+const x = problem.buses.map(() => problem.chargers.map(() => new Int32Array(problem.slotCount).fill(-1)));
 for (const b of problem.buses) {
   for (const st of b.stays) {
     const startsOfStay: number[] = [];
-    for (let t = st.a; t < st.d; t++) {
+    for (let t = st.arriveSlot; t < st.departSlot; t++) {
       const xs: number[] = [];
       const caps: number[] = [];
       for (let c = 0; c < C; c++) {
@@ -66,7 +66,7 @@ for (const b of problem.buses) {
         startsOfStay.push(yc);
         xs.push(xc);
         caps.push(-Math.min(b.maxKw, problem.chargers[c]!.maxKw));
-        if (t > st.a) row([xc, x[b.index]![c]![t - 1]!, yc], [1, -1, -1], -Infinity, 0);
+        if (t > st.arriveSlot) row([xc, x[b.index]![c]![t - 1]!, yc], [1, -1, -1], -Infinity, 0);
         else row([xc, yc], [1, -1], -Infinity, 0);
       }
       row([model.pCol[b.index]![t]!, ...xs], [1, ...caps], -Infinity, 0);
@@ -76,7 +76,7 @@ for (const b of problem.buses) {
   }
 }
 for (let c = 0; c < C; c++) {
-  for (let t = 0; t < problem.T; t++) {
+  for (let t = 0; t < problem.slotCount; t++) {
     const on = problem.buses.map((b) => x[b.index]![c]![t]!).filter((v) => v >= 0);
     if (on.length > 1) row(on, on.map(() => 1), -Infinity, 1);
   }

@@ -81,6 +81,9 @@ export const planResultSchema = z.looseObject({
     departures: z.array(z.object({ at: z.string(), kwh: z.number() })),
     shortfallKwh: z.number(),
     reason: z.string().nullable(),
+    /** The cause of a shortfall in words (times, what binds) and whether it is proven necessary. */
+    cause: z.string().nullable().optional(),
+    causeProven: z.boolean().nullable().optional(),
   })),
 });
 /**

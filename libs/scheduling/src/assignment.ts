@@ -48,7 +48,7 @@ export function sortSequence(problem: Problem, hints: AssignmentHints, seq: numb
     const a = problem.stays[x]!;
     const b = problem.stays[y]!;
     const key = by === 'centre' ? hints.centre[x]! - hints.centre[y]! : 0;
-    return key || a.d - b.d || a.a - b.a || a.id - b.id;
+    return key || a.departSlot - b.departSlot || a.arriveSlot - b.arriveSlot || a.id - b.id;
   });
 }
 
@@ -59,21 +59,21 @@ export function sortSequence(problem: Problem, hints: AssignmentHints, seq: numb
 export function layoutCharger(problem: Problem, hints: AssignmentHints, assignment: Assignment, charger: number): void {
   const seq = assignment.sequence[charger]!;
   const w = hints.weight;
-  const T = problem.T;
+  const T = problem.slotCount;
   const prefix = new Float64Array(T + 1);
   for (let t = 0; t < T; t++) prefix[t + 1] = prefix[t]! + w[t]! + 1e-6;
   const cap = (x: number, y: number) => (y > x ? prefix[y]! - prefix[x]! : 0);
-  let start = seq.length ? problem.stays[seq[0]!]!.a : 0;
+  let start = seq.length ? problem.stays[seq[0]!]!.arriveSlot : 0;
   for (let i = 0; i < seq.length; i++) {
     const s = problem.stays[seq[i]!]!;
-    start = Math.max(start, s.a);
+    start = Math.max(start, s.arriveSlot);
     if (i === seq.length - 1) {
-      assignment.from[s.id] = Math.min(start, s.d);
-      assignment.to[s.id] = s.d;
+      assignment.from[s.id] = Math.min(start, s.departSlot);
+      assignment.to[s.id] = s.departSlot;
       break;
     }
     const next = problem.stays[seq[i + 1]!]!;
-    const lastEnd = problem.stays[seq[seq.length - 1]!]!.d;
+    const lastEnd = problem.stays[seq[seq.length - 1]!]!.departSlot;
     let remaining = 0;
     for (let j = i; j < seq.length; j++) remaining += hints.energy[seq[j]!]! + 1e-3;
     const share = (hints.energy[s.id]! + 1e-3) / remaining;
@@ -81,14 +81,14 @@ export function layoutCharger(problem: Problem, hints: AssignmentHints, assignme
     // Earliest hand-over whose weighted time covers this stay's share.
     let h = start;
     while (h < T && cap(start, h) < target) h++;
-    let lo = Math.max(start, Math.min(next.a, s.d));
-    let hi = Math.min(Math.max(s.d, next.a), Math.max(next.d - 1, lo));
+    let lo = Math.max(start, Math.min(next.arriveSlot, s.departSlot));
+    let hi = Math.min(Math.max(s.departSlot, next.arriveSlot), Math.max(next.departSlot - 1, lo));
     if (hints.handover !== 'share') {
       // Leave each of the two stays the slots it needs at full power, where that is possible.
       const needA = Math.ceil(hints.energy[s.id]! / (usablePower(problem, s, charger) * problem.slotHours) - 1e-9);
       const needB = Math.ceil(hints.energy[next.id]! / (usablePower(problem, next, charger) * problem.slotHours) - 1e-9);
       const lo2 = Math.max(lo, start + needA);
-      const hi2 = Math.min(hi, next.d - needB);
+      const hi2 = Math.min(hi, next.departSlot - needB);
       if (lo2 <= hi2) {
         lo = lo2;
         hi = hi2;
@@ -100,7 +100,7 @@ export function layoutCharger(problem: Problem, hints: AssignmentHints, assignme
     const pa = hints.power[s.bus]!;
     const pb = hints.power[next.bus]!;
     let lost = 0;
-    for (let t = lo; t < Math.min(s.d, T); t++) lost += pa[t]!;
+    for (let t = lo; t < Math.min(s.departSlot, T); t++) lost += pa[t]!;
     let bestLost = Infinity;
     let bestH = h;
     for (let x = lo; x <= hi; x++) {
@@ -109,14 +109,14 @@ export function layoutCharger(problem: Problem, hints: AssignmentHints, assignme
         bestLost = score;
         bestH = x;
       }
-      if (x < s.d) lost -= pa[x]!;
-      if (x >= next.a) lost += pb[x]!;
+      if (x < s.departSlot) lost -= pa[x]!;
+      if (x >= next.arriveSlot) lost += pb[x]!;
     }
     h = bestH;
     }
-    assignment.from[s.id] = Math.min(start, s.d);
-    assignment.to[s.id] = Math.max(Math.min(h, s.d), assignment.from[s.id]!);
-    start = Math.max(h, next.a);
+    assignment.from[s.id] = Math.min(start, s.departSlot);
+    assignment.to[s.id] = Math.max(Math.min(h, s.departSlot), assignment.from[s.id]!);
+    start = Math.max(h, next.arriveSlot);
   }
 }
 
@@ -132,7 +132,7 @@ function layoutScore(problem: Problem, hints: AssignmentHints, assignment: Assig
     const cap = usablePower(problem, stay, charger) * dt * Math.max(0, to - from);
     score += 1000 * Math.max(0, hints.energy[id]! - cap);
     const p = hints.power[stay.bus]!;
-    for (let t = stay.a; t < stay.d; t++) if (t < from || t >= to) score += p[t]! * dt;
+    for (let t = stay.arriveSlot; t < stay.departSlot; t++) if (t < from || t >= to) score += p[t]! * dt;
   }
   return score;
 }
@@ -167,8 +167,8 @@ export function arrangeCharger(problem: Problem, hints: AssignmentHints, assignm
       ? permutations(seq)
       : [
           seq.slice().sort((x, y) => hints.centre[x]! - hints.centre[y]! || x - y),
-          seq.slice().sort((x, y) => st[x]!.d - st[y]!.d || st[x]!.a - st[y]!.a || x - y),
-          seq.slice().sort((x, y) => st[x]!.a - st[y]!.a || st[x]!.d - st[y]!.d || x - y),
+          seq.slice().sort((x, y) => st[x]!.departSlot - st[y]!.departSlot || st[x]!.arriveSlot - st[y]!.arriveSlot || x - y),
+          seq.slice().sort((x, y) => st[x]!.arriveSlot - st[y]!.arriveSlot || st[x]!.departSlot - st[y]!.departSlot || x - y),
         ];
   let best: number[] = candidates[0]!;
   let bestScore = Infinity;
@@ -212,8 +212,8 @@ export function initialAssignment(problem: Problem, hints: AssignmentHints): Ass
     sequence: problem.chargers.map(() => []),
   };
   const dt = problem.slotHours;
-  const jobs = problem.stays.filter((s) => s.d > s.a && hints.energy[s.id]! > 1e-6);
-  jobs.sort((x, y) => x.d - y.d || x.a - y.a || hints.energy[y.id]! - hints.energy[x.id]! || x.id - y.id);
+  const jobs = problem.stays.filter((s) => s.departSlot > s.arriveSlot && hints.energy[s.id]! > 1e-6);
+  jobs.sort((x, y) => x.departSlot - y.departSlot || x.arriveSlot - y.arriveSlot || hints.energy[y.id]! - hints.energy[x.id]! || x.id - y.id);
   const free = new Int32Array(problem.chargers.length);
   for (const job of jobs) {
     let best = -1;
@@ -221,9 +221,9 @@ export function initialAssignment(problem: Problem, hints: AssignmentHints): Ass
     for (const c of problem.chargers) {
       const power = usablePower(problem, job, c.index);
       const need = Math.ceil(hints.energy[job.id]! / (power * dt) - 1e-9);
-      const start = Math.max(job.a, free[c.index]!);
-      const fits = start + need <= job.d ? 0 : 1;
-      const shortBy = Math.max(0, start + need - job.d) * power;
+      const start = Math.max(job.arriveSlot, free[c.index]!);
+      const fits = start + need <= job.departSlot ? 0 : 1;
+      const shortBy = Math.max(0, start + need - job.departSlot) * power;
       const powerFit = power >= problem.buses[job.bus]!.maxKw - 1e-9 ? c.maxKw : 1e6 - power;
       const key = [fits, fits ? shortBy : 0, start, assignment.sequence[c.index]!.length, powerFit, c.index];
       if (best < 0 || lexLess(key, bestKey)) {
@@ -233,8 +233,8 @@ export function initialAssignment(problem: Problem, hints: AssignmentHints): Ass
     }
     if (best < 0) continue;
     const power = usablePower(problem, job, best);
-    const start = Math.max(job.a, free[best]!);
-    free[best] = Math.min(job.d, start + Math.ceil(hints.energy[job.id]! / (power * dt) - 1e-9));
+    const start = Math.max(job.arriveSlot, free[best]!);
+    free[best] = Math.min(job.departSlot, start + Math.ceil(hints.energy[job.id]! / (power * dt) - 1e-9));
     assignment.chargerOf[job.id] = best;
     assignment.sequence[best]!.push(job.id);
   }

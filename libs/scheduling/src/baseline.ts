@@ -45,7 +45,7 @@ export type BaselineKind = 'arrival' | 'timer';
  * then the site). `targetKwh[bus][stay]` is the plan's battery energy at each departure.
  */
 export function limitedBaseline(problem: Problem, targetKwh: readonly (readonly number[])[], kind: BaselineKind): Baseline {
-  const { T, slotHours: dt, eta } = problem;
+  const { slotCount: T, slotHours: dt, eta } = problem;
   const energy = problem.buses.map((b) => b.arrivalKwh);
   const power = problem.buses.map(() => new Float64Array(T));
   const occupant = new Int32Array(problem.chargers.length).fill(-1);
@@ -53,7 +53,7 @@ export function limitedBaseline(problem: Problem, targetKwh: readonly (readonly 
   const queue: number[] = [];
   const charging = new Float64Array(T);
   let shortfall = 0;
-  const opensAt = problem.stays.map((stay) => (kind === 'timer' ? cheapestWindowOpens(problem, stay.a, stay.d) : stay.a));
+  const opensAt = problem.stays.map((stay) => (kind === 'timer' ? cheapestWindowOpens(problem, stay.arriveSlot, stay.departSlot) : stay.arriveSlot));
   const starts = problem.stays.slice().sort((x, y) => opensAt[x.id]! - opensAt[y.id]! || x.arriveMs - y.arriveMs || x.bus - y.bus);
   let next = 0;
   // Most a bus takes in a slot: its own acceptance, capped at what is left to its target.
@@ -65,15 +65,15 @@ export function limitedBaseline(problem: Problem, targetKwh: readonly (readonly 
   for (let t = 0; t < T; t++) {
     for (const bus of problem.buses) {
       const k = stayOf[bus.index]!;
-      if (k >= 0 && t >= bus.stays[k]!.d) leave(bus.index);
+      if (k >= 0 && t >= bus.stays[k]!.departSlot) leave(bus.index);
     }
     while (next < starts.length && opensAt[starts[next]!.id]! <= t) {
       const stay = starts[next++]!;
-      if (stay.d <= t) {
-        depart(stay.bus, stay.k);
+      if (stay.departSlot <= t) {
+        depart(stay.bus, stay.indexOnBus);
         continue;
       }
-      stayOf[stay.bus] = stay.k;
+      stayOf[stay.bus] = stay.indexOnBus;
       queue.push(stay.bus);
     }
     for (let c = 0; c < occupant.length; c++) {

@@ -12,7 +12,7 @@ export type Move = 'driver' | 'crew';
 
 /** Is a plug-in of this stay at slot f done without the crew? */
 export function startIsFree(problem: Problem, stay: Stay, f: number): boolean {
-  if (f !== stay.a) return false;
+  if (f !== stay.arriveSlot) return false;
   if (problem.pinned && problem.pinned[stay.id]! >= 0) return true; // already on its charger
   if (problem.arrivedEarlier?.[stay.id]) return false;
   return problem.yard ? problem.yard.driversPlugIn : true;
@@ -20,8 +20,8 @@ export function startIsFree(problem: Problem, stay: Stay, f: number): boolean {
 
 /** Is an unplug of this stay at slot t (the end of slot t-1) done without the crew? */
 export function endIsFree(problem: Problem, stay: Stay, t: number): boolean {
-  if (t >= problem.T) return true; // after the horizon: not part of this plan
-  if (t !== stay.d) return false;
+  if (t >= problem.slotCount) return true; // after the horizon: not part of this plan
+  if (t !== stay.departSlot) return false;
   return problem.yard ? problem.yard.driversPlugIn : true;
 }
 
@@ -29,7 +29,7 @@ export function endIsFree(problem: Problem, stay: Stay, t: number): boolean {
 export function minWindow(problem: Problem, stay: Stay): number {
   // Already plugged in at a re-plan's start: its plug-in was earlier, the minimum is behind it.
   if (problem.pinned && problem.pinned[stay.id]! >= 0) return 1;
-  const len = stay.d - stay.a;
+  const len = stay.departSlot - stay.arriveSlot;
   const min = problem.yard?.minSlots ?? 0;
   return Math.max(1, len < min ? len : min);
 }
@@ -44,7 +44,7 @@ export function minWindow(problem: Problem, stay: Stay): number {
 export function fitCrew(problem: Problem, assignment: Assignment, energy?: Float64Array, fewerMoves = false): Assignment {
   const yard = problem.yard;
   if (!yard) return assignment;
-  const used = new Int32Array(problem.T + 1);
+  const used = new Int32Array(problem.slotCount + 1);
   const dropped: number[] = [];
   const taken: number[][] = problem.chargers.map(() => []);
   for (const charger of problem.chargers) {
@@ -58,7 +58,7 @@ export function fitCrew(problem: Problem, assignment: Assignment, energy?: Float
     const stay = problem.stays[id]!;
     if (problem.pinned && problem.pinned[id]! >= 0) continue;
     const order = problem.chargers
-      .filter((c) => c.available[Math.min(stay.a, problem.T - 1)])
+      .filter((c) => c.available[Math.min(stay.arriveSlot, problem.slotCount - 1)])
       .map((c) => c.index)
       .sort((x, y) => assignment.sequence[x]!.length - assignment.sequence[y]!.length || problem.chargers[y]!.maxKw - problem.chargers[x]!.maxKw || x - y);
     let placed = false;
@@ -69,8 +69,8 @@ export function fitCrew(problem: Problem, assignment: Assignment, energy?: Float
         if (seq.some((x) => problem.pinned && problem.pinned[x]! >= 0) && pos === 0) continue;
         const trial = [...seq.slice(0, pos), id, ...seq.slice(pos)];
         const saved = trial.map((x) => [assignment.from[x]!, assignment.to[x]!, assignment.chargerOf[x]!] as const);
-        assignment.from[id] = stay.a;
-        assignment.to[id] = stay.d;
+        assignment.from[id] = stay.arriveSlot;
+        assignment.to[id] = stay.departSlot;
         const res = fitCharger(problem, assignment, c, trial, used, true, energy, fewerMoves);
         if (res.dropped.length === 0) {
           for (const t of res.taken) used[t]!++;
@@ -108,7 +108,7 @@ function fitCharger(
   fewerMoves = false,
 ): { dropped: number[]; taken: number[] } {
   const yard = problem.yard!;
-  const { T } = problem;
+  const { slotCount: T } = problem;
   const stays = problem.stays;
   const charger = problem.chargers[c]!;
   const local = new Int32Array(T + 1);
@@ -131,7 +131,7 @@ function fitCharger(
   if (problem.pinned) {
     const pin = problem.pinned;
     sequence = [...sequence.filter((x) => pin[x]! === c), ...sequence.filter((x) => pin[x]! !== c)];
-    for (const x of sequence) if (pin[x]! === c) assignment.from[x] = problem.stays[x]!.a;
+    for (const x of sequence) if (pin[x]! === c) assignment.from[x] = problem.stays[x]!.arriveSlot;
   }
   const kept: number[] = [];
   let cur = -1;
@@ -144,9 +144,9 @@ function fitCharger(
   const closeEnd = (): boolean => {
     const p = stays[cur]!;
     const fromP = assignment.from[cur]!;
-    const wanted = Math.min(p.d, Math.max(assignment.to[cur]!, fromP + minWindow(problem, p)));
+    const wanted = Math.min(p.departSlot, Math.max(assignment.to[cur]!, fromP + minWindow(problem, p)));
     let best = -1;
-    for (let t = fromP + minWindow(problem, p); t <= p.d; t++) {
+    for (let t = fromP + minWindow(problem, p); t <= p.departSlot; t++) {
       if (!endIsFree(problem, p, t) && room(t) < 1) continue;
       if (best < 0 || Math.abs(t - wanted) < Math.abs(best - wanted) || (Math.abs(t - wanted) === Math.abs(best - wanted) && endIsFree(problem, p, t))) best = t;
     }
@@ -163,7 +163,7 @@ function fitCharger(
   for (const id of sequence) {
     const s = stays[id]!;
     const pinned = problem.pinned !== undefined && problem.pinned[id]! >= 0;
-    if (s.d <= s.a || (!pinned && assignment.to[id]! <= assignment.from[id]!) || !charger.available[Math.min(Math.max(assignment.from[id]!, s.a), T - 1)]) {
+    if (s.departSlot <= s.arriveSlot || (!pinned && assignment.to[id]! <= assignment.from[id]!) || !charger.available[Math.min(Math.max(assignment.from[id]!, s.arriveSlot), T - 1)]) {
       drop(id);
       continue;
     }
@@ -179,7 +179,7 @@ function fitCharger(
       // one that the crew can do, after the charger is free.
       const wanted = assignment.from[id]!;
       let best = -1;
-      for (let f = Math.max(s.a, freeFrom); f <= s.d - minS; f++) {
+      for (let f = Math.max(s.arriveSlot, freeFrom); f <= s.departSlot - minS; f++) {
         if (!startIsFree(problem, s, f) && room(f) < 1) continue;
         if (best < 0 || Math.abs(f - wanted) < Math.abs(best - wanted)) best = f;
       }
@@ -197,14 +197,14 @@ function fitCharger(
     // in at max(h, s.a).
     const p = stays[cur]!;
     const fromP = assignment.from[cur]!;
-    const lo = Math.max(fromP + minWindow(problem, p), Math.min(p.d, s.a));
-    const hi = s.d - minS;
+    const lo = Math.max(fromP + minWindow(problem, p), Math.min(p.departSlot, s.arriveSlot));
+    const hi = s.departSlot - minS;
     const wanted = assignment.to[cur]!;
     let best = -1;
     let bestKey = Infinity;
     for (let h = lo; h <= hi; h++) {
-      const toP = Math.min(h, p.d);
-      const fromS = Math.max(h, s.a);
+      const toP = Math.min(h, p.departSlot);
+      const fromS = Math.max(h, s.arriveSlot);
       if (toP < fromP + minWindow(problem, p)) continue;
       const unplug = endIsFree(problem, p, toP) ? 0 : 1;
       const plug = startIsFree(problem, s, fromS) ? 0 : 1;
@@ -220,7 +220,7 @@ function fitCharger(
       if (energy) {
         // At 85 % of full power: the taper near the top of the battery takes the rest.
         const slotKwh = (x: Stay) => 0.85 * Math.min(problem.buses[x.bus]!.maxKw, charger.maxKw) * problem.slotHours;
-        lack = Math.max(0, energy[p.id]! - slotKwh(p) * (toP - fromP)) + Math.max(0, energy[s.id]! - slotKwh(s) * (s.d - fromS));
+        lack = Math.max(0, energy[p.id]! - slotKwh(p) * (toP - fromP)) + Math.max(0, energy[s.id]! - slotKwh(s) * (s.departSlot - fromS));
       }
       // Asked for fewer moves: a hand-over at a pull-in or pull-out (one move, not two) comes
       // before closeness to the proposed slot.
@@ -238,8 +238,8 @@ function fitCharger(
       } else drop(id);
       continue;
     }
-    const toP = Math.min(best, p.d);
-    const fromS = Math.max(best, s.a);
+    const toP = Math.min(best, p.departSlot);
+    const fromS = Math.max(best, s.arriveSlot);
     if (!endIsFree(problem, p, toP)) take(toP);
     if (!startIsFree(problem, s, fromS)) take(fromS);
     assignment.to[cur] = toP;

@@ -15,7 +15,7 @@ export function soloShortfall(problem: Problem, b: number, powerCap: number, tap
   let e = bus.arrivalKwh;
   let worst = 0;
   for (const stay of bus.stays) {
-    for (let t = stay.a; t < stay.d; t++) e += problem.eta * problem.slotHours * acceptance(problem, b, e, powerCap, taper);
+    for (let t = stay.arriveSlot; t < stay.departSlot; t++) e += problem.eta * problem.slotHours * acceptance(problem, b, e, powerCap, taper);
     worst = Math.max(worst, stay.requiredKwh - e);
     e -= stay.runKwh;
   }
@@ -78,4 +78,66 @@ export function explainShortfalls(
     else reasons[b] = 'charger';
   }
   return reasons;
+}
+
+/** Local clock time "18:40" of an instant in the depot's zone. */
+function clock(ms: number, zone: string): string {
+  return new Intl.DateTimeFormat('en-GB', { timeZone: zone, hour: '2-digit', minute: '2-digit', hourCycle: 'h23' }).format(ms);
+}
+
+/** The longest stretch inside [from, to) with no crew in the yard, as "from 23:30 to 04:30", or null. */
+function crewGap(problem: Problem, from: number, to: number): string | null {
+  const cap = problem.yard?.capacity;
+  if (!cap) return null;
+  let best: [number, number] | null = null;
+  let t = from;
+  while (t < to) {
+    if (cap[t]! > 0) {
+      t++;
+      continue;
+    }
+    let u = t;
+    while (u < to && cap[u]! === 0) u++;
+    if (!best || u - t > best[1] - best[0]) best = [t, u];
+    t = u;
+  }
+  if (!best || best[1] - best[0] < 2) return null;
+  const slots = problem.slots;
+  return `from ${clock(slots[best[0]]!.startMs, problem.zone)} to ${clock(slots[best[1] - 1]!.endMs, problem.zone)}`;
+}
+
+/**
+ * The cause of a bus's shortfall in words, for the plan review: what stops it, at which stay
+ * (pull-in and pull-out times), and whether that is proven (no plan of one plug-in per stay could
+ * serve it) or only what this plan found.
+ */
+export function describeShortfall(problem: Problem, b: number, reason: ShortReason, shortKwh: number, proven: boolean): string {
+  const bus = problem.buses[b]!;
+  const zone = problem.zone;
+  // The stay that falls short: the one whose departure misses most (the last one by default).
+  const stay = bus.stays[bus.stays.length - 1]!;
+  const span = `between pull-in ${clock(stay.arriveMs, zone)} and pull-out ${clock(stay.departMs, zone)}`;
+  const kwh = `${Math.round(shortKwh * 10) / 10} kWh`;
+  let words: string;
+  switch (reason) {
+    case 'dwell':
+      words = `not at the depot long enough: even alone on the strongest charger ${span} it would miss ${kwh}`;
+      break;
+    case 'taper':
+      words = `the battery's taper: even alone on the strongest charger ${span}, it takes charge too slowly near full to gain the last ${kwh}`;
+      break;
+    case 'site':
+      words = `the service limit: the site's power ${span} is taken by the depot's other load and the buses charging then (${kwh} short)`;
+      break;
+    case 'cabinet':
+      words = `the power cabinet's limit: the chargers sharing it cannot all draw full power ${span} (${kwh} short)`;
+      break;
+    default: {
+      const gap = crewGap(problem, stay.arriveSlot, stay.departSlot);
+      words = problem.yard
+        ? `no charger is free long enough ${span} with the crew's hours${gap ? ` (nobody in the yard ${gap})` : ''} (${kwh} short)`
+        : `no charger is free long enough ${span} (${kwh} short)`;
+    }
+  }
+  return `${words}; ${proven ? 'proven: no plan can serve it fully' : 'not proven: this is the best plan found'}`;
 }

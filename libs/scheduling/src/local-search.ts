@@ -132,7 +132,7 @@ export function localSearch(
   const overlaps = (x: number, y: number) => {
     const a = problem.stays[x]!;
     const b = problem.stays[y]!;
-    return a.a < b.d && b.a < a.d;
+    return a.arriveSlot < b.departSlot && b.arriveSlot < a.departSlot;
   };
 
   while (moves < limits.maxMoves && performance.now() < limits.deadline && bestResult.objective > limits.target) {
@@ -191,13 +191,13 @@ export function localSearch(
       if (k < 0 || k >= seq.length) continue;
       const n = seq[k]!;
       if (later) {
-        const h = Math.min(trial.to[j]! + delta, problem.stays[j]!.d, trial.to[n]! - 1);
-        if (h <= trial.to[j]! || h < problem.stays[n]!.a) continue;
+        const h = Math.min(trial.to[j]! + delta, problem.stays[j]!.departSlot, trial.to[n]! - 1);
+        if (h <= trial.to[j]! || h < problem.stays[n]!.arriveSlot) continue;
         trial.to[j] = h;
         trial.from[n] = Math.max(trial.from[n]!, h);
       } else {
-        const h = Math.max(trial.from[j]! - delta, problem.stays[j]!.a, trial.from[n]! + 1);
-        if (h >= trial.from[j]! || h > problem.stays[n]!.d) continue;
+        const h = Math.max(trial.from[j]! - delta, problem.stays[j]!.arriveSlot, trial.from[n]! + 1);
+        if (h >= trial.from[j]! || h > problem.stays[n]!.departSlot) continue;
         trial.from[j] = h;
         trial.to[n] = Math.min(trial.to[n]!, h);
       }

@@ -127,7 +127,7 @@ export function topChargerPower(problem: Problem, t: number, k: number, cabinets
 }
 
 export function buildChargeModel(problem: Problem, options: ModelOptions): ChargeModel {
-  const { T, slotHours: dt, eta, buses, slots, tariff } = problem;
+  const { slotCount: T, slotHours: dt, eta, buses, slots, tariff } = problem;
   const cols = new Cols();
   const rows = new Rows();
   const plug = options.plug;
@@ -200,7 +200,7 @@ export function buildChargeModel(problem: Problem, options: ModelOptions): Charg
     let maxDelivered = 0;
     const needCap = energyNeedCap(problem, bus.index);
     for (const stay of bus.stays) {
-      for (let t = stay.a; t < stay.d; t++) {
+      for (let t = stay.arriveSlot; t < stay.departSlot; t++) {
         idx.push(pCol[bus.index]![t]!);
         val.push(eta * dt);
         maxDelivered += eta * dt * Math.min(bus.maxKw, strongest[t]!);
@@ -214,7 +214,7 @@ export function buildChargeModel(problem: Problem, options: ModelOptions): Charg
         departRow[stay.id] = rows.add([...idx, s], [...val, 1], need, Infinity);
       }
       const room = bus.ceilingKwh - base;
-      const needed = options.allRows || needCap[stay.k]! > bus.ceilingKwh - 1e-9;
+      const needed = options.allRows || needCap[stay.indexOnBus]! > bus.ceilingKwh - 1e-9;
       if (needed && maxDelivered > room + 1e-9) rows.add([...idx], [...val], -Infinity, room);
     }
   }
@@ -226,7 +226,7 @@ export function buildChargeModel(problem: Problem, options: ModelOptions): Charg
     const Q = bus.usableKwh;
     const m = bus.maxKw / (Q - bus.taperFromKwh);
     const stayOf = new Int32Array(T).fill(-1);
-    for (const s of bus.stays) for (let t = s.a; t < s.d; t++) stayOf[t] = s.k;
+    for (const s of bus.stays) for (let t = s.arriveSlot; t < s.departSlot; t++) stayOf[t] = s.indexOnBus;
     const needCap = energyNeedCap(problem, bus.index);
     if (!options.allRows && needCap.every((c) => c <= bus.taperFromKwh! + 1e-9)) continue;
     const u = bus.slots;
@@ -294,7 +294,7 @@ export function buildChargeModel(problem: Problem, options: ModelOptions): Charg
 /** Grid kW per bus per slot from a solution (tiny solver noise cleared). */
 export function powerFrom(problem: Problem, model: ChargeModel, x: Float64Array): Float64Array[] {
   return problem.buses.map((bus) => {
-    const out = new Float64Array(problem.T);
+    const out = new Float64Array(problem.slotCount);
     for (const t of bus.slots) {
       const v = x[model.pCol[bus.index]![t]!]!;
       out[t] = v > 1e-7 ? v : 0;

@@ -2,9 +2,11 @@ import { cloneAssignment, initialAssignment, plugMapOf, type Assignment, type As
 import { limitedBaseline, type Baseline, type BaselineKind } from './baseline.js';
 import { countCrewMoves, endIsFree, fitCrew, startIsFree, type Move } from './crew.js';
 import { keptAssignment } from './stable.js';
-import { explainShortfalls, type ShortReason } from './explain.js';
+import { describeShortfall, explainShortfalls, soloShortfall, type ShortReason } from './explain.js';
+import { exactSize, solveExact } from './exact.js';
 import { loadSolver, type LpResult, type Solver } from './highs-solver.js';
 import { AssignedModel, localSearch } from './local-search.js';
+import { defaultLnsLimits, pairSearch } from './lns.js';
 import { solveLowerBound } from './lower-bound.js';
 import { buildChargeModel, powerFrom } from './lp-model.js';
 import { prepareProblem, type Problem } from './problem.js';
@@ -37,6 +39,9 @@ export interface PlanBus {
   departures: { at: string; kwh: number }[];
   shortfallKwh: number;
   reason: ShortReason | null;
+  /** The cause in words for the plan review (null when the bus is served), and whether it is proven. */
+  cause: string | null;
+  causeProven: boolean | null;
 }
 
 export interface BaselineCost extends PlanCost {
@@ -98,6 +103,10 @@ export interface Plan {
     localSearchAccepted: number;
     /** Stage-1 construction the plan comes from (e.g. sweep-strong-deadline). */
     construction: string;
+    /** Large-neighbourhood search: pairs of chargers re-split, splits laid out, LP solves, improvements kept. */
+    lns: { neighbourhoods: number; accepted: number; lpSolves: number; splits: number };
+    /** The exact MILP, when it was run (a short plan on a small depot): its end, nodes, size, time. */
+    exact: { status: string; nodes: number; binaries: number; ms: number } | null;
     /**
      * Why the search ended: it reached the bound, used its move budget (both reproducible), or
      * hit the time safety net (the plan may then differ from run to run).
@@ -119,7 +128,26 @@ export interface PlanOptions {
   timeBudgetMs?: number;
   /** Local-search moves (default `defaultMoves(problem)`, derived from the problem's size). */
   maxMoves?: number;
+  /**
+   * Large-neighbourhood search over whole charger sequences (see lns.ts) when the local search
+   * ends above the bound; default on. Off only to measure what it adds.
+   */
+  lns?: boolean;
+  /**
+   * When a plan leaves a bus short on a small depot, solve the exact assignment MILP (HiGHS, node
+   * limit, a few seconds at most) to serve it or prove the shortfall necessary; default on.
+   */
+  exact?: boolean;
 }
+
+/** Largest exact model tried when a plan is short (binaries), its node limit and time cap. */
+/** Depots up to this many stays get the large-neighbourhood search (beyond, it costs more time than it gains). */
+export const LNS_MAX_STAYS = 120;
+
+/** Above this many stays with crew windows, only the construction candidates that win there are tried. */
+export const LARGE_CREW_STAYS = 150;
+
+export const EXACT_LIMITS = { binaries: 6000, nodes: 30, ms: 3000 };
 
 const round = (v: number, digits = 6) => {
   const f = 10 ** digits;
@@ -133,7 +161,7 @@ const round = (v: number, digits = 6) => {
  * plan; it only bounds a pathological case.
  */
 export function defaultTimeBudgetMs(buses: number): number {
-  return Math.max(5000, 12 * buses);
+  return Math.max(12_000, 12 * buses);
 }
 
 /**
@@ -160,7 +188,7 @@ export async function planScenario(scenario: Scenario, options: PlanOptions = {}
 export function planProblem(problem: Problem, solver: Solver, options: PlanOptions = {}, t0 = performance.now()): Plan {
   const budget = options.timeBudgetMs ?? defaultTimeBudgetMs(problem.buses.length);
   const deadline = t0 + budget;
-  const { T, slotHours: dt } = problem;
+  const { slotCount: T, slotHours: dt } = problem;
 
   const lb = solveLowerBound(problem, solver);
   const hints: AssignmentHints = {
@@ -174,12 +202,12 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
   for (const stay of problem.stays) {
     let e = 0;
     let m = 0;
-    for (let t = stay.a; t < stay.d; t++) {
+    for (let t = stay.arriveSlot; t < stay.departSlot; t++) {
       e += lb.power[stay.bus]![t]! * dt;
       m += lb.power[stay.bus]![t]! * dt * (t + 0.5);
     }
     hints.energy[stay.id] = e;
-    hints.centre[stay.id] = e > 1e-9 ? m / e : (stay.a + stay.d) / 2;
+    hints.centre[stay.id] = e > 1e-9 ? m / e : (stay.arriveSlot + stay.departSlot) / 2;
   }
   for (const p of lb.power) for (let t = 0; t < T; t++) hints.weight[t] = hints.weight[t]! + p[t]!;
 
@@ -208,6 +236,15 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
       ['sequence-best-least-cut', () => initialAssignment(problem, { ...hints, order: 'best', handover: 'least-cut' })],
     );
   }
+  // Large depots with crew windows: each candidate costs a large LP re-solve (about a second
+  // at 500 buses), and there the sequencing heuristic's plans win (measured at 200-1,000 buses);
+  // only those and the first sweep are tried.
+  if (problem.yard?.capacity && problem.stays.length > LARGE_CREW_STAYS) {
+    const keep = new Set(['sequence-departure-share', 'sequence-best-share', 'sweep-strong-deadline']);
+    const kept = candidates.filter(([name]) => keep.has(name));
+    kept.sort((x, y) => (x[0].startsWith('sequence') ? 0 : 1) - (y[0].startsWith('sequence') ? 0 : 1));
+    if (kept.length) candidates.splice(0, candidates.length, ...kept);
+  }
   // Every candidate is made one the yard crew can carry out before the LP judges it.
   for (const cand of candidates) {
     const make = cand[1];
@@ -220,6 +257,10 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
   const live = new AssignedModel(problem, solver, start);
   let search;
   let chosen!: Chosen;
+  let lnsStats = { neighbourhoods: 0, accepted: 0, lpSolves: 0, splits: 0 };
+  let exactStats: Plan['stats']['exact'] = null;
+  let exactBound = -Infinity;
+  let exactProven = false;
   try {
     let first = live.solve();
     if (first.status !== 'optimal') throw new Error(`plan LP ended ${first.status}; the model should always be solvable`);
@@ -260,8 +301,58 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
       live.update(start, all);
       first = live.solve();
     }
+    // Single stays and hand-overs (local search), then whole sequences (large-neighbourhood
+    // search over pairs of chargers), then single moves again from what that found. Each step
+    // keeps only improvements, so the plan is never worse than the local search alone.
     search = localSearch(problem, hints, live, start, first, { deadline, maxMoves, target });
+    if (options.lns !== false && search.result.objective > target && !search.timedOut && problem.stays.length <= LNS_MAX_STAYS) {
+      const lns = pairSearch(problem, hints, live, search.assignment, search.result, defaultLnsLimits(problem, deadline, target));
+      lnsStats = { neighbourhoods: lns.neighbourhoods, accepted: lns.accepted, lpSolves: lns.moves, splits: lns.splits };
+      if (lns.accepted > 0) {
+        construction += '+lns';
+        const again = lns.timedOut || lns.result.objective <= target
+          ? null
+          : localSearch(problem, hints, live, lns.assignment, lns.result, { deadline, maxMoves: Math.ceil(maxMoves / 2), target });
+        const best = again && again.result.objective < lns.result.objective ? again : lns;
+        search = {
+          ...search,
+          assignment: best.assignment,
+          result: best.result,
+          moves: search.moves + (again?.moves ?? 0),
+          accepted: search.accepted + (again?.accepted ?? 0),
+          iterations: search.iterations + lns.iterations + (again?.iterations ?? 0),
+          timedOut: lns.timedOut || again?.timedOut,
+        };
+        live.update(search.assignment, all);
+        search.result = live.solve();
+      }
+    }
     chosen = preferStableAndFewerMoves(problem, hints, live, search.assignment, search.result, { deadline, maxMoves, target });
+    // Full service first: a bus may stay short only if no assignment serves it. On a small depot
+    // the exact MILP either finds one that does or proves the shortfall necessary.
+    const shortNow = shortfallIn(problem, live, chosen.result);
+    if (shortNow > 1e-3 && options.exact !== false && !problem.pinned?.some((c) => c >= 0)) {
+      const binaries = exactSize(problem);
+      if (binaries <= EXACT_LIMITS.binaries && performance.now() < deadline) {
+        const ex = solveExact(problem, solver, {
+          start: chosen.assignment,
+          maxNodes: EXACT_LIMITS.nodes,
+          timeLimitMs: Math.max(1, Math.min(EXACT_LIMITS.ms, deadline - performance.now())),
+        });
+        exactStats = { status: ex.timeLimited ? 'time' : ex.status, nodes: ex.nodes, binaries: ex.binaries, ms: round(ex.ms, 1) };
+        // Stopped by the clock, its answer would depend on the machine's load: left unused.
+        if (!ex.timeLimited && Number.isFinite(ex.bound)) exactBound = ex.bound;
+        if (!ex.timeLimited && ex.assignment && ex.objective < chosen.result.objective - 1e-6 * Math.max(1, Math.abs(chosen.result.objective))) {
+          live.update(ex.assignment, all);
+          const res = live.solve();
+          if (res.status === 'optimal' && res.objective < chosen.result.objective - 1e-9 * Math.max(1, Math.abs(chosen.result.objective))) {
+            chosen = { assignment: ex.assignment, result: res, crewTrade: null, keptPrevious: chosen.keptPrevious };
+            construction += '+exact';
+          } else live.update(chosen.assignment, all);
+        }
+        if (!ex.timeLimited && ex.status === 'optimal') exactProven = true;
+      }
+    }
   } finally {
     live.dispose();
   }
@@ -279,7 +370,8 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
     power = powerFrom(problem, full, res.x);
   }
   power = power.map((row) => row.map((v) => round(v)));
-  const plan = assemblePlan(problem, solver, plug, power, lb.penalisedObjective, lb.shortfallKwh);
+  const plan = assemblePlan(problem, solver, plug, power, Math.max(lb.penalisedObjective, exactBound), lb.shortfallKwh, exactProven);
+  plan.stats.exact = exactStats;
   plan.crewTrade = chosen.crewTrade;
   plan.keptPrevious = chosen.keptPrevious;
   plan.stats.lpColumns = live.model.lp.numCols;
@@ -288,6 +380,7 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
   plan.stats.localSearchMoves = search.moves;
   plan.stats.localSearchAccepted = search.accepted;
   plan.stats.construction = construction;
+  plan.stats.lns = lnsStats;
   plan.stats.stoppedBy = stoppedBy;
   plan.stats.simplexIterations = search.iterations + lb.iterations;
   plan.solveMs = round(performance.now() - t0, 1);
@@ -322,7 +415,13 @@ function preferStableAndFewerMoves(
     const first = live.solve();
     if (first.status === 'optimal') {
       const minGain = problem.tolerance.amount / 10;
-      const search = first.objective <= limit ? { assignment: kept, result: first } : localSearch(problem, hints, live, kept, first, { ...limits, minGain });
+      let search = first.objective <= limit ? { assignment: kept, result: first } : localSearch(problem, hints, live, kept, first, { ...limits, minGain });
+      if (search.result.objective > limit && problem.stays.length <= LNS_MAX_STAYS && performance.now() < limits.deadline) {
+        // Still too dear: re-split pairs of chargers (dearest stays first), which moves only the
+        // buses of the chargers it changes, before giving up on the plan being carried out.
+        const lns = pairSearch(problem, hints, live, search.assignment, search.result, { ...defaultLnsLimits(problem, limits.deadline, limit), passes: 2 });
+        if (lns.result.objective < search.result.objective) search = { assignment: lns.assignment, result: lns.result };
+      }
       if (search.result.objective <= limit) {
         chosen = { assignment: search.assignment, result: search.result, crewTrade: null, keptPrevious: { extraCost: round(Math.max(0, search.result.objective - base), 2) } };
       }
@@ -348,13 +447,23 @@ function preferStableAndFewerMoves(
   return chosen;
 }
 
+/** kWh short in an LP solution of the live model (summed over departures). */
+function shortfallIn(problem: Problem, live: AssignedModel, result: LpResult): number {
+  let short = 0;
+  for (const stay of problem.stays) {
+    const c = live.model.shortCol[stay.id]!;
+    if (c >= 0 && result.x.length) short += result.x[c]!;
+  }
+  return short;
+}
+
 /** Does any battery go above its ceiling or draw more than its taper allows? */
 export function overfills(problem: Problem, power: Float64Array[]): boolean {
   const { eta, slotHours: dt } = problem;
   for (const bus of problem.buses) {
     let e = bus.arrivalKwh;
     for (const stay of bus.stays) {
-      for (let t = stay.a; t < stay.d; t++) {
+      for (let t = stay.arriveSlot; t < stay.departSlot; t++) {
         const p = power[bus.index]![t]!;
         if (p > 0 && bus.taperFromKwh !== null && e > bus.taperFromKwh) {
           const cap = (bus.maxKw * (bus.usableKwh - e)) / (bus.usableKwh - bus.taperFromKwh);
@@ -376,8 +485,9 @@ function assemblePlan(
   power: Float64Array[],
   lbPenalised: number,
   lbShortfall: number,
+  exactProven = false,
 ): Plan {
-  const { T, slotHours: dt, eta, zone } = problem;
+  const { slotCount: T, slotHours: dt, eta, zone } = problem;
   const charging = new Float64Array(T);
   for (const row of power) for (let t = 0; t < T; t++) charging[t] = charging[t]! + row[t]!;
   const cost = costLoad(problem.slots, charging, problem.tariff, dt);
@@ -413,7 +523,7 @@ function assemblePlan(
       }
       if (first <= last) {
         const kw = Array.from(p.subarray(first, last + 1));
-        const stay = bus.stays.find((st) => st.a <= first && first < st.d)!;
+        const stay = bus.stays.find((st) => st.arriveSlot <= first && first < st.departSlot)!;
         const startMove: Move = startIsFree(problem, stay, first) ? 'driver' : 'crew';
         const endMove: Move = endIsFree(problem, stay, last + 1) ? 'driver' : 'crew';
         if (startMove === 'crew') crewMoves++;
@@ -443,7 +553,7 @@ function assemblePlan(
     let e = bus.arrivalKwh;
     const departures: PlanBus['departures'] = [];
     for (const stay of bus.stays) {
-      for (let t = stay.a; t < stay.d; t++) e += eta * dt * power[bus.index]![t]!;
+      for (let t = stay.arriveSlot; t < stay.departSlot; t++) e += eta * dt * power[bus.index]![t]!;
       departureKwh[bus.index]!.push(e);
       departures.push({ at: isoAt(stay.departMs, zone), kwh: round(e) });
       const short = Math.max(0, stay.requiredKwh - e);
@@ -453,11 +563,21 @@ function assemblePlan(
       }
       e -= stay.runKwh;
     }
-    return { id: bus.id, departures, shortfallKwh: round(shortByBus[bus.index]!), reason: null };
+    return { id: bus.id, departures, shortfallKwh: round(shortByBus[bus.index]!), reason: null, cause: null, causeProven: null };
   });
   if (totalShort > 0) {
     const reasons = explainShortfalls(problem, solver, plug, shortByBus);
-    busOut.forEach((b, i) => (b.reason = shortByBus[i]! > 1e-4 ? (reasons[i] ?? 'charger') : null));
+    const strongest = Math.max(0, ...problem.chargers.filter((c) => c.available.some((a) => a === 1)).map((c) => c.maxKw));
+    busOut.forEach((b, i) => {
+      b.reason = shortByBus[i]! > 1e-4 ? (reasons[i] ?? 'charger') : null;
+      if (!b.reason) return;
+      // Proven: the bus's own limits (alone on the strongest charger it is still short), the
+      // exact model's optimum, or the relaxation being as short in total as this plan.
+      const own = soloShortfall(problem, i, strongest, true) > 1e-3;
+      const proven = own || exactProven || lbShortfall >= totalShort - 1e-3;
+      b.cause = describeShortfall(problem, i, b.reason, shortByBus[i]!, proven);
+      b.causeProven = proven;
+    });
   }
 
   let deliveredKwh = 0;
@@ -509,6 +629,8 @@ function assemblePlan(
       localSearchMoves: 0,
       localSearchAccepted: 0,
       construction: '',
+      lns: { neighbourhoods: 0, accepted: 0, lpSolves: 0, splits: 0 },
+      exact: null,
       stoppedBy: 'bound',
       simplexIterations: 0,
       shortfallKwh: round(totalShort),

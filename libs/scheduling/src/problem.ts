@@ -6,13 +6,13 @@ import { tariffOf, type Tariff } from './tariff.js';
 export interface Stay {
   bus: number;
   /** Position among the bus's stays. */
-  k: number;
+  indexOnBus: number;
   /** Global index among all stays (a "job" for the charger assignment). */
   id: number;
   arriveMs: number;
   departMs: number;
-  a: number;
-  d: number;
+  arriveSlot: number;
+  departSlot: number;
   departMinKwh: number;
   /** Battery energy the bus must hold at this departure: departMin, and for a run to another
    *  stay also the run's energy plus the reserve, since the reserve holds while at the depot. */
@@ -59,7 +59,7 @@ export interface Problem {
   scenario: Scenario;
   zone: string;
   slots: Slot[];
-  T: number;
+  slotCount: number;
   slotHours: number;
   eta: number;
   buses: Bus[];
@@ -137,12 +137,12 @@ export function prepareProblem(scenario: Scenario): Problem {
       const required = last ? s.departMinKwh : Math.max(s.departMinKwh, s.runKwh + b.reserveKwh);
       const stay: Stay = {
         bus: index,
-        k,
+        indexOnBus: k,
         id: stays.length,
         arriveMs,
         departMs,
-        a,
-        d: Math.max(a, d),
+        arriveSlot: a,
+        departSlot: Math.max(a, d),
         departMinKwh: s.departMinKwh,
         requiredKwh: required,
         runKwh: s.runKwh,
@@ -151,7 +151,7 @@ export function prepareProblem(scenario: Scenario): Problem {
       runsBefore += s.runKwh;
       stays.push(stay);
       busStays.push(stay);
-      for (let t = stay.a; t < stay.d; t++) {
+      for (let t = stay.arriveSlot; t < stay.departSlot; t++) {
         busSlots.push(t);
         present[t]!++;
       }
@@ -193,7 +193,7 @@ export function prepareProblem(scenario: Scenario): Problem {
     scenario,
     zone: scenario.timezone,
     slots,
-    T,
+    slotCount: T,
     slotHours,
     eta,
     buses,
@@ -215,5 +215,5 @@ export function prepareProblem(scenario: Scenario): Problem {
 export type PlugMap = Int32Array[];
 
 export function emptyPlugMap(problem: Problem): PlugMap {
-  return problem.buses.map(() => new Int32Array(problem.T).fill(-1));
+  return problem.buses.map(() => new Int32Array(problem.slotCount).fill(-1));
 }

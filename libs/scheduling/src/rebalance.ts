@@ -18,7 +18,7 @@ export function sharedChargerPower(problem: Problem, solver: Solver, assignment:
     const c = assignment.chargerOf[stay.id]!;
     if (c < 0) continue;
     onCharger[c]!.push(stay.id);
-    for (let t = stay.a; t < stay.d; t++) if (problem.chargers[c]!.available[t]) plug[stay.bus]![t] = c;
+    for (let t = stay.arriveSlot; t < stay.departSlot; t++) if (problem.chargers[c]!.available[t]) plug[stay.bus]![t] = c;
   }
   const model = buildChargeModel(problem, { mode: 'assigned', plug, tieBreak: true });
   const lp = model.lp;
@@ -31,9 +31,9 @@ export function sharedChargerPower(problem: Problem, solver: Solver, assignment:
   assignment.sequence.forEach((seq) => {
     seq.forEach((s, pos) => {
       const stay = problem.stays[s]!;
-      for (let t = stay.a; t < stay.d; t++) {
+      for (let t = stay.arriveSlot; t < stay.departSlot; t++) {
         const col = model.pCol[stay.bus]![t]!;
-        if (col >= 0) colCost[col] = colCost[col]! - (eps * pos * t) / problem.T;
+        if (col >= 0) colCost[col] = colCost[col]! - (eps * pos * t) / problem.slotCount;
       }
     });
   });
@@ -44,12 +44,12 @@ export function sharedChargerPower(problem: Problem, solver: Solver, assignment:
   const upper = Array.from(lp.rowUpper);
   problem.chargers.forEach((charger, c) => {
     if (onCharger[c]!.length < 2) return;
-    for (let t = 0; t < problem.T; t++) {
+    for (let t = 0; t < problem.slotCount; t++) {
       const idx: number[] = [];
       const val: number[] = [];
       for (const s of onCharger[c]!) {
         const stay = problem.stays[s]!;
-        if (t < stay.a || t >= stay.d || plug[stay.bus]![t] !== c) continue;
+        if (t < stay.arriveSlot || t >= stay.departSlot || plug[stay.bus]![t] !== c) continue;
         idx.push(model.pCol[stay.bus]![t]!);
         val.push(1 / Math.min(problem.buses[stay.bus]!.maxKw, charger.maxKw));
       }
@@ -80,23 +80,23 @@ export function rebalanced(problem: Problem, hints: AssignmentHints, assignment:
   const dt = problem.slotHours;
   const energy = new Float64Array(problem.stays.length);
   const centre = new Float64Array(problem.stays.length);
-  const weight = new Float64Array(problem.T);
+  const weight = new Float64Array(problem.slotCount);
   for (const stay of problem.stays) {
     let e = 0;
     let m = 0;
-    for (let t = stay.a; t < stay.d; t++) {
+    for (let t = stay.arriveSlot; t < stay.departSlot; t++) {
       e += power[stay.bus]![t]! * dt;
       m += power[stay.bus]![t]! * dt * (t + 0.5);
     }
     energy[stay.id] = e;
-    centre[stay.id] = e > 1e-9 ? m / e : (stay.a + stay.d) / 2;
+    centre[stay.id] = e > 1e-9 ? m / e : (stay.arriveSlot + stay.departSlot) / 2;
   }
-  for (const row of power) for (let t = 0; t < problem.T; t++) weight[t] = weight[t]! + row[t]!;
+  for (const row of power) for (let t = 0; t < problem.slotCount; t++) weight[t] = weight[t]! + row[t]!;
   const h: AssignmentHints = { ...hints, energy, centre, weight, power, handover: 'least-cut' };
   const out = cloneAssignment(assignment);
   out.sequence.forEach((seq, c) => {
     if (seq.length < 2 || seq.some((s) => problem.pinned && problem.pinned[s]! >= 0)) return;
-    seq.sort((x, y) => centre[x]! - centre[y]! || problem.stays[x]!.d - problem.stays[y]!.d || x - y);
+    seq.sort((x, y) => centre[x]! - centre[y]! || problem.stays[x]!.departSlot - problem.stays[y]!.departSlot || x - y);
     layoutCharger(problem, h, out, c);
   });
   return out;

@@ -278,15 +278,15 @@ function previousWindows(problem: ReturnType<typeof prepareProblem>, previous: P
     const c = chargerIndex.get(s.charger);
     if (!bus || c === undefined) continue;
     const a = Math.max(0, Math.round((Date.parse(s.start) - startMs) / slotMs));
-    const b = Math.min(problem.T, Math.round((Date.parse(s.end) - startMs) / slotMs));
+    const b = Math.min(problem.slotCount, Math.round((Date.parse(s.end) - startMs) / slotMs));
     if (b <= a) continue;
-    const stay = bus.stays.find((st) => st.a < b && a < st.d);
+    const stay = bus.stays.find((st) => st.arriveSlot < b && a < st.departSlot);
     if (!stay) continue;
     // One window per stay: the longest session of the stay from the cut-off on.
     if (chargerOf[stay.id]! >= 0 && to[stay.id]! - from[stay.id]! >= b - a) continue;
     chargerOf[stay.id] = c;
-    from[stay.id] = Math.max(a, stay.a);
-    to[stay.id] = Math.min(b, stay.d);
+    from[stay.id] = Math.max(a, stay.arriveSlot);
+    to[stay.id] = Math.min(b, stay.departSlot);
   }
   return { chargerOf, from, to };
 }

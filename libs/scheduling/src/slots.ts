@@ -25,7 +25,7 @@ function minutesOf(clockText: string): number {
 }
 
 /** The TOU period index (or -1 for off-peak) of a local weekday and minute. */
-export function periodAt(periods: Scenario['tariff']['periods'], weekday: number, minute: number): number {
+export function tariffPeriodAt(periods: Scenario['tariff']['periods'], weekday: number, minute: number): number {
   const previousDay = weekday === 1 ? 7 : weekday - 1;
   for (let i = 0; i < periods.length; i++) {
     for (const w of periods[i]!.windows) {
@@ -58,7 +58,7 @@ export function buildSlots(scenario: Scenario): Slot[] {
   for (let ms = startMs, i = 0; ms < endMs; ms += slotMs, i++) {
     const dt = DateTime.fromMillis(ms, { zone });
     const minuteOfDay = dt.hour * 60 + dt.minute;
-    const period = periodAt(scenario.tariff.periods, dt.weekday, minuteOfDay);
+    const period = tariffPeriodAt(scenario.tariff.periods, dt.weekday, minuteOfDay);
     slots.push({
       index: i,
       startMs: ms,

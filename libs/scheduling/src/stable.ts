@@ -21,18 +21,18 @@ export function keptAssignment(problem: Problem, energy: Float64Array): Assignme
     to: new Int32Array(n),
     sequence: problem.chargers.map(() => []),
   };
-  const busy = problem.chargers.map(() => new Uint8Array(problem.T));
+  const busy = problem.chargers.map(() => new Uint8Array(problem.slotCount));
   const open: number[] = [];
   for (const stay of problem.stays) {
     const c = prev.chargerOf[stay.id]!;
-    const from = Math.max(stay.a, prev.from[stay.id]!);
-    const to = Math.min(stay.d, prev.to[stay.id]!);
+    const from = Math.max(stay.arriveSlot, prev.from[stay.id]!);
+    const to = Math.min(stay.departSlot, prev.to[stay.id]!);
     if (c >= 0 && to > from && problem.chargers[c]!.available[from]) {
       out.chargerOf[stay.id] = c;
       out.from[stay.id] = from;
       out.to[stay.id] = to;
       for (let t = from; t < to; t++) busy[c]![t] = 1;
-    } else if (energy[stay.id]! > 1e-6 && stay.d > stay.a) open.push(stay.id);
+    } else if (energy[stay.id]! > 1e-6 && stay.departSlot > stay.arriveSlot) open.push(stay.id);
   }
   // Stays that need a place, those needing most first.
   open.sort((x, y) => energy[y]! - energy[x]! || x - y);
@@ -42,14 +42,14 @@ export function keptAssignment(problem: Problem, energy: Float64Array): Assignme
     for (let c = 0; c < C; c++) {
       const ch = problem.chargers[c]!;
       const kw = Math.min(ch.maxKw, problem.buses[stay.bus]!.maxKw);
-      let t = stay.a;
-      while (t < stay.d) {
+      let t = stay.arriveSlot;
+      while (t < stay.departSlot) {
         if (busy[c]![t] || !ch.available[t]) {
           t++;
           continue;
         }
         let u = t;
-        while (u < stay.d && !busy[c]![u] && ch.available[u]) u++;
+        while (u < stay.departSlot && !busy[c]![u] && ch.available[u]) u++;
         const kwh = Math.min(energy[id]!, kw * problem.slotHours * (u - t));
         if (!best || kwh > best.kwh + 1e-9) best = { c, from: t, to: u, kwh };
         t = u;

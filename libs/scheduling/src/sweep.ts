@@ -42,7 +42,7 @@ const EPS = 1e-6;
 const URGENT = 1;
 
 export function sweepAssignment(problem: Problem, input: SweepInput): Assignment {
-  const { T, slotHours: dt, eta, stays, chargers, buses } = problem;
+  const { slotCount: T, slotHours: dt, eta, stays, chargers, buses } = problem;
   const n = stays.length;
   const C = chargers.length;
   const chargerOf = new Int32Array(n).fill(-1);
@@ -53,7 +53,7 @@ export function sweepAssignment(problem: Problem, input: SweepInput): Assignment
   const energy = buses.map((b) => b.arrivalKwh);
   const done = new Uint8Array(n);
   const cabinetUse = new Float64Array(problem.cabinets.length);
-  const byArrival = stays.slice().sort((x, y) => x.a - y.a || x.id - y.id);
+  const byArrival = stays.slice().sort((x, y) => x.arriveSlot - y.arriveSlot || x.id - y.id);
   let nextArrival = 0;
   const present: number[] = [];
   const pick = input.pick ?? 'fit';
@@ -69,18 +69,18 @@ export function sweepAssignment(problem: Problem, input: SweepInput): Assignment
     const top = new Float64Array(T);
     for (const c of chargers) for (let t = 0; t < T; t++) if (c.available[t]) top[t] = Math.max(top[t]!, c.maxKw);
     for (const b of buses) for (let t = 0; t < T; t++) load[t] = load[t]! + power[b.index]![t]!;
-    for (const st of stays) for (let t = st.a; t < st.d; t++) could[t] = could[t]! + Math.min(buses[st.bus]!.maxKw, top[t]!);
+    for (const st of stays) for (let t = st.arriveSlot; t < st.departSlot; t++) could[t] = could[t]! + Math.min(buses[st.bus]!.maxKw, top[t]!);
     for (let t = 0; t < T; t++) scarce[t] = load[t]! > 1e-6 && load[t]! >= above * could[t]! ? 1 : 0;
     for (const st of stays) {
-      const row = new Float64Array(st.d - st.a + 1);
-      for (let t = st.d - 1; t >= st.a; t--) row[t - st.a] = row[t - st.a + 1]! + (scarce[t] ? power[st.bus]![t]! * dt : 0);
+      const row = new Float64Array(st.departSlot - st.arriveSlot + 1);
+      for (let t = st.departSlot - 1; t >= st.arriveSlot; t--) row[t - st.arriveSlot] = row[t - st.arriveSlot + 1]! + (scarce[t] ? power[st.bus]![t]! * dt : 0);
       if (row[0]! > 1e-9) heldAfter[st.id] = row;
     }
   }
   const held = (s: number): number => {
     const row = heldAfter[s];
     if (!row) return 0;
-    const i = currentT + 1 - stays[s]!.a;
+    const i = currentT + 1 - stays[s]!.arriveSlot;
     return i < row.length ? Math.min(remaining[s]!, row[Math.max(0, i)]!) : 0;
   };
 
@@ -95,17 +95,17 @@ export function sweepAssignment(problem: Problem, input: SweepInput): Assignment
   const strongest = Math.max(0, ...chargers.filter((c) => c.available.some((a) => a === 1)).map((c) => c.maxKw));
   // Re-planning: a stay already plugged in keeps its charger from its first slot.
   const pinnedAt: number[][] = Array.from({ length: T }, () => []);
-  if (problem.pinned) for (const s of stays) if (problem.pinned[s.id]! >= 0 && s.a < T) pinnedAt[s.a]!.push(s.id);
+  if (problem.pinned) for (const s of stays) if (problem.pinned[s.id]! >= 0 && s.arriveSlot < T) pinnedAt[s.arriveSlot]!.push(s.id);
   /** Slots to spare before the stay must draw without pause to get its energy by departure. */
   const slack = (s: number): number => {
     const stay = stays[s]!;
     const bus = buses[stay.bus]!;
     const c = chargerOf[s]!;
     const rate = Math.max(1e-6, Math.min(bus.maxKw, c >= 0 ? chargers[c]!.maxKw : strongest) * dt);
-    return stay.d - currentT - remaining[s]! / rate + 1e-9 * (input.tieBreak?.[s] ?? s);
+    return stay.departSlot - currentT - remaining[s]! / rate + 1e-9 * (input.tieBreak?.[s] ?? s);
   };
   /** Which stay draws first among those not urgent. */
-  const priority = (s: number): number => (order === 'deadline' ? stays[s]!.d + 1e-9 * (input.tieBreak?.[s] ?? s) : slack(s));
+  const priority = (s: number): number => (order === 'deadline' ? stays[s]!.departSlot + 1e-9 * (input.tieBreak?.[s] ?? s) : slack(s));
   let currentT = 0;
 
   for (let t = 0; t < T; t++) {
@@ -113,20 +113,20 @@ export function sweepAssignment(problem: Problem, input: SweepInput): Assignment
     // Stays that have ended free their chargers; the bus's runs come off its battery.
     for (let c = 0; c < C; c++) {
       const s = occupant[c]!;
-      if (s >= 0 && stays[s]!.d <= t) occupant[c] = -1;
+      if (s >= 0 && stays[s]!.departSlot <= t) occupant[c] = -1;
     }
-    while (nextArrival < byArrival.length && byArrival[nextArrival]!.a <= t) {
+    while (nextArrival < byArrival.length && byArrival[nextArrival]!.arriveSlot <= t) {
       const stay = byArrival[nextArrival++]!;
-      if (stay.k > 0) {
-        const prev = buses[stay.bus]!.stays[stay.k - 1]!;
+      if (stay.indexOnBus > 0) {
+        const prev = buses[stay.bus]!.stays[stay.indexOnBus - 1]!;
         energy[stay.bus] = energy[stay.bus]! - prev.runKwh;
       }
       present.push(stay.id);
     }
-    for (let i = present.length - 1; i >= 0; i--) if (stays[present[i]!]!.d <= t) present.splice(i, 1);
+    for (let i = present.length - 1; i >= 0; i--) if (stays[present[i]!]!.departSlot <= t) present.splice(i, 1);
     for (const s of pinnedAt[t]!) {
       const c = problem.pinned![s]!;
-      if (occupant[c]! >= 0 || stays[s]!.d <= t) continue;
+      if (occupant[c]! >= 0 || stays[s]!.departSlot <= t) continue;
       occupant[c] = s;
       chargerOf[s] = c;
       start[s] = t;
@@ -232,15 +232,15 @@ export function sweepAssignment(problem: Problem, input: SweepInput): Assignment
     const seq = assignment.sequence[c]!;
     seq.sort((x, y) => start[x]! - start[y]! || x - y);
     for (const s of seq) {
-      assignment.from[s] = stays[s]!.a;
-      assignment.to[s] = stays[s]!.d;
+      assignment.from[s] = stays[s]!.arriveSlot;
+      assignment.to[s] = stays[s]!.departSlot;
     }
     for (let i = 1; i < seq.length; i++) {
       const p = seq[i - 1]!;
       const s = seq[i]!;
       // p may run on to s's core, s may start right after p's core; where both could, split.
-      let pTo = Math.min(stays[p]!.d, start[s]!);
-      let sFrom = Math.max(stays[s]!.a, finish[p]!);
+      let pTo = Math.min(stays[p]!.departSlot, start[s]!);
+      let sFrom = Math.max(stays[s]!.arriveSlot, finish[p]!);
       if (sFrom < pTo) {
         const h = Math.ceil((sFrom + pTo) / 2);
         pTo = h;
@@ -258,7 +258,7 @@ export function sweepAssignment(problem: Problem, input: SweepInput): Assignment
  * (see sweepAssignment), longest gain first, stays already plugged in (re-planning) left alone.
  */
 function spreadStays(problem: Problem, chargerOf: Int32Array, start: Int32Array, finish: Int32Array): void {
-  const { T, stays, chargers, buses } = problem;
+  const { slotCount: T, stays, chargers, buses } = problem;
   const C = chargers.length;
   const owner = chargers.map(() => new Int32Array(T).fill(-1));
   for (const s of stays) {
@@ -273,9 +273,9 @@ function spreadStays(problem: Problem, chargerOf: Int32Array, start: Int32Array,
     for (let t = lo; t < hi; t++) if ((o[t]! >= 0 && o[t] !== s) || !av[t]) return -1;
     const stay = stays[s]!;
     let a = lo;
-    while (a > stay.a && o[a - 1]! < 0 && av[a - 1]) a--;
+    while (a > stay.arriveSlot && o[a - 1]! < 0 && av[a - 1]) a--;
     let b = hi;
-    while (b < stay.d && o[b]! < 0 && av[b]) b++;
+    while (b < stay.departSlot && o[b]! < 0 && av[b]) b++;
     return b - a;
   };
   const order = stays.filter((s) => chargerOf[s.id]! >= 0 && !(problem.pinned && problem.pinned[s.id]! >= 0)).map((s) => s.id);

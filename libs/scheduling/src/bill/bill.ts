@@ -1,6 +1,6 @@
 import { DateTime } from 'luxon';
 import type { RatePlanDefinition } from '@nightyard/contracts';
-import { periodAt, seasonOf } from './rate-calendar.js';
+import { ratePlanPeriodAt, seasonOf } from './rate-calendar.js';
 
 /** One interval of metered or planned site demand. */
 export interface IntervalDemand {
@@ -202,7 +202,7 @@ export function computeBill(def: RatePlanDefinition, intervals: readonly Interva
  * period is billed several ways over the same ~3,000 intervals (projected, to date, with the
  * plans, with the baselines), and the zone arithmetic is most of a bill's work.
  */
-const classified = new WeakMap<RatePlanDefinition, Map<string, Map<number, { p: ReturnType<typeof periodAt>; season: ReturnType<typeof seasonOf> }>>>();
+const classified = new WeakMap<RatePlanDefinition, Map<string, Map<number, { p: ReturnType<typeof ratePlanPeriodAt>; season: ReturnType<typeof seasonOf> }>>>();
 const MAX_REMEMBERED = 20_000;
 
 function classifier(def: RatePlanDefinition, zone: string) {
@@ -215,7 +215,7 @@ function classifier(def: RatePlanDefinition, zone: string) {
     let hit = memo.get(startMs);
     if (!hit) {
       const local = DateTime.fromMillis(startMs, { zone });
-      hit = { p: periodAt(def, local), season: seasonOf(def, local.month) };
+      hit = { p: ratePlanPeriodAt(def, local), season: seasonOf(def, local.month) };
       if (memo.size >= MAX_REMEMBERED) memo.clear();
       memo.set(startMs, hit);
     }

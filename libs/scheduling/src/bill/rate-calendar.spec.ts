@@ -1,7 +1,7 @@
 import { DateTime } from 'luxon';
 import { describe, expect, it } from 'vitest';
 import { ratePlanDefinitionSchema } from '@nightyard/contracts';
-import { daySlots, periodAt } from './rate-calendar';
+import { daySlots, ratePlanPeriodAt } from './rate-calendar';
 import { previewDay } from './rate-preview';
 
 const plan = ratePlanDefinitionSchema.parse({
@@ -20,9 +20,9 @@ describe('tariff calendar', () => {
   it('a window past midnight belongs to the day it starts on', () => {
     // Friday 23:00 to Saturday 05:00 is super-off-peak; Saturday 04:00 came from Friday's window.
     const sat = DateTime.fromISO('2026-12-05T04:00', { zone: 'America/Chicago' });
-    expect(periodAt(plan, sat).period).toBe('super-off-peak');
+    expect(ratePlanPeriodAt(plan, sat).period).toBe('super-off-peak');
     const sunEarly = DateTime.fromISO('2026-12-06T02:00', { zone: 'America/Chicago' });
-    expect(periodAt(plan, sunEarly).period).toBe('super-off-peak');
+    expect(ratePlanPeriodAt(plan, sunEarly).period).toBe('super-off-peak');
   });
 
   it('a holiday uses holiday windows only (none here: off-peak all day, also past midnight)', () => {

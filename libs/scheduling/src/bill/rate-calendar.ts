@@ -29,7 +29,7 @@ export function seasonOf(def: RatePlanDefinition, month: number): Season {
  * window of the previous day that runs past midnight applies only where no window of the day
  * itself does.
  */
-export function periodAt(def: RatePlanDefinition, local: DateTime): Omit<PricedSlot, 'start'> {
+export function ratePlanPeriodAt(def: RatePlanDefinition, local: DateTime): Omit<PricedSlot, 'start'> {
   const minute = local.hour * 60 + local.minute;
   const candidates: [DateTime, number][] = [
     [local.startOf('day'), minute],
@@ -57,7 +57,7 @@ export function pricedSlots(def: RatePlanDefinition, start: DateTime, end: DateT
   const out: PricedSlot[] = [];
   // Step in absolute time so a 23- or 25-hour day gets 92 or 100 slots.
   for (let t = start; t < end; t = t.plus({ minutes: SLOT_MINUTES })) {
-    out.push({ start: t, ...periodAt(def, t) });
+    out.push({ start: t, ...ratePlanPeriodAt(def, t) });
   }
   return out;
 }

@@ -118,7 +118,8 @@ export function busRows(plan: Pick<PlanDetail, 'result' | 'timezone' | 'busCapac
         shortfallKwh: b.shortfallKwh,
         short,
         reason: short ? reasonText(b.reason) : '',
-        reasonDetail: short ? reasonDetail(b.reason) : '',
+        // The engine's own words where it gives them: times, what binds, whether it is proven.
+        reasonDetail: short ? (b.cause ? `${b.cause.charAt(0).toUpperCase()}${b.cause.slice(1)}.` : reasonDetail(b.reason)) : '',
       };
     })
     .sort((a, b) => Number(b.short) - Number(a.short) || (a.short ? b.shortfallKwh - a.shortfallKwh : 0) || naturalCompare(a.bus, b.bus));
