@@ -36,9 +36,14 @@ test('the published plan downloads as OCPP charging profiles', async ({ page }) 
   await page.goto(`/plans?date=${district.publishedNights[0]}`);
   await expect(page.getByText(/Published/).first()).toBeVisible();
   const download = page.waitForEvent('download');
-  await page.getByRole('button', { name: /OCPP 1\.6/ }).first().click();
+  await page
+    .getByRole('button', { name: /OCPP 1\.6/ })
+    .first()
+    .click();
   const file = await download;
-  const body = JSON.parse(await (await file.createReadStream()).toArray().then((c) => Buffer.concat(c).toString('utf8')));
+  const body = JSON.parse(
+    await (await file.createReadStream()).toArray().then((c) => Buffer.concat(c).toString('utf8')),
+  );
   expect(body).toHaveLength(10);
   expect(body[0].payload.csChargingProfiles.chargingSchedule.chargingRateUnit).toBe('W');
   // Bound to Tuesday's night: its id, and valid now (the night in force), not before or after it.

@@ -35,7 +35,7 @@ const amount = (text: string | null) => Number((text ?? '').replace(/[^0-9.-]/g,
 
 test('finance opens the month, sees the savings, exports the nights and reads a night per bus', async ({ page }) => {
   test.setTimeout(120_000);
-  await signInAs(page, district.emails.finance)
+  await signInAs(page, district.emails.finance);
 
   await test.step('the billing period at a glance', async () => {
     await expect(page).toHaveURL(/\/costs$/);
@@ -52,8 +52,12 @@ test('finance opens the month, sees the savings, exports the nights and reads a 
     const source = emissions.locator('p').filter({ hasText: /^Source:/ });
     await expect(source).toContainText(/Diesel avoided = miles \/ \d+ mpg/);
     await expect(source).toContainText('US EPA');
-    await expect(page.getByRole('img', { name: /charging energy cost of each night, planned and under its baseline/ })).toBeVisible();
-    await expect(page.getByRole('table', { name: /^Projected bill/ }).getByRole('row', { name: /^Total/ })).toBeVisible();
+    await expect(
+      page.getByRole('img', { name: /charging energy cost of each night, planned and under its baseline/ }),
+    ).toBeVisible();
+    await expect(
+      page.getByRole('table', { name: /^Projected bill/ }).getByRole('row', { name: /^Total/ }),
+    ).toBeVisible();
     await expectAccessible(page);
   });
 
@@ -64,14 +68,19 @@ test('finance opens the month, sees the savings, exports the nights and reads a 
     await page.getByRole('button', { name: 'Export CSV of the nights', exact: true }).click();
     const download = await downloading;
     expect(download.suggestedFilename()).toMatch(/^costs-nights-\d{4}-\d{2}\.csv$/);
-    const lines = fs.readFileSync(await download.path(), 'utf8').trimEnd().split('\r\n');
+    const lines = fs
+      .readFileSync(await download.path(), 'utf8')
+      .trimEnd()
+      .split('\r\n');
     expect(lines[0]).toBe(
       'Night,Plan version,"Charging energy, planned (USD)",Baseline,"Charging energy, baseline (USD)",Energy saving (USD),' +
         'Projected site energy cost (USD),Metered site energy cost (USD),Metered minus projected (USD),Projected peak (kW),' +
         'Baseline peak (kW),Metered peak (kW),Metered share of the night (%)',
     );
     expect(lines.length).toBeGreaterThan(1);
-    expect(lines[1]).toMatch(/^\d{4}-\d{2}-\d{2},\d+,-?\d+(\.\d+)?,(Charge on arrival|Timer),-?\d+(\.\d+)?,-?\d+(\.\d+)?,/);
+    expect(lines[1]).toMatch(
+      /^\d{4}-\d{2}-\d{2},\d+,-?\d+(\.\d+)?,(Charge on arrival|Timer),-?\d+(\.\d+)?,-?\d+(\.\d+)?,/,
+    );
   });
 
   await test.step('a meter file for another billing period is refused and nothing changes', async () => {
@@ -79,9 +88,13 @@ test('finance opens the month, sees the savings, exports the nights and reads a 
     const toDate = await cardValue(page, 'Month to date').textContent();
     const csv = fs.readFileSync(FIXTURE, 'utf8').replaceAll(FIXTURE_DAY, EARLIER_DAY);
     await page.getByLabel('Meter data file (Green Button XML or CSV)').setInputFiles({
-      name: 'green-button-earlier.csv', mimeType: 'text/csv', buffer: Buffer.from(csv),
+      name: 'green-button-earlier.csv',
+      mimeType: 'text/csv',
+      buffer: Buffer.from(csv),
     });
-    await expect(page.getByText(/green-button-earlier\.csv was not imported\. \d+ readings lie outside the billing period/)).toBeVisible();
+    await expect(
+      page.getByText(/green-button-earlier\.csv was not imported\. \d+ readings lie outside the billing period/),
+    ).toBeVisible();
     await expect(page.getByText(/Nothing was imported\.$/)).toBeVisible();
     await expect(page.getByText(/imported: \d+ intervals?/)).toHaveCount(0);
     await expect(cardValue(page, 'Projected bill for the period')).toHaveText(projected ?? '');
@@ -91,7 +104,9 @@ test('finance opens the month, sees the savings, exports the nights and reads a 
 
   await test.step('the fixture for this billing period is imported with its gaps and duplicates reported', async () => {
     await page.getByLabel('Meter data file (Green Button XML or CSV)').setInputFiles(FIXTURE);
-    await expect(page.getByText(/green-button-evening\.csv imported: 8 intervals of 15 minutes \(Green Button CSV\)/)).toBeVisible();
+    await expect(
+      page.getByText(/green-button-evening\.csv imported: 8 intervals of 15 minutes \(Green Button CSV\)/),
+    ).toBeVisible();
     await expect(page.getByText('No duplicate readings.')).toBeVisible();
     await expect(page.getByText('No gaps in the readings.')).toBeVisible();
     await expect(page.getByText(/Peaks so far in the billing period now: facility \d/)).toBeVisible();
@@ -108,7 +123,10 @@ test('finance opens the month, sees the savings, exports the nights and reads a 
     await expect(page.getByRole('list', { name: 'The night at a glance' }).getByText('Cost per mile')).toBeVisible();
     const downloading = page.waitForEvent('download');
     await page.getByRole('button', { name: 'Export CSV of the cost per bus', exact: true }).click();
-    const lines = fs.readFileSync(await (await downloading).path(), 'utf8').trimEnd().split('\r\n');
+    const lines = fs
+      .readFileSync(await (await downloading).path(), 'utf8')
+      .trimEnd()
+      .split('\r\n');
     expect(lines[0]).toBe('Bus,Charging (kWh),Cost (USD),Miles next service day,Cost per mile (USD)');
     expect(lines.length).toBeGreaterThan(1);
     await expectAccessible(page);
@@ -122,7 +140,9 @@ test('a supervisor reads the costs without the meter data upload', async ({ page
   await page.getByRole('navigation', { name: 'Sections' }).getByRole('link', { name: 'Costs' }).click();
   await expect(page.getByRole('heading', { level: 1, name: 'Costs' })).toBeVisible();
   await expect(cardValue(page, 'Savings against the baselines')).toHaveText(/\$[\d,]+\.\d\d/);
-  await expect(page.getByText("You can read the costs. Finance and administrators import the utility's meter data.")).toBeVisible();
+  await expect(
+    page.getByText("You can read the costs. Finance and administrators import the utility's meter data."),
+  ).toBeVisible();
   await expect(page.getByLabel('Meter data file (Green Button XML or CSV)')).toHaveCount(0);
   await expect(page.getByRole('heading', { name: 'Import meter data' })).toHaveCount(0);
   await expectAccessible(page);

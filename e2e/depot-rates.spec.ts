@@ -19,7 +19,9 @@ function hourRow(page: Page, hour: string) {
 
 async function previewSummerWeekday(page: Page): Promise<void> {
   await page.getByLabel('Day to preview').fill('2027-07-14');
-  await expect(page.getByRole('table', { name: /(July 14, 2027|14 July 2027): a weekday in the season "Jun-Sep"/ })).toBeVisible();
+  await expect(
+    page.getByRole('table', { name: /(July 14, 2027|14 July 2027): a weekday in the season "Jun-Sep"/ }),
+  ).toBeVisible();
   await expect(hourRow(page, '15:00–16:00')).toContainText('off-peak');
   await expect(hourRow(page, '15:00–16:00')).toContainText('0.0912');
   for (const hour of ['16:00–17:00', '20:00–21:00']) {
@@ -86,7 +88,10 @@ test('facilities adds a charger to a cabinet and imports a URDB rate; finance re
     // Tiered energy, a demand ratchet and a minimum bill, entered through labelled controls.
     await page.getByRole('button', { name: 'Add energy block to season 1' }).click();
     await page.getByRole('group', { name: 'Season 1, energy block 1' }).getByLabel('Block 1 ends at').fill('20000');
-    await page.getByRole('group', { name: 'Season 1, energy block 2' }).getByLabel('Block 2 price change').fill('-0.01');
+    await page
+      .getByRole('group', { name: 'Season 1, energy block 2' })
+      .getByLabel('Block 2 price change')
+      .fill('-0.01');
     await page.getByLabel('Ratchet percentage').fill('80');
     await page.getByRole('group', { name: 'Minimum bill' }).getByLabel('Minimum bill', { exact: true }).fill('250');
     await expectAccessible(page);

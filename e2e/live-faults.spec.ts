@@ -1,5 +1,15 @@
 import { expect, test, type Browser, type Page } from '@playwright/test';
-import { AT, chargerReports, clearCharger, districtAt, expectAccessible, faultCharger, pageAtApiTime, signInAs, type District } from './support';
+import {
+  AT,
+  chargerReports,
+  clearCharger,
+  districtAt,
+  expectAccessible,
+  faultCharger,
+  pageAtApiTime,
+  signInAs,
+  type District,
+} from './support';
 
 // Live state is pushed: a charger fault reported by the simulator over OCPP reaches Tonight, Yard
 // and Depot while they are open (no reload, no waiting for a poll), stays while the charger says
@@ -21,7 +31,9 @@ async function openAs(browser: Browser, email: string, path: string): Promise<Pa
 
 const fault = (page: Page, label: string) => page.locator(`[data-fault="${label}"]`);
 
-test('a fault shows on Tonight, Yard and Depot within 5 s, stays while the charger says so, and goes when cleared', async ({ browser }) => {
+test('a fault shows on Tonight, Yard and Depot within 5 s, stays while the charger says so, and goes when cleared', async ({
+  browser,
+}) => {
   test.setTimeout(120_000);
   const label = 'C3';
   const tonight = await openAs(browser, district.emails.supervisor, '/tonight');
@@ -39,8 +51,13 @@ test('a fault shows on Tonight, Yard and Depot within 5 s, stays while the charg
   await expect(fault(depot, label)).toBeVisible({ timeout: 5000 });
   await expect(fault(yard, label)).toBeVisible({ timeout: 5000 });
   // The way to the re-plan: a button in Yard, a link to it elsewhere (for a supervisor).
-  await expect(fault(yard, label).getByRole('button', { name: `Report charger ${label} out of service` })).toBeVisible();
-  await expect(fault(tonight, label).getByRole('link', { name: `Re-plan without charger ${label}` })).toHaveAttribute('href', `/yard?fault=${label}`);
+  await expect(
+    fault(yard, label).getByRole('button', { name: `Report charger ${label} out of service` }),
+  ).toBeVisible();
+  await expect(fault(tonight, label).getByRole('link', { name: `Re-plan without charger ${label}` })).toHaveAttribute(
+    'href',
+    `/yard?fault=${label}`,
+  );
   await expect(fault(depot, label).getByRole('link', { name: `Re-plan without charger ${label}` })).toBeVisible();
   await expect(tonight.locator(`.charger-list li[data-charger="${label}"]`)).toContainText('Faulted');
   await expect(yard.locator(`ny-charger-card[data-charger="${label}"] .live`)).toContainText('Faulted');
@@ -57,7 +74,9 @@ test('a fault shows on Tonight, Yard and Depot within 5 s, stays while the charg
   for (const page of [tonight, depot, yard]) await page.context().close();
 });
 
-test("the re-plan offered from Tonight's fault notice publishes a revision that Tonight shows without a reload", async ({ browser }) => {
+test("the re-plan offered from Tonight's fault notice publishes a revision that Tonight shows without a reload", async ({
+  browser,
+}) => {
   test.setTimeout(90_000);
   const label = 'C4';
   const tonight = await openAs(browser, district.emails.supervisor, '/tonight');
@@ -68,7 +87,9 @@ test("the re-plan offered from Tonight's fault notice publishes a revision that 
   await expect(yard.getByRole('heading', { level: 2, name: "Tonight's plan" })).toBeVisible();
 
   await faultCharger(label);
-  await fault(yard, label).getByRole('link', { name: `Re-plan without charger ${label}` }).click();
+  await fault(yard, label)
+    .getByRole('link', { name: `Re-plan without charger ${label}` })
+    .click();
   await expect(yard).toHaveURL(new RegExp(`/yard\\?fault=${label}$`));
   await expect(fault(yard, label)).toContainText("Acknowledge the shift's cautions below");
   await yard.getByRole('button', { name: 'I have read the cautions: start my shift' }).click();

@@ -1,11 +1,22 @@
 import { expect, test } from '@playwright/test';
-import { AT, DEMO_PASSWORD, apiNow, districtAt, expectAccessible, latestMailTo, pageAtApiTime, signIn } from './support';
+import {
+  AT,
+  DEMO_PASSWORD,
+  apiNow,
+  districtAt,
+  expectAccessible,
+  latestMailTo,
+  pageAtApiTime,
+  signIn,
+} from './support';
 
 const API = `http://127.0.0.1:${Number(process.env.E2E_PORT ?? 3100)}`;
 
 async function apiToken(email: string): Promise<string> {
   const res = await fetch(`${API}/api/auth/login`, {
-    method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ email, password: DEMO_PASSWORD }),
+    method: 'POST',
+    headers: { 'content-type': 'application/json' },
+    body: JSON.stringify({ email, password: DEMO_PASSWORD }),
   });
   expect(res.status).toBe(200);
   return ((await res.json()) as { accessToken: string }).accessToken;
@@ -27,9 +38,13 @@ test('a yard user follows the link of a revised-plan e-mail and lands on the Yar
     plan: { result: { sessions: { charger: string; end: string; kw: number[] }[] } };
   };
   const now = (await apiNow()).getTime();
-  const charger = plan.result.sessions.find((s) => Date.parse(s.end) > now + 20 * 60_000 && s.kw.some((k) => k > 0))!.charger;
+  const charger = plan.result.sessions.find(
+    (s) => Date.parse(s.end) > now + 20 * 60_000 && s.kw.some((k) => k > 0),
+  )!.charger;
   const report = await fetch(`${API}/api/depots/${district.depotId}/tonight/reports`, {
-    method: 'POST', headers: auth, body: JSON.stringify({ planId: tonight.plan.id, kind: 'charger_out', charger, reason: 'Latch broken (e2e)' }),
+    method: 'POST',
+    headers: auth,
+    body: JSON.stringify({ planId: tonight.plan.id, kind: 'charger_out', charger, reason: 'Latch broken (e2e)' }),
   });
   expect(report.status).toBe(201);
 

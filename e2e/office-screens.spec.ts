@@ -45,7 +45,9 @@ test('the plan review reads at a desk and on a phone', async ({ page }) => {
   const labels = await ticks.allTextContents();
   expect(labels.length).toBeGreaterThan(3);
   for (const l of labels) expect(l.trim()).toMatch(/^\d\d:00$/);
-  const boxes = await ticks.evaluateAll((els) => els.map((e) => e.getBoundingClientRect()).map((r) => [r.left, r.right]));
+  const boxes = await ticks.evaluateAll((els) =>
+    els.map((e) => e.getBoundingClientRect()).map((r) => [r.left, r.right]),
+  );
   for (let i = 1; i < boxes.length; i++) expect(boxes[i]![0]).toBeGreaterThan(boxes[i - 1]![1]);
 
   // The tables beside the charts are scrollable regions a keyboard can reach.
@@ -65,7 +67,9 @@ test('the plan review reads at a desk and on a phone', async ({ page }) => {
   await expect(cards).toBeVisible();
   await expect(cards.getByRole('listitem').first()).toContainText('Departs (SOC)');
   await expect(cards.getByRole('listitem').first()).toContainText('Short kWh');
-  const overflow = await page.evaluate(() => document.documentElement.scrollWidth - document.documentElement.clientWidth);
+  const overflow = await page.evaluate(
+    () => document.documentElement.scrollWidth - document.documentElement.clientWidth,
+  );
   expect(overflow).toBeLessThanOrEqual(0);
   await expectAccessible(page);
 });
@@ -141,7 +145,10 @@ test('the rate plan breadcrumb wraps on a phone', async ({ page }) => {
     () => page.goto('/rates/new'),
     async () => {
       await page.goto('/rates');
-      await page.getByRole('link', { name: /Tallgrass Power & Light/ }).first().click();
+      await page
+        .getByRole('link', { name: /Tallgrass Power & Light/ })
+        .first()
+        .click();
     },
   ]) {
     await open();

@@ -54,7 +54,11 @@ test('a supervisor uploads the runs, generates the night, reviews the short buse
 
   // A bad file: every problem is named at once, line and column, format errors and unknown buses
   // together, and nothing is saved.
-  await uploadCsv(page, 'bad-runs.csv', `${COLUMNS}\n999,14:10,16:40,30,,40\n201,14:05,16:30,30,,120\n202,14:10,25:00,30,,40\n`);
+  await uploadCsv(
+    page,
+    'bad-runs.csv',
+    `${COLUMNS}\n999,14:10,16:40,30,,40\n201,14:05,16:30,30,,120\n202,14:10,25:00,30,,40\n`,
+  );
   const lines = page.getByRole('list', { name: 'Lines to fix' });
   await expect(page.getByText('bad-runs.csv: 3 lines need fixing; nothing was saved')).toBeVisible();
   await expect(lines.getByRole('listitem')).toHaveText([
@@ -132,7 +136,9 @@ test('a supervisor uploads the runs, generates the night, reviews the short buse
   await expect(page.getByRole('heading', { level: 2, name: /^Version 1 Published/ })).toBeVisible();
 });
 
-test('just after midnight the supervisor plans the night under way: it starts now and the review says so', async ({ page }) => {
+test('just after midnight the supervisor plans the night under way: it starts now and the review says so', async ({
+  page,
+}) => {
   test.setTimeout(120_000);
   // Wednesday 00:02: Tuesday's night is under way, published before it began and followed by the yard since.
   const district = await districtAt(AT.wednesdayAfterMidnight);

@@ -18,7 +18,9 @@ test('an expired session: sign in again and the unsaved input is still there', a
   // Fifteen days later on the API's clock: the access token and the refresh cookie have both run out.
   const later = new Date(Date.parse(AT.weekdayAfternoon) + 15 * 86_400_000).toISOString();
   const moved = await fetch(`${API}/api/testing/clock`, {
-    method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ at: later }),
+    method: 'POST',
+    headers: { 'content-type': 'application/json' },
+    body: JSON.stringify({ at: later }),
   });
   expect(moved.ok).toBe(true);
   await page.getByRole('button', { name: 'Save site' }).click();

@@ -1,6 +1,15 @@
 import { randomUUID } from 'node:crypto';
 import { expect, test } from '@playwright/test';
-import { AT, districtAt, expectAccessible, latestMailTo, pageAtApiTime, signIn, signInAs, type District } from './support';
+import {
+  AT,
+  districtAt,
+  expectAccessible,
+  latestMailTo,
+  pageAtApiTime,
+  signIn,
+  signInAs,
+  type District,
+} from './support';
 
 // A weekday afternoon at a demo district of this file's own.
 let district: District;

@@ -38,7 +38,11 @@ export interface District {
 }
 
 async function post(url: string, body: unknown): Promise<Response> {
-  const res = await fetch(url, { method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify(body) });
+  const res = await fetch(url, {
+    method: 'POST',
+    headers: { 'content-type': 'application/json' },
+    body: JSON.stringify(body),
+  });
   if (!res.ok) throw new Error(`${url} answered ${res.status}: ${await res.text()}`);
   return res;
 }
@@ -96,11 +100,14 @@ export async function expectAccessible(page: Page): Promise<void> {
 export async function latestMailTo(address: string): Promise<{ subject: string; text: string }> {
   let found: { subject: string; text: string } | undefined;
   await expect
-    .poll(async () => {
-      const res = await fetch(`${FAKE_MAIL_URL}/messages?to=${encodeURIComponent(address)}`);
-      found = ((await res.json()) as { messages: { subject: string; text: string }[] }).messages[0];
-      return found !== undefined;
-    }, { timeout: 10_000 })
+    .poll(
+      async () => {
+        const res = await fetch(`${FAKE_MAIL_URL}/messages?to=${encodeURIComponent(address)}`);
+        found = ((await res.json()) as { messages: { subject: string; text: string }[] }).messages[0];
+        return found !== undefined;
+      },
+      { timeout: 10_000 },
+    )
     .toBe(true);
   return found!;
 }

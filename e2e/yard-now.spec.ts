@@ -11,13 +11,19 @@ test.use({ viewport: { width: 390, height: 844 } });
 const API = `http://127.0.0.1:${Number(process.env.E2E_PORT ?? 3100)}`;
 
 async function apiClockAt(at: string): Promise<void> {
-  const res = await fetch(`${API}/api/testing/clock`, { method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ at }) });
+  const res = await fetch(`${API}/api/testing/clock`, {
+    method: 'POST',
+    headers: { 'content-type': 'application/json' },
+    body: JSON.stringify({ at }),
+  });
   expect(res.ok, `the API's clock at ${at}`).toBe(true);
 }
 
 const card = (page: Page, charger: string) => page.locator(`ny-charger-card[data-charger="${charger}"]`);
 
-test('the yard card shows the step due now, overdue steps apart, the next hour, and an unplug-now step after a charger is reported out', async ({ page }) => {
+test('the yard card shows the step due now, overdue steps apart, the next hour, and an unplug-now step after a charger is reported out', async ({
+  page,
+}) => {
   // Two re-plans of the demo district and two accessibility checks of a long page.
   test.setTimeout(120_000);
   const district = await districtAt(AT.wednesdayAfterMidnight);
@@ -68,7 +74,9 @@ test('the yard card shows the step due now, overdue steps apart, the next hour, 
   const missedKey = (await missed.getAttribute('data-step'))!;
   const bus = missedKey.split('|')[1]!;
   await missed.getByRole('button', { name: /^Did not happen/ }).click();
-  await expect(missed.getByText(`Bus ${bus} is taken as not plugged in, and the rest of the night is re-planned.`)).toBeVisible();
+  await expect(
+    missed.getByText(`Bus ${bus} is taken as not plugged in, and the rest of the night is re-planned.`),
+  ).toBeVisible();
   await missed.getByRole('button', { name: 'Yes, it did not happen' }).click();
   await expect(page.locator('.notice')).toContainText(/version 2/, { timeout: 20_000 });
   await expect(page.getByRole('region', { name: 'Plan status' })).toContainText('Plan version 2 (revised)');
@@ -84,7 +92,8 @@ test('the yard card shows the step due now, overdue steps apart, the next hour, 
       bus: b.getAttribute('data-session')!,
       start: Date.parse(b.getAttribute('data-start')!),
       end: Date.parse(b.getAttribute('data-end')!),
-    })));
+    })),
+  );
   const on = spans.find((s) => s.start < now && s.end > now + 5 * 60_000);
   expect(on, 'a bus on a charger now').toBeDefined();
   await page.getByRole('button', { name: 'Report a problem', exact: true }).click();
@@ -101,15 +110,23 @@ test('the yard card shows the step due now, overdue steps apart, the next hour, 
   // The card: out of service, and the bus on it is to be unplugged now; nothing else after now.
   const out = card(page, on!.charger);
   const reportedAt = (await apiNow()).getTime();
-  await expect(out).toContainText('Out of service: Cable cut (e2e). Unplug the bus on it (below); nothing else is planned on it.');
+  await expect(out).toContainText(
+    'Out of service: Cable cut (e2e). Unplug the bus on it (below); nothing else is planned on it.',
+  );
   const step = out.getByRole('region', { name: `Step due now or next on charger ${on!.charger}` });
   await expect(step.locator('.when')).toContainText('Due now');
   await expect(step.locator('.reason')).toHaveText(`Charger ${on!.charger} out of service (Cable cut (e2e))`);
   const sentence = (await step.locator('.sentence').textContent())!.trim();
-  expect(sentence).toMatch(new RegExp(`^Unplug bus ${on!.bus} from charger ${on!.charger} now \\(out of service\\), then (move it to charger \\S+ for \\d\\d:\\d\\d|wait|leave it unplugged)`));
+  expect(sentence).toMatch(
+    new RegExp(
+      `^Unplug bus ${on!.bus} from charger ${on!.charger} now \\(out of service\\), then (move it to charger \\S+ for \\d\\d:\\d\\d|wait|leave it unplugged)`,
+    ),
+  );
   await expect(step.getByText(/High voltage: trained and authorised staff only/)).toBeVisible();
   await expect(out.locator('li[data-step^="connect|"][data-state="upcoming"]')).toHaveCount(0);
-  const ends = await out.locator('.bar[data-end]').evaluateAll((bars) => bars.map((b) => Date.parse(b.getAttribute('data-end')!)));
+  const ends = await out
+    .locator('.bar[data-end]')
+    .evaluateAll((bars) => bars.map((b) => Date.parse(b.getAttribute('data-end')!)));
   for (const end of ends) expect(end).toBeLessThanOrEqual(reportedAt);
 
   // The next hour and the e-mail say the same words.

@@ -26,7 +26,9 @@ async function chargerWithLaterSession(page: Page): Promise<{ charger: string; b
 
 const card = (page: Page, charger: string): Locator => page.locator(`ny-charger-card[data-charger="${charger}"]`);
 
-test('a yard user sees the next step, confirms it, reports a charger out of service and sees the revised timeline', async ({ page }) => {
+test('a yard user sees the next step, confirms it, reports a charger out of service and sees the revised timeline', async ({
+  page,
+}) => {
   // A re-plan of the demo district and two accessibility checks of a long page (the next hour, overdue lists).
   test.setTimeout(90_000);
   // Wednesday 00:02: Tuesday's night is under way, with plug-ins still to come until dawn.
@@ -117,7 +119,9 @@ test('a yard user sees the next step, confirms it, reports a charger out of serv
   await expectAccessible(page);
 });
 
-test('a print of the run sheets on a Friday night shows only the sheets, with the cautions and an initials column', async ({ page }) => {
+test('a print of the run sheets on a Friday night shows only the sheets, with the cautions and an initials column', async ({
+  page,
+}) => {
   const district = await districtAt(AT.fridayNight);
   await pageAtApiTime(page);
   await signInAs(page, district.emails.yard);
@@ -129,7 +133,9 @@ test('a print of the run sheets on a Friday night shows only the sheets, with th
   await expect(sheets).toBeVisible();
   await expect(sheets.getByRole('heading', { name: /^Run sheet: charger / }).first()).toBeVisible();
   await expect(sheets.getByRole('columnheader', { name: 'Initials' }).first()).toBeVisible();
-  await expect(sheets.getByText('Only trained and authorised staff connect or disconnect chargers.').first()).toBeVisible();
+  await expect(
+    sheets.getByText('Only trained and authorised staff connect or disconnect chargers.').first(),
+  ).toBeVisible();
   await expect(page.getByRole('heading', { level: 1, name: 'Yard' })).toBeHidden();
 });
 

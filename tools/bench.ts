@@ -47,7 +47,8 @@ function toJsLp(lp: Lp) {
   for (let i = 0; i < lp.numRows; i++) {
     const lo = lp.rowLower[i]!;
     const hi = lp.rowUpper[i]!;
-    constraints[`r${i}`] = lo === hi ? { equal: lo } : lo === -Infinity ? { max: hi } : hi === Infinity ? { min: lo } : { min: lo, max: hi };
+    constraints[`r${i}`] =
+      lo === hi ? { equal: lo } : lo === -Infinity ? { max: hi } : hi === Infinity ? { min: lo } : { min: lo, max: hi };
     for (let k = lp.starts[i]!; k < lp.starts[i + 1]!; k++) variables[`x${lp.indices[k]}`]![`r${i}`] = lp.values[k]!;
   }
   return { optimize: 'cost', opType: 'min', constraints, variables };
@@ -78,7 +79,20 @@ const fingerprint = (p: Plan) => JSON.stringify([p.sessions, p.cost]);
 async function main() {
   const solver = await loadSolver();
   console.log('Nightyard scheduling engine benchmark (96 slots, chargers = buses / 2, seeded)');
-  const head = ['buses', 'chargers', 'time ms', 'cost $', 'bound $', 'gap %', 'savings %', 'peak cut %', 'plug-ins', 'LS moves', 'stopped', 'same x3'];
+  const head = [
+    'buses',
+    'chargers',
+    'time ms',
+    'cost $',
+    'bound $',
+    'gap %',
+    'savings %',
+    'peak cut %',
+    'plug-ins',
+    'LS moves',
+    'stopped',
+    'same x3',
+  ];
   console.log(head.map((h, i) => pad(h, i < 2 ? 8 : 11)).join('') + '  construction');
   const gaps: number[] = [];
   for (const n of SIZES) {
@@ -108,7 +122,9 @@ async function main() {
         pad(p.stats.localSearchMoves, 11),
         pad(p.stats.stoppedBy, 11),
         pad(prints.size === 1 ? 'yes' : 'NO', 11),
-      ].join('') + `  ${p.stats.construction}` + (p.status === 'short' ? '  (short!)' : ''),
+      ].join('') +
+        `  ${p.stats.construction}` +
+        (p.status === 'short' ? '  (short!)' : ''),
     );
   }
   console.log(`median gap: ${(median(gaps) * 100).toFixed(3)} %`);
@@ -126,7 +142,9 @@ async function main() {
         ms.push(performance.now() - t0);
         g.push(p.gap);
       }
-      console.log(`${pad(n, 8)}  gap ${(median(g) * 100).toFixed(3)} / ${(Math.max(...g) * 100).toFixed(3)}   time ${median(ms).toFixed(0)} / ${Math.max(...ms).toFixed(0)}`);
+      console.log(
+        `${pad(n, 8)}  gap ${(median(g) * 100).toFixed(3)} / ${(Math.max(...g) * 100).toFixed(3)}   time ${median(ms).toFixed(0)} / ${Math.max(...ms).toFixed(0)}`,
+      );
     }
   }
 
@@ -143,7 +161,14 @@ async function main() {
     centre[s.id] = (s.arriveSlot + s.departSlot) / 2;
   }
   for (const row of lb.power) for (let t = 0; t < problem.slotCount; t++) weight[t] = weight[t]! + row[t]!;
-  const assignment = initialAssignment(problem, { energy, weight, power: lb.power, centre, order: 'departure', handover: 'share' });
+  const assignment = initialAssignment(problem, {
+    energy,
+    weight,
+    power: lb.power,
+    centre,
+    order: 'departure',
+    handover: 'share',
+  });
   const model = buildChargeModel(problem, { mode: 'assigned', plug: plugMapOf(problem, assignment) });
   const highsTimes: number[] = [];
   let highsObjective = NaN;
@@ -157,12 +182,16 @@ async function main() {
   console.log(`  HiGHS (wasm):          ${median(highsTimes).toFixed(1)} ms, objective ${highsObjective.toFixed(6)}`);
   const js = await runJsLp(toJsLp(model.lp));
   if (js.timedOut) {
-    console.log(`  javascript-lp-solver:  no answer within ${JS_LIMIT_MS / 1000} s (ended); ratio > ${(JS_LIMIT_MS / median(highsTimes)).toFixed(0)}x`);
+    console.log(
+      `  javascript-lp-solver:  no answer within ${JS_LIMIT_MS / 1000} s (ended); ratio > ${(JS_LIMIT_MS / median(highsTimes)).toFixed(0)}x`,
+    );
   } else {
     // javascript-lp-solver has no objective constant: add the model's offset back.
     const jsObjective = (js.result ?? NaN) + (model.lp.offset ?? 0);
     const agree = js.feasible ? Math.abs((jsObjective - highsObjective) / highsObjective) : NaN;
-    console.log(`  javascript-lp-solver:  ${js.ms.toFixed(0)} ms, feasible ${js.feasible}, objective ${jsObjective.toFixed(6)} (relative difference ${agree.toExponential(1)})`);
+    console.log(
+      `  javascript-lp-solver:  ${js.ms.toFixed(0)} ms, feasible ${js.feasible}, objective ${jsObjective.toFixed(6)} (relative difference ${agree.toExponential(1)})`,
+    );
     console.log(`  speed ratio: ${(js.ms / median(highsTimes)).toFixed(0)}x`);
   }
 }

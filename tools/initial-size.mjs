@@ -17,6 +17,8 @@ for (const file of files) {
 const kb = total / 1024;
 console.log(`First download: ${files.length} files, ${kb.toFixed(1)} kB gzipped (limit ${LIMIT_KB} kB)`);
 if (kb > LIMIT_KB) {
-  console.error(`The first download is over ${LIMIT_KB} kB: keep zod, luxon and the sections out of the shell (import plain contract modules, lazy routes)`);
+  console.error(
+    `The first download is over ${LIMIT_KB} kB: keep zod, luxon and the sections out of the shell (import plain contract modules, lazy routes)`,
+  );
   process.exit(1);
 }

@@ -7,15 +7,23 @@ import { SimulatedStation } from '../apps/api/src/ocpp/simulated-station';
 
 /** The demo depot's chargers (of a tagged test district, with a tag), as simulated stations. */
 function demoStations(url: string, tag?: string): SimulatedStation[] {
-  return demoChargers.map((c, i) => new SimulatedStation({
-    url, identity: demoChargerIdentity(c.label, tag), password: DEMO_CHARGER_PASSWORD,
-    // The shared-cabinet dispensers speak OCPP 2.0.1; the others 1.6.
-    protocol: c.cabinet ? 'ocpp2.0.1' : 'ocpp1.6', meterIntervalMs: 15_000 + i * 250,
-  }));
+  return demoChargers.map(
+    (c, i) =>
+      new SimulatedStation({
+        url,
+        identity: demoChargerIdentity(c.label, tag),
+        password: DEMO_CHARGER_PASSWORD,
+        // The shared-cabinet dispensers speak OCPP 2.0.1; the others 1.6.
+        protocol: c.cabinet ? 'ocpp2.0.1' : 'ocpp1.6',
+        meterIntervalMs: 15_000 + i * 250,
+      }),
+  );
 }
 
 async function startAll(stations: SimulatedStation[], url: string): Promise<void> {
-  await Promise.all(stations.map((s) => s.start().catch((err: Error) => console.error(`station ${s.client.identity}: ${err.message}`))));
+  await Promise.all(
+    stations.map((s) => s.start().catch((err: Error) => console.error(`station ${s.client.identity}: ${err.message}`))),
+  );
   console.log(`station simulator: ${stations.length} chargers connected to ${url}`);
 }
 
@@ -37,21 +45,29 @@ async function main() {
       const find = () => stations.find((s) => s.client.identity === label || s.client.identity?.endsWith(`-${label}`));
       if (label && req.method === 'GET' && action === 'reports') {
         const station = find();
-        return void (station ? res.writeHead(200, { 'content-type': 'application/json' }).end(JSON.stringify({ reports: station.reports })) : res.writeHead(404).end('unknown charger'));
+        return void (station
+          ? res.writeHead(200, { 'content-type': 'application/json' }).end(JSON.stringify({ reports: station.reports }))
+          : res.writeHead(404).end('unknown charger'));
       }
       if (label && req.method === 'POST' && action === 'plug') {
         const station = find();
         const soc = Number(address.searchParams.get('soc'));
         if (!station) return void res.writeHead(404).end('unknown charger');
         if (!(soc >= 0 && soc <= 100)) return void res.writeHead(400).end('give the state of charge as ?soc=0 to 100');
-        void station.plugIn(soc).then(() => res.writeHead(204).end(), () => res.writeHead(502).end());
+        void station.plugIn(soc).then(
+          () => res.writeHead(204).end(),
+          () => res.writeHead(502).end(),
+        );
         return;
       }
       const clearing = (req.method === 'POST' && action === 'clear') || (req.method === 'DELETE' && action === 'fault');
       if (label && ((req.method === 'POST' && action === 'fault') || clearing)) {
         const station = find();
         if (!station) return void res.writeHead(404).end('unknown charger');
-        void (clearing ? station.clear() : station.fault()).then(() => res.writeHead(204).end(), () => res.writeHead(502).end());
+        void (clearing ? station.clear() : station.fault()).then(
+          () => res.writeHead(204).end(),
+          () => res.writeHead(502).end(),
+        );
         return;
       }
       if (req.method === 'PUT' && address.pathname === '/stations') {
@@ -60,7 +76,10 @@ async function main() {
         stations = demoStations(url, tag);
         void Promise.all(old.map((s) => s.stop().catch(() => undefined)))
           .then(() => startAll(stations, url))
-          .then(() => res.writeHead(204).end(), () => res.writeHead(502).end());
+          .then(
+            () => res.writeHead(204).end(),
+            () => res.writeHead(502).end(),
+          );
         return;
       }
       res.writeHead(200).end('ok');

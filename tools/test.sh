@@ -30,10 +30,8 @@ mkdir -p "$TEST_DIR"
 # Lint (and the format check) run beside the cluster's start-up and the API build; the suites
 # start once they pass.
 {
-  echo "== Lint (eslint)"
-  npm run -s lint
-  # enabled after the one-off format commit
-  # echo "== Format (prettier --check)" && npm run -s format:check
+  echo "== Lint (eslint)" && npm run -s lint &&
+    echo "== Format (prettier --check)" && npm run -s format:check
 } > "$TEST_DIR/lint.log" 2>&1 &
 lint=$!
 pids+=($lint)

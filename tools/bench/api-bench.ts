@@ -66,7 +66,13 @@ async function dropDatabase(): Promise<void> {
 
 async function startApi(): Promise<ChildProcess> {
   const child = spawn(process.execPath, ['dist/api/main.mjs'], {
-    env: { ...process.env, DATABASE_URL: `${CLUSTER}/${DB_NAME}`, PORT: String(PORT), SEED_DEMO: 'never', NODE_ENV: 'test' },
+    env: {
+      ...process.env,
+      DATABASE_URL: `${CLUSTER}/${DB_NAME}`,
+      PORT: String(PORT),
+      SEED_DEMO: 'never',
+      NODE_ENV: 'test',
+    },
     stdio: ['ignore', 'ignore', 'inherit'],
   });
   const deadline = performance.now() + 60_000;
@@ -85,7 +91,9 @@ async function startApi(): Promise<ChildProcess> {
 
 async function signIn(email: string): Promise<string> {
   const res = await fetch(`${BASE}/api/auth/login`, {
-    method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ email, password: DEMO_PASSWORD }),
+    method: 'POST',
+    headers: { 'content-type': 'application/json' },
+    body: JSON.stringify({ email, password: DEMO_PASSWORD }),
   });
   if (!res.ok) throw new Error(`Sign-in as ${email} failed: ${res.status} ${await res.text()}`);
   return ((await res.json()) as { accessToken: string }).accessToken;
@@ -107,11 +115,17 @@ interface Figures {
 
 async function load(path: string, token: string | null, connections: number, seconds: number): Promise<Figures> {
   const result = await autocannon({
-    url: `${BASE}${path}`, connections, duration: seconds, timeout: 10,
+    url: `${BASE}${path}`,
+    connections,
+    duration: seconds,
+    timeout: 10,
     headers: token ? { authorization: `Bearer ${token}` } : {},
   });
   return {
-    reqPerSec: result.requests.average, p99: result.latency.p99, p50: result.latency.p50, requests: result.requests.total,
+    reqPerSec: result.requests.average,
+    p99: result.latency.p99,
+    p50: result.latency.p50,
+    requests: result.requests.total,
     bad: result.non2xx + result.errors + result.timeouts,
   };
 }
@@ -139,7 +153,7 @@ try {
   const today = clock().toISOString().slice(0, 10);
   const routes = [
     { name: 'GET /api/health', path: '/api/health', token: null },
-    { name: 'GET tonight\'s plan', path: `/api/depots/${depotId}/tonight`, token: supervisor },
+    { name: "GET tonight's plan", path: `/api/depots/${depotId}/tonight`, token: supervisor },
     { name: 'GET costs month', path: `/api/depots/${depotId}/costs/month?date=${today}`, token: finance },
   ] as const;
   // One request each first: the costs month's first answer is computed, the rest are remembered.
@@ -149,7 +163,9 @@ try {
   // alike; each ratio to health is taken within its round, and the median round is reported.
   const rounds = Math.max(1, Math.round(SECONDS / 2));
   const roundSeconds = Math.max(1, Math.round(SECONDS / rounds));
-  console.log(`\nAPI bench on ${BASE}: ${CONNECTIONS} connections, ${rounds} rounds of ${roundSeconds} s per route (node ${process.version})`);
+  console.log(
+    `\nAPI bench on ${BASE}: ${CONNECTIONS} connections, ${rounds} rounds of ${roundSeconds} s per route (node ${process.version})`,
+  );
   const byRound: Figures[][] = [];
   for (let k = 0; k < rounds; k++) {
     const round: Figures[] = [];
@@ -168,19 +184,25 @@ try {
     const verdict = goal
       ? `>= ${Math.round(goal.share * 100)}% of health: ${mark(share >= goal.share)}; p99 <= ${goal.p99} ms: ${mark(p99 <= goal.p99)}`
       : '';
-    console.log(`${r.name.padEnd(22)} ${fmt(of((f) => f.reqPerSec)).padStart(6)} ${fmt(of((f) => f.p50)).padStart(8)} ${fmt(p99).padStart(8)} ${`${fmt(share * 100)}%`.padStart(11)} ${String(bad).padStart(16)}   ${verdict}`);
+    console.log(
+      `${r.name.padEnd(22)} ${fmt(of((f) => f.reqPerSec)).padStart(6)} ${fmt(of((f) => f.p50)).padStart(8)} ${fmt(p99).padStart(8)} ${`${fmt(share * 100)}%`.padStart(11)} ${String(bad).padStart(16)}   ${verdict}`,
+    );
   });
-  console.log(`(median of ${rounds} rounds; the machine's 1-minute load average: ${loadavg()[0]!.toFixed(1)} on ${availableParallelism()} cores)`);
+  console.log(
+    `(median of ${rounds} rounds; the machine's 1-minute load average: ${loadavg()[0]!.toFixed(1)} on ${availableParallelism()} cores)`,
+  );
 
   // Health with other users' traffic, before and while a 400-bus what-if solves.
   const quiet = await load('/api/health', null, SOLVE_CONNECTIONS, SECONDS);
   const res = await fetch(`${BASE}/api/depots/${depotId}/plans/what-if`, {
-    method: 'POST', headers: { authorization: `Bearer ${supervisor}`, 'content-type': 'application/json' },
+    method: 'POST',
+    headers: { authorization: `Bearer ${supervisor}`, 'content-type': 'application/json' },
     body: JSON.stringify(generateDepot({ buses: 400, seed: 11 })),
   });
   if (res.status !== 202) throw new Error(`The what-if was refused: ${res.status} ${await res.text()}`);
   const planId = ((await res.json()) as { plan: { id: string } }).plan.id;
-  const status = async () => (await getJson<{ plan: { status: string } }>(`/api/plans/${planId}`, supervisor)).plan.status;
+  const status = async () =>
+    (await getJson<{ plan: { status: string } }>(`/api/plans/${planId}`, supervisor)).plan.status;
   const queuedAt = performance.now();
   while ((await status()) === 'queued' && performance.now() - queuedAt < 30_000) await sleep(50);
   const solveStart = performance.now();
@@ -194,10 +216,14 @@ try {
   const solveSeconds = (performance.now() - solveStart) / 1000;
   console.log(`\n/api/health at ${SOLVE_CONNECTIONS} connections, ${SECONDS} s`);
   console.log(`  quiet:                          ${fmt(quiet.reqPerSec).padStart(6)} req/s, p99 ${fmt(quiet.p99)} ms`);
-  console.log(`  while a 400-bus what-if solves: ${fmt(during.reqPerSec).padStart(6)} req/s, p99 ${fmt(during.p99)} ms, non-2xx/errors ${during.bad}` +
-    `   goal p99 <= 50 ms: ${mark(during.p99 <= 50)}`);
+  console.log(
+    `  while a 400-bus what-if solves: ${fmt(during.reqPerSec).padStart(6)} req/s, p99 ${fmt(during.p99)} ms, non-2xx/errors ${during.bad}` +
+      `   goal p99 <= 50 ms: ${mark(during.p99 <= 50)}`,
+  );
   console.log(`  (load average ${loadavg()[0]!.toFixed(1)})`);
-  console.log(`  the what-if ${final} after ${fmt(solveSeconds, 1)} s of solving${stillSolving ? ' (it solved through the whole measurement)' : ' (it finished before the measurement ended: the figure is partly a quiet one)'}`);
+  console.log(
+    `  the what-if ${final} after ${fmt(solveSeconds, 1)} s of solving${stillSolving ? ' (it solved through the whole measurement)' : ' (it finished before the measurement ended: the figure is partly a quiet one)'}`,
+  );
 } finally {
   if (api && api.exitCode === null) {
     api.kill('SIGTERM');

@@ -6,7 +6,15 @@
 //   npx tsx tools/bench/crew.ts [--quick]
 import { loadavg } from 'node:os';
 import { DateTime } from 'luxon';
-import { loadSolver, parseScenario, planScenario, prepareProblem, replan, type Plan, type ScenarioInput } from '@nightyard/scheduling';
+import {
+  loadSolver,
+  parseScenario,
+  planScenario,
+  prepareProblem,
+  replan,
+  type Plan,
+  type ScenarioInput,
+} from '@nightyard/scheduling';
 import { solveExact } from '../../libs/scheduling/src/exact.js';
 import { generateDepot } from '../../libs/scheduling/src/testing/generate-depot.js';
 import { checkPlan } from '../../libs/scheduling/src/testing/plan-checker.js';
@@ -21,7 +29,10 @@ const crewFor = (scenario: ScenarioInput, movesEvening: number, movesMorning: nu
   ],
   ...(scenario ? {} : {}),
 });
-const withCrew = (input: ScenarioInput, scale = 1): ScenarioInput => ({ ...input, yard: crewFor(input, Math.max(3, Math.ceil(3 * scale)), Math.max(2, Math.ceil(2 * scale))) });
+const withCrew = (input: ScenarioInput, scale = 1): ScenarioInput => ({
+  ...input,
+  yard: crewFor(input, Math.max(3, Math.ceil(3 * scale)), Math.max(2, Math.ceil(2 * scale))),
+});
 const parse = (input: ScenarioInput) => {
   const parsed = parseScenario(input);
   if (!parsed.ok) throw new Error(JSON.stringify(parsed.problems));
@@ -34,7 +45,12 @@ const pct = (x: number) => `${(x * 100).toFixed(2)} %`;
 /** A plan's sessions as an assignment of the exact model (one session per stay). */
 function assignmentOf(problem: ReturnType<typeof prepareProblem>, plan: Plan) {
   const n = problem.stays.length;
-  const out = { chargerOf: new Int32Array(n).fill(-1), from: new Int32Array(n), to: new Int32Array(n), sequence: problem.chargers.map((): number[] => []) };
+  const out = {
+    chargerOf: new Int32Array(n).fill(-1),
+    from: new Int32Array(n),
+    to: new Int32Array(n),
+    sequence: problem.chargers.map((): number[] => []),
+  };
   const t0 = problem.slots[0]!.startMs;
   const slotMs = problem.slots[0]!.endMs - t0;
   for (const s of plan.sessions) {
@@ -53,16 +69,26 @@ function assignmentOf(problem: ReturnType<typeof prepareProblem>, plan: Plan) {
 /** Buses whose sessions differ between two plans (from the cut-off on). */
 function movedBuses(before: Plan, after: Plan, fromMs: number): string[] {
   const key = (p: Plan, bus: string) =>
-    p.sessions.filter((s) => s.bus === bus && Date.parse(s.end) > fromMs).map((s) => `${s.charger}@${Math.max(Date.parse(s.start), fromMs)}-${s.end}`).join(',');
+    p.sessions
+      .filter((s) => s.bus === bus && Date.parse(s.end) > fromMs)
+      .map((s) => `${s.charger}@${Math.max(Date.parse(s.start), fromMs)}-${s.end}`)
+      .join(',');
   const buses = new Set([...before.sessions, ...after.sessions].map((s) => s.bus));
   return [...buses].filter((b) => key(before, b) !== key(after, b)).sort();
 }
 
 const solver = await loadSolver();
-const load = () => loadavg().map((x) => x.toFixed(2)).join(' ');
-console.log(`load average at start: ${load()} (2 shared cores: times are inflated by other work; node counts, LP solves and iterations are not)`);
+const load = () =>
+  loadavg()
+    .map((x) => x.toFixed(2))
+    .join(' ');
+console.log(
+  `load average at start: ${load()} (2 shared cores: times are inflated by other work; node counts, LP solves and iterations are not)`,
+);
 console.log('Plans with the yard crew (45-min minimum, drivers at pull-in/out, crew 15:00-23:30 and 04:30-07:00)');
-console.log('buses  chargers  solve ms  stopped (2 runs)  status    gap      crew moves/bus  shortest plug-in  checker  same plan twice  LP iterations  load');
+console.log(
+  'buses  chargers  solve ms  stopped (2 runs)  status    gap      crew moves/bus  shortest plug-in  checker  same plan twice  LP iterations  load',
+);
 // BENCH_SECTIONS picks sections (size,small,scarce,replan); default all.
 const sections = new Set((process.env.BENCH_SECTIONS ?? 'size,small,scarce,replan').split(','));
 const sizes = !sections.has('size') ? [] : quick ? [200] : [200, 500, 1000];
@@ -80,15 +106,34 @@ for (const n of sizes) {
 
 // Small depots short of chargers: the plan (with and without the large-neighbourhood search)
 // against the exact optimum of the same plan space (one plug-in per stay), solved by the MILP.
-console.log('\nSmall depots short of chargers: plan against the exact MILP optimum (penalised cost: cost + shortfall penalty)');
-console.log('crew  buses  chargers  seed  plan        no LNS      exact       MILP      gap      gap no LNS  same twice  solve ms  load');
+console.log(
+  '\nSmall depots short of chargers: plan against the exact MILP optimum (penalised cost: cost + shortfall penalty)',
+);
+console.log(
+  'crew  buses  chargers  seed  plan        no LNS      exact       MILP      gap      gap no LNS  same twice  solve ms  load',
+);
 const gaps: number[] = [];
 const gapsNoLns: number[] = [];
-const small: [number, number, number][] = quick ? [[8, 2, 3]] : [[6, 2, 1], [7, 2, 2], [8, 2, 3], [9, 3, 4], [10, 3, 5], [12, 3, 6], [6, 2, 7], [8, 2, 8], [10, 2, 9], [12, 3, 10]];
+const small: [number, number, number][] = quick
+  ? [[8, 2, 3]]
+  : [
+      [6, 2, 1],
+      [7, 2, 2],
+      [8, 2, 3],
+      [9, 3, 4],
+      [10, 3, 5],
+      [12, 3, 6],
+      [6, 2, 7],
+      [8, 2, 8],
+      [10, 2, 9],
+      [12, 3, 10],
+    ];
 const exactSeconds = Number(process.env.BENCH_EXACT_S ?? 60);
 for (const crew of sections.has('small') ? [false, true] : []) {
   for (const [n, c, seed] of small) {
-    const input = crew ? withCrew(generateDepot({ buses: n, chargers: c, seed })) : generateDepot({ buses: n, chargers: c, seed });
+    const input = crew
+      ? withCrew(generateDepot({ buses: n, chargers: c, seed }))
+      : generateDepot({ buses: n, chargers: c, seed });
     const scenario = parse(input);
     const problem = prepareProblem(scenario);
     const penalised = (p: Plan) => p.cost.total + problem.shortfallPenalty * p.stats.shortfallKwh;
@@ -97,7 +142,11 @@ for (const crew of sections.has('small') ? [false, true] : []) {
     const off = await planScenario(scenario, { lns: false });
     const errors = checkPlan(input, p);
     // Started from the better of the two plans: HiGHS proves it or beats it.
-    const ex = solveExact(problem, solver, { maxNodes: 1e9, timeLimitMs: exactSeconds * 1000, start: assignmentOf(problem, penalised(p) <= penalised(off) ? p : off) });
+    const ex = solveExact(problem, solver, {
+      maxNodes: 1e9,
+      timeLimitMs: exactSeconds * 1000,
+      start: assignmentOf(problem, penalised(p) <= penalised(off) ? p : off),
+    });
     const best = Math.min(Number.isFinite(ex.objective) ? ex.objective : Infinity, penalised(p), penalised(off));
     // Proven: the MILP's optimum, or a plan at the lower bound (the bound is below every plan).
     const proven = ex.status === 'optimal' || p.gap <= 1e-6;
@@ -114,12 +163,32 @@ for (const crew of sections.has('small') ? [false, true] : []) {
     );
   }
 }
-console.log(`best MILP solutions not proven optimal are the reference elsewhere (a plan above it is behind a known plan)`);
-console.log(`gap to the exact optimum (depots where it is proven: MILP optimum or plan at the lower bound): median ${pct(median(gaps))}, worst ${pct(Math.max(0, ...gaps))} (${gaps.length} depots); without the large-neighbourhood search: median ${pct(median(gapsNoLns))}, worst ${pct(Math.max(0, ...gapsNoLns))}`);
+console.log(
+  `best MILP solutions not proven optimal are the reference elsewhere (a plan above it is behind a known plan)`,
+);
+console.log(
+  `gap to the exact optimum (depots where it is proven: MILP optimum or plan at the lower bound): median ${pct(median(gaps))}, worst ${pct(Math.max(0, ...gaps))} (${gaps.length} depots); without the large-neighbourhood search: median ${pct(median(gapsNoLns))}, worst ${pct(Math.max(0, ...gapsNoLns))}`,
+);
 
 console.log('\nDepots short of chargers (3-6 buses per charger), with the crew: cost against the lower bound');
-console.log('buses  chargers  seed  status    cost       bound      gap       crew moves  moves/bus  shortest  solve ms  LNS (pairs/kept)  load');
-const scarce: [number, number][] = !sections.has('scarce') ? [] : quick ? [[12, 3], [40, 10]] : [[8, 2], [12, 3], [15, 3], [40, 10], [100, 20], [200, 40]];
+console.log(
+  'buses  chargers  seed  status    cost       bound      gap       crew moves  moves/bus  shortest  solve ms  LNS (pairs/kept)  load',
+);
+const scarce: [number, number][] = !sections.has('scarce')
+  ? []
+  : quick
+    ? [
+        [12, 3],
+        [40, 10],
+      ]
+    : [
+        [8, 2],
+        [12, 3],
+        [15, 3],
+        [40, 10],
+        [100, 20],
+        [200, 40],
+      ];
 for (const [n, c] of scarce) {
   for (const seed of quick ? [1] : [1, 2, 3]) {
     const input = withCrew(generateDepot({ buses: n, chargers: c, seed }), n / 40);
@@ -135,7 +204,15 @@ console.log('\nRe-plan after one charger fails at 22:00 (with the crew): buses m
 console.log('buses  chargers  seed  failed  buses on it  moved  allowed (on it + 1 per freed charger)');
 const moved: number[] = [];
 const allowed: number[] = [];
-for (const [n, c] of !sections.has('replan') ? [] : quick ? [[40, 10]] : [[40, 10], [40, 20], [100, 25]]) {
+for (const [n, c] of !sections.has('replan')
+  ? []
+  : quick
+    ? [[40, 10]]
+    : [
+        [40, 10],
+        [40, 20],
+        [100, 25],
+      ]) {
   for (const seed of quick ? [1] : [1, 2, 3]) {
     const input = withCrew(generateDepot({ buses: n, chargers: c, seed }), n / 40);
     const scenario = parse(input);
@@ -143,17 +220,26 @@ for (const [n, c] of !sections.has('replan') ? [] : quick ? [[40, 10]] : [[40, 1
     const now = '2026-01-14T22:00';
     const nowMs = DateTime.fromISO(now, { zone: scenario.timezone }).toMillis();
     const busiest = [...new Set(plan.sessions.map((s) => s.charger))]
-      .map((ch) => ({ ch, n: new Set(plan.sessions.filter((s) => s.charger === ch && Date.parse(s.end) > nowMs).map((s) => s.bus)).size }))
+      .map((ch) => ({
+        ch,
+        n: new Set(plan.sessions.filter((s) => s.charger === ch && Date.parse(s.end) > nowMs).map((s) => s.bus)).size,
+      }))
       .sort((x, y) => y.n - x.n || (x.ch < y.ch ? -1 : 1))[0]!;
     // Buses on a charger at the cut-off stay plugged in (as the yard reports them).
     const plugged = Object.fromEntries(
-      plan.sessions.filter((s) => s.charger !== busiest.ch && Date.parse(s.start) < nowMs && Date.parse(s.end) > nowMs).map((s) => [s.bus, s.charger]),
+      plan.sessions
+        .filter((s) => s.charger !== busiest.ch && Date.parse(s.start) < nowMs && Date.parse(s.end) > nowMs)
+        .map((s) => [s.bus, s.charger]),
     );
     const r = await replan(scenario, { now, outOfService: [busiest.ch], previous: plan, plugged });
     const m = movedBuses(plan, r, nowMs);
     moved.push(m.length);
     allowed.push(busiest.n + 1);
-    console.log(`${String(n).padStart(5)}  ${String(c).padStart(8)}  ${String(seed).padStart(4)}  ${busiest.ch.padEnd(6)}  ${String(busiest.n).padStart(11)}  ${String(m.length).padStart(5)}  ${busiest.n + 1}`);
+    console.log(
+      `${String(n).padStart(5)}  ${String(c).padStart(8)}  ${String(seed).padStart(4)}  ${busiest.ch.padEnd(6)}  ${String(busiest.n).padStart(11)}  ${String(m.length).padStart(5)}  ${busiest.n + 1}`,
+    );
   }
 }
-console.log(`median buses moved: ${median(moved)}; median allowed (buses on the failed charger + 1): ${median(allowed)}`);
+console.log(
+  `median buses moved: ${median(moved)}; median allowed (buses on the failed charger + 1): ${median(allowed)}`,
+);

@@ -64,9 +64,18 @@ async function round(db: Db, d: Awaited<ReturnType<typeof district>>, workers: n
   try {
     // Workers up and waiting before the clock starts: their start-up is not planning time.
     await sleep(4000);
-    const rows = await db.insert(plans).values(d.nights.map((n) => ({
-      organisationId: d.organisationId, depotId: n.depotId, serviceDate: '2026-12-09', version, scenario: n.scenario,
-    }))).returning({ id: plans.id });
+    const rows = await db
+      .insert(plans)
+      .values(
+        d.nights.map((n) => ({
+          organisationId: d.organisationId,
+          depotId: n.depotId,
+          serviceDate: '2026-12-09',
+          version,
+          scenario: n.scenario,
+        })),
+      )
+      .returning({ id: plans.id });
     const ids = rows.map((r) => r.id);
     const start = performance.now();
     for (const id of ids) await queue.enqueuePlan(id);
@@ -77,9 +86,17 @@ async function round(db: Db, d: Awaited<ReturnType<typeof district>>, workers: n
       await sleep(200);
     }
     const wall = elapsed(start);
-    const done = await db.select({ status: plans.status, result: plans.result }).from(plans).where(inArray(plans.id, ids));
+    const done = await db
+      .select({ status: plans.status, result: plans.result })
+      .from(plans)
+      .where(inArray(plans.id, ids));
     const solveS = done.map((p) => ((p.result as { solveMs?: number } | null)?.solveMs ?? 0) / 1000);
-    return { wall, failed: done.filter((p) => p.status === 'failed').length, solveSum: solveS.reduce((a, b) => a + b, 0), longest: Math.max(...solveS) };
+    return {
+      wall,
+      failed: done.filter((p) => p.status === 'failed').length,
+      solveSum: solveS.reduce((a, b) => a + b, 0),
+      longest: Math.max(...solveS),
+    };
   } finally {
     await queue.stop();
     for (const p of processes) p.kill('SIGTERM');
@@ -97,7 +114,9 @@ async function main() {
   await applyMigrations(db, 'drizzle');
   const d = await district(db);
   const totalBuses = d.nights.reduce((s, n) => s + n.buses, 0);
-  console.log(`District bench: ${DEPOTS} generated depots of ${MIN_BUSES}-${MAX_BUSES} buses (${totalBuses} buses), one night each, node ${process.version}, ${availableParallelism()} CPUs`);
+  console.log(
+    `District bench: ${DEPOTS} generated depots of ${MIN_BUSES}-${MAX_BUSES} buses (${totalBuses} buses), one night each, node ${process.version}, ${availableParallelism()} CPUs`,
+  );
   console.log('workers   wall s   plans/min   engine s (sum)   longest plan s   failed   speed-up   load avg');
   const results: { workers: number; wall: number; longest: number }[] = [];
   let version = 0;
@@ -105,14 +124,22 @@ async function main() {
     const r = await round(db, d, workers, ++version);
     results.push({ workers, wall: r.wall, longest: r.longest });
     const speedup = results[0]!.wall / r.wall;
-    console.log(`${String(workers).padStart(7)}   ${r.wall.toFixed(1).padStart(6)}   ${((DEPOTS / r.wall) * 60).toFixed(1).padStart(9)}   ${r.solveSum.toFixed(1).padStart(14)}   ${r.longest.toFixed(1).padStart(14)}   ${String(r.failed).padStart(6)}   ${speedup.toFixed(2).padStart(8)}   ${loadavg()[0]!.toFixed(1).padStart(8)}`);
+    console.log(
+      `${String(workers).padStart(7)}   ${r.wall.toFixed(1).padStart(6)}   ${((DEPOTS / r.wall) * 60).toFixed(1).padStart(9)}   ${r.solveSum.toFixed(1).padStart(14)}   ${r.longest.toFixed(1).padStart(14)}   ${String(r.failed).padStart(6)}   ${speedup.toFixed(2).padStart(8)}   ${loadavg()[0]!.toFixed(1).padStart(8)}`,
+    );
   }
   // N machines like this one, each running as many workers as it has CPUs, share one queue: the
   // work divides among them until the longest single plan (one engine thread) sets the floor.
   const best = results.reduce((a, b) => (b.wall < a.wall ? b : a));
   const perMachine = DEPOTS / best.wall;
-  console.log(`\nExpected wall time on N machines like this one (${best.workers} worker${best.workers === 1 ? "" : "s"} each, ${perMachine.toFixed(2)} plans/s per machine), floor = the longest plan (${best.longest.toFixed(1)} s):`);
-  console.log([1, 2, 4, 8, 16].map((n) => `  N=${n}: ${Math.max(best.longest, DEPOTS / (n * perMachine)).toFixed(1)} s`).join('\n'));
+  console.log(
+    `\nExpected wall time on N machines like this one (${best.workers} worker${best.workers === 1 ? '' : 's'} each, ${perMachine.toFixed(2)} plans/s per machine), floor = the longest plan (${best.longest.toFixed(1)} s):`,
+  );
+  console.log(
+    [1, 2, 4, 8, 16]
+      .map((n) => `  N=${n}: ${Math.max(best.longest, DEPOTS / (n * perMachine)).toFixed(1)} s`)
+      .join('\n'),
+  );
   await pool.end();
   const admin = new pg.Client({ connectionString: `${CLUSTER}/postgres` });
   await admin.connect();

@@ -9,7 +9,14 @@
 // x[b,c,t] <= x[b,c,t-1] + y[b,c,t]; at most one start per stay (summed over chargers). With one
 // charger per bus in a slot the bus's power is capped by that charger; cabinets are left out
 // (use a depot without them: generateDepot is called with cabinets: false).
-import { buildChargeModel, emptyPlugMap, loadSolver, parseScenario, planScenario, prepareProblem } from '@nightyard/scheduling';
+import {
+  buildChargeModel,
+  emptyPlugMap,
+  loadSolver,
+  parseScenario,
+  planScenario,
+  prepareProblem,
+} from '@nightyard/scheduling';
 import type { Model } from 'highs';
 import { generateDepot } from '../../libs/scheduling/src/testing/generate-depot.js';
 
@@ -19,7 +26,9 @@ const input = generateDepot({ buses: buses ?? 5, chargers: chargers ?? 1, seed: 
 const parsed = parseScenario(input);
 if (!parsed.ok) throw new Error(JSON.stringify(parsed.problems));
 const plan = await planScenario(parsed.scenario);
-console.log(`plan ${plan.cost.total} (short ${plan.stats.shortfallKwh} kWh), lower bound ${plan.lowerBound}, gap ${(plan.gap * 100).toFixed(3)} %`);
+console.log(
+  `plan ${plan.cost.total} (short ${plan.stats.shortfallKwh} kWh), lower bound ${plan.lowerBound}, gap ${(plan.gap * 100).toFixed(3)} %`,
+);
 
 const problem = prepareProblem(parsed.scenario);
 // Every bus "on" the strongest charger in the LP part; the binaries decide the real one.
@@ -70,15 +79,31 @@ for (const b of problem.buses) {
         else row([xc, yc], [1, -1], -Infinity, 0);
       }
       row([model.pCol[b.index]![t]!, ...xs], [1, ...caps], -Infinity, 0);
-      row(xs, xs.map(() => 1), -Infinity, 1);
+      row(
+        xs,
+        xs.map(() => 1),
+        -Infinity,
+        1,
+      );
     }
-    row(startsOfStay, startsOfStay.map(() => 1), -Infinity, 1);
+    row(
+      startsOfStay,
+      startsOfStay.map(() => 1),
+      -Infinity,
+      1,
+    );
   }
 }
 for (let c = 0; c < C; c++) {
   for (let t = 0; t < problem.slotCount; t++) {
     const on = problem.buses.map((b) => x[b.index]![c]![t]!).filter((v) => v >= 0);
-    if (on.length > 1) row(on, on.map(() => 1), -Infinity, 1);
+    if (on.length > 1)
+      row(
+        on,
+        on.map(() => 1),
+        -Infinity,
+        1,
+      );
   }
 }
 const highs = solver.highs;
@@ -93,7 +118,14 @@ const milp = highs.createModel({
   colUpper: Float64Array.from(upper.map(inf)),
   rowLower: Float64Array.from(rowLower.map(inf)),
   rowUpper: Float64Array.from(rowUpper.map(inf)),
-  matrix: { format: 'csr', numRows: rowLower.length, numCols: cost.length, starts: Int32Array.from(starts), indices: Int32Array.from(indices), values: Float64Array.from(values) },
+  matrix: {
+    format: 'csr',
+    numRows: rowLower.length,
+    numCols: cost.length,
+    starts: Int32Array.from(starts),
+    indices: Int32Array.from(indices),
+    values: Float64Array.from(values),
+  },
 } as never) as Model & { dispose(): void };
 milp.options.set({ output_flag: false, time_limit: limit ?? 240, mip_rel_gap: 1e-7 });
 for (const c of integer) milp.changeColIntegrality(c, 1);

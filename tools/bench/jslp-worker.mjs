@@ -5,4 +5,9 @@ import solver from 'javascript-lp-solver';
 
 const t0 = performance.now();
 const result = solver.Solve(workerData.model);
-parentPort.postMessage({ ms: performance.now() - t0, feasible: result.feasible, bounded: result.bounded, result: result.result });
+parentPort.postMessage({
+  ms: performance.now() - t0,
+  feasible: result.feasible,
+  bounded: result.bounded,
+  result: result.result,
+});

@@ -4,7 +4,9 @@ import { readFileSync } from 'node:fs';
 import { DateTime } from 'luxon';
 import { loadSolver, parseScenario, planScenario, replan } from '@nightyard/scheduling';
 
-const file = JSON.parse(readFileSync(new URL('../../libs/scheduling/examples/demo-depot.json', import.meta.url), 'utf8'));
+const file = JSON.parse(
+  readFileSync(new URL('../../libs/scheduling/examples/demo-depot.json', import.meta.url), 'utf8'),
+);
 const parsed = parseScenario(file);
 if (!parsed.ok) throw new Error('demo example is not valid');
 const scenario = parsed.scenario;
@@ -13,7 +15,9 @@ const plan = await planScenario(scenario);
 const median = (xs: number[]) => xs.slice().sort((a, b) => a - b)[Math.floor(xs.length / 2)]!;
 const start = DateTime.fromISO(scenario.start, { zone: scenario.timezone });
 
-console.log(`Re-plan after a charger failure, demo depot (${scenario.buses.length} buses, ${scenario.chargers.length} chargers)`);
+console.log(
+  `Re-plan after a charger failure, demo depot (${scenario.buses.length} buses, ${scenario.chargers.length} chargers)`,
+);
 console.log('cut-off   charger  re-plan ms (median of 3)  cost of the rest');
 for (const hours of [6, 9, 12, 15]) {
   const cut = start.plus({ hours });
@@ -24,9 +28,15 @@ for (const hours of [6, 9, 12, 15]) {
   let cost = 0;
   for (let i = 0; i < 3; i++) {
     const t0 = performance.now();
-    const r = await replan(scenario, { now: cut.toFormat("yyyy-MM-dd'T'HH:mm"), outOfService: [busiest.charger], previous: plan });
+    const r = await replan(scenario, {
+      now: cut.toFormat("yyyy-MM-dd'T'HH:mm"),
+      outOfService: [busiest.charger],
+      previous: plan,
+    });
     times.push(performance.now() - t0);
     cost = r.cost.total;
   }
-  console.log(`${cut.toFormat('ccc HH:mm')}  ${busiest.charger.padEnd(7)}  ${median(times).toFixed(0).padStart(8)}                  ${cost.toFixed(2)}`);
+  console.log(
+    `${cut.toFormat('ccc HH:mm')}  ${busiest.charger.padEnd(7)}  ${median(times).toFixed(0).padStart(8)}                  ${cost.toFixed(2)}`,
+  );
 }

@@ -16,7 +16,12 @@ for (const n of sizes) {
   const gaps: number[] = [];
   for (let seed = 1; seed <= seeds; seed++) {
     const ratio = variant === 'third' ? 3 : 2;
-    const input = generateDepot({ buses: n, seed: 77 * seed + n, chargers: Math.max(1, Math.floor(n / ratio)), cabinets: variant !== 'nocab' });
+    const input = generateDepot({
+      buses: n,
+      seed: 77 * seed + n,
+      chargers: Math.max(1, Math.floor(n / ratio)),
+      cabinets: variant !== 'nocab',
+    });
     if (variant === 'tight') input.site.limitKw = Math.round(input.site.otherLoadKw! + 25 * n);
     if (variant === 'tighter') input.site.limitKw = Math.round(input.site.otherLoadKw! + 14 * n);
     const parsed = parseScenario(input);
@@ -33,5 +38,7 @@ for (const n of sizes) {
     );
   }
   gaps.sort((a, b) => a - b);
-  console.log(`${variant} n=${n} median gap ${(gaps[Math.floor(gaps.length / 2)]! * 100).toFixed(3)}% max ${(gaps[gaps.length - 1]! * 100).toFixed(3)}%`);
+  console.log(
+    `${variant} n=${n} median gap ${(gaps[Math.floor(gaps.length / 2)]! * 100).toFixed(3)}% max ${(gaps[gaps.length - 1]! * 100).toFixed(3)}%`,
+  );
 }

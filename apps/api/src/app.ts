@@ -85,15 +85,29 @@ export function createApp(deps: AppDeps): BuiltApp {
   // Interval-data and runs files arrive as JSON strings; everything else is small. A larger body
   // is refused before it is read (413 naming the limit).
   router.use('/depots/:depotId/meter-data', express.json({ limit: METER_BODY_LIMIT_BYTES, strict: true }));
-  router.use('/depots/:depotId/service-days/:date/csv', express.json({ limit: RUNS_CSV_BODY_LIMIT_BYTES, strict: true }));
+  router.use(
+    '/depots/:depotId/service-days/:date/csv',
+    express.json({ limit: RUNS_CSV_BODY_LIMIT_BYTES, strict: true }),
+  );
   router.use(express.json({ limit: JSON_BODY_LIMIT_BYTES, strict: true }));
   router.use(cookieParser());
   const openapi = newOpenApiRegistry();
-  const api = new ApiRoutes(router, openapi, bearerAuthenticator(deps.db, deps.config.JWT_SECRET, deps.clock, deps.knownUsers), idempotencyStore(deps.db, deps.clock));
+  const api = new ApiRoutes(
+    router,
+    openapi,
+    bearerAuthenticator(deps.db, deps.config.JWT_SECRET, deps.clock, deps.knownUsers),
+    idempotencyStore(deps.db, deps.clock),
+  );
 
   api.add(
-    { method: 'get', path: '/health', summary: 'Answers 200 when the API and its database work', tag: 'system',
-      access: 'public', response: z.object({ status: z.literal('ok') }) },
+    {
+      method: 'get',
+      path: '/health',
+      summary: 'Answers 200 when the API and its database work',
+      tag: 'system',
+      access: 'public',
+      response: z.object({ status: z.literal('ok') }),
+    },
     async ({ res }) => {
       try {
         await deps.ping();
@@ -117,7 +131,8 @@ export function createApp(deps: AppDeps): BuiltApp {
   yardRoutes(api, deps);
   liveRoutes(api, deps);
   outboxRoutes(api, deps);
-  if (deps.testControl && deps.config.NODE_ENV === 'test') router.use('/testing', testControlRouter(deps.db, deps.clock, deps.testControl));
+  if (deps.testControl && deps.config.NODE_ENV === 'test')
+    router.use('/testing', testControlRouter(deps.db, deps.clock, deps.testControl));
 
   const document = openApiDocument(openapi);
   router.get('/openapi.json', (_req, res) => {

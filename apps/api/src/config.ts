@@ -45,7 +45,9 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
   }
   const production = parsed.data.NODE_ENV === 'production';
   if (production && parsed.data.SEED_DEMO === 'if-empty') {
-    throw new Error('Configuration is not valid:\n  SEED_DEMO: production never gets the demo accounts by default; set SEED_DEMO=always to seed an empty database on purpose');
+    throw new Error(
+      'Configuration is not valid:\n  SEED_DEMO: production never gets the demo accounts by default; set SEED_DEMO=always to seed an empty database on purpose',
+    );
   }
   return { ...parsed.data, SEED_DEMO: parsed.data.SEED_DEMO ?? (production ? 'never' : 'if-empty') };
 }

@@ -16,15 +16,24 @@ export function scrubError(err: unknown, depth = 0): unknown {
   if (typeof e.message === 'string') out.message = e.message.replace(/\nparams: [\s\S]*$/, '\nparams: [redacted]');
   // PostgreSQL's detail repeats the offending key's value ("Key (token_hash)=(...) already exists").
   if (typeof e.detail === 'string') out.detail = e.detail.replace(/\)=\(.*\)/s, ')=([redacted])');
-  if (typeof e.stack === 'string') out.stack = e.stack.replace(/\nparams: [\s\S]*?(\n\s+at |$)/, '\nparams: [redacted]$1');
+  if (typeof e.stack === 'string')
+    out.stack = e.stack.replace(/\nparams: [\s\S]*?(\n\s+at |$)/, '\nparams: [redacted]$1');
   if (e.cause !== undefined) out.cause = scrubError(e.cause, depth + 1);
   return out;
 }
 
 /** Paths that never reach the log whatever a caller passes. */
 const REDACT = [
-  'req.headers.authorization', 'req.headers.cookie', 'password', '*.password', '*.passwordHash', '*.ocppPasswordHash',
-  'params', '*.params', 'parameters', '*.parameters',
+  'req.headers.authorization',
+  'req.headers.cookie',
+  'password',
+  '*.password',
+  '*.passwordHash',
+  '*.ocppPasswordHash',
+  'params',
+  '*.params',
+  'parameters',
+  '*.parameters',
 ];
 
 export function createLogger(opts: { level: string; service?: string }, destination?: DestinationStream): Logger {

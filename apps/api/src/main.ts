@@ -22,11 +22,15 @@ import { DEMO_PASSWORD, demoUsers } from '@nightyard/demo';
 
 const config = loadConfig();
 // The browser tests move the clock from spec to spec; nothing else can (see dev/test-control-routes).
-const testControl = config.NODE_ENV === 'test' && process.env.NIGHTYARD_TEST_CONTROL === '1' ? adjustableClock(clockFromEnv()) : null;
+const testControl =
+  config.NODE_ENV === 'test' && process.env.NIGHTYARD_TEST_CONTROL === '1' ? adjustableClock(clockFromEnv()) : null;
 const clock = testControl?.clock ?? clockFromEnv();
 // Written off the request thread (a log line per request is a write to stdout); pino flushes
 // what is left when the process exits, the fatal line of an uncaught exception included.
-const log = createLogger({ level: config.LOG_LEVEL, service: 'nightyard-api' }, pino.destination({ dest: 1, sync: false }));
+const log = createLogger(
+  { level: config.LOG_LEVEL, service: 'nightyard-api' },
+  pino.destination({ dest: 1, sync: false }),
+);
 installProcessGuards(log);
 // Paths come from the environment or the working directory, never from this file's location,
 // so the same code runs from source (tsx) and from the bundle in dist/.
@@ -59,7 +63,8 @@ await knownUsers.start();
 
 const mailer = smtpMailer({ host: config.SMTP_HOST, port: config.SMTP_PORT, from: config.MAIL_FROM }, log);
 const publicUrl = (p: string) => new URL(p, publicBase).toString();
-const onPlanPublished = (planId: string) => void central.sendPlan(planId).catch((err: unknown) => log.error({ err }, 'profiles not sent'));
+const onPlanPublished = (planId: string) =>
+  void central.sendPlan(planId).catch((err: unknown) => log.error({ err }, 'profiles not sent'));
 
 const { app } = createApp({
   db,
@@ -93,9 +98,21 @@ const { app } = createApp({
 // it is far from what the plan took (yard/charger-readings.ts).
 central.onSocReading(async (reading) => {
   const outcome = await takeChargerReading({ db, mailer, publicUrl, onPlanPublished }, reading);
-  log.info({ ...reading, outcome: outcome.taken ? { ...outcome, revised: outcome.revised?.revision.version ?? null } : outcome }, 'state of charge read at plug-in');
+  log.info(
+    {
+      ...reading,
+      outcome: outcome.taken ? { ...outcome, revised: outcome.revised?.revision.version ?? null } : outcome,
+    },
+    'state of charge read at plug-in',
+  );
   if (outcome.taken && outcome.revised) {
-    announceReport(live, reading.depotId, `charger ${reading.charger}`, { kind: 'soc_reading', planId: outcome.revised.revision.id, bus: outcome.bus, socPct: outcome.socPct }, clock());
+    announceReport(
+      live,
+      reading.depotId,
+      `charger ${reading.charger}`,
+      { kind: 'soc_reading', planId: outcome.revised.revision.id, bus: outcome.bus, socPct: outcome.socPct },
+      clock(),
+    );
     announcePlan(live, outcome.revised.revision, 'revised', clock());
   }
 });
@@ -106,7 +123,11 @@ const server = app.listen(config.PORT, '127.0.0.1', () => {
     `Nightyard is running at ${publicBase}`,
     '',
     ...(wantsDemoSeed(config)
-      ? [`Demo sign-ins (password: ${DEMO_PASSWORD}):`, ...demoUsers.map((u) => `  ${u.email.padEnd(36)} ${u.roles.join(' + ')}`), '']
+      ? [
+          `Demo sign-ins (password: ${DEMO_PASSWORD}):`,
+          ...demoUsers.map((u) => `  ${u.email.padEnd(36)} ${u.roles.join(' + ')}`),
+          '',
+        ]
       : []),
   ];
   // eslint-disable-next-line no-console -- the start-up banner is for the person at the terminal, not for the log
@@ -125,7 +146,12 @@ const shutdown = (signal: string) => {
   log.info({ signal }, 'shutting down');
   void central.close();
   live.endStreams();
-  server.close(() => jobs.stop().then(() => Promise.all([knownUsers.close(), pool.end(), stopWorkPool()])).then(() => process.exit(0)));
+  server.close(() =>
+    jobs
+      .stop()
+      .then(() => Promise.all([knownUsers.close(), pool.end(), stopWorkPool()]))
+      .then(() => process.exit(0)),
+  );
   setTimeout(() => process.exit(0), 5000).unref();
 };
 process.on('SIGTERM', () => shutdown('SIGTERM'));

@@ -3,9 +3,14 @@ import { describe, expect, it } from 'vitest';
 
 const runGuarded = (mode: 'reject' | 'throw') =>
   new Promise<{ code: number | null; out: string }>((resolve) => {
-    execFile(process.execPath, ['--import', 'tsx', 'apps/api/src/testing/guarded-process.ts', mode], { timeout: 20_000 }, (err, stdout) => {
-      resolve({ code: err ? ((err as { code?: number }).code ?? 1) : 0, out: stdout });
-    });
+    execFile(
+      process.execPath,
+      ['--import', 'tsx', 'apps/api/src/testing/guarded-process.ts', mode],
+      { timeout: 20_000 },
+      (err, stdout) => {
+        resolve({ code: err ? ((err as { code?: number }).code ?? 1) : 0, out: stdout });
+      },
+    );
   });
 
 describe('last-resort process handlers', () => {
@@ -14,7 +19,10 @@ describe('last-resort process handlers', () => {
     expect(code).toBe(0);
     expect(out).toContain('still serving');
     const line = JSON.parse(out.split('\n').find((l) => l.includes('unhandled promise rejection'))!);
-    expect(line).toMatchObject({ level: 50, err: { message: 'nobody caught me', stack: expect.stringContaining('guarded-process') } });
+    expect(line).toMatchObject({
+      level: 50,
+      err: { message: 'nobody caught me', stack: expect.stringContaining('guarded-process') },
+    });
   });
 
   it('an uncaught exception is logged as fatal and the process exits 1 (not hidden, not left half-broken)', async () => {

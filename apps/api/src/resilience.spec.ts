@@ -50,11 +50,20 @@ describe('PostgreSQL restarts under a running API', () => {
     const depot = await createDepot(app.db, org.organisationId);
     depotId = depot.depot.id;
     identity = `R-A-${depotId.slice(0, 8)}`;
-    await app.request().put(`/api/depots/${depotId}/chargers/${depot.chargers[0]!.id}/ocpp`).set(as(fac))
-      .send({ identity, password: 'resilience-charger-pw' }).expect(204);
+    await app
+      .request()
+      .put(`/api/depots/${depotId}/chargers/${depot.chargers[0]!.id}/ocpp`)
+      .set(as(fac))
+      .send({ identity, password: 'resilience-charger-pw' })
+      .expect(204);
     await addBuses(app.db, org.organisationId, depotId, ['71', '72']);
     for (const date of ['2026-12-14', '2026-12-15', '2026-12-16']) {
-      await app.request().put(`/api/depots/${depotId}/service-days/${date}`).set(as(sup)).send({ runs: dayRuns(date, ['71', '72'], () => 30) }).expect(200);
+      await app
+        .request()
+        .put(`/api/depots/${depotId}/service-days/${date}`)
+        .set(as(sup))
+        .send({ runs: dayRuns(date, ['71', '72'], () => 30) })
+        .expect(200);
     }
   });
 
@@ -68,7 +77,13 @@ describe('PostgreSQL restarts under a running API', () => {
     const before = await generatedPlan(app, sup, depotId, '2026-12-14');
     expect(before.status).toBe('done');
     const url = `ws://127.0.0.1:${(server.address() as AddressInfo).port}/ocpp`;
-    const station = new RPCClient({ endpoint: url, identity, password: 'resilience-charger-pw', protocols: ['ocpp1.6'], reconnect: false } as never);
+    const station = new RPCClient({
+      endpoint: url,
+      identity,
+      password: 'resilience-charger-pw',
+      protocols: ['ocpp1.6'],
+      reconnect: false,
+    } as never);
     await station.connect();
 
     await app.request().get(`/api/depots/${depotId}`).set(as(sup)).expect(200);
@@ -80,14 +95,26 @@ describe('PostgreSQL restarts under a running API', () => {
     expect(down.body.error.code).toBe('unavailable');
     expect(down.headers['retry-after']).toBe('5');
     await app.request().get('/api/health').expect(503);
-    await app.request().post(`/api/depots/${depotId}/plans`).set(as(sup)).send({ serviceDate: '2026-12-15' }).expect(503);
+    await app
+      .request()
+      .post(`/api/depots/${depotId}/plans`)
+      .set(as(sup))
+      .send({ serviceDate: '2026-12-15' })
+      .expect(503);
     // The connected charger is still answered; its state write fails quietly and is retried later.
-    await expect(station.call('StatusNotification', { connectorId: 1, errorCode: 'NoError', status: 'Charging' })).resolves.toEqual({});
+    await expect(
+      station.call('StatusNotification', { connectorId: 1, errorCode: 'NoError', status: 'Charging' }),
+    ).resolves.toEqual({});
     await central.settled();
 
     await cluster.start();
 
-    await expect.poll(async () => (await app.request().get(`/api/depots/${depotId}`).set(as(sup))).status, { timeout: 15_000, interval: 200 }).toBe(200);
+    await expect
+      .poll(async () => (await app.request().get(`/api/depots/${depotId}`).set(as(sup))).status, {
+        timeout: 15_000,
+        interval: 200,
+      })
+      .toBe(200);
     // Signed-in users are kept again once their change notifications resume.
     await expect.poll(() => known.isListening, { timeout: 15_000, interval: 200 }).toBe(true);
     const [depot] = await app.db.select().from(depots).where(eq(depots.id, depotId));
@@ -128,7 +155,10 @@ describe('a worker process killed in the middle of a plan job', () => {
   const insertPlan = async (values: Partial<typeof plans.$inferInsert> = {}) => {
     // A large invented depot, so the engine run lasts long enough to be cut short.
     const scenario = generateDepot({ buses: 150, seed: 7 });
-    const [row] = await app.db.insert(plans).values({ organisationId, depotId, serviceDate: '2026-12-16', version: ++version, scenario, ...values }).returning();
+    const [row] = await app.db
+      .insert(plans)
+      .values({ organisationId, depotId, serviceDate: '2026-12-16', version: ++version, scenario, ...values })
+      .returning();
     return row!;
   };
 
@@ -175,7 +205,11 @@ describe('a worker process killed in the middle of a plan job', () => {
     const enqueued: string[] = [];
     // Another process is working `busy` (it holds the plan's lock): left alone.
     const outcome = await withPlanLock(app.db, busy.id, () =>
-      recoverInterruptedPlans(app.db, silent, { waiting: new Set([waiting.id]), enqueue: async (id) => void enqueued.push(id) }));
+      recoverInterruptedPlans(app.db, silent, {
+        waiting: new Set([waiting.id]),
+        enqueue: async (id) => void enqueued.push(id),
+      }),
+    );
     expect(outcome).not.toBe('busy');
     const mine = [once.id, twice.id, waiting.id, busy.id];
     expect(enqueued.filter((id) => mine.includes(id))).toEqual([once.id]);
@@ -186,7 +220,12 @@ describe('a worker process killed in the middle of a plan job', () => {
     // pg-boss retrying an expired job of a plan already run twice: failed, not run a third time.
     const third = await insertPlan({ status: 'running', attempts: 2 });
     await runPlanJob(app.db, silent, third.id);
-    expect(await planRow(third.id)).toMatchObject({ status: 'failed', error: INTERRUPTED_TWICE, attempts: 3, result: null });
+    expect(await planRow(third.id)).toMatchObject({
+      status: 'failed',
+      error: INTERRUPTED_TWICE,
+      attempts: 3,
+      result: null,
+    });
     const seen = await app.request().get(`/api/plans/${third.id}`).set(as(sup)).expect(200);
     expect(seen.body.plan).toMatchObject({ status: 'failed', error: INTERRUPTED_TWICE });
   });

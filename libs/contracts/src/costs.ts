@@ -34,12 +34,24 @@ export const planCostsSchema = z.object({
   total: z.number(),
   /** The baseline the saving is counted against (kind null: a plan made before the baselines). */
   baseline: z.object({
-    kind: z.enum(['arrival', 'timer']).nullable(), energy: z.number(), demand: z.number(), total: z.number(), peakKw: z.number(),
+    kind: z.enum(['arrival', 'timer']).nullable(),
+    energy: z.number(),
+    demand: z.number(),
+    total: z.number(),
+    peakKw: z.number(),
     /** kWh it leaves undelivered against the plan (valued at the plan's average price, in `total`). */
     shortfallKwh: z.number(),
   }),
   /** The other baseline, shown beside it (`energy`: its charging energy, a shortfall valued as in `baseline`). */
-  otherBaseline: z.object({ kind: z.enum(['arrival', 'timer']), total: z.number(), energy: z.number(), peakKw: z.number(), shortfallKwh: z.number() }).nullable(),
+  otherBaseline: z
+    .object({
+      kind: z.enum(['arrival', 'timer']),
+      total: z.number(),
+      energy: z.number(),
+      peakKw: z.number(),
+      shortfallKwh: z.number(),
+    })
+    .nullable(),
   /** The plan's highest site load of the night. */
   peakKw: z.number(),
   /**
@@ -53,7 +65,15 @@ export const planCostsSchema = z.object({
   chargingKwh: z.number(),
   miles: z.number(),
   costPerMile: z.number().nullable(),
-  perBus: z.array(z.object({ bus: z.string(), kwh: z.number(), cost: z.number(), miles: z.number(), costPerMile: z.number().nullable() })),
+  perBus: z.array(
+    z.object({
+      bus: z.string(),
+      kwh: z.number(),
+      cost: z.number(),
+      miles: z.number(),
+      costPerMile: z.number().nullable(),
+    }),
+  ),
 });
 export type PlanCosts = z.infer<typeof planCostsSchema>;
 
@@ -97,33 +117,44 @@ export const monthCostsSchema = z.object({
     baselinePeakKw: z.number(),
   }),
   peaks: z.object({
-    facility: z.object({ kw: z.number(), at: z.string().nullable(), source: z.enum(['actual', 'entered', 'planned', 'forecast', 'building']) }),
+    facility: z.object({
+      kw: z.number(),
+      at: z.string().nullable(),
+      source: z.enum(['actual', 'entered', 'planned', 'forecast', 'building']),
+    }),
     periods: z.array(z.object({ name: z.string(), kw: z.number(), at: z.string().nullable() })),
   }),
-  nights: z.array(z.object({
-    date: z.string(),
-    planId: z.uuid(),
-    version: z.number(),
-    /** The night's charging energy cost under the plan and under its baseline (demand is the period's, see `savings`). */
-    planEnergyCost: z.number(),
-    baselineEnergyCost: z.number().nullable(),
-    baselineKind: z.enum(['arrival', 'timer']).nullable(),
-    /** Highest site load of the night under the baseline (the plan's is `projectedPeakKw`). */
-    baselinePeakKw: z.number().nullable(),
-    /** Site energy (charging and building) over the plan's hours, as planned and as metered. */
-    projectedSiteEnergyCost: z.number(),
-    actualSiteEnergyCost: z.number().nullable(),
-    /**
-     * The projected site energy over the intervals that have meter data only, to set beside
-     * `actualSiteEnergyCost` on a partly metered night (null without meter data).
-     */
-    projectedMeteredSiteEnergyCost: z.number().nullable().default(null),
-    projectedPeakKw: z.number(),
-    actualPeakKw: z.number().nullable(),
-    /** Share of the night's intervals with metered data (0-1). */
-    actualCoverage: z.number(),
-  })),
-  sources: z.object({ actualIntervals: z.number(), plannedNights: z.number(), forecastNights: z.number(), schoolNightsWithoutPlan: z.number() }),
+  nights: z.array(
+    z.object({
+      date: z.string(),
+      planId: z.uuid(),
+      version: z.number(),
+      /** The night's charging energy cost under the plan and under its baseline (demand is the period's, see `savings`). */
+      planEnergyCost: z.number(),
+      baselineEnergyCost: z.number().nullable(),
+      baselineKind: z.enum(['arrival', 'timer']).nullable(),
+      /** Highest site load of the night under the baseline (the plan's is `projectedPeakKw`). */
+      baselinePeakKw: z.number().nullable(),
+      /** Site energy (charging and building) over the plan's hours, as planned and as metered. */
+      projectedSiteEnergyCost: z.number(),
+      actualSiteEnergyCost: z.number().nullable(),
+      /**
+       * The projected site energy over the intervals that have meter data only, to set beside
+       * `actualSiteEnergyCost` on a partly metered night (null without meter data).
+       */
+      projectedMeteredSiteEnergyCost: z.number().nullable().default(null),
+      projectedPeakKw: z.number(),
+      actualPeakKw: z.number().nullable(),
+      /** Share of the night's intervals with metered data (0-1). */
+      actualCoverage: z.number(),
+    }),
+  ),
+  sources: z.object({
+    actualIntervals: z.number(),
+    plannedNights: z.number(),
+    forecastNights: z.number(),
+    schoolNightsWithoutPlan: z.number(),
+  }),
   emissions: emissionsSchema,
 });
 export type MonthCosts = z.infer<typeof monthCostsSchema>;

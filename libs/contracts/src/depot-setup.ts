@@ -9,9 +9,19 @@ export { localDateTimeSchema };
 export const MAX_KW = 100_000;
 
 const kw = (what: string) =>
-  z.number({ error: `Enter ${lower(what)} in kW` }).min(0, `${what} cannot be negative`).max(MAX_KW, `${what} looks too large (at most ${MAX_KW.toLocaleString('en-US')} kW)`);
+  z
+    .number({ error: `Enter ${lower(what)} in kW` })
+    .min(0, `${what} cannot be negative`)
+    .max(MAX_KW, `${what} looks too large (at most ${MAX_KW.toLocaleString('en-US')} kW)`);
 
-export const CONNECTOR_STANDARDS = ['SAE J1772 CCS1', 'SAE J3105 pantograph', 'SAE J3068', 'CCS2', 'CHAdeMO', 'Other'] as const;
+export const CONNECTOR_STANDARDS = [
+  'SAE J1772 CCS1',
+  'SAE J3105 pantograph',
+  'SAE J3068',
+  'CCS2',
+  'CHAdeMO',
+  'Other',
+] as const;
 
 export const depotSettingsSchema = z.strictObject({
   name: text('The depot name').trim().min(1, 'Name the depot').max(120),
@@ -47,7 +57,7 @@ export const chargerStatusSchema = z.enum(['in_service', 'out_of_service']);
 export const chargerInputSchema = z
   .strictObject({
     label: text('The charger label').trim().min(1, 'Label the charger').max(40),
-    maxKw: kw('The charger\'s maximum').refine((v) => v > 0, 'The maximum must be above 0 kW'),
+    maxKw: kw("The charger's maximum").refine((v) => v > 0, 'The maximum must be above 0 kW'),
     connector: text('The connector').trim().min(1, 'Choose the connector standard').max(60),
     cabinetId: z.uuid('Choose a cabinet of this depot').nullable().default(null),
     status: chargerStatusSchema.default('in_service'),
@@ -82,11 +92,13 @@ export const chargerSchema = z.object({
   /** OCPP charge point identity, when the charger is connected to Nightyard. */
   ocppIdentity: z.string().nullable(),
   /** What the charger itself last reported over OCPP. */
-  live: z.object({
-    status: z.enum(['available', 'charging', 'faulted', 'offline']),
-    powerKw: z.number().nullable(),
-    seenAt: z.iso.datetime({ offset: true }).nullable(),
-  }).nullable(),
+  live: z
+    .object({
+      status: z.enum(['available', 'charging', 'faulted', 'offline']),
+      powerKw: z.number().nullable(),
+      seenAt: z.iso.datetime({ offset: true }).nullable(),
+    })
+    .nullable(),
 });
 export type Charger = z.infer<typeof chargerSchema>;
 
@@ -111,7 +123,8 @@ export type LoadReductionWindow = z.infer<typeof loadReductionWindowSchema>;
 export const peaksSoFarSchema = z.strictObject({
   billingPeriodStart: isoDate(),
   facilityKw: kw('The facility peak'),
-  periods: z.record(text('The period name').min(1).max(60), kw('A period peak'))
+  periods: z
+    .record(text('The period name').min(1).max(60), kw('A period peak'))
     .refine((p) => Object.keys(p).length <= 20, 'At most 20 periods')
     .default({}),
 });

@@ -37,7 +37,9 @@ describe('depot time', () => {
   });
 
   it('notes the depot zone only when the viewer is in another one', () => {
-    expect(zoneNote('America/Chicago', 'Europe/Berlin', at)).toBe('Times are at the depot: America/Chicago (CST), 24-hour.');
+    expect(zoneNote('America/Chicago', 'Europe/Berlin', at)).toBe(
+      'Times are at the depot: America/Chicago (CST), 24-hour.',
+    );
     expect(zoneNote('America/Chicago', 'America/Chicago', at)).toBeNull();
     // Another name of the same zone is the same zone.
     expect(zoneNote('America/Chicago', 'US/Central', at)).toBeNull();

@@ -8,12 +8,18 @@
 
 export type Instant = string | number | Date;
 
-const toMs = (at: Instant): number => (typeof at === 'number' ? at : typeof at === 'string' ? Date.parse(at) : at.getTime());
+const toMs = (at: Instant): number =>
+  typeof at === 'number' ? at : typeof at === 'string' ? Date.parse(at) : at.getTime();
 
 const formatters = new Map<string, Intl.DateTimeFormat>();
 
 /** One cached formatter per zone and pattern; an unknown zone falls back to UTC rather than throw. */
-function formatter(kind: string, locale: string | undefined, options: Intl.DateTimeFormatOptions, timeZone: string): Intl.DateTimeFormat {
+function formatter(
+  kind: string,
+  locale: string | undefined,
+  options: Intl.DateTimeFormatOptions,
+  timeZone: string,
+): Intl.DateTimeFormat {
   const key = `${kind}|${timeZone}`;
   let f = formatters.get(key);
   if (!f) {
@@ -29,7 +35,13 @@ function formatter(kind: string, locale: string | undefined, options: Intl.DateT
 
 const CLOCK_OPTIONS: Intl.DateTimeFormatOptions = { hour: '2-digit', minute: '2-digit', hourCycle: 'h23' };
 
-function format(at: Instant, timeZone: string, kind: string, options: Intl.DateTimeFormatOptions, locale?: string): string {
+function format(
+  at: Instant,
+  timeZone: string,
+  kind: string,
+  options: Intl.DateTimeFormatOptions,
+  locale?: string,
+): string {
   const ms = toMs(at);
   if (Number.isNaN(ms)) return String(at);
   return formatter(kind, locale, options, timeZone).format(ms);
@@ -65,9 +77,17 @@ export function depotParts(at: Instant, timeZone: string): { date: string; time:
   const options: Intl.DateTimeFormatOptions = { year: 'numeric', month: '2-digit', day: '2-digit', ...CLOCK_OPTIONS };
   const ms = toMs(at);
   if (Number.isNaN(ms)) return { date: '', time: '', hour: 0 };
-  const parts = Object.fromEntries(formatter('parts', 'en-CA', options, timeZone).formatToParts(ms).map((p) => [p.type, p.value]));
+  const parts = Object.fromEntries(
+    formatter('parts', 'en-CA', options, timeZone)
+      .formatToParts(ms)
+      .map((p) => [p.type, p.value]),
+  );
   const hour = Number(parts['hour']) % 24;
-  return { date: `${parts['year']}-${parts['month']}-${parts['day']}`, time: `${String(hour).padStart(2, '0')}:${parts['minute']}`, hour };
+  return {
+    date: `${parts['year']}-${parts['month']}-${parts['day']}`,
+    time: `${String(hour).padStart(2, '0')}:${parts['minute']}`,
+    hour,
+  };
 }
 
 /** The depot's date at an instant, `YYYY-MM-DD`: "today at the depot" with the Clock's now. */
@@ -84,7 +104,9 @@ export function depotStamp(at: Instant, timeZone: string): string {
 /** The zone's short name at an instant: "CST", "CDT", "GMT+1". */
 export function zoneName(timeZone: string, at: Instant): string {
   const ms = toMs(at);
-  const parts = formatter('zone', 'en-US', { timeZoneName: 'short' }, timeZone).formatToParts(Number.isNaN(ms) ? 0 : ms);
+  const parts = formatter('zone', 'en-US', { timeZoneName: 'short' }, timeZone).formatToParts(
+    Number.isNaN(ms) ? 0 : ms,
+  );
   return parts.find((p) => p.type === 'timeZoneName')?.value ?? timeZone;
 }
 

@@ -11,7 +11,17 @@ export const errorBodySchema = z.object({
 export type ErrorBody = z.infer<typeof errorBodySchema>;
 
 export const ERROR_CODES = [
-  'bad_request', 'validation_failed', 'unauthenticated', 'forbidden', 'not_found', 'conflict',
-  'too_many_requests', 'payload_too_large', 'token_expired', 'idempotency_key_reused', 'internal', 'unavailable',
+  'bad_request',
+  'validation_failed',
+  'unauthenticated',
+  'forbidden',
+  'not_found',
+  'conflict',
+  'too_many_requests',
+  'payload_too_large',
+  'token_expired',
+  'idempotency_key_reused',
+  'internal',
+  'unavailable',
 ] as const;
 export type ErrorCode = (typeof ERROR_CODES)[number];

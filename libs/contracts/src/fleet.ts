@@ -3,8 +3,15 @@ import { lower, text } from './text';
 import { isoDate, localDateTimeSchema } from './dates';
 
 const positive = (what: string, max: number) =>
-  z.number({ error: `Enter ${lower(what)} as a number` }).gt(0, `${what} must be above 0`).max(max, `${what} looks too large (at most ${max})`);
-const pct = (what: string) => z.number({ error: `Enter ${lower(what)} as a number` }).min(0, `${what} is 0 to 100 %`).max(100, `${what} is 0 to 100 %`);
+  z
+    .number({ error: `Enter ${lower(what)} as a number` })
+    .gt(0, `${what} must be above 0`)
+    .max(max, `${what} looks too large (at most ${max})`);
+const pct = (what: string) =>
+  z
+    .number({ error: `Enter ${lower(what)} as a number` })
+    .min(0, `${what} is 0 to 100 %`)
+    .max(100, `${what} is 0 to 100 %`);
 
 export const busStatusSchema = z.enum(['active', 'out_of_service', 'retired']);
 
@@ -18,12 +25,22 @@ export const busInputSchema = z
     ceilingPct: pct('The departure ceiling').default(90),
     reservePct: pct('The reserve').default(15),
     /** Taper from: the state of charge (%) above which the battery takes power only slowly. */
-    taperStartPct: z.number({ error: 'Enter taper from as a % state of charge' })
-      .min(0, 'Taper from is 0 to 100 % state of charge').max(100, 'Taper from is 0 to 100 % state of charge').nullable().default(null),
+    taperStartPct: z
+      .number({ error: 'Enter taper from as a % state of charge' })
+      .min(0, 'Taper from is 0 to 100 % state of charge')
+      .max(100, 'Taper from is 0 to 100 % state of charge')
+      .nullable()
+      .default(null),
     status: busStatusSchema.default('active'),
   })
-  .refine((b) => b.reservePct < b.ceilingPct, { message: 'The reserve must be below the departure ceiling', path: ['reservePct'] })
-  .refine((b) => b.taperStartPct === null || b.taperStartPct < 100, { message: 'Taper from must be below 100 % state of charge', path: ['taperStartPct'] });
+  .refine((b) => b.reservePct < b.ceilingPct, {
+    message: 'The reserve must be below the departure ceiling',
+    path: ['reservePct'],
+  })
+  .refine((b) => b.taperStartPct === null || b.taperStartPct < 100, {
+    message: 'Taper from must be below 100 % state of charge',
+    path: ['taperStartPct'],
+  });
 export type BusInput = z.infer<typeof busInputSchema>;
 
 export const busSchema = z.object({
@@ -76,14 +93,19 @@ export const runInputSchema = z
     arrivalSocPct: pct('The state of charge on arrival').nullable().default(null),
   })
   .refine((r) => r.pullIn > r.pullOut, { message: 'The pull-in must be after the pull-out', path: ['pullIn'] })
-  .refine((r) => r.miles !== null || r.kwh !== null, { message: 'Give the run\'s miles or its energy (kWh)', path: ['miles'] });
+  .refine((r) => r.miles !== null || r.kwh !== null, {
+    message: "Give the run's miles or its energy (kWh)",
+    path: ['miles'],
+  });
 export type RunInput = z.infer<typeof runInputSchema>;
 
 /** Most runs one service day may hold (typed or uploaded): far above any depot's day. */
 export const MAX_RUNS_PER_DAY = 5000;
 
-export const forecastLowFSchema = z.number({ error: 'Enter the forecast low in °F' })
-  .min(-80, 'The forecast low is -80 to 130 °F').max(130, 'The forecast low is -80 to 130 °F');
+export const forecastLowFSchema = z
+  .number({ error: 'Enter the forecast low in °F' })
+  .min(-80, 'The forecast low is -80 to 130 °F')
+  .max(130, 'The forecast low is -80 to 130 °F');
 
 export const serviceDayInputSchema = z.strictObject({
   forecastLowF: forecastLowFSchema.nullable().default(null),

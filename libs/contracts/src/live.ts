@@ -23,13 +23,21 @@ export const liveEventSchema = z.discriminatedUnion('type', [
   z.object({ type: z.literal('charger'), at: z.iso.datetime({ offset: true }), charger: liveChargerSchema }),
   /** A plan was published, or a revision published after a report from the yard. */
   z.object({
-    type: z.literal('plan'), at: z.iso.datetime({ offset: true }), planId: z.uuid(), serviceDate: z.string(),
-    version: z.number().int(), kind: z.enum(['published', 'revised']),
+    type: z.literal('plan'),
+    at: z.iso.datetime({ offset: true }),
+    planId: z.uuid(),
+    serviceDate: z.string(),
+    version: z.number().int(),
+    kind: z.enum(['published', 'revised']),
   }),
   /** Something the yard reported (the revision that follows comes as a `plan` event). */
   z.object({
-    type: z.literal('notice'), at: z.iso.datetime({ offset: true }), kind: z.string(), text: z.string(),
-    charger: z.string().nullable(), bus: z.string().nullable(),
+    type: z.literal('notice'),
+    at: z.iso.datetime({ offset: true }),
+    kind: z.string(),
+    text: z.string(),
+    charger: z.string().nullable(),
+    bus: z.string().nullable(),
   }),
 ]);
 export type LiveEvent = z.infer<typeof liveEventSchema>;

@@ -22,7 +22,7 @@ describe('one rounding rule', () => {
 
   it('foots random columns to the cent, negatives included (fixed seed)', () => {
     let seed = 7;
-    const rnd = () => ((seed = (seed * 1103515245 + 12345) % 2 ** 31) / 2 ** 31);
+    const rnd = () => (seed = (seed * 1103515245 + 12345) % 2 ** 31) / 2 ** 31;
     for (let n = 0; n < 200; n++) {
       const values = Array.from({ length: 1 + Math.floor(rnd() * 30) }, () => (rnd() - 0.2) * 1000);
       const shown = footedCents(values);

@@ -29,7 +29,7 @@ const yardNight = (t: NightTarget): PageLink => ({
 const nightCosts = (t: NightTarget): PageLink => ({
   section: 'costs',
   path: `/costs/nights/${encodeURIComponent(t.planId)}`,
-  label: 'See the night\'s costs',
+  label: "See the night's costs",
 });
 
 /**

@@ -9,8 +9,11 @@ export const planJobStatusSchema = z.enum(['queued', 'running', 'done', 'failed'
  * never published, e-mailed or sent to chargers; adopting it makes a normal draft re-checked
  * against the depot as it is then.
  */
-export const planKindSchema = z.enum(['generated', 'what-if', 'revision'])
-  .describe('generated: from the depot\'s data; revision: re-planned from the yard\'s reports; what-if: a study from an uploaded scenario file, never published (adopt it instead)');
+export const planKindSchema = z
+  .enum(['generated', 'what-if', 'revision'])
+  .describe(
+    "generated: from the depot's data; revision: re-planned from the yard's reports; what-if: a study from an uploaded scenario file, never published (adopt it instead)",
+  );
 export type PlanKind = z.infer<typeof planKindSchema>;
 
 export const generatePlanSchema = z.strictObject({
@@ -38,7 +41,11 @@ export function baselineName(kind: string | null | undefined): string {
  */
 const baselineCostSchema = z.looseObject({
   kind: baselineKindSchema.optional(),
-  energy: z.number(), demand: z.number(), total: z.number(), peakKw: z.number(), exceedsSiteLimit: z.boolean(),
+  energy: z.number(),
+  demand: z.number(),
+  total: z.number(),
+  peakKw: z.number(),
+  exceedsSiteLimit: z.boolean(),
   shortfallKwh: z.number().optional(),
   shortfallCost: z.number().optional(),
 });
@@ -55,12 +62,19 @@ export const planResultSchema = z.looseObject({
   gap: z.number(),
   solveMs: z.number(),
   slots: z.array(z.object({ start: z.string(), loadKw: z.number(), price: z.number(), limitKw: z.number() })),
-  sessions: z.array(z.object({
-    bus: z.string(), charger: z.string(), start: z.string(), end: z.string(), kwh: z.number(), kw: z.array(z.number()),
-    /** Who plugs in and who unplugs: the driver on pulling in or out, or the yard crew (absent in older plans). */
-    startMove: z.enum(['driver', 'crew']).optional(),
-    endMove: z.enum(['driver', 'crew']).optional(),
-  })),
+  sessions: z.array(
+    z.object({
+      bus: z.string(),
+      charger: z.string(),
+      start: z.string(),
+      end: z.string(),
+      kwh: z.number(),
+      kw: z.array(z.number()),
+      /** Who plugs in and who unplugs: the driver on pulling in or out, or the yard crew (absent in older plans). */
+      startMove: z.enum(['driver', 'crew']).optional(),
+      endMove: z.enum(['driver', 'crew']).optional(),
+    }),
+  ),
   /** Plug-ins and unplugs the yard crew makes (absent in older plans). */
   crewMoves: z.number().optional(),
   /** Crew moves saved against the cheapest plan found, and their cost (within the depot's tolerance). */
@@ -70,21 +84,25 @@ export const planResultSchema = z.looseObject({
    * chargers out of service, the buses kept where they were, and the buses it moved from the
    * cut-off on and why, in words.
    */
-  replan: z.looseObject({
-    from: z.string().optional(),
-    outOfService: z.array(z.string()).optional(),
-    plugged: z.record(z.string(), z.string()).optional(),
-    moved: z.object({ buses: z.array(z.string()), reasons: z.array(z.string()) }).optional(),
-  }).optional(),
-  buses: z.array(z.object({
-    id: z.string(),
-    departures: z.array(z.object({ at: z.string(), kwh: z.number() })),
-    shortfallKwh: z.number(),
-    reason: z.string().nullable(),
-    /** The cause of a shortfall in words (times, what binds) and whether it is proven necessary. */
-    cause: z.string().nullable().optional(),
-    causeProven: z.boolean().nullable().optional(),
-  })),
+  replan: z
+    .looseObject({
+      from: z.string().optional(),
+      outOfService: z.array(z.string()).optional(),
+      plugged: z.record(z.string(), z.string()).optional(),
+      moved: z.object({ buses: z.array(z.string()), reasons: z.array(z.string()) }).optional(),
+    })
+    .optional(),
+  buses: z.array(
+    z.object({
+      id: z.string(),
+      departures: z.array(z.object({ at: z.string(), kwh: z.number() })),
+      shortfallKwh: z.number(),
+      reason: z.string().nullable(),
+      /** The cause of a shortfall in words (times, what binds) and whether it is proven necessary. */
+      cause: z.string().nullable().optional(),
+      causeProven: z.boolean().nullable().optional(),
+    }),
+  ),
 });
 /**
  * A stored plan as the API and the web read it: the schema's fields without the loose objects'
@@ -94,7 +112,9 @@ export const planResultSchema = z.looseObject({
 export type PlanResult = KnownFields<z.infer<typeof planResultSchema>>;
 type KnownFields<T> = T extends readonly (infer U)[]
   ? KnownFields<U>[]
-  : T extends object ? { [K in keyof T as string extends K ? never : K]: KnownFields<T[K]> } : T;
+  : T extends object
+    ? { [K in keyof T as string extends K ? never : K]: KnownFields<T[K]> }
+    : T;
 
 export const planSummarySchema = z.object({
   id: z.uuid(),
@@ -134,11 +154,13 @@ export type PlanDetail = z.infer<typeof planDetailSchema>;
 export const planComparisonSchema = z.object({
   from: z.object({ id: z.uuid(), version: z.number().int(), kind: planKindSchema }),
   to: z.object({ id: z.uuid(), version: z.number().int(), kind: planKindSchema }),
-  moved: z.array(z.object({
-    bus: z.string(),
-    before: z.string(),
-    after: z.string(),
-  })),
+  moved: z.array(
+    z.object({
+      bus: z.string(),
+      before: z.string(),
+      after: z.string(),
+    }),
+  ),
   costChange: z.number().nullable(),
 });
 export type PlanComparison = z.infer<typeof planComparisonSchema>;

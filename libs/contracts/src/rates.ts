@@ -13,7 +13,8 @@ export const dayTypeSchema = z.enum(DAY_TYPES);
 export type DayType = z.infer<typeof dayTypeSchema>;
 
 const money = (what: string, max: number, unit: string) =>
-  z.number({ error: `Enter ${lower(what)} as a number` })
+  z
+    .number({ error: `Enter ${lower(what)} as a number` })
     .min(0, `${what} cannot be negative`)
     .max(max, `${what} looks too large (at most ${max.toLocaleString('en-US')} ${unit})`);
 /** Physical ranges: an energy price above $100/kWh or a demand charge above $10,000/kW is a typo. */
@@ -26,7 +27,10 @@ const demandCharge = (what: string) => money(what, 10_000, 'per kW');
  */
 export const touWindowSchema = z
   .strictObject({
-    dayTypes: z.array(dayTypeSchema).min(1, 'Choose at least one day type').refine((d) => new Set(d).size === d.length, 'Each day type once'),
+    dayTypes: z
+      .array(dayTypeSchema)
+      .min(1, 'Choose at least one day type')
+      .refine((d) => new Set(d).size === d.length, 'Each day type once'),
     from: clockTimeSchema,
     to: clockTimeSchema,
   })
@@ -44,7 +48,11 @@ export const touPeriodSchema = z.strictObject({
 });
 export type TouPeriod = z.infer<typeof touPeriodSchema>;
 
-const month = z.number().int().min(1, 'Months are 1 (January) to 12 (December)').max(12, 'Months are 1 (January) to 12 (December)');
+const month = z
+  .number()
+  .int()
+  .min(1, 'Months are 1 (January) to 12 (December)')
+  .max(12, 'Months are 1 (January) to 12 (December)');
 
 /**
  * A block of the billing period's energy (tiered energy): the kWh of the period from the previous
@@ -52,24 +60,42 @@ const month = z.number().int().min(1, 'Months are 1 (January) to 12 (December)')
  * time-of-use price (negative for a declining block). Blocks are consumed in time order.
  */
 export const energyBlockSchema = z.strictObject({
-  uptoKwh: z.number({ error: 'Enter the block\'s end in kWh as a number' })
-    .positive('A block ends above 0 kWh').max(100_000_000, 'A block ends at most at 100,000,000 kWh a month').nullable(),
-  adder: z.number({ error: 'Enter the block\'s price change as a number' })
-    .min(-100, 'A block\'s price change is at least -$100 per kWh').max(100, 'A block\'s price change is at most $100 per kWh'),
+  uptoKwh: z
+    .number({ error: "Enter the block's end in kWh as a number" })
+    .positive('A block ends above 0 kWh')
+    .max(100_000_000, 'A block ends at most at 100,000,000 kWh a month')
+    .nullable(),
+  adder: z
+    .number({ error: "Enter the block's price change as a number" })
+    .min(-100, "A block's price change is at least -$100 per kWh")
+    .max(100, "A block's price change is at most $100 per kWh"),
 });
 export type EnergyBlock = z.infer<typeof energyBlockSchema>;
 
-const energyBlocksSchema = z.array(energyBlockSchema).max(12, 'At most 12 energy blocks').superRefine((blocks, ctx) => {
-  blocks.forEach((b, i) => {
-    const last = i === blocks.length - 1;
-    if (!last && b.uptoKwh === null) ctx.addIssue({ code: 'custom', path: [i, 'uptoKwh'], message: 'Only the last block can be open-ended' });
-    if (last && b.uptoKwh !== null) ctx.addIssue({ code: 'custom', path: [i, 'uptoKwh'], message: 'The last block covers every kWh above the one before: leave its end empty' });
-    const prev = blocks[i - 1]?.uptoKwh;
-    if (i > 0 && prev != null && b.uptoKwh !== null && b.uptoKwh <= prev) {
-      ctx.addIssue({ code: 'custom', path: [i, 'uptoKwh'], message: `Each block ends above the previous one (${prev} kWh)` });
-    }
+const energyBlocksSchema = z
+  .array(energyBlockSchema)
+  .max(12, 'At most 12 energy blocks')
+  .superRefine((blocks, ctx) => {
+    blocks.forEach((b, i) => {
+      const last = i === blocks.length - 1;
+      if (!last && b.uptoKwh === null)
+        ctx.addIssue({ code: 'custom', path: [i, 'uptoKwh'], message: 'Only the last block can be open-ended' });
+      if (last && b.uptoKwh !== null)
+        ctx.addIssue({
+          code: 'custom',
+          path: [i, 'uptoKwh'],
+          message: 'The last block covers every kWh above the one before: leave its end empty',
+        });
+      const prev = blocks[i - 1]?.uptoKwh;
+      if (i > 0 && prev != null && b.uptoKwh !== null && b.uptoKwh <= prev) {
+        ctx.addIssue({
+          code: 'custom',
+          path: [i, 'uptoKwh'],
+          message: `Each block ends above the previous one (${prev} kWh)`,
+        });
+      }
+    });
   });
-});
 
 export const seasonSchema = z.strictObject({
   name: text('The season name').trim().min(1, 'Name the season').max(60),
@@ -97,8 +123,15 @@ export const fixedChargeSchema = z.strictObject({
  * demand of the previous `months` billing periods.
  */
 export const demandRatchetSchema = z.strictObject({
-  percent: z.number({ error: 'Enter the ratchet percentage as a number' }).gt(0, 'The ratchet is above 0 %').max(100, 'The ratchet is at most 100 %'),
-  months: z.number({ error: 'Enter the ratchet\'s months as a number' }).int('Whole months').min(1, 'At least 1 previous month').max(36, 'At most 36 previous months'),
+  percent: z
+    .number({ error: 'Enter the ratchet percentage as a number' })
+    .gt(0, 'The ratchet is above 0 %')
+    .max(100, 'The ratchet is at most 100 %'),
+  months: z
+    .number({ error: "Enter the ratchet's months as a number" })
+    .int('Whole months')
+    .min(1, 'At least 1 previous month')
+    .max(36, 'At most 36 previous months'),
 });
 export type DemandRatchet = z.infer<typeof demandRatchetSchema>;
 
@@ -136,14 +169,31 @@ export function seasonMonths(s: { fromMonth: number; toMonth: number }): number[
   }
 }
 
-const MONTH_NAMES = ['January', 'February', 'March', 'April', 'May', 'June', 'July', 'August', 'September', 'October', 'November', 'December'];
+const MONTH_NAMES = [
+  'January',
+  'February',
+  'March',
+  'April',
+  'May',
+  'June',
+  'July',
+  'August',
+  'September',
+  'October',
+  'November',
+  'December',
+];
 
 function checkSeasonsCoverYear(seasons: Season[], ctx: z.RefinementCtx) {
   const owner = new Map<number, number>();
   seasons.forEach((s, i) => {
     for (const m of seasonMonths(s)) {
       if (owner.has(m)) {
-        ctx.addIssue({ code: 'custom', path: ['seasons', i, 'fromMonth'], message: `${MONTH_NAMES[m - 1]} is already in season "${seasons[owner.get(m)!]!.name}"` });
+        ctx.addIssue({
+          code: 'custom',
+          path: ['seasons', i, 'fromMonth'],
+          message: `${MONTH_NAMES[m - 1]} is already in season "${seasons[owner.get(m)!]!.name}"`,
+        });
       } else owner.set(m, i);
     }
   });
@@ -213,7 +263,10 @@ export const assignRatePlanSchema = z.strictObject({
 
 export const previewQuerySchema = z.strictObject({
   date: isoDate(),
-  timezone: text('The time zone').max(64).refine(isTimeZone, 'Choose an IANA time zone such as America/Chicago').optional(),
+  timezone: text('The time zone')
+    .max(64)
+    .refine(isTimeZone, 'Choose an IANA time zone such as America/Chicago')
+    .optional(),
 });
 
 /** One hour (or part, on clock-change days) of a previewed day. */

@@ -24,14 +24,14 @@ const rolesInput = z
 
 export const inviteUserRequestSchema = z.strictObject({
   email: emailSchema,
-  name: text('The name').trim().min(1, 'Enter the person\'s name').max(120),
+  name: text('The name').trim().min(1, "Enter the person's name").max(120),
   roles: rolesInput,
 });
 export type InviteUserRequest = z.infer<typeof inviteUserRequestSchema>;
 
 export const updateUserRequestSchema = z
   .strictObject({
-    name: text('The name').trim().min(1, 'Enter the person\'s name').max(120).optional(),
+    name: text('The name').trim().min(1, "Enter the person's name").max(120).optional(),
     roles: rolesInput.optional(),
     active: z.boolean().optional(),
   })

@@ -36,7 +36,11 @@ export type YardStep = z.infer<typeof yardStepSchema>;
 
 /** A plug-in as the yard sees it: which bus, which charger, from when to when, and how much energy. */
 export const yardSessionSchema = z.object({
-  bus: z.string(), charger: z.string(), start: z.string(), end: z.string(), kwh: z.number(),
+  bus: z.string(),
+  charger: z.string(),
+  start: z.string(),
+  end: z.string(),
+  kwh: z.number(),
   startMove: z.enum(['driver', 'crew']).optional(),
   endMove: z.enum(['driver', 'crew']).optional(),
 });
@@ -64,14 +68,23 @@ export const tonightSchema = z.object({
   steps: z.array(yardStepSchema),
   /** Has the caller acknowledged the high-voltage cautions for this night? */
   acknowledged: z.boolean(),
-  reports: z.array(z.object({
-    kind: z.string(), bus: z.string().nullable(), charger: z.string().nullable(), reason: z.string().nullable(),
-    reportedAt: z.string(), reportedBy: z.string().nullable(), revisionVersion: z.number().nullable(),
-  })),
+  reports: z.array(
+    z.object({
+      kind: z.string(),
+      bus: z.string().nullable(),
+      charger: z.string().nullable(),
+      reason: z.string().nullable(),
+      reportedAt: z.string(),
+      reportedBy: z.string().nullable(),
+      revisionVersion: z.number().nullable(),
+    }),
+  ),
 });
 export type Tonight = z.infer<typeof tonightSchema>;
 
-const clockTime = text('The time').trim().regex(/^([01]\d|2[0-3]):[0-5]\d$/, 'Enter the time as HH:mm (00:00 to 23:59)');
+const clockTime = text('The time')
+  .trim()
+  .regex(/^([01]\d|2[0-3]):[0-5]\d$/, 'Enter the time as HH:mm (00:00 to 23:59)');
 
 export const confirmStepSchema = z.strictObject({
   planId: z.uuid('Not a plan id'),
@@ -96,14 +109,34 @@ export const yardConfirmationSchema = z.object({
 const planRef = { planId: z.uuid('Not a plan id') };
 const busRef = text('The bus').trim().min(1, 'Choose the bus').max(20);
 
-export const yardReportSchema = z.discriminatedUnion('kind', [
-  z.strictObject({ ...planRef, kind: z.literal('bus_late'), bus: busRef, expectedAt: localDateTimeSchema }),
-  z.strictObject({ ...planRef, kind: z.literal('bus_absent'), bus: busRef, reason: text('The reason').trim().max(300).default('') }),
-  z.strictObject({ ...planRef, kind: z.literal('charger_out'), charger: text('The charger').trim().min(1, 'Choose the charger').max(40),
-    reason: text('The reason').trim().min(1, 'Say what is wrong with the charger').max(300) }),
-  z.strictObject({ ...planRef, kind: z.literal('soc_reading'), bus: busRef,
-    socPct: z.number({ error: 'Enter the state of charge in %' }).min(0, 'A state of charge is 0 to 100 %').max(100, 'A state of charge is 0 to 100 %') }),
-], { error: 'Choose what to report: bus_late, bus_absent, charger_out or soc_reading' });
+export const yardReportSchema = z.discriminatedUnion(
+  'kind',
+  [
+    z.strictObject({ ...planRef, kind: z.literal('bus_late'), bus: busRef, expectedAt: localDateTimeSchema }),
+    z.strictObject({
+      ...planRef,
+      kind: z.literal('bus_absent'),
+      bus: busRef,
+      reason: text('The reason').trim().max(300).default(''),
+    }),
+    z.strictObject({
+      ...planRef,
+      kind: z.literal('charger_out'),
+      charger: text('The charger').trim().min(1, 'Choose the charger').max(40),
+      reason: text('The reason').trim().min(1, 'Say what is wrong with the charger').max(300),
+    }),
+    z.strictObject({
+      ...planRef,
+      kind: z.literal('soc_reading'),
+      bus: busRef,
+      socPct: z
+        .number({ error: 'Enter the state of charge in %' })
+        .min(0, 'A state of charge is 0 to 100 %')
+        .max(100, 'A state of charge is 0 to 100 %'),
+    }),
+  ],
+  { error: 'Choose what to report: bus_late, bus_absent, charger_out or soc_reading' },
+);
 export type YardReport = z.infer<typeof yardReportSchema>;
 
 export const yardReportResultSchema = z.object({

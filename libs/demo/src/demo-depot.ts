@@ -21,9 +21,7 @@ export const demoDepot = {
   timezone: 'America/Chicago',
   serviceLimitKw: 450,
   // Office, workshop and yard lighting: higher by day, lower at night (kW for hours 0-23).
-  otherLoadProfileKw: [
-    22, 22, 22, 22, 22, 24, 30, 38, 44, 46, 46, 46, 46, 46, 46, 44, 40, 34, 28, 26, 24, 24, 22, 22,
-  ],
+  otherLoadProfileKw: [22, 22, 22, 22, 22, 24, 30, 38, 44, 46, 46, 46, 46, 46, 46, 44, 40, 34, 28, 26, 24, 24, 22, 22],
   billingStartDay: 1,
   // As many depots staff it: an evening crew and an early-morning crew, no one from 23:30 to 04:30.
   yardCrew: {
@@ -84,8 +82,18 @@ export const demoRatePlan = {
         offPeakPrice: 0.075,
         facilityDemandCharge: 7.5,
         periods: [
-          { name: 'on-peak', price: 0.24, demandCharge: 16, windows: [{ dayTypes: ['weekday'], from: '15:00', to: '20:00' }] },
-          { name: 'mid-peak', price: 0.13, demandCharge: 0, windows: [{ dayTypes: ['weekday'], from: '08:00', to: '15:00' }] },
+          {
+            name: 'on-peak',
+            price: 0.24,
+            demandCharge: 16,
+            windows: [{ dayTypes: ['weekday'], from: '15:00', to: '20:00' }],
+          },
+          {
+            name: 'mid-peak',
+            price: 0.13,
+            demandCharge: 0,
+            windows: [{ dayTypes: ['weekday'], from: '08:00', to: '15:00' }],
+          },
         ],
         energyBlocks: [],
       },
@@ -96,8 +104,18 @@ export const demoRatePlan = {
         offPeakPrice: 0.068,
         facilityDemandCharge: 7.5,
         periods: [
-          { name: 'on-peak', price: 0.18, demandCharge: 9, windows: [{ dayTypes: ['weekday'], from: '16:00', to: '20:00' }] },
-          { name: 'mid-peak', price: 0.11, demandCharge: 0, windows: [{ dayTypes: ['weekday'], from: '07:00', to: '16:00' }] },
+          {
+            name: 'on-peak',
+            price: 0.18,
+            demandCharge: 9,
+            windows: [{ dayTypes: ['weekday'], from: '16:00', to: '20:00' }],
+          },
+          {
+            name: 'mid-peak',
+            price: 0.11,
+            demandCharge: 0,
+            windows: [{ dayTypes: ['weekday'], from: '07:00', to: '16:00' }],
+          },
         ],
         energyBlocks: [],
       },
@@ -113,7 +131,9 @@ export const demoRatePlan = {
  * A school day's runs for bus index i (0-23): a morning run, a midday layover at the depot and an
  * afternoon run. Deterministic so every seed gives the same week. Times are local wall-clock.
  */
-export function demoRunsForBus(i: number): { pullOut: string; pullIn: string; miles: number; arrivalSocPct?: number }[] {
+export function demoRunsForBus(
+  i: number,
+): { pullOut: string; pullIn: string; miles: number; arrivalSocPct?: number }[] {
   const stagger = (i * 7) % 50; // minutes, spreads pull-outs over 06:00-06:50
   const morningOut = 6 * 60 + stagger;
   const morningMiles = 24 + ((i * 13) % 19); // 24-42 miles
@@ -124,7 +144,12 @@ export function demoRunsForBus(i: number): { pullOut: string; pullIn: string; mi
   const hhmm = (m: number) => `${String(Math.floor(m / 60)).padStart(2, '0')}:${String(m % 60).padStart(2, '0')}`;
   return [
     { pullOut: hhmm(morningOut), pullIn: hhmm(morningIn), miles: morningMiles },
-    { pullOut: hhmm(afternoonOut), pullIn: hhmm(afternoonIn), miles: afternoonMiles, arrivalSocPct: 28 + ((i * 19) % 33) },
+    {
+      pullOut: hhmm(afternoonOut),
+      pullIn: hhmm(afternoonIn),
+      miles: afternoonMiles,
+      arrivalSocPct: 28 + ((i * 19) % 33),
+    },
   ];
 }
 

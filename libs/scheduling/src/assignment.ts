@@ -43,7 +43,12 @@ export function usablePower(problem: Problem, stay: Stay, charger: number): numb
 }
 
 /** Stays on a charger are served in the order the lower bound charges them (then departure). */
-export function sortSequence(problem: Problem, hints: AssignmentHints, seq: number[], by: 'centre' | 'departure' = 'centre'): void {
+export function sortSequence(
+  problem: Problem,
+  hints: AssignmentHints,
+  seq: number[],
+  by: 'centre' | 'departure' = 'centre',
+): void {
   seq.sort((x, y) => {
     const a = problem.stays[x]!;
     const b = problem.stays[y]!;
@@ -86,7 +91,9 @@ export function layoutCharger(problem: Problem, hints: AssignmentHints, assignme
     if (hints.handover !== 'share') {
       // Leave each of the two stays the slots it needs at full power, where that is possible.
       const needA = Math.ceil(hints.energy[s.id]! / (usablePower(problem, s, charger) * problem.slotHours) - 1e-9);
-      const needB = Math.ceil(hints.energy[next.id]! / (usablePower(problem, next, charger) * problem.slotHours) - 1e-9);
+      const needB = Math.ceil(
+        hints.energy[next.id]! / (usablePower(problem, next, charger) * problem.slotHours) - 1e-9,
+      );
       const lo2 = Math.max(lo, start + needA);
       const hi2 = Math.min(hi, next.departSlot - needB);
       if (lo2 <= hi2) {
@@ -96,23 +103,23 @@ export function layoutCharger(problem: Problem, hints: AssignmentHints, assignme
     }
     h = Math.min(Math.max(h, lo), hi);
     if (hints.handover !== 'share') {
-    // Prefer the hand-over that cuts least of the two stays' charging in the lower bound.
-    const pa = hints.power[s.bus]!;
-    const pb = hints.power[next.bus]!;
-    let lost = 0;
-    for (let t = lo; t < Math.min(s.departSlot, T); t++) lost += pa[t]!;
-    let bestLost = Infinity;
-    let bestH = h;
-    for (let x = lo; x <= hi; x++) {
-      const score = lost + 1e-6 * Math.abs(x - h);
-      if (score < bestLost - 1e-12) {
-        bestLost = score;
-        bestH = x;
+      // Prefer the hand-over that cuts least of the two stays' charging in the lower bound.
+      const pa = hints.power[s.bus]!;
+      const pb = hints.power[next.bus]!;
+      let lost = 0;
+      for (let t = lo; t < Math.min(s.departSlot, T); t++) lost += pa[t]!;
+      let bestLost = Infinity;
+      let bestH = h;
+      for (let x = lo; x <= hi; x++) {
+        const score = lost + 1e-6 * Math.abs(x - h);
+        if (score < bestLost - 1e-12) {
+          bestLost = score;
+          bestH = x;
+        }
+        if (x < s.departSlot) lost -= pa[x]!;
+        if (x >= next.arriveSlot) lost += pb[x]!;
       }
-      if (x < s.departSlot) lost -= pa[x]!;
-      if (x >= next.arriveSlot) lost += pb[x]!;
-    }
-    h = bestH;
+      h = bestH;
     }
     assignment.from[s.id] = Math.min(start, s.departSlot);
     assignment.to[s.id] = Math.max(Math.min(h, s.departSlot), assignment.from[s.id]!);
@@ -150,7 +157,12 @@ function permutations(xs: number[]): number[][] {
  * Orders a charger's stays and places the hand-overs: every order for a few stays, a handful
  * of natural orders for more; the one whose windows fit the stays' energy best wins.
  */
-export function arrangeCharger(problem: Problem, hints: AssignmentHints, assignment: Assignment, charger: number): void {
+export function arrangeCharger(
+  problem: Problem,
+  hints: AssignmentHints,
+  assignment: Assignment,
+  charger: number,
+): void {
   const seq = assignment.sequence[charger]!;
   if (hints.order !== 'best') {
     sortSequence(problem, hints, seq, 'departure');
@@ -167,8 +179,12 @@ export function arrangeCharger(problem: Problem, hints: AssignmentHints, assignm
       ? permutations(seq)
       : [
           seq.slice().sort((x, y) => hints.centre[x]! - hints.centre[y]! || x - y),
-          seq.slice().sort((x, y) => st[x]!.departSlot - st[y]!.departSlot || st[x]!.arriveSlot - st[y]!.arriveSlot || x - y),
-          seq.slice().sort((x, y) => st[x]!.arriveSlot - st[y]!.arriveSlot || st[x]!.departSlot - st[y]!.departSlot || x - y),
+          seq
+            .slice()
+            .sort((x, y) => st[x]!.departSlot - st[y]!.departSlot || st[x]!.arriveSlot - st[y]!.arriveSlot || x - y),
+          seq
+            .slice()
+            .sort((x, y) => st[x]!.arriveSlot - st[y]!.arriveSlot || st[x]!.departSlot - st[y]!.departSlot || x - y),
         ];
   let best: number[] = candidates[0]!;
   let bestScore = Infinity;
@@ -213,7 +229,13 @@ export function initialAssignment(problem: Problem, hints: AssignmentHints): Ass
   };
   const dt = problem.slotHours;
   const jobs = problem.stays.filter((s) => s.departSlot > s.arriveSlot && hints.energy[s.id]! > 1e-6);
-  jobs.sort((x, y) => x.departSlot - y.departSlot || x.arriveSlot - y.arriveSlot || hints.energy[y.id]! - hints.energy[x.id]! || x.id - y.id);
+  jobs.sort(
+    (x, y) =>
+      x.departSlot - y.departSlot ||
+      x.arriveSlot - y.arriveSlot ||
+      hints.energy[y.id]! - hints.energy[x.id]! ||
+      x.id - y.id,
+  );
   const free = new Int32Array(problem.chargers.length);
   for (const job of jobs) {
     let best = -1;

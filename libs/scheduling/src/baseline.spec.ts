@@ -9,7 +9,15 @@ import { generateDepot } from './testing/generate-depot.js';
 // worked by hand on nights small enough to follow: 15-minute slots, efficiency 1, so a bus at
 // P kW gains P/4 kWh a slot.
 
-function night(over: { site?: Record<string, unknown>; chargers?: unknown[]; cabinets?: unknown[]; tariff?: Record<string, unknown>; depart?: string } = {}) {
+function night(
+  over: {
+    site?: Record<string, unknown>;
+    chargers?: unknown[];
+    cabinets?: unknown[];
+    tariff?: Record<string, unknown>;
+    depart?: string;
+  } = {},
+) {
   const input = {
     version: 1,
     timezone: 'America/Chicago',
@@ -19,10 +27,23 @@ function night(over: { site?: Record<string, unknown>; chargers?: unknown[]; cab
     efficiency: 1,
     site: { limitKw: 1000, otherLoadKw: 0, ...over.site },
     cabinets: over.cabinets ?? [],
-    chargers: over.chargers ?? [{ id: 'C1', maxKw: 100 }, { id: 'C2', maxKw: 100 }],
-    tariff: { currency: 'USD', offPeakPrice: 0.1, periods: [], facilityDemandCharge: 10, peaksSoFarKw: {}, ...over.tariff },
+    chargers: over.chargers ?? [
+      { id: 'C1', maxKw: 100 },
+      { id: 'C2', maxKw: 100 },
+    ],
+    tariff: {
+      currency: 'USD',
+      offPeakPrice: 0.1,
+      periods: [],
+      facilityDemandCharge: 10,
+      peaksSoFarKw: {},
+      ...over.tariff,
+    },
     buses: ['B1', 'B2'].map((id) => ({
-      id, usableKwh: 300, maxKw: 100, arrivalKwh: 50,
+      id,
+      usableKwh: 300,
+      maxKw: 100,
+      arrivalKwh: 50,
       stays: [{ arrive: '2026-01-13T22:00', depart: over.depart ?? '2026-01-14T06:00', departMinKwh: 250 }],
     })),
   } as ScenarioInput;
@@ -32,7 +53,8 @@ function night(over: { site?: Record<string, unknown>; chargers?: unknown[]; cab
 }
 /** Both buses to leave with 250 kWh: 200 kWh each to deliver. */
 const TARGETS = [[250], [250]];
-const slotOf = (problem: ReturnType<typeof night>, local: string) => problem.slots.findIndex((s) => s.start.startsWith(`2026-01-${local}`));
+const slotOf = (problem: ReturnType<typeof night>, local: string) =>
+  problem.slots.findIndex((s) => s.start.startsWith(`2026-01-${local}`));
 
 describe('charge on arrival', () => {
   it('shares the service limit in proportion: 150 kW for two buses is 75 kW each until each has 200 kWh', () => {
@@ -50,8 +72,14 @@ describe('charge on arrival', () => {
     expect(b.exceedsSiteLimit).toBe(false);
   });
 
-  it('stays under a load-reduction window net of the building\'s load', () => {
-    const p = night({ site: { limitKw: 1000, otherLoadKw: 10, limitWindows: [{ from: '2026-01-13T22:00', to: '2026-01-13T23:00', limitKw: 150 }] } });
+  it("stays under a load-reduction window net of the building's load", () => {
+    const p = night({
+      site: {
+        limitKw: 1000,
+        otherLoadKw: 10,
+        limitWindows: [{ from: '2026-01-13T22:00', to: '2026-01-13T23:00', limitKw: 150 }],
+      },
+    });
     const b = limitedBaseline(p, TARGETS, 'arrival');
     const from = slotOf(p, '13T22:00');
     // Inside the window 140 kW is left for charging; after it each bus takes its 100 kW.
@@ -61,7 +89,13 @@ describe('charge on arrival', () => {
   });
 
   it('a cabinet shares its limit the same way: 120 kW is 60 kW each', () => {
-    const p = night({ cabinets: [{ id: 'K1', limitKw: 120 }], chargers: [{ id: 'C1', maxKw: 100, cabinet: 'K1' }, { id: 'C2', maxKw: 100, cabinet: 'K1' }] });
+    const p = night({
+      cabinets: [{ id: 'K1', limitKw: 120 }],
+      chargers: [
+        { id: 'C1', maxKw: 100, cabinet: 'K1' },
+        { id: 'C2', maxKw: 100, cabinet: 'K1' },
+      ],
+    });
     const b = limitedBaseline(p, TARGETS, 'arrival');
     expect(b.chargingKw[slotOf(p, '13T22:00')]).toBeCloseTo(120, 9);
     expect(b.peakKw).toBeCloseTo(120, 9);
@@ -91,7 +125,17 @@ describe('charge on arrival', () => {
 
 describe('timer', () => {
   // On-peak 0.30 $/kWh until midnight, off-peak 0.10 after: the cheapest window opens at 00:00.
-  const tou = { offPeakPrice: 0.1, periods: [{ name: 'on-peak', price: 0.3, demandCharge: 0, windows: [{ days: [1, 2, 3, 4, 5, 6, 7], from: '12:00', to: '24:00' }] }] };
+  const tou = {
+    offPeakPrice: 0.1,
+    periods: [
+      {
+        name: 'on-peak',
+        price: 0.3,
+        demandCharge: 0,
+        windows: [{ days: [1, 2, 3, 4, 5, 6, 7], from: '12:00', to: '24:00' }],
+      },
+    ],
+  };
 
   it('starts no charging before the cheapest window opens, then charges as on arrival', () => {
     const p = night({ site: { limitKw: 150 }, tariff: tou });
@@ -115,26 +159,32 @@ describe('timer', () => {
 });
 
 describe('both baselines on generated depots', () => {
-  it.each([3, 5, 8])('seed %i: inside every slot\'s limit, never more than the plan delivers, and the plan saves against the reference', async (seed) => {
-    const input = generateDepot({ buses: 18, seed, chargers: 8 });
-    const parsed = parseScenario(input);
-    if (!parsed.ok) throw new Error('bad depot');
-    const plan = await planScenario(parsed.scenario, { maxMoves: 40 });
-    const problem = prepareProblem(parsed.scenario);
-    const targets = problem.buses.map((bus) => bus.stays.map((_, k) => plan.buses[bus.index]!.departures[k]!.kwh));
-    for (const kind of ['arrival', 'timer'] as const) {
-      const b = limitedBaseline(problem, targets, kind);
-      problem.slots.forEach((s, t) => expect(b.chargingKw[t]! + s.otherKw).toBeLessThanOrEqual(s.limitKw + 1e-6));
-      const delivered = b.chargingKw.reduce((a, kw) => a + kw * problem.slotHours * problem.eta, 0);
-      const planned = plan.slots.reduce((a, s, t) => a + (s.loadKw - problem.slots[t]!.otherKw) * problem.slotHours * problem.eta, 0);
-      expect(delivered).toBeLessThanOrEqual(planned + 0.05);
-      // A stay left short needs more in the next one, so the shortfall covers at least the difference.
-      expect(delivered + b.shortfallKwh).toBeGreaterThanOrEqual(planned - 0.05);
-      const reported = plan.baselines[kind];
-      expect(reported.total).toBeCloseTo(reported.energy + reported.demand + reported.shortfallCost, 4);
-    }
-    // The plan's cost never exceeds the reference's (the optimiser could always copy it).
-    expect(plan.cost.total).toBeLessThanOrEqual(plan.baseline.total + 1e-6);
-    expect(plan.savings.total).toBeCloseTo(plan.baseline.total - plan.cost.total, 4);
-  });
+  it.each([3, 5, 8])(
+    "seed %i: inside every slot's limit, never more than the plan delivers, and the plan saves against the reference",
+    async (seed) => {
+      const input = generateDepot({ buses: 18, seed, chargers: 8 });
+      const parsed = parseScenario(input);
+      if (!parsed.ok) throw new Error('bad depot');
+      const plan = await planScenario(parsed.scenario, { maxMoves: 40 });
+      const problem = prepareProblem(parsed.scenario);
+      const targets = problem.buses.map((bus) => bus.stays.map((_, k) => plan.buses[bus.index]!.departures[k]!.kwh));
+      for (const kind of ['arrival', 'timer'] as const) {
+        const b = limitedBaseline(problem, targets, kind);
+        problem.slots.forEach((s, t) => expect(b.chargingKw[t]! + s.otherKw).toBeLessThanOrEqual(s.limitKw + 1e-6));
+        const delivered = b.chargingKw.reduce((a, kw) => a + kw * problem.slotHours * problem.eta, 0);
+        const planned = plan.slots.reduce(
+          (a, s, t) => a + (s.loadKw - problem.slots[t]!.otherKw) * problem.slotHours * problem.eta,
+          0,
+        );
+        expect(delivered).toBeLessThanOrEqual(planned + 0.05);
+        // A stay left short needs more in the next one, so the shortfall covers at least the difference.
+        expect(delivered + b.shortfallKwh).toBeGreaterThanOrEqual(planned - 0.05);
+        const reported = plan.baselines[kind];
+        expect(reported.total).toBeCloseTo(reported.energy + reported.demand + reported.shortfallCost, 4);
+      }
+      // The plan's cost never exceeds the reference's (the optimiser could always copy it).
+      expect(plan.cost.total).toBeLessThanOrEqual(plan.baseline.total + 1e-6);
+      expect(plan.savings.total).toBeCloseTo(plan.baseline.total - plan.cost.total, 4);
+    },
+  );
 });

@@ -44,7 +44,11 @@ export type BaselineKind = 'arrival' | 'timer';
  * When limits bind, power is shared in proportion to what each bus would take (cabinet first,
  * then the site). `targetKwh[bus][stay]` is the plan's battery energy at each departure.
  */
-export function limitedBaseline(problem: Problem, targetKwh: readonly (readonly number[])[], kind: BaselineKind): Baseline {
+export function limitedBaseline(
+  problem: Problem,
+  targetKwh: readonly (readonly number[])[],
+  kind: BaselineKind,
+): Baseline {
   const { slotCount: T, slotHours: dt, eta } = problem;
   const energy = problem.buses.map((b) => b.arrivalKwh);
   const power = problem.buses.map(() => new Float64Array(T));
@@ -53,8 +57,12 @@ export function limitedBaseline(problem: Problem, targetKwh: readonly (readonly 
   const queue: number[] = [];
   const charging = new Float64Array(T);
   let shortfall = 0;
-  const opensAt = problem.stays.map((stay) => (kind === 'timer' ? cheapestWindowOpens(problem, stay.arriveSlot, stay.departSlot) : stay.arriveSlot));
-  const starts = problem.stays.slice().sort((x, y) => opensAt[x.id]! - opensAt[y.id]! || x.arriveMs - y.arriveMs || x.bus - y.bus);
+  const opensAt = problem.stays.map((stay) =>
+    kind === 'timer' ? cheapestWindowOpens(problem, stay.arriveSlot, stay.departSlot) : stay.arriveSlot,
+  );
+  const starts = problem.stays
+    .slice()
+    .sort((x, y) => opensAt[x.id]! - opensAt[y.id]! || x.arriveMs - y.arriveMs || x.bus - y.bus);
   let next = 0;
   // Most a bus takes in a slot: its own acceptance, capped at what is left to its target.
   const wants = (b: number, cap: number) => {
@@ -128,8 +136,18 @@ export function limitedBaseline(problem: Problem, targetKwh: readonly (readonly 
 
   const cost = costLoad(problem.slots, charging, problem.tariff, dt);
   let exceeds = false;
-  for (let t = 0; t < T; t++) if (charging[t]! + problem.slots[t]!.otherKw > problem.slots[t]!.limitKw + 1e-6) exceeds = true;
-  return { kind, eta, cost, chargingKw: charging, power, peakKw: cost.peakKw, exceedsSiteLimit: exceeds, shortfallKwh: shortfall };
+  for (let t = 0; t < T; t++)
+    if (charging[t]! + problem.slots[t]!.otherKw > problem.slots[t]!.limitKw + 1e-6) exceeds = true;
+  return {
+    kind,
+    eta,
+    cost,
+    chargingKw: charging,
+    power,
+    peakKw: cost.peakKw,
+    exceedsSiteLimit: exceeds,
+    shortfallKwh: shortfall,
+  };
 }
 
 /** The first slot of [a, d) at the lowest price in it (a when the stay has no slot). */

@@ -22,10 +22,16 @@ async function plan(input: ScenarioInput) {
 
 describe('the yard crew', () => {
   it('reads the yard settings and names a bad crew window', () => {
-    const bad = parseScenario({ ...generateDepot({ buses: 2, seed: 1 }), yard: { ...yard, crew: [{ from: '2026-01-14T23:00', to: '2026-01-14T22:00', movesPerSlot: 0 }] } });
+    const bad = parseScenario({
+      ...generateDepot({ buses: 2, seed: 1 }),
+      yard: { ...yard, crew: [{ from: '2026-01-14T23:00', to: '2026-01-14T22:00', movesPerSlot: 0 }] },
+    });
     expect(bad.ok).toBe(false);
     if (!bad.ok) expect(bad.problems.map((p) => p.path)).toEqual(expect.arrayContaining(['yard.crew[0].movesPerSlot']));
-    const later = parseScenario({ ...generateDepot({ buses: 2, seed: 1 }), yard: { ...yard, crew: [{ from: '2026-01-14T23:00', to: '2026-01-14T22:00', movesPerSlot: 1 }] } });
+    const later = parseScenario({
+      ...generateDepot({ buses: 2, seed: 1 }),
+      yard: { ...yard, crew: [{ from: '2026-01-14T23:00', to: '2026-01-14T22:00', movesPerSlot: 1 }] },
+    });
     expect(later.ok).toBe(false);
     if (!later.ok) expect(later.problems[0]!.path).toBe('yard.crew[0].to');
   });
@@ -47,16 +53,24 @@ describe('the yard crew', () => {
     }
     // No one in the yard from 23:30 to 04:30: no move there.
     for (const s of p.sessions) {
-      for (const [move, at] of [[s.startMove, s.start], [s.endMove, s.end]] as const) {
+      for (const [move, at] of [
+        [s.startMove, s.start],
+        [s.endMove, s.end],
+      ] as const) {
         if (move !== 'crew') continue;
         const ms = Date.parse(at);
-        expect(ms < Date.parse('2026-01-14T23:30:00-06:00') || ms >= Date.parse('2026-01-15T04:30:00-06:00')).toBe(true);
+        expect(ms < Date.parse('2026-01-14T23:30:00-06:00') || ms >= Date.parse('2026-01-15T04:30:00-06:00')).toBe(
+          true,
+        );
       }
     }
   });
 
   it('without crew windows moves are unlimited, but each is still named and counted', async () => {
-    const input = { ...generateDepot({ buses: 10, chargers: 3, seed: 7 }), yard: { minPlugInMinutes: 60, driversPlugIn: false } };
+    const input = {
+      ...generateDepot({ buses: 10, chargers: 3, seed: 7 }),
+      yard: { minPlugInMinutes: 60, driversPlugIn: false },
+    };
     const p = await plan(input);
     expect(checkPlan(input, p)).toEqual([]);
     expect(p.crewMoves).toBeGreaterThan(0);
@@ -72,7 +86,10 @@ describe('the yard crew', () => {
 
   it('trades cost for fewer crew moves only within the tolerance, and says so', async () => {
     for (const seed of [1, 2, 3]) {
-      const input = { ...generateDepot({ buses: 14, chargers: 4, seed }), yard: { ...yard, costTolerancePercent: 2, costToleranceAmount: 20 } };
+      const input = {
+        ...generateDepot({ buses: 14, chargers: 4, seed }),
+        yard: { ...yard, costTolerancePercent: 2, costToleranceAmount: 20 },
+      };
       const p = await plan(input);
       expect(checkPlan(input, p)).toEqual([]);
       if (p.crewTrade) {
@@ -90,15 +107,29 @@ describe('the yard crew', () => {
     const cutMs = Date.parse('2026-01-14T22:00:00-06:00');
     const failed = before.sessions.find((s) => Date.parse(s.end) > cutMs)!.charger;
     const plugged = Object.fromEntries(
-      before.sessions.filter((s) => s.charger !== failed && Date.parse(s.start) < cutMs && Date.parse(s.end) > cutMs).map((s) => [s.bus, s.charger]),
+      before.sessions
+        .filter((s) => s.charger !== failed && Date.parse(s.start) < cutMs && Date.parse(s.end) > cutMs)
+        .map((s) => [s.bus, s.charger]),
     );
-    const r = await replan(parsed.scenario, { now: '2026-01-14T22:00', outOfService: [failed], previous: before, plugged });
+    const r = await replan(parsed.scenario, {
+      now: '2026-01-14T22:00',
+      outOfService: [failed],
+      previous: before,
+      plugged,
+    });
     expect(checkPlan(r.replan.scenario, r, { plugged })).toEqual([]);
     expect(r.replan.moved.reasons[0]).toMatch(new RegExp(`^charger ${failed} out of service: \\d+ bus`));
-    const onIt = new Set(before.sessions.filter((s) => s.charger === failed && Date.parse(s.end) > cutMs).map((s) => s.bus));
+    const onIt = new Set(
+      before.sessions.filter((s) => s.charger === failed && Date.parse(s.end) > cutMs).map((s) => s.bus),
+    );
     // Kept where it could be: the buses on the failed charger, and few others.
     expect(r.replan.moved.buses.length).toBeLessThanOrEqual(onIt.size + 4);
-    const again = await replan(parsed.scenario, { now: '2026-01-14T22:00', outOfService: [failed], previous: before, plugged });
+    const again = await replan(parsed.scenario, {
+      now: '2026-01-14T22:00',
+      outOfService: [failed],
+      previous: before,
+      plugged,
+    });
     expect(again.sessions).toEqual(r.sessions);
   });
 });

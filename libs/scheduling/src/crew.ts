@@ -41,14 +41,28 @@ export function minWindow(problem: Problem, stay: Stay): number {
  * elsewhere). Capacity is taken charger by charger, in charger order, so the result is the same
  * for the same input. Changes the assignment in place and returns it.
  */
-export function fitCrew(problem: Problem, assignment: Assignment, energy?: Float64Array, fewerMoves = false): Assignment {
+export function fitCrew(
+  problem: Problem,
+  assignment: Assignment,
+  energy?: Float64Array,
+  fewerMoves = false,
+): Assignment {
   const yard = problem.yard;
   if (!yard) return assignment;
   const used = new Int32Array(problem.slotCount + 1);
   const dropped: number[] = [];
   const taken: number[][] = problem.chargers.map(() => []);
   for (const charger of problem.chargers) {
-    const res = fitCharger(problem, assignment, charger.index, assignment.sequence[charger.index]!, used, false, energy, fewerMoves);
+    const res = fitCharger(
+      problem,
+      assignment,
+      charger.index,
+      assignment.sequence[charger.index]!,
+      used,
+      false,
+      energy,
+      fewerMoves,
+    );
     taken[charger.index] = res.taken;
     for (const id of res.dropped) dropped.push(id);
   }
@@ -60,7 +74,12 @@ export function fitCrew(problem: Problem, assignment: Assignment, energy?: Float
     const order = problem.chargers
       .filter((c) => c.available[Math.min(stay.arriveSlot, problem.slotCount - 1)])
       .map((c) => c.index)
-      .sort((x, y) => assignment.sequence[x]!.length - assignment.sequence[y]!.length || problem.chargers[y]!.maxKw - problem.chargers[x]!.maxKw || x - y);
+      .sort(
+        (x, y) =>
+          assignment.sequence[x]!.length - assignment.sequence[y]!.length ||
+          problem.chargers[y]!.maxKw - problem.chargers[x]!.maxKw ||
+          x - y,
+      );
     let placed = false;
     for (const c of order.slice(0, 40)) {
       const seq = assignment.sequence[c]!;
@@ -104,7 +123,13 @@ export function fitCrew(problem: Problem, assignment: Assignment, energy?: Float
  * of the moves taken.
  */
 function fitCharger(
-  problem: Problem, assignment: Assignment, c: number, sequence: number[], used: Int32Array, dryRun = false, energy?: Float64Array,
+  problem: Problem,
+  assignment: Assignment,
+  c: number,
+  sequence: number[],
+  used: Int32Array,
+  dryRun = false,
+  energy?: Float64Array,
   fewerMoves = false,
 ): { dropped: number[]; taken: number[] } {
   const yard = problem.yard!;
@@ -148,7 +173,12 @@ function fitCharger(
     let best = -1;
     for (let t = fromP + minWindow(problem, p); t <= p.departSlot; t++) {
       if (!endIsFree(problem, p, t) && room(t) < 1) continue;
-      if (best < 0 || Math.abs(t - wanted) < Math.abs(best - wanted) || (Math.abs(t - wanted) === Math.abs(best - wanted) && endIsFree(problem, p, t))) best = t;
+      if (
+        best < 0 ||
+        Math.abs(t - wanted) < Math.abs(best - wanted) ||
+        (Math.abs(t - wanted) === Math.abs(best - wanted) && endIsFree(problem, p, t))
+      )
+        best = t;
     }
     if (best < 0) {
       drop(cur);
@@ -163,7 +193,11 @@ function fitCharger(
   for (const id of sequence) {
     const s = stays[id]!;
     const pinned = problem.pinned !== undefined && problem.pinned[id]! >= 0;
-    if (s.departSlot <= s.arriveSlot || (!pinned && assignment.to[id]! <= assignment.from[id]!) || !charger.available[Math.min(Math.max(assignment.from[id]!, s.arriveSlot), T - 1)]) {
+    if (
+      s.departSlot <= s.arriveSlot ||
+      (!pinned && assignment.to[id]! <= assignment.from[id]!) ||
+      !charger.available[Math.min(Math.max(assignment.from[id]!, s.arriveSlot), T - 1)]
+    ) {
       drop(id);
       continue;
     }
@@ -220,11 +254,15 @@ function fitCharger(
       if (energy) {
         // At 85 % of full power: the taper near the top of the battery takes the rest.
         const slotKwh = (x: Stay) => 0.85 * Math.min(problem.buses[x.bus]!.maxKw, charger.maxKw) * problem.slotHours;
-        lack = Math.max(0, energy[p.id]! - slotKwh(p) * (toP - fromP)) + Math.max(0, energy[s.id]! - slotKwh(s) * (s.departSlot - fromS));
+        lack =
+          Math.max(0, energy[p.id]! - slotKwh(p) * (toP - fromP)) +
+          Math.max(0, energy[s.id]! - slotKwh(s) * (s.departSlot - fromS));
       }
       // Asked for fewer moves: a hand-over at a pull-in or pull-out (one move, not two) comes
       // before closeness to the proposed slot.
-      const key = Math.round(lack * 100) * 1000 + (fewerMoves ? (unplug + plug) * 500 + Math.abs(h - wanted) : Math.abs(h - wanted) * 4 + unplug + plug);
+      const key =
+        Math.round(lack * 100) * 1000 +
+        (fewerMoves ? (unplug + plug) * 500 + Math.abs(h - wanted) : Math.abs(h - wanted) * 4 + unplug + plug);
       if (key < bestKey) {
         bestKey = key;
         best = h;

@@ -34,7 +34,12 @@ function penalised(input: ScenarioInput, plan: Plan): number {
 /** The plan's sessions as an assignment of the exact model (one session per stay here). */
 function assignmentOf(problem: ReturnType<typeof prepareProblem>, plan: Plan): Assignment {
   const n = problem.stays.length;
-  const out: Assignment = { chargerOf: new Int32Array(n).fill(-1), from: new Int32Array(n), to: new Int32Array(n), sequence: problem.chargers.map(() => []) };
+  const out: Assignment = {
+    chargerOf: new Int32Array(n).fill(-1),
+    from: new Int32Array(n),
+    to: new Int32Array(n),
+    sequence: problem.chargers.map(() => []),
+  };
   const slotMs = problem.slots[0]!.endMs - problem.slots[0]!.startMs;
   const t0 = problem.slots[0]!.startMs;
   for (const s of plan.sessions) {
@@ -62,19 +67,26 @@ describe('exact assignment MILP (HiGHS) against the plans', () => {
     [9, 3, 4],
     [6, 2, 7],
     [8, 2, 8],
-  ])('without a crew, %i buses on %i chargers (seed %i): the MILP proves the plan optimal', async (buses, chargers, seed) => {
-    const input = generateDepot({ buses, chargers, seed });
-    const plan = await planOf(input);
-    const solver = await loadSolver();
-    const problem = prepareProblem(parsed(input));
-    // Started from the plan's own sessions: HiGHS then only has to prove (or beat) it.
-    const exact = solveExact(problem, solver, { maxNodes: 50, timeLimitMs: 20_000, start: assignmentOf(problem, plan) });
-    expect(exact.status).toBe('optimal');
-    const cost = penalised(input, plan);
-    // The plan is one of the MILP's solutions, so never below its optimum; and within 0.1 % of it.
-    expect(cost).toBeGreaterThanOrEqual(exact.objective * (1 - 1e-6));
-    expect((cost - exact.objective) / exact.objective).toBeLessThanOrEqual(0.001);
-  });
+  ])(
+    'without a crew, %i buses on %i chargers (seed %i): the MILP proves the plan optimal',
+    async (buses, chargers, seed) => {
+      const input = generateDepot({ buses, chargers, seed });
+      const plan = await planOf(input);
+      const solver = await loadSolver();
+      const problem = prepareProblem(parsed(input));
+      // Started from the plan's own sessions: HiGHS then only has to prove (or beat) it.
+      const exact = solveExact(problem, solver, {
+        maxNodes: 50,
+        timeLimitMs: 20_000,
+        start: assignmentOf(problem, plan),
+      });
+      expect(exact.status).toBe('optimal');
+      const cost = penalised(input, plan);
+      // The plan is one of the MILP's solutions, so never below its optimum; and within 0.1 % of it.
+      expect(cost).toBeGreaterThanOrEqual(exact.objective * (1 - 1e-6));
+      expect((cost - exact.objective) / exact.objective).toBeLessThanOrEqual(0.001);
+    },
+  );
 
   // Optima and best MILP solutions found offline with `solveExact` (no node limit, 100-150 s:
   // longer than a test should take), with the crew of `yard` above.
@@ -83,11 +95,14 @@ describe('exact assignment MILP (HiGHS) against the plans', () => {
     [6, 2, 1, 334.2470355731224, true],
     [7, 2, 2, 590.1551383399209, false],
   ] as const;
-  it.each(withCrew)('with the crew, %i buses on %i chargers (seed %i): the plan at the exact optimum', async (buses, chargers, seed, best) => {
-    const input = { ...generateDepot({ buses, chargers, seed }), yard };
-    const plan = await planOf(input);
-    expect((penalised(input, plan) - best) / best).toBeLessThanOrEqual(0.001);
-  });
+  it.each(withCrew)(
+    'with the crew, %i buses on %i chargers (seed %i): the plan at the exact optimum',
+    async (buses, chargers, seed, best) => {
+      const input = { ...generateDepot({ buses, chargers, seed }), yard };
+      const plan = await planOf(input);
+      expect((penalised(input, plan) - best) / best).toBeLessThanOrEqual(0.001);
+    },
+  );
 
   it('with the crew, the large-neighbourhood search is what serves every bus and cuts the cost where chargers are scarce', async () => {
     // Without it the plan leaves buses short or pays 5-25 % more on these depots (measured: the
@@ -115,9 +130,27 @@ describe('exact assignment MILP (HiGHS) against the plans', () => {
       ...base,
       chargers: [{ id: 'C1', maxKw: 60 }],
       buses: [
-        { ...base.buses[0]!, id: 'B1', maxKw: 60, arrivalKwh: 40, stays: [{ arrive: '2026-01-14T18:40', depart: '2026-01-15T05:10', departMinKwh: 150 }] },
-        { ...base.buses[1]!, id: 'B2', maxKw: 60, arrivalKwh: 40, stays: [{ arrive: '2026-01-14T18:40', depart: '2026-01-15T05:10', departMinKwh: 150 }] },
-        { ...base.buses[2]!, id: 'B3', maxKw: 60, arrivalKwh: 30, stays: [{ arrive: '2026-01-15T04:40', depart: '2026-01-15T05:40', departMinKwh: 120 }] },
+        {
+          ...base.buses[0]!,
+          id: 'B1',
+          maxKw: 60,
+          arrivalKwh: 40,
+          stays: [{ arrive: '2026-01-14T18:40', depart: '2026-01-15T05:10', departMinKwh: 150 }],
+        },
+        {
+          ...base.buses[1]!,
+          id: 'B2',
+          maxKw: 60,
+          arrivalKwh: 40,
+          stays: [{ arrive: '2026-01-14T18:40', depart: '2026-01-15T05:10', departMinKwh: 150 }],
+        },
+        {
+          ...base.buses[2]!,
+          id: 'B3',
+          maxKw: 60,
+          arrivalKwh: 30,
+          stays: [{ arrive: '2026-01-15T04:40', depart: '2026-01-15T05:40', departMinKwh: 120 }],
+        },
       ],
       yard,
     };

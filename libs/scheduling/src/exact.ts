@@ -83,10 +83,16 @@ export function solveExact(problem: Problem, solver: Solver, options: ExactOptio
       if (freeSet.has(s.id)) continue;
       const c = fixed.chargerOf[s.id]!;
       if (c < 0) continue;
-      for (let t = fixed.from[s.id]!; t < fixed.to[s.id]!; t++) if (problem.chargers[c]!.available[t]) plug[s.bus]![t] = c;
+      for (let t = fixed.from[s.id]!; t < fixed.to[s.id]!; t++)
+        if (problem.chargers[c]!.available[t]) plug[s.bus]![t] = c;
     }
   }
-  const model: ChargeModel = buildChargeModel(problem, { mode: 'assigned', plug, cabinetsUnlimited: true, allRows: true });
+  const model: ChargeModel = buildChargeModel(problem, {
+    mode: 'assigned',
+    plug,
+    cabinetsUnlimited: true,
+    allRows: true,
+  });
   const lp = model.lp;
   const cost = Array.from(lp.colCost);
   const lower = Array.from(lp.colLower);
@@ -139,7 +145,10 @@ export function solveExact(problem: Problem, solver: Solver, options: ExactOptio
     const perCharger: Int32Array[] = [];
     const startsOfStay: number[] = [];
     const xsBySlot: number[][] = Array.from({ length: s.departSlot - s.arriveSlot }, () => []);
-    const powerTerms: { idx: number[]; val: number[] }[] = Array.from({ length: s.departSlot - s.arriveSlot }, () => ({ idx: [], val: [] }));
+    const powerTerms: { idx: number[]; val: number[] }[] = Array.from({ length: s.departSlot - s.arriveSlot }, () => ({
+      idx: [],
+      val: [],
+    }));
     let widest = 0;
     for (const c of chargers) {
       const xs = new Int32Array(T).fill(-1);
@@ -224,12 +233,25 @@ export function solveExact(problem: Problem, solver: Solver, options: ExactOptio
         }
       }
       // Unplug at the stay's end, when that is a crew move (drivers do not unplug).
-      if (s.departSlot < T && !endIsFree(problem, s, s.departSlot) && capacity && xs[s.departSlot - 1]! >= 0) moveCols[s.departSlot]!.push(xs[s.departSlot - 1]!);
+      if (s.departSlot < T && !endIsFree(problem, s, s.departSlot) && capacity && xs[s.departSlot - 1]! >= 0)
+        moveCols[s.departSlot]!.push(xs[s.departSlot - 1]!);
     }
-    if (startsOfStay.length) row(startsOfStay, startsOfStay.map(() => 1), -Infinity, 1);
+    if (startsOfStay.length)
+      row(
+        startsOfStay,
+        startsOfStay.map(() => 1),
+        -Infinity,
+        1,
+      );
     for (let t = s.arriveSlot; t < s.departSlot; t++) {
       const xs = xsBySlot[t - s.arriveSlot]!;
-      if (xs.length > 1) row(xs, xs.map(() => 1), -Infinity, 1);
+      if (xs.length > 1)
+        row(
+          xs,
+          xs.map(() => 1),
+          -Infinity,
+          1,
+        );
       const pc = model.pCol[s.bus]![t]!;
       if (pc < 0) continue;
       upper[pc] = Math.min(bus.maxKw, widest);
@@ -238,7 +260,14 @@ export function solveExact(problem: Problem, solver: Solver, options: ExactOptio
     }
     xCol.set(id, perCharger);
   }
-  for (const xs of onCharger.values()) if (xs.length > 1) row(xs, xs.map(() => 1), -Infinity, 1);
+  for (const xs of onCharger.values())
+    if (xs.length > 1)
+      row(
+        xs,
+        xs.map(() => 1),
+        -Infinity,
+        1,
+      );
 
   // Cabinets: fixed buses on the cabinet's chargers plus the free stays' q columns.
   problem.cabinets.forEach((cab, g) => {
@@ -247,10 +276,17 @@ export function solveExact(problem: Problem, solver: Solver, options: ExactOptio
       const idx: number[] = [];
       for (const bus of problem.buses) {
         const c = plug[bus.index]![t]!;
-        if (c >= 0 && problem.chargers[c]!.cabinet === g && model.pCol[bus.index]![t]! >= 0) idx.push(model.pCol[bus.index]![t]!);
+        if (c >= 0 && problem.chargers[c]!.cabinet === g && model.pCol[bus.index]![t]! >= 0)
+          idx.push(model.pCol[bus.index]![t]!);
       }
       for (const q of cabTerms.get(g * (T + 1) + t) ?? []) idx.push(q);
-      if (idx.length) row(idx, idx.map(() => 1), -Infinity, cab.limitKw);
+      if (idx.length)
+        row(
+          idx,
+          idx.map(() => 1),
+          -Infinity,
+          cab.limitKw,
+        );
     }
   });
 
@@ -272,7 +308,12 @@ export function solveExact(problem: Problem, solver: Solver, options: ExactOptio
       const cols = moveCols[t]!;
       if (cols.length === 0) continue;
       const room = capacity[t]! - fixedMoves[t]!;
-      row(cols, cols.map(() => 1), -Infinity, Math.max(0, room));
+      row(
+        cols,
+        cols.map(() => 1),
+        -Infinity,
+        Math.max(0, room),
+      );
     }
   }
 
@@ -290,7 +331,14 @@ export function solveExact(problem: Problem, solver: Solver, options: ExactOptio
     colUpper: Float64Array.from(upper.map(inf)),
     rowLower: Float64Array.from(rowLower.map(inf)),
     rowUpper: Float64Array.from(rowUpper.map(inf)),
-    matrix: { format: 'csr', numRows, numCols, starts: Int32Array.from(starts), indices: Int32Array.from(indices), values: Float64Array.from(values) },
+    matrix: {
+      format: 'csr',
+      numRows,
+      numCols,
+      starts: Int32Array.from(starts),
+      indices: Int32Array.from(indices),
+      values: Float64Array.from(values),
+    },
     integrality: Int32Array.from(integrality),
   } as never) as unknown as MilpModel;
   try {
@@ -345,7 +393,8 @@ export function solveExact(problem: Problem, solver: Solver, options: ExactOptio
     const hasSolution = info('primal_solution_status') === 2;
     const primal = hasSolution ? (milp as unknown as { getObjectiveValue(): number }).getObjectiveValue() : NaN;
     let bound = info('mip_dual_bound');
-    let status: ExactResult['status'] = code === 7 ? 'optimal' : code === 8 ? 'infeasible' : hasSolution ? 'feasible' : 'limit';
+    let status: ExactResult['status'] =
+      code === 7 ? 'optimal' : code === 8 ? 'infeasible' : hasSolution ? 'feasible' : 'limit';
     if (status === 'optimal' && !hasSolution) status = 'limit';
     if (!Number.isFinite(bound)) bound = -Infinity;
     if (status === 'optimal') bound = Math.max(bound, primal - Math.max(1e-6, 1e-6 * Math.abs(primal)));

@@ -15,7 +15,8 @@ export function soloShortfall(problem: Problem, b: number, powerCap: number, tap
   let e = bus.arrivalKwh;
   let worst = 0;
   for (const stay of bus.stays) {
-    for (let t = stay.arriveSlot; t < stay.departSlot; t++) e += problem.eta * problem.slotHours * acceptance(problem, b, e, powerCap, taper);
+    for (let t = stay.arriveSlot; t < stay.departSlot; t++)
+      e += problem.eta * problem.slotHours * acceptance(problem, b, e, powerCap, taper);
     worst = Math.max(worst, stay.requiredKwh - e);
     e -= stay.runKwh;
   }
@@ -82,7 +83,12 @@ export function explainShortfalls(
 
 /** Local clock time "18:40" of an instant in the depot's zone. */
 function clock(ms: number, zone: string): string {
-  return new Intl.DateTimeFormat('en-GB', { timeZone: zone, hour: '2-digit', minute: '2-digit', hourCycle: 'h23' }).format(ms);
+  return new Intl.DateTimeFormat('en-GB', {
+    timeZone: zone,
+    hour: '2-digit',
+    minute: '2-digit',
+    hourCycle: 'h23',
+  }).format(ms);
 }
 
 /** The longest stretch inside [from, to) with no crew in the yard, as "from 23:30 to 04:30", or null. */
@@ -111,7 +117,13 @@ function crewGap(problem: Problem, from: number, to: number): string | null {
  * (pull-in and pull-out times), and whether that is proven (no plan of one plug-in per stay could
  * serve it) or only what this plan found.
  */
-export function describeShortfall(problem: Problem, b: number, reason: ShortReason, shortKwh: number, proven: boolean): string {
+export function describeShortfall(
+  problem: Problem,
+  b: number,
+  reason: ShortReason,
+  shortKwh: number,
+  proven: boolean,
+): string {
   const bus = problem.buses[b]!;
   const zone = problem.zone;
   // The stay that falls short: the one whose departure misses most (the last one by default).

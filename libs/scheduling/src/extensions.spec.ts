@@ -44,8 +44,20 @@ function night(site: Record<string, unknown>): ScenarioInput {
     ],
     tariff: { currency: 'USD', offPeakPrice: 0.1, periods: [], facilityDemandCharge: 10, peaksSoFarKw: {} },
     buses: [
-      { id: 'B1', usableKwh: 300, maxKw: 100, arrivalKwh: 50, stays: [{ arrive: '2026-01-13T22:00', depart: '2026-01-14T06:00', departMinKwh: 250 }] },
-      { id: 'B2', usableKwh: 300, maxKw: 100, arrivalKwh: 50, stays: [{ arrive: '2026-01-13T22:00', depart: '2026-01-14T06:00', departMinKwh: 250 }] },
+      {
+        id: 'B1',
+        usableKwh: 300,
+        maxKw: 100,
+        arrivalKwh: 50,
+        stays: [{ arrive: '2026-01-13T22:00', depart: '2026-01-14T06:00', departMinKwh: 250 }],
+      },
+      {
+        id: 'B2',
+        usableKwh: 300,
+        maxKw: 100,
+        arrivalKwh: 50,
+        stays: [{ arrive: '2026-01-13T22:00', depart: '2026-01-14T06:00', departMinKwh: 250 }],
+      },
     ],
   } as ScenarioInput;
 }
@@ -54,16 +66,67 @@ const kwAt = (p: Plan, local: string) => p.slots.find((s) => s.start.startsWith(
 
 describe('format extensions: validation', () => {
   const cases: [string, (s: RawJson) => void, string, RegExp][] = [
-    ['23 hourly values', (s) => (s.site.otherLoadByHourKw = hourly(20, {}).slice(1)), 'site.otherLoadByHourKw', /24 values/],
-    ['a negative hourly value', (s) => (s.site.otherLoadByHourKw = hourly(20, { 3: -1 })), 'site.otherLoadByHourKw[3]', /0 or more/],
-    ['an hourly value above the limit', (s) => (s.site.otherLoadByHourKw = hourly(20, { 18: 450 })), 'site.otherLoadByHourKw[18]', /must not exceed site.limitKw/],
-    ['a window ending before it starts', (s) => (s.site.limitWindows = [{ from: '2026-01-14T22:00', to: '2026-01-14T21:00', limitKw: 200 }]), 'site.limitWindows[0].to', /after from/],
-    ['a window outside the horizon', (s) => (s.site.limitWindows = [{ from: '2026-01-15T10:00', to: '2026-01-15T12:00', limitKw: 200 }]), 'site.limitWindows[0]', /outside the horizon/],
-    ['a window limit of 0', (s) => (s.site.limitWindows = [{ from: '2026-01-14T22:00', to: '2026-01-14T23:00', limitKw: 0 }]), 'site.limitWindows[0].limitKw', /greater than 0/],
-    ['a window limit below the other load', (s) => (s.site.limitWindows = [{ from: '2026-01-14T22:00', to: '2026-01-14T23:00', limitKw: 20 }]), 'site.limitWindows[0].limitKw', /below the other load/],
-    ['a window time with an offset', (s) => (s.site.limitWindows = [{ from: '2026-01-14T22:00-06:00', to: '2026-01-14T23:00', limitKw: 200 }]), 'site.limitWindows[0].from', /YYYY-MM-DDTHH:mm/],
-    ['a window time that does not exist', (s) => (s.site.limitWindows = [{ from: '2026-01-14T22:00', to: '2026-01-32T23:00', limitKw: 200 }]), 'site.limitWindows[0].to', /does not exist/],
-    ['an unknown window field', (s) => (s.site.limitWindows = [{ from: '2026-01-14T22:00', to: '2026-01-14T23:00', limitKw: 200, reason: 'heat' }]), 'site.limitWindows[0].reason', /unknown field/],
+    [
+      '23 hourly values',
+      (s) => (s.site.otherLoadByHourKw = hourly(20, {}).slice(1)),
+      'site.otherLoadByHourKw',
+      /24 values/,
+    ],
+    [
+      'a negative hourly value',
+      (s) => (s.site.otherLoadByHourKw = hourly(20, { 3: -1 })),
+      'site.otherLoadByHourKw[3]',
+      /0 or more/,
+    ],
+    [
+      'an hourly value above the limit',
+      (s) => (s.site.otherLoadByHourKw = hourly(20, { 18: 450 })),
+      'site.otherLoadByHourKw[18]',
+      /must not exceed site.limitKw/,
+    ],
+    [
+      'a window ending before it starts',
+      (s) => (s.site.limitWindows = [{ from: '2026-01-14T22:00', to: '2026-01-14T21:00', limitKw: 200 }]),
+      'site.limitWindows[0].to',
+      /after from/,
+    ],
+    [
+      'a window outside the horizon',
+      (s) => (s.site.limitWindows = [{ from: '2026-01-15T10:00', to: '2026-01-15T12:00', limitKw: 200 }]),
+      'site.limitWindows[0]',
+      /outside the horizon/,
+    ],
+    [
+      'a window limit of 0',
+      (s) => (s.site.limitWindows = [{ from: '2026-01-14T22:00', to: '2026-01-14T23:00', limitKw: 0 }]),
+      'site.limitWindows[0].limitKw',
+      /greater than 0/,
+    ],
+    [
+      'a window limit below the other load',
+      (s) => (s.site.limitWindows = [{ from: '2026-01-14T22:00', to: '2026-01-14T23:00', limitKw: 20 }]),
+      'site.limitWindows[0].limitKw',
+      /below the other load/,
+    ],
+    [
+      'a window time with an offset',
+      (s) => (s.site.limitWindows = [{ from: '2026-01-14T22:00-06:00', to: '2026-01-14T23:00', limitKw: 200 }]),
+      'site.limitWindows[0].from',
+      /YYYY-MM-DDTHH:mm/,
+    ],
+    [
+      'a window time that does not exist',
+      (s) => (s.site.limitWindows = [{ from: '2026-01-14T22:00', to: '2026-01-32T23:00', limitKw: 200 }]),
+      'site.limitWindows[0].to',
+      /does not exist/,
+    ],
+    [
+      'an unknown window field',
+      (s) =>
+        (s.site.limitWindows = [{ from: '2026-01-14T22:00', to: '2026-01-14T23:00', limitKw: 200, reason: 'heat' }]),
+      'site.limitWindows[0].reason',
+      /unknown field/,
+    ],
   ];
   it.each(cases)('rejects %s with its field path', (_what, mutate, path, message) => {
     const problems = problemsOf(mutate);
@@ -73,7 +136,9 @@ describe('format extensions: validation', () => {
   });
 
   it('accepts a window that only overlaps the horizon, and a window limit above the site limit', () => {
-    expect(problemsOf((s) => (s.site.limitWindows = [{ from: '2026-01-14T10:00', to: '2026-01-14T13:00', limitKw: 900 }]))).toEqual([]);
+    expect(
+      problemsOf((s) => (s.site.limitWindows = [{ from: '2026-01-14T10:00', to: '2026-01-14T13:00', limitKw: 900 }])),
+    ).toEqual([]);
   });
 });
 
@@ -82,7 +147,10 @@ describe('format extensions: slots', () => {
     const s = small();
     s.start = '2026-10-31T12:00';
     s.end = '2026-11-01T09:00';
-    s.buses.forEach((b: RawJson) => (b.stays = [{ arrive: '2026-10-31T17:00', depart: '2026-11-01T06:00', departMinKwh: b.stays[0].departMinKwh }]));
+    s.buses.forEach(
+      (b: RawJson) =>
+        (b.stays = [{ arrive: '2026-10-31T17:00', depart: '2026-11-01T06:00', departMinKwh: b.stays[0].departMinKwh }]),
+    );
     s.site.otherLoadByHourKw = Array.from({ length: 24 }, (_, h) => 10 + h);
     const r = parseScenario(s);
     if (!r.ok) throw new Error(JSON.stringify(r.problems));
@@ -102,14 +170,27 @@ describe('format extensions: slots', () => {
     const r = parseScenario(s);
     if (!r.ok) throw new Error(JSON.stringify(r.problems));
     const limits = Object.fromEntries(buildSlots(r.scenario).map((x) => [x.start.slice(11, 16), x.limitKw]));
-    expect([limits['17:45'], limits['18:00'], limits['18:15'], limits['18:30'], limits['18:45'], limits['19:00']]).toEqual([400, 300, 300, 250, 300, 400]);
+    expect([
+      limits['17:45'],
+      limits['18:00'],
+      limits['18:15'],
+      limits['18:30'],
+      limits['18:45'],
+      limits['19:00'],
+    ]).toEqual([400, 300, 300, 250, 300, 400]);
   });
 });
 
 describe('format extensions: plans', () => {
   it('change nothing when absent or neutral', async () => {
     const base = await plan(night({ otherLoadKw: 30 }));
-    const flat = await plan(night({ otherLoadKw: 5, otherLoadByHourKw: hourly(30, {}), limitWindows: [{ from: '2026-01-13T23:00', to: '2026-01-14T02:00', limitKw: 1000 }] }));
+    const flat = await plan(
+      night({
+        otherLoadKw: 5,
+        otherLoadByHourKw: hourly(30, {}),
+        limitWindows: [{ from: '2026-01-13T23:00', to: '2026-01-14T02:00', limitKw: 1000 }],
+      }),
+    );
     expect(flat.cost).toEqual(base.cost);
     expect(flat.sessions).toEqual(base.sessions);
     expect(flat.slots).toEqual(base.slots);
@@ -125,9 +206,13 @@ describe('format extensions: plans', () => {
   });
 
   it('meets a load-reduction window, reports it per slot, and the bound and checker follow it', async () => {
-    const p = await plan(night({ otherLoadKw: 10, limitWindows: [{ from: '2026-01-14T00:00', to: '2026-01-14T04:00', limitKw: 30 }] }));
+    const p = await plan(
+      night({ otherLoadKw: 10, limitWindows: [{ from: '2026-01-14T00:00', to: '2026-01-14T04:00', limitKw: 30 }] }),
+    );
     for (const s of p.slots) {
-      const inside = Date.parse(s.start) >= Date.parse('2026-01-14T00:00:00-06:00') && Date.parse(s.start) < Date.parse('2026-01-14T04:00:00-06:00');
+      const inside =
+        Date.parse(s.start) >= Date.parse('2026-01-14T00:00:00-06:00') &&
+        Date.parse(s.start) < Date.parse('2026-01-14T04:00:00-06:00');
       expect(s.limitKw).toBe(inside ? 30 : 1000);
       expect(s.loadKw).toBeLessThanOrEqual(s.limitKw + 1e-6);
     }
@@ -140,7 +225,9 @@ describe('format extensions: plans', () => {
   it('names the site as the reason when a window leaves too little power', async () => {
     // The buses need 400 kWh between 22:00 and 06:00; a 50 kW limit over the whole stay leaves
     // 40 kW for charging: 320 kWh in 8 hours, 80 kWh short.
-    const p = await plan(night({ otherLoadKw: 10, limitWindows: [{ from: '2026-01-13T21:00', to: '2026-01-14T07:00', limitKw: 50 }] }));
+    const p = await plan(
+      night({ otherLoadKw: 10, limitWindows: [{ from: '2026-01-13T21:00', to: '2026-01-14T07:00', limitKw: 50 }] }),
+    );
     expect(p.status).toBe('short');
     const short = p.buses.filter((b) => b.shortfallKwh > 0);
     expect(short.every((b) => b.reason === 'site')).toBe(true);

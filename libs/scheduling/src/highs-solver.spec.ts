@@ -47,7 +47,10 @@ describe('HiGHS through the engine wrapper', () => {
 
   it('reports an infeasible LP as infeasible, not as a number', async () => {
     const solver = await loadSolver();
-    const lp = lpFromRows([{ cost: 1, lower: 0, upper: 1 }], [{ indices: [0], values: [1], lower: 2, upper: Infinity }]);
+    const lp = lpFromRows(
+      [{ cost: 1, lower: 0, upper: 1 }],
+      [{ indices: [0], values: [1], lower: 2, upper: Infinity }],
+    );
     const res = solver.solve(lp);
     expect(res.status).toBe('infeasible');
     expect(Number.isNaN(res.objective)).toBe(true);

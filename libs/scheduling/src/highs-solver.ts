@@ -53,7 +53,14 @@ function modelData(highs: Highs, lp: Lp) {
     colUpper: fix(lp.colUpper),
     rowLower: fix(lp.rowLower),
     rowUpper: fix(lp.rowUpper),
-    matrix: { format: 'csr' as const, numRows: lp.numRows, numCols: lp.numCols, starts: lp.starts, indices: lp.indices, values: lp.values },
+    matrix: {
+      format: 'csr' as const,
+      numRows: lp.numRows,
+      numCols: lp.numCols,
+      starts: lp.starts,
+      indices: lp.indices,
+      values: lp.values,
+    },
   };
 }
 

@@ -41,7 +41,13 @@ export interface LnsResult extends SearchResult {
 export function defaultLnsLimits(problem: Problem, deadline: number, target: number): LnsLimits {
   const n = problem.stays.length;
   return {
-    deadline, target, maxStays: 12, evaluate: 3, evaluateAtEnds: problem.yard ? 2 : 0, shortlist: 24, passes: 3,
+    deadline,
+    target,
+    maxStays: 12,
+    evaluate: 3,
+    evaluateAtEnds: problem.yard ? 2 : 0,
+    shortlist: 24,
+    passes: 3,
     maxSplits: Math.max(2000, 40_000 - 100 * n),
     maxLpSolves: Math.max(12, Math.min(150, Math.round(3000 / (25 + n)))),
   };
@@ -93,20 +99,30 @@ export function pairSearch(
   const pin = problem.pinned;
   const locked = new Uint8Array(C);
   if (pin) for (const s of problem.stays) if (pin[s.id]! >= 0) locked[pin[s.id]!] = 1;
-  const usable = problem.chargers.filter((c) => !locked[c.index] && c.available.some((v) => v === 1)).map((c) => c.index);
+  const usable = problem.chargers
+    .filter((c) => !locked[c.index] && c.available.some((v) => v === 1))
+    .map((c) => c.index);
   // Strongest with weakest first: where exchanging whole sequences changes most.
   const pairs: [number, number][] = [];
-  for (let i = 0; i < usable.length; i++) for (let j = i + 1; j < usable.length; j++) pairs.push([usable[i]!, usable[j]!]);
+  for (let i = 0; i < usable.length; i++)
+    for (let j = i + 1; j < usable.length; j++) pairs.push([usable[i]!, usable[j]!]);
   const kw = (c: number) => problem.chargers[c]!.maxKw;
   // Chargers whose stays are dearest at the margin (the LP's departure duals) first.
   const dear = new Float64Array(C);
   for (const s of problem.stays) {
     const c = start.chargerOf[s.id]!;
     const r = lp.model.departRow[s.id]!;
-    if (c >= 0 && r >= 0 && first.rowDual.length) dear[c] = Math.max(dear[c]!, Math.round(Math.abs(first.rowDual[r]!) * 1e4) / 1e4);
+    if (c >= 0 && r >= 0 && first.rowDual.length)
+      dear[c] = Math.max(dear[c]!, Math.round(Math.abs(first.rowDual[r]!) * 1e4) / 1e4);
   }
   const pairKey = (p: [number, number]) => Math.max(dear[p[0]]!, dear[p[1]]!);
-  pairs.sort((p, q) => pairKey(q) - pairKey(p) || Math.abs(kw(q[0]) - kw(q[1])) - Math.abs(kw(p[0]) - kw(p[1])) || p[0] - q[0] || p[1] - q[1]);
+  pairs.sort(
+    (p, q) =>
+      pairKey(q) - pairKey(p) ||
+      Math.abs(kw(q[0]) - kw(q[1])) - Math.abs(kw(p[0]) - kw(p[1])) ||
+      p[0] - q[0] ||
+      p[1] - q[1],
+  );
   const all = problem.buses.map((b) => b.index);
   const arrangeHints: AssignmentHints = { ...hints, order: 'best', handover: 'least-cut' };
   const quickHints: AssignmentHints = { ...hints, order: 'departure', handover: 'least-cut' };
@@ -123,7 +139,13 @@ export function pairSearch(
       }
       // Stays no charger holds: the two that need most come along (present while either charger is).
       const unplaced = problem.stays
-        .filter((s) => best.chargerOf[s.id]! < 0 && hints.energy[s.id]! > 1e-6 && s.departSlot > s.arriveSlot && (!pin || pin[s.id]! < 0))
+        .filter(
+          (s) =>
+            best.chargerOf[s.id]! < 0 &&
+            hints.energy[s.id]! > 1e-6 &&
+            s.departSlot > s.arriveSlot &&
+            (!pin || pin[s.id]! < 0),
+        )
         .sort((x, y) => hints.energy[y.id]! - hints.energy[x.id]! || x.id - y.id)
         .slice(0, 2)
         .map((s) => s.id);
@@ -165,7 +187,11 @@ export function pairSearch(
           const other = cloneAssignment(trial);
           fitCrew(problem, trial, hints.energy);
           fitCrew(problem, other, hints.energy, true);
-          scored.push({ score: splitScore(problem, hints, other, union), trial: other, mask: mask + (1 << union.length) });
+          scored.push({
+            score: splitScore(problem, hints, other, union),
+            trial: other,
+            mask: mask + (1 << union.length),
+          });
         }
         scored.push({ score: splitScore(problem, hints, trial, union), trial, mask });
       }

@@ -1,4 +1,12 @@
-import { arrangeCharger, cloneAssignment, layoutCharger, plugMapOf, usablePower, type Assignment, type AssignmentHints } from './assignment.js';
+import {
+  arrangeCharger,
+  cloneAssignment,
+  layoutCharger,
+  plugMapOf,
+  usablePower,
+  type Assignment,
+  type AssignmentHints,
+} from './assignment.js';
 import { fitCrew } from './crew.js';
 import type { LiveLp, LpResult, Solver } from './highs-solver.js';
 import { buildChargeModel, plugUpper, type ChargeModel } from './lp-model.js';
@@ -93,7 +101,12 @@ export function localSearch(
   lp: AssignedModel,
   start: Assignment,
   first: LpResult,
-  limits: { deadline: number; maxMoves: number; target: number; /** Smallest gain (currency) worth a change; default any. */ minGain?: number },
+  limits: {
+    deadline: number;
+    maxMoves: number;
+    target: number;
+    /** Smallest gain (currency) worth a change; default any. */ minGain?: number;
+  },
 ): SearchResult {
   let best = cloneAssignment(start);
   let bestResult = first;
@@ -107,7 +120,11 @@ export function localSearch(
   const locked = new Uint8Array(C);
   if (problem.pinned) for (const s of problem.stays) if (problem.pinned[s.id]! >= 0) locked[problem.pinned[s.id]!] = 1;
   const jobs = problem.stays
-    .filter((s) => (best.chargerOf[s.id]! >= 0 || hints.energy[s.id]! > 1e-6) && !(best.chargerOf[s.id]! >= 0 && locked[best.chargerOf[s.id]!]))
+    .filter(
+      (s) =>
+        (best.chargerOf[s.id]! >= 0 || hints.energy[s.id]! > 1e-6) &&
+        !(best.chargerOf[s.id]! >= 0 && locked[best.chargerOf[s.id]!]),
+    )
     .map((s) => s.id);
   if (jobs.length === 0 || C === 0) return { assignment: best, result: bestResult, moves, accepted, iterations, lpMs };
 
@@ -217,7 +234,11 @@ export function localSearch(
     const res = lp.solve();
     iterations += res.iterations;
     lpMs += res.ms;
-    if (res.status === 'optimal' && res.objective < bestResult.objective - Math.max(limits.minGain ?? 0, 1e-9 * Math.max(1, Math.abs(bestResult.objective)))) {
+    if (
+      res.status === 'optimal' &&
+      res.objective <
+        bestResult.objective - Math.max(limits.minGain ?? 0, 1e-9 * Math.max(1, Math.abs(bestResult.objective)))
+    ) {
       best = trial;
       bestResult = res;
       duals = dualOf(res);
@@ -226,6 +247,7 @@ export function localSearch(
       lp.update(best, buses);
     }
   }
-  const timedOut = moves < limits.maxMoves && bestResult.objective > limits.target && performance.now() >= limits.deadline;
+  const timedOut =
+    moves < limits.maxMoves && bestResult.objective > limits.target && performance.now() >= limits.deadline;
   return { assignment: best, result: bestResult, moves, accepted, iterations, lpMs, timedOut };
 }

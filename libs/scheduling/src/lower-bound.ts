@@ -23,10 +23,15 @@ export interface LowerBound {
  * can give as many buses as are present (cabinets included). Every plan that respects the real
  * limits is feasible here, so its optimum bounds every plan's cost from below.
  */
-export function solveLowerBound(problem: Problem, solver: Solver, variant: { siteUnlimited?: boolean; cabinetsUnlimited?: boolean } = {}): LowerBound {
+export function solveLowerBound(
+  problem: Problem,
+  solver: Solver,
+  variant: { siteUnlimited?: boolean; cabinetsUnlimited?: boolean } = {},
+): LowerBound {
   const model = buildChargeModel(problem, { mode: 'relaxed', tieBreak: false, ...variant });
   const result = solver.solve(model.lp);
-  if (result.status !== 'optimal') throw new Error(`lower-bound LP ended ${result.status}; the model should always be solvable`);
+  if (result.status !== 'optimal')
+    throw new Error(`lower-bound LP ended ${result.status}; the model should always be solvable`);
   let shortfall = 0;
   const stayDual = new Float64Array(problem.stays.length);
   for (const stay of problem.stays) {

@@ -36,11 +36,16 @@ function rand(seed: number) {
   };
 }
 
-function smallDepot(seed: number, buses: number, opts: { start: string; end: string; twoStays?: boolean }): ScenarioInput {
+function smallDepot(
+  seed: number,
+  buses: number,
+  opts: { start: string; end: string; twoStays?: boolean },
+): ScenarioInput {
   const r = rand(seed);
   const day = opts.start.slice(0, 10);
   const next = opts.end.slice(0, 10);
-  const t = (d: string, m: number) => `${d}T${String(Math.floor(m / 60)).padStart(2, '0')}:${String(m % 60).padStart(2, '0')}`;
+  const t = (d: string, m: number) =>
+    `${d}T${String(Math.floor(m / 60)).padStart(2, '0')}:${String(m % 60).padStart(2, '0')}`;
   const list: ScenarioInput['buses'] = [];
   for (let i = 0; i < buses; i++) {
     const usable = 150 + Math.round(r() * 100);
@@ -56,7 +61,16 @@ function smallDepot(seed: number, buses: number, opts: { start: string; end: str
       stays.push({ arrive: t(day, 12 * 60 + 10), depart: t(day, 14 * 60 + 5), departMinKwh: arrival + 20, runKwh: 40 });
     }
     stays.push({ arrive: t(day, arrive), depart: t(next, depart), departMinKwh: departMin });
-    list.push({ id: `B${i + 1}`, usableKwh: usable, maxKw, arrivalKwh: arrival, ceilingKwh: ceiling, reserveKwh: 20, ...(taper ? { taperFromKwh: taper } : {}), stays });
+    list.push({
+      id: `B${i + 1}`,
+      usableKwh: usable,
+      maxKw,
+      arrivalKwh: arrival,
+      ceilingKwh: ceiling,
+      reserveKwh: 20,
+      ...(taper ? { taperFromKwh: taper } : {}),
+      stays,
+    });
   }
   return {
     version: 1,
@@ -72,8 +86,18 @@ function smallDepot(seed: number, buses: number, opts: { start: string; end: str
       currency: 'USD',
       offPeakPrice: 0.08,
       periods: [
-        { name: 'on-peak', price: 0.3, demandCharge: 8, windows: [{ days: [1, 2, 3, 4, 5], from: '16:00', to: '21:00' }] },
-        { name: 'night', price: 0.05, demandCharge: 0, windows: [{ days: [1, 2, 3, 4, 5], from: '23:00', to: '04:00' }] },
+        {
+          name: 'on-peak',
+          price: 0.3,
+          demandCharge: 8,
+          windows: [{ days: [1, 2, 3, 4, 5], from: '16:00', to: '21:00' }],
+        },
+        {
+          name: 'night',
+          price: 0.05,
+          demandCharge: 0,
+          windows: [{ days: [1, 2, 3, 4, 5], from: '23:00', to: '04:00' }],
+        },
       ],
       facilityDemandCharge: 11,
       peaksSoFarKw: { facility: 60, 'on-peak': 30 },
@@ -120,35 +144,76 @@ function writeLp(s: RawJson): WrittenLp {
         const e = v(`e_${b.id}_${t}`);
         const p = v(`p_${b.id}_${t}`);
         if (prevE === null) rows.push({ name: `init_${b.id}`, terms: [[e, 1]], op: '=', rhs: b.arrivalKwh });
-        else rows.push({ name: `bal_${b.id}_${t}`, terms: [[e, 1], [prevE, -1], [prevP!, -s.efficiency * dt]], op: '=', rhs: -pending });
+        else
+          rows.push({
+            name: `bal_${b.id}_${t}`,
+            terms: [
+              [e, 1],
+              [prevE, -1],
+              [prevP!, -s.efficiency * dt],
+            ],
+            op: '=',
+            rhs: -pending,
+          });
         pending = 0;
         rows.push({ name: `res_${b.id}_${t}`, terms: [[e, 1]], op: '>=', rhs: b.reserveKwh ?? 0 });
         rows.push({ name: `pmax_${b.id}_${t}`, terms: [[p, 1]], op: '<=', rhs: Math.min(b.maxKw, 120) });
         if (b.taperFromKwh !== undefined) {
           const m = b.maxKw / (q - b.taperFromKwh);
-          rows.push({ name: `taper_${b.id}_${t}`, terms: [[p, 1], [e, m]], op: '<=', rhs: m * q });
+          rows.push({
+            name: `taper_${b.id}_${t}`,
+            terms: [
+              [p, 1],
+              [e, m],
+            ],
+            op: '<=',
+            rhs: m * q,
+          });
         }
-        rows.push({ name: `ceil_${b.id}_${t}`, terms: [[e, 1], [p, s.efficiency * dt]], op: '<=', rhs: b.ceilingKwh });
+        rows.push({
+          name: `ceil_${b.id}_${t}`,
+          terms: [
+            [e, 1],
+            [p, s.efficiency * dt],
+          ],
+          op: '<=',
+          rhs: b.ceilingKwh,
+        });
         load[t]!.push([p, 1]);
         prevE = e;
         prevP = p;
       }
       const last = k === b.stays.length - 1;
       const need = last ? st.departMinKwh : Math.max(st.departMinKwh, (st.runKwh ?? 0) + (b.reserveKwh ?? 0));
-      rows.push({ name: `dep_${b.id}_${k}`, terms: [[prevE!, 1], [prevP!, s.efficiency * dt]], op: '>=', rhs: need });
+      rows.push({
+        name: `dep_${b.id}_${k}`,
+        terms: [
+          [prevE!, 1],
+          [prevP!, s.efficiency * dt],
+        ],
+        op: '>=',
+        rhs: need,
+      });
       pending = st.runKwh ?? 0;
     });
   }
   // Format extensions, read here on their own: other load by local hour, limit windows.
-  const otherAt = (t: number): number => (s.site.otherLoadByHourKw ? s.site.otherLoadByHourKw[wk(t).hour] : s.site.otherLoadKw);
+  const otherAt = (t: number): number =>
+    s.site.otherLoadByHourKw ? s.site.otherLoadByHourKw[wk(t).hour] : s.site.otherLoadKw;
   const limitAt = (t: number): number =>
-    (s.site.limitWindows ?? []).reduce((lim: number, w: RawJson) => (ms(w.from) < slotStart(t) + 900_000 && ms(w.to) > slotStart(t) ? Math.min(lim, w.limitKw) : lim), s.site.limitKw);
+    (s.site.limitWindows ?? []).reduce(
+      (lim: number, w: RawJson) =>
+        ms(w.from) < slotStart(t) + 900_000 && ms(w.to) > slotStart(t) ? Math.min(lim, w.limitKw) : lim,
+      s.site.limitKw,
+    );
   const df = v('D_facility');
   const dk = v('D_onpeak');
   rows.push({ name: 'df0', terms: [[df, 1]], op: '>=', rhs: s.tariff.peaksSoFarKw.facility });
   rows.push({ name: 'dk0', terms: [[dk, 1]], op: '>=', rhs: s.tariff.peaksSoFarKw['on-peak'] });
   objective.push([df, s.tariff.facilityDemandCharge], [dk, s.tariff.periods[0].demandCharge]);
-  offset -= s.tariff.facilityDemandCharge * s.tariff.peaksSoFarKw.facility + s.tariff.periods[0].demandCharge * s.tariff.peaksSoFarKw['on-peak'];
+  offset -=
+    s.tariff.facilityDemandCharge * s.tariff.peaksSoFarKw.facility +
+    s.tariff.periods[0].demandCharge * s.tariff.peaksSoFarKw['on-peak'];
   for (let t = 0; t < T; t++) {
     const k = period(t);
     const price = k < 0 ? s.tariff.offPeakPrice : s.tariff.periods[k].price;
@@ -173,7 +238,11 @@ async function solveWithGlpk(lp: WrittenLp): Promise<number> {
     {
       name: 'depot',
       objective: { direction: glpk.GLP_MIN, name: 'cost', vars: lp.objective.map(([name, coef]) => ({ name, coef })) },
-      subjectTo: lp.rows.map((r) => ({ name: r.name, vars: r.terms.map(([name, coef]) => ({ name, coef })), bnds: { type: type(r.op), lb: r.rhs, ub: r.rhs } })),
+      subjectTo: lp.rows.map((r) => ({
+        name: r.name,
+        vars: r.terms.map(([name, coef]) => ({ name, coef })),
+        bnds: { type: type(r.op), lb: r.rhs, ub: r.rhs },
+      })),
     },
     { msglev: glpk.GLP_MSG_OFF, presol: false },
   );
@@ -224,7 +293,9 @@ describe('engine optimum against independent solvers', () => {
   it('glpk.js: other load by hour and a load-reduction window (format extensions)', async () => {
     const input = smallDepot(15, 4, { start: '2026-01-13T12:00', end: '2026-01-14T09:00' });
     // Busy evening in the workshop, quiet night; the utility asks for 45 kW from 01:00 to 03:10.
-    input.site.otherLoadByHourKw = [20, 20, 20, 20, 20, 30, 40, 40, 40, 40, 40, 40, 40, 40, 40, 40, 90, 110, 120, 100, 60, 40, 30, 20];
+    input.site.otherLoadByHourKw = [
+      20, 20, 20, 20, 20, 30, 40, 40, 40, 40, 40, 40, 40, 40, 40, 40, 90, 110, 120, 100, 60, 40, 30, 20,
+    ];
     input.site.limitWindows = [{ from: '2026-01-14T01:00', to: '2026-01-14T03:10', limitKw: 45 }];
     const plan = await enginePlan(input);
     const optimum = await solveWithGlpk(writeLp(input));
@@ -234,7 +305,10 @@ describe('engine optimum against independent solvers', () => {
     expect(plan.slots.find((x) => x.start.startsWith('2026-01-14T03:00'))!.limitKw).toBe(45);
     expect(plan.slots.find((x) => x.start.startsWith('2026-01-14T03:15'))!.limitKw).toBe(input.site.limitKw);
     // Both extensions bind: without them the optimum is lower.
-    const plain = await enginePlan({ ...input, site: { limitKw: input.site.limitKw, otherLoadKw: input.site.otherLoadKw } });
+    const plain = await enginePlan({
+      ...input,
+      site: { limitKw: input.site.limitKw, otherLoadKw: input.site.otherLoadKw },
+    });
     expect(plain.cost.total).toBeLessThan(plan.cost.total - 1);
     const noWindow = await enginePlan({ ...input, site: { ...input.site, limitWindows: undefined } });
     expect(noWindow.cost.total).toBeLessThan(plan.cost.total - 1e-3);

@@ -145,7 +145,9 @@ export function buildChargeModel(problem: Problem, options: ModelOptions): Charg
   const tieBreakCost: number[] = [];
   for (const bus of buses) {
     for (const t of bus.slots) {
-      const upper = assigned ? plugUpper(problem, bus.index, t, plug![bus.index]![t]!) : Math.min(bus.maxKw, strongest[t]!);
+      const upper = assigned
+        ? plugUpper(problem, bus.index, t, plug![bus.index]![t]!)
+        : Math.min(bus.maxKw, strongest[t]!);
       const cost = eps * (1 + t / T);
       pCol[bus.index]![t] = cols.add(cost, 0, upper);
       tieBreakCost.push(cost);
@@ -185,9 +187,17 @@ export function buildChargeModel(problem: Problem, options: ModelOptions): Charg
       if (problem.present[t]! > 0) rows.add([loadCol[t]!, d], [1, -1], -Infinity, -slots[t]!.otherKw);
     }
   };
-  demandVar(tariff.facilityDemandCharge, tariff.facilityPeakSoFarKw, slots.map((s) => s.index));
+  demandVar(
+    tariff.facilityDemandCharge,
+    tariff.facilityPeakSoFarKw,
+    slots.map((s) => s.index),
+  );
   tariff.periods.forEach((p, k) => {
-    demandVar(p.demandCharge, p.peakSoFarKw, slots.filter((s) => s.period === k).map((s) => s.index));
+    demandVar(
+      p.demandCharge,
+      p.peakSoFarKw,
+      slots.filter((s) => s.period === k).map((s) => s.index),
+    );
   });
 
   // Departures and ceilings: energy at a departure is the arrival energy, minus earlier runs,

@@ -6,7 +6,8 @@ import { parseScenario, type ScenarioInput } from './scenario.js';
 import { generateDepot } from './testing/generate-depot.js';
 import { checkPlan } from './testing/plan-checker.js';
 
-const example = (name: string): ScenarioInput => JSON.parse(readFileSync(new URL(`../examples/${name}.json`, import.meta.url), 'utf8'));
+const example = (name: string): ScenarioInput =>
+  JSON.parse(readFileSync(new URL(`../examples/${name}.json`, import.meta.url), 'utf8'));
 
 async function plan(input: ScenarioInput, options = { timeBudgetMs: 1500, maxMoves: 60 }): Promise<Plan> {
   const parsed = parseScenario(input);
@@ -33,7 +34,13 @@ function night(buses: ScenarioInput['buses'], over: Partial<ScenarioInput> = {})
     ...over,
   } as ScenarioInput;
 }
-const bus = (id: string, arrive: string, depart: string, departMinKwh: number, extra: Record<string, unknown> = {}) => ({
+const bus = (
+  id: string,
+  arrive: string,
+  depart: string,
+  departMinKwh: number,
+  extra: Record<string, unknown> = {},
+) => ({
   id,
   usableKwh: 200,
   maxKw: 100,
@@ -43,13 +50,16 @@ const bus = (id: string, arrive: string, depart: string, departMinKwh: number, e
 });
 
 describe('examples', () => {
-  it.each(['small-depot', 'demo-depot', 'autumn-clock-change', 'cannot-serve-all'])('plans %s and the plan passes the checker', async (name) => {
-    const p = await plan(example(name));
-    expect(p.cost.total).toBeGreaterThanOrEqual(p.lowerBound - 1e-6);
-    if (name === 'cannot-serve-all') expect(p.status).toBe('short');
-    else expect(p.status).not.toBe('short');
-    if (name === 'autumn-clock-change') expect(p.slots).toHaveLength(100);
-  });
+  it.each(['small-depot', 'demo-depot', 'autumn-clock-change', 'cannot-serve-all'])(
+    'plans %s and the plan passes the checker',
+    async (name) => {
+      const p = await plan(example(name));
+      expect(p.cost.total).toBeGreaterThanOrEqual(p.lowerBound - 1e-6);
+      if (name === 'cannot-serve-all') expect(p.status).toBe('short');
+      else expect(p.status).not.toBe('short');
+      if (name === 'autumn-clock-change') expect(p.slots).toHaveLength(100);
+    },
+  );
 
   it('saves against the cheaper baseline on the demo depot, both inside the service limit', async () => {
     const p = await plan(example('demo-depot'));
@@ -179,17 +189,45 @@ describe('shortfall reasons, each produced on purpose', () => {
 
 describe('tariff in the plan', () => {
   it('costs no demand below the peak so far, and a higher peak so far never costs more', async () => {
-    const tariff = { currency: 'USD', offPeakPrice: 0.1, periods: [], facilityDemandCharge: 15, peaksSoFarKw: { facility: 500 } };
-    const p = await plan(night([bus('B1', '13T18:00', '14T06:00', 150), bus('B2', '13T18:00', '14T06:00', 150)], { tariff, chargers: [{ id: 'C1', maxKw: 100 }, { id: 'C2', maxKw: 100 }] }));
+    const tariff = {
+      currency: 'USD',
+      offPeakPrice: 0.1,
+      periods: [],
+      facilityDemandCharge: 15,
+      peaksSoFarKw: { facility: 500 },
+    };
+    const p = await plan(
+      night([bus('B1', '13T18:00', '14T06:00', 150), bus('B2', '13T18:00', '14T06:00', 150)], {
+        tariff,
+        chargers: [
+          { id: 'C1', maxKw: 100 },
+          { id: 'C2', maxKw: 100 },
+        ],
+      }),
+    );
     expect(p.cost.demand).toBe(0);
     expect(p.cost.energy).toBeCloseTo(0.1 * 200, 6);
-    const q = await plan(night([bus('B1', '13T18:00', '14T06:00', 150), bus('B2', '13T18:00', '14T06:00', 150)], { tariff: { ...tariff, peaksSoFarKw: {} }, chargers: [{ id: 'C1', maxKw: 100 }, { id: 'C2', maxKw: 100 }] }));
+    const q = await plan(
+      night([bus('B1', '13T18:00', '14T06:00', 150), bus('B2', '13T18:00', '14T06:00', 150)], {
+        tariff: { ...tariff, peaksSoFarKw: {} },
+        chargers: [
+          { id: 'C1', maxKw: 100 },
+          { id: 'C2', maxKw: 100 },
+        ],
+      }),
+    );
     // Without a peak so far the plan spreads 200 kWh over the 12-hour stay: 16.67 kW at $15.
     expect(q.cost.demand).toBeCloseTo(15 * (200 / 12), 4);
   });
 
   it('charges inside a cheap window that runs past midnight', async () => {
-    const tariff = { currency: 'USD', offPeakPrice: 0.2, periods: [{ name: 'night', price: 0.05, demandCharge: 0, windows: [{ days: [2], from: '23:00', to: '03:00' }] }], facilityDemandCharge: 0, peaksSoFarKw: {} };
+    const tariff = {
+      currency: 'USD',
+      offPeakPrice: 0.2,
+      periods: [{ name: 'night', price: 0.05, demandCharge: 0, windows: [{ days: [2], from: '23:00', to: '03:00' }] }],
+      facilityDemandCharge: 0,
+      peaksSoFarKw: {},
+    };
     const p = await plan(night([bus('B1', '13T18:00', '14T06:00', 150)], { tariff }));
     expect(p.cost.energy).toBeCloseTo(0.05 * 100, 6);
     for (const s of p.sessions) {
@@ -201,20 +239,50 @@ describe('tariff in the plan', () => {
   it.each([
     ['spring', '2026-03-07T12:00', '2026-03-08T12:00', 92, '2026-03-07T17:00', '2026-03-08T06:00'],
     ['autumn', '2026-10-31T12:00', '2026-11-01T12:00', 100, '2026-10-31T17:00', '2026-11-01T06:00'],
-  ])('plans over the %s clock change in America/Chicago with the right slots and costs', async (_n, start, end, slots, arrive, depart) => {
-    const tariff = { currency: 'USD', offPeakPrice: 0.1, periods: [{ name: 'small-hours', price: 0.04, demandCharge: 0, windows: [{ days: [6, 7], from: '01:00', to: '03:00' }] }], facilityDemandCharge: 5, peaksSoFarKw: {} };
-    const b = (id: string) => ({ id, usableKwh: 200, maxKw: 100, arrivalKwh: 50, stays: [{ arrive, depart, departMinKwh: 170 }] });
-    const p = await plan({ ...night([b('B1'), b('B2')], { tariff, chargers: [{ id: 'C1', maxKw: 100 }] }), start, end } as ScenarioInput);
-    expect(p.slots).toHaveLength(slots);
-    expect(p.status).not.toBe('short');
-  });
+  ])(
+    'plans over the %s clock change in America/Chicago with the right slots and costs',
+    async (_n, start, end, slots, arrive, depart) => {
+      const tariff = {
+        currency: 'USD',
+        offPeakPrice: 0.1,
+        periods: [
+          {
+            name: 'small-hours',
+            price: 0.04,
+            demandCharge: 0,
+            windows: [{ days: [6, 7], from: '01:00', to: '03:00' }],
+          },
+        ],
+        facilityDemandCharge: 5,
+        peaksSoFarKw: {},
+      };
+      const b = (id: string) => ({
+        id,
+        usableKwh: 200,
+        maxKw: 100,
+        arrivalKwh: 50,
+        stays: [{ arrive, depart, departMinKwh: 170 }],
+      });
+      const p = await plan({
+        ...night([b('B1'), b('B2')], { tariff, chargers: [{ id: 'C1', maxKw: 100 }] }),
+        start,
+        end,
+      } as ScenarioInput);
+      expect(p.slots).toHaveLength(slots);
+      expect(p.status).not.toBe('short');
+    },
+  );
 });
 
 describe('npm run plan', () => {
   const cli = (file: string) =>
     new Promise<{ code: number; stdout: string; stderr: string }>((resolve) => {
-      execFile('npx', ['tsx', new URL('./cli/plan.ts', import.meta.url).pathname, file], { timeout: 60_000 }, (error, stdout, stderr) =>
-        resolve({ code: error ? (typeof error.code === 'number' ? error.code : 1) : 0, stdout, stderr }),
+      execFile(
+        'npx',
+        ['tsx', new URL('./cli/plan.ts', import.meta.url).pathname, file],
+        { timeout: 60_000 },
+        (error, stdout, stderr) =>
+          resolve({ code: error ? (typeof error.code === 'number' ? error.code : 1) : 0, stdout, stderr }),
       );
     });
 
@@ -240,8 +308,11 @@ describe('npm run plan', () => {
     writeFileSync(file, JSON.stringify(generateDepot({ buses: 160, seed: 3 })));
     const root = new URL('../../..', import.meta.url).pathname;
     const out = await new Promise<{ code: number; stdout: string }>((resolve) =>
-      execFile('sh', ['-c', `npm run -s plan -- ${file} | (sleep 2; cat)`], { cwd: root, timeout: 60_000, maxBuffer: 1 << 26 }, (error, stdout) =>
-        resolve({ code: error ? (typeof error.code === 'number' ? error.code : 1) : 0, stdout }),
+      execFile(
+        'sh',
+        ['-c', `npm run -s plan -- ${file} | (sleep 2; cat)`],
+        { cwd: root, timeout: 60_000, maxBuffer: 1 << 26 },
+        (error, stdout) => resolve({ code: error ? (typeof error.code === 'number' ? error.code : 1) : 0, stdout }),
       ),
     );
     expect(out.code).toBe(0);

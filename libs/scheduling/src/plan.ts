@@ -220,10 +220,29 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
   // The tie-break adds at most 1e-7 of the energy cost: closer than this is optimal.
   const target = lb.penalisedObjective * (1 + 5e-7) + 1e-9;
   const candidates: [string, () => Assignment][] = [
-    ['sweep-strong-deadline', () => sweepAssignment(problem, { load, energy: hints.energy, pick: 'strong', order: 'deadline' })],
-    ['sweep-strong-deadline-reserve', () => sweepAssignment(problem, { load, energy: hints.energy, pick: 'strong', order: 'deadline', reserve: { power: lb.power, above: 0.5 } })],
-    ['sweep-strong-slack', () => sweepAssignment(problem, { load, energy: hints.energy, pick: 'strong', order: 'slack' })],
-    ['sweep-fit-deadline', () => sweepAssignment(problem, { load, energy: hints.energy, pick: 'fit', order: 'deadline' })],
+    [
+      'sweep-strong-deadline',
+      () => sweepAssignment(problem, { load, energy: hints.energy, pick: 'strong', order: 'deadline' }),
+    ],
+    [
+      'sweep-strong-deadline-reserve',
+      () =>
+        sweepAssignment(problem, {
+          load,
+          energy: hints.energy,
+          pick: 'strong',
+          order: 'deadline',
+          reserve: { power: lb.power, above: 0.5 },
+        }),
+    ],
+    [
+      'sweep-strong-slack',
+      () => sweepAssignment(problem, { load, energy: hints.energy, pick: 'strong', order: 'slack' }),
+    ],
+    [
+      'sweep-fit-deadline',
+      () => sweepAssignment(problem, { load, energy: hints.energy, pick: 'fit', order: 'deadline' }),
+    ],
     ['sweep-fit-slack', () => sweepAssignment(problem, { load, energy: hints.energy, pick: 'fit', order: 'slack' })],
   ];
   // The sequencing heuristic (better where chargers are scarce) knows nothing of stays already
@@ -232,7 +251,10 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
     candidates.push(
       ['sequence-departure-share', () => initialAssignment(problem, hints)],
       ['sequence-best-share', () => initialAssignment(problem, { ...hints, order: 'best', handover: 'share' })],
-      ['sequence-departure-least-cut', () => initialAssignment(problem, { ...hints, order: 'departure', handover: 'least-cut' })],
+      [
+        'sequence-departure-least-cut',
+        () => initialAssignment(problem, { ...hints, order: 'departure', handover: 'least-cut' }),
+      ],
       ['sequence-best-least-cut', () => initialAssignment(problem, { ...hints, order: 'best', handover: 'least-cut' })],
     );
   }
@@ -263,7 +285,8 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
   let exactProven = false;
   try {
     let first = live.solve();
-    if (first.status !== 'optimal') throw new Error(`plan LP ended ${first.status}; the model should always be solvable`);
+    if (first.status !== 'optimal')
+      throw new Error(`plan LP ended ${first.status}; the model should always be solvable`);
     const all = problem.buses.map((b) => b.index);
     let current = start;
     for (let i = 1; i < candidates.length && first.objective > target; i++) {
@@ -290,7 +313,10 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
         live.update(other, all);
         current = other;
         const res = live.solve();
-        if (res.status === 'optimal' && res.objective < first.objective - 1e-9 * Math.max(1, Math.abs(first.objective))) {
+        if (
+          res.status === 'optimal' &&
+          res.objective < first.objective - 1e-9 * Math.max(1, Math.abs(first.objective))
+        ) {
           start = other;
           first = res;
           construction += '+rebalance';
@@ -305,14 +331,36 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
     // search over pairs of chargers), then single moves again from what that found. Each step
     // keeps only improvements, so the plan is never worse than the local search alone.
     search = localSearch(problem, hints, live, start, first, { deadline, maxMoves, target });
-    if (options.lns !== false && search.result.objective > target && !search.timedOut && problem.stays.length <= LNS_MAX_STAYS) {
-      const lns = pairSearch(problem, hints, live, search.assignment, search.result, defaultLnsLimits(problem, deadline, target));
-      lnsStats = { neighbourhoods: lns.neighbourhoods, accepted: lns.accepted, lpSolves: lns.moves, splits: lns.splits };
+    if (
+      options.lns !== false &&
+      search.result.objective > target &&
+      !search.timedOut &&
+      problem.stays.length <= LNS_MAX_STAYS
+    ) {
+      const lns = pairSearch(
+        problem,
+        hints,
+        live,
+        search.assignment,
+        search.result,
+        defaultLnsLimits(problem, deadline, target),
+      );
+      lnsStats = {
+        neighbourhoods: lns.neighbourhoods,
+        accepted: lns.accepted,
+        lpSolves: lns.moves,
+        splits: lns.splits,
+      };
       if (lns.accepted > 0) {
         construction += '+lns';
-        const again = lns.timedOut || lns.result.objective <= target
-          ? null
-          : localSearch(problem, hints, live, lns.assignment, lns.result, { deadline, maxMoves: Math.ceil(maxMoves / 2), target });
+        const again =
+          lns.timedOut || lns.result.objective <= target
+            ? null
+            : localSearch(problem, hints, live, lns.assignment, lns.result, {
+                deadline,
+                maxMoves: Math.ceil(maxMoves / 2),
+                target,
+              });
         const best = again && again.result.objective < lns.result.objective ? again : lns;
         search = {
           ...search,
@@ -327,7 +375,11 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
         search.result = live.solve();
       }
     }
-    chosen = preferStableAndFewerMoves(problem, hints, live, search.assignment, search.result, { deadline, maxMoves, target });
+    chosen = preferStableAndFewerMoves(problem, hints, live, search.assignment, search.result, {
+      deadline,
+      maxMoves,
+      target,
+    });
     // Full service first: a bus may stay short only if no assignment serves it. On a small depot
     // the exact MILP either finds one that does or proves the shortfall necessary.
     const shortNow = shortfallIn(problem, live, chosen.result);
@@ -339,13 +391,25 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
           maxNodes: EXACT_LIMITS.nodes,
           timeLimitMs: Math.max(1, Math.min(EXACT_LIMITS.ms, deadline - performance.now())),
         });
-        exactStats = { status: ex.timeLimited ? 'time' : ex.status, nodes: ex.nodes, binaries: ex.binaries, ms: round(ex.ms, 1) };
+        exactStats = {
+          status: ex.timeLimited ? 'time' : ex.status,
+          nodes: ex.nodes,
+          binaries: ex.binaries,
+          ms: round(ex.ms, 1),
+        };
         // Stopped by the clock, its answer would depend on the machine's load: left unused.
         if (!ex.timeLimited && Number.isFinite(ex.bound)) exactBound = ex.bound;
-        if (!ex.timeLimited && ex.assignment && ex.objective < chosen.result.objective - 1e-6 * Math.max(1, Math.abs(chosen.result.objective))) {
+        if (
+          !ex.timeLimited &&
+          ex.assignment &&
+          ex.objective < chosen.result.objective - 1e-6 * Math.max(1, Math.abs(chosen.result.objective))
+        ) {
           live.update(ex.assignment, all);
           const res = live.solve();
-          if (res.status === 'optimal' && res.objective < chosen.result.objective - 1e-9 * Math.max(1, Math.abs(chosen.result.objective))) {
+          if (
+            res.status === 'optimal' &&
+            res.objective < chosen.result.objective - 1e-9 * Math.max(1, Math.abs(chosen.result.objective))
+          ) {
             chosen = { assignment: ex.assignment, result: res, crewTrade: null, keptPrevious: chosen.keptPrevious };
             construction += '+exact';
           } else live.update(chosen.assignment, all);
@@ -370,7 +434,15 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
     power = powerFrom(problem, full, res.x);
   }
   power = power.map((row) => row.map((v) => round(v)));
-  const plan = assemblePlan(problem, solver, plug, power, Math.max(lb.penalisedObjective, exactBound), lb.shortfallKwh, exactProven);
+  const plan = assemblePlan(
+    problem,
+    solver,
+    plug,
+    power,
+    Math.max(lb.penalisedObjective, exactBound),
+    lb.shortfallKwh,
+    exactProven,
+  );
   plan.stats.exact = exactStats;
   plan.crewTrade = chosen.crewTrade;
   plan.keptPrevious = chosen.keptPrevious;
@@ -400,7 +472,11 @@ interface Chosen {
  * with crew rules, the same hand-overs moved to pull-ins and pull-outs where that saves moves.
  */
 function preferStableAndFewerMoves(
-  problem: Problem, hints: AssignmentHints, live: AssignedModel, cheapest: Assignment, result: LpResult,
+  problem: Problem,
+  hints: AssignmentHints,
+  live: AssignedModel,
+  cheapest: Assignment,
+  result: LpResult,
   limits: { deadline: number; maxMoves: number; target: number },
 ): Chosen {
   const all = problem.buses.map((b) => b.index);
@@ -415,15 +491,30 @@ function preferStableAndFewerMoves(
     const first = live.solve();
     if (first.status === 'optimal') {
       const minGain = problem.tolerance.amount / 10;
-      let search = first.objective <= limit ? { assignment: kept, result: first } : localSearch(problem, hints, live, kept, first, { ...limits, minGain });
-      if (search.result.objective > limit && problem.stays.length <= LNS_MAX_STAYS && performance.now() < limits.deadline) {
+      let search =
+        first.objective <= limit
+          ? { assignment: kept, result: first }
+          : localSearch(problem, hints, live, kept, first, { ...limits, minGain });
+      if (
+        search.result.objective > limit &&
+        problem.stays.length <= LNS_MAX_STAYS &&
+        performance.now() < limits.deadline
+      ) {
         // Still too dear: re-split pairs of chargers (dearest stays first), which moves only the
         // buses of the chargers it changes, before giving up on the plan being carried out.
-        const lns = pairSearch(problem, hints, live, search.assignment, search.result, { ...defaultLnsLimits(problem, limits.deadline, limit), passes: 2 });
+        const lns = pairSearch(problem, hints, live, search.assignment, search.result, {
+          ...defaultLnsLimits(problem, limits.deadline, limit),
+          passes: 2,
+        });
         if (lns.result.objective < search.result.objective) search = { assignment: lns.assignment, result: lns.result };
       }
       if (search.result.objective <= limit) {
-        chosen = { assignment: search.assignment, result: search.result, crewTrade: null, keptPrevious: { extraCost: round(Math.max(0, search.result.objective - base), 2) } };
+        chosen = {
+          assignment: search.assignment,
+          result: search.result,
+          crewTrade: null,
+          keptPrevious: { extraCost: round(Math.max(0, search.result.objective - base), 2) },
+        };
       }
     }
   }
@@ -441,7 +532,10 @@ function preferStableAndFewerMoves(
     }
     const movesChosen = countCrewMoves(problem, chosen.assignment);
     if (movesChosen < movesBefore) {
-      chosen.crewTrade = { fewerMoves: movesBefore - movesChosen, extraCost: round(Math.max(0, chosen.result.objective - base), 2) };
+      chosen.crewTrade = {
+        fewerMoves: movesBefore - movesChosen,
+        extraCost: round(Math.max(0, chosen.result.objective - base), 2),
+      };
     }
   }
   return chosen;
@@ -543,7 +637,9 @@ function assemblePlan(
       t = u;
     }
   }
-  sessions.sort((x, y) => (x.charger < y.charger ? -1 : x.charger > y.charger ? 1 : x.start < y.start ? -1 : x.start > y.start ? 1 : 0));
+  sessions.sort((x, y) =>
+    x.charger < y.charger ? -1 : x.charger > y.charger ? 1 : x.start < y.start ? -1 : x.start > y.start ? 1 : 0,
+  );
 
   // Energy at each departure follows from the power delivered.
   const shortByBus = new Float64Array(problem.buses.length);
@@ -563,11 +659,21 @@ function assemblePlan(
       }
       e -= stay.runKwh;
     }
-    return { id: bus.id, departures, shortfallKwh: round(shortByBus[bus.index]!), reason: null, cause: null, causeProven: null };
+    return {
+      id: bus.id,
+      departures,
+      shortfallKwh: round(shortByBus[bus.index]!),
+      reason: null,
+      cause: null,
+      causeProven: null,
+    };
   });
   if (totalShort > 0) {
     const reasons = explainShortfalls(problem, solver, plug, shortByBus);
-    const strongest = Math.max(0, ...problem.chargers.filter((c) => c.available.some((a) => a === 1)).map((c) => c.maxKw));
+    const strongest = Math.max(
+      0,
+      ...problem.chargers.filter((c) => c.available.some((a) => a === 1)).map((c) => c.maxKw),
+    );
     busOut.forEach((b, i) => {
       b.reason = shortByBus[i]! > 1e-4 ? (reasons[i] ?? 'charger') : null;
       if (!b.reason) return;
@@ -584,7 +690,10 @@ function assemblePlan(
   for (let t = 0; t < T; t++) deliveredKwh += charging[t]! * dt;
   const arrival = limitedBaseline(problem, departureKwh, 'arrival');
   const timer = limitedBaseline(problem, departureKwh, 'timer');
-  const baselines = { arrival: baselineCost(arrival, cost.energy, deliveredKwh), timer: baselineCost(timer, cost.energy, deliveredKwh) };
+  const baselines = {
+    arrival: baselineCost(arrival, cost.energy, deliveredKwh),
+    timer: baselineCost(timer, cost.energy, deliveredKwh),
+  };
   const baseline = referenceBaseline(baselines);
   // Valid for every plan at most as short as this one: cost + M x short >= relaxation optimum.
   const lowerBound = Math.max(0, lbPenalised - problem.shortfallPenalty * Math.max(totalShort, lbShortfall));
@@ -596,14 +705,22 @@ function assemblePlan(
     cost: { energy: round(cost.energy), demand: round(cost.demand), total: round(cost.total) },
     baseline: roundedBaseline(baseline),
     baselines: {
-      arrival: { ...roundedBaseline(baselines.arrival), chargingKw: Array.from(arrival.chargingKw, (kw) => round(kw, 3)) },
+      arrival: {
+        ...roundedBaseline(baselines.arrival),
+        chargingKw: Array.from(arrival.chargingKw, (kw) => round(kw, 3)),
+      },
       timer: { ...roundedBaseline(baselines.timer), chargingKw: Array.from(timer.chargingKw, (kw) => round(kw, 3)) },
     },
     // Solver tolerance can put the bound a hair above the plan; anything larger stays visible.
     lowerBound: round(lowerBound > total && lowerBound - total <= 1e-7 * Math.max(1, total) ? total : lowerBound),
     gap: round(gap, 9),
     solveMs: 0,
-    slots: problem.slots.map((s, t) => ({ start: s.start, loadKw: round(charging[t]! + s.otherKw), price: s.price, limitKw: s.limitKw })),
+    slots: problem.slots.map((s, t) => ({
+      start: s.start,
+      loadKw: round(charging[t]! + s.otherKw),
+      price: s.price,
+      limitKw: s.limitKw,
+    })),
     sessions,
     crewMoves,
     crewTrade: null,
@@ -643,8 +760,14 @@ function assemblePlan(
 function baselineCost(b: Baseline, planEnergyCost: number, planGridKwh: number): BaselineCost {
   const shortfallCost = planGridKwh > 0 ? (b.shortfallKwh / b.eta) * (planEnergyCost / planGridKwh) : 0;
   return {
-    kind: b.kind, energy: b.cost.energy, demand: b.cost.demand, total: b.cost.total + shortfallCost,
-    peakKw: b.peakKw, exceedsSiteLimit: b.exceedsSiteLimit, shortfallKwh: b.shortfallKwh, shortfallCost,
+    kind: b.kind,
+    energy: b.cost.energy,
+    demand: b.cost.demand,
+    total: b.cost.total + shortfallCost,
+    peakKw: b.peakKw,
+    exceedsSiteLimit: b.exceedsSiteLimit,
+    shortfallKwh: b.shortfallKwh,
+    shortfallCost,
   };
 }
 
@@ -664,7 +787,12 @@ export function referenceBaseline(b: Record<BaselineKind, BaselineCost>): Baseli
 
 function roundedBaseline(b: BaselineCost): BaselineCost {
   return {
-    ...b, energy: round(b.energy), demand: round(b.demand), total: round(b.total), peakKw: round(b.peakKw),
-    shortfallKwh: round(b.shortfallKwh), shortfallCost: round(b.shortfallCost),
+    ...b,
+    energy: round(b.energy),
+    demand: round(b.demand),
+    total: round(b.total),
+    peakKw: round(b.peakKw),
+    shortfallKwh: round(b.shortfallKwh),
+    shortfallCost: round(b.shortfallCost),
   };
 }

@@ -176,13 +176,21 @@ export function prepareProblem(scenario: Scenario): Problem {
     let capacity: Int32Array | null = null;
     if (y.crew) {
       capacity = new Int32Array(T);
-      const windows = y.crew.map((w) => ({ from: localToMillis(w.from, scenario.timezone)!, to: localToMillis(w.to, scenario.timezone)!, moves: w.movesPerSlot }));
+      const windows = y.crew.map((w) => ({
+        from: localToMillis(w.from, scenario.timezone)!,
+        to: localToMillis(w.to, scenario.timezone)!,
+        moves: w.movesPerSlot,
+      }));
       // A slot takes moves if it lies wholly inside a crew window; overlapping windows add up.
       slots.forEach((s, t) => {
         for (const w of windows) if (w.from <= s.startMs && s.endMs <= w.to) capacity![t] = capacity![t]! + w.moves;
       });
     }
-    yard = { minSlots: Math.ceil(y.minPlugInMinutes / scenario.slotMinutes - 1e-9), driversPlugIn: y.driversPlugIn, capacity };
+    yard = {
+      minSlots: Math.ceil(y.minPlugInMinutes / scenario.slotMinutes - 1e-9),
+      driversPlugIn: y.driversPlugIn,
+      capacity,
+    };
   }
   // Delivering one kWh to a battery costs at most (price + every demand rate spread over one
   // slot) / efficiency; a penalty well above that makes the LP serve every kWh it can.

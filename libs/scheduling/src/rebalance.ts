@@ -18,7 +18,8 @@ export function sharedChargerPower(problem: Problem, solver: Solver, assignment:
     const c = assignment.chargerOf[stay.id]!;
     if (c < 0) continue;
     onCharger[c]!.push(stay.id);
-    for (let t = stay.arriveSlot; t < stay.departSlot; t++) if (problem.chargers[c]!.available[t]) plug[stay.bus]![t] = c;
+    for (let t = stay.arriveSlot; t < stay.departSlot; t++)
+      if (problem.chargers[c]!.available[t]) plug[stay.bus]![t] = c;
   }
   const model = buildChargeModel(problem, { mode: 'assigned', plug, tieBreak: true });
   const lp = model.lp;
@@ -76,7 +77,12 @@ export function sharedChargerPower(problem: Problem, solver: Solver, assignment:
 }
 
 /** The assignment with each charger's stays ordered and handed over by the given powers. */
-export function rebalanced(problem: Problem, hints: AssignmentHints, assignment: Assignment, power: Float64Array[]): Assignment {
+export function rebalanced(
+  problem: Problem,
+  hints: AssignmentHints,
+  assignment: Assignment,
+  power: Float64Array[],
+): Assignment {
   const dt = problem.slotHours;
   const energy = new Float64Array(problem.stays.length);
   const centre = new Float64Array(problem.stays.length);

@@ -45,7 +45,12 @@ describe('replan', () => {
 
     // Energy delivered before 23:00 (on the failed charger and elsewhere) is the bus's energy now.
     const b = s.buses.find((x) => x.id === bus)!;
-    const deliveredKwh = before.sessions.filter((x) => x.bus === bus).reduce((a, x) => a + x.kw.reduce((k, v, i) => k + (Date.parse(x.start) + i * 900_000 < cut ? v * 0.25 : 0), 0), 0);
+    const deliveredKwh = before.sessions
+      .filter((x) => x.bus === bus)
+      .reduce(
+        (a, x) => a + x.kw.reduce((k, v, i) => k + (Date.parse(x.start) + i * 900_000 < cut ? v * 0.25 : 0), 0),
+        0,
+      );
     expect(deliveredKwh).toBeGreaterThan(0);
     const now = r.replan.scenario.buses.find((x) => x.id === bus)!;
     expect(now.arrivalKwh).toBeCloseTo(b.arrivalKwh + s.efficiency * deliveredKwh, 4);
@@ -66,7 +71,11 @@ describe('replan', () => {
     const before = await planOf(s);
     const late = s.buses[0]!;
     expect(before.sessions.some((x) => x.bus === late.id)).toBe(true);
-    const r = await replanOf(s, { now: '2026-01-14T19:00', previous: before, lateArrivals: { [late.id]: '2026-01-14T22:30' } });
+    const r = await replanOf(s, {
+      now: '2026-01-14T19:00',
+      previous: before,
+      lateArrivals: { [late.id]: '2026-01-14T22:30' },
+    });
     const mine = r.sessions.filter((x) => x.bus === late.id);
     expect(mine.length).toBeGreaterThan(0);
     for (const x of mine) expect(Date.parse(x.start)).toBeGreaterThanOrEqual(at('2026-01-14T22:30'));
@@ -80,9 +89,15 @@ describe('replan', () => {
     const s = depot();
     const bus = s.buses.find((b) => Date.parse(`${b.stays[0]!.arrive}:00-06:00`) <= at('2026-01-14T21:00'))!;
     const charger = s.chargers[s.chargers.length - 1]!.id;
-    const r = await replanOf(s, { now: '2026-01-14T21:00', plugged: { [bus.id]: charger }, energyKwh: { [bus.id]: bus.arrivalKwh + 5 } });
+    const r = await replanOf(s, {
+      now: '2026-01-14T21:00',
+      plugged: { [bus.id]: charger },
+      energyKwh: { [bus.id]: bus.arrivalKwh + 5 },
+    });
     expect(r.replan.scenario.buses.find((b) => b.id === bus.id)!.arrivalKwh).toBe(bus.arrivalKwh + 5);
-    const first = r.sessions.filter((x) => x.bus === bus.id).sort((x, y) => Date.parse(x.start) - Date.parse(y.start))[0]!;
+    const first = r.sessions
+      .filter((x) => x.bus === bus.id)
+      .sort((x, y) => Date.parse(x.start) - Date.parse(y.start))[0]!;
     expect(first.charger).toBe(charger);
     // Nobody else is on that charger before the plugged bus leaves it.
     const others = r.sessions.filter((x) => x.charger === charger && x.bus !== bus.id);
@@ -109,9 +124,20 @@ describe('replan', () => {
       return [];
     };
     expect(await problemsOf({ now: '2026-01-16T01:00' })).toEqual(['state.now']);
-    expect(await problemsOf({ now: '2026-01-14T23:00', outOfService: ['C999'], energyKwh: { B999: 10 } })).toEqual(['state.energyKwh.B999', 'state.outOfService[0]']);
-    expect(await problemsOf({ now: '2026-01-14T23:00', lateArrivals: { B001: '2026-01-15T11:00' } })).toEqual(['state.lateArrivals.B001']);
+    expect(await problemsOf({ now: '2026-01-14T23:00', outOfService: ['C999'], energyKwh: { B999: 10 } })).toEqual([
+      'state.energyKwh.B999',
+      'state.outOfService[0]',
+    ]);
+    expect(await problemsOf({ now: '2026-01-14T23:00', lateArrivals: { B001: '2026-01-15T11:00' } })).toEqual([
+      'state.lateArrivals.B001',
+    ]);
     const [c1, c2] = s.chargers;
-    expect(await problemsOf({ now: '2026-01-14T23:00', outOfService: [c1!.id], plugged: { B001: c1!.id, B002: c2!.id, B003: c2!.id } })).toEqual(['state.plugged.B001', 'state.plugged.B003']);
+    expect(
+      await problemsOf({
+        now: '2026-01-14T23:00',
+        outOfService: [c1!.id],
+        plugged: { B001: c1!.id, B002: c2!.id, B003: c2!.id },
+      }),
+    ).toEqual(['state.plugged.B001', 'state.plugged.B003']);
   });
 });

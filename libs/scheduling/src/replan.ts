@@ -2,7 +2,13 @@ import { DateTime } from 'luxon';
 import { loadSolver } from './highs-solver.js';
 import { planProblem, type Plan, type PlanOptions, type PlanSession } from './plan.js';
 import { prepareProblem } from './problem.js';
-import { formatPath, localToMillis, parseScenario, type Problem as ScenarioProblem, type Scenario } from './scenario.js';
+import {
+  formatPath,
+  localToMillis,
+  parseScenario,
+  type Problem as ScenarioProblem,
+  type Scenario,
+} from './scenario.js';
 import { buildSlots } from './slots.js';
 
 // Re-planning during the night. At a cut-off instant `now` the depot reports what has happened:
@@ -97,21 +103,29 @@ export async function replan(scenario: Scenario, state: ReplanState, options: Pl
   for (const bus of problem.buses) {
     const original = scenario.buses.find((b) => b.id === bus.id)!;
     const stay = bus.stays[0]!;
-    const before = original.stays.some((st) => localToMillis(st.arrive, scenario.timezone)! < cutMs && localToMillis(st.depart, scenario.timezone)! > cutMs);
-    const late = state.lateArrivals?.[bus.id] !== undefined && localToMillis(state.lateArrivals[bus.id]!, scenario.timezone)! >= cutMs;
+    const before = original.stays.some(
+      (st) =>
+        localToMillis(st.arrive, scenario.timezone)! < cutMs && localToMillis(st.depart, scenario.timezone)! > cutMs,
+    );
+    const late =
+      state.lateArrivals?.[bus.id] !== undefined &&
+      localToMillis(state.lateArrivals[bus.id]!, scenario.timezone)! >= cutMs;
     if (before && !late && stay.arriveMs <= cutMs) arrivedEarlier[stay.id] = 1;
   }
   problem.arrivedEarlier = arrivedEarlier;
   if (state.previous) problem.previous = previousWindows(problem, state.previous);
   const plan = planProblem(problem, solver, options, t0);
-  const moved = state.previous ? movedBuses(problem, state.previous, plan, state, outOfService) : { buses: [], reasons: [] };
+  const moved = state.previous
+    ? movedBuses(problem, state.previous, plan, state, outOfService)
+    : { buses: [], reasons: [] };
   return { ...plan, replan: { from: problem.slots[0]!.start, scenario: derived, outOfService, plugged, kept, moved } };
 }
 
 /** The scenario from the cut-off on (exported for tests and for exporting a re-plan's input). */
 export function deriveScenario(scenario: Scenario, state: ReplanState) {
   const problems: ScenarioProblem[] = [];
-  const add = (path: (string | number)[], message: string) => problems.push({ path: formatPath(['state', ...path]), message });
+  const add = (path: (string | number)[], message: string) =>
+    problems.push({ path: formatPath(['state', ...path]), message });
   const zone = scenario.timezone;
   const slotMs = scenario.slotMinutes * 60_000;
   const slots = buildSlots(scenario);
@@ -143,13 +157,16 @@ export function deriveScenario(scenario: Scenario, state: ReplanState) {
 
   const busIds = new Set(scenario.buses.map((b) => b.id));
   const chargerIds = new Set(scenario.chargers.map((c) => c.id));
-  for (const id of Object.keys(state.energyKwh ?? {})) if (!busIds.has(id)) add(['energyKwh', id], 'is not a bus of the scenario');
-  for (const id of Object.keys(state.lateArrivals ?? {})) if (!busIds.has(id)) add(['lateArrivals', id], 'is not a bus of the scenario');
+  for (const id of Object.keys(state.energyKwh ?? {}))
+    if (!busIds.has(id)) add(['energyKwh', id], 'is not a bus of the scenario');
+  for (const id of Object.keys(state.lateArrivals ?? {}))
+    if (!busIds.has(id)) add(['lateArrivals', id], 'is not a bus of the scenario');
   const outOfService = [...new Set(state.outOfService ?? [])];
   (state.outOfService ?? []).forEach((id, i) => {
     if (!chargerIds.has(id)) add(['outOfService', i], `${id} is not a charger of the scenario`);
   });
-  for (const [id, kwh] of Object.entries(state.energyKwh ?? {})) if (!(Number.isFinite(kwh) && kwh >= 0)) add(['energyKwh', id], 'must be a number of kWh, 0 or more');
+  for (const [id, kwh] of Object.entries(state.energyKwh ?? {}))
+    if (!(Number.isFinite(kwh) && kwh >= 0)) add(['energyKwh', id], 'must be a number of kWh, 0 or more');
 
   // What the previous plan delivered before the cut (grid kW per bus per slot). A late bus was
   // not at the depot for the stay it is late for: its sessions from that stay's planned arrival
@@ -174,7 +191,12 @@ export function deriveScenario(scenario: Scenario, state: ReplanState) {
       const kw = s.kw.slice(0, cut - first);
       kw.forEach((v, i) => (row[first + i] = row[first + i]! + v));
       const endMs = startMs + (first + kw.length) * slotMs;
-      kept.push({ ...s, end: DateTime.fromMillis(endMs, { zone }).toISO()!, kw, kwh: round(kw.reduce((a, v) => a + (v * slotMs) / 3_600_000, 0)) });
+      kept.push({
+        ...s,
+        end: DateTime.fromMillis(endMs, { zone }).toISO()!,
+        kw,
+        kwh: round(kw.reduce((a, v) => a + (v * slotMs) / 3_600_000, 0)),
+      });
     }
   }
 
@@ -192,14 +214,18 @@ export function deriveScenario(scenario: Scenario, state: ReplanState) {
       const depart = localToMillis(st.depart, zone)!;
       if (depart <= cutMs) {
         const row = before.get(b.id);
-        if (row) for (let t = 0; t < cut; t++) if (slots[t]!.startMs >= arrive && slots[t]!.endMs <= depart) e += scenario.efficiency * dtH * row[t]!;
+        if (row)
+          for (let t = 0; t < cut; t++)
+            if (slots[t]!.startMs >= arrive && slots[t]!.endMs <= depart) e += scenario.efficiency * dtH * row[t]!;
         e -= st.runKwh;
         return;
       }
       if (current === null) {
         current = k;
         const row = before.get(b.id);
-        if (row) for (let t = 0; t < cut; t++) if (slots[t]!.startMs >= arrive && slots[t]!.endMs <= depart) e += scenario.efficiency * dtH * row[t]!;
+        if (row)
+          for (let t = 0; t < cut; t++)
+            if (slots[t]!.startMs >= arrive && slots[t]!.endMs <= depart) e += scenario.efficiency * dtH * row[t]!;
       }
       stays.push({ ...st, arrive: arrive < cutMs ? cutText : st.arrive });
     });
@@ -212,7 +238,8 @@ export function deriveScenario(scenario: Scenario, state: ReplanState) {
     if (lateText !== undefined) {
       const ms = localToMillis(lateText, zone);
       const depart = localToMillis(stays[0]!.depart, zone)!;
-      if (ms === null) add(['lateArrivals', b.id], `${lateText} is not a local time YYYY-MM-DDTHH:mm that exists in ${zone}`);
+      if (ms === null)
+        add(['lateArrivals', b.id], `${lateText} is not a local time YYYY-MM-DDTHH:mm that exists in ${zone}`);
       else if (ms >= depart) add(['lateArrivals', b.id], `must be before the stay's departure ${stays[0]!.depart}`);
       else stays[0] = { ...stays[0]!, arrive: ms <= cutMs ? cutText : lateText };
     }
@@ -229,9 +256,11 @@ export function deriveScenario(scenario: Scenario, state: ReplanState) {
     else if (!chargerIds.has(chargerId)) add(['plugged', busId], `${chargerId} is not a charger of the scenario`);
     else if (!bus) continue;
     else if (late.has(busId)) add(['plugged', busId], 'a late bus cannot be plugged in already');
-    else if (localToMillis(bus.stays[0]!.arrive, zone)! > cutMs) add(['plugged', busId], 'the bus is not at the depot now');
+    else if (localToMillis(bus.stays[0]!.arrive, zone)! > cutMs)
+      add(['plugged', busId], 'the bus is not at the depot now');
     else if (takenBy.has(chargerId)) add(['plugged', busId], `${chargerId} already holds ${takenBy.get(chargerId)}`);
-    else if (outOfService.includes(chargerId)) add(['plugged', busId], `${chargerId} is out of service: the bus is taken to another charger`);
+    else if (outOfService.includes(chargerId))
+      add(['plugged', busId], `${chargerId} is out of service: the bus is taken to another charger`);
     else {
       takenBy.set(chargerId, busId);
       plugged[busId] = chargerId;
@@ -254,11 +283,16 @@ export function deriveScenario(scenario: Scenario, state: ReplanState) {
   derived.tariff = { ...scenario.tariff, peaksSoFarKw: peaks };
   derived.buses = buses;
   if (scenario.site.limitWindows) {
-    derived.site = { ...scenario.site, limitWindows: scenario.site.limitWindows.filter((w) => localToMillis(w.to, zone)! > cutMs) };
+    derived.site = {
+      ...scenario.site,
+      limitWindows: scenario.site.limitWindows.filter((w) => localToMillis(w.to, zone)! > cutMs),
+    };
   }
   const parsed = parseScenario(derived);
   if (!parsed.ok) {
-    throw new ReplanStateError(parsed.problems.map((p) => ({ path: `(re-plan scenario) ${p.path}`, message: p.message })));
+    throw new ReplanStateError(
+      parsed.problems.map((p) => ({ path: `(re-plan scenario) ${p.path}`, message: p.message })),
+    );
   }
   return { derived: parsed.scenario, outOfService, plugged, kept };
 }
@@ -292,14 +326,23 @@ function previousWindows(problem: ReturnType<typeof prepareProblem>, previous: P
 }
 
 /** Buses whose sessions from the cut-off on differ from the previous plan's, and why. */
-function movedBuses(problem: ReturnType<typeof prepareProblem>, previous: Plan, plan: Plan, state: ReplanState, outOfService: string[]) {
+function movedBuses(
+  problem: ReturnType<typeof prepareProblem>,
+  previous: Plan,
+  plan: Plan,
+  state: ReplanState,
+  outOfService: string[],
+) {
   const cutMs = problem.slots[0]!.startMs;
   const key = (p: Plan, bus: string) =>
     p.sessions
       .filter((s) => s.bus === bus && Date.parse(s.end) > cutMs)
       .map((s) => `${s.charger}@${Math.max(Date.parse(s.start), cutMs)}-${Date.parse(s.end)}`)
       .join(',');
-  const buses = problem.buses.map((b) => b.id).filter((id) => key(previous, id) !== key(plan, id)).sort();
+  const buses = problem.buses
+    .map((b) => b.id)
+    .filter((id) => key(previous, id) !== key(plan, id))
+    .sort();
   const reasons: string[] = [];
   for (const c of outOfService) {
     const on = new Set(previous.sessions.filter((s) => s.charger === c && Date.parse(s.end) > cutMs).map((s) => s.bus));
@@ -308,11 +351,14 @@ function movedBuses(problem: ReturnType<typeof prepareProblem>, previous: Plan, 
   const late = Object.keys(state.lateArrivals ?? {});
   if (late.length) reasons.push(`${late.length === 1 ? 'bus' : 'buses'} ${late.join(', ')} running late`);
   const reported = Object.keys(state.energyKwh ?? {});
-  if (reported.length) reasons.push(`battery levels reported for ${reported.length} ${reported.length === 1 ? 'bus' : 'buses'}`);
+  if (reported.length)
+    reasons.push(`battery levels reported for ${reported.length} ${reported.length === 1 ? 'bus' : 'buses'}`);
   const forced = new Set<string>();
-  for (const c of outOfService) for (const s of previous.sessions) if (s.charger === c && Date.parse(s.end) > cutMs) forced.add(s.bus);
+  for (const c of outOfService)
+    for (const s of previous.sessions) if (s.charger === c && Date.parse(s.end) > cutMs) forced.add(s.bus);
   for (const b of late) forced.add(b);
   const others = buses.filter((b) => !forced.has(b)).length;
-  if (others > 0) reasons.push(`${others} other ${others === 1 ? 'bus' : 'buses'} moved to make room or to keep the cost down`);
+  if (others > 0)
+    reasons.push(`${others} other ${others === 1 ? 'bus' : 'buses'} moved to make room or to keep the cost down`);
   return { buses, reasons };
 }

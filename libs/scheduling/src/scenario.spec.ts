@@ -38,12 +38,37 @@ describe('scenario validation', () => {
     ['duplicate charger', (s) => (s.chargers[1].id = 'C1'), 'chargers[1].id', /duplicate/],
     ['unknown cabinet', (s) => (s.chargers[2].cabinet = 'P9'), 'chargers[2].cabinet', /not in cabinets/],
     ['duplicate cabinet', (s) => s.cabinets.push({ id: 'P1', limitKw: 10 }), 'cabinets[1].id', /duplicate/],
-    ['weekday out of range', (s) => (s.tariff.periods[0].windows[0].days = [0, 8]), 'tariff.periods[0].windows[0].days[0]', /1 \(Monday\) to 7/],
-    ['clock format', (s) => (s.tariff.periods[0].windows[0].from = '4pm'), 'tariff.periods[0].windows[0].from', /HH:mm/],
-    ['empty window', (s) => (s.tariff.periods[0].windows[0].to = '16:00'), 'tariff.periods[0].windows[0].to', /must differ/],
-    ['overlapping windows', (s) => (s.tariff.periods[1].windows[0].to = '17:00'), 'tariff.periods[1].windows[0]', /overlaps/],
+    [
+      'weekday out of range',
+      (s) => (s.tariff.periods[0].windows[0].days = [0, 8]),
+      'tariff.periods[0].windows[0].days[0]',
+      /1 \(Monday\) to 7/,
+    ],
+    [
+      'clock format',
+      (s) => (s.tariff.periods[0].windows[0].from = '4pm'),
+      'tariff.periods[0].windows[0].from',
+      /HH:mm/,
+    ],
+    [
+      'empty window',
+      (s) => (s.tariff.periods[0].windows[0].to = '16:00'),
+      'tariff.periods[0].windows[0].to',
+      /must differ/,
+    ],
+    [
+      'overlapping windows',
+      (s) => (s.tariff.periods[1].windows[0].to = '17:00'),
+      'tariff.periods[1].windows[0]',
+      /overlaps/,
+    ],
     ['duplicate period', (s) => (s.tariff.periods[1].name = 'on-peak'), 'tariff.periods[1].name', /duplicate/],
-    ['peak of an unknown period', (s) => (s.tariff.peaksSoFarKw.shoulder = 3), 'tariff.peaksSoFarKw.shoulder', /facility/],
+    [
+      'peak of an unknown period',
+      (s) => (s.tariff.peaksSoFarKw.shoulder = 3),
+      'tariff.peaksSoFarKw.shoulder',
+      /facility/,
+    ],
     ['negative price', (s) => (s.tariff.offPeakPrice = -0.1), 'tariff.offPeakPrice', /0 or more/],
     ['no buses', (s) => (s.buses = []), 'buses', /at least one bus/],
     ['duplicate bus', (s) => (s.buses[1].id = 'B07'), 'buses[1].id', /duplicate/],
@@ -52,13 +77,48 @@ describe('scenario validation', () => {
     ['reserve above ceiling', (s) => (s.buses[0].reserveKwh = 180), 'buses[0].reserveKwh', /ceilingKwh/],
     ['taper at usable', (s) => (s.buses[0].taperFromKwh = 196), 'buses[0].taperFromKwh', /below usableKwh/],
     ['no stays', (s) => (s.buses[2].stays = []), 'buses[2].stays', /at least one stay/],
-    ['depart before arrive', (s) => (s.buses[3].stays[0].depart = '2026-01-14T17:00'), 'buses[3].stays[0].depart', /after arrive/],
-    ['stay before start', (s) => (s.buses[0].stays[0].arrive = '2026-01-14T11:00'), 'buses[0].stays[0].arrive', /scenario start/],
-    ['stay after end', (s) => (s.buses[0].stays[0].depart = '2026-01-15T10:00'), 'buses[0].stays[0].depart', /scenario end/],
-    ['departure minimum above ceiling', (s) => (s.buses[0].stays[0].departMinKwh = 190), 'buses[0].stays[0].departMinKwh', /ceilingKwh/],
-    ['overlapping stays', (s) => s.buses[0].stays.push({ arrive: '2026-01-15T06:00', depart: '2026-01-15T08:00', departMinKwh: 50 }), 'buses[0].stays[1].arrive', /previous stay/],
-    ['invalid date', (s) => (s.buses[0].stays[0].arrive = '2026-02-30T15:40'), 'buses[0].stays[0].arrive', /does not exist/],
-    ['departure minimum missing', (s) => delete s.buses[0].stays[0].departMinKwh, 'buses[0].stays[0].departMinKwh', /required/],
+    [
+      'depart before arrive',
+      (s) => (s.buses[3].stays[0].depart = '2026-01-14T17:00'),
+      'buses[3].stays[0].depart',
+      /after arrive/,
+    ],
+    [
+      'stay before start',
+      (s) => (s.buses[0].stays[0].arrive = '2026-01-14T11:00'),
+      'buses[0].stays[0].arrive',
+      /scenario start/,
+    ],
+    [
+      'stay after end',
+      (s) => (s.buses[0].stays[0].depart = '2026-01-15T10:00'),
+      'buses[0].stays[0].depart',
+      /scenario end/,
+    ],
+    [
+      'departure minimum above ceiling',
+      (s) => (s.buses[0].stays[0].departMinKwh = 190),
+      'buses[0].stays[0].departMinKwh',
+      /ceilingKwh/,
+    ],
+    [
+      'overlapping stays',
+      (s) => s.buses[0].stays.push({ arrive: '2026-01-15T06:00', depart: '2026-01-15T08:00', departMinKwh: 50 }),
+      'buses[0].stays[1].arrive',
+      /previous stay/,
+    ],
+    [
+      'invalid date',
+      (s) => (s.buses[0].stays[0].arrive = '2026-02-30T15:40'),
+      'buses[0].stays[0].arrive',
+      /does not exist/,
+    ],
+    [
+      'departure minimum missing',
+      (s) => delete s.buses[0].stays[0].departMinKwh,
+      'buses[0].stays[0].departMinKwh',
+      /required/,
+    ],
   ];
   it.each(cases)('rejects %s with its field path', (_what, mutate, path, message) => {
     const problems = problemsOf(mutate);
@@ -71,7 +131,9 @@ describe('scenario validation', () => {
     const problems = problemsOf((s) => {
       s.start = '2026-03-07T12:00';
       s.end = '2026-03-08T12:00';
-      s.buses.forEach((b: RawJson) => (b.stays = [{ arrive: '2026-03-07T16:00', depart: '2026-03-08T02:30', departMinKwh: 60 }]));
+      s.buses.forEach(
+        (b: RawJson) => (b.stays = [{ arrive: '2026-03-07T16:00', depart: '2026-03-08T02:30', departMinKwh: 60 }]),
+      );
     });
     expect(problems.some((p) => p.path === 'buses[0].stays[0].depart' && /does not exist/.test(p.message))).toBe(true);
   });

@@ -15,7 +15,13 @@ const id = z.string().min(1, 'must not be empty');
 
 const windowSchema = z.strictObject({
   days: z
-    .array(z.number().int('must be a whole ISO weekday number').min(1, 'must be 1 (Monday) to 7 (Sunday)').max(7, 'must be 1 (Monday) to 7 (Sunday)'))
+    .array(
+      z
+        .number()
+        .int('must be a whole ISO weekday number')
+        .min(1, 'must be 1 (Monday) to 7 (Sunday)')
+        .max(7, 'must be 1 (Monday) to 7 (Sunday)'),
+    )
     .min(1, 'must list at least one ISO weekday (1 = Monday ... 7 = Sunday)'),
   from: clock,
   to: clock,
@@ -94,7 +100,10 @@ export const scenarioSchema = z.strictObject({
   cabinets: z.array(z.strictObject({ id, limitKw: kw })).default([]),
   chargers: z.array(z.strictObject({ id, maxKw: kw, cabinet: id.optional() })).min(1, 'must list at least one charger'),
   tariff: z.strictObject({
-    currency: z.string().regex(/^[A-Z]{3}$/, 'must be a three-letter currency code such as USD').default('USD'),
+    currency: z
+      .string()
+      .regex(/^[A-Z]{3}$/, 'must be a three-letter currency code such as USD')
+      .default('USD'),
     offPeakPrice: kwh,
     periods: z.array(periodSchema).default([]),
     facilityDemandCharge: kwh.default(0),
@@ -128,7 +137,8 @@ export function parseScenario(json: unknown): ParseResult {
     const problems: Problem[] = [];
     for (const issue of result.error.issues) {
       if (issue.code === 'unrecognized_keys') {
-        for (const key of issue.keys) problems.push({ path: formatPath([...issue.path, key]), message: 'unknown field: remove it' });
+        for (const key of issue.keys)
+          problems.push({ path: formatPath([...issue.path, key]), message: 'unknown field: remove it' });
       } else if (issue.code === 'invalid_type' && issue.input === undefined) {
         problems.push({ path: formatPath(issue.path), message: `is required (${issue.expected})` });
       } else {
@@ -225,9 +235,14 @@ function checkScenario(s: Scenario): Problem[] {
   if (startMs !== null && endMs !== null && (endMs - startMs) % slotMs !== 0) {
     add('end', `must be a whole number of ${s.slotMinutes}-minute slots after start`);
   }
-  if (s.site.otherLoadKw > s.site.limitKw) add('site.otherLoadKw', 'must not exceed site.limitKw (the other load alone would break the service limit)');
+  if (s.site.otherLoadKw > s.site.limitKw)
+    add('site.otherLoadKw', 'must not exceed site.limitKw (the other load alone would break the service limit)');
   s.site.otherLoadByHourKw?.forEach((kw, h) => {
-    if (kw > s.site.limitKw) add(`site.otherLoadByHourKw[${h}]`, 'must not exceed site.limitKw (the other load alone would break the service limit)');
+    if (kw > s.site.limitKw)
+      add(
+        `site.otherLoadByHourKw[${h}]`,
+        'must not exceed site.limitKw (the other load alone would break the service limit)',
+      );
   });
   s.site.limitWindows?.forEach((w, i) => {
     const path = `site.limitWindows[${i}]`;
@@ -248,7 +263,10 @@ function checkScenario(s: Scenario): Problem[] {
       if (ms >= to || ms + slotMs <= from) continue;
       const other = otherLoadAt(s, ms);
       if (other > w.limitKw) {
-        add(`${path}.limitKw`, `must not be below the other load in the window (${other} kW at ${DateTime.fromMillis(ms, { zone }).toFormat("yyyy-MM-dd'T'HH:mm")})`);
+        add(
+          `${path}.limitKw`,
+          `must not be below the other load in the window (${other} kW at ${DateTime.fromMillis(ms, { zone }).toFormat("yyyy-MM-dd'T'HH:mm")})`,
+        );
         break;
       }
     }
@@ -263,13 +281,15 @@ function checkScenario(s: Scenario): Problem[] {
   s.chargers.forEach((c, i) => {
     if (chargerIds.has(c.id)) add(`chargers[${i}].id`, `duplicate charger id ${c.id}`);
     chargerIds.add(c.id);
-    if (c.cabinet !== undefined && !cabinetIds.has(c.cabinet)) add(`chargers[${i}].cabinet`, `names cabinet ${c.cabinet}, which is not in cabinets`);
+    if (c.cabinet !== undefined && !cabinetIds.has(c.cabinet))
+      add(`chargers[${i}].cabinet`, `names cabinet ${c.cabinet}, which is not in cabinets`);
   });
 
   const periodNames = new Set<string>();
   const spans: { path: string; span: [number, number] }[] = [];
   s.tariff.periods.forEach((p, i) => {
-    if (p.name === 'facility' || p.name === 'off-peak') add(`tariff.periods[${i}].name`, `"${p.name}" is reserved: choose another name`);
+    if (p.name === 'facility' || p.name === 'off-peak')
+      add(`tariff.periods[${i}].name`, `"${p.name}" is reserved: choose another name`);
     if (periodNames.has(p.name)) add(`tariff.periods[${i}].name`, `duplicate period name ${p.name}`);
     periodNames.add(p.name);
     p.windows.forEach((w, j) => {
@@ -292,7 +312,8 @@ function checkScenario(s: Scenario): Problem[] {
     }
   }
   for (const key of Object.keys(s.tariff.peaksSoFarKw)) {
-    if (key !== 'facility' && !periodNames.has(key)) add(`tariff.peaksSoFarKw.${key}`, 'must be "facility" or the name of a period');
+    if (key !== 'facility' && !periodNames.has(key))
+      add(`tariff.peaksSoFarKw.${key}`, 'must be "facility" or the name of a period');
   }
 
   s.yard?.crew?.forEach((w, i) => {
@@ -309,9 +330,11 @@ function checkScenario(s: Scenario): Problem[] {
     busIds.add(b.id);
     const ceiling = b.ceilingKwh ?? b.usableKwh;
     if (b.arrivalKwh > b.usableKwh) add(`${path}.arrivalKwh`, 'must not exceed usableKwh');
-    if (b.ceilingKwh !== undefined && b.ceilingKwh > b.usableKwh) add(`${path}.ceilingKwh`, 'must not exceed usableKwh');
+    if (b.ceilingKwh !== undefined && b.ceilingKwh > b.usableKwh)
+      add(`${path}.ceilingKwh`, 'must not exceed usableKwh');
     if (b.reserveKwh > ceiling) add(`${path}.reserveKwh`, 'must not exceed ceilingKwh (or usableKwh)');
-    if (b.taperFromKwh !== undefined && b.taperFromKwh >= b.usableKwh) add(`${path}.taperFromKwh`, 'must be below usableKwh');
+    if (b.taperFromKwh !== undefined && b.taperFromKwh >= b.usableKwh)
+      add(`${path}.taperFromKwh`, 'must be below usableKwh');
     let prevDepart: number | null = null;
     b.stays.forEach((st, k) => {
       const sp = `${path}.stays[${k}]`;
@@ -320,9 +343,11 @@ function checkScenario(s: Scenario): Problem[] {
       if (a !== null && d !== null && d <= a) add(`${sp}.depart`, 'must be after arrive');
       if (a !== null && startMs !== null && a < startMs) add(`${sp}.arrive`, 'must not be before the scenario start');
       if (d !== null && endMs !== null && d > endMs) add(`${sp}.depart`, 'must not be after the scenario end');
-      if (a !== null && prevDepart !== null && a < prevDepart) add(`${sp}.arrive`, 'must not be before the previous stay departs (stays in time order, no overlap)');
+      if (a !== null && prevDepart !== null && a < prevDepart)
+        add(`${sp}.arrive`, 'must not be before the previous stay departs (stays in time order, no overlap)');
       if (d !== null) prevDepart = d;
-      if (st.departMinKwh > ceiling) add(`${sp}.departMinKwh`, 'must not exceed ceilingKwh (or usableKwh): no bus could leave with it');
+      if (st.departMinKwh > ceiling)
+        add(`${sp}.departMinKwh`, 'must not exceed ceilingKwh (or usableKwh): no bus could leave with it');
     });
   });
   return problems;

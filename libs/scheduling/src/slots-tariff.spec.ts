@@ -22,7 +22,9 @@ const night = (start: string, end: string, stay: [string, string]) =>
 
 describe('slots in the depot time zone', () => {
   it('has 96 slots on an ordinary day', () => {
-    expect(buildSlots(night('2026-01-14T12:00', '2026-01-15T12:00', ['2026-01-14T16:00', '2026-01-15T06:00']))).toHaveLength(96);
+    expect(
+      buildSlots(night('2026-01-14T12:00', '2026-01-15T12:00', ['2026-01-14T16:00', '2026-01-15T06:00'])),
+    ).toHaveLength(96);
   });
 
   // IANA time zone database through luxon: 2026-03-08 has 23 hours, 2026-11-01 has 25 hours
@@ -40,13 +42,21 @@ describe('slots in the depot time zone', () => {
     expect(slots).toHaveLength(100);
     const ones = slots.filter((s) => s.start.startsWith('2026-11-01T01:'));
     expect(ones.map((s) => s.start.slice(11))).toEqual([
-      '01:00:00.000-05:00', '01:15:00.000-05:00', '01:30:00.000-05:00', '01:45:00.000-05:00',
-      '01:00:00.000-06:00', '01:15:00.000-06:00', '01:30:00.000-06:00', '01:45:00.000-06:00',
+      '01:00:00.000-05:00',
+      '01:15:00.000-05:00',
+      '01:30:00.000-05:00',
+      '01:45:00.000-05:00',
+      '01:00:00.000-06:00',
+      '01:15:00.000-06:00',
+      '01:30:00.000-06:00',
+      '01:45:00.000-06:00',
     ]);
   });
 
   it('reads a time in the repeated hour as its first occurrence', () => {
-    expect(new Date(localToMillis('2026-11-01T01:30', 'America/Chicago')!).toISOString()).toBe('2026-11-01T06:30:00.000Z');
+    expect(new Date(localToMillis('2026-11-01T01:30', 'America/Chicago')!).toISOString()).toBe(
+      '2026-11-01T06:30:00.000Z',
+    );
     expect(localToMillis('2026-03-08T02:30', 'America/Chicago')).toBeNull();
   });
 
@@ -54,9 +64,13 @@ describe('slots in the depot time zone', () => {
     const s = scenario((x) => {
       x.start = '2026-01-16T12:00'; // Friday
       x.end = '2026-01-17T12:00';
-      x.tariff.periods = [{ name: 'night', price: 0.05, demandCharge: 0, windows: [{ days: [5], from: '22:00', to: '06:00' }] }];
+      x.tariff.periods = [
+        { name: 'night', price: 0.05, demandCharge: 0, windows: [{ days: [5], from: '22:00', to: '06:00' }] },
+      ];
       x.tariff.peaksSoFarKw = {};
-      x.buses.forEach((b: RawJson) => (b.stays = [{ arrive: '2026-01-16T16:00', depart: '2026-01-17T06:00', departMinKwh: 100 }]));
+      x.buses.forEach(
+        (b: RawJson) => (b.stays = [{ arrive: '2026-01-16T16:00', depart: '2026-01-17T06:00', departMinKwh: 100 }]),
+      );
     });
     const slots = buildSlots(s);
     const at = (hhmm: string, day: string) => slots.find((x) => x.start.startsWith(`${day}T${hhmm}`))!;
@@ -74,8 +88,14 @@ describe('slots in the depot time zone', () => {
 });
 
 describe('tariff costing', () => {
-  const slots = (n: number, price: number, period = -1, otherKw = 0) => Array.from({ length: n }, () => ({ price, period, otherKw }));
-  const tariff = (facility: number, soFar = 0) => ({ currency: 'USD', facilityDemandCharge: facility, facilityPeakSoFarKw: soFar, periods: [] });
+  const slots = (n: number, price: number, period = -1, otherKw = 0) =>
+    Array.from({ length: n }, () => ({ price, period, otherKw }));
+  const tariff = (facility: number, soFar = 0) => ({
+    currency: 'USD',
+    facilityDemandCharge: facility,
+    facilityPeakSoFarKw: soFar,
+    periods: [],
+  });
 
   it('takes an interval demand as energy over length: 150 kWh in 30 min is 300 kW, $3,750 at $12.50/kW', () => {
     // Common practice (utilities' tariff definitions), as in the checks brief.
@@ -96,7 +116,12 @@ describe('tariff costing', () => {
   });
 
   it('charges a period demand on the peak inside the period only', () => {
-    const t = { currency: 'USD', facilityDemandCharge: 0, facilityPeakSoFarKw: 0, periods: [{ name: 'on-peak', price: 0.3, demandCharge: 5, peakSoFarKw: 0 }] };
+    const t = {
+      currency: 'USD',
+      facilityDemandCharge: 0,
+      facilityPeakSoFarKw: 0,
+      periods: [{ name: 'on-peak', price: 0.3, demandCharge: 5, peakSoFarKw: 0 }],
+    };
     const s = [
       { price: 0.1, period: -1, otherKw: 0 },
       { price: 0.3, period: 0, otherKw: 0 },

@@ -69,11 +69,14 @@ export function sweepAssignment(problem: Problem, input: SweepInput): Assignment
     const top = new Float64Array(T);
     for (const c of chargers) for (let t = 0; t < T; t++) if (c.available[t]) top[t] = Math.max(top[t]!, c.maxKw);
     for (const b of buses) for (let t = 0; t < T; t++) load[t] = load[t]! + power[b.index]![t]!;
-    for (const st of stays) for (let t = st.arriveSlot; t < st.departSlot; t++) could[t] = could[t]! + Math.min(buses[st.bus]!.maxKw, top[t]!);
+    for (const st of stays)
+      for (let t = st.arriveSlot; t < st.departSlot; t++)
+        could[t] = could[t]! + Math.min(buses[st.bus]!.maxKw, top[t]!);
     for (let t = 0; t < T; t++) scarce[t] = load[t]! > 1e-6 && load[t]! >= above * could[t]! ? 1 : 0;
     for (const st of stays) {
       const row = new Float64Array(st.departSlot - st.arriveSlot + 1);
-      for (let t = st.departSlot - 1; t >= st.arriveSlot; t--) row[t - st.arriveSlot] = row[t - st.arriveSlot + 1]! + (scarce[t] ? power[st.bus]![t]! * dt : 0);
+      for (let t = st.departSlot - 1; t >= st.arriveSlot; t--)
+        row[t - st.arriveSlot] = row[t - st.arriveSlot + 1]! + (scarce[t] ? power[st.bus]![t]! * dt : 0);
       if (row[0]! > 1e-9) heldAfter[st.id] = row;
     }
   }
@@ -89,13 +92,15 @@ export function sweepAssignment(problem: Problem, input: SweepInput): Assignment
     const ch = chargers[c]!;
     if (!ch.available[currentT]) return 0;
     let p = acceptance(problem, stay.bus, energy[stay.bus]!, ch.maxKw, true);
-    if (ch.cabinet >= 0 && problem.cabinets[ch.cabinet]!.binding) p = Math.min(p, problem.cabinets[ch.cabinet]!.limitKw - cabinetUse[ch.cabinet]!);
+    if (ch.cabinet >= 0 && problem.cabinets[ch.cabinet]!.binding)
+      p = Math.min(p, problem.cabinets[ch.cabinet]!.limitKw - cabinetUse[ch.cabinet]!);
     return Math.max(0, Math.min(p, (remaining[s]! - held(s)) / dt));
   };
   const strongest = Math.max(0, ...chargers.filter((c) => c.available.some((a) => a === 1)).map((c) => c.maxKw));
   // Re-planning: a stay already plugged in keeps its charger from its first slot.
   const pinnedAt: number[][] = Array.from({ length: T }, () => []);
-  if (problem.pinned) for (const s of stays) if (problem.pinned[s.id]! >= 0 && s.arriveSlot < T) pinnedAt[s.arriveSlot]!.push(s.id);
+  if (problem.pinned)
+    for (const s of stays) if (problem.pinned[s.id]! >= 0 && s.arriveSlot < T) pinnedAt[s.arriveSlot]!.push(s.id);
   /** Slots to spare before the stay must draw without pause to get its energy by departure. */
   const slack = (s: number): number => {
     const stay = stays[s]!;
@@ -105,7 +110,8 @@ export function sweepAssignment(problem: Problem, input: SweepInput): Assignment
     return stay.departSlot - currentT - remaining[s]! / rate + 1e-9 * (input.tieBreak?.[s] ?? s);
   };
   /** Which stay draws first among those not urgent. */
-  const priority = (s: number): number => (order === 'deadline' ? stays[s]!.departSlot + 1e-9 * (input.tieBreak?.[s] ?? s) : slack(s));
+  const priority = (s: number): number =>
+    order === 'deadline' ? stays[s]!.departSlot + 1e-9 * (input.tieBreak?.[s] ?? s) : slack(s);
   let currentT = 0;
 
   for (let t = 0; t < T; t++) {
@@ -278,7 +284,9 @@ function spreadStays(problem: Problem, chargerOf: Int32Array, start: Int32Array,
     while (b < stay.departSlot && o[b]! < 0 && av[b]) b++;
     return b - a;
   };
-  const order = stays.filter((s) => chargerOf[s.id]! >= 0 && !(problem.pinned && problem.pinned[s.id]! >= 0)).map((s) => s.id);
+  const order = stays
+    .filter((s) => chargerOf[s.id]! >= 0 && !(problem.pinned && problem.pinned[s.id]! >= 0))
+    .map((s) => s.id);
   order.sort((x, y) => finish[x]! - start[x]! - (finish[y]! - start[y]!) || x - y);
   for (const s of order) {
     const c = chargerOf[s]!;

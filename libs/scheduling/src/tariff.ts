@@ -45,7 +45,12 @@ export function tariffOf(scenario: Scenario): Tariff {
  * energy only (the other load costs the same under every plan); demand is charged on the site's
  * demand (charging + other load), only on the part above the billing period's peak so far.
  */
-export function costLoad(slots: readonly CostSlot[], chargingKw: ArrayLike<number>, tariff: Tariff, slotHours: number): Cost {
+export function costLoad(
+  slots: readonly CostSlot[],
+  chargingKw: ArrayLike<number>,
+  tariff: Tariff,
+  slotHours: number,
+): Cost {
   let energy = 0;
   let peak = 0;
   const periodPeak = tariff.periods.map(() => 0);
@@ -59,7 +64,13 @@ export function costLoad(slots: readonly CostSlot[], chargingKw: ArrayLike<numbe
   }
   const demandParts: Cost['demandParts'] = [];
   const facilityCost = tariff.facilityDemandCharge * Math.max(0, peak - tariff.facilityPeakSoFarKw);
-  demandParts.push({ name: 'facility', peakKw: peak, peakSoFarKw: tariff.facilityPeakSoFarKw, rate: tariff.facilityDemandCharge, cost: facilityCost });
+  demandParts.push({
+    name: 'facility',
+    peakKw: peak,
+    peakSoFarKw: tariff.facilityPeakSoFarKw,
+    rate: tariff.facilityDemandCharge,
+    cost: facilityCost,
+  });
   let demand = facilityCost;
   tariff.periods.forEach((p, k) => {
     const cost = p.demandCharge * Math.max(0, periodPeak[k]! - p.peakSoFarKw);

@@ -14,7 +14,12 @@ import type { KnownUsers } from './known-users';
 const ISSUER = 'nightyard';
 const AUDIENCE = 'nightyard-api';
 
-export function signAccessToken(secret: string, seconds: number, user: { id: string; organisationId: string }, now: Date): string {
+export function signAccessToken(
+  secret: string,
+  seconds: number,
+  user: { id: string; organisationId: string },
+  now: Date,
+): string {
   // iat from the API's clock: jsonwebtoken then counts the expiry from it, not from the machine's clock.
   return jwt.sign({ org: user.organisationId, iat: Math.floor(now.getTime() / 1000) }, secret, {
     subject: user.id,
@@ -33,9 +38,21 @@ export function signAccessToken(secret: string, seconds: number, user: { id: str
 export function bearerAuthenticator(db: Db, secret: string, clock: Clock, known?: KnownUsers) {
   // Every signed-in request reads its user: a named statement, planned once per connection.
   const activeUser = db
-    .select({ id: users.id, organisationId: users.organisationId, email: users.email, name: users.name, roles: users.roles })
+    .select({
+      id: users.id,
+      organisationId: users.organisationId,
+      email: users.email,
+      name: users.name,
+      roles: users.roles,
+    })
     .from(users)
-    .where(and(eq(users.id, sql.placeholder('id')), eq(users.organisationId, sql.placeholder('organisationId')), eq(users.status, 'active')))
+    .where(
+      and(
+        eq(users.id, sql.placeholder('id')),
+        eq(users.organisationId, sql.placeholder('organisationId')),
+        eq(users.status, 'active'),
+      ),
+    )
     .prepare('active_user');
   const strategy = new JwtStrategy(
     {
@@ -52,16 +69,22 @@ export function bearerAuthenticator(db: Db, secret: string, clock: Clock, known?
       const remembered = known?.get(payload.sub, payload.org);
       if (remembered) return done(null, remembered);
       const mark = known?.mark() ?? 0;
-      activeUser.execute({ id: payload.sub, organisationId: payload.org }).then(([row]) => {
-        if (row) known?.keep(row, mark);
-        done(null, row ?? false);
-      }, (err) => done(err));
+      activeUser.execute({ id: payload.sub, organisationId: payload.org }).then(
+        ([row]) => {
+          if (row) known?.keep(row, mark);
+          done(null, row ?? false);
+        },
+        (err) => done(err),
+      );
     },
   );
   // passport-jwt copies its verify options once; jsonwebtoken reads clockTimestamp at each verify.
   // A getter makes expiry follow the API's clock (tests and development may stand it elsewhere).
   const verifyOptions = (strategy as unknown as { _verifOpts: Record<string, unknown> })._verifOpts;
-  Object.defineProperty(verifyOptions, 'clockTimestamp', { get: () => Math.floor(clock().getTime() / 1000), enumerable: true });
+  Object.defineProperty(verifyOptions, 'clockTimestamp', {
+    get: () => Math.floor(clock().getTime() / 1000),
+    enumerable: true,
+  });
   const instance = new passport.Passport();
   instance.use('jwt', strategy);
 

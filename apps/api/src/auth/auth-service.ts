@@ -37,14 +37,24 @@ export interface IssuedTokens {
 async function sessionUser(db: Db, userId: string): Promise<SessionUser> {
   const [row] = await db
     .select({
-      id: users.id, email: users.email, name: users.name, roles: users.roles,
-      orgId: organisations.id, orgName: organisations.name,
+      id: users.id,
+      email: users.email,
+      name: users.name,
+      roles: users.roles,
+      orgId: organisations.id,
+      orgName: organisations.name,
     })
     .from(users)
     .innerJoin(organisations, eq(organisations.id, users.organisationId))
     .where(eq(users.id, userId));
   if (!row) throw unauthenticated();
-  return { id: row.id, email: row.email, name: row.name, roles: row.roles, organisation: { id: row.orgId, name: row.orgName } };
+  return {
+    id: row.id,
+    email: row.email,
+    name: row.name,
+    roles: row.roles,
+    organisation: { id: row.orgId, name: row.orgName },
+  };
 }
 
 async function issue(db: Db, s: AuthSettings, userId: string, familyId: string, now: Date): Promise<IssuedTokens> {
@@ -52,13 +62,29 @@ async function issue(db: Db, s: AuthSettings, userId: string, familyId: string, 
   const { token, hash } = newOpaqueToken();
   const refreshExpiresAt = new Date(now.getTime() + s.refreshTokenDays * 86_400_000);
   await db.insert(refreshTokens).values({ userId, familyId, tokenHash: hash, expiresAt: refreshExpiresAt });
-  const accessToken = signAccessToken(s.jwtSecret, s.accessTokenSeconds, { id: user.id, organisationId: user.organisation.id }, now);
-  return { response: { accessToken, expiresInSeconds: s.accessTokenSeconds, user }, refreshToken: token, refreshExpiresAt };
+  const accessToken = signAccessToken(
+    s.jwtSecret,
+    s.accessTokenSeconds,
+    { id: user.id, organisationId: user.organisation.id },
+    now,
+  );
+  return {
+    response: { accessToken, expiresInSeconds: s.accessTokenSeconds, user },
+    refreshToken: token,
+    refreshExpiresAt,
+  };
 }
 
 const WRONG_CREDENTIALS = 'E-mail or password is not right';
 
-export async function login(db: Db, s: AuthSettings, email: string, password: string, ip: string, now: Date): Promise<IssuedTokens> {
+export async function login(
+  db: Db,
+  s: AuthSettings,
+  email: string,
+  password: string,
+  ip: string,
+  now: Date,
+): Promise<IssuedTokens> {
   await assertLoginAllowed(db, s.throttle, email, ip, now);
   const [user] = await db.select().from(users).where(eq(users.email, email));
   const ok = await checkPassword(password, user?.passwordHash ?? DUMMY_HASH);
@@ -88,7 +114,11 @@ export const REFRESH_GRACE_SECONDS = 30;
 export async function refresh(db: Db, s: AuthSettings, token: string | undefined, now: Date): Promise<IssuedTokens> {
   if (!token) throw unauthenticated('No session: sign in');
   const outcome = await db.transaction(async (tx) => {
-    const [row] = await tx.select().from(refreshTokens).where(eq(refreshTokens.tokenHash, hashToken(token))).for('update');
+    const [row] = await tx
+      .select()
+      .from(refreshTokens)
+      .where(eq(refreshTokens.tokenHash, hashToken(token)))
+      .for('update');
     if (!row || row.revokedAt || row.expiresAt < now) return 'ended' as const;
     const graceMs = (s.refreshGraceSeconds ?? REFRESH_GRACE_SECONDS) * 1000;
     const sinceUse = row.usedAt ? now.getTime() - row.usedAt.getTime() : null;
@@ -104,14 +134,18 @@ export async function refresh(db: Db, s: AuthSettings, token: string | undefined
     return issue(tx as unknown as Db, s, row.userId, row.familyId, now);
   });
   if (outcome === 'ended') throw unauthenticated('Your session has ended: sign in again');
-  if (outcome === 'replayed') throw unauthenticated('This session was used elsewhere and has been ended: sign in again');
+  if (outcome === 'replayed')
+    throw unauthenticated('This session was used elsewhere and has been ended: sign in again');
   if (outcome === 'inactive') throw unauthenticated('This account is deactivated');
   return outcome;
 }
 
 export async function logout(db: Db, token: string | undefined, now: Date): Promise<void> {
   if (!token) return;
-  const [row] = await db.select().from(refreshTokens).where(eq(refreshTokens.tokenHash, hashToken(token)));
+  const [row] = await db
+    .select()
+    .from(refreshTokens)
+    .where(eq(refreshTokens.tokenHash, hashToken(token)));
   if (row) await db.update(refreshTokens).set({ revokedAt: now }).where(eq(refreshTokens.familyId, row.familyId));
 }
 
@@ -120,13 +154,21 @@ export async function me(db: Db, userId: string): Promise<SessionUser> {
 }
 
 /** Creates a single-use link token for the user; returns the raw token to put in the link. */
-export async function createActionToken(db: Db, userId: string, purpose: 'invite' | 'reset', validMs: number, now: Date): Promise<string> {
+export async function createActionToken(
+  db: Db,
+  userId: string,
+  purpose: 'invite' | 'reset',
+  validMs: number,
+  now: Date,
+): Promise<string> {
   const { token, hash } = newOpaqueToken();
   await db
     .update(actionTokens)
     .set({ usedAt: now })
     .where(and(eq(actionTokens.userId, userId), eq(actionTokens.purpose, purpose), isNull(actionTokens.usedAt)));
-  await db.insert(actionTokens).values({ userId, purpose, tokenHash: hash, expiresAt: new Date(now.getTime() + validMs) });
+  await db
+    .insert(actionTokens)
+    .values({ userId, purpose, tokenHash: hash, expiresAt: new Date(now.getTime() + validMs) });
   return token;
 }
 
@@ -136,22 +178,50 @@ export async function createActionToken(db: Db, userId: string, purpose: 'invite
  * token is stored and the e-mail sent after the answer, off the request path. Beyond the
  * throttle (per account and per client address) nothing is sent, and the answer is unchanged.
  */
-export async function forgotPassword(db: Db, s: AuthSettings, mailer: Mailer, log: Logger, email: string, ip: string, now: Date): Promise<void> {
+export async function forgotPassword(
+  db: Db,
+  s: AuthSettings,
+  mailer: Mailer,
+  log: Logger,
+  email: string,
+  ip: string,
+  now: Date,
+): Promise<void> {
   const allowed = await takeResetSlot(db, s.resetThrottle ?? DEFAULT_RESET_LIMITS, email, ip, now);
   const [user] = await db.select().from(users).where(eq(users.email, email));
   const { token, hash } = newOpaqueToken();
   if (!allowed || !user || user.status !== 'active') return;
-  void deliverReset(db, s, mailer, user, token, hash, now).catch((err: unknown) => log.error({ err, userId: user.id }, 'password reset e-mail not sent'));
+  void deliverReset(db, s, mailer, user, token, hash, now).catch((err: unknown) =>
+    log.error({ err, userId: user.id }, 'password reset e-mail not sent'),
+  );
 }
 
-async function deliverReset(db: Db, s: AuthSettings, mailer: Mailer, user: { id: string; email: string; name: string }, token: string, hash: string, now: Date) {
+async function deliverReset(
+  db: Db,
+  s: AuthSettings,
+  mailer: Mailer,
+  user: { id: string; email: string; name: string },
+  token: string,
+  hash: string,
+  now: Date,
+) {
   await db
     .update(actionTokens)
     .set({ usedAt: now })
     .where(and(eq(actionTokens.userId, user.id), eq(actionTokens.purpose, 'reset'), isNull(actionTokens.usedAt)));
-  await db.insert(actionTokens).values({ userId: user.id, purpose: 'reset', tokenHash: hash, expiresAt: new Date(now.getTime() + s.resetMinutes * 60_000) });
+  await db.insert(actionTokens).values({
+    userId: user.id,
+    purpose: 'reset',
+    tokenHash: hash,
+    expiresAt: new Date(now.getTime() + s.resetMinutes * 60_000),
+  });
   await mailer.send(
-    resetMail({ to: user.email, name: user.name, link: s.publicUrl(`/set-password?token=${token}`), minutes: s.resetMinutes }),
+    resetMail({
+      to: user.email,
+      name: user.name,
+      link: s.publicUrl(`/set-password?token=${token}`),
+      minutes: s.resetMinutes,
+    }),
   );
 }
 
@@ -162,7 +232,10 @@ async function findActionToken(db: Db, token: string, now: Date) {
     .innerJoin(users, eq(users.id, actionTokens.userId))
     .where(eq(actionTokens.tokenHash, hashToken(token)));
   if (row && !row.token.usedAt && row.user.status === 'deactivated') {
-    throw new DomainError('forbidden', 'This account has been deactivated, so its link no longer works: ask your administrator');
+    throw new DomainError(
+      'forbidden',
+      'This account has been deactivated, so its link no longer works: ask your administrator',
+    );
   }
   if (!row || row.token.usedAt) {
     throw new DomainError('not_found', 'This link is not valid or was already used: ask for a new one');
@@ -191,6 +264,9 @@ export async function setPassword(db: Db, token: string, password: string, now: 
     if (used.length === 0) throw new DomainError('not_found', 'This link was already used: ask for a new one');
     await tx.update(users).set({ passwordHash, status: 'active' }).where(eq(users.id, user.id));
     // A new password ends every existing session of the account.
-    await tx.update(refreshTokens).set({ revokedAt: now }).where(and(eq(refreshTokens.userId, user.id), isNull(refreshTokens.revokedAt)));
+    await tx
+      .update(refreshTokens)
+      .set({ revokedAt: now })
+      .where(and(eq(refreshTokens.userId, user.id), isNull(refreshTokens.revokedAt)));
   });
 }

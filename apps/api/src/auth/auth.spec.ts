@@ -23,23 +23,43 @@ describe('sign-in', () => {
   });
 
   it('signs in, sets an httpOnly refresh cookie and the token works on /me', async () => {
-    const res = await app.request().post('/api/auth/login').send({ email: people.sup!.email, password: TEST_PASSWORD }).expect(200);
+    const res = await app
+      .request()
+      .post('/api/auth/login')
+      .send({ email: people.sup!.email, password: TEST_PASSWORD })
+      .expect(200);
     expect(res.body.user.roles).toEqual(['supervisor', 'yard']);
     const cookie = (res.headers['set-cookie'] as unknown as string[])[0]!;
     expect(cookie).toMatch(/HttpOnly/);
     expect(cookie).toMatch(/SameSite=Strict/);
     expect(cookie).toMatch(/Path=\/api\/auth/);
-    const me = await app.request().get('/api/auth/me').set('Authorization', `Bearer ${res.body.accessToken}`).expect(200);
+    const me = await app
+      .request()
+      .get('/api/auth/me')
+      .set('Authorization', `Bearer ${res.body.accessToken}`)
+      .expect(200);
     expect(me.body.user.email).toBe(people.sup!.email);
   });
 
   it('accepts the e-mail in any case and with spaces', async () => {
-    await app.request().post('/api/auth/login').send({ email: `  ${people.off!.email.toUpperCase()} `, password: TEST_PASSWORD }).expect(200);
+    await app
+      .request()
+      .post('/api/auth/login')
+      .send({ email: `  ${people.off!.email.toUpperCase()} `, password: TEST_PASSWORD })
+      .expect(200);
   });
 
   it('refuses a wrong password and an unknown account with the same message', async () => {
-    const wrong = await app.request().post('/api/auth/login').send({ email: people.off!.email, password: 'nope-nope-nope' }).expect(401);
-    const unknown = await app.request().post('/api/auth/login').send({ email: 'nobody@test.nightyard.example', password: 'x' }).expect(401);
+    const wrong = await app
+      .request()
+      .post('/api/auth/login')
+      .send({ email: people.off!.email, password: 'nope-nope-nope' })
+      .expect(401);
+    const unknown = await app
+      .request()
+      .post('/api/auth/login')
+      .send({ email: 'nobody@test.nightyard.example', password: 'x' })
+      .expect(401);
     expect(wrong.body.error.message).toBe('E-mail or password is not right');
     expect(unknown.body.error).toEqual(wrong.body.error);
   });
@@ -52,7 +72,11 @@ describe('sign-in', () => {
 
   it('rotates the refresh token and ends the whole session when an old one is replayed after the grace window', async () => {
     at = TEST_START.getTime();
-    const login = await app.request().post('/api/auth/login').send({ email: people.sup!.email, password: TEST_PASSWORD }).expect(200);
+    const login = await app
+      .request()
+      .post('/api/auth/login')
+      .send({ email: people.sup!.email, password: TEST_PASSWORD })
+      .expect(200);
     const first = refreshCookie(login);
     const r1 = await app.request().post('/api/auth/refresh').set('Cookie', first).expect(200);
     const second = refreshCookie(r1);
@@ -67,7 +91,11 @@ describe('sign-in', () => {
 
   it('lets tabs that refresh at once with the same cookie share the session within the grace window', async () => {
     at = Date.parse('2026-12-02T23:59:50-06:00');
-    const login = await app.request().post('/api/auth/login').send({ email: people.sup!.email, password: TEST_PASSWORD }).expect(200);
+    const login = await app
+      .request()
+      .post('/api/auth/login')
+      .send({ email: people.sup!.email, password: TEST_PASSWORD })
+      .expect(200);
     const old = refreshCookie(login);
     // Two tabs, one cookie: the first rotates it, the second arrives 20 s later with the same one.
     const tabA = await app.request().post('/api/auth/refresh').set('Cookie', old).expect(200);
@@ -94,7 +122,11 @@ describe('sign-in', () => {
 
   it('does not reopen a revoked session within the grace window', async () => {
     at = Date.parse('2026-12-03T08:00:00-06:00');
-    const login = await app.request().post('/api/auth/login').send({ email: people.sup!.email, password: TEST_PASSWORD }).expect(200);
+    const login = await app
+      .request()
+      .post('/api/auth/login')
+      .send({ email: people.sup!.email, password: TEST_PASSWORD })
+      .expect(200);
     const old = refreshCookie(login);
     const r1 = await app.request().post('/api/auth/refresh').set('Cookie', old).expect(200);
     await app.request().post('/api/auth/logout').set('Cookie', refreshCookie(r1)).expect(204);
@@ -103,7 +135,11 @@ describe('sign-in', () => {
   });
 
   it('signs out: the refresh cookie no longer works', async () => {
-    const login = await app.request().post('/api/auth/login').send({ email: people.sup!.email, password: TEST_PASSWORD }).expect(200);
+    const login = await app
+      .request()
+      .post('/api/auth/login')
+      .send({ email: people.sup!.email, password: TEST_PASSWORD })
+      .expect(200);
     const cookie = refreshCookie(login);
     await app.request().post('/api/auth/logout').set('Cookie', cookie).expect(204);
     await app.request().post('/api/auth/refresh').set('Cookie', cookie).expect(401);
@@ -128,7 +164,10 @@ describe('sign-in', () => {
 
   it('a token for a user of another organisation claim is refused', async () => {
     const token = jwt.sign({ org: '00000000-0000-4000-8000-000000000000' }, app.deps.config.JWT_SECRET, {
-      subject: people.sup!.id, issuer: 'nightyard', audience: 'nightyard-api', expiresIn: 600,
+      subject: people.sup!.id,
+      issuer: 'nightyard',
+      audience: 'nightyard-api',
+      expiresIn: 600,
     });
     await app.request().get('/api/auth/me').set('Authorization', `Bearer ${token}`).expect(401);
   });
@@ -138,10 +177,18 @@ describe('login throttling', () => {
   it('locks an account after five failures, whatever the address', async () => {
     const { users: p } = await createOrganisation(app, { victim: ['yard'] });
     for (let i = 0; i < 5; i++) {
-      await app.request().post('/api/auth/login').set('X-Forwarded-For', `10.0.0.${i}`)
-        .send({ email: p.victim!.email, password: 'wrong-password' }).expect(401);
+      await app
+        .request()
+        .post('/api/auth/login')
+        .set('X-Forwarded-For', `10.0.0.${i}`)
+        .send({ email: p.victim!.email, password: 'wrong-password' })
+        .expect(401);
     }
-    const res = await app.request().post('/api/auth/login').send({ email: p.victim!.email, password: TEST_PASSWORD }).expect(429);
+    const res = await app
+      .request()
+      .post('/api/auth/login')
+      .send({ email: p.victim!.email, password: TEST_PASSWORD })
+      .expect(429);
     expect(res.headers['retry-after']).toBe('900');
     expect(res.body.error.message).toMatch(/Wait 15 minutes/);
   });
@@ -149,23 +196,45 @@ describe('login throttling', () => {
   it('limits one address trying many accounts', async () => {
     const ip = '192.0.2.77';
     for (let i = 0; i < 20; i++) {
-      await app.request().post('/api/auth/login').set('X-Forwarded-For', ip)
-        .send({ email: `guess${i}@test.nightyard.example`, password: 'x' }).expect(401);
+      await app
+        .request()
+        .post('/api/auth/login')
+        .set('X-Forwarded-For', ip)
+        .send({ email: `guess${i}@test.nightyard.example`, password: 'x' })
+        .expect(401);
     }
     const { users: p } = await createOrganisation(app, { other: ['yard'] });
-    await app.request().post('/api/auth/login').set('X-Forwarded-For', ip).send({ email: p.other!.email, password: TEST_PASSWORD }).expect(429);
-    await app.request().post('/api/auth/login').set('X-Forwarded-For', '192.0.2.78').send({ email: p.other!.email, password: TEST_PASSWORD }).expect(200);
+    await app
+      .request()
+      .post('/api/auth/login')
+      .set('X-Forwarded-For', ip)
+      .send({ email: p.other!.email, password: TEST_PASSWORD })
+      .expect(429);
+    await app
+      .request()
+      .post('/api/auth/login')
+      .set('X-Forwarded-For', '192.0.2.78')
+      .send({ email: p.other!.email, password: TEST_PASSWORD })
+      .expect(200);
   });
 });
 
 describe('deactivated accounts', () => {
   it('cannot sign in, refresh or use a token issued before', async () => {
     const { users: p } = await createOrganisation(app, { gone: ['finance'] });
-    const login = await app.request().post('/api/auth/login').send({ email: p.gone!.email, password: TEST_PASSWORD }).expect(200);
+    const login = await app
+      .request()
+      .post('/api/auth/login')
+      .send({ email: p.gone!.email, password: TEST_PASSWORD })
+      .expect(200);
     await app.db.update(users).set({ status: 'deactivated' }).where(eq(users.id, p.gone!.id));
     await app.request().get('/api/auth/me').set('Authorization', `Bearer ${p.gone!.token}`).expect(401);
     await app.request().post('/api/auth/refresh').set('Cookie', refreshCookie(login)).expect(401);
-    const res = await app.request().post('/api/auth/login').send({ email: p.gone!.email, password: TEST_PASSWORD }).expect(401);
+    const res = await app
+      .request()
+      .post('/api/auth/login')
+      .send({ email: p.gone!.email, password: TEST_PASSWORD })
+      .expect(401);
     expect(res.body.error.message).toMatch(/deactivated/);
     const tokens = await app.db.select().from(refreshTokens).where(eq(refreshTokens.userId, p.gone!.id));
     expect(tokens.length).toBeGreaterThan(0);

@@ -33,13 +33,17 @@ const seenAsAdmin = async (user: TestUser) => {
 async function setRolesQuietly(user: TestUser, roles: string[]): Promise<void> {
   await app.db.transaction(async (tx) => {
     await tx.execute(sql`set local session_replication_role = replica`);
-    await tx.execute(sql`update users set roles = ${sql.raw(`ARRAY[${roles.map((r) => `'${r}'`).join(',')}]::text[]`)} where id = ${user.id}`);
+    await tx.execute(
+      sql`update users set roles = ${sql.raw(`ARRAY[${roles.map((r) => `'${r}'`).join(',')}]::text[]`)} where id = ${user.id}`,
+    );
   });
 }
 
 beforeAll(async () => {
   await known.start();
-  ({ users: { admin, yard } } = await createOrganisation(app, { admin: ['admin'], yard: ['yard'] }));
+  ({
+    users: { admin, yard },
+  } = await createOrganisation(app, { admin: ['admin'], yard: ['yard'] }));
 });
 afterAll(() => known.close());
 
@@ -56,17 +60,31 @@ describe('signed-in users kept between requests', () => {
   });
 
   it('a deactivation through the API refuses the very next request of that user', async () => {
-    const { users: { boss, crew } } = await createOrganisation(app, { boss: ['admin'], crew: ['yard'] });
+    const {
+      users: { boss, crew },
+    } = await createOrganisation(app, { boss: ['admin'], crew: ['yard'] });
     await app.request().get('/api/auth/me').set('Authorization', `Bearer ${crew!.token}`).expect(200);
-    await app.request().patch(`/api/users/${crew!.id}`).set('Authorization', `Bearer ${boss!.token}`).send({ active: false }).expect(200);
+    await app
+      .request()
+      .patch(`/api/users/${crew!.id}`)
+      .set('Authorization', `Bearer ${boss!.token}`)
+      .send({ active: false })
+      .expect(200);
     await app.request().get('/api/auth/me').set('Authorization', `Bearer ${crew!.token}`).expect(401);
   });
 
   it('a deactivation by another process (straight in the database) is refused once the notification arrives', async () => {
-    const { users: { crew } } = await createOrganisation(app, { crew: ['yard'] });
+    const {
+      users: { crew },
+    } = await createOrganisation(app, { crew: ['yard'] });
     await app.request().get('/api/auth/me').set('Authorization', `Bearer ${crew!.token}`).expect(200);
     await app.db.execute(sql`update users set status = 'deactivated' where id = ${crew!.id}`);
-    await until(async () => (await app.request().get('/api/auth/me').set('Authorization', `Bearer ${crew!.token}`)).status === 401, 'the deactivation is seen', 1_000);
+    await until(
+      async () =>
+        (await app.request().get('/api/auth/me').set('Authorization', `Bearer ${crew!.token}`)).status === 401,
+      'the deactivation is seen',
+      1_000,
+    );
   });
 
   it('while the listening connection is lost, users are read per request; listening resumes by itself', async () => {

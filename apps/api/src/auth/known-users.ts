@@ -119,7 +119,10 @@ export class KnownUsers {
     if (this.closed) return;
     const wait = RETRY_MS[Math.min(this.attempts, RETRY_MS.length - 1)]!;
     this.attempts += 1;
-    this.log?.warn({ err, retryInMs: wait }, 'user change notifications lost; users are read per request until they resume');
+    this.log?.warn(
+      { err, retryInMs: wait },
+      'user change notifications lost; users are read per request until they resume',
+    );
     this.retry = setTimeout(() => {
       this.retry = null;
       void this.start();

@@ -13,7 +13,13 @@ export interface ThrottleLimits {
  * Refuses sign-in after too many recent failures for one account or from one address. Counted in
  * the database so every API process sees the same attempts.
  */
-export async function assertLoginAllowed(db: Db, limits: ThrottleLimits, email: string, ip: string, now: Date): Promise<void> {
+export async function assertLoginAllowed(
+  db: Db,
+  limits: ThrottleLimits,
+  email: string,
+  ip: string,
+  now: Date,
+): Promise<void> {
   const since = new Date(now.getTime() - limits.windowMinutes * 60_000);
   const failed = (field: typeof loginAttempts.email | typeof loginAttempts.ip, value: string) =>
     db
@@ -32,7 +38,13 @@ export async function assertLoginAllowed(db: Db, limits: ThrottleLimits, email: 
   }
 }
 
-export async function recordLoginAttempt(db: Db, email: string, ip: string, succeeded: boolean, now: Date): Promise<void> {
+export async function recordLoginAttempt(
+  db: Db,
+  email: string,
+  ip: string,
+  succeeded: boolean,
+  now: Date,
+): Promise<void> {
   // Stamped with the API's clock (not the database's now()) so the throttle window compares like with like.
   await db.insert(loginAttempts).values({ email, ip, succeeded, at: now });
 }

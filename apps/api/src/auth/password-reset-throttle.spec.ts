@@ -9,7 +9,8 @@ const app = createTestApp();
 // Each test its own client address (the API trusts X-Forwarded-For from loopback, like its proxy).
 // A fresh documentation-range IPv6 address per use, so runs on the same database never share one.
 const fromAddress = () => `2001:db8::${randomUUID().slice(0, 4)}:${randomUUID().slice(0, 4)}`;
-const forgot = (email: string, ip: string) => app.request().post('/api/auth/forgot').set('X-Forwarded-For', ip).send({ email });
+const forgot = (email: string, ip: string) =>
+  app.request().post('/api/auth/forgot').set('X-Forwarded-For', ip).send({ email });
 
 describe('password reset throttle', () => {
   it('the 6th reset for one account within the hour sends no mail, and the answer is the same 202', async () => {
@@ -22,15 +23,25 @@ describe('password reset throttle', () => {
     const sixth = await forgot(user.email, ip).expect(202);
     expect(sixth.body).toEqual(answers[0]!.body);
     // Refused at the door: not counted, no token made, no mail.
-    expect(await app.db.select().from(passwordResetRequests).where(eq(passwordResetRequests.email, user.email))).toHaveLength(5);
-    expect(await app.db.select().from(actionTokens).where(and(eq(actionTokens.userId, user.id), eq(actionTokens.purpose, 'reset')))).toHaveLength(5);
+    expect(
+      await app.db.select().from(passwordResetRequests).where(eq(passwordResetRequests.email, user.email)),
+    ).toHaveLength(5);
+    expect(
+      await app.db
+        .select()
+        .from(actionTokens)
+        .where(and(eq(actionTokens.userId, user.id), eq(actionTokens.purpose, 'reset'))),
+    ).toHaveLength(5);
     expect(await mailFor(user.email, 6, 800)).toHaveLength(5);
   });
 
   it('one client address gets 20 requests per 15 minutes, known and unknown addresses alike', async () => {
     const ip = fromAddress();
     const { users } = await createOrganisation(app, { target: ['yard'] });
-    const unknown = Array.from({ length: 20 }, (_, i) => `nobody-${i}-${randomUUID().slice(0, 8)}@test.nightyard.example`);
+    const unknown = Array.from(
+      { length: 20 },
+      (_, i) => `nobody-${i}-${randomUUID().slice(0, 8)}@test.nightyard.example`,
+    );
     const bodies = new Set<string>();
     for (const email of unknown) bodies.add(JSON.stringify((await forgot(email, ip).expect(202)).body));
     const refused = await forgot(users.target!.email, ip).expect(202);

@@ -11,7 +11,12 @@ export interface ResetLimits {
   addressWindowMinutes: number;
 }
 
-export const DEFAULT_RESET_LIMITS: ResetLimits = { perAccount: 5, accountWindowMinutes: 60, perAddress: 20, addressWindowMinutes: 15 };
+export const DEFAULT_RESET_LIMITS: ResetLimits = {
+  perAccount: 5,
+  accountWindowMinutes: 60,
+  perAddress: 20,
+  addressWindowMinutes: 15,
+};
 
 /**
  * Takes one password-reset slot for the e-mail address and the client address, or answers false
@@ -19,15 +24,35 @@ export const DEFAULT_RESET_LIMITS: ResetLimits = { perAccount: 5, accountWindowM
  * requests; only granted requests count, so a flood does not keep the owner locked out after it
  * stops. Known and unknown addresses are counted alike (the answer must not tell them apart).
  */
-export async function takeResetSlot(db: Db, limits: ResetLimits, email: string, ip: string, now: Date): Promise<boolean> {
+export async function takeResetSlot(
+  db: Db,
+  limits: ResetLimits,
+  email: string,
+  ip: string,
+  now: Date,
+): Promise<boolean> {
   return db.transaction(async (tx) => {
     // One decision at a time per e-mail address: two requests at once cannot both take the last slot.
     await tx.execute(sql`select pg_advisory_xact_lock(hashtext(${`password-reset:${email}`}))`);
     const recent = (where: ReturnType<typeof and>) =>
-      tx.select({ n: count() }).from(passwordResetRequests).where(where).then(([r]) => r?.n ?? 0);
+      tx
+        .select({ n: count() })
+        .from(passwordResetRequests)
+        .where(where)
+        .then(([r]) => r?.n ?? 0);
     const [byAccount, byAddress] = await Promise.all([
-      recent(and(eq(passwordResetRequests.email, email), gt(passwordResetRequests.at, new Date(now.getTime() - limits.accountWindowMinutes * 60_000)))),
-      recent(and(eq(passwordResetRequests.ip, ip), gt(passwordResetRequests.at, new Date(now.getTime() - limits.addressWindowMinutes * 60_000)))),
+      recent(
+        and(
+          eq(passwordResetRequests.email, email),
+          gt(passwordResetRequests.at, new Date(now.getTime() - limits.accountWindowMinutes * 60_000)),
+        ),
+      ),
+      recent(
+        and(
+          eq(passwordResetRequests.ip, ip),
+          gt(passwordResetRequests.at, new Date(now.getTime() - limits.addressWindowMinutes * 60_000)),
+        ),
+      ),
     ]);
     if (byAccount >= limits.perAccount || byAddress >= limits.perAddress) return false;
     await tx.insert(passwordResetRequests).values({ email, ip, at: now });

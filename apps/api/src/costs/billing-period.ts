@@ -29,7 +29,11 @@ export interface BillingPeriod {
 const periods = new Map<string, BillingPeriod>();
 
 /** The rate plan that applies to the depot on a date, or a message saying none does. */
-export async function ratePlanOn(db: Db, depot: { id: string; name: string }, date: string): Promise<{ name: string; definition: RatePlanDefinition }> {
+export async function ratePlanOn(
+  db: Db,
+  depot: { id: string; name: string },
+  date: string,
+): Promise<{ name: string; definition: RatePlanDefinition }> {
   const [row] = await db
     .select({ name: ratePlans.name, definition: ratePlans.definition })
     .from(depotRatePlans)
@@ -37,6 +41,11 @@ export async function ratePlanOn(db: Db, depot: { id: string; name: string }, da
     .where(and(eq(depotRatePlans.depotId, depot.id), lte(depotRatePlans.effectiveFrom, date)))
     .orderBy(desc(depotRatePlans.effectiveFrom))
     .limit(1);
-  if (!row) throw new DomainError('validation_failed', `No rate plan applies to ${depot.name} on ${date}: assign one under Rates`, { date: 'No rate plan' });
+  if (!row)
+    throw new DomainError(
+      'validation_failed',
+      `No rate plan applies to ${depot.name} on ${date}: assign one under Rates`,
+      { date: 'No rate plan' },
+    );
   return { name: row.name, definition: ratePlanDefinitionSchema.parse(row.definition) };
 }

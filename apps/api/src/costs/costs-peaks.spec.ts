@@ -26,7 +26,14 @@ beforeAll(async () => {
 describe('peaks so far and the bill', () => {
   it('November without plans: the building\'s 20 kW is the peak shown and the peak billed (not "0 kW" beside $240 of demand)', async () => {
     const { depot } = await createDepot(app.db, organisationId, 'Peaks depot A');
-    const m = (await app.request().get(`/api/depots/${depot.id}/costs/month`).query({ date: '2026-11-10' }).set(as(fin)).expect(200)).body;
+    const m = (
+      await app
+        .request()
+        .get(`/api/depots/${depot.id}/costs/month`)
+        .query({ date: '2026-11-10' })
+        .set(as(fin))
+        .expect(200)
+    ).body;
     const facility = line(m.monthToDate.demand, 'Facility demand');
     expect(facility.quantity).toBeCloseTo(20, 9);
     expect(facility.amount).toBeCloseTo(20 * 12, 9);
@@ -35,8 +42,21 @@ describe('peaks so far and the bill', () => {
 
   it('peaks entered in Depot for this period are billed: on-peak 48 kW entered, 48 kW billed and shown', async () => {
     const { depot } = await createDepot(app.db, organisationId, 'Peaks depot B');
-    await app.db.insert(billingPeaks).values({ organisationId, depotId: depot.id, billingPeriodStart: '2026-12-01', facilityKw: 60, periodsKw: { 'on-peak': 48 } });
-    const m = (await app.request().get(`/api/depots/${depot.id}/costs/month`).query({ date: '2026-12-10' }).set(as(fin)).expect(200)).body;
+    await app.db.insert(billingPeaks).values({
+      organisationId,
+      depotId: depot.id,
+      billingPeriodStart: '2026-12-01',
+      facilityKw: 60,
+      periodsKw: { 'on-peak': 48 },
+    });
+    const m = (
+      await app
+        .request()
+        .get(`/api/depots/${depot.id}/costs/month`)
+        .query({ date: '2026-12-10' })
+        .set(as(fin))
+        .expect(200)
+    ).body;
     for (const bill of [m.projected, m.monthToDate]) {
       expect(line(bill.demand, 'Demand, on-peak').quantity).toBe(48);
       expect(line(bill.demand, 'Demand, on-peak').note).toMatch(/entered in Depot/);
@@ -45,18 +65,52 @@ describe('peaks so far and the bill', () => {
     expect(m.peaks.facility).toMatchObject({ kw: 60, source: 'entered' });
     expect(m.peaks.periods).toEqual([{ name: 'on-peak', kw: 48, at: null }]);
     // A period other than the one entered for is not raised.
-    const nov = (await app.request().get(`/api/depots/${depot.id}/costs/month`).query({ date: '2026-11-10' }).set(as(fin)).expect(200)).body;
+    const nov = (
+      await app
+        .request()
+        .get(`/api/depots/${depot.id}/costs/month`)
+        .query({ date: '2026-11-10' })
+        .set(as(fin))
+        .expect(200)
+    ).body;
     expect(line(nov.projected.demand, 'Facility demand').quantity).toBeCloseTo(20, 9);
   });
 
-  it('a demand ratchet bills 80 % of November\'s metered 400 kW in December, and says where the figure comes from', async () => {
+  it("a demand ratchet bills 80 % of November's metered 400 kW in December, and says where the figure comes from", async () => {
     const { depot, ratePlan } = await createDepot(app.db, organisationId, 'Peaks depot C');
-    await app.db.update(ratePlans).set({ definition: { ...ratePlan.definition, demandRatchet: { percent: 80, months: 11 } } }).where(eq(ratePlans.id, ratePlan.id));
-    const [imp] = await app.db.insert(meterImports).values({
-      organisationId, depotId: depot.id, fileName: 'nov.csv', format: 'csv', billingPeriodStart: '2026-11-01', intervals: 1, duplicates: 0, gaps: [],
-    }).returning();
-    await app.db.insert(meterIntervals).values({ organisationId, depotId: depot.id, startsAt: new Date('2026-11-10T14:00:00-06:00'), minutes: 15, kwh: 100, importId: imp!.id });
-    const m = (await app.request().get(`/api/depots/${depot.id}/costs/month`).query({ date: '2026-12-10' }).set(as(fin)).expect(200)).body;
+    await app.db
+      .update(ratePlans)
+      .set({ definition: { ...ratePlan.definition, demandRatchet: { percent: 80, months: 11 } } })
+      .where(eq(ratePlans.id, ratePlan.id));
+    const [imp] = await app.db
+      .insert(meterImports)
+      .values({
+        organisationId,
+        depotId: depot.id,
+        fileName: 'nov.csv',
+        format: 'csv',
+        billingPeriodStart: '2026-11-01',
+        intervals: 1,
+        duplicates: 0,
+        gaps: [],
+      })
+      .returning();
+    await app.db.insert(meterIntervals).values({
+      organisationId,
+      depotId: depot.id,
+      startsAt: new Date('2026-11-10T14:00:00-06:00'),
+      minutes: 15,
+      kwh: 100,
+      importId: imp!.id,
+    });
+    const m = (
+      await app
+        .request()
+        .get(`/api/depots/${depot.id}/costs/month`)
+        .query({ date: '2026-12-10' })
+        .set(as(fin))
+        .expect(200)
+    ).body;
     const facility = line(m.projected.demand, 'Facility demand');
     expect(facility.quantity).toBeCloseTo(320, 9);
     expect(facility.amount).toBeCloseTo(320 * 12, 9);

@@ -1,6 +1,13 @@
 import { and, asc, eq, gte, lt } from 'drizzle-orm';
 import { DateTime } from 'luxon';
-import { monthCostsSchema, planResultSchema, type MonthCosts, type PlanCosts, type PlanResult, type RatePlanDefinition } from '@nightyard/contracts';
+import {
+  monthCostsSchema,
+  planResultSchema,
+  type MonthCosts,
+  type PlanCosts,
+  type PlanResult,
+  type RatePlanDefinition,
+} from '@nightyard/contracts';
 import { computeBill, ratePlanPeriodAt, type Bill, type IntervalDemand } from '@nightyard/scheduling';
 import type { Pool } from 'pg';
 import type { Db } from '../db/client';
@@ -24,14 +31,19 @@ const round2 = (v: number) => Math.round(v * 100) / 100;
 export const DIESEL_CO2_KG_PER_GALLON = 10.18;
 export const DIESEL_BUS_MPG = 7;
 const EMISSIONS_SOURCE =
-  'Diesel avoided = miles / 7 mpg (assumed for a full-size diesel school bus). CO2 = 10,180 g per gallon of diesel (US EPA figure). Tailpipe only: the electricity\'s own emissions are not subtracted.';
+  "Diesel avoided = miles / 7 mpg (assumed for a full-size diesel school bus). CO2 = 10,180 g per gallon of diesel (US EPA figure). Tailpipe only: the electricity's own emissions are not subtracted.";
 
 /** Miles each bus drives on the first service day after `serviceDate` (what the night charged for). */
 async function nextDayMiles(db: Db, depotId: string, serviceDate: string, kwhPerMile: Map<string, number>) {
   const [next] = await db
     .select({ date: runs.serviceDate })
     .from(runs)
-    .where(and(eq(runs.depotId, depotId), gte(runs.serviceDate, DateTime.fromISO(serviceDate).plus({ days: 1 }).toISODate()!)))
+    .where(
+      and(
+        eq(runs.depotId, depotId),
+        gte(runs.serviceDate, DateTime.fromISO(serviceDate).plus({ days: 1 }).toISODate()!),
+      ),
+    )
     .orderBy(asc(runs.serviceDate))
     .limit(1);
   const miles = new Map<string, number>();
@@ -50,13 +62,21 @@ async function nextDayMiles(db: Db, depotId: string, serviceDate: string, kwhPer
 
 /** A plan's cost per bus and per mile: energy by the bus's own sessions, demand shared by kWh. */
 export async function planCosts(db: Db, caller: AuthUser, planId: string): Promise<PlanCosts> {
-  const [plan] = await db.select().from(plans).where(and(eq(plans.id, planId), eq(plans.organisationId, caller.organisationId)));
+  const [plan] = await db
+    .select()
+    .from(plans)
+    .where(and(eq(plans.id, planId), eq(plans.organisationId, caller.organisationId)));
   if (!plan) throw notFound('That plan');
-  if (!plan.result) throw notFound('The plan\'s result (it is not finished)');
+  if (!plan.result) throw notFound("The plan's result (it is not finished)");
   const result = planResultSchema.parse(plan.result);
   const scenario = plan.scenario;
   const fleet = await db.select().from(buses).where(eq(buses.depotId, plan.depotId));
-  const miles = await nextDayMiles(db, plan.depotId, plan.serviceDate, new Map(fleet.map((b) => [b.number, b.kwhPerMile])));
+  const miles = await nextDayMiles(
+    db,
+    plan.depotId,
+    plan.serviceDate,
+    new Map(fleet.map((b) => [b.number, b.kwhPerMile])),
+  );
   const priceAt = new Map(result.slots.map((s) => [Date.parse(s.start), s.price]));
   const perBus = new Map<string, { kwh: number; energy: number }>();
   for (const s of result.sessions) {
@@ -87,16 +107,39 @@ export async function planCosts(db: Db, caller: AuthUser, planId: string): Promi
   const baselineEnergy = base.total - base.demand;
   const energySaving = baselineEnergy - result.cost.energy;
   return {
-    planId, serviceDate: plan.serviceDate, currency: scenario.tariff.currency ?? 'USD',
-    energy: result.cost.energy, demand: result.cost.demand, total, peakKw: result.slots.reduce((a, s) => Math.max(a, s.loadKw), 0),
-    baseline: { kind: base.kind ?? null, energy: base.energy, demand: base.demand, total: base.total, peakKw: base.peakKw, shortfallKwh: base.shortfallKwh ?? 0 },
-    otherBaseline: other && otherKind
-      ? { kind: otherKind, total: other.total, energy: other.total - other.demand, peakKw: other.peakKw, shortfallKwh: other.shortfallKwh ?? 0 }
-      : null,
+    planId,
+    serviceDate: plan.serviceDate,
+    currency: scenario.tariff.currency ?? 'USD',
+    energy: result.cost.energy,
+    demand: result.cost.demand,
+    total,
+    peakKw: result.slots.reduce((a, s) => Math.max(a, s.loadKw), 0),
+    baseline: {
+      kind: base.kind ?? null,
+      energy: base.energy,
+      demand: base.demand,
+      total: base.total,
+      peakKw: base.peakKw,
+      shortfallKwh: base.shortfallKwh ?? 0,
+    },
+    otherBaseline:
+      other && otherKind
+        ? {
+            kind: otherKind,
+            total: other.total,
+            energy: other.total - other.demand,
+            peakKw: other.peakKw,
+            shortfallKwh: other.shortfallKwh ?? 0,
+          }
+        : null,
     savings: energySaving,
     savingsShare: baselineEnergy > 0 ? energySaving / baselineEnergy : 0,
-    chargingKwh: totalKwh, miles: totalMiles, costPerMile: totalMiles > 0 ? total / totalMiles : null,
-    perBus: rows.map(({ unrounded: _, ...r }) => r).sort((a, b) => a.bus.localeCompare(b.bus, undefined, { numeric: true })),
+    chargingKwh: totalKwh,
+    miles: totalMiles,
+    costPerMile: totalMiles > 0 ? total / totalMiles : null,
+    perBus: rows
+      .map(({ unrounded: _, ...r }) => r)
+      .sort((a, b) => a.bus.localeCompare(b.bus, undefined, { numeric: true })),
   };
 }
 
@@ -143,7 +186,12 @@ function comparedNight(result: PlanResult, fromMs: number, toMs: number) {
  * Depot for those periods, at least the building's own highest hourly load. Null when none of
  * those months has any data.
  */
-export async function ratchetBaseOf(db: Db, depot: Depot, period: Period, months: number): Promise<{ kw: number; source: string } | null> {
+export async function ratchetBaseOf(
+  db: Db,
+  depot: Depot,
+  period: Period,
+  months: number,
+): Promise<{ kw: number; source: string } | null> {
   const from = period.start.minus({ months });
   const client = (db as unknown as { $client: Pool }).$client;
   const { rows } = await client.query<{ metered: number | null; planned: number | null }>(
@@ -157,14 +205,21 @@ export async function ratchetBaseOf(db: Db, depot: Depot, period: Period, months
   const metered = rows[0]?.metered === null || rows[0]?.metered === undefined ? 0 : Number(rows[0].metered);
   const planned = rows[0]?.planned === null || rows[0]?.planned === undefined ? 0 : Number(rows[0].planned);
   const [entered] = await db.select().from(billingPeaks).where(eq(billingPeaks.depotId, depot.id));
-  const enteredKw = entered && entered.billingPeriodStart >= from.toISODate()! && entered.billingPeriodStart < period.start.toISODate()! ? entered.facilityKw : 0;
+  const enteredKw =
+    entered && entered.billingPeriodStart >= from.toISODate()! && entered.billingPeriodStart < period.start.toISODate()!
+      ? entered.facilityKw
+      : 0;
   const candidates: [number, string][] = [
-    [metered, 'meter readings'], [planned, 'published plans'], [enteredKw, `peaks entered in Depot for the period from ${entered?.billingPeriodStart}`],
+    [metered, 'meter readings'],
+    [planned, 'published plans'],
+    [enteredKw, `peaks entered in Depot for the period from ${entered?.billingPeriodStart}`],
   ];
   const best = candidates.reduce((a, b) => (b[0] > a[0] ? b : a));
   if (best[0] <= 0) return null;
   const building = Math.max(0, ...depot.otherLoadKw);
-  return building > best[0] ? { kw: building, source: 'the building\'s own load' } : { kw: best[0], source: `from ${best[1]}` };
+  return building > best[0]
+    ? { kw: building, source: "the building's own load" }
+    : { kw: best[0], source: `from ${best[1]}` };
 }
 
 /** What a billing period's costs are, whatever the time now: built from the rows the cache versions. */
@@ -178,7 +233,7 @@ interface PeriodBase {
   projectedRange: MonthCosts['projectedRange'];
   plannedDates: Set<string>;
   projected: Bill;
-  entered: (typeof billingPeaks.$inferSelect) | undefined;
+  entered: typeof billingPeaks.$inferSelect | undefined;
   recordedPeaksKw: { facility: number; periods: Record<string, number> } | undefined;
   ratchetBase: { kw: number; source: string } | null;
   /** Month to date and peaks so far, by how much of the period has passed (see `soFarKey`). */
@@ -199,13 +254,25 @@ async function periodBase(db: Db, depot: Depot, period: Period): Promise<PeriodB
   const published = await db
     .select()
     .from(plans)
-    .where(and(eq(plans.depotId, depot.id), eq(plans.state, 'published'),
-      gte(plans.serviceDate, period.start.minus({ days: 4 }).toISODate()!), lt(plans.serviceDate, period.end.toISODate()!)))
+    .where(
+      and(
+        eq(plans.depotId, depot.id),
+        eq(plans.state, 'published'),
+        gte(plans.serviceDate, period.start.minus({ days: 4 }).toISODate()!),
+        lt(plans.serviceDate, period.end.toISODate()!),
+      ),
+    )
     .orderBy(asc(plans.serviceDate));
   const actual = await db
     .select()
     .from(meterIntervals)
-    .where(and(eq(meterIntervals.depotId, depot.id), gte(meterIntervals.startsAt, period.start.toJSDate()), lt(meterIntervals.startsAt, period.end.toJSDate())));
+    .where(
+      and(
+        eq(meterIntervals.depotId, depot.id),
+        gte(meterIntervals.startsAt, period.start.toJSDate()),
+        lt(meterIntervals.startsAt, period.end.toJSDate()),
+      ),
+    );
 
   const actualKwh = new Map<number, number>();
   for (const a of actual) {
@@ -246,12 +313,18 @@ async function periodBase(db: Db, depot: Depot, period: Period): Promise<PeriodB
     if (!result.slots.some((s) => Date.parse(s.start) >= fromMs && Date.parse(s.start) < toMs)) continue;
     const inPeriod = result.slots.filter((s) => Date.parse(s.start) >= fromMs && Date.parse(s.start) < toMs).length;
     nights.push({
-      date: p.serviceDate, planId: p.id, version: p.version,
-      planEnergyCost: compared.planEnergy, baselineEnergyCost: compared.kind ? compared.baselineEnergy : null,
-      baselineKind: compared.kind, baselinePeakKw: compared.kind ? round2(compared.baselinePeak) : null,
-      projectedSiteEnergyCost: projectedEnergy, actualSiteEnergyCost: covered ? actualEnergy : null,
+      date: p.serviceDate,
+      planId: p.id,
+      version: p.version,
+      planEnergyCost: compared.planEnergy,
+      baselineEnergyCost: compared.kind ? compared.baselineEnergy : null,
+      baselineKind: compared.kind,
+      baselinePeakKw: compared.kind ? round2(compared.baselinePeak) : null,
+      projectedSiteEnergyCost: projectedEnergy,
+      actualSiteEnergyCost: covered ? actualEnergy : null,
       projectedMeteredSiteEnergyCost: covered ? projectedMetered : null,
-      projectedPeakKw: round2(projectedPeak), actualPeakKw: covered ? round2(actualPeak) : null,
+      projectedPeakKw: round2(projectedPeak),
+      actualPeakKw: covered ? round2(actualPeak) : null,
       actualCoverage: inPeriod ? covered / inPeriod : 0,
     });
   }
@@ -260,10 +333,13 @@ async function periodBase(db: Db, depot: Depot, period: Period): Promise<PeriodB
   // Peaks the utility's meter recorded earlier in this period, entered in Depot: every bill of the
   // period bills at least these (the card of peaks so far shows the same figures).
   const [entered] = await db.select().from(billingPeaks).where(eq(billingPeaks.depotId, depot.id));
-  const recordedPeaksKw = entered && entered.billingPeriodStart === period.start.toISODate()
-    ? { facility: entered.facilityKw, periods: entered.periodsKw }
-    : undefined;
-  const ratchetBase = rate.definition.demandRatchet ? await ratchetBaseOf(db, depot, period, rate.definition.demandRatchet.months) : null;
+  const recordedPeaksKw =
+    entered && entered.billingPeriodStart === period.start.toISODate()
+      ? { facility: entered.facilityKw, periods: entered.periodsKw }
+      : undefined;
+  const ratchetBase = rate.definition.demandRatchet
+    ? await ratchetBaseOf(db, depot, period, rate.definition.demandRatchet.months)
+    : null;
   const plannedDates = new Set(published.map((p) => p.serviceDate));
   const forecast = await forecastNights(db, depot, period, rate.definition, plannedDates);
   // Charging kW of the forecast nights, each shape; a planned or metered interval stays as it is.
@@ -278,7 +354,8 @@ async function periodBase(db: Db, depot: Depot, period: Period): Promise<PeriodB
       const a = actualKwh.get(t);
       if (a !== undefined) series.push({ startMs: t, kwh: a, source: 'actual' });
       else if (plannedKw.has(t)) series.push({ startMs: t, kwh: plannedKw.get(t)! * 0.25, source: 'planned' });
-      else if (charging.has(t)) series.push({ startMs: t, kwh: buildingKwh(t) + charging.get(t)! * 0.25, source: 'forecast' });
+      else if (charging.has(t))
+        series.push({ startMs: t, kwh: buildingKwh(t) + charging.get(t)! * 0.25, source: 'forecast' });
       else series.push({ startMs: t, kwh: buildingKwh(t), source: 'building' });
     }
     return series;
@@ -286,22 +363,46 @@ async function periodBase(db: Db, depot: Depot, period: Period): Promise<PeriodB
   const series = seriesWith(forecastKw('even'));
   const billOptions = { zone, intervalMinutes: 15, days: period.days, recordedPeaksKw, ratchetBase };
   const projected = computeBill(rate.definition, series, billOptions);
-  const cheapest = forecast.length ? computeBill(rate.definition, seriesWith(forecastKw('cheapest')), billOptions).total : projected.total;
-  const projectedRange = forecast.length ? { low: Math.min(cheapest, projected.total), high: Math.max(cheapest, projected.total) } : null;
+  const cheapest = forecast.length
+    ? computeBill(rate.definition, seriesWith(forecastKw('cheapest')), billOptions).total
+    : projected.total;
+  const projectedRange = forecast.length
+    ? { low: Math.min(cheapest, projected.total), high: Math.max(cheapest, projected.total) }
+    : null;
   // The saving: the period billed on planned loads twice, once with the plans and once with the
   // baselines, each with its own peaks. Metered intervals are left out of both on purpose.
-  const onPlans = series.map(({ startMs }) => ({ startMs, kwh: plannedKw.has(startMs) ? plannedKw.get(startMs)! * 0.25 : buildingKwh(startMs) }));
-  const onBaselines = onPlans.map((s) => ({ startMs: s.startMs, kwh: baselineKw.has(s.startMs) ? baselineKw.get(s.startMs)! * 0.25 : s.kwh }));
+  const onPlans = series.map(({ startMs }) => ({
+    startMs,
+    kwh: plannedKw.has(startMs) ? plannedKw.get(startMs)! * 0.25 : buildingKwh(startMs),
+  }));
+  const onBaselines = onPlans.map((s) => ({
+    startMs: s.startMs,
+    kwh: baselineKw.has(s.startMs) ? baselineKw.get(s.startMs)! * 0.25 : s.kwh,
+  }));
   const planBill = computeBill(rate.definition, onPlans, billOptions);
   const baselineBill = computeBill(rate.definition, onBaselines, billOptions);
   const peakOf = (xs: { kwh: number }[]) => xs.reduce((a, x) => Math.max(a, x.kwh * 4), 0);
   const savings: MonthCosts['savings'] = {
-    total: baselineBill.total - planBill.total, planBill: planBill.total, baselineBill: baselineBill.total, nightsCompared,
-    planPeakKw: round2(peakOf(onPlans)), baselinePeakKw: round2(peakOf(onBaselines)),
+    total: baselineBill.total - planBill.total,
+    planBill: planBill.total,
+    baselineBill: baselineBill.total,
+    nightsCompared,
+    planPeakKw: round2(peakOf(onPlans)),
+    baselinePeakKw: round2(peakOf(onBaselines)),
   };
   return {
-    rate, series, actualIntervals: series.filter((s) => s.source === 'actual').length, recordedPeaksKw, ratchetBase, nights, savings, plannedDates,
-    projected, projectedRange, entered, soFar: new Map(),
+    rate,
+    series,
+    actualIntervals: series.filter((s) => s.source === 'actual').length,
+    recordedPeaksKw,
+    ratchetBase,
+    nights,
+    savings,
+    plannedDates,
+    projected,
+    projectedRange,
+    entered,
+    soFar: new Map(),
     forecast: forecast.map((n) => ({ date: n.date, needKwh: n.needKwh, basis: n.basis })),
   };
 }
@@ -332,7 +433,13 @@ function soFarOf(base: PeriodBase, depot: Depot, period: Period, nowMs: number) 
   const toDate = base.series.slice(0, begun);
 
   const { rate, recordedPeaksKw, ratchetBase } = base;
-  const monthToDate = computeBill(rate.definition, toDate, { zone, intervalMinutes: 15, days: elapsedDays, recordedPeaksKw, ratchetBase });
+  const monthToDate = computeBill(rate.definition, toDate, {
+    zone,
+    intervalMinutes: 15,
+    days: elapsedDays,
+    recordedPeaksKw,
+    ratchetBase,
+  });
   // Peaks so far: the highest of every interval the bill counts up to now (metered, planned,
   // forecast or the building alone) and what was entered by hand, the same figures the bill uses.
   const SOURCE = { actual: 'actual', planned: 'planned', forecast: 'forecast', building: 'building' } as const;
@@ -341,13 +448,15 @@ function soFarOf(base: PeriodBase, depot: Depot, period: Period, nowMs: number) 
     const kw = s.kwh * 4;
     if (kw > facility.kw) facility = { kw, at: new Date(s.startMs).toISOString(), source: SOURCE[s.source] };
   }
-  if ((recordedPeaksKw?.facility ?? 0) > facility.kw) facility = { kw: recordedPeaksKw!.facility, at: null, source: 'entered' };
+  if ((recordedPeaksKw?.facility ?? 0) > facility.kw)
+    facility = { kw: recordedPeaksKw!.facility, at: null, source: 'entered' };
   const periodPeaks = new Map<string, { kw: number; at: string | null }>();
   for (const s of toDate) {
     const p = ratePlanPeriodAt(rate.definition, DateTime.fromMillis(s.startMs, { zone }));
     if (p.offPeak || p.demandCharge <= 0) continue;
     const kw = s.kwh * 4;
-    if (kw > (periodPeaks.get(p.period)?.kw ?? 0)) periodPeaks.set(p.period, { kw, at: new Date(s.startMs).toISOString() });
+    if (kw > (periodPeaks.get(p.period)?.kw ?? 0))
+      periodPeaks.set(p.period, { kw, at: new Date(s.startMs).toISOString() });
   }
   for (const [name, kw] of Object.entries(recordedPeaksKw?.periods ?? {})) {
     if (kw > (periodPeaks.get(name)?.kw ?? 0)) periodPeaks.set(name, { kw, at: null });
@@ -360,13 +469,19 @@ function soFarOf(base: PeriodBase, depot: Depot, period: Period, nowMs: number) 
 }
 
 /** A period's dates and instants as the inputs' query takes them, worked out once per period (luxon's zone arithmetic is dear). */
-const boundsOfPeriods = new WeakMap<BillingPeriod, { plansFrom: string; periodStart: string; periodEnd: string; fromAt: Date; toAt: Date }>();
+const boundsOfPeriods = new WeakMap<
+  BillingPeriod,
+  { plansFrom: string; periodStart: string; periodEnd: string; fromAt: Date; toAt: Date }
+>();
 function periodBounds(period: BillingPeriod) {
   let bounds = boundsOfPeriods.get(period);
   if (!bounds) {
     bounds = {
-      plansFrom: period.start.minus({ days: 4 }).toISODate()!, periodStart: period.start.toISODate()!, periodEnd: period.end.toISODate()!,
-      fromAt: period.start.toJSDate(), toAt: period.end.toJSDate(),
+      plansFrom: period.start.minus({ days: 4 }).toISODate()!,
+      periodStart: period.start.toISODate()!,
+      periodEnd: period.end.toISODate()!,
+      fromAt: period.start.toJSDate(),
+      toAt: period.end.toJSDate(),
     };
     boundsOfPeriods.set(period, bounds);
   }
@@ -379,13 +494,15 @@ function periodBounds(period: BillingPeriod) {
  * returns (a depot whose zone or billing day changed is asked again, with the right period).
  */
 async function monthInputsOf(db: Db, caller: AuthUser, depotId: string, date: string, now: Date) {
-  let guess: { timezone: string; billingStartDay: number } = guessDepot(depotId) ?? await depotOf(db, caller, depotId);
+  let guess: { timezone: string; billingStartDay: number } =
+    guessDepot(depotId) ?? (await depotOf(db, caller, depotId));
   for (;;) {
     const period = billingPeriodOf(date, guess.billingStartDay, guess.timezone);
     const found = await monthInputs(db, caller.organisationId, depotId, { ...periodBounds(period), now });
     if (!found) throw notFound('That depot');
     rememberDepot(found.depot);
-    if (found.depot.timezone === guess.timezone && found.depot.billingStartDay === guess.billingStartDay) return { ...found, period };
+    if (found.depot.timezone === guess.timezone && found.depot.billingStartDay === guess.billingStartDay)
+      return { ...found, period };
     guess = found.depot;
   }
 }
@@ -397,7 +514,12 @@ async function monthInputsOf(db: Db, caller: AuthUser, depotId: string, date: st
  * null computes afresh).
  */
 export async function monthCosts(
-  db: Db, caller: AuthUser, depotId: string, date: string, now: Date, mpg = DIESEL_BUS_MPG,
+  db: Db,
+  caller: AuthUser,
+  depotId: string,
+  date: string,
+  now: Date,
+  mpg = DIESEL_BUS_MPG,
   cache: MonthCostsCache<PeriodBase> | null = monthCostsCache,
 ): Promise<MonthCosts> {
   const inputs = await monthInputsOf(db, caller, depotId, date, now);
@@ -414,7 +536,11 @@ export async function monthCosts(
       pending = periodBase(db, depot, period);
       if (cache && version) {
         periodsComputing.set(pendingKey, pending);
-        pending.then((value) => cache.set(key, version, value), () => undefined)
+        pending
+          .then(
+            (value) => cache.set(key, version, value),
+            () => undefined,
+          )
           .finally(() => periodsComputing.delete(pendingKey));
       }
     }
@@ -425,7 +551,14 @@ export async function monthCosts(
   // The same inputs give the same answer: sent again as the bytes it was, not built, checked and
   // written out once more (finance and Tonight's cards ask for it on every page load).
   const kept = monthAnswers.get(key);
-  if (kept && kept.base === base && kept.soFar === soFar && kept.miles === miles && kept.mpg === mpg && kept.withoutPlan === withoutPlan) {
+  if (
+    kept &&
+    kept.base === base &&
+    kept.soFar === soFar &&
+    kept.miles === miles &&
+    kept.mpg === mpg &&
+    kept.withoutPlan === withoutPlan
+  ) {
     return markCheckedText(kept.answer, kept.text);
   }
   const { monthToDate, peaks } = soFar;
@@ -448,7 +581,10 @@ export async function monthCosts(
       schoolNightsWithoutPlan: withoutPlan,
     },
     emissions: {
-      miles: round2(miles), dieselMpg: mpg, dieselGallonsAvoided: round2(gallons), co2KgAvoided: round2(gallons * DIESEL_CO2_KG_PER_GALLON),
+      miles: round2(miles),
+      dieselMpg: mpg,
+      dieselGallonsAvoided: round2(gallons),
+      co2KgAvoided: round2(gallons * DIESEL_CO2_KG_PER_GALLON),
       source: EMISSIONS_SOURCE,
     },
   } satisfies MonthCosts);
@@ -463,7 +599,16 @@ export async function monthCosts(
 }
 
 /** The last answer per depot and period, with what it was made from (compared by identity). */
-const monthAnswers = new Map<string, {
-  base: PeriodBase; soFar: ReturnType<typeof soFarOf>; miles: number; mpg: number; withoutPlan: number; answer: MonthCosts; text: Buffer;
-}>();
+const monthAnswers = new Map<
+  string,
+  {
+    base: PeriodBase;
+    soFar: ReturnType<typeof soFarOf>;
+    miles: number;
+    mpg: number;
+    withoutPlan: number;
+    answer: MonthCosts;
+    text: Buffer;
+  }
+>();
 const MAX_MONTH_ANSWERS = 200;

@@ -25,7 +25,12 @@ beforeAll(async () => {
   depotId = (await createDepot(app.db, org.organisationId)).depot.id;
   await addBuses(app.db, org.organisationId, depotId, NUMBERS);
   for (const date of ['2026-12-02', '2026-12-03']) {
-    await app.request().put(`/api/depots/${depotId}/service-days/${date}`).set(as(sup)).send({ forecastLowF: 30, runs: dayRuns(date, NUMBERS, () => 35) }).expect(200);
+    await app
+      .request()
+      .put(`/api/depots/${depotId}/service-days/${date}`)
+      .set(as(sup))
+      .send({ forecastLowF: 30, runs: dayRuns(date, NUMBERS, () => 35) })
+      .expect(200);
   }
   planId = await publishedPlan(app, sup, depotId, '2026-12-02');
   now = new Date('2026-12-03T15:00:00-06:00');
@@ -46,16 +51,27 @@ describe('costs', () => {
     expect(['arrival', 'timer']).toContain(c.baseline.kind);
     expect(c.otherBaseline.kind).not.toBe(c.baseline.kind);
     // The reference is the cheaper of the two when both deliver the plan's energy.
-    if (c.baseline.shortfallKwh === 0 && c.otherBaseline.shortfallKwh === 0) expect(c.baseline.total).toBeLessThanOrEqual(c.otherBaseline.total);
+    if (c.baseline.shortfallKwh === 0 && c.otherBaseline.shortfallKwh === 0)
+      expect(c.baseline.total).toBeLessThanOrEqual(c.otherBaseline.total);
     // Next day's miles from the runs: (30 + 28) + (31 + 29) + (32 + 30).
     expect(c.miles).toBe(180);
     expect(c.costPerMile).toBeCloseTo(c.total / 180, 2);
   });
 
   it('imports Green Button XML: readings stored, gap and duplicate reported, peaks so far raised', async () => {
-    const res = await app.request().post(`/api/depots/${depotId}/meter-data`).set(as(fin))
-      .send({ fileName: 'night.xml', content: fixture('green-button-night.xml'), billingPeriodStart: '2026-12-01' }).expect(201);
-    expect(res.body).toMatchObject({ format: 'green-button-xml', intervals: 23, minutes: 15, duplicates: 1, gaps: [{ from: '2026-12-02T02:15', to: '2026-12-02T02:30' }] });
+    const res = await app
+      .request()
+      .post(`/api/depots/${depotId}/meter-data`)
+      .set(as(fin))
+      .send({ fileName: 'night.xml', content: fixture('green-button-night.xml'), billingPeriodStart: '2026-12-01' })
+      .expect(201);
+    expect(res.body).toMatchObject({
+      format: 'green-button-xml',
+      intervals: 23,
+      minutes: 15,
+      duplicates: 1,
+      gaps: [{ from: '2026-12-02T02:15', to: '2026-12-02T02:30' }],
+    });
     // Highest reading: value 180 x 10^2 Wh = 18 kWh in 15 minutes = 72 kW.
     expect(res.body.peaks.facilityKw).toBe(72);
     const [peaks] = await app.db.select().from(billingPeaks).where(eq(billingPeaks.depotId, depotId));
@@ -63,13 +79,25 @@ describe('costs', () => {
   });
 
   it('the month: projected bill, month to date, nights with actual against projected, emissions with their source', async () => {
-    await app.request().post(`/api/depots/${depotId}/meter-data`).set(as(fin))
-      .send({ fileName: 'evening.csv', content: fixture('green-button-evening.csv'), billingPeriodStart: '2026-12-01' }).expect(201);
-    const res = await app.request().get(`/api/depots/${depotId}/costs/month`).query({ date: '2026-12-10' }).set(as(sup)).expect(200);
+    await app
+      .request()
+      .post(`/api/depots/${depotId}/meter-data`)
+      .set(as(fin))
+      .send({ fileName: 'evening.csv', content: fixture('green-button-evening.csv'), billingPeriodStart: '2026-12-01' })
+      .expect(201);
+    const res = await app
+      .request()
+      .get(`/api/depots/${depotId}/costs/month`)
+      .query({ date: '2026-12-10' })
+      .set(as(sup))
+      .expect(200);
     const m = res.body;
     expect(m.period).toEqual({ start: '2026-12-01', end: '2027-01-01', days: 31 });
     expect(m.sources.actualIntervals).toBe(23 + 8);
-    expect(m.projected.total).toBeCloseTo(m.projected.energyTotal + m.projected.demandTotal + m.projected.fixedTotal, 2);
+    expect(m.projected.total).toBeCloseTo(
+      m.projected.energyTotal + m.projected.demandTotal + m.projected.fixedTotal,
+      2,
+    );
     const night = m.nights.find((n: { date: string }) => n.date === '2026-12-02');
     expect(night.planId).toBe(planId);
     expect(night.actualCoverage).toBeGreaterThan(0);
@@ -93,20 +121,50 @@ describe('costs', () => {
   it('bad files and months without a rate plan import nothing', async () => {
     const before = (await app.db.select().from(meterIntervals).where(eq(meterIntervals.depotId, depotId))).length;
     const mixed = fixture('green-button-evening.csv').replace('22:15,22:29', '22:15,22:59');
-    const a = await app.request().post(`/api/depots/${depotId}/meter-data`).set(as(fin)).send({ fileName: 'x.csv', content: mixed, billingPeriodStart: '2026-12-01' }).expect(400);
+    const a = await app
+      .request()
+      .post(`/api/depots/${depotId}/meter-data`)
+      .set(as(fin))
+      .send({ fileName: 'x.csv', content: mixed, billingPeriodStart: '2026-12-01' })
+      .expect(400);
     expect(a.body.error.message).toMatch(/mixes interval lengths/);
-    const b = await app.request().post(`/api/depots/${depotId}/meter-data`).set(as(fin)).send({ fileName: 'x.csv', content: fixture('green-button-evening.csv'), billingPeriodStart: '2025-12-01' }).expect(400);
+    const b = await app
+      .request()
+      .post(`/api/depots/${depotId}/meter-data`)
+      .set(as(fin))
+      .send({ fileName: 'x.csv', content: fixture('green-button-evening.csv'), billingPeriodStart: '2025-12-01' })
+      .expect(400);
     expect(b.body.error.message).toMatch(/No rate plan applies to Test depot on 2025-12-01/);
-    const c = await app.request().post(`/api/depots/${depotId}/meter-data`).set(as(fin)).send({ fileName: 'x.csv', content: fixture('green-button-evening.csv'), billingPeriodStart: '2026-12-05' }).expect(400);
+    const c = await app
+      .request()
+      .post(`/api/depots/${depotId}/meter-data`)
+      .set(as(fin))
+      .send({ fileName: 'x.csv', content: fixture('green-button-evening.csv'), billingPeriodStart: '2026-12-05' })
+      .expect(400);
     expect(c.body.error.fields.billingPeriodStart).toMatch(/2026-12-01/);
     expect((await app.db.select().from(meterIntervals).where(eq(meterIntervals.depotId, depotId))).length).toBe(before);
   });
 
   it('roles and isolation', async () => {
-    await app.request().get(`/api/depots/${depotId}/costs/month`).query({ date: '2026-12-10' }).set(as(yard)).expect(403);
-    await app.request().post(`/api/depots/${depotId}/meter-data`).set(as(sup)).send({ fileName: 'x', content: 'x', billingPeriodStart: '2026-12-01' }).expect(403);
+    await app
+      .request()
+      .get(`/api/depots/${depotId}/costs/month`)
+      .query({ date: '2026-12-10' })
+      .set(as(yard))
+      .expect(403);
+    await app
+      .request()
+      .post(`/api/depots/${depotId}/meter-data`)
+      .set(as(sup))
+      .send({ fileName: 'x', content: 'x', billingPeriodStart: '2026-12-01' })
+      .expect(403);
     const outsider = (await createOrganisation(app, { f: ['finance'] })).users.f!;
-    await app.request().get(`/api/depots/${depotId}/costs/month`).query({ date: '2026-12-10' }).set(as(outsider)).expect(404);
+    await app
+      .request()
+      .get(`/api/depots/${depotId}/costs/month`)
+      .query({ date: '2026-12-10' })
+      .set(as(outsider))
+      .expect(404);
     await app.request().get(`/api/plans/${planId}/costs`).set(as(outsider)).expect(404);
   });
 });

@@ -8,7 +8,10 @@ const fixture = (name: string) => readFileSync(new URL(`./fixtures/${name}`, imp
 const ZONE = 'America/Chicago';
 /** The readings' night is over: the files were exported the next afternoon. */
 const AFTER = DateTime.fromISO('2026-12-03T15:00', { zone: ZONE }).toMillis();
-const period = [DateTime.fromISO('2026-12-01', { zone: ZONE }).toMillis(), DateTime.fromISO('2027-01-01', { zone: ZONE }).toMillis()] as const;
+const period = [
+  DateTime.fromISO('2026-12-01', { zone: ZONE }).toMillis(),
+  DateTime.fromISO('2027-01-01', { zone: ZONE }).toMillis(),
+] as const;
 
 function fields(fn: () => unknown): Record<string, string> {
   try {
@@ -35,12 +38,27 @@ describe('Green Button XML (ESPI)', () => {
     const checked = checkIntervals(file, ...period, ZONE, AFTER);
     expect(checked.duplicates).toBe(1);
     expect(checked.intervals).toHaveLength(23);
-    expect(checked.gaps.map((g) => [DateTime.fromMillis(g.fromMs, { zone: ZONE }).toFormat('HH:mm'), DateTime.fromMillis(g.toMs, { zone: ZONE }).toFormat('HH:mm')])).toEqual([['02:15', '02:30']]);
+    expect(
+      checked.gaps.map((g) => [
+        DateTime.fromMillis(g.fromMs, { zone: ZONE }).toFormat('HH:mm'),
+        DateTime.fromMillis(g.toMs, { zone: ZONE }).toFormat('HH:mm'),
+      ]),
+    ).toEqual([['02:15', '02:30']]);
   });
 
   it('refuses an unknown unit, a reading without a value, and two ReadingTypes', () => {
-    expect(fields(() => parseGreenButtonXml(fixture('green-button-night.xml').replace('<espi:uom>72</espi:uom>', '<espi:uom>38</espi:uom>')))['ReadingType.uom']).toBe('Unsupported unit 38');
-    expect(fields(() => parseGreenButtonXml(fixture('green-button-night.xml').replace('<value>120</value>', '<value>12.5</value>')))['IntervalReading[1].value']).toMatch(/not an integer/);
+    expect(
+      fields(() =>
+        parseGreenButtonXml(
+          fixture('green-button-night.xml').replace('<espi:uom>72</espi:uom>', '<espi:uom>38</espi:uom>'),
+        ),
+      )['ReadingType.uom'],
+    ).toBe('Unsupported unit 38');
+    expect(
+      fields(() =>
+        parseGreenButtonXml(fixture('green-button-night.xml').replace('<value>120</value>', '<value>12.5</value>')),
+      )['IntervalReading[1].value'],
+    ).toMatch(/not an integer/);
     expect(fields(() => parseGreenButtonXml('<feed><IntervalBlock/></feed>')).ReadingType).toBe('Missing');
     expect(fields(() => parseGreenButtonXml('not xml at all')).message).toMatch(/IntervalBlock|XML/);
   });
@@ -50,16 +68,29 @@ describe('Green Button CSV', () => {
   it('reads past the metadata lines; END TIME 22:14 closes a 15-minute interval', () => {
     const file = parseGreenButtonCsv(fixture('green-button-evening.csv'), ZONE);
     expect(file.intervals).toHaveLength(8);
-    expect(file.intervals[0]).toEqual({ startMs: DateTime.fromISO('2026-12-02T22:00', { zone: ZONE }).toMillis(), minutes: 15, kwh: 7.5 });
+    expect(file.intervals[0]).toEqual({
+      startMs: DateTime.fromISO('2026-12-02T22:00', { zone: ZONE }).toMillis(),
+      minutes: 15,
+      kwh: 7.5,
+    });
   });
 
   it('refuses mixed interval lengths, unknown units and readings outside the period', () => {
     const text = fixture('green-button-evening.csv');
     const mixed = parseGreenButtonCsv(text.replace('22:15,22:29', '22:15,22:59'), ZONE);
-    expect(fields(() => checkIntervals(mixed, ...period, ZONE, AFTER)).message).toMatch(/mixes interval lengths \(15, 45 minutes\)/);
-    expect(fields(() => parseGreenButtonCsv(text.replace('7.50,kWh', '7.50,therms'), ZONE))['line 7.UNITS']).toMatch(/"therms" is not supported/);
-    const november = [DateTime.fromISO('2026-11-01', { zone: ZONE }).toMillis(), DateTime.fromISO('2026-12-01', { zone: ZONE }).toMillis()] as const;
-    expect(fields(() => checkIntervals(parseGreenButtonCsv(text, ZONE), ...november, ZONE, AFTER)).message).toMatch(/8 readings lie outside the billing period/);
+    expect(fields(() => checkIntervals(mixed, ...period, ZONE, AFTER)).message).toMatch(
+      /mixes interval lengths \(15, 45 minutes\)/,
+    );
+    expect(fields(() => parseGreenButtonCsv(text.replace('7.50,kWh', '7.50,therms'), ZONE))['line 7.UNITS']).toMatch(
+      /"therms" is not supported/,
+    );
+    const november = [
+      DateTime.fromISO('2026-11-01', { zone: ZONE }).toMillis(),
+      DateTime.fromISO('2026-12-01', { zone: ZONE }).toMillis(),
+    ] as const;
+    expect(fields(() => checkIntervals(parseGreenButtonCsv(text, ZONE), ...november, ZONE, AFTER)).message).toMatch(
+      /8 readings lie outside the billing period/,
+    );
   });
 
   it('refuses readings of intervals that have not ended yet, naming one', () => {
@@ -67,7 +98,9 @@ describe('Green Button CSV', () => {
     const file = parseGreenButtonCsv(fixture('green-button-evening.csv'), ZONE);
     const at2210 = DateTime.fromISO('2026-12-02T22:10', { zone: ZONE }).toMillis();
     const err = fields(() => checkIntervals(file, ...period, ZONE, at2210));
-    expect(err.message).toMatch(/8 readings end after now \(2026-12-02 22:10\), e.g. the interval from 2026-12-02 22:00/);
+    expect(err.message).toMatch(
+      /8 readings end after now \(2026-12-02 22:10\), e.g. the interval from 2026-12-02 22:00/,
+    );
     expect(err.intervals).toBe('Readings in the future');
     const at2400 = DateTime.fromISO('2026-12-03T00:00', { zone: ZONE }).toMillis();
     expect(checkIntervals(file, ...period, ZONE, at2400).intervals).toHaveLength(8);
@@ -75,6 +108,8 @@ describe('Green Button CSV', () => {
 
   it('refuses the same interval twice with two different readings', () => {
     const text = fixture('green-button-evening.csv') + 'Electric usage,2026-12-02,22:00,22:14,9.00,kWh,$0.61,\n';
-    expect(fields(() => checkIntervals(parseGreenButtonCsv(text, ZONE), ...period, ZONE, AFTER))['2026-12-02 22:00']).toMatch(/Two different readings/);
+    expect(
+      fields(() => checkIntervals(parseGreenButtonCsv(text, ZONE), ...period, ZONE, AFTER))['2026-12-02 22:00'],
+    ).toMatch(/Two different readings/);
   });
 });

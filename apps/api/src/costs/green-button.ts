@@ -31,14 +31,17 @@ export function energyProblem(kwh: number, minutes: number): string | null {
   if (!Number.isFinite(kwh)) return 'The energy is not a finite number';
   if (kwh < 0) return `${kwh} kWh is negative: import the energy drawn from the grid`;
   const kw = (kwh * 60) / minutes;
-  if (kw > MAX_KW) return `${kwh} kWh in ${minutes} minutes is ${Math.round(kw).toLocaleString('en-US')} kW on average, above ${MAX_KW.toLocaleString('en-US')} kW: check the unit and multiplier`;
+  if (kw > MAX_KW)
+    return `${kwh} kWh in ${minutes} minutes is ${Math.round(kw).toLocaleString('en-US')} kW on average, above ${MAX_KW.toLocaleString('en-US')} kW: check the unit and multiplier`;
   return null;
 }
 
 /** Why an interval's start and length cannot be right, or null. */
 function timeProblem(startMs: number, minutes: number): string | null {
-  if (!Number.isFinite(startMs) || startMs < FIRST_MS || startMs >= END_MS) return `The start must lie in the years ${FIRST_YEAR} to ${LAST_YEAR}`;
-  if (!Number.isFinite(minutes) || minutes <= 0 || minutes > 1440) return 'The length must be above 0 and at most one day';
+  if (!Number.isFinite(startMs) || startMs < FIRST_MS || startMs >= END_MS)
+    return `The start must lie in the years ${FIRST_YEAR} to ${LAST_YEAR}`;
+  if (!Number.isFinite(minutes) || minutes <= 0 || minutes > 1440)
+    return 'The length must be above 0 and at most one day';
   return null;
 }
 
@@ -60,7 +63,10 @@ export function parseGreenButtonXml(text: string): MeterFile {
   } catch (e) {
     fail('The file is not readable XML', { file: (e as Error).message });
   }
-  const found: { readingTypes: Record<string, string>[]; blocks: Record<string, unknown>[] } = { readingTypes: [], blocks: [] };
+  const found: { readingTypes: Record<string, string>[]; blocks: Record<string, unknown>[] } = {
+    readingTypes: [],
+    blocks: [],
+  };
   const walk = (node: unknown) => {
     if (!node || typeof node !== 'object') return;
     for (const [key, value] of Object.entries(node as Record<string, unknown>)) {
@@ -70,15 +76,25 @@ export function parseGreenButtonXml(text: string): MeterFile {
     }
   };
   walk(doc);
-  if (!found.blocks.length) fail('No IntervalBlock in the file: is it a Green Button usage export?', { IntervalBlock: 'Missing' });
+  if (!found.blocks.length)
+    fail('No IntervalBlock in the file: is it a Green Button usage export?', { IntervalBlock: 'Missing' });
   if (found.readingTypes.length !== 1) {
-    fail(found.readingTypes.length ? 'The file has several ReadingTypes: export one meter reading at a time' : 'The file has no ReadingType, so its unit is unknown', { ReadingType: found.readingTypes.length ? 'More than one' : 'Missing' });
+    fail(
+      found.readingTypes.length
+        ? 'The file has several ReadingTypes: export one meter reading at a time'
+        : 'The file has no ReadingType, so its unit is unknown',
+      { ReadingType: found.readingTypes.length ? 'More than one' : 'Missing' },
+    );
   }
   const rt = found.readingTypes[0]!;
   const uom = Number(rt.uom);
   const power = Number(rt.powerOfTenMultiplier ?? 0);
-  if (uom !== UOM_WH) fail(`Unit ${rt.uom} is not supported: the readings must be energy in Wh (uom 72)`, { 'ReadingType.uom': `Unsupported unit ${rt.uom}` });
-  if (!Number.isInteger(power)) fail('powerOfTenMultiplier must be a whole number', { 'ReadingType.powerOfTenMultiplier': 'Not an integer' });
+  if (uom !== UOM_WH)
+    fail(`Unit ${rt.uom} is not supported: the readings must be energy in Wh (uom 72)`, {
+      'ReadingType.uom': `Unsupported unit ${rt.uom}`,
+    });
+  if (!Number.isInteger(power))
+    fail('powerOfTenMultiplier must be a whole number', { 'ReadingType.powerOfTenMultiplier': 'Not an integer' });
   if (Math.abs(power) > MAX_POWER_OF_TEN) {
     fail(`powerOfTenMultiplier ${power} is out of range: ESPI uses -${MAX_POWER_OF_TEN} to ${MAX_POWER_OF_TEN}`, {
       'ReadingType.powerOfTenMultiplier': `Use -${MAX_POWER_OF_TEN} to ${MAX_POWER_OF_TEN}`,
@@ -96,13 +112,15 @@ export function parseGreenButtonXml(text: string): MeterFile {
       const start = Number(period?.start);
       const duration = Number(period?.duration);
       if (!Number.isInteger(value)) fields[`IntervalReading[${n}].value`] = `"${reading.value}" is not an integer`;
-      else if (!Number.isFinite(start) || !Number.isFinite(duration) || duration <= 0) fields[`IntervalReading[${n}].timePeriod`] = 'Needs start and duration in seconds';
+      else if (!Number.isFinite(start) || !Number.isFinite(duration) || duration <= 0)
+        fields[`IntervalReading[${n}].timePeriod`] = 'Needs start and duration in seconds';
       else {
         const interval = { startMs: start * 1000, minutes: duration / 60, kwh: value * scale };
         const when = timeProblem(interval.startMs, interval.minutes);
         const energy = when ? null : energyProblem(interval.kwh, interval.minutes);
         if (when) fields[`IntervalReading[${n}].timePeriod`] = when;
-        else if (energy) fields[`IntervalReading[${n}].value`] = `${new Date(interval.startMs).toISOString()}: ${energy}`;
+        else if (energy)
+          fields[`IntervalReading[${n}].value`] = `${new Date(interval.startMs).toISOString()}: ${energy}`;
         else intervals.push(interval);
       }
     }
@@ -119,18 +137,27 @@ export function parseGreenButtonCsv(text: string, zone: string): MeterFile {
   let rows: string[][];
   let lineOf: number[];
   try {
-    const parsed = parseCsv(text.replace(/^\uFEFF/, ''), { relax_column_count: true, skip_empty_lines: true, trim: true, info: true }) as unknown as { record: string[]; info: { lines: number } }[];
+    const parsed = parseCsv(text.replace(/^\uFEFF/, ''), {
+      relax_column_count: true,
+      skip_empty_lines: true,
+      trim: true,
+      info: true,
+    }) as unknown as { record: string[]; info: { lines: number } }[];
     rows = parsed.map((p) => p.record);
     lineOf = parsed.map((p) => p.info.lines);
   } catch (e) {
     fail('The file is not readable CSV', { file: (e as Error).message });
   }
-  const headerAt = rows.findIndex((r) => r.map((c) => c.toUpperCase()).includes('START TIME') && r.map((c) => c.toUpperCase()).includes('USAGE'));
-  if (headerAt < 0) fail('No header line with DATE, START TIME, END TIME, USAGE and UNITS was found', { header: 'Missing' });
+  const headerAt = rows.findIndex(
+    (r) => r.map((c) => c.toUpperCase()).includes('START TIME') && r.map((c) => c.toUpperCase()).includes('USAGE'),
+  );
+  if (headerAt < 0)
+    fail('No header line with DATE, START TIME, END TIME, USAGE and UNITS was found', { header: 'Missing' });
   const header = rows[headerAt]!.map((c) => c.toUpperCase());
   const col = (name: string) => header.indexOf(name);
   for (const need of ['DATE', 'START TIME', 'END TIME', 'USAGE', 'UNITS']) {
-    if (col(need) < 0) fail(`The header has no ${need} column`, { [`line ${lineOf[headerAt]}`]: `Column ${need} is missing` });
+    if (col(need) < 0)
+      fail(`The header has no ${need} column`, { [`line ${lineOf[headerAt]}`]: `Column ${need} is missing` });
   }
   const intervals: MeterInterval[] = [];
   const fields: Record<string, string> = {};
@@ -182,23 +209,38 @@ export interface IntervalCheck {
 }
 
 /** Uniform length, inside the billing period, none ending after now, duplicates merged (same value) or refused. */
-export function checkIntervals(file: MeterFile, periodStartMs: number, periodEndMs: number, zone: string, nowMs: number): IntervalCheck {
+export function checkIntervals(
+  file: MeterFile,
+  periodStartMs: number,
+  periodEndMs: number,
+  zone: string,
+  nowMs: number,
+): IntervalCheck {
   const lengths = [...new Set(file.intervals.map((i) => i.minutes))];
   if (!file.intervals.length) fail('The file has no readings', { file: 'Empty' });
-  if (lengths.length > 1) fail(`The file mixes interval lengths (${lengths.join(', ')} minutes): export one length`, { intervals: 'Mixed lengths' });
+  if (lengths.length > 1)
+    fail(`The file mixes interval lengths (${lengths.join(', ')} minutes): export one length`, {
+      intervals: 'Mixed lengths',
+    });
   const minutes = lengths[0]!;
-  if (60 % minutes !== 0 && minutes !== 60) fail(`${minutes}-minute intervals are not supported`, { intervals: `${minutes} minutes` });
+  if (60 % minutes !== 0 && minutes !== 60)
+    fail(`${minutes}-minute intervals are not supported`, { intervals: `${minutes} minutes` });
   const local = (ms: number) => DateTime.fromMillis(ms, { zone }).toFormat('yyyy-MM-dd HH:mm');
   const outside = file.intervals.filter((i) => i.startMs < periodStartMs || i.startMs + minutes * 60_000 > periodEndMs);
   if (outside.length) {
-    fail(`${outside.length} readings lie outside the billing period ${local(periodStartMs)} to ${local(periodEndMs)}, e.g. ${local(outside[0]!.startMs)}`, { intervals: 'Outside the billing period' });
+    fail(
+      `${outside.length} readings lie outside the billing period ${local(periodStartMs)} to ${local(periodEndMs)}, e.g. ${local(outside[0]!.startMs)}`,
+      { intervals: 'Outside the billing period' },
+    );
   }
   // A meter cannot have read an interval that has not ended yet: the file is mislabelled (zone,
   // date) or not a meter's.
   const future = file.intervals.filter((i) => i.startMs + minutes * 60_000 > nowMs);
   if (future.length) {
-    fail(`${future.length} readings end after now (${local(nowMs)}), e.g. the interval from ${local(future[0]!.startMs)}: a meter only reads intervals that have passed; check the file's dates and time zone`,
-      { intervals: 'Readings in the future' });
+    fail(
+      `${future.length} readings end after now (${local(nowMs)}), e.g. the interval from ${local(future[0]!.startMs)}: a meter only reads intervals that have passed; check the file's dates and time zone`,
+      { intervals: 'Readings in the future' },
+    );
   }
   const byStart = new Map<number, MeterInterval>();
   let duplicates = 0;
@@ -207,10 +249,12 @@ export function checkIntervals(file: MeterFile, periodStartMs: number, periodEnd
     const seen = byStart.get(i.startMs);
     if (seen) {
       duplicates++;
-      if (Math.abs(seen.kwh - i.kwh) > 1e-9) fields[local(i.startMs)] = `Two different readings (${seen.kwh} and ${i.kwh} kWh)`;
+      if (Math.abs(seen.kwh - i.kwh) > 1e-9)
+        fields[local(i.startMs)] = `Two different readings (${seen.kwh} and ${i.kwh} kWh)`;
     } else byStart.set(i.startMs, i);
   }
-  if (Object.keys(fields).length) fail('Some intervals appear twice with different readings; nothing was imported', fields);
+  if (Object.keys(fields).length)
+    fail('Some intervals appear twice with different readings; nothing was imported', fields);
   const sorted = [...byStart.values()].sort((a, b) => a.startMs - b.startMs);
   const gaps: IntervalCheck['gaps'] = [];
   for (let k = 1; k < sorted.length; k++) {

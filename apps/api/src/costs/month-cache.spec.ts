@@ -35,16 +35,24 @@ beforeAll(async () => {
   ratePlanId = created.ratePlan.id;
   await addBuses(app.db, org.organisationId, depotId, NUMBERS);
   for (const date of ['2026-12-02', '2026-12-03', '2026-12-04']) {
-    await app.request().put(`/api/depots/${depotId}/service-days/${date}`).set(as(sup)).send({ forecastLowF: 30, runs: dayRuns(date, NUMBERS, () => 35) }).expect(200);
+    await app
+      .request()
+      .put(`/api/depots/${depotId}/service-days/${date}`)
+      .set(as(sup))
+      .send({ forecastLowF: 30, runs: dayRuns(date, NUMBERS, () => 35) })
+      .expect(200);
   }
   await publishedPlan(app, sup, depotId, '2026-12-02');
   clock = fixedClock(NOW);
   await signInAgain(app, fin, sup);
 });
 
-const month = async () => (await app.request().get(`/api/depots/${depotId}/costs/month`).query({ date: '2026-12-10' }).set(as(fin)).expect(200)).body;
+const month = async () =>
+  (await app.request().get(`/api/depots/${depotId}/costs/month`).query({ date: '2026-12-10' }).set(as(fin)).expect(200))
+    .body;
 /** The same month computed afresh, without any cache, at the app's instant. */
-const uncached = async (now = NOW) => JSON.parse(JSON.stringify(await monthCosts(app.db, caller, depotId, '2026-12-10', now, 7, null)));
+const uncached = async (now = NOW) =>
+  JSON.parse(JSON.stringify(await monthCosts(app.db, caller, depotId, '2026-12-10', now, 7, null)));
 
 describe('the costs month cache', () => {
   it('answers from the cache with exactly what a fresh computation gives', async () => {
@@ -57,7 +65,14 @@ describe('the costs month cache', () => {
     expect(first.nights).toHaveLength(1);
     // The answer kept as bytes is the answer of its own inputs only: another fuel economy asked for
     // in between gives its own figures, and asking as before gives the first answer again.
-    const other = (await app.request().get(`/api/depots/${depotId}/costs/month`).query({ date: '2026-12-10', dieselMpg: 5 }).set(as(fin)).expect(200)).body;
+    const other = (
+      await app
+        .request()
+        .get(`/api/depots/${depotId}/costs/month`)
+        .query({ date: '2026-12-10', dieselMpg: 5 })
+        .set(as(fin))
+        .expect(200)
+    ).body;
     expect(other.emissions.dieselMpg).toBe(5);
     expect(other.emissions.dieselGallonsAvoided).toBeGreaterThan(first.emissions.dieselGallonsAvoided);
     expect(await month()).toEqual(first);
@@ -65,8 +80,16 @@ describe('the costs month cache', () => {
 
   it('gives the fresh answer at every moment of the period, however the moments are asked for', async () => {
     const cache = newMonthCostsCache();
-    const moments = ['2026-11-30T12:00:00Z', '2026-12-01T06:00:00Z', '2026-12-01T06:00:00.001Z', '2026-12-02T23:59:00Z', '2026-12-03T00:14:59Z',
-      '2026-12-20T10:00:00Z', '2026-12-02T23:59:00Z', '2027-01-05T00:00:00Z'].map((t) => new Date(t));
+    const moments = [
+      '2026-11-30T12:00:00Z',
+      '2026-12-01T06:00:00Z',
+      '2026-12-01T06:00:00.001Z',
+      '2026-12-02T23:59:00Z',
+      '2026-12-03T00:14:59Z',
+      '2026-12-20T10:00:00Z',
+      '2026-12-02T23:59:00Z',
+      '2027-01-05T00:00:00Z',
+    ].map((t) => new Date(t));
     for (const now of moments) {
       const cached = JSON.parse(JSON.stringify(await monthCosts(app.db, caller, depotId, '2026-12-10', now, 7, cache)));
       expect(cached, now.toISOString()).toEqual(await uncached(now));
@@ -76,8 +99,12 @@ describe('the costs month cache', () => {
 
   it('changes as soon as meter data is imported', async () => {
     const before = await month();
-    await app.request().post(`/api/depots/${depotId}/meter-data`).set(as(fin))
-      .send({ fileName: 'night.xml', content: fixture('green-button-night.xml'), billingPeriodStart: '2026-12-01' }).expect(201);
+    await app
+      .request()
+      .post(`/api/depots/${depotId}/meter-data`)
+      .set(as(fin))
+      .send({ fileName: 'night.xml', content: fixture('green-button-night.xml'), billingPeriodStart: '2026-12-01' })
+      .expect(201);
     const after = await month();
     expect(before.sources.actualIntervals).toBe(0);
     expect(after.sources.actualIntervals).toBe(23);
@@ -100,20 +127,26 @@ describe('the costs month cache', () => {
     expect(after).toEqual(await uncached());
   });
 
-  it('changes when the rate plan\'s prices are edited', async () => {
+  it("changes when the rate plan's prices are edited", async () => {
     const before = await month();
     const [plan] = await app.db.select().from(ratePlans).where(eq(ratePlans.id, ratePlanId));
     const definition = plan!.definition;
-    const dearer = { ...definition, seasons: definition.seasons.map((season) => ({ ...season, offPeakPrice: season.offPeakPrice * 2 })) };
+    const dearer = {
+      ...definition,
+      seasons: definition.seasons.map((season) => ({ ...season, offPeakPrice: season.offPeakPrice * 2 })),
+    };
     await app.db.update(ratePlans).set({ definition: dearer }).where(eq(ratePlans.id, ratePlanId));
     const after = await month();
     expect(after.projected.energyTotal).toBeGreaterThan(before.projected.energyTotal);
     expect(after).toEqual(await uncached());
   });
 
-  it('changes when the depot\'s building load changes', async () => {
+  it("changes when the depot's building load changes", async () => {
     const before = await month();
-    await app.db.update(depots).set({ otherLoadKw: [35] }).where(eq(depots.id, depotId));
+    await app.db
+      .update(depots)
+      .set({ otherLoadKw: [35] })
+      .where(eq(depots.id, depotId));
     const after = await month();
     expect(after.projected.total).toBeGreaterThan(before.projected.total);
     expect(after).toEqual(await uncached());

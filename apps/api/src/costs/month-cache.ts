@@ -76,20 +76,21 @@ const inputsVersion = sql<string>`concat_ws('|',
  * on every load; each extra query is a round trip and a write to the database's socket.
  * A named statement: PostgreSQL plans it once per connection.
  */
-const monthInputsQuery = (db: Db, name: string) => db
-  .select({
-    depot: getTableColumns(depots),
-    version: inputsVersion,
-    serviceDays: sql<string[]>`coalesce((select array_agg(distinct r.service_date::text) from runs r
+const monthInputsQuery = (db: Db, name: string) =>
+  db
+    .select({
+      depot: getTableColumns(depots),
+      version: inputsVersion,
+      serviceDays: sql<string[]>`coalesce((select array_agg(distinct r.service_date::text) from runs r
       where r.depot_id = ${depotIdColumn} and r.service_date >= ${p('periodStart')} and r.service_date < ${p('periodEnd')}), '{}'::text[])`,
-    miles: sql<number>`(select coalesce(sum(coalesce(r.miles, coalesce(r.kwh, 0) / b.kwh_per_mile)), 0) from runs r
+      miles: sql<number>`(select coalesce(sum(coalesce(r.miles, coalesce(r.kwh, 0) / b.kwh_per_mile)), 0) from runs r
       join buses b on b.id = r.bus_id
       where r.depot_id = ${depotIdColumn} and r.service_date >= ${p('periodStart')} and r.service_date < ${p('periodEnd')}
         and r.pull_in <= ${p('now')})`.mapWith(Number),
-  })
-  .from(depots)
-  .where(and(eq(depots.id, p('depotId')), eq(depots.organisationId, p('organisationId'))))
-  .prepare(name);
+    })
+    .from(depots)
+    .where(and(eq(depots.id, p('depotId')), eq(depots.organisationId, p('organisationId'))))
+    .prepare(name);
 
 export interface MonthInputsWindow {
   /** Four days before the period: a night that began then may still fall in it. */
@@ -104,8 +105,14 @@ export interface MonthInputsWindow {
 /** The caller's depot with the period's inputs, or null when the depot is not theirs. */
 export async function monthInputs(db: Db, organisationId: string, depotId: string, window: MonthInputsWindow) {
   const [row] = await prepared(db, 'month_costs_inputs', monthInputsQuery).execute({
-    depotId, organisationId, plansFrom: window.plansFrom, periodStart: window.periodStart, periodEnd: window.periodEnd,
-    fromAt: window.fromAt.toISOString(), toAt: window.toAt.toISOString(), now: window.now.toISOString(),
+    depotId,
+    organisationId,
+    plansFrom: window.plansFrom,
+    periodStart: window.periodStart,
+    periodEnd: window.periodEnd,
+    fromAt: window.fromAt.toISOString(),
+    toAt: window.toAt.toISOString(),
+    now: window.now.toISOString(),
   });
   if (!row) return null;
   const { depot } = row;

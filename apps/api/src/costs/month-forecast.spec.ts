@@ -24,20 +24,38 @@ beforeAll(async () => {
   depotId = (await createDepot(app.db, org.organisationId)).depot.id;
   await addBuses(app.db, org.organisationId, depotId, NUMBERS);
   for (const date of WEEK) {
-    await app.request().put(`/api/depots/${depotId}/service-days/${date}`).set(as(sup)).send({ forecastLowF: 40, runs: dayRuns(date, NUMBERS) }).expect(200);
+    await app
+      .request()
+      .put(`/api/depots/${depotId}/service-days/${date}`)
+      .set(as(sup))
+      .send({ forecastLowF: 40, runs: dayRuns(date, NUMBERS) })
+      .expect(200);
   }
   for (const date of ['2026-12-07', '2026-12-08']) await publishedPlan(app, sup, depotId, date);
 });
 
 describe('the month forecast', () => {
   it('forecasts the nights without a published plan, from their runs or the same weekday, and gives the bill a range', async () => {
-    const m = (await app.request().get(`/api/depots/${depotId}/costs/month`).query({ date: '2026-12-01' }).set(as(fin)).expect(200)).body;
-    const byDate = new Map<string, { needKwh: number; basis: string }>(m.forecast.map((n: { date: string }) => [n.date, n]));
+    const m = (
+      await app
+        .request()
+        .get(`/api/depots/${depotId}/costs/month`)
+        .query({ date: '2026-12-01' })
+        .set(as(fin))
+        .expect(200)
+    ).body;
+    const byDate = new Map<string, { needKwh: number; basis: string }>(
+      m.forecast.map((n: { date: string }) => [n.date, n]),
+    );
     // Published nights are the plans' own, never forecast.
     expect(byDate.has('2026-12-07')).toBe(false);
     expect(byDate.has('2026-12-08')).toBe(false);
     // Wednesday's night puts back Thursday's runs, both entered.
-    expect(byDate.get('2026-12-09')).toEqual({ date: '2026-12-09', needKwh: expect.closeTo(DAY_KWH, 6), basis: 'runs' });
+    expect(byDate.get('2026-12-09')).toEqual({
+      date: '2026-12-09',
+      needKwh: expect.closeTo(DAY_KWH, 6),
+      basis: 'runs',
+    });
     // Friday's night runs to Monday 14th, not entered: the Monday before stands in for it.
     expect(byDate.get('2026-12-11')).toMatchObject({ needKwh: expect.closeTo(DAY_KWH, 6), basis: 'typical-weekday' });
     // The following weeks' weekdays take the entered week's; weekends have no night of their own.
@@ -52,8 +70,15 @@ describe('the month forecast', () => {
     expect([m.projectedRange.low, m.projectedRange.high]).toContain(m.projected.total);
   });
 
-  it('counts the forecast nights\' charging in the projected bill: more kWh than the plans and the building alone', async () => {
-    const m = (await app.request().get(`/api/depots/${depotId}/costs/month`).query({ date: '2026-12-01' }).set(as(fin)).expect(200)).body;
+  it("counts the forecast nights' charging in the projected bill: more kWh than the plans and the building alone", async () => {
+    const m = (
+      await app
+        .request()
+        .get(`/api/depots/${depotId}/costs/month`)
+        .query({ date: '2026-12-01' })
+        .set(as(fin))
+        .expect(200)
+    ).body;
     const forecastKwh = m.forecast.reduce((a: number, n: { needKwh: number }) => a + n.needKwh, 0);
     // Whatever the building draws, the bill's kWh hold at least the forecast nights' grid energy.
     expect(m.projected.kwh).toBeGreaterThan(forecastKwh);

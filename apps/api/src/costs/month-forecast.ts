@@ -37,7 +37,14 @@ export interface ForecastNight {
 /** Each entered service day around the period, with its energy from kWh or miles x the bus's kWh per mile. */
 async function serviceDaysAround(db: Db, depotId: string, from: string, to: string): Promise<ServiceDay[]> {
   const rows = await db
-    .select({ date: runs.serviceDate, pullOut: runs.pullOut, pullIn: runs.pullIn, miles: runs.miles, kwh: runs.kwh, perMile: buses.kwhPerMile })
+    .select({
+      date: runs.serviceDate,
+      pullOut: runs.pullOut,
+      pullIn: runs.pullIn,
+      miles: runs.miles,
+      kwh: runs.kwh,
+      perMile: buses.kwhPerMile,
+    })
     .from(runs)
     .innerJoin(buses, eq(buses.id, runs.busId))
     .where(and(eq(runs.depotId, depotId), gte(runs.serviceDate, from), lt(runs.serviceDate, to)))
@@ -71,7 +78,12 @@ export async function forecastNights(
   planned: Set<string>,
 ): Promise<ForecastNight[]> {
   const zone = depot.timezone;
-  const entered = await serviceDaysAround(db, depot.id, period.start.minus({ days: 28 }).toISODate()!, period.end.plus({ days: 7 }).toISODate()!);
+  const entered = await serviceDaysAround(
+    db,
+    depot.id,
+    period.start.minus({ days: 28 }).toISODate()!,
+    period.end.plus({ days: 7 }).toISODate()!,
+  );
   const byDate = new Map(entered.map((d) => [d.date, d]));
   // A weekday past the last one entered: the latest entered day of its weekday, moved to it. (A
   // day without runs between entered days is a day without service: a holiday, a break.)
@@ -81,10 +93,20 @@ export async function forecastNights(
     if (known) return { day: known, basis: 'runs' };
     const local = DateTime.fromISO(date, { zone });
     if (date <= lastEntered || local.weekday > 5) return null;
-    const like = entered.filter((d) => d.date < date && DateTime.fromISO(d.date, { zone }).weekday === local.weekday).at(-1);
+    const like = entered
+      .filter((d) => d.date < date && DateTime.fromISO(d.date, { zone }).weekday === local.weekday)
+      .at(-1);
     if (!like) return null;
     const shift = local.diff(DateTime.fromISO(like.date, { zone }), 'days').days * 86_400_000;
-    return { day: { date, lastPullInMs: like.lastPullInMs + shift, firstPullOutMs: like.firstPullOutMs + shift, kwh: like.kwh }, basis: 'typical-weekday' };
+    return {
+      day: {
+        date,
+        lastPullInMs: like.lastPullInMs + shift,
+        firstPullOutMs: like.firstPullOutMs + shift,
+        kwh: like.kwh,
+      },
+      basis: 'typical-weekday',
+    };
   };
 
   const nights: ForecastNight[] = [];
@@ -102,12 +124,19 @@ export async function forecastNights(
     if (to <= from) continue;
     const slots: { t: number; price: number; roomKw: number }[] = [];
     for (let t = from; t < to; t += SLOT_MS) {
-      slots.push({ t, price: ratePlanPeriodAt(rate, DateTime.fromMillis(t, { zone })).price, roomKw: Math.max(0, depot.serviceLimitKw - buildingKwAt(depot.otherLoadKw, t, zone)) });
+      slots.push({
+        t,
+        price: ratePlanPeriodAt(rate, DateTime.fromMillis(t, { zone })).price,
+        roomKw: Math.max(0, depot.serviceLimitKw - buildingKwAt(depot.otherLoadKw, t, zone)),
+      });
     }
     const gridKwh = next.day.kwh / CHARGER_EFFICIENCY;
     nights.push({
-      date, needKwh: next.day.kwh, basis: next.basis === 'runs' && tonight.basis === 'runs' ? 'runs' : 'typical-weekday',
-      cheapest: fillCheapest(slots, gridKwh), even: fillEvenly(slots, gridKwh),
+      date,
+      needKwh: next.day.kwh,
+      basis: next.basis === 'runs' && tonight.basis === 'runs' ? 'runs' : 'typical-weekday',
+      cheapest: fillCheapest(slots, gridKwh),
+      even: fillEvenly(slots, gridKwh),
     });
   }
   return nights;
@@ -137,7 +166,10 @@ function fillEvenly(slots: { t: number; price: number; roomKw: number }[], gridK
     left -= take / 4;
   }
   if (left > 1e-9) {
-    const rest = fillCheapest(slots.map((s) => ({ ...s, roomKw: s.roomKw - kw.get(s.t)! })), left);
+    const rest = fillCheapest(
+      slots.map((s) => ({ ...s, roomKw: s.roomKw - kw.get(s.t)! })),
+      left,
+    );
     for (const [t, extra] of rest) kw.set(t, kw.get(t)! + extra);
   }
   return kw;

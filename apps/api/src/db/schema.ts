@@ -1,17 +1,39 @@
 import { sql } from 'drizzle-orm';
 import {
-  boolean, date, doublePrecision, index, integer, jsonb, pgEnum, pgTable, primaryKey, text, timestamp,
-  uniqueIndex, uuid,
+  boolean,
+  date,
+  doublePrecision,
+  index,
+  integer,
+  jsonb,
+  pgEnum,
+  pgTable,
+  primaryKey,
+  text,
+  timestamp,
+  uniqueIndex,
+  uuid,
 } from 'drizzle-orm/pg-core';
 import type {
-  ColdWeatherTable, MeterImportResult, PeaksSoFar, PlanResult, RatePlanDefinition, Role, StoredYardCrew,
+  ColdWeatherTable,
+  MeterImportResult,
+  PeaksSoFar,
+  PlanResult,
+  RatePlanDefinition,
+  Role,
+  StoredYardCrew,
 } from '@nightyard/contracts';
 import type { ScenarioInput } from '@nightyard/scheduling';
 
-const id = () => uuid('id').primaryKey().default(sql`gen_random_uuid()`);
+const id = () =>
+  uuid('id')
+    .primaryKey()
+    .default(sql`gen_random_uuid()`);
 const createdAt = () => timestamp('created_at', { withTimezone: true }).notNull().defaultNow();
 const orgRef = () =>
-  uuid('organisation_id').notNull().references(() => organisations.id, { onDelete: 'cascade' });
+  uuid('organisation_id')
+    .notNull()
+    .references(() => organisations.id, { onDelete: 'cascade' });
 
 export const organisations = pgTable('organisations', {
   id: id(),
@@ -42,7 +64,9 @@ export const refreshTokens = pgTable(
   'refresh_tokens',
   {
     id: id(),
-    userId: uuid('user_id').notNull().references(() => users.id, { onDelete: 'cascade' }),
+    userId: uuid('user_id')
+      .notNull()
+      .references(() => users.id, { onDelete: 'cascade' }),
     familyId: uuid('family_id').notNull(),
     tokenHash: text('token_hash').notNull(),
     expiresAt: timestamp('expires_at', { withTimezone: true }).notNull(),
@@ -60,7 +84,9 @@ export const actionTokens = pgTable(
   'action_tokens',
   {
     id: id(),
-    userId: uuid('user_id').notNull().references(() => users.id, { onDelete: 'cascade' }),
+    userId: uuid('user_id')
+      .notNull()
+      .references(() => users.id, { onDelete: 'cascade' }),
     purpose: actionTokenPurpose('purpose').notNull(),
     tokenHash: text('token_hash').notNull(),
     expiresAt: timestamp('expires_at', { withTimezone: true }).notNull(),
@@ -91,7 +117,10 @@ export const passwordResetRequests = pgTable(
     ip: text('ip').notNull(),
     at: createdAt(),
   },
-  (t) => [index('password_reset_requests_email_idx').on(t.email, t.at), index('password_reset_requests_ip_idx').on(t.ip, t.at)],
+  (t) => [
+    index('password_reset_requests_email_idx').on(t.email, t.at),
+    index('password_reset_requests_ip_idx').on(t.ip, t.at),
+  ],
 );
 
 export const depots = pgTable(
@@ -105,8 +134,14 @@ export const depots = pgTable(
     /** 24 values, kW by local hour; a flat load repeats one value. */
     otherLoadKw: jsonb('other_load_kw').$type<number[]>().notNull(),
     billingStartDay: integer('billing_start_day').notNull().default(1),
-    coldWeatherFactors: jsonb('cold_weather_factors').$type<ColdWeatherTable>().notNull()
-      .default([{ belowF: 50, factor: 1.1 }, { belowF: 32, factor: 1.25 }, { belowF: 14, factor: 1.4 }]),
+    coldWeatherFactors: jsonb('cold_weather_factors')
+      .$type<ColdWeatherTable>()
+      .notNull()
+      .default([
+        { belowF: 50, factor: 1.1 },
+        { belowF: 32, factor: 1.25 },
+        { belowF: 14, factor: 1.4 },
+      ]),
     /** The yard crew plans keep to (rows written before the cost tolerance lack it); null: not set. */
     yardCrew: jsonb('yard_crew').$type<StoredYardCrew>(),
     createdAt: createdAt(),
@@ -117,7 +152,9 @@ export const depots = pgTable(
 export const powerCabinets = pgTable('power_cabinets', {
   id: id(),
   organisationId: orgRef(),
-  depotId: uuid('depot_id').notNull().references(() => depots.id, { onDelete: 'cascade' }),
+  depotId: uuid('depot_id')
+    .notNull()
+    .references(() => depots.id, { onDelete: 'cascade' }),
   label: text('label').notNull(),
   limitKw: doublePrecision('limit_kw').notNull(),
   createdAt: createdAt(),
@@ -130,7 +167,9 @@ export const chargers = pgTable(
   {
     id: id(),
     organisationId: orgRef(),
-    depotId: uuid('depot_id').notNull().references(() => depots.id, { onDelete: 'cascade' }),
+    depotId: uuid('depot_id')
+      .notNull()
+      .references(() => depots.id, { onDelete: 'cascade' }),
     cabinetId: uuid('cabinet_id').references(() => powerCabinets.id, { onDelete: 'set null' }),
     label: text('label').notNull(),
     maxKw: doublePrecision('max_kw').notNull(),
@@ -156,7 +195,10 @@ export const chargers = pgTable(
     liveConnected: boolean('live_connected').notNull().default(false),
     createdAt: createdAt(),
   },
-  (t) => [uniqueIndex('chargers_depot_label_key').on(t.depotId, t.label), uniqueIndex('chargers_ocpp_identity_key').on(t.ocppIdentity)],
+  (t) => [
+    uniqueIndex('chargers_depot_label_key').on(t.depotId, t.label),
+    uniqueIndex('chargers_ocpp_identity_key').on(t.ocppIdentity),
+  ],
 );
 
 export const busStatus = pgEnum('bus_status', ['active', 'out_of_service', 'retired']);
@@ -166,7 +208,9 @@ export const buses = pgTable(
   {
     id: id(),
     organisationId: orgRef(),
-    depotId: uuid('depot_id').notNull().references(() => depots.id, { onDelete: 'cascade' }),
+    depotId: uuid('depot_id')
+      .notNull()
+      .references(() => depots.id, { onDelete: 'cascade' }),
     number: text('number').notNull(),
     usableKwh: doublePrecision('usable_kwh').notNull(),
     maxChargeKw: doublePrecision('max_charge_kw').notNull(),
@@ -196,8 +240,12 @@ export const depotRatePlans = pgTable(
   {
     id: id(),
     organisationId: orgRef(),
-    depotId: uuid('depot_id').notNull().references(() => depots.id, { onDelete: 'cascade' }),
-    ratePlanId: uuid('rate_plan_id').notNull().references(() => ratePlans.id, { onDelete: 'restrict' }),
+    depotId: uuid('depot_id')
+      .notNull()
+      .references(() => depots.id, { onDelete: 'cascade' }),
+    ratePlanId: uuid('rate_plan_id')
+      .notNull()
+      .references(() => ratePlans.id, { onDelete: 'restrict' }),
     effectiveFrom: date('effective_from').notNull(),
   },
   (t) => [uniqueIndex('depot_rate_plans_key').on(t.depotId, t.effectiveFrom)],
@@ -211,7 +259,9 @@ export const serviceDays = pgTable(
   'service_days',
   {
     organisationId: orgRef(),
-    depotId: uuid('depot_id').notNull().references(() => depots.id, { onDelete: 'cascade' }),
+    depotId: uuid('depot_id')
+      .notNull()
+      .references(() => depots.id, { onDelete: 'cascade' }),
     serviceDate: date('service_date').notNull(),
     forecastLowF: doublePrecision('forecast_low_f'),
   },
@@ -224,8 +274,12 @@ export const runs = pgTable(
   {
     id: id(),
     organisationId: orgRef(),
-    depotId: uuid('depot_id').notNull().references(() => depots.id, { onDelete: 'cascade' }),
-    busId: uuid('bus_id').notNull().references(() => buses.id, { onDelete: 'cascade' }),
+    depotId: uuid('depot_id')
+      .notNull()
+      .references(() => depots.id, { onDelete: 'cascade' }),
+    busId: uuid('bus_id')
+      .notNull()
+      .references(() => buses.id, { onDelete: 'cascade' }),
     serviceDate: date('service_date').notNull(),
     pullOut: timestamp('pull_out', { withTimezone: true }).notNull(),
     pullIn: timestamp('pull_in', { withTimezone: true }).notNull(),
@@ -245,7 +299,9 @@ export const loadReductionWindows = pgTable(
   {
     id: id(),
     organisationId: orgRef(),
-    depotId: uuid('depot_id').notNull().references(() => depots.id, { onDelete: 'cascade' }),
+    depotId: uuid('depot_id')
+      .notNull()
+      .references(() => depots.id, { onDelete: 'cascade' }),
     startsAt: timestamp('starts_at', { withTimezone: true }).notNull(),
     endsAt: timestamp('ends_at', { withTimezone: true }).notNull(),
     limitKw: doublePrecision('limit_kw').notNull(),
@@ -256,7 +312,9 @@ export const loadReductionWindows = pgTable(
 
 /** The current billing period's highest 15-minute demands so far, facility and per period. */
 export const billingPeaks = pgTable('billing_peaks', {
-  depotId: uuid('depot_id').primaryKey().references(() => depots.id, { onDelete: 'cascade' }),
+  depotId: uuid('depot_id')
+    .primaryKey()
+    .references(() => depots.id, { onDelete: 'cascade' }),
   organisationId: orgRef(),
   billingPeriodStart: date('billing_period_start').notNull(),
   facilityKw: doublePrecision('facility_kw').notNull(),
@@ -278,7 +336,9 @@ export const plans = pgTable(
   {
     id: id(),
     organisationId: orgRef(),
-    depotId: uuid('depot_id').notNull().references(() => depots.id, { onDelete: 'cascade' }),
+    depotId: uuid('depot_id')
+      .notNull()
+      .references(() => depots.id, { onDelete: 'cascade' }),
     serviceDate: date('service_date').notNull(),
     version: integer('version').notNull(),
     kind: planKind('kind').notNull().default('generated'),
@@ -297,8 +357,12 @@ export const plans = pgTable(
      * plan made while its night was under way: where it starts and what it keeps (see PlanFrom).
      */
     replanState: jsonb('replan_state').$type<{
-      outOfService?: string[]; lateArrivals?: Record<string, string>; absent?: string[];
-      from?: string; previousPlanId?: string | null; plugged?: Record<string, string>;
+      outOfService?: string[];
+      lateArrivals?: Record<string, string>;
+      absent?: string[];
+      from?: string;
+      previousPlanId?: string | null;
+      plugged?: Record<string, string>;
     }>(),
     createdBy: uuid('created_by').references(() => users.id, { onDelete: 'set null' }),
     createdAt: createdAt(),
@@ -308,7 +372,9 @@ export const plans = pgTable(
   (t) => [
     uniqueIndex('plans_depot_date_version_key').on(t.depotId, t.serviceDate, t.version),
     // At most one published plan per depot and night: the database settles a publishing race.
-    uniqueIndex('plans_one_published_key').on(t.depotId, t.serviceDate).where(sql`${t.state} = 'published'`),
+    uniqueIndex('plans_one_published_key')
+      .on(t.depotId, t.serviceDate)
+      .where(sql`${t.state} = 'published'`),
   ],
 );
 
@@ -317,7 +383,9 @@ export const meterIntervals = pgTable(
   'meter_intervals',
   {
     organisationId: orgRef(),
-    depotId: uuid('depot_id').notNull().references(() => depots.id, { onDelete: 'cascade' }),
+    depotId: uuid('depot_id')
+      .notNull()
+      .references(() => depots.id, { onDelete: 'cascade' }),
     startsAt: timestamp('starts_at', { withTimezone: true }).notNull(),
     minutes: integer('minutes').notNull(),
     kwh: doublePrecision('kwh').notNull(),
@@ -329,7 +397,9 @@ export const meterIntervals = pgTable(
 export const meterImports = pgTable('meter_imports', {
   id: id(),
   organisationId: orgRef(),
-  depotId: uuid('depot_id').notNull().references(() => depots.id, { onDelete: 'cascade' }),
+  depotId: uuid('depot_id')
+    .notNull()
+    .references(() => depots.id, { onDelete: 'cascade' }),
   fileName: text('file_name').notNull(),
   format: text('format').notNull(),
   billingPeriodStart: date('billing_period_start').notNull(),
@@ -349,26 +419,40 @@ export const yardConfirmations = pgTable(
   {
     id: id(),
     organisationId: orgRef(),
-    depotId: uuid('depot_id').notNull().references(() => depots.id, { onDelete: 'cascade' }),
+    depotId: uuid('depot_id')
+      .notNull()
+      .references(() => depots.id, { onDelete: 'cascade' }),
     serviceDate: date('service_date').notNull(),
     stepKey: text('step_key').notNull(),
-    planId: uuid('plan_id').notNull().references(() => plans.id, { onDelete: 'cascade' }),
+    planId: uuid('plan_id')
+      .notNull()
+      .references(() => plans.id, { onDelete: 'cascade' }),
     confirmedBy: uuid('confirmed_by').references(() => users.id, { onDelete: 'set null' }),
     /** When it happened (the time the yard gave, else when confirmed). */
     confirmedAt: timestamp('confirmed_at', { withTimezone: true }).notNull().defaultNow(),
     /** `missed`: the yard said the step did not happen, and the night was re-planned from that. */
-    outcome: text('outcome', { enum: ['done', 'missed'] }).notNull().default('done'),
+    outcome: text('outcome', { enum: ['done', 'missed'] })
+      .notNull()
+      .default('done'),
   },
   (t) => [uniqueIndex('yard_confirmations_step_key').on(t.depotId, t.serviceDate, t.stepKey)],
 );
 
-export const yardReportKind = pgEnum('yard_report_kind', ['bus_late', 'bus_absent', 'charger_out', 'soc_reading', 'step_missed']);
+export const yardReportKind = pgEnum('yard_report_kind', [
+  'bus_late',
+  'bus_absent',
+  'charger_out',
+  'soc_reading',
+  'step_missed',
+]);
 
 /** What the yard reported as different from the plan, and the revision it led to. */
 export const yardReports = pgTable('yard_reports', {
   id: id(),
   organisationId: orgRef(),
-  depotId: uuid('depot_id').notNull().references(() => depots.id, { onDelete: 'cascade' }),
+  depotId: uuid('depot_id')
+    .notNull()
+    .references(() => depots.id, { onDelete: 'cascade' }),
   serviceDate: date('service_date').notNull(),
   kind: yardReportKind('kind').notNull(),
   bus: text('bus'),
@@ -376,7 +460,9 @@ export const yardReports = pgTable('yard_reports', {
   expectedAt: timestamp('expected_at', { withTimezone: true }),
   socPct: doublePrecision('soc_pct'),
   reason: text('reason'),
-  planId: uuid('plan_id').notNull().references(() => plans.id, { onDelete: 'cascade' }),
+  planId: uuid('plan_id')
+    .notNull()
+    .references(() => plans.id, { onDelete: 'cascade' }),
   revisionId: uuid('revision_id').references(() => plans.id, { onDelete: 'set null' }),
   reportedBy: uuid('reported_by').references(() => users.id, { onDelete: 'set null' }),
   reportedAt: timestamp('reported_at', { withTimezone: true }).notNull().defaultNow(),
@@ -386,8 +472,12 @@ export const yardReports = pgTable('yard_reports', {
 export const shiftAcknowledgements = pgTable(
   'shift_acknowledgements',
   {
-    userId: uuid('user_id').notNull().references(() => users.id, { onDelete: 'cascade' }),
-    depotId: uuid('depot_id').notNull().references(() => depots.id, { onDelete: 'cascade' }),
+    userId: uuid('user_id')
+      .notNull()
+      .references(() => users.id, { onDelete: 'cascade' }),
+    depotId: uuid('depot_id')
+      .notNull()
+      .references(() => depots.id, { onDelete: 'cascade' }),
     serviceDate: date('service_date').notNull(),
     acknowledgedAt: timestamp('acknowledged_at', { withTimezone: true }).notNull().defaultNow(),
   },
@@ -403,7 +493,9 @@ export const idempotencyKeys = pgTable(
   'idempotency_keys',
   {
     id: id(),
-    userId: uuid('user_id').notNull().references(() => users.id, { onDelete: 'cascade' }),
+    userId: uuid('user_id')
+      .notNull()
+      .references(() => users.id, { onDelete: 'cascade' }),
     key: text('key').notNull(),
     /** Method and route pattern, e.g. `PUT /depots/:depotId/service-days/:date`. */
     route: text('route').notNull(),
@@ -413,5 +505,8 @@ export const idempotencyKeys = pgTable(
     response: jsonb('response').$type<unknown>(),
     createdAt: timestamp('created_at', { withTimezone: true }).notNull(),
   },
-  (t) => [uniqueIndex('idempotency_keys_user_key').on(t.userId, t.key), index('idempotency_keys_created_idx').on(t.createdAt)],
+  (t) => [
+    uniqueIndex('idempotency_keys_user_key').on(t.userId, t.key),
+    index('idempotency_keys_created_idx').on(t.createdAt),
+  ],
 );

@@ -27,7 +27,10 @@ describe('demo seed', () => {
     const chs = await db.select().from(chargers).where(eq(chargers.organisationId, seeded.organisationId));
     expect(chs).toHaveLength(10);
     expect(chs.filter((c) => c.cabinetId !== null)).toHaveLength(2);
-    const dayRuns = await db.select().from(runs).where(and(eq(runs.serviceDate, '2026-12-02'), eq(runs.organisationId, seeded.organisationId)));
+    const dayRuns = await db
+      .select()
+      .from(runs)
+      .where(and(eq(runs.serviceDate, '2026-12-02'), eq(runs.organisationId, seeded.organisationId)));
     expect(dayRuns).toHaveLength(48);
     // Readings exist only for buses already back: none of Wednesday's, none of Tuesday's afternoon yet.
     expect(dayRuns.every((r) => r.arrivalSocPct === null)).toBe(true);
@@ -43,17 +46,23 @@ describe('demo seed', () => {
     }
   });
 
-  it('just after midnight (Wednesday 00:02) publishes Tuesday\'s night in progress and Wednesday\'s, with the crew\'s steps so far confirmed', async () => {
+  it("just after midnight (Wednesday 00:02) publishes Tuesday's night in progress and Wednesday's, with the crew's steps so far confirmed", async () => {
     const now = at('2026-12-02T00:02');
     const seeded = await seedDemo(db, now, tag());
     expect(seeded.publishedNights).toEqual(['2026-12-01', '2026-12-02']);
-    const [tuesday] = await db.select().from(plans).where(and(eq(plans.organisationId, seeded.organisationId), eq(plans.serviceDate, '2026-12-01')));
+    const [tuesday] = await db
+      .select()
+      .from(plans)
+      .where(and(eq(plans.organisationId, seeded.organisationId), eq(plans.serviceDate, '2026-12-01')));
     expect(tuesday!.publishedAt!.getTime()).toBeLessThan(now.getTime());
     const confirmed = await db.select().from(yardConfirmations).where(eq(yardConfirmations.planId, tuesday!.id));
     expect(confirmed.length).toBeGreaterThan(0);
     expect(confirmed.every((c) => c.confirmedAt.getTime() <= now.getTime())).toBe(true);
     // Tuesday's afternoon arrivals were read as the buses came in.
-    const tuesdayRuns = await db.select().from(runs).where(and(eq(runs.serviceDate, '2026-12-01'), eq(runs.organisationId, seeded.organisationId)));
+    const tuesdayRuns = await db
+      .select()
+      .from(runs)
+      .where(and(eq(runs.serviceDate, '2026-12-01'), eq(runs.organisationId, seeded.organisationId)));
     expect(tuesdayRuns.filter((r) => r.arrivalSocPct !== null)).toHaveLength(24);
   });
 

@@ -5,14 +5,36 @@ import { runInPool } from '../workers/pool';
 import { buildNightScenario } from '../plans/night-scenario';
 import type { Db } from '../db/client';
 import {
-  billingPeaks, buses, chargers, depotRatePlans, depots, organisations, plans, powerCabinets, ratePlans, runs, serviceDays, users, yardConfirmations,
+  billingPeaks,
+  buses,
+  chargers,
+  depotRatePlans,
+  depots,
+  organisations,
+  plans,
+  powerCabinets,
+  ratePlans,
+  runs,
+  serviceDays,
+  users,
+  yardConfirmations,
 } from '../db/schema';
 import { hashPassword } from '../auth/secrets';
 import { nightOfDepot } from '../night/depot-night';
 import { yardSteps } from '../yard/yard-steps';
 import {
-  DEMO_CHARGER_PASSWORD, DEMO_PASSWORD, demoBuses, demoChargerIdentity, demoCabinets, demoChargers, demoDepot, demoForecastLowF, demoOrganisation, demoRatePlan,
-  demoRunsForBus, demoUsers,
+  DEMO_CHARGER_PASSWORD,
+  DEMO_PASSWORD,
+  demoBuses,
+  demoChargerIdentity,
+  demoCabinets,
+  demoChargers,
+  demoDepot,
+  demoForecastLowF,
+  demoOrganisation,
+  demoRatePlan,
+  demoRunsForBus,
+  demoUsers,
 } from '@nightyard/demo';
 
 /** True when no organisation exists yet: a new database. */
@@ -50,13 +72,25 @@ export async function seedDemo(db: Db, now: Date, tag?: string): Promise<SeededD
     const [org] = await tx.insert(organisations).values(demoOrganisation).returning();
     const organisationId = org!.id;
     await tx.insert(users).values(
-      demoUsers.map((u) => ({ organisationId, email: demoEmail(u.email, tag), name: u.name, roles: [...u.roles], passwordHash, status: 'active' as const })),
+      demoUsers.map((u) => ({
+        organisationId,
+        email: demoEmail(u.email, tag),
+        name: u.name,
+        roles: [...u.roles],
+        passwordHash,
+        status: 'active' as const,
+      })),
     );
     const [depot] = await tx
       .insert(depots)
       .values({
-        organisationId, name: demoDepot.name, timezone: zone, serviceLimitKw: demoDepot.serviceLimitKw,
-        otherLoadKw: demoDepot.otherLoadProfileKw, billingStartDay: demoDepot.billingStartDay, yardCrew: demoDepot.yardCrew,
+        organisationId,
+        name: demoDepot.name,
+        timezone: zone,
+        serviceLimitKw: demoDepot.serviceLimitKw,
+        otherLoadKw: demoDepot.otherLoadProfileKw,
+        billingStartDay: demoDepot.billingStartDay,
+        yardCrew: demoDepot.yardCrew,
       })
       .returning();
     const depotId = depot!.id;
@@ -67,18 +101,31 @@ export async function seedDemo(db: Db, now: Date, tag?: string): Promise<SeededD
     const chargerPasswordHash = await hashPassword(DEMO_CHARGER_PASSWORD);
     await tx.insert(chargers).values(
       demoChargers.map((c) => ({
-        organisationId, depotId, label: c.label, maxKw: c.maxKw, connector: c.connector,
-        ocppIdentity: demoChargerIdentity(c.label, tag), ocppPasswordHash: chargerPasswordHash,
+        organisationId,
+        depotId,
+        label: c.label,
+        maxKw: c.maxKw,
+        connector: c.connector,
+        ocppIdentity: demoChargerIdentity(c.label, tag),
+        ocppPasswordHash: chargerPasswordHash,
         cabinetId: c.cabinet ? cabinets.find((k) => k.label === c.cabinet)!.id : null,
       })),
     );
     const [plan] = await tx
       .insert(ratePlans)
-      .values({ organisationId, name: demoRatePlan.name, currency: demoRatePlan.definition.currency, definition: demoRatePlan.definition })
+      .values({
+        organisationId,
+        name: demoRatePlan.name,
+        currency: demoRatePlan.definition.currency,
+        definition: demoRatePlan.definition,
+      })
       .returning();
     const today = DateTime.fromJSDate(now, { zone }).startOf('day');
     await tx.insert(depotRatePlans).values({
-      organisationId, depotId, ratePlanId: plan!.id, effectiveFrom: today.minus({ months: 6 }).startOf('month').toISODate()!,
+      organisationId,
+      depotId,
+      ratePlanId: plan!.id,
+      effectiveFrom: today.minus({ months: 6 }).startOf('month').toISODate()!,
     });
     const fleet = await tx
       .insert(buses)
@@ -96,10 +143,17 @@ export async function seedDemo(db: Db, now: Date, tag?: string): Promise<SeededD
           const at = (hhmm: string) => DateTime.fromISO(`${day.toISODate()}T${hhmm}`, { zone }).toJSDate();
           const pullIn = at(run.pullIn);
           rows.push({
-            organisationId, depotId, busId: bus.id, serviceDate: day.toISODate()!,
-            pullOut: at(run.pullOut), pullIn, miles: run.miles,
+            organisationId,
+            depotId,
+            busId: bus.id,
+            serviceDate: day.toISODate()!,
+            pullOut: at(run.pullOut),
+            pullIn,
+            miles: run.miles,
             // Buses already back have a reading; later arrivals are estimated from miles.
-            ...(pullIn <= now && run.arrivalSocPct !== undefined ? { arrivalSocPct: run.arrivalSocPct, arrivalSocSource: 'typed' as const } : {}),
+            ...(pullIn <= now && run.arrivalSocPct !== undefined
+              ? { arrivalSocPct: run.arrivalSocPct, arrivalSocSource: 'typed' as const }
+              : {}),
           });
         }
       });
@@ -108,7 +162,11 @@ export async function seedDemo(db: Db, now: Date, tag?: string): Promise<SeededD
     if (days.length) await tx.insert(serviceDays).values(days);
     // Earlier nights and the working days of this billing period already set these peaks.
     await tx.insert(billingPeaks).values({
-      organisationId, depotId, billingPeriodStart: today.startOf('month').toISODate()!, facilityKw: 185, periodsKw: { 'on-peak': 48 },
+      organisationId,
+      depotId,
+      billingPeriodStart: today.startOf('month').toISODate()!,
+      facilityKw: 185,
+      periodsKw: { 'on-peak': 48 },
     });
     return { organisationId, depotId };
   });
@@ -126,11 +184,29 @@ export async function seedDemo(db: Db, now: Date, tag?: string): Promise<SeededD
  * finance see plans from the start. The night in progress was published before it began, and the
  * yard has confirmed its steps due so far, as a night crew would have.
  */
-async function publishDemoNights(db: Db, organisationId: string, depotId: string, now: Date, tag?: string): Promise<string[]> {
-  const [supervisor] = await db.select().from(users).where(eq(users.email, demoEmail('supervisor@demo.nightyard.example', tag)));
-  const [yard] = await db.select().from(users).where(eq(users.email, demoEmail('yard@demo.nightyard.example', tag)));
+async function publishDemoNights(
+  db: Db,
+  organisationId: string,
+  depotId: string,
+  now: Date,
+  tag?: string,
+): Promise<string[]> {
+  const [supervisor] = await db
+    .select()
+    .from(users)
+    .where(eq(users.email, demoEmail('supervisor@demo.nightyard.example', tag)));
+  const [yard] = await db
+    .select()
+    .from(users)
+    .where(eq(users.email, demoEmail('yard@demo.nightyard.example', tag)));
   const [depot] = await db.select().from(depots).where(eq(depots.id, depotId));
-  const caller = { id: supervisor!.id, organisationId, email: supervisor!.email, name: supervisor!.name, roles: supervisor!.roles };
+  const caller = {
+    id: supervisor!.id,
+    organisationId,
+    email: supervisor!.email,
+    name: supervisor!.name,
+    roles: supervisor!.roles,
+  };
   const night = await nightOfDepot(db, depot!, now);
   const published: string[] = [];
   for (const n of [night.inForce, night.next]) {
@@ -141,19 +217,42 @@ async function publishDemoNights(db: Db, organisationId: string, depotId: string
     const result = await runInPool({ kind: 'plan', scenario: parsed.scenario });
     const underWay = n === night.inForce;
     const publishedAt = underWay ? new Date(Math.min(now.getTime(), Date.parse(n.start)) - 30 * 60_000) : now;
-    const [row] = await db.insert(plans).values({
-      organisationId, depotId, serviceDate: n.serviceDate, version: 1, kind: 'generated', state: 'published',
-      status: 'done', stage: 'Done', includesMidday: false, scenario, notes,
-      result, createdBy: caller.id, createdAt: publishedAt, publishedBy: caller.id, publishedAt,
-    }).returning({ id: plans.id });
+    const [row] = await db
+      .insert(plans)
+      .values({
+        organisationId,
+        depotId,
+        serviceDate: n.serviceDate,
+        version: 1,
+        kind: 'generated',
+        state: 'published',
+        status: 'done',
+        stage: 'Done',
+        includesMidday: false,
+        scenario,
+        notes,
+        result,
+        createdBy: caller.id,
+        createdAt: publishedAt,
+        publishedBy: caller.id,
+        publishedAt,
+      })
+      .returning({ id: plans.id });
     if (underWay) {
       // The crew kept up until ten minutes ago.
       const due = yardSteps(result, now, new Map()).filter((s) => Date.parse(s.at) <= now.getTime() - 10 * 60_000);
       if (due.length) {
-        await db.insert(yardConfirmations).values(due.map((s) => ({
-          organisationId, depotId, serviceDate: n.serviceDate, stepKey: s.key, planId: row!.id,
-          confirmedBy: yard!.id, confirmedAt: new Date(Date.parse(s.at) + 3 * 60_000),
-        })));
+        await db.insert(yardConfirmations).values(
+          due.map((s) => ({
+            organisationId,
+            depotId,
+            serviceDate: n.serviceDate,
+            stepKey: s.key,
+            planId: row!.id,
+            confirmedBy: yard!.id,
+            confirmedAt: new Date(Date.parse(s.at) + 3 * 60_000),
+          })),
+        );
       }
     }
     published.push(n.serviceDate);

@@ -24,14 +24,22 @@ beforeAll(async () => {
 
 const as = (u: TestUser) => ({ Authorization: `Bearer ${u.token}` });
 const base = () => `/api/depots/${depot.depot.id}`;
-const charger = (over: Record<string, unknown> = {}) => ({ label: 'D', maxKw: 150, connector: 'SAE J3105 pantograph', cabinetId: null, ...over });
+const charger = (over: Record<string, unknown> = {}) => ({
+  label: 'D',
+  maxKw: 150,
+  connector: 'SAE J3105 pantograph',
+  cabinetId: null,
+  ...over,
+});
 
 describe('depot', () => {
   it('every role reads the depot with chargers, cabinets and rate plans', async () => {
     const res = await app.request().get(base()).set(as(fin)).expect(200);
     expect(res.body.depot.chargers.map((c: { label: string }) => c.label)).toEqual(['A', 'B', 'C']);
     expect(res.body.depot.cabinets).toEqual([expect.objectContaining({ label: 'P1', limitKw: 120, chargerCount: 2 })]);
-    expect(res.body.depot.ratePlans).toEqual([expect.objectContaining({ name: 'Test TOU', effectiveFrom: '2026-01-01' })]);
+    expect(res.body.depot.ratePlans).toEqual([
+      expect.objectContaining({ name: 'Test TOU', effectiveFrom: '2026-01-01' }),
+    ]);
   });
 
   it('finance cannot change it', async () => {
@@ -39,34 +47,73 @@ describe('depot', () => {
   });
 
   it('facilities adds a charger to a cabinet and puts it out of service with a reason', async () => {
-    const add = await app.request().post(`${base()}/chargers`).set(as(fac)).send(charger({ label: 'E', cabinetId: depot.cabinet.id })).expect(201);
+    const add = await app
+      .request()
+      .post(`${base()}/chargers`)
+      .set(as(fac))
+      .send(charger({ label: 'E', cabinetId: depot.cabinet.id }))
+      .expect(201);
     expect(add.body.charger).toMatchObject({ label: 'E', cabinetLabel: 'P1', status: 'in_service' });
-    const missing = await app.request().put(`${base()}/chargers/${add.body.charger.id}`).set(as(fac))
-      .send(charger({ label: 'E', status: 'out_of_service' })).expect(400);
+    const missing = await app
+      .request()
+      .put(`${base()}/chargers/${add.body.charger.id}`)
+      .set(as(fac))
+      .send(charger({ label: 'E', status: 'out_of_service' }))
+      .expect(400);
     expect(missing.body.error.fields.statusReason).toBe('Say why the charger is out of service');
-    const out = await app.request().put(`${base()}/chargers/${add.body.charger.id}`).set(as(fac))
-      .send(charger({ label: 'E', status: 'out_of_service', statusReason: 'Cable damaged' })).expect(200);
+    const out = await app
+      .request()
+      .put(`${base()}/chargers/${add.body.charger.id}`)
+      .set(as(fac))
+      .send(charger({ label: 'E', status: 'out_of_service', statusReason: 'Cable damaged' }))
+      .expect(200);
     expect(out.body.charger).toMatchObject({ status: 'out_of_service', statusReason: 'Cable damaged' });
     expect(out.body.charger.statusSince).toBeTruthy();
   });
 
   it('refuses a cabinet of another depot, a negative limit, a duplicate label; nothing is saved', async () => {
     const before = (await app.db.select().from(chargers).where(eq(chargers.depotId, depot.depot.id))).length;
-    const foreign = await app.request().post(`${base()}/chargers`).set(as(fac)).send(charger({ label: 'X', cabinetId: other.cabinet.id })).expect(400);
+    const foreign = await app
+      .request()
+      .post(`${base()}/chargers`)
+      .set(as(fac))
+      .send(charger({ label: 'X', cabinetId: other.cabinet.id }))
+      .expect(400);
     expect(foreign.body.error.fields.cabinetId).toBe('Choose a cabinet of this depot');
-    const negative = await app.request().post(`${base()}/chargers`).set(as(fac)).send(charger({ label: 'Y', maxKw: -5 })).expect(400);
+    const negative = await app
+      .request()
+      .post(`${base()}/chargers`)
+      .set(as(fac))
+      .send(charger({ label: 'Y', maxKw: -5 }))
+      .expect(400);
     expect(negative.body.error.fields.maxKw).toMatch(/cannot be negative/);
-    const dup = await app.request().post(`${base()}/chargers`).set(as(fac)).send(charger({ label: 'A' })).expect(409);
+    const dup = await app
+      .request()
+      .post(`${base()}/chargers`)
+      .set(as(fac))
+      .send(charger({ label: 'A' }))
+      .expect(409);
     expect(dup.body.error.fields.label).toBe('Already used in this depot');
     const after = (await app.db.select().from(chargers).where(eq(chargers.depotId, depot.depot.id))).length;
     expect(after).toBe(before);
   });
 
   it('settings: a 24-hour other-load profile, a bad time zone and a zero limit', async () => {
-    const ok = { name: 'Depot one', timezone: 'America/Chicago', serviceLimitKw: 320, otherLoadKw: Array(24).fill(25), billingStartDay: 5 };
+    const ok = {
+      name: 'Depot one',
+      timezone: 'America/Chicago',
+      serviceLimitKw: 320,
+      otherLoadKw: Array(24).fill(25),
+      billingStartDay: 5,
+    };
     const res = await app.request().put(base()).set(as(fac)).send(ok).expect(200);
     expect(res.body.depot.serviceLimitKw).toBe(320);
-    const bad = await app.request().put(base()).set(as(fac)).send({ ...ok, timezone: 'Mars/Olympus', serviceLimitKw: 0, otherLoadKw: [1, 2] }).expect(400);
+    const bad = await app
+      .request()
+      .put(base())
+      .set(as(fac))
+      .send({ ...ok, timezone: 'Mars/Olympus', serviceLimitKw: 0, otherLoadKw: [1, 2] })
+      .expect(400);
     expect(Object.keys(bad.body.error.fields).sort()).toEqual(['otherLoadKw', 'serviceLimitKw', 'timezone']);
   });
 
@@ -77,26 +124,64 @@ describe('depot', () => {
     ];
     const bad = await app.request().put(`${base()}/load-reduction-windows`).set(as(fac)).send({ windows }).expect(400);
     expect(bad.body.error.fields['[1].start']).toMatch(/Overlaps/);
-    expect(await app.db.select().from(loadReductionWindows).where(eq(loadReductionWindows.depotId, depot.depot.id))).toHaveLength(0);
-    const good = await app.request().put(`${base()}/load-reduction-windows`).set(as(fac))
-      .send({ windows: [windows[0], { ...windows[1], start: '2026-12-10T19:00' }] }).expect(200);
+    expect(
+      await app.db.select().from(loadReductionWindows).where(eq(loadReductionWindows.depotId, depot.depot.id)),
+    ).toHaveLength(0);
+    const good = await app
+      .request()
+      .put(`${base()}/load-reduction-windows`)
+      .set(as(fac))
+      .send({ windows: [windows[0], { ...windows[1], start: '2026-12-10T19:00' }] })
+      .expect(200);
     expect(good.body.windows.map((w: { start: string }) => w.start)).toEqual(['2026-12-10T17:00', '2026-12-10T19:00']);
   });
 
   it('a charger out of service for a period is left out only of the nights that period touches', async () => {
-    const add = await app.request().post(`${base()}/chargers`).set(as(fac)).send(charger({ label: 'F' })).expect(201);
+    const add = await app
+      .request()
+      .post(`${base()}/chargers`)
+      .set(as(fac))
+      .send(charger({ label: 'F' }))
+      .expect(201);
     const id = add.body.charger.id;
-    const bad = await app.request().put(`${base()}/chargers/${id}`).set(as(fac)).send(charger({
-      label: 'F', status: 'out_of_service', statusReason: 'Inspection', outFrom: '2026-12-20T06:00', outUntil: '2026-12-20T05:00',
-    })).expect(400);
+    const bad = await app
+      .request()
+      .put(`${base()}/chargers/${id}`)
+      .set(as(fac))
+      .send(
+        charger({
+          label: 'F',
+          status: 'out_of_service',
+          statusReason: 'Inspection',
+          outFrom: '2026-12-20T06:00',
+          outUntil: '2026-12-20T05:00',
+        }),
+      )
+      .expect(400);
     expect(bad.body.error.fields.outUntil).toBe('The end of the period must be after its start');
-    const out = await app.request().put(`${base()}/chargers/${id}`).set(as(fac)).send(charger({
-      label: 'F', status: 'out_of_service', statusReason: 'Inspection', outFrom: '2026-12-20T06:00', outUntil: '2026-12-21T18:00',
-    })).expect(200);
-    expect(out.body.charger).toMatchObject({ status: 'out_of_service', outFrom: '2026-12-20T06:00', outUntil: '2026-12-21T18:00' });
+    const out = await app
+      .request()
+      .put(`${base()}/chargers/${id}`)
+      .set(as(fac))
+      .send(
+        charger({
+          label: 'F',
+          status: 'out_of_service',
+          statusReason: 'Inspection',
+          outFrom: '2026-12-20T06:00',
+          outUntil: '2026-12-21T18:00',
+        }),
+      )
+      .expect(200);
+    expect(out.body.charger).toMatchObject({
+      status: 'out_of_service',
+      outFrom: '2026-12-20T06:00',
+      outUntil: '2026-12-21T18:00',
+    });
     const scenarioOf = async (start: string, end: string) =>
       (await app.request().get(`${base()}/scenario-base`).query({ start, end }).set(as(fac)).expect(200)).body as {
-        scenario: { chargers: { id: string }[] }; notes: string[];
+        scenario: { chargers: { id: string }[] };
+        notes: string[];
       };
     // The night before the period: F plans as in service.
     const before = await scenarioOf('2026-12-18T15:00', '2026-12-19T07:00');
@@ -104,17 +189,34 @@ describe('depot', () => {
     // A night inside it: left out, and the note says for how long.
     const inside = await scenarioOf('2026-12-20T15:00', '2026-12-21T07:00');
     expect(inside.scenario.chargers.map((c) => c.id)).not.toContain('F');
-    expect(inside.notes.join(' ')).toMatch(/Charger F is out of service from .* until .* \(Inspection\) and is left out for the night/);
+    expect(inside.notes.join(' ')).toMatch(
+      /Charger F is out of service from .* until .* \(Inspection\) and is left out for the night/,
+    );
     // Back in service: the period is cleared.
-    const back = await app.request().put(`${base()}/chargers/${id}`).set(as(fac)).send(charger({ label: 'F', outFrom: '2026-12-20T06:00' })).expect(200);
+    const back = await app
+      .request()
+      .put(`${base()}/chargers/${id}`)
+      .set(as(fac))
+      .send(charger({ label: 'F', outFrom: '2026-12-20T06:00' }))
+      .expect(200);
     expect(back.body.charger).toMatchObject({ status: 'in_service', outFrom: null, outUntil: null });
     await app.request().delete(`${base()}/chargers/${id}`).set(as(fac)).expect(204);
   });
 
   it('another organisation\'s facilities user sees "not found" and changes nothing', async () => {
     await app.request().get(base()).set(as(otherFac)).expect(404);
-    await app.request().post(`${base()}/chargers`).set(as(otherFac)).send(charger({ label: 'Z' })).expect(404);
-    await app.request().put(`/api/depots/${depot.depot.id}/chargers/${depot.chargers[0]!.id}`).set(as(otherFac)).send(charger({ label: 'A' })).expect(404);
+    await app
+      .request()
+      .post(`${base()}/chargers`)
+      .set(as(otherFac))
+      .send(charger({ label: 'Z' }))
+      .expect(404);
+    await app
+      .request()
+      .put(`/api/depots/${depot.depot.id}/chargers/${depot.chargers[0]!.id}`)
+      .set(as(otherFac))
+      .send(charger({ label: 'A' }))
+      .expect(404);
   });
 });
 
@@ -122,8 +224,12 @@ describe('scenario base', () => {
   it('builds the site and tariff part that the engine accepts, leaving out chargers out of service', async () => {
     const sup = (await createOrganisation(app, { s: ['supervisor'] })).users.s!;
     void sup;
-    const res = await app.request().get(`${base()}/scenario-base`).query({ start: '2026-12-09T12:00', end: '2026-12-10T09:00' })
-      .set(as(fac)).expect(200);
+    const res = await app
+      .request()
+      .get(`${base()}/scenario-base`)
+      .query({ start: '2026-12-09T12:00', end: '2026-12-10T09:00' })
+      .set(as(fac))
+      .expect(200);
     const { scenario, notes } = res.body;
     expect(scenario.chargers.map((c: { id: string }) => c.id)).toEqual(expect.arrayContaining(['A', 'B', 'C']));
     expect(scenario.chargers.map((c: { id: string }) => c.id)).not.toContain('E');
@@ -134,14 +240,26 @@ describe('scenario base', () => {
     // The engine's own validator (libs/scheduling) accepts it once buses are added.
     const parsed = parseScenario({
       ...scenario,
-      buses: [{ id: '1', usableKwh: 200, maxKw: 60, arrivalKwh: 50, stays: [{ arrive: '2026-12-09T16:00', depart: '2026-12-10T06:00', departMinKwh: 150 }] }],
+      buses: [
+        {
+          id: '1',
+          usableKwh: 200,
+          maxKw: 60,
+          arrivalKwh: 50,
+          stays: [{ arrive: '2026-12-09T16:00', depart: '2026-12-10T06:00', departMinKwh: 150 }],
+        },
+      ],
     });
     expect(parsed.ok ? [] : parsed.problems).toEqual([]);
   });
 
   it('carries the hourly other load and the load-reduction windows into the scenario', async () => {
-    const res = await app.request().get(`${base()}/scenario-base`).query({ start: '2026-12-10T12:00', end: '2026-12-11T09:00' })
-      .set(as(fac)).expect(200);
+    const res = await app
+      .request()
+      .get(`${base()}/scenario-base`)
+      .query({ start: '2026-12-10T12:00', end: '2026-12-11T09:00' })
+      .set(as(fac))
+      .expect(200);
     expect(res.body.scenario.site.otherLoadByHourKw).toHaveLength(24);
     expect(res.body.scenario.site.limitWindows).toEqual([
       { from: '2026-12-10T17:00', to: '2026-12-10T19:00', limitKw: 150 },
@@ -150,15 +268,34 @@ describe('scenario base', () => {
   });
 
   it('carries the yard crew into the scenario: minimum plug-in, driver moves and each shift as dated crew windows', async () => {
-    const yardCrew = { minPlugInMinutes: 45, driversPlugIn: true, shifts: [{ from: '15:00', to: '23:30', movesPerSlot: 3 }, { from: '04:30', to: '07:00', movesPerSlot: 2 }] };
+    const yardCrew = {
+      minPlugInMinutes: 45,
+      driversPlugIn: true,
+      shifts: [
+        { from: '15:00', to: '23:30', movesPerSlot: 3 },
+        { from: '04:30', to: '07:00', movesPerSlot: 2 },
+      ],
+    };
     await app.request().put(`${base()}/yard-crew`).set(as(fin)).send(yardCrew).expect(403);
-    const bad = await app.request().put(`${base()}/yard-crew`).set(as(fac)).send({ ...yardCrew, minPlugInMinutes: -5, shifts: [{ from: '25:00', to: '07:00', movesPerSlot: 0 }] }).expect(400);
-    expect(Object.keys(bad.body.error.fields ?? {})).toEqual(expect.arrayContaining(['minPlugInMinutes', 'shifts[0].from', 'shifts[0].movesPerSlot']));
+    const bad = await app
+      .request()
+      .put(`${base()}/yard-crew`)
+      .set(as(fac))
+      .send({ ...yardCrew, minPlugInMinutes: -5, shifts: [{ from: '25:00', to: '07:00', movesPerSlot: 0 }] })
+      .expect(400);
+    expect(Object.keys(bad.body.error.fields ?? {})).toEqual(
+      expect.arrayContaining(['minPlugInMinutes', 'shifts[0].from', 'shifts[0].movesPerSlot']),
+    );
     const saved = await app.request().put(`${base()}/yard-crew`).set(as(fac)).send(yardCrew).expect(200);
     const withDefaults = { ...yardCrew, costTolerancePercent: 0.5, costToleranceAmount: 5 };
     expect(saved.body.yardCrew).toEqual(withDefaults);
     expect((await app.request().get(base()).set(as(fin)).expect(200)).body.depot.yardCrew).toEqual(withDefaults);
-    const res = await app.request().get(`${base()}/scenario-base`).query({ start: '2026-12-09T12:00', end: '2026-12-10T09:00' }).set(as(fac)).expect(200);
+    const res = await app
+      .request()
+      .get(`${base()}/scenario-base`)
+      .query({ start: '2026-12-09T12:00', end: '2026-12-10T09:00' })
+      .set(as(fac))
+      .expect(200);
     expect(res.body.scenario.yard).toEqual({
       minPlugInMinutes: 45,
       driversPlugIn: true,
@@ -171,16 +308,44 @@ describe('scenario base', () => {
     });
     const parsed = parseScenario({
       ...res.body.scenario,
-      buses: [{ id: '1', usableKwh: 200, maxKw: 60, arrivalKwh: 50, stays: [{ arrive: '2026-12-09T16:00', depart: '2026-12-10T06:00', departMinKwh: 150 }] }],
+      buses: [
+        {
+          id: '1',
+          usableKwh: 200,
+          maxKw: 60,
+          arrivalKwh: 50,
+          stays: [{ arrive: '2026-12-09T16:00', depart: '2026-12-10T06:00', departMinKwh: 150 }],
+        },
+      ],
     });
     expect(parsed.ok ? [] : parsed.problems).toEqual([]);
-    await app.request().put(`${base()}/yard-crew`).set(as(fac)).send({ ...yardCrew, shifts: [], costTolerancePercent: 1, costToleranceAmount: 12 }).expect(200);
-    const any = await app.request().get(`${base()}/scenario-base`).query({ start: '2026-12-09T12:00', end: '2026-12-10T09:00' }).set(as(fac)).expect(200);
-    expect(any.body.scenario.yard).toEqual({ minPlugInMinutes: 45, driversPlugIn: true, costTolerancePercent: 1, costToleranceAmount: 12 });
+    await app
+      .request()
+      .put(`${base()}/yard-crew`)
+      .set(as(fac))
+      .send({ ...yardCrew, shifts: [], costTolerancePercent: 1, costToleranceAmount: 12 })
+      .expect(200);
+    const any = await app
+      .request()
+      .get(`${base()}/scenario-base`)
+      .query({ start: '2026-12-09T12:00', end: '2026-12-10T09:00' })
+      .set(as(fac))
+      .expect(200);
+    expect(any.body.scenario.yard).toEqual({
+      minPlugInMinutes: 45,
+      driversPlugIn: true,
+      costTolerancePercent: 1,
+      costToleranceAmount: 12,
+    });
   });
 
   it('says which date has no rate plan', async () => {
-    const res = await app.request().get(`${base()}/scenario-base`).query({ start: '2025-06-01T12:00', end: '2025-06-02T09:00' }).set(as(fac)).expect(400);
+    const res = await app
+      .request()
+      .get(`${base()}/scenario-base`)
+      .query({ start: '2025-06-01T12:00', end: '2025-06-02T09:00' })
+      .set(as(fac))
+      .expect(400);
     expect(res.body.error.message).toMatch(/No rate plan applies to Depot one on 2025-06-01/);
   });
 });

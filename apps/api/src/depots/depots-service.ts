@@ -8,7 +8,11 @@ import { nightOfDepot } from '../night/depot-night';
 
 /** Each depot of the caller's organisation with counts and the next service day's pull-outs. */
 export async function listDepotSummaries(db: Db, caller: AuthUser, now: Date): Promise<DepotSummary[]> {
-  const rows = await db.select().from(depots).where(eq(depots.organisationId, caller.organisationId)).orderBy(asc(depots.name));
+  const rows = await db
+    .select()
+    .from(depots)
+    .where(eq(depots.organisationId, caller.organisationId))
+    .orderBy(asc(depots.name));
   return Promise.all(rows.map((d) => summarise(db, d, now)));
 }
 
@@ -44,10 +48,14 @@ async function summarise(db: Db, d: typeof depots.$inferSelect, now: Date): Prom
       .from(runs)
       .where(and(eq(runs.depotId, d.id), eq(runs.serviceDate, next.date)));
     // Only the first run of each bus leaves from the night's charging.
-    const [lastFirst] = await db.execute<{ last: Date | null }>(sql`
+    const [lastFirst] = await db
+      .execute<{ last: Date | null }>(
+        sql`
       select max(first_out) as last from (
         select min(${runs.pullOut}) as first_out from ${runs}
-        where ${runs.depotId} = ${d.id} and ${runs.serviceDate} = ${next.date} group by ${runs.busId}) f`).then((r) => r.rows);
+        where ${runs.depotId} = ${d.id} and ${runs.serviceDate} = ${next.date} group by ${runs.busId}) f`,
+      )
+      .then((r) => r.rows);
     const [pullIns] = await db
       .select({ last: sql<Date | null>`max(${runs.pullIn})`.mapWith((v) => (v ? new Date(v) : null)) })
       .from(runs)

@@ -12,14 +12,24 @@ import type { ApiRoutes } from '../http/route';
  */
 export function outboxRoutes(api: ApiRoutes, { config, db }: AppDeps) {
   api.add(
-    { method: 'get', path: '/dev/outbox', summary: 'Messages caught by the local fake mail server (development only)',
-      tag: 'development', access: ADMINS, response: outboxSchema },
+    {
+      method: 'get',
+      path: '/dev/outbox',
+      summary: 'Messages caught by the local fake mail server (development only)',
+      tag: 'development',
+      access: ADMINS,
+      response: outboxSchema,
+    },
     async ({ user }) => {
-      if (config.NODE_ENV === 'production' || !config.FAKE_MAIL_URL) throw notFound('The outbox (there is no local mail server here)');
+      if (config.NODE_ENV === 'production' || !config.FAKE_MAIL_URL)
+        throw notFound('The outbox (there is no local mail server here)');
       const res = await fetch(new URL('/messages', config.FAKE_MAIL_URL)).catch(() => null);
       if (!res?.ok) throw new DomainError('internal', 'The local mail server does not answer');
       const { messages } = outboxSchema.parse(await res.json());
-      const people = await db.select({ email: users.email }).from(users).where(eq(users.organisationId, user.organisationId));
+      const people = await db
+        .select({ email: users.email })
+        .from(users)
+        .where(eq(users.organisationId, user.organisationId));
       const ours = new Set(people.map((p) => p.email.toLowerCase()));
       return { messages: messages.filter((m) => m.to.length > 0 && m.to.every((a) => ours.has(a.toLowerCase()))) };
     },

@@ -12,23 +12,44 @@ describe('the development outbox', () => {
     const b = await createOrganisation(app, { admin: ['admin'] });
     const ours = unique('ours');
     const theirs = unique('theirs');
-    await app.request().post('/api/users/invite').set({ Authorization: `Bearer ${a.users.admin!.token}` }).send({ email: ours, name: 'Ours', roles: ['yard'] }).expect(201);
-    await app.request().post('/api/users/invite').set({ Authorization: `Bearer ${b.users.admin!.token}` }).send({ email: theirs, name: 'Theirs', roles: ['yard'] }).expect(201);
+    await app
+      .request()
+      .post('/api/users/invite')
+      .set({ Authorization: `Bearer ${a.users.admin!.token}` })
+      .send({ email: ours, name: 'Ours', roles: ['yard'] })
+      .expect(201);
+    await app
+      .request()
+      .post('/api/users/invite')
+      .set({ Authorization: `Bearer ${b.users.admin!.token}` })
+      .send({ email: theirs, name: 'Theirs', roles: ['yard'] })
+      .expect(201);
     await mailFor(ours);
     await mailFor(theirs);
-    const res = await app.request().get('/api/dev/outbox').set({ Authorization: `Bearer ${a.users.admin!.token}` }).expect(200);
+    const res = await app
+      .request()
+      .get('/api/dev/outbox')
+      .set({ Authorization: `Bearer ${a.users.admin!.token}` })
+      .expect(200);
     const recipients = res.body.messages.flatMap((m: { to: string[] }) => m.to);
     expect(recipients).toContain(ours);
     expect(recipients).not.toContain(theirs);
-    const others = new Set((await app.db.query.users.findMany({ columns: { email: true, organisationId: true } }))
-      .filter((u) => u.organisationId !== a.organisationId).map((u) => u.email));
+    const others = new Set(
+      (await app.db.query.users.findMany({ columns: { email: true, organisationId: true } }))
+        .filter((u) => u.organisationId !== a.organisationId)
+        .map((u) => u.email),
+    );
     expect(recipients.filter((r: string) => others.has(r))).toEqual([]);
   });
 
   it('is switched off in production (404) even with a fake mail server configured', async () => {
     const prod = createTestApp({ config: { ...app.deps.config, NODE_ENV: 'production' } });
     const org = await createOrganisation(prod, { admin: ['admin'] });
-    const res = await prod.request().get('/api/dev/outbox').set({ Authorization: `Bearer ${org.users.admin!.token}` }).expect(404);
+    const res = await prod
+      .request()
+      .get('/api/dev/outbox')
+      .set({ Authorization: `Bearer ${org.users.admin!.token}` })
+      .expect(404);
     expect(res.body.error.code).toBe('not_found');
     expect(app.deps.config.FAKE_MAIL_URL).toBeTruthy();
   });

@@ -11,7 +11,9 @@ export interface TestControl {
 }
 
 const clockBody = z.strictObject({ at: z.iso.datetime({ offset: true }) });
-const demoBody = z.strictObject({ tag: z.string().regex(/^[a-z0-9-]{1,24}$/, 'lower-case letters, digits and dashes, at most 24') });
+const demoBody = z.strictObject({
+  tag: z.string().regex(/^[a-z0-9-]{1,24}$/, 'lower-case letters, digits and dashes, at most 24'),
+});
 
 /**
  * Test-only endpoints, outside the public API (not in OpenAPI): stand the API's clock at an
@@ -27,7 +29,8 @@ export function testControlRouter(db: Db, clock: Clock, control: TestControl): R
   });
   router.post('/demo', async (req, res) => {
     const body = demoBody.safeParse(req.body);
-    if (!body.success) throw new DomainError('validation_failed', 'Send { "tag": "..." }: lower-case letters, digits and dashes');
+    if (!body.success)
+      throw new DomainError('validation_failed', 'Send { "tag": "..." }: lower-case letters, digits and dashes');
     const seeded = await seedDemo(db, clock(), body.data.tag);
     res.status(201).json({ ...seeded, now: clock().toISOString() });
   });

@@ -9,8 +9,16 @@ import { depotOf } from '../depots/depot-access';
 type Row = typeof buses.$inferSelect;
 
 export const toBus = (b: Row): Bus => ({
-  id: b.id, number: b.number, usableKwh: b.usableKwh, maxChargeKw: b.maxChargeKw, connector: b.connector,
-  kwhPerMile: b.kwhPerMile, ceilingPct: b.ceilingPct, reservePct: b.reservePct, taperStartPct: b.taperStartPct, status: b.status,
+  id: b.id,
+  number: b.number,
+  usableKwh: b.usableKwh,
+  maxChargeKw: b.maxChargeKw,
+  connector: b.connector,
+  kwhPerMile: b.kwhPerMile,
+  ceilingPct: b.ceilingPct,
+  reservePct: b.reservePct,
+  taperStartPct: b.taperStartPct,
+  status: b.status,
 });
 
 export async function listBuses(db: Db, caller: AuthUser, depotId: string): Promise<Bus[]> {
@@ -21,19 +29,31 @@ export async function listBuses(db: Db, caller: AuthUser, depotId: string): Prom
 
 function duplicateNumber(err: unknown): never {
   const code = (err as { code?: string }).code ?? (err as { cause?: { code?: string } }).cause?.code;
-  if (code === '23505') throw new DomainError('conflict', 'This depot already has a bus with that number', { number: 'Already used in this depot' });
+  if (code === '23505')
+    throw new DomainError('conflict', 'This depot already has a bus with that number', {
+      number: 'Already used in this depot',
+    });
   throw err;
 }
 
 export async function createBus(db: Db, caller: AuthUser, depotId: string, input: BusInput): Promise<Bus> {
   await depotOf(db, caller, depotId);
-  const [row] = await db.insert(buses).values({ ...input, organisationId: caller.organisationId, depotId }).returning().catch(duplicateNumber);
+  const [row] = await db
+    .insert(buses)
+    .values({ ...input, organisationId: caller.organisationId, depotId })
+    .returning()
+    .catch(duplicateNumber);
   return toBus(row!);
 }
 
 export async function updateBus(db: Db, caller: AuthUser, depotId: string, id: string, input: BusInput): Promise<Bus> {
   await depotOf(db, caller, depotId);
-  const [row] = await db.update(buses).set(input).where(and(eq(buses.id, id), eq(buses.depotId, depotId))).returning().catch(duplicateNumber);
+  const [row] = await db
+    .update(buses)
+    .set(input)
+    .where(and(eq(buses.id, id), eq(buses.depotId, depotId)))
+    .returning()
+    .catch(duplicateNumber);
   if (!row) throw notFound('That bus');
   return toBus(row);
 }

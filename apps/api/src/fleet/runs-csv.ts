@@ -6,15 +6,17 @@ import { DomainError } from '../http/errors';
 export const RUN_COLUMNS = ['bus', 'pull_out', 'pull_in', 'miles', 'kwh', 'arrival_soc_pct'] as const;
 
 export function runsCsvTemplate(): string {
-  return [
-    RUN_COLUMNS.join(','),
-    `201,06:10,08:25,31.5,,`,
-    `201,14:05,16:30,,42,38`,
-  ].join('\r\n') + '\r\n';
+  return [RUN_COLUMNS.join(','), `201,06:10,08:25,31.5,,`, `201,14:05,16:30,,42,38`].join('\r\n') + '\r\n';
 }
 
 const FIELD_FOR: Record<string, string> = {
-  busNumber: 'bus', pullOut: 'pull_out', pullIn: 'pull_in', miles: 'miles', kwh: 'kwh', arrivalSocPct: 'arrival_soc_pct', bus: 'bus',
+  busNumber: 'bus',
+  pullOut: 'pull_out',
+  pullIn: 'pull_in',
+  miles: 'miles',
+  kwh: 'kwh',
+  arrivalSocPct: 'arrival_soc_pct',
+  bus: 'bus',
 };
 
 export const csvField = (field: string) => FIELD_FOR[field] ?? field;
@@ -29,39 +31,59 @@ const DATED = /^(\d{4}-\d{2}-\d{2})[ T](\d{1,2}):(\d{2})$/;
  * `line N.column`, in the time format the file itself uses. The caller checks the good rows
  * against the fleet and reports both together, so one upload names every problem.
  */
-export function parseRunsCsv(text: string, date: string): { runs: RunInput[]; lines: number[]; problems: Record<string, string> } {
+export function parseRunsCsv(
+  text: string,
+  date: string,
+): { runs: RunInput[]; lines: number[]; problems: Record<string, string> } {
   let records: string[][];
   let lineOf: number[];
   try {
-    const parsed = parse(text.replace(/^\uFEFF/, ''), { skip_empty_lines: true, trim: true, relax_column_count: true, info: true }) as unknown as
-      { record: string[]; info: { lines: number } }[];
+    const parsed = parse(text.replace(/^\uFEFF/, ''), {
+      skip_empty_lines: true,
+      trim: true,
+      relax_column_count: true,
+      info: true,
+    }) as unknown as { record: string[]; info: { lines: number } }[];
     records = parsed.map((p) => p.record);
     lineOf = parsed.map((p) => p.info.lines);
   } catch (e) {
-    throw new DomainError('validation_failed', `The file is not readable CSV: ${(e as Error).message}`, { file: 'Not valid CSV' });
+    throw new DomainError('validation_failed', `The file is not readable CSV: ${(e as Error).message}`, {
+      file: 'Not valid CSV',
+    });
   }
   const [header, ...rows] = records;
   // A spreadsheet saved with semicolons (or tabs) reads as one column per line: say so plainly.
   if (header && header.length === 1 && /[;\t]/.test(header[0] ?? '')) {
     const sep = (header[0] ?? '').includes(';') ? 'semicolons' : 'tabs';
-    throw new DomainError('validation_failed', `The file separates its columns with ${sep}: save it as CSV with commas (the template shows how); nothing was saved`, {
-      file: `Columns separated by ${sep}: use commas`,
-    });
+    throw new DomainError(
+      'validation_failed',
+      `The file separates its columns with ${sep}: save it as CSV with commas (the template shows how); nothing was saved`,
+      {
+        file: `Columns separated by ${sep}: use commas`,
+      },
+    );
   }
   const columns = (header ?? []).map((h) => h.toLowerCase());
-  const missing = RUN_COLUMNS.filter((c) => c !== 'kwh' && c !== 'miles' && c !== 'arrival_soc_pct' && !columns.includes(c));
+  const missing = RUN_COLUMNS.filter(
+    (c) => c !== 'kwh' && c !== 'miles' && c !== 'arrival_soc_pct' && !columns.includes(c),
+  );
   const unknown = columns.filter((c) => !(RUN_COLUMNS as readonly string[]).includes(c));
   if (missing.length || unknown.length) {
     const fields: Record<string, string> = {};
     const at = lineOf[0] ?? 1;
     for (const c of missing) fields[`line ${at}.${c}`] = `Column "${c}" is missing: start from the template`;
-    for (const c of unknown) fields[`line ${at}.${c}`] = `Unknown column "${c}": the columns are ${RUN_COLUMNS.join(', ')}`;
+    for (const c of unknown)
+      fields[`line ${at}.${c}`] = `Unknown column "${c}": the columns are ${RUN_COLUMNS.join(', ')}`;
     throw new DomainError('validation_failed', 'The header line does not match the template', fields);
   }
   if (rows.length > MAX_RUNS_PER_DAY) {
-    throw new DomainError('payload_too_large', `The file has ${rows.length} runs; a service day holds at most ${MAX_RUNS_PER_DAY}: nothing was saved`, {
-      file: `At most ${MAX_RUNS_PER_DAY} rows below the header`,
-    });
+    throw new DomainError(
+      'payload_too_large',
+      `The file has ${rows.length} runs; a service day holds at most ${MAX_RUNS_PER_DAY}: nothing was saved`,
+      {
+        file: `At most ${MAX_RUNS_PER_DAY} rows below the header`,
+      },
+    );
   }
   const col = (row: string[], name: string) => row[columns.indexOf(name)]?.trim() ?? '';
   // The time format the file uses (most of its times), to name it in the messages.
@@ -79,7 +101,8 @@ export function parseRunsCsv(text: string, date: string): { runs: RunInput[]; li
     const time = (name: string): string | null => {
       const v = col(row, name);
       if (v === '') {
-        fields[at(name)] ??= `Enter the ${name === 'pull_out' ? 'pull-out' : 'pull-in'} time as ${format}, e.g. ${example}`;
+        fields[at(name)] ??=
+          `Enter the ${name === 'pull_out' ? 'pull-out' : 'pull-in'} time as ${format}, e.g. ${example}`;
         return null;
       }
       const m = CLOCK.exec(v) ?? DATED.exec(v);
@@ -109,11 +132,15 @@ export function parseRunsCsv(text: string, date: string): { runs: RunInput[]; li
     const miles = num('miles');
     const kwh = num('kwh');
     if (miles !== null && kwh !== null) {
-      fields[at('kwh')] ??= 'Give the run\'s miles or its kWh, not both: leave one of the two empty';
+      fields[at('kwh')] ??= "Give the run's miles or its kWh, not both: leave one of the two empty";
     }
     const candidate = {
-      busNumber: col(row, 'bus'), pullOut: pullOut ?? '', pullIn: pullIn ?? '',
-      miles, kwh, arrivalSocPct: num('arrival_soc_pct'),
+      busNumber: col(row, 'bus'),
+      pullOut: pullOut ?? '',
+      pullIn: pullIn ?? '',
+      miles,
+      kwh,
+      arrivalSocPct: num('arrival_soc_pct'),
     };
     const parsed = runInputSchema.safeParse(candidate);
     const before = Object.keys(fields).some((f) => f.startsWith(`line ${line}.`));

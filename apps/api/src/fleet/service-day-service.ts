@@ -1,8 +1,6 @@
 import { and, asc, eq, inArray } from 'drizzle-orm';
 import { DateTime } from 'luxon';
-import {
-  coldWeatherFactor, type RunInput, type ServiceDay, type ServiceDayInput,
-} from '@nightyard/contracts';
+import { coldWeatherFactor, type RunInput, type ServiceDay, type ServiceDayInput } from '@nightyard/contracts';
 import type { Db } from '../db/client';
 import { buses, runs, serviceDays } from '../db/schema';
 import { lockTarget } from '../db/locks';
@@ -16,14 +14,21 @@ type DepotRow = Awaited<ReturnType<typeof depotOf>>;
 type BusRow = typeof buses.$inferSelect;
 
 /** kWh a run uses: its measured energy, or miles x consumption x the day's cold-weather factor. */
-export function runEnergyKwh(run: { kwh: number | null; miles: number | null }, bus: { kwhPerMile: number }, factor: number): number {
+export function runEnergyKwh(
+  run: { kwh: number | null; miles: number | null },
+  bus: { kwhPerMile: number },
+  factor: number,
+): number {
   if (run.kwh !== null) return run.kwh;
   return Math.round((run.miles ?? 0) * bus.kwhPerMile * factor * 100) / 100;
 }
 
 export async function getServiceDay(db: Db, caller: AuthUser, depotId: string, date: string): Promise<ServiceDay> {
   const depot = await depotOf(db, caller, depotId);
-  const [day] = await db.select().from(serviceDays).where(and(eq(serviceDays.depotId, depotId), eq(serviceDays.serviceDate, date)));
+  const [day] = await db
+    .select()
+    .from(serviceDays)
+    .where(and(eq(serviceDays.depotId, depotId), eq(serviceDays.serviceDate, date)));
   const forecastLowF = day?.forecastLowF ?? null;
   const factor = coldWeatherFactor(depot.coldWeatherFactors, forecastLowF);
   const rows = await db
@@ -42,8 +47,16 @@ export async function getServiceDay(db: Db, caller: AuthUser, depotId: string, d
     const estimated = Math.max(0, Math.round((before - (energyKwh / bus.usableKwh) * 100) * 10) / 10);
     soc.set(bus.id, run.arrivalSocPct ?? estimated);
     return {
-      id: run.id, busId: bus.id, busNumber: bus.number, pullOut: local(run.pullOut), pullIn: local(run.pullIn),
-      miles: run.miles, kwh: run.kwh, energyKwh, arrivalSocPct: run.arrivalSocPct, arrivalSocSource: run.arrivalSocSource,
+      id: run.id,
+      busId: bus.id,
+      busNumber: bus.number,
+      pullOut: local(run.pullOut),
+      pullIn: local(run.pullIn),
+      miles: run.miles,
+      kwh: run.kwh,
+      energyKwh,
+      arrivalSocPct: run.arrivalSocPct,
+      arrivalSocSource: run.arrivalSocSource,
       estimatedArrivalSocPct: estimated,
     };
   });
@@ -59,7 +72,11 @@ export interface RowProblem {
 
 /** Checks that need the database and the runs together: unknown buses, overlaps, impossible times. */
 function checkRuns(
-  depot: DepotRow, date: string, input: RunInput[], fleet: Map<string, BusRow>, rowName: (index: number) => string = (i) => `row ${i + 1}`,
+  depot: DepotRow,
+  date: string,
+  input: RunInput[],
+  fleet: Map<string, BusRow>,
+  rowName: (index: number) => string = (i) => `row ${i + 1}`,
 ): RowProblem[] {
   const problems: RowProblem[] = [];
   const at = (t: string) => DateTime.fromISO(t, { zone: depot.timezone });
@@ -71,9 +88,12 @@ function checkRuns(
     }
     const out = at(r.pullOut);
     const back = at(r.pullIn);
-    if (out.toFormat(LOCAL) !== r.pullOut) problems.push({ index: i, field: 'pullOut', message: `${r.pullOut} does not exist at the depot (clock change)` });
-    if (out.toISODate() !== date) problems.push({ index: i, field: 'pullOut', message: `The pull-out must be on ${date}` });
-    if (back.diff(out, 'hours').hours > 24) problems.push({ index: i, field: 'pullIn', message: 'A run lasts at most 24 hours' });
+    if (out.toFormat(LOCAL) !== r.pullOut)
+      problems.push({ index: i, field: 'pullOut', message: `${r.pullOut} does not exist at the depot (clock change)` });
+    if (out.toISODate() !== date)
+      problems.push({ index: i, field: 'pullOut', message: `The pull-out must be on ${date}` });
+    if (back.diff(out, 'hours').hours > 24)
+      problems.push({ index: i, field: 'pullIn', message: 'A run lasts at most 24 hours' });
     const list = byBus.get(r.busNumber) ?? [];
     list.push({ i, from: out.toMillis(), to: back.toMillis() });
     byBus.set(r.busNumber, list);
@@ -82,7 +102,11 @@ function checkRuns(
     list.sort((a, b) => a.from - b.from);
     for (let k = 1; k < list.length; k++) {
       if (list[k]!.from < list[k - 1]!.to) {
-        problems.push({ index: list[k]!.i, field: 'pullOut', message: `Bus ${bus} is still on another run then (${rowName(list[k - 1]!.i)})` });
+        problems.push({
+          index: list[k]!.i,
+          field: 'pullOut',
+          message: `Bus ${bus} is still on another run then (${rowName(list[k - 1]!.i)})`,
+        });
       }
     }
   }
@@ -94,8 +118,13 @@ const INSERT_CHUNK = 1000;
 
 /** Replaces a service day's runs as a whole: every row is saved, or none. */
 export async function replaceServiceDay(
-  db: Db, caller: AuthUser, depotId: string, date: string, input: ServiceDayInput,
-  source: 'typed' | 'uploaded', label: (index: number, field: string) => string = (i, f) => `runs[${i}].${f === 'bus' ? 'busNumber' : f}`,
+  db: Db,
+  caller: AuthUser,
+  depotId: string,
+  date: string,
+  input: ServiceDayInput,
+  source: 'typed' | 'uploaded',
+  label: (index: number, field: string) => string = (i, f) => `runs[${i}].${f === 'bus' ? 'busNumber' : f}`,
   /** Checked under the lock, against the runs stored then (copying refuses to overwrite unasked). */
   precondition?: (existingRuns: number) => void,
   /**
@@ -119,29 +148,52 @@ export async function replaceServiceDay(
       for (const p of problems) fields[label(p.index, p.field)] ??= p.message;
       if (file) {
         const bad = new Set(Object.keys(fields).map((f) => f.split('.')[0]));
-        throw new DomainError('validation_failed', `${bad.size} ${bad.size === 1 ? 'line needs' : 'lines need'} fixing; nothing was saved`, fields);
+        throw new DomainError(
+          'validation_failed',
+          `${bad.size} ${bad.size === 1 ? 'line needs' : 'lines need'} fixing; nothing was saved`,
+          fields,
+        );
       }
-      throw new DomainError('validation_failed', `${problems.length} ${problems.length === 1 ? 'row needs' : 'rows need'} fixing; nothing was saved`, fields);
+      throw new DomainError(
+        'validation_failed',
+        `${problems.length} ${problems.length === 1 ? 'row needs' : 'rows need'} fixing; nothing was saved`,
+        fields,
+      );
     }
     // A reading that comes back unchanged keeps where it came from (typed or uploaded).
-    const before = await tx.select().from(runs).where(and(eq(runs.depotId, depotId), eq(runs.serviceDate, date)));
+    const before = await tx
+      .select()
+      .from(runs)
+      .where(and(eq(runs.depotId, depotId), eq(runs.serviceDate, date)));
     precondition?.(before.length);
     const sourceOf = (r: RunInput) => {
       if (r.arrivalSocPct === null) return null;
-      const same = before.find((b) => b.busId === fleet.get(r.busNumber)!.id && b.pullOut.getTime() === at(r.pullOut).getTime());
+      const same = before.find(
+        (b) => b.busId === fleet.get(r.busNumber)!.id && b.pullOut.getTime() === at(r.pullOut).getTime(),
+      );
       return same && same.arrivalSocPct === r.arrivalSocPct && same.arrivalSocSource ? same.arrivalSocSource : source;
     };
     await tx.delete(runs).where(and(eq(runs.depotId, depotId), eq(runs.serviceDate, date)));
     await tx
       .insert(serviceDays)
       .values({ organisationId: caller.organisationId, depotId, serviceDate: date, forecastLowF: input.forecastLowF })
-      .onConflictDoUpdate({ target: [serviceDays.depotId, serviceDays.serviceDate], set: { forecastLowF: input.forecastLowF } });
+      .onConflictDoUpdate({
+        target: [serviceDays.depotId, serviceDays.serviceDate],
+        set: { forecastLowF: input.forecastLowF },
+      });
     for (let k = 0; k < input.runs.length; k += INSERT_CHUNK) {
       await tx.insert(runs).values(
         input.runs.slice(k, k + INSERT_CHUNK).map((r) => ({
-          organisationId: caller.organisationId, depotId, busId: fleet.get(r.busNumber)!.id, serviceDate: date,
-          pullOut: at(r.pullOut), pullIn: at(r.pullIn), miles: r.miles, kwh: r.kwh,
-          arrivalSocPct: r.arrivalSocPct, arrivalSocSource: sourceOf(r),
+          organisationId: caller.organisationId,
+          depotId,
+          busId: fleet.get(r.busNumber)!.id,
+          serviceDate: date,
+          pullOut: at(r.pullOut),
+          pullIn: at(r.pullIn),
+          miles: r.miles,
+          kwh: r.kwh,
+          arrivalSocPct: r.arrivalSocPct,
+          arrivalSocSource: sourceOf(r),
         })),
       );
     }
@@ -152,22 +204,47 @@ export async function replaceServiceDay(
 }
 
 /** Copies another day's runs to `date` at the same wall-clock times (readings are not copied). */
-export async function copyServiceDay(db: Db, caller: AuthUser, depotId: string, date: string, fromDate: string, replace: boolean): Promise<ServiceDay> {
+export async function copyServiceDay(
+  db: Db,
+  caller: AuthUser,
+  depotId: string,
+  date: string,
+  fromDate: string,
+  replace: boolean,
+): Promise<ServiceDay> {
   const existing = await getServiceDay(db, caller, depotId, date);
   const refuseOverwrite = (runsThere: number) => {
-    if (runsThere && !replace) throw new DomainError('conflict', `${date} already has ${runsThere} runs: choose to replace them`);
+    if (runsThere && !replace)
+      throw new DomainError('conflict', `${date} already has ${runsThere} runs: choose to replace them`);
   };
   refuseOverwrite(existing.runs.length);
   const source = await getServiceDay(db, caller, depotId, fromDate);
-  if (!source.runs.length) throw new DomainError('validation_failed', `${fromDate} has no runs to copy`, { fromDate: 'No runs on that day' });
+  if (!source.runs.length)
+    throw new DomainError('validation_failed', `${fromDate} has no runs to copy`, { fromDate: 'No runs on that day' });
   const shift = (t: string) => {
     const days = DateTime.fromISO(date).diff(DateTime.fromISO(fromDate), 'days').days;
     return DateTime.fromISO(t).plus({ days }).toFormat(LOCAL);
   };
-  return replaceServiceDay(db, caller, depotId, date, {
-    forecastLowF: existing.forecastLowF,
-    runs: source.runs.map((r) => ({ busNumber: r.busNumber, pullOut: shift(r.pullOut), pullIn: shift(r.pullIn), miles: r.miles, kwh: r.kwh, arrivalSocPct: null })),
-  }, 'typed', undefined, refuseOverwrite);
+  return replaceServiceDay(
+    db,
+    caller,
+    depotId,
+    date,
+    {
+      forecastLowF: existing.forecastLowF,
+      runs: source.runs.map((r) => ({
+        busNumber: r.busNumber,
+        pullOut: shift(r.pullOut),
+        pullIn: shift(r.pullIn),
+        miles: r.miles,
+        kwh: r.kwh,
+        arrivalSocPct: null,
+      })),
+    },
+    'typed',
+    undefined,
+    refuseOverwrite,
+  );
 }
 
 export async function busesByIds(db: Db, ids: string[]) {

@@ -118,7 +118,10 @@ describe('access matrix', () => {
 
   it.each(protectedRoutes)('%s needs a signed-in caller', async (route) => {
     const [method, path] = route.split(' ') as [string, string];
-    const res = await app.request()[method.toLowerCase() as 'get'](`/api${samplePath(path)}`).send({});
+    const res = await app
+      .request()
+      [method.toLowerCase() as 'get'](`/api${samplePath(path)}`)
+      .send({});
     expect(res.status).toBe(401);
     expect(res.body.error.code).toBe('unauthenticated');
   });
@@ -126,7 +129,9 @@ describe('access matrix', () => {
   for (const role of ROLES) {
     it.each(protectedRoutes)(`%s as ${role}`, async (route, access) => {
       const [method, path] = route.split(' ') as [string, string];
-      const res = await app.request()[method.toLowerCase() as 'get'](`/api${samplePath(path)}`)
+      const res = await app
+        .request()
+        [method.toLowerCase() as 'get'](`/api${samplePath(path)}`)
         .set('Authorization', `Bearer ${people[role].token}`)
         .send({});
       if ((access as readonly Role[]).includes(role)) {

@@ -27,7 +27,9 @@ export const errorHandler: ErrorRequestHandler = (err, req, res, _next) => {
   }
   if (type === 'entity.too.large') {
     const limit = (err as { limit?: number }).limit;
-    const message = limit ? `The request is larger than ${formatBytes(limit)}: send at most ${formatBytes(limit)}` : 'The request body is too large';
+    const message = limit
+      ? `The request is larger than ${formatBytes(limit)}: send at most ${formatBytes(limit)}`
+      : 'The request body is too large';
     res.status(413).json(body('payload_too_large', message));
     return;
   }
@@ -38,7 +40,11 @@ export const errorHandler: ErrorRequestHandler = (err, req, res, _next) => {
   if (isDatabaseUnavailable(err)) {
     req.log?.warn({ err: scrubError(err) }, 'database unavailable');
     res.setHeader('Retry-After', String(RETRY_AFTER_SECONDS));
-    res.status(503).json(body('unavailable', 'The database is not reachable just now: nothing was changed; try again in a few seconds'));
+    res
+      .status(503)
+      .json(
+        body('unavailable', 'The database is not reachable just now: nothing was changed; try again in a few seconds'),
+      );
     return;
   }
   // Express cannot decode a path parameter with malformed percent-encoding (%E0%A4%A, %ED%A0%80).
@@ -49,14 +55,23 @@ export const errorHandler: ErrorRequestHandler = (err, req, res, _next) => {
   // A change made at the same moment took the same unique key: the request is refused whole.
   const pgCode = databaseErrorCode(err);
   if (pgCode === '23505') {
-    res.status(409).json(body('conflict', 'This conflicts with a change saved at the same moment: reload and try again'));
+    res
+      .status(409)
+      .json(body('conflict', 'This conflicts with a change saved at the same moment: reload and try again'));
     return;
   }
   // Class 22 (data exception): a value the contracts should have refused reached the database,
   // e.g. a number beyond a column's range. The statement failed, so it is the caller's 400.
   if (pgCode?.startsWith('22')) {
     req.log?.warn({ err: scrubError(err) }, 'data exception: a contract let a value through');
-    res.status(400).json(body('bad_request', 'A value in the request cannot be stored (out of range or not valid text): check the numbers and text sent'));
+    res
+      .status(400)
+      .json(
+        body(
+          'bad_request',
+          'A value in the request cannot be stored (out of range or not valid text): check the numbers and text sent',
+        ),
+      );
     return;
   }
   // Scrubbed here too, whatever logger the app was given: a failed query's values may be secrets.

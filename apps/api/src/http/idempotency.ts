@@ -39,9 +39,13 @@ export function idempotencyKeyOf(header: string | string[] | undefined): string 
   if (header === undefined) return undefined;
   const key = Array.isArray(header) ? header.join(',') : header;
   if (!KEY.test(key)) {
-    throw new DomainError('validation_failed', 'Check the Idempotency-Key header: 1 to 255 visible ASCII characters, e.g. a UUID', {
-      'Idempotency-Key': 'Use 1 to 255 visible ASCII characters',
-    });
+    throw new DomainError(
+      'validation_failed',
+      'Check the Idempotency-Key header: 1 to 255 visible ASCII characters, e.g. a UUID',
+      {
+        'Idempotency-Key': 'Use 1 to 255 visible ASCII characters',
+      },
+    );
   }
   return key;
 }
@@ -50,23 +54,31 @@ export function idempotencyKeyOf(header: string | string[] | undefined): string 
 function canonicalJson(value: unknown): string {
   if (Array.isArray(value)) return `[${value.map(canonicalJson).join(',')}]`;
   if (value && typeof value === 'object') {
-    const entries = Object.keys(value).sort().map((k) => `${JSON.stringify(k)}:${canonicalJson((value as Record<string, unknown>)[k])}`);
+    const entries = Object.keys(value)
+      .sort()
+      .map((k) => `${JSON.stringify(k)}:${canonicalJson((value as Record<string, unknown>)[k])}`);
     return `{${entries.join(',')}}`;
   }
   return JSON.stringify(value) ?? 'null';
 }
 
 export function requestHash(method: string, url: string, body: unknown): string {
-  return createHash('sha256').update(`${method.toUpperCase()} ${url}\n${canonicalJson(body ?? null)}`).digest('hex');
+  return createHash('sha256')
+    .update(`${method.toUpperCase()} ${url}\n${canonicalJson(body ?? null)}`)
+    .digest('hex');
 }
 
 const sleep = (ms: number) => new Promise((resolve) => setTimeout(resolve, ms));
 
 export function idempotencyStore(db: Db, clock: Clock, waitMs = 30_000, pollMs = 25): IdempotencyStore {
   const reused = () =>
-    new DomainError('idempotency_key_reused', 'This Idempotency-Key was already used for a different request: use a new key for a new request', {
-      'Idempotency-Key': 'Already used with another body or address',
-    });
+    new DomainError(
+      'idempotency_key_reused',
+      'This Idempotency-Key was already used for a different request: use a new key for a new request',
+      {
+        'Idempotency-Key': 'Already used with another body or address',
+      },
+    );
 
   return {
     async run(req, exec) {
@@ -88,7 +100,10 @@ export function idempotencyStore(db: Db, clock: Clock, waitMs = 30_000, pollMs =
             await db.delete(idempotencyKeys).where(eq(idempotencyKeys.id, claimed.id));
             throw err;
           }
-          await db.update(idempotencyKeys).set({ status: answer.status, response: answer.body ?? null }).where(eq(idempotencyKeys.id, claimed.id));
+          await db
+            .update(idempotencyKeys)
+            .set({ status: answer.status, response: answer.body ?? null })
+            .where(eq(idempotencyKeys.id, claimed.id));
           return { ...answer, replayed: false };
         }
         const [seen] = await db

@@ -29,7 +29,10 @@ export function formatBytes(bytes: number): string {
 export function refuseLargerThan(text: string, limit: number, what: string, field: string): void {
   const size = Buffer.byteLength(text, 'utf8');
   if (size > limit) {
-    throw new DomainError('payload_too_large', `${what} is ${formatBytes(size)}; at most ${formatBytes(limit)} is accepted`,
-      { [field]: `At most ${formatBytes(limit)}` });
+    throw new DomainError(
+      'payload_too_large',
+      `${what} is ${formatBytes(size)}; at most ${formatBytes(limit)} is accepted`,
+      { [field]: `At most ${formatBytes(limit)}` },
+    );
   }
 }

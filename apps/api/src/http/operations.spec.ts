@@ -15,7 +15,12 @@ const app = createTestApp();
 /** A logger whose lines land in an array. */
 function capturedLogger() {
   const lines: string[] = [];
-  const stream = new Writable({ write(chunk, _enc, done) { lines.push(String(chunk)); done(); } });
+  const stream = new Writable({
+    write(chunk, _enc, done) {
+      lines.push(String(chunk));
+      done();
+    },
+  });
   return { log: createLogger({ level: 'info' }, stream), lines };
 }
 
@@ -30,7 +35,14 @@ describe('failed-query logs never carry the values the query was run with', () =
     });
     tiny.get('/boom', async () => {
       // No such depot: the foreign key refuses it, and drizzle's error repeats every parameter.
-      await app.db.insert(chargers).values({ organisationId: randomUUID(), depotId: randomUUID(), label: 'X', maxKw: 60, connector: 'CCS1', ocppPasswordHash: secret });
+      await app.db.insert(chargers).values({
+        organisationId: randomUUID(),
+        depotId: randomUUID(),
+        label: 'X',
+        maxKw: 60,
+        connector: 'CCS1',
+        ocppPasswordHash: secret,
+      });
     });
     tiny.use(errorHandler);
     const res = await supertest(tiny).get('/boom').expect(500);
@@ -47,8 +59,20 @@ describe('failed-query logs never carry the values the query was run with', () =
 
   it('the logger scrubs any error passed as err, and redacts password fields', async () => {
     const secret = `hash-${randomUUID()}`;
-    const err = await app.db.insert(chargers).values({ organisationId: randomUUID(), depotId: randomUUID(), label: 'Y', maxKw: 60, connector: 'CCS1', ocppPasswordHash: secret })
-      .then(() => null, (e: unknown) => e);
+    const err = await app.db
+      .insert(chargers)
+      .values({
+        organisationId: randomUUID(),
+        depotId: randomUUID(),
+        label: 'Y',
+        maxKw: 60,
+        connector: 'CCS1',
+        ocppPasswordHash: secret,
+      })
+      .then(
+        () => null,
+        (e: unknown) => e,
+      );
     expect(String((err as Error).message)).toContain(secret);
     const { log, lines } = capturedLogger();
     log.error({ err, body: { password: secret } }, 'failed');
@@ -60,7 +84,10 @@ describe('Cache-Control', () => {
   it('every /api answer says no-store: public, signed-in, errors and sign-in itself', async () => {
     for (const res of [
       await app.request().get('/api/health'),
-      await app.request().post('/api/auth/login').send({ email: 'nobody@test.nightyard.example', password: 'not-the-password' }),
+      await app
+        .request()
+        .post('/api/auth/login')
+        .send({ email: 'nobody@test.nightyard.example', password: 'not-the-password' }),
       await app.request().get('/api/auth/me'),
       await app.request().get('/api/no-such-route'),
     ]) {
@@ -71,13 +98,24 @@ describe('Cache-Control', () => {
 
 describe('database-away errors are told apart from query errors', () => {
   it('connection refused, terminated, admin shutdown and class 08 are "unavailable"; a constraint violation is not', () => {
-    expect(isDatabaseUnavailable(Object.assign(new Error('connect ECONNREFUSED 127.0.0.1:5432'), { code: 'ECONNREFUSED' }))).toBe(true);
+    expect(
+      isDatabaseUnavailable(Object.assign(new Error('connect ECONNREFUSED 127.0.0.1:5432'), { code: 'ECONNREFUSED' })),
+    ).toBe(true);
     expect(isDatabaseUnavailable(new Error('Connection terminated unexpectedly'))).toBe(true);
-    const wrapped = Object.assign(new Error('Failed query: select 1\nparams: '), { query: 'select 1', cause: Object.assign(new Error('terminating connection due to administrator command'), { code: '57P01' }) });
+    const wrapped = Object.assign(new Error('Failed query: select 1\nparams: '), {
+      query: 'select 1',
+      cause: Object.assign(new Error('terminating connection due to administrator command'), { code: '57P01' }),
+    });
     expect(isDatabaseUnavailable(wrapped)).toBe(true);
     expect(isDatabaseUnavailable(Object.assign(new Error('x'), { code: '08006' }))).toBe(true);
-    expect(isDatabaseUnavailable(new AggregateError([Object.assign(new Error('a'), { code: 'ECONNREFUSED' })]))).toBe(true);
-    expect(isDatabaseUnavailable(Object.assign(new Error('Failed query'), { cause: Object.assign(new Error('dup'), { code: '23505' }) }))).toBe(false);
+    expect(isDatabaseUnavailable(new AggregateError([Object.assign(new Error('a'), { code: 'ECONNREFUSED' })]))).toBe(
+      true,
+    );
+    expect(
+      isDatabaseUnavailable(
+        Object.assign(new Error('Failed query'), { cause: Object.assign(new Error('dup'), { code: '23505' }) }),
+      ),
+    ).toBe(false);
     expect(isDatabaseUnavailable(new Error('Something else'))).toBe(false);
   });
 });
@@ -91,6 +129,8 @@ describe('demo seed by environment', () => {
     expect(loadConfig({ NODE_ENV: 'production', JWT_SECRET: secret }).SEED_DEMO).toBe('never');
     expect(wantsDemoSeed(loadConfig({ NODE_ENV: 'production', JWT_SECRET: secret, SEED_DEMO: 'always' }))).toBe(true);
     expect(wantsDemoSeed(loadConfig({ NODE_ENV: 'development', SEED_DEMO: 'never' }))).toBe(false);
-    expect(() => loadConfig({ NODE_ENV: 'production', JWT_SECRET: secret, SEED_DEMO: 'if-empty' })).toThrow(/SEED_DEMO=always/);
+    expect(() => loadConfig({ NODE_ENV: 'production', JWT_SECRET: secret, SEED_DEMO: 'if-empty' })).toThrow(
+      /SEED_DEMO=always/,
+    );
   });
 });

@@ -77,7 +77,9 @@ export class ApiRoutes {
   ): void {
     const status = spec.status ?? 200;
     if (spec.idempotent && (spec.access === 'public' || !this.idempotency)) {
-      throw new Error(`${spec.method.toUpperCase()} ${spec.path}: idempotent routes need a signed-in caller and an idempotency store`);
+      throw new Error(
+        `${spec.method.toUpperCase()} ${spec.path}: idempotent routes need a signed-in caller and an idempotency store`,
+      );
     }
     const routeName = `${spec.method.toUpperCase()} ${spec.path}`;
     const run = async (req: Request, res: Response) => {
@@ -92,12 +94,18 @@ export class ApiRoutes {
       const key = spec.idempotent ? idempotencyKeyOf(req.headers['idempotency-key']) : undefined;
       const execute = async () => {
         const result = await handler({ body, query, params, user: user as AuthUser, req, res });
-        return { status, body: status === 204 ? null : spec.response && !isChecked(result) ? spec.response.parse(result) : result };
+        return {
+          status,
+          body: status === 204 ? null : spec.response && !isChecked(result) ? spec.response.parse(result) : result,
+        };
       };
       let answer: { status: number; body: unknown };
       if (key) {
         const hash = requestHash(req.method, req.originalUrl, req.body);
-        const kept = await this.idempotency!.run({ userId: (user as AuthUser).id, key, route: routeName, requestHash: hash }, execute);
+        const kept = await this.idempotency!.run(
+          { userId: (user as AuthUser).id, key, route: routeName, requestHash: hash },
+          execute,
+        );
         if (kept.replayed) res.setHeader('Idempotent-Replayed', 'true');
         answer = kept;
       } else {
@@ -125,8 +133,7 @@ export class ApiRoutes {
       path: openapiPath,
       summary: spec.summary,
       tags: [spec.tag],
-      description:
-        spec.access === 'public' ? 'No sign-in needed.' : `Roles allowed: ${spec.access.join(', ')}.`,
+      description: spec.access === 'public' ? 'No sign-in needed.' : `Roles allowed: ${spec.access.join(', ')}.`,
       security: spec.access === 'public' ? [] : [{ bearerAuth: [] }],
       request: {
         params: spec.params as ZodObject | undefined,
@@ -134,20 +141,30 @@ export class ApiRoutes {
         body: spec.body ? { content: { 'application/json': { schema: spec.body } } } : undefined,
         headers: spec.idempotent
           ? z.object({
-              'Idempotency-Key': z.string().optional().describe('Send the same key to retry safely: a repeat gets the first answer for 24 hours'),
+              'Idempotency-Key': z
+                .string()
+                .optional()
+                .describe('Send the same key to retry safely: a repeat gets the first answer for 24 hours'),
             })
           : undefined,
       },
       responses: {
         [status]: spec.eventStream
-          ? { description: 'A stream of Server-Sent Events; each `data:` line is one of these', content: { 'text/event-stream': { schema: spec.eventStream } } }
+          ? {
+              description: 'A stream of Server-Sent Events; each `data:` line is one of these',
+              content: { 'text/event-stream': { schema: spec.eventStream } },
+            }
           : spec.response
             ? { description: 'Success', content: { 'application/json': { schema: spec.response } } }
             : { description: 'Success' },
         400: { description: 'The input is not valid; `fields` says what to fix', content: errorContent },
         ...(spec.idempotent
           ? {
-              409: { description: 'Conflicts with a change saved at the same moment, or the first request with this key is still running', content: errorContent },
+              409: {
+                description:
+                  'Conflicts with a change saved at the same moment, or the first request with this key is still running',
+                content: errorContent,
+              },
               422: { description: 'The Idempotency-Key was used for a different request', content: errorContent },
             }
           : {}),
@@ -155,7 +172,7 @@ export class ApiRoutes {
           ? {}
           : {
               401: { description: 'Not signed in, or the token expired', content: errorContent },
-              403: { description: 'The caller\'s roles do not allow this', content: errorContent },
+              403: { description: "The caller's roles do not allow this", content: errorContent },
             }),
       },
     });

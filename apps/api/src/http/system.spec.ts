@@ -15,7 +15,7 @@ describe('health', () => {
     expect(res.body.error.message).toBe('The database does not answer');
   });
 
-  it('keeps a caller\'s request id', async () => {
+  it("keeps a caller's request id", async () => {
     const app = createTestApp();
     const res = await app.request().get('/api/health').set('X-Request-Id', 'yard-tablet-7.42').expect(200);
     expect(res.headers['x-request-id']).toBe('yard-tablet-7.42');

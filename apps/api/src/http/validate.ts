@@ -2,7 +2,6 @@ import type { ZodType, z } from 'zod';
 import { fieldPath } from '@nightyard/contracts';
 import { DomainError } from './errors';
 
-
 /** Parses `value` or throws a validation error naming each field (for `where`: body, query...). */
 export function parseOrThrow<S extends ZodType>(schema: S, value: unknown, where: string): z.output<S> {
   const result = schema.safeParse(value);

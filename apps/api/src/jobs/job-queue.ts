@@ -46,9 +46,13 @@ export async function startJobQueue(opts: JobOptions): Promise<JobQueue> {
   let workerId: string | undefined;
   if (opts.work) {
     const work = opts.work;
-    workerId = await boss.work<{ planId: string }>(PLAN_QUEUE, { batchSize: 1, pollingIntervalSeconds: 0.5 }, async ([job]) => {
-      if (job) await work(job.data.planId);
-    });
+    workerId = await boss.work<{ planId: string }>(
+      PLAN_QUEUE,
+      { batchSize: 1, pollingIntervalSeconds: 0.5 },
+      async ([job]) => {
+        if (job) await work(job.data.planId);
+      },
+    );
   }
   const enqueuePlan = async (planId: string) => {
     await boss.send(PLAN_QUEUE, { planId }, { singletonKey: planId });
@@ -56,10 +60,12 @@ export async function startJobQueue(opts: JobOptions): Promise<JobQueue> {
     if (workerId) boss.notifyWorker(workerId);
   };
   const waitingPlanIds = async () => {
-    const { rows } = (await boss.getDb().executeSql(
-      `select data->>'planId' as "planId" from pgboss.job where name = $1 and state in ('created', 'retry')`,
-      [PLAN_QUEUE],
-    )) as { rows: { planId: string }[] };
+    const { rows } = (await boss
+      .getDb()
+      .executeSql(
+        `select data->>'planId' as "planId" from pgboss.job where name = $1 and state in ('created', 'retry')`,
+        [PLAN_QUEUE],
+      )) as { rows: { planId: string }[] };
     return new Set(rows.map((r) => r.planId));
   };
   let timer: NodeJS.Timeout | undefined;

@@ -22,7 +22,10 @@ class StreamReader {
   contentType = '';
 
   async open(url: string, token?: string): Promise<this> {
-    const res = await fetch(url, { headers: token ? { Authorization: `Bearer ${token}` } : {}, signal: this.abort.signal });
+    const res = await fetch(url, {
+      headers: token ? { Authorization: `Bearer ${token}` } : {},
+      signal: this.abort.signal,
+    });
     this.status = res.status;
     this.contentType = res.headers.get('content-type') ?? '';
     if (!res.ok || !res.body) {
@@ -105,18 +108,31 @@ describe('live stream of a depot (Server-Sent Events)', () => {
     const port = (server.address() as AddressInfo).port;
     base = `http://127.0.0.1:${port}/api`;
     ocppUrl = `ws://127.0.0.1:${port}/ocpp`;
-    const org = await createOrganisation(app, { sup: ['supervisor'], fac: ['facilities'], yard: ['yard'], finance: ['finance'] });
+    const org = await createOrganisation(app, {
+      sup: ['supervisor'],
+      fac: ['facilities'],
+      yard: ['yard'],
+      finance: ['finance'],
+    });
     ({ sup, fac, yard, finance } = org.users as Record<string, TestUser>);
     const depot = await createDepot(app.db, org.organisationId);
     depotId = depot.depot.id;
     for (const c of depot.chargers) {
-      await app.request().put(`/api/depots/${depotId}/chargers/${c.id}/ocpp`).set(as(fac))
-        .send({ identity: identity(c.label), password: 'test-charger-password' }).expect(204);
+      await app
+        .request()
+        .put(`/api/depots/${depotId}/chargers/${c.id}/ocpp`)
+        .set(as(fac))
+        .send({ identity: identity(c.label), password: 'test-charger-password' })
+        .expect(204);
     }
     await addBuses(app.db, org.organisationId, depotId, ['41', '42']);
     for (const date of ['2026-12-09', '2026-12-10']) {
-      await app.request().put(`/api/depots/${depotId}/service-days/${date}`).set(as(sup))
-        .send({ runs: dayRuns(date, ['41', '42'], () => 20) }).expect(200);
+      await app
+        .request()
+        .put(`/api/depots/${depotId}/service-days/${date}`)
+        .set(as(sup))
+        .send({ runs: dayRuns(date, ['41', '42'], () => 20) })
+        .expect(200);
     }
     planId = (await generatedPlan(app, sup, depotId, '2026-12-09')).id;
     const other = await createOrganisation(app, { stranger: ['admin'] });
@@ -136,12 +152,23 @@ describe('live stream of a depot (Server-Sent Events)', () => {
     expect(stream.status).toBe(200);
     expect(stream.contentType).toMatch(/^text\/event-stream/);
     await expect.poll(() => stream.of('snapshot').length).toBe(1);
-    expect(stream.of('snapshot')[0]!.chargers.map((c) => [c.label, c.status])).toEqual([['A', 'offline'], ['B', 'offline'], ['C', 'offline']]);
+    expect(stream.of('snapshot')[0]!.chargers.map((c) => [c.label, c.status])).toEqual([
+      ['A', 'offline'],
+      ['B', 'offline'],
+      ['C', 'offline'],
+    ]);
 
-    const station = new SimulatedStation({ url: ocppUrl, identity: identity('B'), password: 'test-charger-password', protocol: 'ocpp1.6', meterIntervalMs: 100 });
+    const station = new SimulatedStation({
+      url: ocppUrl,
+      identity: identity('B'),
+      password: 'test-charger-password',
+      protocol: 'ocpp1.6',
+      meterIntervalMs: 100,
+    });
     stations.push(station);
     await station.start();
-    await expect.poll(() => stream.of('charger').at(-1)?.charger, { timeout: 5000 })
+    await expect
+      .poll(() => stream.of('charger').at(-1)?.charger, { timeout: 5000 })
       .toMatchObject({ label: 'B', status: 'available', powerKw: 0 });
 
     await station.fault();
@@ -169,20 +196,39 @@ describe('live stream of a depot (Server-Sent Events)', () => {
     expect(stream.of('snapshot')[0]!.chargers.find((c) => c.label === 'B')).toMatchObject({ status: 'faulted' });
     await station.stop();
     stations.length = 0;
-    await expect.poll(() => stream.of('charger').at(-1)?.charger, { timeout: 5000 }).toMatchObject({ label: 'B', status: 'offline', powerKw: null });
+    await expect
+      .poll(() => stream.of('charger').at(-1)?.charger, { timeout: 5000 })
+      .toMatchObject({ label: 'B', status: 'offline', powerKw: null });
   });
 
   it('tells of a publication and of a yard report with its revision', async () => {
     const stream = await open(`/depots/${depotId}/live`, sup);
     await expect.poll(() => stream.of('snapshot').length).toBe(1);
-    await app.request().post(`/api/plans/${planId}/publish`).set(as(sup)).send({ expectedPublishedId: null }).expect(200);
-    await expect.poll(() => stream.of('plan')).toEqual([expect.objectContaining({ planId, kind: 'published', serviceDate: '2026-12-09', version: 1 })]);
+    await app
+      .request()
+      .post(`/api/plans/${planId}/publish`)
+      .set(as(sup))
+      .send({ expectedPublishedId: null })
+      .expect(200);
+    await expect
+      .poll(() => stream.of('plan'))
+      .toEqual([expect.objectContaining({ planId, kind: 'published', serviceDate: '2026-12-09', version: 1 })]);
     // Before the night starts, a report re-plans the whole night.
-    await app.request().post(`/api/depots/${depotId}/tonight/reports`).set(as(yard))
-      .send({ planId, kind: 'charger_out', charger: 'B', reason: 'Faulted' }).expect(201);
+    await app
+      .request()
+      .post(`/api/depots/${depotId}/tonight/reports`)
+      .set(as(yard))
+      .send({ planId, kind: 'charger_out', charger: 'B', reason: 'Faulted' })
+      .expect(201);
     await expect.poll(() => stream.of('plan').length).toBe(2);
     expect(stream.of('plan')[1]).toMatchObject({ kind: 'revised', version: 2 });
-    expect(stream.of('notice')).toEqual([expect.objectContaining({ kind: 'charger_out', charger: 'B', text: expect.stringContaining('charger B out of service') })]);
+    expect(stream.of('notice')).toEqual([
+      expect.objectContaining({
+        kind: 'charger_out',
+        charger: 'B',
+        text: expect.stringContaining('charger B out of service'),
+      }),
+    ]);
   });
 
   it('is scoped to the organisation and needs a signed-in caller', async () => {
@@ -195,7 +241,14 @@ describe('live stream of a depot (Server-Sent Events)', () => {
     await expect.poll(() => own.of('snapshot').length).toBe(1);
     expect(own.of('snapshot')[0]!.chargers).toEqual([]);
     // Events of the first depot never reach it.
-    live.publish(depotId, { type: 'notice', at: new Date(0).toISOString(), kind: 'bus_absent', text: 'x', charger: null, bus: '41' });
+    live.publish(depotId, {
+      type: 'notice',
+      at: new Date(0).toISOString(),
+      kind: 'bus_absent',
+      text: 'x',
+      charger: null,
+      bus: '41',
+    });
     await new Promise((r) => setTimeout(r, 300));
     expect(own.events.map((e) => e.type)).toEqual(['snapshot']);
   });

@@ -6,7 +6,14 @@ export interface MailLink {
   url: string;
 }
 
-export function invitationMail(p: { to: string; name: string; inviter: string; organisation: string; link: string; hours: number }): OutgoingMail {
+export function invitationMail(p: {
+  to: string;
+  name: string;
+  inviter: string;
+  organisation: string;
+  link: string;
+  hours: number;
+}): OutgoingMail {
   return {
     to: p.to,
     subject: `You are invited to Nightyard (${p.organisation})`,
@@ -39,8 +46,20 @@ export function resetMail(p: { to: string; name: string; link: string; minutes: 
 }
 
 export function planPublishedMail(p: {
-  to: string; name: string; depot: string; night: string; version: number; publishedBy: string; buses: number; sessions: number;
-  currency: string; cost: number; baseline: number; baselineName: string; short: string[]; link: MailLink;
+  to: string;
+  name: string;
+  depot: string;
+  night: string;
+  version: number;
+  publishedBy: string;
+  buses: number;
+  sessions: number;
+  currency: string;
+  cost: number;
+  baseline: number;
+  baselineName: string;
+  short: string[];
+  link: MailLink;
 }): OutgoingMail {
   const money = (v: number) => new Intl.NumberFormat('en-US', { style: 'currency', currency: p.currency }).format(v);
   return {
@@ -53,7 +72,9 @@ export function planPublishedMail(p: {
       '',
       `Buses: ${p.buses}; plug-ins: ${p.sessions}.`,
       `Projected electricity cost: ${money(p.cost)} (${p.baselineName.toLowerCase()}, within the same limits: ${money(p.baseline)}).`,
-      p.short.length ? `Buses that cannot be fully charged: ${p.short.join('; ')}.` : 'Every bus gets the energy its runs need.',
+      p.short.length
+        ? `Buses that cannot be fully charged: ${p.short.join('; ')}.`
+        : 'Every bus gets the energy its runs need.',
       '',
       `${p.link.label}: ${p.link.url}`,
       '',
@@ -63,9 +84,17 @@ export function planPublishedMail(p: {
 }
 
 export function planRevisedMail(p: {
-  to: string; name: string; depot: string; version: number; at: string; reportedBy: string; what: string; moved: string[];
+  to: string;
+  name: string;
+  depot: string;
+  version: number;
+  at: string;
+  reportedBy: string;
+  what: string;
+  moved: string[];
   /** The yard's steps due in the next hour, as the yard page words them ("23:07 Unplug bus 218 ..."). */
-  steps?: string[]; link: MailLink;
+  steps?: string[];
+  link: MailLink;
   /** How many buses the re-plan moved and why, in words (the engine's reasons). */
   why?: { buses: number; reasons: string[] };
 }): OutgoingMail {
@@ -80,7 +109,10 @@ export function planRevisedMail(p: {
       p.moved.length ? `Changed: ${p.moved.join('; ')}.` : 'No bus changed charger or times.',
       '',
       ...(p.why && p.why.reasons.length
-        ? [`${p.why.buses} ${p.why.buses === 1 ? 'bus' : 'buses'} moved from the cut-off on, because: ${p.why.reasons.join('; ')}.`, '']
+        ? [
+            `${p.why.buses} ${p.why.buses === 1 ? 'bus' : 'buses'} moved from the cut-off on, because: ${p.why.reasons.join('; ')}.`,
+            '',
+          ]
         : []),
       ...(p.steps?.length ? ['Steps in the next hour:', ...p.steps.map((s) => `- ${s}`), ''] : []),
       `${p.link.label}: ${p.link.url}`,

@@ -23,7 +23,12 @@ export async function nightOfDepot(db: Db, depot: { id: string; timezone: string
     const today = depotDate(now, zone);
     const day = DateTime.fromISO(today, { zone });
     const days = await serviceDaysAround(db, depot.id, today);
-    known = { zone, dayStartMs: day.toMillis(), dayEndMs: day.plus({ days: 1 }).toMillis(), nights: nightsOfDays(days, zone) };
+    known = {
+      zone,
+      dayStartMs: day.toMillis(),
+      dayEndMs: day.plus({ days: 1 }).toMillis(),
+      nights: nightsOfDays(days, zone),
+    };
     serviceDaysCache.set(depot.id, known);
   }
   const night = nightAmong(known.nights, zone, now);
@@ -40,7 +45,10 @@ export async function nightOfDepot(db: Db, depot: { id: string; timezone: string
  * service day's one write (which forgets them).
  * One API process serves requests; the job workers never ask.
  */
-const serviceDaysCache = new Map<string, { zone: string; dayStartMs: number; dayEndMs: number; nights: ServiceNight[] }>();
+const serviceDaysCache = new Map<
+  string,
+  { zone: string; dayStartMs: number; dayEndMs: number; nights: ServiceNight[] }
+>();
 
 /** After a depot's runs change. */
 export function forgetServiceDays(depotId: string): void {
@@ -59,7 +67,11 @@ export async function serviceDaysAround(db: Db, depotId: string, today: string):
       group by ${runs.serviceDate}, ${runs.busId}
     ) per_bus
     group by service_date`);
-  return rows.map((r) => ({ serviceDate: r.service_date, firstPullIn: new Date(r.first_in), lastFirstPullOut: new Date(r.last_first_out) }));
+  return rows.map((r) => ({
+    serviceDate: r.service_date,
+    firstPullIn: new Date(r.first_in),
+    lastFirstPullOut: new Date(r.last_first_out),
+  }));
 }
 
 export async function depotNight(db: Db, caller: AuthUser, depotId: string, now: Date): Promise<DepotNight> {

@@ -29,8 +29,12 @@ async function depotWithWeek(): Promise<string> {
   const depotId = (await createDepot(app.db, org.organisationId)).depot.id;
   await addBuses(app.db, org.organisationId, depotId, NUMBERS);
   for (const date of ['2026-12-07', '2026-12-08', '2026-12-09', '2026-12-10', '2026-12-11', '2026-12-14']) {
-    await app.request().put(`/api/depots/${depotId}/service-days/${date}`).set(as(sup))
-      .send({ runs: dayRuns(date, NUMBERS, () => 20) }).expect(200);
+    await app
+      .request()
+      .put(`/api/depots/${depotId}/service-days/${date}`)
+      .set(as(sup))
+      .send({ runs: dayRuns(date, NUMBERS, () => 20) })
+      .expect(200);
   }
   return depotId;
 }
@@ -44,7 +48,7 @@ describe('which night it is', () => {
 
   const night = async () => (await app.request().get(`/api/depots/${depotId}/night`).set(as(fin)).expect(200)).body;
 
-  it('a weekday afternoon (15:00): tonight is that day\'s night', async () => {
+  it("a weekday afternoon (15:00): tonight is that day's night", async () => {
     await standAt('2026-12-09T15:00');
     const n = await night();
     expect(n.inForce.serviceDate).toBe('2026-12-09');
@@ -52,7 +56,7 @@ describe('which night it is', () => {
     expect(n.timezone).toBe(ZONE);
   });
 
-  it('Wednesday 00:02: tonight is Tuesday\'s night, still under way until the last pull-out', async () => {
+  it("Wednesday 00:02: tonight is Tuesday's night, still under way until the last pull-out", async () => {
     await standAt('2026-12-09T00:02');
     const n = await night();
     expect(n.tonight).toMatchObject({ serviceDate: '2026-12-08', nextServiceDate: '2026-12-09', fromRuns: true });
@@ -65,14 +69,14 @@ describe('which night it is', () => {
     expect((await night()).tonight).toMatchObject({ serviceDate: '2026-12-11', nextServiceDate: '2026-12-14' });
   });
 
-  it('tells the client the API\'s time on every answer', async () => {
+  it("tells the client the API's time on every answer", async () => {
     await standAt('2026-12-09T00:02');
     const res = await app.request().get(`/api/depots/${depotId}/night`).set(as(fin)).expect(200);
     expect(Number(res.headers['x-server-time'])).toBe(clock.getTime());
     expect(Date.parse(res.body.now)).toBe(clock.getTime());
   });
 
-  it('another organisation\'s depot does not exist for the caller', async () => {
+  it("another organisation's depot does not exist for the caller", async () => {
     const other = await createOrganisation(app, { f: ['finance'] });
     await app.request().get(`/api/depots/${depotId}/night`).set(as(other.users.f!)).expect(404);
   });
@@ -115,15 +119,28 @@ describe('a plan for a night already under way', () => {
     for (const s of after.sessions) {
       if (Date.parse(s.start) < cut) expect(kept.has(`${s.bus} ${s.charger} ${Date.parse(s.start)}`)).toBe(true);
     }
-    expect(second!.notes[0]).toMatch(/under way at 00:02: this plan starts then; before it, version 1 stands as published/);
+    expect(second!.notes[0]).toMatch(
+      /under way at 00:02: this plan starts then; before it, version 1 stands as published/,
+    );
     expect(second!.replanState).toMatchObject({ from: '2026-12-09T00:02', previousPlanId: firstId });
   });
 
   it('a night that is over is refused, and nothing is stored', async () => {
     await standAt('2026-12-09T12:00');
-    const count = async () => (await app.db.select().from(plans).where(and(eq(plans.depotId, depotId), eq(plans.serviceDate, '2026-12-07')))).length;
+    const count = async () =>
+      (
+        await app.db
+          .select()
+          .from(plans)
+          .where(and(eq(plans.depotId, depotId), eq(plans.serviceDate, '2026-12-07')))
+      ).length;
     const n = await count();
-    const res = await app.request().post(`/api/depots/${depotId}/plans`).set(as(sup)).send({ serviceDate: '2026-12-07', includeMidday: false }).expect(400);
+    const res = await app
+      .request()
+      .post(`/api/depots/${depotId}/plans`)
+      .set(as(sup))
+      .send({ serviceDate: '2026-12-07', includeMidday: false })
+      .expect(400);
     expect(res.body.error.message).toMatch(/That night ended at Tue 8 Dec 06:30: plans are for nights still to come/);
     expect(await count()).toBe(n);
   });

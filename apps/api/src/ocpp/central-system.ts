@@ -112,9 +112,17 @@ const WRONG_CREDENTIALS = 'Unknown charger identity or wrong password';
 
 /** Writes a plain HTTP refusal on a socket that asked for an upgrade, and closes it. */
 export function refuseUpgrade(socket: Duplex, status: 400 | 401 | 404 | 500 | 503, message: string): void {
-  const reason = { 400: 'Bad Request', 401: 'Unauthorized', 404: 'Not Found', 500: 'Internal Server Error', 503: 'Service Unavailable' }[status];
+  const reason = {
+    400: 'Bad Request',
+    401: 'Unauthorized',
+    404: 'Not Found',
+    500: 'Internal Server Error',
+    503: 'Service Unavailable',
+  }[status];
   if (socket.writable) {
-    socket.write(`HTTP/1.1 ${status} ${reason}\r\nConnection: close\r\nContent-Type: text/plain\r\nContent-Length: ${Buffer.byteLength(message)}\r\n\r\n${message}`);
+    socket.write(
+      `HTTP/1.1 ${status} ${reason}\r\nConnection: close\r\nContent-Type: text/plain\r\nContent-Length: ${Buffer.byteLength(message)}\r\n\r\n${message}`,
+    );
   }
   socket.destroy();
 }
@@ -134,7 +142,12 @@ function clientAddress(req: IncomingMessage): string {
 /** Connector and EVSE ids are 32-bit in OCPP and in the database; a larger one is a protocol error. */
 function assertIdsInRange(params: Record<string, unknown> | undefined) {
   const evse = params?.evse as Record<string, unknown> | undefined;
-  const ids = [['connectorId', params?.connectorId], ['evseId', params?.evseId], ['evse.id', evse?.id], ['evse.connectorId', evse?.connectorId]] as const;
+  const ids = [
+    ['connectorId', params?.connectorId],
+    ['evseId', params?.evseId],
+    ['evse.id', evse?.id],
+    ['evse.connectorId', evse?.connectorId],
+  ] as const;
   for (const [name, value] of ids) {
     if (typeof value === 'number' && (value > MAX_OCPP_INTEGER || value < 0)) {
       throw createRPCError('PropertyConstraintViolation', `${name} must be between 0 and ${MAX_OCPP_INTEGER}`);
@@ -182,7 +195,9 @@ export class CentralSystem {
     this.failuresByIdentity = new FailureThrottle(limits.perIdentity, limits.windowMs, clock);
     this.failuresByAddress = new FailureThrottle(limits.perAddress, limits.windowMs, clock);
     this.server = new RPCServer({
-      protocols: [...OCPP_PROTOCOLS], strictMode: true, pingIntervalMs: 30_000,
+      protocols: [...OCPP_PROTOCOLS],
+      strictMode: true,
+      pingIntervalMs: 30_000,
       // Bad messages answer with the protocol's error code and a plain text, never a stack.
       respondWithDetailedErrors: false,
       wssOptions: { maxPayload: MAX_FRAME_BYTES },
@@ -278,7 +293,9 @@ export class CentralSystem {
     this.lastSocAt.set(chargerId, at.getTime());
     const reading = { depotId, chargerId, charger: label, socPct: soc.pct, at };
     // The charger's message is answered at once; the reading (and any re-plan) follows on its own.
-    this.socWork = this.socWork.then(() => listener(reading)).catch((err: unknown) => this.log.warn({ err, chargerId }, 'state of charge reading not taken'));
+    this.socWork = this.socWork
+      .then(() => listener(reading))
+      .catch((err: unknown) => this.log.warn({ err, chargerId }, 'state of charge reading not taken'));
   }
 
   /** Resolves once every reading heard so far has been taken (tests, shutdown). */
@@ -299,28 +316,29 @@ export class CentralSystem {
       // What this charger last said, and what the live streams were last told.
       const state: Required<LiveValues> = { liveConnected: false, liveStatus: 'offline', livePowerW: null };
       let told: LiveCharger | null = null;
-      writer = new LiveStateWriter(
-        async (values) => {
-          const seenAt = this.clock();
-          Object.assign(state, values);
-          await this.db.update(chargers).set({ ...values, liveSeenAt: seenAt }).where(eq(chargers.id, chargerId)).then(
+      writer = new LiveStateWriter(async (values) => {
+        const seenAt = this.clock();
+        Object.assign(state, values);
+        await this.db
+          .update(chargers)
+          .set({ ...values, liveSeenAt: seenAt })
+          .where(eq(chargers.id, chargerId))
+          .then(
             () => undefined,
             (err: unknown) => this.log.warn({ err, chargerId }, 'live status not stored'),
           );
-          // Pushed even when the write failed: the yard must hear of a fault whatever the database does.
-          const now = liveChargerOf({ id: chargerId, label, ...state, liveSeenAt: seenAt });
-          if (told && told.status === now.status && told.powerKw === now.powerKw) return;
-          told = now;
-          for (const listener of this.liveListeners) {
-            try {
-              listener(depotId, now);
-            } catch (err) {
-              this.log.warn({ err, chargerId }, 'live change listener failed');
-            }
+        // Pushed even when the write failed: the yard must hear of a fault whatever the database does.
+        const now = liveChargerOf({ id: chargerId, label, ...state, liveSeenAt: seenAt });
+        if (told && told.status === now.status && told.powerKw === now.powerKw) return;
+        told = now;
+        for (const listener of this.liveListeners) {
+          try {
+            listener(depotId, now);
+          } catch (err) {
+            this.log.warn({ err, chargerId }, 'live change listener failed');
           }
-        },
-        this.clock,
-      );
+        }
+      }, this.clock);
       this.writers.set(chargerId, writer);
     }
     return writer;
@@ -336,7 +354,8 @@ export class CentralSystem {
     const older = this.connected.get(chargerId);
     this.connected.set(chargerId, client);
     // The charger reconnected: its older connection is stale (often half-open) and is ended.
-    if (older) void older.close({ code: 1000, reason: 'Replaced by a newer connection', force: true }).catch(() => undefined);
+    if (older)
+      void older.close({ code: 1000, reason: 'Replaced by a newer connection', force: true }).catch(() => undefined);
     // Stations set their clocks from these answers (BootNotification, Heartbeat): the API's clock.
     const now = () => this.clock().toISOString();
     const live = this.writerFor(client.session);
@@ -361,7 +380,9 @@ export class CentralSystem {
       // Send tonight's and the next night's profiles once the charger has been told it is accepted.
       this.sentTo.delete(client);
       setTimeout(() => {
-        this.sendNights(client.session.depotId, chargerId).catch((err: unknown) => this.log.warn({ err, chargerId }, 'current plan not sent'));
+        this.sendNights(client.session.depotId, chargerId).catch((err: unknown) =>
+          this.log.warn({ err, chargerId }, 'current plan not sent'),
+        );
       }, 50);
       return { status: 'Accepted', currentTime: now(), interval: 30 };
     });
@@ -387,7 +408,9 @@ export class CentralSystem {
       this.socSample(client, params.meterValue, false);
       return {};
     });
-    on('Authorize', () => (client.protocol === 'ocpp1.6' ? { idTagInfo: { status: 'Accepted' } } : { idTokenInfo: { status: 'Accepted' } }));
+    on('Authorize', () =>
+      client.protocol === 'ocpp1.6' ? { idTagInfo: { status: 'Accepted' } } : { idTokenInfo: { status: 'Accepted' } },
+    );
     on('StartTransaction', () => {
       this.awaitingSoc.add(client);
       return { transactionId: Math.floor(Math.random() * 2 ** 31), idTagInfo: { status: 'Accepted' } };
@@ -421,7 +444,10 @@ export class CentralSystem {
    * those two nights of ours, whose stack levels always differ (see ProfileNight).
    */
   async sendPlan(planId: string): Promise<number> {
-    const [plan] = await this.db.select({ depotId: plans.depotId, state: plans.state }).from(plans).where(eq(plans.id, planId));
+    const [plan] = await this.db
+      .select({ depotId: plans.depotId, state: plans.state })
+      .from(plans)
+      .where(eq(plans.id, planId));
     if (!plan || plan.state !== 'published') return 0;
     return this.sendNights(plan.depotId);
   }
@@ -440,7 +466,10 @@ export class CentralSystem {
       else if (waiting.targets !== 'all') waiting.targets.add(onlyChargerId);
       return waiting.done;
     }
-    const entry: { targets: Set<string> | 'all'; done: Promise<number> } = { targets: onlyChargerId ? new Set([onlyChargerId]) : 'all', done: Promise.resolve(0) };
+    const entry: { targets: Set<string> | 'all'; done: Promise<number> } = {
+      targets: onlyChargerId ? new Set([onlyChargerId]) : 'all',
+      done: Promise.resolve(0),
+    };
     this.waiting.set(depotId, entry);
     entry.done = this.inTurn(depotId, () => {
       this.waiting.delete(depotId);
@@ -450,15 +479,31 @@ export class CentralSystem {
   }
 
   private async sendNightsNow(depotId: string, only: Set<string> | 'all'): Promise<number> {
-    const targets = (await this.db.select().from(chargers).where(and(eq(chargers.depotId, depotId), isNotNull(chargers.ocppIdentity))))
-      .filter((c) => (only === 'all' || only.has(c.id)) && this.connected.has(c.id));
+    const targets = (
+      await this.db
+        .select()
+        .from(chargers)
+        .where(and(eq(chargers.depotId, depotId), isNotNull(chargers.ocppIdentity)))
+    ).filter((c) => (only === 'all' || only.has(c.id)) && this.connected.has(c.id));
     if (!targets.length) return 0;
-    const [depot] = await this.db.select({ id: depots.id, timezone: depots.timezone }).from(depots).where(eq(depots.id, depotId));
+    const [depot] = await this.db
+      .select({ id: depots.id, timezone: depots.timezone })
+      .from(depots)
+      .where(eq(depots.id, depotId));
     if (!depot) return 0;
     const { tonight } = await nightOfDepot(this.db, depot, this.clock());
     const dates = [tonight.serviceDate, tonight.nextServiceDate];
-    const published = await this.db.select({ id: plans.id, serviceDate: plans.serviceDate }).from(plans)
-      .where(and(eq(plans.depotId, depotId), inArray(plans.serviceDate, dates), eq(plans.state, 'published'), isNotNull(plans.result)));
+    const published = await this.db
+      .select({ id: plans.id, serviceDate: plans.serviceDate })
+      .from(plans)
+      .where(
+        and(
+          eq(plans.depotId, depotId),
+          inArray(plans.serviceDate, dates),
+          eq(plans.state, 'published'),
+          isNotNull(plans.result),
+        ),
+      );
     const bindings = await profileNightsOf(this.db, depot, dates);
     const nights = dates.flatMap((date, k) => {
       const plan = published.find((p) => p.serviceDate === date);
@@ -470,33 +515,56 @@ export class CentralSystem {
     const resultOf = (planId: string) => {
       let r = results.get(planId);
       if (!r) {
-        r = this.db.select({ result: plans.result }).from(plans).where(eq(plans.id, planId)).then(([p]) => planResultSchema.parse(p!.result));
+        r = this.db
+          .select({ result: plans.result })
+          .from(plans)
+          .where(eq(plans.id, planId))
+          .then(([p]) => planResultSchema.parse(p!.result));
         results.set(planId, r);
       }
       return r;
     };
     let sent = 0;
-    await Promise.all(targets.map(async (c) => {
-      const client = this.connected.get(c.id);
-      // The charger's connector / EVSE is part of what it was sent (facilities may change it).
-      const sentKey = `${signature}|${c.connectorId}|${c.evseId}`;
-      if (!client || this.sentTo.get(client) === sentKey) return;
-      const version: OcppVersion = client.protocol === 'ocpp2.0.1' ? '2.0.1' : '1.6';
-      let all = true;
-      for (const n of nights) {
-        if (await this.sendProfile(client, c, n.planId, await resultOf(n.planId), n.night, version)) sent++;
-        else all = false;
-      }
-      if (all) this.sentTo.set(client, sentKey);
-    }));
+    await Promise.all(
+      targets.map(async (c) => {
+        const client = this.connected.get(c.id);
+        // The charger's connector / EVSE is part of what it was sent (facilities may change it).
+        const sentKey = `${signature}|${c.connectorId}|${c.evseId}`;
+        if (!client || this.sentTo.get(client) === sentKey) return;
+        const version: OcppVersion = client.protocol === 'ocpp2.0.1' ? '2.0.1' : '1.6';
+        let all = true;
+        for (const n of nights) {
+          if (await this.sendProfile(client, c, n.planId, await resultOf(n.planId), n.night, version)) sent++;
+          else all = false;
+        }
+        if (all) this.sentTo.set(client, sentKey);
+      }),
+    );
     return sent;
   }
 
-  private async sendProfile(client: RpcClient, c: typeof chargers.$inferSelect, planId: string, result: PlanResult, night: ProfileNight, version: OcppVersion) {
-    const [profile] = chargingProfiles(result, night, [{ label: c.label, connectorId: c.connectorId, evseId: c.evseId }], version);
+  private async sendProfile(
+    client: RpcClient,
+    c: typeof chargers.$inferSelect,
+    planId: string,
+    result: PlanResult,
+    night: ProfileNight,
+    version: OcppVersion,
+  ) {
+    const [profile] = chargingProfiles(
+      result,
+      night,
+      [{ label: c.label, connectorId: c.connectorId, evseId: c.evseId }],
+      version,
+    );
     try {
-      const reply = (await client.call('SetChargingProfile', profile!.payload, { callTimeoutMs: PROFILE_CALL_TIMEOUT_MS })) as { status?: string };
-      this.log.info({ charger: c.label, status: reply?.status, planId, night: night.serviceDate }, 'charging profile sent');
+      const reply = (await client.call('SetChargingProfile', profile!.payload, {
+        callTimeoutMs: PROFILE_CALL_TIMEOUT_MS,
+      })) as { status?: string };
+      this.log.info(
+        { charger: c.label, status: reply?.status, planId, night: night.serviceDate },
+        'charging profile sent',
+      );
       return reply?.status === 'Accepted';
     } catch (err) {
       this.log.warn({ err, charger: c.label }, 'charging profile refused');
@@ -507,7 +575,10 @@ export class CentralSystem {
   /** Runs `work` after the depot's earlier sends have finished. */
   private inTurn<T>(depotId: string, work: () => Promise<T>): Promise<T> {
     const next = (this.sending.get(depotId) ?? Promise.resolve()).then(work, work);
-    const tail = next.then(() => undefined, () => undefined);
+    const tail = next.then(
+      () => undefined,
+      () => undefined,
+    );
     this.sending.set(depotId, tail);
     void tail.then(() => {
       if (this.sending.get(depotId) === tail) this.sending.delete(depotId);

@@ -79,7 +79,11 @@ const utc = (iso: string) => new Date(Date.parse(iso)).toISOString().replace(/\.
  * The night of `serviceDate` as its profiles carry it, from the depot's service days around it
  * (the night model): where the runs do not say, a calendar night (noon to noon at the depot).
  */
-export function profileNightOf(serviceDays: readonly ServiceDayTimes[], zone: string, serviceDate: string): ProfileNight {
+export function profileNightOf(
+  serviceDays: readonly ServiceDayTimes[],
+  zone: string,
+  serviceDate: string,
+): ProfileNight {
   const nights = nightsOfDays(serviceDays, zone);
   const night = nights.find((n) => n.serviceDate === serviceDate) ?? calendarNight(serviceDate, zone);
   const previous = nights.filter((n) => n.serviceDate < serviceDate).at(-1);
@@ -88,8 +92,11 @@ export function profileNightOf(serviceDays: readonly ServiceDayTimes[], zone: st
   // The older night keeps an overlap (unless it would swallow this night whole).
   if (previous && Date.parse(previous.end) > from && Date.parse(previous.end) < to) from = Date.parse(previous.end);
   return {
-    serviceDate, id: profileIdOf(serviceDate), stackLevel: stackLevelOf(serviceDate, night.nextServiceDate),
-    validFrom: utc(new Date(from).toISOString()), validTo: utc(new Date(to).toISOString()),
+    serviceDate,
+    id: profileIdOf(serviceDate),
+    stackLevel: stackLevelOf(serviceDate, night.nextServiceDate),
+    validFrom: utc(new Date(from).toISOString()),
+    validTo: utc(new Date(to).toISOString()),
   };
 }
 
@@ -98,7 +105,10 @@ export function profileNightOf(serviceDays: readonly ServiceDayTimes[], zone: st
  * power, limits in whole watts (OCPP validators reject fractional kW), 0 W between sessions so a
  * bus plugged in outside the plan waits for its turn.
  */
-export function schedulePeriods(result: PlanResult, charger: string): { startSchedule: string; duration: number; periods: { startPeriod: number; limit: number }[] } {
+export function schedulePeriods(
+  result: PlanResult,
+  charger: string,
+): { startSchedule: string; duration: number; periods: { startPeriod: number; limit: number }[] } {
   const slots = result.slots;
   const startMs = Date.parse(slots[0]!.start);
   const slotIndex = new Map(slots.map((s, i) => [Date.parse(s.start), i]));
@@ -116,11 +126,20 @@ export function schedulePeriods(result: PlanResult, charger: string): { startSch
     periods.push({ startPeriod: Math.round((Date.parse(slots[i]!.start) - startMs) / 1000), limit: w });
   });
   const endMs = Date.parse(slots.at(-1)!.start) + 15 * 60_000;
-  return { startSchedule: utc(new Date(startMs).toISOString()), duration: Math.round((endMs - startMs) / 1000), periods };
+  return {
+    startSchedule: utc(new Date(startMs).toISOString()),
+    duration: Math.round((endMs - startMs) / 1000),
+    periods,
+  };
 }
 
 /** SetChargingProfile payloads for every charger of the plan of `night`, in the chosen OCPP version. */
-export function chargingProfiles(result: PlanResult, night: ProfileNight, chargers: ChargerRef[], version: OcppVersion): ProfileExport[] {
+export function chargingProfiles(
+  result: PlanResult,
+  night: ProfileNight,
+  chargers: ChargerRef[],
+  version: OcppVersion,
+): ProfileExport[] {
   const { id, stackLevel, validFrom, validTo } = night;
   return chargers.map((c) => {
     const { startSchedule, duration, periods } = schedulePeriods(result, c.label);

@@ -27,15 +27,23 @@ function rawUpgrade(port: number, path: string, headers: Record<string, string> 
     });
     socket.on('close', () => resolve(data.split('\r\n')[0] ?? ''));
     socket.on('error', reject);
-    const lines = [`GET ${path} HTTP/1.1`, 'Host: 127.0.0.1', 'Upgrade: websocket', 'Connection: Upgrade',
-      'Sec-WebSocket-Key: dGhlIHNhbXBsZSBub25jZQ==', 'Sec-WebSocket-Version: 13', ...Object.entries(headers).map(([k, v]) => `${k}: ${v}`)];
+    const lines = [
+      `GET ${path} HTTP/1.1`,
+      'Host: 127.0.0.1',
+      'Upgrade: websocket',
+      'Connection: Upgrade',
+      'Sec-WebSocket-Key: dGhlIHNhbXBsZSBub25jZQ==',
+      'Sec-WebSocket-Version: 13',
+      ...Object.entries(headers).map(([k, v]) => `${k}: ${v}`),
+    ];
     socket.write(`${lines.join('\r\n')}\r\n\r\n`);
     // The server must close the socket itself after a refusal.
     socket.setTimeout(5000, () => reject(new Error('the server left the socket open')));
   });
 }
 
-const basic = (identity: string, password: string) => `Basic ${Buffer.from(`${identity}:${password}`).toString('base64')}`;
+const basic = (identity: string, password: string) =>
+  `Basic ${Buffer.from(`${identity}:${password}`).toString('base64')}`;
 
 describe('OCPP central system under hostile input', () => {
   const app = createTestApp();
@@ -62,8 +70,12 @@ describe('OCPP central system under hostile input', () => {
     chargerIds = [];
     for (const c of depot.chargers) {
       const identity = `H-${c.label}-${depot.depot.id.slice(0, 8)}`;
-      await app.request().put(`/api/depots/${depot.depot.id}/chargers/${c.id}/ocpp`).set({ Authorization: `Bearer ${fac.token}` })
-        .send({ identity, password: PASSWORD }).expect(204);
+      await app
+        .request()
+        .put(`/api/depots/${depot.depot.id}/chargers/${c.id}/ocpp`)
+        .set({ Authorization: `Bearer ${fac.token}` })
+        .send({ identity, password: PASSWORD })
+        .expect(204);
       identities.push(identity);
       chargerIds.push(c.id);
     }
@@ -78,7 +90,9 @@ describe('OCPP central system under hostile input', () => {
     new RPCClient({ endpoint: url, identity, password, protocols, reconnect: false, strictMode: false } as never);
 
   it('a malformed percent-encoding in the address gets 400 and a closed socket; the API serves on', async () => {
-    expect(await rawUpgrade(port, '/ocpp/%E0%A4%A', { 'Sec-WebSocket-Protocol': 'ocpp1.6' })).toBe('HTTP/1.1 400 Bad Request');
+    expect(await rawUpgrade(port, '/ocpp/%E0%A4%A', { 'Sec-WebSocket-Protocol': 'ocpp1.6' })).toBe(
+      'HTTP/1.1 400 Bad Request',
+    );
     expect(await rawUpgrade(port, '/ocpp/', { 'Sec-WebSocket-Protocol': 'ocpp1.6' })).toBe('HTTP/1.1 400 Bad Request');
     expect(await rawUpgrade(port, '/not-ocpp/x')).toBe('HTTP/1.1 404 Not Found');
     await app.request().get('/api/health').expect(200);
@@ -87,8 +101,12 @@ describe('OCPP central system under hostile input', () => {
   it('a connection that offers no OCPP subprotocol is refused (schema checks always apply)', async () => {
     const auth = { Authorization: basic(identities[0]!, PASSWORD) };
     expect(await rawUpgrade(port, `/ocpp/${identities[0]}`, auth)).toBe('HTTP/1.1 400 Bad Request');
-    expect(await rawUpgrade(port, `/ocpp/${identities[0]}`, { ...auth, 'Sec-WebSocket-Protocol': 'ocpp1.5' })).toBe('HTTP/1.1 400 Bad Request');
-    expect(await rawUpgrade(port, `/ocpp/${identities[0]}`, { ...auth, 'Sec-WebSocket-Protocol': 'ocpp1.6' })).toBe('HTTP/1.1 101 Switching Protocols');
+    expect(await rawUpgrade(port, `/ocpp/${identities[0]}`, { ...auth, 'Sec-WebSocket-Protocol': 'ocpp1.5' })).toBe(
+      'HTTP/1.1 400 Bad Request',
+    );
+    expect(await rawUpgrade(port, `/ocpp/${identities[0]}`, { ...auth, 'Sec-WebSocket-Protocol': 'ocpp1.6' })).toBe(
+      'HTTP/1.1 101 Switching Protocols',
+    );
   });
 
   it('a 60 MB frame is refused: the connection is closed with 1009 (message too big)', async () => {
@@ -101,13 +119,15 @@ describe('OCPP central system under hostile input', () => {
     await app.request().get('/api/health').expect(200);
   });
 
-  it('connector and EVSE ids above 2^31-1 get the protocol\'s PropertyConstraintViolation, not a crash', async () => {
+  it("connector and EVSE ids above 2^31-1 get the protocol's PropertyConstraintViolation, not a crash", async () => {
     const c = client(identities[1]!);
     await c.connect();
-    await expect(c.call('StatusNotification', { connectorId: 2 ** 31, errorCode: 'NoError', status: 'Available' }))
-      .rejects.toMatchObject({ rpcErrorCode: 'PropertyConstraintViolation' });
-    await expect(c.call('MeterValues', { connectorId: 2 ** 53, meterValue: [] }))
-      .rejects.toMatchObject({ rpcErrorCode: 'PropertyConstraintViolation' });
+    await expect(
+      c.call('StatusNotification', { connectorId: 2 ** 31, errorCode: 'NoError', status: 'Available' }),
+    ).rejects.toMatchObject({ rpcErrorCode: 'PropertyConstraintViolation' });
+    await expect(c.call('MeterValues', { connectorId: 2 ** 53, meterValue: [] })).rejects.toMatchObject({
+      rpcErrorCode: 'PropertyConstraintViolation',
+    });
     await expect(c.call('Heartbeat', {})).resolves.toMatchObject({ currentTime: expect.any(String) });
     await c.close({ force: true });
   });
@@ -125,11 +145,13 @@ describe('OCPP central system under hostile input', () => {
     const [row] = await app.db.select().from(chargers).where(eq(chargers.id, chargerIds[2]!));
     expect(row).toMatchObject({ liveConnected: true, liveStatus: 'charging' });
     await second.close({ force: true });
-    await expect.poll(async () => {
-      await central.settled();
-      const [r] = await app.db.select().from(chargers).where(eq(chargers.id, chargerIds[2]!));
-      return r?.liveConnected;
-    }).toBe(false);
+    await expect
+      .poll(async () => {
+        await central.settled();
+        const [r] = await app.db.select().from(chargers).where(eq(chargers.id, chargerIds[2]!));
+        return r?.liveConnected;
+      })
+      .toBe(false);
   });
 
   it('a heartbeat flood costs a handful of writes and the charger stays served', async () => {
@@ -149,7 +171,11 @@ describe('OCPP central system under hostile input', () => {
 
   it('too many wrong passwords: the identity, then the address, are refused at once even with the right password', async () => {
     const upgrade = (identity: string, password: string, forwardedFor: string) =>
-      rawUpgrade(port, `/ocpp/${identity}`, { Authorization: basic(identity, password), 'Sec-WebSocket-Protocol': 'ocpp1.6', 'X-Forwarded-For': forwardedFor });
+      rawUpgrade(port, `/ocpp/${identity}`, {
+        Authorization: basic(identity, password),
+        'Sec-WebSocket-Protocol': 'ocpp1.6',
+        'X-Forwarded-For': forwardedFor,
+      });
     for (let i = 0; i < limits.perIdentity; i++) {
       expect(await upgrade(identities[0]!, `wrong-password-${i}`, '192.0.2.1')).toBe('HTTP/1.1 401 Unauthorized');
     }
@@ -176,10 +202,14 @@ describe('live-state writes per charger', () => {
     const writes: LiveValues[] = [];
     let release!: () => void;
     let t = 0;
-    const writer = new LiveStateWriter(async (v) => {
-      writes.push(v);
-      await new Promise<void>((r) => (release = r));
-    }, () => new Date(t), 5000);
+    const writer = new LiveStateWriter(
+      async (v) => {
+        writes.push(v);
+        await new Promise<void>((r) => (release = r));
+      },
+      () => new Date(t),
+      5000,
+    );
     writer.set({ liveConnected: true });
     for (let i = 0; i < 1000; i++) writer.set({ livePowerW: i });
     writer.set({ liveStatus: 'charging' });

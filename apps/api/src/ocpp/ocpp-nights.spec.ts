@@ -58,11 +58,20 @@ describe('charging profiles are bound to their night (central system and station
     await addBuses(app.db, org.organisationId, depotId, ['31', '32']);
     // Wednesday to Friday, then Monday: Friday's night runs to Monday's pull-outs.
     for (const date of ['2026-12-09', '2026-12-10', '2026-12-11', '2026-12-14']) {
-      await app.request().put(`/api/depots/${depotId}/service-days/${date}`).set(as(sup)).send({ runs: dayRuns(date, ['31', '32'], () => 20) }).expect(200);
+      await app
+        .request()
+        .put(`/api/depots/${depotId}/service-days/${date}`)
+        .set(as(sup))
+        .send({ runs: dayRuns(date, ['31', '32'], () => 20) })
+        .expect(200);
     }
     for (const c of depot.chargers) {
-      await app.request().put(`/api/depots/${depotId}/chargers/${c.id}/ocpp`).set(as(fac))
-        .send({ identity: `N-${c.label}-${depotId.slice(0, 8)}`, password: 'test-charger-password' }).expect(204);
+      await app
+        .request()
+        .put(`/api/depots/${depotId}/chargers/${c.id}/ocpp`)
+        .set(as(fac))
+        .send({ identity: `N-${c.label}-${depotId.slice(0, 8)}`, password: 'test-charger-password' })
+        .expect(204);
     }
     // Planned ahead on Tuesday 1 December, published during Wednesday's night.
     for (const date of ['2026-12-09', '2026-12-10', '2026-12-11']) {
@@ -73,8 +82,16 @@ describe('charging profiles are bound to their night (central system and station
     await signInAgain(app, sup, fac);
     url = `ws://127.0.0.1:${(server.address() as AddressInfo).port}/ocpp`;
     for (const c of depot.chargers) {
-      stations.push(new SimulatedStation({ url, identity: `N-${c.label}-${depotId.slice(0, 8)}`, password: 'test-charger-password',
-        protocol: c.label === 'C' ? 'ocpp2.0.1' : 'ocpp1.6', clock: () => now, meterIntervalMs: 200 }));
+      stations.push(
+        new SimulatedStation({
+          url,
+          identity: `N-${c.label}-${depotId.slice(0, 8)}`,
+          password: 'test-charger-password',
+          protocol: c.label === 'C' ? 'ocpp2.0.1' : 'ocpp1.6',
+          clock: () => now,
+          meterIntervalMs: 200,
+        }),
+      );
     }
     await Promise.all(stations.map((s) => s.start()));
   }, 120_000);
@@ -95,13 +112,18 @@ describe('charging profiles are bound to their night (central system and station
     expect(expected.some((w) => w > 0)).toBe(true);
     expect(stations.map((s) => s.limitW())).toEqual(expected);
     // The live power the chargers report is the plan's.
-    await expect.poll(async () => {
-      const rows = await app.db.select().from(chargers).where(eq(chargers.depotId, depotId));
-      return stations.map((s) => rows.find((r) => r.label === label(s))?.livePowerW);
-    }, { timeout: 5000 }).toEqual(expected);
+    await expect
+      .poll(
+        async () => {
+          const rows = await app.db.select().from(chargers).where(eq(chargers.depotId, depotId));
+          return stations.map((s) => rows.find((r) => r.label === label(s))?.livePowerW);
+        },
+        { timeout: 5000 },
+      )
+      .toEqual(expected);
   });
 
-  it('the next night published: chargers still follow tonight and hold the next night\'s profile for later', async () => {
+  it("the next night published: chargers still follow tonight and hold the next night's profile for later", async () => {
     const tonight = plan['2026-12-09']!;
     const next = plan['2026-12-10']!;
     const before = stations.map((s) => s.limitW());
@@ -111,7 +133,9 @@ describe('charging profiles are bound to their night (central system and station
     expect(stations.map((s) => s.limitW())).toEqual(before);
     // ... and so for every quarter hour left of tonight.
     for (let t = now.getTime(); t < Date.parse(tonight.result.slots.at(-1)!.start); t += 900_000) {
-      expect(stations.map((s) => s.limitW(new Date(t)))).toEqual(stations.map((s) => plannedW(tonight.result, label(s), new Date(t))));
+      expect(stations.map((s) => s.limitW(new Date(t)))).toEqual(
+        stations.map((s) => plannedW(tonight.result, label(s), new Date(t))),
+      );
     }
     stations.forEach((s, i) => {
       const held = s.profiles.profiles;
@@ -132,54 +156,88 @@ describe('charging profiles are bound to their night (central system and station
     for (const s of stations) expect(ids(s)).toEqual([20261209, 20261210]);
   });
 
-  it('a revision of tonight replaces tonight\'s profile only', async () => {
+  it("a revision of tonight replaces tonight's profile only", async () => {
     const thursday = stations.map((s) => s.profiles.profiles.find((p) => p.id === 20261210));
     const revision = await generatedPlan(app, sup, depotId, '2026-12-09');
     const sent = stations.map((s) => s.received.length);
     await publish(revision.id, plan['2026-12-09']!.id);
     // Tonight's profile first, then the next night's again (unchanged).
-    for (const [i, s] of stations.entries()) await expect.poll(() => s.received.length, { timeout: 5000 }).toBe(sent[i]! + 2);
-    expect(stations.map((s) => s.received.at(-2))).toEqual(stations.map((s) => expect.objectContaining(
-      s.client.identity!.includes('-C-') ? { chargingProfile: expect.objectContaining({ id: 20261209 }) } : { csChargingProfiles: expect.objectContaining({ chargingProfileId: 20261209 }) })));
+    for (const [i, s] of stations.entries())
+      await expect.poll(() => s.received.length, { timeout: 5000 }).toBe(sent[i]! + 2);
+    expect(stations.map((s) => s.received.at(-2))).toEqual(
+      stations.map((s) =>
+        expect.objectContaining(
+          s.client.identity!.includes('-C-')
+            ? { chargingProfile: expect.objectContaining({ id: 20261209 }) }
+            : { csChargingProfiles: expect.objectContaining({ chargingProfileId: 20261209 }) },
+        ),
+      ),
+    );
     stations.forEach((s, i) => {
       expect(ids(s)).toEqual([20261209, 20261210]);
       expect(s.profiles.profiles.find((p) => p.id === 20261210)).toEqual(thursday[i]);
     });
     // Every quarter hour of the rest of the night follows the revision.
     for (let t = now.getTime(); t < Date.parse(revision.result.slots.at(-1)!.start); t += 900_000) {
-      expect(stations.map((s) => s.limitW(new Date(t)))).toEqual(stations.map((s) => plannedW(revision.result, label(s), new Date(t))));
+      expect(stations.map((s) => s.limitW(new Date(t)))).toEqual(
+        stations.map((s) => plannedW(revision.result, label(s), new Date(t))),
+      );
     }
     plan['2026-12-09'] = { id: revision.id, result: revision.result };
   });
 
-  it('when Thursday\'s night is under way the chargers follow it and get Friday\'s with their next heartbeat', async () => {
+  it("when Thursday's night is under way the chargers follow it and get Friday's with their next heartbeat", async () => {
     now = chargingInstant(plan['2026-12-10']!.result);
     await Promise.all(stations.map((s) => s.client.call('Heartbeat', {})));
     // A 1.6 station's expired Wednesday profile gave way to Friday's (same stack level); a 2.0.1
     // station keeps it beside them, out of date and so out of the way.
     for (const s of stations) {
-      await expect.poll(() => ids(s), { timeout: 5000 }).toEqual(label(s) === 'C' ? [20261209, 20261210, 20261211] : [20261210, 20261211]);
+      await expect
+        .poll(() => ids(s), { timeout: 5000 })
+        .toEqual(label(s) === 'C' ? [20261209, 20261210, 20261211] : [20261210, 20261211]);
     }
-    expect(stations.map((s) => s.limitW())).toEqual(stations.map((s) => plannedW(plan['2026-12-10']!.result, label(s), now)));
-    const [row] = await app.db.select().from(chargers).where(and(eq(chargers.depotId, depotId), eq(chargers.label, 'A')));
+    expect(stations.map((s) => s.limitW())).toEqual(
+      stations.map((s) => plannedW(plan['2026-12-10']!.result, label(s), now)),
+    );
+    const [row] = await app.db
+      .select()
+      .from(chargers)
+      .where(and(eq(chargers.depotId, depotId), eq(chargers.label, 'A')));
     expect(row!.liveConnected).toBe(true);
   });
 
-  it('a charger that boots gets tonight\'s profile, then the next night\'s', async () => {
+  it("a charger that boots gets tonight's profile, then the next night's", async () => {
     const old = stations[0]!;
     await old.stop();
-    const fresh = new SimulatedStation({ url, identity: old.client.identity!, password: 'test-charger-password', protocol: 'ocpp1.6', clock: () => now, meterIntervalMs: 200 });
+    const fresh = new SimulatedStation({
+      url,
+      identity: old.client.identity!,
+      password: 'test-charger-password',
+      protocol: 'ocpp1.6',
+      clock: () => now,
+      meterIntervalMs: 200,
+    });
     stations[0] = fresh;
     await fresh.start();
     await expect.poll(() => fresh.received.length, { timeout: 5000 }).toBe(2);
-    expect(fresh.received.map((r) => (r.csChargingProfiles as { chargingProfileId: number }).chargingProfileId)).toEqual([20261210, 20261211]);
+    expect(
+      fresh.received.map((r) => (r.csChargingProfiles as { chargingProfileId: number }).chargingProfileId),
+    ).toEqual([20261210, 20261211]);
     expect(fresh.limitW()).toBe(plannedW(plan['2026-12-10']!.result, 'A', now));
   });
 
   it('the download carries the same binding: id, stack level and validity of its night', async () => {
     await signInAgain(app, sup);
-    for (const [date, version] of [['2026-12-10', '1.6'], ['2026-12-11', '2.0.1']] as const) {
-      const res = await app.request().get(`/api/plans/${plan[date]!.id}/ocpp`).query({ version }).set(as(sup)).expect(200);
+    for (const [date, version] of [
+      ['2026-12-10', '1.6'],
+      ['2026-12-11', '2.0.1'],
+    ] as const) {
+      const res = await app
+        .request()
+        .get(`/api/plans/${plan[date]!.id}/ocpp`)
+        .query({ version })
+        .set(as(sup))
+        .expect(200);
       const station = stations.find((s) => label(s) === (version === '1.6' ? 'A' : 'C'))!;
       const held = station.profiles.profiles.find((p) => p.id === Number(date.replace(/-/g, '')))!;
       const exported = res.body.find((e: { chargerId: string }) => e.chargerId === label(station)).payload;

@@ -39,8 +39,14 @@ export class SimulatedStation {
     // eslint-disable-next-line no-restricted-syntax -- the station's own clock, set from the central system's time
     this.clock = opts.clock ?? (() => new Date(Date.now() + this.offsetMs));
     this.client = new RPCClient({
-      endpoint: opts.url, identity: opts.identity, password: opts.password, protocols: [opts.protocol],
-      strictMode: true, reconnect: true, maxReconnects: Infinity, backoff: { initialDelay: 500, maxDelay: 10_000, factor: 2, randomisationFactor: 0.2 },
+      endpoint: opts.url,
+      identity: opts.identity,
+      password: opts.password,
+      protocols: [opts.protocol],
+      strictMode: true,
+      reconnect: true,
+      maxReconnects: Infinity,
+      backoff: { initialDelay: 500, maxDelay: 10_000, factor: 2, randomisationFactor: 0.2 },
     } as ConstructorParameters<typeof RPCClient>[0]);
     this.profiles = new ProfileStore(opts.protocol);
     this.client.handle('SetChargingProfile', async ({ params }) => {
@@ -60,12 +66,21 @@ export class SimulatedStation {
   async start(): Promise<void> {
     await this.client.connect();
     const v16 = this.opts.protocol === 'ocpp1.6';
-    const boot = await this.client.call('BootNotification', v16
-      ? { chargePointVendor: 'Nightyard simulator', chargePointModel: 'Depot DC' }
-      : { reason: 'PowerUp', chargingStation: { vendorName: 'Nightyard simulator', model: 'Depot DC' } }) as { currentTime?: string; interval?: number };
+    const boot = (await this.client.call(
+      'BootNotification',
+      v16
+        ? { chargePointVendor: 'Nightyard simulator', chargePointModel: 'Depot DC' }
+        : { reason: 'PowerUp', chargingStation: { vendorName: 'Nightyard simulator', model: 'Depot DC' } },
+    )) as { currentTime?: string; interval?: number };
     this.setTime(boot.currentTime);
-    this.heartbeat = setInterval(() => void this.client.call('Heartbeat', {})
-      .then((r) => this.setTime((r as { currentTime?: string }).currentTime), () => undefined), Math.max(5, boot.interval ?? 30) * 1000);
+    this.heartbeat = setInterval(
+      () =>
+        void this.client.call('Heartbeat', {}).then(
+          (r) => this.setTime((r as { currentTime?: string }).currentTime),
+          () => undefined,
+        ),
+      Math.max(5, boot.interval ?? 30) * 1000,
+    );
     await this.report();
     this.timer = setInterval(() => void this.report().catch(() => undefined), this.opts.meterIntervalMs ?? 15_000);
   }
@@ -77,14 +92,33 @@ export class SimulatedStation {
     const timestamp = this.clock().toISOString();
     const status = this.faulted ? 'Faulted' : w > 0 ? (v16 ? 'Charging' : 'Occupied') : 'Available';
     if (status !== this.lastStatus) {
-      await this.client.call('StatusNotification', v16
-        ? { connectorId: 1, errorCode: this.faulted ? 'GroundFailure' : 'NoError', status }
-        : { timestamp, connectorStatus: status, evseId: 1, connectorId: 1 });
+      await this.client.call(
+        'StatusNotification',
+        v16
+          ? { connectorId: 1, errorCode: this.faulted ? 'GroundFailure' : 'NoError', status }
+          : { timestamp, connectorStatus: status, evseId: 1, connectorId: 1 },
+      );
       this.lastStatus = status;
     }
-    await this.client.call('MeterValues', v16
-      ? { connectorId: 1, meterValue: [{ timestamp, sampledValue: [{ value: String(w), measurand: 'Power.Active.Import', unit: 'W' }] }] }
-      : { evseId: 1, meterValue: [{ timestamp, sampledValue: [{ value: w, measurand: 'Power.Active.Import', unitOfMeasure: { unit: 'W' } }] }] });
+    await this.client.call(
+      'MeterValues',
+      v16
+        ? {
+            connectorId: 1,
+            meterValue: [
+              { timestamp, sampledValue: [{ value: String(w), measurand: 'Power.Active.Import', unit: 'W' }] },
+            ],
+          }
+        : {
+            evseId: 1,
+            meterValue: [
+              {
+                timestamp,
+                sampledValue: [{ value: w, measurand: 'Power.Active.Import', unitOfMeasure: { unit: 'W' } }],
+              },
+            ],
+          },
+    );
     this.reports++;
   }
 
@@ -96,14 +130,52 @@ export class SimulatedStation {
     const v16 = this.opts.protocol === 'ocpp1.6';
     const timestamp = this.clock().toISOString();
     if (v16) {
-      const { transactionId } = await this.client.call('StartTransaction', { connectorId: 1, idTag: 'DEPOT', meterStart: 0, timestamp }) as { transactionId: number };
-      await this.client.call('MeterValues', { connectorId: 1, transactionId, meterValue: [{ timestamp, sampledValue: [
-        { value: String(socPct), context: 'Transaction.Begin', measurand: 'SoC', location: 'EV', unit: 'Percent' }] }] });
+      const { transactionId } = (await this.client.call('StartTransaction', {
+        connectorId: 1,
+        idTag: 'DEPOT',
+        meterStart: 0,
+        timestamp,
+      })) as { transactionId: number };
+      await this.client.call('MeterValues', {
+        connectorId: 1,
+        transactionId,
+        meterValue: [
+          {
+            timestamp,
+            sampledValue: [
+              {
+                value: String(socPct),
+                context: 'Transaction.Begin',
+                measurand: 'SoC',
+                location: 'EV',
+                unit: 'Percent',
+              },
+            ],
+          },
+        ],
+      });
     } else {
       await this.client.call('TransactionEvent', {
-        eventType: 'Started', timestamp, triggerReason: 'CablePluggedIn', seqNo: 0,
-        transactionInfo: { transactionId: `${this.opts.identity}-${++this.transactions}` }, evse: { id: 1, connectorId: 1 },
-        meterValue: [{ timestamp, sampledValue: [{ value: socPct, context: 'Transaction.Begin', measurand: 'SoC', location: 'EV', unitOfMeasure: { unit: 'Percent' } }] }],
+        eventType: 'Started',
+        timestamp,
+        triggerReason: 'CablePluggedIn',
+        seqNo: 0,
+        transactionInfo: { transactionId: `${this.opts.identity}-${++this.transactions}` },
+        evse: { id: 1, connectorId: 1 },
+        meterValue: [
+          {
+            timestamp,
+            sampledValue: [
+              {
+                value: socPct,
+                context: 'Transaction.Begin',
+                measurand: 'SoC',
+                location: 'EV',
+                unitOfMeasure: { unit: 'Percent' },
+              },
+            ],
+          },
+        ],
       });
     }
   }

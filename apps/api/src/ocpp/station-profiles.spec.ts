@@ -7,15 +7,61 @@ const iso = (minutes: number) => at(minutes).toISOString();
 
 /** A held profile: `limit` W from its start for an hour, valid [from, to) (minutes after T0). */
 function held(id: number, stackLevel: number, limit: number, from = -600, to = 600, target = 1): HeldProfile {
-  return { id, target, stackLevel, purpose: 'TxDefaultProfile', validFromMs: T0 + from * 60_000, validToMs: T0 + to * 60_000, startMs: T0, durationS: 3600, periods: [{ startPeriod: 0, limit }] };
+  return {
+    id,
+    target,
+    stackLevel,
+    purpose: 'TxDefaultProfile',
+    validFromMs: T0 + from * 60_000,
+    validToMs: T0 + to * 60_000,
+    startMs: T0,
+    durationS: 3600,
+    periods: [{ startPeriod: 0, limit }],
+  };
 }
 
-describe('the simulated station\'s profiles', () => {
+describe("the simulated station's profiles", () => {
   it('reads 1.6 and 2.0.1 requests with validity', () => {
-    const schedule = { startSchedule: iso(0), duration: 3600, chargingRateUnit: 'W', chargingSchedulePeriod: [{ startPeriod: 0, limit: 5000 }] };
-    const v16 = profileOf({ connectorId: 1, csChargingProfiles: { chargingProfileId: 7, stackLevel: 2, chargingProfilePurpose: 'TxDefaultProfile', validFrom: iso(-10), validTo: iso(50), chargingSchedule: schedule } }, 'ocpp1.6');
-    expect(v16).toMatchObject({ id: 7, target: 1, stackLevel: 2, validFromMs: T0 - 600_000, validToMs: T0 + 3_000_000, durationS: 3600 });
-    const v201 = profileOf({ evseId: 3, chargingProfile: { id: 8, stackLevel: 1, chargingProfilePurpose: 'TxDefaultProfile', chargingSchedule: [schedule] } }, 'ocpp2.0.1');
+    const schedule = {
+      startSchedule: iso(0),
+      duration: 3600,
+      chargingRateUnit: 'W',
+      chargingSchedulePeriod: [{ startPeriod: 0, limit: 5000 }],
+    };
+    const v16 = profileOf(
+      {
+        connectorId: 1,
+        csChargingProfiles: {
+          chargingProfileId: 7,
+          stackLevel: 2,
+          chargingProfilePurpose: 'TxDefaultProfile',
+          validFrom: iso(-10),
+          validTo: iso(50),
+          chargingSchedule: schedule,
+        },
+      },
+      'ocpp1.6',
+    );
+    expect(v16).toMatchObject({
+      id: 7,
+      target: 1,
+      stackLevel: 2,
+      validFromMs: T0 - 600_000,
+      validToMs: T0 + 3_000_000,
+      durationS: 3600,
+    });
+    const v201 = profileOf(
+      {
+        evseId: 3,
+        chargingProfile: {
+          id: 8,
+          stackLevel: 1,
+          chargingProfilePurpose: 'TxDefaultProfile',
+          chargingSchedule: [schedule],
+        },
+      },
+      'ocpp2.0.1',
+    );
     expect(v201).toMatchObject({ id: 8, target: 3, validFromMs: -Infinity, validToMs: Infinity });
   });
 
@@ -40,7 +86,10 @@ describe('the simulated station\'s profiles', () => {
     expect(s.profiles.map((p) => p.id)).toEqual([2]);
     s.set(held(3, 1, 5_000, -600, 600, 2));
     s.set(held(2, 2, 7_000));
-    expect(s.profiles.map((p) => [p.id, p.stackLevel])).toEqual([[3, 1], [2, 2]]);
+    expect(s.profiles.map((p) => [p.id, p.stackLevel])).toEqual([
+      [3, 1],
+      [2, 2],
+    ]);
   });
 
   it('2.0.1: the same id replaces; the same stack level with an overlapping validity is rejected, back to back is taken', () => {

@@ -18,14 +18,17 @@ export interface HeldProfile {
   periods: { startPeriod: number; limit: number }[];
 }
 
-const time = (iso: unknown, fallback: number) => (typeof iso === 'string' && Number.isFinite(Date.parse(iso)) ? Date.parse(iso) : fallback);
+const time = (iso: unknown, fallback: number) =>
+  typeof iso === 'string' && Number.isFinite(Date.parse(iso)) ? Date.parse(iso) : fallback;
 
 /** A SetChargingProfile request as the profile it asks the station to hold. */
 export function profileOf(params: Record<string, unknown>, protocol: Protocol): HeldProfile {
   const v16 = protocol === 'ocpp1.6';
   const p = (v16 ? params.csChargingProfiles : params.chargingProfile) as Record<string, unknown>;
   const schedule = (v16 ? p.chargingSchedule : (p.chargingSchedule as unknown[])[0]) as {
-    startSchedule?: string; duration?: number; chargingSchedulePeriod: { startPeriod: number; limit: number }[];
+    startSchedule?: string;
+    duration?: number;
+    chargingSchedulePeriod: { startPeriod: number; limit: number }[];
   };
   return {
     id: Number(v16 ? p.chargingProfileId : p.id),
@@ -55,9 +58,13 @@ export class ProfileStore {
    * the same stack level, purpose and EVSE whose validity overlaps makes the request Rejected.
    */
   set(profile: HeldProfile): 'Accepted' | 'Rejected' {
-    const sameSlot = (h: HeldProfile) => h.target === profile.target && h.stackLevel === profile.stackLevel && h.purpose === profile.purpose;
+    const sameSlot = (h: HeldProfile) =>
+      h.target === profile.target && h.stackLevel === profile.stackLevel && h.purpose === profile.purpose;
     if (this.protocol === 'ocpp2.0.1') {
-      const clash = this.held.some((h) => h.id !== profile.id && sameSlot(h) && h.validFromMs < profile.validToMs && profile.validFromMs < h.validToMs);
+      const clash = this.held.some(
+        (h) =>
+          h.id !== profile.id && sameSlot(h) && h.validFromMs < profile.validToMs && profile.validFromMs < h.validToMs,
+      );
       if (clash) return 'Rejected';
       this.held = this.held.filter((h) => h.id !== profile.id);
     } else {
@@ -70,14 +77,17 @@ export class ProfileStore {
   /** ClearChargingProfile: by id, else by the criteria given (none: all). */
   clear(params: Record<string, unknown>): 'Accepted' | 'Unknown' {
     const v16 = this.protocol === 'ocpp1.6';
-    const criteria = (v16 ? params : params.chargingProfileCriteria ?? {}) as Record<string, unknown>;
+    const criteria = (v16 ? params : (params.chargingProfileCriteria ?? {})) as Record<string, unknown>;
     const id = v16 ? params.id : params.chargingProfileId;
     const target = v16 ? criteria.connectorId : criteria.evseId;
     const level = criteria.stackLevel;
     const purpose = criteria.chargingProfilePurpose;
-    const match = (h: HeldProfile) => (id !== undefined
-      ? h.id === id
-      : (target === undefined || h.target === target) && (level === undefined || h.stackLevel === level) && (purpose === undefined || h.purpose === purpose));
+    const match = (h: HeldProfile) =>
+      id !== undefined
+        ? h.id === id
+        : (target === undefined || h.target === target) &&
+          (level === undefined || h.stackLevel === level) &&
+          (purpose === undefined || h.purpose === purpose);
     const before = this.held.length;
     this.held = this.held.filter((h) => !match(h));
     return this.held.length < before ? 'Accepted' : 'Unknown';

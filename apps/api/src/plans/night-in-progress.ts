@@ -28,30 +28,46 @@ export function cutOffAt(scenario: Scenario, now: Date): string | null {
   const t = now.getTime();
   const last = end - scenario.slotMinutes * 60_000;
   if (t >= last) {
-    throw new DomainError('validation_failed',
+    throw new DomainError(
+      'validation_failed',
       `That night ended at ${DateTime.fromMillis(end, { zone }).toFormat('ccc d LLL HH:mm')}: plans are for nights still to come`,
-      { serviceDate: 'The night is over' });
+      { serviceDate: 'The night is over' },
+    );
   }
   return t > start ? DateTime.fromMillis(t, { zone }).toFormat(LOCAL) : null;
 }
 
 /** Plans the rest of a night from its cut-off: the engine's re-plan, with the past merged back in. */
-export async function planFromCutOff(scenario: Scenario, at: PlanFrom, previous: PlanResult | null): Promise<PlanResult> {
+export async function planFromCutOff(
+  scenario: Scenario,
+  at: PlanFrom,
+  previous: PlanResult | null,
+): Promise<PlanResult> {
   // The engine runs in a worker thread, like every plan. A stored result is the engine's whole
   // plan (the contract reads only some of its fields; the row keeps them all).
-  const next = await runInPool({ kind: 'replan', scenario, state: { now: at.from, plugged: at.plugged, ...(previous ? { previous: previous as Plan } : {}) } });
+  const next = await runInPool({
+    kind: 'replan',
+    scenario,
+    state: { now: at.from, plugged: at.plugged, ...(previous ? { previous: previous as Plan } : {}) },
+  });
   return mergeReplan(previous, next);
 }
 
 /** The night as a whole: what stood before the re-plan's first slot, then the re-plan. */
 export function mergeReplan(previous: PlanResult | null, next: Replan): PlanResult {
   const result: PlanResult = next;
-  if (!previous) return { ...result, replan: { from: next.replan.from, outOfService: next.replan.outOfService, plugged: next.replan.plugged } };
+  if (!previous)
+    return {
+      ...result,
+      replan: { from: next.replan.from, outOfService: next.replan.outOfService, plugged: next.replan.plugged },
+    };
   const firstNew = Date.parse(next.replan.from);
   const newLoad = new Map(next.slots.map((s) => [Date.parse(s.start), s.loadKw]));
   return {
     ...result,
-    slots: previous.slots.map((s) => (Date.parse(s.start) >= firstNew ? { ...s, loadKw: newLoad.get(Date.parse(s.start)) ?? s.loadKw } : s)),
+    slots: previous.slots.map((s) =>
+      Date.parse(s.start) >= firstNew ? { ...s, loadKw: newLoad.get(Date.parse(s.start)) ?? s.loadKw } : s,
+    ),
     sessions: mergeSessions(keptAsBefore(previous, next.replan.kept as PlanResult['sessions']), next.sessions),
     replan: { from: next.replan.from, outOfService: next.replan.outOfService, plugged: next.replan.plugged },
   };
@@ -64,7 +80,9 @@ export function mergeReplan(previous: PlanResult | null, next: Replan): PlanResu
  */
 function keptAsBefore(previous: PlanResult, kept: PlanResult['sessions']): PlanResult['sessions'] {
   return kept.map((k) => {
-    const was = previous.sessions.find((s) => s.bus === k.bus && s.charger === k.charger && Date.parse(s.start) === Date.parse(k.start));
+    const was = previous.sessions.find(
+      (s) => s.bus === k.bus && s.charger === k.charger && Date.parse(s.start) === Date.parse(k.start),
+    );
     return was && Date.parse(was.end) < Date.parse(k.end) ? { ...k, end: was.end } : k;
   });
 }
@@ -89,15 +107,25 @@ export interface SessionStop {
  * engine, handed this plan as the one followed, then counts exactly that energy into the bus and
  * the peaks, and plans the bus (elsewhere) from the next slot boundary.
  */
-export function stopSessions(previous: PlanResult, stops: readonly SessionStop[], zone: string, slotMinutes = 15): PlanResult {
+export function stopSessions(
+  previous: PlanResult,
+  stops: readonly SessionStop[],
+  zone: string,
+  slotMinutes = 15,
+): PlanResult {
   if (!stops.length) return previous;
   const slotMs = slotMinutes * 60_000;
   const removed = new Map<number, number>();
   const sessions: PlanResult['sessions'] = [];
   for (const s of previous.sessions) {
     const start = Date.parse(s.start);
-    const stop = stops.find((x) => x.charger === s.charger && (x.bus === undefined || x.bus === s.bus)
-      && (x.start === undefined || Date.parse(x.start) === start) && x.at.getTime() < Date.parse(s.end));
+    const stop = stops.find(
+      (x) =>
+        x.charger === s.charger &&
+        (x.bus === undefined || x.bus === s.bus) &&
+        (x.start === undefined || Date.parse(x.start) === start) &&
+        x.at.getTime() < Date.parse(s.end),
+    );
     if (!stop) {
       sessions.push(s);
       continue;
@@ -113,7 +141,12 @@ export function stopSessions(previous: PlanResult, stops: readonly SessionStop[]
     const whole = Math.ceil((at - start) / slotMs);
     if (whole === 0) continue;
     const cut = kw.slice(0, whole);
-    sessions.push({ ...s, end: DateTime.fromMillis(at, { zone }).toISO()!, kw: cut, kwh: Math.round(cut.reduce((a, v) => a + v * slotMinutes / 60, 0) * 1e6) / 1e6 });
+    sessions.push({
+      ...s,
+      end: DateTime.fromMillis(at, { zone }).toISO()!,
+      kw: cut,
+      kwh: Math.round(cut.reduce((a, v) => a + (v * slotMinutes) / 60, 0) * 1e6) / 1e6,
+    });
   }
   return {
     ...previous,

@@ -27,7 +27,13 @@ const quarter = (t: DateTime, up: boolean) => {
  * between its runs; it must leave with the energy of what it drives before its next charge plus
  * its reserve, capped at its ceiling.
  */
-export async function buildNightScenario(db: Db, caller: AuthUser, depotId: string, serviceDate: string, includeMidday: boolean) {
+export async function buildNightScenario(
+  db: Db,
+  caller: AuthUser,
+  depotId: string,
+  serviceDate: string,
+  includeMidday: boolean,
+) {
   const depot = await depotOf(db, caller, depotId);
   const zone = depot.timezone;
   const [next] = await db
@@ -36,7 +42,12 @@ export async function buildNightScenario(db: Db, caller: AuthUser, depotId: stri
     .where(and(eq(runs.depotId, depotId), gt(runs.serviceDate, serviceDate)))
     .orderBy(asc(runs.serviceDate))
     .limit(1);
-  if (!next) throw new DomainError('validation_failed', `No runs after ${serviceDate}: enter the next service day's runs under Fleet first`, { serviceDate: 'No next service day' });
+  if (!next)
+    throw new DomainError(
+      'validation_failed',
+      `No runs after ${serviceDate}: enter the next service day's runs under Fleet first`,
+      { serviceDate: 'No next service day' },
+    );
   const dayRows = await db
     .select({ run: runs, bus: buses })
     .from(runs)
@@ -86,30 +97,48 @@ export async function buildNightScenario(db: Db, caller: AuthUser, depotId: stri
     const ceiling = round((bus.ceilingPct / 100) * usable);
     const stays: Stay[] = [];
     // Stays between the day's runs (midday layovers), then the night until the next pull-out.
-    const legs = today.map((r, k) => ({ arrive: at(r.run.pullIn), depart: today[k + 1] ? at(today[k + 1]!.run.pullOut) : at(n1.run.pullOut),
-      nextRun: today[k + 1] ?? n1, nextFactor: today[k + 1] ? todayFactor : nextFactor, arrivedFrom: r }));
+    const legs = today.map((r, k) => ({
+      arrive: at(r.run.pullIn),
+      depart: today[k + 1] ? at(today[k + 1]!.run.pullOut) : at(n1.run.pullOut),
+      nextRun: today[k + 1] ?? n1,
+      nextFactor: today[k + 1] ? todayFactor : nextFactor,
+      arrivedFrom: r,
+    }));
     // A reading at the day's last pull-in means the afternoon has happened: plan from there.
     const lastRead = today.at(-1)?.run.arrivalSocPct !== null && today.at(-1) !== undefined;
     const usedLegs = legs.filter((l) => l.depart > start && (includeMidday && !lastRead ? true : l.nextRun === n1));
     if (includeMidday && lastRead && legs.length > 1) {
-      notes.push(`Bus ${bus.number} has a reading at its last pull-in: it is planned from there, without the midday layover.`);
+      notes.push(
+        `Bus ${bus.number} has a reading at its last pull-in: it is planned from there, without the midday layover.`,
+      );
     }
     // Overnight the bus takes on the whole next day's runs: a midday top-up is welcome but not
     // counted on. Between runs it needs the next run only.
-    const nextDay = nextRows.filter((r) => r.bus.id === busId).reduce((sum, r) => sum + runEnergyKwh(r.run, bus, nextFactor), 0);
+    const nextDay = nextRows
+      .filter((r) => r.bus.id === busId)
+      .reduce((sum, r) => sum + runEnergyKwh(r.run, bus, nextFactor), 0);
     const legNeed = (overnight: boolean, run: (typeof dayRows)[number]['run']) =>
       overnight ? round(nextDay) : runEnergyKwh(run, bus, todayFactor);
     let arrivalKwh: number;
     if (!usedLegs.length) {
       // Off duty today: it waits at the depot from the start of the horizon.
       arrivalKwh = ceiling;
-      notes.push(`Bus ${bus.number} has no runs on ${serviceDate}; it is assumed at its ceiling (${bus.ceilingPct} %).`);
+      notes.push(
+        `Bus ${bus.number} has no runs on ${serviceDate}; it is assumed at its ceiling (${bus.ceilingPct} %).`,
+      );
       const need = legNeed(true, n1.run);
-      stays.push({ arrive: start.toFormat(LOCAL), depart: at(n1.run.pullOut).toFormat(LOCAL), departMinKwh: round(Math.min(usable, need + reserve)) });
+      stays.push({
+        arrive: start.toFormat(LOCAL),
+        depart: at(n1.run.pullOut).toFormat(LOCAL),
+        departMinKwh: round(Math.min(usable, need + reserve)),
+      });
     } else {
       const first = usedLegs[0]!.arrivedFrom.run;
       const soc = first.arrivalSocPct ?? estimateArrivalSoc(today, first.id, bus, todayFactor);
-      if (first.arrivalSocPct === null) notes.push(`Bus ${bus.number}: no state of charge was entered for its ${at(first.pullIn).toFormat('HH:mm')} pull-in; ${soc} % is estimated from miles.`);
+      if (first.arrivalSocPct === null)
+        notes.push(
+          `Bus ${bus.number}: no state of charge was entered for its ${at(first.pullIn).toFormat('HH:mm')} pull-in; ${soc} % is estimated from miles.`,
+        );
       arrivalKwh = round((soc / 100) * usable);
       usedLegs.forEach((l, k) => {
         const need = legNeed(l.nextRun === n1, l.nextRun.run);
@@ -121,13 +150,19 @@ export async function buildNightScenario(db: Db, caller: AuthUser, depotId: stri
           ...(k < usedLegs.length - 1 ? { runKwh: runEnergyKwh(l.nextRun.run, bus, l.nextFactor) } : {}),
         });
         if (need + reserve > ceiling) {
-          notes.push(`Bus ${bus.number} needs ${round(need + reserve)} kWh with reserve for what follows its ${l.depart.toFormat('HH:mm')} pull-out, above its ceiling (${ceiling} kWh): it leaves at the ceiling and relies on the midday layover.`);
+          notes.push(
+            `Bus ${bus.number} needs ${round(need + reserve)} kWh with reserve for what follows its ${l.depart.toFormat('HH:mm')} pull-out, above its ceiling (${ceiling} kWh): it leaves at the ceiling and relies on the midday layover.`,
+          );
         }
       });
     }
     scenarioBuses.push({
-      id: bus.number, usableKwh: usable, maxKw: bus.maxChargeKw, arrivalKwh: Math.min(arrivalKwh, usable),
-      ceilingKwh: ceiling, reserveKwh: reserve,
+      id: bus.number,
+      usableKwh: usable,
+      maxKw: bus.maxChargeKw,
+      arrivalKwh: Math.min(arrivalKwh, usable),
+      ceilingKwh: ceiling,
+      reserveKwh: reserve,
       ...(bus.taperStartPct !== null ? { taperFromKwh: round((bus.taperStartPct / 100) * usable) } : {}),
       stays,
     });
@@ -140,7 +175,9 @@ export async function buildNightScenario(db: Db, caller: AuthUser, depotId: stri
 /** Arrival state of charge from the morning ceiling less the runs' energy (see service day). */
 function estimateArrivalSoc(
   today: { run: { id: string; kwh: number | null; miles: number | null; arrivalSocPct: number | null } }[],
-  runId: string, bus: { ceilingPct: number; usableKwh: number; kwhPerMile: number }, factor: number,
+  runId: string,
+  bus: { ceilingPct: number; usableKwh: number; kwhPerMile: number },
+  factor: number,
 ): number {
   let soc = bus.ceilingPct;
   for (const { run } of today) {

@@ -7,6 +7,11 @@ export function nightStaff(db: Db, organisationId: string) {
   return db
     .select({ email: users.email, name: users.name, roles: users.roles })
     .from(users)
-    .where(and(eq(users.organisationId, organisationId), eq(users.status, 'active'),
-      sql`${users.roles} && array['yard','supervisor']::text[]`));
+    .where(
+      and(
+        eq(users.organisationId, organisationId),
+        eq(users.status, 'active'),
+        sql`${users.roles} && array['yard','supervisor']::text[]`,
+      ),
+    );
 }

@@ -15,14 +15,20 @@ export async function withPlanLock<T>(db: Db, planId: string, fn: () => Promise<
   const client = await pool.connect();
   let broken: Error | undefined;
   try {
-    const { rows } = await client.query<{ ok: boolean }>('select pg_try_advisory_lock(hashtext($1), hashtext($2)) as ok', [LOCK_SPACE, planId]);
+    const { rows } = await client.query<{ ok: boolean }>(
+      'select pg_try_advisory_lock(hashtext($1), hashtext($2)) as ok',
+      [LOCK_SPACE, planId],
+    );
     if (!rows[0]?.ok) return 'busy';
     try {
       return await fn();
     } finally {
       const unlocked = await client
         .query<{ ok: boolean }>('select pg_advisory_unlock(hashtext($1), hashtext($2)) as ok', [LOCK_SPACE, planId])
-        .then((r) => r.rows[0]?.ok === true, () => false);
+        .then(
+          (r) => r.rows[0]?.ok === true,
+          () => false,
+        );
       // A connection that could not give the lock back must not return to the pool holding it.
       if (!unlocked) broken = new Error('plan lock not released');
     }

@@ -38,12 +38,22 @@ export async function runPlanJob(db: Db, log: Logger, planId: string): Promise<v
     }
     try {
       const parsed = parseScenario(plan.scenario);
-      if (!parsed.ok) throw new Error(`The stored scenario is not valid: ${parsed.problems.map((p) => `${p.path}: ${p.message}`).join('; ')}`);
+      if (!parsed.ok)
+        throw new Error(
+          `The stored scenario is not valid: ${parsed.problems.map((p) => `${p.path}: ${p.message}`).join('; ')}`,
+        );
       const from = plan.replanState?.from;
       // The engine runs in a worker thread: the API keeps answering while it solves.
       const result = from
-        ? await planFromCutOff(parsed.scenario, { from, previousPlanId: plan.replanState?.previousPlanId ?? null, plugged: plan.replanState?.plugged ?? {} },
-          await previousResult(db, plan.replanState?.previousPlanId ?? null))
+        ? await planFromCutOff(
+            parsed.scenario,
+            {
+              from,
+              previousPlanId: plan.replanState?.previousPlanId ?? null,
+              plugged: plan.replanState?.plugged ?? {},
+            },
+            await previousResult(db, plan.replanState?.previousPlanId ?? null),
+          )
         : await runInPool({ kind: 'plan', scenario: parsed.scenario });
       await db.update(plans).set({ status: 'done', stage: 'Done', result }).where(eq(plans.id, planId));
       log.info({ planId, ms: result.solveMs, status: result.status, attempt: plan.attempts }, 'plan generated');
@@ -59,7 +69,10 @@ export async function runPlanJob(db: Db, log: Logger, planId: string): Promise<v
 }
 
 async function markFailed(db: Db, planId: string, message: string) {
-  await db.update(plans).set({ status: 'failed', stage: 'Failed', error: message }).where(and(eq(plans.id, planId), inArray(plans.status, OPEN)));
+  await db
+    .update(plans)
+    .set({ status: 'failed', stage: 'Failed', error: message })
+    .where(and(eq(plans.id, planId), inArray(plans.status, OPEN)));
 }
 
 export interface RecoveryQueue {
@@ -74,8 +87,15 @@ export interface RecoveryQueue {
  * again once; one that was already interrupted twice is marked failed with a message the
  * supervisor sees. Run at start-up and every minute.
  */
-export async function recoverInterruptedPlans(db: Db, log: Logger, queue: RecoveryQueue): Promise<{ requeued: string[]; failed: string[] }> {
-  const open = await db.select({ id: plans.id, attempts: plans.attempts }).from(plans).where(inArray(plans.status, OPEN));
+export async function recoverInterruptedPlans(
+  db: Db,
+  log: Logger,
+  queue: RecoveryQueue,
+): Promise<{ requeued: string[]; failed: string[] }> {
+  const open = await db
+    .select({ id: plans.id, attempts: plans.attempts })
+    .from(plans)
+    .where(inArray(plans.status, OPEN));
   const requeued: string[] = [];
   const failed: string[] = [];
   for (const p of open) {
@@ -86,7 +106,10 @@ export async function recoverInterruptedPlans(db: Db, log: Logger, queue: Recove
       await markFailed(db, p.id, INTERRUPTED_TWICE);
       failed.push(p.id);
     } else {
-      await db.update(plans).set({ status: 'queued', stage: 'Queued again after an interruption' }).where(and(eq(plans.id, p.id), inArray(plans.status, OPEN)));
+      await db
+        .update(plans)
+        .set({ status: 'queued', stage: 'Queued again after an interruption' })
+        .where(and(eq(plans.id, p.id), inArray(plans.status, OPEN)));
       await queue.enqueue(p.id);
       requeued.push(p.id);
     }

@@ -12,7 +12,8 @@ import { recoverInterruptedPlans, runPlanJob } from './plan-runner';
  */
 export async function startPlanWork(config: Config, db: Db, log: Logger): Promise<JobQueue> {
   startWorkPool({
-    engineThreads: config.ENGINE_THREADS, quickThreads: config.QUICK_THREADS,
+    engineThreads: config.ENGINE_THREADS,
+    quickThreads: config.QUICK_THREADS,
     onError: (err) => log.error({ err }, 'worker thread failed'),
   });
   await warmWorkPool();

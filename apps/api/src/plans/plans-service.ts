@@ -1,7 +1,12 @@
 import { aliasedTable, and, desc, eq, sql } from 'drizzle-orm';
 import { DateTime } from 'luxon';
 import {
-  baselineName, planResultSchema, type PlanComparison, type PlanDetail, type PlanResult, type PlanSummary,
+  baselineName,
+  planResultSchema,
+  type PlanComparison,
+  type PlanDetail,
+  type PlanResult,
+  type PlanSummary,
 } from '@nightyard/contracts';
 import { localToMillis, parseScenario, type Scenario, type ScenarioInput } from '@nightyard/scheduling';
 import type { Db } from '../db/client';
@@ -28,11 +33,27 @@ const resultOf = (row: PlanRow): PlanResult | null => (row.result ? planResultSc
 /** A plan row without its large documents (the engine's input and result). */
 export type PlanMeta = Omit<PlanRow, 'scenario' | 'result' | 'replanState'>;
 
-function toSummary(row: PlanMeta, createdBy: string | null, publishedBy: string | null, result: PlanResult | null): PlanSummary {
+function toSummary(
+  row: PlanMeta,
+  createdBy: string | null,
+  publishedBy: string | null,
+  result: PlanResult | null,
+): PlanSummary {
   return {
-    id: row.id, depotId: row.depotId, serviceDate: row.serviceDate, version: row.version, kind: row.kind, state: row.state,
-    status: row.status, stage: row.stage, error: row.error, includesMidday: row.includesMidday,
-    createdAt: row.createdAt.toISOString(), createdBy, publishedAt: row.publishedAt?.toISOString() ?? null, publishedBy,
+    id: row.id,
+    depotId: row.depotId,
+    serviceDate: row.serviceDate,
+    version: row.version,
+    kind: row.kind,
+    state: row.state,
+    status: row.status,
+    stage: row.stage,
+    error: row.error,
+    includesMidday: row.includesMidday,
+    createdAt: row.createdAt.toISOString(),
+    createdBy,
+    publishedAt: row.publishedAt?.toISOString() ?? null,
+    publishedBy,
     totalCost: result?.cost.total ?? null,
     shortBuses: result ? result.buses.filter((b) => b.shortfallKwh > 1e-6).length : null,
   };
@@ -51,8 +72,18 @@ async function loadPlan(db: Db, caller: Pick<AuthUser, 'organisationId'>, id: st
 
 /** Stores a new draft version for the night and queues the engine run. */
 export async function storeDraft(
-  db: Db, jobs: JobQueue, caller: AuthUser, depotId: string, serviceDate: string,
-  values: { kind: PlanRow['kind']; includesMidday: boolean; scenario: ScenarioInput; notes: string[]; planFrom?: PlanFrom },
+  db: Db,
+  jobs: JobQueue,
+  caller: AuthUser,
+  depotId: string,
+  serviceDate: string,
+  values: {
+    kind: PlanRow['kind'];
+    includesMidday: boolean;
+    scenario: ScenarioInput;
+    notes: string[];
+    planFrom?: PlanFrom;
+  },
 ): Promise<PlanSummary> {
   const row = await db.transaction(async (tx) => {
     // Versions count up per night; the depot row lock keeps two requests from taking one number.
@@ -64,9 +95,16 @@ export async function storeDraft(
     const [created] = await tx
       .insert(plans)
       .values({
-        organisationId: caller.organisationId, depotId, serviceDate, version: (last?.v ?? 0) + 1, kind: values.kind,
-        includesMidday: values.includesMidday, scenario: values.scenario,
-        notes: values.notes, createdBy: caller.id, ...(values.planFrom ? { replanState: values.planFrom } : {}),
+        organisationId: caller.organisationId,
+        depotId,
+        serviceDate,
+        version: (last?.v ?? 0) + 1,
+        kind: values.kind,
+        includesMidday: values.includesMidday,
+        scenario: values.scenario,
+        notes: values.notes,
+        createdBy: caller.id,
+        ...(values.planFrom ? { replanState: values.planFrom } : {}),
       })
       .returning();
     return created!;
@@ -81,7 +119,13 @@ export async function storeDraft(
  * buses the yard confirmed on a charger stay there, and the notes say so.
  */
 export async function generatePlan(
-  db: Db, jobs: JobQueue, caller: AuthUser, depotId: string, serviceDate: string, includeMidday: boolean, now: Date,
+  db: Db,
+  jobs: JobQueue,
+  caller: AuthUser,
+  depotId: string,
+  serviceDate: string,
+  includeMidday: boolean,
+  now: Date,
 ): Promise<PlanSummary> {
   const night = await prepareNight(db, caller, depotId, serviceDate, includeMidday, now);
   return storeDraft(db, jobs, caller, depotId, serviceDate, { kind: 'generated', ...night });
@@ -89,59 +133,98 @@ export async function generatePlan(
 
 /** A night's scenario from the depot's data as it is now, with where a night under way starts. */
 export async function prepareNight(
-  db: Db, caller: AuthUser, depotId: string, serviceDate: string, includeMidday: boolean, now: Date,
+  db: Db,
+  caller: AuthUser,
+  depotId: string,
+  serviceDate: string,
+  includeMidday: boolean,
+  now: Date,
 ): Promise<{ includesMidday: boolean; scenario: ScenarioInput; notes: string[]; planFrom?: PlanFrom }> {
   const { scenario, notes } = await buildNightScenario(db, caller, depotId, serviceDate, includeMidday);
   const parsed = parseScenario(scenario);
   if (!parsed.ok) {
-    throw new DomainError('validation_failed', 'The day\'s data does not make a plannable night',
-      Object.fromEntries(parsed.problems.map((p) => [p.path, p.message])));
+    throw new DomainError(
+      'validation_failed',
+      "The day's data does not make a plannable night",
+      Object.fromEntries(parsed.problems.map((p) => [p.path, p.message])),
+    );
   }
   const from = cutOffAt(parsed.scenario, now);
   let planFrom: PlanFrom | undefined;
   if (from) {
-    const [followed] = await db.select().from(plans).where(and(eq(plans.depotId, depotId), eq(plans.serviceDate, serviceDate), eq(plans.state, 'published')));
+    const [followed] = await db
+      .select()
+      .from(plans)
+      .where(and(eq(plans.depotId, depotId), eq(plans.serviceDate, serviceDate), eq(plans.state, 'published')));
     const result = followed ? resultOf(followed) : null;
     const plugged = followed && result ? await confirmedPlugged(db, depotId, serviceDate, result, now) : {};
     planFrom = { from, previousPlanId: result ? followed!.id : null, plugged };
-    notes.unshift(result
-      ? `The night was under way at ${from.slice(11)}: this plan starts then; before it, version ${followed!.version} stands as published${Object.keys(plugged).length ? `, and the ${Object.keys(plugged).length} buses confirmed on a charger stay there` : ''}.`
-      : `The night was under way at ${from.slice(11)} with no published plan: this plan starts then and takes each bus as it arrived (no charging before then).`);
+    notes.unshift(
+      result
+        ? `The night was under way at ${from.slice(11)}: this plan starts then; before it, version ${followed!.version} stands as published${Object.keys(plugged).length ? `, and the ${Object.keys(plugged).length} buses confirmed on a charger stay there` : ''}.`
+        : `The night was under way at ${from.slice(11)} with no published plan: this plan starts then and takes each bus as it arrived (no charging before then).`,
+    );
   }
   return { includesMidday: includeMidday, scenario, notes, ...(planFrom ? { planFrom } : {}) };
 }
 
 /** The engine's work grows with buses x slots: a what-if larger than the limit is refused before it is queued. */
 function refuseLargeScenario(scenario: Scenario): void {
-  const horizonMs = (localToMillis(scenario.end, scenario.timezone) ?? 0) - (localToMillis(scenario.start, scenario.timezone) ?? 0);
+  const horizonMs =
+    (localToMillis(scenario.end, scenario.timezone) ?? 0) - (localToMillis(scenario.start, scenario.timezone) ?? 0);
   const slots = Math.round(horizonMs / (scenario.slotMinutes * 60_000));
   const size = scenario.buses.length * slots;
   if (size > MAX_WHAT_IF_BUS_SLOTS) {
-    throw new DomainError('payload_too_large',
+    throw new DomainError(
+      'payload_too_large',
       `The scenario has ${formatCount(scenario.buses.length)} buses x ${formatCount(slots)} slots = ${formatCount(size)}; at most ${formatCount(MAX_WHAT_IF_BUS_SLOTS)} bus-slots are planned at once: use longer slots, a shorter horizon or fewer buses`,
-      { buses: `Buses x slots at most ${formatCount(MAX_WHAT_IF_BUS_SLOTS)}` });
+      { buses: `Buses x slots at most ${formatCount(MAX_WHAT_IF_BUS_SLOTS)}` },
+    );
   }
 }
 
 /** A what-if draft from an uploaded scenario file; its night is the day its horizon starts. */
-export async function createWhatIf(db: Db, jobs: JobQueue, caller: AuthUser, depotId: string, file: unknown): Promise<PlanSummary> {
+export async function createWhatIf(
+  db: Db,
+  jobs: JobQueue,
+  caller: AuthUser,
+  depotId: string,
+  file: unknown,
+): Promise<PlanSummary> {
   const depot = await depotOf(db, caller, depotId);
   const parsed = parseScenario(file);
   if (!parsed.ok) {
-    throw new DomainError('validation_failed', `The scenario file has ${parsed.problems.length} problem(s); nothing was saved`,
-      Object.fromEntries(parsed.problems.map((p) => [p.path, p.message])));
+    throw new DomainError(
+      'validation_failed',
+      `The scenario file has ${parsed.problems.length} problem(s); nothing was saved`,
+      Object.fromEntries(parsed.problems.map((p) => [p.path, p.message])),
+    );
   }
   refuseLargeScenario(parsed.scenario);
   if (parsed.scenario.timezone !== depot.timezone) {
-    throw new DomainError('validation_failed', `The file is for ${parsed.scenario.timezone}; ${depot.name} is in ${depot.timezone}`, { timezone: `Must be ${depot.timezone}` });
+    throw new DomainError(
+      'validation_failed',
+      `The file is for ${parsed.scenario.timezone}; ${depot.name} is in ${depot.timezone}`,
+      { timezone: `Must be ${depot.timezone}` },
+    );
   }
   const serviceDate = parsed.scenario.start.slice(0, 10);
   return storeDraft(db, jobs, caller, depotId, serviceDate, {
-    kind: 'what-if', includesMidday: true, scenario: file as ScenarioInput, notes: ['What-if: a study from an uploaded scenario file. It is never published; adopt it to make a draft from the depot as it is now.'],
+    kind: 'what-if',
+    includesMidday: true,
+    scenario: file as ScenarioInput,
+    notes: [
+      'What-if: a study from an uploaded scenario file. It is never published; adopt it to make a draft from the depot as it is now.',
+    ],
   });
 }
 
-export async function listPlans(db: Db, caller: AuthUser, depotId: string, serviceDate?: string): Promise<PlanSummary[]> {
+export async function listPlans(
+  db: Db,
+  caller: AuthUser,
+  depotId: string,
+  serviceDate?: string,
+): Promise<PlanSummary[]> {
   await depotOf(db, caller, depotId);
   const rows = await db
     .select({ plan: plans, createdBy: creator.name, publishedBy: publisher.name })
@@ -161,7 +244,11 @@ export async function getPlan(db: Db, caller: AuthUser, id: string): Promise<Pla
 
 /** A plan with its result, from a row and its documents already read (and the result parsed). */
 export function planDetailOf(
-  plan: PlanMeta, createdBy: string | null, publishedBy: string | null, result: PlanResult | null, scenario: ScenarioInput,
+  plan: PlanMeta,
+  createdBy: string | null,
+  publishedBy: string | null,
+  result: PlanResult | null,
+  scenario: ScenarioInput,
   plannedFrom: string | null = null,
 ): PlanDetail {
   return {
@@ -175,7 +262,11 @@ export function planDetailOf(
   };
 }
 
-export async function planScenarioFile(db: Db, caller: AuthUser, id: string): Promise<{ name: string; scenario: unknown }> {
+export async function planScenarioFile(
+  db: Db,
+  caller: AuthUser,
+  id: string,
+): Promise<{ name: string; scenario: unknown }> {
   const { plan } = await loadPlan(db, caller, id);
   return { name: `scenario-${plan.serviceDate}-v${plan.version}.json`, scenario: plan.scenario };
 }
@@ -190,21 +281,37 @@ export const WHAT_IF_NOT_PUBLISHED = (version: number) =>
  * published plan they reviewed against; if another was published meanwhile, they get a conflict.
  */
 export async function publishPlan(
-  db: Db, mailer: Mailer, caller: AuthUser, id: string, expectedPublishedId: string | null, link: (path: string) => string, now: Date,
+  db: Db,
+  mailer: Mailer,
+  caller: AuthUser,
+  id: string,
+  expectedPublishedId: string | null,
+  link: (path: string) => string,
+  now: Date,
 ): Promise<PlanSummary> {
   const published = await db.transaction(async (tx) => {
-    const [plan] = await tx.select().from(plans).where(and(eq(plans.id, id), eq(plans.organisationId, caller.organisationId)));
+    const [plan] = await tx
+      .select()
+      .from(plans)
+      .where(and(eq(plans.id, id), eq(plans.organisationId, caller.organisationId)));
     if (!plan) throw notFound('That plan');
-    const [depot] = await tx.select({ id: depots.id, timezone: depots.timezone }).from(depots).where(eq(depots.id, plan.depotId)).for('update');
+    const [depot] = await tx
+      .select({ id: depots.id, timezone: depots.timezone })
+      .from(depots)
+      .where(eq(depots.id, plan.depotId))
+      .for('update');
     const [fresh] = await tx.select().from(plans).where(eq(plans.id, id));
     if (fresh!.kind === 'what-if') throw conflict(WHAT_IF_NOT_PUBLISHED(fresh!.version));
-    if (fresh!.state !== 'draft') throw conflict(`Version ${fresh!.version} is already ${fresh!.state}: a published plan never changes`);
+    if (fresh!.state !== 'draft')
+      throw conflict(`Version ${fresh!.version} is already ${fresh!.state}: a published plan never changes`);
     if (fresh!.status !== 'done') throw conflict('The plan is not finished yet: wait until it has been generated');
     const [current] = await tx
       .select({ id: plans.id, version: plans.version, at: plans.publishedAt, by: users.name })
       .from(plans)
       .leftJoin(users, eq(users.id, plans.publishedBy))
-      .where(and(eq(plans.depotId, plan.depotId), eq(plans.serviceDate, plan.serviceDate), eq(plans.state, 'published')));
+      .where(
+        and(eq(plans.depotId, plan.depotId), eq(plans.serviceDate, plan.serviceDate), eq(plans.state, 'published')),
+      );
     if ((current?.id ?? null) !== expectedPublishedId) {
       throw conflict(
         current
@@ -225,24 +332,47 @@ export async function publishPlan(
   return toSummary(plan, createdBy, publishedBy, resultOf(plan));
 }
 
-async function notifyPublished(db: Db, mailer: Mailer, caller: AuthUser, plan: PlanRow, link: (path: string) => string) {
+async function notifyPublished(
+  db: Db,
+  mailer: Mailer,
+  caller: AuthUser,
+  plan: PlanRow,
+  link: (path: string) => string,
+) {
   const [depot] = await db.select().from(depots).where(eq(depots.id, plan.depotId));
   const recipients = await nightStaff(db, plan.organisationId);
   const result = resultOf(plan)!;
   const scenario = plan.scenario;
   const short = result.buses.filter((b) => b.shortfallKwh > 1e-6);
   for (const r of recipients) {
-    await mailer.send(planPublishedMail({
-      to: r.email, name: r.name, depot: depot!.name, night: DateTime.fromISO(plan.serviceDate).toFormat('cccc d LLLL yyyy'),
-      version: plan.version, publishedBy: caller.name, buses: scenario.buses.length, sessions: result.sessions.length,
-      currency: scenario.tariff.currency ?? 'USD', cost: result.cost.total, baseline: result.baseline.total, baselineName: baselineName(result.baseline.kind),
-      short: short.map((b) => `${b.id} (${b.shortfallKwh.toFixed(1)} kWh short: ${b.reason})`), link: nightMailLink(r.roles, { planId: plan.id, serviceDate: plan.serviceDate }, link),
-    }));
+    await mailer.send(
+      planPublishedMail({
+        to: r.email,
+        name: r.name,
+        depot: depot!.name,
+        night: DateTime.fromISO(plan.serviceDate).toFormat('cccc d LLLL yyyy'),
+        version: plan.version,
+        publishedBy: caller.name,
+        buses: scenario.buses.length,
+        sessions: result.sessions.length,
+        currency: scenario.tariff.currency ?? 'USD',
+        cost: result.cost.total,
+        baseline: result.baseline.total,
+        baselineName: baselineName(result.baseline.kind),
+        short: short.map((b) => `${b.id} (${b.shortfallKwh.toFixed(1)} kWh short: ${b.reason})`),
+        link: nightMailLink(r.roles, { planId: plan.id, serviceDate: plan.serviceDate }, link),
+      }),
+    );
   }
 }
 
 /** Which buses changed charger or plug-in times between two versions. */
-export async function comparePlans(db: Db, caller: Pick<AuthUser, 'organisationId'>, id: string, otherId: string): Promise<PlanComparison> {
+export async function comparePlans(
+  db: Db,
+  caller: Pick<AuthUser, 'organisationId'>,
+  id: string,
+  otherId: string,
+): Promise<PlanComparison> {
   const [a, b] = await Promise.all([loadPlan(db, caller, otherId), loadPlan(db, caller, id)]);
   const ra = resultOf(a.plan);
   const rb = resultOf(b.plan);
@@ -251,7 +381,10 @@ export async function comparePlans(db: Db, caller: Pick<AuthUser, 'organisationI
   const describe = (r: PlanResult, bus: string) =>
     r.sessions
       .filter((s) => s.bus === bus)
-      .map((s) => `${s.charger} ${DateTime.fromISO(s.start, { zone }).toFormat('HH:mm')}-${DateTime.fromISO(s.end, { zone }).toFormat('HH:mm')}`)
+      .map(
+        (s) =>
+          `${s.charger} ${DateTime.fromISO(s.start, { zone }).toFormat('HH:mm')}-${DateTime.fromISO(s.end, { zone }).toFormat('HH:mm')}`,
+      )
       .join(', ') || 'not plugged in';
   const busIds = [...new Set([...ra.buses.map((x) => x.id), ...rb.buses.map((x) => x.id)])].sort();
   const moved = busIds

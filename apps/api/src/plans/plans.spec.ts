@@ -28,23 +28,41 @@ async function finished(id: string, who = sup) {
 
 beforeAll(async () => {
   const org = await createOrganisation(app, {
-    sup: ['supervisor'], sup2: ['supervisor'], yard: ['yard'], fin: ['finance'], yardfin: ['finance', 'yard'], supyard: ['yard', 'supervisor'],
+    sup: ['supervisor'],
+    sup2: ['supervisor'],
+    yard: ['yard'],
+    fin: ['finance'],
+    yardfin: ['finance', 'yard'],
+    supyard: ['yard', 'supervisor'],
   });
   ({ sup, sup2, yard, fin, yardfin: yardFin, supyard: supYard } = org.users as Record<string, TestUser>);
   depotId = (await createDepot(app.db, org.organisationId)).depot.id;
   await addBuses(app.db, org.organisationId, depotId, NUMBERS);
   // Wednesday and Thursday: the plan covers Wednesday's midday layover and night.
-  await app.request().put(`/api/depots/${depotId}/service-days/2026-12-09`).set(as(sup))
-    .send({ forecastLowF: 25, runs: dayRuns('2026-12-09', NUMBERS) }).expect(200);
-  await app.request().put(`/api/depots/${depotId}/service-days/2026-12-10`).set(as(sup))
-    .send({ forecastLowF: 25, runs: dayRuns('2026-12-10', NUMBERS) }).expect(200);
+  await app
+    .request()
+    .put(`/api/depots/${depotId}/service-days/2026-12-09`)
+    .set(as(sup))
+    .send({ forecastLowF: 25, runs: dayRuns('2026-12-09', NUMBERS) })
+    .expect(200);
+  await app
+    .request()
+    .put(`/api/depots/${depotId}/service-days/2026-12-10`)
+    .set(as(sup))
+    .send({ forecastLowF: 25, runs: dayRuns('2026-12-10', NUMBERS) })
+    .expect(200);
 });
 
 describe('plans', () => {
   let first: { id: string };
 
   it('generates a plan through the pg-boss queue and stores it with its input snapshot', async () => {
-    const res = await app.request().post(`/api/depots/${depotId}/plans`).set(as(sup)).send({ serviceDate: '2026-12-09' }).expect(202);
+    const res = await app
+      .request()
+      .post(`/api/depots/${depotId}/plans`)
+      .set(as(sup))
+      .send({ serviceDate: '2026-12-09' })
+      .expect(202);
     expect(res.body.plan).toMatchObject({ version: 1, state: 'draft', status: 'queued' });
     const plan = await finished(res.body.plan.id);
     expect(plan.status).toBe('done');
@@ -62,15 +80,21 @@ describe('plans', () => {
     // Every bus leaves in the morning with at least its first run plus its reserve.
     for (const bus of scenario.buses) {
       const out = plan.result.buses.find((b: { id: string }) => b.id === bus.id);
-      expect(out.departures.at(-1).kwh + out.shortfallKwh).toBeGreaterThanOrEqual(bus.stays.at(-1)!.departMinKwh - 1e-6);
+      expect(out.departures.at(-1).kwh + out.shortfallKwh).toBeGreaterThanOrEqual(
+        bus.stays.at(-1)!.departMinKwh - 1e-6,
+      );
     }
   });
 
   it('the scenario file downloads and comes back as a what-if draft', async () => {
     const file = await app.request().get(`/api/plans/${first.id}/scenario`).set(as(sup)).expect(200);
     expect(file.headers['content-disposition']).toMatch(/scenario-2026-12-09-v1\.json/);
-    const whatIf = await app.request().post(`/api/depots/${depotId}/plans/what-if`).set(as(sup))
-      .send({ ...file.body, site: { ...file.body.site, limitKw: 90 } }).expect(202);
+    const whatIf = await app
+      .request()
+      .post(`/api/depots/${depotId}/plans/what-if`)
+      .set(as(sup))
+      .send({ ...file.body, site: { ...file.body.site, limitKw: 90 } })
+      .expect(202);
     const plan = await finished(whatIf.body.plan.id);
     expect(plan.kind).toBe('what-if');
     expect(plan.version).toBe(2);
@@ -79,33 +103,64 @@ describe('plans', () => {
   it('a scenario file of another version is refused with its field, nothing saved', async () => {
     const file = await app.request().get(`/api/plans/${first.id}/scenario`).set(as(sup)).expect(200);
     const before = (await app.db.select().from(plans).where(eq(plans.depotId, depotId))).length;
-    const res = await app.request().post(`/api/depots/${depotId}/plans/what-if`).set(as(sup)).send({ ...file.body, version: 2 }).expect(400);
+    const res = await app
+      .request()
+      .post(`/api/depots/${depotId}/plans/what-if`)
+      .set(as(sup))
+      .send({ ...file.body, version: 2 })
+      .expect(400);
     expect(res.body.error.fields.version).toBe('must be 1');
     expect((await app.db.select().from(plans).where(eq(plans.depotId, depotId))).length).toBe(before);
   });
 
   it('publishes: the yard and supervisors get an e-mail with the summary and a link; the plan never changes', async () => {
-    const res = await app.request().post(`/api/plans/${first.id}/publish`).set(as(sup)).send({ expectedPublishedId: null }).expect(200);
+    const res = await app
+      .request()
+      .post(`/api/plans/${first.id}/publish`)
+      .set(as(sup))
+      .send({ expectedPublishedId: null })
+      .expect(200);
     expect(res.body.plan.state).toBe('published');
     const [mail] = await mailFor(yard.email);
-    expect(mail!.subject).toMatch(/Charging plan published: Test depot, night of Wednesday 9 December 2026 \(version 1\)/);
+    expect(mail!.subject).toMatch(
+      /Charging plan published: Test depot, night of Wednesday 9 December 2026 \(version 1\)/,
+    );
     // Built per recipient: yard staff get the Yard at that night (Plans is not theirs to open).
     expect(mail!.text).toContain('Open the yard view for that night: http://nightyard.test/yard?night=2026-12-09');
     expect(mail!.text).not.toContain('/plans');
-    expect(mail!.text).toMatch(/Projected electricity cost: \$[\d,.]+ \((charge on arrival|timer), within the same limits: \$[\d,.]+\)/);
+    expect(mail!.text).toMatch(
+      /Projected electricity cost: \$[\d,.]+ \((charge on arrival|timer), within the same limits: \$[\d,.]+\)/,
+    );
     const [supMail] = await mailFor(sup2.email);
     expect(supMail!.text).toContain(`Review the plan: http://nightyard.test/plans?date=2026-12-09&plan=${first.id}`);
     // Several roles: the first of supervisor, yard, facilities, finance, admin decides, as for the home page.
-    expect((await mailFor(supYard.email))[0]!.text).toContain(`http://nightyard.test/plans?date=2026-12-09&plan=${first.id}`);
+    expect((await mailFor(supYard.email))[0]!.text).toContain(
+      `http://nightyard.test/plans?date=2026-12-09&plan=${first.id}`,
+    );
     expect((await mailFor(yardFin.email))[0]!.text).toContain('http://nightyard.test/yard?night=2026-12-09');
     expect(await mailFor(fin.email, 1, 300)).toHaveLength(0);
-    const again = await app.request().post(`/api/plans/${first.id}/publish`).set(as(sup)).send({ expectedPublishedId: null }).expect(409);
+    const again = await app
+      .request()
+      .post(`/api/plans/${first.id}/publish`)
+      .set(as(sup))
+      .send({ expectedPublishedId: null })
+      .expect(409);
     expect(again.body.error.message).toMatch(/already published/);
   });
 
   it('two supervisors publishing at once: exactly one wins, the other gets a clear conflict', async () => {
-    const a = await app.request().post(`/api/depots/${depotId}/plans`).set(as(sup)).send({ serviceDate: '2026-12-09', includeMidday: false }).expect(202);
-    const b = await app.request().post(`/api/depots/${depotId}/plans`).set(as(sup2)).send({ serviceDate: '2026-12-09' }).expect(202);
+    const a = await app
+      .request()
+      .post(`/api/depots/${depotId}/plans`)
+      .set(as(sup))
+      .send({ serviceDate: '2026-12-09', includeMidday: false })
+      .expect(202);
+    const b = await app
+      .request()
+      .post(`/api/depots/${depotId}/plans`)
+      .set(as(sup2))
+      .send({ serviceDate: '2026-12-09' })
+      .expect(202);
     await finished(a.body.plan.id);
     await finished(b.body.plan.id);
     const results = await Promise.all([
@@ -119,7 +174,12 @@ describe('plans', () => {
     expect(published.filter((p) => p.state === 'published')).toHaveLength(1);
     expect(published.find((p) => p.id === first.id)!.state).toBe('superseded');
     // The versions are kept and listed.
-    const list = await app.request().get(`/api/depots/${depotId}/plans`).query({ serviceDate: '2026-12-09' }).set(as(fin)).expect(200);
+    const list = await app
+      .request()
+      .get(`/api/depots/${depotId}/plans`)
+      .query({ serviceDate: '2026-12-09' })
+      .set(as(fin))
+      .expect(200);
     expect(list.body.plans.map((p: { version: number }) => p.version)).toEqual([4, 3, 2, 1]);
   });
 
@@ -133,19 +193,47 @@ describe('plans', () => {
   });
 
   it('roles and isolation', async () => {
-    await app.request().post(`/api/depots/${depotId}/plans`).set(as(yard)).send({ serviceDate: '2026-12-09' }).expect(403);
-    await app.request().post(`/api/plans/${first.id}/publish`).set(as(fin)).send({ expectedPublishedId: null }).expect(403);
+    await app
+      .request()
+      .post(`/api/depots/${depotId}/plans`)
+      .set(as(yard))
+      .send({ serviceDate: '2026-12-09' })
+      .expect(403);
+    await app
+      .request()
+      .post(`/api/plans/${first.id}/publish`)
+      .set(as(fin))
+      .send({ expectedPublishedId: null })
+      .expect(403);
     const outsider = (await createOrganisation(app, { s: ['supervisor'] })).users.s!;
     await app.request().get(`/api/plans/${first.id}`).set(as(outsider)).expect(404);
-    await app.request().post(`/api/depots/${depotId}/plans`).set(as(outsider)).send({ serviceDate: '2026-12-09' }).expect(404);
+    await app
+      .request()
+      .post(`/api/depots/${depotId}/plans`)
+      .set(as(outsider))
+      .send({ serviceDate: '2026-12-09' })
+      .expect(404);
   });
 
   it('a reading at the last pull-in starts the plan there, without the midday layover', async () => {
-    await app.request().put(`/api/depots/${depotId}/service-days/2026-12-16`).set(as(sup))
-      .send({ runs: dayRuns('2026-12-16', NUMBERS, (i) => 40 + i * 5) }).expect(200);
-    await app.request().put(`/api/depots/${depotId}/service-days/2026-12-17`).set(as(sup))
-      .send({ runs: dayRuns('2026-12-17', NUMBERS) }).expect(200);
-    const res = await app.request().post(`/api/depots/${depotId}/plans`).set(as(sup)).send({ serviceDate: '2026-12-16' }).expect(202);
+    await app
+      .request()
+      .put(`/api/depots/${depotId}/service-days/2026-12-16`)
+      .set(as(sup))
+      .send({ runs: dayRuns('2026-12-16', NUMBERS, (i) => 40 + i * 5) })
+      .expect(200);
+    await app
+      .request()
+      .put(`/api/depots/${depotId}/service-days/2026-12-17`)
+      .set(as(sup))
+      .send({ runs: dayRuns('2026-12-17', NUMBERS) })
+      .expect(200);
+    const res = await app
+      .request()
+      .post(`/api/depots/${depotId}/plans`)
+      .set(as(sup))
+      .send({ serviceDate: '2026-12-16' })
+      .expect(202);
     const [row] = await app.db.select().from(plans).where(eq(plans.id, res.body.plan.id));
     const scenario = row!.scenario;
     // Bus 11 (196 kWh) read 40 % at its 16:20 pull-in.
@@ -155,7 +243,14 @@ describe('plans', () => {
   });
 
   it('a night without a next service day is refused with what to do', async () => {
-    const res = await app.request().post(`/api/depots/${depotId}/plans`).set(as(sup)).send({ serviceDate: '2026-12-17' }).expect(400);
-    expect(res.body.error.message).toMatch(/No runs after 2026-12-17: enter the next service day's runs under Fleet first/);
+    const res = await app
+      .request()
+      .post(`/api/depots/${depotId}/plans`)
+      .set(as(sup))
+      .send({ serviceDate: '2026-12-17' })
+      .expect(400);
+    expect(res.body.error.message).toMatch(
+      /No runs after 2026-12-17: enter the next service day's runs under Fleet first/,
+    );
   });
 });

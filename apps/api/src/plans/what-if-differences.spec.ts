@@ -5,15 +5,52 @@ import { whatIfDifferences } from './what-if-differences';
 /** A small night at a Chicago depot: two chargers on a cabinet, one alone, two buses. */
 function night(change: (s: ScenarioInput) => void = () => undefined): Scenario {
   const input: ScenarioInput = {
-    version: 1, timezone: 'America/Chicago', start: '2026-12-09T16:00', end: '2026-12-10T06:30', slotMinutes: 15, efficiency: 0.92,
+    version: 1,
+    timezone: 'America/Chicago',
+    start: '2026-12-09T16:00',
+    end: '2026-12-10T06:30',
+    slotMinutes: 15,
+    efficiency: 0.92,
     site: { limitKw: 400, otherLoadKw: 20 },
     cabinets: [{ id: 'P1', limitKw: 120 }],
-    chargers: [{ id: 'C1', maxKw: 60, cabinet: 'P1' }, { id: 'C2', maxKw: 60, cabinet: 'P1' }, { id: 'C3', maxKw: 30 }],
-    tariff: { currency: 'USD', offPeakPrice: 0.08, facilityDemandCharge: 12, peaksSoFarKw: {},
-      periods: [{ name: 'on-peak', price: 0.27, demandCharge: 9.5, windows: [{ days: [1, 2, 3, 4, 5], from: '16:00', to: '21:00' }] }] },
+    chargers: [
+      { id: 'C1', maxKw: 60, cabinet: 'P1' },
+      { id: 'C2', maxKw: 60, cabinet: 'P1' },
+      { id: 'C3', maxKw: 30 },
+    ],
+    tariff: {
+      currency: 'USD',
+      offPeakPrice: 0.08,
+      facilityDemandCharge: 12,
+      peaksSoFarKw: {},
+      periods: [
+        {
+          name: 'on-peak',
+          price: 0.27,
+          demandCharge: 9.5,
+          windows: [{ days: [1, 2, 3, 4, 5], from: '16:00', to: '21:00' }],
+        },
+      ],
+    },
     buses: [
-      { id: '201', usableKwh: 196, maxKw: 60, arrivalKwh: 60, reserveKwh: 29, ceilingKwh: 176, stays: [{ arrive: '2026-12-09T16:20', depart: '2026-12-10T06:10', departMinKwh: 120 }] },
-      { id: '202', usableKwh: 155, maxKw: 60, arrivalKwh: 50, reserveKwh: 23, ceilingKwh: 140, stays: [{ arrive: '2026-12-09T16:25', depart: '2026-12-10T06:15', departMinKwh: 100 }] },
+      {
+        id: '201',
+        usableKwh: 196,
+        maxKw: 60,
+        arrivalKwh: 60,
+        reserveKwh: 29,
+        ceilingKwh: 176,
+        stays: [{ arrive: '2026-12-09T16:20', depart: '2026-12-10T06:10', departMinKwh: 120 }],
+      },
+      {
+        id: '202',
+        usableKwh: 155,
+        maxKw: 60,
+        arrivalKwh: 50,
+        reserveKwh: 23,
+        ceilingKwh: 140,
+        stays: [{ arrive: '2026-12-09T16:25', depart: '2026-12-10T06:15', departMinKwh: 100 }],
+      },
     ],
   };
   change(input);
@@ -56,7 +93,7 @@ describe('what a what-if differs in from the depot now', () => {
       'Charger C9 is in the study but not at the depot: left out',
       'Rate plan changed: on-peak energy in the study 0.30 USD/kWh, depot now 0.27 USD/kWh',
       'Rate plan changed: the hours of on-peak differ from the study',
-      'Bus 201 arrives in the study with 40 kWh, the day\'s data now says 60 kWh',
+      "Bus 201 arrives in the study with 40 kWh, the day's data now says 60 kWh",
       'Bus 201 at the depot in the study 16:20-06:10, from the runs now 16:20-06:00',
       'Bus 299 is in the study but has no run to plan for now (or is not active): left out',
       'Bus 202 has runs now but is not in the study: included',

@@ -31,7 +31,11 @@ async function finished(id: string) {
   throw new Error('plan did not finish');
 }
 
-const nightPlans = () => app.db.select().from(plans).where(and(eq(plans.depotId, depotId), eq(plans.serviceDate, '2026-12-09')));
+const nightPlans = () =>
+  app.db
+    .select()
+    .from(plans)
+    .where(and(eq(plans.depotId, depotId), eq(plans.serviceDate, '2026-12-09')));
 
 beforeAll(async () => {
   const org = await createOrganisation(app, { sup: ['supervisor'], yard: ['yard'], fin: ['finance'] });
@@ -40,14 +44,28 @@ beforeAll(async () => {
   depotId = (await createDepot(app.db, organisationId)).depot.id;
   await addBuses(app.db, organisationId, depotId, NUMBERS);
   for (const date of ['2026-12-09', '2026-12-10']) {
-    await app.request().put(`/api/depots/${depotId}/service-days/${date}`).set(as(sup)).send({ runs: dayRuns(date, NUMBERS) }).expect(200);
+    await app
+      .request()
+      .put(`/api/depots/${depotId}/service-days/${date}`)
+      .set(as(sup))
+      .send({ runs: dayRuns(date, NUMBERS) })
+      .expect(200);
   }
   // The study: the depot's own night on a 150 kW service limit, charger C still in it.
-  const generated = await app.request().post(`/api/depots/${depotId}/plans`).set(as(sup)).send({ serviceDate: '2026-12-09' }).expect(202);
+  const generated = await app
+    .request()
+    .post(`/api/depots/${depotId}/plans`)
+    .set(as(sup))
+    .send({ serviceDate: '2026-12-09' })
+    .expect(202);
   generatedId = (await finished(generated.body.plan.id)).id;
   const file = await app.request().get(`/api/plans/${generatedId}/scenario`).set(as(sup)).expect(200);
-  const res = await app.request().post(`/api/depots/${depotId}/plans/what-if`).set(as(sup))
-    .send({ ...file.body, site: { ...file.body.site, limitKw: 150 } }).expect(202);
+  const res = await app
+    .request()
+    .post(`/api/depots/${depotId}/plans/what-if`)
+    .set(as(sup))
+    .send({ ...file.body, site: { ...file.body.site, limitKw: 150 } })
+    .expect(202);
   whatIfId = res.body.plan.id;
   expect((await finished(whatIfId)).status).toBe('done');
 });
@@ -56,11 +74,24 @@ describe('what-if plans are studies', () => {
   it('are stored and answered with their kind: what-if', async () => {
     const [row] = await app.db.select().from(plans).where(eq(plans.id, whatIfId));
     expect(row!.kind).toBe('what-if');
-    const list = await app.request().get(`/api/depots/${depotId}/plans`).query({ serviceDate: '2026-12-09' }).set(as(fin)).expect(200);
-    expect(list.body.plans.map((p: { version: number; kind: string }) => [p.version, p.kind])).toEqual([[2, 'what-if'], [1, 'generated']]);
+    const list = await app
+      .request()
+      .get(`/api/depots/${depotId}/plans`)
+      .query({ serviceDate: '2026-12-09' })
+      .set(as(fin))
+      .expect(200);
+    expect(list.body.plans.map((p: { version: number; kind: string }) => [p.version, p.kind])).toEqual([
+      [2, 'what-if'],
+      [1, 'generated'],
+    ]);
     const detail = await app.request().get(`/api/plans/${whatIfId}`).set(as(fin)).expect(200);
     expect(detail.body.plan.notes[0]).toMatch(/What-if: a study .* never published/);
-    const compare = await app.request().get(`/api/plans/${whatIfId}/compare`).query({ with: generatedId }).set(as(sup)).expect(200);
+    const compare = await app
+      .request()
+      .get(`/api/plans/${whatIfId}/compare`)
+      .query({ with: generatedId })
+      .set(as(sup))
+      .expect(200);
     expect(compare.body.from).toMatchObject({ version: 1, kind: 'generated' });
     expect(compare.body.to).toMatchObject({ version: 2, kind: 'what-if' });
     const openapi = await app.request().get('/api/openapi.json').expect(200);
@@ -69,8 +100,15 @@ describe('what-if plans are studies', () => {
 
   it('publishing one is refused with 409 and nothing changes: no state, no e-mail, no profiles', async () => {
     const before = await nightPlans();
-    const res = await app.request().post(`/api/plans/${whatIfId}/publish`).set(as(sup)).send({ expectedPublishedId: null }).expect(409);
-    expect(res.body.error.message).toMatch(/Version 2 is a what-if.*never published, e-mailed or sent to chargers.*Adopt it/);
+    const res = await app
+      .request()
+      .post(`/api/plans/${whatIfId}/publish`)
+      .set(as(sup))
+      .send({ expectedPublishedId: null })
+      .expect(409);
+    expect(res.body.error.message).toMatch(
+      /Version 2 is a what-if.*never published, e-mailed or sent to chargers.*Adopt it/,
+    );
     expect(await nightPlans()).toEqual(before);
     expect(pushed).toEqual([]);
     expect(await mailFor(yard.email, 1, 500)).toHaveLength(0);
@@ -79,20 +117,46 @@ describe('what-if plans are studies', () => {
 
   it('adoption lists what differs from the depot now and changes nothing until adopted', async () => {
     // Since the study: charger C out of service, a larger service limit, a new rate plan.
-    await app.db.update(chargers).set({ status: 'out_of_service', statusReason: 'cable damaged' })
+    await app.db
+      .update(chargers)
+      .set({ status: 'out_of_service', statusReason: 'cable damaged' })
       .where(and(eq(chargers.depotId, depotId), eq(chargers.label, 'C')));
     await app.db.update(depots).set({ serviceLimitKw: 400 }).where(eq(depots.id, depotId));
     const definition = ratePlanDefinitionSchema.parse({
       currency: 'USD',
-      seasons: [{ name: 'All year', fromMonth: 1, toMonth: 12, offPeakPrice: 0.09, facilityDemandCharge: 12,
-        periods: [{ name: 'on-peak', price: 0.31, demandCharge: 9.5, windows: [{ dayTypes: ['weekday'], from: '16:00', to: '21:00' }] }] }],
+      seasons: [
+        {
+          name: 'All year',
+          fromMonth: 1,
+          toMonth: 12,
+          offPeakPrice: 0.09,
+          facilityDemandCharge: 12,
+          periods: [
+            {
+              name: 'on-peak',
+              price: 0.31,
+              demandCharge: 9.5,
+              windows: [{ dayTypes: ['weekday'], from: '16:00', to: '21:00' }],
+            },
+          ],
+        },
+      ],
     });
-    const [rate] = await app.db.insert(ratePlans).values({ organisationId, name: 'Winter TOU', currency: 'USD', definition }).returning();
-    await app.db.insert(depotRatePlans).values({ organisationId, depotId, ratePlanId: rate!.id, effectiveFrom: '2026-12-01' });
+    const [rate] = await app.db
+      .insert(ratePlans)
+      .values({ organisationId, name: 'Winter TOU', currency: 'USD', definition })
+      .returning();
+    await app.db
+      .insert(depotRatePlans)
+      .values({ organisationId, depotId, ratePlanId: rate!.id, effectiveFrom: '2026-12-01' });
 
     const count = (await nightPlans()).length;
     const res = await app.request().get(`/api/plans/${whatIfId}/adoption`).set(as(sup)).expect(200);
-    expect(res.body).toMatchObject({ whatIf: { id: whatIfId, version: 2 }, serviceDate: '2026-12-09', includesMidday: true });
+    expect(res.body).toMatchObject({
+      whatIf: { id: whatIfId, version: 2 },
+      serviceDate: '2026-12-09',
+      includesMidday: true,
+    });
     expect(res.body.differences).toEqual([
       'Service limit in the study 150 kW, depot now 400 kW',
       'Charger C out of service now (cable damaged): left out',
@@ -104,12 +168,18 @@ describe('what-if plans are studies', () => {
 
   it('adopting makes a normal draft from the depot now, the differences first in its notes; it publishes as any draft', async () => {
     const res = await app.request().post(`/api/plans/${whatIfId}/adopt`).set(as(sup)).expect(202);
-    expect(res.body.plan).toMatchObject({ kind: 'generated', state: 'draft', version: 3, serviceDate: '2026-12-09', includesMidday: true });
+    expect(res.body.plan).toMatchObject({
+      kind: 'generated',
+      state: 'draft',
+      version: 3,
+      serviceDate: '2026-12-09',
+      includesMidday: true,
+    });
     expect(res.body.adoption.differences).toContain('Charger C out of service now (cable damaged): left out');
     const draft = await finished(res.body.plan.id);
     expect(draft.status).toBe('done');
     expect(draft.notes.slice(0, 3)).toEqual([
-      'Adopted from what-if version 2, re-checked against the depot as it is now: 4 differences from the study, the depot\'s data used.',
+      "Adopted from what-if version 2, re-checked against the depot as it is now: 4 differences from the study, the depot's data used.",
       'Differs from the study: Service limit in the study 150 kW, depot now 400 kW.',
       'Differs from the study: Charger C out of service now (cable damaged): left out.',
     ]);
@@ -123,7 +193,12 @@ describe('what-if plans are studies', () => {
     const [study] = await app.db.select().from(plans).where(eq(plans.id, whatIfId));
     expect(study).toMatchObject({ kind: 'what-if', state: 'draft' });
     // The adopted draft is a normal one: it publishes, e-mails the yard and goes to the chargers.
-    await app.request().post(`/api/plans/${draft.id}/publish`).set(as(sup)).send({ expectedPublishedId: null }).expect(200);
+    await app
+      .request()
+      .post(`/api/plans/${draft.id}/publish`)
+      .set(as(sup))
+      .send({ expectedPublishedId: null })
+      .expect(200);
     expect(pushed).toEqual([draft.id]);
     const [mail] = await mailFor(yard.email);
     expect(mail!.subject).toMatch(/Charging plan published: .*\(version 3\)/);
@@ -139,11 +214,16 @@ describe('what-if plans are studies', () => {
     try {
       const count = (await nightPlans()).length;
       const res = await app.request().post(`/api/plans/${whatIfId}/adopt`).set(as(sup)).expect(409);
-      expect(res.body.error.message).toMatch(/What-if version 2 cannot be re-checked against Test depot as it is now: Test depot has no charger in service\. Nothing was changed\./);
+      expect(res.body.error.message).toMatch(
+        /What-if version 2 cannot be re-checked against Test depot as it is now: Test depot has no charger in service\. Nothing was changed\./,
+      );
       await app.request().get(`/api/plans/${whatIfId}/adoption`).set(as(sup)).expect(409);
       expect((await nightPlans()).length).toBe(count);
     } finally {
-      await app.db.update(chargers).set({ status: 'in_service', statusReason: null }).where(eq(chargers.depotId, depotId));
+      await app.db
+        .update(chargers)
+        .set({ status: 'in_service', statusReason: null })
+        .where(eq(chargers.depotId, depotId));
     }
   });
 
@@ -159,7 +239,9 @@ describe('what-if plans are studies', () => {
     await signInAgain(app, sup);
     const count = (await nightPlans()).length;
     const res = await app.request().post(`/api/plans/${whatIfId}/adopt`).set(as(sup)).expect(409);
-    expect(res.body.error.message).toMatch(/The night of Wednesday 9 December 2026 has ended: what-if version 2 can no longer be adopted/);
+    expect(res.body.error.message).toMatch(
+      /The night of Wednesday 9 December 2026 has ended: what-if version 2 can no longer be adopted/,
+    );
     expect((await nightPlans()).length).toBe(count);
   });
 });

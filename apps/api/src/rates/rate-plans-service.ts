@@ -16,12 +16,19 @@ const toPlan = (r: Row): RatePlan => ({
 });
 
 export async function listRatePlans(db: Db, caller: AuthUser): Promise<RatePlan[]> {
-  const rows = await db.select().from(ratePlans).where(eq(ratePlans.organisationId, caller.organisationId)).orderBy(asc(ratePlans.name));
+  const rows = await db
+    .select()
+    .from(ratePlans)
+    .where(eq(ratePlans.organisationId, caller.organisationId))
+    .orderBy(asc(ratePlans.name));
   return rows.map(toPlan);
 }
 
 export async function getRatePlan(db: Db, caller: AuthUser, id: string): Promise<RatePlan> {
-  const [row] = await db.select().from(ratePlans).where(and(eq(ratePlans.id, id), eq(ratePlans.organisationId, caller.organisationId)));
+  const [row] = await db
+    .select()
+    .from(ratePlans)
+    .where(and(eq(ratePlans.id, id), eq(ratePlans.organisationId, caller.organisationId)));
   if (!row) throw notFound('That rate plan');
   return toPlan(row);
 }
@@ -29,7 +36,12 @@ export async function getRatePlan(db: Db, caller: AuthUser, id: string): Promise
 export async function createRatePlan(db: Db, caller: AuthUser, input: SaveRatePlan): Promise<RatePlan> {
   const [row] = await db
     .insert(ratePlans)
-    .values({ organisationId: caller.organisationId, name: input.name, currency: input.definition.currency, definition: input.definition })
+    .values({
+      organisationId: caller.organisationId,
+      name: input.name,
+      currency: input.definition.currency,
+      definition: input.definition,
+    })
     .returning();
   return toPlan(row!);
 }
@@ -52,10 +64,18 @@ export async function deleteRatePlan(db: Db, caller: AuthUser, id: string): Prom
 }
 
 /** From `effectiveFrom` on, the depot is billed under the plan (replacing one set for that date). */
-export async function assignRatePlan(db: Db, caller: AuthUser, depotId: string, ratePlanId: string, effectiveFrom: string): Promise<void> {
+export async function assignRatePlan(
+  db: Db,
+  caller: AuthUser,
+  depotId: string,
+  ratePlanId: string,
+  effectiveFrom: string,
+): Promise<void> {
   await depotOf(db, caller, depotId);
   await getRatePlan(db, caller, ratePlanId).catch(() => {
-    throw new DomainError('validation_failed', 'That rate plan is not one of your organisation\'s', { ratePlanId: 'Choose one of your rate plans' });
+    throw new DomainError('validation_failed', "That rate plan is not one of your organisation's", {
+      ratePlanId: 'Choose one of your rate plans',
+    });
   });
   await db
     .insert(depotRatePlans)
@@ -63,7 +83,12 @@ export async function assignRatePlan(db: Db, caller: AuthUser, depotId: string, 
     .onConflictDoUpdate({ target: [depotRatePlans.depotId, depotRatePlans.effectiveFrom], set: { ratePlanId } });
 }
 
-export async function unassignRatePlan(db: Db, caller: AuthUser, depotId: string, effectiveFrom: string): Promise<void> {
+export async function unassignRatePlan(
+  db: Db,
+  caller: AuthUser,
+  depotId: string,
+  effectiveFrom: string,
+): Promise<void> {
   await depotOf(db, caller, depotId);
   const gone = await db
     .delete(depotRatePlans)

@@ -1,7 +1,13 @@
 import { eq } from 'drizzle-orm';
 import { z } from 'zod';
 import {
-  previewQuerySchema, ratePlanSchema, ratePreviewSchema, saveRatePlanSchema, urdbImportResultSchema, EVERY_ROLE, SETUP_EDITORS,
+  previewQuerySchema,
+  ratePlanSchema,
+  ratePreviewSchema,
+  saveRatePlanSchema,
+  urdbImportResultSchema,
+  EVERY_ROLE,
+  SETUP_EDITORS,
 } from '@nightyard/contracts';
 import type { AppDeps } from '../app-deps';
 import { depots } from '../db/schema';
@@ -15,42 +21,98 @@ const planBody = z.object({ ratePlan: ratePlanSchema });
 
 export function ratesRoutes(api: ApiRoutes, { db }: AppDeps) {
   api.add(
-    { method: 'get', path: '/rate-plans', summary: 'The organisation\'s rate plans', tag: 'rates', access: EVERY_ROLE,
-      response: z.object({ ratePlans: z.array(ratePlanSchema) }) },
+    {
+      method: 'get',
+      path: '/rate-plans',
+      summary: "The organisation's rate plans",
+      tag: 'rates',
+      access: EVERY_ROLE,
+      response: z.object({ ratePlans: z.array(ratePlanSchema) }),
+    },
     async ({ user }) => ({ ratePlans: await ratePlanService.listRatePlans(db, user) }),
   );
   api.add(
-    { method: 'get', path: '/rate-plans/:id', summary: 'One rate plan', tag: 'rates', access: EVERY_ROLE, params: idParams, response: planBody },
+    {
+      method: 'get',
+      path: '/rate-plans/:id',
+      summary: 'One rate plan',
+      tag: 'rates',
+      access: EVERY_ROLE,
+      params: idParams,
+      response: planBody,
+    },
     async ({ user, params }) => ({ ratePlan: await ratePlanService.getRatePlan(db, user, params.id) }),
   );
   api.add(
-    { method: 'post', path: '/rate-plans', summary: 'Save a new rate plan', tag: 'rates', access: SETUP_EDITORS,
-      body: saveRatePlanSchema, response: planBody, status: 201 },
+    {
+      method: 'post',
+      path: '/rate-plans',
+      summary: 'Save a new rate plan',
+      tag: 'rates',
+      access: SETUP_EDITORS,
+      body: saveRatePlanSchema,
+      response: planBody,
+      status: 201,
+    },
     async ({ user, body }) => ({ ratePlan: await ratePlanService.createRatePlan(db, user, body) }),
   );
   api.add(
-    { method: 'put', path: '/rate-plans/:id', summary: 'Replace a rate plan', tag: 'rates', access: SETUP_EDITORS,
-      params: idParams, body: saveRatePlanSchema, response: planBody },
+    {
+      method: 'put',
+      path: '/rate-plans/:id',
+      summary: 'Replace a rate plan',
+      tag: 'rates',
+      access: SETUP_EDITORS,
+      params: idParams,
+      body: saveRatePlanSchema,
+      response: planBody,
+    },
     async ({ user, params, body }) => ({ ratePlan: await ratePlanService.updateRatePlan(db, user, params.id, body) }),
   );
   api.add(
-    { method: 'delete', path: '/rate-plans/:id', summary: 'Remove a rate plan no depot uses', tag: 'rates', access: SETUP_EDITORS,
-      params: idParams, status: 204 },
+    {
+      method: 'delete',
+      path: '/rate-plans/:id',
+      summary: 'Remove a rate plan no depot uses',
+      tag: 'rates',
+      access: SETUP_EDITORS,
+      params: idParams,
+      status: 204,
+    },
     async ({ user, params }) => ratePlanService.deleteRatePlan(db, user, params.id),
   );
   api.add(
-    { method: 'get', path: '/rate-plans/:id/preview', summary: 'Prices and demand-charge periods of one day', tag: 'rates',
-      access: EVERY_ROLE, params: idParams, query: previewQuerySchema, response: ratePreviewSchema },
+    {
+      method: 'get',
+      path: '/rate-plans/:id/preview',
+      summary: 'Prices and demand-charge periods of one day',
+      tag: 'rates',
+      access: EVERY_ROLE,
+      params: idParams,
+      query: previewQuerySchema,
+      response: ratePreviewSchema,
+    },
     async ({ user, params, query }) => {
       const plan = await ratePlanService.getRatePlan(db, user, params.id);
-      const [depot] = await db.select({ tz: depots.timezone }).from(depots).where(eq(depots.organisationId, user.organisationId)).limit(1);
+      const [depot] = await db
+        .select({ tz: depots.timezone })
+        .from(depots)
+        .where(eq(depots.organisationId, user.organisationId))
+        .limit(1);
       // Clock changes depend on the zone: the depot's unless the caller names one.
       return previewDay(plan.definition, query.date, query.timezone ?? depot?.tz ?? 'UTC');
     },
   );
   api.add(
-    { method: 'post', path: '/rate-plans/import-urdb', summary: 'Map an OpenEI URDB rate record to a rate plan for review (saves nothing)',
-      tag: 'rates', access: SETUP_EDITORS, body: z.unknown(), response: urdbImportResultSchema },
+    {
+      method: 'post',
+      path: '/rate-plans/import-urdb',
+      summary: 'Map an OpenEI URDB rate record to a rate plan for review (saves nothing)',
+      tag: 'rates',
+      access: SETUP_EDITORS,
+      body: z.unknown(),
+      response: urdbImportResultSchema,
+    },
     async ({ body }) => importUrdb(body),
   );
 }

@@ -25,9 +25,16 @@ describe('URDB import: summer/winter plan with an evening on-peak', () => {
   const result = importUrdb(summerWinter);
 
   it('maps two seasons, the flat demand charge and the monthly fixed charge', () => {
-    expect(result.name).toBe('Prairie Wind Electric Cooperative (invented): General Service TOU with Demand (invented)');
+    expect(result.name).toBe(
+      'Prairie Wind Electric Cooperative (invented): General Service TOU with Demand (invented)',
+    );
     const seasons = result.definition.seasons.map((s) => [s.fromMonth, s.toMonth, s.facilityDemandCharge]);
-    expect(seasons).toEqual(expect.arrayContaining([[6, 9, 14.25], [10, 5, 9.8]]));
+    expect(seasons).toEqual(
+      expect.arrayContaining([
+        [6, 9, 14.25],
+        [10, 5, 9.8],
+      ]),
+    );
     expect(result.definition.fixedCharges).toEqual([{ name: 'Fixed charge', amount: 35, per: 'month' }]);
   });
 
@@ -43,7 +50,11 @@ describe('URDB import: summer/winter plan with an evening on-peak', () => {
   });
 
   it('prices every hour of a summer weekend and a winter weekday', () => {
-    for (const [date, month, weekend] of [['2027-07-17', 6, true], ['2027-01-13', 0, false], ['2027-01-16', 0, true]] as const) {
+    for (const [date, month, weekend] of [
+      ['2027-07-17', 6, true],
+      ['2027-01-13', 0, false],
+      ['2027-01-16', 0, true],
+    ] as const) {
       const { prices } = hourlyPrices(result.definition, date);
       const schedule = weekend ? summerWinter.energyweekendschedule : summerWinter.energyweekdayschedule;
       for (let h = 0; h < 24; h++) {
@@ -91,13 +102,19 @@ describe('URDB import: bad records name the field', () => {
   };
 
   it('a schedule with 11 months', () => {
-    expect(bad((r) => (r.energyweekdayschedule as unknown[]).pop())).toEqual({ energyweekdayschedule: 'A schedule has 12 months' });
+    expect(bad((r) => (r.energyweekdayschedule as unknown[]).pop())).toEqual({
+      energyweekdayschedule: 'A schedule has 12 months',
+    });
   });
   it('a month with 23 hours', () => {
-    expect(bad((r) => (r.energyweekendschedule as number[][])[3]!.pop())['energyweekendschedule[3]']).toMatch(/24 hourly entries/);
+    expect(bad((r) => (r.energyweekendschedule as number[][])[3]!.pop())['energyweekendschedule[3]']).toMatch(
+      /24 hourly entries/,
+    );
   });
   it('an index missing from its structure', () => {
-    expect(bad((r) => ((r.energyweekdayschedule as number[][])[0]![5] = 7))['energyweekdayschedule[0][5]']).toMatch(/Period 7 is not in energyratestructure/);
+    expect(bad((r) => ((r.energyweekdayschedule as number[][])[0]![5] = 7))['energyweekdayschedule[0][5]']).toMatch(
+      /Period 7 is not in energyratestructure/,
+    );
   });
   it('flatdemandmonths with 11 entries', () => {
     expect(bad((r) => (r.flatdemandmonths as number[]).pop()).flatdemandmonths).toMatch(/12 entries/);
@@ -110,7 +127,11 @@ describe('URDB import: bad records name the field', () => {
     expect(bad((r) => delete r.energyratestructure).energyratestructure).toMatch(/Required/);
   });
   it('an unsupported unit', () => {
-    expect(bad((r) => ((r.energyratestructure as { unit: string }[][])[1]![0]!.unit = 'kWh daily'))['energyratestructure[1][0].unit']).toMatch(/only kWh/);
+    expect(
+      bad((r) => ((r.energyratestructure as { unit: string }[][])[1]![0]!.unit = 'kWh daily'))[
+        'energyratestructure[1][0].unit'
+      ],
+    ).toMatch(/only kWh/);
   });
   it('not an object at all', () => {
     expect(() => importUrdb('hello')).toThrow(DomainError);
@@ -122,19 +143,35 @@ describe('URDB import: tiered energy, demand ratchet and minimum charge', () => 
   // at $0.085), an 80 % ratchet over 11 months, a $25/month minimum.
   const flat = Array.from({ length: 12 }, () => Array.from({ length: 24 }, () => 0));
   const record = {
-    utility: 'Bluestem Rural Power (invented)', name: 'Small General Service (invented)',
-    energyratestructure: [[{ max: 1000, rate: 0.095, adj: 0.005, unit: 'kWh' }, { rate: 0.08, adj: 0.005, unit: 'kWh' }]],
-    energyweekdayschedule: flat, energyweekendschedule: flat,
-    flatdemandstructure: [[{ rate: 8 }]], flatdemandmonths: Array.from({ length: 12 }, () => 0),
-    demandratchetpercentage: Array.from({ length: 12 }, () => 0.8), lookbackrange: 11, demandwindow: 15,
-    mincharge: 25, minchargeunits: '$/month', fixedchargefirstmeter: 12, fixedchargeunits: '$/month',
+    utility: 'Bluestem Rural Power (invented)',
+    name: 'Small General Service (invented)',
+    energyratestructure: [
+      [
+        { max: 1000, rate: 0.095, adj: 0.005, unit: 'kWh' },
+        { rate: 0.08, adj: 0.005, unit: 'kWh' },
+      ],
+    ],
+    energyweekdayschedule: flat,
+    energyweekendschedule: flat,
+    flatdemandstructure: [[{ rate: 8 }]],
+    flatdemandmonths: Array.from({ length: 12 }, () => 0),
+    demandratchetpercentage: Array.from({ length: 12 }, () => 0.8),
+    lookbackrange: 11,
+    demandwindow: 15,
+    mincharge: 25,
+    minchargeunits: '$/month',
+    fixedchargefirstmeter: 12,
+    fixedchargeunits: '$/month',
   };
 
-  it('imports the tiers as monthly kWh blocks on the first tier\'s price', () => {
+  it("imports the tiers as monthly kWh blocks on the first tier's price", () => {
     const result = importUrdb(record);
     const season = result.definition.seasons[0]!;
     expect(season.offPeakPrice).toBeCloseTo(0.1, 10);
-    expect(season.energyBlocks).toEqual([{ uptoKwh: 1000, adder: 0 }, { uptoKwh: null, adder: -0.015 }]);
+    expect(season.energyBlocks).toEqual([
+      { uptoKwh: 1000, adder: 0 },
+      { uptoKwh: null, adder: -0.015 },
+    ]);
     expect(result.notes.join(' ')).toMatch(/2 monthly kWh blocks/);
     expect(result.notes.join(' ')).not.toMatch(/first tier's price \(/);
   });
@@ -148,16 +185,22 @@ describe('URDB import: tiered energy, demand ratchet and minimum charge', () => 
   });
 
   it('a ratchet that varies by month applies its highest value and says so', () => {
-    const result = importUrdb({ ...record, demandratchetpercentage: [80, 80, 80, 80, 80, 90, 90, 90, 90, 80, 80, 80], lookbackrange: undefined });
+    const result = importUrdb({
+      ...record,
+      demandratchetpercentage: [80, 80, 80, 80, 80, 90, 90, 90, 90, 80, 80, 80],
+      lookbackrange: undefined,
+    });
     expect(result.definition.demandRatchet).toEqual({ percent: 90, months: 11 });
     expect(result.notes.join(' ')).toMatch(/varies by month.*90 %/);
     expect(result.notes.join(' ')).toMatch(/previous 11 months \(common practice\)/);
   });
 
-  it('tiers that differ between periods keep the first tier\'s price and say so', () => {
+  it("tiers that differ between periods keep the first tier's price and say so", () => {
     const two = flat.map((m) => m.map((_, h) => (h >= 16 && h < 20 ? 1 : 0)));
     const result = importUrdb({
-      ...record, energyweekdayschedule: two, energyweekendschedule: flat,
+      ...record,
+      energyweekdayschedule: two,
+      energyweekendschedule: flat,
       energyratestructure: [record.energyratestructure[0], [{ max: 500, rate: 0.2 }, { rate: 0.25 }]],
     });
     expect(result.definition.seasons[0]!.energyBlocks).toEqual([]);

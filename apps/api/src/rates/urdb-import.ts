@@ -1,6 +1,12 @@
 import { z } from 'zod';
 import {
-  ratePlanDefinitionSchema, text, type RatePlanDefinition, type Season, type TouPeriod, type TouWindow, type UrdbImportResult,
+  ratePlanDefinitionSchema,
+  text,
+  type RatePlanDefinition,
+  type Season,
+  type TouPeriod,
+  type TouWindow,
+  type UrdbImportResult,
   fieldPath,
 } from '@nightyard/contracts';
 import { DomainError } from '../http/errors';
@@ -11,22 +17,37 @@ import { DomainError } from '../http/errors';
 
 /** A price in the physical range of its unit ($/kWh for energy, $/kW for demand). */
 const price = (lo: number, hi: number, unit: string) =>
-  z.number({ error: `Give the price in ${unit} as a number` })
+  z
+    .number({ error: `Give the price in ${unit} as a number` })
     .min(lo, `Prices are ${lo} to ${hi.toLocaleString('en-US')} ${unit}`)
     .max(hi, `Prices are ${lo} to ${hi.toLocaleString('en-US')} ${unit}`);
-const tierSchema = (lo: number, hi: number, unit: string) => z.looseObject({
-  rate: price(lo, hi, unit).optional(),
-  adj: price(-hi, hi, unit).optional(),
-  max: z.number().min(0, 'A tier limit cannot be negative').max(1e9, 'A tier limit looks too large').optional(),
-  unit: text('The unit').max(20).optional(),
-  sell: price(-hi, hi, unit).optional(),
-});
+const tierSchema = (lo: number, hi: number, unit: string) =>
+  z.looseObject({
+    rate: price(lo, hi, unit).optional(),
+    adj: price(-hi, hi, unit).optional(),
+    max: z.number().min(0, 'A tier limit cannot be negative').max(1e9, 'A tier limit looks too large').optional(),
+    unit: text('The unit').max(20).optional(),
+    sell: price(-hi, hi, unit).optional(),
+  });
 const structureSchema = (lo: number, hi: number, unit: string) =>
-  z.array(z.array(tierSchema(lo, hi, unit)).min(1, 'A period needs at least one tier').max(20)).max(100);
+  z
+    .array(
+      z
+        .array(tierSchema(lo, hi, unit))
+        .min(1, 'A period needs at least one tier')
+        .max(20),
+    )
+    .max(100);
 const energyStructure = structureSchema(-10, 100, '$/kWh');
 const demandStructure = structureSchema(0, 10_000, '$/kW');
 const scheduleSchema = z
-  .array(z.array(z.number().int().min(0, 'Period indices start at 0'), { error: 'Each month is a list of 24 period indices' }).length(24, 'Each month needs 24 hourly entries (hours 0-23)'))
+  .array(
+    z
+      .array(z.number().int().min(0, 'Period indices start at 0'), {
+        error: 'Each month is a list of 24 period indices',
+      })
+      .length(24, 'Each month needs 24 hourly entries (hours 0-23)'),
+  )
   .length(12, 'A schedule has 12 months');
 
 const recordSchema = z.looseObject({
@@ -40,13 +61,26 @@ const recordSchema = z.looseObject({
   demandweekdayschedule: scheduleSchema.optional(),
   demandweekendschedule: scheduleSchema.optional(),
   flatdemandstructure: demandStructure.optional(),
-  flatdemandmonths: z.array(z.number().int().min(0)).length(12, 'flatdemandmonths needs 12 entries, one per month').optional(),
-  fixedchargefirstmeter: z.number().min(0, 'A fixed charge cannot be negative').max(10_000_000, 'The fixed charge looks too large').optional(),
+  flatdemandmonths: z
+    .array(z.number().int().min(0))
+    .length(12, 'flatdemandmonths needs 12 entries, one per month')
+    .optional(),
+  fixedchargefirstmeter: z
+    .number()
+    .min(0, 'A fixed charge cannot be negative')
+    .max(10_000_000, 'The fixed charge looks too large')
+    .optional(),
   fixedchargeunits: text('The unit').max(20).optional(),
-  mincharge: z.number().min(0, 'A minimum charge cannot be negative').max(10_000_000, 'The minimum charge looks too large').optional(),
+  mincharge: z
+    .number()
+    .min(0, 'A minimum charge cannot be negative')
+    .max(10_000_000, 'The minimum charge looks too large')
+    .optional(),
   minchargeunits: text('The unit').max(20).optional(),
-  demandratchetpercentage: z.array(z.number().min(0, 'A ratchet percentage cannot be negative').max(100, 'A ratchet percentage is at most 100'))
-    .length(12, 'demandratchetpercentage needs 12 entries, one per month').optional(),
+  demandratchetpercentage: z
+    .array(z.number().min(0, 'A ratchet percentage cannot be negative').max(100, 'A ratchet percentage is at most 100'))
+    .length(12, 'demandratchetpercentage needs 12 entries, one per month')
+    .optional(),
   lookbackrange: z.number().int().min(0).max(36, 'A look-back of at most 36 months').optional(),
   demandwindow: z.number().min(1).max(1440).optional(),
   demandunits: text('The unit').max(20).optional(),
@@ -69,14 +103,19 @@ const MONTHS = ['Jan', 'Feb', 'Mar', 'Apr', 'May', 'Jun', 'Jul', 'Aug', 'Sep', '
 
 function fail(fields: Record<string, string>): never {
   const names = Object.keys(fields);
-  throw new DomainError('validation_failed', `This URDB record cannot be imported: check ${names.slice(0, 5).join(', ')}${names.length > 5 ? ', ...' : ''}`, fields);
+  throw new DomainError(
+    'validation_failed',
+    `This URDB record cannot be imported: check ${names.slice(0, 5).join(', ')}${names.length > 5 ? ', ...' : ''}`,
+    fields,
+  );
 }
 
 /** Accepts one record or the API's `{ items: [record] }` envelope. */
 function unwrap(input: unknown): unknown {
   if (input && typeof input === 'object' && 'items' in input && Array.isArray((input as { items: unknown[] }).items)) {
     const items = (input as { items: unknown[] }).items;
-    if (items.length !== 1) fail({ items: `The file holds ${items.length} rate records: export just the one to import` });
+    if (items.length !== 1)
+      fail({ items: `The file holds ${items.length} rate records: export just the one to import` });
     return items[0];
   }
   return input;
@@ -89,28 +128,43 @@ function periodRate(tiers: Tier[], what: string, notes: string[], tiersImported 
   const first = tiers[0]!;
   const rate = tierPrice(first);
   if (tiers.length > 1 && !tiersImported) {
-    notes.push(`${what} has ${tiers.length} tiers; tiered prices are not supported, so the first tier's price (${rate}) applies to all use.`);
+    notes.push(
+      `${what} has ${tiers.length} tiers; tiered prices are not supported, so the first tier's price (${rate}) applies to all use.`,
+    );
   }
   return rate;
 }
 
-function checkStructure(rec: UrdbRecord, structureKey: 'energyratestructure' | 'demandratestructure' | 'flatdemandstructure', errors: Record<string, string>) {
+function checkStructure(
+  rec: UrdbRecord,
+  structureKey: 'energyratestructure' | 'demandratestructure' | 'flatdemandstructure',
+  errors: Record<string, string>,
+) {
   const structure = rec[structureKey];
   structure?.forEach((tiers, p) =>
     tiers.forEach((t, i) => {
-      if (i < tiers.length - 1 && t.max === undefined) errors[`${structureKey}[${p}][${i}].max`] = 'Every tier but the last needs a max';
-      if (t.rate === undefined && t.adj === undefined) errors[`${structureKey}[${p}][${i}].rate`] = 'A tier needs a rate';
+      if (i < tiers.length - 1 && t.max === undefined)
+        errors[`${structureKey}[${p}][${i}].max`] = 'Every tier but the last needs a max';
+      if (t.rate === undefined && t.adj === undefined)
+        errors[`${structureKey}[${p}][${i}].rate`] = 'A tier needs a rate';
       else if (i === 0 && (t.rate ?? 0) + (t.adj ?? 0) < 0) {
-        errors[`${structureKey}[${p}][${i}].rate`] = `The price with its adjustment is ${(t.rate ?? 0) + (t.adj ?? 0)}: Nightyard needs prices of 0 or more`;
+        errors[`${structureKey}[${p}][${i}].rate`] =
+          `The price with its adjustment is ${(t.rate ?? 0) + (t.adj ?? 0)}: Nightyard needs prices of 0 or more`;
       }
       if (structureKey === 'energyratestructure' && t.unit !== undefined && t.unit !== 'kWh') {
-        errors[`${structureKey}[${p}][${i}].unit`] = `Unit "${t.unit}" is not supported: only kWh prices can be imported`;
+        errors[`${structureKey}[${p}][${i}].unit`] =
+          `Unit "${t.unit}" is not supported: only kWh prices can be imported`;
       }
     }),
   );
 }
 
-function checkIndices(rec: UrdbRecord, scheduleKey: keyof UrdbRecord, structureKey: keyof UrdbRecord, errors: Record<string, string>) {
+function checkIndices(
+  rec: UrdbRecord,
+  scheduleKey: keyof UrdbRecord,
+  structureKey: keyof UrdbRecord,
+  errors: Record<string, string>,
+) {
   const schedule = rec[scheduleKey] as number[][] | undefined;
   const structure = rec[structureKey] as unknown[] | undefined;
   if (!schedule) return;
@@ -121,7 +175,8 @@ function checkIndices(rec: UrdbRecord, scheduleKey: keyof UrdbRecord, structureK
   schedule.forEach((row, m) =>
     row.forEach((idx, h) => {
       if (idx >= structure.length) {
-        errors[`${String(scheduleKey)}[${m}][${h}]`] ??= `Period ${idx} is not in ${String(structureKey)} (it has periods 0-${structure.length - 1})`;
+        errors[`${String(scheduleKey)}[${m}][${h}]`] ??=
+          `Period ${idx} is not in ${String(structureKey)} (it has periods 0-${structure.length - 1})`;
       }
     }),
   );
@@ -151,9 +206,12 @@ export function importUrdb(input: unknown): UrdbImportResult {
   if (rec.demandratestructure && (!rec.demandweekdayschedule || !rec.demandweekendschedule)) {
     errors.demandweekdayschedule = 'demandratestructure needs both demand schedules';
   }
-  if (rec.flatdemandstructure && !rec.flatdemandmonths) errors.flatdemandmonths = 'flatdemandstructure needs flatdemandmonths';
-  if (rec.demandunits && rec.demandunits !== 'kW') errors.demandunits = `Demand in "${rec.demandunits}" is not supported: only kW`;
-  if (rec.flatdemandunit && rec.flatdemandunit !== 'kW') errors.flatdemandunit = `Flat demand in "${rec.flatdemandunit}" is not supported: only kW`;
+  if (rec.flatdemandstructure && !rec.flatdemandmonths)
+    errors.flatdemandmonths = 'flatdemandstructure needs flatdemandmonths';
+  if (rec.demandunits && rec.demandunits !== 'kW')
+    errors.demandunits = `Demand in "${rec.demandunits}" is not supported: only kW`;
+  if (rec.flatdemandunit && rec.flatdemandunit !== 'kW')
+    errors.flatdemandunit = `Flat demand in "${rec.flatdemandunit}" is not supported: only kW`;
   checkStructure(rec, 'energyratestructure', errors);
   checkStructure(rec, 'demandratestructure', errors);
   checkStructure(rec, 'flatdemandstructure', errors);
@@ -171,14 +229,23 @@ export function importUrdb(input: unknown): UrdbImportResult {
     const units = rec.fixedchargeunits ?? '$/month';
     if (units === '$/day') fixed = [{ name: 'Fixed charge', amount: rec.fixedchargefirstmeter, per: 'day' }];
     else if (units === '$/month') fixed = [{ name: 'Fixed charge', amount: rec.fixedchargefirstmeter, per: 'month' }];
-    else if (units === '$/year') fixed = [{ name: 'Fixed charge (yearly, spread over months)', amount: Math.round((rec.fixedchargefirstmeter / 12) * 100) / 100, per: 'month' }];
+    else if (units === '$/year')
+      fixed = [
+        {
+          name: 'Fixed charge (yearly, spread over months)',
+          amount: Math.round((rec.fixedchargefirstmeter / 12) * 100) / 100,
+          per: 'month',
+        },
+      ];
     else errors.fixedchargeunits = `"${units}" is not supported: use $/day, $/month or $/year`;
   }
   if (Object.keys(errors).length) fail(errors);
 
   const notes: string[] = [];
   const energyBlocks = energyBlocksOf(rec.energyratestructure!, notes);
-  const energyPrice = rec.energyratestructure!.map((t, i) => periodRate(t, `Energy period ${i}`, notes, energyBlocks !== null));
+  const energyPrice = rec.energyratestructure!.map((t, i) =>
+    periodRate(t, `Energy period ${i}`, notes, energyBlocks !== null),
+  );
   const demandRatchet = ratchetOf(rec, notes);
   let minimumCharge: RatePlanDefinition['minimumCharge'] = null;
   if (rec.mincharge !== undefined && rec.mincharge > 0) {
@@ -191,13 +258,17 @@ export function importUrdb(input: unknown): UrdbImportResult {
     } else notes.push(`Not supported, left out: a minimum charge in "${units}" (mincharge).`);
   }
   if (rec.demandwindow !== undefined && rec.demandwindow !== 15) {
-    notes.push(`The record measures demand over ${rec.demandwindow} minutes; Nightyard bills the highest 15-minute demand.`);
+    notes.push(
+      `The record measures demand over ${rec.demandwindow} minutes; Nightyard bills the highest 15-minute demand.`,
+    );
   }
   const demandPrice = (rec.demandratestructure ?? []).map((t, i) => periodRate(t, `Demand period ${i}`, notes));
   const flatPrice = (rec.flatdemandstructure ?? []).map((t, i) => periodRate(t, `Flat demand period ${i}`, notes));
-  if (fixed[0]?.name.includes('yearly')) notes.push(`The yearly fixed charge of ${rec.fixedchargefirstmeter} is spread as ${fixed[0].amount} a month.`);
+  if (fixed[0]?.name.includes('yearly'))
+    notes.push(`The yearly fixed charge of ${rec.fixedchargefirstmeter} is spread as ${fixed[0].amount} a month.`);
   for (const [field, what] of Object.entries(IGNORED_FIELDS)) {
-    if (field in rec && rec[field] !== null && rec[field] !== undefined) notes.push(`Not supported, left out: ${what} (${field}).`);
+    if (field in rec && rec[field] !== null && rec[field] !== undefined)
+      notes.push(`Not supported, left out: ${what} (${field}).`);
   }
   if (rec.energyratestructure!.some((tiers) => tiers.some((t) => t.sell !== undefined && t.sell !== 0))) {
     notes.push('Sell (export) prices are left out: depots do not export energy.');
@@ -221,7 +292,7 @@ export function importUrdb(input: unknown): UrdbImportResult {
   while (first < 12 && sig[(first + 11) % 12] === sig[first]) first++;
   if (first === 12) first = 0;
   const ranges: [number, number][] = [];
-  for (let i = 0; i < 12; ) {
+  for (let i = 0; i < 12;) {
     const start = (first + i) % 12;
     let len = 1;
     while (i + len < 12 && sig[(start + len) % 12] === sig[start]) len++;
@@ -291,7 +362,14 @@ export function importUrdb(input: unknown): UrdbImportResult {
   }
 
   // What the record maps to must still be a valid plan (e.g. a yearly charge within range).
-  const mapped = ratePlanDefinitionSchema.safeParse({ currency: 'USD', seasons, fixedCharges: fixed, holidays: [], demandRatchet, minimumCharge });
+  const mapped = ratePlanDefinitionSchema.safeParse({
+    currency: 'USD',
+    seasons,
+    fixedCharges: fixed,
+    holidays: [],
+    demandRatchet,
+    minimumCharge,
+  });
   if (!mapped.success) {
     const fields: Record<string, string> = {};
     for (const i of mapped.error.issues) fields[`plan.${fieldPath(i.path)}`] ??= i.message;
@@ -311,17 +389,25 @@ export function importUrdb(input: unknown): UrdbImportResult {
  */
 function energyBlocksOf(structure: Tier[][], notes: string[]): { uptoKwh: number | null; adder: number }[] | null {
   if (!structure.some((tiers) => tiers.length > 1)) return null;
-  const shape = (tiers: Tier[]) => tiers.map((t, i) => ({
-    uptoKwh: i === tiers.length - 1 ? null : t.max!,
-    adder: Math.round((tierPrice(t) - tierPrice(tiers[0]!)) * 1e9) / 1e9,
-  }));
+  const shape = (tiers: Tier[]) =>
+    tiers.map((t, i) => ({
+      uptoKwh: i === tiers.length - 1 ? null : t.max!,
+      adder: Math.round((tierPrice(t) - tierPrice(tiers[0]!)) * 1e9) / 1e9,
+    }));
   const first = JSON.stringify(shape(structure[0]!));
-  if (structure.some((tiers) => JSON.stringify(shape(tiers)) !== first) || structure[0]!.some((t) => t.unit !== undefined && t.unit !== 'kWh')) {
-    notes.push('The energy tiers differ between periods: they are not imported, each period\'s first tier\'s price applies to all use.');
+  if (
+    structure.some((tiers) => JSON.stringify(shape(tiers)) !== first) ||
+    structure[0]!.some((t) => t.unit !== undefined && t.unit !== 'kWh')
+  ) {
+    notes.push(
+      "The energy tiers differ between periods: they are not imported, each period's first tier's price applies to all use.",
+    );
     return null;
   }
   const blocks = shape(structure[0]!);
-  notes.push(`Energy tiers imported as ${blocks.length} monthly kWh blocks, each priced as a change on the period's first-tier price.`);
+  notes.push(
+    `Energy tiers imported as ${blocks.length} monthly kWh blocks, each priced as a change on the period's first-tier price.`,
+  );
   return blocks;
 }
 
@@ -336,10 +422,15 @@ function ratchetOf(rec: UrdbRecord, notes: string[]): RatePlanDefinition['demand
   const asPercent = values.map((v) => (values.every((x) => x <= 1) ? v * 100 : v));
   const percent = Math.max(...asPercent);
   if (asPercent.some((v) => v !== percent)) {
-    notes.push(`The demand ratchet varies by month (${asPercent.join(', ')} %): Nightyard applies the highest, ${percent} %, in every month.`);
+    notes.push(
+      `The demand ratchet varies by month (${asPercent.join(', ')} %): Nightyard applies the highest, ${percent} %, in every month.`,
+    );
   }
   const months = rec.lookbackrange && rec.lookbackrange > 0 ? rec.lookbackrange : 11;
-  if (!rec.lookbackrange) notes.push('The record gives no look-back range: the ratchet looks back over the previous 11 months (common practice).');
+  if (!rec.lookbackrange)
+    notes.push(
+      'The record gives no look-back range: the ratchet looks back over the previous 11 months (common practice).',
+    );
   return { percent: Math.round(percent * 1e6) / 1e6, months };
 }
 

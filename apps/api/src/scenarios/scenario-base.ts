@@ -27,15 +27,25 @@ const LOCAL = "yyyy-MM-dd'T'HH:mm";
  * The site and tariff part of a scenario file for a depot over [start, end), from its chargers,
  * power cabinets, limits, rate plan and the billing period's peaks so far.
  */
-export async function buildScenarioBase(db: Db, caller: AuthUser, depotId: string, start: string, end: string): Promise<ScenarioBaseResult> {
+export async function buildScenarioBase(
+  db: Db,
+  caller: AuthUser,
+  depotId: string,
+  start: string,
+  end: string,
+): Promise<ScenarioBaseResult> {
   const depot = await depotOf(db, caller, depotId);
   const zone = depot.timezone;
   const from = DateTime.fromISO(start, { zone });
   const to = DateTime.fromISO(end, { zone });
-  if (!from.isValid || !to.isValid) throw new DomainError('validation_failed', 'Check the horizon', { start: 'Write local times as YYYY-MM-DDTHH:mm' });
-  if (to <= from) throw new DomainError('validation_failed', 'The horizon must end after it starts', { end: 'Must be after start' });
+  if (!from.isValid || !to.isValid)
+    throw new DomainError('validation_failed', 'Check the horizon', { start: 'Write local times as YYYY-MM-DDTHH:mm' });
+  if (to <= from)
+    throw new DomainError('validation_failed', 'The horizon must end after it starts', { end: 'Must be after start' });
   if (to.diff(from, 'days').days > MAX_HORIZON_DAYS) {
-    throw new DomainError('validation_failed', `Plan at most ${MAX_HORIZON_DAYS} days at a time`, { end: `At most ${MAX_HORIZON_DAYS} days after start` });
+    throw new DomainError('validation_failed', `Plan at most ${MAX_HORIZON_DAYS} days at a time`, {
+      end: `At most ${MAX_HORIZON_DAYS} days after start`,
+    });
   }
   const notes: string[] = [];
 
@@ -47,7 +57,10 @@ export async function buildScenarioBase(db: Db, caller: AuthUser, depotId: strin
     .orderBy(desc(depotRatePlans.effectiveFrom))
     .limit(1);
   if (!assignment) {
-    throw new DomainError('validation_failed', `No rate plan applies to ${depot.name} on ${from.toISODate()}: assign one under Rates`);
+    throw new DomainError(
+      'validation_failed',
+      `No rate plan applies to ${depot.name} on ${from.toISODate()}: assign one under Rates`,
+    );
   }
   const definition = ratePlanDefinitionSchema.parse(assignment.definition);
   const tariff = tariffFor(definition, from, to);
@@ -63,7 +76,9 @@ export async function buildScenarioBase(db: Db, caller: AuthUser, depotId: strin
         if (kw !== undefined) peaksSoFarKw[p.name] = kw;
       }
     } else {
-      notes.push(`The peaks so far are for the billing period from ${peaks.billingPeriodStart}, not this night's: no peaks so far are assumed.`);
+      notes.push(
+        `The peaks so far are for the billing period from ${peaks.billingPeriodStart}, not this night's: no peaks so far are assumed.`,
+      );
     }
   }
 
@@ -73,10 +88,13 @@ export async function buildScenarioBase(db: Db, caller: AuthUser, depotId: strin
   const isOut = (c: (typeof chs)[number]) => outDuring(c, from.toJSDate(), to.toJSDate());
   const inService = chs.filter((c) => !isOut(c));
   for (const c of chs.filter(isOut)) {
-    const period = c.outFrom || c.outUntil
-      ? ` ${[c.outFrom ? `from ${DateTime.fromJSDate(c.outFrom, { zone }).toFormat('ccc HH:mm')}` : '', c.outUntil ? `until ${DateTime.fromJSDate(c.outUntil, { zone }).toFormat('ccc HH:mm')}` : ''].filter(Boolean).join(' ')}`
-      : '';
-    notes.push(`Charger ${c.label} is out of service${period}${c.statusReason ? ` (${c.statusReason})` : ''} and is left out${period ? ' for the night' : ''}.`);
+    const period =
+      c.outFrom || c.outUntil
+        ? ` ${[c.outFrom ? `from ${DateTime.fromJSDate(c.outFrom, { zone }).toFormat('ccc HH:mm')}` : '', c.outUntil ? `until ${DateTime.fromJSDate(c.outUntil, { zone }).toFormat('ccc HH:mm')}` : ''].filter(Boolean).join(' ')}`
+        : '';
+    notes.push(
+      `Charger ${c.label} is out of service${period}${c.statusReason ? ` (${c.statusReason})` : ''} and is left out${period ? ' for the night' : ''}.`,
+    );
   }
   if (!inService.length) throw new DomainError('validation_failed', `${depot.name} has no charger in service`);
   const cabinetLabel = new Map(cabs.map((c) => [c.id, c.label]));
@@ -87,7 +105,13 @@ export async function buildScenarioBase(db: Db, caller: AuthUser, depotId: strin
   const reductions = await db
     .select()
     .from(loadReductionWindows)
-    .where(and(eq(loadReductionWindows.depotId, depotId), lt(loadReductionWindows.startsAt, to.toJSDate()), gt(loadReductionWindows.endsAt, from.toJSDate())));
+    .where(
+      and(
+        eq(loadReductionWindows.depotId, depotId),
+        lt(loadReductionWindows.startsAt, to.toJSDate()),
+        gt(loadReductionWindows.endsAt, from.toJSDate()),
+      ),
+    );
   const limitWindows = reductions.map((r) => {
     const a = DateTime.fromJSDate(r.startsAt, { zone });
     const b = DateTime.fromJSDate(r.endsAt, { zone });
@@ -134,7 +158,11 @@ export async function buildScenarioBase(db: Db, caller: AuthUser, depotId: strin
  * shift that ends at or before its start runs past midnight), cut to the horizon. No shift
  * listed: the crew can make moves at any hour (the scenario's `crew` is left out).
  */
-export function yardFor(crew: Omit<YardCrew, 'costTolerancePercent' | 'costToleranceAmount'> & Partial<YardCrew>, from: DateTime, to: DateTime): NonNullable<ScenarioInput['yard']> {
+export function yardFor(
+  crew: Omit<YardCrew, 'costTolerancePercent' | 'costToleranceAmount'> & Partial<YardCrew>,
+  from: DateTime,
+  to: DateTime,
+): NonNullable<ScenarioInput['yard']> {
   const windows: { from: string; to: string; movesPerSlot: number }[] = [];
   for (let day = from.startOf('day').minus({ days: 1 }); day < to; day = day.plus({ days: 1 })) {
     for (const shift of crew.shifts) {
@@ -176,7 +204,8 @@ export function tariffFor(def: RatePlanDefinition, from: DateTime, to: DateTime)
     if (seen.has(s.period) && seen.get(s.period) !== sig) clash.add(s.period);
     seen.set(s.period, sig);
   }
-  const label = (s: PricedSlot) => (clash.has(s.period) || (s.offPeak && seasons.size > 1) ? `${s.period} (${s.season})` : s.period);
+  const label = (s: PricedSlot) =>
+    clash.has(s.period) || (s.offPeak && seasons.size > 1) ? `${s.period} (${s.season})` : s.period;
   const implicit = (s: PricedSlot) => s.offPeak && s.season === main.name;
 
   const periods = new Map<string, ScenarioPeriod & { windows: { days: number[]; from: string; to: string }[] }>();
@@ -186,7 +215,13 @@ export function tariffFor(def: RatePlanDefinition, from: DateTime, to: DateTime)
     const s = slots[i]!;
     const day = s.start.toISODate();
     let j = i + 1;
-    while (j < slots.length && slots[j]!.start.toISODate() === day && label(slots[j]!) === label(s) && implicit(slots[j]!) === implicit(s)) j++;
+    while (
+      j < slots.length &&
+      slots[j]!.start.toISODate() === day &&
+      label(slots[j]!) === label(s) &&
+      implicit(slots[j]!) === implicit(s)
+    )
+      j++;
     if (!implicit(s)) {
       const name = label(s);
       const endAt = slots[j - 1]!.start.plus({ minutes: 15 });

@@ -8,23 +8,58 @@ export async function createDepot(db: Db, organisationId: string, name = 'Test d
     .insert(depots)
     .values({ organisationId, name, timezone: 'America/Chicago', serviceLimitKw: 300, otherLoadKw: [20] })
     .returning();
-  const [cabinet] = await db.insert(powerCabinets).values({ organisationId, depotId: depot!.id, label: 'P1', limitKw: 120 }).returning();
+  const [cabinet] = await db
+    .insert(powerCabinets)
+    .values({ organisationId, depotId: depot!.id, label: 'P1', limitKw: 120 })
+    .returning();
   const chs = await db
     .insert(chargers)
     .values([
-      { organisationId, depotId: depot!.id, cabinetId: cabinet!.id, label: 'A', maxKw: 60, connector: 'SAE J1772 CCS1' },
-      { organisationId, depotId: depot!.id, cabinetId: cabinet!.id, label: 'B', maxKw: 60, connector: 'SAE J1772 CCS1' },
+      {
+        organisationId,
+        depotId: depot!.id,
+        cabinetId: cabinet!.id,
+        label: 'A',
+        maxKw: 60,
+        connector: 'SAE J1772 CCS1',
+      },
+      {
+        organisationId,
+        depotId: depot!.id,
+        cabinetId: cabinet!.id,
+        label: 'B',
+        maxKw: 60,
+        connector: 'SAE J1772 CCS1',
+      },
       { organisationId, depotId: depot!.id, label: 'C', maxKw: 30, connector: 'SAE J1772 CCS1' },
     ])
     .returning();
   const definition = ratePlanDefinitionSchema.parse({
     currency: 'USD',
-    seasons: [{
-      name: 'All year', fromMonth: 1, toMonth: 12, offPeakPrice: 0.08, facilityDemandCharge: 12,
-      periods: [{ name: 'on-peak', price: 0.27, demandCharge: 9.5, windows: [{ dayTypes: ['weekday'], from: '16:00', to: '21:00' }] }],
-    }],
+    seasons: [
+      {
+        name: 'All year',
+        fromMonth: 1,
+        toMonth: 12,
+        offPeakPrice: 0.08,
+        facilityDemandCharge: 12,
+        periods: [
+          {
+            name: 'on-peak',
+            price: 0.27,
+            demandCharge: 9.5,
+            windows: [{ dayTypes: ['weekday'], from: '16:00', to: '21:00' }],
+          },
+        ],
+      },
+    ],
   });
-  const [plan] = await db.insert(ratePlans).values({ organisationId, name: 'Test TOU', currency: 'USD', definition }).returning();
-  await db.insert(depotRatePlans).values({ organisationId, depotId: depot!.id, ratePlanId: plan!.id, effectiveFrom: '2026-01-01' });
+  const [plan] = await db
+    .insert(ratePlans)
+    .values({ organisationId, name: 'Test TOU', currency: 'USD', definition })
+    .returning();
+  await db
+    .insert(depotRatePlans)
+    .values({ organisationId, depotId: depot!.id, ratePlanId: plan!.id, effectiveFrom: '2026-01-01' });
   return { depot: depot!, cabinet: cabinet!, chargers: chs, ratePlan: plan! };
 }

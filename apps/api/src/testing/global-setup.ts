@@ -11,7 +11,9 @@ import { TEST_BASE_DATABASE_URL, TEST_WORKERS, workerDatabaseUrl } from './test-
 export default async function setup(): Promise<void> {
   const pool = new pg.Pool({ connectionString: TEST_BASE_DATABASE_URL, max: 2 });
   try {
-    await pool.query('drop schema if exists public cascade; drop schema if exists drizzle cascade; create schema public;');
+    await pool.query(
+      'drop schema if exists public cascade; drop schema if exists drizzle cascade; create schema public;',
+    );
     await applyMigrations(createDb(pool), path.resolve('drizzle'));
   } finally {
     await pool.end();

@@ -11,12 +11,15 @@ export interface CaughtMail {
 export async function mailFor(address: string, atLeast = 1, timeoutMs = 5000): Promise<CaughtMail[]> {
   let messages: CaughtMail[] = [];
   try {
-    return await vi.waitFor(async () => {
-      const res = await fetch(`${TEST_FAKE_MAIL_URL}/messages?to=${encodeURIComponent(address)}`);
-      ({ messages } = (await res.json()) as { messages: CaughtMail[] });
-      if (messages.length < atLeast) throw new Error(`${messages.length} of ${atLeast} messages so far`);
-      return messages;
-    }, { timeout: timeoutMs, interval: 100 });
+    return await vi.waitFor(
+      async () => {
+        const res = await fetch(`${TEST_FAKE_MAIL_URL}/messages?to=${encodeURIComponent(address)}`);
+        ({ messages } = (await res.json()) as { messages: CaughtMail[] });
+        if (messages.length < atLeast) throw new Error(`${messages.length} of ${atLeast} messages so far`);
+        return messages;
+      },
+      { timeout: timeoutMs, interval: 100 },
+    );
   } catch {
     // Fewer than asked for by the deadline: the caller asserts on what did arrive.
     return messages;

@@ -32,7 +32,10 @@ export function createTestApp(overrides: Partial<AppDeps> = {}, databaseUrl = TE
   const db = createDb(pool);
   afterAll(() => pool.end());
   const config = loadConfig({
-    NODE_ENV: 'test', DATABASE_URL: databaseUrl, SMTP_PORT: String(TEST_SMTP_PORT), FAKE_MAIL_URL: TEST_FAKE_MAIL_URL,
+    NODE_ENV: 'test',
+    DATABASE_URL: databaseUrl,
+    SMTP_PORT: String(TEST_SMTP_PORT),
+    FAKE_MAIL_URL: TEST_FAKE_MAIL_URL,
   });
   const log = pino({ level: process.env.TEST_LOG ?? 'silent' });
   // Real pg-boss on the test database, started only by the tests that queue work.
@@ -87,7 +90,10 @@ export async function createOrganisation(
   passwordHash ??= hashPassword(TEST_PASSWORD);
   const hash = await passwordHash;
   const tag = randomUUID().slice(0, 8);
-  const [org] = await app.db.insert(organisations).values({ name: `Test district ${tag}` }).returning();
+  const [org] = await app.db
+    .insert(organisations)
+    .values({ name: `Test district ${tag}` })
+    .returning();
   const out: Record<string, TestUser> = {};
   for (const [key, roles] of Object.entries(people)) {
     const email = `${key}-${tag}@test.nightyard.example`;
@@ -107,7 +113,11 @@ export async function createOrganisation(
  */
 export async function signInAgain(app: ReturnType<typeof createTestApp>, ...people: TestUser[]): Promise<void> {
   for (const u of people) {
-    const res = await app.request().post('/api/auth/login').send({ email: u.email, password: TEST_PASSWORD }).expect(200);
+    const res = await app
+      .request()
+      .post('/api/auth/login')
+      .send({ email: u.email, password: TEST_PASSWORD })
+      .expect(200);
     u.token = res.body.accessToken;
   }
 }

@@ -28,7 +28,10 @@ export class ThrowawayCluster {
   readonly dir = path.resolve('.test-data/resilience-pg');
   readonly url: string;
 
-  constructor(readonly port: number, readonly database = 'nightyard_resilience') {
+  constructor(
+    readonly port: number,
+    readonly database = 'nightyard_resilience',
+  ) {
     this.url = `postgres://postgres@127.0.0.1:${port}/${database}`;
   }
 
@@ -47,7 +50,9 @@ export class ThrowawayCluster {
     await run('tools/pg.sh', ['createdb', String(this.port), this.database]);
     const pool = new pg.Pool({ connectionString: this.url, max: 1 });
     try {
-      await pool.query('drop schema if exists public cascade; drop schema if exists drizzle cascade; drop schema if exists pgboss cascade; create schema public;');
+      await pool.query(
+        'drop schema if exists public cascade; drop schema if exists drizzle cascade; drop schema if exists pgboss cascade; create schema public;',
+      );
       await applyMigrations(createDb(pool), path.resolve('drizzle'));
     } finally {
       await pool.end();

@@ -34,10 +34,13 @@ export function fixedClock(at: Date | string): Clock {
 export function clockFromEnv(env: NodeJS.ProcessEnv = process.env): Clock {
   const fixed = env.NIGHTYARD_NOW?.trim();
   if (!fixed) return systemClock;
-  if (env.NODE_ENV === 'production') throw new Error('NIGHTYARD_NOW is for development and tests only: unset it in production');
+  if (env.NODE_ENV === 'production')
+    throw new Error('NIGHTYARD_NOW is for development and tests only: unset it in production');
   const t = Date.parse(fixed);
   if (!/[zZ]|[+-]\d\d:?\d\d$/.test(fixed) || !Number.isFinite(t)) {
-    throw new Error(`NIGHTYARD_NOW must be an ISO instant with an offset (e.g. 2026-12-09T00:02:00-06:00), not "${fixed}"`);
+    throw new Error(
+      `NIGHTYARD_NOW must be an ISO instant with an offset (e.g. 2026-12-09T00:02:00-06:00), not "${fixed}"`,
+    );
   }
   return clockFrom(new Date(t));
 }

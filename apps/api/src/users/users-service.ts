@@ -23,7 +23,11 @@ const toUser = (u: UserRow): User => ({
 });
 
 export async function listUsers(db: Db, caller: AuthUser): Promise<User[]> {
-  const rows = await db.select().from(users).where(eq(users.organisationId, caller.organisationId)).orderBy(asc(users.name));
+  const rows = await db
+    .select()
+    .from(users)
+    .where(eq(users.organisationId, caller.organisationId))
+    .orderBy(asc(users.name));
   return rows.map(toUser);
 }
 
@@ -33,32 +37,65 @@ export interface InviteSettings {
 }
 
 const cannotInvite = () =>
-  new DomainError('conflict', 'That e-mail address cannot be invited: use another address for this person', { email: 'Cannot be invited' });
+  new DomainError('conflict', 'That e-mail address cannot be invited: use another address for this person', {
+    email: 'Cannot be invited',
+  });
 
 /** Creates an invited account (or re-sends a pending invitation) and e-mails the link. */
-export async function inviteUser(db: Db, mailer: Mailer, s: InviteSettings, caller: AuthUser, req: InviteUserRequest, now: Date): Promise<User> {
+export async function inviteUser(
+  db: Db,
+  mailer: Mailer,
+  s: InviteSettings,
+  caller: AuthUser,
+  req: InviteUserRequest,
+  now: Date,
+): Promise<User> {
   const { user, token } = await db.transaction(async (tx) => {
     // Invitations to one address wait for each other, so the same invitation sent twice at once
     // creates one account (the second re-sends the invitation) instead of a unique violation.
     await lockTarget(tx, 'invite', req.email);
     const [existing] = await tx.select().from(users).where(eq(users.email, req.email));
     if (existing && existing.organisationId === caller.organisationId && existing.status !== 'invited') {
-      throw new DomainError('conflict', 'Someone in your organisation already has an account with this e-mail', { email: 'Already in use' });
+      throw new DomainError('conflict', 'Someone in your organisation already has an account with this e-mail', {
+        email: 'Already in use',
+      });
     }
     // E-mail addresses are unique across the service (they sign in without naming an organisation);
     // an address used elsewhere is refused without saying where or by whom.
     if (existing && existing.organisationId !== caller.organisationId) throw cannotInvite();
-    const row =
-      existing
-        ? (await tx.update(users).set({ name: req.name, roles: req.roles }).where(eq(users.id, existing.id)).returning())[0]!
-        : (await tx.insert(users).values({ organisationId: caller.organisationId, email: req.email, name: req.name, roles: req.roles, status: 'invited' }).returning())[0]!;
-    return { user: row, token: await createActionToken(tx as unknown as Db, row.id, 'invite', s.inviteHours * 3_600_000, now) };
+    const row = existing
+      ? (
+          await tx.update(users).set({ name: req.name, roles: req.roles }).where(eq(users.id, existing.id)).returning()
+        )[0]!
+      : (
+          await tx
+            .insert(users)
+            .values({
+              organisationId: caller.organisationId,
+              email: req.email,
+              name: req.name,
+              roles: req.roles,
+              status: 'invited',
+            })
+            .returning()
+        )[0]!;
+    return {
+      user: row,
+      token: await createActionToken(tx as unknown as Db, row.id, 'invite', s.inviteHours * 3_600_000, now),
+    };
   });
-  const [org] = await db.select({ name: organisations.name }).from(organisations).where(eq(organisations.id, caller.organisationId));
+  const [org] = await db
+    .select({ name: organisations.name })
+    .from(organisations)
+    .where(eq(organisations.id, caller.organisationId));
   await mailer.send(
     invitationMail({
-      to: user.email, name: user.name, inviter: caller.name, organisation: org?.name ?? '',
-      link: s.publicUrl(`/set-password?token=${token}`), hours: s.inviteHours,
+      to: user.email,
+      name: user.name,
+      inviter: caller.name,
+      organisation: org?.name ?? '',
+      link: s.publicUrl(`/set-password?token=${token}`),
+      hours: s.inviteHours,
     }),
   );
   return toUser(user);
@@ -79,7 +116,13 @@ async function activeAdminsOtherThan(db: Db, organisationId: string, userId: str
   return row?.n ?? 0;
 }
 
-export async function updateUser(db: Db, caller: AuthUser, id: string, req: UpdateUserRequest, now: Date): Promise<User> {
+export async function updateUser(
+  db: Db,
+  caller: AuthUser,
+  id: string,
+  req: UpdateUserRequest,
+  now: Date,
+): Promise<User> {
   const updated = await db.transaction(async (tx) => {
     const [user] = await tx
       .select()
@@ -90,10 +133,13 @@ export async function updateUser(db: Db, caller: AuthUser, id: string, req: Upda
     // Serialise admin changes per organisation so two admins cannot remove each other at once.
     await tx.execute(sql`select pg_advisory_xact_lock(hashtext(${caller.organisationId}))`);
     const losesAdmin =
-      user.roles.includes('admin') && user.status === 'active' &&
+      user.roles.includes('admin') &&
+      user.status === 'active' &&
       ((req.roles && !req.roles.includes('admin')) || req.active === false);
     if (losesAdmin && (await activeAdminsOtherThan(tx as unknown as Db, caller.organisationId, id)) === 0) {
-      throw conflict('The organisation needs at least one active administrator: give someone else the admin role first');
+      throw conflict(
+        'The organisation needs at least one active administrator: give someone else the admin role first',
+      );
     }
     const status =
       req.active === undefined ? user.status : req.active ? (user.passwordHash ? 'active' : 'invited') : 'deactivated';
@@ -103,7 +149,10 @@ export async function updateUser(db: Db, caller: AuthUser, id: string, req: Upda
       .where(eq(users.id, id))
       .returning();
     if (status === 'deactivated') {
-      await tx.update(refreshTokens).set({ revokedAt: now }).where(and(eq(refreshTokens.userId, id), isNull(refreshTokens.revokedAt)));
+      await tx
+        .update(refreshTokens)
+        .set({ revokedAt: now })
+        .where(and(eq(refreshTokens.userId, id), isNull(refreshTokens.revokedAt)));
     }
     return toUser(updated!);
   });

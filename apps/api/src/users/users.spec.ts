@@ -21,8 +21,12 @@ const unique = (name: string) => `${name}-${randomUUID()}@test.nightyard.example
 describe('invitations', () => {
   it('e-mails a link that sets a password, after which the person signs in with their roles', async () => {
     const email = unique('newhire');
-    const invited = await app.request().post('/api/users/invite').set(auth(admin))
-      .send({ email, name: 'Noor Haddad', roles: ['yard', 'supervisor'] }).expect(201);
+    const invited = await app
+      .request()
+      .post('/api/users/invite')
+      .set(auth(admin))
+      .send({ email, name: 'Noor Haddad', roles: ['yard', 'supervisor'] })
+      .expect(201);
     expect(invited.body.user.status).toBe('invited');
 
     const [mail] = await mailFor(email);
@@ -36,7 +40,11 @@ describe('invitations', () => {
     // An invited account cannot sign in before it has a password.
     await app.request().post('/api/auth/login').send({ email, password: 'a-fresh-password-1' }).expect(401);
     await app.request().post('/api/auth/set-password').send({ token, password: 'a-fresh-password-1' }).expect(204);
-    const login = await app.request().post('/api/auth/login').send({ email, password: 'a-fresh-password-1' }).expect(200);
+    const login = await app
+      .request()
+      .post('/api/auth/login')
+      .send({ email, password: 'a-fresh-password-1' })
+      .expect(200);
     expect(login.body.user.roles).toEqual(['yard', 'supervisor']);
     // The link works once.
     await app.request().post('/api/auth/set-password').send({ token, password: 'another-password-2' }).expect(404);
@@ -44,8 +52,12 @@ describe('invitations', () => {
 
   it('refuses an e-mail that already has an account, and saves nothing', async () => {
     const before = await app.db.select().from(users).where(eq(users.organisationId, organisationId));
-    const res = await app.request().post('/api/users/invite').set(auth(admin))
-      .send({ email: admin.email, name: 'Someone', roles: ['yard'] }).expect(409);
+    const res = await app
+      .request()
+      .post('/api/users/invite')
+      .set(auth(admin))
+      .send({ email: admin.email, name: 'Someone', roles: ['yard'] })
+      .expect(409);
     expect(res.body.error.fields).toEqual({ email: 'Already in use' });
     const after = await app.db.select().from(users).where(eq(users.organisationId, organisationId));
     expect(after).toHaveLength(before.length);
@@ -53,11 +65,23 @@ describe('invitations', () => {
 
   it('an expired link says so and sets nothing', async () => {
     const email = unique('late');
-    await app.request().post('/api/users/invite').set(auth(admin)).send({ email, name: 'Late', roles: ['finance'] }).expect(201);
+    await app
+      .request()
+      .post('/api/users/invite')
+      .set(auth(admin))
+      .send({ email, name: 'Late', roles: ['finance'] })
+      .expect(201);
     const token = linkToken((await mailFor(email))[0]!.text);
     const [u] = await app.db.select().from(users).where(eq(users.email, email));
-    await app.db.update(actionTokens).set({ expiresAt: new Date(app.deps.clock().getTime() - 1000) }).where(eq(actionTokens.userId, u!.id));
-    const res = await app.request().post('/api/auth/set-password').send({ token, password: 'a-fresh-password-1' }).expect(410);
+    await app.db
+      .update(actionTokens)
+      .set({ expiresAt: new Date(app.deps.clock().getTime() - 1000) })
+      .where(eq(actionTokens.userId, u!.id));
+    const res = await app
+      .request()
+      .post('/api/auth/set-password')
+      .send({ token, password: 'a-fresh-password-1' })
+      .expect(410);
     expect(res.body.error.message).toMatch(/expired/);
     const [still] = await app.db.select().from(users).where(eq(users.id, u!.id));
     expect(still!.passwordHash).toBeNull();
@@ -65,16 +89,30 @@ describe('invitations', () => {
 
   it('the link of a deactivated invitee says the account is deactivated, not that the link is broken', async () => {
     const email = unique('gone');
-    const invited = await app.request().post('/api/users/invite').set(auth(admin)).send({ email, name: 'Gone', roles: ['yard'] }).expect(201);
+    const invited = await app
+      .request()
+      .post('/api/users/invite')
+      .set(auth(admin))
+      .send({ email, name: 'Gone', roles: ['yard'] })
+      .expect(201);
     const token = linkToken((await mailFor(email))[0]!.text);
-    await app.request().patch(`/api/users/${invited.body.user.id}`).set(auth(admin)).send({ active: false }).expect(200);
+    await app
+      .request()
+      .patch(`/api/users/${invited.body.user.id}`)
+      .set(auth(admin))
+      .send({ active: false })
+      .expect(200);
     const info = await app.request().get(`/api/auth/action-tokens/${token}`).expect(403);
     expect(info.body.error.message).toMatch(/deactivated/);
     await app.request().post('/api/auth/set-password').send({ token, password: 'a-fresh-password-1' }).expect(403);
   });
 
   it('rejects a short password with a field message', async () => {
-    const res = await app.request().post('/api/auth/set-password').send({ token: 'x'.repeat(43), password: 'short' }).expect(400);
+    const res = await app
+      .request()
+      .post('/api/auth/set-password')
+      .send({ token: 'x'.repeat(43), password: 'short' })
+      .expect(400);
     expect(res.body.error.fields.password).toMatch(/at least 12/);
   });
 });
@@ -83,26 +121,51 @@ describe('roles and deactivation', () => {
   it('changes roles; the next request sees them', async () => {
     const { users: p } = await createOrganisation(app, { boss: ['admin'], worker: ['yard'] });
     await app.request().get('/api/users').set(auth(p.worker!)).expect(403);
-    const res = await app.request().patch(`/api/users/${p.worker!.id}`).set(auth(p.boss!)).send({ roles: ['yard', 'admin'] }).expect(200);
+    const res = await app
+      .request()
+      .patch(`/api/users/${p.worker!.id}`)
+      .set(auth(p.boss!))
+      .send({ roles: ['yard', 'admin'] })
+      .expect(200);
     expect(res.body.user.roles).toEqual(['yard', 'admin']);
     await app.request().get('/api/users').set(auth(p.worker!)).expect(200);
   });
 
   it('keeps at least one active administrator', async () => {
     const { users: p } = await createOrganisation(app, { only: ['admin'] });
-    const res = await app.request().patch(`/api/users/${p.only!.id}`).set(auth(p.only!)).send({ active: false }).expect(409);
+    const res = await app
+      .request()
+      .patch(`/api/users/${p.only!.id}`)
+      .set(auth(p.only!))
+      .send({ active: false })
+      .expect(409);
     expect(res.body.error.message).toMatch(/at least one active administrator/);
-    await app.request().patch(`/api/users/${p.only!.id}`).set(auth(p.only!)).send({ roles: ['finance'] }).expect(409);
+    await app
+      .request()
+      .patch(`/api/users/${p.only!.id}`)
+      .set(auth(p.only!))
+      .send({ roles: ['finance'] })
+      .expect(409);
     const [still] = await app.db.select().from(users).where(eq(users.id, p.only!.id));
     expect(still!.roles).toEqual(['admin']);
   });
 
   it('deactivates and reactivates', async () => {
     const { users: p } = await createOrganisation(app, { boss: ['admin'], temp: ['finance'] });
-    const off = await app.request().patch(`/api/users/${p.temp!.id}`).set(auth(p.boss!)).send({ active: false }).expect(200);
+    const off = await app
+      .request()
+      .patch(`/api/users/${p.temp!.id}`)
+      .set(auth(p.boss!))
+      .send({ active: false })
+      .expect(200);
     expect(off.body.user.status).toBe('deactivated');
     await app.request().get('/api/depots').set(auth(p.temp!)).expect(401);
-    const on = await app.request().patch(`/api/users/${p.temp!.id}`).set(auth(p.boss!)).send({ active: true }).expect(200);
+    const on = await app
+      .request()
+      .patch(`/api/users/${p.temp!.id}`)
+      .set(auth(p.boss!))
+      .send({ active: true })
+      .expect(200);
     expect(on.body.user.status).toBe('active');
     await app.request().get('/api/depots').set(auth(p.temp!)).expect(200);
   });
@@ -121,7 +184,11 @@ describe('forgot password', () => {
     const info = await app.request().get(`/api/auth/action-tokens/${token}`).expect(200);
     expect(info.body.purpose).toBe('reset');
     await app.request().post('/api/auth/set-password').send({ token, password: 'brand-new-password-9' }).expect(204);
-    await app.request().post('/api/auth/login').send({ email: p.forgetful!.email, password: 'brand-new-password-9' }).expect(200);
+    await app
+      .request()
+      .post('/api/auth/login')
+      .send({ email: p.forgetful!.email, password: 'brand-new-password-9' })
+      .expect(200);
     expect(await mailFor(unknownEmail, 1, 300)).toHaveLength(0);
   });
 });

@@ -3,11 +3,25 @@ import { setPriority } from 'node:os';
 import bcrypt from 'bcryptjs';
 import type { RatePlanDefinition } from '@nightyard/contracts';
 import {
-  ReplanStateError, loadSolver, peaksOf, planScenario, replan, type Plan, type Replan, type ReplanState, type Scenario,
+  ReplanStateError,
+  loadSolver,
+  peaksOf,
+  planScenario,
+  replan,
+  type Plan,
+  type Replan,
+  type ReplanState,
+  type Scenario,
   type ScenarioProblem,
 } from '@nightyard/scheduling';
 import { parseRunsCsv } from '../fleet/runs-csv';
-import { checkIntervals, parseGreenButtonCsv, parseGreenButtonXml, type IntervalCheck, type MeterFile } from '../costs/green-button';
+import {
+  checkIntervals,
+  parseGreenButtonCsv,
+  parseGreenButtonXml,
+  type IntervalCheck,
+  type MeterFile,
+} from '../costs/green-button';
 import { DomainError } from '../http/errors';
 import { MAX_RUNS_CSV_ROWS, formatCount } from '../http/limits';
 
@@ -20,7 +34,15 @@ export type PoolTask =
   | { kind: 'plan'; scenario: Scenario }
   | { kind: 'replan'; scenario: Scenario; state: ReplanState }
   | { kind: 'runs-csv'; text: string; date: string }
-  | { kind: 'meter-file'; content: string; zone: string; periodStartMs: number; periodEndMs: number; nowMs: number; rate: RatePlanDefinition }
+  | {
+      kind: 'meter-file';
+      content: string;
+      zone: string;
+      periodStartMs: number;
+      periodEndMs: number;
+      nowMs: number;
+      rate: RatePlanDefinition;
+    }
   | { kind: 'hash-password'; password: string; rounds: number }
   | { kind: 'check-password'; password: string; hash: string };
 
@@ -43,7 +65,15 @@ export interface PoolOutputs {
 /** Errors cross the thread boundary as plain data: the pool raises them again as the same classes. */
 export type PoolReply =
   | { ok: true; value: unknown }
-  | { ok: false; domain: { code: DomainError['code']; message: string; fields?: Record<string, string>; headers?: Record<string, string> } }
+  | {
+      ok: false;
+      domain: {
+        code: DomainError['code'];
+        message: string;
+        fields?: Record<string, string>;
+        headers?: Record<string, string>;
+      };
+    }
   | { ok: false; replanProblems: ScenarioProblem[] };
 
 /** Counts the lines that hold something, so a huge file is refused before it is parsed. */
@@ -93,13 +123,18 @@ async function perform(task: PoolTask): Promise<unknown> {
     case 'runs-csv': {
       const rows = filledLines(task.text) - 1;
       if (rows > MAX_RUNS_CSV_ROWS) {
-        throw new DomainError('payload_too_large', `The runs file has ${formatCount(rows)} rows; at most ${formatCount(MAX_RUNS_CSV_ROWS)} runs fit in one day's file`,
-          { csv: `At most ${formatCount(MAX_RUNS_CSV_ROWS)} rows` });
+        throw new DomainError(
+          'payload_too_large',
+          `The runs file has ${formatCount(rows)} rows; at most ${formatCount(MAX_RUNS_CSV_ROWS)} runs fit in one day's file`,
+          { csv: `At most ${formatCount(MAX_RUNS_CSV_ROWS)} rows` },
+        );
       }
       return parseRunsCsv(task.text, task.date);
     }
     case 'meter-file': {
-      const file = task.content.trimStart().startsWith('<') ? parseGreenButtonXml(task.content) : parseGreenButtonCsv(task.content, task.zone);
+      const file = task.content.trimStart().startsWith('<')
+        ? parseGreenButtonXml(task.content)
+        : parseGreenButtonCsv(task.content, task.zone);
       const checked = checkIntervals(file, task.periodStartMs, task.periodEndMs, task.zone, task.nowMs);
       const measured = peaksOf(task.rate, checked.intervals, { zone: task.zone, intervalMinutes: checked.minutes });
       return { format: file.format, checked, measured } satisfies MeterFileReading;

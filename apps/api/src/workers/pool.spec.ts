@@ -16,19 +16,26 @@ let depotId: string;
 
 beforeAll(async () => {
   const org = await createOrganisation(app, {
-    sup: ['supervisor'], ...Object.fromEntries(Array.from({ length: 20 }, (_, i) => [`p${i}`, ['yard'] as const])),
+    sup: ['supervisor'],
+    ...Object.fromEntries(Array.from({ length: 20 }, (_, i) => [`p${i}`, ['yard'] as const])),
   });
   sup = org.users.sup!;
   people = Array.from({ length: 20 }, (_, i) => org.users[`p${i}`]!);
   depotId = (await createDepot(app.db, org.organisationId)).depot.id;
 });
 
-const statusOf = async (id: string) => (await app.db.select({ status: plans.status }).from(plans).where(eq(plans.id, id)))[0]!.status;
+const statusOf = async (id: string) =>
+  (await app.db.select({ status: plans.status }).from(plans).where(eq(plans.id, id)))[0]!.status;
 
 describe('the worker pool', () => {
   it('/api/health keeps answering while a 150-bus what-if solves', async () => {
     const engineBefore = workPoolCompleted().engine;
-    const res = await app.request().post(`/api/depots/${depotId}/plans/what-if`).set(as(sup)).send(generateDepot({ buses: 150, seed: 7 })).expect(202);
+    const res = await app
+      .request()
+      .post(`/api/depots/${depotId}/plans/what-if`)
+      .set(as(sup))
+      .send(generateDepot({ buses: 150, seed: 7 }))
+      .expect(202);
     const id = res.body.plan.id as string;
     await vi.waitFor(async () => expect(await statusOf(id)).not.toBe('queued'), { timeout: 30_000, interval: 20 });
 
@@ -58,8 +65,15 @@ describe('the worker pool', () => {
     // An address of its own, so the test's failures never reach another test's throttle.
     const address = `198.51.100.${randomInt(1, 255)}`;
     const wrong = (i: number) => i % 5 === 0;
-    const answers = await Promise.all(people.map((p, i) => app.request().post('/api/auth/login').set('X-Forwarded-For', address)
-      .send({ email: p.email, password: wrong(i) ? `${TEST_PASSWORD}-not` : TEST_PASSWORD })));
+    const answers = await Promise.all(
+      people.map((p, i) =>
+        app
+          .request()
+          .post('/api/auth/login')
+          .set('X-Forwarded-For', address)
+          .send({ email: p.email, password: wrong(i) ? `${TEST_PASSWORD}-not` : TEST_PASSWORD }),
+      ),
+    );
     answers.forEach((a, i) => {
       expect(a.status, people[i]!.email).toBe(wrong(i) ? 401 : 200);
       if (!wrong(i)) expect(a.body.accessToken).toEqual(expect.any(String));

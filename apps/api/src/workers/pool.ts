@@ -21,7 +21,13 @@ export interface WorkPoolOptions {
 
 type Lane = 'engine' | 'quick';
 const LANE_OF: Record<PoolTask['kind'], Lane> = {
-  warm: 'engine', plan: 'engine', replan: 'engine', 'runs-csv': 'quick', 'meter-file': 'quick', 'hash-password': 'quick', 'check-password': 'quick',
+  warm: 'engine',
+  plan: 'engine',
+  replan: 'engine',
+  'runs-csv': 'quick',
+  'meter-file': 'quick',
+  'hash-password': 'quick',
+  'check-password': 'quick',
 };
 
 /** Bundled (dist/api/main.mjs): the worker is bundled beside it. From source: tsx compiles it. */
@@ -38,7 +44,9 @@ export function startWorkPool(options: WorkPoolOptions = {}): void {
   const filename = workerFile();
   const lane = (threads: number) => {
     const pool = new Piscina({
-      filename, minThreads: 1, maxThreads: threads,
+      filename,
+      minThreads: 1,
+      maxThreads: threads,
       // Keep extra threads a while: starting one costs module loading (and HiGHS for the engine).
       idleTimeout: 60_000,
     });
@@ -53,11 +61,14 @@ export function startWorkPool(options: WorkPoolOptions = {}): void {
 }
 
 /** Runs a task in its lane and gives back its value, or raises the error the task raised. */
-export async function runInPool<K extends PoolTask['kind']>(task: Extract<PoolTask, { kind: K }>): Promise<PoolOutputs[K]> {
+export async function runInPool<K extends PoolTask['kind']>(
+  task: Extract<PoolTask, { kind: K }>,
+): Promise<PoolOutputs[K]> {
   if (!lanes) startWorkPool();
   const reply = (await lanes![LANE_OF[task.kind]].run(task)) as PoolReply;
   if (reply.ok) return reply.value as PoolOutputs[K];
-  if ('domain' in reply) throw new DomainError(reply.domain.code, reply.domain.message, reply.domain.fields, reply.domain.headers);
+  if ('domain' in reply)
+    throw new DomainError(reply.domain.code, reply.domain.message, reply.domain.fields, reply.domain.headers);
   throw new ReplanStateError(reply.replanProblems);
 }
 

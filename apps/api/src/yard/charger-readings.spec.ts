@@ -32,7 +32,9 @@ describe('state of charge read by the charger at plug-in (central system and sta
 
   beforeAll(async () => {
     central.onSocReading(async (reading) => {
-      outcomes.push(await takeChargerReading({ db: app.db, mailer: app.deps.mailer, publicUrl: app.deps.auth.publicUrl }, reading));
+      outcomes.push(
+        await takeChargerReading({ db: app.db, mailer: app.deps.mailer, publicUrl: app.deps.auth.publicUrl }, reading),
+      );
     });
     server = app.app.listen(0, '127.0.0.1');
     central.attachTo(server);
@@ -44,8 +46,12 @@ describe('state of charge read by the charger at plug-in (central system and sta
     await addBuses(app.db, org.organisationId, depotId, NUMBERS);
     for (const date of [DATE, '2026-12-10']) {
       // Typed readings of 40 % at pull-in: what the plan takes until a charger says otherwise.
-      await app.request().put(`/api/depots/${depotId}/service-days/${date}`).set({ Authorization: `Bearer ${sup.token}` })
-        .send({ runs: dayRuns(date, NUMBERS, () => 40) }).expect(200);
+      await app
+        .request()
+        .put(`/api/depots/${depotId}/service-days/${date}`)
+        .set({ Authorization: `Bearer ${sup.token}` })
+        .send({ runs: dayRuns(date, NUMBERS, () => 40) })
+        .expect(200);
     }
     planId = await publishedPlan(app, sup, depotId, DATE);
     const [row] = await app.db.select().from(plans).where(eq(plans.id, planId));
@@ -53,12 +59,23 @@ describe('state of charge read by the charger at plug-in (central system and sta
     const url = `ws://127.0.0.1:${(server.address() as AddressInfo).port}/ocpp`;
     for (const [k, c] of depot.chargers.entries()) {
       const identity = `S-${c.label}-${depotId.slice(0, 8)}`;
-      await app.request().put(`/api/depots/${depotId}/chargers/${c.id}/ocpp`).set({ Authorization: `Bearer ${org.users.fac!.token}` })
-        .send({ identity, password: 'test-charger-password' }).expect(204);
+      await app
+        .request()
+        .put(`/api/depots/${depotId}/chargers/${c.id}/ocpp`)
+        .set({ Authorization: `Bearer ${org.users.fac!.token}` })
+        .send({ identity, password: 'test-charger-password' })
+        .expect(204);
       // One station of each protocol at least: their messages differ.
       const protocol = k % 2 ? 'ocpp2.0.1' : 'ocpp1.6';
       protocols.set(c.label, protocol);
-      const station = new SimulatedStation({ url, identity, password: 'test-charger-password', protocol, clock: () => now, meterIntervalMs: 60_000 });
+      const station = new SimulatedStation({
+        url,
+        identity,
+        password: 'test-charger-password',
+        protocol,
+        clock: () => now,
+        meterIntervalMs: 60_000,
+      });
       stations.set(c.label, station);
     }
     await Promise.all([...stations.values()].map((s) => s.start()));
@@ -73,16 +90,27 @@ describe('state of charge read by the charger at plug-in (central system and sta
   const protocolOf = (label: string) => protocols.get(label);
   const firstSessions = () => {
     const seen = new Set<string>();
-    return [...result.sessions].sort((a, b) => Date.parse(a.start) - Date.parse(b.start)).filter((s) => !seen.has(s.bus) && seen.add(s.bus));
+    return [...result.sessions]
+      .sort((a, b) => Date.parse(a.start) - Date.parse(b.start))
+      .filter((s) => !seen.has(s.bus) && seen.add(s.bus));
   };
   const arrivalOf = async (bus: string) => {
-    const [row] = await app.db.select({ pct: runs.arrivalSocPct, source: runs.arrivalSocSource }).from(runs)
-      .innerJoin(buses, eq(buses.id, runs.busId)).where(and(eq(runs.depotId, depotId), eq(runs.serviceDate, DATE), eq(buses.number, bus)))
-      .orderBy(desc(runs.pullIn)).limit(1);
+    const [row] = await app.db
+      .select({ pct: runs.arrivalSocPct, source: runs.arrivalSocSource })
+      .from(runs)
+      .innerJoin(buses, eq(buses.id, runs.busId))
+      .where(and(eq(runs.depotId, depotId), eq(runs.serviceDate, DATE), eq(buses.number, bus)))
+      .orderBy(desc(runs.pullIn))
+      .limit(1);
     return row!;
   };
-  const published = async () => (await app.db.select().from(plans)
-    .where(and(eq(plans.depotId, depotId), eq(plans.serviceDate, DATE), eq(plans.state, 'published'))))[0]!;
+  const published = async () =>
+    (
+      await app.db
+        .select()
+        .from(plans)
+        .where(and(eq(plans.depotId, depotId), eq(plans.serviceDate, DATE), eq(plans.state, 'published')))
+    )[0]!;
 
   it('a reading close to the plan becomes the arrival reading (source: charger) and leaves the plan as it is', async () => {
     // On an OCPP 1.6 station: StartTransaction, then MeterValues with the reading.
@@ -93,11 +121,22 @@ describe('state of charge read by the charger at plug-in (central system and sta
     const close = 40 + SOC_REPLAN_POINTS - 1;
     await stations.get(session.charger)!.plugIn(close);
     await central.socSettled();
-    expect(outcomes.at(-1)).toMatchObject({ taken: true, bus: session.bus, socPct: close, plannedPct: 40, arrival: true, revised: null });
+    expect(outcomes.at(-1)).toMatchObject({
+      taken: true,
+      bus: session.bus,
+      socPct: close,
+      plannedPct: 40,
+      arrival: true,
+      revised: null,
+    });
     expect(await arrivalOf(session.bus)).toEqual({ pct: close, source: 'charger' });
     expect((await published()).id).toBe(planId);
     // The service day shows where the reading came from.
-    const day = await app.request().get(`/api/depots/${depotId}/service-days/${DATE}`).set({ Authorization: `Bearer ${sup.token}` }).expect(200);
+    const day = await app
+      .request()
+      .get(`/api/depots/${depotId}/service-days/${DATE}`)
+      .set({ Authorization: `Bearer ${sup.token}` })
+      .expect(200);
     const run = day.body.runs.filter((r: { busNumber: string }) => r.busNumber === session.bus).at(-1);
     expect(run).toMatchObject({ arrivalSocPct: close, arrivalSocSource: 'charger' });
     // The same charger repeating its plug-in sample a minute later (a fault, a replay) is the same
@@ -127,10 +166,13 @@ describe('state of charge read by the charger at plug-in (central system and sta
     expect(revised.notes.at(-1)).toMatch(new RegExp(`bus ${session.bus} measured at 12 %`));
     const [report] = await app.db.select().from(yardReports).where(eq(yardReports.revisionId, revised.id));
     expect(report).toMatchObject({ kind: 'soc_reading', bus: session.bus, socPct: 12, reportedBy: null });
-    expect(report!.reason).toMatch(new RegExp(`^Charger ${session.charger} read 12 % at plug-in \\(\\d\\d:\\d\\d\\); the plan took 40 %$`));
+    expect(report!.reason).toMatch(
+      new RegExp(`^Charger ${session.charger} read 12 % at plug-in \\(\\d\\d:\\d\\d\\); the plan took 40 %$`),
+    );
     expect(await arrivalOf(session.bus)).toEqual({ pct: 12, source: 'charger' });
     // The re-plan starts the bus from 12 %: it gets more energy than the plan gave it from 40 %.
-    const energyOf = (r: PlanResult) => r.sessions.filter((s) => s.bus === session.bus).reduce((sum, s) => sum + s.kwh, 0);
+    const energyOf = (r: PlanResult) =>
+      r.sessions.filter((s) => s.bus === session.bus).reduce((sum, s) => sum + s.kwh, 0);
     expect(energyOf(revised.result as unknown as PlanResult)).toBeGreaterThan(energyOf(result) + 1);
     planId = revised.id;
     result = revised.result as unknown as PlanResult;
@@ -139,7 +181,11 @@ describe('state of charge read by the charger at plug-in (central system and sta
   it('a reading on a charger the plan leaves empty at that time is not taken', async () => {
     // Past the few minutes in which a charger's repeated reading counts as the same plug-in.
     now = new Date(now.getTime() + 6 * 60_000);
-    const used = new Set(result.sessions.filter((s) => Date.parse(s.start) - 30 * 60_000 <= now.getTime() && now.getTime() < Date.parse(s.end)).map((s) => s.charger));
+    const used = new Set(
+      result.sessions
+        .filter((s) => Date.parse(s.start) - 30 * 60_000 <= now.getTime() && now.getTime() < Date.parse(s.end))
+        .map((s) => s.charger),
+    );
     const idle = [...stations.keys()].find((label) => !used.has(label));
     expect(idle).toBeDefined();
     const before = outcomes.length;

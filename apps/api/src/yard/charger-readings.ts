@@ -18,7 +18,14 @@ const EARLY_MS = 30 * 60_000;
 
 export type ChargerReadingOutcome =
   | { taken: false; why: string }
-  | { taken: true; bus: string; socPct: number; plannedPct: number; arrival: boolean; revised: YardReportResult | null };
+  | {
+      taken: true;
+      bus: string;
+      socPct: number;
+      plannedPct: number;
+      arrival: boolean;
+      revised: YardReportResult | null;
+    };
 
 /**
  * A state of charge read by a charger as a bus was plugged in. The bus is the one tonight's
@@ -35,7 +42,9 @@ export async function takeChargerReading(
   const [depot] = await db.select().from(depots).where(eq(depots.id, reading.depotId));
   if (!depot) return { taken: false, why: 'the depot is gone' };
   const { tonight } = await nightOfDepot(db, depot, reading.at);
-  const [plan] = await db.select().from(plans)
+  const [plan] = await db
+    .select()
+    .from(plans)
     .where(and(eq(plans.depotId, depot.id), eq(plans.serviceDate, tonight.serviceDate), eq(plans.state, 'published')));
   if (!plan?.result) return { taken: false, why: `no plan is published for the night of ${tonight.serviceDate}` };
   const result = planResultSchema.parse(plan.result);
@@ -48,16 +57,20 @@ export async function takeChargerReading(
   const bus = parsed.ok ? parsed.scenario.buses.find((b) => b.id === session.bus) : undefined;
   if (!bus) return { taken: false, why: `bus ${session.bus} is not in the plan's depot data` };
 
-  const ofBus = result.sessions.filter((s) => s.bus === bus.id).sort((a, b) => Date.parse(a.start) - Date.parse(b.start));
+  const ofBus = result.sessions
+    .filter((s) => s.bus === bus.id)
+    .sort((a, b) => Date.parse(a.start) - Date.parse(b.start));
   const arrival = ofBus[0] === session;
-  const plannedKwh = bus.arrivalKwh + (arrival ? 0 : deliveredBefore(ofBus, t, parsed.ok ? parsed.scenario.slotMinutes : 15));
+  const plannedKwh =
+    bus.arrivalKwh + (arrival ? 0 : deliveredBefore(ofBus, t, parsed.ok ? parsed.scenario.slotMinutes : 15));
   const plannedPct = Math.round((plannedKwh / bus.usableKwh) * 1000) / 10;
   if (!arrival && plan.includesMidday) {
     // Between runs the bus spends energy the plan only estimates: the reading is no measure of the plan there.
     return { taken: false, why: `bus ${bus.id}'s later plug-in on a plan with the midday layover` };
   }
 
-  if (arrival) await storeArrivalReading(db, depot.id, tonight.serviceDate, bus.id, Date.parse(session.start), reading.socPct);
+  if (arrival)
+    await storeArrivalReading(db, depot.id, tonight.serviceDate, bus.id, Date.parse(session.start), reading.socPct);
   let revised: YardReportResult | null = null;
   if (Math.abs(reading.socPct - plannedPct) > SOC_REPLAN_POINTS) {
     const zone = depot.timezone;
@@ -66,7 +79,10 @@ export async function takeChargerReading(
       { organisationId: depot.organisationId, id: null, name: `charger ${reading.charger}` },
       depot.id,
       {
-        kind: 'soc_reading', planId: plan.id, bus: bus.id, socPct: reading.socPct,
+        kind: 'soc_reading',
+        planId: plan.id,
+        bus: bus.id,
+        socPct: reading.socPct,
         reason: `Charger ${reading.charger} read ${reading.socPct} % at plug-in (${DateTime.fromJSDate(reading.at, { zone }).toFormat('HH:mm')}); the plan took ${plannedPct} %`,
       },
       reading.at,
@@ -90,12 +106,32 @@ function deliveredBefore(sessions: PlanResult['sessions'], t: number, slotMinute
 }
 
 /** The run the bus came in from (its last pull-in up to the plug-in) takes the reading, marked as the charger's. */
-async function storeArrivalReading(db: Db, depotId: string, serviceDate: string, busNumber: string, plugInMs: number, socPct: number) {
-  const [bus] = await db.select({ id: buses.id }).from(buses).where(and(eq(buses.depotId, depotId), eq(buses.number, busNumber)));
+async function storeArrivalReading(
+  db: Db,
+  depotId: string,
+  serviceDate: string,
+  busNumber: string,
+  plugInMs: number,
+  socPct: number,
+) {
+  const [bus] = await db
+    .select({ id: buses.id })
+    .from(buses)
+    .where(and(eq(buses.depotId, depotId), eq(buses.number, busNumber)));
   if (!bus) return;
-  const [run] = await db.select({ id: runs.id }).from(runs)
-    .where(and(eq(runs.depotId, depotId), eq(runs.serviceDate, serviceDate), eq(runs.busId, bus.id), lte(runs.pullIn, new Date(plugInMs + EARLY_MS))))
-    .orderBy(desc(runs.pullIn)).limit(1);
+  const [run] = await db
+    .select({ id: runs.id })
+    .from(runs)
+    .where(
+      and(
+        eq(runs.depotId, depotId),
+        eq(runs.serviceDate, serviceDate),
+        eq(runs.busId, bus.id),
+        lte(runs.pullIn, new Date(plugInMs + EARLY_MS)),
+      ),
+    )
+    .orderBy(desc(runs.pullIn))
+    .limit(1);
   if (!run) return;
   await db.update(runs).set({ arrivalSocPct: socPct, arrivalSocSource: 'charger' }).where(eq(runs.id, run.id));
 }

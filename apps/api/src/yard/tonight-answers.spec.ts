@@ -25,7 +25,10 @@ const NUMBERS = ['61', '62', '63'];
 
 async function tonight() {
   return (await app.request().get(`/api/depots/${depotId}/tonight`).set(as(yard)).expect(200)).body as {
-    now: string; depot: { name: string }; plan: { id: string }; steps: YardStep[];
+    now: string;
+    depot: { name: string };
+    plan: { id: string };
+    steps: YardStep[];
   };
 }
 
@@ -40,7 +43,12 @@ beforeAll(async () => {
   depotId = (await createDepot(app.db, org.organisationId)).depot.id;
   await addBuses(app.db, org.organisationId, depotId, NUMBERS);
   for (const date of ['2026-12-09', '2026-12-10']) {
-    await app.request().put(`/api/depots/${depotId}/service-days/${date}`).set(as(sup)).send({ runs: dayRuns(date, NUMBERS, () => 16) }).expect(200);
+    await app
+      .request()
+      .put(`/api/depots/${depotId}/service-days/${date}`)
+      .set(as(sup))
+      .send({ runs: dayRuns(date, NUMBERS, () => 16) })
+      .expect(200);
   }
   await publishedPlan(app, sup, depotId, '2026-12-09');
 });
@@ -48,7 +56,9 @@ beforeAll(async () => {
 describe('Tonight, remembered between requests', () => {
   it('renews its instant, turns a step overdue ten minutes after its time, and goes back when the clock stands earlier', async () => {
     const first = await tonight();
-    const step = first.steps.filter((s) => s.status === 'upcoming').sort((a, b) => Date.parse(a.at) - Date.parse(b.at))[0]!;
+    const step = first.steps
+      .filter((s) => s.status === 'upcoming')
+      .sort((a, b) => Date.parse(a.at) - Date.parse(b.at))[0]!;
     expect(step).toBeDefined();
 
     // Just before it turns overdue: the same steps, a new instant.
@@ -70,7 +80,12 @@ describe('Tonight, remembered between requests', () => {
     await standAt(at('2026-12-09T21:00'));
     const first = await tonight();
     const step = first.steps.find((s) => s.status === 'upcoming')!;
-    await app.request().post('/api/yard/confirmations').set(as(yard)).send({ planId: first.plan.id, stepKey: step.key }).expect(200);
+    await app
+      .request()
+      .post('/api/yard/confirmations')
+      .set(as(yard))
+      .send({ planId: first.plan.id, stepKey: step.key })
+      .expect(200);
     expect((await tonight()).steps.find((s) => s.key === step.key)!.status).toBe('done');
 
     const renamed = `${first.depot.name} (north)`;

@@ -1,7 +1,15 @@
 import { aliasedTable, and, eq, getTableColumns, sql } from 'drizzle-orm';
 import { DateTime } from 'luxon';
 import {
-  planResultSchema, tonightSchema, type PlanDetail, type PlanResult, type Tonight, type TonightPlan, type YardReport, type YardReportResult, type YardStep,
+  planResultSchema,
+  tonightSchema,
+  type PlanDetail,
+  type PlanResult,
+  type Tonight,
+  type TonightPlan,
+  type YardReport,
+  type YardReportResult,
+  type YardStep,
   horizonOf,
 } from '@nightyard/contracts';
 import { parseScenario, ReplanStateError, type Plan, type ScenarioInput } from '@nightyard/scheduling';
@@ -28,28 +36,40 @@ type PlanRow = typeof plans.$inferSelect;
 const confirmer = aliasedTable(users, 'confirmer');
 const LOCAL = "yyyy-MM-dd'T'HH:mm";
 
-
 const creator = aliasedTable(users, 'creator');
 const publisher = aliasedTable(users, 'publisher');
 const { scenario: _scenario, result: _result, replanState: _replanState, ...planMeta } = getTableColumns(plans);
 
-const publishedPlanQuery = (db: Db, name: string) => db
-  .select({ plan: planMeta, createdBy: creator.name, publishedBy: publisher.name })
-  .from(plans)
-  .leftJoin(creator, eq(creator.id, plans.createdBy))
-  .leftJoin(publisher, eq(publisher.id, plans.publishedBy))
-  .where(and(eq(plans.depotId, sql.placeholder('depotId')), eq(plans.serviceDate, sql.placeholder('serviceDate')), eq(plans.state, 'published')))
-  .prepare(name);
+const publishedPlanQuery = (db: Db, name: string) =>
+  db
+    .select({ plan: planMeta, createdBy: creator.name, publishedBy: publisher.name })
+    .from(plans)
+    .leftJoin(creator, eq(creator.id, plans.createdBy))
+    .leftJoin(publisher, eq(publisher.id, plans.publishedBy))
+    .where(
+      and(
+        eq(plans.depotId, sql.placeholder('depotId')),
+        eq(plans.serviceDate, sql.placeholder('serviceDate')),
+        eq(plans.state, 'published'),
+      ),
+    )
+    .prepare(name);
 
 /**
  * The published plan of tonight (the night in force, else the next one), as the night model says.
  * The row is read without its documents (they are read once the caller is known to own the depot).
  */
 async function tonightsPlan(db: Db, depotId: string, now: Date) {
-  const [depot] = await db.select({ id: depots.id, timezone: depots.timezone }).from(depots).where(eq(depots.id, depotId));
+  const [depot] = await db
+    .select({ id: depots.id, timezone: depots.timezone })
+    .from(depots)
+    .where(eq(depots.id, depotId));
   if (!depot) return null;
   const { tonight } = await nightOfDepot(db, depot, now);
-  const [row] = await prepared(db, 'tonight_published_plan', publishedPlanQuery).execute({ depotId, serviceDate: tonight.serviceDate });
+  const [row] = await prepared(db, 'tonight_published_plan', publishedPlanQuery).execute({
+    depotId,
+    serviceDate: tonight.serviceDate,
+  });
   return row ?? null;
 }
 
@@ -65,39 +85,69 @@ const publishedDocuments = new Map<string, { result: PlanResult; scenario: Scena
 async function documentsOf(db: Db, planId: string) {
   const known = publishedDocuments.get(planId);
   if (known) return known;
-  const [row] = await db.select({ result: plans.result, scenario: plans.scenario }).from(plans).where(eq(plans.id, planId));
+  const [row] = await db
+    .select({ result: plans.result, scenario: plans.scenario })
+    .from(plans)
+    .where(eq(plans.id, planId));
   const documents = { result: planResultSchema.parse(row!.result), scenario: row!.scenario };
   publishedDocuments.set(planId, documents);
   if (publishedDocuments.size > 50) publishedDocuments.delete(publishedDocuments.keys().next().value!);
   return documents;
 }
 
-const confirmationsQuery = (db: Db, name: string) => db
-  .select({ key: yardConfirmations.stepKey, at: yardConfirmations.confirmedAt, by: confirmer.name, outcome: yardConfirmations.outcome })
-  .from(yardConfirmations)
-  .leftJoin(confirmer, eq(confirmer.id, yardConfirmations.confirmedBy))
-  .where(and(eq(yardConfirmations.depotId, sql.placeholder('depotId')), eq(yardConfirmations.serviceDate, sql.placeholder('serviceDate'))))
-  .prepare(name);
+const confirmationsQuery = (db: Db, name: string) =>
+  db
+    .select({
+      key: yardConfirmations.stepKey,
+      at: yardConfirmations.confirmedAt,
+      by: confirmer.name,
+      outcome: yardConfirmations.outcome,
+    })
+    .from(yardConfirmations)
+    .leftJoin(confirmer, eq(confirmer.id, yardConfirmations.confirmedBy))
+    .where(
+      and(
+        eq(yardConfirmations.depotId, sql.placeholder('depotId')),
+        eq(yardConfirmations.serviceDate, sql.placeholder('serviceDate')),
+      ),
+    )
+    .prepare(name);
 
 async function confirmationsOf(db: Db, depotId: string, serviceDate: string): Promise<Map<string, StepConfirmation>> {
   const rows = await prepared(db, 'yard_confirmations_of_night', confirmationsQuery).execute({ depotId, serviceDate });
   return new Map(rows.map((r) => [r.key, { at: r.at, by: r.by, outcome: r.outcome }]));
 }
 
-const chargersOutQuery = (db: Db, name: string) => db
-  .select({ charger: yardReports.charger, at: yardReports.reportedAt, reason: yardReports.reason })
-  .from(yardReports)
-  .where(and(eq(yardReports.depotId, sql.placeholder('depotId')), eq(yardReports.serviceDate, sql.placeholder('serviceDate')), eq(yardReports.kind, 'charger_out')))
-  .prepare(name);
+const chargersOutQuery = (db: Db, name: string) =>
+  db
+    .select({ charger: yardReports.charger, at: yardReports.reportedAt, reason: yardReports.reason })
+    .from(yardReports)
+    .where(
+      and(
+        eq(yardReports.depotId, sql.placeholder('depotId')),
+        eq(yardReports.serviceDate, sql.placeholder('serviceDate')),
+        eq(yardReports.kind, 'charger_out'),
+      ),
+    )
+    .prepare(name);
 
 /** What the steps of a night are derived from besides the plan and the confirmations. */
 async function stepContextOf(db: Db, depotId: string, serviceDate: string, zone: string): Promise<StepContext> {
   const rows = await prepared(db, 'yard_chargers_out_of_night', chargersOutQuery).execute({ depotId, serviceDate });
-  return { zone, chargersOut: rows.filter((r) => r.charger).map((r) => ({ charger: r.charger!, at: r.at, reason: r.reason })) };
+  return {
+    zone,
+    chargersOut: rows.filter((r) => r.charger).map((r) => ({ charger: r.charger!, at: r.at, reason: r.reason })),
+  };
 }
 
 /** Buses the yard confirmed on a charger (and not yet off it) at `cutAt`, per the plan followed. */
-export async function confirmedPlugged(db: Db, depotId: string, serviceDate: string, followed: PlanResult, cutAt: Date): Promise<Record<string, string>> {
+export async function confirmedPlugged(
+  db: Db,
+  depotId: string,
+  serviceDate: string,
+  followed: PlanResult,
+  cutAt: Date,
+): Promise<Record<string, string>> {
   const confirmations = await confirmationsOf(db, depotId, serviceDate);
   const plugged: Record<string, string> = {};
   for (const step of yardSteps(followed, cutAt, confirmations)) {
@@ -114,7 +164,13 @@ export async function confirmedPlugged(db: Db, depotId: string, serviceDate: str
     const off = confirmations.get(key + LATE);
     if (off && off.outcome !== 'missed' && off.at.getTime() <= cutAt.getTime()) continue;
     const [, bus, charger] = key.split('|') as [string, string, string];
-    const laterElsewhere = followed.sessions.some((s) => s.bus === bus && s.charger !== charger && Date.parse(s.start) <= cutAt.getTime() && Date.parse(s.start) > c.at.getTime());
+    const laterElsewhere = followed.sessions.some(
+      (s) =>
+        s.bus === bus &&
+        s.charger !== charger &&
+        Date.parse(s.start) <= cutAt.getTime() &&
+        Date.parse(s.start) > c.at.getTime(),
+    );
     if (!laterElsewhere && !Object.values(plugged).includes(charger)) plugged[bus] = charger;
   }
   return plugged;
@@ -144,10 +200,18 @@ type NightFound = NonNullable<Awaited<ReturnType<typeof publishedNight>>>['night
  * the plan, the depot's name and zone and what the yard has said (reports, confirmations) are
  * as they were. Each request still reads those from the database, so nothing here goes stale.
  */
-const tonightAnswers = new Map<string, { key: string; fromMs: number; untilMs: number; answer: Tonight; text: { before: Buffer; after: Buffer } }>();
+const tonightAnswers = new Map<
+  string,
+  { key: string; fromMs: number; untilMs: number; answer: Tonight; text: { before: Buffer; after: Buffer } }
+>();
 const MAX_TONIGHT_ANSWERS = 200;
 
-async function tonightOf(db: Db, depot: { id: string; name: string; timezone: string }, found: NightFound, now: Date): Promise<Tonight> {
+async function tonightOf(
+  db: Db,
+  depot: { id: string; name: string; timezone: string },
+  found: NightFound,
+  now: Date,
+): Promise<Tonight> {
   const base = { depot: { id: depot.id, name: depot.name, timezone: depot.timezone }, now: now.toISOString() };
   if (!found) return { ...base, plan: null, steps: [], acknowledged: false, reports: [] };
   const slot = `${depot.id}|${found.acknowledged}`;
@@ -165,11 +229,14 @@ async function tonightOf(db: Db, depot: { id: string; name: string; timezone: st
   }
 
   const answer = tonightSchema.parse(await computeTonight(db, base, depot.timezone, found));
-  const untilMs = Math.min(Infinity, ...answer.steps.filter((s) => s.status === 'upcoming').map((s) => Date.parse(s.at) + OVERDUE_AFTER_MS));
+  const untilMs = Math.min(
+    Infinity,
+    ...answer.steps.filter((s) => s.status === 'upcoming').map((s) => Date.parse(s.at) + OVERDUE_AFTER_MS),
+  );
   const json = JSON.stringify(answer);
   // The answer's first key after the depot (whose text, escaped, cannot hold this).
   const nowAt = json.indexOf(`"now":"${answer.now}"`) + '"now":"'.length;
-  if (nowAt < '"now":"'.length) throw new Error('Tonight\'s answer has no instant');
+  if (nowAt < '"now":"'.length) throw new Error("Tonight's answer has no instant");
   const text = { before: Buffer.from(json.slice(0, nowAt)), after: Buffer.from(json.slice(nowAt + answer.now.length)) };
   tonightAnswers.delete(slot);
   tonightAnswers.set(slot, { key, fromMs: nowMs, untilMs, answer, text });
@@ -177,7 +244,12 @@ async function tonightOf(db: Db, depot: { id: string; name: string; timezone: st
   return markCheckedText(answer, json);
 }
 
-async function computeTonight(db: Db, base: Pick<Tonight, 'depot' | 'now'>, zone: string, found: NonNullable<NightFound>): Promise<Tonight> {
+async function computeTonight(
+  db: Db,
+  base: Pick<Tonight, 'depot' | 'now'>,
+  zone: string,
+  found: NonNullable<NightFound>,
+): Promise<Tonight> {
   const { plan, createdBy, publishedBy, acknowledged, reports, confirmations } = found;
   const documents = await documentsOf(db, plan.id);
   // The chargers reported out tonight, from the same reports: the steps stop on them at that instant.
@@ -206,13 +278,23 @@ function tonightPlanOf(detail: PlanDetail): TonightPlan {
 }
 
 async function publishedPlanOf(db: Db, caller: Pick<AuthUser, 'organisationId'>, planId: string): Promise<PlanRow> {
-  const [plan] = await db.select().from(plans).where(and(eq(plans.id, planId), eq(plans.organisationId, caller.organisationId)));
+  const [plan] = await db
+    .select()
+    .from(plans)
+    .where(and(eq(plans.id, planId), eq(plans.organisationId, caller.organisationId)));
   if (!plan) throw notFound('That plan');
   if (plan.state !== 'published') {
-    const [current] = await db.select().from(plans).where(and(eq(plans.depotId, plan.depotId), eq(plans.serviceDate, plan.serviceDate), eq(plans.state, 'published')));
-    throw conflict(current
-      ? `This plan was replaced by version ${current.version}: reload to see the current steps`
-      : 'This plan is no longer in force: reload');
+    const [current] = await db
+      .select()
+      .from(plans)
+      .where(
+        and(eq(plans.depotId, plan.depotId), eq(plans.serviceDate, plan.serviceDate), eq(plans.state, 'published')),
+      );
+    throw conflict(
+      current
+        ? `This plan was replaced by version ${current.version}: reload to see the current steps`
+        : 'This plan is no longer in force: reload',
+    );
   }
   return plan;
 }
@@ -226,14 +308,24 @@ export async function confirmStep(db: Db, caller: AuthUser, planId: string, key:
   const plan = await publishedPlanOf(db, caller, planId);
   const result = planResultSchema.parse(plan.result);
   const confirmations = await confirmationsOf(db, plan.depotId, plan.serviceDate);
-  if (!yardSteps(result, now, confirmations).some((s) => s.key === key)) throw notFound('That step (it is not in this plan)');
+  if (!yardSteps(result, now, confirmations).some((s) => s.key === key))
+    throw notFound('That step (it is not in this plan)');
   const [depot] = await db.select({ timezone: depots.timezone }).from(depots).where(eq(depots.id, plan.depotId));
   const doneAt = at === undefined ? now : realTime(at, now, depot!.timezone, horizonOf(result)!.start);
   const existing = confirmations.get(key);
-  if (existing?.outcome === 'missed') throw conflict('That step was reported as not done: the night was re-planned from it');
+  if (existing?.outcome === 'missed')
+    throw conflict('That step was reported as not done: the night was re-planned from it');
   await db
     .insert(yardConfirmations)
-    .values({ organisationId: caller.organisationId, depotId: plan.depotId, serviceDate: plan.serviceDate, stepKey: key, planId, confirmedBy: caller.id, confirmedAt: doneAt })
+    .values({
+      organisationId: caller.organisationId,
+      depotId: plan.depotId,
+      serviceDate: plan.serviceDate,
+      stepKey: key,
+      planId,
+      confirmedBy: caller.id,
+      confirmedAt: doneAt,
+    })
     .onConflictDoNothing();
   const done = (await confirmationsOf(db, plan.depotId, plan.serviceDate)).get(key)!;
   return { stepKey: key, confirmedAt: done.at.toISOString(), confirmedBy: done.by };
@@ -245,12 +337,19 @@ function realTime(at: string, now: Date, zone: string, nightStart: number): Date
   const local = DateTime.fromJSDate(now, { zone });
   let t = local.set({ hour, minute, second: 0, millisecond: 0 });
   if (t.toMillis() > now.getTime() && t.toMillis() - now.getTime() < 60 * 60_000) {
-    throw new DomainError('validation_failed', `${at} is later than now (${local.toFormat('HH:mm')}): give the time it happened`, { at: 'Later than now' });
+    throw new DomainError(
+      'validation_failed',
+      `${at} is later than now (${local.toFormat('HH:mm')}): give the time it happened`,
+      { at: 'Later than now' },
+    );
   }
   if (t.toMillis() > now.getTime()) t = t.minus({ days: 1 });
   if (t.toMillis() < nightStart) {
-    throw new DomainError('validation_failed', `${at} is before tonight's plan began (${DateTime.fromMillis(nightStart, { zone }).toFormat('HH:mm')}): give the time it happened`,
-      { at: 'Before the night began' });
+    throw new DomainError(
+      'validation_failed',
+      `${at} is before tonight's plan began (${DateTime.fromMillis(nightStart, { zone }).toFormat('HH:mm')}): give the time it happened`,
+      { at: 'Before the night began' },
+    );
   }
   return t.toJSDate();
 }
@@ -259,17 +358,26 @@ export async function acknowledgeShift(db: Db, caller: AuthUser, depotId: string
   await depotOf(db, caller, depotId);
   const found = await tonightsPlan(db, depotId, now);
   if (!found) throw conflict('There is no plan for tonight to start a shift on');
-  await db.insert(shiftAcknowledgements).values({ userId: caller.id, depotId, serviceDate: found.plan.serviceDate }).onConflictDoNothing();
+  await db
+    .insert(shiftAcknowledgements)
+    .values({ userId: caller.id, depotId, serviceDate: found.plan.serviceDate })
+    .onConflictDoNothing();
 }
 
-
-export interface PublishDeps { db: Db; mailer: Mailer; publicUrl: (p: string) => string; onPlanPublished?: (id: string) => void }
+export interface PublishDeps {
+  db: Db;
+  mailer: Mailer;
+  publicUrl: (p: string) => string;
+  onPlanPublished?: (id: string) => void;
+}
 
 /**
  * What a report or a step that did not happen changes in the night, before the re-plan. A
  * charger's state of charge reading comes with a reason in words (what it read and when).
  */
-type Change = YardReport | { kind: 'step_missed'; planId: string; step: YardStep }
+type Change =
+  | YardReport
+  | { kind: 'step_missed'; planId: string; step: YardStep }
   | (Extract<YardReport, { kind: 'soc_reading' }> & { reason: string });
 
 /** Who reports: a signed-in person, or a charger (no person; `name` says which, as in "charger D2"). */
@@ -284,7 +392,13 @@ export type Reporter = Pick<AuthUser, 'organisationId' | 'name'> & { id: string 
  * 23:07 charges nobody after 23:07 (see `stopSessions` for why the current slot's remainder is
  * no-charge rather than a partial first slot of the re-plan).
  */
-export function reportProblem(deps: PublishDeps, caller: AuthUser, depotId: string, report: YardReport, now: Date): Promise<YardReportResult> {
+export function reportProblem(
+  deps: PublishDeps,
+  caller: AuthUser,
+  depotId: string,
+  report: YardReport,
+  now: Date,
+): Promise<YardReportResult> {
   return replanAndPublish(deps, caller, depotId, report, now);
 }
 
@@ -293,7 +407,14 @@ export function reportProblem(deps: PublishDeps, caller: AuthUser, depotId: stri
  * bus unplugged (nothing was delivered on that session); a disconnect that did not happen leaves
  * the bus on its charger. The step is marked `missed` in the same transaction as the revision.
  */
-export async function missedStep(deps: PublishDeps, caller: AuthUser, depotId: string, planId: string, key: string, now: Date): Promise<YardReportResult> {
+export async function missedStep(
+  deps: PublishDeps,
+  caller: AuthUser,
+  depotId: string,
+  planId: string,
+  key: string,
+  now: Date,
+): Promise<YardReportResult> {
   const plan = await publishedPlanOf(deps.db, caller, planId);
   if (plan.depotId !== depotId) throw notFound('That plan (it is for another depot)');
   const confirmations = await confirmationsOf(deps.db, depotId, plan.serviceDate);
@@ -301,20 +422,31 @@ export async function missedStep(deps: PublishDeps, caller: AuthUser, depotId: s
   if (!step) throw notFound('That step (it is not in this plan)');
   if (step.status === 'done') throw conflict('That step is already confirmed as done');
   if (step.status === 'missed') throw conflict('That step is already reported as not done');
-  if (key.endsWith(LATE)) throw conflict('The bus is already taken as still on the charger: confirm it when it is unplugged');
+  if (key.endsWith(LATE))
+    throw conflict('The bus is already taken as still on the charger: confirm it when it is unplugged');
   if (Date.parse(step.at) > now.getTime()) {
-    throw new DomainError('validation_failed', 'That step is not due yet: only a step whose time has come can be reported as not done', { stepKey: 'Not due yet' });
+    throw new DomainError(
+      'validation_failed',
+      'That step is not due yet: only a step whose time has come can be reported as not done',
+      { stepKey: 'Not due yet' },
+    );
   }
   return replanAndPublish(deps, caller, depotId, { kind: 'step_missed', planId, step }, now);
 }
 
-export async function replanAndPublish(deps: PublishDeps, caller: Reporter, depotId: string, report: Change, now: Date): Promise<YardReportResult> {
+export async function replanAndPublish(
+  deps: PublishDeps,
+  caller: Reporter,
+  depotId: string,
+  report: Change,
+  now: Date,
+): Promise<YardReportResult> {
   const { db } = deps;
   const depot = await depotOf(db, caller, depotId);
   const plan = await publishedPlanOf(db, caller, report.planId);
   if (plan.depotId !== depotId) throw notFound('That plan (it is for another depot)');
   const parsed = parseScenario(plan.scenario);
-  if (!parsed.ok) throw new DomainError('internal', 'The plan\'s scenario is no longer valid');
+  if (!parsed.ok) throw new DomainError('internal', "The plan's scenario is no longer valid");
   const scenario = parsed.scenario;
   const followed = planResultSchema.parse(plan.result);
   const zone = depot.timezone;
@@ -323,18 +455,30 @@ export async function replanAndPublish(deps: PublishDeps, caller: Reporter, depo
   // Reported before the night has started: the whole night is planned again.
   const cutAt = new Date(Math.max(now.getTime(), h.start));
 
-  const state = { outOfService: [...(plan.replanState?.outOfService ?? [])], lateArrivals: { ...(plan.replanState?.lateArrivals ?? {}) }, absent: [...(plan.replanState?.absent ?? [])] };
+  const state = {
+    outOfService: [...(plan.replanState?.outOfService ?? [])],
+    lateArrivals: { ...(plan.replanState?.lateArrivals ?? {}) },
+    absent: [...(plan.replanState?.absent ?? [])],
+  };
   const energyKwh: Record<string, number> = {};
   const stops: SessionStop[] = [];
   const extraPlugged: Record<string, string> = {};
   const busIds = new Set(scenario.buses.map((b) => b.id));
   if ('bus' in report && !busIds.has(report.bus)) {
-    throw new DomainError('validation_failed', `Bus ${report.bus} is not in tonight's plan for ${depot.name}`, { bus: 'Not in tonight\'s plan' });
+    throw new DomainError('validation_failed', `Bus ${report.bus} is not in tonight's plan for ${depot.name}`, {
+      bus: "Not in tonight's plan",
+    });
   }
   switch (report.kind) {
     case 'charger_out': {
-      const [c] = await db.select().from(chargers).where(and(eq(chargers.depotId, depotId), eq(chargers.label, report.charger)));
-      if (!c) throw new DomainError('validation_failed', `Charger ${report.charger} is not at ${depot.name}`, { charger: 'Not at this depot' });
+      const [c] = await db
+        .select()
+        .from(chargers)
+        .where(and(eq(chargers.depotId, depotId), eq(chargers.label, report.charger)));
+      if (!c)
+        throw new DomainError('validation_failed', `Charger ${report.charger} is not at ${depot.name}`, {
+          charger: 'Not at this depot',
+        });
       if (!state.outOfService.includes(report.charger)) state.outOfService.push(report.charger);
       // Nothing charges on it from this instant, the rest of the current slot included.
       stops.push({ charger: report.charger, at: cutAt });
@@ -342,7 +486,10 @@ export async function replanAndPublish(deps: PublishDeps, caller: Reporter, depo
     }
     case 'bus_late': {
       const at = DateTime.fromISO(report.expectedAt, { zone });
-      if (at.toMillis() <= cutAt.getTime()) throw new DomainError('validation_failed', 'The new arrival time must be later than now', { expectedAt: 'In the past' });
+      if (at.toMillis() <= cutAt.getTime())
+        throw new DomainError('validation_failed', 'The new arrival time must be later than now', {
+          expectedAt: 'In the past',
+        });
       state.lateArrivals[report.bus] = report.expectedAt;
       break;
     }
@@ -355,10 +502,15 @@ export async function replanAndPublish(deps: PublishDeps, caller: Reporter, depo
       break;
     }
     case 'step_missed': {
-      const session = followed.sessions.find((s) => s.bus === report.step.bus && s.charger === report.step.charger
-        && Date.parse(report.step.action === 'connect' ? s.start : s.end) === Date.parse(report.step.at));
+      const session = followed.sessions.find(
+        (s) =>
+          s.bus === report.step.bus &&
+          s.charger === report.step.charger &&
+          Date.parse(report.step.action === 'connect' ? s.start : s.end) === Date.parse(report.step.at),
+      );
       // A connect that did not happen: nothing was delivered on that session, and the bus is not on the charger.
-      if (report.step.action === 'connect' && session) stops.push({ charger: session.charger, bus: session.bus, start: session.start, at: new Date(session.start) });
+      if (report.step.action === 'connect' && session)
+        stops.push({ charger: session.charger, bus: session.bus, start: session.start, at: new Date(session.start) });
       // A disconnect that did not happen: the bus is still on its charger.
       if (report.step.action === 'disconnect') extraPlugged[report.step.bus] = report.step.charger;
       break;
@@ -369,12 +521,17 @@ export async function replanAndPublish(deps: PublishDeps, caller: Reporter, depo
   const plugged = { ...(await confirmedPlugged(db, depotId, plan.serviceDate, followed, cutAt)), ...extraPlugged };
   for (const [bus, charger] of Object.entries(plugged)) {
     const stopped = stops.some((x) => x.charger === charger && (x.bus === undefined || x.bus === bus));
-    if (stopped || state.outOfService.includes(charger) || state.absent.includes(bus) || state.lateArrivals[bus]) delete plugged[bus];
+    if (stopped || state.outOfService.includes(charger) || state.absent.includes(bus) || state.lateArrivals[bus])
+      delete plugged[bus];
   }
   for (const [bus, charger] of Object.entries(extraPlugged)) {
     const other = Object.entries(plugged).find(([b, c]) => c === charger && b !== bus);
     if (other) {
-      throw new DomainError('validation_failed', `Bus ${other[0]} is confirmed on charger ${charger}: bus ${bus} cannot still be on it`, { stepKey: 'Charger taken' });
+      throw new DomainError(
+        'validation_failed',
+        `Bus ${other[0]} is confirmed on charger ${charger}: bus ${bus} cannot still be on it`,
+        { stepKey: 'Charger taken' },
+      );
     }
   }
 
@@ -390,13 +547,25 @@ export async function replanAndPublish(deps: PublishDeps, caller: Reporter, depo
   const t0 = performance.now();
   let next;
   try {
-    next = await runInPool({ kind: 'replan', scenario: kept, state: {
-      now: cutoff.toFormat(LOCAL), energyKwh, plugged, outOfService: state.outOfService,
-      lateArrivals: Object.fromEntries(Object.entries(state.lateArrivals).filter(([b]) => !absent.has(b))), previous: previousPlan,
-    } });
+    next = await runInPool({
+      kind: 'replan',
+      scenario: kept,
+      state: {
+        now: cutoff.toFormat(LOCAL),
+        energyKwh,
+        plugged,
+        outOfService: state.outOfService,
+        lateArrivals: Object.fromEntries(Object.entries(state.lateArrivals).filter(([b]) => !absent.has(b))),
+        previous: previousPlan,
+      },
+    });
   } catch (err) {
     if (err instanceof ReplanStateError) {
-      throw new DomainError('validation_failed', 'The report does not fit tonight\'s plan', Object.fromEntries(err.problems.map((p) => [p.path, p.message])));
+      throw new DomainError(
+        'validation_failed',
+        "The report does not fit tonight's plan",
+        Object.fromEntries(err.problems.map((p) => [p.path, p.message])),
+      );
     }
     throw err;
   }
@@ -404,47 +573,97 @@ export async function replanAndPublish(deps: PublishDeps, caller: Reporter, depo
 
   // The night as a whole: what was kept before the cut-off, then the re-plan.
   const merged = mergeReplan(previous, next);
-  const describe = report.kind === 'step_missed'
-    ? `"${report.step.text}" (due ${DateTime.fromISO(report.step.at, { zone }).toFormat('HH:mm')}) did not happen`
-    : {
-      charger_out: () => `charger ${'charger' in report ? report.charger : ''} out of service${'reason' in report && report.reason ? ` (${report.reason})` : ''}`,
-      bus_late: () => `bus ${'bus' in report ? report.bus : ''} late, expected ${'expectedAt' in report ? report.expectedAt.slice(11) : ''}`,
-      bus_absent: () => `bus ${'bus' in report ? report.bus : ''} absent tonight`,
-      soc_reading: () => `bus ${'bus' in report ? report.bus : ''} measured at ${'socPct' in report ? report.socPct : ''} %`,
-    }[report.kind]();
+  const describe =
+    report.kind === 'step_missed'
+      ? `"${report.step.text}" (due ${DateTime.fromISO(report.step.at, { zone }).toFormat('HH:mm')}) did not happen`
+      : {
+          charger_out: () =>
+            `charger ${'charger' in report ? report.charger : ''} out of service${'reason' in report && report.reason ? ` (${report.reason})` : ''}`,
+          bus_late: () =>
+            `bus ${'bus' in report ? report.bus : ''} late, expected ${'expectedAt' in report ? report.expectedAt.slice(11) : ''}`,
+          bus_absent: () => `bus ${'bus' in report ? report.bus : ''} absent tonight`,
+          soc_reading: () =>
+            `bus ${'bus' in report ? report.bus : ''} measured at ${'socPct' in report ? report.socPct : ''} %`,
+        }[report.kind]();
 
   const revision = await db.transaction(async (tx) => {
     await tx.select({ id: depots.id }).from(depots).where(eq(depots.id, depotId)).for('update');
-    const [current] = await tx.select().from(plans).where(and(eq(plans.depotId, depotId), eq(plans.serviceDate, plan.serviceDate), eq(plans.state, 'published')));
-    if (current?.id !== plan.id) throw conflict(`The plan was revised meanwhile (version ${current?.version ?? '?'}): reload and report again if still needed`);
-    const [last] = await tx.select({ v: sql<number>`max(${plans.version})::int` }).from(plans).where(and(eq(plans.depotId, depotId), eq(plans.serviceDate, plan.serviceDate)));
+    const [current] = await tx
+      .select()
+      .from(plans)
+      .where(and(eq(plans.depotId, depotId), eq(plans.serviceDate, plan.serviceDate), eq(plans.state, 'published')));
+    if (current?.id !== plan.id)
+      throw conflict(
+        `The plan was revised meanwhile (version ${current?.version ?? '?'}): reload and report again if still needed`,
+      );
+    const [last] = await tx
+      .select({ v: sql<number>`max(${plans.version})::int` })
+      .from(plans)
+      .where(and(eq(plans.depotId, depotId), eq(plans.serviceDate, plan.serviceDate)));
     await tx.update(plans).set({ state: 'superseded' }).where(eq(plans.id, plan.id));
-    const [row] = await tx.insert(plans).values({
-      organisationId: caller.organisationId, depotId, serviceDate: plan.serviceDate, version: (last?.v ?? 0) + 1, kind: 'revision',
-      state: 'published', status: 'done', stage: 'Done', includesMidday: plan.includesMidday, scenario: plan.scenario,
-      notes: [...plan.notes, `Revised at ${cutoff.toFormat('HH:mm')}: ${describe}.`], result: merged,
-      replanState: state, createdBy: caller.id, publishedBy: caller.id, publishedAt: now,
-    }).returning();
+    const [row] = await tx
+      .insert(plans)
+      .values({
+        organisationId: caller.organisationId,
+        depotId,
+        serviceDate: plan.serviceDate,
+        version: (last?.v ?? 0) + 1,
+        kind: 'revision',
+        state: 'published',
+        status: 'done',
+        stage: 'Done',
+        includesMidday: plan.includesMidday,
+        scenario: plan.scenario,
+        notes: [...plan.notes, `Revised at ${cutoff.toFormat('HH:mm')}: ${describe}.`],
+        result: merged,
+        replanState: state,
+        createdBy: caller.id,
+        publishedBy: caller.id,
+        publishedAt: now,
+      })
+      .returning();
     if (report.kind === 'charger_out') {
-      await tx.update(chargers).set({ status: 'out_of_service', statusReason: report.reason, statusSince: now, outFrom: null, outUntil: null })
+      await tx
+        .update(chargers)
+        .set({ status: 'out_of_service', statusReason: report.reason, statusSince: now, outFrom: null, outUntil: null })
         .where(and(eq(chargers.depotId, depotId), eq(chargers.label, report.charger)));
     }
     if (report.kind === 'step_missed') {
-      const inserted = await tx.insert(yardConfirmations).values({
-        organisationId: caller.organisationId, depotId, serviceDate: plan.serviceDate, stepKey: report.step.key, planId: plan.id,
-        confirmedBy: caller.id, confirmedAt: now, outcome: 'missed',
-      }).onConflictDoNothing().returning({ id: yardConfirmations.id });
+      const inserted = await tx
+        .insert(yardConfirmations)
+        .values({
+          organisationId: caller.organisationId,
+          depotId,
+          serviceDate: plan.serviceDate,
+          stepKey: report.step.key,
+          planId: plan.id,
+          confirmedBy: caller.id,
+          confirmedAt: now,
+          outcome: 'missed',
+        })
+        .onConflictDoNothing()
+        .returning({ id: yardConfirmations.id });
       if (!inserted.length) throw conflict('That step was confirmed meanwhile: reload');
     }
     await tx.insert(yardReports).values({
-      organisationId: caller.organisationId, depotId, serviceDate: plan.serviceDate, kind: report.kind,
+      organisationId: caller.organisationId,
+      depotId,
+      serviceDate: plan.serviceDate,
+      kind: report.kind,
       bus: report.kind === 'step_missed' ? report.step.bus : 'bus' in report ? report.bus : null,
       charger: report.kind === 'step_missed' ? report.step.charger : 'charger' in report ? report.charger : null,
       expectedAt: report.kind === 'bus_late' ? DateTime.fromISO(report.expectedAt, { zone }).toJSDate() : null,
       socPct: report.kind === 'soc_reading' ? report.socPct : null,
-      reason: report.kind === 'step_missed' ? `${report.step.text} (due ${DateTime.fromISO(report.step.at, { zone }).toFormat('HH:mm')}) did not happen`
-        : 'reason' in report ? report.reason || null : null,
-      planId: plan.id, revisionId: row!.id, reportedBy: caller.id, reportedAt: now,
+      reason:
+        report.kind === 'step_missed'
+          ? `${report.step.text} (due ${DateTime.fromISO(report.step.at, { zone }).toFormat('HH:mm')}) did not happen`
+          : 'reason' in report
+            ? report.reason || null
+            : null,
+      planId: plan.id,
+      revisionId: row!.id,
+      reportedBy: caller.id,
+      reportedAt: now,
     });
     return row!;
   });
@@ -452,24 +671,58 @@ export async function replanAndPublish(deps: PublishDeps, caller: Reporter, depo
   const { moved } = await comparePlans(db, caller, revision.id, plan.id);
   deps.onPlanPublished?.(revision.id);
   // The e-mail names the steps exactly as the yard page does: the same derivation, at the same instant.
-  const [confirmations, context] = await Promise.all([confirmationsOf(db, depotId, plan.serviceDate), stepContextOf(db, depotId, plan.serviceDate, zone)]);
-  const soon = stepsDueSoon(yardSteps(merged, now, confirmations, context), now)
-    .map((s) => `${DateTime.fromISO(s.at, { zone }).toFormat('HH:mm')} ${s.text}`);
+  const [confirmations, context] = await Promise.all([
+    confirmationsOf(db, depotId, plan.serviceDate),
+    stepContextOf(db, depotId, plan.serviceDate, zone),
+  ]);
+  const soon = stepsDueSoon(yardSteps(merged, now, confirmations, context), now).map(
+    (s) => `${DateTime.fromISO(s.at, { zone }).toFormat('HH:mm')} ${s.text}`,
+  );
   const recipients = await nightStaff(db, caller.organisationId);
   let notified = 0;
   for (const r of recipients) {
-    await deps.mailer.send(planRevisedMail({
-      to: r.email, name: r.name, depot: depot.name, version: revision.version, at: cutoff.toFormat('HH:mm'), reportedBy: caller.name,
-      what: describe, moved: moved.map((m) => `${m.bus}: ${m.after}`), steps: soon, why: movedWhy(next), link: nightMailLink(r.roles, { planId: revision.id, serviceDate: revision.serviceDate }, deps.publicUrl),
-    })).then(() => notified++, () => undefined);
+    await deps.mailer
+      .send(
+        planRevisedMail({
+          to: r.email,
+          name: r.name,
+          depot: depot.name,
+          version: revision.version,
+          at: cutoff.toFormat('HH:mm'),
+          reportedBy: caller.name,
+          what: describe,
+          moved: moved.map((m) => `${m.bus}: ${m.after}`),
+          steps: soon,
+          why: movedWhy(next),
+          link: nightMailLink(r.roles, { planId: revision.id, serviceDate: revision.serviceDate }, deps.publicUrl),
+        }),
+      )
+      .then(
+        () => notified++,
+        () => undefined,
+      );
   }
   return {
     revision: {
-      id: revision.id, depotId, serviceDate: revision.serviceDate, version: revision.version, kind: revision.kind, state: revision.state,
-      status: revision.status, stage: revision.stage, error: null, includesMidday: revision.includesMidday,
-      createdAt: revision.createdAt.toISOString(), createdBy: caller.name, publishedAt: now.toISOString(), publishedBy: caller.name,
-      totalCost: next.cost.total, shortBuses: next.buses.filter((b) => b.shortfallKwh > 1e-6).length,
+      id: revision.id,
+      depotId,
+      serviceDate: revision.serviceDate,
+      version: revision.version,
+      kind: revision.kind,
+      state: revision.state,
+      status: revision.status,
+      stage: revision.stage,
+      error: null,
+      includesMidday: revision.includesMidday,
+      createdAt: revision.createdAt.toISOString(),
+      createdBy: caller.name,
+      publishedAt: now.toISOString(),
+      publishedBy: caller.name,
+      totalCost: next.cost.total,
+      shortBuses: next.buses.filter((b) => b.shortfallKwh > 1e-6).length,
     },
-    moved, replanMs, notified,
+    moved,
+    replanMs,
+    notified,
   };
 }

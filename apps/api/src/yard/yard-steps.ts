@@ -37,7 +37,10 @@ const hhmm = (iso: string, zone: string) => DateTime.fromISO(iso, { zone }).toFo
  * confirmations.
  */
 export function yardSteps(
-  result: PlanResult, now: Date, confirmations: Map<string, StepConfirmation>, context: StepContext = { zone: 'UTC', chargersOut: [] },
+  result: PlanResult,
+  now: Date,
+  confirmations: Map<string, StepConfirmation>,
+  context: StepContext = { zone: 'UTC', chargersOut: [] },
 ): YardStep[] {
   const steps: YardStep[] = [];
   const byBus = new Map<string, PlanResult['sessions']>();
@@ -59,16 +62,22 @@ export function yardSteps(
   for (const s of result.sessions) {
     const kwh = Math.round(s.kw.reduce((a, b) => a + b * 0.25, 0) * 10) / 10;
     const end = Date.parse(s.end);
-    const out = context.chargersOut.find((o) => o.charger === s.charger && o.at.getTime() === end && Date.parse(s.start) < end);
+    const out = context.chargersOut.find(
+      (o) => o.charger === s.charger && o.at.getTime() === end && Date.parse(s.start) < end,
+    );
     for (const action of ['connect', 'disconnect'] as const) {
       const key = stepKey(action, s.bus, s.charger, s.start);
       const at = action === 'connect' ? s.start : s.end;
       const done = confirmations.get(key);
-      let text = action === 'connect' ? `Plug in bus ${s.bus} at charger ${s.charger}` : `Unplug bus ${s.bus} from charger ${s.charger}`;
+      let text =
+        action === 'connect'
+          ? `Plug in bus ${s.bus} at charger ${s.charger}`
+          : `Unplug bus ${s.bus} from charger ${s.charger}`;
       let reason: string | null = null;
       let moveTo: YardStep['moveTo'] = null;
       if (action === 'connect') {
-        if (continues(s.bus, s.charger, s.start)) text = `Keep bus ${s.bus} on charger ${s.charger} (it was not unplugged)`;
+        if (continues(s.bus, s.charger, s.start))
+          text = `Keep bus ${s.bus} on charger ${s.charger} (it was not unplugged)`;
       }
       if (action === 'disconnect' && out) {
         reason = `Charger ${s.charger} out of service${out.reason ? ` (${out.reason})` : ''}`;
@@ -84,11 +93,25 @@ export function yardSteps(
       // A forced unplug (charger out) is always the crew's; otherwise the plan says who.
       const by = out && action === 'disconnect' ? 'crew' : ((action === 'connect' ? s.startMove : s.endMove) ?? 'crew');
       steps.push({
-        key, action, by, bus: s.bus, charger: s.charger, at, kwh,
-        status: done ? (done.outcome === 'missed' ? 'missed' : 'done') : Date.parse(at) + OVERDUE_AFTER_MS < now.getTime() ? 'overdue' : 'upcoming',
+        key,
+        action,
+        by,
+        bus: s.bus,
+        charger: s.charger,
+        at,
+        kwh,
+        status: done
+          ? done.outcome === 'missed'
+            ? 'missed'
+            : 'done'
+          : Date.parse(at) + OVERDUE_AFTER_MS < now.getTime()
+            ? 'overdue'
+            : 'upcoming',
         confirmedAt: done && done.outcome !== 'missed' ? done.at.toISOString() : null,
         confirmedBy: done?.by ?? null,
-        text, reason, moveTo,
+        text,
+        reason,
+        moveTo,
       });
     }
   }
@@ -101,11 +124,19 @@ export function yardSteps(
     const late = key + LATE;
     const done = confirmations.get(late);
     steps.push({
-      key: late, action: 'disconnect', by: 'crew', bus, charger, at: c.at.toISOString(), kwh: 0,
+      key: late,
+      action: 'disconnect',
+      by: 'crew',
+      bus,
+      charger,
+      at: c.at.toISOString(),
+      kwh: 0,
       status: done ? 'done' : c.at.getTime() + OVERDUE_AFTER_MS < now.getTime() ? 'overdue' : 'upcoming',
-      confirmedAt: done?.at.toISOString() ?? null, confirmedBy: done?.by ?? null,
+      confirmedAt: done?.at.toISOString() ?? null,
+      confirmedBy: done?.by ?? null,
       text: `Unplug bus ${bus} from charger ${charger} (it was not unplugged at its time)`,
-      reason: 'Not unplugged at its time', moveTo: null,
+      reason: 'Not unplugged at its time',
+      moveTo: null,
     });
   }
   return steps.sort((a, b) => Date.parse(a.at) - Date.parse(b.at) || (a.action === 'disconnect' ? -1 : 1));
@@ -123,7 +154,9 @@ export function stepsDueSoon(steps: readonly YardStep[], now: Date, withinMs = 6
 export function mergeSessions(kept: PlanResult['sessions'], next: PlanResult['sessions']): PlanResult['sessions'] {
   const out = kept.map((s) => ({ ...s, kw: [...s.kw] }));
   for (const s of next) {
-    const join = out.find((k) => k.bus === s.bus && k.charger === s.charger && Date.parse(k.end) === Date.parse(s.start));
+    const join = out.find(
+      (k) => k.bus === s.bus && k.charger === s.charger && Date.parse(k.end) === Date.parse(s.start),
+    );
     if (join) {
       join.end = s.end;
       if (s.endMove) join.endMove = s.endMove;

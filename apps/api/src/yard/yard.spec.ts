@@ -19,7 +19,8 @@ let depotId: string;
 let otherDepotBus: string;
 const as = (u: TestUser) => ({ Authorization: `Bearer ${u.token}` });
 /** A plan's whole result (Tonight gives the yard its plug-ins only). */
-const planResult = async (id: string): Promise<PlanResult> => (await app.request().get(`/api/plans/${id}`).set(as(yard)).expect(200)).body.plan.result;
+const planResult = async (id: string): Promise<PlanResult> =>
+  (await app.request().get(`/api/plans/${id}`).set(as(yard)).expect(200)).body.plan.result;
 const NUMBERS = ['41', '42', '43', '44'];
 
 async function tonight() {
@@ -33,13 +34,20 @@ beforeAll(async () => {
   await addBuses(app.db, org.organisationId, depotId, NUMBERS);
   for (const date of ['2026-12-09', '2026-12-10']) {
     // Low arrivals: every bus needs a long charge, so all three chargers work through the night.
-    await app.request().put(`/api/depots/${depotId}/service-days/${date}`).set(as(sup)).send({ runs: dayRuns(date, NUMBERS, () => 16) }).expect(200);
+    await app
+      .request()
+      .put(`/api/depots/${depotId}/service-days/${date}`)
+      .set(as(sup))
+      .send({ runs: dayRuns(date, NUMBERS, () => 16) })
+      .expect(200);
   }
   await publishedPlan(app, sup, depotId, '2026-12-09');
   clock = DateTime.fromISO('2026-12-09T23:00', { zone: ZONE }).toJSDate();
   await signInAgain(app, yard, sup);
   const other = await createOrganisation(app, { s: ['supervisor'] });
-  otherDepotBus = (await addBuses(app.db, other.organisationId, (await createDepot(app.db, other.organisationId)).depot.id, ['99']))[0]!.number;
+  otherDepotBus = (
+    await addBuses(app.db, other.organisationId, (await createDepot(app.db, other.organisationId)).depot.id, ['99'])
+  )[0]!.number;
 });
 
 describe('yard: tonight and confirmations', () => {
@@ -54,12 +62,15 @@ describe('yard: tonight and confirmations', () => {
     expect(t.plan.sessions[0]).not.toHaveProperty('kw');
     expect(t.plan).not.toHaveProperty('result');
     expect(t.plan).not.toHaveProperty('notes');
-    for (const s of t.steps) expect(s.status).toBe(Date.parse(s.at) + 600_000 < clock.getTime() ? 'overdue' : 'upcoming');
+    for (const s of t.steps)
+      expect(s.status).toBe(Date.parse(s.at) + 600_000 < clock.getTime() ? 'overdue' : 'upcoming');
   });
 
   it('a confirmation sent twice is stored once', async () => {
     const t = await tonight();
-    const step = t.steps.find((s: { action: string; at: string }) => s.action === 'connect' && Date.parse(s.at) < clock.getTime());
+    const step = t.steps.find(
+      (s: { action: string; at: string }) => s.action === 'connect' && Date.parse(s.at) < clock.getTime(),
+    );
     const body = { planId: t.plan.id, stepKey: step.key };
     const [a, b] = await Promise.all([
       app.request().post('/api/yard/confirmations').set(as(yard)).send(body),
@@ -87,11 +98,17 @@ describe('yard: reports re-plan the rest of the night', () => {
     const prev = await planResult(before.plan.id);
     const cut = clock.getTime();
     const charger = prev.sessions.find((s) => Date.parse(s.end) > cut && s.kw.some((k) => k > 0))!.charger;
-    const res = await app.request().post(`/api/depots/${depotId}/tonight/reports`).set(as(yard))
-      .send({ planId: before.plan.id, kind: 'charger_out', charger, reason: 'Connector latch broken' }).expect(201);
+    const res = await app
+      .request()
+      .post(`/api/depots/${depotId}/tonight/reports`)
+      .set(as(yard))
+      .send({ planId: before.plan.id, kind: 'charger_out', charger, reason: 'Connector latch broken' })
+      .expect(201);
     expect(res.body.revision).toMatchObject({ kind: 'revision', state: 'published', version: 2 });
     expect(before.plan.revisionNote).toBeNull();
-    expect((await tonight()).plan.revisionNote).toBe(`Revised at 23:00: charger ${charger} out of service (Connector latch broken).`);
+    expect((await tonight()).plan.revisionNote).toBe(
+      `Revised at 23:00: charger ${charger} out of service (Connector latch broken).`,
+    );
     const [row] = await app.db.select().from(plans).where(eq(plans.id, res.body.revision.id));
     const next = row!.result!;
     for (const s of next.sessions.filter((x) => x.charger === charger)) {
@@ -103,16 +120,23 @@ describe('yard: reports re-plan the rest of the night', () => {
     for (const bus of Object.keys(a)) expect(b[bus] ?? 0).toBeCloseTo(a[bus]!, 6);
     // The old version is superseded; the charger is out of service in the Depot.
     const depot = await app.request().get(`/api/depots/${depotId}`).set(as(yard)).expect(200);
-    expect(depot.body.depot.chargers.find((c: { label: string }) => c.label === charger)).toMatchObject({ status: 'out_of_service', statusReason: 'Connector latch broken' });
+    expect(depot.body.depot.chargers.find((c: { label: string }) => c.label === charger)).toMatchObject({
+      status: 'out_of_service',
+      statusReason: 'Connector latch broken',
+    });
     const [mail] = await mailFor(yard.email);
     expect(mail!.subject).toMatch(/Plan revised at 23:00: Test depot \(version 2\)/);
     // How many buses moved, and why, as the engine counts them.
-    expect(mail!.text).toMatch(new RegExp(`\\d+ bus(es)? moved from the cut-off on, because: charger ${charger} out of service: \\d+ bus`));
+    expect(mail!.text).toMatch(
+      new RegExp(`\\d+ bus(es)? moved from the cut-off on, because: charger ${charger} out of service: \\d+ bus`),
+    );
     // Each recipient's link opens a page their role can use: the Yard at that night, the review.
     expect(mail!.text).toContain('Open the yard view for that night: http://nightyard.test/yard?night=2026-12-09');
     const [supMail] = await mailFor(sup.email, 2);
     expect(supMail!.subject).toMatch(/Plan revised at 23:00/);
-    expect(supMail!.text).toContain(`Review the plan: http://nightyard.test/plans?date=2026-12-09&plan=${res.body.revision.id}`);
+    expect(supMail!.text).toContain(
+      `Review the plan: http://nightyard.test/plans?date=2026-12-09&plan=${res.body.revision.id}`,
+    );
     expect(supMail!.text).not.toContain('/yard');
   });
 
@@ -124,8 +148,12 @@ describe('yard: reports re-plan the rest of the night', () => {
     const cut = clock.getTime();
     // A bus with charging still to come after the cut-off.
     const bus = prev.sessions.find((s) => Date.parse(s.end) > cut)!.bus;
-    const res = await app.request().post(`/api/depots/${depotId}/tonight/reports`).set(as(yard))
-      .send({ planId: before.plan.id, kind: 'bus_late', bus, expectedAt: '2026-12-10T01:30' }).expect(201);
+    const res = await app
+      .request()
+      .post(`/api/depots/${depotId}/tonight/reports`)
+      .set(as(yard))
+      .send({ planId: before.plan.id, kind: 'bus_late', bus, expectedAt: '2026-12-10T01:30' })
+      .expect(201);
     const [row] = await app.db.select().from(plans).where(eq(plans.id, res.body.revision.id));
     const next = row!.result!;
     const newTime = DateTime.fromISO('2026-12-10T01:30', { zone: ZONE }).toMillis();
@@ -139,16 +167,33 @@ describe('yard: reports re-plan the rest of the night', () => {
     const n = await count();
     const current = await tonight();
     const [first] = await app.db.select().from(plans).where(eq(plans.depotId, depotId)).orderBy(plans.version).limit(1);
-    const stale = await app.request().post(`/api/depots/${depotId}/tonight/reports`).set(as(yard))
-      .send({ planId: first!.id, kind: 'soc_reading', bus: '41', socPct: 50 }).expect(409);
+    const stale = await app
+      .request()
+      .post(`/api/depots/${depotId}/tonight/reports`)
+      .set(as(yard))
+      .send({ planId: first!.id, kind: 'soc_reading', bus: '41', socPct: 50 })
+      .expect(409);
     expect(stale.body.error.message).toMatch(/replaced by version 3: reload/);
-    const soc = await app.request().post(`/api/depots/${depotId}/tonight/reports`).set(as(yard))
-      .send({ planId: current.plan.id, kind: 'soc_reading', bus: '41', socPct: 120 }).expect(400);
+    const soc = await app
+      .request()
+      .post(`/api/depots/${depotId}/tonight/reports`)
+      .set(as(yard))
+      .send({ planId: current.plan.id, kind: 'soc_reading', bus: '41', socPct: 120 })
+      .expect(400);
     expect(soc.body.error.fields.socPct).toBe('A state of charge is 0 to 100 %');
-    const foreign = await app.request().post(`/api/depots/${depotId}/tonight/reports`).set(as(yard))
-      .send({ planId: current.plan.id, kind: 'bus_absent', bus: otherDepotBus }).expect(400);
+    const foreign = await app
+      .request()
+      .post(`/api/depots/${depotId}/tonight/reports`)
+      .set(as(yard))
+      .send({ planId: current.plan.id, kind: 'bus_absent', bus: otherDepotBus })
+      .expect(400);
     expect(foreign.body.error.message).toMatch(/Bus 99 is not in tonight's plan/);
-    const oldStep = await app.request().post('/api/yard/confirmations').set(as(yard)).send({ planId: first!.id, stepKey: 'x' }).expect(409);
+    const oldStep = await app
+      .request()
+      .post('/api/yard/confirmations')
+      .set(as(yard))
+      .send({ planId: first!.id, stepKey: 'x' })
+      .expect(409);
     expect(oldStep.body.error.message).toMatch(/replaced by version 3/);
     expect(await count()).toBe(n);
   });
@@ -157,8 +202,12 @@ describe('yard: reports re-plan the rest of the night', () => {
     clock = DateTime.fromISO('2026-12-09T23:45', { zone: ZONE }).toJSDate();
     await signInAgain(app, yard, sup);
     const current = await tonight();
-    const res = await app.request().post(`/api/depots/${depotId}/tonight/reports`).set(as(yard))
-      .send({ planId: current.plan.id, kind: 'soc_reading', bus: '42', socPct: 88 }).expect(201);
+    const res = await app
+      .request()
+      .post(`/api/depots/${depotId}/tonight/reports`)
+      .set(as(yard))
+      .send({ planId: current.plan.id, kind: 'soc_reading', bus: '42', socPct: 88 })
+      .expect(201);
     expect(res.body.revision.version).toBe(4);
     expect(res.body.replanMs).toBeGreaterThan(0);
     const after = await tonight();
@@ -170,16 +219,30 @@ describe('yard: reports re-plan the rest of the night', () => {
     const depot = (await createDepot(app.db, org.organisationId)).depot.id;
     await addBuses(app.db, org.organisationId, depot, ['61', '62']);
     for (const date of ['2026-12-21', '2026-12-22']) {
-      await app.request().put(`/api/depots/${depot}/service-days/${date}`).set(as(org.users.s!)).send({ runs: dayRuns(date, ['61', '62'], () => 20) }).expect(200);
+      await app
+        .request()
+        .put(`/api/depots/${depot}/service-days/${date}`)
+        .set(as(org.users.s!))
+        .send({ runs: dayRuns(date, ['61', '62'], () => 20) })
+        .expect(200);
     }
     await publishedPlan(app, org.users.s!, depot, '2026-12-21');
     const t = (await app.request().get(`/api/depots/${depot}/tonight`).set(as(org.users.y!)).expect(200)).body;
     expect(t.plan.horizon.start).toBeGreaterThan(clock.getTime());
-    expect(t.plan.horizon.start).toBe(Date.parse((await app.request().get(`/api/plans/${t.plan.id}`).set(as(org.users.y!)).expect(200)).body.plan.result.slots[0]!.start));
-    const res = await app.request().post(`/api/depots/${depot}/tonight/reports`).set(as(org.users.y!))
-      .send({ planId: t.plan.id, kind: 'charger_out', charger: 'A', reason: 'Cable worn' }).expect(201);
+    expect(t.plan.horizon.start).toBe(
+      Date.parse(
+        (await app.request().get(`/api/plans/${t.plan.id}`).set(as(org.users.y!)).expect(200)).body.plan.result
+          .slots[0]!.start,
+      ),
+    );
+    const res = await app
+      .request()
+      .post(`/api/depots/${depot}/tonight/reports`)
+      .set(as(org.users.y!))
+      .send({ planId: t.plan.id, kind: 'charger_out', charger: 'A', reason: 'Cable worn' })
+      .expect(201);
     const [row] = await app.db.select().from(plans).where(eq(plans.id, res.body.revision.id));
-    expect((row!.result!).sessions.filter((s) => s.charger === 'A')).toEqual([]);
+    expect(row!.result!.sessions.filter((s) => s.charger === 'A')).toEqual([]);
   });
 
   it('roles', async () => {

@@ -5,7 +5,8 @@ export type JsonPath = (string | number)[];
 /** Every path in a JSON value, the value itself and each container included. */
 export function leafPaths(value: unknown, at: JsonPath = []): JsonPath[] {
   if (Array.isArray(value)) return [at, ...value.flatMap((v, i) => leafPaths(v, [...at, i]))];
-  if (value && typeof value === 'object') return [at, ...Object.entries(value).flatMap(([k, v]) => leafPaths(v, [...at, k]))];
+  if (value && typeof value === 'object')
+    return [at, ...Object.entries(value).flatMap(([k, v]) => leafPaths(v, [...at, k]))];
   return [at];
 }
 

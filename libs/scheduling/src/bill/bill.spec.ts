@@ -16,7 +16,16 @@ describe('bill engine against published worked examples', () => {
     // handbook's $262.34 / 30 kW; energy and adjustment are one flat price here.
     const def = ratePlanDefinitionSchema.parse({
       currency: 'USD',
-      seasons: [{ name: 'All year', fromMonth: 1, toMonth: 12, offPeakPrice: 0.09444 - 0.017192, facilityDemandCharge: 262.34 / 30, periods: [] }],
+      seasons: [
+        {
+          name: 'All year',
+          fromMonth: 1,
+          toMonth: 12,
+          offPeakPrice: 0.09444 - 0.017192,
+          facilityDemandCharge: 262.34 / 30,
+          periods: [],
+        },
+      ],
       fixedCharges: [{ name: 'Customer charge', amount: 3.74, per: 'month' }],
     });
     // 30 June days of 15-minute intervals: one interval at 30 kW (7.5 kWh), the rest share the remainder.
@@ -36,9 +45,15 @@ describe('bill engine against published worked examples', () => {
   it('demand from interval data: 150 kWh in 30 minutes is 300 kW; at $12.50/kW-month, $3,750 (common practice)', () => {
     const def = ratePlanDefinitionSchema.parse({
       currency: 'USD',
-      seasons: [{ name: 'All year', fromMonth: 1, toMonth: 12, offPeakPrice: 0, facilityDemandCharge: 12.5, periods: [] }],
+      seasons: [
+        { name: 'All year', fromMonth: 1, toMonth: 12, offPeakPrice: 0, facilityDemandCharge: 12.5, periods: [] },
+      ],
     });
-    const bill = computeBill(def, series('2026-03-02T10:00', 30, [100, 150, 120]), { zone: ZONE, intervalMinutes: 30, days: 31 });
+    const bill = computeBill(def, series('2026-03-02T10:00', 30, [100, 150, 120]), {
+      zone: ZONE,
+      intervalMinutes: 30,
+      days: 31,
+    });
     expect(bill.demand[0]!.quantity).toBe(300);
     expect(bill.demandTotal).toBe(3_750);
   });
@@ -47,10 +62,23 @@ describe('bill engine against published worked examples', () => {
 describe('bill engine', () => {
   const tou = ratePlanDefinitionSchema.parse({
     currency: 'USD',
-    seasons: [{
-      name: 'Winter', fromMonth: 1, toMonth: 12, offPeakPrice: 0.07, facilityDemandCharge: 7.5,
-      periods: [{ name: 'on-peak', price: 0.18, demandCharge: 9, windows: [{ dayTypes: ['weekday'], from: '16:00', to: '20:00' }] }],
-    }],
+    seasons: [
+      {
+        name: 'Winter',
+        fromMonth: 1,
+        toMonth: 12,
+        offPeakPrice: 0.07,
+        facilityDemandCharge: 7.5,
+        periods: [
+          {
+            name: 'on-peak',
+            price: 0.18,
+            demandCharge: 9,
+            windows: [{ dayTypes: ['weekday'], from: '16:00', to: '20:00' }],
+          },
+        ],
+      },
+    ],
     fixedCharges: [{ name: 'Meter', amount: 1.5, per: 'day' }],
   });
 
@@ -85,7 +113,9 @@ describe('bill engine', () => {
     const day = Array.from({ length: 100 }, (_, i) => ({ startMs: t0 + i * 900_000, kwh: 1 }));
     const bill = computeBill(tou, day, { zone: ZONE, intervalMinutes: 15, days: 1 });
     // Sunday: no on-peak; 100 kWh all off-peak.
-    expect(bill.energy.map((l) => ({ ...l, amount: toCents(l.amount) }))).toEqual([{ name: 'Energy, off-peak', quantity: 100, unit: 'kWh', rate: 0.07, amount: 7 }]);
+    expect(bill.energy.map((l) => ({ ...l, amount: toCents(l.amount) }))).toEqual([
+      { name: 'Energy, off-peak', quantity: 100, unit: 'kWh', rate: 0.07, amount: 7 },
+    ]);
   });
 });
 
@@ -96,15 +126,28 @@ describe('tiered energy, demand ratchets and minimum bills', () => {
   // day (its state and county taxes are left out). The bills below are worked by hand from it.
   const blocked = ratePlanDefinitionSchema.parse({
     currency: 'USD',
-    seasons: [{
-      name: 'All year', fromMonth: 1, toMonth: 12, offPeakPrice: 0.0382, periods: [],
-      energyBlocks: [{ uptoKwh: 300, adder: 0 }, { uptoKwh: null, adder: 0.0673 - 0.0382 }],
-    }],
+    seasons: [
+      {
+        name: 'All year',
+        fromMonth: 1,
+        toMonth: 12,
+        offPeakPrice: 0.0382,
+        periods: [],
+        energyBlocks: [
+          { uptoKwh: 300, adder: 0 },
+          { uptoKwh: null, adder: 0.0673 - 0.0382 },
+        ],
+      },
+    ],
     minimumCharge: { amount: 0.15, per: 'day' },
   });
   const month = (totalKwh: number) => {
     const n = 30 * 96;
-    return series('2026-06-01T00:00', 15, Array.from({ length: n }, () => totalKwh / n));
+    return series(
+      '2026-06-01T00:00',
+      15,
+      Array.from({ length: n }, () => totalKwh / n),
+    );
   };
 
   it('1,000 kWh in a 30-day month: 300 x $0.0382 + 700 x $0.0673 = $11.46 + $47.11 = $58.57, above the $4.50 minimum', () => {
@@ -133,7 +176,13 @@ describe('tiered energy, demand ratchets and minimum bills', () => {
   });
 
   it('blocks count from the kWh already used earlier in the period', () => {
-    const bill = computeBill(blocked, series('2026-06-10T00:00', 15, [50, 50]), { zone: ZONE, intervalMinutes: 15, days: 30, kwhBefore: 250, withoutFixed: true });
+    const bill = computeBill(blocked, series('2026-06-10T00:00', 15, [50, 50]), {
+      zone: ZONE,
+      intervalMinutes: 15,
+      days: 30,
+      kwhBefore: 250,
+      withoutFixed: true,
+    });
     expect(bill.energy.find((l) => l.name === 'Energy above 300 kWh')!.quantity).toBeCloseTo(50, 9);
   });
 
@@ -143,13 +192,18 @@ describe('tiered energy, demand ratchets and minimum bills', () => {
   // billed for a minimum of 800 kW during the next 11 months".
   const ratcheted = ratePlanDefinitionSchema.parse({
     currency: 'USD',
-    seasons: [{ name: 'All year', fromMonth: 1, toMonth: 12, offPeakPrice: 0.05, facilityDemandCharge: 10, periods: [] }],
+    seasons: [
+      { name: 'All year', fromMonth: 1, toMonth: 12, offPeakPrice: 0.05, facilityDemandCharge: 10, periods: [] },
+    ],
     demandRatchet: { percent: 80, months: 11 },
   });
 
   it('PNNL ratchet example: after a 1,000 kW peak a month peaking at 500 kW is billed on 800 kW ($8,000 at $10/kW)', () => {
     const bill = computeBill(ratcheted, series('2026-06-01T00:00', 15, [125, 50]), {
-      zone: ZONE, intervalMinutes: 15, days: 30, ratchetBase: { kw: 1_000, source: 'from meter readings' },
+      zone: ZONE,
+      intervalMinutes: 15,
+      days: 30,
+      ratchetBase: { kw: 1_000, source: 'from meter readings' },
     });
     const facility = bill.demand[0]!;
     expect(facility.quantity).toBe(800);
@@ -160,7 +214,10 @@ describe('tiered energy, demand ratchets and minimum bills', () => {
 
   it('a month above the ratchet is billed on its own peak', () => {
     const bill = computeBill(ratcheted, series('2026-06-01T00:00', 15, [225]), {
-      zone: ZONE, intervalMinutes: 15, days: 30, ratchetBase: { kw: 1_000, source: 'from meter readings' },
+      zone: ZONE,
+      intervalMinutes: 15,
+      days: 30,
+      ratchetBase: { kw: 1_000, source: 'from meter readings' },
     });
     expect(bill.demand[0]!.quantity).toBe(900);
     expect(bill.demand[0]!.note).toBeUndefined();
@@ -170,15 +227,31 @@ describe('tiered energy, demand ratchets and minimum bills', () => {
 describe('peaks recorded earlier in the period (entered in Depot)', () => {
   const tou = ratePlanDefinitionSchema.parse({
     currency: 'USD',
-    seasons: [{
-      name: 'Winter', fromMonth: 1, toMonth: 12, offPeakPrice: 0.07, facilityDemandCharge: 7.5,
-      periods: [{ name: 'on-peak', price: 0.18, demandCharge: 9, windows: [{ dayTypes: ['weekday'], from: '16:00', to: '20:00' }] }],
-    }],
+    seasons: [
+      {
+        name: 'Winter',
+        fromMonth: 1,
+        toMonth: 12,
+        offPeakPrice: 0.07,
+        facilityDemandCharge: 7.5,
+        periods: [
+          {
+            name: 'on-peak',
+            price: 0.18,
+            demandCharge: 9,
+            windows: [{ dayTypes: ['weekday'], from: '16:00', to: '20:00' }],
+          },
+        ],
+      },
+    ],
   });
 
   it('an on-peak peak of 48 kW entered bills 48 kW although the intervals reach only 40 kW', () => {
     const bill = computeBill(tou, series('2026-12-02T16:00', 15, [10, 10]), {
-      zone: ZONE, intervalMinutes: 15, days: 31, recordedPeaksKw: { facility: 30, periods: { 'on-peak': 48 } },
+      zone: ZONE,
+      intervalMinutes: 15,
+      days: 31,
+      recordedPeaksKw: { facility: 30, periods: { 'on-peak': 48 } },
     });
     const onPeak = bill.demand.find((d) => d.name === 'Demand, on-peak')!;
     expect(onPeak.quantity).toBe(48);

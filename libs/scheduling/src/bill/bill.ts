@@ -98,7 +98,8 @@ export function computeBill(def: RatePlanDefinition, intervals: readonly Interva
         const hi = b.uptoKwh ?? Infinity;
         const inBlock = Math.max(0, Math.min(hi, cumulative + i.kwh) - Math.max(lo, cumulative));
         if (inBlock > 0 && b.adder !== 0) {
-          const name = b.uptoKwh === null ? `Energy above ${kwhText(lo)}` : `Energy from ${kwhText(lo)} to ${kwhText(hi)}`;
+          const name =
+            b.uptoKwh === null ? `Energy above ${kwhText(lo)}` : `Energy from ${kwhText(lo)} to ${kwhText(hi)}`;
           const acc = blocks.get(name) ?? { kwh: 0, amount: 0, rate: b.adder, rates: new Set<number>(), order: k };
           acc.kwh += inBlock;
           acc.amount += inBlock * b.adder;
@@ -110,19 +111,35 @@ export function computeBill(def: RatePlanDefinition, intervals: readonly Interva
     }
     if (i.kwh > 0) cumulative += i.kwh;
     if (kw > facility.kw) facility = { kw, at: i.startMs, rate: season.facilityDemandCharge };
-    if (facility.at === null && season.facilityDemandCharge > facility.rate) facility.rate = season.facilityDemandCharge;
+    if (facility.at === null && season.facilityDemandCharge > facility.rate)
+      facility.rate = season.facilityDemandCharge;
     if (!p.offPeak && p.demandCharge > 0) {
       const cur = periodPeak.get(p.period) ?? { kw: 0, at: null, rate: p.demandCharge };
-      if (kw > cur.kw || !periodPeak.has(p.period)) periodPeak.set(p.period, kw > cur.kw ? { kw, at: i.startMs, rate: p.demandCharge } : cur);
+      if (kw > cur.kw || !periodPeak.has(p.period))
+        periodPeak.set(p.period, kw > cur.kw ? { kw, at: i.startMs, rate: p.demandCharge } : cur);
     }
   }
   const averaged = (e: { kwh: number; amount: number; rate: number; rates: Set<number> }) =>
     // Several prices under one name (a season change): show the average price paid.
     e.rates.size === 1 || e.kwh === 0 ? e.rate : e.amount / e.kwh;
   const energyLines: BillLine[] = [
-    ...[...energy].map(([name, e]): BillLine => ({ name: `Energy, ${name}`, quantity: e.kwh, unit: 'kWh', rate: averaged(e), amount: e.amount })),
-    ...[...blocks].sort((a, b) => a[1].order - b[1].order)
-      .map(([name, e]): BillLine => ({ name, quantity: e.kwh, unit: 'kWh', rate: averaged(e), amount: e.amount, note: 'Price change per kWh of this block of the period\'s energy' })),
+    ...[...energy].map(([name, e]): BillLine => ({
+      name: `Energy, ${name}`,
+      quantity: e.kwh,
+      unit: 'kWh',
+      rate: averaged(e),
+      amount: e.amount,
+    })),
+    ...[...blocks]
+      .sort((a, b) => a[1].order - b[1].order)
+      .map(([name, e]): BillLine => ({
+        name,
+        quantity: e.kwh,
+        unit: 'kWh',
+        rate: averaged(e),
+        amount: e.amount,
+        note: "Price change per kWh of this block of the period's energy",
+      })),
   ];
   const soFar = opts.peaksSoFarKw ?? {};
   const recorded = opts.recordedPeaksKw ?? {};
@@ -144,7 +161,15 @@ export function computeBill(def: RatePlanDefinition, intervals: readonly Interva
       note = `Demand ratchet: ${ratchet.percent} % of ${kwText(opts.ratchetBase.kw)}, the highest demand of the previous ${ratchet.months} months (${opts.ratchetBase.source})`;
     }
     const q = chargeable(kw, soFar.facility);
-    demandLines.push({ name: 'Facility demand', quantity: q, unit: 'kW', rate: facility.rate, amount: q * facility.rate, peakAt: at, ...(note ? { note } : {}) });
+    demandLines.push({
+      name: 'Facility demand',
+      quantity: q,
+      unit: 'kW',
+      rate: facility.rate,
+      amount: q * facility.rate,
+      peakAt: at,
+      ...(note ? { note } : {}),
+    });
   }
   for (const [name, peak] of periodPeak) {
     let kw = peak.kw;
@@ -157,7 +182,15 @@ export function computeBill(def: RatePlanDefinition, intervals: readonly Interva
       note = `Peak recorded by the utility's meter earlier in the period (entered in Depot): ${kwText(kw)}`;
     }
     const q = chargeable(kw, soFar.periods?.[name]);
-    demandLines.push({ name: `Demand, ${name}`, quantity: q, unit: 'kW', rate: peak.rate, amount: q * peak.rate, peakAt: at, ...(note ? { note } : {}) });
+    demandLines.push({
+      name: `Demand, ${name}`,
+      quantity: q,
+      unit: 'kW',
+      rate: peak.rate,
+      amount: q * peak.rate,
+      peakAt: at,
+      ...(note ? { note } : {}),
+    });
   }
   const fixedLines: BillLine[] = opts.withoutFixed
     ? []
@@ -178,7 +211,11 @@ export function computeBill(def: RatePlanDefinition, intervals: readonly Interva
     const before = energyTotal + demandTotal + sum(fixedLines);
     if (floor > before) {
       fixedLines.push({
-        name: 'Minimum bill top-up', quantity, unit: min.per, rate: min.amount, amount: floor - before,
+        name: 'Minimum bill top-up',
+        quantity,
+        unit: min.per,
+        rate: min.amount,
+        amount: floor - before,
         note: `The bill is at least the minimum of ${floor.toFixed(2)} ${def.currency}`,
       });
     }
@@ -202,7 +239,10 @@ export function computeBill(def: RatePlanDefinition, intervals: readonly Interva
  * period is billed several ways over the same ~3,000 intervals (projected, to date, with the
  * plans, with the baselines), and the zone arithmetic is most of a bill's work.
  */
-const classified = new WeakMap<RatePlanDefinition, Map<string, Map<number, { p: ReturnType<typeof ratePlanPeriodAt>; season: ReturnType<typeof seasonOf> }>>>();
+const classified = new WeakMap<
+  RatePlanDefinition,
+  Map<string, Map<number, { p: ReturnType<typeof ratePlanPeriodAt>; season: ReturnType<typeof seasonOf> }>>
+>();
 const MAX_REMEMBERED = 20_000;
 
 function classifier(def: RatePlanDefinition, zone: string) {
@@ -228,14 +268,19 @@ function classifier(def: RatePlanDefinition, zone: string) {
  * demand charges on any increase over those peaks. Fixed charges are not affected by a night.
  */
 export function nightMarginalCost(
-  def: RatePlanDefinition, intervals: readonly IntervalDemand[],
+  def: RatePlanDefinition,
+  intervals: readonly IntervalDemand[],
   opts: Omit<BillOptions, 'days' | 'withoutFixed'>,
 ): Bill {
   return computeBill(def, intervals, { ...opts, days: 0, withoutFixed: true });
 }
 
 /** The highest demand so far, facility and per period, from interval data (for peaks so far). */
-export function peaksOf(def: RatePlanDefinition, intervals: readonly IntervalDemand[], opts: { zone: string; intervalMinutes: number }) {
+export function peaksOf(
+  def: RatePlanDefinition,
+  intervals: readonly IntervalDemand[],
+  opts: { zone: string; intervalMinutes: number },
+) {
   const bill = computeBill(def, intervals, { ...opts, days: 0, withoutFixed: true });
   const hours = opts.intervalMinutes / 60;
   let facility = { kw: 0, at: null as number | null };

@@ -7,13 +7,28 @@ import { previewDay } from './rate-preview';
 const plan = ratePlanDefinitionSchema.parse({
   currency: 'USD',
   holidays: ['2026-12-25'],
-  seasons: [{
-    name: 'All year', fromMonth: 1, toMonth: 12, offPeakPrice: 0.07, facilityDemandCharge: 5,
-    periods: [
-      { name: 'on-peak', price: 0.25, demandCharge: 10, windows: [{ dayTypes: ['weekday'], from: '16:00', to: '21:00' }] },
-      { name: 'super-off-peak', price: 0.03, windows: [{ dayTypes: ['weekday', 'weekend'], from: '23:00', to: '05:00' }] },
-    ],
-  }],
+  seasons: [
+    {
+      name: 'All year',
+      fromMonth: 1,
+      toMonth: 12,
+      offPeakPrice: 0.07,
+      facilityDemandCharge: 5,
+      periods: [
+        {
+          name: 'on-peak',
+          price: 0.25,
+          demandCharge: 10,
+          windows: [{ dayTypes: ['weekday'], from: '16:00', to: '21:00' }],
+        },
+        {
+          name: 'super-off-peak',
+          price: 0.03,
+          windows: [{ dayTypes: ['weekday', 'weekend'], from: '23:00', to: '05:00' }],
+        },
+      ],
+    },
+  ],
 });
 
 describe('tariff calendar', () => {
@@ -44,17 +59,28 @@ describe('tariff calendar', () => {
   it('rejects overlapping windows and uncovered months, naming the field', () => {
     const bad = ratePlanDefinitionSchema.safeParse({
       currency: 'USD',
-      seasons: [{
-        name: 'Summer', fromMonth: 6, toMonth: 9, offPeakPrice: 0.1,
-        periods: [
-          { name: 'a', price: 0.2, windows: [{ dayTypes: ['weekday'], from: '22:00', to: '02:00' }] },
-          { name: 'b', price: 0.3, windows: [{ dayTypes: ['weekday'], from: '01:00', to: '03:00' }] },
-        ],
-      }],
+      seasons: [
+        {
+          name: 'Summer',
+          fromMonth: 6,
+          toMonth: 9,
+          offPeakPrice: 0.1,
+          periods: [
+            { name: 'a', price: 0.2, windows: [{ dayTypes: ['weekday'], from: '22:00', to: '02:00' }] },
+            { name: 'b', price: 0.3, windows: [{ dayTypes: ['weekday'], from: '01:00', to: '03:00' }] },
+          ],
+        },
+      ],
     });
     expect(bad.success).toBe(false);
     const issues = bad.error!.issues.map((i) => [i.path.join('.'), i.message]);
-    expect(issues).toContainEqual(['seasons.0.periods.1.windows.0', 'Overlaps "a" 22:00-02:00 on weekdays from 01:00 to 02:00']);
-    expect(issues).toContainEqual(['seasons', 'No season covers January, February, March, April, May, October, November, December']);
+    expect(issues).toContainEqual([
+      'seasons.0.periods.1.windows.0',
+      'Overlaps "a" 22:00-02:00 on weekdays from 01:00 to 02:00',
+    ]);
+    expect(issues).toContainEqual([
+      'seasons',
+      'No season covers January, February, March, April, May, October, November, December',
+    ]);
   });
 });

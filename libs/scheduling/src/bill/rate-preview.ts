@@ -11,7 +11,8 @@ export function previewDay(def: RatePlanDefinition, isoDate: string, zone: strin
     const end = (slots[i + 1]?.start ?? s.start.startOf('day').plus({ days: 1 })).toISO()!;
     const last = intervals.at(-1);
     if (last && last.period === s.period && last.price === s.price) last.end = end;
-    else intervals.push({ start: s.start.toISO()!, end, period: s.period, price: s.price, demandCharge: s.demandCharge });
+    else
+      intervals.push({ start: s.start.toISO()!, end, period: s.period, price: s.price, demandCharge: s.demandCharge });
   }
   const day = DateTime.fromISO(isoDate, { zone });
   const season = seasonOf(def, day.month);

@@ -20,13 +20,29 @@ const SLOT_MS = 15 * 60_000;
 /** The generated depots' tariff (generate-depot.ts) as a rate plan for the bill engine, plus a customer charge. */
 const RATE = ratePlanDefinitionSchema.parse({
   currency: 'USD',
-  seasons: [{
-    name: 'All year', fromMonth: 1, toMonth: 12, offPeakPrice: 0.09, facilityDemandCharge: 12,
-    periods: [
-      { name: 'on-peak', price: 0.27, demandCharge: 9.5, windows: [{ dayTypes: ['weekday'], from: '16:00', to: '21:00' }] },
-      { name: 'mid-peak', price: 0.14, demandCharge: 0, windows: [{ dayTypes: ['weekday'], from: '07:00', to: '16:00' }] },
-    ],
-  }],
+  seasons: [
+    {
+      name: 'All year',
+      fromMonth: 1,
+      toMonth: 12,
+      offPeakPrice: 0.09,
+      facilityDemandCharge: 12,
+      periods: [
+        {
+          name: 'on-peak',
+          price: 0.27,
+          demandCharge: 9.5,
+          windows: [{ dayTypes: ['weekday'], from: '16:00', to: '21:00' }],
+        },
+        {
+          name: 'mid-peak',
+          price: 0.14,
+          demandCharge: 0,
+          windows: [{ dayTypes: ['weekday'], from: '07:00', to: '16:00' }],
+        },
+      ],
+    },
+  ],
   fixedCharges: [{ name: 'Customer charge', amount: 45, per: 'month' }],
 });
 
@@ -45,7 +61,13 @@ async function nightOf(seed: number, buses: number, weeksOn: number): Promise<Ni
   if (!parsed.ok) throw new Error('bad depot');
   const plan = await planScenario(parsed.scenario, { maxMoves: 20 });
   const startMs = DateTime.fromISO(input.start, { zone: ZONE }).plus({ weeks: weeksOn }).toMillis();
-  return { plan, startMs, otherKw: input.site.otherLoadKw as number, limitKw: input.site.limitKw, problem: prepareProblem(parsed.scenario) };
+  return {
+    plan,
+    startMs,
+    otherKw: input.site.otherLoadKw as number,
+    limitKw: input.site.limitKw,
+    problem: prepareProblem(parsed.scenario),
+  };
 }
 
 /** Per-bus charging energy cost from the plan's sessions at the slots' prices (as the API's plan costs count it). */
@@ -92,7 +114,7 @@ describe.each([
   // Three Wednesday nights of January 2026 (14, 21, 28): the same weekday, so the same prices.
   const nights = Promise.all([0, 1, 2].map((k) => nightOf(seed + k, buses + k, k)));
 
-  it('per bus: the buses\' charging costs sum to the night\'s, and their shown cents foot to its shown total', async () => {
+  it("per bus: the buses' charging costs sum to the night's, and their shown cents foot to its shown total", async () => {
     for (const n of await nights) {
       const perBus = [...perBusEnergy(n.plan).values()];
       const sum = perBus.reduce((a, b) => a + b, 0);
@@ -103,11 +125,16 @@ describe.each([
     }
   }, 120_000);
 
-  it('the period: nights\' charging + the building\'s load + demand + fixed = the period\'s bill, and its lines foot', async () => {
+  it("the period: nights' charging + the building's load + demand + fixed = the period's bill, and its lines foot", async () => {
     const ns = await nights;
     const { intervals, otherOnly, days } = period(ns, planCharging, ns[0]!.otherKw);
     const bill = computeBill(RATE, intervals, { zone: ZONE, intervalMinutes: 15, days });
-    const buildingEnergy = computeBill(RATE, otherOnly, { zone: ZONE, intervalMinutes: 15, days, withoutFixed: true }).energyTotal;
+    const buildingEnergy = computeBill(RATE, otherOnly, {
+      zone: ZONE,
+      intervalMinutes: 15,
+      days,
+      withoutFixed: true,
+    }).energyTotal;
     const chargingEnergy = ns.reduce((a, n) => a + [...perBusEnergy(n.plan).values()].reduce((x, y) => x + y, 0), 0);
     expect(bill.energyTotal).toBeCloseTo(chargingEnergy + buildingEnergy, 6);
     expect(bill.fixedTotal).toBe(45);
@@ -118,15 +145,26 @@ describe.each([
     // Shown: sections foot to the total, lines to their sections.
     const sections = footedCents([bill.energyTotal, bill.demandTotal, bill.fixedTotal], toCents(bill.total));
     expect(Math.round(sections.reduce((a, b) => a + b, 0) * 100)).toBe(Math.round(toCents(bill.total) * 100));
-    const energyLines = footedCents(bill.energy.map((l) => l.amount), sections[0]);
+    const energyLines = footedCents(
+      bill.energy.map((l) => l.amount),
+      sections[0],
+    );
     expect(Math.round(energyLines.reduce((a, b) => a + b, 0) * 100)).toBe(Math.round(sections[0]! * 100));
   }, 120_000);
 
-  it('the saving never exceeds the baseline\'s bill, and no baseline passes the service limit', async () => {
+  it("the saving never exceeds the baseline's bill, and no baseline passes the service limit", async () => {
     const ns = await nights;
     const building = ns[0]!.otherKw;
-    const onPlans = computeBill(RATE, period(ns, planCharging, building).intervals, { zone: ZONE, intervalMinutes: 15, days: 31 });
-    const onBaselines = computeBill(RATE, period(ns, baselineCharging, building).intervals, { zone: ZONE, intervalMinutes: 15, days: 31 });
+    const onPlans = computeBill(RATE, period(ns, planCharging, building).intervals, {
+      zone: ZONE,
+      intervalMinutes: 15,
+      days: 31,
+    });
+    const onBaselines = computeBill(RATE, period(ns, baselineCharging, building).intervals, {
+      zone: ZONE,
+      intervalMinutes: 15,
+      days: 31,
+    });
     const saving = onBaselines.total - onPlans.total;
     expect(saving).toBeLessThanOrEqual(onBaselines.total);
     // Nor can it exceed what charging costs under the baseline: the building and the fixed charges are in both bills.
@@ -135,7 +173,9 @@ describe.each([
       for (const kind of ['arrival', 'timer'] as const) {
         const b = n.plan.baselines[kind];
         expect(b.peakKw).toBeLessThanOrEqual(n.limitKw + 1e-6);
-        b.chargingKw.forEach((kw, t) => expect(kw + n.problem.slots[t]!.otherKw).toBeLessThanOrEqual(n.problem.slots[t]!.limitKw + 1e-6));
+        b.chargingKw.forEach((kw, t) =>
+          expect(kw + n.problem.slots[t]!.otherKw).toBeLessThanOrEqual(n.problem.slots[t]!.limitKw + 1e-6),
+        );
       }
     }
   }, 120_000);

@@ -1,6 +1,15 @@
 import { DateTime } from 'luxon';
 import { describe, expect, it } from 'vitest';
-import { calendarNight, nightAmong, nightAt, nightsOfDays, serviceDayAt, serviceDayTimes, serviceNights, type RunTimes } from './service-night';
+import {
+  calendarNight,
+  nightAmong,
+  nightAt,
+  nightsOfDays,
+  serviceDayAt,
+  serviceDayTimes,
+  serviceNights,
+  type RunTimes,
+} from './service-night';
 
 const ZONE = 'America/Chicago';
 const at = (local: string) => DateTime.fromISO(local, { zone: ZONE }).toJSDate();
@@ -9,7 +18,11 @@ const local = (isoInstant: string) => DateTime.fromISO(isoInstant, { zone: ZONE 
 /** School days (Mon-Fri) from `from` to `to`: bus A 06:00-08:30 and 14:30-16:45, bus B 07:00-09:15 and 15:00-17:30. */
 function schoolRuns(from: string, to: string, skip: string[] = []): RunTimes[] {
   const out: RunTimes[] = [];
-  for (let d = DateTime.fromISO(from, { zone: ZONE }); d <= DateTime.fromISO(to, { zone: ZONE }); d = d.plus({ days: 1 })) {
+  for (
+    let d = DateTime.fromISO(from, { zone: ZONE });
+    d <= DateTime.fromISO(to, { zone: ZONE });
+    d = d.plus({ days: 1 })
+  ) {
     const date = d.toISODate()!;
     if (d.weekday > 5 || skip.includes(date)) continue;
     const t = (hhmm: string) => at(`${date}T${hhmm}`);
@@ -26,7 +39,7 @@ function schoolRuns(from: string, to: string, skip: string[] = []): RunTimes[] {
 describe('service night', () => {
   const runs = schoolRuns('2026-12-07', '2026-12-18');
 
-  it('runs from the first pull-in of a day to the last bus\'s first pull-out of the next', () => {
+  it("runs from the first pull-in of a day to the last bus's first pull-out of the next", () => {
     const nights = serviceNights(runs, ZONE);
     const wed = nights.find((n) => n.serviceDate === '2026-12-09')!;
     expect(local(wed.start)).toBe('2026-12-09T08:30');
@@ -34,14 +47,14 @@ describe('service night', () => {
     expect(wed).toMatchObject({ nextServiceDate: '2026-12-10', fromRuns: true });
   });
 
-  it('a weekday afternoon (15:00) is in that day\'s night', () => {
+  it("a weekday afternoon (15:00) is in that day's night", () => {
     const n = nightAt(runs, ZONE, at('2026-12-09T15:00'));
     expect(n.inForce?.serviceDate).toBe('2026-12-09');
     expect(n.tonight.serviceDate).toBe('2026-12-09');
     expect(n.next.serviceDate).toBe('2026-12-10');
   });
 
-  it('just after midnight (Wednesday 00:02) the night in progress is Tuesday\'s, not the coming evening', () => {
+  it("just after midnight (Wednesday 00:02) the night in progress is Tuesday's, not the coming evening", () => {
     const n = nightAt(runs, ZONE, at('2026-12-09T00:02'));
     expect(n.inForce?.serviceDate).toBe('2026-12-08');
     expect(n.tonight.serviceDate).toBe('2026-12-08');
@@ -57,7 +70,7 @@ describe('service night', () => {
     expect(between.tonight.serviceDate).toBe('2026-12-09');
   });
 
-  it('Friday night (22:00) runs to Monday\'s pull-outs', () => {
+  it("Friday night (22:00) runs to Monday's pull-outs", () => {
     const n = nightAt(runs, ZONE, at('2026-12-11T22:00'));
     expect(n.inForce).toMatchObject({ serviceDate: '2026-12-11', nextServiceDate: '2026-12-14' });
     expect(local(n.inForce!.end)).toBe('2026-12-14T07:00');
@@ -70,7 +83,7 @@ describe('service night', () => {
     expect(n.inForce).toMatchObject({ serviceDate: '2026-12-09', nextServiceDate: '2026-12-11' });
   });
 
-  it('autumn clock change: 01:30 (first occurrence) on 2026-11-01 is in Friday\'s night, which lasts 25 h more', () => {
+  it("autumn clock change: 01:30 (first occurrence) on 2026-11-01 is in Friday's night, which lasts 25 h more", () => {
     const dst = schoolRuns('2026-10-26', '2026-11-06');
     // The first 01:30 is still CDT (-05:00): written as an instant, not a wall time, which is ambiguous.
     const first = DateTime.fromISO('2026-11-01T01:30:00-05:00', { zone: ZONE });
@@ -83,7 +96,7 @@ describe('service night', () => {
     expect((Date.parse(n.inForce!.end) - Date.parse(n.inForce!.start)) / 3_600_000).toBe(71.5);
   });
 
-  it('spring clock change: 03:30 on 2027-03-14 is in Friday\'s night, one hour shorter', () => {
+  it("spring clock change: 03:30 on 2027-03-14 is in Friday's night, one hour shorter", () => {
     const dst = schoolRuns('2027-03-08', '2027-03-19');
     const n = nightAt(dst, ZONE, at('2027-03-14T03:30'));
     expect(n.inForce).toMatchObject({ serviceDate: '2027-03-12', nextServiceDate: '2027-03-15' });

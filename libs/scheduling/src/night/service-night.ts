@@ -55,7 +55,13 @@ const iso = (t: number, zone: string) => DateTime.fromMillis(t, { zone }).toISO(
 export function calendarNight(date: string, zone: string): ServiceNight {
   const start = DateTime.fromISO(date, { zone }).set({ hour: CALENDAR_HOUR });
   const end = start.plus({ days: 1 });
-  return { serviceDate: date, nextServiceDate: end.toISODate()!, start: start.toISO({ suppressMilliseconds: true })!, end: end.toISO({ suppressMilliseconds: true })!, fromRuns: false };
+  return {
+    serviceDate: date,
+    nextServiceDate: end.toISODate()!,
+    start: start.toISO({ suppressMilliseconds: true })!,
+    end: end.toISO({ suppressMilliseconds: true })!,
+    fromRuns: false,
+  };
 }
 
 /** Each service day's first pull-in and last first pull-out, from its runs. */
@@ -68,7 +74,9 @@ export function serviceDayTimes(runs: readonly RunTimes[]): ServiceDayTimes[] {
     days.set(r.serviceDate, day);
   }
   return [...days].map(([serviceDate, d]) => ({
-    serviceDate, firstPullIn: new Date(d.firstIn), lastFirstPullOut: new Date(Math.max(...d.firstOut.values())),
+    serviceDate,
+    firstPullIn: new Date(d.firstIn),
+    lastFirstPullOut: new Date(Math.max(...d.firstOut.values())),
   }));
 }
 
@@ -86,7 +94,13 @@ export function nightsOfDays(serviceDays: readonly ServiceDayTimes[], zone: stri
       return { ...cal, start: iso(firstIn, zone), end: iso(Math.max(Date.parse(cal.end), firstIn + 3_600_000), zone) };
     }
     const lastOut = ms(next.lastFirstPullOut);
-    return { serviceDate: day.serviceDate, nextServiceDate: next.serviceDate, start: iso(firstIn, zone), end: iso(Math.max(lastOut, firstIn), zone), fromRuns: true };
+    return {
+      serviceDate: day.serviceDate,
+      nextServiceDate: next.serviceDate,
+      start: iso(firstIn, zone),
+      end: iso(Math.max(lastOut, firstIn), zone),
+      fromRuns: true,
+    };
   });
 }
 

@@ -38,7 +38,10 @@ export function generateDepot(options: DepotOptions): ScenarioInput {
   let pending: { id: string; maxKw: number; cabinet?: string } | null = null;
   for (let i = 0; i < nChargers; i++) {
     const maxKw = pick([60, 60, 90, 120, 150]);
-    const charger: { id: string; maxKw: number; cabinet?: string } = { id: `C${String(i + 1).padStart(3, '0')}`, maxKw };
+    const charger: { id: string; maxKw: number; cabinet?: string } = {
+      id: `C${String(i + 1).padStart(3, '0')}`,
+      maxKw,
+    };
     if (options.cabinets !== false && maxKw >= 120) {
       if (pending) {
         const id = `P${cabinets.length + 1}`;
@@ -71,7 +74,13 @@ export function generateDepot(options: DepotOptions): ScenarioInput {
       ceilingKwh: ceiling,
       reserveKwh: reserve,
       taperFromKwh: Math.round(usable * 0.85),
-      stays: [{ arrive: `2026-01-14T${hhmm(pullIn)}`, depart: `2026-01-15T${hhmm(pullOut)}`, departMinKwh: Math.max(need, arrival) }],
+      stays: [
+        {
+          arrive: `2026-01-14T${hhmm(pullIn)}`,
+          depart: `2026-01-15T${hhmm(pullOut)}`,
+          departMinKwh: Math.max(need, arrival),
+        },
+      ],
     });
   }
   const other = Math.round(30 + options.buses * 0.5);
@@ -89,8 +98,18 @@ export function generateDepot(options: DepotOptions): ScenarioInput {
       currency: 'USD',
       offPeakPrice: 0.09,
       periods: [
-        { name: 'on-peak', price: 0.27, demandCharge: 9.5, windows: [{ days: [1, 2, 3, 4, 5], from: '16:00', to: '21:00' }] },
-        { name: 'mid-peak', price: 0.14, demandCharge: 0, windows: [{ days: [1, 2, 3, 4, 5], from: '07:00', to: '16:00' }] },
+        {
+          name: 'on-peak',
+          price: 0.27,
+          demandCharge: 9.5,
+          windows: [{ days: [1, 2, 3, 4, 5], from: '16:00', to: '21:00' }],
+        },
+        {
+          name: 'mid-peak',
+          price: 0.14,
+          demandCharge: 0,
+          windows: [{ days: [1, 2, 3, 4, 5], from: '07:00', to: '16:00' }],
+        },
       ],
       facilityDemandCharge: 12,
       peaksSoFarKw: { facility: Math.round(other * 1.5), 'on-peak': other },

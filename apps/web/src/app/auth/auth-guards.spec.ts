@@ -51,7 +51,8 @@ describe('route guards', () => {
   it('yard staff can open Yard, Tonight, Depot and Rates but not Plans or Costs', async () => {
     await signInAs(['yard']);
     for (const open of ['yard', 'tonight', 'depot', 'rates'] as const) expect(runRoleGuard(open)).toBe(true);
-    for (const closed of ['plans', 'costs', 'fleet'] as const) expect(runRoleGuard(closed)).toBeInstanceOf(RedirectCommand);
+    for (const closed of ['plans', 'costs', 'fleet'] as const)
+      expect(runRoleGuard(closed)).toBeInstanceOf(RedirectCommand);
   });
 
   it('an administrator can open People', async () => {
@@ -69,10 +70,9 @@ describe('route guards', () => {
     const result = TestBed.runInInjectionContext(() =>
       signedInGuard({} as ActivatedRouteSnapshot, { url: '/people/outbox' } as RouterStateSnapshot),
     ) as Promise<UrlTree>;
-    mock.expectOne('/api/auth/refresh').flush(
-      { error: { code: 'unauthenticated', message: 'No' } },
-      { status: 401, statusText: 'Unauthorized' },
-    );
+    mock
+      .expectOne('/api/auth/refresh')
+      .flush({ error: { code: 'unauthenticated', message: 'No' } }, { status: 401, statusText: 'Unauthorized' });
     const tree = await result;
     expect(TestBed.inject(Router).serializeUrl(tree)).toBe('/sign-in?returnUrl=%2Fpeople%2Foutbox');
   });

@@ -34,10 +34,9 @@ export const roleGuard: CanActivateFn = (route) => {
   const key = route.data['section'] as SectionKey | undefined;
   const section = SECTIONS.find((s) => s.key === key);
   if (section && hasAnyRole(store.roles(), section.roles)) return true;
-  return new RedirectCommand(
-    router.createUrlTree(['/not-available'], { queryParams: key ? { section: key } : {} }),
-    { skipLocationChange: true },
-  );
+  return new RedirectCommand(router.createUrlTree(['/not-available'], { queryParams: key ? { section: key } : {} }), {
+    skipLocationChange: true,
+  });
 };
 
 /** The bare address `/` goes to the person's home section. */

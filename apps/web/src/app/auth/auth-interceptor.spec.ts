@@ -101,7 +101,9 @@ describe('authInterceptor', () => {
   it('passes other errors through untouched', async () => {
     await signIn();
     const result = firstValueFrom(http.get('/api/users'));
-    mock.expectOne('/api/users').flush({ error: { code: 'forbidden', message: 'No' } }, { status: 403, statusText: 'Forbidden' });
+    mock
+      .expectOne('/api/users')
+      .flush({ error: { code: 'forbidden', message: 'No' } }, { status: 403, statusText: 'Forbidden' });
     await expect(result).rejects.toMatchObject({ status: 403 });
     mock.expectNone('/api/auth/refresh');
   });

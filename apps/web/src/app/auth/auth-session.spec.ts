@@ -53,7 +53,12 @@ describe('AuthStore sessions', () => {
     vi.setSystemTime(new Date('2026-03-01T09:00:00Z')); // the device's own (wrong) clock
     FakeTabs.all = [];
     TestBed.configureTestingModule({
-      providers: [provideRouter([]), provideHttpClient(), provideHttpClientTesting(), { provide: AuthTabs, useClass: FakeTabs }],
+      providers: [
+        provideRouter([]),
+        provideHttpClient(),
+        provideHttpClientTesting(),
+        { provide: AuthTabs, useClass: FakeTabs },
+      ],
     });
     clock = TestBed.inject(Clock);
     clock.setServerTime(SERVER_NOW);
@@ -112,7 +117,7 @@ describe('AuthStore sessions', () => {
     expect(store.accessToken()).toBe(jwtExpiringAt(SERVER_NOW + 28 * 60_000, 'from-other-tab'));
   });
 
-  it('a refresh that waited while another tab refreshed takes that tab\'s token, no request', async () => {
+  it("a refresh that waited while another tab refreshed takes that tab's token, no request", async () => {
     await signIn(tokens(SERVER_NOW + 15 * 60_000));
     let release!: () => void;
     const held = new Promise<void>((r) => (release = r));
@@ -144,7 +149,9 @@ describe('AuthStore sessions', () => {
     vi.spyOn(router, 'url', 'get').mockReturnValue('/depot?tab=settings');
     const navigate = vi.spyOn(router, 'navigate').mockResolvedValue(true);
     await vi.advanceTimersByTimeAsync(14 * 60_000);
-    http.expectOne('/api/auth/refresh').flush({ error: { code: 'unauthenticated', message: 'Ended' } }, { status: 401, statusText: 'Unauthorized' });
+    http
+      .expectOne('/api/auth/refresh')
+      .flush({ error: { code: 'unauthenticated', message: 'Ended' } }, { status: 401, statusText: 'Unauthorized' });
     await settle();
     expect(store.signedIn()).toBe(false);
     expect(navigate).toHaveBeenCalledWith(['/sign-in'], { queryParams: { returnUrl: '/depot?tab=settings' } });

@@ -83,10 +83,12 @@ describe('AuthStore', () => {
 
   it('a refused refresh ends with nobody signed in', async () => {
     const refreshing = store.refresh();
-    http.expectOne('/api/auth/refresh').flush(
-      { error: { code: 'unauthenticated', message: 'No session' } },
-      { status: 401, statusText: 'Unauthorized' },
-    );
+    http
+      .expectOne('/api/auth/refresh')
+      .flush(
+        { error: { code: 'unauthenticated', message: 'No session' } },
+        { status: 401, statusText: 'Unauthorized' },
+      );
     expect(await refreshing).toBe(false);
     expect(store.signedIn()).toBe(false);
     await settle();

@@ -88,9 +88,7 @@ export class AuthStore {
 
   /** Signs in; rejects with the HttpErrorResponse on failure. */
   async signIn(email: string, password: string): Promise<SessionUser> {
-    const res = await firstValueFrom(
-      this.http.post<TokenResponse>('/api/auth/login', { email, password }),
-    );
+    const res = await firstValueFrom(this.http.post<TokenResponse>('/api/auth/login', { email, password }));
     this.accept(res);
     this.tabs.tell({ kind: 'tokens', tokens: res });
     return res.user;
@@ -181,9 +179,7 @@ export class AuthStore {
   }
 
   lookUpLink(token: string): Promise<ActionTokenInfo> {
-    return firstValueFrom(
-      this.http.get<ActionTokenInfo>(`/api/auth/action-tokens/${encodeURIComponent(token)}`),
-    );
+    return firstValueFrom(this.http.get<ActionTokenInfo>(`/api/auth/action-tokens/${encodeURIComponent(token)}`));
   }
 
   async setPassword(token: string, password: string): Promise<void> {

@@ -19,7 +19,8 @@ export class AuthTabs {
   private readonly listeners = new Set<(m: TabMessage) => void>();
 
   constructor() {
-    if (this.channel) this.channel.onmessage = (e: MessageEvent<TabMessage>) => this.listeners.forEach((l) => l(e.data));
+    if (this.channel)
+      this.channel.onmessage = (e: MessageEvent<TabMessage>) => this.listeners.forEach((l) => l(e.data));
     inject(DestroyRef).onDestroy(() => this.channel?.close());
   }
 

@@ -1,4 +1,11 @@
-import type { AbstractControl, FormControl, FormGroupDirective, NgForm, ValidationErrors, ValidatorFn } from '@angular/forms';
+import type {
+  AbstractControl,
+  FormControl,
+  FormGroupDirective,
+  NgForm,
+  ValidationErrors,
+  ValidatorFn,
+} from '@angular/forms';
 import type { ErrorStateMatcher } from '@angular/material/core';
 import { PASSWORD_MIN_LENGTH } from '@nightyard/contracts';
 

@@ -32,7 +32,9 @@ describe('SetPasswordPage', () => {
   }
 
   function input(label: string): HTMLInputElement {
-    const labelEl = [...el.querySelectorAll('label')].find((l) => l.textContent?.trim().replace(/\s*\*$/, '') === label);
+    const labelEl = [...el.querySelectorAll('label')].find(
+      (l) => l.textContent?.trim().replace(/\s*\*$/, '') === label,
+    );
     expect(labelEl, `label ${label}`).toBeTruthy();
     return el.querySelector<HTMLInputElement>(`#${labelEl!.getAttribute('for')}`)!;
   }

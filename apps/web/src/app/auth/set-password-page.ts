@@ -79,7 +79,11 @@ export class SetPasswordPage implements OnInit {
     {
       password: new FormControl('', {
         nonNullable: true,
-        validators: [Validators.required, Validators.minLength(PASSWORD_MIN_LENGTH), Validators.maxLength(PASSWORD_MAX_LENGTH)],
+        validators: [
+          Validators.required,
+          Validators.minLength(PASSWORD_MIN_LENGTH),
+          Validators.maxLength(PASSWORD_MAX_LENGTH),
+        ],
       }),
       confirm: new FormControl('', { nonNullable: true, validators: [Validators.required] }),
     },
@@ -93,7 +97,10 @@ export class SetPasswordPage implements OnInit {
   async ngOnInit(): Promise<void> {
     const token = this.token();
     if (!token) {
-      this.link.set({ kind: 'invalid', message: 'This address has no link code. Open the link from the e-mail again.' });
+      this.link.set({
+        kind: 'invalid',
+        message: 'This address has no link code. Open the link from the e-mail again.',
+      });
       return;
     }
     try {
@@ -108,7 +115,9 @@ export class SetPasswordPage implements OnInit {
     const token = this.token();
     if (this.form.invalid || !token) {
       this.form.markAllAsTouched();
-      queueMicrotask(() => this.host.nativeElement.querySelector<HTMLElement>('input.ng-invalid, input[aria-invalid="true"]')?.focus());
+      queueMicrotask(() =>
+        this.host.nativeElement.querySelector<HTMLElement>('input.ng-invalid, input[aria-invalid="true"]')?.focus(),
+      );
       return;
     }
     this.busy.set(true);
@@ -137,11 +146,15 @@ export class SetPasswordPage implements OnInit {
     if (p.status === 403) {
       return {
         kind: 'invalid',
-        message: 'This account has been deactivated, so its link no longer works. Ask your administrator to reactivate it and send a new link.',
+        message:
+          'This account has been deactivated, so its link no longer works. Ask your administrator to reactivate it and send a new link.',
       };
     }
     if (p.status === 404 || p.status === 400) {
-      return { kind: 'invalid', message: 'This link is not valid. It may have been used already, or copied only in part.' };
+      return {
+        kind: 'invalid',
+        message: 'This link is not valid. It may have been used already, or copied only in part.',
+      };
     }
     return { kind: 'failed', message: p.message };
   }

@@ -23,7 +23,9 @@ describe('SignInPage', () => {
   afterEach(() => mock.verify());
 
   function input(label: string): HTMLInputElement {
-    const labelEl = [...el.querySelectorAll('label')].find((l) => l.textContent?.trim().replace(/\s*\*$/, '') === label);
+    const labelEl = [...el.querySelectorAll('label')].find(
+      (l) => l.textContent?.trim().replace(/\s*\*$/, '') === label,
+    );
     expect(labelEl, `label ${label}`).toBeTruthy();
     return el.querySelector<HTMLInputElement>(`#${labelEl!.getAttribute('for')}`)!;
   }
@@ -96,10 +98,12 @@ describe('SignInPage', () => {
     type(input('E-mail'), 'ada@example.org');
     type(input('Password'), 'pw');
     await submit();
-    mock.expectOne('/api/auth/login').flush(
-      { error: { code: 'too_many_requests', message: 'Too many attempts. Try again in 10 minutes.' } },
-      { status: 429, statusText: 'Too Many Requests' },
-    );
+    mock
+      .expectOne('/api/auth/login')
+      .flush(
+        { error: { code: 'too_many_requests', message: 'Too many attempts. Try again in 10 minutes.' } },
+        { status: 429, statusText: 'Too Many Requests' },
+      );
     await settle();
     await fixture.whenStable();
     fixture.detectChanges();

@@ -24,7 +24,9 @@ describe('Clock', () => {
   async function answer(url: string, serverMs: number | string, status = 200): Promise<void> {
     const done = firstValueFrom(http.get(url)).catch(() => undefined);
     const headers = { [SERVER_TIME_HEADER]: String(serverMs) };
-    mock.expectOne(url).flush(status === 200 ? {} : { error: { code: 'x', message: 'no' } }, { status, statusText: 'S', headers });
+    mock
+      .expectOne(url)
+      .flush(status === 200 ? {} : { error: { code: 'x', message: 'no' } }, { status, statusText: 'S', headers });
     await done;
   }
 
@@ -54,7 +56,9 @@ describe('Clock', () => {
     await answer('/api/depots', 'not-a-time');
     expect(clock.offsetMs()).toBe(0);
     const done = firstValueFrom(http.get('/elsewhere'));
-    mock.expectOne('/elsewhere').flush({}, { headers: { [SERVER_TIME_HEADER]: String(Date.parse('2030-01-01T00:00:00Z')) } });
+    mock
+      .expectOne('/elsewhere')
+      .flush({}, { headers: { [SERVER_TIME_HEADER]: String(Date.parse('2030-01-01T00:00:00Z')) } });
     await done;
     expect(clock.offsetMs()).toBe(0);
   });

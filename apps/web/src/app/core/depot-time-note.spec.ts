@@ -21,7 +21,9 @@ describe('DepotTimeNote', () => {
   }
 
   it("says once that the page's times are the depot's when the viewer is elsewhere", async () => {
-    expect(await render('Europe/London', 'America/Chicago')).toBe('scheduleTimes are at the depot: America/Chicago (CST), 24-hour.');
+    expect(await render('Europe/London', 'America/Chicago')).toBe(
+      'scheduleTimes are at the depot: America/Chicago (CST), 24-hour.',
+    );
   });
 
   it('says nothing when the viewer is at the depot', async () => {

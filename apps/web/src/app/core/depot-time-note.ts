@@ -17,7 +17,9 @@ export const VIEWER_TIME_ZONE = new InjectionToken<string>('VIEWER_TIME_ZONE', {
   changeDetection: ChangeDetectionStrategy.OnPush,
   template: `
     @if (note(); as text) {
-      <p class="ny-depot-time-note"><mat-icon aria-hidden="true">schedule</mat-icon><span>{{ text }}</span></p>
+      <p class="ny-depot-time-note">
+        <mat-icon aria-hidden="true">schedule</mat-icon><span>{{ text }}</span>
+      </p>
     }
   `,
   styles: `

@@ -106,7 +106,12 @@ export function restoreInto(control: AbstractControl, value: unknown): void {
     if (first instanceof FormControl || control.length === 0) {
       while (control.length > value.length) control.removeAt(control.length - 1);
       while (control.length < value.length) {
-        control.push(new FormControl(null, { validators: first?.validator ?? null, asyncValidators: first?.asyncValidator ?? null }));
+        control.push(
+          new FormControl(null, {
+            validators: first?.validator ?? null,
+            asyncValidators: first?.asyncValidator ?? null,
+          }),
+        );
       }
     }
     value.slice(0, control.length).forEach((v, i) => restoreInto(control.at(i), v));

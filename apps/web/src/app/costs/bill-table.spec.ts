@@ -15,7 +15,11 @@ describe('BillTable', () => {
   }
 
   const text = (el: Element | null | undefined) => el?.textContent?.replace(/\s+/g, ' ').trim() ?? '';
-  const cells = (tr: Element | null) => [...(tr?.children ?? [])].map((c) => text(c)).filter(Boolean).join(' ');
+  const cells = (tr: Element | null) =>
+    [...(tr?.children ?? [])]
+      .map((c) => text(c))
+      .filter(Boolean)
+      .join(' ');
   const rowOf = (el: HTMLElement, label: string) =>
     [...el.querySelectorAll('tr')].find((tr) => text(tr.querySelector('th')).startsWith(label));
 
@@ -25,12 +29,20 @@ describe('BillTable', () => {
     expect(heads).toEqual(['Energy', 'Demand', 'Fixed charges']);
 
     const onPeak = rowOf(el, 'Energy, on-peak')!;
-    expect([...onPeak.querySelectorAll('td')].map(text)).toEqual(['1,501 kWh at $0.18 per kWh', '$0.18 per kWh', '$270.09']);
+    expect([...onPeak.querySelectorAll('td')].map(text)).toEqual([
+      '1,501 kWh at $0.18 per kWh',
+      '$0.18 per kWh',
+      '$270.09',
+    ]);
 
     const facility = rowOf(el, 'Facility demand')!;
     expect(text(facility.querySelector('th'))).toMatch(/^Facility demand peak set /);
     expect(text(facility.querySelector('.peak-at'))).toMatch(/^peak set .*2.*17:15$/);
-    expect([...facility.querySelectorAll('td')].map(text)).toEqual(['185 kW at $7.50 per kW', '$7.50 per kW', '$1,387.50']);
+    expect([...facility.querySelectorAll('td')].map(text)).toEqual([
+      '185 kW at $7.50 per kW',
+      '$7.50 per kW',
+      '$1,387.50',
+    ]);
 
     expect(text(rowOf(el, 'Customer charge'))).toContain('31 days');
     expect([...el.querySelectorAll('tr.subtotal')].map(cells)).toEqual([
@@ -67,18 +79,32 @@ describe('BillTable', () => {
     // Three thirds of a dollar each rounded alone would show $0.33 three times beside a $1.00 total.
     const third = 1 / 3;
     const line = (name: string) => ({ name, quantity: 1, unit: 'kWh' as const, rate: third, amount: third });
-    const el = await render(bill({
-      energy: [line('Energy, a'), line('Energy, b'), line('Energy, c')], demand: [], fixed: [],
-      energyTotal: 1, demandTotal: 0, fixedTotal: 0, total: 1, kwh: 3,
-    }));
-    const amounts = ['Energy, a', 'Energy, b', 'Energy, c'].map((n) => text([...rowOf(el, n)!.querySelectorAll('td')].at(-1)));
+    const el = await render(
+      bill({
+        energy: [line('Energy, a'), line('Energy, b'), line('Energy, c')],
+        demand: [],
+        fixed: [],
+        energyTotal: 1,
+        demandTotal: 0,
+        fixedTotal: 0,
+        total: 1,
+        kwh: 3,
+      }),
+    );
+    const amounts = ['Energy, a', 'Energy, b', 'Energy, c'].map((n) =>
+      text([...rowOf(el, n)!.querySelectorAll('td')].at(-1)),
+    );
     expect(amounts).toEqual(['$0.34', '$0.33', '$0.33']);
     expect(cells(el.querySelector('tfoot tr.grand-total'))).toBe('Total $1.00');
   });
 
-  it('shows where a billed demand comes from when it is not the intervals\' own peak', async () => {
+  it("shows where a billed demand comes from when it is not the intervals' own peak", async () => {
     const b = bill();
-    b.demand[0] = { ...b.demand[0]!, peakAt: null, note: 'Demand ratchet: 80 % of 400 kW, the highest demand of the previous 11 months (from meter readings)' };
+    b.demand[0] = {
+      ...b.demand[0]!,
+      peakAt: null,
+      note: 'Demand ratchet: 80 % of 400 kW, the highest demand of the previous 11 months (from meter readings)',
+    };
     const el = await render(b);
     expect(text(rowOf(el, 'Facility demand'))).toContain('Demand ratchet: 80 % of 400 kW');
   });

@@ -43,11 +43,23 @@ export class BillTable {
     const tz = this.timezone();
     // One rounding rule: the bill is computed in full precision; the total is shown rounded once,
     // the section totals add up to it and each section's lines to its total (footedCents).
-    const [energyShown, demandShown, fixedShown] = footedCents([b.energyTotal, b.demandTotal, b.fixedTotal], toCents(b.total));
+    const [energyShown, demandShown, fixedShown] = footedCents(
+      [b.energyTotal, b.demandTotal, b.fixedTotal],
+      toCents(b.total),
+    );
     const shown = {
-      energy: footedCents(b.energy.map((l) => l.amount), energyShown),
-      demand: footedCents(b.demand.map((l) => l.amount), demandShown),
-      fixed: footedCents(b.fixed.map((l) => l.amount), fixedShown),
+      energy: footedCents(
+        b.energy.map((l) => l.amount),
+        energyShown,
+      ),
+      demand: footedCents(
+        b.demand.map((l) => l.amount),
+        demandShown,
+      ),
+      fixed: footedCents(
+        b.fixed.map((l) => l.amount),
+        fixedShown,
+      ),
     };
     const line = (l: BillView['energy'][number], amount: number, peakAt: number | null = null) => ({
       name: l.name,
@@ -92,15 +104,43 @@ export class BillTable {
     const c = b.currency;
     const tz = this.timezone();
     // The same footed cents as the table, so the export adds up as the page does.
-    const [energyShown, demandShown, fixedShown] = footedCents([b.energyTotal, b.demandTotal, b.fixedTotal], toCents(b.total));
-    const energy = footedCents(b.energy.map((l) => l.amount), energyShown);
-    const demand = footedCents(b.demand.map((l) => l.amount), demandShown);
-    const fixed = footedCents(b.fixed.map((l) => l.amount), fixedShown);
+    const [energyShown, demandShown, fixedShown] = footedCents(
+      [b.energyTotal, b.demandTotal, b.fixedTotal],
+      toCents(b.total),
+    );
+    const energy = footedCents(
+      b.energy.map((l) => l.amount),
+      energyShown,
+    );
+    const demand = footedCents(
+      b.demand.map((l) => l.amount),
+      demandShown,
+    );
+    const fixed = footedCents(
+      b.fixed.map((l) => l.amount),
+      fixedShown,
+    );
     const row = (section: string, l: BillView['energy'][number], amount: number, peakAt: number | null = null) => [
-      section, l.name, Number(l.quantity.toFixed(3)), l.unit, l.rate, amount, instantCsv(peakAt, tz), l.note ?? null,
+      section,
+      l.name,
+      Number(l.quantity.toFixed(3)),
+      l.unit,
+      l.rate,
+      amount,
+      instantCsv(peakAt, tz),
+      l.note ?? null,
     ];
     return {
-      header: ['Section', 'Charge', 'Quantity', 'Unit', `Rate (${c})`, `Amount (${c})`, 'Peak set at (depot time)', 'Note'],
+      header: [
+        'Section',
+        'Charge',
+        'Quantity',
+        'Unit',
+        `Rate (${c})`,
+        `Amount (${c})`,
+        'Peak set at (depot time)',
+        'Note',
+      ],
       rows: [
         ...b.energy.map((l, i) => row('Energy', l, energy[i]!)),
         ...b.demand.map((l, i) => row('Demand', l, demand[i]!, l.peakAt)),
@@ -110,4 +150,3 @@ export class BillTable {
     };
   });
 }
-

@@ -5,7 +5,12 @@ import { addDays, dayTimeAt, depotStamp } from '@nightyard/contracts/depot-time'
 
 function currencyFormat(currency: string, min: number, max: number): Intl.NumberFormat {
   try {
-    return new Intl.NumberFormat(undefined, { style: 'currency', currency, minimumFractionDigits: min, maximumFractionDigits: max });
+    return new Intl.NumberFormat(undefined, {
+      style: 'currency',
+      currency,
+      minimumFractionDigits: min,
+      maximumFractionDigits: max,
+    });
   } catch {
     return new Intl.NumberFormat(undefined, { minimumFractionDigits: min, maximumFractionDigits: max });
   }
@@ -62,21 +67,37 @@ export function addMonths(iso: string, months: number): string {
 export function shortDay(iso: string): string {
   const d = parseDate(iso);
   if (!d) return iso;
-  return new Intl.DateTimeFormat(undefined, { weekday: 'short', day: 'numeric', month: 'short', timeZone: 'UTC' }).format(d);
+  return new Intl.DateTimeFormat(undefined, {
+    weekday: 'short',
+    day: 'numeric',
+    month: 'short',
+    timeZone: 'UTC',
+  }).format(d);
 }
 
 /** "Wednesday, 2 December 2026". */
 export function longDay(iso: string): string {
   const d = parseDate(iso);
   if (!d) return iso;
-  return new Intl.DateTimeFormat(undefined, { weekday: 'long', day: 'numeric', month: 'long', year: 'numeric', timeZone: 'UTC' }).format(d);
+  return new Intl.DateTimeFormat(undefined, {
+    weekday: 'long',
+    day: 'numeric',
+    month: 'long',
+    year: 'numeric',
+    timeZone: 'UTC',
+  }).format(d);
 }
 
 /** "2 Dec 2026". */
 export function mediumDay(iso: string): string {
   const d = parseDate(iso);
   if (!d) return iso;
-  return new Intl.DateTimeFormat(undefined, { day: 'numeric', month: 'short', year: 'numeric', timeZone: 'UTC' }).format(d);
+  return new Intl.DateTimeFormat(undefined, {
+    day: 'numeric',
+    month: 'short',
+    year: 'numeric',
+    timeZone: 'UTC',
+  }).format(d);
 }
 
 /**
@@ -91,7 +112,12 @@ export function periodLabel(start: string, end: string): string {
     return new Intl.DateTimeFormat(undefined, { month: 'long', year: 'numeric', timeZone: 'UTC' }).format(s);
   }
   const sameYear = s.getUTCFullYear() === e.getUTCFullYear();
-  const from = new Intl.DateTimeFormat(undefined, { day: 'numeric', month: 'short', ...(sameYear ? {} : { year: 'numeric' }), timeZone: 'UTC' }).format(s);
+  const from = new Intl.DateTimeFormat(undefined, {
+    day: 'numeric',
+    month: 'short',
+    ...(sameYear ? {} : { year: 'numeric' }),
+    timeZone: 'UTC',
+  }).format(s);
   return `${from} – ${mediumDay(isoOf(e))}`;
 }
 
@@ -117,7 +143,13 @@ export function localTime(local: string): string {
   if (!m) return local;
   const at = new Date(Date.UTC(+m[1]!, +m[2]! - 1, +m[3]!, +m[4]!, +m[5]!));
   return new Intl.DateTimeFormat(undefined, {
-    weekday: 'short', day: 'numeric', month: 'short', hour: '2-digit', minute: '2-digit', hourCycle: 'h23', timeZone: 'UTC',
+    weekday: 'short',
+    day: 'numeric',
+    month: 'short',
+    hour: '2-digit',
+    minute: '2-digit',
+    hourCycle: 'h23',
+    timeZone: 'UTC',
   }).format(at);
 }
 
@@ -130,7 +162,11 @@ export function cents(value: number): number {
 export function signedMoney(value: number, currency: string): string {
   try {
     return new Intl.NumberFormat(undefined, {
-      style: 'currency', currency, minimumFractionDigits: 2, maximumFractionDigits: 2, signDisplay: 'exceptZero',
+      style: 'currency',
+      currency,
+      minimumFractionDigits: 2,
+      maximumFractionDigits: 2,
+      signDisplay: 'exceptZero',
     }).format(value);
   } catch {
     return `${value > 0 ? '+' : ''}${value.toFixed(2)}`;

@@ -44,7 +44,13 @@ describe('CostsPage', () => {
     expect(req.request.params.get('date')).toBe(date);
     if (month === 'no-rate-plan') {
       req.flush(
-        { error: { code: 'validation_failed', message: `No rate plan applies to North Depot on ${date}: assign one under Rates`, fields: { date: 'No rate plan' } } },
+        {
+          error: {
+            code: 'validation_failed',
+            message: `No rate plan applies to North Depot on ${date}: assign one under Rates`,
+            fields: { date: 'No rate plan' },
+          },
+        },
         { status: 400, statusText: 'Bad Request' },
       );
     } else {
@@ -54,8 +60,13 @@ describe('CostsPage', () => {
   }
 
   const text = (e: Element | null) => e?.textContent?.replace(/\s+/g, ' ').trim() ?? '';
-  const cells = (tr: Element | null) => [...(tr?.children ?? [])].map((c) => text(c)).filter(Boolean).join(' ');
-  const card = (label: string) => [...el.querySelectorAll('.cards .card')].find((c) => text(c.querySelector('.card-label')) === label);
+  const cells = (tr: Element | null) =>
+    [...(tr?.children ?? [])]
+      .map((c) => text(c))
+      .filter(Boolean)
+      .join(' ');
+  const card = (label: string) =>
+    [...el.querySelectorAll('.cards .card')].find((c) => text(c.querySelector('.card-label')) === label);
 
   it('shows the projected bill, month to date, savings and the facility peak so far', async () => {
     await render(['finance']);
@@ -76,7 +87,7 @@ describe('CostsPage', () => {
   it('says where the projection comes from and how many school nights have no plan', async () => {
     await render(['finance']);
     const sources = text(el.querySelector('.sources'));
-    expect(sources).toContain("meter data where it was imported (96 metered 15-minute intervals)");
+    expect(sources).toContain('meter data where it was imported (96 metered 15-minute intervals)');
     expect(sources).toContain('site load of the published plans (2 published plans)');
     expect(sources).toContain("depot's building load");
     expect(sources).toContain('3 school nights have no published plan yet');
@@ -87,11 +98,17 @@ describe('CostsPage', () => {
       { date: '2026-12-09', needKwh: 210, basis: 'runs' as const },
       { date: '2026-12-14', needKwh: 205, basis: 'typical-weekday' as const },
     ];
-    await render(['finance'], monthCosts({
-      forecast, projectedRange: { low: 2_801.5, high: 2_952.09 },
-      sources: { actualIntervals: 96, plannedNights: 2, forecastNights: 2, schoolNightsWithoutPlan: 1 },
-    }));
-    expect(text(card('Projected bill for the period') ?? null)).toContain('2 nights are forecast: between $2,801.50 and $2,952.09.');
+    await render(
+      ['finance'],
+      monthCosts({
+        forecast,
+        projectedRange: { low: 2_801.5, high: 2_952.09 },
+        sources: { actualIntervals: 96, plannedNights: 2, forecastNights: 2, schoolNightsWithoutPlan: 1 },
+      }),
+    );
+    expect(text(card('Projected bill for the period') ?? null)).toContain(
+      '2 nights are forecast: between $2,801.50 and $2,952.09.',
+    );
     const sources = text(el.querySelector('.sources'));
     expect(sources).toContain('2 nights are forecast:');
     expect(sources).toContain('the latest entered day of the same weekday');
@@ -101,7 +118,9 @@ describe('CostsPage', () => {
   it('renders the projected bill with its total, and the bill to date on demand', async () => {
     await render(['finance']);
     expect(cells(el.querySelector('ny-bill-table tr.grand-total'))).toBe('Total $2,952.09');
-    const toDate = [...el.querySelectorAll<HTMLButtonElement>('mat-button-toggle button')].find((b) => text(b) === 'To date')!;
+    const toDate = [...el.querySelectorAll<HTMLButtonElement>('mat-button-toggle button')].find(
+      (b) => text(b) === 'To date',
+    )!;
     toDate.click();
     await refresh();
     expect(text(el.querySelector('#costs-bill-heading'))).toBe('Bill to date');
@@ -121,20 +140,28 @@ describe('CostsPage', () => {
 
   it('compares a partly metered night over its metered intervals only', async () => {
     const base = monthCosts();
-    const partly = { ...base.nights[0]!, actualSiteEnergyCost: 20.54, actualCoverage: 0.377, actualPeakKw: 72, projectedMeteredSiteEnergyCost: 19.04 };
+    const partly = {
+      ...base.nights[0]!,
+      actualSiteEnergyCost: 20.54,
+      actualCoverage: 0.377,
+      actualPeakKw: 72,
+      projectedMeteredSiteEnergyCost: 19.04,
+    };
     await render(['finance'], monthCosts({ nights: [partly, base.nights[1]!] }));
     const row = el.querySelector('ny-nights-table tbody tr')!;
     const cellsOf = [...row.children].map(text);
     expect(cellsOf[5]).toBe('$20.54 part of the night');
     expect(cellsOf[6]).toBe('+$1.50 metered part only');
     expect(cellsOf[10]).toBe('37.7 %');
-    const metered = [...el.querySelectorAll<HTMLButtonElement>('ny-nights-chart mat-button-toggle button')].find((b) => text(b) === 'Projected and metered')!;
+    const metered = [...el.querySelectorAll<HTMLButtonElement>('ny-nights-chart mat-button-toggle button')].find(
+      (b) => text(b) === 'Projected and metered',
+    )!;
     metered.click();
     await refresh();
     const canvas = el.querySelector('ny-nights-chart canvas')!;
     expect(canvas.getAttribute('aria-label')).toBe('Bar chart: site energy cost of each night, projected and metered');
     expect(text(el.querySelector(`#${canvas.getAttribute('aria-describedby')}`))).toContain(
-      'Meter data covers 1 of 2 nights (1 only in part: both bars of such a night cover its metered intervals only). Over the metered intervals, the site\'s energy cost $20.54 metered against $19.04 projected.',
+      "Meter data covers 1 of 2 nights (1 only in part: both bars of such a night cover its metered intervals only). Over the metered intervals, the site's energy cost $20.54 metered against $19.04 projected.",
     );
   });
 
@@ -157,7 +184,9 @@ describe('CostsPage', () => {
     expect(el.querySelector('ny-meter-import-panel')).toBeNull();
     expect(el.querySelector('input[type="file"]')).toBeNull();
     expect(el.querySelector('#costs-import-heading')).toBeNull();
-    expect(text(el.querySelector('.sources'))).toContain("You can read the costs. Finance and administrators import the utility's meter data.");
+    expect(text(el.querySelector('.sources'))).toContain(
+      "You can read the costs. Finance and administrators import the utility's meter data.",
+    );
     // The figures themselves are there.
     expect(text(card('Savings against the baselines')?.querySelector('.card-value') ?? null)).toBe('$312.40');
   });
@@ -166,9 +195,13 @@ describe('CostsPage', () => {
     await render(['finance']);
     const canvas = el.querySelector('ny-nights-chart canvas')!;
     expect(canvas.getAttribute('role')).toBe('img');
-    expect(canvas.getAttribute('aria-label')).toBe('Bar chart: charging energy cost of each night, planned and under its baseline');
+    expect(canvas.getAttribute('aria-label')).toBe(
+      'Bar chart: charging energy cost of each night, planned and under its baseline',
+    );
     const summary = el.querySelector(`#${canvas.getAttribute('aria-describedby')}`)!;
-    expect(text(summary)).toContain("Their charging energy costs $190.50 planned, against $280.30 under each night's baseline: $89.80 saved on energy");
+    expect(text(summary)).toContain(
+      "Their charging energy costs $190.50 planned, against $280.30 under each night's baseline: $89.80 saved on energy",
+    );
     const alt = el.querySelector('ny-nights-chart details')!;
     expect(text(alt.querySelector('summary'))).toBe('The chart as a table');
     const rows = [...alt.querySelectorAll('tbody tr')].map((r) => [...r.children].map(text));
@@ -179,7 +212,9 @@ describe('CostsPage', () => {
 
   it('says clearly when the month has no rate plan, and keeps the period controls', async () => {
     await render(['finance'], 'no-rate-plan', '2020-01-15');
-    expect(text(el.querySelector('[role="alert"]'))).toContain('No rate plan applies to North Depot on 2020-01-15: assign one under Rates');
+    expect(text(el.querySelector('[role="alert"]'))).toContain(
+      'No rate plan applies to North Depot on 2020-01-15: assign one under Rates',
+    );
     expect(el.querySelector('button[aria-label="Previous billing period"]')).not.toBeNull();
     expect(el.querySelector('.cards')).toBeNull();
   });

@@ -1,4 +1,13 @@
-import { ChangeDetectionStrategy, Component, computed, inject, input, linkedSignal, resource, signal } from '@angular/core';
+import {
+  ChangeDetectionStrategy,
+  Component,
+  computed,
+  inject,
+  input,
+  linkedSignal,
+  resource,
+  signal,
+} from '@angular/core';
 import { MatButtonModule } from '@angular/material/button';
 import { MatButtonToggleModule } from '@angular/material/button-toggle';
 import { MatFormFieldModule } from '@angular/material/form-field';
@@ -29,7 +38,7 @@ const PEAK_SOURCE: Record<MonthCosts['peaks']['facility']['source'], string> = {
   planned: 'in a published plan',
   entered: 'entered under Depot (peaks so far)',
   forecast: 'in the forecast of a night without a published plan',
-  building: 'by the building\'s own load (no charging then)',
+  building: "by the building's own load (no charging then)",
 };
 
 /**
@@ -123,7 +132,10 @@ export class CostsPage {
     if (shown && !starts.includes(shown)) starts.push(shown);
     return starts
       .sort((a, b) => b.localeCompare(a))
-      .map((start) => ({ start, label: `${periodLabel(start, addMonths(start, 1))}${start === current ? ' (current)' : ''}` }));
+      .map((start) => ({
+        start,
+        label: `${periodLabel(start, addMonths(start, 1))}${start === current ? ' (current)' : ''}`,
+      }));
   });
 
   protected readonly periodFacts = computed(() => {
@@ -152,7 +164,10 @@ export class CostsPage {
       projected: money(toCents(m.projected.total), c),
       projectedParts: (() => {
         // The parts add up to the total shown (footedCents, the one rounding rule).
-        const [e, d, f] = footedCents([m.projected.energyTotal, m.projected.demandTotal, m.projected.fixedTotal], toCents(m.projected.total));
+        const [e, d, f] = footedCents(
+          [m.projected.energyTotal, m.projected.demandTotal, m.projected.fixedTotal],
+          toCents(m.projected.total),
+        );
         return `Energy ${money(e!, c)}, demand ${money(d!, c)}, fixed ${money(f!, c)}`;
       })(),
       projectedRange: m.projectedRange
@@ -195,7 +210,12 @@ export class CostsPage {
           : s.actualIntervals === 1
             ? '1 metered 15-minute interval'
             : `${s.actualIntervals.toLocaleString()} metered 15-minute intervals`,
-      nights: s.plannedNights === 0 ? 'none yet' : s.plannedNights === 1 ? '1 published plan' : `${s.plannedNights} published plans`,
+      nights:
+        s.plannedNights === 0
+          ? 'none yet'
+          : s.plannedNights === 1
+            ? '1 published plan'
+            : `${s.plannedNights} published plans`,
       missing: s.schoolNightsWithoutPlan,
       forecast: s.forecastNights,
       typical: m.forecast.some((n) => n.basis === 'typical-weekday'),
@@ -221,7 +241,6 @@ export class CostsPage {
   protected reload(): void {
     this.loaded.reload();
   }
-
 
   protected choosePeriod(start: string): void {
     this.go(start);

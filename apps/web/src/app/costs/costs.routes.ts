@@ -6,5 +6,9 @@ import type { Routes } from '@angular/router';
  */
 export const costsRoutes: Routes = [
   { path: '', title: 'Costs', loadComponent: () => import('./costs-page').then((m) => m.CostsPage) },
-  { path: 'nights/:planId', title: 'Night costs', loadComponent: () => import('./night-costs-page').then((m) => m.NightCostsPage) },
+  {
+    path: 'nights/:planId',
+    title: 'Night costs',
+    loadComponent: () => import('./night-costs-page').then((m) => m.NightCostsPage),
+  },
 ];

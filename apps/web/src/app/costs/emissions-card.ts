@@ -28,12 +28,19 @@ import { num } from './costs-format';
           <dd>{{ miles() }}</dd>
         </div>
       </dl>
-      <p class="scope">Runs of this billing period up to today, against diesel buses at {{ mpg() }} miles per gallon.</p>
-      <p class="source"><strong>Source: </strong><span class="source-text">{{ emissions().source }}</span></p>
+      <p class="scope">
+        Runs of this billing period up to today, against diesel buses at {{ mpg() }} miles per gallon.
+      </p>
+      <p class="source">
+        <strong>Source: </strong><span class="source-text">{{ emissions().source }}</span>
+      </p>
     </section>
   `,
   styles: `
-    :host { display: block; min-width: 0; }
+    :host {
+      display: block;
+      min-width: 0;
+    }
     .card {
       box-sizing: border-box;
       height: 100%;
@@ -42,14 +49,42 @@ import { num } from './costs-format';
       border-radius: var(--mat-sys-corner-medium);
       background: var(--mat-sys-surface-container-low);
     }
-    h2 { display: flex; align-items: center; gap: 8px; margin-bottom: 12px; }
-    h2 mat-icon { color: var(--mat-sys-primary); }
-    .figures { display: grid; grid-template-columns: repeat(auto-fit, minmax(140px, 1fr)); gap: 12px 24px; margin: 0 0 12px; }
-    .figures > div { min-width: 0; }
-    dt { color: var(--mat-sys-on-surface-variant); font: var(--mat-sys-label-large); }
-    dd { margin: 2px 0 0; font: var(--mat-sys-headline-small); font-variant-numeric: tabular-nums; }
-    .scope, .source { margin: 0 0 6px; max-width: 90ch; font: var(--mat-sys-body-medium); }
-    .source { color: var(--mat-sys-on-surface-variant); }
+    h2 {
+      display: flex;
+      align-items: center;
+      gap: 8px;
+      margin-bottom: 12px;
+    }
+    h2 mat-icon {
+      color: var(--mat-sys-primary);
+    }
+    .figures {
+      display: grid;
+      grid-template-columns: repeat(auto-fit, minmax(140px, 1fr));
+      gap: 12px 24px;
+      margin: 0 0 12px;
+    }
+    .figures > div {
+      min-width: 0;
+    }
+    dt {
+      color: var(--mat-sys-on-surface-variant);
+      font: var(--mat-sys-label-large);
+    }
+    dd {
+      margin: 2px 0 0;
+      font: var(--mat-sys-headline-small);
+      font-variant-numeric: tabular-nums;
+    }
+    .scope,
+    .source {
+      margin: 0 0 6px;
+      max-width: 90ch;
+      font: var(--mat-sys-body-medium);
+    }
+    .source {
+      color: var(--mat-sys-on-surface-variant);
+    }
   `,
 })
 export class EmissionsCard {

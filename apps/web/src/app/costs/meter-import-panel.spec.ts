@@ -34,7 +34,10 @@ describe('MeterImportPanel', () => {
 
   async function choose(name: string, text: string) {
     const input = el.querySelector<HTMLInputElement>('input[type="file"]')!;
-    Object.defineProperty(input, 'files', { value: [new File([text], name, { type: 'text/csv' })], configurable: true });
+    Object.defineProperty(input, 'files', {
+      value: [new File([text], name, { type: 'text/csv' })],
+      configurable: true,
+    });
     input.dispatchEvent(new Event('change'));
   }
 
@@ -61,11 +64,17 @@ describe('MeterImportPanel', () => {
     await choose('usage.csv', 'TYPE,DATE,START TIME,END TIME,USAGE,UNITS\n');
     const req = await nextRequest();
     expect(req.request.method).toBe('POST');
-    expect(req.request.body).toEqual({ fileName: 'usage.csv', content: 'TYPE,DATE,START TIME,END TIME,USAGE,UNITS\n', billingPeriodStart: '2026-12-01' });
+    expect(req.request.body).toEqual({
+      fileName: 'usage.csv',
+      content: 'TYPE,DATE,START TIME,END TIME,USAGE,UNITS\n',
+      billingPeriodStart: '2026-12-01',
+    });
     req.flush(importResult(), { status: 201, statusText: 'Created' });
     await refresh();
     const result = el.querySelector('.result.ok')!;
-    expect(text(result)).toContain('usage.csv imported: 8 intervals of 15 minutes (Green Button CSV), 82.3 kWh in all.');
+    expect(text(result)).toContain(
+      'usage.csv imported: 8 intervals of 15 minutes (Green Button CSV), 82.3 kWh in all.',
+    );
     expect(text(result)).toContain('2 duplicate readings with the same value, counted once.');
     expect(text(result)).toContain('1 gap in the readings');
     const gaps = [...result.querySelectorAll('ul.gaps li')].map(text);
@@ -81,7 +90,8 @@ describe('MeterImportPanel', () => {
       {
         error: {
           code: 'validation_failed',
-          message: '8 readings lie outside the billing period 2026-12-01 00:00 to 2027-01-01 00:00, e.g. 2026-10-02 22:00',
+          message:
+            '8 readings lie outside the billing period 2026-12-01 00:00 to 2027-01-01 00:00, e.g. 2026-10-02 22:00',
           fields: { intervals: 'Outside the billing period' },
         },
       },
@@ -89,7 +99,9 @@ describe('MeterImportPanel', () => {
     );
     await refresh();
     const problem = el.querySelector('.result.problem')!;
-    expect(text(problem)).toContain('other-month.xml was not imported. 8 readings lie outside the billing period 2026-12-01 00:00');
+    expect(text(problem)).toContain(
+      'other-month.xml was not imported. 8 readings lie outside the billing period 2026-12-01 00:00',
+    );
     expect(text(problem)).toContain('Choose the billing period the file is for, or export December 2026 only.');
     expect(text(problem)).toMatch(/Nothing was imported\.$/);
     expect(problem.querySelectorAll('li')).toHaveLength(0);
@@ -100,19 +112,31 @@ describe('MeterImportPanel', () => {
   it('names the lines to fix from the API fields', async () => {
     await choose('bad.csv', 'x');
     (await nextRequest()).flush(
-      { error: { code: 'validation_failed', message: 'Some lines are not valid; nothing was imported', fields: { 'line 7.UNITS': 'Unit "therm" is not supported: kWh or Wh' } } },
+      {
+        error: {
+          code: 'validation_failed',
+          message: 'Some lines are not valid; nothing was imported',
+          fields: { 'line 7.UNITS': 'Unit "therm" is not supported: kWh or Wh' },
+        },
+      },
       { status: 400, statusText: 'Bad Request' },
     );
     await refresh();
-    expect([...el.querySelectorAll('.result.problem li')].map(text)).toEqual(['Line 7, UNITS: Unit "therm" is not supported: kWh or Wh']);
+    expect([...el.querySelectorAll('.result.problem li')].map(text)).toEqual([
+      'Line 7, UNITS: Unit "therm" is not supported: kWh or Wh',
+    ]);
     // The API's message already says nothing was imported: not twice.
-    expect(text(el.querySelector('.result.problem .headline'))).toBe('bad.csv was not imported. Some lines are not valid; nothing was imported.');
+    expect(text(el.querySelector('.result.problem .headline'))).toBe(
+      'bad.csv was not imported. Some lines are not valid; nothing was imported.',
+    );
   });
 
   it('refuses a file that is neither XML nor CSV without sending it', async () => {
     await choose('bill.pdf', '%PDF');
     await refresh();
-    expect(text(el.querySelector('.result.problem'))).toContain('bill.pdf was not imported: choose a Green Button XML (.xml) or CSV (.csv) file.');
+    expect(text(el.querySelector('.result.problem'))).toContain(
+      'bill.pdf was not imported: choose a Green Button XML (.xml) or CSV (.csv) file.',
+    );
     mock.expectNone('/api/depots/d1/meter-data');
   });
 
@@ -121,5 +145,4 @@ describe('MeterImportPanel', () => {
     expect(whereText('IntervalReading[3].value')).toBe('Reading 3, value');
     expect(whereText('2026-12-02 22:00')).toBe('Interval starting 2026-12-02 22:00');
   });
-
 });

@@ -52,7 +52,13 @@ export class MeterImportPanel {
   protected readonly busy = signal(false);
   private readonly outcome = signal<
     | { kind: 'done'; periodStart: string; fileName: string; result: MeterImportResult }
-    | { kind: 'failed'; periodStart: string; fileName: string; message: string; items: { where: string; message: string }[] }
+    | {
+        kind: 'failed';
+        periodStart: string;
+        fileName: string;
+        message: string;
+        items: { where: string; message: string }[];
+      }
     | null
   >(null);
 
@@ -66,7 +72,12 @@ export class MeterImportPanel {
     const o = this.shown();
     if (o?.kind !== 'done') return null;
     const r = o.result;
-    const format = r.format === 'green-button-xml' ? 'Green Button XML' : r.format === 'green-button-csv' ? 'Green Button CSV' : r.format;
+    const format =
+      r.format === 'green-button-xml'
+        ? 'Green Button XML'
+        : r.format === 'green-button-csv'
+          ? 'Green Button CSV'
+          : r.format;
     return {
       fileName: o.fileName,
       summary: `${num(r.intervals, 0)} ${r.intervals === 1 ? 'interval' : 'intervals'} of ${num(r.minutes, 0)} minutes (${format}), ${num(r.kwh, 1)} kWh in all.`,
@@ -105,7 +116,9 @@ export class MeterImportPanel {
       return;
     }
     if (file.size > MAX_FILE_BYTES) {
-      fail(`${file.name} was not imported: it is larger than 20 MB. Export one billing period at a time. Nothing was imported.`);
+      fail(
+        `${file.name} was not imported: it is larger than 20 MB. Export one billing period at a time. Nothing was imported.`,
+      );
       return;
     }
     this.busy.set(true);
@@ -115,7 +128,11 @@ export class MeterImportPanel {
         fail(`${file.name} was not imported: the file is empty. Nothing was imported.`);
         return;
       }
-      const result = await this.api.importMeterData(this.depotId(), { fileName: file.name, content, billingPeriodStart: periodStart });
+      const result = await this.api.importMeterData(this.depotId(), {
+        fileName: file.name,
+        content,
+        billingPeriodStart: periodStart,
+      });
       this.outcome.set({ kind: 'done', periodStart, fileName: file.name, result });
       this.imported.emit(result);
     } catch (err) {

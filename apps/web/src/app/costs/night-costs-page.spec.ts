@@ -36,8 +36,15 @@ describe('NightCostsPage', () => {
       ['202', '60.5 kWh', '$50.30', '58', '$0.87'],
       ['203', '0 kWh', '$0.00', '0', '—'],
     ]);
-    expect([...el.querySelectorAll('table.buses tfoot td')].map(text)).toEqual(['140.5 kWh', '$120.50', '116', '$1.04']);
-    expect(el.querySelector('a[href^="/plans"]')?.getAttribute('href')).toBe('/plans?plan=00000000-0000-4000-8000-0000000000a1');
+    expect([...el.querySelectorAll('table.buses tfoot td')].map(text)).toEqual([
+      '140.5 kWh',
+      '$120.50',
+      '116',
+      '$1.04',
+    ]);
+    expect(el.querySelector('a[href^="/plans"]')?.getAttribute('href')).toBe(
+      '/plans?plan=00000000-0000-4000-8000-0000000000a1',
+    );
     mock.verify();
   });
 });

@@ -27,7 +27,9 @@ export class NightCostsPage {
   readonly planId = input.required<string>();
 
   private readonly loaded = resource({ params: () => this.planId(), loader: ({ params: id }) => this.api.plan(id) });
-  protected readonly costs = computed<PlanCosts | null>(() => (this.loaded.hasValue() ? (this.loaded.value() ?? null) : null));
+  protected readonly costs = computed<PlanCosts | null>(() =>
+    this.loaded.hasValue() ? (this.loaded.value() ?? null) : null,
+  );
   protected readonly loading = this.loaded.isLoading;
   protected readonly problem = computed(() => {
     const err = this.loaded.error();
@@ -49,9 +51,14 @@ export class NightCostsPage {
       baselineName: baselineName(p.baseline.kind),
       // The night against its baseline on charging energy; demand is the period's (see Costs).
       baseline: money(p.baseline.total - p.baseline.demand, c),
-      baselineParts: `Charging energy, peak ${num(p.baseline.peakKw, 0)} kW` +
-        (p.baseline.shortfallKwh > 0.05 ? `; ${num(p.baseline.shortfallKwh, 0)} kWh it would not deliver, counted at the plan's average price` : ''),
-      otherBaseline: p.otherBaseline ? `${baselineName(p.otherBaseline.kind)}: ${money(p.otherBaseline.energy, c)}, peak ${num(p.otherBaseline.peakKw, 0)} kW` : null,
+      baselineParts:
+        `Charging energy, peak ${num(p.baseline.peakKw, 0)} kW` +
+        (p.baseline.shortfallKwh > 0.05
+          ? `; ${num(p.baseline.shortfallKwh, 0)} kWh it would not deliver, counted at the plan's average price`
+          : ''),
+      otherBaseline: p.otherBaseline
+        ? `${baselineName(p.otherBaseline.kind)}: ${money(p.otherBaseline.energy, c)}, peak ${num(p.otherBaseline.peakKw, 0)} kW`
+        : null,
       savings: money(p.savings, c),
       savingsShare: percent(p.savingsShare),
       savingsPositive: p.savings > 0,
@@ -67,7 +74,10 @@ export class NightCostsPage {
     if (!p) return [];
     const c = p.currency;
     // The buses' costs foot to the night's total to the cent (footedCents, the one rounding rule).
-    const shown = footedCents(p.perBus.map((b) => b.cost), toCents(p.total));
+    const shown = footedCents(
+      p.perBus.map((b) => b.cost),
+      toCents(p.total),
+    );
     return p.perBus.map((b, i) => ({
       bus: b.bus,
       kwh: num(b.kwh, 1),
@@ -96,8 +106,17 @@ export class NightCostsPage {
     return {
       header: ['Bus', 'Charging (kWh)', `Cost (${c})`, 'Miles next service day', `Cost per mile (${c})`],
       rows: (() => {
-        const shown = footedCents((p?.perBus ?? []).map((b) => b.cost), toCents(p?.total ?? 0));
-        return (p?.perBus ?? []).map((b, i) => [b.bus, b.kwh, shown[i]!, b.miles, b.costPerMile === null ? null : cents(b.costPerMile)]);
+        const shown = footedCents(
+          (p?.perBus ?? []).map((b) => b.cost),
+          toCents(p?.total ?? 0),
+        );
+        return (p?.perBus ?? []).map((b, i) => [
+          b.bus,
+          b.kwh,
+          shown[i]!,
+          b.miles,
+          b.costPerMile === null ? null : cents(b.costPerMile),
+        ]);
       })(),
     };
   });

@@ -1,15 +1,16 @@
-import {
-  ChangeDetectionStrategy,
-  Component,
-  ElementRef,
-  computed,
-  input,
-  signal,
-  viewChild,
-} from '@angular/core';
+import { ChangeDetectionStrategy, Component, ElementRef, computed, input, signal, viewChild } from '@angular/core';
 import { MatButtonToggleModule } from '@angular/material/button-toggle';
 import { shownSum, type MonthCosts } from '@nightyard/contracts';
-import { BarController, BarElement, CategoryScale, Legend, LinearScale, Tooltip, type ChartData, type ChartOptions } from 'chart.js';
+import {
+  BarController,
+  BarElement,
+  CategoryScale,
+  Legend,
+  LinearScale,
+  Tooltip,
+  type ChartData,
+  type ChartOptions,
+} from 'chart.js';
 import { BaseChartDirective, provideCharts } from 'ng2-charts';
 import { injectThemeColours } from '../shared/theme-colours';
 import { cents, fullyMetered, money, monthKey, shortDay, wholeMoney } from './costs-format';
@@ -30,7 +31,14 @@ export function projectedAgainstMeter(n: MonthCosts['nights'][number]): number |
 export type NightsView = 'savings' | 'metered';
 
 type Colours = Record<'plan' | 'baseline' | 'projected' | 'metered' | 'text' | 'grid', string>;
-const FALLBACK: Colours = { plan: '#0d6b5e', baseline: '#c78a12', projected: '#4a635e', metered: '#c78a12', text: '#3f4946', grid: '#bfc9c5' };
+const FALLBACK: Colours = {
+  plan: '#0d6b5e',
+  baseline: '#c78a12',
+  projected: '#4a635e',
+  metered: '#c78a12',
+  text: '#3f4946',
+  grid: '#bfc9c5',
+};
 
 let nextId = 0;
 
@@ -42,7 +50,9 @@ let nextId = 0;
 @Component({
   selector: 'ny-nights-chart',
   imports: [BaseChartDirective, CsvExportButton, MatButtonToggleModule],
-  providers: [provideCharts({ registerables: [BarController, BarElement, CategoryScale, LinearScale, Legend, Tooltip] })],
+  providers: [
+    provideCharts({ registerables: [BarController, BarElement, CategoryScale, LinearScale, Legend, Tooltip] }),
+  ],
   changeDetection: ChangeDetectionStrategy.OnPush,
   templateUrl: './nights-chart.html',
   styleUrls: ['./costs-table.scss', './nights-chart.scss'],
@@ -70,7 +80,11 @@ export class NightsChart {
         ]
       : [
           // A partly metered night is compared over its metered intervals only.
-          { label: 'Site energy, projected (over the metered intervals)', colour: c.projected, data: nights.map(projectedAgainstMeter) },
+          {
+            label: 'Site energy, projected (over the metered intervals)',
+            colour: c.projected,
+            data: nights.map(projectedAgainstMeter),
+          },
           { label: 'Site energy, metered', colour: c.metered, data: nights.map((n) => n.actualSiteEnergyCost) },
         ];
   });
@@ -105,7 +119,8 @@ export class NightsChart {
         legend: { position: 'bottom', labels: { color: c.text, boxWidth: 14 } },
         tooltip: {
           callbacks: {
-            label: (ctx) => `${ctx.dataset.label}: ${ctx.raw === null ? 'no meter data' : money(Number(ctx.raw), currency)}`,
+            label: (ctx) =>
+              `${ctx.dataset.label}: ${ctx.raw === null ? 'no meter data' : money(Number(ctx.raw), currency)}`,
           },
         },
       },
@@ -140,7 +155,8 @@ export class NightsChart {
       return `${count} with a published plan. Their charging energy costs ${money(plan, c)} planned, against ${money(baseline, c)} under each night's baseline: ${money(baseline - plan, c)} saved on energy (demand is billed on the period's peak, see the savings card). Each night's figures are in the table under the chart.`;
     }
     const metered = nights.filter((n) => n.actualSiteEnergyCost !== null);
-    if (!metered.length) return `${count} with a published plan; no meter data covers any of them yet, so only the projected site energy cost is shown.`;
+    if (!metered.length)
+      return `${count} with a published plan; no meter data covers any of them yet, so only the projected site energy cost is shown.`;
     const full = metered.filter(fullyMetered);
     const partial = metered.length - full.length;
     const cover = `Meter data covers ${metered.length} of ${count}${partial ? ` (${partial} only in part: both bars of such a night cover its metered intervals only)` : ''}.`;
@@ -159,7 +175,9 @@ export class NightsChart {
       projected: money(n.projectedSiteEnergyCost, c),
       projectedMetered: n.actualSiteEnergyCost === null || fullyMetered(n) ? '—' : money(projectedAgainstMeter(n)!, c),
       metered:
-        n.actualSiteEnergyCost === null ? '—' : `${money(n.actualSiteEnergyCost, c)}${fullyMetered(n) ? '' : ' (part of the night)'}`,
+        n.actualSiteEnergyCost === null
+          ? '—'
+          : `${money(n.actualSiteEnergyCost, c)}${fullyMetered(n) ? '' : ' (part of the night)'}`,
     }));
   });
 
@@ -167,9 +185,18 @@ export class NightsChart {
   protected readonly csv = computed<CsvTable>(() => {
     const c = this.currency();
     return {
-      header: ['Night', `Charging energy, planned (${c})`, `Charging energy, baseline (${c})`, `Site energy projected (${c})`, `Site energy metered (${c})`],
+      header: [
+        'Night',
+        `Charging energy, planned (${c})`,
+        `Charging energy, baseline (${c})`,
+        `Site energy projected (${c})`,
+        `Site energy metered (${c})`,
+      ],
       rows: this.nights().map((n) => [
-        n.date, cents(n.planEnergyCost), n.baselineEnergyCost === null ? null : cents(n.baselineEnergyCost), cents(n.projectedSiteEnergyCost),
+        n.date,
+        cents(n.planEnergyCost),
+        n.baselineEnergyCost === null ? null : cents(n.baselineEnergyCost),
+        cents(n.projectedSiteEnergyCost),
         n.actualSiteEnergyCost === null ? null : cents(n.actualSiteEnergyCost),
       ]),
     };

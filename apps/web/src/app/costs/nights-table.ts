@@ -38,9 +38,22 @@ export class NightsTable {
     const nights = this.month().nights;
     const plan = nights.map((n) => toCents(n.planEnergyCost));
     const baseline = nights.map((n) => (n.baselineEnergyCost === null ? null : toCents(n.baselineEnergyCost)));
-    const saving = nights.map((_, i) => (baseline[i] === null ? null : Math.round((baseline[i]! - plan[i]!) * 100) / 100));
+    const saving = nights.map((_, i) =>
+      baseline[i] === null ? null : Math.round((baseline[i]! - plan[i]!) * 100) / 100,
+    );
     const projected = nights.map((n) => toCents(n.projectedSiteEnergyCost));
-    return { plan, baseline, saving, projected, totals: { plan: shownSum(plan), baseline: shownSum(baseline), saving: shownSum(saving), projected: shownSum(projected) } };
+    return {
+      plan,
+      baseline,
+      saving,
+      projected,
+      totals: {
+        plan: shownSum(plan),
+        baseline: shownSum(baseline),
+        saving: shownSum(saving),
+        projected: shownSum(projected),
+      },
+    };
   });
 
   protected readonly rows = computed(() => {
@@ -79,24 +92,46 @@ export class NightsTable {
     const c = this.currency();
     // Each column's total is the sum of the nights as shown.
     const t = this.shown().totals;
-    return { planEnergy: money(t.plan, c), baselineEnergy: money(t.baseline, c), saving: money(t.saving, c), projected: money(t.projected, c) };
+    return {
+      planEnergy: money(t.plan, c),
+      baselineEnergy: money(t.baseline, c),
+      saving: money(t.saving, c),
+      projected: money(t.projected, c),
+    };
   });
 
   protected readonly csv = computed<CsvTable>(() => {
     const c = this.currency();
     return {
       header: [
-        'Night', 'Plan version', `Charging energy, planned (${c})`, 'Baseline', `Charging energy, baseline (${c})`, `Energy saving (${c})`,
-        `Projected site energy cost (${c})`, `Metered site energy cost (${c})`, `Metered minus projected (${c})`,
-        'Projected peak (kW)', 'Baseline peak (kW)', 'Metered peak (kW)', 'Metered share of the night (%)',
+        'Night',
+        'Plan version',
+        `Charging energy, planned (${c})`,
+        'Baseline',
+        `Charging energy, baseline (${c})`,
+        `Energy saving (${c})`,
+        `Projected site energy cost (${c})`,
+        `Metered site energy cost (${c})`,
+        `Metered minus projected (${c})`,
+        'Projected peak (kW)',
+        'Baseline peak (kW)',
+        'Metered peak (kW)',
+        'Metered share of the night (%)',
       ],
       rows: this.month().nights.map((n, i) => [
-        n.date, n.version, this.shown().plan[i]!, n.baselineKind ? baselineName(n.baselineKind) : null,
+        n.date,
+        n.version,
+        this.shown().plan[i]!,
+        n.baselineKind ? baselineName(n.baselineKind) : null,
         this.shown().baseline[i] ?? null,
         this.shown().saving[i] ?? null,
-        this.shown().projected[i]!, n.actualSiteEnergyCost === null ? null : cents(n.actualSiteEnergyCost),
+        this.shown().projected[i]!,
+        n.actualSiteEnergyCost === null ? null : cents(n.actualSiteEnergyCost),
         fullyMetered(n) ? cents(n.actualSiteEnergyCost! - n.projectedSiteEnergyCost) : null,
-        n.projectedPeakKw, n.baselinePeakKw, n.actualPeakKw, Math.round(n.actualCoverage * 1000) / 10,
+        n.projectedPeakKw,
+        n.baselinePeakKw,
+        n.actualPeakKw,
+        Math.round(n.actualCoverage * 1000) / 10,
       ]),
     };
   });

@@ -6,14 +6,16 @@ import { YARD_CREW, hasAnyRole, type Charger } from '@nightyard/contracts';
 import { AuthStore } from '../auth/auth-store';
 import { timeAt } from '@nightyard/contracts/depot-time';
 
-
 export interface ChargerFault {
   label: string;
   since: string | null;
 }
 
 /** The chargers in service that report a fault now (live state), by label. */
-export function faultsOf(chargers: readonly Pick<Charger, 'label' | 'status' | 'live'>[], timeZone: string): ChargerFault[] {
+export function faultsOf(
+  chargers: readonly Pick<Charger, 'label' | 'status' | 'live'>[],
+  timeZone: string,
+): ChargerFault[] {
   return chargers
     .filter((c) => c.status === 'in_service' && c.live?.status === 'faulted')
     .map((c) => ({ label: c.label, since: c.live?.seenAt ? timeAt(c.live.seenAt, timeZone) : null }))
@@ -34,8 +36,8 @@ export function faultsOf(chargers: readonly Pick<Charger, 'label' | 'status' | '
       <div class="fault" role="alert" [attr.data-fault]="f.label">
         <mat-icon aria-hidden="true">report</mat-icon>
         <p>
-          <strong>Charger {{ f.label }} reports a fault</strong>{{ f.since ? ' (since ' + f.since + ', depot time)' : '' }}.
-          Do not use it until it is checked.
+          <strong>Charger {{ f.label }} reports a fault</strong
+          >{{ f.since ? ' (since ' + f.since + ', depot time)' : '' }}. Do not use it until it is checked.
           @if (!inYard() && !canReplan()) {
             Tell the yard staff or the supervisor: reporting it in Yard re-plans the night without it.
           }
@@ -57,14 +59,30 @@ export function faultsOf(chargers: readonly Pick<Charger, 'label' | 'status' | '
     }
   `,
   styles: `
-    :host { display: grid; gap: 8px; }
-    :host:empty { display: none; }
-    .fault {
-      display: flex; flex-wrap: wrap; align-items: center; gap: 8px 16px; padding: 12px 16px; border-radius: 12px;
-      background: var(--mat-sys-error-container); color: var(--mat-sys-on-error-container);
+    :host {
+      display: grid;
+      gap: 8px;
     }
-    p { flex: 1 1 280px; margin: 0; }
-    mat-icon { flex: none; }
+    :host:empty {
+      display: none;
+    }
+    .fault {
+      display: flex;
+      flex-wrap: wrap;
+      align-items: center;
+      gap: 8px 16px;
+      padding: 12px 16px;
+      border-radius: 12px;
+      background: var(--mat-sys-error-container);
+      color: var(--mat-sys-on-error-container);
+    }
+    p {
+      flex: 1 1 280px;
+      margin: 0;
+    }
+    mat-icon {
+      flex: none;
+    }
   `,
 })
 export class ChargerFaults {

@@ -30,9 +30,19 @@ import { DepotSummaryCard } from './depot-summary-card';
     }
   `,
   styles: `
-    :host { display: block; }
-    mat-progress-bar { max-width: 760px; }
-    .problem { display: flex; flex-wrap: wrap; align-items: center; gap: 8px 16px; color: var(--mat-sys-error); }
+    :host {
+      display: block;
+    }
+    mat-progress-bar {
+      max-width: 760px;
+    }
+    .problem {
+      display: flex;
+      flex-wrap: wrap;
+      align-items: center;
+      gap: 8px 16px;
+      color: var(--mat-sys-error);
+    }
   `,
 })
 export class CurrentDepot {

@@ -22,7 +22,11 @@ function page(): DestroyRef & { destroy(): void } {
 }
 
 const charger = (label: string, status: LiveCharger['status']): LiveCharger => ({
-  chargerId: `charger-${label}`, label, status, powerKw: null, seenAt: AT,
+  chargerId: `charger-${label}`,
+  label,
+  status,
+  powerKw: null,
+  seenAt: AT,
 });
 
 describe('LiveStore', () => {
@@ -77,7 +81,11 @@ describe('LiveStore', () => {
 
   it('starts each connection from its snapshot and applies changes on top', () => {
     const depot = store.watch(DEPOT, page());
-    live.last.events.next({ type: 'snapshot', at: AT, chargers: [charger('C1', 'available'), charger('C2', 'charging')] });
+    live.last.events.next({
+      type: 'snapshot',
+      at: AT,
+      chargers: [charger('C1', 'available'), charger('C2', 'charging')],
+    });
     live.last.events.next({ type: 'charger', at: AT, charger: charger('C1', 'faulted') });
     expect([...depot.chargers().values()].map((c) => c.status)).toEqual(['faulted', 'charging']);
     expect(depot.generation()).toBe(1);
@@ -86,7 +94,10 @@ describe('LiveStore', () => {
     live.last.events.next({ type: 'snapshot', at: AT, chargers: [charger('C2', 'available')] });
     expect([...depot.chargers().keys()]).toEqual(['charger-C2']);
     expect(depot.generation()).toBe(2);
-    const loaded: Pick<Charger, 'id' | 'live'>[] = [{ id: 'charger-C2', live: null }, { id: 'charger-C9', live: null }];
+    const loaded: Pick<Charger, 'id' | 'live'>[] = [
+      { id: 'charger-C2', live: null },
+      { id: 'charger-C9', live: null },
+    ];
     expect(depot.withLive(loaded).map((c) => c.live?.status ?? null)).toEqual(['available', null]);
   });
 

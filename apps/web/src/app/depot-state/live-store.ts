@@ -1,5 +1,14 @@
 import { HttpErrorResponse } from '@angular/common/http';
-import { type DestroyRef, type EffectRef, Injectable, type Injector, effect, inject, signal, untracked } from '@angular/core';
+import {
+  type DestroyRef,
+  type EffectRef,
+  Injectable,
+  type Injector,
+  effect,
+  inject,
+  signal,
+  untracked,
+} from '@angular/core';
 import type { Charger, LiveCharger, LiveEvent } from '@nightyard/contracts';
 import type { Subscription } from 'rxjs';
 import { LiveTransport } from './live-transport';

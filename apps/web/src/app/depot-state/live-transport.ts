@@ -44,4 +44,3 @@ function safeJson(text: string): unknown {
     return null;
   }
 }
-

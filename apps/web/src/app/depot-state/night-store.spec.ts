@@ -21,7 +21,7 @@ describe('NightStore', () => {
   });
   afterEach(() => mock.verify());
 
-  it("takes tonight from the server and asks once while that night lasts", async () => {
+  it('takes tonight from the server and asks once while that night lasts', async () => {
     const now = '2026-12-02T07:30:00.000Z'; // 01:30 at the depot
     clock.setServerTime(Date.parse(now));
     expect(store.tonightOf(DEPOT)).toBeNull();
@@ -54,7 +54,9 @@ describe('NightStore', () => {
   it("keeps pages usable with the depot's date when the API cannot say", async () => {
     clock.setServerTime(Date.parse('2026-12-02T07:30:00.000Z'));
     const loading = store.load(DEPOT);
-    mock.expectOne(URL).flush({ error: { code: 'internal', message: 'Down' } }, { status: 500, statusText: 'Server Error' });
+    mock
+      .expectOne(URL)
+      .flush({ error: { code: 'internal', message: 'Down' } }, { status: 500, statusText: 'Server Error' });
     await loading;
     expect(store.state()).toBe('failed');
     expect(store.tonightOf(DEPOT)).toBe('2026-12-02');

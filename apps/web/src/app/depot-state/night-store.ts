@@ -66,7 +66,9 @@ export class NightStore {
     }
     this.state.set('loading');
     this.error.set(null);
-    const promise = firstValueFrom(this.http.get<DepotNight | { night: DepotNight }>(`/api/depots/${encodeURIComponent(depot.id)}/night`))
+    const promise = firstValueFrom(
+      this.http.get<DepotNight | { night: DepotNight }>(`/api/depots/${encodeURIComponent(depot.id)}/night`),
+    )
       .then(
         (body) => {
           // The contract's object itself; read a `{ night }` envelope too, as other routes answer.

@@ -72,8 +72,14 @@ export class CabinetDialog {
 
   protected readonly error = errorText;
   protected readonly form = new FormGroup({
-    label: new FormControl(this.data.cabinet?.label ?? '', { nonNullable: true, validators: zodValidator(shape.label, 'Label the cabinet') }),
-    limitKw: new FormControl<number | null>(this.data.cabinet?.limitKw ?? null, zodValidator(shape.limitKw, 'Enter the cabinet limit in kW')),
+    label: new FormControl(this.data.cabinet?.label ?? '', {
+      nonNullable: true,
+      validators: zodValidator(shape.label, 'Label the cabinet'),
+    }),
+    limitKw: new FormControl<number | null>(
+      this.data.cabinet?.limitKw ?? null,
+      zodValidator(shape.limitKw, 'Enter the cabinet limit in kW'),
+    ),
   });
   protected readonly busy = signal(false);
   protected readonly problem = signal<string | null>(null);

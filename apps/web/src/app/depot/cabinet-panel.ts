@@ -15,7 +15,9 @@ import { formatKw } from './depot-setup-format';
       <div class="panel-header">
         <h2 id="depot-cabinets-heading">Power cabinets</h2>
         @if (canEdit()) {
-          <button mat-stroked-button type="button" (click)="add.emit()"><mat-icon>add</mat-icon>Add power cabinet</button>
+          <button mat-stroked-button type="button" (click)="add.emit()">
+            <mat-icon>add</mat-icon>Add power cabinet
+          </button>
         }
       </div>
       <p class="hint">Chargers on one power cabinet share its limit: plans keep their total under it.</p>
@@ -28,14 +30,26 @@ import { formatKw } from './depot-setup-format';
               <div class="main">
                 <span class="label">{{ r.cabinet.label }}</span>
                 <span class="meta">Shared limit {{ kw(r.cabinet.limitKw) }}</span>
-                <span class="meta">{{ r.labels ? 'Chargers: ' + r.labels + ' (' + kw(r.sum) + ' together)' : 'No chargers yet' }}</span>
+                <span class="meta">{{
+                  r.labels ? 'Chargers: ' + r.labels + ' (' + kw(r.sum) + ' together)' : 'No chargers yet'
+                }}</span>
               </div>
               @if (canEdit()) {
                 <div class="row-actions">
-                  <button mat-icon-button type="button" [attr.aria-label]="'Edit power cabinet ' + r.cabinet.label" (click)="edit.emit(r.cabinet)">
+                  <button
+                    mat-icon-button
+                    type="button"
+                    [attr.aria-label]="'Edit power cabinet ' + r.cabinet.label"
+                    (click)="edit.emit(r.cabinet)"
+                  >
                     <mat-icon>edit</mat-icon>
                   </button>
-                  <button mat-icon-button type="button" [attr.aria-label]="'Remove power cabinet ' + r.cabinet.label" (click)="remove.emit(r.cabinet)">
+                  <button
+                    mat-icon-button
+                    type="button"
+                    [attr.aria-label]="'Remove power cabinet ' + r.cabinet.label"
+                    (click)="remove.emit(r.cabinet)"
+                  >
                     <mat-icon>delete</mat-icon>
                   </button>
                 </div>
@@ -46,7 +60,9 @@ import { formatKw } from './depot-setup-format';
       } @else {
         <div class="table-scroll" role="region" aria-label="Power cabinets table" tabindex="0">
           <table mat-table [dataSource]="rows()" class="cabinets">
-            <caption class="ny-visually-hidden">Power cabinets with their shared limit and chargers</caption>
+            <caption class="ny-visually-hidden">
+              Power cabinets with their shared limit and chargers
+            </caption>
             <ng-container matColumnDef="label">
               <th mat-header-cell *matHeaderCellDef scope="col">Cabinet</th>
               <td mat-cell *matCellDef="let r" class="label">{{ r.cabinet.label }}</td>
@@ -66,10 +82,20 @@ import { formatKw } from './depot-setup-format';
             <ng-container matColumnDef="actions">
               <th mat-header-cell *matHeaderCellDef scope="col"><span class="ny-visually-hidden">Actions</span></th>
               <td mat-cell *matCellDef="let r" class="row-actions">
-                <button mat-icon-button type="button" [attr.aria-label]="'Edit power cabinet ' + r.cabinet.label" (click)="edit.emit(r.cabinet)">
+                <button
+                  mat-icon-button
+                  type="button"
+                  [attr.aria-label]="'Edit power cabinet ' + r.cabinet.label"
+                  (click)="edit.emit(r.cabinet)"
+                >
                   <mat-icon>edit</mat-icon>
                 </button>
-                <button mat-icon-button type="button" [attr.aria-label]="'Remove power cabinet ' + r.cabinet.label" (click)="remove.emit(r.cabinet)">
+                <button
+                  mat-icon-button
+                  type="button"
+                  [attr.aria-label]="'Remove power cabinet ' + r.cabinet.label"
+                  (click)="remove.emit(r.cabinet)"
+                >
                   <mat-icon>delete</mat-icon>
                 </button>
               </td>
@@ -83,19 +109,49 @@ import { formatKw } from './depot-setup-format';
   `,
   styleUrl: '../shared/panel.scss',
   styles: `
-    .cabinets { width: 100%; min-width: 560px; }
-    .label { font-weight: 600; }
-    .row-actions { width: 96px; text-align: end; white-space: nowrap; }
+    .cabinets {
+      width: 100%;
+      min-width: 560px;
+    }
+    .label {
+      font-weight: 600;
+    }
+    .row-actions {
+      width: 96px;
+      text-align: end;
+      white-space: nowrap;
+    }
     .cabinet-list {
-      margin: 0; padding: 0; list-style: none;
+      margin: 0;
+      padding: 0;
+      list-style: none;
       border: 1px solid var(--mat-sys-outline-variant);
       border-radius: var(--mat-sys-corner-small);
     }
-    .cabinet-list li { display: flex; align-items: flex-start; gap: 8px; padding: 10px 4px 10px 12px; }
-    .cabinet-list li + li { border-top: 1px solid var(--mat-sys-outline-variant); }
-    .cabinet-list .main { display: flex; flex: 1 1 auto; flex-direction: column; gap: 2px; min-width: 0; }
-    .cabinet-list .meta { color: var(--mat-sys-on-surface-variant); font: var(--mat-sys-body-medium); }
-    .cabinet-list .row-actions { width: auto; flex: none; }
+    .cabinet-list li {
+      display: flex;
+      align-items: flex-start;
+      gap: 8px;
+      padding: 10px 4px 10px 12px;
+    }
+    .cabinet-list li + li {
+      border-top: 1px solid var(--mat-sys-outline-variant);
+    }
+    .cabinet-list .main {
+      display: flex;
+      flex: 1 1 auto;
+      flex-direction: column;
+      gap: 2px;
+      min-width: 0;
+    }
+    .cabinet-list .meta {
+      color: var(--mat-sys-on-surface-variant);
+      font: var(--mat-sys-body-medium);
+    }
+    .cabinet-list .row-actions {
+      width: auto;
+      flex: none;
+    }
   `,
   changeDetection: ChangeDetectionStrategy.OnPush,
 })

@@ -25,7 +25,7 @@ describe('charger form', () => {
     expect(form.valid).toBe(true);
   });
 
-  it('checks label and maximum with the API contract\'s words', () => {
+  it("checks label and maximum with the API contract's words", () => {
     const form = chargerForm();
     expect(form.controls.label.getError('zod')).toBe('Label the charger');
     form.controls.maxKw.setValue(-5);
@@ -38,8 +38,14 @@ describe('charger form', () => {
     const form = chargerForm(charger({ label: 'C1', status: 'out_of_service', statusReason: 'Old reason' }));
     form.controls.status.setValue('in_service');
     expect(chargerInput(form)).toEqual({
-      label: 'C1', maxKw: 60, connector: 'SAE J1772 CCS1', cabinetId: null, status: 'in_service', statusReason: null,
-      outFrom: null, outUntil: null,
+      label: 'C1',
+      maxKw: 60,
+      connector: 'SAE J1772 CCS1',
+      cabinetId: null,
+      status: 'in_service',
+      statusReason: null,
+      outFrom: null,
+      outUntil: null,
     });
   });
 });
@@ -60,7 +66,10 @@ describe('ChargerDialog', () => {
       providers: [
         provideHttpClient(),
         provideHttpClientTesting(),
-        { provide: MatDialogRef, useValue: { close, keydownEvents: () => keys, backdropClick: () => new Subject<MouseEvent>() } },
+        {
+          provide: MatDialogRef,
+          useValue: { close, keydownEvents: () => keys, backdropClick: () => new Subject<MouseEvent>() },
+        },
         { provide: MAT_DIALOG_DATA, useValue: data },
       ],
     });
@@ -90,7 +99,9 @@ describe('ChargerDialog', () => {
   }
 
   function radio(label: string) {
-    return [...el.querySelectorAll('mat-radio-button')].find((r) => r.textContent?.trim() === label)!.querySelector('input')!;
+    return [...el.querySelectorAll('mat-radio-button')]
+      .find((r) => r.textContent?.trim() === label)!
+      .querySelector('input')!;
   }
 
   it('refuses to save an out-of-service charger without a reason', async () => {
@@ -107,7 +118,12 @@ describe('ChargerDialog', () => {
     type(input('Reason it is out of service'), 'Cable damaged');
     await save();
     const req = mock.expectOne(`/api/depots/${DEPOT_ID}/chargers`);
-    expect(req.request.body).toMatchObject({ label: 'D3', maxKw: 120, status: 'out_of_service', statusReason: 'Cable damaged' });
+    expect(req.request.body).toMatchObject({
+      label: 'D3',
+      maxKw: 120,
+      status: 'out_of_service',
+      statusReason: 'Cable damaged',
+    });
     req.flush({ charger: charger({ label: 'D3' }) }, { status: 201, statusText: 'Created' });
     await settle();
     expect(close).toHaveBeenCalled();
@@ -140,21 +156,33 @@ describe('ChargerDialog', () => {
     expect(close).toHaveBeenCalledWith({ ...saved, ocppIdentity: 'OLD-D4' });
   });
 
-  it('shows the API\'s cabinet error on the cabinet field', async () => {
+  it("shows the API's cabinet error on the cabinet field", async () => {
     type(input('Label'), 'D3');
     type(input('Maximum power'), '120');
-    (fixture.componentInstance as unknown as { form: ReturnType<typeof chargerForm> }).form.controls.cabinetId.setValue(CABINET_ID);
+    (fixture.componentInstance as unknown as { form: ReturnType<typeof chargerForm> }).form.controls.cabinetId.setValue(
+      CABINET_ID,
+    );
     await save();
     mock.expectOne(`/api/depots/${DEPOT_ID}/chargers`).flush(
-      { error: { code: 'validation_failed', message: 'That power cabinet is not in this depot', fields: { cabinetId: 'Choose a cabinet of this depot' } } },
+      {
+        error: {
+          code: 'validation_failed',
+          message: 'That power cabinet is not in this depot',
+          fields: { cabinetId: 'Choose a cabinet of this depot' },
+        },
+      },
       { status: 400, statusText: 'Bad Request' },
     );
     await settle();
     await fixture.whenStable();
     fixture.detectChanges();
-    const cabinetField = [...el.querySelectorAll('mat-form-field')].find((f) => f.textContent?.includes('Power cabinet'))!;
+    const cabinetField = [...el.querySelectorAll('mat-form-field')].find((f) =>
+      f.textContent?.includes('Power cabinet'),
+    )!;
     expect(cabinetField.querySelector('mat-error')?.textContent?.trim()).toBe('Choose a cabinet of this depot');
-    expect(el.querySelector('[aria-live="assertive"]')?.textContent).toContain('That power cabinet is not in this depot');
+    expect(el.querySelector('[aria-live="assertive"]')?.textContent).toContain(
+      'That power cabinet is not in this depot',
+    );
     expect(close).not.toHaveBeenCalled();
   });
 });

@@ -9,7 +9,13 @@ import { MatInputModule } from '@angular/material/input';
 import { MatProgressBarModule } from '@angular/material/progress-bar';
 import { MatRadioModule } from '@angular/material/radio';
 import { MatSelectModule } from '@angular/material/select';
-import { CONNECTOR_STANDARDS, chargerInputSchema, type Cabinet, type Charger, type ChargerInput } from '@nightyard/contracts';
+import {
+  CONNECTOR_STANDARDS,
+  chargerInputSchema,
+  type Cabinet,
+  type Charger,
+  type ChargerInput,
+} from '@nightyard/contracts';
 import { toApiProblem } from '../core/api-error';
 import { applyServerErrors, errorText, zodValidator } from '../shared/form-paths';
 import { guardDiscard } from '../shared/discard-guard';
@@ -40,7 +46,10 @@ function ocppPasswordCheck(current: string | null): ValidatorFn {
   return (control) => {
     const v = typeof control.value === 'string' ? control.value : '';
     const identity = (control.parent?.get('ocppIdentity')?.value as string | undefined)?.trim() ?? '';
-    if (!v) return identity && identity !== current ? { zod: 'Enter the password the charger will use (16 to 40 characters)' } : null;
+    if (!v)
+      return identity && identity !== current
+        ? { zod: 'Enter the password the charger will use (16 to 40 characters)' }
+        : null;
     if (v.length < 16) return { zod: 'Use at least 16 characters' };
     if (v.length > 40) return { zod: 'OCPP limits the password to 40 characters' };
     return null;
@@ -67,8 +76,14 @@ const reasonWhenOut: ValidatorFn = (control) => {
 
 export function chargerForm(c?: Charger) {
   return new FormGroup({
-    label: new FormControl(c?.label ?? '', { nonNullable: true, validators: zodValidator(shape.label, 'Label the charger') }),
-    maxKw: new FormControl<number | null>(c?.maxKw ?? null, zodValidator(shape.maxKw, "Enter the charger's maximum in kW")),
+    label: new FormControl(c?.label ?? '', {
+      nonNullable: true,
+      validators: zodValidator(shape.label, 'Label the charger'),
+    }),
+    maxKw: new FormControl<number | null>(
+      c?.maxKw ?? null,
+      zodValidator(shape.maxKw, "Enter the charger's maximum in kW"),
+    ),
     connector: new FormControl(c?.connector ?? CONNECTOR_STANDARDS[0], {
       nonNullable: true,
       validators: zodValidator(shape.connector, 'Choose the connector standard'),
@@ -101,7 +116,11 @@ export function chargerInput(form: ChargerForm): ChargerInput {
 }
 
 /** Why a charger's maximum is unlikely, or null: above the service, or above its cabinet. */
-export function chargerKwWarning(maxKw: number | null, serviceLimitKw: number | undefined, cabinet: Cabinet | undefined): string | null {
+export function chargerKwWarning(
+  maxKw: number | null,
+  serviceLimitKw: number | undefined,
+  cabinet: Cabinet | undefined,
+): string | null {
   if (maxKw === null || !(maxKw > 0)) return null;
   if (serviceLimitKw !== undefined && maxKw > serviceLimitKw) {
     return `${formatKw(maxKw)} is above the depot's ${formatKw(serviceLimitKw)} service: a charger cannot draw more than the site's connection. Check the figure.`;
@@ -147,7 +166,9 @@ export class ChargerDialog {
   protected readonly problemItems = signal<ProblemItem[]>([]);
   protected readonly title = this.data.charger ? `Edit charger ${this.data.charger.label}` : 'Add a charger';
 
-  protected readonly connectors: readonly string[] = (CONNECTOR_STANDARDS as readonly string[]).includes(this.form.controls.connector.value)
+  protected readonly connectors: readonly string[] = (CONNECTOR_STANDARDS as readonly string[]).includes(
+    this.form.controls.connector.value,
+  )
     ? CONNECTOR_STANDARDS
     : [...CONNECTOR_STANDARDS, this.form.controls.connector.value];
   protected readonly cabinets = this.data.cabinets.map((cab) => ({
@@ -155,19 +176,33 @@ export class ChargerDialog {
     text: `${cab.label} (${formatKw(cab.limitKw)} shared)`,
   }));
 
-  protected readonly status = toSignal(this.form.controls.status.valueChanges, { initialValue: this.form.controls.status.value });
-  private readonly cabinetId = toSignal(this.form.controls.cabinetId.valueChanges, { initialValue: this.form.controls.cabinetId.value });
+  protected readonly status = toSignal(this.form.controls.status.valueChanges, {
+    initialValue: this.form.controls.status.value,
+  });
+  private readonly cabinetId = toSignal(this.form.controls.cabinetId.valueChanges, {
+    initialValue: this.form.controls.cabinetId.value,
+  });
   /** Who else shares the chosen cabinet. */
   protected readonly cabinetNote = computed(() => {
     const cab = this.data.cabinets.find((c) => c.id === this.cabinetId());
     if (!cab) return 'Draws straight from the site service';
-    const others = this.data.chargers.filter((c) => c.cabinetId === cab.id && c.id !== this.data.charger?.id).map((c) => c.label);
-    return others.length ? `Shares ${formatKw(cab.limitKw)} with ${others.join(', ')}` : `Has ${formatKw(cab.limitKw)} to itself for now`;
+    const others = this.data.chargers
+      .filter((c) => c.cabinetId === cab.id && c.id !== this.data.charger?.id)
+      .map((c) => c.label);
+    return others.length
+      ? `Shares ${formatKw(cab.limitKw)} with ${others.join(', ')}`
+      : `Has ${formatKw(cab.limitKw)} to itself for now`;
   });
 
-  private readonly maxKw = toSignal(this.form.controls.maxKw.valueChanges, { initialValue: this.form.controls.maxKw.value });
+  private readonly maxKw = toSignal(this.form.controls.maxKw.valueChanges, {
+    initialValue: this.form.controls.maxKw.value,
+  });
   protected readonly kwWarning = computed(() =>
-    chargerKwWarning(this.maxKw(), this.data.serviceLimitKw, this.data.cabinets.find((c) => c.id === this.cabinetId())),
+    chargerKwWarning(
+      this.maxKw(),
+      this.data.serviceLimitKw,
+      this.data.cabinets.find((c) => c.id === this.cabinetId()),
+    ),
   );
   /** The unlikely figure was confirmed (asked again when it changes). */
   protected readonly kwConfirmed = signal(false);
@@ -178,7 +213,9 @@ export class ChargerDialog {
     guardDiscard(this.form, 'the changes to this charger');
     this.form.controls.status.valueChanges.subscribe(() => this.form.controls.statusReason.updateValueAndValidity());
     this.form.controls.outFrom.valueChanges.subscribe(() => this.form.controls.outUntil.updateValueAndValidity());
-    this.form.controls.ocppIdentity.valueChanges.subscribe(() => this.form.controls.ocppPassword.updateValueAndValidity());
+    this.form.controls.ocppIdentity.valueChanges.subscribe(() =>
+      this.form.controls.ocppPassword.updateValueAndValidity(),
+    );
     this.form.controls.maxKw.valueChanges.subscribe(() => {
       this.kwConfirmed.set(false);
       this.kwMissing.set(false);
@@ -190,7 +227,11 @@ export class ChargerDialog {
     this.problemItems.set([]);
     if (this.form.invalid) {
       this.form.markAllAsTouched();
-      queueMicrotask(() => this.host.nativeElement.querySelector<HTMLElement>('input.ng-invalid, textarea.ng-invalid, mat-select.ng-invalid')?.focus());
+      queueMicrotask(() =>
+        this.host.nativeElement
+          .querySelector<HTMLElement>('input.ng-invalid, textarea.ng-invalid, mat-select.ng-invalid')
+          ?.focus(),
+      );
       return;
     }
     if (this.kwWarning() && !this.kwConfirmed()) {

@@ -15,7 +15,9 @@ export type ChargerSortKey = 'label' | 'maxKw' | 'connector' | 'cabinet' | 'stat
 /** "from Dec 10 06:00 until Dec 12 18:00" (depot time), or null without a period. */
 export function outPeriod(c: Pick<Charger, 'outFrom' | 'outUntil'>): string | null {
   const show = (local: string) => `${local.slice(0, 10)} ${local.slice(11, 16)}`;
-  const parts = [c.outFrom ? `from ${show(c.outFrom)}` : '', c.outUntil ? `until ${show(c.outUntil)}` : ''].filter(Boolean);
+  const parts = [c.outFrom ? `from ${show(c.outFrom)}` : '', c.outUntil ? `until ${show(c.outUntil)}` : ''].filter(
+    Boolean,
+  );
   return parts.length ? parts.join(' ') : null;
 }
 
@@ -75,7 +77,16 @@ function liveText(c: Charger): string | null {
 /** The depot's chargers: sortable by each column, filtered by text and status. */
 @Component({
   selector: 'ny-charger-table',
-  imports: [NgTemplateOutlet, MatButtonModule, MatFormFieldModule, MatIconModule, MatInputModule, MatSelectModule, MatSortModule, MatTableModule],
+  imports: [
+    NgTemplateOutlet,
+    MatButtonModule,
+    MatFormFieldModule,
+    MatIconModule,
+    MatInputModule,
+    MatSelectModule,
+    MatSortModule,
+    MatTableModule,
+  ],
   templateUrl: './charger-table.html',
   styleUrls: ['../shared/panel.scss', './charger-table.scss'],
   changeDetection: ChangeDetectionStrategy.OnPush,
@@ -94,7 +105,9 @@ export class ChargerTable {
   protected readonly sort = signal<Sort>({ active: 'label', direction: 'asc' });
 
   protected readonly columns = computed(() =>
-    this.canEdit() ? ['label', 'maxKw', 'connector', 'cabinet', 'status', 'actions'] : ['label', 'maxKw', 'connector', 'cabinet', 'status'],
+    this.canEdit()
+      ? ['label', 'maxKw', 'connector', 'cabinet', 'status', 'actions']
+      : ['label', 'maxKw', 'connector', 'cabinet', 'status'],
   );
   protected readonly rows = computed(() =>
     viewChargers(this.chargers(), {

@@ -90,6 +90,8 @@ export class DepotApi {
   }
 
   saveYardCrew(depotId: string, body: YardCrew): Promise<YardCrew> {
-    return firstValueFrom(this.http.put<{ yardCrew: YardCrew }>(this.url(depotId, 'yard-crew'), body).pipe(map((r) => r.yardCrew)));
+    return firstValueFrom(
+      this.http.put<{ yardCrew: YardCrew }>(this.url(depotId, 'yard-crew'), body).pipe(map((r) => r.yardCrew)),
+    );
   }
 }

@@ -15,7 +15,9 @@ describe('DepotPage', () => {
   let mock: HttpTestingController;
 
   beforeEach(() => {
-    TestBed.configureTestingModule({ providers: [provideRouter([]), provideHttpClient(), provideHttpClientTesting(), provideFakeLive()] });
+    TestBed.configureTestingModule({
+      providers: [provideRouter([]), provideHttpClient(), provideHttpClientTesting(), provideFakeLive()],
+    });
     mock = TestBed.inject(HttpTestingController);
   });
 
@@ -36,13 +38,25 @@ describe('DepotPage', () => {
     fixture.detectChanges();
   }
 
-  const buttons = () => [...el.querySelectorAll('button, a')].map((b) => (b.getAttribute('aria-label') ?? b.textContent ?? '').replace(/\s+/g, ' ').trim());
+  const buttons = () =>
+    [...el.querySelectorAll('button, a')].map((b) =>
+      (b.getAttribute('aria-label') ?? b.textContent ?? '').replace(/\s+/g, ' ').trim(),
+    );
 
   it('lets a facilities manager change every part of the depot', async () => {
     await render(['facilities']);
     expect(el.querySelector('h1')?.textContent).toBe('Depot');
     const names = buttons();
-    for (const name of ['editEdit site', 'addAdd charger', 'Edit charger D1', 'Remove charger D1', 'addAdd power cabinet', 'Edit power cabinet Cabinet A', 'edit_calendarEdit windows', 'editEdit peaks']) {
+    for (const name of [
+      'editEdit site',
+      'addAdd charger',
+      'Edit charger D1',
+      'Remove charger D1',
+      'addAdd power cabinet',
+      'Edit power cabinet Cabinet A',
+      'edit_calendarEdit windows',
+      'editEdit peaks',
+    ]) {
       expect(names).toContain(name);
     }
   });
@@ -55,7 +69,7 @@ describe('DepotPage', () => {
     expect(el.textContent).toContain('Cabinet A');
     expect(el.textContent).toContain('Utility event');
     expect(el.textContent).toContain('212 kW');
-    expect(el.textContent).toContain('You can read the depot\'s set-up.');
+    expect(el.textContent).toContain("You can read the depot's set-up.");
     expect(buttons().filter((b) => /Edit|Add|Remove/.test(b))).toEqual([]);
     expect(el.querySelector('form')).toBeNull();
   });
@@ -65,7 +79,8 @@ describe('DepotPage', () => {
     await render(['facilities', 'supervisor'], detail);
     const d1 = detail.chargers.find((c) => c.label === 'D1')!;
     TestBed.inject(FakeLiveTransport).last.events.next({
-      type: 'charger', at: '2026-12-02T04:00:00.000Z',
+      type: 'charger',
+      at: '2026-12-02T04:00:00.000Z',
       charger: { chargerId: d1.id, label: 'D1', status: 'faulted', powerKw: null, seenAt: '2026-12-02T04:00:00.000Z' },
     });
     await settle();

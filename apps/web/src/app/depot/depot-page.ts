@@ -1,4 +1,13 @@
-import { ChangeDetectionStrategy, Component, DestroyRef, Injector, computed, inject, signal, type EffectRef } from '@angular/core';
+import {
+  ChangeDetectionStrategy,
+  Component,
+  DestroyRef,
+  Injector,
+  computed,
+  inject,
+  signal,
+  type EffectRef,
+} from '@angular/core';
 import { MatButtonModule } from '@angular/material/button';
 import { MatDialog } from '@angular/material/dialog';
 import { MatIconModule } from '@angular/material/icon';
@@ -132,9 +141,20 @@ export class DepotPage {
   protected openCharger(charger?: Charger): void {
     const d = this.depot();
     if (!d) return;
-    const data: ChargerDialogData = { depotId: d.id, charger, cabinets: d.cabinets, chargers: d.chargers, serviceLimitKw: d.serviceLimitKw };
+    const data: ChargerDialogData = {
+      depotId: d.id,
+      charger,
+      cabinets: d.cabinets,
+      chargers: d.chargers,
+      serviceLimitKw: d.serviceLimitKw,
+    };
     this.dialog
-      .open<ChargerDialog, ChargerDialogData, Charger>(ChargerDialog, { data, width: '560px', maxWidth: '95vw', autoFocus: 'first-tabbable' })
+      .open<ChargerDialog, ChargerDialogData, Charger>(ChargerDialog, {
+        data,
+        width: '560px',
+        maxWidth: '95vw',
+        autoFocus: 'first-tabbable',
+      })
       .afterClosed()
       .subscribe((saved) => {
         if (!saved) return;
@@ -146,21 +166,28 @@ export class DepotPage {
   protected removeCharger(charger: Charger): void {
     const d = this.depot();
     if (!d) return;
-    this.confirm({
-      title: `Remove charger ${charger.label}?`,
-      message: `Plans stop using ${charger.label} from now on. To take it out for a while, mark it out of service instead.`,
-      confirm: 'Remove',
-    }, async () => {
-      await this.api.removeCharger(d.id, charger.id);
-      this.snackBar.open(`Charger ${charger.label} removed`, 'OK');
-    });
+    this.confirm(
+      {
+        title: `Remove charger ${charger.label}?`,
+        message: `Plans stop using ${charger.label} from now on. To take it out for a while, mark it out of service instead.`,
+        confirm: 'Remove',
+      },
+      async () => {
+        await this.api.removeCharger(d.id, charger.id);
+        this.snackBar.open(`Charger ${charger.label} removed`, 'OK');
+      },
+    );
   }
 
   protected openCabinet(cabinet?: Cabinet): void {
     const d = this.depot();
     if (!d) return;
     this.dialog
-      .open<CabinetDialog, CabinetDialogData, Cabinet>(CabinetDialog, { data: { depotId: d.id, cabinet }, width: '480px', maxWidth: '95vw' })
+      .open<CabinetDialog, CabinetDialogData, Cabinet>(CabinetDialog, {
+        data: { depotId: d.id, cabinet },
+        width: '480px',
+        maxWidth: '95vw',
+      })
       .afterClosed()
       .subscribe((saved) => {
         if (!saved) return;
@@ -175,21 +202,27 @@ export class DepotPage {
     // A cabinet with chargers on it cannot go (the server refuses): say so, and offer no Remove.
     const on = d.chargers.filter((c) => c.cabinetId === cabinet.id).map((c) => c.label);
     if (on.length) {
-      this.confirm({
-        title: `Power cabinet ${cabinet.label} cannot be removed yet`,
-        message: `${on.length === 1 ? `Charger ${on[0]} is` : `Chargers ${on.join(', ')} are`} on ${cabinet.label}. Move ${on.length === 1 ? 'it' : 'them'} to another cabinet, or to no cabinet, under Chargers first; then remove the cabinet.`,
-        confirm: null,
-      }, async () => undefined);
+      this.confirm(
+        {
+          title: `Power cabinet ${cabinet.label} cannot be removed yet`,
+          message: `${on.length === 1 ? `Charger ${on[0]} is` : `Chargers ${on.join(', ')} are`} on ${cabinet.label}. Move ${on.length === 1 ? 'it' : 'them'} to another cabinet, or to no cabinet, under Chargers first; then remove the cabinet.`,
+          confirm: null,
+        },
+        async () => undefined,
+      );
       return;
     }
-    this.confirm({
-      title: `Remove power cabinet ${cabinet.label}?`,
-      message: `${cabinet.label} has no chargers on it. Plans stop counting its limit from now on.`,
-      confirm: 'Remove',
-    }, async () => {
-      await this.api.removeCabinet(d.id, cabinet.id);
-      this.snackBar.open(`Power cabinet ${cabinet.label} removed`, 'OK');
-    });
+    this.confirm(
+      {
+        title: `Remove power cabinet ${cabinet.label}?`,
+        message: `${cabinet.label} has no chargers on it. Plans stop counting its limit from now on.`,
+        confirm: 'Remove',
+      },
+      async () => {
+        await this.api.removeCabinet(d.id, cabinet.id);
+        this.snackBar.open(`Power cabinet ${cabinet.label} removed`, 'OK');
+      },
+    );
   }
 
   private confirm(data: ConfirmData, action: () => Promise<void>): void {

@@ -1,4 +1,14 @@
-import { ChangeDetectionStrategy, Component, DestroyRef, computed, inject, input, output, signal, type OnInit } from '@angular/core';
+import {
+  ChangeDetectionStrategy,
+  Component,
+  DestroyRef,
+  computed,
+  inject,
+  input,
+  output,
+  signal,
+  type OnInit,
+} from '@angular/core';
 import { FormArray, FormControl, FormGroup, ReactiveFormsModule } from '@angular/forms';
 import { MatAutocompleteModule } from '@angular/material/autocomplete';
 import { MatButtonModule } from '@angular/material/button';
@@ -29,7 +39,8 @@ export function serviceLimitWarning(kw: number | null, largestChargerKw: number)
   if (kw > PLAUSIBLE_SERVICE_KW) {
     return `${formatKw(kw)} is above 50 MW, far more than a bus depot's connection: check the figure (kW, not W).`;
   }
-  if (largestChargerKw > kw) return `${formatKw(kw)} is below the depot's largest charger (${formatKw(largestChargerKw)}). Check the figure.`;
+  if (largestChargerKw > kw)
+    return `${formatKw(kw)} is below the depot's largest charger (${formatKw(largestChargerKw)}). Check the figure.`;
   return null;
 }
 const shape = depotSettingsSchema.shape;
@@ -43,9 +54,17 @@ function settingsForm(d: DepotDetail) {
       nonNullable: true,
       validators: zodValidator(shape.timezone, 'Choose an IANA time zone such as America/Chicago'),
     }),
-    serviceLimitKw: new FormControl<number | null>(d.serviceLimitKw, zodValidator(shape.serviceLimitKw, 'Enter the service limit in kW')),
-    billingStartDay: new FormControl<number | null>(d.billingStartDay, zodValidator(shape.billingStartDay, 'Enter a day from 1 to 28')),
-    otherLoadMode: new FormControl<'flat' | 'profile'>(d.otherLoadKw.length === 24 ? 'profile' : 'flat', { nonNullable: true }),
+    serviceLimitKw: new FormControl<number | null>(
+      d.serviceLimitKw,
+      zodValidator(shape.serviceLimitKw, 'Enter the service limit in kW'),
+    ),
+    billingStartDay: new FormControl<number | null>(
+      d.billingStartDay,
+      zodValidator(shape.billingStartDay, 'Enter a day from 1 to 28'),
+    ),
+    otherLoadMode: new FormControl<'flat' | 'profile'>(d.otherLoadKw.length === 24 ? 'profile' : 'flat', {
+      nonNullable: true,
+    }),
     otherLoadKw: new FormArray(d.otherLoadKw.map((kw) => loadControl(kw))),
   });
 }
@@ -114,7 +133,9 @@ export class DepotSettingsPanel implements OnInit {
 
   protected edit(): void {
     const form = settingsForm(this.depot());
-    form.controls.timezone.valueChanges.pipe(startWith(form.controls.timezone.value)).subscribe((v) => this.zoneQuery.set(v));
+    form.controls.timezone.valueChanges
+      .pipe(startWith(form.controls.timezone.value))
+      .subscribe((v) => this.zoneQuery.set(v));
     form.controls.serviceLimitKw.valueChanges.pipe(startWith(form.controls.serviceLimitKw.value)).subscribe((v) => {
       this.limitKw.set(v);
       this.limitConfirmed.set(false);
@@ -179,4 +200,3 @@ export class DepotSettingsPanel implements OnInit {
     }
   }
 }
-

@@ -76,13 +76,21 @@ describe('LoadReductionWindowsPanel', () => {
     });
     // The API names rows by index ("[1].start"): the message lands on that row's field.
     req.flush(
-      { error: { code: 'validation_failed', message: 'Check the load-reduction windows', fields: { '[1].start': 'Overlaps the window starting 2026-12-11T15:00' } } },
+      {
+        error: {
+          code: 'validation_failed',
+          message: 'Check the load-reduction windows',
+          fields: { '[1].start': 'Overlaps the window starting 2026-12-11T15:00' },
+        },
+      },
       { status: 400, statusText: 'Bad Request' },
     );
     await refresh();
     expect(errorsOf(rows()[1]!)).toEqual(['Overlaps the window starting 2026-12-11T15:00']);
     expect(errorsOf(rows()[0]!)).toEqual([]);
-    expect(el.querySelector('[aria-live="assertive"]')?.textContent).toContain('Check the load-reduction windows. Nothing was saved.');
+    expect(el.querySelector('[aria-live="assertive"]')?.textContent).toContain(
+      'Check the load-reduction windows. Nothing was saved.',
+    );
   });
 
   it('refuses overlaps and limits above the service limit before sending, naming the row', async () => {

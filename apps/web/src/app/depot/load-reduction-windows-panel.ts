@@ -33,9 +33,18 @@ const endAfterStart: ValidatorFn = (group) => {
 function windowGroup(w?: LoadReductionWindow) {
   return new FormGroup(
     {
-      start: new FormControl(w?.start ?? '', { nonNullable: true, validators: zodValidator(localDateTimeSchema, 'Enter the start') }),
-      end: new FormControl(w?.end ?? '', { nonNullable: true, validators: zodValidator(localDateTimeSchema, 'Enter the end') }),
-      limitKw: new FormControl<number | null>(w?.limitKw ?? null, zodValidator(shape.limitKw, 'Enter the reduced limit in kW')),
+      start: new FormControl(w?.start ?? '', {
+        nonNullable: true,
+        validators: zodValidator(localDateTimeSchema, 'Enter the start'),
+      }),
+      end: new FormControl(w?.end ?? '', {
+        nonNullable: true,
+        validators: zodValidator(localDateTimeSchema, 'Enter the end'),
+      }),
+      limitKw: new FormControl<number | null>(
+        w?.limitKw ?? null,
+        zodValidator(shape.limitKw, 'Enter the reduced limit in kW'),
+      ),
       note: new FormControl(w?.note ?? '', { nonNullable: true }),
     },
     { validators: endAfterStart },
@@ -123,7 +132,10 @@ export class LoadReductionWindowsPanel {
       const windows = await this.api.replaceLoadReductionWindows(this.depotId(), body);
       this.form.set(null);
       this.saved.emit(windows);
-      this.snackBar.open(windows.length === 1 ? '1 load-reduction window saved' : `${windows.length} load-reduction windows saved`, 'OK');
+      this.snackBar.open(
+        windows.length === 1 ? '1 load-reduction window saved' : `${windows.length} load-reduction windows saved`,
+        'OK',
+      );
     } catch (err) {
       const p = toApiProblem(err);
       const rest = applyServerErrors(form, p.fields, 'windows');
@@ -143,7 +155,10 @@ export class LoadReductionWindowsPanel {
         c.setErrors({ server: `Above the service limit (${limit} kW): a reduced limit must be lower` });
       }
     });
-    const rows = form.getRawValue().map((w, i) => ({ ...w, i })).filter((w) => w.start && w.end && w.end > w.start);
+    const rows = form
+      .getRawValue()
+      .map((w, i) => ({ ...w, i }))
+      .filter((w) => w.start && w.end && w.end > w.start);
     rows.sort((a, b) => a.start.localeCompare(b.start));
     for (let k = 1; k < rows.length; k++) {
       if (rows[k]!.start < rows[k - 1]!.end) {

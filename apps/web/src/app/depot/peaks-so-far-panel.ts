@@ -20,7 +20,10 @@ const periodKw = z.number().min(0, 'A period peak cannot be negative').max(100_0
 
 function periodGroup(name = '', kw: number | null = null) {
   return new FormGroup({
-    name: new FormControl(name, { nonNullable: true, validators: zodValidator(z.string().trim().min(1).max(60), 'Name the period, e.g. on-peak') }),
+    name: new FormControl(name, {
+      nonNullable: true,
+      validators: zodValidator(z.string().trim().min(1).max(60), 'Name the period, e.g. on-peak'),
+    }),
     kw: new FormControl<number | null>(kw, zodValidator(periodKw, 'Enter the period peak in kW')),
   });
 }
@@ -63,7 +66,9 @@ export class PeaksSoFarPanel {
   protected readonly error = errorText;
   protected readonly kw = formatKw;
   protected readonly date = formatDate;
-  protected readonly periods = computed(() => Object.entries(this.peaks()?.periods ?? {}).map(([name, kw]) => ({ name, kw })));
+  protected readonly periods = computed(() =>
+    Object.entries(this.peaks()?.periods ?? {}).map(([name, kw]) => ({ name, kw })),
+  );
 
   protected readonly form = signal<ReturnType<PeaksSoFarPanel['buildForm']> | null>(null);
   protected readonly busy = signal(false);
@@ -71,10 +76,21 @@ export class PeaksSoFarPanel {
   protected readonly problemItems = signal<ProblemItem[]>([]);
 
   private buildForm(p: PeaksSoFar | null) {
-    const start = p?.billingPeriodStart ?? billingPeriodStart(untracked(() => this.clock.todayAt(this.timezone())), this.billingStartDay());
+    const start =
+      p?.billingPeriodStart ??
+      billingPeriodStart(
+        untracked(() => this.clock.todayAt(this.timezone())),
+        this.billingStartDay(),
+      );
     return new FormGroup({
-      billingPeriodStart: new FormControl(start, { nonNullable: true, validators: zodValidator(shape.billingPeriodStart, 'Enter the date the billing period started') }),
-      facilityKw: new FormControl<number | null>(p?.facilityKw ?? null, zodValidator(shape.facilityKw, 'Enter the facility peak in kW (0 if none yet)')),
+      billingPeriodStart: new FormControl(start, {
+        nonNullable: true,
+        validators: zodValidator(shape.billingPeriodStart, 'Enter the date the billing period started'),
+      }),
+      facilityKw: new FormControl<number | null>(
+        p?.facilityKw ?? null,
+        zodValidator(shape.facilityKw, 'Enter the facility peak in kW (0 if none yet)'),
+      ),
       periods: new FormArray(Object.entries(p?.periods ?? {}).map(([name, kw]) => periodGroup(name, kw))),
     });
   }
@@ -101,7 +117,8 @@ export class PeaksSoFarPanel {
     const names = new Map<string, number>();
     form.controls.periods.controls.forEach((g, i) => {
       const name = g.controls.name.value.trim();
-      if (name && names.has(name)) g.controls.name.setErrors({ server: `"${name}" is already in row ${names.get(name)! + 1}` });
+      if (name && names.has(name))
+        g.controls.name.setErrors({ server: `"${name}" is already in row ${names.get(name)! + 1}` });
       names.set(name, i);
     });
     if (form.invalid) {

@@ -29,7 +29,8 @@ describe('YardCrewPanel', () => {
     fixture.detectChanges();
   }
 
-  const button = (text: string) => [...el.querySelectorAll('button')].find((b) => b.textContent?.replace(/\s+/g, ' ').trim().endsWith(text))!;
+  const button = (text: string) =>
+    [...el.querySelectorAll('button')].find((b) => b.textContent?.replace(/\s+/g, ' ').trim().endsWith(text))!;
   function field(label: string): HTMLInputElement {
     const l = [...el.querySelectorAll('label')].find((x) => x.textContent?.trim() === label)!;
     return el.querySelector<HTMLInputElement>(`#${l.getAttribute('for')}`)!;

@@ -19,19 +19,34 @@ const moves = z.number().int().min(1).max(50);
 
 function shiftGroup(s: CrewShift | null) {
   return new FormGroup({
-    from: new FormControl(s?.from ?? '', { nonNullable: true, validators: zodValidator(clockText, 'Write the time as HH:mm') }),
-    to: new FormControl(s?.to ?? '', { nonNullable: true, validators: zodValidator(clockText, 'Write the time as HH:mm') }),
+    from: new FormControl(s?.from ?? '', {
+      nonNullable: true,
+      validators: zodValidator(clockText, 'Write the time as HH:mm'),
+    }),
+    to: new FormControl(s?.to ?? '', {
+      nonNullable: true,
+      validators: zodValidator(clockText, 'Write the time as HH:mm'),
+    }),
     movesPerSlot: new FormControl<number | null>(s?.movesPerSlot ?? 2, zodValidator(moves, 'Enter 1 to 50 moves')),
   });
 }
 
 function crewForm(c: YardCrew) {
   return new FormGroup({
-    minPlugInMinutes: new FormControl<number | null>(c.minPlugInMinutes, zodValidator(yardCrewSchema.shape.minPlugInMinutes, 'Enter 0 to 240 minutes')),
+    minPlugInMinutes: new FormControl<number | null>(
+      c.minPlugInMinutes,
+      zodValidator(yardCrewSchema.shape.minPlugInMinutes, 'Enter 0 to 240 minutes'),
+    ),
     driversPlugIn: new FormControl(c.driversPlugIn, { nonNullable: true }),
     shifts: new FormArray(c.shifts.map((s) => shiftGroup(s))),
-    costTolerancePercent: new FormControl<number | null>(c.costTolerancePercent, zodValidator(yardCrewSchema.shape.costTolerancePercent, 'Enter 0 to 10 %')),
-    costToleranceAmount: new FormControl<number | null>(c.costToleranceAmount, zodValidator(yardCrewSchema.shape.costToleranceAmount, 'Enter 0 to 1,000')),
+    costTolerancePercent: new FormControl<number | null>(
+      c.costTolerancePercent,
+      zodValidator(yardCrewSchema.shape.costTolerancePercent, 'Enter 0 to 10 %'),
+    ),
+    costToleranceAmount: new FormControl<number | null>(
+      c.costToleranceAmount,
+      zodValidator(yardCrewSchema.shape.costToleranceAmount, 'Enter 0 to 1,000'),
+    ),
   });
 }
 type CrewForm = ReturnType<typeof crewForm>;
@@ -43,8 +58,14 @@ type CrewForm = ReturnType<typeof crewForm>;
 @Component({
   selector: 'ny-yard-crew-panel',
   imports: [
-    MatButtonModule, MatCheckboxModule, MatFormFieldModule, MatIconModule, MatInputModule, MatProgressBarModule,
-    ProblemSummary, ReactiveFormsModule,
+    MatButtonModule,
+    MatCheckboxModule,
+    MatFormFieldModule,
+    MatIconModule,
+    MatInputModule,
+    MatProgressBarModule,
+    ProblemSummary,
+    ReactiveFormsModule,
   ],
   template: `
     <section class="panel" aria-labelledby="depot-crew-heading">
@@ -55,8 +76,8 @@ type CrewForm = ReturnType<typeof crewForm>;
         }
       </div>
       <p class="hint">
-        Every plug-in and unplug is a move. A driver's move is made on pulling in or out; every other move is a crew move,
-        planned only inside a crew shift and at most so many per 15 minutes.
+        Every plug-in and unplug is a move. A driver's move is made on pulling in or out; every other move is a crew
+        move, planned only inside a crew shift and at most so many per 15 minutes.
       </p>
       @if (form(); as f) {
         <form [formGroup]="f" (ngSubmit)="save(f)" novalidate class="ny-dense">
@@ -68,7 +89,9 @@ type CrewForm = ReturnType<typeof crewForm>;
               <mat-hint>A bus that stays less is plugged in for its whole stay</mat-hint>
               <mat-error>{{ error(f.controls.minPlugInMinutes) }}</mat-error>
             </mat-form-field>
-            <mat-checkbox formControlName="driversPlugIn">Drivers plug in on pulling in and unplug on pulling out</mat-checkbox>
+            <mat-checkbox formControlName="driversPlugIn"
+              >Drivers plug in on pulling in and unplug on pulling out</mat-checkbox
+            >
           </div>
           <fieldset>
             <legend>Crew shifts (every day)</legend>
@@ -90,7 +113,12 @@ type CrewForm = ReturnType<typeof crewForm>;
                   <input matInput type="number" min="1" max="50" step="1" formControlName="movesPerSlot" />
                   <mat-error>{{ error(g.controls.movesPerSlot) }}</mat-error>
                 </mat-form-field>
-                <button mat-icon-button type="button" [attr.aria-label]="'Remove shift ' + (i + 1)" (click)="f.controls.shifts.removeAt(i)">
+                <button
+                  mat-icon-button
+                  type="button"
+                  [attr.aria-label]="'Remove shift ' + (i + 1)"
+                  (click)="f.controls.shifts.removeAt(i)"
+                >
                   <mat-icon>delete</mat-icon>
                 </button>
               </div>
@@ -98,14 +126,16 @@ type CrewForm = ReturnType<typeof crewForm>;
               <p class="hint">No shift listed: plans assume someone can make a crew move at any hour.</p>
             }
             @if (f.controls.shifts.length < 6) {
-              <button mat-stroked-button type="button" (click)="f.controls.shifts.push(newShift())"><mat-icon>add</mat-icon>Add shift</button>
+              <button mat-stroked-button type="button" (click)="f.controls.shifts.push(newShift())">
+                <mat-icon>add</mat-icon>Add shift
+              </button>
             }
           </fieldset>
           <fieldset>
             <legend>Fewer moves and steadier re-plans</legend>
             <p class="hint">
-              A plan may cost this much more than the cheapest found to need fewer crew moves, or, when the night is planned
-              again, to move fewer buses: the per cent of the night's cost or the amount, whichever is larger.
+              A plan may cost this much more than the cheapest found to need fewer crew moves, or, when the night is
+              planned again, to move fewer buses: the per cent of the night's cost or the amount, whichever is larger.
             </p>
             <div class="form-grid">
               <mat-form-field appearance="outline">
@@ -138,7 +168,13 @@ type CrewForm = ReturnType<typeof crewForm>;
           </div>
           <div>
             <dt>Driver moves</dt>
-            <dd>{{ crew().driversPlugIn ? 'Drivers plug in on pulling in and unplug on pulling out' : 'The crew makes every move' }}</dd>
+            <dd>
+              {{
+                crew().driversPlugIn
+                  ? 'Drivers plug in on pulling in and unplug on pulling out'
+                  : 'The crew makes every move'
+              }}
+            </dd>
           </div>
           <div class="wide">
             <dt>Crew shifts</dt>
@@ -146,7 +182,10 @@ type CrewForm = ReturnType<typeof crewForm>;
           </div>
           <div class="wide">
             <dt>Cost tolerance for fewer moves</dt>
-            <dd>{{ crew().costTolerancePercent }} % of the night's cost or {{ crew().costToleranceAmount }}, whichever is larger</dd>
+            <dd>
+              {{ crew().costTolerancePercent }} % of the night's cost or {{ crew().costToleranceAmount }}, whichever is
+              larger
+            </dd>
           </div>
         </dl>
       }
@@ -173,7 +212,9 @@ export class YardCrewPanel {
   protected readonly shiftsText = computed(() => {
     const shifts = this.crew().shifts;
     if (!shifts.length) return 'None listed: crew moves at any hour';
-    return shifts.map((s) => `${s.from}-${s.to}, ${s.movesPerSlot} ${s.movesPerSlot === 1 ? 'move' : 'moves'} per 15 min`).join('; ');
+    return shifts
+      .map((s) => `${s.from}-${s.to}, ${s.movesPerSlot} ${s.movesPerSlot === 1 ? 'move' : 'moves'} per 15 min`)
+      .join('; ');
   });
 
   protected newShift() {

@@ -21,7 +21,10 @@ describe('BusDialog', () => {
       providers: [
         provideHttpClient(),
         provideHttpClientTesting(),
-        { provide: MatDialogRef, useValue: { close, keydownEvents: () => keys, backdropClick: () => new Subject<MouseEvent>() } },
+        {
+          provide: MatDialogRef,
+          useValue: { close, keydownEvents: () => keys, backdropClick: () => new Subject<MouseEvent>() },
+        },
         { provide: MAT_DIALOG_DATA, useValue: { depotId: DEPOT_ID, bus: null, connectors: [], ...data } },
       ],
     });
@@ -34,7 +37,9 @@ describe('BusDialog', () => {
   afterEach(() => mock.verify());
 
   function input(label: string): HTMLInputElement {
-    const labelEl = [...el.querySelectorAll('label')].find((l) => l.textContent?.trim().replace(/\s*\*$/, '') === label);
+    const labelEl = [...el.querySelectorAll('label')].find(
+      (l) => l.textContent?.trim().replace(/\s*\*$/, '') === label,
+    );
     return el.querySelector<HTMLInputElement>(`#${labelEl!.getAttribute('for')}`)!;
   }
 
@@ -108,7 +113,9 @@ describe('BusDialog', () => {
 
   it('closes on Esc without edits, and asks first when there are edits', async () => {
     await open();
-    const ask = vi.spyOn(fixture.debugElement.injector.get(MatDialog), 'open').mockReturnValue({ afterClosed: () => of(false) } as never);
+    const ask = vi
+      .spyOn(fixture.debugElement.injector.get(MatDialog), 'open')
+      .mockReturnValue({ afterClosed: () => of(false) } as never);
     keys.next(new KeyboardEvent('keydown', { key: 'Escape' }));
     await settle();
     expect(ask).not.toHaveBeenCalled();
@@ -156,7 +163,13 @@ describe('BusDialog', () => {
     const req = mock.expectOne(`/api/depots/${DEPOT_ID}/buses/${existing.id}`);
     expect(req.request.method).toBe('PUT');
     req.flush(
-      { error: { code: 'conflict', message: 'Another bus has that number', fields: { number: 'Bus 201 already exists' } } },
+      {
+        error: {
+          code: 'conflict',
+          message: 'Another bus has that number',
+          fields: { number: 'Bus 201 already exists' },
+        },
+      },
       { status: 409, statusText: 'Conflict' },
     );
     await settle();

@@ -87,7 +87,9 @@ export class BusDialog {
     this.problem.set(null);
     if (this.form.invalid) {
       this.form.markAllAsTouched();
-      queueMicrotask(() => this.host.nativeElement.querySelector<HTMLElement>('input.ng-invalid, mat-select.ng-invalid')?.focus());
+      queueMicrotask(() =>
+        this.host.nativeElement.querySelector<HTMLElement>('input.ng-invalid, mat-select.ng-invalid')?.focus(),
+      );
       return;
     }
     if (this.consumptionWarning() && !this.consumptionConfirmed()) {

@@ -22,7 +22,12 @@ describe('BusesPage', () => {
 
   async function render(roles: Role[]) {
     TestBed.configureTestingModule({
-      providers: [provideRouter([]), provideHttpClient(), provideHttpClientTesting(), { provide: MatDialog, useValue: { open } }],
+      providers: [
+        provideRouter([]),
+        provideHttpClient(),
+        provideHttpClientTesting(),
+        { provide: MatDialog, useValue: { open } },
+      ],
     });
     mock = TestBed.inject(HttpTestingController);
     await signedInAs(mock, roles);
@@ -49,12 +54,18 @@ describe('BusesPage', () => {
 
   it('sorts by a column heading', async () => {
     await render(['admin']);
-    const header = [...el.querySelectorAll('th[mat-header-cell]')].find((th) => th.textContent?.includes('Usable kWh'))!;
+    const header = [...el.querySelectorAll('th[mat-header-cell]')].find((th) =>
+      th.textContent?.includes('Usable kWh'),
+    )!;
     (header.querySelector('.mat-sort-header-container') as HTMLElement | null)?.click();
     await fixture.whenStable();
     fixture.detectChanges();
     expect(numbers()).toEqual(['202', '1001', '201']);
-    expect(sortBuses(FLEET, { active: 'taperStartPct', direction: 'asc' }).map((b) => b.number)).toEqual(['201', '1001', '202']);
+    expect(sortBuses(FLEET, { active: 'taperStartPct', direction: 'asc' }).map((b) => b.number)).toEqual([
+      '201',
+      '1001',
+      '202',
+    ]);
   });
 
   it('is read-only for facilities and finance: no add or edit controls', async () => {

@@ -19,7 +19,16 @@ import { injectCanEditFleet } from '../auth/role-checks';
 import { BUS_STATUS_LABELS, fmt1, fmt2 } from './fleet-format';
 import { FleetTabs } from './fleet-tabs';
 
-export type BusSortKey = 'number' | 'status' | 'usableKwh' | 'maxChargeKw' | 'connector' | 'kwhPerMile' | 'ceilingPct' | 'reservePct' | 'taperStartPct';
+export type BusSortKey =
+  | 'number'
+  | 'status'
+  | 'usableKwh'
+  | 'maxChargeKw'
+  | 'connector'
+  | 'kwhPerMile'
+  | 'ceilingPct'
+  | 'reservePct'
+  | 'taperStartPct';
 
 const collator = new Intl.Collator(undefined, { numeric: true, sensitivity: 'base' });
 const STATUS_ORDER: Record<Bus['status'], number> = { active: 0, out_of_service: 1, retired: 2 };
@@ -42,7 +51,9 @@ export function sortBuses(buses: readonly Bus[], sort: Sort): Bus[] {
         return a[key] - b[key];
     }
   };
-  return [...buses].sort((a, b) => byKey(a, b) * sign || collator.compare(a.number, b.number) * (key === 'number' ? sign : 1));
+  return [...buses].sort(
+    (a, b) => byKey(a, b) * sign || collator.compare(a.number, b.number) * (key === 'number' ? sign : 1),
+  );
 }
 
 /** Fleet > Buses: the depot's buses; supervisors and administrators add and change them. */
@@ -90,7 +101,17 @@ export class BusesPage {
   protected readonly sort = signal<Sort>({ active: 'number', direction: 'asc' });
   protected readonly rows = computed(() => sortBuses(this.buses(), this.sort()));
   protected readonly columns = computed(() => {
-    const base = ['number', 'status', 'usableKwh', 'maxChargeKw', 'connector', 'kwhPerMile', 'ceilingPct', 'reservePct', 'taperStartPct'];
+    const base = [
+      'number',
+      'status',
+      'usableKwh',
+      'maxChargeKw',
+      'connector',
+      'kwhPerMile',
+      'ceilingPct',
+      'reservePct',
+      'taperStartPct',
+    ];
     return this.canEdit() ? [...base, 'actions'] : base;
   });
   protected readonly inService = computed(() => this.buses().filter((b) => b.status === 'active').length);
@@ -134,7 +155,12 @@ export class BusesPage {
     if (!depotId || !this.canEdit()) return;
     const data: BusDialogData = { depotId, bus, connectors: [...new Set(this.buses().map((b) => b.connector))] };
     this.dialog
-      .open<BusDialog, BusDialogData, Bus>(BusDialog, { data, width: '640px', maxWidth: '95vw', autoFocus: 'first-tabbable' })
+      .open<BusDialog, BusDialogData, Bus>(BusDialog, {
+        data,
+        width: '640px',
+        maxWidth: '95vw',
+        autoFocus: 'first-tabbable',
+      })
       .afterClosed()
       .subscribe((saved) => {
         if (!saved) return;

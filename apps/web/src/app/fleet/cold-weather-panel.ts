@@ -13,8 +13,12 @@ import { ProblemSummary } from '../shared/problem-summary';
 
 function bandRow(band: { belowF: number | null; factor: number | null } = { belowF: null, factor: null }) {
   return new FormGroup({
-    belowF: new FormControl<number | null>(band.belowF, { validators: [numberIn('The temperature', -80, 120, { required: 'Enter a temperature in °F' })] }),
-    factor: new FormControl<number | null>(band.factor, { validators: [numberIn('A factor', 1, 3, { required: 'Enter a factor from 1 to 3' })] }),
+    belowF: new FormControl<number | null>(band.belowF, {
+      validators: [numberIn('The temperature', -80, 120, { required: 'Enter a temperature in °F' })],
+    }),
+    factor: new FormControl<number | null>(band.factor, {
+      validators: [numberIn('A factor', 1, 3, { required: 'Enter a factor from 1 to 3' })],
+    }),
   });
 }
 
@@ -81,7 +85,9 @@ export class ColdWeatherPanel {
       this.form.markAllAsTouched();
       return;
     }
-    const bands = this.form.controls.bands.getRawValue().map((b) => ({ belowF: Number(b.belowF), factor: Number(b.factor) }));
+    const bands = this.form.controls.bands
+      .getRawValue()
+      .map((b) => ({ belowF: Number(b.belowF), factor: Number(b.factor) }));
     if (new Set(bands.map((b) => b.belowF)).size !== bands.length) {
       this.problem.set('Give each temperature once.');
       return;

@@ -15,12 +15,22 @@ export interface DayPick {
   selector: 'ny-day-picker',
   imports: [MatButtonModule, MatFormFieldModule, MatIconModule, MatInputModule],
   template: `
-    <button mat-icon-button type="button" aria-label="Previous day" (click)="step.emit(-1)"><mat-icon>chevron_left</mat-icon></button>
+    <button mat-icon-button type="button" aria-label="Previous day" (click)="step.emit(-1)">
+      <mat-icon>chevron_left</mat-icon>
+    </button>
     <mat-form-field appearance="outline" subscriptSizing="dynamic">
       <mat-label>Service day</mat-label>
-      <input matInput type="date" #dayInput [value]="day()" (change)="pick.emit({ date: dayInput.value, revert: revert(dayInput) })" />
+      <input
+        matInput
+        type="date"
+        #dayInput
+        [value]="day()"
+        (change)="pick.emit({ date: dayInput.value, revert: revert(dayInput) })"
+      />
     </mat-form-field>
-    <button mat-icon-button type="button" aria-label="Next day" (click)="step.emit(1)"><mat-icon>chevron_right</mat-icon></button>
+    <button mat-icon-button type="button" aria-label="Next day" (click)="step.emit(1)">
+      <mat-icon>chevron_right</mat-icon>
+    </button>
   `,
   styles: `
     :host {

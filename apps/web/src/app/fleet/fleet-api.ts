@@ -32,7 +32,9 @@ export class FleetApi {
 
   saveColdWeather(depotId: string, bands: ColdWeatherTable): Promise<ColdWeatherTable> {
     return firstValueFrom(
-      this.http.put<{ bands: ColdWeatherTable }>(this.url(depotId, 'cold-weather'), { bands }).pipe(map((r) => r.bands)),
+      this.http
+        .put<{ bands: ColdWeatherTable }>(this.url(depotId, 'cold-weather'), { bands })
+        .pipe(map((r) => r.bands)),
     );
   }
 
@@ -46,15 +48,21 @@ export class FleetApi {
 
   /** Rejects with 409 when the day already has runs and `replace` is false. */
   copyServiceDay(depotId: string, date: string, fromDate: string, replace: boolean): Promise<ServiceDay> {
-    return firstValueFrom(this.http.post<ServiceDay>(this.url(depotId, 'service-days', date, 'copy'), { fromDate, replace }));
+    return firstValueFrom(
+      this.http.post<ServiceDay>(this.url(depotId, 'service-days', date, 'copy'), { fromDate, replace }),
+    );
   }
 
   uploadRunsCsv(depotId: string, date: string, csv: string, forecastLowF: number | null): Promise<ServiceDay> {
-    return firstValueFrom(this.http.post<ServiceDay>(this.url(depotId, 'service-days', date, 'csv'), { csv, forecastLowF }));
+    return firstValueFrom(
+      this.http.post<ServiceDay>(this.url(depotId, 'service-days', date, 'csv'), { csv, forecastLowF }),
+    );
   }
 
   /** The template as a Blob (fetched with the bearer token; a plain link would not carry it). */
   runsCsvTemplate(depotId: string, date: string): Promise<Blob> {
-    return firstValueFrom(this.http.get(this.url(depotId, 'service-days', date, 'csv-template'), { responseType: 'blob' }));
+    return firstValueFrom(
+      this.http.get(this.url(depotId, 'service-days', date, 'csv-template'), { responseType: 'blob' }),
+    );
   }
 }

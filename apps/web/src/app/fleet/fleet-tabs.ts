@@ -9,18 +9,36 @@ import { RouterLink, RouterLinkActive } from '@angular/router';
   changeDetection: ChangeDetectionStrategy.OnPush,
   template: `
     <nav mat-tab-nav-bar mat-stretch-tabs="false" mat-align-tabs="start" [tabPanel]="panel" aria-label="Fleet pages">
-      <a mat-tab-link routerLink="/fleet" routerLinkActive #buses="routerLinkActive" [routerLinkActiveOptions]="{ exact: true }"
-        [active]="buses.isActive">Buses</a>
-      <a mat-tab-link routerLink="/fleet/service-day" routerLinkActive #day="routerLinkActive" queryParamsHandling="preserve"
-        [active]="day.isActive">Service day</a>
+      <a
+        mat-tab-link
+        routerLink="/fleet"
+        routerLinkActive
+        #buses="routerLinkActive"
+        [routerLinkActiveOptions]="{ exact: true }"
+        [active]="buses.isActive"
+        >Buses</a
+      >
+      <a
+        mat-tab-link
+        routerLink="/fleet/service-day"
+        routerLinkActive
+        #day="routerLinkActive"
+        queryParamsHandling="preserve"
+        [active]="day.isActive"
+        >Service day</a
+      >
     </nav>
     <mat-tab-nav-panel #panel>
       <ng-content />
     </mat-tab-nav-panel>
   `,
   styles: `
-    :host { display: block; }
-    nav { margin-bottom: 16px; }
+    :host {
+      display: block;
+    }
+    nav {
+      margin-bottom: 16px;
+    }
   `,
 })
 export class FleetTabs {}

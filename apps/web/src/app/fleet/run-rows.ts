@@ -28,9 +28,18 @@ const milesOrKwh: ValidatorFn = (c) => {
 
 export function runRow(run: Partial<Run> = {}) {
   return new FormGroup({
-    busNumber: new FormControl(run.busNumber ?? '', { nonNullable: true, validators: [(c) => (c.value ? null : { message: 'Choose the bus' })] }),
-    pullOut: new FormControl(run.pullOut ? clockOf(run.pullOut) : '', { nonNullable: true, validators: [clock('pull-out time')] }),
-    pullIn: new FormControl(run.pullIn ? clockOf(run.pullIn) : '', { nonNullable: true, validators: [clock('pull-in time')] }),
+    busNumber: new FormControl(run.busNumber ?? '', {
+      nonNullable: true,
+      validators: [(c) => (c.value ? null : { message: 'Choose the bus' })],
+    }),
+    pullOut: new FormControl(run.pullOut ? clockOf(run.pullOut) : '', {
+      nonNullable: true,
+      validators: [clock('pull-out time')],
+    }),
+    pullIn: new FormControl(run.pullIn ? clockOf(run.pullIn) : '', {
+      nonNullable: true,
+      validators: [clock('pull-in time')],
+    }),
     miles: new FormControl<number | null>(run.miles ?? null, { validators: [numberIn('Miles', 0, 1000), milesOrKwh] }),
     kwh: new FormControl<number | null>(run.kwh ?? null, { validators: [numberIn('Energy', 0, 2000)] }),
     arrivalSocPct: new FormControl<number | null>(run.arrivalSocPct ?? null, {
@@ -84,9 +93,12 @@ export function socSourceText(row: RunRow): string {
   const soc = arrivalSocPct === null || (arrivalSocPct as unknown) === '' ? null : Number(arrivalSocPct);
   if (soc === null) {
     // The paragraph above the table says what an estimate is based on.
-    return meta.estimatedSocPct === null || meta.id === null ? 'Estimated when saved' : `Estimated ${formatPct(meta.estimatedSocPct)}`;
+    return meta.estimatedSocPct === null || meta.id === null
+      ? 'Estimated when saved'
+      : `Estimated ${formatPct(meta.estimatedSocPct)}`;
   }
-  if (meta.id !== null && meta.savedSocPct === soc && meta.source) return meta.source === 'estimated' ? 'Typed' : SOC_SOURCE_LABELS[meta.source];
+  if (meta.id !== null && meta.savedSocPct === soc && meta.source)
+    return meta.source === 'estimated' ? 'Typed' : SOC_SOURCE_LABELS[meta.source];
   return 'Typed (not saved yet)';
 }
 

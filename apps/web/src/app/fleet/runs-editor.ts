@@ -13,7 +13,15 @@ import { pullInNextDay, socSourceText, type RunRow, type ServiceDayForm } from '
 /** A day's runs as a form: one row a run (a card on a phone), add, remove, discard and save. */
 @Component({
   selector: 'ny-runs-editor',
-  imports: [ClockTimeInput, MatButtonModule, MatFormFieldModule, MatIconModule, MatInputModule, MatSelectModule, ReactiveFormsModule],
+  imports: [
+    ClockTimeInput,
+    MatButtonModule,
+    MatFormFieldModule,
+    MatIconModule,
+    MatInputModule,
+    MatSelectModule,
+    ReactiveFormsModule,
+  ],
   templateUrl: './runs-editor.html',
   styleUrls: ['./runs-grid.scss', './runs-editor.scss'],
   changeDetection: ChangeDetectionStrategy.OnPush,
@@ -53,7 +61,11 @@ export class RunsEditor {
   protected submit(): void {
     this.save.emit();
     if (this.form().invalid) {
-      queueMicrotask(() => this.host.nativeElement.querySelector<HTMLElement>('form input.ng-invalid, form mat-select.ng-invalid')?.focus());
+      queueMicrotask(() =>
+        this.host.nativeElement
+          .querySelector<HTMLElement>('form input.ng-invalid, form mat-select.ng-invalid')
+          ?.focus(),
+      );
     }
   }
 }

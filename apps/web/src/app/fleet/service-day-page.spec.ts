@@ -21,7 +21,12 @@ describe('ServiceDayPage', () => {
 
   async function render(roles: Role[]) {
     TestBed.configureTestingModule({
-      providers: [provideRouter([]), provideHttpClient(), provideHttpClientTesting(), { provide: MatDialog, useValue: { open: vi.fn() } }],
+      providers: [
+        provideRouter([]),
+        provideHttpClient(),
+        provideHttpClientTesting(),
+        { provide: MatDialog, useValue: { open: vi.fn() } },
+      ],
     });
     mock = TestBed.inject(HttpTestingController);
     await signedInAs(mock, roles);
@@ -32,12 +37,20 @@ describe('ServiceDayPage', () => {
     mock.expectOne(DAY).flush(
       serviceDay({
         runs: [
-          run({ id: '00000000-0000-4000-8000-0000000000e1', pullOut: '2026-12-03T06:10', pullIn: '2026-12-03T08:25', arrivalSocPct: null, arrivalSocSource: null }),
+          run({
+            id: '00000000-0000-4000-8000-0000000000e1',
+            pullOut: '2026-12-03T06:10',
+            pullIn: '2026-12-03T08:25',
+            arrivalSocPct: null,
+            arrivalSocSource: null,
+          }),
           run({ id: '00000000-0000-4000-8000-0000000000e2' }),
         ],
       }),
     );
-    mock.expectOne(`/api/depots/${DEPOT_ID}/buses`).flush({ buses: [bus(), bus({ id: '00000000-0000-4000-8000-0000000000b2', number: '202' })] });
+    mock
+      .expectOne(`/api/depots/${DEPOT_ID}/buses`)
+      .flush({ buses: [bus(), bus({ id: '00000000-0000-4000-8000-0000000000b2', number: '202' })] });
     mock.expectOne(`/api/depots/${DEPOT_ID}/cold-weather`).flush({ bands: [{ belowF: 32, factor: 1.25 }] });
     await settle();
     await stable();
@@ -68,7 +81,10 @@ describe('ServiceDayPage', () => {
   it('lists every bad line of an uploaded CSV with its line number and column, and keeps the runs', async () => {
     await render(['supervisor']);
     const page = fixture.componentInstance as unknown as { upload(i: { files: File[]; value: string }): Promise<void> };
-    const file = new File(['bus,pull_out,pull_in,miles,kwh,arrival_soc_pct\n201,14:05,16:30,30,,120\n999,14:10,16:40,30,,40\n'], 'runs.csv');
+    const file = new File(
+      ['bus,pull_out,pull_in,miles,kwh,arrival_soc_pct\n201,14:05,16:30,30,,120\n999,14:10,16:40,30,,40\n'],
+      'runs.csv',
+    );
     const uploading = page.upload({ files: [file], value: 'C:\\fakepath\\runs.csv' });
     await settle();
     const req = mock.expectOne(`${DAY}/csv`);
@@ -97,7 +113,9 @@ describe('ServiceDayPage', () => {
       'Line 2, column arrival_soc_pct: The state of charge on arrival is 0 to 100 %',
       "Line 3, column bus: Bus 999 is not in this depot's fleet",
     ]);
-    expect(el.querySelector('ny-problem-summary')?.textContent).toContain('runs.csv: 2 lines need fixing; nothing was saved');
+    expect(el.querySelector('ny-problem-summary')?.textContent).toContain(
+      'runs.csv: 2 lines need fixing; nothing was saved',
+    );
     expect(el.querySelector('ny-problem-summary [aria-live="assertive"]')).not.toBeNull();
     // Nothing was saved: the table still shows the day's two runs.
     expect(el.querySelectorAll('table.runs tbody tr').length).toBe(2);
@@ -105,7 +123,9 @@ describe('ServiceDayPage', () => {
 
   it('lets a supervisor edit: upload, copy, add, save, remove', async () => {
     await render(['supervisor']);
-    expect(buttons()).toEqual(expect.arrayContaining(['Upload CSV', 'Download template', 'Copy runs', 'Add run', 'Save runs']));
+    expect(buttons()).toEqual(
+      expect.arrayContaining(['Upload CSV', 'Download template', 'Copy runs', 'Add run', 'Save runs']),
+    );
     expect(el.querySelectorAll('tbody mat-select').length).toBe(2);
     expect(el.querySelector('input[aria-label="Runs CSV file"]')).not.toBeNull();
     // The saved sources of the states of charge: estimated (none entered), uploaded.
@@ -131,7 +151,12 @@ describe('ServiceDayPage', () => {
 
   it("opens on tonight's service day as the server says, not the depot's calendar date", async () => {
     TestBed.configureTestingModule({
-      providers: [provideRouter([]), provideHttpClient(), provideHttpClientTesting(), { provide: MatDialog, useValue: { open: vi.fn() } }],
+      providers: [
+        provideRouter([]),
+        provideHttpClient(),
+        provideHttpClientTesting(),
+        { provide: MatDialog, useValue: { open: vi.fn() } },
+      ],
     });
     mock = TestBed.inject(HttpTestingController);
     // 02:00 on Thursday 3 December at the depot: the night of Wednesday 2 December is under way.
@@ -145,7 +170,9 @@ describe('ServiceDayPage', () => {
     mock.expectOne(`/api/depots/${DEPOT_ID}/night`).flush(depotNight('2026-12-02', now));
     await settle();
     await stable();
-    mock.expectOne(`/api/depots/${DEPOT_ID}/service-days/2026-12-02`).flush(serviceDay({ date: '2026-12-02', runs: [] }));
+    mock
+      .expectOne(`/api/depots/${DEPOT_ID}/service-days/2026-12-02`)
+      .flush(serviceDay({ date: '2026-12-02', runs: [] }));
     mock.expectOne(`/api/depots/${DEPOT_ID}/buses`).flush({ buses: [bus()] });
     mock.expectOne(`/api/depots/${DEPOT_ID}/cold-weather`).flush({ bands: [] });
     await settle();
@@ -162,7 +189,9 @@ describe('ServiceDayPage', () => {
     expect(pullOut.value).toBe('06:10');
     const row = runRow({ busNumber: '201', pullOut: '2026-12-03T14:05', pullIn: '2026-12-04T05:30', miles: 30 });
     row.controls.pullOut.setValue('2:05 PM');
-    expect(row.controls.pullOut.errors).toEqual({ message: 'Write the pull-out time as HH:mm, 24-hour (for example 21:30)' });
+    expect(row.controls.pullOut.errors).toEqual({
+      message: 'Write the pull-out time as HH:mm, 24-hour (for example 21:30)',
+    });
     row.controls.pullOut.setValue('14:05');
     expect(row.controls.pullOut.errors).toBeNull();
   });

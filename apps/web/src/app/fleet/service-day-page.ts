@@ -82,7 +82,8 @@ export class ServiceDayPage {
 
   protected goTo(date: string, revert?: DayPick['revert']): void {
     if (!isIsoDate(date) || date === this.store.day()) return;
-    const go = () => void this.router.navigate([], { relativeTo: this.route, queryParams: { date }, queryParamsHandling: 'merge' });
+    const go = () =>
+      void this.router.navigate([], { relativeTo: this.route, queryParams: { date }, queryParamsHandling: 'merge' });
     if (!this.canEdit() || !this.form.dirty) {
       go();
       return;
@@ -128,7 +129,9 @@ export class ServiceDayPage {
 
   private confirm(data: ConfirmData): Promise<boolean> {
     return firstValueFrom(
-      this.dialog.open<ConfirmDialog, ConfirmData, boolean>(ConfirmDialog, { data, width: '460px', maxWidth: '95vw' }).afterClosed(),
+      this.dialog
+        .open<ConfirmDialog, ConfirmData, boolean>(ConfirmDialog, { data, width: '460px', maxWidth: '95vw' })
+        .afterClosed(),
     ).then((r) => r === true);
   }
 }

@@ -21,7 +21,9 @@ describe('ServiceDayStore', () => {
   }
 
   async function start() {
-    TestBed.configureTestingModule({ providers: [provideRouter([]), provideHttpClient(), provideHttpClientTesting(), ServiceDayStore] });
+    TestBed.configureTestingModule({
+      providers: [provideRouter([]), provideHttpClient(), provideHttpClientTesting(), ServiceDayStore],
+    });
     mock = TestBed.inject(HttpTestingController);
     await signedInAs(mock, ['supervisor']);
     store = TestBed.inject(ServiceDayStore);
@@ -31,9 +33,18 @@ describe('ServiceDayStore', () => {
 
   function answerFleet() {
     mock.expectOne(`/api/depots/${DEPOT_ID}/buses`).flush({
-      buses: [bus({ id: '00000000-0000-4000-8000-0000000000b3', number: '210' }), bus(), bus({ id: '00000000-0000-4000-8000-0000000000b2', number: '33' })],
+      buses: [
+        bus({ id: '00000000-0000-4000-8000-0000000000b3', number: '210' }),
+        bus(),
+        bus({ id: '00000000-0000-4000-8000-0000000000b2', number: '33' }),
+      ],
     });
-    mock.expectOne(`/api/depots/${DEPOT_ID}/cold-weather`).flush({ bands: [{ belowF: 32, factor: 1.25 }, { belowF: 10, factor: 1.4 }] });
+    mock.expectOne(`/api/depots/${DEPOT_ID}/cold-weather`).flush({
+      bands: [
+        { belowF: 32, factor: 1.25 },
+        { belowF: 10, factor: 1.4 },
+      ],
+    });
   }
 
   afterEach(() => mock.verify());
@@ -43,7 +54,13 @@ describe('ServiceDayStore', () => {
     expect(store.loading()).toBe(true);
     // A Monday: copies come from the Friday before.
     expect(store.copyFrom.value).toBe('2026-12-04');
-    mock.expectOne(DAY).flush(serviceDay({ date: '2026-12-07', forecastLowF: 20, runs: [run(), run({ id: '00000000-0000-4000-8000-0000000000e2' })] }));
+    mock.expectOne(DAY).flush(
+      serviceDay({
+        date: '2026-12-07',
+        forecastLowF: 20,
+        runs: [run(), run({ id: '00000000-0000-4000-8000-0000000000e2' })],
+      }),
+    );
     answerFleet();
     await tick();
     expect(store.loading()).toBe(false);
@@ -59,7 +76,12 @@ describe('ServiceDayStore', () => {
 
   it('says why the day could not be loaded, and asks again on reload', async () => {
     await start();
-    mock.expectOne(DAY).flush({ error: { code: 'unavailable', message: 'The database is not answering' } }, { status: 503, statusText: 'Unavailable' });
+    mock
+      .expectOne(DAY)
+      .flush(
+        { error: { code: 'unavailable', message: 'The database is not answering' } },
+        { status: 503, statusText: 'Unavailable' },
+      );
     answerFleet();
     await tick();
     expect(store.loading()).toBe(false);
@@ -88,8 +110,15 @@ describe('ServiceDayStore', () => {
     expect(store.busy()).toBe('Saving the runs');
     const req = mock.expectOne(DAY);
     expect(req.request.method).toBe('PUT');
-    expect(req.request.body.runs[0]).toMatchObject({ busNumber: '201', pullOut: '2026-12-07T14:05', pullIn: '2026-12-07T16:30', miles: 30 });
-    req.flush(serviceDay({ date: '2026-12-07', runs: [run({ pullOut: '2026-12-07T14:05', pullIn: '2026-12-07T16:30' })] }));
+    expect(req.request.body.runs[0]).toMatchObject({
+      busNumber: '201',
+      pullOut: '2026-12-07T14:05',
+      pullIn: '2026-12-07T16:30',
+      miles: 30,
+    });
+    req.flush(
+      serviceDay({ date: '2026-12-07', runs: [run({ pullOut: '2026-12-07T14:05', pullIn: '2026-12-07T16:30' })] }),
+    );
     expect(await saving).toBe(true);
     expect(store.busy()).toBeNull();
     expect(store.problem()).toBeNull();
@@ -106,10 +135,15 @@ describe('ServiceDayStore', () => {
     const copying = store.copy(ask);
     mock
       .expectOne((r) => r.url === `${DAY}/copy` && r.body.replace === false)
-      .flush({ error: { code: 'conflict', message: 'Monday 7 December 2026 already has 1 run' } }, { status: 409, statusText: 'Conflict' });
+      .flush(
+        { error: { code: 'conflict', message: 'Monday 7 December 2026 already has 1 run' } },
+        { status: 409, statusText: 'Conflict' },
+      );
     await settle();
     expect(ask).toHaveBeenCalledWith({ from: '2026-12-04', message: 'Monday 7 December 2026 already has 1 run' });
-    mock.expectOne((r) => r.url === `${DAY}/copy` && r.body.replace === true).flush(serviceDay({ date: '2026-12-07', runs: [] }));
+    mock
+      .expectOne((r) => r.url === `${DAY}/copy` && r.body.replace === true)
+      .flush(serviceDay({ date: '2026-12-07', runs: [] }));
     await copying;
     expect(store.serviceDay()?.runs).toEqual([]);
     expect(store.busy()).toBeNull();

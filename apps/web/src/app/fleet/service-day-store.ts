@@ -107,7 +107,8 @@ export class ServiceDayStore {
     return !this.day() || this.loaded.isLoading() || this.fleet.isLoading();
   });
   readonly loadProblem = computed(() => {
-    if (!this.depot()) return this.depotsDone() ? (this.depots.error() ?? 'No depot has been set up for your organisation yet.') : null;
+    if (!this.depot())
+      return this.depotsDone() ? (this.depots.error() ?? 'No depot has been set up for your organisation yet.') : null;
     const err = this.loaded.error() ?? this.fleet.error();
     return err ? toApiProblem(err).message : null;
   });
@@ -124,7 +125,9 @@ export class ServiceDayStore {
     return coldWeatherFactor(this.bands(), low === null || (low as unknown) === '' ? null : Number(low));
   });
   readonly busNumbers = computed(() =>
-    [...this.buses()].sort((a, b) => a.number.localeCompare(b.number, undefined, { numeric: true })).map((b) => b.number),
+    [...this.buses()]
+      .sort((a, b) => a.number.localeCompare(b.number, undefined, { numeric: true }))
+      .map((b) => b.number),
   );
 
   constructor() {
@@ -194,7 +197,10 @@ export class ServiceDayStore {
       return false;
     }
     const day = this.day();
-    const body = { forecastLowF: this.lowOrNull(), runs: this.form.controls.runs.controls.map((r) => runInputOf(r, day)) };
+    const body = {
+      forecastLowF: this.lowOrNull(),
+      runs: this.form.controls.runs.controls.map((r) => runInputOf(r, day)),
+    };
     this.busy.set('Saving the runs');
     try {
       this.show(await this.api.saveServiceDay(depotId, day, body));

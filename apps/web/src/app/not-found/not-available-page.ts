@@ -20,7 +20,11 @@ import { AuthStore } from '../auth/auth-store';
     <p>You are signed in as {{ mine() }}. An administrator can change your roles.</p>
     <a mat-flat-button [routerLink]="home().path">Go to {{ home().label }}</a>
   `,
-  styles: `p { max-width: 60ch; }`,
+  styles: `
+    p {
+      max-width: 60ch;
+    }
+  `,
 })
 export class NotAvailablePage {
   private readonly auth = inject(AuthStore);
@@ -29,6 +33,12 @@ export class NotAvailablePage {
 
   protected readonly target = computed(() => SECTIONS.find((s) => s.key === this.section()) ?? null);
   protected readonly allowed = computed(() => (this.target()?.roles ?? []).map((r) => ROLE_LABELS[r]).join(', '));
-  protected readonly mine = computed(() => this.auth.roles().map((r) => ROLE_LABELS[r]).join(', ') || 'no role');
+  protected readonly mine = computed(
+    () =>
+      this.auth
+        .roles()
+        .map((r) => ROLE_LABELS[r])
+        .join(', ') || 'no role',
+  );
   protected readonly home = this.auth.home;
 }

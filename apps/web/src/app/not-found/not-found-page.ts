@@ -11,7 +11,9 @@ import { AuthStore } from '../auth/auth-store';
   template: `
     <h1>Page not found</h1>
     <p class="ny-lead">There is no page at this address.</p>
-    <p><a mat-flat-button [routerLink]="home().path">Go to {{ home().label }}</a></p>
+    <p>
+      <a mat-flat-button [routerLink]="home().path">Go to {{ home().label }}</a>
+    </p>
   `,
 })
 export class NotFoundPage {

@@ -20,7 +20,9 @@ export interface ConfirmData {
       <p>{{ data.message }}</p>
     </mat-dialog-content>
     <mat-dialog-actions align="end">
-      <button mat-button type="button" [mat-dialog-close]="false" cdkFocusInitial>{{ data.confirm ? 'Cancel' : 'Close' }}</button>
+      <button mat-button type="button" [mat-dialog-close]="false" cdkFocusInitial>
+        {{ data.confirm ? 'Cancel' : 'Close' }}
+      </button>
       @if (data.confirm) {
         <button mat-flat-button type="button" [mat-dialog-close]="true">{{ data.confirm }}</button>
       }

@@ -26,7 +26,9 @@ describe('InviteDialog', () => {
   afterEach(() => mock.verify());
 
   function input(label: string): HTMLInputElement {
-    const labelEl = [...el.querySelectorAll('label')].find((l) => l.textContent?.trim().replace(/\s*\*$/, '') === label);
+    const labelEl = [...el.querySelectorAll('label')].find(
+      (l) => l.textContent?.trim().replace(/\s*\*$/, '') === label,
+    );
     return el.querySelector<HTMLInputElement>(`#${labelEl!.getAttribute('for')}`)!;
   }
 

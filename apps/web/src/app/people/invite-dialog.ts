@@ -55,7 +55,11 @@ export class InviteDialog {
     const { name, email } = this.form.getRawValue();
     this.busy.set(true);
     try {
-      const user = await this.api.invite({ name: name.trim(), email: email.trim(), roles: chosenRoles(this.form.controls.roles) });
+      const user = await this.api.invite({
+        name: name.trim(),
+        email: email.trim(),
+        roles: chosenRoles(this.form.controls.roles),
+      });
       this.ref.close(user);
     } catch (err) {
       const p = toApiProblem(err);

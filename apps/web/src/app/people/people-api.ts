@@ -23,8 +23,6 @@ export class PeopleApi {
   }
 
   outbox(): Promise<OutboxMessage[]> {
-    return firstValueFrom(
-      this.http.get<{ messages: OutboxMessage[] }>('/api/dev/outbox').pipe(map((r) => r.messages)),
-    );
+    return firstValueFrom(this.http.get<{ messages: OutboxMessage[] }>('/api/dev/outbox').pipe(map((r) => r.messages)));
   }
 }

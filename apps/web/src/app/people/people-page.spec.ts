@@ -28,8 +28,18 @@ describe('PeoplePage', () => {
     el = fixture.nativeElement;
     mock.expectOne('/api/users').flush({
       users: [
-        user({ name: 'Zoe Adler', email: 'zoe@example.org', roles: ['admin', 'finance'], lastSignInAt: '2026-11-30T08:00:00Z' }),
-        user({ id: '00000000-0000-4000-8000-000000000003', name: 'Ben Ito', email: 'ben@example.org', status: 'invited' }),
+        user({
+          name: 'Zoe Adler',
+          email: 'zoe@example.org',
+          roles: ['admin', 'finance'],
+          lastSignInAt: '2026-11-30T08:00:00Z',
+        }),
+        user({
+          id: '00000000-0000-4000-8000-000000000003',
+          name: 'Ben Ito',
+          email: 'ben@example.org',
+          status: 'invited',
+        }),
       ],
     });
     await settle();

@@ -24,12 +24,14 @@ export interface AdoptData {
       <p>
         Adopting makes a new draft for the night of {{ data.night }} from {{ data.depot }} as it is now: its chargers in
         service, service limit, rate plan, buses and runs, with the study's choice of
-        {{ data.adoption.includesMidday ? 'the night and the midday layover' : 'the night only' }}. The what-if stays a study.
-        Review the draft, then publish it.
+        {{ data.adoption.includesMidday ? 'the night and the midday layover' : 'the night only' }}. The what-if stays a
+        study. Review the draft, then publish it.
       </p>
       @if (data.adoption.differences.length) {
         <h3 id="adopt-differences">
-          {{ data.adoption.differences.length === 1 ? '1 difference' : data.adoption.differences.length + ' differences' }}
+          {{
+            data.adoption.differences.length === 1 ? '1 difference' : data.adoption.differences.length + ' differences'
+          }}
           from the study: the depot's data is used
         </h3>
         <ul class="differences" aria-labelledby="adopt-differences">
@@ -47,10 +49,21 @@ export interface AdoptData {
     </mat-dialog-actions>
   `,
   styles: `
-    h3 { margin: 16px 0 4px; font: var(--mat-sys-title-small); color: var(--mat-sys-on-surface); }
-    .differences { margin: 0; padding-inline-start: 20px; }
-    .differences li { margin: 2px 0; }
-    .same { color: var(--mat-sys-on-surface-variant); }
+    h3 {
+      margin: 16px 0 4px;
+      font: var(--mat-sys-title-small);
+      color: var(--mat-sys-on-surface);
+    }
+    .differences {
+      margin: 0;
+      padding-inline-start: 20px;
+    }
+    .differences li {
+      margin: 2px 0;
+    }
+    .same {
+      color: var(--mat-sys-on-surface-variant);
+    }
   `,
 })
 export class AdoptDialog {

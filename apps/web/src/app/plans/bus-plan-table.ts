@@ -10,7 +10,10 @@ import { num, type BusPlanRow } from './plan-format';
   template: `
     <div class="table-scroll wide-only" role="region" aria-label="Buses in the plan" tabindex="0">
       <table class="buses">
-        <caption class="ny-visually-hidden">Each bus: charger, plug-in and unplug times, energy, state of charge at departure, shortfall and why (short buses first)</caption>
+        <caption class="ny-visually-hidden">
+          Each bus: charger, plug-in and unplug times, energy, state of charge at departure, shortfall and why (short
+          buses first)
+        </caption>
         <thead>
           <tr>
             <th scope="col">Bus</th>
@@ -59,7 +62,12 @@ import { num, type BusPlanRow } from './plan-format';
               </td>
               <td>
                 @for (d of r.departures; track $index) {
-                  <span class="line">{{ d.at }}@if (d.socPct !== null) { ({{ num(d.socPct, 0) }} %)}</span>
+                  <span class="line"
+                    >{{ d.at }}
+                    @if (d.socPct !== null) {
+                      ({{ num(d.socPct, 0) }} %)
+                    }
+                  </span>
                 }
               </td>
               <td class="num">{{ r.short ? num(r.shortfallKwh) : '–' }}</td>
@@ -75,7 +83,9 @@ import { num, type BusPlanRow } from './plan-format';
               </td>
             </tr>
           } @empty {
-            <tr><td colspan="8">No buses in this plan.</td></tr>
+            <tr>
+              <td colspan="8">No buses in this plan.</td>
+            </tr>
           }
         </tbody>
       </table>
@@ -103,14 +113,21 @@ import { num, type BusPlanRow } from './plan-format';
             <dt>Departs (SOC)</dt>
             <dd>
               @for (d of r.departures; track $index) {
-                <span class="line">{{ d.at }}@if (d.socPct !== null) { ({{ num(d.socPct, 0) }} %)}</span>
+                <span class="line"
+                  >{{ d.at }}
+                  @if (d.socPct !== null) {
+                    ({{ num(d.socPct, 0) }} %)
+                  }
+                </span>
               }
             </dd>
             <dt>Short kWh</dt>
             <dd class="num">{{ r.short ? num(r.shortfallKwh) : '–' }}</dd>
             @if (r.short) {
               <dt>Why short</dt>
-              <dd><span class="reason">{{ r.reason }}</span> <span class="detail">{{ r.reasonDetail }}</span></dd>
+              <dd>
+                <span class="reason">{{ r.reason }}</span> <span class="detail">{{ r.reasonDetail }}</span>
+              </dd>
             } @else if (topUps().includes(r.bus)) {
               <dt>Note</dt>
               <dd>Leaves at its ceiling; tops up at the midday layover</dd>
@@ -121,30 +138,90 @@ import { num, type BusPlanRow } from './plan-format';
     </ul>
   `,
   styles: `
-    :host { display: block; }
+    :host {
+      display: block;
+    }
     .table-scroll {
       overflow-x: auto;
       border: 1px solid var(--mat-sys-outline-variant);
       border-radius: var(--mat-sys-corner-small);
       background: var(--mat-sys-surface);
     }
-    .buses { width: 100%; min-width: 860px; border-collapse: collapse; font: var(--mat-sys-body-medium); }
-    th, td { padding: 6px 12px; border-bottom: 1px solid var(--mat-sys-outline-variant); text-align: start; vertical-align: top; }
-    thead th { font: var(--mat-sys-title-small); white-space: nowrap; }
-    tbody th { font-weight: 600; white-space: nowrap; }
-    tr.short { background: color-mix(in srgb, var(--mat-sys-error) 8%, transparent); }
-    .warn { color: var(--mat-sys-error); font-size: 18px; width: 18px; height: 18px; vertical-align: -3px; }
-    .reason { font-weight: 600; color: var(--mat-sys-error); }
-    .detail { display: block; max-width: 34ch; font: var(--mat-sys-body-small); color: var(--mat-sys-on-surface-variant); }
-    .ok { color: var(--mat-sys-on-surface-variant); }
-    .num { text-align: end; font-variant-numeric: tabular-nums; white-space: nowrap; }
-    .line { display: block; white-space: nowrap; }
-    .total { border-top: 1px solid var(--mat-sys-outline-variant); font-weight: 600; }
-    .none { color: var(--mat-sys-on-surface-variant); }
-    .cards { display: none; margin: 0; padding: 0; list-style: none; }
+    .buses {
+      width: 100%;
+      min-width: 860px;
+      border-collapse: collapse;
+      font: var(--mat-sys-body-medium);
+    }
+    th,
+    td {
+      padding: 6px 12px;
+      border-bottom: 1px solid var(--mat-sys-outline-variant);
+      text-align: start;
+      vertical-align: top;
+    }
+    thead th {
+      font: var(--mat-sys-title-small);
+      white-space: nowrap;
+    }
+    tbody th {
+      font-weight: 600;
+      white-space: nowrap;
+    }
+    tr.short {
+      background: color-mix(in srgb, var(--mat-sys-error) 8%, transparent);
+    }
+    .warn {
+      color: var(--mat-sys-error);
+      font-size: 18px;
+      width: 18px;
+      height: 18px;
+      vertical-align: -3px;
+    }
+    .reason {
+      font-weight: 600;
+      color: var(--mat-sys-error);
+    }
+    .detail {
+      display: block;
+      max-width: 34ch;
+      font: var(--mat-sys-body-small);
+      color: var(--mat-sys-on-surface-variant);
+    }
+    .ok {
+      color: var(--mat-sys-on-surface-variant);
+    }
+    .num {
+      text-align: end;
+      font-variant-numeric: tabular-nums;
+      white-space: nowrap;
+    }
+    .line {
+      display: block;
+      white-space: nowrap;
+    }
+    .total {
+      border-top: 1px solid var(--mat-sys-outline-variant);
+      font-weight: 600;
+    }
+    .none {
+      color: var(--mat-sys-on-surface-variant);
+    }
+    .cards {
+      display: none;
+      margin: 0;
+      padding: 0;
+      list-style: none;
+    }
     @media (max-width: 599.98px) {
-      .wide-only { display: none; }
-      .cards { display: flex; flex-direction: column; gap: 8px; }
+      .wide-only {
+        display: none;
+      }
+      .cards {
+        display: flex;
+        flex-direction: column;
+        gap: 8px;
+      }
     }
     .bus-card {
       padding: 8px 12px;
@@ -153,12 +230,27 @@ import { num, type BusPlanRow } from './plan-format';
       background: var(--mat-sys-surface);
       font: var(--mat-sys-body-medium);
     }
-    .bus-card.short { background: color-mix(in srgb, var(--mat-sys-error) 8%, var(--mat-sys-surface)); }
-    .bus-name { font: var(--mat-sys-title-small); }
-    dl { display: grid; grid-template-columns: max-content 1fr; gap: 2px 12px; margin: 4px 0 0; }
-    dt { color: var(--mat-sys-on-surface-variant); }
-    dd { margin: 0; }
-    dd.num { text-align: start; }
+    .bus-card.short {
+      background: color-mix(in srgb, var(--mat-sys-error) 8%, var(--mat-sys-surface));
+    }
+    .bus-name {
+      font: var(--mat-sys-title-small);
+    }
+    dl {
+      display: grid;
+      grid-template-columns: max-content 1fr;
+      gap: 2px 12px;
+      margin: 4px 0 0;
+    }
+    dt {
+      color: var(--mat-sys-on-surface-variant);
+    }
+    dd {
+      margin: 0;
+    }
+    dd.num {
+      text-align: start;
+    }
   `,
 })
 export class BusPlanTable {

@@ -44,12 +44,18 @@ describe('ChargerTimeline', () => {
   it('marks short buses, shades the price bands and lists every plug-in in a table', async () => {
     const el = await render();
     expect([...el.querySelectorAll('.bar.short')].map((b) => b.textContent?.trim())).toEqual(['203', '205']);
-    const bands = [...el.querySelectorAll<HTMLElement>('.bands .band')].map((b) => [b.dataset['level'], parseFloat(b.style.left), parseFloat(b.style.width)]);
+    const bands = [...el.querySelectorAll<HTMLElement>('.bands .band')].map((b) => [
+      b.dataset['level'],
+      parseFloat(b.style.left),
+      parseFloat(b.style.width),
+    ]);
     expect(bands).toEqual([
       ['high', 0, 50],
       ['low', 50, 50],
     ]);
-    const rows = [...el.querySelectorAll('table.alt tbody tr')].map((r) => [...r.querySelectorAll('td')].map((td) => td.textContent?.trim()));
+    const rows = [...el.querySelectorAll('table.alt tbody tr')].map((r) =>
+      [...r.querySelectorAll('td')].map((td) => td.textContent?.trim()),
+    );
     expect(rows.map((r) => r.slice(0, 4))).toEqual([
       ['C1', '201', 'Thu 18:00', 'Thu 18:30'],
       ['C1', '203 (short)', 'Thu 18:45', 'Thu 19:00'],

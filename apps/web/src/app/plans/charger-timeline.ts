@@ -75,7 +75,12 @@ export class ChargerTimeline {
 
   private readonly horizon = computed(() => horizonOf(this.result()) ?? NO_HORIZON);
   private readonly shortBuses = computed(
-    () => new Set(this.result().buses.filter((b) => b.shortfallKwh > SHORT_KWH).map((b) => b.id)),
+    () =>
+      new Set(
+        this.result()
+          .buses.filter((b) => b.shortfallKwh > SHORT_KWH)
+          .map((b) => b.id),
+      ),
   );
 
   protected readonly segments = computed(() =>
@@ -102,7 +107,9 @@ export class ChargerTimeline {
     const segs = this.segments();
     const px = this.trackPx();
     const kw = new Map(this.chargers().map((c) => [c.id, c.maxKw]));
-    const ids = [...new Set([...this.chargers().map((c) => c.id), ...r.sessions.map((s) => s.charger)])].sort(naturalCompare);
+    const ids = [...new Set([...this.chargers().map((c) => c.id), ...r.sessions.map((s) => s.charger)])].sort(
+      naturalCompare,
+    );
     return ids.map((id) => ({
       id,
       maxKw: kw.get(id) ?? null,
@@ -128,11 +135,11 @@ export class ChargerTimeline {
   });
 
   /** Plug-ins too short to carry their bus number on the picture. */
-  protected readonly unlabelled = computed(() => this.rows().reduce((n, r) => n + r.bars.filter((b) => !b.labelled).length, 0));
-
-  protected readonly ticks = computed(() =>
-    axisTicks(this.segments(), this.timezone(), this.trackPx()),
+  protected readonly unlabelled = computed(() =>
+    this.rows().reduce((n, r) => n + r.bars.filter((b) => !b.labelled).length, 0),
   );
+
+  protected readonly ticks = computed(() => axisTicks(this.segments(), this.timezone(), this.trackPx()));
 
   protected readonly bands = computed(() =>
     priceBands(this.result()).map((b) => ({ ...b, ...placeSpan(this.segments(), b.start, b.end) })),
@@ -151,7 +158,11 @@ export class ChargerTimeline {
     const r = this.result();
     const h = this.horizon();
     const tz = this.timezone();
-    const gaps = this.gaps().length ? ` Hours without a plug-in are shortened: ${this.gaps().map((g) => g.text.replace(' no plug-in (shortened)', '')).join(', ')}.` : '';
+    const gaps = this.gaps().length
+      ? ` Hours without a plug-in are shortened: ${this.gaps()
+          .map((g) => g.text.replace(' no plug-in (shortened)', ''))
+          .join(', ')}.`
+      : '';
     return `Charger timeline: ${r.sessions.length} plug-ins on ${this.rows().length} chargers from ${dayClock(new Date(h.start).toISOString(), tz)} to ${dayClock(new Date(h.end).toISOString(), tz)}.${gaps} The same plug-ins are listed in the table below.`;
   });
 

@@ -1,8 +1,16 @@
 import type { PlanResult } from '@nightyard/contracts';
 import { crewMovesLines } from './crew-moves-note';
 
-const session = (startMove: 'driver' | 'crew', endMove: 'driver' | 'crew') =>
-  ({ bus: '11', charger: 'C1', start: '2026-12-09T22:00:00Z', end: '2026-12-09T23:00:00Z', kwh: 30, kw: [60, 60], startMove, endMove });
+const session = (startMove: 'driver' | 'crew', endMove: 'driver' | 'crew') => ({
+  bus: '11',
+  charger: 'C1',
+  start: '2026-12-09T22:00:00Z',
+  end: '2026-12-09T23:00:00Z',
+  kwh: 30,
+  kw: [60, 60],
+  startMove,
+  endMove,
+});
 
 describe('crew moves note', () => {
   it('says what the crew does, the moves saved and their cost, and why a re-plan moved buses', () => {
@@ -15,7 +23,9 @@ describe('crew moves note', () => {
     const lines = crewMovesLines(r, 'USD');
     expect(lines[0]).toBe('2 crew moves; 2 plug-ins and unplugs by drivers on pulling in or out.');
     expect(lines[1]).toMatch(/^2 fewer moves for \$1\.80 than the cheapest plan found\.$/);
-    expect(lines[2]).toBe('Re-plan: 2 buses moved (B1, B2) because charger C3 out of service: 2 buses were planned on it.');
+    expect(lines[2]).toBe(
+      'Re-plan: 2 buses moved (B1, B2) because charger C3 out of service: 2 buses were planned on it.',
+    );
   });
 
   it('says nothing for a plan made before the crew rules', () => {

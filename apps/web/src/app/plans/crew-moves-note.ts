@@ -37,8 +37,12 @@ export class CrewMovesNote {
 export function crewMovesLines(r: PlanResult, currency: string): string[] {
   const out: string[] = [];
   if (typeof r.crewMoves === 'number') {
-    const drivers = r.sessions.filter((s) => s.startMove === 'driver').length + r.sessions.filter((s) => s.endMove === 'driver').length;
-    out.push(`${r.crewMoves} crew ${r.crewMoves === 1 ? 'move' : 'moves'}; ${drivers} plug-ins and unplugs by drivers on pulling in or out.`);
+    const drivers =
+      r.sessions.filter((s) => s.startMove === 'driver').length +
+      r.sessions.filter((s) => s.endMove === 'driver').length;
+    out.push(
+      `${r.crewMoves} crew ${r.crewMoves === 1 ? 'move' : 'moves'}; ${drivers} plug-ins and unplugs by drivers on pulling in or out.`,
+    );
   }
   if (r.crewTrade && r.crewTrade.fewerMoves > 0) {
     const n = r.crewTrade.fewerMoves;
@@ -51,7 +55,9 @@ export function crewMovesLines(r: PlanResult, currency: string): string[] {
   const moved = r.replan?.moved;
   if (moved) {
     const n = moved.buses.length;
-    out.push(`Re-plan: ${n} ${n === 1 ? 'bus' : 'buses'} moved${n ? ` (${moved.buses.join(', ')})` : ''}${moved.reasons.length ? ` because ${moved.reasons.join('; ')}` : ''}.`);
+    out.push(
+      `Re-plan: ${n} ${n === 1 ? 'bus' : 'buses'} moved${n ? ` (${moved.buses.join(', ')})` : ''}${moved.reasons.length ? ` because ${moved.reasons.join('; ')}` : ''}.`,
+    );
   }
   return out;
 }

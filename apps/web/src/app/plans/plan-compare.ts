@@ -37,7 +37,16 @@ import { PlansApi } from './plans-api';
         @if (c.moved.length) {
           <div class="table-scroll" role="region" aria-label="Buses that moved" tabindex="0">
             <table>
-              <caption class="ny-visually-hidden">Buses whose charger or times differ between {{ versionName(c.from).toLowerCase() }} and {{ versionName(c.to).toLowerCase() }}</caption>
+              <caption class="ny-visually-hidden">
+                Buses whose charger or times differ between
+                {{
+                  versionName(c.from).toLowerCase()
+                }}
+                and
+                {{
+                  versionName(c.to).toLowerCase()
+                }}
+              </caption>
               <thead>
                 <tr>
                   <th scope="col">Bus</th>
@@ -47,7 +56,11 @@ import { PlansApi } from './plans-api';
               </thead>
               <tbody>
                 @for (m of c.moved; track m.bus) {
-                  <tr><th scope="row">{{ m.bus }}</th><td>{{ m.before }}</td><td>{{ m.after }}</td></tr>
+                  <tr>
+                    <th scope="row">{{ m.bus }}</th>
+                    <td>{{ m.before }}</td>
+                    <td>{{ m.after }}</td>
+                  </tr>
                 }
               </tbody>
             </table>
@@ -59,14 +72,44 @@ import { PlansApi } from './plans-api';
     }
   `,
   styles: `
-    :host { display: block; }
-    .pick { width: 260px; max-width: 100%; }
-    .change { margin: 8px 0; font: var(--mat-sys-body-large); }
-    .empty { margin: 0; color: var(--mat-sys-on-surface-variant); font: var(--mat-sys-body-medium); }
-    .table-scroll { overflow-x: auto; max-height: 360px; overflow-y: auto; border: 1px solid var(--mat-sys-outline-variant); border-radius: var(--mat-sys-corner-small); }
-    table { width: 100%; border-collapse: collapse; font: var(--mat-sys-body-medium); }
-    th, td { padding: 4px 12px; border-bottom: 1px solid var(--mat-sys-outline-variant); text-align: start; }
-    thead th { font-weight: 600; white-space: nowrap; }
+    :host {
+      display: block;
+    }
+    .pick {
+      width: 260px;
+      max-width: 100%;
+    }
+    .change {
+      margin: 8px 0;
+      font: var(--mat-sys-body-large);
+    }
+    .empty {
+      margin: 0;
+      color: var(--mat-sys-on-surface-variant);
+      font: var(--mat-sys-body-medium);
+    }
+    .table-scroll {
+      overflow-x: auto;
+      max-height: 360px;
+      overflow-y: auto;
+      border: 1px solid var(--mat-sys-outline-variant);
+      border-radius: var(--mat-sys-corner-small);
+    }
+    table {
+      width: 100%;
+      border-collapse: collapse;
+      font: var(--mat-sys-body-medium);
+    }
+    th,
+    td {
+      padding: 4px 12px;
+      border-bottom: 1px solid var(--mat-sys-outline-variant);
+      text-align: start;
+    }
+    thead th {
+      font-weight: 600;
+      white-space: nowrap;
+    }
   `,
 })
 export class PlanCompare {
@@ -80,7 +123,9 @@ export class PlanCompare {
   readonly preferred = input<string | null>(null);
 
   protected readonly candidates = computed(() =>
-    this.versions().filter((v) => v.id !== this.plan().id && v.status === 'done').sort((a, b) => b.version - a.version),
+    this.versions()
+      .filter((v) => v.id !== this.plan().id && v.status === 'done')
+      .sort((a, b) => b.version - a.version),
   );
   protected readonly chosen = linkedSignal<string | null>(() => {
     const preferred = this.preferred();
@@ -101,7 +146,9 @@ export class PlanCompare {
       return this.api.compare(id, other);
     },
   });
-  protected readonly comparison = computed<PlanComparison | null>(() => (this.compared.hasValue() ? (this.compared.value() ?? null) : null));
+  protected readonly comparison = computed<PlanComparison | null>(() =>
+    this.compared.hasValue() ? (this.compared.value() ?? null) : null,
+  );
   protected readonly loading = this.compared.isLoading;
   protected readonly problem = computed(() => {
     const err = this.compared.error();
@@ -109,7 +156,8 @@ export class PlanCompare {
   });
 
   protected sentence(c: PlanComparison): string {
-    const moved = c.moved.length === 0 ? 'no bus moved' : `${c.moved.length} ${c.moved.length === 1 ? 'bus' : 'buses'} moved`;
+    const moved =
+      c.moved.length === 0 ? 'no bus moved' : `${c.moved.length} ${c.moved.length === 1 ? 'bus' : 'buses'} moved`;
     const against = `Against ${versionName(c.from).toLowerCase()}`;
     if (c.costChange === null) return `${against}: ${moved}.`;
     const currency = this.plan().currency;

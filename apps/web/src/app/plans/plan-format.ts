@@ -1,12 +1,25 @@
-import { baselineName, toCents, type PlanDetail, type PlanResult, type PlanState, type PlanSummary } from '@nightyard/contracts';
+import {
+  baselineName,
+  toCents,
+  type PlanDetail,
+  type PlanResult,
+  type PlanState,
+  type PlanSummary,
+} from '@nightyard/contracts';
 import { dayTimeAt, timeAt, weekdayTimeAt } from '@nightyard/contracts/depot-time';
 import { horizonOf, type PlanHorizon } from '@nightyard/contracts/plan-horizon';
 
 /** What stops a short bus, in plain words (the engine's `reason` codes). */
 export const REASON_TEXT: Record<string, { label: string; detail: string }> = {
   dwell: { label: 'Dwell too short', detail: 'It is not parked long enough to take the energy it needs.' },
-  charger: { label: 'Charger too weak', detail: 'The chargers it can use give too little power for the time it is parked.' },
-  cabinet: { label: 'Power cabinet limit', detail: 'The power cabinet shared by its chargers has no more power to give.' },
+  charger: {
+    label: 'Charger too weak',
+    detail: 'The chargers it can use give too little power for the time it is parked.',
+  },
+  cabinet: {
+    label: 'Power cabinet limit',
+    detail: 'The power cabinet shared by its chargers has no more power to give.',
+  },
   site: { label: 'Site service limit', detail: "The depot's service limit leaves no more power for it." },
   taper: { label: 'Battery taper', detail: 'Near full, its battery takes power only slowly.' },
 };
@@ -70,7 +83,12 @@ export function when(iso: string, timeZone: string): string {
 export function money(value: number, currency: string, digits = 2): string {
   if (digits === 2) value = toCents(value);
   try {
-    return new Intl.NumberFormat(undefined, { style: 'currency', currency, maximumFractionDigits: digits, minimumFractionDigits: digits }).format(value);
+    return new Intl.NumberFormat(undefined, {
+      style: 'currency',
+      currency,
+      maximumFractionDigits: digits,
+      minimumFractionDigits: digits,
+    }).format(value);
   } catch {
     return `${value.toFixed(digits)} ${currency}`;
   }
@@ -112,17 +130,34 @@ export function busRows(plan: Pick<PlanDetail, 'result' | 'timezone' | 'busCapac
       return {
         bus: b.id,
         chargers: [...new Set(sessions.map((s) => s.charger))].join(', ') || '–',
-        sessions: sessions.map((s) => ({ charger: s.charger, plugIn: dayClock(s.start, tz), unplug: dayClock(s.end, tz), kwh: s.kwh })),
+        sessions: sessions.map((s) => ({
+          charger: s.charger,
+          plugIn: dayClock(s.start, tz),
+          unplug: dayClock(s.end, tz),
+          kwh: s.kwh,
+        })),
         kwh: sessions.reduce((sum, s) => sum + s.kwh, 0),
-        departures: b.departures.map((d) => ({ at: dayClock(d.at, tz), socPct: capacity ? (d.kwh / capacity) * 100 : null })),
+        departures: b.departures.map((d) => ({
+          at: dayClock(d.at, tz),
+          socPct: capacity ? (d.kwh / capacity) * 100 : null,
+        })),
         shortfallKwh: b.shortfallKwh,
         short,
         reason: short ? reasonText(b.reason) : '',
         // The engine's own words where it gives them: times, what binds, whether it is proven.
-        reasonDetail: short ? (b.cause ? `${b.cause.charAt(0).toUpperCase()}${b.cause.slice(1)}.` : reasonDetail(b.reason)) : '',
+        reasonDetail: short
+          ? b.cause
+            ? `${b.cause.charAt(0).toUpperCase()}${b.cause.slice(1)}.`
+            : reasonDetail(b.reason)
+          : '',
       };
     })
-    .sort((a, b) => Number(b.short) - Number(a.short) || (a.short ? b.shortfallKwh - a.shortfallKwh : 0) || naturalCompare(a.bus, b.bus));
+    .sort(
+      (a, b) =>
+        Number(b.short) - Number(a.short) ||
+        (a.short ? b.shortfallKwh - a.shortfallKwh : 0) ||
+        naturalCompare(a.bus, b.bus),
+    );
 }
 
 /** What a plan without slots is drawn on (`horizonOf(result) ?? NO_HORIZON`): one empty quarter hour. */
@@ -270,7 +305,10 @@ export interface LoweredLimit {
  * The service limit (the slots' highest limit) and the load-reduction windows that lower it,
  * merged into runs of equal limit, in depot time.
  */
-export function limitWindows(result: Pick<PlanResult, 'slots'>, timeZone: string): { serviceKw: number; lowered: LoweredLimit[] } {
+export function limitWindows(
+  result: Pick<PlanResult, 'slots'>,
+  timeZone: string,
+): { serviceKw: number; lowered: LoweredLimit[] } {
   const h = horizonOf(result) ?? NO_HORIZON;
   const serviceKw = Math.max(0, ...result.slots.map((s) => s.limitKw));
   const runs: { start: number; end: number; limitKw: number }[] = [];

@@ -35,7 +35,10 @@ describe('plan review', () => {
     const mock = TestBed.inject(HttpTestingController);
     const fixture = TestBed.createComponent(PlanReview);
     fixture.componentRef.setInput('plan', planDetail() as ReturnType<typeof planDetail> & { result: PlanResult });
-    fixture.componentRef.setInput('versions', [planSummary(), planSummary({ id: PLAN_IDS.published, version: 1, state: 'published' })]);
+    fixture.componentRef.setInput('versions', [
+      planSummary(),
+      planSummary({ id: PLAN_IDS.published, version: 1, state: 'published' }),
+    ]);
     TestBed.tick(); // not whenStable: it would wait for the unanswered request
     await settle();
     fixture.detectChanges();
@@ -65,7 +68,9 @@ describe('plan review', () => {
     TestBed.tick(); // not whenStable: it would wait for the unanswered request
     await settle();
     fixture.detectChanges();
-    expect(el.querySelector('ny-plan-compare')?.textContent).toContain('Against version 1: 1 bus moved, the cost is $12.50 lower.');
+    expect(el.querySelector('ny-plan-compare')?.textContent).toContain(
+      'Against version 1: 1 bus moved, the cost is $12.50 lower.',
+    );
     mock.verify();
   });
 
@@ -74,8 +79,14 @@ describe('plan review', () => {
     const mock = TestBed.inject(HttpTestingController);
     const fixture = TestBed.createComponent(PlanReview);
     const whatIf = '00000000-0000-4000-8000-0000000000f3';
-    fixture.componentRef.setInput('plan', planDetail({ version: 4 }) as ReturnType<typeof planDetail> & { result: PlanResult });
-    fixture.componentRef.setInput('versions', [planSummary({ version: 4 }), planSummary({ id: whatIf, version: 3, kind: 'what-if' })]);
+    fixture.componentRef.setInput(
+      'plan',
+      planDetail({ version: 4 }) as ReturnType<typeof planDetail> & { result: PlanResult },
+    );
+    fixture.componentRef.setInput('versions', [
+      planSummary({ version: 4 }),
+      planSummary({ id: whatIf, version: 3, kind: 'what-if' }),
+    ]);
     TestBed.tick(); // not whenStable: it would wait for the unanswered request
     await settle();
     fixture.detectChanges();
@@ -90,7 +101,11 @@ describe('plan review', () => {
     fixture.detectChanges();
     const compare = fixture.nativeElement.querySelector('ny-plan-compare') as HTMLElement;
     expect(compare.textContent).toContain('Against what-if version 3: 1 bus moved, the cost is $12.50 higher.');
-    expect([...compare.querySelectorAll('thead th')].map((th) => th.textContent?.trim())).toEqual(['Bus', 'What-if version 3', 'Version 4']);
+    expect([...compare.querySelectorAll('thead th')].map((th) => th.textContent?.trim())).toEqual([
+      'Bus',
+      'What-if version 3',
+      'Version 4',
+    ]);
     mock.verify();
   });
 });

@@ -5,7 +5,17 @@ import { BusPlanTable } from './bus-plan-table';
 import { ChargerTimeline, type TimelineCharger } from './charger-timeline';
 import { CrewMovesNote } from './crew-moves-note';
 import { PlanCompare } from './plan-compare';
-import { busRows, groupedNotes, limitWindows, listOf, middayTopUpBuses, money, num, pct, planFigures } from './plan-format';
+import {
+  busRows,
+  groupedNotes,
+  limitWindows,
+  listOf,
+  middayTopUpBuses,
+  money,
+  num,
+  pct,
+  planFigures,
+} from './plan-format';
 import { SiteLoadChart } from './site-load-chart';
 
 /** A finished plan: the figures, the charger timeline, the buses, the site load, the comparison. */
@@ -35,6 +45,8 @@ export class PlanReview {
   /** Buses that leave at their ceiling and count on the next midday layover (not short tonight). */
   protected readonly topUps = computed(() => {
     const inPlan = new Set(this.plan().result.buses.map((b) => b.id));
-    return middayTopUpBuses(this.plan().notes).filter((b) => inPlan.has(b) && !this.shortRows().some((r) => r.bus === b));
+    return middayTopUpBuses(this.plan().notes).filter(
+      (b) => inPlan.has(b) && !this.shortRows().some((r) => r.bus === b),
+    );
   });
 }

@@ -1,6 +1,13 @@
 import { HttpClient } from '@angular/common/http';
 import { Injectable, inject } from '@angular/core';
-import type { AdoptedPlan, DepotDetail, PlanComparison, PlanDetail, PlanSummary, WhatIfAdoption } from '@nightyard/contracts';
+import type {
+  AdoptedPlan,
+  DepotDetail,
+  PlanComparison,
+  PlanDetail,
+  PlanSummary,
+  WhatIfAdoption,
+} from '@nightyard/contracts';
 import { firstValueFrom, map } from 'rxjs';
 
 /** Plan versions of a depot's nights: generate, read, compare, publish, what-if. */
@@ -35,7 +42,9 @@ export class PlansApi {
   }
 
   plan(id: string): Promise<PlanDetail> {
-    return firstValueFrom(this.http.get<{ plan: PlanDetail }>(`/api/plans/${encodeURIComponent(id)}`).pipe(map((r) => r.plan)));
+    return firstValueFrom(
+      this.http.get<{ plan: PlanDetail }>(`/api/plans/${encodeURIComponent(id)}`).pipe(map((r) => r.plan)),
+    );
   }
 
   /** The plan's scenario file as a Blob (fetched with the bearer token). */
@@ -77,6 +86,8 @@ export class PlansApi {
 
   /** The depot's chargers (to show idle ones on the timeline too). */
   depot(depotId: string): Promise<DepotDetail> {
-    return firstValueFrom(this.http.get<{ depot: DepotDetail }>(`/api/depots/${encodeURIComponent(depotId)}`).pipe(map((r) => r.depot)));
+    return firstValueFrom(
+      this.http.get<{ depot: DepotDetail }>(`/api/depots/${encodeURIComponent(depotId)}`).pipe(map((r) => r.depot)),
+    );
   }
 }

@@ -24,7 +24,12 @@ describe('PlansPage', () => {
   async function render(roles: Role[], chosen: 'draft' | 'what-if' = 'draft') {
     open.mockReset();
     TestBed.configureTestingModule({
-      providers: [provideRouter([]), provideHttpClient(), provideHttpClientTesting(), { provide: MatDialog, useValue: { open } }],
+      providers: [
+        provideRouter([]),
+        provideHttpClient(),
+        provideHttpClientTesting(),
+        { provide: MatDialog, useValue: { open } },
+      ],
     });
     mock = TestBed.inject(HttpTestingController);
     await signedInAs(mock, roles);
@@ -38,11 +43,22 @@ describe('PlansPage', () => {
       plans: [
         ...(chosen === 'what-if' ? [planSummary(whatIf)] : []),
         planSummary(),
-        planSummary({ id: PLAN_IDS.published, version: 1, state: 'published', publishedAt: '2026-12-03T19:00:00.000Z' }),
+        planSummary({
+          id: PLAN_IDS.published,
+          version: 1,
+          state: 'published',
+          publishedAt: '2026-12-03T19:00:00.000Z',
+        }),
       ],
     });
     mock.expectOne(`/api/depots/${DEPOT_ID}`).flush({
-      depot: { id: DEPOT_ID, chargers: [{ label: 'C1', maxKw: 60, status: 'in_service' }, { label: 'C2', maxKw: 30, status: 'in_service' }] } as DepotDetail,
+      depot: {
+        id: DEPOT_ID,
+        chargers: [
+          { label: 'C1', maxKw: 60, status: 'in_service' },
+          { label: 'C2', maxKw: 30, status: 'in_service' },
+        ],
+      } as DepotDetail,
     });
     await settle();
     await stable();
@@ -51,7 +67,12 @@ describe('PlansPage', () => {
     await stable();
     fixture.detectChanges();
     for (const req of mock.match((r) => r.url.endsWith('/compare'))) {
-      req.flush({ from: { id: PLAN_IDS.published, version: 1, kind: 'generated' }, to: { id: selected, version: 2, kind: 'generated' }, moved: [], costChange: 0 });
+      req.flush({
+        from: { id: PLAN_IDS.published, version: 1, kind: 'generated' },
+        to: { id: selected, version: 2, kind: 'generated' },
+        moved: [],
+        costChange: 0,
+      });
     }
     await stable();
     fixture.detectChanges();
@@ -77,7 +98,10 @@ describe('PlansPage', () => {
     const first = el.querySelector('ny-bus-plan-table tbody tr')?.textContent;
     expect(first).toContain('203');
     expect(first).toContain('Site service limit');
-    expect([...el.querySelectorAll('.version-list a')].map((a) => a.getAttribute('aria-current'))).toEqual(['true', null]);
+    expect([...el.querySelectorAll('.version-list a')].map((a) => a.getAttribute('aria-current'))).toEqual([
+      'true',
+      null,
+    ]);
   });
 
   it('asks before publishing, names the plan it replaces, and shows a conflict plainly on 409', async () => {
@@ -96,7 +120,8 @@ describe('PlansPage', () => {
       {
         error: {
           code: 'conflict',
-          message: 'Version 3 was published by Tomasz Greer at 21:04 UTC while you were reviewing: compare with it, then publish again',
+          message:
+            'Version 3 was published by Tomasz Greer at 21:04 UTC while you were reviewing: compare with it, then publish again',
         },
       },
       { status: 409, statusText: 'Conflict' },
@@ -121,7 +146,8 @@ describe('PlansPage', () => {
 
   it('is read-only for finance: no generate, publish, what-if or scenario download', async () => {
     await render(['finance']);
-    for (const label of ['Generate plan', 'Publish', 'Upload what-if', 'Download scenario']) expect(button(label)).toBeNull();
+    for (const label of ['Generate plan', 'Publish', 'Upload what-if', 'Download scenario'])
+      expect(button(label)).toBeNull();
     expect(el.querySelector('input[type="file"]')).toBeNull();
     expect(el.querySelector('ny-bus-plan-table')).not.toBeNull();
   });
@@ -131,15 +157,25 @@ describe('PlansPage', () => {
     const labels = [...el.querySelectorAll('.version-list .state')].map((x) => x.textContent?.trim());
     expect(labels).toEqual(['What-if', 'Draft', 'Published']);
     expect(el.querySelector('#review-heading')?.textContent?.replace(/\s+/g, ' ').trim()).toBe('Version 3 What-if');
-    expect(el.querySelector('.study[role="note"]')?.textContent).toContain('never published, e-mailed or sent to chargers');
+    expect(el.querySelector('.study[role="note"]')?.textContent).toContain(
+      'never published, e-mailed or sent to chargers',
+    );
     expect(button('Publish')).toBeNull();
     expect(button('Adopt')).not.toBeNull();
   });
 
   it('adopts a what-if: lists the differences before, then opens the new draft with them', async () => {
     await render(['supervisor'], 'what-if');
-    const differences = ['Service limit in the study 150 kW, depot now 400 kW', 'Charger C3 out of service now: left out'];
-    const adoption = { whatIf: { id: WHAT_IF_ID, version: 3 }, serviceDate: '2026-12-03', includesMidday: true, differences };
+    const differences = [
+      'Service limit in the study 150 kW, depot now 400 kW',
+      'Charger C3 out of service now: left out',
+    ];
+    const adoption = {
+      whatIf: { id: WHAT_IF_ID, version: 3 },
+      serviceDate: '2026-12-03',
+      includesMidday: true,
+      differences,
+    };
     open.mockReturnValue({ afterClosed: () => of(true) });
     button('Adopt')!.click();
     await settle();
@@ -150,7 +186,14 @@ describe('PlansPage', () => {
     expect(config.data.adoption.differences).toEqual(differences);
     const req = mock.expectOne(`/api/plans/${WHAT_IF_ID}/adopt`);
     expect(req.request.method).toBe('POST');
-    const draft = planSummary({ id: '00000000-0000-4000-8000-0000000000f4', version: 4, status: 'queued', stage: 'Waiting for a worker', totalCost: null, shortBuses: null });
+    const draft = planSummary({
+      id: '00000000-0000-4000-8000-0000000000f4',
+      version: 4,
+      status: 'queued',
+      stage: 'Waiting for a worker',
+      totalCost: null,
+      shortBuses: null,
+    });
     req.flush({ plan: draft, adoption });
     await settle();
     fixture.componentRef.setInput('plan', draft.id);
@@ -160,7 +203,9 @@ describe('PlansPage', () => {
     fixture.detectChanges();
     expect(el.querySelector('#review-heading')?.textContent?.replace(/\s+/g, ' ').trim()).toBe('Version 4 Draft');
     const banner = el.querySelector('.study[aria-label="Adopted from a what-if"]')?.textContent ?? '';
-    expect(banner).toContain('Adopted from what-if version 3, re-checked against the depot as it is now: 2 differences');
+    expect(banner).toContain(
+      'Adopted from what-if version 3, re-checked against the depot as it is now: 2 differences',
+    );
     expect(banner).toContain('Charger C3 out of service now');
   });
 
@@ -169,14 +214,21 @@ describe('PlansPage', () => {
     button('Adopt')!.click();
     await settle();
     mock.expectOne(`/api/plans/${WHAT_IF_ID}/adoption`).flush(
-      { error: { code: 'conflict', message: 'The night of Thursday 3 December 2026 has ended: what-if version 3 can no longer be adopted.' } },
+      {
+        error: {
+          code: 'conflict',
+          message: 'The night of Thursday 3 December 2026 has ended: what-if version 3 can no longer be adopted.',
+        },
+      },
       { status: 409, statusText: 'Conflict' },
     );
     await settle();
     fixture.detectChanges();
     expect(open).not.toHaveBeenCalled();
     mock.expectNone(`/api/plans/${WHAT_IF_ID}/adopt`);
-    expect(el.querySelector('ny-problem-summary')?.textContent).toContain('Not adopted. The night of Thursday 3 December 2026 has ended');
+    expect(el.querySelector('ny-problem-summary')?.textContent).toContain(
+      'Not adopted. The night of Thursday 3 December 2026 has ended',
+    );
   });
 
   it('shows finance the what-if label but no Adopt', async () => {
@@ -187,7 +239,12 @@ describe('PlansPage', () => {
 
   it("opens on tonight as the server says: after midnight that is the night before the depot's date", async () => {
     TestBed.configureTestingModule({
-      providers: [provideRouter([]), provideHttpClient(), provideHttpClientTesting(), { provide: MatDialog, useValue: { open } }],
+      providers: [
+        provideRouter([]),
+        provideHttpClient(),
+        provideHttpClientTesting(),
+        { provide: MatDialog, useValue: { open } },
+      ],
     });
     mock = TestBed.inject(HttpTestingController);
     // 01:30 on Wednesday 2 December at the depot (America/Chicago), whatever this machine's clock says.
@@ -202,7 +259,9 @@ describe('PlansPage', () => {
     await settle();
     await stable();
     mock.expectOne(`/api/depots/${DEPOT_ID}/plans?serviceDate=2026-12-01`).flush({ plans: [] });
-    mock.expectOne(`/api/depots/${DEPOT_ID}`).flush({ depot: { id: DEPOT_ID, chargers: [] } as unknown as DepotDetail });
+    mock
+      .expectOne(`/api/depots/${DEPOT_ID}`)
+      .flush({ depot: { id: DEPOT_ID, chargers: [] } as unknown as DepotDetail });
     await settle();
     await stable();
     fixture.detectChanges();

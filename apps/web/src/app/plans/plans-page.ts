@@ -99,7 +99,9 @@ export class PlansPage {
       confirm: 'Publish plan',
     };
     const yes = await firstValueFrom(
-      this.dialog.open<ConfirmDialog, ConfirmData, boolean>(ConfirmDialog, { data, width: '480px', maxWidth: '95vw' }).afterClosed(),
+      this.dialog
+        .open<ConfirmDialog, ConfirmData, boolean>(ConfirmDialog, { data, width: '480px', maxWidth: '95vw' })
+        .afterClosed(),
     );
     if (yes) await this.store.publish(plan);
   }
@@ -112,9 +114,15 @@ export class PlansPage {
   protected async adopt(plan: PlanSummary): Promise<void> {
     const adoption = await this.store.adoption(plan);
     if (!adoption) return;
-    const data: AdoptData = { adoption, night: formatServiceDay(plan.serviceDate), depot: this.store.depot()?.name ?? 'the depot' };
+    const data: AdoptData = {
+      adoption,
+      night: formatServiceDay(plan.serviceDate),
+      depot: this.store.depot()?.name ?? 'the depot',
+    };
     const yes = await firstValueFrom(
-      this.dialog.open<AdoptDialog, AdoptData, boolean>(AdoptDialog, { data, width: '560px', maxWidth: '95vw' }).afterClosed(),
+      this.dialog
+        .open<AdoptDialog, AdoptData, boolean>(AdoptDialog, { data, width: '560px', maxWidth: '95vw' })
+        .afterClosed(),
     );
     if (yes) await this.store.adopt(plan);
   }

@@ -24,7 +24,9 @@ describe('PlansStore', () => {
   }
 
   async function start(plan?: string) {
-    TestBed.configureTestingModule({ providers: [provideRouter([]), provideHttpClient(), provideHttpClientTesting(), PlansStore] });
+    TestBed.configureTestingModule({
+      providers: [provideRouter([]), provideHttpClient(), provideHttpClientTesting(), PlansStore],
+    });
     mock = TestBed.inject(HttpTestingController);
     await signedInAs(mock, ['supervisor']);
     store = TestBed.inject(PlansStore);
@@ -54,7 +56,15 @@ describe('PlansStore', () => {
     expect(store.night()).toBe('2026-12-03');
     expect(store.versionsLoading()).toBe(true);
     mock.expectOne(LIST).flush({
-      plans: [planSummary(), planSummary({ id: PLAN_IDS.published, version: 1, state: 'published', publishedAt: '2026-12-03T19:00:00.000Z' })],
+      plans: [
+        planSummary(),
+        planSummary({
+          id: PLAN_IDS.published,
+          version: 1,
+          state: 'published',
+          publishedAt: '2026-12-03T19:00:00.000Z',
+        }),
+      ],
     });
     answerDepot();
     await tick();
@@ -63,7 +73,9 @@ describe('PlansStore', () => {
     // The published version is the one shown when none is asked for.
     expect(store.selectedId()).toBe(PLAN_IDS.published);
     expect(store.chargers()).toEqual([{ id: 'C1', maxKw: 60 }]);
-    mock.expectOne(`/api/plans/${PLAN_IDS.published}`).flush({ plan: planDetail({ id: PLAN_IDS.published, version: 1, state: 'published' }) });
+    mock
+      .expectOne(`/api/plans/${PLAN_IDS.published}`)
+      .flush({ plan: planDetail({ id: PLAN_IDS.published, version: 1, state: 'published' }) });
     await tick();
     expect(store.reviewed()?.id).toBe(PLAN_IDS.published);
     expect(store.tz()).toBe('America/Chicago');
@@ -73,7 +85,12 @@ describe('PlansStore', () => {
 
   it('says why the versions could not be loaded', async () => {
     await start();
-    mock.expectOne(LIST).flush({ error: { code: 'internal', message: 'The plans are unavailable right now' } }, { status: 503, statusText: 'Unavailable' });
+    mock
+      .expectOne(LIST)
+      .flush(
+        { error: { code: 'internal', message: 'The plans are unavailable right now' } },
+        { status: 503, statusText: 'Unavailable' },
+      );
     answerDepot();
     await tick();
     expect(store.versions()).toEqual([]);
@@ -84,7 +101,14 @@ describe('PlansStore', () => {
   it('asks for a generating version every POLL_MS until the engine is done, then stops and says so', async () => {
     vi.useFakeTimers();
     await start(GENERATING);
-    const queued = planSummary({ id: GENERATING, version: 3, status: 'queued', stage: 'Waiting for a worker', totalCost: null, shortBuses: null });
+    const queued = planSummary({
+      id: GENERATING,
+      version: 3,
+      status: 'queued',
+      stage: 'Waiting for a worker',
+      totalCost: null,
+      shortBuses: null,
+    });
     mock.expectOne(LIST).flush({ plans: [queued, planSummary()] });
     answerDepot();
     await tick();
@@ -96,7 +120,9 @@ describe('PlansStore', () => {
     await vi.advanceTimersByTimeAsync(POLL_MS - 50);
     mock.expectNone(`/api/plans/${GENERATING}`);
     await vi.advanceTimersByTimeAsync(50);
-    mock.expectOne(`/api/plans/${GENERATING}`).flush({ plan: planDetail({ ...queued, status: 'running', stage: 'Solving', result: null }) });
+    mock
+      .expectOne(`/api/plans/${GENERATING}`)
+      .flush({ plan: planDetail({ ...queued, status: 'running', stage: 'Solving', result: null }) });
     await tick();
     expect(store.selected()?.status).toBe('running');
     expect(store.selected()?.stage).toBe('Solving');
@@ -136,7 +162,9 @@ describe('PlansStore', () => {
     await tick();
     mock.expectOne(`/api/plans/${GENERATING}`).flush({ plan: planDetail({ ...queued, result: null }) });
     await vi.advanceTimersByTimeAsync(POLL_MS);
-    mock.expectOne(`/api/plans/${GENERATING}`).flush({ plan: planDetail({ ...queued, status: 'failed', error: 'No runs on this day.', result: null }) });
+    mock
+      .expectOne(`/api/plans/${GENERATING}`)
+      .flush({ plan: planDetail({ ...queued, status: 'failed', error: 'No runs on this day.', result: null }) });
     await tick();
     expect(store.versions()[0]?.status).toBe('failed');
     expect(store.announcement()).toBe('Version 1 could not be generated. No runs on this day.');
@@ -155,7 +183,10 @@ describe('PlansStore', () => {
     expect(store.busy()).toBe('Publishing version 2');
     mock
       .expectOne(`/api/plans/${PLAN_IDS.draft}/publish`)
-      .flush({ error: { code: 'conflict', message: 'Version 3 was published meanwhile' } }, { status: 409, statusText: 'Conflict' });
+      .flush(
+        { error: { code: 'conflict', message: 'Version 3 was published meanwhile' } },
+        { status: 409, statusText: 'Conflict' },
+      );
     await publishing;
     expect(store.conflict()).toBe('Version 3 was published meanwhile');
     expect(store.problem()).toBeNull();
@@ -163,7 +194,9 @@ describe('PlansStore', () => {
 
     const reloading = store.reloadAfterConflict(true);
     await settle();
-    mock.expectOne(LIST).flush({ plans: [planSummary(), planSummary({ id: PLAN_IDS.published, version: 3, state: 'published' })] });
+    mock
+      .expectOne(LIST)
+      .flush({ plans: [planSummary(), planSummary({ id: PLAN_IDS.published, version: 3, state: 'published' })] });
     await settle();
     mock.expectOne(`/api/plans/${PLAN_IDS.draft}`).flush({ plan: planDetail() });
     await reloading;

@@ -208,7 +208,9 @@ export class PlansStore {
     if (isGenerating(d)) return;
     this.watching.delete(d.id);
     this.announcement.set(
-      d.status === 'done' ? `Version ${d.version} is ready to review.` : `Version ${d.version} could not be generated. ${d.error ?? ''}`,
+      d.status === 'done'
+        ? `Version ${d.version} is ready to review.`
+        : `Version ${d.version} could not be generated. ${d.error ?? ''}`,
     );
   }
 
@@ -220,7 +222,12 @@ export class PlansStore {
   }
 
   private navigate(params: { date?: string | null; plan?: string | null }, replaceUrl = false): void {
-    void this.router.navigate([], { relativeTo: this.route, queryParams: params, queryParamsHandling: 'merge', replaceUrl });
+    void this.router.navigate([], {
+      relativeTo: this.route,
+      queryParams: params,
+      queryParamsHandling: 'merge',
+      replaceUrl,
+    });
   }
 
   clearProblems(): void {
@@ -248,7 +255,12 @@ export class PlansStore {
     } catch (err) {
       const p = toApiProblem(err);
       this.problem.set(p.message);
-      this.problems.set(Object.entries(p.fields).map(([path, message]) => ({ where: path === 'serviceDate' ? 'Night' : path, message })));
+      this.problems.set(
+        Object.entries(p.fields).map(([path, message]) => ({
+          where: path === 'serviceDate' ? 'Night' : path,
+          message,
+        })),
+      );
     } finally {
       this.busy.set(null);
     }
@@ -264,11 +276,15 @@ export class PlansStore {
       try {
         scenario = JSON.parse(await readFileText(file));
       } catch (e) {
-        this.problem.set(`${file.name} is not a scenario file: it is not valid JSON (${(e as Error).message}). Nothing was saved.`);
+        this.problem.set(
+          `${file.name} is not a scenario file: it is not valid JSON (${(e as Error).message}). Nothing was saved.`,
+        );
         return;
       }
       const plan = await this.api.whatIf(depotId, scenario);
-      this.announcement.set(`What-if version ${plan.version} for the night of ${formatServiceDay(plan.serviceDate)} is being generated.`);
+      this.announcement.set(
+        `What-if version ${plan.version} for the night of ${formatServiceDay(plan.serviceDate)} is being generated.`,
+      );
       this.added(plan);
     } catch (err) {
       const p = toApiProblem(err);
@@ -340,7 +356,9 @@ export class PlansStore {
     try {
       const done = await this.api.adopt(plan.id);
       this.adopted.set(done);
-      this.announcement.set(`Version ${done.plan.version}, adopted from what-if version ${plan.version}, is being generated.`);
+      this.announcement.set(
+        `Version ${done.plan.version}, adopted from what-if version ${plan.version}, is being generated.`,
+      );
       this.snackBar.open(`What-if version ${plan.version} adopted as draft version ${done.plan.version}`, 'OK');
       this.added(done.plan);
     } catch (err) {

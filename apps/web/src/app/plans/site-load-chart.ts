@@ -1,11 +1,4 @@
-import {
-  ChangeDetectionStrategy,
-  Component,
-  ElementRef,
-  computed,
-  input,
-  viewChild,
-} from '@angular/core';
+import { ChangeDetectionStrategy, Component, ElementRef, computed, input, viewChild } from '@angular/core';
 import type { PlanResult } from '@nightyard/contracts';
 import {
   BarController,
@@ -68,7 +61,17 @@ export function hourLabel(labels: readonly string[], index: number, widthPx: num
   imports: [BaseChartDirective],
   providers: [
     provideCharts({
-      registerables: [BarController, BarElement, LineController, LineElement, PointElement, CategoryScale, LinearScale, Legend, Tooltip],
+      registerables: [
+        BarController,
+        BarElement,
+        LineController,
+        LineElement,
+        PointElement,
+        CategoryScale,
+        LinearScale,
+        Legend,
+        Tooltip,
+      ],
     }),
   ],
   changeDetection: ChangeDetectionStrategy.OnPush,

@@ -8,7 +8,10 @@ const at = (hours: number) => T0 + hours * H;
 describe('timeline scale', () => {
   // A night with the midday layover: 06:00 to 06:00 next day, plug-ins 08:00-09:30 and 16:00-05:00.
   const horizon = { start: at(0), end: at(24) };
-  const busy = [[at(2), at(3.5)], [at(10), at(23)]] as const;
+  const busy = [
+    [at(2), at(3.5)],
+    [at(10), at(23)],
+  ] as const;
 
   it('collapses an empty span of two hours or more to a narrow gap, on whole hours', () => {
     const segs = timelineSegments(horizon, busy);
@@ -34,7 +37,10 @@ describe('timeline scale', () => {
   });
 
   it('leaves a night without long empty spans to scale', () => {
-    const segs = timelineSegments({ start: at(10), end: at(24) }, [[at(10), at(13)], [at(14), at(24)]]);
+    const segs = timelineSegments({ start: at(10), end: at(24) }, [
+      [at(10), at(13)],
+      [at(14), at(24)],
+    ]);
     expect(segs).toHaveLength(1);
     expect(segs[0]!.collapsed).toBe(false);
   });

@@ -22,7 +22,10 @@ const COLLAPSED_WEIGHT_MS = 0.75 * HOUR;
  * every empty span of two hours or more collapsed to a narrow gap, so the picture spends its width
  * on the hours that matter.
  */
-export function timelineSegments(h: { start: number; end: number }, busy: readonly (readonly [number, number])[]): Segment[] {
+export function timelineSegments(
+  h: { start: number; end: number },
+  busy: readonly (readonly [number, number])[],
+): Segment[] {
   const spans = [...busy].filter(([a, b]) => b > h.start && a < h.end).sort((x, y) => x[0] - y[0]);
   const gaps: [number, number][] = [];
   let cursor = h.start;

@@ -26,7 +26,9 @@ export class VersionNotes {
     const n = a.adoption.differences.length;
     return (
       `Adopted from what-if version ${a.adoption.whatIf.version}, re-checked against the depot as it is now: ` +
-      (n === 0 ? 'nothing differed from the study.' : `${n === 1 ? '1 difference' : `${n} differences`} from the study, the depot's data used.`)
+      (n === 0
+        ? 'nothing differed from the study.'
+        : `${n === 1 ? '1 difference' : `${n} differences`} from the study, the depot's data used.`)
     );
   });
 }

@@ -17,7 +17,9 @@ import { fixedChargeGroup, type RatePlanForm } from './rate-plan-form';
     <section class="panel" aria-labelledby="plan-fixed-heading">
       <div class="panel-header">
         <h2 id="plan-fixed-heading">Fixed charges</h2>
-        <button mat-stroked-button type="button" (click)="charges.push(newCharge())"><mat-icon>add</mat-icon>Add fixed charge</button>
+        <button mat-stroked-button type="button" (click)="charges.push(newCharge())">
+          <mat-icon>add</mat-icon>Add fixed charge
+        </button>
       </div>
       @for (c of charges.controls; track c; let ci = $index) {
         <div class="fixed-row" [formGroup]="c" role="group" [attr.aria-label]="'Fixed charge ' + (ci + 1)">
@@ -38,7 +40,13 @@ import { fixedChargeGroup, type RatePlanForm } from './rate-plan-form';
               <mat-option value="month">month</mat-option>
             </mat-select>
           </mat-form-field>
-          <button mat-icon-button type="button" class="remove" [attr.aria-label]="'Remove fixed charge ' + (ci + 1)" (click)="charges.removeAt(ci)">
+          <button
+            mat-icon-button
+            type="button"
+            class="remove"
+            [attr.aria-label]="'Remove fixed charge ' + (ci + 1)"
+            (click)="charges.removeAt(ci)"
+          >
             <mat-icon>delete</mat-icon>
           </button>
         </div>

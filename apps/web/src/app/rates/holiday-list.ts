@@ -16,7 +16,9 @@ import { holidayControl, type RatePlanForm } from './rate-plan-form';
     <section class="panel" aria-labelledby="plan-holidays-heading">
       <div class="panel-header">
         <h2 id="plan-holidays-heading">Holidays</h2>
-        <button mat-stroked-button type="button" (click)="holidays.push(newHoliday())"><mat-icon>add</mat-icon>Add holiday</button>
+        <button mat-stroked-button type="button" (click)="holidays.push(newHoliday())">
+          <mat-icon>add</mat-icon>Add holiday
+        </button>
       </div>
       <p class="hint">Dates priced with the holiday windows instead of the weekday ones.</p>
       <div class="holidays">
@@ -27,7 +29,13 @@ import { holidayControl, type RatePlanForm } from './rate-plan-form';
               <input matInput type="date" [formControl]="h" />
               <mat-error>{{ error(h) }}</mat-error>
             </mat-form-field>
-            <button mat-icon-button type="button" class="remove" [attr.aria-label]="'Remove holiday ' + (hi + 1)" (click)="holidays.removeAt(hi)">
+            <button
+              mat-icon-button
+              type="button"
+              class="remove"
+              [attr.aria-label]="'Remove holiday ' + (hi + 1)"
+              (click)="holidays.removeAt(hi)"
+            >
               <mat-icon>delete</mat-icon>
             </button>
           </div>

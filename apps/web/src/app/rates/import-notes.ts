@@ -7,8 +7,8 @@ import { ChangeDetectionStrategy, Component, input } from '@angular/core';
     <section class="panel import-notes" aria-labelledby="import-notes-heading">
       <h2 id="import-notes-heading">What the import mapped, and what it left out</h2>
       <p class="hint">
-        From {{ fileName() }}. Nothing is saved until you press “Save rate plan”. Check each season below against the utility's
-        tariff sheet.
+        From {{ fileName() }}. Nothing is saved until you press “Save rate plan”. Check each season below against the
+        utility's tariff sheet.
       </p>
       <ul>
         @for (note of notes(); track $index) {

@@ -36,7 +36,12 @@ interface ChartColours {
   grid: string;
 }
 
-const FALLBACK: ChartColours = { bands: ['#0d6b5e', '#c78a12', '#ba1a1a', '#4a635e'], line: '#1b1c1c', text: '#3f4946', grid: '#bfc9c5' };
+const FALLBACK: ChartColours = {
+  bands: ['#0d6b5e', '#c78a12', '#ba1a1a', '#4a635e'],
+  line: '#1b1c1c',
+  text: '#3f4946',
+  grid: '#bfc9c5',
+};
 /** Probe classes, cheapest band first: off-peak in the primary colour, the dearest in the error colour. */
 const BAND_PROBES = ['primary', 'tertiary', 'error', 'secondary'];
 
@@ -65,7 +70,16 @@ export function bandColours(hours: readonly PreviewHour[], palette: readonly str
   imports: [BaseChartDirective],
   providers: [
     provideCharts({
-      registerables: [BarController, BarElement, LineController, LineElement, PointElement, CategoryScale, LinearScale, Tooltip],
+      registerables: [
+        BarController,
+        BarElement,
+        LineController,
+        LineElement,
+        PointElement,
+        CategoryScale,
+        LinearScale,
+        Tooltip,
+      ],
     }),
   ],
   changeDetection: ChangeDetectionStrategy.OnPush,
@@ -80,29 +94,89 @@ export function bandColours(hours: readonly PreviewHour[], palette: readonly str
         <li><span class="swatch" [style.background]="b.colour"></span>{{ b.period }}: {{ b.price }} per kWh</li>
       }
       @if (hasDemand()) {
-        <li><span class="swatch line" [style.border-color]="colours().line"></span>Demand charge per kW (right scale)</li>
+        <li>
+          <span class="swatch line" [style.border-color]="colours().line"></span>Demand charge per kW (right scale)
+        </li>
       }
     </ul>
     <div class="box">
-      <canvas baseChart type="bar" [data]="data()" [options]="options()" role="img" [attr.aria-label]="label()" [attr.aria-describedby]="describedBy()"></canvas>
+      <canvas
+        baseChart
+        type="bar"
+        [data]="data()"
+        [options]="options()"
+        role="img"
+        [attr.aria-label]="label()"
+        [attr.aria-describedby]="describedBy()"
+      ></canvas>
     </div>
   `,
   styles: `
-    :host { display: block; }
-    .probes { position: absolute; width: 0; height: 0; overflow: hidden; }
-    .probe.primary { color: var(--mat-sys-primary); }
-    .probe.tertiary { color: var(--mat-sys-tertiary); }
-    .probe.error { color: var(--mat-sys-error); }
-    .probe.secondary { color: var(--mat-sys-secondary); }
-    .probe.text { color: var(--mat-sys-on-surface-variant); }
-    .probe.grid { color: var(--mat-sys-outline-variant); }
-    .probe.line { color: var(--mat-sys-on-surface); }
-    .box { position: relative; height: 260px; }
-    .legend { display: flex; flex-wrap: wrap; gap: 4px 16px; margin: 0 0 8px; padding: 0; list-style: none; font: var(--mat-sys-body-medium); }
-    .legend li { display: inline-flex; align-items: center; gap: 6px; }
-    .swatch { display: inline-block; width: 14px; height: 14px; border-radius: 3px; }
-    .swatch.line { height: 0; width: 18px; border-top: 3px dashed; border-radius: 0; }
-    @media (max-width: 600px) { .box { height: 220px; } }
+    :host {
+      display: block;
+    }
+    .probes {
+      position: absolute;
+      width: 0;
+      height: 0;
+      overflow: hidden;
+    }
+    .probe.primary {
+      color: var(--mat-sys-primary);
+    }
+    .probe.tertiary {
+      color: var(--mat-sys-tertiary);
+    }
+    .probe.error {
+      color: var(--mat-sys-error);
+    }
+    .probe.secondary {
+      color: var(--mat-sys-secondary);
+    }
+    .probe.text {
+      color: var(--mat-sys-on-surface-variant);
+    }
+    .probe.grid {
+      color: var(--mat-sys-outline-variant);
+    }
+    .probe.line {
+      color: var(--mat-sys-on-surface);
+    }
+    .box {
+      position: relative;
+      height: 260px;
+    }
+    .legend {
+      display: flex;
+      flex-wrap: wrap;
+      gap: 4px 16px;
+      margin: 0 0 8px;
+      padding: 0;
+      list-style: none;
+      font: var(--mat-sys-body-medium);
+    }
+    .legend li {
+      display: inline-flex;
+      align-items: center;
+      gap: 6px;
+    }
+    .swatch {
+      display: inline-block;
+      width: 14px;
+      height: 14px;
+      border-radius: 3px;
+    }
+    .swatch.line {
+      height: 0;
+      width: 18px;
+      border-top: 3px dashed;
+      border-radius: 0;
+    }
+    @media (max-width: 600px) {
+      .box {
+        height: 220px;
+      }
+    }
   `,
 })
 export class PriceChart {
@@ -126,7 +200,11 @@ export class PriceChart {
     const c = this.currency();
     const prices = new Map<string, number>();
     for (const h of this.hours()) for (const p of h.parts) prices.set(p.period, p.price);
-    return [...this.bands().entries()].map(([period, colour]) => ({ period, colour, price: formatPrice(prices.get(period) ?? 0, c) }));
+    return [...this.bands().entries()].map(([period, colour]) => ({
+      period,
+      colour,
+      price: formatPrice(prices.get(period) ?? 0, c),
+    }));
   });
 
   protected readonly data = computed<ChartData<'bar'>>(() => {

@@ -18,7 +18,9 @@ describe('RateDay', () => {
   }
 
   const rows = () =>
-    [...el.querySelectorAll('table.hours tbody tr')].map((tr) => [...tr.children].map((c) => c.textContent?.replace(/\s+/g, ' ').trim()));
+    [...el.querySelectorAll('table.hours tbody tr')].map((tr) =>
+      [...tr.children].map((c) => c.textContent?.replace(/\s+/g, ' ').trim()),
+    );
 
   it('shows the price of each of the 24 hours of a normal day', async () => {
     await render(weekdayPreview());
@@ -37,7 +39,12 @@ describe('RateDay', () => {
     await render(fallBackPreview());
     const r = rows();
     expect(r).toHaveLength(25);
-    expect(r.map((x) => x[0]).slice(0, 4)).toEqual(['00:00–01:00', '01:00–02:00 CDT', '01:00–02:00 CST', '02:00–03:00']);
+    expect(r.map((x) => x[0]).slice(0, 4)).toEqual([
+      '00:00–01:00',
+      '01:00–02:00 CDT',
+      '01:00–02:00 CST',
+      '02:00–03:00',
+    ]);
     expect(r[24]![0]).toBe('23:00–24:00');
     expect(el.textContent).toContain('25 hours');
   });
@@ -58,14 +65,29 @@ describe('RateDay', () => {
       ...weekdayPreview(),
       date: '2027-03-14',
       intervals: [
-        { start: '2027-03-14T00:00:00.000-06:00', end: '2027-03-14T16:30:00.000-05:00', period: 'off-peak', price: 0.07, demandCharge: 0 },
-        { start: '2027-03-14T16:30:00.000-05:00', end: '2027-03-15T00:00:00.000-05:00', period: 'on-peak', price: 0.2, demandCharge: 0 },
+        {
+          start: '2027-03-14T00:00:00.000-06:00',
+          end: '2027-03-14T16:30:00.000-05:00',
+          period: 'off-peak',
+          price: 0.07,
+          demandCharge: 0,
+        },
+        {
+          start: '2027-03-14T16:30:00.000-05:00',
+          end: '2027-03-15T00:00:00.000-05:00',
+          period: 'on-peak',
+          price: 0.2,
+          demandCharge: 0,
+        },
       ],
     };
     const hours = previewHours(spring, 'America/Chicago');
     expect(hours).toHaveLength(23);
     expect(hours[1]!.label).toBe('01:00–03:00');
     const split = hours.find((h) => h.label.startsWith('16:00'))!;
-    expect(split.parts.map((p) => [p.period, p.from, p.minutes])).toEqual([['off-peak', '16:00', 30], ['on-peak', '16:30', 30]]);
+    expect(split.parts.map((p) => [p.period, p.from, p.minutes])).toEqual([
+      ['off-peak', '16:00', 30],
+      ['on-peak', '16:30', 30],
+    ]);
   });
 });

@@ -56,7 +56,9 @@ export class RateDay {
       demandText: b.demandCharge > 0 ? formatMoney(b.demandCharge, c) : null,
     }));
   });
-  protected readonly facility = computed(() => formatMoney(this.preview().facilityDemandCharge, this.preview().currency));
+  protected readonly facility = computed(() =>
+    formatMoney(this.preview().facilityDemandCharge, this.preview().currency),
+  );
   protected readonly demandBands = computed(() => this.bands().filter((b) => b.demandText));
   protected readonly rows = computed(() => {
     const c = this.preview().currency;
@@ -82,6 +84,7 @@ export class RateDay {
     }));
   });
   protected readonly chartLabel = computed(
-    () => `Bar chart: price per kWh for each hour of ${formatServiceDay(this.preview().date)}, coloured by time-of-use period`,
+    () =>
+      `Bar chart: price per kWh for each hour of ${formatServiceDay(this.preview().date)}, coloured by time-of-use period`,
   );
 }

@@ -1,16 +1,35 @@
 import type { DayType, TouWindow } from '@nightyard/contracts';
 
 export const MONTH_NAMES = [
-  'January', 'February', 'March', 'April', 'May', 'June',
-  'July', 'August', 'September', 'October', 'November', 'December',
+  'January',
+  'February',
+  'March',
+  'April',
+  'May',
+  'June',
+  'July',
+  'August',
+  'September',
+  'October',
+  'November',
+  'December',
 ] as const;
 
-export const DAY_TYPE_LABELS: Record<DayType, string> = { weekday: 'Weekdays', weekend: 'Weekends', holiday: 'Holidays' };
+export const DAY_TYPE_LABELS: Record<DayType, string> = {
+  weekday: 'Weekdays',
+  weekend: 'Weekends',
+  holiday: 'Holidays',
+};
 export const DAY_TYPE_ONE: Record<DayType, string> = { weekday: 'weekday', weekend: 'weekend day', holiday: 'holiday' };
 
 function currencyFormat(currency: string, min: number, max: number): Intl.NumberFormat {
   try {
-    return new Intl.NumberFormat(undefined, { style: 'currency', currency, minimumFractionDigits: min, maximumFractionDigits: max });
+    return new Intl.NumberFormat(undefined, {
+      style: 'currency',
+      currency,
+      minimumFractionDigits: min,
+      maximumFractionDigits: max,
+    });
   } catch {
     return new Intl.NumberFormat(undefined, { minimumFractionDigits: min, maximumFractionDigits: max });
   }

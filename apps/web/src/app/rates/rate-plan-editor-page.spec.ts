@@ -60,13 +60,17 @@ describe('RatePlanEditorPage', () => {
   }
 
   function button(text: string, scope: Element = el): HTMLButtonElement {
-    const b = [...scope.querySelectorAll('button')].find((x) => x.textContent?.replace(/\s+/g, ' ').trim().endsWith(text));
+    const b = [...scope.querySelectorAll('button')].find((x) =>
+      x.textContent?.replace(/\s+/g, ' ').trim().endsWith(text),
+    );
     if (!b) throw new Error(`No button ${text}`);
     return b;
   }
 
   function checkbox(scope: Element, label: string): HTMLInputElement {
-    return [...scope.querySelectorAll('mat-checkbox')].find((c) => c.textContent?.trim() === label)!.querySelector('input')!;
+    return [...scope.querySelectorAll('mat-checkbox')]
+      .find((c) => c.textContent?.trim() === label)!
+      .querySelector('input')!;
   }
 
   const win = (key: string) => el.querySelector(`[data-window="${key}"]`)!;
@@ -138,20 +142,25 @@ describe('RatePlanEditorPage', () => {
         error: {
           code: 'validation_failed',
           message: 'Check definition.seasons[0].periods[0].windows[1]',
-          fields: { 'definition.seasons[0].periods[0].windows[1]': 'Overlaps "on-peak" 16:00-21:00 on weekends from 22:00 to 23:00' },
+          fields: {
+            'definition.seasons[0].periods[0].windows[1]':
+              'Overlaps "on-peak" 16:00-21:00 on weekends from 22:00 to 23:00',
+          },
         },
       },
       { status: 400, statusText: 'Bad Request' },
     );
     await refresh();
-    expect(win('0.0.1').querySelector('.window-error')?.textContent).toContain('Overlaps "on-peak" 16:00-21:00 on weekends');
+    expect(win('0.0.1').querySelector('.window-error')?.textContent).toContain(
+      'Overlaps "on-peak" 16:00-21:00 on weekends',
+    );
     expect(win('0.0.0').querySelector('.window-error')).toBeNull();
     const live = el.querySelector('ny-problem-summary [aria-live="assertive"]')!;
     expect(live.textContent).toContain('Nothing was saved.');
     expect(live.textContent).toContain('Season 1, period 1, window 2: Overlaps');
   });
 
-  it('catches overlapping windows before sending, with the contract\'s words', () => {
+  it("catches overlapping windows before sending, with the contract's words", () => {
     const form = ratePlanForm('Broken', {
       currency: 'USD',
       seasons: [
@@ -161,7 +170,17 @@ describe('RatePlanEditorPage', () => {
           toMonth: 12,
           offPeakPrice: 0.05,
           facilityDemandCharge: 0,
-          periods: [{ name: 'p', price: 0.2, demandCharge: 0, windows: [{ dayTypes: ['weekday'], from: '16:00', to: '20:00' }, { dayTypes: ['weekday', 'weekend'], from: '19:00', to: '21:00' }] }],
+          periods: [
+            {
+              name: 'p',
+              price: 0.2,
+              demandCharge: 0,
+              windows: [
+                { dayTypes: ['weekday'], from: '16:00', to: '20:00' },
+                { dayTypes: ['weekday', 'weekend'], from: '19:00', to: '21:00' },
+              ],
+            },
+          ],
           energyBlocks: [],
         },
       ],
@@ -172,7 +191,9 @@ describe('RatePlanEditorPage', () => {
     });
     expect(form.valid).toBe(true);
     checkDefinition(form);
-    expect(form.get('seasons.0.periods.0.windows.1')?.getError('server')).toBe('Overlaps "p" 16:00-20:00 on weekdays from 19:00 to 20:00');
+    expect(form.get('seasons.0.periods.0.windows.1')?.getError('server')).toBe(
+      'Overlaps "p" 16:00-20:00 on weekdays from 19:00 to 20:00',
+    );
     expect(form.get('seasons.0.periods.0.windows.0')?.errors).toBeNull();
   });
 
@@ -185,7 +206,17 @@ describe('RatePlanEditorPage', () => {
     const base = ratePlan().definition;
     const def = {
       ...base,
-      seasons: base.seasons.map((s, i) => (i === 0 ? { ...s, energyBlocks: [{ uptoKwh: 1000, adder: 0 }, { uptoKwh: null, adder: -0.015 }] } : s)),
+      seasons: base.seasons.map((s, i) =>
+        i === 0
+          ? {
+              ...s,
+              energyBlocks: [
+                { uptoKwh: 1000, adder: 0 },
+                { uptoKwh: null, adder: -0.015 },
+              ],
+            }
+          : s,
+      ),
       demandRatchet: { percent: 80, months: 11 },
       minimumCharge: { amount: 25, per: 'month' as const },
     };
@@ -199,15 +230,28 @@ describe('RatePlanEditorPage', () => {
     await render(['facilities']);
     button('Add energy block to season 1').click();
     await refresh();
-    for (const label of ['Block 1 ends at', 'Block 1 price change', 'Block 2 ends at', 'Ratchet percentage', 'Minimum bill']) {
+    for (const label of [
+      'Block 1 ends at',
+      'Block 1 price change',
+      'Block 2 ends at',
+      'Ratchet percentage',
+      'Minimum bill',
+    ]) {
       expect(field(el, label)).toBeTruthy();
     }
-    expect(el.textContent).toContain('from the meter readings imported under Costs, the published plans and the peaks entered under Depot');
+    expect(el.textContent).toContain(
+      'from the meter readings imported under Costs, the published plans and the peaks entered under Depot',
+    );
   });
 
   it('opens an imported URDB plan for review, with its notes', async () => {
     const plan = ratePlan({ name: 'Prairie Wind: General Service TOU' });
-    TestBed.inject(UrdbDraft).set({ name: plan.name, definition: plan.definition, notes: ['Energy period 0 has 2 tiers; the first tier is used.'], fileName: 'urdb.json' });
+    TestBed.inject(UrdbDraft).set({
+      name: plan.name,
+      definition: plan.definition,
+      notes: ['Energy period 0 has 2 tiers; the first tier is used.'],
+      fileName: 'urdb.json',
+    });
     await render(['facilities'], { from: 'urdb' });
     expect(el.querySelector('h1')?.textContent).toBe('Check the imported rate plan');
     expect(el.textContent).toContain('Energy period 0 has 2 tiers; the first tier is used.');
@@ -217,7 +261,10 @@ describe('RatePlanEditorPage', () => {
     const req = mock.expectOne('/api/rate-plans');
     expect(req.request.body.definition).toEqual(plan.definition);
     const navigate = vi.spyOn(TestBed.inject(Router), 'navigate').mockResolvedValue(true);
-    req.flush({ ratePlan: { ...plan, id: '00000000-0000-4000-8000-0000000000f9' } }, { status: 201, statusText: 'Created' });
+    req.flush(
+      { ratePlan: { ...plan, id: '00000000-0000-4000-8000-0000000000f9' } },
+      { status: 201, statusText: 'Created' },
+    );
     await refresh();
     expect(navigate).toHaveBeenCalledWith(['/rates', '00000000-0000-4000-8000-0000000000f9']);
   });

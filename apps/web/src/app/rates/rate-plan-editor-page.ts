@@ -84,7 +84,9 @@ export class RatePlanEditorPage {
   private focusFirstError(): void {
     queueMicrotask(() =>
       this.host.nativeElement
-        .querySelector<HTMLElement>('input.ng-invalid, mat-select.ng-invalid, .days.ng-invalid input, .window.ng-invalid input')
+        .querySelector<HTMLElement>(
+          'input.ng-invalid, mat-select.ng-invalid, .days.ng-invalid input, .window.ng-invalid input',
+        )
         ?.focus(),
     );
   }

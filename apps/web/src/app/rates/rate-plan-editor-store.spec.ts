@@ -23,7 +23,9 @@ describe('RatePlanEditorStore', () => {
   }
 
   beforeEach(() => {
-    TestBed.configureTestingModule({ providers: [provideRouter([]), provideHttpClient(), provideHttpClientTesting(), RatePlanEditorStore] });
+    TestBed.configureTestingModule({
+      providers: [provideRouter([]), provideHttpClient(), provideHttpClientTesting(), RatePlanEditorStore],
+    });
     mock = TestBed.inject(HttpTestingController);
   });
 
@@ -69,7 +71,9 @@ describe('RatePlanEditorStore', () => {
     TestBed.resetTestingModule();
     expect(draft.value()).toBeNull();
 
-    TestBed.configureTestingModule({ providers: [provideRouter([]), provideHttpClient(), provideHttpClientTesting(), RatePlanEditorStore] });
+    TestBed.configureTestingModule({
+      providers: [provideRouter([]), provideHttpClient(), provideHttpClientTesting(), RatePlanEditorStore],
+    });
     mock = TestBed.inject(HttpTestingController);
     start(undefined, 'urdb');
     expect(store.mode()).toBe('new');

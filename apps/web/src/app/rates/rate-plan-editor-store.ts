@@ -47,7 +47,9 @@ export class RatePlanEditorStore {
   });
 
   /** The plan mapped from a URDB file, waiting for review (kept in memory only, used once). */
-  private readonly imported = computed(() => (!this.id() && this.from() === 'urdb' ? untracked(this.draft.value) : null));
+  private readonly imported = computed(() =>
+    !this.id() && this.from() === 'urdb' ? untracked(this.draft.value) : null,
+  );
   readonly mode = computed<EditorMode>(() => (this.id() ? 'edit' : this.imported() ? 'import' : 'new'));
   readonly notes = computed(() => this.imported()?.notes ?? null);
   readonly fileName = computed(() => this.imported()?.fileName ?? null);
@@ -101,7 +103,11 @@ export class RatePlanEditorStore {
     } catch (err) {
       const p = toApiProblem(err);
       const rest = applyServerErrors(f, p.fields, 'definition');
-      this.showProblems(f, `${p.message}. Nothing was saved.`.replace('..', '.'), rest.map((r) => ({ where: where(r.path), message: r.message })));
+      this.showProblems(
+        f,
+        `${p.message}. Nothing was saved.`.replace('..', '.'),
+        rest.map((r) => ({ where: where(r.path), message: r.message })),
+      );
       return false;
     } finally {
       this.busy.set(false);

@@ -30,7 +30,10 @@ const FIELD_WORDS: Record<string, string> = {
 export function collectErrors(control: AbstractControl, path = ''): { path: string; message: string }[] {
   const out: { path: string; message: string }[] = [];
   if (control instanceof FormGroup || control instanceof FormArray) {
-    const entries = control instanceof FormArray ? control.controls.map((c, i) => [`[${i}]`, c] as const) : Object.entries(control.controls);
+    const entries =
+      control instanceof FormArray
+        ? control.controls.map((c, i) => [`[${i}]`, c] as const)
+        : Object.entries(control.controls);
     for (const [key, child] of entries) {
       const childPath = key.startsWith('[') ? `${path}${key}` : path ? `${path}.${key}` : key;
       out.push(...collectErrors(child, childPath));

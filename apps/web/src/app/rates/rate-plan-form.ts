@@ -49,17 +49,19 @@ export function windowGroup(w?: TouWindow) {
   return new FormGroup(
     {
       dayTypes: new FormGroup(
-        Object.fromEntries(DAY_TYPES.map((d) => [d, new FormControl(days.includes(d), { nonNullable: true })])) as Record<
-          DayType,
-          FormControl<boolean>
-        >,
+        Object.fromEntries(
+          DAY_TYPES.map((d) => [d, new FormControl(days.includes(d), { nonNullable: true })]),
+        ) as Record<DayType, FormControl<boolean>>,
         { validators: atLeastOneDay },
       ),
       from: new FormControl(w?.from ?? '', {
         nonNullable: true,
         validators: [zodValidator(clockTimeSchema, 'Enter the start as HH:mm'), notAt24],
       }),
-      to: new FormControl(w?.to ?? '', { nonNullable: true, validators: zodValidator(clockTimeSchema, 'Enter the end as HH:mm') }),
+      to: new FormControl(w?.to ?? '', {
+        nonNullable: true,
+        validators: zodValidator(clockTimeSchema, 'Enter the end as HH:mm'),
+      }),
     },
     { validators: differentEnds },
   );
@@ -68,9 +70,18 @@ export type WindowGroup = ReturnType<typeof windowGroup>;
 
 export function periodGroup(p?: TouPeriod) {
   return new FormGroup({
-    name: new FormControl(p?.name ?? '', { nonNullable: true, validators: zodValidator(period.name, 'Name the period, e.g. on-peak') }),
-    price: new FormControl<number | null>(p?.price ?? null, zodValidator(period.price, 'Enter the energy price per kWh')),
-    demandCharge: new FormControl<number | null>(p?.demandCharge ?? 0, zodValidator(period.demandCharge, 'Enter the demand charge per kW (0 if none)')),
+    name: new FormControl(p?.name ?? '', {
+      nonNullable: true,
+      validators: zodValidator(period.name, 'Name the period, e.g. on-peak'),
+    }),
+    price: new FormControl<number | null>(
+      p?.price ?? null,
+      zodValidator(period.price, 'Enter the energy price per kWh'),
+    ),
+    demandCharge: new FormControl<number | null>(
+      p?.demandCharge ?? 0,
+      zodValidator(period.demandCharge, 'Enter the demand charge per kW (0 if none)'),
+    ),
     windows: new FormArray((p?.windows ?? [undefined]).map((w) => windowGroup(w))),
   });
 }
@@ -78,10 +89,16 @@ export type PeriodGroup = ReturnType<typeof periodGroup>;
 
 export function seasonGroup(s?: Season) {
   return new FormGroup({
-    name: new FormControl(s?.name ?? '', { nonNullable: true, validators: zodValidator(season.name, 'Name the season') }),
+    name: new FormControl(s?.name ?? '', {
+      nonNullable: true,
+      validators: zodValidator(season.name, 'Name the season'),
+    }),
     fromMonth: new FormControl<number>(s?.fromMonth ?? 1, { nonNullable: true }),
     toMonth: new FormControl<number>(s?.toMonth ?? 12, { nonNullable: true }),
-    offPeakPrice: new FormControl<number | null>(s?.offPeakPrice ?? null, zodValidator(season.offPeakPrice, 'Enter the off-peak price per kWh')),
+    offPeakPrice: new FormControl<number | null>(
+      s?.offPeakPrice ?? null,
+      zodValidator(season.offPeakPrice, 'Enter the off-peak price per kWh'),
+    ),
     facilityDemandCharge: new FormControl<number | null>(
       s?.facilityDemandCharge ?? 0,
       zodValidator(season.facilityDemandCharge, 'Enter the facility demand charge per kW (0 if none)'),
@@ -96,14 +113,20 @@ export type SeasonGroup = ReturnType<typeof seasonGroup>;
 export function energyBlockGroup(b?: Season['energyBlocks'][number]) {
   return new FormGroup({
     uptoKwh: new FormControl<number | null>(b?.uptoKwh ?? null, zodValidator(block.uptoKwh.unwrap())),
-    adder: new FormControl<number | null>(b?.adder ?? 0, zodValidator(block.adder, 'Enter the price change per kWh (0 for the first block)')),
+    adder: new FormControl<number | null>(
+      b?.adder ?? 0,
+      zodValidator(block.adder, 'Enter the price change per kWh (0 for the first block)'),
+    ),
   });
 }
 export type EnergyBlockGroup = ReturnType<typeof energyBlockGroup>;
 
 export function fixedChargeGroup(f?: RatePlanDefinition['fixedCharges'][number]) {
   return new FormGroup({
-    name: new FormControl(f?.name ?? '', { nonNullable: true, validators: zodValidator(fixed.name, 'Name the charge, e.g. customer charge') }),
+    name: new FormControl(f?.name ?? '', {
+      nonNullable: true,
+      validators: zodValidator(fixed.name, 'Name the charge, e.g. customer charge'),
+    }),
     amount: new FormControl<number | null>(f?.amount ?? null, zodValidator(fixed.amount, 'Enter the amount')),
     per: new FormControl<'day' | 'month'>(f?.per ?? 'month', { nonNullable: true }),
   });
@@ -111,13 +134,26 @@ export function fixedChargeGroup(f?: RatePlanDefinition['fixedCharges'][number])
 export type FixedChargeGroup = ReturnType<typeof fixedChargeGroup>;
 
 export function holidayControl(date = '') {
-  return new FormControl(date, { nonNullable: true, validators: zodValidator(isoDate('Write dates as YYYY-MM-DD'), 'Enter the date') });
+  return new FormControl(date, {
+    nonNullable: true,
+    validators: zodValidator(isoDate('Write dates as YYYY-MM-DD'), 'Enter the date'),
+  });
 }
 
 /** A new plan starts with one all-year season and no periods (every hour off-peak). */
 export const BLANK_DEFINITION: RatePlanDefinition = {
   currency: 'USD',
-  seasons: [{ name: 'All year', fromMonth: 1, toMonth: 12, offPeakPrice: 0, facilityDemandCharge: 0, periods: [], energyBlocks: [] }],
+  seasons: [
+    {
+      name: 'All year',
+      fromMonth: 1,
+      toMonth: 12,
+      offPeakPrice: 0,
+      facilityDemandCharge: 0,
+      periods: [],
+      energyBlocks: [],
+    },
+  ],
   fixedCharges: [],
   holidays: [],
   demandRatchet: null,
@@ -126,10 +162,16 @@ export const BLANK_DEFINITION: RatePlanDefinition = {
 
 export function ratePlanForm(name: string, def: RatePlanDefinition = BLANK_DEFINITION) {
   return new FormGroup({
-    name: new FormControl(name, { nonNullable: true, validators: zodValidator(saveRatePlanSchema.shape.name, 'Name the rate plan') }),
+    name: new FormControl(name, {
+      nonNullable: true,
+      validators: zodValidator(saveRatePlanSchema.shape.name, 'Name the rate plan'),
+    }),
     currency: new FormControl(def.currency, {
       nonNullable: true,
-      validators: zodValidator(z.string().regex(/^[A-Z]{3}$/, 'Use a three-letter currency code such as USD'), 'Enter the currency code, e.g. USD'),
+      validators: zodValidator(
+        z.string().regex(/^[A-Z]{3}$/, 'Use a three-letter currency code such as USD'),
+        'Enter the currency code, e.g. USD',
+      ),
     }),
     seasons: new FormArray(def.seasons.map((s) => seasonGroup(s))),
     fixedCharges: new FormArray(def.fixedCharges.map((f) => fixedChargeGroup(f))),
@@ -175,8 +217,12 @@ export function definitionOf(form: RatePlanForm): RatePlanDefinition {
     })),
     fixedCharges: v.fixedCharges.map((f) => ({ name: f.name.trim(), amount: f.amount ?? 0, per: f.per })),
     holidays: v.holidays.map((d) => d.trim()),
-    demandRatchet: v.demandRatchet.percent === null ? null : { percent: v.demandRatchet.percent, months: v.demandRatchet.months ?? 11 },
-    minimumCharge: v.minimumCharge.amount === null ? null : { amount: v.minimumCharge.amount, per: v.minimumCharge.per },
+    demandRatchet:
+      v.demandRatchet.percent === null
+        ? null
+        : { percent: v.demandRatchet.percent, months: v.demandRatchet.months ?? 11 },
+    minimumCharge:
+      v.minimumCharge.amount === null ? null : { amount: v.minimumCharge.amount, per: v.minimumCharge.per },
   };
 }
 
@@ -197,7 +243,12 @@ export function describePath(path: string): string {
   const words: string[] = [];
   const re = /(seasons|periods|windows|fixedCharges|holidays|energyBlocks)\[(\d+)\]/g;
   const names: Record<string, string> = {
-    seasons: 'Season', periods: 'period', windows: 'window', fixedCharges: 'Fixed charge', holidays: 'Holiday', energyBlocks: 'energy block',
+    seasons: 'Season',
+    periods: 'period',
+    windows: 'window',
+    fixedCharges: 'Fixed charge',
+    holidays: 'Holiday',
+    energyBlocks: 'energy block',
   };
   for (const m of path.matchAll(re)) words.push(`${names[m[1]!]} ${Number(m[2]) + 1}`);
   return words.join(', ');

@@ -69,15 +69,46 @@ import { RatesApi } from './rates-api';
   `,
   styleUrl: '../shared/panel.scss',
   styles: `
-    :host { display: block; }
-    .crumbs { display: flex; flex-wrap: wrap; align-items: center; gap: 4px; margin-bottom: 8px; font: var(--mat-sys-label-large); }
-    .crumbs mat-icon { font-size: 18px; width: 18px; height: 18px; color: var(--mat-sys-on-surface-variant); }
+    :host {
+      display: block;
+    }
+    .crumbs {
+      display: flex;
+      flex-wrap: wrap;
+      align-items: center;
+      gap: 4px;
+      margin-bottom: 8px;
+      font: var(--mat-sys-label-large);
+    }
+    .crumbs mat-icon {
+      font-size: 18px;
+      width: 18px;
+      height: 18px;
+      color: var(--mat-sys-on-surface-variant);
+    }
     /* A long plan name wraps on a phone instead of running off the screen. */
-    .crumbs span { min-width: 0; overflow-wrap: anywhere; }
-    h1 { overflow-wrap: anywhere; }
-    h2 { margin-bottom: 4px; }
-    .actions { display: flex; flex-wrap: wrap; gap: 8px; }
-    .problem { display: flex; flex-wrap: wrap; align-items: center; gap: 8px 16px; color: var(--mat-sys-error); }
+    .crumbs span {
+      min-width: 0;
+      overflow-wrap: anywhere;
+    }
+    h1 {
+      overflow-wrap: anywhere;
+    }
+    h2 {
+      margin-bottom: 4px;
+    }
+    .actions {
+      display: flex;
+      flex-wrap: wrap;
+      gap: 8px;
+    }
+    .problem {
+      display: flex;
+      flex-wrap: wrap;
+      align-items: center;
+      gap: 8px 16px;
+      color: var(--mat-sys-error);
+    }
   `,
 })
 export class RatePlanPage {

@@ -45,10 +45,12 @@ import { describeWindow, formatMoney, formatPrice, monthRange } from './rate-for
 
     @for (s of seasons(); track $index) {
       <section class="season" [attr.aria-labelledby]="id + '-s' + $index">
-        <h3 [id]="id + '-s' + $index">{{ s.name }} <span class="months">{{ s.months }}</span></h3>
+        <h3 [id]="id + '-s' + $index">
+          {{ s.name }} <span class="months">{{ s.months }}</span>
+        </h3>
         <p class="season-facts">
-          Off-peak (every hour outside the periods below): <strong>{{ s.offPeak }}</strong> per kWh.
-          Facility demand charge: <strong>{{ s.facility }}</strong> per kW on the billing period's highest 15 minutes.
+          Off-peak (every hour outside the periods below): <strong>{{ s.offPeak }}</strong> per kWh. Facility demand
+          charge: <strong>{{ s.facility }}</strong> per kW on the billing period's highest 15 minutes.
         </p>
         @if (s.blocks.length) {
           <p class="season-facts">
@@ -61,7 +63,12 @@ import { describeWindow, formatMoney, formatPrice, monthRange } from './rate-for
         @if (s.periods.length) {
           <div class="table-scroll" role="region" [attr.aria-label]="'Time-of-use periods, ' + s.name" tabindex="0">
             <table class="plain">
-              <caption class="ny-visually-hidden">Time-of-use periods of {{ s.name }}</caption>
+              <caption class="ny-visually-hidden">
+                Time-of-use periods of
+                {{
+                  s.name
+                }}
+              </caption>
               <thead>
                 <tr>
                   <th scope="col">Period</th>
@@ -94,13 +101,32 @@ import { describeWindow, formatMoney, formatPrice, monthRange } from './rate-for
   `,
   styleUrls: ['../shared/panel.scss', './rate-table.scss'],
   styles: `
-    .season { margin-top: 16px; }
-    h3 { font: var(--mat-sys-title-medium); margin: 0 0 4px; }
-    .months { color: var(--mat-sys-on-surface-variant); font: var(--mat-sys-body-medium); margin-inline-start: 8px; }
-    .season-facts { margin: 0 0 8px; font: var(--mat-sys-body-medium); max-width: 80ch; }
-    .line { display: block; }
-    .facts dd { font: var(--mat-sys-body-large); }
-    .facts .wide { grid-column: 1 / -1; }
+    .season {
+      margin-top: 16px;
+    }
+    h3 {
+      font: var(--mat-sys-title-medium);
+      margin: 0 0 4px;
+    }
+    .months {
+      color: var(--mat-sys-on-surface-variant);
+      font: var(--mat-sys-body-medium);
+      margin-inline-start: 8px;
+    }
+    .season-facts {
+      margin: 0 0 8px;
+      font: var(--mat-sys-body-medium);
+      max-width: 80ch;
+    }
+    .line {
+      display: block;
+    }
+    .facts dd {
+      font: var(--mat-sys-body-large);
+    }
+    .facts .wide {
+      grid-column: 1 / -1;
+    }
   `,
 })
 export class RatePlanSummary {
@@ -131,8 +157,14 @@ export class RatePlanSummary {
       facility: formatMoney(s.facilityDemandCharge, c),
       blocks: (s.energyBlocks ?? []).map((b, i, all) => {
         const from = i === 0 ? 0 : (all[i - 1]!.uptoKwh ?? 0);
-        const range = b.uptoKwh === null ? `above ${from.toLocaleString('en-US')} kWh` : `${from.toLocaleString('en-US')} to ${b.uptoKwh.toLocaleString('en-US')} kWh`;
-        const change = b.adder === 0 ? 'at the time-of-use price' : `${b.adder > 0 ? '+' : '−'}${formatPrice(Math.abs(b.adder), c)} per kWh`;
+        const range =
+          b.uptoKwh === null
+            ? `above ${from.toLocaleString('en-US')} kWh`
+            : `${from.toLocaleString('en-US')} to ${b.uptoKwh.toLocaleString('en-US')} kWh`;
+        const change =
+          b.adder === 0
+            ? 'at the time-of-use price'
+            : `${b.adder > 0 ? '+' : '−'}${formatPrice(Math.abs(b.adder), c)} per kWh`;
         return `${range} ${change}`;
       }),
       periods: s.periods.map((p) => ({

@@ -1,4 +1,13 @@
-import { ChangeDetectionStrategy, Component, computed, inject, input, linkedSignal, resource, untracked } from '@angular/core';
+import {
+  ChangeDetectionStrategy,
+  Component,
+  computed,
+  inject,
+  input,
+  linkedSignal,
+  resource,
+  untracked,
+} from '@angular/core';
 import { MatButtonModule } from '@angular/material/button';
 import { MatFormFieldModule } from '@angular/material/form-field';
 import { MatIconModule } from '@angular/material/icon';
@@ -11,7 +20,6 @@ import { ISO_DATE, addDays as shift } from '@nightyard/contracts/depot-time';
 import { RateDay } from './rate-day';
 import { RatesApi } from './rates-api';
 
-
 /** Pick a day, see its prices: the chart, its words and the hourly table. */
 @Component({
   selector: 'ny-rate-preview-panel',
@@ -19,12 +27,16 @@ import { RatesApi } from './rates-api';
   changeDetection: ChangeDetectionStrategy.OnPush,
   template: `
     <div class="pick ny-dense">
-      <button mat-icon-button type="button" aria-label="Previous day" (click)="step(-1)"><mat-icon>chevron_left</mat-icon></button>
+      <button mat-icon-button type="button" aria-label="Previous day" (click)="step(-1)">
+        <mat-icon>chevron_left</mat-icon>
+      </button>
       <mat-form-field appearance="outline" subscriptSizing="dynamic">
         <mat-label>Day to preview</mat-label>
         <input matInput type="date" #dayInput [value]="day()" (input)="day.set(dayInput.value)" />
       </mat-form-field>
-      <button mat-icon-button type="button" aria-label="Next day" (click)="step(1)"><mat-icon>chevron_right</mat-icon></button>
+      <button mat-icon-button type="button" aria-label="Next day" (click)="step(1)">
+        <mat-icon>chevron_right</mat-icon>
+      </button>
       <span class="tz">Clock times at the depot ({{ timezone() }})</span>
     </div>
     <div aria-live="polite">
@@ -40,9 +52,20 @@ import { RatesApi } from './rates-api';
     }
   `,
   styles: `
-    :host { display: block; }
-    .pick { display: flex; flex-wrap: wrap; align-items: center; gap: 4px 8px; margin-bottom: 12px; }
-    .tz { color: var(--mat-sys-on-surface-variant); font: var(--mat-sys-body-small); }
+    :host {
+      display: block;
+    }
+    .pick {
+      display: flex;
+      flex-wrap: wrap;
+      align-items: center;
+      gap: 4px 8px;
+      margin-bottom: 12px;
+    }
+    .tz {
+      color: var(--mat-sys-on-surface-variant);
+      font: var(--mat-sys-body-small);
+    }
   `,
 })
 export class RatePreviewPanel {
@@ -61,7 +84,8 @@ export class RatePreviewPanel {
     return this.initialDate() ?? untracked(() => this.clock.todayAt(zone));
   });
   private readonly loaded = resource({
-    params: () => (ISO_DATE.test(this.day()) ? { planId: this.planId(), date: this.day(), timezone: this.timezone() } : undefined),
+    params: () =>
+      ISO_DATE.test(this.day()) ? { planId: this.planId(), date: this.day(), timezone: this.timezone() } : undefined,
     loader: ({ params }) => this.api.preview(params.planId, params.date, params.timezone),
   });
   /** The last preview loaded (kept while the next loads, or when a day is half typed). */

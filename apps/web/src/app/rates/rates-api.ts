@@ -13,7 +13,9 @@ export class RatesApi {
   }
 
   get(id: string): Promise<RatePlan> {
-    return firstValueFrom(this.http.get<{ ratePlan: RatePlan }>(`/api/rate-plans/${encodeURIComponent(id)}`).pipe(map((r) => r.ratePlan)));
+    return firstValueFrom(
+      this.http.get<{ ratePlan: RatePlan }>(`/api/rate-plans/${encodeURIComponent(id)}`).pipe(map((r) => r.ratePlan)),
+    );
   }
 
   create(body: SaveRatePlan): Promise<RatePlan> {
@@ -22,7 +24,9 @@ export class RatesApi {
 
   update(id: string, body: SaveRatePlan): Promise<RatePlan> {
     return firstValueFrom(
-      this.http.put<{ ratePlan: RatePlan }>(`/api/rate-plans/${encodeURIComponent(id)}`, body).pipe(map((r) => r.ratePlan)),
+      this.http
+        .put<{ ratePlan: RatePlan }>(`/api/rate-plans/${encodeURIComponent(id)}`, body)
+        .pipe(map((r) => r.ratePlan)),
     );
   }
 
@@ -53,7 +57,9 @@ export class RatesApi {
 
   unassign(depotId: string, effectiveFrom: string): Promise<void> {
     return firstValueFrom(
-      this.http.delete<void>(`/api/depots/${encodeURIComponent(depotId)}/rate-plans/${encodeURIComponent(effectiveFrom)}`),
+      this.http.delete<void>(
+        `/api/depots/${encodeURIComponent(depotId)}/rate-plans/${encodeURIComponent(effectiveFrom)}`,
+      ),
     );
   }
 }

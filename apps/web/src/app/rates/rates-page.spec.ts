@@ -50,7 +50,7 @@ describe('RatesPage', () => {
     expect(el.querySelector('[aria-label="Edit Commercial TOU"]')).not.toBeNull();
   });
 
-  it('shows a finance user the plans and the depot\'s assignment read-only', async () => {
+  it("shows a finance user the plans and the depot's assignment read-only", async () => {
     await render(['finance']);
     expect(el.textContent).toContain('Commercial TOU');
     expect(el.textContent).toContain('In force today');

@@ -92,7 +92,10 @@ export class RatesPage {
   protected readonly assigning = signal(false);
   protected readonly assignProblem = signal<string | null>(null);
   protected readonly assignForm = new FormGroup({
-    ratePlanId: new FormControl<string | null>(null, zodValidator(assignRatePlanSchema.shape.ratePlanId, 'Choose a rate plan')),
+    ratePlanId: new FormControl<string | null>(
+      null,
+      zodValidator(assignRatePlanSchema.shape.ratePlanId, 'Choose a rate plan'),
+    ),
     effectiveFrom: new FormControl('', {
       nonNullable: true,
       validators: zodValidator(assignRatePlanSchema.shape.effectiveFrom, 'Enter the first day billed under it'),
@@ -104,7 +107,9 @@ export class RatesPage {
   protected readonly assignments = computed(() => {
     const list = this.depot()?.ratePlans ?? [];
     const today = this.today();
-    const current = [...list].filter((a) => a.effectiveFrom <= today).sort((a, b) => b.effectiveFrom.localeCompare(a.effectiveFrom))[0];
+    const current = [...list]
+      .filter((a) => a.effectiveFrom <= today)
+      .sort((a, b) => b.effectiveFrom.localeCompare(a.effectiveFrom))[0];
     return [...list]
       .sort((a, b) => b.effectiveFrom.localeCompare(a.effectiveFrom))
       .map((a) => ({
@@ -118,7 +123,9 @@ export class RatesPage {
     const current = this.assignments().find((a) => a.state === 'In force today')?.assignment;
     return this.plans().map((plan) => {
       const uses = list.filter((a) => a.ratePlanId === plan.id);
-      const seasons = plan.definition.seasons.map((s) => `${s.name} (${monthRange(s.fromMonth, s.toMonth)})`).join(', ');
+      const seasons = plan.definition.seasons
+        .map((s) => `${s.name} (${monthRange(s.fromMonth, s.toMonth)})`)
+        .join(', ');
       return {
         plan,
         seasons,
@@ -139,7 +146,10 @@ export class RatesPage {
     try {
       await this.depots.load();
       const current = this.depots.current();
-      const [plans, depot] = await Promise.all([this.api.list(), current ? this.depotApi.detail(current.id) : Promise.resolve(null)]);
+      const [plans, depot] = await Promise.all([
+        this.api.list(),
+        current ? this.depotApi.detail(current.id) : Promise.resolve(null),
+      ]);
       this.plans.set(plans);
       this.depot.set(depot);
       if (!this.assignForm.controls.effectiveFrom.value) this.assignForm.controls.effectiveFrom.setValue(this.today());
@@ -159,7 +169,9 @@ export class RatesPage {
     this.importProblem.set(null);
     this.importItems.set([]);
     if (file.size > MAX_FILE_BYTES) {
-      this.importProblem.set(`${file.name} is larger than 1 MB. Export just the one rate record from the URDB and try again. Nothing was saved.`);
+      this.importProblem.set(
+        `${file.name} is larger than 1 MB. Export just the one rate record from the URDB and try again. Nothing was saved.`,
+      );
       return;
     }
     this.importing.set(true);

@@ -14,7 +14,16 @@ import { periodGroup, type SeasonGroup } from './rate-plan-form';
 /** One season of a rate plan: its months and base prices, its time-of-use periods and energy blocks. */
 @Component({
   selector: 'ny-season-fields',
-  imports: [EnergyBlocks, MatButtonModule, MatFormFieldModule, MatIconModule, MatInputModule, MatSelectModule, PeriodFields, ReactiveFormsModule],
+  imports: [
+    EnergyBlocks,
+    MatButtonModule,
+    MatFormFieldModule,
+    MatIconModule,
+    MatInputModule,
+    MatSelectModule,
+    PeriodFields,
+    ReactiveFormsModule,
+  ],
   templateUrl: './season-fields.html',
   styleUrls: ['../shared/panel.scss', './rate-rows.scss', './season-fields.scss'],
   changeDetection: ChangeDetectionStrategy.OnPush,

@@ -34,11 +34,17 @@ export function guardDiscard(form: AbstractControl, what = 'your changes'): void
     asking = false;
     if (answer) ref.close();
   };
-  ref.keydownEvents().pipe(takeUntilDestroyed(destroyRef)).subscribe((e) => {
-    if (e.key === 'Escape') {
-      e.preventDefault();
-      void attempt();
-    }
-  });
-  ref.backdropClick().pipe(takeUntilDestroyed(destroyRef)).subscribe(() => void attempt());
+  ref
+    .keydownEvents()
+    .pipe(takeUntilDestroyed(destroyRef))
+    .subscribe((e) => {
+      if (e.key === 'Escape') {
+        e.preventDefault();
+        void attempt();
+      }
+    });
+  ref
+    .backdropClick()
+    .pipe(takeUntilDestroyed(destroyRef))
+    .subscribe(() => void attempt());
 }

@@ -1,4 +1,12 @@
-import { ChangeDetectionStrategy, Component, DestroyRef, inject, input, signal, type AfterViewInit } from '@angular/core';
+import {
+  ChangeDetectionStrategy,
+  Component,
+  DestroyRef,
+  inject,
+  input,
+  signal,
+  type AfterViewInit,
+} from '@angular/core';
 import { takeUntilDestroyed } from '@angular/core/rxjs-interop';
 import { FormControl, NgControl, ReactiveFormsModule, type ControlValueAccessor } from '@angular/forms';
 import type { ErrorStateMatcher } from '@angular/material/core';
@@ -75,7 +83,9 @@ export class LocalDateTimeField implements ControlValueAccessor, AfterViewInit {
 
   ngAfterViewInit(): void {
     // The form's control is known by now: follow its errors (the form's, the server's) and touches.
-    this.ngControl?.control?.events.pipe(takeUntilDestroyed(this.destroyRef)).subscribe(() => this.version.update((n) => n + 1));
+    this.ngControl?.control?.events
+      .pipe(takeUntilDestroyed(this.destroyRef))
+      .subscribe(() => this.version.update((n) => n + 1));
   }
 
   protected message(): string {

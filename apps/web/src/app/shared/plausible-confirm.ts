@@ -14,7 +14,9 @@ import { MatIconModule } from '@angular/material/icon';
     @if (warning(); as w) {
       <div class="warn" role="group" [attr.aria-label]="'Check ' + field()">
         <p class="text" role="status"><mat-icon aria-hidden="true">warning</mat-icon>{{ w }}</p>
-        <mat-checkbox [checked]="confirmed()" (change)="confirmed.set($event.checked)">{{ confirmLabel() }}</mat-checkbox>
+        <mat-checkbox [checked]="confirmed()" (change)="confirmed.set($event.checked)">{{
+          confirmLabel()
+        }}</mat-checkbox>
         @if (missing()) {
           <p class="missing" role="alert">Confirm the figure, or correct it, to save.</p>
         }
@@ -22,7 +24,9 @@ import { MatIconModule } from '@angular/material/icon';
     }
   `,
   styles: `
-    :host { display: block; }
+    :host {
+      display: block;
+    }
     .warn {
       margin: 0 0 8px;
       padding: 8px 12px;
@@ -31,9 +35,22 @@ import { MatIconModule } from '@angular/material/icon';
       color: var(--mat-sys-on-tertiary-container);
       font: var(--mat-sys-body-medium);
     }
-    .text { display: flex; gap: 8px; align-items: flex-start; margin: 0; }
-    mat-icon { flex: none; font-size: 20px; width: 20px; height: 20px; }
-    .missing { margin: 0; font-weight: 600; }
+    .text {
+      display: flex;
+      gap: 8px;
+      align-items: flex-start;
+      margin: 0;
+    }
+    mat-icon {
+      flex: none;
+      font-size: 20px;
+      width: 20px;
+      height: 20px;
+    }
+    .missing {
+      margin: 0;
+      font-weight: 600;
+    }
   `,
 })
 export class PlausibleConfirm {

@@ -42,7 +42,9 @@ export interface ProblemItem {
     </div>
   `,
   styles: `
-    :host { display: block; }
+    :host {
+      display: block;
+    }
     .box {
       display: flex;
       gap: 8px;
@@ -53,10 +55,23 @@ export interface ProblemItem {
       color: var(--mat-sys-on-error-container);
       font: var(--mat-sys-body-medium);
     }
-    mat-icon { flex: none; }
-    .body { min-width: 0; overflow-wrap: anywhere; }
-    .message { margin: 2px 0; font-weight: 600; }
-    ul { margin: 4px 0 0; padding-inline-start: 20px; max-height: 320px; overflow-y: auto; }
+    mat-icon {
+      flex: none;
+    }
+    .body {
+      min-width: 0;
+      overflow-wrap: anywhere;
+    }
+    .message {
+      margin: 2px 0;
+      font-weight: 600;
+    }
+    ul {
+      margin: 4px 0 0;
+      padding-inline-start: 20px;
+      max-height: 320px;
+      overflow-y: auto;
+    }
   `,
 })
 export class ProblemSummary {

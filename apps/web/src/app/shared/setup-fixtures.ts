@@ -49,10 +49,29 @@ export function depotDetail(overrides: Partial<DepotDetail> = {}): DepotDetail {
         outUntil: null,
       }),
     ],
-    loadReductionWindows: [{ id: '00000000-0000-4000-8000-0000000000e1', start: '2026-12-10T16:00', end: '2026-12-10T19:00', limitKw: 300, note: 'Utility event' }],
+    loadReductionWindows: [
+      {
+        id: '00000000-0000-4000-8000-0000000000e1',
+        start: '2026-12-10T16:00',
+        end: '2026-12-10T19:00',
+        limitKw: 300,
+        note: 'Utility event',
+      },
+    ],
     peaksSoFar: { billingPeriodStart: '2026-12-01', facilityKw: 212, periods: { 'on-peak': 180 } },
-    yardCrew: { minPlugInMinutes: 45, driversPlugIn: true, shifts: [{ from: '15:00', to: '23:30', movesPerSlot: 3 }, { from: '04:30', to: '07:00', movesPerSlot: 2 }], costTolerancePercent: 0.5, costToleranceAmount: 5 },
-    ratePlans: [{ ratePlanId: '00000000-0000-4000-8000-0000000000f1', name: 'Commercial TOU', effectiveFrom: '2026-06-01' }],
+    yardCrew: {
+      minPlugInMinutes: 45,
+      driversPlugIn: true,
+      shifts: [
+        { from: '15:00', to: '23:30', movesPerSlot: 3 },
+        { from: '04:30', to: '07:00', movesPerSlot: 2 },
+      ],
+      costTolerancePercent: 0.5,
+      costToleranceAmount: 5,
+    },
+    ratePlans: [
+      { ratePlanId: '00000000-0000-4000-8000-0000000000f1', name: 'Commercial TOU', effectiveFrom: '2026-06-01' },
+    ],
     ...overrides,
   };
 }
@@ -71,10 +90,25 @@ export function ratePlan(overrides: Partial<RatePlan> = {}): RatePlan {
           toMonth: 9,
           offPeakPrice: 0.075,
           facilityDemandCharge: 7.5,
-          periods: [{ name: 'on-peak', price: 0.24, demandCharge: 16, windows: [{ dayTypes: ['weekday'], from: '15:00', to: '20:00' }] }],
+          periods: [
+            {
+              name: 'on-peak',
+              price: 0.24,
+              demandCharge: 16,
+              windows: [{ dayTypes: ['weekday'], from: '15:00', to: '20:00' }],
+            },
+          ],
           energyBlocks: [],
         },
-        { name: 'Winter', fromMonth: 10, toMonth: 5, offPeakPrice: 0.068, facilityDemandCharge: 7.5, periods: [], energyBlocks: [] },
+        {
+          name: 'Winter',
+          fromMonth: 10,
+          toMonth: 5,
+          offPeakPrice: 0.068,
+          facilityDemandCharge: 7.5,
+          periods: [],
+          energyBlocks: [],
+        },
       ],
       fixedCharges: [{ name: 'Customer charge', amount: 45, per: 'month' }],
       holidays: [],
@@ -94,10 +128,34 @@ export function weekdayPreview(): RatePreview {
     currency: 'USD',
     facilityDemandCharge: 7.5,
     intervals: [
-      { start: '2026-12-02T00:00:00.000-06:00', end: '2026-12-02T07:00:00.000-06:00', period: 'off-peak', price: 0.068, demandCharge: 0 },
-      { start: '2026-12-02T07:00:00.000-06:00', end: '2026-12-02T16:00:00.000-06:00', period: 'mid-peak', price: 0.11, demandCharge: 0 },
-      { start: '2026-12-02T16:00:00.000-06:00', end: '2026-12-02T20:00:00.000-06:00', period: 'on-peak', price: 0.18, demandCharge: 9 },
-      { start: '2026-12-02T20:00:00.000-06:00', end: '2026-12-03T00:00:00.000-06:00', period: 'off-peak', price: 0.068, demandCharge: 0 },
+      {
+        start: '2026-12-02T00:00:00.000-06:00',
+        end: '2026-12-02T07:00:00.000-06:00',
+        period: 'off-peak',
+        price: 0.068,
+        demandCharge: 0,
+      },
+      {
+        start: '2026-12-02T07:00:00.000-06:00',
+        end: '2026-12-02T16:00:00.000-06:00',
+        period: 'mid-peak',
+        price: 0.11,
+        demandCharge: 0,
+      },
+      {
+        start: '2026-12-02T16:00:00.000-06:00',
+        end: '2026-12-02T20:00:00.000-06:00',
+        period: 'on-peak',
+        price: 0.18,
+        demandCharge: 9,
+      },
+      {
+        start: '2026-12-02T20:00:00.000-06:00',
+        end: '2026-12-03T00:00:00.000-06:00',
+        period: 'off-peak',
+        price: 0.068,
+        demandCharge: 0,
+      },
     ],
   };
 }
@@ -111,7 +169,13 @@ export function fallBackPreview(): RatePreview {
     currency: 'USD',
     facilityDemandCharge: 7.5,
     intervals: [
-      { start: '2026-11-01T00:00:00.000-05:00', end: '2026-11-02T00:00:00.000-06:00', period: 'off-peak', price: 0.068, demandCharge: 0 },
+      {
+        start: '2026-11-01T00:00:00.000-05:00',
+        end: '2026-11-02T00:00:00.000-06:00',
+        period: 'off-peak',
+        price: 0.068,
+        demandCharge: 0,
+      },
     ],
   };
 }

@@ -1,11 +1,4 @@
-import {
-  ChangeDetectionStrategy,
-  Component,
-  DOCUMENT,
-  computed,
-  inject,
-  linkedSignal,
-} from '@angular/core';
+import { ChangeDetectionStrategy, Component, DOCUMENT, computed, inject, linkedSignal } from '@angular/core';
 import { takeUntilDestroyed } from '@angular/core/rxjs-interop';
 import { MatButtonModule } from '@angular/material/button';
 import { MatIconModule } from '@angular/material/icon';
@@ -61,7 +54,12 @@ export class Shell {
 
   protected readonly user = this.auth.user;
   protected readonly sections = this.auth.sections;
-  protected readonly roleNames = computed(() => this.auth.roles().map((r) => ROLE_LABELS[r]).join(', '));
+  protected readonly roleNames = computed(() =>
+    this.auth
+      .roles()
+      .map((r) => ROLE_LABELS[r])
+      .join(', '),
+  );
   protected readonly yardStaff = computed(() => this.auth.roles().includes('yard'));
   protected readonly depot = this.depots.current;
 

@@ -1,4 +1,12 @@
-import type { DepotNight, DepotSummary, Role, SessionUser, ServiceNight, TokenResponse, User } from '@nightyard/contracts';
+import type {
+  DepotNight,
+  DepotSummary,
+  Role,
+  SessionUser,
+  ServiceNight,
+  TokenResponse,
+  User,
+} from '@nightyard/contracts';
 import { addDays } from '@nightyard/contracts/depot-time';
 
 /** Test data for unit tests (client side only; HTTP is faked with HttpTestingController). */
@@ -63,9 +71,22 @@ export async function settle(): Promise<void> {
 export function depotNight(serviceDate: string, now: string, overrides: Partial<DepotNight> = {}): DepotNight {
   const night = (date: string): ServiceNight => {
     const nextDate = addDays(date, 1);
-    return { serviceDate: date, nextServiceDate: nextDate, start: `${date}T14:00:00-06:00`, end: `${nextDate}T06:30:00-06:00`, fromRuns: true };
+    return {
+      serviceDate: date,
+      nextServiceDate: nextDate,
+      start: `${date}T14:00:00-06:00`,
+      end: `${nextDate}T06:30:00-06:00`,
+      fromRuns: true,
+    };
   };
   const tonight = night(serviceDate);
   const inForce = Date.parse(now) >= Date.parse(tonight.start) ? tonight : null;
-  return { now, timezone: 'America/Chicago', inForce, next: inForce ? night(tonight.nextServiceDate) : tonight, tonight, ...overrides };
+  return {
+    now,
+    timezone: 'America/Chicago',
+    inForce,
+    next: inForce ? night(tonight.nextServiceDate) : tonight,
+    tonight,
+    ...overrides,
+  };
 }

@@ -3,12 +3,21 @@ import { candidateNights, liveCounts, peakLoad, shortBuses } from './tonight-for
 
 describe('tonight-format', () => {
   it('tries tonight, then up to 4 nights back, across month ends', () => {
-    expect(candidateNights('2026-12-02')).toEqual(['2026-12-02', '2026-12-01', '2026-11-30', '2026-11-29', '2026-11-28']);
+    expect(candidateNights('2026-12-02')).toEqual([
+      '2026-12-02',
+      '2026-12-01',
+      '2026-11-30',
+      '2026-11-29',
+      '2026-11-28',
+    ]);
   });
 
   it('lists short buses with reasons in words', () => {
     const result = planResult();
-    result.buses.push({ id: '209', departures: [], shortfallKwh: 5, reason: 'taper' }, { id: '210', departures: [], shortfallKwh: 1e-9, reason: 'cabinet' });
+    result.buses.push(
+      { id: '209', departures: [], shortfallKwh: 5, reason: 'taper' },
+      { id: '210', departures: [], shortfallKwh: 1e-9, reason: 'cabinet' },
+    );
     expect(shortBuses(planDetail({ result }))).toEqual([
       { bus: '203', shortfallKwh: 30, reason: 'Site service limit' },
       { bus: '205', shortfallKwh: 12.5, reason: 'Dwell too short' },
@@ -31,6 +40,12 @@ describe('tonight-format', () => {
       { live: { status: 'charging', powerKw: 10, seenAt: null } },
       { live: null },
     ]);
-    expect(Object.fromEntries(counts.map((c) => [c.state, c.count]))).toEqual({ charging: 1, available: 0, faulted: 1, offline: 0, unknown: 1 });
+    expect(Object.fromEntries(counts.map((c) => [c.state, c.count]))).toEqual({
+      charging: 1,
+      available: 0,
+      faulted: 1,
+      offline: 0,
+      unknown: 1,
+    });
   });
 });

@@ -54,6 +54,8 @@ export function liveStateOf(c: Pick<Charger, 'live'>): LiveState {
 }
 
 /** How many chargers report each live state (every state listed, zeros included). */
-export function liveCounts(chargers: readonly Pick<Charger, 'live'>[]): { state: LiveState; label: string; icon: string; count: number }[] {
+export function liveCounts(
+  chargers: readonly Pick<Charger, 'live'>[],
+): { state: LiveState; label: string; icon: string; count: number }[] {
   return LIVE_STATES.map((s) => ({ ...s, count: chargers.filter((c) => liveStateOf(c) === s.state).length }));
 }

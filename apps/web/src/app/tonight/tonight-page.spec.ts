@@ -51,7 +51,12 @@ describe('TonightPage', () => {
         { provide: AuthStore, useValue: { roles: signal(roles) } },
         {
           provide: DepotListStore,
-          useValue: { load: () => Promise.resolve(), state: signal('loaded'), error: signal(null), current: computed(() => current()) },
+          useValue: {
+            load: () => Promise.resolve(),
+            state: signal('loaded'),
+            error: signal(null),
+            current: computed(() => current()),
+          },
         },
       ],
     });
@@ -66,7 +71,9 @@ describe('TonightPage', () => {
 
   /** Answers the plan list of one night (the page asks night by night, newest first). */
   async function night(date: string, plans: PlanSummary[]): Promise<void> {
-    mock.expectOne((r) => r.url === `/api/depots/${DEPOT_ID}/plans` && r.params.get('serviceDate') === date).flush({ plans });
+    mock
+      .expectOne((r) => r.url === `/api/depots/${DEPOT_ID}/plans` && r.params.get('serviceDate') === date)
+      .flush({ plans });
     await render();
   }
 
@@ -151,7 +158,9 @@ describe('TonightPage', () => {
     expect(text(link)).toBe('Open version 3 in Plans');
     expect(link.getAttribute('href')).toBe(`/plans?date=2026-11-29&plan=${PLAN_IDS.published}`);
     const headings = [...el.querySelectorAll('h2')].map((h) => text(h));
-    expect(headings).toEqual(expect.arrayContaining(["Tonight's plan", 'Cost and peak load', 'Short buses', 'Chargers right now']));
+    expect(headings).toEqual(
+      expect.arrayContaining(["Tonight's plan", 'Cost and peak load', 'Short buses', 'Chargers right now']),
+    );
   });
 
   it('lists the short buses with their reasons in words, largest shortfall first', async () => {
@@ -202,7 +211,8 @@ describe('TonightPage', () => {
     expect(live.last.depotId).toBe(DEPOT_ID);
     expect(el.querySelector('ny-charger-faults')).toBeNull();
     const state = (status: 'faulted' | 'available') => ({
-      type: 'charger' as const, at: '2026-12-02T04:00:05.000Z',
+      type: 'charger' as const,
+      at: '2026-12-02T04:00:05.000Z',
       charger: { chargerId: 'charger-C2', label: 'C2', status, powerKw: null, seenAt: '2026-12-02T04:00:05.000Z' },
     });
     expect(fact('live')).toBe('As the chargers last reported');
@@ -230,10 +240,21 @@ describe('TonightPage', () => {
     expect(words(notice)).toContain('Tell the yard staff or the supervisor');
     const live = TestBed.inject(FakeLiveTransport);
     live.last.events.next({ type: 'snapshot', at: '2026-12-02T04:00:00.000Z', chargers: [] });
-    live.last.events.next({ type: 'plan', at: '2026-12-02T04:01:00.000Z', planId: PLAN_IDS.published, serviceDate: '2026-12-01', version: 2, kind: 'revised' });
+    live.last.events.next({
+      type: 'plan',
+      at: '2026-12-02T04:01:00.000Z',
+      planId: PLAN_IDS.published,
+      serviceDate: '2026-12-01',
+      version: 2,
+      kind: 'revised',
+    });
     await render();
-    await chargers([charger('C2', { status: 'out_of_service', live: { status: 'faulted', powerKw: null, seenAt: null } })]);
-    await night('2026-12-01', [planSummary({ id: PLAN_IDS.published, serviceDate: '2026-12-01', state: 'published', version: 2 })]);
+    await chargers([
+      charger('C2', { status: 'out_of_service', live: { status: 'faulted', powerKw: null, seenAt: null } }),
+    ]);
+    await night('2026-12-01', [
+      planSummary({ id: PLAN_IDS.published, serviceDate: '2026-12-01', state: 'published', version: 2 }),
+    ]);
     await detail(planDetail({ id: PLAN_IDS.published, serviceDate: '2026-12-01', state: 'published', version: 2 }));
     expect(fact('version')).toBe('2');
     // Out of service now: the night was re-planned without it, no more call to act.

@@ -1,4 +1,15 @@
-import { ChangeDetectionStrategy, Component, DestroyRef, Injector, computed, effect, inject, signal, untracked, type EffectRef } from '@angular/core';
+import {
+  ChangeDetectionStrategy,
+  Component,
+  DestroyRef,
+  Injector,
+  computed,
+  effect,
+  inject,
+  signal,
+  untracked,
+  type EffectRef,
+} from '@angular/core';
 import { MatButtonModule } from '@angular/material/button';
 import { MatCardModule } from '@angular/material/card';
 import { MatIconModule } from '@angular/material/icon';
@@ -18,7 +29,15 @@ import { NightStore, type NightDepot } from '../depot-state/night-store';
 import { money, naturalCompare, nightComparison, num, when } from '../plans/plan-format';
 import { PlansApi } from '../plans/plans-api';
 import { SectionIntro } from '../sections/section-intro';
-import { NIGHTS_BACK, candidateNights, liveCounts, liveStateOf, LIVE_STATES, peakLoad, shortBuses } from './tonight-format';
+import {
+  NIGHTS_BACK,
+  candidateNights,
+  liveCounts,
+  liveStateOf,
+  LIVE_STATES,
+  peakLoad,
+  shortBuses,
+} from './tonight-format';
 
 type LoadState = 'idle' | 'loading' | 'loaded' | 'failed';
 
@@ -30,7 +49,16 @@ type LoadState = 'idle' | 'loading' | 'loaded' | 'failed';
  */
 @Component({
   selector: 'ny-tonight-page',
-  imports: [ChargerFaults, CurrentDepot, MatButtonModule, MatCardModule, MatIconModule, MatProgressBarModule, RouterLink, SectionIntro],
+  imports: [
+    ChargerFaults,
+    CurrentDepot,
+    MatButtonModule,
+    MatCardModule,
+    MatIconModule,
+    MatProgressBarModule,
+    RouterLink,
+    SectionIntro,
+  ],
   templateUrl: './tonight-page.html',
   styleUrl: './tonight-page.scss',
   changeDetection: ChangeDetectionStrategy.OnPush,
@@ -78,7 +106,9 @@ export class TonightPage {
       /** Set when the plan shown is of an earlier night: none is published for tonight yet. */
       tonightDay: this.tonight() && this.tonight() !== p.serviceDate ? formatServiceDay(this.tonight()!) : null,
       version: p.version,
-      published: p.publishedAt ? `${when(p.publishedAt, p.timezone)}${p.publishedBy ? ` by ${p.publishedBy}` : ''}` : null,
+      published: p.publishedAt
+        ? `${when(p.publishedAt, p.timezone)}${p.publishedBy ? ` by ${p.publishedBy}` : ''}`
+        : null,
       hasResult: r !== null,
       buses: r?.buses.length ?? 0,
       plugIns: r?.sessions.length ?? 0,

@@ -7,8 +7,20 @@ import type { ReportPreset } from './report-dialog';
 import { clock, dueText, kwh, type Horizon, type StepView } from './yard-format';
 import type { ChargerView } from './yard-store';
 
-const STATE_TEXT = { done: 'Done', saving: 'Saving…', overdue: 'Overdue', upcoming: 'Upcoming', missed: 'Did not happen' } as const;
-const STATE_ICON = { done: 'check_circle', saving: 'cloud_upload', overdue: 'warning', upcoming: 'schedule', missed: 'block' } as const;
+const STATE_TEXT = {
+  done: 'Done',
+  saving: 'Saving…',
+  overdue: 'Overdue',
+  upcoming: 'Upcoming',
+  missed: 'Did not happen',
+} as const;
+const STATE_ICON = {
+  done: 'check_circle',
+  saving: 'cloud_upload',
+  overdue: 'warning',
+  upcoming: 'schedule',
+  missed: 'block',
+} as const;
 
 /**
  * A charger as the yard works it: live state, the step due now (or next) in big type, the overdue
@@ -51,7 +63,10 @@ export class ChargerCard {
       view: v,
       urgent: v.reason !== null,
       when: dueText(v, this.now()),
-      energy: v.step.action === 'connect' ? `${kwh(v.step.kwh)} planned for this plug-in` : `After ${kwh(v.step.kwh)} planned`,
+      energy:
+        v.step.action === 'connect'
+          ? `${kwh(v.step.kwh)} planned for this plug-in`
+          : `After ${kwh(v.step.kwh)} planned`,
       button: v.step.action === 'connect' ? 'Confirm plugged in' : 'Confirm unplugged',
       label: `${v.step.action === 'connect' ? 'Confirm plugged in' : 'Confirm unplugged'}: bus ${v.step.bus} ${v.step.action === 'connect' ? 'at' : 'from'} charger ${v.step.charger}`,
     };
@@ -76,7 +91,9 @@ export class ChargerCard {
   });
 
   protected readonly failed = computed(() =>
-    this.view().steps.filter((s) => s.outbox?.state === 'failed').map((s) => ({ key: s.step.key, title: s.title, message: s.outbox?.state === 'failed' ? s.outbox.message : '' })),
+    this.view()
+      .steps.filter((s) => s.outbox?.state === 'failed')
+      .map((s) => ({ key: s.step.key, title: s.title, message: s.outbox?.state === 'failed' ? s.outbox.message : '' })),
   );
 
   protected readonly counts = computed(() => {

@@ -56,7 +56,11 @@ describe('ConfirmationOutbox', () => {
     second.flush({ stepKey: KEY, confirmedAt: '2026-12-02T03:01:00.000Z', confirmedBy: 'Kofi Brandt' });
     await settle();
 
-    expect(outbox.stateOf(KEY)).toEqual({ state: 'saved', confirmedAt: '2026-12-02T03:01:00.000Z', confirmedBy: 'Kofi Brandt' });
+    expect(outbox.stateOf(KEY)).toEqual({
+      state: 'saved',
+      confirmedAt: '2026-12-02T03:01:00.000Z',
+      confirmedBy: 'Kofi Brandt',
+    });
     expect(stored()).toEqual([]);
     expect(outcomes).toHaveLength(1);
     await vi.advanceTimersByTimeAsync(60_000);
@@ -64,14 +68,19 @@ describe('ConfirmationOutbox', () => {
   });
 
   it('sends what a closed page left in the outbox, for the person who confirmed it only', async () => {
-    localStorage.setItem(OUTBOX_STORAGE_KEY, JSON.stringify([
-      { planId: PLAN_ID, stepKey: KEY, userId: 'user-1', queuedAt: '2026-12-02T03:00:30.000Z' },
-      { planId: PLAN_ID, stepKey: 'other', userId: 'user-2', queuedAt: '2026-12-02T03:00:30.000Z' },
-    ]));
+    localStorage.setItem(
+      OUTBOX_STORAGE_KEY,
+      JSON.stringify([
+        { planId: PLAN_ID, stepKey: KEY, userId: 'user-1', queuedAt: '2026-12-02T03:00:30.000Z' },
+        { planId: PLAN_ID, stepKey: 'other', userId: 'user-2', queuedAt: '2026-12-02T03:00:30.000Z' },
+      ]),
+    );
     setUp();
     expect(outbox.stateOf(KEY)).toMatchObject({ state: 'saving' });
     outbox.flush();
-    mock.expectOne('/api/yard/confirmations').flush({ stepKey: KEY, confirmedAt: '2026-12-02T03:01:00.000Z', confirmedBy: null });
+    mock
+      .expectOne('/api/yard/confirmations')
+      .flush({ stepKey: KEY, confirmedAt: '2026-12-02T03:01:00.000Z', confirmedBy: null });
     await settle();
     expect(stored()).toEqual([expect.objectContaining({ userId: 'user-2' })]);
   });
@@ -82,12 +91,20 @@ describe('ConfirmationOutbox', () => {
     outbox.onSettled((o) => outcomes.push(o));
     outbox.confirm(PLAN_ID, KEY);
     mock.expectOne('/api/yard/confirmations').flush(
-      { error: { code: 'conflict', message: 'This plan was replaced by version 2: reload to see the current steps' } },
+      {
+        error: { code: 'conflict', message: 'This plan was replaced by version 2: reload to see the current steps' },
+      },
       { status: 409, statusText: 'Conflict' },
     );
     await settle();
-    expect(outbox.stateOf(KEY)).toEqual({ state: 'failed', message: 'This plan was replaced by version 2: reload to see the current steps' });
-    expect(outcomes[0]).toEqual({ stepKey: KEY, failed: { status: 409, message: 'This plan was replaced by version 2: reload to see the current steps' } });
+    expect(outbox.stateOf(KEY)).toEqual({
+      state: 'failed',
+      message: 'This plan was replaced by version 2: reload to see the current steps',
+    });
+    expect(outcomes[0]).toEqual({
+      stepKey: KEY,
+      failed: { status: 409, message: 'This plan was replaced by version 2: reload to see the current steps' },
+    });
     expect(stored()).toEqual([]);
     await vi.advanceTimersByTimeAsync(60_000);
     mock.expectNone('/api/yard/confirmations');
@@ -100,7 +117,9 @@ describe('ConfirmationOutbox', () => {
     await settle();
     expect(outbox.stateOf(KEY)).toMatchObject({ state: 'saving', retrying: true });
     await vi.advanceTimersByTimeAsync(RETRY_DELAYS_MS[0]!);
-    mock.expectOne('/api/yard/confirmations').flush({ stepKey: KEY, confirmedAt: '2026-12-02T03:01:00.000Z', confirmedBy: null });
+    mock
+      .expectOne('/api/yard/confirmations')
+      .flush({ stepKey: KEY, confirmedAt: '2026-12-02T03:01:00.000Z', confirmedBy: null });
     await settle();
     expect(outbox.stateOf(KEY)?.state).toBe('saved');
   });

@@ -17,8 +17,7 @@ export interface OutboxEntry {
 }
 
 export type OutboxOutcome =
-  | { stepKey: string; saved: YardConfirmation }
-  | { stepKey: string; failed: { status: number; message: string } };
+  { stepKey: string; saved: YardConfirmation } | { stepKey: string; failed: { status: number; message: string } };
 
 export const OUTBOX_STORAGE_KEY = 'nightyard.yard.outbox';
 /** Waits between attempts while the network is down (the last one repeats). */
@@ -77,7 +76,13 @@ export class ConfirmationOutbox {
     const userId = this.auth.user()?.id;
     if (!userId) return;
     if (!this.entries().some((e) => id(e) === id({ planId, stepKey }))) {
-      const entry: OutboxEntry = { planId, stepKey, userId, queuedAt: this.clock.now().toISOString(), ...(at ? { at } : {}) };
+      const entry: OutboxEntry = {
+        planId,
+        stepKey,
+        userId,
+        queuedAt: this.clock.now().toISOString(),
+        ...(at ? { at } : {}),
+      };
       this.entries.update((list) => [...list, entry]);
       this.write();
     }
@@ -120,7 +125,10 @@ export class ConfirmationOutbox {
         this.setState(entry.stepKey, {
           state: 'saving',
           retrying: true,
-          message: problem.status === 0 ? 'No connection: kept on this device, sending again…' : 'Not saved yet: sending again…',
+          message:
+            problem.status === 0
+              ? 'No connection: kept on this device, sending again…'
+              : 'Not saved yet: sending again…',
         });
         this.retryLater();
       }
@@ -153,7 +161,10 @@ export class ConfirmationOutbox {
     try {
       const raw: unknown = JSON.parse(this.storage?.getItem(OUTBOX_STORAGE_KEY) ?? '[]');
       return Array.isArray(raw)
-        ? raw.filter((e): e is OutboxEntry => typeof e?.planId === 'string' && typeof e?.stepKey === 'string' && typeof e?.userId === 'string')
+        ? raw.filter(
+            (e): e is OutboxEntry =>
+              typeof e?.planId === 'string' && typeof e?.stepKey === 'string' && typeof e?.userId === 'string',
+          )
         : [];
     } catch {
       return [];

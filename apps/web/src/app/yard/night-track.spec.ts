@@ -7,7 +7,10 @@ describe('NightTrack', () => {
     const fixture = TestBed.createComponent(NightTrack);
     const tonightsPlan = plan();
     fixture.componentRef.setInput('charger', 'C1');
-    fixture.componentRef.setInput('sessions', tonightsPlan.sessions.filter((s) => s.charger === 'C1'));
+    fixture.componentRef.setInput(
+      'sessions',
+      tonightsPlan.sessions.filter((s) => s.charger === 'C1'),
+    );
     fixture.componentRef.setInput('horizon', tonightsPlan.horizon);
     fixture.componentRef.setInput('now', Date.parse(now));
     fixture.componentRef.setInput('timezone', ZONE);
@@ -23,7 +26,10 @@ describe('NightTrack', () => {
     expect(parseFloat(now.style.left)).toBeCloseTo((5.5 / 13) * 100, 3);
     expect(now.textContent?.trim()).toBe('Now 23:30');
     const bars = [...el.querySelectorAll<HTMLElement>('.bar')];
-    expect(bars.map((b) => [b.dataset['session'], b.classList.contains('past')])).toEqual([['201', true], ['202', false]]);
+    expect(bars.map((b) => [b.dataset['session'], b.classList.contains('past')])).toEqual([
+      ['201', true],
+      ['202', false],
+    ]);
     expect(el.querySelector('.track')?.getAttribute('aria-label')).toBe(
       'Charger C1 from 18:00 to 07:00: bus 201 21:00 to 23:00, bus 202 23:30 to 02:00. Now 23:30.',
     );

@@ -126,7 +126,9 @@ export class NightTrack {
   readonly now = input.required<number>();
   readonly timezone = input.required<string>();
 
-  protected readonly ticks = computed(() => hourTicks(this.horizon(), this.timezone(), 3).filter((t) => t.left > 4 && t.left < 96));
+  protected readonly ticks = computed(() =>
+    hourTicks(this.horizon(), this.timezone(), 3).filter((t) => t.left > 4 && t.left < 96),
+  );
   protected readonly nowLeft = computed(() => nowLinePct(this.now(), this.horizon()));
   protected readonly nowLabel = computed(() => `Now ${clock(this.now(), this.timezone())}`);
 

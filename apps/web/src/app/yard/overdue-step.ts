@@ -37,9 +37,14 @@ export class OverdueStep {
   readonly missed = output<StepView>();
 
   protected readonly id = `ny-overdue-${nextId++}`;
-  protected readonly time = new FormControl('', { nonNullable: true, validators: clockTimeValidator('Enter the time it happened') });
+  protected readonly time = new FormControl('', {
+    nonNullable: true,
+    validators: clockTimeValidator('Enter the time it happened'),
+  });
   protected readonly asking = signal(false);
-  protected readonly due = computed(() => `Due ${this.view().time}, ${relative(Date.parse(this.view().step.at), this.now())}`);
+  protected readonly due = computed(
+    () => `Due ${this.view().time}, ${relative(Date.parse(this.view().step.at), this.now())}`,
+  );
   protected readonly consequence = computed(() => {
     const s = this.view().step;
     return s.action === 'connect'

@@ -22,8 +22,14 @@ describe('ReportDialog', () => {
         {
           provide: MAT_DIALOG_DATA,
           useValue: {
-            depotId: DEPOT_ID, planId: PLAN_ID, timezone: ZONE, now: Date.parse(at('22:30')),
-            buses: ['201', '202', '203'], chargers: ['C1', 'C2'], preset, ...extra,
+            depotId: DEPOT_ID,
+            planId: PLAN_ID,
+            timezone: ZONE,
+            now: Date.parse(at('22:30')),
+            buses: ['201', '202', '203'],
+            chargers: ['C1', 'C2'],
+            preset,
+            ...extra,
           } satisfies ReportDialogData,
         },
       ],
@@ -49,7 +55,7 @@ describe('ReportDialog', () => {
 
   afterEach(() => mock.verify());
 
-  it('refuses a state of charge above 100 % with the contract\'s message and sends nothing', async () => {
+  it("refuses a state of charge above 100 % with the contract's message and sends nothing", async () => {
     await open({ kind: 'soc_reading', bus: '202' });
     form().controls.socPct.setValue(120);
     await submit();
@@ -71,19 +77,22 @@ describe('ReportDialog', () => {
     expect(el.textContent).toContain('Re-planning the rest of the night');
     const req = mock.expectOne(`/api/depots/${DEPOT_ID}/tonight/reports`);
     expect(req.request.body).toEqual({ planId: PLAN_ID, kind: 'charger_out', charger: 'C2', reason: 'Cable damaged' });
-    req.flush({
-      revision: { id: 'r', version: 2, publishedAt: at('22:31'), shortBuses: 0 },
-      moved: [{ bus: '203', before: 'C2 22:00-05:00', after: 'C1 23:00-04:00' }],
-      replanMs: 840,
-      notified: 3,
-    }, { status: 201, statusText: 'Created' });
+    req.flush(
+      {
+        revision: { id: 'r', version: 2, publishedAt: at('22:31'), shortBuses: 0 },
+        moved: [{ bus: '203', before: 'C2 22:00-05:00', after: 'C1 23:00-04:00' }],
+        replanMs: 840,
+        notified: 3,
+      },
+      { status: 201, statusText: 'Created' },
+    );
     await render();
     expect(el.textContent).toContain('Version 2 is published');
     expect(el.textContent).toContain('Bus 203: C2 22:00-05:00 → C1 23:00-04:00');
     expect(el.textContent).toContain('3 people were told by e-mail');
   });
 
-  it('sends a late bus with its new local time and shows the API\'s field messages', async () => {
+  it("sends a late bus with its new local time and shows the API's field messages", async () => {
     await open({ kind: 'bus_late', bus: '203' });
     form().controls.expectedTime.setValue('01:10');
     await render();
@@ -92,12 +101,18 @@ describe('ReportDialog', () => {
     const req = mock.expectOne(`/api/depots/${DEPOT_ID}/tonight/reports`);
     expect(req.request.body).toEqual({ planId: PLAN_ID, kind: 'bus_late', bus: '203', expectedAt: '2026-12-02T01:10' });
     req.flush(
-      { error: { code: 'validation_failed', message: 'Bus 203 is not in tonight\'s plan for North Depot', fields: { bus: 'Not in tonight\'s plan' } } },
+      {
+        error: {
+          code: 'validation_failed',
+          message: "Bus 203 is not in tonight's plan for North Depot",
+          fields: { bus: "Not in tonight's plan" },
+        },
+      },
       { status: 400, statusText: 'Bad Request' },
     );
     await render();
-    expect(errors()).toContain('Not in tonight\'s plan');
-    expect(el.textContent).toContain('Bus 203 is not in tonight\'s plan for North Depot');
+    expect(errors()).toContain("Not in tonight's plan");
+    expect(el.textContent).toContain("Bus 203 is not in tonight's plan for North Depot");
     expect(el.textContent).toContain('Nothing was changed');
   });
 
@@ -126,7 +141,12 @@ describe('ReportDialog', () => {
     await open({ kind: 'bus_absent', bus: '201' });
     await submit();
     mock.expectOne(`/api/depots/${DEPOT_ID}/tonight/reports`).flush(
-      { error: { code: 'conflict', message: 'The plan was revised meanwhile (version 3): reload and report again if still needed' } },
+      {
+        error: {
+          code: 'conflict',
+          message: 'The plan was revised meanwhile (version 3): reload and report again if still needed',
+        },
+      },
       { status: 409, statusText: 'Conflict' },
     );
     await render();
@@ -137,10 +157,19 @@ describe('ReportDialog', () => {
   });
 
   it('explains that the night cannot be re-planned before it starts', async () => {
-    await open({ kind: 'charger_out', charger: 'C1', reason: 'Cable cut' }, { now: Date.parse(at('17:00')), nightStart: Date.parse(at('18:00')) });
+    await open(
+      { kind: 'charger_out', charger: 'C1', reason: 'Cable cut' },
+      { now: Date.parse(at('17:00')), nightStart: Date.parse(at('18:00')) },
+    );
     await submit();
     mock.expectOne(`/api/depots/${DEPOT_ID}/tonight/reports`).flush(
-      { error: { code: 'validation_failed', message: 'The report does not fit tonight\'s plan', fields: { now: 'must be inside the horizon' } } },
+      {
+        error: {
+          code: 'validation_failed',
+          message: "The report does not fit tonight's plan",
+          fields: { now: 'must be inside the horizon' },
+        },
+      },
       { status: 400, statusText: 'Bad Request' },
     );
     await render();

@@ -108,14 +108,24 @@ export class ReportDialog {
 
   protected readonly form = new FormGroup({
     kind: new FormControl<ReportKind>(this.data.preset?.kind ?? 'charger_out', { nonNullable: true }),
-    bus: new FormControl(this.data.preset?.bus ?? '', { nonNullable: true, validators: contract('soc_reading', 'bus') }),
-    charger: new FormControl(this.data.preset?.charger ?? '', { nonNullable: true, validators: contract('charger_out', 'charger') }),
+    bus: new FormControl(this.data.preset?.bus ?? '', {
+      nonNullable: true,
+      validators: contract('soc_reading', 'bus'),
+    }),
+    charger: new FormControl(this.data.preset?.charger ?? '', {
+      nonNullable: true,
+      validators: contract('charger_out', 'charger'),
+    }),
     expectedTime: new FormControl('', { nonNullable: true, validators: timeValidator }),
     reason: new FormControl(this.data.preset?.reason ?? '', { nonNullable: true }),
-    socPct: new FormControl<number | null>(null, { validators: contract('soc_reading', 'socPct', 'Enter the state of charge in %') }),
+    socPct: new FormControl<number | null>(null, {
+      validators: contract('soc_reading', 'socPct', 'Enter the state of charge in %'),
+    }),
   });
 
-  protected readonly kind = toSignal(this.form.controls.kind.valueChanges, { initialValue: this.form.controls.kind.value });
+  protected readonly kind = toSignal(this.form.controls.kind.valueChanges, {
+    initialValue: this.form.controls.kind.value,
+  });
   private readonly expectedTime = toSignal(this.form.controls.expectedTime.valueChanges, { initialValue: '' });
 
   protected readonly phase = signal<'form' | 'sending' | 'done' | 'conflict'>('form');
@@ -136,7 +146,9 @@ export class ReportDialog {
     return `${sameDay ? 'Today' : 'Tomorrow'}, ${time} at the depot`;
   });
 
-  protected readonly reasonLabel = computed(() => (this.kind() === 'charger_out' ? 'What is wrong with the charger' : 'Reason (optional)'));
+  protected readonly reasonLabel = computed(() =>
+    this.kind() === 'charger_out' ? 'What is wrong with the charger' : 'Reason (optional)',
+  );
 
   constructor() {
     this.applyKind(this.form.controls.kind.value);
@@ -150,7 +162,9 @@ export class ReportDialog {
       if (used.includes(name)) control.enable({ emitEvent: false });
       else control.disable({ emitEvent: false });
     }
-    this.form.controls.reason.setValidators(kind === 'charger_out' ? contract('charger_out', 'reason') : contract('bus_absent', 'reason'));
+    this.form.controls.reason.setValidators(
+      kind === 'charger_out' ? contract('charger_out', 'reason') : contract('bus_absent', 'reason'),
+    );
     this.form.controls.reason.updateValueAndValidity({ emitEvent: false });
     this.problems.set([]);
   }
@@ -161,7 +175,12 @@ export class ReportDialog {
     const planId = this.data.planId;
     switch (v.kind) {
       case 'bus_late':
-        return { planId, kind: v.kind, bus: v.bus, expectedAt: expectedAtFor(v.expectedTime, this.data.now, this.data.timezone) };
+        return {
+          planId,
+          kind: v.kind,
+          bus: v.bus,
+          expectedAt: expectedAtFor(v.expectedTime, this.data.now, this.data.timezone),
+        };
       case 'bus_absent':
         return { planId, kind: v.kind, bus: v.bus, reason: v.reason.trim() };
       case 'charger_out':

@@ -40,17 +40,24 @@ export interface RunSheetChoice {
           <section class="ny-rs-charger" [class.ny-rs-break]="!first && choice().perPage">
             <header class="ny-rs-head">
               <h1>Run sheet: charger {{ sheet.label }}{{ sheet.maxKw ? ' (' + sheet.maxKw + ' kW)' : '' }}</h1>
-              <p>{{ depotName() }} · {{ night() }} · plan version {{ version() }} · printed {{ printedAt() }} (depot time)</p>
+              <p>
+                {{ depotName() }} · {{ night() }} · plan version {{ version() }} · printed {{ printedAt() }} (depot
+                time)
+              </p>
             </header>
             @if (first || choice().perPage) {
               <div class="ny-rs-cautions">
-                <p><strong>{{ warning }}</strong></p>
+                <p>
+                  <strong>{{ warning }}</strong>
+                </p>
                 <ul>
                   @for (c of cautions; track c) {
                     <li>{{ c }}</li>
                   }
                 </ul>
-                <p><strong>{{ advisory }}</strong></p>
+                <p>
+                  <strong>{{ advisory }}</strong>
+                </p>
               </div>
             }
             @if (sheet.outOfService) {
@@ -80,7 +87,9 @@ export interface RunSheetChoice {
                     <td class="ny-rs-sign"></td>
                   </tr>
                 } @empty {
-                  <tr><td colspan="7">No bus is planned on this charger tonight.</td></tr>
+                  <tr>
+                    <td colspan="7">No bus is planned on this charger tonight.</td>
+                  </tr>
                 }
               </tbody>
             </table>
@@ -111,7 +120,10 @@ export interface RunSheetChoice {
         display: block;
         color: #000;
         background: #fff;
-        font: 11pt/1.35 Inter, system-ui, sans-serif;
+        font:
+          11pt/1.35 Inter,
+          system-ui,
+          sans-serif;
       }
       .ny-rs-charger + .ny-rs-charger {
         margin-top: 10mm;
@@ -185,7 +197,9 @@ export class RunSheets {
   private readonly template = viewChild.required<TemplateRef<unknown>>('printable');
 
   protected readonly night = computed(() => `night of ${day(this.nightStart(), this.timezone())}`);
-  protected readonly printedAt = computed(() => `${day(this.now(), this.timezone())} ${clock(this.now(), this.timezone())}`);
+  protected readonly printedAt = computed(
+    () => `${day(this.now(), this.timezone())} ${clock(this.now(), this.timezone())}`,
+  );
 
   protected readonly sheets = computed(() => {
     const only = this.choice().charger;
@@ -204,7 +218,10 @@ export class RunSheets {
           action: s.title,
           // Who makes the move: the driver on pulling in or out, or the yard crew.
           by: moveBy(s.step),
-          kwh: s.step.action === 'connect' ? new Intl.NumberFormat(undefined, { maximumFractionDigits: 1 }).format(s.step.kwh) : '',
+          kwh:
+            s.step.action === 'connect'
+              ? new Intl.NumberFormat(undefined, { maximumFractionDigits: 1 }).format(s.step.kwh)
+              : '',
           done: s.state === 'missed' ? 'Did not happen' : s.doneNote ? s.doneNote.replace(/^Done /, '') : '',
         })),
       }));

@@ -1,7 +1,12 @@
 import { HttpClient } from '@angular/common/http';
 import { Injectable, inject } from '@angular/core';
 import type {
-  DepotDetail, Tonight, YardReport, YardReportResult, yardConfirmationSchema, yardReportSchema,
+  DepotDetail,
+  Tonight,
+  YardReport,
+  YardReportResult,
+  yardConfirmationSchema,
+  yardReportSchema,
 } from '@nightyard/contracts';
 import { firstValueFrom, map } from 'rxjs';
 import type { z } from 'zod';
@@ -34,13 +39,18 @@ export class YardApi {
 
   /** `at`: when it really happened (depot time HH:mm), for a step confirmed late. */
   confirm(planId: string, stepKey: string, at?: string): Promise<YardConfirmation> {
-    return firstValueFrom(this.http.post<YardConfirmation>('/api/yard/confirmations', at ? { planId, stepKey, at } : { planId, stepKey }));
+    return firstValueFrom(
+      this.http.post<YardConfirmation>('/api/yard/confirmations', at ? { planId, stepKey, at } : { planId, stepKey }),
+    );
   }
 
   /** A step that did not happen: the server re-plans the rest of the night and publishes it. */
   missed(depotId: string, planId: string, stepKey: string): Promise<YardReportResult> {
     return firstValueFrom(
-      this.http.post<YardReportResult>(`/api/depots/${encodeURIComponent(depotId)}/tonight/missed`, { planId, stepKey }),
+      this.http.post<YardReportResult>(`/api/depots/${encodeURIComponent(depotId)}/tonight/missed`, {
+        planId,
+        stepKey,
+      }),
     );
   }
 

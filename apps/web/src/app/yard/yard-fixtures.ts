@@ -19,9 +19,10 @@ export function step(overrides: Partial<YardStep> & Pick<YardStep, 'action' | 'b
     status: 'upcoming',
     confirmedAt: null,
     confirmedBy: null,
-    text: overrides.action === 'connect'
-      ? `Plug in bus ${overrides.bus} at charger ${overrides.charger}`
-      : `Unplug bus ${overrides.bus} from charger ${overrides.charger}`,
+    text:
+      overrides.action === 'connect'
+        ? `Plug in bus ${overrides.bus} at charger ${overrides.charger}`
+        : `Unplug bus ${overrides.bus} from charger ${overrides.charger}`,
     reason: null,
     moveTo: null,
     ...overrides,
@@ -71,7 +72,15 @@ export function tonight(overrides: Partial<Tonight> = {}): Tonight {
     now: at('22:30'),
     plan: plan(),
     steps: [
-      step({ action: 'connect', bus: '201', charger: 'C1', at: at('21:00'), status: 'done', confirmedAt: at('21:02'), confirmedBy: 'Kofi Brandt' }),
+      step({
+        action: 'connect',
+        bus: '201',
+        charger: 'C1',
+        at: at('21:00'),
+        status: 'done',
+        confirmedAt: at('21:02'),
+        confirmedBy: 'Kofi Brandt',
+      }),
       step({ action: 'connect', bus: '203', charger: 'C2', at: at('22:00'), status: 'overdue' }),
       step({ action: 'disconnect', bus: '201', charger: 'C1', at: at('23:00') }),
       step({ action: 'connect', bus: '202', charger: 'C1', at: at('23:30') }),

@@ -21,31 +21,49 @@ describe('yard format', () => {
     const next = nextSteps(views);
     expect(next.get('C1')?.sentence).toBe('Unplug bus 201 from charger C1 at 23:00');
     expect(next.get('C2')?.sentence).toBe('Unplug bus 203 from charger C2 at 05:00');
-    expect(overdueSteps(views.filter((v) => v.step.charger === 'C2')).map((v) => v.title)).toEqual(['Plug in bus 203 at charger C2']);
+    expect(overdueSteps(views.filter((v) => v.step.charger === 'C2')).map((v) => v.title)).toEqual([
+      'Plug in bus 203 at charger C2',
+    ]);
     expect(dueText(next.get('C1')!, now)).toBe('Next, in 30 min (23:00)');
   });
 
   it('takes the words of a step from the server: an unplug forced by a report is due now and says where the bus goes', () => {
     const text = 'Unplug bus 218 from charger C3 now (out of service), then move it to charger C5 for 22:45';
     const steps = [
-      step({ action: 'disconnect', bus: '218', charger: 'C3', at: at('22:27'), text, reason: 'Charger C3 out of service (cable cut)', moveTo: { charger: 'C5', at: at('22:45') } }),
+      step({
+        action: 'disconnect',
+        bus: '218',
+        charger: 'C3',
+        at: at('22:27'),
+        text,
+        reason: 'Charger C3 out of service (cable cut)',
+        moveTo: { charger: 'C5', at: at('22:45') },
+      }),
       step({ action: 'connect', bus: '218', charger: 'C5', at: at('22:45') }),
       step({ action: 'connect', bus: '203', charger: 'C2', at: at('21:00'), status: 'missed' }),
     ];
     const views = stepViews(steps, now, ZONE);
     const unplug = nextSteps(views).get('C3')!;
-    expect(unplug).toMatchObject({ title: text, sentence: `${text} (reported 22:27)`, reason: 'Charger C3 out of service (cable cut)' });
+    expect(unplug).toMatchObject({
+      title: text,
+      sentence: `${text} (reported 22:27)`,
+      reason: 'Charger C3 out of service (cable cut)',
+    });
     expect(dueText(unplug, now)).toBe('Due now (22:27)');
     expect(views.find((v) => v.step.bus === '203')!.state).toBe('missed');
     expect(overdueSteps(views)).toEqual([]);
   });
 
   it('lists the next hour across chargers in time order: due now and up to 60 minutes ahead, not overdue, not done', () => {
-    const views = stepViews([
-      ...tonight().steps,
-      step({ action: 'connect', bus: '204', charger: 'C3', at: at('22:30') }),
-      step({ action: 'connect', bus: '205', charger: 'C2', at: at('23:31') }),
-    ], now, ZONE);
+    const views = stepViews(
+      [
+        ...tonight().steps,
+        step({ action: 'connect', bus: '204', charger: 'C3', at: at('22:30') }),
+        step({ action: 'connect', bus: '205', charger: 'C2', at: at('23:31') }),
+      ],
+      now,
+      ZONE,
+    );
     expect(nextHour(views, now).map((v) => `${v.time} ${v.title}`)).toEqual([
       '22:30 Plug in bus 204 at charger C3',
       '23:00 Unplug bus 201 from charger C1',
@@ -59,7 +77,9 @@ describe('yard format', () => {
       step({ action: 'disconnect', bus: '201', charger: 'C1', at: at('23:00') }),
       step({ action: 'disconnect', bus: '202', charger: 'C1', at: at('02:00') }),
     ];
-    const views = stepViews(steps, now, ZONE, (key) => (key.startsWith('disconnect|201') ? { state: 'saving', retrying: false, message: null } : null));
+    const views = stepViews(steps, now, ZONE, (key) =>
+      key.startsWith('disconnect|201') ? { state: 'saving', retrying: false, message: null } : null,
+    );
     expect(views.map((v) => v.step.action + v.step.bus)).toEqual(['disconnect201', 'connect202', 'disconnect202']);
     expect(views[0]!.state).toBe('saving');
     expect(nextSteps(views).get('C1')?.title).toBe('Plug in bus 202 at charger C1');
@@ -67,7 +87,10 @@ describe('yard format', () => {
 
   it('marks steps overdue ten minutes after their time, and done with who and when', () => {
     const views = stepViews(tonight().steps, now, ZONE);
-    expect(views.find((v) => v.step.bus === '201' && v.step.action === 'connect')).toMatchObject({ state: 'done', doneNote: 'Done 21:02 by Kofi Brandt' });
+    expect(views.find((v) => v.step.bus === '201' && v.step.action === 'connect')).toMatchObject({
+      state: 'done',
+      doneNote: 'Done 21:02 by Kofi Brandt',
+    });
     const upcoming = step({ action: 'connect', bus: '9', charger: 'C9', at: at('22:25') });
     expect(stepViews([upcoming], now, ZONE)[0]!.state).toBe('upcoming');
     expect(stepViews([upcoming], Date.parse(at('22:36')), ZONE)[0]!.state).toBe('overdue');
@@ -99,18 +122,41 @@ describe('yard format', () => {
     expect(isNightAt(now, null)).toBe(false);
   });
 
-  it('says what a revision changed, from the plan\'s revision note', () => {
+  it("says what a revision changed, from the plan's revision note", () => {
     const plan = tonight().plan!;
-    const revised = { ...plan, version: 3, kind: 'revision' as const, publishedBy: 'Kofi Brandt', revisionNote: 'Revised at 23:05: charger C1 out of service (cable cut).' };
-    expect(revisionNotice(revised, ZONE)).toBe('Plan revised at 23:05 (version 3): charger C1 out of service (cable cut). Reported by Kofi Brandt.');
-    expect(revisionNotice({ ...plan, version: 2 }, ZONE)).toBe('A new plan was published at 10:00 (version 2) by Sam Reyes. Check your next steps.');
+    const revised = {
+      ...plan,
+      version: 3,
+      kind: 'revision' as const,
+      publishedBy: 'Kofi Brandt',
+      revisionNote: 'Revised at 23:05: charger C1 out of service (cable cut).',
+    };
+    expect(revisionNotice(revised, ZONE)).toBe(
+      'Plan revised at 23:05 (version 3): charger C1 out of service (cable cut). Reported by Kofi Brandt.',
+    );
+    expect(revisionNotice({ ...plan, version: 2 }, ZONE)).toBe(
+      'A new plan was published at 10:00 (version 2) by Sam Reyes. Check your next steps.',
+    );
   });
 
-  it('describes a charger\'s live state with an icon and words', () => {
-    expect(liveView({ live: { status: 'faulted', powerKw: null, seenAt: at('22:29') }, status: 'in_service', statusReason: null }, ZONE)).toEqual({
-      icon: 'report', text: 'Faulted (at 22:29)', tone: 'fault', faulted: true,
+  it("describes a charger's live state with an icon and words", () => {
+    expect(
+      liveView(
+        { live: { status: 'faulted', powerKw: null, seenAt: at('22:29') }, status: 'in_service', statusReason: null },
+        ZONE,
+      ),
+    ).toEqual({
+      icon: 'report',
+      text: 'Faulted (at 22:29)',
+      tone: 'fault',
+      faulted: true,
     });
-    expect(liveView({ live: { status: 'charging', powerKw: 42.25, seenAt: null }, status: 'in_service', statusReason: null }, ZONE).text).toBe('Charging at 42.3 kW');
+    expect(
+      liveView(
+        { live: { status: 'charging', powerKw: 42.25, seenAt: null }, status: 'in_service', statusReason: null },
+        ZONE,
+      ).text,
+    ).toBe('Charging at 42.3 kW');
     expect(liveView(null, ZONE).text).toBe('No live report');
   });
 });

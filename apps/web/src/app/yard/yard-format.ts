@@ -77,7 +77,8 @@ export function hourTicks(h: Horizon, timeZone: string, every = 3): Tick[] {
   const ticks: Tick[] = [];
   for (let t = Math.ceil(h.start / SLOT_MS) * SLOT_MS; t <= h.end; t += SLOT_MS) {
     const local = localParts(t, timeZone);
-    if (local.time.endsWith(':00') && local.hour % every === 0) ticks.push({ at: t, left: pct(t, h), label: local.time });
+    if (local.time.endsWith(':00') && local.hour % every === 0)
+      ticks.push({ at: t, left: pct(t, h), label: local.time });
   }
   return ticks;
 }
@@ -109,9 +110,10 @@ export interface StepView {
   outbox: OutboxState | null;
 }
 
-export const CONNECT_CAUTION = 'High voltage: trained and authorised staff only. Inspect the connector and cable before use.';
+export const CONNECT_CAUTION =
+  'High voltage: trained and authorised staff only. Inspect the connector and cable before use.';
 export const DISCONNECT_CAUTION =
-  'High voltage: trained and authorised staff only. Follow the charger maker\'s instructions; tag out and report any damage.';
+  "High voltage: trained and authorised staff only. Follow the charger maker's instructions; tag out and report any damage.";
 
 export function stepTitle(step: Pick<YardStep, 'action' | 'bus' | 'charger'> & { text?: string }): string {
   if (step.text) return step.text;
@@ -142,7 +144,9 @@ export function stepViews(
   outbox: (key: string) => OutboxState | null = () => null,
 ): StepView[] {
   return [...steps]
-    .sort((a, b) => Date.parse(a.at) - Date.parse(b.at) || (a.action === b.action ? 0 : a.action === 'disconnect' ? -1 : 1))
+    .sort(
+      (a, b) => Date.parse(a.at) - Date.parse(b.at) || (a.action === b.action ? 0 : a.action === 'disconnect' ? -1 : 1),
+    )
     .map((step) => {
       const box = outbox(step.key);
       const state = stepState(step, nowMs, box);
@@ -207,7 +211,10 @@ export interface LiveView {
   faulted: boolean;
 }
 
-export function liveView(charger: Pick<Charger, 'live' | 'status' | 'statusReason'> | null, timeZone: string): LiveView {
+export function liveView(
+  charger: Pick<Charger, 'live' | 'status' | 'statusReason'> | null,
+  timeZone: string,
+): LiveView {
   const live = charger?.live ?? null;
   const seen = live?.seenAt ? ` (at ${clock(live.seenAt, timeZone)})` : '';
   if (!live) return { icon: 'help', text: 'No live report', tone: 'unknown', faulted: false };
@@ -232,7 +239,10 @@ export function liveView(charger: Pick<Charger, 'live' | 'status' | 'statusReaso
 // Revisions
 
 /** "Plan revised at 23:05 (version 3): charger C3 out of service (cable damaged)" */
-export function revisionNotice(plan: Pick<TonightPlan, 'version' | 'kind' | 'revisionNote' | 'publishedAt' | 'publishedBy'>, timeZone: string): string {
+export function revisionNotice(
+  plan: Pick<TonightPlan, 'version' | 'kind' | 'revisionNote' | 'publishedAt' | 'publishedBy'>,
+  timeZone: string,
+): string {
   const note = plan.revisionNote;
   const match = note ? /^Revised at (\d{1,2}:\d{2}): (.*?)\.?$/.exec(note) : null;
   if (plan.kind === 'revision' && match) {

@@ -41,7 +41,10 @@ describe('YardPage', () => {
         provideFakeLive(),
         { provide: MatDialog, useValue: { open } },
         { provide: AuthStore, useValue: { user: signal({ id: 'user-1' }) } },
-        { provide: DepotListStore, useValue: { load: () => Promise.resolve(), state: signal('loaded'), current: computed(() => current()) } },
+        {
+          provide: DepotListStore,
+          useValue: { load: () => Promise.resolve(), state: signal('loaded'), current: computed(() => current()) },
+        },
       ],
     });
     mock = TestBed.inject(HttpTestingController);
@@ -62,7 +65,7 @@ describe('YardPage', () => {
     document.documentElement.style.colorScheme = '';
   });
 
-  it('shows each charger\'s step due now or next in big type, overdue ones apart, done ones greyed', async () => {
+  it("shows each charger's step due now or next in big type, overdue ones apart, done ones greyed", async () => {
     await start();
     expect(text(el.querySelector('h1'))).toBe('Yard');
     expect(text(card('C1').querySelector('.next .sentence'))).toBe('Unplug bus 201 from charger C1 at 23:00');
@@ -93,10 +96,14 @@ describe('YardPage', () => {
     expect(el.querySelector('.linked-night')).toBeNull();
     fixture.componentRef.setInput('night', '2099-01-01');
     await render();
-    expect(text(el.querySelector('.linked-night'))).toMatch(/^The link was for the night of Thursday 1 January: its steps show here when that night begins/);
+    expect(text(el.querySelector('.linked-night'))).toMatch(
+      /^The link was for the night of Thursday 1 January: its steps show here when that night begins/,
+    );
     fixture.componentRef.setInput('night', '2000-01-03');
     await render();
-    expect(text(el.querySelector('.linked-night'))).toBe("The night of Monday 3 January is over: this is tonight's plan.");
+    expect(text(el.querySelector('.linked-night'))).toBe(
+      "The night of Monday 3 January is over: this is tonight's plan.",
+    );
   });
 
   it("takes now from the server and keeps day colours before the server's night starts", async () => {
@@ -122,7 +129,9 @@ describe('YardPage', () => {
     expect(text(el)).toContain('The plan is advisory: the people on site decide.');
     expect(el.querySelector('ny-charger-card')).toBeNull();
     [...el.querySelectorAll('button')].find((b) => text(b).includes('I have read the cautions'))!.click();
-    mock.expectOne({ method: 'POST', url: `/api/depots/${DEPOT_ID}/tonight/acknowledge` }).flush(null, { status: 204, statusText: 'No Content' });
+    mock
+      .expectOne({ method: 'POST', url: `/api/depots/${DEPOT_ID}/tonight/acknowledge` })
+      .flush(null, { status: 204, statusText: 'No Content' });
     await render();
     expect(el.querySelector('ny-charger-card')).not.toBeNull();
   });
@@ -150,21 +159,32 @@ describe('YardPage', () => {
     expect(el.querySelector('.notice')).toBeNull();
     void fixture.debugElement.injector.get(YardStore).load();
     const revised = plan({
-      version: 2, kind: 'revision', publishedBy: 'Kofi Brandt',
+      version: 2,
+      kind: 'revision',
+      publishedBy: 'Kofi Brandt',
       revisionNote: 'Revised at 22:40: charger C2 out of service (cable cut).',
     });
     answer(tonight({ plan: revised, now: at('22:41') }));
     await render();
-    expect(text(el.querySelector('.notice'))).toContain('Plan revised at 22:40 (version 2): charger C2 out of service (cable cut). Reported by Kofi Brandt.');
+    expect(text(el.querySelector('.notice'))).toContain(
+      'Plan revised at 22:40 (version 2): charger C2 out of service (cable cut). Reported by Kofi Brandt.',
+    );
     expect(text(el.querySelector('.status-bar'))).toContain('Plan version 2 (revised)');
   });
 
   it('offers a prefilled out-of-service report when a charger reports a fault', async () => {
     open.mockReturnValue({ afterClosed: () => ({ subscribe: () => undefined }) });
-    await start(tonight(), [charger('C1', { live: { status: 'faulted', powerKw: null, seenAt: at('22:20') } }), charger('C2')]);
+    await start(tonight(), [
+      charger('C1', { live: { status: 'faulted', powerKw: null, seenAt: at('22:20') } }),
+      charger('C2'),
+    ]);
     expect(text(card('C1').querySelector('.live'))).toContain('Faulted (at 22:20)');
     [...card('C1').querySelectorAll('button')].find((b) => text(b) === 'build Report charger out of service')!.click();
-    expect(open.mock.calls[0]![1].data.preset).toEqual({ kind: 'charger_out', charger: 'C1', reason: 'The charger reported a fault at 22:20' });
+    expect(open.mock.calls[0]![1].data.preset).toEqual({
+      kind: 'charger_out',
+      charger: 'C1',
+      reason: 'The charger reported a fault at 22:20',
+    });
   });
 
   it('shows a fault pushed over the live stream at once and offers the report from it', async () => {
@@ -172,7 +192,8 @@ describe('YardPage', () => {
     await start();
     expect(el.querySelector('[data-fault]')).toBeNull();
     TestBed.inject(FakeLiveTransport).last.events.next({
-      type: 'charger', at: at('22:31'),
+      type: 'charger',
+      at: at('22:31'),
       charger: { chargerId: 'charger-C2', label: 'C2', status: 'faulted', powerKw: null, seenAt: at('22:31') },
     });
     await render();
@@ -180,13 +201,19 @@ describe('YardPage', () => {
     const notice = el.querySelector<HTMLElement>('[data-fault="C2"]')!;
     expect(text(notice)).toContain('Charger C2 reports a fault (since 22:31, depot time)');
     notice.querySelector('button')!.click();
-    expect(open.mock.calls.at(-1)![1].data.preset).toEqual({ kind: 'charger_out', charger: 'C2', reason: 'The charger reported a fault at 22:31' });
+    expect(open.mock.calls.at(-1)![1].data.preset).toEqual({
+      kind: 'charger_out',
+      charger: 'C2',
+      reason: 'The charger reported a fault at 22:31',
+    });
   });
 
   it('asks for the cautions first when a fault arrives before the shift has acknowledged them', async () => {
-    await start(tonight({ acknowledged: false }), [charger('C1', { live: { status: 'faulted', powerKw: null, seenAt: at('22:20') } })]);
+    await start(tonight({ acknowledged: false }), [
+      charger('C1', { live: { status: 'faulted', powerKw: null, seenAt: at('22:20') } }),
+    ]);
     const notice = el.querySelector('[data-fault="C1"]')!;
-    expect(text(notice)).toContain('Acknowledge the shift\'s cautions below, then report it out of service');
+    expect(text(notice)).toContain("Acknowledge the shift's cautions below, then report it out of service");
     expect(notice.querySelector('button')).toBeNull();
   });
 
@@ -220,42 +247,85 @@ describe('YardPage', () => {
     const item = () => card('C2').querySelector('ny-overdue-step')!;
     [...item().querySelectorAll('button')].find((b) => text(b) === 'block Did not happen')!.click();
     await render();
-    expect(text(item().querySelector('.ask'))).toContain('Bus 203 is taken as not plugged in, and the rest of the night is re-planned.');
+    expect(text(item().querySelector('.ask'))).toContain(
+      'Bus 203 is taken as not plugged in, and the rest of the night is re-planned.',
+    );
     [...item().querySelectorAll('button')].find((b) => text(b) === 'Yes, it did not happen')!.click();
     await render();
     const req = mock.expectOne({ method: 'POST', url: `/api/depots/${DEPOT_ID}/tonight/missed` });
     expect(req.request.body).toEqual({ planId: PLAN_ID, stepKey: `connect|203|C2|${at('22:00')}` });
-    req.flush({ revision: { version: 2 }, moved: [{ bus: '203', before: 'C2 22:00', after: 'C2 22:45' }], replanMs: 40, notified: 2 });
+    req.flush({
+      revision: { version: 2 },
+      moved: [{ bus: '203', before: 'C2 22:00', after: 'C2 22:45' }],
+      replanMs: 40,
+      notified: 2,
+    });
     await render();
-    const revised = plan({ version: 2, kind: 'revision', revisionNote: 'Revised at 22:30: "Plug in bus 203 at charger C2" (due 22:00) did not happen.' });
+    const revised = plan({
+      version: 2,
+      kind: 'revision',
+      revisionNote: 'Revised at 22:30: "Plug in bus 203 at charger C2" (due 22:00) did not happen.',
+    });
     answer(tonight({ plan: revised, steps: tonight().steps.filter((s) => s.bus !== '203') }));
     await render();
-    expect(text(el.querySelector('.notice'))).toContain('Plan revised at 22:30 (version 2): "Plug in bus 203 at charger C2" (due 22:00) did not happen.');
+    expect(text(el.querySelector('.notice'))).toContain(
+      'Plan revised at 22:30 (version 2): "Plug in bus 203 at charger C2" (due 22:00) did not happen.',
+    );
     expect(text(el.querySelector('.notice'))).toContain('Bus 203: C2 22:00 → C2 22:45');
     expect(card('C2').querySelector('.overdue-list')).toBeNull();
   });
 
   it('lists the next hour across all chargers in time order, with the cautions', async () => {
-    await start(tonight({ steps: [...tonight().steps, step({ action: 'connect', bus: '204', charger: 'C3', at: at('22:40') })] }));
+    await start(
+      tonight({ steps: [...tonight().steps, step({ action: 'connect', bus: '204', charger: 'C3', at: at('22:40') })] }),
+    );
     const region = el.querySelector('ny-next-hour')!;
     expect(region.getAttribute('role')).toBe('region');
     expect(text(region.querySelector('h2'))).toBe('Next hour, all chargers');
-    const items = [...region.querySelectorAll('li')].map((li) => `${text(li.querySelector('.time'))} ${text(li.querySelector('.title'))}`);
+    const items = [...region.querySelectorAll('li')].map(
+      (li) => `${text(li.querySelector('.time'))} ${text(li.querySelector('.title'))}`,
+    );
     // Up to 23:30 (an hour from 22:30); the overdue 22:00 plug-in is in C2's own list, not here.
-    expect(items).toEqual(['22:40 Plug in bus 204 at charger C3', '23:00 Unplug bus 201 from charger C1', '23:30 Plug in bus 202 at charger C1']);
+    expect(items).toEqual([
+      '22:40 Plug in bus 204 at charger C3',
+      '23:00 Unplug bus 201 from charger C1',
+      '23:30 Plug in bus 202 at charger C1',
+    ]);
     expect(text(region)).toContain('High voltage: trained and authorised staff only');
   });
 
   it('after a charger is reported out, its card, the next hour and the run sheet all say to unplug the bus now', async () => {
     const words = 'Unplug bus 201 from charger C1 now (out of service), then move it to charger C3 for 22:45';
     const steps = [
-      step({ action: 'connect', bus: '201', charger: 'C1', at: at('21:00'), status: 'done', confirmedAt: at('21:02'), confirmedBy: 'Kofi Brandt' }),
-      step({ action: 'disconnect', bus: '201', charger: 'C1', at: at('22:27'), text: words, reason: 'Charger C1 out of service (cable cut)', moveTo: { charger: 'C3', at: at('22:45') } }),
+      step({
+        action: 'connect',
+        bus: '201',
+        charger: 'C1',
+        at: at('21:00'),
+        status: 'done',
+        confirmedAt: at('21:02'),
+        confirmedBy: 'Kofi Brandt',
+      }),
+      step({
+        action: 'disconnect',
+        bus: '201',
+        charger: 'C1',
+        at: at('22:27'),
+        text: words,
+        reason: 'Charger C1 out of service (cable cut)',
+        moveTo: { charger: 'C3', at: at('22:45') },
+      }),
       step({ action: 'connect', bus: '201', charger: 'C3', at: at('22:45') }),
     ];
-    await start(tonight({ steps }), [charger('C1', { status: 'out_of_service', statusReason: 'cable cut' }), charger('C2'), charger('C3')]);
+    await start(tonight({ steps }), [
+      charger('C1', { status: 'out_of_service', statusReason: 'cable cut' }),
+      charger('C2'),
+      charger('C3'),
+    ]);
     const c1 = card('C1');
-    expect(text(c1.querySelector('.out-note'))).toBe('block Out of service: cable cut. Unplug the bus on it (below); nothing else is planned on it.');
+    expect(text(c1.querySelector('.out-note'))).toBe(
+      'block Out of service: cable cut. Unplug the bus on it (below); nothing else is planned on it.',
+    );
     expect(c1.querySelector('.next')!.classList.contains('urgent')).toBe(true);
     expect(text(c1.querySelector('.next .when'))).toContain('Due now (22:27)');
     expect(text(c1.querySelector('.next .reason'))).toBe('Charger C1 out of service (cable cut)');

@@ -79,7 +79,9 @@ export class YardPage {
   });
   protected readonly nightSpan = computed(() => {
     const h = this.store.horizon();
-    return h ? `${day(h.start, this.tz())} ${clock(h.start, this.tz())} to ${day(h.end, this.tz())} ${clock(h.end, this.tz())}` : '';
+    return h
+      ? `${day(h.start, this.tz())} ${clock(h.start, this.tz())} to ${day(h.end, this.tz())} ${clock(h.end, this.tz())}`
+      : '';
   });
   /** When a link names another night than the one shown here, what the page shows instead. */
   protected readonly linkedNightNote = computed(() => {
@@ -87,12 +89,18 @@ export class YardPage {
     if (this.store.state() !== 'loaded' || !night || !isIsoDate(night)) return null;
     const shown = this.store.plan()?.serviceDate ?? null;
     if (shown === night) return null;
-    const named = new Intl.DateTimeFormat('en-GB', { weekday: 'long', day: 'numeric', month: 'long', timeZone: 'UTC' })
-      .format(Date.parse(`${night}T12:00:00Z`));
+    const named = new Intl.DateTimeFormat('en-GB', {
+      weekday: 'long',
+      day: 'numeric',
+      month: 'long',
+      timeZone: 'UTC',
+    }).format(Date.parse(`${night}T12:00:00Z`));
     if (shown && night < shown) return `The night of ${named} is over: this is tonight's plan.`;
     return `The link was for the night of ${named}: its steps show here when that night begins. Until then this is tonight's plan.`;
   });
-  protected readonly reports = computed(() => (this.store.tonight()?.reports ?? []).map((r) => reportLine(r, this.tz())));
+  protected readonly reports = computed(() =>
+    (this.store.tonight()?.reports ?? []).map((r) => reportLine(r, this.tz())),
+  );
   protected readonly chargerLabels = computed(() => this.store.chargerViews().map((c) => c.label));
   protected readonly faults = computed(() => faultsOf(this.store.liveChargers(), this.tz()));
   /** `?fault=<label>` (from the fault notice on Tonight or Depot): the report form opens for it. */
@@ -167,7 +175,11 @@ export class YardPage {
   /** A charger reports a fault: the report form, ready to take it out of service. */
   protected reportFault(label: string): void {
     const since = this.faults().find((f) => f.label === label)?.since;
-    this.openReport({ kind: 'charger_out', charger: label, reason: `The charger reported a fault${since ? ` at ${since}` : ''}` });
+    this.openReport({
+      kind: 'charger_out',
+      charger: label,
+      reason: `The charger reported a fault${since ? ` at ${since}` : ''}`,
+    });
   }
 
   protected reloadDepot(): void {

@@ -261,7 +261,11 @@ export class YardStore {
     const version = result.revision.version;
     // The live stream may have brought the revision (and its notice) in before this answer.
     const heard = this.notice();
-    this.notice.set({ text: heard?.version === version ? heard.text : `Plan revised (version ${version}).`, moved: movedLines(result), version });
+    this.notice.set({
+      text: heard?.version === version ? heard.text : `Plan revised (version ${version}).`,
+      moved: movedLines(result),
+      version,
+    });
     await this.load();
   }
 
@@ -297,7 +301,9 @@ export class YardStore {
     const plan = t.plan;
     if (!plan) return;
     const before = this.tonight()?.plan;
-    const seen = before ? { depotId: t.depot.id, serviceDate: before.serviceDate, version: before.version } : this.readSeen();
+    const seen = before
+      ? { depotId: t.depot.id, serviceDate: before.serviceDate, version: before.version }
+      : this.readSeen();
     if (seen && seen.depotId === t.depot.id && seen.serviceDate === plan.serviceDate && plan.version > seen.version) {
       const mine = this.notice();
       this.notice.set({
