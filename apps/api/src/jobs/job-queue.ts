@@ -50,7 +50,15 @@ export async function startJobQueue(opts: JobOptions): Promise<JobQueue> {
       PLAN_QUEUE,
       { batchSize: 1, pollingIntervalSeconds: 0.5 },
       async ([job]) => {
-        if (job) await work(job.data.planId);
+        if (!job) return;
+        try {
+          await work(job.data.planId);
+        } finally {
+          // pg-boss waits out the rest of its polling interval after each job; the next job is
+          // taken at once instead (an empty queue then waits the interval as usual). A district's
+          // small nights were spending most of their time in that wait.
+          if (workerId) boss.notifyWorker(workerId);
+        }
       },
     );
   }
