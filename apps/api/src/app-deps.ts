@@ -8,6 +8,7 @@ import type { Clock } from './time/clock';
 import type { LiveBus } from './live/live-bus';
 import type { TestControl } from './dev/test-control-routes';
 import type { KnownUsers } from './auth/known-users';
+import type { YardNights } from './yard/yard-service';
 
 /** What route handlers are given: the database, settings and outside services. */
 export interface AppDeps {
@@ -27,6 +28,8 @@ export interface AppDeps {
   testControl?: TestControl;
   /** Signed-in users kept between requests while the database reports their changes (absent: read per request). */
   knownUsers?: KnownUsers;
+  /** Tonight's reads per depot, kept while the database reports the yard's changes (absent: read per request). */
+  yardNights?: YardNights;
   /** Runs a query against the database to prove it answers (for /api/health). */
   ping: () => Promise<void>;
 }

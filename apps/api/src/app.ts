@@ -97,6 +97,8 @@ export function createApp(deps: AppDeps): BuiltApp {
     openapi,
     bearerAuthenticator(deps.db, deps.config.JWT_SECRET, deps.clock, deps.knownUsers),
     idempotencyStore(deps.db, deps.clock),
+    // A write's own notifications are heard before its answer: the writer's next read is fresh.
+    () => Promise.all([deps.knownUsers?.sync(), deps.yardNights?.sync()]),
   );
 
   api.add(

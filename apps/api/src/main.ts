@@ -1,7 +1,9 @@
 import path from 'node:path';
 import { sql } from 'drizzle-orm';
 import { createApp } from './app';
-import { KnownUsers } from './auth/known-users';
+import { KnownUsers, USER_CHANGED } from './auth/known-users';
+import { NotifiedCache } from './db/notified-cache';
+import { YARD_CHANGED, type YardNights } from './yard/yard-service';
 import { takeChargerReading } from './yard/charger-readings';
 import { announcePlan, announceReport } from './live/live-feeds';
 import { loadConfig, wantsDemoSeed } from './config';
@@ -60,6 +62,15 @@ feedChargerStates(central, live, clock);
 // Requests take their signed-in user from here while the database reports every change to users.
 const knownUsers = new KnownUsers(config.DATABASE_URL, log);
 await knownUsers.start();
+// Tonight's reads per depot, kept while the yard's tables report their changes; a user's change
+// (a name shown beside a report) forgets them all.
+const yardNights: YardNights = new NotifiedCache(config.DATABASE_URL, {
+  channel: YARD_CHANGED,
+  forgetAllOn: [USER_CHANGED],
+  log,
+  maxGroups: 2_000,
+});
+await yardNights.start();
 
 const mailer = smtpMailer({ host: config.SMTP_HOST, port: config.SMTP_PORT, from: config.MAIL_FROM }, log);
 const publicUrl = (p: string) => new URL(p, publicBase).toString();
@@ -69,6 +80,7 @@ const onPlanPublished = (planId: string) =>
 const { app } = createApp({
   db,
   knownUsers,
+  yardNights,
   clock,
   live,
   ...(testControl ? { testControl: { setClock: testControl.set } } : {}),
@@ -149,7 +161,7 @@ const shutdown = (signal: string) => {
   server.close(() =>
     jobs
       .stop()
-      .then(() => Promise.all([knownUsers.close(), pool.end(), stopWorkPool()]))
+      .then(() => Promise.all([knownUsers.close(), yardNights.close(), pool.end(), stopWorkPool()]))
       .then(() => process.exit(0)),
   );
   setTimeout(() => process.exit(0), 5000).unref();

@@ -90,7 +90,7 @@ describe('signed-in users kept between requests', () => {
   it('while the listening connection is lost, users are read per request; listening resumes by itself', async () => {
     expect(await seenAsAdmin(admin)).toBe(true);
     await app.db.execute(sql`select pg_terminate_backend(pid) from pg_stat_activity
-      where datname = current_database() and query ilike 'LISTEN nightyard_user_changed%'`);
+      where datname = current_database() and application_name = 'nightyard listens nightyard_user_changed'`);
     await until(async () => !known.isListening, 'the loss is noticed');
     await setRolesQuietly(admin, ['finance']);
     // Not kept while deaf: even a change nobody announced is seen.

@@ -1,6 +1,7 @@
 import type { depots } from '../db/schema';
 
-type DepotRow = typeof depots.$inferSelect;
+/** What a guess needs: the depot's zone and billing day (the rest of the row is read by the query). */
+type DepotGuess = Pick<typeof depots.$inferSelect, 'id' | 'timezone' | 'billingStartDay'>;
 
 /**
  * The depot rows last read, per id, for the hottest routes (Tonight, the costs month) to guess
@@ -8,15 +9,15 @@ type DepotRow = typeof depots.$inferSelect;
  * same query reads the depot itself (scoped to the caller's organisation), and the route checks
  * the row against its guess and asks again when they differ, so nothing here can go stale.
  */
-const lastSeen = new Map<string, DepotRow>();
+const lastSeen = new Map<string, DepotGuess>();
 const MAX_DEPOTS = 500;
 
-export function rememberDepot(depot: DepotRow): void {
+export function rememberDepot(depot: DepotGuess): void {
   lastSeen.delete(depot.id);
-  lastSeen.set(depot.id, depot);
+  lastSeen.set(depot.id, { id: depot.id, timezone: depot.timezone, billingStartDay: depot.billingStartDay });
   while (lastSeen.size > MAX_DEPOTS) lastSeen.delete(lastSeen.keys().next().value!);
 }
 
-export function guessDepot(depotId: string): DepotRow | undefined {
+export function guessDepot(depotId: string): DepotGuess | undefined {
   return lastSeen.get(depotId);
 }

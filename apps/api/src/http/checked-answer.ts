@@ -16,16 +16,17 @@ export function isChecked(answer: unknown): boolean {
 
 /**
  * JSON texts of checked answers, written once when remembered and sent as they are: a string, or
- * UTF-8 bytes (a remembered answer keeps its bytes, so it is not encoded again per request).
+ * UTF-8 bytes (a remembered answer keeps its bytes, so it is not encoded again per request), or
+ * parts of them written one after another (no copy into one buffer per request).
  */
-const texts = new WeakMap<object, string | Buffer>();
+const texts = new WeakMap<object, string | Buffer | readonly Buffer[]>();
 
 /** A checked answer whose JSON text is known already (it must be the answer's JSON.stringify). */
-export function markCheckedText<T extends object>(answer: T, text: string | Buffer): T {
+export function markCheckedText<T extends object>(answer: T, text: string | Buffer | readonly Buffer[]): T {
   texts.set(answer, text);
   return markChecked(answer);
 }
 
-export function checkedTextOf(answer: unknown): string | Buffer | undefined {
+export function checkedTextOf(answer: unknown): string | Buffer | readonly Buffer[] | undefined {
   return typeof answer === 'object' && answer !== null ? texts.get(answer) : undefined;
 }

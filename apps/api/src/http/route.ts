@@ -69,6 +69,8 @@ export class ApiRoutes {
     private readonly openapi: OpenAPIRegistry,
     private readonly authenticate: (req: Request, res: Response, next: NextFunction) => void,
     private readonly idempotency?: IdempotencyStore,
+    /** Runs after each successful write, before its answer goes out (the caches hear of the change). */
+    private readonly afterWrite?: () => Promise<unknown>,
   ) {}
 
   add<B extends ZodType = never, Q extends ZodType = never, P extends ZodType = never, R extends ZodType = never>(
@@ -111,12 +113,14 @@ export class ApiRoutes {
       } else {
         answer = await execute();
       }
+      if (spec.method !== 'get') await this.afterWrite?.();
       if (res.headersSent || res.writableEnded) return;
       if (answer.status === 204) res.status(204).end();
       else {
         const text = checkedTextOf(answer.body);
         if (text === undefined) res.status(answer.status).json(answer.body);
-        else res.status(answer.status).type('json').send(text);
+        else if (typeof text === 'string' || Buffer.isBuffer(text)) res.status(answer.status).type('json').send(text);
+        else sendParts(res.status(answer.status), text);
       }
     };
     const chain = spec.access === 'public' ? [run] : [this.authenticate, run];
@@ -177,4 +181,16 @@ export class ApiRoutes {
       },
     });
   }
+}
+
+/** A JSON answer kept in parts, written as one response (one system call) without joining them. */
+function sendParts(res: Response, parts: readonly Buffer[]): void {
+  res.type('json');
+  res.setHeader(
+    'Content-Length',
+    parts.reduce((n, p) => n + p.length, 0),
+  );
+  res.cork();
+  for (const part of parts.slice(0, -1)) res.write(part);
+  res.end(parts.at(-1));
 }

@@ -30,7 +30,8 @@ interface ReportRow {
 const tonightQuery = (db: Db, name: string) =>
   db
     .select({
-      depot: getTableColumns(depots),
+      // The depot's few columns the yard's answer and the zone guess use (not its jsonb settings).
+      depot: { id: depots.id, name: depots.name, timezone: depots.timezone, billingStartDay: depots.billingStartDay },
       plan: planMeta,
       createdBy: creator.name,
       publishedBy: publisher.name,

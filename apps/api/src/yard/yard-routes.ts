@@ -28,7 +28,7 @@ export function yardRoutes(api: ApiRoutes, deps: AppDeps) {
       params: depotIdParamsSchema,
       response: tonightSchema,
     },
-    async ({ user, params }) => tonight(db, user, params.depotId, now()),
+    async ({ user, params }) => tonight(db, user, params.depotId, now(), deps.yardNights),
   );
   api.add(
     {

@@ -31,6 +31,7 @@ import { LATE, OVERDUE_AFTER_MS, stepsDueSoon, yardSteps, type StepConfirmation,
 import { mergeReplan, stopSessions, type SessionStop } from '../plans/night-in-progress';
 import { nightOfDepot } from '../night/depot-night';
 import { publishedNight } from './tonight-query';
+import type { NotifiedCache } from '../db/notified-cache';
 
 type PlanRow = typeof plans.$inferSelect;
 const confirmer = aliasedTable(users, 'confirmer');
@@ -176,14 +177,34 @@ export async function confirmedPlugged(
   return plugged;
 }
 
-export async function tonight(db: Db, caller: AuthUser, depotId: string, now: Date): Promise<Tonight> {
-  // One round trip when the depot's zone is known (the depot with the night's plan, checked
-  // against the zone guessed), two on the first ask: the Yard and Tonight ask on every load and
-  // refresh. The night's run times are remembered per depot and day.
+/** What Tonight reads of a depot's night, kept per depot while the database reports its changes. */
+export type YardNights = NotifiedCache<NonNullable<Awaited<ReturnType<typeof publishedNight>>>>;
+
+/** The channel the triggers of the yard's tables notify with a depot's id (migration 0014_yard-changes). */
+export const YARD_CHANGED = 'nightyard_yard_changed';
+
+export async function tonight(
+  db: Db,
+  caller: AuthUser,
+  depotId: string,
+  now: Date,
+  kept?: YardNights,
+): Promise<Tonight> {
+  // No round trip while the depot's night is kept (`kept`, told of every change by the database),
+  // one when the depot's zone is known (the depot with the night's plan, checked against the zone
+  // guessed), two on the first ask: the Yard and Tonight ask on every load and refresh. The
+  // night's run times are remembered per depot and day.
   let zone = guessDepot(depotId)?.timezone ?? (await depotOf(db, caller, depotId)).timezone;
   for (;;) {
     const { tonight: night } = await nightOfDepot(db, { id: depotId, timezone: zone }, now);
-    const answer = await publishedNight(db, { depotId, serviceDate: night.serviceDate }, caller);
+    const key = `${night.serviceDate}|${caller.id}|${caller.organisationId}`;
+    let answer = kept?.get(depotId, key);
+    if (!answer) {
+      const mark = kept?.mark() ?? 0;
+      const read = await publishedNight(db, { depotId, serviceDate: night.serviceDate }, caller);
+      if (read) kept?.keep(depotId, key, read, mark);
+      answer = read ?? undefined;
+    }
     if (!answer) throw notFound('That depot');
     rememberDepot(answer.depot);
     if (answer.depot.timezone === zone) return tonightOf(db, answer.depot, answer.night, now);
@@ -221,11 +242,7 @@ async function tonightOf(
   if (known && known.key === key && known.fromMs <= nowMs && nowMs < known.untilMs) {
     // The remembered JSON text with the instant put in (an ISO instant needs no escaping).
     const { before, after } = known.text;
-    const text = Buffer.allocUnsafe(before.length + base.now.length + after.length);
-    before.copy(text);
-    text.write(base.now, before.length, 'latin1');
-    after.copy(text, before.length + base.now.length);
-    return markCheckedText({ ...known.answer, now: base.now }, text);
+    return markCheckedText({ ...known.answer, now: base.now }, [before, Buffer.from(base.now, 'latin1'), after]);
   }
 
   const answer = tonightSchema.parse(await computeTonight(db, base, depot.timezone, found));
