@@ -9,6 +9,7 @@ import type { LiveBus } from './live/live-bus';
 import type { TestControl } from './dev/test-control-routes';
 import type { KnownUsers } from './auth/known-users';
 import type { YardNights } from './yard/yard-service';
+import type { CostsInputs } from './costs/costs-service';
 
 /** What route handlers are given: the database, settings and outside services. */
 export interface AppDeps {
@@ -30,6 +31,8 @@ export interface AppDeps {
   knownUsers?: KnownUsers;
   /** Tonight's reads per depot, kept while the database reports the yard's changes (absent: read per request). */
   yardNights?: YardNights;
+  /** The costs month's inputs per depot, kept while the database reports their changes (absent: read per request). */
+  costsInputs?: CostsInputs;
   /** Runs a query against the database to prove it answers (for /api/health). */
   ping: () => Promise<void>;
 }

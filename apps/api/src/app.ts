@@ -98,7 +98,7 @@ export function createApp(deps: AppDeps): BuiltApp {
     bearerAuthenticator(deps.db, deps.config.JWT_SECRET, deps.clock, deps.knownUsers),
     idempotencyStore(deps.db, deps.clock),
     // A write's own notifications are heard before its answer: the writer's next read is fresh.
-    () => Promise.all([deps.knownUsers?.sync(), deps.yardNights?.sync()]),
+    () => Promise.all([deps.knownUsers?.sync(), deps.yardNights?.sync(), deps.costsInputs?.sync()]),
   );
 
   api.add(

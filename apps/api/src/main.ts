@@ -3,6 +3,7 @@ import { sql } from 'drizzle-orm';
 import { createApp } from './app';
 import { KnownUsers, USER_CHANGED } from './auth/known-users';
 import { NotifiedCache } from './db/notified-cache';
+import { COSTS_CHANGED, RATE_PLAN_CHANGED, type CostsInputs } from './costs/costs-service';
 import { YARD_CHANGED, type YardNights } from './yard/yard-service';
 import { takeChargerReading } from './yard/charger-readings';
 import { announcePlan, announceReport } from './live/live-feeds';
@@ -71,6 +72,14 @@ const yardNights: YardNights = new NotifiedCache(config.DATABASE_URL, {
   maxGroups: 2_000,
 });
 await yardNights.start();
+// The costs month's inputs per depot, kept while the tables they come from report their changes.
+const costsInputs: CostsInputs = new NotifiedCache(config.DATABASE_URL, {
+  channel: COSTS_CHANGED,
+  forgetAllOn: [RATE_PLAN_CHANGED],
+  log,
+  maxGroups: 2_000,
+});
+await costsInputs.start();
 
 const mailer = smtpMailer({ host: config.SMTP_HOST, port: config.SMTP_PORT, from: config.MAIL_FROM }, log);
 const publicUrl = (p: string) => new URL(p, publicBase).toString();
@@ -81,6 +90,7 @@ const { app } = createApp({
   db,
   knownUsers,
   yardNights,
+  costsInputs,
   clock,
   live,
   ...(testControl ? { testControl: { setClock: testControl.set } } : {}),
@@ -161,7 +171,9 @@ const shutdown = (signal: string) => {
   server.close(() =>
     jobs
       .stop()
-      .then(() => Promise.all([knownUsers.close(), yardNights.close(), pool.end(), stopWorkPool()]))
+      .then(() =>
+        Promise.all([knownUsers.close(), yardNights.close(), costsInputs.close(), pool.end(), stopWorkPool()]),
+      )
       .then(() => process.exit(0)),
   );
   setTimeout(() => process.exit(0), 5000).unref();

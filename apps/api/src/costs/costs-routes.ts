@@ -17,7 +17,7 @@ import { importMeterData } from './meter-import';
 
 /** Finance and admins own the costs; supervisors and facilities read them. */
 
-export function costsRoutes(api: ApiRoutes, { db, clock }: AppDeps) {
+export function costsRoutes(api: ApiRoutes, { db, clock, costsInputs }: AppDeps) {
   api.add(
     {
       method: 'get',
@@ -44,7 +44,8 @@ export function costsRoutes(api: ApiRoutes, { db, clock }: AppDeps) {
       }),
       response: monthCostsSchema,
     },
-    async ({ user, params, query }) => monthCosts(db, user, params.depotId, query.date, clock(), query.dieselMpg),
+    async ({ user, params, query }) =>
+      monthCosts(db, user, params.depotId, query.date, clock(), query.dieselMpg, undefined, costsInputs),
   );
   api.add(
     {

@@ -17,7 +17,8 @@ import { markChecked, markCheckedText } from '../http/checked-answer';
 import type { AuthUser } from '../auth/auth-user';
 import { depotOf } from '../depots/depot-access';
 import { billingPeriodOf, ratePlanOn, type BillingPeriod } from './billing-period';
-import { MonthCostsCache, monthInputs } from './month-cache';
+import { MonthCostsCache, monthInputs, type MonthInputs } from './month-cache';
+import type { NotifiedCache } from '../db/notified-cache';
 import { guessDepot, rememberDepot } from '../depots/depot-guess';
 import { buildingKwAt, forecastNights } from './month-forecast';
 
@@ -468,6 +469,14 @@ function soFarOf(base: PeriodBase, depot: Depot, period: Period, nowMs: number) 
   return value;
 }
 
+/** A billing period's inputs kept per depot while the database reports changes to what they come from. */
+export type CostsInputs = NotifiedCache<MonthInputs>;
+
+/** The channel the triggers of the costs' tables notify with a depot's id (migration 0015_costs-changes). */
+export const COSTS_CHANGED = 'nightyard_costs_changed';
+/** Notified when a rate plan (shared by depots) changes: every depot's inputs are forgotten. */
+export const RATE_PLAN_CHANGED = 'nightyard_rate_plan_changed';
+
 /** A period's dates and instants as the inputs' query takes them, worked out once per period (luxon's zone arithmetic is dear). */
 const boundsOfPeriods = new WeakMap<
   BillingPeriod,
@@ -493,12 +502,20 @@ function periodBounds(period: BillingPeriod) {
  * trip: the period is guessed from the depot as last read and checked against the row the query
  * returns (a depot whose zone or billing day changed is asked again, with the right period).
  */
-async function monthInputsOf(db: Db, caller: AuthUser, depotId: string, date: string, now: Date) {
+async function monthInputsOf(db: Db, caller: AuthUser, depotId: string, date: string, kept?: CostsInputs) {
   let guess: { timezone: string; billingStartDay: number } =
     guessDepot(depotId) ?? (await depotOf(db, caller, depotId));
   for (;;) {
     const period = billingPeriodOf(date, guess.billingStartDay, guess.timezone);
-    const found = await monthInputs(db, caller.organisationId, depotId, { ...periodBounds(period), now });
+    const bounds = periodBounds(period);
+    const key = `${bounds.periodStart}|${caller.organisationId}`;
+    let found = kept?.get(depotId, key);
+    if (!found) {
+      const mark = kept?.mark() ?? 0;
+      const read = await monthInputs(db, caller.organisationId, depotId, bounds);
+      if (read) kept?.keep(depotId, key, read, mark);
+      found = read ?? undefined;
+    }
     if (!found) throw notFound('That depot');
     rememberDepot(found.depot);
     if (found.depot.timezone === guess.timezone && found.depot.billingStartDay === guess.billingStartDay)
@@ -521,9 +538,11 @@ export async function monthCosts(
   now: Date,
   mpg = DIESEL_BUS_MPG,
   cache: MonthCostsCache<PeriodBase> | null = monthCostsCache,
+  inputsKept?: CostsInputs,
 ): Promise<MonthCosts> {
-  const inputs = await monthInputsOf(db, caller, depotId, date, now);
-  const { depot, period, serviceDays, miles } = inputs;
+  const inputs = await monthInputsOf(db, caller, depotId, date, inputsKept);
+  const { depot, period, serviceDays } = inputs;
+  const miles = inputs.milesBy(now.getTime());
   const { periodStart, periodEnd } = periodBounds(period);
   const version = cache ? inputs.version : undefined;
   const key = `${depot.id}|${periodStart}`;

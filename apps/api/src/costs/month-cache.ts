@@ -83,10 +83,13 @@ const monthInputsQuery = (db: Db, name: string) =>
       version: inputsVersion,
       serviceDays: sql<string[]>`coalesce((select array_agg(distinct r.service_date::text) from runs r
       where r.depot_id = ${depotIdColumn} and r.service_date >= ${p('periodStart')} and r.service_date < ${p('periodEnd')}), '{}'::text[])`,
-      miles: sql<number>`(select coalesce(sum(coalesce(r.miles, coalesce(r.kwh, 0) / b.kwh_per_mile)), 0) from runs r
+      // Each run's pull-in (epoch ms) and miles, in pull-in order: the miles driven by a moment are
+      // summed from these, so the inputs hold for every moment of the period.
+      runMiles: sql<[number, number][]>`coalesce((select json_agg(json_build_array(
+          (extract(epoch from r.pull_in) * 1000)::float8, coalesce(r.miles, coalesce(r.kwh, 0) / b.kwh_per_mile))
+        order by r.pull_in) from runs r
       join buses b on b.id = r.bus_id
-      where r.depot_id = ${depotIdColumn} and r.service_date >= ${p('periodStart')} and r.service_date < ${p('periodEnd')}
-        and r.pull_in <= ${p('now')})`.mapWith(Number),
+      where r.depot_id = ${depotIdColumn} and r.service_date >= ${p('periodStart')} and r.service_date < ${p('periodEnd')}), '[]'::json)`,
     })
     .from(depots)
     .where(and(eq(depots.id, p('depotId')), eq(depots.organisationId, p('organisationId'))))
@@ -99,7 +102,6 @@ export interface MonthInputsWindow {
   periodEnd: string;
   fromAt: Date;
   toAt: Date;
-  now: Date;
 }
 
 /** The caller's depot with the period's inputs, or null when the depot is not theirs. */
@@ -112,7 +114,6 @@ export async function monthInputs(db: Db, organisationId: string, depotId: strin
     periodEnd: window.periodEnd,
     fromAt: window.fromAt.toISOString(),
     toAt: window.toAt.toISOString(),
-    now: window.now.toISOString(),
   });
   if (!row) return null;
   const { depot } = row;
@@ -120,6 +121,25 @@ export async function monthInputs(db: Db, organisationId: string, depotId: strin
     depot,
     version: `${depot.timezone}|${depot.billingStartDay}|${depot.serviceLimitKw}|${JSON.stringify(depot.otherLoadKw)}|${row.version}`,
     serviceDays: row.serviceDays,
-    miles: row.miles,
+    milesBy: milesByMoment(row.runMiles),
+  };
+}
+
+export type MonthInputs = NonNullable<Awaited<ReturnType<typeof monthInputs>>>;
+
+/** Miles driven by a moment (runs pulled in by then), from the runs' pull-ins in time order. */
+function milesByMoment(runMiles: readonly [number, number][]): (nowMs: number) => number {
+  const pullIns = runMiles.map(([at]) => at);
+  const upTo: number[] = [0];
+  for (const [, miles] of runMiles) upTo.push(upTo.at(-1)! + miles);
+  return (nowMs) => {
+    let lo = 0;
+    let hi = pullIns.length;
+    while (lo < hi) {
+      const mid = (lo + hi) >> 1;
+      if (pullIns[mid]! <= nowMs) lo = mid + 1;
+      else hi = mid;
+    }
+    return upTo[lo]!;
   };
 }
