@@ -169,7 +169,8 @@ export function seasonMonths(s: { fromMonth: number; toMonth: number }): number[
   }
 }
 
-const MONTH_NAMES = [
+/** Month names, January first (seasons, their checks and the rate screens). */
+export const MONTH_NAMES = [
   'January',
   'February',
   'March',
@@ -182,7 +183,7 @@ const MONTH_NAMES = [
   'October',
   'November',
   'December',
-];
+] as const;
 
 function checkSeasonsCoverYear(seasons: Season[], ctx: z.RefinementCtx) {
   const owner = new Map<number, number>();

@@ -2,22 +2,13 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { sql } from 'drizzle-orm';
 import { createOrganisation, createTestApp, type TestUser } from '../testing/test-app';
 import { TEST_DATABASE_URL } from '../testing/test-env';
+import { until, writeQuietly } from '../testing/notices';
 import { KnownUsers } from './known-users';
 
 const known = new KnownUsers(TEST_DATABASE_URL);
 const app = createTestApp({ knownUsers: known });
 let admin: TestUser;
 let yard: TestUser;
-
-const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms));
-
-/** Waits (in 20 ms steps, on the machine's timers: a notification takes real time) until `check` holds. */
-async function until(check: () => Promise<boolean>, what: string, ms = 3_000): Promise<void> {
-  for (let waited = 0; !(await check()); waited += 20) {
-    if (waited > ms) throw new Error(`Not within ${ms} ms: ${what}`);
-    await sleep(20);
-  }
-}
 
 /** Whether the API takes the caller for an admin: People is theirs alone. */
 const seenAsAdmin = async (user: TestUser) => {
@@ -26,18 +17,12 @@ const seenAsAdmin = async (user: TestUser) => {
   return res.status === 200;
 };
 
-/**
- * Changes a user's roles without telling anyone, as no code of ours ever does: the trigger stays
- * quiet for this session's writes. What the API answers afterwards shows whether it read the user again.
- */
-async function setRolesQuietly(user: TestUser, roles: string[]): Promise<void> {
-  await app.db.transaction(async (tx) => {
-    await tx.execute(sql`set local session_replication_role = replica`);
-    await tx.execute(
-      sql`update users set roles = ${sql.raw(`ARRAY[${roles.map((r) => `'${r}'`).join(',')}]::text[]`)} where id = ${user.id}`,
-    );
-  });
-}
+/** Changes a user's roles without telling anyone (see writeQuietly). */
+const setRolesQuietly = (user: TestUser, roles: string[]) =>
+  writeQuietly(
+    app.db,
+    sql`update users set roles = ${sql.raw(`ARRAY[${roles.map((r) => `'${r}'`).join(',')}]::text[]`)} where id = ${user.id}`,
+  );
 
 beforeAll(async () => {
   await known.start();

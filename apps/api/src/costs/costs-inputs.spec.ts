@@ -6,6 +6,7 @@ import { addBuses, dayRuns } from '../testing/fleet-fixture';
 import { publishedPlan } from '../testing/plan-fixture';
 import { createOrganisation, createTestApp, signInAgain, type TestUser } from '../testing/test-app';
 import { TEST_DATABASE_URL } from '../testing/test-env';
+import { until, writeQuietly } from '../testing/notices';
 import { fixedClock } from '../time/clock';
 import { COSTS_CHANGED, RATE_PLAN_CHANGED, type CostsInputs } from './costs-service';
 
@@ -24,7 +25,6 @@ let fin: TestUser;
 let sup: TestUser;
 let depotId: string;
 let ratePlanId: string;
-const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms));
 
 const month = async () =>
   (await app.request().get(`/api/depots/${depotId}/costs/month`).query({ date: '2026-12-10' }).set(as(fin)).expect(200))
@@ -33,21 +33,9 @@ const month = async () =>
     emissions: { miles: number };
   };
 
-/** Changes the building load without telling anyone, as no code of ours ever does: the triggers stay quiet. */
-async function buildingLoadQuietly(kw: number): Promise<void> {
-  await app.db.transaction(async (tx) => {
-    await tx.execute(sql`set local session_replication_role = replica`);
-    await tx.execute(sql`update depots set other_load_kw = ${JSON.stringify([kw])}::jsonb where id = ${depotId}`);
-  });
-}
-
-/** Waits (in 20 ms steps, on the machine's timers: a notification takes real time) until `check` holds. */
-async function until(check: () => Promise<boolean>, what: string, ms = 3_000): Promise<void> {
-  for (let waited = 0; !(await check()); waited += 20) {
-    if (waited > ms) throw new Error(`Not within ${ms} ms: ${what}`);
-    await sleep(20);
-  }
-}
+/** Changes the building load without telling anyone (see writeQuietly). */
+const buildingLoadQuietly = (kw: number) =>
+  writeQuietly(app.db, sql`update depots set other_load_kw = ${JSON.stringify([kw])}::jsonb where id = ${depotId}`);
 
 beforeAll(async () => {
   await kept.start();

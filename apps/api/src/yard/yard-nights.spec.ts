@@ -9,6 +9,7 @@ import { addBuses, dayRuns } from '../testing/fleet-fixture';
 import { publishedPlan } from '../testing/plan-fixture';
 import { createOrganisation, createTestApp, signInAgain, type TestUser } from '../testing/test-app';
 import { TEST_DATABASE_URL } from '../testing/test-env';
+import { until, writeQuietly } from '../testing/notices';
 import { YARD_CHANGED, type YardNights } from './yard-service';
 
 // What Tonight reads of a depot's night is kept between requests while the database reports the
@@ -24,7 +25,6 @@ let sup: TestUser;
 let depotId: string;
 const as = (u: TestUser) => ({ Authorization: `Bearer ${u.token}` });
 const NUMBERS = ['71', '72'];
-const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms));
 
 async function tonight() {
   return (await app.request().get(`/api/depots/${depotId}/tonight`).set(as(yard)).expect(200)).body as {
@@ -35,21 +35,9 @@ async function tonight() {
   };
 }
 
-/** Renames the depot without telling anyone, as no code of ours ever does: the triggers stay quiet. */
-async function renameQuietly(name: string): Promise<void> {
-  await app.db.transaction(async (tx) => {
-    await tx.execute(sql`set local session_replication_role = replica`);
-    await tx.execute(sql`update depots set name = ${name} where id = ${depotId}`);
-  });
-}
-
-/** Waits (in 20 ms steps, on the machine's timers: a notification takes real time) until `check` holds. */
-async function until(check: () => Promise<boolean>, what: string, ms = 3_000): Promise<void> {
-  for (let waited = 0; !(await check()); waited += 20) {
-    if (waited > ms) throw new Error(`Not within ${ms} ms: ${what}`);
-    await sleep(20);
-  }
-}
+/** Renames the depot without telling anyone (see writeQuietly). */
+const renameQuietly = (name: string) =>
+  writeQuietly(app.db, sql`update depots set name = ${name} where id = ${depotId}`);
 
 beforeAll(async () => {
   await kept.start();

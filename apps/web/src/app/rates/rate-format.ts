@@ -1,19 +1,6 @@
-import type { DayType, TouWindow } from '@nightyard/contracts';
+import { MONTH_NAMES, type DayType, type TouWindow } from '@nightyard/contracts';
 
-export const MONTH_NAMES = [
-  'January',
-  'February',
-  'March',
-  'April',
-  'May',
-  'June',
-  'July',
-  'August',
-  'September',
-  'October',
-  'November',
-  'December',
-] as const;
+export { MONTH_NAMES };
 
 export const DAY_TYPE_LABELS: Record<DayType, string> = {
   weekday: 'Weekdays',
