@@ -509,13 +509,8 @@ async function monthInputsOf(db: Db, caller: AuthUser, depotId: string, date: st
     const period = billingPeriodOf(date, guess.billingStartDay, guess.timezone);
     const bounds = periodBounds(period);
     const key = `${bounds.periodStart}|${caller.organisationId}`;
-    let found = kept?.get(depotId, key);
-    if (!found) {
-      const mark = kept?.mark() ?? 0;
-      const read = await monthInputs(db, caller.organisationId, depotId, bounds);
-      if (read) kept?.keep(depotId, key, read, mark);
-      found = read ?? undefined;
-    }
+    const load = () => monthInputs(db, caller.organisationId, depotId, bounds);
+    const found = kept ? await kept.read(depotId, key, load) : await load();
     if (!found) throw notFound('That depot');
     rememberDepot(found.depot);
     if (found.depot.timezone === guess.timezone && found.depot.billingStartDay === guess.billingStartDay)

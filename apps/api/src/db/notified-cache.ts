@@ -84,6 +84,16 @@ export class NotifiedCache<V> {
     if (this.groups.size > (this.options.maxGroups ?? 10_000)) this.groups.delete(this.groups.keys().next().value!);
   }
 
+  /** The kept value, else `load`'s (kept for next time unless something changed meanwhile; null is never kept). */
+  async read<T extends V>(group: string, key: string, load: () => Promise<T | null>): Promise<V | null> {
+    const known = this.get(group, key);
+    if (known !== undefined) return known;
+    const mark = this.mark();
+    const loaded = await load();
+    if (loaded !== null) this.keep(group, key, loaded, mark);
+    return loaded;
+  }
+
   forget(group: string): void {
     this.changes += 1;
     this.groups.delete(group);

@@ -198,13 +198,8 @@ export async function tonight(
   for (;;) {
     const { tonight: night } = await nightOfDepot(db, { id: depotId, timezone: zone }, now);
     const key = `${night.serviceDate}|${caller.id}|${caller.organisationId}`;
-    let answer = kept?.get(depotId, key);
-    if (!answer) {
-      const mark = kept?.mark() ?? 0;
-      const read = await publishedNight(db, { depotId, serviceDate: night.serviceDate }, caller);
-      if (read) kept?.keep(depotId, key, read, mark);
-      answer = read ?? undefined;
-    }
+    const load = () => publishedNight(db, { depotId, serviceDate: night.serviceDate }, caller);
+    const answer = kept ? await kept.read(depotId, key, load) : await load();
     if (!answer) throw notFound('That depot');
     rememberDepot(answer.depot);
     if (answer.depot.timezone === zone) return tonightOf(db, answer.depot, answer.night, now);
