@@ -1,7 +1,7 @@
 import { cloneAssignment, initialAssignment, plugMapOf, type Assignment, type AssignmentHints } from './assignment.js';
 import { limitedBaseline, type Baseline, type BaselineKind } from './baseline.js';
 import { countCrewMoves, endIsFree, fitCrew, startIsFree, type Move } from './crew.js';
-import { keptAssignment } from './stable.js';
+import { keptAssignment, stableRepair } from './stable.js';
 import { describeShortfall, explainShortfalls, soloShortfall, type ShortReason } from './explain.js';
 import { exactSize, solveExact } from './exact.js';
 import { loadSolver, type LpResult, type Solver } from './highs-solver.js';
@@ -483,40 +483,28 @@ function preferStableAndFewerMoves(
   const base = result.objective;
   const limit = base + Math.max(problem.tolerance.share * Math.abs(base), problem.tolerance.amount);
   let chosen: Chosen = { assignment: cheapest, result, crewTrade: null, keptPrevious: null };
-  const kept = keptAssignment(problem, hints.energy);
-  if (kept) {
-    // The plan being carried out, with places found for the stays it must move; then only
-    // changes that each save a tenth of the tolerance's amount (so a bus is not moved for cents).
-    live.update(kept, all);
-    const first = live.solve();
-    if (first.status === 'optimal') {
-      const minGain = problem.tolerance.amount / 10;
-      let search =
-        first.objective <= limit
-          ? { assignment: kept, result: first }
-          : localSearch(problem, hints, live, kept, first, { ...limits, minGain });
-      if (
-        search.result.objective > limit &&
-        problem.stays.length <= LNS_MAX_STAYS &&
-        performance.now() < limits.deadline
-      ) {
-        // Still too dear: re-split pairs of chargers (dearest stays first), which moves only the
-        // buses of the chargers it changes, before giving up on the plan being carried out.
-        const lns = pairSearch(problem, hints, live, search.assignment, search.result, {
-          ...defaultLnsLimits(problem, limits.deadline, limit),
-          passes: 2,
-        });
-        if (lns.result.objective < search.result.objective) search = { assignment: lns.assignment, result: lns.result };
-      }
-      if (search.result.objective <= limit) {
-        chosen = {
-          assignment: search.assignment,
-          result: search.result,
-          crewTrade: null,
-          keptPrevious: { extraCost: round(Math.max(0, search.result.objective - base), 2) },
-        };
-      }
-    }
+  const repair = problem.previous
+    ? stableRepair(problem, hints, live, {
+        limit,
+        minGain: problem.tolerance.amount / 10,
+        releases: STABLE_LIMITS.releases,
+        candidates: STABLE_LIMITS.candidates,
+        deadline: limits.deadline,
+      })
+    : null;
+  if (repair && repair.result.status === 'optimal' && repair.result.objective <= limit) {
+    chosen = {
+      assignment: repair.assignment,
+      result: repair.result,
+      crewTrade: null,
+      keptPrevious: { extraCost: round(Math.max(0, repair.result.objective - base), 2) },
+    };
+  } else if (problem.previous) {
+    // Still dearer than the tolerance (or the kept sessions do not fit the crew's room): the
+    // general searches from the repaired plan, each change saving a tenth of the tolerance's
+    // amount; the cheapest plan when even that stays outside the tolerance.
+    const start = repair?.result.status === 'optimal' ? repair.assignment : keptAssignment(problem, hints.energy);
+    if (start) chosen = searchFromKept(problem, hints, live, start, limit, base, limits) ?? chosen;
   }
   if (problem.yard && !chosen.keptPrevious) {
     const movesBefore = countCrewMoves(problem, cheapest);
@@ -539,6 +527,46 @@ function preferStableAndFewerMoves(
     }
   }
   return chosen;
+}
+
+/** Budgets of the stable repair (see stable.ts): kept sessions released at most, LP solves per release. */
+export const STABLE_LIMITS = { releases: 6, candidates: 6 };
+
+/** The local search, then the pair search, from a kept plan, changes only for a tenth of the tolerance's amount. */
+function searchFromKept(
+  problem: Problem,
+  hints: AssignmentHints,
+  live: AssignedModel,
+  kept: Assignment,
+  limit: number,
+  base: number,
+  limits: { deadline: number; maxMoves: number; target: number },
+): Chosen | null {
+  const all = problem.buses.map((b) => b.index);
+  live.update(kept, all);
+  const first = live.solve();
+  if (first.status !== 'optimal') return null;
+  const minGain = problem.tolerance.amount / 10;
+  let search =
+    first.objective <= limit
+      ? { assignment: kept, result: first }
+      : localSearch(problem, hints, live, kept, first, { ...limits, minGain });
+  if (search.result.objective > limit && problem.stays.length <= LNS_MAX_STAYS && performance.now() < limits.deadline) {
+    // Re-split pairs of chargers (dearest stays first), which moves only the buses of the
+    // chargers it changes, before giving up on the plan being carried out.
+    const lns = pairSearch(problem, hints, live, search.assignment, search.result, {
+      ...defaultLnsLimits(problem, limits.deadline, limit),
+      passes: 2,
+    });
+    if (lns.result.objective < search.result.objective) search = { assignment: lns.assignment, result: lns.result };
+  }
+  if (search.result.objective > limit) return null;
+  return {
+    assignment: search.assignment,
+    result: search.result,
+    crewTrade: null,
+    keptPrevious: { extraCost: round(Math.max(0, search.result.objective - base), 2) },
+  };
 }
 
 /** kWh short in an LP solution of the live model (summed over departures). */
@@ -610,7 +638,10 @@ function assemblePlan(
       if (problem.yard) {
         let any = false;
         for (let x = first; x <= last; x++) if (p[x]! > 0) any = true;
-        if (!any) last = first - 1;
+        // A bus already on its charger at a re-plan's start stays a session even without power:
+        // it is plugged in and someone unplugs it at the planned time.
+        const onAlready = first === 0 && problem.pinned !== undefined && problem.pinned[bus.stays[0]!.id] === c;
+        if (!any && !onAlready) last = first - 1;
       } else {
         while (first <= last && p[first]! <= 0) first++;
         while (last >= first && p[last]! <= 0) last--;
