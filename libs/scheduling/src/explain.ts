@@ -6,6 +6,12 @@ import type { PlugMap, Problem } from './problem.js';
 export type ShortReason = 'dwell' | 'charger' | 'cabinet' | 'site' | 'taper';
 
 /**
+ * kWh short per bus on the plan's own assignment with the site limit or the cabinets' limits
+ * lifted (the engine passes one that re-solves its live model from the plan's basis).
+ */
+export type ShortWith = (variant: { siteUnlimited?: boolean; cabinetsUnlimited?: boolean }) => Float64Array;
+
+/**
  * kWh short at each departure if the bus had a charger of `powerCap` kW to itself for every
  * whole slot of every stay: charging as early as possible maximises the energy at every later
  * moment, so this is the most the bus could hold.
@@ -40,6 +46,7 @@ export function explainShortfalls(
   plug: PlugMap,
   shortByBus: Float64Array,
   tolerance = 1e-3,
+  lifted?: ShortWith,
 ): (ShortReason | null)[] {
   const reasons: (ShortReason | null)[] = problem.buses.map(() => null);
   const shared: number[] = [];
@@ -57,6 +64,7 @@ export function explainShortfalls(
   }
   if (shared.length === 0) return reasons;
   const shortWith = (variant: { siteUnlimited?: boolean; cabinetsUnlimited?: boolean }) => {
+    if (lifted) return lifted(variant);
     const model = buildChargeModel(problem, { mode: 'assigned', plug, ...variant });
     const res = solver.solve(model.lp);
     const out = new Float64Array(problem.buses.length);

@@ -63,6 +63,12 @@ export class AssignedModel {
   solve(): LpResult {
     return this.live.solve();
   }
+  setColBounds(cols: number[], lower: number[], upper: number[]): void {
+    this.live.setColBounds(cols, lower, upper);
+  }
+  setRowBounds(row: number, lower: number, upper: number): void {
+    this.live.setRowBounds(row, lower, upper);
+  }
   dispose(): void {
     this.live.dispose();
   }

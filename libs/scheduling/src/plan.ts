@@ -2,11 +2,11 @@ import { cloneAssignment, initialAssignment, plugMapOf, type Assignment, type As
 import { limitedBaseline, type Baseline, type BaselineKind } from './baseline.js';
 import { countCrewMoves, endIsFree, fitCrew, startIsFree, type Move } from './crew.js';
 import { keptAssignment, stableRepair } from './stable.js';
-import { describeShortfall, explainShortfalls, soloShortfall, type ShortReason } from './explain.js';
+import { describeShortfall, explainShortfalls, soloShortfall, type ShortReason, type ShortWith } from './explain.js';
 import { exactSize, solveExact } from './exact.js';
 import { loadSolver, type LpResult, type Solver } from './highs-solver.js';
 import { AssignedModel, localSearch } from './local-search.js';
-import { defaultLnsLimits, pairSearch } from './lns.js';
+import { defaultLnsLimits, pairSearch, windowScore } from './lns.js';
 import { solveLowerBound } from './lower-bound.js';
 import { buildChargeModel, powerFrom } from './lp-model.js';
 import { prepareProblem, type Problem } from './problem.js';
@@ -260,7 +260,7 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
   }
   // Large depots with crew windows: each candidate costs a large LP re-solve (about a second
   // at 500 buses), and there the sequencing heuristic's plans win (measured at 200-1,000 buses);
-  // only those and the first sweep are tried.
+  // only those and the first sweep are made (and ranked below, only the best solved).
   if (problem.yard?.capacity && problem.stays.length > LARGE_CREW_STAYS) {
     const keep = new Set(['sequence-departure-share', 'sequence-best-share', 'sweep-strong-deadline']);
     const kept = candidates.filter(([name]) => keep.has(name));
@@ -272,7 +272,22 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
     const make = cand[1];
     cand[1] = () => fitCrew(problem, make(), hints.energy);
   }
-  let start = candidates[0]![1]();
+  // Large depots with crew windows: each candidate's LP is a large re-solve (about a second at
+  // 500 buses), so the candidates are laid out first and ranked by how well their windows hold
+  // the relaxation's charging (windowScore: energy they cannot hold, then charging left outside
+  // them); only the best goes to the LP.
+  let made: Assignment | null = null;
+  if (problem.yard?.capacity && problem.stays.length > LARGE_CREW_STAYS && candidates.length > 1) {
+    const stays = problem.stays.map((s) => s.id);
+    const scored = candidates.map((cand, i) => {
+      const a = cand[1]();
+      return { cand, a, score: windowScore(problem, hints, a, stays), i };
+    });
+    scored.sort((x, y) => x.score - y.score || x.i - y.i);
+    candidates.splice(0, candidates.length, scored[0]!.cand);
+    made = scored[0]!.a;
+  }
+  let start = made ?? candidates[0]![1]();
   let construction = candidates[0]![0];
   let timedOut = false;
   const maxMoves = options.maxMoves ?? defaultMoves(problem);
@@ -417,32 +432,39 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
         if (!ex.timeLimited && ex.status === 'optimal') exactProven = true;
       }
     }
-  } finally {
+  } catch (e) {
     live.dispose();
+    throw e;
   }
   const stoppedBy: Plan['stats']['stoppedBy'] =
     search.result.objective <= target ? 'bound' : timedOut || search.timedOut ? 'time' : 'moves';
   const assignment = chosen.assignment;
   const plug = plugMapOf(problem, assignment);
-  let power = powerFrom(problem, live.model, chosen.result.x);
-  if (overfills(problem, power)) {
-    // The model left out taper/ceiling rows a battery was not expected to reach; it reached
-    // one (zero prices, solver tolerance): solve this assignment again with every row.
-    const full = buildChargeModel(problem, { mode: 'assigned', plug, tieBreak: true, allRows: true });
-    const res = solver.solve(full.lp);
-    if (res.status !== 'optimal') throw new Error(`plan LP ended ${res.status}`);
-    power = powerFrom(problem, full, res.x);
+  let plan: Plan;
+  try {
+    let power = powerFrom(problem, live.model, chosen.result.x);
+    if (overfills(problem, power)) {
+      // The model left out taper/ceiling rows a battery was not expected to reach; it reached
+      // one (zero prices, solver tolerance): solve this assignment again with every row.
+      const full = buildChargeModel(problem, { mode: 'assigned', plug, tieBreak: true, allRows: true });
+      const res = solver.solve(full.lp);
+      if (res.status !== 'optimal') throw new Error(`plan LP ended ${res.status}`);
+      power = powerFrom(problem, full, res.x);
+    }
+    power = power.map((row) => row.map((v) => round(v)));
+    plan = assemblePlan(
+      problem,
+      solver,
+      plug,
+      power,
+      Math.max(lb.penalisedObjective, exactBound),
+      lb.shortfallKwh,
+      exactProven,
+      (variant) => shortWithLive(problem, live, chosen.assignment, variant),
+    );
+  } finally {
+    live.dispose();
   }
-  power = power.map((row) => row.map((v) => round(v)));
-  const plan = assemblePlan(
-    problem,
-    solver,
-    plug,
-    power,
-    Math.max(lb.penalisedObjective, exactBound),
-    lb.shortfallKwh,
-    exactProven,
-  );
   plan.stats.exact = exactStats;
   plan.crewTrade = chosen.crewTrade;
   plan.keptPrevious = chosen.keptPrevious;
@@ -569,6 +591,49 @@ function searchFromKept(
   };
 }
 
+/**
+ * kWh short per bus with the site limit or the cabinets' limits lifted, on the live model of the
+ * chosen assignment: its bounds relaxed and re-solved from its basis (the chosen solution stays
+ * feasible, so the simplex only improves on it), then restored.
+ */
+function shortWithLive(
+  problem: Problem,
+  live: AssignedModel,
+  assignment: Assignment,
+  variant: { siteUnlimited?: boolean; cabinetsUnlimited?: boolean },
+): Float64Array {
+  live.update(
+    assignment,
+    problem.buses.map((b) => b.index),
+  );
+  const model = live.model;
+  const lp = model.lp;
+  const loadCols = Array.from(model.loadCol);
+  const cabinetRows = model.cabinetRow.flatMap((rows) => Array.from(rows).filter((r) => r >= 0));
+  if (variant.siteUnlimited)
+    live.setColBounds(
+      loadCols,
+      loadCols.map(() => 0),
+      loadCols.map(() => Infinity),
+    );
+  if (variant.cabinetsUnlimited) for (const r of cabinetRows) live.setRowBounds(r, -Infinity, Infinity);
+  const res = live.solve();
+  if (variant.siteUnlimited)
+    live.setColBounds(
+      loadCols,
+      loadCols.map((c) => lp.colLower[c]!),
+      loadCols.map((c) => lp.colUpper[c]!),
+    );
+  if (variant.cabinetsUnlimited) for (const r of cabinetRows) live.setRowBounds(r, lp.rowLower[r]!, lp.rowUpper[r]!);
+  const out = new Float64Array(problem.buses.length);
+  if (res.status !== 'optimal') return out.fill(Infinity);
+  for (const stay of problem.stays) {
+    const c = model.shortCol[stay.id]!;
+    if (c >= 0) out[stay.bus] = Math.max(out[stay.bus]!, res.x[c]!);
+  }
+  return out;
+}
+
 /** kWh short in an LP solution of the live model (summed over departures). */
 function shortfallIn(problem: Problem, live: AssignedModel, result: LpResult): number {
   let short = 0;
@@ -608,6 +673,7 @@ function assemblePlan(
   lbPenalised: number,
   lbShortfall: number,
   exactProven = false,
+  shortWith?: ShortWith,
 ): Plan {
   const { slotCount: T, slotHours: dt, eta, zone } = problem;
   const charging = new Float64Array(T);
@@ -700,7 +766,7 @@ function assemblePlan(
     };
   });
   if (totalShort > 0) {
-    const reasons = explainShortfalls(problem, solver, plug, shortByBus);
+    const reasons = explainShortfalls(problem, solver, plug, shortByBus, undefined, shortWith);
     const strongest = Math.max(
       0,
       ...problem.chargers.filter((c) => c.available.some((a) => a === 1)).map((c) => c.maxKw),
