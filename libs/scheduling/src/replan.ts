@@ -358,7 +358,11 @@ function movedBuses(
     for (const s of previous.sessions) if (s.charger === c && Date.parse(s.end) > cutMs) forced.add(s.bus);
   for (const b of late) forced.add(b);
   const others = buses.filter((b) => !forced.has(b)).length;
-  if (others > 0)
+  if (others > 0 && plan.keptPrevious)
     reasons.push(`${others} other ${others === 1 ? 'bus' : 'buses'} moved to make room or to keep the cost down`);
+  else if (others > 0)
+    reasons.push(
+      `the plan being carried out could not be kept within the depot's cost tolerance: the rest of the night was planned afresh (${others} other ${others === 1 ? 'bus' : 'buses'} moved)`,
+    );
   return { buses, reasons };
 }
