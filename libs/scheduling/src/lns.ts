@@ -54,7 +54,7 @@ export function defaultLnsLimits(problem: Problem, deadline: number, target: num
 }
 
 /** How badly an assignment's windows on some chargers hold their stays' energy (lower is better). */
-export function windowScore(problem: Problem, hints: AssignmentHints, a: Assignment, stays: number[]): number {
+function splitScore(problem: Problem, hints: AssignmentHints, a: Assignment, stays: number[]): number {
   const dt = problem.slotHours;
   let score = 0;
   for (const id of stays) {
@@ -176,7 +176,7 @@ export function pairSearch(
       const quick: { score: number; mask: number }[] = [];
       for (let mask = 0; mask < 1 << union.length; mask++) {
         splits++;
-        quick.push({ score: windowScore(problem, hints, split(mask, quickHints), union), mask });
+        quick.push({ score: splitScore(problem, hints, split(mask, quickHints), union), mask });
       }
       quick.sort((x, y) => x.score - y.score || x.mask - y.mask);
       for (const { mask } of quick.slice(0, limits.shortlist * (union.length <= 8 ? 2 : 1))) {
@@ -188,12 +188,12 @@ export function pairSearch(
           fitCrew(problem, trial, hints.energy);
           fitCrew(problem, other, hints.energy, true);
           scored.push({
-            score: windowScore(problem, hints, other, union),
+            score: splitScore(problem, hints, other, union),
             trial: other,
             mask: mask + (1 << union.length),
           });
         }
-        scored.push({ score: windowScore(problem, hints, trial, union), trial, mask });
+        scored.push({ score: splitScore(problem, hints, trial, union), trial, mask });
       }
       scored.sort((x, y) => x.score - y.score || x.mask - y.mask);
       // The best-laid-out splits of each way of placing hand-overs go to the LP.

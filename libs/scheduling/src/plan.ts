@@ -6,7 +6,7 @@ import { describeShortfall, explainShortfalls, soloShortfall, type ShortReason, 
 import { exactSize, solveExact } from './exact.js';
 import { loadSolver, type LpResult, type Solver } from './highs-solver.js';
 import { AssignedModel, localSearch } from './local-search.js';
-import { defaultLnsLimits, pairSearch, windowScore } from './lns.js';
+import { defaultLnsLimits, pairSearch } from './lns.js';
 import { solveLowerBound } from './lower-bound.js';
 import { buildChargeModel, powerFrom } from './lp-model.js';
 import { prepareProblem, type Problem } from './problem.js';
@@ -260,7 +260,7 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
   }
   // Large depots with crew windows: each candidate costs a large LP re-solve (about a second
   // at 500 buses), and there the sequencing heuristic's plans win (measured at 200-1,000 buses);
-  // only those and the first sweep are made (and ranked below, only the best solved).
+  // only those and the first sweep are tried.
   if (problem.yard?.capacity && problem.stays.length > LARGE_CREW_STAYS) {
     const keep = new Set(['sequence-departure-share', 'sequence-best-share', 'sweep-strong-deadline']);
     const kept = candidates.filter(([name]) => keep.has(name));
@@ -272,22 +272,7 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
     const make = cand[1];
     cand[1] = () => fitCrew(problem, make(), hints.energy);
   }
-  // Large depots with crew windows: each candidate's LP is a large re-solve (about a second at
-  // 500 buses), so the candidates are laid out first and ranked by how well their windows hold
-  // the relaxation's charging (windowScore: energy they cannot hold, then charging left outside
-  // them); only the best goes to the LP.
-  let made: Assignment | null = null;
-  if (problem.yard?.capacity && problem.stays.length > LARGE_CREW_STAYS && candidates.length > 1) {
-    const stays = problem.stays.map((s) => s.id);
-    const scored = candidates.map((cand, i) => {
-      const a = cand[1]();
-      return { cand, a, score: windowScore(problem, hints, a, stays), i };
-    });
-    scored.sort((x, y) => x.score - y.score || x.i - y.i);
-    candidates.splice(0, candidates.length, scored[0]!.cand);
-    made = scored[0]!.a;
-  }
-  let start = made ?? candidates[0]![1]();
+  let start = candidates[0]![1]();
   let construction = candidates[0]![0];
   let timedOut = false;
   const maxMoves = options.maxMoves ?? defaultMoves(problem);
