@@ -201,7 +201,9 @@ for (const [n, c] of scarce) {
 }
 
 console.log('\nRe-plan after one charger fails at 22:00 (with the crew): buses moved');
-console.log('buses  chargers  seed  failed  buses on it  moved  allowed (on it + 1 per freed charger)');
+console.log(
+  'buses  chargers  seed  failed  buses on it  moved  allowed (on it + 1 per freed charger)  kept (extra $)  short kWh before/after  same twice  re-plan ms  load',
+);
 const moved: number[] = [];
 const allowed: number[] = [];
 for (const [n, c] of !sections.has('replan')
@@ -231,12 +233,16 @@ for (const [n, c] of !sections.has('replan')
         .filter((s) => s.charger !== busiest.ch && Date.parse(s.start) < nowMs && Date.parse(s.end) > nowMs)
         .map((s) => [s.bus, s.charger]),
     );
-    const r = await replan(scenario, { now, outOfService: [busiest.ch], previous: plan, plugged });
+    const state = { now, outOfService: [busiest.ch], previous: plan, plugged };
+    const r = await replan(scenario, state);
+    const again = await replan(scenario, state);
+    const sameReplan = JSON.stringify(r.sessions) === JSON.stringify(again.sessions);
     const m = movedBuses(plan, r, nowMs);
+    const replanErrors = checkPlan(r.replan.scenario, r, { plugged });
     moved.push(m.length);
     allowed.push(busiest.n + 1);
     console.log(
-      `${String(n).padStart(5)}  ${String(c).padStart(8)}  ${String(seed).padStart(4)}  ${busiest.ch.padEnd(6)}  ${String(busiest.n).padStart(11)}  ${String(m.length).padStart(5)}  ${busiest.n + 1}`,
+      `${String(n).padStart(5)}  ${String(c).padStart(8)}  ${String(seed).padStart(4)}  ${busiest.ch.padEnd(6)}  ${String(busiest.n).padStart(11)}  ${String(m.length).padStart(5)}  ${String(busiest.n + 1).padStart(7)}${' '.repeat(35)}${(r.keptPrevious ? `yes (${r.keptPrevious.extraCost.toFixed(2)})` : 'no (afresh)').padEnd(14)}  ${`${plan.stats.shortfallKwh.toFixed(1)}/${r.stats.shortfallKwh.toFixed(1)}`.padStart(21)}  ${sameReplan ? 'yes' : 'NO '}         ${String(Math.round(r.solveMs)).padStart(10)}  ${load()}${replanErrors.length ? `  ${replanErrors.length} checker errors` : ''}`,
     );
   }
 }
