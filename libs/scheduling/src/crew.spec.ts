@@ -171,4 +171,21 @@ describe('the yard crew', () => {
     expect(again.sessions).toEqual(r.sessions);
     expect(again.replan.moved).toEqual(r.replan.moved);
   });
+
+  it('says so when the plan being carried out cannot be kept within the tolerance and the night is planned afresh', async () => {
+    // Every battery reported empty at 22:00: the windows planned for fuller batteries cannot hold
+    // what the buses now need, so the cheapest plan replaces the one being carried out.
+    const input = { ...generateDepot({ buses: 12, chargers: 6, seed: 5 }), yard };
+    const parsed = parseScenario(input);
+    if (!parsed.ok) throw new Error('bad scenario');
+    const before = await planScenario(parsed.scenario);
+    const energyKwh = Object.fromEntries(parsed.scenario.buses.map((b) => [b.id, 0]));
+    const r = await replan(parsed.scenario, { now: '2026-01-14T22:00', previous: before, energyKwh });
+    expect(checkPlan(r.replan.scenario, r)).toEqual([]);
+    expect(r.keptPrevious).toBeNull();
+    expect(r.replan.moved.reasons).toContain('battery levels reported for 12 buses');
+    expect(r.replan.moved.reasons.at(-1)).toMatch(
+      /^the plan being carried out could not be kept within the depot's cost tolerance: the rest of the night was planned afresh \(\d+ other bus(es)? moved\)$/,
+    );
+  });
 });
