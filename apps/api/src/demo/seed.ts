@@ -16,6 +16,7 @@ import {
   ratePlans,
   runs,
   serviceDays,
+  userDepots,
   users,
   yardConfirmations,
 } from '../db/schema';
@@ -71,16 +72,19 @@ export async function seedDemo(db: Db, now: Date, tag?: string): Promise<SeededD
   const ids = await db.transaction(async (tx) => {
     const [org] = await tx.insert(organisations).values(demoOrganisation).returning();
     const organisationId = org!.id;
-    await tx.insert(users).values(
-      demoUsers.map((u) => ({
-        organisationId,
-        email: demoEmail(u.email, tag),
-        name: u.name,
-        roles: [...u.roles],
-        passwordHash,
-        status: 'active' as const,
-      })),
-    );
+    const people = await tx
+      .insert(users)
+      .values(
+        demoUsers.map((u) => ({
+          organisationId,
+          email: demoEmail(u.email, tag),
+          name: u.name,
+          roles: [...u.roles],
+          passwordHash,
+          status: 'active' as const,
+        })),
+      )
+      .returning({ id: users.id, roles: users.roles });
     const [depot] = await tx
       .insert(depots)
       .values({
@@ -94,6 +98,8 @@ export async function seedDemo(db: Db, now: Date, tag?: string): Promise<SeededD
       })
       .returning();
     const depotId = depot!.id;
+    const assigned = people.filter((p) => !p.roles.includes('admin'));
+    if (assigned.length) await tx.insert(userDepots).values(assigned.map((p) => ({ userId: p.id, depotId })));
     const cabinets = await tx
       .insert(powerCabinets)
       .values(demoCabinets.map((c) => ({ organisationId, depotId, label: c.label, limitKw: c.limitKw })))
@@ -206,6 +212,7 @@ async function publishDemoNights(
     email: supervisor!.email,
     name: supervisor!.name,
     roles: supervisor!.roles,
+    depotIds: [depotId],
   };
   const night = await nightOfDepot(db, depot!, now);
   const published: string[] = [];

@@ -33,6 +33,7 @@ const EXPECTED: Record<string, 'public' | readonly Role[]> = {
   'PATCH /users/:id': ['admin'],
   'GET /depots': ROLES,
   'GET /depots/:depotId/night': ROLES,
+  'PUT /me/depot': ROLES,
   'GET /dev/outbox': ['admin'],
   'GET /depots/:depotId': ROLES,
   'PUT /depots/:depotId': EDIT_DEPOT,

@@ -2,17 +2,20 @@ import { randomUUID } from 'node:crypto';
 import { eq } from 'drizzle-orm';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { actionTokens, users } from '../db/schema';
+import { createDepot } from '../testing/depot-fixture';
 import { linkToken, mailFor } from '../testing/mail';
 import { createOrganisation, createTestApp, type TestUser } from '../testing/test-app';
 
 const app = createTestApp();
 let admin: TestUser;
 let organisationId: string;
+let depotId: string;
 
 beforeAll(async () => {
   const org = await createOrganisation(app, { admin: ['admin'], yard: ['yard'] });
   admin = org.users.admin!;
   organisationId = org.organisationId;
+  depotId = (await createDepot(app.db, organisationId)).depot.id;
 });
 
 const auth = (u: TestUser) => ({ Authorization: `Bearer ${u.token}` });
@@ -25,7 +28,7 @@ describe('invitations', () => {
       .request()
       .post('/api/users/invite')
       .set(auth(admin))
-      .send({ email, name: 'Noor Haddad', roles: ['yard', 'supervisor'] })
+      .send({ email, name: 'Noor Haddad', roles: ['yard', 'supervisor'], depotIds: [depotId] })
       .expect(201);
     expect(invited.body.user.status).toBe('invited');
 
@@ -56,7 +59,7 @@ describe('invitations', () => {
       .request()
       .post('/api/users/invite')
       .set(auth(admin))
-      .send({ email: admin.email, name: 'Someone', roles: ['yard'] })
+      .send({ email: admin.email, name: 'Someone', roles: ['yard'], depotIds: [depotId] })
       .expect(409);
     expect(res.body.error.fields).toEqual({ email: 'Already in use' });
     const after = await app.db.select().from(users).where(eq(users.organisationId, organisationId));
@@ -69,7 +72,7 @@ describe('invitations', () => {
       .request()
       .post('/api/users/invite')
       .set(auth(admin))
-      .send({ email, name: 'Late', roles: ['finance'] })
+      .send({ email, name: 'Late', roles: ['finance'], depotIds: [depotId] })
       .expect(201);
     const token = linkToken((await mailFor(email))[0]!.text);
     const [u] = await app.db.select().from(users).where(eq(users.email, email));
@@ -93,7 +96,7 @@ describe('invitations', () => {
       .request()
       .post('/api/users/invite')
       .set(auth(admin))
-      .send({ email, name: 'Gone', roles: ['yard'] })
+      .send({ email, name: 'Gone', roles: ['yard'], depotIds: [depotId] })
       .expect(201);
     const token = linkToken((await mailFor(email))[0]!.text);
     await app
