@@ -13,16 +13,17 @@ type Depot = Awaited<ReturnType<typeof visibleDepots>>[number];
 /**
  * Tonight's plan of a depot in figures, read in the database (a plan's result holds every slot and
  * session: only these few numbers cross the wire): the night's published plan, else its latest
- * draft (what-ifs are studies, never the night's plan). The same figures as the Plans page: the
- * total cost is the plan's (`totalCost`), a bus is short beyond 1e-6 kWh, the peak is the highest
- * site load of the plan's slots.
+ * draft (what-ifs are studies, never the night's plan). The same figures as the Plans and Costs
+ * pages: the cost is the night's charging energy under the plan (the engine's bill, what the Costs
+ * page's night shows as its energy cost; demand is billed once a period, so it is the period's,
+ * never a night's), a bus is short beyond 1e-6 kWh, the peak is the highest site load of its slots.
  */
 async function tonightsPlan(db: Db, depotId: string, serviceDate: string) {
   const [row] = await db
     .select({
       state: plans.state,
       version: plans.version,
-      cost: sql<number | null>`(${plans.result}->'cost'->>'total')::float8`,
+      cost: sql<number | null>`(${plans.result}->'cost'->>'energy')::float8`,
       peakKw: sql<
         number | null
       >`(select max((s->>'loadKw')::float8) from jsonb_array_elements(${plans.result}->'slots') s)`,

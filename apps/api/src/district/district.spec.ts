@@ -83,18 +83,24 @@ describe('the district overview', () => {
       shortKwh: expect.any(Number),
       peakKw: Math.max(...published.result!.slots.map((s) => s.loadKw)),
       serviceLimitKw: 300,
-      cost: published.totalCost,
+      cost: published.result!.cost.energy,
     });
+    // The night's energy cost as the Costs page shows it for that night (summed there from the
+    // sessions' kW, which the engine keeps to 6 decimals: equal to a millionth of a dollar).
+    const night = (await month(depotA)).nights.find((n) => n.date === TONIGHT)!;
+    expect(a!.tonight.cost).toBeCloseTo(night.planEnergyCost, 6);
     expect(a!.tonight.shortKwh).toBeCloseTo(
       published.result!.buses.reduce((t, x) => t + (x.shortfallKwh > 1e-6 ? x.shortfallKwh : 0), 0),
       9,
     );
     const [draft] = (await app.request().get(`/api/depots/${depotB}/plans`).set(as(boss)).expect(200)).body.plans;
+    const draftResult = (await plan(draft.id)).result!;
     expect(b!.tonight).toMatchObject({
       planState: 'draft',
       planVersion: draft.version,
       busesOut: 2,
-      cost: draft.totalCost,
+      cost: draftResult.cost.energy,
+      peakKw: Math.max(...draftResult.slots.map((s) => s.loadKw)),
     });
     expect(c!.tonight).toMatchObject({ planState: 'none', planVersion: null, busesOut: 0, peakKw: null, cost: null });
   });
