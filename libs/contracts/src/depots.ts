@@ -20,4 +20,17 @@ export const depotSummarySchema = z.object({
     .nullable(),
 });
 export type DepotSummary = z.infer<typeof depotSummarySchema>;
-export const depotListSchema = z.object({ depots: z.array(depotSummarySchema) });
+/**
+ * The depots the caller may see (administrators: every depot of the organisation; everyone else:
+ * the depots assigned to them), and the one they last chose (remembered per person; null until
+ * they choose, when the app takes the first).
+ */
+export const depotListSchema = z.object({
+  depots: z.array(depotSummarySchema),
+  chosenDepotId: z.uuid().nullable(),
+});
+export type DepotList = z.infer<typeof depotListSchema>;
+
+/** PUT /me/depot: remember the depot the person works on (one of theirs, else 404). */
+export const chooseDepotRequestSchema = z.strictObject({ depotId: z.uuid('Not a depot id') });
+export const chosenDepotSchema = z.object({ chosenDepotId: z.uuid() });

@@ -10,6 +10,7 @@ export * from './plan-horizon';
 export * from './auth';
 export * from './users';
 export * from './depots';
+export * from './district';
 export * from './rates';
 export * from './depot-setup';
 export * from './yard-crew';

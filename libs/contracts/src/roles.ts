@@ -39,3 +39,5 @@ export const YARD_CREW: readonly Role[] = ['yard', 'supervisor', 'admin'];
 export const COST_READERS: readonly Role[] = ['finance', 'admin', 'supervisor', 'facilities'];
 /** Meter data imports and billing peaks entered for Costs. */
 export const COST_EDITORS: readonly Role[] = ['finance', 'admin'];
+/** The district overview: every depot side by side, tonight and the billing period. */
+export const DISTRICT_READERS: readonly Role[] = ['admin', 'finance'];

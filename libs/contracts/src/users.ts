@@ -11,6 +11,11 @@ export const userSchema = z.object({
   status: userStatusSchema,
   createdAt: z.iso.datetime({ offset: true }),
   lastSignInAt: z.iso.datetime({ offset: true }).nullable(),
+  /**
+   * The depots the person is assigned to. Administrators see every depot of the organisation
+   * whatever this holds; everyone else sees only these.
+   */
+  depotIds: z.array(z.uuid()),
 });
 export type User = z.infer<typeof userSchema>;
 
@@ -22,11 +27,36 @@ const rolesInput = z
   .max(5, 'Each role once')
   .refine((r) => new Set(r).size === r.length, 'Each role once');
 
-export const inviteUserRequestSchema = z.strictObject({
-  email: emailSchema,
-  name: text('The name').trim().min(1, "Enter the person's name").max(120),
-  roles: rolesInput,
-});
+/** At most this many depots per person (a district's worth). */
+export const MAX_DEPOTS_PER_PERSON = 100;
+
+const depotIdsInput = z
+  .array(z.uuid('Not a depot id'))
+  .max(MAX_DEPOTS_PER_PERSON, `Assign at most ${MAX_DEPOTS_PER_PERSON} depots`)
+  .refine((d) => new Set(d).size === d.length, 'Each depot once');
+
+/**
+ * Who may hold which depots: yard staff work at one depot; administrators see them all (an empty
+ * list is fine for them); everyone else needs at least one.
+ */
+export function depotAssignmentProblem(roles: readonly string[], depotIds: readonly string[]): string | null {
+  const yardOnly = roles.length > 0 && roles.every((r) => r === 'yard');
+  if (yardOnly && depotIds.length !== 1) return 'Yard staff work at one depot: choose exactly one';
+  if (!roles.includes('admin') && depotIds.length === 0) return 'Choose at least one depot';
+  return null;
+}
+
+export const inviteUserRequestSchema = z
+  .strictObject({
+    email: emailSchema,
+    name: text('The name').trim().min(1, "Enter the person's name").max(120),
+    roles: rolesInput,
+    depotIds: depotIdsInput,
+  })
+  .superRefine((v, ctx) => {
+    const problem = depotAssignmentProblem(v.roles, v.depotIds);
+    if (problem) ctx.addIssue({ code: 'custom', path: ['depotIds'], message: problem });
+  });
 export type InviteUserRequest = z.infer<typeof inviteUserRequestSchema>;
 
 export const updateUserRequestSchema = z
@@ -34,8 +64,10 @@ export const updateUserRequestSchema = z
     name: text('The name').trim().min(1, "Enter the person's name").max(120).optional(),
     roles: rolesInput.optional(),
     active: z.boolean().optional(),
+    /** Replaces the person's depots (checked against their roles, new or kept, by the API). */
+    depotIds: depotIdsInput.optional(),
   })
-  .refine((v) => Object.keys(v).length > 0, 'Send at least one of name, roles, active');
+  .refine((v) => Object.keys(v).length > 0, 'Send at least one of name, roles, active, depotIds');
 export type UpdateUserRequest = z.infer<typeof updateUserRequestSchema>;
 
 export const userIdParamsSchema = z.strictObject({ id: z.uuid('Not a user id') });
