@@ -83,6 +83,7 @@ export {
   periodTarget,
   underTarget,
   heldAtTarget,
+  shiftScenario,
   planUnderTarget,
   type PeriodNight,
   type PeriodTarget,

@@ -3,7 +3,7 @@ import { loadSolver, type Lp, type LpResult, type Solver } from './highs-solver.
 import { buildChargeModel, type ChargeModel } from './lp-model.js';
 import { planScenario, type Plan, type PlanOptions } from './plan.js';
 import { prepareProblem, type Problem } from './problem.js';
-import type { Scenario } from './scenario.js';
+import type { Scenario, ScenarioInput } from './scenario.js';
 
 // The billing period's demand target (see the scheduling brief, "peaks so far"). The demand
 // charge is set once per billing period by its highest interval, so the nights left in the period
@@ -528,4 +528,39 @@ export async function planUnderTarget(
     peaks: rows,
     trade: { above, cost: round(cost, 2), keepsServed, energySaved: round(energySaved, 2), sentence },
   };
+}
+
+/**
+ * The scenario moved by whole days (every local time: horizon, stays, limit and crew windows),
+ * e.g. the latest entered night of a weekday standing in for a later night of that weekday.
+ */
+export function shiftScenario<S extends ScenarioInput | Scenario>(scenario: S, days: number): S {
+  const zone = scenario.timezone;
+  const move = (local: string) => DateTime.fromISO(local, { zone }).plus({ days }).toFormat(LOCAL);
+  const out = {
+    ...scenario,
+    start: move(scenario.start),
+    end: move(scenario.end),
+    site: {
+      ...scenario.site,
+      ...(scenario.site.limitWindows
+        ? { limitWindows: scenario.site.limitWindows.map((w) => ({ ...w, from: move(w.from), to: move(w.to) })) }
+        : {}),
+    },
+    buses: scenario.buses.map((b) => ({
+      ...b,
+      stays: b.stays.map((s) => ({ ...s, arrive: move(s.arrive), depart: move(s.depart) })),
+    })),
+    ...(scenario.yard
+      ? {
+          yard: {
+            ...scenario.yard,
+            ...(scenario.yard.crew
+              ? { crew: scenario.yard.crew.map((w) => ({ ...w, from: move(w.from), to: move(w.to) })) }
+              : {}),
+          },
+        }
+      : {}),
+  };
+  return out as S;
 }

@@ -1,6 +1,7 @@
 import { and, eq, inArray, sql } from 'drizzle-orm';
 import type { Logger } from 'pino';
-import { parseScenario } from '@nightyard/scheduling';
+import { parseScenario, type Scenario } from '@nightyard/scheduling';
+import { periodTargetFrom } from '../costs/period-target';
 import type { Db } from '../db/client';
 import { plans } from '../db/schema';
 import { isDatabaseUnavailable } from '../db/unavailable';
@@ -13,6 +14,51 @@ async function previousResult(db: Db, id: string | null): Promise<PlanResult | n
   if (!id) return null;
   const [row] = await db.select({ result: plans.result }).from(plans).where(eq(plans.id, id));
   return row?.result ? planResultSchema.parse(row.result) : null;
+}
+
+/**
+ * A night planned under the billing period's demand target (generated plans and revisions; a
+ * what-if keeps the depot's peaks so far, so it compares with the plan it came from). The target
+ * is worked out now, from the data as it is, with this night's own scenario in it.
+ */
+async function planNight(
+  db: Db,
+  log: Logger,
+  plan: typeof plans.$inferSelect,
+  scenario: Scenario,
+): Promise<PlanResult> {
+  if (plan.kind === 'what-if') return runInPool({ kind: 'plan', scenario });
+  let target: Awaited<ReturnType<typeof periodTargetFrom>> = null;
+  try {
+    target = await periodTargetFrom(db, { organisationId: plan.organisationId }, plan.depotId, plan.serviceDate, {
+      date: plan.serviceDate,
+      scenario,
+    });
+  } catch (err) {
+    if (isDatabaseUnavailable(err)) throw err;
+    log.warn({ err, planId: plan.id }, 'no demand target: the night is planned on the peaks so far');
+  }
+  if (!target) return runInPool({ kind: 'plan', scenario });
+  const {
+    plan: result,
+    peaks,
+    trade,
+  } = await runInPool({
+    kind: 'plan-under-target',
+    scenario,
+    targets: target.target.targets,
+  });
+  const aboveKw = trade ? Math.max(...trade.above.map((a) => a.kw)) : 0;
+  return {
+    ...result,
+    target: {
+      peaks,
+      aboveKw,
+      trade,
+      binding: target.view.binding?.sentence ?? null,
+      impossible: target.view.impossible.map((i) => i.sentence),
+    },
+  };
 }
 
 /** Engine runs a plan gets: one more after a run cut short (a killed or restarted worker). */
@@ -54,7 +100,7 @@ export async function runPlanJob(db: Db, log: Logger, planId: string): Promise<v
             },
             await previousResult(db, plan.replanState?.previousPlanId ?? null),
           )
-        : await runInPool({ kind: 'plan', scenario: parsed.scenario });
+        : await planNight(db, log, plan, parsed.scenario);
       await db.update(plans).set({ status: 'done', stage: 'Done', result }).where(eq(plans.id, planId));
       log.info({ planId, ms: result.solveMs, status: result.status, attempt: plan.attempts }, 'plan generated');
     } catch (err) {

@@ -29,7 +29,7 @@ const LOCAL = "yyyy-MM-dd'T'HH:mm";
  */
 export async function buildScenarioBase(
   db: Db,
-  caller: AuthUser,
+  caller: Pick<AuthUser, 'organisationId'>,
   depotId: string,
   start: string,
   end: string,
