@@ -84,6 +84,8 @@ export {
   underTarget,
   heldAtTarget,
   shiftScenario,
+  targetOutcome,
+  tradeSentence,
   planUnderTarget,
   type PeriodNight,
   type PeriodTarget,

@@ -297,7 +297,11 @@ function bindingOf(
  * whose peaks so far are the period's). Solved with HiGHS; the marginal value of each target by
  * re-solving with the peak held one kW above and one kW below.
  */
-export function solvePeriodTarget(nights: PeriodNight[], solver: Solver): PeriodTarget {
+export function solvePeriodTarget(
+  nights: PeriodNight[],
+  solver: Solver,
+  options: { marginal?: boolean } = {},
+): PeriodTarget {
   if (nights.length === 0) throw new Error('a period target needs at least one night');
   const currency = nights[0]!.scenario.tariff.currency;
   const pm = buildPeriodModel(nights);
@@ -318,7 +322,7 @@ export function solvePeriodTarget(nights: PeriodNight[], solver: Solver): Period
     });
     // Marginal values: the same LP with one peak held 1 kW above, then 1 kW below, the target.
     const marginal: TargetMarginal[] = [];
-    for (const s of pm.shared) {
+    for (const s of options.marginal === false ? [] : pm.shared) {
       const kw = Math.max(s.lower, result.x[s.col]!);
       const at = (v: number) => {
         live.setColBounds([s.col], [v], [v]);
@@ -427,18 +431,59 @@ export interface PlanUnderTarget {
 
 const LOCAL = "yyyy-MM-dd'T'HH:mm";
 
-/** The plan's peak per target name ('facility' and each demand period). */
-function planPeaks(problem: Problem, plan: Plan): Map<string, number> {
-  const out = new Map<string, number>([['facility', 0]]);
-  plan.slots.forEach((s, t) => {
-    out.set('facility', Math.max(out.get('facility')!, s.loadKw));
-    const k = problem.slots[t]!.period;
+/**
+ * A night's peaks against the targets, from its site load per slot (slots matched to the
+ * scenario's by start time, so a re-plan's whole night can be passed): each target's peak, and
+ * the targets it goes above.
+ */
+export function targetOutcome(
+  scenario: Scenario,
+  slots: readonly { start: string; loadKw: number }[],
+  targets: readonly DemandTarget[],
+): { peaks: PlanUnderTarget['peaks']; above: TargetTrade['above'] } {
+  const problem = prepareProblem(scenario);
+  const periodAt = new Map(problem.slots.map((s) => [s.startMs, s.period]));
+  const peakOf = new Map<string, number>([['facility', 0]]);
+  for (const s of slots) {
+    peakOf.set('facility', Math.max(peakOf.get('facility')!, s.loadKw));
+    const k = periodAt.get(Date.parse(s.start)) ?? -1;
     if (k >= 0) {
       const name = problem.tariff.periods[k]!.name;
-      out.set(name, Math.max(out.get(name) ?? 0, s.loadKw));
+      peakOf.set(name, Math.max(peakOf.get(name) ?? 0, s.loadKw));
     }
+  }
+  const above: TargetTrade['above'] = [];
+  const peaks = targets.map((t) => {
+    const kw = peakOf.get(t.name) ?? 0;
+    if (kw > t.kw + 0.05) above.push({ name: t.name, kw: round(kw - t.kw, 2), rate: t.rate });
+    return { name: t.name, kw: round(kw, 2), targetKw: t.kw };
   });
-  return out;
+  return { peaks, above };
+}
+
+/**
+ * The trade in words: "Raising the target by 20 kW costs $150.00 this month (20 kW x $7.50/kW)
+ * and keeps bus 207 from being 12 kWh short." (or "and saves $X of energy tonight"; neither
+ * known: the cost alone).
+ */
+export function tradeSentence(
+  above: TargetTrade['above'],
+  keepsServed: TargetTrade['keepsServed'],
+  energySaved: number | null,
+  currency: string,
+): string {
+  const cost = above.reduce((a, x) => a + x.kw * x.rate, 0);
+  const parts = above.map(
+    (x) => `${groupDigits(x.kw, 1)} kW x ${money(x.rate, currency)}/kW${x.name === 'facility' ? '' : ` ${x.name}`}`,
+  );
+  const kw = Math.max(...above.map((x) => x.kw));
+  const head = `Raising the target by ${groupDigits(kw, 1)} kW costs ${money(cost, currency)} this month (${parts.join(' + ')})`;
+  if (keepsServed.length) {
+    const list = keepsServed.map((b) => `bus ${b.bus} from being ${groupDigits(b.kwh, 1)} kWh short`);
+    return `${head} and keeps ${list.length > 1 ? `${list.slice(0, -1).join(', ')} and ${list.at(-1)}` : list[0]}.`;
+  }
+  if (energySaved !== null) return `${head} and saves ${money(Math.max(0, energySaved), currency)} of energy tonight.`;
+  return `${head}.`;
 }
 
 /** The scenario with the site limit held at the targets (a limit window per period interval). */
@@ -494,39 +539,26 @@ export async function planUnderTarget(
 ): Promise<PlanUnderTarget> {
   const floor = underTarget(scenario, targets);
   const plan = await planScenario(floor, options);
-  const problem = prepareProblem(floor);
-  const peaks = planPeaks(problem, plan);
-  const above: TargetTrade['above'] = [];
-  const rows = targets.map((t) => {
-    const kw = peaks.get(t.name) ?? 0;
-    if (kw > t.kw + 0.05) above.push({ name: t.name, kw: round(kw - t.kw, 2), rate: t.rate });
-    return { name: t.name, kw: round(kw, 2), targetKw: t.kw };
-  });
-  if (above.length === 0) return { plan, peaks: rows, trade: null };
+  const { peaks, above } = targetOutcome(floor, plan.slots, targets);
+  if (above.length === 0) return { plan, peaks, trade: null };
   const held = await planScenario(heldAtTarget(floor, targets), options);
   const keepsServed: TargetTrade['keepsServed'] = [];
   held.buses.forEach((b, i) => {
     const more = b.shortfallKwh - (plan.buses[i]?.shortfallKwh ?? 0);
     if (more > 0.05) keepsServed.push({ bus: b.id, kwh: round(more, 1) });
   });
-  const currency = scenario.tariff.currency;
   const cost = above.reduce((a, x) => a + x.kw * x.rate, 0);
   const energySaved = held.cost.energy - plan.cost.energy;
-  const parts = above.map(
-    (x) => `${groupDigits(x.kw, 1)} kW x ${money(x.rate, currency)}/kW${x.name === 'facility' ? '' : ` ${x.name}`}`,
-  );
-  const kw = Math.max(...above.map((x) => x.kw));
-  let sentence = `Raising the target by ${groupDigits(kw, 1)} kW costs ${money(cost, currency)} this month (${parts.join(' + ')})`;
-  if (keepsServed.length) {
-    const list = keepsServed.map((b) => `bus ${b.bus} from being ${groupDigits(b.kwh, 1)} kWh short`);
-    sentence += ` and keeps ${list.length > 1 ? `${list.slice(0, -1).join(', ')} and ${list.at(-1)}` : list[0]}.`;
-  } else {
-    sentence += ` and saves ${money(Math.max(0, energySaved), currency)} of energy tonight.`;
-  }
   return {
     plan,
-    peaks: rows,
-    trade: { above, cost: round(cost, 2), keepsServed, energySaved: round(energySaved, 2), sentence },
+    peaks,
+    trade: {
+      above,
+      cost: round(cost, 2),
+      keepsServed,
+      energySaved: round(energySaved, 2),
+      sentence: tradeSentence(above, keepsServed, energySaved, scenario.tariff.currency),
+    },
   };
 }
 

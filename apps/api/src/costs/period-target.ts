@@ -153,15 +153,15 @@ const solved = new Map<string, Promise<PeriodTarget>>();
 const MAX_SOLVED = 100;
 
 /** Solves the period LP in the engine's thread, once per distinct set of nights. */
-export function solveNights(nights: PeriodNight[]): Promise<PeriodTarget> {
-  const key = createHash('sha256').update(JSON.stringify(nights)).digest('hex');
+export function solveNights(nights: PeriodNight[], marginal = true): Promise<PeriodTarget> {
+  const key = `${marginal}|${createHash('sha256').update(JSON.stringify(nights)).digest('hex')}`;
   const known = solved.get(key);
   if (known) {
     solved.delete(key);
     solved.set(key, known);
     return known;
   }
-  const pending = runInPool({ kind: 'period-target', nights });
+  const pending = runInPool({ kind: 'period-target', nights, marginal });
   solved.set(key, pending);
   pending.catch(() => solved.delete(key));
   while (solved.size > MAX_SOLVED) solved.delete(solved.keys().next().value!);
@@ -206,10 +206,14 @@ export async function periodTargetFrom(
   depotId: string,
   fromDate: string,
   own?: { date: string; scenario: ScenarioInput | Scenario },
+  options: { marginal?: boolean } = {},
 ): Promise<{ target: PeriodTarget; view: PeriodTargetView } | null> {
   const { nights } = await periodNightsOf(db, caller, depotId, fromDate, own);
   if (!nights.length) return null;
-  const target = await solveNights(nights.map(({ label: l, scenario, basis }) => ({ label: l, scenario, basis })));
+  const target = await solveNights(
+    nights.map(({ label: l, scenario, basis }) => ({ label: l, scenario, basis })),
+    options.marginal ?? true,
+  );
   if (!target.targets.length) return null;
   return { target, view: targetView(target, nights) };
 }

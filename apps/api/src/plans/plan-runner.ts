@@ -1,6 +1,13 @@
 import { and, eq, inArray, sql } from 'drizzle-orm';
 import type { Logger } from 'pino';
-import { parseScenario, type Scenario } from '@nightyard/scheduling';
+import {
+  parseScenario,
+  targetOutcome,
+  tradeSentence,
+  underTarget,
+  type PlanUnderTarget,
+  type Scenario,
+} from '@nightyard/scheduling';
 import { periodTargetFrom } from '../costs/period-target';
 import type { Db } from '../db/client';
 import { plans } from '../db/schema';
@@ -26,35 +33,67 @@ async function planNight(
   log: Logger,
   plan: typeof plans.$inferSelect,
   scenario: Scenario,
+  from: string | undefined,
 ): Promise<PlanResult> {
-  if (plan.kind === 'what-if') return runInPool({ kind: 'plan', scenario });
+  const cutOff = async (s: Scenario) =>
+    planFromCutOff(
+      s,
+      {
+        from: from!,
+        previousPlanId: plan.replanState?.previousPlanId ?? null,
+        plugged: plan.replanState?.plugged ?? {},
+      },
+      await previousResult(db, plan.replanState?.previousPlanId ?? null),
+    );
+  const plain = () => (from ? cutOff(scenario) : runInPool({ kind: 'plan', scenario }));
+  if (plan.kind === 'what-if') return plain();
   let target: Awaited<ReturnType<typeof periodTargetFrom>> = null;
   try {
-    target = await periodTargetFrom(db, { organisationId: plan.organisationId }, plan.depotId, plan.serviceDate, {
-      date: plan.serviceDate,
-      scenario,
-    });
+    target = await periodTargetFrom(
+      db,
+      { organisationId: plan.organisationId },
+      plan.depotId,
+      plan.serviceDate,
+      { date: plan.serviceDate, scenario },
+      { marginal: false },
+    );
   } catch (err) {
     if (isDatabaseUnavailable(err)) throw err;
     log.warn({ err, planId: plan.id }, 'no demand target: the night is planned on the peaks so far');
   }
-  if (!target) return runInPool({ kind: 'plan', scenario });
-  const {
-    plan: result,
-    peaks,
-    trade,
-  } = await runInPool({
-    kind: 'plan-under-target',
-    scenario,
-    targets: target.target.targets,
-  });
-  const aboveKw = trade ? Math.max(...trade.above.map((a) => a.kw)) : 0;
+  if (!target) return plain();
+  const targets = target.target.targets;
+  let result: PlanResult;
+  let outcome: Pick<PlanUnderTarget, 'peaks' | 'trade'>;
+  if (from) {
+    // A night under way: re-planned from its cut-off under the target; the trade is its cost.
+    const floor = underTarget(scenario, targets);
+    result = await cutOff(floor);
+    const { peaks, above } = targetOutcome(floor, result.slots, targets);
+    outcome = {
+      peaks,
+      trade: above.length
+        ? {
+            above,
+            cost: Math.round(above.reduce((a, x) => a + x.kw * x.rate, 0) * 100) / 100,
+            keepsServed: [],
+            energySaved: 0,
+            sentence: tradeSentence(above, [], null, scenario.tariff.currency),
+          }
+        : null,
+    };
+  } else {
+    const under = await runInPool({ kind: 'plan-under-target', scenario, targets });
+    result = under.plan;
+    outcome = under;
+  }
+  const aboveKw = outcome.trade ? Math.max(...outcome.trade.above.map((a) => a.kw)) : 0;
   return {
     ...result,
     target: {
-      peaks,
+      peaks: outcome.peaks,
       aboveKw,
-      trade,
+      trade: outcome.trade,
       binding: target.view.binding?.sentence ?? null,
       impossible: target.view.impossible.map((i) => i.sentence),
     },
@@ -90,17 +129,7 @@ export async function runPlanJob(db: Db, log: Logger, planId: string): Promise<v
         );
       const from = plan.replanState?.from;
       // The engine runs in a worker thread: the API keeps answering while it solves.
-      const result = from
-        ? await planFromCutOff(
-            parsed.scenario,
-            {
-              from,
-              previousPlanId: plan.replanState?.previousPlanId ?? null,
-              plugged: plan.replanState?.plugged ?? {},
-            },
-            await previousResult(db, plan.replanState?.previousPlanId ?? null),
-          )
-        : await planNight(db, log, plan, parsed.scenario);
+      const result = await planNight(db, log, plan, parsed.scenario, from);
       await db.update(plans).set({ status: 'done', stage: 'Done', result }).where(eq(plans.id, planId));
       log.info({ planId, ms: result.solveMs, status: result.status, attempt: plan.attempts }, 'plan generated');
     } catch (err) {

@@ -38,7 +38,7 @@ import { MAX_RUNS_CSV_ROWS, formatCount } from '../http/limits';
 export type PoolTask =
   | { kind: 'warm' }
   | { kind: 'plan'; scenario: Scenario }
-  | { kind: 'period-target'; nights: PeriodNight[] }
+  | { kind: 'period-target'; nights: PeriodNight[]; marginal: boolean }
   | { kind: 'plan-under-target'; scenario: Scenario; targets: DemandTarget[] }
   | { kind: 'replan'; scenario: Scenario; state: ReplanState }
   | { kind: 'runs-csv'; text: string; date: string }
@@ -129,7 +129,7 @@ async function perform(task: PoolTask): Promise<unknown> {
       return planScenario(task.scenario);
     case 'period-target':
       yieldToRequests();
-      return solvePeriodTarget(task.nights, await loadSolver());
+      return solvePeriodTarget(task.nights, await loadSolver(), { marginal: task.marginal });
     case 'plan-under-target':
       yieldToRequests();
       return planUnderTarget(task.scenario, task.targets);
