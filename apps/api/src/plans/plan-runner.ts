@@ -49,14 +49,10 @@ async function planNight(
   if (plan.kind === 'what-if') return plain();
   let target: Awaited<ReturnType<typeof periodTargetFrom>> = null;
   try {
-    target = await periodTargetFrom(
-      db,
-      { organisationId: plan.organisationId },
-      plan.depotId,
-      plan.serviceDate,
-      { date: plan.serviceDate, scenario },
-      { marginal: false },
-    );
+    // A generated plan shares the target the costs month shows (the nights from their runs, solved
+    // once); a revision or a night under way brings its own scenario (the yard's reports) into it.
+    const own = from || plan.kind === 'revision' ? { date: plan.serviceDate, scenario } : undefined;
+    target = await periodTargetFrom(db, { organisationId: plan.organisationId }, plan.depotId, plan.serviceDate, own);
   } catch (err) {
     if (isDatabaseUnavailable(err)) throw err;
     log.warn({ err, planId: plan.id }, 'no demand target: the night is planned on the peaks so far');
