@@ -563,7 +563,7 @@ export async function monthCosts(
     base = await pending;
   }
   const soFar = soFarOf(base, depot, period, now.getTime());
-  const target = await monthTargetOf(db, caller, depot, period, now, version);
+  const target = await monthTargetOf(db, caller, depot, period, now, version, soFar.peaks);
   const withoutPlan = serviceDays.filter((d) => !base.plannedDates.has(d)).length;
   // The same inputs give the same answer: sent again as the bytes it was, not built, checked and
   // written out once more (finance and Tonight's cards ask for it on every page load).
@@ -649,18 +649,24 @@ async function monthTargetOf(
   period: Period,
   now: Date,
   version: string | undefined,
+  peaksSoFar: Peaks,
 ): Promise<PeriodTargetView | null> {
   const local = DateTime.fromJSDate(now, { zone: depot.timezone });
   const tonight = (local.hour < 12 ? local.minus({ days: 1 }) : local).startOf('day');
   if (tonight >= period.end) return null;
   const from = (tonight < period.start ? period.start : tonight).toISODate()!;
   const key = `${depot.id}|${period.start.toISODate()}`;
-  const stamp = `${version ?? ''}|${from}|${depot.serviceLimitKw}|${depot.otherLoadKw.join(',')}`;
+  // The month's peaks so far (metered, entered, planned and forecast intervals passed) are the floor.
+  const floor = {
+    facility: peaksSoFar.facility.kw,
+    periods: Object.fromEntries(peaksSoFar.periods.map((p) => [p.name, p.kw])),
+  };
+  const stamp = `${version ?? ''}|${from}|${depot.serviceLimitKw}|${depot.otherLoadKw.join(',')}|${JSON.stringify(floor)}`;
   const kept = version ? monthTargets.get(key) : undefined;
   if (kept && kept.stamp === stamp) return kept.target;
   let target: PeriodTargetView | null = null;
   try {
-    target = (await periodTargetFrom(db, caller, depot.id, from))?.view ?? null;
+    target = (await periodTargetFrom(db, caller, depot.id, from, undefined, { floor }))?.view ?? null;
   } catch (err) {
     if (!(err instanceof DomainError)) throw err;
   }

@@ -53,6 +53,8 @@ describe('billing-period demand target', () => {
     const t = m.target;
     expect(t).not.toBeNull();
     expect(t.facilityKw).toBeGreaterThan(20);
+    // Never below what the period has already set: demand up to there is billed anyway.
+    expect(t.facilityKw).toBeGreaterThanOrEqual(m.peaks.facility.kw - 1e-6);
     expect(t.targets.map((x: { name: string }) => x.name)).toEqual(['facility', 'on-peak']);
     expect(t.nights[0]).toEqual({ date: '2026-12-14', basis: 'runs' });
     // Later Mondays and Tuesdays are forecast from the entered ones; weekends have no night.

@@ -5,6 +5,7 @@ import type { PeriodTargetView } from '@nightyard/contracts';
 import {
   parseScenario,
   peaksOf,
+  ratePlanPeriodAt,
   shiftScenario,
   type PeriodNight,
   type PeriodTarget,
@@ -12,7 +13,7 @@ import {
   type ScenarioInput,
 } from '@nightyard/scheduling';
 import type { Db } from '../db/client';
-import { meterIntervals, runs } from '../db/schema';
+import { meterIntervals, plans, runs } from '../db/schema';
 import { DomainError } from '../http/errors';
 import type { AuthUser } from '../auth/auth-user';
 import { depotOf } from '../depots/depot-access';
@@ -29,6 +30,12 @@ import { billingPeriodOf, ratePlanOn } from './billing-period';
 // change to any input (runs, a report, meter data, limits, the rate plan) gives a fresh target.
 
 type Caller = Pick<AuthUser, 'organisationId'>;
+
+/** Peaks the period has already set, by name ('facility' and each period): the target's floor. */
+export interface PeaksFloor {
+  facility: number;
+  periods: Record<string, number>;
+}
 
 export interface PeriodNights {
   nights: (PeriodNight & { date: string })[];
@@ -58,6 +65,7 @@ export async function periodNightsOf(
   depotId: string,
   fromDate: string,
   own?: { date: string; scenario: ScenarioInput | Scenario },
+  floor?: PeaksFloor,
 ): Promise<PeriodNights> {
   const depot = await depotOf(db, caller, depotId);
   const zone = depot.timezone;
@@ -106,6 +114,36 @@ export async function periodNightsOf(
     }));
   });
   const measured = intervals.length ? peaksOf(rate.definition, intervals, { zone, intervalMinutes: 15 }) : null;
+  // The published plans of the period's nights before this one set peaks too (where not metered).
+  const earlier = await db
+    .select({ result: plans.result })
+    .from(plans)
+    .where(
+      and(
+        eq(plans.depotId, depotId),
+        eq(plans.state, 'published'),
+        gte(plans.serviceDate, period.start.minus({ days: 1 }).toISODate()!),
+        lt(plans.serviceDate, fromDate),
+      ),
+    );
+  const startMs = period.start.toMillis();
+  const fromMs = DateTime.fromISO(fromDate, { zone }).set({ hour: 12 }).toMillis();
+  const set: PeaksFloor = { facility: floor?.facility ?? 0, periods: { ...(floor?.periods ?? {}) } };
+  if (measured) {
+    set.facility = Math.max(set.facility, measured.facility.kw);
+    for (const [name, p] of Object.entries(measured.periods))
+      set.periods[name] = Math.max(set.periods[name] ?? 0, p.kw);
+  }
+  for (const e of earlier) {
+    for (const slot of e.result?.slots ?? []) {
+      const t = Date.parse(slot.start);
+      if (t < startMs || t >= fromMs) continue;
+      set.facility = Math.max(set.facility, slot.loadKw);
+      const at = ratePlanPeriodAt(rate.definition, DateTime.fromMillis(t, { zone }));
+      if (!at.offPeak && at.demandCharge > 0)
+        set.periods[at.period] = Math.max(set.periods[at.period] ?? 0, slot.loadKw);
+    }
+  }
 
   const nights: PeriodNights['nights'] = [];
   for (let d = DateTime.fromISO(fromDate, { zone }); d < period.end; d = d.plus({ days: 1 })) {
@@ -135,15 +173,13 @@ export async function periodNightsOf(
     const parsed = parseScenario(input);
     if (!parsed.ok) continue;
     const scenario = parsed.scenario;
-    if (measured) {
-      const peaks = { ...scenario.tariff.peaksSoFarKw };
-      peaks['facility'] = Math.max(peaks['facility'] ?? 0, measured.facility.kw);
-      for (const p of scenario.tariff.periods) {
-        const kw = measured.periods[p.name]?.kw;
-        if (kw !== undefined) peaks[p.name] = Math.max(peaks[p.name] ?? 0, kw);
-      }
-      scenario.tariff.peaksSoFarKw = peaks;
+    const peaks = { ...scenario.tariff.peaksSoFarKw };
+    peaks['facility'] = Math.max(peaks['facility'] ?? 0, set.facility);
+    for (const p of scenario.tariff.periods) {
+      const kw = set.periods[p.name];
+      if (kw !== undefined) peaks[p.name] = Math.max(peaks[p.name] ?? 0, kw);
     }
+    scenario.tariff.peaksSoFarKw = peaks;
     nights.push({ date, label: label(date, zone), scenario, basis });
   }
   return { nights, periodStart, periodEnd };
@@ -206,9 +242,9 @@ export async function periodTargetFrom(
   depotId: string,
   fromDate: string,
   own?: { date: string; scenario: ScenarioInput | Scenario },
-  options: { marginal?: boolean } = {},
+  options: { marginal?: boolean; floor?: PeaksFloor } = {},
 ): Promise<{ target: PeriodTarget; view: PeriodTargetView } | null> {
-  const { nights } = await periodNightsOf(db, caller, depotId, fromDate, own);
+  const { nights } = await periodNightsOf(db, caller, depotId, fromDate, own, options.floor);
   if (!nights.length) return null;
   const target = await solveNights(
     nights.map(({ label: l, scenario, basis }) => ({ label: l, scenario, basis })),
