@@ -21,7 +21,7 @@ function nightsOf(buses: number): PeriodNight[] {
 const solver = await loadSolver();
 console.log(`\nBilling-period demand target: ${NIGHTS} nights, one LP (facility + on-peak peaks shared)`);
 console.log(
-  'buses/night | columns | rows | iterations | build+solve s | with marginals s | target kW (facility / on-peak)',
+  'buses/night | columns | rows | iterations | build+solve s (HiGHS s) | with marginals s | target kW (facility / on-peak)',
 );
 for (const size of SIZES) {
   const nights = nightsOf(size);
@@ -32,7 +32,7 @@ for (const size of SIZES) {
   const t = solvePeriodTarget(nights, solver);
   const s = (performance.now() - t1) / 1000;
   console.log(
-    `${String(size).padStart(11)} | ${String(t.stats.columns).padStart(7)} | ${String(t.stats.rows).padStart(6)} | ${String(bare.stats.iterations).padStart(10)} | ${s0.toFixed(2).padStart(13)} | ${s.toFixed(2).padStart(16)} | ${t.targets.map((x) => x.kw.toFixed(1)).join(' / ')}`,
+    `${String(size).padStart(11)} | ${String(t.stats.columns).padStart(7)} | ${String(t.stats.rows).padStart(6)} | ${String(bare.stats.iterations).padStart(10)} | ${`${s0.toFixed(2)} (${(bare.stats.ms / 1000).toFixed(2)})`.padStart(24)} | ${s.toFixed(2).padStart(16)} | ${t.targets.map((x) => x.kw.toFixed(1)).join(' / ')}`,
   );
   console.log(`            binding: ${t.binding?.sentence ?? 'none (the peaks so far hold)'}`);
 }
