@@ -99,7 +99,8 @@ export const planResultSchema = z.looseObject({
    */
   target: z
     .object({
-      peaks: z.array(z.object({ name: z.string(), kw: z.number(), targetKw: z.number() })),
+      /** Per target ('facility' or a demand period): the plan's peak, the target, its demand charge per kW. */
+      peaks: z.array(z.object({ name: z.string(), kw: z.number(), targetKw: z.number(), rate: z.number().optional() })),
       aboveKw: z.number(),
       trade: z
         .object({

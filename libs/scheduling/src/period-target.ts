@@ -423,8 +423,8 @@ export interface TargetTrade {
 
 export interface PlanUnderTarget {
   plan: Plan;
-  /** The plan's peaks against the targets. */
-  peaks: { name: string; kw: number; targetKw: number }[];
+  /** The plan's peaks against the targets (with each target's demand charge per kW). */
+  peaks: { name: string; kw: number; targetKw: number; rate: number }[];
   /** Null when the plan stays within every target. */
   trade: TargetTrade | null;
 }
@@ -456,7 +456,7 @@ export function targetOutcome(
   const peaks = targets.map((t) => {
     const kw = peakOf.get(t.name) ?? 0;
     if (kw > t.kw + 0.05) above.push({ name: t.name, kw: round(kw - t.kw, 2), rate: t.rate });
-    return { name: t.name, kw: round(kw, 2), targetKw: t.kw };
+    return { name: t.name, kw: round(kw, 2), targetKw: t.kw, rate: t.rate };
   });
   return { peaks, above };
 }

@@ -15,6 +15,7 @@ import type { Db } from '../db/client';
 import { billingPeaks, buses, meterIntervals, plans, runs } from '../db/schema';
 import { DomainError, notFound } from '../http/errors';
 import { periodTargetFrom } from './period-target';
+import { isDatabaseUnavailable } from '../db/unavailable';
 import { markChecked, markCheckedText } from '../http/checked-answer';
 import type { AuthUser } from '../auth/auth-user';
 import { depotOf } from '../depots/depot-access';
@@ -668,7 +669,10 @@ async function monthTargetOf(
   try {
     target = (await periodTargetFrom(db, caller, depot.id, from, undefined, { floor }))?.view ?? null;
   } catch (err) {
-    if (!(err instanceof DomainError)) throw err;
+    // No target (no rate plan for a night, an engine failure) leaves the month as it was; only a
+    // database gone away is the request's failure.
+    if (isDatabaseUnavailable(err)) throw err;
+    if (!(err instanceof DomainError)) return null;
   }
   if (version) {
     monthTargets.delete(key);

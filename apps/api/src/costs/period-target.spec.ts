@@ -3,7 +3,7 @@ import { beforeAll, describe, expect, it } from 'vitest';
 import { depots } from '../db/schema';
 import { createDepot } from '../testing/depot-fixture';
 import { addBuses, dayRuns } from '../testing/fleet-fixture';
-import { generatedPlan } from '../testing/plan-fixture';
+import { generatedPlan, publishedPlan } from '../testing/plan-fixture';
 import { createOrganisation, createTestApp, signInAgain, type TestUser } from '../testing/test-app';
 import { periodTargetOf } from './period-target';
 
@@ -12,10 +12,11 @@ import { periodTargetOf } from './period-target';
 // limit cannot serve is explained. The LP itself is checked against a brute force in the engine
 // (libs/scheduling/src/period-target.spec.ts).
 
-const now = new Date('2026-12-14T13:00:00-06:00');
+let now = new Date('2026-12-14T13:00:00-06:00');
 const app = createTestApp({ clock: () => now });
 let sup: TestUser;
 let fin: TestUser;
+let yard: TestUser;
 let depotId: string;
 let organisationId: string;
 const as = (u: TestUser) => ({ Authorization: `Bearer ${u.token}` });
@@ -35,8 +36,8 @@ const month = async () =>
     .body;
 
 beforeAll(async () => {
-  const org = await createOrganisation(app, { sup: ['supervisor'], fin: ['finance'] });
-  ({ sup, fin } = org.users as Record<string, TestUser>);
+  const org = await createOrganisation(app, { sup: ['supervisor'], fin: ['finance'], yard: ['yard'] });
+  ({ sup, fin, yard } = org.users as Record<string, TestUser>);
   organisationId = org.organisationId;
   depotId = (await createDepot(app.db, organisationId)).depot.id;
   await addBuses(app.db, organisationId, depotId, NUMBERS);
@@ -44,7 +45,7 @@ beforeAll(async () => {
   await enterDay('2026-12-14', 0);
   await enterDay('2026-12-15', 0);
   await enterDay('2026-12-16', 0);
-  await signInAgain(app, sup, fin);
+  await signInAgain(app, sup, fin, yard);
 });
 
 describe('billing-period demand target', () => {
@@ -121,5 +122,33 @@ describe('billing-period demand target', () => {
     ).body;
     expect(m.period.start).toBe('2026-11-01');
     expect(m.target).toBeNull();
+  });
+
+  it("a yard report's revision keeps the night under the target its plan was made under", async () => {
+    const planId = await publishedPlan(app, sup, depotId, '2026-12-15');
+    const published = (await app.request().get(`/api/plans/${planId}`).set(as(sup)).expect(200)).body.plan.result;
+    expect(published.target).toBeDefined();
+    now = new Date('2026-12-15T23:00:00-06:00');
+    try {
+      await signInAgain(app, yard, sup);
+      const res = await app
+        .request()
+        .post(`/api/depots/${depotId}/tonight/reports`)
+        .set(as(yard))
+        .send({ planId, kind: 'charger_out', charger: 'C', reason: 'Cable damaged' })
+        .expect(201);
+      const revision = (await app.request().get(`/api/plans/${res.body.revision.id}`).set(as(sup)).expect(200)).body
+        .plan.result;
+      const target = revision.target;
+      expect(target.peaks.map((p: { targetKw: number }) => p.targetKw)).toEqual(
+        published.target.peaks.map((p: { targetKw: number }) => p.targetKw),
+      );
+      expect(target.binding).toBe(published.target.binding);
+      if (target.trade === null) for (const p of target.peaks) expect(p.kw).toBeLessThanOrEqual(p.targetKw + 0.05);
+      else expect(target.trade.sentence).toMatch(/^Raising the target by [\d.,]+ kW costs \$[\d.,]+ this month/);
+    } finally {
+      now = new Date('2026-12-14T13:00:00-06:00');
+      await signInAgain(app, sup, fin, yard);
+    }
   });
 });

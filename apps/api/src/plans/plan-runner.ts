@@ -1,13 +1,7 @@
 import { and, eq, inArray, sql } from 'drizzle-orm';
 import type { Logger } from 'pino';
-import {
-  parseScenario,
-  targetOutcome,
-  tradeSentence,
-  underTarget,
-  type PlanUnderTarget,
-  type Scenario,
-} from '@nightyard/scheduling';
+import { parseScenario, underTarget, type Scenario } from '@nightyard/scheduling';
+import { cutOffTarget } from './plan-target';
 import { periodTargetFrom } from '../costs/period-target';
 import type { Db } from '../db/client';
 import { plans } from '../db/schema';
@@ -59,41 +53,19 @@ async function planNight(
   }
   if (!target) return plain();
   const targets = target.target.targets;
-  let result: PlanResult;
-  let outcome: Pick<PlanUnderTarget, 'peaks' | 'trade'>;
+  const why = {
+    binding: target.view.binding?.sentence ?? null,
+    impossible: target.view.impossible.map((i) => i.sentence),
+  };
   if (from) {
     // A night under way: re-planned from its cut-off under the target; the trade is its cost.
     const floor = underTarget(scenario, targets);
-    result = await cutOff(floor);
-    const { peaks, above } = targetOutcome(floor, result.slots, targets);
-    outcome = {
-      peaks,
-      trade: above.length
-        ? {
-            above,
-            cost: Math.round(above.reduce((a, x) => a + x.kw * x.rate, 0) * 100) / 100,
-            keepsServed: [],
-            energySaved: 0,
-            sentence: tradeSentence(above, [], null, scenario.tariff.currency),
-          }
-        : null,
-    };
-  } else {
-    const under = await runInPool({ kind: 'plan-under-target', scenario, targets });
-    result = under.plan;
-    outcome = under;
+    const result = await cutOff(floor);
+    return { ...result, target: cutOffTarget(floor, result.slots, targets, why) };
   }
-  const aboveKw = outcome.trade ? Math.max(...outcome.trade.above.map((a) => a.kw)) : 0;
-  return {
-    ...result,
-    target: {
-      peaks: outcome.peaks,
-      aboveKw,
-      trade: outcome.trade,
-      binding: target.view.binding?.sentence ?? null,
-      impossible: target.view.impossible.map((i) => i.sentence),
-    },
-  };
+  const { plan: result, peaks, trade } = await runInPool({ kind: 'plan-under-target', scenario, targets });
+  const aboveKw = trade ? Math.max(...trade.above.map((a) => a.kw)) : 0;
+  return { ...result, target: { peaks, aboveKw, trade, ...why } };
 }
 
 /** Engine runs a plan gets: one more after a run cut short (a killed or restarted worker). */
