@@ -5,7 +5,7 @@ import { createDepot } from '../testing/depot-fixture';
 import { addBuses, dayRuns } from '../testing/fleet-fixture';
 import { generatedPlan, publishedPlan } from '../testing/plan-fixture';
 import { createOrganisation, createTestApp, signInAgain, type TestUser } from '../testing/test-app';
-import { periodTargetOf } from './period-target';
+import { periodTargetOf, planningJobCaller } from './period-target';
 
 // The billing period's demand target through the API: the costs month and the plan review carry
 // it, computed from the data as it is (a heavier night's runs raise it), and a night the service
@@ -74,7 +74,7 @@ describe('billing-period demand target', () => {
     const after = (await month()).target.facilityKw;
     expect(after).toBeGreaterThan(before + 1);
     // The same for the district overview's caller.
-    const direct = await periodTargetOf(app.db, { organisationId }, depotId, now);
+    const direct = await periodTargetOf(app.db, planningJobCaller(organisationId), depotId, now);
     expect(direct!.view.facilityKw).toBe(after);
     await enterDay('2026-12-15', 0);
   });

@@ -29,7 +29,23 @@ import { billingPeriodOf, ratePlanOn } from './billing-period';
 // The same nights give the same target: solved once, then remembered by their content, so a
 // change to any input (runs, a report, meter data, limits, the rate plan) gives a fresh target.
 
-type Caller = Pick<AuthUser, 'organisationId'>;
+type Caller = AuthUser;
+
+/**
+ * The planning job reads the period's nights for the organisation, not for a person: it may read
+ * every depot of it (as an administrator would), and nothing of another organisation.
+ */
+export function planningJobCaller(organisationId: string): AuthUser {
+  const caller = {
+    id: '',
+    organisationId,
+    email: '',
+    name: 'Planning job',
+    roles: ['admin'],
+    depotIds: [] as string[],
+  };
+  return caller as AuthUser;
+}
 
 /** Peaks the period has already set, by name ('facility' and each period): the target's floor. */
 export interface PeaksFloor {

@@ -29,7 +29,7 @@ const quarter = (t: DateTime, up: boolean) => {
  */
 export async function buildNightScenario(
   db: Db,
-  caller: Pick<AuthUser, 'organisationId'>,
+  caller: AuthUser,
   depotId: string,
   serviceDate: string,
   includeMidday: boolean,

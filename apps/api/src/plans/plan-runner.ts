@@ -2,7 +2,7 @@ import { and, eq, inArray, sql } from 'drizzle-orm';
 import type { Logger } from 'pino';
 import { parseScenario, underTarget, type Scenario } from '@nightyard/scheduling';
 import { cutOffTarget } from './plan-target';
-import { periodTargetFrom } from '../costs/period-target';
+import { periodTargetFrom, planningJobCaller } from '../costs/period-target';
 import type { Db } from '../db/client';
 import { plans } from '../db/schema';
 import { isDatabaseUnavailable } from '../db/unavailable';
@@ -46,7 +46,7 @@ async function planNight(
     // A generated plan shares the target the costs month shows (the nights from their runs, solved
     // once); a revision or a night under way brings its own scenario (the yard's reports) into it.
     const own = from || plan.kind === 'revision' ? { date: plan.serviceDate, scenario } : undefined;
-    target = await periodTargetFrom(db, { organisationId: plan.organisationId }, plan.depotId, plan.serviceDate, own);
+    target = await periodTargetFrom(db, planningJobCaller(plan.organisationId), plan.depotId, plan.serviceDate, own);
   } catch (err) {
     if (isDatabaseUnavailable(err)) throw err;
     log.warn({ err, planId: plan.id }, 'no demand target: the night is planned on the peaks so far');

@@ -29,7 +29,7 @@ const LOCAL = "yyyy-MM-dd'T'HH:mm";
  */
 export async function buildScenarioBase(
   db: Db,
-  caller: Pick<AuthUser, 'organisationId'>,
+  caller: AuthUser,
   depotId: string,
   start: string,
   end: string,
