@@ -61,6 +61,16 @@ test('finance opens the month, sees the savings, exports the nights and reads a 
     await expectAccessible(page);
   });
 
+  await test.step('the demand target over the nights left, with why and what a kW either side is worth', async () => {
+    const target = page.getByRole('region', { name: /^Demand target/ });
+    await expect(target.getByRole('heading', { level: 2 })).toHaveText(/^Demand target [\d,.]+ kW$/);
+    await expect(target.locator('p').filter({ hasText: /^Why:/ })).toContainText(
+      /kWh between pull-in|The peaks so far already cover every night left/,
+    );
+    await expect(target.getByText(/^Each kW above the target saves \$[\d,.]+ of energy this period/)).toBeVisible();
+    await expect(target.getByText(/^Over \d+ nights? left in the period/)).toBeVisible();
+  });
+
   await test.step('the nights table exports as CSV', async () => {
     const nights = page.getByRole('region', { name: 'Nights of the billing period' });
     await expect(nights.getByRole('row')).not.toHaveCount(0);

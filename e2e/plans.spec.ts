@@ -108,6 +108,14 @@ test('a supervisor uploads the runs, generates the night, reviews the short buse
     await expect(rows.nth(i)).toContainText(reasons);
   }
   await expect(rows.nth(2)).toContainText('Leaves with its energy');
+  // The Peak card: the billing period's demand target beside the service limit, and whether the
+  // night stays within it or what going above costs.
+  const peak = page.getByRole('list', { name: 'Plan figures' }).getByRole('listitem').filter({ hasText: 'Peak load' });
+  await expect(peak).toContainText(/Service limit [\d,.]+ kW/);
+  await expect(peak).toContainText(/Demand target [\d,.]+ kW/);
+  await expect(peak).toContainText(
+    /Within the target: this night adds no demand charge to the month|kW above the target\. Raising the target by/,
+  );
   await expectAccessible(page);
 
   // Publish, after the dialog says what publishing means.

@@ -85,6 +85,55 @@ export const emissionsSchema = z.object({
   source: z.string(),
 });
 
+/**
+ * The billing period's demand target: the facility and per-period peaks that minimise the bill of
+ * the nights left in the period (one LP over them all), why it is that number, and what a kW
+ * either side of it is worth. Nights without runs take the latest entered night of their weekday.
+ */
+export const periodTargetSchema = z.object({
+  currency: z.string(),
+  /** The nights it covers: the first is the night it was computed from. */
+  nights: z.array(z.object({ date: z.string(), basis: z.enum(['runs', 'typical-weekday']) })),
+  /** The facility target (kW; null without a facility demand charge) and each demand period's. */
+  facilityKw: z.number().nullable(),
+  targets: z.array(z.object({ name: z.string(), kw: z.number(), peakSoFarKw: z.number(), rate: z.number() })),
+  /** The remaining nights' charging energy and the demand charges above the peaks so far, at the target. */
+  cost: z.object({ energy: z.number(), demand: z.number(), total: z.number() }),
+  /** The night and interval that set the target, in words (null: the peaks so far already cover every night). */
+  binding: z
+    .object({
+      name: z.string(),
+      night: z.string(),
+      at: z.string(),
+      buses: z.number(),
+      needKwh: z.number(),
+      sentence: z.string(),
+    })
+    .nullable(),
+  /** Per target: energy saved by a kW above it, energy added (or kWh left short) by a kW below. */
+  marginal: z.array(
+    z.object({
+      name: z.string(),
+      rate: z.number(),
+      aboveSavesPerKw: z.number(),
+      belowCostsPerKw: z.number().nullable(),
+      belowShortKwhPerKw: z.number(),
+      sentence: z.string(),
+    }),
+  ),
+  /** Nights no target can serve (the runs need more than the service limit allows), explained. */
+  impossible: z.array(
+    z.object({
+      night: z.string(),
+      shortKwh: z.number(),
+      cause: z.enum(['service limit', 'chargers or time at the depot']),
+      sentence: z.string(),
+    }),
+  ),
+  solveMs: z.number(),
+});
+export type PeriodTargetView = z.infer<typeof periodTargetSchema>;
+
 export const monthCostsSchema = z.object({
   currency: z.string(),
   period: z.object({ start: z.string(), end: z.string(), days: z.number() }),
@@ -156,6 +205,8 @@ export const monthCostsSchema = z.object({
     schoolNightsWithoutPlan: z.number(),
   }),
   emissions: emissionsSchema,
+  /** The demand target over the nights left in the period (null: none left, or no demand charge). */
+  target: periodTargetSchema.nullable().default(null),
 });
 export type MonthCosts = z.infer<typeof monthCostsSchema>;
 

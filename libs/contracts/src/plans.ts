@@ -92,6 +92,29 @@ export const planResultSchema = z.looseObject({
       moved: z.object({ buses: z.array(z.string()), reasons: z.array(z.string()) }).optional(),
     })
     .optional(),
+  /**
+   * The billing period's demand target the night was planned under (absent in older plans and in
+   * what-ifs): each target with the plan's peak beside it, by how much the plan goes above it, and
+   * the trade in words when it does.
+   */
+  target: z
+    .object({
+      /** Per target ('facility' or a demand period): the plan's peak, the target, its demand charge per kW. */
+      peaks: z.array(z.object({ name: z.string(), kw: z.number(), targetKw: z.number(), rate: z.number().optional() })),
+      aboveKw: z.number(),
+      trade: z
+        .object({
+          above: z.array(z.object({ name: z.string(), kw: z.number(), rate: z.number() })),
+          cost: z.number(),
+          keepsServed: z.array(z.object({ bus: z.string(), kwh: z.number() })),
+          energySaved: z.number(),
+          sentence: z.string(),
+        })
+        .nullable(),
+      binding: z.string().nullable(),
+      impossible: z.array(z.string()),
+    })
+    .optional(),
   buses: z.array(
     z.object({
       id: z.string(),

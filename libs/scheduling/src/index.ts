@@ -77,3 +77,22 @@ export {
   type ServiceDayTimes,
   type NightAt,
 } from './night/service-night.js';
+/** The billing period's demand target: one LP over the period's remaining nights (see period-target.ts). */
+export {
+  solvePeriodTarget,
+  periodTarget,
+  underTarget,
+  heldAtTarget,
+  shiftScenario,
+  targetOutcome,
+  tradeSentence,
+  planUnderTarget,
+  type PeriodNight,
+  type PeriodTarget,
+  type DemandTarget,
+  type TargetMarginal,
+  type TargetBinding,
+  type TargetImpossible,
+  type TargetTrade,
+  type PlanUnderTarget,
+} from './period-target.js';

@@ -58,6 +58,10 @@ export interface ChargeModel {
   cabinetRow: Int32Array[];
   /** Penalty and tie-break parts are not costs: this is how to strip them from an objective. */
   tieBreakCost: Float64Array;
+  /** Columns of the facility peak D_f and of each period's peak D_k (-1: no demand charge there). */
+  demandCols: { facility: number; periods: number[] };
+  /** Per demand column (same order as demandCols), the row tying it to each slot's demand (-1: none). */
+  demandRows: { facility: Int32Array; periods: Int32Array[] };
 }
 
 class Rows {
@@ -176,29 +180,33 @@ export function buildChargeModel(problem: Problem, options: ModelOptions): Charg
   }
   // Demand: D >= site demand in each slot it covers; only the part above the peak so far costs.
   let offset = 0;
-  const demandVar = (rate: number, peakSoFar: number, slotSet: number[]) => {
-    if (rate <= 0 || slotSet.length === 0) return;
+  const demandRowsOf: Int32Array[] = [];
+  const demandVar = (rate: number, peakSoFar: number, slotSet: number[]): number => {
+    const rowOf = new Int32Array(T).fill(-1);
+    demandRowsOf.push(rowOf);
+    if (rate <= 0 || slotSet.length === 0) return -1;
     let lower = peakSoFar;
     for (const t of slotSet) lower = Math.max(lower, slots[t]!.otherKw);
     const d = cols.add(rate, lower, Infinity);
     tieBreakCost.push(0);
     offset -= rate * peakSoFar;
     for (const t of slotSet) {
-      if (problem.present[t]! > 0) rows.add([loadCol[t]!, d], [1, -1], -Infinity, -slots[t]!.otherKw);
+      if (problem.present[t]! > 0) rowOf[t] = rows.add([loadCol[t]!, d], [1, -1], -Infinity, -slots[t]!.otherKw);
     }
+    return d;
   };
-  demandVar(
+  const facilityDemandCol = demandVar(
     tariff.facilityDemandCharge,
     tariff.facilityPeakSoFarKw,
     slots.map((s) => s.index),
   );
-  tariff.periods.forEach((p, k) => {
+  const periodDemandCols = tariff.periods.map((p, k) =>
     demandVar(
       p.demandCharge,
       p.peakSoFarKw,
       slots.filter((s) => s.period === k).map((s) => s.index),
-    );
-  });
+    ),
+  );
 
   // Departures and ceilings: energy at a departure is the arrival energy, minus earlier runs,
   // plus efficiency x grid energy delivered in this and earlier stays.
@@ -298,7 +306,18 @@ export function buildChargeModel(problem: Problem, options: ModelOptions): Charg
     values: Float64Array.from(rows.values),
     offset,
   };
-  return { lp, options, pCol, loadCol, shortCol, departRow, cabinetRow, tieBreakCost: Float64Array.from(tieBreakCost) };
+  return {
+    lp,
+    options,
+    pCol,
+    loadCol,
+    shortCol,
+    departRow,
+    cabinetRow,
+    tieBreakCost: Float64Array.from(tieBreakCost),
+    demandCols: { facility: facilityDemandCol, periods: periodDemandCols },
+    demandRows: { facility: demandRowsOf[0]!, periods: demandRowsOf.slice(1) },
+  };
 }
 
 /** Grid kW per bus per slot from a solution (tiny solver noise cleared). */

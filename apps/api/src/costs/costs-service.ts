@@ -4,6 +4,7 @@ import {
   monthCostsSchema,
   planResultSchema,
   type MonthCosts,
+  type PeriodTargetView,
   type PlanCosts,
   type PlanResult,
   type RatePlanDefinition,
@@ -12,7 +13,9 @@ import { computeBill, ratePlanPeriodAt, type Bill, type IntervalDemand } from '@
 import type { Pool } from 'pg';
 import type { Db } from '../db/client';
 import { billingPeaks, buses, meterIntervals, plans, runs } from '../db/schema';
-import { notFound } from '../http/errors';
+import { DomainError, notFound } from '../http/errors';
+import { periodTargetFrom } from './period-target';
+import { isDatabaseUnavailable } from '../db/unavailable';
 import { markChecked, markCheckedText } from '../http/checked-answer';
 import type { AuthUser } from '../auth/auth-user';
 import { assertMayOpenDepot, depotOf } from '../depots/depot-access';
@@ -564,6 +567,7 @@ export async function monthCosts(
     base = await pending;
   }
   const soFar = soFarOf(base, depot, period, now.getTime());
+  const target = await monthTargetOf(db, caller, depot, period, now, version, soFar.peaks);
   const withoutPlan = serviceDays.filter((d) => !base.plannedDates.has(d)).length;
   // The same inputs give the same answer: sent again as the bytes it was, not built, checked and
   // written out once more (finance and Tonight's cards ask for it on every page load).
@@ -574,7 +578,8 @@ export async function monthCosts(
     kept.soFar === soFar &&
     kept.miles === miles &&
     kept.mpg === mpg &&
-    kept.withoutPlan === withoutPlan
+    kept.withoutPlan === withoutPlan &&
+    kept.target === target
   ) {
     return markCheckedText(kept.answer, kept.text);
   }
@@ -604,11 +609,12 @@ export async function monthCosts(
       co2KgAvoided: round2(gallons * DIESEL_CO2_KG_PER_GALLON),
       source: EMISSIONS_SOURCE,
     },
+    target,
   } satisfies MonthCosts);
   if (cache) {
     const text = Buffer.from(JSON.stringify(answer));
     monthAnswers.delete(key);
-    monthAnswers.set(key, { base, soFar, miles, mpg, withoutPlan, answer, text });
+    monthAnswers.set(key, { base, soFar, miles, mpg, withoutPlan, target, answer, text });
     while (monthAnswers.size > MAX_MONTH_ANSWERS) monthAnswers.delete(monthAnswers.keys().next().value!);
     return markCheckedText(answer, text);
   }
@@ -624,8 +630,57 @@ const monthAnswers = new Map<
     miles: number;
     mpg: number;
     withoutPlan: number;
+    target: PeriodTargetView | null;
     answer: MonthCosts;
     text: Buffer;
   }
 >();
 const MAX_MONTH_ANSWERS = 200;
+
+/** The last demand target per depot and period, with the inputs' version and night it came from. */
+const monthTargets = new Map<string, { stamp: string; target: PeriodTargetView | null }>();
+
+/**
+ * The period's demand target over its nights left (from the night under way, or from the start of
+ * a period still to come; none for a period past). Remembered while the period's inputs keep
+ * their version; without one (no cache) computed afresh, the period LP itself being remembered
+ * by its nights' content.
+ */
+async function monthTargetOf(
+  db: Db,
+  caller: AuthUser,
+  depot: Depot,
+  period: Period,
+  now: Date,
+  version: string | undefined,
+  peaksSoFar: Peaks,
+): Promise<PeriodTargetView | null> {
+  const local = DateTime.fromJSDate(now, { zone: depot.timezone });
+  const tonight = (local.hour < 12 ? local.minus({ days: 1 }) : local).startOf('day');
+  if (tonight >= period.end) return null;
+  const from = (tonight < period.start ? period.start : tonight).toISODate()!;
+  const key = `${depot.id}|${period.start.toISODate()}`;
+  // The month's peaks so far (metered, entered, planned and forecast intervals passed) are the floor.
+  const floor = {
+    facility: peaksSoFar.facility.kw,
+    periods: Object.fromEntries(peaksSoFar.periods.map((p) => [p.name, p.kw])),
+  };
+  const stamp = `${version ?? ''}|${from}|${depot.serviceLimitKw}|${depot.otherLoadKw.join(',')}|${JSON.stringify(floor)}`;
+  const kept = version ? monthTargets.get(key) : undefined;
+  if (kept && kept.stamp === stamp) return kept.target;
+  let target: PeriodTargetView | null = null;
+  try {
+    target = (await periodTargetFrom(db, caller, depot.id, from, undefined, { floor }))?.view ?? null;
+  } catch (err) {
+    // No target (no rate plan for a night, an engine failure) leaves the month as it was; only a
+    // database gone away is the request's failure.
+    if (isDatabaseUnavailable(err)) throw err;
+    if (!(err instanceof DomainError)) return null;
+  }
+  if (version) {
+    monthTargets.delete(key);
+    monthTargets.set(key, { stamp, target });
+    while (monthTargets.size > MAX_MONTH_ANSWERS) monthTargets.delete(monthTargets.keys().next().value!);
+  }
+  return target;
+}

@@ -1,6 +1,8 @@
 import { and, eq, inArray, sql } from 'drizzle-orm';
 import type { Logger } from 'pino';
-import { parseScenario } from '@nightyard/scheduling';
+import { parseScenario, underTarget, type Scenario } from '@nightyard/scheduling';
+import { cutOffTarget } from './plan-target';
+import { periodTargetFrom, planningJobCaller } from '../costs/period-target';
 import type { Db } from '../db/client';
 import { plans } from '../db/schema';
 import { isDatabaseUnavailable } from '../db/unavailable';
@@ -13,6 +15,57 @@ async function previousResult(db: Db, id: string | null): Promise<PlanResult | n
   if (!id) return null;
   const [row] = await db.select({ result: plans.result }).from(plans).where(eq(plans.id, id));
   return row?.result ? planResultSchema.parse(row.result) : null;
+}
+
+/**
+ * A night planned under the billing period's demand target (generated plans and revisions; a
+ * what-if keeps the depot's peaks so far, so it compares with the plan it came from). The target
+ * is worked out now, from the data as it is, with this night's own scenario in it.
+ */
+async function planNight(
+  db: Db,
+  log: Logger,
+  plan: typeof plans.$inferSelect,
+  scenario: Scenario,
+  from: string | undefined,
+): Promise<PlanResult> {
+  const cutOff = async (s: Scenario) =>
+    planFromCutOff(
+      s,
+      {
+        from: from!,
+        previousPlanId: plan.replanState?.previousPlanId ?? null,
+        plugged: plan.replanState?.plugged ?? {},
+      },
+      await previousResult(db, plan.replanState?.previousPlanId ?? null),
+    );
+  const plain = () => (from ? cutOff(scenario) : runInPool({ kind: 'plan', scenario }));
+  if (plan.kind === 'what-if') return plain();
+  let target: Awaited<ReturnType<typeof periodTargetFrom>> = null;
+  try {
+    // A generated plan shares the target the costs month shows (the nights from their runs, solved
+    // once); a revision or a night under way brings its own scenario (the yard's reports) into it.
+    const own = from || plan.kind === 'revision' ? { date: plan.serviceDate, scenario } : undefined;
+    target = await periodTargetFrom(db, planningJobCaller(plan.organisationId), plan.depotId, plan.serviceDate, own);
+  } catch (err) {
+    if (isDatabaseUnavailable(err)) throw err;
+    log.warn({ err, planId: plan.id }, 'no demand target: the night is planned on the peaks so far');
+  }
+  if (!target) return plain();
+  const targets = target.target.targets;
+  const why = {
+    binding: target.view.binding?.sentence ?? null,
+    impossible: target.view.impossible.map((i) => i.sentence),
+  };
+  if (from) {
+    // A night under way: re-planned from its cut-off under the target; the trade is its cost.
+    const floor = underTarget(scenario, targets);
+    const result = await cutOff(floor);
+    return { ...result, target: cutOffTarget(floor, result.slots, targets, why) };
+  }
+  const { plan: result, peaks, trade } = await runInPool({ kind: 'plan-under-target', scenario, targets });
+  const aboveKw = trade ? Math.max(...trade.above.map((a) => a.kw)) : 0;
+  return { ...result, target: { peaks, aboveKw, trade, ...why } };
 }
 
 /** Engine runs a plan gets: one more after a run cut short (a killed or restarted worker). */
@@ -44,17 +97,7 @@ export async function runPlanJob(db: Db, log: Logger, planId: string): Promise<v
         );
       const from = plan.replanState?.from;
       // The engine runs in a worker thread: the API keeps answering while it solves.
-      const result = from
-        ? await planFromCutOff(
-            parsed.scenario,
-            {
-              from,
-              previousPlanId: plan.replanState?.previousPlanId ?? null,
-              plugged: plan.replanState?.plugged ?? {},
-            },
-            await previousResult(db, plan.replanState?.previousPlanId ?? null),
-          )
-        : await runInPool({ kind: 'plan', scenario: parsed.scenario });
+      const result = await planNight(db, log, plan, parsed.scenario, from);
       await db.update(plans).set({ status: 'done', stage: 'Done', result }).where(eq(plans.id, planId));
       log.info({ planId, ms: result.solveMs, status: result.status, attempt: plan.attempts }, 'plan generated');
     } catch (err) {

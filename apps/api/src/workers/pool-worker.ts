@@ -7,6 +7,12 @@ import {
   loadSolver,
   peaksOf,
   planScenario,
+  planUnderTarget,
+  solvePeriodTarget,
+  type DemandTarget,
+  type PeriodNight,
+  type PeriodTarget,
+  type PlanUnderTarget,
   replan,
   type Plan,
   type Replan,
@@ -32,6 +38,8 @@ import { MAX_RUNS_CSV_ROWS, formatCount } from '../http/limits';
 export type PoolTask =
   | { kind: 'warm' }
   | { kind: 'plan'; scenario: Scenario }
+  | { kind: 'period-target'; nights: PeriodNight[]; marginal: boolean }
+  | { kind: 'plan-under-target'; scenario: Scenario; targets: DemandTarget[] }
   | { kind: 'replan'; scenario: Scenario; state: ReplanState }
   | { kind: 'runs-csv'; text: string; date: string }
   | {
@@ -55,6 +63,8 @@ export interface MeterFileReading {
 export interface PoolOutputs {
   warm: null;
   plan: Plan;
+  'period-target': PeriodTarget;
+  'plan-under-target': PlanUnderTarget;
   replan: Replan;
   'runs-csv': ReturnType<typeof parseRunsCsv>;
   'meter-file': MeterFileReading;
@@ -117,6 +127,12 @@ async function perform(task: PoolTask): Promise<unknown> {
     case 'plan':
       yieldToRequests();
       return planScenario(task.scenario);
+    case 'period-target':
+      yieldToRequests();
+      return solvePeriodTarget(task.nights, await loadSolver(), { marginal: task.marginal });
+    case 'plan-under-target':
+      yieldToRequests();
+      return planUnderTarget(task.scenario, task.targets);
     case 'replan':
       yieldToRequests();
       return replan(task.scenario, task.state);

@@ -23,6 +23,8 @@ type Lane = 'engine' | 'quick';
 const LANE_OF: Record<PoolTask['kind'], Lane> = {
   warm: 'engine',
   plan: 'engine',
+  'period-target': 'engine',
+  'plan-under-target': 'engine',
   replan: 'engine',
   'runs-csv': 'quick',
   'meter-file': 'quick',

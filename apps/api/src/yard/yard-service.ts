@@ -12,7 +12,7 @@ import {
   type YardStep,
   horizonOf,
 } from '@nightyard/contracts';
-import { parseScenario, ReplanStateError, type Plan, type ScenarioInput } from '@nightyard/scheduling';
+import { parseScenario, ReplanStateError, underTarget, type Plan, type ScenarioInput } from '@nightyard/scheduling';
 import type { Db } from '../db/client';
 import { prepared } from '../db/prepared';
 import { chargers, depots, plans, shiftAcknowledgements, users, yardConfirmations, yardReports } from '../db/schema';
@@ -28,6 +28,7 @@ import { nightStaff } from '../plans/night-staff';
 import { comparePlans, planDetailOf } from '../plans/plans-service';
 import { runInPool } from '../workers/pool';
 import { LATE, OVERDUE_AFTER_MS, stepsDueSoon, yardSteps, type StepConfirmation, type StepContext } from './yard-steps';
+import { cutOffTarget, targetsOf } from '../plans/plan-target';
 import { mergeReplan, stopSessions, type SessionStop } from '../plans/night-in-progress';
 import { nightOfDepot } from '../night/depot-night';
 import { publishedNight } from './tonight-query';
@@ -559,12 +560,16 @@ export async function replanAndPublish(
     buses: previous.buses.filter((b) => !absent.has(b.id)),
   } as Plan; // the stored result is the engine's whole plan (see planFromCutOff)
   const cutoff = DateTime.fromJSDate(cutAt, { zone });
+  // The night stays under the demand target its plan was made under (the period's target is
+  // worked out again from the revision for the nights after it).
+  const targets = targetsOf(followed);
+  const floor = targets ? underTarget(kept, targets) : kept;
   const t0 = performance.now();
   let next;
   try {
     next = await runInPool({
       kind: 'replan',
-      scenario: kept,
+      scenario: floor,
       state: {
         now: cutoff.toFormat(LOCAL),
         energyKwh,
@@ -587,7 +592,17 @@ export async function replanAndPublish(
   const replanMs = Math.round(performance.now() - t0);
 
   // The night as a whole: what was kept before the cut-off, then the re-plan.
-  const merged = mergeReplan(previous, next);
+  const whole = mergeReplan(previous, next);
+  const merged =
+    targets && followed.target
+      ? {
+          ...whole,
+          target: cutOffTarget(floor, whole.slots, targets, {
+            binding: followed.target.binding,
+            impossible: followed.target.impossible,
+          }),
+        }
+      : whole;
   const describe =
     report.kind === 'step_missed'
       ? `"${report.step.text}" (due ${DateTime.fromISO(report.step.at, { zone }).toFormat('HH:mm')}) did not happen`

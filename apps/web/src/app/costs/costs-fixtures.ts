@@ -91,6 +91,49 @@ export function monthCosts(overrides: Partial<MonthCosts> = {}): MonthCosts {
       source:
         'Diesel avoided = miles / 7 mpg (assumed for a full-size diesel school bus). CO2 = 10,180 g per gallon of diesel (US EPA figure).',
     },
+    target: null,
+    ...overrides,
+  };
+}
+
+/** A demand target over the rest of the period (invented figures). */
+export function periodTarget(
+  overrides: Partial<NonNullable<MonthCosts['target']>> = {},
+): NonNullable<MonthCosts['target']> {
+  return {
+    currency: 'USD',
+    nights: [
+      { date: '2026-12-14', basis: 'runs' },
+      { date: '2026-12-15', basis: 'typical-weekday' },
+    ],
+    facilityKw: 212,
+    targets: [
+      { name: 'facility', kw: 212, peakSoFarKw: 185, rate: 7.5 },
+      { name: 'on-peak', kw: 48, peakSoFarKw: 48, rate: 9 },
+    ],
+    cost: { energy: 1_240.5, demand: 202.5, total: 1_443 },
+    binding: {
+      name: 'facility',
+      night: 'Monday Dec 14',
+      at: '2026-12-14T05:30:00.000-06:00',
+      buses: 24,
+      needKwh: 1_900,
+      sentence:
+        'Monday Dec 14, 05:30: 24 buses need 1,900 kWh between pull-in (16:20) and pull-out (06:10); spreading it over the cheap intervals still needs 212 kW for the facility demand.',
+    },
+    marginal: [
+      {
+        name: 'facility',
+        rate: 7.5,
+        aboveSavesPerKw: 2.1,
+        belowCostsPerKw: 9.4,
+        belowShortKwhPerKw: 0,
+        sentence:
+          'Each kW above the target saves $2.10 of energy this period and costs $7.50 of demand charge; each kW below costs $9.40 of energy and saves $7.50.',
+      },
+    ],
+    impossible: [],
+    solveMs: 120,
     ...overrides,
   };
 }

@@ -5,7 +5,7 @@ import { provideRouter } from '@angular/router';
 import type { MonthCosts, Role } from '@nightyard/contracts';
 import { AuthStore } from '../auth/auth-store';
 import { depot, settle, tokenResponse } from '../testing/fixtures';
-import { monthCosts } from './costs-fixtures';
+import { monthCosts, periodTarget } from './costs-fixtures';
 import { CostsPage } from './costs-page';
 
 describe('CostsPage', () => {
@@ -82,6 +82,38 @@ describe('CostsPage', () => {
     expect(text(peak.querySelector('.card-value'))).toBe('185 kW');
     expect(text(peak)).toContain('from meter data');
     expect(text(peak)).toContain('Period peak: on-peak 48 kW');
+  });
+
+  it('shows the demand target, why it is that number and what a kW either side is worth', async () => {
+    await render(['finance'], monthCosts({ target: periodTarget() }));
+    const panel = el.querySelector('section.target')!;
+    expect(text(panel.querySelector('h2'))).toBe('Demand target 212 kW');
+    expect(text(panel)).toContain('Period targets: on-peak 48 kW');
+    expect(text(panel)).toContain(
+      'Why: Monday Dec 14, 05:30: 24 buses need 1,900 kWh between pull-in (16:20) and pull-out (06:10)',
+    );
+    expect(text(panel)).toContain('Each kW above the target saves $2.10 of energy this period and costs $7.50');
+    expect(text(panel)).toContain('Over 2 nights left in the period (1 forecast from the same weekday');
+    expect(panel.querySelector('[role="alert"]')).toBeNull();
+  });
+
+  it('explains a night no target can serve, and shows no target for a period without one', async () => {
+    const sentence =
+      'Monday Dec 14: the runs need 75.5 kWh more than the service limit (22 kW at its lowest) lets the chargers deliver before pull-out. No target can serve it; raise the limit or move runs.';
+    await render(
+      ['finance'],
+      monthCosts({
+        target: periodTarget({
+          impossible: [{ night: 'Monday Dec 14', shortKwh: 75.5, cause: 'service limit', sentence }],
+        }),
+      }),
+    );
+    expect(text(el.querySelector('section.target [role="alert"]'))).toBe(sentence);
+  });
+
+  it('shows no demand target when the period has none left', async () => {
+    await render(['finance']);
+    expect(el.querySelector('section.target')).toBeNull();
   });
 
   it('says where the projection comes from and how many school nights have no plan', async () => {

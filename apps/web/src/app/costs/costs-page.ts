@@ -199,6 +199,25 @@ export class CostsPage {
     };
   });
 
+  /** The billing period's demand target over the nights left, with why and what a kW either side is worth. */
+  protected readonly target = computed(() => {
+    const t = this.month()?.target;
+    if (!t) return null;
+    const facility = t.targets.find((x) => x.name === 'facility');
+    const forecast = t.nights.filter((n) => n.basis === 'typical-weekday').length;
+    return {
+      headline: facility ? `Demand target ${kw(facility.kw)}` : 'Demand target',
+      periods: t.targets.filter((x) => x.name !== 'facility').map((x) => `${x.name} ${kw(x.kw)}`),
+      why: t.binding?.sentence ?? 'The peaks so far already cover every night left: the target is the peak so far.',
+      marginal: t.marginal.map((m) => m.sentence),
+      impossible: t.impossible.map((i) => i.sentence),
+      nights:
+        `Over ${t.nights.length === 1 ? '1 night' : `${t.nights.length} nights`} left in the period` +
+        (forecast ? ` (${forecast === 1 ? '1 forecast' : `${forecast} forecast`} from the same weekday's runs)` : '') +
+        `: energy ${money(t.cost.energy, t.currency)}, demand charges above the peaks so far ${money(t.cost.demand, t.currency)}.`,
+    };
+  });
+
   protected readonly sources = computed(() => {
     const m = this.month();
     if (!m) return null;

@@ -4,7 +4,7 @@ import { TestBed } from '@angular/core/testing';
 import { settle } from '../testing/fixtures';
 import type { PlanResult } from '@nightyard/contracts';
 import { busRows, reasonText } from './plan-format';
-import { PLAN_IDS, planDetail, planSummary } from './plan-fixtures';
+import { PLAN_IDS, planDetail, planResult, planSummary } from './plan-fixtures';
 import { PlanReview } from './plan-review';
 
 describe('plan review', () => {
@@ -72,6 +72,59 @@ describe('plan review', () => {
       'Against version 1: 1 bus moved, the cost is $12.50 lower.',
     );
     mock.verify();
+  });
+
+  it('puts the demand target beside the service limit, and the trade when the plan goes above it', async () => {
+    TestBed.configureTestingModule({ providers: [provideHttpClient(), provideHttpClientTesting()] });
+    const mock = TestBed.inject(HttpTestingController);
+    const trade =
+      'Raising the target by 20 kW costs $150.00 this month (20 kW x $7.50/kW) and keeps bus 207 from being 12 kWh short.';
+    const peakCard = async (target: PlanResult['target']) => {
+      const fixture = TestBed.createComponent(PlanReview);
+      fixture.componentRef.setInput(
+        'plan',
+        planDetail({ result: planResult({ target }) }) as ReturnType<typeof planDetail> & { result: PlanResult },
+      );
+      fixture.componentRef.setInput('versions', [planSummary()]);
+      TestBed.tick();
+      await settle();
+      fixture.detectChanges();
+      const el = fixture.nativeElement as HTMLElement;
+      const card = [...el.querySelectorAll('.card')][1]!;
+      return [...card.querySelectorAll('span')].map((x) => x.textContent!.replace(/\s+/g, ' ').trim()).join(' | ');
+    };
+    const above = await peakCard({
+      peaks: [{ name: 'facility', kw: 120, targetKw: 100 }],
+      aboveKw: 20,
+      trade: {
+        above: [{ name: 'facility', kw: 20, rate: 7.5 }],
+        cost: 150,
+        keepsServed: [{ bus: '207', kwh: 12 }],
+        energySaved: 0,
+        sentence: trade,
+      },
+      binding: null,
+      impossible: [],
+    });
+    expect(above).toContain('Service limit 150 kW | Demand target 100 kW');
+    expect(above).toContain(`20 kW above the target. ${trade}`);
+    const within = await peakCard({
+      peaks: [
+        { name: 'facility', kw: 95, targetKw: 100 },
+        { name: 'on-peak', kw: 40, targetKw: 48 },
+      ],
+      aboveKw: 0,
+      trade: null,
+      binding: null,
+      impossible: [],
+    });
+    expect(within).toContain('Demand target 100 kW');
+    expect(within).toContain('Period targets: on-peak 48 kW');
+    expect(within).toContain('Within the target: this night adds no demand charge to the month');
+    expect(within).not.toContain('above the target');
+    // A plan without a target (older plans, what-ifs) shows none.
+    expect(await peakCard(undefined)).not.toContain('Demand target');
+    mock.match(() => true);
   });
 
   it('names a what-if as such when comparing with it', async () => {

@@ -42,6 +42,20 @@ export class PlanReview {
   protected readonly shortRows = computed(() => this.rows().filter((r) => r.short));
   protected readonly limits = computed(() => limitWindows(this.plan().result, this.plan().timezone));
   protected readonly notes = computed(() => groupedNotes(this.plan().notes));
+  /** The billing period's demand target the night was planned under (absent in older plans and what-ifs). */
+  protected readonly target = computed(() => {
+    const t = this.plan().result?.target;
+    if (!t) return null;
+    const facility = t.peaks.find((x) => x.name === 'facility');
+    return {
+      facilityKw: facility?.targetKw ?? null,
+      periods: t.peaks.filter((x) => x.name !== 'facility').map((x) => `${x.name} ${num(x.targetKw)} kW`),
+      above: t.aboveKw > 0.05,
+      aboveKw: t.aboveKw,
+      trade: t.trade?.sentence ?? null,
+      impossible: t.impossible,
+    };
+  });
   /** Buses that leave at their ceiling and count on the next midday layover (not short tonight). */
   protected readonly topUps = computed(() => {
     const inPlan = new Set(this.plan().result.buses.map((b) => b.id));

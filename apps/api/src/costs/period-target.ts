@@ -1,0 +1,271 @@
+import { createHash } from 'node:crypto';
+import { and, asc, eq, gte, lt } from 'drizzle-orm';
+import { DateTime } from 'luxon';
+import type { PeriodTargetView } from '@nightyard/contracts';
+import {
+  parseScenario,
+  peaksOf,
+  ratePlanPeriodAt,
+  shiftScenario,
+  type PeriodNight,
+  type PeriodTarget,
+  type Scenario,
+  type ScenarioInput,
+} from '@nightyard/scheduling';
+import type { Db } from '../db/client';
+import { meterIntervals, plans, runs } from '../db/schema';
+import { DomainError } from '../http/errors';
+import type { AuthUser } from '../auth/auth-user';
+import { depotOf } from '../depots/depot-access';
+import { buildNightScenario } from '../plans/night-scenario';
+import { buildScenarioBase } from '../scenarios/scenario-base';
+import { runInPool } from '../workers/pool';
+import { billingPeriodOf, ratePlanOn } from './billing-period';
+
+// The billing period's demand target, computed on demand from the data as it is: the nights left
+// in the period are built as the engine's scenarios (a night with runs from its runs, a weekday
+// without from the latest entered night of that weekday, moved to its date), their peaks so far
+// raised to what the meter measured this period, and the period LP solved in the engine's thread.
+// The same nights give the same target: solved once, then remembered by their content, so a
+// change to any input (runs, a report, meter data, limits, the rate plan) gives a fresh target.
+
+type Caller = AuthUser;
+
+/**
+ * The planning job reads the period's nights for the organisation, not for a person: it may read
+ * every depot of it (as an administrator would), and nothing of another organisation.
+ */
+export function planningJobCaller(organisationId: string): AuthUser {
+  const caller = {
+    id: '',
+    organisationId,
+    email: '',
+    name: 'Planning job',
+    roles: ['admin'],
+    depotIds: [] as string[],
+  };
+  return caller as AuthUser;
+}
+
+/** Peaks the period has already set, by name ('facility' and each period): the target's floor. */
+export interface PeaksFloor {
+  facility: number;
+  periods: Record<string, number>;
+}
+
+export interface PeriodNights {
+  nights: (PeriodNight & { date: string })[];
+  periodStart: string;
+  periodEnd: string;
+}
+
+const label = (date: string, zone: string) => DateTime.fromISO(date, { zone }).toFormat('cccc LLL d');
+
+/** A night's scenario from its runs, or null where the runs do not make one (no next service day...). */
+async function nightFromRuns(db: Db, caller: Caller, depotId: string, date: string): Promise<ScenarioInput | null> {
+  try {
+    return (await buildNightScenario(db, caller, depotId, date, true)).scenario;
+  } catch (err) {
+    if (err instanceof DomainError) return null;
+    throw err;
+  }
+}
+
+/**
+ * The nights of the billing period holding `fromDate`, from that night to the period's end. `own`
+ * replaces that night's scenario (a revision's, with the yard's reports applied).
+ */
+export async function periodNightsOf(
+  db: Db,
+  caller: Caller,
+  depotId: string,
+  fromDate: string,
+  own?: { date: string; scenario: ScenarioInput | Scenario },
+  floor?: PeaksFloor,
+): Promise<PeriodNights> {
+  const depot = await depotOf(db, caller, depotId);
+  const zone = depot.timezone;
+  const period = billingPeriodOf(fromDate, depot.billingStartDay, zone);
+  const periodStart = period.start.toISODate()!;
+  const periodEnd = period.end.toISODate()!;
+  const entered = (
+    await db
+      .selectDistinct({ date: runs.serviceDate })
+      .from(runs)
+      .where(
+        and(
+          eq(runs.depotId, depotId),
+          gte(runs.serviceDate, period.start.minus({ days: 28 }).toISODate()!),
+          lt(runs.serviceDate, period.end.plus({ days: 7 }).toISODate()!),
+        ),
+      )
+      .orderBy(asc(runs.serviceDate))
+  ).map((r) => r.date);
+  const enteredSet = new Set(entered);
+  const lastEntered = entered.at(-1) ?? '';
+  const built = new Map<string, ScenarioInput | null>();
+  const fromRuns = async (date: string) => {
+    if (!built.has(date)) built.set(date, await nightFromRuns(db, caller, depotId, date));
+    return built.get(date)!;
+  };
+
+  // Peaks the meter measured so far this period raise every night's peaks so far.
+  const rate = await ratePlanOn(db, depot, periodStart);
+  const metered = await db
+    .select({ startsAt: meterIntervals.startsAt, kwh: meterIntervals.kwh, minutes: meterIntervals.minutes })
+    .from(meterIntervals)
+    .where(
+      and(
+        eq(meterIntervals.depotId, depotId),
+        gte(meterIntervals.startsAt, period.start.toJSDate()),
+        lt(meterIntervals.startsAt, period.end.toJSDate()),
+      ),
+    )
+    .orderBy(asc(meterIntervals.startsAt));
+  const intervals = metered.flatMap((m) => {
+    const parts = Math.max(1, m.minutes / 15);
+    return Array.from({ length: parts }, (_, k) => ({
+      startMs: m.startsAt.getTime() + k * 15 * 60_000,
+      kwh: m.kwh / parts,
+    }));
+  });
+  const measured = intervals.length ? peaksOf(rate.definition, intervals, { zone, intervalMinutes: 15 }) : null;
+  // The published plans of the period's nights before this one set peaks too (where not metered).
+  const earlier = await db
+    .select({ result: plans.result })
+    .from(plans)
+    .where(
+      and(
+        eq(plans.depotId, depotId),
+        eq(plans.state, 'published'),
+        gte(plans.serviceDate, period.start.minus({ days: 1 }).toISODate()!),
+        lt(plans.serviceDate, fromDate),
+      ),
+    );
+  const startMs = period.start.toMillis();
+  const fromMs = DateTime.fromISO(fromDate, { zone }).set({ hour: 12 }).toMillis();
+  const set: PeaksFloor = { facility: floor?.facility ?? 0, periods: { ...(floor?.periods ?? {}) } };
+  if (measured) {
+    set.facility = Math.max(set.facility, measured.facility.kw);
+    for (const [name, p] of Object.entries(measured.periods))
+      set.periods[name] = Math.max(set.periods[name] ?? 0, p.kw);
+  }
+  for (const e of earlier) {
+    for (const slot of e.result?.slots ?? []) {
+      const t = Date.parse(slot.start);
+      if (t < startMs || t >= fromMs) continue;
+      set.facility = Math.max(set.facility, slot.loadKw);
+      const at = ratePlanPeriodAt(rate.definition, DateTime.fromMillis(t, { zone }));
+      if (!at.offPeak && at.demandCharge > 0)
+        set.periods[at.period] = Math.max(set.periods[at.period] ?? 0, slot.loadKw);
+    }
+  }
+
+  const nights: PeriodNights['nights'] = [];
+  for (let d = DateTime.fromISO(fromDate, { zone }); d < period.end; d = d.plus({ days: 1 })) {
+    const date = d.toISODate()!;
+    let input: ScenarioInput | Scenario | null = null;
+    let basis: PeriodNight['basis'] = 'runs';
+    if (own && own.date === date) input = own.scenario;
+    else if (enteredSet.has(date)) input = await fromRuns(date);
+    else if (date > lastEntered && d.weekday <= 5) {
+      // A weekday past the last one entered: the latest entered night of its weekday, moved here,
+      // on this night's own site, limits and tariff.
+      const like = entered.filter((e) => e < date && DateTime.fromISO(e, { zone }).weekday === d.weekday).at(-1);
+      const likeNight = like ? await fromRuns(like) : null;
+      if (likeNight) {
+        const days = Math.round(d.diff(DateTime.fromISO(like!, { zone }), 'days').days);
+        const moved = shiftScenario(likeNight, days);
+        try {
+          const base = await buildScenarioBase(db, caller, depotId, moved.start, moved.end);
+          input = { ...base.scenario, buses: moved.buses } as ScenarioInput;
+          basis = 'typical-weekday';
+        } catch (err) {
+          if (!(err instanceof DomainError)) throw err;
+        }
+      }
+    }
+    if (!input) continue;
+    const parsed = parseScenario(input);
+    if (!parsed.ok) continue;
+    const scenario = parsed.scenario;
+    const peaks = { ...scenario.tariff.peaksSoFarKw };
+    peaks['facility'] = Math.max(peaks['facility'] ?? 0, set.facility);
+    for (const p of scenario.tariff.periods) {
+      const kw = set.periods[p.name];
+      if (kw !== undefined) peaks[p.name] = Math.max(peaks[p.name] ?? 0, kw);
+    }
+    scenario.tariff.peaksSoFarKw = peaks;
+    nights.push({ date, label: label(date, zone), scenario, basis });
+  }
+  return { nights, periodStart, periodEnd };
+}
+
+const solved = new Map<string, Promise<PeriodTarget>>();
+const MAX_SOLVED = 100;
+
+/** Solves the period LP in the engine's thread, once per distinct set of nights. */
+export function solveNights(nights: PeriodNight[], marginal = true): Promise<PeriodTarget> {
+  const key = `${marginal}|${createHash('sha256').update(JSON.stringify(nights)).digest('hex')}`;
+  const known = solved.get(key);
+  if (known) {
+    solved.delete(key);
+    solved.set(key, known);
+    return known;
+  }
+  const pending = runInPool({ kind: 'period-target', nights, marginal });
+  solved.set(key, pending);
+  pending.catch(() => solved.delete(key));
+  while (solved.size > MAX_SOLVED) solved.delete(solved.keys().next().value!);
+  return pending;
+}
+
+export function targetView(target: PeriodTarget, nights: PeriodNights['nights']): PeriodTargetView {
+  return {
+    currency: target.currency,
+    nights: nights.map((n) => ({ date: n.date, basis: n.basis })),
+    facilityKw: target.targets.find((t) => t.name === 'facility')?.kw ?? null,
+    targets: target.targets,
+    cost: target.cost,
+    binding: target.binding,
+    marginal: target.marginal,
+    impossible: target.impossible,
+    solveMs: target.stats.ms,
+  };
+}
+
+/**
+ * The demand target of the billing period holding `now`'s service night, over the nights left in
+ * it (the night under way included: before noon, that is last evening's). Null when no night is
+ * left or the tariff has no demand charge.
+ */
+export async function periodTargetOf(
+  db: Db,
+  caller: Caller,
+  depotId: string,
+  now: Date,
+): Promise<{ target: PeriodTarget; view: PeriodTargetView } | null> {
+  const depot = await depotOf(db, caller, depotId);
+  const local = DateTime.fromJSDate(now, { zone: depot.timezone });
+  const night = (local.hour < 12 ? local.minus({ days: 1 }) : local).toISODate()!;
+  return periodTargetFrom(db, caller, depotId, night);
+}
+
+/** The demand target over the nights from `fromDate` to the end of its billing period. */
+export async function periodTargetFrom(
+  db: Db,
+  caller: Caller,
+  depotId: string,
+  fromDate: string,
+  own?: { date: string; scenario: ScenarioInput | Scenario },
+  options: { marginal?: boolean; floor?: PeaksFloor } = {},
+): Promise<{ target: PeriodTarget; view: PeriodTargetView } | null> {
+  const { nights } = await periodNightsOf(db, caller, depotId, fromDate, own, options.floor);
+  if (!nights.length) return null;
+  const target = await solveNights(
+    nights.map(({ label: l, scenario, basis }) => ({ label: l, scenario, basis })),
+    options.marginal ?? true,
+  );
+  if (!target.targets.length) return null;
+  return { target, view: targetView(target, nights) };
+}
