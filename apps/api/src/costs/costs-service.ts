@@ -15,6 +15,7 @@ import type { Db } from '../db/client';
 import { billingPeaks, buses, meterIntervals, plans, runs } from '../db/schema';
 import { DomainError, notFound } from '../http/errors';
 import { periodTargetFrom } from './period-target';
+import { nightOfDepot } from '../night/depot-night';
 import { isDatabaseUnavailable } from '../db/unavailable';
 import { markChecked, markCheckedText } from '../http/checked-answer';
 import type { AuthUser } from '../auth/auth-user';
@@ -655,8 +656,9 @@ async function monthTargetOf(
   version: string | undefined,
   peaksSoFar: Peaks,
 ): Promise<PeriodTargetView | null> {
-  const local = DateTime.fromJSDate(now, { zone: depot.timezone });
-  const tonight = (local.hour < 12 ? local.minus({ days: 1 }) : local).startOf('day');
+  // "Which night" from the one night model: the night under way, else the next one.
+  const night = (await nightOfDepot(db, depot, now)).tonight.serviceDate;
+  const tonight = DateTime.fromISO(night, { zone: depot.timezone }).startOf('day');
   if (tonight >= period.end) return null;
   const from = (tonight < period.start ? period.start : tonight).toISODate()!;
   const key = `${depot.id}|${period.start.toISODate()}`;

@@ -1,3 +1,4 @@
+import { nightOfDepot } from '../night/depot-night';
 import { createHash } from 'node:crypto';
 import { and, asc, eq, gte, lt } from 'drizzle-orm';
 import { DateTime } from 'luxon';
@@ -246,8 +247,8 @@ export async function periodTargetOf(
   now: Date,
 ): Promise<{ target: PeriodTarget; view: PeriodTargetView } | null> {
   const depot = await depotOf(db, caller, depotId);
-  const local = DateTime.fromJSDate(now, { zone: depot.timezone });
-  const night = (local.hour < 12 ? local.minus({ days: 1 }) : local).toISODate()!;
+  // "Which night" from the one night model: the night under way, else the next one.
+  const night = (await nightOfDepot(db, depot, now)).tonight.serviceDate;
   return periodTargetFrom(db, caller, depotId, night);
 }
 

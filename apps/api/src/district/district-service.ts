@@ -118,8 +118,8 @@ async function periodOf(
         billToDate: month.monthToDate.total,
         projectedBill: month.projected.total,
         peakKw: month.peaks.facility.kw,
-        // The period's demand target is planned elsewhere (issue 18, part 2): none yet.
-        targetKw: null,
+        // The same target the costs month shows (and the night's plans are made under).
+        targetKw: month.target?.facilityKw ?? null,
       },
     };
   } catch (err) {

@@ -117,7 +117,7 @@ describe('the district overview', () => {
         billToDate: m.monthToDate.total,
         projectedBill: m.projected.total,
         peakKw: m.peaks.facility.kw,
-        targetKw: null,
+        targetKw: m.target?.facilityKw ?? null,
       });
     }
     // No rate plan: no bill, the depot is still shown.
