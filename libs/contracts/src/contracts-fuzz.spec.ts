@@ -111,6 +111,7 @@ const REQUESTS: Record<string, unknown> = {
 /** Schemas of answers and stored documents: not request input, so not fuzzed here. */
 const NOT_REQUESTS = new Set([
   'errorBodySchema',
+  'periodTargetSchema',
   'roleSchema',
   'sectionSchema',
   'organisationSchema',

@@ -120,6 +120,10 @@ function keptWindows(problem: Problem, energy: Float64Array) {
     sequence: problem.chargers.map(() => []),
   };
   const busy = problem.chargers.map(() => new Int32Array(T).fill(-1));
+  // A bus plugged in at the cut-off whose old window cannot be kept (an unplug that did not
+  // happen) still holds its charger's first slot: no kept session of another bus may start there
+  // while it is on it. It is laid out again with the open stays.
+  const held = problem.chargers.map(() => new Uint8Array(T));
   const open: number[] = [];
   const optional: number[] = [];
   const pin = problem.pinned;
@@ -137,7 +141,9 @@ function keptWindows(problem: Problem, energy: Float64Array) {
     let ok = c >= 0 && to > from && (pinned < 0 || pinned === c);
     if (ok && pinned < 0 && to - from < minWindow(problem, stay)) ok = false;
     if (ok)
-      for (let t = from; t < to && ok; t++) if (!problem.chargers[c]!.available[t] || busy[c]![t]! >= 0) ok = false;
+      for (let t = from; t < to && ok; t++)
+        if (!problem.chargers[c]!.available[t] || busy[c]![t]! >= 0 || held[c]![t]) ok = false;
+    if (!ok && pinned >= 0) held[pinned]![stay.arriveSlot] = 1;
     if (ok) {
       base.chargerOf[id] = c;
       base.from[id] = from;

@@ -209,7 +209,14 @@ describe('yard steps: overdue steps confirmed with their real time, or that did 
   });
 
   it('a disconnect that did not happen keeps the bus on its charger: the re-plan may not give the charger to another bus before it', async () => {
-    await moveTo('2026-12-10T00:40');
+    // The plan's first unplug of the small hours with nobody plugged in after it yet, looked at
+    // once it is overdue (ten minutes after its time): the instant follows the plan, whatever it is.
+    await moveTo('2026-12-10T00:10');
+    const first = (await tonight()).steps.find(
+      (s) => s.action === 'disconnect' && s.reason === null && Date.parse(s.at) >= clock.getTime(),
+    );
+    expect(first, 'an unplug after 00:10').toBeDefined();
+    await moveTo(DateTime.fromISO(first!.at).setZone(ZONE).plus({ minutes: 11 }).toFormat("yyyy-MM-dd'T'HH:mm"));
     const t = await tonight();
     const step = t.steps.find(
       (s) =>
