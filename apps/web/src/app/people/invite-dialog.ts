@@ -59,6 +59,7 @@ export class InviteDialog {
         name: name.trim(),
         email: email.trim(),
         roles: chosenRoles(this.form.controls.roles),
+        depotIds: [],
       });
       this.ref.close(user);
     } catch (err) {
