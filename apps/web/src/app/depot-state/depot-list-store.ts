@@ -65,15 +65,16 @@ export class DepotListStore {
   /**
    * Works on depot `id` from now on (at once) and has the API remember it (PUT /api/me/depot).
    * Should the API refuse, the app goes back to the depot before and `choiceProblem` says why.
-   * Resolves true when the choice was remembered.
+   * Resolves true when the choice was remembered. `restart: false` when a navigation to another
+   * page follows at once (a link): the page shown then is made for the new depot anyway.
    */
-  async choose(id: string): Promise<boolean> {
+  async choose(id: string, { restart = true } = {}): Promise<boolean> {
     const before = this.current();
     if (!this.depots().some((d) => d.id === id)) return false;
     this.choiceProblem.set(null);
     if (before?.id === id) return true;
     this.chosenId.set(id);
-    this.switches.update((n) => n + 1);
+    if (restart) this.switches.update((n) => n + 1);
     const mine = ++this.choices;
     try {
       await firstValueFrom(this.http.put<{ chosenDepotId: string }>('/api/me/depot', { depotId: id }));
