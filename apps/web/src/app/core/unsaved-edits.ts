@@ -1,15 +1,13 @@
 import { DestroyRef, Injectable, inject } from '@angular/core';
-import type { AbstractControl } from '@angular/forms';
 import { MatDialog } from '@angular/material/dialog';
 import { firstValueFrom } from 'rxjs';
 import { ConfirmDialog, type ConfirmData } from '../people/confirm-dialog';
 
 interface Tracked {
-  form: AbstractControl;
+  /** Whether edits are waiting (a form changed and not saved; false for a read-only form). */
+  dirty: () => boolean;
   /** What the edits are, for the question ("the runs of Thursday 3 December"). */
   what: () => string;
-  /** Whether the form may be edited at all (a read-only form's state never counts). */
-  editable: () => boolean;
 }
 
 /**
@@ -21,16 +19,16 @@ export class UnsavedEdits {
   private readonly dialog = inject(MatDialog);
   private readonly tracked = new Set<Tracked>();
 
-  /** Tracks `form` until `destroyRef` ends. */
-  track(form: AbstractControl, what: () => string, destroyRef: DestroyRef, editable: () => boolean = () => true): void {
-    const entry: Tracked = { form, what, editable };
+  /** Tracks a form's edits until `destroyRef` ends. */
+  track(dirty: () => boolean, what: () => string, destroyRef: DestroyRef): void {
+    const entry: Tracked = { dirty, what };
     this.tracked.add(entry);
     destroyRef.onDestroy(() => this.tracked.delete(entry));
   }
 
   /** What holds edits not saved, one line each. */
   pending(): string[] {
-    return [...this.tracked].filter((t) => t.form.dirty && t.editable()).map((t) => t.what());
+    return [...this.tracked].filter((t) => t.dirty()).map((t) => t.what());
   }
 
   /** True when nothing is unsaved, or the person agrees to throw the edits away to `doing`. */
@@ -52,7 +50,10 @@ export class UnsavedEdits {
   }
 }
 
-/** Tracks a form of the calling component with UnsavedEdits (call in an injection context). */
-export function trackUnsaved(form: AbstractControl, what: () => string, editable?: () => boolean): void {
-  inject(UnsavedEdits).track(form, what, inject(DestroyRef), editable);
+/**
+ * Tracks a form of the calling component with UnsavedEdits (call in an injection context):
+ * `dirty` says whether it holds edits not saved, `what` names them.
+ */
+export function trackUnsaved(dirty: () => boolean, what: () => string): void {
+  inject(UnsavedEdits).track(dirty, what, inject(DestroyRef));
 }

@@ -21,7 +21,10 @@ import { Shell } from './shell';
 class EditProbe {
   readonly form = new FormControl('');
   constructor() {
-    trackUnsaved(this.form, () => 'the probe');
+    trackUnsaved(
+      () => this.form.dirty,
+      () => 'the probe',
+    );
   }
 }
 
