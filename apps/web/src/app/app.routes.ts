@@ -76,6 +76,13 @@ export const routes: Routes = [
         loadChildren: () => import('./costs/costs.routes').then((m) => m.costsRoutes),
       },
       {
+        path: 'district',
+        title: 'District',
+        data: { section: 'district' },
+        canActivate: [roleGuard],
+        loadComponent: () => import('./district/district-page').then((m) => m.DistrictPage),
+      },
+      {
         path: 'people',
         data: { section: 'people' },
         canActivate: [roleGuard],
