@@ -29,8 +29,13 @@ export const AT = {
 export interface District {
   tag: string;
   organisationId: string;
+  /** The original demo depot. */
   depotId: string;
+  /** Every depot seeded, the original first (three with `depots: 'district'`). */
+  depots: { key: string; id: string; name: string }[];
   emails: Record<'admin' | 'facilities' | 'supervisor' | 'yard' | 'finance' | 'lead', string>;
+  /** With `depots: 'district'`: the other depots' yard staff (yard2, yard3). */
+  depotYardEmails?: Record<'yard2' | 'yard3', string>;
   chargerIdentities: Record<string, string>;
   publishedNights: string[];
   /** The API's time when the district was ready (ISO). */
@@ -49,13 +54,21 @@ async function post(url: string, body: unknown): Promise<Response> {
 
 /**
  * Stands the API's clock at `at` and seeds a fresh demo district there (the night in progress and
- * the next one published). With `stations`, the charger simulator swaps to this district's chargers;
- * they set their clocks from the API's answers, as OCPP stations do.
+ * the next one published): the original depot alone, or with `depots: 'district'` all three. With
+ * `stations`, the charger simulator swaps to this district's chargers (the original depot's); they
+ * set their clocks from the API's answers, as OCPP stations do.
  */
-export async function districtAt(at: string, options: { stations?: boolean } = {}): Promise<District> {
+export async function districtAt(
+  at: string,
+  options: { stations?: boolean; depots?: 'main' | 'district' } = {},
+): Promise<District> {
   await post(`${API}/api/testing/clock`, { at });
   const tag = `e2e-${randomUUID().slice(0, 8)}`;
-  const district = (await (await post(`${API}/api/testing/demo`, { tag })).json()) as Omit<District, 'tag'>;
+  const district = (await (
+    await post(`${API}/api/testing/demo`, { tag, depots: options.depots ?? 'main' })
+  ).json()) as Omit<District, 'tag'>;
+  const { yard2, yard3 } = district.emails as Record<string, string | undefined>;
+  if (yard2 && yard3) district.depotYardEmails = { yard2, yard3 };
   if (options.stations) {
     const res = await fetch(`${SIMULATOR}/stations?tag=${tag}`, { method: 'PUT' });
     if (!res.ok) throw new Error(`The charger simulator answered ${res.status}`);

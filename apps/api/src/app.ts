@@ -18,6 +18,7 @@ import { costsRoutes } from './costs/costs-routes';
 import { ocppRoutes } from './ocpp/ocpp-routes';
 import { yardRoutes } from './yard/yard-routes';
 import { liveRoutes } from './live/live-routes';
+import { districtRoutes } from './district/district-routes';
 import { outboxRoutes } from './dev/outbox-routes';
 import { testControlRouter } from './dev/test-control-routes';
 import { apiNotFound, errorHandler } from './http/error-handler';
@@ -133,6 +134,7 @@ export function createApp(deps: AppDeps): BuiltApp {
   yardRoutes(api, deps);
   liveRoutes(api, deps);
   outboxRoutes(api, deps);
+  districtRoutes(api, deps);
   if (deps.testControl && deps.config.NODE_ENV === 'test')
     router.use('/testing', testControlRouter(deps.db, deps.clock, deps.testControl));
 

@@ -48,7 +48,8 @@ await applyMigrations(db, migrationsDir);
 log.info({ migrationsDir }, 'migrations applied');
 // Production seeds nothing unless SEED_DEMO=always says so (see config.ts).
 if (wantsDemoSeed(config) && (await isEmpty(db))) {
-  await seedDemo(db, clock());
+  // The whole invented district: three depots on three utilities.
+  await seedDemo(db, clock(), undefined, { depots: 'district' });
   log.info('demo data seeded');
 }
 

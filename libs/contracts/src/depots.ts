@@ -29,6 +29,7 @@ export const depotListSchema = z.object({
   depots: z.array(depotSummarySchema),
   chosenDepotId: z.uuid().nullable(),
 });
+export type DepotList = z.infer<typeof depotListSchema>;
 
 /** PUT /me/depot: remember the depot the person works on (one of theirs, else 404). */
 export const chooseDepotRequestSchema = z.strictObject({ depotId: z.uuid('Not a depot id') });

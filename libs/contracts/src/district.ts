@@ -20,7 +20,10 @@ export const districtDepotSchema = z.object({
     /** The plan's highest site load, against the service limit. */
     peakKw: z.number().nullable(),
     serviceLimitKw: z.number(),
-    /** The night's charging cost under the plan (null without a plan). */
+    /**
+     * The night's charging energy cost under the plan, as Costs shows the night (demand is billed
+     * once a billing period: it is in `period`, never a night's); null without a plan.
+     */
     cost: z.number().nullable(),
   }),
   /** The billing period in force at the depot (null without a rate plan). */

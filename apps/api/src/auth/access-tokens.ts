@@ -5,7 +5,7 @@ import passport from 'passport';
 import type { NextFunction, Request, Response } from 'express';
 import { and, eq, sql } from 'drizzle-orm';
 import type { Db } from '../db/client';
-import { users } from '../db/schema';
+import { userDepots, users } from '../db/schema';
 import { DomainError } from '../http/errors';
 import type { AuthUser } from './auth-user';
 import type { Clock } from '../time/clock';
@@ -44,6 +44,10 @@ export function bearerAuthenticator(db: Db, secret: string, clock: Clock, known?
       email: users.email,
       name: users.name,
       roles: users.roles,
+      // The caller's depots in the same round trip (mayOpenDepot decides with them).
+      depotIds: sql<
+        string[]
+      >`coalesce((select array_agg(${userDepots.depotId}::text order by ${userDepots.depotId}) from ${userDepots} where ${userDepots.userId} = "users"."id"), '{}'::text[])`,
     })
     .from(users)
     .where(

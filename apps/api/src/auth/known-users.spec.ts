@@ -91,10 +91,16 @@ describe('signed-in users kept between requests', () => {
   it('drops a read that was under way when a change arrived (it may have seen the old row)', () => {
     const mark = known.mark();
     known.forget(admin.id);
-    known.keep({ id: admin.id, organisationId: 'x', email: 'a@b.c', name: 'stale', roles: ['admin'] }, mark);
+    known.keep(
+      { id: admin.id, organisationId: 'x', email: 'a@b.c', name: 'stale', roles: ['admin'], depotIds: [] },
+      mark,
+    );
     expect(known.get(admin.id, 'x')).toBeNull();
     const fresh = known.mark();
-    known.keep({ id: admin.id, organisationId: 'x', email: 'a@b.c', name: 'fresh', roles: ['admin'] }, fresh);
+    known.keep(
+      { id: admin.id, organisationId: 'x', email: 'a@b.c', name: 'fresh', roles: ['admin'], depotIds: [] },
+      fresh,
+    );
     expect(known.get(admin.id, 'x')?.name).toBe('fresh');
     // Another organisation's token never finds it.
     expect(known.get(admin.id, 'y')).toBeNull();

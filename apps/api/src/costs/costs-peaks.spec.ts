@@ -116,7 +116,14 @@ describe('peaks so far and the bill', () => {
     expect(facility.amount).toBeCloseTo(320 * 12, 9);
     expect(facility.note).toMatch(/80 % of 400 kW.*previous 11 months.*meter readings/);
     // The cache answers the same as a fresh computation.
-    const caller = { id: fin.id, organisationId, email: fin.email, name: 'Finance', roles: fin.roles };
+    const caller = {
+      id: fin.id,
+      organisationId,
+      email: fin.email,
+      name: 'Finance',
+      roles: fin.roles,
+      depotIds: [depot.id],
+    };
     const fresh = await monthCosts(app.db, caller, depot.id, '2026-12-10', now, undefined, newMonthCostsCache());
     expect(fresh.projected.total).toBeCloseTo(m.projected.total, 9);
   });

@@ -15,7 +15,7 @@ import { billingPeaks, buses, meterIntervals, plans, runs } from '../db/schema';
 import { notFound } from '../http/errors';
 import { markChecked, markCheckedText } from '../http/checked-answer';
 import type { AuthUser } from '../auth/auth-user';
-import { depotOf } from '../depots/depot-access';
+import { assertMayOpenDepot, depotOf } from '../depots/depot-access';
 import { billingPeriodOf, ratePlanOn, type BillingPeriod } from './billing-period';
 import { MonthCostsCache, monthInputs, type MonthInputs } from './month-cache';
 import type { NotifiedCache } from '../db/notified-cache';
@@ -68,6 +68,7 @@ export async function planCosts(db: Db, caller: AuthUser, planId: string): Promi
     .from(plans)
     .where(and(eq(plans.id, planId), eq(plans.organisationId, caller.organisationId)));
   if (!plan) throw notFound('That plan');
+  assertMayOpenDepot(caller, plan.depotId, 'That plan');
   if (!plan.result) throw notFound("The plan's result (it is not finished)");
   const result = planResultSchema.parse(plan.result);
   const scenario = plan.scenario;
@@ -503,6 +504,8 @@ function periodBounds(period: BillingPeriod) {
  * returns (a depot whose zone or billing day changed is asked again, with the right period).
  */
 async function monthInputsOf(db: Db, caller: AuthUser, depotId: string, date: string, kept?: CostsInputs) {
+  // Checked in memory before the one query: the caller's depots came with the caller.
+  assertMayOpenDepot(caller, depotId);
   let guess: { timezone: string; billingStartDay: number } =
     guessDepot(depotId) ?? (await depotOf(db, caller, depotId));
   for (;;) {

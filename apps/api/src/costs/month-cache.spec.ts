@@ -29,9 +29,17 @@ beforeAll(async () => {
   const org = await createOrganisation(app, { fin: ['finance'], sup: ['supervisor'] });
   ({ fin, sup } = org.users as Record<string, TestUser>);
   const [row] = await app.db.select().from(users).where(eq(users.id, fin.id));
-  caller = { id: row!.id, organisationId: row!.organisationId, email: row!.email, name: row!.name, roles: row!.roles };
+  caller = {
+    id: row!.id,
+    organisationId: row!.organisationId,
+    email: row!.email,
+    name: row!.name,
+    roles: row!.roles,
+    depotIds: [],
+  };
   const created = await createDepot(app.db, org.organisationId);
   depotId = created.depot.id;
+  caller.depotIds = [depotId];
   ratePlanId = created.ratePlan.id;
   await addBuses(app.db, org.organisationId, depotId, NUMBERS);
   for (const date of ['2026-12-02', '2026-12-03', '2026-12-04']) {

@@ -1,5 +1,6 @@
 import { sql } from 'drizzle-orm';
 import {
+  type AnyPgColumn,
   boolean,
   date,
   doublePrecision,
@@ -55,6 +56,8 @@ export const users = pgTable(
     status: userStatus('status').notNull().default('invited'),
     createdAt: createdAt(),
     lastSignInAt: timestamp('last_sign_in_at', { withTimezone: true }),
+    /** The depot the person last chose to work on (remembered for the switcher); null: not chosen. */
+    chosenDepotId: uuid('chosen_depot_id').references((): AnyPgColumn => depots.id, { onDelete: 'set null' }),
   },
   (t) => [uniqueIndex('users_email_key').on(t.email), index('users_org_idx').on(t.organisationId)],
 );
@@ -147,6 +150,24 @@ export const depots = pgTable(
     createdAt: createdAt(),
   },
   (t) => [index('depots_org_idx').on(t.organisationId)],
+);
+
+/**
+ * The depots each person is assigned to. Administrators see every depot of their organisation
+ * whatever this holds; everyone else only these (apps/api/src/depots/depot-access.ts). Changes
+ * notify nightyard_user_changed (migration 0016), so the signed-in user cache reads them again.
+ */
+export const userDepots = pgTable(
+  'user_depots',
+  {
+    userId: uuid('user_id')
+      .notNull()
+      .references(() => users.id, { onDelete: 'cascade' }),
+    depotId: uuid('depot_id')
+      .notNull()
+      .references(() => depots.id, { onDelete: 'cascade' }),
+  },
+  (t) => [primaryKey({ columns: [t.userId, t.depotId] }), index('user_depots_depot_idx').on(t.depotId)],
 );
 
 export const powerCabinets = pgTable('power_cabinets', {

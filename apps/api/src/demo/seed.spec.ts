@@ -4,7 +4,19 @@ import { DateTime } from 'luxon';
 import { afterAll, describe, expect, it } from 'vitest';
 import { parseScenario } from '@nightyard/scheduling';
 import { createDb, createPool } from '../db/client';
-import { buses, chargers, plans, runs, users, yardConfirmations } from '../db/schema';
+import {
+  billingPeaks,
+  buses,
+  chargers,
+  depotRatePlans,
+  plans,
+  powerCabinets,
+  ratePlans,
+  runs,
+  userDepots,
+  users,
+  yardConfirmations,
+} from '../db/schema';
 import { TEST_DATABASE_URL } from '../testing/test-env';
 import { seedDemo } from './seed';
 
@@ -70,4 +82,98 @@ describe('demo seed', () => {
     const seeded = await seedDemo(db, at('2026-12-04T22:00'), tag());
     expect(seeded.publishedNights).toEqual(['2026-12-04', '2026-12-07']);
   });
+});
+
+describe('demo seed: the district', () => {
+  it('with the main depot alone (the default), every non-admin holds it', async () => {
+    const seeded = await seedDemo(db, at('2026-12-01T15:00'), tag());
+    expect(seeded.depots.map((d) => d.key)).toEqual(['main']);
+    const held = await db
+      .select({ email: users.email, depotId: userDepots.depotId })
+      .from(userDepots)
+      .innerJoin(users, eq(users.id, userDepots.userId))
+      .where(eq(users.organisationId, seeded.organisationId));
+    const holders = held.map((h) => h.email).sort();
+    expect(holders).toEqual(
+      Object.entries(seeded.emails)
+        .filter(([key]) => key !== 'admin')
+        .map(([, email]) => email)
+        .sort(),
+    );
+    expect(new Set(held.map((h) => h.depotId))).toEqual(new Set([seeded.depotId]));
+  });
+
+  it('with the district: three depots of their own sizes, chargers, tariffs and runs; people hold theirs', async () => {
+    const seeded = await seedDemo(db, at('2026-12-01T15:00'), tag(), { depots: 'district' });
+    expect(seeded.depots.map((d) => d.name)).toEqual([
+      'Orchard Lane Depot',
+      'Kestrel Hollow Depot',
+      'Sandpiper Reach Depot',
+    ]);
+    const [main, kestrel, sandpiper] = seeded.depots.map((d) => d.id) as [string, string, string];
+    expect(main).toBe(seeded.depotId);
+    // The original depot is as it always was.
+    expect(await db.select().from(buses).where(eq(buses.depotId, main))).toHaveLength(24);
+    expect(await db.select().from(chargers).where(eq(chargers.depotId, main))).toHaveLength(10);
+    expect(seeded.publishedNights).toEqual(['2026-12-01', '2026-12-02']);
+    // The others: their own fleets, charger mixes and cabinets.
+    expect(await db.select().from(buses).where(eq(buses.depotId, kestrel))).toHaveLength(12);
+    expect(await db.select().from(buses).where(eq(buses.depotId, sandpiper))).toHaveLength(36);
+    const kw = async (depotId: string) =>
+      (await db.select().from(chargers).where(eq(chargers.depotId, depotId))).map((c) => c.maxKw).sort((a, b) => a - b);
+    expect(await kw(kestrel)).toEqual([40, 40, 40, 40, 40, 40, 150, 150]);
+    expect(await kw(sandpiper)).toEqual([...Array(16).fill(60), ...Array(6).fill(150)]);
+    expect(await db.select().from(powerCabinets).where(eq(powerCabinets.depotId, sandpiper))).toHaveLength(2);
+    // Each on a tariff of its own utility: one with a demand ratchet, one with winter and summer.
+    const tariff = async (depotId: string) => {
+      const [row] = await db
+        .select({ name: ratePlans.name, definition: ratePlans.definition })
+        .from(depotRatePlans)
+        .innerJoin(ratePlans, eq(ratePlans.id, depotRatePlans.ratePlanId))
+        .where(eq(depotRatePlans.depotId, depotId));
+      return row!;
+    };
+    const [t1, t2, t3] = await Promise.all([tariff(main), tariff(kestrel), tariff(sandpiper)]);
+    expect(new Set([t1.name, t2.name, t3.name]).size).toBe(3);
+    expect(t2.definition.demandRatchet).toEqual({ percent: 80, months: 11 });
+    expect(t3.definition.seasons.map((s) => s.name)).toEqual(['Summer', 'Winter']);
+    // The ratchet has last period's peak to look back at.
+    const [peak] = await db.select().from(billingPeaks).where(eq(billingPeaks.depotId, kestrel));
+    expect(peak).toMatchObject({ billingPeriodStart: '2026-11-01', facilityKw: 236 });
+    // Runs for the seeded days, and each depot's nights published as the original's are.
+    for (const [depotId, n] of [
+      [kestrel, 12],
+      [sandpiper, 36],
+    ] as const) {
+      const day = await db
+        .select()
+        .from(runs)
+        .where(and(eq(runs.depotId, depotId), eq(runs.serviceDate, '2026-12-02')));
+      expect(day).toHaveLength(n * 2);
+      const published = await db.select().from(plans).where(eq(plans.depotId, depotId));
+      expect(published.map((p) => [p.serviceDate, p.state]).sort()).toEqual([
+        ['2026-12-01', 'published'],
+        ['2026-12-02', 'published'],
+      ]);
+      for (const p of published) expect(p.result!.buses).toHaveLength(n);
+    }
+    // Who holds what: the office every depot, each yard its own, the administrator none (sees all).
+    const held = await db
+      .select({ email: users.email, depotId: userDepots.depotId })
+      .from(userDepots)
+      .innerJoin(users, eq(users.id, userDepots.userId))
+      .where(eq(users.organisationId, seeded.organisationId));
+    const of = (key: string) =>
+      held
+        .filter((h) => h.email === seeded.emails[key])
+        .map((h) => h.depotId)
+        .sort();
+    const all = [main, kestrel, sandpiper].sort();
+    expect(of('admin')).toEqual([]);
+    for (const key of ['finance', 'supervisor', 'facilities']) expect(of(key), key).toEqual(all);
+    expect(of('yard')).toEqual([main]);
+    expect(of('lead')).toEqual([main]);
+    expect(of('yard2')).toEqual([kestrel]);
+    expect(of('yard3')).toEqual([sandpiper]);
+  }, 60_000);
 });

@@ -1,20 +1,39 @@
-import { depotIdParamsSchema, depotListSchema, depotNightSchema, EVERY_ROLE } from '@nightyard/contracts';
+import {
+  chooseDepotRequestSchema,
+  chosenDepotSchema,
+  depotIdParamsSchema,
+  depotListSchema,
+  depotNightSchema,
+  EVERY_ROLE,
+} from '@nightyard/contracts';
 import type { AppDeps } from '../app-deps';
 import type { ApiRoutes } from '../http/route';
 import { depotNight } from '../night/depot-night';
-import { listDepotSummaries } from './depots-service';
+import { chooseDepot, listDepotSummaries } from './depots-service';
 
 export function depotsRoutes(api: ApiRoutes, { db, clock }: AppDeps) {
   api.add(
     {
       method: 'get',
       path: '/depots',
-      summary: "The organisation's depots with a summary of each",
+      summary: 'The depots the caller may see, with a summary of each, and the one they last chose',
       tag: 'depots',
       access: EVERY_ROLE,
       response: depotListSchema,
     },
-    async ({ user }) => ({ depots: await listDepotSummaries(db, user, clock()) }),
+    async ({ user }) => listDepotSummaries(db, user, clock()),
+  );
+  api.add(
+    {
+      method: 'put',
+      path: '/me/depot',
+      summary: 'Remember the depot the caller works on (one they may see)',
+      tag: 'depots',
+      access: EVERY_ROLE,
+      body: chooseDepotRequestSchema,
+      response: chosenDepotSchema,
+    },
+    async ({ user, body }) => chooseDepot(db, user, body.depotId),
   );
   api.add(
     {

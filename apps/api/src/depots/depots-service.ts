@@ -1,19 +1,49 @@
 import { and, asc, desc, eq, lte, sql } from 'drizzle-orm';
 import { DateTime } from 'luxon';
-import { depotDate, type DepotSummary } from '@nightyard/contracts';
+import { depotDate, type DepotList, type DepotSummary } from '@nightyard/contracts';
 import type { Db } from '../db/client';
-import { buses, chargers, depotRatePlans, depots, ratePlans, runs } from '../db/schema';
+import { buses, chargers, depotRatePlans, depots, ratePlans, runs, users } from '../db/schema';
+import { depotOf, mayOpenDepot } from './depot-access';
 import type { AuthUser } from '../auth/auth-user';
 import { nightOfDepot } from '../night/depot-night';
 
-/** Each depot of the caller's organisation with counts and the next service day's pull-outs. */
-export async function listDepotSummaries(db: Db, caller: AuthUser, now: Date): Promise<DepotSummary[]> {
+/** The depots of the caller's organisation the caller may see (mayOpenDepot), by name. */
+export async function visibleDepots(db: Db, caller: AuthUser) {
   const rows = await db
     .select()
     .from(depots)
     .where(eq(depots.organisationId, caller.organisationId))
-    .orderBy(asc(depots.name));
-  return Promise.all(rows.map((d) => summarise(db, d, now)));
+    .orderBy(asc(depots.name), asc(depots.id));
+  return rows.filter((d) => mayOpenDepot(caller, d.id));
+}
+
+/**
+ * Each depot the caller may see with counts and the next service day's pull-outs, and the depot
+ * they last chose (null when they never chose or may no longer see it).
+ */
+export async function listDepotSummaries(db: Db, caller: AuthUser, now: Date): Promise<DepotList> {
+  const [rows, [me]] = await Promise.all([
+    visibleDepots(db, caller),
+    db
+      .select({ chosen: users.chosenDepotId })
+      .from(users)
+      .where(and(eq(users.id, caller.id), eq(users.organisationId, caller.organisationId))),
+  ]);
+  const chosen = me?.chosen ?? null;
+  return {
+    depots: await Promise.all(rows.map((d) => summarise(db, d, now))),
+    chosenDepotId: chosen && rows.some((d) => d.id === chosen) ? chosen : null,
+  };
+}
+
+/** Remembers the depot the caller works on: one they may see, else "That depot was not found". */
+export async function chooseDepot(db: Db, caller: AuthUser, depotId: string): Promise<{ chosenDepotId: string }> {
+  const depot = await depotOf(db, caller, depotId);
+  await db
+    .update(users)
+    .set({ chosenDepotId: depot.id })
+    .where(and(eq(users.id, caller.id), eq(users.organisationId, caller.organisationId)));
+  return { chosenDepotId: depot.id };
 }
 
 async function summarise(db: Db, d: typeof depots.$inferSelect, now: Date): Promise<DepotSummary> {

@@ -1,5 +1,6 @@
 import { randomUUID } from 'node:crypto';
 import { describe, expect, it } from 'vitest';
+import { createDepot } from '../testing/depot-fixture';
 import { createOrganisation, createTestApp } from '../testing/test-app';
 import { mailFor } from '../testing/mail';
 
@@ -10,19 +11,21 @@ describe('the development outbox', () => {
   it('shows an admin only mail addressed to people of their own organisation', async () => {
     const a = await createOrganisation(app, { admin: ['admin'] });
     const b = await createOrganisation(app, { admin: ['admin'] });
+    const depotA = (await createDepot(app.db, a.organisationId)).depot.id;
+    const depotB = (await createDepot(app.db, b.organisationId)).depot.id;
     const ours = unique('ours');
     const theirs = unique('theirs');
     await app
       .request()
       .post('/api/users/invite')
       .set({ Authorization: `Bearer ${a.users.admin!.token}` })
-      .send({ email: ours, name: 'Ours', roles: ['yard'] })
+      .send({ email: ours, name: 'Ours', roles: ['yard'], depotIds: [depotA] })
       .expect(201);
     await app
       .request()
       .post('/api/users/invite')
       .set({ Authorization: `Bearer ${b.users.admin!.token}` })
-      .send({ email: theirs, name: 'Theirs', roles: ['yard'] })
+      .send({ email: theirs, name: 'Theirs', roles: ['yard'], depotIds: [depotB] })
       .expect(201);
     await mailFor(ours);
     await mailFor(theirs);

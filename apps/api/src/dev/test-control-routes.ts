@@ -13,6 +13,8 @@ export interface TestControl {
 const clockBody = z.strictObject({ at: z.iso.datetime({ offset: true }) });
 const demoBody = z.strictObject({
   tag: z.string().regex(/^[a-z0-9-]{1,24}$/, 'lower-case letters, digits and dashes, at most 24'),
+  /** The original depot alone (default: quick, what most journeys use) or the whole district of three. */
+  depots: z.enum(['main', 'district']).default('main'),
 });
 
 /**
@@ -30,8 +32,11 @@ export function testControlRouter(db: Db, clock: Clock, control: TestControl): R
   router.post('/demo', async (req, res) => {
     const body = demoBody.safeParse(req.body);
     if (!body.success)
-      throw new DomainError('validation_failed', 'Send { "tag": "..." }: lower-case letters, digits and dashes');
-    const seeded = await seedDemo(db, clock(), body.data.tag);
+      throw new DomainError(
+        'validation_failed',
+        'Send { "tag": "...", "depots"?: "main" | "district" }: the tag in lower-case letters, digits and dashes',
+      );
+    const seeded = await seedDemo(db, clock(), body.data.tag, { depots: body.data.depots });
     res.status(201).json({ ...seeded, now: clock().toISOString() });
   });
   return router;

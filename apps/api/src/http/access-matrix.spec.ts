@@ -33,6 +33,8 @@ const EXPECTED: Record<string, 'public' | readonly Role[]> = {
   'PATCH /users/:id': ['admin'],
   'GET /depots': ROLES,
   'GET /depots/:depotId/night': ROLES,
+  'PUT /me/depot': ROLES,
+  'GET /district': ['admin', 'finance'],
   'GET /dev/outbox': ['admin'],
   'GET /depots/:depotId': ROLES,
   'PUT /depots/:depotId': EDIT_DEPOT,

@@ -95,7 +95,7 @@ describe('bad input gets a 4xx that says what is wrong, and writes nothing', () 
       .request()
       .post('/api/users/invite')
       .set('Authorization', `Bearer ${admin.token}`)
-      .send({ email: 'x@test.nightyard.example', name: 'X', roles: ['yard'], isAdmin: true })
+      .send({ email: 'x@test.nightyard.example', name: 'X', roles: ['yard'], depotIds: [depotId], isAdmin: true })
       .expect(400);
     expect(res.body.error.fields.isAdmin).toBe('Unknown field "isAdmin": remove it');
     expect(await peopleCount()).toBe(before);
@@ -107,14 +107,14 @@ describe('bad input gets a 4xx that says what is wrong, and writes nothing', () 
       .request()
       .post('/api/users/invite')
       .set('Authorization', `Bearer ${admin.token}`)
-      .send({ email: 'y@test.nightyard.example', name: 'Y', roles: ['driver'] })
+      .send({ email: 'y@test.nightyard.example', name: 'Y', roles: ['driver'], depotIds: [depotId] })
       .expect(400);
     expect(bad.body.error.fields['roles[0]']).toMatch(/admin.*facilities.*supervisor.*yard.*finance/);
     const empty = await app
       .request()
       .post('/api/users/invite')
       .set('Authorization', `Bearer ${admin.token}`)
-      .send({ email: 'y@test.nightyard.example', name: 'Y', roles: [] })
+      .send({ email: 'y@test.nightyard.example', name: 'Y', roles: [], depotIds: [depotId] })
       .expect(400);
     expect(empty.body.error.fields.roles).toBe('Choose at least one role');
     expect(await peopleCount()).toBe(before);
@@ -169,7 +169,7 @@ describe('bad input gets a 4xx that says what is wrong, and writes nothing', () 
       .request()
       .post('/api/users/invite')
       .set(as(admin))
-      .send({ email: 'nul@test.nightyard.example', name: 'A\u0000B', roles: ['yard'] })
+      .send({ email: 'nul@test.nightyard.example', name: 'A\u0000B', roles: ['yard'], depotIds: [depotId] })
       .expect(400);
     expect(invite.body.error.fields.name).toMatch(/NUL character/);
     const surrogate = await app

@@ -38,7 +38,7 @@ describe('409 messages say nothing about other organisations', () => {
       .request()
       .post('/api/users/invite')
       .set(as(mine.admin))
-      .send({ email: theirs.admin.email, name: 'Poacher', roles: ['yard'] })
+      .send({ email: theirs.admin.email, name: 'Poacher', roles: ['yard'], depotIds: [mine.depotId] })
       .expect(409);
     expect(res.body.error).toEqual({
       code: 'conflict',
@@ -52,7 +52,7 @@ describe('409 messages say nothing about other organisations', () => {
       .request()
       .post('/api/users/invite')
       .set(as(mine.admin))
-      .send({ email: mine.fac.email, name: 'Again', roles: ['yard'] })
+      .send({ email: mine.fac.email, name: 'Again', roles: ['yard'], depotIds: [mine.depotId] })
       .expect(409);
     expect(own.body.error.message).toMatch(/your organisation/);
   });

@@ -169,7 +169,7 @@ const ROUTES: Route[] = [
   {
     method: 'post',
     path: () => '/api/users/invite',
-    body: { email: 'fuzz@test.nightyard.example', name: 'Fuzz', roles: ['yard'] },
+    body: { email: 'fuzz@test.nightyard.example', name: 'Fuzz', roles: ['yard'], depotIds: [uuid] },
   },
 ];
 

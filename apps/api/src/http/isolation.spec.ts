@@ -1,6 +1,7 @@
 import { eq } from 'drizzle-orm';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { depots, users } from '../db/schema';
+import { assignEveryone } from '../testing/depot-fixture';
 import { createOrganisation, createTestApp, type TestUser } from '../testing/test-app';
 
 const app = createTestApp();
@@ -10,22 +11,26 @@ let b: { organisationId: string; users: Record<string, TestUser> };
 beforeAll(async () => {
   a = await createOrganisation(app, { admin: ['admin'], yard: ['yard'] });
   b = await createOrganisation(app, { admin: ['admin'], finance: ['finance'] });
-  await app.db.insert(depots).values([
-    {
-      organisationId: a.organisationId,
-      name: 'Depot of A',
-      timezone: 'America/Chicago',
-      serviceLimitKw: 300,
-      otherLoadKw: [20],
-    },
-    {
-      organisationId: b.organisationId,
-      name: 'Depot of B',
-      timezone: 'America/Denver',
-      serviceLimitKw: 500,
-      otherLoadKw: [30],
-    },
-  ]);
+  const made = await app.db
+    .insert(depots)
+    .values([
+      {
+        organisationId: a.organisationId,
+        name: 'Depot of A',
+        timezone: 'America/Chicago',
+        serviceLimitKw: 300,
+        otherLoadKw: [20],
+      },
+      {
+        organisationId: b.organisationId,
+        name: 'Depot of B',
+        timezone: 'America/Denver',
+        serviceLimitKw: 500,
+        otherLoadKw: [30],
+      },
+    ])
+    .returning();
+  for (const d of made) await assignEveryone(app.db, d.organisationId, d.id);
 });
 
 const auth = (u: TestUser) => ({ Authorization: `Bearer ${u.token}` });
@@ -60,7 +65,7 @@ describe('organisation isolation', () => {
       .request()
       .post('/api/users/invite')
       .set(auth(a.users.admin!))
-      .send({ email: b.users.finance!.email, name: 'Poach', roles: ['admin'] })
+      .send({ email: b.users.finance!.email, name: 'Poach', roles: ['admin'], depotIds: [] })
       .expect(409);
     const [row] = await app.db.select().from(users).where(eq(users.id, b.users.finance!.id));
     expect(row!.organisationId).toBe(b.organisationId);

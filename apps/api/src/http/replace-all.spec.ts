@@ -20,10 +20,12 @@ const key = () => `k-${Math.random().toString(36).slice(2)}`;
 const all = <T>(n: number, send: (i: number) => PromiseLike<T>) =>
   Promise.all(Array.from({ length: n }, (_, i) => send(i)));
 
+let inviteDepotId: string;
 beforeAll(async () => {
   const org = await createOrganisation(app, { boss: ['admin', 'supervisor', 'facilities', 'finance'] });
   boss = org.users.boss!;
   organisationId = org.organisationId;
+  inviteDepotId = (await createDepot(app.db, organisationId)).depot.id;
 });
 
 async function newDepot() {
@@ -206,7 +208,7 @@ describe('invitations', () => {
         .request()
         .post('/api/users/invite')
         .set(as(boss))
-        .send({ email, name: 'Race', roles: ['yard'] }),
+        .send({ email, name: 'Race', roles: ['yard'], depotIds: [inviteDepotId] }),
     );
     expect(answers.map((x) => x.status)).toEqual(Array(TIMES).fill(201));
     expect(new Set(answers.map((x) => x.body.user.id)).size).toBe(1);
@@ -220,7 +222,7 @@ describe('invitations', () => {
         .request()
         .post('/api/users/invite')
         .set(as(boss))
-        .send({ email, name: i % 2 ? 'Ann' : 'Bea', roles: i % 2 ? ['yard'] : ['finance'] }),
+        .send({ email, name: i % 2 ? 'Ann' : 'Bea', roles: i % 2 ? ['yard'] : ['finance'], depotIds: [inviteDepotId] }),
     );
     expect(answers.map((x) => x.status)).toEqual(Array(TIMES).fill(201));
     const rows = await app.db.select().from(users).where(eq(users.email, email));
@@ -315,7 +317,7 @@ describe('Idempotency-Key', () => {
         .post('/api/users/invite')
         .set(as(boss))
         .set('Idempotency-Key', k)
-        .send({ email, name: 'Once', roles: ['yard'] });
+        .send({ email, name: 'Once', roles: ['yard'], depotIds: [inviteDepotId] });
     const first = await send().expect(201);
     const again = await send().expect(201);
     expect(again.body).toEqual(first.body);

@@ -7,6 +7,7 @@ import { idempotencyKeyOf, requestHash, type IdempotencyStore } from './idempote
 import { parseOrThrow } from './validate';
 import { checkedTextOf, isChecked } from './checked-answer';
 import type { AuthUser } from '../auth/auth-user';
+import { assertMayOpenDepot } from '../depots/depot-access';
 
 type Method = 'get' | 'post' | 'patch' | 'put' | 'delete';
 
@@ -91,6 +92,10 @@ export class ApiRoutes {
         if (!hasAnyRole(user.roles, spec.access)) throw forbidden();
       }
       const params = (spec.params ? parseOrThrow(spec.params, req.params, 'params') : undefined) as Out<P>;
+      // Every /depots/:depotId/... route: a depot the caller may not see is "not found" before the
+      // rest of the request is read (the services then read the depot within the organisation).
+      const depotId = (params as { depotId?: unknown } | undefined)?.depotId;
+      if (user && typeof depotId === 'string') assertMayOpenDepot(user, depotId);
       const query = (spec.query ? parseOrThrow(spec.query, req.query ?? {}, 'query') : undefined) as Out<Q>;
       const body = (spec.body ? parseOrThrow(spec.body, req.body ?? {}, 'body') : undefined) as Out<B>;
       const key = spec.idempotent ? idempotencyKeyOf(req.headers['idempotency-key']) : undefined;

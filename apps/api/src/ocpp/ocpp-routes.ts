@@ -12,7 +12,7 @@ import { chargers, depots, plans } from '../db/schema';
 import { DomainError, conflict, notFound } from '../http/errors';
 import type { ApiRoutes } from '../http/route';
 import { hashPassword } from '../auth/secrets';
-import { depotOf } from '../depots/depot-access';
+import { assertMayOpenDepot, depotOf } from '../depots/depot-access';
 import { chargingProfiles } from './charging-profiles';
 import { profileNightsOf } from './profile-nights';
 
@@ -43,6 +43,7 @@ export function ocppRoutes(api: ApiRoutes, { db }: AppDeps) {
         .from(plans)
         .where(and(eq(plans.id, params.id), eq(plans.organisationId, user.organisationId)));
       if (!plan) throw notFound('That plan');
+      assertMayOpenDepot(user, plan.depotId, 'That plan');
       if (plan.state === 'draft' || !plan.result)
         throw conflict('Only a published plan is handed to chargers: publish it first');
       const list = await db

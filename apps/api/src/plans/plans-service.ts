@@ -14,7 +14,7 @@ import { depots, plans, users } from '../db/schema';
 import { DomainError, conflict, notFound } from '../http/errors';
 import { MAX_WHAT_IF_BUS_SLOTS, formatCount } from '../http/limits';
 import type { AuthUser } from '../auth/auth-user';
-import { depotOf } from '../depots/depot-access';
+import { assertMayOpenDepot, depotOf, type DepotViewer } from '../depots/depot-access';
 import type { JobQueue } from '../jobs/job-queue';
 import type { Mailer } from '../mail/mailer';
 import { nightMailLink } from '../mail/links';
@@ -59,7 +59,7 @@ function toSummary(
   };
 }
 
-async function loadPlan(db: Db, caller: Pick<AuthUser, 'organisationId'>, id: string) {
+async function loadPlan(db: Db, caller: DepotViewer, id: string) {
   const [row] = await db
     .select({ plan: plans, createdBy: creator.name, publishedBy: publisher.name })
     .from(plans)
@@ -67,6 +67,8 @@ async function loadPlan(db: Db, caller: Pick<AuthUser, 'organisationId'>, id: st
     .leftJoin(publisher, eq(publisher.id, plans.publishedBy))
     .where(and(eq(plans.id, id), eq(plans.organisationId, caller.organisationId)));
   if (!row) throw notFound('That plan');
+  // A plan of a depot the caller may not see does not exist for them either.
+  assertMayOpenDepot(caller, row.plan.depotId, 'That plan');
   return row;
 }
 
@@ -295,6 +297,7 @@ export async function publishPlan(
       .from(plans)
       .where(and(eq(plans.id, id), eq(plans.organisationId, caller.organisationId)));
     if (!plan) throw notFound('That plan');
+    assertMayOpenDepot(caller, plan.depotId, 'That plan');
     const [depot] = await tx
       .select({ id: depots.id, timezone: depots.timezone })
       .from(depots)
@@ -340,7 +343,7 @@ async function notifyPublished(
   link: (path: string) => string,
 ) {
   const [depot] = await db.select().from(depots).where(eq(depots.id, plan.depotId));
-  const recipients = await nightStaff(db, plan.organisationId);
+  const recipients = await nightStaff(db, plan.organisationId, plan.depotId);
   const result = resultOf(plan)!;
   const scenario = plan.scenario;
   const short = result.buses.filter((b) => b.shortfallKwh > 1e-6);
@@ -367,12 +370,7 @@ async function notifyPublished(
 }
 
 /** Which buses changed charger or plug-in times between two versions. */
-export async function comparePlans(
-  db: Db,
-  caller: Pick<AuthUser, 'organisationId'>,
-  id: string,
-  otherId: string,
-): Promise<PlanComparison> {
+export async function comparePlans(db: Db, caller: DepotViewer, id: string, otherId: string): Promise<PlanComparison> {
   const [a, b] = await Promise.all([loadPlan(db, caller, otherId), loadPlan(db, caller, id)]);
   const ra = resultOf(a.plan);
   const rb = resultOf(b.plan);

@@ -6,7 +6,7 @@ import type { Db } from '../db/client';
 import { chargers, plans } from '../db/schema';
 import { DomainError, conflict, notFound } from '../http/errors';
 import type { AuthUser } from '../auth/auth-user';
-import { depotOf } from '../depots/depot-access';
+import { assertMayOpenDepot, depotOf } from '../depots/depot-access';
 import type { JobQueue } from '../jobs/job-queue';
 import { nightOfDepot } from '../night/depot-night';
 import { prepareNight, storeDraft } from './plans-service';
@@ -26,6 +26,7 @@ async function recheck(db: Db, caller: AuthUser, id: string, now: Date) {
     .from(plans)
     .where(and(eq(plans.id, id), eq(plans.organisationId, caller.organisationId)));
   if (!plan) throw notFound('That plan');
+  assertMayOpenDepot(caller, plan.depotId, 'That plan');
   if (plan.kind !== 'what-if')
     throw conflict(
       `Version ${plan.version} is not a what-if: only a what-if is adopted. Review and publish this version as it is.`,

@@ -1,4 +1,3 @@
-import { eq } from 'drizzle-orm';
 import { z } from 'zod';
 import {
   previewQuerySchema,
@@ -10,7 +9,7 @@ import {
   SETUP_EDITORS,
 } from '@nightyard/contracts';
 import type { AppDeps } from '../app-deps';
-import { depots } from '../db/schema';
+import { visibleDepots } from '../depots/depots-service';
 import type { ApiRoutes } from '../http/route';
 import { previewDay } from '@nightyard/scheduling';
 import * as ratePlanService from './rate-plans-service';
@@ -94,13 +93,9 @@ export function ratesRoutes(api: ApiRoutes, { db }: AppDeps) {
     },
     async ({ user, params, query }) => {
       const plan = await ratePlanService.getRatePlan(db, user, params.id);
-      const [depot] = await db
-        .select({ tz: depots.timezone })
-        .from(depots)
-        .where(eq(depots.organisationId, user.organisationId))
-        .limit(1);
-      // Clock changes depend on the zone: the depot's unless the caller names one.
-      return previewDay(plan.definition, query.date, query.timezone ?? depot?.tz ?? 'UTC');
+      // Clock changes depend on the zone: a depot's the caller may see unless the caller names one.
+      const zone = query.timezone ?? (await visibleDepots(db, user))[0]?.timezone ?? 'UTC';
+      return previewDay(plan.definition, query.date, zone);
     },
   );
   api.add(

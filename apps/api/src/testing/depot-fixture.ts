@@ -1,13 +1,29 @@
 import { ratePlanDefinitionSchema } from '@nightyard/contracts';
+import { sql } from 'drizzle-orm';
 import type { Db } from '../db/client';
 import { chargers, depotRatePlans, depots, powerCabinets, ratePlans } from '../db/schema';
 
-/** A small invented depot for tests: two chargers on a shared cabinet, one alone, a TOU plan. */
-export async function createDepot(db: Db, organisationId: string, name = 'Test depot') {
+/**
+ * Assigns a depot to every non-administrator of its organisation, as migration 0016 did for the
+ * depots that existed then: the tests written before people had depots keep their meaning.
+ * Tests of the per-depot access assign depots themselves.
+ */
+export async function assignEveryone(db: Db, organisationId: string, depotId: string): Promise<void> {
+  await db.execute(sql`insert into user_depots (user_id, depot_id)
+    select id, ${depotId}::uuid from users where organisation_id = ${organisationId} and not ('admin' = any(roles))
+    on conflict do nothing`);
+}
+
+/**
+ * A small invented depot for tests: two chargers on a shared cabinet, one alone, a TOU plan;
+ * assigned to the organisation's people already there unless `assign` is false.
+ */
+export async function createDepot(db: Db, organisationId: string, name = 'Test depot', assign = true) {
   const [depot] = await db
     .insert(depots)
     .values({ organisationId, name, timezone: 'America/Chicago', serviceLimitKw: 300, otherLoadKw: [20] })
     .returning();
+  if (assign) await assignEveryone(db, organisationId, depot!.id);
   const [cabinet] = await db
     .insert(powerCabinets)
     .values({ organisationId, depotId: depot!.id, label: 'P1', limitKw: 120 })

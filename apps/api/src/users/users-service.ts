@@ -1,8 +1,14 @@
-import { and, asc, eq, isNull, ne, sql } from 'drizzle-orm';
-import type { InviteUserRequest, UpdateUserRequest, User } from '@nightyard/contracts';
+import { and, asc, eq, inArray, isNull, ne, sql } from 'drizzle-orm';
+import {
+  depotAssignmentProblem,
+  type InviteUserRequest,
+  type Role,
+  type UpdateUserRequest,
+  type User,
+} from '@nightyard/contracts';
 import type { Db } from '../db/client';
-import { organisations, refreshTokens, users } from '../db/schema';
-import { lockTarget } from '../db/locks';
+import { depots, organisations, refreshTokens, userDepots, users } from '../db/schema';
+import { lockTarget, type Tx } from '../db/locks';
 import { DomainError, conflict, notFound } from '../http/errors';
 import type { AuthUser } from '../auth/auth-user';
 import { createActionToken } from '../auth/auth-service';
@@ -12,7 +18,7 @@ import { invitationMail } from '../mail/templates';
 
 type UserRow = typeof users.$inferSelect;
 
-const toUser = (u: UserRow): User => ({
+const toUser = (u: UserRow, depotIds: readonly string[]): User => ({
   id: u.id,
   email: u.email,
   name: u.name,
@@ -20,15 +26,69 @@ const toUser = (u: UserRow): User => ({
   status: u.status,
   createdAt: u.createdAt.toISOString(),
   lastSignInAt: u.lastSignInAt?.toISOString() ?? null,
+  depotIds: [...depotIds].sort(),
 });
+
+/** A person's depots, read beside the person (qualified by hand: inside the subquery a bare "id" is ambiguous). */
+const depotIdsColumn = sql<
+  string[]
+>`coalesce((select array_agg(ud.depot_id::text order by ud.depot_id) from ${userDepots} ud where ud.user_id = "users"."id"), '{}'::text[])`;
 
 export async function listUsers(db: Db, caller: AuthUser): Promise<User[]> {
   const rows = await db
-    .select()
+    .select({ user: users, depotIds: depotIdsColumn })
     .from(users)
     .where(eq(users.organisationId, caller.organisationId))
     .orderBy(asc(users.name));
-  return rows.map(toUser);
+  return rows.map((r) => toUser(r.user, r.depotIds));
+}
+
+/**
+ * Replaces a person's depots after checking them: the roles allow them (depotAssignmentProblem,
+ * the rule the contracts give the web app too) and each depot is one of the organisation's.
+ * Runs inside the caller's transaction, serialised per person (lockTarget), so two edits of one
+ * person's depots queue instead of mixing; the depots' rows are locked (FOR SHARE) so none is
+ * removed under the assignment. The user cache hears of it from the table's trigger (0016).
+ */
+async function replaceDepots(
+  tx: Tx,
+  organisationId: string,
+  userId: string,
+  roles: readonly Role[],
+  depotIds: readonly string[],
+): Promise<void> {
+  await lockTarget(tx, 'user-depots', userId);
+  await checkDepots(tx, organisationId, roles, depotIds);
+  await tx.delete(userDepots).where(eq(userDepots.userId, userId));
+  if (depotIds.length) await tx.insert(userDepots).values(depotIds.map((depotId) => ({ userId, depotId })));
+}
+
+async function checkDepots(
+  tx: Tx,
+  organisationId: string,
+  roles: readonly Role[],
+  depotIds: readonly string[],
+): Promise<void> {
+  const problem = depotAssignmentProblem(roles, depotIds);
+  if (problem) throw new DomainError('validation_failed', problem, { depotIds: problem });
+  if (!depotIds.length) return;
+  const found = await tx
+    .select({ id: depots.id })
+    .from(depots)
+    .where(and(eq(depots.organisationId, organisationId), inArray(depots.id, [...depotIds])))
+    .for('share');
+  const known = new Set(found.map((d) => d.id));
+  const missing = depotIds.find((d) => !known.has(d));
+  if (missing) {
+    // Said the same way whether the depot belongs to another organisation or to none.
+    const message = `Depot ${missing} is not a depot of your organisation: choose among your depots`;
+    throw new DomainError('validation_failed', message, { depotIds: message });
+  }
+}
+
+async function depotIdsOf(tx: Tx | Db, userId: string): Promise<string[]> {
+  const rows = await tx.select({ id: userDepots.depotId }).from(userDepots).where(eq(userDepots.userId, userId));
+  return rows.map((r) => r.id);
 }
 
 export interface InviteSettings {
@@ -79,6 +139,7 @@ export async function inviteUser(
             })
             .returning()
         )[0]!;
+    await replaceDepots(tx, caller.organisationId, row.id, req.roles, req.depotIds);
     return {
       user: row,
       token: await createActionToken(tx as unknown as Db, row.id, 'invite', s.inviteHours * 3_600_000, now),
@@ -98,7 +159,7 @@ export async function inviteUser(
       hours: s.inviteHours,
     }),
   );
-  return toUser(user);
+  return toUser(user, req.depotIds);
 }
 
 async function activeAdminsOtherThan(db: Db, organisationId: string, userId: string): Promise<number> {
@@ -141,6 +202,13 @@ export async function updateUser(
         'The organisation needs at least one active administrator: give someone else the admin role first',
       );
     }
+    // The roles and depots the person will have; checked together whenever either is edited.
+    let depotIds = await depotIdsOf(tx, id);
+    if (req.roles || req.depotIds) {
+      depotIds = req.depotIds ? [...req.depotIds] : depotIds;
+      if (req.depotIds) await replaceDepots(tx, caller.organisationId, id, req.roles ?? user.roles, depotIds);
+      else await checkDepots(tx, caller.organisationId, req.roles!, depotIds);
+    }
     const status =
       req.active === undefined ? user.status : req.active ? (user.passwordHash ? 'active' : 'invited') : 'deactivated';
     const [updated] = await tx
@@ -154,7 +222,7 @@ export async function updateUser(
         .set({ revokedAt: now })
         .where(and(eq(refreshTokens.userId, id), isNull(refreshTokens.revokedAt)));
     }
-    return toUser(updated!);
+    return toUser(updated!, depotIds);
   });
   // Committed: the next request of this user must see the change (see known-users.ts).
   forgetUser(id);

@@ -1,18 +1,22 @@
 import { randomUUID } from 'node:crypto';
 import { eq } from 'drizzle-orm';
 import { beforeAll, describe, expect, it } from 'vitest';
+import type { User } from '@nightyard/contracts';
 import { actionTokens, users } from '../db/schema';
+import { createDepot } from '../testing/depot-fixture';
 import { linkToken, mailFor } from '../testing/mail';
 import { createOrganisation, createTestApp, type TestUser } from '../testing/test-app';
 
 const app = createTestApp();
 let admin: TestUser;
 let organisationId: string;
+let depotId: string;
 
 beforeAll(async () => {
   const org = await createOrganisation(app, { admin: ['admin'], yard: ['yard'] });
   admin = org.users.admin!;
   organisationId = org.organisationId;
+  depotId = (await createDepot(app.db, organisationId)).depot.id;
 });
 
 const auth = (u: TestUser) => ({ Authorization: `Bearer ${u.token}` });
@@ -25,7 +29,7 @@ describe('invitations', () => {
       .request()
       .post('/api/users/invite')
       .set(auth(admin))
-      .send({ email, name: 'Noor Haddad', roles: ['yard', 'supervisor'] })
+      .send({ email, name: 'Noor Haddad', roles: ['yard', 'supervisor'], depotIds: [depotId] })
       .expect(201);
     expect(invited.body.user.status).toBe('invited');
 
@@ -56,7 +60,7 @@ describe('invitations', () => {
       .request()
       .post('/api/users/invite')
       .set(auth(admin))
-      .send({ email: admin.email, name: 'Someone', roles: ['yard'] })
+      .send({ email: admin.email, name: 'Someone', roles: ['yard'], depotIds: [depotId] })
       .expect(409);
     expect(res.body.error.fields).toEqual({ email: 'Already in use' });
     const after = await app.db.select().from(users).where(eq(users.organisationId, organisationId));
@@ -69,7 +73,7 @@ describe('invitations', () => {
       .request()
       .post('/api/users/invite')
       .set(auth(admin))
-      .send({ email, name: 'Late', roles: ['finance'] })
+      .send({ email, name: 'Late', roles: ['finance'], depotIds: [depotId] })
       .expect(201);
     const token = linkToken((await mailFor(email))[0]!.text);
     const [u] = await app.db.select().from(users).where(eq(users.email, email));
@@ -93,7 +97,7 @@ describe('invitations', () => {
       .request()
       .post('/api/users/invite')
       .set(auth(admin))
-      .send({ email, name: 'Gone', roles: ['yard'] })
+      .send({ email, name: 'Gone', roles: ['yard'], depotIds: [depotId] })
       .expect(201);
     const token = linkToken((await mailFor(email))[0]!.text);
     await app
@@ -190,5 +194,95 @@ describe('forgot password', () => {
       .send({ email: p.forgetful!.email, password: 'brand-new-password-9' })
       .expect(200);
     expect(await mailFor(unknownEmail, 1, 300)).toHaveLength(0);
+  });
+});
+
+describe("people's depots", () => {
+  let boss: TestUser;
+  let org: string;
+  let one: string;
+  let two: string;
+  let theirs: string;
+  beforeAll(async () => {
+    const made = await createOrganisation(app, { boss: ['admin'] });
+    boss = made.users.boss!;
+    org = made.organisationId;
+    one = (await createDepot(app.db, org, 'One')).depot.id;
+    two = (await createDepot(app.db, org, 'Two')).depot.id;
+    theirs = (await createDepot(app.db, organisationId, 'Not theirs')).depot.id;
+  });
+  const invite = (roles: string[], depotIds: string[]) =>
+    app
+      .request()
+      .post('/api/users/invite')
+      .set(auth(boss))
+      .send({ email: unique('depots'), name: 'Depot Person', roles, depotIds });
+  const listed = async (id: string) =>
+    ((await app.request().get('/api/users').set(auth(boss)).expect(200)).body.users as User[]).find((u) => u.id === id)!
+      .depotIds;
+
+  it('invites with depots, and lists them', async () => {
+    const sup = await invite(['supervisor', 'finance'], [two, one]).expect(201);
+    expect(sup.body.user.depotIds).toEqual([one, two].sort());
+    expect(await listed(sup.body.user.id)).toEqual([one, two].sort());
+    const yard = await invite(['yard'], [one]).expect(201);
+    expect(await listed(yard.body.user.id)).toEqual([one]);
+    // An administrator sees every depot whatever they hold: none is fine.
+    expect((await invite(['admin'], []).expect(201)).body.user.depotIds).toEqual([]);
+  });
+
+  it('refuses yard staff with other than one depot, others with none, and a depot of another organisation', async () => {
+    const before = await app.db.select().from(users).where(eq(users.organisationId, org));
+    const twoYard = await invite(['yard'], [one, two]).expect(400);
+    expect(twoYard.body.error.fields.depotIds).toBe('Yard staff work at one depot: choose exactly one');
+    const none = await invite(['finance'], []).expect(400);
+    expect(none.body.error.fields.depotIds).toBe('Choose at least one depot');
+    const foreign = await invite(['finance'], [one, theirs]).expect(400);
+    expect(foreign.body.error.fields.depotIds).toBe(
+      `Depot ${theirs} is not a depot of your organisation: choose among your depots`,
+    );
+    const unknown = randomUUID();
+    const missing = await invite(['finance'], [unknown]).expect(400);
+    expect(missing.body.error.fields.depotIds).toMatch(new RegExp(`Depot ${unknown} is not a depot of your`));
+    expect(await app.db.select().from(users).where(eq(users.organisationId, org))).toHaveLength(before.length);
+  });
+
+  it("edits replace a person's depots, checked against their roles new or kept", async () => {
+    const id = (await invite(['supervisor'], [one]).expect(201)).body.user.id as string;
+    const patch = (body: object) => app.request().patch(`/api/users/${id}`).set(auth(boss)).send(body);
+    expect((await patch({ depotIds: [one, two] }).expect(200)).body.user.depotIds).toEqual([one, two].sort());
+    // Yard alone with two depots: refused, nothing changed.
+    const res = await patch({ roles: ['yard'] }).expect(400);
+    expect(res.body.error.fields).toEqual({ depotIds: 'Yard staff work at one depot: choose exactly one' });
+    expect(await listed(id)).toEqual([one, two].sort());
+    const [row] = await app.db.select().from(users).where(eq(users.id, id));
+    expect(row!.roles).toEqual(['supervisor']);
+    expect((await patch({ roles: ['yard'], depotIds: [two] }).expect(200)).body.user).toMatchObject({
+      roles: ['yard'],
+      depotIds: [two],
+    });
+    expect((await patch({ depotIds: [] }).expect(400)).body.error.fields.depotIds).toMatch(/exactly one/);
+    expect((await patch({ depotIds: [theirs] }).expect(400)).body.error.fields.depotIds).toMatch(/not a depot of your/);
+    expect(await listed(id)).toEqual([two]);
+    // A name alone checks nothing of the depots; an admin may hold none.
+    expect((await patch({ name: 'Renamed' }).expect(200)).body.user.depotIds).toEqual([two]);
+    expect((await patch({ roles: ['admin'], depotIds: [] }).expect(200)).body.user.depotIds).toEqual([]);
+  });
+
+  it('edits of one person at once leave one whole set of depots (serialised per person)', async () => {
+    const id = (await invite(['finance'], [one]).expect(201)).body.user.id as string;
+    const sets = [[one], [two], [one, two], [two, one]];
+    const answers = await Promise.all(
+      Array.from({ length: 8 }, (_, i) =>
+        app
+          .request()
+          .patch(`/api/users/${id}`)
+          .set(auth(boss))
+          .send({ depotIds: sets[i % sets.length] }),
+      ),
+    );
+    expect(answers.map((a) => a.status)).toEqual(Array(8).fill(200));
+    const final = await listed(id);
+    expect([[one], [two], [one, two].sort()]).toContainEqual(final);
   });
 });

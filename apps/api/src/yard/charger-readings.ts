@@ -76,7 +76,14 @@ export async function takeChargerReading(
     const zone = depot.timezone;
     revised = await replanAndPublish(
       deps,
-      { organisationId: depot.organisationId, id: null, name: `charger ${reading.charger}` },
+      // A charger reports for its own depot only.
+      {
+        organisationId: depot.organisationId,
+        id: null,
+        name: `charger ${reading.charger}`,
+        roles: [],
+        depotIds: [depot.id],
+      },
       depot.id,
       {
         kind: 'soc_reading',

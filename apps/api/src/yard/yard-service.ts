@@ -18,7 +18,7 @@ import { prepared } from '../db/prepared';
 import { chargers, depots, plans, shiftAcknowledgements, users, yardConfirmations, yardReports } from '../db/schema';
 import { DomainError, conflict, notFound } from '../http/errors';
 import type { AuthUser } from '../auth/auth-user';
-import { depotOf } from '../depots/depot-access';
+import { assertMayOpenDepot, depotOf, type DepotViewer } from '../depots/depot-access';
 import { guessDepot, rememberDepot } from '../depots/depot-guess';
 import { markCheckedText } from '../http/checked-answer';
 import type { Mailer } from '../mail/mailer';
@@ -194,6 +194,8 @@ export async function tonight(
   // one when the depot's zone is known (the depot with the night's plan, checked against the zone
   // guessed), two on the first ask: the Yard and Tonight ask on every load and refresh. The
   // night's run times are remembered per depot and day.
+  // Checked in memory before the one query: the caller's depots came with the caller.
+  assertMayOpenDepot(caller, depotId);
   let zone = guessDepot(depotId)?.timezone ?? (await depotOf(db, caller, depotId)).timezone;
   for (;;) {
     const { tonight: night } = await nightOfDepot(db, { id: depotId, timezone: zone }, now);
@@ -289,12 +291,13 @@ function tonightPlanOf(detail: PlanDetail): TonightPlan {
   };
 }
 
-async function publishedPlanOf(db: Db, caller: Pick<AuthUser, 'organisationId'>, planId: string): Promise<PlanRow> {
+async function publishedPlanOf(db: Db, caller: DepotViewer, planId: string): Promise<PlanRow> {
   const [plan] = await db
     .select()
     .from(plans)
     .where(and(eq(plans.id, planId), eq(plans.organisationId, caller.organisationId)));
   if (!plan) throw notFound('That plan');
+  assertMayOpenDepot(caller, plan.depotId, 'That plan');
   if (plan.state !== 'published') {
     const [current] = await db
       .select()
@@ -393,7 +396,7 @@ type Change =
   | (Extract<YardReport, { kind: 'soc_reading' }> & { reason: string });
 
 /** Who reports: a signed-in person, or a charger (no person; `name` says which, as in "charger D2"). */
-export type Reporter = Pick<AuthUser, 'organisationId' | 'name'> & { id: string | null };
+export type Reporter = Pick<AuthUser, 'organisationId' | 'name' | 'roles' | 'depotIds'> & { id: string | null };
 
 /**
  * Applies what the yard reports to the rest of the night: the engine re-plans from now with the
@@ -690,7 +693,7 @@ export async function replanAndPublish(
   const soon = stepsDueSoon(yardSteps(merged, now, confirmations, context), now).map(
     (s) => `${DateTime.fromISO(s.at, { zone }).toFormat('HH:mm')} ${s.text}`,
   );
-  const recipients = await nightStaff(db, caller.organisationId);
+  const recipients = await nightStaff(db, caller.organisationId, depotId);
   let notified = 0;
   for (const r of recipients) {
     await deps.mailer
