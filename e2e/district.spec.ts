@@ -35,35 +35,38 @@ test('a supervisor switches depot: Tonight and Plans show that depot, and the ch
   await pageAtApiTime(page);
   await signInAs(page, district.emails.supervisor);
 
-  // Nobody chose yet: the first depot.
-  await expect(switcher(page)).toHaveAccessibleName(`Depot: ${main.name}. Switch depot`);
+  // Nobody chose yet: the first of the list (by name, Kestrel Hollow).
+  const first = [...district.depots].sort((x, y) => x.name.localeCompare(y.name))[0]!;
+  expect(first.name).toBe(kestrel.name);
+  await expect(switcher(page)).toHaveAccessibleName(`Depot: ${kestrel.name}. Switch depot`);
   await openSection(page, 'Tonight');
   const chargers = page.getByRole('list', { name: 'Each charger' });
-  await expect(chargers.locator('[data-charger="C1"]')).toBeVisible();
-
-  await switchTo(page, kestrel.name);
   await expect(chargers.locator('[data-charger="K1"]')).toBeVisible();
-  await expect(chargers.locator('[data-charger="F2"]')).toBeVisible();
-  await expect(chargers.locator('[data-charger="C1"]')).toHaveCount(0);
-  await expect(page.getByRole('main')).toContainText(kestrel.name);
+
+  await switchTo(page, main.name);
+  await expect(chargers.locator('[data-charger="C1"]')).toBeVisible();
+  await expect(chargers.locator('[data-charger="K1"]')).toHaveCount(0);
+  await expect(page.getByRole('main')).toContainText(main.name);
   await expectAccessible(page);
 
   await openSection(page, 'Plans');
   const figures = page.getByRole('list', { name: 'Plan figures' });
-  await expect(figures).toContainText('Service limit 280 kW');
+  await expect(figures).toContainText('Service limit 450 kW');
 
-  // Remembered by the API: a reload (a new page) opens on Kestrel Hollow again.
+  // Remembered by the API: a reload (a new page) opens on the depot chosen again.
   await page.reload();
   await expect(page.getByRole('heading', { level: 1, name: 'Plans' })).toBeVisible();
-  await expect(switcher(page)).toHaveAccessibleName(`Depot: ${kestrel.name}. Switch depot`);
-  await expect(figures).toContainText('Service limit 280 kW');
-
-  // And back: the original depot's figures, none of Kestrel's.
-  await switchTo(page, main.name);
+  await expect(switcher(page)).toHaveAccessibleName(`Depot: ${main.name}. Switch depot`);
   await expect(figures).toContainText('Service limit 450 kW');
+
+  // And over to Kestrel Hollow: its figures, none of the original depot's.
+  await switchTo(page, kestrel.name);
+  await expect(figures).toContainText('Service limit 280 kW');
   await openSection(page, 'Tonight');
-  await expect(chargers.locator('[data-charger="C1"]')).toBeVisible();
-  await expect(chargers.locator('[data-charger="K1"]')).toHaveCount(0);
+  await expect(chargers.locator('[data-charger="K1"]')).toBeVisible();
+  await expect(chargers.locator('[data-charger="F2"]')).toBeVisible();
+  await expect(chargers.locator('[data-charger="C1"]')).toHaveCount(0);
+  await expect(page.getByRole('main')).toContainText(kestrel.name);
 });
 
 test('an administrator opens the District overview at laptop and phone width, and a depot from it', async ({
