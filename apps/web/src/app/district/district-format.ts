@@ -16,7 +16,9 @@ export interface DistrictRow {
   peakShare: number | null;
   overLimit: boolean;
   cost: string;
+  /** The billing period ("December 2026") and its rate plan; null without a rate plan. */
   period: string | null;
+  ratePlan: string | null;
   billToDate: string;
   projectedBill: string;
   facilityPeak: string;
@@ -70,7 +72,8 @@ export function districtView(o: DistrictOverview): DistrictView {
       peakShare: share === null ? null : Math.min(100, share),
       overLimit: share !== null && share > 100 + 1e-9,
       cost: t.cost !== null ? money(t.cost, c) : DASH,
-      period: p ? `${periodLabel(p.start, p.end)}, ${p.ratePlanName}` : null,
+      period: p ? periodLabel(p.start, p.end) : null,
+      ratePlan: p?.ratePlanName ?? null,
       billToDate: p ? money(p.billToDate, c) : DASH,
       projectedBill: p ? money(p.projectedBill, c) : DASH,
       facilityPeak: p ? kw(p.peakKw) : DASH,

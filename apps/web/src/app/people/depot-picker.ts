@@ -22,7 +22,12 @@ let nextId = 0;
       <legend>Depots</legend>
       <p class="hint" [id]="hintId">{{ hint() }}</p>
       @if (single()) {
-        <mat-radio-group class="boxes" aria-label="Depot" [value]="chosen().at(0) ?? null" (change)="set([$event.value])">
+        <mat-radio-group
+          class="boxes"
+          aria-label="Depot"
+          [value]="chosen().at(0) ?? null"
+          (change)="set([$event.value])"
+        >
           @for (d of depots(); track d.id) {
             <mat-radio-button [value]="d.id">{{ d.name }}</mat-radio-button>
           }

@@ -73,12 +73,12 @@ describe('PeoplePage', () => {
   it("shows each person's depots by name; administrators see all of them", () => {
     const depotCells = [...el.querySelectorAll('tr[mat-row]')].map((r) => [
       r.querySelector('td')?.textContent?.trim(),
-      r.querySelector('td.depots')?.textContent?.trim(),
+      r.querySelector('td.depots')?.textContent?.replace(/\s+/g, ' ').replace(/ ,/g, ',').trim(),
     ]);
     expect(depotCells).toEqual([
       ['Ben Ito', 'North Depot'],
       ['Lee Park', 'North Depot, Riverside Depot'],
-      ['Zoe Adler', 'All depots'],
+      ['Zoe Adler', 'Every depot'],
     ]);
   });
 

@@ -25,8 +25,8 @@ import { RolesDialog } from './roles-dialog';
 export interface PersonRow {
   user: User;
   roleNames: string[];
-  /** Where they work, by name ("All depots" for an administrator, who sees every one). */
-  depotNames: string;
+  /** Where they work, by name ("Every depot" for an administrator, who sees them all). */
+  depotNames: string[];
   statusLabel: string;
   statusIcon: string;
   lastSignIn: string;
@@ -34,10 +34,10 @@ export interface PersonRow {
 }
 
 /** A person's depots by name, in the list's order; administrators see every depot. */
-export function depotNamesOf(user: User, names: ReadonlyMap<string, string>): string {
-  if (user.roles.includes('admin')) return 'All depots';
+export function depotNamesOf(user: User, names: ReadonlyMap<string, string>): string[] {
+  if (user.roles.includes('admin')) return ['Every depot'];
   const known = [...names.entries()].filter(([id]) => user.depotIds.includes(id)).map(([, name]) => name);
-  return known.length ? known.join(', ') : 'None';
+  return known.length ? known : ['None'];
 }
 
 @Component({
