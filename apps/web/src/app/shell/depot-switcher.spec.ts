@@ -13,7 +13,9 @@ import { trackUnsaved } from '../core/unsaved-edits';
 import { DepotListStore } from '../depot-state/depot-list-store';
 import { BusesPage } from '../fleet/buses-page';
 import { bus } from '../fleet/fleet-fixtures';
+import { FakeLiveTransport, provideFakeLive } from '../testing/live-fake';
 import { NORTH_ID, SOUTH_ID, depot, settle, southDepot, tokenResponse } from '../testing/fixtures';
+import { TonightPage } from '../tonight/tonight-page';
 import { Shell } from './shell';
 
 /** A page with a form, standing for the sections' forms with a Save. */
@@ -43,12 +45,14 @@ describe('DepotSwitcher in the shell', () => {
             canActivateChild: [depotLinkGuard],
             children: [
               { path: 'fleet', component: BusesPage },
+              { path: 'tonight', component: TonightPage },
               { path: 'probe', component: EditProbe },
             ],
           },
         ]),
         provideHttpClient(),
         provideHttpClientTesting(),
+        provideFakeLive(),
         { provide: MatDialog, useValue: { open } },
       ],
     });
@@ -135,6 +139,47 @@ describe('DepotSwitcher in the shell', () => {
     expect(el.querySelector('header')!.textContent).toContain('Riverside Depot');
     expect(el.querySelector('main')!.textContent).toContain('7001');
     expect(el.querySelector('main')!.textContent).not.toContain('201');
+  });
+
+  it("re-opens Tonight's live stream and requests for the depot chosen, and closes the one before", async () => {
+    const { fixture } = await render(['supervisor']);
+    const live = TestBed.inject(FakeLiveTransport);
+    const unavailable = { status: 503, statusText: 'Unavailable' };
+    // Answers every request (each with a failure), and the ones they lead to, until none is left.
+    const answerAll = async () => {
+      const urls: string[] = [];
+      for (let round = 0; round < 5; round++) {
+        await settle();
+        const pending = mock.match(() => true);
+        if (pending.length === 0) break;
+        for (const req of pending) {
+          urls.push(req.request.url);
+          req.flush({ error: { code: 'unavailable', message: 'Away.' } }, unavailable);
+        }
+      }
+      return urls;
+    };
+    await TestBed.inject(Router).navigateByUrl('/tonight');
+    await settle();
+    fixture.detectChanges();
+    const before = await answerAll();
+    expect(before.length).toBeGreaterThan(0);
+    expect(before.every((u) => u.includes(NORTH_ID))).toBe(true);
+    expect(live.streams.map((s) => [s.depotId, s.closed])).toEqual([[NORTH_ID, false]]);
+
+    await pick(fixture, 'Riverside Depot');
+    mock.expectOne('/api/me/depot').flush({ chosenDepotId: SOUTH_ID });
+    await settle();
+    fixture.detectChanges();
+    await new Promise((r) => setTimeout(r, 0));
+    await settle();
+    const after = await answerAll();
+    expect(after.length).toBeGreaterThan(0);
+    expect(after.every((u) => u.includes(SOUTH_ID))).toBe(true);
+    expect(live.streams.map((s) => [s.depotId, s.closed])).toEqual([
+      [NORTH_ID, true],
+      [SOUTH_ID, false],
+    ]);
   });
 
   it('asks before a switch throws away edits, and stays when told to', async () => {
