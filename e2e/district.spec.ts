@@ -69,6 +69,35 @@ test('a supervisor switches depot: Tonight and Plans show that depot, and the ch
   await expect(page.getByRole('main')).toContainText(kestrel.name);
 });
 
+test('a switch asks before it throws away unsaved runs, and stays when told to', async ({ page }) => {
+  test.setTimeout(90_000);
+  const district = await districtAt(AT.weekdayAfternoon, { depots: 'district' });
+  const main = depotNamed(district, 'main');
+  const kestrel = depotNamed(district, 'kestrel');
+  await pageAtApiTime(page);
+  await signInAs(page, district.emails.supervisor);
+  await page.goto('/fleet/service-day');
+  await expect(page.getByRole('heading', { level: 1, name: 'Fleet' })).toBeVisible();
+  await expect(switcher(page)).toHaveAccessibleName(`Depot: ${kestrel.name}. Switch depot`);
+  // Kestrel Hollow's day: its twelve buses' runs, loaded before the edit.
+  await expect(page.getByRole('table', { name: 'Runs of the day' }).locator('tbody tr')).toHaveCount(24);
+  await page.getByLabel('Forecast low').fill('-4');
+
+  await switcher(page).click();
+  await page.getByRole('menuitemradio', { name: main.name }).click();
+  const ask = page.getByRole('dialog', { name: 'Discard the changes?' });
+  await expect(ask).toContainText(`Switching to ${main.name} throws them away.`);
+  await ask.getByRole('button', { name: 'Cancel' }).click();
+  await expect(switcher(page)).toHaveAccessibleName(`Depot: ${kestrel.name}. Switch depot`);
+  await expect(page.getByLabel('Forecast low')).toHaveValue('-4');
+
+  await switcher(page).click();
+  await page.getByRole('menuitemradio', { name: main.name }).click();
+  await ask.getByRole('button', { name: 'Discard changes' }).click();
+  await expect(switcher(page)).toHaveAccessibleName(`Depot: ${main.name}. Switch depot`);
+  await expect(page.getByLabel('Forecast low')).not.toHaveValue('-4');
+});
+
 test('an administrator opens the District overview at laptop and phone width, and a depot from it', async ({
   page,
 }) => {
