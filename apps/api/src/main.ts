@@ -21,7 +21,7 @@ import { LiveBus } from './live/live-bus';
 import { feedChargerStates } from './live/live-feeds';
 import { adjustableClock, clockFromEnv } from './time/clock';
 import { isEmpty, seedDemo } from './demo/seed';
-import { DEMO_PASSWORD, demoUsers } from '@nightyard/demo';
+import { DEMO_PASSWORD, demoDistrictDepots, demoUsers } from '@nightyard/demo';
 
 const config = loadConfig();
 // The browser tests move the clock from spec to spec; nothing else can (see dev/test-control-routes).
@@ -149,6 +149,10 @@ const server = app.listen(config.PORT, '127.0.0.1', () => {
       ? [
           `Demo sign-ins (password: ${DEMO_PASSWORD}):`,
           ...demoUsers.map((u) => `  ${u.email.padEnd(36)} ${u.roles.join(' + ')}`),
+          // The other depots' yard staff: each sees their own depot only.
+          ...demoDistrictDepots.flatMap((d) =>
+            d.yardUser ? [`  ${d.yardUser.email.padEnd(36)} yard (${d.depot.name})`] : [],
+          ),
           '',
         ]
       : []),

@@ -1,7 +1,9 @@
-import { and, countDistinct, eq, sql } from 'drizzle-orm';
+import { eq, sql } from 'drizzle-orm';
+import type { Pool } from 'pg';
 import { depotDate, type DistrictDepot, type DistrictOverview } from '@nightyard/contracts';
 import type { Db } from '../db/client';
-import { plans, runs } from '../db/schema';
+import { prepared } from '../db/prepared';
+import { plans } from '../db/schema';
 import type { AuthUser } from '../auth/auth-user';
 import { monthCosts, type CostsInputs } from '../costs/costs-service';
 import { visibleDepots } from '../depots/depots-service';
@@ -11,18 +13,15 @@ import { nightOfDepot } from '../night/depot-night';
 type Depot = Awaited<ReturnType<typeof visibleDepots>>[number];
 
 /**
- * Tonight's plan of a depot in figures, read in the database (a plan's result holds every slot and
- * session: only these few numbers cross the wire): the night's published plan, else its latest
- * draft (what-ifs are studies, never the night's plan). The same figures as the Plans and Costs
- * pages: the cost is the night's charging energy under the plan (the engine's bill, what the Costs
- * page's night shows as its energy cost; demand is billed once a period, so it is the period's,
- * never a night's), a bus is short beyond 1e-6 kWh, the peak is the highest site load of its slots.
+ * A plan's figures for the overview, read in the database (a plan's result holds every slot and
+ * session: only these few numbers cross the wire). The same figures as the Plans and Costs pages:
+ * the cost is the night's charging energy under the plan (the engine's bill, what the Costs page's
+ * night shows as its energy cost; demand is billed once a period, so it is the period's, never a
+ * night's), a bus is short beyond 1e-6 kWh, the peak is the highest site load of its slots.
  */
-async function tonightsPlan(db: Db, depotId: string, serviceDate: string) {
-  const [row] = await db
+const figuresQuery = (db: Db, name: string) =>
+  db
     .select({
-      state: plans.state,
-      version: plans.version,
       cost: sql<number | null>`(${plans.result}->'cost'->>'energy')::float8`,
       peakKw: sql<
         number | null
@@ -33,45 +32,62 @@ async function tonightsPlan(db: Db, depotId: string, serviceDate: string) {
         where (b->>'shortfallKwh')::float8 > 1e-6), 0)`,
     })
     .from(plans)
-    .where(
-      and(
-        eq(plans.depotId, depotId),
-        eq(plans.serviceDate, serviceDate),
-        sql`${plans.kind} <> 'what-if'`,
-        sql`${plans.state} in ('published', 'draft')`,
-      ),
-    )
-    .orderBy(sql`${plans.state} = 'published' desc`, sql`${plans.version} desc`)
-    .limit(1);
-  return row ?? null;
+    .where(eq(plans.id, sql.placeholder('planId')))
+    .prepare(name);
+
+type PlanFigures = { cost: number | null; peakKw: number | null; shortBuses: number; shortKwh: number };
+
+/**
+ * Figures of finished plans, by plan id: a finished plan's result never changes (a revision or a
+ * new draft is a new row), so they are read from its result once; the overview then costs one
+ * light query per depot for its night's plan. Bounded; the oldest go first.
+ */
+const finishedFigures = new Map<string, PlanFigures>();
+const MAX_KEPT_FIGURES = 500;
+
+async function figuresOf(db: Db, plan: { id: string; status: string }): Promise<PlanFigures> {
+  const kept = finishedFigures.get(plan.id);
+  if (kept) return kept;
+  const [row] = await prepared(db, 'district_plan_figures', figuresQuery).execute({ planId: plan.id });
+  const figures = row ?? { cost: null, peakKw: null, shortBuses: 0, shortKwh: 0 };
+  if (plan.status === 'done') {
+    finishedFigures.set(plan.id, figures);
+    while (finishedFigures.size > MAX_KEPT_FIGURES) finishedFigures.delete(finishedFigures.keys().next().value!);
+  }
+  return figures;
 }
 
-async function busesOut(db: Db, depotId: string, serviceDate: string): Promise<number> {
-  const [row] = await db
-    .select({ n: countDistinct(runs.busId) })
-    .from(runs)
-    .where(and(eq(runs.depotId, depotId), eq(runs.serviceDate, serviceDate)));
-  return row?.n ?? 0;
-}
-
-async function tonightOf(db: Db, depot: Depot, now: Date): Promise<DistrictDepot['tonight']> {
-  const { tonight } = await nightOfDepot(db, depot, now);
-  const [plan, out] = await Promise.all([
-    tonightsPlan(db, depot.id, tonight.serviceDate),
-    // The buses the night's charging serves: those with runs on the next service day.
-    tonight.fromRuns ? busesOut(db, depot.id, tonight.nextServiceDate) : Promise.resolve(0),
-  ]);
-  return {
-    serviceDate: tonight.serviceDate,
-    planState: plan ? (plan.state as 'published' | 'draft') : 'none',
-    planVersion: plan?.version ?? null,
-    busesOut: out,
-    shortBuses: plan?.shortBuses ?? 0,
-    shortKwh: plan?.shortKwh ?? 0,
-    peakKw: plan?.peakKw ?? null,
-    serviceLimitKw: depot.serviceLimitKw,
-    cost: plan?.cost ?? null,
-  };
+/**
+ * Each depot's night's plan (the published one, else the latest draft: what-ifs are studies,
+ * never the night's plan) and the buses the night's charging serves (those with runs on the next
+ * service day), for every depot at once: one round trip whatever the district's size.
+ */
+async function nightsOf(
+  db: Db,
+  nights: readonly { depotId: string; serviceDate: string; nextServiceDate: string | null }[],
+) {
+  const client = (db as unknown as { $client: Pool }).$client;
+  const { rows } = await client.query<{
+    depot_id: string;
+    buses_out: number;
+    id: string | null;
+    state: 'published' | 'draft' | null;
+    version: number | null;
+    status: string | null;
+  }>(
+    `select n.depot_id::text,
+       coalesce((select count(distinct r.bus_id)::int from runs r
+         where r.depot_id = n.depot_id and r.service_date = n.next_date), 0) as buses_out,
+       p.id, p.state, p.version, p.status
+     from unnest($1::uuid[], $2::date[], $3::date[]) as n(depot_id, service_date, next_date)
+     left join lateral (
+       select id, state, version, status from plans
+       where depot_id = n.depot_id and service_date = n.service_date
+         and kind <> 'what-if' and state in ('published', 'draft')
+       order by state = 'published' desc, version desc limit 1) p on true`,
+    [nights.map((n) => n.depotId), nights.map((n) => n.serviceDate), nights.map((n) => n.nextServiceDate)],
+  );
+  return new Map(rows.map((r) => [r.depot_id, r]));
 }
 
 /** The billing period in force at the depot from the costs month (kept reads), null without a rate plan. */
@@ -125,13 +141,35 @@ export async function districtOverview(
   costsInputs?: CostsInputs,
 ): Promise<DistrictOverview> {
   const depots = await visibleDepots(db, caller);
+  // Each depot's own night (its zone, its runs: the night model's, kept per depot and day).
+  const nights = await Promise.all(depots.map(async (d) => (await nightOfDepot(db, d, now)).tonight));
+  const [plansOf, periods] = await Promise.all([
+    nightsOf(
+      db,
+      depots.map((d, i) => ({
+        depotId: d.id,
+        serviceDate: nights[i]!.serviceDate,
+        nextServiceDate: nights[i]!.fromRuns ? nights[i]!.nextServiceDate : null,
+      })),
+    ),
+    Promise.all(depots.map((d) => periodOf(db, caller, d, now, costsInputs))),
+  ]);
   const rows = await Promise.all(
-    depots.map(async (depot) => {
-      const [tonight, period] = await Promise.all([
-        tonightOf(db, depot, now),
-        periodOf(db, caller, depot, now, costsInputs),
-      ]);
-      return { depot, tonight, ...period };
+    depots.map(async (depot, i) => {
+      const found = plansOf.get(depot.id);
+      const plan = found?.id ? { ...found, ...(await figuresOf(db, { id: found.id, status: found.status! })) } : null;
+      const tonight: DistrictDepot['tonight'] = {
+        serviceDate: nights[i]!.serviceDate,
+        planState: plan ? plan.state! : 'none',
+        planVersion: plan?.version ?? null,
+        busesOut: found?.buses_out ?? 0,
+        shortBuses: plan?.shortBuses ?? 0,
+        shortKwh: plan?.shortKwh ?? 0,
+        peakKw: plan?.peakKw ?? null,
+        serviceLimitKw: depot.serviceLimitKw,
+        cost: plan?.cost ?? null,
+      };
+      return { depot, tonight, ...periods[i]! };
     }),
   );
   const shown: DistrictDepot[] = rows.map((r) => ({

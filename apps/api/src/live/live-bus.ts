@@ -25,8 +25,8 @@ export const DEFAULT_LIVE_TIMING: LiveStreamTiming = { heartbeatMs: 15_000, maxM
 export class LiveBus {
   private readonly byDepot = new Map<string, Set<LiveListener>>();
   private readonly streamsByUser = new Map<string, number>();
-  /** How to end each open stream (shutdown). */
-  private readonly enders = new Set<() => void>();
+  /** How to end each open stream (shutdown, a person's access changed), with whose stream it is. */
+  private readonly enders = new Map<() => void, string | undefined>();
 
   constructor(
     private readonly log?: Logger,
@@ -68,15 +68,23 @@ export class LiveBus {
     }
   }
 
-  /** Registers how to end a stream; call the answer once it has ended. */
-  trackStream(end: () => void): () => void {
-    this.enders.add(end);
+  /** Registers how to end a stream (of `userId`); call the answer once it has ended. */
+  trackStream(end: () => void, userId?: string): () => void {
+    this.enders.set(end, userId);
     return () => this.enders.delete(end);
   }
 
   /** Ends every open stream (on shutdown, so the HTTP server can close; clients reconnect elsewhere). */
   endStreams(): void {
-    for (const end of [...this.enders]) end();
+    for (const end of [...this.enders.keys()]) end();
+  }
+
+  /**
+   * Ends one person's open streams: their depots, roles or status changed, so their client
+   * reconnects and the new request is checked with what they may see now.
+   */
+  endStreamsOf(userId: string): void {
+    for (const [end, of] of [...this.enders]) if (of === userId) end();
   }
 
   /** Open listeners (of one depot, or of all). */

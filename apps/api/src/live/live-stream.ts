@@ -30,7 +30,7 @@ export async function streamLive(opts: {
   let queue: LiveEvent[] | null = [];
   let closed = false;
   const timers: NodeJS.Timeout[] = [];
-  const untrack = bus.trackStream(() => close());
+  const untrack = bus.trackStream(() => close(), userId);
   const off = bus.subscribe(depotId, (event) => {
     if (queue) queue.push(event);
     else write(sseMessage(event));

@@ -274,6 +274,25 @@ describe('live stream of a depot (Server-Sent Events)', () => {
     await expect.poll(() => live.listenerCount()).toBe(0);
   });
 
+  it("ends a person's open streams when their depots change; the reconnection is refused for a depot taken away", async () => {
+    const org = await createOrganisation(app, { boss: ['admin'], watcher: ['finance'] });
+    const here = (await createDepot(app.db, org.organisationId, 'Here')).depot.id;
+    const there = (await createDepot(app.db, org.organisationId, 'There')).depot.id;
+    const watcher = org.users.watcher!;
+    const stream = await open(`/depots/${here}/live`, watcher);
+    expect(stream.status).toBe(200);
+    await expect.poll(() => stream.of('snapshot').length).toBe(1);
+    await app
+      .request()
+      .patch(`/api/users/${watcher.id}`)
+      .set(as(org.users.boss!))
+      .send({ depotIds: [there] })
+      .expect(200);
+    await expect.poll(() => stream.ended).toBe(true);
+    expect((await open(`/depots/${here}/live`, watcher)).status).toBe(404);
+    expect((await open(`/depots/${there}/live`, watcher)).status).toBe(200);
+  });
+
   it('is described in the OpenAPI document as an event stream', async () => {
     const doc = (await app.request().get('/api/openapi.json').expect(200)).body;
     const op = doc.paths['/api/depots/{depotId}/live'].get;

@@ -11,7 +11,7 @@ import type { AppDeps } from '../app-deps';
 import type { ApiRoutes } from '../http/route';
 import { inviteUser, listUsers, updateUser } from './users-service';
 
-export function usersRoutes(api: ApiRoutes, { db, mailer, config, auth, clock }: AppDeps) {
+export function usersRoutes(api: ApiRoutes, { db, mailer, config, auth, clock, live }: AppDeps) {
   const invite = { inviteHours: config.INVITE_HOURS, publicUrl: auth.publicUrl };
 
   api.add(
@@ -52,6 +52,11 @@ export function usersRoutes(api: ApiRoutes, { db, mailer, config, auth, clock }:
       body: updateUserRequestSchema,
       response: z.object({ user: userSchema }),
     },
-    async ({ user, params, body }) => ({ user: await updateUser(db, user, params.id, body, clock()) }),
+    async ({ user, params, body }) => {
+      const updated = await updateUser(db, user, params.id, body, clock());
+      // What the person may see changed: their open live streams end and reconnect, checked anew.
+      if (body.depotIds || body.roles || body.active === false) live.endStreamsOf(params.id);
+      return { user: updated };
+    },
   );
 }
