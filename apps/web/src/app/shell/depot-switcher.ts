@@ -1,3 +1,4 @@
+import { LiveAnnouncer } from '@angular/cdk/a11y';
 import { ChangeDetectionStrategy, Component, effect, inject, input } from '@angular/core';
 import { MatButtonModule } from '@angular/material/button';
 import { MatIconModule } from '@angular/material/icon';
@@ -117,6 +118,7 @@ export class DepotSwitcher {
   protected readonly store = inject(DepotListStore);
   private readonly unsaved = inject(UnsavedEdits);
   private readonly snackBar = inject(MatSnackBar);
+  private readonly announcer = inject(LiveAnnouncer);
   /** Phone width: a smaller pill. */
   readonly compact = input(false);
 
@@ -132,6 +134,9 @@ export class DepotSwitcher {
     if (id === this.store.current()?.id) return;
     const name = this.store.depots().find((d) => d.id === id)?.name ?? 'another depot';
     if (!(await this.unsaved.confirmDiscard(`Switching to ${name}`))) return;
-    await this.store.choose(id);
+    const chosen = this.store.choose(id);
+    // The page changes under the menu's button, where focus stays: say what it shows now.
+    void this.announcer.announce(`Now showing ${name}`);
+    await chosen;
   }
 }
