@@ -1,7 +1,7 @@
-import { ADMINS, COST_READERS, EVERY_ROLE, PLAN_READERS, YARD_CREW, type Role } from './roles';
+import { ADMINS, COST_READERS, DISTRICT_READERS, EVERY_ROLE, PLAN_READERS, YARD_CREW, type Role } from './roles';
 
 /** The product's sections, who may open each, and which role lands where after sign-in. */
-export type SectionKey = 'tonight' | 'yard' | 'plans' | 'fleet' | 'depot' | 'rates' | 'costs' | 'people';
+export type SectionKey = 'tonight' | 'yard' | 'plans' | 'fleet' | 'depot' | 'rates' | 'costs' | 'district' | 'people';
 
 export interface Section {
   key: SectionKey;
@@ -68,6 +68,14 @@ export const SECTIONS: readonly Section[] = [
     icon: 'payments',
     roles: COST_READERS,
     purpose: 'Projected and actual electricity cost per night and month, against charging on arrival or on a timer.',
+  },
+  {
+    key: 'district',
+    label: 'District',
+    path: '/district',
+    icon: 'domain',
+    roles: DISTRICT_READERS,
+    purpose: "Every depot side by side: tonight's plan and the billing period's bill, with the totals.",
   },
   {
     key: 'people',

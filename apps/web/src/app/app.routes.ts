@@ -1,5 +1,6 @@
 import type { Routes } from '@angular/router';
 import { homeRedirectGuard, roleGuard, signedInGuard, signedOutGuard } from './auth/auth-guards';
+import { depotLinkGuard } from './depot-state/depot-link-guard';
 
 export const routes: Routes = [
   {
@@ -21,6 +22,7 @@ export const routes: Routes = [
   {
     path: '',
     canActivate: [signedInGuard],
+    canActivateChild: [depotLinkGuard],
     loadComponent: () => import('./shell/shell').then((m) => m.Shell),
     children: [
       { path: '', pathMatch: 'full', canActivate: [homeRedirectGuard], children: [] },
@@ -72,6 +74,13 @@ export const routes: Routes = [
         data: { section: 'costs' },
         canActivate: [roleGuard],
         loadChildren: () => import('./costs/costs.routes').then((m) => m.costsRoutes),
+      },
+      {
+        path: 'district',
+        title: 'District',
+        data: { section: 'district' },
+        canActivate: [roleGuard],
+        loadComponent: () => import('./district/district-page').then((m) => m.DistrictPage),
       },
       {
         path: 'people',

@@ -1,7 +1,11 @@
 import { DestroyRef } from '@angular/core';
 import { TestBed } from '@angular/core/testing';
 import { FormArray, FormControl, FormGroup, Validators } from '@angular/forms';
+import { provideHttpClient } from '@angular/common/http';
+import { HttpTestingController, provideHttpClientTesting } from '@angular/common/http/testing';
 import { Router, provideRouter } from '@angular/router';
+import { DepotListStore } from '../depot-state/depot-list-store';
+import { NORTH_ID, SOUTH_ID, depot, southDepot } from '../testing/fixtures';
 import { FormDrafts, restoreInto } from './form-drafts';
 
 function settings(name = 'North Depot', load: number[] = [0]) {
@@ -19,7 +23,9 @@ describe('FormDrafts', () => {
 
   beforeEach(() => {
     sessionStorage.clear();
-    TestBed.configureTestingModule({ providers: [provideRouter([])] });
+    TestBed.configureTestingModule({
+      providers: [provideRouter([]), provideHttpClient(), provideHttpClientTesting()],
+    });
     vi.spyOn(TestBed.inject(Router), 'url', 'get').mockImplementation(() => url);
     drafts = TestBed.inject(FormDrafts);
   });
@@ -56,6 +62,33 @@ describe('FormDrafts', () => {
     expect(drafts.has('depot-settings')).toBe(false);
     url = '/fleet';
     expect(drafts.has('depot-settings')).toBe(false);
+  });
+
+  it("keeps a draft for the depot it was typed on: another depot's form does not get it", async () => {
+    const store = TestBed.inject(DepotListStore);
+    const mock = TestBed.inject(HttpTestingController);
+    const loading = store.load();
+    mock.expectOne('/api/depots').flush({ depots: [depot(), southDepot()], chosenDepotId: NORTH_ID });
+    await loading;
+    const form = settings();
+    drafts.register('depot-settings', form, destroyRef);
+    form.controls.name.setValue('North Depot, renamed');
+    form.markAsDirty();
+    drafts.keepAll();
+    destroyed.splice(0).forEach((fn) => fn());
+
+    void store.choose(SOUTH_ID);
+    mock.expectOne('/api/me/depot').flush({ chosenDepotId: SOUTH_ID });
+    const south = settings('Riverside Depot');
+    expect(drafts.register('depot-settings', south, destroyRef)).toBe(false);
+    expect(south.controls.name.value).toBe('Riverside Depot');
+    destroyed.splice(0).forEach((fn) => fn());
+
+    void store.choose(NORTH_ID);
+    mock.expectOne('/api/me/depot').flush({ chosenDepotId: NORTH_ID });
+    const north = settings();
+    expect(drafts.register('depot-settings', north, destroyRef)).toBe(true);
+    expect(north.controls.name.value).toBe('North Depot, renamed');
   });
 
   it('restores lists of fields to the stored length, with the same validators', () => {

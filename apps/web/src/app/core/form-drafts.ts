@@ -1,6 +1,7 @@
 import { DestroyRef, Injectable, inject } from '@angular/core';
 import { FormArray, FormControl, FormGroup, type AbstractControl } from '@angular/forms';
 import { Router } from '@angular/router';
+import { DepotListStore } from '../depot-state/depot-list-store';
 import { SessionEnd } from './session-end';
 
 const PREFIX = 'nightyard.draft:';
@@ -15,12 +16,20 @@ function pageOf(url: string): string {
  * are on screen; when the session ends (the person must sign in again), every form changed since
  * it was loaded is written to sessionStorage under its page and name. Back on that page after
  * sign-in, the form that registers under the same name gets its input back, still unsaved.
- * Nothing is kept on an ordinary sign-out or navigation.
+ * Nothing is kept on an ordinary sign-out or navigation. A draft belongs to the depot chosen when
+ * it was typed: after sign-in on another depot it waits (a draft of one depot's set-up never
+ * lands in another's form).
  */
 @Injectable({ providedIn: 'root' })
 export class FormDrafts {
   private readonly router = inject(Router);
+  private readonly depots = inject(DepotListStore);
   private readonly open = new Map<string, { page: string; form: AbstractControl }>();
+
+  /** The page of the current address, on the depot chosen now. */
+  private here(): string {
+    return `${this.depots.current()?.id ?? 'no-depot'}:${pageOf(this.router.url)}`;
+  }
 
   constructor() {
     // Made with the first form that registers, and kept for the app's life (a root service).
@@ -32,7 +41,7 @@ export class FormDrafts {
    * that form was kept, it is put back (marked dirty) and true is returned.
    */
   register(name: string, form: AbstractControl, destroyRef: DestroyRef): boolean {
-    const page = pageOf(this.router.url);
+    const page = this.here();
     const entry = { page, form };
     this.open.set(name, entry);
     destroyRef.onDestroy(() => {
@@ -53,7 +62,7 @@ export class FormDrafts {
 
   /** Whether a draft of `name` waits on the current page (to open an editor before registering). */
   has(name: string): boolean {
-    return storage()?.getItem(PREFIX + pageOf(this.router.url) + '#' + name) != null;
+    return storage()?.getItem(PREFIX + this.here() + '#' + name) != null;
   }
 
   /** Keeps every changed form on screen; called when the session has ended. */

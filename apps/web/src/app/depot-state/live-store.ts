@@ -195,6 +195,18 @@ export class LiveStore {
     this.entries.delete(e.depot.depotId);
   }
 
+  /**
+   * Closes at once the streams no page watches any more (after a depot switch the depot before
+   * is not shown again soon, so its stream does not linger).
+   */
+  closeIdle(): void {
+    for (const e of [...this.entries.values()]) {
+      if (e.users > 0) continue;
+      if (e.linger) clearTimeout(e.linger);
+      this.close(e);
+    }
+  }
+
   /** Streams open now (tests). */
   openStreams(): number {
     return [...this.entries.values()].filter((e) => e.sub !== null).length;

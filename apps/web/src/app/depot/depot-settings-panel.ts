@@ -27,6 +27,7 @@ import { PlausibleConfirm } from '../shared/plausible-confirm';
 import { ProblemSummary, type ProblemItem } from '../shared/problem-summary';
 import { DepotApi } from './depot-api';
 import { HOUR_LABELS, formatKw, timeZones } from './depot-setup-format';
+import { trackUnsaved } from '../core/unsaved-edits';
 
 /** The name its unsaved input is kept under when the session ends (FormDrafts). */
 const DRAFT = 'depot-settings';
@@ -125,6 +126,13 @@ export class DepotSettingsPanel implements OnInit {
     const q = this.zoneQuery().trim().toLowerCase().replace(/\s+/g, '_');
     return (q ? this.allZones.filter((z) => z.toLowerCase().includes(q)) : this.allZones).slice(0, 60);
   });
+
+  constructor() {
+    trackUnsaved(
+      () => this.canEdit() && !!this.form()?.dirty,
+      () => "the depot's site settings",
+    );
+  }
 
   /** Input left unsaved when the session ended opens the editor again, with that input. */
   ngOnInit(): void {

@@ -14,6 +14,7 @@ import { LocalDateTimeField } from '../shared/local-date-time-field';
 import { ProblemSummary, type ProblemItem } from '../shared/problem-summary';
 import { DepotApi, type LoadReductionWindowInput } from './depot-api';
 import { formatKw, formatLocal } from './depot-setup-format';
+import { trackUnsaved } from '../core/unsaved-edits';
 
 const shape = loadReductionWindowInputSchema.shape;
 
@@ -92,6 +93,13 @@ export class LoadReductionWindowsPanel {
   protected readonly busy = signal(false);
   protected readonly problem = signal<string | null>(null);
   protected readonly problemItems = signal<ProblemItem[]>([]);
+
+  constructor() {
+    trackUnsaved(
+      () => this.canEdit() && !!this.form()?.dirty,
+      () => 'the load-reduction windows',
+    );
+  }
 
   protected edit(): void {
     this.clearProblems();

@@ -14,6 +14,7 @@ import { applyServerErrors, errorText, zodValidator } from '../shared/form-paths
 import { ProblemSummary, type ProblemItem } from '../shared/problem-summary';
 import { DepotApi } from './depot-api';
 import { formatDate, formatKw } from './depot-setup-format';
+import { trackUnsaved } from '../core/unsaved-edits';
 
 const shape = peaksSoFarSchema.shape;
 const periodKw = z.number().min(0, 'A period peak cannot be negative').max(100_000, 'A period peak looks too large');
@@ -74,6 +75,13 @@ export class PeaksSoFarPanel {
   protected readonly busy = signal(false);
   protected readonly problem = signal<string | null>(null);
   protected readonly problemItems = signal<ProblemItem[]>([]);
+
+  constructor() {
+    trackUnsaved(
+      () => this.canEdit() && !!this.form()?.dirty,
+      () => 'the peaks so far',
+    );
+  }
 
   private buildForm(p: PeaksSoFar | null) {
     const start =

@@ -13,6 +13,7 @@ import { toApiProblem } from '../core/api-error';
 import { applyServerErrors, errorText, zodValidator } from '../shared/form-paths';
 import { ProblemSummary, type ProblemItem } from '../shared/problem-summary';
 import { DepotApi } from './depot-api';
+import { trackUnsaved } from '../core/unsaved-edits';
 
 const clockText = z.string().regex(/^([01]\d|2[0-3]):[0-5]\d$/);
 const moves = z.number().int().min(1).max(50);
@@ -216,6 +217,13 @@ export class YardCrewPanel {
       .map((s) => `${s.from}-${s.to}, ${s.movesPerSlot} ${s.movesPerSlot === 1 ? 'move' : 'moves'} per 15 min`)
       .join('; ');
   });
+
+  constructor() {
+    trackUnsaved(
+      () => this.canEdit() && !!this.form()?.dirty,
+      () => 'the yard crew',
+    );
+  }
 
   protected newShift() {
     return shiftGroup(null);

@@ -10,6 +10,7 @@ import { messageOf, numberIn } from './bus-form';
 import { FleetApi } from './fleet-api';
 import { fmt2 } from './fleet-format';
 import { ProblemSummary } from '../shared/problem-summary';
+import { trackUnsaved } from '../core/unsaved-edits';
 
 function bandRow(band: { belowF: number | null; factor: number | null } = { belowF: null, factor: null }) {
   return new FormGroup({
@@ -48,6 +49,10 @@ export class ColdWeatherPanel {
   protected readonly sorted = computed(() => [...this.bands()].sort((a, b) => b.belowF - a.belowF));
 
   constructor() {
+    trackUnsaved(
+      () => this.canEdit() && this.editing() && this.form.dirty,
+      () => 'the cold-weather factors',
+    );
     effect(() => {
       const bands = this.sorted();
       if (!this.editing()) this.reset(bands);

@@ -24,6 +24,7 @@ import { RunsEditor } from './runs-editor';
 import { RunsTable } from './runs-table';
 import { RunsTools } from './runs-tools';
 import { ServiceDayStore } from './service-day-store';
+import { trackUnsaved } from '../core/unsaved-edits';
 
 export { previousWeekday } from './service-day-store';
 
@@ -67,6 +68,10 @@ export class ServiceDayPage {
   protected readonly messageOf = messageOf;
 
   constructor() {
+    trackUnsaved(
+      () => this.canEdit() && this.form.dirty,
+      () => `the runs of ${this.store.dayText()}`,
+    );
     this.store.bind(this.date);
   }
 

@@ -3,7 +3,8 @@ import { HttpTestingController, provideHttpClientTesting } from '@angular/common
 import { ComponentFixture, TestBed } from '@angular/core/testing';
 import { MatDialogRef } from '@angular/material/dialog';
 import { ROLE_LABELS } from '@nightyard/contracts';
-import { settle, user } from '../testing/fixtures';
+import { DepotListStore } from '../depot-state/depot-list-store';
+import { NORTH_ID, SOUTH_ID, depot, settle, southDepot, user } from '../testing/fixtures';
 import { InviteDialog } from './invite-dialog';
 
 describe('InviteDialog', () => {
@@ -18,6 +19,9 @@ describe('InviteDialog', () => {
       providers: [provideHttpClient(), provideHttpClientTesting(), { provide: MatDialogRef, useValue: { close } }],
     });
     mock = TestBed.inject(HttpTestingController);
+    const loading = TestBed.inject(DepotListStore).load();
+    mock.expectOne('/api/depots').flush({ depots: [depot(), southDepot()], chosenDepotId: NORTH_ID });
+    await loading;
     fixture = TestBed.createComponent(InviteDialog);
     el = fixture.nativeElement;
     await fixture.whenStable();
@@ -50,7 +54,7 @@ describe('InviteDialog', () => {
   }
 
   it('offers one checkbox per role, named by ROLE_LABELS', () => {
-    const labels = [...el.querySelectorAll('mat-checkbox')].map((c) => c.textContent?.trim());
+    const labels = [...el.querySelectorAll('ny-role-checkboxes mat-checkbox')].map((c) => c.textContent?.trim());
     expect(labels).toEqual(Object.values(ROLE_LABELS));
     expect(el.querySelector('legend')?.textContent).toBe('Roles');
   });
@@ -69,7 +73,13 @@ describe('InviteDialog', () => {
     checkbox('Yard staff').click();
     await send();
     const req = mock.expectOne('/api/users/invite');
-    expect(req.request.body).toEqual({ name: 'Sam Reyes', email: 'sam@example.org', roles: ['yard'] });
+    // The inviter's depot is where they start from.
+    expect(req.request.body).toEqual({
+      name: 'Sam Reyes',
+      email: 'sam@example.org',
+      roles: ['yard'],
+      depotIds: [NORTH_ID],
+    });
     const invited = user({ status: 'invited' });
     req.flush({ user: invited }, { status: 201, statusText: 'Created' });
     await settle();
@@ -98,5 +108,75 @@ describe('InviteDialog', () => {
       'Someone in your organisation already uses this e-mail',
     ]);
     expect(close).not.toHaveBeenCalled();
+  });
+
+  const radios = () => [...el.querySelectorAll('mat-radio-button')].map((r) => r.textContent?.trim());
+  const boxes = () =>
+    [...el.querySelectorAll('ny-depot-picker mat-checkbox')].map((c) => [
+      c.textContent?.trim(),
+      c.querySelector('input')!.checked,
+    ]);
+  function depotBox(name: string): HTMLInputElement {
+    return [...el.querySelectorAll('ny-depot-picker mat-checkbox')]
+      .find((c) => c.textContent?.trim() === name)!
+      .querySelector('input')!;
+  }
+
+  it("lets yard staff work at one depot only, chosen from the organisation's", async () => {
+    type(input('Name'), 'Sam Reyes');
+    type(input('E-mail'), 'sam@example.org');
+    checkbox('Yard staff').click();
+    fixture.detectChanges();
+    await fixture.whenStable();
+    expect(radios()).toEqual(['North Depot', 'Riverside Depot']);
+    expect(boxes()).toEqual([]);
+    expect(el.querySelector('ny-depot-picker')!.textContent).toContain('Yard staff work at one depot and see only it.');
+    (el.querySelectorAll('mat-radio-button input')[1] as HTMLInputElement).click();
+    await send();
+    const req = mock.expectOne('/api/users/invite');
+    expect(req.request.body.depotIds).toEqual([SOUTH_ID]);
+    req.flush({ user: user({ depotIds: [SOUTH_ID] }) }, { status: 201, statusText: 'Created' });
+    await settle();
+  });
+
+  it('gives a supervisor several depots, and asks for one when none is ticked', async () => {
+    type(input('Name'), 'Lee Park');
+    type(input('E-mail'), 'lee@example.org');
+    checkbox('Fleet supervisor').click();
+    fixture.detectChanges();
+    await fixture.whenStable();
+    expect(boxes()).toEqual([
+      ['North Depot', true],
+      ['Riverside Depot', false],
+    ]);
+    depotBox('North Depot').click();
+    await send();
+    expect(el.querySelector('ny-depot-picker .ny-form-error')!.textContent).toBe('Choose at least one depot');
+    mock.expectNone('/api/users/invite');
+
+    depotBox('Riverside Depot').click();
+    depotBox('North Depot').click();
+    fixture.detectChanges();
+    expect(el.querySelector('ny-depot-picker .ny-form-error')!.textContent).toBe('');
+    await send();
+    const req = mock.expectOne('/api/users/invite');
+    expect(req.request.body.depotIds).toEqual([NORTH_ID, SOUTH_ID]);
+    req.flush({ user: user() }, { status: 201, statusText: 'Created' });
+    await settle();
+  });
+
+  it("gives the contract's message when someone made yard staff still holds two depots", async () => {
+    type(input('Name'), 'Lee Park');
+    type(input('E-mail'), 'lee@example.org');
+    checkbox('Fleet supervisor').click();
+    fixture.detectChanges();
+    depotBox('Riverside Depot').click();
+    checkbox('Fleet supervisor').click();
+    checkbox('Yard staff').click();
+    await send();
+    expect(el.querySelector('ny-depot-picker .ny-form-error')!.textContent).toBe(
+      'Yard staff work at one depot: choose exactly one',
+    );
+    mock.expectNone('/api/users/invite');
   });
 });

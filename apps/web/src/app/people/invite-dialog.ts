@@ -8,13 +8,16 @@ import { MatProgressBarModule } from '@angular/material/progress-bar';
 import type { User } from '@nightyard/contracts';
 import { applyFieldErrors, toApiProblem } from '../core/api-error';
 import { PeopleApi } from './people-api';
+import { DepotListStore } from '../depot-state/depot-list-store';
+import { DepotPicker } from './depot-picker';
 import { RoleCheckboxes } from './role-checkboxes';
-import { chosenRoles, roleGroup } from './role-form';
+import { chosenRoles, depotRules, roleGroup } from './role-form';
 
-/** "Invite someone": name, e-mail, roles. Closes with the invited user. */
+/** "Invite someone": name, e-mail, roles, depots. Closes with the invited user. */
 @Component({
   selector: 'ny-invite-dialog',
   imports: [
+    DepotPicker,
     MatButtonModule,
     MatDialogModule,
     MatFormFieldModule,
@@ -32,23 +35,33 @@ export class InviteDialog {
   private readonly api = inject(PeopleApi);
   private readonly ref = inject<MatDialogRef<InviteDialog, User>>(MatDialogRef);
   private readonly host = inject<ElementRef<HTMLElement>>(ElementRef);
+  private readonly depotList = inject(DepotListStore);
 
   protected readonly form = new FormGroup({
     name: new FormControl('', { nonNullable: true, validators: [Validators.required, Validators.maxLength(120)] }),
     email: new FormControl('', { nonNullable: true, validators: [Validators.required, Validators.email] }),
     roles: roleGroup(),
+    // The depot the inviter works on, to start from.
+    depotIds: new FormControl<string[]>(this.depotList.current() ? [this.depotList.current()!.id] : [], {
+      nonNullable: true,
+    }),
   });
   protected readonly submitted = signal(false);
+  protected readonly depots = this.depotList.depots;
+  protected readonly depotRules = depotRules(this.form.controls.roles, this.form.controls.depotIds, this.submitted);
   protected readonly busy = signal(false);
   protected readonly problem = signal<string | null>(null);
 
   protected async submit(): Promise<void> {
     this.submitted.set(true);
     this.problem.set(null);
-    if (this.form.invalid) {
+    const depotProblem = this.depotRules.problemNow();
+    if (this.form.invalid || depotProblem) {
       this.form.markAllAsTouched();
       queueMicrotask(() =>
-        this.host.nativeElement.querySelector<HTMLElement>('input.ng-invalid, fieldset.ng-invalid input')?.focus(),
+        this.host.nativeElement
+          .querySelector<HTMLElement>('input.ng-invalid, fieldset.ng-invalid input, ny-depot-picker.problem input')
+          ?.focus(),
       );
       return;
     }
@@ -59,6 +72,7 @@ export class InviteDialog {
         name: name.trim(),
         email: email.trim(),
         roles: chosenRoles(this.form.controls.roles),
+        depotIds: this.form.controls.depotIds.value,
       });
       this.ref.close(user);
     } catch (err) {

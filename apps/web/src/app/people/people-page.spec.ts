@@ -4,7 +4,7 @@ import { ComponentFixture, TestBed } from '@angular/core/testing';
 import { MatDialog } from '@angular/material/dialog';
 import { provideRouter } from '@angular/router';
 import { of } from 'rxjs';
-import { settle, user } from '../testing/fixtures';
+import { NORTH_ID, SOUTH_ID, depot, settle, southDepot, user } from '../testing/fixtures';
 import { PeoplePage } from './people-page';
 
 describe('PeoplePage', () => {
@@ -26,6 +26,7 @@ describe('PeoplePage', () => {
     mock = TestBed.inject(HttpTestingController);
     fixture = TestBed.createComponent(PeoplePage);
     el = fixture.nativeElement;
+    mock.expectOne('/api/depots').flush({ depots: [depot(), southDepot()], chosenDepotId: null });
     mock.expectOne('/api/users').flush({
       users: [
         user({
@@ -40,6 +41,13 @@ describe('PeoplePage', () => {
           email: 'ben@example.org',
           status: 'invited',
         }),
+        user({
+          id: '00000000-0000-4000-8000-000000000004',
+          name: 'Lee Park',
+          email: 'lee@example.org',
+          roles: ['supervisor'],
+          depotIds: [SOUTH_ID, NORTH_ID],
+        }),
       ],
     });
     await settle();
@@ -51,15 +59,27 @@ describe('PeoplePage', () => {
 
   it('lists people by name with roles, status and last sign-in', () => {
     const rows = [...el.querySelectorAll('tr[mat-row]')].map((r) => r.textContent?.replace(/\s+/g, ' ').trim());
-    expect(rows).toHaveLength(2);
+    expect(rows).toHaveLength(3);
     expect(rows[0]).toContain('Ben Ito');
     expect(rows[0]).toContain('Invited');
     expect(rows[0]).toContain('Never');
-    expect(rows[1]).toContain('Zoe Adler');
-    expect(rows[1]).toContain('Administrator');
-    expect(rows[1]).toContain('Finance');
+    expect(rows[2]).toContain('Zoe Adler');
+    expect(rows[2]).toContain('Administrator');
+    expect(rows[2]).toContain('Finance');
     expect(el.querySelector('h1')?.textContent?.trim()).toBe('People');
     expect([...el.querySelectorAll('a')].some((a) => a.textContent?.trim().endsWith('Outbox'))).toBe(true);
+  });
+
+  it("shows each person's depots by name; administrators see all of them", () => {
+    const depotCells = [...el.querySelectorAll('tr[mat-row]')].map((r) => [
+      r.querySelector('td')?.textContent?.trim(),
+      r.querySelector('td.depots')?.textContent?.replace(/\s+/g, ' ').replace(/ ,/g, ',').trim(),
+    ]);
+    expect(depotCells).toEqual([
+      ['Ben Ito', 'North Depot'],
+      ['Lee Park', 'North Depot, Riverside Depot'],
+      ['Zoe Adler', 'Every depot'],
+    ]);
   });
 
   it('deactivates someone only after the confirm dialog says yes, then confirms', async () => {

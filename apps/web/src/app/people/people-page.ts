@@ -25,10 +25,19 @@ import { RolesDialog } from './roles-dialog';
 export interface PersonRow {
   user: User;
   roleNames: string[];
+  /** Where they work, by name ("Every depot" for an administrator, who sees them all). */
+  depotNames: string[];
   statusLabel: string;
   statusIcon: string;
   lastSignIn: string;
   isMe: boolean;
+}
+
+/** A person's depots by name, in the list's order; administrators see every depot. */
+export function depotNamesOf(user: User, names: ReadonlyMap<string, string>): string[] {
+  if (user.roles.includes('admin')) return ['Every depot'];
+  const known = [...names.entries()].filter(([id]) => user.depotIds.includes(id)).map(([, name]) => name);
+  return known.length ? known : ['None'];
 }
 
 @Component({
@@ -59,7 +68,7 @@ export class PeoplePage {
 
   /** Phones get a list of people instead of the wide table. */
   protected readonly phone = injectIsPhone();
-  protected readonly columns = ['name', 'email', 'roles', 'status', 'lastSignIn', 'actions'];
+  protected readonly columns = ['name', 'email', 'roles', 'depots', 'status', 'lastSignIn', 'actions'];
 
   protected readonly users = signal<User[]>([]);
   protected readonly loading = signal(true);
@@ -68,11 +77,13 @@ export class PeoplePage {
   protected readonly rows = computed<PersonRow[]>(() => {
     // Times at the depot, as everywhere (the shell has loaded the depots).
     const zone = this.depots.current()?.timezone ?? this.viewerZone;
+    const names = new Map(this.depots.depots().map((d) => [d.id, d.name]));
     return [...this.users()]
       .sort((a, b) => a.name.localeCompare(b.name))
       .map((user) => ({
         user,
         roleNames: user.roles.map((r) => ROLE_LABELS[r]),
+        depotNames: depotNamesOf(user, names),
         statusLabel: STATUS_LABELS[user.status],
         statusIcon: STATUS_ICONS[user.status],
         lastSignIn: formatWhen(user.lastSignInAt, zone) ?? 'Never',
@@ -81,6 +92,7 @@ export class PeoplePage {
   });
 
   constructor() {
+    void this.depots.load();
     void this.load();
   }
 
@@ -114,7 +126,7 @@ export class PeoplePage {
       .subscribe((updated) => {
         if (!updated) return;
         this.replace(updated);
-        this.snackBar.open(`Roles of ${updated.name} saved`, 'OK');
+        this.snackBar.open(`Roles and depots of ${updated.name} saved`, 'OK');
       });
   }
 

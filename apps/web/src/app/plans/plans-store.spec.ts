@@ -5,7 +5,8 @@ import { TestBed } from '@angular/core/testing';
 import { provideRouter } from '@angular/router';
 import type { DepotDetail } from '@nightyard/contracts';
 import { DEPOT_ID, signedInAs } from '../fleet/fleet-fixtures';
-import { settle } from '../testing/fixtures';
+import { DepotListStore } from '../depot-state/depot-list-store';
+import { SOUTH_ID, depot, settle, southDepot } from '../testing/fixtures';
 import { PLAN_IDS, planDetail, planSummary } from './plan-fixtures';
 import { POLL_MS } from './plan-poll';
 import { PlansStore } from './plans-store';
@@ -203,5 +204,34 @@ describe('PlansStore', () => {
     expect(store.conflict()).toBeNull();
     expect(store.comparePreferred()).toBe(PLAN_IDS.published);
     expect(store.versions()).toHaveLength(2);
+  });
+
+  it("opens a link to a version of another of the person's depots on that depot", async () => {
+    TestBed.configureTestingModule({
+      providers: [provideRouter([]), provideHttpClient(), provideHttpClientTesting(), PlansStore],
+    });
+    mock = TestBed.inject(HttpTestingController);
+    await signedInAs(mock, ['supervisor']);
+    const depots = TestBed.inject(DepotListStore);
+    const both = depots.load(true);
+    mock.expectOne('/api/depots').flush({ depots: [depot(), southDepot()], chosenDepotId: DEPOT_ID });
+    await both;
+    store = TestBed.inject(PlansStore);
+    store.bind({ date: signal(undefined), plan: signal(PLAN_IDS.published) });
+    await tick();
+    mock
+      .expectOne(`/api/plans/${PLAN_IDS.published}`)
+      .flush({ plan: planDetail({ id: PLAN_IDS.published, depotId: SOUTH_ID, state: 'published' }) });
+    await tick();
+    const put = mock.expectOne('/api/me/depot');
+    expect(put.request.body).toEqual({ depotId: SOUTH_ID });
+    put.flush({ chosenDepotId: SOUTH_ID });
+    await tick();
+    expect(depots.current()?.id).toBe(SOUTH_ID);
+    expect(store.depot()?.name).toBe('Riverside Depot');
+    for (const req of mock.match(() => true)) {
+      expect(req.request.url).not.toContain(DEPOT_ID);
+      req.flush({ plans: [] });
+    }
   });
 });

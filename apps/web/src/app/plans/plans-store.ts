@@ -79,6 +79,8 @@ export class PlansStore {
       try {
         const d = await this.api.plan(id);
         this.openedDetail = d;
+        // A link to a version of another of the person's depots opens that depot (the store follows it).
+        if (d.depotId !== this.depot()?.id) await this.depots.choose(d.depotId, { restart: false });
         this.navigate({ date: d.serviceDate, plan: d.id }, true);
         return d;
       } catch (err) {

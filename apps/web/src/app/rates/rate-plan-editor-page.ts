@@ -17,6 +17,7 @@ import { RatePlanEditorStore } from './rate-plan-editor-store';
 import { seasonGroup, type RatePlanForm } from './rate-plan-form';
 import { RatePlanSummary } from './rate-plan-summary';
 import { SeasonFields } from './season-fields';
+import { trackUnsaved } from '../core/unsaved-edits';
 
 /** Write a rate plan, or review one mapped from a URDB file, then save it (all or nothing). */
 @Component({
@@ -70,6 +71,10 @@ export class RatePlanEditorPage {
 
   constructor() {
     this.store.bind({ id: this.id, from: this.from });
+    trackUnsaved(
+      () => this.canEdit() && !!this.store.form()?.dirty,
+      () => this.store.plan()?.name ?? 'the new rate plan',
+    );
   }
 
   protected addSeason(f: RatePlanForm): void {

@@ -23,6 +23,7 @@ import { injectCanEditSetup } from '../auth/role-checks';
 import { monthRange } from './rate-format';
 import { RatesApi } from './rates-api';
 import { UrdbDraft } from './urdb-draft';
+import { trackUnsaved } from '../core/unsaved-edits';
 
 /** URDB files are one rate record: well under the API's 1 MB body limit. */
 const MAX_FILE_BYTES = 1_000_000;
@@ -137,6 +138,10 @@ export class RatesPage {
   });
 
   constructor() {
+    trackUnsaved(
+      () => this.canEdit() && this.assignForm.dirty,
+      () => 'the rate plan to assign',
+    );
     void this.load();
   }
 

@@ -15,7 +15,9 @@ import { DepotTimeNote } from '../core/depot-time-note';
       <div>
         <h1>{{ info().label }}</h1>
         <p class="ny-lead">{{ info().purpose }}</p>
-        <ny-depot-time-note />
+        @if (timeNote()) {
+          <ny-depot-time-note />
+        }
       </div>
       <ng-content />
     </div>
@@ -23,6 +25,8 @@ import { DepotTimeNote } from '../core/depot-time-note';
 })
 export class SectionIntro {
   readonly section = input.required<SectionKey>();
+  /** The note on the depot's zone (off for pages spanning depots, each with its own zone). */
+  readonly timeNote = input(true);
   protected readonly info = computed(() => {
     const found = SECTIONS.find((s) => s.key === this.section());
     if (!found) throw new Error(`Unknown section ${this.section()}`);

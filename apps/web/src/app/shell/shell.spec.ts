@@ -58,12 +58,27 @@ describe('Shell', () => {
 
   it('lists every section for an administrator, People included', async () => {
     const el = await render(['admin']);
-    expect(navLabels(el)).toEqual(['Tonight', 'Yard', 'Plans', 'Fleet', 'Depot', 'Rates', 'Costs', 'People']);
+    expect(navLabels(el)).toEqual([
+      'Tonight',
+      'Yard',
+      'Plans',
+      'Fleet',
+      'Depot',
+      'Rates',
+      'Costs',
+      'District',
+      'People',
+    ]);
+  });
+
+  it('gives a fleet supervisor no District', async () => {
+    const el = await render(['supervisor']);
+    expect(navLabels(el)).not.toContain('District');
   });
 
   it('lists finance sections for finance', async () => {
     const el = await render(['finance']);
-    expect(navLabels(el)).toEqual(['Tonight', 'Plans', 'Fleet', 'Depot', 'Rates', 'Costs']);
+    expect(navLabels(el)).toEqual(['Tonight', 'Plans', 'Fleet', 'Depot', 'Rates', 'Costs', 'District']);
   });
 
   it('shows the product name, the depot, the user and the labelled menus in a header', async () => {

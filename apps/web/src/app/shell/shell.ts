@@ -1,4 +1,4 @@
-import { ChangeDetectionStrategy, Component, DOCUMENT, computed, inject, linkedSignal } from '@angular/core';
+import { ChangeDetectionStrategy, Component, DOCUMENT, computed, effect, inject, linkedSignal } from '@angular/core';
 import { takeUntilDestroyed } from '@angular/core/rxjs-interop';
 import { MatButtonModule } from '@angular/material/button';
 import { MatIconModule } from '@angular/material/icon';
@@ -13,6 +13,8 @@ import { AuthStore } from '../auth/auth-store';
 import { injectIsPhone } from '../core/layout';
 import { ThemeStore, type ThemeChoice } from '../core/theme-store';
 import { DepotListStore } from '../depot-state/depot-list-store';
+import { LiveStore } from '../depot-state/live-store';
+import { DepotSwitcher } from './depot-switcher';
 
 interface ThemeOption {
   value: ThemeChoice;
@@ -23,6 +25,7 @@ interface ThemeOption {
 @Component({
   selector: 'ny-shell',
   imports: [
+    DepotSwitcher,
     MatButtonModule,
     MatIconModule,
     MatListModule,
@@ -61,7 +64,10 @@ export class Shell {
       .join(', '),
   );
   protected readonly yardStaff = computed(() => this.auth.roles().includes('yard'));
-  protected readonly depot = this.depots.current;
+  /** Each depot switch renders the routed page anew. */
+  private readonly switches = this.depots.switches;
+  protected readonly outletKey = computed(() => [{ switches: this.switches() }]);
+  private readonly live = inject(LiveStore);
 
   protected readonly themeOptions: readonly ThemeOption[] = [
     { value: 'device', label: 'Match device', icon: 'contrast' },
@@ -71,6 +77,10 @@ export class Shell {
 
   constructor() {
     void this.depots.load();
+    // After a switch the page of the depot before is gone: its live stream closes now.
+    effect(() => {
+      if (this.switches() > 0) setTimeout(() => this.live.closeIdle());
+    });
 
     // After each in-app navigation: close the drawer on a phone and move focus to the page.
     this.router.events

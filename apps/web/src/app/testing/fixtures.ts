@@ -34,13 +34,17 @@ export function user(overrides: Partial<User> = {}): User {
     status: 'active',
     createdAt: '2026-11-01T10:00:00.000Z',
     lastSignInAt: null,
+    depotIds: [NORTH_ID],
     ...overrides,
   };
 }
 
+export const NORTH_ID = '00000000-0000-4000-8000-0000000000d1';
+export const SOUTH_ID = '00000000-0000-4000-8000-0000000000d2';
+
 export function depot(overrides: Partial<DepotSummary> = {}): DepotSummary {
   return {
-    id: '00000000-0000-4000-8000-0000000000d1',
+    id: NORTH_ID,
     name: 'North Depot',
     timezone: 'America/Chicago',
     serviceLimitKw: 500,
@@ -57,6 +61,20 @@ export function depot(overrides: Partial<DepotSummary> = {}): DepotSummary {
     },
     ...overrides,
   };
+}
+
+/** A second depot of the same organisation (another zone, smaller). */
+export function southDepot(overrides: Partial<DepotSummary> = {}): DepotSummary {
+  return depot({
+    id: SOUTH_ID,
+    name: 'Riverside Depot',
+    timezone: 'America/Denver',
+    serviceLimitKw: 300,
+    chargerCount: 4,
+    chargersInService: 4,
+    busCount: 8,
+    ...overrides,
+  });
 }
 
 /** Lets promise chains (HTTP -> promise -> next request) run. */

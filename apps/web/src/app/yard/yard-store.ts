@@ -276,6 +276,8 @@ export class YardStore {
   private async fetch(depotId: string): Promise<void> {
     const sentAt = performance.now();
     const [tonight, depot] = await Promise.allSettled([this.api.tonight(depotId), this.api.depot(depotId)]);
+    // The page moved to another depot meanwhile: this answer is of the depot before.
+    if (this.depotId() !== depotId) return;
     if (depot.status === 'fulfilled') this.chargers.set(depot.value.chargers);
     if (tonight.status === 'rejected') {
       const message = toApiProblem(tonight.reason).message;
