@@ -116,7 +116,7 @@ describe('DistrictPage', () => {
       'Period',
       'Bill to date',
       'Projected bill',
-      'Facility peak and demand target',
+      'Facility peak',
       'Open',
     ]);
     const rows = [...el.querySelectorAll('tbody tr')].map(cells);
@@ -141,7 +141,7 @@ describe('DistrictPage', () => {
       'Nov 15 – Dec 14, 2026, Winter Ratchet',
       '$800.00',
       '$2,000.00',
-      '290 kW , target 280 kW',
+      '290 kW , demand target 280 kW',
     ]);
     // A peak over the service limit is marked.
     expect(el.querySelectorAll('tbody tr')[1]!.querySelector('.meter .fill.over')).not.toBeNull();
@@ -183,7 +183,7 @@ describe('DistrictPage', () => {
         }),
       ],
     });
-    expect(el.querySelector('thead')!.textContent).not.toContain('demand target');
+    expect(el.querySelector('tbody')!.textContent).not.toContain('demand target');
     expect(cells(el.querySelector('tbody tr')!).slice(1, 9)).toEqual([
       'No plan yet',
       '–',
