@@ -3,6 +3,7 @@
 // them. The API's tests drive it; tools/station-simulator.ts runs the demo depot's chargers with it.
 import { RPCClient } from 'ocpp-rpc';
 import { ProfileStore, profileOf, type Protocol } from './station-profiles';
+import { systemClock } from '../time/clock';
 
 export interface StationOptions {
   url: string;
@@ -36,8 +37,7 @@ export class SimulatedStation {
   private heartbeat: NodeJS.Timeout | undefined;
 
   constructor(private readonly opts: StationOptions) {
-    // eslint-disable-next-line no-restricted-syntax -- the station's own clock, set from the central system's time
-    this.clock = opts.clock ?? (() => new Date(Date.now() + this.offsetMs));
+    this.clock = opts.clock ?? (() => new Date(systemClock().getTime() + this.offsetMs));
     this.client = new RPCClient({
       endpoint: opts.url,
       identity: opts.identity,
@@ -199,8 +199,8 @@ export class SimulatedStation {
   /** Keeps the central system's time (OCPP's currentTime), unless the station was given a clock. */
   private setTime(currentTime: string | undefined): void {
     const t = currentTime ? Date.parse(currentTime) : NaN;
-    // eslint-disable-next-line no-restricted-syntax -- measuring this machine's clock against the central system's
-    if (Number.isFinite(t)) this.offsetMs = t - Date.now();
+    // The station's own clock set to the central system's: the offset from the one clock service.
+    if (Number.isFinite(t)) this.offsetMs = t - systemClock().getTime();
   }
 
   async stop(): Promise<void> {
