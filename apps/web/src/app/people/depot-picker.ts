@@ -44,31 +44,14 @@ let nextId = 0;
       <p class="ny-form-error" [id]="errorId" aria-live="polite">{{ problem() }}</p>
     </fieldset>
   `,
+  styleUrl: './choice-group.scss',
   styles: `
-    fieldset {
-      margin: 0;
-      padding: 0;
-      border: 0;
-      min-width: 0;
-    }
     legend {
-      padding: 0;
       margin-bottom: 2px;
-      font: var(--mat-sys-title-small);
-      color: var(--mat-sys-on-surface);
     }
     .hint {
       margin: 0 0 4px;
       color: var(--mat-sys-on-surface-variant);
-      font: var(--mat-sys-body-small);
-    }
-    .boxes {
-      display: grid;
-      grid-template-columns: repeat(auto-fill, minmax(190px, 1fr));
-    }
-    .ny-form-error {
-      margin: 4px 0 0;
-      min-height: 1.25em;
       font: var(--mat-sys-body-small);
     }
   `,

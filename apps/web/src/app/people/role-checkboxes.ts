@@ -26,27 +26,10 @@ let nextId = 0;
       </p>
     </fieldset>
   `,
+  styleUrl: './choice-group.scss',
   styles: `
-    fieldset {
-      margin: 0;
-      padding: 0;
-      border: 0;
-      min-width: 0;
-    }
     legend {
-      padding: 0;
       margin-bottom: 4px;
-      font: var(--mat-sys-title-small);
-      color: var(--mat-sys-on-surface);
-    }
-    .boxes {
-      display: grid;
-      grid-template-columns: repeat(auto-fill, minmax(190px, 1fr));
-    }
-    p {
-      margin: 4px 0 0;
-      min-height: 1.25em;
-      font: var(--mat-sys-body-small);
     }
   `,
 })
