@@ -59,6 +59,7 @@ export {
   type BillOptions,
   type IntervalDemand,
 } from './bill/bill.js';
+export { quarterHours, type MeterReading } from './bill/quarter-hours.js';
 /** Re-planning at a cut-off `now` (energy per bus, buses plugged in, chargers out of service,
  *  late buses): `replan(scenario, state, options?)` plans the rest of the horizon. */
 export { replan, deriveScenario, ReplanStateError, type ReplanState, type Replan } from './replan.js';

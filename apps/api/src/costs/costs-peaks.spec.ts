@@ -127,4 +127,80 @@ describe('peaks so far and the bill', () => {
     const fresh = await monthCosts(app.db, caller, depot.id, '2026-12-10', now, undefined, newMonthCostsCache());
     expect(fresh.projected.total).toBeCloseTo(m.projected.total, 9);
   });
+  it('5-minute meter readings are billed as 15-minute demand: added up into their quarter hour', async () => {
+    // Demand is billed on the highest quarter hour (the brief). 3 + 5 + 4 kWh from 22:00 to 22:15
+    // is 12 kWh, 48 kW; the 5 kWh reading alone would read 60 kW, and the first alone 36 kW.
+    const { depot } = await createDepot(app.db, organisationId, 'Peaks depot D');
+    const rows = [
+      ['22:00', '22:04', '3.00'],
+      ['22:05', '22:09', '5.00'],
+      ['22:10', '22:14', '4.00'],
+      ['22:15', '22:19', '1.00'],
+    ];
+    const content = [
+      'TYPE,DATE,START TIME,END TIME,USAGE,UNITS,COST,NOTES',
+      ...rows.map(([from, to, kwh]) => `Electric usage,2026-12-08,${from},${to},${kwh},kWh,$0.10,`),
+    ].join('\n');
+    const imported = await app
+      .request()
+      .post(`/api/depots/${depot.id}/meter-data`)
+      .set(as(fin))
+      .send({ fileName: 'five.csv', content, billingPeriodStart: '2026-12-01' })
+      .expect(201);
+    expect(imported.body).toMatchObject({ minutes: 5, intervals: 4 });
+    expect(imported.body.peaks.facilityKw).toBeCloseTo(48, 9);
+    const m = (
+      await app
+        .request()
+        .get(`/api/depots/${depot.id}/costs/month`)
+        .query({ date: '2026-12-10' })
+        .set(as(fin))
+        .expect(200)
+    ).body;
+    // The incomplete quarter from 22:15 (one reading of three) is not read as a 4 kW quarter.
+    expect(m.peaks.facility.kw).toBeCloseTo(48, 9);
+    expect(line(m.monthToDate.demand, 'Facility demand').quantity).toBeCloseTo(48, 9);
+  });
+
+  it('a demand ratchet reads 5-minute readings of earlier months as 15-minute demand too', async () => {
+    const { depot, ratePlan } = await createDepot(app.db, organisationId, 'Peaks depot E');
+    await app.db
+      .update(ratePlans)
+      .set({ definition: { ...ratePlan.definition, demandRatchet: { percent: 80, months: 11 } } })
+      .where(eq(ratePlans.id, ratePlan.id));
+    const [imp] = await app.db
+      .insert(meterImports)
+      .values({
+        organisationId,
+        depotId: depot.id,
+        fileName: 'nov.csv',
+        format: 'csv',
+        billingPeriodStart: '2026-11-01',
+        intervals: 3,
+        duplicates: 0,
+        gaps: [],
+      })
+      .returning();
+    // 20 + 40 + 40 kWh in the quarter hour from 14:00: 400 kW of 15-minute demand (a 40 kWh
+    // 5-minute reading alone would be 480 kW).
+    await app.db.insert(meterIntervals).values(
+      [20, 40, 40].map((kwh, k) => ({
+        organisationId,
+        depotId: depot.id,
+        startsAt: new Date(Date.parse('2026-11-10T14:00:00-06:00') + k * 5 * 60_000),
+        minutes: 5,
+        kwh,
+        importId: imp!.id,
+      })),
+    );
+    const m = (
+      await app
+        .request()
+        .get(`/api/depots/${depot.id}/costs/month`)
+        .query({ date: '2026-12-10' })
+        .set(as(fin))
+        .expect(200)
+    ).body;
+    expect(line(m.projected.demand, 'Facility demand').quantity).toBeCloseTo(320, 9);
+  });
 });

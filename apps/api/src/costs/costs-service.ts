@@ -9,7 +9,7 @@ import {
   type PlanResult,
   type RatePlanDefinition,
 } from '@nightyard/contracts';
-import { computeBill, ratePlanPeriodAt, type Bill, type IntervalDemand } from '@nightyard/scheduling';
+import { computeBill, quarterHours, ratePlanPeriodAt, type Bill, type IntervalDemand } from '@nightyard/scheduling';
 import type { Pool } from 'pg';
 import type { Db } from '../db/client';
 import { billingPeaks, buses, meterIntervals, plans, runs } from '../db/schema';
@@ -202,7 +202,15 @@ export async function ratchetBaseOf(
   const client = (db as unknown as { $client: Pool }).$client;
   const { rows } = await client.query<{ metered: number | null; planned: number | null }>(
     `select
-       (select max(kwh * 60.0 / minutes) from meter_intervals where depot_id = $1 and starts_at >= $2 and starts_at < $3) as metered,
+       (select max(kw) from (
+          -- 15-minute demand, as quarterHours reads the meter: shorter readings added up into their
+          -- (complete) quarter hour, longer ones spread evenly.
+          select sum(kwh) * 4 as kw from meter_intervals
+            where depot_id = $1 and starts_at >= $2 and starts_at < $3 and minutes < 15
+            group by date_bin('15 minutes', starts_at, timestamptz '2000-01-01 00:00Z') having sum(minutes) >= 15
+          union all
+          select kwh * 60.0 / minutes from meter_intervals
+            where depot_id = $1 and starts_at >= $2 and starts_at < $3 and minutes >= 15) readings) as metered,
        (select max((s->>'loadKw')::float8) from plans p, jsonb_array_elements(p.result->'slots') s
          where p.depot_id = $1 and p.state = 'published' and p.service_date >= $4 and p.service_date < $5
            and (s->>'start')::timestamptz >= $2 and (s->>'start')::timestamptz < $3) as planned`,
@@ -280,12 +288,13 @@ async function periodBase(db: Db, depot: Depot, period: Period): Promise<PeriodB
       ),
     );
 
-  const actualKwh = new Map<number, number>();
-  for (const a of actual) {
-    // Longer meter intervals are spread evenly over their quarter hours.
-    const parts = a.minutes / 15;
-    for (let k = 0; k < parts; k++) actualKwh.set(a.startsAt.getTime() + k * SLOT_MS, a.kwh / parts);
-  }
+  // The readings as the quarter hours the plans and the demand charge use (one rule: quarterHours).
+  const actualKwh = new Map(
+    quarterHours(actual.map((a) => ({ startMs: a.startsAt.getTime(), minutes: a.minutes, kwh: a.kwh }))).map((q) => [
+      q.startMs,
+      q.kwh,
+    ]),
+  );
   const plannedKw = new Map<number, number>();
   // The same site load with the night charged as its baseline would (nights compared only).
   const baselineKw = new Map<number, number>();

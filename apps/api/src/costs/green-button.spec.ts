@@ -106,6 +106,28 @@ describe('Green Button CSV', () => {
     expect(checkIntervals(file, ...period, ZONE, at2400).intervals).toHaveLength(8);
   });
 
+  it('refuses intervals that neither fit in a quarter hour nor cover whole ones, and starts off the clock marks', () => {
+    // Demand is billed on quarter hours (the brief): a 10-minute reading straddles two of them.
+    const csv = (rows: string[]) =>
+      parseGreenButtonCsv(
+        [
+          'TYPE,DATE,START TIME,END TIME,USAGE,UNITS,COST,NOTES',
+          ...rows.map((r) => `Electric usage,2026-12-02,${r},kWh,$0.10,`),
+        ].join('\n'),
+        ZONE,
+      );
+    const tens = csv(['22:00,22:09,2.00', '22:10,22:19,2.00']);
+    expect(fields(() => checkIntervals(tens, ...period, ZONE, AFTER)).message).toMatch(
+      /10-minute intervals are not supported: export 5-, 15-, 30- or 60-minute intervals/,
+    );
+    const shifted = csv(['22:05,22:19,7.00', '22:20,22:34,7.00']);
+    const err = fields(() => checkIntervals(shifted, ...period, ZONE, AFTER));
+    expect(err.message).toMatch(/2 readings do not start on the clock's 15-minute marks, e.g. 2026-12-02 22:05:00/);
+    expect(err.intervals).toBe('Off the clock marks');
+    const fives = csv(['22:00,22:04,1.00', '22:05,22:09,2.00', '22:10,22:14,3.00']);
+    expect(checkIntervals(fives, ...period, ZONE, AFTER)).toMatchObject({ minutes: 5, gaps: [] });
+  });
+
   it('refuses the same interval twice with two different readings', () => {
     const text = fixture('green-button-evening.csv') + 'Electric usage,2026-12-02,22:00,22:14,9.00,kWh,$0.61,\n';
     expect(

@@ -21,6 +21,8 @@ const UOM_WH = 72;
 /** ESPI powers of ten run from pico (-12) to tera (12). */
 const MAX_POWER_OF_TEN = 12;
 const FIRST_MS = Date.UTC(FIRST_YEAR, 0, 1);
+/** Interval lengths that lie inside one quarter hour or cover whole ones (minutes). */
+const SUPPORTED_MINUTES = [1, 3, 5, 15, 30, 60];
 const END_MS = Date.UTC(LAST_YEAR + 1, 0, 1);
 
 /**
@@ -223,9 +225,22 @@ export function checkIntervals(
       intervals: 'Mixed lengths',
     });
   const minutes = lengths[0]!;
-  if (60 % minutes !== 0 && minutes !== 60)
-    fail(`${minutes}-minute intervals are not supported`, { intervals: `${minutes} minutes` });
+  // Demand is billed on quarter hours: a reading must fall inside one or cover whole ones.
+  if (!SUPPORTED_MINUTES.includes(minutes))
+    fail(`${minutes}-minute intervals are not supported: export 5-, 15-, 30- or 60-minute intervals`, {
+      intervals: `${minutes} minutes`,
+    });
   const local = (ms: number) => DateTime.fromMillis(ms, { zone }).toFormat('yyyy-MM-dd HH:mm');
+  const offMark = file.intervals.filter((i) => {
+    const t = DateTime.fromMillis(i.startMs, { zone });
+    return t.minute % minutes !== 0 || t.second !== 0 || t.millisecond !== 0;
+  });
+  if (offMark.length) {
+    fail(
+      `${offMark.length} readings do not start on the clock's ${minutes}-minute marks, e.g. ${DateTime.fromMillis(offMark[0]!.startMs, { zone }).toFormat('yyyy-MM-dd HH:mm:ss')}: check the file's start times and time zone`,
+      { intervals: 'Off the clock marks' },
+    );
+  }
   const outside = file.intervals.filter((i) => i.startMs < periodStartMs || i.startMs + minutes * 60_000 > periodEndMs);
   if (outside.length) {
     fail(

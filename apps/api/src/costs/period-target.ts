@@ -6,6 +6,7 @@ import type { PeriodTargetView } from '@nightyard/contracts';
 import {
   parseScenario,
   peaksOf,
+  quarterHours,
   ratePlanPeriodAt,
   shiftScenario,
   type PeriodNight,
@@ -123,13 +124,9 @@ export async function periodNightsOf(
       ),
     )
     .orderBy(asc(meterIntervals.startsAt));
-  const intervals = metered.flatMap((m) => {
-    const parts = Math.max(1, m.minutes / 15);
-    return Array.from({ length: parts }, (_, k) => ({
-      startMs: m.startsAt.getTime() + k * 15 * 60_000,
-      kwh: m.kwh / parts,
-    }));
-  });
+  const intervals = quarterHours(
+    metered.map((m) => ({ startMs: m.startsAt.getTime(), minutes: m.minutes, kwh: m.kwh })),
+  );
   const measured = intervals.length ? peaksOf(rate.definition, intervals, { zone, intervalMinutes: 15 }) : null;
   // The published plans of the period's nights before this one set peaks too (where not metered).
   const earlier = await db

@@ -6,6 +6,7 @@ import {
   ReplanStateError,
   loadSolver,
   peaksOf,
+  quarterHours,
   planScenario,
   planUnderTarget,
   solvePeriodTarget,
@@ -152,7 +153,8 @@ async function perform(task: PoolTask): Promise<unknown> {
         ? parseGreenButtonXml(task.content)
         : parseGreenButtonCsv(task.content, task.zone);
       const checked = checkIntervals(file, task.periodStartMs, task.periodEndMs, task.zone, task.nowMs);
-      const measured = peaksOf(task.rate, checked.intervals, { zone: task.zone, intervalMinutes: checked.minutes });
+      // Peaks of 15-minute demand, whatever the meter's interval (the costs month reads it the same way).
+      const measured = peaksOf(task.rate, quarterHours(checked.intervals), { zone: task.zone, intervalMinutes: 15 });
       return { format: file.format, checked, measured } satisfies MeterFileReading;
     }
     case 'hash-password':
