@@ -22,8 +22,9 @@ import type { Problem, Stay } from './problem.js';
 //    is released and laid out again with them; a stay without a session may get one. Each change
 //    is scored by a cheap proxy (energy the windows cannot hold, including the cut session's own,
 //    then the relaxation's charging covered); the best few cuts and releases are solved by the LP.
-//    A small beam (the 4 cheapest plans per number of changes) keeps a first change that looks
-//    best but leads nowhere from hiding a pair that serves every bus.
+//    A small beam (the 4 cheapest plans per number of changes; 2, and cuts only of the 16 kept
+//    sessions whose release helps most, above 120 stays) keeps a first change that looks best but
+//    leads nowhere from hiding a pair that serves every bus.
 // 4. The plan chosen: the fewest buses changed among the plans within the depot's tolerance
 //    (a share of the money cost, or the amount) of the cheapest found, where shortfall the plan
 //    being carried out already had earns no credit (a fault does not justify moving unaffected
@@ -393,7 +394,7 @@ export function stableRepair(
     children.sort((x, y) => x.result.objective - y.result.objective || moves(x) - moves(y) || x.order - y.order);
     const bestBefore = cheapest(visited);
     const anyWithin = visited.some((v) => v.result.objective <= limits.limit);
-    beam = children.slice(0, BEAM);
+    beam = children.slice(0, problem.stays.length > 120 ? 2 : BEAM);
     visited.push(...beam);
     // One more moved bus is worth it only for a saving beyond the tolerance; once a plan is
     // within the depot's limit and a round brings no such saving, further rounds will not either.
@@ -475,12 +476,18 @@ export function stableRepair(
       const { base, busy, used } = without(problem, kept!, released.concat(isKept ? [id] : []), cuts);
       const layout = layOut(problem, hints, base, busy, used, [...moving, id], [...cuts.keys()]);
       candidates.push({ id, layout, lack: layout.lack + cutLack + unserved(id), cut: null });
-      if (!isKept) continue;
-      const best = bestCut(problem, hints, base, busy, used, moving, kept!.base, id, null, [...cuts.keys()]);
-      if (best) cutCandidates.push({ ...best, lack: best.lack + cutLack + unserved(-1) });
     }
     const order = (x: Candidate, y: Candidate) => x.lack - y.lack || y.layout.cover - x.layout.cover || x.id - y.id;
     candidates.sort(order);
+    // Cuts of the kept sessions (each tries every slot the crew can make: the costliest part of
+    // the search); on a large depot only of those whose release would help most.
+    for (const cand of candidates
+      .filter((x) => kept!.base.chargerOf[x.id]! >= 0 && !cuts.has(x.id))
+      .slice(0, problem.stays.length > 120 ? CUT_STAYS : undefined)) {
+      const { base, busy, used } = without(problem, kept!, released.concat([cand.id]), cuts);
+      const best = bestCut(problem, hints, base, busy, used, moving, kept!.base, cand.id, null, [...cuts.keys()]);
+      if (best) cutCandidates.push({ ...best, lack: best.lack + cutLack + unserved(-1) });
+    }
     cutCandidates.sort(order);
     // The best releases and the best cuts both go to the LP (a cut is the smaller change: the bus
     // keeps its charger).
@@ -509,9 +516,11 @@ export function stableRepair(
   }
 }
 
-/** Plans kept per round of the repair's search, and cuts tried by the LP per plan. */
+/** Plans kept per round of the repair's search (2 on depots above 120 stays), and cuts tried by the LP per plan. */
 const BEAM = 4;
 const CUTS_TRIED = 3;
+/** Kept sessions tried for a cut per plan on depots above 120 stays (all below). */
+const CUT_STAYS = 16;
 
 interface RepairState {
   /** Kept stays laid out again (or stays without a session given one). */
@@ -567,6 +576,25 @@ function without(
     place(problem, { base, busy, used }, id, c, w.from, w.to);
   }
   return { base, busy, used };
+}
+
+/** Takes back what `place` did (the stay was off the charger before). */
+function unplace(
+  problem: Problem,
+  into: { base: Assignment; busy: Int32Array[]; used: Int32Array },
+  id: number,
+  c: number,
+  f: number,
+  u: number,
+) {
+  const stay = problem.stays[id]!;
+  const pinned = problem.pinned ? problem.pinned[id]! >= 0 : false;
+  into.base.chargerOf[id] = -1;
+  into.base.from[id] = 0;
+  into.base.to[id] = 0;
+  for (let t = f; t < u; t++) into.busy[c]![t] = -1;
+  if (!pinned && !startIsFree(problem, stay, f)) into.used[f]!--;
+  if (!endIsFree(problem, stay, u)) into.used[u]!--;
 }
 
 /** Puts a stay on a charger in a window and counts its crew moves. */
@@ -640,10 +668,13 @@ function bestCut(
       if (startMove && f < T && cap[f]! - used[f]! < 1) return;
       if (endMove && u < T && cap[u]! - used[u]! - (f === u ? startMove : 0) < 1) return;
     }
-    const into = { base: cloneAssignment(base), busy: busy.map((r) => r.slice()), used: used.slice() };
-    place(problem, into, id, c, f, u);
-    const layout = layOut(problem, hints, into.base, into.busy, into.used, moving, widen);
     const own = Math.max(0, need - 0.85 * kw * problem.slotHours * (u - f));
+    if (best && own > best.lack + 1e-9) return; // the cut's own lack alone is worse
+    // Placed in the caller's arrays for the layout (which copies them), then taken out again.
+    const into = { base, busy, used };
+    place(problem, into, id, c, f, u);
+    const layout = layOut(problem, hints, base, busy, used, moving, widen);
+    unplace(problem, into, id, c, f, u);
     const lack = layout.lack + own;
     if (!best || lack < best.lack - 1e-9 || (lack < best.lack + 1e-9 && layout.cover > best.layout.cover + 1e-9))
       best = { id, layout, lack, cut: { from: f, to: u } };
