@@ -86,8 +86,10 @@ export interface Problem {
   /**
    * Re-planning: per stay, the charger and window the plan being carried out gives it from the
    * cut-off on (charger -1: none). A re-plan keeps these where it can (see `keptAssignment`).
+   * `shortfallKwh`: what that plan left short in total (the buses still to plan); shortfall up to
+   * it is not the fault's doing, and serving it does not justify moving other buses (stable.ts).
    */
-  previous?: { chargerOf: Int32Array; from: Int32Array; to: Int32Array };
+  previous?: { chargerOf: Int32Array; from: Int32Array; to: Int32Array; shortfallKwh?: number };
   /** Cost a plan may add to make fewer crew moves or move fewer buses: max(share x cost, amount). */
   tolerance: { share: number; amount: number };
 }

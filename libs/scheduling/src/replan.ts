@@ -322,7 +322,10 @@ function previousWindows(problem: ReturnType<typeof prepareProblem>, previous: P
     from[stay.id] = Math.max(a, stay.arriveSlot);
     to[stay.id] = Math.min(b, stay.departSlot);
   }
-  return { chargerOf, from, to };
+  // What it left short, for the buses still to plan (a bus's later shortfall counts from the cut-off).
+  let shortfallKwh = 0;
+  for (const b of previous.buses) if (busIndex.has(b.id)) shortfallKwh += b.shortfallKwh;
+  return { chargerOf, from, to, shortfallKwh };
 }
 
 /** Buses whose sessions from the cut-off on differ from the previous plan's, and why. */

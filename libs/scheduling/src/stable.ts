@@ -15,14 +15,23 @@ import type { Problem, Stay } from './problem.js';
 //    most of the relaxation's charging of that bus, then is shortest; the crew must have room for
 //    every move it needs. Then each window is widened into the idle time beside it (more room for
 //    the LP, no other bus moves). The LP sets the power.
-// 3. While that plan costs more than the tolerance above the cheapest plan found, one kept
-//    session more is released at a time: the candidates are laid out again together with the open
-//    stays (a cheap proxy: energy the windows cannot hold, then the relaxation's charging they
-//    miss), the most promising few are solved by the LP and the best is taken if it saves at
-//    least a tenth of the tolerance's amount. Counted budgets only (releases, LP solves), so the
-//    same inputs give the same plan.
-// The engine takes the repaired plan when it is within the tolerance; otherwise the cheapest plan
-// (a plan kept dearer than the depot allows is not kept).
+// 3. Where idle time is missing (every charger busy through the night, no crew between the
+//    evening and the morning), other buses change, one more at a time: a kept session is cut short
+//    on its own charger (unplugged earlier or plugged in later, where the crew has room, its
+//    minimum plug-in kept), which frees the time behind or before it for the moving stays, or it
+//    is released and laid out again with them; a stay without a session may get one. Each change
+//    is scored by a cheap proxy (energy the windows cannot hold, including the cut session's own,
+//    then the relaxation's charging covered); the best few cuts and releases are solved by the LP.
+//    A small beam (the 4 cheapest plans per number of changes; 2, and cuts only of the 16 kept
+//    sessions whose release helps most, above 120 stays) keeps a first change that looks best but
+//    leads nowhere from hiding a pair that serves every bus.
+// 4. The plan chosen: the fewest buses changed among the plans within the depot's tolerance
+//    (a share of the money cost, or the amount) of the cheapest found, where shortfall the plan
+//    being carried out already had earns no credit (a fault does not justify moving unaffected
+//    buses to mend an old shortage). Counted budgets only (changes, LP solves), so the same inputs
+//    give the same plan.
+// The engine takes the repaired plan when it is within the tolerance of its own cheapest plan;
+// otherwise it searches on from it (a plan kept dearer than the depot allows is not kept).
 
 /** The plan being carried out, kept; null when there is none to keep (the older re-seat, kept as a fallback). */
 export function keptAssignment(problem: Problem, energy: Float64Array): Assignment | null {
@@ -182,6 +191,7 @@ function layOut(
   busyBase: Int32Array[],
   usedBase: Int32Array,
   place: number[],
+  widen: number[] = [],
 ): Layout {
   const T = problem.slotCount;
   const dt = problem.slotHours;
@@ -257,8 +267,9 @@ function layOut(
     cover += best.cover;
     placed.push(id);
   }
-  // Widen each placed window into the idle time beside it where the crew can move its ends there.
-  for (const id of placed) {
+  // Widen each placed window (and those of `widen`, stays already moved) into the idle time
+  // beside it where the crew can move its ends there.
+  for (const id of [...placed, ...widen]) {
     const stay = problem.stays[id]!;
     const c = a.chargerOf[id]!;
     const ch = problem.chargers[c]!;
@@ -329,13 +340,103 @@ export function stableRepair(
     iterations += res.iterations;
     return res;
   };
-  const tolerance = (v: number) => Math.max(problem.tolerance.share * Math.abs(v), problem.tolerance.amount);
-  // Changed besides the open stays: kept sessions released, or stays without a session given one.
-  const released: number[] = [];
-  let current = layOut(problem, hints, kept.base, kept.busy, kept.used, open);
-  let result = solve(current.assignment);
-  if (result.status !== 'optimal') return null;
-  while (released.length < limits.releases && performance.now() < limits.deadline) {
+  // The depot's tolerance is a share of what the plan costs in money, not of the shortfall's penalty.
+  const tolerance = (st: RepairState) =>
+    Math.max(
+      problem.tolerance.share * Math.abs(st.result.objective - problem.shortfallPenalty * st.short),
+      problem.tolerance.amount,
+    );
+  // Changed besides the open stays: kept sessions released (laid out again anywhere), kept
+  // sessions cut short on their own charger (unplugged earlier or plugged in later, which gives
+  // the moving stays the time behind or before them), stays without a session given one.
+  const shortOf = (r: LpResult) => {
+    let total = 0;
+    for (const stay of problem.stays) {
+      const c = live.model.shortCol[stay.id]!;
+      if (c >= 0 && r.x.length) total += r.x[c]!;
+    }
+    return total;
+  };
+  // What the plan being carried out left short: serving that is not repairing the fault, so it
+  // earns no credit when choosing how many buses to move.
+  const oldShort = problem.previous.shortfallKwh ?? null;
+  const credited = (st: RepairState) =>
+    st.result.objective + (oldShort === null ? 0 : problem.shortfallPenalty * Math.max(0, oldShort - st.short));
+  const cheapest = (states: RepairState[]) => states.reduce((a, b) => (credited(b) < credited(a) - 1e-9 ? b : a));
+  const first = layOut(problem, hints, kept.base, kept.busy, kept.used, open);
+  const firstResult = solve(first.assignment);
+  if (firstResult.status !== 'optimal') return null;
+  const start: RepairState = {
+    released: [],
+    cuts: new Map(),
+    layout: first,
+    result: firstResult,
+    short: shortOf(firstResult),
+    order: 0,
+  };
+  let counter = 1;
+  const visited: RepairState[] = [start];
+  const seen = new Set([stateKey(start)]);
+  let beam = [start];
+  for (let round = 0; round < limits.releases && performance.now() < limits.deadline; round++) {
+    const children: RepairState[] = [];
+    for (const st of beam) {
+      for (const child of expand(st)) {
+        const key = stateKey(child);
+        // Each step must save something (a tenth of the tolerance's amount); which step count
+        // is worth its moved buses is decided below.
+        if (seen.has(key) || child.result.objective > st.result.objective - limits.minGain) continue;
+        seen.add(key);
+        children.push(child);
+      }
+    }
+    if (children.length === 0) break;
+    children.sort((x, y) => x.result.objective - y.result.objective || moves(x) - moves(y) || x.order - y.order);
+    const bestBefore = cheapest(visited);
+    const anyWithin = visited.some((v) => v.result.objective <= limits.limit);
+    beam = children.slice(0, problem.stays.length > 120 ? 2 : BEAM);
+    visited.push(...beam);
+    // One more moved bus is worth it only for a saving beyond the tolerance; once a plan is
+    // within the depot's limit and a round brings no such saving, further rounds will not either.
+    const bestNow = cheapest(beam);
+    if (anyWithin && credited(bestNow) > credited(bestBefore) - tolerance(bestNow)) break;
+  }
+  // The plan with fewest buses moved among those within the tolerance of the cheapest found
+  // (shortfall the plan being carried out already had not credited), within the depot's limit.
+  const within = visited.filter((v) => v.result.objective <= limits.limit);
+  let chosen: RepairState;
+  if (within.length) {
+    const ref = cheapest(visited);
+    const near = within.filter((v) => credited(v) <= credited(ref) + tolerance(ref));
+    chosen = (near.length ? near : [cheapest(within)]).sort(
+      (x, y) => moves(x) - moves(y) || credited(x) - credited(y) || x.order - y.order,
+    )[0]!;
+  } else chosen = visited.slice().sort((x, y) => x.result.objective - y.result.objective || x.order - y.order)[0]!;
+  live.update(chosen.layout.assignment, all);
+  const result = live.solve();
+  lpSolves++;
+  iterations += result.iterations;
+  return {
+    assignment: chosen.layout.assignment,
+    result,
+    open,
+    released: [...chosen.released, ...chosen.cuts.keys()],
+    lpSolves,
+    iterations,
+  };
+
+  /** Energy a cut stay's shorter window cannot hold at 85 % of full power (kWh). */
+  function ownLack(id: number, w: { from: number; to: number }) {
+    const stay = problem.stays[id]!;
+    const kw = Math.min(problem.buses[stay.bus]!.maxKw, problem.chargers[kept!.base.chargerOf[id]!]!.maxKw);
+    return Math.max(0, hints.energy[id]! - 0.85 * kw * problem.slotHours * (w.to - w.from));
+  }
+
+  /** The plans one change away: one more kept session released or cut, or a cut one changed again. */
+  function expand(st: RepairState): RepairState[] {
+    const { released, cuts } = st;
+    let cutLack = 0;
+    for (const [id, w] of cuts) cutLack += ownLack(id, w);
     const moving = [...open, ...released];
     const overlaps = (x: number) => {
       const s = problem.stays[x]!;
@@ -345,50 +446,119 @@ export function stableRepair(
       });
     };
     // Candidates: kept sessions of stays at the depot while a moving stay is (the only ones whose
-    // place can help it), and stays without a session that the relaxation charges. Each is laid
-    // out again with the moving stays; the best proxies (energy the windows cannot hold, counting
-    // the needs of stays left without a session, then the relaxation's charging covered) go to the LP.
-    const candidates: { id: number; layout: Layout; lack: number }[] = [];
+    // place can help it), released or cut short, and stays without a session that the relaxation
+    // charges. Each is laid out again with the moving stays; the best proxies (energy the windows
+    // cannot hold, counting the needs of stays left without a session, then the relaxation's
+    // charging covered) go to the LP.
+    const candidates: Candidate[] = [];
+    const cutCandidates: Candidate[] = [];
     const unserved = (extra: number) =>
       optional.reduce((a, id) => a + (released.includes(id) || id === extra ? 0 : hints.energy[id]!), 0);
     for (const stay of problem.stays) {
       const id = stay.id;
       if (released.includes(id)) continue;
-      const isKept = kept.base.chargerOf[id]! >= 0;
+      const isKept = kept!.base.chargerOf[id]! >= 0;
+      if (cuts.has(id)) {
+        // Already moved: another cut, or laid out anywhere, moves no one more.
+        const others = new Map(cuts);
+        others.delete(id);
+        const rest = cutLack - ownLack(id, cuts.get(id)!);
+        const { base, busy, used } = without(problem, kept!, released.concat([id]), others);
+        const layout = layOut(problem, hints, base, busy, used, [...moving, id], [...others.keys()]);
+        candidates.push({ id, layout, lack: layout.lack + rest + unserved(-1), cut: null });
+        const again = bestCut(problem, hints, base, busy, used, moving, kept!.base, id, cuts.get(id)!, [
+          ...others.keys(),
+        ]);
+        if (again) cutCandidates.push({ ...again, lack: again.lack + rest + unserved(-1) });
+        continue;
+      }
       if (isKept ? !overlaps(id) : !optional.includes(id)) continue;
-      const { base, busy, used } = without(problem, kept, released.concat(isKept ? [id] : []));
-      const layout = layOut(problem, hints, base, busy, used, [...moving, id]);
-      candidates.push({ id, layout, lack: layout.lack + unserved(id) });
+      const { base, busy, used } = without(problem, kept!, released.concat(isKept ? [id] : []), cuts);
+      const layout = layOut(problem, hints, base, busy, used, [...moving, id], [...cuts.keys()]);
+      candidates.push({ id, layout, lack: layout.lack + cutLack + unserved(id), cut: null });
     }
-    candidates.sort((x, y) => x.lack - y.lack || y.layout.cover - x.layout.cover || x.id - y.id);
-    let best: { id: number; layout: Layout; result: LpResult } | null = null;
-    for (const cand of candidates.slice(0, limits.candidates)) {
+    const order = (x: Candidate, y: Candidate) => x.lack - y.lack || y.layout.cover - x.layout.cover || x.id - y.id;
+    candidates.sort(order);
+    // Cuts of the kept sessions (each tries every slot the crew can make: the costliest part of
+    // the search); on a large depot only of those whose release would help most.
+    for (const cand of candidates
+      .filter((x) => kept!.base.chargerOf[x.id]! >= 0 && !cuts.has(x.id))
+      .slice(0, problem.stays.length > 120 ? CUT_STAYS : undefined)) {
+      const { base, busy, used } = without(problem, kept!, released.concat([cand.id]), cuts);
+      const best = bestCut(problem, hints, base, busy, used, moving, kept!.base, cand.id, null, [...cuts.keys()]);
+      if (best) cutCandidates.push({ ...best, lack: best.lack + cutLack + unserved(-1) });
+    }
+    cutCandidates.sort(order);
+    // The best releases and the best cuts both go to the LP (a cut is the smaller change: the bus
+    // keeps its charger).
+    const tried = [...cutCandidates.slice(0, CUTS_TRIED), ...candidates.slice(0, limits.candidates)];
+    const out: RepairState[] = [];
+    for (const cand of tried) {
       const res = solve(cand.layout.assignment);
-      if (res.status === 'optimal' && (!best || res.objective < best.result.objective - 1e-9))
-        best = { ...cand, result: res };
+      if (res.status !== 'optimal') continue;
+      const nextCuts = new Map(cuts);
+      const nextReleased = released.slice();
+      if (cand.cut) nextCuts.set(cand.id, cand.cut);
+      else {
+        nextCuts.delete(cand.id);
+        if (!nextReleased.includes(cand.id)) nextReleased.push(cand.id);
+      }
+      out.push({
+        released: nextReleased,
+        cuts: nextCuts,
+        layout: cand.layout,
+        result: res,
+        short: shortOf(res),
+        order: counter++,
+      });
     }
-    // One more bus changed only for a saving: while the plan is dearer than the tolerance above
-    // the cheapest plan found, a tenth of the tolerance's amount; within it, more than the
-    // tolerance (else the plan with fewer changes is within the tolerance of the better one).
-    const gain = best ? result.objective - best.result.objective : 0;
-    if (!best || gain < (result.objective > limits.limit ? limits.minGain : tolerance(best.result.objective))) break;
-    released.push(best.id);
-    current = best.layout;
-    result = best.result;
+    return out;
   }
-  live.update(current.assignment, all);
-  result = live.solve();
-  lpSolves++;
-  iterations += result.iterations;
-  return { assignment: current.assignment, result, open, released, lpSolves, iterations };
 }
 
-/** The kept windows without some stays (their windows and crew moves given back). */
-function without(problem: Problem, kept: NonNullable<ReturnType<typeof keptWindows>>, ids: number[]) {
+/** Plans kept per round of the repair's search (2 on depots above 120 stays), and cuts tried by the LP per plan. */
+const BEAM = 4;
+const CUTS_TRIED = 3;
+/** Kept sessions tried for a cut per plan on depots above 120 stays (all below). */
+const CUT_STAYS = 16;
+
+interface RepairState {
+  /** Kept stays laid out again (or stays without a session given one). */
+  released: number[];
+  /** Kept stays cut short on their charger, with their new window. */
+  cuts: Map<number, { from: number; to: number }>;
+  layout: Layout;
+  result: LpResult;
+  /** kWh short. */
+  short: number;
+  /** Order found (ties). */
+  order: number;
+}
+
+const moves = (st: RepairState) => st.released.length + st.cuts.size;
+const stateKey = (st: RepairState) =>
+  `${st.released
+    .slice()
+    .sort((a, b) => a - b)
+    .join(',')}|${[...st.cuts]
+    .sort((a, b) => a[0] - b[0])
+    .map(([id, w]) => `${id}:${w.from}-${w.to}`)
+    .join(',')}`;
+
+/**
+ * The kept windows without some stays (their windows and crew moves given back), and with the
+ * cuts made so far (each cut stay on its charger in its shorter window).
+ */
+function without(
+  problem: Problem,
+  kept: NonNullable<ReturnType<typeof keptWindows>>,
+  ids: number[],
+  cuts: Map<number, { from: number; to: number }> = new Map(),
+) {
   const base = cloneAssignment(kept.base);
   const busy = kept.busy.map((r) => r.slice());
   const used = kept.used.slice();
-  for (const id of ids) {
+  for (const id of [...ids, ...cuts.keys()]) {
     const c = base.chargerOf[id]!;
     if (c < 0) continue;
     const stay: Stay = problem.stays[id]!;
@@ -401,5 +571,115 @@ function without(problem: Problem, kept: NonNullable<ReturnType<typeof keptWindo
     base.from[id] = 0;
     base.to[id] = 0;
   }
+  for (const [id, w] of cuts) {
+    const c = kept.base.chargerOf[id]!;
+    place(problem, { base, busy, used }, id, c, w.from, w.to);
+  }
   return { base, busy, used };
+}
+
+/** Takes back what `place` did (the stay was off the charger before). */
+function unplace(
+  problem: Problem,
+  into: { base: Assignment; busy: Int32Array[]; used: Int32Array },
+  id: number,
+  c: number,
+  f: number,
+  u: number,
+) {
+  const stay = problem.stays[id]!;
+  const pinned = problem.pinned ? problem.pinned[id]! >= 0 : false;
+  into.base.chargerOf[id] = -1;
+  into.base.from[id] = 0;
+  into.base.to[id] = 0;
+  for (let t = f; t < u; t++) into.busy[c]![t] = -1;
+  if (!pinned && !startIsFree(problem, stay, f)) into.used[f]!--;
+  if (!endIsFree(problem, stay, u)) into.used[u]!--;
+}
+
+/** Puts a stay on a charger in a window and counts its crew moves. */
+function place(
+  problem: Problem,
+  into: { base: Assignment; busy: Int32Array[]; used: Int32Array },
+  id: number,
+  c: number,
+  f: number,
+  u: number,
+) {
+  const stay = problem.stays[id]!;
+  const pinned = problem.pinned ? problem.pinned[id]! >= 0 : false;
+  into.base.chargerOf[id] = c;
+  into.base.from[id] = f;
+  into.base.to[id] = u;
+  for (let t = f; t < u; t++) into.busy[c]![t] = id;
+  if (!pinned && !startIsFree(problem, stay, f)) into.used[f]!++;
+  if (!endIsFree(problem, stay, u)) into.used[u]!++;
+}
+
+interface Candidate {
+  id: number;
+  layout: Layout;
+  lack: number;
+  /** The stay's shorter window on its charger; null: released (laid out again anywhere). */
+  cut: { from: number; to: number } | null;
+}
+
+/**
+ * The best way to cut a kept session short on its charger for the moving stays: unplugged at an
+ * earlier slot or plugged in at a later one where the crew has room, at least the minimum
+ * plug-in left, the moving stays laid out in what that frees. `base`, `busy` and `used` are the
+ * kept plan without the stay. Proxy as for releases, plus the energy the stay's own shorter
+ * window cannot hold. Null when no cut frees time a moving stay could use.
+ */
+function bestCut(
+  problem: Problem,
+  hints: AssignmentHints,
+  base: Assignment,
+  busy: Int32Array[],
+  used: Int32Array,
+  moving: number[],
+  keptBase: Assignment,
+  id: number,
+  current: { from: number; to: number } | null,
+  widen: number[],
+): Candidate | null {
+  const stay = problem.stays[id]!;
+  const c = keptBase.chargerOf[id]!;
+  const f0 = keptBase.from[id]!;
+  const u0 = keptBase.to[id]!;
+  const T = problem.slotCount;
+  const cap = problem.yard?.capacity ?? null;
+  const pinned = problem.pinned ? problem.pinned[id]! >= 0 : false;
+  const minW = minWindow(problem, stay);
+  const kw = Math.min(problem.buses[stay.bus]!.maxKw, problem.chargers[c]!.maxKw);
+  const need = hints.energy[id]!;
+  // A moving stay must be able to use some of the time freed: present there for a minimum window.
+  const useful = (a: number, b: number) =>
+    moving.some((m) => {
+      const s = problem.stays[m]!;
+      return Math.min(b, s.departSlot) - Math.max(a, s.arriveSlot) >= Math.min(minWindow(problem, s), b - a);
+    });
+  let best: Candidate | null = null;
+  const tryCut = (f: number, u: number) => {
+    if (current && current.from === f && current.to === u) return;
+    const startMove = !pinned && !startIsFree(problem, stay, f) ? 1 : 0;
+    const endMove = endIsFree(problem, stay, u) ? 0 : 1;
+    if (cap) {
+      if (startMove && f < T && cap[f]! - used[f]! < 1) return;
+      if (endMove && u < T && cap[u]! - used[u]! - (f === u ? startMove : 0) < 1) return;
+    }
+    const own = Math.max(0, need - 0.85 * kw * problem.slotHours * (u - f));
+    if (best && own > best.lack + 1e-9) return; // the cut's own lack alone is worse
+    // Placed in the caller's arrays for the layout (which copies them), then taken out again.
+    const into = { base, busy, used };
+    place(problem, into, id, c, f, u);
+    const layout = layOut(problem, hints, base, busy, used, moving, widen);
+    unplace(problem, into, id, c, f, u);
+    const lack = layout.lack + own;
+    if (!best || lack < best.lack - 1e-9 || (lack < best.lack + 1e-9 && layout.cover > best.layout.cover + 1e-9))
+      best = { id, layout, lack, cut: { from: f, to: u } };
+  };
+  for (let u = f0 + minW; u < u0; u++) if (useful(u, u0)) tryCut(f0, u);
+  if (!pinned) for (let f = f0 + 1; f + minW <= u0; f++) if (useful(f0, f)) tryCut(f, u0);
+  return best;
 }
