@@ -5,7 +5,7 @@ import { keptAssignment, stableRepair } from './stable.js';
 import { describeShortfall, explainShortfalls, soloShortfall, type ShortReason, type ShortWith } from './explain.js';
 import { exactSize, solveExact } from './exact.js';
 import { loadSolver, type LpResult, type Solver } from './highs-solver.js';
-import { AssignedModel, localSearch } from './local-search.js';
+import { AssignedModel, LARGE_STAYS, localSearch } from './local-search.js';
 import { defaultLnsLimits, pairSearch } from './lns.js';
 import { solveLowerBound } from './lower-bound.js';
 import { buildChargeModel, powerFrom } from './lp-model.js';
@@ -274,6 +274,9 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
   }
   let start = candidates[0]![1]();
   let construction = candidates[0]![0];
+  // Large depots (see LARGE_STAYS): no shared-charger LP (seconds there, where the local search
+  // with the same time does more), the start's basis reused instead of re-solved.
+  const large = problem.stays.length > LARGE_STAYS;
   let timedOut = false;
   const maxMoves = options.maxMoves ?? defaultMoves(problem);
   const live = new AssignedModel(problem, solver, start);
@@ -287,6 +290,8 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
     let first = live.solve();
     if (first.status !== 'optimal')
       throw new Error(`plan LP ended ${first.status}; the model should always be solvable`);
+    // The start's optimal basis: coming back to it after other candidates costs no iterations.
+    let startBasis = live.basis();
     const all = problem.buses.map((b) => b.index);
     let current = start;
     for (let i = 1; i < candidates.length && first.objective > target; i++) {
@@ -301,12 +306,13 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
       if (res.status === 'optimal' && res.objective < first.objective - 1e-9 * Math.max(1, Math.abs(first.objective))) {
         start = other;
         first = res;
+        startBasis = live.basis();
         construction = candidates[i]![0];
       }
     }
     // Not at the bound: place each charger's hand-overs together (see rebalance.ts).
     if (first.objective > target && performance.now() > deadline) timedOut = true;
-    else if (first.objective > target) {
+    else if (first.objective > target && !large) {
       const power = sharedChargerPower(problem, solver, start);
       if (power) {
         const other = fitCrew(problem, rebalanced(problem, hints, start, power), hints.energy);
@@ -319,12 +325,14 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
         ) {
           start = other;
           first = res;
+          startBasis = live.basis();
           construction += '+rebalance';
         }
       }
     }
     if (current !== start) {
       live.update(start, all);
+      if (startBasis && large) live.restoreBasis(startBasis);
       first = live.solve();
     }
     // Single stays and hand-overs (local search), then whole sequences (large-neighbourhood
