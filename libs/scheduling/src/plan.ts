@@ -454,6 +454,7 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
       lb.shortfallKwh,
       exactProven,
       (variant) => shortWithLive(problem, live, chosen.assignment, variant),
+      lb.shortfallKwh <= 1e-9 ? { objective: lb.penalisedObjective, kwhValue: Math.max(0, ...lb.stayDual) } : undefined,
     );
   } finally {
     live.dispose();
@@ -667,6 +668,7 @@ function assemblePlan(
   lbShortfall: number,
   exactProven = false,
   shortWith?: ShortWith,
+  served?: { objective: number; kwhValue: number },
 ): Plan {
   const { slotCount: T, slotHours: dt, eta, zone } = problem;
   const charging = new Float64Array(T);
@@ -786,7 +788,12 @@ function assemblePlan(
   };
   const baseline = referenceBaseline(baselines);
   // Valid for every plan at most as short as this one: cost + M x short >= relaxation optimum.
-  const lowerBound = Math.max(0, lbPenalised - problem.shortfallPenalty * Math.max(totalShort, lbShortfall));
+  let lowerBound = Math.max(0, lbPenalised - problem.shortfallPenalty * Math.max(totalShort, lbShortfall));
+  // When the relaxation serves every bus, a kWh short is worth at most its dearest departure dual
+  // there (with that penalty instead of M the same solution and duals stay optimal), so a plan
+  // short by S kWh costs at least the relaxation's optimum less S x that value.
+  if (served && served.kwhValue < problem.shortfallPenalty)
+    lowerBound = Math.max(lowerBound, served.objective - served.kwhValue * totalShort);
   const total = cost.total;
   const gap = total > 1e-9 ? Math.max(0, (total - lowerBound) / total) : 0;
   const status: Plan['status'] = totalShort > 1e-4 ? 'short' : gap <= 1e-6 ? 'optimal' : 'feasible';
