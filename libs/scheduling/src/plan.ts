@@ -262,7 +262,9 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
   // at 500 buses), and there the sequencing heuristic's plans win (measured at 200-1,000 buses);
   // only those and the first sweep are tried.
   if (problem.yard?.capacity && problem.stays.length > LARGE_CREW_STAYS) {
-    const keep = new Set(['sequence-departure-share', 'sequence-best-share', 'sweep-strong-deadline']);
+    // Above LARGE_STAYS the sweep was never the one kept (500 and 1,000 buses): left out there.
+    const keep = new Set(['sequence-departure-share', 'sequence-best-share']);
+    if (problem.stays.length <= LARGE_STAYS) keep.add('sweep-strong-deadline');
     const kept = candidates.filter(([name]) => keep.has(name));
     kept.sort((x, y) => (x[0].startsWith('sequence') ? 0 : 1) - (y[0].startsWith('sequence') ? 0 : 1));
     if (kept.length) candidates.splice(0, candidates.length, ...kept);
@@ -453,7 +455,7 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
       Math.max(lb.penalisedObjective, exactBound),
       lb.shortfallKwh,
       exactProven,
-      (variant) => shortWithLive(problem, live, chosen.assignment, variant),
+      (variant) => shortWithLive(problem, live, chosen.assignment, variant, chosen.result),
       lb.shortfallKwh <= 1e-9 ? { objective: lb.penalisedObjective, kwhValue: Math.max(0, ...lb.stayDual) } : undefined,
     );
   } finally {
@@ -595,7 +597,18 @@ function shortWithLive(
   live: AssignedModel,
   assignment: Assignment,
   variant: { siteUnlimited?: boolean; cabinetsUnlimited?: boolean },
+  current: LpResult,
 ): Float64Array {
+  // A limit that does not bind in the plan's own solution cannot serve anyone when lifted (that
+  // solution stays optimal): the plan's shortfalls, without a re-solve.
+  if (current.status === 'optimal' && !binds(problem, live, assignment, variant, current.x)) {
+    const out = new Float64Array(problem.buses.length);
+    for (const stay of problem.stays) {
+      const c = live.model.shortCol[stay.id]!;
+      if (c >= 0) out[stay.bus] = Math.max(out[stay.bus]!, current.x[c]!);
+    }
+    return out;
+  }
   live.update(
     assignment,
     problem.buses.map((b) => b.index),
@@ -626,6 +639,36 @@ function shortWithLive(
     if (c >= 0) out[stay.bus] = Math.max(out[stay.bus]!, res.x[c]!);
   }
   return out;
+}
+
+/** Does the site limit (or a cabinet's) hold some slot's load at its limit in this solution? */
+function binds(
+  problem: Problem,
+  live: AssignedModel,
+  assignment: Assignment,
+  variant: { siteUnlimited?: boolean; cabinetsUnlimited?: boolean },
+  x: Float64Array,
+): boolean {
+  const model = live.model;
+  const near = (v: number, limit: number) => v >= limit - 1e-6 * Math.max(1, Math.abs(limit));
+  if (variant.siteUnlimited) {
+    for (const c of model.loadCol) if (near(x[c]!, model.lp.colUpper[c]!)) return true;
+  }
+  if (variant.cabinetsUnlimited) {
+    const T = problem.slotCount;
+    const load = new Float64Array(problem.cabinets.length * T);
+    const plug = plugMapOf(problem, assignment);
+    for (const bus of problem.buses)
+      for (const t of bus.slots) {
+        const ch = plug[bus.index]![t]!;
+        const g = ch >= 0 ? problem.chargers[ch]!.cabinet : -1;
+        if (g >= 0) load[g * T + t] = load[g * T + t]! + x[model.pCol[bus.index]![t]!]!;
+      }
+    for (let g = 0; g < problem.cabinets.length; g++)
+      for (let t = 0; t < T; t++)
+        if (model.cabinetRow[g]![t]! >= 0 && near(load[g * T + t]!, problem.cabinets[g]!.limitKw)) return true;
+  }
+  return false;
 }
 
 /** kWh short in an LP solution of the live model (summed over departures). */
