@@ -167,10 +167,15 @@ export function defaultTimeBudgetMs(buses: number): number {
 /**
  * Local-search moves when the construction does not reach the bound: about as many as one
  * idle core re-solves in a few hundred milliseconds (a move re-solves an LP whose size grows with
- * the stays), and at least a dozen.
+ * the stays), and at least a dozen. Large depots (over LARGE_STAYS) get 20,000 / stays (40 at
+ * 500 stays, 20 at 1,000): there the shared-charger LP is left out (it cost more than these
+ * moves) and the moves are what serves short buses (500 buses with the crew: 96 kWh short after
+ * 12 moves, 57 after 40; 1,000: 115 after 12, 80 after 24).
  */
 export function defaultMoves(problem: Problem): number {
-  return Math.max(12, Math.min(120, Math.round(6000 / (25 + problem.stays.length))));
+  const n = problem.stays.length;
+  if (n > LARGE_STAYS) return Math.max(12, Math.min(40, Math.round(20_000 / n)));
+  return Math.max(12, Math.min(120, Math.round(6000 / (25 + n))));
 }
 
 /** The engine: plans a scenario (see the scenario format) and returns the plan. */
