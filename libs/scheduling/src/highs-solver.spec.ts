@@ -60,3 +60,38 @@ describe('HiGHS through the engine wrapper', () => {
     expect(await loadSolver()).toBe(await loadSolver());
   });
 });
+
+describe('a live model changed in bulk', () => {
+  it('replaces its last rows keeping the basis and re-solves to the optimum of the new model', async () => {
+    // max x + y + z with x + y <= 4 (kept) and, in the replaced tail, y + z <= 3 then x + z <= 2.
+    const solver = await loadSolver();
+    const cols = [0, 1, 2].map(() => ({ cost: -1, lower: 0, upper: 10 }));
+    const before = lpFromRows(cols, [
+      { indices: [0, 1], values: [1, 1], lower: -Infinity, upper: 4 },
+      { indices: [1, 2], values: [1, 1], lower: -Infinity, upper: 3 },
+    ]);
+    const after = lpFromRows(cols, [
+      { indices: [0, 1], values: [1, 1], lower: -Infinity, upper: 4 },
+      { indices: [0, 2], values: [1, 1], lower: -Infinity, upper: 2 },
+    ]);
+    const live = solver.open(before);
+    live.keepBasis = true;
+    try {
+      expect(live.solve().objective).toBeCloseTo(-7, 9);
+      expect(live.lastBasis()).not.toBeNull();
+      live.replaceTailRows(1, {
+        lower: Float64Array.of(-Infinity),
+        upper: Float64Array.of(2),
+        starts: Int32Array.of(0, 2),
+        indices: Int32Array.of(0, 2),
+        values: Float64Array.of(1, 1),
+      });
+      const res = live.solve();
+      expect(res.status).toBe('optimal');
+      expect(res.objective).toBeCloseTo(solver.solve(after).objective, 9);
+      expect(res.objective).toBeCloseTo(-6, 9);
+    } finally {
+      live.dispose();
+    }
+  });
+});

@@ -16,6 +16,12 @@ export interface Lp {
   maximize?: boolean;
 }
 
+/** HiGHS basis statuses of the columns and rows. */
+export interface LpBasis {
+  colStatus: Int32Array;
+  rowStatus: Int32Array;
+}
+
 export type LpStatus = 'optimal' | 'infeasible' | 'unbounded' | 'limit' | 'error';
 
 export interface LpResult {
@@ -70,12 +76,47 @@ function modelData(highs: Highs, lp: Lp) {
  */
 export class LiveLp {
   private model: Model & { dispose(): void };
+  private readonly numRows: number;
+  private readonly numCols: number;
+  /** Keep each solve's basis, for `replaceTailRows`. */
+  keepBasis = false;
   constructor(
     private readonly highs: Highs,
     lp: Lp,
   ) {
     this.model = highs.createModel(modelData(highs, lp));
     this.model.options.set({ output_flag: false });
+    this.numRows = lp.numRows;
+    this.numCols = lp.numCols;
+  }
+  /**
+   * Replaces the rows from `from` to the last with new ones (as many, same bounds meaning),
+   * keeping the basis: one bulk delete and add instead of a wasm call per changed coefficient
+   * (each of which moves the rest of HiGHS's column-wise matrix).
+   */
+  replaceTailRows(
+    from: number,
+    rows: { lower: Float64Array; upper: Float64Array; starts: Int32Array; indices: Int32Array; values: Float64Array },
+  ): void {
+    const count = this.numRows - from;
+    if (count <= 0) return;
+    if (rows.lower.length !== count) throw new Error('replaceTailRows: row count differs');
+    const basis = this.basis;
+    const inf = this.highs.infinity;
+    this.model.deleteRows({ kind: 'range', from, to: this.numRows - 1 });
+    this.model.addRows({
+      lower: rows.lower.map((v) => (v === -INF ? -inf : v)),
+      upper: rows.upper.map((v) => (v === INF ? inf : v)),
+      matrix: {
+        format: 'csr',
+        numRows: count,
+        numCols: this.numCols,
+        starts: rows.starts,
+        indices: rows.indices,
+        values: rows.values,
+      },
+    });
+    if (basis) this.model.setBasis({ colStatus: basis.colStatus, rowStatus: basis.rowStatus });
   }
   setColBounds(cols: number[], lower: number[], upper: number[]): void {
     if (cols.length === 0) return;
@@ -98,6 +139,17 @@ export class LiveLp {
     this.model.changeRowBounds(row, lower === -INF ? -inf : lower, upper === INF ? inf : upper);
   }
   private solved = false;
+  /** The basis of the last solve (HiGHS will not hand it out once the model has changed). */
+  private basis: LpBasis | null = null;
+  /** The optimal basis of the last solve (with `keepBasis`), or null. */
+  lastBasis(): LpBasis | null {
+    return this.basis;
+  }
+  /** Starts the next solve from this basis (e.g. an earlier solve's, after changes were undone). */
+  restoreBasis(basis: LpBasis): void {
+    this.model.setBasis({ colStatus: basis.colStatus, rowStatus: basis.rowStatus });
+    this.basis = basis;
+  }
   solve(): LpResult {
     const t0 = performance.now();
     // After the first solve, presolve would throw the basis away: re-solve from the basis.
@@ -106,6 +158,7 @@ export class LiveLp {
     const run = this.model.run();
     const status = statusOf(this.highs, run.modelStatus);
     const sol = status === 'optimal' ? this.model.getSolution() : null;
+    if (this.keepBasis) this.basis = status === 'optimal' ? this.model.getBasis() : null;
     return {
       status,
       objective: status === 'optimal' ? this.model.getObjectiveValue() : NaN,

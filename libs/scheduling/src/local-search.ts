@@ -8,9 +8,19 @@ import {
   type AssignmentHints,
 } from './assignment.js';
 import { fitCrew } from './crew.js';
-import type { LiveLp, LpResult, Solver } from './highs-solver.js';
-import { buildChargeModel, plugUpper, type ChargeModel } from './lp-model.js';
+import type { LiveLp, LpBasis, LpResult, Solver } from './highs-solver.js';
+import { buildChargeModel, cabinetRowsFor, plugUpper, type ChargeModel } from './lp-model.js';
 import type { PlugMap, Problem } from './problem.js';
+
+/** Above this many cabinet coefficient changes an update rewrites the cabinet rows at once. */
+export const BULK_COEFFICIENTS = 32;
+
+/**
+ * Depots above this many stays are large: each LP re-solve costs a large share of the plan's time,
+ * so the search saves re-solves there (cabinet rows rewritten in bulk, bases reused, no shared-
+ * charger LP; see plan.ts). Smaller depots keep the search as it was, step for step.
+ */
+export const LARGE_STAYS = 300;
 
 /**
  * The LP of one assignment, kept alive in HiGHS. Changing a stay's charger or window changes
@@ -29,6 +39,7 @@ export class AssignedModel {
     this.plug = plugMapOf(problem, assignment);
     this.model = buildChargeModel(problem, { mode: 'assigned', plug: this.plug, tieBreak: true });
     this.live = solver.open(this.model.lp);
+    this.live.keepBasis = true;
   }
   /** Moves the model to a new assignment, touching only the slots that changed. */
   update(assignment: Assignment, buses: Iterable<number>): void {
@@ -36,6 +47,7 @@ export class AssignedModel {
     const cols: number[] = [];
     const lower: number[] = [];
     const upper: number[] = [];
+    const coefficients: [number, number, number][] = [];
     for (const b of buses) {
       const oldRow = this.plug[b]!;
       const newRow = next[b]!;
@@ -52,16 +64,30 @@ export class AssignedModel {
         if (gOld !== gNew) {
           const rOld = gOld >= 0 ? this.model.cabinetRow[gOld]![t]! : -1;
           const rNew = gNew >= 0 ? this.model.cabinetRow[gNew]![t]! : -1;
-          if (rOld >= 0) this.live.setCoefficient(rOld, col, 0);
-          if (rNew >= 0) this.live.setCoefficient(rNew, col, 1);
+          if (rOld >= 0) coefficients.push([rOld, col, 0]);
+          if (rNew >= 0) coefficients.push([rNew, col, 1]);
         }
         oldRow[t] = after;
       }
     }
+    // Many cabinet changes (a whole new candidate): the cabinet rows rewritten in one go.
+    const bulk =
+      this.problem.stays.length > LARGE_STAYS && coefficients.length > BULK_COEFFICIENTS
+        ? cabinetRowsFor(this.problem, this.model, this.plug)
+        : null;
+    if (bulk) this.live.replaceTailRows(bulk.from, bulk);
+    else for (const [r, c, v] of coefficients) this.live.setCoefficient(r, c, v);
     this.live.setColBounds(cols, lower, upper);
   }
   solve(): LpResult {
     return this.live.solve();
+  }
+  /** The optimal basis of the last solve, to come back to it later without simplex iterations. */
+  basis(): LpBasis | null {
+    return this.live.lastBasis();
+  }
+  restoreBasis(basis: LpBasis): void {
+    this.live.restoreBasis(basis);
   }
   setColBounds(cols: number[], lower: number[], upper: number[]): void {
     this.live.setColBounds(cols, lower, upper);
@@ -143,10 +169,13 @@ export function localSearch(
     return d;
   };
   let duals = dualOf(bestResult);
+  // Tournament on the dual: dear stays are picked more often, none is starved. Three draws, and
+  // on large depots as many as keep the chance of drawing one of the few dearest stays (a short
+  // bus) what it is on a depot of a hundred stays.
+  const draws = problem.stays.length > LARGE_STAYS ? Math.round((3 * jobs.length) / 100) : 3;
   const pickJob = (): number => {
-    // Tournament of three on the dual: dear stays are picked more often, none is starved.
     let pick = jobs[Math.floor(random() * jobs.length)]!;
-    for (let i = 0; i < 2; i++) {
+    for (let i = 0; i < draws - 1; i++) {
       const other = jobs[Math.floor(random() * jobs.length)]!;
       if (duals[other]! > duals[pick]!) pick = other;
     }

@@ -320,6 +320,68 @@ export function buildChargeModel(problem: Problem, options: ModelOptions): Charg
   };
 }
 
+/**
+ * The cabinet rows of an assigned model (the last rows it has) for another plug map, in row
+ * order, as CSR: what `buildChargeModel` would write for that map. Null if it has none.
+ */
+export function cabinetRowsFor(
+  problem: Problem,
+  model: ChargeModel,
+  plug: PlugMap,
+): {
+  from: number;
+  lower: Float64Array;
+  upper: Float64Array;
+  starts: Int32Array;
+  indices: Int32Array;
+  values: Float64Array;
+} | null {
+  const rowsOf: [number, number, number][] = [];
+  model.cabinetRow.forEach((byT, g) => byT.forEach((r, t) => r >= 0 && rowsOf.push([r, g, t])));
+  if (rowsOf.length === 0) return null;
+  rowsOf.sort((a, b) => a[0] - b[0]);
+  const from = rowsOf[0]![0];
+  if (rowsOf[rowsOf.length - 1]![0] !== model.lp.numRows - 1 || rowsOf.length !== model.lp.numRows - from) return null;
+  const T = problem.slotCount;
+  // Row position of each (cabinet, slot), then the columns of each row bucketed bus by bus.
+  const position = new Map<number, number>();
+  rowsOf.forEach(([, g, t], i) => position.set(g * T + t, i));
+  const counts = new Int32Array(rowsOf.length);
+  const entry = (b: number, t: number): number => {
+    const ch = plug[b]![t]!;
+    if (ch < 0 || model.pCol[b]![t]! < 0) return -1;
+    const g = problem.chargers[ch]!.cabinet;
+    return g >= 0 ? (position.get(g * T + t) ?? -1) : -1;
+  };
+  for (const bus of problem.buses)
+    for (const t of bus.slots) {
+      const i = entry(bus.index, t);
+      if (i >= 0) counts[i] = counts[i]! + 1;
+    }
+  const starts = new Int32Array(rowsOf.length + 1);
+  for (let i = 0; i < rowsOf.length; i++) starts[i + 1] = starts[i]! + counts[i]!;
+  const fill = starts.slice(0, rowsOf.length);
+  const indices = new Int32Array(starts[rowsOf.length]!);
+  for (const bus of problem.buses)
+    for (const t of bus.slots) {
+      const i = entry(bus.index, t);
+      if (i >= 0) {
+        indices[fill[i]!] = model.pCol[bus.index]![t]!;
+        fill[i] = fill[i]! + 1;
+      }
+    }
+  const lower = new Float64Array(rowsOf.length).fill(-Infinity);
+  const upper = Float64Array.from(rowsOf, ([, g]) => problem.cabinets[g]!.limitKw);
+  return {
+    from,
+    lower,
+    upper,
+    starts,
+    indices,
+    values: new Float64Array(indices.length).fill(1),
+  };
+}
+
 /** Grid kW per bus per slot from a solution (tiny solver noise cleared). */
 export function powerFrom(problem: Problem, model: ChargeModel, x: Float64Array): Float64Array[] {
   return problem.buses.map((bus) => {

@@ -1,7 +1,10 @@
 import { execFile } from 'node:child_process';
 import { readFileSync, writeFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
+import { loadSolver, type Lp } from './highs-solver.js';
+import { buildChargeModel } from './lp-model.js';
 import { planScenario, type Plan } from './plan.js';
+import { prepareProblem } from './problem.js';
 import { parseScenario, type ScenarioInput } from './scenario.js';
 import { generateDepot } from './testing/generate-depot.js';
 import { checkPlan } from './testing/plan-checker.js';
@@ -123,6 +126,53 @@ describe('determinism', () => {
     expect(a.status).toBe('optimal');
     expect(a.stats.construction).toMatch(/^sweep-/);
     expect(b.sessions).toEqual(a.sessions);
+  });
+});
+
+describe('lower bound of a short plan', () => {
+  it('stays above zero and below the cheapest relaxed plan that is at most as short', async () => {
+    // 15 buses on 3 chargers with the yard crew's hours, searched little: the plan leaves buses
+    // short although the relaxation serves them all. The bound must not fall to 0 (gap 100 %),
+    // and must stay valid: at most the relaxation's cost when it may be as short as the plan.
+    const input: ScenarioInput = {
+      ...generateDepot({ buses: 15, chargers: 3, seed: 1 }),
+      yard: {
+        minPlugInMinutes: 45,
+        driversPlugIn: true,
+        crew: [
+          { from: '2026-01-14T15:00', to: '2026-01-14T23:30', movesPerSlot: 3 },
+          { from: '2026-01-15T04:30', to: '2026-01-15T07:00', movesPerSlot: 2 },
+        ],
+      },
+    };
+    const parsed = parseScenario(input);
+    if (!parsed.ok) throw new Error(JSON.stringify(parsed.problems));
+    const p = await planScenario(parsed.scenario, { maxMoves: 0, lns: false, exact: false });
+    expect(checkPlan(input, p)).toEqual([]);
+    expect(p.status).toBe('short');
+    expect(p.stats.unavoidableShortfallKwh).toBe(0);
+    expect(p.lowerBound).toBeGreaterThan(0);
+    expect(p.lowerBound).toBeLessThanOrEqual(p.cost.total);
+    // The relaxation with its shortfall capped at the plan's and left free of penalty.
+    const problem = prepareProblem(parsed.scenario);
+    const { lp, shortCol } = buildChargeModel(problem, { mode: 'relaxed' });
+    const colCost = Float64Array.from(lp.colCost);
+    const short = Array.from(shortCol).filter((c) => c >= 0);
+    for (const c of short) colCost[c] = 0;
+    const capped: Lp = {
+      ...lp,
+      colCost,
+      numRows: lp.numRows + 1,
+      starts: Int32Array.from([...lp.starts, lp.indices.length + short.length]),
+      indices: Int32Array.from([...lp.indices, ...short]),
+      values: Float64Array.from([...lp.values, ...short.map(() => 1)]),
+      rowLower: Float64Array.from([...lp.rowLower, -Infinity]),
+      rowUpper: Float64Array.from([...lp.rowUpper, p.stats.shortfallKwh + 1e-6]),
+    };
+    const res = (await loadSolver()).solve(capped);
+    expect(res.status).toBe('optimal');
+    expect(p.lowerBound).toBeLessThanOrEqual(res.objective + 1e-5); // the plan rounds to 6 decimals
+    expect(p.gap).toBeLessThan(0.5);
   });
 });
 

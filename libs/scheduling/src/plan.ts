@@ -5,7 +5,7 @@ import { keptAssignment, stableRepair } from './stable.js';
 import { describeShortfall, explainShortfalls, soloShortfall, type ShortReason, type ShortWith } from './explain.js';
 import { exactSize, solveExact } from './exact.js';
 import { loadSolver, type LpResult, type Solver } from './highs-solver.js';
-import { AssignedModel, localSearch } from './local-search.js';
+import { AssignedModel, LARGE_STAYS, localSearch } from './local-search.js';
 import { defaultLnsLimits, pairSearch } from './lns.js';
 import { solveLowerBound } from './lower-bound.js';
 import { buildChargeModel, powerFrom } from './lp-model.js';
@@ -167,10 +167,15 @@ export function defaultTimeBudgetMs(buses: number): number {
 /**
  * Local-search moves when the construction does not reach the bound: about as many as one
  * idle core re-solves in a few hundred milliseconds (a move re-solves an LP whose size grows with
- * the stays), and at least a dozen.
+ * the stays), and at least a dozen. Large depots (over LARGE_STAYS) get 20,000 / stays (40 at
+ * 500 stays, 20 at 1,000): there the shared-charger LP is left out (it cost more than these
+ * moves) and the moves are what serves short buses (500 buses with the crew: 96 kWh short after
+ * 12 moves, 57 after 40; 1,000: 115 after 12, 80 after 24).
  */
 export function defaultMoves(problem: Problem): number {
-  return Math.max(12, Math.min(120, Math.round(6000 / (25 + problem.stays.length))));
+  const n = problem.stays.length;
+  if (n > LARGE_STAYS) return Math.max(12, Math.min(40, Math.round(20_000 / n)));
+  return Math.max(12, Math.min(120, Math.round(6000 / (25 + n))));
 }
 
 /** The engine: plans a scenario (see the scenario format) and returns the plan. */
@@ -262,7 +267,9 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
   // at 500 buses), and there the sequencing heuristic's plans win (measured at 200-1,000 buses);
   // only those and the first sweep are tried.
   if (problem.yard?.capacity && problem.stays.length > LARGE_CREW_STAYS) {
-    const keep = new Set(['sequence-departure-share', 'sequence-best-share', 'sweep-strong-deadline']);
+    // Above LARGE_STAYS the sweep was never the one kept (500 and 1,000 buses): left out there.
+    const keep = new Set(['sequence-departure-share', 'sequence-best-share']);
+    if (problem.stays.length <= LARGE_STAYS) keep.add('sweep-strong-deadline');
     const kept = candidates.filter(([name]) => keep.has(name));
     kept.sort((x, y) => (x[0].startsWith('sequence') ? 0 : 1) - (y[0].startsWith('sequence') ? 0 : 1));
     if (kept.length) candidates.splice(0, candidates.length, ...kept);
@@ -274,6 +281,9 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
   }
   let start = candidates[0]![1]();
   let construction = candidates[0]![0];
+  // Large depots (see LARGE_STAYS): no shared-charger LP (seconds there, where the local search
+  // with the same time does more), the start's basis reused instead of re-solved.
+  const large = problem.stays.length > LARGE_STAYS;
   let timedOut = false;
   const maxMoves = options.maxMoves ?? defaultMoves(problem);
   const live = new AssignedModel(problem, solver, start);
@@ -287,6 +297,8 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
     let first = live.solve();
     if (first.status !== 'optimal')
       throw new Error(`plan LP ended ${first.status}; the model should always be solvable`);
+    // The start's optimal basis: coming back to it after other candidates costs no iterations.
+    let startBasis = live.basis();
     const all = problem.buses.map((b) => b.index);
     let current = start;
     for (let i = 1; i < candidates.length && first.objective > target; i++) {
@@ -301,12 +313,13 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
       if (res.status === 'optimal' && res.objective < first.objective - 1e-9 * Math.max(1, Math.abs(first.objective))) {
         start = other;
         first = res;
+        startBasis = live.basis();
         construction = candidates[i]![0];
       }
     }
     // Not at the bound: place each charger's hand-overs together (see rebalance.ts).
     if (first.objective > target && performance.now() > deadline) timedOut = true;
-    else if (first.objective > target) {
+    else if (first.objective > target && !large) {
       const power = sharedChargerPower(problem, solver, start);
       if (power) {
         const other = fitCrew(problem, rebalanced(problem, hints, start, power), hints.energy);
@@ -319,12 +332,14 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
         ) {
           start = other;
           first = res;
+          startBasis = live.basis();
           construction += '+rebalance';
         }
       }
     }
     if (current !== start) {
       live.update(start, all);
+      if (startBasis && large) live.restoreBasis(startBasis);
       first = live.solve();
     }
     // Single stays and hand-overs (local search), then whole sequences (large-neighbourhood
@@ -445,7 +460,8 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
       Math.max(lb.penalisedObjective, exactBound),
       lb.shortfallKwh,
       exactProven,
-      (variant) => shortWithLive(problem, live, chosen.assignment, variant),
+      (variant) => shortWithLive(problem, live, chosen.assignment, variant, chosen.result),
+      lb.shortfallKwh <= 1e-9 ? { objective: lb.penalisedObjective, kwhValue: Math.max(0, ...lb.stayDual) } : undefined,
     );
   } finally {
     live.dispose();
@@ -586,7 +602,18 @@ function shortWithLive(
   live: AssignedModel,
   assignment: Assignment,
   variant: { siteUnlimited?: boolean; cabinetsUnlimited?: boolean },
+  current: LpResult,
 ): Float64Array {
+  // A limit that does not bind in the plan's own solution cannot serve anyone when lifted (that
+  // solution stays optimal): the plan's shortfalls, without a re-solve.
+  if (current.status === 'optimal' && !binds(problem, live, assignment, variant, current.x)) {
+    const out = new Float64Array(problem.buses.length);
+    for (const stay of problem.stays) {
+      const c = live.model.shortCol[stay.id]!;
+      if (c >= 0) out[stay.bus] = Math.max(out[stay.bus]!, current.x[c]!);
+    }
+    return out;
+  }
   live.update(
     assignment,
     problem.buses.map((b) => b.index),
@@ -617,6 +644,36 @@ function shortWithLive(
     if (c >= 0) out[stay.bus] = Math.max(out[stay.bus]!, res.x[c]!);
   }
   return out;
+}
+
+/** Does the site limit (or a cabinet's) hold some slot's load at its limit in this solution? */
+function binds(
+  problem: Problem,
+  live: AssignedModel,
+  assignment: Assignment,
+  variant: { siteUnlimited?: boolean; cabinetsUnlimited?: boolean },
+  x: Float64Array,
+): boolean {
+  const model = live.model;
+  const near = (v: number, limit: number) => v >= limit - 1e-6 * Math.max(1, Math.abs(limit));
+  if (variant.siteUnlimited) {
+    for (const c of model.loadCol) if (near(x[c]!, model.lp.colUpper[c]!)) return true;
+  }
+  if (variant.cabinetsUnlimited) {
+    const T = problem.slotCount;
+    const load = new Float64Array(problem.cabinets.length * T);
+    const plug = plugMapOf(problem, assignment);
+    for (const bus of problem.buses)
+      for (const t of bus.slots) {
+        const ch = plug[bus.index]![t]!;
+        const g = ch >= 0 ? problem.chargers[ch]!.cabinet : -1;
+        if (g >= 0) load[g * T + t] = load[g * T + t]! + x[model.pCol[bus.index]![t]!]!;
+      }
+    for (let g = 0; g < problem.cabinets.length; g++)
+      for (let t = 0; t < T; t++)
+        if (model.cabinetRow[g]![t]! >= 0 && near(load[g * T + t]!, problem.cabinets[g]!.limitKw)) return true;
+  }
+  return false;
 }
 
 /** kWh short in an LP solution of the live model (summed over departures). */
@@ -659,6 +716,7 @@ function assemblePlan(
   lbShortfall: number,
   exactProven = false,
   shortWith?: ShortWith,
+  served?: { objective: number; kwhValue: number },
 ): Plan {
   const { slotCount: T, slotHours: dt, eta, zone } = problem;
   const charging = new Float64Array(T);
@@ -778,7 +836,12 @@ function assemblePlan(
   };
   const baseline = referenceBaseline(baselines);
   // Valid for every plan at most as short as this one: cost + M x short >= relaxation optimum.
-  const lowerBound = Math.max(0, lbPenalised - problem.shortfallPenalty * Math.max(totalShort, lbShortfall));
+  let lowerBound = Math.max(0, lbPenalised - problem.shortfallPenalty * Math.max(totalShort, lbShortfall));
+  // When the relaxation serves every bus, a kWh short is worth at most its dearest departure dual
+  // there (with that penalty instead of M the same solution and duals stay optimal), so a plan
+  // short by S kWh costs at least the relaxation's optimum less S x that value.
+  if (served && served.kwhValue < problem.shortfallPenalty)
+    lowerBound = Math.max(lowerBound, served.objective - served.kwhValue * totalShort);
   const total = cost.total;
   const gap = total > 1e-9 ? Math.max(0, (total - lowerBound) / total) : 0;
   const status: Plan['status'] = totalShort > 1e-4 ? 'short' : gap <= 1e-6 ? 'optimal' : 'feasible';
