@@ -57,6 +57,9 @@ describe('plan review', () => {
     expect(cards[0]).toContain('Energy saving $10.00 (50 %) against charge on arrival $20.00');
     expect(cards[1]).toContain('120 kW');
     expect(cards[1]).toContain('Service limit 150 kW');
+    // A short plan's bound holds only for plans at most as short (30 + 12.5 kWh here).
+    expect(cards[2]).toContain('1 %');
+    expect(cards[2]).toContain('No plan short by 42.5 kWh or less can cost less than $99.00');
     expect(cards[3]).toContain('2');
 
     mock.expectOne(`/api/plans/${PLAN_IDS.draft}/compare?with=${PLAN_IDS.published}`).flush({
