@@ -104,14 +104,11 @@ describe('exact assignment MILP (HiGHS) against the plans', () => {
     },
   );
 
-  it('with the crew, the large-neighbourhood search is what serves every bus and cuts the cost where chargers are scarce', async () => {
-    // Without it the plan leaves buses short or pays 5-25 % more on these depots (measured: the
-    // search re-splits two chargers' whole sequences, which no single move can do).
-    const cases = [
-      [8, 2, 3],
-      [10, 3, 5],
-      [8, 2, 4],
-    ] as const;
+  it('with the crew, the large-neighbourhood search cuts the cost where chargers are scarce', async () => {
+    // Without it the plan pays 15 % more on this depot (measured: the search re-splits two
+    // chargers' whole sequences, which no single move can do). On 8 buses on 2 chargers (seeds 3
+    // and 4) the candidates that follow the crew-aware bound (crew-night.ts) now get as far alone.
+    const cases = [[10, 3, 5]] as const;
     for (const [buses, chargers, seed] of cases) {
       const input = { ...generateDepot({ buses, chargers, seed }), yard };
       const on = await planOf(input);

@@ -3,6 +3,8 @@ import { limitedBaseline, type Baseline, type BaselineKind } from './baseline.js
 import { countCrewMoves, endIsFree, fitCrew, startIsFree, type Move } from './crew.js';
 import { keptAssignment, stableRepair } from './stable.js';
 import { describeShortfall, explainShortfalls, soloShortfall, type ShortReason, type ShortWith } from './explain.js';
+import { solveCrewBound } from './crew-bound.js';
+import { crewNightCandidates, hintsFrom } from './crew-night.js';
 import { exactSize, solveExact } from './exact.js';
 import { loadSolver, type LpResult, type Solver } from './highs-solver.js';
 import { AssignedModel, localSearch } from './local-search.js';
@@ -107,6 +109,8 @@ export interface Plan {
     lns: { neighbourhoods: number; accepted: number; lpSolves: number; splits: number };
     /** The exact MILP, when it was run (a short plan on a small depot): its end, nodes, size, time. */
     exact: { status: string; nodes: number; binaries: number; ms: number } | null;
+    /** The crew-aware bound (crew-bound.ts), when it was solved: nodes, binaries, time, proven optimum. */
+    crewBound: { nodes: number; binaries: number; ms: number; optimal: boolean } | null;
     /**
      * Why the search ended: it reached the bound, used its move budget (both reproducible), or
      * hit the time safety net (the plan may then differ from run to run).
@@ -148,6 +152,9 @@ export const LNS_MAX_STAYS = 120;
 export const LARGE_CREW_STAYS = 150;
 
 export const EXACT_LIMITS = { binaries: 6000, nodes: 30, ms: 3000 };
+
+/** The crew-aware bound (crew-bound.ts): depots up to this many stays, its node budget and time cap. */
+export const CREW_BOUND_LIMITS = { stays: 400, nodes: 30, ms: 4000 };
 
 const round = (v: number, digits = 6) => {
   const f = 10 ** digits;
@@ -218,7 +225,7 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
   const load = new Float64Array(T);
   for (const p of lb.power) for (let t = 0; t < T; t++) load[t] = load[t]! + p[t]!;
   // The tie-break adds at most 1e-7 of the energy cost: closer than this is optimal.
-  const target = lb.penalisedObjective * (1 + 5e-7) + 1e-9;
+  let target = lb.penalisedObjective * (1 + 5e-7) + 1e-9;
   const candidates: [string, () => Assignment][] = [
     [
       'sweep-strong-deadline',
@@ -283,6 +290,10 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
   let exactStats: Plan['stats']['exact'] = null;
   let exactBound = -Infinity;
   let exactProven = false;
+  let crewBound = -Infinity;
+  let crewShortfall = 0;
+  let crewBoundStats: Plan['stats']['crewBound'] = null;
+  let crewHints: AssignmentHints | null = null;
   try {
     let first = live.solve();
     if (first.status !== 'optimal')
@@ -331,6 +342,55 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
     // search over pairs of chargers), then single moves again from what that found. Each step
     // keeps only improvements, so the plan is never worse than the local search alone.
     search = localSearch(problem, hints, live, start, first, { deadline, maxMoves, target });
+    // Above the relaxation's bound with crew windows: the bound that knows who holds each
+    // charger while nobody is in the yard (crew-bound.ts) shows how far the plan can be from
+    // the optimum. Counted nodes; a bound cut by the time cap is left unused.
+    if (
+      search.result.objective > target &&
+      problem.yard?.capacity &&
+      problem.stays.length <= CREW_BOUND_LIMITS.stays &&
+      performance.now() < deadline
+    ) {
+      const cb = solveCrewBound(problem, solver, {
+        maxNodes: CREW_BOUND_LIMITS.nodes,
+        timeLimitMs: Math.max(1, Math.min(CREW_BOUND_LIMITS.ms, deadline - performance.now())),
+      });
+      crewBoundStats = { nodes: cb.nodes, binaries: cb.binaries, ms: round(cb.ms, 1), optimal: cb.optimal };
+      if (!cb.timeLimited && Number.isFinite(cb.penalisedBound)) {
+        crewBound = cb.penalisedBound;
+        // A plan at this bound is optimal: the searches below stop there.
+        target = Math.max(target, crewBound * (1 + 2e-6) + 1e-9);
+        if (cb.optimal) crewShortfall = cb.shortfallKwh;
+      }
+      // Candidates that follow its powers (crew-night.ts): each charger's evening, overnight
+      // holder and morning as the bound has them; the best, searched locally, if it beats the plan.
+      if (!cb.timeLimited && cb.power) {
+        crewHints = hintsFrom(problem, hints, cb.power);
+        let bestCand: { name: string; assignment: Assignment; res: LpResult } | null = null;
+        for (const [name, cand] of crewNightCandidates(problem, crewHints)) {
+          live.update(cand, all);
+          const res = live.solve();
+          if (res.status === 'optimal' && (!bestCand || res.objective < bestCand.res.objective - 1e-9))
+            bestCand = { name, assignment: cand, res };
+        }
+        if (bestCand) {
+          const again = localSearch(problem, crewHints, live, bestCand.assignment, bestCand.res, {
+            deadline,
+            maxMoves,
+            target,
+          });
+          if (
+            again.result.objective <
+            search.result.objective - 1e-9 * Math.max(1, Math.abs(search.result.objective))
+          ) {
+            construction = bestCand.name;
+            search = { ...again, iterations: search.iterations + again.iterations, moves: search.moves + again.moves };
+          }
+        }
+        live.update(search.assignment, all);
+        search.result = live.solve();
+      }
+    }
     if (
       options.lns !== false &&
       search.result.objective > target &&
@@ -339,7 +399,7 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
     ) {
       const lns = pairSearch(
         problem,
-        hints,
+        crewHints ?? hints,
         live,
         search.assignment,
         search.result,
@@ -442,8 +502,8 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
       solver,
       plug,
       power,
-      Math.max(lb.penalisedObjective, exactBound),
-      lb.shortfallKwh,
+      Math.max(lb.penalisedObjective, exactBound, crewBound),
+      Math.max(lb.shortfallKwh, crewShortfall),
       exactProven,
       (variant) => shortWithLive(problem, live, chosen.assignment, variant),
     );
@@ -451,6 +511,7 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
     live.dispose();
   }
   plan.stats.exact = exactStats;
+  plan.stats.crewBound = crewBoundStats;
   plan.crewTrade = chosen.crewTrade;
   plan.keptPrevious = chosen.keptPrevious;
   plan.stats.lpColumns = live.model.lp.numCols;
@@ -830,6 +891,7 @@ function assemblePlan(
       construction: '',
       lns: { neighbourhoods: 0, accepted: 0, lpSolves: 0, splits: 0 },
       exact: null,
+      crewBound: null,
       stoppedBy: 'bound',
       simplexIterations: 0,
       shortfallKwh: round(totalShort),
