@@ -26,6 +26,8 @@ export interface CrewBound {
   shortfallKwh: number;
   /** Grid kW per bus per slot in the best solution found (null: none): who charges when, holders kept. */
   power: Float64Array[] | null;
+  /** Per stay, the charger it holds through the first stretch in that solution (-1: none); null: no solution. */
+  holders: Int32Array | null;
   /** Stretches without crew the bound used, as [first, last] slots. */
   stretches: [number, number][];
   binaries: number;
@@ -81,6 +83,7 @@ export function solveCrewBound(problem: Problem, solver: Solver, options: CrewBo
     optimal: false,
     shortfallKwh: 0,
     power: null,
+    holders: null,
     stretches,
     binaries: 0,
     nodes: 0,
@@ -111,9 +114,11 @@ export function solveCrewBound(problem: Problem, solver: Solver, options: CrewBo
   let binaries = 0;
   // The energy rows below rest on every kWh having a price (no slot free or paid to draw).
   const useful = problem.slots.every((s) => s.price > 0);
-  for (const [first, last] of stretches) {
+  // The first stretch's holder columns (stay, column, the group's chargers): who holds which charger.
+  const holderCols: { stay: number; col: number; chargers: number[] }[] = [];
+  for (const [stretch, [first, last]] of stretches.entries()) {
     // Charger groups: same power, same binding cabinet, same availability in the stretch.
-    const groups = new Map<string, { kw: number; count: number; avail: number[] }>();
+    const groups = new Map<string, { kw: number; count: number; avail: number[]; chargers: number[] }>();
     for (const c of problem.chargers) {
       const avail: number[] = [];
       for (let t = first; t <= last; t++) avail.push(c.available[t] ? 1 : 0);
@@ -121,8 +126,10 @@ export function solveCrewBound(problem: Problem, solver: Solver, options: CrewBo
       const g = c.cabinet >= 0 && problem.cabinets[c.cabinet]!.binding ? c.cabinet : -1;
       const key = `${c.maxKw}|${g}|${avail.join('')}`;
       const group = groups.get(key);
-      if (group) group.count++;
-      else groups.set(key, { kw: c.maxKw, count: 1, avail });
+      if (group) {
+        group.count++;
+        group.chargers.push(c.index);
+      } else groups.set(key, { kw: c.maxKw, count: 1, avail, chargers: [c.index] });
     }
     let list = [...groups.entries()].sort((x, y) => (x[0] < y[0] ? -1 : x[0] > y[0] ? 1 : 0)).map((e) => e[1]);
     // Many stays and many kinds of charger: one group of all of them at the strongest power and
@@ -135,6 +142,9 @@ export function solveCrewBound(problem: Problem, solver: Solver, options: CrewBo
           kw: Math.max(...list.map((g) => g.kw)),
           count: list.reduce((a, g) => a + g.count, 0),
           avail: list[0]!.avail.map((_, i) => (list.some((g) => g.avail[i]) ? 1 : 0)),
+          chargers: list
+            .flatMap((g) => g.chargers)
+            .sort((x, y) => problem.chargers[y]!.maxKw - problem.chargers[x]!.maxKw || x - y),
         },
       ];
     const holders: number[][] = list.map(() => []);
@@ -152,6 +162,7 @@ export function solveCrewBound(problem: Problem, solver: Solver, options: CrewBo
         binaries++;
         const col = cost.length - 1;
         hs.push({ col, cap, group: k });
+        if (stretch === 0) holderCols.push({ stay: s.id, col, chargers: g.chargers });
         holders[k]!.push(col);
       });
       if (hs.length > 1)
@@ -252,9 +263,18 @@ export function solveCrewBound(problem: Problem, solver: Solver, options: CrewBo
     let bound = info('mip_dual_bound');
     let shortfall = 0;
     let power: Float64Array[] | null = null;
+    let holders: Int32Array | null = null;
     if (hasSolution) {
       const x = milp.getSolution().colValue;
       power = powerFrom(problem, model, x);
+      holders = new Int32Array(problem.stays.length).fill(-1);
+      const next = new Map<number[], number>();
+      for (const h of holderCols) {
+        if (x[h.col]! < 0.5) continue;
+        const i = next.get(h.chargers) ?? 0;
+        next.set(h.chargers, i + 1);
+        holders[h.stay] = h.chargers[i] ?? -1;
+      }
       if (optimal) {
         const primal = milp.getObjectiveValue();
         bound = Math.max(Number.isFinite(bound) ? bound : -Infinity, primal - Math.max(1e-6, 1e-6 * Math.abs(primal)));
@@ -266,6 +286,7 @@ export function solveCrewBound(problem: Problem, solver: Solver, options: CrewBo
       optimal,
       shortfallKwh: shortfall,
       power,
+      holders,
       stretches,
       binaries,
       nodes: info('mip_node_count'),

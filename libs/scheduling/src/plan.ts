@@ -7,7 +7,7 @@ import { solveCrewBound } from './crew-bound.js';
 import { crewNightCandidates, hintsFrom } from './crew-night.js';
 import { exactSize, solveExact } from './exact.js';
 import { loadSolver, type LpResult, type Solver } from './highs-solver.js';
-import { AssignedModel, localSearch } from './local-search.js';
+import { AssignedModel, localSearch, type SearchResult } from './local-search.js';
 import { defaultLnsLimits, pairSearch } from './lns.js';
 import { solveLowerBound } from './lower-bound.js';
 import { buildChargeModel, powerFrom } from './lp-model.js';
@@ -154,7 +154,7 @@ export const LARGE_CREW_STAYS = 150;
 export const EXACT_LIMITS = { binaries: 6000, nodes: 30, ms: 3000 };
 
 /** The crew-aware bound (crew-bound.ts): depots up to this many stays, its node budget and time cap. */
-export const CREW_BOUND_LIMITS = { stays: 400, nodes: 30, ms: 4000 };
+export const CREW_BOUND_LIMITS = { stays: 400, nodes: 30, ms: 4000, bothPaths: 30 };
 
 const round = (v: number, digits = 6) => {
   const f = 10 ** digits;
@@ -294,6 +294,7 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
   let crewShortfall = 0;
   let crewBoundStats: Plan['stats']['crewBound'] = null;
   let crewHints: AssignmentHints | null = null;
+  let alternative: { search: SearchResult; construction: string } | null = null;
   try {
     let first = live.solve();
     if (first.status !== 'optimal')
@@ -367,7 +368,7 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
       if (!cb.timeLimited && cb.power) {
         crewHints = hintsFrom(problem, hints, cb.power);
         let bestCand: { name: string; assignment: Assignment; res: LpResult } | null = null;
-        for (const [name, cand] of crewNightCandidates(problem, crewHints)) {
+        for (const [name, cand] of crewNightCandidates(problem, crewHints, cb.holders, cb.stretches[0] ?? null)) {
           live.update(cand, all);
           const res = live.solve();
           if (res.status === 'optimal' && (!bestCand || res.objective < bestCand.res.objective - 1e-9))
@@ -379,62 +380,85 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
             maxMoves,
             target,
           });
-          if (
-            again.result.objective <
-            search.result.objective - 1e-9 * Math.max(1, Math.abs(search.result.objective))
-          ) {
-            construction = bestCand.name;
-            search = { ...again, iterations: search.iterations + again.iterations, moves: search.moves + again.moves };
-          }
+          alternative = {
+            search: { ...again, iterations: search.iterations + again.iterations, moves: search.moves + again.moves },
+            construction: bestCand.name,
+          };
         }
         live.update(search.assignment, all);
         search.result = live.solve();
       }
     }
-    if (
-      options.lns !== false &&
-      search.result.objective > target &&
-      !search.timedOut &&
-      problem.stays.length <= LNS_MAX_STAYS
-    ) {
-      const lns = pairSearch(
-        problem,
-        crewHints ?? hints,
-        live,
-        search.assignment,
-        search.result,
-        defaultLnsLimits(problem, deadline, target),
-      );
-      lnsStats = {
-        neighbourhoods: lns.neighbourhoods,
-        accepted: lns.accepted,
-        lpSolves: lns.moves,
-        splits: lns.splits,
-      };
-      if (lns.accepted > 0) {
-        construction += '+lns';
-        const again =
-          lns.timedOut || lns.result.objective <= target
-            ? null
-            : localSearch(problem, hints, live, lns.assignment, lns.result, {
-                deadline,
-                maxMoves: Math.ceil(maxMoves / 2),
-                target,
-              });
-        const best = again && again.result.objective < lns.result.objective ? again : lns;
-        search = {
-          ...search,
-          assignment: best.assignment,
-          result: best.result,
-          moves: search.moves + (again?.moves ?? 0),
-          accepted: search.accepted + (again?.accepted ?? 0),
-          iterations: search.iterations + lns.iterations + (again?.iterations ?? 0),
-          timedOut: lns.timedOut || again?.timedOut,
-        };
-        live.update(search.assignment, all);
-        search.result = live.solve();
-      }
+    // Whole sequences (large-neighbourhood search) from the local search's plan and, on small
+    // depots with the crew, also from the crew candidates' (which path ends best differs from
+    // depot to depot); elsewhere only from the better of the two.
+    const better = (x: SearchResult, y: SearchResult) =>
+      x.result.objective < y.result.objective - 1e-9 * Math.max(1, Math.abs(y.result.objective));
+    const paths: { search: SearchResult; construction: string }[] = [{ search, construction }];
+    if (alternative) {
+      if (problem.stays.length <= CREW_BOUND_LIMITS.bothPaths) paths.push(alternative);
+      else if (better(alternative.search, search)) paths[0] = alternative;
     }
+    let bestPath: { search: SearchResult; construction: string; lns: typeof lnsStats } | null = null;
+    for (const path of paths) {
+      let pathSearch = path.search;
+      let pathConstruction = path.construction;
+      let pathLns = { neighbourhoods: 0, accepted: 0, lpSolves: 0, splits: 0 };
+      live.update(pathSearch.assignment, all);
+      pathSearch = { ...pathSearch, result: live.solve() };
+      if (
+        options.lns !== false &&
+        pathSearch.result.objective > target &&
+        !pathSearch.timedOut &&
+        problem.stays.length <= LNS_MAX_STAYS
+      ) {
+        const lns = pairSearch(
+          problem,
+          crewHints ?? hints,
+          live,
+          pathSearch.assignment,
+          pathSearch.result,
+          defaultLnsLimits(problem, deadline, target),
+        );
+        pathLns = {
+          neighbourhoods: lns.neighbourhoods,
+          accepted: lns.accepted,
+          lpSolves: lns.moves,
+          splits: lns.splits,
+        };
+        if (lns.accepted > 0) {
+          pathConstruction += '+lns';
+          const again =
+            lns.timedOut || lns.result.objective <= target
+              ? null
+              : localSearch(problem, hints, live, lns.assignment, lns.result, {
+                  deadline,
+                  maxMoves: Math.ceil(maxMoves / 2),
+                  target,
+                });
+          const best = again && again.result.objective < lns.result.objective ? again : lns;
+          pathSearch = {
+            ...pathSearch,
+            assignment: best.assignment,
+            result: best.result,
+            moves: pathSearch.moves + (again?.moves ?? 0),
+            accepted: pathSearch.accepted + (again?.accepted ?? 0),
+            iterations: pathSearch.iterations + lns.iterations + (again?.iterations ?? 0),
+            timedOut: lns.timedOut || again?.timedOut,
+          };
+          live.update(pathSearch.assignment, all);
+          pathSearch.result = live.solve();
+        }
+      }
+      if (!bestPath || better(pathSearch, bestPath.search))
+        bestPath = { search: pathSearch, construction: pathConstruction, lns: pathLns };
+      if (pathSearch.result.objective <= target) break;
+    }
+    search = bestPath!.search;
+    construction = bestPath!.construction;
+    lnsStats = bestPath!.lns;
+    live.update(search.assignment, all);
+    search.result = live.solve();
     chosen = preferStableAndFewerMoves(problem, hints, live, search.assignment, search.result, {
       deadline,
       maxMoves,
