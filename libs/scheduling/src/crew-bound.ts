@@ -39,6 +39,12 @@ export interface CrewBound {
 
 export interface CrewBoundOptions {
   maxNodes?: number;
+  /**
+   * One session per stay (the engine's plan space): a stay holding no charger through the
+   * stretch charges on one side of it only. A bound on the engine's plans, not on every plan;
+   * used for the stage-1 hints (who charges in the evening, who in the morning).
+   */
+  oneSession?: boolean;
   /** Above this many binaries the chargers are taken as one group (default 2,000). */
   maxBinaries?: number;
   timeLimitMs?: number;
@@ -165,7 +171,27 @@ export function solveCrewBound(problem: Problem, solver: Solver, options: CrewBo
         if (stretch === 0) holderCols.push({ stay: s.id, col, chargers: g.chargers });
         holders[k]!.push(col);
       });
-      if (hs.length > 1)
+      if (options.oneSession) {
+        // One session per stay: a stay that holds no charger through the stretch charges before
+        // it (e) or after it (m), not both.
+        const e = cost.length;
+        const m = e + 1;
+        for (let i = 0; i < 2; i++) {
+          cost.push(0);
+          lower.push(0);
+          upper.push(1);
+          integrality.push(1);
+          binaries++;
+        }
+        const kw = Math.max(0, ...hs.map((h) => h.cap));
+        for (let t = s.arriveSlot; t < s.departSlot; t++) {
+          if (t >= first && t <= last) continue;
+          const p = model.pCol[s.bus]![t]!;
+          if (p < 0) continue;
+          row([p, t < first ? e : m, ...hs.map((h) => h.col)], [1, -kw, ...hs.map(() => -kw)], -Infinity, 0);
+        }
+        row([e, m, ...hs.map((h) => h.col)], [1, 1, ...hs.map(() => 1)], -Infinity, 1);
+      } else if (hs.length > 1)
         row(
           hs.map((h) => h.col),
           hs.map(() => 1),

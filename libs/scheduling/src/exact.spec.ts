@@ -104,20 +104,25 @@ describe('exact assignment MILP (HiGHS) against the plans', () => {
     },
   );
 
-  it('with the crew, the large-neighbourhood search cuts the cost where chargers are scarce', async () => {
-    // Without it the plan pays 15 % more on this depot (measured: the search re-splits two
-    // chargers' whole sequences, which no single move can do). On 8 buses on 2 chargers (seeds 3
-    // and 4) the candidates that follow the crew-aware bound (crew-night.ts) now get as far alone.
-    const cases = [[10, 3, 5]] as const;
+  it('with the crew, every bus served where chargers are scarce, within a few per cent of a proven bound', async () => {
+    // The whole-sequence search and the candidates that follow the crew-aware bound
+    // (crew-night.ts) together; before them these plans paid 15-20 % more than the optimum
+    // allows (or left buses short: 10 on 2, seed 9). The bound is the plan's own (crew-bound.ts).
+    const cases = [
+      [8, 2, 3],
+      [10, 3, 5],
+      [10, 2, 9],
+    ] as const;
     for (const [buses, chargers, seed] of cases) {
       const input = { ...generateDepot({ buses, chargers, seed }), yard };
       const on = await planOf(input);
       const off = await planOf(input, { lns: false });
-      expect(on.stats.lns.accepted).toBeGreaterThan(0);
       expect(on.stats.shortfallKwh).toBe(0);
-      expect(penalised(input, on)).toBeLessThan(penalised(input, off) * 0.95);
+      expect(penalised(input, on)).toBeLessThanOrEqual(penalised(input, off) + 1e-6);
+      expect(on.gap).toBeLessThan(0.03);
+      expect(on.stats.crewBound).not.toBeNull();
     }
-  });
+  }, 120_000);
 
   it('a bus left short says why in words, with its pull-in and pull-out, and whether that is proven', async () => {
     // One 60 kW charger, two buses needing more than the evening and the morning crews can give

@@ -154,7 +154,7 @@ export const LARGE_CREW_STAYS = 150;
 export const EXACT_LIMITS = { binaries: 6000, nodes: 30, ms: 3000 };
 
 /** The crew-aware bound (crew-bound.ts): depots up to this many stays, its node budget and time cap. */
-export const CREW_BOUND_LIMITS = { stays: 400, nodes: 30, ms: 4000, bothPaths: 30 };
+export const CREW_BOUND_LIMITS = { stays: 400, nodes: 30, ms: 15_000, bothPaths: 30 };
 
 const round = (v: number, digits = 6) => {
   const f = 10 ** digits;
@@ -352,7 +352,11 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
       problem.stays.length <= CREW_BOUND_LIMITS.stays &&
       performance.now() < deadline
     ) {
+      // One session per stay, as every plan of the engine (and the exact model) has it: a bound
+      // on those plans, and its powers put each stay in the evening, on a charger through the
+      // night, or in the morning.
       const cb = solveCrewBound(problem, solver, {
+        oneSession: true,
         maxNodes: CREW_BOUND_LIMITS.nodes,
         timeLimitMs: Math.max(1, Math.min(CREW_BOUND_LIMITS.ms, deadline - performance.now())),
       });
@@ -364,7 +368,8 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
         if (cb.optimal) crewShortfall = cb.shortfallKwh;
       }
       // Candidates that follow its powers (crew-night.ts): each charger's evening, overnight
-      // holder and morning as the bound has them; the best, searched locally, if it beats the plan.
+      // holder and morning as the bound has them; the best, searched locally, is a second start
+      // for the whole-sequence search.
       if (!cb.timeLimited && cb.power) {
         crewHints = hintsFrom(problem, hints, cb.power);
         let bestCand: { name: string; assignment: Assignment; res: LpResult } | null = null;
