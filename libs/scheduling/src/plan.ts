@@ -154,7 +154,7 @@ export const LARGE_CREW_STAYS = 150;
 export const EXACT_LIMITS = { binaries: 6000, nodes: 30, ms: 3000 };
 
 /** The crew-aware bound (crew-bound.ts): depots up to this many stays, its node budget and time cap. */
-export const CREW_BOUND_LIMITS = { stays: 400, nodes: 30, ms: 15_000, bothPaths: 30 };
+export const CREW_BOUND_LIMITS = { stays: 150, nodes: 30, ms: 15_000, bothPaths: 30 };
 
 const round = (v: number, digits = 6) => {
   const f = 10 ** digits;
