@@ -154,7 +154,7 @@ export const LARGE_CREW_STAYS = 150;
 export const EXACT_LIMITS = { binaries: 6000, nodes: 30, ms: 3000 };
 
 /** The crew-aware bound (crew-bound.ts): depots up to this many stays, its node budget and time cap. */
-export const CREW_BOUND_LIMITS = { stays: 150, nodes: 30, ms: 15_000, bothPaths: 30 };
+export const CREW_BOUND_LIMITS = { stays: 16, nodes: 30, ms: 15_000, bothPaths: 16 };
 
 const round = (v: number, digits = 6) => {
   const f = 10 ** digits;
@@ -382,7 +382,7 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
         if (bestCand) {
           const again = localSearch(problem, crewHints, live, bestCand.assignment, bestCand.res, {
             deadline,
-            maxMoves,
+            maxMoves: Math.ceil(maxMoves / 2),
             target,
           });
           alternative = {
