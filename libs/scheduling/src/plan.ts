@@ -382,7 +382,7 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
         if (bestCand) {
           const again = localSearch(problem, crewHints, live, bestCand.assignment, bestCand.res, {
             deadline,
-            maxMoves: Math.ceil(maxMoves / 2),
+            maxMoves,
             target,
           });
           alternative = {
