@@ -175,7 +175,8 @@ describe('the yard crew', () => {
   it('says so when the plan being carried out cannot be kept within the tolerance and the night is planned afresh', async () => {
     // Every battery reported empty at 22:00: the windows planned for fuller batteries cannot hold
     // what the buses now need, so the cheapest plan replaces the one being carried out.
-    const input = { ...generateDepot({ buses: 12, chargers: 6, seed: 5 }), yard };
+    // (Seed 1: on seed 5 the repaired plan now costs no more than the fresh one and is kept.)
+    const input = { ...generateDepot({ buses: 12, chargers: 6, seed: 1 }), yard };
     const parsed = parseScenario(input);
     if (!parsed.ok) throw new Error('bad scenario');
     const before = await planScenario(parsed.scenario);

@@ -104,23 +104,25 @@ describe('exact assignment MILP (HiGHS) against the plans', () => {
     },
   );
 
-  it('with the crew, the large-neighbourhood search is what serves every bus and cuts the cost where chargers are scarce', async () => {
-    // Without it the plan leaves buses short or pays 5-25 % more on these depots (measured: the
-    // search re-splits two chargers' whole sequences, which no single move can do).
+  it('with the crew, every bus served where chargers are scarce, within a few per cent of a proven bound', async () => {
+    // The whole-sequence search and the candidates that follow the crew-aware bound
+    // (crew-night.ts) together; before them these plans paid 15-20 % more than the optimum
+    // allows (or left buses short: 10 on 2, seed 9). The bound is the plan's own (crew-bound.ts).
     const cases = [
       [8, 2, 3],
       [10, 3, 5],
-      [8, 2, 4],
+      [10, 2, 9],
     ] as const;
     for (const [buses, chargers, seed] of cases) {
       const input = { ...generateDepot({ buses, chargers, seed }), yard };
       const on = await planOf(input);
       const off = await planOf(input, { lns: false });
-      expect(on.stats.lns.accepted).toBeGreaterThan(0);
       expect(on.stats.shortfallKwh).toBe(0);
-      expect(penalised(input, on)).toBeLessThan(penalised(input, off) * 0.95);
+      expect(penalised(input, on)).toBeLessThanOrEqual(penalised(input, off) + 1e-6);
+      expect(on.gap).toBeLessThan(0.03);
+      expect(on.stats.crewBound).not.toBeNull();
     }
-  });
+  }, 120_000);
 
   it('a bus left short says why in words, with its pull-in and pull-out, and whether that is proven', async () => {
     // One 60 kW charger, two buses needing more than the evening and the morning crews can give

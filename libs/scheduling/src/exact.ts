@@ -1,7 +1,8 @@
 import type { Assignment } from './assignment.js';
+import { crewGaps } from './crew-bound.js';
 import { endIsFree, minWindow, startIsFree } from './crew.js';
 import type { Solver } from './highs-solver.js';
-import { buildChargeModel, type ChargeModel } from './lp-model.js';
+import { buildChargeModel, energyNeedCap, type ChargeModel } from './lp-model.js';
 import { emptyPlugMap, type Problem } from './problem.js';
 
 // The exact assignment problem as a mixed-integer program (HiGHS), over the engine's plan space:
@@ -259,6 +260,43 @@ export function solveExact(problem: Problem, solver: Solver, options: ExactOptio
       row([pc, ...pt.idx], [1, ...pt.val], -Infinity, 0);
     }
     xCol.set(id, perCharger);
+  }
+  // Crew-less stretches (see crew-bound.ts): a stay is on a charger through the whole stretch
+  // or on none, and takes there at most the energy it needs (every kWh has a price) times that.
+  // Redundant for integer x; it cuts the relaxation's spreading of the night over all buses.
+  if (capacity && problem.slots.every((sl) => sl.price > 0)) {
+    for (const [first, last] of crewGaps(problem)) {
+      for (const id of freeStays) {
+        const s = problem.stays[id]!;
+        if (s.departSlot <= first || s.arriveSlot > last) continue;
+        const perCharger = xCol.get(id)!;
+        const bus = problem.buses[s.bus]!;
+        const most =
+          Math.max(0, energyNeedCap(problem, s.bus)[s.indexOnBus]! - (bus.arrivalKwh - s.runsBeforeKwh)) / problem.eta;
+        const idx: number[] = [];
+        const val: number[] = [];
+        for (let t = first; t <= last; t++) {
+          const pc = model.pCol[s.bus]![t]!;
+          if (pc < 0) continue;
+          idx.push(pc);
+          val.push(problem.slotHours);
+        }
+        const n = idx.length;
+        if (n === 0) continue;
+        for (const c of chargers) {
+          const xs = perCharger[c];
+          if (!xs) continue;
+          // The charger's x at the stretch's first slot it is available in.
+          for (let t = first; t <= last; t++)
+            if (xs[t]! >= 0) {
+              idx.push(xs[t]!);
+              val.push(-most);
+              break;
+            }
+        }
+        if (idx.length > n) row(idx, val, -Infinity, 0);
+      }
+    }
   }
   for (const xs of onCharger.values())
     if (xs.length > 1)

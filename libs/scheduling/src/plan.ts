@@ -3,9 +3,11 @@ import { limitedBaseline, type Baseline, type BaselineKind } from './baseline.js
 import { countCrewMoves, endIsFree, fitCrew, startIsFree, type Move } from './crew.js';
 import { keptAssignment, stableRepair } from './stable.js';
 import { describeShortfall, explainShortfalls, soloShortfall, type ShortReason, type ShortWith } from './explain.js';
+import { solveCrewBound } from './crew-bound.js';
+import { crewNightCandidates, hintsFrom } from './crew-night.js';
 import { exactSize, solveExact } from './exact.js';
 import { loadSolver, type LpResult, type Solver } from './highs-solver.js';
-import { AssignedModel, LARGE_STAYS, localSearch } from './local-search.js';
+import { AssignedModel, LARGE_STAYS, localSearch, type SearchResult } from './local-search.js';
 import { defaultLnsLimits, pairSearch } from './lns.js';
 import { solveLowerBound } from './lower-bound.js';
 import { buildChargeModel, powerFrom } from './lp-model.js';
@@ -107,6 +109,8 @@ export interface Plan {
     lns: { neighbourhoods: number; accepted: number; lpSolves: number; splits: number };
     /** The exact MILP, when it was run (a short plan on a small depot): its end, nodes, size, time. */
     exact: { status: string; nodes: number; binaries: number; ms: number } | null;
+    /** The crew-aware bound (crew-bound.ts), when it was solved: nodes, binaries, time, proven optimum. */
+    crewBound: { nodes: number; binaries: number; ms: number; optimal: boolean } | null;
     /**
      * Why the search ended: it reached the bound, used its move budget (both reproducible), or
      * hit the time safety net (the plan may then differ from run to run).
@@ -148,6 +152,9 @@ export const LNS_MAX_STAYS = 120;
 export const LARGE_CREW_STAYS = 150;
 
 export const EXACT_LIMITS = { binaries: 6000, nodes: 30, ms: 3000 };
+
+/** The crew-aware bound (crew-bound.ts): depots up to this many stays, its node budget and time cap. */
+export const CREW_BOUND_LIMITS = { stays: 16, nodes: 30, ms: 15_000, bothPaths: 16 };
 
 const round = (v: number, digits = 6) => {
   const f = 10 ** digits;
@@ -223,7 +230,7 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
   const load = new Float64Array(T);
   for (const p of lb.power) for (let t = 0; t < T; t++) load[t] = load[t]! + p[t]!;
   // The tie-break adds at most 1e-7 of the energy cost: closer than this is optimal.
-  const target = lb.penalisedObjective * (1 + 5e-7) + 1e-9;
+  let target = lb.penalisedObjective * (1 + 5e-7) + 1e-9;
   const candidates: [string, () => Assignment][] = [
     [
       'sweep-strong-deadline',
@@ -293,6 +300,11 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
   let exactStats: Plan['stats']['exact'] = null;
   let exactBound = -Infinity;
   let exactProven = false;
+  let crewBound = -Infinity;
+  let crewShortfall = 0;
+  let crewBoundStats: Plan['stats']['crewBound'] = null;
+  let crewHints: AssignmentHints | null = null;
+  let alternative: { search: SearchResult; construction: string } | null = null;
   try {
     let first = live.solve();
     if (first.status !== 'optimal')
@@ -346,50 +358,127 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
     // search over pairs of chargers), then single moves again from what that found. Each step
     // keeps only improvements, so the plan is never worse than the local search alone.
     search = localSearch(problem, hints, live, start, first, { deadline, maxMoves, target });
+    // Above the relaxation's bound with crew windows: the bound that knows who holds each
+    // charger while nobody is in the yard (crew-bound.ts) shows how far the plan can be from
+    // the optimum. Counted nodes; a bound cut by the time cap is left unused.
     if (
-      options.lns !== false &&
       search.result.objective > target &&
-      !search.timedOut &&
-      problem.stays.length <= LNS_MAX_STAYS
+      problem.yard?.capacity &&
+      problem.stays.length <= CREW_BOUND_LIMITS.stays &&
+      performance.now() < deadline
     ) {
-      const lns = pairSearch(
-        problem,
-        hints,
-        live,
-        search.assignment,
-        search.result,
-        defaultLnsLimits(problem, deadline, target),
-      );
-      lnsStats = {
-        neighbourhoods: lns.neighbourhoods,
-        accepted: lns.accepted,
-        lpSolves: lns.moves,
-        splits: lns.splits,
-      };
-      if (lns.accepted > 0) {
-        construction += '+lns';
-        const again =
-          lns.timedOut || lns.result.objective <= target
-            ? null
-            : localSearch(problem, hints, live, lns.assignment, lns.result, {
-                deadline,
-                maxMoves: Math.ceil(maxMoves / 2),
-                target,
-              });
-        const best = again && again.result.objective < lns.result.objective ? again : lns;
-        search = {
-          ...search,
-          assignment: best.assignment,
-          result: best.result,
-          moves: search.moves + (again?.moves ?? 0),
-          accepted: search.accepted + (again?.accepted ?? 0),
-          iterations: search.iterations + lns.iterations + (again?.iterations ?? 0),
-          timedOut: lns.timedOut || again?.timedOut,
-        };
+      // One session per stay, as every plan of the engine (and the exact model) has it: a bound
+      // on those plans, and its powers put each stay in the evening, on a charger through the
+      // night, or in the morning.
+      const cb = solveCrewBound(problem, solver, {
+        oneSession: true,
+        maxNodes: CREW_BOUND_LIMITS.nodes,
+        timeLimitMs: Math.max(1, Math.min(CREW_BOUND_LIMITS.ms, deadline - performance.now())),
+      });
+      crewBoundStats = { nodes: cb.nodes, binaries: cb.binaries, ms: round(cb.ms, 1), optimal: cb.optimal };
+      if (!cb.timeLimited && Number.isFinite(cb.penalisedBound)) {
+        crewBound = cb.penalisedBound;
+        // A plan at this bound is optimal: the searches below stop there.
+        target = Math.max(target, crewBound * (1 + 2e-6) + 1e-9);
+        if (cb.optimal) crewShortfall = cb.shortfallKwh;
+      }
+      // Candidates that follow its powers (crew-night.ts): each charger's evening, overnight
+      // holder and morning as the bound has them; the best, searched locally, is a second start
+      // for the whole-sequence search.
+      if (!cb.timeLimited && cb.power) {
+        crewHints = hintsFrom(problem, hints, cb.power);
+        let bestCand: { name: string; assignment: Assignment; res: LpResult } | null = null;
+        for (const [name, cand] of crewNightCandidates(problem, crewHints, cb.holders, cb.stretches[0] ?? null)) {
+          live.update(cand, all);
+          const res = live.solve();
+          if (res.status === 'optimal' && (!bestCand || res.objective < bestCand.res.objective - 1e-9))
+            bestCand = { name, assignment: cand, res };
+        }
+        if (bestCand) {
+          const again = localSearch(problem, crewHints, live, bestCand.assignment, bestCand.res, {
+            deadline,
+            maxMoves,
+            target,
+          });
+          alternative = {
+            search: { ...again, iterations: search.iterations + again.iterations, moves: search.moves + again.moves },
+            construction: bestCand.name,
+          };
+        }
         live.update(search.assignment, all);
         search.result = live.solve();
       }
     }
+    // Whole sequences (large-neighbourhood search) from the local search's plan and, on small
+    // depots with the crew, also from the crew candidates' (which path ends best differs from
+    // depot to depot); elsewhere only from the better of the two.
+    const better = (x: SearchResult, y: SearchResult) =>
+      x.result.objective < y.result.objective - 1e-9 * Math.max(1, Math.abs(y.result.objective));
+    const paths: { search: SearchResult; construction: string }[] = [{ search, construction }];
+    if (alternative) {
+      if (problem.stays.length <= CREW_BOUND_LIMITS.bothPaths) paths.push(alternative);
+      else if (better(alternative.search, search)) paths[0] = alternative;
+    }
+    let bestPath: { search: SearchResult; construction: string; lns: typeof lnsStats } | null = null;
+    for (const path of paths) {
+      let pathSearch = path.search;
+      let pathConstruction = path.construction;
+      let pathLns = { neighbourhoods: 0, accepted: 0, lpSolves: 0, splits: 0 };
+      live.update(pathSearch.assignment, all);
+      pathSearch = { ...pathSearch, result: live.solve() };
+      if (
+        options.lns !== false &&
+        pathSearch.result.objective > target &&
+        !pathSearch.timedOut &&
+        problem.stays.length <= LNS_MAX_STAYS
+      ) {
+        const lns = pairSearch(
+          problem,
+          crewHints ?? hints,
+          live,
+          pathSearch.assignment,
+          pathSearch.result,
+          defaultLnsLimits(problem, deadline, target),
+        );
+        pathLns = {
+          neighbourhoods: lns.neighbourhoods,
+          accepted: lns.accepted,
+          lpSolves: lns.moves,
+          splits: lns.splits,
+        };
+        if (lns.accepted > 0) {
+          pathConstruction += '+lns';
+          const again =
+            lns.timedOut || lns.result.objective <= target
+              ? null
+              : localSearch(problem, hints, live, lns.assignment, lns.result, {
+                  deadline,
+                  maxMoves: Math.ceil(maxMoves / 2),
+                  target,
+                });
+          const best = again && again.result.objective < lns.result.objective ? again : lns;
+          pathSearch = {
+            ...pathSearch,
+            assignment: best.assignment,
+            result: best.result,
+            moves: pathSearch.moves + (again?.moves ?? 0),
+            accepted: pathSearch.accepted + (again?.accepted ?? 0),
+            iterations: pathSearch.iterations + lns.iterations + (again?.iterations ?? 0),
+            timedOut: lns.timedOut || again?.timedOut,
+          };
+          live.update(pathSearch.assignment, all);
+          pathSearch.result = live.solve();
+        }
+      }
+      if (!bestPath || better(pathSearch, bestPath.search))
+        bestPath = { search: pathSearch, construction: pathConstruction, lns: pathLns };
+      if (pathSearch.result.objective <= target) break;
+    }
+    search = bestPath!.search;
+    construction = bestPath!.construction;
+    lnsStats = bestPath!.lns;
+    live.update(search.assignment, all);
+    search.result = live.solve();
     chosen = preferStableAndFewerMoves(problem, hints, live, search.assignment, search.result, {
       deadline,
       maxMoves,
@@ -457,8 +546,8 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
       solver,
       plug,
       power,
-      Math.max(lb.penalisedObjective, exactBound),
-      lb.shortfallKwh,
+      Math.max(lb.penalisedObjective, exactBound, crewBound),
+      Math.max(lb.shortfallKwh, crewShortfall),
       exactProven,
       (variant) => shortWithLive(problem, live, chosen.assignment, variant, chosen.result),
       lb.shortfallKwh <= 1e-9 ? { objective: lb.penalisedObjective, kwhValue: Math.max(0, ...lb.stayDual) } : undefined,
@@ -467,6 +556,7 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
     live.dispose();
   }
   plan.stats.exact = exactStats;
+  plan.stats.crewBound = crewBoundStats;
   plan.crewTrade = chosen.crewTrade;
   plan.keptPrevious = chosen.keptPrevious;
   plan.stats.lpColumns = live.model.lp.numCols;
@@ -893,6 +983,7 @@ function assemblePlan(
       construction: '',
       lns: { neighbourhoods: 0, accepted: 0, lpSolves: 0, splits: 0 },
       exact: null,
+      crewBound: null,
       stoppedBy: 'bound',
       simplexIterations: 0,
       shortfallKwh: round(totalShort),
