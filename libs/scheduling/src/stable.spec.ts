@@ -75,10 +75,13 @@ describe('stable re-plans', () => {
       before.buses.map((b) => b.id).filter((id) => !before.sessions.some((s) => s.bus === id && after(s))),
     );
     expect(r.replan.moved.buses.filter((b) => hadNoSession.has(b))).toEqual([]);
-    // No bus the plan being carried out served is left short by more than a trace.
+    // The fault is absorbed: the depot is no shorter than before it (here 333 kWh after against
+    // 350 before), and no bus the plan being carried out served is left short by more than a trace
+    // beside that (the repair may trim a kept session by a kWh or two to seat a displaced bus).
+    expect(r.stats.shortfallKwh).toBeLessThanOrEqual(before.stats.shortfallKwh + 1e-6);
     for (const b of r.buses) {
       const was = before.buses.find((x) => x.id === b.id)!;
-      if (was.shortfallKwh === 0) expect(b.shortfallKwh).toBeLessThan(0.5);
+      if (was.shortfallKwh === 0) expect(b.shortfallKwh).toBeLessThan(2);
     }
     expect(r.replan.moved.buses.length).toBeLessThanOrEqual(onIt.size + 2);
   });
