@@ -28,14 +28,14 @@ tools/pg.sh stop "$TEST_DIR/pg"
 rm -rf "$TEST_DIR"
 mkdir -p "$TEST_DIR"
 
-# Lint (and the format check) run beside the cluster's start-up and the API build; the suites
-# start once they pass.
-{
-  echo "== Lint (eslint)" && npm run -s lint &&
-    echo "== Format (prettier --check)" && npm run -s format:check
-} > "$TEST_DIR/lint.log" 2>&1 &
+# Lint and the format check run beside each other, the cluster's start-up and the API build (each
+# takes one core); the suites start once both pass.
+{ echo "== Lint (eslint)" && npm run -s lint; } > "$TEST_DIR/lint.log" 2>&1 &
 lint=$!
 pids+=($lint)
+{ echo "== Format (prettier --check)" && npm run -s format:check; } > "$TEST_DIR/format.log" 2>&1 &
+format=$!
+pids+=($format)
 
 tools/pg.sh start "$TEST_DIR/pg" "$PGPORT" fast
 tools/pg.sh createdb "$PGPORT" nightyard_test
@@ -67,12 +67,14 @@ export NG_CLI_ANALYTICS=false
 web=$!
 pids+=($web)
 
-if ! wait "$lint"; then
-  cat "$TEST_DIR/lint.log"
+lint_status=0
+wait "$lint" || lint_status=$?
+wait "$format" || lint_status=$((lint_status + $?))
+cat "$TEST_DIR/lint.log" "$TEST_DIR/format.log"
+if [ "$lint_status" -ne 0 ]; then
   echo "Lint or format check failed: fix the code (npm run lint, npm run format), see DEVELOPERS.md." >&2
   exit 1
 fi
-cat "$TEST_DIR/lint.log"
 
 echo "== [${SECONDS}s] Libraries and API (Vitest, PostgreSQL on 127.0.0.1:$PGPORT)"
 npx vitest run
