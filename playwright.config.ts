@@ -1,19 +1,25 @@
-import { defineConfig } from '@playwright/test';
+import { defineConfig, type PlaywrightTestConfig } from '@playwright/test';
+
+type WebServer = Extract<NonNullable<PlaywrightTestConfig['webServer']>, unknown[]>[number];
+import { E2E_WORKERS, e2eDatabaseUrl, e2eServerPorts } from './e2e/ports';
 
 // Browser tests run against the built app served by the real API on its own database.
-// tools/test.sh prepares that database, the fake mail server and Debian's Chromium.
-const port = Number(process.env.E2E_PORT ?? 3100);
+// tools/test.sh prepares the databases, the fake mail server and Debian's Chromium.
+// Journeys run two at a time (E2E_WORKERS), each worker on servers of its own (e2e/ports.ts):
+// the API's clock, which every journey moves, and the simulator's chargers are never shared.
 
 export default defineConfig({
   testDir: 'e2e',
+  // A file's journeys run in order in one worker (some share a district seeded in beforeAll).
   fullyParallel: false,
-  workers: 1,
+  workers: E2E_WORKERS,
   retries: 0,
   timeout: 45_000,
   expect: { timeout: 10_000 },
   reporter: [['list']],
   use: {
-    baseURL: `http://localhost:${port}`,
+    // The worker's own API (e2e/support.ts `test` moves the port).
+    baseURL: `http://localhost:${e2eServerPorts(0).api}`,
     browserName: 'chromium',
     launchOptions: {
       executablePath: process.env.CHROMIUM_PATH ?? '/usr/bin/chromium',
@@ -34,40 +40,44 @@ export default defineConfig({
     trace: 'off',
     screenshot: 'only-on-failure',
   },
-  webServer: [
-    {
-      command: 'node --enable-source-maps dist/api/main.mjs',
-      url: `http://localhost:${port}/api/health`,
-      reuseExistingServer: false,
-      timeout: 60_000,
-      stdout: 'ignore',
-      stderr: 'pipe',
-      env: {
-        PORT: String(port),
-        NODE_ENV: 'test',
-        LOG_LEVEL: 'warn',
-        DATABASE_URL: process.env.E2E_DATABASE_URL ?? 'postgres://postgres@127.0.0.1:5434/nightyard_e2e',
-        SMTP_PORT: process.env.SMTP_PORT ?? '2526',
-        FAKE_MAIL_URL: process.env.FAKE_MAIL_URL ?? 'http://127.0.0.1:2581',
-        PUBLIC_URL: `http://localhost:${port}`,
-        // Each spec stands the clock at its own instant and seeds a district of its own (e2e/support.ts).
-        NIGHTYARD_TEST_CONTROL: '1',
-        SEED_DEMO: 'never',
+  // Per worker: the API serving the built app on a database of its own, and the demo depot's
+  // chargers simulated (so the pages show live OCPP states) pointed at that API.
+  webServer: Array.from({ length: E2E_WORKERS }, (_, worker): WebServer[] => {
+    const { api, simulator } = e2eServerPorts(worker);
+    return [
+      {
+        command: 'node --enable-source-maps dist/api/main.mjs',
+        url: `http://localhost:${api}/api/health`,
+        reuseExistingServer: false,
+        timeout: 60_000,
+        stdout: 'ignore',
+        stderr: 'pipe',
+        env: {
+          PORT: String(api),
+          NODE_ENV: 'test',
+          LOG_LEVEL: 'warn',
+          DATABASE_URL: e2eDatabaseUrl(worker),
+          SMTP_PORT: process.env.SMTP_PORT ?? '2526',
+          FAKE_MAIL_URL: process.env.FAKE_MAIL_URL ?? 'http://127.0.0.1:2581',
+          PUBLIC_URL: `http://localhost:${api}`,
+          // Each spec stands the clock at its own instant and seeds a district of its own (e2e/support.ts).
+          NIGHTYARD_TEST_CONTROL: '1',
+          SEED_DEMO: 'never',
+        },
       },
-    },
-    {
-      // The demo depot's chargers, simulated, so the pages show live OCPP states.
-      command: 'node dist/api/station-simulator.mjs',
-      url: `http://127.0.0.1:${port + 1}/`,
-      reuseExistingServer: false,
-      timeout: 60_000,
-      stdout: 'ignore',
-      stderr: 'pipe',
-      env: {
-        NIGHTYARD_OCPP_URL: `ws://127.0.0.1:${port}/ocpp`,
-        SIMULATOR_HEALTH_PORT: String(port + 1),
-        SIMULATOR_STATIONS: 'none',
+      {
+        command: 'node dist/api/station-simulator.mjs',
+        url: `http://127.0.0.1:${simulator}/`,
+        reuseExistingServer: false,
+        timeout: 60_000,
+        stdout: 'ignore',
+        stderr: 'pipe',
+        env: {
+          NIGHTYARD_OCPP_URL: `ws://127.0.0.1:${api}/ocpp`,
+          SIMULATOR_HEALTH_PORT: String(simulator),
+          SIMULATOR_STATIONS: 'none',
+        },
       },
-    },
-  ],
+    ];
+  }).flat(),
 });

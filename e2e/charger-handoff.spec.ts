@@ -1,5 +1,4 @@
-import { expect, test } from '@playwright/test';
-import { AT, districtAt, expectAccessible, pageAtApiTime, signInAs, type District } from './support';
+import { AT, districtAt, expectAccessible, pageAtApiTime, signInAs, type District, expect, test } from './support';
 
 // The charger simulator (see playwright.config.ts) takes this file's district's ten chargers: they
 // connect over OCPP-J, set their clocks from the API's answers and report their state. Just after midnight on a Wednesday.

@@ -1,6 +1,6 @@
 import path from 'node:path';
-import { expect, test, type Page } from '@playwright/test';
-import { AT, districtAt, expectAccessible, pageAtApiTime, signInAs } from './support';
+import { type Page } from '@playwright/test';
+import { AT, districtAt, expectAccessible, pageAtApiTime, signInAs, expect, test } from './support';
 
 // Depot and Rates: a facilities manager sets the depot up, a finance user reads it, in a district of
 // the test's own on a weekday afternoon.

@@ -1,4 +1,4 @@
-import { expect, test, type Browser, type Page } from '@playwright/test';
+import { type Browser, type Page } from '@playwright/test';
 import {
   AT,
   chargerReports,
@@ -9,6 +9,8 @@ import {
   pageAtApiTime,
   signInAs,
   type District,
+  expect,
+  test,
 } from './support';
 
 // Live state is pushed: a charger fault reported by the simulator over OCPP reaches Tonight, Yard

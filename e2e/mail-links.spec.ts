@@ -1,4 +1,3 @@
-import { expect, test } from '@playwright/test';
 import {
   AT,
   DEMO_PASSWORD,
@@ -8,9 +7,10 @@ import {
   latestMailTo,
   pageAtApiTime,
   signIn,
+  expect,
+  test,
+  API,
 } from './support';
-
-const API = `http://127.0.0.1:${Number(process.env.E2E_PORT ?? 3100)}`;
 
 async function apiToken(email: string): Promise<string> {
   const res = await fetch(`${API}/api/auth/login`, {

@@ -1,5 +1,5 @@
-import { expect, test, type Page } from '@playwright/test';
-import { AT, districtAt, expectAccessible, pageAtApiTime, signInAs } from './support';
+import { type Page } from '@playwright/test';
+import { AT, districtAt, expectAccessible, pageAtApiTime, signInAs, expect, test } from './support';
 
 // The office screens at a desk (1366 px) and on a phone (390 px): the plan review, the depot and
 // fleet forms, the rates breadcrumb and the sign-in page. Each test seeds a district of its own on

@@ -1,5 +1,15 @@
-import { expect, test, type Page } from '@playwright/test';
-import { AT, districtAt, expectAccessible, latestMailTo, pageAtApiTime, signInAs, type District } from './support';
+import { type Page } from '@playwright/test';
+import {
+  AT,
+  districtAt,
+  expectAccessible,
+  latestMailTo,
+  pageAtApiTime,
+  signInAs,
+  type District,
+  expect,
+  test,
+} from './support';
 
 // A fleet supervisor uploads a day's runs, generates the night's plan, reviews it and publishes it;
 // and, just after midnight, plans a night already under way. Each test seeds a district of its own

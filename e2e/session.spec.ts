@@ -1,7 +1,4 @@
-import { expect, test } from '@playwright/test';
-import { AT, DEMO_PASSWORD, districtAt, expectAccessible, pageAtApiTime, signInAs } from './support';
-
-const API = `http://127.0.0.1:${Number(process.env.E2E_PORT ?? 3100)}`;
+import { AT, DEMO_PASSWORD, districtAt, expectAccessible, pageAtApiTime, signInAs, expect, test, API } from './support';
 
 // A session that really ends (here: the refresh cookie's 14 days are over on the API's clock) sends
 // the person to sign in and back, with what they had typed and not yet saved still in the form.

@@ -1,5 +1,4 @@
 import { randomUUID } from 'node:crypto';
-import { expect, test } from '@playwright/test';
 import {
   AT,
   districtAt,
@@ -9,6 +8,8 @@ import {
   signIn,
   signInAs,
   type District,
+  expect,
+  test,
 } from './support';
 
 // A weekday afternoon at a demo district of this file's own.

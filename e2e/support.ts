@@ -1,12 +1,30 @@
 import { randomUUID } from 'node:crypto';
 import AxeBuilder from '@axe-core/playwright';
-import { expect, type Page } from '@playwright/test';
+import { expect, test as base, type Page } from '@playwright/test';
+import { e2eServerPorts } from './ports';
 
 export const DEMO_PASSWORD = 'nightyard-demo';
 const FAKE_MAIL_URL = process.env.FAKE_MAIL_URL ?? 'http://127.0.0.1:2581';
-const PORT = Number(process.env.E2E_PORT ?? 3100);
-const API = `http://127.0.0.1:${PORT}`;
-const SIMULATOR = `http://127.0.0.1:${PORT + 1}`;
+
+/**
+ * Each Playwright worker has an API (its own clock, database and job queue) and a charger simulator
+ * of its own (playwright.config.ts): the journeys of one worker move only that API's clock and
+ * swap only that simulator's chargers. Playwright numbers the workers running at once from 0.
+ */
+const ports = e2eServerPorts(Number(process.env.TEST_PARALLEL_INDEX ?? 0));
+/** This worker's API (also what its pages are served from). */
+export const API = `http://127.0.0.1:${ports.api}`;
+const SIMULATOR = `http://127.0.0.1:${ports.simulator}`;
+
+/** Playwright's `test` with the pages on this worker's API. Every journey imports it from here. */
+export const test = base.extend({
+  baseURL: async ({ baseURL }, use) => {
+    const url = new URL(baseURL ?? 'http://localhost');
+    url.port = String(ports.api);
+    await use(url.origin);
+  },
+});
+export { expect };
 
 /**
  * The instants the browser journeys stand at (the depot is in America/Chicago). Tests never run at

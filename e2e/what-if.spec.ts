@@ -1,13 +1,10 @@
 import { readFile } from 'node:fs/promises';
-import { expect, test } from '@playwright/test';
-import { AT, DEMO_PASSWORD, districtAt, expectAccessible, pageAtApiTime, signInAs } from './support';
+import { AT, DEMO_PASSWORD, districtAt, expectAccessible, pageAtApiTime, signInAs, expect, test, API } from './support';
 
 // A fleet supervisor tries a what-if (the night on a 150 kW service limit), sees it labelled as a
 // study, cannot publish it, and adopts it after a charger went out of service: the adoption lists
 // what differs from the depot now and makes a normal draft. The district is the test's own, at a
 // fixed instant (the demo depot, Orchard Lane, is in America/Chicago).
-
-const API = `http://127.0.0.1:${Number(process.env.E2E_PORT ?? 3100)}`;
 
 async function tokenOf(email: string): Promise<string> {
   const res = await fetch(`${API}/api/auth/login`, {

@@ -1,5 +1,16 @@
-import { expect, test, type Page } from '@playwright/test';
-import { AT, apiNow, districtAt, expectAccessible, latestMailTo, pageAtApiTime, signInAs } from './support';
+import { type Page } from '@playwright/test';
+import {
+  AT,
+  apiNow,
+  districtAt,
+  expectAccessible,
+  latestMailTo,
+  pageAtApiTime,
+  signInAs,
+  expect,
+  test,
+  API,
+} from './support';
 
 // The early-morning crew on a phone, not having confirmed its first steps (the demo depot has
 // nobody in the yard from 23:30 to 04:30, and the district's evening steps are confirmed): the cards lead with what to do now,
@@ -7,8 +18,6 @@ import { AT, apiNow, districtAt, expectAccessible, latestMailTo, pageAtApiTime, 
 // happened), the next hour across chargers, and a charger reported out in the middle of a slot.
 
 test.use({ viewport: { width: 390, height: 844 } });
-
-const API = `http://127.0.0.1:${Number(process.env.E2E_PORT ?? 3100)}`;
 
 async function apiClockAt(at: string): Promise<void> {
   const res = await fetch(`${API}/api/testing/clock`, {

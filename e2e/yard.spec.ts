@@ -1,5 +1,5 @@
-import { expect, test, type Locator, type Page } from '@playwright/test';
-import { AT, apiNow, districtAt, expectAccessible, pageAtApiTime, signInAs } from './support';
+import { type Locator, type Page } from '@playwright/test';
+import { AT, apiNow, districtAt, expectAccessible, pageAtApiTime, signInAs, expect, test } from './support';
 
 // Night yard staff on a phone, at fixed instants of the demo depot's week (America/Chicago): each
 // test seeds a district of its own whose night in progress was published and followed by the crew

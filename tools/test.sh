@@ -1,6 +1,7 @@
 #!/usr/bin/env bash
 # npm test: a throwaway PostgreSQL cluster and fake mail server, then every test:
-# lint and format check, libraries and API (Vitest, real database), web unit tests (ng test), browser tests (Playwright).
+# lint and format check, libraries and API (Vitest, real database) with the web build, web unit tests
+# (ng test) and type checks beside them, then the browser tests (Playwright).
 set -euo pipefail
 cd "$(dirname "$0")/.."
 source tools/lib.sh
@@ -27,18 +28,21 @@ tools/pg.sh stop "$TEST_DIR/pg"
 rm -rf "$TEST_DIR"
 mkdir -p "$TEST_DIR"
 
-# Lint (and the format check) run beside the cluster's start-up and the API build; the suites
-# start once they pass.
-{
-  echo "== Lint (eslint)" && npm run -s lint &&
-    echo "== Format (prettier --check)" && npm run -s format:check
-} > "$TEST_DIR/lint.log" 2>&1 &
+# Lint and the format check run beside each other, the cluster's start-up and the API build (each
+# takes one core); the suites start once both pass.
+{ echo "== Lint (eslint)" && npm run -s lint; } > "$TEST_DIR/lint.log" 2>&1 &
 lint=$!
 pids+=($lint)
+{ echo "== Format (prettier --check)" && npm run -s format:check; } > "$TEST_DIR/format.log" 2>&1 &
+format=$!
+pids+=($format)
 
 tools/pg.sh start "$TEST_DIR/pg" "$PGPORT" fast
 tools/pg.sh createdb "$PGPORT" nightyard_test
+# One database per browser-test worker (playwright.config.ts, e2e/ports.ts): nightyard_e2e, nightyard_e2e_2...
+export E2E_WORKERS=${E2E_WORKERS:-2}
 tools/pg.sh createdb "$PGPORT" nightyard_e2e
+for ((i = 2; i <= E2E_WORKERS; i++)); do tools/pg.sh createdb "$PGPORT" "nightyard_e2e_$i"; done
 
 node tools/build-api.mjs
 FAKE_SMTP_PORT=$SMTP_PORT FAKE_MAIL_HTTP_PORT=$MAIL_HTTP_PORT node dist/api/fake-mail.mjs &
@@ -50,35 +54,40 @@ export DATABASE_URL=postgres://postgres@127.0.0.1:$PGPORT/nightyard_test
 export E2E_DATABASE_URL=postgres://postgres@127.0.0.1:$PGPORT/nightyard_e2e
 export NG_CLI_ANALYTICS=false
 
-# The production web build the browser tests need runs beside the API tests: those mostly wait
-# on PostgreSQL (two files at a time, each worker on its own copy of the database).
-# The types of the API, the engine, the tools and the browser tests are checked after it (the
-# web app's are checked by its build).
-{ build_web_if_stale && node tools/initial-size.mjs && echo "== Types (tsc)" && npx tsc -p apps/api/tsconfig.json && npx tsc -p libs/scheduling/tsconfig.json \
-  && npx tsc -p tsconfig.checks.json; } > .test-data/web-build.log 2>&1 &
-web_build=$!
-pids+=($web_build)
+# Beside the API tests (two files at a time, each worker on its own copy of the database, often
+# waiting on PostgreSQL or on the processes they start): the production web build the browser
+# tests need, then the web unit tests, then the types of the API, the engine, the tools and the
+# browser tests (the web app's are checked by its build). The browser tests then have both cores.
+{
+  build_web_if_stale && node tools/initial-size.mjs &&
+    echo "== Web unit tests (ng test)" && npx ng test --watch=false &&
+    echo "== Types (tsc)" && npx tsc -p apps/api/tsconfig.json && npx tsc -p libs/scheduling/tsconfig.json &&
+    npx tsc -p tsconfig.checks.json
+} > "$TEST_DIR/web.log" 2>&1 &
+web=$!
+pids+=($web)
 
-if ! wait "$lint"; then
-  cat "$TEST_DIR/lint.log"
+lint_status=0
+wait "$lint" || lint_status=$?
+wait "$format" || lint_status=$((lint_status + $?))
+cat "$TEST_DIR/lint.log" "$TEST_DIR/format.log"
+if [ "$lint_status" -ne 0 ]; then
   echo "Lint or format check failed: fix the code (npm run lint, npm run format), see DEVELOPERS.md." >&2
   exit 1
 fi
-cat "$TEST_DIR/lint.log"
 
-echo "== Libraries and API (Vitest, PostgreSQL on 127.0.0.1:$PGPORT)"
+echo "== [${SECONDS}s] Libraries and API (Vitest, PostgreSQL on 127.0.0.1:$PGPORT)"
 npx vitest run
 
-echo "== Web unit tests (ng test)"
-npx ng test --watch=false
-
-echo "== Browser tests (Playwright, Debian's Chromium)"
-if ! wait "$web_build"; then
-  cat .test-data/web-build.log
-  echo "The web build or the type check failed." >&2
+echo "== [${SECONDS}s] Web build, web unit tests (ng test) and types (tsc), run beside Vitest"
+if ! wait "$web"; then
+  cat "$TEST_DIR/web.log"
+  echo "The web build, the web unit tests or the type check failed." >&2
   exit 1
 fi
-cat .test-data/web-build.log
+cat "$TEST_DIR/web.log"
+
+echo "== [${SECONDS}s] Browser tests (Playwright, Debian's Chromium, $E2E_WORKERS workers, each on servers of its own)"
 npx playwright test
 
-echo "All test suites passed."
+echo "All test suites passed (${SECONDS}s)."

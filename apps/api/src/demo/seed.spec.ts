@@ -26,11 +26,14 @@ const pool = createPool(TEST_DATABASE_URL);
 const db = createDb(pool);
 afterAll(() => pool.end());
 const tag = () => `seed-${randomUUID().slice(0, 8)}`;
+/** The main depot alone on Tuesday at 15:00: two tests read it and neither changes it, so it is seeded once. */
+let weekday: ReturnType<typeof seedDemo> | undefined;
+const weekdaySeed = () => (weekday ??= seedDemo(db, at('2026-12-01T15:00'), tag()));
 
 describe('demo seed', () => {
   it('writes the invented district with the night in progress and the next one published (weekday 15:00)', async () => {
     // Tuesday 2026-12-01, 15:00 in Chicago: buses came back from their morning runs, so Tuesday's night is under way.
-    const seeded = await seedDemo(db, at('2026-12-01T15:00'), tag());
+    const seeded = await weekdaySeed();
     expect(seeded.publishedNights).toEqual(['2026-12-01', '2026-12-02']);
     const people = await db.select().from(users).where(eq(users.organisationId, seeded.organisationId));
     const lead = people.find((u) => u.email === seeded.emails.lead);
@@ -86,7 +89,7 @@ describe('demo seed', () => {
 
 describe('demo seed: the district', () => {
   it('with the main depot alone (the default), every non-admin holds it', async () => {
-    const seeded = await seedDemo(db, at('2026-12-01T15:00'), tag());
+    const seeded = await weekdaySeed();
     expect(seeded.depots.map((d) => d.key)).toEqual(['main']);
     const held = await db
       .select({ email: users.email, depotId: userDepots.depotId })
