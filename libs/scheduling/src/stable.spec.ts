@@ -65,7 +65,7 @@ describe('stable re-plans', () => {
   });
 
   it('does not move unaffected buses to mend shortfall the plan being carried out already had', async () => {
-    // 100 buses on 25 chargers (seed 1) were 383 kWh short before the fault. The repair before
+    // 100 buses on 25 chargers (seed 1) are 350 kWh short before the fault. The repair before
     // this rule gave two of those short buses sessions by moving others (10 buses moved, one of
     // them left 30 kWh short); now only the failed charger's buses and what serves them move.
     const { before, r, onIt } = await faultAt22(100, 25, 1);
@@ -83,6 +83,10 @@ describe('stable re-plans', () => {
       const was = before.buses.find((x) => x.id === b.id)!;
       if (was.shortfallKwh === 0) expect(b.shortfallKwh).toBeLessThan(2);
     }
-    expect(r.replan.moved.buses.length).toBeLessThanOrEqual(onIt.size + 2);
+    // Beyond the failed charger's buses, at most one bus per charger that gives up time to them
+    // (the allowance: the buses on the failed charger plus one per freed charger).
+    const others = r.replan.moved.buses.filter((b) => !onIt.has(b));
+    const freed = new Set(before.sessions.filter((s) => after(s) && others.includes(s.bus)).map((s) => s.charger));
+    expect(others.length).toBeLessThanOrEqual(freed.size);
   });
 });
