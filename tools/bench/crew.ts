@@ -18,6 +18,7 @@ import {
 import { solveExact } from '../../libs/scheduling/src/exact.js';
 import { generateDepot } from '../../libs/scheduling/src/testing/generate-depot.js';
 import { checkPlan } from '../../libs/scheduling/src/testing/plan-checker.js';
+import { assignmentOfPlan as assignmentOf } from '../../libs/scheduling/src/testing/plan-assignment.js';
 
 const quick = process.argv.includes('--quick');
 const crewFor = (scenario: ScenarioInput, movesEvening: number, movesMorning: number) => ({
@@ -41,30 +42,6 @@ const parse = (input: ScenarioInput) => {
 const minutes = (s: { start: string; end: string }) => (Date.parse(s.end) - Date.parse(s.start)) / 60_000;
 const median = (xs: number[]) => xs.slice().sort((a, b) => a - b)[Math.floor(xs.length / 2)] ?? NaN;
 const pct = (x: number) => `${(x * 100).toFixed(2)} %`;
-
-/** A plan's sessions as an assignment of the exact model (one session per stay). */
-function assignmentOf(problem: ReturnType<typeof prepareProblem>, plan: Plan) {
-  const n = problem.stays.length;
-  const out = {
-    chargerOf: new Int32Array(n).fill(-1),
-    from: new Int32Array(n),
-    to: new Int32Array(n),
-    sequence: problem.chargers.map((): number[] => []),
-  };
-  const t0 = problem.slots[0]!.startMs;
-  const slotMs = problem.slots[0]!.endMs - t0;
-  for (const s of plan.sessions) {
-    const bus = problem.buses.find((b) => b.id === s.bus)!;
-    const from = Math.round((Date.parse(s.start) - t0) / slotMs);
-    const stay = bus.stays.find((st) => st.arriveSlot <= from && from < st.departSlot)!;
-    const c = problem.chargers.findIndex((ch) => ch.id === s.charger);
-    out.chargerOf[stay.id] = c;
-    out.from[stay.id] = from;
-    out.to[stay.id] = Math.round((Date.parse(s.end) - t0) / slotMs);
-    out.sequence[c]!.push(stay.id);
-  }
-  return out;
-}
 
 /** Buses whose sessions differ between two plans (from the cut-off on). */
 function movedBuses(before: Plan, after: Plan, fromMs: number): string[] {

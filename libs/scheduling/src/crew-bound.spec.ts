@@ -1,5 +1,4 @@
 import { describe, expect, it } from 'vitest';
-import type { Assignment } from './assignment.js';
 import { crewGaps, solveCrewBound } from './crew-bound.js';
 import { solveExact } from './exact.js';
 import { loadSolver } from './highs-solver.js';
@@ -9,6 +8,7 @@ import { prepareProblem, type Problem } from './problem.js';
 import { parseScenario, type ScenarioInput } from './scenario.js';
 import { generateDepot } from './testing/generate-depot.js';
 import { checkPlan } from './testing/plan-checker.js';
+import { assignmentOfPlan as assignmentOf } from './testing/plan-assignment.js';
 
 // The crew-aware lower bound (crew-bound.ts) and the plans on small depots with the yard crew,
 // both checked against the exact assignment MILP of exact.ts solved by HiGHS to its proven
@@ -32,29 +32,6 @@ function parsed(input: ScenarioInput) {
 
 function penalised(problem: Problem, plan: Plan): number {
   return plan.cost.total + problem.shortfallPenalty * plan.stats.shortfallKwh;
-}
-
-function assignmentOf(problem: Problem, plan: Plan): Assignment {
-  const n = problem.stays.length;
-  const out: Assignment = {
-    chargerOf: new Int32Array(n).fill(-1),
-    from: new Int32Array(n),
-    to: new Int32Array(n),
-    sequence: problem.chargers.map(() => []),
-  };
-  const t0 = problem.slots[0]!.startMs;
-  const slotMs = problem.slots[0]!.endMs - t0;
-  for (const s of plan.sessions) {
-    const bus = problem.buses.find((b) => b.id === s.bus)!;
-    const from = Math.round((Date.parse(s.start) - t0) / slotMs);
-    const stay = bus.stays.find((st) => st.arriveSlot <= from && from < st.departSlot)!;
-    const c = problem.chargers.findIndex((ch) => ch.id === s.charger);
-    out.chargerOf[stay.id] = c;
-    out.from[stay.id] = from;
-    out.to[stay.id] = Math.round((Date.parse(s.end) - t0) / slotMs);
-    out.sequence[c]!.push(stay.id);
-  }
-  return out;
 }
 
 describe('crew-aware lower bound', () => {

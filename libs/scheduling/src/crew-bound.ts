@@ -1,4 +1,4 @@
-import type { Solver } from './highs-solver.js';
+import { createMilp, type Solver } from './highs-solver.js';
 import { buildChargeModel, energyNeedCap, powerFrom } from './lp-model.js';
 import type { Problem } from './problem.js';
 
@@ -242,39 +242,12 @@ export function solveCrewBound(problem: Problem, solver: Solver, options: CrewBo
     });
   }
 
-  const highs = solver.highs;
-  const inf = (v: number) => (v === Infinity ? highs.infinity : v === -Infinity ? -highs.infinity : v);
-  const numCols = cost.length;
-  const numRows = rowLower.length;
-  const milp = highs.createModel({
-    numCols,
-    numRows,
-    sense: highs.constants.objectiveSense.minimize,
-    offset: lp.offset ?? 0,
-    colCost: Float64Array.from(cost),
-    colLower: Float64Array.from(lower.map(inf)),
-    colUpper: Float64Array.from(upper.map(inf)),
-    rowLower: Float64Array.from(rowLower.map(inf)),
-    rowUpper: Float64Array.from(rowUpper.map(inf)),
-    matrix: {
-      format: 'csr',
-      numRows,
-      numCols,
-      starts: Int32Array.from(starts),
-      indices: Int32Array.from(indices),
-      values: Float64Array.from(values),
-    },
-    integrality: Int32Array.from(integrality),
-  } as never) as unknown as BoundModel;
+  const milp = createMilp(
+    solver,
+    { offset: lp.offset, cost, lower, upper, rowLower, rowUpper, starts, indices, values, integrality },
+    { timeLimitMs: options.timeLimitMs ?? 5000, maxNodes: options.maxNodes ?? 200 },
+  );
   try {
-    milp.options.set({
-      output_flag: false,
-      time_limit: (options.timeLimitMs ?? 5000) / 1000,
-      mip_max_nodes: options.maxNodes ?? 200,
-      mip_rel_gap: 1e-6,
-      mip_abs_gap: 1e-6,
-      random_seed: 1,
-    });
     const run = milp.run();
     const code = run.modelStatus as number;
     const info = (name: string) => {
@@ -322,13 +295,4 @@ export function solveCrewBound(problem: Problem, solver: Solver, options: CrewBo
   } finally {
     milp.dispose();
   }
-}
-
-interface BoundModel {
-  options: { set(values: Record<string, unknown>): unknown };
-  info: { get(name: string): number | bigint };
-  run(): { modelStatus: number };
-  getObjectiveValue(): number;
-  getSolution(): { colValue: Float64Array };
-  dispose(): void;
 }

@@ -1,5 +1,4 @@
 import { describe, expect, it } from 'vitest';
-import type { Assignment } from './assignment.js';
 import { solveExact } from './exact.js';
 import { loadSolver } from './highs-solver.js';
 import { planScenario, type Plan, type PlanOptions } from './plan.js';
@@ -7,6 +6,7 @@ import { prepareProblem } from './problem.js';
 import { parseScenario, type ScenarioInput } from './scenario.js';
 import { generateDepot } from './testing/generate-depot.js';
 import { checkPlan } from './testing/plan-checker.js';
+import { assignmentOfPlan as assignmentOf } from './testing/plan-assignment.js';
 
 // The plans against the exact assignment MILP (exact.ts, HiGHS) on small depots short of
 // chargers: two or three chargers for six to twelve buses, with and without the yard crew.
@@ -29,30 +29,6 @@ function parsed(input: ScenarioInput) {
 /** Cost plus the shortfall penalty: what the engine and the MILP both minimise. */
 function penalised(input: ScenarioInput, plan: Plan): number {
   return plan.cost.total + prepareProblem(parsed(input)).shortfallPenalty * plan.stats.shortfallKwh;
-}
-
-/** The plan's sessions as an assignment of the exact model (one session per stay here). */
-function assignmentOf(problem: ReturnType<typeof prepareProblem>, plan: Plan): Assignment {
-  const n = problem.stays.length;
-  const out: Assignment = {
-    chargerOf: new Int32Array(n).fill(-1),
-    from: new Int32Array(n),
-    to: new Int32Array(n),
-    sequence: problem.chargers.map(() => []),
-  };
-  const slotMs = problem.slots[0]!.endMs - problem.slots[0]!.startMs;
-  const t0 = problem.slots[0]!.startMs;
-  for (const s of plan.sessions) {
-    const bus = problem.buses.find((b) => b.id === s.bus)!;
-    const from = Math.round((Date.parse(s.start) - t0) / slotMs);
-    const stay = bus.stays.find((st) => st.arriveSlot <= from && from < st.departSlot)!;
-    const c = problem.chargers.findIndex((ch) => ch.id === s.charger);
-    out.chargerOf[stay.id] = c;
-    out.from[stay.id] = from;
-    out.to[stay.id] = Math.round((Date.parse(s.end) - t0) / slotMs);
-    out.sequence[c]!.push(stay.id);
-  }
-  return out;
 }
 
 async function planOf(input: ScenarioInput, options: PlanOptions = {}) {

@@ -1,7 +1,7 @@
 import type { Assignment } from './assignment.js';
 import { crewGaps } from './crew-bound.js';
 import { endIsFree, minWindow, startIsFree } from './crew.js';
-import type { Solver } from './highs-solver.js';
+import { createMilp, type Solver } from './highs-solver.js';
 import { buildChargeModel, energyNeedCap, type ChargeModel } from './lp-model.js';
 import { emptyPlugMap, type Problem } from './problem.js';
 
@@ -355,39 +355,12 @@ export function solveExact(problem: Problem, solver: Solver, options: ExactOptio
     }
   }
 
-  const highs = solver.highs;
-  const inf = (v: number) => (v === Infinity ? highs.infinity : v === -Infinity ? -highs.infinity : v);
-  const numCols = cost.length;
-  const numRows = rowLower.length;
-  const milp = highs.createModel({
-    numCols,
-    numRows,
-    sense: highs.constants.objectiveSense.minimize,
-    offset: lp.offset ?? 0,
-    colCost: Float64Array.from(cost),
-    colLower: Float64Array.from(lower.map(inf)),
-    colUpper: Float64Array.from(upper.map(inf)),
-    rowLower: Float64Array.from(rowLower.map(inf)),
-    rowUpper: Float64Array.from(rowUpper.map(inf)),
-    matrix: {
-      format: 'csr',
-      numRows,
-      numCols,
-      starts: Int32Array.from(starts),
-      indices: Int32Array.from(indices),
-      values: Float64Array.from(values),
-    },
-    integrality: Int32Array.from(integrality),
-  } as never) as unknown as MilpModel;
+  const milp = createMilp(
+    solver,
+    { offset: lp.offset, cost, lower, upper, rowLower, rowUpper, starts, indices, values, integrality },
+    { timeLimitMs: options.timeLimitMs ?? 3000, maxNodes: options.maxNodes ?? 2000 },
+  );
   try {
-    milp.options.set({
-      output_flag: false,
-      time_limit: (options.timeLimitMs ?? 3000) / 1000,
-      mip_max_nodes: options.maxNodes ?? 2000,
-      mip_rel_gap: 1e-6,
-      mip_abs_gap: 1e-6,
-      random_seed: 1,
-    });
     if (options.start) {
       // Only the binaries: HiGHS completes the continuous part by solving the LP.
       const start = options.start;
@@ -494,13 +467,4 @@ export function solveExact(problem: Problem, solver: Solver, options: ExactOptio
   } finally {
     milp.dispose();
   }
-}
-
-interface MilpModel {
-  options: { set(values: Record<string, unknown>): unknown };
-  info: { get(name: string): number | bigint };
-  run(): { modelStatus: number };
-  getSolution(): { colValue: Float64Array };
-  setSolution(solution: unknown): unknown;
-  dispose(): void;
 }

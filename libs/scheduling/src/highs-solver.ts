@@ -189,6 +189,75 @@ export class Solver {
   }
 }
 
+/** The parts of a mixed-integer program built row by row (CSR rows, bounds may be infinite). */
+export interface MilpParts {
+  offset?: number;
+  cost: number[];
+  lower: number[];
+  upper: number[];
+  rowLower: number[];
+  rowUpper: number[];
+  starts: number[];
+  indices: number[];
+  values: number[];
+  integrality: number[];
+}
+
+/** A HiGHS MIP model as the engine uses it: dispose of it when done (wasm memory). */
+export interface MilpModel {
+  options: { set(values: Record<string, unknown>): unknown };
+  info: { get(name: string): number | bigint };
+  run(): { modelStatus: number };
+  getObjectiveValue(): number;
+  getSolution(): { colValue: Float64Array };
+  setSolution(solution: unknown): unknown;
+  dispose(): void;
+}
+
+/**
+ * Creates a minimising MIP in HiGHS with the engine's settings: single-threaded, stopped on a node
+ * limit (so the same model gives the same answer), the time limit only a safety net.
+ */
+export function createMilp(
+  solver: Solver,
+  parts: MilpParts,
+  limits: { timeLimitMs: number; maxNodes: number },
+): MilpModel {
+  const highs = solver.highs;
+  const inf = (v: number) => (v === Infinity ? highs.infinity : v === -Infinity ? -highs.infinity : v);
+  const numCols = parts.cost.length;
+  const numRows = parts.rowLower.length;
+  const milp = highs.createModel({
+    numCols,
+    numRows,
+    sense: highs.constants.objectiveSense.minimize,
+    offset: parts.offset ?? 0,
+    colCost: Float64Array.from(parts.cost),
+    colLower: Float64Array.from(parts.lower.map(inf)),
+    colUpper: Float64Array.from(parts.upper.map(inf)),
+    rowLower: Float64Array.from(parts.rowLower.map(inf)),
+    rowUpper: Float64Array.from(parts.rowUpper.map(inf)),
+    matrix: {
+      format: 'csr',
+      numRows,
+      numCols,
+      starts: Int32Array.from(parts.starts),
+      indices: Int32Array.from(parts.indices),
+      values: Float64Array.from(parts.values),
+    },
+    integrality: Int32Array.from(parts.integrality),
+  } as never) as unknown as MilpModel;
+  milp.options.set({
+    output_flag: false,
+    time_limit: limits.timeLimitMs / 1000,
+    mip_max_nodes: limits.maxNodes,
+    mip_rel_gap: 1e-6,
+    mip_abs_gap: 1e-6,
+    random_seed: 1,
+  });
+  return milp;
+}
+
 /** Builds an Lp from rows given as (indices, values) lists. */
 export function lpFromRows(
   cols: { cost: number; lower: number; upper: number }[],

@@ -15,6 +15,32 @@ const as = (u: TestUser) => ({ Authorization: `Bearer ${u.token}` });
 type Line = { name: string; quantity: number; amount: number; note?: string };
 const line = (lines: Line[], name: string) => lines.find((l) => l.name === name)!;
 
+/** A depot of its own on an 80 % / 11-month demand ratchet, with November's meter readings. */
+async function ratchetDepot(name: string, november: { startsAt: Date; minutes: number; kwh: number }[]) {
+  const { depot, ratePlan } = await createDepot(app.db, organisationId, name);
+  await app.db
+    .update(ratePlans)
+    .set({ definition: { ...ratePlan.definition, demandRatchet: { percent: 80, months: 11 } } })
+    .where(eq(ratePlans.id, ratePlan.id));
+  const [imp] = await app.db
+    .insert(meterImports)
+    .values({
+      organisationId,
+      depotId: depot.id,
+      fileName: 'nov.csv',
+      format: 'csv',
+      billingPeriodStart: '2026-11-01',
+      intervals: november.length,
+      duplicates: 0,
+      gaps: [],
+    })
+    .returning();
+  await app.db
+    .insert(meterIntervals)
+    .values(november.map((r) => ({ organisationId, depotId: depot.id, importId: imp!.id, ...r })));
+  return depot;
+}
+
 beforeAll(async () => {
   const org = await createOrganisation(app, { fin: ['finance'] });
   fin = org.users.fin!;
@@ -77,32 +103,9 @@ describe('peaks so far and the bill', () => {
   });
 
   it("a demand ratchet bills 80 % of November's metered 400 kW in December, and says where the figure comes from", async () => {
-    const { depot, ratePlan } = await createDepot(app.db, organisationId, 'Peaks depot C');
-    await app.db
-      .update(ratePlans)
-      .set({ definition: { ...ratePlan.definition, demandRatchet: { percent: 80, months: 11 } } })
-      .where(eq(ratePlans.id, ratePlan.id));
-    const [imp] = await app.db
-      .insert(meterImports)
-      .values({
-        organisationId,
-        depotId: depot.id,
-        fileName: 'nov.csv',
-        format: 'csv',
-        billingPeriodStart: '2026-11-01',
-        intervals: 1,
-        duplicates: 0,
-        gaps: [],
-      })
-      .returning();
-    await app.db.insert(meterIntervals).values({
-      organisationId,
-      depotId: depot.id,
-      startsAt: new Date('2026-11-10T14:00:00-06:00'),
-      minutes: 15,
-      kwh: 100,
-      importId: imp!.id,
-    });
+    const depot = await ratchetDepot('Peaks depot C', [
+      { startsAt: new Date('2026-11-10T14:00:00-06:00'), minutes: 15, kwh: 100 },
+    ]);
     const m = (
       await app
         .request()
@@ -163,34 +166,14 @@ describe('peaks so far and the bill', () => {
   });
 
   it('a demand ratchet reads 5-minute readings of earlier months as 15-minute demand too', async () => {
-    const { depot, ratePlan } = await createDepot(app.db, organisationId, 'Peaks depot E');
-    await app.db
-      .update(ratePlans)
-      .set({ definition: { ...ratePlan.definition, demandRatchet: { percent: 80, months: 11 } } })
-      .where(eq(ratePlans.id, ratePlan.id));
-    const [imp] = await app.db
-      .insert(meterImports)
-      .values({
-        organisationId,
-        depotId: depot.id,
-        fileName: 'nov.csv',
-        format: 'csv',
-        billingPeriodStart: '2026-11-01',
-        intervals: 3,
-        duplicates: 0,
-        gaps: [],
-      })
-      .returning();
     // 20 + 40 + 40 kWh in the quarter hour from 14:00: 400 kW of 15-minute demand (a 40 kWh
     // 5-minute reading alone would be 480 kW).
-    await app.db.insert(meterIntervals).values(
+    const depot = await ratchetDepot(
+      'Peaks depot E',
       [20, 40, 40].map((kwh, k) => ({
-        organisationId,
-        depotId: depot.id,
         startsAt: new Date(Date.parse('2026-11-10T14:00:00-06:00') + k * 5 * 60_000),
         minutes: 5,
         kwh,
-        importId: imp!.id,
       })),
     );
     const m = (
