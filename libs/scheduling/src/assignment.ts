@@ -129,7 +129,7 @@ export function layoutCharger(problem: Problem, hints: AssignmentHints, assignme
 
 /** How badly a charger's windows serve its stays: energy that cannot fit, then lower-bound
  *  charging left outside the windows. */
-function layoutScore(problem: Problem, hints: AssignmentHints, assignment: Assignment, charger: number): number {
+export function layoutScore(problem: Problem, hints: AssignmentHints, assignment: Assignment, charger: number): number {
   const dt = problem.slotHours;
   let score = 0;
   for (const id of assignment.sequence[charger]!) {
@@ -144,7 +144,7 @@ function layoutScore(problem: Problem, hints: AssignmentHints, assignment: Assig
   return score;
 }
 
-function permutations(xs: number[]): number[][] {
+export function permutations(xs: number[]): number[][] {
   if (xs.length <= 1) return [xs.slice()];
   const out: number[][] = [];
   xs.forEach((x, i) => {

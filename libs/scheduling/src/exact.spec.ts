@@ -71,6 +71,12 @@ describe('exact assignment MILP (HiGHS) against the plans', () => {
     // [buses, chargers, seed, best known penalised cost, proven optimal?]
     [6, 2, 1, 334.2470355731224, true],
     [7, 2, 2, 590.1551383399209, false],
+    // Missed by 1.65 % and 2.36 % before the crew's-night layouts (crew-night.ts `arrangeNight`)
+    // and the hand-over polish. 8 on 2: proven by `solveExact` (761 nodes, 37 s at load 2.5).
+    // 10 on 2: the MILP's best in 100 s (bound 1,031.11 there), equal to the crew-aware bound
+    // at its proven optimum (crew-bound.ts, one session per stay: the MILP's own plan space).
+    [8, 2, 8, 650.3608695652172, true],
+    [10, 2, 9, 1032.3883399209485, true],
   ] as const;
   it.each(withCrew)(
     'with the crew, %i buses on %i chargers (seed %i): the plan at the exact optimum',
@@ -96,7 +102,7 @@ describe('exact assignment MILP (HiGHS) against the plans', () => {
       const off = await planOf(input, { lns: false });
       expect(on.stats.shortfallKwh).toBe(0);
       expect(penalised(input, on)).toBeLessThanOrEqual(penalised(input, off) + 1e-6);
-      expect(on.gap).toBeLessThan(0.03);
+      expect(on.gap).toBeLessThan(0.02);
       expect(on.stats.crewBound).not.toBeNull();
     }
   }, 120_000);

@@ -4,7 +4,7 @@ import { countCrewMoves, endIsFree, fitCrew, startIsFree, type Move } from './cr
 import { keptAssignment, stableRepair } from './stable.js';
 import { describeShortfall, explainShortfalls, soloShortfall, type ShortReason, type ShortWith } from './explain.js';
 import { solveCrewBound } from './crew-bound.js';
-import { crewNightCandidates, hintsFrom } from './crew-night.js';
+import { crewNightCandidates, hintsFrom, polishHandovers } from './crew-night.js';
 import { exactSize, solveExact } from './exact.js';
 import { loadSolver, type LpResult, type Solver } from './highs-solver.js';
 import { AssignedModel, LARGE_STAYS, localSearch, type SearchResult } from './local-search.js';
@@ -154,7 +154,7 @@ export const LARGE_CREW_STAYS = 150;
 export const EXACT_LIMITS = { binaries: 6000, nodes: 30, ms: 3000 };
 
 /** The crew-aware bound (crew-bound.ts): depots up to this many stays, its node budget and time cap. */
-export const CREW_BOUND_LIMITS = { stays: 16, nodes: 30, ms: 15_000, bothPaths: 16 };
+export const CREW_BOUND_LIMITS = { stays: 16, nodes: 30, ms: 15_000, bothPaths: 16, polish: 60 };
 
 const round = (v: number, digits = 6) => {
   const f = 10 ** digits;
@@ -468,6 +468,21 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
           };
           live.update(pathSearch.assignment, all);
           pathSearch.result = live.solve();
+        }
+      }
+      // With the crew's night known: hand-overs moved a slot or two, alone or several together.
+      if (crewHints && pathSearch.result.objective > target && performance.now() < deadline) {
+        const polished = polishHandovers(
+          problem,
+          live,
+          pathSearch.assignment,
+          pathSearch.result,
+          crewHints.energy,
+          CREW_BOUND_LIMITS.polish,
+        );
+        if (better({ ...pathSearch, ...polished }, pathSearch)) {
+          pathSearch = { ...pathSearch, assignment: polished.assignment, result: polished.result };
+          pathConstruction += '+polish';
         }
       }
       if (!bestPath || better(pathSearch, bestPath.search))
