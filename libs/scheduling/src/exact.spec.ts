@@ -101,7 +101,9 @@ describe('exact assignment MILP (HiGHS) against the plans', () => {
       const on = await planOf(input);
       const off = await planOf(input, { lns: false });
       expect(on.stats.shortfallKwh).toBe(0);
-      expect(penalised(input, on)).toBeLessThanOrEqual(penalised(input, off) + 1e-6);
+      // Never worse without the whole-sequence search, up to the LP's tie-break (1e-7 of the
+      // energy cost: two paths to the same windows can end that far apart).
+      expect(penalised(input, on)).toBeLessThanOrEqual(penalised(input, off) * (1 + 1e-6));
       expect(on.gap).toBeLessThan(0.02);
       expect(on.stats.crewBound).not.toBeNull();
     }
