@@ -107,8 +107,9 @@ console.log(
 const gaps: number[] = [];
 const gapsNoLns: number[] = [];
 // Per depot, with the crew: the plan's distance to the exact optimum as far as it is proven
-// (to the MILP's optimum where HiGHS proves one, else the plan's own gap to its lower bound,
-// which the optimum cannot be below).
+// (to the MILP's optimum where HiGHS proves one, else the plan's gap to the best proven bound:
+// its own lower bound, the MILP's dual bound, the crew-aware bound without a node limit; the
+// optimum cannot be below any of them).
 const provenGaps: number[] = [];
 const solveTimes: number[] = [];
 const small: [number, number, number][] = quick
