@@ -7,7 +7,7 @@ import {
   expectAccessible,
   faultCharger,
   pageAtApiTime,
-  signInAs,
+  signInByApi,
   type District,
   expect,
   test,
@@ -21,12 +21,12 @@ test.beforeAll(async () => {
   district = await districtAt(AT.wednesdayAfterMidnight, { stations: true });
 });
 
-/** A page of its own (own sign-in) at the API's time. */
+/** A page of its own (own session) at the API's time. */
 async function openAs(browser: Browser, email: string, path: string): Promise<Page> {
   const context = await browser.newContext();
   const page = await context.newPage();
   await pageAtApiTime(page);
-  await signInAs(page, email);
+  await signInByApi(page, email);
   await page.goto(path);
   return page;
 }

@@ -123,6 +123,17 @@ export async function signInAs(page: Page, email: string, password = DEMO_PASSWO
 }
 
 /**
+ * Signs in as the sign-in page does (POST /api/auth/login) but without it: the page's browser gets
+ * the refresh cookie, so the next page it opens restores the session as after a reload. For journeys
+ * that are not about signing in (sign-in.spec.ts and session.spec.ts walk the sign-in page); it
+ * spares loading the app twice, once for the sign-in page and once for the page wanted.
+ */
+export async function signInByApi(page: Page, email: string, password = DEMO_PASSWORD): Promise<void> {
+  const res = await page.request.post('/api/auth/login', { data: { email, password } });
+  if (!res.ok()) throw new Error(`Signing in as ${email} answered ${res.status()}: ${await res.text()}`);
+}
+
+/**
  * The axe-core that @axe-core/playwright runs (minified), put into a document only when it is not
  * there yet: the app is one page, so a journey's scans after the first reuse it. Sending and
  * compiling the 1.4 MB unminified source twice per scan (page, then a blank page) cost seconds.
