@@ -76,6 +76,8 @@ export default defineConfig({
           NIGHTYARD_OCPP_URL: `ws://127.0.0.1:${api}/ocpp`,
           SIMULATOR_HEALTH_PORT: String(simulator),
           SIMULATOR_STATIONS: 'none',
+          // A charger's next report (live-faults.spec.ts waits for one) comes within seconds.
+          SIMULATOR_METER_SECONDS: '3',
         },
       },
     ];

@@ -1,4 +1,4 @@
-import { AT, districtAt, expectAccessible, pageAtApiTime, signInAs, type District, expect, test } from './support';
+import { AT, districtAt, expectAccessible, pageAtApiTime, signInByApi, type District, expect, test } from './support';
 
 // The charger simulator (see playwright.config.ts) takes this file's district's ten chargers: they
 // connect over OCPP-J, set their clocks from the API's answers and report their state. Just after midnight on a Wednesday.
@@ -11,7 +11,7 @@ test.beforeEach(async ({ page }) => {
 });
 
 test('the Depot shows the live state each charger reports over OCPP', async ({ page }) => {
-  await signInAs(page, district.emails.facilities);
+  await signInByApi(page, district.emails.facilities);
   await page.goto('/depot');
   await expect(page.getByRole('heading', { level: 1, name: 'Depot' })).toBeVisible();
   // Every simulated charger reports; reload until all ten have been seen.
@@ -29,7 +29,7 @@ test('the Depot shows the live state each charger reports over OCPP', async ({ p
 });
 
 test('the published plan downloads as OCPP charging profiles', async ({ page }) => {
-  await signInAs(page, district.emails.supervisor);
+  await signInByApi(page, district.emails.supervisor);
   // Tuesday's night, in force now.
   expect(district.publishedNights[0]).toBe('2026-12-08');
   await page.goto(`/plans?date=${district.publishedNights[0]}`);

@@ -1,5 +1,15 @@
 import { type Page } from '@playwright/test';
-import { AT, districtAt, expectAccessible, pageAtApiTime, signInAs, type District, expect, test } from './support';
+import {
+  AT,
+  districtAt,
+  expectAccessible,
+  pageAtApiTime,
+  signInAs,
+  signInByApi,
+  type District,
+  expect,
+  test,
+} from './support';
 
 // Several depots per organisation: the depot switcher in the top bar (remembered per person), every
 // section on the chosen depot, and the District overview for administrators and finance. Each test
@@ -75,7 +85,7 @@ test('a switch asks before it throws away unsaved runs, and stays when told to',
   const main = depotNamed(district, 'main');
   const kestrel = depotNamed(district, 'kestrel');
   await pageAtApiTime(page);
-  await signInAs(page, district.emails.supervisor);
+  await signInByApi(page, district.emails.supervisor);
   await page.goto('/fleet/service-day');
   await expect(page.getByRole('heading', { level: 1, name: 'Fleet' })).toBeVisible();
   await expect(switcher(page)).toHaveAccessibleName(`Depot: ${kestrel.name}. Switch depot`);

@@ -7,7 +7,7 @@ import {
   expectAccessible,
   faultCharger,
   pageAtApiTime,
-  signInAs,
+  signInByApi,
   type District,
   expect,
   test,
@@ -21,12 +21,12 @@ test.beforeAll(async () => {
   district = await districtAt(AT.wednesdayAfterMidnight, { stations: true });
 });
 
-/** A page of its own (own sign-in) at the API's time. */
+/** A page of its own (own session) at the API's time. */
 async function openAs(browser: Browser, email: string, path: string): Promise<Page> {
   const context = await browser.newContext();
   const page = await context.newPage();
   await pageAtApiTime(page);
-  await signInAs(page, email);
+  await signInByApi(page, email);
   await page.goto(path);
   return page;
 }
@@ -65,9 +65,10 @@ test('a fault shows on Tonight, Yard and Depot within 5 s, stays while the charg
   await expect(yard.locator(`ny-charger-card[data-charger="${label}"] .live`)).toContainText('Faulted');
   await expectAccessible(tonight);
 
-  // The simulator keeps reporting (meter values every 15 s): after its next report the fault still stands.
+  // The simulator keeps reporting (meter values every 3 s here, playwright.config.ts): after its next
+  // report the fault still stands.
   const reported = await chargerReports(label);
-  await expect.poll(() => chargerReports(label), { timeout: 30_000, intervals: [1000] }).toBeGreaterThan(reported);
+  await expect.poll(() => chargerReports(label), { timeout: 15_000, intervals: [250] }).toBeGreaterThan(reported);
   for (const page of [tonight, depot, yard]) await expect(fault(page, label)).toBeVisible();
 
   await clearCharger(label);

@@ -1,5 +1,5 @@
 import { type Page } from '@playwright/test';
-import { AT, districtAt, expectAccessible, pageAtApiTime, signInAs, expect, test } from './support';
+import { AT, districtAt, expectAccessible, pageAtApiTime, signInAs, signInByApi, expect, test } from './support';
 
 // The office screens at a desk (1366 px) and on a phone (390 px): the plan review, the depot and
 // fleet forms, the rates breadcrumb and the sign-in page. Each test seeds a district of its own on
@@ -30,7 +30,7 @@ test('the plan review reads at a desk and on a phone', async ({ page }) => {
   const district = await districtAt(AT.weekdayAfternoon);
   await pageAtApiTime(page);
   await page.setViewportSize(DESK);
-  await signInAs(page, district.emails.supervisor);
+  await signInByApi(page, district.emails.supervisor);
   await page.goto('/plans');
   await expect(page.getByRole('heading', { level: 1, name: 'Plans' })).toBeVisible();
   const figures = page.getByRole('list', { name: 'Plan figures' });
@@ -140,7 +140,7 @@ test('the rate plan breadcrumb wraps on a phone', async ({ page }) => {
   const district = await districtAt(AT.weekdayAfternoon);
   await pageAtApiTime(page);
   await page.setViewportSize(PHONE);
-  await signInAs(page, district.emails.facilities);
+  await signInByApi(page, district.emails.facilities);
   for (const open of [
     () => page.goto('/rates/new'),
     async () => {

@@ -1,4 +1,14 @@
-import { AT, DEMO_PASSWORD, districtAt, expectAccessible, pageAtApiTime, signInAs, expect, test, API } from './support';
+import {
+  AT,
+  DEMO_PASSWORD,
+  districtAt,
+  expectAccessible,
+  pageAtApiTime,
+  signInByApi,
+  expect,
+  test,
+  API,
+} from './support';
 
 // A session that really ends (here: the refresh cookie's 14 days are over on the API's clock) sends
 // the person to sign in and back, with what they had typed and not yet saved still in the form.
@@ -6,7 +16,7 @@ test('an expired session: sign in again and the unsaved input is still there', a
   test.setTimeout(90_000);
   const district = await districtAt(AT.weekdayAfternoon);
   await pageAtApiTime(page);
-  await signInAs(page, district.emails.facilities);
+  await signInByApi(page, district.emails.facilities);
   await page.goto('/depot');
   await page.getByRole('button', { name: 'Edit site' }).click();
   const limit = page.getByLabel('Service limit');

@@ -82,8 +82,11 @@ test('a yard user sees the next step, confirms it, reports a charger out of serv
   const target = await chargerWithLaterSession(page);
   const bar = card(page, target.charger).locator(`.bar[data-session="${target.bus}"]`);
   await expect(bar.first()).toBeAttached();
+  // The report is held until the progress has been seen, then let through.
+  let letThrough!: () => void;
+  const seen = new Promise<void>((r) => (letThrough = r));
   await page.route('**/tonight/reports', async (route) => {
-    await new Promise((r) => setTimeout(r, 800)); // long enough to see the progress
+    await seen;
     await route.continue();
   });
 
@@ -96,6 +99,7 @@ test('a yard user sees the next step, confirms it, reports a charger out of serv
   await dialog.getByRole('button', { name: 'Send report' }).click();
 
   await expect(dialog.getByText('Re-planning the rest of the night and publishing it…')).toBeVisible();
+  letThrough();
   await expect(dialog.getByText(/^Version \d+ is published$/)).toBeVisible({ timeout: 15_000 });
   await expect(dialog.getByText('What moved')).toBeVisible();
   await dialog.getByRole('button', { name: 'See the new timeline' }).click();

@@ -2,8 +2,13 @@
 // central system, accepts charging profiles and reports meter values that follow them, so the
 // demo shows live chargers. `npm start` runs it for the demo depot.
 //   NIGHTYARD_OCPP_URL (default ws://127.0.0.1:3000/ocpp)
+//   SIMULATOR_METER_SECONDS: how often each charger reports its meter values (default 15; the
+//   browser tests use less, so waiting for a charger's next report takes seconds, not a quarter minute)
 import { DEMO_CHARGER_PASSWORD, demoChargerIdentity, demoChargers } from '@nightyard/demo';
 import { SimulatedStation } from '../apps/api/src/ocpp/simulated-station';
+
+const meterSeconds = Number(process.env.SIMULATOR_METER_SECONDS ?? 15);
+if (!(meterSeconds >= 1)) throw new Error('SIMULATOR_METER_SECONDS: give a number of seconds, at least 1');
 
 /** The demo depot's chargers (of a tagged test district, with a tag), as simulated stations. */
 function demoStations(url: string, tag?: string): SimulatedStation[] {
@@ -15,7 +20,7 @@ function demoStations(url: string, tag?: string): SimulatedStation[] {
         password: DEMO_CHARGER_PASSWORD,
         // The shared-cabinet dispensers speak OCPP 2.0.1; the others 1.6.
         protocol: c.cabinet ? 'ocpp2.0.1' : 'ocpp1.6',
-        meterIntervalMs: 15_000 + i * 250,
+        meterIntervalMs: meterSeconds * 1000 + i * 250,
       }),
   );
 }

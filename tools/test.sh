@@ -28,8 +28,8 @@ tools/pg.sh stop "$TEST_DIR/pg"
 rm -rf "$TEST_DIR"
 mkdir -p "$TEST_DIR"
 
-# Lint and the format check run beside each other, the cluster's start-up and the API build (each
-# takes one core); the suites start once both pass.
+# Lint and the format check run beside each other, the cluster's start-up, the API build and then
+# the suites (each takes one core); a failure of either stops the run as soon as it is known.
 { echo "== Lint (eslint)" && npm run -s lint; } > "$TEST_DIR/lint.log" 2>&1 &
 lint=$!
 pids+=($lint)
@@ -67,17 +67,25 @@ export NG_CLI_ANALYTICS=false
 web=$!
 pids+=($web)
 
+# Vitest is the longest phase before the browser tests: it starts at once rather than after lint and
+# the format check (about half a minute), which then print their result after it.
+echo "== [${SECONDS}s] Libraries and API (Vitest, PostgreSQL on 127.0.0.1:$PGPORT)"
+node_modules/.bin/vitest run &
+vitest=$!
+pids+=($vitest)
+
 lint_status=0
 wait "$lint" || lint_status=$?
 wait "$format" || lint_status=$((lint_status + $?))
-cat "$TEST_DIR/lint.log" "$TEST_DIR/format.log"
 if [ "$lint_status" -ne 0 ]; then
+  kill "$vitest" 2>/dev/null || true
+  wait "$vitest" 2>/dev/null || true
+  cat "$TEST_DIR/lint.log" "$TEST_DIR/format.log"
   echo "Lint or format check failed: fix the code (npm run lint, npm run format), see DEVELOPERS.md." >&2
   exit 1
 fi
-
-echo "== [${SECONDS}s] Libraries and API (Vitest, PostgreSQL on 127.0.0.1:$PGPORT)"
-npx vitest run
+wait "$vitest"
+cat "$TEST_DIR/lint.log" "$TEST_DIR/format.log"
 
 echo "== [${SECONDS}s] Web build, web unit tests (ng test) and types (tsc), run beside Vitest"
 if ! wait "$web"; then

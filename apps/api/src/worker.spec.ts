@@ -23,7 +23,8 @@ let depotId: string;
 
 beforeAll(async () => {
   queue = await startJobQueue({ databaseUrl: TEST_DATABASE_URL, log: pino({ level: 'silent' }) });
-  worker = spawn('node_modules/.bin/tsx', ['apps/api/src/worker.ts'], {
+  // node with tsx as its loader (what the tsx command starts), without the tsx command's own process.
+  worker = spawn(process.execPath, ['--import', 'tsx', 'apps/api/src/worker.ts'], {
     env: { ...process.env, DATABASE_URL: TEST_DATABASE_URL, LOG_LEVEL: 'warn' },
     stdio: 'ignore',
   });

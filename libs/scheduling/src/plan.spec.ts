@@ -328,9 +328,10 @@ describe('tariff in the plan', () => {
 describe('npm run plan', () => {
   const cli = (file: string) =>
     new Promise<{ code: number; stdout: string; stderr: string }>((resolve) => {
+      // node with tsx as its loader, as the tsx command runs it, without npx and tsx's own process first.
       execFile(
-        'npx',
-        ['tsx', new URL('./cli/plan.ts', import.meta.url).pathname, file],
+        process.execPath,
+        ['--import', 'tsx', new URL('./cli/plan.ts', import.meta.url).pathname, file],
         { timeout: 60_000 },
         (error, stdout, stderr) =>
           resolve({ code: error ? (typeof error.code === 'number' ? error.code : 1) : 0, stdout, stderr }),

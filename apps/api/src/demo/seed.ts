@@ -1,6 +1,6 @@
 import { DateTime } from 'luxon';
 import { eq, sql } from 'drizzle-orm';
-import { parseScenario } from '@nightyard/scheduling';
+import { parseScenario, type Plan, type Scenario } from '@nightyard/scheduling';
 import { runInPool } from '../workers/pool';
 import { buildNightScenario } from '../plans/night-scenario';
 import type { Db } from '../db/client';
@@ -82,8 +82,7 @@ export async function seedDemo(
   tag?: string,
   options: { depots?: DemoDepots } = {},
 ): Promise<SeededDemo> {
-  const passwordHash = await hashPassword(DEMO_PASSWORD);
-  const chargerPasswordHash = await hashPassword(DEMO_CHARGER_PASSWORD);
+  const [passwordHash, chargerPasswordHash] = await demoHashes();
   const seeded = options.depots === 'district' ? demoDistrictDepots : [mainDemoDepot];
   const extraUsers = seeded.flatMap((d) => (d.yardUser ? [{ ...d.yardUser, roles: ['yard'] as const }] : []));
   const ids = await db.transaction(async (tx) => {
@@ -137,6 +136,37 @@ export async function seedDemo(
     chargerIdentities: Object.fromEntries(demoChargers.map((c) => [c.label, demoChargerIdentity(c.label, tag)])),
     publishedNights,
   };
+}
+
+/**
+ * The demo's password hashes, made once per process: bcrypt is slow on purpose, and any hash of
+ * the password serves (the people of one seed already share one).
+ */
+let hashes: Promise<[string, string]> | undefined;
+function demoHashes(): Promise<[string, string]> {
+  hashes ??= Promise.all([hashPassword(DEMO_PASSWORD), hashPassword(DEMO_CHARGER_PASSWORD)]);
+  hashes.catch(() => (hashes = undefined));
+  return hashes;
+}
+
+/**
+ * The engine's plans of seeded nights, by scenario (its JSON). The engine is deterministic, so a
+ * seed of the same depot at the same instant (every browser test seeds a district of its own, most
+ * at one of a few instants) takes the plan solved before instead of solving it again: the same
+ * plan, without a second or more of engine time. The last few are kept.
+ */
+const demoPlans = new Map<string, Promise<Plan>>();
+const DEMO_PLANS_KEPT = 24;
+async function planDemoNight(key: string, scenario: Scenario): Promise<Plan> {
+  let plan = demoPlans.get(key);
+  if (!plan) {
+    plan = runInPool({ kind: 'plan', scenario });
+    demoPlans.set(key, plan);
+    plan.catch(() => demoPlans.delete(key));
+    if (demoPlans.size > DEMO_PLANS_KEPT) demoPlans.delete(demoPlans.keys().next().value!);
+  }
+  // A copy each time: the caller's plan is its own.
+  return structuredClone(await plan);
 }
 
 /** One depot of the district: its chargers and cabinets, rate plan, buses, runs and peaks so far. */
@@ -280,7 +310,7 @@ async function publishDemoNights(
     const { scenario, notes } = await buildNightScenario(db, caller, depotId, n.serviceDate, false);
     const parsed = parseScenario(scenario);
     if (!parsed.ok) throw new Error(`Demo scenario is not valid: ${JSON.stringify(parsed.problems)}`);
-    const result = await runInPool({ kind: 'plan', scenario: parsed.scenario });
+    const result = await planDemoNight(JSON.stringify(scenario), parsed.scenario);
     const underWay = n === night.inForce;
     const publishedAt = underWay ? new Date(Math.min(now.getTime(), Date.parse(n.start)) - 30 * 60_000) : now;
     const [row] = await db
