@@ -272,8 +272,10 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
   }
   // Large depots with crew windows: each candidate costs a large LP re-solve (about a second
   // at 500 buses), and there the sequencing heuristic's plans win (measured at 200-1,000 buses);
-  // only those and the first sweep are tried.
-  if (problem.yard?.capacity && problem.stays.length > LARGE_CREW_STAYS) {
+  // only those and the first sweep are tried, the sweep only if the sequences leave a bus short
+  // (below).
+  const largeCrew = !!problem.yard?.capacity && problem.stays.length > LARGE_CREW_STAYS;
+  if (largeCrew) {
     // Above LARGE_STAYS the sweep was never the one kept (500 and 1,000 buses): left out there.
     const keep = new Set(['sequence-departure-share', 'sequence-best-share']);
     if (problem.stays.length <= LARGE_STAYS) keep.add('sweep-strong-deadline');
@@ -313,11 +315,17 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
     let startBasis = live.basis();
     const all = problem.buses.map((b) => b.index);
     let current = start;
+    // Large crew depots: the sweep and the shared-charger LP below pay only where the best start
+    // so far leaves a bus short that the relaxation serves (there the sequences' plans, served,
+    // were never beaten by either: 200 buses, 10 seeds); otherwise they are skipped.
+    let rebalanceTried = false;
+    const servedStart = () => largeCrew && shortfallIn(problem, live, first) <= lb.shortfallKwh + 1e-3;
     for (let i = 1; i < candidates.length && first.objective > target; i++) {
       if (performance.now() > deadline) {
         timedOut = true;
         break;
       }
+      if (!candidates[i]![0].startsWith('sequence') && servedStart()) break;
       const other = candidates[i]![1]();
       live.update(other, all);
       current = other;
@@ -331,7 +339,8 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
     }
     // Not at the bound: place each charger's hand-overs together (see rebalance.ts).
     if (first.objective > target && performance.now() > deadline) timedOut = true;
-    else if (first.objective > target && !large) {
+    else if (first.objective > target && !large && !servedStart()) {
+      rebalanceTried = true;
       const power = sharedChargerPower(problem, solver, start);
       if (power) {
         const other = fitCrew(problem, rebalanced(problem, hints, start, power), hints.energy);
@@ -351,7 +360,9 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
     }
     if (current !== start) {
       live.update(start, all);
-      if (startBasis && large) live.restoreBasis(startBasis);
+      // Without the rebalance's solve in between, a large crew depot comes back to its start's
+      // basis too (the same vertex as the start's own solve, no iterations).
+      if (startBasis && (large || (largeCrew && !rebalanceTried))) live.restoreBasis(startBasis);
       first = live.solve();
     }
     // Single stays and hand-overs (local search), then whole sequences (large-neighbourhood
