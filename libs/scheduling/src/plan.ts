@@ -17,6 +17,7 @@ import { isoAt } from './slots.js';
 import { costLoad } from './tariff.js';
 import { sweepAssignment } from './sweep.js';
 import { rebalanced, sharedChargerPower } from './rebalance.js';
+import { repairShort, repairSolves } from './short-repair.js';
 
 export interface PlanCost {
   energy: number;
@@ -174,14 +175,15 @@ export function defaultTimeBudgetMs(buses: number): number {
 /**
  * Local-search moves when the construction does not reach the bound: about as many as one
  * idle core re-solves in a few hundred milliseconds (a move re-solves an LP whose size grows with
- * the stays), and at least a dozen. Large depots (over LARGE_STAYS) get 20,000 / stays (40 at
- * 500 stays, 20 at 1,000): there the shared-charger LP is left out (it cost more than these
- * moves) and the moves are what serves short buses (500 buses with the crew: 96 kWh short after
- * 12 moves, 57 after 40; 1,000: 115 after 12, 80 after 24).
+ * the stays), and at least a dozen. Large depots (over LARGE_STAYS) get 6,000 / stays, 6 to 12
+ * (12 at 500 stays, 6 at 1,000): there the short buses are served by the targeted repair
+ * (short-repair.ts), not by random moves (which needed 40 at 500 buses with the crew to leave
+ * 57 kWh short, where the repair serves every bus), and each move costs 50-80 ms there for a few
+ * hundredths of a percent.
  */
 export function defaultMoves(problem: Problem): number {
   const n = problem.stays.length;
-  if (n > LARGE_STAYS) return Math.max(12, Math.min(40, Math.round(20_000 / n)));
+  if (n > LARGE_STAYS) return Math.max(6, Math.min(12, Math.round(6000 / n)));
   return Math.max(12, Math.min(120, Math.round(6000 / (25 + n))));
 }
 
@@ -317,14 +319,38 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
     let current = start;
     // Large crew depots: the sweep and the shared-charger LP below pay only where the best start
     // so far leaves a bus short that the relaxation serves (there the sequences' plans, served,
-    // were never beaten by either: 200 buses, 10 seeds); otherwise they are skipped.
+    // were never beaten by either: 200 buses, 10 seeds); otherwise they are skipped. A start
+    // that is short is first repaired bus by bus (short-repair.ts: 10-32 LP solves served every
+    // bus at 200-1,000 buses), which makes both unnecessary where it serves every bus.
     let rebalanceTried = false;
     const servedStart = () => largeCrew && shortfallIn(problem, live, first) <= lb.shortfallKwh + 1e-3;
+    let startRepaired = false;
+    const repairStart = () => {
+      startRepaired = true;
+      if (!largeCrew || first.objective <= target || servedStart()) return;
+      live.update(start, all);
+      if (startBasis) live.restoreBasis(startBasis);
+      const from = live.solve();
+      const repaired = repairShort(problem, hints, live, start, from, {
+        deadline,
+        maxSolves: repairSolves(problem.stays.length).start,
+        target,
+      });
+      current = repaired.assignment;
+      if (repaired.timedOut) timedOut = true;
+      if (repaired.accepted > 0) {
+        start = repaired.assignment;
+        first = repaired.result;
+        startBasis = live.basis();
+        construction += '+repair';
+      }
+    };
     for (let i = 1; i < candidates.length && first.objective > target; i++) {
       if (performance.now() > deadline) {
         timedOut = true;
         break;
       }
+      if (!candidates[i]![0].startsWith('sequence') && !startRepaired) repairStart();
       if (!candidates[i]![0].startsWith('sequence') && servedStart()) break;
       const other = candidates[i]![1]();
       live.update(other, all);
@@ -337,6 +363,7 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
         construction = candidates[i]![0];
       }
     }
+    if (!startRepaired && !timedOut) repairStart();
     // Not at the bound: place each charger's hand-overs together (see rebalance.ts).
     if (first.objective > target && performance.now() > deadline) timedOut = true;
     else if (first.objective > target && !large && !servedStart()) {
@@ -369,6 +396,29 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
     // search over pairs of chargers), then single moves again from what that found. Each step
     // keeps only improvements, so the plan is never worse than the local search alone.
     search = localSearch(problem, hints, live, start, first, { deadline, maxMoves, target });
+    // Beyond the whole-sequence search's reach (below), buses the relaxation serves but the
+    // search left short are served by targeted changes (short-repair.ts).
+    if (
+      search.result.objective > target &&
+      problem.stays.length > LNS_MAX_STAYS &&
+      !search.timedOut &&
+      shortfallIn(problem, live, search.result) > lb.shortfallKwh + 1e-3
+    ) {
+      const repaired = repairShort(problem, hints, live, search.assignment, search.result, {
+        deadline,
+        maxSolves: repairSolves(problem.stays.length).end,
+        target,
+      });
+      search = {
+        ...search,
+        assignment: repaired.assignment,
+        result: repaired.result,
+        moves: search.moves + repaired.moves,
+        accepted: search.accepted + repaired.accepted,
+        iterations: search.iterations + repaired.iterations,
+        timedOut: repaired.timedOut,
+      };
+    }
     // Above the relaxation's bound with crew windows: the bound that knows who holds each
     // charger while nobody is in the yard (crew-bound.ts) shows how far the plan can be from
     // the optimum. Counted nodes; a bound cut by the time cap is left unused.
