@@ -320,8 +320,8 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
     // Large crew depots: the sweep and the shared-charger LP below pay only where the best start
     // so far leaves a bus short that the relaxation serves (there the sequences' plans, served,
     // were never beaten by either: 200 buses, 10 seeds); otherwise they are skipped. A start
-    // that is short is first repaired bus by bus (short-repair.ts: 10-32 LP solves served every
-    // bus at 200-1,000 buses), which makes both unnecessary where it serves every bus.
+    // that is short is first repaired bus by bus (short-repair.ts: it served every bus of 20
+    // seeds at 200 buses in 1-19 LP solves, and at 500-1,000), which makes both unnecessary there.
     let rebalanceTried = false;
     const servedStart = () => largeCrew && shortfallIn(problem, live, first) <= lb.shortfallKwh + 1e-3;
     let startRepaired = false;
@@ -334,6 +334,7 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
       const repaired = repairShort(problem, hints, live, start, from, {
         deadline,
         maxSolves: repairSolves(problem.stays.length).start,
+        batch: large,
         target,
       });
       current = repaired.assignment;
@@ -407,6 +408,7 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
       const repaired = repairShort(problem, hints, live, search.assignment, search.result, {
         deadline,
         maxSolves: repairSolves(problem.stays.length).end,
+        batch: large,
         target,
       });
       search = {
