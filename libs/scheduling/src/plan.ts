@@ -415,8 +415,6 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
         ...search,
         assignment: repaired.assignment,
         result: repaired.result,
-        moves: search.moves + repaired.moves,
-        accepted: search.accepted + repaired.accepted,
         iterations: search.iterations + repaired.iterations,
         timedOut: repaired.timedOut,
       };
