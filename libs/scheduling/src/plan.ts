@@ -276,7 +276,7 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
   // at 500 buses), and there the sequencing heuristic's plans win (measured at 200-1,000 buses);
   // only those and the first sweep are tried, the sweep only if the sequences leave a bus short
   // (below).
-  const largeCrew = !!problem.yard?.capacity && problem.stays.length > LARGE_CREW_STAYS;
+  let largeCrew = !!problem.yard?.capacity && problem.stays.length > LARGE_CREW_STAYS;
   if (largeCrew) {
     // Above LARGE_STAYS the sweep was never the one kept (500 and 1,000 buses): left out there.
     const keep = new Set(['sequence-departure-share', 'sequence-best-share']);
@@ -284,6 +284,9 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
     const kept = candidates.filter(([name]) => keep.has(name));
     kept.sort((x, y) => (x[0].startsWith('sequence') ? 0 : 1) - (y[0].startsWith('sequence') ? 0 : 1));
     if (kept.length) candidates.splice(0, candidates.length, ...kept);
+    // Re-planning with stays already plugged in (no sequences): the candidates, rebalance and
+    // search as before.
+    if (!kept.some(([name]) => name.startsWith('sequence'))) largeCrew = false;
   }
   // Every candidate is made one the yard crew can carry out before the LP judges it.
   for (const cand of candidates) {
