@@ -17,6 +17,7 @@ import { isoAt } from './slots.js';
 import { costLoad } from './tariff.js';
 import { sweepAssignment } from './sweep.js';
 import { rebalanced, sharedChargerPower } from './rebalance.js';
+import { repairShort, repairSolves } from './short-repair.js';
 
 export interface PlanCost {
   energy: number;
@@ -174,14 +175,15 @@ export function defaultTimeBudgetMs(buses: number): number {
 /**
  * Local-search moves when the construction does not reach the bound: about as many as one
  * idle core re-solves in a few hundred milliseconds (a move re-solves an LP whose size grows with
- * the stays), and at least a dozen. Large depots (over LARGE_STAYS) get 20,000 / stays (40 at
- * 500 stays, 20 at 1,000): there the shared-charger LP is left out (it cost more than these
- * moves) and the moves are what serves short buses (500 buses with the crew: 96 kWh short after
- * 12 moves, 57 after 40; 1,000: 115 after 12, 80 after 24).
+ * the stays), and at least a dozen. Large depots (over LARGE_STAYS) get 6,000 / stays, 6 to 12
+ * (12 at 500 stays, 6 at 1,000): there the short buses are served by the targeted repair
+ * (short-repair.ts), not by random moves (which needed 40 at 500 buses with the crew to leave
+ * 57 kWh short, where the repair serves every bus), and each move costs 50-80 ms there for a few
+ * hundredths of a percent.
  */
 export function defaultMoves(problem: Problem): number {
   const n = problem.stays.length;
-  if (n > LARGE_STAYS) return Math.max(12, Math.min(40, Math.round(20_000 / n)));
+  if (n > LARGE_STAYS) return Math.max(6, Math.min(12, Math.round(6000 / n)));
   return Math.max(12, Math.min(120, Math.round(6000 / (25 + n))));
 }
 
@@ -272,14 +274,19 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
   }
   // Large depots with crew windows: each candidate costs a large LP re-solve (about a second
   // at 500 buses), and there the sequencing heuristic's plans win (measured at 200-1,000 buses);
-  // only those and the first sweep are tried.
-  if (problem.yard?.capacity && problem.stays.length > LARGE_CREW_STAYS) {
+  // only those and the first sweep are tried, the sweep only if the sequences leave a bus short
+  // (below).
+  let largeCrew = !!problem.yard?.capacity && problem.stays.length > LARGE_CREW_STAYS;
+  if (largeCrew) {
     // Above LARGE_STAYS the sweep was never the one kept (500 and 1,000 buses): left out there.
     const keep = new Set(['sequence-departure-share', 'sequence-best-share']);
     if (problem.stays.length <= LARGE_STAYS) keep.add('sweep-strong-deadline');
     const kept = candidates.filter(([name]) => keep.has(name));
     kept.sort((x, y) => (x[0].startsWith('sequence') ? 0 : 1) - (y[0].startsWith('sequence') ? 0 : 1));
     if (kept.length) candidates.splice(0, candidates.length, ...kept);
+    // Re-planning with stays already plugged in (no sequences): the candidates, rebalance and
+    // search as before.
+    if (!kept.some(([name]) => name.startsWith('sequence'))) largeCrew = false;
   }
   // Every candidate is made one the yard crew can carry out before the LP judges it.
   for (const cand of candidates) {
@@ -313,11 +320,42 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
     let startBasis = live.basis();
     const all = problem.buses.map((b) => b.index);
     let current = start;
+    // Large crew depots: the sweep and the shared-charger LP below pay only where the best start
+    // so far leaves a bus short that the relaxation serves (there the sequences' plans, served,
+    // were never beaten by either: 200 buses, 10 seeds); otherwise they are skipped. A start
+    // that is short is first repaired bus by bus (short-repair.ts: it served every bus of 20
+    // seeds at 200 buses in 1-19 LP solves, and at 500-1,000), which makes both unnecessary there.
+    let rebalanceTried = false;
+    const servedStart = () => largeCrew && shortfallIn(problem, live, first) <= lb.shortfallKwh + 1e-3;
+    let startRepaired = false;
+    const repairStart = () => {
+      startRepaired = true;
+      if (!largeCrew || first.objective <= target || servedStart()) return;
+      live.update(start, all);
+      if (startBasis) live.restoreBasis(startBasis);
+      const from = live.solve();
+      const repaired = repairShort(problem, hints, live, start, from, {
+        deadline,
+        maxSolves: repairSolves(problem.stays.length).start,
+        batch: large,
+        target,
+      });
+      current = repaired.assignment;
+      if (repaired.timedOut) timedOut = true;
+      if (repaired.accepted > 0) {
+        start = repaired.assignment;
+        first = repaired.result;
+        startBasis = live.basis();
+        construction += '+repair';
+      }
+    };
     for (let i = 1; i < candidates.length && first.objective > target; i++) {
       if (performance.now() > deadline) {
         timedOut = true;
         break;
       }
+      if (!candidates[i]![0].startsWith('sequence') && !startRepaired) repairStart();
+      if (!candidates[i]![0].startsWith('sequence') && servedStart()) break;
       const other = candidates[i]![1]();
       live.update(other, all);
       current = other;
@@ -329,9 +367,11 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
         construction = candidates[i]![0];
       }
     }
+    if (!startRepaired && !timedOut) repairStart();
     // Not at the bound: place each charger's hand-overs together (see rebalance.ts).
     if (first.objective > target && performance.now() > deadline) timedOut = true;
-    else if (first.objective > target && !large) {
+    else if (first.objective > target && !large && !servedStart()) {
+      rebalanceTried = true;
       const power = sharedChargerPower(problem, solver, start);
       if (power) {
         const other = fitCrew(problem, rebalanced(problem, hints, start, power), hints.energy);
@@ -351,13 +391,37 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
     }
     if (current !== start) {
       live.update(start, all);
-      if (startBasis && large) live.restoreBasis(startBasis);
+      // Without the rebalance's solve in between, a large crew depot comes back to its start's
+      // basis too (the same vertex as the start's own solve, no iterations).
+      if (startBasis && (large || (largeCrew && !rebalanceTried))) live.restoreBasis(startBasis);
       first = live.solve();
     }
     // Single stays and hand-overs (local search), then whole sequences (large-neighbourhood
     // search over pairs of chargers), then single moves again from what that found. Each step
     // keeps only improvements, so the plan is never worse than the local search alone.
     search = localSearch(problem, hints, live, start, first, { deadline, maxMoves, target });
+    // Beyond the whole-sequence search's reach (below), buses the relaxation serves but the
+    // search left short are served by targeted changes (short-repair.ts).
+    if (
+      search.result.objective > target &&
+      problem.stays.length > LNS_MAX_STAYS &&
+      !search.timedOut &&
+      shortfallIn(problem, live, search.result) > lb.shortfallKwh + 1e-3
+    ) {
+      const repaired = repairShort(problem, hints, live, search.assignment, search.result, {
+        deadline,
+        maxSolves: repairSolves(problem.stays.length).end,
+        batch: large,
+        target,
+      });
+      search = {
+        ...search,
+        assignment: repaired.assignment,
+        result: repaired.result,
+        iterations: search.iterations + repaired.iterations,
+        timedOut: repaired.timedOut,
+      };
+    }
     // Above the relaxation's bound with crew windows: the bound that knows who holds each
     // charger while nobody is in the yard (crew-bound.ts) shows how far the plan can be from
     // the optimum. Counted nodes; a bound cut by the time cap is left unused.
