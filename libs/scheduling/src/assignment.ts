@@ -102,29 +102,43 @@ export function layoutCharger(problem: Problem, hints: AssignmentHints, assignme
       }
     }
     h = Math.min(Math.max(h, lo), hi);
-    if (hints.handover !== 'share') {
-      // Prefer the hand-over that cuts least of the two stays' charging in the lower bound.
-      const pa = hints.power[s.bus]!;
-      const pb = hints.power[next.bus]!;
-      let lost = 0;
-      for (let t = lo; t < Math.min(s.departSlot, T); t++) lost += pa[t]!;
-      let bestLost = Infinity;
-      let bestH = h;
-      for (let x = lo; x <= hi; x++) {
-        const score = lost + 1e-6 * Math.abs(x - h);
-        if (score < bestLost - 1e-12) {
-          bestLost = score;
-          bestH = x;
-        }
-        if (x < s.departSlot) lost -= pa[x]!;
-        if (x >= next.arriveSlot) lost += pb[x]!;
-      }
-      h = bestH;
-    }
+    if (hints.handover !== 'share') h = leastLostHandover(hints.power, s, next, lo, hi, h, T);
     assignment.from[s.id] = Math.min(start, s.departSlot);
     assignment.to[s.id] = Math.max(Math.min(h, s.departSlot), assignment.from[s.id]!);
     start = Math.max(h, next.arriveSlot);
   }
+}
+
+/**
+ * The hand-over slot in [lo, hi] from stay `s` to the next stay on its charger that cuts least of
+ * the two stays' charging in the lower bound (`power`: kW per bus per slot); ties go to the slot
+ * nearest `h`.
+ */
+export function leastLostHandover(
+  power: Float64Array[],
+  s: { bus: number; departSlot: number },
+  next: { bus: number; arriveSlot: number },
+  lo: number,
+  hi: number,
+  h: number,
+  T: number,
+): number {
+  const pa = power[s.bus]!;
+  const pb = power[next.bus]!;
+  let lost = 0;
+  for (let t = lo; t < Math.min(s.departSlot, T); t++) lost += pa[t]!;
+  let bestLost = Infinity;
+  let bestH = h;
+  for (let x = lo; x <= hi; x++) {
+    const score = lost + 1e-6 * Math.abs(x - h);
+    if (score < bestLost - 1e-12) {
+      bestLost = score;
+      bestH = x;
+    }
+    if (x < s.departSlot) lost -= pa[x]!;
+    if (x >= next.arriveSlot) lost += pb[x]!;
+  }
+  return bestH;
 }
 
 /** How badly a charger's windows serve its stays: energy that cannot fit, then lower-bound

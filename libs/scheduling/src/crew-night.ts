@@ -2,6 +2,7 @@ import {
   arrangeCharger,
   cloneAssignment,
   initialAssignment,
+  leastLostHandover,
   layoutScore,
   permutations,
   type Assignment,
@@ -250,23 +251,7 @@ export function layoutNight(
       lo = lo2;
       hi = hi2;
     }
-    h = Math.min(Math.max(h, lo), hi);
-    const pa = hints.power[s.bus]!;
-    const pb = hints.power[next.bus]!;
-    let lost = 0;
-    for (let t = lo; t < Math.min(s.departSlot, T); t++) lost += pa[t]!;
-    let bestLost = Infinity;
-    let bestH = h;
-    for (let x = lo; x <= hi; x++) {
-      const score = lost + 1e-6 * Math.abs(x - h);
-      if (score < bestLost - 1e-12) {
-        bestLost = score;
-        bestH = x;
-      }
-      if (x < s.departSlot) lost -= pa[x]!;
-      if (x >= next.arriveSlot) lost += pb[x]!;
-    }
-    h = bestH;
+    h = leastLostHandover(hints.power, s, next, lo, hi, Math.min(Math.max(h, lo), hi), T);
     a.from[s.id] = Math.min(start, s.departSlot);
     a.to[s.id] = Math.max(Math.min(h, s.departSlot), a.from[s.id]!);
     start = Math.max(h, next.arriveSlot);
