@@ -127,6 +127,8 @@ test('depot and fleet forms question unlikely figures and ask before discarding 
   await openSection(page, 'Fleet');
   await page.getByRole('button', { name: 'Add bus' }).click();
   const bus = page.getByRole('dialog');
+  // The dialog puts focus on its first field as it opens: typing before that can land there.
+  await expect(bus.getByLabel('Bus number')).toBeFocused();
   await bus.getByLabel('Consumption').fill('15');
   await expect(bus.getByText(/15 kWh per mile is more than a bus uses/)).toBeVisible();
   await expectAccessible(page);
