@@ -116,6 +116,31 @@ describe('crew-aware lower bound', () => {
     expect(every.penalisedBound).toBeGreaterThan(solveLowerBound(problem, solver).penalisedObjective);
   }, 180_000);
 
+  it('relaxed (integrality dropped, for larger depots): between the relaxation and the MILP, one holder per charger', async () => {
+    // 8 buses on 2 chargers (seed 8), whose optimum the exact MILP proves at 650.36 (exact.spec.ts).
+    const input = { ...generateDepot({ buses: 8, chargers: 2, seed: 8 }), yard };
+    const problem = prepareProblem(parsed(input));
+    const solver = await loadSolver();
+    const relaxed = solveCrewBound(problem, solver, { relaxed: true });
+    const milp = solveCrewBound(problem, solver, { maxNodes: 10_000, timeLimitMs: 60_000 });
+    const relaxation = solveLowerBound(problem, solver).penalisedObjective;
+    expect(milp.optimal).toBe(true);
+    // Measured: relaxation 483.73, relaxed 619.56, MILP 647.05, exact optimum 650.36.
+    expect(relaxed.penalisedBound).toBeGreaterThan(relaxation * 1.2);
+    expect(relaxed.penalisedBound).toBeLessThanOrEqual(milp.penalisedBound * (1 + 1e-6));
+    expect(relaxed.penalisedBound).toBeLessThanOrEqual(650.36);
+    // Its rounded solution: at most one holder per charger, and only holders draw power through
+    // the stretch (the powers the crew's-night candidates follow).
+    const perCharger = new Map<number, number>();
+    for (const c of relaxed.holders!) if (c >= 0) perCharger.set(c, (perCharger.get(c) ?? 0) + 1);
+    expect(perCharger.size).toBe(2);
+    expect([...perCharger.values()]).toEqual([1, 1]);
+    const [first, last] = relaxed.stretches[0]!;
+    for (const s of problem.stays)
+      for (let t = Math.max(first, s.arriveSlot); t <= Math.min(last, s.departSlot - 1); t++)
+        if (relaxed.power![s.bus]![t]! > 1e-6) expect(relaxed.holders![s.id]).toBeGreaterThanOrEqual(0);
+  });
+
   it("the crew's night laid out around its holder: the holder on through the stretch, dearer layouts polished away", async () => {
     // 8 buses on 2 chargers (seed 8), the bound's holders on their chargers and the others in the
     // evening or the morning as the bound has them. Laid out by the bound's centre over the whole

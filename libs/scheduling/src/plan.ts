@@ -143,6 +143,12 @@ export interface PlanOptions {
    * limit, a few seconds at most) to serve it or prove the shortfall necessary; default on.
    */
   exact?: boolean;
+  /**
+   * The crew's night with crew windows (crew-bound.ts, crew-night.ts): the crew-aware bound and
+   * the candidates from its holders; default on. Off only to measure what it adds, or to build
+   * a plan as the searches alone leave it (tests of re-plans from such a plan).
+   */
+  crewNight?: boolean;
 }
 
 /** Largest exact model tried when a plan is short (binaries), its node limit and time cap. */
@@ -154,8 +160,21 @@ export const LARGE_CREW_STAYS = 150;
 
 export const EXACT_LIMITS = { binaries: 6000, nodes: 30, ms: 3000 };
 
-/** The crew-aware bound (crew-bound.ts): depots up to this many stays, its node budget and time cap. */
-export const CREW_BOUND_LIMITS = { stays: 16, nodes: 30, ms: 15_000, bothPaths: 16, polish: 60 };
+/**
+ * The crew-aware bound (crew-bound.ts): as a MILP on depots up to `stays` stays (its node budget
+ * and time cap); as an LP up to `relaxedStays` where there are at least `relaxedPerCharger` stays
+ * per charger or the searches left a bus short that the relaxation serves (elsewhere it seldom
+ * raises the bound, and the time goals of large depots leave no room for it); not in re-plans.
+ */
+export const CREW_BOUND_LIMITS = {
+  stays: 16,
+  relaxedStays: 300,
+  relaxedPerCharger: 3,
+  nodes: 30,
+  ms: 15_000,
+  bothPaths: 16,
+  polish: 60,
+};
 
 const round = (v: number, digits = 6) => {
   const f = 10 ** digits;
@@ -425,17 +444,28 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
     // Above the relaxation's bound with crew windows: the bound that knows who holds each
     // charger while nobody is in the yard (crew-bound.ts) shows how far the plan can be from
     // the optimum. Counted nodes; a bound cut by the time cap is left unused.
+    // A re-plan keeps what it can of the plan before (stable.ts) and its plugged-in buses where
+    // they are, which the crew's-night candidates know nothing of: it keeps the old path.
+    const replanning = !!problem.previous || !!problem.pinned?.some((c) => c >= 0);
     if (
       search.result.objective > target &&
+      options.crewNight !== false &&
       problem.yard?.capacity &&
-      problem.stays.length <= CREW_BOUND_LIMITS.stays &&
+      (problem.stays.length <= CREW_BOUND_LIMITS.stays ||
+        (problem.stays.length <= CREW_BOUND_LIMITS.relaxedStays &&
+          !replanning &&
+          (problem.stays.length >= CREW_BOUND_LIMITS.relaxedPerCharger * problem.chargers.length ||
+            shortfallIn(problem, live, search.result) > lb.shortfallKwh + 1e-3))) &&
       performance.now() < deadline
     ) {
-      // One session per stay, as every plan of the engine (and the exact model) has it: a bound
-      // on those plans, and its powers put each stay in the evening, on a charger through the
-      // night, or in the morning.
+      const relaxed = problem.stays.length > CREW_BOUND_LIMITS.stays;
+      // As a MILP, one session per stay, as every plan of the engine (and the exact model) has it:
+      // a bound on those plans, and its powers put each stay in the evening, on a charger through
+      // the night, or in the morning. As an LP, over every plan (the one-session rows made its LP
+      // weaker and its rounded holders worse: 40 buses on 10 chargers, plans 3-6 % dearer).
       const cb = solveCrewBound(problem, solver, {
-        oneSession: true,
+        oneSession: !relaxed,
+        relaxed,
         maxNodes: CREW_BOUND_LIMITS.nodes,
         timeLimitMs: Math.max(1, Math.min(CREW_BOUND_LIMITS.ms, deadline - performance.now())),
       });
@@ -464,8 +494,31 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
             maxMoves,
             target,
           });
+          // Beyond the whole-sequence search's reach, buses this start leaves short are repaired
+          // as the first start's were (200 buses on 40 chargers: 79-266 kWh short to 30-38).
+          let alt = again;
+          if (
+            problem.stays.length > LNS_MAX_STAYS &&
+            !again.timedOut &&
+            again.result.objective > target &&
+            shortfallIn(problem, live, again.result) > lb.shortfallKwh + 1e-3
+          ) {
+            const repaired = repairShort(problem, crewHints, live, again.assignment, again.result, {
+              deadline,
+              maxSolves: repairSolves(problem.stays.length).end,
+              batch: large,
+              target,
+            });
+            alt = {
+              ...again,
+              assignment: repaired.assignment,
+              result: repaired.result,
+              iterations: again.iterations + repaired.iterations,
+              timedOut: repaired.timedOut,
+            };
+          }
           alternative = {
-            search: { ...again, iterations: search.iterations + again.iterations, moves: search.moves + again.moves },
+            search: { ...alt, iterations: search.iterations + alt.iterations, moves: search.moves + alt.moves },
             construction: bestCand.name,
           };
         }
