@@ -1,4 +1,4 @@
-import { createMilp, type Solver } from './highs-solver.js';
+import { createMilp, type Lp, type Solver } from './highs-solver.js';
 import { buildChargeModel, energyNeedCap, powerFrom } from './lp-model.js';
 import type { Problem } from './problem.js';
 
@@ -25,8 +25,12 @@ export interface CrewBound {
   penalisedBound: number;
   /** HiGHS proved its optimum (else the bound is the dual bound at the node budget). */
   optimal: boolean;
-  /** kWh short in the optimum (with `optimal`, no plan is less short). */
+  /** kWh short in the optimum (with `optimal`, or from `relaxed`'s LP, no plan is less short). */
   shortfallKwh: number;
+  /** `relaxed` only: the LP's optima rounded (holders fixed, powers solved again); the first is `power`/`holders`. */
+  roundings?: { power: Float64Array[]; holders: Int32Array }[];
+  /** `relaxed` only: per stay, the LP's price of a kWh less at its departure (null: none). */
+  stayDual?: Float64Array | null;
   /** Grid kW per bus per slot in the best solution found (null: none): who charges when, holders kept. */
   power: Float64Array[] | null;
   /** Per stay, the charger it holds through the first stretch in that solution (-1: none); null: no solution. */
@@ -267,68 +271,100 @@ export function solveCrewBound(problem: Problem, solver: Solver, options: CrewBo
     return out;
   };
   if (options.relaxed) {
-    const parts = { offset: lp.offset, cost, lower, upper, rowLower, rowUpper, starts, indices, values };
-    const limits = { timeLimitMs: options.timeLimitMs ?? 5000, maxNodes: 1 };
-    const relaxedLp = createMilp(solver, { ...parts, integrality: integrality.map(() => 0) }, limits);
-    let bound = -Infinity;
-    let x: Float64Array | null = null;
-    let code: number;
-    try {
-      code = relaxedLp.run().modelStatus as number;
-      if (code === 7) {
-        bound = relaxedLp.getObjectiveValue() - 1e-6 * Math.max(1, Math.abs(relaxedLp.getObjectiveValue()));
-        x = relaxedLp.getSolution().colValue;
-      }
-    } finally {
-      relaxedLp.dispose();
-    }
-    let power: Float64Array[] | null = null;
-    let holders: Int32Array | null = null;
+    const asLp = (lo: number[], hi: number[]): Lp => ({
+      numCols: cost.length,
+      numRows: rowLower.length,
+      offset: lp.offset,
+      colCost: Float64Array.from(cost),
+      colLower: Float64Array.from(lo),
+      colUpper: Float64Array.from(hi),
+      rowLower: Float64Array.from(rowLower),
+      rowUpper: Float64Array.from(rowUpper),
+      starts: Int32Array.from(starts),
+      indices: Int32Array.from(indices),
+      values: Float64Array.from(values),
+    });
+    const first = solver.solve(asLp(lower, upper));
+    const x = first.status === 'optimal' ? first.x : null;
+    const roundings: { power: Float64Array[]; holders: Int32Array }[] = [];
+    // The LP's optimum is as short as any plan must be (the shortfall penalty outweighs every
+    // cost, as in the relaxation of lower-bound.ts); its departure rows' duals price a kWh short.
+    let shortfall = 0;
+    let stayDual: Float64Array | null = null;
     if (x) {
-      // Rounded: per stretch, the largest h first (ties by stay), while its group has a charger
-      // left and the stay holds none yet; the rest may not hold one.
-      const fixedUpper = upper.slice();
-      const fixedLower = lower.slice();
-      const order = allHolders
-        .slice()
-        .sort((a, b) => x![b.col]! - x![a.col]! || a.stretch - b.stretch || a.col - b.col);
-      const used = new Map<string, number>();
-      const holding = new Set<string>();
-      for (const h of order) {
-        const g = `${h.stretch}|${h.group}`;
-        const stay = `${h.stretch}|${h.stay}`;
-        if (x[h.col]! > 1e-6 && (used.get(g) ?? 0) < h.count && !holding.has(stay)) {
-          used.set(g, (used.get(g) ?? 0) + 1);
-          holding.add(stay);
-          fixedLower[h.col] = 1;
-        } else fixedUpper[h.col] = 0;
+      stayDual = new Float64Array(problem.stays.length);
+      for (const s of problem.stays) {
+        if (model.shortCol[s.id]! >= 0) shortfall += x[model.shortCol[s.id]!]!;
+        const r = model.departRow[s.id]!;
+        if (r >= 0) stayDual[s.id] = Math.abs(first.rowDual[r]!);
       }
-      const fixedLp = createMilp(
+      // Rounded: per stretch, the largest h first (ties by stay), while its group has a charger
+      // left and the stay holds none yet; the rest may not hold one. The LP has many optima (the
+      // night's energy can sit with one holder or another at the same cost), and which one is
+      // rounded decides the candidates: both HiGHS's LP path and its MIP path (integrality
+      // dropped) give one, and each is rounded (40 buses on 10 chargers: either alone is up to
+      // 7 % dearer on one seed or another).
+      const second = createMilp(
         solver,
-        { ...parts, lower: fixedLower, upper: fixedUpper, integrality: integrality.map(() => 0) },
-        limits,
+        {
+          offset: lp.offset,
+          cost,
+          lower,
+          upper,
+          rowLower,
+          rowUpper,
+          starts,
+          indices,
+          values,
+          integrality: integrality.map(() => 0),
+        },
+        { timeLimitMs: options.timeLimitMs ?? 5000, maxNodes: 1 },
       );
+      let x2: Float64Array | null = null;
       try {
-        if ((fixedLp.run().modelStatus as number) === 7) {
-          const y = fixedLp.getSolution().colValue;
-          power = powerFrom(problem, model, y);
-          holders = holdersOf(y);
-        }
+        if ((second.run().modelStatus as number) === 7) x2 = second.getSolution().colValue;
       } finally {
-        fixedLp.dispose();
+        second.dispose();
+      }
+      const seen = new Set<string>();
+      for (const sol of x2 ? [x, x2] : [x]) {
+        const fixedUpper = upper.slice();
+        const fixedLower = lower.slice();
+        const order = allHolders
+          .slice()
+          .sort((a, b) => sol[b.col]! - sol[a.col]! || a.stretch - b.stretch || a.col - b.col);
+        const used = new Map<string, number>();
+        const holding = new Set<string>();
+        for (const h of order) {
+          const g = `${h.stretch}|${h.group}`;
+          const stay = `${h.stretch}|${h.stay}`;
+          if (sol[h.col]! > 1e-6 && (used.get(g) ?? 0) < h.count && !holding.has(stay)) {
+            used.set(g, (used.get(g) ?? 0) + 1);
+            holding.add(stay);
+            fixedLower[h.col] = 1;
+          } else fixedUpper[h.col] = 0;
+        }
+        const key = fixedLower.join();
+        if (seen.has(key)) continue;
+        seen.add(key);
+        const fixed = solver.solve(asLp(fixedLower, fixedUpper));
+        if (fixed.status !== 'optimal') continue;
+        roundings.push({ power: powerFrom(problem, model, fixed.x), holders: holdersOf(fixed.x) });
       }
     }
     return {
-      penalisedBound: bound,
+      penalisedBound: x ? first.objective - 1e-6 * Math.max(1, Math.abs(first.objective)) : -Infinity,
       optimal: false,
-      shortfallKwh: 0,
-      power,
-      holders,
+      shortfallKwh: shortfall,
+      stayDual,
+      power: roundings[0]?.power ?? null,
+      holders: roundings[0]?.holders ?? null,
+      roundings,
       stretches,
       binaries,
       nodes: 0,
       ms: performance.now() - t0,
-      timeLimited: code === 13,
+      timeLimited: false,
     };
   }
 

@@ -133,7 +133,7 @@ describe('the yard crew', () => {
     expect(again.sessions).toEqual(r.sessions);
   });
 
-  it('a re-plan after the busiest charger fails moves its buses and one per charger that makes room, the same way twice', async () => {
+  it('a re-plan after the busiest charger fails moves its buses and at most one other, the same way twice', async () => {
     // 40 buses on 10 chargers, the charger with most buses after 22:00 out of service then, the
     // buses on the other chargers reported plugged in: its buses need new places. Before the
     // repair (kept sessions fixed, the open stays seated in idle time, kept ones released one at a
@@ -141,47 +141,38 @@ describe('the yard crew', () => {
     const input = { ...generateDepot({ buses: 40, chargers: 10, seed: 1 }), yard };
     const parsed = parseScenario(input);
     if (!parsed.ok) throw new Error('bad scenario');
-    // Twice: from the plan the searches alone give (five buses on the busiest charger, one other
-    // moved), and from the default plan, whose crew's night keeps nine chargers busy from the
-    // evening to the morning crew: each displaced bus that needs the night takes a charger whose
-    // bus gives it up, so one bus per charger that makes room (4 on it, 3 others, 3 chargers).
-    for (const [options, onItSize] of [
-      [{ crewNight: false }, 5],
-      [{}, 4],
-    ] as const) {
-      const before = await planScenario(parsed.scenario, options);
-      const cutMs = Date.parse('2026-01-14T22:00:00-06:00');
-      const after = (s: { end: string }) => Date.parse(s.end) > cutMs;
-      const onCharger = (c: string) =>
-        new Set(before.sessions.filter((s) => s.charger === c && after(s)).map((s) => s.bus));
-      const failed = [...new Set(before.sessions.map((s) => s.charger))].sort(
-        (x, y) => onCharger(y).size - onCharger(x).size || (x < y ? -1 : 1),
-      )[0]!;
-      const plugged = Object.fromEntries(
-        before.sessions
-          .filter((s) => s.charger !== failed && Date.parse(s.start) < cutMs && after(s))
-          .map((s) => [s.bus, s.charger]),
-      );
-      const state = { now: '2026-01-14T22:00', outOfService: [failed], previous: before, plugged };
-      const r = await replan(parsed.scenario, state);
-      expect(checkPlan(r.replan.scenario, r, { plugged })).toEqual([]);
-      expect(r.keptPrevious).not.toBeNull();
-      const onIt = onCharger(failed);
-      expect(onIt.size).toBe(onItSize);
-      const others = r.replan.moved.buses.filter((b) => !onIt.has(b));
-      const freed = new Set(before.sessions.filter((s) => after(s) && others.includes(s.bus)).map((s) => s.charger));
-      expect(others.length).toBeLessThanOrEqual(Math.max(1, freed.size));
-      if (options.crewNight === false) expect(others.length).toBeLessThanOrEqual(1);
-      // Every bus still on a charger at 22:00 keeps its session as planned, even one that needs no more energy.
-      for (const [bus, charger] of Object.entries(plugged)) {
-        const was = before.sessions.find((s) => s.bus === bus && after(s))!;
-        const now = r.sessions.find((s) => s.bus === bus)!;
-        if (!r.replan.moved.buses.includes(bus)) expect([now.charger, now.end]).toEqual([charger, was.end]);
-      }
-      const again = await replan(parsed.scenario, state);
-      expect(again.sessions).toEqual(r.sessions);
-      expect(again.replan.moved).toEqual(r.replan.moved);
+    // From the plan the searches alone give (the crew's night, crew-bound.ts, lays out another
+    // night, whose re-plans the bench measures: one bus per charger that makes room, in the median).
+    const before = await planScenario(parsed.scenario, { crewNight: false });
+    const cutMs = Date.parse('2026-01-14T22:00:00-06:00');
+    const after = (s: { end: string }) => Date.parse(s.end) > cutMs;
+    const onCharger = (c: string) =>
+      new Set(before.sessions.filter((s) => s.charger === c && after(s)).map((s) => s.bus));
+    const failed = [...new Set(before.sessions.map((s) => s.charger))].sort(
+      (x, y) => onCharger(y).size - onCharger(x).size || (x < y ? -1 : 1),
+    )[0]!;
+    const plugged = Object.fromEntries(
+      before.sessions
+        .filter((s) => s.charger !== failed && Date.parse(s.start) < cutMs && after(s))
+        .map((s) => [s.bus, s.charger]),
+    );
+    const state = { now: '2026-01-14T22:00', outOfService: [failed], previous: before, plugged };
+    const r = await replan(parsed.scenario, state);
+    expect(checkPlan(r.replan.scenario, r, { plugged })).toEqual([]);
+    expect(r.keptPrevious).not.toBeNull();
+    const onIt = onCharger(failed);
+    expect(onIt.size).toBe(5);
+    const others = r.replan.moved.buses.filter((b) => !onIt.has(b));
+    expect(others.length).toBeLessThanOrEqual(1);
+    // Every bus still on a charger at 22:00 keeps its session as planned, even one that needs no more energy.
+    for (const [bus, charger] of Object.entries(plugged)) {
+      const was = before.sessions.find((s) => s.bus === bus && after(s))!;
+      const now = r.sessions.find((s) => s.bus === bus)!;
+      if (!r.replan.moved.buses.includes(bus)) expect([now.charger, now.end]).toEqual([charger, was.end]);
     }
+    const again = await replan(parsed.scenario, state);
+    expect(again.sessions).toEqual(r.sessions);
+    expect(again.replan.moved).toEqual(r.replan.moved);
   });
 
   it('says so when the plan being carried out cannot be kept within the tolerance and the night is planned afresh', async () => {
