@@ -62,6 +62,8 @@ export interface CrewBoundOptions {
    * again with them fixed, for powers that keep one bus per charger through the stretch.
    */
   relaxed?: boolean;
+  /** Shortfall left free of penalty up to this many kWh in all (checks of a short plan's bound). */
+  shortfallCapKwh?: number;
 }
 
 /** Crew-less stretches [first, last] (slots) in which no stay begins or ends and some stay is present. */
@@ -270,6 +272,17 @@ export function solveCrewBound(problem: Problem, solver: Solver, options: CrewBo
     }
     return out;
   };
+  if (options.shortfallCapKwh !== undefined) {
+    // Shortfall free of penalty up to the cap in all: a bound for plans at most that short.
+    const short = problem.stays.map((st) => model.shortCol[st.id]!).filter((c) => c >= 0);
+    for (const c of short) cost[c] = 0;
+    row(
+      short,
+      short.map(() => 1),
+      -Infinity,
+      options.shortfallCapKwh,
+    );
+  }
   if (options.relaxed) {
     const asLp = (lo: number[], hi: number[]): Lp => ({
       numCols: cost.length,
