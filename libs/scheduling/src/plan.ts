@@ -423,28 +423,31 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
     // search over pairs of chargers), then single moves again from what that found. Each step
     // keeps only improvements, so the plan is never worse than the local search alone.
     search = localSearch(problem, hints, live, start, first, { deadline, maxMoves, target });
-    // Beyond the whole-sequence search's reach (below), buses the relaxation serves but the
-    // search left short are served by targeted changes (short-repair.ts).
-    if (
-      search.result.objective > target &&
-      problem.stays.length > LNS_MAX_STAYS &&
-      !search.timedOut &&
-      shortfallIn(problem, live, search.result) > lb.shortfallKwh + 1e-3
-    ) {
-      const repaired = repairShort(problem, hints, live, search.assignment, search.result, {
+    // Buses the relaxation serves but a search left short are served by targeted changes
+    // (short-repair.ts); null where there is nothing to repair.
+    const repairIfShort = (from: SearchResult, withHints: AssignmentHints): SearchResult | null => {
+      if (
+        from.result.objective <= target ||
+        from.timedOut ||
+        shortfallIn(problem, live, from.result) <= lb.shortfallKwh + 1e-3
+      )
+        return null;
+      const repaired = repairShort(problem, withHints, live, from.assignment, from.result, {
         deadline,
         maxSolves: repairSolves(problem.stays.length).end,
         batch: large,
         target,
       });
-      search = {
-        ...search,
+      return {
+        ...from,
         assignment: repaired.assignment,
         result: repaired.result,
-        iterations: search.iterations + repaired.iterations,
+        iterations: from.iterations + repaired.iterations,
         timedOut: repaired.timedOut,
       };
-    }
+    };
+    // Beyond the whole-sequence search's reach (below), repaired here.
+    if (problem.stays.length > LNS_MAX_STAYS) search = repairIfShort(search, hints) ?? search;
     // Above the relaxation's bound with crew windows: the bound that knows who holds each
     // charger while nobody is in the yard (crew-bound.ts) shows how far the plan can be from
     // the optimum. Counted nodes; a bound cut by the time cap is left unused.
@@ -515,26 +518,7 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
           });
           // Beyond the whole-sequence search's reach, buses this start leaves short are repaired
           // as the first start's were (200 buses on 40 chargers: 79-266 kWh short to 30-38).
-          if (
-            problem.stays.length > LNS_MAX_STAYS &&
-            !again.timedOut &&
-            again.result.objective > target &&
-            shortfallIn(problem, live, again.result) > lb.shortfallKwh + 1e-3
-          ) {
-            const repaired = repairShort(problem, roundingHints, live, again.assignment, again.result, {
-              deadline,
-              maxSolves: repairSolves(problem.stays.length).end,
-              batch: large,
-              target,
-            });
-            again = {
-              ...again,
-              assignment: repaired.assignment,
-              result: repaired.result,
-              iterations: again.iterations + repaired.iterations,
-              timedOut: repaired.timedOut,
-            };
-          }
+          if (problem.stays.length > LNS_MAX_STAYS) again = repairIfShort(again, roundingHints) ?? again;
           const start = {
             search: { ...again, iterations: search.iterations + again.iterations, moves: search.moves + again.moves },
             construction: bestCand.name,
@@ -620,25 +604,10 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
       // A bus still short that the bounds serve, after the whole-sequence search: targeted repairs
       // (short-repair.ts) from the crew's powers (100 buses on 20 chargers, seed 3: 7.5 kWh short
       // to 2; more LP solves found nothing more on these depots).
-      if (
-        crewHints &&
-        !pathSearch.timedOut &&
-        pathSearch.result.objective > target &&
-        shortfallIn(problem, live, pathSearch.result) > lb.shortfallKwh + 1e-3
-      ) {
-        const repaired = repairShort(problem, crewHints, live, pathSearch.assignment, pathSearch.result, {
-          deadline,
-          maxSolves: repairSolves(problem.stays.length).end,
-          batch: large,
-          target,
-        });
-        if (better({ ...pathSearch, ...repaired }, pathSearch)) {
-          pathSearch = {
-            ...pathSearch,
-            assignment: repaired.assignment,
-            result: repaired.result,
-            timedOut: repaired.timedOut,
-          };
+      const repaired = crewHints ? repairIfShort(pathSearch, crewHints) : null;
+      if (repaired) {
+        if (better(repaired, pathSearch)) {
+          pathSearch = repaired;
           pathConstruction += '+repair';
         }
         live.update(pathSearch.assignment, all);
