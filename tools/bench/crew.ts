@@ -19,22 +19,11 @@ import { solveCrewBound } from '../../libs/scheduling/src/crew-bound.js';
 import { solveExact } from '../../libs/scheduling/src/exact.js';
 import { generateDepot } from '../../libs/scheduling/src/testing/generate-depot.js';
 import { checkPlan } from '../../libs/scheduling/src/testing/plan-checker.js';
+import { testYard } from '../../libs/scheduling/src/testing/crew-yard.js';
 import { assignmentOfPlan as assignmentOf } from '../../libs/scheduling/src/testing/plan-assignment.js';
 
 const quick = process.argv.includes('--quick');
-const crewFor = (scenario: ScenarioInput, movesEvening: number, movesMorning: number) => ({
-  minPlugInMinutes: 45,
-  driversPlugIn: true,
-  crew: [
-    { from: '2026-01-14T15:00', to: '2026-01-14T23:30', movesPerSlot: movesEvening },
-    { from: '2026-01-15T04:30', to: '2026-01-15T07:00', movesPerSlot: movesMorning },
-  ],
-  ...(scenario ? {} : {}),
-});
-const withCrew = (input: ScenarioInput, scale = 1): ScenarioInput => ({
-  ...input,
-  yard: crewFor(input, Math.max(3, Math.ceil(3 * scale)), Math.max(2, Math.ceil(2 * scale))),
-});
+const withCrew = (input: ScenarioInput, scale = 1): ScenarioInput => ({ ...input, yard: testYard(scale) });
 const parse = (input: ScenarioInput) => {
   const parsed = parseScenario(input);
   if (!parsed.ok) throw new Error(JSON.stringify(parsed.problems));

@@ -8,30 +8,18 @@ import { AssignedModel } from './local-search.js';
 import { solveLowerBound } from './lower-bound.js';
 import { planScenario, type Plan } from './plan.js';
 import { prepareProblem, type Problem } from './problem.js';
-import { parseScenario, type ScenarioInput } from './scenario.js';
+import { type ScenarioInput } from './scenario.js';
 import { generateDepot } from './testing/generate-depot.js';
 import { checkPlan } from './testing/plan-checker.js';
 import { assignmentOfPlan as assignmentOf } from './testing/plan-assignment.js';
+import { parsedScenario, testYard } from './testing/crew-yard.js';
 
 // The crew-aware lower bound (crew-bound.ts) and the plans on small depots with the yard crew,
 // both checked against the exact assignment MILP of exact.ts solved by HiGHS to its proven
 // optimum: a model written per slot with binaries for every stay, charger and slot, independent
 // of the heuristic (which only gives it a first solution).
 
-const yard = {
-  minPlugInMinutes: 45,
-  driversPlugIn: true,
-  crew: [
-    { from: '2026-01-14T15:00', to: '2026-01-14T23:30', movesPerSlot: 3 },
-    { from: '2026-01-15T04:30', to: '2026-01-15T07:00', movesPerSlot: 2 },
-  ],
-};
-
-function parsed(input: ScenarioInput) {
-  const p = parseScenario(input);
-  if (!p.ok) throw new Error(JSON.stringify(p.problems));
-  return p.scenario;
-}
+const yard = testYard();
 
 function penalised(problem: Problem, plan: Plan): number {
   return plan.cost.total + problem.shortfallPenalty * plan.stats.shortfallKwh;
@@ -42,10 +30,10 @@ describe('crew-aware lower bound', () => {
     const input = { ...generateDepot({ buses: 6, chargers: 2, seed: 7 }), yard };
     // Slots of 15 min from noon: 23:15 is slot 45 (the last plug-in), 04:15 slot 65 (the last
     // slot before an unplug at 04:30).
-    expect(crewGaps(prepareProblem(parsed(input)))).toEqual([[45, 65]]);
+    expect(crewGaps(prepareProblem(parsedScenario(input)))).toEqual([[45, 65]]);
     const late = structuredClone(input);
     late.buses[0]!.stays[0]!.arrive = '2026-01-15T01:10';
-    expect(crewGaps(prepareProblem(parsed(late)))).toEqual([]);
+    expect(crewGaps(prepareProblem(parsedScenario(late)))).toEqual([]);
   });
 
   it('two buses, one charger, the whole night without crew: above the relaxation, not above the exact optimum', async () => {
@@ -69,7 +57,7 @@ describe('crew-aware lower bound', () => {
       buses: [bus('B1'), bus('B2')],
       yard,
     };
-    const problem = prepareProblem(parsed(input));
+    const problem = prepareProblem(parsedScenario(input));
     const solver = await loadSolver();
     const relaxation = solveLowerBound(problem, solver);
     const bound = solveCrewBound(problem, solver);
@@ -86,7 +74,7 @@ describe('crew-aware lower bound', () => {
 
   it('7 buses on 2 chargers with the crew: the plan at the HiGHS MILP optimum, and the plan proves it itself', async () => {
     const input = { ...generateDepot({ buses: 7, chargers: 2, seed: 2 }), yard };
-    const scenario = parsed(input);
+    const scenario = parsedScenario(input);
     const problem = prepareProblem(scenario);
     const solver = await loadSolver();
     // The searches end on their counted budgets, not on the safety net, even on a busy machine.
@@ -119,7 +107,7 @@ describe('crew-aware lower bound', () => {
   it('relaxed (integrality dropped, for larger depots): between the relaxation and the MILP, one holder per charger', async () => {
     // 8 buses on 2 chargers (seed 8), whose optimum the exact MILP proves at 650.36 (exact.spec.ts).
     const input = { ...generateDepot({ buses: 8, chargers: 2, seed: 8 }), yard };
-    const problem = prepareProblem(parsed(input));
+    const problem = prepareProblem(parsedScenario(input));
     const solver = await loadSolver();
     const relaxed = solveCrewBound(problem, solver, { relaxed: true });
     const milp = solveCrewBound(problem, solver, { maxNodes: 10_000, timeLimitMs: 60_000 });
@@ -147,7 +135,7 @@ describe('crew-aware lower bound', () => {
     // night an evening stay got the stretch and the crew's rules moved the holder to the morning
     // (a bus short); laid out as the night, each holder is on through the stretch.
     const input = { ...generateDepot({ buses: 8, chargers: 2, seed: 8 }), yard };
-    const problem = prepareProblem(parsed(input));
+    const problem = prepareProblem(parsedScenario(input));
     const solver = await loadSolver();
     const cb = solveCrewBound(problem, solver, { oneSession: true, maxNodes: 30, timeLimitMs: 60_000 });
     expect(cb.optimal).toBe(true);

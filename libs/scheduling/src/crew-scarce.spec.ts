@@ -4,33 +4,20 @@ import { loadSolver } from './highs-solver.js';
 import { solveLowerBound } from './lower-bound.js';
 import { planScenario } from './plan.js';
 import { prepareProblem } from './problem.js';
-import { parseScenario, type ScenarioInput } from './scenario.js';
 import { generateDepot } from './testing/generate-depot.js';
 import { checkPlan } from './testing/plan-checker.js';
+import { parsedScenario, testYard } from './testing/crew-yard.js';
 
 // Depots short of chargers (4-5 buses per charger) with the yard crew, beyond the MILP's reach:
 // the crew-aware bound as an LP (crew-bound.ts, `relaxed`) proves the gap, and the crew's-night
 // candidates from its rounded holders serve buses the charger-by-charger searches left short.
 
-const yard = {
-  minPlugInMinutes: 45,
-  driversPlugIn: true,
-  crew: [
-    { from: '2026-01-14T15:00', to: '2026-01-14T23:30', movesPerSlot: 3 },
-    { from: '2026-01-15T04:30', to: '2026-01-15T07:00', movesPerSlot: 2 },
-  ],
-};
-
-function parsed(input: ScenarioInput) {
-  const p = parseScenario(input);
-  if (!p.ok) throw new Error(JSON.stringify(p.problems));
-  return p.scenario;
-}
+const yard = testYard();
 
 describe('depots short of chargers, with the crew', () => {
   it('40 buses on 10 chargers: the crew-aware bound proves a gap the relaxation cannot, the same plan twice', async () => {
     const input = { ...generateDepot({ buses: 40, chargers: 10, seed: 2 }), yard };
-    const scenario = parsed(input);
+    const scenario = parsedScenario(input);
     const problem = prepareProblem(scenario);
     const plan = await planScenario(scenario, { timeBudgetMs: 120_000 });
     const again = await planScenario(scenario, { timeBudgetMs: 120_000 });
@@ -51,9 +38,10 @@ describe('depots short of chargers, with the crew', () => {
   it('100 buses on 20 chargers: every bus served, where the searches alone left 1,210 kWh short', async () => {
     const input = {
       ...generateDepot({ buses: 100, chargers: 20, seed: 3 }),
-      yard: { ...yard, crew: yard.crew.map((c, i) => ({ ...c, movesPerSlot: i === 0 ? 8 : 5 })) },
+      // The crew scaled to 100 buses: 8 and 5 moves per slot.
+      yard: testYard(100 / 40),
     };
-    const plan = await planScenario(parsed(input), { timeBudgetMs: 120_000 });
+    const plan = await planScenario(parsedScenario(input), { timeBudgetMs: 120_000 });
     expect(plan.stats.stoppedBy).not.toBe('time');
     expect(checkPlan(input, plan)).toEqual([]);
     expect(plan.status).toBe('feasible');
@@ -67,9 +55,10 @@ describe('depots short of chargers, with the crew', () => {
     // solved again with the shortfall free of penalty up to the plan's (a bound by construction).
     const input = {
       ...generateDepot({ buses: 100, chargers: 20, seed: 2 }),
-      yard: { ...yard, crew: yard.crew.map((c, i) => ({ ...c, movesPerSlot: i === 0 ? 8 : 5 })) },
+      // The crew scaled to 100 buses: 8 and 5 moves per slot.
+      yard: testYard(100 / 40),
     };
-    const scenario = parsed(input);
+    const scenario = parsedScenario(input);
     const problem = prepareProblem(scenario);
     const solver = await loadSolver();
     const plan = await planScenario(scenario, { timeBudgetMs: 120_000 });

@@ -4,15 +4,9 @@ import { replan } from './replan.js';
 import { parseScenario, type ScenarioInput } from './scenario.js';
 import { generateDepot } from './testing/generate-depot.js';
 import { checkPlan } from './testing/plan-checker.js';
+import { testYard } from './testing/crew-yard.js';
 
-const yard = {
-  minPlugInMinutes: 45,
-  driversPlugIn: true,
-  crew: [
-    { from: '2026-01-14T15:00', to: '2026-01-14T23:30', movesPerSlot: 3 },
-    { from: '2026-01-15T04:30', to: '2026-01-15T07:00', movesPerSlot: 2 },
-  ],
-};
+const yard = testYard();
 
 async function plan(input: ScenarioInput) {
   const parsed = parseScenario(input);

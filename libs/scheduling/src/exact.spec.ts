@@ -3,37 +3,25 @@ import { solveExact } from './exact.js';
 import { loadSolver } from './highs-solver.js';
 import { planScenario, type Plan, type PlanOptions } from './plan.js';
 import { prepareProblem } from './problem.js';
-import { parseScenario, type ScenarioInput } from './scenario.js';
+import { type ScenarioInput } from './scenario.js';
 import { generateDepot } from './testing/generate-depot.js';
 import { checkPlan } from './testing/plan-checker.js';
 import { assignmentOfPlan as assignmentOf } from './testing/plan-assignment.js';
+import { parsedScenario, testYard } from './testing/crew-yard.js';
 
 // The plans against the exact assignment MILP (exact.ts, HiGHS) on small depots short of
 // chargers: two or three chargers for six to twelve buses, with and without the yard crew.
 
-const yard = {
-  minPlugInMinutes: 45,
-  driversPlugIn: true,
-  crew: [
-    { from: '2026-01-14T15:00', to: '2026-01-14T23:30', movesPerSlot: 3 },
-    { from: '2026-01-15T04:30', to: '2026-01-15T07:00', movesPerSlot: 2 },
-  ],
-};
-
-function parsed(input: ScenarioInput) {
-  const p = parseScenario(input);
-  if (!p.ok) throw new Error(JSON.stringify(p.problems));
-  return p.scenario;
-}
+const yard = testYard();
 
 /** Cost plus the shortfall penalty: what the engine and the MILP both minimise. */
 function penalised(input: ScenarioInput, plan: Plan): number {
-  return plan.cost.total + prepareProblem(parsed(input)).shortfallPenalty * plan.stats.shortfallKwh;
+  return plan.cost.total + prepareProblem(parsedScenario(input)).shortfallPenalty * plan.stats.shortfallKwh;
 }
 
 async function planOf(input: ScenarioInput, options: PlanOptions = {}) {
   // The searches end on their counted budgets, not on the safety net, even on a busy machine.
-  const plan = await planScenario(parsed(input), { timeBudgetMs: 120_000, ...options });
+  const plan = await planScenario(parsedScenario(input), { timeBudgetMs: 120_000, ...options });
   expect(checkPlan(input, plan)).toEqual([]);
   return plan;
 }
@@ -50,7 +38,7 @@ describe('exact assignment MILP (HiGHS) against the plans', () => {
       const input = generateDepot({ buses, chargers, seed });
       const plan = await planOf(input);
       const solver = await loadSolver();
-      const problem = prepareProblem(parsed(input));
+      const problem = prepareProblem(parsedScenario(input));
       // Started from the plan's own sessions: HiGHS then only has to prove (or beat) it.
       const exact = solveExact(problem, solver, {
         maxNodes: 50,

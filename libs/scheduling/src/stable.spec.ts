@@ -4,19 +4,13 @@ import { replan } from './replan.js';
 import { parseScenario, type Scenario } from './scenario.js';
 import { generateDepot } from './testing/generate-depot.js';
 import { checkPlan } from './testing/plan-checker.js';
+import { testYard } from './testing/crew-yard.js';
 
 // Stable re-plans (stable.ts): after the busiest charger fails at 22:00 the repair keeps every
 // session it can, serves the buses that lost their charger, and moves other buses only where
 // that serves shortfall the fault caused or saves more than the depot's tolerance.
 
-const yard = (scale: number) => ({
-  minPlugInMinutes: 45,
-  driversPlugIn: true,
-  crew: [
-    { from: '2026-01-14T15:00', to: '2026-01-14T23:30', movesPerSlot: Math.max(3, Math.ceil(3 * scale)) },
-    { from: '2026-01-15T04:30', to: '2026-01-15T07:00', movesPerSlot: Math.max(2, Math.ceil(2 * scale)) },
-  ],
-});
+const yard = testYard;
 const cutMs = Date.parse('2026-01-14T22:00:00-06:00');
 // The searches end on their counted budgets, not on the safety net, even on a busy machine: the
 // same plan, and so the same re-plan, every run.
