@@ -283,6 +283,8 @@ export function solveCrewBound(problem: Problem, solver: Solver, options: CrewBo
       options.shortfallCapKwh,
     );
   }
+  // The model as built: the relaxed LPs and the MILP below differ only in integrality.
+  const parts = { offset: lp.offset, cost, lower, upper, rowLower, rowUpper, starts, indices, values };
   if (options.relaxed) {
     const asLp = (lo: number[], hi: number[]): Lp => ({
       numCols: cost.length,
@@ -319,18 +321,7 @@ export function solveCrewBound(problem: Problem, solver: Solver, options: CrewBo
       // up to 11 % dearer or up to 70 kWh shorter, measured before the later steps).
       const second = createMilp(
         solver,
-        {
-          offset: lp.offset,
-          cost,
-          lower,
-          upper,
-          rowLower,
-          rowUpper,
-          starts,
-          indices,
-          values,
-          integrality: integrality.map(() => 0),
-        },
+        { ...parts, integrality: integrality.map(() => 0) },
         { timeLimitMs: options.timeLimitMs ?? 5000, maxNodes: 1 },
       );
       let x2: Float64Array | null = null;
@@ -383,7 +374,7 @@ export function solveCrewBound(problem: Problem, solver: Solver, options: CrewBo
 
   const milp = createMilp(
     solver,
-    { offset: lp.offset, cost, lower, upper, rowLower, rowUpper, starts, indices, values, integrality },
+    { ...parts, integrality },
     { timeLimitMs: options.timeLimitMs ?? 5000, maxNodes: options.maxNodes ?? 200 },
   );
   try {

@@ -9,7 +9,7 @@ import {
   type AssignmentHints,
 } from './assignment.js';
 import { fitCrew, minWindow } from './crew.js';
-import type { LpResult } from './highs-solver.js';
+import { cheaper, type LpResult } from './highs-solver.js';
 import type { AssignedModel } from './local-search.js';
 import type { Problem } from './problem.js';
 import { sweepAssignment } from './sweep.js';
@@ -390,10 +390,7 @@ export function polishHandovers(
         solves++;
         live.update(trial, all);
         const res = live.solve();
-        if (
-          res.status === 'optimal' &&
-          res.objective < bestRes.objective - 1e-9 * Math.max(1, Math.abs(bestRes.objective))
-        ) {
+        if (res.status === 'optimal' && cheaper(res.objective, bestRes.objective)) {
           best = trial;
           bestRes = res;
           improved = true;

@@ -34,6 +34,11 @@ export interface LpResult {
   ms: number;
 }
 
+/** Strictly cheaper than `than` beyond a relative 1e-9 (the LP's tolerance): a tie keeps what is there. */
+export function cheaper(objective: number, than: number): boolean {
+  return objective < than - 1e-9 * Math.max(1, Math.abs(than));
+}
+
 const INF = Infinity;
 let loading: Promise<Highs> | null = null;
 let loaded: Highs | null = null;

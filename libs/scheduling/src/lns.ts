@@ -1,6 +1,6 @@
 import { arrangeCharger, cloneAssignment, type Assignment, type AssignmentHints } from './assignment.js';
 import { fitCrew } from './crew.js';
-import type { LpResult } from './highs-solver.js';
+import { cheaper, type LpResult } from './highs-solver.js';
 import type { AssignedModel, SearchResult } from './local-search.js';
 import type { Problem } from './problem.js';
 
@@ -126,8 +126,7 @@ export function pairSearch(
   const all = problem.buses.map((b) => b.index);
   const arrangeHints: AssignmentHints = { ...hints, order: 'best', handover: 'least-cut' };
   const quickHints: AssignmentHints = { ...hints, order: 'departure', handover: 'least-cut' };
-  const better = (res: LpResult, than: LpResult) =>
-    res.status === 'optimal' && res.objective < than.objective - 1e-9 * Math.max(1, Math.abs(than.objective));
+  const better = (res: LpResult, than: LpResult) => res.status === 'optimal' && cheaper(res.objective, than.objective);
 
   for (let pass = 0; pass < limits.passes; pass++) {
     let improvedThisPass = false;

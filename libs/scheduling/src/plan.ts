@@ -6,7 +6,7 @@ import { describeShortfall, explainShortfalls, soloShortfall, type ShortReason, 
 import { solveCrewBound } from './crew-bound.js';
 import { crewNightCandidates, hintsFrom, polishHandovers } from './crew-night.js';
 import { exactSize, solveExact } from './exact.js';
-import { loadSolver, type LpResult, type Solver } from './highs-solver.js';
+import { cheaper, loadSolver, type LpResult, type Solver } from './highs-solver.js';
 import { AssignedModel, LARGE_STAYS, localSearch, type SearchResult } from './local-search.js';
 import { defaultLnsLimits, pairSearch } from './lns.js';
 import { solveLowerBound } from './lower-bound.js';
@@ -335,6 +335,7 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
   let crewHints: AssignmentHints | null = null;
   let alternative: { search: SearchResult; construction: string } | null = null;
   const otherStarts: { search: SearchResult; construction: string }[] = [];
+  const better = (x: SearchResult, y: SearchResult) => cheaper(x.result.objective, y.result.objective);
   try {
     let first = live.solve();
     if (first.status !== 'optimal')
@@ -383,7 +384,7 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
       live.update(other, all);
       current = other;
       const res = live.solve();
-      if (res.status === 'optimal' && res.objective < first.objective - 1e-9 * Math.max(1, Math.abs(first.objective))) {
+      if (res.status === 'optimal' && cheaper(res.objective, first.objective)) {
         start = other;
         first = res;
         startBasis = live.basis();
@@ -401,10 +402,7 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
         live.update(other, all);
         current = other;
         const res = live.solve();
-        if (
-          res.status === 'optimal' &&
-          res.objective < first.objective - 1e-9 * Math.max(1, Math.abs(first.objective))
-        ) {
+        if (res.status === 'optimal' && cheaper(res.objective, first.objective)) {
           start = other;
           first = res;
           startBasis = live.basis();
@@ -523,11 +521,7 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
             search: { ...again, iterations: search.iterations + again.iterations, moves: search.moves + again.moves },
             construction: bestCand.name,
           };
-          if (
-            !alternative ||
-            start.search.result.objective <
-              alternative.search.result.objective - 1e-9 * Math.max(1, Math.abs(alternative.search.result.objective))
-          ) {
+          if (!alternative || better(start.search, alternative.search)) {
             if (alternative) otherStarts.push(alternative);
             alternative = start;
             bestHints = roundingHints;
@@ -543,8 +537,6 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
     // from depot to depot: 40 buses on 10 chargers, the crew's best start alone 1.5-2.0 % dearer
     // on two of three seeds, the other rounding's start left out 5.3 % on the third, for 0.6-0.9 s
     // each; 100 on 20 nothing for 0.7 s); elsewhere only from the better of the two.
-    const better = (x: SearchResult, y: SearchResult) =>
-      x.result.objective < y.result.objective - 1e-9 * Math.max(1, Math.abs(y.result.objective));
     const paths: { search: SearchResult; construction: string }[] = [{ search, construction }];
     if (alternative) {
       if (problem.stays.length <= CREW_BOUND_LIMITS.bothPaths) {
@@ -668,10 +660,7 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
         ) {
           live.update(ex.assignment, all);
           const res = live.solve();
-          if (
-            res.status === 'optimal' &&
-            res.objective < chosen.result.objective - 1e-9 * Math.max(1, Math.abs(chosen.result.objective))
-          ) {
+          if (res.status === 'optimal' && cheaper(res.objective, chosen.result.objective)) {
             chosen = { assignment: ex.assignment, result: res, crewTrade: null, keptPrevious: chosen.keptPrevious };
             construction += '+exact';
           } else live.update(chosen.assignment, all);

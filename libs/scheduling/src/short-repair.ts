@@ -1,6 +1,6 @@
 import { arrangeCharger, cloneAssignment, usablePower, type Assignment, type AssignmentHints } from './assignment.js';
 import { fitCrew } from './crew.js';
-import type { LpResult } from './highs-solver.js';
+import { cheaper, type LpResult } from './highs-solver.js';
 import type { AssignedModel, SearchResult } from './local-search.js';
 import type { Problem } from './problem.js';
 
@@ -270,10 +270,7 @@ export function repairShort(
         const res = lp.solve();
         iterations += res.iterations;
         lpMs += res.ms;
-        if (
-          res.status === 'optimal' &&
-          res.objective < bestResult.objective - 1e-9 * Math.max(1, Math.abs(bestResult.objective))
-        ) {
+        if (res.status === 'optimal' && cheaper(res.objective, bestResult.objective)) {
           best = trial;
           bestResult = res;
           accepted++;
