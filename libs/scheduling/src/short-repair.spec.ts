@@ -3,17 +3,11 @@ import { planScenario } from './plan.js';
 import { parseScenario, type ScenarioInput } from './scenario.js';
 import { generateDepot } from './testing/generate-depot.js';
 import { checkPlan } from './testing/plan-checker.js';
+import { testYard } from './testing/crew-yard.js';
 
 // The crew of the crew benchmark (tools/bench/crew.ts) at 200 buses: 15 moves per slot in the
 // evening, 10 in the early morning, no one in the yard from 23:30 to 04:30.
-const yard = {
-  minPlugInMinutes: 45,
-  driversPlugIn: true,
-  crew: [
-    { from: '2026-01-14T15:00', to: '2026-01-14T23:30', movesPerSlot: 15 },
-    { from: '2026-01-15T04:30', to: '2026-01-15T07:00', movesPerSlot: 10 },
-  ],
-};
+const yard = testYard(200 / 40);
 
 async function plan(input: ScenarioInput) {
   const parsed = parseScenario(input);
