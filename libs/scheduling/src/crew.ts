@@ -234,12 +234,17 @@ function fitCharger(
     const lo = Math.max(fromP + minWindow(problem, p), Math.min(p.departSlot, s.arriveSlot));
     const hi = s.departSlot - minS;
     const wanted = assignment.to[cur]!;
+    const minP = minWindow(problem, p);
+    // Grid kWh a slot gives each at 85 % of full power (the taper near the top of the battery
+    // takes the rest).
+    const slotKwhP = 0.85 * Math.min(problem.buses[p.bus]!.maxKw, charger.maxKw) * problem.slotHours;
+    const slotKwhS = 0.85 * Math.min(problem.buses[s.bus]!.maxKw, charger.maxKw) * problem.slotHours;
     let best = -1;
     let bestKey = Infinity;
     for (let h = lo; h <= hi; h++) {
       const toP = Math.min(h, p.departSlot);
       const fromS = Math.max(h, s.arriveSlot);
-      if (toP < fromP + minWindow(problem, p)) continue;
+      if (toP < fromP + minP) continue;
       const unplug = endIsFree(problem, p, toP) ? 0 : 1;
       const plug = startIsFree(problem, s, fromS) ? 0 : 1;
       if (unplug && plug && toP === fromS) {
@@ -250,14 +255,10 @@ function fitCharger(
       }
       // First the energy the two windows cannot hold at full power (when the grid kWh each stay
       // wants is known), then closeness to the proposed hand-over, then fewer moves.
-      let lack = 0;
-      if (energy) {
-        // At 85 % of full power: the taper near the top of the battery takes the rest.
-        const slotKwh = (x: Stay) => 0.85 * Math.min(problem.buses[x.bus]!.maxKw, charger.maxKw) * problem.slotHours;
-        lack =
-          Math.max(0, energy[p.id]! - slotKwh(p) * (toP - fromP)) +
-          Math.max(0, energy[s.id]! - slotKwh(s) * (s.departSlot - fromS));
-      }
+      const lack = energy
+        ? Math.max(0, energy[p.id]! - slotKwhP * (toP - fromP)) +
+          Math.max(0, energy[s.id]! - slotKwhS * (s.departSlot - fromS))
+        : 0;
       // Asked for fewer moves: a hand-over at a pull-in or pull-out (one move, not two) comes
       // before closeness to the proposed slot.
       const key =
