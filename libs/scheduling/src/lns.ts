@@ -31,6 +31,8 @@ export interface LnsLimits {
   maxSplits: number;
   /** LP solves in all. */
   maxLpSolves: number;
+  /** Every laid-out split of the shortlist goes to the LP, not only the best-scored few. */
+  everySplit?: boolean;
 }
 
 export interface LnsResult extends SearchResult {
@@ -195,11 +197,15 @@ export function pairSearch(
         scored.push({ score: splitScore(problem, hints, trial, union), trial, mask });
       }
       scored.sort((x, y) => x.score - y.score || x.mask - y.mask);
-      // The best-laid-out splits of each way of placing hand-overs go to the LP.
-      // Small neighbourhoods: twice as many (an LP solve is cheap there).
+      // The best-laid-out splits of each way of placing hand-overs go to the LP (neighbourhoods
+      // of up to 8 stays twice as many; with `everySplit`, all of the shortlist).
       const extra = union.length <= 8 ? 2 : 1;
-      const nearest = scored.filter((x) => x.mask < 1 << union.length).slice(0, limits.evaluate * extra);
-      const atEnds = scored.filter((x) => x.mask >= 1 << union.length).slice(0, limits.evaluateAtEnds * extra);
+      const nearest = scored
+        .filter((x) => x.mask < 1 << union.length)
+        .slice(0, limits.everySplit ? undefined : limits.evaluate * extra);
+      const atEnds = scored
+        .filter((x) => x.mask >= 1 << union.length)
+        .slice(0, limits.everySplit ? undefined : limits.evaluateAtEnds * extra);
       let improved: { trial: Assignment; res: LpResult } | null = null;
       for (const cand of [...nearest, ...atEnds]) {
         moves++;

@@ -161,6 +161,9 @@ export const LARGE_CREW_STAYS = 150;
 
 export const EXACT_LIMITS = { binaries: 6000, nodes: 30, ms: 3000 };
 
+/** Depots up to `stays` stays run the whole-sequence search a second time, every split to the LP. */
+export const EVERY_SPLIT = { stays: 12, lpSolves: 400 };
+
 /**
  * The crew-aware bound (crew-bound.ts): as a MILP on depots up to `stays` stays (its node budget
  * and time cap); as an LP up to `relaxedStays` where there are at least `relaxedPerCharger` stays
@@ -567,7 +570,31 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
         !pathSearch.timedOut &&
         problem.stays.length <= LNS_MAX_STAYS
       ) {
-        const lns = pairSearch(problem, crewHints ?? hints, live, pathSearch.assignment, pathSearch.result, lnsLimits);
+        let lns = pairSearch(problem, crewHints ?? hints, live, pathSearch.assignment, pathSearch.result, lnsLimits);
+        // Small depots: the search again from the same start with every laid-out split solved by
+        // the LP (the score that picks the few it solves reads the bound's powers, not the crew's
+        // hand-overs); the better of the two is kept, so the second cannot make the plan worse.
+        // 7 buses on 2 chargers, seed 4: 692.10 to 664.05, the best the exact MILP finds (4.2 %);
+        // 18 held-out depots of 6-9 buses on 2-3 chargers 12.5 % more time in all.
+        if (problem.stays.length <= EVERY_SPLIT.stays && !lns.timedOut && lns.result.objective > target) {
+          const wide = pairSearch(problem, crewHints ?? hints, live, pathSearch.assignment, pathSearch.result, {
+            ...lnsLimits,
+            everySplit: true,
+            maxLpSolves: EVERY_SPLIT.lpSolves,
+          });
+          const kept =
+            wide.result.status === 'optimal' && cheaper(wide.result.objective, lns.result.objective) ? wide : lns;
+          if (kept === lns) {
+            live.update(lns.assignment, all);
+            live.solve();
+          }
+          lns = {
+            ...kept,
+            moves: lns.moves + wide.moves,
+            splits: lns.splits + wide.splits,
+            iterations: lns.iterations + wide.iterations,
+          };
+        }
         pathLns = {
           neighbourhoods: lns.neighbourhoods,
           accepted: lns.accepted,
