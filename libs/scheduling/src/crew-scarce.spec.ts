@@ -2,7 +2,7 @@ import { describe, expect, it } from 'vitest';
 import { solveCrewBound } from './crew-bound.js';
 import { loadSolver } from './highs-solver.js';
 import { solveLowerBound } from './lower-bound.js';
-import { planScenario } from './plan.js';
+import { planScenario, type PlanOptions } from './plan.js';
 import { prepareProblem } from './problem.js';
 import { generateDepot } from './testing/generate-depot.js';
 import { checkPlan } from './testing/plan-checker.js';
@@ -12,16 +12,24 @@ import { parsedScenario, testYard } from './testing/crew-yard.js';
 // the crew-aware bound as an LP (crew-bound.ts, `relaxed`) proves the gap, and the crew's-night
 // candidates from its rounded holders serve buses the charger-by-charger searches left short.
 
-const yard = testYard();
+/** A depot of the generator with the tests' crew scaled to it (100 buses: 8 and 5 moves per slot). */
+function depot(buses: number, chargers: number, seed: number) {
+  return { ...generateDepot({ buses, chargers, seed }), yard: testYard(Math.max(1, buses / 40)) };
+}
+
+/** Plans a test depot with room to end on its counted budgets; the plan keeps every rule. */
+async function planChecked(input: ReturnType<typeof depot>, options: PlanOptions = {}) {
+  const scenario = parsedScenario(input);
+  const plan = await planScenario(scenario, { timeBudgetMs: 120_000, ...options });
+  expect(plan.stats.stoppedBy).not.toBe('time');
+  expect(checkPlan(input, plan)).toEqual([]);
+  return { scenario, plan };
+}
 
 describe('depots short of chargers, with the crew', () => {
   it('7 buses on 2 chargers (seed 4): the optimum, proven by its own bound, where the few best-scored splits missed it by 4.2 %', async () => {
-    const input = { ...generateDepot({ buses: 7, chargers: 2, seed: 4 }), yard };
-    const scenario = parsedScenario(input);
+    const { scenario, plan } = await planChecked(depot(7, 2, 4));
     const problem = prepareProblem(scenario);
-    const plan = await planScenario(scenario, { timeBudgetMs: 120_000 });
-    expect(plan.stats.stoppedBy).not.toBe('time');
-    expect(checkPlan(input, plan)).toEqual([]);
     // HiGHS's MILP (`solveExact`, one plug-in per stay, no node limit) run for 150 s from the
     // plan of 692.10 found 664.05 and nothing cheaper, its bound then at 643.97 (measured
     // 2026-12-03). The whole-sequence search sending every split to the LP finds it too, and the
@@ -33,13 +41,9 @@ describe('depots short of chargers, with the crew', () => {
   }, 120_000);
 
   it('40 buses on 10 chargers: the crew-aware bound proves a gap the relaxation cannot, the same plan twice', async () => {
-    const input = { ...generateDepot({ buses: 40, chargers: 10, seed: 2 }), yard };
-    const scenario = parsedScenario(input);
+    const { scenario, plan } = await planChecked(depot(40, 10, 2));
     const problem = prepareProblem(scenario);
-    const plan = await planScenario(scenario, { timeBudgetMs: 120_000 });
     const again = await planScenario(scenario, { timeBudgetMs: 120_000 });
-    expect(plan.stats.stoppedBy).not.toBe('time');
-    expect(checkPlan(input, plan)).toEqual([]);
     expect(plan.stats.shortfallKwh).toBeLessThan(1e-3);
     expect(again.sessions).toEqual(plan.sessions);
     // The relaxation lets a charger pass from bus to bus while nobody is in the yard: 3,086.28
@@ -53,14 +57,7 @@ describe('depots short of chargers, with the crew', () => {
   }, 120_000);
 
   it('100 buses on 20 chargers: every bus served, where the searches alone left 1,210 kWh short', async () => {
-    const input = {
-      ...generateDepot({ buses: 100, chargers: 20, seed: 3 }),
-      // The crew scaled to 100 buses: 8 and 5 moves per slot.
-      yard: testYard(100 / 40),
-    };
-    const plan = await planScenario(parsedScenario(input), { timeBudgetMs: 120_000 });
-    expect(plan.stats.stoppedBy).not.toBe('time');
-    expect(checkPlan(input, plan)).toEqual([]);
+    const { plan } = await planChecked(depot(100, 20, 3));
     expect(plan.status).toBe('feasible');
     expect(plan.stats.shortfallKwh).toBeLessThan(1e-3);
     expect(plan.gap).toBeLessThan(0.12);
@@ -72,17 +69,9 @@ describe('depots short of chargers, with the crew', () => {
     // solved again with the shortfall free of penalty up to the plan's (a bound by construction).
     // The plan is built without the whole-sequence search, which serves every bus here: the
     // searches before it leave 29.6 kWh short.
-    const input = {
-      ...generateDepot({ buses: 100, chargers: 20, seed: 2 }),
-      // The crew scaled to 100 buses: 8 and 5 moves per slot.
-      yard: testYard(100 / 40),
-    };
-    const scenario = parsedScenario(input);
+    const { scenario, plan } = await planChecked(depot(100, 20, 2), { lns: false });
     const problem = prepareProblem(scenario);
     const solver = await loadSolver();
-    const plan = await planScenario(scenario, { timeBudgetMs: 120_000, lns: false });
-    expect(plan.stats.stoppedBy).not.toBe('time');
-    expect(checkPlan(input, plan)).toEqual([]);
     expect(plan.status).toBe('short');
     const capped = solveCrewBound(problem, solver, { relaxed: true, shortfallCapKwh: plan.stats.shortfallKwh });
     expect(plan.lowerBound).toBeLessThanOrEqual(capped.penalisedBound + 1e-6);

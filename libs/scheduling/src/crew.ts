@@ -231,10 +231,10 @@ function fitCharger(
     // in at max(h, s.a).
     const p = stays[cur]!;
     const fromP = assignment.from[cur]!;
-    const lo = Math.max(fromP + minWindow(problem, p), Math.min(p.departSlot, s.arriveSlot));
+    const minP = minWindow(problem, p);
+    const lo = Math.max(fromP + minP, Math.min(p.departSlot, s.arriveSlot));
     const hi = s.departSlot - minS;
     const wanted = assignment.to[cur]!;
-    const minP = minWindow(problem, p);
     // Grid kWh a slot gives each at 85 % of full power (the taper near the top of the battery
     // takes the rest).
     const slotKwhP = 0.85 * Math.min(problem.buses[p.bus]!.maxKw, charger.maxKw) * problem.slotHours;
