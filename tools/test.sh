@@ -61,7 +61,7 @@ export NG_CLI_ANALYTICS=false
 {
   build_web_if_stale && node tools/initial-size.mjs &&
     echo "== Web unit tests (ng test)" && npx ng test --watch=false &&
-    echo "== Types (tsc)" && npx tsc -p apps/api/tsconfig.json && npx tsc -p libs/scheduling/tsconfig.json &&
+    echo "== Types (tsc)" && npx tsc -p apps/api/tsconfig.json &&
     npx tsc -p tsconfig.checks.json
 } > "$TEST_DIR/web.log" 2>&1 &
 web=$!
