@@ -17,37 +17,38 @@ function depot(buses: number, chargers: number, seed: number) {
   return { ...generateDepot({ buses, chargers, seed }), yard: testYard(Math.max(1, buses / 40)) };
 }
 
-/** Plans a test depot with room to end on its counted budgets; the plan keeps every rule. */
+/**
+ * Plans a test depot with room to end on its counted budgets; the plan keeps every rule. With it
+ * the depot's problem and the plan's penalised cost (cost + shortfall penalty, what bounds bound).
+ */
 async function planChecked(input: ReturnType<typeof depot>, options: PlanOptions = {}) {
   const scenario = parsedScenario(input);
   const plan = await planScenario(scenario, { timeBudgetMs: 120_000, ...options });
   expect(plan.stats.stoppedBy).not.toBe('time');
   expect(checkPlan(input, plan)).toEqual([]);
-  return { scenario, plan };
+  const problem = prepareProblem(scenario);
+  const penalised = plan.cost.total + plan.stats.shortfallKwh * problem.shortfallPenalty;
+  return { scenario, plan, problem, penalised };
 }
 
 describe('depots short of chargers, with the crew', () => {
   it('7 buses on 2 chargers (seed 4): the optimum, proven by its own bound, where the few best-scored splits missed it by 4.2 %', async () => {
-    const { scenario, plan } = await planChecked(depot(7, 2, 4));
-    const problem = prepareProblem(scenario);
+    const { plan, penalised } = await planChecked(depot(7, 2, 4));
     // HiGHS's MILP (`solveExact`, one plug-in per stay, no node limit) run for 150 s from the
     // plan of 692.10 found 664.05 and nothing cheaper, its bound then at 643.97 (measured
     // 2026-12-03). The whole-sequence search sending every split to the LP finds it too, and the
     // plan's own bound (the crew-aware MILP, one session per stay) proves it optimal.
-    const penalised = plan.cost.total + plan.stats.shortfallKwh * problem.shortfallPenalty;
     expect(penalised).toBeLessThanOrEqual(664.05 + 0.01);
     expect(plan.lowerBound).toBeLessThanOrEqual(penalised);
     expect(plan.gap).toBeLessThan(0.001);
   }, 120_000);
 
   it('6 buses on 2 chargers (seed 3): the exact optimum, which the searches missed by 2.42 %, from the exact MILP the plan runs on small crew depots above their bound', async () => {
-    const { scenario, plan } = await planChecked(depot(6, 2, 3));
-    const problem = prepareProblem(scenario);
+    const { plan, penalised } = await planChecked(depot(6, 2, 3));
     // The optimum, 461.58: HiGHS's MILP (`solveExact`, one plug-in per stay, no node limit) run
     // from the searches' plan of 472.76 proved it in 150 s (measured 2026-12-03; the depot was
     // held out while the searches were tuned). The plan's own MILP (30 nodes) finds it, and its
     // bound (454.39 after 30 nodes) is the one the review shows.
-    const penalised = plan.cost.total + plan.stats.shortfallKwh * problem.shortfallPenalty;
     expect(penalised).toBeLessThanOrEqual(461.58 + 0.01);
     expect(plan.stats.construction).toMatch(/\+exact$/);
     expect(plan.lowerBound).toBeLessThanOrEqual(penalised);
@@ -55,8 +56,7 @@ describe('depots short of chargers, with the crew', () => {
   }, 120_000);
 
   it('40 buses on 10 chargers: the crew-aware bound proves a gap the relaxation cannot, the same plan twice', async () => {
-    const { scenario, plan } = await planChecked(depot(40, 10, 2));
-    const problem = prepareProblem(scenario);
+    const { scenario, plan, problem } = await planChecked(depot(40, 10, 2));
     const again = await planScenario(scenario, { timeBudgetMs: 120_000 });
     expect(plan.stats.shortfallKwh).toBeLessThan(1e-3);
     expect(again.sessions).toEqual(plan.sessions);
@@ -83,8 +83,7 @@ describe('depots short of chargers, with the crew', () => {
     // solved again with the shortfall free of penalty up to the plan's (a bound by construction).
     // The plan is built without the whole-sequence search, which serves every bus here: the
     // searches before it leave 29.6 kWh short.
-    const { scenario, plan } = await planChecked(depot(100, 20, 2), { lns: false });
-    const problem = prepareProblem(scenario);
+    const { plan, problem } = await planChecked(depot(100, 20, 2), { lns: false });
     const solver = await loadSolver();
     expect(plan.status).toBe('short');
     const capped = solveCrewBound(problem, solver, { relaxed: true, shortfallCapKwh: plan.stats.shortfallKwh });

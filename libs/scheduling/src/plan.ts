@@ -684,11 +684,17 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
     // the crew every small depot measured is at its optimum already, and 5 buses on one charger,
     // at it but unproven (a loose bound), would spend 10 s on 30 nodes for nothing.
     const shortNow = shortfallIn(problem, live, chosen.result);
+    // Above the bound on the smallest depots the MILP has its own cap rather than what is left of
+    // the plan's budget: a plan done in a second leaves it 11 s, which 7 buses on 2 chargers (7 s
+    // quiet) could pass under load, and its answer would then depend on the load.
     const exactFor =
       shortNow > 1e-3
-        ? { binaries: EXACT_LIMITS.binaries, ms: EXACT_LIMITS.ms, ownCap: false }
+        ? {
+            binaries: EXACT_LIMITS.binaries,
+            timeLimitMs: Math.max(1, Math.min(EXACT_LIMITS.ms, deadline - performance.now())),
+          }
         : chosen.result.objective > target && problem.yard?.capacity && !problem.previous
-          ? { binaries: EXACT_LIMITS.unprovenBinaries, ms: EXACT_LIMITS.unprovenMs, ownCap: true }
+          ? { binaries: EXACT_LIMITS.unprovenBinaries, timeLimitMs: EXACT_LIMITS.unprovenMs }
           : null;
     if (exactFor && options.exact !== false && !problem.pinned?.some((c) => c >= 0)) {
       const binaries = exactSize(problem);
@@ -696,10 +702,7 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
         const ex = solveExact(problem, solver, {
           start: chosen.assignment,
           maxNodes: EXACT_LIMITS.nodes,
-          // Above the bound on the smallest depots, its own cap rather than what is left of the
-          // plan's budget: a plan done in a second leaves it 11 s, which 7 buses on 2 chargers
-          // (7 s quiet) could pass under load, and its answer would then depend on the load.
-          timeLimitMs: exactFor.ownCap ? exactFor.ms : Math.max(1, Math.min(exactFor.ms, deadline - performance.now())),
+          timeLimitMs: exactFor.timeLimitMs,
         });
         exactStats = {
           status: ex.timeLimited ? 'time' : ex.status,
