@@ -18,6 +18,10 @@ export default defineConfig({
         resolve: { alias },
         test: {
           name: 'libs',
+          // As the API's below: a worker keeps its modules from file to file. The engine's only
+          // module state is the loaded HiGHS solver and date formatters, which every file may share;
+          // its code stays compiled and warm across files (about 40 s less CPU per run, measured).
+          isolate: false,
           environment: 'node',
           include: ['libs/**/*.spec.ts'],
           testTimeout: 60_000,
