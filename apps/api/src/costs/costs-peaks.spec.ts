@@ -10,6 +10,7 @@ import { newMonthCostsCache, monthCosts } from './costs-service';
 let now = TEST_START;
 const app = createTestApp({ clock: () => now });
 let fin: TestUser;
+let sup: TestUser;
 let organisationId: string;
 const as = (u: TestUser) => ({ Authorization: `Bearer ${u.token}` });
 type Line = { name: string; quantity: number; amount: number; note?: string };
@@ -42,11 +43,12 @@ async function ratchetDepot(name: string, november: { startsAt: Date; minutes: n
 }
 
 beforeAll(async () => {
-  const org = await createOrganisation(app, { fin: ['finance'] });
+  const org = await createOrganisation(app, { fin: ['finance'], sup: ['supervisor'] });
   fin = org.users.fin!;
+  sup = org.users.sup!;
   organisationId = org.organisationId;
   now = new Date('2026-12-09T00:02:00-06:00');
-  await signInAgain(app, fin);
+  await signInAgain(app, fin, sup);
 });
 
 describe('peaks so far and the bill', () => {
@@ -129,6 +131,34 @@ describe('peaks so far and the bill', () => {
     };
     const fresh = await monthCosts(app.db, caller, depot.id, '2026-12-10', now, undefined, newMonthCostsCache());
     expect(fresh.projected.total).toBeCloseTo(m.projected.total, 9);
+  });
+  it("a night's plan counts the facility demand only above the ratchet's floor, as the bill does", async () => {
+    const depot = await ratchetDepot('Peaks depot F', [
+      { startsAt: new Date('2026-11-10T14:00:00-06:00'), minutes: 15, kwh: 100 },
+    ]);
+    const base = (
+      await app
+        .request()
+        .get(`/api/depots/${depot.id}/scenario-base`)
+        .query({ start: '2026-12-09T15:00', end: '2026-12-10T07:00' })
+        .set(as(sup))
+        .expect(200)
+    ).body;
+    // 80 % of November's 400 kW: December's bill charges at least 320 kW (the test above), so a
+    // night's peak up to 320 kW adds no facility demand charge.
+    expect((base.scenario.tariff as { peaksSoFarKw: Record<string, number> }).peaksSoFarKw.facility).toBe(320);
+    expect(base.notes).toContainEqual(expect.stringMatching(/at least at 320 kW.*80 % of 400 kW from meter readings/));
+    // Without a ratchet, no floor: nothing was entered or metered for December.
+    const plain = await createDepot(app.db, organisationId, 'Peaks depot G');
+    const plainBase = (
+      await app
+        .request()
+        .get(`/api/depots/${plain.depot.id}/scenario-base`)
+        .query({ start: '2026-12-09T15:00', end: '2026-12-10T07:00' })
+        .set(as(sup))
+        .expect(200)
+    ).body;
+    expect((plainBase.scenario.tariff as { peaksSoFarKw: Record<string, number> }).peaksSoFarKw).toEqual({});
   });
   it('5-minute meter readings are billed as 15-minute demand: added up into their quarter hour', async () => {
     // Demand is billed on the highest quarter hour (the brief). 3 + 5 + 4 kWh from 22:00 to 22:15

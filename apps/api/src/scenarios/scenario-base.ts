@@ -9,6 +9,8 @@ import { DomainError } from '../http/errors';
 import type { AuthUser } from '../auth/auth-user';
 import { depotOf } from '../depots/depot-access';
 import { pricedSlots, seasonOf, type PricedSlot } from '@nightyard/scheduling';
+import { billingPeriodOf } from '../costs/billing-period';
+import { ratchetBaseOf } from '../costs/ratchet-base';
 
 /** Grid-to-battery efficiency of DC charging: about 0.90-0.95 (common practice). */
 export const DEFAULT_EFFICIENCY = 0.92;
@@ -78,6 +80,23 @@ export async function buildScenarioBase(
     } else {
       notes.push(
         `The peaks so far are for the billing period from ${peaks.billingPeriodStart}, not this night's: no peaks so far are assumed.`,
+      );
+    }
+  }
+
+  // A demand ratchet bills the facility demand at least at its share of the previous months'
+  // highest (as the month's bill does, costs-service.ts): a night's peak below that floor adds
+  // nothing to the bill, so the floor counts as a peak so far. Without it the plan would price the
+  // whole peak at the demand rate and pay for energy to lower a peak the bill never charges.
+  const ratchet = definition.demandRatchet;
+  if (ratchet && tariff.facilityDemandCharge > 0) {
+    const period = billingPeriodOf(from.toISODate()!, depot.billingStartDay, zone);
+    const base = await ratchetBaseOf(db, depot, period, ratchet.months);
+    const floorKw = base ? Math.round((ratchet.percent / 100) * base.kw * 1000) / 1000 : 0;
+    if (base && floorKw > (peaksSoFarKw.facility ?? 0)) {
+      peaksSoFarKw.facility = floorKw;
+      notes.push(
+        `The facility demand is billed at least at ${floorKw} kW this period (the rate plan's ratchet: ${ratchet.percent} % of ${Math.round(base.kw * 10) / 10} kW ${base.source}): the night's peak costs demand only above it.`,
       );
     }
   }
