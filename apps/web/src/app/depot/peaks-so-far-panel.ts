@@ -71,6 +71,14 @@ export class PeaksSoFarPanel {
     Object.entries(this.peaks()?.periods ?? {}).map(([name, kw]) => ({ name, kw })),
   );
 
+  /** The current billing period's start when the peaks shown are of an earlier one, else null. */
+  protected readonly laterPeriod = computed(() => {
+    const entered = this.peaks()?.billingPeriodStart;
+    if (!entered) return null;
+    const current = billingPeriodStart(this.clock.todayAt(this.timezone()), this.billingStartDay());
+    return entered < current ? current : null;
+  });
+
   protected readonly form = signal<ReturnType<PeaksSoFarPanel['buildForm']> | null>(null);
   protected readonly busy = signal(false);
   protected readonly problem = signal<string | null>(null);

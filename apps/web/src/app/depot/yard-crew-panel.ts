@@ -146,7 +146,7 @@ type CrewForm = ReturnType<typeof crewForm>;
                 <mat-error>{{ error(f.controls.costTolerancePercent) }}</mat-error>
               </mat-form-field>
               <mat-form-field appearance="outline">
-                <mat-label>Cost tolerance, amount a night</mat-label>
+                <mat-label>Cost tolerance, amount a night (rate plan's currency)</mat-label>
                 <input matInput type="number" min="0" max="1000" step="1" formControlName="costToleranceAmount" />
                 <mat-error>{{ error(f.controls.costToleranceAmount) }}</mat-error>
               </mat-form-field>
@@ -184,8 +184,8 @@ type CrewForm = ReturnType<typeof crewForm>;
           <div class="wide">
             <dt>Cost tolerance for fewer moves</dt>
             <dd>
-              {{ crew().costTolerancePercent }} % of the night's cost or {{ crew().costToleranceAmount }}, whichever is
-              larger
+              {{ crew().costTolerancePercent }} % of the night's cost or {{ crew().costToleranceAmount }} in the rate
+              plan's currency, whichever is larger
             </dd>
           </div>
         </dl>

@@ -11,8 +11,8 @@ import { num, type BusPlanRow } from './plan-format';
     <div class="table-scroll wide-only" role="region" aria-label="Buses in the plan" tabindex="0">
       <table class="buses">
         <caption class="ny-visually-hidden">
-          Each bus: charger, plug-in and unplug times, energy, state of charge at departure, shortfall and why (short
-          buses first)
+          Each bus: charger, plug-in and unplug times (the yard crew's unless marked as the driver's), energy, state of
+          charge at departure, shortfall and why (short buses first)
         </caption>
         <thead>
           <tr>
@@ -44,12 +44,22 @@ import { num, type BusPlanRow } from './plan-format';
               </td>
               <td>
                 @for (s of r.sessions; track $index) {
-                  <span class="line">{{ s.plugIn }}</span>
+                  <span class="line"
+                    >{{ s.plugIn }}
+                    @if (s.plugInByDriver) {
+                      <span class="by">Driver, on pulling in</span>
+                    }
+                  </span>
                 }
               </td>
               <td>
                 @for (s of r.sessions; track $index) {
-                  <span class="line">{{ s.unplug }}</span>
+                  <span class="line"
+                    >{{ s.unplug }}
+                    @if (s.unplugByDriver) {
+                      <span class="by">Driver, on pulling out</span>
+                    }
+                  </span>
                 }
               </td>
               <td class="num">
@@ -103,7 +113,12 @@ import { num, type BusPlanRow } from './plan-format';
             <dt>Plug-ins</dt>
             <dd>
               @for (s of r.sessions; track $index) {
-                <span class="line">{{ s.charger }} {{ s.plugIn }}–{{ s.unplug }}</span>
+                <span class="line"
+                  >{{ s.charger }} {{ s.plugIn }}–{{ s.unplug }}
+                  @if (s.plugInByDriver || s.unplugByDriver) {
+                    <span class="by">{{ driverMoves(s) }}</span>
+                  }
+                </span>
               } @empty {
                 <span class="none">Not plugged in</span>
               }
@@ -149,7 +164,7 @@ import { num, type BusPlanRow } from './plan-format';
     }
     .buses {
       width: 100%;
-      min-width: 860px;
+      min-width: 760px;
       border-collapse: collapse;
       font: var(--mat-sys-body-medium);
     }
@@ -181,6 +196,11 @@ import { num, type BusPlanRow } from './plan-format';
     .reason {
       font-weight: 600;
       color: var(--mat-sys-error);
+    }
+    .by {
+      display: block;
+      font: var(--mat-sys-body-small);
+      color: var(--mat-sys-on-surface-variant);
     }
     .detail {
       display: block;
@@ -258,4 +278,9 @@ export class BusPlanTable {
   /** Buses that leave at their ceiling and top up at the next midday layover. */
   readonly topUps = input<readonly string[]>([]);
   protected readonly num = num;
+  /** Which moves of a plug-in its driver makes, in the run sheets' words. */
+  protected driverMoves(s: BusPlanRow['sessions'][number]): string {
+    if (s.plugInByDriver && s.unplugByDriver) return 'Driver, on pulling in and on pulling out';
+    return s.plugInByDriver ? 'Driver, on pulling in' : 'Driver, on pulling out';
+  }
 }

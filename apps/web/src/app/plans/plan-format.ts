@@ -106,8 +106,18 @@ export function pct(share: number, digits = 1): string {
 export interface BusPlanRow {
   bus: string;
   chargers: string;
-  /** Each plug-in of the bus: charger, when at the depot, energy. */
-  sessions: { charger: string; plugIn: string; unplug: string; kwh: number }[];
+  /**
+   * Each plug-in of the bus: charger, when at the depot, energy, and who plugs in and unplugs where
+   * the depot has yard crew rules ('driver': on pulling in or out; null: the crew, or no rules).
+   */
+  sessions: {
+    charger: string;
+    plugIn: string;
+    unplug: string;
+    kwh: number;
+    plugInByDriver: boolean;
+    unplugByDriver: boolean;
+  }[];
   kwh: number;
   /** Each departure: when, and the state of charge then. */
   departures: { at: string; socPct: number | null }[];
@@ -135,6 +145,8 @@ export function busRows(plan: Pick<PlanDetail, 'result' | 'timezone' | 'busCapac
           plugIn: dayClock(s.start, tz),
           unplug: dayClock(s.end, tz),
           kwh: s.kwh,
+          plugInByDriver: s.startMove === 'driver',
+          unplugByDriver: s.endMove === 'driver',
         })),
         kwh: sessions.reduce((sum, s) => sum + s.kwh, 0),
         departures: b.departures.map((d) => ({

@@ -6,6 +6,7 @@ import type { PlanResult } from '@nightyard/contracts';
 import { busRows, reasonText } from './plan-format';
 import { PLAN_IDS, planDetail, planResult, planSummary } from './plan-fixtures';
 import { PlanReview } from './plan-review';
+import { BusPlanTable } from './bus-plan-table';
 
 describe('plan review', () => {
   it('sorts short buses first, the largest shortfall first, then by bus number', () => {
@@ -17,6 +18,28 @@ describe('plan review', () => {
     ]);
     expect(rows[1]!.departures).toEqual([{ at: 'Fri 06:10', socPct: (98 / 155) * 100 }]);
     expect(rows[0]!.chargers).toBe('C1');
+  });
+
+  it("marks the plug-ins and unplugs the bus's driver makes, in the run sheets' words", async () => {
+    const plan = planDetail();
+    const [first, ...rest] = plan.result!.sessions;
+    const result = {
+      ...plan.result!,
+      sessions: [{ ...first!, startMove: 'driver' as const, endMove: 'crew' as const }, ...rest],
+    };
+    expect(busRows({ ...plan, result }).find((r) => r.bus === '201')!.sessions[0]).toMatchObject({
+      plugInByDriver: true,
+      unplugByDriver: false,
+    });
+    TestBed.configureTestingModule({ providers: [provideHttpClient(), provideHttpClientTesting()] });
+    const fixture = TestBed.createComponent(BusPlanTable);
+    fixture.componentRef.setInput('rows', busRows({ ...plan, result }));
+    fixture.detectChanges();
+    const row = [...(fixture.nativeElement as HTMLElement).querySelectorAll('tbody tr')]
+      .map((r) => r.textContent!.replace(/\s+/g, ' '))
+      .find((t) => t.includes(' 201 '))!;
+    expect(row).toMatch(/18:00 Driver, on pulling in ?Thu 18:30/);
+    expect(row).not.toContain('on pulling out');
   });
 
   it('words every engine reason plainly', () => {
