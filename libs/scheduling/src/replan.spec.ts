@@ -104,6 +104,22 @@ describe('replan', () => {
     for (const x of others) expect(Date.parse(x.start)).toBeGreaterThanOrEqual(Date.parse(first.end));
   });
 
+  it('takes a bus the yard finds plugged in before its planned pull-in as back early: its stay starts now', async () => {
+    const s = depot();
+    const now = '2026-01-14T15:30';
+    // A bus still out on its runs at 15:30 by the scenario, reported on a charger then.
+    const bus = s.buses.find((b) => b.stays.some((st) => at(st.arrive) > at(now) && at(st.depart) > at(st.arrive)))!;
+    const charger = s.chargers[0]!.id;
+    const r = await replanOf(s, { now, plugged: { [bus.id]: charger }, outOfService: [s.chargers[1]!.id] });
+    expect(r.replan.scenario.buses.find((b) => b.id === bus.id)!.stays[0]!.arrive).toBe(now);
+    expect(r.replan.plugged).toEqual({ [bus.id]: charger });
+    const first = r.sessions
+      .filter((x) => x.bus === bus.id)
+      .sort((x, y) => Date.parse(x.start) - Date.parse(y.start))[0]!;
+    expect(first.charger).toBe(charger);
+    expect(Date.parse(first.start)).toBe(at(now));
+  });
+
   it('is reproducible and plans the same depot the same way from the start', async () => {
     const s = depot(8, 5);
     const a = await replan(s, { now: s.start }, options);

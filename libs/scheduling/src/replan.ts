@@ -36,7 +36,10 @@ export interface ReplanState {
    * one, the scenario's arrival energy less the runs already driven (nothing charged).
    */
   energyKwh?: Record<string, number>;
-  /** Buses on a charger at the cut-off (bus id to charger id): they keep it from the cut-off. */
+  /**
+   * Buses on a charger at the cut-off (bus id to charger id): they keep it from the cut-off. One
+   * that the scenario still has out on a run is taken as back early (its stay starts at the cut-off).
+   */
   plugged?: Record<string, string>;
   /** Chargers out of service from the cut-off on. */
   outOfService?: string[];
@@ -256,12 +259,13 @@ export function deriveScenario(scenario: Scenario, state: ReplanState) {
     else if (!chargerIds.has(chargerId)) add(['plugged', busId], `${chargerId} is not a charger of the scenario`);
     else if (!bus) continue;
     else if (late.has(busId)) add(['plugged', busId], 'a late bus cannot be plugged in already');
-    else if (localToMillis(bus.stays[0]!.arrive, zone)! > cutMs)
-      add(['plugged', busId], 'the bus is not at the depot now');
     else if (takenBy.has(chargerId)) add(['plugged', busId], `${chargerId} already holds ${takenBy.get(chargerId)}`);
     else if (outOfService.includes(chargerId))
       add(['plugged', busId], `${chargerId} is out of service: the bus is taken to another charger`);
     else {
+      // On a charger before its planned pull-in: the yard saw it plugged in, so it came back early
+      // and its stay starts now (refusing would leave a charger fault unreported for a bus's sake).
+      if (localToMillis(bus.stays[0]!.arrive, zone)! > cutMs) bus.stays[0] = { ...bus.stays[0]!, arrive: cutText };
       takenBy.set(chargerId, busId);
       plugged[busId] = chargerId;
     }
