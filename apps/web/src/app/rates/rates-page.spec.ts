@@ -54,6 +54,8 @@ describe('RatesPage', () => {
     await render(['finance']);
     expect(el.textContent).toContain('Commercial TOU');
     expect(el.textContent).toContain('In force today');
+    // The off-peak hours are billed too: the count of periods says so (Costs bills both).
+    expect(el.textContent!.replace(/\s+/g, ' ')).toMatch(/Off-peak and \d+ time-of-use periods? ·/);
     expect(el.querySelector('input[type="file"]')).toBeNull();
     expect(el.querySelector('form')).toBeNull();
     expect(el.textContent).not.toContain('New rate plan');
