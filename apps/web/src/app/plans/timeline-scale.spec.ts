@@ -56,6 +56,12 @@ describe('timeline scale', () => {
       const xs = ticks.map((t) => (t.left / 100) * width);
       for (let i = 1; i < xs.length; i++) expect(xs[i]! - xs[i - 1]!).toBeGreaterThanOrEqual(40);
     }
+    // From 15:45: the marks step evenly from the first (not 16:00, 18:00, 19:00...).
+    for (const width of [360, 500, 640, 800]) {
+      const hours = axisTicks(segs, 'America/Chicago', width).map((t) => Number(t.label.slice(0, 2)));
+      const steps = hours.slice(1).map((h, i) => (h - hours[i]! + 24) % 24);
+      expect(new Set(steps).size, `${width} px: ${hours.join(', ')}`).toBe(1);
+    }
     const narrow = axisTicks(segs, 'America/Chicago', 320);
     const wide = axisTicks(segs, 'America/Chicago', 1200);
     expect(wide.length).toBeGreaterThan(narrow.length);

@@ -109,7 +109,13 @@ export function axisTicks(segments: readonly Segment[], timeZone: string, widthP
       const edge = x < LABEL_PX / 2 ? 'start' : x > width - LABEL_PX / 2 ? 'end' : null;
       const from = edge === 'start' ? x : edge === 'end' ? x - LABEL_PX : x - LABEL_PX / 2;
       const last = out.at(-1);
-      if (last && (last.at === t || from < last.to + 4)) continue;
+      if (last && last.at === t) continue;
+      if (last && from < last.to + 4) {
+        // The label at the axis's start edge gives way to the next whole step (it hangs to the
+        // right of its mark, so keeping it dropped that step: 16:00, 18:00, 19:00...).
+        if (last.edge !== 'start' || out.length > 1) continue;
+        out.pop();
+      }
       out.push({ at: t, left, label, edge, from, to: from + LABEL_PX });
     }
   }
