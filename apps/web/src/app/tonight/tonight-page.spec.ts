@@ -182,6 +182,7 @@ describe('TonightPage', () => {
       charger('C3', { live: { status: 'charging', powerKw: 60, seenAt: null } }),
       charger('C4', { live: { status: 'offline', powerKw: null, seenAt: null }, status: 'out_of_service' }),
       charger('C5', { live: null }),
+      charger('C6', { live: { status: 'offline', powerKw: null, seenAt: '2026-12-01T13:20:00.000Z' } }),
     ]);
     for (const date of ['2026-12-01', '2026-11-30', '2026-11-29', '2026-11-28', '2026-11-27']) await night(date, []);
 
@@ -189,18 +190,20 @@ describe('TonightPage', () => {
     expect(count('charging')).toBe('2 Charging');
     expect(count('available')).toBe('1 Available');
     expect(count('faulted')).toBe('1 Faulted');
-    expect(count('offline')).toBe('1 Offline');
+    expect(count('offline')).toBe('2 Offline');
     expect(count('unknown')).toBe('1 No reading');
     expect(el.querySelector('.counts li[data-state="faulted"]')!.classList.contains('faulted')).toBe(true);
 
     const labels = [...el.querySelectorAll('.charger-list li')].map((li) => li.getAttribute('data-charger'));
-    expect(labels).toEqual(['C1', 'C2', 'C3', 'C4', 'C5', 'C10']);
+    expect(labels).toEqual(['C1', 'C2', 'C3', 'C4', 'C5', 'C6', 'C10']);
     const c = (label: string) => el.querySelector(`.charger-list li[data-charger="${label}"]`)!;
     expect(words(c('C1'))).toBe('C1 Charging, 42.5 kW');
     expect(words(c('C2'))).toBe('C2 Faulted');
     expect(c('C2').querySelector('mat-icon')?.textContent?.trim()).toBe('error');
     expect(c('C2').classList.contains('faulted')).toBe(true);
-    expect(words(c('C4'))).toBe('C4 Offline, out of service');
+    expect(words(c('C4'))).toBe('C4 Offline, not heard from yet, out of service');
+    // Last heard at the depot's time (America/Chicago here: 07:20 on 1 December).
+    expect(words(c('C6'))).toMatch(/^C6 Offline, last heard .*Dec 1.*07:20$/);
   });
 
   it('shows a fault pushed over the live stream at once, with the way to the re-plan, and drops it when cleared', async () => {

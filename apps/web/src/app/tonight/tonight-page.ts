@@ -169,6 +169,13 @@ export class TonightPage {
           stateLabel: info.label,
           icon: info.icon,
           power: state === 'charging' && c.live?.powerKw != null ? `${num(c.live.powerKw)} kW` : null,
+          // Offline: whether the charger has ever reported to Nightyard, and when it last did.
+          heard:
+            state !== 'offline'
+              ? null
+              : c.live?.seenAt
+                ? `last heard ${when(c.live.seenAt, this.timezone())}`
+                : 'not heard from yet',
           outOfService: outAt(c, new Date(this.clock.tick()), this.timezone()),
         };
       }),
