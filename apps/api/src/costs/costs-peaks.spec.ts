@@ -160,6 +160,54 @@ describe('peaks so far and the bill', () => {
     ).body;
     expect((plainBase.scenario.tariff as { peaksSoFarKw: Record<string, number> }).peaksSoFarKw).toEqual({});
   });
+  it("a night's plan counts the period's metered peak before it as a peak so far, as the month's bill does", async () => {
+    const { depot } = await createDepot(app.db, organisationId, 'Peaks depot H');
+    const [imp] = await app.db
+      .insert(meterImports)
+      .values({
+        organisationId,
+        depotId: depot.id,
+        fileName: 'dec.csv',
+        format: 'csv',
+        billingPeriodStart: '2026-12-01',
+        intervals: 1,
+        duplicates: 0,
+        gaps: [],
+      })
+      .returning();
+    // 30 kWh in the quarter hour from 14:00 on 8 December: 120 kW of demand this period.
+    await app.db.insert(meterIntervals).values({
+      organisationId,
+      depotId: depot.id,
+      importId: imp!.id,
+      startsAt: new Date('2026-12-08T14:00:00-06:00'),
+      minutes: 15,
+      kwh: 30,
+    });
+    const base = (
+      await app
+        .request()
+        .get(`/api/depots/${depot.id}/scenario-base`)
+        .query({ start: '2026-12-09T15:00', end: '2026-12-10T07:00' })
+        .set(as(sup))
+        .expect(200)
+    ).body;
+    expect((base.scenario.tariff as { peaksSoFarKw: Record<string, number> }).peaksSoFarKw.facility).toBeCloseTo(
+      120,
+      9,
+    );
+    expect(base.notes).toContainEqual(expect.stringMatching(/from the meter readings .*facility 120 kW/));
+    // The bill of the month charges that 120 kW whatever the night does below it.
+    const m = (
+      await app
+        .request()
+        .get(`/api/depots/${depot.id}/costs/month`)
+        .query({ date: '2026-12-10' })
+        .set(as(fin))
+        .expect(200)
+    ).body;
+    expect(line(m.projected.demand, 'Facility demand').quantity).toBeGreaterThanOrEqual(120 - 1e-9);
+  });
   it('5-minute meter readings are billed as 15-minute demand: added up into their quarter hour', async () => {
     // Demand is billed on the highest quarter hour (the brief). 3 + 5 + 4 kWh from 22:00 to 22:15
     // is 12 kWh, 48 kW; the 5 kWh reading alone would read 60 kW, and the first alone 36 kW.

@@ -5,9 +5,6 @@ import { DateTime } from 'luxon';
 import type { PeriodTargetView } from '@nightyard/contracts';
 import {
   parseScenario,
-  peaksOf,
-  quarterHours,
-  ratePlanPeriodAt,
   shiftScenario,
   type PeriodNight,
   type PeriodTarget,
@@ -15,7 +12,7 @@ import {
   type ScenarioInput,
 } from '@nightyard/scheduling';
 import type { Db } from '../db/client';
-import { meterIntervals, plans, runs } from '../db/schema';
+import { runs } from '../db/schema';
 import { DomainError } from '../http/errors';
 import type { AuthUser } from '../auth/auth-user';
 import { depotOf } from '../depots/depot-access';
@@ -23,6 +20,7 @@ import { buildNightScenario } from '../plans/night-scenario';
 import { buildScenarioBase } from '../scenarios/scenario-base';
 import { runInPool } from '../workers/pool';
 import { billingPeriodOf, ratePlanOn } from './billing-period';
+import { periodPeaksBefore } from './period-peaks';
 
 // The billing period's demand target, computed on demand from the data as it is: the nights left
 // in the period are built as the engine's scenarios (a night with runs from its runs, a weekday
@@ -66,7 +64,7 @@ const label = (date: string, zone: string) => DateTime.fromISO(date, { zone }).t
 /** A night's scenario from its runs, or null where the runs do not make one (no next service day...). */
 async function nightFromRuns(db: Db, caller: Caller, depotId: string, date: string): Promise<ScenarioInput | null> {
   try {
-    return (await buildNightScenario(db, caller, depotId, date, true)).scenario;
+    return (await buildNightScenario(db, caller, depotId, date, true, { periodPeaks: false })).scenario;
   } catch (err) {
     if (err instanceof DomainError) return null;
     throw err;
@@ -111,53 +109,13 @@ export async function periodNightsOf(
     return built.get(date)!;
   };
 
-  // Peaks the meter measured so far this period raise every night's peaks so far.
+  // Peaks the meter measured so far this period, and the published nights before this one, raise
+  // every night's peaks so far (the night scenarios are built without them: peaks: false below).
   const rate = await ratePlanOn(db, depot, periodStart);
-  const metered = await db
-    .select({ startsAt: meterIntervals.startsAt, kwh: meterIntervals.kwh, minutes: meterIntervals.minutes })
-    .from(meterIntervals)
-    .where(
-      and(
-        eq(meterIntervals.depotId, depotId),
-        gte(meterIntervals.startsAt, period.start.toJSDate()),
-        lt(meterIntervals.startsAt, period.end.toJSDate()),
-      ),
-    )
-    .orderBy(asc(meterIntervals.startsAt));
-  const intervals = quarterHours(
-    metered.map((m) => ({ startMs: m.startsAt.getTime(), minutes: m.minutes, kwh: m.kwh })),
-  );
-  const measured = intervals.length ? peaksOf(rate.definition, intervals, { zone, intervalMinutes: 15 }) : null;
-  // The published plans of the period's nights before this one set peaks too (where not metered).
-  const earlier = await db
-    .select({ result: plans.result })
-    .from(plans)
-    .where(
-      and(
-        eq(plans.depotId, depotId),
-        eq(plans.state, 'published'),
-        gte(plans.serviceDate, period.start.minus({ days: 1 }).toISODate()!),
-        lt(plans.serviceDate, fromDate),
-      ),
-    );
-  const startMs = period.start.toMillis();
-  const fromMs = DateTime.fromISO(fromDate, { zone }).set({ hour: 12 }).toMillis();
+  const before = await periodPeaksBefore(db, depotId, zone, rate.definition, period, fromDate);
   const set: PeaksFloor = { facility: floor?.facility ?? 0, periods: { ...(floor?.periods ?? {}) } };
-  if (measured) {
-    set.facility = Math.max(set.facility, measured.facility.kw);
-    for (const [name, p] of Object.entries(measured.periods))
-      set.periods[name] = Math.max(set.periods[name] ?? 0, p.kw);
-  }
-  for (const e of earlier) {
-    for (const slot of e.result?.slots ?? []) {
-      const t = Date.parse(slot.start);
-      if (t < startMs || t >= fromMs) continue;
-      set.facility = Math.max(set.facility, slot.loadKw);
-      const at = ratePlanPeriodAt(rate.definition, DateTime.fromMillis(t, { zone }));
-      if (!at.offPeak && at.demandCharge > 0)
-        set.periods[at.period] = Math.max(set.periods[at.period] ?? 0, slot.loadKw);
-    }
-  }
+  set.facility = Math.max(set.facility, before.facility);
+  for (const [name, kw] of Object.entries(before.periods)) set.periods[name] = Math.max(set.periods[name] ?? 0, kw);
 
   const nights: PeriodNights['nights'] = [];
   for (let d = DateTime.fromISO(fromDate, { zone }); d < period.end; d = d.plus({ days: 1 })) {
@@ -175,7 +133,7 @@ export async function periodNightsOf(
         const days = Math.round(d.diff(DateTime.fromISO(like!, { zone }), 'days').days);
         const moved = shiftScenario(likeNight, days);
         try {
-          const base = await buildScenarioBase(db, caller, depotId, moved.start, moved.end);
+          const base = await buildScenarioBase(db, caller, depotId, moved.start, moved.end, { periodPeaks: false });
           input = { ...base.scenario, buses: moved.buses } as ScenarioInput;
           basis = 'typical-weekday';
         } catch (err) {

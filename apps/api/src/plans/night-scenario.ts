@@ -33,6 +33,7 @@ export async function buildNightScenario(
   depotId: string,
   serviceDate: string,
   includeMidday: boolean,
+  options: { periodPeaks?: boolean } = {},
 ) {
   const depot = await depotOf(db, caller, depotId);
   const zone = depot.timezone;
@@ -81,7 +82,7 @@ export async function buildNightScenario(
   const start = quarter(from.length ? earliest(from) : dayStart.set({ hour: 12 }), false);
   const end = quarter(latest([...firstOut.values()].map((r) => at(r.run.pullOut))), true);
 
-  const base = await buildScenarioBase(db, caller, depotId, start.toFormat(LOCAL), end.toFormat(LOCAL));
+  const base = await buildScenarioBase(db, caller, depotId, start.toFormat(LOCAL), end.toFormat(LOCAL), options);
   notes.push(...base.notes);
 
   const scenarioBuses: Bus[] = [];

@@ -10,6 +10,7 @@ import type { AuthUser } from '../auth/auth-user';
 import { depotOf } from '../depots/depot-access';
 import { pricedSlots, seasonOf, type PricedSlot } from '@nightyard/scheduling';
 import { billingPeriodOf } from '../costs/billing-period';
+import { periodPeaksBefore } from '../costs/period-peaks';
 import { ratchetBaseOf } from '../costs/ratchet-base';
 
 /** Grid-to-battery efficiency of DC charging: about 0.90-0.95 (common practice). */
@@ -35,6 +36,7 @@ export async function buildScenarioBase(
   depotId: string,
   start: string,
   end: string,
+  options: { periodPeaks?: boolean } = {},
 ): Promise<ScenarioBaseResult> {
   const depot = await depotOf(db, caller, depotId);
   const zone = depot.timezone;
@@ -88,9 +90,9 @@ export async function buildScenarioBase(
   // highest (as the month's bill does, costs-service.ts): a night's peak below that floor adds
   // nothing to the bill, so the floor counts as a peak so far. Without it the plan would price the
   // whole peak at the demand rate and pay for energy to lower a peak the bill never charges.
+  const period = billingPeriodOf(from.toISODate()!, depot.billingStartDay, zone);
   const ratchet = definition.demandRatchet;
   if (ratchet && tariff.facilityDemandCharge > 0) {
-    const period = billingPeriodOf(from.toISODate()!, depot.billingStartDay, zone);
     const base = await ratchetBaseOf(db, depot, period, ratchet.months);
     const floorKw = base ? Math.round((ratchet.percent / 100) * base.kw * 1000) / 1000 : 0;
     if (base && floorKw > (peaksSoFarKw.facility ?? 0)) {
@@ -99,6 +101,30 @@ export async function buildScenarioBase(
         `The facility demand is billed at least at ${floorKw} kW this period (the rate plan's ratchet: ${ratchet.percent} % of ${Math.round(base.kw * 10) / 10} kW ${base.source}): the night's peak costs demand only above it.`,
       );
     }
+  }
+
+  // The period's own peaks before this night (meter readings, the nights published before it) are
+  // peaks so far too: the month's bill charges its highest once, so a night pays only for what it
+  // adds above them, as Costs counts it. (The demand target's nights get them from the period's
+  // computation, which passes periodPeaks: false.)
+  if (options.periodPeaks !== false) {
+    const before = await periodPeaksBefore(db, depotId, zone, definition, period, from.toISODate()!);
+    const raised: string[] = [];
+    if (before.facility > (peaksSoFarKw.facility ?? 0) + 1e-9) {
+      peaksSoFarKw.facility = before.facility;
+      raised.push(`facility ${Math.round(before.facility * 10) / 10} kW`);
+    }
+    for (const p of tariff.periods) {
+      const kw = before.periods[tariff.originalName.get(p.name)!];
+      if (kw !== undefined && kw > (peaksSoFarKw[p.name] ?? 0) + 1e-9) {
+        peaksSoFarKw[p.name] = kw;
+        raised.push(`${p.name} ${Math.round(kw * 10) / 10} kW`);
+      }
+    }
+    if (raised.length)
+      notes.push(
+        `Peaks so far this billing period from the meter readings and the nights published before this one: ${raised.join(', ')}; the night's peak costs demand only above them.`,
+      );
   }
 
   const cabs = await db.select().from(powerCabinets).where(eq(powerCabinets.depotId, depotId));
