@@ -42,6 +42,19 @@ async function ratchetDepot(name: string, november: { startsAt: Date; minutes: n
   return depot;
 }
 
+/** The site and tariff of the night of Wednesday 9 December at a depot, as a plan is made from: its peaks so far and notes. */
+async function nightBase(depotId: string): Promise<{ peaksSoFarKw: Record<string, number>; notes: string[] }> {
+  const body = (
+    await app
+      .request()
+      .get(`/api/depots/${depotId}/scenario-base`)
+      .query({ start: '2026-12-09T15:00', end: '2026-12-10T07:00' })
+      .set(as(sup))
+      .expect(200)
+  ).body as { scenario: { tariff: { peaksSoFarKw: Record<string, number> } }; notes: string[] };
+  return { peaksSoFarKw: body.scenario.tariff.peaksSoFarKw, notes: body.notes };
+}
+
 beforeAll(async () => {
   const org = await createOrganisation(app, { fin: ['finance'], sup: ['supervisor'] });
   fin = org.users.fin!;
@@ -136,29 +149,15 @@ describe('peaks so far and the bill', () => {
     const depot = await ratchetDepot('Peaks depot F', [
       { startsAt: new Date('2026-11-10T14:00:00-06:00'), minutes: 15, kwh: 100 },
     ]);
-    const base = (
-      await app
-        .request()
-        .get(`/api/depots/${depot.id}/scenario-base`)
-        .query({ start: '2026-12-09T15:00', end: '2026-12-10T07:00' })
-        .set(as(sup))
-        .expect(200)
-    ).body;
+    const base = await nightBase(depot.id);
     // 80 % of November's 400 kW: December's bill charges at least 320 kW (the test above), so a
     // night's peak up to 320 kW adds no facility demand charge.
-    expect((base.scenario.tariff as { peaksSoFarKw: Record<string, number> }).peaksSoFarKw.facility).toBe(320);
+    expect(base.peaksSoFarKw.facility).toBe(320);
     expect(base.notes).toContainEqual(expect.stringMatching(/at least at 320 kW.*80 % of 400 kW from meter readings/));
     // Without a ratchet, no floor: nothing was entered or metered for December.
     const plain = await createDepot(app.db, organisationId, 'Peaks depot G');
-    const plainBase = (
-      await app
-        .request()
-        .get(`/api/depots/${plain.depot.id}/scenario-base`)
-        .query({ start: '2026-12-09T15:00', end: '2026-12-10T07:00' })
-        .set(as(sup))
-        .expect(200)
-    ).body;
-    expect((plainBase.scenario.tariff as { peaksSoFarKw: Record<string, number> }).peaksSoFarKw).toEqual({});
+    const plainBase = await nightBase(plain.depot.id);
+    expect(plainBase.peaksSoFarKw).toEqual({});
   });
   it("a night's plan counts the period's metered peak before it as a peak so far, as the month's bill does", async () => {
     const { depot } = await createDepot(app.db, organisationId, 'Peaks depot H');
@@ -184,18 +183,8 @@ describe('peaks so far and the bill', () => {
       minutes: 15,
       kwh: 30,
     });
-    const base = (
-      await app
-        .request()
-        .get(`/api/depots/${depot.id}/scenario-base`)
-        .query({ start: '2026-12-09T15:00', end: '2026-12-10T07:00' })
-        .set(as(sup))
-        .expect(200)
-    ).body;
-    expect((base.scenario.tariff as { peaksSoFarKw: Record<string, number> }).peaksSoFarKw.facility).toBeCloseTo(
-      120,
-      9,
-    );
+    const base = await nightBase(depot.id);
+    expect(base.peaksSoFarKw.facility).toBeCloseTo(120, 9);
     expect(base.notes).toContainEqual(expect.stringMatching(/from the meter readings .*facility 120 kW/));
     // The bill of the month charges that 120 kW whatever the night does below it.
     const m = (
