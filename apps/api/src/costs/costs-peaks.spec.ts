@@ -42,6 +42,11 @@ async function ratchetDepot(name: string, november: { startsAt: Date; minutes: n
   return depot;
 }
 
+/** The costs month holding `date` at a depot, as finance reads it. */
+async function monthOf(depotId: string, date: string) {
+  return (await app.request().get(`/api/depots/${depotId}/costs/month`).query({ date }).set(as(fin)).expect(200)).body;
+}
+
 /** The site and tariff of the night of Wednesday 9 December at a depot, as a plan is made from: its peaks so far and notes. */
 async function nightBase(depotId: string): Promise<{ peaksSoFarKw: Record<string, number>; notes: string[] }> {
   const body = (
@@ -67,14 +72,7 @@ beforeAll(async () => {
 describe('peaks so far and the bill', () => {
   it('November without plans: the building\'s 20 kW is the peak shown and the peak billed (not "0 kW" beside $240 of demand)', async () => {
     const { depot } = await createDepot(app.db, organisationId, 'Peaks depot A');
-    const m = (
-      await app
-        .request()
-        .get(`/api/depots/${depot.id}/costs/month`)
-        .query({ date: '2026-11-10' })
-        .set(as(fin))
-        .expect(200)
-    ).body;
+    const m = await monthOf(depot.id, '2026-11-10');
     const facility = line(m.monthToDate.demand, 'Facility demand');
     expect(facility.quantity).toBeCloseTo(20, 9);
     expect(facility.amount).toBeCloseTo(20 * 12, 9);
@@ -90,14 +88,7 @@ describe('peaks so far and the bill', () => {
       facilityKw: 60,
       periodsKw: { 'on-peak': 48 },
     });
-    const m = (
-      await app
-        .request()
-        .get(`/api/depots/${depot.id}/costs/month`)
-        .query({ date: '2026-12-10' })
-        .set(as(fin))
-        .expect(200)
-    ).body;
+    const m = await monthOf(depot.id, '2026-12-10');
     for (const bill of [m.projected, m.monthToDate]) {
       expect(line(bill.demand, 'Demand, on-peak').quantity).toBe(48);
       expect(line(bill.demand, 'Demand, on-peak').note).toMatch(/entered in Depot/);
@@ -106,14 +97,7 @@ describe('peaks so far and the bill', () => {
     expect(m.peaks.facility).toMatchObject({ kw: 60, source: 'entered' });
     expect(m.peaks.periods).toEqual([{ name: 'on-peak', kw: 48, at: null }]);
     // A period other than the one entered for is not raised.
-    const nov = (
-      await app
-        .request()
-        .get(`/api/depots/${depot.id}/costs/month`)
-        .query({ date: '2026-11-10' })
-        .set(as(fin))
-        .expect(200)
-    ).body;
+    const nov = await monthOf(depot.id, '2026-11-10');
     expect(line(nov.projected.demand, 'Facility demand').quantity).toBeCloseTo(20, 9);
   });
 
@@ -121,14 +105,7 @@ describe('peaks so far and the bill', () => {
     const depot = await ratchetDepot('Peaks depot C', [
       { startsAt: new Date('2026-11-10T14:00:00-06:00'), minutes: 15, kwh: 100 },
     ]);
-    const m = (
-      await app
-        .request()
-        .get(`/api/depots/${depot.id}/costs/month`)
-        .query({ date: '2026-12-10' })
-        .set(as(fin))
-        .expect(200)
-    ).body;
+    const m = await monthOf(depot.id, '2026-12-10');
     const facility = line(m.projected.demand, 'Facility demand');
     expect(facility.quantity).toBeCloseTo(320, 9);
     expect(facility.amount).toBeCloseTo(320 * 12, 9);
@@ -187,14 +164,7 @@ describe('peaks so far and the bill', () => {
     expect(base.peaksSoFarKw.facility).toBeCloseTo(120, 9);
     expect(base.notes).toContainEqual(expect.stringMatching(/from the meter readings .*facility 120 kW/));
     // The bill of the month charges that 120 kW whatever the night does below it.
-    const m = (
-      await app
-        .request()
-        .get(`/api/depots/${depot.id}/costs/month`)
-        .query({ date: '2026-12-10' })
-        .set(as(fin))
-        .expect(200)
-    ).body;
+    const m = await monthOf(depot.id, '2026-12-10');
     expect(line(m.projected.demand, 'Facility demand').quantity).toBeGreaterThanOrEqual(120 - 1e-9);
   });
   it('5-minute meter readings are billed as 15-minute demand: added up into their quarter hour', async () => {
@@ -219,14 +189,7 @@ describe('peaks so far and the bill', () => {
       .expect(201);
     expect(imported.body).toMatchObject({ minutes: 5, intervals: 4 });
     expect(imported.body.peaks.facilityKw).toBeCloseTo(48, 9);
-    const m = (
-      await app
-        .request()
-        .get(`/api/depots/${depot.id}/costs/month`)
-        .query({ date: '2026-12-10' })
-        .set(as(fin))
-        .expect(200)
-    ).body;
+    const m = await monthOf(depot.id, '2026-12-10');
     // The incomplete quarter from 22:15 (one reading of three) is not read as a 4 kW quarter.
     expect(m.peaks.facility.kw).toBeCloseTo(48, 9);
     expect(line(m.monthToDate.demand, 'Facility demand').quantity).toBeCloseTo(48, 9);
@@ -243,14 +206,7 @@ describe('peaks so far and the bill', () => {
         kwh,
       })),
     );
-    const m = (
-      await app
-        .request()
-        .get(`/api/depots/${depot.id}/costs/month`)
-        .query({ date: '2026-12-10' })
-        .set(as(fin))
-        .expect(200)
-    ).body;
+    const m = await monthOf(depot.id, '2026-12-10');
     expect(line(m.projected.demand, 'Facility demand').quantity).toBeCloseTo(320, 9);
   });
 });
