@@ -110,10 +110,15 @@ describe('ReportDialog', () => {
       },
       { status: 400, statusText: 'Bad Request' },
     );
+    const scrolled = vi.fn();
+    Element.prototype.scrollIntoView = scrolled;
     await render();
     expect(errors()).toContain("Not in tonight's plan");
     expect(el.textContent).toContain("Bus 203 is not in tonight's plan for North Depot");
     expect(el.textContent).toContain('Nothing was changed');
+    // Brought into view: on a phone the message sits below the form.
+    expect(scrolled.mock.contexts).toContain(el.querySelector('.problem'));
+    delete (Element.prototype as Partial<Element>).scrollIntoView;
   });
 
   it('takes the late bus time as HH:mm, 24-hour: a 12-hour time is refused, digits become HH:mm', async () => {

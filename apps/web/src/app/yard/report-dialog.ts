@@ -1,4 +1,13 @@
-import { ChangeDetectionStrategy, Component, computed, inject, signal } from '@angular/core';
+import {
+  ChangeDetectionStrategy,
+  Component,
+  ElementRef,
+  afterRenderEffect,
+  computed,
+  inject,
+  signal,
+  viewChild,
+} from '@angular/core';
 import { takeUntilDestroyed, toSignal } from '@angular/core/rxjs-interop';
 import { FormControl, FormGroup, ReactiveFormsModule, type ValidatorFn } from '@angular/forms';
 import { MatButtonModule } from '@angular/material/button';
@@ -130,6 +139,14 @@ export class ReportDialog {
 
   protected readonly phase = signal<'form' | 'sending' | 'done' | 'conflict'>('form');
   protected readonly problems = signal<string[]>([]);
+  private readonly problemBox = viewChild<ElementRef<HTMLElement>>('problemBox');
+  /**
+   * A refusal is brought into view: on a phone the form is taller than the dialog, and a message
+   * below the fold left a yard user who had just tagged out a charger with no visible answer.
+   */
+  private readonly showProblems = afterRenderEffect(() => {
+    if (this.problems().length) this.problemBox()?.nativeElement.scrollIntoView?.({ block: 'nearest' });
+  });
   protected readonly result = signal<YardReportResult | null>(null);
   protected readonly moved = computed(() => {
     const r = this.result();
