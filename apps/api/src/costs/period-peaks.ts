@@ -5,6 +5,7 @@ import { peaksOf, quarterHours, ratePlanPeriodAt } from '@nightyard/scheduling';
 import type { Db } from '../db/client';
 import { meterIntervals, plans } from '../db/schema';
 import type { BillingPeriod } from './billing-period';
+import { ratchetBaseOf } from './ratchet-base';
 
 /** Peaks a billing period has set, by name: the whole facility's and each rate-plan period's. */
 export interface PeriodPeaks {
@@ -13,20 +14,29 @@ export interface PeriodPeaks {
   periods: Record<string, number>;
 }
 
+/** The facility demand a rate plan's ratchet bills at least this period, and what it is a share of. */
+export interface RatchetFloor {
+  kw: number;
+  percent: number;
+  base: { kw: number; source: string };
+}
+
 /**
  * The peaks the billing period has set before the night of `fromDate`: what the meter measured in
  * the period (15-minute demand), and where not metered the site load of the period's nights
  * published before that night. The month's bill charges demand on the period's highest, so a
- * night's peak costs only what it adds above these.
+ * night's peak costs only what it adds above these. With a demand ratchet on the facility demand,
+ * also its floor: the bill charges at least that (costs-service.ts), so a peak below it adds nothing.
  */
 export async function periodPeaksBefore(
   db: Db,
-  depotId: string,
+  depot: { id: string; otherLoadKw: number[] },
   zone: string,
   rate: RatePlanDefinition,
   period: BillingPeriod,
   fromDate: string,
-): Promise<PeriodPeaks> {
+): Promise<PeriodPeaks & { ratchet: RatchetFloor | null }> {
+  const depotId = depot.id;
   const out: PeriodPeaks = { facility: 0, periods: {} };
   const metered = await db
     .select({ startsAt: meterIntervals.startsAt, kwh: meterIntervals.kwh, minutes: meterIntervals.minutes })
@@ -62,7 +72,7 @@ export async function periodPeaksBefore(
   const startMs = period.start.toMillis();
   const fromMs = DateTime.fromISO(fromDate, { zone }).set({ hour: 12 }).toMillis();
   for (const e of earlier) {
-    for (const slot of (e.result as { slots?: { start: string; loadKw: number }[] } | null)?.slots ?? []) {
+    for (const slot of e.result?.slots ?? []) {
       const t = Date.parse(slot.start);
       if (t < startMs || t >= fromMs) continue;
       out.facility = Math.max(out.facility, slot.loadKw);
@@ -71,5 +81,12 @@ export async function periodPeaksBefore(
         out.periods[at.period] = Math.max(out.periods[at.period] ?? 0, slot.loadKw);
     }
   }
-  return out;
+  const ratchet = rate.demandRatchet;
+  const charged = rate.seasons.some((season) => season.facilityDemandCharge > 0);
+  const base = ratchet && charged ? await ratchetBaseOf(db, depot, period, ratchet.months) : null;
+  const floor =
+    ratchet && base
+      ? { kw: Math.round((ratchet.percent / 100) * base.kw * 1000) / 1000, percent: ratchet.percent, base }
+      : null;
+  return { ...out, ratchet: floor };
 }

@@ -20,7 +20,7 @@ import { buildNightScenario } from '../plans/night-scenario';
 import { buildScenarioBase } from '../scenarios/scenario-base';
 import { runInPool } from '../workers/pool';
 import { billingPeriodOf, ratePlanOn } from './billing-period';
-import { periodPeaksBefore } from './period-peaks';
+import { periodPeaksBefore, type PeriodPeaks } from './period-peaks';
 
 // The billing period's demand target, computed on demand from the data as it is: the nights left
 // in the period are built as the engine's scenarios (a night with runs from its runs, a weekday
@@ -48,10 +48,7 @@ export function planningJobCaller(organisationId: string): AuthUser {
 }
 
 /** Peaks the period has already set, by name ('facility' and each period): the target's floor. */
-export interface PeaksFloor {
-  facility: number;
-  periods: Record<string, number>;
-}
+export type PeaksFloor = PeriodPeaks;
 
 export interface PeriodNights {
   nights: (PeriodNight & { date: string })[];
@@ -109,12 +106,13 @@ export async function periodNightsOf(
     return built.get(date)!;
   };
 
-  // Peaks the meter measured so far this period, and the published nights before this one, raise
-  // every night's peaks so far (the night scenarios are built without them: peaks: false below).
+  // Peaks the meter measured so far this period, the published nights before this one and a
+  // demand ratchet's floor raise every night's peaks so far, counted once for the period (the night
+  // scenarios are built without them: periodPeaks: false below).
   const rate = await ratePlanOn(db, depot, periodStart);
-  const before = await periodPeaksBefore(db, depotId, zone, rate.definition, period, fromDate);
+  const before = await periodPeaksBefore(db, depot, zone, rate.definition, period, fromDate);
   const set: PeaksFloor = { facility: floor?.facility ?? 0, periods: { ...(floor?.periods ?? {}) } };
-  set.facility = Math.max(set.facility, before.facility);
+  set.facility = Math.max(set.facility, before.facility, before.ratchet?.kw ?? 0);
   for (const [name, kw] of Object.entries(before.periods)) set.periods[name] = Math.max(set.periods[name] ?? 0, kw);
 
   const nights: PeriodNights['nights'] = [];

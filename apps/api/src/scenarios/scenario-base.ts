@@ -11,7 +11,6 @@ import { depotOf } from '../depots/depot-access';
 import { pricedSlots, seasonOf, type PricedSlot } from '@nightyard/scheduling';
 import { billingPeriodOf } from '../costs/billing-period';
 import { periodPeaksBefore } from '../costs/period-peaks';
-import { ratchetBaseOf } from '../costs/ratchet-base';
 
 /** Grid-to-battery efficiency of DC charging: about 0.90-0.95 (common practice). */
 export const DEFAULT_EFFICIENCY = 0.92;
@@ -86,29 +85,22 @@ export async function buildScenarioBase(
     }
   }
 
-  // A demand ratchet bills the facility demand at least at its share of the previous months'
-  // highest (as the month's bill does, costs-service.ts): a night's peak below that floor adds
-  // nothing to the bill, so the floor counts as a peak so far. Without it the plan would price the
-  // whole peak at the demand rate and pay for energy to lower a peak the bill never charges.
-  const period = billingPeriodOf(from.toISODate()!, depot.billingStartDay, zone);
-  const ratchet = definition.demandRatchet;
-  if (ratchet && tariff.facilityDemandCharge > 0) {
-    const base = await ratchetBaseOf(db, depot, period, ratchet.months);
-    const floorKw = base ? Math.round((ratchet.percent / 100) * base.kw * 1000) / 1000 : 0;
-    if (base && floorKw > (peaksSoFarKw.facility ?? 0)) {
-      peaksSoFarKw.facility = floorKw;
+  // The period's own peaks before this night (meter readings, the nights published before it) and
+  // a demand ratchet's floor are peaks so far: the month's bill charges its highest once, and at
+  // least the ratchet's share of the previous months' highest (costs-service.ts), so a night pays
+  // only for what it adds above them, as Costs counts it. Without the floor the plan would price
+  // the whole peak at the demand rate and pay for energy to lower a peak the bill never charges.
+  // (The demand target counts them once for the whole period: its nights pass periodPeaks: false.)
+  if (options.periodPeaks !== false) {
+    const period = billingPeriodOf(from.toISODate()!, depot.billingStartDay, zone);
+    const before = await periodPeaksBefore(db, depot, zone, definition, period, from.toISODate()!);
+    const floor = before.ratchet;
+    if (floor && tariff.facilityDemandCharge > 0 && floor.kw > (peaksSoFarKw.facility ?? 0)) {
+      peaksSoFarKw.facility = floor.kw;
       notes.push(
-        `The facility demand is billed at least at ${floorKw} kW this period (the rate plan's ratchet: ${ratchet.percent} % of ${Math.round(base.kw * 10) / 10} kW ${base.source}): the night's peak costs demand only above it.`,
+        `The facility demand is billed at least at ${floor.kw} kW this period (the rate plan's ratchet: ${floor.percent} % of ${Math.round(floor.base.kw * 10) / 10} kW ${floor.base.source}): the night's peak costs demand only above it.`,
       );
     }
-  }
-
-  // The period's own peaks before this night (meter readings, the nights published before it) are
-  // peaks so far too: the month's bill charges its highest once, so a night pays only for what it
-  // adds above them, as Costs counts it. (The demand target's nights get them from the period's
-  // computation, which passes periodPeaks: false.)
-  if (options.periodPeaks !== false) {
-    const before = await periodPeaksBefore(db, depotId, zone, definition, period, from.toISODate()!);
     const raised: string[] = [];
     if (before.facility > (peaksSoFarKw.facility ?? 0) + 1e-9) {
       peaksSoFarKw.facility = before.facility;

@@ -1,5 +1,6 @@
 import { ChangeDetectionStrategy, Component, input } from '@angular/core';
 import { MatIconModule } from '@angular/material/icon';
+import { moveBy } from '../yard/yard-format';
 import { num, type BusPlanRow } from './plan-format';
 
 /** The plan bus by bus: short buses first, with how much and why in plain words. */
@@ -47,7 +48,7 @@ import { num, type BusPlanRow } from './plan-format';
                   <span class="line"
                     >{{ s.plugIn }}
                     @if (s.plugInByDriver) {
-                      <span class="by">Driver, on pulling in</span>
+                      <span class="by">{{ driverIn }}</span>
                     }
                   </span>
                 }
@@ -57,7 +58,7 @@ import { num, type BusPlanRow } from './plan-format';
                   <span class="line"
                     >{{ s.unplug }}
                     @if (s.unplugByDriver) {
-                      <span class="by">Driver, on pulling out</span>
+                      <span class="by">{{ driverOut }}</span>
                     }
                   </span>
                 }
@@ -278,9 +279,12 @@ export class BusPlanTable {
   /** Buses that leave at their ceiling and top up at the next midday layover. */
   readonly topUps = input<readonly string[]>([]);
   protected readonly num = num;
-  /** Which moves of a plug-in its driver makes, in the run sheets' words. */
+  // The run sheets' words for the driver's moves (yard-format.ts), one wording on both screens.
+  protected readonly driverIn = moveBy({ action: 'connect', by: 'driver' });
+  protected readonly driverOut = moveBy({ action: 'disconnect', by: 'driver' });
+  /** Which moves of a plug-in its driver makes. */
   protected driverMoves(s: BusPlanRow['sessions'][number]): string {
-    if (s.plugInByDriver && s.unplugByDriver) return 'Driver, on pulling in and on pulling out';
-    return s.plugInByDriver ? 'Driver, on pulling in' : 'Driver, on pulling out';
+    if (s.plugInByDriver && s.unplugByDriver) return `${this.driverIn} and ${this.driverOut.replace(/^Driver, /, '')}`;
+    return s.plugInByDriver ? this.driverIn : this.driverOut;
   }
 }
