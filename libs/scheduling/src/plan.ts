@@ -82,6 +82,12 @@ export interface Plan {
   crewTrade: { fewerMoves: number; extraCost: number } | null;
   /** Re-planning: the plan being carried out was kept wherever it could be, for this much more. */
   keptPrevious: { extraCost: number } | null;
+  /**
+   * Re-planning, when the plan being carried out could not be kept within the depot's tolerance:
+   * the best plan found that keeps it, against the plan chosen (money it would cost more, kWh it
+   * would leave short beyond the chosen plan's), and what the tolerance allows. Null otherwise.
+   */
+  previousRefused: { extraCost: number; extraShortKwh: number; allowed: number } | null;
   buses: PlanBus[];
   savings: {
     energy: number;
@@ -464,9 +470,11 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
     // Above the relaxation's bound with crew windows: the bound that knows who holds each
     // charger while nobody is in the yard (crew-bound.ts) shows how far the plan can be from
     // the optimum. Counted nodes; a bound cut by the time cap is left unused.
-    // A re-plan keeps what it can of the plan before (stable.ts) and its plugged-in buses where
-    // they are, which the crew's-night candidates know nothing of: it keeps the old path.
-    const replanning = !!problem.previous || !!problem.pinned?.some((c) => c >= 0);
+    // Buses already plugged in keep their chargers, which the crew's-night candidates know nothing
+    // of: such a re-plan keeps the old path. A re-plan with none (a fault before the first pull-in,
+    // a regeneration) takes it, so that the cheapest plan it keeps the old one against is as good
+    // as a fresh plan's (the kept plan is chosen after, in preferStableAndFewerMoves).
+    const replanning = !!problem.pinned?.some((c) => c >= 0);
     if (
       search.result.objective > target &&
       options.crewNight !== false &&
@@ -770,6 +778,7 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
   plan.stats.crewBound = crewBoundStats;
   plan.crewTrade = chosen.crewTrade;
   plan.keptPrevious = chosen.keptPrevious;
+  plan.previousRefused = chosen.previousRefused ?? null;
   plan.stats.lpColumns = live.model.lp.numCols;
   plan.stats.lpRows = live.model.lp.numRows;
   plan.stats.lowerBoundMs = round(lb.ms, 1);
@@ -788,6 +797,7 @@ interface Chosen {
   result: LpResult;
   crewTrade: Plan['crewTrade'];
   keptPrevious: Plan['keptPrevious'];
+  previousRefused?: Plan['previousRefused'];
 }
 
 /**
@@ -805,7 +815,8 @@ function preferStableAndFewerMoves(
 ): Chosen {
   const all = problem.buses.map((b) => b.index);
   const base = result.objective;
-  const limit = base + Math.max(problem.tolerance.share * Math.abs(base), problem.tolerance.amount);
+  const allowed = Math.max(problem.tolerance.share * Math.abs(base), problem.tolerance.amount);
+  const limit = base + allowed;
   let chosen: Chosen = { assignment: cheapest, result, crewTrade: null, keptPrevious: null };
   const repair = problem.previous
     ? stableRepair(problem, hints, live, {
@@ -828,7 +839,24 @@ function preferStableAndFewerMoves(
     // general searches from the repaired plan, each change saving a tenth of the tolerance's
     // amount; the cheapest plan when even that stays outside the tolerance.
     const start = repair?.result.status === 'optimal' ? repair.assignment : keptAssignment(problem, hints.energy);
-    if (start) chosen = searchFromKept(problem, hints, live, start, limit, base, limits) ?? chosen;
+    const kept = start ? searchFromKept(problem, hints, live, start, limit, base, limits) : null;
+    if (kept && 'keptPrevious' in kept) chosen = kept;
+    else if (kept) {
+      // What keeping it would have taken, beside the plan chosen, so the review can say so.
+      const shortChosen = shortfallIn(problem, live, result);
+      const extraShortKwh = Math.max(0, kept.shortKwh - shortChosen);
+      chosen.previousRefused = {
+        extraCost: round(
+          Math.max(
+            0,
+            kept.objective - problem.shortfallPenalty * kept.shortKwh - (base - problem.shortfallPenalty * shortChosen),
+          ),
+          2,
+        ),
+        extraShortKwh: round(extraShortKwh, 1),
+        allowed: round(allowed, 2),
+      };
+    }
   }
   if (problem.yard && !chosen.keptPrevious) {
     const movesBefore = countCrewMoves(problem, cheapest);
@@ -865,7 +893,7 @@ function searchFromKept(
   limit: number,
   base: number,
   limits: { deadline: number; maxMoves: number; target: number },
-): Chosen | null {
+): Chosen | { objective: number; shortKwh: number } | null {
   const all = problem.buses.map((b) => b.index);
   live.update(kept, all);
   const first = live.solve();
@@ -884,7 +912,9 @@ function searchFromKept(
     });
     if (lns.result.objective < search.result.objective) search = { assignment: lns.assignment, result: lns.result };
   }
-  if (search.result.objective > limit) return null;
+  // Outside the tolerance: its cost (money and kWh short), for the review.
+  if (search.result.objective > limit)
+    return { objective: search.result.objective, shortKwh: shortfallIn(problem, live, search.result) };
   return {
     assignment: search.assignment,
     result: search.result,
@@ -1171,6 +1201,7 @@ function assemblePlan(
     crewMoves,
     crewTrade: null,
     keptPrevious: null,
+    previousRefused: null,
     buses: busOut,
     savings: {
       energy: round(baseline.energy - cost.energy),

@@ -1,7 +1,9 @@
+import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
 import { planScenario, type Plan } from './plan.js';
 import { replan, ReplanStateError, type Replan, type ReplanState } from './replan.js';
 import { parseScenario, type Scenario } from './scenario.js';
+import { parsedScenario } from './testing/crew-yard.js';
 import { generateDepot } from './testing/generate-depot.js';
 import { checkPlan } from './testing/plan-checker.js';
 
@@ -126,6 +128,30 @@ describe('replan', () => {
     const b = await planScenario(s, options);
     expect(a.sessions).toEqual(b.sessions);
     expect(a.cost).toEqual(b.cost);
+  });
+
+  it('a fault before the first pull-in: the plan being carried out is kept only within the tolerance of as good a plan as a fresh one, and the reason says what keeping it costs', async () => {
+    // The demo depot's night as the API writes it (testing/demo-night.json: invented demo data,
+    // the evening and early-morning crews, a $5 tolerance), two chargers out two minutes in,
+    // nothing plugged in yet. Before, such a re-plan left out the crew's-night path, so its
+    // cheapest plan was dearer than a fresh one and a kept plan $77 dearer read as "$0 extra".
+    const s = parsedScenario(JSON.parse(readFileSync(new URL('./testing/demo-night.json', import.meta.url), 'utf8')));
+    const before = await planScenario(s);
+    const state = { now: '2026-12-03T15:47', outOfService: ['C1', 'C8'] };
+    const r = await replan(s, { ...state, previous: before });
+    expect(checkPlan(r.replan.scenario, r)).toEqual([]);
+    const fresh = await replan(s, state);
+    const allowed = Math.max(0.005 * fresh.cost.total, 5);
+    expect(r.cost.total).toBeLessThanOrEqual(fresh.cost.total + allowed + 1e-6);
+    if (r.keptPrevious) {
+      expect(r.keptPrevious.extraCost).toBeLessThanOrEqual(allowed + 0.005);
+    } else {
+      expect(r.previousRefused!.allowed).toBeCloseTo(allowed, 2);
+      expect(r.previousRefused!.extraCost).toBeGreaterThan(allowed);
+      expect(r.replan.moved.reasons.at(-1)).toMatch(
+        /^the plan being carried out could not be kept within the depot's cost tolerance \(keeping it: \$[\d,]+\.\d\d more, where \$5\.00 is allowed\): the rest of the night was planned afresh \(\d+ other bus(es)? moved\)$/,
+      );
+    }
   });
 
   it('rejects a state that does not fit the scenario, with field paths', async () => {

@@ -119,7 +119,7 @@ export async function replan(scenario: Scenario, state: ReplanState, options: Pl
   if (state.previous) problem.previous = previousWindows(problem, state.previous);
   const plan = planProblem(problem, solver, options, t0);
   const moved = state.previous
-    ? movedBuses(problem, state.previous, plan, state, outOfService)
+    ? movedBuses(problem, state.previous, plan, state, outOfService, scenario.tariff.currency)
     : { buses: [], reasons: [] };
   return { ...plan, replan: { from: problem.slots[0]!.start, scenario: derived, outOfService, plugged, kept, moved } };
 }
@@ -339,6 +339,7 @@ function movedBuses(
   plan: Plan,
   state: ReplanState,
   outOfService: string[],
+  currency: string,
 ) {
   const cutMs = problem.slots[0]!.startMs;
   const key = (p: Plan, bus: string) =>
@@ -369,7 +370,18 @@ function movedBuses(
     reasons.push(`${others} other ${others === 1 ? 'bus' : 'buses'} moved to make room or to keep the cost down`);
   else if (others > 0)
     reasons.push(
-      `the plan being carried out could not be kept within the depot's cost tolerance: the rest of the night was planned afresh (${others} other ${others === 1 ? 'bus' : 'buses'} moved)`,
+      `the plan being carried out could not be kept within the depot's cost tolerance${refusedWhy(plan.previousRefused, currency)}: the rest of the night was planned afresh (${others} other ${others === 1 ? 'bus' : 'buses'} moved)`,
     );
   return { buses, reasons };
+}
+
+/** What keeping the plan being carried out would have taken, in words (" (keeping it: $21.54 more, $5.00 allowed)"). */
+function refusedWhy(refused: Plan['previousRefused'], currency: string): string {
+  if (!refused) return '';
+  const money = (v: number) => new Intl.NumberFormat('en-US', { style: 'currency', currency }).format(v);
+  const parts: string[] = [];
+  if (refused.extraCost >= 0.005) parts.push(`${money(refused.extraCost)} more`);
+  if (refused.extraShortKwh >= 0.05) parts.push(`${refused.extraShortKwh.toFixed(1)} kWh more short`);
+  if (!parts.length) return '';
+  return ` (keeping it: ${parts.join(' and ')}, where ${money(refused.allowed)} is allowed)`;
 }

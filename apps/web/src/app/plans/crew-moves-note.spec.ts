@@ -28,6 +28,22 @@ describe('crew moves note', () => {
     );
   });
 
+  it('says what keeping the rest of the night costs in a re-plan that kept it', () => {
+    const r = {
+      sessions: [],
+      keptPrevious: { extraCost: 3.1 },
+      replan: { moved: { buses: ['B1'], reasons: ['charger C3 out of service: 1 bus was planned on it'] } },
+    } as unknown as PlanResult;
+    expect(crewMovesLines(r, 'USD').at(-1)).toBe(
+      'Keeping the rest of the plan being carried out costs $3.10 more than the cheapest plan found.',
+    );
+    const free = { ...r, keptPrevious: { extraCost: 0 } } as PlanResult;
+    expect(crewMovesLines(free, 'USD').at(-1)).toBe(
+      'Keeping the rest of the plan being carried out costs no more than the cheapest plan found.',
+    );
+    expect(crewMovesLines({ ...r, keptPrevious: null } as PlanResult, 'USD').at(-1)).toMatch(/^Re-plan: 1 bus moved/);
+  });
+
   it('says nothing for a plan made before the crew rules', () => {
     expect(crewMovesLines({ sessions: [] } as unknown as PlanResult, 'USD')).toEqual([]);
   });

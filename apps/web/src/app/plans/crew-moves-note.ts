@@ -4,7 +4,8 @@ import { money } from './plan-format';
 
 /**
  * What the plan asks of the yard crew, in a line or two: its crew moves, what fewer moves cost
- * ("2 fewer moves for $1.80"), and for a re-plan how many buses moved and why.
+ * ("2 fewer moves for $1.80"), and for a re-plan how many buses moved, why, and what keeping the
+ * rest of the night costs.
  */
 @Component({
   selector: 'ny-crew-moves-note',
@@ -57,6 +58,14 @@ export function crewMovesLines(r: PlanResult, currency: string): string[] {
     const n = moved.buses.length;
     out.push(
       `Re-plan: ${n} ${n === 1 ? 'bus' : 'buses'} moved${n ? ` (${moved.buses.join(', ')})` : ''}${moved.reasons.length ? ` because ${moved.reasons.join('; ')}` : ''}.`,
+    );
+  }
+  // The trade the re-plan made to keep the night as it was (within the depot's tolerance).
+  if (moved && r.keptPrevious) {
+    out.push(
+      r.keptPrevious.extraCost > 0.005
+        ? `Keeping the rest of the plan being carried out costs ${money(r.keptPrevious.extraCost, currency)} more than the cheapest plan found.`
+        : 'Keeping the rest of the plan being carried out costs no more than the cheapest plan found.',
     );
   }
   return out;
