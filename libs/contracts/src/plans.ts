@@ -79,8 +79,12 @@ export const planResultSchema = z.looseObject({
   crewMoves: z.number().optional(),
   /** Crew moves saved against the cheapest plan found, and their cost (within the depot's tolerance). */
   crewTrade: z.object({ fewerMoves: z.number(), extraCost: z.number() }).nullable().optional(),
-  /** A re-plan that kept the plan being carried out wherever it could: what that costs over the cheapest plan found. */
-  keptPrevious: z.object({ extraCost: z.number() }).nullable().optional(),
+  /**
+   * A re-plan that kept the plan being carried out wherever it could: what that costs over the
+   * cheapest plan found, and the kWh it leaves short that the cheapest would serve (shortfall the
+   * plan being carried out already had).
+   */
+  keptPrevious: z.object({ extraCost: z.number(), extraShortKwh: z.number().optional() }).nullable().optional(),
   /**
    * A re-plan or a plan made while its night was under way: where it starts (local cut-off), the
    * chargers out of service, the buses kept where they were, and the buses it moved from the

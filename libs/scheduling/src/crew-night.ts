@@ -8,7 +8,7 @@ import {
   type Assignment,
   type AssignmentHints,
 } from './assignment.js';
-import { fitCrew, minWindow } from './crew.js';
+import { fitCrew, minWindow, pinStays } from './crew.js';
 import { cheaper, type LpResult } from './highs-solver.js';
 import type { AssignedModel } from './local-search.js';
 import type { Problem } from './problem.js';
@@ -160,7 +160,8 @@ export function crewNightCandidates(
     ['crew-sweep-strong-deadline', () => sweepAssignment(problem, { load, energy, pick: 'strong', order: 'deadline' })],
     ['crew-sweep-fit-slack', () => sweepAssignment(problem, { load, energy, pick: 'fit', order: 'slack' })],
   );
-  return out.map(([name, make]) => [name, fitCrew(problem, make(), energy)]);
+  // Re-planning, buses already plugged in stay where they are (the layouts know nothing of them).
+  return out.map(([name, make]) => [name, fitCrew(problem, pinStays(problem, make()), energy)]);
 }
 
 /**

@@ -296,6 +296,36 @@ function fitCharger(
   return { dropped, taken };
 }
 
+/**
+ * A plan laid out without knowing which buses are already plugged in (re-planning), made to keep
+ * them: each such stay moved onto its charger (its window's length kept, at least the minimum),
+ * where fitCrew puts it first and fits the others after it.
+ */
+export function pinStays(problem: Problem, assignment: Assignment): Assignment {
+  const pin = problem.pinned;
+  if (!pin) return assignment;
+  for (const stay of problem.stays) {
+    const p = pin[stay.id]!;
+    const was = assignment.chargerOf[stay.id]!;
+    if (p < 0 || was === p) continue;
+    const length = was >= 0 ? assignment.to[stay.id]! - assignment.from[stay.id]! : 0;
+    if (was >= 0) assignment.sequence[was] = assignment.sequence[was]!.filter((x) => x !== stay.id);
+    assignment.chargerOf[stay.id] = p;
+    assignment.from[stay.id] = stay.arriveSlot;
+    assignment.to[stay.id] = Math.min(stay.departSlot, stay.arriveSlot + Math.max(length, minWindow(problem, stay)));
+    assignment.sequence[p] = [stay.id, ...assignment.sequence[p]!];
+  }
+  return assignment;
+}
+
+/** Does every stay already plugged in (re-planning) stay on its charger in this assignment? */
+export function keepsPins(problem: Problem, assignment: Assignment): boolean {
+  const pin = problem.pinned;
+  if (!pin) return true;
+  for (let id = 0; id < pin.length; id++) if (pin[id]! >= 0 && assignment.chargerOf[id] !== pin[id]) return false;
+  return true;
+}
+
 /** Crew moves an assignment asks for (its windows as they stand, within the horizon). */
 export function countCrewMoves(problem: Problem, assignment: Assignment): number {
   let n = 0;

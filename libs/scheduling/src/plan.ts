@@ -80,8 +80,12 @@ export interface Plan {
    * tolerance): "2 fewer moves for $1.80". Null: the cheapest plan is the one with fewest moves.
    */
   crewTrade: { fewerMoves: number; extraCost: number } | null;
-  /** Re-planning: the plan being carried out was kept wherever it could be, for this much more. */
-  keptPrevious: { extraCost: number } | null;
+  /**
+   * Re-planning: the plan being carried out was kept wherever it could be, for this much more money
+   * than the cheapest plan found, leaving `extraShortKwh` short that the cheapest would serve (only
+   * shortfall that plan already had: serving it does not justify moving unaffected buses).
+   */
+  keptPrevious: { extraCost: number; extraShortKwh: number } | null;
   /**
    * Re-planning, when the plan being carried out could not be kept within the depot's tolerance:
    * the best plan found that keeps it, against the plan chosen (money it would cost more, kWh it
@@ -470,18 +474,15 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
     // Above the relaxation's bound with crew windows: the bound that knows who holds each
     // charger while nobody is in the yard (crew-bound.ts) shows how far the plan can be from
     // the optimum. Counted nodes; a bound cut by the time cap is left unused.
-    // Buses already plugged in keep their chargers, which the crew's-night candidates know nothing
-    // of: such a re-plan keeps the old path. A re-plan with none (a fault before the first pull-in,
-    // a regeneration) takes it, so that the cheapest plan it keeps the old one against is as good
-    // as a fresh plan's (the kept plan is chosen after, in preferStableAndFewerMoves).
-    const replanning = !!problem.pinned?.some((c) => c >= 0);
+    // A re-plan takes it too, so that the cheapest plan it keeps the old one against is as good as
+    // a fresh plan's (the kept plan is chosen after, in preferStableAndFewerMoves); its candidates
+    // keep the buses already plugged in where they are (pinStays).
     if (
       search.result.objective > target &&
       options.crewNight !== false &&
       problem.yard?.capacity &&
       (problem.stays.length <= CREW_BOUND_LIMITS.stays ||
         (problem.stays.length <= CREW_BOUND_LIMITS.relaxedStays &&
-          !replanning &&
           (problem.stays.length >= CREW_BOUND_LIMITS.relaxedPerCharger * problem.chargers.length ||
             shortfallIn(problem, live, search.result) > lb.shortfallKwh + 1e-3))) &&
       performance.now() < deadline
@@ -815,8 +816,21 @@ function preferStableAndFewerMoves(
 ): Chosen {
   const all = problem.buses.map((b) => b.index);
   const base = result.objective;
-  const allowed = Math.max(problem.tolerance.share * Math.abs(base), problem.tolerance.amount);
-  const limit = base + allowed;
+  // The tolerance is on money; shortfall the plan being carried out already had, which the
+  // cheapest plan serves, earns that plan no credit against it (as in stableRepair).
+  const shortBase = shortfallIn(problem, live, result);
+  const moneyOf = (objective: number, short: number) => objective - problem.shortfallPenalty * short;
+  const allowed = Math.max(problem.tolerance.share * Math.abs(moneyOf(base, shortBase)), problem.tolerance.amount);
+  const oldShort = problem.previous?.shortfallKwh ?? 0;
+  const credit = problem.shortfallPenalty * Math.max(0, oldShort - shortBase);
+  const limit = base + credit + allowed;
+  const keptAgainst = (r: LpResult) => {
+    const short = shortfallIn(problem, live, r);
+    return {
+      extraCost: round(Math.max(0, moneyOf(r.objective, short) - moneyOf(base, shortBase)), 2),
+      extraShortKwh: round(Math.max(0, short - shortBase), 1),
+    };
+  };
   let chosen: Chosen = { assignment: cheapest, result, crewTrade: null, keptPrevious: null };
   const repair = problem.previous
     ? stableRepair(problem, hints, live, {
@@ -832,31 +846,17 @@ function preferStableAndFewerMoves(
       assignment: repair.assignment,
       result: repair.result,
       crewTrade: null,
-      keptPrevious: { extraCost: round(Math.max(0, repair.result.objective - base), 2) },
+      keptPrevious: keptAgainst(repair.result),
     };
   } else if (problem.previous) {
     // Still dearer than the tolerance (or the kept sessions do not fit the crew's room): the
     // general searches from the repaired plan, each change saving a tenth of the tolerance's
     // amount; the cheapest plan when even that stays outside the tolerance.
     const start = repair?.result.status === 'optimal' ? repair.assignment : keptAssignment(problem, hints.energy);
-    const kept = start ? searchFromKept(problem, hints, live, start, limit, base, limits) : null;
-    if (kept && 'keptPrevious' in kept) chosen = kept;
-    else if (kept) {
-      // What keeping it would have taken, beside the plan chosen, so the review can say so.
-      const shortChosen = shortfallIn(problem, live, result);
-      const extraShortKwh = Math.max(0, kept.shortKwh - shortChosen);
-      chosen.previousRefused = {
-        extraCost: round(
-          Math.max(
-            0,
-            kept.objective - problem.shortfallPenalty * kept.shortKwh - (base - problem.shortfallPenalty * shortChosen),
-          ),
-          2,
-        ),
-        extraShortKwh: round(extraShortKwh, 1),
-        allowed: round(allowed, 2),
-      };
-    }
+    const kept = start ? searchFromKept(problem, hints, live, start, limit, limits) : null;
+    if (kept && kept.within) chosen = { ...kept.chosen, keptPrevious: keptAgainst(kept.chosen.result) };
+    // What keeping it would have taken, beside the plan chosen, so the review can say so.
+    else if (kept) chosen.previousRefused = { ...keptAgainst(kept.chosen.result), allowed: round(allowed, 2) };
   }
   if (problem.yard && !chosen.keptPrevious) {
     const movesBefore = countCrewMoves(problem, cheapest);
@@ -891,9 +891,8 @@ function searchFromKept(
   live: AssignedModel,
   kept: Assignment,
   limit: number,
-  base: number,
   limits: { deadline: number; maxMoves: number; target: number },
-): Chosen | { objective: number; shortKwh: number } | null {
+): { chosen: Chosen; within: boolean } | null {
   const all = problem.buses.map((b) => b.index);
   live.update(kept, all);
   const first = live.solve();
@@ -912,14 +911,10 @@ function searchFromKept(
     });
     if (lns.result.objective < search.result.objective) search = { assignment: lns.assignment, result: lns.result };
   }
-  // Outside the tolerance: its cost (money and kWh short), for the review.
-  if (search.result.objective > limit)
-    return { objective: search.result.objective, shortKwh: shortfallIn(problem, live, search.result) };
+  // Outside the tolerance too: returned, for the review to say what keeping it would take.
   return {
-    assignment: search.assignment,
-    result: search.result,
-    crewTrade: null,
-    keptPrevious: { extraCost: round(Math.max(0, search.result.objective - base), 2) },
+    chosen: { assignment: search.assignment, result: search.result, crewTrade: null, keptPrevious: null },
+    within: search.result.objective <= limit,
   };
 }
 

@@ -1,5 +1,5 @@
 import { arrangeCharger, cloneAssignment, usablePower, type Assignment, type AssignmentHints } from './assignment.js';
-import { fitCrew } from './crew.js';
+import { fitCrew, keepsPins } from './crew.js';
 import { cheaper, type LpResult } from './highs-solver.js';
 import type { AssignedModel, SearchResult } from './local-search.js';
 import type { Problem } from './problem.js';
@@ -264,6 +264,8 @@ export function repairShort(
           timedOut = true;
           break outer;
         }
+        // A bus already plugged in (re-planning) is not moved off its charger.
+        if (!keepsPins(problem, trial)) continue;
         moves++;
         if (problem.yard) fitCrew(problem, trial, hints.energy);
         lp.update(trial, all);

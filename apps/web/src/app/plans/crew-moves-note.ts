@@ -62,10 +62,15 @@ export function crewMovesLines(r: PlanResult, currency: string): string[] {
   }
   // The trade the re-plan made to keep the night as it was (within the depot's tolerance).
   if (moved && r.keptPrevious) {
+    const { extraCost, extraShortKwh = 0 } = r.keptPrevious;
+    const short =
+      extraShortKwh >= 0.05
+        ? ` It leaves ${extraShortKwh.toFixed(1)} kWh short that the cheapest plan would serve by moving other buses; the plan being carried out left it short already.`
+        : '';
     out.push(
-      r.keptPrevious.extraCost > 0.005
-        ? `Keeping the rest of the plan being carried out costs ${money(r.keptPrevious.extraCost, currency)} more than the cheapest plan found.`
-        : 'Keeping the rest of the plan being carried out costs no more than the cheapest plan found.',
+      (extraCost > 0.005
+        ? `Keeping the rest of the plan being carried out costs ${money(extraCost, currency)} more than the cheapest plan found.`
+        : 'Keeping the rest of the plan being carried out costs no more than the cheapest plan found.') + short,
     );
   }
   return out;
