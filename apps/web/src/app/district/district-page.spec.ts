@@ -112,7 +112,7 @@ describe('DistrictPage', () => {
       'Plan',
       'Short buses',
       'Peak of service limit',
-      'Cost',
+      'Energy, planned',
       'Period',
       'Bill to date',
       'Projected bill',
@@ -211,7 +211,7 @@ describe('DistrictPage', () => {
     expect(riverside).toContain('Short buses2 buses, 14.3 kWh short');
     expect(riverside).toContain('Demand target280 kW');
     expect(cards[0]!.textContent).not.toContain('Demand target');
-    expect(cards[2]!.textContent!.replace(/\s+/g, ' ')).toContain('Cost tonight$156.02');
+    expect(cards[2]!.textContent!.replace(/\s+/g, ' ')).toContain('Energy tonight, planned$156.02');
   });
 
   it('says what went wrong and offers to try again', async () => {
