@@ -1,6 +1,7 @@
 import { cloneAssignment, initialAssignment, plugMapOf, type Assignment, type AssignmentHints } from './assignment.js';
 import { limitedBaseline, type Baseline, type BaselineKind } from './baseline.js';
 import { countCrewMoves, endIsFree, fitCrew, startIsFree, type Move } from './crew.js';
+import { previousWindows, regeneratedMoved } from './previous.js';
 import { keptAssignment, stableRepair } from './stable.js';
 import { describeShortfall, explainShortfalls, soloShortfall, type ShortReason, type ShortWith } from './explain.js';
 import { solveCrewBound } from './crew-bound.js';
@@ -92,6 +93,8 @@ export interface Plan {
    * would leave short beyond the chosen plan's), and what the tolerance allows. Null otherwise.
    */
   previousRefused: { extraCost: number; extraShortKwh: number; allowed: number } | null;
+  /** A regeneration (`PlanOptions.previous`): the buses whose charging differs from that plan's, and why. */
+  moved?: { buses: string[]; reasons: string[] };
   buses: PlanBus[];
   savings: {
     energy: number;
@@ -163,6 +166,12 @@ export interface PlanOptions {
    * a plan as the searches alone leave it (tests of re-plans from such a plan).
    */
   crewNight?: boolean;
+  /**
+   * A regeneration: the plan published for this night before. It is kept wherever it still fits
+   * and the plan stays within the depot's cost tolerance of the cheapest found (stable.ts, as in a
+   * re-plan), and `moved` says which buses changed and why.
+   */
+  previous?: Plan;
 }
 
 /** Depots up to this many stays get the large-neighbourhood search (beyond, it costs more time than it gains). */
@@ -237,7 +246,10 @@ export async function planScenario(scenario: Scenario, options: PlanOptions = {}
   const solver = await loadSolver();
   const t0 = performance.now();
   const problem = prepareProblem(scenario);
-  return planProblem(problem, solver, options, t0);
+  if (!options.previous) return planProblem(problem, solver, options, t0);
+  problem.previous = previousWindows(problem, options.previous);
+  const plan = planProblem(problem, solver, options, t0);
+  return { ...plan, moved: regeneratedMoved(problem, options.previous, plan, scenario.tariff.currency) };
 }
 
 /**

@@ -1,6 +1,7 @@
 import { DateTime } from 'luxon';
 import { loadSolver } from './highs-solver.js';
 import { planProblem, type Plan, type PlanOptions, type PlanSession } from './plan.js';
+import { changedBuses, previousWindows, refusedWhy } from './previous.js';
 import { prepareProblem } from './problem.js';
 import {
   formatPath,
@@ -301,37 +302,6 @@ export function deriveScenario(scenario: Scenario, state: ReplanState) {
   return { derived: parsed.scenario, outOfService, plugged, kept };
 }
 
-/** The previous plan's charger and window of each stay, from the cut-off on. */
-function previousWindows(problem: ReturnType<typeof prepareProblem>, previous: Plan) {
-  const n = problem.stays.length;
-  const chargerOf = new Int32Array(n).fill(-1);
-  const from = new Int32Array(n);
-  const to = new Int32Array(n);
-  const slotMs = problem.slots[0]!.endMs - problem.slots[0]!.startMs;
-  const startMs = problem.slots[0]!.startMs;
-  const chargerIndex = new Map(problem.chargers.map((c) => [c.id, c.index]));
-  const busIndex = new Map(problem.buses.map((b) => [b.id, b]));
-  for (const s of previous.sessions) {
-    const bus = busIndex.get(s.bus);
-    const c = chargerIndex.get(s.charger);
-    if (!bus || c === undefined) continue;
-    const a = Math.max(0, Math.round((Date.parse(s.start) - startMs) / slotMs));
-    const b = Math.min(problem.slotCount, Math.round((Date.parse(s.end) - startMs) / slotMs));
-    if (b <= a) continue;
-    const stay = bus.stays.find((st) => st.arriveSlot < b && a < st.departSlot);
-    if (!stay) continue;
-    // One window per stay: the longest session of the stay from the cut-off on.
-    if (chargerOf[stay.id]! >= 0 && to[stay.id]! - from[stay.id]! >= b - a) continue;
-    chargerOf[stay.id] = c;
-    from[stay.id] = Math.max(a, stay.arriveSlot);
-    to[stay.id] = Math.min(b, stay.departSlot);
-  }
-  // What it left short, for the buses still to plan (a bus's later shortfall counts from the cut-off).
-  let shortfallKwh = 0;
-  for (const b of previous.buses) if (busIndex.has(b.id)) shortfallKwh += b.shortfallKwh;
-  return { chargerOf, from, to, shortfallKwh };
-}
-
 /** Buses whose sessions from the cut-off on differ from the previous plan's, and why. */
 function movedBuses(
   problem: ReturnType<typeof prepareProblem>,
@@ -342,15 +312,7 @@ function movedBuses(
   currency: string,
 ) {
   const cutMs = problem.slots[0]!.startMs;
-  const key = (p: Plan, bus: string) =>
-    p.sessions
-      .filter((s) => s.bus === bus && Date.parse(s.end) > cutMs)
-      .map((s) => `${s.charger}@${Math.max(Date.parse(s.start), cutMs)}-${Date.parse(s.end)}`)
-      .join(',');
-  const buses = problem.buses
-    .map((b) => b.id)
-    .filter((id) => key(previous, id) !== key(plan, id))
-    .sort();
+  const buses = changedBuses(problem, previous, plan);
   const reasons: string[] = [];
   for (const c of outOfService) {
     const on = new Set(previous.sessions.filter((s) => s.charger === c && Date.parse(s.end) > cutMs).map((s) => s.bus));
@@ -373,15 +335,4 @@ function movedBuses(
       `the plan being carried out could not be kept within the depot's cost tolerance${refusedWhy(plan.previousRefused, currency)}: the rest of the night was planned afresh (${others} other ${others === 1 ? 'bus' : 'buses'} moved)`,
     );
   return { buses, reasons };
-}
-
-/** What keeping the plan being carried out would have taken, in words (" (keeping it: $21.54 more, $5.00 allowed)"). */
-function refusedWhy(refused: Plan['previousRefused'], currency: string): string {
-  if (!refused) return '';
-  const money = (v: number) => new Intl.NumberFormat('en-US', { style: 'currency', currency }).format(v);
-  const parts: string[] = [];
-  if (refused.extraCost >= 0.005) parts.push(`${money(refused.extraCost)} more`);
-  if (refused.extraShortKwh >= 0.05) parts.push(`${refused.extraShortKwh.toFixed(1)} kWh more short`);
-  if (!parts.length) return '';
-  return ` (keeping it: ${parts.join(' and ')}, where ${money(refused.allowed)} is allowed)`;
 }

@@ -1,6 +1,6 @@
 import { and, eq, inArray, sql } from 'drizzle-orm';
 import type { Logger } from 'pino';
-import { parseScenario, underTarget, type Scenario } from '@nightyard/scheduling';
+import { parseScenario, underTarget, type Plan, type Scenario } from '@nightyard/scheduling';
 import { cutOffTarget } from './plan-target';
 import { periodTargetFrom, planningJobCaller } from '../costs/period-target';
 import type { Db } from '../db/client';
@@ -10,6 +10,24 @@ import { planResultSchema, type PlanResult } from '@nightyard/contracts';
 import { planFromCutOff } from './night-in-progress';
 import { withPlanLock } from './plan-lock';
 import { runInPool } from '../workers/pool';
+
+/**
+ * The plan published for the night, which a new plan of it (generated again, or a revision before
+ * the night starts) keeps wherever it still fits within the depot's tolerance: the yard has its
+ * run sheets. Null for a what-if, or with nothing published.
+ */
+async function publishedFor(
+  db: Db,
+  plan: typeof plans.$inferSelect,
+): Promise<{ version: number; result: Plan } | null> {
+  if (plan.kind === 'what-if') return null;
+  const [row] = await db
+    .select({ id: plans.id, version: plans.version, result: plans.result })
+    .from(plans)
+    .where(and(eq(plans.depotId, plan.depotId), eq(plans.serviceDate, plan.serviceDate), eq(plans.state, 'published')));
+  // A stored result is the engine's whole plan (the contract reads only some of its fields).
+  return row?.result && row.id !== plan.id ? { version: row.version, result: row.result as Plan } : null;
+}
 
 async function previousResult(db: Db, id: string | null): Promise<PlanResult | null> {
   if (!id) return null;
@@ -39,7 +57,12 @@ async function planNight(
       },
       await previousResult(db, plan.replanState?.previousPlanId ?? null),
     );
-  const plain = () => (from ? cutOff(scenario) : runInPool({ kind: 'plan', scenario }));
+  const published = from ? null : await publishedFor(db, plan);
+  const previous = published ? { previous: published.result } : {};
+  const keptFrom = <T extends object>(result: T) =>
+    published ? { ...result, keptFrom: { version: published.version } } : result;
+  const plain = async () =>
+    from ? cutOff(scenario) : keptFrom(await runInPool({ kind: 'plan', scenario, ...previous }));
   if (plan.kind === 'what-if') return plain();
   let target: Awaited<ReturnType<typeof periodTargetFrom>> = null;
   try {
@@ -63,9 +86,9 @@ async function planNight(
     const result = await cutOff(floor);
     return { ...result, target: cutOffTarget(floor, result.slots, targets, why) };
   }
-  const { plan: result, peaks, trade } = await runInPool({ kind: 'plan-under-target', scenario, targets });
+  const { plan: result, peaks, trade } = await runInPool({ kind: 'plan-under-target', scenario, targets, ...previous });
   const aboveKw = trade ? Math.max(...trade.above.map((a) => a.kw)) : 0;
-  return { ...result, target: { peaks, aboveKw, trade, ...why } };
+  return keptFrom({ ...result, target: { peaks, aboveKw, trade, ...why } });
 }
 
 /** Engine runs a plan gets: one more after a run cut short (a killed or restarted worker). */

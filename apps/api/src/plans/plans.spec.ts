@@ -54,7 +54,7 @@ beforeAll(async () => {
 });
 
 describe('plans', () => {
-  let first: { id: string };
+  let first: { id: string; result: { sessions: unknown[] } };
 
   it('generates a plan through the pg-boss queue and stores it with its input snapshot', async () => {
     const res = await app
@@ -162,7 +162,11 @@ describe('plans', () => {
       .send({ serviceDate: '2026-12-09' })
       .expect(202);
     await finished(a.body.plan.id);
-    await finished(b.body.plan.id);
+    const bPlan = await finished(b.body.plan.id);
+    // Generated again with version 1 published and the same data: version 1 is kept as it was.
+    expect(bPlan.result.keptFrom).toEqual({ version: 1 });
+    expect(bPlan.result.moved).toEqual({ buses: [], reasons: [] });
+    expect(bPlan.result.sessions).toEqual(first.result.sessions);
     const results = await Promise.all([
       app.request().post(`/api/plans/${a.body.plan.id}/publish`).set(as(sup)).send({ expectedPublishedId: first.id }),
       app.request().post(`/api/plans/${b.body.plan.id}/publish`).set(as(sup2)).send({ expectedPublishedId: first.id }),

@@ -38,9 +38,9 @@ import { MAX_RUNS_CSV_ROWS, formatCount } from '../http/limits';
 
 export type PoolTask =
   | { kind: 'warm' }
-  | { kind: 'plan'; scenario: Scenario }
+  | { kind: 'plan'; scenario: Scenario; previous?: Plan }
   | { kind: 'period-target'; nights: PeriodNight[]; marginal: boolean }
-  | { kind: 'plan-under-target'; scenario: Scenario; targets: DemandTarget[] }
+  | { kind: 'plan-under-target'; scenario: Scenario; targets: DemandTarget[]; previous?: Plan }
   | { kind: 'replan'; scenario: Scenario; state: ReplanState }
   | { kind: 'runs-csv'; text: string; date: string }
   | {
@@ -127,13 +127,13 @@ async function perform(task: PoolTask): Promise<unknown> {
       return null;
     case 'plan':
       yieldToRequests();
-      return planScenario(task.scenario);
+      return planScenario(task.scenario, task.previous ? { previous: task.previous } : {});
     case 'period-target':
       yieldToRequests();
       return solvePeriodTarget(task.nights, await loadSolver(), { marginal: task.marginal });
     case 'plan-under-target':
       yieldToRequests();
-      return planUnderTarget(task.scenario, task.targets);
+      return planUnderTarget(task.scenario, task.targets, task.previous ? { previous: task.previous } : {});
     case 'replan':
       yieldToRequests();
       return replan(task.scenario, task.state);

@@ -48,6 +48,21 @@ describe('crew moves note', () => {
     );
   });
 
+  it('says what changed against the published version when the night is planned again', () => {
+    const r = {
+      sessions: [],
+      keptFrom: { version: 2 },
+      keptPrevious: { extraCost: 0, extraShortKwh: 0 },
+      moved: { buses: ['224'], reasons: ['the published plan was kept wherever it still fits; 1 bus changed'] },
+    } as unknown as PlanResult;
+    expect(crewMovesLines(r, 'USD')).toEqual([
+      'Against version 2 as published: 1 bus changed (224) because the published plan was kept wherever it still fits; 1 bus changed.',
+      'Keeping the published plan costs no more than the cheapest plan found.',
+    ]);
+    const none = { ...r, moved: { buses: [], reasons: [] } } as PlanResult;
+    expect(crewMovesLines(none, 'USD')[0]).toBe('Against version 2 as published: no bus changed.');
+  });
+
   it('says nothing for a plan made before the crew rules', () => {
     expect(crewMovesLines({ sessions: [] } as unknown as PlanResult, 'USD')).toEqual([]);
   });

@@ -60,17 +60,27 @@ export function crewMovesLines(r: PlanResult, currency: string): string[] {
       `Re-plan: ${n} ${n === 1 ? 'bus' : 'buses'} moved${n ? ` (${moved.buses.join(', ')})` : ''}${moved.reasons.length ? ` because ${moved.reasons.join('; ')}` : ''}.`,
     );
   }
+  // A night planned again while a plan of it is published: what changed against that version.
+  if (!moved && r.moved && r.keptFrom) {
+    const n = r.moved.buses.length;
+    out.push(
+      n
+        ? `Against version ${r.keptFrom.version} as published: ${n} ${n === 1 ? 'bus' : 'buses'} changed (${r.moved.buses.join(', ')}) because ${r.moved.reasons.join('; ')}.`
+        : `Against version ${r.keptFrom.version} as published: no bus changed.`,
+    );
+  }
   // The trade the re-plan made to keep the night as it was (within the depot's tolerance).
-  if (moved && r.keptPrevious) {
+  if ((moved || r.keptFrom) && r.keptPrevious) {
     const { extraCost, extraShortKwh = 0 } = r.keptPrevious;
+    const kept = moved ? 'the rest of the plan being carried out' : 'the published plan';
     const short =
       extraShortKwh >= 0.05
-        ? ` It leaves ${extraShortKwh.toFixed(1)} kWh short that the cheapest plan would serve by moving other buses; the plan being carried out left it short already.`
+        ? ` It leaves ${extraShortKwh.toFixed(1)} kWh short that the cheapest plan would serve by moving other buses; ${moved ? 'the plan being carried out' : 'the published plan'} left it short already.`
         : '';
     out.push(
       (extraCost > 0.005
-        ? `Keeping the rest of the plan being carried out costs ${money(extraCost, currency)} more than the cheapest plan found.`
-        : 'Keeping the rest of the plan being carried out costs no more than the cheapest plan found.') + short,
+        ? `Keeping ${kept} costs ${money(extraCost, currency)} more than the cheapest plan found.`
+        : `Keeping ${kept} costs no more than the cheapest plan found.`) + short,
     );
   }
   return out;
