@@ -59,9 +59,12 @@ export function planPublishedMail(p: {
   baseline: number;
   baselineName: string;
   short: string[];
+  /** The published version this plan kept wherever it fits, and the buses whose charging differs from it. */
+  changed?: { version: number; buses: string[] };
   link: MailLink;
 }): OutgoingMail {
   const money = (v: number) => new Intl.NumberFormat('en-US', { style: 'currency', currency: p.currency }).format(v);
+  const n = p.changed?.buses.length ?? 0;
   return {
     to: p.to,
     subject: `Charging plan published: ${p.depot}, night of ${p.night} (version ${p.version})`,
@@ -70,6 +73,14 @@ export function planPublishedMail(p: {
       '',
       `${p.publishedBy} published version ${p.version} of the charging plan for ${p.depot}, the night of ${p.night}.`,
       '',
+      ...(p.changed
+        ? [
+            n
+              ? `Against version ${p.changed.version}: ${n} ${n === 1 ? 'bus changes' : 'buses change'} charger or times (${p.changed.buses.join(', ')}); every other bus keeps its charger and times.`
+              : `Against version ${p.changed.version}: no bus changes charger or times.`,
+            '',
+          ]
+        : []),
       `Buses: ${p.buses}; plug-ins: ${p.sessions}.`,
       `Projected electricity cost: ${money(p.cost)} (${p.baselineName.toLowerCase()}, within the same limits: ${money(p.baseline)}).`,
       p.short.length

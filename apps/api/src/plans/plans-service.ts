@@ -363,6 +363,9 @@ async function notifyPublished(
         baseline: result.baseline.total,
         baselineName: baselineName(result.baseline.kind),
         short: short.map((b) => `${b.id} (${b.shortfallKwh.toFixed(1)} kWh short: ${b.reason})`),
+        ...(result.keptFrom && result.moved
+          ? { changed: { version: result.keptFrom.version, buses: result.moved.buses } }
+          : {}),
         link: nightMailLink(r.roles, { planId: plan.id, serviceDate: plan.serviceDate }, link),
       }),
     );

@@ -177,6 +177,13 @@ describe('plans', () => {
     const published = await app.db.select().from(plans).where(eq(plans.depotId, depotId));
     expect(published.filter((p) => p.state === 'published')).toHaveLength(1);
     expect(published.find((p) => p.id === first.id)!.state).toBe('superseded');
+    // The yard hears what changed against the version its run sheets are of.
+    const winner = results.find((r) => r.status === 200)!.body.plan;
+    const [mail] = await mailFor(yard.email, 2);
+    expect(mail!.subject).toContain(`(version ${winner.version})`);
+    expect(mail!.text).toMatch(
+      /Against version 1: (no bus changes charger or times|\d+ bus(es)? changes? charger or times \()/,
+    );
     // The versions are kept and listed.
     const list = await app
       .request()
