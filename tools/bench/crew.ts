@@ -70,8 +70,8 @@ console.log('Plans with the yard crew (45-min minimum, drivers at pull-in/out, c
 console.log(
   'buses  chargers  solve ms  stopped (2 runs)  status    gap      crew moves/bus  shortest plug-in  checker  same plan twice  LP iterations  load',
 );
-// BENCH_SECTIONS picks sections (size,small,scarce,replan); default all.
-const sections = new Set((process.env.BENCH_SECTIONS ?? 'size,small,scarce,replan').split(','));
+// BENCH_SECTIONS picks sections (size,small,scarce,replan,regen); default all.
+const sections = new Set((process.env.BENCH_SECTIONS ?? 'size,small,scarce,replan,regen').split(','));
 const sizes = !sections.has('size') ? [] : quick ? [200] : [200, 500, 1000];
 if (sizes.length) {
   // The API plans in a long-lived engine thread, where HiGHS's WebAssembly is already compiled to
@@ -295,3 +295,44 @@ if (moved.length)
   console.log(
     `median buses moved: ${median(moved)}; median allowed (buses on the failed charger + 1): ${median(allowed)}; median moved minus allowed: ${median(moved.map((x, i) => x - allowed[i]!))}; depots within: ${moved.filter((x, i) => x <= allowed[i]!).length} of ${moved.length}; with one bus per freed charger: median allowed ${median(allowedFreed)}, depots within ${moved.filter((x, i) => x <= allowedFreed[i]!).length} of ${moved.length}; median on another charger: ${median(movedCharger)}; median re-plan ${Math.round(median(replanMs))} ms`,
   );
+
+// Regeneration: the night planned again after one bus's pull-in moved two hours later, made
+// against the published plan (`previous`) and afresh; buses whose charging differs from the
+// published plan, and the cost of each.
+if (sections.has('regen')) {
+  console.log(
+    '\nRegeneration after one bus pulls in two hours later (with the crew): buses changed against the published plan',
+  );
+  console.log(
+    'buses  chargers  seed  late bus  fresh: changed  cost        regenerated: changed  cost        kept (extra $)  ms',
+  );
+  const fresh: number[] = [];
+  const regen: number[] = [];
+  for (const [n, c] of quick
+    ? [[40, 10]]
+    : [
+        [40, 10],
+        [40, 20],
+        [100, 25],
+      ]) {
+    for (const seed of quick ? [1] : [1, 2, 3]) {
+      const input = withCrew(generateDepot({ buses: n, chargers: c, seed }), n / 40);
+      const published = await planScenario(parse(input));
+      const late = structuredClone(input);
+      const stay = late.buses[0]!.stays[0]!;
+      const later = DateTime.fromISO(stay.arrive).plus({ hours: 2 });
+      stay.arrive = later.toFormat("yyyy-MM-dd'T'HH:mm");
+      const scenario = parse(late);
+      const f = await planScenario(scenario);
+      const r = await planScenario(scenario, { previous: published });
+      const fm = movedBuses(published, f, 0).length;
+      const rm = r.moved!.buses.length;
+      fresh.push(fm);
+      regen.push(rm);
+      console.log(
+        `${String(n).padStart(5)}  ${String(c).padStart(8)}  ${String(seed).padStart(4)}  ${late.buses[0]!.id.padEnd(8)}  ${String(fm).padStart(14)}  ${f.cost.total.toFixed(2).padStart(10)}  ${String(rm).padStart(20)}  ${r.cost.total.toFixed(2).padStart(10)}  ${(r.keptPrevious ? `yes (${r.keptPrevious.extraCost.toFixed(2)})` : 'no (afresh)').padEnd(14)}  ${Math.round(r.solveMs)}  ${load()}`,
+      );
+    }
+  }
+  console.log(`median buses changed: fresh ${median(fresh)}, regenerated ${median(regen)}`);
+}
