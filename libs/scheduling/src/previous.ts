@@ -71,9 +71,7 @@ export function regeneratedMoved(problem: Problem, previous: Plan, plan: Plan, c
   const n = buses.length;
   const were = n === 1 ? 'bus' : 'buses';
   if (n > 0 && plan.keptPrevious)
-    reasons.push(
-      `the published plan was kept wherever it still fits; ${n} ${were} changed where the night's data changed or to keep the cost down`,
-    );
+    reasons.push(`the night's data changed or a change keeps the cost down; every other bus keeps the published plan`);
   else if (n > 0)
     reasons.push(
       `the published plan could not be kept within the depot's cost tolerance${refusedWhy(plan.previousRefused, currency)}: the night was planned afresh (${n} ${were} changed)`,

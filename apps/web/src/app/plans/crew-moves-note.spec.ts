@@ -53,10 +53,13 @@ describe('crew moves note', () => {
       sessions: [],
       keptFrom: { version: 2 },
       keptPrevious: { extraCost: 0, extraShortKwh: 0 },
-      moved: { buses: ['224'], reasons: ['the published plan was kept wherever it still fits; 1 bus changed'] },
+      moved: {
+        buses: ['224'],
+        reasons: ["the night's data changed or a change keeps the cost down; every other bus keeps the published plan"],
+      },
     } as unknown as PlanResult;
     expect(crewMovesLines(r, 'USD')).toEqual([
-      'Against version 2 as published: 1 bus changed (224) because the published plan was kept wherever it still fits; 1 bus changed.',
+      "Against version 2 as published: 1 bus changed (224) because the night's data changed or a change keeps the cost down; every other bus keeps the published plan.",
       'Keeping the published plan costs no more than the cheapest plan found.',
     ]);
     const none = { ...r, moved: { buses: [], reasons: [] } } as PlanResult;
