@@ -16,6 +16,7 @@ import { parseScenario, ReplanStateError, underTarget, type Plan, type ScenarioI
 import type { Db } from '../db/client';
 import { prepared } from '../db/prepared';
 import { chargers, depots, plans, shiftAcknowledgements, users, yardConfirmations, yardReports } from '../db/schema';
+import { recountFaults } from './fault-counts';
 import { DomainError, conflict, notFound } from '../http/errors';
 import type { AuthUser } from '../auth/auth-user';
 import { assertMayOpenDepot, depotOf, type DepotViewer } from '../depots/depot-access';
@@ -590,6 +591,14 @@ export async function replanAndPublish(
     throw err;
   }
   const replanMs = Math.round(performance.now() - t0);
+  if (next.replan.moved)
+    next.replan.moved = recountFaults(
+      next.replan.moved,
+      followed,
+      state.outOfService,
+      Object.keys(state.lateArrivals),
+      cutAt.getTime(),
+    );
 
   // The night as a whole: what was kept before the cut-off, then the re-plan.
   const whole = mergeReplan(previous, next);

@@ -1,0 +1,41 @@
+import type { PlanResult } from '@nightyard/contracts';
+
+type Moved = { buses: string[]; reasons: string[] };
+
+/**
+ * A re-plan's reasons with the buses of each charger reported out counted from the plan the yard
+ * was following. The engine counts them from the plan it is given, in which the sessions on such a
+ * charger were already stopped at the report (their power after it never flowed), so it read "0
+ * buses were planned on it" and counted those buses among the "other buses moved".
+ */
+export function recountFaults(
+  moved: Moved,
+  followed: Pick<PlanResult, 'sessions'>,
+  outOfService: readonly string[],
+  late: readonly string[],
+  atMs: number,
+): Moved {
+  const on = new Map(
+    outOfService.map((c) => [
+      c,
+      new Set(followed.sessions.filter((s) => s.charger === c && Date.parse(s.end) > atMs).map((s) => s.bus)),
+    ]),
+  );
+  const forced = new Set([...late, ...[...on.values()].flatMap((buses) => [...buses])]);
+  const others = moved.buses.filter((b) => !forced.has(b)).length;
+  const otherBuses = `${others} other ${others === 1 ? 'bus' : 'buses'} moved`;
+  const reasons = moved.reasons.flatMap((r) => {
+    const fault = /^charger (.+?) out of service: \d+ (bus was|buses were) planned on it$/.exec(r);
+    const buses = fault ? on.get(fault[1]!) : undefined;
+    if (buses)
+      return [
+        `charger ${fault![1]} out of service: ${buses.size} ${buses.size === 1 ? 'bus was' : 'buses were'} planned on it`,
+      ];
+    // No other bus moved after all: the reason for moving others goes.
+    if (others === 0 && /^\d+ other bus(es)? moved to make room/.test(r)) return [];
+    return [
+      r.replace(/^\d+ other bus(es)? moved/, otherBuses).replace(/\(\d+ other bus(es)? moved\)$/, `(${otherBuses})`),
+    ];
+  });
+  return { buses: moved.buses, reasons };
+}
