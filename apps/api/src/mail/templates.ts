@@ -56,6 +56,8 @@ export function planPublishedMail(p: {
   sessions: number;
   currency: string;
   cost: number;
+  /** The plan's charging energy, and the cheaper baseline's (its shortfall valued in), as the review compares them. */
+  energy: number;
   baseline: number;
   baselineName: string;
   short: string[];
@@ -82,7 +84,7 @@ export function planPublishedMail(p: {
           ]
         : []),
       `Buses: ${p.buses}; plug-ins: ${p.sessions}.`,
-      `Projected electricity cost: ${money(p.cost)} (${p.baselineName.toLowerCase()}, within the same limits: ${money(p.baseline)}).`,
+      `Projected electricity cost: ${money(p.cost)}. Charging energy: ${money(p.energy)} (${p.baselineName.toLowerCase()}, within the same limits: ${money(p.baseline)}).`,
       p.short.length
         ? `Buses that cannot be fully charged: ${p.short.join('; ')}.`
         : 'Every bus gets the energy its runs need.',

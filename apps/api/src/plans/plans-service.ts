@@ -360,7 +360,10 @@ async function notifyPublished(
         sessions: result.sessions.length,
         currency: scenario.tariff.currency ?? 'USD',
         cost: result.cost.total,
-        baseline: result.baseline.total,
+        // The night's energy against the baseline's, as the review compares them: demand is billed
+        // on the month's peak, so a night's demand is no saving of its own.
+        energy: result.cost.energy,
+        baseline: result.baseline.energy + (result.baseline.shortfallCost ?? 0),
         baselineName: baselineName(result.baseline.kind),
         short: short.map((b) => `${b.id} (${b.shortfallKwh.toFixed(1)} kWh short: ${b.reason})`),
         ...(result.keptFrom && result.moved

@@ -129,7 +129,16 @@ describe('plans', () => {
     expect(mail!.text).toContain('Open the yard view for that night: http://nightyard.test/yard?night=2026-12-09');
     expect(mail!.text).not.toContain('/plans');
     expect(mail!.text).toMatch(
-      /Projected electricity cost: \$[\d,.]+ \((charge on arrival|timer), within the same limits: \$[\d,.]+\)/,
+      /Projected electricity cost: \$[\d,.]+\. Charging energy: \$[\d,.]+ \((charge on arrival|timer), within the same limits: \$[\d,.]+\)/,
+    );
+    // The same figures the review compares: the night's charging energy against the baseline's.
+    const usd = (v: number) => new Intl.NumberFormat('en-US', { style: 'currency', currency: 'USD' }).format(v);
+    const r = first.result as unknown as {
+      cost: { energy: number };
+      baseline: { energy: number; shortfallCost?: number };
+    };
+    expect(mail!.text).toContain(
+      `Charging energy: ${usd(r.cost.energy)} (${mail!.text.includes('(timer,') ? 'timer' : 'charge on arrival'}, within the same limits: ${usd(r.baseline.energy + (r.baseline.shortfallCost ?? 0))})`,
     );
     const [supMail] = await mailFor(sup2.email);
     expect(supMail!.text).toContain(`Review the plan: http://nightyard.test/plans?date=2026-12-09&plan=${first.id}`);
