@@ -78,7 +78,7 @@ export function planPublishedMail(p: {
       ...(p.changed
         ? [
             n
-              ? `Against version ${p.changed.version}: ${n} ${n === 1 ? 'bus changes' : 'buses change'} charger or times (${p.changed.buses.join(', ')}); every other bus keeps its charger and times.`
+              ? `Against version ${p.changed.version}: ${n} ${n === 1 ? 'bus changes' : 'buses change'} charger or times (${p.changed.buses.join(', ')})${n < p.buses ? '; every other bus keeps its charger and times' : ''}.`
               : `Against version ${p.changed.version}: no bus changes charger or times.`,
             '',
           ]
