@@ -22,6 +22,7 @@ import { planPublishedMail } from '../mail/templates';
 import { buildNightScenario } from './night-scenario';
 import { nightStaff } from './night-staff';
 import { cutOffAt, type PlanFrom } from './night-in-progress';
+import { movedBetween } from './plan-compare';
 import { confirmedPlugged } from '../yard/yard-service';
 
 type PlanRow = typeof plans.$inferSelect;
@@ -382,18 +383,9 @@ export async function comparePlans(db: Db, caller: DepotViewer, id: string, othe
   const rb = resultOf(b.plan);
   if (!ra || !rb) throw conflict('Both plans must be finished to compare them');
   const zone = b.plan.scenario.timezone;
-  const describe = (r: PlanResult, bus: string) =>
-    r.sessions
-      .filter((s) => s.bus === bus)
-      .map(
-        (s) =>
-          `${s.charger} ${DateTime.fromISO(s.start, { zone }).toFormat('HH:mm')}-${DateTime.fromISO(s.end, { zone }).toFormat('HH:mm')}`,
-      )
-      .join(', ') || 'not plugged in';
-  const busIds = [...new Set([...ra.buses.map((x) => x.id), ...rb.buses.map((x) => x.id)])].sort();
-  const moved = busIds
-    .map((bus) => ({ bus, before: describe(ra, bus), after: describe(rb, bus) }))
-    .filter((m) => m.before !== m.after);
+  const span = (p: PlanRow) =>
+    (localToMillis(p.scenario.end, zone) ?? 0) - (localToMillis(p.scenario.start, zone) ?? 0);
+  const moved = movedBetween(ra, rb, zone, Math.max(span(a.plan), span(b.plan)) > 24 * 3_600_000);
   return {
     from: { id: a.plan.id, version: a.plan.version, kind: a.plan.kind },
     to: { id: b.plan.id, version: b.plan.version, kind: b.plan.kind },
