@@ -875,9 +875,15 @@ function preferStableAndFewerMoves(
     // amount; the cheapest plan when even that stays outside the tolerance.
     const start = repair?.result.status === 'optimal' ? repair.assignment : keptAssignment(problem, hints.energy);
     const kept = start ? searchFromKept(problem, hints, live, start, limit, limits) : null;
-    if (kept && kept.within) chosen = { ...kept.chosen, keptPrevious: keptAgainst(kept.chosen.result) };
+    if (kept && kept.result.objective <= limit)
+      chosen = {
+        assignment: kept.assignment,
+        result: kept.result,
+        crewTrade: null,
+        keptPrevious: keptAgainst(kept.result),
+      };
     // What keeping it would have taken, beside the plan chosen, so the review can say so.
-    else if (kept) chosen.previousRefused = { ...keptAgainst(kept.chosen.result), allowed: round(allowed, 2) };
+    else if (kept) chosen.previousRefused = { ...keptAgainst(kept.result), allowed: round(allowed, 2) };
   }
   if (problem.yard && !chosen.keptPrevious) {
     const movesBefore = countCrewMoves(problem, cheapest);
@@ -913,7 +919,7 @@ function searchFromKept(
   kept: Assignment,
   limit: number,
   limits: { deadline: number; maxMoves: number; target: number },
-): { chosen: Chosen; within: boolean } | null {
+): { assignment: Assignment; result: LpResult } | null {
   const all = problem.buses.map((b) => b.index);
   live.update(kept, all);
   const first = live.solve();
@@ -933,10 +939,7 @@ function searchFromKept(
     if (lns.result.objective < search.result.objective) search = { assignment: lns.assignment, result: lns.result };
   }
   // Outside the tolerance too: returned, for the review to say what keeping it would take.
-  return {
-    chosen: { assignment: search.assignment, result: search.result, crewTrade: null, keptPrevious: null },
-    within: search.result.objective <= limit,
-  };
+  return search;
 }
 
 /**

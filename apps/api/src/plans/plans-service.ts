@@ -2,6 +2,7 @@ import { aliasedTable, and, desc, eq, sql } from 'drizzle-orm';
 import { DateTime } from 'luxon';
 import {
   baselineName,
+  horizonOf,
   planResultSchema,
   type PlanComparison,
   type PlanDetail,
@@ -383,9 +384,12 @@ export async function comparePlans(db: Db, caller: DepotViewer, id: string, othe
   const rb = resultOf(b.plan);
   if (!ra || !rb) throw conflict('Both plans must be finished to compare them');
   const zone = b.plan.scenario.timezone;
-  const span = (p: PlanRow) =>
-    (localToMillis(p.scenario.end, zone) ?? 0) - (localToMillis(p.scenario.start, zone) ?? 0);
-  const moved = movedBetween(ra, rb, zone, Math.max(span(a.plan), span(b.plan)) > 24 * 3_600_000);
+  // A night longer than a day (a weekend) names the days.
+  const span = (r: PlanResult) => {
+    const h = horizonOf(r);
+    return h ? h.end - h.start : 0;
+  };
+  const moved = movedBetween(ra, rb, zone, Math.max(span(ra), span(rb)) > 24 * 3_600_000);
   return {
     from: { id: a.plan.id, version: a.plan.version, kind: a.plan.kind },
     to: { id: b.plan.id, version: b.plan.version, kind: b.plan.kind },
