@@ -1,5 +1,5 @@
 import { arrangeCharger, cloneAssignment, usablePower, type Assignment, type AssignmentHints } from './assignment.js';
-import { fitCrew, keepsPins } from './crew.js';
+import { endIsFree, fitCrew, keepsPins, minWindow, startIsFree } from './crew.js';
 import { cheaper, type LpResult } from './highs-solver.js';
 import type { AssignedModel, SearchResult } from './local-search.js';
 import type { Problem } from './problem.js';
@@ -69,6 +69,7 @@ function changesFor(
   busy: Uint8Array[],
   short: Float64Array,
   options: { relocations: number; swaps: number },
+  room: Float64Array | null,
 ): Assignment[] {
   const out: Assignment[] = [];
   let widened = false;
@@ -162,6 +163,96 @@ function changesFor(
   // The move to the charger with the most idle energy first (it is what serves most short
   // stays), then the widened window, then the other moves and the swaps.
   if (widened && out.length > 1) [out[0], out[1]] = [out[1]!, out[0]!];
+  // Where every charger is held, a share of another stay's window first (see `insertions`).
+  if (!room) return out;
+  const others = problem.chargers.map((x) => x.index).filter((c) => c !== cj);
+  return [...insertions(problem, best, j, others, room, slotsNeeded, options.relocations), ...out];
+}
+
+/** Crew moves still free in each slot under an assignment (Infinity: no limit). */
+function crewRoom(problem: Problem, a: Assignment): Float64Array {
+  const T = problem.slotCount;
+  const room = new Float64Array(T + 1).fill(Infinity);
+  const cap = problem.yard?.capacity;
+  if (!cap) return room;
+  for (let t = 0; t < T; t++) room[t] = cap[t]!;
+  for (const stay of problem.stays) {
+    if (a.chargerOf[stay.id]! < 0) continue;
+    if (!startIsFree(problem, stay, a.from[stay.id]!)) room[a.from[stay.id]!]!--;
+    if (!endIsFree(problem, stay, a.to[stay.id]!)) room[a.to[stay.id]!]!--;
+  }
+  return room;
+}
+
+/**
+ * Stay j taken off its charger (its neighbour there keeps its slots) and given the part of another
+ * stay's window that the other does not need at full power: after it (j takes the rest of the
+ * window) or before it. The hand-over between them falls in a slot where the crew has room for
+ * two moves, so nothing else need move; on a depot short of chargers this is how a bus left to
+ * the morning rush gets the overnight hold of a bus that is full by midnight. The windows giving
+ * j the most energy, over the given chargers, are tried.
+ */
+function insertions(
+  problem: Problem,
+  best: Assignment,
+  j: number,
+  chargers: number[],
+  room: Float64Array,
+  slotsNeeded: (s: number, c: number) => number,
+  count: number,
+): Assignment[] {
+  const stay = problem.stays[j]!;
+  const minJ = minWindow(problem, stay);
+  const found: { c: number; s: number; after: boolean; h: number; kwh: number }[] = [];
+  for (const c of chargers) {
+    const kw = usablePower(problem, stay, c);
+    for (const s of best.sequence[c]!) {
+      const a = best.from[s]!;
+      const b = best.to[s]!;
+      const keep = Math.max(minWindow(problem, problem.stays[s]!), slotsNeeded(s, c));
+      // After s: the earliest hand-over with room; before s: the latest.
+      for (let h = Math.max(a + keep, stay.arriveSlot); h + minJ <= Math.min(b, stay.departSlot); h++) {
+        if (room[h]! < 2) continue;
+        found.push({ c, s, after: true, h, kwh: kw * (Math.min(b, stay.departSlot) - h) });
+        break;
+      }
+      // A bus already plugged in (re-planning) keeps the start of its window.
+      const pinned = problem.pinned !== undefined && problem.pinned[s]! >= 0;
+      for (let h = b - keep; !pinned && h - minJ >= Math.max(a, stay.arriveSlot); h--) {
+        if (room[h]! < 2) continue;
+        found.push({ c, s, after: false, h, kwh: kw * (h - Math.max(a, stay.arriveSlot)) });
+        break;
+      }
+    }
+  }
+  found.sort((x, y) => y.kwh - x.kwh || x.c - y.c || x.s - y.s || x.h - y.h);
+  const out: Assignment[] = [];
+  for (const f of found.slice(0, count)) {
+    const trial = cloneAssignment(best);
+    const cj = trial.chargerOf[j]!;
+    if (cj >= 0) {
+      const seq = trial.sequence[cj]!;
+      const i = seq.indexOf(j);
+      const p = i > 0 ? seq[i - 1]! : -1;
+      const n = i < seq.length - 1 ? seq[i + 1]! : -1;
+      if (p >= 0) trial.to[p] = Math.min(problem.stays[p]!.departSlot, n >= 0 ? trial.from[n]! : trial.to[j]!);
+      else if (n >= 0) trial.from[n] = Math.max(problem.stays[n]!.arriveSlot, trial.from[j]!);
+      trial.sequence[cj] = seq.filter((x) => x !== j);
+    }
+    const seq = trial.sequence[f.c]!;
+    seq.splice(seq.indexOf(f.s) + (f.after ? 1 : 0), 0, j);
+    trial.chargerOf[j] = f.c;
+    if (f.after) {
+      trial.from[j] = f.h;
+      trial.to[j] = Math.min(best.to[f.s]!, stay.departSlot);
+      trial.to[f.s] = f.h;
+    } else {
+      trial.from[j] = Math.max(best.from[f.s]!, stay.arriveSlot);
+      trial.to[j] = f.h;
+      trial.from[f.s] = f.h;
+    }
+    out.push(trial);
+  }
   return out;
 }
 
@@ -226,6 +317,8 @@ export function repairShort(
     swaps?: number;
     /** Try moving all short stays at once before one at a time. */
     batch?: boolean;
+    /** Also give a short stay the part of another stay's window that it does not need. */
+    heldSpare?: boolean;
   },
 ): SearchResult {
   let best = start;
@@ -256,7 +349,8 @@ export function repairShort(
     // while it is at the depot (one LP solve for all of them; on large depots the short stays are
     // spread over the yard and rarely compete for the same charger).
     const batch = batchTry && order.length > 1 ? batchMove(problem, hints, best, order, busy) : null;
-    const trials = (j: number) => changesFor(problem, hints, best, j, busy, short, options);
+    const room = limits.heldSpare ? crewRoom(problem, best) : null;
+    const trials = (j: number) => changesFor(problem, hints, best, j, busy, short, options, room);
     for (const j of batch ? [-1, ...order] : order) {
       for (const trial of j < 0 ? [batch!] : trials(j)) {
         if (moves >= limits.maxSolves) break outer;
