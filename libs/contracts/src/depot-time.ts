@@ -52,9 +52,14 @@ export function timeAt(at: Instant, timeZone: string): string {
   return format(at, timeZone, 'time', CLOCK_OPTIONS, 'en-GB');
 }
 
+/** "Wed" at the depot. */
+export function weekdayAt(at: Instant, timeZone: string): string {
+  return format(at, timeZone, 'weekday', { weekday: 'short' });
+}
+
 /** "Wed 21:30" at the depot (a night spans two days). */
 export function weekdayTimeAt(at: Instant, timeZone: string): string {
-  return `${format(at, timeZone, 'weekday', { weekday: 'short' })} ${timeAt(at, timeZone)}`;
+  return `${weekdayAt(at, timeZone)} ${timeAt(at, timeZone)}`;
 }
 
 /** "Tue, Dec 1" (in the viewer's language) at the depot. */

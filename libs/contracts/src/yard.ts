@@ -58,6 +58,18 @@ export const tonightPlanSchema = planDetailSchema.omit({ result: true, notes: tr
   sessions: z.array(yardSessionSchema),
   /** The newest "Revised at HH:mm: ..." note, null for a plan never revised. */
   revisionNote: z.string().nullable(),
+  /**
+   * The buses this plan moved and why, in the engine's words: from the cut-off on in a revision
+   * (`againstVersion` null), or against the version it kept in a night planned again
+   * (`againstVersion`). Null for a first plan.
+   */
+  moved: z
+    .object({
+      buses: z.array(z.string()),
+      reasons: z.array(z.string()),
+      againstVersion: z.number().int().positive().nullable(),
+    })
+    .nullable(),
 });
 export type TonightPlan = z.infer<typeof tonightPlanSchema>;
 

@@ -54,12 +54,22 @@ export async function planFromCutOff(
 }
 
 /** The night as a whole: what stood before the re-plan's first slot, then the re-plan. */
+/**
+ * What a stored re-plan keeps of the engine's account: where it starts, the chargers out, the
+ * buses plugged in, and which buses it moved and why (the review and the Yard say so); not the
+ * kept sessions, which are in the plan's own.
+ */
+function replanFacts(next: Replan): NonNullable<PlanResult['replan']> {
+  const { from, outOfService, plugged, moved } = next.replan;
+  return { from, outOfService, plugged, ...(moved ? { moved } : {}) };
+}
+
 export function mergeReplan(previous: PlanResult | null, next: Replan): PlanResult {
   const result: PlanResult = next;
   if (!previous)
     return {
       ...result,
-      replan: { from: next.replan.from, outOfService: next.replan.outOfService, plugged: next.replan.plugged },
+      replan: replanFacts(next),
     };
   const firstNew = Date.parse(next.replan.from);
   const newLoad = new Map(next.slots.map((s) => [Date.parse(s.start), s.loadKw]));
@@ -69,7 +79,7 @@ export function mergeReplan(previous: PlanResult | null, next: Replan): PlanResu
       Date.parse(s.start) >= firstNew ? { ...s, loadKw: newLoad.get(Date.parse(s.start)) ?? s.loadKw } : s,
     ),
     sessions: mergeSessions(keptAsBefore(previous, next.replan.kept as PlanResult['sessions']), next.sessions),
-    replan: { from: next.replan.from, outOfService: next.replan.outOfService, plugged: next.replan.plugged },
+    replan: replanFacts(next),
   };
 }
 

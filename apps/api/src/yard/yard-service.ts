@@ -290,6 +290,11 @@ function tonightPlanOf(detail: PlanDetail): TonightPlan {
     horizon: result ? horizonOf(result) : null,
     sessions: (result?.sessions ?? []).map(({ kw: _kw, ...session }) => session),
     revisionNote: notes.findLast((n) => n.startsWith('Revised at ')) ?? null,
+    moved: result?.replan?.moved
+      ? { ...result.replan.moved, againstVersion: null }
+      : result?.moved && result.keptFrom
+        ? { ...result.moved, againstVersion: result.keptFrom.version }
+        : null,
   };
 }
 

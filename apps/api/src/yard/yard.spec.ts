@@ -106,11 +106,13 @@ describe('yard: reports re-plan the rest of the night', () => {
       .expect(201);
     expect(res.body.revision).toMatchObject({ kind: 'revision', state: 'published', version: 2 });
     expect(before.plan.revisionNote).toBeNull();
-    expect((await tonight()).plan.revisionNote).toBe(
-      `Revised at 23:00: charger ${charger} out of service (Connector latch broken).`,
-    );
+    const after = (await tonight()).plan;
+    expect(after.revisionNote).toBe(`Revised at 23:00: charger ${charger} out of service (Connector latch broken).`);
     const [row] = await app.db.select().from(plans).where(eq(plans.id, res.body.revision.id));
     const next = row!.result!;
+    // The yard is told which buses moved and why, as the e-mail and the review are.
+    expect(after.moved).toEqual({ ...next.replan!.moved!, againstVersion: null });
+    expect(after.moved.reasons[0]).toMatch(new RegExp(`^charger ${charger} out of service`));
     for (const s of next.sessions.filter((x) => x.charger === charger)) {
       expect(Date.parse(s.end)).toBeLessThanOrEqual(cut);
     }

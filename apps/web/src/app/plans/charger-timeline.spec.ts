@@ -3,15 +3,17 @@ import { ChargerTimeline } from './charger-timeline';
 import { planResult } from './plan-fixtures';
 
 describe('ChargerTimeline', () => {
-  async function render() {
-    const fixture = TestBed.createComponent(ChargerTimeline);
-    fixture.componentRef.setInput('result', planResult());
-    fixture.componentRef.setInput('timezone', 'America/Chicago');
-    fixture.componentRef.setInput('chargers', [
+  async function render(
+    chargers: { id: string; maxKw: number; out?: boolean }[] = [
       { id: 'C2', maxKw: 30 },
       { id: 'C10', maxKw: 120 },
       { id: 'C1', maxKw: 60 },
-    ]);
+    ],
+  ) {
+    const fixture = TestBed.createComponent(ChargerTimeline);
+    fixture.componentRef.setInput('result', planResult());
+    fixture.componentRef.setInput('timezone', 'America/Chicago');
+    fixture.componentRef.setInput('chargers', chargers);
     await fixture.whenStable();
     fixture.detectChanges();
     return fixture.nativeElement as HTMLElement;
@@ -21,6 +23,18 @@ describe('ChargerTimeline', () => {
     const el = await render();
     expect([...el.querySelectorAll('.label .charger')].map((c) => c.textContent?.trim())).toEqual(['C1', 'C2', 'C10']);
     expect(el.querySelectorAll('.track')[2]!.querySelectorAll('.bar').length).toBe(0);
+  });
+
+  it('shows a charger out of service now only where the plan used it, with its power', async () => {
+    const el = await render([
+      { id: 'C2', maxKw: 30, out: true },
+      { id: 'C10', maxKw: 120, out: true },
+      { id: 'C1', maxKw: 60 },
+    ]);
+    const labels = [...el.querySelectorAll('.label')].map(
+      (c) => `${c.querySelector('.charger')?.textContent?.trim()} ${c.querySelector('.kw')?.textContent?.trim()}`,
+    );
+    expect(labels).toEqual(['C1 60 kW', 'C2 30 kW']);
   });
 
   it('places each bar in proportion to its time across the night, labelled by bus', async () => {

@@ -19,6 +19,8 @@ import { axisTicks, placeSpan, timelineSegments } from './timeline-scale';
 export interface TimelineCharger {
   id: string;
   maxKw: number | null;
+  /** Out of service now: shown (with its power) only where the plan uses it. */
+  out?: boolean;
 }
 
 interface Bar {
@@ -107,9 +109,8 @@ export class ChargerTimeline {
     const segs = this.segments();
     const px = this.trackPx();
     const kw = new Map(this.chargers().map((c) => [c.id, c.maxKw]));
-    const ids = [...new Set([...this.chargers().map((c) => c.id), ...r.sessions.map((s) => s.charger)])].sort(
-      naturalCompare,
-    );
+    const shown = this.chargers().filter((c) => !c.out);
+    const ids = [...new Set([...shown.map((c) => c.id), ...r.sessions.map((s) => s.charger)])].sort(naturalCompare);
     return ids.map((id) => ({
       id,
       maxKw: kw.get(id) ?? null,

@@ -52,7 +52,7 @@ describe('PlansStore', () => {
     mock.verify();
   });
 
-  it('exposes the night, its versions, the chosen one in full and the chargers in service', async () => {
+  it('exposes the night, its versions, the chosen one in full and the chargers, those out marked', async () => {
     await start();
     expect(store.night()).toBe('2026-12-03');
     expect(store.versionsLoading()).toBe(true);
@@ -73,7 +73,10 @@ describe('PlansStore', () => {
     expect(store.published()?.id).toBe(PLAN_IDS.published);
     // The published version is the one shown when none is asked for.
     expect(store.selectedId()).toBe(PLAN_IDS.published);
-    expect(store.chargers()).toEqual([{ id: 'C1', maxKw: 60 }]);
+    expect(store.chargers()).toEqual([
+      { id: 'C1', maxKw: 60, out: false },
+      { id: 'C2', maxKw: 30, out: true },
+    ]);
     mock
       .expectOne(`/api/plans/${PLAN_IDS.published}`)
       .flush({ plan: planDetail({ id: PLAN_IDS.published, version: 1, state: 'published' }) });

@@ -142,14 +142,17 @@ export class PlansStore {
     return d && d.id === this.selectedId() && d.status === 'done' && d.result ? (d as Reviewable) : null;
   });
 
-  /** The depot's chargers in service, so idle ones show on the timeline too. */
+  /**
+   * The depot's chargers, so idle ones in service show on the timeline too, and one out of service
+   * now that the plan used before still shows its power.
+   */
   private readonly depotChargers = resource({
     params: () => (this.nightKey() ? this.nightKey()!.depotId : undefined),
     defaultValue: [],
     loader: async ({ params: depotId }): Promise<TimelineCharger[]> => {
       try {
         const depot = await this.api.depot(depotId);
-        return depot.chargers.filter((c) => c.status === 'in_service').map((c) => ({ id: c.label, maxKw: c.maxKw }));
+        return depot.chargers.map((c) => ({ id: c.label, maxKw: c.maxKw, out: c.status !== 'in_service' }));
       } catch {
         // The timeline then shows the chargers the plan uses.
         return [];

@@ -66,4 +66,17 @@ describe('timeline scale', () => {
     const wide = axisTicks(segs, 'America/Chicago', 1200);
     expect(wide.length).toBeGreaterThan(narrow.length);
   });
+
+  it('names the day at midnight on a weekend horizon, where the hours come round more than once', () => {
+    // Fri 2026-12-11 16:00 to Mon 06:00 at the depot (America/Chicago): plug-ins all the way.
+    const start = Date.parse('2026-12-11T22:00:00Z');
+    const end = Date.parse('2026-12-14T12:00:00Z');
+    const segs = timelineSegments({ start, end }, [[start, end]]);
+    const labels = axisTicks(segs, 'America/Chicago', 1200).map((t) => t.label);
+    expect(labels.filter((l) => /^[A-Z][a-z]{2}$/.test(l))).toEqual(['Sat', 'Sun', 'Mon']);
+    expect(labels.filter((l) => l === '00:00')).toEqual([]);
+    // A single night keeps 00:00.
+    const night = timelineSegments({ start: at(9.75), end: at(25) }, [[at(9.75), at(25)]]);
+    expect(axisTicks(night, 'America/Chicago', 1200).map((t) => t.label)).toContain('00:00');
+  });
 });

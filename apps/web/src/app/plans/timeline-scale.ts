@@ -1,3 +1,4 @@
+import { weekdayAt } from '@nightyard/contracts/depot-time';
 import { clock } from './plan-format';
 
 const HOUR = 3_600_000;
@@ -89,7 +90,8 @@ export interface AxisTick {
 /**
  * Axis marks on whole hours at the depot, in the segments shown to scale, every 1, 2, 3, 4 or 6
  * hours as the width allows; a mark whose label would touch the one before it is dropped, so
- * labels never collide.
+ * labels never collide. On a horizon longer than a day (a weekend), midnight is marked by the day
+ * it begins ("Sat"), since 18:00 and 06:00 come round more than once.
  */
 export function axisTicks(segments: readonly Segment[], timeZone: string, widthPx: number): AxisTick[] {
   const width = Math.max(widthPx, 1);
@@ -98,12 +100,14 @@ export function axisTicks(segments: readonly Segment[], timeZone: string, widthP
   const shownPct = shown.reduce((sum, s) => sum + s.width, 0);
   const pxPerHour = shownMs > 0 ? ((shownPct / 100) * width) / (shownMs / HOUR) : width;
   const step = [1, 2, 3, 4, 6].find((n) => n * pxPerHour >= TICK_GAP_PX) ?? 6;
+  const days = segments.length > 0 && segments.at(-1)!.end - segments[0]!.start > 24 * HOUR;
   const out: (AxisTick & { from: number; to: number })[] = [];
   for (const s of shown) {
     for (let t = Math.ceil(s.start / HOUR) * HOUR; t <= s.end; t += HOUR) {
-      const label = clock(new Date(t).toISOString(), timeZone);
-      const [hh, mm] = label.split(':').map(Number);
+      const time = clock(new Date(t).toISOString(), timeZone);
+      const [hh, mm] = time.split(':').map(Number);
       if (mm !== 0 || (hh ?? 0) % step !== 0) continue;
+      const label = days && hh === 0 ? weekdayAt(t, timeZone) : time;
       const left = placeAt(segments, t);
       const x = (left / 100) * width;
       const edge = x < LABEL_PX / 2 ? 'start' : x > width - LABEL_PX / 2 ? 'end' : null;

@@ -63,10 +63,14 @@ export class ChargerCard {
       view: v,
       urgent: v.reason !== null,
       when: dueText(v, this.now()),
+      // A plug-in cut short (its charger reported out) may have had no charging planned yet:
+      // "After 0 kWh planned" read as if the bus had not charged.
       energy:
         v.step.action === 'connect'
           ? `${kwh(v.step.kwh)} planned for this plug-in`
-          : `After ${kwh(v.step.kwh)} planned`,
+          : v.step.kwh < 0.05
+            ? 'No charging planned in this plug-in'
+            : `After ${kwh(v.step.kwh)} planned`,
       button: v.step.action === 'connect' ? 'Confirm plugged in' : 'Confirm unplugged',
       label: `${v.step.action === 'connect' ? 'Confirm plugged in' : 'Confirm unplugged'}: bus ${v.step.bus} ${v.step.action === 'connect' ? 'at' : 'from'} charger ${v.step.charger}`,
     };

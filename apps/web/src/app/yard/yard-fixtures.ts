@@ -61,6 +61,7 @@ export function plan(overrides: Partial<TonightPlan> = {}): TonightPlan {
     horizon: { start: Date.parse(at('18:00')), end: Date.parse(at('07:00')), slotMs: 15 * 60_000 },
     sessions,
     revisionNote: null,
+    moved: null,
     ...overrides,
   };
 }

@@ -139,6 +139,34 @@ describe('yard format', () => {
     );
   });
 
+  it('says how many buses a revision moved and why, as the e-mail does', () => {
+    const plan = tonight().plan!;
+    const revised = {
+      ...plan,
+      version: 2,
+      kind: 'revision' as const,
+      publishedBy: 'Kofi Brandt',
+      revisionNote: 'Revised at 19:34: charger C2 out of service (cable cut).',
+      moved: {
+        buses: ['202', '204', '214'],
+        reasons: ['charger C2 out of service: 3 buses were planned on it'],
+        againstVersion: null,
+      },
+    };
+    expect(revisionNotice(revised, ZONE)).toBe(
+      'Plan revised at 19:34 (version 2): charger C2 out of service (cable cut). Reported by Kofi Brandt. ' +
+        '3 buses moved from the cut-off on, because: charger C2 out of service: 3 buses were planned on it.',
+    );
+    // A night planned again and published: what changed against the version the yard had.
+    const again = { ...plan, version: 2, moved: { buses: ['216'], reasons: ['x'], againstVersion: 1 } };
+    expect(revisionNotice(again, ZONE)).toBe(
+      'A new plan was published at 10:00 (version 2) by Sam Reyes. Against version 1: 1 bus changes charger or times (216). Check your next steps.',
+    );
+    expect(revisionNotice({ ...again, moved: { buses: [], reasons: [], againstVersion: 1 } }, ZONE)).toContain(
+      'Against version 1: no bus changes charger or times.',
+    );
+  });
+
   it("describes a charger's live state with an icon and words", () => {
     expect(
       liveView(

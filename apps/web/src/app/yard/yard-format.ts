@@ -238,19 +238,35 @@ export function liveView(
 // ---------------------------------------------------------------------------------------------
 // Revisions
 
-/** "Plan revised at 23:05 (version 3): charger C3 out of service (cable damaged)" */
+/**
+ * "Plan revised at 23:05 (version 3): charger C3 out of service (cable damaged). 2 buses moved from
+ * the cut-off on, because: …" - with the moved buses in the e-mails' words.
+ */
 export function revisionNotice(
-  plan: Pick<TonightPlan, 'version' | 'kind' | 'revisionNote' | 'publishedAt' | 'publishedBy'>,
+  plan: Pick<TonightPlan, 'version' | 'kind' | 'revisionNote' | 'publishedAt' | 'publishedBy' | 'moved'>,
   timeZone: string,
 ): string {
   const note = plan.revisionNote;
   const match = note ? /^Revised at (\d{1,2}:\d{2}): (.*?)\.?$/.exec(note) : null;
+  const moved = plan.moved;
   if (plan.kind === 'revision' && match) {
-    return `Plan revised at ${match[1]} (version ${plan.version}): ${match[2]}${plan.publishedBy ? `. Reported by ${plan.publishedBy}` : ''}.`;
+    const why =
+      moved && moved.againstVersion === null && moved.reasons.length
+        ? ` ${busCount(moved.buses.length)} moved from the cut-off on, because: ${moved.reasons.join('; ')}.`
+        : '';
+    return `Plan revised at ${match[1]} (version ${plan.version}): ${match[2]}${plan.publishedBy ? `. Reported by ${plan.publishedBy}` : ''}.${why}`;
   }
   const at = plan.publishedAt ? ` at ${clock(plan.publishedAt, timeZone)}` : '';
-  return `A new plan was published${at} (version ${plan.version})${plan.publishedBy ? ` by ${plan.publishedBy}` : ''}. Check your next steps.`;
+  const against =
+    moved && moved.againstVersion !== null
+      ? moved.buses.length
+        ? ` Against version ${moved.againstVersion}: ${moved.buses.length === 1 ? '1 bus changes' : `${moved.buses.length} buses change`} charger or times (${moved.buses.join(', ')}).`
+        : ` Against version ${moved.againstVersion}: no bus changes charger or times.`
+      : '';
+  return `A new plan was published${at} (version ${plan.version})${plan.publishedBy ? ` by ${plan.publishedBy}` : ''}.${against} Check your next steps.`;
 }
+
+const busCount = (n: number) => `${n} ${n === 1 ? 'bus' : 'buses'}`;
 
 const REPORT_KINDS: Record<string, string> = {
   bus_late: 'Bus late',

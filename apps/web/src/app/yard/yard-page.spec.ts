@@ -314,6 +314,8 @@ describe('YardPage', () => {
         text: words,
         reason: 'Charger C1 out of service (cable cut)',
         moveTo: { charger: 'C3', at: at('22:45') },
+        // Its charging was planned for later in the night: none before the report.
+        kwh: 0,
       }),
       step({ action: 'connect', bus: '201', charger: 'C3', at: at('22:45') }),
     ];
@@ -330,6 +332,8 @@ describe('YardPage', () => {
     expect(text(c1.querySelector('.next .when'))).toContain('Due now (22:27)');
     expect(text(c1.querySelector('.next .reason'))).toBe('Charger C1 out of service (cable cut)');
     expect(text(c1.querySelector('.next .sentence'))).toBe(`${words} (reported 22:27)`);
+    expect(text(c1.querySelector('.next'))).toContain('No charging planned in this plug-in');
+    expect(text(c1.querySelector('.next'))).not.toContain('After 0 kWh');
     // Nothing is to be plugged into C1 any more (its 21:00 plug-in stays in the history, done).
     expect(c1.querySelectorAll('li[data-step^="connect|"]:not([data-state="done"])')).toHaveLength(0);
     expect(text(el.querySelector('ny-next-hour li'))).toContain(words);
