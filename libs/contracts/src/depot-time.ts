@@ -77,6 +77,16 @@ export function dateTimeAt(at: Instant, timeZone: string): string {
   return format(at, timeZone, 'date-time', { day: 'numeric', month: 'short', year: 'numeric', ...CLOCK_OPTIONS });
 }
 
+/**
+ * "Friday, December 4, 2026": a night's date (YYYY-MM-DD) as e-mails name it, the way the screens
+ * do in US English (a server does not know its reader's language).
+ */
+export function longDate(date: string): string {
+  const ms = Date.parse(`${date}T12:00:00Z`);
+  if (Number.isNaN(ms)) return date;
+  return format(ms, 'UTC', 'long-date', { weekday: 'long', day: 'numeric', month: 'long', year: 'numeric' }, 'en-US');
+}
+
 /** The depot's wall clock at an instant: `{ date: 'YYYY-MM-DD', time: 'HH:mm', hour }`. */
 export function depotParts(at: Instant, timeZone: string): { date: string; time: string; hour: number } {
   const options: Intl.DateTimeFormatOptions = { year: 'numeric', month: '2-digit', day: '2-digit', ...CLOCK_OPTIONS };

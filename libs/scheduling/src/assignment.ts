@@ -38,6 +38,25 @@ export function cloneAssignment(a: Assignment): Assignment {
   };
 }
 
+/**
+ * Stay j taken off its charger, in place: the stay before it there keeps the charger until the
+ * one after it (or until j's end), or else the one after it starts at j's start, so the crew's
+ * hand-overs around j become one. Returns the assignment.
+ */
+export function takeOff(problem: Problem, a: Assignment, j: number): Assignment {
+  const cj = a.chargerOf[j]!;
+  if (cj < 0) return a;
+  const seq = a.sequence[cj]!;
+  const i = seq.indexOf(j);
+  const p = i > 0 ? seq[i - 1]! : -1;
+  const n = i < seq.length - 1 ? seq[i + 1]! : -1;
+  if (p >= 0) a.to[p] = Math.min(problem.stays[p]!.departSlot, n >= 0 ? a.from[n]! : a.to[j]!);
+  else if (n >= 0) a.from[n] = Math.max(problem.stays[n]!.arriveSlot, a.from[j]!);
+  a.sequence[cj] = seq.filter((x) => x !== j);
+  a.chargerOf[j] = -1;
+  return a;
+}
+
 export function usablePower(problem: Problem, stay: Stay, charger: number): number {
   return Math.min(problem.buses[stay.bus]!.maxKw, problem.chargers[charger]!.maxKw);
 }

@@ -8,6 +8,7 @@ import { solveCrewBound } from './crew-bound.js';
 import { crewNightCandidates, hintsFrom, polishHandovers } from './crew-night.js';
 import { exactSize, solveExact } from './exact.js';
 import { cheaper, loadSolver, type LpResult, type Solver } from './highs-solver.js';
+import { wholeStaysOnIdle } from './whole-stays.js';
 import { AssignedModel, LARGE_STAYS, localSearch, type SearchResult } from './local-search.js';
 import { defaultLnsLimits, pairSearch } from './lns.js';
 import { solveLowerBound } from './lower-bound.js';
@@ -907,6 +908,9 @@ function preferStableAndFewerMoves(
         chosen = { ...chosen, assignment: fewer, result: res };
       }
     }
+    // Buses moved whole onto chargers that stand idle through their stay (whole-stays.ts).
+    const idle = wholeStaysOnIdle(problem, hints.energy, live, chosen.assignment, limit, limits.deadline);
+    if (idle) chosen = { ...chosen, assignment: idle.assignment, result: idle.result };
     const movesChosen = countCrewMoves(problem, chosen.assignment);
     if (movesChosen < movesBefore) {
       chosen.crewTrade = {

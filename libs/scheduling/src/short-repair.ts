@@ -1,4 +1,11 @@
-import { arrangeCharger, cloneAssignment, usablePower, type Assignment, type AssignmentHints } from './assignment.js';
+import {
+  arrangeCharger,
+  cloneAssignment,
+  takeOff,
+  usablePower,
+  type Assignment,
+  type AssignmentHints,
+} from './assignment.js';
 import { endIsFree, fitCrew, keepsPins, minWindow, startIsFree } from './crew.js';
 import { cheaper, type LpResult } from './highs-solver.js';
 import type { AssignedModel, SearchResult } from './local-search.js';
@@ -228,17 +235,7 @@ function insertions(
   found.sort((x, y) => y.kwh - x.kwh || x.c - y.c || x.s - y.s || x.h - y.h);
   const out: Assignment[] = [];
   for (const f of found.slice(0, count)) {
-    const trial = cloneAssignment(best);
-    const cj = trial.chargerOf[j]!;
-    if (cj >= 0) {
-      const seq = trial.sequence[cj]!;
-      const i = seq.indexOf(j);
-      const p = i > 0 ? seq[i - 1]! : -1;
-      const n = i < seq.length - 1 ? seq[i + 1]! : -1;
-      if (p >= 0) trial.to[p] = Math.min(problem.stays[p]!.departSlot, n >= 0 ? trial.from[n]! : trial.to[j]!);
-      else if (n >= 0) trial.from[n] = Math.max(problem.stays[n]!.arriveSlot, trial.from[j]!);
-      trial.sequence[cj] = seq.filter((x) => x !== j);
-    }
+    const trial = takeOff(problem, cloneAssignment(best), j);
     const seq = trial.sequence[f.c]!;
     seq.splice(seq.indexOf(f.s) + (f.after ? 1 : 0), 0, j);
     trial.chargerOf[j] = f.c;

@@ -3,6 +3,7 @@ import { DateTime } from 'luxon';
 import {
   baselineName,
   horizonOf,
+  longDate,
   planResultSchema,
   type PlanComparison,
   type PlanDetail,
@@ -355,7 +356,7 @@ async function notifyPublished(
         to: r.email,
         name: r.name,
         depot: depot!.name,
-        night: DateTime.fromISO(plan.serviceDate).toFormat('cccc d LLLL yyyy'),
+        night: longDate(plan.serviceDate),
         version: plan.version,
         publishedBy: caller.name,
         buses: scenario.buses.length,

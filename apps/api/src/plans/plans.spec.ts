@@ -123,7 +123,7 @@ describe('plans', () => {
     expect(res.body.plan.state).toBe('published');
     const [mail] = await mailFor(yard.email);
     expect(mail!.subject).toMatch(
-      /Charging plan published: Test depot, night of Wednesday 9 December 2026 \(version 1\)/,
+      /Charging plan published: Test depot, night of Wednesday, December 9, 2026 \(version 1\)/,
     );
     // Built per recipient: yard staff get the Yard at that night (Plans is not theirs to open).
     expect(mail!.text).toContain('Open the yard view for that night: http://nightyard.test/yard?night=2026-12-09');

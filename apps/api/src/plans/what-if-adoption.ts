@@ -1,5 +1,5 @@
 import { and, eq } from 'drizzle-orm';
-import { DateTime } from 'luxon';
+import { longDate } from '@nightyard/contracts';
 import type { AdoptedPlan, WhatIfAdoption } from '@nightyard/contracts';
 import { parseScenario, type Scenario } from '@nightyard/scheduling';
 import type { Db } from '../db/client';
@@ -51,7 +51,7 @@ async function recheck(db: Db, caller: AuthUser, id: string, now: Date) {
     );
   }
   const night = await nightOfDepot(db, depot, now);
-  const nightText = DateTime.fromISO(plan.serviceDate).toFormat('cccc d LLLL yyyy');
+  const nightText = longDate(plan.serviceDate);
   if (plan.serviceDate < night.tonight.serviceDate) {
     throw conflict(
       `The night of ${nightText} has ended: what-if version ${plan.version} can no longer be adopted. Upload a scenario for a night to come. ${NOTHING_CHANGED}`,

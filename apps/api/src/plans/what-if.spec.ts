@@ -240,7 +240,7 @@ describe('what-if plans are studies', () => {
     const count = (await nightPlans()).length;
     const res = await app.request().post(`/api/plans/${whatIfId}/adopt`).set(as(sup)).expect(409);
     expect(res.body.error.message).toMatch(
-      /The night of Wednesday 9 December 2026 has ended: what-if version 2 can no longer be adopted/,
+      /The night of Wednesday, December 9, 2026 has ended: what-if version 2 can no longer be adopted/,
     );
     expect((await nightPlans()).length).toBe(count);
   });

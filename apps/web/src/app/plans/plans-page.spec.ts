@@ -217,7 +217,7 @@ describe('PlansPage', () => {
       {
         error: {
           code: 'conflict',
-          message: 'The night of Thursday 3 December 2026 has ended: what-if version 3 can no longer be adopted.',
+          message: 'The night of Thursday, December 3, 2026 has ended: what-if version 3 can no longer be adopted.',
         },
       },
       { status: 409, statusText: 'Conflict' },
@@ -227,7 +227,7 @@ describe('PlansPage', () => {
     expect(open).not.toHaveBeenCalled();
     mock.expectNone(`/api/plans/${WHAT_IF_ID}/adopt`);
     expect(el.querySelector('ny-problem-summary')?.textContent).toContain(
-      'Not adopted. The night of Thursday 3 December 2026 has ended',
+      'Not adopted. The night of Thursday, December 3, 2026 has ended',
     );
   });
 
