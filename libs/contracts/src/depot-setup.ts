@@ -2,6 +2,7 @@ import { z } from 'zod';
 import { lower, text } from './text';
 import { isoDate, localDateTimeSchema } from './dates';
 import { yardCrewSchema } from './yard-crew';
+import { liveStatusSchema } from './live';
 
 export { localDateTimeSchema };
 
@@ -94,7 +95,7 @@ export const chargerSchema = z.object({
   /** What the charger itself last reported over OCPP. */
   live: z
     .object({
-      status: z.enum(['available', 'charging', 'faulted', 'offline']),
+      status: liveStatusSchema,
       powerKw: z.number().nullable(),
       seenAt: z.iso.datetime({ offset: true }).nullable(),
     })

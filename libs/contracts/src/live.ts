@@ -6,11 +6,18 @@ import { z } from 'zod';
  * the JSON of the whole object.
  */
 
+/**
+ * A charger's state as it reports it over OCPP: `connected` is a bus plugged in and not drawing
+ * (waiting for its hours, or full); `available` is nothing plugged in.
+ */
+export const liveStatusSchema = z.enum(['available', 'connected', 'charging', 'faulted', 'offline']);
+export type LiveStatus = z.infer<typeof liveStatusSchema>;
+
 /** A charger's state as it reports it over OCPP (the same shape as a charger's `live`). */
 export const liveChargerSchema = z.object({
   chargerId: z.uuid(),
   label: z.string(),
-  status: z.enum(['available', 'charging', 'faulted', 'offline']),
+  status: liveStatusSchema,
   powerKw: z.number().nullable(),
   seenAt: z.iso.datetime({ offset: true }).nullable(),
 });

@@ -24,6 +24,7 @@ import { DomainError, notFound } from '../http/errors';
 import { lockTarget } from '../db/locks';
 import type { AuthUser } from '../auth/auth-user';
 import { depotOf } from './depot-access';
+import { liveStatusFor } from '../live/live-charger';
 
 type ChargerRow = typeof chargers.$inferSelect;
 
@@ -119,9 +120,7 @@ const toCharger = (c: ChargerRow, cabinetLabel: string | null, zone: string): Ch
   ocppIdentity: c.ocppIdentity,
   live: c.ocppIdentity
     ? {
-        status: c.liveConnected
-          ? ((c.liveStatus ?? 'available') as 'available' | 'charging' | 'faulted' | 'offline')
-          : 'offline',
+        status: liveStatusFor(c),
         powerKw: c.liveConnected && c.livePowerW !== null ? Math.round(c.livePowerW / 100) / 10 : null,
         seenAt: c.liveSeenAt?.toISOString() ?? null,
       }

@@ -187,6 +187,30 @@ describe('live stream of a depot (Server-Sent Events)', () => {
     expect(detail.body.depot.chargers.find((c: { label: string }) => c.label === 'B').live.status).toBe('available');
   });
 
+  it('a bus plugged in and not drawing shows as plugged in, not as an available charger', async () => {
+    const stream = await open(`/depots/${depotId}/live`, yard);
+    await expect.poll(() => stream.of('snapshot').length).toBe(1);
+    // OCPP 2.0.1 says Occupied whether or not power flows; no plan is published here, so none does.
+    const station = new SimulatedStation({
+      url: ocppUrl,
+      identity: identity('C'),
+      password: 'test-charger-password',
+      protocol: 'ocpp2.0.1',
+      meterIntervalMs: 100,
+    });
+    stations.push(station);
+    await station.start();
+    await expect
+      .poll(() => stream.of('charger').findLast((e) => e.charger.label === 'C')?.charger.status, { timeout: 5000 })
+      .toBe('available');
+    await station.plugIn(40);
+    await expect
+      .poll(() => stream.of('charger').findLast((e) => e.charger.label === 'C')?.charger, { timeout: 5000 })
+      .toMatchObject({ status: 'connected', powerKw: 0 });
+    const detail = await app.request().get(`/api/depots/${depotId}`).set(as(fac)).expect(200);
+    expect(detail.body.depot.chargers.find((c: { label: string }) => c.label === 'C').live.status).toBe('connected');
+  });
+
   it('a reconnection starts from the stored state; a charger that leaves goes offline', async () => {
     const station = stations[0]!;
     await station.fault();

@@ -13,7 +13,7 @@ import { chargingProfiles, type OcppVersion, type ProfileNight } from './chargin
 import { profileNightsOf } from './profile-nights';
 import { FailureThrottle } from './failure-throttle';
 import { LiveStateWriter, type LiveValues } from './live-state-writer';
-import type { LiveCharger } from '@nightyard/contracts';
+import type { LiveCharger, LiveStatus } from '@nightyard/contracts';
 import { liveChargerOf } from '../live/live-charger';
 
 /** Told of a charger's new live state (status or power changed), once it is stored. */
@@ -30,15 +30,19 @@ type RpcClient = {
 };
 
 /** The live states the product shows, from OCPP's richer connector statuses. */
-export type LiveStatus = 'available' | 'charging' | 'faulted' | 'offline';
 
 export function liveStatusOf(ocppStatus: string): LiveStatus {
   switch (ocppStatus) {
     case 'Charging':
-    case 'Occupied':
+      return 'charging';
+    // A bus on the connector, not drawing: 1.6's states around a transaction, and 2.0.1's
+    // Occupied, which is also charging while power flows (see liveChargerOf).
+    case 'Preparing':
     case 'SuspendedEV':
     case 'SuspendedEVSE':
-      return 'charging';
+    case 'Finishing':
+    case 'Occupied':
+      return 'connected';
     case 'Faulted':
       return 'faulted';
     case 'Unavailable':

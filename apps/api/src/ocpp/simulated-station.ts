@@ -28,6 +28,8 @@ export class SimulatedStation {
   private lastStatus = '';
   /** A reported fault stands until `clear()`, as a real one does until someone fixes it. */
   private faulted = false;
+  /** A bus is plugged in (since `plugIn`): with no power allowed the station says so, not Available. */
+  private plugged = false;
   /** Meter reports sent so far: tests wait for the next one rather than for a fixed time. */
   reports = 0;
   private transactions = 0;
@@ -90,7 +92,17 @@ export class SimulatedStation {
     const w = this.faulted ? 0 : this.limitW();
     const v16 = this.opts.protocol === 'ocpp1.6';
     const timestamp = this.clock().toISOString();
-    const status = this.faulted ? 'Faulted' : w > 0 ? (v16 ? 'Charging' : 'Occupied') : 'Available';
+    const status = this.faulted
+      ? 'Faulted'
+      : w > 0
+        ? v16
+          ? 'Charging'
+          : 'Occupied'
+        : this.plugged
+          ? v16
+            ? 'SuspendedEVSE'
+            : 'Occupied'
+          : 'Available';
     if (status !== this.lastStatus) {
       await this.client.call(
         'StatusNotification',
@@ -129,6 +141,7 @@ export class SimulatedStation {
   async plugIn(socPct: number): Promise<void> {
     const v16 = this.opts.protocol === 'ocpp1.6';
     const timestamp = this.clock().toISOString();
+    this.plugged = true;
     if (v16) {
       const { transactionId } = (await this.client.call('StartTransaction', {
         connectorId: 1,
@@ -178,6 +191,8 @@ export class SimulatedStation {
         ],
       });
     }
+    // Its status now (a bus on the connector), not at the next meter interval.
+    await this.report();
   }
 
   /** Reports a fault; it stays (the station draws nothing and keeps saying so) until `clear()`. */

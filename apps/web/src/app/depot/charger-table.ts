@@ -71,7 +71,7 @@ export function viewChargers(chargers: readonly Charger[], view: ChargerView): C
 function liveText(c: Charger): string | null {
   if (!c.live) return null;
   const power = c.live.status === 'charging' && c.live.powerKw !== null ? ` at ${formatKw(c.live.powerKw)}` : '';
-  return `Reports ${c.live.status}${power}`;
+  return `Reports ${c.live.status === 'connected' ? 'a bus plugged in, not charging' : c.live.status}${power}`;
 }
 
 /** The depot's chargers: sortable by each column, filtered by text and status. */

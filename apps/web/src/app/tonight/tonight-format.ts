@@ -39,10 +39,11 @@ export function peakLoad(plan: Pick<PlanDetail, 'result'>): PeakLoad | null {
   return { peakKw: peak.loadKw, limitKw: peak.limitKw, over: slots.some((s) => s.loadKw > s.limitKw + 1e-6) };
 }
 
-export type LiveState = 'available' | 'charging' | 'faulted' | 'offline' | 'unknown';
+export type LiveState = 'available' | 'connected' | 'charging' | 'faulted' | 'offline' | 'unknown';
 
 export const LIVE_STATES: readonly { state: LiveState; label: string; icon: string }[] = [
   { state: 'charging', label: 'Charging', icon: 'bolt' },
+  { state: 'connected', label: 'Plugged in, not charging', icon: 'electrical_services' },
   { state: 'available', label: 'Available', icon: 'check_circle' },
   { state: 'faulted', label: 'Faulted', icon: 'error' },
   { state: 'offline', label: 'Offline', icon: 'cloud_off' },

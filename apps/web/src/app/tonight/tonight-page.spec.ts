@@ -183,19 +183,22 @@ describe('TonightPage', () => {
       charger('C4', { live: { status: 'offline', powerKw: null, seenAt: null }, status: 'out_of_service' }),
       charger('C5', { live: null }),
       charger('C6', { live: { status: 'offline', powerKw: null, seenAt: '2026-12-01T13:20:00.000Z' } }),
+      charger('C7', { live: { status: 'connected', powerKw: 0, seenAt: null } }),
     ]);
     for (const date of ['2026-12-01', '2026-11-30', '2026-11-29', '2026-11-28', '2026-11-27']) await night(date, []);
 
     const count = (state: string) => words(el.querySelector(`.counts li[data-state="${state}"]`));
     expect(count('charging')).toBe('2 Charging');
     expect(count('available')).toBe('1 Available');
+    // A bus on the connector waiting for its hours is not an available charger.
+    expect(count('connected')).toBe('1 Plugged in, not charging');
     expect(count('faulted')).toBe('1 Faulted');
     expect(count('offline')).toBe('2 Offline');
     expect(count('unknown')).toBe('1 No reading');
     expect(el.querySelector('.counts li[data-state="faulted"]')!.classList.contains('faulted')).toBe(true);
 
     const labels = [...el.querySelectorAll('.charger-list li')].map((li) => li.getAttribute('data-charger'));
-    expect(labels).toEqual(['C1', 'C2', 'C3', 'C4', 'C5', 'C6', 'C10']);
+    expect(labels).toEqual(['C1', 'C2', 'C3', 'C4', 'C5', 'C6', 'C7', 'C10']);
     const c = (label: string) => el.querySelector(`.charger-list li[data-charger="${label}"]`)!;
     expect(words(c('C1'))).toBe('C1 Charging, 42.5 kW');
     expect(words(c('C2'))).toBe('C2 Faulted');

@@ -167,6 +167,15 @@ describe('yard format', () => {
     );
   });
 
+  it('tells a charger with a bus plugged in and not drawing from an available one', () => {
+    expect(
+      liveView(
+        { live: { status: 'connected', powerKw: 0, seenAt: at('22:29') }, status: 'in_service', statusReason: null },
+        ZONE,
+      ).text,
+    ).toBe('Plugged in, not charging (at 22:29)');
+  });
+
   it("describes a charger's live state with an icon and words", () => {
     expect(
       liveView(

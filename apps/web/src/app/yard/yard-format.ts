@@ -226,6 +226,8 @@ export function liveView(
         tone: 'busy',
         faulted: false,
       };
+    case 'connected':
+      return { icon: 'electrical_services', text: `Plugged in, not charging${seen}`, tone: 'ok', faulted: false };
     case 'available':
       return { icon: 'power', text: `Available${seen}`, tone: 'ok', faulted: false };
     case 'faulted':
