@@ -51,14 +51,15 @@ export function changedBuses(problem: Problem, previous: Plan, plan: Plan): stri
 }
 
 /** What keeping the plan being carried out would have taken, in words (" (keeping it: $21.54 more, $5.00 allowed)"). */
-export function refusedWhy(refused: Plan['previousRefused'], currency: string): string {
-  if (!refused) return '';
+export function notKeptWhy(subject: string, refused: Plan['previousRefused'], currency: string): string {
   const money = (v: number) => new Intl.NumberFormat('en-US', { style: 'currency', currency }).format(v);
-  const parts: string[] = [];
-  if (refused.extraCost >= 0.005) parts.push(`${money(refused.extraCost)} more`);
-  if (refused.extraShortKwh >= 0.05) parts.push(`${refused.extraShortKwh.toFixed(1)} kWh more short`);
-  if (!parts.length) return '';
-  return ` (keeping it: ${parts.join(' and ')}, where ${money(refused.allowed)} is allowed)`;
+  const dearer = refused && refused.extraCost >= 0.005 ? refused.extraCost : 0;
+  const short = refused && refused.extraShortKwh >= 0.05 ? refused.extraShortKwh : 0;
+  // Shortfall first, in kWh: full service comes before the cost tolerance, which is in money.
+  if (short > 0)
+    return `${subject} could not be kept: it leaves ${short.toFixed(1)} kWh more short that a new plan serves${dearer ? `, and costs ${money(dearer)} more, where ${money(refused!.allowed)} is allowed` : ''}`;
+  const why = dearer ? ` (keeping it: ${money(dearer)} more, where ${money(refused!.allowed)} is allowed)` : '';
+  return `${subject} could not be kept within the depot's cost tolerance${why}`;
 }
 
 /**
@@ -74,7 +75,7 @@ export function regeneratedMoved(problem: Problem, previous: Plan, plan: Plan, c
     reasons.push(`the night's data changed or a change keeps the cost down; every other bus keeps the published plan`);
   else if (n > 0)
     reasons.push(
-      `the published plan could not be kept within the depot's cost tolerance${refusedWhy(plan.previousRefused, currency)}: the night was planned afresh (${n} ${were} changed)`,
+      `${notKeptWhy('the published plan', plan.previousRefused, currency)}: the night was planned afresh (${n} ${were} changed)`,
     );
   return { buses, reasons };
 }

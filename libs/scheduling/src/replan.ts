@@ -1,7 +1,7 @@
 import { DateTime } from 'luxon';
 import { loadSolver } from './highs-solver.js';
 import { planProblem, type Plan, type PlanOptions, type PlanSession } from './plan.js';
-import { changedBuses, previousWindows, refusedWhy } from './previous.js';
+import { changedBuses, notKeptWhy, previousWindows } from './previous.js';
 import { prepareProblem } from './problem.js';
 import {
   formatPath,
@@ -332,7 +332,7 @@ function movedBuses(
     reasons.push(`${others} other ${others === 1 ? 'bus' : 'buses'} moved to make room or to keep the cost down`);
   else if (others > 0)
     reasons.push(
-      `the plan being carried out could not be kept within the depot's cost tolerance${refusedWhy(plan.previousRefused, currency)}: the rest of the night was planned afresh (${others} other ${others === 1 ? 'bus' : 'buses'} moved)`,
+      `${notKeptWhy('the plan being carried out', plan.previousRefused, currency)}: the rest of the night was planned afresh (${others} other ${others === 1 ? 'bus' : 'buses'} moved)`,
     );
   return { buses, reasons };
 }

@@ -37,6 +37,37 @@ describe('ChargerTimeline', () => {
     expect(labels).toEqual(['C1 60 kW', 'C2 30 kW']);
   });
 
+  it('names the day with each time on a weekend, where the same hour comes round more than once', async () => {
+    const fixture = TestBed.createComponent(ChargerTimeline);
+    const slot = (start: string) => ({ start, loadKw: 60, price: 0.068, limitKw: 150 });
+    const base = planResult();
+    fixture.componentRef.setInput(
+      'result',
+      planResult({
+        slots: [
+          slot('2026-12-04T16:00:00.000-06:00'),
+          slot('2026-12-04T16:15:00.000-06:00'),
+          slot('2026-12-07T05:45:00.000-06:00'),
+        ],
+        sessions: [
+          {
+            ...base.sessions[0]!,
+            bus: '219',
+            charger: 'C3',
+            start: '2026-12-04T17:15:00.000-06:00',
+            end: '2026-12-06T15:15:00.000-06:00',
+          },
+        ],
+      }),
+    );
+    fixture.componentRef.setInput('timezone', 'America/Chicago');
+    await fixture.whenStable();
+    fixture.detectChanges();
+    const el = fixture.nativeElement as HTMLElement;
+    const plug = el.querySelector('.phone-plugs li')!;
+    expect(plug.textContent?.replace(/\s+/g, ' ')).toContain('Fri 17:15–Sun 15:15');
+  });
+
   it('places each bar in proportion to its time across the night, labelled by bus', async () => {
     const el = await render();
     const bars = [...el.querySelectorAll<HTMLElement>('.bar')].map((b) => ({

@@ -38,6 +38,8 @@ interface Bar {
 
 /** The track's width until it is measured (the grid's minimum). */
 const MIN_TRACK_PX = 640;
+/** A horizon longer than this (a weekend) names the day with each time. */
+const DAY_MS = 24 * 3_600_000;
 
 /**
  * One row per charger across the night at the depot; each plug-in is a bar labelled by its bus,
@@ -109,6 +111,7 @@ export class ChargerTimeline {
     const segs = this.segments();
     const px = this.trackPx();
     const kw = new Map(this.chargers().map((c) => [c.id, c.maxKw]));
+    const days = segs.length > 0 && segs.at(-1)!.end - segs[0]!.start > DAY_MS;
     const shown = this.chargers().filter((c) => !c.out);
     const ids = [...new Set([...shown.map((c) => c.id), ...r.sessions.map((s) => s.charger)])].sort(naturalCompare);
     return ids.map((id) => ({
@@ -120,7 +123,9 @@ export class ChargerTimeline {
         .map((s, i): Bar => {
           const span = placeSpan(segs, Date.parse(s.start), Date.parse(s.end));
           const short = this.shortBuses().has(s.bus);
-          const time = `${clock(s.start, tz)}–${clock(s.end, tz)}`;
+          // Over a weekend the same hour comes round more than once: the day goes with it.
+          const at = days ? dayClock : clock;
+          const time = `${at(s.start, tz)}–${at(s.end, tz)}`;
           return {
             key: `${s.bus}-${s.start}-${i}`,
             bus: s.bus,
