@@ -62,7 +62,7 @@ export function planPublishedMail(p: {
   baselineName: string;
   short: string[];
   /** The published version this plan kept wherever it fits, and the buses whose charging differs from it. */
-  changed?: { version: number; buses: string[] };
+  changed?: { version: number; buses: string[]; lines?: string[] };
   link: MailLink;
 }): OutgoingMail {
   const money = (v: number) => new Intl.NumberFormat('en-US', { style: 'currency', currency: p.currency }).format(v);
@@ -80,6 +80,7 @@ export function planPublishedMail(p: {
             n
               ? `Against version ${p.changed.version}: ${n} ${n === 1 ? 'bus changes' : 'buses change'} charger or times (${p.changed.buses.join(', ')})${n < p.buses ? '; every other bus keeps its charger and times' : ''}.`
               : `Against version ${p.changed.version}: no bus changes charger or times.`,
+            ...(p.changed.lines ?? []).map((l) => `- ${l}`),
             '',
           ]
         : []),

@@ -350,6 +350,7 @@ async function notifyPublished(
   const result = resultOf(plan)!;
   const scenario = plan.scenario;
   const short = result.buses.filter((b) => b.shortfallKwh > 1e-6);
+  const changed = result.keptFrom && result.moved ? await changesAgainst(db, plan, result) : null;
   for (const r of recipients) {
     await mailer.send(
       planPublishedMail({
@@ -369,13 +370,41 @@ async function notifyPublished(
         baseline: result.baseline.energy + (result.baseline.shortfallCost ?? 0),
         baselineName: baselineName(result.baseline.kind),
         short: short.map((b) => `${b.id} (${b.shortfallKwh.toFixed(1)} kWh short: ${b.reason})`),
-        ...(result.keptFrom && result.moved
-          ? { changed: { version: result.keptFrom.version, buses: result.moved.buses } }
-          : {}),
+        ...(changed ? { changed } : {}),
         link: nightMailLink(r.roles, { planId: plan.id, serviceDate: plan.serviceDate }, link),
       }),
     );
   }
+}
+
+const DAY_MS = 24 * 3_600_000;
+/** A night longer than a day (a weekend): its times name the days. */
+const spanOf = (r: PlanResult) => {
+  const h = horizonOf(r);
+  return h ? h.end - h.start : 0;
+};
+
+/**
+ * What a plan changes against the version it kept (the published e-mail lists it, so the yard
+ * knows which run sheets changed): each bus's plug-ins before and after, as Compare shows them.
+ */
+async function changesAgainst(db: Db, plan: PlanRow, result: PlanResult) {
+  const version = result.keptFrom!.version;
+  const [kept] = await db
+    .select()
+    .from(plans)
+    .where(and(eq(plans.depotId, plan.depotId), eq(plans.serviceDate, plan.serviceDate), eq(plans.version, version)));
+  const before = kept ? resultOf(kept) : null;
+  const lines = before
+    ? movedBetween(before, result, plan.scenario.timezone, Math.max(spanOf(before), spanOf(result)) > DAY_MS)
+    : [];
+  // The engine's list decides which buses changed; the kept version gives their old plug-ins.
+  const moved = new Set(result.moved!.buses);
+  return {
+    version,
+    buses: result.moved!.buses,
+    lines: lines.filter((m) => moved.has(m.bus)).map((m) => `${m.bus}: ${m.before} → ${m.after}`),
+  };
 }
 
 /** Which buses changed charger or plug-in times between two versions. */
@@ -385,12 +414,7 @@ export async function comparePlans(db: Db, caller: DepotViewer, id: string, othe
   const rb = resultOf(b.plan);
   if (!ra || !rb) throw conflict('Both plans must be finished to compare them');
   const zone = b.plan.scenario.timezone;
-  // A night longer than a day (a weekend) names the days.
-  const span = (r: PlanResult) => {
-    const h = horizonOf(r);
-    return h ? h.end - h.start : 0;
-  };
-  const moved = movedBetween(ra, rb, zone, Math.max(span(ra), span(rb)) > 24 * 3_600_000);
+  const moved = movedBetween(ra, rb, zone, Math.max(spanOf(ra), spanOf(rb)) > DAY_MS);
   return {
     from: { id: a.plan.id, version: a.plan.version, kind: a.plan.kind },
     to: { id: b.plan.id, version: b.plan.version, kind: b.plan.kind },

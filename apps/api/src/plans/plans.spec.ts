@@ -193,6 +193,11 @@ describe('plans', () => {
     expect(mail!.text).toMatch(
       /Against version 1: (no bus changes charger or times|\d+ bus(es)? changes? charger or times \()/,
     );
+    // Each changed bus with its plug-ins before and after, as Compare lists them.
+    const [row] = await app.db.select().from(plans).where(eq(plans.id, winner.id));
+    const changedBuses = row!.result!.moved?.buses ?? [];
+    const lines = mail!.text.split('\n').filter((l) => /^- \S+: .+ → .+$/.test(l));
+    expect(lines.map((l) => l.slice(2, l.indexOf(':')))).toEqual(changedBuses);
     // The versions are kept and listed.
     const list = await app
       .request()
