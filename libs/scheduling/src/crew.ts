@@ -137,6 +137,10 @@ function fitCharger(
   const stays = problem.stays;
   const charger = problem.chargers[c]!;
   const local = new Int32Array(T + 1);
+  // A window never spans a slot the charger is out of service (planned outage): clear[t] is the
+  // first such slot from t on (T if none), so [a, b) is clear when b <= clear[a].
+  const clear = new Int32Array(T + 1).fill(T);
+  for (let t = T - 1; t >= 0; t--) clear[t] = charger.available[t] ? clear[t + 1]! : t;
   const taken: number[] = [];
   const dropped: number[] = [];
   const room = (t: number): number => (t >= T || !yard.capacity ? Infinity : yard.capacity[t]! - used[t]! - local[t]!);
@@ -171,7 +175,7 @@ function fitCharger(
     const fromP = assignment.from[cur]!;
     const wanted = Math.min(p.departSlot, Math.max(assignment.to[cur]!, fromP + minWindow(problem, p)));
     let best = -1;
-    for (let t = fromP + minWindow(problem, p); t <= p.departSlot; t++) {
+    for (let t = fromP + minWindow(problem, p); t <= Math.min(p.departSlot, clear[fromP]!); t++) {
       if (!endIsFree(problem, p, t) && room(t) < 1) continue;
       if (
         best < 0 ||
@@ -202,9 +206,13 @@ function fitCharger(
       continue;
     }
     const minS = minWindow(problem, s);
-    if (cur >= 0 && assignment.from[id]! > assignment.to[cur]!) {
-      // The charger stands idle between the two (as proposed): end the current session on its
-      // own, then start this one as if first.
+    if (
+      cur >= 0 &&
+      (assignment.from[id]! > assignment.to[cur]! || clear[assignment.from[cur]!]! < assignment.from[id]!)
+    ) {
+      // The charger stands idle between the two (as proposed), or is out of service between the
+      // current session's start and this one's: end the current session on its own, then start
+      // this one as if first.
       closeEnd();
       cur = -1;
     }
@@ -214,6 +222,7 @@ function fitCharger(
       const wanted = assignment.from[id]!;
       let best = -1;
       for (let f = Math.max(s.arriveSlot, freeFrom); f <= s.departSlot - minS; f++) {
+        if (clear[f]! < f + minS) continue;
         if (!startIsFree(problem, s, f) && room(f) < 1) continue;
         if (best < 0 || Math.abs(f - wanted) < Math.abs(best - wanted)) best = f;
       }
@@ -245,6 +254,7 @@ function fitCharger(
       const toP = Math.min(h, p.departSlot);
       const fromS = Math.max(h, s.arriveSlot);
       if (toP < fromP + minP) continue;
+      if (toP > clear[fromP]! || clear[fromS]! < fromS + minS) continue;
       const unplug = endIsFree(problem, p, toP) ? 0 : 1;
       const plug = startIsFree(problem, s, fromS) ? 0 : 1;
       if (unplug && plug && toP === fromS) {

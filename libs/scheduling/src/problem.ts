@@ -103,6 +103,23 @@ export interface YardRules {
   capacity: Int32Array | null;
 }
 
+/** 1 in each slot the charger is in service: 0 where a slot overlaps one of its outage spans. */
+function outOfServiceSlots(
+  slots: readonly { startMs: number; endMs: number }[],
+  spans: readonly { from: string; to: string }[],
+  zone: string,
+): Uint8Array {
+  const available = new Uint8Array(slots.length).fill(1);
+  for (const span of spans) {
+    const from = localToMillis(span.from, zone)!;
+    const to = localToMillis(span.to, zone)!;
+    slots.forEach((s, t) => {
+      if (s.startMs < to && from < s.endMs) available[t] = 0;
+    });
+  }
+  return available;
+}
+
 export function prepareProblem(scenario: Scenario): Problem {
   const slots = buildSlots(scenario);
   const T = slots.length;
@@ -116,7 +133,7 @@ export function prepareProblem(scenario: Scenario): Problem {
     index,
     maxKw: c.maxKw,
     cabinet: c.cabinet === undefined ? -1 : cabinetIndex.get(c.cabinet)!,
-    available: new Uint8Array(T).fill(1),
+    available: outOfServiceSlots(slots, c.outOfService ?? [], scenario.timezone),
   }));
   const cabinets: Cabinet[] = scenario.cabinets.map((c, g) => {
     const members = chargers.filter((ch) => ch.cabinet === g).map((ch) => ch.index);

@@ -98,7 +98,23 @@ export const scenarioSchema = z.strictObject({
     limitWindows: z.array(limitWindowSchema).optional(),
   }),
   cabinets: z.array(z.strictObject({ id, limitKw: kw })).default([]),
-  chargers: z.array(z.strictObject({ id, maxKw: kw, cabinet: id.optional() })).min(1, 'must list at least one charger'),
+  chargers: z
+    .array(
+      z.strictObject({
+        id,
+        maxKw: kw,
+        cabinet: id.optional(),
+        /**
+         * Extension: spans (local date-times) the charger is out of service, e.g. planned
+         * maintenance over a weekend; no bus is plugged into it then.
+         */
+        outOfService: z
+          .array(z.strictObject({ from: localTime, to: localTime }))
+          .max(50)
+          .optional(),
+      }),
+    )
+    .min(1, 'must list at least one charger'),
   tariff: z.strictObject({
     currency: z
       .string()
@@ -283,6 +299,12 @@ function checkScenario(s: Scenario): Problem[] {
     chargerIds.add(c.id);
     if (c.cabinet !== undefined && !cabinetIds.has(c.cabinet))
       add(`chargers[${i}].cabinet`, `names cabinet ${c.cabinet}, which is not in cabinets`);
+    c.outOfService?.forEach((w, j) => {
+      const path = `chargers[${i}].outOfService[${j}]`;
+      const from = checkTime(`${path}.from`, w.from);
+      const to = checkTime(`${path}.to`, w.to);
+      if (from !== null && to !== null && to <= from) add(`${path}.to`, 'must be after from');
+    });
   });
 
   const periodNames = new Set<string>();

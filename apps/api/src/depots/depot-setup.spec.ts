@@ -180,7 +180,7 @@ describe('depot', () => {
     });
     const scenarioOf = async (start: string, end: string) =>
       (await app.request().get(`${base()}/scenario-base`).query({ start, end }).set(as(fac)).expect(200)).body as {
-        scenario: { chargers: { id: string }[] };
+        scenario: { chargers: { id: string; outOfService?: { from: string; to: string }[] }[] };
         notes: string[];
       };
     // The night before the period: F plans as in service.
@@ -191,6 +191,14 @@ describe('depot', () => {
     expect(inside.scenario.chargers.map((c) => c.id)).not.toContain('F');
     expect(inside.notes.join(' ')).toMatch(
       /Charger F is out of service from .* until .* \(Inspection\) and is left out for the night/,
+    );
+    // A night it covers in part (the period ends at 18:00): F plans from then on, not before.
+    const partly = await scenarioOf('2026-12-21T15:00', '2026-12-22T07:00');
+    expect(partly.scenario.chargers.find((c) => c.id === 'F')?.outOfService).toEqual([
+      { from: '2026-12-21T15:00', to: '2026-12-21T18:00' },
+    ]);
+    expect(partly.notes.join(' ')).toMatch(
+      /Charger F is out of service from .* until .* \(Inspection\): no bus is planned on it then/,
     );
     // Back in service: the period is cleared.
     const back = await app

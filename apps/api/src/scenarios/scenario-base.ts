@@ -121,17 +121,29 @@ export async function buildScenarioBase(
 
   const cabs = await db.select().from(powerCabinets).where(eq(powerCabinets.depotId, depotId));
   const chs = await db.select().from(chargers).where(eq(chargers.depotId, depotId));
-  // A charger out of service for a period is left out of the nights that period touches only.
+  // A charger out of service for a period is left out of the nights that period covers; a night
+  // it covers only in part plans the charger outside it (scenario extension `outOfService`), so a
+  // weekend with a day of maintenance keeps the charger's Friday and Sunday.
   const isOut = (c: (typeof chs)[number]) => outDuring(c, from.toJSDate(), to.toJSDate());
-  const inService = chs.filter((c) => !isOut(c));
+  const partly = (c: (typeof chs)[number]) =>
+    (c.outFrom !== null && c.outFrom > from.toJSDate()) || (c.outUntil !== null && c.outUntil < to.toJSDate());
+  const inService = chs.filter((c) => !isOut(c) || partly(c));
+  const outSpan = new Map<string, { from: string; to: string }>();
   for (const c of chs.filter(isOut)) {
     const period =
       c.outFrom || c.outUntil
         ? ` ${[c.outFrom ? `from ${DateTime.fromJSDate(c.outFrom, { zone }).toFormat('ccc HH:mm')}` : '', c.outUntil ? `until ${DateTime.fromJSDate(c.outUntil, { zone }).toFormat('ccc HH:mm')}` : ''].filter(Boolean).join(' ')}`
         : '';
-    notes.push(
-      `Charger ${c.label} is out of service${period}${c.statusReason ? ` (${c.statusReason})` : ''} and is left out${period ? ' for the night' : ''}.`,
-    );
+    const reason = c.statusReason ? ` (${c.statusReason})` : '';
+    if (partly(c)) {
+      const a = c.outFrom && c.outFrom > from.toJSDate() ? DateTime.fromJSDate(c.outFrom, { zone }) : from;
+      const b = c.outUntil && c.outUntil < to.toJSDate() ? DateTime.fromJSDate(c.outUntil, { zone }) : to;
+      outSpan.set(c.id, { from: a.toFormat(LOCAL), to: b.toFormat(LOCAL) });
+      notes.push(`Charger ${c.label} is out of service${period}${reason}: no bus is planned on it then.`);
+    } else
+      notes.push(
+        `Charger ${c.label} is out of service${period}${reason} and is left out${period ? ' for the night' : ''}.`,
+      );
   }
   if (!inService.length) throw new DomainError('validation_failed', `${depot.name} has no charger in service`);
   const cabinetLabel = new Map(cabs.map((c) => [c.id, c.label]));
@@ -176,6 +188,7 @@ export async function buildScenarioBase(
         id: c.label,
         maxKw: c.maxKw,
         ...(c.cabinetId ? { cabinet: cabinetLabel.get(c.cabinetId)! } : {}),
+        ...(outSpan.has(c.id) ? { outOfService: [outSpan.get(c.id)!] } : {}),
       })),
       tariff: {
         currency: definition.currency,

@@ -125,6 +125,11 @@ export function checkPlan(scenario: Json, plan: Json, options: CheckOptions = {}
       (st: Json) => localMs(st.arrive, zone) <= Date.parse(s.start) && Date.parse(s.end) <= localMs(st.depart, zone),
     );
     if (!inStay) fail(`session ${i} (${s.bus}): ${s.start}..${s.end} is not inside one of the bus's stays`);
+    // Extension: a charger out of service for a span has no bus on it then.
+    for (const w of (charger.outOfService ?? []) as Json[]) {
+      if (Date.parse(s.start) < localMs(w.to, zone) && localMs(w.from, zone) < Date.parse(s.end))
+        fail(`session ${i} (${s.bus}): ${s.start}..${s.end} on ${s.charger} overlaps its outage ${w.from}..${w.to}`);
+    }
     let kwh = 0;
     for (let t = a; t < b; t++) {
       const kw = s.kw[t - a] ?? 0;
