@@ -10,17 +10,9 @@ import { MatTableModule } from '@angular/material/table';
 import type { Charger } from '@nightyard/contracts';
 import { injectIsPhone } from '../core/layout';
 import { formatInstant, formatKw } from './depot-setup-format';
+import { outPeriod } from '../depot-state/charger-out';
 
 export type ChargerSortKey = 'label' | 'maxKw' | 'connector' | 'cabinet' | 'status';
-/** "from Dec 10 06:00 until Dec 12 18:00" (depot time), or null without a period. */
-export function outPeriod(c: Pick<Charger, 'outFrom' | 'outUntil'>): string | null {
-  const show = (local: string) => `${local.slice(0, 10)} ${local.slice(11, 16)}`;
-  const parts = [c.outFrom ? `from ${show(c.outFrom)}` : '', c.outUntil ? `until ${show(c.outUntil)}` : ''].filter(
-    Boolean,
-  );
-  return parts.length ? parts.join(' ') : null;
-}
-
 export type StatusFilter = 'all' | 'in_service' | 'out_of_service';
 
 export interface ChargerView {

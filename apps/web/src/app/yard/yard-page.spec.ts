@@ -342,6 +342,27 @@ describe('YardPage', () => {
     expect(text(sheet)).toContain(words);
   });
 
+  it('a charger out for a period still to come is in service until then, and says when it goes out', async () => {
+    await start(tonight(), [
+      charger('C1'),
+      // Now is 22:30 at the depot: out from 23:30 tonight to 05:00.
+      charger('C2', {
+        status: 'out_of_service',
+        statusReason: 'inspection',
+        outFrom: '2026-12-01T23:30',
+        outUntil: '2026-12-02T05:00',
+      }),
+      charger('C3', { status: 'out_of_service', statusReason: 'cable cut' }),
+    ]);
+    const c2 = card('C2');
+    expect(c2.querySelector('.out-note')).toBeNull();
+    expect(text(c2.querySelector('.out-later span'))).toBe(
+      'Out of service from 2026-12-01 23:30 until 2026-12-02 05:00 (inspection): no bus is planned on it then.',
+    );
+    // Out without a period: out now.
+    expect(card('C3').querySelector('.out-note')).not.toBeNull();
+  });
+
   it('says plainly when there is no plan', async () => {
     await start(tonight({ plan: null, steps: [] }));
     expect(text(el)).toContain('There is no published plan for tonight or a later night at North Depot');

@@ -2,6 +2,7 @@ import { DOCUMENT, DestroyRef, Injectable, Injector, computed, inject, signal, t
 import type { Charger, Tonight, YardReportResult, YardSession } from '@nightyard/contracts';
 import { toApiProblem } from '../core/api-error';
 import { Clock } from '../core/clock';
+import { outAt, outPeriod } from '../depot-state/charger-out';
 import { LiveStore, reloadOnLive, type LiveDepot } from '../depot-state/live-store';
 import { ConfirmationOutbox } from './confirmation-outbox';
 import { YardApi } from './yard-api';
@@ -33,7 +34,10 @@ export interface ChargerView {
   label: string;
   charger: Charger | null;
   live: LiveView;
+  /** Out of service now (one out for a period only inside it). */
   outOfService: boolean;
+  /** Out for a period that is still to come ("from 2026-12-05 00:00 until 2026-12-06 12:00"), else null. */
+  outLater: string | null;
   statusReason: string | null;
   sessions: YardSession[];
   steps: StepView[];
@@ -117,13 +121,18 @@ export class YardStore {
     const labels = [...new Set([...byLabel.keys(), ...sessions.map((s) => s.charger)])].sort(naturalCompare);
     const steps = this.steps();
     const next = nextSteps(steps);
+    const now = this.now();
     return labels.map((label) => {
       const charger = byLabel.get(label) ?? null;
       return {
         label,
         charger,
         live: liveView(charger, tz),
-        outOfService: charger?.status === 'out_of_service',
+        outOfService: charger ? outAt(charger, new Date(now), tz) : false,
+        outLater:
+          charger && charger.status === 'out_of_service' && charger.outFrom && !outAt(charger, new Date(now), tz)
+            ? outPeriod(charger)
+            : null,
         statusReason: charger?.statusReason ?? null,
         sessions: sessions.filter((s) => s.charger === label),
         steps: steps.filter((s) => s.step.charger === label),
