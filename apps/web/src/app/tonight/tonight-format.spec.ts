@@ -38,10 +38,12 @@ describe('tonight-format', () => {
     const counts = liveCounts([
       { live: { status: 'faulted', powerKw: null, seenAt: null } },
       { live: { status: 'charging', powerKw: 10, seenAt: null } },
+      { live: { status: 'connected', powerKw: 0, seenAt: null } },
       { live: null },
     ]);
     expect(Object.fromEntries(counts.map((c) => [c.state, c.count]))).toEqual({
       charging: 1,
+      connected: 1,
       available: 0,
       faulted: 1,
       offline: 0,
