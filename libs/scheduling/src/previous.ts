@@ -50,7 +50,11 @@ export function changedBuses(problem: Problem, previous: Plan, plan: Plan): stri
     .sort();
 }
 
-/** What keeping the plan being carried out would have taken, in words (" (keeping it: $21.54 more, $5.00 allowed)"). */
+/**
+ * Why `subject` was not kept, in words: shortfall first, in kWh ("… could not be kept: it leaves
+ * 24.7 kWh more short that a new plan serves"), else the cost against the tolerance ("… could not
+ * be kept within the depot's cost tolerance (keeping it: $21.54 more, where $5.00 is allowed)").
+ */
 export function notKeptWhy(subject: string, refused: Plan['previousRefused'], currency: string): string {
   const money = (v: number) => new Intl.NumberFormat('en-US', { style: 'currency', currency }).format(v);
   const dearer = refused && refused.extraCost >= 0.005 ? refused.extraCost : 0;

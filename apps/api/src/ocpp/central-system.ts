@@ -30,7 +30,6 @@ type RpcClient = {
 };
 
 /** The live states the product shows, from OCPP's richer connector statuses. */
-
 export function liveStatusOf(ocppStatus: string): LiveStatus {
   switch (ocppStatus) {
     case 'Charging':

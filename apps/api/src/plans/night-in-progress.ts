@@ -53,7 +53,6 @@ export async function planFromCutOff(
   return mergeReplan(previous, next);
 }
 
-/** The night as a whole: what stood before the re-plan's first slot, then the re-plan. */
 /**
  * What a stored re-plan keeps of the engine's account: where it starts, the chargers out, the
  * buses plugged in, and which buses it moved and why (the review and the Yard say so); not the
@@ -64,6 +63,7 @@ function replanFacts(next: Replan): NonNullable<PlanResult['replan']> {
   return { from, outOfService, plugged, ...(moved ? { moved } : {}) };
 }
 
+/** The night as a whole: what stood before the re-plan's first slot, then the re-plan. */
 export function mergeReplan(previous: PlanResult | null, next: Replan): PlanResult {
   const result: PlanResult = next;
   if (!previous)

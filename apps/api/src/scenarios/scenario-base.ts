@@ -124,21 +124,26 @@ export async function buildScenarioBase(
   // A charger out of service for a period is left out of the nights that period covers; a night
   // it covers only in part plans the charger outside it (scenario extension `outOfService`), so a
   // weekend with a day of maintenance keeps the charger's Friday and Sunday.
-  const isOut = (c: (typeof chs)[number]) => outDuring(c, from.toJSDate(), to.toJSDate());
-  const partly = (c: (typeof chs)[number]) =>
-    (c.outFrom !== null && c.outFrom > from.toJSDate()) || (c.outUntil !== null && c.outUntil < to.toJSDate());
-  const inService = chs.filter((c) => !isOut(c) || partly(c));
+  const [nightStart, nightEnd] = [from.toJSDate(), to.toJSDate()];
+  const isOut = (c: (typeof chs)[number]) => outDuring(c, nightStart, nightEnd);
+  const local = (at: Date) => DateTime.fromJSDate(at, { zone });
+  // The part of the night a charger is out of service, when it is not the whole night.
+  const partOf = (c: (typeof chs)[number]) => {
+    const a = c.outFrom && c.outFrom > nightStart ? c.outFrom : null;
+    const b = c.outUntil && c.outUntil < nightEnd ? c.outUntil : null;
+    return a || b ? { from: local(a ?? nightStart).toFormat(LOCAL), to: local(b ?? nightEnd).toFormat(LOCAL) } : null;
+  };
+  const inService = chs.filter((c) => !isOut(c) || partOf(c));
   const outSpan = new Map<string, { from: string; to: string }>();
   for (const c of chs.filter(isOut)) {
     const period =
       c.outFrom || c.outUntil
-        ? ` ${[c.outFrom ? `from ${DateTime.fromJSDate(c.outFrom, { zone }).toFormat('ccc HH:mm')}` : '', c.outUntil ? `until ${DateTime.fromJSDate(c.outUntil, { zone }).toFormat('ccc HH:mm')}` : ''].filter(Boolean).join(' ')}`
+        ? ` ${[c.outFrom ? `from ${local(c.outFrom).toFormat('ccc HH:mm')}` : '', c.outUntil ? `until ${local(c.outUntil).toFormat('ccc HH:mm')}` : ''].filter(Boolean).join(' ')}`
         : '';
     const reason = c.statusReason ? ` (${c.statusReason})` : '';
-    if (partly(c)) {
-      const a = c.outFrom && c.outFrom > from.toJSDate() ? DateTime.fromJSDate(c.outFrom, { zone }) : from;
-      const b = c.outUntil && c.outUntil < to.toJSDate() ? DateTime.fromJSDate(c.outUntil, { zone }) : to;
-      outSpan.set(c.id, { from: a.toFormat(LOCAL), to: b.toFormat(LOCAL) });
+    const part = partOf(c);
+    if (part) {
+      outSpan.set(c.id, part);
       notes.push(`Charger ${c.label} is out of service${period}${reason}: no bus is planned on it then.`);
     } else
       notes.push(
@@ -157,8 +162,8 @@ export async function buildScenarioBase(
     .where(
       and(
         eq(loadReductionWindows.depotId, depotId),
-        lt(loadReductionWindows.startsAt, to.toJSDate()),
-        gt(loadReductionWindows.endsAt, from.toJSDate()),
+        lt(loadReductionWindows.startsAt, nightEnd),
+        gt(loadReductionWindows.endsAt, nightStart),
       ),
     );
   const limitWindows = reductions.map((r) => {

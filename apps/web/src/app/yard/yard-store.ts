@@ -124,15 +124,13 @@ export class YardStore {
     const now = this.now();
     return labels.map((label) => {
       const charger = byLabel.get(label) ?? null;
+      const outNow = charger ? outAt(charger, new Date(now), tz) : false;
       return {
         label,
         charger,
         live: liveView(charger, tz),
-        outOfService: charger ? outAt(charger, new Date(now), tz) : false,
-        outLater:
-          charger && charger.status === 'out_of_service' && charger.outFrom && !outAt(charger, new Date(now), tz)
-            ? outPeriod(charger)
-            : null,
+        outOfService: outNow,
+        outLater: charger?.status === 'out_of_service' && charger.outFrom && !outNow ? outPeriod(charger) : null,
         statusReason: charger?.statusReason ?? null,
         sessions: sessions.filter((s) => s.charger === label),
         steps: steps.filter((s) => s.step.charger === label),
