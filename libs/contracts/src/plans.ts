@@ -86,17 +86,17 @@ export const planResultSchema = z.looseObject({
    */
   keptPrevious: z.object({ extraCost: z.number(), extraShortKwh: z.number().optional() }).nullable().optional(),
   /**
-   * A re-plan or a plan made while its night was under way: where it starts (local cut-off), the
-   * chargers out of service, the buses kept where they were, and the buses it moved from the
-   * cut-off on and why, in words.
-   */
-  /**
    * A plan of a night that had one published (generated again, or a revision before the night
    * began): the version it kept wherever it still fits, and the buses whose charging differs from
    * it and why, in words.
    */
   keptFrom: z.object({ version: z.number() }).optional(),
   moved: z.object({ buses: z.array(z.string()), reasons: z.array(z.string()) }).optional(),
+  /**
+   * A re-plan or a plan made while its night was under way: where it starts (local cut-off), the
+   * chargers out of service, the buses kept where they were, and the buses it moved from the
+   * cut-off on and why, in words.
+   */
   replan: z
     .looseObject({
       from: z.string().optional(),

@@ -43,6 +43,7 @@ export interface ProfileNight {
 }
 
 const PURPOSE = 'TxDefaultProfile';
+const SLOT_MS = 15 * 60_000;
 /** Stack levels run from 1 to 2 * (MAX_LEVEL_BIT + 1): 1 and 2 in a normal week, at most 12. */
 const MAX_LEVEL_BIT = 5;
 
@@ -104,6 +105,12 @@ export function profileNightOf(
  * A charger's power over the plan's horizon as OCPP schedule periods: one period per change of
  * power, limits in whole watts (OCPP validators reject fractional kW), 0 W between sessions so a
  * bus plugged in outside the plan waits for its turn.
+ *
+ * A session stopped inside a quarter hour (a charger reported out of service at 23:07, see
+ * stopSessions) ends at that instant, and its last kW is the quarter hour's average, the energy
+ * delivered before it. The charger is held at 0 W from the instant on, and until then at the power
+ * that delivers that energy (the power it was drawing), so it stops when the yard said it stopped,
+ * not at the end of the quarter hour.
  */
 export function schedulePeriods(
   result: PlanResult,
@@ -111,21 +118,35 @@ export function schedulePeriods(
 ): { startSchedule: string; duration: number; periods: { startPeriod: number; limit: number }[] } {
   const slots = result.slots;
   const startMs = Date.parse(slots[0]!.start);
+  const endMs = Date.parse(slots.at(-1)!.start) + SLOT_MS;
   const slotIndex = new Map(slots.map((s, i) => [Date.parse(s.start), i]));
   const watts = new Array<number>(slots.length).fill(0);
+  // Stops inside a slot: slot index -> [instant, W before it].
+  const stops = new Map<number, [number, number]>();
   for (const s of result.sessions.filter((x) => x.charger === charger)) {
     const first = slotIndex.get(Date.parse(s.start));
     if (first === undefined) continue;
     s.kw.forEach((kw, k) => {
       if (first + k < watts.length) watts[first + k] = Math.round(kw * 1000);
     });
+    const stopMs = Date.parse(s.end);
+    const last = first + s.kw.length - 1;
+    const lastStart = startMs + last * SLOT_MS;
+    if (s.kw.length && last < slots.length && stopMs > lastStart && stopMs < lastStart + SLOT_MS)
+      stops.set(last, [stopMs, Math.round((s.kw[s.kw.length - 1]! * 1000 * SLOT_MS) / (stopMs - lastStart))]);
   }
-  const periods: { startPeriod: number; limit: number }[] = [];
+  const changes: { atMs: number; limit: number }[] = [];
   watts.forEach((w, i) => {
-    if (periods.at(-1)?.limit === w) return;
-    periods.push({ startPeriod: Math.round((Date.parse(slots[i]!.start) - startMs) / 1000), limit: w });
+    const stop = stops.get(i);
+    const slotStart = Date.parse(slots[i]!.start);
+    if (!stop) return void changes.push({ atMs: slotStart, limit: w });
+    changes.push({ atMs: slotStart, limit: stop[1] }, { atMs: stop[0], limit: 0 });
   });
-  const endMs = Date.parse(slots.at(-1)!.start) + 15 * 60_000;
+  const periods: { startPeriod: number; limit: number }[] = [];
+  for (const c of changes) {
+    if (periods.at(-1)?.limit === c.limit) continue;
+    periods.push({ startPeriod: Math.round((c.atMs - startMs) / 1000), limit: c.limit });
+  }
   return {
     startSchedule: utc(new Date(startMs).toISOString()),
     duration: Math.round((endMs - startMs) / 1000),

@@ -39,6 +39,7 @@ describe('charging profiles are bound to their night (central system and station
   let url: string;
   let sup: TestUser;
   let fac: TestUser;
+  let yard: TestUser;
   let depotId: string;
   const plan: Record<string, { id: string; result: PlanResult }> = {};
   const stations: SimulatedStation[] = [];
@@ -51,8 +52,8 @@ describe('charging profiles are bound to their night (central system and station
     server = app.app.listen(0, '127.0.0.1');
     central.attachTo(server);
     await new Promise((r) => server.once('listening', r));
-    const org = await createOrganisation(app, { sup: ['supervisor'], fac: ['facilities'] });
-    ({ sup, fac } = org.users as Record<string, TestUser>);
+    const org = await createOrganisation(app, { sup: ['supervisor'], fac: ['facilities'], yard: ['yard'] });
+    ({ sup, fac, yard } = org.users as Record<string, TestUser>);
     const depot = await createDepot(app.db, org.organisationId);
     depotId = depot.depot.id;
     await addBuses(app.db, org.organisationId, depotId, ['31', '32']);
@@ -79,7 +80,7 @@ describe('charging profiles are bound to their night (central system and station
       plan[date] = { id: p.id, result: p.result };
     }
     now = chargingInstant(plan['2026-12-09']!.result);
-    await signInAgain(app, sup, fac);
+    await signInAgain(app, sup, fac, yard);
     url = `ws://127.0.0.1:${(server.address() as AddressInfo).port}/ocpp`;
     for (const c of depot.chargers) {
       stations.push(
@@ -184,6 +185,35 @@ describe('charging profiles are bound to their night (central system and station
       );
     }
     plan['2026-12-09'] = { id: revision.id, result: revision.result };
+  });
+
+  it('a charger the yard reports out of service is sent the revision: it draws nothing from then on', async () => {
+    const tonight = plan['2026-12-09']!;
+    const out = stations.find((s) => s.limitW() > 0)!;
+    const others = stations.filter((s) => s !== out);
+    const drawing = out.limitW();
+    const sent = stations.map((s) => s.received.length);
+    const res = await app
+      .request()
+      .post(`/api/depots/${depotId}/tonight/reports`)
+      .set(as(yard))
+      .send({ planId: tonight.id, kind: 'charger_out', charger: label(out), reason: 'Cable worn' })
+      .expect(201);
+    const revision = await app.request().get(`/api/plans/${res.body.revision.id}`).set(as(sup)).expect(200);
+    const result = revision.body.plan.result as PlanResult;
+    for (const [i, s] of stations.entries())
+      await expect.poll(() => s.received.length, { timeout: 5000 }).toBeGreaterThanOrEqual(sent[i]! + 1);
+    // From the report on, the charger reported out is held at 0 W for the rest of the night; the
+    // others follow the revision.
+    const nextQuarter = Math.ceil(now.getTime() / 900_000) * 900_000;
+    // At the report's instant it stops, though its quarter hour runs on; until then it drew as before.
+    expect(out.limitW()).toBe(0);
+    expect(Math.abs(out.limitW(new Date(now.getTime() - 30_000)) - drawing)).toBeLessThanOrEqual(1);
+    for (let t = nextQuarter; t < Date.parse(result.slots.at(-1)!.start); t += 900_000) {
+      expect(out.limitW(new Date(t))).toBe(0);
+      expect(others.map((s) => s.limitW(new Date(t)))).toEqual(others.map((s) => plannedW(result, label(s), new Date(t))));
+    }
+    plan['2026-12-09'] = { id: res.body.revision.id, result };
   });
 
   it("when Thursday's night is under way the chargers follow it and get Friday's with their next heartbeat", async () => {
