@@ -77,6 +77,8 @@ export const planResultSchema = z.looseObject({
   ),
   /** Plug-ins and unplugs the yard crew makes (absent in older plans). */
   crewMoves: z.number().optional(),
+  /** Spans in which a charger is out of service, to the slot: no bus is planned on it there (absent in older plans). */
+  outOfService: z.array(z.object({ charger: z.string(), from: z.string(), to: z.string() })).optional(),
   /** Crew moves saved against the cheapest plan found, and their cost (within the depot's tolerance). */
   crewTrade: z.object({ fewerMoves: z.number(), extraCost: z.number() }).nullable().optional(),
   /**

@@ -32,6 +32,10 @@ describe('a charger out of service for part of the horizon', () => {
     // from Sunday noon on.
     expect(onD2.some((s) => Date.parse(s.end) <= Date.parse('2026-12-05T00:00:00-06:00'))).toBe(true);
     expect(onD2.some((s) => Date.parse(s.start) >= Date.parse('2026-12-06T12:00:00-06:00'))).toBe(true);
+    // The plan says where: the outage's span, for the timeline and the run sheets.
+    expect(plan.outOfService.map((o) => [o.charger, Date.parse(o.from), Date.parse(o.to)])).toEqual([
+      ['D2', Date.parse('2026-12-05T00:00:00-06:00'), Date.parse('2026-12-06T12:00:00-06:00')],
+    ]);
   });
 
   it('a night planned again after the outage is booked keeps the rest of the published plan', async () => {

@@ -78,6 +78,11 @@ export interface Plan {
   /** Plug-ins and unplugs the yard crew does (the sessions' `crew` ends within the horizon). */
   crewMoves: number;
   /**
+   * Spans in which a charger is out of service (the scenario's `outOfService`, or reported out
+   * when a night is re-planned), to the slot: no bus is planned on it there.
+   */
+  outOfService: { charger: string; from: string; to: string }[];
+  /**
    * Crew moves saved against the cheapest plan found, and what they cost (within the depot's
    * tolerance): "2 fewer moves for $1.80". Null: the cheapest plan is the one with fewest moves.
    */
@@ -1232,6 +1237,7 @@ function assemblePlan(
     })),
     sessions,
     crewMoves,
+    outOfService: outOfServiceSpans(problem),
     crewTrade: null,
     keptPrevious: null,
     previousRefused: null,
@@ -1306,4 +1312,26 @@ function roundedBaseline(b: BaselineCost): BaselineCost {
     shortfallKwh: round(b.shortfallKwh),
     shortfallCost: round(b.shortfallCost),
   };
+}
+
+/** Each charger's runs of slots out of service, as spans (a gap between slots ends a span). */
+function outOfServiceSpans(problem: Problem): Plan['outOfService'] {
+  const spans: Plan['outOfService'] = [];
+  for (const c of problem.chargers) {
+    let open: { charger: string; from: string; toMs: number } | null = null;
+    problem.slots.forEach((slot, t) => {
+      const out = !c.available[t];
+      if (open && (!out || slot.startMs !== open.toMs)) {
+        spans.push({ charger: open.charger, from: open.from, to: isoAt(open.toMs, problem.zone) });
+        open = null;
+      }
+      if (out) open = open ?? { charger: c.id, from: slot.start, toMs: slot.endMs };
+      if (open) open.toMs = slot.endMs;
+    });
+    if (open) {
+      const last: { charger: string; from: string; toMs: number } = open;
+      spans.push({ charger: last.charger, from: last.from, to: isoAt(last.toMs, problem.zone) });
+    }
+  }
+  return spans;
 }

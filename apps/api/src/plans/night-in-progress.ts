@@ -79,8 +79,26 @@ export function mergeReplan(previous: PlanResult | null, next: Replan): PlanResu
       Date.parse(s.start) >= firstNew ? { ...s, loadKw: newLoad.get(Date.parse(s.start)) ?? s.loadKw } : s,
     ),
     sessions: mergeSessions(keptAsBefore(previous, next.replan.kept as PlanResult['sessions']), next.sessions),
+    outOfService: joinSpans([
+      ...(previous.outOfService ?? [])
+        .filter((o) => Date.parse(o.from) < firstNew)
+        .map((o) => (Date.parse(o.to) > firstNew ? { ...o, to: next.replan.from } : o)),
+      ...next.outOfService,
+    ]),
     replan: replanFacts(next),
   };
+}
+
+/** Out-of-service spans with those of one charger that meet (the cut-off's two sides) made one. */
+function joinSpans(spans: NonNullable<PlanResult['outOfService']>): NonNullable<PlanResult['outOfService']> {
+  const out: NonNullable<PlanResult['outOfService']> = [];
+  for (const s of [...spans].sort((a, b) => a.charger.localeCompare(b.charger) || Date.parse(a.from) - Date.parse(b.from))) {
+    const last = out.at(-1);
+    if (last?.charger === s.charger && Date.parse(s.from) <= Date.parse(last.to)) {
+      if (Date.parse(s.to) > Date.parse(last.to)) last.to = s.to;
+    } else out.push({ ...s });
+  }
+  return out;
 }
 
 /**

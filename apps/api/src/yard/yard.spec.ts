@@ -116,6 +116,9 @@ describe('yard: reports re-plan the rest of the night', () => {
     for (const s of next.sessions.filter((x) => x.charger === charger)) {
       expect(Date.parse(s.end)).toBeLessThanOrEqual(cut);
     }
+    // The plan marks the charger out from the report to the night's end (the timeline shows it).
+    expect(next.outOfService!.map((o) => [o.charger, Date.parse(o.from)])).toEqual([[charger, cut]]);
+    expect(Date.parse(next.outOfService![0]!.to)).toBe(Date.parse(next.slots.at(-1)!.start) + 900_000);
     // Energy delivered before 23:00 is the previous plan's, slot by slot.
     const a = deliveredBefore(prev, cut);
     const b = deliveredBefore(next, cut);

@@ -37,6 +37,37 @@ describe('ChargerTimeline', () => {
     expect(labels).toEqual(['C1 60 kW', 'C2 30 kW']);
   });
 
+  it("marks a charger's out-of-service span in its row, the legend, the summary and the phone list", async () => {
+    const fixture = TestBed.createComponent(ChargerTimeline);
+    // C10 is reported out at 18:30 and has no plug-in: its row is there, with the span marked.
+    fixture.componentRef.setInput(
+      'result',
+      planResult({
+        outOfService: [{ charger: 'C10', from: '2026-12-03T18:30:00.000-06:00', to: '2026-12-03T19:00:00.000-06:00' }],
+      }),
+    );
+    fixture.componentRef.setInput('timezone', 'America/Chicago');
+    fixture.componentRef.setInput('chargers', [
+      { id: 'C1', maxKw: 60 },
+      { id: 'C2', maxKw: 30 },
+      { id: 'C10', maxKw: 120, out: true },
+    ]);
+    await fixture.whenStable();
+    fixture.detectChanges();
+    const el = fixture.nativeElement as HTMLElement;
+    expect([...el.querySelectorAll('.label .charger')].map((c) => c.textContent?.trim())).toEqual(['C1', 'C2', 'C10']);
+    const outage = el.querySelectorAll('.track')[2]!.querySelector<HTMLElement>('.outage')!;
+    expect(outage.title).toBe('Out of service 18:30–19:00');
+    // The second half of the hour: from the middle of the track to its end.
+    expect(parseFloat(outage.style.left)).toBeCloseTo(50, 5);
+    expect(parseFloat(outage.style.width)).toBeCloseTo(50, 5);
+    expect(el.querySelectorAll('.outage').length).toBe(1);
+    expect(el.querySelector('.legend')!.textContent).toContain('Charger out of service');
+    expect(el.querySelector('.grid')!.getAttribute('aria-label')).toContain('C10 out of service 18:30–19:00.');
+    const phone = [...el.querySelectorAll('.phone-charger')].at(-1)!;
+    expect(phone.textContent?.replace(/\s+/g, ' ')).toContain('Out of service 18:30–19:00');
+  });
+
   it('names the day with each time on a weekend, where the same hour comes round more than once', async () => {
     const fixture = TestBed.createComponent(ChargerTimeline);
     const slot = (start: string) => ({ start, loadKw: 60, price: 0.068, limitKw: 150 });

@@ -23,6 +23,16 @@ export interface TimelineCharger {
   out?: boolean;
 }
 
+/** A span in which the charger is out of service: no bus is planned on it there. */
+interface Outage {
+  key: string;
+  left: number;
+  width: number;
+  /** False when the span is too narrow for its words: the title and the phone list carry them. */
+  labelled: boolean;
+  time: string;
+}
+
 interface Bar {
   key: string;
   bus: string;
@@ -112,11 +122,26 @@ export class ChargerTimeline {
     const px = this.trackPx();
     const kw = new Map(this.chargers().map((c) => [c.id, c.maxKw]));
     const days = segs.length > 0 && segs.at(-1)!.end - segs[0]!.start > DAY_MS;
+    const at = days ? dayClock : clock;
     const shown = this.chargers().filter((c) => !c.out);
-    const ids = [...new Set([...shown.map((c) => c.id), ...r.sessions.map((s) => s.charger)])].sort(naturalCompare);
+    const outages = r.outOfService ?? [];
+    const ids = [
+      ...new Set([...shown.map((c) => c.id), ...r.sessions.map((s) => s.charger), ...outages.map((o) => o.charger)]),
+    ].sort(naturalCompare);
     return ids.map((id) => ({
       id,
       maxKw: kw.get(id) ?? null,
+      outages: outages
+        .filter((o) => o.charger === id)
+        .map((o): Outage => {
+          const span = placeSpan(segs, Date.parse(o.from), Date.parse(o.to));
+          return {
+            key: o.from,
+            ...span,
+            labelled: (span.width / 100) * px >= 110,
+            time: `${at(o.from, tz)}–${at(o.to, tz)}`,
+          };
+        }),
       bars: r.sessions
         .filter((s) => s.charger === id)
         .sort((a, b) => a.start.localeCompare(b.start))
@@ -124,7 +149,6 @@ export class ChargerTimeline {
           const span = placeSpan(segs, Date.parse(s.start), Date.parse(s.end));
           const short = this.shortBuses().has(s.bus);
           // Over a weekend the same hour comes round more than once: the day goes with it.
-          const at = days ? dayClock : clock;
           const time = `${at(s.start, tz)}–${at(s.end, tz)}`;
           return {
             key: `${s.bus}-${s.start}-${i}`,
@@ -139,6 +163,8 @@ export class ChargerTimeline {
         }),
     }));
   });
+
+  protected readonly anyOutage = computed(() => this.rows().some((r) => r.outages.length > 0));
 
   /** Plug-ins too short to carry their bus number on the picture. */
   protected readonly unlabelled = computed(() =>
@@ -169,7 +195,10 @@ export class ChargerTimeline {
           .map((g) => g.text.replace(' no plug-in (shortened)', ''))
           .join(', ')}.`
       : '';
-    return `Charger timeline: ${r.sessions.length} plug-ins on ${this.rows().length} chargers from ${dayClock(new Date(h.start).toISOString(), tz)} to ${dayClock(new Date(h.end).toISOString(), tz)}.${gaps} The same plug-ins are listed in the table below.`;
+    const outages = this.rows()
+      .flatMap((row) => row.outages.map((o) => `${row.id} out of service ${o.time}`))
+      .join(', ');
+    return `Charger timeline: ${r.sessions.length} plug-ins on ${this.rows().length} chargers from ${dayClock(new Date(h.start).toISOString(), tz)} to ${dayClock(new Date(h.end).toISOString(), tz)}.${outages ? ` ${outages}.` : ''}${gaps} The same plug-ins are listed in the table below.`;
   });
 
   protected readonly sessions = computed(() => {
