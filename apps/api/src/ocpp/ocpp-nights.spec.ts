@@ -211,7 +211,9 @@ describe('charging profiles are bound to their night (central system and station
     expect(Math.abs(out.limitW(new Date(now.getTime() - 30_000)) - drawing)).toBeLessThanOrEqual(1);
     for (let t = nextQuarter; t < Date.parse(result.slots.at(-1)!.start); t += 900_000) {
       expect(out.limitW(new Date(t))).toBe(0);
-      expect(others.map((s) => s.limitW(new Date(t)))).toEqual(others.map((s) => plannedW(result, label(s), new Date(t))));
+      expect(others.map((s) => s.limitW(new Date(t)))).toEqual(
+        others.map((s) => plannedW(result, label(s), new Date(t))),
+      );
     }
     plan['2026-12-09'] = { id: res.body.revision.id, result };
   });

@@ -92,7 +92,9 @@ export function mergeReplan(previous: PlanResult | null, next: Replan): PlanResu
 /** Out-of-service spans with those of one charger that meet (the cut-off's two sides) made one. */
 function joinSpans(spans: NonNullable<PlanResult['outOfService']>): NonNullable<PlanResult['outOfService']> {
   const out: NonNullable<PlanResult['outOfService']> = [];
-  for (const s of [...spans].sort((a, b) => a.charger.localeCompare(b.charger) || Date.parse(a.from) - Date.parse(b.from))) {
+  for (const s of [...spans].sort(
+    (a, b) => a.charger.localeCompare(b.charger) || Date.parse(a.from) - Date.parse(b.from),
+  )) {
     const last = out.at(-1);
     if (last?.charger === s.charger && Date.parse(s.from) <= Date.parse(last.to)) {
       if (Date.parse(s.to) > Date.parse(last.to)) last.to = s.to;
