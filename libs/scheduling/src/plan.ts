@@ -20,6 +20,7 @@ import { costLoad } from './tariff.js';
 import { sweepAssignment } from './sweep.js';
 import { rebalanced, sharedChargerPower } from './rebalance.js';
 import { repairShort, repairSolves } from './short-repair.js';
+import { cheapestFound, inScenarioOrder, reorderedScenario, restartsFor } from './restarts.js';
 
 export interface PlanCost {
   energy: number;
@@ -136,6 +137,8 @@ export interface Plan {
      * hit the time safety net (the plan may then differ from run to run).
      */
     stoppedBy: 'bound' | 'moves' | 'time';
+    /** With other starts (restarts.ts): the cheapest plan each found (penalised), the first start first. */
+    starts?: number[];
     simplexIterations: number;
     /** kWh short summed over departures, in the plan and at best (lower-bound relaxation). */
     shortfallKwh: number;
@@ -178,6 +181,11 @@ export interface PlanOptions {
    * short where the bounds serve every bus (the bound of a short plan).
    */
   shareWindows?: boolean;
+  /**
+   * Other starts of a fresh plan (restarts.ts): default `restartsFor(problem)`, 2 on depots of
+   * 17-120 stays with 3 or more per charger and crew windows, else 0.
+   */
+  restarts?: number;
   /**
    * A regeneration: the plan published for this night before. It is kept wherever it still fits
    * and the plan stays within the depot's cost tolerance of the cheapest found (stable.ts, as in a
@@ -260,7 +268,29 @@ export async function planScenario(scenario: Scenario, options: PlanOptions = {}
   const solver = await loadSolver();
   const t0 = performance.now();
   const problem = prepareProblem(scenario);
-  if (!options.previous) return planProblem(problem, solver, options, t0);
+  if (!options.previous) {
+    const first = planProblem(problem, solver, options, t0);
+    const restarts = options.restarts ?? restartsFor(problem);
+    // A plan at its bound is optimal: no other start can do better.
+    if (!restarts || first.stats.stoppedBy === 'bound') return first;
+    let best = first;
+    const found = [cheapestFound(first, problem.shortfallPenalty)];
+    // A start cut by the safety net makes the choice depend on the machine: said as the first's would be.
+    let timed = first.stats.stoppedBy === 'time';
+    for (let k = 1; k <= restarts; k++) {
+      const other = planProblem(prepareProblem(reorderedScenario(scenario, k)), solver, options);
+      found.push(cheapestFound(other, problem.shortfallPenalty));
+      timed ||= other.stats.stoppedBy === 'time';
+      if (found[k]! < Math.min(...found.slice(0, k)) - 1e-6) best = other;
+      if (best.stats.stoppedBy === 'bound') break;
+    }
+    const stoppedBy = timed ? 'time' : best.stats.stoppedBy;
+    return {
+      ...inScenarioOrder(best, scenario),
+      solveMs: round(performance.now() - t0, 1),
+      stats: { ...best.stats, starts: found.map((f) => round(f, 2)), stoppedBy },
+    };
+  }
   problem.previous = previousWindows(problem, options.previous);
   const plan = planProblem(problem, solver, options, t0);
   return { ...plan, moved: regeneratedMoved(problem, options.previous, plan, scenario.tariff.currency) };
