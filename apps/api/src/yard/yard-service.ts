@@ -566,6 +566,9 @@ export async function replanAndPublish(
     buses: previous.buses.filter((b) => !absent.has(b.id)),
   } as Plan; // the stored result is the engine's whole plan (see planFromCutOff)
   const cutoff = DateTime.fromJSDate(cutAt, { zone });
+  // The time the revision is named by: the report's. Once the night is under way it is the
+  // cut-off; a report before the night begins re-plans from the night's start, but was made now.
+  const revisedAt = DateTime.fromJSDate(now, { zone }).toFormat('HH:mm');
   // The night stays under the demand target its plan was made under (the period's target is
   // worked out again from the revision for the nights after it).
   const targets = targetsOf(followed);
@@ -658,7 +661,7 @@ export async function replanAndPublish(
         stage: 'Done',
         includesMidday: plan.includesMidday,
         scenario: plan.scenario,
-        notes: [...plan.notes, `Revised at ${cutoff.toFormat('HH:mm')}: ${describe}.`],
+        notes: [...plan.notes, `Revised at ${revisedAt}: ${describe}.`],
         result: merged,
         replanState: state,
         createdBy: caller.id,
@@ -732,7 +735,7 @@ export async function replanAndPublish(
           name: r.name,
           depot: depot.name,
           version: revision.version,
-          at: cutoff.toFormat('HH:mm'),
+          at: revisedAt,
           reportedBy: caller.name,
           what: describe,
           moved: moved.map((m) => `${m.bus}: ${m.after}`),

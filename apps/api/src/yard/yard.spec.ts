@@ -255,6 +255,9 @@ describe('yard: reports re-plan the rest of the night', () => {
       .expect(201);
     const [row] = await app.db.select().from(plans).where(eq(plans.id, res.body.revision.id));
     expect(row!.result!.sessions.filter((s) => s.charger === 'A')).toEqual([]);
+    // Named by the time of the report, not by the night's start it re-plans from.
+    const reportedAt = DateTime.fromJSDate(clock, { zone: 'America/Chicago' }).toFormat('HH:mm');
+    expect(row!.notes.at(-1)).toBe(`Revised at ${reportedAt}: charger A out of service (Cable worn).`);
   });
 
   it('roles', async () => {

@@ -46,8 +46,23 @@ describe('tonight-format', () => {
       connected: 1,
       available: 0,
       faulted: 1,
+      out: 0,
       offline: 0,
       unknown: 1,
+    });
+  });
+
+  it('counts a charger out of service as out of service, not as the available its station reports', () => {
+    const chargers = [
+      { label: 'D2', live: { status: 'available' as const, powerKw: 0, seenAt: null } },
+      { label: 'D1', live: { status: 'available' as const, powerKw: 0, seenAt: null } },
+      { label: 'C1', live: { status: 'charging' as const, powerKw: 30, seenAt: null } },
+    ];
+    const counts = liveCounts(chargers, (c) => c.label !== 'D1');
+    expect(Object.fromEntries(counts.map((c) => [c.state, c.count]))).toMatchObject({
+      available: 1,
+      out: 1,
+      charging: 1,
     });
   });
 });

@@ -39,24 +39,34 @@ export function peakLoad(plan: Pick<PlanDetail, 'result'>): PeakLoad | null {
   return { peakKw: peak.loadKw, limitKw: peak.limitKw, over: slots.some((s) => s.loadKw > s.limitKw + 1e-6) };
 }
 
-export type LiveState = 'available' | 'connected' | 'charging' | 'faulted' | 'offline' | 'unknown';
+export type LiveState = 'available' | 'connected' | 'charging' | 'faulted' | 'out' | 'offline' | 'unknown';
 
 export const LIVE_STATES: readonly { state: LiveState; label: string; icon: string }[] = [
   { state: 'charging', label: 'Charging', icon: 'bolt' },
   { state: 'connected', label: 'Plugged in, not charging', icon: 'electrical_services' },
   { state: 'available', label: 'Available', icon: 'check_circle' },
   { state: 'faulted', label: 'Faulted', icon: 'error' },
+  { state: 'out', label: 'Out of service', icon: 'block' },
   { state: 'offline', label: 'Offline', icon: 'cloud_off' },
   { state: 'unknown', label: 'No reading', icon: 'help' },
 ];
 
-export function liveStateOf(c: Pick<Charger, 'live'>): LiveState {
-  return c.live?.status ?? 'unknown';
+/**
+ * A charger's state as the yard should read it: what the station reports, except that a charger
+ * out of service now is "Out of service" whatever idle state its station reports (a station that
+ * says "Available" does not know it was taken out of use; counted as available, someone would plug
+ * a bus in). Charging and a fault still show as reported: power flowing matters there.
+ */
+export function liveStateOf(c: Pick<Charger, 'live'>, outOfService = false): LiveState {
+  const reported = c.live?.status ?? 'unknown';
+  return outOfService && reported !== 'charging' && reported !== 'faulted' ? 'out' : reported;
 }
 
-/** How many chargers report each live state (every state listed, zeros included). */
-export function liveCounts(
-  chargers: readonly Pick<Charger, 'live'>[],
+/** How many chargers are in each state (every state listed, zeros included); `out`: out of service now. */
+export function liveCounts<C extends Pick<Charger, 'live'>>(
+  chargers: readonly C[],
+  out: (c: C) => boolean = () => false,
 ): { state: LiveState; label: string; icon: string; count: number }[] {
-  return LIVE_STATES.map((s) => ({ ...s, count: chargers.filter((c) => liveStateOf(c) === s.state).length }));
+  const states = chargers.map((c) => liveStateOf(c, out(c)));
+  return LIVE_STATES.map((s) => ({ ...s, count: states.filter((x) => x === s.state).length }));
 }

@@ -193,7 +193,9 @@ describe('TonightPage', () => {
     // A bus on the connector waiting for its hours is not an available charger.
     expect(count('connected')).toBe('1 Plugged in, not charging');
     expect(count('faulted')).toBe('1 Faulted');
-    expect(count('offline')).toBe('2 Offline');
+    // Out of service: said so, whatever idle state its station reports.
+    expect(count('offline')).toBe('1 Offline');
+    expect(count('out')).toBe('1 Out of service');
     expect(count('unknown')).toBe('1 No reading');
     expect(el.querySelector('.counts li[data-state="faulted"]')!.classList.contains('faulted')).toBe(true);
 
@@ -204,7 +206,7 @@ describe('TonightPage', () => {
     expect(words(c('C2'))).toBe('C2 Faulted');
     expect(c('C2').querySelector('mat-icon')?.textContent?.trim()).toBe('error');
     expect(c('C2').classList.contains('faulted')).toBe(true);
-    expect(words(c('C4'))).toBe('C4 Offline, not heard from yet, out of service');
+    expect(words(c('C4'))).toBe('C4 Out of service');
     // Last heard at the depot's time (America/Chicago here: 07:20 on 1 December).
     expect(words(c('C6'))).toMatch(/^C6 Offline, last heard .*Dec 1.*07:20$/);
   });

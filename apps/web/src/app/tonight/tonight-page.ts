@@ -160,7 +160,8 @@ export class TonightPage {
     [...this.liveChargers()]
       .sort((a, b) => naturalCompare(a.label, b.label))
       .map((c) => {
-        const state = liveStateOf(c);
+        const out = outAt(c, new Date(this.clock.tick()), this.timezone());
+        const state = liveStateOf(c, out);
         const info = LIVE_STATES.find((s) => s.state === state)!;
         return {
           id: c.id,
@@ -176,11 +177,15 @@ export class TonightPage {
               : c.live?.seenAt
                 ? `last heard ${when(c.live.seenAt, this.timezone())}`
                 : 'not heard from yet',
-          outOfService: outAt(c, new Date(this.clock.tick()), this.timezone()),
+          // Out of service and charging or faulted: the state says the one, this the other.
+          outOfService: out && state !== 'out',
         };
       }),
   );
-  protected readonly counts = computed(() => liveCounts(this.liveChargers()));
+  protected readonly counts = computed(() => {
+    const now = new Date(this.clock.tick());
+    return liveCounts(this.liveChargers(), (c) => outAt(c, now, this.timezone()));
+  });
   protected readonly faulted = computed(() => this.chargers().filter((c) => c.state === 'faulted').length);
 
   private run = 0;

@@ -176,6 +176,17 @@ describe('yard format', () => {
     ).toBe('Plugged in, not charging (at 22:29)');
   });
 
+  it('says out of service where the station of a charger taken out of use still reports itself available', () => {
+    const available = { status: 'available' as const, powerKw: 0, seenAt: at('07:53') };
+    const d2 = { live: available, status: 'out_of_service' as const, statusReason: 'Cable worn' };
+    expect(liveView(d2, ZONE, true)).toEqual({ icon: 'block', text: 'Out of service', tone: 'off', faulted: false });
+    // Power flowing or a fault is still what the station says.
+    expect(liveView({ ...d2, live: { ...available, status: 'charging', powerKw: 35.7 } }, ZONE, true).text).toBe(
+      'Charging at 35.7 kW (at 07:53)',
+    );
+    expect(liveView({ ...d2, live: { ...available, status: 'faulted' } }, ZONE, true).faulted).toBe(true);
+  });
+
   it("describes a charger's live state with an icon and words", () => {
     expect(
       liveView(

@@ -211,12 +211,19 @@ export interface LiveView {
   faulted: boolean;
 }
 
+/**
+ * The live chip of a charger card. Out of service now (`outOfService`), it says so whatever idle
+ * state the station reports: a station saying "Available" beside "Out of service" invites a bus.
+ */
 export function liveView(
   charger: Pick<Charger, 'live' | 'status' | 'statusReason'> | null,
   timeZone: string,
+  outOfService = false,
 ): LiveView {
   const live = charger?.live ?? null;
   const seen = live?.seenAt ? ` (at ${clock(live.seenAt, timeZone)})` : '';
+  if (outOfService && live?.status !== 'charging' && live?.status !== 'faulted')
+    return { icon: 'block', text: 'Out of service', tone: 'off', faulted: false };
   if (!live) return { icon: 'help', text: 'No live report', tone: 'unknown', faulted: false };
   switch (live.status) {
     case 'charging':

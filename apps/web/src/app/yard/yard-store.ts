@@ -128,7 +128,7 @@ export class YardStore {
       return {
         label,
         charger,
-        live: liveView(charger, tz),
+        live: liveView(charger, tz, outNow),
         outOfService: outNow,
         outLater: charger?.status === 'out_of_service' && charger.outFrom && !outNow ? outPeriod(charger) : null,
         statusReason: charger?.statusReason ?? null,
