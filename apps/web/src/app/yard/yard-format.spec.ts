@@ -10,6 +10,7 @@ import {
   overdueSteps,
   nowLinePct,
   revisionNotice,
+  spansDays,
   stepViews,
 } from './yard-format';
 
@@ -25,6 +26,21 @@ describe('yard format', () => {
       'Plug in bus 203 at charger C2',
     ]);
     expect(dueText(next.get('C1')!, now)).toBe('Next, in 30 min (23:00)');
+  });
+
+  it('names the day with each step of a night longer than a day, where 15:00 comes round more than once', () => {
+    const steps = [
+      step({ action: 'connect', bus: '218', charger: 'C1', at: '2026-12-04T17:00:00.000-06:00' }),
+      step({ action: 'disconnect', bus: '218', charger: 'C1', at: '2026-12-06T15:00:00.000-06:00' }),
+    ];
+    const weekend = { start: Date.parse('2026-12-04T15:45:00-06:00'), end: Date.parse('2026-12-07T07:00:00-06:00') };
+    expect(spansDays(weekend)).toBe(true);
+    expect(spansDays({ start: weekend.start, end: weekend.start + 15 * 3_600_000 })).toBe(false);
+    const views = stepViews(steps, now, ZONE, undefined, spansDays(weekend));
+    expect(views.map((v) => v.sentence)).toEqual([
+      'Plug in bus 218 at charger C1 at Fri 17:00',
+      'Unplug bus 218 from charger C1 at Sun 15:00',
+    ]);
   });
 
   it('takes the words of a step from the server: an unplug forced by a report is due now and says where the bus goes', () => {

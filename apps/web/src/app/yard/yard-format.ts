@@ -1,5 +1,5 @@
 import type { Charger, Tonight, TonightPlan, YardStep } from '@nightyard/contracts';
-import { addDays, dayAt, depotParts, timeAt } from '@nightyard/contracts/depot-time';
+import { addDays, dayAt, depotParts, timeAt, weekdayTimeAt } from '@nightyard/contracts/depot-time';
 
 /** Times, the night's span, steps and chargers as the yard reads them. Pure functions only. */
 
@@ -137,11 +137,17 @@ export function stepState(step: YardStep, nowMs: number, outbox: OutboxState | n
   return Date.parse(step.at) + OVERDUE_AFTER_MS < nowMs ? 'overdue' : 'upcoming';
 }
 
+/** A night longer than a day (a weekend's) names the day with each step's time: 15:00 comes round more than once. */
+export function spansDays(horizon: { start: number; end: number } | null | undefined): boolean {
+  return !!horizon && horizon.end - horizon.start > 24 * 3_600_000;
+}
+
 export function stepViews(
   steps: readonly YardStep[],
   nowMs: number,
   timeZone: string,
   outbox: (key: string) => OutboxState | null = () => null,
+  days = false,
 ): StepView[] {
   return [...steps]
     .sort(
@@ -150,7 +156,7 @@ export function stepViews(
     .map((step) => {
       const box = outbox(step.key);
       const state = stepState(step, nowMs, box);
-      const time = clock(step.at, timeZone);
+      const time = days ? weekdayTimeAt(step.at, timeZone) : clock(step.at, timeZone);
       const title = stepTitle(step);
       const confirmedAt = step.confirmedAt ?? (box?.state === 'saved' ? box.confirmedAt : null);
       const confirmedBy = step.confirmedBy ?? (box?.state === 'saved' ? box.confirmedBy : null);

@@ -13,6 +13,7 @@ import {
   nextSteps,
   overdueSteps,
   revisionNotice,
+  spansDays,
   stepViews,
   type Horizon,
   type LiveView,
@@ -109,7 +110,13 @@ export class YardStore {
   readonly steps = computed<StepView[]>(() => {
     const t = this.tonight();
     if (!t) return [];
-    return stepViews(t.steps, this.now(), t.depot.timezone, (key) => this.outbox.stateOf(key));
+    return stepViews(
+      t.steps,
+      this.now(),
+      t.depot.timezone,
+      (key) => this.outbox.stateOf(key),
+      spansDays(t.plan?.horizon),
+    );
   });
 
   readonly chargerViews = computed<ChargerView[]>(() => {
