@@ -1,6 +1,7 @@
 import { ChangeDetectionStrategy, Component, computed, input } from '@angular/core';
 import type { YardSession } from '@nightyard/contracts';
-import { clock, hourTicks, nowLinePct, pct, type Horizon } from './yard-format';
+import { weekdayTimeAt } from '@nightyard/contracts/depot-time';
+import { clock, hourTicks, nowLinePct, pct, spansDays, type Horizon } from './yard-format';
 
 /**
  * One charger's plug-ins across the night as bars labelled by bus, with hour ticks and the
@@ -127,14 +128,18 @@ export class NightTrack {
   readonly timezone = input.required<string>();
 
   protected readonly ticks = computed(() =>
-    hourTicks(this.horizon(), this.timezone(), 3).filter((t) => t.left > 4 && t.left < 96),
+    hourTicks(this.horizon(), this.timezone()).filter((t) => t.left > 4 && t.left < 96),
   );
   protected readonly nowLeft = computed(() => nowLinePct(this.now(), this.horizon()));
   protected readonly nowLabel = computed(() => `Now ${clock(this.now(), this.timezone())}`);
 
+  /** Times with their day on a night longer than a day. */
+  private readonly at = computed(() => (spansDays(this.horizon()) ? weekdayTimeAt : clock));
+
   protected readonly bars = computed(() => {
     const h = this.horizon();
     const tz = this.timezone();
+    const at = this.at();
     return this.sessions().map((s, i) => {
       const start = Date.parse(s.start);
       const end = Date.parse(s.end);
@@ -147,7 +152,7 @@ export class NightTrack {
         left,
         width: Math.max(0.6, pct(end, h) - left),
         past: end <= this.now(),
-        title: `Bus ${s.bus}, ${clock(start, tz)}–${clock(end, tz)}`,
+        title: `Bus ${s.bus}, ${at(start, tz)}–${at(end, tz)}`,
       };
     });
   });
@@ -155,8 +160,9 @@ export class NightTrack {
   protected readonly summary = computed(() => {
     const tz = this.timezone();
     const h = this.horizon();
-    const list = this.sessions().map((s) => `bus ${s.bus} ${clock(s.start, tz)} to ${clock(s.end, tz)}`);
-    const span = `from ${clock(h.start, tz)} to ${clock(h.end, tz)}`;
+    const at = this.at();
+    const list = this.sessions().map((s) => `bus ${s.bus} ${at(s.start, tz)} to ${at(s.end, tz)}`);
+    const span = `from ${at(h.start, tz)} to ${at(h.end, tz)}`;
     const now = this.nowLeft() !== null ? ` Now ${clock(this.now(), tz)}.` : '';
     return `Charger ${this.charger()} ${span}: ${list.length ? list.join(', ') : 'no bus planned'}.${now}`;
   });

@@ -121,6 +121,14 @@ describe('yard format', () => {
     expect(nowLinePct(Date.parse(at('17:00')), h)).toBeNull();
     expect(nowLinePct(h.end, h)).toBe(100);
     expect(hourTicks(h, ZONE, 3).map((t) => t.label)).toEqual(['18:00', '21:00', '00:00', '03:00', '06:00']);
+    // A weeknight's card gets a tick every 3 hours; a weekend's every 12, midnight named by its day.
+    expect(hourTicks(h, ZONE).map((t) => t.label)).toEqual(['18:00', '21:00', '00:00', '03:00', '06:00']);
+    const weekend = {
+      start: Date.parse('2026-12-04T15:45:00-06:00'),
+      end: Date.parse('2026-12-07T07:00:00-06:00'),
+      slotMs: 900_000,
+    };
+    expect(hourTicks(weekend, ZONE).map((t) => t.label)).toEqual(['Sat', '12:00', 'Sun', '12:00', 'Mon']);
   });
 
   it('turns a late bus time into the next time the depot clock reads it', () => {

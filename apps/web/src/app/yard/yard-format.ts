@@ -1,5 +1,5 @@
 import type { Charger, Tonight, TonightPlan, YardStep } from '@nightyard/contracts';
-import { addDays, dayAt, depotParts, timeAt, weekdayTimeAt } from '@nightyard/contracts/depot-time';
+import { addDays, dayAt, depotParts, timeAt, weekdayAt, weekdayTimeAt } from '@nightyard/contracts/depot-time';
 
 /** Times, the night's span, steps and chargers as the yard reads them. Pure functions only. */
 
@@ -72,15 +72,26 @@ export interface Tick {
   label: string;
 }
 
-/** Whole local hours across the night, every `every` hours (local hour divisible by it). */
-export function hourTicks(h: Horizon, timeZone: string, every = 3): Tick[] {
+/**
+ * Whole local hours across the night, every `every` hours (local hour divisible by it); by
+ * default as many as a card's narrow track holds (about six: every 3 hours on a weeknight, every
+ * 12 over a weekend). On a night longer than a day, midnight is named by its day ("Sat").
+ */
+export function hourTicks(h: Horizon, timeZone: string, every = tickEvery(h)): Tick[] {
   const ticks: Tick[] = [];
+  const days = spansDays(h);
   for (let t = Math.ceil(h.start / SLOT_MS) * SLOT_MS; t <= h.end; t += SLOT_MS) {
     const local = localParts(t, timeZone);
     if (local.time.endsWith(':00') && local.hour % every === 0)
-      ticks.push({ at: t, left: pct(t, h), label: local.time });
+      ticks.push({ at: t, left: pct(t, h), label: days && local.hour === 0 ? weekdayAt(t, timeZone) : local.time });
   }
   return ticks;
+}
+
+/** Hours between ticks: the fewest of 3, 6, 12 and 24 that leave at most six across the night. */
+export function tickEvery(h: Horizon): number {
+  const hours = (h.end - h.start) / 3_600_000;
+  return [3, 6, 12].find((n) => hours / n <= 6) ?? 24;
 }
 
 // ---------------------------------------------------------------------------------------------
