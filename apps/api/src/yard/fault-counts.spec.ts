@@ -50,4 +50,21 @@ describe('a re-plan after a charger is reported out', () => {
       'charger C2 out of service: 3 buses were planned on it',
     ]);
   });
+
+  it('leaves out a charger reported out before an earlier revision: nothing was planned on it any more', () => {
+    const followed = { sessions: [session('201', 'C1', '16:00', '06:00')] } as unknown as PlanResult;
+    const at = Date.parse('2026-12-03T19:34:00.000-06:00');
+    const engine = {
+      buses: ['201', '203'],
+      reasons: [
+        'charger D2 out of service: 0 buses were planned on it',
+        'bus 201 running late',
+        '1 other bus moved to make room or to keep the cost down',
+      ],
+    };
+    expect(recountFaults(engine, followed, ['D2'], ['201'], at).reasons).toEqual([
+      'bus 201 running late',
+      '1 other bus moved to make room or to keep the cost down',
+    ]);
+  });
 });

@@ -27,6 +27,8 @@ export function recountFaults(
   const reasons = moved.reasons.flatMap((r) => {
     const fault = /^charger (.+?) out of service: \d+ (bus was|buses were) planned on it$/.exec(r);
     const buses = fault ? on.get(fault[1]!) : undefined;
+    // Out already in the plan followed (reported before an earlier revision): it moved no bus now.
+    if (buses?.size === 0) return [];
     if (buses)
       return [
         `charger ${fault![1]} out of service: ${buses.size} ${buses.size === 1 ? 'bus was' : 'buses were'} planned on it`,
