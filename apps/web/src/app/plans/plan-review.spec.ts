@@ -53,6 +53,22 @@ describe('plan review', () => {
     ]);
   });
 
+  it('says "Extra energy cost" where the plan pays more for energy than the baseline, not a negative saving', async () => {
+    TestBed.configureTestingModule({ providers: [provideHttpClient(), provideHttpClientTesting()] });
+    const fixture = TestBed.createComponent(PlanReview);
+    const plan = planDetail();
+    const result = { ...plan.result!, cost: { ...plan.result!.cost, energy: 20.41 } };
+    fixture.componentRef.setInput('plan', { ...plan, result } as typeof plan & { result: PlanResult });
+    fixture.componentRef.setInput('versions', [planSummary()]);
+    TestBed.tick();
+    await settle();
+    fixture.detectChanges();
+    const card = (fixture.nativeElement as HTMLElement).querySelector('.card')!.textContent!.replace(/\s+/g, ' ');
+    // $0.41 more than $20.00: 2.1 %, with its digit below 1 % (0.4 % read "-0 %").
+    expect(card).toContain('Extra energy cost $0.41 (2 % more) against charge on arrival $20.00');
+    expect(card).not.toContain('Energy saving');
+  });
+
   it('shows the short buses first with their reasons, and the figures', async () => {
     TestBed.configureTestingModule({ providers: [provideHttpClient(), provideHttpClientTesting()] });
     const mock = TestBed.inject(HttpTestingController);
