@@ -1,4 +1,4 @@
-import { and, asc, eq, gt } from 'drizzle-orm';
+import { and, asc, desc, eq, gt, lt } from 'drizzle-orm';
 import { DateTime } from 'luxon';
 import { coldWeatherFactor } from '@nightyard/contracts';
 import type { ScenarioInput } from '@nightyard/scheduling';
@@ -61,6 +61,7 @@ export async function buildNightScenario(
     .innerJoin(buses, eq(buses.id, runs.busId))
     .where(and(eq(runs.depotId, depotId), eq(runs.serviceDate, next.date)))
     .orderBy(asc(runs.pullOut));
+  if (!dayRows.length) await refuseInsideANight(db, depotId, serviceDate, next.date, zone);
   const lows = await db.select().from(serviceDays).where(eq(serviceDays.depotId, depotId));
   const factorOn = (date: string) =>
     coldWeatherFactor(depot.coldWeatherFactors, lows.find((d) => d.serviceDate === date)?.forecastLowF ?? null);
@@ -186,4 +187,26 @@ function estimateArrivalSoc(
     if (run.id === runId) return Math.round(soc * 10) / 10;
   }
   return Math.round(soc * 10) / 10;
+}
+
+/**
+ * A date without runs after a service day is part of that day's night (a weekend or a holiday
+ * belongs to the night before it): planning it as a night of its own would plan the same hours
+ * twice, with no bus pulling in. Refused with the night to plan instead. A date with no service
+ * day before it (the first after a depot's runs begin) is planned from noon, as a calendar night.
+ */
+async function refuseInsideANight(db: Db, depotId: string, date: string, nextDate: string, zone: string) {
+  const [before] = await db
+    .select({ date: runs.serviceDate })
+    .from(runs)
+    .where(and(eq(runs.depotId, depotId), lt(runs.serviceDate, date)))
+    .orderBy(desc(runs.serviceDate))
+    .limit(1);
+  if (!before) return;
+  const day = (d: string) => DateTime.fromISO(d, { zone }).toFormat('cccc, LLLL d');
+  throw new DomainError(
+    'validation_failed',
+    `No runs on ${day(date)}: it falls inside the night of ${day(before.date)}, which runs to the first pull-outs of ${day(nextDate)}. Plan that night, or enter ${DateTime.fromISO(date, { zone }).toFormat('cccc')}'s runs under Fleet first`,
+    { serviceDate: `Inside the night of ${day(before.date)}` },
+  );
 }

@@ -267,6 +267,34 @@ describe('plans', () => {
     expect(row!.notes.join(' ')).toMatch(/Bus 11 has a reading at its last pull-in/);
   });
 
+  it('a weekend day is refused as a night of its own, with the night it belongs to; nothing is queued', async () => {
+    const org = await createOrganisation(app, { s: ['supervisor'] });
+    const s = org.users.s!;
+    const depot = (await createDepot(app.db, org.organisationId)).depot.id;
+    await addBuses(app.db, org.organisationId, depot, ['71', '72']);
+    // Friday 11 and Monday 14 December: Saturday and Sunday belong to Friday's night.
+    for (const date of ['2026-12-11', '2026-12-14'])
+      await app
+        .request()
+        .put(`/api/depots/${depot}/service-days/${date}`)
+        .set(as(s))
+        .send({ runs: dayRuns(date, ['71', '72']) })
+        .expect(200);
+    const res = await app
+      .request()
+      .post(`/api/depots/${depot}/plans`)
+      .set(as(s))
+      .send({ serviceDate: '2026-12-12' })
+      .expect(400);
+    expect(res.body.error.message).toBe(
+      "No runs on Saturday, December 12: it falls inside the night of Friday, December 11, which runs to the first pull-outs of Monday, December 14. Plan that night, or enter Saturday's runs under Fleet first",
+    );
+    expect(res.body.error.fields).toEqual({ serviceDate: 'Inside the night of Friday, December 11' });
+    expect(await app.db.select().from(plans).where(eq(plans.depotId, depot))).toEqual([]);
+    // Friday's night is planned as before.
+    await app.request().post(`/api/depots/${depot}/plans`).set(as(s)).send({ serviceDate: '2026-12-11' }).expect(202);
+  });
+
   it('a night without a next service day is refused with what to do', async () => {
     const res = await app
       .request()
