@@ -182,6 +182,7 @@ const NOT_REQUESTS = new Set([
   'passwordSchema',
   'serviceNightSchema',
   'depotNightSchema',
+  'dateNightSchema',
   'liveStatusSchema',
   'liveChargerSchema',
   'liveEventSchema',

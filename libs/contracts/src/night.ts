@@ -31,3 +31,20 @@ export const depotNightSchema = z.object({
   tonight: serviceNightSchema,
 });
 export type DepotNight = z.infer<typeof depotNightSchema>;
+
+/**
+ * Where a calendar date stands among a depot's service days (days with runs entered): Plans steps
+ * from service day to service day, and a day inside another's night (a weekend's Saturday) is
+ * shown as part of that night rather than offered as a night of its own.
+ */
+export const dateNightSchema = z.object({
+  date: z.iso.date(),
+  /** Runs are entered for it: it names a night of its own. */
+  serviceDay: z.boolean(),
+  /** Not a service day, between two: the service day whose night holds it (Friday, for a Saturday). */
+  within: z.iso.date().nullable(),
+  /** The nearest service days before and after it (null: none entered). */
+  previous: z.iso.date().nullable(),
+  next: z.iso.date().nullable(),
+});
+export type DateNight = z.infer<typeof dateNightSchema>;

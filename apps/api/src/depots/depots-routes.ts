@@ -1,14 +1,16 @@
 import {
   chooseDepotRequestSchema,
   chosenDepotSchema,
+  dateNightSchema,
   depotIdParamsSchema,
   depotListSchema,
   depotNightSchema,
   EVERY_ROLE,
+  serviceDayParamsSchema,
 } from '@nightyard/contracts';
 import type { AppDeps } from '../app-deps';
 import type { ApiRoutes } from '../http/route';
-import { depotNight } from '../night/depot-night';
+import { dateNight, depotNight } from '../night/depot-night';
 import { chooseDepot, listDepotSummaries } from './depots-service';
 
 export function depotsRoutes(api: ApiRoutes, { db, clock }: AppDeps) {
@@ -46,5 +48,17 @@ export function depotsRoutes(api: ApiRoutes, { db, clock }: AppDeps) {
       response: depotNightSchema,
     },
     async ({ user, params }) => depotNight(db, user, params.depotId, clock()),
+  );
+  api.add(
+    {
+      method: 'get',
+      path: '/depots/:depotId/nights/:date',
+      summary: 'Where a date stands among the service days: its own night, or inside the night of the day before it',
+      tag: 'depots',
+      access: EVERY_ROLE,
+      params: serviceDayParamsSchema,
+      response: dateNightSchema,
+    },
+    async ({ user, params }) => dateNight(db, user, params.depotId, params.date),
   );
 }

@@ -1,6 +1,6 @@
 import { sql } from 'drizzle-orm';
 import { DateTime } from 'luxon';
-import { addDays, depotDate, type DepotNight } from '@nightyard/contracts';
+import { addDays, depotDate, type DateNight, type DepotNight } from '@nightyard/contracts';
 import { nightAmong, nightsOfDays, type ServiceDayTimes, type ServiceNight } from '@nightyard/scheduling';
 import type { Db } from '../db/client';
 import { runs } from '../db/schema';
@@ -76,4 +76,22 @@ export async function serviceDaysAround(db: Db, depotId: string, today: string):
 
 export async function depotNight(db: Db, caller: AuthUser, depotId: string, now: Date): Promise<DepotNight> {
   return nightOfDepot(db, await depotOf(db, caller, depotId), now);
+}
+
+/** Where `date` stands among the depot's service days (see `dateNightSchema`). */
+export async function dateNight(db: Db, caller: AuthUser, depotId: string, date: string): Promise<DateNight> {
+  await depotOf(db, caller, depotId);
+  const { rows } = await db.execute<{ on: boolean; previous: string | null; next: string | null }>(sql`
+    select
+      exists (select 1 from ${runs} where ${runs.depotId} = ${depotId} and ${runs.serviceDate} = ${date}) as on,
+      (select max(${runs.serviceDate})::text from ${runs} where ${runs.depotId} = ${depotId} and ${runs.serviceDate} < ${date}) as previous,
+      (select min(${runs.serviceDate})::text from ${runs} where ${runs.depotId} = ${depotId} and ${runs.serviceDate} > ${date}) as next`);
+  const row = rows[0]!;
+  return {
+    date,
+    serviceDay: row.on,
+    within: !row.on && row.previous && row.next ? row.previous : null,
+    previous: row.previous,
+    next: row.next,
+  };
 }

@@ -79,6 +79,32 @@ describe('which night it is', () => {
   it("another organisation's depot does not exist for the caller", async () => {
     const other = await createOrganisation(app, { f: ['finance'] });
     await app.request().get(`/api/depots/${depotId}/night`).set(as(other.users.f!)).expect(404);
+    await app.request().get(`/api/depots/${depotId}/nights/2026-12-12`).set(as(other.users.f!)).expect(404);
+  });
+
+  it('a date among the service days: its own night, or inside the night of the day before it', async () => {
+    const of = async (date: string) =>
+      (await app.request().get(`/api/depots/${depotId}/nights/${date}`).set(as(fin)).expect(200)).body;
+    expect(await of('2026-12-11')).toEqual({
+      date: '2026-12-11',
+      serviceDay: true,
+      within: null,
+      previous: '2026-12-10',
+      next: '2026-12-14',
+    });
+    // Saturday and Sunday belong to Friday's night.
+    expect(await of('2026-12-12')).toMatchObject({ serviceDay: false, within: '2026-12-11', next: '2026-12-14' });
+    expect(await of('2026-12-13')).toMatchObject({ serviceDay: false, within: '2026-12-11', previous: '2026-12-11' });
+    // Before the first service day and after the last: no night holds it.
+    expect(await of('2026-12-06')).toEqual({
+      date: '2026-12-06',
+      serviceDay: false,
+      within: null,
+      previous: null,
+      next: '2026-12-07',
+    });
+    expect(await of('2026-12-15')).toMatchObject({ serviceDay: false, within: null, previous: '2026-12-14', next: null });
+    await app.request().get(`/api/depots/${depotId}/nights/2026-13-01`).set(as(fin)).expect(400);
   });
 });
 

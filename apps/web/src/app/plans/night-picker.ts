@@ -19,6 +19,8 @@ export class NightPicker {
   readonly canPlan = input(false);
   readonly includeMidday = input(true);
   readonly busy = input(false);
+  /** False for a day inside another service day's night: it has no night of its own to generate. */
+  readonly plannable = input(true);
 
   /** A night picked in the date field (YYYY-MM-DD as typed). */
   readonly pick = output<string>();

@@ -1,3 +1,4 @@
+import type { HttpTestingController } from '@angular/common/http/testing';
 import type { PlanDetail, PlanResult, PlanSummary } from '@nightyard/contracts';
 import { DEPOT_ID } from '../fleet/fleet-fixtures';
 
@@ -104,4 +105,15 @@ export function planDetail(overrides: Partial<PlanDetail> = {}): PlanDetail {
     plannedFrom: null,
     ...overrides,
   };
+}
+
+/**
+ * Answers the Plans page's question of where each night looked at stands (GET .../nights/:date)
+ * as a service day of its own, so specs about versions need not answer it themselves.
+ */
+export function answerAsServiceDays(mock: HttpTestingController): void {
+  for (const req of mock.match((r) => /\/nights\/\d{4}-\d{2}-\d{2}$/.test(r.url))) {
+    const date = req.request.url.slice(-10);
+    req.flush({ date, serviceDay: true, within: null, previous: null, next: null });
+  }
 }

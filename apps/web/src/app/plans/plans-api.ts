@@ -2,6 +2,7 @@ import { HttpClient } from '@angular/common/http';
 import { Injectable, inject } from '@angular/core';
 import type {
   AdoptedPlan,
+  DateNight,
   DepotDetail,
   PlanComparison,
   PlanDetail,
@@ -14,6 +15,13 @@ import { firstValueFrom, map } from 'rxjs';
 @Injectable({ providedIn: 'root' })
 export class PlansApi {
   private readonly http = inject(HttpClient);
+
+  /** Where a date stands among the depot's service days: its own night, or inside another's. */
+  dateNight(depotId: string, date: string): Promise<DateNight> {
+    return firstValueFrom(
+      this.http.get<DateNight>(`/api/depots/${encodeURIComponent(depotId)}/nights/${encodeURIComponent(date)}`),
+    );
+  }
 
   list(depotId: string, serviceDate: string): Promise<PlanSummary[]> {
     return firstValueFrom(

@@ -2,13 +2,13 @@ import { provideHttpClient } from '@angular/common/http';
 import { HttpTestingController, provideHttpClientTesting } from '@angular/common/http/testing';
 import { ComponentFixture, TestBed } from '@angular/core/testing';
 import { MatDialog } from '@angular/material/dialog';
-import { provideRouter } from '@angular/router';
+import { Router, provideRouter } from '@angular/router';
 import type { DepotDetail, Role } from '@nightyard/contracts';
 import { of } from 'rxjs';
 import { DEPOT_ID, signedInAs } from '../fleet/fleet-fixtures';
 import { Clock } from '../core/clock';
 import { depotNight, settle } from '../testing/fixtures';
-import { PLAN_IDS, planDetail, planSummary } from './plan-fixtures';
+import { PLAN_IDS, planDetail, planSummary, answerAsServiceDays } from './plan-fixtures';
 import { AdoptDialog } from './adopt-dialog';
 import { PlansPage } from './plans-page';
 
@@ -78,7 +78,10 @@ describe('PlansPage', () => {
     fixture.detectChanges();
   }
 
-  afterEach(() => mock.verify());
+  afterEach(() => {
+    answerAsServiceDays(mock);
+    mock.verify();
+  });
 
   /** Runs change detection and the resources' loaders; never waits for an unanswered request (whenStable would). */
   async function stable() {
@@ -90,6 +93,40 @@ describe('PlansPage', () => {
 
   const button = (label: string) =>
     [...el.querySelectorAll('button')].find((b) => b.textContent?.replace(/\s+/g, ' ').trim().endsWith(label)) ?? null;
+
+  it('shows a day without runs as part of the night before it: no Generate, a way there, steps by service day', async () => {
+    TestBed.configureTestingModule({ providers: [provideRouter([]), provideHttpClient(), provideHttpClientTesting()] });
+    mock = TestBed.inject(HttpTestingController);
+    await signedInAs(mock, ['supervisor']);
+    const router = TestBed.inject(Router);
+    const go = vi.spyOn(router, 'navigate').mockResolvedValue(true);
+    fixture = TestBed.createComponent(PlansPage);
+    fixture.componentRef.setInput('date', '2026-12-05');
+    el = fixture.nativeElement;
+    await stable();
+    mock.expectOne(`/api/depots/${DEPOT_ID}/plans?serviceDate=2026-12-05`).flush({ plans: [] });
+    mock.expectOne(`/api/depots/${DEPOT_ID}/nights/2026-12-05`).flush({
+      date: '2026-12-05',
+      serviceDay: false,
+      within: '2026-12-04',
+      previous: '2026-12-04',
+      next: '2026-12-07',
+    });
+    for (const req of mock.match(`/api/depots/${DEPOT_ID}`)) req.flush({ depot: { id: DEPOT_ID, chargers: [] } });
+    await stable();
+    fixture.detectChanges();
+    const hint = el.querySelector('.hint.within')!.textContent!.replace(/\s+/g, ' ');
+    expect(hint).toContain(
+      'No runs on Saturday, December 5, 2026: it falls inside the night of Friday, December 4, 2026',
+    );
+    expect(button('Generate plan')!.disabled).toBe(true);
+    const query = () => go.mock.calls.at(-1)![1]!.queryParams;
+    button('Go to the night of Friday, December 4, 2026')!.click();
+    expect(query()).toMatchObject({ date: '2026-12-04' });
+    // Next night: Monday, the next service day, not Sunday.
+    (el.querySelector('button[aria-label="Next night"]') as HTMLButtonElement).click();
+    expect(query()).toMatchObject({ date: '2026-12-07' });
+  });
 
   it('shows the chosen draft with its timeline and short buses first', async () => {
     await render(['supervisor']);

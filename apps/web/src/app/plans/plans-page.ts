@@ -5,7 +5,6 @@ import { MatIconModule } from '@angular/material/icon';
 import { MatProgressBarModule } from '@angular/material/progress-bar';
 import type { PlanSummary } from '@nightyard/contracts';
 import { firstValueFrom } from 'rxjs';
-import { addDays } from '@nightyard/contracts/depot-time';
 import { formatServiceDay } from '../depot-state/depot-format';
 import { injectSaveFile } from '../core/save-file';
 import { injectCanEditFleet } from '../auth/role-checks';
@@ -65,9 +64,14 @@ export class PlansPage {
   }
 
   protected step(days: number): void {
-    const n = this.store.night();
-    if (n) this.store.goToNight(addDays(n, days));
+    this.store.stepNight(days < 0 ? -1 : 1);
   }
+
+  /** "Saturday, December 5" style name of the service day whose night holds the date looked at. */
+  protected readonly withinText = computed(() => {
+    const w = this.store.within();
+    return w ? formatServiceDay(w) : '';
+  });
 
   protected uploadWhatIf(fileInput: HTMLInputElement): void {
     const file = fileInput.files?.[0];

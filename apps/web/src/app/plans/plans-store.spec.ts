@@ -7,7 +7,7 @@ import type { DepotDetail } from '@nightyard/contracts';
 import { DEPOT_ID, signedInAs } from '../fleet/fleet-fixtures';
 import { DepotListStore } from '../depot-state/depot-list-store';
 import { SOUTH_ID, depot, settle, southDepot } from '../testing/fixtures';
-import { PLAN_IDS, planDetail, planSummary } from './plan-fixtures';
+import { PLAN_IDS, planDetail, planSummary, answerAsServiceDays } from './plan-fixtures';
 import { POLL_MS } from './plan-poll';
 import { PlansStore } from './plans-store';
 
@@ -49,6 +49,7 @@ describe('PlansStore', () => {
 
   afterEach(() => {
     vi.useRealTimers();
+    answerAsServiceDays(mock);
     mock.verify();
   });
 

@@ -5,7 +5,7 @@ import { ActivatedRoute, Router } from '@angular/router';
 import type { AdoptedPlan, PlanDetail, PlanResult, PlanSummary, WhatIfAdoption } from '@nightyard/contracts';
 import { Subject, mergeMap } from 'rxjs';
 import { toApiProblem } from '../core/api-error';
-import { isIsoDate } from '@nightyard/contracts/depot-time';
+import { addDays, isIsoDate } from '@nightyard/contracts/depot-time';
 import { formatServiceDay } from '../depot-state/depot-format';
 import { DepotListStore } from '../depot-state/depot-list-store';
 import { NightStore } from '../depot-state/night-store';
@@ -111,6 +111,24 @@ export class PlansStore {
     },
   });
   readonly versions = computed(() => (this.list.hasValue() ? this.list.value() : []));
+
+  /** Where the night looked at stands among the service days (null until known or if it fails). */
+  private readonly dateNight = resource({
+    params: () => this.nightKey(),
+    loader: ({ params }) => this.api.dateNight(params.depotId, params.night),
+  });
+  private readonly place = computed(() => (this.dateNight.hasValue() ? (this.dateNight.value() ?? null) : null));
+  /** A day without runs inside another service day's night (a weekend's Saturday): that day. */
+  readonly within = computed(() => this.place()?.within ?? null);
+
+  /** The service day before or after the night looked at (a day either way where none is known). */
+  stepNight(days: -1 | 1): void {
+    const n = this.night();
+    if (!n) return;
+    const place = this.place();
+    const to = place?.date === n ? (days < 0 ? place.previous : place.next) : null;
+    this.goToNight(to ?? addDays(n, days));
+  }
   readonly versionsLoading = this.list.isLoading;
 
   readonly selectedId = computed(() => {
