@@ -67,7 +67,7 @@ test('finance opens the month, sees the savings, exports the nights and reads a 
     const target = page.getByRole('region', { name: /^Demand target/ });
     await expect(target.getByRole('heading', { level: 2 })).toHaveText(/^Demand target [\d,.]+ kW$/);
     await expect(target.locator('p').filter({ hasText: /^Why:/ })).toContainText(
-      /kWh between pull-in|The peaks so far already cover every night left/,
+      /kWh between pull-in|No night left needs more than is billed already/,
     );
     await expect(target.getByText(/^Each kW above the target saves \$[\d,.]+ of energy this period/)).toBeVisible();
     await expect(target.getByText(/^Over \d+ nights? left in the period/)).toBeVisible();

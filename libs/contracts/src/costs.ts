@@ -131,6 +131,15 @@ export const periodTargetSchema = z.object({
     }),
   ),
   solveMs: z.number(),
+  /**
+   * The facility demand the rate plan's ratchet bills at least this period (a share of an earlier
+   * period's peak): a floor of the facility target like the peaks so far, but not a peak of this
+   * period, so the target may stand above the facility peak so far. Null: no ratchet, or below them.
+   */
+  ratchet: z
+    .object({ kw: z.number(), percent: z.number(), baseKw: z.number(), source: z.string() })
+    .nullable()
+    .default(null),
 });
 export type PeriodTargetView = z.infer<typeof periodTargetSchema>;
 
@@ -138,7 +147,10 @@ export const monthCostsSchema = z.object({
   currency: z.string(),
   period: z.object({ start: z.string(), end: z.string(), days: z.number() }),
   ratePlanName: z.string(),
-  /** The whole billing period: actual intervals where imported, published plans, building load elsewhere. */
+  /**
+   * The whole billing period: actual intervals where imported, published plans, forecast nights,
+   * building load elsewhere. A forecast night gone by bills its energy but sets no peak (see `peaks`).
+   */
   projected: billSchema,
   /**
    * The projected bill's range while some nights are forecast (null when none is): the bill with
@@ -154,7 +166,9 @@ export const monthCostsSchema = z.object({
    * The period's saving: its bill with each published night charged as its baseline would
    * (the cheaper of charge on arrival and timer that delivers the plan's energy) minus its bill
    * with the plans, each with its own peaks (demand is billed once a period, never per night).
-   * Both bills are on planned loads, so metering does not tilt the comparison.
+   * The bill with the plans is the projected bill (`planBill` = `projected.total`); the other is
+   * the same bill with each compared night's charging as its baseline's instead, on the same
+   * peaks so far, entered peaks and ratchet. `planPeakKw`/`baselinePeakKw`: their facility demand.
    */
   savings: z.object({
     total: z.number(),
@@ -165,6 +179,11 @@ export const monthCostsSchema = z.object({
     planPeakKw: z.number(),
     baselinePeakKw: z.number(),
   }),
+  /**
+   * Peaks so far: the highest intervals begun by now that were recorded (meter data, published
+   * plans, the building's own load) and the peaks entered in Depot; a forecast night gone by sets
+   * none. The month to date bills these; a ratchet's floor is not among them.
+   */
   peaks: z.object({
     facility: z.object({
       kw: z.number(),

@@ -27,6 +27,8 @@ import { guessDepot, rememberDepot } from '../depots/depot-guess';
 import { buildingKwAt, forecastNights } from './month-forecast';
 
 const SLOT_MS = 15 * 60_000;
+/** As the bill engine: a later interval equal but for floating-point noise does not move a peak's date. */
+const PEAK_EPSILON_KW = 1e-9;
 const round2 = (v: number) => Math.round(v * 100) / 100;
 
 /**
@@ -153,6 +155,13 @@ type Depot = Awaited<ReturnType<typeof depotOf>>;
 type Period = ReturnType<typeof billingPeriodOf>;
 type SourcedInterval = IntervalDemand & { source: 'actual' | 'planned' | 'forecast' | 'building' };
 type Peaks = MonthCosts['peaks'];
+interface SoFar {
+  monthToDate: Bill;
+  peaks: Peaks;
+  projected: Bill;
+  projectedRange: MonthCosts['projectedRange'];
+  savings: MonthCosts['savings'];
+}
 
 /**
  * A published night inside a billing period, as its plan and as its baseline (the one its plan
@@ -191,17 +200,19 @@ interface PeriodBase {
   rate: { name: string; definition: RatePlanDefinition };
   series: SourcedInterval[];
   actualIntervals: number;
+  /** The series with the forecast nights' energy in the cheapest intervals instead (null: none forecast). */
+  cheapestSeries: SourcedInterval[] | null;
+  /** kW a compared night's baseline would have drawn more (or less) than its plan, by interval. */
+  baselineDeltaKw: Map<number, number>;
+  nightsCompared: number;
   nights: MonthCosts['nights'];
-  savings: MonthCosts['savings'];
   forecast: MonthCosts['forecast'];
-  projectedRange: MonthCosts['projectedRange'];
   plannedDates: Set<string>;
-  projected: Bill;
   entered: typeof billingPeaks.$inferSelect | undefined;
   recordedPeaksKw: { facility: number; periods: Record<string, number> } | undefined;
   ratchetBase: { kw: number; source: string } | null;
-  /** Month to date and peaks so far, by how much of the period has passed (see `soFarKey`). */
-  soFar: Map<string, { monthToDate: Bill; peaks: Peaks }>;
+  /** The bills and peaks that depend on how much of the period has passed (see `soFarOf`). */
+  soFar: Map<string, SoFar>;
 }
 
 /** One per process; exported so tests can compare against a fresh computation. */
@@ -246,14 +257,13 @@ async function periodBase(db: Db, depot: Depot, period: Period): Promise<PeriodB
     ]),
   );
   const plannedKw = new Map<number, number>();
-  // The same site load with the night charged as its baseline would (nights compared only).
-  const baselineKw = new Map<number, number>();
+  // What the site would have drawn more with the night charged as its baseline (nights compared only).
+  const baselineDeltaKw = new Map<number, number>();
   let nightsCompared = 0;
   const nights: MonthCosts['nights'] = [];
   for (const p of published) {
     const result: PlanResult = planResultSchema.parse(p.result);
     const compared = comparedNight(result, fromMs, toMs);
-    for (const [t, kw] of compared.baselineKw) baselineKw.set(t, kw);
     if (compared.kind) nightsCompared++;
     let projectedEnergy = 0;
     let projectedPeak = 0;
@@ -265,6 +275,10 @@ async function periodBase(db: Db, depot: Depot, period: Period): Promise<PeriodB
       const t = Date.parse(s.start);
       if (t < fromMs || t >= toMs) continue;
       plannedKw.set(t, s.loadKw);
+      // The latest published night at an instant is the one billed there, and the one compared.
+      const baseKw = compared.baselineKw.get(t);
+      if (baseKw === undefined) baselineDeltaKw.delete(t);
+      else baselineDeltaKw.set(t, baseKw - s.loadKw);
       projectedEnergy += s.loadKw * 0.25 * s.price;
       projectedPeak = Math.max(projectedPeak, s.loadKw);
       const a = actualKwh.get(t);
@@ -326,46 +340,17 @@ async function periodBase(db: Db, depot: Depot, period: Period): Promise<PeriodB
     return series;
   };
   const series = seriesWith(forecastKw('even'));
-  const billOptions = { zone, intervalMinutes: 15, days: period.days, recordedPeaksKw, ratchetBase };
-  const projected = computeBill(rate.definition, series, billOptions);
-  const cheapest = forecast.length
-    ? computeBill(rate.definition, seriesWith(forecastKw('cheapest')), billOptions).total
-    : projected.total;
-  const projectedRange = forecast.length
-    ? { low: Math.min(cheapest, projected.total), high: Math.max(cheapest, projected.total) }
-    : null;
-  // The saving: the period billed on planned loads twice, once with the plans and once with the
-  // baselines, each with its own peaks. Metered intervals are left out of both on purpose.
-  const onPlans = series.map(({ startMs }) => ({
-    startMs,
-    kwh: plannedKw.has(startMs) ? plannedKw.get(startMs)! * 0.25 : buildingKwh(startMs),
-  }));
-  const onBaselines = onPlans.map((s) => ({
-    startMs: s.startMs,
-    kwh: baselineKw.has(s.startMs) ? baselineKw.get(s.startMs)! * 0.25 : s.kwh,
-  }));
-  const planBill = computeBill(rate.definition, onPlans, billOptions);
-  const baselineBill = computeBill(rate.definition, onBaselines, billOptions);
-  const peakOf = (xs: { kwh: number }[]) => xs.reduce((a, x) => Math.max(a, x.kwh * 4), 0);
-  const savings: MonthCosts['savings'] = {
-    total: baselineBill.total - planBill.total,
-    planBill: planBill.total,
-    baselineBill: baselineBill.total,
-    nightsCompared,
-    planPeakKw: round2(peakOf(onPlans)),
-    baselinePeakKw: round2(peakOf(onBaselines)),
-  };
   return {
     rate,
     series,
+    cheapestSeries: forecast.length ? seriesWith(forecastKw('cheapest')) : null,
+    baselineDeltaKw,
+    nightsCompared,
     actualIntervals: series.filter((s) => s.source === 'actual').length,
     recordedPeaksKw,
     ratchetBase,
     nights,
-    savings,
     plannedDates,
-    projected,
-    projectedRange,
     entered,
     soFar: new Map(),
     forecast: forecast.map((n) => ({ date: n.date, needKwh: n.needKwh, basis: n.basis })),
@@ -385,7 +370,18 @@ function sortedIndex(series: readonly { startMs: number }[], ms: number): number
   return lo;
 }
 
-function soFarOf(base: PeriodBase, depot: Depot, period: Period, nowMs: number) {
+/** The facility demand a bill charges (after entered peaks and a ratchet), the peak shown beside it. */
+const billedFacilityKw = (bill: Bill) => bill.demand.find((d) => d.name === 'Facility demand')?.quantity ?? 0;
+
+/**
+ * Everything that depends on how much of the period has passed: it changes only when another
+ * interval has begun or another day. An interval begun is time gone by: where it is a forecast
+ * (a night nobody planned or metered) it bills its energy but sets no peak, so the peaks so far
+ * are what was recorded (meter data, peaks entered in Depot, published plans, the building's own
+ * load), and the month to date, the projected bill and the savings bill demand on those same
+ * peaks (a forecast night still to come sets a projected peak).
+ */
+function soFarOf(base: PeriodBase, depot: Depot, period: Period, nowMs: number): SoFar {
   const zone = depot.timezone;
   const fromMs = period.start.toMillis();
   const toMs = period.end.toMillis();
@@ -395,38 +391,67 @@ function soFarOf(base: PeriodBase, depot: Depot, period: Period, nowMs: number) 
   const key = `${begun}:${elapsedDays}`;
   const known = base.soFar.get(key);
   if (known) return known;
-  const toDate = base.series.slice(0, begun);
+  const asOfNow = (series: SourcedInterval[]): SourcedInterval[] =>
+    series.map((s, i) => (i < begun && s.source === 'forecast' ? { ...s, energyOnly: true } : s));
+  const series = asOfNow(base.series);
+  const toDate = series.slice(0, begun);
 
   const { rate, recordedPeaksKw, ratchetBase } = base;
-  const monthToDate = computeBill(rate.definition, toDate, {
-    zone,
-    intervalMinutes: 15,
-    days: elapsedDays,
-    recordedPeaksKw,
-    ratchetBase,
+  const options = { zone, intervalMinutes: 15, days: period.days, recordedPeaksKw, ratchetBase };
+  const monthToDate = computeBill(rate.definition, toDate, { ...options, days: elapsedDays });
+  const projected = computeBill(rate.definition, series, options);
+  const cheapest = base.cheapestSeries
+    ? computeBill(rate.definition, asOfNow(base.cheapestSeries), options).total
+    : projected.total;
+  const projectedRange = base.cheapestSeries
+    ? { low: Math.min(cheapest, projected.total), high: Math.max(cheapest, projected.total) }
+    : null;
+  // The saving: the projected bill itself (with the plans) against the same bill with each
+  // compared night charged as its baseline would have (its charging in place of the plan's,
+  // metered or not), both on the same peaks so far, entered peaks and ratchet: the period's
+  // demand is billed once, so the saving is the difference of the two whole-period bills.
+  const onBaselines = series.map((s) => {
+    const delta = base.baselineDeltaKw.get(s.startMs);
+    return delta === undefined ? s : { ...s, kwh: s.kwh + delta * 0.25 };
   });
-  // Peaks so far: the highest of every interval the bill counts up to now (metered, planned,
-  // forecast or the building alone) and what was entered by hand, the same figures the bill uses.
+  const baselineBill = computeBill(rate.definition, onBaselines, options);
+  const savings: MonthCosts['savings'] = {
+    total: baselineBill.total - projected.total,
+    planBill: projected.total,
+    baselineBill: baselineBill.total,
+    nightsCompared: base.nightsCompared,
+    planPeakKw: billedFacilityKw(projected),
+    baselinePeakKw: billedFacilityKw(baselineBill),
+  };
+
+  // Peaks so far: the highest of the intervals begun that set a peak (metered, planned or the
+  // building alone; a forecast of time gone by sets none) and what was entered by hand, the same
+  // figures the month to date bills. A ratchet's floor is a billing minimum, not a peak: not here.
   const SOURCE = { actual: 'actual', planned: 'planned', forecast: 'forecast', building: 'building' } as const;
   let facility: Peaks['facility'] = { kw: 0, at: null, source: 'planned' };
+  const periodPeaks = new Map<string, { kw: number; at: string | null }>();
   for (const s of toDate) {
+    if (s.energyOnly) continue;
     const kw = s.kwh * 4;
-    if (kw > facility.kw) facility = { kw, at: new Date(s.startMs).toISOString(), source: SOURCE[s.source] };
+    if (kw > facility.kw + PEAK_EPSILON_KW)
+      facility = { kw, at: new Date(s.startMs).toISOString(), source: SOURCE[s.source] };
+    const p = ratePlanPeriodAt(rate.definition, DateTime.fromMillis(s.startMs, { zone }));
+    if (p.offPeak || p.demandCharge <= 0) continue;
+    if (kw > (periodPeaks.get(p.period)?.kw ?? 0) + PEAK_EPSILON_KW)
+      periodPeaks.set(p.period, { kw, at: new Date(s.startMs).toISOString() });
   }
   if ((recordedPeaksKw?.facility ?? 0) > facility.kw)
     facility = { kw: recordedPeaksKw!.facility, at: null, source: 'entered' };
-  const periodPeaks = new Map<string, { kw: number; at: string | null }>();
-  for (const s of toDate) {
-    const p = ratePlanPeriodAt(rate.definition, DateTime.fromMillis(s.startMs, { zone }));
-    if (p.offPeak || p.demandCharge <= 0) continue;
-    const kw = s.kwh * 4;
-    if (kw > (periodPeaks.get(p.period)?.kw ?? 0))
-      periodPeaks.set(p.period, { kw, at: new Date(s.startMs).toISOString() });
-  }
   for (const [name, kw] of Object.entries(recordedPeaksKw?.periods ?? {})) {
     if (kw > (periodPeaks.get(name)?.kw ?? 0)) periodPeaks.set(name, { kw, at: null });
   }
-  const value = { monthToDate, peaks: { facility, periods: [...periodPeaks].map(([name, p]) => ({ name, ...p })) } };
+  const value: SoFar = {
+    monthToDate,
+    peaks: { facility, periods: [...periodPeaks].map(([name, p]) => ({ name, ...p })) },
+    projected,
+    projectedRange,
+    savings,
+  };
   // Only the latest few moments are asked for again.
   if (base.soFar.size >= 4) base.soFar.delete(base.soFar.keys().next().value!);
   base.soFar.set(key, value);
@@ -549,11 +574,11 @@ export async function monthCosts(
     currency: base.rate.definition.currency,
     period: { start: periodStart, end: periodEnd, days: period.days },
     ratePlanName: base.rate.name,
-    projected: base.projected,
-    projectedRange: base.projectedRange,
+    projected: soFar.projected,
+    projectedRange: soFar.projectedRange,
     forecast: base.forecast,
     monthToDate,
-    savings: base.savings,
+    savings: soFar.savings,
     peaks,
     nights: base.nights,
     sources: {

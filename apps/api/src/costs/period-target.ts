@@ -52,6 +52,8 @@ export type PeaksFloor = PeriodPeaks;
 
 export interface PeriodNights {
   nights: (PeriodNight & { date: string })[];
+  /** The ratchet's floor where it is above every other peak so far of the facility (it sets the floor then). */
+  ratchet: PeriodTargetView['ratchet'];
   periodStart: string;
   periodEnd: string;
 }
@@ -112,7 +114,17 @@ export async function periodNightsOf(
   const rate = await ratePlanOn(db, depot, periodStart);
   const before = await periodPeaksBefore(db, depot, zone, rate.definition, period, fromDate);
   const set: PeaksFloor = { facility: floor?.facility ?? 0, periods: { ...(floor?.periods ?? {}) } };
-  set.facility = Math.max(set.facility, before.facility, before.ratchet?.kw ?? 0);
+  const peaksKw = Math.max(set.facility, before.facility);
+  set.facility = Math.max(peaksKw, before.ratchet?.kw ?? 0);
+  const ratchet =
+    before.ratchet && before.ratchet.kw > peaksKw
+      ? {
+          kw: before.ratchet.kw,
+          percent: before.ratchet.percent,
+          baseKw: before.ratchet.base.kw,
+          source: before.ratchet.base.source,
+        }
+      : null;
   for (const [name, kw] of Object.entries(before.periods)) set.periods[name] = Math.max(set.periods[name] ?? 0, kw);
 
   const nights: PeriodNights['nights'] = [];
@@ -152,7 +164,7 @@ export async function periodNightsOf(
     scenario.tariff.peaksSoFarKw = peaks;
     nights.push({ date, label: label(date, zone), scenario, basis });
   }
-  return { nights, periodStart, periodEnd };
+  return { nights, periodStart, periodEnd, ratchet };
 }
 
 const solved = new Map<string, Promise<PeriodTarget>>();
@@ -174,7 +186,11 @@ export function solveNights(nights: PeriodNight[], marginal = true): Promise<Per
   return pending;
 }
 
-export function targetView(target: PeriodTarget, nights: PeriodNights['nights']): PeriodTargetView {
+export function targetView(
+  target: PeriodTarget,
+  nights: PeriodNights['nights'],
+  ratchet: PeriodTargetView['ratchet'] = null,
+): PeriodTargetView {
   return {
     currency: target.currency,
     nights: nights.map((n) => ({ date: n.date, basis: n.basis })),
@@ -185,6 +201,7 @@ export function targetView(target: PeriodTarget, nights: PeriodNights['nights'])
     marginal: target.marginal,
     impossible: target.impossible,
     solveMs: target.stats.ms,
+    ratchet,
   };
 }
 
@@ -214,12 +231,12 @@ export async function periodTargetFrom(
   own?: { date: string; scenario: ScenarioInput | Scenario },
   options: { marginal?: boolean; floor?: PeaksFloor } = {},
 ): Promise<{ target: PeriodTarget; view: PeriodTargetView } | null> {
-  const { nights } = await periodNightsOf(db, caller, depotId, fromDate, own, options.floor);
+  const { nights, ratchet } = await periodNightsOf(db, caller, depotId, fromDate, own, options.floor);
   if (!nights.length) return null;
   const target = await solveNights(
     nights.map(({ label: l, scenario, basis }) => ({ label: l, scenario, basis })),
     options.marginal ?? true,
   );
   if (!target.targets.length) return null;
-  return { target, view: targetView(target, nights) };
+  return { target, view: targetView(target, nights, ratchet) };
 }

@@ -260,4 +260,41 @@ describe('peaks recorded earlier in the period (entered in Depot)', () => {
     // The facility peak of the intervals (40 kW) is above the 30 kW entered: it stands.
     expect(bill.demand[0]!.quantity).toBe(40);
   });
+
+  it("a forecast of time gone by bills its energy but sets no peak: the 185 kW / on-peak 48 kW entered stand, not the forecast's 209.4 kW", () => {
+    // Tuesday 1 December 17:30-18:00 as forecast (a night nobody planned or metered), then a building quarter hour.
+    const t0 = DateTime.fromISO('2026-12-01T17:30', { zone: ZONE }).toMillis();
+    const intervals: IntervalDemand[] = [
+      { startMs: t0, kwh: 209.4 / 4, energyOnly: true },
+      { startMs: t0 + 15 * 60_000, kwh: 209.4 / 4, energyOnly: true },
+      { startMs: t0 + 30 * 60_000, kwh: 10 },
+    ];
+    const bill = computeBill(tou, intervals, {
+      zone: ZONE,
+      intervalMinutes: 15,
+      days: 31,
+      recordedPeaksKw: { facility: 185, periods: { 'on-peak': 48 } },
+    });
+    expect(bill.kwh).toBeCloseTo(209.4 / 2 + 10, 9);
+    expect(bill.energyTotal).toBeCloseTo((209.4 / 2 + 10) * 0.18, 9);
+    expect(bill.demand.map((d) => [d.name, d.quantity, d.peakAt])).toEqual([
+      ['Facility demand', 185, null],
+      ['Demand, on-peak', 48, null],
+    ]);
+  });
+
+  it('equal peaks on later nights (floating-point noise apart) keep the date of the first', () => {
+    const first = DateTime.fromISO('2026-12-07T17:30', { zone: ZONE }).toMillis();
+    const later = DateTime.fromISO('2026-12-10T17:30', { zone: ZONE }).toMillis();
+    const kwh = 52.35043478260869;
+    const bill = computeBill(
+      tou,
+      [
+        { startMs: first, kwh },
+        { startMs: later, kwh: kwh + 1e-14 },
+      ],
+      { zone: ZONE, intervalMinutes: 15, days: 31 },
+    );
+    expect(bill.demand.map((d) => d.peakAt)).toEqual([first, first]);
+  });
 });

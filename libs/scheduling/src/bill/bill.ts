@@ -8,6 +8,13 @@ export interface IntervalDemand {
   startMs: number;
   /** Energy drawn in the interval (kWh). */
   kwh: number;
+  /**
+   * An estimate of time gone by (a forecast night nobody planned or metered): its energy is
+   * billed, but it sets no peak. The demand of a span that has passed is what was recorded
+   * (meter data, peaks entered in Depot, published plans): a guess at when unplanned buses drew
+   * their energy must not bill, or be shown as, a peak the meter never saw.
+   */
+  energyOnly?: boolean;
 }
 
 export interface BillLine {
@@ -61,6 +68,12 @@ export interface BillOptions {
   withoutFixed?: boolean;
 }
 
+/**
+ * A peak is set by the first interval that reaches it: equal loads of later nights (the same
+ * forecast every weekday) differ only in floating-point noise and must not move its date.
+ */
+const PEAK_EPSILON_KW = 1e-9;
+
 const kwText = (v: number) => `${Math.round(v * 10) / 10} kW`;
 const kwhText = (v: number) => `${Math.round(v).toLocaleString('en-US')} kWh`;
 
@@ -110,13 +123,16 @@ export function computeBill(def: RatePlanDefinition, intervals: readonly Interva
       });
     }
     if (i.kwh > 0) cumulative += i.kwh;
-    if (kw > facility.kw) facility = { kw, at: i.startMs, rate: season.facilityDemandCharge };
     if (facility.at === null && season.facilityDemandCharge > facility.rate)
       facility.rate = season.facilityDemandCharge;
+    if (!i.energyOnly && kw > facility.kw + PEAK_EPSILON_KW)
+      facility = { kw, at: i.startMs, rate: season.facilityDemandCharge };
     if (!p.offPeak && p.demandCharge > 0) {
+      // An energy-only interval still opens its period's line (a peak entered for it is billed).
       const cur = periodPeak.get(p.period) ?? { kw: 0, at: null, rate: p.demandCharge };
-      if (kw > cur.kw || !periodPeak.has(p.period))
-        periodPeak.set(p.period, kw > cur.kw ? { kw, at: i.startMs, rate: p.demandCharge } : cur);
+      const higher = !i.energyOnly && kw > cur.kw + PEAK_EPSILON_KW;
+      if (higher || !periodPeak.has(p.period))
+        periodPeak.set(p.period, higher ? { kw, at: i.startMs, rate: p.demandCharge } : cur);
     }
   }
   const averaged = (e: { kwh: number; amount: number; rate: number; rates: Set<number> }) =>

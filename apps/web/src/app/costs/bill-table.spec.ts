@@ -3,9 +3,10 @@ import { bill } from './costs-fixtures';
 import { BillTable } from './bill-table';
 
 describe('BillTable', () => {
-  async function render(b = bill()) {
+  async function render(b = bill(), nowMs: number | null = null) {
     const fixture = TestBed.createComponent(BillTable);
     fixture.componentRef.setInput('bill', b);
+    fixture.componentRef.setInput('nowMs', nowMs);
     fixture.componentRef.setInput('timezone', 'America/Chicago');
     fixture.componentRef.setInput('caption', 'Projected bill, December 2026');
     fixture.componentRef.setInput('fileName', 'costs-bill-projected-2026-12.csv');
@@ -51,6 +52,14 @@ describe('BillTable', () => {
       'Fixed charges total $46.50',
     ]);
     expect(cells(el.querySelector('tfoot tr.grand-total'))).toBe('Total $2,952.09');
+  });
+
+  it('calls a peak of the projected bill after now projected, not set (a peak "set" on Thu Dec 10 read on Fri Dec 4)', async () => {
+    const peakAt = bill().demand[0]!.peakAt!;
+    const before = await render(bill(), peakAt - 86_400_000);
+    expect(text(rowOf(before, 'Facility demand')?.querySelector('.peak-at'))).toMatch(/^projected peak .*17:15$/);
+    const after = await render(bill(), peakAt + 86_400_000);
+    expect(text(rowOf(after, 'Facility demand')?.querySelector('.peak-at'))).toMatch(/^peak set .*17:15$/);
   });
 
   it('says so when the rate plan has no demand or fixed charge', async () => {

@@ -34,6 +34,11 @@ export class BillTable {
   /** What the bill is, for the caption ("Projected bill, December 2026"). */
   readonly caption = input.required<string>();
   readonly fileName = input.required<string>();
+  /**
+   * Now, for a bill that runs on past it (the projected bill): a peak after it has not been set,
+   * it is projected, and says so. Null: every peak shown is one already set.
+   */
+  readonly nowMs = input<number | null>(null);
 
   protected readonly currency = computed(() => this.bill().currency);
 
@@ -41,6 +46,7 @@ export class BillTable {
     const b = this.bill();
     const c = b.currency;
     const tz = this.timezone();
+    const now = this.nowMs();
     // One rounding rule: the bill is computed in full precision; the total is shown rounded once,
     // the section totals add up to it and each section's lines to its total (footedCents).
     const [energyShown, demandShown, fixedShown] = footedCents(
@@ -67,6 +73,7 @@ export class BillTable {
       rate: `${unitPrice(l.rate, c)} per ${l.unit}`,
       amount: money(amount, c),
       peakAt: instantAt(peakAt, tz),
+      peakWord: now !== null && peakAt !== null && peakAt >= now ? 'projected peak' : 'peak set',
       note: l.note ?? null,
     });
     return [

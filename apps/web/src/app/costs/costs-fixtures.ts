@@ -134,6 +134,7 @@ export function periodTarget(
     ],
     impossible: [],
     solveMs: 120,
+    ratchet: null,
     ...overrides,
   };
 }

@@ -76,7 +76,7 @@ describe('CostsPage', () => {
     const savings = card('Savings against the baselines')!;
     expect(text(savings.querySelector('.card-value'))).toBe('$312.40');
     expect(text(savings)).toContain(
-      "2 published nights compared. The period's bill with the plans $4,100.25 (peak 185 kW) against $4,412.65 with each night's baseline (peak 410 kW), on planned loads.",
+      'Projected for the whole period: the projected bill $4,100.25 (facility demand 185 kW) against $4,412.65 with the 2 published nights charged as their baselines instead (facility demand 410 kW).',
     );
     const peak = card('Facility peak so far')!;
     expect(text(peak.querySelector('.card-value'))).toBe('185 kW');
@@ -95,6 +95,35 @@ describe('CostsPage', () => {
     expect(text(panel)).toContain('Each kW above the target saves $2.10 of energy this period and costs $7.50');
     expect(text(panel)).toContain('Over 2 nights left in the period (1 forecast from the same weekday');
     expect(panel.querySelector('[role="alert"]')).toBeNull();
+  });
+
+  it("explains a target held up by a demand ratchet's minimum, not as a peak so far the card beside it does not show", async () => {
+    // Kestrel Hollow on Friday 4 December: facility peak so far 129.8 kW, the ratchet bills 80 % of 236 kW.
+    await render(
+      ['finance'],
+      monthCosts({
+        target: periodTarget({
+          facilityKw: 188.8,
+          targets: [
+            { name: 'facility', kw: 188.8, peakSoFarKw: 188.8, rate: 11.5 },
+            { name: 'on-peak', kw: 129.757, peakSoFarKw: 129.75652173913045, rate: 6 },
+          ],
+          binding: null,
+          ratchet: {
+            kw: 188.8,
+            percent: 80,
+            baseKw: 236,
+            source: 'from peaks entered in Depot for the period from 2026-11-01',
+          },
+        }),
+      }),
+    );
+    const panel = el.querySelector('section.target')!;
+    expect(text(panel.querySelector('h2'))).toBe('Demand target 188.8 kW');
+    expect(text(panel)).toContain(
+      "Why: No night left needs more than is billed already, so each target is its floor: facility 188.8 kW, the demand ratchet's minimum (80 % of 236 kW, from peaks entered in Depot for the period from 2026-11-01); on-peak 129.8 kW, the peak so far.",
+    );
+    expect(text(panel)).not.toContain('the target is the peak so far');
   });
 
   it('explains a night no target can serve, and shows no target for a period without one', async () => {

@@ -42,6 +42,21 @@ const PEAK_SOURCE: Record<MonthCosts['peaks']['facility']['source'], string> = {
 };
 
 /**
+ * Why the target is where it is when no night left sets it: each target stands at its floor, the
+ * peak so far or, for the facility, a demand ratchet's minimum (not a peak of this period: it is
+ * named, or the target would read as a peak so far the card beside it does not show).
+ */
+export function floorsWhy(t: NonNullable<MonthCosts['target']>): string {
+  const floors = t.targets.map((x) => {
+    const r = t.ratchet;
+    if (x.name === 'facility' && r && Math.abs(x.peakSoFarKw - r.kw) < 1e-6)
+      return `facility ${kw(x.kw)}, the demand ratchet's minimum (${r.percent} % of ${kw(r.baseKw)}, ${r.source})`;
+    return `${x.name === 'facility' ? 'facility' : x.name} ${kw(x.kw)}, the peak so far`;
+  });
+  return `No night left needs more than is billed already, so each target is its floor: ${floors.join('; ')}.`;
+}
+
+/**
  * The Costs section: one billing period's projected bill, month to date, savings against
  * the baselines (charge on arrival, timer), peaks so far, the nights (chart and table), diesel and CO2 avoided, and
  * the import of the utility's interval data.
@@ -182,10 +197,12 @@ export class CostsPage {
             : `From ${facts.from} to now, ${kwh(m.monthToDate.kwh)}.`,
       savings: money(saved.total, c),
       savingsPositive: saved.total > 0,
+      // The two bills are whole-period bills: the first is the projected bill shown beside it.
       savingsNote: saved.nightsCompared
-        ? `${saved.nightsCompared === 1 ? '1 published night' : `${saved.nightsCompared} published nights`} compared. ` +
-          `The period's bill with the plans ${money(saved.planBill, c)} (peak ${kw(saved.planPeakKw)}) against ` +
-          `${money(saved.baselineBill, c)} with each night's baseline (peak ${kw(saved.baselinePeakKw)}), on planned loads.`
+        ? `Projected for the whole period: the projected bill ${money(saved.planBill, c)} (facility demand ` +
+          `${kw(saved.planPeakKw)}) against ${money(saved.baselineBill, c)} with ` +
+          `${saved.nightsCompared === 1 ? 'the published night' : `the ${saved.nightsCompared} published nights`} ` +
+          `charged as ${saved.nightsCompared === 1 ? 'its baseline' : 'their baselines'} instead (facility demand ${kw(saved.baselinePeakKw)}).`
         : 'No published plan in this period to compare yet.',
       peak: kw(facility.kw),
       peakNote:
@@ -208,13 +225,13 @@ export class CostsPage {
     return {
       headline: facility ? `Demand target ${kw(facility.kw)}` : 'Demand target',
       periods: t.targets.filter((x) => x.name !== 'facility').map((x) => `${x.name} ${kw(x.kw)}`),
-      why: t.binding?.sentence ?? 'The peaks so far already cover every night left: the target is the peak so far.',
+      why: t.binding?.sentence ?? floorsWhy(t),
       marginal: t.marginal.map((m) => m.sentence),
       impossible: t.impossible.map((i) => i.sentence),
       nights:
         `Over ${t.nights.length === 1 ? '1 night' : `${t.nights.length} nights`} left in the period` +
         (forecast ? ` (${forecast === 1 ? '1 forecast' : `${forecast} forecast`} from the same weekday's runs)` : '') +
-        `: energy ${money(t.cost.energy, t.currency)}, demand charges above the peaks so far ${money(t.cost.demand, t.currency)}.`,
+        `: energy ${money(t.cost.energy, t.currency)}, demand charges above what is billed already ${money(t.cost.demand, t.currency)}.`,
     };
   });
 
@@ -248,6 +265,7 @@ export class CostsPage {
     const key = monthKey(m.period.start);
     return {
       bill: toDate ? m.monthToDate : m.projected,
+      nowMs: toDate ? null : this.clock.tick(),
       caption: `${toDate ? 'Bill to date' : 'Projected bill'}, ${this.periodName()}`,
       fileName: `costs-bill-${toDate ? 'to-date' : 'projected'}-${key}.csv`,
     };
