@@ -103,7 +103,12 @@ describe('which night it is', () => {
       previous: null,
       next: '2026-12-07',
     });
-    expect(await of('2026-12-15')).toMatchObject({ serviceDay: false, within: null, previous: '2026-12-14', next: null });
+    expect(await of('2026-12-15')).toMatchObject({
+      serviceDay: false,
+      within: null,
+      previous: '2026-12-14',
+      next: null,
+    });
     await app.request().get(`/api/depots/${depotId}/nights/2026-13-01`).set(as(fin)).expect(400);
   });
 });
