@@ -14,7 +14,7 @@ import {
   type TemplateRef,
 } from '@angular/core';
 import { ADVISORY, HIGH_VOLTAGE_WARNING, SAFETY_CAUTIONS } from './safety';
-import { clock, day, moveBy, type StepView } from './yard-format';
+import { clock, day, moveBy, spansDays, type StepView } from './yard-format';
 import type { ChargerView } from './yard-store';
 
 /** Which run sheets to print: the whole depot, or one charger. */
@@ -187,6 +187,8 @@ export class RunSheets {
   readonly timezone = input.required<string>();
   readonly version = input.required<number>();
   readonly nightStart = input.required<number>();
+  /** The night's end: a night longer than a day (a weekend's) names it too. */
+  readonly nightEnd = input<number | null>(null);
   readonly now = input.required<number>();
   readonly choice = input<RunSheetChoice>({ charger: null, perPage: false });
 
@@ -196,7 +198,12 @@ export class RunSheets {
 
   private readonly template = viewChild.required<TemplateRef<unknown>>('printable');
 
-  protected readonly night = computed(() => `night of ${day(this.nightStart(), this.timezone())}`);
+  protected readonly night = computed(() => {
+    const start = this.nightStart();
+    const end = this.nightEnd();
+    const to = end !== null && spansDays({ start, end }) ? ` to ${day(end, this.timezone())}` : '';
+    return `night of ${day(start, this.timezone())}${to}`;
+  });
   protected readonly printedAt = computed(
     () => `${day(this.now(), this.timezone())} ${clock(this.now(), this.timezone())}`,
   );
