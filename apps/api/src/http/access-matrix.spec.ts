@@ -33,6 +33,7 @@ const EXPECTED: Record<string, 'public' | readonly Role[]> = {
   'PATCH /users/:id': ['admin'],
   'GET /depots': ROLES,
   'GET /depots/:depotId/night': ROLES,
+  'GET /depots/:depotId/nights/:date': ROLES,
   'PUT /me/depot': ROLES,
   'GET /district': ['admin', 'finance'],
   'GET /dev/outbox': ['admin'],
