@@ -56,7 +56,6 @@ describe('depots short of chargers, with the crew', () => {
   }, 120_000);
 
   it('40 buses on 10 chargers: the crew-aware bound proves a gap the relaxation cannot; other starts find a cheaper plan', async () => {
-    // (The same plan twice with other starts: crew.spec.ts, on a smaller depot they run on.)
     const { plan, problem } = await planChecked(depot(40, 10, 3));
     expect(plan.stats.shortfallKwh).toBeLessThan(1e-3);
     // The relaxation lets a charger pass from bus to bus while nobody is in the yard: far below
@@ -69,7 +68,8 @@ describe('depots short of chargers, with the crew', () => {
     // Three starts (restarts.ts), the cheapest kept: measured 4,456.56, 4,462.45 and 4,343.99, so
     // the depot listed in another order gave a plan 2.5 % cheaper than the first start's.
     const starts = plan.stats.starts!;
-    expect(starts).toHaveLength(3);
+    // Each start ends on its budgets, not the clock: the same figures on every run and machine.
+    expect(starts).toEqual([4456.56, 4462.45, 4343.99]);
     expect(plan.cost.total - (plan.crewTrade?.extraCost ?? 0)).toBeCloseTo(Math.min(...starts), 2);
     expect(Math.min(...starts)).toBeLessThan(starts[0]! * 0.98);
   }, 180_000);

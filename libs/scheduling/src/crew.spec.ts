@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { planScenario } from './plan.js';
+import { planScenario, type PlanOptions } from './plan.js';
 import { replan } from './replan.js';
 import { parseScenario, type ScenarioInput } from './scenario.js';
 import { generateDepot } from './testing/generate-depot.js';
@@ -8,10 +8,10 @@ import { testYard } from './testing/crew-yard.js';
 
 const yard = testYard();
 
-async function plan(input: ScenarioInput) {
+async function plan(input: ScenarioInput, options: PlanOptions = {}) {
   const parsed = parseScenario(input);
   if (!parsed.ok) throw new Error(JSON.stringify(parsed.problems));
-  return planScenario(parsed.scenario);
+  return planScenario(parsed.scenario, options);
 }
 
 describe('the yard crew', () => {
@@ -71,12 +71,11 @@ describe('the yard crew', () => {
     expect(p.sessions.every((s) => s.startMove === 'crew')).toBe(true);
   });
 
-  it('gives the same plan for the same inputs, with the other starts of a depot short of chargers', async () => {
+  it('gives the same plan for the same inputs', async () => {
+    // The first start's plan (restarts.ts; the other starts' figures are checked against their
+    // measured values in crew-scarce.spec.ts, which no run could meet by chance).
     const input = { ...generateDepot({ buses: 20, chargers: 6, seed: 11 }), yard };
-    const [a, b] = [await plan(input), await plan(input)];
-    // 20 stays on 6 chargers: three starts (restarts.ts), each in its fixed order.
-    expect(a.stats.starts).toHaveLength(3);
-    expect(b.stats.starts).toEqual(a.stats.starts);
+    const [a, b] = [await plan(input, { restarts: 0 }), await plan(input, { restarts: 0 })];
     expect(b.sessions).toEqual(a.sessions);
     expect(b.cost).toEqual(a.cost);
   });
