@@ -148,7 +148,13 @@ describe('lower bound of a short plan', () => {
     };
     const parsed = parseScenario(input);
     if (!parsed.ok) throw new Error(JSON.stringify(parsed.problems));
-    const p = await planScenario(parsed.scenario, { maxMoves: 0, lns: false, exact: false, crewNight: false });
+    const p = await planScenario(parsed.scenario, {
+      maxMoves: 0,
+      lns: false,
+      exact: false,
+      crewNight: false,
+      restarts: 0,
+    });
     expect(checkPlan(input, p)).toEqual([]);
     expect(p.status).toBe('short');
     expect(p.stats.unavoidableShortfallKwh).toBe(0);
