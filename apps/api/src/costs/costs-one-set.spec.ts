@@ -1,7 +1,7 @@
-import { eq } from 'drizzle-orm';
 import { beforeAll, describe, expect, it } from 'vitest';
-import { billingPeaks, meterImports, meterIntervals, ratePlans } from '../db/schema';
+import { billingPeaks } from '../db/schema';
 import { createDepot } from '../testing/depot-fixture';
+import { withNovemberRatchet } from '../testing/meter-fixture';
 import { addBuses, dayRuns } from '../testing/fleet-fixture';
 import { publishedPlan } from '../testing/plan-fixture';
 import { createOrganisation, createTestApp, signInAgain, TEST_START, type TestUser } from '../testing/test-app';
@@ -112,31 +112,9 @@ describe('one set of figures', () => {
 
   it("a target held up by the demand ratchet says so: the ratchet's 80 % of November's 400 kW, not a peak so far of 320 kW", async () => {
     const { depot, ratePlan } = await depotWithWeek('One set C');
-    await app.db
-      .update(ratePlans)
-      .set({ definition: { ...ratePlan.definition, demandRatchet: { percent: 80, months: 11 } } })
-      .where(eq(ratePlans.id, ratePlan.id));
-    const [imp] = await app.db
-      .insert(meterImports)
-      .values({
-        organisationId,
-        depotId: depot.id,
-        fileName: 'nov.csv',
-        format: 'csv',
-        billingPeriodStart: '2026-11-01',
-        intervals: 1,
-        duplicates: 0,
-        gaps: [],
-      })
-      .returning();
-    await app.db.insert(meterIntervals).values({
-      organisationId,
-      depotId: depot.id,
-      importId: imp!.id,
-      startsAt: new Date('2026-11-10T17:00:00-06:00'),
-      minutes: 15,
-      kwh: 100,
-    });
+    await withNovemberRatchet(app.db, organisationId, { depot, ratePlan }, [
+      { startsAt: new Date('2026-11-10T17:00:00-06:00'), minutes: 15, kwh: 100 },
+    ]);
     const m = await monthOf(depot.id);
     expect(m.peaks.facility.kw).toBeLessThan(320);
     expect(line(m.monthToDate.demand, 'Facility demand').quantity).toBeCloseTo(320, 9);

@@ -1,7 +1,7 @@
-import { eq } from 'drizzle-orm';
 import { beforeAll, describe, expect, it } from 'vitest';
-import { billingPeaks, meterImports, meterIntervals, ratePlans } from '../db/schema';
+import { billingPeaks, meterImports, meterIntervals } from '../db/schema';
 import { createDepot } from '../testing/depot-fixture';
+import { withNovemberRatchet } from '../testing/meter-fixture';
 import { createOrganisation, createTestApp, signInAgain, TEST_START, type TestUser } from '../testing/test-app';
 import { newMonthCostsCache, monthCosts } from './costs-service';
 
@@ -18,28 +18,9 @@ const line = (lines: Line[], name: string) => lines.find((l) => l.name === name)
 
 /** A depot of its own on an 80 % / 11-month demand ratchet, with November's meter readings. */
 async function ratchetDepot(name: string, november: { startsAt: Date; minutes: number; kwh: number }[]) {
-  const { depot, ratePlan } = await createDepot(app.db, organisationId, name);
-  await app.db
-    .update(ratePlans)
-    .set({ definition: { ...ratePlan.definition, demandRatchet: { percent: 80, months: 11 } } })
-    .where(eq(ratePlans.id, ratePlan.id));
-  const [imp] = await app.db
-    .insert(meterImports)
-    .values({
-      organisationId,
-      depotId: depot.id,
-      fileName: 'nov.csv',
-      format: 'csv',
-      billingPeriodStart: '2026-11-01',
-      intervals: november.length,
-      duplicates: 0,
-      gaps: [],
-    })
-    .returning();
-  await app.db
-    .insert(meterIntervals)
-    .values(november.map((r) => ({ organisationId, depotId: depot.id, importId: imp!.id, ...r })));
-  return depot;
+  const fixture = await createDepot(app.db, organisationId, name);
+  await withNovemberRatchet(app.db, organisationId, fixture, november);
+  return fixture.depot;
 }
 
 /** The costs month holding `date` at a depot, as finance reads it. */

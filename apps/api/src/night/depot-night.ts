@@ -78,9 +78,14 @@ export async function depotNight(db: Db, caller: AuthUser, depotId: string, now:
   return nightOfDepot(db, await depotOf(db, caller, depotId), now);
 }
 
-/** Where `date` stands among the depot's service days (see `dateNightSchema`). */
+/** Where `date` stands among the depot's service days (see `dateNightSchema`), for the caller. */
 export async function dateNight(db: Db, caller: AuthUser, depotId: string, date: string): Promise<DateNight> {
   await depotOf(db, caller, depotId);
+  return datePlace(db, depotId, date);
+}
+
+/** Where `date` stands among a depot's service days: the days with runs either side of it. */
+export async function datePlace(db: Db, depotId: string, date: string): Promise<DateNight> {
   const { rows } = await db.execute<{ on: boolean; previous: string | null; next: string | null }>(sql`
     select
       exists (select 1 from ${runs} where ${runs.depotId} = ${depotId} and ${runs.serviceDate} = ${date}) as on,

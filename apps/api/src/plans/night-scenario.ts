@@ -1,4 +1,4 @@
-import { and, asc, desc, eq, gt, lt } from 'drizzle-orm';
+import { and, asc, eq, gt } from 'drizzle-orm';
 import { DateTime } from 'luxon';
 import { coldWeatherFactor } from '@nightyard/contracts';
 import type { ScenarioInput } from '@nightyard/scheduling';
@@ -9,6 +9,7 @@ import type { AuthUser } from '../auth/auth-user';
 import { depotOf } from '../depots/depot-access';
 import { runEnergyKwh } from '../fleet/service-day-service';
 import { buildScenarioBase } from '../scenarios/scenario-base';
+import { datePlace } from '../night/depot-night';
 
 const LOCAL = "yyyy-MM-dd'T'HH:mm";
 type Bus = ScenarioInput['buses'][number];
@@ -196,17 +197,12 @@ function estimateArrivalSoc(
  * day before it (the first after a depot's runs begin) is planned from noon, as a calendar night.
  */
 async function refuseInsideANight(db: Db, depotId: string, date: string, nextDate: string, zone: string) {
-  const [before] = await db
-    .select({ date: runs.serviceDate })
-    .from(runs)
-    .where(and(eq(runs.depotId, depotId), lt(runs.serviceDate, date)))
-    .orderBy(desc(runs.serviceDate))
-    .limit(1);
-  if (!before) return;
+  const { within } = await datePlace(db, depotId, date);
+  if (!within) return;
   const day = (d: string) => DateTime.fromISO(d, { zone }).toFormat('cccc, LLLL d');
   throw new DomainError(
     'validation_failed',
-    `No runs on ${day(date)}: it falls inside the night of ${day(before.date)}, which runs to the first pull-outs of ${day(nextDate)}. Plan that night, or enter ${DateTime.fromISO(date, { zone }).toFormat('cccc')}'s runs under Fleet first`,
-    { serviceDate: `Inside the night of ${day(before.date)}` },
+    `No runs on ${day(date)}: it falls inside the night of ${day(within)}, which runs to the first pull-outs of ${day(nextDate)}. Plan that night, or enter ${DateTime.fromISO(date, { zone }).toFormat('cccc')}'s runs under Fleet first`,
+    { serviceDate: `Inside the night of ${day(within)}` },
   );
 }
