@@ -44,11 +44,13 @@ export {
   dayTypeOf,
   seasonOf,
   ratePlanPeriodAt,
+  ratePlanPeriodAtMs,
   pricedSlots,
   daySlots,
   SLOT_MINUTES,
   type PricedSlot,
 } from './bill/rate-calendar.js';
+export { localParts, offsetMinutes, type LocalParts } from './bill/local-time.js';
 export { previewDay } from './bill/rate-preview.js';
 export {
   computeBill,

@@ -9,7 +9,7 @@ import {
   type PlanResult,
   type RatePlanDefinition,
 } from '@nightyard/contracts';
-import { computeBill, quarterHours, ratePlanPeriodAt, type Bill, type IntervalDemand } from '@nightyard/scheduling';
+import { computeBill, quarterHours, ratePlanPeriodAtMs, type Bill, type IntervalDemand } from '@nightyard/scheduling';
 import type { Db } from '../db/client';
 import { billingPeaks, buses, meterIntervals, plans, runs } from '../db/schema';
 import { DomainError, notFound } from '../http/errors';
@@ -435,7 +435,7 @@ function soFarOf(base: PeriodBase, depot: Depot, period: Period, nowMs: number):
     const kw = s.kwh * 4;
     if (kw > facility.kw + PEAK_EPSILON_KW)
       facility = { kw, at: new Date(s.startMs).toISOString(), source: SOURCE[s.source] };
-    const p = ratePlanPeriodAt(rate.definition, DateTime.fromMillis(s.startMs, { zone }));
+    const p = ratePlanPeriodAtMs(rate.definition, s.startMs, zone);
     if (p.offPeak || p.demandCharge <= 0) continue;
     if (kw > (periodPeaks.get(p.period)?.kw ?? 0) + PEAK_EPSILON_KW)
       periodPeaks.set(p.period, { kw, at: new Date(s.startMs).toISOString() });

@@ -1,7 +1,7 @@
 import { and, eq, gte, lt } from 'drizzle-orm';
 import { DateTime } from 'luxon';
 import type { RatePlanDefinition } from '@nightyard/contracts';
-import { ratePlanPeriodAt } from '@nightyard/scheduling';
+import { localParts, ratePlanPeriodAtMs } from '@nightyard/scheduling';
 import type { Db } from '../db/client';
 import { buses, runs } from '../db/schema';
 
@@ -11,7 +11,7 @@ const CHARGER_EFFICIENCY = 0.92;
 
 /** The building's own load (kW) at an instant: one flat value, or 24 by local hour. */
 export function buildingKwAt(profile: readonly number[], t: number, zone: string): number {
-  return profile.length === 1 ? profile[0]! : profile[DateTime.fromMillis(t, { zone }).hour]!;
+  return profile.length === 1 ? profile[0]! : profile[localParts(t, zone).hour]!;
 }
 
 /** A service day as its runs give it: when the last bus is home and the first leaves, and the energy driven. */
@@ -126,7 +126,7 @@ export async function forecastNights(
     for (let t = from; t < to; t += SLOT_MS) {
       slots.push({
         t,
-        price: ratePlanPeriodAt(rate, DateTime.fromMillis(t, { zone })).price,
+        price: ratePlanPeriodAtMs(rate, t, zone).price,
         roomKw: Math.max(0, depot.serviceLimitKw - buildingKwAt(depot.otherLoadKw, t, zone)),
       });
     }

@@ -1,7 +1,7 @@
 import { and, asc, eq, gte, lt } from 'drizzle-orm';
 import { DateTime } from 'luxon';
 import type { RatePlanDefinition } from '@nightyard/contracts';
-import { peaksOf, quarterHours, ratePlanPeriodAt } from '@nightyard/scheduling';
+import { peaksOf, quarterHours, ratePlanPeriodAtMs } from '@nightyard/scheduling';
 import type { Db } from '../db/client';
 import { meterIntervals, plans } from '../db/schema';
 import type { BillingPeriod } from './billing-period';
@@ -76,7 +76,7 @@ export async function periodPeaksBefore(
       const t = Date.parse(slot.start);
       if (t < startMs || t >= fromMs) continue;
       out.facility = Math.max(out.facility, slot.loadKw);
-      const at = ratePlanPeriodAt(rate, DateTime.fromMillis(t, { zone }));
+      const at = ratePlanPeriodAtMs(rate, t, zone);
       if (!at.offPeak && at.demandCharge > 0)
         out.periods[at.period] = Math.max(out.periods[at.period] ?? 0, slot.loadKw);
     }

@@ -1,5 +1,8 @@
 import { DateTime } from 'luxon';
 import { seasonMonths, windowMinutes, type DayType, type RatePlanDefinition, type Season } from '@nightyard/contracts';
+import { calendarDate, localParts } from './local-time.js';
+
+type CalendarDate = ReturnType<typeof calendarDate>;
 
 export const SLOT_MINUTES = 15;
 
@@ -24,20 +27,48 @@ export function seasonOf(def: RatePlanDefinition, month: number): Season {
   return season;
 }
 
+type PeriodAt = Omit<PricedSlot, 'start'>;
+
 /**
  * The period in force at a local wall-clock time. A window belongs to the day it starts on; a
  * window of the previous day that runs past midnight applies only where no window of the day
  * itself does.
  */
-export function ratePlanPeriodAt(def: RatePlanDefinition, local: DateTime): Omit<PricedSlot, 'start'> {
-  const minute = local.hour * 60 + local.minute;
-  const candidates: [DateTime, number][] = [
-    [local.startOf('day'), minute],
-    [local.startOf('day').minus({ days: 1 }), minute + 1440],
+export function ratePlanPeriodAt(def: RatePlanDefinition, local: DateTime): PeriodAt {
+  return periodAtWallClock(def, local.year, local.month, local.day, local.hour * 60 + local.minute);
+}
+
+/** The period in force at the instant `ms` in `zone` (as ratePlanPeriodAt, without a DateTime). */
+export function ratePlanPeriodAtMs(def: RatePlanDefinition, ms: number, zone: string): PeriodAt {
+  const l = localParts(ms, zone);
+  return periodAtWallClock(def, l.year, l.month, l.day, l.hour * 60 + l.minute);
+}
+
+/** Answers remembered per rate plan and wall-clock time (the same quarter hours are asked again and again). */
+const periodsAt = new WeakMap<RatePlanDefinition, Map<string, PeriodAt>>();
+const MAX_PERIODS_AT = 50_000;
+
+function periodAtWallClock(def: RatePlanDefinition, year: number, month: number, day: number, minute: number) {
+  let known = periodsAt.get(def);
+  if (!known) periodsAt.set(def, (known = new Map()));
+  const key = `${year}-${month}-${day}|${minute}`;
+  let hit = known.get(key);
+  if (!hit) {
+    hit = classify(def, calendarDate(year, month, day), minute);
+    if (known.size >= MAX_PERIODS_AT) known.clear();
+    known.set(key, hit);
+  }
+  return hit;
+}
+
+function classify(def: RatePlanDefinition, today: CalendarDate, minute: number): PeriodAt {
+  const candidates: [CalendarDate, number][] = [
+    [today, minute],
+    [calendarDate(today.year, today.month, today.day - 1), minute + 1440],
   ];
   for (const [day, m] of candidates) {
     const season = seasonOf(def, day.month);
-    const dayType = dayTypeOf(day, def.holidays);
+    const dayType: DayType = def.holidays.includes(day.isoDate) ? 'holiday' : day.weekday >= 6 ? 'weekend' : 'weekday';
     for (const p of season.periods) {
       for (const w of p.windows) {
         if (!w.dayTypes.includes(dayType)) continue;
@@ -48,7 +79,7 @@ export function ratePlanPeriodAt(def: RatePlanDefinition, local: DateTime): Omit
       }
     }
   }
-  const season = seasonOf(def, local.month);
+  const season = seasonOf(def, today.month);
   return { season: season.name, period: 'off-peak', price: season.offPeakPrice, demandCharge: 0, offPeak: true };
 }
 
