@@ -26,6 +26,7 @@ import { nightStaff } from './night-staff';
 import { cutOffAt, type PlanFrom } from './night-in-progress';
 import { movedBetween } from './plan-compare';
 import { confirmedPlugged } from '../yard/yard-service';
+import { datePlace } from '../night/depot-night';
 
 type PlanRow = typeof plans.$inferSelect;
 const creator = aliasedTable(users, 'creator');
@@ -311,6 +312,15 @@ export async function publishPlan(
     if (fresh!.state !== 'draft')
       throw conflict(`Version ${fresh!.version} is already ${fresh!.state}: a published plan never changes`);
     if (fresh!.status !== 'done') throw conflict('The plan is not finished yet: wait until it has been generated');
+    // A draft made for a day that has since become part of another's night (its runs were entered
+    // after it) would plan those hours a second time, with no bus pulling in.
+    const { within } = await datePlace(tx, plan.depotId, plan.serviceDate);
+    if (within && fresh!.kind !== 'revision') {
+      const day = (d: string) => DateTime.fromISO(d, { zone: depot!.timezone }).toFormat('cccc, LLLL d');
+      throw conflict(
+        `Version ${fresh!.version} plans ${day(plan.serviceDate)} as a night of its own, but it now falls inside the night of ${day(within)} (no runs on it): plan the night of ${day(within)} instead`,
+      );
+    }
     const [current] = await tx
       .select({ id: plans.id, version: plans.version, at: plans.publishedAt, by: users.name })
       .from(plans)

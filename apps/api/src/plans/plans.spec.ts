@@ -4,6 +4,7 @@ import { plans } from '../db/schema';
 import { createDepot } from '../testing/depot-fixture';
 import { addBuses, dayRuns } from '../testing/fleet-fixture';
 import { mailFor } from '../testing/mail';
+import { generatedPlan } from '../testing/plan-fixture';
 import { createOrganisation, createTestApp, type TestUser } from '../testing/test-app';
 
 const app = createTestApp();
@@ -293,6 +294,38 @@ describe('plans', () => {
     expect(await app.db.select().from(plans).where(eq(plans.depotId, depot))).toEqual([]);
     // Friday's night is planned as before.
     await app.request().post(`/api/depots/${depot}/plans`).set(as(s)).send({ serviceDate: '2026-12-11' }).expect(202);
+  });
+
+  it('a draft for a day that has since fallen inside another night is not published', async () => {
+    const org = await createOrganisation(app, { s: ['supervisor'] });
+    const s = org.users.s!;
+    const depot = (await createDepot(app.db, org.organisationId)).depot.id;
+    await addBuses(app.db, org.organisationId, depot, ['81', '82']);
+    const enter = (date: string) =>
+      app
+        .request()
+        .put(`/api/depots/${depot}/service-days/${date}`)
+        .set(as(s))
+        .send({ runs: dayRuns(date, ['81', '82']) })
+        .expect(200);
+    // Only Monday's runs: Saturday is a calendar night of its own (no service day before it).
+    await enter('2026-12-14');
+    const saturday = await generatedPlan(app, s, depot, '2026-12-12');
+    expect(saturday.status).toBe('done');
+    // Friday's runs come in: Saturday is now part of Friday's night.
+    await enter('2026-12-11');
+    const res = await app
+      .request()
+      .post(`/api/plans/${saturday.id}/publish`)
+      .set(as(s))
+      .send({ expectedPublishedId: null })
+      .expect(409);
+    expect(res.body.error.message).toBe(
+      'Version 1 plans Saturday, December 12 as a night of its own, but it now falls inside the night of Friday, December 11 (no runs on it): plan the night of Friday, December 11 instead',
+    );
+    const [row] = await app.db.select().from(plans).where(eq(plans.id, saturday.id));
+    expect(row!.state).toBe('draft');
+    expect(row!.publishedAt).toBeNull();
   });
 
   it('a night without a next service day is refused with what to do', async () => {

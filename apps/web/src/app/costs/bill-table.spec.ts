@@ -76,7 +76,7 @@ describe('BillTable', () => {
     const click = vi.spyOn(HTMLAnchorElement.prototype, 'click').mockImplementation(() => undefined);
     el.querySelector<HTMLButtonElement>('ny-csv-export-button button')!.click();
     const lines = (await blobs[0]!.text()).split('\r\n');
-    expect(lines[0]).toBe('Section,Charge,Quantity,Unit,Rate (USD),Amount (USD),Peak set at (depot time),Note');
+    expect(lines[0]).toBe('Section,Charge,Quantity,Unit,Rate (USD),Amount (USD),Peak at (depot time),Note');
     expect(lines[1]).toBe('Energy,"Energy, off-peak",12000,kWh,0.068,816,,');
     expect(lines[3]).toBe('Demand,Facility demand,185,kW,7.5,1387.5,2026-12-02 17:15,');
     expect(lines[6]).toBe('Total,Bill total,13500.5,kWh,,2952.09,,');

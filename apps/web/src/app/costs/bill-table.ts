@@ -145,7 +145,7 @@ export class BillTable {
         'Unit',
         `Rate (${c})`,
         `Amount (${c})`,
-        'Peak set at (depot time)',
+        'Peak at (depot time)',
         'Note',
       ],
       rows: [
