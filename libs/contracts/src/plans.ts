@@ -61,7 +61,16 @@ export const planResultSchema = z.looseObject({
   lowerBound: z.number(),
   gap: z.number(),
   solveMs: z.number(),
-  slots: z.array(z.object({ start: z.string(), loadKw: z.number(), price: z.number(), limitKw: z.number() })),
+  slots: z.array(
+    z.object({
+      start: z.string(),
+      loadKw: z.number(),
+      price: z.number(),
+      /** The tariff period the slot's price comes from, as the rate plan names it (absent in older plans). */
+      period: z.string().optional(),
+      limitKw: z.number(),
+    }),
+  ),
   sessions: z.array(
     z.object({
       bus: z.string(),

@@ -74,7 +74,8 @@ export interface Plan {
   lowerBound: number;
   gap: number;
   solveMs: number;
-  slots: { start: string; loadKw: number; price: number; limitKw: number }[];
+  /** Per slot: the site's load, the energy price and its tariff period (as the rate plan names it), the service limit. */
+  slots: { start: string; loadKw: number; price: number; period: string; limitKw: number }[];
   sessions: PlanSession[];
   /** Plug-ins and unplugs the yard crew does (the sessions' `crew` ends within the horizon). */
   crewMoves: number;
@@ -1302,6 +1303,7 @@ function assemblePlan(
       start: s.start,
       loadKw: round(charging[t]! + s.otherKw),
       price: s.price,
+      period: s.periodName,
       limitKw: s.limitKw,
     })),
     sessions,

@@ -138,16 +138,7 @@ export class BillTable {
       l.note ?? null,
     ];
     return {
-      header: [
-        'Section',
-        'Charge',
-        'Quantity',
-        'Unit',
-        `Rate (${c})`,
-        `Amount (${c})`,
-        'Peak at (depot time)',
-        'Note',
-      ],
+      header: ['Section', 'Charge', 'Quantity', 'Unit', `Rate (${c})`, `Amount (${c})`, 'Peak at (depot time)', 'Note'],
       rows: [
         ...b.energy.map((l, i) => row('Energy', l, energy[i]!)),
         ...b.demand.map((l, i) => row('Demand', l, demand[i]!, l.peakAt)),

@@ -68,6 +68,29 @@ describe('ChargerTimeline', () => {
     expect(phone.textContent?.replace(/\s+/g, ' ')).toContain('Out of service 18:30–19:00');
   });
 
+  it("names each price in the legend by its tariff period, as Rates does; an older plan's by its rank", async () => {
+    const legendOf = async (periods: (string | undefined)[]) => {
+      const fixture = TestBed.createComponent(ChargerTimeline);
+      const base = planResult();
+      fixture.componentRef.setInput(
+        'result',
+        planResult({ slots: base.slots.map((s, i) => (periods[i] ? { ...s, period: periods[i] } : s)) }),
+      );
+      fixture.componentRef.setInput('timezone', 'America/Chicago');
+      fixture.componentRef.setInput('chargers', [{ id: 'C1', maxKw: 60 }]);
+      await fixture.whenStable();
+      fixture.detectChanges();
+      const el = fixture.nativeElement as HTMLElement;
+      return [...el.querySelectorAll('.legend li')].map((li) => li.textContent?.trim()).filter((t) => /kWh/.test(t!));
+    };
+    // 18:00-18:30 at $0.18 (on-peak), 18:30-19:00 at $0.068 (off-peak): cheapest first.
+    expect(await legendOf(['on-peak', 'on-peak', 'off-peak', 'off-peak'])).toEqual([
+      'off-peak: $0.068 per kWh',
+      'on-peak: $0.180 per kWh',
+    ]);
+    expect(await legendOf([])).toEqual(['Lowest price: $0.068 per kWh', 'Highest price: $0.180 per kWh']);
+  });
+
   it('names the day with each time on a weekend, where the same hour comes round more than once', async () => {
     const fixture = TestBed.createComponent(ChargerTimeline);
     const slot = (start: string) => ({ start, loadKw: 60, price: 0.068, limitKw: 150 });

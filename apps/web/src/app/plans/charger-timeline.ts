@@ -12,7 +12,17 @@ import {
 } from '@angular/core';
 import type { PlanResult } from '@nightyard/contracts';
 import { horizonOf } from '@nightyard/contracts/plan-horizon';
-import { NO_HORIZON, SHORT_KWH, clock, dayClock, money, naturalCompare, num, priceBands } from './plan-format';
+import {
+  NO_HORIZON,
+  SHORT_KWH,
+  clock,
+  dayClock,
+  money,
+  naturalCompare,
+  num,
+  priceBands,
+  type PriceLevel,
+} from './plan-format';
 import { axisTicks, placeSpan, timelineSegments } from './timeline-scale';
 
 /** A charger the depot has (so an idle one still gets its row). */
@@ -177,13 +187,19 @@ export class ChargerTimeline {
     priceBands(this.result()).map((b) => ({ ...b, ...placeSpan(this.segments(), b.start, b.end) })),
   );
 
+  /**
+   * The night's prices, cheapest first, each named by its tariff period as Rates names it
+   * ("on-peak: $0.280 per kWh"); plans made before slots carried the period rank them instead.
+   */
   protected readonly legend = computed(() => {
-    const seen = new Map<string, number>();
-    for (const b of this.bands()) if (!seen.has(b.level)) seen.set(b.level, b.price);
-    const names = { low: 'Lowest price', mid: 'Middle price', high: 'Highest price' } as const;
-    return (['low', 'mid', 'high'] as const)
-      .filter((l) => seen.has(l))
-      .map((l) => ({ level: l, text: `${names[l]} (${money(seen.get(l)!, this.currency(), 3)}/kWh)` }));
+    const ranks = { low: 'Lowest price', mid: 'Middle price', high: 'Highest price' } as const;
+    const seen = new Map<string, { level: PriceLevel; price: number; text: string }>();
+    for (const b of this.bands()) {
+      const name = b.period ?? ranks[b.level];
+      const text = `${name}: ${money(b.price, this.currency(), 3)} per kWh`;
+      if (!seen.has(text)) seen.set(text, { level: b.level, price: b.price, text });
+    }
+    return [...seen.values()].sort((a, b) => a.price - b.price || a.text.localeCompare(b.text));
   });
 
   protected readonly summary = computed(() => {

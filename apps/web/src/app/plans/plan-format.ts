@@ -190,6 +190,8 @@ export interface PriceBand {
   start: number;
   end: number;
   price: number;
+  /** The tariff period, as the rate plan names it (null in plans made before slots carried it). */
+  period: string | null;
   level: PriceLevel;
 }
 
@@ -202,8 +204,9 @@ export function priceBands(result: Pick<PlanResult, 'slots'>): PriceBand[] {
   for (const s of result.slots) {
     const t = Date.parse(s.start);
     const last = bands.at(-1);
-    if (last && last.price === s.price && last.end === t) last.end = t + h.slotMs;
-    else bands.push({ start: t, end: t + h.slotMs, price: s.price, level: level(s.price) });
+    const period = s.period ?? null;
+    if (last && last.price === s.price && last.period === period && last.end === t) last.end = t + h.slotMs;
+    else bands.push({ start: t, end: t + h.slotMs, price: s.price, period, level: level(s.price) });
   }
   return bands;
 }
