@@ -202,14 +202,12 @@ describe('billing-period demand target', () => {
       // entered): alike nights share one block of the LP, which must not change its answer. A low
       // demand rate puts the optimum where energy and demand trade (131.7 kW): counting each block's
       // energy once instead of once per night lands at 109.0 kW, which the brute force refutes.
-      name: '6 nights, two of them repeated twice (merged)',
+      name: '4 nights, two of them repeated (merged)',
       nights: [
         { date: '2026-12-14', buses: 4, need: 0.65, seed: 7, limitKw: 220, facilityRate: 0.4 },
         { date: '2026-12-15', buses: 3, need: 0.45, seed: 8, limitKw: 220, facilityRate: 0.4 },
         { date: '2026-12-21', buses: 4, need: 0.65, seed: 7, limitKw: 220, facilityRate: 0.4 },
         { date: '2026-12-22', buses: 3, need: 0.45, seed: 8, limitKw: 220, facilityRate: 0.4 },
-        { date: '2026-12-28', buses: 4, need: 0.65, seed: 7, limitKw: 220, facilityRate: 0.4 },
-        { date: '2026-12-29', buses: 3, need: 0.45, seed: 8, limitKw: 220, facilityRate: 0.4 },
       ],
       blocks: 2,
     },
