@@ -317,8 +317,12 @@ export async function publishPlan(
     const { within } = await datePlace(tx, plan.depotId, plan.serviceDate);
     if (within && fresh!.kind !== 'revision') {
       const day = (d: string) => DateTime.fromISO(d, { zone: depot!.timezone }).toFormat('cccc, LLLL d');
-      throw conflict(
+      // Not a conflict with another publisher (409, which the page offers to reload): the draft's
+      // night itself is no longer one, whoever publishes it.
+      throw new DomainError(
+        'validation_failed',
         `Version ${fresh!.version} plans ${day(plan.serviceDate)} as a night of its own, but it now falls inside the night of ${day(within)} (no runs on it): plan the night of ${day(within)} instead`,
+        { serviceDate: `Inside the night of ${day(within)}` },
       );
     }
     const [current] = await tx

@@ -319,7 +319,7 @@ describe('plans', () => {
       .post(`/api/plans/${saturday.id}/publish`)
       .set(as(s))
       .send({ expectedPublishedId: null })
-      .expect(409);
+      .expect(400);
     expect(res.body.error.message).toBe(
       'Version 1 plans Saturday, December 12 as a night of its own, but it now falls inside the night of Friday, December 11 (no runs on it): plan the night of Friday, December 11 instead',
     );
