@@ -115,7 +115,7 @@ export function money(v: number, currency: string): string {
   return `${v < 0 ? '-' : ''}${sign}${groupDigits(Math.abs(v), 2)}`;
 }
 
-export function buildPeriodModel(nights: PeriodNight[]): PeriodModel {
+function buildPeriodModel(nights: PeriodNight[]): PeriodModel {
   const problems = nights.map((n) => prepareProblem(n.scenario));
   const models = problems.map((p) => buildChargeModel(p, { mode: 'relaxed', tieBreak: false }));
   const shared: SharedPeak[] = [];
