@@ -269,70 +269,61 @@ export async function planScenario(scenario: Scenario, options: PlanOptions = {}
   const solver = await loadSolver();
   const t0 = performance.now();
   const problem = prepareProblem(scenario);
+  const restarts = options.restarts ?? restartsFor(problem);
   if (!options.previous) {
     const first = planProblem(problem, solver, options, t0);
-    const restarts = options.restarts ?? restartsFor(problem);
     // A plan at its bound is optimal: no other start can do better.
     if (!restarts || first.stats.stoppedBy === 'bound') return first;
-    let best = first;
-    const found = [cheapestFound(first, problem.shortfallPenalty)];
-    // A start cut by the safety net makes the choice depend on the machine: said as the first's would be.
-    let timed = first.stats.stoppedBy === 'time';
-    for (let k = 1; k <= restarts; k++) {
-      const other = planProblem(prepareProblem(reorderedScenario(scenario, k)), solver, options);
-      found.push(cheapestFound(other, problem.shortfallPenalty));
-      timed ||= other.stats.stoppedBy === 'time';
-      if (found[k]! < Math.min(...found.slice(0, k)) - 1e-6) best = other;
-      if (best.stats.stoppedBy === 'bound') break;
-    }
-    const stoppedBy = timed ? 'time' : best.stats.stoppedBy;
-    return {
-      ...inScenarioOrder(best, scenario),
-      solveMs: round(performance.now() - t0, 1),
-      stats: { ...best.stats, starts: found.map((f) => round(f, 2)), stoppedBy },
-    };
+    return cheapestOfStarts(scenario, problem, first, restarts, solver, options, t0);
   }
   problem.previous = previousWindows(problem, options.previous);
   let plan = planProblem(problem, solver, options, t0);
-  const restarts = options.restarts ?? restartsFor(problem);
-  if (plan.previousRefused && restarts > 0) plan = cheapestOfStarts(scenario, plan, restarts, solver, options, t0);
+  // A regeneration that could not keep the published plan within the tolerance is a fresh plan,
+  // and gets a fresh plan's other starts: one start's cheapest swings by a few per cent with the
+  // search's path on such depots, and the night should not pay for the path the first start took.
+  // What keeping the published plan would have taken is then said against the plan chosen.
+  const refused = plan.previousRefused;
+  if (refused && restarts > 0) {
+    const best = cheapestOfStarts(scenario, problem, plan, restarts, solver, options, t0);
+    const money = (p: Plan) => p.cost.total - (p.crewTrade?.extraCost ?? 0);
+    const extraCost = round(refused.extraCost + Math.max(0, money(plan) - money(best)), 2);
+    plan = { ...best, previousRefused: { ...refused, extraCost } };
+  }
   return { ...plan, moved: regeneratedMoved(problem, options.previous, plan, scenario.tariff.currency) };
 }
 
 /**
- * A regeneration that could not keep the published plan within the tolerance is a fresh plan,
- * and gets a fresh plan's other starts: one start's cheapest swings by a few per cent with the
- * search's path on such depots, and the night should not pay for the path the first start took.
- * What keeping the published plan would have taken is then said against the plan chosen.
+ * The cheapest of `first` and the plans of the same depot listed in `restarts` other orders
+ * (restarts.ts), fresh plans all (a plan being kept is `first`'s business), in the scenario's order.
  */
 function cheapestOfStarts(
   scenario: Scenario,
+  problem: Problem,
   first: Plan,
   restarts: number,
   solver: Solver,
   options: PlanOptions,
   t0: number,
 ): Plan {
-  const penalty = prepareProblem(scenario).shortfallPenalty;
-  const found = [cheapestFound(first, penalty)];
   let best = first;
+  const found = [cheapestFound(first, problem.shortfallPenalty)];
+  // A start cut by the safety net makes the choice depend on the machine: said as the first's would be.
   let timed = first.stats.stoppedBy === 'time';
   for (let k = 1; k <= restarts; k++) {
     const other = planProblem(prepareProblem(reorderedScenario(scenario, k)), solver, {
       ...options,
       previous: undefined,
     });
-    found.push(cheapestFound(other, penalty));
+    found.push(cheapestFound(other, problem.shortfallPenalty));
     timed ||= other.stats.stoppedBy === 'time';
     if (found[k]! < Math.min(...found.slice(0, k)) - 1e-6) best = other;
+    if (best.stats.stoppedBy === 'bound') break;
   }
-  const refused = first.previousRefused!;
-  const money = (p: Plan) => p.cost.total - (p.crewTrade?.extraCost ?? 0);
+  const stoppedBy = timed ? 'time' : best.stats.stoppedBy;
   return {
     ...inScenarioOrder(best, scenario),
-    previousRefused: { ...refused, extraCost: round(refused.extraCost + Math.max(0, money(first) - money(best)), 2) },
     solveMs: round(performance.now() - t0, 1),
-    stats: { ...best.stats, starts: found.map((f) => round(f, 2)), stoppedBy: timed ? 'time' : best.stats.stoppedBy },
+    stats: { ...best.stats, starts: found.map((f) => round(f, 2)), stoppedBy },
   };
 }
 

@@ -190,6 +190,31 @@ function estimateArrivalSoc(
   return Math.round(soc * 10) / 10;
 }
 
+const longDay = (date: string, zone: string) => DateTime.fromISO(date, { zone }).toFormat('cccc, LLLL d');
+
+/**
+ * A draft made for a date that has since become part of another's night (the runs of the day
+ * before it were entered after it) is not published: it would plan those hours a second time,
+ * with no bus pulling in. Not a conflict with another publisher (409, which the page offers to
+ * reload): the draft's night itself is no longer one, whoever publishes it.
+ */
+export async function refusePublishingInsideANight(
+  db: Db,
+  depotId: string,
+  date: string,
+  version: number,
+  zone: string,
+) {
+  const { within } = await datePlace(db, depotId, date);
+  if (!within) return;
+  const day = (d: string) => longDay(d, zone);
+  throw new DomainError(
+    'validation_failed',
+    `Version ${version} plans ${day(date)} as a night of its own, but it now falls inside the night of ${day(within)} (no runs on it): plan the night of ${day(within)} instead`,
+    { serviceDate: `Inside the night of ${day(within)}` },
+  );
+}
+
 /**
  * A date without runs after a service day is part of that day's night (a weekend or a holiday
  * belongs to the night before it): planning it as a night of its own would plan the same hours
@@ -199,7 +224,7 @@ function estimateArrivalSoc(
 async function refuseInsideANight(db: Db, depotId: string, date: string, nextDate: string, zone: string) {
   const { within } = await datePlace(db, depotId, date);
   if (!within) return;
-  const day = (d: string) => DateTime.fromISO(d, { zone }).toFormat('cccc, LLLL d');
+  const day = (d: string) => longDay(d, zone);
   throw new DomainError(
     'validation_failed',
     `No runs on ${day(date)}: it falls inside the night of ${day(within)}, which runs to the first pull-outs of ${day(nextDate)}. Plan that night, or enter ${DateTime.fromISO(date, { zone }).toFormat('cccc')}'s runs under Fleet first`,

@@ -21,12 +21,11 @@ import type { JobQueue } from '../jobs/job-queue';
 import type { Mailer } from '../mail/mailer';
 import { nightMailLink } from '../mail/links';
 import { planPublishedMail } from '../mail/templates';
-import { buildNightScenario } from './night-scenario';
+import { buildNightScenario, refusePublishingInsideANight } from './night-scenario';
 import { nightStaff } from './night-staff';
 import { cutOffAt, type PlanFrom } from './night-in-progress';
 import { movedBetween } from './plan-compare';
 import { confirmedPlugged } from '../yard/yard-service';
-import { datePlace } from '../night/depot-night';
 
 type PlanRow = typeof plans.$inferSelect;
 const creator = aliasedTable(users, 'creator');
@@ -312,19 +311,8 @@ export async function publishPlan(
     if (fresh!.state !== 'draft')
       throw conflict(`Version ${fresh!.version} is already ${fresh!.state}: a published plan never changes`);
     if (fresh!.status !== 'done') throw conflict('The plan is not finished yet: wait until it has been generated');
-    // A draft made for a day that has since become part of another's night (its runs were entered
-    // after it) would plan those hours a second time, with no bus pulling in.
-    const { within } = await datePlace(tx, plan.depotId, plan.serviceDate);
-    if (within && fresh!.kind !== 'revision') {
-      const day = (d: string) => DateTime.fromISO(d, { zone: depot!.timezone }).toFormat('cccc, LLLL d');
-      // Not a conflict with another publisher (409, which the page offers to reload): the draft's
-      // night itself is no longer one, whoever publishes it.
-      throw new DomainError(
-        'validation_failed',
-        `Version ${fresh!.version} plans ${day(plan.serviceDate)} as a night of its own, but it now falls inside the night of ${day(within)} (no runs on it): plan the night of ${day(within)} instead`,
-        { serviceDate: `Inside the night of ${day(within)}` },
-      );
-    }
+    if (fresh!.kind !== 'revision')
+      await refusePublishingInsideANight(tx, plan.depotId, plan.serviceDate, fresh!.version, depot!.timezone);
     const [current] = await tx
       .select({ id: plans.id, version: plans.version, at: plans.publishedAt, by: users.name })
       .from(plans)

@@ -1,6 +1,6 @@
 import type { RatePlanDefinition } from '@nightyard/contracts';
 import { localParts } from './local-time.js';
-import { ratePlanPeriodAtMs, seasonOf } from './rate-calendar.js';
+import { ratePlanPeriodAt, seasonOf } from './rate-calendar.js';
 
 /** One interval of metered or planned site demand. */
 export interface IntervalDemand {
@@ -257,7 +257,7 @@ export function computeBill(def: RatePlanDefinition, intervals: readonly Interva
  */
 const classified = new WeakMap<
   RatePlanDefinition,
-  Map<string, Map<number, { p: ReturnType<typeof ratePlanPeriodAtMs>; season: ReturnType<typeof seasonOf> }>>
+  Map<string, Map<number, { p: ReturnType<typeof ratePlanPeriodAt>; season: ReturnType<typeof seasonOf> }>>
 >();
 const MAX_REMEMBERED = 20_000;
 
@@ -270,7 +270,8 @@ function classifier(def: RatePlanDefinition, zone: string) {
   return (startMs: number) => {
     let hit = memo.get(startMs);
     if (!hit) {
-      hit = { p: ratePlanPeriodAtMs(def, startMs, zone), season: seasonOf(def, localParts(startMs, zone).month) };
+      const local = localParts(startMs, zone);
+      hit = { p: ratePlanPeriodAt(def, local), season: seasonOf(def, local.month) };
       if (memo.size >= MAX_REMEMBERED) memo.clear();
       memo.set(startMs, hit);
     }

@@ -1,6 +1,6 @@
 import { DateTime } from 'luxon';
 import { seasonMonths, windowMinutes, type DayType, type RatePlanDefinition, type Season } from '@nightyard/contracts';
-import { calendarDate, localParts } from './local-time.js';
+import { calendarDate, localParts, type LocalParts } from './local-time.js';
 
 type CalendarDate = ReturnType<typeof calendarDate>;
 
@@ -17,8 +17,12 @@ export interface PricedSlot {
 }
 
 export function dayTypeOf(day: DateTime, holidays: readonly string[]): DayType {
-  if (holidays.includes(day.toISODate()!)) return 'holiday';
-  return day.weekday >= 6 ? 'weekend' : 'weekday';
+  return dayTypeOn(day.toISODate()!, day.weekday, holidays);
+}
+
+function dayTypeOn(isoDate: string, weekday: number, holidays: readonly string[]): DayType {
+  if (holidays.includes(isoDate)) return 'holiday';
+  return weekday >= 6 ? 'weekend' : 'weekday';
 }
 
 export function seasonOf(def: RatePlanDefinition, month: number): Season {
@@ -28,37 +32,35 @@ export function seasonOf(def: RatePlanDefinition, month: number): Season {
 }
 
 type PeriodAt = Omit<PricedSlot, 'start'>;
+/** A local wall-clock time: a luxon DateTime, or `localParts` of an instant. */
+type WallClock = Pick<LocalParts, 'year' | 'month' | 'day' | 'hour' | 'minute'>;
+
+/** Answers remembered per rate plan and wall-clock time (the same quarter hours are asked again and again). */
+const periodsAt = new WeakMap<RatePlanDefinition, Map<string, PeriodAt>>();
+const MAX_PERIODS_AT = 50_000;
 
 /**
  * The period in force at a local wall-clock time. A window belongs to the day it starts on; a
  * window of the previous day that runs past midnight applies only where no window of the day
  * itself does.
  */
-export function ratePlanPeriodAt(def: RatePlanDefinition, local: DateTime): PeriodAt {
-  return periodAtWallClock(def, local.year, local.month, local.day, local.hour * 60 + local.minute);
-}
-
-/** The period in force at the instant `ms` in `zone` (as ratePlanPeriodAt, without a DateTime). */
-export function ratePlanPeriodAtMs(def: RatePlanDefinition, ms: number, zone: string): PeriodAt {
-  const l = localParts(ms, zone);
-  return periodAtWallClock(def, l.year, l.month, l.day, l.hour * 60 + l.minute);
-}
-
-/** Answers remembered per rate plan and wall-clock time (the same quarter hours are asked again and again). */
-const periodsAt = new WeakMap<RatePlanDefinition, Map<string, PeriodAt>>();
-const MAX_PERIODS_AT = 50_000;
-
-function periodAtWallClock(def: RatePlanDefinition, year: number, month: number, day: number, minute: number) {
+export function ratePlanPeriodAt(def: RatePlanDefinition, local: WallClock): PeriodAt {
   let known = periodsAt.get(def);
   if (!known) periodsAt.set(def, (known = new Map()));
-  const key = `${year}-${month}-${day}|${minute}`;
+  const minute = local.hour * 60 + local.minute;
+  const key = `${local.year}-${local.month}-${local.day}|${minute}`;
   let hit = known.get(key);
   if (!hit) {
-    hit = classify(def, calendarDate(year, month, day), minute);
+    hit = classify(def, calendarDate(local.year, local.month, local.day), minute);
     if (known.size >= MAX_PERIODS_AT) known.clear();
     known.set(key, hit);
   }
   return hit;
+}
+
+/** The period in force at the instant `ms` in `zone` (as ratePlanPeriodAt, without a DateTime). */
+export function ratePlanPeriodAtMs(def: RatePlanDefinition, ms: number, zone: string): PeriodAt {
+  return ratePlanPeriodAt(def, localParts(ms, zone));
 }
 
 function classify(def: RatePlanDefinition, today: CalendarDate, minute: number): PeriodAt {
@@ -68,7 +70,7 @@ function classify(def: RatePlanDefinition, today: CalendarDate, minute: number):
   ];
   for (const [day, m] of candidates) {
     const season = seasonOf(def, day.month);
-    const dayType: DayType = def.holidays.includes(day.isoDate) ? 'holiday' : day.weekday >= 6 ? 'weekend' : 'weekday';
+    const dayType = dayTypeOn(day.isoDate, day.weekday, def.holidays);
     for (const p of season.periods) {
       for (const w of p.windows) {
         if (!w.dayTypes.includes(dayType)) continue;
