@@ -17,6 +17,8 @@ export const ERROR_CODES = [
   'forbidden',
   'not_found',
   'conflict',
+  /** Publishing refused because the night's published plan changed while the caller reviewed (409). */
+  'published_meanwhile',
   'too_many_requests',
   'payload_too_large',
   'token_expired',

@@ -20,6 +20,7 @@ export const STATUS_BY_CODE: Record<ErrorCode, number> = {
   not_found: 404,
   token_expired: 410,
   conflict: 409,
+  published_meanwhile: 409,
   idempotency_key_reused: 422,
   payload_too_large: 413,
   too_many_requests: 429,

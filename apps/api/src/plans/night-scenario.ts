@@ -195,8 +195,8 @@ const longDay = (date: string, zone: string) => DateTime.fromISO(date, { zone })
 /**
  * A draft made for a date that has since become part of another's night (the runs of the day
  * before it were entered after it) is not published: it would plan those hours a second time,
- * with no bus pulling in. Not a conflict with another publisher (409, which the page offers to
- * reload): the draft's night itself is no longer one, whoever publishes it.
+ * with no bus pulling in. A bad request (400), not a conflict: the draft's night itself is no
+ * longer one, whoever publishes it.
  */
 export async function refusePublishingInsideANight(
   db: Db,

@@ -321,7 +321,9 @@ export async function publishPlan(
         and(eq(plans.depotId, plan.depotId), eq(plans.serviceDate, plan.serviceDate), eq(plans.state, 'published')),
       );
     if ((current?.id ?? null) !== expectedPublishedId) {
-      throw conflict(
+      // Its own code: the page offers to reload and compare for this refusal only.
+      throw new DomainError(
+        'published_meanwhile',
         current
           ? `Version ${current.version} was published by ${current.by ?? 'someone'} at ${current.at ? DateTime.fromJSDate(current.at, { zone: depot!.timezone }).toFormat('HH:mm') : '?'} (depot time) while you were reviewing: compare with it, then publish again`
           : 'The plan you reviewed against is no longer published: reload and compare again',

@@ -183,6 +183,7 @@ describe('plans', () => {
     ]);
     expect(results.map((r) => r.status).sort()).toEqual([200, 409]);
     const loser = results.find((r) => r.status === 409)!;
+    expect(loser.body.error.code).toBe('published_meanwhile');
     expect(loser.body.error.message).toMatch(/Version \d was published by .* while you were reviewing/);
     const published = await app.db.select().from(plans).where(eq(plans.depotId, depotId));
     expect(published.filter((p) => p.state === 'published')).toHaveLength(1);

@@ -156,7 +156,7 @@ describe('PlansPage', () => {
     req.flush(
       {
         error: {
-          code: 'conflict',
+          code: 'published_meanwhile',
           message:
             'Version 3 was published by Tomasz Greer at 21:04 UTC while you were reviewing: compare with it, then publish again',
         },

@@ -189,7 +189,7 @@ describe('PlansStore', () => {
     mock
       .expectOne(`/api/plans/${PLAN_IDS.draft}/publish`)
       .flush(
-        { error: { code: 'conflict', message: 'Version 3 was published meanwhile' } },
+        { error: { code: 'published_meanwhile', message: 'Version 3 was published meanwhile' } },
         { status: 409, statusText: 'Conflict' },
       );
     await publishing;
@@ -208,6 +208,25 @@ describe('PlansStore', () => {
     expect(store.conflict()).toBeNull();
     expect(store.comparePreferred()).toBe(PLAN_IDS.published);
     expect(store.versions()).toHaveLength(2);
+  });
+
+  it('shows any other refused publish as the reason, not as someone else publishing', async () => {
+    await start(PLAN_IDS.draft);
+    mock.expectOne(LIST).flush({ plans: [planSummary()] });
+    answerDepot();
+    await tick();
+    mock.expectOne(`/api/plans/${PLAN_IDS.draft}`).flush({ plan: planDetail() });
+    await tick();
+    const publishing = store.publish(store.selected()!);
+    mock
+      .expectOne(`/api/plans/${PLAN_IDS.draft}/publish`)
+      .flush(
+        { error: { code: 'conflict', message: 'The plan is not finished yet: wait until it has been generated' } },
+        { status: 409, statusText: 'Conflict' },
+      );
+    await publishing;
+    expect(store.conflict()).toBeNull();
+    expect(store.problem()).toBe('Not published. The plan is not finished yet: wait until it has been generated');
   });
 
   it("opens a link to a version of another of the person's depots on that depot", async () => {

@@ -337,7 +337,7 @@ export class PlansStore {
     return this.download(() => this.api.ocppProfiles(plan.id, version));
   }
 
-  /** Publishes a version (confirmed by the page first); a 409 is shown as a conflict. */
+  /** Publishes a version (confirmed by the page first); a plan published meanwhile is shown as a conflict. */
   async publish(plan: PlanSummary): Promise<void> {
     if (this.busy()) return;
     this.clearProblems();
@@ -350,8 +350,10 @@ export class PlansStore {
       await this.reload();
     } catch (err) {
       const p = toApiProblem(err);
-      if (p.status === 409) this.conflict.set(p.message);
-      else this.problem.set(p.message);
+      // Only a plan published meanwhile is offered a reload and compare; any other refusal
+      // (not finished, already published, a what-if, a night that moved) says why in words.
+      if (p.code === 'published_meanwhile') this.conflict.set(p.message);
+      else this.problem.set(`Not published. ${p.message}`);
     } finally {
       this.busy.set(null);
     }
