@@ -154,8 +154,9 @@ export const monthCostsSchema = z.object({
   projected: billSchema,
   /**
    * The projected bill's range while some nights are forecast (null when none is): the bill with
-   * those nights charged in their cheapest intervals and spread evenly over the night. The
-   * projected bill itself takes the even spread.
+   * those nights charged in their cheapest intervals and spread evenly over the night, a night
+   * still to come under the demand target (`target`) as its plan will be. The projected bill
+   * itself takes the even spread.
    */
   projectedRange: z.object({ low: z.number(), high: z.number() }).nullable(),
   /** Nights without a published plan, forecast from the service calendar. */

@@ -24,7 +24,7 @@ import { ratchetBaseOf } from './ratchet-base';
 import { MonthCostsCache, monthInputs, type MonthInputs } from './month-cache';
 import type { NotifiedCache } from '../db/notified-cache';
 import { guessDepot, rememberDepot } from '../depots/depot-guess';
-import { buildingKwAt, forecastNights } from './month-forecast';
+import { buildingKwAt, forecastNights, forecastShapes, type ChargingKw, type ForecastNight } from './month-forecast';
 
 const SLOT_MS = 15 * 60_000;
 /** As the bill engine: a later interval equal but for floating-point noise does not move a peak's date. */
@@ -155,9 +155,17 @@ type Depot = Awaited<ReturnType<typeof depotOf>>;
 type Period = ReturnType<typeof billingPeriodOf>;
 type SourcedInterval = IntervalDemand & { source: 'actual' | 'planned' | 'forecast' | 'building' };
 type Peaks = MonthCosts['peaks'];
+/** The month to date and its peaks: what has passed by a moment. */
 interface SoFar {
   monthToDate: Bill;
   peaks: Peaks;
+  /** How many of the series' intervals have begun. */
+  begun: number;
+  elapsedDays: number;
+}
+
+/** The projected bill, its range and the savings: from the peaks so far and the demand target. */
+interface Projection {
   projected: Bill;
   projectedRange: MonthCosts['projectedRange'];
   savings: MonthCosts['savings'];
@@ -195,13 +203,35 @@ function comparedNight(result: PlanResult, fromMs: number, toMs: number) {
   return { kind, baselineKw, planEnergy, baselineEnergy, baselinePeak };
 }
 
+/**
+ * The forecast nights' charging, both shapes, summed by interval. `capKw` holds the nights not yet
+ * begun at `fromMs` under the demand target (a night under way keeps its shape: its energy whole).
+ */
+function forecastCharging(
+  nights: readonly ForecastNight[],
+  capKw?: (t: number) => number,
+  fromMs = -Infinity,
+): { even: ChargingKw; cheapest: ChargingKw } {
+  const even: ChargingKw = new Map();
+  const cheapest: ChargingKw = new Map();
+  for (const n of nights) {
+    const shapes = forecastShapes(n, capKw && (n.slots[0]?.t ?? -Infinity) >= fromMs ? capKw : undefined);
+    for (const [t, v] of shapes.even) even.set(t, (even.get(t) ?? 0) + v);
+    for (const [t, v] of shapes.cheapest) cheapest.set(t, (cheapest.get(t) ?? 0) + v);
+  }
+  return { even, cheapest };
+}
+
 /** What a billing period's costs are, whatever the time now: built from the rows the cache versions. */
 interface PeriodBase {
   rate: { name: string; definition: RatePlanDefinition };
+  /** The period's intervals, each forecast night's energy spread evenly over it (the projected bill's shape). */
   series: SourcedInterval[];
   actualIntervals: number;
-  /** The series with the forecast nights' energy in the cheapest intervals instead (null: none forecast). */
-  cheapestSeries: SourcedInterval[] | null;
+  /** The nights nobody planned or metered, forecast from the runs. */
+  forecastNights: ForecastNight[];
+  /** The series with the forecast nights charging as given (a planned or metered interval stays as it is). */
+  seriesWith: (charging: ChargingKw) => SourcedInterval[];
   /** kW a compared night's baseline would have drawn more (or less) than its plan, by interval. */
   baselineDeltaKw: Map<number, number>;
   nightsCompared: number;
@@ -213,6 +243,8 @@ interface PeriodBase {
   ratchetBase: { kw: number; source: string } | null;
   /** The bills and peaks that depend on how much of the period has passed (see `soFarOf`). */
   soFar: Map<string, SoFar>;
+  /** The projection from each moment's peaks so far, under the demand target it was given. */
+  projections: WeakMap<SoFar, { target: PeriodTargetView | null; value: Projection }>;
 }
 
 /** One per process; exported so tests can compare against a fresh computation. */
@@ -321,13 +353,7 @@ async function periodBase(db: Db, depot: Depot, period: Period): Promise<PeriodB
     : null;
   const plannedDates = new Set(published.map((p) => p.serviceDate));
   const forecast = await forecastNights(db, depot, period, rate.definition, plannedDates);
-  // Charging kW of the forecast nights, each shape; a planned or metered interval stays as it is.
-  const forecastKw = (shape: 'even' | 'cheapest') => {
-    const kw = new Map<number, number>();
-    for (const n of forecast) for (const [t, v] of n[shape]) if (!plannedKw.has(t)) kw.set(t, (kw.get(t) ?? 0) + v);
-    return kw;
-  };
-  const seriesWith = (charging: Map<number, number>): SourcedInterval[] => {
+  const seriesWith = (charging: ChargingKw): SourcedInterval[] => {
     const series: SourcedInterval[] = [];
     for (let t = fromMs; t < toMs; t += SLOT_MS) {
       const a = actualKwh.get(t);
@@ -339,11 +365,12 @@ async function periodBase(db: Db, depot: Depot, period: Period): Promise<PeriodB
     }
     return series;
   };
-  const series = seriesWith(forecastKw('even'));
+  const series = seriesWith(forecastCharging(forecast).even);
   return {
     rate,
     series,
-    cheapestSeries: forecast.length ? seriesWith(forecastKw('cheapest')) : null,
+    forecastNights: forecast,
+    seriesWith,
     baselineDeltaKw,
     nightsCompared,
     actualIntervals: series.filter((s) => s.source === 'actual').length,
@@ -353,6 +380,7 @@ async function periodBase(db: Db, depot: Depot, period: Period): Promise<PeriodB
     plannedDates,
     entered,
     soFar: new Map(),
+    projections: new WeakMap(),
     forecast: forecast.map((n) => ({ date: n.date, needKwh: n.needKwh, basis: n.basis })),
   };
 }
@@ -391,38 +419,10 @@ function soFarOf(base: PeriodBase, depot: Depot, period: Period, nowMs: number):
   const key = `${begun}:${elapsedDays}`;
   const known = base.soFar.get(key);
   if (known) return known;
-  const asOfNow = (series: SourcedInterval[]): SourcedInterval[] =>
-    series.map((s, i) => (i < begun && s.source === 'forecast' ? { ...s, energyOnly: true } : s));
-  const series = asOfNow(base.series);
-  const toDate = series.slice(0, begun);
-
+  const toDate = asOf(base.series, begun).slice(0, begun);
   const { rate, recordedPeaksKw, ratchetBase } = base;
-  const options = { zone, intervalMinutes: 15, days: period.days, recordedPeaksKw, ratchetBase };
-  const monthToDate = computeBill(rate.definition, toDate, { ...options, days: elapsedDays });
-  const projected = computeBill(rate.definition, series, options);
-  const cheapest = base.cheapestSeries
-    ? computeBill(rate.definition, asOfNow(base.cheapestSeries), options).total
-    : projected.total;
-  const projectedRange = base.cheapestSeries
-    ? { low: Math.min(cheapest, projected.total), high: Math.max(cheapest, projected.total) }
-    : null;
-  // The saving: the projected bill itself (with the plans) against the same bill with each
-  // compared night charged as its baseline would have (its charging in place of the plan's,
-  // metered or not), both on the same peaks so far, entered peaks and ratchet: the period's
-  // demand is billed once, so the saving is the difference of the two whole-period bills.
-  const onBaselines = series.map((s) => {
-    const delta = base.baselineDeltaKw.get(s.startMs);
-    return delta === undefined ? s : { ...s, kwh: s.kwh + delta * 0.25 };
-  });
-  const baselineBill = computeBill(rate.definition, onBaselines, options);
-  const savings: MonthCosts['savings'] = {
-    total: baselineBill.total - projected.total,
-    planBill: projected.total,
-    baselineBill: baselineBill.total,
-    nightsCompared: base.nightsCompared,
-    planPeakKw: billedFacilityKw(projected),
-    baselinePeakKw: billedFacilityKw(baselineBill),
-  };
+  const options = { zone, intervalMinutes: 15, days: elapsedDays, recordedPeaksKw, ratchetBase };
+  const monthToDate = computeBill(rate.definition, toDate, options);
 
   // Peaks so far: the highest of the intervals begun that set a peak (metered, planned or the
   // building alone; a forecast of time gone by sets none) and what was entered by hand, the same
@@ -448,13 +448,81 @@ function soFarOf(base: PeriodBase, depot: Depot, period: Period, nowMs: number):
   const value: SoFar = {
     monthToDate,
     peaks: { facility, periods: [...periodPeaks].map(([name, p]) => ({ name, ...p })) },
-    projected,
-    projectedRange,
-    savings,
+    begun,
+    elapsedDays,
   };
   // Only the latest few moments are asked for again.
   if (base.soFar.size >= 4) base.soFar.delete(base.soFar.keys().next().value!);
   base.soFar.set(key, value);
+  return value;
+}
+
+/** The series as of a moment: a forecast interval begun bills its energy but sets no peak. */
+const asOf = (series: SourcedInterval[], begun: number): SourcedInterval[] =>
+  series.map((s, i) => (i < begun && s.source === 'forecast' ? { ...s, energyOnly: true } : s));
+
+/**
+ * The demand target as a cap on a forecast night's site load at each interval: the lowest target
+ * that applies there (the facility's; the tariff period's where it has a demand charge). Nights not yet planned are then forecast as they will be planned, under
+ * the peaks the target chose, not setting a peak no plan would (null: no target, no cap).
+ */
+function targetCap(base: PeriodBase, depot: Depot, target: PeriodTargetView | null) {
+  if (!target || target.targets.length === 0) return undefined;
+  const byName = new Map(target.targets.map((t) => [t.name, t.kw]));
+  const facilityKw = byName.get('facility') ?? Infinity;
+  return (t: number) => {
+    const p = ratePlanPeriodAtMs(base.rate.definition, t, depot.timezone);
+    const periodKw = p.offPeak || p.demandCharge <= 0 ? Infinity : (byName.get(p.period) ?? Infinity);
+    return Math.min(facilityKw, periodKw);
+  };
+}
+
+/**
+ * The projected bill, its range and the savings at a moment. The nights nobody planned yet are
+ * forecast under the demand target (both shapes of the range); the bills all count the same
+ * peaks so far, entered peaks and ratchet.
+ */
+function projectionOf(
+  base: PeriodBase,
+  depot: Depot,
+  period: Period,
+  soFar: SoFar,
+  target: PeriodTargetView | null,
+): Projection {
+  const known = base.projections.get(soFar);
+  if (known && known.target === target) return known.value;
+  const { rate, recordedPeaksKw, ratchetBase } = base;
+  const options = { zone: depot.timezone, intervalMinutes: 15, days: period.days, recordedPeaksKw, ratchetBase };
+  const nowMs = base.series[soFar.begun]?.startMs ?? period.end.toMillis();
+  const charging = forecastCharging(base.forecastNights, targetCap(base, depot, target), nowMs);
+  const series = asOf(base.seriesWith(charging.even), soFar.begun);
+  const projected = computeBill(rate.definition, series, options);
+  const projectedRange = base.forecastNights.length
+    ? (() => {
+        const cheapest = computeBill(rate.definition, asOf(base.seriesWith(charging.cheapest), soFar.begun), options);
+        return { low: Math.min(cheapest.total, projected.total), high: Math.max(cheapest.total, projected.total) };
+      })()
+    : null;
+  // The saving: the projected bill itself (with the plans) against the same bill with each
+  // compared night charged as its baseline would have (its charging in place of the plan's,
+  // metered or not), both on the same peaks so far, entered peaks and ratchet: the period's
+  // demand is billed once, so the saving is the difference of the two whole-period bills.
+  const onBaselines = series.map((s) => {
+    const delta = base.baselineDeltaKw.get(s.startMs);
+    return delta === undefined ? s : { ...s, kwh: s.kwh + delta * 0.25 };
+  });
+  const baselineBill = computeBill(rate.definition, onBaselines, options);
+  const savings: MonthCosts['savings'] = {
+    total: baselineBill.total - projected.total,
+    planBill: projected.total,
+    baselineBill: baselineBill.total,
+    nightsCompared: base.nightsCompared,
+    planPeakKw: billedFacilityKw(projected),
+    baselinePeakKw: billedFacilityKw(baselineBill),
+  };
+
+  const value: Projection = { projected, projectedRange, savings };
+  base.projections.set(soFar, { target, value });
   return value;
 }
 
@@ -553,6 +621,7 @@ export async function monthCosts(
   }
   const soFar = soFarOf(base, depot, period, now.getTime());
   const target = await monthTargetOf(db, caller, depot, period, now, version, soFar.peaks);
+  const projection = projectionOf(base, depot, period, soFar, target);
   const withoutPlan = serviceDays.filter((d) => !base.plannedDates.has(d)).length;
   // The same inputs give the same answer: sent again as the bytes it was, not built, checked and
   // written out once more (finance and Tonight's cards ask for it on every page load).
@@ -574,11 +643,11 @@ export async function monthCosts(
     currency: base.rate.definition.currency,
     period: { start: periodStart, end: periodEnd, days: period.days },
     ratePlanName: base.rate.name,
-    projected: soFar.projected,
-    projectedRange: soFar.projectedRange,
+    projected: projection.projected,
+    projectedRange: projection.projectedRange,
     forecast: base.forecast,
     monthToDate,
-    savings: soFar.savings,
+    savings: projection.savings,
     peaks,
     nights: base.nights,
     sources: {

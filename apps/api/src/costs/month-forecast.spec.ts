@@ -84,3 +84,27 @@ describe('the month forecast', () => {
     expect(m.projected.kwh).toBeGreaterThan(forecastKwh);
   });
 });
+
+describe('the month forecast under the demand target', () => {
+  it('forecasts the nights nobody planned yet under the target, their energy whole (the shapes: month-forecast-shapes.spec.ts)', async () => {
+    const m = (
+      await app
+        .request()
+        .get(`/api/depots/${depotId}/costs/month`)
+        .query({ date: '2026-12-01' })
+        .set(as(fin))
+        .expect(200)
+    ).body;
+    expect(m.target.targets.map((t: { name: string }) => t.name)).toEqual(['facility', 'on-peak']);
+    // Here the forecast puts back each next day's whole runs, more than the target's nights (the
+    // batteries as planned) need: the excess goes above the target by the same kW in each demand
+    // period, the least it can, and no kWh is lost.
+    const facility = m.projected.demand.find((d: { name: string }) => d.name === 'Facility demand').quantity;
+    const onPeak = m.projected.demand.find((d: { name: string }) => d.name === 'Demand, on-peak').quantity;
+    const [facilityTarget, onPeakTarget] = m.target.targets.map((t: { kw: number }) => t.kw);
+    expect(onPeak - onPeakTarget).toBeCloseTo(facility - facilityTarget, 6);
+    const forecastKwh = m.forecast.reduce((a: number, n: { needKwh: number }) => a + n.needKwh, 0);
+    expect(m.projected.kwh).toBeGreaterThan(forecastKwh);
+    expect([m.projectedRange.low, m.projectedRange.high]).toContain(m.projected.total);
+  });
+});

@@ -29,10 +29,23 @@ export interface ForecastNight {
   needKwh: number;
   /** Where the need comes from: that day's runs, or the latest entered day of the same weekday. */
   basis: 'runs' | 'typical-weekday';
-  /** Two ways to draw it from the grid, per 15-minute interval (kW of charging). */
-  cheapest: Map<number, number>;
-  even: Map<number, number>;
+  /** The night's 15-minute intervals: price and the room under the service limit. */
+  slots: ForecastSlot[];
+  /** Grid kWh the night draws (the need over the chargers' efficiency). */
+  gridKwh: number;
 }
+
+export interface ForecastSlot {
+  t: number;
+  price: number;
+  /** The building's own load (kW). */
+  buildingKw: number;
+  /** Room for charging under the service limit (kW). */
+  roomKw: number;
+}
+
+/** Charging kW per interval, by interval start. */
+export type ChargingKw = Map<number, number>;
 
 /** Each entered service day around the period, with its energy from kWh or miles x the bus's kWh per mile. */
 async function serviceDaysAround(db: Db, depotId: string, from: string, to: string): Promise<ServiceDay[]> {
@@ -66,9 +79,9 @@ async function serviceDaysAround(db: Db, depotId: string, from: string, to: stri
  * The nights of a billing period that have no published plan, forecast from the service calendar:
  * a night puts back what the next service day's runs use (entered runs, else, past the last day
  * entered, the latest entered day of the same weekday), drawn between the last bus home and the first
- * out. The plan would land between two simple shapes: all of it in the cheapest intervals the
- * service limit allows, and spread evenly over the night; both are returned so the bill can be
- * given as a range. Weekdays only for days with nothing entered (a weekend with no runs has no night).
+ * out. The plan would land between two simple shapes (`forecastShapes`): all of it in the
+ * cheapest intervals, and spread evenly over the night; each night's intervals are returned so the
+ * bill can be given as that range, under the demand target where there is one. Weekdays only for days with nothing entered (a weekend with no runs has no night).
  */
 export async function forecastNights(
   db: Db,
@@ -122,29 +135,51 @@ export async function forecastNights(
     const from = Math.ceil(tonight.day.lastPullInMs / SLOT_MS) * SLOT_MS;
     const to = Math.floor(next.day.firstPullOutMs / SLOT_MS) * SLOT_MS;
     if (to <= from) continue;
-    const slots: { t: number; price: number; roomKw: number }[] = [];
+    const slots: ForecastSlot[] = [];
     for (let t = from; t < to; t += SLOT_MS) {
+      const buildingKw = buildingKwAt(depot.otherLoadKw, t, zone);
       slots.push({
         t,
         price: ratePlanPeriodAtMs(rate, t, zone).price,
-        roomKw: Math.max(0, depot.serviceLimitKw - buildingKwAt(depot.otherLoadKw, t, zone)),
+        buildingKw,
+        roomKw: Math.max(0, depot.serviceLimitKw - buildingKw),
       });
     }
-    const gridKwh = next.day.kwh / CHARGER_EFFICIENCY;
     nights.push({
       date,
       needKwh: next.day.kwh,
       basis: next.basis === 'runs' && tonight.basis === 'runs' ? 'runs' : 'typical-weekday',
-      cheapest: fillCheapest(slots, gridKwh),
-      even: fillEvenly(slots, gridKwh),
+      slots,
+      gridKwh: next.day.kwh / CHARGER_EFFICIENCY,
     });
   }
   return nights;
 }
 
-/** Cheapest intervals first, each up to the room under the service limit. */
-function fillCheapest(slots: { t: number; price: number; roomKw: number }[], gridKwh: number): Map<number, number> {
-  const kw = new Map<number, number>();
+/**
+ * A forecast night's two shapes: all of it in the cheapest intervals, and the same power all
+ * night. `siteCapKw` (the demand target by interval: site load, the building's with the
+ * charging) holds both under the peaks the nights left are planned under, as a plan would be.
+ * What does not fit under it raises the lowest site loads first, as little above the target as
+ * it can, so the night's energy is always whole.
+ */
+export function forecastShapes(
+  night: ForecastNight,
+  siteCapKw?: (t: number) => number,
+): { cheapest: ChargingKw; even: ChargingKw } {
+  const capped = siteCapKw
+    ? night.slots.map((s) => ({ ...s, roomKw: Math.max(0, Math.min(s.roomKw, siteCapKw(s.t) - s.buildingKw)) }))
+    : night.slots;
+  const whole = (kw: ChargingKw) => (siteCapKw ? raiseLowest(night.slots, kw, night.gridKwh, siteCapKw) : kw);
+  return {
+    cheapest: whole(fillCheapest(capped, night.gridKwh).kw),
+    even: whole(fillEvenly(capped, night.gridKwh)),
+  };
+}
+
+/** Cheapest intervals first, each up to its room; with the kWh that did not fit. */
+function fillCheapest(slots: readonly ForecastSlot[], gridKwh: number): { kw: ChargingKw; leftKwh: number } {
+  const kw: ChargingKw = new Map();
   let left = gridKwh;
   for (const s of slots.slice().sort((a, b) => a.price - b.price || a.t - b.t)) {
     if (left <= 1e-9) break;
@@ -152,25 +187,67 @@ function fillCheapest(slots: { t: number; price: number; roomKw: number }[], gri
     kw.set(s.t, take);
     left -= take / 4;
   }
-  return kw;
+  return { kw, leftKwh: Math.max(0, left) };
 }
 
-/** The same power all night, capped by the room under the limit (the rest in the cheapest intervals left). */
-function fillEvenly(slots: { t: number; price: number; roomKw: number }[], gridKwh: number): Map<number, number> {
+/** The same power all night, capped by each interval's room (the rest in the cheapest intervals left). */
+function fillEvenly(slots: readonly ForecastSlot[], gridKwh: number): ChargingKw {
   const flat = (gridKwh * 4) / slots.length;
-  const kw = new Map<number, number>();
+  const kw: ChargingKw = new Map();
   let left = gridKwh;
   for (const s of slots) {
     const take = Math.min(flat, s.roomKw);
     kw.set(s.t, take);
     left -= take / 4;
   }
-  if (left > 1e-9) {
-    const rest = fillCheapest(
-      slots.map((s) => ({ ...s, roomKw: s.roomKw - kw.get(s.t)! })),
-      left,
-    );
-    for (const [t, extra] of rest) kw.set(t, kw.get(t)! + extra);
-  }
-  return kw;
+  return left > 1e-9 ? topUp(slots, kw, gridKwh) : kw;
 }
+
+/** `kw` topped up to `gridKwh` in the room each interval has left, cheapest first. */
+function topUp(slots: readonly ForecastSlot[], kw: ChargingKw, gridKwh: number): ChargingKw {
+  const left = gridKwh - sumKwh(kw);
+  if (left <= 1e-9) return kw;
+  const rest = fillCheapest(
+    slots.map((s) => ({ ...s, roomKw: Math.max(0, s.roomKw - (kw.get(s.t) ?? 0)) })),
+    left,
+  ).kw;
+  const out = new Map(kw);
+  for (const [t, extra] of rest) out.set(t, (out.get(t) ?? 0) + extra);
+  return out;
+}
+
+/**
+ * `kw` topped up to `gridKwh` where the site load is furthest below its cap (water-filling on the
+ * excess over the target, under the service limit): what must go above the target goes above it
+ * by as little as it can, in every demand period alike.
+ */
+function raiseLowest(
+  slots: readonly ForecastSlot[],
+  kw: ChargingKw,
+  gridKwh: number,
+  siteCapKw: (t: number) => number,
+): ChargingKw {
+  const left = gridKwh - sumKwh(kw);
+  if (left <= 1e-9) return kw;
+  const site = slots.map((s) => s.buildingKw + (kw.get(s.t) ?? 0));
+  const top = slots.map((s) => s.buildingKw + s.roomKw);
+  const cap = slots.map((s, i) => Math.min(siteCapKw(s.t), top[i]!));
+  const to = (excess: number) => site.map((v, i) => Math.max(v, Math.min(top[i]!, cap[i]! + excess)));
+  const added = (excess: number) => to(excess).reduce((a, v, i) => a + (v - site[i]!) / 4, 0);
+  let lo = 0;
+  let hi = Math.max(...top);
+  for (let k = 0; k < 100 && hi - lo > 1e-9; k++) {
+    const mid = (lo + hi) / 2;
+    if (added(mid) < left) lo = mid;
+    else hi = mid;
+  }
+  const out = new Map(kw);
+  to(hi).forEach((v, i) => out.set(slots[i]!.t, v - slots[i]!.buildingKw));
+  return out;
+}
+
+const sumKwh = (kw: ChargingKw) => {
+  let kwh = 0;
+  for (const v of kw.values()) kwh += v / 4;
+  return kwh;
+};
