@@ -15,16 +15,24 @@ import {
 } from 'chart.js';
 import { BaseChartDirective, provideCharts } from 'ng2-charts';
 import { injectThemeColours } from '../shared/theme-colours';
-import { clock, money, num } from './plan-format';
+import { clock, dayClock, money, num } from './plan-format';
 
 type Colors = Record<'load' | 'limit' | 'price' | 'text' | 'grid', string>;
 const FALLBACK: Colors = { load: '#0d6b5e', limit: '#ba1a1a', price: '#c78a12', text: '#444', grid: '#ccc' };
 
-/** The hours of the night: average and highest load, the limit and the price, for the table. */
+/**
+ * The hours of the night: average and highest load, the limit and the price, for the table. A
+ * night longer than a day (Friday's runs to Monday) names each hour's weekday ("Sat 15:00"): its
+ * clock hours come round more than once.
+ */
 export function hourlyLoad(result: Pick<PlanResult, 'slots'>, timeZone: string) {
   const hours: { hour: string; loads: number[]; limit: number; prices: Set<number> }[] = [];
+  const first = result.slots[0];
+  const last = result.slots.at(-1);
+  const longerThanADay = !!first && !!last && Date.parse(last.start) - Date.parse(first.start) >= 24 * 3_600_000;
   for (const s of result.slots) {
-    const hour = `${clock(s.start, timeZone).slice(0, 2)}:00`;
+    const time = longerThanADay ? dayClock(s.start, timeZone) : clock(s.start, timeZone);
+    const hour = `${time.slice(0, -2)}00`;
     let h = hours.at(-1);
     if (!h || h.hour !== hour) {
       h = { hour, loads: [], limit: s.limitKw, prices: new Set() };

@@ -4,7 +4,7 @@ import { MatIconModule } from '@angular/material/icon';
 import { NightTrack } from './night-track';
 import { OverdueStep, type ConfirmAt } from './overdue-step';
 import type { ReportPreset } from './report-dialog';
-import { clock, dueText, kwh, type Horizon, type StepView } from './yard-format';
+import { clock, dueText, kwh, moveBy, type Horizon, type StepView } from './yard-format';
 import type { ChargerView } from './yard-store';
 
 const STATE_TEXT = {
@@ -71,6 +71,8 @@ export class ChargerCard {
           : v.step.kwh < 0.05
             ? 'No charging planned in this plug-in'
             : `After ${kwh(v.step.kwh)} planned`,
+      // Who makes the move, in the run sheet's words: a driver's step is not the crew's walk.
+      by: moveBy(v.step),
       button: v.step.action === 'connect' ? 'Confirm plugged in' : 'Confirm unplugged',
       label: `${v.step.action === 'connect' ? 'Confirm plugged in' : 'Confirm unplugged'}: bus ${v.step.bus} ${v.step.action === 'connect' ? 'at' : 'from'} charger ${v.step.charger}`,
     };

@@ -86,7 +86,7 @@ export function tonight(overrides: Partial<Tonight> = {}): Tonight {
       step({ action: 'disconnect', bus: '201', charger: 'C1', at: at('23:00') }),
       step({ action: 'connect', bus: '202', charger: 'C1', at: at('23:30') }),
       step({ action: 'disconnect', bus: '202', charger: 'C1', at: at('02:00') }),
-      step({ action: 'disconnect', bus: '203', charger: 'C2', at: at('05:00') }),
+      step({ action: 'disconnect', bus: '203', charger: 'C2', at: at('05:00'), by: 'driver' }),
     ],
     acknowledged: true,
     reports: [],

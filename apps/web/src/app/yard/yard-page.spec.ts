@@ -73,6 +73,9 @@ describe('YardPage', () => {
     // C2's 22:00 plug-in is overdue: it waits in its own list; the card leads with what is next.
     const c2 = card('C2').querySelector('.next')!;
     expect(text(c2.querySelector('.sentence'))).toBe('Unplug bus 203 from charger C2 at 05:00');
+    // Who makes the move, as the run sheet says it: the driver pulling out here, the crew on C1.
+    expect(text(c2.querySelector('.by'))).toBe('By: Driver, on pulling out');
+    expect(text(card('C1').querySelector('.next .by'))).toBe('By: Crew');
     expect(text(c2)).toContain('High voltage: trained and authorised staff only');
     const overdue = card('C2').querySelector('.overdue-list')!;
     expect(text(overdue.querySelector('h3'))).toBe('warning Overdue on C2: 1');
