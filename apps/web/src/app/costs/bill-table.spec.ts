@@ -69,7 +69,7 @@ describe('BillTable', () => {
     expect(cells(el.querySelector('tr.grand-total'))).toBe('Total $1,086.09');
   });
 
-  it('exports the lines and the total with amounts as plain numbers', async () => {
+  it("exports the lines, each section's total and the bill total, amounts as plain numbers", async () => {
     const el = await render();
     const blobs: Blob[] = [];
     const create = vi.spyOn(URL, 'createObjectURL').mockImplementation((b) => (blobs.push(b as Blob), 'blob:x'));
@@ -78,8 +78,11 @@ describe('BillTable', () => {
     const lines = (await blobs[0]!.text()).split('\r\n');
     expect(lines[0]).toBe('Section,Charge,Quantity,Unit,Rate (USD),Amount (USD),Peak at (depot time),Note');
     expect(lines[1]).toBe('Energy,"Energy, off-peak",12000,kWh,0.068,816,,');
-    expect(lines[3]).toBe('Demand,Facility demand,185,kW,7.5,1387.5,2026-12-02 17:15,');
-    expect(lines[6]).toBe('Total,Bill total,13500.5,kWh,,2952.09,,');
+    expect(lines[3]).toBe('Energy,Energy total,13500.5,kWh,,1086.09,,');
+    expect(lines[4]).toBe('Demand,Facility demand,185,kW,7.5,1387.5,2026-12-02 17:15,');
+    // Each section's total as the page shows it, then the bill's: an amount, no quantity.
+    expect(lines[6]).toBe('Demand,Demand total,,,,1819.5,,');
+    expect(lines.slice(8, 10)).toEqual(['Fixed,Fixed charges total,,,,46.5,,', 'Total,Bill total,,,,2952.09,,']);
     create.mockRestore();
     click.mockRestore();
   });

@@ -139,11 +139,15 @@ export class BillTable {
     ];
     return {
       header: ['Section', 'Charge', 'Quantity', 'Unit', `Rate (${c})`, `Amount (${c})`, 'Peak at (depot time)', 'Note'],
+      // Each section's total as the page words it (the kWh on the energy total), then the bill's.
       rows: [
         ...b.energy.map((l, i) => row('Energy', l, energy[i]!)),
+        ['Energy', 'Energy total', Number(b.kwh.toFixed(3)), 'kWh', null, energyShown!, null, null],
         ...b.demand.map((l, i) => row('Demand', l, demand[i]!, l.peakAt)),
+        ['Demand', 'Demand total', null, null, null, demandShown!, null, null],
         ...b.fixed.map((l, i) => row('Fixed', l, fixed[i]!)),
-        ['Total', 'Bill total', Number(b.kwh.toFixed(3)), 'kWh', null, toCents(b.total), null, null],
+        ['Fixed', 'Fixed charges total', null, null, null, fixedShown!, null, null],
+        ['Total', 'Bill total', null, null, null, toCents(b.total), null, null],
       ],
     };
   });
