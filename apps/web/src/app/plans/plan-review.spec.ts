@@ -67,6 +67,25 @@ describe('plan review', () => {
     // $0.41 more than $20.00: 2.1 %, with its digit below 1 % (0.4 % read "-0 %").
     expect(card).toContain('Extra energy cost $0.41 (2 % more) against charge on arrival $20.00');
     expect(card).not.toContain('Energy saving');
+    // A plan made without the crew (older plans: no crewMoves) gives no reason it cannot know.
+    expect(card).not.toContain("crew's hours");
+  });
+
+  it("says why a plan with the crew's rules can pay more for energy than the baseline", async () => {
+    TestBed.configureTestingModule({ providers: [provideHttpClient(), provideHttpClientTesting()] });
+    const fixture = TestBed.createComponent(PlanReview);
+    const plan = planDetail();
+    const result = { ...plan.result!, crewMoves: 6, cost: { ...plan.result!.cost, energy: 20.04 } };
+    fixture.componentRef.setInput('plan', { ...plan, result } as typeof plan & { result: PlanResult });
+    fixture.componentRef.setInput('versions', [planSummary()]);
+    TestBed.tick();
+    await settle();
+    fixture.detectChanges();
+    const card = (fixture.nativeElement as HTMLElement).querySelector('.card')!.textContent!.replace(/\s+/g, ' ');
+    expect(card).toContain('Extra energy cost $0.04');
+    expect(card).toMatch(
+      /Charge on arrival does not keep to the crew's hours( or the demand target)?: it swaps buses whenever a charger frees up, whoever is in the yard/,
+    );
   });
 
   it('shows the short buses first with their reasons, and the figures', async () => {
