@@ -34,16 +34,14 @@ beforeAll(async () => {
   for (const date of ['2026-12-07', '2026-12-08']) await publishedPlan(app, sup, depotId, date);
 });
 
+/** The month's costs as finance reads them on Tuesday 1 December. */
+const monthCosts = async () =>
+  (await app.request().get(`/api/depots/${depotId}/costs/month`).query({ date: '2026-12-01' }).set(as(fin)).expect(200))
+    .body;
+
 describe('the month forecast', () => {
   it('forecasts the nights without a published plan, from their runs or the same weekday, and gives the bill a range', async () => {
-    const m = (
-      await app
-        .request()
-        .get(`/api/depots/${depotId}/costs/month`)
-        .query({ date: '2026-12-01' })
-        .set(as(fin))
-        .expect(200)
-    ).body;
+    const m = await monthCosts();
     const byDate = new Map<string, { needKwh: number; basis: string }>(
       m.forecast.map((n: { date: string }) => [n.date, n]),
     );
@@ -71,14 +69,7 @@ describe('the month forecast', () => {
   });
 
   it("counts the forecast nights' charging in the projected bill: more kWh than the plans and the building alone", async () => {
-    const m = (
-      await app
-        .request()
-        .get(`/api/depots/${depotId}/costs/month`)
-        .query({ date: '2026-12-01' })
-        .set(as(fin))
-        .expect(200)
-    ).body;
+    const m = await monthCosts();
     const forecastKwh = m.forecast.reduce((a: number, n: { needKwh: number }) => a + n.needKwh, 0);
     // Whatever the building draws, the bill's kWh hold at least the forecast nights' grid energy.
     expect(m.projected.kwh).toBeGreaterThan(forecastKwh);
@@ -87,14 +78,7 @@ describe('the month forecast', () => {
 
 describe('the month forecast under the demand target', () => {
   it('forecasts the nights nobody planned yet under the target, their energy whole (the shapes: month-forecast-shapes.spec.ts)', async () => {
-    const m = (
-      await app
-        .request()
-        .get(`/api/depots/${depotId}/costs/month`)
-        .query({ date: '2026-12-01' })
-        .set(as(fin))
-        .expect(200)
-    ).body;
+    const m = await monthCosts();
     expect(m.target.targets.map((t: { name: string }) => t.name)).toEqual(['facility', 'on-peak']);
     // Here the forecast puts back each next day's whole runs, more than the target's nights (the
     // batteries as planned) need: the excess goes above the target by the same kW in each demand

@@ -53,17 +53,22 @@ describe('plan review', () => {
     ]);
   });
 
-  it('says "Extra energy cost" where the plan pays more for energy than the baseline, not a negative saving', async () => {
+  /** The review of the fixture plan with `changes` to its result: the projected cost card's text. */
+  async function costCard(changes: Partial<PlanResult>): Promise<string> {
     TestBed.configureTestingModule({ providers: [provideHttpClient(), provideHttpClientTesting()] });
     const fixture = TestBed.createComponent(PlanReview);
     const plan = planDetail();
-    const result = { ...plan.result!, cost: { ...plan.result!.cost, energy: 20.41 } };
+    const result = { ...plan.result!, ...changes };
     fixture.componentRef.setInput('plan', { ...plan, result } as typeof plan & { result: PlanResult });
     fixture.componentRef.setInput('versions', [planSummary()]);
     TestBed.tick();
     await settle();
     fixture.detectChanges();
-    const card = (fixture.nativeElement as HTMLElement).querySelector('.card')!.textContent!.replace(/\s+/g, ' ');
+    return (fixture.nativeElement as HTMLElement).querySelector('.card')!.textContent!.replace(/\s+/g, ' ');
+  }
+
+  it('says "Extra energy cost" where the plan pays more for energy than the baseline, not a negative saving', async () => {
+    const card = await costCard({ cost: { ...planDetail().result!.cost, energy: 20.41 } });
     // $0.41 more than $20.00: 2.1 %, with its digit below 1 % (0.4 % read "-0 %").
     expect(card).toContain('Extra energy cost $0.41 (2 % more) against charge on arrival $20.00');
     expect(card).not.toContain('Energy saving');
@@ -72,16 +77,7 @@ describe('plan review', () => {
   });
 
   it("says why a plan with the crew's rules can pay more for energy than the baseline", async () => {
-    TestBed.configureTestingModule({ providers: [provideHttpClient(), provideHttpClientTesting()] });
-    const fixture = TestBed.createComponent(PlanReview);
-    const plan = planDetail();
-    const result = { ...plan.result!, crewMoves: 6, cost: { ...plan.result!.cost, energy: 20.04 } };
-    fixture.componentRef.setInput('plan', { ...plan, result } as typeof plan & { result: PlanResult });
-    fixture.componentRef.setInput('versions', [planSummary()]);
-    TestBed.tick();
-    await settle();
-    fixture.detectChanges();
-    const card = (fixture.nativeElement as HTMLElement).querySelector('.card')!.textContent!.replace(/\s+/g, ' ');
+    const card = await costCard({ crewMoves: 6, cost: { ...planDetail().result!.cost, energy: 20.04 } });
     expect(card).toContain('Extra energy cost $0.04');
     expect(card).toMatch(
       /Charge on arrival does not keep to the crew's hours( or the demand target)?: it swaps buses whenever a charger frees up, whoever is in the yard/,

@@ -177,7 +177,8 @@ describe('PlansStore', () => {
     mock.expectNone(`/api/plans/${GENERATING}`);
   });
 
-  it('keeps a refused publish as a conflict, and clears it on reload', async () => {
+  /** The draft opened, then publishing it refused with 409 and this error. */
+  async function publishRefused(code: string, message: string) {
     await start(PLAN_IDS.draft);
     mock.expectOne(LIST).flush({ plans: [planSummary()] });
     answerDepot();
@@ -188,11 +189,12 @@ describe('PlansStore', () => {
     expect(store.busy()).toBe('Publishing version 2');
     mock
       .expectOne(`/api/plans/${PLAN_IDS.draft}/publish`)
-      .flush(
-        { error: { code: 'published_meanwhile', message: 'Version 3 was published meanwhile' } },
-        { status: 409, statusText: 'Conflict' },
-      );
+      .flush({ error: { code, message } }, { status: 409, statusText: 'Conflict' });
     await publishing;
+  }
+
+  it('keeps a refused publish as a conflict, and clears it on reload', async () => {
+    await publishRefused('published_meanwhile', 'Version 3 was published meanwhile');
     expect(store.conflict()).toBe('Version 3 was published meanwhile');
     expect(store.problem()).toBeNull();
     expect(store.busy()).toBeNull();
@@ -211,20 +213,7 @@ describe('PlansStore', () => {
   });
 
   it('shows any other refused publish as the reason, not as someone else publishing', async () => {
-    await start(PLAN_IDS.draft);
-    mock.expectOne(LIST).flush({ plans: [planSummary()] });
-    answerDepot();
-    await tick();
-    mock.expectOne(`/api/plans/${PLAN_IDS.draft}`).flush({ plan: planDetail() });
-    await tick();
-    const publishing = store.publish(store.selected()!);
-    mock
-      .expectOne(`/api/plans/${PLAN_IDS.draft}/publish`)
-      .flush(
-        { error: { code: 'conflict', message: 'The plan is not finished yet: wait until it has been generated' } },
-        { status: 409, statusText: 'Conflict' },
-      );
-    await publishing;
+    await publishRefused('conflict', 'The plan is not finished yet: wait until it has been generated');
     expect(store.conflict()).toBeNull();
     expect(store.problem()).toBe('Not published. The plan is not finished yet: wait until it has been generated');
   });
