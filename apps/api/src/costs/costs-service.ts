@@ -161,7 +161,6 @@ interface SoFar {
   peaks: Peaks;
   /** How many of the series' intervals have begun. */
   begun: number;
-  elapsedDays: number;
 }
 
 /** The projected bill, its range and the savings: from the peaks so far and the demand target. */
@@ -449,7 +448,6 @@ function soFarOf(base: PeriodBase, depot: Depot, period: Period, nowMs: number):
     monthToDate,
     peaks: { facility, periods: [...periodPeaks].map(([name, p]) => ({ name, ...p })) },
     begun,
-    elapsedDays,
   };
   // Only the latest few moments are asked for again.
   if (base.soFar.size >= 4) base.soFar.delete(base.soFar.keys().next().value!);
@@ -463,8 +461,9 @@ const asOf = (series: SourcedInterval[], begun: number): SourcedInterval[] =>
 
 /**
  * The demand target as a cap on a forecast night's site load at each interval: the lowest target
- * that applies there (the facility's; the tariff period's where it has a demand charge). Nights not yet planned are then forecast as they will be planned, under
- * the peaks the target chose, not setting a peak no plan would (null: no target, no cap).
+ * that applies there (the facility's; the tariff period's where it has a demand charge). Nights
+ * not yet planned are then forecast as they will be planned, under the peaks the target chose,
+ * not setting a peak no plan would (undefined: no target, no cap).
  */
 function targetCap(base: PeriodBase, depot: Depot, target: PeriodTargetView | null) {
   if (!target || target.targets.length === 0) return undefined;

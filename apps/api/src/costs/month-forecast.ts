@@ -167,10 +167,15 @@ export function forecastShapes(
   night: ForecastNight,
   siteCapKw?: (t: number) => number,
 ): { cheapest: ChargingKw; even: ChargingKw } {
-  const capped = siteCapKw
-    ? night.slots.map((s) => ({ ...s, roomKw: Math.max(0, Math.min(s.roomKw, siteCapKw(s.t) - s.buildingKw)) }))
-    : night.slots;
-  const whole = (kw: ChargingKw) => (siteCapKw ? raiseLowest(night.slots, kw, night.gridKwh, siteCapKw) : kw);
+  if (!siteCapKw)
+    return { cheapest: fillCheapest(night.slots, night.gridKwh).kw, even: fillEvenly(night.slots, night.gridKwh) };
+  // Each interval's cap read once: both shapes, and what tops them up, use it.
+  const caps = night.slots.map((s) => siteCapKw(s.t));
+  const capped = night.slots.map((s, i) => ({
+    ...s,
+    roomKw: Math.max(0, Math.min(s.roomKw, caps[i]! - s.buildingKw)),
+  }));
+  const whole = (kw: ChargingKw) => raiseLowest(night.slots, kw, night.gridKwh, caps);
   return {
     cheapest: whole(fillCheapest(capped, night.gridKwh).kw),
     even: whole(fillEvenly(capped, night.gridKwh)),
@@ -225,13 +230,13 @@ function raiseLowest(
   slots: readonly ForecastSlot[],
   kw: ChargingKw,
   gridKwh: number,
-  siteCapKw: (t: number) => number,
+  capKw: readonly number[],
 ): ChargingKw {
   const left = gridKwh - sumKwh(kw);
   if (left <= 1e-9) return kw;
   const site = slots.map((s) => s.buildingKw + (kw.get(s.t) ?? 0));
   const top = slots.map((s) => s.buildingKw + s.roomKw);
-  const cap = slots.map((s, i) => Math.min(siteCapKw(s.t), top[i]!));
+  const cap = slots.map((_, i) => Math.min(capKw[i]!, top[i]!));
   const to = (excess: number) => site.map((v, i) => Math.max(v, Math.min(top[i]!, cap[i]! + excess)));
   const added = (excess: number) => to(excess).reduce((a, v, i) => a + (v - site[i]!) / 4, 0);
   let lo = 0;

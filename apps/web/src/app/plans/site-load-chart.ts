@@ -15,6 +15,8 @@ import {
 } from 'chart.js';
 import { BaseChartDirective, provideCharts } from 'ng2-charts';
 import { injectThemeColours } from '../shared/theme-colours';
+import { horizonOf } from '@nightyard/contracts/plan-horizon';
+import { spansDays } from '../yard/yard-format';
 import { clock, dayClock, money, num } from './plan-format';
 
 type Colors = Record<'load' | 'limit' | 'price' | 'text' | 'grid', string>;
@@ -27,9 +29,7 @@ const FALLBACK: Colors = { load: '#0d6b5e', limit: '#ba1a1a', price: '#c78a12', 
  */
 export function hourlyLoad(result: Pick<PlanResult, 'slots'>, timeZone: string) {
   const hours: { hour: string; loads: number[]; limit: number; prices: Set<number> }[] = [];
-  const first = result.slots[0];
-  const last = result.slots.at(-1);
-  const longerThanADay = !!first && !!last && Date.parse(last.start) - Date.parse(first.start) >= 24 * 3_600_000;
+  const longerThanADay = spansDays(horizonOf(result));
   for (const s of result.slots) {
     const time = longerThanADay ? dayClock(s.start, timeZone) : clock(s.start, timeZone);
     const hour = `${time.slice(0, -2)}00`;
