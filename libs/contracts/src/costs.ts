@@ -153,10 +153,14 @@ export const monthCostsSchema = z.object({
    */
   projected: billSchema,
   /**
-   * The projected bill's range while some nights are forecast (null when none is): the bill with
-   * those nights charged in their cheapest intervals and spread evenly over the night, a night
-   * still to come under the demand target (`target`) as its plan will be. The projected bill
-   * itself takes the even spread.
+   * The projected bill's range while some nights are forecast (null when none is). Each forecast
+   * night puts back the next service day's runs. A night still to come, where there is a demand
+   * target (`target`), draws that energy in the intervals the target's own calculation charged it
+   * (bus by bus from battery, under the target): its charging, with what it leaves in the
+   * cheapest room under the target, is one end of the range; the same energy spread evenly over
+   * the intervals with a bus at the depot the other. Any other night draws it between the last
+   * bus home and the first out, in its cheapest intervals or spread evenly (under the target where
+   * there is one). The projected bill itself takes the even spread.
    */
   projectedRange: z.object({ low: z.number(), high: z.number() }).nullable(),
   /** Nights without a published plan, forecast from the service calendar. */

@@ -92,6 +92,7 @@ export {
   planUnderTarget,
   type PeriodNight,
   type PeriodTarget,
+  type NightCharging,
   type DemandTarget,
   type TargetMarginal,
   type TargetBinding,

@@ -237,6 +237,33 @@ describe('billing-period demand target', () => {
     });
   }
 
+  it("gives each night's charging, which is that night solved on its own under the target (merged nights too)", () => {
+    const merged = periods.find((p) => p.blocks)!;
+    const nights = nightsOf(merged.nights);
+    const target = solvePeriodTarget(nights, solver);
+    const facility = target.targets.find((t) => t.name === 'facility')!;
+    expect(target.charging).toHaveLength(nights.length);
+    let total = 0;
+    nights.forEach((n, i) => {
+      const problem = prepareProblem(n.scenario);
+      const bySlot = new Map(problem.slots.map((s) => [s.startMs, s]));
+      const charging = target.charging[i]!;
+      expect(charging.slotMinutes).toBe(n.scenario.slotMinutes);
+      // The night's own times (alike nights share a block of the LP, not their dates).
+      expect(charging.slots[0]!.startMs).toBeGreaterThanOrEqual(problem.slots[0]!.startMs);
+      let cost = 0;
+      for (const c of charging.slots) {
+        const slot = bySlot.get(c.startMs)!;
+        expect(c.kw + slot.otherKw).toBeLessThanOrEqual(Math.min(facility.kw, slot.limitKw) + 1e-6);
+        cost += slot.price * problem.slotHours * c.kw;
+      }
+      // The independent check: the night alone, its site held at the target (the brute force's model).
+      expect(cost).toBeCloseTo(nightAtCap(n.scenario, [facility]).penalised, 2);
+      total += cost;
+    });
+    expect(total).toBeCloseTo(target.cost.energy, 2);
+  });
+
   function bruteBillAt(nights: PeriodNight[], f: number, rate = 7.5) {
     const caps = [{ name: 'facility', kw: f, peakSoFarKw: 60, rate }];
     return rate * Math.max(0, f - 60) + nights.reduce((a, n) => a + nightAtCap(n.scenario, caps).penalised, 0);

@@ -71,7 +71,18 @@ export interface PeriodTarget {
   binding: TargetBinding | null;
   marginal: TargetMarginal[];
   impossible: TargetImpossible[];
+  /**
+   * Each night's charging in the LP's optimum, in the nights' order: grid kW by slot, for the
+   * slots with a bus at the depot. The night as it would be planned under the target before the
+   * chargers are shared out: a forecast of the nights nobody has planned yet on the same model.
+   */
+  charging: NightCharging[];
   stats: { nights: number; columns: number; rows: number; iterations: number; ms: number };
+}
+
+export interface NightCharging {
+  slotMinutes: number;
+  slots: { startMs: number; kw: number }[];
 }
 
 /** The shared peak columns of the period LP. */
@@ -297,6 +308,19 @@ function partsOf(pm: PeriodModel, x: Float64Array): { energy: number; short: num
   return { energy, short };
 }
 
+/** Each night's charging load (the L columns of its block) where a bus is at the depot. */
+function chargingOf(pm: PeriodModel, x: Float64Array): NightCharging[] {
+  return pm.problems.map((p, i) => {
+    const m = pm.models[i]!;
+    const b = pm.base[i]!;
+    const slots: NightCharging['slots'] = [];
+    for (let t = 0; t < p.slotCount; t++)
+      if (p.present[t]! > 0)
+        slots.push({ startMs: p.slots[t]!.startMs, kw: Math.max(0, round(x[b + m.loadCol[t]!]!)) });
+    return { slotMinutes: p.slotHours * 60, slots };
+  });
+}
+
 const clock = (ms: number, zone: string) => DateTime.fromMillis(ms, { zone }).toFormat('HH:mm');
 
 /** The interval that sets a shared peak: the demand row carrying the largest dual. */
@@ -450,6 +474,7 @@ export function solvePeriodTarget(
       binding,
       marginal,
       impossible,
+      charging: chargingOf(pm, result.x),
       stats: { nights: nights.length, columns: pm.lp.numCols, rows: pm.lp.numRows, iterations, ms: round(ms, 1) },
     };
   } finally {

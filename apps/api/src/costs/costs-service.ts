@@ -9,7 +9,14 @@ import {
   type PlanResult,
   type RatePlanDefinition,
 } from '@nightyard/contracts';
-import { computeBill, quarterHours, ratePlanPeriodAtMs, type Bill, type IntervalDemand } from '@nightyard/scheduling';
+import {
+  computeBill,
+  quarterHours,
+  ratePlanPeriodAtMs,
+  type Bill,
+  type IntervalDemand,
+  type NightCharging,
+} from '@nightyard/scheduling';
 import type { Db } from '../db/client';
 import { billingPeaks, buses, meterIntervals, plans, runs } from '../db/schema';
 import { DomainError, notFound } from '../http/errors';
@@ -24,7 +31,16 @@ import { ratchetBaseOf } from './ratchet-base';
 import { MonthCostsCache, monthInputs, type MonthInputs } from './month-cache';
 import type { NotifiedCache } from '../db/notified-cache';
 import { guessDepot, rememberDepot } from '../depots/depot-guess';
-import { buildingKwAt, forecastNights, forecastShapes, type ChargingKw, type ForecastNight } from './month-forecast';
+import {
+  buildingKwAt,
+  forecastNights,
+  forecastShapes,
+  forecastSlot,
+  targetShapes,
+  type ChargingKw,
+  type ForecastNight,
+  type ForecastSlot,
+} from './month-forecast';
 
 const SLOT_MS = 15 * 60_000;
 /** As the bill engine: a later interval equal but for floating-point noise does not move a peak's date. */
@@ -202,19 +218,38 @@ function comparedNight(result: PlanResult, fromMs: number, toMs: number) {
   return { kind, baselineKw, planEnergy, baselineEnergy, baselinePeak };
 }
 
+/** The period's demand target as the month's projection reads it. */
+interface MonthTarget {
+  view: PeriodTargetView;
+  /** The period LP's charging of each night it covered, by service date. */
+  charging: Map<string, NightCharging>;
+}
+
+/** How the nights not yet begun at `fromMs` are forecast: under the demand target. */
+interface UnderTarget {
+  fromMs: number;
+  /** The site-load cap by interval (the lowest target that applies there). */
+  capKw: (t: number) => number;
+  /** The target LP's charging of a night, where it covered it (see `targetShapes`). */
+  charging: Map<string, NightCharging>;
+  slotOf: (t: number) => ForecastSlot;
+}
+
 /**
- * The forecast nights' charging, both shapes, summed by interval. `capKw` holds the nights not yet
- * begun at `fromMs` under the demand target (a night under way keeps its shape: its energy whole).
+ * The forecast nights' charging, both shapes, summed by interval. Under a target, a night not yet
+ * begun is charged as the target's LP charged it, else held under the target's cap; a night under
+ * way keeps its shape (its energy whole).
  */
 function forecastCharging(
   nights: readonly ForecastNight[],
-  capKw?: (t: number) => number,
-  fromMs = -Infinity,
+  under?: UnderTarget,
 ): { even: ChargingKw; cheapest: ChargingKw } {
   const even: ChargingKw = new Map();
   const cheapest: ChargingKw = new Map();
   for (const n of nights) {
-    const shapes = forecastShapes(n, capKw && (n.slots[0]?.t ?? -Infinity) >= fromMs ? capKw : undefined);
+    const toCome = under && (n.slots[0]?.t ?? -Infinity) >= under.fromMs ? under : undefined;
+    const lp = toCome?.charging.get(n.date);
+    const shapes = lp ? targetShapes(n, lp, toCome!.slotOf, toCome!.capKw) : forecastShapes(n, toCome?.capKw);
     for (const [t, v] of shapes.even) even.set(t, (even.get(t) ?? 0) + v);
     for (const [t, v] of shapes.cheapest) cheapest.set(t, (cheapest.get(t) ?? 0) + v);
   }
@@ -243,7 +278,7 @@ interface PeriodBase {
   /** The bills and peaks that depend on how much of the period has passed (see `soFarOf`). */
   soFar: Map<string, SoFar>;
   /** The projection from each moment's peaks so far, under the demand target it was given. */
-  projections: WeakMap<SoFar, { target: PeriodTargetView | null; value: Projection }>;
+  projections: WeakMap<SoFar, { target: MonthTarget | null; value: Projection }>;
 }
 
 /** One per process; exported so tests can compare against a fresh computation. */
@@ -465,15 +500,17 @@ const asOf = (series: SourcedInterval[], begun: number): SourcedInterval[] =>
  * not yet planned are then forecast as they will be planned, under the peaks the target chose,
  * not setting a peak no plan would (undefined: no target, no cap).
  */
-function targetCap(base: PeriodBase, depot: Depot, target: PeriodTargetView | null) {
-  if (!target || target.targets.length === 0) return undefined;
-  const byName = new Map(target.targets.map((t) => [t.name, t.kw]));
+function underTarget(base: PeriodBase, depot: Depot, target: MonthTarget | null, fromMs: number) {
+  if (!target || target.view.targets.length === 0) return undefined;
+  const byName = new Map(target.view.targets.map((t) => [t.name, t.kw]));
   const facilityKw = byName.get('facility') ?? Infinity;
-  return (t: number) => {
+  const capKw = (t: number) => {
     const p = ratePlanPeriodAtMs(base.rate.definition, t, depot.timezone);
     const periodKw = p.offPeak || p.demandCharge <= 0 ? Infinity : (byName.get(p.period) ?? Infinity);
     return Math.min(facilityKw, periodKw);
   };
+  const slotOf = (t: number) => forecastSlot(depot, base.rate.definition, t);
+  return { fromMs, capKw, charging: target.charging, slotOf } satisfies UnderTarget;
 }
 
 /**
@@ -486,14 +523,14 @@ function projectionOf(
   depot: Depot,
   period: Period,
   soFar: SoFar,
-  target: PeriodTargetView | null,
+  target: MonthTarget | null,
 ): Projection {
   const known = base.projections.get(soFar);
   if (known && known.target === target) return known.value;
   const { rate, recordedPeaksKw, ratchetBase } = base;
   const options = { zone: depot.timezone, intervalMinutes: 15, days: period.days, recordedPeaksKw, ratchetBase };
   const nowMs = base.series[soFar.begun]?.startMs ?? period.end.toMillis();
-  const charging = forecastCharging(base.forecastNights, targetCap(base, depot, target), nowMs);
+  const charging = forecastCharging(base.forecastNights, underTarget(base, depot, target, nowMs));
   const series = asOf(base.seriesWith(charging.even), soFar.begun);
   const projected = computeBill(rate.definition, series, options);
   const projectedRange = base.forecastNights.length
@@ -662,7 +699,7 @@ export async function monthCosts(
       co2KgAvoided: round2(gallons * DIESEL_CO2_KG_PER_GALLON),
       source: EMISSIONS_SOURCE,
     },
-    target,
+    target: target?.view ?? null,
   } satisfies MonthCosts);
   if (cache) {
     const text = Buffer.from(JSON.stringify(answer));
@@ -683,7 +720,7 @@ const monthAnswers = new Map<
     miles: number;
     mpg: number;
     withoutPlan: number;
-    target: PeriodTargetView | null;
+    target: MonthTarget | null;
     answer: MonthCosts;
     text: Buffer;
   }
@@ -691,7 +728,7 @@ const monthAnswers = new Map<
 const MAX_MONTH_ANSWERS = 200;
 
 /** The last demand target per depot and period, with the inputs' version and night it came from. */
-const monthTargets = new Map<string, { stamp: string; target: PeriodTargetView | null }>();
+const monthTargets = new Map<string, { stamp: string; target: MonthTarget | null }>();
 
 /**
  * The period's demand target over its nights left (from the night under way, or from the start of
@@ -707,7 +744,7 @@ async function monthTargetOf(
   now: Date,
   version: string | undefined,
   peaksSoFar: Peaks,
-): Promise<PeriodTargetView | null> {
+): Promise<MonthTarget | null> {
   // "Which night" from the one night model: the night under way, else the next one.
   const night = (await nightOfDepot(db, depot, now)).tonight.serviceDate;
   const tonight = DateTime.fromISO(night, { zone: depot.timezone }).startOf('day');
@@ -722,9 +759,13 @@ async function monthTargetOf(
   const stamp = `${version ?? ''}|${from}|${depot.serviceLimitKw}|${depot.otherLoadKw.join(',')}|${JSON.stringify(floor)}`;
   const kept = version ? monthTargets.get(key) : undefined;
   if (kept && kept.stamp === stamp) return kept.target;
-  let target: PeriodTargetView | null = null;
+  let target: MonthTarget | null = null;
   try {
-    target = (await periodTargetFrom(db, caller, depot.id, from, undefined, { floor }))?.view ?? null;
+    const solved = await periodTargetFrom(db, caller, depot.id, from, undefined, { floor });
+    target = solved && {
+      view: solved.view,
+      charging: new Map(solved.dates.map((date, i) => [date, solved.target.charging[i]!])),
+    };
   } catch (err) {
     // No target (no rate plan for a night, an engine failure) leaves the month as it was; only a
     // database gone away is the request's failure.

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { forecastShapes, type ChargingKw, type ForecastNight } from './month-forecast';
+import { forecastShapes, targetShapes, type ChargingKw, type ForecastNight, type ForecastSlot } from './month-forecast';
 
 // A forecast night's two shapes under the demand target (hand-worked figures, invented night).
 const Q = 900_000;
@@ -55,5 +55,47 @@ describe('forecast shapes', () => {
       expect(kwh(shape)).toBeCloseTo(24, 6);
       siteKw(n, shape).forEach((kw, i) => expect(kw).toBeCloseTo(i < 2 ? 24 : 44, 6));
     }
+  });
+
+  // A night the target's LP charged, in 30-minute slots with a bus at the depot in three: 20 kW, 0
+  // and 20 kW (20 kWh), in 15-minute intervals 20, 20, 0, 0, 20, 20 kW. The building draws 10 kW;
+  // prices fall through the night, so the cheapest intervals are the last.
+  const slotOf = (t: number): ForecastSlot => ({ t, price: 0.2 - (t / Q) * 0.01, buildingKw: 10, roomKw: 90 });
+  const lp = { slotMinutes: 30, slots: [20, 0, 20].map((kw, i) => ({ startMs: i * 2 * Q, kw })) };
+
+  it("a night the target's LP charged keeps the runs' energy where the LP put its charging, the rest in the cheapest room under the cap", () => {
+    // The runs need 26 kWh, 6 more than the LP charged. A 50 kW cap leaves 40 kW of room, 20 kW
+    // beside the LP's 20: the cheapest interval, the last, takes 20 kW more (5 kWh), the one before
+    // it 4 kW (1 kWh). Spread evenly: 26 x 4 / 6 kW in each.
+    const { cheapest, even } = targetShapes(night([10], 26), lp, slotOf, () => 50);
+    expect([...cheapest.entries()]).toEqual([
+      [0, 20],
+      [Q, 20],
+      [2 * Q, 0],
+      [3 * Q, 0],
+      [4 * Q, 24],
+      [5 * Q, 40],
+    ]);
+    for (const v of even.values()) expect(v).toBeCloseTo(26 / 1.5, 9);
+  });
+
+  it("a night the target's LP charged more than the runs use: its charging scaled down", () => {
+    const { cheapest } = targetShapes(night([10], 10), lp, slotOf, () => 50);
+    expect([...cheapest.values()]).toEqual([10, 10, 0, 0, 10, 10]);
+  });
+
+  it("a night the target's LP charged, with more energy than fits under the cap: the lowest site loads rise first", () => {
+    // A 30 kW cap leaves 20 kW of room: 6 x 20 / 4 = 30 kWh fit under it. 36 kWh lift all six
+    // intervals the same 4 kW above it, in both shapes: 24 kW of charging, 34 kW at the site.
+    for (const shape of Object.values(targetShapes(night([10], 36), lp, slotOf, () => 30))) {
+      expect(shape.size).toBe(6);
+      for (const v of shape.values()) expect(v).toBeCloseTo(24, 6);
+    }
+  });
+
+  it("a night the target's LP charged in 5-minute slots: each interval takes the mean of its three", () => {
+    const five = { slotMinutes: 5, slots: [30, 60, 0].map((kw, i) => ({ startMs: (i * Q) / 3, kw })) };
+    const { cheapest } = targetShapes(night([0], 7.5), five, slotOf, () => 100);
+    expect([...cheapest.entries()]).toEqual([[0, 30]]);
   });
 });

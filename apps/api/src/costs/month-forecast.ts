@@ -1,7 +1,7 @@
 import { and, eq, gte, lt } from 'drizzle-orm';
 import { DateTime } from 'luxon';
 import type { RatePlanDefinition } from '@nightyard/contracts';
-import { localParts, ratePlanPeriodAtMs } from '@nightyard/scheduling';
+import { localParts, ratePlanPeriodAtMs, type NightCharging } from '@nightyard/scheduling';
 import type { Db } from '../db/client';
 import { buses, runs } from '../db/schema';
 
@@ -47,6 +47,20 @@ export interface ForecastSlot {
 /** Charging kW per interval, by interval start. */
 export type ChargingKw = Map<number, number>;
 
+/** The depot as a forecast reads it. */
+export type ForecastDepot = { id: string; timezone: string; serviceLimitKw: number; otherLoadKw: number[] };
+
+/** One interval of a forecast night: its price, the building's load and the room left under the service limit. */
+export function forecastSlot(depot: ForecastDepot, rate: RatePlanDefinition, t: number): ForecastSlot {
+  const buildingKw = buildingKwAt(depot.otherLoadKw, t, depot.timezone);
+  return {
+    t,
+    price: ratePlanPeriodAtMs(rate, t, depot.timezone).price,
+    buildingKw,
+    roomKw: Math.max(0, depot.serviceLimitKw - buildingKw),
+  };
+}
+
 /** Each entered service day around the period, with its energy from kWh or miles x the bus's kWh per mile. */
 async function serviceDaysAround(db: Db, depotId: string, from: string, to: string): Promise<ServiceDay[]> {
   const rows = await db
@@ -85,7 +99,7 @@ async function serviceDaysAround(db: Db, depotId: string, from: string, to: stri
  */
 export async function forecastNights(
   db: Db,
-  depot: { id: string; timezone: string; serviceLimitKw: number; otherLoadKw: number[] },
+  depot: ForecastDepot,
   period: { start: DateTime; end: DateTime },
   rate: RatePlanDefinition,
   planned: Set<string>,
@@ -136,15 +150,7 @@ export async function forecastNights(
     const to = Math.floor(next.day.firstPullOutMs / SLOT_MS) * SLOT_MS;
     if (to <= from) continue;
     const slots: ForecastSlot[] = [];
-    for (let t = from; t < to; t += SLOT_MS) {
-      const buildingKw = buildingKwAt(depot.otherLoadKw, t, zone);
-      slots.push({
-        t,
-        price: ratePlanPeriodAtMs(rate, t, zone).price,
-        buildingKw,
-        roomKw: Math.max(0, depot.serviceLimitKw - buildingKw),
-      });
-    }
+    for (let t = from; t < to; t += SLOT_MS) slots.push(forecastSlot(depot, rate, t));
     nights.push({
       date,
       needKwh: next.day.kwh,
@@ -180,6 +186,54 @@ export function forecastShapes(
     cheapest: whole(fillCheapest(capped, night.gridKwh).kw),
     even: whole(fillEvenly(capped, night.gridKwh)),
   };
+}
+
+/**
+ * A night the demand target's LP charged. The LP plans each bus from its battery, from when it is
+ * home to when it leaves, under the target; but it takes each morning's battery at its ceiling,
+ * so its energy is not the month's: over a month the chargers put back what the runs use. So the
+ * night keeps the energy of the next day's runs (`gridKwh`), placed where the LP put its charging:
+ * the cheapest shape is the LP's charging (scaled down where it is more than the runs use), what
+ * the runs need beyond it in the cheapest room left under the cap; the even shape spreads it over
+ * the intervals with a bus at the depot. What does not fit under the cap goes above it as little
+ * as it can (`raiseLowest`), as in `forecastShapes`.
+ */
+export function targetShapes(
+  night: ForecastNight,
+  charging: NightCharging,
+  slotOf: (t: number) => ForecastSlot,
+  siteCapKw: (t: number) => number,
+): { cheapest: ChargingKw; even: ChargingKw } {
+  const lp = quarterHoursOf(charging);
+  const slots = [...lp.keys()].sort((a, b) => a - b).map(slotOf);
+  if (!slots.length) return forecastShapes(night, siteCapKw);
+  const caps = slots.map((s) => siteCapKw(s.t));
+  const lpKwh = sumKwh(lp);
+  const scale = lpKwh > night.gridKwh ? night.gridKwh / lpKwh : 1;
+  const placed: ChargingKw = new Map([...lp].map(([t, kw]) => [t, kw * scale]));
+  const room = slots.map((s, i) => ({
+    ...s,
+    roomKw: Math.max(0, Math.min(s.roomKw, caps[i]! - s.buildingKw) - placed.get(s.t)!),
+  }));
+  for (const [t, kw] of fillCheapest(room, night.gridKwh - sumKwh(placed)).kw) placed.set(t, placed.get(t)! + kw);
+  return {
+    cheapest: raiseLowest(slots, placed, night.gridKwh, caps),
+    even: forecastShapes({ ...night, slots }, siteCapKw).even,
+  };
+}
+
+/** A plan's charging in the bill's 15-minute intervals, whatever its slot length: each slot's energy goes to the intervals it overlaps. */
+function quarterHoursOf(charging: NightCharging): ChargingKw {
+  const kw: ChargingKw = new Map();
+  const slotMs = charging.slotMinutes * 60_000;
+  for (const s of charging.slots) {
+    const end = s.startMs + slotMs;
+    for (let t = Math.floor(s.startMs / SLOT_MS) * SLOT_MS; t < end; t += SLOT_MS) {
+      const overlap = Math.min(end, t + SLOT_MS) - Math.max(s.startMs, t);
+      kw.set(t, (kw.get(t) ?? 0) + (s.kw * overlap) / SLOT_MS);
+    }
+  }
+  return kw;
 }
 
 /** Cheapest intervals first, each up to its room; with the kWh that did not fit. */

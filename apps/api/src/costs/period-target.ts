@@ -134,14 +134,23 @@ export async function periodNightsOf(
     let basis: PeriodNight['basis'] = 'runs';
     if (own && own.date === date) input = own.scenario;
     else if (enteredSet.has(date)) input = await fromRuns(date);
-    else if (date > lastEntered && d.weekday <= 5) {
-      // A weekday past the last one entered: the latest entered night of its weekday, moved here,
-      // on this night's own site, limits and tariff.
-      const like = entered.filter((e) => e < date && DateTime.fromISO(e, { zone }).weekday === d.weekday).at(-1);
-      const likeNight = like ? await fromRuns(like) : null;
-      if (likeNight) {
-        const days = Math.round(d.diff(DateTime.fromISO(like!, { zone }), 'days').days);
-        const moved = shiftScenario(likeNight, days);
+    // A weekday past the last one entered, or the last entered day whose next service day is not
+    // entered yet (a Friday's night runs to Monday): the latest night of its weekday that can be
+    // built from its runs, moved here, on this night's own site, limits and tariff.
+    if (!input && date >= lastEntered && d.weekday <= 5) {
+      let like: { date: string; night: ScenarioInput } | null = null;
+      for (const e of entered
+        .filter((x) => x < date && DateTime.fromISO(x, { zone }).weekday === d.weekday)
+        .reverse()) {
+        const night = await fromRuns(e);
+        if (night) {
+          like = { date: e, night };
+          break;
+        }
+      }
+      if (like) {
+        const days = Math.round(d.diff(DateTime.fromISO(like.date, { zone }), 'days').days);
+        const moved = shiftScenario(like.night, days);
         try {
           const base = await buildScenarioBase(db, caller, depotId, moved.start, moved.end, { periodPeaks: false });
           input = { ...base.scenario, buses: moved.buses } as ScenarioInput;
@@ -230,7 +239,7 @@ export async function periodTargetFrom(
   fromDate: string,
   own?: { date: string; scenario: ScenarioInput | Scenario },
   options: { marginal?: boolean; floor?: PeaksFloor } = {},
-): Promise<{ target: PeriodTarget; view: PeriodTargetView } | null> {
+): Promise<{ target: PeriodTarget; view: PeriodTargetView; dates: string[] } | null> {
   const { nights, ratchet } = await periodNightsOf(db, caller, depotId, fromDate, own, options.floor);
   if (!nights.length) return null;
   const target = await solveNights(
@@ -238,5 +247,6 @@ export async function periodTargetFrom(
     options.marginal ?? true,
   );
   if (!target.targets.length) return null;
-  return { target, view: targetView(target, nights, ratchet) };
+  // The service date of each night, in the order of the target's per-night parts (`charging`).
+  return { target, view: targetView(target, nights, ratchet), dates: nights.map((n) => n.date) };
 }

@@ -171,8 +171,11 @@ describe('CostsPage', () => {
       '2 nights are forecast: between $2,801.50 and $2,952.09.',
     );
     const sources = text(el.querySelector('.sources'));
-    expect(sources).toContain('2 nights are forecast:');
+    expect(sources).toContain('2 nights are forecast from the runs');
     expect(sources).toContain('the latest entered day of the same weekday');
+    expect(sources).toContain(
+      "a night still to come draws it in the hours the target's own calculation charged that night",
+    );
     expect(sources).not.toContain('no published plan yet');
   });
 
