@@ -68,8 +68,15 @@ describe('service day', () => {
       (r: { busNumber: string; pullOut: string }) => r.busNumber === '11' && r.pullOut.endsWith('06:10'),
     );
     expect(first.energyKwh).toBeCloseTo(30 * 1.2 * 1.25, 6);
-    // Bus 11 (196 kWh) leaves at 90 % and uses 45 kWh: 90 - 45/196*100 = 67.0 %.
-    expect(first.estimatedArrivalSocPct).toBeCloseTo(67.0, 1);
+    // Without a reading, bus 11 (196 kWh, reserve 15 %) is taken to leave as a plan leaves it: with
+    // its reserve and the day's runs, 45 + 42 kWh: 15 + 87/196*100 = 59.39 % (below its 90 %
+    // ceiling). Its first run uses 45 kWh: 59.39 - 45/196*100 = 36.4 % on arrival.
+    expect(first.estimatedArrivalSocPct).toBeCloseTo(36.4, 1);
+    const second = res.body.runs.find(
+      (r: { busNumber: string; pullOut: string }) => r.busNumber === '11' && r.pullOut.endsWith('14:10'),
+    );
+    // After the afternoon run it is back at its reserve: what the night must put back is the next day's runs.
+    expect(second.estimatedArrivalSocPct).toBeCloseTo(15, 1);
   });
 
   it('refuses a run that ends before it starts, a bus on two runs at once, SOC over 100 %, and saves nothing', async () => {

@@ -23,6 +23,17 @@ export function runEnergyKwh(
   return Math.round((run.miles ?? 0) * bus.kwhPerMile * factor * 100) / 100;
 }
 
+/**
+ * A bus's state of charge (%) as it pulled out in the morning, when no reading says otherwise: its
+ * reserve and the energy of the day's runs, which is what a plan leaves it with at the least (it
+ * plans each bus to leave with its next day's runs and its reserve), capped at its ceiling. Taking
+ * the ceiling instead would plan too little for a bus that left with only what its runs needed: the
+ * estimate errs towards needing more energy, not less.
+ */
+export function morningSocPct(bus: { ceilingPct: number; reservePct: number; usableKwh: number }, dayKwh: number) {
+  return Math.min(bus.ceilingPct, bus.reservePct + (dayKwh / bus.usableKwh) * 100);
+}
+
 export async function getServiceDay(db: Db, caller: AuthUser, depotId: string, date: string): Promise<ServiceDay> {
   const depot = await depotOf(db, caller, depotId);
   const [day] = await db
@@ -38,12 +49,14 @@ export async function getServiceDay(db: Db, caller: AuthUser, depotId: string, d
     .where(and(eq(runs.depotId, depotId), eq(runs.serviceDate, date)))
     .orderBy(asc(buses.number), asc(runs.pullOut));
   const local = (d: Date) => DateTime.fromJSDate(d, { zone: depot.timezone }).toFormat(LOCAL);
-  // Without a reading, a bus is assumed to leave at its ceiling in the morning and to get no
-  // charge between runs: the estimate errs towards needing more energy, not less.
+  // Without a reading, a bus is assumed to leave in the morning as a plan leaves it (`morningSocPct`)
+  // and to get no charge between runs: the estimate errs towards needing more energy, not less.
+  const dayKwh = new Map<string, number>();
+  for (const { run, bus } of rows) dayKwh.set(bus.id, (dayKwh.get(bus.id) ?? 0) + runEnergyKwh(run, bus, factor));
   const soc = new Map<string, number>();
   const out = rows.map(({ run, bus }) => {
     const energyKwh = runEnergyKwh(run, bus, factor);
-    const before = soc.get(bus.id) ?? bus.ceilingPct;
+    const before = soc.get(bus.id) ?? morningSocPct(bus, dayKwh.get(bus.id)!);
     const estimated = Math.max(0, Math.round((before - (energyKwh / bus.usableKwh) * 100) * 10) / 10);
     soc.set(bus.id, run.arrivalSocPct ?? estimated);
     return {

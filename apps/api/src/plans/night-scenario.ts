@@ -7,7 +7,7 @@ import { buses, runs, serviceDays } from '../db/schema';
 import { DomainError } from '../http/errors';
 import type { AuthUser } from '../auth/auth-user';
 import { depotOf } from '../depots/depot-access';
-import { runEnergyKwh } from '../fleet/service-day-service';
+import { morningSocPct, runEnergyKwh } from '../fleet/service-day-service';
 import { buildScenarioBase } from '../scenarios/scenario-base';
 import { datePlace } from '../night/depot-night';
 
@@ -175,14 +175,17 @@ export async function buildNightScenario(
   return { scenario, notes, nextServiceDate: next.date };
 }
 
-/** Arrival state of charge from the morning ceiling less the runs' energy (see service day). */
+/** Arrival state of charge: the morning's estimate (`morningSocPct`) less the runs' energy (as the service day shows it). */
 function estimateArrivalSoc(
   today: { run: { id: string; kwh: number | null; miles: number | null; arrivalSocPct: number | null } }[],
   runId: string,
-  bus: { ceilingPct: number; usableKwh: number; kwhPerMile: number },
+  bus: { ceilingPct: number; reservePct: number; usableKwh: number; kwhPerMile: number },
   factor: number,
 ): number {
-  let soc = bus.ceilingPct;
+  let soc = morningSocPct(
+    bus,
+    today.reduce((a, { run }) => a + runEnergyKwh(run, bus, factor), 0),
+  );
   for (const { run } of today) {
     soc = run.arrivalSocPct ?? Math.max(0, soc - (runEnergyKwh(run, bus, factor) / bus.usableKwh) * 100);
     if (run.id === runId) return Math.round(soc * 10) / 10;

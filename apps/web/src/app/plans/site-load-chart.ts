@@ -20,6 +20,8 @@ import { spansDays } from '../yard/yard-format';
 import { clock, dayClock, money, num } from './plan-format';
 
 type Colors = Record<'load' | 'limit' | 'price' | 'text' | 'grid', string>;
+/** The kW axis reaches a quarter above the highest load or limit (see `options`). */
+const KW_HEADROOM = 1.25;
 const FALLBACK: Colors = { load: '#0d6b5e', limit: '#ba1a1a', price: '#c78a12', text: '#444', grid: '#ccc' };
 
 /**
@@ -143,7 +145,12 @@ export class SiteLoadChart {
   protected readonly options = computed<ChartConfiguration<'bar' | 'line'>['options']>(() => {
     const c = this.colors();
     const currency = this.currency();
-    const labels = this.result().slots.map((s) => clock(s.start, this.timezone()));
+    const slots = this.result().slots;
+    const labels = slots.map((s) => clock(s.start, this.timezone()));
+    // Each axis scales to its own data, so the highest price and the service limit both came out
+    // at the top and the price line drew over the limit. The kW axis now leaves a quarter above
+    // its highest value: the limit sits at four fifths of the height at most, the top price above it.
+    const kwMax = Math.max(0, ...slots.map((s) => Math.max(s.limitKw, s.loadKw))) * KW_HEADROOM;
     return {
       responsive: true,
       maintainAspectRatio: false,
@@ -177,6 +184,7 @@ export class SiteLoadChart {
           type: 'linear',
           position: 'left',
           beginAtZero: true,
+          suggestedMax: kwMax,
           title: { display: true, text: 'kW', color: c.text },
           ticks: { color: c.text },
           grid: { color: c.grid },
