@@ -269,6 +269,40 @@ describe('plans', () => {
     expect(row!.notes.join(' ')).toMatch(/Bus 11 has a reading at its last pull-in/);
   });
 
+  it("without a reading, a bus is taken to have left as a plan leaves it: the night puts back the next day's runs", async () => {
+    // A depot of its own: another service day on the shared one would change its next service day.
+    const org = await createOrganisation(app, { s: ['supervisor'] });
+    const s = org.users.s!;
+    const depot = (await createDepot(app.db, org.organisationId)).depot.id;
+    await addBuses(app.db, org.organisationId, depot, NUMBERS);
+    for (const date of ['2026-12-21', '2026-12-22'])
+      await app
+        .request()
+        .put(`/api/depots/${depot}/service-days/${date}`)
+        .set(as(s))
+        .send({ runs: dayRuns(date, NUMBERS) })
+        .expect(200);
+    const res = await app
+      .request()
+      .post(`/api/depots/${depot}/plans`)
+      .set(as(s))
+      .send({ serviceDate: '2026-12-21' })
+      .expect(202);
+    const done = await finished(res.body.plan.id, s);
+    const [row] = await app.db.select().from(plans).where(eq(plans.id, res.body.plan.id));
+    const bus = row!.scenario.buses.find((b) => b.id === '11')!;
+    // Bus 11 (196 kWh, reserve 15 %) drives 30 + 28 miles at 1.2 kWh a mile, 69.6 kWh a day. It left
+    // with its reserve and the day's runs (15 % + 69.6/196 = 50.5 %, as last night's plan would have
+    // left it) and is back from its morning run at 50.5 - 36/196 = 32.1 %. Taken to have left at its
+    // 90 % ceiling instead (71.6 % here), it was planned to come home above what the next day needs
+    // and got no charge at all: 69.6 kWh too little for a bus that left with what its runs needed.
+    expect(bus.arrivalKwh).toBeCloseTo(0.321 * 196, 2);
+    expect(row!.notes.join(' ')).toContain('no state of charge was entered for its 08:40 pull-in; 32.1 % is estimated');
+    // Back at its reserve in the afternoon, it leaves the next morning with the next day's runs and its reserve.
+    const departures = done.result.buses.find((b: { id: string }) => b.id === '11').departures;
+    expect(departures.at(-1).kwh).toBeGreaterThanOrEqual(0.15 * 196 + 69.6 - 1e-6);
+  });
+
   it('a weekend day is refused as a night of its own, with the night it belongs to; nothing is queued', async () => {
     const org = await createOrganisation(app, { s: ['supervisor'] });
     const s = org.users.s!;
