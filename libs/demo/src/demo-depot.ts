@@ -136,10 +136,10 @@ export function demoRunsForBus(
 ): { pullOut: string; pullIn: string; miles: number; arrivalSocPct?: number }[] {
   const stagger = (i * 7) % 50; // minutes, spreads pull-outs over 06:00-06:50
   const morningOut = 6 * 60 + stagger;
-  const morningMiles = 24 + ((i * 13) % 19); // 24-42 miles
+  const morningMiles = 13 + ((i * 13) % 13); // 13-25 miles
   const morningIn = morningOut + 110 + (i % 4) * 10;
   const afternoonOut = 13 * 60 + 55 + ((i * 11) % 40);
-  const afternoonMiles = 26 + ((i * 17) % 21);
+  const afternoonMiles = 15 + ((i * 17) % 13); // 15-27 miles
   const afternoonIn = afternoonOut + 120 + (i % 5) * 12; // pull-ins 15:55-17:35, into the on-peak
   const hhmm = (m: number) => `${String(Math.floor(m / 60)).padStart(2, '0')}:${String(m % 60).padStart(2, '0')}`;
   return [
@@ -148,7 +148,8 @@ export function demoRunsForBus(
       pullOut: hhmm(afternoonOut),
       pullIn: hhmm(afternoonIn),
       miles: afternoonMiles,
-      arrivalSocPct: 28 + ((i * 19) % 33),
+      // Back a little above the reserve: each bus left with about what its runs needed, as a plan leaves it.
+      arrivalSocPct: 16 + ((i * 19) % 11),
     },
   ];
 }

@@ -145,8 +145,8 @@ export const kestrelDemoDepot: DemoDistrictDepot = {
     const pmOut = 14 * 60 + ((i * 7) % 30);
     const pmIn = pmOut + 130 + (i % 4) * 10;
     return [
-      { pullOut: hhmm(out), pullIn: hhmm(back), miles: 38 + ((i * 11) % 17) },
-      { pullOut: hhmm(pmOut), pullIn: hhmm(pmIn), miles: 36 + ((i * 5) % 19), arrivalSocPct: 30 + ((i * 23) % 29) },
+      { pullOut: hhmm(out), pullIn: hhmm(back), miles: 30 + ((i * 11) % 15) },
+      { pullOut: hhmm(pmOut), pullIn: hhmm(pmIn), miles: 28 + ((i * 5) % 15), arrivalSocPct: 17 + ((i * 23) % 11) },
     ];
   },
   peaks: { facilityKw: 236, periodsKw: { 'on-peak': 64 }, previousPeriod: true },
