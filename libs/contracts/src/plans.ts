@@ -60,6 +60,8 @@ export const planResultSchema = z.looseObject({
   baselines: z.object({ arrival: baselineWithLoadSchema, timer: baselineWithLoadSchema }).optional(),
   lowerBound: z.number(),
   gap: z.number(),
+  /** False where the night has crew rules and its bound leaves them out (see the engine's `Plan`). */
+  boundKeepsCrew: z.boolean().optional(),
   solveMs: z.number(),
   slots: z.array(
     z.object({

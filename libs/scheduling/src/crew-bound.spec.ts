@@ -70,6 +70,15 @@ describe('crew-aware lower bound', () => {
     expect(bound.penalisedBound).toBeGreaterThan(relaxation.penalisedObjective + 1000);
     expect(bound.penalisedBound).toBeLessThanOrEqual(exact.objective * (1 + 1e-6));
     expect(bound.shortfallKwh).toBeLessThanOrEqual(exact.shortfallKwh + 1e-6);
+    // The plan says whether its bound keeps the crew's rules: with the crew-aware bound and the
+    // exact model it does; with the relaxation alone (both turned off) it does not, and its gap
+    // is the room the relaxation's shared charger leaves.
+    const scenario = parsedScenario(input);
+    const kept = await planScenario(scenario);
+    expect(kept.boundKeepsCrew).toBe(true);
+    const left = await planScenario(scenario, { crewNight: false, exact: false });
+    expect(left.boundKeepsCrew).toBe(false);
+    expect(left.gap).toBeGreaterThan(0.1);
   });
 
   it('7 buses on 2 chargers with the crew: the plan at the HiGHS MILP optimum, and the plan proves it itself', async () => {

@@ -73,6 +73,12 @@ export interface Plan {
   baselines: Record<BaselineKind, BaselineCost & { chargingKw: number[] }>;
   lowerBound: number;
   gap: number;
+  /**
+   * False where the night has crew rules and the bound is the relaxation's alone, which lets any
+   * bus onto any free charger at any time: a plan that keeps to the crew's hours may not reach it
+   * (absent on plans that are not searched).
+   */
+  boundKeepsCrew?: boolean;
   solveMs: number;
   /** Per slot: the site's load, the energy price and its tariff period (as the rate plan names it), the service limit. */
   slots: { start: string; loadKw: number; price: number; period: string; limitKw: number }[];
@@ -875,6 +881,11 @@ export function planProblem(problem: Problem, solver: Solver, options: PlanOptio
   }
   plan.stats.exact = exactStats;
   plan.stats.crewBound = crewBoundStats;
+  // The crew-aware bound or the exact model (which keeps the crew's rules) set the bound when
+  // either reaches the relaxation's; else it is the relaxation's alone.
+  plan.boundKeepsCrew =
+    !problem.yard?.capacity ||
+    Math.max(exactBound, crewBound) >= lb.penalisedObjective - 1e-9 * Math.max(1, Math.abs(lb.penalisedObjective));
   plan.crewTrade = chosen.crewTrade;
   plan.keptPrevious = chosen.keptPrevious;
   plan.previousRefused = chosen.previousRefused ?? null;

@@ -276,6 +276,8 @@ export interface PlanFigures extends NightComparison {
   gap: number;
   /** False when the engine proved no useful bound (e.g. 0 while buses are short). */
   boundProven: boolean;
+  /** The gap is to a bound that leaves out the crew's hours (the night has crew rules). */
+  boundLeavesOutCrew: boolean;
   shortBuses: number;
   shortKwh: number;
 }
@@ -292,6 +294,8 @@ export function planFigures(result: PlanResult): PlanFigures {
     lowerBound: result.lowerBound,
     gap: result.gap,
     boundProven: result.lowerBound > 0 && result.gap < 0.999,
+    // Said only where there is a gap to explain (a tenth of a percent and more).
+    boundLeavesOutCrew: result.boundKeepsCrew === false && result.gap >= 0.001,
     shortBuses: short.length,
     shortKwh: short.reduce((s, b) => s + b.shortfallKwh, 0),
   };

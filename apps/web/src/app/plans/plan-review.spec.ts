@@ -53,8 +53,9 @@ describe('plan review', () => {
     ]);
   });
 
-  /** The review of the fixture plan with `changes` to its result: the projected cost card's text. */
-  async function costCard(changes: Partial<PlanResult>): Promise<string> {
+  /** The review of the fixture plan with `changes` to its result: the text of the card labelled `label`. */
+  async function costCard(changes: Partial<PlanResult>, label = 'Projected cost'): Promise<string> {
+    TestBed.resetTestingModule(); // a test may read more than one review
     TestBed.configureTestingModule({ providers: [provideHttpClient(), provideHttpClientTesting()] });
     const fixture = TestBed.createComponent(PlanReview);
     const plan = planDetail();
@@ -64,7 +65,9 @@ describe('plan review', () => {
     TestBed.tick();
     await settle();
     fixture.detectChanges();
-    return (fixture.nativeElement as HTMLElement).querySelector('.card')!.textContent!.replace(/\s+/g, ' ');
+    const cards = [...(fixture.nativeElement as HTMLElement).querySelectorAll('.card')];
+    const card = cards.find((c) => c.querySelector('.card-label')?.textContent?.trim() === label)!;
+    return card.textContent!.replace(/\s+/g, ' ');
   }
 
   it('says "Extra energy cost" where the plan pays more for energy than the baseline, not a negative saving', async () => {
@@ -82,6 +85,16 @@ describe('plan review', () => {
     expect(card).toMatch(
       /Charge on arrival does not keep to the crew's hours( or the demand target)?: it swaps buses whenever a charger frees up, whoever is in the yard/,
     );
+  });
+
+  it("says when the gap is to a bound that leaves out the crew's hours", async () => {
+    const gap = { lowerBound: 209.16, gap: 0.6488, cost: { energy: 158.05, demand: 437.58, total: 595.63 } };
+    expect(await costCard({ ...gap, boundKeepsCrew: false }, 'Gap to lower bound')).toContain(
+      "This bound leaves out the crew's hours (any bus on any free charger at any time): a plan that keeps to them may not reach it",
+    );
+    // A bound that keeps the crew's rules, and plans made before the engine said which, say nothing of it.
+    for (const keeps of [true, undefined])
+      expect(await costCard({ ...gap, boundKeepsCrew: keeps }, 'Gap to lower bound')).not.toContain("crew's hours");
   });
 
   it('shows the short buses first with their reasons, and the figures', async () => {
