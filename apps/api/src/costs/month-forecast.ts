@@ -190,13 +190,13 @@ export function forecastShapes(
 
 /**
  * A night the demand target's LP charged. The LP plans each bus from its battery, from when it is
- * home to when it leaves, under the target; but it takes each morning's battery at its ceiling,
- * so its energy is not the month's: over a month the chargers put back what the runs use. So the
- * night keeps the energy of the next day's runs (`gridKwh`), placed where the LP put its charging:
- * the cheapest shape is the LP's charging (scaled down where it is more than the runs use), what
- * the runs need beyond it in the cheapest room left under the cap; the even shape spreads it over
- * the intervals with a bus at the depot. What does not fit under the cap goes above it as little
- * as it can (`raiseLowest`), as in `forecastShapes`.
+ * home to when it leaves, under the target; but it takes each night on its own (from a reading, or
+ * the morning's estimate), so its energy need not be the month's: over a month the chargers put
+ * back what the runs use. So the night keeps the energy of the next day's runs (`gridKwh`), placed
+ * where the LP put its charging: the cheapest shape is the LP's charging (scaled down where it is
+ * more than the runs use), what the runs need beyond it in the cheapest room left under the cap;
+ * the even shape spreads it over the intervals with a bus at the depot. What does not fit under
+ * the cap goes above it as little as it can (`raiseLowest`), as in `forecastShapes`.
  */
 export function targetShapes(
   night: ForecastNight,
