@@ -34,6 +34,31 @@ export function morningSocPct(bus: { ceilingPct: number; reservePct: number; usa
   return Math.min(bus.ceilingPct, bus.reservePct + (dayKwh / bus.usableKwh) * 100);
 }
 
+/**
+ * Each run's estimated state of charge (%) on arrival, by run id, for one bus's runs of a day in
+ * pull-out order: from the morning's estimate (`morningSocPct`), each run takes its energy and no
+ * charge is counted between runs; a reading, where a run has one, is where the next run starts.
+ * The Fleet page shows these; a night's scenario starts from them.
+ */
+export function arrivalEstimates(
+  runsOfBus: readonly { id: string; kwh: number | null; miles: number | null; arrivalSocPct: number | null }[],
+  bus: { ceilingPct: number; reservePct: number; usableKwh: number; kwhPerMile: number },
+  factor: number,
+): Map<string, number> {
+  const energy = runsOfBus.map((run) => runEnergyKwh(run, bus, factor));
+  let soc = morningSocPct(
+    bus,
+    energy.reduce((a, e) => a + e, 0),
+  );
+  const out = new Map<string, number>();
+  runsOfBus.forEach((run, i) => {
+    const estimated = Math.max(0, Math.round((soc - (energy[i]! / bus.usableKwh) * 100) * 10) / 10);
+    out.set(run.id, estimated);
+    soc = run.arrivalSocPct ?? estimated;
+  });
+  return out;
+}
+
 export async function getServiceDay(db: Db, caller: AuthUser, depotId: string, date: string): Promise<ServiceDay> {
   const depot = await depotOf(db, caller, depotId);
   const [day] = await db
@@ -49,16 +74,20 @@ export async function getServiceDay(db: Db, caller: AuthUser, depotId: string, d
     .where(and(eq(runs.depotId, depotId), eq(runs.serviceDate, date)))
     .orderBy(asc(buses.number), asc(runs.pullOut));
   const local = (d: Date) => DateTime.fromJSDate(d, { zone: depot.timezone }).toFormat(LOCAL);
-  // Without a reading, a bus is assumed to leave in the morning as a plan leaves it (`morningSocPct`)
-  // and to get no charge between runs: the estimate errs towards needing more energy, not less.
-  const dayKwh = new Map<string, number>();
-  for (const { run, bus } of rows) dayKwh.set(bus.id, (dayKwh.get(bus.id) ?? 0) + runEnergyKwh(run, bus, factor));
-  const soc = new Map<string, number>();
+  // Without a reading, a bus is assumed to leave in the morning as a plan leaves it and to get no
+  // charge between runs (`arrivalEstimates`): the estimate errs towards needing more energy, not less.
+  const byBus = new Map<string, typeof rows>();
+  for (const r of rows) byBus.set(r.bus.id, [...(byBus.get(r.bus.id) ?? []), r]);
+  const estimates = new Map<string, number>();
+  for (const ofBus of byBus.values())
+    for (const [id, pct] of arrivalEstimates(
+      ofBus.map((r) => r.run),
+      ofBus[0]!.bus,
+      factor,
+    ))
+      estimates.set(id, pct);
   const out = rows.map(({ run, bus }) => {
     const energyKwh = runEnergyKwh(run, bus, factor);
-    const before = soc.get(bus.id) ?? morningSocPct(bus, dayKwh.get(bus.id)!);
-    const estimated = Math.max(0, Math.round((before - (energyKwh / bus.usableKwh) * 100) * 10) / 10);
-    soc.set(bus.id, run.arrivalSocPct ?? estimated);
     return {
       id: run.id,
       busId: bus.id,
@@ -70,7 +99,7 @@ export async function getServiceDay(db: Db, caller: AuthUser, depotId: string, d
       energyKwh,
       arrivalSocPct: run.arrivalSocPct,
       arrivalSocSource: run.arrivalSocSource,
-      estimatedArrivalSocPct: estimated,
+      estimatedArrivalSocPct: estimates.get(run.id)!,
     };
   });
   return { date, forecastLowF, coldWeatherFactor: factor, runs: out };

@@ -7,7 +7,7 @@ import { buses, runs, serviceDays } from '../db/schema';
 import { DomainError } from '../http/errors';
 import type { AuthUser } from '../auth/auth-user';
 import { depotOf } from '../depots/depot-access';
-import { morningSocPct, runEnergyKwh } from '../fleet/service-day-service';
+import { arrivalEstimates, runEnergyKwh } from '../fleet/service-day-service';
 import { buildScenarioBase } from '../scenarios/scenario-base';
 import { datePlace } from '../night/depot-night';
 
@@ -137,7 +137,14 @@ export async function buildNightScenario(
       });
     } else {
       const first = usedLegs[0]!.arrivedFrom.run;
-      const soc = first.arrivalSocPct ?? estimateArrivalSoc(today, first.id, bus, todayFactor);
+      // As the Fleet page shows it for this run (the service day's estimate).
+      const soc =
+        first.arrivalSocPct ??
+        arrivalEstimates(
+          today.map((r) => r.run),
+          bus,
+          todayFactor,
+        ).get(first.id)!;
       if (first.arrivalSocPct === null)
         notes.push(
           `Bus ${bus.number}: no state of charge was entered for its ${at(first.pullIn).toFormat('HH:mm')} pull-in; ${soc} % is estimated from miles.`,
@@ -173,24 +180,6 @@ export async function buildNightScenario(
   if (!scenarioBuses.length) throw new DomainError('validation_failed', 'No active bus has a run to plan for');
   const scenario: ScenarioInput = { ...base.scenario, buses: scenarioBuses } as ScenarioInput;
   return { scenario, notes, nextServiceDate: next.date };
-}
-
-/** Arrival state of charge: the morning's estimate (`morningSocPct`) less the runs' energy (as the service day shows it). */
-function estimateArrivalSoc(
-  today: { run: { id: string; kwh: number | null; miles: number | null; arrivalSocPct: number | null } }[],
-  runId: string,
-  bus: { ceilingPct: number; reservePct: number; usableKwh: number; kwhPerMile: number },
-  factor: number,
-): number {
-  let soc = morningSocPct(
-    bus,
-    today.reduce((a, { run }) => a + runEnergyKwh(run, bus, factor), 0),
-  );
-  for (const { run } of today) {
-    soc = run.arrivalSocPct ?? Math.max(0, soc - (runEnergyKwh(run, bus, factor) / bus.usableKwh) * 100);
-    if (run.id === runId) return Math.round(soc * 10) / 10;
-  }
-  return Math.round(soc * 10) / 10;
 }
 
 const longDay = (date: string, zone: string) => DateTime.fromISO(date, { zone }).toFormat('cccc, LLLL d');

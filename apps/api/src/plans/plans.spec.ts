@@ -282,14 +282,8 @@ describe('plans', () => {
         .set(as(s))
         .send({ runs: dayRuns(date, NUMBERS) })
         .expect(200);
-    const res = await app
-      .request()
-      .post(`/api/depots/${depot}/plans`)
-      .set(as(s))
-      .send({ serviceDate: '2026-12-21' })
-      .expect(202);
-    const done = await finished(res.body.plan.id, s);
-    const [row] = await app.db.select().from(plans).where(eq(plans.id, res.body.plan.id));
+    const done = await generatedPlan(app, s, depot, '2026-12-21', true);
+    const [row] = await app.db.select().from(plans).where(eq(plans.id, done.id));
     const bus = row!.scenario.buses.find((b) => b.id === '11')!;
     // Bus 11 (196 kWh, reserve 15 %) drives 30 + 28 miles at 1.2 kWh a mile, 69.6 kWh a day. It left
     // with its reserve and the day's runs (15 % + 69.6/196 = 50.5 %, as last night's plan would have
