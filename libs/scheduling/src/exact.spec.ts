@@ -144,4 +144,33 @@ describe('exact assignment MILP (HiGHS) against the plans', () => {
     const shared = short.filter((b) => b.reason === 'charger');
     for (const b of shared) expect(b.cause).toContain("with the crew's hours (nobody in the yard from 23:30 to 04:30)");
   });
+
+  it('a bus short at its midday pull-out, not at dawn: the cause names the midday stay', async () => {
+    // Before, the cause always named a bus's last stay (here 19:00-05:00, which is served).
+    const base = generateDepot({ buses: 1, chargers: 1, seed: 4, cabinets: false });
+    const input: ScenarioInput = {
+      ...base,
+      chargers: [{ id: 'C1', maxKw: 60 }],
+      buses: [
+        {
+          ...base.buses[0]!,
+          id: 'B1',
+          maxKw: 60,
+          arrivalKwh: 30,
+          stays: [
+            // 30 minutes at 60 kW give 27.6 kWh at most: 30 + 27.6 is 42.4 kWh short of 100.
+            { arrive: '2026-01-14T13:00', depart: '2026-01-14T13:30', departMinKwh: 100, runKwh: 20 },
+            { arrive: '2026-01-14T19:00', depart: '2026-01-15T05:00', departMinKwh: 60 },
+          ],
+        },
+      ],
+    };
+    const plan = await planOf(input);
+    const b1 = plan.buses[0]!;
+    expect(b1.shortfallKwh).toBeCloseTo(42.4, 1);
+    expect(b1.departures[1]!.kwh).toBeGreaterThanOrEqual(60 - 1e-6);
+    expect(b1.reason).toBe('dwell');
+    expect(b1.cause).toContain('between pull-in 13:00 and pull-out 13:30');
+    expect(b1.cause).toContain('42.4 kWh');
+  });
 });

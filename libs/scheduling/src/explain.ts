@@ -131,13 +131,15 @@ export function describeShortfall(
   reason: ShortReason,
   shortKwh: number,
   proven: boolean,
+  /** The stay whose departure misses most; the last by default. */
+  stayIndex = -1,
 ): string {
   const bus = problem.buses[b]!;
   const zone = problem.zone;
-  // The stay that falls short: the one whose departure misses most (the last one by default).
-  const stay = bus.stays[bus.stays.length - 1]!;
+  const stay = bus.stays[stayIndex >= 0 ? stayIndex : bus.stays.length - 1]!;
   const span = `between pull-in ${clock(stay.arriveMs, zone)} and pull-out ${clock(stay.departMs, zone)}`;
-  const kwh = `${Math.round(shortKwh * 10) / 10} kWh`;
+  // Hundredths below 1 kWh: a shortfall of 0.03 kWh must not read "0 kWh short".
+  const kwh = `${shortKwh >= 1 ? Math.round(shortKwh * 10) / 10 : Math.max(0.01, Math.round(shortKwh * 100) / 100)} kWh`;
   let words: string;
   switch (reason) {
     case 'dwell':

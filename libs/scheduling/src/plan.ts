@@ -1224,22 +1224,25 @@ function assemblePlan(
 
   // Energy at each departure follows from the power delivered.
   const shortByBus = new Float64Array(problem.buses.length);
+  // The stay of each bus whose departure misses most: the one a short bus's cause names.
+  const shortStay = new Int32Array(problem.buses.length).fill(-1);
   let totalShort = 0;
   const departureKwh: number[][] = problem.buses.map(() => []);
   const busOut: PlanBus[] = problem.buses.map((bus) => {
     let e = bus.arrivalKwh;
     const departures: PlanBus['departures'] = [];
-    for (const stay of bus.stays) {
+    bus.stays.forEach((stay, k) => {
       for (let t = stay.arriveSlot; t < stay.departSlot; t++) e += eta * dt * power[bus.index]![t]!;
       departureKwh[bus.index]!.push(e);
       departures.push({ at: isoAt(stay.departMs, zone), kwh: round(e) });
       const short = Math.max(0, stay.requiredKwh - e);
       if (short > 1e-4) {
+        if (short > shortByBus[bus.index]!) shortStay[bus.index] = k;
         shortByBus[bus.index] = Math.max(shortByBus[bus.index]!, short);
         totalShort += short;
       }
       e -= stay.runKwh;
-    }
+    });
     return {
       id: bus.id,
       departures,
@@ -1262,7 +1265,7 @@ function assemblePlan(
       // exact model's optimum, or the relaxation being as short in total as this plan.
       const own = soloShortfall(problem, i, strongest, true) > 1e-3;
       const proven = own || exactProven || lbShortfall >= totalShort - 1e-3;
-      b.cause = describeShortfall(problem, i, b.reason, shortByBus[i]!, proven);
+      b.cause = describeShortfall(problem, i, b.reason, shortByBus[i]!, proven, shortStay[i]!);
       b.causeProven = proven;
     });
   }
