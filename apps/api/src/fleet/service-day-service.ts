@@ -35,26 +35,28 @@ export function morningSocPct(bus: { ceilingPct: number; reservePct: number; usa
 }
 
 /**
- * Each run's estimated state of charge (%) on arrival, by run id, for one bus's runs of a day in
+ * Each run's estimated state of charge on arrival, by run id, for one bus's runs of a day in
  * pull-out order: from the morning's estimate (`morningSocPct`), each run takes its energy and no
  * charge is counted between runs; a reading, where a run has one, is where the next run starts.
- * The Fleet page shows these; a night's scenario starts from them.
+ * `pct` is what the Fleet page shows (to 0.1 %); `exactPct` is unrounded, for a night's scenario:
+ * rounded, a bus estimated to arrive at midday with just its reserve and the afternoon's run could
+ * come out a few hundredths of a kWh short of the very need the estimate was made from.
  */
 export function arrivalEstimates(
   runsOfBus: readonly { id: string; kwh: number | null; miles: number | null; arrivalSocPct: number | null }[],
   bus: { ceilingPct: number; reservePct: number; usableKwh: number; kwhPerMile: number },
   factor: number,
-): Map<string, number> {
+): Map<string, { pct: number; exactPct: number }> {
   const energy = runsOfBus.map((run) => runEnergyKwh(run, bus, factor));
   let soc = morningSocPct(
     bus,
     energy.reduce((a, e) => a + e, 0),
   );
-  const out = new Map<string, number>();
+  const out = new Map<string, { pct: number; exactPct: number }>();
   runsOfBus.forEach((run, i) => {
-    const estimated = Math.max(0, Math.round((soc - (energy[i]! / bus.usableKwh) * 100) * 10) / 10);
-    out.set(run.id, estimated);
-    soc = run.arrivalSocPct ?? estimated;
+    const exactPct = Math.max(0, soc - (energy[i]! / bus.usableKwh) * 100);
+    out.set(run.id, { pct: Math.round(exactPct * 10) / 10, exactPct });
+    soc = run.arrivalSocPct ?? exactPct;
   });
   return out;
 }
@@ -80,7 +82,7 @@ export async function getServiceDay(db: Db, caller: AuthUser, depotId: string, d
   for (const r of rows) byBus.set(r.bus.id, [...(byBus.get(r.bus.id) ?? []), r]);
   const estimates = new Map<string, number>();
   for (const ofBus of byBus.values())
-    for (const [id, pct] of arrivalEstimates(
+    for (const [id, { pct }] of arrivalEstimates(
       ofBus.map((r) => r.run),
       ofBus[0]!.bus,
       factor,

@@ -137,19 +137,22 @@ export async function buildNightScenario(
       });
     } else {
       const first = usedLegs[0]!.arrivedFrom.run;
-      // As the Fleet page shows it for this run (the service day's estimate).
-      const soc =
-        first.arrivalSocPct ??
-        arrivalEstimates(
+      if (first.arrivalSocPct !== null) {
+        arrivalKwh = round((first.arrivalSocPct / 100) * usable);
+      } else {
+        // The service day's estimate: its note gives the Fleet page's figure; the plan takes it
+        // unrounded, up to the next hundredth of a kWh, so that a bus whose estimate says it has
+        // exactly what its next run needs is not planned a rounding short of it.
+        const estimate = arrivalEstimates(
           today.map((r) => r.run),
           bus,
           todayFactor,
         ).get(first.id)!;
-      if (first.arrivalSocPct === null)
         notes.push(
-          `Bus ${bus.number}: no state of charge was entered for its ${at(first.pullIn).toFormat('HH:mm')} pull-in; ${soc} % is estimated from miles.`,
+          `Bus ${bus.number}: no state of charge was entered for its ${at(first.pullIn).toFormat('HH:mm')} pull-in; ${estimate.pct} % is estimated from miles.`,
         );
-      arrivalKwh = round((soc / 100) * usable);
+        arrivalKwh = Math.ceil((estimate.exactPct / 100) * usable * 100 - 1e-6) / 100;
+      }
       usedLegs.forEach((l, k) => {
         const need = legNeed(l.nextRun === n1, l.nextRun.run);
         const arrive = l.arrive > start ? l.arrive : start;

@@ -290,11 +290,17 @@ describe('plans', () => {
     // left it) and is back from its morning run at 50.5 - 36/196 = 32.1 %. Taken to have left at its
     // 90 % ceiling instead (71.6 % here), it was planned to come home above what the next day needs
     // and got no charge at all: 69.6 kWh too little for a bus that left with what its runs needed.
-    expect(bus.arrivalKwh).toBeCloseTo(0.321 * 196, 2);
+    // The plan takes the estimate unrounded: its reserve and the afternoon's 28 miles, 29.4 + 33.6
+    // kWh, exactly what the 14:10 pull-out needs. Rounded to the Fleet page's 32.1 % it was 62.92
+    // kWh: a midday plug-in for 0.08 kWh, which a depot short of chargers could leave undone (on the
+    // demo's Monday with the crew, four buses 0.01-0.05 kWh short).
+    expect(bus.arrivalKwh).toBe(63);
+    expect(bus.stays[0]!.departMinKwh).toBe(63);
     expect(row!.notes.join(' ')).toContain('no state of charge was entered for its 08:40 pull-in; 32.1 % is estimated');
+    const planned = done.result.buses.find((b: { id: string }) => b.id === '11');
+    expect(planned.shortfallKwh).toBe(0);
     // Back at its reserve in the afternoon, it leaves the next morning with the next day's runs and its reserve.
-    const departures = done.result.buses.find((b: { id: string }) => b.id === '11').departures;
-    expect(departures.at(-1).kwh).toBeGreaterThanOrEqual(0.15 * 196 + 69.6 - 1e-6);
+    expect(planned.departures.at(-1).kwh).toBeGreaterThanOrEqual(0.15 * 196 + 69.6 - 1e-6);
   });
 
   it('a weekend day is refused as a night of its own, with the night it belongs to; nothing is queued', async () => {
