@@ -84,6 +84,19 @@ describe('CostsPage', () => {
     expect(text(peak)).toContain('Period peak: on-peak 48 kW');
   });
 
+  it('the saving is the difference of its two bills as shown, to the cent', async () => {
+    // Unrounded, 5,904.736 - 4,100.244 is 1,804.492: shown as $1,804.49 beside bills of $4,100.24
+    // and $5,904.74, a cent off their difference.
+    const month = monthCosts();
+    await render(['finance'], {
+      ...month,
+      savings: { ...month.savings, total: 1_804.492, planBill: 4_100.244, baselineBill: 5_904.736 },
+    });
+    const savings = card('Savings against the baselines')!;
+    expect(text(savings.querySelector('.card-value'))).toBe('$1,804.50');
+    expect(text(savings)).toContain('the projected bill $4,100.24 (facility demand 185 kW) against $5,904.74');
+  });
+
   it('shows the demand target, why it is that number and what a kW either side is worth', async () => {
     await render(['finance'], monthCosts({ target: periodTarget() }));
     const panel = el.querySelector('section.target')!;

@@ -6,21 +6,27 @@ import { settle } from '../testing/fixtures';
 import { planCosts } from './costs-fixtures';
 import { NightCostsPage } from './night-costs-page';
 
+const text = (e: Element | null) => e?.textContent?.replace(/\s+/g, ' ').trim() ?? '';
+
 describe('NightCostsPage', () => {
-  it('shows the night against its baseline (and the other beside it) and the cost per bus and per mile', async () => {
+  async function render(costs = planCosts()) {
+    TestBed.resetTestingModule();
     TestBed.configureTestingModule({ providers: [provideRouter([]), provideHttpClient(), provideHttpClientTesting()] });
     const mock = TestBed.inject(HttpTestingController);
     const fixture = TestBed.createComponent(NightCostsPage);
     fixture.componentRef.setInput('planId', '00000000-0000-4000-8000-0000000000a1');
     TestBed.tick(); // not whenStable: it would wait for the unanswered request
     await settle();
-    mock.expectOne('/api/plans/00000000-0000-4000-8000-0000000000a1/costs').flush(planCosts());
+    mock.expectOne('/api/plans/00000000-0000-4000-8000-0000000000a1/costs').flush(costs);
     await settle();
     TestBed.tick(); // not whenStable: it would wait for the unanswered request
     await settle();
     fixture.detectChanges();
-    const el = fixture.nativeElement as HTMLElement;
-    const text = (e: Element | null) => e?.textContent?.replace(/\s+/g, ' ').trim() ?? '';
+    return { el: fixture.nativeElement as HTMLElement, mock };
+  }
+
+  it('shows the night against its baseline (and the other beside it) and the cost per bus and per mile', async () => {
+    const { el, mock } = await render();
 
     expect(text(el.querySelector('h1'))).toMatch(/^Night of Tuesday/);
     // A night's saving is on charging energy ($150.10 - $100.50); demand is the period's.
@@ -46,5 +52,29 @@ describe('NightCostsPage', () => {
       '/plans?plan=00000000-0000-4000-8000-0000000000a1',
     );
     mock.verify();
+  });
+
+  it('no card is a cent off another: the parts foot to the total, the saving is the shown difference', async () => {
+    // Unrounded: energy 100.504 + demand 20.004 = 120.508, saving 150.106 - 100.504 = 49.602. Each
+    // rounded alone, the parts read $100.50 + $20.00 beside a total of $120.51, and the saving
+    // $49.60 beside $150.11 and $100.50.
+    const { el } = await render(
+      planCosts({
+        energy: 100.504,
+        demand: 20.004,
+        total: 120.508,
+        baseline: { kind: 'timer', energy: 150.106, demand: 140, total: 290.106, peakKw: 410, shortfallKwh: 0 },
+        savings: 49.602,
+      }),
+    );
+    const cents = (e: Element | null) =>
+      [...text(e).matchAll(/\$([\d,]+\.\d\d)/g)].map((m) => Math.round(Number(m[1]!.replace(/,/g, '')) * 100));
+    const [total, energy, demand] = cents(el.querySelector('.cards .card'));
+    const [baseline] = cents(el.querySelectorAll('.cards .card')[1]!);
+    const [saving] = cents(el.querySelector('.savings .card-value'));
+    expect(total).toBe(12051);
+    expect(energy! + demand!).toBe(total);
+    expect(baseline).toBe(15011);
+    expect(saving).toBe(baseline! - energy!);
   });
 });

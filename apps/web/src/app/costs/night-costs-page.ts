@@ -45,12 +45,17 @@ export class NightCostsPage {
     const p = this.costs();
     if (!p) return null;
     const c = p.currency;
+    // The parts add up to the total shown (footedCents, the one rounding rule), and the saving is
+    // the difference of the two energy figures shown, so no card is a cent off another.
+    const [energy, demand] = footedCents([p.energy, p.demand], toCents(p.total));
+    const baselineEnergy = toCents(p.baseline.total - p.baseline.demand);
+    const saving = baselineEnergy - energy!;
     return {
-      total: money(p.total, c),
-      parts: `Energy ${money(p.energy, c)}, demand ${money(p.demand, c)}`,
+      total: money(toCents(p.total), c),
+      parts: `Energy ${money(energy!, c)}, demand ${money(demand!, c)}`,
       baselineName: baselineName(p.baseline.kind),
       // The night against its baseline on charging energy; demand is the period's (see Costs).
-      baseline: money(p.baseline.total - p.baseline.demand, c),
+      baseline: money(baselineEnergy, c),
       baselineParts:
         `Charging energy, peak ${num(p.baseline.peakKw, 0)} kW` +
         (p.baseline.shortfallKwh > 0.05
@@ -59,9 +64,9 @@ export class NightCostsPage {
       otherBaseline: p.otherBaseline
         ? `${baselineName(p.otherBaseline.kind)}: ${money(p.otherBaseline.energy, c)}, peak ${num(p.otherBaseline.peakKw, 0)} kW`
         : null,
-      savings: money(p.savings, c),
+      savings: money(saving, c),
       savingsShare: percent(p.savingsShare),
-      savingsPositive: p.savings > 0,
+      savingsPositive: saving > 0,
       peaks: `The plan's peak ${num(p.peakKw, 0)} kW against the baseline's ${num(p.baseline.peakKw, 0)} kW`,
       charging: kwh(p.chargingKwh),
       miles: `${num(p.miles, 0)} miles`,
