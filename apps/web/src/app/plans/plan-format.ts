@@ -1,5 +1,6 @@
 import {
   baselineName,
+  footedCents,
   toCents,
   type PlanDetail,
   type PlanResult,
@@ -231,7 +232,9 @@ export { baselineName };
  * A night against its baseline the way the costs are billed: the energy saving of the night and
  * its peak beside the baseline's (demand is billed once a billing period, so a night does not
  * claim a demand saving of its own). A baseline that delivers less carries its shortfall, valued
- * at the plan's average price, in its energy.
+ * at the plan's average price, in its energy. Figures are in cents as shown: the plan's energy and
+ * demand foot to its total (footedCents, the one rounding rule) and the saving is the shown
+ * baseline less the shown energy, so no figure beside another is a cent off.
  */
 export interface NightComparison {
   baselineName: string;
@@ -239,6 +242,7 @@ export interface NightComparison {
   otherName: string | null;
   otherEnergy: number | null;
   planEnergy: number;
+  planDemand: number;
   baselineEnergy: number;
   energySaving: number;
   energySavingShare: number;
@@ -248,15 +252,17 @@ export interface NightComparison {
 
 export function nightComparison(result: PlanResult): NightComparison {
   const base = result.baseline;
-  const baselineEnergy = base.energy + (base.shortfallCost ?? 0);
+  const baselineEnergy = toCents(base.energy + (base.shortfallCost ?? 0));
   const otherKind = base.kind === 'arrival' ? 'timer' : base.kind === 'timer' ? 'arrival' : null;
   const other = otherKind && result.baselines ? result.baselines[otherKind] : null;
-  const energySaving = baselineEnergy - result.cost.energy;
+  const [planEnergy, planDemand] = footedCents([result.cost.energy, result.cost.demand], toCents(result.cost.total));
+  const energySaving = toCents(baselineEnergy - planEnergy!);
   return {
     baselineName: baselineName(base.kind),
     otherName: other ? baselineName(otherKind) : null,
-    otherEnergy: other ? other.energy + (other.shortfallCost ?? 0) : null,
-    planEnergy: result.cost.energy,
+    otherEnergy: other ? toCents(other.energy + (other.shortfallCost ?? 0)) : null,
+    planEnergy: planEnergy!,
+    planDemand: planDemand!,
     baselineEnergy,
     energySaving,
     energySavingShare: baselineEnergy > 0 ? energySaving / baselineEnergy : 0,
@@ -284,11 +290,12 @@ export interface PlanFigures extends NightComparison {
 
 export function planFigures(result: PlanResult): PlanFigures {
   const short = result.buses.filter((b) => b.shortfallKwh > SHORT_KWH);
+  const night = nightComparison(result);
   return {
-    ...nightComparison(result),
-    cost: result.cost.total,
-    energyCost: result.cost.energy,
-    demandCost: result.cost.demand,
+    ...night,
+    cost: toCents(result.cost.total),
+    energyCost: night.planEnergy,
+    demandCost: night.planDemand,
     peakKw: Math.max(0, ...result.slots.map((s) => s.loadKw)),
     limitKw: Math.min(...result.slots.map((s) => s.limitKw)),
     lowerBound: result.lowerBound,

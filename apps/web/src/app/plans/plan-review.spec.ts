@@ -71,7 +71,7 @@ describe('plan review', () => {
   }
 
   it('says "Extra energy cost" where the plan pays more for energy than the baseline, not a negative saving', async () => {
-    const card = await costCard({ cost: { ...planDetail().result!.cost, energy: 20.41 } });
+    const card = await costCard({ cost: { energy: 20.41, demand: 89.98, total: 110.39 } });
     // $0.41 more than $20.00: 2.1 %, with its digit below 1 % (0.4 % read "-0 %").
     expect(card).toContain('Extra energy cost $0.41 (2 % more) against charge on arrival $20.00');
     expect(card).not.toContain('Energy saving');
@@ -79,8 +79,23 @@ describe('plan review', () => {
     expect(card).not.toContain("crew's hours");
   });
 
+  it('the cost card is never a cent off itself: the parts foot to the total, the saving is the shown difference', async () => {
+    // Unrounded, 10.004 + 89.984 = 99.988 and 20.006 - 10.004 = 10.002. Each rounded alone: $10.00
+    // + $89.98 beside $99.99, and a saving of $10.00 beside $20.01 and $10.00.
+    const card = await costCard({
+      cost: { energy: 10.004, demand: 89.984, total: 99.988 },
+      baseline: { ...planDetail().result!.baseline, energy: 20.006 },
+    });
+    const cents = [...card.matchAll(/\$([\d,]+\.\d\d)/g)].map((m) => Math.round(Number(m[1]!.replace(/,/g, '')) * 100));
+    const [total, energy, demand, saving, baseline] = cents;
+    expect(total).toBe(9999);
+    expect(energy! + demand!).toBe(total);
+    expect(baseline).toBe(2001);
+    expect(saving).toBe(baseline! - energy!);
+  });
+
   it("says why a plan with the crew's rules can pay more for energy than the baseline", async () => {
-    const card = await costCard({ crewMoves: 6, cost: { ...planDetail().result!.cost, energy: 20.04 } });
+    const card = await costCard({ crewMoves: 6, cost: { energy: 20.04, demand: 89.98, total: 110.02 } });
     expect(card).toContain('Extra energy cost $0.04');
     expect(card).toMatch(
       /Charge on arrival does not keep to the crew's hours( or the demand target)?: it swaps buses whenever a charger frees up, whoever is in the yard/,
