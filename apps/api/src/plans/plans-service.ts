@@ -2,9 +2,11 @@ import { aliasedTable, and, desc, eq, sql } from 'drizzle-orm';
 import { DateTime } from 'luxon';
 import {
   baselineName,
+  footedCents,
   horizonOf,
   longDate,
   planResultSchema,
+  toCents,
   type PlanComparison,
   type PlanDetail,
   type PlanResult,
@@ -369,8 +371,9 @@ async function notifyPublished(
         currency: scenario.tariff.currency ?? 'USD',
         cost: result.cost.total,
         // The night's energy against the baseline's, as the review compares them: demand is billed
-        // on the month's peak, so a night's demand is no saving of its own.
-        energy: result.cost.energy,
+        // on the month's peak, so a night's demand is no saving of its own. The energy is the
+        // review's to the cent: its share of the total shown (footedCents, the one rounding rule).
+        energy: footedCents([result.cost.energy, result.cost.demand], toCents(result.cost.total))[0]!,
         baseline: result.baseline.energy + (result.baseline.shortfallCost ?? 0),
         baselineName: baselineName(result.baseline.kind),
         short: short.map((b) => `${b.id} (${b.shortfallKwh.toFixed(1)} kWh short: ${b.reason})`),
