@@ -249,10 +249,21 @@ const round = (v: number, digits = 6) => {
 /**
  * The safety net (ms): far above what a plan takes on an idle machine (about 0.1-0.5 s up to 200
  * buses, 1 s at 500), so that a busy machine still ends on the move budget and gives the same
- * plan; it only bounds a pathological case.
+ * plan; it only bounds a pathological case. Where the crew's night runs as an LP and the
+ * whole-sequence search gets several times its LP solves (crew windows, 3 or more stays a
+ * charger, up to LNS_MAX_STAYS), a start's LP work grows with the bus-slots: 24 buses with midday
+ * layovers on 10 chargers (1,828 bus-slots) took 13.3 s a start on an idle machine and were cut
+ * at 12 s, so the plan depended on the machine's load. There the net is 20 ms a bus-slot (37 s).
  */
-export function defaultTimeBudgetMs(buses: number): number {
-  return Math.max(12_000, 12 * buses);
+export function defaultTimeBudgetMs(problem: Problem): number {
+  const stays = problem.stays.length;
+  const crewLp =
+    !!problem.yard?.capacity &&
+    stays > CREW_BOUND_LIMITS.stays &&
+    stays <= LNS_MAX_STAYS &&
+    stays >= CREW_BOUND_LIMITS.relaxedPerCharger * problem.chargers.length;
+  const busSlots = problem.buses.reduce((a, b) => a + b.slots.length, 0);
+  return Math.max(12_000, 12 * problem.buses.length, crewLp ? 20 * busSlots : 0);
 }
 
 /**
@@ -338,7 +349,7 @@ function cheapestOfStarts(
  * unavailable or arrival energies fixed, and calls this.
  */
 export function planProblem(problem: Problem, solver: Solver, options: PlanOptions = {}, t0 = performance.now()): Plan {
-  const budget = options.timeBudgetMs ?? defaultTimeBudgetMs(problem.buses.length);
+  const budget = options.timeBudgetMs ?? defaultTimeBudgetMs(problem);
   const deadline = t0 + budget;
   const { slotCount: T, slotHours: dt } = problem;
 
