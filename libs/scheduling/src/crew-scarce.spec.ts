@@ -2,7 +2,7 @@ import { describe, expect, it } from 'vitest';
 import { solveCrewBound } from './crew-bound.js';
 import { loadSolver } from './highs-solver.js';
 import { solveLowerBound } from './lower-bound.js';
-import { planScenario, type PlanOptions } from './plan.js';
+import { defaultTimeBudgetMs, planScenario, type PlanOptions } from './plan.js';
 import { prepareProblem } from './problem.js';
 import { generateDepot } from './testing/generate-depot.js';
 import { checkPlan } from './testing/plan-checker.js';
@@ -32,6 +32,24 @@ async function planChecked(input: ReturnType<typeof depot>, options: PlanOptions
 }
 
 describe('depots short of chargers, with the crew', () => {
+  it("the safety net grows with the bus-slots where the crew's night runs as an LP, and only there", () => {
+    const problemOf = (buses: number, chargers: number, crew: boolean) => {
+      const input = generateDepot({ buses, chargers, seed: 1 });
+      return prepareProblem(parsedScenario(crew ? { ...input, yard: testYard(buses / 40) } : input));
+    };
+    const busSlots = (p: ReturnType<typeof problemOf>) => p.buses.reduce((a, b) => a + b.slots.length, 0);
+    // 40 buses on 10 chargers with the crew: 4 stays a charger.
+    const scarce = problemOf(40, 10, true);
+    expect(busSlots(scarce)).toBeGreaterThan(600);
+    expect(defaultTimeBudgetMs(scarce)).toBe(20 * busSlots(scarce));
+    // The same depot without crew windows, or with 2 buses a charger: the 12 s net.
+    expect(defaultTimeBudgetMs(problemOf(40, 10, false))).toBe(12_000);
+    expect(defaultTimeBudgetMs(problemOf(40, 20, true))).toBe(12_000);
+    // 200 buses (above the whole-sequence search's 120 stays): 12 ms a bus.
+    expect(defaultTimeBudgetMs(problemOf(200, 40, true))).toBe(12_000);
+    expect(defaultTimeBudgetMs(problemOf(1_000, 250, true))).toBe(12_000);
+  });
+
   it('7 buses on 2 chargers (seed 4): the optimum, proven by its own bound, where the few best-scored splits missed it by 4.2 %', async () => {
     const { plan, penalised } = await planChecked(depot(7, 2, 4));
     // HiGHS's MILP (`solveExact`, one plug-in per stay, no node limit) run for 150 s from the
