@@ -53,9 +53,10 @@ export class OverdueStep {
   });
 
   constructor() {
-    // The planned time to start from: most late steps happened about then.
+    // The planned time to start from: most late steps happened about then. As HH:mm, the field's
+    // format, on a weekend's night too (whose steps show their day: "Fri 17:00").
     effect(() => {
-      const time = this.view().time;
+      const time = this.view().clockTime;
       untracked(() => {
         if (!this.time.dirty) this.time.setValue(time);
       });

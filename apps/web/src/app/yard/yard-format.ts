@@ -108,7 +108,10 @@ export type StepState = 'done' | 'saving' | 'overdue' | 'upcoming' | 'missed';
 export interface StepView {
   step: YardStep;
   state: StepState;
+  /** As the night shows it: "21:30", or "Fri 21:30" on a night longer than a day. */
   time: string;
+  /** "21:30" at the depot on any night: what a late confirmation's time field takes. */
+  clockTime: string;
   /** The server's words for it: "Plug in bus 214 at charger C3", "Unplug bus 218 from charger C3 now (…)" */
   title: string;
   /** "Plug in bus 214 at charger C3 at 21:30" */
@@ -167,7 +170,8 @@ export function stepViews(
     .map((step) => {
       const box = outbox(step.key);
       const state = stepState(step, nowMs, box);
-      const time = days ? weekdayTimeAt(step.at, timeZone) : clock(step.at, timeZone);
+      const clockTime = clock(step.at, timeZone);
+      const time = days ? weekdayTimeAt(step.at, timeZone) : clockTime;
       const title = stepTitle(step);
       const confirmedAt = step.confirmedAt ?? (box?.state === 'saved' ? box.confirmedAt : null);
       const confirmedBy = step.confirmedBy ?? (box?.state === 'saved' ? box.confirmedBy : null);
@@ -175,6 +179,7 @@ export function stepViews(
         step,
         state,
         time,
+        clockTime,
         title,
         // An unplug forced by a report says "now" itself; its time is when the report was made.
         sentence: step.reason ? `${title} (reported ${time})` : `${title} at ${time}`,
