@@ -381,6 +381,8 @@ export const plans = pgTable(
       outOfService?: string[];
       lateArrivals?: Record<string, string>;
       absent?: string[];
+      /** States of charge read tonight, by bus: later re-plans start such a bus from its reading. */
+      socReadings?: Record<string, { kwh: number; at: string }>;
       from?: string;
       previousPlanId?: string | null;
       plugged?: Record<string, string>;

@@ -187,3 +187,42 @@ export function stopSessions(
     }),
   };
 }
+
+/** A state of charge the yard read tonight, kept for the re-plans after it. */
+export interface SocReading {
+  kwh: number;
+  /** ISO instant of the reading (the re-plan's cut-off it was made at). */
+  at: string;
+}
+
+/**
+ * A bus's energy at a later cut-off from a reading taken earlier in the same stay: the reading plus
+ * what the plan followed delivered to it since. A re-plan otherwise works the energy out from the
+ * scenario's arrival estimate, so each re-plan after a reading forgot it. Null when the bus has left
+ * the depot since (its next arrival is the scenario's business again) or the reading is not in a stay.
+ */
+export function energySinceReading(
+  scenario: Pick<Scenario, 'buses' | 'efficiency' | 'slotMinutes'>,
+  followed: Pick<PlanResult, 'sessions'>,
+  bus: string,
+  reading: SocReading,
+  cutMs: number,
+  zone: string,
+): number | null {
+  const readMs = Date.parse(reading.at);
+  const stays = scenario.buses.find((b) => b.id === bus)?.stays ?? [];
+  const stay = stays.find((s) => localToMillis(s.arrive, zone)! <= readMs && readMs < localToMillis(s.depart, zone)!);
+  if (!stay || cutMs < readMs || cutMs >= localToMillis(stay.depart, zone)!) return null;
+  const slotMs = scenario.slotMinutes * 60_000;
+  let kwh = reading.kwh;
+  for (const s of followed.sessions) {
+    if (s.bus !== bus) continue;
+    const start = Date.parse(s.start);
+    s.kw.forEach((kw, k) => {
+      const from = start + k * slotMs;
+      const overlap = Math.max(0, Math.min(from + slotMs, cutMs) - Math.max(from, readMs));
+      kwh += scenario.efficiency * kw * (overlap / 3_600_000);
+    });
+  }
+  return kwh;
+}

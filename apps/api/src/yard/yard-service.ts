@@ -30,7 +30,7 @@ import { comparePlans, planDetailOf } from '../plans/plans-service';
 import { runInPool } from '../workers/pool';
 import { LATE, OVERDUE_AFTER_MS, stepsDueSoon, yardSteps, type StepConfirmation, type StepContext } from './yard-steps';
 import { cutOffTarget, targetsOf } from '../plans/plan-target';
-import { mergeReplan, stopSessions, type SessionStop } from '../plans/night-in-progress';
+import { energySinceReading, mergeReplan, stopSessions, type SessionStop } from '../plans/night-in-progress';
 import { nightOfDepot } from '../night/depot-night';
 import { publishedNight } from './tonight-query';
 import type { NotifiedCache } from '../db/notified-cache';
@@ -481,6 +481,7 @@ export async function replanAndPublish(
     outOfService: [...(plan.replanState?.outOfService ?? [])],
     lateArrivals: { ...(plan.replanState?.lateArrivals ?? {}) },
     absent: [...(plan.replanState?.absent ?? [])],
+    socReadings: { ...(plan.replanState?.socReadings ?? {}) },
   };
   const energyKwh: Record<string, number> = {};
   const stops: SessionStop[] = [];
@@ -521,6 +522,7 @@ export async function replanAndPublish(
     case 'soc_reading': {
       const bus = scenario.buses.find((b) => b.id === report.bus)!;
       energyKwh[report.bus] = Math.round((report.socPct / 100) * bus.usableKwh * 100) / 100;
+      state.socReadings[report.bus] = { kwh: energyKwh[report.bus]!, at: cutAt.toISOString() };
       break;
     }
     case 'step_missed': {
@@ -558,6 +560,14 @@ export async function replanAndPublish(
   }
 
   const previous = stopSessions(followed, stops, zone, scenario.slotMinutes);
+  // Readings taken earlier tonight stand: the energy at the cut-off is the reading plus what was
+  // delivered since, not the scenario's estimate (a bus that has left since drops its reading).
+  for (const [bus, reading] of Object.entries(state.socReadings)) {
+    if (bus in energyKwh || state.absent.includes(bus)) continue;
+    const kwh = energySinceReading(scenario, previous, bus, reading, cutAt.getTime(), zone);
+    if (kwh === null) delete state.socReadings[bus];
+    else energyKwh[bus] = Math.round(kwh * 100) / 100;
+  }
   const absent = new Set(state.absent);
   const kept = { ...scenario, buses: scenario.buses.filter((b) => !absent.has(b.id)) };
   const previousPlan = {

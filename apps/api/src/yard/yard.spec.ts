@@ -260,6 +260,62 @@ describe('yard: reports re-plan the rest of the night', () => {
     expect(row!.notes.at(-1)).toBe(`Revised at ${reportedAt}: charger A out of service (Cable worn).`);
   });
 
+  it('a reading stands in the re-plans after it: the next report starts the bus from it, not from the estimate', async () => {
+    const org = await createOrganisation(app, { y: ['yard'], s: ['supervisor'] });
+    const y = org.users.y!;
+    const depot = (await createDepot(app.db, org.organisationId)).depot.id;
+    await addBuses(app.db, org.organisationId, depot, ['71', '72', '73']);
+    for (const date of ['2026-12-21', '2026-12-22'])
+      await app
+        .request()
+        .put(`/api/depots/${depot}/service-days/${date}`)
+        .set(as(org.users.s!))
+        .send({ runs: dayRuns(date, ['71', '72', '73']) })
+        .expect(200);
+    await publishedPlan(app, org.users.s!, depot, '2026-12-21');
+    const report = async (at: string, body: object) => {
+      clock = DateTime.fromISO(at, { zone: ZONE }).toJSDate();
+      await signInAgain(app, y);
+      const planId = (await app.request().get(`/api/depots/${depot}/tonight`).set(as(y)).expect(200)).body.plan.id;
+      const res = await app
+        .request()
+        .post(`/api/depots/${depot}/tonight/reports`)
+        .set(as(y))
+        .send({ planId, ...body })
+        .expect(201);
+      const [row] = await app.db.select().from(plans).where(eq(plans.id, res.body.revision.id));
+      return row!;
+    };
+    // Bus 71 (196 kWh) reads 5 % at 22:00, well below the estimate the plan started from.
+    const read = await report('2026-12-21T22:00', { kind: 'soc_reading', bus: '71', socPct: 5 });
+    const readKwh = 0.05 * 196;
+    // Half an hour later bus 73 is reported absent: a re-plan with nothing said of bus 71.
+    const next = await report('2026-12-21T22:30', { kind: 'bus_absent', bus: '73' });
+    expect(next.replanState!.socReadings).toEqual({
+      '71': { kwh: readKwh, at: read.replanState!.socReadings!['71']!.at },
+    });
+    const eta = next.scenario.efficiency ?? 1;
+    const after = (r: PlanResult, fromMs: number) =>
+      r.sessions
+        .filter((x) => x.bus === '71')
+        .reduce(
+          (sum, x) =>
+            sum + x.kw.reduce((a, kw, k) => a + (Date.parse(x.start) + k * 900_000 >= fromMs ? eta * kw * 0.25 : 0), 0),
+          0,
+        );
+    // The revision's bus 71 leaves with its reading and what was delivered from 22:00 on, and
+    // that is what its next day needs. Before, the re-plan at 22:30 took it from the estimate
+    // again (reserve and no charge since its 16:20 pull-in counted, plus the plan's charging) and
+    // planned it as if the reading had never been made.
+    const bus = next.result!.buses.find((b) => b.id === '71')!;
+    const nightStay = next.scenario.buses.find((b) => b.id === '71')!.stays.at(-1)!;
+    const departure = bus.departures.at(-1)!.kwh;
+    const at2200 = DateTime.fromISO('2026-12-21T22:00', { zone: ZONE }).toMillis();
+    expect(departure).toBeCloseTo(readKwh + after(next.result!, at2200), 1);
+    expect(departure).toBeGreaterThanOrEqual(nightStay.departMinKwh - 0.01);
+    expect(bus.shortfallKwh).toBe(0);
+  });
+
   it('roles', async () => {
     const fin = (await createOrganisation(app, { f: ['finance'] })).users.f!;
     await app.request().get(`/api/depots/${depotId}/tonight`).set(as(fin)).expect(403);
