@@ -10,9 +10,15 @@ function currencyFormat(currency: string, min: number, max: number): Intl.Number
       currency,
       minimumFractionDigits: min,
       maximumFractionDigits: max,
+      // No "-$0.00": a figure that rounds to zero has no sign.
+      signDisplay: 'negative',
     });
   } catch {
-    return new Intl.NumberFormat(undefined, { minimumFractionDigits: min, maximumFractionDigits: max });
+    return new Intl.NumberFormat(undefined, {
+      minimumFractionDigits: min,
+      maximumFractionDigits: max,
+      signDisplay: 'negative',
+    });
   }
 }
 
@@ -28,7 +34,7 @@ export function unitPrice(value: number, currency: string): string {
 }
 
 export function num(value: number, digits = 1): string {
-  return new Intl.NumberFormat(undefined, { maximumFractionDigits: digits }).format(value);
+  return new Intl.NumberFormat(undefined, { maximumFractionDigits: digits, signDisplay: 'negative' }).format(value);
 }
 
 export function kw(value: number): string {

@@ -77,4 +77,22 @@ describe('NightCostsPage', () => {
     expect(baseline).toBe(15011);
     expect(saving).toBe(baseline! - energy!);
   });
+
+  it('a saving that rounds to nothing has no sign, and peaks read to the tenth as on every page', async () => {
+    const { el } = await render(
+      planCosts({
+        energy: 83.85,
+        total: 103.85,
+        baseline: { kind: 'timer', energy: 83.85, demand: 140, total: 223.85, peakKw: 280, shortfallKwh: 0 },
+        savings: -1e-13,
+        savingsShare: -1e-15,
+        peakKw: 188.8,
+      }),
+    );
+    const savings = text(el.querySelector('.savings'));
+    expect(text(el.querySelector('.savings .card-value'))).toBe('$0.00');
+    expect(savings).toContain("0 % of the baseline's charging energy");
+    expect(savings).not.toMatch(/-\$0\.00|-0 %/);
+    expect(savings).toContain("The plan's peak 188.8 kW against the baseline's 280 kW");
+  });
 });

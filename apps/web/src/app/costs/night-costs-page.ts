@@ -57,17 +57,17 @@ export class NightCostsPage {
       // The night against its baseline on charging energy; demand is the period's (see Costs).
       baseline: money(baselineEnergy, c),
       baselineParts:
-        `Charging energy, peak ${num(p.baseline.peakKw, 0)} kW` +
+        `Charging energy, peak ${num(p.baseline.peakKw)} kW` +
         (p.baseline.shortfallKwh > 0.05
           ? `; ${num(p.baseline.shortfallKwh, 0)} kWh it would not deliver, counted at the plan's average price`
           : ''),
       otherBaseline: p.otherBaseline
-        ? `${baselineName(p.otherBaseline.kind)}: ${money(p.otherBaseline.energy, c)}, peak ${num(p.otherBaseline.peakKw, 0)} kW`
+        ? `${baselineName(p.otherBaseline.kind)}: ${money(p.otherBaseline.energy, c)}, peak ${num(p.otherBaseline.peakKw)} kW`
         : null,
       savings: money(saving, c),
       savingsShare: percent(p.savingsShare),
       savingsPositive: saving > 0,
-      peaks: `The plan's peak ${num(p.peakKw, 0)} kW against the baseline's ${num(p.baseline.peakKw, 0)} kW`,
+      peaks: `The plan's peak ${num(p.peakKw)} kW against the baseline's ${num(p.baseline.peakKw)} kW`,
       charging: kwh(p.chargingKwh),
       miles: `${num(p.miles, 0)} miles`,
       perMile: p.costPerMile === null ? 'No miles' : money(p.costPerMile, c),

@@ -27,5 +27,12 @@ describe('NightsTable', () => {
     expect(foot).toContain('$232.25');
     expect(foot).toContain('$225.09');
     expect(foot).toContain('-$7.16');
+    // A loss is coloured as one in the total as in its row (the total was always coloured a saving).
+    const savingCell = (row: Element | null) => row!.querySelectorAll('td')[2]!;
+    expect(text(savingCell(el.querySelectorAll('tbody tr')[1]!))).toBe('-$7.16');
+    expect(savingCell(el.querySelectorAll('tbody tr')[1]!).className).toContain('over');
+    expect(text(savingCell(el.querySelector('tfoot tr')))).toBe('-$7.16');
+    expect(savingCell(el.querySelector('tfoot tr')).className).toContain('over');
+    expect(savingCell(el.querySelector('tfoot tr')).className).not.toContain('saving');
   });
 });

@@ -96,6 +96,8 @@ export class NightsTable {
       planEnergy: money(t.plan, c),
       baselineEnergy: money(t.baseline, c),
       saving: money(t.saving, c),
+      // Coloured by the rows' rule: a total that is a loss reads as one.
+      savingClass: t.saving > SAME ? 'saving' : t.saving < -SAME ? 'over' : '',
       projected: money(t.projected, c),
     };
   });

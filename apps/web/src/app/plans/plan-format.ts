@@ -89,6 +89,8 @@ export function money(value: number, currency: string, digits = 2): string {
       currency,
       maximumFractionDigits: digits,
       minimumFractionDigits: digits,
+      // No "-$0.00": a figure that rounds to zero has no sign.
+      signDisplay: 'negative',
     }).format(value);
   } catch {
     return `${value.toFixed(digits)} ${currency}`;
@@ -96,7 +98,7 @@ export function money(value: number, currency: string, digits = 2): string {
 }
 
 export function num(value: number, digits = 1): string {
-  return new Intl.NumberFormat(undefined, { maximumFractionDigits: digits }).format(value);
+  return new Intl.NumberFormat(undefined, { maximumFractionDigits: digits, signDisplay: 'negative' }).format(value);
 }
 
 export function pct(share: number, digits = 1): string {
