@@ -502,7 +502,11 @@ export async function replanAndPublish(
         throw new DomainError('validation_failed', `Charger ${report.charger} is not at ${depot.name}`, {
           charger: 'Not at this depot',
         });
-      if (!state.outOfService.includes(report.charger)) state.outOfService.push(report.charger);
+      // Reported again tonight: the plan already keeps off it, and a revision would only send
+      // everyone the same night again and move the Depot's "out of service since" time.
+      if (state.outOfService.includes(report.charger))
+        throw conflict(`Charger ${report.charger} is already out of service tonight: the plan keeps off it`);
+      state.outOfService.push(report.charger);
       // Nothing charges on it from this instant, the rest of the current slot included.
       stops.push({ charger: report.charger, at: cutAt });
       break;

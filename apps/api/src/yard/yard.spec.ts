@@ -207,6 +207,16 @@ describe('yard: reports re-plan the rest of the night', () => {
       .send({ planId: first!.id, stepKey: 'x' })
       .expect(409);
     expect(oldStep.body.error.message).toMatch(/replaced by version 3/);
+    // A charger reported out again tonight: no revision, no e-mail, the Depot's time kept.
+    const [cur] = await app.db.select().from(plans).where(eq(plans.id, current.plan.id));
+    const out = cur!.replanState!.outOfService![0]!;
+    const again = await app
+      .request()
+      .post(`/api/depots/${depotId}/tonight/reports`)
+      .set(as(yard))
+      .send({ planId: current.plan.id, kind: 'charger_out', charger: out, reason: 'Still broken' })
+      .expect(409);
+    expect(again.body.error.message).toBe(`Charger ${out} is already out of service tonight: the plan keeps off it`);
     expect(await count()).toBe(n);
   });
 
