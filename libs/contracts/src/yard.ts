@@ -3,6 +3,13 @@ import { localDateTimeSchema } from './dates';
 import { text } from './text';
 import { planDetailSchema, planSummarySchema } from './plans';
 
+/**
+ * A step confirmed more than this long before its time is asked about once more: crews often plug
+ * in a little early, but a tap on a step hours ahead is more likely a slip of the thumb than a bus
+ * moved hours before the plan has it.
+ */
+export const CONFIRM_EARLY_MS = 60 * 60_000;
+
 export const yardStepSchema = z.object({
   /** Stable across revisions of the night: `connect|bus|charger|start`. */
   key: z.string(),

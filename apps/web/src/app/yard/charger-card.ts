@@ -1,10 +1,11 @@
-import { ChangeDetectionStrategy, Component, computed, input, output } from '@angular/core';
+import { ChangeDetectionStrategy, Component, computed, input, output, signal } from '@angular/core';
 import { MatButtonModule } from '@angular/material/button';
 import { MatIconModule } from '@angular/material/icon';
+import { CONFIRM_EARLY_MS } from '@nightyard/contracts';
 import { NightTrack } from './night-track';
 import { OverdueStep, type ConfirmAt } from './overdue-step';
 import type { ReportPreset } from './report-dialog';
-import { clock, dueText, kwh, moveBy, type Horizon, type StepView } from './yard-format';
+import { clock, dueText, kwh, moveBy, relative, type Horizon, type StepView } from './yard-format';
 import type { ChargerView } from './yard-store';
 
 const STATE_TEXT = {
@@ -52,6 +53,9 @@ export class ChargerCard {
   readonly missed = output<StepView>();
   readonly report = output<ReportPreset>();
 
+  /** The step whose early confirmation is being asked about (its key), else null. */
+  protected readonly askingEarly = signal<string | null>(null);
+
   protected readonly stateText = STATE_TEXT;
   protected readonly stateIcon = STATE_ICON;
   protected readonly headingId = computed(() => `ny-charger-${this.view().label.replace(/[^\w-]/g, '_')}`);
@@ -74,11 +78,25 @@ export class ChargerCard {
       // Who makes the move, in the run sheet's words: a driver's step is not the crew's walk.
       by: moveBy(v.step),
       button: v.step.action === 'connect' ? 'Confirm plugged in' : 'Confirm unplugged',
+      // More than an hour ahead: asked once more before it is saved (see CONFIRM_EARLY_MS).
+      early:
+        Date.parse(v.step.at) - this.now() > CONFIRM_EARLY_MS
+          ? `This step is due ${v.time}, ${relative(Date.parse(v.step.at), this.now())}. Was it really done now?`
+          : null,
       label: `${v.step.action === 'connect' ? 'Confirm plugged in' : 'Confirm unplugged'}: bus ${v.step.bus} ${v.step.action === 'connect' ? 'at' : 'from'} charger ${v.step.charger}`,
     };
   });
 
   /** The last step confirmed on this charger, with whether the server has it yet. */
+  protected confirmNext(view: StepView, early: string | null): void {
+    if (early && this.askingEarly() !== view.step.key) {
+      this.askingEarly.set(view.step.key);
+      return;
+    }
+    this.askingEarly.set(null);
+    this.confirm.emit(view);
+  }
+
   protected readonly lastDone = computed(() => {
     const done = this.view().steps.filter((s) => s.state === 'done' || s.state === 'saving');
     const last = done.filter((s) => s.outbox).at(-1) ?? done.at(-1);

@@ -157,6 +157,33 @@ describe('YardPage', () => {
     await render();
   });
 
+  it('a step more than an hour ahead is asked about once more before it is saved', async () => {
+    await start();
+    // C2's next step is its 05:00 unplug, six and a half hours after 22:30.
+    const next = () => card('C2').querySelector('.next')!;
+    const button = next().querySelector<HTMLButtonElement>('button.confirm')!;
+    expect(button.getAttribute('aria-label')).toBe('Confirm unplugged: bus 203 from charger C2');
+    button.click();
+    await render();
+    mock.expectNone('/api/yard/confirmations');
+    const ask = () => next().querySelector('.ask-early');
+    expect(text(ask())).toMatch(/^This step is due 05:00, in 6 h 3\d min\. Was it really done now\?/);
+    [...ask()!.querySelectorAll('button')].find((b) => text(b) === 'Cancel')!.click();
+    await render();
+    expect(ask()).toBeNull();
+    mock.expectNone('/api/yard/confirmations');
+    button.click();
+    await render();
+    [...ask()!.querySelectorAll('button')].find((b) => text(b) === 'Yes, it is done')!.click();
+    await render();
+    const req = mock.expectOne('/api/yard/confirmations');
+    expect(req.request.body.stepKey).toBe(`disconnect|203|C2|${at('05:00')}`);
+    req.flush({ stepKey: req.request.body.stepKey, confirmedAt: at('22:31'), confirmedBy: 'Kofi Brandt' });
+    await render();
+    answer(tonight());
+    await render();
+  });
+
   it('tells the yard in the app when the plan changes version', async () => {
     await start();
     expect(el.querySelector('.notice')).toBeNull();
