@@ -40,8 +40,15 @@ describe('TonightPage', () => {
   /** Tonight as the server says (the night endpoint). */
   let tonight = '2026-12-01';
 
-  async function start(roles: Role[] = ['admin']): Promise<void> {
-    const current = signal(depot({ id: DEPOT_ID, name: 'Orchard Lane Depot', timezone: 'America/Chicago' }));
+  async function start(roles: Role[] = ['admin'], serviceLimitKw?: number): Promise<void> {
+    const current = signal(
+      depot({
+        id: DEPOT_ID,
+        name: 'Orchard Lane Depot',
+        timezone: 'America/Chicago',
+        ...(serviceLimitKw === undefined ? {} : { serviceLimitKw }),
+      }),
+    );
     TestBed.configureTestingModule({
       providers: [
         provideRouter([]),
@@ -115,6 +122,27 @@ describe('TonightPage', () => {
     await detail(planDetail({ id: PLAN_IDS.published, serviceDate: '2026-12-01', state: 'published' }));
     expect(fact('not-tonight')).toContain('No plan is published for tonight');
     expect(fact('not-tonight')).toContain('2');
+  });
+
+  it("warns when the depot's service limit was lowered below the published plan's peak", async () => {
+    // The plan peaks at 120 kW under a 150 kW limit; the Depot now says 90 kW.
+    await start(['admin'], 90);
+    await chargers([charger('C1')]);
+    await night('2026-12-01', [planSummary({ id: PLAN_IDS.published, serviceDate: '2026-12-01', state: 'published' })]);
+    await detail(planDetail({ id: PLAN_IDS.published, serviceDate: '2026-12-01', state: 'published' }));
+    expect(fact('peak')).toContain('120 kW of 150 kW limit');
+    expect(fact('limit-lowered')).toBe(
+      "warning The service limit is now 90 kW, below this plan's peak (it was made under 150 kW). Generate the night again under Plans so it keeps to the new limit.",
+    );
+  });
+
+  it('says nothing of a lowered limit the plan keeps to', async () => {
+    await start(['admin'], 130);
+    await chargers([charger('C1')]);
+    await night('2026-12-01', [planSummary({ id: PLAN_IDS.published, serviceDate: '2026-12-01', state: 'published' })]);
+    await detail(planDetail({ id: PLAN_IDS.published, serviceDate: '2026-12-01', state: 'published' }));
+    expect(fact('peak')).toContain('120 kW of 150 kW limit');
+    expect(el.querySelector('[data-fact="limit-lowered"]')).toBeNull();
   });
 
   it('walks back from today to the latest night with a published plan and shows it', async () => {

@@ -129,6 +129,14 @@ export class TonightPage {
             limitText: `${num(peak.limitKw)} kW`,
             share: peak.limitKw > 0 ? Math.min(100, (peak.peakKw / peak.limitKw) * 100) : 0,
             sharePct: peak.limitKw > 0 ? num((peak.peakKw / peak.limitKw) * 100, 0) : null,
+            // The depot's service limit lowered since the plan was made, below what it draws: the
+            // plan does not know, and only a new plan keeps to it.
+            lowered: (() => {
+              const nowKw = this.depots.current()?.serviceLimitKw;
+              return nowKw !== undefined && peak.peakKw > nowKw + 0.05 && nowKw < peak.limitKw - 0.05
+                ? `The service limit is now ${num(nowKw)} kW, below this plan's peak (it was made under ${num(peak.limitKw)} kW). Generate the night again under Plans so it keeps to the new limit.`
+                : null;
+            })(),
           }
         : null,
       baselinePeak: r ? `${num(r.baseline.peakKw)} kW` : null,
