@@ -1,4 +1,4 @@
-import { hourlyLoad } from './site-load-chart';
+import { hourLabel, hourlyLoad } from './site-load-chart';
 
 // Invented slots at a depot in Chicago (UTC-6 in December).
 const slots = (fromUtc: string, hours: number) =>
@@ -25,5 +25,21 @@ describe('site load hour by hour', () => {
     const labels = hours.map((h) => h.hour);
     expect(labels.filter((l) => l.endsWith('15:00'))).toEqual(['Fri 15:00', 'Sat 15:00', 'Sun 15:00']);
     expect(new Set(labels).size).toBe(labels.length);
+  });
+
+  it('spaces the time axis labels at least 48 px apart, a weekend on a phone too', () => {
+    // Friday 15:00 to Monday 07:00 in quarter hours (256 slots), as the axis labels them.
+    const labels = Array.from({ length: 256 }, (_, i) => {
+      const minutes = (15 * 60 + i * 15) % (24 * 60);
+      return `${String(Math.floor(minutes / 60)).padStart(2, '0')}:${String(minutes % 60).padStart(2, '0')}`;
+    });
+    const shown = (width: number) => labels.flatMap((_, i) => (hourLabel(labels, i, width) ? [i] : []));
+    for (const width of [230, 330, 1000]) {
+      const at = shown(width);
+      const gapPx = Math.min(...at.slice(1).map((i, k) => i - at[k]!)) * (width / labels.length);
+      expect(gapPx, `${width} px`).toBeGreaterThanOrEqual(48);
+    }
+    // 230 px (a phone): one label a day, at midnight; before, every 6 hours at 22 px apart.
+    expect(shown(230).map((i) => labels[i])).toEqual(['00:00', '00:00', '00:00']);
   });
 });

@@ -55,13 +55,14 @@ export function hourlyLoad(result: Pick<PlanResult, 'slots'>, timeZone: string) 
 
 /**
  * The axis label of slot `index`: its time when it starts a whole hour that falls on the step
- * (1, 2, 3, 4 or 6 hours, the smallest that leaves 48 px between labels), else none.
+ * (1, 2, 3, 4, 6, 12 or 24 hours, the smallest that leaves 48 px between labels), else none. A
+ * weekend's night on a phone needs the 12 and 24: every 6 hours its labels ran into each other.
  */
 export function hourLabel(labels: readonly string[], index: number, widthPx: number): string | null {
   const label = labels[index];
   if (!label || !label.endsWith(':00')) return null;
   const pxPerHour = (widthPx / Math.max(labels.length, 1)) * 4;
-  const step = [1, 2, 3, 4, 6].find((n) => n * pxPerHour >= 48) ?? 6;
+  const step = [1, 2, 3, 4, 6, 12, 24].find((n) => n * pxPerHour >= 48) ?? 24;
   return Number(label.slice(0, 2)) % step === 0 ? label : null;
 }
 
@@ -168,7 +169,7 @@ export class SiteLoadChart {
         },
       },
       scales: {
-        // Labels on whole hours only, every 1, 2, 3, 4 or 6 hours as the chart's width allows.
+        // Labels on whole hours only, every 1 to 24 hours as the chart's width allows.
         x: {
           ticks: {
             color: c.text,
