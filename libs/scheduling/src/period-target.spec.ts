@@ -44,6 +44,8 @@ interface NightSpec {
   periodDemandCharge?: number;
   /** $/kW of the facility demand (7.5 unless told). */
   facilityRate?: number;
+  /** From 09:00, with a midday layover (09:30-13:30, a 10 kWh run after it) before the night. */
+  midday?: boolean;
 }
 
 function night(spec: NightSpec): Scenario {
@@ -62,6 +64,9 @@ function night(spec: NightSpec): Scenario {
       arrivalKwh: arrival,
       ceilingKwh: Math.round(usable * 0.95),
       stays: [
+        ...(spec.midday
+          ? [{ arrive: at(day, 9 * 60 + 30), depart: at(day, 13 * 60 + 30), departMinKwh: arrival, runKwh: 10 }]
+          : []),
         {
           arrive: at(day, 17 * 60 + 15 * Math.floor(r() * 8)),
           depart: at(next, 5 * 60 + 15 * Math.floor(r() * 6)),
@@ -73,7 +78,7 @@ function night(spec: NightSpec): Scenario {
   const input: ScenarioInput = {
     version: 1,
     timezone: ZONE,
-    start: at(day, 16 * 60),
+    start: at(day, spec.midday ? 9 * 60 : 16 * 60),
     end: at(next, 7 * 60),
     slotMinutes: 15,
     efficiency: 0.92,
@@ -310,6 +315,22 @@ describe('billing-period demand target', () => {
       if (f < 60 || k < 40) continue;
       expect(billAt(f, k)).toBeGreaterThanOrEqual(penalised - 0.01);
     }
+  });
+
+  it("a target set at a midday layover says what the buses need by their last pull-out, not the layover's own 0 kWh", async () => {
+    const all = solvePeriodTarget(
+      nightsOf([{ date: '2026-12-14', buses: 5, need: 0.75, seed: 1, midday: true }]),
+      solver,
+    );
+    const b = all.binding!;
+    expect(b.sentence).toMatch(
+      /^Monday Dec 14, \d\d:\d\d: 5 buses need [\d,]+ kWh from pull-in \(09:30\) to their last pull-out \(0[5-6]:\d\d\)/,
+    );
+    // Each bus needs its night's energy beyond its arrival and the 10 kWh run (before: 0 kWh, the
+    // layover's own pull-out needing nothing).
+    const scenario = night({ date: '2026-12-14', buses: 5, need: 0.75, seed: 1, midday: true });
+    const expected = scenario.buses.reduce((a, bus) => a + (bus.stays[1]!.departMinKwh - (bus.arrivalKwh - 10)), 0);
+    expect(b.needKwh).toBeCloseTo(expected, 1);
   });
 
   it('a heavy night raises the target and lighter nights plan under it, filling cheap intervals up to it', async () => {

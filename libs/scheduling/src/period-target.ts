@@ -355,13 +355,19 @@ function bindingOf(
   let need = 0;
   let from = Infinity;
   let to = -Infinity;
+  // What the buses at the depot then still need by their last pull-out: at a midday layover that
+  // is the night's energy too (charging there is ahead of the night), where the layover's own
+  // pull-out alone often needs nothing ("5 buses need 0 kWh ... still needs 58 kW").
+  let later = false;
   for (const bus of p.buses) {
-    const stay = bus.stays.find((st) => st.arriveSlot <= best.t && best.t < st.departSlot);
-    if (!stay) continue;
+    const k = bus.stays.findIndex((st) => st.arriveSlot <= best.t && best.t < st.departSlot);
+    if (k < 0) continue;
     buses++;
-    need += Math.max(0, stay.requiredKwh - (bus.arrivalKwh - stay.runsBeforeKwh));
-    from = Math.min(from, stay.arriveMs);
-    to = Math.max(to, stay.departMs);
+    const ahead = bus.stays.slice(k);
+    need += Math.max(0, ...ahead.map((st) => st.requiredKwh - (bus.arrivalKwh - st.runsBeforeKwh)));
+    later ||= ahead.length > 1;
+    from = Math.min(from, bus.stays[k]!.arriveMs);
+    to = Math.max(to, ahead.at(-1)!.departMs);
   }
   const zone = p.zone;
   const what = s.name === 'facility' ? 'the facility demand' : `the ${s.name} demand`;
@@ -369,7 +375,7 @@ function bindingOf(
     Math.abs(kw - slot.limitKw) < 1e-6 ? ` and the service limit (${groupDigits(slot.limitKw)} kW) is reached` : '';
   const sentence =
     `${nights[best.night]!.label}, ${clock(slot.startMs, zone)}: ${buses} bus${buses === 1 ? '' : 'es'} need ` +
-    `${groupDigits(need)} kWh between pull-in (${clock(from, zone)}) and pull-out (${clock(to, zone)}); ` +
+    `${groupDigits(need)} kWh ${later ? 'from' : 'between'} pull-in (${clock(from, zone)}) ${later ? 'to their last' : 'and'} pull-out (${clock(to, zone)}); ` +
     `spreading it over the cheap intervals still needs ${groupDigits(kw)} kW for ${what}${limitNote}.`;
   void currency;
   return { name: s.name, night: nights[best.night]!.label, at: slot.start, buses, needKwh: round(need, 1), sentence };
