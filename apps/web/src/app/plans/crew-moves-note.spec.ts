@@ -42,6 +42,11 @@ describe('crew moves note', () => {
       'Keeping the rest of the plan being carried out costs no more than the cheapest plan found.',
     );
     expect(crewMovesLines({ ...r, keptPrevious: null } as PlanResult, 'USD').at(-1)).toMatch(/^Re-plan: 1 bus moved/);
+    const none = {
+      ...r,
+      replan: { ...r.replan!, moved: { buses: [], reasons: ['bus 204 running late'] } },
+    } as PlanResult;
+    expect(crewMovesLines(none, 'USD')).toContain('Re-plan for bus 204 running late: no bus moved.');
     const short = { ...r, keptPrevious: { extraCost: 0, extraShortKwh: 6.8 } } as PlanResult;
     expect(crewMovesLines(short, 'USD').at(-1)).toBe(
       'Keeping the rest of the plan being carried out costs no more than the cheapest plan found. It leaves 6.8 kWh short that the cheapest plan would serve by moving other buses; the plan being carried out left it short already.',

@@ -56,8 +56,11 @@ export function crewMovesLines(r: PlanResult, currency: string): string[] {
   const moved = r.replan?.moved;
   if (moved) {
     const n = moved.buses.length;
+    // No bus moved: "0 buses moved because bus 204 running late" read as if the lateness moved none.
     out.push(
-      `Re-plan: ${n} ${n === 1 ? 'bus' : 'buses'} moved${n ? ` (${moved.buses.join(', ')})` : ''}${moved.reasons.length ? ` because ${moved.reasons.join('; ')}` : ''}.`,
+      n
+        ? `Re-plan: ${n} ${n === 1 ? 'bus' : 'buses'} moved (${moved.buses.join(', ')})${moved.reasons.length ? ` because ${moved.reasons.join('; ')}` : ''}.`
+        : `Re-plan${moved.reasons.length ? ` for ${moved.reasons.join('; ')}` : ''}: no bus moved.`,
     );
   }
   // A night planned again while a plan of it is published: what changed against that version.
