@@ -88,8 +88,18 @@ export const runInputSchema = z
     busNumber: text('The bus number').trim().min(1, 'Enter the bus number').max(20),
     pullOut: localDateTimeSchema,
     pullIn: localDateTimeSchema,
-    miles: z.number().min(0, 'Miles cannot be negative').max(1000).nullable().default(null),
-    kwh: z.number().min(0, 'Energy cannot be negative').max(2000).nullable().default(null),
+    miles: z
+      .number()
+      .min(0, 'Miles cannot be negative')
+      .max(1000, 'At most 1,000 miles a run: check the figure')
+      .nullable()
+      .default(null),
+    kwh: z
+      .number()
+      .min(0, 'Energy cannot be negative')
+      .max(2000, 'At most 2,000 kWh a run: check the figure')
+      .nullable()
+      .default(null),
     arrivalSocPct: pct('The state of charge on arrival').nullable().default(null),
   })
   .refine((r) => r.pullIn > r.pullOut, { message: 'The pull-in must be after the pull-out', path: ['pullIn'] })

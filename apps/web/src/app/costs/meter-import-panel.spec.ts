@@ -131,6 +131,24 @@ describe('MeterImportPanel', () => {
     );
   });
 
+  it('keeps the API\'s question mark: no "export?."', async () => {
+    await choose('notes.xml', '<feed/>');
+    (await nextRequest()).flush(
+      {
+        error: {
+          code: 'validation_failed',
+          message: 'No IntervalBlock in the file: is it a Green Button usage export?',
+          fields: { IntervalBlock: 'Missing' },
+        },
+      },
+      { status: 400, statusText: 'Bad Request' },
+    );
+    await refresh();
+    expect(text(el.querySelector('.result.problem .headline'))).toBe(
+      'notes.xml was not imported. No IntervalBlock in the file: is it a Green Button usage export? Nothing was imported.',
+    );
+  });
+
   it('refuses a file that is neither XML nor CSV without sending it', async () => {
     await choose('bill.pdf', '%PDF');
     await refresh();

@@ -137,12 +137,13 @@ export class MeterImportPanel {
       this.imported.emit(result);
     } catch (err) {
       const p = toApiProblem(err);
-      const message = p.message.replace(/[.\s]+$/, '');
+      // Ends with the API's own "?" or "!", else a full stop (not "export?.").
+      const message = /[?!]\s*$/.test(p.message) ? p.message.trim() : `${p.message.replace(/[.\s]+$/, '')}.`;
       const outside = p.fields['intervals'] === 'Outside the billing period';
       const advice = outside ? ` Choose the billing period the file is for, or export ${this.periodName()} only.` : '';
       const nothing = /nothing was imported/i.test(message) ? '' : ' Nothing was imported.';
       fail(
-        `${file.name} was not imported. ${message}.${advice}${nothing}`,
+        `${file.name} was not imported. ${message}${advice}${nothing}`,
         Object.entries(p.fields)
           .filter(([key]) => !REPEATED.has(key))
           .map(([key, text]) => ({ where: whereText(key), message: text })),

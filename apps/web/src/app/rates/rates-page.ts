@@ -125,7 +125,11 @@ export class RatesPage {
     return this.plans().map((plan) => {
       const uses = list.filter((a) => a.ratePlanId === plan.id);
       const seasons = plan.definition.seasons
-        .map((s) => `${s.name} (${monthRange(s.fromMonth, s.toMonth)})`)
+        // "All year", not "All year (All year)".
+        .map((s) => {
+          const months = monthRange(s.fromMonth, s.toMonth);
+          return s.name === months ? s.name : `${s.name} (${months})`;
+        })
         .join(', ');
       return {
         plan,
