@@ -178,10 +178,11 @@ export function fleetRoutes(api: ApiRoutes, { db }: AppDeps) {
       params: serviceDayParamsSchema,
     },
     async ({ user, params, res }) => {
-      await depotOf(db, user, params.depotId);
+      // The example rows name a bus of this depot, so a template filled in as shown uploads.
+      const fleet = await listBuses(db, user, params.depotId);
       res.setHeader('Content-Type', 'text/csv; charset=utf-8');
       res.setHeader('Content-Disposition', `attachment; filename="runs-${params.date}.csv"`);
-      res.send(runsCsvTemplate());
+      res.send(runsCsvTemplate(fleet.find((b) => b.status === 'active')?.number ?? fleet[0]?.number));
     },
   );
 }

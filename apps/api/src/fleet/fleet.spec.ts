@@ -117,6 +117,8 @@ describe('service day', () => {
       .expect(200);
     expect(template.headers['content-type']).toMatch(/text\/csv/);
     expect(template.text.split('\r\n')[0]).toBe('bus,pull_out,pull_in,miles,kwh,arrival_soc_pct');
+    // Its example rows name a bus of this depot (its first by number), not an invented 201.
+    expect(template.text.split('\r\n')[1]).toBe('11,06:10,08:25,31.5,,');
     const bad = [
       'bus,pull_out,pull_in,miles,kwh,arrival_soc_pct',
       '11,06:10,08:30,31,,',

@@ -5,8 +5,8 @@ import { DomainError } from '../http/errors';
 /** Columns of a service day's runs file; the template lists them with two example rows. */
 export const RUN_COLUMNS = ['bus', 'pull_out', 'pull_in', 'miles', 'kwh', 'arrival_soc_pct'] as const;
 
-export function runsCsvTemplate(): string {
-  return [RUN_COLUMNS.join(','), `201,06:10,08:25,31.5,,`, `201,14:05,16:30,,42,38`].join('\r\n') + '\r\n';
+export function runsCsvTemplate(bus = '201'): string {
+  return [RUN_COLUMNS.join(','), `${bus},06:10,08:25,31.5,,`, `${bus},14:05,16:30,,42,38`].join('\r\n') + '\r\n';
 }
 
 const FIELD_FOR: Record<string, string> = {
