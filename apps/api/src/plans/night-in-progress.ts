@@ -15,6 +15,8 @@ export interface PlanFrom {
   previousPlanId: string | null;
   /** Buses the yard confirmed on a charger at the cut-off: they stay there. */
   plugged: Record<string, string>;
+  /** States of charge the yard read tonight (in the plan followed): the plan starts those buses from them. */
+  socReadings?: Record<string, SocReading>;
 }
 
 /**
@@ -45,10 +47,22 @@ export async function planFromCutOff(
 ): Promise<PlanResult> {
   // The engine runs in a worker thread, like every plan. A stored result is the engine's whole
   // plan (the contract reads only some of its fields; the row keeps them all).
+  // A reading the yard made tonight stands here too, as in the yard's own re-plans.
+  const energyKwh: Record<string, number> = {};
+  const cutMs = localToMillis(at.from, scenario.timezone)!;
+  for (const [bus, reading] of Object.entries(at.socReadings ?? {})) {
+    const kwh = previous ? energySinceReading(scenario, previous, bus, reading, cutMs, scenario.timezone) : null;
+    if (kwh !== null) energyKwh[bus] = Math.round(kwh * 100) / 100;
+  }
   const next = await runInPool({
     kind: 'replan',
     scenario,
-    state: { now: at.from, plugged: at.plugged, ...(previous ? { previous: previous as Plan } : {}) },
+    state: {
+      now: at.from,
+      plugged: at.plugged,
+      ...(Object.keys(energyKwh).length ? { energyKwh } : {}),
+      ...(previous ? { previous: previous as Plan } : {}),
+    },
   });
   return mergeReplan(previous, next);
 }

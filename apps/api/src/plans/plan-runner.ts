@@ -54,6 +54,7 @@ async function planNight(
         from: from!,
         previousPlanId: plan.replanState?.previousPlanId ?? null,
         plugged: plan.replanState?.plugged ?? {},
+        ...(plan.replanState?.socReadings ? { socReadings: plan.replanState.socReadings } : {}),
       },
       await previousResult(db, plan.replanState?.previousPlanId ?? null),
     );

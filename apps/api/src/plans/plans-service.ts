@@ -165,7 +165,8 @@ export async function prepareNight(
       .where(and(eq(plans.depotId, depotId), eq(plans.serviceDate, serviceDate), eq(plans.state, 'published')));
     const result = followed ? resultOf(followed) : null;
     const plugged = followed && result ? await confirmedPlugged(db, depotId, serviceDate, result, now) : {};
-    planFrom = { from, previousPlanId: result ? followed!.id : null, plugged };
+    const socReadings = followed?.replanState?.socReadings;
+    planFrom = { from, previousPlanId: result ? followed!.id : null, plugged, ...(socReadings ? { socReadings } : {}) };
     notes.unshift(
       result
         ? `The night was under way at ${from.slice(11)}: this plan starts then; before it, version ${followed!.version} stands as published${Object.keys(plugged).length ? `, and the ${Object.keys(plugged).length} buses confirmed on a charger stay there` : ''}.`

@@ -6,7 +6,7 @@ import { plans } from '../db/schema';
 import { createDepot } from '../testing/depot-fixture';
 import { addBuses, dayRuns } from '../testing/fleet-fixture';
 import { mailFor } from '../testing/mail';
-import { deliveredBefore, publishedPlan } from '../testing/plan-fixture';
+import { deliveredBefore, generatedPlan, publishedPlan } from '../testing/plan-fixture';
 import { createOrganisation, createTestApp, signInAgain, type TestUser } from '../testing/test-app';
 
 const ZONE = 'America/Chicago';
@@ -324,6 +324,19 @@ describe('yard: reports re-plan the rest of the night', () => {
     expect(departure).toBeCloseTo(readKwh + after(next.result!, at2200), 1);
     expect(departure).toBeGreaterThanOrEqual(nightStay.departMinKwh - 0.01);
     expect(bus.shortfallKwh).toBe(0);
+
+    // The supervisor plans the night again at 23:00 (a night under way): the reading stands there
+    // too, and is carried for the yard's next report. Before, the new plan took bus 71 from its
+    // estimate and the reading was gone for good.
+    clock = DateTime.fromISO('2026-12-21T23:00', { zone: ZONE }).toJSDate();
+    await signInAgain(app, org.users.s!);
+    const again = await generatedPlan(app, org.users.s!, depot, '2026-12-21');
+    const [row] = await app.db.select().from(plans).where(eq(plans.id, again.id));
+    expect(row!.replanState!.socReadings).toEqual(next.replanState!.socReadings);
+    const fresh = row!.result!;
+    const departed = fresh.buses.find((b) => b.id === '71')!.departures.at(-1)!.kwh;
+    expect(departed).toBeCloseTo(readKwh + after(fresh, at2200), 1);
+    expect(departed).toBeGreaterThanOrEqual(nightStay.departMinKwh - 0.01);
   });
 
   it('roles', async () => {
