@@ -200,6 +200,16 @@ function comparedNight(result: PlanResult, fromMs: number, toMs: number) {
   }
   const kind = result.baselines && result.baseline.kind ? result.baseline.kind : null;
   const charging = kind ? result.baselines![kind].chargingKw : null;
+  // A plan made from a cut-off (a yard report, a night planned again while under way) keeps the
+  // night's slots from its start, but its baseline is the re-plan's, from the cut-off: its first
+  // value is the cut-off's slot. Before the cut-off the night is what happened, the same under
+  // either (read by index from the night's start, the baseline fell hours early: above the service
+  // limit, at other prices).
+  const from = result.replan?.from ? Date.parse(result.replan.from) : -Infinity;
+  const offset = Math.max(
+    0,
+    result.slots.findIndex((s) => Date.parse(s.start) >= from),
+  );
   const baselineKw = new Map<number, number>();
   let planEnergy = 0;
   let baselineEnergy = 0;
@@ -210,9 +220,10 @@ function comparedNight(result: PlanResult, fromMs: number, toMs: number) {
     const planKw = planCharging.get(t) ?? 0;
     planEnergy += planKw * 0.25 * s.price;
     if (!charging) return;
-    const kw = s.loadKw - planKw + (charging[i] ?? 0);
+    const baseKw = i < offset ? planKw : (charging[i - offset] ?? 0);
+    const kw = s.loadKw - planKw + baseKw;
     baselineKw.set(t, kw);
-    baselineEnergy += (charging[i] ?? 0) * 0.25 * s.price;
+    baselineEnergy += baseKw * 0.25 * s.price;
     baselinePeak = Math.max(baselinePeak, kw);
   });
   return { kind, baselineKw, planEnergy, baselineEnergy, baselinePeak };

@@ -130,7 +130,7 @@ describe('billing-period demand target', () => {
     expect(published.target).toBeDefined();
     now = new Date('2026-12-15T23:00:00-06:00');
     try {
-      await signInAgain(app, yard, sup);
+      await signInAgain(app, yard, sup, fin);
       const res = await app
         .request()
         .post(`/api/depots/${depotId}/tonight/reports`)
@@ -146,6 +146,33 @@ describe('billing-period demand target', () => {
       expect(target.binding).toBe(published.target.binding);
       if (target.trade === null) for (const p of target.peaks) expect(p.kw).toBeLessThanOrEqual(p.targetKw + 0.05);
       else expect(target.trade.sentence).toMatch(/^Raising the target by [\d.,]+ kW costs \$[\d.,]+ this month/);
+      // The Costs page compares the revision with its baseline in time: before the cut-off the night
+      // is what happened under either, after it the re-plan's own baseline (the engine's figure).
+      // Read by index from the night's start, the re-plan's baseline fell hours early.
+      const cut = Date.parse(revision.replan.from);
+      const planBefore = revision.sessions.reduce(
+        (sum: number, x: { start: string; kw: number[] }) =>
+          sum +
+          x.kw.reduce((a: number, kw: number, k: number) => {
+            const t = Date.parse(x.start) + k * 900_000;
+            const slot = revision.slots.find((sl: { start: string }) => Date.parse(sl.start) === t);
+            return a + (t < cut && slot ? kw * 0.25 * slot.price : 0);
+          }, 0),
+        0,
+      );
+      const m = (
+        await app
+          .request()
+          .get(`/api/depots/${depotId}/costs/month`)
+          .query({ date: '2026-12-15' })
+          .set(as(fin))
+          .expect(200)
+      ).body;
+      const row = m.nights.find((n: { planId: string }) => n.planId === res.body.revision.id);
+      const kind = revision.baseline.kind as 'arrival' | 'timer';
+      expect(row.baselineEnergyCost).toBeCloseTo(planBefore + revision.baselines[kind].energy, 2);
+      const limit = Math.max(...revision.slots.map((sl: { limitKw: number }) => sl.limitKw));
+      expect(row.baselinePeakKw).toBeLessThanOrEqual(limit + 0.01);
     } finally {
       now = new Date('2026-12-14T13:00:00-06:00');
       await signInAgain(app, sup, fin, yard);
