@@ -153,6 +153,13 @@ const AXE_SOURCE = (() => {
  * which spares the CSS selectors of thousands of passing nodes on a table of runs.
  */
 export async function expectAccessible(page: Page): Promise<void> {
+  // Not while something fades in or out: a snack bar half-faded failed colour contrast on a busy
+  // machine (its text at part opacity). Endless animations (progress bars) are not waited for.
+  await page.waitForFunction(() =>
+    document
+      .getAnimations()
+      .every((a) => a.playState !== 'running' || a.effect?.getComputedTiming().iterations === Infinity),
+  );
   const results = await new AxeBuilder({ page, axeSource: AXE_SOURCE })
     .options({ resultTypes: ['violations'] })
     .withTags(['wcag2a', 'wcag2aa', 'wcag21a', 'wcag21aa'])
