@@ -42,6 +42,18 @@ export function footedCents(values: readonly number[], total?: number): number[]
   return cents.map((c) => c / 100);
 }
 
+/**
+ * A night's energy and demand in cents as shown beside its total: they foot to it (`footedCents`).
+ * The energy is the figure a night's saving is taken from, on every page and in the e-mail.
+ */
+export function footedEnergyDemand(cost: { energy: number; demand: number; total: number }): {
+  energy: number;
+  demand: number;
+} {
+  const [energy, demand] = footedCents([cost.energy, cost.demand], toCents(cost.total));
+  return { energy: energy!, demand: demand! };
+}
+
 /** The sum of the figures as shown (each rounded by `toCents`), exact to the cent. */
 export function shownSum(values: readonly (number | null)[]): number {
   return values.reduce<number>((a, v) => a + Math.round(toCents(v ?? 0) * 100), 0) / 100;

@@ -48,12 +48,10 @@ export async function planFromCutOff(
   // The engine runs in a worker thread, like every plan. A stored result is the engine's whole
   // plan (the contract reads only some of its fields; the row keeps them all).
   // A reading the yard made tonight stands here too, as in the yard's own re-plans.
-  const energyKwh: Record<string, number> = {};
   const cutMs = localToMillis(at.from, scenario.timezone)!;
-  for (const [bus, reading] of Object.entries(at.socReadings ?? {})) {
-    const kwh = previous ? energySinceReading(scenario, previous, bus, reading, cutMs, scenario.timezone) : null;
-    if (kwh !== null) energyKwh[bus] = Math.round(kwh * 100) / 100;
-  }
+  const { energyKwh } = previous
+    ? readingsAtCutOff(scenario, previous, at.socReadings ?? {}, cutMs, scenario.timezone)
+    : { energyKwh: {} };
   const next = await runInPool({
     kind: 'replan',
     scenario,
@@ -239,4 +237,26 @@ export function energySinceReading(
     });
   }
   return kwh;
+}
+
+/**
+ * The energy at a cut-off of each bus read tonight (`energySinceReading`, to the hundredth), and
+ * the readings that still stand: one whose bus has left the depot since is dropped.
+ */
+export function readingsAtCutOff(
+  scenario: Pick<Scenario, 'buses' | 'efficiency' | 'slotMinutes'>,
+  followed: Pick<PlanResult, 'sessions'>,
+  readings: Record<string, SocReading>,
+  cutMs: number,
+  zone: string,
+): { energyKwh: Record<string, number>; standing: Record<string, SocReading> } {
+  const energyKwh: Record<string, number> = {};
+  const standing: Record<string, SocReading> = {};
+  for (const [bus, reading] of Object.entries(readings)) {
+    const kwh = energySinceReading(scenario, followed, bus, reading, cutMs, zone);
+    if (kwh === null) continue;
+    energyKwh[bus] = Math.round(kwh * 100) / 100;
+    standing[bus] = reading;
+  }
+  return { energyKwh, standing };
 }

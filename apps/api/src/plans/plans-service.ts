@@ -2,11 +2,10 @@ import { aliasedTable, and, desc, eq, sql } from 'drizzle-orm';
 import { DateTime } from 'luxon';
 import {
   baselineName,
-  footedCents,
+  footedEnergyDemand,
   horizonOf,
   longDate,
   planResultSchema,
-  toCents,
   type PlanComparison,
   type PlanDetail,
   type PlanResult,
@@ -374,7 +373,7 @@ async function notifyPublished(
         // The night's energy against the baseline's, as the review compares them: demand is billed
         // on the month's peak, so a night's demand is no saving of its own. The energy is the
         // review's to the cent: its share of the total shown (footedCents, the one rounding rule).
-        energy: footedCents([result.cost.energy, result.cost.demand], toCents(result.cost.total))[0]!,
+        energy: footedEnergyDemand(result.cost).energy,
         baseline: result.baseline.energy + (result.baseline.shortfallCost ?? 0),
         baselineName: baselineName(result.baseline.kind),
         short: short.map((b) => `${b.id} (${b.shortfallKwh.toFixed(1)} kWh short: ${b.reason})`),

@@ -30,7 +30,7 @@ import { comparePlans, planDetailOf } from '../plans/plans-service';
 import { runInPool } from '../workers/pool';
 import { LATE, OVERDUE_AFTER_MS, stepsDueSoon, yardSteps, type StepConfirmation, type StepContext } from './yard-steps';
 import { cutOffTarget, targetsOf } from '../plans/plan-target';
-import { energySinceReading, mergeReplan, stopSessions, type SessionStop } from '../plans/night-in-progress';
+import { mergeReplan, readingsAtCutOff, stopSessions, type SessionStop } from '../plans/night-in-progress';
 import { nightOfDepot } from '../night/depot-night';
 import { publishedNight } from './tonight-query';
 import type { NotifiedCache } from '../db/notified-cache';
@@ -566,12 +566,13 @@ export async function replanAndPublish(
   const previous = stopSessions(followed, stops, zone, scenario.slotMinutes);
   // Readings taken earlier tonight stand: the energy at the cut-off is the reading plus what was
   // delivered since, not the scenario's estimate (a bus that has left since drops its reading).
-  for (const [bus, reading] of Object.entries(state.socReadings)) {
-    if (bus in energyKwh || state.absent.includes(bus)) continue;
-    const kwh = energySinceReading(scenario, previous, bus, reading, cutAt.getTime(), zone);
-    if (kwh === null) delete state.socReadings[bus];
-    else energyKwh[bus] = Math.round(kwh * 100) / 100;
-  }
+  // This report's own reading, or a bus reported absent, comes first.
+  const earlier = Object.fromEntries(
+    Object.entries(state.socReadings).filter(([bus]) => !(bus in energyKwh) && !state.absent.includes(bus)),
+  );
+  const since = readingsAtCutOff(scenario, previous, earlier, cutAt.getTime(), zone);
+  for (const bus of Object.keys(earlier)) if (!(bus in since.standing)) delete state.socReadings[bus];
+  Object.assign(energyKwh, since.energyKwh);
   const absent = new Set(state.absent);
   const kept = { ...scenario, buses: scenario.buses.filter((b) => !absent.has(b.id)) };
   const previousPlan = {

@@ -173,6 +173,9 @@ export class CostsPage {
     const c = m.currency;
     const tz = this.timezone();
     const saved = m.savings;
+    // The two bills as the note shows them, each to the cent as a bill is.
+    const planBill = toCents(saved.planBill);
+    const baselineBill = toCents(saved.baselineBill);
     const facility = m.peaks.facility;
     const facilityAt = instantAt(facility.at, tz);
     return {
@@ -195,14 +198,13 @@ export class CostsPage {
           : facts.state === 'past'
             ? `The whole period, ${kwh(m.monthToDate.kwh)}.`
             : `From ${facts.from} to now, ${kwh(m.monthToDate.kwh)}.`,
-      // The difference of the two bills as the note shows them, each to the cent as a bill is:
-      // the card and its note then agree to the cent (the unrounded difference can be a cent off).
-      savings: money(toCents(saved.baselineBill) - toCents(saved.planBill), c),
-      savingsPositive: toCents(saved.baselineBill) > toCents(saved.planBill),
+      // Their difference: the card and its note agree to the cent (the unrounded one can be a cent off).
+      savings: money(baselineBill - planBill, c),
+      savingsPositive: baselineBill > planBill,
       // The two bills are whole-period bills: the first is the projected bill shown beside it.
       savingsNote: saved.nightsCompared
-        ? `Projected for the whole period: the projected bill ${money(toCents(saved.planBill), c)} (facility demand ` +
-          `${kw(saved.planPeakKw)}) against ${money(toCents(saved.baselineBill), c)} with ` +
+        ? `Projected for the whole period: the projected bill ${money(planBill, c)} (facility demand ` +
+          `${kw(saved.planPeakKw)}) against ${money(baselineBill, c)} with ` +
           `${saved.nightsCompared === 1 ? 'the published night' : `the ${saved.nightsCompared} published nights`} ` +
           `charged as ${saved.nightsCompared === 1 ? 'its baseline' : 'their baselines'} instead (facility demand ${kw(saved.baselinePeakKw)}).`
         : 'No published plan in this period to compare yet.',

@@ -3,7 +3,7 @@ import { MatButtonModule } from '@angular/material/button';
 import { MatIconModule } from '@angular/material/icon';
 import { MatProgressBarModule } from '@angular/material/progress-bar';
 import { RouterLink } from '@angular/router';
-import { footedCents, toCents, type PlanCosts } from '@nightyard/contracts';
+import { footedCents, footedEnergyDemand, toCents, type PlanCosts } from '@nightyard/contracts';
 import { toApiProblem } from '../core/api-error';
 import { baselineName } from '../plans/plan-format';
 import { CostsApi } from './costs-api';
@@ -47,12 +47,12 @@ export class NightCostsPage {
     const c = p.currency;
     // The parts add up to the total shown (footedCents, the one rounding rule), and the saving is
     // the difference of the two energy figures shown, so no card is a cent off another.
-    const [energy, demand] = footedCents([p.energy, p.demand], toCents(p.total));
+    const { energy, demand } = footedEnergyDemand(p);
     const baselineEnergy = toCents(p.baseline.total - p.baseline.demand);
-    const saving = baselineEnergy - energy!;
+    const saving = baselineEnergy - energy;
     return {
       total: money(toCents(p.total), c),
-      parts: `Energy ${money(energy!, c)}, demand ${money(demand!, c)}`,
+      parts: `Energy ${money(energy, c)}, demand ${money(demand, c)}`,
       baselineName: baselineName(p.baseline.kind),
       // The night against its baseline on charging energy; demand is the period's (see Costs).
       baseline: money(baselineEnergy, c),

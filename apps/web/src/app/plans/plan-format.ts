@@ -1,6 +1,6 @@
 import {
   baselineName,
-  footedCents,
+  footedEnergyDemand,
   toCents,
   type PlanDetail,
   type PlanResult,
@@ -257,14 +257,14 @@ export function nightComparison(result: PlanResult): NightComparison {
   const baselineEnergy = toCents(base.energy + (base.shortfallCost ?? 0));
   const otherKind = base.kind === 'arrival' ? 'timer' : base.kind === 'timer' ? 'arrival' : null;
   const other = otherKind && result.baselines ? result.baselines[otherKind] : null;
-  const [planEnergy, planDemand] = footedCents([result.cost.energy, result.cost.demand], toCents(result.cost.total));
-  const energySaving = toCents(baselineEnergy - planEnergy!);
+  const { energy: planEnergy, demand: planDemand } = footedEnergyDemand(result.cost);
+  const energySaving = toCents(baselineEnergy - planEnergy);
   return {
     baselineName: baselineName(base.kind),
     otherName: other ? baselineName(otherKind) : null,
     otherEnergy: other ? toCents(other.energy + (other.shortfallCost ?? 0)) : null,
-    planEnergy: planEnergy!,
-    planDemand: planDemand!,
+    planEnergy,
+    planDemand,
     baselineEnergy,
     energySaving,
     energySavingShare: baselineEnergy > 0 ? energySaving / baselineEnergy : 0,
