@@ -116,6 +116,17 @@ export const planResultSchema = z.looseObject({
       outOfService: z.array(z.string()).optional(),
       plugged: z.record(z.string(), z.string()).optional(),
       moved: z.object({ buses: z.array(z.string()), reasons: z.array(z.string()) }).optional(),
+      /**
+       * The re-plan's own figures, from the cut-off on (the plan's `cost`, `baseline` and
+       * `lowerBound` are the whole night's: these plus what the slots before the cut-off cost).
+       */
+      own: z
+        .object({
+          cost: z.object({ energy: z.number(), demand: z.number(), total: z.number() }),
+          lowerBound: z.number(),
+          baselineEnergy: z.object({ arrival: z.number(), timer: z.number() }).optional(),
+        })
+        .optional(),
     })
     .optional(),
   /**

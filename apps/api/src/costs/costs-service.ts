@@ -200,16 +200,11 @@ function comparedNight(result: PlanResult, fromMs: number, toMs: number) {
   }
   const kind = result.baselines && result.baseline.kind ? result.baseline.kind : null;
   const charging = kind ? result.baselines![kind].chargingKw : null;
-  // A plan made from a cut-off (a yard report, a night planned again while under way) keeps the
-  // night's slots from its start, but its baseline is the re-plan's, from the cut-off: its first
-  // value is the cut-off's slot. Before the cut-off the night is what happened, the same under
-  // either (read by index from the night's start, the baseline fell hours early: above the service
-  // limit, at other prices).
-  const from = result.replan?.from ? Date.parse(result.replan.from) : -Infinity;
-  const offset = Math.max(
-    0,
-    result.slots.findIndex((s) => Date.parse(s.start) >= from),
-  );
+  // A plan made from a cut-off (a yard report, a night planned again while under way) has the
+  // night's slots from its start; its baseline's charging is the whole night's too (the part
+  // before the cut-off as it happened), or in plans stored before that, the re-plan's alone: the
+  // last slots. Read by index from the night's start, such a baseline fell hours early.
+  const offset = charging ? Math.max(0, result.slots.length - charging.length) : 0;
   const baselineKw = new Map<number, number>();
   let planEnergy = 0;
   let baselineEnergy = 0;

@@ -4,6 +4,7 @@ import { localToMillis, type Plan, type Replan, type Scenario } from '@nightyard
 import { runInPool } from '../workers/pool';
 import { DomainError } from '../http/errors';
 import { mergeSessions } from '../yard/yard-steps';
+import { chargingBySlot, wholeNightFigures } from './whole-night';
 
 const LOCAL = "yyyy-MM-dd'T'HH:mm";
 
@@ -62,7 +63,7 @@ export async function planFromCutOff(
       ...(previous ? { previous: previous as Plan } : {}),
     },
   });
-  return mergeReplan(previous, next);
+  return mergeReplan(previous, next, scenario);
 }
 
 /**
@@ -75,8 +76,11 @@ function replanFacts(next: Replan): NonNullable<PlanResult['replan']> {
   return { from, outOfService, plugged, ...(moved ? { moved } : {}) };
 }
 
-/** The night as a whole: what stood before the re-plan's first slot, then the re-plan. */
-export function mergeReplan(previous: PlanResult | null, next: Replan): PlanResult {
+/**
+ * The night as a whole: what stood before the re-plan's first slot, then the re-plan, its cost
+ * the whole night's (`scenario`: the one the engine re-planned).
+ */
+export function mergeReplan(previous: PlanResult | null, next: Replan, scenario: Scenario): PlanResult {
   const result: PlanResult = next;
   if (!previous)
     return {
@@ -85,12 +89,21 @@ export function mergeReplan(previous: PlanResult | null, next: Replan): PlanResu
     };
   const firstNew = Date.parse(next.replan.from);
   const newLoad = new Map(next.slots.map((s) => [Date.parse(s.start), s.loadKw]));
-  return {
+  const sessions = mergeSessions(keptAsBefore(previous, next.replan.kept as PlanResult['sessions']), next.sessions);
+  // Before the cut-off the load is what was drawn: a late bus's sessions there never happened.
+  const was = chargingBySlot(previous.sessions);
+  const kept = chargingBySlot(sessions);
+  const drawn = (s: PlanResult['slots'][number]) => {
+    const t = Date.parse(s.start);
+    const kw = s.loadKw - (was.get(t) ?? 0) + (kept.get(t) ?? 0);
+    return Math.abs(kw - s.loadKw) > 1e-6 ? { ...s, loadKw: Math.round(kw * 1e6) / 1e6 } : s;
+  };
+  const merged: PlanResult = {
     ...result,
     slots: previous.slots.map((s) =>
-      Date.parse(s.start) >= firstNew ? { ...s, loadKw: newLoad.get(Date.parse(s.start)) ?? s.loadKw } : s,
+      Date.parse(s.start) >= firstNew ? { ...s, loadKw: newLoad.get(Date.parse(s.start)) ?? s.loadKw } : drawn(s),
     ),
-    sessions: mergeSessions(keptAsBefore(previous, next.replan.kept as PlanResult['sessions']), next.sessions),
+    sessions,
     outOfService: joinSpans([
       ...(previous.outOfService ?? [])
         .filter((o) => Date.parse(o.from) < firstNew)
@@ -99,6 +112,7 @@ export function mergeReplan(previous: PlanResult | null, next: Replan): PlanResu
     ]),
     replan: replanFacts(next),
   };
+  return wholeNightFigures(merged, scenario, next.replan.scenario, firstNew);
 }
 
 /** Out-of-service spans with those of one charger that meet (the cut-off's two sides) made one. */

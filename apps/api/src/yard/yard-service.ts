@@ -624,7 +624,7 @@ export async function replanAndPublish(
     );
 
   // The night as a whole: what was kept before the cut-off, then the re-plan.
-  const whole = mergeReplan(previous, next);
+  const whole = mergeReplan(previous, next, floor);
   const merged =
     targets && followed.target
       ? {
@@ -780,8 +780,8 @@ export async function replanAndPublish(
       createdBy: caller.name,
       publishedAt: now.toISOString(),
       publishedBy: caller.name,
-      totalCost: next.cost.total,
-      shortBuses: next.buses.filter((b) => b.shortfallKwh > 1e-6).length,
+      totalCost: merged.cost.total,
+      shortBuses: merged.buses.filter((b) => b.shortfallKwh > 1e-6).length,
     },
     moved,
     replanMs,

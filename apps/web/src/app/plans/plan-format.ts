@@ -288,6 +288,11 @@ export interface PlanFigures extends NightComparison {
   boundLeavesOutCrew: boolean;
   shortBuses: number;
   shortKwh: number;
+  /**
+   * A plan made from a cut-off: the night's cost split there (local HH:mm), what was drawn before it
+   * and the re-plan from it on, footed to the total shown. Null for a night planned whole.
+   */
+  split: { at: string; before: number; after: number } | null;
 }
 
 export function planFigures(result: PlanResult): PlanFigures {
@@ -307,7 +312,18 @@ export function planFigures(result: PlanResult): PlanFigures {
     boundLeavesOutCrew: result.boundKeepsCrew === false && result.gap >= 0.001,
     shortBuses: short.length,
     shortKwh: short.reduce((s, b) => s + b.shortfallKwh, 0),
+    split: costSplit(result),
   };
+}
+
+function costSplit(result: PlanResult): PlanFigures['split'] {
+  const own = result.replan?.own;
+  const from = result.replan?.from;
+  if (!own || !from) return null;
+  const total = toCents(result.cost.total);
+  const after = toCents(own.cost.total);
+  // The ISO time carries the depot's offset: its clock digits are the depot's local time.
+  return { at: from.slice(11, 16), before: toCents(total - after), after };
 }
 
 /** The version shown when none is chosen: the published one, else the newest. */

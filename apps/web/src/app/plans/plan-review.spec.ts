@@ -94,6 +94,21 @@ describe('plan review', () => {
     expect(saving).toBe(baseline! - energy!);
   });
 
+  it("splits a re-plan's whole-night cost at its cut-off, the two parts footing to the total shown", async () => {
+    // The night's cost $99.99 (unrounded 99.988): the re-plan from 23:00 $40.01 (40.005), so the
+    // hours before it $59.98, not the $59.983 rounded alone ($59.98 + $40.01 = $99.99).
+    const card = await costCard({
+      cost: { energy: 10.004, demand: 89.984, total: 99.988 },
+      replan: {
+        from: '2026-01-14T23:00:00.000-06:00',
+        own: { cost: { energy: 10.005, demand: 30, total: 40.005 }, lowerBound: 40 },
+      },
+    });
+    expect(card).toContain('Before 23:00, as drawn: $59.98; from 23:00 on (this re-plan): $40.01');
+    // A night planned whole says nothing of a split.
+    expect(await costCard({})).not.toContain('as drawn');
+  });
+
   it("says why a plan with the crew's rules can pay more for energy than the baseline", async () => {
     const card = await costCard({ crewMoves: 6, cost: { energy: 20.04, demand: 89.98, total: 110.02 } });
     expect(card).toContain('Extra energy cost $0.04');

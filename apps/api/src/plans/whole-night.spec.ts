@@ -1,0 +1,121 @@
+import { describe, expect, it } from 'vitest';
+import type { PlanResult } from '@nightyard/contracts';
+import { parseScenario, planScenario, replan, type Plan, type Scenario } from '@nightyard/scheduling';
+import { generateDepot } from '../../../../libs/scheduling/src/testing/generate-depot';
+import { mergeReplan } from './night-in-progress';
+
+// A revision's cost is the whole night's, as the utility bills it: the charging before the cut-off
+// at its prices, the demand charge of the night's peaks above the peaks it began with, and the
+// engine's plan from the cut-off on. Each figure is recomputed here from the slots and sessions
+// (price x kWh, rate x kW above the peak so far), not from the code under test.
+
+const options = { timeBudgetMs: 5000, maxMoves: 30 };
+const SLOT_MS = 900_000;
+
+function depot(): Scenario {
+  const parsed = parseScenario(generateDepot({ buses: 12, seed: 3 }));
+  if (!parsed.ok) throw new Error(JSON.stringify(parsed.problems));
+  return parsed.scenario;
+}
+
+const priceAt = (r: PlanResult) => new Map(r.slots.map((s) => [Date.parse(s.start), s.price]));
+const chargingAt = (sessions: PlanResult['sessions']) => {
+  const kw = new Map<number, number>();
+  for (const x of sessions)
+    x.kw.forEach((v, k) =>
+      kw.set(Date.parse(x.start) + k * SLOT_MS, (kw.get(Date.parse(x.start) + k * SLOT_MS) ?? 0) + v),
+    );
+  return kw;
+};
+const energyOf = (r: PlanResult) => {
+  const price = priceAt(r);
+  let sum = 0;
+  for (const [t, kw] of chargingAt(r.sessions)) sum += kw * 0.25 * price.get(t)!;
+  return sum;
+};
+/** The tariff's demand charges on the night's peaks above those it began with. */
+function demandOf(r: PlanResult, s: Scenario) {
+  const peak = (slots: PlanResult['slots']) => Math.max(0, ...slots.map((x) => x.loadKw));
+  let d = s.tariff.facilityDemandCharge * Math.max(0, peak(r.slots) - (s.tariff.peaksSoFarKw['facility'] ?? 0));
+  for (const p of s.tariff.periods)
+    d +=
+      p.demandCharge *
+      Math.max(0, peak(r.slots.filter((x) => x.period === p.name)) - (s.tariff.peaksSoFarKw[p.name] ?? 0));
+  return d;
+}
+
+describe("a revision's figures are the whole night's", () => {
+  it('a charger out and a bus late at 23:00: cost, demand, baselines and bound add what the hours before the cut-off cost', async () => {
+    const s = depot();
+    const v1 = (await planScenario(s, options)) as Plan;
+    const cut = Date.parse('2026-01-14T23:00:00-06:00');
+    const running = v1.sessions.find((x) => Date.parse(x.start) < cut && Date.parse(x.end) > cut)!;
+    // A bus that charged before 23:00 in version 1 reported late: that charging never happened.
+    const late = v1.sessions.find((x) => x.bus !== running.bus && Date.parse(x.start) < cut - SLOT_MS)!;
+    expect(running && late, 'a session over 23:00 and another bus charging before it').toBeTruthy();
+    const next = await replan(
+      s,
+      {
+        now: '2026-01-14T23:00',
+        previous: v1,
+        outOfService: [running.charger],
+        lateArrivals: { [late.bus]: '2026-01-14T23:30' },
+      },
+      options,
+    );
+    const whole = mergeReplan(v1 as PlanResult, next, s);
+    const own = whole.replan!.own!;
+    expect(own.cost).toEqual(next.cost);
+
+    // Before the cut-off the load is the other load and what the kept sessions drew (not the late bus's).
+    const kept = chargingAt(whole.sessions);
+    const other = s.site.otherLoadKw;
+    for (const slot of whole.slots.filter((x) => Date.parse(x.start) < cut))
+      expect(slot.loadKw).toBeCloseTo(other + (kept.get(Date.parse(slot.start)) ?? 0), 5);
+    expect(whole.sessions.some((x) => x.bus === late.bus && Date.parse(x.start) < cut)).toBe(false);
+
+    // Energy: every session of the night at its slot's price.
+    expect(whole.cost.energy).toBeCloseTo(energyOf(whole), 4);
+    expect(whole.cost.energy).toBeGreaterThan(next.cost.energy + 1);
+    // Demand: the tariff's charges on the night's peaks above the peaks so far it began with
+    // (the evening's on-peak hours are all before the cut-off: the re-plan alone has none of them).
+    expect(whole.cost.demand).toBeCloseTo(demandOf(whole, s), 3);
+    expect(whole.cost.demand).toBeGreaterThan(next.cost.demand);
+    const added = whole.cost.total - next.cost.total;
+    expect(whole.cost.total - whole.cost.energy - whole.cost.demand).toBeCloseTo(
+      next.cost.total - next.cost.energy - next.cost.demand,
+      6,
+    );
+    // The bound moves by the same amount, so the gap in dollars is the engine's.
+    expect(whole.lowerBound - next.lowerBound).toBeCloseTo(added, 5);
+    expect(whole.cost.total - whole.lowerBound).toBeCloseTo(next.cost.total - next.lowerBound, 5);
+    expect(whole.gap).toBeCloseTo((whole.cost.total - whole.lowerBound) / whole.cost.total, 6);
+
+    // Each baseline: the night as it happened before the cut-off, its own charging after.
+    const price = priceAt(whole);
+    for (const kind of ['arrival', 'timer'] as const) {
+      const b = whole.baselines![kind];
+      expect(b.chargingKw).toHaveLength(whole.slots.length);
+      const energy = b.chargingKw.reduce(
+        (a, kw, i) => a + kw * 0.25 * price.get(Date.parse(whole.slots[i]!.start))!,
+        0,
+      );
+      expect(Math.abs(b.energy - energy)).toBeLessThan(0.01);
+      expect(b.total - next.baselines[kind].total).toBeCloseTo(added, 5);
+      expect(b.energy - own.baselineEnergy![kind]).toBeCloseTo(whole.cost.energy - next.cost.energy, 5);
+    }
+    expect(whole.baseline).toEqual(whole.baselines![next.baseline.kind!]);
+  });
+
+  it("a re-plan from the night's first slot is the engine's plan as it stands", async () => {
+    const s = depot();
+    const v1 = (await planScenario(s, options)) as Plan;
+    const next = await replan(s, { now: s.start, previous: v1 }, options);
+    const whole = mergeReplan(v1 as PlanResult, next, s);
+    expect(whole.cost).toEqual(next.cost);
+    expect(whole.lowerBound).toBe(next.lowerBound);
+    expect(whole.baselines!.arrival.chargingKw).toEqual(next.baselines.arrival.chargingKw);
+    expect(whole.cost.energy).toBeCloseTo(energyOf(whole), 4);
+    expect(whole.cost.demand).toBeCloseTo(demandOf(whole, s), 3);
+  });
+});
