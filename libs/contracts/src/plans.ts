@@ -222,6 +222,12 @@ export const planComparisonSchema = z.object({
     }),
   ),
   costChange: z.number().nullable(),
+  /**
+   * How the two versions' inputs differ (service limit, peaks so far, demand target, rate plan,
+   * chargers out, buses and their arrival energy), one sentence each: the part of the cost change
+   * that is not the plan's. Empty when both were planned from the same inputs.
+   */
+  inputChanges: z.array(z.string()).default([]),
 });
 export type PlanComparison = z.infer<typeof planComparisonSchema>;
 

@@ -26,6 +26,7 @@ import { buildNightScenario, refusePublishingInsideANight } from './night-scenar
 import { nightStaff } from './night-staff';
 import { cutOffAt, type PlanFrom } from './night-in-progress';
 import { movedBetween } from './plan-compare';
+import { versionInputChanges } from './version-inputs';
 import { confirmedPlugged } from '../yard/yard-service';
 
 type PlanRow = typeof plans.$inferSelect;
@@ -422,10 +423,20 @@ export async function comparePlans(db: Db, caller: DepotViewer, id: string, othe
   if (!ra || !rb) throw conflict('Both plans must be finished to compare them');
   const zone = b.plan.scenario.timezone;
   const moved = movedBetween(ra, rb, zone, Math.max(spanOf(ra), spanOf(rb)) > DAY_MS);
+  const sa = parseScenario(a.plan.scenario);
+  const sb = parseScenario(b.plan.scenario);
   return {
     from: { id: a.plan.id, version: a.plan.version, kind: a.plan.kind },
     to: { id: b.plan.id, version: b.plan.version, kind: b.plan.kind },
     moved,
     costChange: rb.cost.total - ra.cost.total,
+    // A stored scenario was valid when it was planned; one that no longer parses has nothing to say.
+    inputChanges:
+      sa.ok && sb.ok
+        ? versionInputChanges(
+            { version: a.plan.version, scenario: sa.scenario, result: ra, includesMidday: a.plan.includesMidday },
+            { version: b.plan.version, scenario: sb.scenario, result: rb, includesMidday: b.plan.includesMidday },
+          )
+        : [],
   };
 }

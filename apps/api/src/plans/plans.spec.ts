@@ -217,6 +217,11 @@ describe('plans', () => {
     expect(res.body.from.version).toBe(3);
     expect(res.body.to.version).toBe(4);
     for (const m of res.body.moved) expect(m.before).not.toBe(m.after);
+    // Version 3 was asked without the midday layover: that is the input the two differ in (the
+    // buses' stays and arrivals follow from it and are not listed again).
+    expect(res.body.inputChanges).toEqual(['Version 3 leaves out the midday layover; version 4 plans it']);
+    const same = await app.request().get(`/api/plans/${v4.id}/compare`).query({ with: v4.id }).set(as(sup)).expect(200);
+    expect(same.body.inputChanges).toEqual([]);
   });
 
   it('roles and isolation', async () => {

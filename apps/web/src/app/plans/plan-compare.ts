@@ -31,6 +31,18 @@ import { PlansApi } from './plans-api';
         }
         @if (comparison(); as c) {
           <p class="change">{{ sentence(c) }}</p>
+          @if (c.inputChanges.length) {
+            <div class="inputs" role="note" aria-label="Inputs that differ">
+              <p>
+                The two versions were planned from different inputs, so the cost difference is not the plan's alone:
+              </p>
+              <ul>
+                @for (line of c.inputChanges; track line) {
+                  <li>{{ line }}.</li>
+                }
+              </ul>
+            </div>
+          }
         }
       </div>
       @if (comparison(); as c) {
@@ -82,6 +94,18 @@ import { PlansApi } from './plans-api';
     .change {
       margin: 8px 0;
       font: var(--mat-sys-body-large);
+    }
+    .inputs {
+      margin: 0 0 8px;
+      font: var(--mat-sys-body-medium);
+      color: var(--mat-sys-on-surface-variant);
+    }
+    .inputs p {
+      margin: 0;
+    }
+    .inputs ul {
+      margin: 4px 0 0;
+      padding-inline-start: 20px;
     }
     .empty {
       margin: 0;

@@ -164,12 +164,16 @@ describe('plan review', () => {
       to: { id: PLAN_IDS.draft, version: 2, kind: 'generated' },
       moved: [{ bus: '205', before: 'C2 17:00-18:00', after: 'C2 18:30-19:00' }],
       costChange: -12.5,
+      inputChanges: ["The billing period's facility peak so far 250 kW in version 1, 280 kW in version 2"],
     });
     TestBed.tick(); // not whenStable: it would wait for the unanswered request
     await settle();
     fixture.detectChanges();
-    expect(el.querySelector('ny-plan-compare')?.textContent).toContain(
-      'Against version 1: 1 bus moved, the cost is $12.50 lower.',
+    const compare = el.querySelector('ny-plan-compare')!.textContent!.replace(/\s+/g, ' ');
+    expect(compare).toContain('Against version 1: 1 bus moved, the cost is $12.50 lower.');
+    // A cost that fell with the inputs says so, not only that the plan is cheaper.
+    expect(compare).toContain(
+      "planned from different inputs, so the cost difference is not the plan's alone: The billing period's facility peak so far 250 kW in version 1, 280 kW in version 2.",
     );
     mock.verify();
   });
@@ -248,6 +252,7 @@ describe('plan review', () => {
       to: { id: PLAN_IDS.draft, version: 4, kind: 'generated' },
       moved: [{ bus: '205', before: 'C3 17:00-18:00', after: 'C2 18:30-19:00' }],
       costChange: 12.5,
+      inputChanges: [],
     });
     TestBed.tick(); // not whenStable: it would wait for the unanswered request
     await settle();

@@ -72,6 +72,7 @@ describe('PlansPage', () => {
         to: { id: selected, version: 2, kind: 'generated' },
         moved: [],
         costChange: 0,
+        inputChanges: [],
       });
     }
     await stable();
