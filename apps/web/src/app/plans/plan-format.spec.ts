@@ -32,7 +32,21 @@ describe('plan format', () => {
     expect(limitWindows({ slots }, 'America/Chicago')).toEqual({
       serviceKw: 150,
       lowered: [{ from: '18:15', to: '18:45', limitKw: 100 }],
+      before: null,
     });
     expect(limitWindows(base, 'America/Chicago').lowered).toEqual([]);
+  });
+
+  it('gives a plan made from a cut-off the limit it plans under, the one of the slots kept before it apart', () => {
+    // The service limit was lowered from 150 to 100 kW before the night was planned again from
+    // its third slot: 100 kW is the service limit, not a load-reduction window to the night's end.
+    const base = planResult();
+    const slots = base.slots.map((s, i) => ({ ...s, limitKw: i < 2 ? 150 : 100 }));
+    const replan = { from: slots[2]!.start };
+    expect(limitWindows({ slots, replan }, 'America/Chicago')).toEqual({
+      serviceKw: 100,
+      lowered: [],
+      before: { limitKw: 150, until: '18:30' },
+    });
   });
 });

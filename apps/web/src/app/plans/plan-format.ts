@@ -350,13 +350,19 @@ export interface LoweredLimit {
  * merged into runs of equal limit, in depot time.
  */
 export function limitWindows(
-  result: Pick<PlanResult, 'slots'>,
+  result: Pick<PlanResult, 'slots' | 'replan'>,
   timeZone: string,
-): { serviceKw: number; lowered: LoweredLimit[] } {
+): { serviceKw: number; lowered: LoweredLimit[]; before: { limitKw: number; until: string } | null } {
   const h = horizonOf(result) ?? NO_HORIZON;
-  const serviceKw = Math.max(0, ...result.slots.map((s) => s.limitKw));
+  // A plan made from a cut-off keeps the night's slots before it with the limit they had then: the
+  // limit it plans under is the one from the cut-off on (a limit lowered since is not a window).
+  const fromMs = result.replan?.from ? Date.parse(result.replan.from) : -Infinity;
+  const planned = result.slots.filter((s) => Date.parse(s.start) >= fromMs);
+  const kept = result.slots.filter((s) => Date.parse(s.start) < fromMs);
+  const serviceKw = Math.max(0, ...planned.map((s) => s.limitKw));
+  const keptKw = Math.max(0, ...kept.map((s) => s.limitKw));
   const runs: { start: number; end: number; limitKw: number }[] = [];
-  for (const s of result.slots) {
+  for (const s of planned) {
     if (s.limitKw >= serviceKw - 1e-9) continue;
     const t = Date.parse(s.start);
     const last = runs.at(-1);
@@ -370,6 +376,10 @@ export function limitWindows(
       to: clock(new Date(r.end).toISOString(), timeZone),
       limitKw: r.limitKw,
     })),
+    before:
+      kept.length && Math.abs(keptKw - serviceKw) > 1e-9
+        ? { limitKw: keptKw, until: clock(new Date(fromMs).toISOString(), timeZone) }
+        : null,
   };
 }
 
