@@ -181,6 +181,10 @@ describe('TonightPage', () => {
     expect(fact('baseline')).toContain('20.00');
     expect(fact('saving')).toContain('10.00');
     expect(fact('saving')).toContain('50 % less');
+    // The demand side of the night, which the energy alone does not show.
+    expect(fact('peak-cut')).toBe(
+      "and keeps the peak at 120 kW where the baseline would reach 190 kW: demand is billed on the month's peak",
+    );
     expect(fact('peak')).toContain('120 kW of 150 kW limit');
     const link = el.querySelector<HTMLAnchorElement>('a[href^="/plans"]')!;
     expect(text(link)).toBe('Open version 3 in Plans');

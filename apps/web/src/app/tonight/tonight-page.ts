@@ -121,7 +121,16 @@ export class TonightPage {
       baselineShort: versus && versus.baselineShortKwh > 0.05 ? `${num(versus.baselineShortKwh)} kWh` : null,
       saving: versus ? money(Math.abs(versus.energySaving), p.currency) : null,
       saves: versus !== null && versus.energySaving >= 0,
-      savingPct: versus && versus.baselineEnergy > 0 ? num(versus.energySavingShare * 100, 0) : null,
+      // A saving under 1 % keeps its tenth (0.4 % read "0 % less"); none at all has no share.
+      savingPct:
+        versus && versus.baselineEnergy > 0 && versus.energySaving > 0
+          ? num(versus.energySavingShare * 100, versus.energySavingShare < 0.01 ? 1 : 0)
+          : null,
+      // What the plan does for the month's demand charge, where the energy alone says little.
+      peakCut:
+        r && peak && peak.peakKw < r.baseline.peakKw - 0.05
+          ? `and keeps the peak at ${num(peak.peakKw)} kW where the baseline would reach ${num(r.baseline.peakKw)} kW: demand is billed on the month's peak`
+          : null,
       peak: peak
         ? {
             ...peak,
