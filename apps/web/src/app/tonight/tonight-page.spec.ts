@@ -227,6 +227,10 @@ describe('TonightPage', () => {
     expect(count('faulted')).toBe('1 Faulted');
     // Out of service: said so, whatever idle state its station reports.
     expect(count('offline')).toBe('1 Offline');
+    // Offline is not out of service: the note says the two apart.
+    expect(words(el.querySelector('[data-fact="offline-note"]'))).toMatch(
+      /^Offline: not connected to Nightyard now, so the plan's power limits do not reach it\. In service means/,
+    );
     expect(count('out')).toBe('1 Out of service');
     expect(count('unknown')).toBe('1 No reading');
     expect(el.querySelector('.counts li[data-state="faulted"]')!.classList.contains('faulted')).toBe(true);

@@ -204,6 +204,7 @@ export class TonightPage {
     return liveCounts(this.liveChargers(), (c) => outAt(c, now, this.timezone()));
   });
   protected readonly faulted = computed(() => this.chargers().filter((c) => c.state === 'faulted').length);
+  protected readonly offline = computed(() => this.counts().find((c) => c.state === 'offline')?.count ?? 0);
 
   private run = 0;
   /** Tonight's service date at the depot, as the server says. */
