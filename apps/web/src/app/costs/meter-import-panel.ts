@@ -145,7 +145,8 @@ export class MeterImportPanel {
       fail(
         `${file.name} was not imported. ${message}${advice}${nothing}`,
         Object.entries(p.fields)
-          .filter(([key]) => !REPEATED.has(key))
+          // Nor a field's text the message already says ("Check text: ... contains a NUL").
+          .filter(([key, text]) => !REPEATED.has(key) && !message.includes(text))
           .map(([key, text]) => ({ where: whereText(key), message: text })),
       );
     } finally {

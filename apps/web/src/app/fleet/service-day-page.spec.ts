@@ -121,6 +121,29 @@ describe('ServiceDayPage', () => {
     expect(el.querySelectorAll('table.runs tbody tr').length).toBe(2);
   });
 
+  it('says a fault of the whole file once (a binary file with a NUL), not again as a line to fix', async () => {
+    await render(['supervisor']);
+    const page = fixture.componentInstance as unknown as { upload(i: { files: File[]; value: string }): Promise<void> };
+    const uploading = page.upload({
+      files: [new File(['PK\u0003\u0004\u0000\u0000'], 'runs.xlsx')],
+      value: 'runs.xlsx',
+    });
+    await settle();
+    const nul = 'The file contains a NUL character (\\u0000): remove it';
+    mock
+      .expectOne(`${DAY}/csv`)
+      .flush(
+        { error: { code: 'validation_failed', message: `Check csv: ${nul}`, fields: { csv: nul } } },
+        { status: 400, statusText: 'Bad Request' },
+      );
+    await uploading;
+    await stable();
+    fixture.detectChanges();
+    const summary = el.querySelector('ny-problem-summary')!.textContent!.replace(/\s+/g, ' ');
+    expect(summary).toContain(`runs.xlsx: ${nul}`);
+    expect(summary.split('NUL character').length - 1).toBe(1);
+  });
+
   it('lets a supervisor edit: upload, copy, add, save, remove', async () => {
     await render(['supervisor']);
     expect(buttons()).toEqual(

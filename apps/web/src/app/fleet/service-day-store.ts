@@ -228,9 +228,11 @@ export class ServiceDayStore {
       this.snackBar.open(`${day.runs.length} runs uploaded from ${file.name}`, 'OK');
     } catch (err) {
       const p = toApiProblem(err);
-      this.problem.set(`${file.name}: ${p.message}`);
+      // A fault of the whole file (a NUL in a binary file) is the message itself: not listed again.
+      const whole = p.fields['csv'];
+      this.problem.set(`${file.name}: ${whole ?? p.message}`);
       this.problems.set(
-        csvProblems(p.fields).map((x) => ({
+        csvProblems(Object.fromEntries(Object.entries(p.fields).filter(([key]) => key !== 'csv'))).map((x) => ({
           where: x.line === null ? (x.column === 'file' ? 'File' : x.column) : `Line ${x.line}, column ${x.column}`,
           message: x.message,
         })),
