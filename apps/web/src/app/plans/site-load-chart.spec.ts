@@ -1,4 +1,4 @@
-import { hourLabel, hourlyLoad } from './site-load-chart';
+import { hourLabel, hourlyLoad, slotLabels } from './site-load-chart';
 
 // Invented slots at a depot in Chicago (UTC-6 in December).
 const slots = (fromUtc: string, hours: number) =>
@@ -41,5 +41,22 @@ describe('site load hour by hour', () => {
     }
     // 230 px (a phone): one label a day, at midnight; before, every 6 hours at 22 px apart.
     expect(shown(230).map((i) => labels[i])).toEqual(['00:00', '00:00', '00:00']);
+  });
+
+  it("names the weekday at each midnight of a night longer than a day, and keeps the step's hours", () => {
+    // Friday 15:00 to Monday 07:00 at a Chicago depot (December: UTC-6).
+    const start = Date.parse('2026-12-11T15:00:00-06:00');
+    const slots = Array.from({ length: 256 }, (_, i) => ({
+      start: new Date(start + i * 900_000).toISOString(),
+      loadKw: 0,
+      price: 0.1,
+      limitKw: 100,
+    }));
+    const labels = slotLabels({ slots }, 'America/Chicago');
+    const shown = (width: number) => labels.flatMap((_, i) => hourLabel(labels, i, width) ?? []);
+    expect(shown(230)).toEqual(['Sat 00:00', 'Sun 00:00', 'Mon 00:00']);
+    expect(shown(1000).slice(0, 4)).toEqual(['16:00', '20:00', 'Sat 00:00', '04:00']);
+    // One night: clock times alone.
+    expect(slotLabels({ slots: slots.slice(0, 60) }, 'America/Chicago')).toContain('00:00');
   });
 });

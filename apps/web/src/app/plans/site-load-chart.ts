@@ -63,7 +63,19 @@ export function hourLabel(labels: readonly string[], index: number, widthPx: num
   if (!label || !label.endsWith(':00')) return null;
   const pxPerHour = (widthPx / Math.max(labels.length, 1)) * 4;
   const step = [1, 2, 3, 4, 6, 12, 24].find((n) => n * pxPerHour >= 48) ?? 24;
-  return Number(label.slice(0, 2)) % step === 0 ? label : null;
+  return Number(label.slice(-5, -3)) % step === 0 ? label : null;
+}
+
+/**
+ * Each slot's time on the axis and in the tooltip. A night longer than a day names the weekday at
+ * each midnight ("Sat 00:00"): a weekend's labels read "00:00" three times over.
+ */
+export function slotLabels(result: Pick<PlanResult, 'slots'>, timeZone: string): string[] {
+  const longerThanADay = spansDays(horizonOf(result));
+  return result.slots.map((s) => {
+    const time = clock(s.start, timeZone);
+    return longerThanADay && time === '00:00' ? dayClock(s.start, timeZone) : time;
+  });
 }
 
 /** The site's load through the night against its service limit, with the price as a second axis. */
@@ -102,7 +114,7 @@ export class SiteLoadChart {
     const r = this.result();
     const c = this.colors();
     return {
-      labels: r.slots.map((s) => clock(s.start, this.timezone())),
+      labels: slotLabels(r, this.timezone()),
       datasets: [
         {
           type: 'line',
@@ -147,7 +159,7 @@ export class SiteLoadChart {
     const c = this.colors();
     const currency = this.currency();
     const slots = this.result().slots;
-    const labels = slots.map((s) => clock(s.start, this.timezone()));
+    const labels = slotLabels(this.result(), this.timezone());
     // Each axis scales to its own data, so the highest price and the service limit both came out
     // at the top and the price line drew over the limit. The kW axis now leaves a quarter above
     // its highest value: the limit sits at four fifths of the height at most, the top price above it.
