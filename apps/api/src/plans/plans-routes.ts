@@ -73,7 +73,9 @@ export function plansRoutes(api: ApiRoutes, deps: AppDeps) {
       response: planBody,
       status: 202,
     },
-    async ({ user, params, body }) => ({ plan: await plans.createWhatIf(db, jobs, user, params.depotId, body) }),
+    async ({ user, params, body }) => ({
+      plan: await plans.createWhatIf(db, jobs, user, params.depotId, body, deps.clock()),
+    }),
   );
   api.add(
     {

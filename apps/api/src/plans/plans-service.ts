@@ -90,6 +90,8 @@ export async function storeDraft(
     scenario: ScenarioInput;
     notes: string[];
     planFrom?: PlanFrom;
+    /** When it was asked for, by the clock service (not the database's own clock). */
+    createdAt: Date;
   },
 ): Promise<PlanSummary> {
   const row = await db.transaction(async (tx) => {
@@ -111,6 +113,7 @@ export async function storeDraft(
         scenario: values.scenario,
         notes: values.notes,
         createdBy: caller.id,
+        createdAt: values.createdAt,
         ...(values.planFrom ? { replanState: values.planFrom } : {}),
       })
       .returning();
@@ -135,7 +138,7 @@ export async function generatePlan(
   now: Date,
 ): Promise<PlanSummary> {
   const night = await prepareNight(db, caller, depotId, serviceDate, includeMidday, now);
-  return storeDraft(db, jobs, caller, depotId, serviceDate, { kind: 'generated', ...night });
+  return storeDraft(db, jobs, caller, depotId, serviceDate, { kind: 'generated', ...night, createdAt: now });
 }
 
 /** A night's scenario from the depot's data as it is now, with where a night under way starts. */
@@ -198,6 +201,7 @@ export async function createWhatIf(
   caller: AuthUser,
   depotId: string,
   file: unknown,
+  now: Date,
 ): Promise<PlanSummary> {
   const depot = await depotOf(db, caller, depotId);
   const parsed = parseScenario(file);
@@ -219,6 +223,7 @@ export async function createWhatIf(
   const serviceDate = parsed.scenario.start.slice(0, 10);
   return storeDraft(db, jobs, caller, depotId, serviceDate, {
     kind: 'what-if',
+    createdAt: now,
     includesMidday: true,
     scenario: file as ScenarioInput,
     notes: [

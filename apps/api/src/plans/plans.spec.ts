@@ -5,7 +5,7 @@ import { createDepot } from '../testing/depot-fixture';
 import { addBuses, dayRuns } from '../testing/fleet-fixture';
 import { mailFor } from '../testing/mail';
 import { generatedPlan } from '../testing/plan-fixture';
-import { createOrganisation, createTestApp, type TestUser } from '../testing/test-app';
+import { createOrganisation, createTestApp, TEST_START, type TestUser } from '../testing/test-app';
 
 const app = createTestApp();
 let sup: TestUser;
@@ -65,6 +65,8 @@ describe('plans', () => {
       .send({ serviceDate: '2026-12-09' })
       .expect(202);
     expect(res.body.plan).toMatchObject({ version: 1, state: 'draft', status: 'queued' });
+    // Made at the API's clock (a December afternoon here), not the database's own (today's).
+    expect(Math.abs(Date.parse(res.body.plan.createdAt) - TEST_START.getTime())).toBeLessThan(60_000);
     const plan = await finished(res.body.plan.id);
     expect(plan.status).toBe('done');
     first = plan;

@@ -118,6 +118,7 @@ export async function adoptWhatIf(
     kind: 'generated',
     ...prepared,
     notes,
+    createdAt: now,
   });
   return { plan: draft, adoption };
 }

@@ -680,6 +680,7 @@ export async function replanAndPublish(
         result: merged,
         replanState: state,
         createdBy: caller.id,
+        createdAt: now,
         publishedBy: caller.id,
         publishedAt: now,
       })

@@ -105,6 +105,8 @@ describe('yard: reports re-plan the rest of the night', () => {
       .send({ planId: before.plan.id, kind: 'charger_out', charger, reason: 'Connector latch broken' })
       .expect(201);
     expect(res.body.revision).toMatchObject({ kind: 'revision', state: 'published', version: 2 });
+    // Made at the API's clock, as the review names it ("Revision by ..., Wed 23:00").
+    expect(res.body.revision.createdAt).toBe(clock.toISOString());
     expect(before.plan.revisionNote).toBeNull();
     const after = (await tonight()).plan;
     expect(after.revisionNote).toBe(`Revised at 23:00: charger ${charger} out of service (Connector latch broken).`);
