@@ -101,6 +101,8 @@ export class ApiRoutes {
       const key = spec.idempotent ? idempotencyKeyOf(req.headers['idempotency-key']) : undefined;
       const execute = async () => {
         const result = await handler({ body, query, params, user: user as AuthUser, req, res });
+        // A handler that answered itself (refresh without a cookie: 204) has nothing to check.
+        if (res.headersSent || res.writableEnded) return { status: res.statusCode, body: null };
         return {
           status,
           body: status === 204 ? null : spec.response && !isChecked(result) ? spec.response.parse(result) : result,
