@@ -62,9 +62,23 @@ describe('a re-plan after a charger is reported out', () => {
         '1 other bus moved to make room or to keep the cost down',
       ],
     };
-    expect(recountFaults(engine, followed, ['D2'], ['201'], at).reasons).toEqual([
-      'bus 201 running late',
+    expect(recountFaults(engine, followed, ['D2'], ['201'], at, 'bus 201 late, expected 23:30').reasons).toEqual([
+      'bus 201 late, expected 23:30',
       '1 other bus moved to make room or to keep the cost down',
     ]);
+  });
+
+  it("names this report, not the night's earlier late buses and readings the engine lists", () => {
+    // Bus 212 was reported late and bus 221 read earlier; now bus 220 is reported absent.
+    const followed = { sessions: [session('220', 'C2', '05:45', '06:30')] } as unknown as PlanResult;
+    const at = Date.parse('2026-12-03T23:07:00.000-06:00');
+    const engine = {
+      buses: ['220'],
+      reasons: ['bus 212 running late', 'battery levels reported for 1 bus'],
+    };
+    expect(recountFaults(engine, followed, [], ['220'], at, 'bus 220 absent tonight')).toEqual({
+      buses: ['220'],
+      reasons: ['bus 220 absent tonight'],
+    });
   });
 });

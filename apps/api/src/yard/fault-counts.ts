@@ -6,7 +6,9 @@ type Moved = { buses: string[]; reasons: string[] };
  * A re-plan's reasons with the buses of each charger reported out counted from the plan the yard
  * was following. The engine counts them from the plan it is given, in which the sessions on such a
  * charger were already stopped at the report (their power after it never flowed), so it read "0
- * buses were planned on it" and counted those buses among the "other buses moved".
+ * buses were planned on it" and counted those buses among the "other buses moved". A late bus,
+ * an absent one or a reading is named by the report itself (`reported`), once: the engine's own
+ * lines name every one of the night's so far.
  */
 export function recountFaults(
   moved: Moved,
@@ -14,6 +16,8 @@ export function recountFaults(
   outOfService: readonly string[],
   late: readonly string[],
   atMs: number,
+  /** This report in words when it is not a charger out ("bus 220 absent tonight"): the reason it stands for. */
+  reported: string | null = null,
 ): Moved {
   const on = new Map(
     outOfService.map((c) => [
@@ -25,6 +29,8 @@ export function recountFaults(
   const others = moved.buses.filter((b) => !forced.has(b)).length;
   const otherBuses = `${others} other ${others === 1 ? 'bus' : 'buses'} moved`;
   const reasons = moved.reasons.flatMap((r) => {
+    // The engine's account of late buses and readings covers the whole night so far: the report's own stands for them.
+    if (/ running late$/.test(r) || /^battery levels reported for /.test(r)) return [];
     const fault = /^charger (.+?) out of service: \d+ (bus was|buses were) planned on it$/.exec(r);
     const buses = fault ? on.get(fault[1]!) : undefined;
     // Out already in the plan followed (reported before an earlier revision): it moved no bus now.
@@ -39,5 +45,5 @@ export function recountFaults(
       r.replace(/^\d+ other bus(es)? moved/, otherBuses).replace(/\(\d+ other bus(es)? moved\)$/, `(${otherBuses})`),
     ];
   });
-  return { buses: moved.buses, reasons };
+  return { buses: moved.buses, reasons: reported ? [reported, ...reasons] : reasons };
 }

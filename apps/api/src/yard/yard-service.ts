@@ -614,13 +614,28 @@ export async function replanAndPublish(
     throw err;
   }
   const replanMs = Math.round(performance.now() - t0);
+  const describe =
+    report.kind === 'step_missed'
+      ? `"${report.step.text}" (due ${DateTime.fromISO(report.step.at, { zone }).toFormat('HH:mm')}) did not happen`
+      : {
+          charger_out: () =>
+            `charger ${'charger' in report ? report.charger : ''} out of service${'reason' in report && report.reason ? ` (${report.reason})` : ''}`,
+          bus_late: () =>
+            `bus ${'bus' in report ? report.bus : ''} late, expected ${'expectedAt' in report ? report.expectedAt.slice(11) : ''}`,
+          bus_absent: () => `bus ${'bus' in report ? report.bus : ''} absent tonight`,
+          soc_reading: () =>
+            `bus ${'bus' in report ? report.bus : ''} measured at ${'socPct' in report ? report.socPct : ''} %`,
+        }[report.kind]();
+  // The revision's reasons are this report's: the plan followed already allowed for earlier ones
+  // (the engine names every late bus and every reading the night has had).
   if (next.replan.moved)
     next.replan.moved = recountFaults(
       next.replan.moved,
       followed,
       state.outOfService,
-      Object.keys(state.lateArrivals),
+      'bus' in report && (report.kind === 'bus_late' || report.kind === 'bus_absent') ? [report.bus] : [],
       cutAt.getTime(),
+      report.kind === 'charger_out' ? null : describe,
     );
 
   // The night as a whole: what was kept before the cut-off, then the re-plan.
@@ -635,18 +650,6 @@ export async function replanAndPublish(
           }),
         }
       : whole;
-  const describe =
-    report.kind === 'step_missed'
-      ? `"${report.step.text}" (due ${DateTime.fromISO(report.step.at, { zone }).toFormat('HH:mm')}) did not happen`
-      : {
-          charger_out: () =>
-            `charger ${'charger' in report ? report.charger : ''} out of service${'reason' in report && report.reason ? ` (${report.reason})` : ''}`,
-          bus_late: () =>
-            `bus ${'bus' in report ? report.bus : ''} late, expected ${'expectedAt' in report ? report.expectedAt.slice(11) : ''}`,
-          bus_absent: () => `bus ${'bus' in report ? report.bus : ''} absent tonight`,
-          soc_reading: () =>
-            `bus ${'bus' in report ? report.bus : ''} measured at ${'socPct' in report ? report.socPct : ''} %`,
-        }[report.kind]();
 
   const revision = await db.transaction(async (tx) => {
     await tx.select({ id: depots.id }).from(depots).where(eq(depots.id, depotId)).for('update');
