@@ -163,5 +163,20 @@ export const yardReportResultSchema = z.object({
   moved: z.array(z.object({ bus: z.string(), before: z.string(), after: z.string() })),
   replanMs: z.number(),
   notified: z.number().int(),
+  /**
+   * What the revision does to the night against the plan followed: projected cost and demand
+   * charge (whole nights), peak, and the buses it leaves short (with the cause in words).
+   */
+  effect: z.object({
+    costBefore: z.number(),
+    costAfter: z.number(),
+    demandBefore: z.number(),
+    demandAfter: z.number(),
+    peakBeforeKw: z.number(),
+    peakAfterKw: z.number(),
+    short: z.array(z.object({ bus: z.string(), kwh: z.number(), cause: z.string().nullable() })),
+    /** The same in words, as the e-mails say it: the money first, then each short bus. */
+    lines: z.array(z.string()),
+  }),
 });
 export type YardReportResult = z.infer<typeof yardReportResultSchema>;

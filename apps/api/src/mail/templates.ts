@@ -111,6 +111,8 @@ export function planRevisedMail(p: {
   link: MailLink;
   /** How many buses the re-plan moved and why, in words (the engine's reasons). */
   why?: { buses: number; reasons: string[] };
+  /** What the revision does to the night's cost and which buses it leaves short, in words. */
+  effect?: string[];
 }): OutgoingMail {
   return {
     to: p.to,
@@ -128,6 +130,7 @@ export function planRevisedMail(p: {
             '',
           ]
         : []),
+      ...(p.effect?.length ? [...p.effect, ''] : []),
       ...(p.steps?.length ? ['Steps in the next hour:', ...p.steps.map((s) => `- ${s}`), ''] : []),
       `${p.link.label}: ${p.link.url}`,
       '',

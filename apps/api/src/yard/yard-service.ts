@@ -17,6 +17,7 @@ import type { Db } from '../db/client';
 import { prepared } from '../db/prepared';
 import { chargers, depots, plans, shiftAcknowledgements, users, yardConfirmations, yardReports } from '../db/schema';
 import { recountFaults } from './fault-counts';
+import { revisionEffect } from './revision-effect';
 import { DomainError, conflict, notFound } from '../http/errors';
 import type { AuthUser } from '../auth/auth-user';
 import { assertMayOpenDepot, depotOf, type DepotViewer } from '../depots/depot-access';
@@ -744,6 +745,7 @@ export async function replanAndPublish(
   const soon = stepsDueSoon(yardSteps(merged, now, confirmations, context), now).map(
     (s) => `${DateTime.fromISO(s.at, { zone }).toFormat('HH:mm')} ${s.text}`,
   );
+  const effect = revisionEffect(followed, merged, scenario.tariff.currency);
   const recipients = await nightStaff(db, caller.organisationId, depotId);
   let notified = 0;
   for (const r of recipients) {
@@ -760,6 +762,7 @@ export async function replanAndPublish(
           moved: moved.map((m) => `${m.bus}: ${m.after}`),
           steps: soon,
           why: movedWhy(next),
+          effect: effect.lines,
           link: nightMailLink(r.roles, { planId: revision.id, serviceDate: revision.serviceDate }, deps.publicUrl),
         }),
       )
@@ -790,5 +793,6 @@ export async function replanAndPublish(
     moved,
     replanMs,
     notified,
+    effect,
   };
 }

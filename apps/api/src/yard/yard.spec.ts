@@ -152,6 +152,23 @@ describe('yard: reports re-plan the rest of the night', () => {
       `Review the plan: http://nightyard.test/plans?date=2026-12-09&plan=${res.body.revision.id}`,
     );
     expect(supMail!.text).not.toContain('/yard');
+    // What the report does to the night's money, against the plan followed (whole nights both),
+    // in the yard's answer and in every e-mail, in the same words.
+    const effect = res.body.effect;
+    expect(effect).toMatchObject({
+      costBefore: Math.round(prev.cost.total * 100) / 100,
+      costAfter: Math.round(next.cost.total * 100) / 100,
+      demandAfter: Math.round(next.cost.demand * 100) / 100,
+      peakAfterKw: Math.round(Math.max(...next.slots.map((x) => x.loadKw)) * 10) / 10,
+    });
+    expect(effect.short.map((x: { bus: string }) => x.bus)).toEqual(
+      next.buses.filter((x) => x.shortfallKwh > 0.05).map((x) => x.id),
+    );
+    expect(effect.lines[0]).toMatch(/^The night's projected cost is (unchanged: \$|\$[\d,.]+ (higher|lower): \$)/);
+    for (const line of effect.lines) {
+      expect(mail!.text).toContain(line);
+      expect(supMail!.text).toContain(line);
+    }
   });
 
   it('a late bus: its sessions move after its new time', async () => {

@@ -83,11 +83,27 @@ describe('ReportDialog', () => {
         moved: [{ bus: '203', before: 'C2 22:00-05:00', after: 'C1 23:00-04:00' }],
         replanMs: 840,
         notified: 3,
+        effect: {
+          costBefore: 73.01,
+          costAfter: 644.3,
+          demandBefore: 0,
+          demandAfter: 571.3,
+          peakBeforeKw: 185,
+          peakAfterKw: 261.2,
+          short: [],
+          lines: [
+            "The night's projected cost is $571.29 higher: $644.30, was $73.01 (demand charge $0.00 before, $571.30 now; peak 185 kW before, 261.2 kW now).",
+          ],
+        },
       },
       { status: 201, statusText: 'Created' },
     );
     await render();
     expect(el.textContent).toContain('Version 2 is published');
+    // The money the report costs is said where it is made, not only in the supervisor's e-mail.
+    expect(el.querySelector('[data-fact="cost-effect"] span')?.textContent?.replace(/\s+/g, ' ').trim()).toBe(
+      "The night's projected cost is $571.29 higher: $644.30, was $73.01 (demand charge $0.00 before, $571.30 now; peak 185 kW before, 261.2 kW now). The supervisor has it in the e-mail.",
+    );
     expect(el.textContent).toContain('Bus 203: C2 22:00-05:00 → C1 23:00-04:00');
     expect(el.textContent).toContain('3 people were told by e-mail');
   });

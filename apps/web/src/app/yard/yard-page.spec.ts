@@ -289,6 +289,16 @@ describe('YardPage', () => {
       moved: [{ bus: '203', before: 'C2 22:00', after: 'C2 22:45' }],
       replanMs: 40,
       notified: 2,
+      effect: {
+        costBefore: 10,
+        costAfter: 10,
+        demandBefore: 0,
+        demandAfter: 0,
+        peakBeforeKw: 60,
+        peakAfterKw: 60,
+        short: [],
+        lines: ["The night's projected cost is unchanged: $10.00."],
+      },
     });
     await render();
     const revised = plan({
