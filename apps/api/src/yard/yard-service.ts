@@ -12,7 +12,14 @@ import {
   type YardStep,
   horizonOf,
 } from '@nightyard/contracts';
-import { parseScenario, ReplanStateError, underTarget, type Plan, type ScenarioInput } from '@nightyard/scheduling';
+import {
+  localToMillis,
+  parseScenario,
+  ReplanStateError,
+  underTarget,
+  type Plan,
+  type ScenarioInput,
+} from '@nightyard/scheduling';
 import type { Db } from '../db/client';
 import { prepared } from '../db/prepared';
 import { chargers, depots, plans, shiftAcknowledgements, users, yardConfirmations, yardReports } from '../db/schema';
@@ -518,6 +525,16 @@ export async function replanAndPublish(
         throw new DomainError('validation_failed', 'The new arrival time must be later than now', {
           expectedAt: 'In the past',
         });
+      // Later than its next pull-out is not late but gone: said in the depot's time, with the fix.
+      const stay = scenario.buses
+        .find((b) => b.id === report.bus)!
+        .stays.find((st) => localToMillis(st.depart, zone)! > cutAt.getTime());
+      if (stay && at.toMillis() >= localToMillis(stay.depart, zone)!)
+        throw new DomainError(
+          'validation_failed',
+          `Bus ${report.bus} pulls out at ${stay.depart.slice(11)}: give a time before then (after midnight means tomorrow morning)`,
+          { expectedAt: `Before its ${stay.depart.slice(11)} pull-out` },
+        );
       state.lateArrivals[report.bus] = report.expectedAt;
       break;
     }

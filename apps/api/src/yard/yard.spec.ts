@@ -219,6 +219,17 @@ describe('yard: reports re-plan the rest of the night', () => {
       .send({ planId: current.plan.id, kind: 'bus_absent', bus: otherDepotBus })
       .expect(400);
     expect(foreign.body.error.message).toMatch(/Bus 99 is not in tonight's plan/);
+    // Later than the bus's pull-out: said at the depot's clock with what to give, not as a stay's ISO time.
+    const tooLate = await app
+      .request()
+      .post(`/api/depots/${depotId}/tonight/reports`)
+      .set(as(yard))
+      .send({ planId: current.plan.id, kind: 'bus_late', bus: '41', expectedAt: '2026-12-10T22:00' })
+      .expect(400);
+    expect(tooLate.body.error.message).toMatch(
+      /^Bus 41 pulls out at \d\d:\d\d: give a time before then \(after midnight means tomorrow morning\)$/,
+    );
+    expect(tooLate.body.error.fields.expectedAt).toMatch(/^Before its \d\d:\d\d pull-out$/);
     const oldStep = await app
       .request()
       .post('/api/yard/confirmations')
