@@ -3,6 +3,7 @@ import { describe, expect, it } from 'vitest';
 import { z } from 'zod';
 import * as contracts from './index';
 import { FIRST_YEAR, LAST_YEAR } from './dates';
+import { text } from './text';
 import { textProblem } from './text';
 import { leafPaths, setAt } from './testing/json-paths';
 
@@ -332,6 +333,20 @@ describe('request contracts under fuzzing', () => {
         if (parsed.success) expectStorable(parsed.data);
       }),
       { seed: SEED, numRuns: RUNS },
+    );
+  });
+});
+
+describe('text fields', () => {
+  it('say the limit of a text too long, and what to enter for one that is not text', () => {
+    const reason = text('The reason').trim().min(1, 'Say what is wrong').max(300);
+    expect(reason.safeParse('x'.repeat(5000)).error?.issues[0]?.message).toBe(
+      'The reason is at most 300 characters: shorten it',
+    );
+    expect(reason.safeParse('  ').error?.issues[0]?.message).toBe('Say what is wrong');
+    expect(reason.safeParse(42).error?.issues[0]?.message).toBe('Enter the reason as text');
+    expect(text('The charger label').max(40).safeParse('C'.repeat(500)).error?.issues[0]?.message).toBe(
+      'The charger label is at most 40 characters: shorten it',
     );
   });
 });

@@ -25,7 +25,20 @@ export function textProblem(value: string, what = 'The text'): string | null {
  * `.max()`, `.regex()` as on `z.string()`; `what` names the field in the message.
  */
 export const text = (what = 'The text') =>
-  z.string({ error: `Enter ${lower(what)} as text` }).check((ctx) => {
-    const problem = textProblem(ctx.value, what);
-    if (problem) ctx.issues.push({ code: 'custom', message: problem, input: ctx.value });
-  });
+  z
+    .string({
+      // The schema's message is for what is not text at all; a `.max()` without its own message
+      // says the limit (it read "Enter the reason as text" for 5,000 characters of text).
+      error: (issue) =>
+        issue.code === 'invalid_type'
+          ? `Enter ${lower(what)} as text`
+          : issue.code === 'too_big'
+            ? `${what} is at most ${Number(issue.maximum).toLocaleString('en-US')} characters: shorten it`
+            : issue.code === 'too_small'
+              ? `Enter ${lower(what)}`
+              : undefined,
+    })
+    .check((ctx) => {
+      const problem = textProblem(ctx.value, what);
+      if (problem) ctx.issues.push({ code: 'custom', message: problem, input: ctx.value });
+    });
