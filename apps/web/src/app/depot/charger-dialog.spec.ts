@@ -156,6 +156,16 @@ describe('ChargerDialog', () => {
     expect(close).toHaveBeenCalledWith({ ...saved, ocppIdentity: 'OLD-D4' });
   });
 
+  it('gives a maximum the contract refuses its error only, with no offer to confirm it as right', async () => {
+    (fixture.componentInstance as unknown as { data: ChargerDialogData }).data.serviceLimitKw = 450;
+    type(input('Label'), 'D4');
+    type(input('Maximum power'), '99999999');
+    await save();
+    expect(el.textContent).toContain('100,000 kW');
+    expect(el.querySelector('ny-plausible-confirm input[type="checkbox"]')).toBeNull();
+    mock.expectNone(`/api/depots/${DEPOT_ID}/chargers`);
+  });
+
   it("shows the API's cabinet error on the cabinet field", async () => {
     type(input('Label'), 'D3');
     type(input('Maximum power'), '120');

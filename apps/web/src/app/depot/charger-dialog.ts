@@ -197,12 +197,18 @@ export class ChargerDialog {
   private readonly maxKw = toSignal(this.form.controls.maxKw.valueChanges, {
     initialValue: this.form.controls.maxKw.value,
   });
+  private readonly maxKwStatus = toSignal(this.form.controls.maxKw.statusChanges, {
+    initialValue: this.form.controls.maxKw.status,
+  });
+  /** A figure the form refuses outright has its error only: no offer to confirm it as right. */
   protected readonly kwWarning = computed(() =>
-    chargerKwWarning(
-      this.maxKw(),
-      this.data.serviceLimitKw,
-      this.data.cabinets.find((c) => c.id === this.cabinetId()),
-    ),
+    this.maxKwStatus() === 'INVALID'
+      ? null
+      : chargerKwWarning(
+          this.maxKw(),
+          this.data.serviceLimitKw,
+          this.data.cabinets.find((c) => c.id === this.cabinetId()),
+        ),
   );
   /** The unlikely figure was confirmed (asked again when it changes). */
   protected readonly kwConfirmed = signal(false);
