@@ -9,6 +9,8 @@ export const depotSummarySchema = z.object({
   chargersInService: z.number().int(),
   busCount: z.number().int(),
   ratePlanName: z.string().nullable(),
+  /** The rate plan's currency (amounts on the depot's pages are in it); null without a rate plan. */
+  currency: z.string().nullable(),
   nextServiceDay: z
     .object({
       date: z.iso.date(),

@@ -58,7 +58,7 @@ async function summarise(db: Db, d: typeof depots.$inferSelect, now: Date): Prom
     .from(depots)
     .where(eq(depots.id, d.id));
   const [plan] = await db
-    .select({ name: ratePlans.name })
+    .select({ name: ratePlans.name, currency: ratePlans.currency })
     .from(depotRatePlans)
     .innerJoin(ratePlans, eq(ratePlans.id, depotRatePlans.ratePlanId))
     .where(and(eq(depotRatePlans.depotId, d.id), lte(depotRatePlans.effectiveFrom, today)))
@@ -107,6 +107,7 @@ async function summarise(db: Db, d: typeof depots.$inferSelect, now: Date): Prom
     chargersInService: counts?.inService ?? 0,
     busCount: counts?.buses ?? 0,
     ratePlanName: plan?.name ?? null,
+    currency: plan?.currency ?? null,
     nextServiceDay,
   };
 }

@@ -64,6 +64,10 @@ export class DepotPage {
   protected readonly state = signal<LoadState>('loading');
   protected readonly problem = signal<string | null>(null);
   protected readonly depot = signal<DepotDetail | null>(null);
+  /** The depot's rate plan currency (the cost tolerance is an amount in it). */
+  protected readonly currency = computed(
+    () => this.store.depots().find((d) => d.id === this.depot()?.id)?.currency ?? null,
+  );
   private readonly liveStore = inject(LiveStore);
   private readonly destroyRef = inject(DestroyRef);
   private readonly injector = inject(Injector);

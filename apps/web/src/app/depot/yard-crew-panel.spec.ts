@@ -41,6 +41,10 @@ describe('YardCrewPanel', () => {
     expect(text).toContain('45 min');
     expect(text).toContain('Drivers plug in on pulling in and unplug on pulling out');
     expect(text).toContain('15:00-23:30, 3 moves per 15 min; 04:30-07:00, 2 moves per 15 min');
+    // The tolerance's amount as money in the rate plan's currency (it read "or 5 in the rate plan's currency").
+    fixture.componentRef.setInput('currency', 'USD');
+    await refresh();
+    expect(el.textContent!.replace(/\s+/g, ' ')).toMatch(/% of the night's cost or \$\d+\.\d\d, whichever is larger/);
     button('Edit yard crew').click();
     await refresh();
     const to = field('Shift 1 to');

@@ -146,7 +146,7 @@ type CrewForm = ReturnType<typeof crewForm>;
                 <mat-error>{{ error(f.controls.costTolerancePercent) }}</mat-error>
               </mat-form-field>
               <mat-form-field appearance="outline">
-                <mat-label>Cost tolerance, amount a night (rate plan's currency)</mat-label>
+                <mat-label>Cost tolerance, amount a night ({{ currency() ?? "rate plan's currency" }})</mat-label>
                 <input matInput type="number" min="0" max="1000" step="1" formControlName="costToleranceAmount" />
                 <mat-error>{{ error(f.controls.costToleranceAmount) }}</mat-error>
               </mat-form-field>
@@ -184,8 +184,8 @@ type CrewForm = ReturnType<typeof crewForm>;
           <div class="wide">
             <dt>Cost tolerance for fewer moves</dt>
             <dd>
-              {{ crew().costTolerancePercent }} % of the night's cost or {{ crew().costToleranceAmount }} in the rate
-              plan's currency, whichever is larger
+              {{ crew().costTolerancePercent }} % of the night's cost or {{ amount(crew().costToleranceAmount) }},
+              whichever is larger
             </dd>
           </div>
         </dl>
@@ -201,6 +201,15 @@ export class YardCrewPanel {
 
   readonly depotId = input.required<string>();
   readonly yardCrew = input<YardCrew | null>(null);
+  /** The rate plan's currency; null without a rate plan. */
+  readonly currency = input<string | null>(null);
+  /** The tolerance's amount as money ("$5.00"), or with no rate plan a bare figure. */
+  protected amount(v: number): string {
+    const c = this.currency();
+    return c
+      ? new Intl.NumberFormat('en-US', { style: 'currency', currency: c }).format(v)
+      : `${v} in the rate plan's currency`;
+  }
   readonly canEdit = input(false);
   readonly saved = output<YardCrew>();
 

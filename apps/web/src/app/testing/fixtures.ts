@@ -52,6 +52,7 @@ export function depot(overrides: Partial<DepotSummary> = {}): DepotSummary {
     chargersInService: 5,
     busCount: 12,
     ratePlanName: 'Commercial TOU',
+    currency: 'USD',
     nextServiceDay: {
       date: '2026-12-03',
       firstPullOut: '05:40',
