@@ -110,6 +110,41 @@ describe('BillTable', () => {
     expect(cells(el.querySelector('tfoot tr.grand-total'))).toBe('Total $1.00');
   });
 
+  it('a demand line multiplies out to its amount as shown: a cent of rounding goes to the energy lines', async () => {
+    // 185.000001 kW x $7.50 is $1,387.50; 261.1733 kW x $7.50 is $1,958.80 (shown as 261.2 kW it read $1,959.00).
+    const kwLine = (name: string, quantity: number) => ({
+      name,
+      quantity,
+      unit: 'kW' as const,
+      rate: 7.5,
+      amount: quantity * 7.5,
+      peakAt: null,
+    });
+    const third = 1 / 3;
+    const e = (name: string) => ({ name, quantity: 1, unit: 'kWh' as const, rate: third, amount: third });
+    const demand = [kwLine('Facility demand', 185.000001), kwLine('On-peak demand', 261.1733)];
+    const total = 1 + 185.000001 * 7.5 + 261.1733 * 7.5;
+    const el = await render(
+      bill({
+        energy: [e('Energy, a'), e('Energy, b'), e('Energy, c')],
+        demand,
+        fixed: [],
+        energyTotal: 1,
+        demandTotal: total - 1,
+        fixedTotal: 0,
+        total,
+        kwh: 3,
+      }),
+    );
+    const row = (n: string) => [...rowOf(el, n)!.querySelectorAll('td')].map((td) => text(td));
+    expect(row('Facility demand').join(' | ')).toMatch(/185 kW at \$7\.50 per kW \| .*\$1,387\.50$/);
+    expect(row('On-peak demand').join(' | ')).toMatch(/261\.173 kW at \$7\.50 per kW \| .*\$1,958\.80$/);
+    const shown = ['Energy, a', 'Energy, b', 'Energy, c', 'Facility demand', 'On-peak demand'].map((n) =>
+      Math.round(Number(/\$([\d,]+\.\d\d)$/.exec(row(n).join(' '))![1]!.replace(/,/g, '')) * 100),
+    );
+    expect(shown.reduce((a, x) => a + x, 0)).toBe(Math.round(total * 100));
+  });
+
   it("shows where a billed demand comes from when it is not the intervals' own peak", async () => {
     const b = bill();
     b.demand[0] = {

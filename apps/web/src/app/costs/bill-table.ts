@@ -11,10 +11,63 @@ const UNIT_WORDS: Record<BillView['fixed'][number]['unit'], [string, string]> = 
   month: ['month', 'months'],
 };
 
-function quantityText(quantity: number, unit: BillView['fixed'][number]['unit']): string {
-  if (unit === 'kW') return kw(quantity);
+/**
+ * A line's quantity, a kW figure to the tenth or as many more places (up to three) as it takes for
+ * it times the rate to make the amount shown: "185 kW at $7.50" beside $1,387.51 did not multiply.
+ */
+function quantityText(quantity: number, unit: BillView['fixed'][number]['unit'], rate: number, cents: number): string {
+  if (unit === 'kW') {
+    const digits = [1, 2, 3].find((d) => toCents(Number(quantity.toFixed(d)) * rate) === cents) ?? 3;
+    return `${num(quantity, digits)} kW`;
+  }
   const [one, many] = UNIT_WORDS[unit];
   return `${num(quantity, unit === 'kWh' ? 0 : 2)} ${quantity === 1 ? one : many}`;
+}
+
+/**
+ * The cents shown for a bill, one rounding rule: the total is the bill's rounded once; each
+ * demand and fixed line is its own amount rounded (quantity x rate, which an analyst checks), and
+ * the energy lines, whose kWh are shown whole and never multiply out to the cent, foot to what is
+ * left (footedCents). Without energy lines every section foots to the total.
+ */
+export function billCents(b: BillView) {
+  const total = toCents(b.total);
+  const sum = (xs: number[]) => xs.reduce((a, x) => a + Math.round(x * 100), 0) / 100;
+  if (b.energy.length) {
+    const demand = b.demand.map((l) => toCents(l.amount));
+    const fixed = b.fixed.map((l) => toCents(l.amount));
+    const demandShown = sum(demand);
+    const fixedShown = sum(fixed);
+    const energyShown = toCents(total - demandShown - fixedShown);
+    const energy = footedCents(
+      b.energy.map((l) => l.amount),
+      energyShown,
+    );
+    return { total, energy, demand, fixed, energyShown, demandShown, fixedShown };
+  }
+  const [energyShown, demandShown, fixedShown] = footedCents([b.energyTotal, b.demandTotal, b.fixedTotal], total) as [
+    number,
+    number,
+    number,
+  ];
+  return {
+    total,
+    energy: footedCents(
+      b.energy.map((l) => l.amount),
+      energyShown,
+    ),
+    demand: footedCents(
+      b.demand.map((l) => l.amount),
+      demandShown,
+    ),
+    fixed: footedCents(
+      b.fixed.map((l) => l.amount),
+      fixedShown,
+    ),
+    energyShown,
+    demandShown,
+    fixedShown,
+  };
 }
 
 /**
@@ -47,29 +100,12 @@ export class BillTable {
     const c = b.currency;
     const tz = this.timezone();
     const now = this.nowMs();
-    // One rounding rule: the bill is computed in full precision; the total is shown rounded once,
-    // the section totals add up to it and each section's lines to its total (footedCents).
-    const [energyShown, demandShown, fixedShown] = footedCents(
-      [b.energyTotal, b.demandTotal, b.fixedTotal],
-      toCents(b.total),
-    );
-    const shown = {
-      energy: footedCents(
-        b.energy.map((l) => l.amount),
-        energyShown,
-      ),
-      demand: footedCents(
-        b.demand.map((l) => l.amount),
-        demandShown,
-      ),
-      fixed: footedCents(
-        b.fixed.map((l) => l.amount),
-        fixedShown,
-      ),
-    };
+    const cents = billCents(b);
+    const { energyShown, demandShown, fixedShown } = cents;
+    const shown = { energy: cents.energy, demand: cents.demand, fixed: cents.fixed };
     const line = (l: BillView['energy'][number], amount: number, peakAt: number | null = null) => ({
       name: l.name,
-      quantity: quantityText(l.quantity, l.unit),
+      quantity: quantityText(l.quantity, l.unit, l.rate, amount),
       rate: `${unitPrice(l.rate, c)} per ${l.unit}`,
       amount: money(amount, c),
       peakAt: instantAt(peakAt, tz),
@@ -82,7 +118,7 @@ export class BillTable {
         title: 'Energy',
         empty: 'No energy used',
         lines: b.energy.map((l, i) => line(l, shown.energy[i]!)),
-        total: money(energyShown!, c),
+        total: money(energyShown, c),
         totalLabel: `Energy total, ${kwh(b.kwh)}`,
       },
       {
@@ -90,7 +126,7 @@ export class BillTable {
         title: 'Demand',
         empty: 'No demand charge in this rate plan',
         lines: b.demand.map((l, i) => line(l, shown.demand[i]!, l.peakAt)),
-        total: money(demandShown!, c),
+        total: money(demandShown, c),
         totalLabel: 'Demand total',
       },
       {
@@ -98,7 +134,7 @@ export class BillTable {
         title: 'Fixed charges',
         empty: 'No fixed charges in this rate plan',
         lines: b.fixed.map((l, i) => line(l, shown.fixed[i]!)),
-        total: money(fixedShown!, c),
+        total: money(fixedShown, c),
         totalLabel: 'Fixed charges total',
       },
     ];
@@ -110,23 +146,8 @@ export class BillTable {
     const b = this.bill();
     const c = b.currency;
     const tz = this.timezone();
-    // The same footed cents as the table, so the export adds up as the page does.
-    const [energyShown, demandShown, fixedShown] = footedCents(
-      [b.energyTotal, b.demandTotal, b.fixedTotal],
-      toCents(b.total),
-    );
-    const energy = footedCents(
-      b.energy.map((l) => l.amount),
-      energyShown,
-    );
-    const demand = footedCents(
-      b.demand.map((l) => l.amount),
-      demandShown,
-    );
-    const fixed = footedCents(
-      b.fixed.map((l) => l.amount),
-      fixedShown,
-    );
+    // The same cents as the table, so the export adds up as the page does.
+    const { energy, demand, fixed, energyShown, demandShown, fixedShown } = billCents(b);
     const row = (section: string, l: BillView['energy'][number], amount: number, peakAt: number | null = null) => [
       section,
       l.name,
@@ -142,11 +163,11 @@ export class BillTable {
       // Each section's total as the page words it (the kWh on the energy total), then the bill's.
       rows: [
         ...b.energy.map((l, i) => row('Energy', l, energy[i]!)),
-        ['Energy', 'Energy total', Number(b.kwh.toFixed(3)), 'kWh', null, energyShown!, null, null],
+        ['Energy', 'Energy total', Number(b.kwh.toFixed(3)), 'kWh', null, energyShown, null, null],
         ...b.demand.map((l, i) => row('Demand', l, demand[i]!, l.peakAt)),
-        ['Demand', 'Demand total', null, null, null, demandShown!, null, null],
+        ['Demand', 'Demand total', null, null, null, demandShown, null, null],
         ...b.fixed.map((l, i) => row('Fixed', l, fixed[i]!)),
-        ['Fixed', 'Fixed charges total', null, null, null, fixedShown!, null, null],
+        ['Fixed', 'Fixed charges total', null, null, null, fixedShown, null, null],
         ['Total', 'Bill total', null, null, null, toCents(b.total), null, null],
       ],
     };
