@@ -1,6 +1,6 @@
 import { ChangeDetectionStrategy, Component, computed, input } from '@angular/core';
 import { footedCents, toCents, type BillView } from '@nightyard/contracts';
-import { instantAt, instantCsv, kw, kwh, money, num, unitPrice } from './costs-format';
+import { instantAt, instantCsv, kwh, money, num, unitPrice } from './costs-format';
 import { CsvExportButton } from './csv-export-button';
 import type { CsvTable } from './csv';
 
