@@ -65,6 +65,7 @@ export { quarterHours, type MeterReading } from './bill/quarter-hours.js';
 /** Re-planning at a cut-off `now` (energy per bus, buses plugged in, chargers out of service,
  *  late buses): `replan(scenario, state, options?)` plans the rest of the horizon. */
 export { replan, deriveScenario, ReplanStateError, type ReplanState, type Replan } from './replan.js';
+export { nightBaselines, type NightBaseline } from './night-baselines.js';
 export { sweepAssignment, type SweepInput } from './sweep.js';
 export {
   serviceNights,

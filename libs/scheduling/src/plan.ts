@@ -1361,7 +1361,7 @@ function assemblePlan(
 }
 
 /** A baseline's cost, its undelivered energy valued at the plan's average price per grid kWh. */
-function baselineCost(b: Baseline, planEnergyCost: number, planGridKwh: number): BaselineCost {
+export function baselineCost(b: Baseline, planEnergyCost: number, planGridKwh: number): BaselineCost {
   const shortfallCost = planGridKwh > 0 ? (b.shortfallKwh / b.eta) * (planEnergyCost / planGridKwh) : 0;
   return {
     kind: b.kind,

@@ -3,6 +3,7 @@ import { loadSolver, type Solver } from './highs-solver.js';
 import { defaultMoves, planProblem, type Plan, type PlanOptions, type PlanSession } from './plan.js';
 import { cheapestFound, inScenarioOrder, reorderedScenario } from './restarts.js';
 import { changedBuses, notKeptWhy, previousWindows } from './previous.js';
+import { nightBaselines, type NightBaseline } from './night-baselines.js';
 import { prepareProblem, type Problem } from './problem.js';
 import {
   formatPath,
@@ -72,6 +73,8 @@ export interface Replan extends Plan {
      * charger or other times), and why, in words ("charger C3 out of service: 4 buses on it").
      */
     moved: { buses: string[]; reasons: string[] };
+    /** With a plan being carried out: the whole night's baselines, with the same events (night-baselines.ts). */
+    night?: Record<'arrival' | 'timer', NightBaseline>;
   };
 }
 
@@ -100,7 +103,27 @@ export async function replan(scenario: Scenario, state: ReplanState, options: Pl
   const moved = state.previous
     ? movedBuses(problem, state.previous, plan, state, outOfService, scenario.tariff.currency)
     : { buses: [], reasons: [] };
-  return { ...plan, replan: { from: problem.slots[0]!.start, scenario: derived, outOfService, plugged, kept, moved } };
+  const night = state.previous
+    ? nightBaselines(
+        scenario,
+        problem.slots[0]!.startMs,
+        { outOfService, ...(state.lateArrivals ? { lateArrivals: state.lateArrivals } : {}) },
+        { kept, buses: state.previous.buses },
+        plan,
+      )
+    : undefined;
+  return {
+    ...plan,
+    replan: {
+      from: problem.slots[0]!.start,
+      scenario: derived,
+      outOfService,
+      plugged,
+      kept,
+      moved,
+      ...(night ? { night } : {}),
+    },
+  };
 }
 
 /**

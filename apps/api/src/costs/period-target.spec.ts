@@ -146,9 +146,8 @@ describe('billing-period demand target', () => {
       expect(target.binding).toBe(published.target.binding);
       if (target.trade === null) for (const p of target.peaks) expect(p.kw).toBeLessThanOrEqual(p.targetKw + 0.05);
       else expect(target.trade.sentence).toMatch(/^Raising the target by [\d.,]+ kW costs \$[\d.,]+ this month/);
-      // The Costs page compares the revision with its baseline in time: before the cut-off the night
-      // is what happened under either, after it the re-plan's own baseline (the engine's figure).
-      // Read by index from the night's start, the re-plan's baseline fell hours early.
+      // The Costs page compares the revision with its baseline in time (read by index from the
+      // night's start, a re-plan's own baseline fell hours early).
       const cut = Date.parse(revision.replan.from);
       const planBefore = revision.sessions.reduce(
         (sum: number, x: { start: string; kw: number[] }) =>
@@ -170,8 +169,10 @@ describe('billing-period demand target', () => {
       ).body;
       const row = m.nights.find((n: { planId: string }) => n.planId === res.body.revision.id);
       const kind = revision.baseline.kind as 'arrival' | 'timer';
-      // The revision's baseline is the whole night's: what happened before the cut-off and the
-      // engine's own baseline from it on; the month reads the same figure.
+      // The revision's baseline is the whole night's, slot by slot from the night's start (the
+      // engine's, with the same events); the month reads the same figure. Here the timer's
+      // cheapest window is where the plan charged before the cut-off: the two agree there.
+      expect(revision.baselines[kind].chargingKw).toHaveLength(revision.slots.length);
       expect(revision.baselines[kind].energy).toBeCloseTo(planBefore + revision.replan.own.baselineEnergy[kind], 4);
       expect(row.baselineEnergyCost).toBeCloseTo(revision.baselines[kind].energy, 2);
       const limit = Math.max(...revision.slots.map((sl: { limitKw: number }) => sl.limitKw));

@@ -91,8 +91,11 @@ describe("a revision's figures are the whole night's", () => {
     expect(whole.cost.total - whole.lowerBound).toBeCloseTo(next.cost.total - next.lowerBound, 5);
     expect(whole.gap).toBeCloseTo((whole.cost.total - whole.lowerBound) / whole.cost.total, 6);
 
-    // Each baseline: the night as it happened before the cut-off, its own charging after.
+    // Each baseline is the whole night without a plan, with the same events: its charging priced
+    // slot by slot, and its demand the tariff's on the other load plus that charging.
     const price = priceAt(whole);
+    const planKw = chargingAt(whole.sessions);
+    const keptEnergy = whole.cost.energy - next.cost.energy;
     for (const kind of ['arrival', 'timer'] as const) {
       const b = whole.baselines![kind];
       expect(b.chargingKw).toHaveLength(whole.slots.length);
@@ -101,10 +104,25 @@ describe("a revision's figures are the whole night's", () => {
         0,
       );
       expect(Math.abs(b.energy - energy)).toBeLessThan(0.01);
-      expect(b.total - next.baselines[kind].total).toBeCloseTo(added, 5);
-      expect(b.energy - own.baselineEnergy![kind]).toBeCloseTo(whole.cost.energy - next.cost.energy, 5);
+      const loads = whole.slots.map((x, i) => ({
+        ...x,
+        loadKw: x.loadKw - (planKw.get(Date.parse(x.start)) ?? 0) + b.chargingKw[i]!,
+      }));
+      expect(Math.abs(b.demand - demandOf({ ...whole, slots: loads }, s))).toBeLessThan(0.05);
     }
-    expect(whole.baseline).toEqual(whole.baselines![next.baseline.kind!]);
+    // Before the cut-off charge on arrival charges on arrival, in the evening's on-peak hours: not
+    // the plan as it was drawn there (joined so, the night saved only what the re-plan saved).
+    const arrival = whole.baselines!.arrival;
+    const arrivalBefore = whole.slots.reduce(
+      (a, x, i) => a + (Date.parse(x.start) < cut ? arrival.chargingKw[i]! * 0.25 * x.price : 0),
+      0,
+    );
+    expect(arrivalBefore).toBeGreaterThan(keptEnergy + 1);
+    // The reference is the cheaper baseline that keeps up: the timer, a charger short from 23:00, does not.
+    expect(whole.baselines!.timer.shortfallKwh).toBeGreaterThan(1);
+    expect(arrival.shortfallKwh).toBeLessThan(0.05);
+    expect(whole.baseline).toEqual({ ...arrival, chargingKw: undefined, kind: 'arrival' });
+    expect(whole.baseline.total).toBeGreaterThan(whole.cost.total);
   });
 
   it("a re-plan from the night's first slot is the engine's plan as it stands", async () => {

@@ -1,5 +1,5 @@
 import type { PlanResult } from '@nightyard/contracts';
-import type { Scenario } from '@nightyard/scheduling';
+import { referenceBaseline, type NightBaseline, type Scenario } from '@nightyard/scheduling';
 
 const SLOT_MS = 15 * 60_000;
 const SLOT_HOURS = 0.25;
@@ -14,8 +14,9 @@ type BaselineWithLoad = NonNullable<PlanResult['baselines']>['arrival'];
  * that plus what the slots before the cut-off cost: their charging energy as it happened, and the
  * demand charge of their peaks above the peaks the night started from (`scenario`: the one the
  * engine was given, its peaks so far raised to any demand target). The same constant is added to
- * the plan, both baselines and the lower bound, so every saving, trade and gap the engine worked
- * out stands, and a revision's cost compares with its night's first version, as a utility bills it.
+ * the plan and the lower bound, so the gap and trades the engine worked out stand, and a
+ * revision's cost compares with its night's first version, as a utility bills it. The baselines
+ * are the engine's for the whole night with the same events (`night`, see night-baselines.ts).
  *
  * `result` has the whole night's slots and sessions; `derived` is the re-plan's own scenario.
  */
@@ -24,6 +25,7 @@ export function wholeNightFigures(
   scenario: Scenario,
   derived: Scenario,
   fromMs: number,
+  night?: Record<'arrival' | 'timer', NightBaseline>,
 ): PlanResult {
   const before = result.slots.filter((s) => Date.parse(s.start) < fromMs);
   if (before.length === 0) return result;
@@ -44,9 +46,15 @@ export function wholeNightFigures(
     ...whole(b),
     chargingKw: [...charging.map((kw) => round(kw)), ...b.chargingKw],
   });
-  const baselines = result.baselines
-    ? { arrival: withLoad(result.baselines.arrival), timer: withLoad(result.baselines.timer) }
-    : undefined;
+  // The engine's baselines of the whole night with the same events, where it gave them (a re-plan
+  // of a plan being carried out) and they cover this night's slots; else the re-plan's, after the
+  // hours before the cut-off as they happened (then the night saves only what the re-plan saves).
+  const fits = night && night.arrival.chargingKw.length === result.slots.length;
+  const baselines = fits
+    ? { arrival: roundedNight(night.arrival), timer: roundedNight(night.timer) }
+    : result.baselines
+      ? { arrival: withLoad(result.baselines.arrival), timer: withLoad(result.baselines.timer) }
+      : undefined;
   const total = round(result.cost.total + kept);
   const lowerBound = round(result.lowerBound + kept);
   return {
@@ -56,7 +64,11 @@ export function wholeNightFigures(
       demand: round(result.cost.demand + keptDemand),
       total,
     },
-    baseline: baselines && result.baseline.kind ? baselines[result.baseline.kind] : whole(result.baseline),
+    baseline: fits
+      ? withoutLoad(baselines![referenceBaseline(night).kind!])
+      : baselines && result.baseline.kind
+        ? baselines[result.baseline.kind]
+        : whole(result.baseline),
     ...(baselines ? { baselines } : {}),
     lowerBound,
     gap: total > 1e-9 ? round(Math.max(0, (total - lowerBound) / total)) : 0,
@@ -72,6 +84,24 @@ export function wholeNightFigures(
       },
     },
   };
+}
+
+function roundedNight(b: NightBaseline): BaselineWithLoad {
+  return {
+    ...b,
+    energy: round(b.energy),
+    demand: round(b.demand),
+    total: round(b.total),
+    peakKw: round(b.peakKw),
+    shortfallKwh: round(b.shortfallKwh),
+    shortfallCost: round(b.shortfallCost),
+    chargingKw: b.chargingKw.map((kw) => Math.round(kw * 1000) / 1000),
+  };
+}
+
+function withoutLoad(b: Baseline & { chargingKw?: number[] }): Baseline {
+  const { chargingKw: _, ...rest } = b;
+  return rest;
 }
 
 /** kW a set of sessions draws, by slot start (ms). Plans are in quarter-hour slots. */
