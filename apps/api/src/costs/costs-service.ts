@@ -662,7 +662,7 @@ export async function monthCosts(
     base = await pending;
   }
   const soFar = soFarOf(base, depot, period, now.getTime());
-  const target = await monthTargetOf(db, caller, depot, period, now, version, soFar.peaks);
+  const target = await monthTargetOf(db, caller, depot, period, now, version, soFar.peaks, base);
   const projection = projectionOf(base, depot, period, soFar, target);
   const withoutPlan = serviceDays.filter((d) => !base.plannedDates.has(d)).length;
   // The same inputs give the same answer: sent again as the bytes it was, not built, checked and
@@ -750,6 +750,7 @@ async function monthTargetOf(
   now: Date,
   version: string | undefined,
   peaksSoFar: Peaks,
+  base: PeriodBase,
 ): Promise<MonthTarget | null> {
   // "Which night" from the one night model: the night under way, else the next one.
   const night = (await nightOfDepot(db, depot, now)).tonight.serviceDate;
@@ -762,6 +763,21 @@ async function monthTargetOf(
     facility: peaksSoFar.facility.kw,
     periods: Object.fromEntries(peaksSoFar.periods.map((p) => [p.name, p.kw])),
   };
+  // The night under way is carried out as published: the peaks its plan has still to draw are
+  // billed in the projection whatever the target says, so they are the target's floor too (the
+  // card read "target 185 kW, no night needs more" beside a projected 261.2 kW from tonight's plan).
+  // A published plan covers now: the intervals it plans from now on, up to the end of its night
+  // (the first interval no published plan covers), count.
+  const current = sortedIndex(base.series, now.getTime());
+  if (base.series[current - 1]?.source === 'planned') {
+    for (let i = current; i < base.series.length && base.series[i]!.source === 'planned'; i++) {
+      const s = base.series[i]!;
+      const kw = s.kwh * 4;
+      floor.facility = Math.max(floor.facility, kw);
+      const p = ratePlanPeriodAtMs(base.rate.definition, s.startMs, depot.timezone);
+      if (!p.offPeak && p.demandCharge > 0) floor.periods[p.period] = Math.max(floor.periods[p.period] ?? 0, kw);
+    }
+  }
   const stamp = `${version ?? ''}|${from}|${depot.serviceLimitKw}|${depot.otherLoadKw.join(',')}|${JSON.stringify(floor)}`;
   const kept = version ? monthTargets.get(key) : undefined;
   if (kept && kept.stamp === stamp) return kept.target;

@@ -1,6 +1,6 @@
-import { eq } from 'drizzle-orm';
+import { and, eq } from 'drizzle-orm';
 import { beforeAll, describe, expect, it } from 'vitest';
-import { depots } from '../db/schema';
+import { depots, plans } from '../db/schema';
 import { createDepot } from '../testing/depot-fixture';
 import { addBuses, dayRuns } from '../testing/fleet-fixture';
 import { generatedPlan, publishedPlan } from '../testing/plan-fixture';
@@ -177,6 +177,44 @@ describe('billing-period demand target', () => {
       expect(row.baselineEnergyCost).toBeCloseTo(revision.baselines[kind].energy, 2);
       const limit = Math.max(...revision.slots.map((sl: { limitKw: number }) => sl.limitKw));
       expect(row.baselinePeakKw).toBeLessThanOrEqual(limit + 0.01);
+    } finally {
+      now = new Date('2026-12-14T13:00:00-06:00');
+      await signInAgain(app, sup, fin, yard);
+    }
+  });
+
+  it("the night under way's published peaks still to come are the target's floor: the projection bills them anyway", async () => {
+    try {
+      // The night of the 15th is published (and revised by the yard above, at 23:00).
+      const [row] = await app.db
+        .select()
+        .from(plans)
+        .where(and(eq(plans.depotId, depotId), eq(plans.serviceDate, '2026-12-15'), eq(plans.state, 'published')));
+      const planId = row!.id;
+      const result = row!.result!;
+      const at = Date.parse('2026-12-16T02:00:00-06:00');
+      const high = Math.max(...result.slots.map((x) => x.loadKw)) + 150;
+      const slots = result.slots.map((x) => (Date.parse(x.start) === at ? { ...x, loadKw: high } : x));
+      expect(slots.some((x) => x.loadKw === high)).toBe(true);
+      // Published as a new version, as a revision is (a published plan never changes).
+      const { id: _id, createdAt: _c, ...copy } = row!;
+      await app.db.update(plans).set({ state: 'superseded' }).where(eq(plans.id, planId));
+      await app.db.insert(plans).values({ ...copy, version: row!.version + 1, result: { ...result, slots } });
+      now = new Date('2026-12-15T23:00:00-06:00');
+      await signInAgain(app, sup, fin, yard);
+      const m = (
+        await app
+          .request()
+          .get(`/api/depots/${depotId}/costs/month`)
+          .query({ date: '2026-12-15' })
+          .set(as(fin))
+          .expect(200)
+      ).body;
+      // The projected bill has it; the target is not below it (it read the peak so far beside it).
+      const facility = m.projected.demand.find((l: { name: string }) => l.name === 'Facility demand');
+      expect(facility.quantity).toBeGreaterThanOrEqual(high - 0.01);
+      expect(m.target.facilityKw).toBeGreaterThanOrEqual(high - 0.01);
+      expect(m.peaks.facility.kw).toBeLessThan(high - 1);
     } finally {
       now = new Date('2026-12-14T13:00:00-06:00');
       await signInAgain(app, sup, fin, yard);

@@ -6,7 +6,7 @@ import type { MonthCosts, Role } from '@nightyard/contracts';
 import { AuthStore } from '../auth/auth-store';
 import { depot, settle, tokenResponse } from '../testing/fixtures';
 import { monthCosts, periodTarget } from './costs-fixtures';
-import { CostsPage } from './costs-page';
+import { CostsPage, floorsWhy } from './costs-page';
 
 describe('CostsPage', () => {
   let fixture: ComponentFixture<CostsPage>;
@@ -115,6 +115,10 @@ describe('CostsPage', () => {
     await render(
       ['finance'],
       monthCosts({
+        peaks: {
+          facility: { kw: 129.757, at: '2026-12-03T23:15:00.000Z', source: 'planned' },
+          periods: [{ name: 'on-peak', kw: 129.757, at: null }],
+        },
         target: periodTarget({
           facilityKw: 188.8,
           targets: [
@@ -137,6 +141,16 @@ describe('CostsPage', () => {
       "Why: No night left needs more than is billed already, so each target is its floor: facility 188.8 kW, the demand ratchet's minimum (80 % of 236 kW, from peaks entered in Depot for the period from 2026-11-01); on-peak 129.8 kW, the peak so far.",
     );
     expect(text(panel)).not.toContain('the target is the peak so far');
+    // Above the peak so far, a floor is the peak the night under way still draws as published.
+    const m = monthCosts({ target: periodTarget() });
+    expect(
+      floorsWhy(
+        { ...m.target!, ratchet: null, targets: [{ name: 'facility', kw: 261.2, peakSoFarKw: 261.2, rate: 7.5 }] },
+        { ...m.peaks, facility: { ...m.peaks.facility, kw: 185 } },
+      ),
+    ).toBe(
+      "No night left needs more than is billed already, so each target is its floor: facility 261.2 kW, the peak tonight's published plan still draws.",
+    );
   });
 
   it('explains a night no target can serve, and shows no target for a period without one', async () => {

@@ -46,12 +46,16 @@ const PEAK_SOURCE: Record<MonthCosts['peaks']['facility']['source'], string> = {
  * peak so far or, for the facility, a demand ratchet's minimum (not a peak of this period: it is
  * named, or the target would read as a peak so far the card beside it does not show).
  */
-export function floorsWhy(t: NonNullable<MonthCosts['target']>): string {
+export function floorsWhy(t: NonNullable<MonthCosts['target']>, peaks: MonthCosts['peaks']): string {
   const floors = t.targets.map((x) => {
     const r = t.ratchet;
     if (x.name === 'facility' && r && Math.abs(x.peakSoFarKw - r.kw) < 1e-6)
       return `facility ${kw(x.kw)}, the demand ratchet's minimum (${r.percent} % of ${kw(r.baseKw)}, ${r.source})`;
-    return `${x.name === 'facility' ? 'facility' : x.name} ${kw(x.kw)}, the peak so far`;
+    const soFar = x.name === 'facility' ? peaks.facility.kw : peaks.periods.find((p) => p.name === x.name)?.kw;
+    // Above the peak so far: the peak the night under way is still to draw as it was published.
+    const why =
+      soFar !== undefined && x.kw > soFar + 0.05 ? "the peak tonight's published plan still draws" : 'the peak so far';
+    return `${x.name === 'facility' ? 'facility' : x.name} ${kw(x.kw)}, ${why}`;
   });
   return `No night left needs more than is billed already, so each target is its floor: ${floors.join('; ')}.`;
 }
@@ -229,7 +233,7 @@ export class CostsPage {
     return {
       headline: facility ? `Demand target ${kw(facility.kw)}` : 'Demand target',
       periods: t.targets.filter((x) => x.name !== 'facility').map((x) => `${x.name} ${kw(x.kw)}`),
-      why: t.binding?.sentence ?? floorsWhy(t),
+      why: t.binding?.sentence ?? floorsWhy(t, this.month()!.peaks),
       marginal: t.marginal.map((m) => m.sentence),
       impossible: t.impossible.map((i) => i.sentence),
       nights:
