@@ -225,7 +225,7 @@ describe('the yard crew', () => {
     expect(r.replan.moved.reasons).toContain('battery levels reported for 12 buses');
     // With what keeping it would have taken: money beyond the tolerance, or buses left short.
     expect(r.replan.moved.reasons.at(-1)).toMatch(
-      /^the plan being carried out could not be kept(: it leaves [\d.]+ kWh more short that a new plan serves(, and costs \$[\d,]+\.\d\d more, where \$[\d,]+\.\d\d is allowed)?| within the depot's cost tolerance \(keeping it: \$[\d,]+\.\d\d more, where \$[\d,]+\.\d\d is allowed\)): the rest of the night was planned afresh \(\d+ other bus(es)? moved\)$/,
+      /^the plan being carried out could not be kept(: keeping it would leave buses [\d.]+ kWh short that a new plan delivers(, and cost \$[\d,]+\.\d\d more, where \$[\d,]+\.\d\d is allowed)?| within the depot's cost tolerance \(keeping it: \$[\d,]+\.\d\d more, where \$[\d,]+\.\d\d is allowed\)): the rest of the night was planned afresh \(\d+ other bus(es)? moved\)$/,
     );
   });
 });

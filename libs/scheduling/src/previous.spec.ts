@@ -9,10 +9,10 @@ describe('why a plan was not kept, in words', () => {
     );
     // Before: "(keeping it: 24.7 kWh more short, where $5.00 is allowed)".
     expect(notKeptWhy(subject, { extraCost: 0, extraShortKwh: 24.7, allowed: 5 }, 'USD')).toBe(
-      'the plan being carried out could not be kept: it leaves 24.7 kWh more short that a new plan serves',
+      'the plan being carried out could not be kept: keeping it would leave buses 24.7 kWh short that a new plan delivers',
     );
     expect(notKeptWhy(subject, { extraCost: 53.59, extraShortKwh: 160.7, allowed: 5 }, 'USD')).toBe(
-      'the plan being carried out could not be kept: it leaves 160.7 kWh more short that a new plan serves, and costs $53.59 more, where $5.00 is allowed',
+      'the plan being carried out could not be kept: keeping it would leave buses 160.7 kWh short that a new plan delivers, and cost $53.59 more, where $5.00 is allowed',
     );
     expect(notKeptWhy('the published plan', null, 'USD')).toBe(
       "the published plan could not be kept within the depot's cost tolerance",

@@ -51,8 +51,8 @@ export function changedBuses(problem: Problem, previous: Plan, plan: Plan): stri
 }
 
 /**
- * Why `subject` was not kept, in words: shortfall first, in kWh ("… could not be kept: it leaves
- * 24.7 kWh more short that a new plan serves"), else the cost against the tolerance ("… could not
+ * Why `subject` was not kept, in words: shortfall first, in kWh ("… could not be kept:
+ * keeping it would leave buses 24.7 kWh short that a new plan delivers"), else the cost against the tolerance ("… could not
  * be kept within the depot's cost tolerance (keeping it: $21.54 more, where $5.00 is allowed)").
  */
 export function notKeptWhy(subject: string, refused: Plan['previousRefused'], currency: string): string {
@@ -61,7 +61,7 @@ export function notKeptWhy(subject: string, refused: Plan['previousRefused'], cu
   const short = refused && refused.extraShortKwh >= 0.05 ? refused.extraShortKwh : 0;
   // Shortfall first, in kWh: full service comes before the cost tolerance, which is in money.
   if (short > 0)
-    return `${subject} could not be kept: it leaves ${short.toFixed(1)} kWh more short that a new plan serves${dearer ? `, and costs ${money(dearer)} more, where ${money(refused!.allowed)} is allowed` : ''}`;
+    return `${subject} could not be kept: keeping it would leave buses ${short.toFixed(1)} kWh short that a new plan delivers${dearer ? `, and cost ${money(dearer)} more, where ${money(refused!.allowed)} is allowed` : ''}`;
   const why = dearer ? ` (keeping it: ${money(dearer)} more, where ${money(refused!.allowed)} is allowed)` : '';
   return `${subject} could not be kept within the depot's cost tolerance${why}`;
 }

@@ -200,6 +200,8 @@ describe('replan: full service first', () => {
     expect(r.stats.starts!.length).toBeGreaterThan(1);
     expect(r.stats.starts![0]).toBeGreaterThan(r.stats.starts!.at(-1)! + 1000);
     // Said as the plan being carried out not kept, for the kWh it would have left short.
-    expect(r.replan.moved.reasons.join(' ')).toMatch(/could not be kept: it leaves [\d.]+ kWh more short/);
+    expect(r.replan.moved.reasons.join(' ')).toMatch(
+      /could not be kept: keeping it would leave buses [\d.]+ kWh short that a new plan delivers/,
+    );
   });
 });
