@@ -171,11 +171,14 @@ const shutdown = (signal: string) => {
   if (stopping) return;
   stopping = true;
   log.info({ signal }, 'shutting down');
-  void central.close();
+  // The chargers' last live states are written before the pool ends (they logged "Cannot use a
+  // pool after calling end on the pool" at every stop).
+  const chargersClosed = central.close().catch((err: unknown) => log.warn({ err }, 'charger connections not closed'));
   live.endStreams();
   server.close(() =>
     jobs
       .stop()
+      .then(() => chargersClosed)
       .then(() =>
         Promise.all([knownUsers.close(), yardNights.close(), costsInputs.close(), pool.end(), stopWorkPool()]),
       )

@@ -589,7 +589,14 @@ export class CentralSystem {
     return next;
   }
 
+  /**
+   * Closes every charger's connection and waits for the live states that closing writes (each
+   * charger goes offline): the database pool is ended after this, not under them.
+   */
   async close(): Promise<void> {
     await this.server.close({ force: true });
+    // The sockets' close handlers (each sets its charger offline) run after the server has closed.
+    await new Promise((resolve) => setImmediate(resolve));
+    await Promise.all([...this.writers.values()].map((w) => w.settled()));
   }
 }
