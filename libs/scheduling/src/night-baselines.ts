@@ -1,6 +1,6 @@
 import { DateTime } from 'luxon';
 import { limitedBaseline, type BaselineKind } from './baseline.js';
-import { baselineCost, type BaselineCost, type Plan, type PlanSession } from './plan.js';
+import { baselineCost, roundedBaseline, type BaselineCost, type Plan, type PlanSession } from './plan.js';
 import { prepareProblem } from './problem.js';
 import { localToMillis, type Scenario } from './scenario.js';
 
@@ -64,7 +64,11 @@ export function nightBaselines(
   }
   const of = (kind: BaselineKind): NightBaseline => {
     const b = limitedBaseline(problem, targets, kind);
-    return { ...baselineCost(b, energyCost, gridKwh), chargingKw: Array.from(b.chargingKw) };
+    // Rounded as a plan's own baselines are.
+    return {
+      ...roundedBaseline(baselineCost(b, energyCost, gridKwh)),
+      chargingKw: Array.from(b.chargingKw, (kw) => Math.round(kw * 1000) / 1000),
+    };
   };
   return { arrival: of('arrival'), timer: of('timer') };
 }

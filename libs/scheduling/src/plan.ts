@@ -1389,7 +1389,7 @@ export function referenceBaseline(b: Record<BaselineKind, BaselineCost>): Baseli
   return both.reduce((x, y) => (y.shortfallKwh < x.shortfallKwh ? y : x));
 }
 
-function roundedBaseline(b: BaselineCost): BaselineCost {
+export function roundedBaseline(b: BaselineCost): BaselineCost {
   return {
     ...b,
     energy: round(b.energy),

@@ -31,9 +31,8 @@ async function enterDay(date: string, miles: number) {
     .expect(200);
 }
 
-const month = async () =>
-  (await app.request().get(`/api/depots/${depotId}/costs/month`).query({ date: '2026-12-14' }).set(as(fin)).expect(200))
-    .body;
+const month = async (date = '2026-12-14') =>
+  (await app.request().get(`/api/depots/${depotId}/costs/month`).query({ date }).set(as(fin)).expect(200)).body;
 
 beforeAll(async () => {
   const org = await createOrganisation(app, { sup: ['supervisor'], fin: ['finance'], yard: ['yard'] });
@@ -202,14 +201,7 @@ describe('billing-period demand target', () => {
       await app.db.insert(plans).values({ ...copy, version: row!.version + 1, result: { ...result, slots } });
       now = new Date('2026-12-15T23:00:00-06:00');
       await signInAgain(app, sup, fin, yard);
-      const m = (
-        await app
-          .request()
-          .get(`/api/depots/${depotId}/costs/month`)
-          .query({ date: '2026-12-15' })
-          .set(as(fin))
-          .expect(200)
-      ).body;
+      const m = await month('2026-12-15');
       // The projected bill has it; the target is not below it (it read the peak so far beside it).
       const facility = m.projected.demand.find((l: { name: string }) => l.name === 'Facility demand');
       expect(facility.quantity).toBeGreaterThanOrEqual(high - 0.01);

@@ -51,7 +51,7 @@ export function wholeNightFigures(
   // hours before the cut-off as they happened (then the night saves only what the re-plan saves).
   const fits = night && night.arrival.chargingKw.length === result.slots.length;
   const baselines = fits
-    ? { arrival: roundedNight(night.arrival), timer: roundedNight(night.timer) }
+    ? { arrival: night.arrival, timer: night.timer }
     : result.baselines
       ? { arrival: withLoad(result.baselines.arrival), timer: withLoad(result.baselines.timer) }
       : undefined;
@@ -83,19 +83,6 @@ export function wholeNightFigures(
           : {}),
       },
     },
-  };
-}
-
-function roundedNight(b: NightBaseline): BaselineWithLoad {
-  return {
-    ...b,
-    energy: round(b.energy),
-    demand: round(b.demand),
-    total: round(b.total),
-    peakKw: round(b.peakKw),
-    shortfallKwh: round(b.shortfallKwh),
-    shortfallCost: round(b.shortfallCost),
-    chargingKw: b.chargingKw.map((kw) => Math.round(kw * 1000) / 1000),
   };
 }
 
