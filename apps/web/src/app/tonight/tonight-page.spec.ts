@@ -181,6 +181,8 @@ describe('TonightPage', () => {
     expect(fact('baseline')).toContain('20.00');
     expect(fact('saving')).toContain('10.00');
     expect(fact('saving')).toContain('50 % less');
+    // Two notes, two words: "(50 % less)and keeps" ran together.
+    expect(fact('saving')).toContain('(50 % less) and keeps the peak');
     // The demand side of the night, which the energy alone does not show.
     expect(fact('peak-cut')).toBe(
       "and keeps the peak at 120 kW where the baseline would reach 190 kW: demand is billed on the month's peak",
