@@ -112,7 +112,7 @@ export function mergeReplan(previous: PlanResult | null, next: Replan, scenario:
     ]),
     replan: replanFacts(next),
   };
-  return wholeNightFigures(merged, scenario, next.replan.scenario, firstNew, next.replan.night);
+  return wholeNightFigures(merged, scenario, next.replan.scenario, firstNew, next.replan.night, previous.baseline.kind);
 }
 
 /** Out-of-service spans with those of one charger that meet (the cut-off's two sides) made one. */

@@ -118,10 +118,16 @@ describe("a revision's figures are the whole night's", () => {
       0,
     );
     expect(arrivalBefore).toBeGreaterThan(keptEnergy + 1);
-    // The reference is the cheaper baseline that keeps up: the timer, a charger short from 23:00, does not.
-    expect(whole.baselines!.timer.shortfallKwh).toBeGreaterThan(1);
+    // The reference stays the one the night was following (a fault after the fact does not swap
+    // the comparison): here the timer, which without the charger leaves energy undelivered, counted
+    // at the night's average price in its total.
+    const timer = whole.baselines!.timer;
+    expect(v1.baseline.kind).toBe('timer');
+    expect(timer.shortfallKwh).toBeGreaterThan(1);
     expect(arrival.shortfallKwh).toBeLessThan(0.05);
-    expect(whole.baseline).toEqual({ ...arrival, chargingKw: undefined, kind: 'arrival' });
+    expect(timer.shortfallCost).toBeGreaterThan(0);
+    expect(timer.total).toBeCloseTo(timer.energy + timer.demand + timer.shortfallCost!, 5);
+    expect(whole.baseline).toEqual({ ...timer, chargingKw: undefined, kind: 'timer' });
     expect(whole.baseline.total).toBeGreaterThan(whole.cost.total);
   });
 

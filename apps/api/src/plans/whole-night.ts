@@ -26,6 +26,12 @@ export function wholeNightFigures(
   derived: Scenario,
   fromMs: number,
   night?: Record<'arrival' | 'timer', NightBaseline>,
+  /**
+   * The reference baseline of the plan the night was following: a revision keeps it, so a fault
+   * after the fact does not swap the comparison (a timer that cannot keep up without a charger
+   * counts its undelivered energy at the night's average price instead).
+   */
+  followedKind?: 'arrival' | 'timer',
 ): PlanResult {
   const before = result.slots.filter((s) => Date.parse(s.start) < fromMs);
   if (before.length === 0) return result;
@@ -65,7 +71,7 @@ export function wholeNightFigures(
       total,
     },
     baseline: fits
-      ? withoutLoad(baselines![referenceBaseline(night).kind!])
+      ? withoutLoad(baselines![followedKind ?? referenceBaseline(night).kind!])
       : baselines && result.baseline.kind
         ? baselines[result.baseline.kind]
         : whole(result.baseline),
