@@ -84,7 +84,7 @@ export class ReplanStateError extends Error {
   }
 }
 
-const round = (v: number) => Math.round(v * 1e6) / 1e6;
+const round = (v: number, digits = 6) => Math.round(v * 10 ** digits) / 10 ** digits;
 
 /**
  * Re-plans a scenario from a cut-off instant with what the depot reports (see ReplanState).
@@ -220,27 +220,25 @@ function servedByOtherStarts(
     timed ||= other.stats.stoppedBy === 'time';
     if (found.at(-1)! < penalised(best) - 1e-6) best = other;
   }
-  if (best === first) return { ...first, stats: { ...first.stats, starts: found.map((f) => round2(f)) } };
+  if (best === first) return { ...first, stats: { ...first.stats, starts: found.map((f) => round(f, 2)) } };
   const served = first.stats.shortfallKwh - best.stats.shortfallKwh;
   const money = (p: Plan) => p.cost.total - (p.crewTrade?.extraCost ?? 0);
   const refused = first.previousRefused;
   const keptToo = first.keptPrevious !== null || refused !== null;
   return {
     ...inScenarioOrder(best, derived),
-    solveMs: Math.round((performance.now() - t0) * 10) / 10,
+    solveMs: round(performance.now() - t0, 1),
     keptPrevious: null,
     previousRefused: keptToo
       ? {
-          extraCost: round2(Math.max(0, (refused?.extraCost ?? 0) + money(first) - money(best))),
-          extraShortKwh: round2((refused?.extraShortKwh ?? 0) + served),
+          extraCost: round(Math.max(0, (refused?.extraCost ?? 0) + money(first) - money(best)), 2),
+          extraShortKwh: round((refused?.extraShortKwh ?? 0) + served, 2),
           allowed: refused?.allowed ?? 0,
         }
       : null,
-    stats: { ...best.stats, starts: found.map((f) => round2(f)), stoppedBy: timed ? 'time' : best.stats.stoppedBy },
+    stats: { ...best.stats, starts: found.map((f) => round(f, 2)), stoppedBy: timed ? 'time' : best.stats.stoppedBy },
   };
 }
-
-const round2 = (v: number) => Math.round(v * 100) / 100;
 
 /** The scenario from the cut-off on (exported for tests and for exporting a re-plan's input). */
 export function deriveScenario(scenario: Scenario, state: ReplanState) {

@@ -22,6 +22,7 @@ import { billingPeaks, buses, meterIntervals, plans, runs } from '../db/schema';
 import { DomainError, notFound } from '../http/errors';
 import { periodTargetFrom } from './period-target';
 import { nightOfDepot } from '../night/depot-night';
+import { chargingBySlot } from '../plans/whole-night';
 import { isDatabaseUnavailable } from '../db/unavailable';
 import { markChecked, markCheckedText } from '../http/checked-answer';
 import type { AuthUser } from '../auth/auth-user';
@@ -193,11 +194,7 @@ interface Projection {
  * none (`kind` null) and count as charged the same.
  */
 function comparedNight(result: PlanResult, fromMs: number, toMs: number) {
-  const planCharging = new Map<number, number>();
-  for (const s of result.sessions) {
-    const t0 = Date.parse(s.start);
-    s.kw.forEach((kw, k) => planCharging.set(t0 + k * SLOT_MS, (planCharging.get(t0 + k * SLOT_MS) ?? 0) + kw));
-  }
+  const planCharging = chargingBySlot(result.sessions);
   const kind = result.baselines && result.baseline.kind ? result.baseline.kind : null;
   const charging = kind ? result.baselines![kind].chargingKw : null;
   // A plan made from a cut-off (a yard report, a night planned again while under way) has the
@@ -475,10 +472,10 @@ function soFarOf(base: PeriodBase, depot: Depot, period: Period, nowMs: number):
     const kw = s.kwh * 4;
     if (kw > facility.kw + PEAK_EPSILON_KW)
       facility = { kw, at: new Date(s.startMs).toISOString(), source: SOURCE[s.source] };
-    const p = ratePlanPeriodAtMs(rate.definition, s.startMs, zone);
-    if (p.offPeak || p.demandCharge <= 0) continue;
-    if (kw > (periodPeaks.get(p.period)?.kw ?? 0) + PEAK_EPSILON_KW)
-      periodPeaks.set(p.period, { kw, at: new Date(s.startMs).toISOString() });
+    const period = demandPeriodAt(rate.definition, s.startMs, zone);
+    if (period === null) continue;
+    if (kw > (periodPeaks.get(period)?.kw ?? 0) + PEAK_EPSILON_KW)
+      periodPeaks.set(period, { kw, at: new Date(s.startMs).toISOString() });
   }
   if ((recordedPeaksKw?.facility ?? 0) > facility.kw)
     facility = { kw: recordedPeaksKw!.facility, at: null, source: 'entered' };
@@ -496,6 +493,12 @@ function soFarOf(base: PeriodBase, depot: Depot, period: Period, nowMs: number):
   return value;
 }
 
+/** The demand period that bills an instant's peak, by name; null off-peak or where it has no demand charge. */
+function demandPeriodAt(definition: RatePlanDefinition, ms: number, zone: string): string | null {
+  const p = ratePlanPeriodAtMs(definition, ms, zone);
+  return p.offPeak || p.demandCharge <= 0 ? null : p.period;
+}
+
 /** The series as of a moment: a forecast interval begun bills its energy but sets no peak. */
 const asOf = (series: SourcedInterval[], begun: number): SourcedInterval[] =>
   series.map((s, i) => (i < begun && s.source === 'forecast' ? { ...s, energyOnly: true } : s));
@@ -511,8 +514,8 @@ function underTarget(base: PeriodBase, depot: Depot, target: MonthTarget | null,
   const byName = new Map(target.view.targets.map((t) => [t.name, t.kw]));
   const facilityKw = byName.get('facility') ?? Infinity;
   const capKw = (t: number) => {
-    const p = ratePlanPeriodAtMs(base.rate.definition, t, depot.timezone);
-    const periodKw = p.offPeak || p.demandCharge <= 0 ? Infinity : (byName.get(p.period) ?? Infinity);
+    const period = demandPeriodAt(base.rate.definition, t, depot.timezone);
+    const periodKw = period === null ? Infinity : (byName.get(period) ?? Infinity);
     return Math.min(facilityKw, periodKw);
   };
   const slotOf = (t: number) => forecastSlot(depot, base.rate.definition, t);
@@ -774,8 +777,8 @@ async function monthTargetOf(
       const s = base.series[i]!;
       const kw = s.kwh * 4;
       floor.facility = Math.max(floor.facility, kw);
-      const p = ratePlanPeriodAtMs(base.rate.definition, s.startMs, depot.timezone);
-      if (!p.offPeak && p.demandCharge > 0) floor.periods[p.period] = Math.max(floor.periods[p.period] ?? 0, kw);
+      const period = demandPeriodAt(base.rate.definition, s.startMs, depot.timezone);
+      if (period !== null) floor.periods[period] = Math.max(floor.periods[period] ?? 0, kw);
     }
   }
   const stamp = `${version ?? ''}|${from}|${depot.serviceLimitKw}|${depot.otherLoadKw.join(',')}|${JSON.stringify(floor)}`;
