@@ -20,7 +20,12 @@ export type NightBaseline = BaselineCost & { chargingKw: number[] };
 export function nightBaselines(
   scenario: Scenario,
   cutMs: number,
-  events: { outOfService: readonly string[]; lateArrivals?: Record<string, string> },
+  events: {
+    outOfService: readonly string[];
+    lateArrivals?: Record<string, string>;
+    /** Per bus, what a reading at the cut-off found above (or below) the energy the plan expected. */
+    readingShiftKwh?: Record<string, number>;
+  },
   before: { kept: readonly PlanSession[]; buses: Plan['buses'] },
   plan: Pick<Plan, 'sessions' | 'buses'>,
 ): Record<BaselineKind, NightBaseline> {
@@ -33,7 +38,15 @@ export function nightBaselines(
         ? { ...c, outOfService: [...(c.outOfService ?? []), { from: cutText, to: scenario.end }] }
         : c,
     ),
-    buses: scenario.buses.map((b) => {
+    buses: scenario.buses.map((given) => {
+      // A bus read below what the plan expected needs that much more in the baseline too (else
+      // the plan delivers the difference and the baseline does not, and looks cheaper for it):
+      // the night starts that much lower (or higher), the difference being the same events'.
+      const shift = events.readingShiftKwh?.[given.id] ?? 0;
+      const b =
+        shift === 0
+          ? given
+          : { ...given, arrivalKwh: Math.min(given.usableKwh, Math.max(0, given.arrivalKwh + shift)) };
       const late = events.lateArrivals?.[b.id];
       if (late === undefined) return b;
       // The stay the bus is coming to: the first it leaves after the cut-off.

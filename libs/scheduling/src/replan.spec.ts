@@ -106,6 +106,32 @@ describe('replan', () => {
     for (const x of others) expect(Date.parse(x.start)).toBeGreaterThanOrEqual(Date.parse(first.end));
   });
 
+  it("a bus read below the energy the plan expected needs as much more in the night's baselines as in the plan", async () => {
+    const s = depot();
+    const before = await planOf(s);
+    const base = await replanOf(s, { now: '2026-01-14T23:00', previous: before });
+    // A bus at the depot at 23:00 that the plan charges after it, with room to need 10 kWh more.
+    const bus = base.replan.scenario.buses.find((b) => b.arrivalKwh > 15 && base.sessions.some((x) => x.bus === b.id))!;
+    expect(bus, 'a bus at the depot charged after 23:00').toBeDefined();
+    const read = await replanOf(s, {
+      now: '2026-01-14T23:00',
+      previous: before,
+      energyKwh: { [bus.id]: bus.arrivalKwh - 10 },
+    });
+    const departures = (r: Replan) => r.buses.find((b) => b.id === bus.id)!.departures.map((d) => d.kwh);
+    expect(departures(read)).toEqual(departures(base));
+    // The plan delivers the 10 kWh (as grid kWh, through the charger's efficiency) ...
+    const grid = (kw: number[]) => kw.reduce((a, v) => a + v * 0.25, 0);
+    const planned = (r: Replan) => r.sessions.reduce((a, x) => a + grid(x.kw), 0);
+    const more = planned(read) - planned(base);
+    expect(more).toBeCloseTo(10 / s.efficiency, 3);
+    // ... and so does charging on arrival over the whole night, which keeps up (before, it did not
+    // know the reading: it delivered the same as without one and looked 10 kWh cheaper).
+    const arrival = (r: Replan) => r.replan.night!.arrival;
+    expect(arrival(read).shortfallKwh).toBeLessThan(0.05);
+    expect(grid(arrival(read).chargingKw) - grid(arrival(base).chargingKw)).toBeCloseTo(more, 3);
+  });
+
   it('takes a bus the yard finds plugged in before its planned pull-in as back early: its stay starts now', async () => {
     const s = depot();
     const now = '2026-01-14T15:30';

@@ -94,7 +94,7 @@ const round = (v: number, digits = 6) => Math.round(v * 10 ** digits) / 10 ** di
 export async function replan(scenario: Scenario, state: ReplanState, options: PlanOptions = {}): Promise<Replan> {
   const solver = await loadSolver();
   const t0 = performance.now();
-  const { derived, outOfService, plugged, kept } = deriveScenario(scenario, state);
+  const { derived, outOfService, plugged, kept, readingShiftKwh } = deriveScenario(scenario, state);
   const problemOf = (s: Scenario, keepPrevious: boolean) =>
     replanProblem(scenario, s, state, outOfService, plugged, keepPrevious);
   const problem = problemOf(derived, true);
@@ -107,7 +107,7 @@ export async function replan(scenario: Scenario, state: ReplanState, options: Pl
     ? nightBaselines(
         scenario,
         problem.slots[0]!.startMs,
-        { outOfService, ...(state.lateArrivals ? { lateArrivals: state.lateArrivals } : {}) },
+        { outOfService, readingShiftKwh, ...(state.lateArrivals ? { lateArrivals: state.lateArrivals } : {}) },
         { kept, buses: state.previous.buses },
         plan,
       )
@@ -323,6 +323,8 @@ export function deriveScenario(scenario: Scenario, state: ReplanState) {
   derived.start = cutText;
   const dtH = scenario.slotMinutes / 60;
   const buses: Scenario['buses'] = [];
+  // A reading's difference from the energy the plan followed gives the bus at the cut-off.
+  const readingShiftKwh: Record<string, number> = {};
   scenario.buses.forEach((b) => {
     const stays: Scenario['buses'][number]['stays'] = [];
     // Energy at the cut from the scenario and the previous plan's frozen charging.
@@ -364,6 +366,7 @@ export function deriveScenario(scenario: Scenario, state: ReplanState) {
     }
     const given = state.energyKwh?.[b.id];
     const energy = Math.min(b.usableKwh, Math.max(0, given ?? e));
+    if (given !== undefined && Math.abs(energy - e) > 1e-9) readingShiftKwh[b.id] = energy - e;
     buses.push({ ...b, arrivalKwh: round(energy), stays });
   });
 
@@ -414,7 +417,7 @@ export function deriveScenario(scenario: Scenario, state: ReplanState) {
       parsed.problems.map((p) => ({ path: `(re-plan scenario) ${p.path}`, message: p.message })),
     );
   }
-  return { derived: parsed.scenario, outOfService, plugged, kept };
+  return { derived: parsed.scenario, outOfService, plugged, kept, readingShiftKwh };
 }
 
 /** Buses whose sessions from the cut-off on differ from the previous plan's, and why. */
