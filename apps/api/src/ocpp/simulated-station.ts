@@ -98,7 +98,10 @@ export class SimulatedStation {
         ? v16
           ? 'Charging'
           : 'Occupied'
-        : this.plugged
+        : // A bus on the connector: plugged in by a test, or waiting inside its session for cheaper
+          // hours (the demo's stations have no buses; without this they read Available while the
+          // yard had confirmed a bus plugged in).
+          this.plugged || this.profiles.pausedAt(new Date(timestamp))
           ? v16
             ? 'SuspendedEVSE'
             : 'Occupied'

@@ -111,4 +111,40 @@ describe("the simulated station's profiles", () => {
     expect(s.clear({ chargingProfilePurpose: 'TxDefaultProfile' })).toBe('Accepted');
     expect(s.profiles).toEqual([]);
   });
+  it('a session paused for cheaper hours reads as a bus waiting on the connector; before and after it, as none', () => {
+    const store = new ProfileStore('ocpp1.6');
+    // 5 kW for 15 min, none for 30, 5 kW again for 15, then the hour is over.
+    store.set({
+      ...held(1, 0, 0),
+      periods: [
+        { startPeriod: 0, limit: 5000 },
+        { startPeriod: 900, limit: 0 },
+        { startPeriod: 2700, limit: 5000 },
+      ],
+    });
+    expect(store.pausedAt(at(-5))).toBe(false); // not started
+    expect(store.limitW(at(20))).toBe(0);
+    expect(store.pausedAt(at(20))).toBe(true);
+    expect(store.pausedAt(at(44))).toBe(true);
+    expect(store.pausedAt(at(61))).toBe(false); // the schedule's hour is over
+    // Power only after, or only before: no bus yet, or gone.
+    const later = new ProfileStore('ocpp1.6');
+    later.set({
+      ...held(2, 0, 0),
+      periods: [
+        { startPeriod: 0, limit: 0 },
+        { startPeriod: 1800, limit: 5000 },
+      ],
+    });
+    expect(later.pausedAt(at(10))).toBe(false);
+    const earlier = new ProfileStore('ocpp1.6');
+    earlier.set({
+      ...held(3, 0, 0),
+      periods: [
+        { startPeriod: 0, limit: 5000 },
+        { startPeriod: 1800, limit: 0 },
+      ],
+    });
+    expect(earlier.pausedAt(at(40))).toBe(false);
+  });
 });

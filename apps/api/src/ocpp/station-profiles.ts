@@ -95,15 +95,35 @@ export class ProfileStore {
 
   /** The limit (W) at `at`: the highest stack level among the profiles valid and running then. */
   limitW(at: Date): number {
-    const t = at.getTime();
-    const running = this.held
-      .filter((h) => h.validFromMs <= t && t < h.validToMs && h.startMs <= t && t < h.startMs + h.durationS * 1000)
-      .sort((a, b) => b.stackLevel - a.stackLevel);
-    const top = running[0];
+    const top = this.running(at.getTime());
     if (!top) return 0;
-    const offset = (t - top.startMs) / 1000;
+    const offset = (at.getTime() - top.startMs) / 1000;
     let limit = 0;
     for (const p of top.periods) if (p.startPeriod <= offset) limit = p.limit;
     return limit;
+  }
+
+  /**
+   * Whether the profile in force at `at` gives power both before and after it (at `at` itself it
+   * may give none): inside a session paused for cheaper hours, where a bus waits on the connector.
+   */
+  pausedAt(at: Date): boolean {
+    const t = at.getTime();
+    const top = this.running(t);
+    if (!top) return false;
+    const offset = (t - top.startMs) / 1000;
+    const end = Math.min(top.durationS, (top.validToMs - top.startMs) / 1000);
+    const periods = top.periods.slice().sort((a, b) => a.startPeriod - b.startPeriod);
+    const before = periods.some((p) => p.startPeriod < offset && p.limit > 0);
+    const after = periods.some(
+      (p, i) => p.limit > 0 && (periods[i + 1]?.startPeriod ?? end) > offset && p.startPeriod < end,
+    );
+    return before && after;
+  }
+
+  private running(t: number): HeldProfile | undefined {
+    return this.held
+      .filter((h) => h.validFromMs <= t && t < h.validToMs && h.startMs <= t && t < h.startMs + h.durationS * 1000)
+      .sort((a, b) => b.stackLevel - a.stackLevel)[0];
   }
 }

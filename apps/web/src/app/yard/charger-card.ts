@@ -5,7 +5,7 @@ import { CONFIRM_EARLY_MS } from '@nightyard/contracts';
 import { NightTrack } from './night-track';
 import { OverdueStep, type ConfirmAt } from './overdue-step';
 import type { ReportPreset } from './report-dialog';
-import { clock, dueText, kwh, moveBy, relative, type Horizon, type StepView } from './yard-format';
+import { atOdds, clock, dueText, kwh, moveBy, relative, type Horizon, type StepView } from './yard-format';
 import type { ChargerView } from './yard-store';
 
 const STATE_TEXT = {
@@ -131,6 +131,10 @@ export class ChargerCard {
   });
 
   protected readonly live = computed(() => this.view().live);
+  /** The charger's report against the last step confirmed on it, where they disagree. */
+  protected readonly atOdds = computed(() =>
+    this.view().outOfService ? null : atOdds(this.view().steps, this.view().charger?.live, this.timezone()),
+  );
   protected readonly maxKw = computed(() => this.view().charger?.maxKw ?? null);
 
   protected reportFault(): void {

@@ -1,5 +1,6 @@
 import { at, step, tonight, ZONE } from './yard-fixtures';
 import {
+  atOdds,
   expectedAtFor,
   hourTicks,
   isNightAt,
@@ -189,6 +190,38 @@ describe('yard format', () => {
     expect(revisionNotice({ ...again, moved: { buses: [], reasons: [], againstVersion: 1 } }, ZONE)).toContain(
       'Against version 1: no bus changes charger or times.',
     );
+  });
+
+  it("says where a charger's own report disagrees with the step confirmed on it, once it has had time to catch up", () => {
+    const c1 = stepViews(tonight().steps, now, ZONE).filter((v) => v.step.charger === 'C1');
+    // 201 confirmed plugged in at 21:02.
+    expect(atOdds(c1, { status: 'available', seenAt: at('21:30') }, ZONE)).toBe(
+      'Charger C1 reports nothing plugged in (at 21:30), but bus 201 was confirmed plugged in at 21:02. ' +
+        'Check that the connector is seated and that the bus is on this charger; if it still does not take a charge, report it.',
+    );
+    // Agreeing, reported before the confirmation, or within the charger's two minutes to catch up: nothing to say.
+    expect(atOdds(c1, { status: 'connected', seenAt: at('21:30') }, ZONE)).toBeNull();
+    expect(atOdds(c1, { status: 'charging', seenAt: at('21:30') }, ZONE)).toBeNull();
+    expect(atOdds(c1, { status: 'available', seenAt: at('20:55') }, ZONE)).toBeNull();
+    expect(atOdds(c1, { status: 'available', seenAt: at('21:03') }, ZONE)).toBeNull();
+    expect(atOdds(c1, { status: 'available', seenAt: null }, ZONE)).toBeNull();
+    expect(atOdds(c1, null, ZONE)).toBeNull();
+    // The last confirmation counts: 201 unplugged at 23:01, yet the charger draws power at 23:10
+    // with 202's plug-in not due before 23:30.
+    const later = tonight().steps.map((s) =>
+      s.action === 'disconnect' && s.bus === '201'
+        ? { ...s, status: 'done' as const, confirmedAt: at('23:01'), confirmedBy: 'Kofi Brandt' }
+        : s,
+    );
+    const after = stepViews(later, Date.parse(at('23:10')), ZONE).filter((v) => v.step.charger === 'C1');
+    expect(atOdds(after, { status: 'charging', seenAt: at('23:10') }, ZONE)).toBe(
+      'Charger C1 is charging a bus (at 23:10), but bus 201 was confirmed unplugged at 23:01 and no plug-in is due on it yet. Check which bus is on this charger.',
+    );
+    // Plugged in and not drawing (a station between two sessions may say so), or 202's plug-in
+    // due and not confirmed (an overdue step says it): nothing more.
+    expect(atOdds(after, { status: 'connected', seenAt: at('23:10') }, ZONE)).toBeNull();
+    expect(atOdds(after, { status: 'charging', seenAt: at('23:31') }, ZONE)).toBeNull();
+    expect(atOdds(after, { status: 'available', seenAt: at('23:10') }, ZONE)).toBeNull();
   });
 
   it('tells a charger with a bus plugged in and not drawing from an available one', () => {

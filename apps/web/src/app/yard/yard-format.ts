@@ -266,6 +266,51 @@ export function liveView(
   }
 }
 
+/** A charger's report this long after a confirmation, still at odds with it, is worth a look. */
+export const AT_ODDS_AFTER_MS = 2 * 60_000;
+
+/**
+ * Where the charger's own report disagrees with the last step the yard confirmed on it: nothing
+ * plugged in after a bus was confirmed plugged in (a connector not seated, or the bus on another
+ * charger), or power drawn after the last bus was confirmed unplugged. Only a report made after the
+ * confirmation counts (with `AT_ODDS_AFTER_MS` for the charger to catch up); null where they agree
+ * or nothing tells. A charger reporting a bus plugged in but not drawing after an unplug is left
+ * alone: a station between two sessions of its night's profile may say so (the demo's do).
+ */
+export function atOdds(
+  steps: readonly StepView[],
+  live: Pick<NonNullable<Charger['live']>, 'status' | 'seenAt'> | null | undefined,
+  timeZone: string,
+): string | null {
+  if (!live?.seenAt) return null;
+  const last = steps
+    .filter((s) => s.step.status === 'done' && s.step.confirmedAt)
+    .reduce<StepView | null>(
+      (a, s) => (!a || Date.parse(s.step.confirmedAt!) >= Date.parse(a.step.confirmedAt!) ? s : a),
+      null,
+    );
+  if (!last || Date.parse(live.seenAt) - Date.parse(last.step.confirmedAt!) < AT_ODDS_AFTER_MS) return null;
+  const { bus, charger, action } = last.step;
+  const seen = clock(live.seenAt, timeZone);
+  const confirmed = clock(last.step.confirmedAt!, timeZone);
+  if (action === 'connect' && live.status === 'available')
+    return (
+      `Charger ${charger} reports nothing plugged in (at ${seen}), but bus ${bus} was confirmed plugged in at ${confirmed}. ` +
+      'Check that the connector is seated and that the bus is on this charger; if it still does not take a charge, report it.'
+    );
+  // Drawing power after the last bus was unplugged, with no plug-in due yet: a bus nobody
+  // confirmed is on it (a plug-in due and not confirmed is already an overdue step).
+  const plugInDue = steps.some(
+    (s) => s.step.action === 'connect' && s.step.status !== 'done' && Date.parse(s.step.at) <= Date.parse(live.seenAt!),
+  );
+  if (action === 'disconnect' && live.status === 'charging' && !plugInDue)
+    return (
+      `Charger ${charger} is charging a bus (at ${seen}), but bus ${bus} was confirmed unplugged at ${confirmed} ` +
+      'and no plug-in is due on it yet. Check which bus is on this charger.'
+    );
+  return null;
+}
+
 // ---------------------------------------------------------------------------------------------
 // Revisions
 
