@@ -65,6 +65,21 @@ describe('YardPage', () => {
     document.documentElement.style.colorScheme = '';
   });
 
+  it("says on a charger's card where its own report disagrees with the plug-in confirmed on it", async () => {
+    // 201 confirmed plugged in at 21:02; C1 reported nothing plugged in at 22:29 (the fixture's live state).
+    await start(tonight(), [
+      charger('C1'),
+      charger('C2', { live: { status: 'connected', powerKw: 0, seenAt: at('22:29') } }),
+      charger('C3'),
+    ]);
+    const odds = card('C1').querySelector('.at-odds');
+    expect(odds?.getAttribute('role')).toBe('status');
+    expect(text(odds)).toContain(
+      'Charger C1 reports nothing plugged in (at 22:29), but bus 201 was confirmed plugged in at 21:02.',
+    );
+    expect(card('C2').querySelector('.at-odds')).toBeNull();
+  });
+
   it("shows each charger's step due now or next in big type, overdue ones apart, done ones greyed", async () => {
     await start();
     expect(text(el.querySelector('h1'))).toBe('Yard');
