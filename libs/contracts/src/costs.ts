@@ -220,6 +220,12 @@ export const monthCostsSchema = z.object({
       actualPeakKw: z.number().nullable(),
       /** Share of the night's intervals with metered data (0-1). */
       actualCoverage: z.number(),
+      /**
+       * A night across a billing period's edge: every figure of the row is this period's part of it
+       * (`end`: the night runs on into the next period; `start`: it began in the one before). Null:
+       * the whole night is in this period.
+       */
+      periodPart: z.enum(['start', 'end']).nullable().default(null),
     }),
   ),
   sources: z.object({

@@ -374,6 +374,13 @@ async function periodBase(db: Db, depot: Depot, period: Period): Promise<PeriodB
       projectedPeakKw: round2(projectedPeak),
       actualPeakKw: covered ? round2(actualPeak) : null,
       actualCoverage: inPeriod ? covered / inPeriod : 0,
+      // Billed by interval: its plan, baseline and saving here are this period's part only.
+      periodPart:
+        Date.parse(result.slots[0]!.start) < fromMs
+          ? 'start'
+          : Date.parse(result.slots.at(-1)!.start) >= toMs
+            ? 'end'
+            : null,
     });
   }
 

@@ -167,4 +167,41 @@ describe('costs', () => {
       .expect(404);
     await app.request().get(`/api/plans/${planId}/costs`).set(as(outsider)).expect(404);
   });
+
+  it("a night across the billing period's edge: each period has its part, plan and baseline alike, and the parts add up to the night", async () => {
+    for (const date of ['2026-12-31', '2027-01-01'])
+      await app
+        .request()
+        .put(`/api/depots/${depotId}/service-days/${date}`)
+        .set(as(sup))
+        .send({ forecastLowF: 30, runs: dayRuns(date, NUMBERS, () => 35) })
+        .expect(200);
+    // Last in this file: the clock moves on to January and stays there.
+    now = new Date('2026-12-31T12:00:00-06:00');
+    await signInAgain(app, sup);
+    const id = await publishedPlan(app, sup, depotId, '2026-12-31');
+    now = new Date('2027-01-02T12:00:00-06:00');
+    await signInAgain(app, fin, sup);
+    const night = await app.request().get(`/api/plans/${id}/costs`).set(as(fin)).expect(200);
+    const rowOf = async (date: string) =>
+      (
+        await app.request().get(`/api/depots/${depotId}/costs/month`).query({ date }).set(as(fin)).expect(200)
+      ).body.nights.find((n: { planId: string }) => n.planId === id);
+    const dec = await rowOf('2026-12-10');
+    const jan = await rowOf('2027-01-10');
+    expect([dec.periodPart, jan.periodPart]).toEqual(['end', 'start']);
+    expect(dec.planEnergyCost + jan.planEnergyCost).toBeCloseTo(night.body.energy, 6);
+    const baselineEnergy = night.body.baseline.total - night.body.baseline.demand;
+    expect(dec.baselineEnergyCost + jan.baselineEnergyCost).toBeCloseTo(baselineEnergy, 4);
+    // A night wholly inside its period is not marked.
+    const whole = (
+      await app
+        .request()
+        .get(`/api/depots/${depotId}/costs/month`)
+        .query({ date: '2026-12-10' })
+        .set(as(fin))
+        .expect(200)
+    ).body.nights.find((n: { planId: string }) => n.planId === planId);
+    expect(whole.periodPart).toBeNull();
+  });
 });

@@ -65,6 +65,7 @@ export function monthCosts(overrides: Partial<MonthCosts> = {}): MonthCosts {
         projectedPeakKw: 160,
         actualPeakKw: 171.2,
         actualCoverage: 1,
+        periodPart: null,
       },
       {
         date: '2026-12-02',
@@ -80,6 +81,7 @@ export function monthCosts(overrides: Partial<MonthCosts> = {}): MonthCosts {
         projectedPeakKw: 150,
         actualPeakKw: null,
         actualCoverage: 0,
+        periodPart: null,
       },
     ],
     sources: { actualIntervals: 96, plannedNights: 2, forecastNights: 0, schoolNightsWithoutPlan: 3 },

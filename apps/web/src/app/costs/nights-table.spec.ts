@@ -35,4 +35,21 @@ describe('NightsTable', () => {
     expect(savingCell(el.querySelector('tfoot tr')).className).toContain('over');
     expect(savingCell(el.querySelector('tfoot tr')).className).not.toContain('saving');
   });
+
+  it("marks a night across the billing period's edge as this period's part of it, on screen and in the CSV", async () => {
+    TestBed.configureTestingModule({ providers: [provideRouter([])] });
+    const base = monthCosts();
+    const nights = [base.nights[0]!, { ...base.nights[1]!, periodPart: 'end' as const }];
+    const fixture = TestBed.createComponent(NightsTable);
+    fixture.componentRef.setInput('month', monthCosts({ nights }));
+    await fixture.whenStable();
+    fixture.detectChanges();
+    const el = fixture.nativeElement as HTMLElement;
+    const rows = [...el.querySelectorAll('tbody tr th')].map((r) => r.textContent?.replace(/\s+/g, ' ') ?? '');
+    expect(rows[0]).not.toContain('billing period');
+    expect(rows[1]).toContain('to the end of this billing period; the rest of the night is in the next');
+    const csv = (fixture.componentInstance as unknown as { csv: () => { header: string[]; rows: unknown[][] } }).csv();
+    expect(csv.header.at(-1)).toBe('Part of the night in this period');
+    expect(csv.rows.map((r) => r.at(-1))).toEqual(['whole night', "to the period's end"]);
+  });
 });

@@ -70,6 +70,13 @@ export class NightsTable {
         date: n.date,
         day: shortDay(n.date),
         version: n.version,
+        // Billed by interval: a night across the period's edge is split there, plan and baseline alike.
+        part:
+          n.periodPart === 'end'
+            ? 'to the end of this billing period; the rest of the night is in the next'
+            : n.periodPart === 'start'
+              ? 'from the start of this billing period; the night began in the one before'
+              : null,
         planEnergy: money(shown.plan[i]!, c),
         baselineEnergy: shown.baseline[i] === null ? null : money(shown.baseline[i]!, c),
         baselineName: n.baselineKind ? baselineName(n.baselineKind).toLowerCase() : null,
@@ -119,6 +126,7 @@ export class NightsTable {
         'Baseline peak (kW)',
         'Metered peak (kW)',
         'Metered share of the night (%)',
+        'Part of the night in this period',
       ],
       rows: this.month().nights.map((n, i) => [
         n.date,
@@ -134,6 +142,11 @@ export class NightsTable {
         n.baselinePeakKw,
         n.actualPeakKw,
         Math.round(n.actualCoverage * 1000) / 10,
+        n.periodPart === 'end'
+          ? "to the period's end"
+          : n.periodPart === 'start'
+            ? "from the period's start"
+            : 'whole night',
       ]),
     };
   });
