@@ -68,6 +68,26 @@ describe('replan', () => {
     expect(r.cost.total).toBeGreaterThanOrEqual(r.lowerBound - 1e-6);
   });
 
+  it('a charger reported out inside a slot: the bus planned on it to the end of that slot is unplugged now, and counted as moved', async () => {
+    const s = depot();
+    const before = await planOf(s);
+    // A session of at least 30 min reported out 10 min before it ends: from the cut-off (its end)
+    // its plan is unchanged, but the yard unplugs it now.
+    const ending = before.sessions.find((x) => Date.parse(x.end) - Date.parse(x.start) >= 1_800_000)!;
+    const reportMs = Date.parse(ending.end) - 600_000;
+    const now = new Date(reportMs - 6 * 3_600_000).toISOString().slice(0, 16); // America/Chicago, January
+    const r = await replanOf(s, { now, previous: before, outOfService: [ending.charger] });
+    expect(r.slots[0]!.start).toBe(ending.end);
+    expect(r.replan.moved.buses).toContain(ending.bus);
+    const on = new Set(
+      before.sessions.filter((x) => x.charger === ending.charger && Date.parse(x.end) > reportMs).map((x) => x.bus),
+    );
+    expect(r.replan.moved.reasons[0]).toBe(
+      `charger ${ending.charger} out of service: ${on.size} ${on.size === 1 ? 'bus was' : 'buses were'} planned on it`,
+    );
+    for (const b of on) expect(r.replan.moved.buses).toContain(b);
+  });
+
   it("moves a late bus's sessions after its new arrival time", async () => {
     const s = depot();
     const before = await planOf(s);

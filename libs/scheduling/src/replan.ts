@@ -430,10 +430,18 @@ function movedBuses(
   currency: string,
 ) {
   const cutMs = problem.slots[0]!.startMs;
-  const buses = changedBuses(problem, previous, plan);
+  // A charger is out from the report, not from the cut-off: a bus planned on it until the end of
+  // the slot the report falls in is unplugged now, though its plan from the cut-off is unchanged
+  // (the Yard, Compare and the e-mail counted it; the review did not).
+  const reportMs = Math.min(cutMs, localToMillis(state.now, problem.zone) ?? cutMs);
+  const onOut = (c: string) =>
+    new Set(previous.sessions.filter((s) => s.charger === c && Date.parse(s.end) > reportMs).map((s) => s.bus));
+  const buses = [...new Set([...changedBuses(problem, previous, plan), ...outOfService.flatMap((c) => [...onOut(c)])])]
+    .filter((b) => problem.buses.some((x) => x.id === b))
+    .sort();
   const reasons: string[] = [];
   for (const c of outOfService) {
-    const on = new Set(previous.sessions.filter((s) => s.charger === c && Date.parse(s.end) > cutMs).map((s) => s.bus));
+    const on = onOut(c);
     reasons.push(`charger ${c} out of service: ${on.size} ${on.size === 1 ? 'bus was' : 'buses were'} planned on it`);
   }
   const late = Object.keys(state.lateArrivals ?? {});
@@ -442,8 +450,7 @@ function movedBuses(
   if (reported.length)
     reasons.push(`battery levels reported for ${reported.length} ${reported.length === 1 ? 'bus' : 'buses'}`);
   const forced = new Set<string>();
-  for (const c of outOfService)
-    for (const s of previous.sessions) if (s.charger === c && Date.parse(s.end) > cutMs) forced.add(s.bus);
+  for (const c of outOfService) for (const b of onOut(c)) forced.add(b);
   for (const b of late) forced.add(b);
   const others = buses.filter((b) => !forced.has(b)).length;
   if (others > 0 && plan.keptPrevious)
