@@ -89,7 +89,10 @@ export function mergeReplan(previous: PlanResult | null, next: Replan, scenario:
     };
   const firstNew = Date.parse(next.replan.from);
   const newLoad = new Map(next.slots.map((s) => [Date.parse(s.start), s.loadKw]));
-  const sessions = mergeSessions(keptAsBefore(previous, next.replan.kept as PlanResult['sessions']), next.sessions);
+  const sessions = mergeSessions(
+    keptAsBefore(previous, next.replan.kept as PlanResult['sessions']),
+    pluggedAsFollowed(previous, next.sessions, next.replan.plugged, firstNew),
+  );
   // Before the cut-off the load is what was drawn: a late bus's sessions there never happened.
   const was = chargingBySlot(previous.sessions);
   const kept = chargingBySlot(sessions);
@@ -113,6 +116,28 @@ export function mergeReplan(previous: PlanResult | null, next: Replan, scenario:
     replan: replanFacts(next),
   };
   return wholeNightFigures(merged, scenario, next.replan.scenario, firstNew, next.replan.night, previous.baseline.kind);
+}
+
+/**
+ * A bus the yard already plugged in where the plan followed has its plug-in at the cut-off or
+ * after (confirmed early): the re-plan starts it on its charger with no move of its own, which the
+ * engine marks as nobody's (a driver's), and with no session before the cut-off to join, the run
+ * sheet said "Driver, on pulling in" for a plug-in the crew made. It keeps the plan followed's.
+ */
+function pluggedAsFollowed(
+  previous: PlanResult,
+  next: PlanResult['sessions'],
+  plugged: Record<string, string>,
+  firstNew: number,
+): PlanResult['sessions'] {
+  return next.map((s) => {
+    if (plugged[s.bus] !== s.charger || Date.parse(s.start) !== firstNew) return s;
+    const was = previous.sessions.find(
+      (p) => p.bus === s.bus && p.charger === s.charger && Date.parse(p.end) > firstNew,
+    );
+    const startMove = was?.startMove ?? 'crew';
+    return startMove === s.startMove ? s : { ...s, startMove };
+  });
 }
 
 /** Out-of-service spans with those of one charger that meet (the cut-off's two sides) made one. */

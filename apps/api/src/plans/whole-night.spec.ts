@@ -2,6 +2,7 @@ import { describe, expect, it } from 'vitest';
 import type { PlanResult } from '@nightyard/contracts';
 import { parseScenario, planScenario, replan, type Plan, type Scenario } from '@nightyard/scheduling';
 import { generateDepot } from '../../../../libs/scheduling/src/testing/generate-depot';
+import { testYard } from '../../../../libs/scheduling/src/testing/crew-yard';
 import { mergeReplan } from './night-in-progress';
 
 // A revision's cost is the whole night's, as the utility bills it: the charging before the cut-off
@@ -141,5 +142,25 @@ describe("a revision's figures are the whole night's", () => {
     expect(whole.baselines!.arrival.chargingKw).toEqual(next.baselines.arrival.chargingKw);
     expect(whole.cost.energy).toBeCloseTo(energyOf(whole), 4);
     expect(whole.cost.demand).toBeCloseTo(demandOf(whole, s), 3);
+  });
+
+  it("a bus the yard plugged in early keeps the plug-in as the plan followed had it: the crew's, not a driver's", async () => {
+    const parsed = parseScenario({ ...generateDepot({ buses: 12, seed: 3 }), yard: testYard() });
+    if (!parsed.ok) throw new Error(JSON.stringify(parsed.problems));
+    const s = parsed.scenario;
+    const v1 = (await planScenario(s, options)) as Plan;
+    // A crew plug-in at a slot boundary, confirmed 5 minutes before its time.
+    const plugIn = v1.sessions.find(
+      (x) => x.startMove === 'crew' && Date.parse(x.start) > Date.parse('2026-01-14T19:00:00-06:00'),
+    )!;
+    expect(plugIn, 'a crew plug-in in the evening').toBeDefined();
+    const now = new Date(Date.parse(plugIn.start) - 300_000 - 6 * 3_600_000).toISOString().slice(0, 16);
+    const next = await replan(s, { now, previous: v1, plugged: { [plugIn.bus]: plugIn.charger } }, options);
+    const on = (sessions: PlanResult['sessions']) =>
+      sessions.find((x) => x.bus === plugIn.bus && Date.parse(x.start) === Date.parse(plugIn.start))!;
+    // The engine has no move for it (it is on its charger already) and marks it nobody's.
+    expect(on(next.sessions).startMove).toBe('driver');
+    const whole = mergeReplan(v1 as PlanResult, next, s);
+    expect(on(whole.sessions)).toMatchObject({ charger: plugIn.charger, startMove: 'crew' });
   });
 });

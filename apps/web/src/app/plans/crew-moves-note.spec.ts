@@ -28,6 +28,18 @@ describe('crew moves note', () => {
     );
   });
 
+  it("counts a revision's crew moves over the whole night, as its drivers' and the run sheet's", () => {
+    // The engine's 1 is the re-plan's, from the cut-off on; the night has 3 crew moves.
+    const r = {
+      sessions: [session('crew', 'crew'), session('crew', 'driver')],
+      crewMoves: 1,
+      replan: { moved: { buses: [], reasons: [] } },
+    } as unknown as PlanResult;
+    expect(crewMovesLines(r, 'USD')[0]).toBe('3 crew moves; 1 plug-in or unplug by a driver on pulling in or out.');
+    // A fresh plan's count is the engine's.
+    expect(crewMovesLines({ ...r, replan: undefined } as PlanResult, 'USD')[0]).toMatch(/^1 crew move;/);
+  });
+
   it('says what keeping the rest of the night costs in a re-plan that kept it', () => {
     const r = {
       sessions: [],

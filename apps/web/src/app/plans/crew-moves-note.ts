@@ -38,11 +38,15 @@ export class CrewMovesNote {
 export function crewMovesLines(r: PlanResult, currency: string): string[] {
   const out: string[] = [];
   if (typeof r.crewMoves === 'number') {
-    const drivers =
-      r.sessions.filter((s) => s.startMove === 'driver').length +
-      r.sessions.filter((s) => s.endMove === 'driver').length;
+    const by = (who: 'driver' | 'crew') =>
+      r.sessions.filter((s) => s.startMove === who).length + r.sessions.filter((s) => s.endMove === who).length;
+    const drivers = by('driver');
+    // A plan made from a cut-off holds the whole night's sessions, but the engine counted the crew's
+    // moves from the cut-off on only ("6 crew moves; 23 by drivers" beside 25 crew steps on the run
+    // sheet): both counts are the night's, from its sessions.
+    const crew = r.replan ? by('crew') : r.crewMoves;
     out.push(
-      `${r.crewMoves} crew ${r.crewMoves === 1 ? 'move' : 'moves'}; ${drivers} plug-ins and unplugs by drivers on pulling in or out.`,
+      `${crew} crew ${crew === 1 ? 'move' : 'moves'}; ${drivers === 1 ? '1 plug-in or unplug by a driver' : `${drivers} plug-ins and unplugs by drivers`} on pulling in or out.`,
     );
   }
   if (r.crewTrade && r.crewTrade.fewerMoves > 0) {
