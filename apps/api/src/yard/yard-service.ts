@@ -532,7 +532,9 @@ export async function replanAndPublish(
       if (stay && at.toMillis() >= localToMillis(stay.depart, zone)!)
         throw new DomainError(
           'validation_failed',
-          `Bus ${report.bus} pulls out at ${stay.depart.slice(11)}: give a time before then (after midnight means tomorrow morning)`,
+          `Bus ${report.bus} pulls out at ${stay.depart.slice(11)}: give a time before then` +
+            // The hint helps in the evening only: past midnight the morning is today's.
+            (DateTime.fromJSDate(cutAt, { zone }).hour >= 12 ? ' (after midnight means tomorrow morning)' : ''),
           { expectedAt: `Before its ${stay.depart.slice(11)} pull-out` },
         );
       state.lateArrivals[report.bus] = report.expectedAt;

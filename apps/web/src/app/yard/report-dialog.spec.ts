@@ -108,6 +108,18 @@ describe('ReportDialog', () => {
     expect(el.textContent).toContain('3 people were told by e-mail');
   });
 
+  it('past midnight, a late bus time earlier than now has passed: not tomorrow', async () => {
+    await open({ kind: 'bus_late', bus: '203' }, { now: Date.parse(at('05:05')) });
+    expect(el.textContent).toContain('Depot time, later than now');
+    form().controls.expectedTime.setValue('04:00');
+    await render();
+    expect(el.textContent).toContain('04:00 has passed: give a time later than now');
+    expect(el.textContent).not.toContain('Tomorrow');
+    form().controls.expectedTime.setValue('05:40');
+    await render();
+    expect(el.textContent).toContain('Today, 05:40 at the depot');
+  });
+
   it("sends a late bus with its new local time and shows the API's field messages", async () => {
     await open({ kind: 'bus_late', bus: '203' });
     form().controls.expectedTime.setValue('01:10');

@@ -24,7 +24,7 @@ import { applyFieldErrors, toApiProblem } from '../core/api-error';
 import { CLOCK_TIME } from '@nightyard/contracts/depot-time';
 import { ClockTimeInput, clockTimeValidator } from '../shared/clock-time-input';
 import { YardApi, type YardReportRequest } from './yard-api';
-import { day, clock, expectedAtFor } from './yard-format';
+import { day, clock, expectedAtFor, pastMidnight } from './yard-format';
 import { movedLines } from './yard-store';
 
 export type ReportKind = YardReportRequest['kind'];
@@ -156,8 +156,12 @@ export class ReportDialog {
   /** "Tue 1 Dec 23:40 at the depot" under the time field. */
   protected readonly expectedHint = computed(() => {
     const time = this.expectedTime();
-    if (!time || !CLOCK_TIME.test(time)) return 'Depot time; after midnight means tomorrow morning';
+    const morning = pastMidnight(this.data.now, this.data.timezone);
+    if (!time || !CLOCK_TIME.test(time))
+      return morning ? 'Depot time, later than now' : 'Depot time; after midnight means tomorrow morning';
     const at = expectedAtFor(time, this.data.now, this.data.timezone);
+    if (morning && time <= clock(new Date(this.data.now).toISOString(), this.data.timezone))
+      return `${time} has passed: give a time later than now`;
     const [date] = at.split('T');
     const sameDay = date === expectedAtFor('23:59', this.data.now, this.data.timezone).split('T')[0];
     return `${sameDay ? 'Today' : 'Tomorrow'}, ${time} at the depot`;

@@ -136,6 +136,10 @@ describe('yard format', () => {
     expect(expectedAtFor('23:40', now, ZONE)).toBe('2026-12-01T23:40');
     expect(expectedAtFor('01:15', now, ZONE)).toBe('2026-12-02T01:15');
     expect(expectedAtFor('22:30', now, ZONE)).toBe('2026-12-02T22:30');
+    // Past midnight an earlier time is today's, passed (the server refuses it), not tomorrow's.
+    const morning = Date.parse(at('05:05')); // Wednesday morning
+    expect(expectedAtFor('04:00', morning, ZONE)).toBe('2026-12-02T04:00');
+    expect(expectedAtFor('06:10', morning, ZONE)).toBe('2026-12-02T06:10');
   });
 
   it("is night while the server's night (tonight's plan) is under way, not by the clock on the wall", () => {
