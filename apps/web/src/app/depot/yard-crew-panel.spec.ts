@@ -60,4 +60,29 @@ describe('YardCrewPanel', () => {
     req.flush({ yardCrew: req.request.body });
     await refresh();
   });
+
+  it('says a shift that ends when it starts, and moves below 1, in words before saving', async () => {
+    button('Edit yard crew').click();
+    await refresh();
+    const set = async (label: string, value: string) => {
+      const f = field(label);
+      f.value = value;
+      f.dispatchEvent(new Event('input'));
+      f.dispatchEvent(new Event('blur'));
+      await refresh();
+    };
+    await set('Shift 2 to', '04:30');
+    await set('Shift 2 crew moves per 15 minutes', '0');
+    button('Save yard crew').click();
+    await refresh();
+    mock.expectNone(`/api/depots/${DEPOT_ID}/yard-crew`);
+    const text = el.textContent!.replace(/\s+/g, ' ');
+    expect(text).toContain('A shift must end at another time than it starts');
+    expect(text).toContain('At least 1 move');
+    expect(text).not.toContain('Too small');
+    expect(text).toContain('Check the fields marked in red.');
+    // Put right, the message goes.
+    await set('Shift 2 to', '07:00');
+    expect(el.textContent).not.toContain('A shift must end at another time than it starts');
+  });
 });

@@ -1,5 +1,5 @@
 import { ChangeDetectionStrategy, Component, computed, inject, input, output, signal } from '@angular/core';
-import { FormArray, FormControl, FormGroup, ReactiveFormsModule } from '@angular/forms';
+import { FormArray, FormControl, FormGroup, ReactiveFormsModule, type ValidatorFn } from '@angular/forms';
 import { MatButtonModule } from '@angular/material/button';
 import { MatCheckboxModule } from '@angular/material/checkbox';
 import { MatFormFieldModule } from '@angular/material/form-field';
@@ -7,7 +7,13 @@ import { MatIconModule } from '@angular/material/icon';
 import { MatInputModule } from '@angular/material/input';
 import { MatProgressBarModule } from '@angular/material/progress-bar';
 import { MatSnackBar } from '@angular/material/snack-bar';
-import { DEFAULT_YARD_CREW, yardCrewSchema, type CrewShift, type YardCrew } from '@nightyard/contracts';
+import {
+  crewShiftSchema,
+  DEFAULT_YARD_CREW,
+  yardCrewSchema,
+  type CrewShift,
+  type YardCrew,
+} from '@nightyard/contracts';
 import { z } from 'zod';
 import { toApiProblem } from '../core/api-error';
 import { applyServerErrors, errorText, zodValidator } from '../shared/form-paths';
@@ -16,20 +22,37 @@ import { DepotApi } from './depot-api';
 import { trackUnsaved } from '../core/unsaved-edits';
 
 const clockText = z.string().regex(/^([01]\d|2[0-3]):[0-5]\d$/);
-const moves = z.number().int().min(1).max(50);
+// The contract's own messages ("At least 1 move"), not zod's ("Too small: expected number to be >=1").
+const moves = crewShiftSchema.shape.movesPerSlot;
+
+/** A shift that ends when it starts is refused by the contract: said on its "to" before saving. */
+const endsAfterStart: ValidatorFn = (group) => {
+  const from = group.get('from');
+  const to = group.get('to');
+  if (!from || !to) return null;
+  const same = !!from.value && from.value === to.value;
+  const errors = { ...(to.errors ?? {}) };
+  if (same) errors['zod'] = 'A shift must end at another time than it starts';
+  else if (errors['zod'] === 'A shift must end at another time than it starts') delete errors['zod'];
+  to.setErrors(Object.keys(errors).length ? errors : null);
+  return null;
+};
 
 function shiftGroup(s: CrewShift | null) {
-  return new FormGroup({
-    from: new FormControl(s?.from ?? '', {
-      nonNullable: true,
-      validators: zodValidator(clockText, 'Write the time as HH:mm'),
-    }),
-    to: new FormControl(s?.to ?? '', {
-      nonNullable: true,
-      validators: zodValidator(clockText, 'Write the time as HH:mm'),
-    }),
-    movesPerSlot: new FormControl<number | null>(s?.movesPerSlot ?? 2, zodValidator(moves, 'Enter 1 to 50 moves')),
-  });
+  return new FormGroup(
+    {
+      from: new FormControl(s?.from ?? '', {
+        nonNullable: true,
+        validators: zodValidator(clockText, 'Write the time as HH:mm'),
+      }),
+      to: new FormControl(s?.to ?? '', {
+        nonNullable: true,
+        validators: zodValidator(clockText, 'Write the time as HH:mm'),
+      }),
+      movesPerSlot: new FormControl<number | null>(s?.movesPerSlot ?? 2, zodValidator(moves, 'Enter 1 to 50 moves')),
+    },
+    { validators: endsAfterStart },
+  );
 }
 
 function crewForm(c: YardCrew) {
@@ -82,8 +105,8 @@ type CrewForm = ReturnType<typeof crewForm>;
       </p>
       @if (form(); as f) {
         <form [formGroup]="f" (ngSubmit)="save(f)" novalidate class="ny-dense">
-          <div class="form-grid">
-            <mat-form-field appearance="outline">
+          <div class="form-grid crew-grid">
+            <mat-form-field appearance="outline" subscriptSizing="dynamic">
               <mat-label>Minimum plug-in</mat-label>
               <input matInput type="number" min="0" max="240" step="5" formControlName="minPlugInMinutes" />
               <span matTextSuffix>min</span>
@@ -97,13 +120,13 @@ type CrewForm = ReturnType<typeof crewForm>;
           <fieldset>
             <legend>Crew shifts (every day)</legend>
             @for (g of f.controls.shifts.controls; track g; let i = $index) {
-              <div class="form-grid" [formGroup]="g">
+              <div class="form-grid crew-grid" [formGroup]="g">
                 <mat-form-field appearance="outline">
                   <mat-label>Shift {{ i + 1 }} from</mat-label>
                   <input matInput formControlName="from" placeholder="15:00" autocomplete="off" />
                   <mat-error>{{ error(g.controls.from) }}</mat-error>
                 </mat-form-field>
-                <mat-form-field appearance="outline">
+                <mat-form-field appearance="outline" subscriptSizing="dynamic">
                   <mat-label>Shift {{ i + 1 }} to</mat-label>
                   <input matInput formControlName="to" placeholder="23:30" autocomplete="off" />
                   <mat-hint>Before "from": past midnight</mat-hint>
@@ -146,8 +169,9 @@ type CrewForm = ReturnType<typeof crewForm>;
                 <mat-error>{{ error(f.controls.costTolerancePercent) }}</mat-error>
               </mat-form-field>
               <mat-form-field appearance="outline">
-                <mat-label>Cost tolerance, amount a night ({{ currency() ?? "rate plan's currency" }})</mat-label>
+                <mat-label>Cost tolerance, amount a night</mat-label>
                 <input matInput type="number" min="0" max="1000" step="1" formControlName="costToleranceAmount" />
+                <span matTextSuffix>{{ currency() ?? "in the rate plan's currency" }}</span>
                 <mat-error>{{ error(f.controls.costToleranceAmount) }}</mat-error>
               </mat-form-field>
             </div>
@@ -193,6 +217,14 @@ type CrewForm = ReturnType<typeof crewForm>;
     </section>
   `,
   styleUrls: ['../shared/panel.scss'],
+  // Hints that wrap take their own lines (subscriptSizing="dynamic"): the rows and the fields
+  // stacked on a phone keep room between them for the next field's floating label.
+  styles: `
+    .crew-grid {
+      row-gap: 12px;
+      margin-bottom: 12px;
+    }
+  `,
   changeDetection: ChangeDetectionStrategy.OnPush,
 })
 export class YardCrewPanel {
@@ -269,7 +301,9 @@ export class YardCrewPanel {
     } catch (err) {
       const p = toApiProblem(err);
       const rest = applyServerErrors(form, p.fields);
-      this.problem.set(p.message);
+      // The API names fields by path ("Check these fields: shifts[1].to"): where each is marked on
+      // its control, the summary says so in words.
+      this.problem.set(Object.keys(p.fields).length && !rest.length ? 'Check the fields marked in red.' : p.message);
       this.problemItems.set(rest.map((r) => ({ where: r.path, message: r.message })));
     } finally {
       this.busy.set(false);
