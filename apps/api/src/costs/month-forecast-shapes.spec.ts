@@ -46,6 +46,19 @@ describe('forecast shapes', () => {
     }
   });
 
+  it('energy over the target by less than a hundredth of a kWh (rounding) does not raise the peak', () => {
+    // Room under 20 kW: 4 x 10 kW / 4 = 10 kWh; 10.004 kWh asked. Raised for the 0.004 kWh, the
+    // site read 20.004 kW: a forecast night then took the month's peak by a thousandth of a kW.
+    const n = night([10, 10, 10, 10], 10.004);
+    for (const shape of Object.values(forecastShapes(n, () => 20))) {
+      for (const kw of siteKw(n, shape)) expect(kw).toBeLessThanOrEqual(20 + 1e-9);
+      expect(kwh(shape)).toBeCloseTo(10, 9);
+    }
+    // A hundredth and more is drawn, above the target.
+    const more = night([10, 10, 10, 10], 10.02);
+    for (const shape of Object.values(forecastShapes(more, () => 20))) expect(kwh(shape)).toBeCloseTo(10.02, 6);
+  });
+
   it('a tariff period with a lower target rises above it by no more than the rest above theirs', () => {
     // Caps of 20 kW (the first two intervals, an on-peak target) and 40 kW (the others), the
     // building at 10 kW throughout: room under the caps (10 + 10 + 30 + 30 kW) / 4 = 20 kWh, so

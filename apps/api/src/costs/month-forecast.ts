@@ -265,7 +265,9 @@ function fillEvenly(slots: readonly ForecastSlot[], gridKwh: number): ChargingKw
 /** `kw` topped up to `gridKwh` in the room each interval has left, cheapest first. */
 function topUp(slots: readonly ForecastSlot[], kw: ChargingKw, gridKwh: number): ChargingKw {
   const left = gridKwh - sumKwh(kw);
-  if (left <= 1e-9) return kw;
+  // Under a hundredth of a kWh is the night's energy rounded, not a need above the target: raised
+  // for it, a forecast night read 185.001 kW and took the month's peak from the night that set it.
+  if (left < MEASURABLE_KWH) return kw;
   const rest = fillCheapest(
     slots.map((s) => ({ ...s, roomKw: Math.max(0, s.roomKw - (kw.get(s.t) ?? 0)) })),
     left,
@@ -274,6 +276,9 @@ function topUp(slots: readonly ForecastSlot[], kw: ChargingKw, gridKwh: number):
   for (const [t, extra] of rest) out.set(t, (out.get(t) ?? 0) + extra);
   return out;
 }
+
+/** Below this (kWh) a forecast night's energy left over is not drawn above the target. */
+export const MEASURABLE_KWH = 0.01;
 
 /**
  * `kw` topped up to `gridKwh` where the site load is furthest below its cap (water-filling on the
@@ -287,7 +292,9 @@ function raiseLowest(
   capKw: readonly number[],
 ): ChargingKw {
   const left = gridKwh - sumKwh(kw);
-  if (left <= 1e-9) return kw;
+  // Under a hundredth of a kWh is the night's energy rounded, not a need above the target: raised
+  // for it, a forecast night read 185.001 kW and took the month's peak from the night that set it.
+  if (left < MEASURABLE_KWH) return kw;
   const site = slots.map((s) => s.buildingKw + (kw.get(s.t) ?? 0));
   const top = slots.map((s) => s.buildingKw + s.roomKw);
   const cap = slots.map((_, i) => Math.min(capKw[i]!, top[i]!));
