@@ -49,6 +49,9 @@ describe('a re-plan after a charger is reported out', () => {
     expect(recountFaults(kept, followed, ['C2'], ['209'], at).reasons).toEqual([
       'charger C2 out of service: 3 buses were planned on it',
     ]);
+    // The charger's buses are among those moved even where the engine saw no change of theirs from
+    // its cut-off on (one stopped at the report inside the slot before it): the list and the count agree.
+    expect(recountFaults(kept, followed, ['C2'], ['209'], at).buses).toEqual(['202', '204', '209', '214']);
   });
 
   it('leaves out a charger reported out before an earlier revision: nothing was planned on it any more', () => {

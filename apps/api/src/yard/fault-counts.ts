@@ -45,5 +45,8 @@ export function recountFaults(
       r.replace(/^\d+ other bus(es)? moved/, otherBuses).replace(/\(\d+ other bus(es)? moved\)$/, `(${otherBuses})`),
     ];
   });
-  return { buses: moved.buses, reasons: reported ? [reported, ...reasons] : reasons };
+  // The charger's buses are moved (unplugged now) whether or not the engine saw their plan change:
+  // one stopped at the report inside the slot before the cut-off kept its plan from there on.
+  const buses = [...new Set([...moved.buses, ...[...on.values()].flatMap((b) => [...b])])].sort();
+  return { buses, reasons: reported ? [reported, ...reasons] : reasons };
 }

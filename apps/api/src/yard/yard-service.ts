@@ -778,7 +778,8 @@ export async function replanAndPublish(
           at: revisedAt,
           reportedBy: caller.name,
           what: describe,
-          moved: moved.map((m) => `${m.bus}: ${m.after}`),
+          // In the words the yard's answer uses: "Bus 211: D1 05:00-05:45 → C4 05:00-06:00".
+          moved: moved.map((m) => `Bus ${m.bus}: ${m.before} → ${m.after}`),
           steps: soon,
           why: movedWhy(next),
           effect: effect.lines,
