@@ -87,7 +87,7 @@ test('finance opens the month, sees the savings, exports the nights and reads a 
     expect(lines[0]).toBe(
       'Night,Plan version,"Charging energy, planned (USD)",Baseline,"Charging energy, baseline (USD)",Energy saving (USD),' +
         'Projected site energy cost (USD),Metered site energy cost (USD),Metered minus projected (USD),Projected peak (kW),' +
-        'Baseline peak (kW),Metered peak (kW),Metered share of the night (%)',
+        'Baseline peak (kW),Metered peak (kW),Metered share of the night (%),Part of the night in this period',
     );
     expect(lines.length).toBeGreaterThan(1);
     expect(lines[1]).toMatch(
