@@ -18,20 +18,20 @@ let depotId: string;
 let planId: string;
 const as = (u: TestUser) => ({ Authorization: `Bearer ${u.token}` });
 const NUMBERS = ['21', '22', '23'];
+const putServiceDay = (date: string) =>
+  app
+    .request()
+    .put(`/api/depots/${depotId}/service-days/${date}`)
+    .set(as(sup))
+    .send({ forecastLowF: 30, runs: dayRuns(date, NUMBERS, () => 35) })
+    .expect(200);
 
 beforeAll(async () => {
   const org = await createOrganisation(app, { fin: ['finance'], sup: ['supervisor'], yard: ['yard'] });
   ({ fin, sup, yard } = org.users as Record<string, TestUser>);
   depotId = (await createDepot(app.db, org.organisationId)).depot.id;
   await addBuses(app.db, org.organisationId, depotId, NUMBERS);
-  for (const date of ['2026-12-02', '2026-12-03']) {
-    await app
-      .request()
-      .put(`/api/depots/${depotId}/service-days/${date}`)
-      .set(as(sup))
-      .send({ forecastLowF: 30, runs: dayRuns(date, NUMBERS, () => 35) })
-      .expect(200);
-  }
+  for (const date of ['2026-12-02', '2026-12-03']) await putServiceDay(date);
   planId = await publishedPlan(app, sup, depotId, '2026-12-02');
   now = new Date('2026-12-03T15:00:00-06:00');
   await signInAgain(app, fin, sup, yard);
@@ -169,13 +169,7 @@ describe('costs', () => {
   });
 
   it("a night across the billing period's edge: each period has its part, plan and baseline alike, and the parts add up to the night", async () => {
-    for (const date of ['2026-12-31', '2027-01-01'])
-      await app
-        .request()
-        .put(`/api/depots/${depotId}/service-days/${date}`)
-        .set(as(sup))
-        .send({ forecastLowF: 30, runs: dayRuns(date, NUMBERS, () => 35) })
-        .expect(200);
+    for (const date of ['2026-12-31', '2027-01-01']) await putServiceDay(date);
     // Last in this file: the clock moves on to January and stays there.
     now = new Date('2026-12-31T12:00:00-06:00');
     await signInAgain(app, sup);

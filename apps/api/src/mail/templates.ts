@@ -126,7 +126,7 @@ export function planRevisedMail(p: {
       '',
       ...(p.why && p.why.reasons.length
         ? [
-            `${p.why.buses} ${p.why.buses === 1 ? 'bus' : 'buses'} moved from the cut-off on, because: ${p.why.reasons.join('; ')}.`,
+            `${p.why.buses} ${p.why.buses === 1 ? 'bus' : 'buses'} moved from ${p.at} on, because: ${p.why.reasons.join('; ')}.`,
             '',
           ]
         : []),

@@ -141,7 +141,7 @@ describe('yard: reports re-plan the rest of the night', () => {
     expect(onIt.size).toBeGreaterThan(0);
     expect(mail!.text).toMatch(
       new RegExp(
-        `\\d+ bus(es)? moved from the cut-off on, because: charger ${charger} out of service: ${onIt.size} ${onIt.size === 1 ? 'bus was' : 'buses were'} planned on it`,
+        `\\d+ bus(es)? moved from 23:00 on, because: charger ${charger} out of service: ${onIt.size} ${onIt.size === 1 ? 'bus was' : 'buses were'} planned on it`,
       ),
     );
     // Each recipient's link opens a page their role can use: the Yard at that night, the review.

@@ -184,7 +184,7 @@ describe('yard format', () => {
     };
     expect(revisionNotice(revised, ZONE)).toBe(
       'Plan revised at 19:34 (version 2): charger C2 out of service (cable cut). Reported by Kofi Brandt. ' +
-        '3 buses moved from the cut-off on, because: charger C2 out of service: 3 buses were planned on it.',
+        '3 buses moved from 19:34 on, because: charger C2 out of service: 3 buses were planned on it.',
     );
     // A night planned again and published: what changed against the version the yard had.
     const again = { ...plan, version: 2, moved: { buses: ['216'], reasons: ['x'], againstVersion: 1 } };

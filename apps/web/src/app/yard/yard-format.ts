@@ -324,7 +324,7 @@ export function atOdds(
 
 /**
  * "Plan revised at 23:05 (version 3): charger C3 out of service (cable damaged). 2 buses moved from
- * the cut-off on, because: …" - with the moved buses in the e-mails' words.
+ * 23:05 on, because: …" - with the moved buses in the e-mails' words.
  */
 export function revisionNotice(
   plan: Pick<TonightPlan, 'version' | 'kind' | 'revisionNote' | 'publishedAt' | 'publishedBy' | 'moved'>,
@@ -336,7 +336,7 @@ export function revisionNotice(
   if (plan.kind === 'revision' && match) {
     const why =
       moved && moved.againstVersion === null && moved.reasons.length
-        ? ` ${busCount(moved.buses.length)} moved from the cut-off on, because: ${moved.reasons.join('; ')}.`
+        ? ` ${busCount(moved.buses.length)} moved from ${match[1]} on, because: ${moved.reasons.join('; ')}.`
         : '';
     return `Plan revised at ${match[1]} (version ${plan.version}): ${match[2]}${plan.publishedBy ? `. Reported by ${plan.publishedBy}` : ''}.${why}`;
   }
