@@ -105,6 +105,14 @@ export function depotParts(at: Instant, timeZone: string): { date: string; time:
   };
 }
 
+/**
+ * Whether the depot's clock is past midnight, in the night's morning (before noon): a time of day
+ * earlier than now has passed, where in the evening it means tomorrow morning.
+ */
+export function pastMidnightAt(at: Instant, timeZone: string): boolean {
+  return depotParts(at, timeZone).hour < 12;
+}
+
 /** The depot's date at an instant, `YYYY-MM-DD`: "today at the depot" with the Clock's now. */
 export function depotDate(at: Instant, timeZone: string): string {
   return depotParts(at, timeZone).date;

@@ -434,14 +434,19 @@ function movedBuses(
   // the slot the report falls in is unplugged now, though its plan from the cut-off is unchanged
   // (the Yard, Compare and the e-mail counted it; the review did not).
   const reportMs = Math.min(cutMs, localToMillis(state.now, problem.zone) ?? cutMs);
-  const onOut = (c: string) =>
-    new Set(previous.sessions.filter((s) => s.charger === c && Date.parse(s.end) > reportMs).map((s) => s.bus));
-  const buses = [...new Set([...changedBuses(problem, previous, plan), ...outOfService.flatMap((c) => [...onOut(c)])])]
+  const onOut = outOfService.map(
+    (c) =>
+      [
+        c,
+        new Set(previous.sessions.filter((s) => s.charger === c && Date.parse(s.end) > reportMs).map((s) => s.bus)),
+      ] as const,
+  );
+  const forced = new Set(onOut.flatMap(([, on]) => [...on]));
+  const buses = [...new Set([...changedBuses(problem, previous, plan), ...forced])]
     .filter((b) => problem.buses.some((x) => x.id === b))
     .sort();
   const reasons: string[] = [];
-  for (const c of outOfService) {
-    const on = onOut(c);
+  for (const [c, on] of onOut) {
     reasons.push(`charger ${c} out of service: ${on.size} ${on.size === 1 ? 'bus was' : 'buses were'} planned on it`);
   }
   const late = Object.keys(state.lateArrivals ?? {});
@@ -449,8 +454,6 @@ function movedBuses(
   const reported = Object.keys(state.energyKwh ?? {});
   if (reported.length)
     reasons.push(`battery levels reported for ${reported.length} ${reported.length === 1 ? 'bus' : 'buses'}`);
-  const forced = new Set<string>();
-  for (const c of outOfService) for (const b of onOut(c)) forced.add(b);
   for (const b of late) forced.add(b);
   const others = buses.filter((b) => !forced.has(b)).length;
   if (others > 0 && plan.keptPrevious)

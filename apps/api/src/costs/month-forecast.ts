@@ -262,11 +262,16 @@ function fillEvenly(slots: readonly ForecastSlot[], gridKwh: number): ChargingKw
   return left > 1e-9 ? topUp(slots, kw, gridKwh) : kw;
 }
 
+/**
+ * Energy left over below this (kWh) is the night's energy rounded, not a need: not placed. Raised
+ * above the target for it, a forecast night read 185.001 kW and took the month's peak from the
+ * night that set it.
+ */
+const MEASURABLE_KWH = 0.01;
+
 /** `kw` topped up to `gridKwh` in the room each interval has left, cheapest first. */
 function topUp(slots: readonly ForecastSlot[], kw: ChargingKw, gridKwh: number): ChargingKw {
   const left = gridKwh - sumKwh(kw);
-  // Under a hundredth of a kWh is the night's energy rounded, not a need above the target: raised
-  // for it, a forecast night read 185.001 kW and took the month's peak from the night that set it.
   if (left < MEASURABLE_KWH) return kw;
   const rest = fillCheapest(
     slots.map((s) => ({ ...s, roomKw: Math.max(0, s.roomKw - (kw.get(s.t) ?? 0)) })),
@@ -276,9 +281,6 @@ function topUp(slots: readonly ForecastSlot[], kw: ChargingKw, gridKwh: number):
   for (const [t, extra] of rest) out.set(t, (out.get(t) ?? 0) + extra);
   return out;
 }
-
-/** Below this (kWh) a forecast night's energy left over is not drawn above the target. */
-export const MEASURABLE_KWH = 0.01;
 
 /**
  * `kw` topped up to `gridKwh` where the site load is furthest below its cap (water-filling on the
@@ -292,8 +294,6 @@ function raiseLowest(
   capKw: readonly number[],
 ): ChargingKw {
   const left = gridKwh - sumKwh(kw);
-  // Under a hundredth of a kWh is the night's energy rounded, not a need above the target: raised
-  // for it, a forecast night read 185.001 kW and took the month's peak from the night that set it.
   if (left < MEASURABLE_KWH) return kw;
   const site = slots.map((s) => s.buildingKw + (kw.get(s.t) ?? 0));
   const top = slots.map((s) => s.buildingKw + s.roomKw);

@@ -11,6 +11,7 @@ import {
   type YardReportResult,
   type YardStep,
   horizonOf,
+  pastMidnightAt,
 } from '@nightyard/contracts';
 import {
   localToMillis,
@@ -534,7 +535,7 @@ export async function replanAndPublish(
           'validation_failed',
           `Bus ${report.bus} pulls out at ${stay.depart.slice(11)}: give a time before then` +
             // The hint helps in the evening only: past midnight the morning is today's.
-            (DateTime.fromJSDate(cutAt, { zone }).hour >= 12 ? ' (after midnight means tomorrow morning)' : ''),
+            (pastMidnightAt(cutAt, zone) ? '' : ' (after midnight means tomorrow morning)'),
           { expectedAt: `Before its ${stay.depart.slice(11)} pull-out` },
         );
       state.lateArrivals[report.bus] = report.expectedAt;

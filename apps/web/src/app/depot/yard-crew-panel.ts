@@ -25,15 +25,18 @@ const clockText = z.string().regex(/^([01]\d|2[0-3]):[0-5]\d$/);
 // The contract's own messages ("At least 1 move"), not zod's ("Too small: expected number to be >=1").
 const moves = crewShiftSchema.shape.movesPerSlot;
 
-/** A shift that ends when it starts is refused by the contract: said on its "to" before saving. */
-const endsAfterStart: ValidatorFn = (group) => {
-  const from = group.get('from');
+/**
+ * The contract's rule across a shift's times (one that ends when it starts), said on its "to"
+ * before saving, in the contract's words. The moves are checked on their own control: a valid
+ * stand-in lets the rule run whatever they hold.
+ */
+const shiftTimes: ValidatorFn = (group) => {
   const to = group.get('to');
-  if (!from || !to) return null;
-  const same = !!from.value && from.value === to.value;
-  const errors = { ...(to.errors ?? {}) };
-  if (same) errors['zod'] = 'A shift must end at another time than it starts';
-  else if (errors['zod'] === 'A shift must end at another time than it starts') delete errors['zod'];
+  if (!to) return null;
+  const parsed = crewShiftSchema.safeParse({ ...group.value, movesPerSlot: 1 });
+  const issue = parsed.success ? undefined : parsed.error.issues.find((i) => i.code === 'custom' && i.path[0] === 'to');
+  const { shiftTimes: _, ...others } = to.errors ?? {};
+  const errors = issue ? { ...others, shiftTimes: issue.message } : others;
   to.setErrors(Object.keys(errors).length ? errors : null);
   return null;
 };
@@ -51,7 +54,7 @@ function shiftGroup(s: CrewShift | null) {
       }),
       movesPerSlot: new FormControl<number | null>(s?.movesPerSlot ?? 2, zodValidator(moves, 'Enter 1 to 50 moves')),
     },
-    { validators: endsAfterStart },
+    { validators: shiftTimes },
   );
 }
 

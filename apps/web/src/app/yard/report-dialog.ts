@@ -21,10 +21,10 @@ import { MatSelectModule } from '@angular/material/select';
 import { yardReportSchema, type YardReportResult } from '@nightyard/contracts';
 import type { ZodType } from 'zod';
 import { applyFieldErrors, toApiProblem } from '../core/api-error';
-import { CLOCK_TIME } from '@nightyard/contracts/depot-time';
+import { CLOCK_TIME, pastMidnightAt } from '@nightyard/contracts/depot-time';
 import { ClockTimeInput, clockTimeValidator } from '../shared/clock-time-input';
 import { YardApi, type YardReportRequest } from './yard-api';
-import { day, clock, expectedAtFor, pastMidnight } from './yard-format';
+import { day, clock, expectedAtFor } from './yard-format';
 import { movedLines } from './yard-store';
 
 export type ReportKind = YardReportRequest['kind'];
@@ -156,11 +156,11 @@ export class ReportDialog {
   /** "Tue 1 Dec 23:40 at the depot" under the time field. */
   protected readonly expectedHint = computed(() => {
     const time = this.expectedTime();
-    const morning = pastMidnight(this.data.now, this.data.timezone);
+    const morning = pastMidnightAt(this.data.now, this.data.timezone);
     if (!time || !CLOCK_TIME.test(time))
       return morning ? 'Depot time, later than now' : 'Depot time; after midnight means tomorrow morning';
     const at = expectedAtFor(time, this.data.now, this.data.timezone);
-    if (morning && time <= clock(new Date(this.data.now).toISOString(), this.data.timezone))
+    if (morning && time <= clock(this.data.now, this.data.timezone))
       return `${time} has passed: give a time later than now`;
     const [date] = at.split('T');
     const sameDay = date === expectedAtFor('23:59', this.data.now, this.data.timezone).split('T')[0];

@@ -1,5 +1,13 @@
 import type { Charger, Tonight, TonightPlan, YardStep } from '@nightyard/contracts';
-import { addDays, dayAt, depotParts, timeAt, weekdayAt, weekdayTimeAt } from '@nightyard/contracts/depot-time';
+import {
+  addDays,
+  dayAt,
+  depotParts,
+  pastMidnightAt,
+  timeAt,
+  weekdayAt,
+  weekdayTimeAt,
+} from '@nightyard/contracts/depot-time';
 
 /** Times, the night's span, steps and chargers as the yard reads them. Pure functions only. */
 
@@ -40,13 +48,8 @@ export function expectedAtFor(time: string, nowMs: number, timeZone: string): st
   if (time > now.time) return `${now.date}T${time}`;
   // Past midnight the night's morning is today: an earlier time has passed (it read as tomorrow,
   // a day away, at 05:05 for 04:00). In the evening an earlier time is tomorrow morning.
-  if (now.hour < 12) return `${now.date}T${time}`;
+  if (pastMidnightAt(nowMs, timeZone)) return `${now.date}T${time}`;
   return `${addDays(now.date, 1)}T${time}`;
-}
-
-/** Whether the depot clock is past midnight (the night's morning): a time earlier than now has passed. */
-export function pastMidnight(nowMs: number, timeZone: string): boolean {
-  return localParts(nowMs, timeZone).hour < 12;
 }
 
 /** Night colours while the night is under way: from its first slot to its last (the server's night). */
