@@ -16,7 +16,10 @@ export const depotSummarySchema = z.object({
       date: z.iso.date(),
       firstPullOut: z.string().nullable(),
       lastPullOut: z.string().nullable(),
+      /** Buses with runs on the service day, less those reported absent tonight. */
       busesOut: z.number().int(),
+      /** Bus numbers the yard reported absent tonight (not counted in busesOut). */
+      absentBuses: z.array(z.string()),
       lastPullInToday: z.string().nullable(),
     })
     .nullable(),

@@ -2,7 +2,7 @@ import { and, asc, desc, eq, lte, sql } from 'drizzle-orm';
 import { DateTime } from 'luxon';
 import { depotDate, type DepotList, type DepotSummary } from '@nightyard/contracts';
 import type { Db } from '../db/client';
-import { buses, chargers, depotRatePlans, depots, ratePlans, runs, users } from '../db/schema';
+import { buses, chargers, depotRatePlans, depots, ratePlans, runs, users, yardReports } from '../db/schema';
 import { depotOf, mayOpenDepot } from './depot-access';
 import type { AuthUser } from '../auth/auth-user';
 import { nightOfDepot } from '../night/depot-night';
@@ -70,12 +70,26 @@ async function summarise(db: Db, d: typeof depots.$inferSelect, now: Date): Prom
   let nextServiceDay: DepotSummary['nextServiceDay'] = null;
   if (next) {
     const local = (t: Date | null) => (t ? DateTime.fromJSDate(t, { zone: d.timezone }).toFormat('HH:mm') : null);
+    // A bus the yard reported absent tonight does not leave from the night's charging.
+    const absent = await db
+      .selectDistinct({ bus: yardReports.bus })
+      .from(yardReports)
+      .where(
+        and(
+          eq(yardReports.depotId, d.id),
+          eq(yardReports.serviceDate, tonight.serviceDate),
+          eq(yardReports.kind, 'bus_absent'),
+        ),
+      )
+      .orderBy(asc(yardReports.bus));
+    const absentBuses = absent.flatMap((a) => (a.bus ? [a.bus] : []));
     const [day] = await db
       .select({
         first: sql<Date | null>`min(${runs.pullOut})`.mapWith((v) => (v ? new Date(v) : null)),
-        buses: sql<number>`count(distinct ${runs.busId})::int`,
+        buses: sql<number>`count(distinct ${runs.busId}) filter (where ${buses.number} <> all(${sql.param(absentBuses)}::text[]))::int`,
       })
       .from(runs)
+      .innerJoin(buses, eq(buses.id, runs.busId))
       .where(and(eq(runs.depotId, d.id), eq(runs.serviceDate, next.date)));
     // Only the first run of each bus leaves from the night's charging.
     const [lastFirst] = await db
@@ -95,6 +109,7 @@ async function summarise(db: Db, d: typeof depots.$inferSelect, now: Date): Prom
       firstPullOut: local(day?.first ?? null),
       lastPullOut: local(lastFirst?.last ? new Date(lastFirst.last) : null),
       busesOut: day?.buses ?? 0,
+      absentBuses,
       lastPullInToday: local(pullIns?.last ?? null),
     };
   }

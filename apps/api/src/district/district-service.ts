@@ -76,8 +76,11 @@ async function nightsOf(
     status: string | null;
   }>(
     `select n.depot_id::text,
-       coalesce((select count(distinct r.bus_id)::int from runs r
-         where r.depot_id = n.depot_id and r.service_date = n.next_date), 0) as buses_out,
+       coalesce((select count(distinct r.bus_id)::int from runs r join buses b on b.id = r.bus_id
+         where r.depot_id = n.depot_id and r.service_date = n.next_date
+           -- as on the depot's own card: a bus reported absent tonight does not leave from here
+           and not exists (select 1 from yard_reports y where y.depot_id = n.depot_id
+             and y.service_date = n.service_date and y.kind = 'bus_absent' and y.bus = b.number)), 0) as buses_out,
        p.id, p.state, p.version, p.status
      from unnest($1::uuid[], $2::date[], $3::date[]) as n(depot_id, service_date, next_date)
      left join lateral (

@@ -300,6 +300,38 @@ describe('yard: reports re-plan the rest of the night', () => {
     expect(row!.notes.at(-1)).toBe(`Revised at ${reportedAt}: charger A out of service (Cable worn).`);
   });
 
+  it('a bus reported absent tonight is not among the buses going out, on the depot card and the district alike', async () => {
+    const org = await createOrganisation(app, { y: ['yard'], s: ['supervisor'], f: ['finance'] });
+    const depot = (await createDepot(app.db, org.organisationId)).depot.id;
+    const numbers = ['81', '82', '83'];
+    await addBuses(app.db, org.organisationId, depot, numbers);
+    for (const date of ['2026-12-14', '2026-12-15'])
+      await app
+        .request()
+        .put(`/api/depots/${depot}/service-days/${date}`)
+        .set(as(org.users.s!))
+        .send({ runs: dayRuns(date, numbers) })
+        .expect(200);
+    await publishedPlan(app, org.users.s!, depot, '2026-12-14');
+    clock = DateTime.fromISO('2026-12-14T22:30', { zone: ZONE }).toJSDate();
+    await signInAgain(app, org.users.y!, org.users.f!);
+    const goingOut = async () => {
+      const card = (await app.request().get('/api/depots').set(as(org.users.y!)).expect(200)).body.depots[0];
+      const district = (await app.request().get('/api/district').set(as(org.users.f!)).expect(200)).body.depots[0];
+      return { card: card.nextServiceDay, district: district.tonight.busesOut };
+    };
+    expect(await goingOut()).toMatchObject({ card: { busesOut: 3, absentBuses: [] }, district: 3 });
+    const planId = (await app.request().get(`/api/depots/${depot}/tonight`).set(as(org.users.y!)).expect(200)).body.plan
+      .id;
+    await app
+      .request()
+      .post(`/api/depots/${depot}/tonight/reports`)
+      .set(as(org.users.y!))
+      .send({ planId, kind: 'bus_absent', bus: '82' })
+      .expect(201);
+    expect(await goingOut()).toMatchObject({ card: { busesOut: 2, absentBuses: ['82'] }, district: 2 });
+  });
+
   it('a reading stands in the re-plans after it: the next report starts the bus from it, not from the estimate', async () => {
     const org = await createOrganisation(app, { y: ['yard'], s: ['supervisor'] });
     const y = org.users.y!;

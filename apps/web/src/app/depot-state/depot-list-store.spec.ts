@@ -26,6 +26,27 @@ describe('DepotListStore', () => {
     expect(store.current()?.name).toBe('Riverside Depot');
   });
 
+  it('refreshes the counts in place, keeping the list shown and the choice, and keeps it when the API fails', async () => {
+    await loaded(SOUTH_ID);
+    const refreshing = store.refresh();
+    expect(store.state()).toBe('loaded');
+    const base = depot().nextServiceDay!;
+    mock
+      .expectOne('/api/depots')
+      .flush({
+        depots: [depot({ nextServiceDay: { ...base, absentBuses: ['220'] } }), southDepot()],
+        chosenDepotId: null,
+      });
+    await refreshing;
+    expect(store.current()?.name).toBe('Riverside Depot');
+    expect(store.depots()[0]!.nextServiceDay!.absentBuses).toEqual(['220']);
+    const failing = store.refresh();
+    mock.expectOne('/api/depots').flush('down', { status: 503, statusText: 'Service Unavailable' });
+    await failing;
+    expect(store.state()).toBe('loaded');
+    expect(store.depots()).toHaveLength(2);
+  });
+
   it('takes the first depot until one is chosen, and when the chosen one is no longer theirs', async () => {
     await loaded(null);
     expect(store.current()?.id).toBe(NORTH_ID);

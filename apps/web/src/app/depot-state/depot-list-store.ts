@@ -63,6 +63,22 @@ export class DepotListStore {
   }
 
   /**
+   * Fetches the list again without going back to "loading" (the cards stay on screen): the
+   * counts change during a night (a bus reported absent, a charger out). A failure keeps the list
+   * as it was; the next refresh or load tries again.
+   */
+  async refresh(): Promise<void> {
+    if (this.state() !== 'loaded') return this.load();
+    const choicesAtStart = this.choices;
+    try {
+      const res = await firstValueFrom(this.http.get<{ depots: DepotSummary[] }>('/api/depots'));
+      if (this.choices === choicesAtStart) this.depots.set(res.depots);
+    } catch {
+      // The list shown stays; Tonight's own figures say whether the depot answers.
+    }
+  }
+
+  /**
    * Works on depot `id` from now on (at once) and has the API remember it (PUT /api/me/depot).
    * Should the API refuse, the app goes back to the depot before and `choiceProblem` says why.
    * Resolves true when the choice was remembered. `restart: false` when a navigation to another

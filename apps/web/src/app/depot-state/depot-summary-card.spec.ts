@@ -30,6 +30,15 @@ describe('DepotSummaryCard', () => {
     expect(facts['First pull-out']).toBe('05:40');
     expect(facts['Last pull-out']).toBe('07:10');
     expect(facts['Next service day']).toContain('2026');
+    expect(facts['Buses going out']).toBe('11');
+  });
+
+  it('names the buses reported absent tonight beside the count going out', async () => {
+    const base = depot().nextServiceDay!;
+    const { facts } = await render(depot({ nextServiceDay: { ...base, busesOut: 10, absentBuses: ['220'] } }));
+    expect(facts['Buses going out']).toBe('10 (bus 220 absent tonight)');
+    const two = await render(depot({ nextServiceDay: { ...base, busesOut: 9, absentBuses: ['213', '220'] } }));
+    expect(two.facts['Buses going out']).toBe('9 (buses 213, 220 absent tonight)');
   });
 
   it('says plainly when there is no rate plan or service day yet', async () => {

@@ -30,6 +30,13 @@ export class DepotSummaryCard {
       firstPullOut: formatClock(day.firstPullOut, tz),
       lastPullOut: formatClock(day.lastPullOut, tz),
       busesOut: day.busesOut,
+      absent: absentNote(day.absentBuses),
     };
   });
+}
+
+/** "bus 220 absent tonight", "buses 213, 220 absent tonight", or null: the yard's own words. */
+function absentNote(buses: readonly string[]): string | null {
+  if (buses.length === 0) return null;
+  return `${buses.length === 1 ? 'bus' : 'buses'} ${buses.join(', ')} absent tonight`;
 }

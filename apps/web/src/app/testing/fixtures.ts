@@ -58,6 +58,7 @@ export function depot(overrides: Partial<DepotSummary> = {}): DepotSummary {
       firstPullOut: '05:40',
       lastPullOut: '07:10',
       busesOut: 11,
+      absentBuses: [],
       lastPullInToday: '17:30',
     },
     ...overrides,

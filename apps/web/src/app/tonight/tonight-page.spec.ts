@@ -40,7 +40,11 @@ describe('TonightPage', () => {
   /** Tonight as the server says (the night endpoint). */
   let tonight = '2026-12-01';
 
+  /** How often the page asked for the depot card's counts again. */
+  let depotRefreshes = 0;
+
   async function start(roles: Role[] = ['admin'], serviceLimitKw?: number): Promise<void> {
+    depotRefreshes = 0;
     const current = signal(
       depot({
         id: DEPOT_ID,
@@ -60,6 +64,10 @@ describe('TonightPage', () => {
           provide: DepotListStore,
           useValue: {
             load: () => Promise.resolve(),
+            refresh: () => {
+              depotRefreshes++;
+              return Promise.resolve();
+            },
             state: signal('loaded'),
             error: signal(null),
             current: computed(() => current()),
@@ -303,6 +311,8 @@ describe('TonightPage', () => {
     ]);
     await detail(planDetail({ id: PLAN_IDS.published, serviceDate: '2026-12-01', state: 'published', version: 2 }));
     expect(fact('version')).toBe('2');
+    // The depot card's counts are asked for on opening and again with the revision (a bus absent).
+    expect(depotRefreshes).toBe(2);
     // Out of service now: the night was re-planned without it, no more call to act.
     expect(el.querySelector('[data-fault]')).toBeNull();
   });

@@ -215,16 +215,22 @@ export class TonightPage {
   /** The night the page last looked from. */
   private loadedFor: string | null = null;
 
+  /** The depot the page reads, as the night sees it: a refreshed list of the same depot is no change. */
+  private readonly depot = computed(() => this.depots.current(), {
+    equal: (a, b) => a?.id === b?.id && a?.timezone === b?.timezone,
+  });
+
   constructor() {
-    void this.depots.load();
+    // The card's counts may have changed since the list was loaded (a report from the Yard).
+    void this.depots.refresh();
     effect(() => {
-      const depot = this.depots.current();
+      const depot = this.depot();
       if (depot) untracked(() => this.load(depot));
     });
     // When tonight's night is over, the server names the next one: look again.
     effect(() => {
       const tonight = this.tonightDate();
-      const depot = this.depots.current();
+      const depot = this.depot();
       if (depot && tonight && this.loadedFor && tonight !== this.loadedFor) untracked(() => this.load(depot));
     });
   }
@@ -232,6 +238,7 @@ export class TonightPage {
   protected reload(): void {
     const depot = this.depots.current();
     if (depot) this.load(depot);
+    void this.depots.refresh();
   }
 
   private load(depot: NightDepot): void {
