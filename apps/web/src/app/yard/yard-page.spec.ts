@@ -328,6 +328,9 @@ describe('YardPage', () => {
     );
     expect(text(el.querySelector('.notice'))).toContain('Bus 203: C2 22:00 → C2 22:45');
     expect(card('C2').querySelector('.overdue-list')).toBeNull();
+    // The answer is made far down a phone's page and its step leaves the card: the notice is
+    // where the focus goes (and so is seen and read out).
+    expect(document.activeElement).toBe(el.querySelector('.notice'));
   });
 
   it('lists the next hour across all chargers in time order, with the cautions', async () => {

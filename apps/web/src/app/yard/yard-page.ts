@@ -3,12 +3,14 @@ import {
   Component,
   DOCUMENT,
   DestroyRef,
+  ElementRef,
   computed,
   effect,
   inject,
   input,
   signal,
   untracked,
+  viewChild,
 } from '@angular/core';
 import { MatButtonModule } from '@angular/material/button';
 import { MatDialog } from '@angular/material/dialog';
@@ -106,8 +108,23 @@ export class YardPage {
   /** `?fault=<label>` (from the fault notice on Tonight or Depot): the report form opens for it. */
   readonly fault = input<string>();
   private faultOffered = false;
+  private readonly noticeBox = viewChild<ElementRef<HTMLElement>>('noticeBox');
+  /** The revision whose notice was last brought into view. */
+  private noticeShown: number | null = null;
 
   constructor() {
+    // A report or "did not happen" is made far down the page on a phone, and its step then
+    // leaves the card: the revision's notice at the top is brought into view and focused, so the
+    // answer is seen (and read out). Revisions made by others stay where they are.
+    effect(() => {
+      const notice = this.store.notice();
+      const box = this.noticeBox()?.nativeElement;
+      if (!notice?.mine || !box || this.noticeShown === notice.version) return;
+      this.noticeShown = notice.version;
+      box.scrollIntoView?.({ block: 'start', behavior: 'smooth' });
+      box.focus({ preventScroll: true });
+    });
+
     void this.depots.load();
     effect(() => {
       const depot = this.depots.current();

@@ -52,6 +52,8 @@ export interface Notice {
   text: string;
   moved: string[];
   version: number;
+  /** The revision answers a report or "did not happen" made on this page (the page shows it). */
+  mine?: boolean;
 }
 
 interface Seen {
@@ -279,6 +281,7 @@ export class YardStore {
       text: heard?.version === version ? heard.text : `Plan revised (version ${version}).`,
       moved: movedLines(result),
       version,
+      mine: true,
     });
     await this.load();
   }
@@ -326,6 +329,7 @@ export class YardStore {
         text: revisionNotice(plan, t.depot.timezone),
         moved: mine && mine.version === plan.version ? mine.moved : [],
         version: plan.version,
+        mine: mine?.version === plan.version && mine.mine,
       });
     }
     this.writeSeen({ depotId: t.depot.id, serviceDate: plan.serviceDate, version: plan.version });
