@@ -12,6 +12,8 @@ interface StoredMessage {
   subject: string;
   text: string;
   html: string | null;
+  /** The Date the sender put on the message (the app's clock), null without one. */
+  sentAt: string | null;
   receivedAt: string;
 }
 
@@ -37,6 +39,7 @@ const smtp = new SMTPServer({
           subject: mail.subject ?? '',
           text: mail.text ?? '',
           html: typeof mail.html === 'string' ? mail.html : null,
+          sentAt: mail.date ? mail.date.toISOString() : null,
           // The stand-in mail server's own receipt time, as a real one would stamp it (not the API's clock).
           // eslint-disable-next-line no-restricted-syntax -- see the line above
           receivedAt: new Date().toISOString(),

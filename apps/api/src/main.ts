@@ -82,7 +82,7 @@ const costsInputs: CostsInputs = new NotifiedCache(config.DATABASE_URL, {
 });
 await costsInputs.start();
 
-const mailer = smtpMailer({ host: config.SMTP_HOST, port: config.SMTP_PORT, from: config.MAIL_FROM }, log);
+const mailer = smtpMailer({ host: config.SMTP_HOST, port: config.SMTP_PORT, from: config.MAIL_FROM }, log, clock);
 const publicUrl = (p: string) => new URL(p, publicBase).toString();
 const onPlanPublished = (planId: string) =>
   void central.sendPlan(planId).catch((err: unknown) => log.error({ err }, 'profiles not sent'));

@@ -78,6 +78,9 @@ export const outboxMessageSchema = z.object({
   to: z.array(z.string()),
   subject: z.string(),
   text: z.string(),
+  /** The date the app put on the message, by its own clock (null from a sender that gave none). */
+  sentAt: z.iso.datetime({ offset: true }).nullable(),
+  /** When the mail server took it, by the server's clock. */
   receivedAt: z.iso.datetime({ offset: true }),
 });
 export type OutboxMessage = z.infer<typeof outboxMessageSchema>;

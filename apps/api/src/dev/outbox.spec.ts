@@ -37,6 +37,9 @@ describe('the development outbox', () => {
     const recipients = res.body.messages.flatMap((m: { to: string[] }) => m.to);
     expect(recipients).toContain(ours);
     expect(recipients).not.toContain(theirs);
+    // Dated by the app's clock (a test instant, days from the machine's), to the second a Date header keeps.
+    const invite = res.body.messages.find((m: { to: string[] }) => m.to.includes(ours));
+    expect(invite.sentAt).toBe(new Date(Math.floor(app.deps.clock().getTime() / 1000) * 1000).toISOString());
     const others = new Set(
       (await app.db.query.users.findMany({ columns: { email: true, organisationId: true } }))
         .filter((u) => u.organisationId !== a.organisationId)

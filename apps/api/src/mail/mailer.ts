@@ -11,8 +11,12 @@ export interface Mailer {
   send(mail: OutgoingMail): Promise<void>;
 }
 
-/** Sends through SMTP (in development and tests: the local fake mail server). */
-export function smtpMailer(opts: { host: string; port: number; from: string }, log: Logger): Mailer {
+/**
+ * Sends through SMTP (in development and tests: the local fake mail server). Each message is
+ * dated by the app's clock, as everything else it says is: under a set clock the outbox shows
+ * the e-mail beside the night it is about.
+ */
+export function smtpMailer(opts: { host: string; port: number; from: string }, log: Logger, clock: () => Date): Mailer {
   const transport = nodemailer.createTransport({
     host: opts.host,
     port: opts.port,
@@ -21,7 +25,7 @@ export function smtpMailer(opts: { host: string; port: number; from: string }, l
   });
   return {
     async send(mail) {
-      await transport.sendMail({ from: opts.from, to: mail.to, subject: mail.subject, text: mail.text });
+      await transport.sendMail({ from: opts.from, to: mail.to, subject: mail.subject, text: mail.text, date: clock() });
       log.info({ to: mail.to, subject: mail.subject }, 'mail sent');
     },
   };

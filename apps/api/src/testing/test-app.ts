@@ -53,14 +53,19 @@ export function createTestApp(overrides: Partial<AppDeps> = {}, databaseUrl = TE
     },
   };
   afterAll(() => jobs.stop(), 20_000);
+  const clock = overrides.clock ?? clockFrom(TEST_START);
   const deps: AppDeps = {
     db,
-    clock: clockFrom(TEST_START),
+    clock,
     live: new LiveBus(),
     jobs,
     config,
     log,
-    mailer: smtpMailer({ host: '127.0.0.1', port: TEST_SMTP_PORT, from: 'Nightyard <test@nightyard.example>' }, log),
+    mailer: smtpMailer(
+      { host: '127.0.0.1', port: TEST_SMTP_PORT, from: 'Nightyard <test@nightyard.example>' },
+      log,
+      clock,
+    ),
     ping: async () => {
       await db.execute(sql`select 1`);
     },

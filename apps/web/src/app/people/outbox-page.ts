@@ -40,7 +40,8 @@ export class OutboxPage {
   protected readonly shown = computed<ShownMessage[]>(() =>
     this.messages().map((message) => ({
       message,
-      when: formatWhen(message.receivedAt, this.zone()) ?? message.receivedAt,
+      // The app's own date for the message (its clock), as every other time it shows.
+      when: formatWhen(message.sentAt ?? message.receivedAt, this.zone()) ?? message.receivedAt,
       parts: textWithLinks(message.text),
     })),
   );
