@@ -112,7 +112,7 @@ test('a supervisor uploads the runs, generates the night, reviews the short buse
   await expect(banner).toContainText('Bus 205');
   const rows = page.getByRole('region', { name: 'Buses in the plan' }).locator('tbody tr');
   await expect(rows).toHaveCount(24);
-  const reasons = /Dwell too short|Charger too weak|Power cabinet limit|Site service limit|Battery taper/;
+  const reasons = /Dwell too short|Not enough charger time|Power cabinet limit|Site service limit|Battery taper/;
   for (const i of [0, 1]) {
     await expect(rows.nth(i).getByRole('rowheader')).toHaveText(/20[35]/);
     await expect(rows.nth(i)).toContainText(reasons);

@@ -3,7 +3,7 @@ import { describe, expect, it } from 'vitest';
 import { planScenario, type Plan } from './plan.js';
 import { replan, ReplanStateError, type Replan, type ReplanState } from './replan.js';
 import { parseScenario, type Scenario } from './scenario.js';
-import { parsedScenario } from './testing/crew-yard.js';
+import { parsedScenario, testYard } from './testing/crew-yard.js';
 import { generateDepot } from './testing/generate-depot.js';
 import { checkPlan } from './testing/plan-checker.js';
 
@@ -66,6 +66,21 @@ describe('replan', () => {
     const frozenPeak = Math.max(...before.slots.filter((x) => Date.parse(x.start) < cut).map((x) => x.loadKw));
     expect(r.replan.scenario.tariff.peaksSoFarKw['facility']).toBeGreaterThanOrEqual(frozenPeak - 1e-6);
     expect(r.cost.total).toBeGreaterThanOrEqual(r.lowerBound - 1e-6);
+  });
+
+  it("a session cut at the cut-off ends with the crew's unplug there, not the driver's at pull-out", async () => {
+    const s = parsedScenario({ ...generateDepot({ buses: 12, seed: 3 }), yard: testYard() });
+    const before = await planOf(s);
+    const cut = at('2026-01-14T22:00');
+    // A bus its driver was to unplug on pulling out, on a charger reported out at 22:00.
+    const running = before.sessions.find(
+      (x) => Date.parse(x.start) < cut && Date.parse(x.end) > cut && x.endMove === 'driver',
+    );
+    expect(running, 'a session running over 22:00 to its pull-out').toBeDefined();
+    const r = await replanOf(s, { now: '2026-01-14T22:00', previous: before, outOfService: [running!.charger] });
+    const kept = r.replan.kept.find((x) => x.bus === running!.bus && x.charger === running!.charger)!;
+    expect(Date.parse(kept.end)).toBe(cut);
+    expect(kept.endMove).toBe('crew');
   });
 
   it('a charger reported out inside a slot: the bus planned on it to the end of that slot is unplugged now, and counted as moved', async () => {

@@ -312,6 +312,9 @@ export function deriveScenario(scenario: Scenario, state: ReplanState) {
       const endMs = startMs + (first + kw.length) * slotMs;
       kept.push({
         ...s,
+        // Cut at the cut-off: unless the re-plan keeps the bus on (the sessions then join), it is
+        // unplugged there, by the crew, not at its pull-out by the driver.
+        ...(endMs < Date.parse(s.end) && s.endMove ? { endMove: 'crew' as const } : {}),
         end: DateTime.fromMillis(endMs, { zone }).toISO()!,
         kw,
         kwh: round(kw.reduce((a, v) => a + (v * slotMs) / 3_600_000, 0)),

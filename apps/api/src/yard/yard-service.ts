@@ -166,6 +166,11 @@ export async function confirmedPlugged(
     const done = confirmations.get(step.key);
     // Counted at the time it really happened (the yard may give it when confirming late).
     if (!done || done.outcome === 'missed' || done.at.getTime() > cutAt.getTime()) continue;
+    // A step of another bus on the charger was done: a bus taken as on it was unplugged before,
+    // unconfirmed (one bus per charger). Else a charger whose unplug nobody confirmed stayed held
+    // all night by a bus that needed nothing, while short buses waited for a charger.
+    for (const [bus, charger] of Object.entries(plugged))
+      if (charger === step.charger && bus !== step.bus) delete plugged[bus];
     if (step.action === 'connect') plugged[step.bus] = step.charger;
     if (step.action === 'disconnect' && plugged[step.bus] === step.charger) delete plugged[step.bus];
   }

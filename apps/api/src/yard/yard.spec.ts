@@ -2,12 +2,14 @@ import { eq } from 'drizzle-orm';
 import { DateTime } from 'luxon';
 import { beforeAll, describe, expect, it } from 'vitest';
 import type { PlanResult } from '@nightyard/contracts';
-import { plans } from '../db/schema';
+import { plans, yardConfirmations } from '../db/schema';
 import { createDepot } from '../testing/depot-fixture';
 import { addBuses, dayRuns } from '../testing/fleet-fixture';
 import { mailFor } from '../testing/mail';
 import { deliveredBefore, generatedPlan, publishedPlan } from '../testing/plan-fixture';
 import { createOrganisation, createTestApp, signInAgain, type TestUser } from '../testing/test-app';
+import { confirmedPlugged } from './yard-service';
+import { stepKey } from './yard-steps';
 
 const ZONE = 'America/Chicago';
 // The plan is made and published in the afternoon; the yard's night is then looked at from 23:00.
@@ -298,6 +300,64 @@ describe('yard: reports re-plan the rest of the night', () => {
     // Named by the time of the report, not by the night's start it re-plans from.
     const reportedAt = DateTime.fromJSDate(clock, { zone: 'America/Chicago' }).toFormat('HH:mm');
     expect(row!.notes.at(-1)).toBe(`Revised at ${reportedAt}: charger A out of service (Cable worn).`);
+  });
+
+  it('a bus taken as plugged in is off its charger once a step of another bus there is confirmed', async () => {
+    const org = await createOrganisation(app, { s: ['supervisor'] });
+    const depot = (await createDepot(app.db, org.organisationId)).depot.id;
+    await addBuses(app.db, org.organisationId, depot, ['91', '92', '93']);
+    for (const date of ['2026-12-16', '2026-12-17'])
+      await app
+        .request()
+        .put(`/api/depots/${depot}/service-days/${date}`)
+        .set(as(org.users.s!))
+        .send({ runs: dayRuns(date, ['91', '92', '93']) })
+        .expect(200);
+    const planId = await publishedPlan(app, org.users.s!, depot, '2026-12-16');
+    const [row] = await app.db.select().from(plans).where(eq(plans.id, planId));
+    // The plan followed, as the yard was given it: 91 then 92 on charger A, 93 on B.
+    const session = (bus: string, charger: string, start: string, end: string) => ({
+      bus,
+      charger,
+      start: DateTime.fromISO(start, { zone: ZONE }).toISO()!,
+      end: DateTime.fromISO(end, { zone: ZONE }).toISO()!,
+      kwh: 0,
+      kw: [],
+      startMove: 'driver' as const,
+      endMove: 'crew' as const,
+    });
+    const followed = {
+      ...row!.result!,
+      sessions: [
+        session('91', 'A', '2026-12-16T16:30', '2026-12-16T20:00'),
+        session('92', 'A', '2026-12-16T20:00', '2026-12-17T06:15'),
+        session('93', 'B', '2026-12-16T16:30', '2026-12-16T22:00'),
+      ],
+    } as PlanResult;
+    const confirm = (action: 'connect' | 'disconnect', s: (typeof followed.sessions)[number], at: string) =>
+      app.db.insert(yardConfirmations).values({
+        organisationId: org.organisationId,
+        depotId: depot,
+        serviceDate: '2026-12-16',
+        planId,
+        stepKey: stepKey(action, s.bus, s.charger, s.start),
+        confirmedAt: DateTime.fromISO(at, { zone: ZONE }).toJSDate(),
+      });
+    const [s91, s92, s93] = followed.sessions as [
+      PlanResult['sessions'][number],
+      PlanResult['sessions'][number],
+      PlanResult['sessions'][number],
+    ];
+    await confirm('connect', s91, '2026-12-16T16:31');
+    await confirm('connect', s93, '2026-12-16T16:32');
+    const cut = (at: string) =>
+      confirmedPlugged(app.db, depot, '2026-12-16', followed, DateTime.fromISO(at, { zone: ZONE }).toJSDate());
+    // Nobody confirmed 91's unplug: it is taken as still on A.
+    expect(await cut('2026-12-16T21:00')).toEqual({ '91': 'A', '93': 'B' });
+    // 92's plug-in on A was confirmed: 91 came off A before it (before, both "stayed" on A, and
+    // the re-plan refused a state with two buses on one charger).
+    await confirm('connect', s92, '2026-12-16T20:05');
+    expect(await cut('2026-12-16T21:00')).toEqual({ '92': 'A', '93': 'B' });
   });
 
   it('a bus reported absent tonight is not among the buses going out, on the depot card and the district alike', async () => {

@@ -14,8 +14,8 @@ import { horizonOf, type PlanHorizon } from '@nightyard/contracts/plan-horizon';
 export const REASON_TEXT: Record<string, { label: string; detail: string }> = {
   dwell: { label: 'Dwell too short', detail: 'It is not parked long enough to take the energy it needs.' },
   charger: {
-    label: 'Charger too weak',
-    detail: 'The chargers it can use give too little power for the time it is parked.',
+    label: 'Not enough charger time',
+    detail: 'No charger it can use is free and strong enough for long enough while it is parked.',
   },
   cabinet: {
     label: 'Power cabinet limit',

@@ -45,7 +45,7 @@ describe('plan review', () => {
   it('words every engine reason plainly', () => {
     expect(['dwell', 'charger', 'cabinet', 'site', 'taper', null].map(reasonText)).toEqual([
       'Dwell too short',
-      'Charger too weak',
+      'Not enough charger time',
       'Power cabinet limit',
       'Site service limit',
       'Battery taper',
