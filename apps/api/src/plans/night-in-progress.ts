@@ -88,7 +88,10 @@ export function mergeReplan(previous: PlanResult | null, next: Replan, scenario:
       replan: replanFacts(next),
     };
   const firstNew = Date.parse(next.replan.from);
-  const newLoad = new Map(next.slots.map((s) => [Date.parse(s.start), s.loadKw]));
+  // From the cut-off on, the re-plan's slots whole: its load, and the limit and prices it was
+  // planned under (a service limit lowered since the plan followed; before, the followed plan's
+  // 450 kW stood beside a re-plan made under 170 kW).
+  const newSlots = new Map(next.slots.map((s) => [Date.parse(s.start), s]));
   const sessions = mergeSessions(
     keptAsBefore(previous, next.replan.kept as PlanResult['sessions']),
     pluggedAsFollowed(previous, next.sessions, next.replan.plugged, firstNew),
@@ -104,7 +107,7 @@ export function mergeReplan(previous: PlanResult | null, next: Replan, scenario:
   const merged: PlanResult = {
     ...result,
     slots: previous.slots.map((s) =>
-      Date.parse(s.start) >= firstNew ? { ...s, loadKw: newLoad.get(Date.parse(s.start)) ?? s.loadKw } : drawn(s),
+      Date.parse(s.start) >= firstNew ? { ...s, ...newSlots.get(Date.parse(s.start)) } : drawn(s),
     ),
     sessions,
     outOfService: joinSpans([

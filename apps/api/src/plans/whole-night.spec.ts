@@ -144,6 +144,22 @@ describe("a revision's figures are the whole night's", () => {
     expect(whole.cost.demand).toBeCloseTo(demandOf(whole, s), 3);
   });
 
+  it('a re-plan under a service limit lowered since shows that limit from the cut-off on, the old one before', async () => {
+    const s = depot();
+    const v1 = (await planScenario(s, options)) as Plan;
+    const lowered = structuredClone(s);
+    lowered.site.limitKw = Math.round(s.site.limitKw * 0.6);
+    const cut = Date.parse('2026-01-14T23:00:00-06:00');
+    const next = await replan(lowered, { now: '2026-01-14T23:00', previous: v1 }, options);
+    const whole = mergeReplan(v1 as PlanResult, next, lowered);
+    const limits = (after: boolean) =>
+      new Set(whole.slots.filter((x) => Date.parse(x.start) >= cut === after).map((x) => x.limitKw));
+    expect(limits(false)).toEqual(new Set([s.site.limitKw]));
+    expect(limits(true)).toEqual(new Set([lowered.site.limitKw]));
+    // And every figure after the cut-off is the re-plan's own slot.
+    for (const slot of next.slots) expect(whole.slots.find((x) => x.start === slot.start)).toEqual(slot);
+  });
+
   it("a bus the yard plugged in early keeps the plug-in as the plan followed had it: the crew's, not a driver's", async () => {
     const parsed = parseScenario({ ...generateDepot({ buses: 12, seed: 3 }), yard: testYard() });
     if (!parsed.ok) throw new Error(JSON.stringify(parsed.problems));
