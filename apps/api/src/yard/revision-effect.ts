@@ -22,14 +22,16 @@ export function revisionEffect(before: PlanResult, after: PlanResult, currency: 
       .filter((b) => b.shortfallKwh > 0.05)
       .map((b) => ({ bus: b.id, kwh: Math.round(b.shortfallKwh * 10) / 10, cause: b.cause ?? null })),
   };
-  return { ...figures, lines: effectLines(figures, currency) };
+  // The change from the unrounded totals, as Compare gives it (from the cents shown it can be a
+  // cent off: $64.20 to $62.64 is $1.55 lower when the totals were $64.196 and $62.645).
+  return { ...figures, lines: effectLines(figures, after.cost.total - before.cost.total, currency) };
 }
 
 /** The effect in words: one line for the money, one per short bus. */
-function effectLines(e: Omit<RevisionEffect, 'lines'>, currency: string): string[] {
+function effectLines(e: Omit<RevisionEffect, 'lines'>, costChange: number, currency: string): string[] {
   const money = (v: number) => new Intl.NumberFormat('en-US', { style: 'currency', currency }).format(v);
   const lines: string[] = [];
-  const change = toCents(e.costAfter - e.costBefore);
+  const change = toCents(costChange);
   if (Math.abs(change) >= 0.005) {
     const demand =
       Math.abs(e.demandAfter - e.demandBefore) >= 0.005
