@@ -86,6 +86,8 @@ describe('yard steps: a charger reported out inside a slot', () => {
     const stopped = result.sessions.find((s) => s.bus === bus && s.charger === charger && s.start === on!.start)!;
     expect(Date.parse(stopped.end)).toBe(cut);
     expect(stopped.kw.at(-1)).toBeCloseTo((slotKw * 7) / 15, 6);
+    // Out of service from 23:07 (the report), not from 23:00 or 23:15 (the slots around it).
+    expect(result.outOfService!.filter((o) => o.charger === charger).map((o) => Date.parse(o.from))).toEqual([cut]);
 
     // The steps: none on the charger after 23:07; the bus is unplugged now and told where it goes.
     expect(after.steps.filter((s) => s.charger === charger && Date.parse(s.at) > cut)).toEqual([]);

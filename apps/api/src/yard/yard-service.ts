@@ -664,8 +664,21 @@ export async function replanAndPublish(
       report.kind === 'charger_out' ? null : describe,
     );
 
-  // The night as a whole: what was kept before the cut-off, then the re-plan.
-  const whole = mergeReplan(previous, next, floor);
+  // The night as a whole: what was kept before the cut-off, then the re-plan. A charger reported
+  // out is out from the report (its charging stopped there), not from the re-plan's first
+  // quarter-hour: the timeline and Compare say 22:49 as the Yard does, not 23:00.
+  const merged0 = mergeReplan(previous, next, floor);
+  const whole =
+    report.kind === 'charger_out'
+      ? {
+          ...merged0,
+          outOfService: (merged0.outOfService ?? []).map((o) =>
+            o.charger === report.charger && Date.parse(o.from) === Date.parse(next.replan.from)
+              ? { ...o, from: DateTime.fromJSDate(cutAt, { zone }).toISO()! }
+              : o,
+          ),
+        }
+      : merged0;
   const merged =
     targets && followed.target
       ? {
