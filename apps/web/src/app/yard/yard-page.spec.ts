@@ -215,6 +215,23 @@ describe('YardPage', () => {
       'Plan revised at 22:40 (version 2): charger C2 out of service (cable cut). Reported by Kofi Brandt.',
     );
     expect(text(el.querySelector('.status-bar'))).toContain('Plan version 2 (revised)');
+
+    // A reload before "Got it" shows it again (it had gone, unread by whoever held the phone).
+    const reload = async () => {
+      fixture.destroy();
+      fixture = TestBed.createComponent(YardPage);
+      el = fixture.nativeElement;
+      await render();
+      answer(tonight({ plan: revised, now: at('22:43') }));
+      await render();
+    };
+    await reload();
+    expect(text(el.querySelector('.notice'))).toContain('Plan revised at 22:40 (version 2)');
+    [...el.querySelectorAll<HTMLButtonElement>('.notice button')].find((b) => text(b) === 'Got it')!.click();
+    await render();
+    expect(el.querySelector('.notice')).toBeNull();
+    await reload();
+    expect(el.querySelector('.notice')).toBeNull();
   });
 
   it('offers a prefilled out-of-service report when a charger reports a fault', async () => {
@@ -327,6 +344,8 @@ describe('YardPage', () => {
       'Plan revised at 22:30 (version 2): "Plug in bus 203 at charger C2" (due 22:00) did not happen.',
     );
     expect(text(el.querySelector('.notice'))).toContain('Bus 203: C2 22:00 → C2 22:45');
+    // What it does to the night, as the e-mail says it.
+    expect(text(el.querySelector('.notice'))).toContain("The night's projected cost is unchanged: $10.00.");
     expect(card('C2').querySelector('.overdue-list')).toBeNull();
     // The answer is made far down a phone's page and its step leaves the card: the notice is
     // where the focus goes (and so is seen and read out).

@@ -51,6 +51,8 @@ export interface ChargerView {
 export interface Notice {
   text: string;
   moved: string[];
+  /** What the revision does to the night (cost, buses left short), from the report's answer. */
+  effect?: string[];
   version: number;
   /** The revision answers a report or "did not happen" made on this page (the page shows it). */
   mine?: boolean;
@@ -280,14 +282,20 @@ export class YardStore {
     this.notice.set({
       text: heard?.version === version ? heard.text : `Plan revised (version ${version}).`,
       moved: movedLines(result),
+      effect: result.effect.lines,
       version,
       mine: true,
     });
     await this.load();
   }
 
+  /** "Got it": the notice is gone, and stays gone after a reload, until the next version. */
   dismissNotice(): void {
+    const notice = this.notice();
+    const t = this.tonight();
     this.notice.set(null);
+    if (notice && t?.plan)
+      this.writeSeen({ depotId: t.depot.id, serviceDate: t.plan.serviceDate, version: notice.version });
   }
 
   private async fetch(depotId: string): Promise<void> {
@@ -315,24 +323,34 @@ export class YardStore {
     this.state.set('loaded');
   }
 
-  /** A plan of the same night with a higher version than last seen (here or before a reload). */
+  /**
+   * A plan of the same night with a higher version than the person last acknowledged ("Got it",
+   * kept in the browser), else than the one first seen: the notice stays through reloads until
+   * acknowledged. A first look at a night has nothing to tell.
+   */
   private noticeIfRevised(t: Tonight): void {
     const plan = t.plan;
     if (!plan) return;
+    const stored = this.readSeen();
+    const thisNight = stored && stored.depotId === t.depot.id && stored.serviceDate === plan.serviceDate;
     const before = this.tonight()?.plan;
-    const seen = before
-      ? { depotId: t.depot.id, serviceDate: before.serviceDate, version: before.version }
-      : this.readSeen();
-    if (seen && seen.depotId === t.depot.id && seen.serviceDate === plan.serviceDate && plan.version > seen.version) {
-      const mine = this.notice();
-      this.notice.set({
-        text: revisionNotice(plan, t.depot.timezone),
-        moved: mine && mine.version === plan.version ? mine.moved : [],
-        version: plan.version,
-        mine: mine?.version === plan.version && mine.mine,
-      });
-    }
-    this.writeSeen({ depotId: t.depot.id, serviceDate: plan.serviceDate, version: plan.version });
+    const seen = thisNight
+      ? stored
+      : before && before.serviceDate === plan.serviceDate
+        ? { depotId: t.depot.id, serviceDate: before.serviceDate, version: before.version }
+        : null;
+    if (!thisNight)
+      this.writeSeen(seen ?? { depotId: t.depot.id, serviceDate: plan.serviceDate, version: plan.version });
+    if (!seen || plan.version <= seen.version) return;
+    const mine = this.notice();
+    if (mine?.version === plan.version && mine.text !== `Plan revised (version ${plan.version}).`) return;
+    this.notice.set({
+      text: revisionNotice(plan, t.depot.timezone),
+      moved: mine?.version === plan.version ? mine.moved : [],
+      ...(mine?.version === plan.version && mine.effect ? { effect: mine.effect } : {}),
+      version: plan.version,
+      mine: mine?.version === plan.version && mine.mine,
+    });
   }
 
   private readSeen(): Seen | null {
