@@ -1,4 +1,16 @@
-import { ChangeDetectionStrategy, Component, computed, effect, input, output, signal, untracked } from '@angular/core';
+import {
+  ChangeDetectionStrategy,
+  Component,
+  ElementRef,
+  afterRenderEffect,
+  computed,
+  effect,
+  input,
+  output,
+  signal,
+  untracked,
+  viewChild,
+} from '@angular/core';
 import { FormControl, ReactiveFormsModule } from '@angular/forms';
 import { MatButtonModule } from '@angular/material/button';
 import { MatFormFieldModule } from '@angular/material/form-field';
@@ -42,6 +54,10 @@ export class OverdueStep {
     validators: clockTimeValidator('Enter the time it happened'),
   });
   protected readonly asking = signal(false);
+  /** The button that was pressed is replaced by the question: focus moves with it, and back. */
+  private readonly yesButton = viewChild('yes', { read: ElementRef<HTMLButtonElement> });
+  private readonly askButton = viewChild('ask', { read: ElementRef<HTMLButtonElement> });
+  private focusAsk = false;
   protected readonly due = computed(
     () => `Due ${this.view().time}, ${relative(Date.parse(this.view().step.at), this.now())}`,
   );
@@ -53,6 +69,16 @@ export class OverdueStep {
   });
 
   constructor() {
+    // After rendering: the question's buttons exist (or are gone) by then.
+    afterRenderEffect(() => {
+      const yes = this.yesButton()?.nativeElement;
+      const ask = this.askButton()?.nativeElement;
+      if (yes) yes.focus();
+      else if (ask && this.focusAsk) {
+        this.focusAsk = false;
+        ask.focus();
+      }
+    });
     // The planned time to start from: most late steps happened about then. As HH:mm, the field's
     // format, on a weekend's night too (whose steps show their day: "Fri 17:00").
     effect(() => {
@@ -69,7 +95,13 @@ export class OverdueStep {
     this.confirmAt.emit({ view: this.view(), at: this.time.value.trim() });
   }
 
+  protected cancelAsking(): void {
+    this.focusAsk = true;
+    this.asking.set(false);
+  }
+
   protected sayMissed(): void {
+    this.focusAsk = true;
     this.asking.set(false);
     this.missed.emit(this.view());
   }

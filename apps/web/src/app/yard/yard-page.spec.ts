@@ -312,6 +312,8 @@ describe('YardPage', () => {
     expect(text(item().querySelector('.ask'))).toContain(
       'Bus 203 is taken as not plugged in, and the rest of the night is re-planned.',
     );
+    // The button pressed gave way to the question: the focus is on its answer, not lost.
+    expect(text(document.activeElement)).toBe('Yes, it did not happen');
     [...item().querySelectorAll('button')].find((b) => text(b) === 'Yes, it did not happen')!.click();
     await render();
     const req = mock.expectOne({ method: 'POST', url: `/api/depots/${DEPOT_ID}/tonight/missed` });
