@@ -25,6 +25,16 @@ export const REASON_TEXT: Record<string, { label: string; detail: string }> = {
   taper: { label: 'Battery taper', detail: 'Near full, its battery takes power only slowly.' },
 };
 
+/**
+ * The depot's service limit lowered since a plan was made, below what the plan draws: the plan
+ * does not know, and only a new plan keeps to it. Null when the plan keeps to today's limit.
+ */
+export function serviceLimitLowered(peakKw: number, madeUnderKw: number, nowKw: number | undefined): string | null {
+  return nowKw !== undefined && peakKw > nowKw + 0.05 && nowKw < madeUnderKw - 0.05
+    ? `The service limit is now ${num(nowKw)} kW, below this plan's peak (it was made under ${num(madeUnderKw)} kW).`
+    : null;
+}
+
 export function reasonText(reason: string | null): string {
   if (!reason) return 'Not enough energy';
   return REASON_TEXT[reason]?.label ?? reason;

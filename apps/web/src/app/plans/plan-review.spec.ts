@@ -231,6 +231,38 @@ describe('plan review', () => {
     mock.match(() => true);
   });
 
+  it('warns on a plan that draws above a service limit lowered since it was made', async () => {
+    TestBed.configureTestingModule({ providers: [provideHttpClient(), provideHttpClientTesting()] });
+    const mock = TestBed.inject(HttpTestingController);
+    const note = async (state: 'published' | 'superseded', serviceLimitKw: number | undefined) => {
+      const fixture = TestBed.createComponent(PlanReview);
+      const plan = planDetail({ state }) as ReturnType<typeof planDetail> & { result: PlanResult };
+      fixture.componentRef.setInput('plan', plan);
+      fixture.componentRef.setInput('versions', [planSummary()]);
+      fixture.componentRef.setInput('serviceLimitKw', serviceLimitKw);
+      TestBed.tick();
+      await settle();
+      fixture.detectChanges();
+      const peak = Math.max(...plan.result.slots.map((s) => s.loadKw));
+      const el = (fixture.nativeElement as HTMLElement).querySelector('[data-fact="limit-lowered"]');
+      return { peak, text: el?.textContent?.replace(/\s+/g, ' ').trim() ?? null };
+    };
+    // The fixture's plan peaks under its 150 kW limit; the depot's is now below that peak.
+    const { peak } = await note('published', undefined);
+    const below = Math.floor(peak) - 10;
+    expect((await note('published', below)).text).toBe(
+      `The service limit is now ${below} kW, below this plan's peak (it was made under 150 kW). Generate the night again so it keeps to the new limit, and publish it.`,
+    );
+    // A superseded version is history: said, with nothing to do.
+    expect((await note('superseded', below)).text).toBe(
+      `The service limit is now ${below} kW, below this plan's peak (it was made under 150 kW).`,
+    );
+    // Lowered, but still above the peak: nothing to say.
+    expect((await note('published', Math.ceil(peak) + 1)).text).toBeNull();
+    expect((await note('published', undefined)).text).toBeNull();
+    mock.match(() => true);
+  });
+
   it('names a what-if as such when comparing with it', async () => {
     TestBed.configureTestingModule({ providers: [provideHttpClient(), provideHttpClientTesting()] });
     const mock = TestBed.inject(HttpTestingController);

@@ -15,6 +15,7 @@ import {
   num,
   pct,
   planFigures,
+  serviceLimitLowered,
 } from './plan-format';
 import { SiteLoadChart } from './site-load-chart';
 
@@ -31,6 +32,8 @@ export class PlanReview {
   readonly versions = input.required<readonly PlanSummary[]>();
   readonly chargers = input<readonly TimelineCharger[]>([]);
   readonly comparePreferred = input<string | null>(null);
+  /** The depot's service limit today (a plan made under a higher one may draw above it). */
+  readonly serviceLimitKw = input<number | undefined>(undefined);
 
   protected readonly money = money;
   protected readonly num = num;
@@ -41,6 +44,14 @@ export class PlanReview {
   protected readonly rows = computed(() => busRows(this.plan()));
   protected readonly shortRows = computed(() => this.rows().filter((r) => r.short));
   protected readonly limits = computed(() => limitWindows(this.plan().result, this.plan().timezone));
+  protected readonly limitLowered = computed(() => {
+    const lowered = serviceLimitLowered(this.figures().peakKw, this.limits().serviceKw, this.serviceLimitKw());
+    if (!lowered) return null;
+    const p = this.plan();
+    return p.kind === 'what-if' || p.state === 'superseded'
+      ? lowered
+      : `${lowered} Generate the night again so it keeps to the new limit${p.state === 'published' ? ', and publish it' : ''}.`;
+  });
   protected readonly notes = computed(() => groupedNotes(this.plan().notes));
   /** The billing period's demand target the night was planned under (absent in older plans and what-ifs). */
   protected readonly target = computed(() => {

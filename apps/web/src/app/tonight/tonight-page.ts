@@ -26,7 +26,7 @@ import { formatServiceDay } from '../depot-state/depot-format';
 import { DepotListStore } from '../depot-state/depot-list-store';
 import { LiveStore, reloadOnLive, type LiveDepot } from '../depot-state/live-store';
 import { NightStore, type NightDepot } from '../depot-state/night-store';
-import { money, naturalCompare, nightComparison, num, when } from '../plans/plan-format';
+import { money, naturalCompare, nightComparison, num, serviceLimitLowered, when } from '../plans/plan-format';
 import { PlansApi } from '../plans/plans-api';
 import { SectionIntro } from '../sections/section-intro';
 import {
@@ -141,10 +141,8 @@ export class TonightPage {
             // The depot's service limit lowered since the plan was made, below what it draws: the
             // plan does not know, and only a new plan keeps to it.
             lowered: (() => {
-              const nowKw = this.depots.current()?.serviceLimitKw;
-              return nowKw !== undefined && peak.peakKw > nowKw + 0.05 && nowKw < peak.limitKw - 0.05
-                ? `The service limit is now ${num(nowKw)} kW, below this plan's peak (it was made under ${num(peak.limitKw)} kW). Generate the night again under Plans so it keeps to the new limit.`
-                : null;
+              const lowered = serviceLimitLowered(peak.peakKw, peak.limitKw, this.depots.current()?.serviceLimitKw);
+              return lowered && `${lowered} Generate the night again under Plans so it keeps to the new limit.`;
             })(),
           }
         : null,
