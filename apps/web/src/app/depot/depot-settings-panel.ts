@@ -34,12 +34,17 @@ const DRAFT = 'depot-settings';
 /** A bus depot's connection above this is most likely a typing slip (kW). */
 export const PLAUSIBLE_SERVICE_KW = 50_000;
 
-/** Why a service limit is unlikely, or null: above 50 MW, or below the largest charger. */
-export function serviceLimitWarning(kw: number | null, largestChargerKw: number): string | null {
+/**
+ * Why a service limit is unlikely, or null: above 50 MW, at or below the depot's other load (no
+ * charging at all in its busiest hour), or below the largest charger.
+ */
+export function serviceLimitWarning(kw: number | null, largestChargerKw: number, otherLoadKw = 0): string | null {
   if (kw === null || !(kw > 0)) return null;
   if (kw > PLAUSIBLE_SERVICE_KW) {
     return `${formatKw(kw)} is above 50 MW, far more than a bus depot's connection: check the figure (kW, not W).`;
   }
+  if (otherLoadKw >= kw)
+    return `${formatKw(kw)} is no more than the depot's other load (${formatKw(otherLoadKw)} at its highest): no bus could charge then. Check the figure.`;
   if (largestChargerKw > kw)
     return `${formatKw(kw)} is below the depot's largest charger (${formatKw(largestChargerKw)}). Check the figure.`;
   return null;
@@ -109,7 +114,11 @@ export class DepotSettingsPanel implements OnInit {
   protected readonly problemItems = signal<ProblemItem[]>([]);
   private readonly limitKw = signal<number | null>(null);
   protected readonly limitWarning = computed(() =>
-    serviceLimitWarning(this.limitKw(), Math.max(0, ...this.depot().chargers.map((c) => c.maxKw))),
+    serviceLimitWarning(
+      this.limitKw(),
+      Math.max(0, ...this.depot().chargers.map((c) => c.maxKw)),
+      Math.max(0, ...this.depot().otherLoadKw),
+    ),
   );
   protected readonly limitConfirmed = signal(false);
   protected readonly limitMissing = signal(false);
