@@ -71,6 +71,21 @@ describe('a re-plan after a charger is reported out', () => {
     ]);
   });
 
+  it('drops the count beside a reason when every bus moved is one of the others: the headline says it', () => {
+    const followed = { sessions: [session('201', 'C1', '16:00', '06:00')] } as unknown as PlanResult;
+    const at = Date.parse('2026-12-03T22:49:00.000-06:00');
+    const engine = {
+      buses: ['201', '203'],
+      reasons: [
+        'the plan being carried out could not be kept: keeping it would leave buses 12.0 kWh short that a new plan delivers: the rest of the night was planned afresh (2 other buses moved)',
+      ],
+    };
+    expect(recountFaults(engine, followed, [], ['212'], at, 'bus 212 absent tonight').reasons).toEqual([
+      'bus 212 absent tonight',
+      'the plan being carried out could not be kept: keeping it would leave buses 12.0 kWh short that a new plan delivers: the rest of the night was planned afresh',
+    ]);
+  });
+
   it("names this report, not the night's earlier late buses and readings the engine lists", () => {
     // Bus 212 was reported late and bus 221 read earlier; now bus 220 is reported absent.
     const followed = { sessions: [session('220', 'C2', '05:45', '06:30')] } as unknown as PlanResult;

@@ -48,5 +48,8 @@ export function recountFaults(
   // The charger's buses are moved (unplugged now) whether or not the engine saw their plan change:
   // one stopped at the report inside the slot before the cut-off kept its plan from there on.
   const buses = [...new Set([...moved.buses, ...[...on.values()].flatMap((b) => [...b])])].sort();
-  return { buses, reasons: reported ? [reported, ...reasons] : reasons };
+  // Every bus moved is an "other" one: the count beside the reason only repeats the headline's
+  // ("17 buses moved … (17 other buses moved)").
+  const said = others === buses.length ? reasons.map((r) => r.replace(/ \(\d+ other bus(es)? moved\)$/, '')) : reasons;
+  return { buses, reasons: reported ? [reported, ...said] : said };
 }
