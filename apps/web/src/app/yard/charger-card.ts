@@ -78,11 +78,13 @@ export class ChargerCard {
       // Who makes the move, in the run sheet's words: a driver's step is not the crew's walk.
       by: moveBy(v.step),
       button: v.step.action === 'connect' ? 'Confirm plugged in' : 'Confirm unplugged',
-      // More than an hour ahead: asked once more before it is saved (see CONFIRM_EARLY_MS).
+      // Asked once more before it is saved: a step more than an hour ahead (see CONFIRM_EARLY_MS),
+      // or an unplug whose plug-in nobody confirmed (the two are saved in the order they happened,
+      // and a re-plan reads them so).
       early:
         Date.parse(v.step.at) - this.now() > CONFIRM_EARLY_MS
           ? `This step is due ${v.time}, ${relative(Date.parse(v.step.at), this.now())}. Was it really done now?`
-          : null,
+          : unconfirmedPlugIn(v, this.view().overdue),
       label: `${v.step.action === 'connect' ? 'Confirm plugged in' : 'Confirm unplugged'}: bus ${v.step.bus} ${v.step.action === 'connect' ? 'at' : 'from'} charger ${v.step.charger}`,
     };
   });
@@ -150,4 +152,15 @@ export class ChargerCard {
     const v = this.view();
     this.report.emit({ charger: v.label, bus: v.next?.step.bus });
   }
+}
+
+/** The question before an unplug whose plug-in is still among the overdue steps, or null. */
+function unconfirmedPlugIn(v: StepView, overdue: readonly StepView[]): string | null {
+  if (v.step.action !== 'disconnect') return null;
+  const plugIn = overdue.find(
+    (o) => o.step.action === 'connect' && o.step.bus === v.step.bus && o.step.charger === v.step.charger,
+  );
+  return plugIn
+    ? `Bus ${v.step.bus}'s plug-in on ${v.step.charger} (due ${plugIn.time}) is not confirmed: confirm it below with the time it happened first. Was bus ${v.step.bus} really unplugged from ${v.step.charger} now?`
+    : null;
 }

@@ -172,6 +172,25 @@ describe('YardPage', () => {
     await render();
   });
 
+  it('an unplug whose plug-in nobody confirmed is asked about once more, pointing to the plug-in', async () => {
+    // Bus 203's 22:00 plug-in on C2 is overdue; its unplug is moved to 22:45, due within the hour.
+    const t = tonight();
+    await start(
+      tonight({
+        steps: t.steps.map((x) =>
+          x.action === 'disconnect' && x.bus === '203' ? step({ ...x, at: at('22:45'), by: 'crew' }) : x,
+        ),
+      }),
+    );
+    const next = () => card('C2').querySelector('.next')!;
+    next().querySelector<HTMLButtonElement>('button.confirm')!.click();
+    await render();
+    mock.expectNone('/api/yard/confirmations');
+    expect(text(next().querySelector('.ask-early'))).toContain(
+      "Bus 203's plug-in on C2 (due 22:00) is not confirmed: confirm it below with the time it happened first. Was bus 203 really unplugged from C2 now?",
+    );
+  });
+
   it('a step more than an hour ahead is asked about once more before it is saved', async () => {
     await start();
     // C2's next step is its 05:00 unplug, six and a half hours after 22:30.
