@@ -178,5 +178,15 @@ describe('demo seed: the district', () => {
     expect(of('lead')).toEqual([main]);
     expect(of('yard2')).toEqual([kestrel]);
     expect(of('yard3')).toEqual([sandpiper]);
+    // Who starts where: everyone who may open the original depot on it, the others on the list's first.
+    const chosen = await db
+      .select({ email: users.email, depotId: users.chosenDepotId })
+      .from(users)
+      .where(eq(users.organisationId, seeded.organisationId));
+    const startsOn = (key: string) => chosen.find((c) => c.email === seeded.emails[key])!.depotId;
+    for (const key of ['admin', 'finance', 'supervisor', 'facilities', 'yard', 'lead'])
+      expect(startsOn(key), key).toBe(main);
+    expect(startsOn('yard2')).toBeNull();
+    expect(startsOn('yard3')).toBeNull();
   }, 60_000);
 });

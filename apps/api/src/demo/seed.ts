@@ -1,5 +1,5 @@
 import { DateTime } from 'luxon';
-import { eq, sql } from 'drizzle-orm';
+import { eq, inArray, sql } from 'drizzle-orm';
 import { parseScenario, type Plan, type Scenario } from '@nightyard/scheduling';
 import { runInPool } from '../workers/pool';
 import { buildNightScenario } from '../plans/night-scenario';
@@ -118,6 +118,13 @@ export async function seedDemo(
       holds(u.email).map((depotId) => ({ userId: byEmail.get(demoEmail(u.email, tag))!, depotId })),
     );
     if (assignments.length) await tx.insert(userDepots).values(assignments);
+    // Everyone who may open the original depot starts on it (the README's and the tour's depot),
+    // not on the first of the list by name; a switch is remembered as usual from then on.
+    const onMain = [...demoUsers, ...extraUsers]
+      .filter((u) => u.email.split('@')[0] === 'admin' || holds(u.email).includes(depotIds.main!))
+      .map((u) => byEmail.get(demoEmail(u.email, tag))!);
+    if (seeded.length > 1 && onMain.length)
+      await tx.update(users).set({ chosenDepotId: depotIds.main! }).where(inArray(users.id, onMain));
     return { organisationId, depotIds };
   });
   const publishedNights: string[] = [];
