@@ -1,7 +1,7 @@
 import { eq } from 'drizzle-orm';
 import { DateTime } from 'luxon';
 import { beforeAll, describe, expect, it } from 'vitest';
-import type { PlanResult } from '@nightyard/contracts';
+import type { PlanResult, Role } from '@nightyard/contracts';
 import { plans, yardConfirmations } from '../db/schema';
 import { createDepot } from '../testing/depot-fixture';
 import { addBuses, dayRuns } from '../testing/fleet-fixture';
@@ -27,6 +27,30 @@ const NUMBERS = ['41', '42', '43', '44'];
 
 async function tonight() {
   return (await app.request().get(`/api/depots/${depotId}/tonight`).set(as(yard)).expect(200)).body;
+}
+
+/**
+ * A depot of a test's own: buses `numbers` with runs on `night` and the day after (`soc`: arrival
+ * states of charge), and the night's plan published by its supervisor (`s`).
+ */
+async function ownPublishedNight(
+  people: Record<string, Role[]>,
+  numbers: string[],
+  night: string,
+  soc?: (i: number) => number | null,
+) {
+  const org = await createOrganisation(app, { s: ['supervisor'], ...people });
+  const depot = (await createDepot(app.db, org.organisationId)).depot.id;
+  await addBuses(app.db, org.organisationId, depot, numbers);
+  for (const date of [night, DateTime.fromISO(night).plus({ days: 1 }).toISODate()!])
+    await app
+      .request()
+      .put(`/api/depots/${depot}/service-days/${date}`)
+      .set(as(org.users.s!))
+      .send({ runs: dayRuns(date, numbers, soc) })
+      .expect(200);
+  const planId = await publishedPlan(app, org.users.s!, depot, night);
+  return { org, depot, planId };
 }
 
 beforeAll(async () => {
@@ -269,18 +293,7 @@ describe('yard: reports re-plan the rest of the night', () => {
   });
 
   it('a report before the night starts re-plans the whole night', async () => {
-    const org = await createOrganisation(app, { y: ['yard'], s: ['supervisor'] });
-    const depot = (await createDepot(app.db, org.organisationId)).depot.id;
-    await addBuses(app.db, org.organisationId, depot, ['61', '62']);
-    for (const date of ['2026-12-21', '2026-12-22']) {
-      await app
-        .request()
-        .put(`/api/depots/${depot}/service-days/${date}`)
-        .set(as(org.users.s!))
-        .send({ runs: dayRuns(date, ['61', '62'], () => 20) })
-        .expect(200);
-    }
-    await publishedPlan(app, org.users.s!, depot, '2026-12-21');
+    const { org, depot } = await ownPublishedNight({ y: ['yard'] }, ['61', '62'], '2026-12-21', () => 20);
     const t = (await app.request().get(`/api/depots/${depot}/tonight`).set(as(org.users.y!)).expect(200)).body;
     expect(t.plan.horizon.start).toBeGreaterThan(clock.getTime());
     expect(t.plan.horizon.start).toBe(
@@ -303,17 +316,7 @@ describe('yard: reports re-plan the rest of the night', () => {
   });
 
   it('a bus taken as plugged in is off its charger once a step of another bus there is confirmed', async () => {
-    const org = await createOrganisation(app, { s: ['supervisor'] });
-    const depot = (await createDepot(app.db, org.organisationId)).depot.id;
-    await addBuses(app.db, org.organisationId, depot, ['91', '92', '93']);
-    for (const date of ['2026-12-16', '2026-12-17'])
-      await app
-        .request()
-        .put(`/api/depots/${depot}/service-days/${date}`)
-        .set(as(org.users.s!))
-        .send({ runs: dayRuns(date, ['91', '92', '93']) })
-        .expect(200);
-    const planId = await publishedPlan(app, org.users.s!, depot, '2026-12-16');
+    const { org, depot, planId } = await ownPublishedNight({}, ['91', '92', '93'], '2026-12-16');
     const [row] = await app.db.select().from(plans).where(eq(plans.id, planId));
     // The plan followed, as the yard was given it: 91 then 92 on charger A, 93 on B.
     const session = (bus: string, charger: string, start: string, end: string) => ({
@@ -361,18 +364,7 @@ describe('yard: reports re-plan the rest of the night', () => {
   });
 
   it('a bus reported absent tonight is not among the buses going out, on the depot card and the district alike', async () => {
-    const org = await createOrganisation(app, { y: ['yard'], s: ['supervisor'], f: ['finance'] });
-    const depot = (await createDepot(app.db, org.organisationId)).depot.id;
-    const numbers = ['81', '82', '83'];
-    await addBuses(app.db, org.organisationId, depot, numbers);
-    for (const date of ['2026-12-14', '2026-12-15'])
-      await app
-        .request()
-        .put(`/api/depots/${depot}/service-days/${date}`)
-        .set(as(org.users.s!))
-        .send({ runs: dayRuns(date, numbers) })
-        .expect(200);
-    await publishedPlan(app, org.users.s!, depot, '2026-12-14');
+    const { org, depot } = await ownPublishedNight({ y: ['yard'], f: ['finance'] }, ['81', '82', '83'], '2026-12-14');
     clock = DateTime.fromISO('2026-12-14T22:30', { zone: ZONE }).toJSDate();
     await signInAgain(app, org.users.y!, org.users.f!);
     const goingOut = async () => {
@@ -393,18 +385,8 @@ describe('yard: reports re-plan the rest of the night', () => {
   });
 
   it('a reading stands in the re-plans after it: the next report starts the bus from it, not from the estimate', async () => {
-    const org = await createOrganisation(app, { y: ['yard'], s: ['supervisor'] });
+    const { org, depot } = await ownPublishedNight({ y: ['yard'] }, ['71', '72', '73'], '2026-12-21');
     const y = org.users.y!;
-    const depot = (await createDepot(app.db, org.organisationId)).depot.id;
-    await addBuses(app.db, org.organisationId, depot, ['71', '72', '73']);
-    for (const date of ['2026-12-21', '2026-12-22'])
-      await app
-        .request()
-        .put(`/api/depots/${depot}/service-days/${date}`)
-        .set(as(org.users.s!))
-        .send({ runs: dayRuns(date, ['71', '72', '73']) })
-        .expect(200);
-    await publishedPlan(app, org.users.s!, depot, '2026-12-21');
     const report = async (at: string, body: object) => {
       clock = DateTime.fromISO(at, { zone: ZONE }).toJSDate();
       await signInAgain(app, y);
