@@ -31,12 +31,10 @@ describe('DepotListStore', () => {
     const refreshing = store.refresh();
     expect(store.state()).toBe('loaded');
     const base = depot().nextServiceDay!;
-    mock
-      .expectOne('/api/depots')
-      .flush({
-        depots: [depot({ nextServiceDay: { ...base, absentBuses: ['220'] } }), southDepot()],
-        chosenDepotId: null,
-      });
+    mock.expectOne('/api/depots').flush({
+      depots: [depot({ nextServiceDay: { ...base, absentBuses: ['220'] } }), southDepot()],
+      chosenDepotId: null,
+    });
     await refreshing;
     expect(store.current()?.name).toBe('Riverside Depot');
     expect(store.depots()[0]!.nextServiceDay!.absentBuses).toEqual(['220']);
