@@ -92,9 +92,13 @@ export function mergeReplan(previous: PlanResult | null, next: Replan, scenario:
   // planned under (a service limit lowered since the plan followed; before, the followed plan's
   // 450 kW stood beside a re-plan made under 170 kW).
   const newSlots = new Map(next.slots.map((s) => [Date.parse(s.start), s]));
-  const sessions = mergeSessions(
-    keptAsBefore(previous, next.replan.kept as PlanResult['sessions']),
-    pluggedAsFollowed(previous, next.sessions, next.replan.plugged, firstNew),
+  const sessions = staysPluggedIn(
+    mergeSessions(
+      keptAsBefore(previous, next.replan.kept as PlanResult['sessions']),
+      pluggedAsFollowed(previous, next.sessions, next.replan.plugged, firstNew),
+    ),
+    scenario,
+    firstNew,
   );
   // Before the cut-off the load is what was drawn: a late bus's sessions there never happened.
   const was = chargingBySlot(previous.sessions);
@@ -141,6 +145,49 @@ function pluggedAsFollowed(
     const startMove = was?.startMove ?? 'crew';
     return startMove === s.startMove ? s : { ...s, startMove };
   });
+}
+
+/**
+ * A bus whose session the cut-off ends (the plan followed had it on a charger there), put back on
+ * the same charger by the re-plan a little later with nothing else on that charger in between and
+ * the bus at the depot throughout: it stays plugged in (no charging in the gap), one session. The
+ * engine took it as unplugged (nobody confirmed its plug-in), so the crew was told to unplug it and
+ * plug it back in 15 minutes later: two high-voltage handlings for nothing.
+ */
+export function staysPluggedIn(
+  sessions: PlanResult['sessions'],
+  scenario: Pick<Scenario, 'buses' | 'timezone' | 'slotMinutes'>,
+  firstNew: number,
+): PlanResult['sessions'] {
+  const slotMs = scenario.slotMinutes * 60_000;
+  const out = sessions.map((s) => ({ ...s, kw: [...s.kw] }));
+  const stayOf = (bus: string, from: number, to: number) =>
+    scenario.buses
+      .find((b) => b.id === bus)
+      ?.stays.some(
+        (st) =>
+          localToMillis(st.arrive, scenario.timezone)! <= from && to <= localToMillis(st.depart, scenario.timezone)!,
+      ) ?? false;
+  for (let i = 0; i < out.length; i++) {
+    const a = out[i]!;
+    const aEnd = Date.parse(a.end);
+    if (aEnd !== firstNew || Date.parse(a.start) >= firstNew) continue;
+    const b = out.find((x) => x !== a && x.bus === a.bus && x.charger === a.charger && Date.parse(x.start) >= firstNew);
+    if (!b) continue;
+    const bStart = Date.parse(b.start);
+    const between = (x: PlanResult['sessions'][number]) =>
+      x !== a && x !== b && Date.parse(x.start) < bStart && Date.parse(x.end) > aEnd;
+    // The charger idle in between, and the bus on no other charger then and at the depot throughout.
+    if (out.some((x) => (x.charger === a.charger || x.bus === a.bus) && between(x))) continue;
+    if (!stayOf(a.bus, Date.parse(a.start), Date.parse(b.end))) continue;
+    const gap = Math.round((bStart - aEnd) / slotMs);
+    a.kw.push(...Array<number>(gap).fill(0), ...b.kw);
+    a.kwh = Math.round((a.kwh + b.kwh) * 1e6) / 1e6;
+    a.end = b.end;
+    if (b.endMove) a.endMove = b.endMove;
+    out.splice(out.indexOf(b), 1);
+  }
+  return out;
 }
 
 /** Out-of-service spans with those of one charger that meet (the cut-off's two sides) made one. */
