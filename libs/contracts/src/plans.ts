@@ -208,6 +208,12 @@ export const planDetailSchema = planSummarySchema.extend({
    * it plans from. Before it, the night stands as the published plan said (see the notes).
    */
   plannedFrom: z.string().nullable().default(null),
+  /**
+   * Buses whose runs (pull-ins, pull-outs, the energy they need, their arrival energy) are no
+   * longer those the plan was made for: the night should be generated again. Worked out for the
+   * night's published plan and drafts, not for superseded versions and what-ifs.
+   */
+  runsChanged: z.array(z.string()).default([]),
 });
 export type PlanDetail = z.infer<typeof planDetailSchema>;
 

@@ -59,7 +59,7 @@ export type YardSession = z.infer<typeof yardSessionSchema>;
  * The Yard asks for it on every load and refresh, often over a phone's connection; the whole plan
  * is at /plans/{id}.
  */
-export const tonightPlanSchema = planDetailSchema.omit({ result: true, notes: true }).extend({
+export const tonightPlanSchema = planDetailSchema.omit({ result: true, notes: true, runsChanged: true }).extend({
   /** The span the plan covers (epoch ms), null while it has no result. */
   horizon: z.object({ start: z.number(), end: z.number(), slotMs: z.number() }).nullable(),
   sessions: z.array(yardSessionSchema),

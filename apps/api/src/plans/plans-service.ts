@@ -27,6 +27,7 @@ import { nightStaff } from './night-staff';
 import { cutOffAt, type PlanFrom } from './night-in-progress';
 import { movedBetween } from './plan-compare';
 import { versionInputChanges } from './version-inputs';
+import { runsChanged } from './runs-changed';
 import { confirmedPlugged } from '../yard/yard-service';
 
 type PlanRow = typeof plans.$inferSelect;
@@ -252,7 +253,30 @@ export async function listPlans(
 
 export async function getPlan(db: Db, caller: AuthUser, id: string): Promise<PlanDetail> {
   const { plan, createdBy, publishedBy } = await loadPlan(db, caller, id);
-  return planDetailOf(plan, createdBy, publishedBy, resultOf(plan), plan.scenario, plan.replanState?.from ?? null);
+  return {
+    ...planDetailOf(plan, createdBy, publishedBy, resultOf(plan), plan.scenario, plan.replanState?.from ?? null),
+    runsChanged: await runsChangedOf(db, caller, plan),
+  };
+}
+
+/**
+ * The buses whose runs changed since a plan of the night was made (see `runsChanged`): a colder
+ * forecast or a run moved after publishing left "Every bus leaves with the energy its runs need"
+ * standing over a plan that no longer serves them. Superseded versions and what-ifs are history
+ * and studies; a night whose data no longer builds says nothing here (generating says why).
+ */
+async function runsChangedOf(db: Db, caller: AuthUser, plan: PlanRow) {
+  if (plan.kind === 'what-if' || plan.state === 'superseded' || plan.status !== 'done') return [];
+  const planned = parseScenario(plan.scenario);
+  if (!planned.ok) return [];
+  try {
+    const built = await buildNightScenario(db, caller, plan.depotId, plan.serviceDate, plan.includesMidday);
+    const now = parseScenario(built.scenario);
+    return now.ok ? runsChanged(planned.scenario, now.scenario, plan.replanState?.absent ?? []) : [];
+  } catch (err) {
+    if (err instanceof DomainError) return [];
+    throw err;
+  }
 }
 
 /** A plan with its result, from a row and its documents already read (and the result parsed). */
@@ -272,6 +296,7 @@ export function planDetailOf(
     result,
     busCapacityKwh: Object.fromEntries(scenario.buses.map((b) => [b.id, b.usableKwh])),
     plannedFrom,
+    runsChanged: [],
   };
 }
 

@@ -4,7 +4,7 @@ import { plans } from '../db/schema';
 import { createDepot } from '../testing/depot-fixture';
 import { addBuses, dayRuns } from '../testing/fleet-fixture';
 import { mailFor } from '../testing/mail';
-import { generatedPlan } from '../testing/plan-fixture';
+import { generatedPlan, publishedPlan } from '../testing/plan-fixture';
 import { createOrganisation, createTestApp, TEST_START, type TestUser } from '../testing/test-app';
 
 const app = createTestApp();
@@ -308,6 +308,29 @@ describe('plans', () => {
     expect(planned.shortfallKwh).toBe(0);
     // Back at its reserve in the afternoon, it leaves the next morning with the next day's runs and its reserve.
     expect(planned.departures.at(-1).kwh).toBeGreaterThanOrEqual(0.15 * 196 + 69.6 - 1e-6);
+  });
+
+  it("a published plan says which buses' runs changed since it was made", async () => {
+    const org = await createOrganisation(app, { s: ['supervisor'] });
+    const s = org.users.s!;
+    const depot = (await createDepot(app.db, org.organisationId)).depot.id;
+    await addBuses(app.db, org.organisationId, depot, NUMBERS);
+    const putDay = (date: string, runs: ReturnType<typeof dayRuns>) =>
+      app.request().put(`/api/depots/${depot}/service-days/${date}`).set(as(s)).send({ runs }).expect(200);
+    await putDay('2026-12-23', dayRuns('2026-12-23', NUMBERS));
+    await putDay('2026-12-24', dayRuns('2026-12-24', NUMBERS));
+    const id = await publishedPlan(app, s, depot, '2026-12-23');
+    const changed = async () =>
+      (await app.request().get(`/api/plans/${id}`).set(as(s)).expect(200)).body.plan.runsChanged as string[];
+    expect(await changed()).toEqual([]);
+    // Bus 12's morning run grows by 40 miles after publishing: the plan no longer serves it.
+    await putDay(
+      '2026-12-24',
+      dayRuns('2026-12-24', NUMBERS).map((r, i) =>
+        r.busNumber === '12' && i % 2 === 0 ? { ...r, miles: r.miles + 40 } : r,
+      ),
+    );
+    expect(await changed()).toEqual(['12']);
   });
 
   it('a weekend day is refused as a night of its own, with the night it belongs to; nothing is queued', async () => {

@@ -103,6 +103,7 @@ export function planDetail(overrides: Partial<PlanDetail> = {}): PlanDetail {
     result: planResult(),
     busCapacityKwh: { '201': 196, '203': 196, '205': 155 },
     plannedFrom: null,
+    runsChanged: [],
     ...overrides,
   };
 }

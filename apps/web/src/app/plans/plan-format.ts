@@ -35,6 +35,16 @@ export function serviceLimitLowered(peakKw: number, madeUnderKw: number, nowKw: 
     : null;
 }
 
+/**
+ * The buses whose runs changed since a plan was made (`PlanDetail.runsChanged`), in words; null
+ * when none. The caller adds what to do where it is shown.
+ */
+export function runsChangedNote(ids: readonly string[]): string | null {
+  if (!ids.length) return null;
+  const named = ids.length <= 5 ? listOf(ids) : `${ids.slice(0, 5).join(', ')} and ${ids.length - 5} more`;
+  return `The runs of ${ids.length === 1 ? 'bus' : 'buses'} ${named} changed since this plan was made (their times, or the energy they need): it may not serve them.`;
+}
+
 export function reasonText(reason: string | null): string {
   if (!reason) return 'Not enough energy';
   return REASON_TEXT[reason]?.label ?? reason;

@@ -263,6 +263,34 @@ describe('plan review', () => {
     mock.match(() => true);
   });
 
+  it("says which buses' runs changed since the version was made, and what to do", async () => {
+    TestBed.configureTestingModule({ providers: [provideHttpClient(), provideHttpClientTesting()] });
+    const mock = TestBed.inject(HttpTestingController);
+    const banner = async (runsChanged: string[], state: 'published' | 'draft' = 'published') => {
+      const fixture = TestBed.createComponent(PlanReview);
+      fixture.componentRef.setInput(
+        'plan',
+        planDetail({ state, runsChanged }) as ReturnType<typeof planDetail> & {
+          result: PlanResult;
+        },
+      );
+      fixture.componentRef.setInput('versions', [planSummary()]);
+      TestBed.tick();
+      await settle();
+      fixture.detectChanges();
+      const el = (fixture.nativeElement as HTMLElement).querySelector('[data-fact="runs-changed"]');
+      return el?.textContent?.replace(/\s+/g, ' ').trim() ?? null;
+    };
+    expect(await banner([])).toBeNull();
+    expect(await banner(['202'])).toBe(
+      'updateThe runs of bus 202 changed since this plan was made (their times, or the energy they need): it may not serve them. Generate the night again and publish it.',
+    );
+    expect(await banner(['201', '202', '203', '204', '205', '206', '207'], 'draft')).toBe(
+      'updateThe runs of buses 201, 202, 203, 204, 205 and 2 more changed since this plan was made (their times, or the energy they need): it may not serve them. Generate the night again.',
+    );
+    mock.match(() => true);
+  });
+
   it('names a what-if as such when comparing with it', async () => {
     TestBed.configureTestingModule({ providers: [provideHttpClient(), provideHttpClientTesting()] });
     const mock = TestBed.inject(HttpTestingController);

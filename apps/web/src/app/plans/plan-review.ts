@@ -15,6 +15,7 @@ import {
   num,
   pct,
   planFigures,
+  runsChangedNote,
   serviceLimitLowered,
 } from './plan-format';
 import { SiteLoadChart } from './site-load-chart';
@@ -44,6 +45,12 @@ export class PlanReview {
   protected readonly rows = computed(() => busRows(this.plan()));
   protected readonly shortRows = computed(() => this.rows().filter((r) => r.short));
   protected readonly limits = computed(() => limitWindows(this.plan().result, this.plan().timezone));
+  /** Buses whose runs changed since this version was made, in words, with what to do; null when none. */
+  protected readonly runsChanged = computed(() => {
+    const p = this.plan();
+    const note = runsChangedNote(p.runsChanged ?? []);
+    return note && `${note} Generate the night again${p.state === 'published' ? ' and publish it' : ''}.`;
+  });
   protected readonly limitLowered = computed(() => {
     const lowered = serviceLimitLowered(this.figures().peakKw, this.limits().serviceKw, this.serviceLimitKw());
     if (!lowered) return null;

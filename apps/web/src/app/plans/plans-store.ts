@@ -416,7 +416,16 @@ export class PlansStore {
 
 /** The summary part of a plan in full (the list keeps summaries). */
 function toSummary(d: PlanDetail): PlanSummary {
-  const { timezone: _t, currency: _c, notes: _n, result: _r, busCapacityKwh: _b, plannedFrom: _f, ...summary } = d;
+  const {
+    timezone: _t,
+    currency: _c,
+    notes: _n,
+    result: _r,
+    busCapacityKwh: _b,
+    plannedFrom: _f,
+    runsChanged: _rc,
+    ...summary
+  } = d;
   return summary;
 }
 

@@ -144,6 +144,18 @@ describe('TonightPage', () => {
     );
   });
 
+  it("says when buses' runs changed since the published plan was made", async () => {
+    await start();
+    await chargers([charger('C1')]);
+    await night('2026-12-01', [planSummary({ id: PLAN_IDS.published, serviceDate: '2026-12-01', state: 'published' })]);
+    await detail(
+      planDetail({ id: PLAN_IDS.published, serviceDate: '2026-12-01', state: 'published', runsChanged: ['201'] }),
+    );
+    expect(fact('runs-changed')).toBe(
+      'update The runs of bus 201 changed since this plan was made (their times, or the energy they need): it may not serve them. Generate the night again under Plans and publish it.',
+    );
+  });
+
   it('says nothing of a lowered limit the plan keeps to', async () => {
     await start(['admin'], 130);
     await chargers([charger('C1')]);

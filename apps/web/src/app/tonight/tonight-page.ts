@@ -26,7 +26,15 @@ import { formatServiceDay } from '../depot-state/depot-format';
 import { DepotListStore } from '../depot-state/depot-list-store';
 import { LiveStore, reloadOnLive, type LiveDepot } from '../depot-state/live-store';
 import { NightStore, type NightDepot } from '../depot-state/night-store';
-import { money, naturalCompare, nightComparison, num, serviceLimitLowered, when } from '../plans/plan-format';
+import {
+  money,
+  naturalCompare,
+  nightComparison,
+  num,
+  runsChangedNote,
+  serviceLimitLowered,
+  when,
+} from '../plans/plan-format';
 import { PlansApi } from '../plans/plans-api';
 import { SectionIntro } from '../sections/section-intro';
 import {
@@ -148,6 +156,10 @@ export class TonightPage {
         : null,
       baselinePeak: r ? `${num(r.baseline.peakKw)} kW` : null,
       short,
+      runsChanged: (() => {
+        const note = runsChangedNote(p.runsChanged ?? []);
+        return note && `${note} Generate the night again under Plans and publish it.`;
+      })(),
       shortKwh: short.map((s) => `${num(s.shortfallKwh)} kWh`),
     };
   });
