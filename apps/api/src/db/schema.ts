@@ -170,16 +170,21 @@ export const userDepots = pgTable(
   (t) => [primaryKey({ columns: [t.userId, t.depotId] }), index('user_depots_depot_idx').on(t.depotId)],
 );
 
-export const powerCabinets = pgTable('power_cabinets', {
-  id: id(),
-  organisationId: orgRef(),
-  depotId: uuid('depot_id')
-    .notNull()
-    .references(() => depots.id, { onDelete: 'cascade' }),
-  label: text('label').notNull(),
-  limitKw: doublePrecision('limit_kw').notNull(),
-  createdAt: createdAt(),
-});
+export const powerCabinets = pgTable(
+  'power_cabinets',
+  {
+    id: id(),
+    organisationId: orgRef(),
+    depotId: uuid('depot_id')
+      .notNull()
+      .references(() => depots.id, { onDelete: 'cascade' }),
+    label: text('label').notNull(),
+    limitKw: doublePrecision('limit_kw').notNull(),
+    createdAt: createdAt(),
+  },
+  // Chargers are wired to a cabinet by choosing its label: two of one name are two limits confused.
+  (t) => [uniqueIndex('power_cabinets_depot_label_key').on(t.depotId, t.label)],
+);
 
 export const chargerStatus = pgEnum('charger_status', ['in_service', 'out_of_service']);
 

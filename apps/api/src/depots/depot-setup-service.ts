@@ -227,7 +227,8 @@ export async function createCabinet(
   const [row] = await db
     .insert(powerCabinets)
     .values({ ...input, organisationId: caller.organisationId, depotId })
-    .returning();
+    .returning()
+    .catch((err: unknown) => uniqueLabel(err, 'power cabinet'));
   return { id: row!.id, label: row!.label, limitKw: row!.limitKw, chargerCount: 0 };
 }
 
@@ -243,7 +244,8 @@ export async function updateCabinet(
     .update(powerCabinets)
     .set(input)
     .where(and(eq(powerCabinets.id, id), eq(powerCabinets.depotId, depotId)))
-    .returning();
+    .returning()
+    .catch((err: unknown) => uniqueLabel(err, 'power cabinet'));
   if (!row) throw notFound('That power cabinet');
   const [n] = await db
     .select({ n: sql<number>`count(*)::int` })

@@ -1,7 +1,7 @@
 import { eq } from 'drizzle-orm';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { parseScenario } from '@nightyard/scheduling';
-import { chargers, loadReductionWindows } from '../db/schema';
+import { chargers, powerCabinets, loadReductionWindows } from '../db/schema';
 import { createDepot } from '../testing/depot-fixture';
 import { createOrganisation, createTestApp, type TestUser } from '../testing/test-app';
 
@@ -96,6 +96,30 @@ describe('depot', () => {
     expect(dup.body.error.fields.label).toBe('Already used in this depot');
     const after = (await app.db.select().from(chargers).where(eq(chargers.depotId, depot.depot.id))).length;
     expect(after).toBe(before);
+    // Cabinets too: a charger is wired to one by its label, so two of one name are refused.
+    const cabinets = async () =>
+      (await app.db.select().from(powerCabinets).where(eq(powerCabinets.depotId, depot.depot.id))).map((c) => c.label);
+    const twin = await app
+      .request()
+      .post(`${base()}/cabinets`)
+      .set(as(fac))
+      .send({ label: 'P1', limitKw: 100 })
+      .expect(409);
+    expect(twin.body.error.message).toBe('This depot already has a power cabinet with that label');
+    expect(twin.body.error.fields.label).toBe('Already used in this depot');
+    const second = await app
+      .request()
+      .post(`${base()}/cabinets`)
+      .set(as(fac))
+      .send({ label: 'P2', limitKw: 100 })
+      .expect(201);
+    await app
+      .request()
+      .put(`${base()}/cabinets/${second.body.cabinet.id}`)
+      .set(as(fac))
+      .send({ label: 'P1', limitKw: 100 })
+      .expect(409);
+    expect((await cabinets()).sort()).toEqual(['P1', 'P2']);
   });
 
   it('settings: a 24-hour other-load profile, a bad time zone and a zero limit', async () => {
