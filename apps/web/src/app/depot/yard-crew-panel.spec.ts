@@ -73,6 +73,7 @@ describe('YardCrewPanel', () => {
     };
     await set('Shift 2 to', '04:30');
     await set('Shift 2 crew moves per 15 minutes', '0');
+    await set('Shift 1 from', '25:00');
     button('Save yard crew').click();
     await refresh();
     mock.expectNone(`/api/depots/${DEPOT_ID}/yard-crew`);
@@ -80,6 +81,8 @@ describe('YardCrewPanel', () => {
     expect(text).toContain('A shift must end at another time than it starts');
     expect(text).toContain('At least 1 move');
     expect(text).not.toContain('Too small');
+    expect(text).toContain('Write the time as HH:mm, 00:00 to 23:59');
+    expect(text).not.toContain('pattern');
     expect(text).toContain('Check the fields marked in red.');
     // Put right, the message goes.
     await set('Shift 2 to', '07:00');

@@ -14,15 +14,15 @@ import {
   type CrewShift,
   type YardCrew,
 } from '@nightyard/contracts';
-import { z } from 'zod';
 import { toApiProblem } from '../core/api-error';
 import { applyServerErrors, errorText, zodValidator } from '../shared/form-paths';
 import { ProblemSummary, type ProblemItem } from '../shared/problem-summary';
 import { DepotApi } from './depot-api';
 import { trackUnsaved } from '../core/unsaved-edits';
 
-const clockText = z.string().regex(/^([01]\d|2[0-3]):[0-5]\d$/);
-// The contract's own messages ("At least 1 move"), not zod's ("Too small: expected number to be >=1").
+// The contract's own messages ("At least 1 move", "Write the time as HH:mm, 00:00 to 23:59"), not
+// zod's ("Too small: expected number to be >=1", "Invalid string: must match pattern …").
+const clockText = crewShiftSchema.shape.from;
 const moves = crewShiftSchema.shape.movesPerSlot;
 
 /**
