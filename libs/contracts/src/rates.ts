@@ -154,6 +154,16 @@ export const ratePlanDefinitionSchema = z
   .superRefine((plan, ctx) => {
     checkSeasonsCoverYear(plan.seasons, ctx);
     plan.seasons.forEach((s, i) => checkWindowsDoNotOverlap(s, i, ctx));
+    // A date typed over another's is one holiday lost without a word (New Year's Day over Christmas).
+    plan.holidays.forEach((date, i) => {
+      const first = plan.holidays.indexOf(date);
+      if (first < i)
+        ctx.addIssue({
+          code: 'custom',
+          path: ['holidays', i],
+          message: `${date} is already holiday ${first + 1}: remove one, or give the date you meant`,
+        });
+    });
   });
 export type RatePlanDefinition = z.infer<typeof ratePlanDefinitionSchema>;
 

@@ -101,6 +101,27 @@ describe('rate plans', () => {
     );
   });
 
+  it('a holiday listed twice is refused (one typed over another), and nothing is saved', async () => {
+    const before = (await app.request().get('/api/rate-plans').set(as(fac)).expect(200)).body.ratePlans.length;
+    const res = await app
+      .request()
+      .post('/api/rate-plans')
+      .set(as(fac))
+      .send({
+        name: 'Twice Christmas',
+        definition: {
+          currency: 'USD',
+          seasons: [{ name: 'All', fromMonth: 1, toMonth: 12, offPeakPrice: 0.08, periods: [] }],
+          holidays: ['2026-12-25', '2026-12-25', '2027-01-01'],
+        },
+      })
+      .expect(400);
+    expect(res.body.error.fields['definition.holidays[1]']).toBe(
+      '2026-12-25 is already holiday 1: remove one, or give the date you meant',
+    );
+    expect((await app.request().get('/api/rate-plans').set(as(fac)).expect(200)).body.ratePlans).toHaveLength(before);
+  });
+
   it('another organisation cannot read, preview or assign the plan', async () => {
     const { body } = await app.request().get('/api/rate-plans').set(as(fac)).expect(200);
     const id = body.ratePlans[0].id;
