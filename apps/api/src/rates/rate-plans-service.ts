@@ -33,7 +33,7 @@ export async function getRatePlan(db: Db, caller: AuthUser, id: string): Promise
   return toPlan(row);
 }
 
-export async function createRatePlan(db: Db, caller: AuthUser, input: SaveRatePlan): Promise<RatePlan> {
+export async function createRatePlan(db: Db, caller: AuthUser, input: SaveRatePlan, now: Date): Promise<RatePlan> {
   const [row] = await db
     .insert(ratePlans)
     .values({
@@ -41,6 +41,8 @@ export async function createRatePlan(db: Db, caller: AuthUser, input: SaveRatePl
       name: input.name,
       currency: input.definition.currency,
       definition: input.definition,
+      // Dated by the app's clock, as everything it says.
+      createdAt: now,
     })
     .returning();
   return toPlan(row!);

@@ -32,6 +32,8 @@ describe('rate plans', () => {
       .set(as(fac))
       .send({ name: mapped.body.name, definition: mapped.body.definition })
       .expect(201);
+    // Dated by the app's clock (a test instant), not the machine's.
+    expect(Math.abs(Date.parse(saved.body.ratePlan.createdAt) - app.deps.clock().getTime())).toBeLessThan(60_000);
     await app
       .request()
       .post(`/api/depots/${depotId}/rate-plans`)

@@ -18,7 +18,7 @@ import { importUrdb } from './urdb-import';
 const idParams = z.strictObject({ id: z.uuid('Not a rate plan id') });
 const planBody = z.object({ ratePlan: ratePlanSchema });
 
-export function ratesRoutes(api: ApiRoutes, { db }: AppDeps) {
+export function ratesRoutes(api: ApiRoutes, { db, clock }: AppDeps) {
   api.add(
     {
       method: 'get',
@@ -53,7 +53,7 @@ export function ratesRoutes(api: ApiRoutes, { db }: AppDeps) {
       response: planBody,
       status: 201,
     },
-    async ({ user, body }) => ({ ratePlan: await ratePlanService.createRatePlan(db, user, body) }),
+    async ({ user, body }) => ({ ratePlan: await ratePlanService.createRatePlan(db, user, body, clock()) }),
   );
   api.add(
     {

@@ -136,6 +136,8 @@ export async function inviteUser(
               name: req.name,
               roles: req.roles,
               status: 'invited',
+              // Dated by the app's clock, as everything it says.
+              createdAt: now,
             })
             .returning()
         )[0]!;

@@ -32,6 +32,8 @@ describe('invitations', () => {
       .send({ email, name: 'Noor Haddad', roles: ['yard', 'supervisor'], depotIds: [depotId] })
       .expect(201);
     expect(invited.body.user.status).toBe('invited');
+    // Dated by the app's clock (a test instant), not the machine's.
+    expect(Math.abs(Date.parse(invited.body.user.createdAt) - app.deps.clock().getTime())).toBeLessThan(60_000);
 
     const [mail] = await mailFor(email);
     expect(mail!.subject).toMatch(/invited to Nightyard/);
