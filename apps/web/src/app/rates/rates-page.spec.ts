@@ -21,7 +21,7 @@ describe('RatesPage', () => {
 
   afterEach(() => mock.verify());
 
-  async function render(roles: Role[]) {
+  async function render(roles: Role[], plans = [ratePlan()]) {
     const store = TestBed.inject(AuthStore);
     const signingIn = store.signIn('ada@example.org', 'pw');
     mock.expectOne('/api/auth/login').flush(tokenResponse(roles));
@@ -30,7 +30,7 @@ describe('RatesPage', () => {
     el = fixture.nativeElement;
     mock.expectOne('/api/depots').flush({ depots: [depot({ id: DEPOT_ID })] });
     await settle();
-    mock.expectOne('/api/rate-plans').flush({ ratePlans: [ratePlan()] });
+    mock.expectOne('/api/rate-plans').flush({ ratePlans: plans });
     mock.expectOne(`/api/depots/${DEPOT_ID}`).flush({ depot: depotDetail() });
     await refresh();
   }
@@ -48,6 +48,17 @@ describe('RatesPage', () => {
     expect(el.textContent).toContain('New rate plan');
     expect(el.textContent).toContain('Assign to depot');
     expect(el.querySelector('[aria-label="Edit Commercial TOU"]')).not.toBeNull();
+  });
+
+  it('counts a period priced in two seasons once', async () => {
+    const plan = ratePlan();
+    const [summer, winter] = plan.definition.seasons;
+    const both = {
+      ...plan,
+      definition: { ...plan.definition, seasons: [summer!, { ...winter!, periods: summer!.periods }] },
+    };
+    await render(['finance'], [both]);
+    expect(el.textContent!.replace(/\s+/g, ' ')).toContain('Off-peak and 1 time-of-use period ·');
   });
 
   it("shows a finance user the plans and the depot's assignment read-only", async () => {

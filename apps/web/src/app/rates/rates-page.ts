@@ -136,7 +136,8 @@ export class RatesPage {
         seasons,
         inForce: current?.ratePlanId === plan.id,
         used: uses.length > 0,
-        periods: plan.definition.seasons.reduce((n, s) => n + s.periods.length, 0),
+        // Periods by name: a summer and a winter on-peak are one period priced twice.
+        periods: new Set(plan.definition.seasons.flatMap((s) => s.periods.map((p) => p.name))).size,
       };
     });
   });
