@@ -129,7 +129,7 @@ describe('a plan for a night already under way', () => {
     const cut = at('2026-12-08T00:15').getTime();
     expect(Date.parse(result.slots[0]!.start)).toBe(cut);
     for (const s of result.sessions) expect(Date.parse(s.start)).toBeGreaterThanOrEqual(cut);
-    expect(detail.notes[0]).toMatch(/under way at 00:02 with no published plan: this plan starts then/);
+    expect(detail.notes[0]).toMatch(/under way at 00:02 with no published plan: this plan starts at 00:15/);
   });
 
   it('with a published plan: before now it stands as published, nothing new is placed in the past', async () => {
@@ -151,7 +151,7 @@ describe('a plan for a night already under way', () => {
       if (Date.parse(s.start) < cut) expect(kept.has(`${s.bus} ${s.charger} ${Date.parse(s.start)}`)).toBe(true);
     }
     expect(second!.notes[0]).toMatch(
-      /under way at 00:02: this plan starts then; before it, version 1 stands as published/,
+      /under way at 00:02: this plan starts at 00:15; before it, version 1 stands as published/,
     );
     expect(second!.replanState).toMatchObject({ from: '2026-12-09T00:02', previousPlanId: firstId });
   });

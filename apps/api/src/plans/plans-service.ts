@@ -161,6 +161,8 @@ export async function prepareNight(
     );
   }
   const from = cutOffAt(parsed.scenario, now);
+  // The engine plans in whole slots from the night's start: from the first boundary at or after the cut-off.
+  const startsAt = from ? firstSlotAt(parsed.scenario, from) : null;
   let planFrom: PlanFrom | undefined;
   if (from) {
     const [followed] = await db
@@ -173,11 +175,20 @@ export async function prepareNight(
     planFrom = { from, previousPlanId: result ? followed!.id : null, plugged, ...(socReadings ? { socReadings } : {}) };
     notes.unshift(
       result
-        ? `The night was under way at ${from.slice(11)}: this plan starts then; before it, version ${followed!.version} stands as published${Object.keys(plugged).length ? `, and the ${Object.keys(plugged).length} buses confirmed on a charger stay there` : ''}.`
-        : `The night was under way at ${from.slice(11)} with no published plan: this plan starts then and takes each bus as it arrived (no charging before then).`,
+        ? `The night was under way at ${from.slice(11)}: this plan starts at ${startsAt}; before it, version ${followed!.version} stands as published${Object.keys(plugged).length ? `, and the ${Object.keys(plugged).length} buses confirmed on a charger stay there` : ''}.`
+        : `The night was under way at ${from.slice(11)} with no published plan: this plan starts at ${startsAt} and takes each bus as it arrived (no charging before then).`,
     );
   }
   return { includesMidday: includeMidday, scenario, notes, ...(planFrom ? { planFrom } : {}) };
+}
+
+/** Local HH:mm of the first slot boundary of a scenario at or after a local time (YYYY-MM-DDTHH:mm). */
+function firstSlotAt(scenario: Scenario, local: string): string {
+  const start = localToMillis(scenario.start, scenario.timezone)!;
+  const slotMs = scenario.slotMinutes * 60_000;
+  const at = localToMillis(local, scenario.timezone)!;
+  const first = start + Math.ceil((at - start) / slotMs) * slotMs;
+  return DateTime.fromMillis(first, { zone: scenario.timezone }).toFormat('HH:mm');
 }
 
 /** The engine's work grows with buses x slots: a what-if larger than the limit is refused before it is queued. */

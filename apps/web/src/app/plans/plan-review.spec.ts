@@ -109,6 +109,25 @@ describe('plan review', () => {
     expect(await costCard({})).not.toContain('as drawn');
   });
 
+  it('says when a plan made during its night was made and the quarter-hour it plans from', async () => {
+    TestBed.configureTestingModule({ providers: [provideHttpClient(), provideHttpClientTesting()] });
+    const fixture = TestBed.createComponent(PlanReview);
+    const plan = planDetail({ plannedFrom: '2026-01-14T22:49' });
+    const result = {
+      ...plan.result!,
+      replan: { from: '2026-01-14T23:00:00.000-06:00', own: { cost: plan.result!.cost, lowerBound: 0 } },
+    };
+    fixture.componentRef.setInput('plan', { ...plan, result } as typeof plan & { result: PlanResult });
+    fixture.componentRef.setInput('versions', [planSummary()]);
+    TestBed.tick();
+    await settle();
+    fixture.detectChanges();
+    const note = (fixture.nativeElement as HTMLElement).querySelector('[aria-label="Planned from"]');
+    expect(note?.textContent?.replace(/\s+/g, ' ')).toContain(
+      'The night was under way when this plan was made, at 22:49: it plans from 23:00 on, the next quarter-hour.',
+    );
+  });
+
   it("says why a plan with the crew's rules can pay more for energy than the baseline", async () => {
     const card = await costCard({ crewMoves: 6, cost: { energy: 20.04, demand: 89.98, total: 110.02 } });
     expect(card).toContain('Extra energy cost $0.04');
