@@ -7,7 +7,10 @@ import { z } from 'zod';
 
 const shiftClock = z.string().regex(/^([01]\d|2[0-3]):[0-5]\d$/, 'Write the time as HH:mm, 00:00 to 23:59');
 
-/** One crew shift, every day: from and to as local times; a `to` at or before `from` runs past midnight. */
+/**
+ * One crew shift: from and to as local times (a `to` at or before `from` runs past midnight), on
+ * the days it starts (`days`, ISO weekdays 1 Monday to 7 Sunday; absent: every day).
+ */
 export const crewShiftSchema = z
   .strictObject({
     from: shiftClock,
@@ -17,6 +20,18 @@ export const crewShiftSchema = z
       .int('A whole number of moves')
       .min(1, 'At least 1 move')
       .max(50, 'At most 50 moves per 15 minutes'),
+    days: z
+      .array(
+        z
+          .number()
+          .int()
+          .min(1, 'A weekday is 1 (Monday) to 7 (Sunday)')
+          .max(7, 'A weekday is 1 (Monday) to 7 (Sunday)'),
+      )
+      .min(1, 'Choose at least one day for the shift')
+      .max(7)
+      .refine((d) => new Set(d).size === d.length, 'Each day once')
+      .optional(),
   })
   .refine((s) => s.from !== s.to, { message: 'A shift must end at another time than it starts', path: ['to'] });
 export type CrewShift = z.infer<typeof crewShiftSchema>;

@@ -351,6 +351,31 @@ describe('scenario base', () => {
       ],
     });
     expect(parsed.ok ? [] : parsed.problems).toEqual([]);
+    // Shifts on weekdays only (nobody at weekends): Friday's evening shift, then Monday's morning one.
+    const weekdays = [1, 2, 3, 4, 5];
+    await app
+      .request()
+      .put(`${base()}/yard-crew`)
+      .set(as(fac))
+      .send({ ...yardCrew, shifts: yardCrew.shifts.map((x) => ({ ...x, days: weekdays })) })
+      .expect(200);
+    const weekend = await app
+      .request()
+      .get(`${base()}/scenario-base`)
+      .query({ start: '2026-12-11T12:00', end: '2026-12-14T09:00' })
+      .set(as(fac))
+      .expect(200);
+    expect(weekend.body.scenario.yard.crew).toEqual([
+      { from: '2026-12-11T15:00', to: '2026-12-11T23:30', movesPerSlot: 3 },
+      { from: '2026-12-14T04:30', to: '2026-12-14T07:00', movesPerSlot: 2 },
+    ]);
+    const noDay = await app
+      .request()
+      .put(`${base()}/yard-crew`)
+      .set(as(fac))
+      .send({ ...yardCrew, shifts: [{ ...yardCrew.shifts[0], days: [] }] })
+      .expect(400);
+    expect(noDay.body.error.fields['shifts[0].days']).toBe('Choose at least one day for the shift');
     await app
       .request()
       .put(`${base()}/yard-crew`)

@@ -209,8 +209,8 @@ export async function buildScenarioBase(
 }
 
 /**
- * The depot's yard crew over the horizon: each daily shift written as dated crew windows (a
- * shift that ends at or before its start runs past midnight), cut to the horizon. No shift
+ * The depot's yard crew over the horizon: each shift written as dated crew windows on the days it
+ * starts (a shift that ends at or before its start runs past midnight), cut to the horizon. No shift
  * listed: the crew can make moves at any hour (the scenario's `crew` is left out).
  */
 export function yardFor(
@@ -221,6 +221,8 @@ export function yardFor(
   const windows: { from: string; to: string; movesPerSlot: number }[] = [];
   for (let day = from.startOf('day').minus({ days: 1 }); day < to; day = day.plus({ days: 1 })) {
     for (const shift of crew.shifts) {
+      // A shift on some days only (no one on weekends): a shift past midnight belongs to the day it starts.
+      if (shift.days && !shift.days.includes(day.weekday)) continue;
       const [fh, fm] = shift.from.split(':').map(Number);
       const [th, tm] = shift.to.split(':').map(Number);
       const a = day.set({ hour: fh!, minute: fm! });

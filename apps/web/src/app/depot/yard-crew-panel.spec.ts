@@ -3,7 +3,7 @@ import { HttpTestingController, provideHttpClientTesting } from '@angular/common
 import { ComponentFixture, TestBed } from '@angular/core/testing';
 import { DEPOT_ID, depotDetail } from '../shared/setup-fixtures';
 import { settle } from '../testing/fixtures';
-import { YardCrewPanel } from './yard-crew-panel';
+import { YardCrewPanel, daysText } from './yard-crew-panel';
 
 describe('YardCrewPanel', () => {
   let fixture: ComponentFixture<YardCrewPanel>;
@@ -40,7 +40,7 @@ describe('YardCrewPanel', () => {
     const text = el.textContent!.replace(/\s+/g, ' ');
     expect(text).toContain('45 min');
     expect(text).toContain('Drivers plug in on pulling in and unplug on pulling out');
-    expect(text).toContain('15:00-23:30, 3 moves per 15 min; 04:30-07:00, 2 moves per 15 min');
+    expect(text).toContain('15:00-23:30 every day, 3 moves per 15 min; 04:30-07:00 every day, 2 moves per 15 min');
     // The tolerance's amount as money in the rate plan's currency (it read "or 5 in the rate plan's currency").
     fixture.componentRef.setInput('currency', 'USD');
     await refresh();
@@ -59,6 +59,33 @@ describe('YardCrewPanel', () => {
     expect(req.request.body.costTolerancePercent).toBe(0.5);
     req.flush({ yardCrew: req.request.body });
     await refresh();
+  });
+
+  it('keeps a shift to weekdays: the days ticked are saved, and said in short', async () => {
+    button('Edit yard crew').click();
+    await refresh();
+    const day = (name: string) =>
+      el.querySelector<HTMLInputElement>(
+        `mat-checkbox[aria-label="Shift 2 on ${name}"] input, input[aria-label="Shift 2 on ${name}"]`,
+      )!;
+    for (const name of ['Saturday', 'Sunday']) {
+      day(name).click();
+      await refresh();
+    }
+    button('Save yard crew').click();
+    await refresh();
+    const req = mock.expectOne(`/api/depots/${DEPOT_ID}/yard-crew`);
+    expect(req.request.body.shifts[1]).toEqual({ from: '04:30', to: '07:00', movesPerSlot: 2, days: [1, 2, 3, 4, 5] });
+    // Every day ticked: no list, as before days existed.
+    expect(req.request.body.shifts[0]).not.toHaveProperty('days');
+    req.flush({ yardCrew: req.request.body });
+    await refresh();
+    // The depot page passes the saved crew back in.
+    fixture.componentRef.setInput('yardCrew', req.request.body);
+    await refresh();
+    expect(el.textContent!.replace(/\s+/g, ' ')).toContain('04:30-07:00 Mon-Fri, 2 moves per 15 min');
+    expect(daysText([6, 7])).toBe('Sat, Sun');
+    expect(daysText([1, 2, 3, 5])).toBe('Mon-Wed, Fri');
   });
 
   it('says a shift that ends when it starts, and moves below 1, in words before saving', async () => {

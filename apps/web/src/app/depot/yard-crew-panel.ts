@@ -33,7 +33,8 @@ const moves = crewShiftSchema.shape.movesPerSlot;
 const shiftTimes: ValidatorFn = (group) => {
   const to = group.get('to');
   if (!to) return null;
-  const parsed = crewShiftSchema.safeParse({ ...group.value, movesPerSlot: 1 });
+  const { from, to: until } = group.value as { from: string; to: string };
+  const parsed = crewShiftSchema.safeParse({ from, to: until, movesPerSlot: 1 });
   const issue = parsed.success ? undefined : parsed.error.issues.find((i) => i.code === 'custom' && i.path[0] === 'to');
   const { shiftTimes: _, ...others } = to.errors ?? {};
   const errors = issue ? { ...others, shiftTimes: issue.message } : others;
@@ -41,7 +42,44 @@ const shiftTimes: ValidatorFn = (group) => {
   return null;
 };
 
+/** The week as the form shows it, Monday first (ISO weekdays 1 to 7). */
+const WEEK = [
+  { day: 1, short: 'Mon', name: 'Monday' },
+  { day: 2, short: 'Tue', name: 'Tuesday' },
+  { day: 3, short: 'Wed', name: 'Wednesday' },
+  { day: 4, short: 'Thu', name: 'Thursday' },
+  { day: 5, short: 'Fri', name: 'Friday' },
+  { day: 6, short: 'Sat', name: 'Saturday' },
+  { day: 7, short: 'Sun', name: 'Sunday' },
+] as const;
+
+/** A shift's days in words: "every day", "Mon-Fri", "Sat, Sun", "Mon-Wed, Fri". */
+export function daysText(days: readonly number[] | undefined): string {
+  const on = new Set(days ?? WEEK.map((w) => w.day));
+  if (on.size === 7) return 'every day';
+  const runs: string[] = [];
+  for (let i = 0; i < 7; i++) {
+    if (!on.has(i + 1)) continue;
+    let j = i;
+    while (j + 1 < 7 && on.has(j + 2)) j++;
+    runs.push(
+      j - i >= 2
+        ? `${WEEK[i]!.short}-${WEEK[j]!.short}`
+        : WEEK.slice(i, j + 1)
+            .map((w) => w.short)
+            .join(', '),
+    );
+    i = j;
+  }
+  return runs.join(', ');
+}
+
+/** At least one day ticked: the contract's words. */
+const someDay: ValidatorFn = (days) =>
+  (days.value as boolean[]).some(Boolean) ? null : { zod: 'Choose at least one day for the shift' };
+
 function shiftGroup(s: CrewShift | null) {
+  const on = new Set(s?.days ?? WEEK.map((w) => w.day));
   return new FormGroup(
     {
       from: new FormControl(s?.from ?? '', {
@@ -53,6 +91,10 @@ function shiftGroup(s: CrewShift | null) {
         validators: zodValidator(clockText, 'Write the time as HH:mm'),
       }),
       movesPerSlot: new FormControl<number | null>(s?.movesPerSlot ?? 2, zodValidator(moves, 'Enter 1 to 50 moves')),
+      days: new FormArray(
+        WEEK.map((w) => new FormControl(on.has(w.day), { nonNullable: true })),
+        someDay,
+      ),
     },
     { validators: shiftTimes },
   );
@@ -121,7 +163,8 @@ type CrewForm = ReturnType<typeof crewForm>;
             >
           </div>
           <fieldset>
-            <legend>Crew shifts (every day)</legend>
+            <legend>Crew shifts</legend>
+            <p class="hint">A shift that runs past midnight belongs to the day it starts.</p>
             @for (g of f.controls.shifts.controls; track g; let i = $index) {
               <div class="form-grid crew-grid" [formGroup]="g">
                 <mat-form-field appearance="outline">
@@ -148,6 +191,18 @@ type CrewForm = ReturnType<typeof crewForm>;
                 >
                   <mat-icon>delete</mat-icon>
                 </button>
+                <div class="days" role="group" [attr.aria-label]="'Shift ' + (i + 1) + ' days'">
+                  @for (w of week; track w.day; let d = $index) {
+                    <mat-checkbox
+                      [formControl]="g.controls.days.controls[d]!"
+                      [aria-label]="'Shift ' + (i + 1) + ' on ' + w.name"
+                      >{{ w.short }}</mat-checkbox
+                    >
+                  }
+                  @if (g.controls.days.invalid) {
+                    <p class="days-error" role="alert">{{ error(g.controls.days) }}</p>
+                  }
+                </div>
               </div>
             } @empty {
               <p class="hint">No shift listed: plans assume someone can make a crew move at any hour.</p>
@@ -227,6 +282,18 @@ type CrewForm = ReturnType<typeof crewForm>;
       row-gap: 12px;
       margin-bottom: 12px;
     }
+    .days {
+      grid-column: 1 / -1;
+      display: flex;
+      flex-wrap: wrap;
+      align-items: center;
+      gap: 0 4px;
+    }
+    .days-error {
+      margin: 0;
+      color: var(--mat-sys-error);
+      font: var(--mat-sys-body-small);
+    }
   `,
   changeDetection: ChangeDetectionStrategy.OnPush,
 })
@@ -258,7 +325,10 @@ export class YardCrewPanel {
     const shifts = this.crew().shifts;
     if (!shifts.length) return 'None listed: crew moves at any hour';
     return shifts
-      .map((s) => `${s.from}-${s.to}, ${s.movesPerSlot} ${s.movesPerSlot === 1 ? 'move' : 'moves'} per 15 min`)
+      .map(
+        (s) =>
+          `${s.from}-${s.to} ${daysText(s.days)}, ${s.movesPerSlot} ${s.movesPerSlot === 1 ? 'move' : 'moves'} per 15 min`,
+      )
       .join('; ');
   });
 
@@ -268,6 +338,8 @@ export class YardCrewPanel {
       () => 'the yard crew',
     );
   }
+
+  protected readonly week = WEEK;
 
   protected newShift() {
     return shiftGroup(null);
@@ -291,7 +363,11 @@ export class YardCrewPanel {
     const body: YardCrew = {
       minPlugInMinutes: v.minPlugInMinutes ?? 0,
       driversPlugIn: v.driversPlugIn,
-      shifts: v.shifts.map((s) => ({ from: s.from, to: s.to, movesPerSlot: s.movesPerSlot ?? 1 })),
+      shifts: v.shifts.map((s) => {
+        const days = WEEK.filter((_, d) => s.days[d]).map((w) => w.day);
+        // Every day ticked: the shift as before days existed (no list).
+        return { from: s.from, to: s.to, movesPerSlot: s.movesPerSlot ?? 1, ...(days.length < 7 ? { days } : {}) };
+      }),
       costTolerancePercent: v.costTolerancePercent ?? 0.5,
       costToleranceAmount: v.costToleranceAmount ?? 5,
     };
