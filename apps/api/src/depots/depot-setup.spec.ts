@@ -24,6 +24,9 @@ beforeAll(async () => {
 
 const as = (u: TestUser) => ({ Authorization: `Bearer ${u.token}` });
 const base = () => `/api/depots/${depot.depot.id}`;
+/** The depot's scenario base for a horizon, as facilities reads it. */
+const scenarioOf = (start: string, end: string) =>
+  app.request().get(`${base()}/scenario-base`).query({ start, end }).set(as(fac)).expect(200);
 const charger = (over: Record<string, unknown> = {}) => ({
   label: 'D',
   maxKw: 150,
@@ -256,12 +259,7 @@ describe('scenario base', () => {
   it('builds the site and tariff part that the engine accepts, leaving out chargers out of service', async () => {
     const sup = (await createOrganisation(app, { s: ['supervisor'] })).users.s!;
     void sup;
-    const res = await app
-      .request()
-      .get(`${base()}/scenario-base`)
-      .query({ start: '2026-12-09T12:00', end: '2026-12-10T09:00' })
-      .set(as(fac))
-      .expect(200);
+    const res = await scenarioOf('2026-12-09T12:00', '2026-12-10T09:00');
     const { scenario, notes } = res.body;
     expect(scenario.chargers.map((c: { id: string }) => c.id)).toEqual(expect.arrayContaining(['A', 'B', 'C']));
     expect(scenario.chargers.map((c: { id: string }) => c.id)).not.toContain('E');
@@ -322,12 +320,7 @@ describe('scenario base', () => {
     const withDefaults = { ...yardCrew, costTolerancePercent: 0.5, costToleranceAmount: 5 };
     expect(saved.body.yardCrew).toEqual(withDefaults);
     expect((await app.request().get(base()).set(as(fin)).expect(200)).body.depot.yardCrew).toEqual(withDefaults);
-    const res = await app
-      .request()
-      .get(`${base()}/scenario-base`)
-      .query({ start: '2026-12-09T12:00', end: '2026-12-10T09:00' })
-      .set(as(fac))
-      .expect(200);
+    const res = await scenarioOf('2026-12-09T12:00', '2026-12-10T09:00');
     expect(res.body.scenario.yard).toEqual({
       minPlugInMinutes: 45,
       driversPlugIn: true,
@@ -359,12 +352,7 @@ describe('scenario base', () => {
       .set(as(fac))
       .send({ ...yardCrew, shifts: yardCrew.shifts.map((x) => ({ ...x, days: weekdays })) })
       .expect(200);
-    const weekend = await app
-      .request()
-      .get(`${base()}/scenario-base`)
-      .query({ start: '2026-12-11T12:00', end: '2026-12-14T09:00' })
-      .set(as(fac))
-      .expect(200);
+    const weekend = await scenarioOf('2026-12-11T12:00', '2026-12-14T09:00');
     expect(weekend.body.scenario.yard.crew).toEqual([
       { from: '2026-12-11T15:00', to: '2026-12-11T23:30', movesPerSlot: 3 },
       { from: '2026-12-14T04:30', to: '2026-12-14T07:00', movesPerSlot: 2 },
@@ -382,12 +370,7 @@ describe('scenario base', () => {
       .set(as(fac))
       .send({ ...yardCrew, shifts: [], costTolerancePercent: 1, costToleranceAmount: 12 })
       .expect(200);
-    const any = await app
-      .request()
-      .get(`${base()}/scenario-base`)
-      .query({ start: '2026-12-09T12:00', end: '2026-12-10T09:00' })
-      .set(as(fac))
-      .expect(200);
+    const any = await scenarioOf('2026-12-09T12:00', '2026-12-10T09:00');
     expect(any.body.scenario.yard).toEqual({
       minPlugInMinutes: 45,
       driversPlugIn: true,

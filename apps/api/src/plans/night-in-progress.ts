@@ -289,6 +289,23 @@ export function stopSessions(
   };
 }
 
+/**
+ * A charger reported out is out from the report, where its charging was stopped (`stopSessions`),
+ * not from the re-plan's first quarter-hour: the timeline and Compare say 22:49, as the Yard does,
+ * not 23:00.
+ */
+export function outFromReport(whole: PlanResult, charger: string, at: Date, zone: string): PlanResult {
+  const from = Date.parse(whole.replan?.from ?? '');
+  return {
+    ...whole,
+    outOfService: (whole.outOfService ?? []).map((o) =>
+      o.charger === charger && Date.parse(o.from) === from
+        ? { ...o, from: DateTime.fromJSDate(at, { zone }).toISO()! }
+        : o,
+    ),
+  };
+}
+
 /** A state of charge the yard read tonight, kept for the re-plans after it. */
 export interface SocReading {
   kwh: number;

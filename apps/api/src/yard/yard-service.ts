@@ -39,7 +39,13 @@ import { comparePlans, planDetailOf } from '../plans/plans-service';
 import { runInPool } from '../workers/pool';
 import { LATE, OVERDUE_AFTER_MS, stepsDueSoon, yardSteps, type StepConfirmation, type StepContext } from './yard-steps';
 import { cutOffTarget, targetsOf } from '../plans/plan-target';
-import { mergeReplan, readingsAtCutOff, stopSessions, type SessionStop } from '../plans/night-in-progress';
+import {
+  mergeReplan,
+  outFromReport,
+  readingsAtCutOff,
+  stopSessions,
+  type SessionStop,
+} from '../plans/night-in-progress';
 import { nightOfDepot } from '../night/depot-night';
 import { publishedNight } from './tonight-query';
 import type { NotifiedCache } from '../db/notified-cache';
@@ -664,21 +670,9 @@ export async function replanAndPublish(
       report.kind === 'charger_out' ? null : describe,
     );
 
-  // The night as a whole: what was kept before the cut-off, then the re-plan. A charger reported
-  // out is out from the report (its charging stopped there), not from the re-plan's first
-  // quarter-hour: the timeline and Compare say 22:49 as the Yard does, not 23:00.
-  const merged0 = mergeReplan(previous, next, floor);
-  const whole =
-    report.kind === 'charger_out'
-      ? {
-          ...merged0,
-          outOfService: (merged0.outOfService ?? []).map((o) =>
-            o.charger === report.charger && Date.parse(o.from) === Date.parse(next.replan.from)
-              ? { ...o, from: DateTime.fromJSDate(cutAt, { zone }).toISO()! }
-              : o,
-          ),
-        }
-      : merged0;
+  // The night as a whole: what was kept before the cut-off, then the re-plan.
+  const replanned = mergeReplan(previous, next, floor);
+  const whole = report.kind === 'charger_out' ? outFromReport(replanned, report.charger, cutAt, zone) : replanned;
   const merged =
     targets && followed.target
       ? {
